@@ -1,0 +1,157 @@
+import { channelConditioning, scaleSamples } from "./condition/scaleSamples.js";
+import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
+import { InputError, quoted } from "./errors.js";
+import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
+import { RealFft } from "./estimate/realFft.js";
+import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
+import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./estimate/welchOptions.js";
+import { WelchAccumulator } from "./estimate/welchPsd.js";
+import { spectralWindow } from "./estimate/windows.js";
+import type { CsvReadOptions } from "./read/csvTimeHistory.js";
+import { openTimeHistory } from "./read/openTimeHistory.js";
+import type { ChannelInfo, RecordingInfo, TimeHistorySource } from "./read/timeHistory.js";
+import type { AccelUnit } from "./units.js";
+
+/**
+ * The one pass: read blocks, condition them, feed every channel's statistics and Welch accumulators,
+ * then finish into plain result objects. Memory: a few segments per channel, whatever the length.
+ */
+export interface AnalysisOptions extends WelchOptions {
+  csv?: CsvReadOptions | undefined;
+  /** Channel names or 1-based positions; all channels when empty. */
+  channels?: string[] | undefined;
+  /** Unit of the samples where the file does not say (default g). */
+  inputUnits?: AccelUnit | undefined;
+  /** Unit of the results (default: each channel's input unit). */
+  resultUnits?: AccelUnit | undefined;
+  /** Calibration: engineering units per file unit (per full scale for WAV). */
+  scale?: number | undefined;
+  fminHz?: number | undefined;
+  fmaxHz?: number | undefined;
+  onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
+}
+
+export interface ChannelAnalysis {
+  name: string;
+  /** 1-based position among the file's channels. */
+  position: number;
+  units: AccelUnit;
+  stats: SampleStatistics;
+  psd: PsdEstimate;
+  parseval: ParsevalCheck;
+  band?: { fminHz: number; fmaxHz: number; rms: number } | undefined;
+  peaks: SpectralPeak[];
+  /** Findings that weaken trust in the result; each names what was seen. */
+  warnings: string[];
+  /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
+  doubts: string[];
+}
+
+export interface RecordingAnalysis {
+  input: {
+    file: string;
+    format: "csv" | "wav";
+    layout: string;
+    sha256: string;
+    bytes: number;
+    sampleRateHz: number;
+    samples: number;
+    durationS: number;
+  };
+  settings: ResolvedWelchOptions & { scale: number };
+  channels: ChannelAnalysis[];
+}
+
+export function selectChannels(info: RecordingInfo, wanted: string[] | undefined): number[] {
+  if (wanted === undefined || wanted.length === 0) return info.channels.map((_, i) => i);
+  return wanted.map((w) => {
+    const byName = info.channels.findIndex((c) => c.name.toLowerCase() === w.toLowerCase());
+    if (byName >= 0) return byName;
+    if (/^\d+$/.test(w) && Number(w) >= 1 && Number(w) <= info.channels.length) return Number(w) - 1;
+    throw new InputError("CHANNEL_NOT_FOUND", {
+      file: info.file, option: "--channel", expected: `a channel name or position: ${info.channels.map((c, i) => `${i + 1}=${c.name}`).join(", ")}`, received: quoted(w),
+    });
+  });
+}
+
+export async function analyzeRecording(file: string, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
+  const source = await openTimeHistory(file, { ...options.csv, sampleRateHz: options.csv?.sampleRateHz });
+  return analyzeSource(source, options);
+}
+
+export async function analyzeSource(source: TimeHistorySource, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
+  const { info } = source;
+  const select = selectChannels(info, options.channels);
+  const conditioning = select.map((i) => channelConditioning(info.file, info.channels[i]!, options));
+  if (options.fminHz !== undefined && options.fmaxHz !== undefined && !(options.fminHz < options.fmaxHz)) {
+    throw new InputError("OPTION_INVALID", { option: "--fmin", expected: "--fmin below --fmax", received: `${options.fminHz} >= ${options.fmaxHz}` });
+  }
+  for (const [name, v] of [["--fmin", options.fminHz], ["--fmax", options.fmaxHz]] as const) {
+    if (v !== undefined && !(v >= 0 && Number.isFinite(v))) throw new InputError("OPTION_INVALID", { option: name, expected: "a frequency in Hz >= 0", received: String(v) });
+  }
+  const settings = normalizeWelchOptions(options, info.sampleRateHz);
+  const window = spectralWindow(settings.window, settings.segmentLength);
+  const fft = new RealFft(settings.segmentLength);
+  const welch = select.map(() => new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, fft));
+  const moments = select.map(() => new RunningMoments());
+  const summary = await source.read(
+    select,
+    (blocks, frames) => {
+      for (let c = 0; c < blocks.length; c++) {
+        const x = blocks[c]!;
+        scaleSamples(x, frames, conditioning[c]!.factor);
+        moments[c]!.push(x, frames);
+        welch[c]!.push(x, frames);
+      }
+    },
+    options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
+  );
+  const fs = summary.sampleRateHz;
+  // The line spacing follows the final rate (a CSV time column is only known once fully read).
+  const resolved = { ...settings, resolutionHz: fs / settings.segmentLength };
+  const channels = select.map((idx, c): ChannelAnalysis => {
+    const stats = moments[c]!.result();
+    const psd = completePsd(welch[c]!.finish(fs), window, resolved, fs);
+    const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
+    const parseval = parsevalCheck(rmsTime, psd.rmsPsd, settings.window, psd.averages);
+    const lo = options.fminHz ?? 0;
+    const hi = options.fmaxHz ?? fs / 2;
+    const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
+    const { warnings, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength);
+    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), warnings, doubts };
+  });
+  return {
+    input: {
+      file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
+      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs,
+    },
+    settings: { ...resolved, scale: options.scale ?? 1 },
+    channels,
+  };
+}
+
+/** Clipping at repeated extremes: three or more samples at the exact record maximum or minimum (common practice, a heuristic). */
+export const CLIP_HINT_COUNT = 3;
+
+function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number) {
+  const warnings: string[] = [];
+  const doubts: string[] = [];
+  if (ch.declaredUnitText !== undefined) warnings.push(`header unit ${quoted(ch.declaredUnitText)} is not an acceleration unit; values were taken as given (use --scale for a sensitivity)`);
+  if (s.nonFinite > 0) {
+    doubts.push(`${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD`);
+  }
+  if (s.atMax >= CLIP_HINT_COUNT || s.atMin >= CLIP_HINT_COUNT) {
+    doubts.push(`possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}`);
+  }
+  if (p.averages === 0) doubts.push(`record of ${frames} samples is shorter than one segment of ${segment}`);
+  else if (p.averages < 8) warnings.push(`only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)`);
+  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) warnings.push(`DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)`);
+  if (p.averages > 0 && !pv.ok) {
+    doubts.push(`Parseval mismatch: RMS from the PSD is ${(100 * (pv.ratio - 1)).toFixed(2)} % off the time-domain RMS (allowed ±${(100 * pv.tolerance).toFixed(0)} %)`);
+  }
+  return { warnings, doubts };
+}
+
+function fmt(x: number): string {
+  return Number(x.toPrecision(5)).toString();
+}

@@ -1,0 +1,66 @@
+/**
+ * One error type for every problem with what the user gave us (files, options, profiles).
+ * It carries a stable code and the place (file, line, column, key path, WAV chunk, option),
+ * and every message is built by one function in the form "expected … received …".
+ */
+
+/** Where a problem sits. Lines and columns are 1-based file positions. */
+export interface ErrorPlace {
+  file?: string | undefined;
+  line?: number | undefined;
+  column?: number | undefined;
+  /** A column or channel name. */
+  field?: string | undefined;
+  /** A key path inside a structured file, e.g. `points[2].hz`. */
+  keyPath?: string | undefined;
+  /** A RIFF chunk of a WAV file, e.g. `fmt ` or `data`. */
+  chunk?: string | undefined;
+  /** A command-line option, e.g. `--segment`. */
+  option?: string | undefined;
+}
+
+export interface InputErrorDetails extends ErrorPlace {
+  expected: string;
+  received?: string | undefined;
+  hint?: string | undefined;
+}
+
+export class InputError extends Error {
+  readonly code: string;
+  readonly details: InputErrorDetails;
+  constructor(code: string, details: InputErrorDetails) {
+    super(formatInputError(code, details));
+    this.name = "InputError";
+    this.code = code;
+    this.details = details;
+  }
+}
+
+/** `file:line:col: expected …, received … [CODE] (hint: …)` */
+export function formatInputError(code: string, d: InputErrorDetails): string {
+  const place: string[] = [];
+  if (d.file !== undefined) {
+    let p = d.file;
+    if (d.line !== undefined) p += `:${d.line}`;
+    if (d.line !== undefined && d.column !== undefined) p += `:${d.column}`;
+    if (d.field !== undefined) p += ` (${d.field})`;
+    place.push(p);
+  } else if (d.field !== undefined) place.push(`channel ${JSON.stringify(d.field)}`);
+  if (d.keyPath !== undefined) place.push(d.keyPath);
+  if (d.chunk !== undefined) place.push(`chunk '${d.chunk}'`);
+  if (d.option !== undefined) place.push(`option ${d.option}`);
+  let msg = place.length > 0 ? `${place.join(": ")}: ` : "";
+  msg += `expected ${d.expected}`;
+  if (d.received !== undefined) msg += `, received ${d.received}`;
+  msg += ` [${code}]`;
+  if (d.hint !== undefined) msg += ` (hint: ${d.hint})`;
+  return msg;
+}
+
+/** Quote a received value for a message, shortened so a megabyte line cannot flood the terminal. */
+export function quoted(value: string, max = 40): string {
+  const s = value.length > max ? `${value.slice(0, max)}…` : value;
+  return JSON.stringify(s);
+}
+
+export const EXIT = { ok: 0, fail: 1, input: 2, inconclusive: 3, internal: 70 } as const;

@@ -1,0 +1,104 @@
+import { chiSquareIntervalFactors } from "./chiSquare.js";
+import { RealFft } from "./realFft.js";
+import { welchDof } from "./welchDof.js";
+import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./welchOptions.js";
+import { WelchAccumulator, type WelchSums } from "./welchPsd.js";
+import { spectralWindow } from "./windows.js";
+
+/** A one-sided PSD with its chi-square confidence bounds, in the squared input unit per Hz. */
+export interface PsdEstimate {
+  frequencyHz: Float64Array;
+  psd: Float64Array;
+  lower: Float64Array;
+  upper: Float64Array;
+  /** Segments averaged. */
+  averages: number;
+  skippedSegments: number;
+  /** Equivalent degrees of freedom of lines 0 < f < fs/2 (half that at DC and Nyquist). */
+  dof: number;
+  /** Random error sqrt(2 / dof) of one line (Bendat & Piersol 2010, ch. 8). */
+  randomError: number;
+  /** sqrt(sum P df). */
+  rmsPsd: number;
+  windowedMeanSquare: number;
+  lineSpacingHz: number;
+}
+
+export function frequencyAxis(segmentLength: number, sampleRateHz: number): Float64Array {
+  const f = new Float64Array(segmentLength / 2 + 1);
+  for (let k = 0; k < f.length; k++) f[k] = (k * sampleRateHz) / segmentLength;
+  return f;
+}
+
+/** Turn the Welch sums into the estimate: frequencies, DOF from the window and hop, bounds. */
+export function completePsd(sums: WelchSums, window: Float64Array, s: ResolvedWelchOptions, sampleRateHz: number): PsdEstimate {
+  const n = s.segmentLength;
+  const psd = sums.psd;
+  const dof = welchDof(window, s.hop, sums.segments);
+  const lower = new Float64Array(psd.length);
+  const upper = new Float64Array(psd.length);
+  if (sums.segments > 0) {
+    const mid = chiSquareIntervalFactors(dof, s.confidence);
+    const edge = chiSquareIntervalFactors(dof / 2, s.confidence);
+    for (let k = 0; k < psd.length; k++) {
+      const f = k === 0 || k === n / 2 ? edge : mid;
+      lower[k] = psd[k]! * f.lower;
+      upper[k] = psd[k]! * f.upper;
+    }
+  } else {
+    lower.fill(NaN);
+    upper.fill(NaN);
+    psd.fill(NaN);
+  }
+  const df = sampleRateHz / n;
+  let area = 0;
+  for (let k = 0; k < psd.length; k++) area += psd[k]!;
+  return {
+    frequencyHz: frequencyAxis(n, sampleRateHz),
+    psd, lower, upper,
+    averages: sums.segments,
+    skippedSegments: sums.skippedSegments,
+    dof,
+    randomError: dof > 0 ? Math.sqrt(2 / dof) : NaN,
+    rmsPsd: Math.sqrt(area * df),
+    windowedMeanSquare: sums.windowedMeanSquare,
+    lineSpacingHz: df,
+  };
+}
+
+/** Welch PSD of one whole signal held in memory. For files, use analyzeRecording (streaming). */
+export function welchPsd(x: Float64Array, sampleRateHz: number, options: WelchOptions = {}): PsdEstimate & { settings: ResolvedWelchOptions } {
+  const s = normalizeWelchOptions(options, sampleRateHz);
+  const w = spectralWindow(s.window, s.segmentLength);
+  const acc = new WelchAccumulator({ segmentLength: s.segmentLength, hop: s.hop, window: w, detrend: s.detrend }, new RealFft(s.segmentLength));
+  acc.push(x);
+  return { ...completePsd(acc.finish(sampleRateHz), w, s, sampleRateHz), settings: s };
+}
+
+/** sqrt(sum of P df) over lines with fmin <= f <= fmax. */
+export function bandRms(p: PsdEstimate, fminHz: number, fmaxHz: number): number {
+  let s = 0;
+  for (let k = 0; k < p.psd.length; k++) {
+    const f = p.frequencyHz[k]!;
+    if (f >= fminHz && f <= fmaxHz) s += p.psd[k]!;
+  }
+  return Math.sqrt(s * p.lineSpacingHz);
+}
+
+export interface SpectralPeak {
+  frequencyHz: number;
+  level: number;
+}
+
+/** The strongest local maxima of the PSD (DC excluded), highest first. */
+export function strongestPeaks(p: PsdEstimate, count: number): SpectralPeak[] {
+  const peaks: SpectralPeak[] = [];
+  const x = p.psd;
+  for (let k = 1; k < x.length; k++) {
+    const left = x[k - 1]!;
+    const right = k + 1 < x.length ? x[k + 1]! : -Infinity;
+    if (x[k]! > left && x[k]! >= right) peaks.push({ frequencyHz: p.frequencyHz[k]!, level: x[k]! });
+  }
+  peaks.sort((a, b) => b.level - a.level);
+  return peaks.slice(0, count);
+}

@@ -1,0 +1,142 @@
+import { RealFft } from "./realFft.js";
+
+/**
+ * Welch's averaged modified periodogram, accumulated as samples arrive (Welch 1967, IEEE Trans. Audio
+ * Electroacoust. AU-15(2):70-73). Memory is one segment buffer, one work buffer and the running sum,
+ * whatever the record's length.
+ *
+ * One-sided density: P[k] = 2 |X[k]|^2 / (fs sum w^2) for 0 < k < N/2, and without the factor 2 at
+ * k = 0 and k = N/2 (DC and Nyquist are not mirrored), so sum(P) df equals the window-weighted mean
+ * square. Segments start every `hop` samples; a trailing partial segment is dropped, as in
+ * scipy.signal.welch. Each segment is detrended (none, mean, least-squares line) before windowing.
+ */
+export type Detrend = "none" | "mean" | "linear";
+
+export interface WelchSettings {
+  segmentLength: number;
+  hop: number;
+  window: Float64Array;
+  detrend: Detrend;
+}
+
+export interface WelchSums {
+  /** Segments averaged. */
+  segments: number;
+  /** Segments left out because they held a non-finite sample. */
+  skippedSegments: number;
+  /** Samples seen. */
+  samples: number;
+  /** One-sided density, length N/2 + 1, in (input unit)^2/Hz. */
+  psd: Float64Array;
+  /** Average over segments of sum((detrended x * w)^2) / sum(w^2): what sum(P) df must equal exactly. */
+  windowedMeanSquare: number;
+}
+
+export class WelchAccumulator {
+  private readonly n: number;
+  private readonly hop: number;
+  private readonly window: Float64Array;
+  private readonly detrend: Detrend;
+  private readonly fft: RealFft;
+  private readonly segment: Float64Array;
+  private readonly work: Float64Array;
+  private readonly sum: Float64Array;
+  private readonly sumW2: number;
+  private fill = 0;
+  /** Samples still to drop before the next segment starts (hop larger than the segment). */
+  private skip = 0;
+  private segments = 0;
+  private skipped = 0;
+  private samples = 0;
+  private weightedMs = 0;
+
+  constructor(settings: WelchSettings, fft?: RealFft) {
+    this.n = settings.segmentLength;
+    this.hop = settings.hop;
+    this.window = settings.window;
+    this.detrend = settings.detrend;
+    this.fft = fft ?? new RealFft(this.n);
+    if (this.fft.size !== this.n || this.window.length !== this.n) throw new RangeError("window, FFT and segment length differ");
+    this.segment = new Float64Array(this.n);
+    this.work = new Float64Array(this.n);
+    this.sum = new Float64Array(this.n / 2 + 1);
+    let s = 0;
+    for (let i = 0; i < this.n; i++) s += this.window[i]! * this.window[i]!;
+    this.sumW2 = s;
+  }
+
+  push(x: Float64Array, count = x.length): void {
+    this.samples += count;
+    let i = 0;
+    while (i < count) {
+      if (this.skip > 0) {
+        const d = Math.min(this.skip, count - i);
+        this.skip -= d;
+        i += d;
+        continue;
+      }
+      const m = Math.min(this.n - this.fill, count - i);
+      this.segment.set(x.subarray(i, i + m), this.fill);
+      this.fill += m;
+      i += m;
+      if (this.fill === this.n) {
+        this.processSegment();
+        if (this.hop < this.n) {
+          this.segment.copyWithin(0, this.hop, this.n);
+          this.fill = this.n - this.hop;
+        } else {
+          this.fill = 0;
+          this.skip = this.hop - this.n;
+        }
+      }
+    }
+  }
+
+  private processSegment(): void {
+    const n = this.n;
+    const x = this.segment;
+    const w = this.window;
+    const y = this.work;
+    let sum = 0;
+    for (let i = 0; i < n; i++) sum += x[i]!;
+    if (!Number.isFinite(sum)) {
+      this.skipped++;
+      return;
+    }
+    const mean = this.detrend === "none" ? 0 : sum / n;
+    let slope = 0;
+    const mid = (n - 1) / 2;
+    if (this.detrend === "linear") {
+      // Least-squares line on the sample index: slope = sum (i - mid) x_i / sum (i - mid)^2.
+      let sxy = 0;
+      for (let i = 0; i < n; i++) sxy += (i - mid) * x[i]!;
+      slope = sxy / ((n * (n * n - 1)) / 12);
+    }
+    let ms = 0;
+    for (let i = 0; i < n; i++) {
+      const v = (x[i]! - mean - slope * (i - mid)) * w[i]!;
+      y[i] = v;
+      ms += v * v;
+    }
+    this.weightedMs += ms / this.sumW2;
+    this.fft.addPowerSpectrum(y, this.sum);
+    this.segments++;
+  }
+
+  finish(sampleRateHz: number): WelchSums {
+    const half = this.n / 2;
+    const psd = new Float64Array(half + 1);
+    const k = this.segments;
+    if (k > 0) {
+      const scale = 1 / (sampleRateHz * this.sumW2 * k);
+      for (let i = 0; i <= half; i++) psd[i] = this.sum[i]! * scale * (i === 0 || i === half ? 1 : 2);
+    }
+    return {
+      segments: k,
+      skippedSegments: this.skipped,
+      samples: this.samples,
+      psd,
+      windowedMeanSquare: k > 0 ? this.weightedMs / k : NaN,
+    };
+  }
+}

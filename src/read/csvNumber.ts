@@ -1,0 +1,111 @@
+/**
+ * Byte-level number scanner for the CSV fast path. Accepts [+-]digits[.digits][(e|E)[+-]digits]
+ * (with `decimal` as the decimal mark) and returns exactly what Number() returns for the same text:
+ * with at most 15 significant digits and a decimal exponent within +-22, the value m / 10^k or m * 10^k
+ * is one correctly rounded IEEE operation on exact operands (Clinger 1990, "How to read floating point
+ * numbers accurately", PLDI); anything else goes to Number() on the text.
+ */
+const POW10 = new Float64Array(23);
+for (let i = 0; i < 23; i++) POW10[i] = Number(`1e${i}`);
+
+export interface ScanState {
+  /** Index just after the number, or -1 when the bytes were not a plain number. */
+  end: number;
+  value: number;
+  /** Digits after the decimal mark. */
+  fractionDigits: number;
+}
+
+export function scanNumber(buf: Uint8Array, p: number, e: number, decimal: number, out: ScanState): void {
+  const start = p;
+  let neg = false;
+  let c = buf[p];
+  if (c === 45 /* - */ || c === 43 /* + */) {
+    neg = c === 45;
+    p++;
+  }
+  let mant = 0;
+  let sig = 0;
+  let exp10 = 0;
+  let digits = 0;
+  while (p < e && (c = buf[p]!) >= 48 && c <= 57) {
+    if (sig > 0 || c !== 48) {
+      if (sig < 16) mant = mant * 10 + (c - 48);
+      else exp10++;
+      sig++;
+    }
+    digits++;
+    p++;
+  }
+  let frac = 0;
+  if (p < e && buf[p] === decimal) {
+    p++;
+    while (p < e && (c = buf[p]!) >= 48 && c <= 57) {
+      if (sig > 0 || c !== 48) {
+        if (sig < 16) {
+          mant = mant * 10 + (c - 48);
+          exp10--;
+        }
+        sig++;
+      } else exp10--;
+      digits++;
+      frac++;
+      p++;
+    }
+  }
+  if (digits === 0) {
+    out.end = -1;
+    return;
+  }
+  if (p < e && ((c = buf[p]!) === 101 || c === 69)) {
+    p++;
+    let eneg = false;
+    if (buf[p] === 45 || buf[p] === 43) {
+      eneg = buf[p] === 45;
+      p++;
+    }
+    let ev = 0;
+    let ed = 0;
+    while (p < e && (c = buf[p]!) >= 48 && c <= 57) {
+      if (ev < 100000) ev = ev * 10 + (c - 48);
+      ed++;
+      p++;
+    }
+    if (ed === 0) {
+      out.end = -1;
+      return;
+    }
+    exp10 += eneg ? -ev : ev;
+  }
+  out.end = p;
+  out.fractionDigits = frac;
+  let v: number;
+  if (sig <= 15 && exp10 >= -22 && exp10 <= 22) {
+    v = exp10 < 0 ? mant / POW10[-exp10]! : mant * POW10[exp10]!;
+  } else {
+    let s = "";
+    for (let i = start; i < p; i++) s += String.fromCharCode(buf[i] === decimal ? 46 : buf[i]!);
+    v = Number(s);
+    out.value = v;
+    return;
+  }
+  out.value = neg ? -v : v;
+}
+
+/** The text forms a logger writes for a missing or overflowed sample; read as non-finite values. */
+export function nonFiniteToken(text: string): number | undefined {
+  const t = text.trim().toLowerCase();
+  if (t === "nan") return NaN;
+  if (t === "inf" || t === "+inf" || t === "infinity" || t === "+infinity") return Infinity;
+  if (t === "-inf" || t === "-infinity") return -Infinity;
+  return undefined;
+}
+
+/** Parse a whole field as text (slow path), with the given decimal mark. NaN means "not a number". */
+export function parseNumberText(text: string, decimal: "." | ","): number {
+  const t = text.trim();
+  if (!/^[+-]?(\d+\.?\d*|\.\d+|\d+,?\d*|,\d+)([eE][+-]?\d+)?$/.test(t)) return NaN;
+  if (decimal === "." && t.includes(",")) return NaN;
+  if (decimal === "," && t.includes(".")) return NaN;
+  return Number(decimal === "," ? t.replace(",", ".") : t);
+}

@@ -1,0 +1,44 @@
+import type { AccelUnit } from "../units.js";
+
+/** What a reader learns from a file before the samples flow. */
+export interface RecordingInfo {
+  file: string;
+  format: "csv" | "wav";
+  /** Provisional for CSV with a time column (from the first rows); final value in ReadSummary. */
+  sampleRateHz: number;
+  channels: ChannelInfo[];
+  /** Frames, when the header says (WAV). */
+  frames?: number | undefined;
+  bytes: number;
+  /** Format details for the report (CSV dialect, WAV encoding). */
+  layout: string;
+}
+
+export interface ChannelInfo {
+  name: string;
+  /** Unit stated by the file itself (a CSV header such as `az [m/s^2]`), if any. */
+  declaredUnit?: AccelUnit | undefined;
+  /** A unit text the file states that is not an acceleration unit (e.g. `mV`). */
+  declaredUnitText?: string | undefined;
+}
+
+export interface ReadSummary {
+  frames: number;
+  sampleRateHz: number;
+  sha256: string;
+  bytes: number;
+}
+
+/**
+ * Receives blocks of samples: one Float64Array per selected channel, `frames` valid values each.
+ * The arrays are reused for the next block: copy what must outlive the call.
+ */
+export type BlockSink = (channels: Float64Array[], frames: number) => void;
+
+export interface TimeHistorySource {
+  info: RecordingInfo;
+  /** Streams the selected channels (indexes into info.channels) once through `sink`. */
+  read(select: number[], sink: BlockSink, onProgress?: (bytesDone: number) => void): Promise<ReadSummary>;
+}
+
+export const BLOCK_FRAMES = 8192;

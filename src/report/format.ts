@@ -1,0 +1,26 @@
+/** Number formatting shared by the text, CSV and HTML reports. */
+export function sig(x: number, digits = 4): string {
+  if (!Number.isFinite(x)) return String(x);
+  if (x === 0) return "0";
+  const a = Math.abs(x);
+  if (a >= 1e-3 && a < 1e6) return Number(x.toPrecision(digits)).toString();
+  return x.toExponential(digits - 1);
+}
+
+export function fixed(x: number, decimals: number): string {
+  return Number.isFinite(x) ? x.toFixed(decimals) : String(x);
+}
+
+/** 10 log10(x), for factors shown in dB. */
+export function dB(x: number): number {
+  return 10 * Math.log10(x);
+}
+
+/** Right-aligned columns for terminal tables. */
+export function table(rows: string[][], indent = "  "): string {
+  const widths: number[] = [];
+  for (const r of rows) r.forEach((c, i) => (widths[i] = Math.max(widths[i] ?? 0, [...c].length)));
+  return rows
+    .map((r) => indent + r.map((c, i) => (i === 0 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join("  ").trimEnd())
+    .join("\n");
+}

@@ -1,0 +1,77 @@
+import type { RecordingAnalysis } from "../analyzeRecording.js";
+import { densityAscii } from "../units.js";
+
+/** Plain numbers for JSON: NaN and infinities become null (JSON has no such values). */
+export function finiteOrNull(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
+}
+function arr(a: Float64Array): (number | null)[] {
+  return Array.from(a, finiteOrNull);
+}
+
+export function toolInfo(version: string) {
+  return { name: "psdgate", version };
+}
+
+export function inputJson(a: RecordingAnalysis) {
+  const i = a.input;
+  return { file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS };
+}
+
+export function settingsJson(a: RecordingAnalysis) {
+  const s = a.settings;
+  return { window: s.window, segment: s.segmentLength, overlap: s.overlap, hop: s.hop, detrend: s.detrend, confidence: s.confidence, resolutionHz: s.resolutionHz, scale: s.scale };
+}
+
+export function statsJson(a: RecordingAnalysis["channels"][number]) {
+  const s = a.stats;
+  return Object.fromEntries(Object.entries(s).map(([k, v]) => [k, finiteOrNull(v)]));
+}
+
+/** The `psd --json` document (schema in README.md). */
+export function psdJson(a: RecordingAnalysis, version: string) {
+  return {
+    tool: toolInfo(version),
+    input: inputJson(a),
+    settings: settingsJson(a),
+    frequencyHz: arr(a.channels[0]?.psd.frequencyHz ?? new Float64Array()),
+    channels: a.channels.map((c) => ({
+      name: c.name,
+      position: c.position,
+      units: densityAscii(c.units),
+      psd: arr(c.psd.psd),
+      lower: arr(c.psd.lower),
+      upper: arr(c.psd.upper),
+      averages: c.psd.averages,
+      skippedSegments: c.psd.skippedSegments,
+      dof: finiteOrNull(c.psd.dof),
+      rmsTime: finiteOrNull(c.parseval.rmsTime),
+      rmsPsd: finiteOrNull(c.parseval.rmsPsd),
+      parsevalRatio: finiteOrNull(c.parseval.ratio),
+      parsevalTolerance: c.parseval.tolerance,
+      windowedMeanSquare: finiteOrNull(c.psd.windowedMeanSquare),
+      band: c.band ? { fminHz: c.band.fminHz, fmaxHz: c.band.fmaxHz, rms: finiteOrNull(c.band.rms) } : null,
+      peaks: c.peaks,
+      stats: statsJson(c),
+      warnings: c.warnings,
+      doubts: c.doubts,
+    })),
+  };
+}
+
+/** `--csv`: frequency, then psd/lower/upper of each channel. Full precision (shortest round-trip). */
+export function psdCsv(a: RecordingAnalysis): string {
+  const head = ["frequency_hz"];
+  for (const c of a.channels) {
+    const u = densityAscii(c.units);
+    head.push(`${c.name}_psd [${u}]`, `${c.name}_lower [${u}]`, `${c.name}_upper [${u}]`);
+  }
+  const lines = [head.join(",")];
+  const f = a.channels[0]?.psd.frequencyHz ?? new Float64Array();
+  for (let k = 0; k < f.length; k++) {
+    const row = [String(f[k])];
+    for (const c of a.channels) row.push(String(c.psd.psd[k]), String(c.psd.lower[k]), String(c.psd.upper[k]));
+    lines.push(row.join(","));
+  }
+  return lines.join("\n") + "\n";
+}

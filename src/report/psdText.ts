@@ -1,0 +1,66 @@
+import type { ChannelAnalysis, RecordingAnalysis } from "../analyzeRecording.js";
+import { chiSquareIntervalFactors } from "../estimate/chiSquare.js";
+import { accelLabel, densityLabel } from "../units.js";
+import { dB, fixed, sig } from "./format.js";
+
+const DETREND_WORDS = { none: "nothing removed", mean: "mean removed per segment", linear: "linear trend removed per segment" } as const;
+
+export function recordingLines(a: RecordingAnalysis): string[] {
+  const i = a.input;
+  return [
+    `  recording  ${i.layout}`,
+    `             ${i.samples} samples at ${sig(i.sampleRateHz, 6)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed`,
+    `             sha256 ${i.sha256}`,
+  ];
+}
+
+export function settingsLine(a: RecordingAnalysis): string {
+  const s = a.settings;
+  return `  analysis   ${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap, ${DETREND_WORDS[s.detrend]}, ${fixed(100 * s.confidence, 1)} % bounds${s.scale !== 1 ? `, scale x${s.scale}` : ""}`;
+}
+
+export function statsLine(c: ChannelAnalysis): string {
+  const s = c.stats;
+  const u = accelLabel(c.units);
+  return `  samples    mean ${sig(s.mean)} ${u}, std ${sig(s.std)}, min ${sig(s.min)}, max ${sig(s.max)}, crest factor ${fixed(s.crestFactor, 2)}, skewness ${fixed(s.skewness, 3)}, kurtosis ${fixed(s.kurtosis, 3)}`;
+}
+
+export function findingLines(c: ChannelAnalysis): string[] {
+  return [...c.doubts.map((d) => `  DOUBT      ${d}`), ...c.warnings.map((w) => `  note       ${w}`)];
+}
+
+export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
+  const u = accelLabel(c.units);
+  const du = densityLabel(c.units);
+  const p = c.psd;
+  const lines = [`channel ${c.position} "${c.name}" (${u})`];
+  const pv = c.parseval;
+  lines.push(`  RMS        ${sig(pv.rmsTime)} ${u} from the time history, ${sig(pv.rmsPsd)} ${u} from the PSD, ratio ${fixed(pv.ratio, 4)} (${pv.ok ? "agree" : "DISAGREE"} within ±${fixed(100 * pv.tolerance, 0)} %)`);
+  if (p.averages > 0) {
+    const f = chiSquareIntervalFactors(p.dof, confidence);
+    lines.push(`  averages   ${p.averages}, ${fixed(p.dof, 1)} degrees of freedom, each line ±${fixed(100 * p.randomError, 1)} % (1 sigma), ${fixed(100 * confidence, 0)} % bounds ${fixed(dB(f.lower), 2)} / +${fixed(dB(f.upper), 2)} dB`);
+  }
+  if (c.band) lines.push(`  band       ${sig(c.band.fminHz)}–${sig(c.band.fmaxHz)} Hz: RMS ${sig(c.band.rms)} ${u} from the PSD`);
+  if (c.peaks.length > 0) lines.push(`  peaks      ${c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ")} ${du}`);
+  lines.push(statsLine(c), ...findingLines(c));
+  return lines.join("\n");
+}
+
+export function psdText(a: RecordingAnalysis, version: string): string {
+  return [
+    `psdgate ${version}: PSD of ${a.input.file}`,
+    ...recordingLines(a),
+    settingsLine(a),
+    "",
+    ...a.channels.map((c) => psdChannelText(c, a.settings.confidence) + "\n"),
+  ].join("\n");
+}
+
+export function inspectText(a: RecordingAnalysis, version: string): string {
+  const out = [`psdgate ${version}: contents of ${a.input.file}`, ...recordingLines(a), ""];
+  for (const c of a.channels) {
+    out.push(`channel ${c.position} "${c.name}" (${accelLabel(c.units)})`, `  RMS        ${sig(c.stats.rms)} ${accelLabel(c.units)} (mean included), ${c.stats.count} finite samples`, statsLine(c));
+    out.push(...findingLines(c).filter((l) => !l.includes("Parseval") && !l.includes("shorter than one segment")), "");
+  }
+  return out.join("\n");
+}
