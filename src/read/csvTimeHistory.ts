@@ -256,8 +256,8 @@ async function readBody(
   let lineNo = d.bodyLine;
   const scan: ScanState = { end: 0, value: 0, fractionDigits: 0 };
 
-  // Time-step check: the step estimate comes from the first rows (span / count, robust to rounding
-  // of printed time stamps); each step must then lie within 1 % of it plus the printed resolution.
+  // Time-step check: the median step of the first rows is the reference; every step must lie within
+  // 1 % of it plus the resolution of the printed stamps (so stamps rounded to 6 decimals pass).
   const PROBE = 1024;
   const probeT = new Float64Array(PROBE + 1);
   const probeLine = new Float64Array(PROBE + 1);
@@ -298,9 +298,20 @@ async function readBody(
     tLast = t;
   };
   const settleStep = (count: number) => {
-    if (count < 2) return;
-    dt = (probeT[count - 1]! - probeT[0]!) / (count - 1);
-    tol = 0.01 * Math.abs(dt) + 1.01 * Math.pow(10, -maxFrac) * timeFactor;
+    if (timeIndex < 0 || count < 2) return;
+    // Order first, so a decreasing stamp is named as such; then the median step of the probe.
+    for (let i = 1; i < count; i++) {
+      if (!(probeT[i]! > probeT[i - 1]!)) {
+        dt = Infinity;
+        tol = Infinity;
+        checkStep(probeT[i]!, probeLine[i]!, probeT[i - 1]!);
+      }
+    }
+    const steps = new Float64Array(count - 1);
+    for (let i = 1; i < count; i++) steps[i - 1] = probeT[i]! - probeT[i - 1]!;
+    steps.sort();
+    dt = steps[(steps.length - 1) >> 1]!;
+    tol = 0.01 * dt + Math.min(1.01 * Math.pow(10, -maxFrac) * timeFactor, 0.5 * dt);
     for (let i = 1; i < count; i++) checkStep(probeT[i]!, probeLine[i]!, probeT[i - 1]!);
   };
 

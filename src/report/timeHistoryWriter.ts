@@ -1,0 +1,91 @@
+import { randomBytes } from "node:crypto";
+import { existsSync } from "node:fs";
+import { open, rename, rm, type FileHandle } from "node:fs/promises";
+import { basename, dirname, join } from "node:path";
+import { InputError } from "../errors.js";
+import type { AccelUnit } from "../units.js";
+
+/**
+ * Streams a time history to a WAV (IEEE float 32-bit) or CSV file through a temporary file in the
+ * target folder, renamed on close: a crash or an error never leaves a half-written output.
+ */
+export interface TimeHistoryWriter {
+  write(channels: Float64Array[], frames: number): Promise<void>;
+  close(): Promise<void>;
+  abort(): Promise<void>;
+}
+
+export interface WriterOptions {
+  sampleRateHz: number;
+  channelNames: string[];
+  units: AccelUnit;
+  force?: boolean | undefined;
+  option: string;
+}
+
+export async function createTimeHistoryWriter(target: string, o: WriterOptions): Promise<TimeHistoryWriter> {
+  const wav = /\.wav$/i.test(target);
+  if (!wav && !/\.(csv|txt)$/i.test(target)) {
+    throw new InputError("OUTPUT_FORMAT", { option: o.option, expected: "a file name ending in .wav or .csv", received: target });
+  }
+  if (existsSync(target) && !o.force) throw new InputError("OUTPUT_EXISTS", { option: o.option, expected: "a new file", received: `${target} (exists)`, hint: "add --force to replace it" });
+  const tmp = join(dirname(target), `.${basename(target)}.${randomBytes(4).toString("hex")}.tmp`);
+  let fh: FileHandle;
+  try {
+    fh = await open(tmp, "wx");
+  } catch (e) {
+    throw new InputError("OUTPUT_UNWRITABLE", { option: o.option, expected: "a writable path", received: `${target} (${(e as NodeJS.ErrnoException).code})` });
+  }
+  const nch = o.channelNames.length;
+  let frames = 0;
+  if (wav) await fh.write(Buffer.alloc(44), 0, 44, 0);
+  else {
+    const u = o.units === "g" ? "g" : "m/s^2";
+    await fh.write(`time [s],${o.channelNames.map((n) => `${n} [${u}]`).join(",")}\n`);
+  }
+  const decimals = Math.max(6, Math.ceil(Math.log10(o.sampleRateHz)) + 4);
+  return {
+    async write(channels, count) {
+      if (wav) {
+        const buf = Buffer.allocUnsafe(count * nch * 4);
+        let p = 0;
+        for (let i = 0; i < count; i++) for (let c = 0; c < nch; c++, p += 4) buf.writeFloatLE(channels[c]![i]!, p);
+        await fh.write(buf);
+      } else {
+        let s = "";
+        for (let i = 0; i < count; i++) {
+          s += ((frames + i) / o.sampleRateHz).toFixed(decimals);
+          for (let c = 0; c < nch; c++) s += "," + channels[c]![i]!.toPrecision(9);
+          s += "\n";
+        }
+        await fh.write(s);
+      }
+      frames += count;
+    },
+    async close() {
+      if (wav) {
+        const h = Buffer.alloc(44);
+        const dataBytes = frames * nch * 4;
+        h.write("RIFF", 0, "latin1");
+        h.writeUInt32LE(36 + dataBytes, 4);
+        h.write("WAVEfmt ", 8, "latin1");
+        h.writeUInt32LE(16, 16);
+        h.writeUInt16LE(3, 20); // IEEE float
+        h.writeUInt16LE(nch, 22);
+        h.writeUInt32LE(Math.round(o.sampleRateHz), 24);
+        h.writeUInt32LE(Math.round(o.sampleRateHz) * nch * 4, 28);
+        h.writeUInt16LE(nch * 4, 32);
+        h.writeUInt16LE(32, 34);
+        h.write("data", 36, "latin1");
+        h.writeUInt32LE(dataBytes, 40);
+        await fh.write(h, 0, 44, 0);
+      }
+      await fh.close();
+      await rename(tmp, target);
+    },
+    async abort() {
+      await fh.close().catch(() => undefined);
+      await rm(tmp, { force: true });
+    },
+  };
+}
