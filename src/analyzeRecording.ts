@@ -2,6 +2,7 @@ import { channelConditioning, scaleSamples } from "./condition/scaleSamples.js";
 import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
 import { InputError, quoted } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
+import { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
 import { RealFft } from "./estimate/realFft.js";
 import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./estimate/welchOptions.js";
@@ -41,6 +42,7 @@ export interface ChannelAnalysis {
   parseval: ParsevalCheck;
   band?: { fminHz: number; fmaxHz: number; rms: number } | undefined;
   peaks: SpectralPeak[];
+  histogram: AmplitudeHistogram;
   /** Findings that weaken trust in the result; each names what was seen. */
   warnings: string[];
   /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
@@ -94,6 +96,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const fft = new RealFft(settings.segmentLength);
   const welch = select.map(() => new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, fft));
   const moments = select.map(() => new RunningMoments());
+  const histograms = select.map(() => new HistogramAccumulator());
   const summary = await source.read(
     select,
     (blocks, frames) => {
@@ -101,6 +104,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
         const x = blocks[c]!;
         scaleSamples(x, frames, conditioning[c]!.factor);
         moments[c]!.push(x, frames);
+        histograms[c]!.push(x, frames);
         welch[c]!.push(x, frames);
       }
     },
@@ -118,7 +122,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const hi = options.fmaxHz ?? fs / 2;
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
     const { warnings, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength);
-    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), warnings, doubts };
+    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), histogram: histograms[c]!.densityAround(stats.mean, stats.std), warnings, doubts };
   });
   return {
     input: {

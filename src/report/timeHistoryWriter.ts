@@ -38,10 +38,16 @@ export async function createTimeHistoryWriter(target: string, o: WriterOptions):
   }
   const nch = o.channelNames.length;
   let frames = 0;
-  if (wav) await fh.write(Buffer.alloc(44), 0, 44, 0);
+  // Every write names its position: positional writes do not move the file offset.
+  let pos = 0;
+  const append = async (b: Buffer) => {
+    await fh.write(b, 0, b.length, pos);
+    pos += b.length;
+  };
+  if (wav) await append(Buffer.alloc(44));
   else {
     const u = o.units === "g" ? "g" : "m/s^2";
-    await fh.write(`time [s],${o.channelNames.map((n) => `${n} [${u}]`).join(",")}\n`);
+    await append(Buffer.from(`time [s],${o.channelNames.map((n) => `${n} [${u}]`).join(",")}\n`));
   }
   const decimals = Math.max(6, Math.ceil(Math.log10(o.sampleRateHz)) + 4);
   return {
@@ -50,7 +56,7 @@ export async function createTimeHistoryWriter(target: string, o: WriterOptions):
         const buf = Buffer.allocUnsafe(count * nch * 4);
         let p = 0;
         for (let i = 0; i < count; i++) for (let c = 0; c < nch; c++, p += 4) buf.writeFloatLE(channels[c]![i]!, p);
-        await fh.write(buf);
+        await append(buf);
       } else {
         let s = "";
         for (let i = 0; i < count; i++) {
@@ -58,7 +64,7 @@ export async function createTimeHistoryWriter(target: string, o: WriterOptions):
           for (let c = 0; c < nch; c++) s += "," + channels[c]![i]!.toPrecision(9);
           s += "\n";
         }
-        await fh.write(s);
+        await append(Buffer.from(s));
       }
       frames += count;
     },

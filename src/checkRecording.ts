@@ -1,0 +1,32 @@
+import { readFile } from "node:fs/promises";
+import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
+import { checkChannel, overallVerdict } from "./compare/complianceCheck.js";
+import { parseProfile, type TestProfile } from "./compare/testProfile.js";
+import { InputError } from "./errors.js";
+import type { CheckResult } from "./report/checkReport.js";
+
+/** Read and validate a profile file (JSON, YAML or two-column CSV). */
+export async function loadProfile(file: string): Promise<TestProfile> {
+  let text: string;
+  try {
+    text = await readFile(file, "utf8");
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable profile file", received: code === "ENOENT" ? "no such file" : String(code) });
+  }
+  return parseProfile(text, file);
+}
+
+/**
+ * Analyse a recording at the profile's resolution (unless the options set one) and in the profile's
+ * units, then judge every channel against the profile.
+ */
+export async function checkRecording(file: string, profile: TestProfile, options: AnalysisOptions = {}): Promise<CheckResult> {
+  const resolutionHz = options.segmentLength === undefined && options.resolutionHz === undefined ? profile.resolutionHz : options.resolutionHz;
+  if (options.resultUnits !== undefined && options.resultUnits !== profile.units) {
+    throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: `the profile's unit ${profile.units} (or no --result-units)`, received: options.resultUnits });
+  }
+  const analysis = await analyzeRecording(file, { ...options, resolutionHz, resultUnits: profile.units });
+  const channels = analysis.channels.map((c) => checkChannel(c, profile, analysis.settings.confidence));
+  return { verdict: overallVerdict(channels.map((c) => c.verdict)), analysis, profile, channels };
+}

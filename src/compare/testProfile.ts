@@ -1,0 +1,272 @@
+import { createHash } from "node:crypto";
+import Papa from "papaparse";
+import { parse as parseYaml, YAMLParseError } from "yaml";
+import { z } from "zod";
+import { InputError } from "../errors.js";
+import { STANDARD_GRAVITY_M_PER_S2, type AccelUnit } from "../units.js";
+
+/**
+ * Required random-vibration test profiles: breakpoints joined by straight lines on log-log axes,
+ * with tolerance bands. A profile file is JSON or YAML (schema below, validated with zod) or a
+ * two-column CSV of (Hz, level). Parsing gives a normalised table of segments from which level(f),
+ * RMS acceleration, velocity and displacement follow in closed form.
+ */
+
+const positive = (what: string) => z.number({ error: `${what} (a number)` }).refine((v) => v > 0 && Number.isFinite(v), { message: `${what} above 0` });
+
+const PointSchema = z.object({
+  hz: positive("a frequency in Hz"),
+  level: positive("a level").optional(),
+  slopeDbPerOctave: z.number({ error: "a slope in dB/octave (a number)" }).refine(Number.isFinite, { message: "a finite slope" }).optional(),
+});
+
+const BandSchema = z.object({
+  fromHz: positive("a frequency in Hz"),
+  toHz: positive("a frequency in Hz"),
+  upperDb: z.number({ error: "allowed excess in dB (a number >= 0)" }).min(0, { message: "allowed excess in dB >= 0 (both limits are positive numbers)" }),
+  lowerDb: z.number({ error: "allowed shortfall in dB (a number >= 0)" }).min(0, { message: "allowed shortfall in dB >= 0 (both limits are positive numbers)" }),
+});
+
+const ProfileSchema = z.object({
+  title: z.string({ error: "a title (text)" }).min(1, { message: "a non-empty title" }),
+  units: z.enum(["g2/Hz", "(m/s2)2/Hz"], { error: 'units "g2/Hz" or "(m/s2)2/Hz"' }),
+  points: z.array(PointSchema, { error: "a list of breakpoints" }).min(2, { message: "at least 2 breakpoints" }),
+  tolerance: z.object({
+    bands: z.array(BandSchema, { error: "a list of tolerance bands" }).min(1, { message: "at least one tolerance band" }),
+    rmsDb: z.number({ error: "an RMS tolerance in dB (a number > 0)" }).positive({ message: "an RMS tolerance in dB above 0" }).optional(),
+    rmsPercent: z.number({ error: "an RMS tolerance in percent (a number)" }).positive().max(99, { message: "an RMS tolerance below 100 %" }).optional(),
+  }, { error: "a tolerance object with bands" }),
+  minDof: positive("a minimum number of degrees of freedom").optional(),
+  resolutionHz: positive("an analysis resolution in Hz").optional(),
+  durationS: positive("a test duration in s").optional(),
+  description: z.string().optional(),
+});
+
+export type ProfileDocument = z.infer<typeof ProfileSchema>;
+
+export interface ProfileSegment {
+  f1: number;
+  f2: number;
+  g1: number;
+  g2: number;
+  /** n in G(f) = g1 (f/f1)^n. */
+  exponent: number;
+  slopeDbPerOctave: number;
+  /** Integral of G over the segment. */
+  area: number;
+}
+
+export interface ToleranceBand {
+  fromHz: number;
+  toHz: number;
+  upperDb: number;
+  lowerDb: number;
+}
+
+export interface TestProfile {
+  title: string;
+  file: string;
+  sha256: string;
+  units: AccelUnit;
+  breakpoints: { hz: number; level: number }[];
+  segments: ProfileSegment[];
+  /** Overall RMS acceleration over the profile's range. */
+  rms: number;
+  bands: ToleranceBand[];
+  /** Allowed RMS excess and shortfall in dB (20 log10 of the RMS ratio). */
+  rmsToleranceDb: { upper: number; lower: number } | undefined;
+  minDof: number | undefined;
+  resolutionHz: number | undefined;
+  durationS: number | undefined;
+}
+
+const LOG10_2 = Math.log10(2);
+
+/**
+ * Area under g1 (f/f1)^n from f1 to f2: g1 f1 / (n+1) ((f2/f1)^(n+1) - 1), and g1 f1 ln(f2/f1) when
+ * n = -1 (a slope of -3.0103 dB/octave), where the general form divides by zero. Standard log-log
+ * segment integration (../shared/REFERENCES.md sec. 5).
+ */
+export function powerLawArea(f1: number, f2: number, g1: number, n: number): number {
+  const r = f2 / f1;
+  if (Math.abs(n + 1) < 1e-9) return g1 * f1 * Math.log(r);
+  return ((g1 * f1) / (n + 1)) * (Math.pow(r, n + 1) - 1);
+}
+
+/** Level of the profile at f (log-log interpolation), NaN outside its range. */
+export function profileLevel(p: Pick<TestProfile, "segments">, f: number): number {
+  const s = p.segments;
+  if (s.length === 0 || !(f >= s[0]!.f1 && f <= s[s.length - 1]!.f2)) return NaN;
+  let lo = 0;
+  let hi = s.length - 1;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (f > s[mid]!.f2) lo = mid + 1;
+    else hi = mid;
+  }
+  const seg = s[lo]!;
+  return seg.g1 * Math.pow(f / seg.f1, seg.exponent);
+}
+
+function fail(file: string, keyPath: string, expected: string, received?: string): never {
+  throw new InputError("PROFILE_INVALID", { file, keyPath, expected, received });
+}
+
+/** Build the normalised profile from a validated document. */
+export function normalizeProfile(doc: ProfileDocument, file: string, sha256: string): TestProfile {
+  const pts = doc.points;
+  const breakpoints: { hz: number; level: number }[] = [];
+  for (let i = 0; i < pts.length; i++) {
+    const p = pts[i]!;
+    const at = `points[${i}]`;
+    if (p.level !== undefined && p.slopeDbPerOctave !== undefined) fail(file, at, "either level or slopeDbPerOctave, not both", "both");
+    if (i > 0 && !(p.hz > pts[i - 1]!.hz)) fail(file, `${at}.hz`, `a frequency above the previous point's ${pts[i - 1]!.hz} Hz`, String(p.hz));
+    if (i === 0) {
+      if (p.level === undefined) fail(file, `${at}.level`, "a level on the first point (a slope needs a level to start from)", p.slopeDbPerOctave !== undefined ? "a slope only" : "nothing");
+      breakpoints.push({ hz: p.hz, level: p.level! });
+    } else if (p.level !== undefined) breakpoints.push({ hz: p.hz, level: p.level });
+    else if (p.slopeDbPerOctave !== undefined) {
+      const prev = breakpoints[i - 1]!;
+      breakpoints.push({ hz: p.hz, level: prev.level * Math.pow(10, (p.slopeDbPerOctave * Math.log2(p.hz / prev.hz)) / 10) });
+    } else fail(file, at, "a level or a slopeDbPerOctave", "neither");
+  }
+  const segments = breakpoints.slice(1).map((b, i): ProfileSegment => {
+    const a = breakpoints[i]!;
+    const exponent = Math.log(b.level / a.level) / Math.log(b.hz / a.hz);
+    return { f1: a.hz, f2: b.hz, g1: a.level, g2: b.level, exponent, slopeDbPerOctave: exponent * 10 * LOG10_2, area: powerLawArea(a.hz, b.hz, a.level, exponent) };
+  });
+  const f0 = breakpoints[0]!.hz;
+  const fN = breakpoints[breakpoints.length - 1]!.hz;
+
+  const bands = [...doc.tolerance.bands].map((b, i) => ({ ...b, i })).sort((a, b) => a.fromHz - b.fromHz);
+  for (const b of bands) if (!(b.toHz > b.fromHz)) fail(file, `tolerance.bands[${b.i}].toHz`, `a frequency above fromHz ${b.fromHz}`, String(b.toHz));
+  if (bands[0]!.fromHz > f0) fail(file, `tolerance.bands[${bands[0]!.i}].fromHz`, `bands that cover the profile from ${f0} Hz`, `a first band from ${bands[0]!.fromHz} Hz`);
+  for (let k = 1; k < bands.length; k++) {
+    const a = bands[k - 1]!;
+    const b = bands[k]!;
+    if (b.fromHz < a.toHz) fail(file, `tolerance.bands[${b.i}].fromHz`, `bands that do not overlap (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+    if (b.fromHz > a.toHz) fail(file, `tolerance.bands[${b.i}].fromHz`, `bands without gaps (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+  }
+  const last = bands[bands.length - 1]!;
+  if (last.toHz < fN) fail(file, `tolerance.bands[${last.i}].toHz`, `bands that cover the profile up to ${fN} Hz`, String(last.toHz));
+
+  const t = doc.tolerance;
+  if (t.rmsDb !== undefined && t.rmsPercent !== undefined) fail(file, "tolerance", "either rmsDb or rmsPercent, not both", "both");
+  const rmsToleranceDb =
+    t.rmsDb !== undefined ? { upper: t.rmsDb, lower: t.rmsDb }
+      : t.rmsPercent !== undefined ? { upper: 20 * Math.log10(1 + t.rmsPercent / 100), lower: -20 * Math.log10(1 - t.rmsPercent / 100) }
+        : undefined;
+  let area = 0;
+  for (const s of segments) area += s.area;
+  return {
+    title: doc.title, file, sha256, units: doc.units === "g2/Hz" ? "g" : "m/s2", breakpoints, segments, rms: Math.sqrt(area),
+    bands: bands.map(({ fromHz, toHz, upperDb, lowerDb }) => ({ fromHz, toHz, upperDb, lowerDb })),
+    rmsToleranceDb, minDof: doc.minDof, resolutionHz: doc.resolutionHz, durationS: doc.durationS,
+  };
+}
+
+function keyPath(path: readonly PropertyKey[]): string {
+  let s = "";
+  for (const k of path) s += typeof k === "number" ? `[${k}]` : s === "" ? String(k) : `.${String(k)}`;
+  return s === "" ? "(top level)" : s;
+}
+
+function describe(v: unknown): string {
+  if (v === undefined) return "nothing";
+  const s = JSON.stringify(v);
+  return s === undefined ? String(v) : s.length > 40 ? `${s.slice(0, 40)}…` : s;
+}
+
+function valueAt(doc: unknown, path: readonly PropertyKey[]): unknown {
+  let v: unknown = doc;
+  for (const k of path) v = v !== null && typeof v === "object" ? (v as Record<PropertyKey, unknown>)[k] : undefined;
+  return v;
+}
+
+/** Validate a parsed document; the first problem becomes an error naming its key path. */
+export function validateProfileDocument(doc: unknown, file: string): ProfileDocument {
+  const r = ProfileSchema.safeParse(doc);
+  if (!r.success) {
+    const issue = r.error.issues[0]!;
+    const expected = issue.message.replace(/^Invalid input: expected /, "").replace(/^Invalid option: expected one of /, "one of ");
+    fail(file, keyPath(issue.path), expected, describe(valueAt(doc, issue.path)));
+  }
+  return r.data;
+}
+
+/** Two-column CSV (Hz, level) breakpoints; an optional header may name the unit, e.g. `level [(m/s2)2/Hz]`. */
+function profileFromCsv(text: string, file: string): unknown {
+  const rows = Papa.parse<string[]>(text.replace(/^\ufeff/, ""), { skipEmptyLines: "greedy", comments: "#" }).data;
+  let units = "g2/Hz";
+  let start = 0;
+  if (rows[0] && rows[0].some((f) => Number.isNaN(Number(f)))) {
+    if (rows[0].join(",").includes("m/s")) units = "(m/s2)2/Hz";
+    start = 1;
+  }
+  const points = rows.slice(start).map((r, i) => {
+    if (r.length !== 2) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "2 fields: frequency in Hz, level", received: `${r.length}` });
+    const [hz, level] = r.map((f) => (f.trim() === "" ? NaN : Number(f)));
+    if (!Number.isFinite(hz!) || !Number.isFinite(level!)) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "two numbers", received: describe(r.join(",")) });
+    return { hz: hz!, level: level! };
+  });
+  const f0 = points[0]?.hz ?? 1;
+  const fN = points[points.length - 1]?.hz ?? 2;
+  return { title: file.replace(/^.*\//, ""), units, points, tolerance: { bands: [{ fromHz: f0, toHz: fN, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 } };
+}
+
+/** Parse a profile from its text (JSON, YAML or CSV by extension). */
+export function parseProfile(text: string, file: string): TestProfile {
+  const sha = createHash("sha256").update(text).digest("hex");
+  let doc: unknown;
+  if (/\.csv$/i.test(file)) doc = profileFromCsv(text, file);
+  else if (/\.ya?ml$/i.test(file)) {
+    try {
+      doc = parseYaml(text);
+    } catch (e) {
+      const pos = e instanceof YAMLParseError ? e.linePos?.[0] : undefined;
+      throw new InputError("PROFILE_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
+    }
+  } else {
+    try {
+      doc = JSON.parse(text);
+    } catch (e) {
+      const m = /position (\d+)/.exec((e as Error).message);
+      let line: number | undefined;
+      let column: number | undefined;
+      if (m) {
+        const before = text.slice(0, Number(m[1]));
+        line = before.split("\n").length;
+        column = before.length - before.lastIndexOf("\n");
+      }
+      throw new InputError("PROFILE_SYNTAX", { file, line, column, expected: "valid JSON", received: (e as Error).message.replace(/ in JSON at position \d+.*$/, "") });
+    }
+  }
+  return normalizeProfile(validateProfileDocument(doc, file), file, sha);
+}
+
+export interface ProfileMotion {
+  /** RMS velocity, m/s. */
+  velocityRms: number;
+  /** RMS displacement, m. */
+  displacementRms: number;
+  /** Peak-to-peak displacement estimate, 6 x RMS (a +-3 sigma excursion; common practice), m. */
+  displacementPeakToPeak: number;
+}
+
+/**
+ * Velocity and displacement of the profile: G_v = G_a g^2 / (2 pi f)^2 and G_d = G_a g^2 / (2 pi f)^4
+ * (stationary random process, one division by omega^2 per integration; Bendat & Piersol 2010), each
+ * again a power law per segment, so the same closed-form area applies with exponent n - 2 and n - 4.
+ */
+export function profileMotion(p: TestProfile): ProfileMotion {
+  const toSi = p.units === "g" ? STANDARD_GRAVITY_M_PER_S2 ** 2 : 1;
+  let v = 0;
+  let d = 0;
+  for (const s of p.segments) {
+    v += powerLawArea(s.f1, s.f2, s.g1 / s.f1 ** 2, s.exponent - 2);
+    d += powerLawArea(s.f1, s.f2, s.g1 / s.f1 ** 4, s.exponent - 4);
+  }
+  const velocityRms = Math.sqrt((v * toSi) / (4 * Math.PI ** 2));
+  const displacementRms = Math.sqrt((d * toSi) / (16 * Math.PI ** 4));
+  return { velocityRms, displacementRms, displacementPeakToPeak: 6 * displacementRms };
+}

@@ -1,0 +1,8 @@
+/** Cautions printed wherever a result can feed a decision about people or equipment. */
+export const SHAKER_CAUTION =
+  "Displacement and velocity figures are estimates from the profile alone (peak-to-peak taken as 6 x RMS, a ±3 sigma excursion: common practice). " +
+  "Check them, and the force the test needs, against the shaker's and fixture's own rated limits with margin; the governing test standard, the lab's procedure and a qualified test engineer decide.";
+
+export const VERDICT_CAUTION =
+  "This verdict compares a measured spectrum with the stated profile and tolerances only. It does not replace the governing test standard, " +
+  "the lab's approved procedure or the judgement of a qualified engineer; a verdict that feeds a safety decision needs their review and signature.";

@@ -1,0 +1,59 @@
+import { profileMotion, type TestProfile } from "../compare/testProfile.js";
+import { accelLabel, densityAscii, densityLabel } from "../units.js";
+import { SHAKER_CAUTION } from "./cautions.js";
+import { fixed, sig, table } from "./format.js";
+import { toolInfo } from "./psdJson.js";
+
+export function toleranceSummary(p: TestProfile): string {
+  const bands = p.bands.map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`).join(", ");
+  const rms = p.rmsToleranceDb ? `, RMS +${fixed(p.rmsToleranceDb.upper, 2)}/-${fixed(p.rmsToleranceDb.lower, 2)} dB` : "";
+  return `${bands}${rms}${p.minDof !== undefined ? `, at least ${p.minDof} DOF` : ""}`;
+}
+
+export function profileText(p: TestProfile, version: string): string {
+  const u = accelLabel(p.units);
+  const m = profileMotion(p);
+  const rows = [["Hz", `level ${densityLabel(p.units)}`, "slope to next dB/oct", `area ${u}²`]];
+  p.breakpoints.forEach((b, i) => {
+    const s = p.segments[i];
+    rows.push([sig(b.hz, 5), sig(b.level, 5), s ? fixed(s.slopeDbPerOctave, 3) : "", s ? sig(s.area, 5) : ""]);
+  });
+  return [
+    `psdgate ${version}: profile "${p.title}"`,
+    `  file       ${p.file}, sha256 ${p.sha256}`,
+    "",
+    table(rows),
+    "",
+    `  overall    ${sig(p.rms, 5)} ${u} RMS over ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz`,
+    `  velocity   ${sig(m.velocityRms * 1000, 4)} mm/s RMS`,
+    `  stroke     ${sig(m.displacementRms * 1000, 4)} mm RMS displacement, ${sig(m.displacementPeakToPeak * 1000, 4)} mm peak-to-peak estimate (6 x RMS)`,
+    `  tolerance  ${toleranceSummary(p)}`,
+    ...(p.resolutionHz !== undefined ? [`  analysis   ${p.resolutionHz} Hz resolution`] : []),
+    ...(p.durationS !== undefined ? [`  duration   ${p.durationS} s`] : []),
+    "",
+    `CAUTION: ${SHAKER_CAUTION}`,
+    "",
+  ].join("\n");
+}
+
+export function profileJson(p: TestProfile, version: string) {
+  const m = profileMotion(p);
+  return {
+    tool: toolInfo(version),
+    title: p.title,
+    file: p.file,
+    sha256: p.sha256,
+    units: densityAscii(p.units),
+    points: p.breakpoints.map((b, i) => ({ hz: b.hz, level: b.level, slopeDbPerOctave: p.segments[i]?.slopeDbPerOctave ?? null, area: p.segments[i]?.area ?? null })),
+    rms: p.rms,
+    rmsUnits: p.units === "g" ? "g" : "m/s2",
+    velocityRms: { value: m.velocityRms, units: "m/s" },
+    displacementRms: { value: m.displacementRms, units: "m" },
+    displacementPeakToPeak: { value: m.displacementPeakToPeak, units: "m", rule: "6 x RMS (±3 sigma), common practice" },
+    tolerance: { bands: p.bands, rmsDb: p.rmsToleranceDb ?? null },
+    minDof: p.minDof ?? null,
+    resolutionHz: p.resolutionHz ?? null,
+    durationS: p.durationS ?? null,
+    caution: SHAKER_CAUTION,
+  };
+}
