@@ -33,6 +33,12 @@ export interface Excursion {
   limitDb: number;
   /** The whole confidence interval of the worst line lies beyond the limit. */
   clear: boolean;
+  /**
+   * Still clear when the interval is widened for the number of lines tested (Bonferroni: each line
+   * at alpha / lines), so chance among many lines cannot explain it (Bonferroni 1936; Miller,
+   * Simultaneous Statistical Inference, Springer 1981, ch. 1).
+   */
+  clearAmongAllLines: boolean;
   /** For a marginal excursion: how many times longer a record would settle it (same level assumed). */
   longerRecordFactor: number | undefined;
 }
@@ -100,6 +106,7 @@ export function checkChannel(c: ChannelAnalysis, profile: TestProfile, confidenc
   }
 
   const excursions: Excursion[] = [];
+  const family = lines.length > 0 && p.dof > 0 ? chiSquareIntervalFactors(p.dof, 1 - (1 - confidence) / lines.length) : { lower: 0, upper: Infinity };
   for (let i = 0; i < lines.length; ) {
     const l = lines[i]!;
     if (l.status === "within") {
@@ -118,8 +125,9 @@ export function checkChannel(c: ChannelAnalysis, profile: TestProfile, confidenc
     const limitDb = l.status === "above" ? w.upperDb : -w.lowerDb;
     const limitLevel = w.required * Math.pow(10, limitDb / 10);
     const clear = l.status === "above" ? p.lower[k]! > limitLevel : p.upper[k]! < limitLevel;
+    const clearAmongAllLines = l.status === "above" ? w.measured * family.lower > limitLevel : w.measured * family.upper < limitLevel;
     excursions.push({
-      fromHz: l.frequencyHz, toHz: lines[j]!.frequencyHz, direction: l.status, lines: j - i + 1, worstDb: w.deviationDb, worstHz: w.frequencyHz, limitDb, clear,
+      fromHz: l.frequencyHz, toHz: lines[j]!.frequencyHz, direction: l.status, lines: j - i + 1, worstDb: w.deviationDb, worstHz: w.frequencyHz, limitDb, clear, clearAmongAllLines,
       longerRecordFactor: clear ? undefined : longerRecordFactor(w.measured / limitLevel, p.dof, confidence),
     });
     i = j + 1;
@@ -134,9 +142,12 @@ export function checkChannel(c: ChannelAnalysis, profile: TestProfile, confidenc
   const reasons: string[] = [...c.doubts];
   let verdict: Verdict;
   const failing = excursions.length > 0 || !rmsOk;
+  // With too few DOF, line excursions count only when chance among all lines cannot explain them;
+  // the RMS, an average over every line, stays decisive.
+  const decisive = !rmsOk || excursions.some((e) => e.clearAmongAllLines);
   if (lines.length === 0) reasons.push("no spectral line falls inside the profile's range");
   if (c.doubts.length > 0 || lines.length === 0) verdict = "inconclusive";
-  else if (failing && (dofOk || excursions.some((e) => e.clear) || !rmsOk)) verdict = "fail";
+  else if (failing && (dofOk || decisive)) verdict = "fail";
   else if (!dofOk) verdict = "inconclusive";
   else verdict = "pass";
   if (!dofOk) reasons.push(`degrees of freedom ${p.dof.toFixed(1)} below the required ${profile.minDof}: record too short for the statistical accuracy the profile asks`);
@@ -144,7 +155,8 @@ export function checkChannel(c: ChannelAnalysis, profile: TestProfile, confidenc
   const out = lines.filter((l) => l.status !== "within").length;
   if (excursions.length > 0) {
     const clear = excursions.filter((e) => e.clear).length;
-    reasons.push(`${out} of ${lines.length} lines outside their tolerance band, in ${excursions.length} excursion(s), ${clear} clear and ${excursions.length - clear} marginal`);
+    const strong = excursions.filter((e) => e.clearAmongAllLines).length;
+    reasons.push(`${out} of ${lines.length} lines outside their tolerance band, in ${excursions.length} excursion(s): ${clear} clear, ${excursions.length - clear} marginal; ${strong} clear even allowing for the ${lines.length} lines tested`);
   }
   if (verdict === "pass") reasons.push(`all ${lines.length} lines within their tolerance bands, RMS within tolerance${profile.minDof !== undefined ? ", DOF met" : ""}`);
   return {

@@ -230,15 +230,23 @@ export function parseProfile(text: string, file: string): TestProfile {
     try {
       doc = JSON.parse(text);
     } catch (e) {
-      const m = /position (\d+)/.exec((e as Error).message);
+      const msg = (e as Error).message;
+      // V8 gives either "at position N" or a quoted snippet around an unexpected token.
+      let at = /position (\d+)/.exec(msg) ? Number(/position (\d+)/.exec(msg)![1]) : -1;
+      const tok = /Unexpected token '(.)', (?:\.\.\.)?"([^]*?)"(?:\.\.\.)? is not valid JSON/.exec(msg);
+      if (at < 0 && tok) {
+        const i = text.indexOf(tok[2]!);
+        if (i >= 0) at = i + tok[2]!.indexOf(tok[1]!);
+      }
+      if (at < 0 && /Unexpected end/.test(msg)) at = text.length;
       let line: number | undefined;
       let column: number | undefined;
-      if (m) {
-        const before = text.slice(0, Number(m[1]));
+      if (at >= 0) {
+        const before = text.slice(0, at);
         line = before.split("\n").length;
         column = before.length - before.lastIndexOf("\n");
       }
-      throw new InputError("PROFILE_SYNTAX", { file, line, column, expected: "valid JSON", received: (e as Error).message.replace(/ in JSON at position \d+.*$/, "") });
+      throw new InputError("PROFILE_SYNTAX", { file, line, column, expected: "valid JSON", received: msg.replace(/ in JSON at position \d+.*$/, "").replace(/, (\.\.\.)?"[^]*$/, "") });
     }
   }
   return normalizeProfile(validateProfileDocument(doc, file), file, sha);

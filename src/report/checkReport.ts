@@ -19,7 +19,7 @@ const WORD: Record<Verdict, string> = { pass: "PASS", fail: "FAIL", inconclusive
 
 export function excursionText(e: ChannelCompliance["excursions"][number]): string {
   const range = e.fromHz === e.toHz ? `${sig(e.fromHz, 5)} Hz` : `${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz`;
-  const how = e.clear ? "clear (whole confidence interval beyond the limit)" : `marginal (interval straddles the limit${e.longerRecordFactor ? `; a record ${fixed(e.longerRecordFactor, 1)}x longer would tell` : ""})`;
+  const how = e.clear ? `clear (whole confidence interval beyond the limit${e.clearAmongAllLines ? ", even allowing for the number of lines tested" : "; chance among many lines could still explain it"})` : `marginal (interval straddles the limit${e.longerRecordFactor ? `; a record ${fixed(e.longerRecordFactor, 1)}x longer would tell` : ""})`;
   return `${range}: ${e.direction} by up to ${e.worstDb >= 0 ? "+" : ""}${fixed(e.worstDb, 2)} dB at ${sig(e.worstHz, 5)} Hz, limit ${e.limitDb >= 0 ? "+" : ""}${fixed(e.limitDb, 2)} dB, ${how}`;
 }
 

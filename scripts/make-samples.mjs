@@ -1,0 +1,17 @@
+// `npm run samples`: regenerates every recording in samples/ with psdgate's own synth (fixed seeds), so
+// the bundled data is reproducible. Needs a build (npm ci does it).
+import { execFileSync } from "node:child_process";
+
+const runs = [
+  // CSV with a time column and two channels: a Tern-7 gimbal flight-vibration run that meets its profile.
+  ["samples/profiles/tern7-gimbal.yaml", "20", "4096", "2", "7", "samples/tern7-flight.csv"],
+  // Two-channel float WAV: a KB-210 controller run that meets its profile.
+  ["samples/profiles/kb210-controller.json", "40", "5120", "2", "210", "samples/kb210-run.wav"],
+  // One channel, driven through a fixture resonance near 480 Hz: fails a band.
+  ["samples/profiles/kb210-drive-resonance.json", "40", "5120", "1", "211", "samples/kb210-run-resonance.wav"],
+  // Four seconds only: too few degrees of freedom for the profile's 120, so inconclusive.
+  ["samples/profiles/kb210-controller.json", "4", "5120", "1", "212", "samples/kb210-run-short.wav"],
+];
+for (const [profile, duration, rate, channels, seed, out] of runs) {
+  execFileSync("node", ["bin/psdgate.js", "synth", "--profile", profile, "--duration", duration, "--rate", rate, "--channels", channels, "--seed", seed, "--out", out, "--force"], { stdio: "inherit" });
+}

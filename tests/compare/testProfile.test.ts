@@ -1,0 +1,157 @@
+import { describe, expect, it } from "vitest";
+import { InputError } from "../../src/errors.js";
+import { parseProfile, powerLawArea, profileLevel, profileMotion, type TestProfile } from "../../src/compare/testProfile.js";
+
+function profile(points: object[], extra: object = {}): TestProfile {
+  const pts = points as { hz: number }[];
+  const doc = {
+    title: "test", units: "g2/Hz", points,
+    tolerance: { bands: [{ fromHz: pts[0]!.hz, toHz: pts[pts.length - 1]!.hz, upperDb: 3, lowerDb: 3 }], rmsDb: 1 },
+    ...extra,
+  };
+  return parseProfile(JSON.stringify(doc), "p.json");
+}
+
+/** Dense trapezoid integration on a log grid, as an independent check of the closed form. */
+function numericRms(p: TestProfile, weight = (_f: number) => 1): number {
+  const f0 = p.breakpoints[0]!.hz;
+  const f1 = p.breakpoints[p.breakpoints.length - 1]!.hz;
+  const n = 400000;
+  let s = 0;
+  let fa = f0;
+  let ga = profileLevel(p, fa) * weight(fa);
+  for (let i = 1; i <= n; i++) {
+    const fb = f0 * Math.pow(f1 / f0, i / n);
+    const gb = profileLevel(p, Math.min(fb, f1)) * weight(fb);
+    s += 0.5 * (ga + gb) * (fb - fa);
+    fa = fb;
+    ga = gb;
+  }
+  return Math.sqrt(s);
+}
+
+describe("profile arithmetic", () => {
+  it("NAVMAT P-9492 screening spectrum: 6.0582 g (REFERENCES.md sec. 5; NAVMAT P-9492 prints 'Overall Grms = 6.0')", () => {
+    const p = profile([{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 350, level: 0.04 }, { hz: 2000, level: 0.007 }]);
+    expect(p.rms).toBeCloseTo(6.0582, 4);
+    expect(Number.isFinite(p.segments[2]!.area)).toBe(true);
+    expect(p.segments[2]!.exponent).toBeCloseTo(-1, 2);
+    expect(p.segments.map((s) => s.area)).toEqual([expect.closeTo(1.5, 10), expect.closeTo(10.8, 10), expect.closeTo(24.4016, 4)]);
+    expect(p.segments[0]!.slopeDbPerOctave).toBeCloseTo(3.0103, 4);
+    expect(Math.abs(numericRms(p) / p.rms - 1)).toBeLessThan(1e-6);
+  });
+  it("NASA-STD-7001 workmanship level: 6.784 g (overall 6.8 grms confirmed; breakpoints from memory, REFERENCES.md sec. 5)", () => {
+    const p = profile([{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 500, level: 0.04 }, { hz: 2000, level: 0.01 }]);
+    expect(p.rms).toBeCloseTo(6.784, 3);
+  });
+  it("invented profiles C and D: 8.4862 g and 3.5236 g (computed, REFERENCES.md sec. 5)", () => {
+    expect(profile([{ hz: 20, level: 0.005 }, { hz: 100, level: 0.05 }, { hz: 1000, level: 0.05 }, { hz: 2000, level: 0.0125 }]).rms).toBeCloseTo(8.4862, 4);
+    const d = profile([{ hz: 10, level: 0.001 }, { hz: 40, level: 0.02 }, { hz: 300, level: 0.02 }, { hz: 1500, level: 0.002 }]);
+    expect(d.rms).toBeCloseTo(3.5236, 4);
+    expect(d.segments.map((s) => s.slopeDbPerOctave)).toEqual([expect.closeTo(6.5052, 3), expect.closeTo(0, 9), expect.closeTo(-4.3068, 3)]);
+  });
+  it("levels given by slope: exactly +-3 dB/oct from the plateau gives ends 0.010048 / 0.0070419 and 6.064 g (REFERENCES.md sec. 5)", () => {
+    const p = profile([{ hz: 20, level: 0.010048 }, { hz: 80, slopeDbPerOctave: 3 }, { hz: 350, level: 0.04 }, { hz: 2000, slopeDbPerOctave: -3 }]);
+    expect(p.breakpoints[1]!.level).toBeCloseTo(0.04, 5);
+    expect(p.breakpoints[3]!.level).toBeCloseTo(0.0070419, 7);
+    expect(p.rms).toBeCloseTo(6.064, 3);
+  });
+  it("powerLawArea handles n = -1 and n near -1 continuously", () => {
+    const exact = powerLawArea(350, 2000, 0.04, -1);
+    expect(powerLawArea(350, 2000, 0.04, -1 + 1e-7)).toBeCloseTo(exact, 5);
+    expect(powerLawArea(350, 2000, 0.04, -1 - 1e-7)).toBeCloseTo(exact, 5);
+  });
+  it("flat 0.04 g2/Hz 20-2000 Hz: 8.8994 g, 69.45 mm/s, 0.3207 mm RMS (closed forms, REFERENCES.md sec. 6)", () => {
+    const p = profile([{ hz: 20, level: 0.04 }, { hz: 2000, level: 0.04 }]);
+    const m = profileMotion(p);
+    expect(p.rms).toBeCloseTo(8.8994, 4);
+    expect(m.velocityRms * 1000).toBeCloseTo(69.45, 2);
+    expect(m.displacementRms * 1000).toBeCloseTo(0.3207, 4);
+    expect(m.displacementPeakToPeak).toBeCloseTo(6 * m.displacementRms, 15);
+  });
+  it("NAVMAT P-9492 velocity 52.56 mm/s and displacement 0.1943 mm RMS (numerical, REFERENCES.md sec. 6)", () => {
+    const p = profile([{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 350, level: 0.04 }, { hz: 2000, level: 0.007 }]);
+    const m = profileMotion(p);
+    expect(m.velocityRms * 1000).toBeCloseTo(52.56, 1);
+    expect(m.displacementRms * 1000).toBeCloseTo(0.1943, 3);
+    const g = 9.80665;
+    expect(numericRms(p, (f) => (g * g) / (2 * Math.PI * f) ** 4) / m.displacementRms).toBeCloseTo(1, 5);
+  });
+  it("(m/s2)2/Hz profiles give velocity without the g factor", () => {
+    const p = profile([{ hz: 20, level: 0.04 * 9.80665 ** 2 }, { hz: 2000, level: 0.04 * 9.80665 ** 2 }], { units: "(m/s2)2/Hz" });
+    expect(p.units).toBe("m/s2");
+    expect(profileMotion(p).velocityRms * 1000).toBeCloseTo(69.45, 2);
+  });
+  it("profileLevel interpolates on log-log axes and is NaN outside the range", () => {
+    const p = profile([{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }]);
+    expect(profileLevel(p, 40)).toBeCloseTo(0.02, 12);
+    expect(profileLevel(p, 19.99)).toBeNaN();
+    expect(profileLevel(p, 80)).toBeCloseTo(0.04, 15);
+  });
+  it("a two-column CSV of breakpoints is accepted (default +-3 dB band, +-1.5 dB RMS)", () => {
+    const p = parseProfile("hz,level\n20,0.01\n80,0.04\n350,0.04\n2000,0.007\n", "p.csv");
+    expect(p.rms).toBeCloseTo(6.0582, 4);
+    expect(p.bands).toEqual([{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }]);
+  });
+  it("rmsPercent 10 becomes +0.83 / -0.92 dB (REFERENCES.md sec. 7)", () => {
+    const p = parseProfile(JSON.stringify({ title: "t", units: "g2/Hz", points: [{ hz: 10, level: 1 }, { hz: 20, level: 1 }], tolerance: { bands: [{ fromHz: 10, toHz: 20, upperDb: 3, lowerDb: 3 }], rmsPercent: 10 } }), "p.json");
+    expect(p.rmsToleranceDb!.upper).toBeCloseTo(0.83, 2);
+    expect(p.rmsToleranceDb!.lower).toBeCloseTo(0.92, 2);
+  });
+});
+
+describe("profile validation names the key path", () => {
+  const base = () => ({
+    title: "t", units: "g2/Hz",
+    points: [{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 350, level: 0.04 }],
+    tolerance: { bands: [{ fromHz: 20, toHz: 100, upperDb: 3, lowerDb: 3 }, { fromHz: 100, toHz: 350, upperDb: 6, lowerDb: 6 }], rmsDb: 1 },
+  });
+  const cases: [string, (d: ReturnType<typeof base>) => unknown, string][] = [
+    ["frequencies not increasing", (d) => ((d.points[2]!.hz = 80), d), "points[2].hz"],
+    ["a non-positive level", (d) => ((d.points[1]!.level = 0), d), "points[1].level"],
+    ["a negative frequency", (d) => ((d.points[0]!.hz = -5), d), "points[0].hz"],
+    ["a level that is text", (d) => (((d.points[1] as Record<string, unknown>).level = "0.04"), d), "points[1].level"],
+    ["a slope with nothing to anchor it", (d) => ((d.points[0] = { hz: 20, slopeDbPerOctave: 3 } as never), d), "points[0].level"],
+    ["both level and slope", (d) => (((d.points[1] as Record<string, unknown>).slopeDbPerOctave = 3), d), "points[1]"],
+    ["neither level nor slope", (d) => ((d.points[1] = { hz: 80 } as never), d), "points[1]"],
+    ["a single point", (d) => ((d.points = [d.points[0]!]), d), "points"],
+    ["unknown units", (d) => ((d.units = "g^2/Hz"), d), "units"],
+    ["no title", (d) => ((d.title = ""), d), "title"],
+    ["bands that overlap", (d) => ((d.tolerance.bands[1]!.fromHz = 90), d), "tolerance.bands[1].fromHz"],
+    ["bands with a gap", (d) => ((d.tolerance.bands[1]!.fromHz = 120), d), "tolerance.bands[1].fromHz"],
+    ["bands that start late", (d) => ((d.tolerance.bands[0]!.fromHz = 30), d), "tolerance.bands[0].fromHz"],
+    ["bands that end early", (d) => ((d.tolerance.bands[1]!.toHz = 300), d), "tolerance.bands[1].toHz"],
+    ["a band that runs backwards", (d) => ((d.tolerance.bands[0]!.toHz = 10), d), "tolerance.bands[0].toHz"],
+    ["a negative band limit", (d) => ((d.tolerance.bands[0]!.lowerDb = -3), d), "tolerance.bands[0].lowerDb"],
+    ["no bands", (d) => ((d.tolerance.bands = []), d), "tolerance.bands"],
+    ["rmsDb and rmsPercent", (d) => (((d.tolerance as Record<string, unknown>).rmsPercent = 10), d), "tolerance"],
+    ["minDof zero", (d) => ({ ...d, minDof: 0 }), "minDof"],
+    ["not an object", () => [1, 2, 3], "(top level)"],
+  ];
+  for (const [name, mutate, path] of cases) {
+    it(`${name}: ${path}`, () => {
+      const text = JSON.stringify(mutate(base()));
+      const e = (() => { try { parseProfile(text, "spec.json"); } catch (x) { return x; } })();
+      expect(e).toBeInstanceOf(InputError);
+      expect((e as InputError).code).toBe("PROFILE_INVALID");
+      expect((e as InputError).details.keyPath).toBe(path);
+      expect((e as InputError).message).toContain(`spec.json: ${path}: expected`);
+    });
+  }
+  it("JSON syntax errors give line and column", () => {
+    const e = (() => { try { parseProfile('{\n  "title": "t",\n  "units": g2\n}', "spec.json"); } catch (x) { return x as InputError; } })()!;
+    expect(e.code).toBe("PROFILE_SYNTAX");
+    expect(e.details.line).toBe(3);
+    expect(e.details.column).toBe(12);
+  });
+  it("YAML syntax errors give the line", () => {
+    const e = (() => { try { parseProfile("title: t\npoints:\n  - { hz: 20, level: 0.01\n", "spec.yaml"); } catch (x) { return x as InputError; } })()!;
+    expect(e.code).toBe("PROFILE_SYNTAX");
+    expect(e.details.line).toBeGreaterThan(1);
+  });
+  it("CSV profile rows that are not two numbers name the line", () => {
+    const e = (() => { try { parseProfile("hz,level\n20,0.01\n80,x\n", "p.csv"); } catch (x) { return x as InputError; } })()!;
+    expect(e.code).toBe("PROFILE_CSV");
+    expect(e.details.line).toBe(3);
+  });
+});
