@@ -20,7 +20,7 @@ describe("longerRecordFactor", () => {
     expect(f).toBeGreaterThan(1);
     expect(1.2 * chiSquareIntervalFactors(30 * f, 0.9).lower).toBeGreaterThan(1);
     expect(1.2 * chiSquareIntervalFactors(30 * f * 0.99, 0.9).lower).toBeLessThan(1);
-    expect(longerRecordFactor(0.6, 30, 0.9)).toBeGreaterThan(1);
+    expect(longerRecordFactor(0.8, 30, 0.9)).toBeGreaterThan(1);
     expect(longerRecordFactor(3, 100, 0.9)).toBe(1);
   });
 });
