@@ -270,18 +270,18 @@ async function readBody(
   let timeFrac = 0;
 
   const fail = (code: string, column: number | undefined, expected: string, received: string, hint?: string): never => {
-    throw new InputError(code, { file, line: lineNo, column, expected, received, hint });
+    throw new InputError(code, { file, line: lineNo, column, field: column !== undefined ? columns[column - 1]?.name : undefined, expected, received, hint });
   };
   const checkStep = (t: number, line: number, prev: number) => {
     const step = t - prev;
     if (!(step > 0)) {
       throw new InputError(step === 0 ? "CSV_TIME_DUPLICATE" : "CSV_TIME_DECREASING", {
-        file, line, column: timeIndex + 1, expected: "time stamps that increase", received: step === 0 ? `a repeated time ${t / timeFactor}` : `${t / timeFactor} after ${prev / timeFactor}`,
+        file, line, column: timeIndex + 1, field: columns[timeIndex]!.name, expected: "time stamps that increase", received: step === 0 ? `a repeated time ${t / timeFactor}` : `${t / timeFactor} after ${prev / timeFactor}`,
       });
     }
     if (Math.abs(step - dt) > tol) {
       throw new InputError("CSV_TIME_IRREGULAR", {
-        file, line, column: timeIndex + 1, expected: `a uniform time step of ${fmt(dt / timeFactor)} (within 1 %)`, received: `a step of ${fmt(step / timeFactor)}`,
+        file, line, column: timeIndex + 1, field: columns[timeIndex]!.name, expected: `a uniform time step of ${fmt(dt / timeFactor)} (within 1 %)`, received: `a step of ${fmt(step / timeFactor)}`,
         hint: "psdgate needs uniformly sampled data; split the record at the gap or resample it",
       });
     }
