@@ -1,25 +1,49 @@
+import { stat } from "node:fs/promises";
+import { availableParallelism } from "node:os";
+import { basename, join } from "node:path";
 import { Command, CommanderError } from "commander";
 import { analyzeRecording, type RecordingAnalysis } from "../analyzeRecording.js";
 import { checkRecording, loadProfile } from "../checkRecording.js";
-import { checkJson, checkText } from "../report/checkReport.js";
-import { profileJson, profileText } from "../report/profileText.js";
-import { checkHtml } from "../report/htmlReport.js";
-import { createTimeHistoryWriter } from "../report/timeHistoryWriter.js";
-import { synthesizeProfile } from "../synth/synthesizeProfile.js";
-import { sig } from "../report/format.js";
+import type { TestProfile } from "../compare/testProfile.js";
 import { EXIT, InputError } from "../errors.js";
-import { psdCsv, psdJson } from "../report/psdJson.js";
+import { checkJson, checkText, type CheckResult } from "../report/checkReport.js";
+import { fixed, sig, table } from "../report/format.js";
+import { checkHtml } from "../report/htmlReport.js";
+import { profileJson, profileText } from "../report/profileText.js";
+import { psdCsv, psdJson, toolInfo } from "../report/psdJson.js";
 import { inspectText, psdText } from "../report/psdText.js";
+import { createTimeHistoryWriter } from "../report/timeHistoryWriter.js";
 import { writeAtomic } from "../report/writeAtomic.js";
+import { synthesizeProfile } from "../synth/synthesizeProfile.js";
+import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
+import { runBatch, type Outcome } from "./batch.js";
+import { expandFiles } from "./fileList.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import { createProgress, progressEnabled } from "./progress.js";
 
 export interface CliIo {
   stdout: (s: string) => void;
   stderr: (s: string) => void;
+  /** Whether stderr is a terminal (progress bars are drawn only there). */
+  stderrIsTTY?: boolean | undefined;
+  readStdin?: (() => Promise<string>) | undefined;
+  env?: NodeJS.ProcessEnv | undefined;
 }
 
-const processIo: CliIo = { stdout: (s) => process.stdout.write(s), stderr: (s) => process.stderr.write(s) };
+async function readProcessStdin(): Promise<string> {
+  let s = "";
+  for await (const chunk of process.stdin) s += chunk;
+  return s;
+}
+
+const processIo: CliIo = {
+  stdout: (s) => process.stdout.write(s),
+  stderr: (s) => process.stderr.write(s),
+  stderrIsTTY: process.stderr.isTTY === true,
+  readStdin: readProcessStdin,
+  env: process.env,
+};
 
 /** Thrown by an action to end with an exit code after its output is written. */
 class Exit extends Error {
@@ -28,17 +52,44 @@ class Exit extends Error {
   }
 }
 
-function requireAverages(a: RecordingAnalysis): void {
-  const short = a.channels.find((c) => c.psd.averages === 0);
-  if (short) {
-    throw new InputError("RECORD_TOO_SHORT", {
-      file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.input.samples} samples`,
-      hint: "use a shorter --segment or a coarser --resolution",
-    });
-  }
+/** Exit code of a set of outcomes: input error over fail over inconclusive over pass. */
+const RANK: Record<number, number> = { [EXIT.ok]: 0, [EXIT.inconclusive]: 1, [EXIT.fail]: 2, [EXIT.input]: 3 };
+function worst(codes: number[]): number {
+  return codes.reduce((a, b) => (RANK[b]! > RANK[a]! ? b : a), EXIT.ok);
+}
+
+function tooShort(a: RecordingAnalysis): InputError | undefined {
+  if (!a.channels.some((c) => c.psd.averages === 0)) return undefined;
+  return new InputError("RECORD_TOO_SHORT", {
+    file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.input.samples} samples`,
+    hint: "use a shorter --segment or a coarser --resolution",
+  });
+}
+
+function verdictCode(r: CheckResult): number {
+  return r.verdict === "pass" ? EXIT.ok : r.verdict === "fail" ? EXIT.fail : EXIT.inconclusive;
+}
+
+interface BatchFlags {
+  json?: boolean;
+  force?: boolean;
+  jobs?: number;
+  quiet?: boolean;
+  filesFrom?: string;
+}
+
+function addBatchOptions(cmd: Command): Command {
+  return cmd
+    .option("--json", "print the result as JSON (one JSON line per recording when there are several)")
+    .option("-j, --jobs <n>", "recordings analysed at once (default: the number of cores)", numberOption("--jobs", (x) => Number.isInteger(x) && x >= 1 && x <= 256, "a whole number from 1 to 256"))
+    .option("--files-from <list>", "read recording paths, one per line, from this file (- for stdin)")
+    .option("-q, --quiet", "no progress bar")
+    .option("--force", "replace an existing output file");
 }
 
 export function buildProgram(io: CliIo): Command {
+  const env = io.env ?? {};
+  const readStdin = io.readStdin ?? (async () => "");
   const program = new Command("psdgate")
     .description("Acceleration PSD by Welch's method with confidence bounds, checked against a test profile")
     .version(VERSION, "-V, --version")
@@ -46,21 +97,75 @@ export function buildProgram(io: CliIo): Command {
     .exitOverride()
     .configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
 
+  const progressFor = (o: BatchFlags) => createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, env), io.stderr);
+
+  /** One recording, with a progress bar on a terminal. */
+  async function one<T>(o: BatchFlags, run: (onProgress: (done: number, total: number) => void) => Promise<T>): Promise<T> {
+    const progress = progressFor(o);
+    try {
+      return await run((d, t) => progress.update(d, t));
+    } finally {
+      progress.end();
+    }
+  }
+
+  /** Several recordings on the worker pool: JSON Lines or a summary table, exit code of the worst outcome. */
+  async function many<T extends RecordingAnalysis | CheckResult>(
+    files: string[], o: ParsedCommon & BatchFlags, profile: TestProfile | undefined,
+    code: (r: T) => number, summaryRow: (r: T) => string[][], header: string[], jsonOf: (r: T) => unknown,
+  ): Promise<number> {
+    const progress = progressFor(o);
+    let totalBytes = 0;
+    for (const f of files) totalBytes += await stat(f).then((x) => x.size, () => 0);
+    const codes: number[] = [];
+    const rows: string[][] = [header];
+    let count = 0;
+    await runBatch<T>(
+      files, analysisOptions(o), profile, o.jobs ?? availableParallelism(),
+      (out: Outcome<T>) => {
+        count++;
+        if (!out.ok) {
+          codes.push(EXIT.input);
+          io.stderr(`psdgate: ${out.error.message}\n`);
+          if (o.json) io.stdout(JSON.stringify({ tool: toolInfo(VERSION), input: { file: out.file }, error: { code: out.error.code, message: out.error.message } }) + "\n");
+          rows.push([out.file, "", "", "", "", "error", out.error.code]);
+          progress.line(`[${count}/${files.length}] ${out.file}  error ${out.error.code}`);
+          return;
+        }
+        const c = code(out.result);
+        codes.push(c);
+        if (o.json) io.stdout(JSON.stringify(jsonOf(out.result)) + "\n");
+        rows.push(...summaryRow(out.result));
+        progress.line(`[${count}/${files.length}] ${out.file}  ${"verdict" in out.result ? out.result.verdict : "done"}`);
+      },
+      (b) => progress.update(b, totalBytes),
+    ).finally(() => progress.end());
+    if (!o.json) io.stdout(`psdgate ${VERSION}: ${files.length} recordings\n${table(rows)}\n`);
+    return worst(codes);
+  }
+
   addReadingOptions(
     program.command("inspect").argument("<file>", "recording: CSV or WAV").description("what is in a recording: channels, rate, length, statistics, warnings"),
   ).action(async (file: string, o: ParsedCommon) => {
-    const a = await analyzeRecording(file, analysisOptions(o));
-    io.stdout(inspectText(a, VERSION));
+    io.stdout(inspectText(await analyzeRecording(file, analysisOptions(o)), VERSION));
   });
 
-  addSpectrumOptions(addReadingOptions(program.command("psd").argument("<file>", "recording: CSV or WAV").description("one-sided PSD by Welch's method, chi-square bounds and the Parseval check")))
-    .option("--json", "print the whole result as one JSON document")
-    .option("--csv <out>", "also write frequency, PSD and bounds of each channel to this CSV file")
-    .option("--force", "replace an existing output file")
-    .action(async (file: string, o: ParsedCommon & { json?: boolean; csv?: string; force?: boolean }) => {
-      const a = await analyzeRecording(file, analysisOptions(o));
-      requireAverages(a);
-      if (o.csv !== undefined) await writeAtomic(o.csv, psdCsv(a), { inputs: [file], force: o.force, option: "--csv" });
+  addBatchOptions(addSpectrumOptions(addReadingOptions(program.command("psd").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("one-sided PSD by Welch's method, chi-square bounds and the Parseval check"))))
+    .option("--csv <out>", "also write frequency, PSD and bounds of each channel to this CSV file (one recording)")
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { csv?: string }) => {
+      const files = await expandFiles(args, o.filesFrom, readStdin);
+      if (files.length > 1) {
+        if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
+        throw new Exit(await many<RecordingAnalysis>(
+          files, o, undefined, (r) => (tooShort(r) ? EXIT.input : EXIT.ok),
+          (r) => r.channels.map((c) => [r.input.file, c.name, `${sig(c.parseval.rmsTime, 4)} ${accelLabel(c.units)}`, `${sig(c.parseval.rmsPsd, 4)} ${accelLabel(c.units)}`, fixed(c.parseval.ratio, 4), fixed(c.psd.dof, 1), tooShort(r) ? "too short" : c.doubts.length ? "DOUBT" : "ok"]),
+          ["file", "channel", "RMS time", "RMS PSD", "ratio", "DOF", "status"], (r) => psdJson(r, VERSION),
+        ));
+      }
+      const a = await one(o, (onProgress) => analyzeRecording(files[0]!, { ...analysisOptions(o), onProgress }));
+      const short = tooShort(a);
+      if (short) throw short;
+      if (o.csv !== undefined) await writeAtomic(o.csv, psdCsv(a), { inputs: [a.input.file], force: o.force, option: "--csv" });
       io.stdout(o.json ? JSON.stringify(psdJson(a, VERSION)) + "\n" : psdText(a, VERSION));
     });
 
@@ -74,17 +179,40 @@ export function buildProgram(io: CliIo): Command {
       io.stdout(o.json ? JSON.stringify(profileJson(p, VERSION)) + "\n" : profileText(p, VERSION));
     });
 
-  addSpectrumOptions(addReadingOptions(program.command("check").argument("<file>", "recording: CSV or WAV").description("judge a recording against a profile: pass (exit 0), fail (1), inconclusive (3)")))
+  addBatchOptions(addSpectrumOptions(addReadingOptions(program.command("check").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("judge recordings against a profile: pass (exit 0), fail (1), inconclusive (3)"))))
     .requiredOption("-p, --profile <file>", "the required profile (JSON, YAML or CSV)")
-    .option("--json", "print the whole result as one JSON document")
-    .option("--report <out.html>", "also write a self-contained HTML report for review and signature")
-    .option("--force", "replace an existing output file")
-    .action(async (file: string, o: ParsedCommon & { profile: string; json?: boolean; report?: string; force?: boolean }) => {
+    .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
+    .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string }) => {
       const profile = await loadProfile(o.profile);
-      const r = await checkRecording(file, profile, analysisOptions(o));
-      if (o.report !== undefined) await writeAtomic(o.report, checkHtml(r, VERSION, new Date()), { inputs: [file, o.profile], force: o.force, option: "--report" });
+      const files = await expandFiles(args, o.filesFrom, readStdin);
+      const now = new Date();
+      const reportPath = (r: CheckResult) => (o.report !== undefined ? o.report : join(o.reportDir!, `${basename(r.analysis.input.file).replace(/\.[^.]*$/, "")}.html`));
+      const writeReport = (r: CheckResult) =>
+        writeAtomic(reportPath(r), checkHtml(r, VERSION, now), { inputs: [...files, o.profile], force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
+      if (files.length > 1) {
+        if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
+        const reports: Promise<void>[] = [];
+        const code = await many<CheckResult>(
+          files, o, profile, verdictCode,
+          (r) => {
+            if (o.reportDir !== undefined) reports.push(writeReport(r));
+            return r.channels.map((c, i) => {
+              const ch = r.analysis.channels[i]!;
+              const w = [...c.excursions].sort((x, y) => Math.abs(y.worstDb - y.limitDb) - Math.abs(x.worstDb - x.limitDb))[0];
+              return [r.analysis.input.file, ch.name, `${sig(c.rms.measured, 4)} ${accelLabel(ch.units)}`, `${c.rms.deviationDb >= 0 ? "+" : ""}${fixed(c.rms.deviationDb, 2)} dB`, fixed(c.dof.achieved, 1), c.verdict,
+                w ? `${sig(w.worstHz, 5)} Hz ${w.worstDb >= 0 ? "+" : ""}${fixed(w.worstDb, 2)} dB ${w.clear ? "clear" : "marginal"}` : "none"];
+            });
+          },
+          ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION),
+        );
+        await Promise.all(reports);
+        throw new Exit(code);
+      }
+      const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), onProgress }));
+      if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r);
       io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION)) + "\n" : checkText(r, VERSION));
-      throw new Exit(r.verdict === "pass" ? EXIT.ok : r.verdict === "fail" ? EXIT.fail : EXIT.inconclusive);
+      throw new Exit(verdictCode(r));
     });
 
   program
@@ -111,7 +239,7 @@ export function buildProgram(io: CliIo): Command {
         await writer.abort();
         throw e;
       }
-      const u = profile.units === "g" ? "g" : "m/s²";
+      const u = accelLabel(profile.units);
       io.stdout(`psdgate ${VERSION}: wrote ${o.out}: ${r.frames} samples x ${o.channels} channel(s) at ${o.rate} Hz, seed ${o.seed}, ${r.filterTaps}-tap shaping filter\n`);
       io.stdout(`  profile "${profile.title}" ${sig(profile.rms, 4)} ${u} RMS${o.levelDb !== 0 ? `, shifted ${o.levelDb} dB to ${sig(profile.rms * 10 ** (o.levelDb / 20), 4)} ${u}` : ""}\n`);
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
@@ -132,12 +260,10 @@ export async function runCli(argv: string[], io: CliIo = processIo): Promise<num
       io.stderr(`psdgate: ${e.message}\n`);
       return EXIT.input;
     }
-    if (e instanceof CommanderError) {
-      return e.exitCode === 0 ? EXIT.ok : EXIT.input;
-    }
+    if (e instanceof CommanderError) return e.exitCode === 0 ? EXIT.ok : EXIT.input;
     const err = e as Error;
     io.stderr(`psdgate: internal error: ${err?.message ?? String(e)}\nThis is a bug in psdgate ${VERSION}; please report it with the command line and input file.\n`);
-    if (process.env.PSDGATE_DEBUG) io.stderr(`${err?.stack}\n`);
+    if (io.env?.PSDGATE_DEBUG) io.stderr(`${err?.stack}\n`);
     return EXIT.internal;
   }
 }

@@ -1,7 +1,7 @@
 /**
  * Byte-level number scanner for the CSV fast path. Accepts [+-]digits[.digits][(e|E)[+-]digits]
  * (with `decimal` as the decimal mark) and returns exactly what Number() returns for the same text:
- * with at most 15 significant digits and a decimal exponent within +-22, the value m / 10^k or m * 10^k
+ * with at most 15 digits in all and a decimal exponent within +-22, the value m / 10^k or m * 10^k
  * is one correctly rounded IEEE operation on exact operands (Clinger 1990, "How to read floating point
  * numbers accurately", PLDI); anything else goes to Number() on the text.
  */
@@ -18,58 +18,42 @@ export interface ScanState {
 
 export function scanNumber(buf: Uint8Array, p: number, e: number, decimal: number, out: ScanState): void {
   const start = p;
-  let neg = false;
-  let c = buf[p];
-  if (c === 45 /* - */ || c === 43 /* + */) {
-    neg = c === 45;
-    p++;
-  }
+  let c = p < e ? buf[p]! : 0;
+  const neg = c === 45; /* - */
+  if (neg || c === 43 /* + */) c = ++p < e ? buf[p]! : 0;
+  // Every digit goes into the mantissa (leading zeros too); past 15 digits the slow path takes over,
+  // so the mantissa is exact whenever it is used.
   let mant = 0;
-  let sig = 0;
-  let exp10 = 0;
   let digits = 0;
-  while (p < e && (c = buf[p]!) >= 48 && c <= 57) {
-    if (sig > 0 || c !== 48) {
-      if (sig < 16) mant = mant * 10 + (c - 48);
-      else exp10++;
-      sig++;
-    }
+  while (c >= 48 && c <= 57) {
+    mant = mant * 10 + (c - 48);
     digits++;
-    p++;
+    c = ++p < e ? buf[p]! : 0;
   }
   let frac = 0;
-  if (p < e && buf[p] === decimal) {
-    p++;
-    while (p < e && (c = buf[p]!) >= 48 && c <= 57) {
-      if (sig > 0 || c !== 48) {
-        if (sig < 16) {
-          mant = mant * 10 + (c - 48);
-          exp10--;
-        }
-        sig++;
-      } else exp10--;
-      digits++;
+  if (c === decimal && p < e) {
+    c = ++p < e ? buf[p]! : 0;
+    while (c >= 48 && c <= 57) {
+      mant = mant * 10 + (c - 48);
       frac++;
-      p++;
+      c = ++p < e ? buf[p]! : 0;
     }
   }
-  if (digits === 0) {
+  if (digits + frac === 0) {
     out.end = -1;
     return;
   }
-  if (p < e && ((c = buf[p]!) === 101 || c === 69)) {
-    p++;
-    let eneg = false;
-    if (buf[p] === 45 || buf[p] === 43) {
-      eneg = buf[p] === 45;
-      p++;
-    }
+  let exp10 = -frac;
+  if ((c === 101 || c === 69) && p < e) {
+    c = ++p < e ? buf[p]! : 0;
+    const eneg = c === 45;
+    if (eneg || c === 43) c = ++p < e ? buf[p]! : 0;
     let ev = 0;
     let ed = 0;
-    while (p < e && (c = buf[p]!) >= 48 && c <= 57) {
+    while (c >= 48 && c <= 57) {
       if (ev < 100000) ev = ev * 10 + (c - 48);
       ed++;
-      p++;
+      c = ++p < e ? buf[p]! : 0;
     }
     if (ed === 0) {
       out.end = -1;
@@ -79,17 +63,14 @@ export function scanNumber(buf: Uint8Array, p: number, e: number, decimal: numbe
   }
   out.end = p;
   out.fractionDigits = frac;
-  let v: number;
-  if (sig <= 15 && exp10 >= -22 && exp10 <= 22) {
-    v = exp10 < 0 ? mant / POW10[-exp10]! : mant * POW10[exp10]!;
-  } else {
-    let s = "";
-    for (let i = start; i < p; i++) s += String.fromCharCode(buf[i] === decimal ? 46 : buf[i]!);
-    v = Number(s);
-    out.value = v;
+  if (digits + frac <= 15 && exp10 >= -22 && exp10 <= 22) {
+    const v = exp10 < 0 ? mant / POW10[-exp10]! : mant * POW10[exp10]!;
+    out.value = neg ? -v : v;
     return;
   }
-  out.value = neg ? -v : v;
+  let s = "";
+  for (let i = start; i < p; i++) s += String.fromCharCode(buf[i] === decimal ? 46 : buf[i]!);
+  out.value = Number(s);
 }
 
 /** The text forms a logger writes for a missing or overflowed sample; read as non-finite values. */

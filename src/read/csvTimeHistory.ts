@@ -401,8 +401,22 @@ async function readBody(
       data = chunk.subarray(skip);
       skip = 0;
     }
-    if (carry !== undefined) data = Buffer.concat([carry, data]);
     let pos = 0;
+    if (carry !== undefined) {
+      // Finish the line carried over from the last chunk without copying the whole chunk.
+      const nl = data.indexOf(10);
+      if (nl < 0) {
+        carry = Buffer.concat([carry, data]);
+        if (carry.length > MAX_LINE_BYTES) fail("CSV_LINE_TOO_LONG", undefined, `lines shorter than ${MAX_LINE_BYTES} bytes`, "a longer line");
+        onProgress?.(done);
+        continue;
+      }
+      const joined = Buffer.concat([carry, data.subarray(0, nl)]);
+      parseLine(joined, 0, joined.length);
+      lineNo++;
+      pos = nl + 1;
+      carry = undefined;
+    }
     for (;;) {
       const nl = data.indexOf(10, pos);
       if (nl < 0) break;

@@ -16,11 +16,12 @@ export function dB(x: number): number {
   return 10 * Math.log10(x);
 }
 
-/** Right-aligned columns for terminal tables. */
+/** Terminal tables: a column whose cells all start like numbers is right-aligned, the rest left-aligned. */
 export function table(rows: string[][], indent = "  "): string {
   const widths: number[] = [];
+  const numeric: boolean[] = [];
   for (const r of rows) r.forEach((c, i) => (widths[i] = Math.max(widths[i] ?? 0, [...c].length)));
-  return rows
-    .map((r) => indent + r.map((c, i) => (i === 0 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join("  ").trimEnd())
-    .join("\n");
+  rows[0]?.forEach((_, i) => (numeric[i] = rows.slice(1).every((r) => /^[-+]?\d/.test(r[i] ?? "") || (r[i] ?? "") === "")));
+  const pad = (c: string, i: number) => (numeric[i] ? c.padStart(widths[i]! + c.length - [...c].length) : c.padEnd(widths[i]! + c.length - [...c].length));
+  return rows.map((r) => indent + r.map(pad).join("  ").trimEnd()).join("\n");
 }

@@ -117,7 +117,7 @@ describe("exit codes and messages", () => {
     ["a folder", ["psd", dir], /expected a readable file, received a folder/],
     ["units that conflict with the header", ["psd", "samples/tern7-flight.csv", "--units", "m/s2"], /--units to agree with the header's unit g/],
     ["an unknown command", ["frobnicate"], /unknown command/],
-    ["a missing argument", ["psd"], /missing required argument/],
+    ["no recording given", ["psd"], /expected a recording to analyse/],
   ];
   for (const [name, argv, message] of cases) {
     it(`${name}: exit 2, one line naming the place`, async () => {

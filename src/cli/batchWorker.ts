@@ -1,0 +1,19 @@
+import { parentPort } from "node:worker_threads";
+import { analyzeRecording } from "../analyzeRecording.js";
+import { checkRecording } from "../checkRecording.js";
+import { InputError } from "../errors.js";
+import type { BatchJob, BatchReply } from "./batch.js";
+
+/** One worker of the batch pool: analyses or checks one recording per message. */
+parentPort!.on("message", async (job: BatchJob) => {
+  let reply: BatchReply;
+  try {
+    const onProgress = (done: number, total: number) => parentPort!.postMessage({ id: job.id, progress: done, total });
+    const options = { ...job.options, onProgress };
+    const result = job.profile ? await checkRecording(job.file, job.profile, options) : await analyzeRecording(job.file, options);
+    reply = { id: job.id, result };
+  } catch (e) {
+    reply = e instanceof InputError ? { id: job.id, inputError: { code: e.code, details: e.details } } : { id: job.id, internal: (e as Error)?.stack ?? String(e) };
+  }
+  parentPort!.postMessage(reply);
+});

@@ -1,0 +1,28 @@
+import { readFile } from "node:fs/promises";
+import { glob } from "tinyglobby";
+import { InputError } from "../errors.js";
+
+/** Expand the command's file arguments: globs (quoted, so the shell left them), `-` for a list on stdin, and --files-from. */
+export async function expandFiles(args: string[], filesFrom: string | undefined, readStdin: () => Promise<string>): Promise<string[]> {
+  const out: string[] = [];
+  const fromList = (text: string) => text.split(/\r?\n/).map((l) => l.trim()).filter((l) => l !== "" && !l.startsWith("#"));
+  if (filesFrom !== undefined) {
+    let text: string;
+    try {
+      text = filesFrom === "-" ? await readStdin() : await readFile(filesFrom, "utf8");
+    } catch {
+      throw new InputError("FILE_UNREADABLE", { option: "--files-from", expected: "a readable list of files, one per line", received: filesFrom });
+    }
+    out.push(...fromList(text));
+  }
+  for (const a of args) {
+    if (a === "-") out.push(...fromList(await readStdin()));
+    else if (/[*?[{]/.test(a)) {
+      const found = (await glob(a, { onlyFiles: true, expandDirectories: false })).sort();
+      if (found.length === 0) throw new InputError("NO_FILES_MATCH", { expected: "at least one file matching the pattern", received: JSON.stringify(a) });
+      out.push(...found);
+    } else out.push(a);
+  }
+  if (out.length === 0) throw new InputError("NO_FILES", { expected: "a recording to analyse (a file, a glob, - or --files-from)", received: "none" });
+  return out;
+}
