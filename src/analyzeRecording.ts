@@ -29,6 +29,8 @@ export interface AnalysisOptions extends WelchOptions {
   scale?: number | undefined;
   fminHz?: number | undefined;
   fmaxHz?: number | undefined;
+  /** Also build the amplitude histogram of each channel (one more pass over each block). */
+  histogram?: boolean | undefined;
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
 }
 
@@ -42,7 +44,8 @@ export interface ChannelAnalysis {
   parseval: ParsevalCheck;
   band?: { fminHz: number; fmaxHz: number; rms: number } | undefined;
   peaks: SpectralPeak[];
-  histogram: AmplitudeHistogram;
+  /** Amplitude histogram, when asked for (the review report shows it). */
+  histogram?: AmplitudeHistogram | undefined;
   /** Findings that weaken trust in the result; each names what was seen. */
   warnings: string[];
   /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
@@ -96,7 +99,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const fft = new RealFft(settings.segmentLength);
   const welch = select.map(() => new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, fft));
   const moments = select.map(() => new RunningMoments());
-  const histograms = select.map(() => new HistogramAccumulator());
+  const histograms = options.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
   const summary = await source.read(
     select,
     (blocks, frames) => {
@@ -104,7 +107,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
         const x = blocks[c]!;
         scaleSamples(x, frames, conditioning[c]!.factor);
         moments[c]!.push(x, frames);
-        histograms[c]!.push(x, frames);
+        histograms?.[c]!.push(x, frames);
         welch[c]!.push(x, frames);
       }
     },
@@ -122,7 +125,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const hi = options.fmaxHz ?? fs / 2;
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
     const { warnings, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength);
-    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), histogram: histograms[c]!.densityAround(stats.mean, stats.std), warnings, doubts };
+    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings, doubts };
   });
   return {
     input: {

@@ -26,7 +26,7 @@ export async function checkRecording(file: string, profile: TestProfile, options
   if (options.resultUnits !== undefined && options.resultUnits !== profile.units) {
     throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: `the profile's unit ${profile.units} (or no --result-units)`, received: options.resultUnits });
   }
-  const analysis = await analyzeRecording(file, { ...options, resolutionHz, resultUnits: profile.units });
+  const analysis = await analyzeRecording(file, { ...options, resolutionHz, resultUnits: profile.units, histogram: true });
   const channels = analysis.channels.map((c) => checkChannel(c, profile, analysis.settings.confidence));
   return { verdict: overallVerdict(channels.map((c) => c.verdict)), analysis, profile, channels };
 }

@@ -1,5 +1,4 @@
 import { readFile } from "node:fs/promises";
-import { glob } from "tinyglobby";
 import { InputError } from "../errors.js";
 
 /** Expand the command's file arguments: globs (quoted, so the shell left them), `-` for a list on stdin, and --files-from. */
@@ -18,6 +17,7 @@ export async function expandFiles(args: string[], filesFrom: string | undefined,
   for (const a of args) {
     if (a === "-") out.push(...fromList(await readStdin()));
     else if (/[*?[{]/.test(a)) {
+      const { glob } = await import("tinyglobby");
       const found = (await glob(a, { onlyFiles: true, expandDirectories: false })).sort();
       if (found.length === 0) throw new InputError("NO_FILES_MATCH", { expected: "at least one file matching the pattern", received: JSON.stringify(a) });
       out.push(...found);

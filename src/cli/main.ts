@@ -2,25 +2,29 @@ import { stat } from "node:fs/promises";
 import { availableParallelism } from "node:os";
 import { basename, join } from "node:path";
 import { Command, CommanderError } from "commander";
-import { analyzeRecording, type RecordingAnalysis } from "../analyzeRecording.js";
-import { checkRecording, loadProfile } from "../checkRecording.js";
+import type { RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { EXIT, InputError } from "../errors.js";
-import { checkJson, checkText, type CheckResult } from "../report/checkReport.js";
+import type { CheckResult } from "../report/checkReport.js";
 import { fixed, sig, table } from "../report/format.js";
-import { checkHtml } from "../report/htmlReport.js";
-import { profileJson, profileText } from "../report/profileText.js";
 import { psdCsv, psdJson, toolInfo } from "../report/psdJson.js";
 import { inspectText, psdText } from "../report/psdText.js";
-import { createTimeHistoryWriter } from "../report/timeHistoryWriter.js";
 import { writeAtomic } from "../report/writeAtomic.js";
-import { synthesizeProfile } from "../synth/synthesizeProfile.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
-import { runBatch, type Outcome } from "./batch.js";
+import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
+
+// Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
+// load on first use, so that a plain `psd` starts fast.
+const analysis = () => import("../analyzeRecording.js");
+const checking = () => import("../checkRecording.js");
+const html = () => import("../report/htmlReport.js");
+const checkReport = () => import("../report/checkReport.js");
+const profileReport = () => import("../report/profileText.js");
+const batch = () => import("./batch.js");
 
 export interface CliIo {
   stdout: (s: string) => void;
@@ -120,6 +124,7 @@ export function buildProgram(io: CliIo): Command {
     const codes: number[] = [];
     const rows: string[][] = [header];
     let count = 0;
+    const { runBatch } = await batch();
     await runBatch<T>(
       files, analysisOptions(o), profile, o.jobs ?? availableParallelism(),
       (out: Outcome<T>) => {
@@ -147,6 +152,7 @@ export function buildProgram(io: CliIo): Command {
   addReadingOptions(
     program.command("inspect").argument("<file>", "recording: CSV or WAV").description("what is in a recording: channels, rate, length, statistics, warnings"),
   ).action(async (file: string, o: ParsedCommon) => {
+    const { analyzeRecording } = await analysis();
     io.stdout(inspectText(await analyzeRecording(file, analysisOptions(o)), VERSION));
   });
 
@@ -162,6 +168,7 @@ export function buildProgram(io: CliIo): Command {
           ["file", "channel", "RMS time", "RMS PSD", "ratio", "DOF", "status"], (r) => psdJson(r, VERSION),
         ));
       }
+      const { analyzeRecording } = await analysis();
       const a = await one(o, (onProgress) => analyzeRecording(files[0]!, { ...analysisOptions(o), onProgress }));
       const short = tooShort(a);
       if (short) throw short;
@@ -175,6 +182,8 @@ export function buildProgram(io: CliIo): Command {
     .description("breakpoints, slopes, overall RMS, velocity and stroke of a required profile")
     .option("--json", "print the result as JSON")
     .action(async (file: string, o: { json?: boolean }) => {
+      const { loadProfile } = await checking();
+      const { profileJson, profileText } = await profileReport();
       const p = await loadProfile(file);
       io.stdout(o.json ? JSON.stringify(profileJson(p, VERSION)) + "\n" : profileText(p, VERSION));
     });
@@ -184,6 +193,9 @@ export function buildProgram(io: CliIo): Command {
     .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
     .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
     .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string }) => {
+      const { loadProfile, checkRecording } = await checking();
+      const { checkHtml } = await html();
+      const { checkJson, checkText } = await checkReport();
       const profile = await loadProfile(o.profile);
       const files = await expandFiles(args, o.filesFrom, readStdin);
       const now = new Date();
@@ -228,6 +240,9 @@ export function buildProgram(io: CliIo): Command {
     .option("--force", "replace an existing output file")
     .action(async (o: { profile: string; duration: number; rate: number; out: string; seed: number; channels: number; levelDb: number; force?: boolean }) => {
       if (o.out === o.profile) throw new InputError("OUTPUT_IS_INPUT", { option: "--out", expected: "an output path different from the profile", received: o.out });
+      const { loadProfile } = await checking();
+      const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");
+      const { synthesizeProfile } = await import("../synth/synthesizeProfile.js");
       const profile = await loadProfile(o.profile);
       const names = Array.from({ length: o.channels }, (_, i) => `ch${i + 1}`);
       const writer = await createTimeHistoryWriter(o.out, { sampleRateHz: o.rate, channelNames: names, units: profile.units, force: o.force, option: "--out" });

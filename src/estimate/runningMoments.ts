@@ -1,10 +1,11 @@
 /**
- * Running moments of a sample stream, one pass, merged block by block: two passes inside a block,
- * then the pairwise update of Chan, Golub & LeVeque (1979, "Updating formulae and a pairwise algorithm
- * for computing sample variances", Stanford CS report STAN-CS-79-773) extended to the third and fourth
- * central moments and to a co-moment with the sample index (Pébay 2008, "Formulas for robust, one-pass
- * parallel computation of covariances and arbitrary-order statistical moments", Sandia SAND2008-6212).
- * Non-finite samples are counted and left out of every moment.
+ * Running moments of a sample stream in one pass. Power sums of d = x - K are kept, with the shift K
+ * set to the mean of the first block, so the sums stay small whatever the offset (the "shifted data"
+ * algorithm; Chan, Golub & LeVeque 1983, "Algorithms for computing the sample variance", The American
+ * Statistician 37(3):242-247). Each block's sums are formed apart and then added, which bounds the
+ * rounding. Central moments follow from the power sums (Pébay 2008, Sandia SAND2008-6212, eq. 1.1).
+ * A co-moment with the sample index gives the residual after a least-squares line. Non-finite samples
+ * are counted and left out of every moment.
  */
 export interface SampleStatistics {
   /** Finite samples used. */
@@ -32,14 +33,14 @@ export interface SampleStatistics {
 export class RunningMoments {
   private n = 0;
   private nonFinite = 0;
-  private mean = 0;
-  private m2 = 0;
-  private m3 = 0;
-  private m4 = 0;
-  // Sample index moments, for the residual after a least-squares line.
-  private tMean = 0;
-  private tM2 = 0;
-  private cTx = 0;
+  private shift = NaN;
+  private s1 = 0;
+  private s2 = 0;
+  private s3 = 0;
+  private s4 = 0;
+  private st = 0;
+  private stt = 0;
+  private std = 0;
   private min = Infinity;
   private max = -Infinity;
   private atMin = 0;
@@ -48,23 +49,48 @@ export class RunningMoments {
   private index = 0;
 
   push(x: Float64Array, count = x.length): void {
-    let nb = 0;
-    let sum = 0;
-    let tSum = 0;
+    if (Number.isNaN(this.shift)) {
+      let s = 0;
+      let m = 0;
+      for (let i = 0; i < count; i++) {
+        const v = x[i]!;
+        if (v - v === 0) {
+          s += v;
+          m++;
+        }
+      }
+      if (m > 0) this.shift = s / m;
+    }
+    const k = Number.isNaN(this.shift) ? 0 : this.shift;
+    let n = 0;
+    let s1 = 0;
+    let s2 = 0;
+    let s3 = 0;
+    let s4 = 0;
+    let st = 0;
+    let stt = 0;
+    let std = 0;
     let min = this.min;
     let max = this.max;
     let atMin = this.atMin;
     let atMax = this.atMax;
-    const base = this.index;
+    // Block-relative index, so its sums stay small; shifted to the record's index when added.
     for (let i = 0; i < count; i++) {
       const v = x[i]!;
       if (v - v !== 0) {
         this.nonFinite++;
         continue;
       }
-      nb++;
-      sum += v;
-      tSum += base + i;
+      const d = v - k;
+      const d2 = d * d;
+      n++;
+      s1 += d;
+      s2 += d2;
+      s3 += d2 * d;
+      s4 += d2 * d2;
+      st += i;
+      stt += i * i;
+      std += i * d;
       if (v < min) {
         min = v;
         atMin = 1;
@@ -74,89 +100,61 @@ export class RunningMoments {
         atMax = 1;
       } else if (v === max) atMax++;
     }
+    const b = this.index;
+    this.n += n;
+    this.s1 += s1;
+    this.s2 += s2;
+    this.s3 += s3;
+    this.s4 += s4;
+    this.st += st + b * n;
+    this.stt += stt + 2 * b * st + b * b * n;
+    this.std += std + b * s1;
     this.min = min;
     this.max = max;
     this.atMin = atMin;
     this.atMax = atMax;
     this.index += count;
-    if (nb === 0) return;
-    const mb = sum / nb;
-    const tb = tSum / nb;
-    let s2 = 0;
-    let s3 = 0;
-    let s4 = 0;
-    let st2 = 0;
-    let stx = 0;
-    for (let i = 0; i < count; i++) {
-      const v = x[i]!;
-      if (v - v !== 0) continue;
-      const d = v - mb;
-      const d2 = d * d;
-      const dt = base + i - tb;
-      s2 += d2;
-      s3 += d2 * d;
-      s4 += d2 * d2;
-      st2 += dt * dt;
-      stx += dt * d;
-    }
-    this.merge(nb, mb, s2, s3, s4, tb, st2, stx);
   }
 
-  private merge(nb: number, mb: number, m2b: number, m3b: number, m4b: number, tb: number, t2b: number, cb: number): void {
-    const na = this.n;
-    if (na === 0) {
-      this.n = nb;
-      this.mean = mb;
-      this.m2 = m2b;
-      this.m3 = m3b;
-      this.m4 = m4b;
-      this.tMean = tb;
-      this.tM2 = t2b;
-      this.cTx = cb;
-      return;
-    }
-    const n = na + nb;
-    const d = mb - this.mean;
-    const d2 = d * d;
-    const m2a = this.m2;
-    const m3a = this.m3;
-    this.m4 =
-      this.m4 + m4b + (d2 * d2 * na * nb * (na * na - na * nb + nb * nb)) / (n * n * n) +
-      (6 * d2 * (na * na * m2b + nb * nb * m2a)) / (n * n) + (4 * d * (na * m3b - nb * m3a)) / n;
-    this.m3 = m3a + m3b + (d2 * d * na * nb * (na - nb)) / (n * n) + (3 * d * (na * m2b - nb * m2a)) / n;
-    this.m2 = m2a + m2b + (d2 * na * nb) / n;
-    const dt = tb - this.tMean;
-    this.cTx += cb + (d * dt * na * nb) / n;
-    this.tM2 += t2b + (dt * dt * na * nb) / n;
-    this.mean += (d * nb) / n;
-    this.tMean += (dt * nb) / n;
-    this.n = n;
+  /** Central sums M2, M3, M4 and the mean, from the shifted power sums. */
+  private central(): { mean: number; m2: number; m3: number; m4: number } {
+    const n = this.n;
+    const m = this.s1 / n;
+    const m2 = Math.max(0, this.s2 - n * m * m);
+    const m3 = this.s3 - 3 * m * this.s2 + 2 * n * m * m * m;
+    const m4 = this.s4 - 4 * m * this.s3 + 6 * m * m * this.s2 - 3 * n * m * m * m * m;
+    return { mean: this.shift + m, m2, m3, m4 };
   }
 
   /** Mean square after removing nothing, the record's mean, or its least-squares line. */
   residualMeanSquare(detrend: "none" | "mean" | "linear"): number {
-    if (this.n === 0) return NaN;
-    if (detrend === "none") return this.mean * this.mean + this.m2 / this.n;
-    if (detrend === "mean" || this.tM2 === 0) return this.m2 / this.n;
-    return Math.max(0, this.m2 - (this.cTx * this.cTx) / this.tM2) / this.n;
+    const n = this.n;
+    if (n === 0) return NaN;
+    const { mean, m2 } = this.central();
+    if (detrend === "none") return mean * mean + m2 / n;
+    const tM2 = this.stt - (this.st * this.st) / n;
+    if (detrend === "mean" || !(tM2 > 0)) return m2 / n;
+    const cTx = this.std - (this.st * this.s1) / n;
+    return Math.max(0, m2 - (cTx * cTx) / tM2) / n;
   }
 
   result(): SampleStatistics {
     const n = this.n;
-    const variance = n > 0 ? this.m2 / n : NaN;
+    const c = n > 0 ? this.central() : { mean: NaN, m2: NaN, m3: NaN, m4: NaN };
+    const variance = c.m2 / n;
     const std = Math.sqrt(variance);
-    const peak = Math.max(Math.abs(this.max - this.mean), Math.abs(this.min - this.mean));
+    const peak = Math.max(Math.abs(this.max - c.mean), Math.abs(this.min - c.mean));
     return {
       count: n,
       nonFinite: this.nonFinite,
-      mean: n > 0 ? this.mean : NaN,
-      rms: Math.sqrt(this.mean * this.mean + variance),
+      mean: c.mean,
+      rms: Math.sqrt(c.mean * c.mean + variance),
       std,
       min: n > 0 ? this.min : NaN,
       max: n > 0 ? this.max : NaN,
       crestFactor: std > 0 ? peak / std : NaN,
-      skewness: this.m2 > 0 ? (Math.sqrt(n) * this.m3) / Math.pow(this.m2, 1.5) : NaN,
-      kurtosis: this.m2 > 0 ? (n * this.m4) / (this.m2 * this.m2) : NaN,
+      skewness: c.m2 > 0 ? (Math.sqrt(n) * c.m3) / Math.pow(c.m2, 1.5) : NaN,
+      kurtosis: c.m2 > 0 ? (n * c.m4) / (c.m2 * c.m2) : NaN,
       atMin: this.atMin,
       atMax: this.atMax,
     };

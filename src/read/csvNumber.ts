@@ -16,11 +16,15 @@ export interface ScanState {
   fractionDigits: number;
 }
 
-export function scanNumber(buf: Uint8Array, p: number, e: number, decimal: number, out: ScanState): void {
+/**
+ * Scan the number that starts at p. The caller guarantees that a byte which cannot belong to a
+ * number (a newline at the latest) follows inside `buf`, so the loops need no bounds checks.
+ */
+export function scanNumber(buf: Uint8Array, p: number, decimal: number, out: ScanState): void {
   const start = p;
-  let c = p < e ? buf[p]! : 0;
+  let c = buf[p]!;
   const neg = c === 45; /* - */
-  if (neg || c === 43 /* + */) c = ++p < e ? buf[p]! : 0;
+  if (neg || c === 43 /* + */) c = buf[++p]!;
   // Every digit goes into the mantissa (leading zeros too); past 15 digits the slow path takes over,
   // so the mantissa is exact whenever it is used.
   let mant = 0;
@@ -28,15 +32,15 @@ export function scanNumber(buf: Uint8Array, p: number, e: number, decimal: numbe
   while (c >= 48 && c <= 57) {
     mant = mant * 10 + (c - 48);
     digits++;
-    c = ++p < e ? buf[p]! : 0;
+    c = buf[++p]!;
   }
   let frac = 0;
-  if (c === decimal && p < e) {
-    c = ++p < e ? buf[p]! : 0;
+  if (c === decimal) {
+    c = buf[++p]!;
     while (c >= 48 && c <= 57) {
       mant = mant * 10 + (c - 48);
       frac++;
-      c = ++p < e ? buf[p]! : 0;
+      c = buf[++p]!;
     }
   }
   if (digits + frac === 0) {
@@ -44,16 +48,16 @@ export function scanNumber(buf: Uint8Array, p: number, e: number, decimal: numbe
     return;
   }
   let exp10 = -frac;
-  if ((c === 101 || c === 69) && p < e) {
-    c = ++p < e ? buf[p]! : 0;
+  if (c === 101 || c === 69) {
+    c = buf[++p]!;
     const eneg = c === 45;
-    if (eneg || c === 43) c = ++p < e ? buf[p]! : 0;
+    if (eneg || c === 43) c = buf[++p]!;
     let ev = 0;
     let ed = 0;
     while (c >= 48 && c <= 57) {
       if (ev < 100000) ev = ev * 10 + (c - 48);
       ed++;
-      c = ++p < e ? buf[p]! : 0;
+      c = buf[++p]!;
     }
     if (ed === 0) {
       out.end = -1;

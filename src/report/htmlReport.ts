@@ -113,7 +113,7 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
       { id: "deviation", label: "10 log10(measured / required)", x: lx, y: devs, className: "deviation" },
     ],
   });
-  const h = c.histogram;
+  const h = c.histogram ?? { edges: [], density: [], underflow: 0, overflow: 0, count: 0 };
   const gx: number[] = [];
   const gy: number[] = [];
   if (h.edges.length > 1) {

@@ -32,6 +32,24 @@ describe("RunningMoments", () => {
     expect(m.residualMeanSquare("linear")).toBeLessThan(1e-12);
     expect(m.residualMeanSquare("none")).toBeGreaterThan(9);
   });
+  it("a large offset (1e4 g with 1e-3 g noise) loses no accuracy: std and kurtosis match a two-pass computation", () => {
+    const noise = gaussian(200000, 21, 1e-3);
+    const x = noise.map((v) => 1e4 + v);
+    const m = new RunningMoments();
+    for (let i = 0; i < x.length; i += 8192) m.push(x.subarray(i, Math.min(x.length, i + 8192)));
+    let mean = 0;
+    for (const v of x) mean += v;
+    mean /= x.length;
+    let m2 = 0;
+    let m4 = 0;
+    for (const v of x) {
+      m2 += (v - mean) ** 2;
+      m4 += (v - mean) ** 4;
+    }
+    const r = m.result();
+    expect(Math.abs(r.std / Math.sqrt(m2 / x.length) - 1)).toBeLessThan(1e-8);
+    expect(Math.abs(r.kurtosis / ((x.length * m4) / (m2 * m2)) - 1)).toBeLessThan(1e-6);
+  });
   it("counts non-finite samples apart and samples at the extremes", () => {
     const m = new RunningMoments();
     m.push(Float64Array.from([1, NaN, 5, 5, 5, -2, Infinity, -2]));

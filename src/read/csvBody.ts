@@ -1,0 +1,232 @@
+import Papa from "papaparse";
+import { InputError, quoted } from "../errors.js";
+import { nonFiniteToken, parseNumberText, scanNumber, type ScanState } from "./csvNumber.js";
+
+/**
+ * The body of a delimited-text time history, parsed piece by piece. A piece is a run of whole lines;
+ * the parser turns it into one column per selected channel (plus the time column), with the line of
+ * every row relative to the piece's first line, so it can run in a worker thread and still name exact
+ * lines in its errors. Plain numeric fields take the byte-level fast path; a line it does not
+ * understand (quotes, text) goes to papaparse and the text parser, which reads it or says why not.
+ */
+export type Delimiter = "," | ";" | "\t" | "whitespace";
+
+/** Everything the parser needs; plain data, so it can be posted to a worker. */
+export interface CsvBodySpec {
+  file: string;
+  columns: number;
+  columnNames: string[];
+  delimiter: Delimiter;
+  decimal: "." | ",";
+  /** Index of the time column, or -1. */
+  timeIndex: number;
+  /** File columns of the selected channels, in output order. */
+  selectColumns: number[];
+}
+
+export interface CsvPiece {
+  rows: number;
+  /** Lines in the piece (rows, blank lines and comments). */
+  lines: number;
+  channels: Float64Array[];
+  /** Raw time column values (file units), when there is one. */
+  time: Float64Array | undefined;
+  /** Line of each row relative to the piece's first line; undefined when row i is line i. */
+  rowLines: Uint32Array | undefined;
+  /** Most digits after the decimal mark in the time column. */
+  timeFractionDigits: number;
+}
+
+export const MAX_LINE_BYTES = 1 << 20;
+
+export function splitRow(text: string, delimiter: Delimiter): string[] {
+  if (delimiter === "whitespace") return text.trim().split(/\s+/);
+  if (!text.includes('"')) return text.split(delimiter);
+  const r = Papa.parse<string[]>(text, { delimiter, header: false });
+  return r.data[0] ?? [""];
+}
+
+const SPACE = 32;
+const TAB = 9;
+const CR = 13;
+
+export class CsvBodyParser {
+  private readonly spec: CsvBodySpec;
+  private readonly ncol: number;
+  private readonly delimByte: number;
+  private readonly decimalByte: number;
+  /** Where each file column goes: -1 dropped, -2 time, else the output channel. */
+  private readonly target: Int32Array;
+  private readonly row: Float64Array;
+  private readonly scan: ScanState = { end: 0, value: 0, fractionDigits: 0 };
+
+  constructor(spec: CsvBodySpec) {
+    this.spec = spec;
+    this.ncol = spec.columns;
+    this.delimByte = spec.delimiter === "whitespace" ? -1 : spec.delimiter.charCodeAt(0);
+    this.decimalByte = spec.decimal.charCodeAt(0);
+    this.target = new Int32Array(this.ncol).fill(-1);
+    spec.selectColumns.forEach((c, i) => (this.target[c] = i));
+    if (spec.timeIndex >= 0) this.target[spec.timeIndex] = -2;
+    this.row = new Float64Array(this.ncol);
+  }
+
+  /**
+   * Parse the lines of buf[s, e). The piece must end with a newline (buf[e - 1] is LF): the readers
+   * add one after a last line that has none, so no scan can run past the piece. `firstLine` is the
+   * line number of the first line (0 when it is not known: errors then carry a relative line).
+   */
+  parse(buf: Uint8Array, s: number, e: number, firstLine: number): CsvPiece {
+    if (e > s && buf[e - 1] !== 10) throw new RangeError("a CSV piece must end with a newline");
+    const capacity = Math.max(16, Math.ceil((e - s) / (4 * this.ncol)));
+    let cap = capacity;
+    let channels = this.spec.selectColumns.map(() => new Float64Array(cap));
+    const hasTime = this.spec.timeIndex >= 0;
+    let time = hasTime ? new Float64Array(cap) : undefined;
+    let rowLines: Uint32Array | undefined;
+    let rows = 0;
+    let line = 0;
+    let timeFrac = 0;
+    const grow = () => {
+      const n = cap * 2;
+      channels = channels.map((c) => {
+        const g = new Float64Array(n);
+        g.set(c);
+        return g;
+      });
+      if (time) {
+        const g = new Float64Array(n);
+        g.set(time);
+        time = g;
+      }
+      if (rowLines) {
+        const g = new Uint32Array(n);
+        g.set(rowLines);
+        rowLines = g;
+      }
+      cap = n;
+    };
+    let p = s;
+    while (p < e) {
+      const frac = this.parseLine(buf, p, e, firstLine + line);
+      const next = this.next;
+      if (next - p > MAX_LINE_BYTES) this.fail("CSV_LINE_TOO_LONG", firstLine + line, undefined, `lines shorter than ${MAX_LINE_BYTES} bytes`, "a longer line");
+      if (frac >= 0) {
+        if (rows === cap) grow();
+        const r = this.row;
+        for (let c = 0; c < this.ncol; c++) {
+          const t = this.target[c]!;
+          if (t >= 0) channels[t]![rows] = r[c]!;
+        }
+        if (time) {
+          time[rows] = r[this.spec.timeIndex]!;
+          if (frac > timeFrac) timeFrac = frac;
+        }
+        if (rowLines) rowLines[rows] = line;
+        else if (line !== rows) {
+          rowLines = new Uint32Array(cap);
+          for (let i = 0; i < rows; i++) rowLines[i] = i;
+          rowLines[rows] = line;
+        }
+        rows++;
+      }
+      line++;
+      p = next;
+    }
+    return {
+      rows, lines: line,
+      channels: channels.map((c) => c.subarray(0, rows)),
+      time: time?.subarray(0, rows), rowLines: rowLines?.subarray(0, rows), timeFractionDigits: timeFrac,
+    };
+  }
+
+  private fail(code: string, line: number, column: number | undefined, expected: string, received: string, hint?: string): never {
+    throw new InputError(code, {
+      file: this.spec.file, line, column, field: column !== undefined ? this.spec.columnNames[column - 1] : undefined, expected, received, hint,
+    });
+  }
+
+  /** Index just after the line parsed last (after its newline, or the end). */
+  private next = 0;
+
+  /** End of the line starting at s: the index of its newline, or e. */
+  private lineEnd(buf: Uint8Array, s: number, e: number): number {
+    const nl = buf.indexOf(10, s);
+    return nl < 0 || nl >= e ? e : nl;
+  }
+
+  /**
+   * Parses the line starting at s into this.row and sets this.next past it. Returns the time
+   * field's fraction digits (0 without time), or -1 for a line without data. The fast path finds the
+   * line's end while it scans; anything unusual goes to slowLine with the line's exact extent.
+   */
+  private parseLine(buf: Uint8Array, s: number, e: number, line: number): number {
+    let p = s;
+    let c = buf[p]!;
+    while (c === SPACE || c === TAB) c = buf[++p]!;
+    if (c === 10 || c === 35 /* # */ || (c === CR && buf[p + 1] === 10)) {
+      this.next = (c === 10 ? p : this.lineEnd(buf, p, e)) + 1;
+      return -1;
+    }
+    const ncol = this.ncol;
+    const delim = this.delimByte;
+    const scan = this.scan;
+    const ti = this.spec.timeIndex;
+    let frac = 0;
+    for (let col = 0; col < ncol; col++) {
+      c = buf[p]!;
+      while (c === SPACE || (delim < 0 && c === TAB)) c = buf[++p]!;
+      scanNumber(buf, p, this.decimalByte, scan);
+      if (scan.end < 0) return this.slowLine(buf, s, e, line);
+      this.row[col] = scan.value;
+      if (col === ti) frac = scan.fractionDigits;
+      p = scan.end;
+      c = buf[p]!;
+      while (c === SPACE || (delim < 0 && c === TAB)) c = buf[++p]!;
+      if (col < ncol - 1) {
+        if (delim >= 0) {
+          if (c !== delim) return this.slowLine(buf, s, e, line);
+          p++;
+        } else if (c === 10 || c === CR) return this.slowLine(buf, s, e, line);
+      }
+    }
+    if (c === CR) c = buf[++p]!;
+    if (c !== 10) return this.slowLine(buf, s, e, line);
+    this.next = p + 1;
+    return frac;
+  }
+
+  private slowLine(buf: Uint8Array, s: number, e: number, line: number): number {
+    e = this.lineEnd(buf, s, e);
+    this.next = e + 1;
+    if (e > s && buf[e - 1] === CR) e--;
+    const text = Buffer.from(buf.buffer, buf.byteOffset + s, e - s).toString("utf8");
+    const fields = splitRow(text, this.spec.delimiter);
+    const ncol = this.ncol;
+    const names = this.spec.columnNames;
+    if (fields.length !== ncol) {
+      const few = fields.length < ncol;
+      this.fail(few ? "CSV_TOO_FEW_FIELDS" : "CSV_TOO_MANY_FIELDS", line, few ? fields.length + 1 : ncol + 1, `${ncol} fields as in the first row`, `${fields.length}`);
+    }
+    let frac = 0;
+    for (let c = 0; c < ncol; c++) {
+      const f = fields[c]!.trim();
+      if (f === "") this.fail("CSV_EMPTY_CELL", line, c + 1, `a number in column ${quoted(names[c]!)}`, "an empty cell");
+      let v = parseNumberText(f, this.spec.decimal);
+      if (Number.isNaN(v)) {
+        const nf = nonFiniteToken(f);
+        if (nf === undefined) {
+          const hint = this.spec.decimal === "." && /^[+-]?\d+,\d+$/.test(f) ? "the file may use decimal commas: give --delimiter ';' --decimal comma" : undefined;
+          this.fail("CSV_NOT_A_NUMBER", line, c + 1, `a number in column ${quoted(names[c]!)}`, quoted(f), hint);
+        }
+        v = nf!;
+      }
+      this.row[c] = v;
+      if (c === this.spec.timeIndex) {
+        const m = /[.,](\d+)/.exec(f);
+        frac = m ? m[1]!.length : 0;
+      }
+    }
+    return frac;
+  }
+}
