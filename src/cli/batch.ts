@@ -34,6 +34,8 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   onOutcome: (o: Outcome<T>, index: number) => void, onProgress?: (bytesDone: number) => void,
 ): Promise<void> {
   const useWorkers = jobs > 1 && files.length > 1 && existsSync(fileURLToPath(WORKER));
+  // A batch is parallel across files only: one thread per recording, so --jobs says how many cores it uses.
+  if (files.length > 1) options = { ...options, csv: { ...options.csv, parseWorkers: 0 } };
   const outcomes: (Outcome<T> | undefined)[] = new Array(files.length);
   let nextOut = 0;
   const deliver = (i: number, o: Outcome<T>) => {

@@ -30,6 +30,67 @@ export interface SampleStatistics {
   atMax: number;
 }
 
+const [N, NONFINITE, S1, S2, S3, S4, ST, STT, STD, MIN, MAX, AT_MIN, AT_MAX, SUMS] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13] as const;
+
+/**
+ * The hot loop, kept apart from the class so the engine optimises it as a plain function over arrays:
+ * power sums of x - shift, block-relative index sums, extremes. Min/max/at* come in and go out in `b`.
+ */
+function blockSums(x: Float64Array, count: number, shift: number, b: Float64Array): void {
+  let n = 0;
+  let bad = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let s4 = 0;
+  let st = 0;
+  let stt = 0;
+  let std = 0;
+  let min = b[MIN]!;
+  let max = b[MAX]!;
+  let atMin = b[AT_MIN]!;
+  let atMax = b[AT_MAX]!;
+  for (let i = 0; i < count; i++) {
+    const v = x[i]!;
+    if (v - v !== 0) {
+      bad++;
+      continue;
+    }
+    const d = v - shift;
+    const d2 = d * d;
+    const t = i + 0.0;
+    n++;
+    s1 += d;
+    s2 += d2;
+    s3 += d2 * d;
+    s4 += d2 * d2;
+    st += t;
+    stt += t * t;
+    std += t * d;
+    if (v < min) {
+      min = v;
+      atMin = 1;
+    } else if (v === min) atMin++;
+    if (v > max) {
+      max = v;
+      atMax = 1;
+    } else if (v === max) atMax++;
+  }
+  b[N] = n;
+  b[NONFINITE] = bad;
+  b[S1] = s1;
+  b[S2] = s2;
+  b[S3] = s3;
+  b[S4] = s4;
+  b[ST] = st;
+  b[STT] = stt;
+  b[STD] = std;
+  b[MIN] = min;
+  b[MAX] = max;
+  b[AT_MIN] = atMin;
+  b[AT_MAX] = atMax;
+}
+
 export class RunningMoments {
   private n = 0;
   private nonFinite = 0;
@@ -48,6 +109,8 @@ export class RunningMoments {
   /** Index of the next sample in the whole record. */
   private index = 0;
 
+  private readonly sums = new Float64Array(SUMS);
+
   push(x: Float64Array, count = x.length): void {
     if (Number.isNaN(this.shift)) {
       let s = 0;
@@ -61,58 +124,28 @@ export class RunningMoments {
       }
       if (m > 0) this.shift = s / m;
     }
-    const k = Number.isNaN(this.shift) ? 0 : this.shift;
-    let n = 0;
-    let s1 = 0;
-    let s2 = 0;
-    let s3 = 0;
-    let s4 = 0;
-    let st = 0;
-    let stt = 0;
-    let std = 0;
-    let min = this.min;
-    let max = this.max;
-    let atMin = this.atMin;
-    let atMax = this.atMax;
-    // Block-relative index, so its sums stay small; shifted to the record's index when added.
-    for (let i = 0; i < count; i++) {
-      const v = x[i]!;
-      if (v - v !== 0) {
-        this.nonFinite++;
-        continue;
-      }
-      const d = v - k;
-      const d2 = d * d;
-      n++;
-      s1 += d;
-      s2 += d2;
-      s3 += d2 * d;
-      s4 += d2 * d2;
-      st += i;
-      stt += i * i;
-      std += i * d;
-      if (v < min) {
-        min = v;
-        atMin = 1;
-      } else if (v === min) atMin++;
-      if (v > max) {
-        max = v;
-        atMax = 1;
-      } else if (v === max) atMax++;
-    }
-    const b = this.index;
+    const b = this.sums;
+    b[MIN] = this.min;
+    b[MAX] = this.max;
+    b[AT_MIN] = this.atMin;
+    b[AT_MAX] = this.atMax;
+    blockSums(x, count, Number.isNaN(this.shift) ? 0 : this.shift, b);
+    // Block-relative index sums, shifted to the record's index.
+    const n = b[N]!;
+    const base = this.index;
     this.n += n;
-    this.s1 += s1;
-    this.s2 += s2;
-    this.s3 += s3;
-    this.s4 += s4;
-    this.st += st + b * n;
-    this.stt += stt + 2 * b * st + b * b * n;
-    this.std += std + b * s1;
-    this.min = min;
-    this.max = max;
-    this.atMin = atMin;
-    this.atMax = atMax;
+    this.nonFinite += b[NONFINITE]!;
+    this.s1 += b[S1]!;
+    this.s2 += b[S2]!;
+    this.s3 += b[S3]!;
+    this.s4 += b[S4]!;
+    this.st += b[ST]! + base * n;
+    this.stt += b[STT]! + 2 * base * b[ST]! + base * base * n;
+    this.std += b[STD]! + base * b[S1]!;
+    this.min = b[MIN]!;
+    this.max = b[MAX]!;
+    this.atMin = b[AT_MIN]!;
+    this.atMax = b[AT_MAX]!;
     this.index += count;
   }
 

@@ -76,13 +76,13 @@ export class CsvBodyParser {
    * add one after a last line that has none, so no scan can run past the piece. `firstLine` is the
    * line number of the first line (0 when it is not known: errors then carry a relative line).
    */
-  parse(buf: Uint8Array, s: number, e: number, firstLine: number): CsvPiece {
+  parse(buf: Uint8Array, s: number, e: number, firstLine: number, alloc: (n: number) => Float64Array = (n) => new Float64Array(n)): CsvPiece {
     if (e > s && buf[e - 1] !== 10) throw new RangeError("a CSV piece must end with a newline");
-    const capacity = Math.max(16, Math.ceil((e - s) / (4 * this.ncol)));
-    let cap = capacity;
-    let channels = this.spec.selectColumns.map(() => new Float64Array(cap));
+    // Room for rows of 4 bytes a field or more; a piece of shorter rows grows its columns.
+    let cap = Math.max(16, Math.ceil((e - s) / (4 * this.ncol)));
+    let channels = this.spec.selectColumns.map(() => alloc(cap));
     const hasTime = this.spec.timeIndex >= 0;
-    let time = hasTime ? new Float64Array(cap) : undefined;
+    let time = hasTime ? alloc(cap) : undefined;
     let rowLines: Uint32Array | undefined;
     let rows = 0;
     let line = 0;

@@ -4,9 +4,19 @@ import { CsvBodyParser, type CsvBodySpec } from "./csvBody.js";
 
 /** A CSV body parser in a worker thread: pieces in (transferred), columns out (transferred). */
 const parser = new CsvBodyParser(workerData as CsvBodySpec);
-parentPort!.on("message", (m: { seq: number; buffer: ArrayBuffer; length: number }) => {
+/** Column buffers the reader sent back, filled again for later pieces (less garbage, flat memory). */
+const spare: ArrayBuffer[] = [];
+const alloc = (n: number): Float64Array => {
+  const i = spare.findIndex((b) => b.byteLength >= n * 8);
+  return i >= 0 ? new Float64Array(spare.splice(i, 1)[0]!, 0, n) : new Float64Array(n);
+};
+parentPort!.on("message", (m: { seq: number; buffer: ArrayBuffer; length: number } | { recycle: ArrayBuffer[] }) => {
+  if ("recycle" in m) {
+    spare.push(...m.recycle);
+    return;
+  }
   try {
-    const piece = parser.parse(new Uint8Array(m.buffer, 0, m.length), 0, m.length, 0);
+    const piece = parser.parse(new Uint8Array(m.buffer, 0, m.length), 0, m.length, 0, alloc);
     // The piece's own buffer goes back too, for the reader to fill again.
     const transfer: ArrayBuffer[] = [m.buffer, ...piece.channels.map((c) => c.buffer as ArrayBuffer)];
     if (piece.time) transfer.push(piece.time.buffer as ArrayBuffer);

@@ -331,8 +331,13 @@ async function readBody(
   let pos = 0;
   try {
     // Pieces in flight on the workers, by sequence number; results are taken strictly in order.
-    /** Piece buffers the workers handed back, to be filled again (less garbage). */
+    /** Piece buffers handed back (by the workers, or free again here), to be filled again: less garbage. */
     const spare: ArrayBuffer[] = [];
+    const spareColumns: ArrayBuffer[] = [];
+    const allocColumn = (n: number): Float64Array => {
+      const i = spareColumns.findIndex((b) => b.byteLength >= n * 8);
+      return i >= 0 ? new Float64Array(spareColumns.splice(i, 1)[0]!, 0, n) : new Float64Array(n);
+    };
     const waiting = new Map<number, { resolve: (p: CsvPiece) => void; reject: (e: unknown) => void; promise: Promise<CsvPiece> }>();
     let sent = 0;
     let taken = 0;
@@ -349,7 +354,11 @@ async function readBody(
     const takeNext = async () => {
       const slot = waiting.get(taken)!;
       try {
-        take(await slot.promise);
+        const piece = await slot.promise;
+        take(piece);
+        // The sink has consumed the columns: hand their memory back to the worker that made them.
+        const bufs = [...piece.channels, ...(piece.time ? [piece.time] : [])].map((c) => c.buffer as ArrayBuffer);
+        pool[taken % pool.length]!.postMessage({ recycle: bufs }, bufs);
       } catch (e) {
         if (e instanceof Error) throw e;
         // A worker's input error carries a line relative to its piece.
@@ -394,7 +403,14 @@ async function readBody(
       }
       if (cut > 0 && own[cut - 1] !== 10) own[cut++] = 10; // the file's last line had no newline
       if (cut > 0) {
-        if (parser) take(parser.parse(own, 0, cut, lineNo));
+        if (parser) {
+          // In this thread the sink consumes a piece at once, so its memory is free again right after.
+          const piece = parser.parse(own, 0, cut, lineNo, allocColumn);
+          take(piece);
+          spareColumns.push(...piece.channels.map((c) => c.buffer as ArrayBuffer));
+          if (piece.time) spareColumns.push(piece.time.buffer as ArrayBuffer);
+          spare.push(own.buffer);
+        }
         else {
           let resolve!: (p: CsvPiece) => void;
           let reject!: (e: unknown) => void;

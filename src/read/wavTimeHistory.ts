@@ -1,8 +1,8 @@
-import { createReadStream } from "node:fs";
 import { open, stat } from "node:fs/promises";
+import { endianness } from "node:os";
 import { createHash } from "node:crypto";
 import { InputError } from "../errors.js";
-import { BLOCK_FRAMES, type BlockSink, type ReadSummary, type TimeHistorySource } from "./timeHistory.js";
+import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
 /**
  * Streaming WAV reader. The RIFF chunk list is walked with positional reads (odd-sized chunks are
@@ -103,79 +103,89 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
   };
 }
 
+/** Frames per read: about 1 MB. */
+const PIECE_BYTES = 1 << 20;
+const LITTLE_ENDIAN = endianness() === "LE";
+
 async function readWavData(
   file: string, f: WavFormat, dataStart: number, frames: number, select: number[], sink: BlockSink, onProgress?: (b: number) => void,
 ): Promise<ReadSummary> {
   const hash = createHash("sha256");
-  const bytesPer = f.bits / 8;
+  const nch = f.channels;
   const frameBytes = f.blockAlign;
   const dataEnd = dataStart + frames * frameBytes;
-  const outs = select.map(() => new Float64Array(BLOCK_FRAMES));
+  const perPiece = Math.max(1, Math.floor(PIECE_BYTES / frameBytes));
+  // The piece buffer owns its ArrayBuffer from offset 0, so typed-array views on whole frames are aligned.
+  const buf = Buffer.alloc(perPiece * frameBytes);
+  const outs = select.map(() => new Float64Array(perPiece));
   const intScale = 1 / 2 ** (f.bits - 1);
-  // Bytes of a frame split across two reads wait here.
-  const pending = new Uint8Array(frameBytes);
-  let pendingLen = 0;
-  let inBlock = 0;
-  let emitted = 0;
-  let filePos = 0;
-  let done = 0;
-  const decodeFrame = (view: DataView, off: number) => {
-    for (let s = 0; s < select.length; s++) {
-      const o = off + select[s]! * bytesPer;
-      let v: number;
-      switch (f.bits) {
-        case 8: v = (view.getUint8(o) - 128) / 128; break;
-        case 16: v = view.getInt16(o, true) * intScale; break;
-        case 24: v = ((view.getUint8(o) | (view.getUint8(o + 1) << 8) | (view.getInt8(o + 2) << 16))) * intScale; break;
-        case 32: v = f.tag === 3 ? view.getFloat32(o, true) : view.getInt32(o, true) * intScale; break;
-        default: v = view.getFloat64(o, true);
-      }
-      outs[s]![inBlock] = v;
+  const fh = await open(file, "r");
+  let pos = 0;
+  const hashRange = async (from: number, to: number) => {
+    while (from < to) {
+      const n = Math.min(buf.length, to - from);
+      const { bytesRead } = await fh.read(buf, 0, n, from);
+      if (bytesRead === 0) break;
+      hash.update(buf.subarray(0, bytesRead));
+      from += bytesRead;
     }
-    inBlock++;
-    emitted++;
-    if (inBlock === BLOCK_FRAMES) {
-      sink(outs, inBlock);
-      inBlock = 0;
-    }
+    return from;
   };
-  const pendingView = new DataView(pending.buffer);
-  const stream = createReadStream(file, { highWaterMark: 65536 });
-  for await (const chunk of stream as AsyncIterable<Buffer>) {
-    hash.update(chunk);
-    done += chunk.length;
-    const cStart = filePos;
-    filePos += chunk.length;
-    const a = Math.max(dataStart, cStart);
-    const b = Math.min(dataEnd, filePos);
-    if (a < b) {
-      let off = a - cStart;
-      const end = b - cStart;
-      const view = new DataView(chunk.buffer, chunk.byteOffset, chunk.byteLength);
-      if (pendingLen > 0) {
-        const need = Math.min(frameBytes - pendingLen, end - off);
-        pending.set(chunk.subarray(off, off + need), pendingLen);
-        pendingLen += need;
-        off += need;
-        if (pendingLen === frameBytes) {
-          decodeFrame(pendingView, 0);
-          pendingLen = 0;
-        }
+  try {
+    pos = await hashRange(0, dataStart);
+    let done = 0;
+    while (done < frames) {
+      const n = Math.min(perPiece, frames - done);
+      const want = n * frameBytes;
+      const { bytesRead } = await fh.read(buf, 0, want, pos);
+      if (bytesRead !== want) {
+        throw new InputError("WAV_DATA_TRUNCATED", { file, chunk: "data", expected: `${frames} frames`, received: `${done + Math.floor(bytesRead / frameBytes)} (the file changed while it was read?)` });
       }
-      while (off + frameBytes <= end) {
-        decodeFrame(view, off);
-        off += frameBytes;
-      }
-      if (off < end) {
-        pending.set(chunk.subarray(off, end), 0);
-        pendingLen = end - off;
+      hash.update(buf.subarray(0, want));
+      pos += want;
+      decodeFrames(buf, n, f, nch, select, outs, intScale);
+      sink(outs, n);
+      done += n;
+      onProgress?.(pos);
+    }
+    pos = await hashRange(dataEnd, (await fh.stat()).size);
+  } finally {
+    await fh.close();
+  }
+  return { frames, sampleRateHz: f.sampleRate, sha256: hash.digest("hex"), bytes: pos };
+}
+
+/** Deinterleave n frames of `buf` into the selected channels' arrays, scaled to full scale +-1. */
+function decodeFrames(buf: Buffer, n: number, f: WavFormat, nch: number, select: number[], outs: Float64Array[], intScale: number): void {
+  const ab = buf.buffer;
+  const off = buf.byteOffset;
+  for (let s = 0; s < select.length; s++) {
+    const ch = select[s]!;
+    const o = outs[s]!;
+    if (LITTLE_ENDIAN && f.tag === 3 && f.bits === 32) {
+      const v = new Float32Array(ab, off, n * nch);
+      for (let i = 0; i < n; i++) o[i] = v[i * nch + ch]!;
+    } else if (LITTLE_ENDIAN && f.tag === 3 && f.bits === 64) {
+      const v = new Float64Array(ab, off, n * nch);
+      for (let i = 0; i < n; i++) o[i] = v[i * nch + ch]!;
+    } else if (LITTLE_ENDIAN && f.bits === 16) {
+      const v = new Int16Array(ab, off, n * nch);
+      for (let i = 0; i < n; i++) o[i] = v[i * nch + ch]! * intScale;
+    } else if (LITTLE_ENDIAN && f.bits === 32) {
+      const v = new Int32Array(ab, off, n * nch);
+      for (let i = 0; i < n; i++) o[i] = v[i * nch + ch]! * intScale;
+    } else if (f.bits === 24) {
+      for (let i = 0, p = ch * 3; i < n; i++, p += nch * 3) o[i] = (buf[p]! | (buf[p + 1]! << 8) | ((buf[p + 2]! << 24) >> 8)) * intScale;
+    } else if (f.bits === 8) {
+      for (let i = 0, p = ch; i < n; i++, p += nch) o[i] = (buf[p]! - 128) / 128;
+    } else {
+      // Big-endian hosts: DataView, little-endian reads.
+      const dv = new DataView(ab, off, n * f.blockAlign);
+      const b = f.bits / 8;
+      for (let i = 0; i < n; i++) {
+        const q = (i * nch + ch) * b;
+        o[i] = f.tag === 3 ? (b === 4 ? dv.getFloat32(q, true) : dv.getFloat64(q, true)) : b === 2 ? dv.getInt16(q, true) * intScale : dv.getInt32(q, true) * intScale;
       }
     }
-    onProgress?.(done);
   }
-  if (inBlock > 0) sink(outs, inBlock);
-  if (emitted !== frames) {
-    throw new InputError("WAV_DATA_TRUNCATED", { file, chunk: "data", expected: `${frames} frames`, received: `${emitted} (the file changed while it was read?)` });
-  }
-  return { frames, sampleRateHz: f.sampleRate, sha256: hash.digest("hex"), bytes: done };
 }

@@ -1,0 +1,27 @@
+import { writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { wavBytes } from "../wavBytes.js";
+
+/** The corpus cases that are binary or large: written into `dir` at test time. */
+export function generateCases(dir: string): void {
+  const pcm = (n: number) => Array.from({ length: n }, (_, i) => Math.round(8000 * Math.sin(i * 0.7)));
+  writeFileSync(join(dir, "utf16.csv"), Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from("time,ax\n0,1\n0.01,2\n", "utf16le")]));
+  writeFileSync(join(dir, "binary.csv"), Buffer.from([0x50, 0x4b, 3, 4, 0, 0, 8, 0, 255, 10, 0, 1]));
+  writeFileSync(join(dir, "long-line.csv"), "time,ax\n0,1\n0.01," + "7".repeat(3 << 20) + "\n");
+  writeFileSync(join(dir, "empty.wav"), Buffer.alloc(0));
+  writeFileSync(join(dir, "truncated-header.wav"), wavBytes({ bits: 16, channels: 1, samples: pcm(64) }).subarray(0, 30));
+  const full = wavBytes({ bits: 16, channels: 1, samples: pcm(64) });
+  writeFileSync(join(dir, "truncated-data.wav"), full.subarray(0, full.length - 40));
+  writeFileSync(join(dir, "alaw.wav"), wavBytes({ tag: 6, bits: 8, channels: 1, samples: pcm(64).map((v) => (v & 255)) }));
+  const b12 = wavBytes({ bits: 16, channels: 1, samples: pcm(64) });
+  b12.writeUInt16LE(12, 34);
+  writeFileSync(join(dir, "pcm12.wav"), b12);
+  writeFileSync(join(dir, "zero-channels.wav"), wavBytes({ bits: 16, channels: 0, samples: [], blockAlign: 0 }));
+  const big = wavBytes({ bits: 16, channels: 1, samples: pcm(64) });
+  big.writeUInt32LE(1 << 30, 40);
+  writeFileSync(join(dir, "data-too-large.wav"), big);
+  writeFileSync(join(dir, "not-riff.wav"), "time,ax\n0,1\n");
+  writeFileSync(join(dir, "data-before-fmt.wav"), Buffer.concat([Buffer.from("RIFF\x1c\x00\x00\x00WAVEdata\x02\x00\x00\x00\x01\x00", "latin1"), Buffer.from("fmt ", "latin1")]));
+  writeFileSync(join(dir, "extensible.wav"), wavBytes({ tag: 3, bits: 32, channels: 1, samples: pcm(64).map((v) => v / 32768), extensible: true }));
+  writeFileSync(join(dir, "odd-chunk.wav"), wavBytes({ bits: 16, channels: 1, samples: pcm(64), extraChunks: [["LIST", Buffer.from("odd")]] }));
+}
