@@ -100,17 +100,15 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
 
   let delimiter: Delimiter | undefined = opts.delimiter;
   if (delimiter === undefined) {
-    for (const d of ["\t", ";", ","] as const) {
-      const counts = lines.map((l) => splitRow(l.text, d).length);
-      if (counts[0]! >= 2 && counts.every((c) => c === counts[0])) {
-        delimiter = d;
-        break;
-      }
-    }
-    if (delimiter === undefined) {
-      const counts = lines.map((l) => splitRow(l.text, "whitespace").length);
-      delimiter = counts[0]! >= 2 && counts.every((c) => c === counts[0]) ? "whitespace" : ",";
-    }
+    // A candidate must split every sniffed row into the same number (>= 2) of fields, and the rows
+    // after the first must read as numbers (with either decimal mark): mixed space/tab alignment
+    // splits consistently on tabs but gives fields like "0.00   1.5", so it falls through to whitespace.
+    const numeric = (f: string) => /^\s*"?[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?"?\s*$/.test(f) || nonFiniteToken(f.replace(/"/g, "")) !== undefined;
+    const fits = (d: Delimiter) => {
+      const rows = lines.map((l) => splitRow(l.text, d));
+      return rows[0]!.length >= 2 && rows.every((r) => r.length === rows[0]!.length) && rows.slice(1).every((r) => r.every(numeric));
+    };
+    delimiter = (["\t", ";", ",", "whitespace"] as const).find(fits) ?? ",";
   }
 
   const rows = lines.map((l) => splitRow(l.text, delimiter!).map((f) => f.trim()));
