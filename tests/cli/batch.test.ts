@@ -1,0 +1,120 @@
+import { existsSync, mkdirSync, readdirSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { spawnSync } from "node:child_process";
+import { describe, expect, it } from "vitest";
+import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { createProgress, progressEnabled } from "../../src/cli/progress.js";
+import { cli, tempDir } from "../helpers.js";
+
+const built = existsSync("dist/cli/bin.js") && existsSync("dist/read/csvParseWorker.js");
+const dir = tempDir();
+const kb = "samples/profiles/kb210-controller.json";
+const runs = ["samples/kb210-run.wav", "samples/kb210-run-resonance.wav", "samples/kb210-run-short.wav"];
+
+describe("several recordings", () => {
+  it("check on several files: one JSON line each, in input order, exit code of the worst verdict", async () => {
+    const r = await cli("check", runs[2]!, runs[0]!, "--profile", kb, "--json");
+    const lines = r.stdout.trim().split("\n").map((l) => JSON.parse(l));
+    expect(lines.map((l) => [l.input.file, l.verdict])).toEqual([[runs[2], "inconclusive"], [runs[0], "pass"]]);
+    expect(r.code).toBe(3);
+    expect((await cli("check", ...runs, "--profile", kb, "--json")).code).toBe(1);
+  });
+  it("a summary table without --json; an unreadable file is reported in its row and makes the exit code 2", async () => {
+    const r = await cli("check", runs[0]!, join(dir, "missing.wav"), "--profile", kb);
+    expect(r.code).toBe(2);
+    expect(r.stdout).toMatch(/2 recordings\n\s+file\s+channel\s+RMS\s+vs required\s+DOF\s+verdict\s+worst excursion/);
+    expect(r.stdout).toMatch(/kb210-run\.wav\s+ch1\s+8\.479 g/);
+    expect(r.stderr).toContain("missing.wav: expected a readable file");
+  });
+  it("globs, '-' for a list on stdin and --files-from", async () => {
+    const g = await cli("psd", "samples/kb210-run*.wav", "--json");
+    expect(g.stdout.trim().split("\n").length).toBe(3);
+    let out = "";
+    const { runCli } = await import("../../src/cli/main.js");
+    const code = await runCli(["psd", "-", "--json"], { stdout: (s) => (out += s), stderr: () => undefined, readStdin: async () => `${runs[0]}\n# a comment\n${runs[2]}\n` });
+    expect(code).toBe(0);
+    expect(out.trim().split("\n").map((l) => JSON.parse(l).input.file)).toEqual([runs[0], runs[2]]);
+    const list = join(dir, "list.txt");
+    writeFileSync(list, runs.join("\n"));
+    expect((await cli("psd", "--files-from", list, "--json")).stdout.trim().split("\n").length).toBe(3);
+    expect((await cli("psd", "samples/nothing-*.wav")).stderr).toContain("[NO_FILES_MATCH]");
+  });
+  it("--report-dir writes one report per recording; --report with several files is refused", async () => {
+    const out = join(dir, "reports");
+    mkdirSync(out);
+    expect((await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", out)).code).toBe(3);
+    expect(readdirSync(out).sort()).toEqual(["kb210-run-short.html", "kb210-run.html"]);
+    const r = await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report", join(dir, "x.html"));
+    expect(r.code).toBe(2);
+    expect(r.stderr).toContain("--report-dir");
+  });
+  it.skipIf(!built)("the worker pool (--jobs 2, built CLI) gives the same JSON lines as --jobs 1", () => {
+    const a = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "1"], { encoding: "utf8" });
+    const b = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "2"], { encoding: "utf8" });
+    expect(b.status).toBe(1);
+    expect(b.stdout).toBe(a.stdout);
+  });
+});
+
+describe.skipIf(!built)("CSV parsed on a worker thread (files of 8 MB and more, built code)", () => {
+  const big = join(dir, "big.csv");
+  let s = "time,ax [g],ay [g]\n";
+  for (let i = 0; i < 330000; i++) s += `${(i / 2048).toFixed(7)},${Math.sin(i * 0.37).toFixed(6)},${(Math.cos(i * 0.11) * 2).toFixed(6)}\n`;
+  writeFileSync(big, s);
+  it("gives the same PSD and statistics as the single-thread parser", async () => {
+    const r = spawnSync("node", ["bin/psdgate.js", "psd", big, "--json", "-q"], { encoding: "utf8", maxBuffer: 1 << 26 });
+    expect(r.status, r.stderr).toBe(0);
+    const par = JSON.parse(r.stdout);
+    const one = await analyzeRecording(big, { csv: { parseWorkers: 0 } });
+    expect(par.input.sampleRateHz).toBe(2048);
+    expect(par.channels[1].psd).toEqual(Array.from(one.channels[1]!.psd.psd));
+    expect(par.channels[0].stats.max).toBe(one.channels[0]!.stats.max);
+    expect(par.input.sha256).toBe(one.input.sha256);
+  });
+  it("names the exact line of a bad cell deep in a later piece", async () => {
+    const lines = s.split("\n");
+    lines[300000] = lines[300000]!.replace(/,[^,]*$/, ",oops");
+    const bad = join(dir, "bad-big.csv");
+    writeFileSync(bad, lines.join("\n"));
+    const r = spawnSync("node", ["bin/psdgate.js", "psd", bad, "-q"], { encoding: "utf8" });
+    expect(r.status).toBe(2);
+    expect(r.stderr).toContain("bad-big.csv:300001:3 (ay)");
+    const e = await analyzeRecording(bad, { csv: { parseWorkers: 0 } }).catch((x: Error) => x.message);
+    expect(e).toContain("bad-big.csv:300001:3 (ay)");
+  });
+});
+
+describe("progress", () => {
+  it("is drawn only on a terminal, without --quiet, NO_COLOR or CI", () => {
+    expect(progressEnabled(true, false, {})).toBe(true);
+    expect(progressEnabled(false, false, {})).toBe(false);
+    expect(progressEnabled(true, true, {})).toBe(false);
+    expect(progressEnabled(true, false, { NO_COLOR: "1" })).toBe(false);
+    expect(progressEnabled(true, false, { CI: "true" })).toBe(false);
+  });
+  it("shows nothing for the first 2 s, then a bar with bytes, rate and ETA, at most ten times a second", () => {
+    let t = 0;
+    let out = "";
+    const p = createProgress(true, (s) => (out += s), () => t);
+    t = 1000;
+    p.update(10e6, 100e6);
+    expect(out).toBe("");
+    t = 2500;
+    p.update(50e6, 100e6);
+    expect(out).toMatch(/\[={10,} +\]\s+50 %\s+50\.0 MB of 100\.0 MB\s+20\.0 MB\/s\s+ETA 3 s/);
+    const n = out.length;
+    t = 2550;
+    p.update(51e6, 100e6);
+    expect(out.length).toBe(n);
+    p.line("[1/2] a.csv  pass");
+    expect(out.endsWith("\r\x1b[2K[1/2] a.csv  pass\n")).toBe(true);
+  });
+  it("writes nothing at all when disabled", () => {
+    let out = "";
+    const p = createProgress(false, (s) => (out += s), () => 1e9);
+    p.update(1, 2);
+    p.line("x");
+    p.end();
+    expect(out).toBe("");
+  });
+});
