@@ -128,6 +128,20 @@ describe("exit codes and messages", () => {
       expect(r.stdout).toBe("");
     });
   }
+  it("an unexpected internal error says so, asks for a report and exits 70, without a stack trace", async () => {
+    const { runCli } = await import("../../src/cli/main.js");
+    let err = "";
+    const code = await runCli(["profile", "samples/profiles/kb210-controller.json"], {
+      stdout: () => {
+        throw new TypeError("simulated failure");
+      },
+      stderr: (s) => (err += s),
+    });
+    expect(code).toBe(70);
+    expect(err).toContain("internal error: simulated failure");
+    expect(err).toContain("please report it");
+    expect(err).not.toMatch(/\n\s+at /);
+  });
   it("--help and --version exit 0", async () => {
     expect((await cli("--help")).code).toBe(0);
     expect((await cli("psd", "--help")).stdout).toContain("--segment <n>");
