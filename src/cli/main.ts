@@ -283,4 +283,4 @@ export async function runCli(argv: string[], io: CliIo = processIo): Promise<num
   }
 }
 
-export { Exit };
+

@@ -39,6 +39,26 @@ export interface CsvPiece {
 
 export const MAX_LINE_BYTES = 1 << 20;
 
+/**
+ * A pool of column buffers: `alloc(n)` hands out a Float64Array of n values, reusing a buffer given
+ * back through `give` when one is large enough (the parser's columns come and go once per piece).
+ */
+export function columnPool(): { alloc: (n: number) => Float64Array; give: (buffers: ArrayBuffer[]) => void } {
+  const spare: ArrayBuffer[] = [];
+  return {
+    alloc: (n) => {
+      const i = spare.findIndex((b) => b.byteLength >= n * 8);
+      return i >= 0 ? new Float64Array(spare.splice(i, 1)[0]!, 0, n) : new Float64Array(n);
+    },
+    give: (buffers) => void spare.push(...buffers),
+  };
+}
+
+/** The buffers behind a piece's columns, to give back to a pool. */
+export function pieceBuffers(piece: CsvPiece): ArrayBuffer[] {
+  return [...piece.channels, ...(piece.time ? [piece.time] : [])].map((c) => c.buffer as ArrayBuffer);
+}
+
 export function splitRow(text: string, delimiter: Delimiter): string[] {
   if (delimiter === "whitespace") return text.trim().split(/\s+/);
   if (!text.includes('"')) return text.split(delimiter);

@@ -1,25 +1,20 @@
 import { parentPort, workerData } from "node:worker_threads";
 import { InputError } from "../errors.js";
-import { CsvBodyParser, type CsvBodySpec } from "./csvBody.js";
+import { columnPool, CsvBodyParser, pieceBuffers, type CsvBodySpec } from "./csvBody.js";
 
 /** A CSV body parser in a worker thread: pieces in (transferred), columns out (transferred). */
 const parser = new CsvBodyParser(workerData as CsvBodySpec);
 /** Column buffers the reader sent back, filled again for later pieces (less garbage, flat memory). */
-const spare: ArrayBuffer[] = [];
-const alloc = (n: number): Float64Array => {
-  const i = spare.findIndex((b) => b.byteLength >= n * 8);
-  return i >= 0 ? new Float64Array(spare.splice(i, 1)[0]!, 0, n) : new Float64Array(n);
-};
+const columns = columnPool();
 parentPort!.on("message", (m: { seq: number; buffer: ArrayBuffer; length: number } | { recycle: ArrayBuffer[] }) => {
   if ("recycle" in m) {
-    spare.push(...m.recycle);
+    columns.give(m.recycle);
     return;
   }
   try {
-    const piece = parser.parse(new Uint8Array(m.buffer, 0, m.length), 0, m.length, 0, alloc);
+    const piece = parser.parse(new Uint8Array(m.buffer, 0, m.length), 0, m.length, 0, columns.alloc);
     // The piece's own buffer goes back too, for the reader to fill again.
-    const transfer: ArrayBuffer[] = [m.buffer, ...piece.channels.map((c) => c.buffer as ArrayBuffer)];
-    if (piece.time) transfer.push(piece.time.buffer as ArrayBuffer);
+    const transfer: ArrayBuffer[] = [m.buffer, ...pieceBuffers(piece)];
     if (piece.rowLines) transfer.push(piece.rowLines.buffer as ArrayBuffer);
     parentPort!.postMessage({ seq: m.seq, piece, buffer: m.buffer }, transfer);
   } catch (e) {

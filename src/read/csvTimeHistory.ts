@@ -6,7 +6,7 @@ import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import { InputError, quoted } from "../errors.js";
 import { parseAccelUnit } from "../units.js";
-import { CsvBodyParser, MAX_LINE_BYTES, splitRow, type CsvBodySpec, type CsvPiece, type Delimiter } from "./csvBody.js";
+import { columnPool, CsvBodyParser, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvBodySpec, type CsvPiece, type Delimiter } from "./csvBody.js";
 import { nonFiniteToken, parseNumberText } from "./csvNumber.js";
 import type { BlockSink, ChannelInfo, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
@@ -331,11 +331,7 @@ async function readBody(
     // Pieces in flight on the workers, by sequence number; results are taken strictly in order.
     /** Piece buffers handed back (by the workers, or free again here), to be filled again: less garbage. */
     const spare: ArrayBuffer[] = [];
-    const spareColumns: ArrayBuffer[] = [];
-    const allocColumn = (n: number): Float64Array => {
-      const i = spareColumns.findIndex((b) => b.byteLength >= n * 8);
-      return i >= 0 ? new Float64Array(spareColumns.splice(i, 1)[0]!, 0, n) : new Float64Array(n);
-    };
+    const columnsHere = columnPool();
     const waiting = new Map<number, { resolve: (p: CsvPiece) => void; reject: (e: unknown) => void; promise: Promise<CsvPiece> }>();
     let sent = 0;
     let taken = 0;
@@ -355,7 +351,7 @@ async function readBody(
         const piece = await slot.promise;
         take(piece);
         // The sink has consumed the columns: hand their memory back to the worker that made them.
-        const bufs = [...piece.channels, ...(piece.time ? [piece.time] : [])].map((c) => c.buffer as ArrayBuffer);
+        const bufs = pieceBuffers(piece);
         pool[taken % pool.length]!.postMessage({ recycle: bufs }, bufs);
       } catch (e) {
         if (e instanceof Error) throw e;
@@ -403,10 +399,9 @@ async function readBody(
       if (cut > 0) {
         if (parser) {
           // In this thread the sink consumes a piece at once, so its memory is free again right after.
-          const piece = parser.parse(own, 0, cut, lineNo, allocColumn);
+          const piece = parser.parse(own, 0, cut, lineNo, columnsHere.alloc);
           take(piece);
-          spareColumns.push(...piece.channels.map((c) => c.buffer as ArrayBuffer));
-          if (piece.time) spareColumns.push(piece.time.buffer as ArrayBuffer);
+          columnsHere.give(pieceBuffers(piece));
           spare.push(own.buffer);
         }
         else {

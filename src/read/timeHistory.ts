@@ -31,7 +31,7 @@ export interface ReadSummary {
 
 /**
  * Receives blocks of samples: one Float64Array per selected channel, `frames` valid values each.
- * The arrays are reused for the next block: copy what must outlive the call.
+ * The arrays are reused for the next block (its length varies): copy what must outlive the call.
  */
 export type BlockSink = (channels: Float64Array[], frames: number) => void;
 
@@ -41,4 +41,3 @@ export interface TimeHistorySource {
   read(select: number[], sink: BlockSink, onProgress?: (bytesDone: number) => void): Promise<ReadSummary>;
 }
 
-export const BLOCK_FRAMES = 8192;

@@ -1,8 +1,7 @@
-import { randomBytes } from "node:crypto";
 import { existsSync } from "node:fs";
 import { open, rename, rm, type FileHandle } from "node:fs/promises";
-import { basename, dirname, join } from "node:path";
 import { InputError } from "../errors.js";
+import { temporaryPathFor } from "./writeAtomic.js";
 import type { AccelUnit } from "../units.js";
 
 /**
@@ -29,7 +28,7 @@ export async function createTimeHistoryWriter(target: string, o: WriterOptions):
     throw new InputError("OUTPUT_FORMAT", { option: o.option, expected: "a file name ending in .wav or .csv", received: target });
   }
   if (existsSync(target) && !o.force) throw new InputError("OUTPUT_EXISTS", { option: o.option, expected: "a new file", received: `${target} (exists)`, hint: "add --force to replace it" });
-  const tmp = join(dirname(target), `.${basename(target)}.${randomBytes(4).toString("hex")}.tmp`);
+  const tmp = temporaryPathFor(target);
   let fh: FileHandle;
   try {
     fh = await open(tmp, "wx");

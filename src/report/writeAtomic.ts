@@ -12,6 +12,11 @@ function canonical(p: string): string {
   }
 }
 
+/** A temporary file beside `target` (same folder, so the final rename is atomic). */
+export function temporaryPathFor(target: string): string {
+  return join(dirname(target), `.${basename(target)}.${randomBytes(4).toString("hex")}.tmp`);
+}
+
 /**
  * Write `content` to `target` atomically: a temporary file in the same folder, then rename, so a crash
  * never leaves a half-written output. Refuses to write onto any input, and onto an existing file
@@ -25,7 +30,7 @@ export async function writeAtomic(target: string, content: string, opts: { input
   if (existsSync(target) && !opts.force) {
     throw new InputError("OUTPUT_EXISTS", { option: opts.option, expected: "a new file", received: `${target} (exists)`, hint: "add --force to replace it" });
   }
-  const tmp = join(dirname(target), `.${basename(target)}.${randomBytes(4).toString("hex")}.tmp`);
+  const tmp = temporaryPathFor(target);
   try {
     await writeFile(tmp, content, { flag: "wx" });
     await rename(tmp, target);
