@@ -14,7 +14,7 @@ import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
 import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 
 // Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
@@ -156,7 +156,7 @@ export function buildProgram(io: CliIo): Command {
     io.stdout(inspectText(await analyzeRecording(file, analysisOptions(o)), VERSION));
   });
 
-  addBatchOptions(addSpectrumOptions(addReadingOptions(program.command("psd").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("one-sided PSD by Welch's method, chi-square bounds and the Parseval check"))))
+  addBatchOptions(addBandOptions(addSpectrumOptions(addReadingOptions(program.command("psd").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("one-sided PSD by Welch's method, chi-square bounds and the Parseval check")))))
     .option("--csv <out>", "also write frequency, PSD and bounds of each channel to this CSV file (one recording)")
     .action(async (args: string[], o: ParsedCommon & BatchFlags & { csv?: string }) => {
       const files = await expandFiles(args, o.filesFrom, readStdin);

@@ -54,7 +54,12 @@ export function addSpectrumOptions(cmd: Command): Command {
     .option("-r, --resolution <hz>", "line spacing wanted; picks the smallest power-of-two segment that gives it", numberOption("--resolution", (x) => x > 0, "a line spacing in Hz above 0"))
     .option("--overlap <f>", "overlap of segments as a fraction, 0 <= f < 1 (default 0.5)", numberOption("--overlap", () => true, "a fraction 0 <= F < 1"))
     .option("--detrend <how>", "per segment: none, mean or linear (default mean)", choice<Detrend>("--detrend", ["none", "mean", "linear"]))
-    .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", () => true, "a level between 0 and 1"))
+    .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", () => true, "a level between 0 and 1"));
+}
+
+/** The band for a band RMS (psd only: check always uses the profile's range). */
+export function addBandOptions(cmd: Command): Command {
+  return cmd
     .option("--fmin <hz>", "lower edge of the band for the band RMS", numberOption("--fmin", (x) => x >= 0, "a frequency in Hz >= 0"))
     .option("--fmax <hz>", "upper edge of the band for the band RMS", numberOption("--fmax", (x) => x > 0, "a frequency in Hz above 0"));
 }

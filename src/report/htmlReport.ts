@@ -31,6 +31,8 @@ th, td { text-align: left; padding: 1.2mm 2mm; border-bottom: 1px solid #d5dde0;
 th { color: #4b5c63; font-weight: 600; width: 34%; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
 .meta th { width: 24%; }
+table.excursions th { width: auto; }
+table.excursions td:last-child { width: 45%; }
 .hash { font-family: "DejaVu Sans Mono", Menlo, monospace; font-size: 8.2pt; word-break: break-all; }
 .verdict { display: flex; align-items: center; gap: 5mm; margin: 5mm 0; padding: 3.5mm 5mm; border: 2.5px solid; border-radius: 1mm; }
 .verdict .word { font-size: 22pt; font-weight: 800; letter-spacing: .12em; }
