@@ -77,16 +77,19 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
       pool.map(
         (w) =>
           new Promise<void>((resolve, reject) => {
+            let inHand = 0;
             const send = () => {
               if (next >= files.length || internal) {
-                resolve();
+                if (inHand === 0) resolve();
                 return;
               }
+              inHand++;
               const id = next++;
               w.postMessage({ id, file: files[id]!, options, profile } satisfies BatchJob);
             };
             w.on("message", (m: BatchReply | { id: number; progress: number }) => {
               if ("progress" in m) return report(m.id, m.progress);
+              inHand--;
               if ("result" in m) deliver(m.id, { file: files[m.id]!, ok: true, result: m.result as T });
               else if ("inputError" in m) deliver(m.id, { file: files[m.id]!, ok: false, error: new InputError(m.inputError.code, m.inputError.details) });
               else {
@@ -97,6 +100,8 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
               send();
             });
             w.on("error", reject);
+            // Two jobs in hand, so a worker never waits for this thread between recordings.
+            send();
             send();
           }),
       ),

@@ -1,19 +1,24 @@
 import { parentPort } from "node:worker_threads";
 import { analyzeRecording } from "../analyzeRecording.js";
-import { checkRecording } from "../checkRecording.js";
 import { InputError } from "../errors.js";
 import type { BatchJob, BatchReply } from "./batch.js";
 
-/** One worker of the batch pool: analyses or checks one recording per message. */
-parentPort!.on("message", async (job: BatchJob) => {
+/** One worker of the batch pool: analyses or checks one recording per message, one after another. */
+let queue: Promise<void> = Promise.resolve();
+parentPort!.on("message", (job: BatchJob) => {
+  queue = queue.then(() => run(job));
+});
+
+async function run(job: BatchJob): Promise<void> {
   let reply: BatchReply;
   try {
     const onProgress = (done: number, total: number) => parentPort!.postMessage({ id: job.id, progress: done, total });
     const options = { ...job.options, onProgress };
-    const result = job.profile ? await checkRecording(job.file, job.profile, options) : await analyzeRecording(job.file, options);
+    // The check modules (zod, yaml) load only when a job needs them: worker start-up is part of every batch.
+    const result = job.profile ? await (await import("../checkRecording.js")).checkRecording(job.file, job.profile, options) : await analyzeRecording(job.file, options);
     reply = { id: job.id, result };
   } catch (e) {
     reply = e instanceof InputError ? { id: job.id, inputError: { code: e.code, details: e.details } } : { id: job.id, internal: (e as Error)?.stack ?? String(e) };
   }
   parentPort!.postMessage(reply);
-});
+}
