@@ -163,7 +163,11 @@ export function buildProgram(io: CliIo): Command {
       if (files.length > 1) {
         if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
         throw new Exit(await many<RecordingAnalysis>(
-          files, o, undefined, (r) => (tooShort(r) ? EXIT.input : EXIT.ok),
+          files, o, undefined, (r) => {
+            const short = tooShort(r);
+            if (short) io.stderr(`psdgate: ${short.message}\n`);
+            return short ? EXIT.input : EXIT.ok;
+          },
           (r) => r.channels.map((c) => [r.input.file, c.name, `${sig(c.parseval.rmsTime, 4)} ${accelLabel(c.units)}`, `${sig(c.parseval.rmsPsd, 4)} ${accelLabel(c.units)}`, fixed(c.parseval.ratio, 4), fixed(c.psd.dof, 1), tooShort(r) ? "too short" : c.doubts.length ? "DOUBT" : "ok"]),
           ["file", "channel", "RMS time", "RMS PSD", "ratio", "DOF", "status"], (r) => psdJson(r, VERSION),
         ));

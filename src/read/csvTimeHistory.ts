@@ -230,8 +230,8 @@ export async function openCsvTimeHistory(file: string, opts: CsvReadOptions = {}
 const PIECE_BYTES = 1 << 20;
 /**
  * Files at least this large are parsed on a worker thread while this thread hashes, checks time
- * stamps and runs the accumulators. One parser worker measured fastest on 2 cores (2.2 s against
- * 2.5 s with two and 3.4 s with none, 10 M rows x 4 columns, bench/README.md).
+ * stamps and runs the accumulators. One parser worker measured fastest on 2 cores (10 M rows x 4
+ * columns: about 1.9 s, against 2.5 s with two and 3.2 s with none; see bench/README.md).
  */
 const PARALLEL_BYTES = 8 << 20;
 const WORKER = new URL("./csvParseWorker.js", import.meta.url);
@@ -328,10 +328,10 @@ async function readBody(
   const parser = workers === 0 ? new CsvBodyParser(spec) : undefined;
   let pos = 0;
   try {
-    // Pieces in flight on the workers, by sequence number; results are taken strictly in order.
     /** Piece buffers handed back (by the workers, or free again here), to be filled again: less garbage. */
     const spare: ArrayBuffer[] = [];
     const columnsHere = columnPool();
+    // Pieces in flight on the workers, by sequence number; results are taken strictly in order.
     const waiting = new Map<number, { resolve: (p: CsvPiece) => void; reject: (e: unknown) => void; promise: Promise<CsvPiece> }>();
     let sent = 0;
     let taken = 0;
@@ -403,8 +403,7 @@ async function readBody(
           take(piece);
           columnsHere.give(pieceBuffers(piece));
           spare.push(own.buffer);
-        }
-        else {
+        } else {
           let resolve!: (p: CsvPiece) => void;
           let reject!: (e: unknown) => void;
           const promise = new Promise<CsvPiece>((a, b) => ((resolve = a), (reject = b)));
