@@ -29,6 +29,8 @@ export interface AnalysisOptions extends WelchOptions {
   scale?: number | undefined;
   fminHz?: number | undefined;
   fmaxHz?: number | undefined;
+  /** Estimate the PSD (default true; `inspect` needs only the statistics). */
+  spectrum?: boolean | undefined;
   /** Also build the amplitude histogram of each channel (one more pass over each block). */
   histogram?: boolean | undefined;
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
@@ -97,7 +99,8 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const settings = normalizeWelchOptions(options, info.sampleRateHz);
   const window = spectralWindow(settings.window, settings.segmentLength);
   const fft = new RealFft(settings.segmentLength);
-  const welch = select.map(() => new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, fft));
+  const spectrum = options.spectrum !== false;
+  const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, fft) : undefined));
   const moments = select.map(() => new RunningMoments());
   const histograms = options.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
   const summary = await source.read(
@@ -108,7 +111,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
         scaleSamples(x, frames, conditioning[c]!.factor);
         moments[c]!.push(x, frames);
         histograms?.[c]!.push(x, frames);
-        welch[c]!.push(x, frames);
+        welch[c]?.push(x, frames);
       }
     },
     options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
@@ -118,13 +121,14 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const resolved = { ...settings, resolutionHz: fs / settings.segmentLength };
   const channels = select.map((idx, c): ChannelAnalysis => {
     const stats = moments[c]!.result();
-    const psd = completePsd(welch[c]!.finish(fs), window, resolved, fs);
+    const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN };
+    const psd = completePsd(sums, window, resolved, fs);
     const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
     const parseval = parsevalCheck(rmsTime, psd.rmsPsd, settings.window, psd.averages);
     const lo = options.fminHz ?? 0;
     const hi = options.fmaxHz ?? fs / 2;
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
-    const { warnings, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength);
+    const { warnings, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength, spectrum);
     return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings, doubts };
   });
   return {
@@ -137,20 +141,30 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   };
 }
 
-/** Clipping at repeated extremes: three or more samples at the exact record maximum or minimum (common practice, a heuristic). */
-export const CLIP_HINT_COUNT = 3;
+/**
+ * Clipping hint: more samples at the exact record maximum or minimum than chance explains, at least 3
+ * and at least 2e-5 of the record (common practice, a heuristic). A Gaussian record quantised at
+ * 0.5 sigma per code hits its top code about 7 times per million samples by chance; one clipped at
+ * 4 sigma puts about 63 per million on the rail (Gaussian tail 6.3e-5, REFERENCES.md sec. 10).
+ */
+export function clippingHintCount(samples: number): number {
+  return Math.max(3, Math.ceil(2e-5 * samples));
+}
 
-function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number) {
+function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean) {
   const warnings: string[] = [];
   const doubts: string[] = [];
   if (ch.declaredUnitText !== undefined) warnings.push(`header unit ${quoted(ch.declaredUnitText)} is not an acceleration unit; values were taken as given (use --scale for a sensitivity)`);
   if (s.nonFinite > 0) {
     doubts.push(`${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD`);
   }
-  if (s.atMax >= CLIP_HINT_COUNT || s.atMin >= CLIP_HINT_COUNT) {
+  const clip = clippingHintCount(s.count);
+  if (s.atMax >= clip || s.atMin >= clip) {
     doubts.push(`possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}`);
   }
-  if (p.averages === 0) doubts.push(`record of ${frames} samples is shorter than one segment of ${segment}`);
+  if (!spectrum) {
+    // Statistics only: no segment or Parseval findings.
+  } else if (p.averages === 0) doubts.push(`record of ${frames} samples is shorter than one segment of ${segment}`);
   else if (p.averages < 8) warnings.push(`only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)`);
   if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) warnings.push(`DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)`);
   if (p.averages > 0 && !pv.ok) {

@@ -1,5 +1,5 @@
 // The public library API of psdgate, one name per line.
-export { analyzeRecording, analyzeSource, selectChannels, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
+export { analyzeRecording, analyzeSource, selectChannels, clippingHintCount, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
 export { checkRecording, loadProfile } from "./checkRecording.js";
 export { InputError, formatInputError, EXIT, type ErrorPlace, type InputErrorDetails } from "./errors.js";
 export { STANDARD_GRAVITY_M_PER_S2, accelFactor, type AccelUnit } from "./units.js";

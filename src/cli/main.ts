@@ -153,7 +153,7 @@ export function buildProgram(io: CliIo): Command {
     program.command("inspect").argument("<file>", "recording: CSV or WAV").description("what is in a recording: channels, rate, length, statistics, warnings"),
   ).action(async (file: string, o: ParsedCommon) => {
     const { analyzeRecording } = await analysis();
-    io.stdout(inspectText(await analyzeRecording(file, analysisOptions(o)), VERSION));
+    io.stdout(inspectText(await analyzeRecording(file, { ...analysisOptions(o), spectrum: false }), VERSION));
   });
 
   addBatchOptions(addBandOptions(addSpectrumOptions(addReadingOptions(program.command("psd").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("one-sided PSD by Welch's method, chi-square bounds and the Parseval check")))))
