@@ -162,10 +162,9 @@ function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: Pars
   if (s.atMax >= clip || s.atMin >= clip) {
     doubts.push(`possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}`);
   }
-  if (!spectrum) {
-    // Statistics only: no segment or Parseval findings.
-  } else if (p.averages === 0) doubts.push(`record of ${frames} samples is shorter than one segment of ${segment}`);
-  else if (p.averages < 8) warnings.push(`only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)`);
+  // Without a spectrum (inspect) there are no segment or Parseval findings.
+  if (spectrum && p.averages === 0) doubts.push(`record of ${frames} samples is shorter than one segment of ${segment}`);
+  else if (spectrum && p.averages < 8) warnings.push(`only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)`);
   if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) warnings.push(`DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)`);
   if (p.averages > 0 && !pv.ok) {
     doubts.push(`Parseval mismatch: RMS from the PSD is ${(100 * (pv.ratio - 1)).toFixed(2)} % off the time-domain RMS (allowed ±${(100 * pv.tolerance).toFixed(0)} %)`);

@@ -1,12 +1,13 @@
-import { stat } from "node:fs/promises";
+import { mkdir, stat } from "node:fs/promises";
 import { availableParallelism } from "node:os";
 import { basename, join } from "node:path";
 import { Command, CommanderError } from "commander";
 import type { RecordingAnalysis } from "../analyzeRecording.js";
+import { worstFirst } from "../compare/complianceCheck.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { EXIT, InputError } from "../errors.js";
 import type { CheckResult } from "../report/checkReport.js";
-import { fixed, sig, table } from "../report/format.js";
+import { fixed, sig, signedDb, table } from "../report/format.js";
 import { psdCsv, psdJson, toolInfo } from "../report/psdJson.js";
 import { inspectText, psdText } from "../report/psdText.js";
 import { writeAtomic } from "../report/writeAtomic.js";
@@ -202,30 +203,39 @@ export function buildProgram(io: CliIo): Command {
       const { checkJson, checkText } = await checkReport();
       const profile = await loadProfile(o.profile);
       const files = await expandFiles(args, o.filesFrom, readStdin);
+      if (o.reportDir !== undefined) {
+        await mkdir(o.reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
+          throw new InputError("OUTPUT_UNWRITABLE", { option: "--report-dir", expected: "a folder that exists or can be made", received: `${o.reportDir} (${e.code})` });
+        });
+      }
       const now = new Date();
+      const wantsReport = o.report !== undefined || o.reportDir !== undefined;
       const reportPath = (r: CheckResult) => (o.report !== undefined ? o.report : join(o.reportDir!, `${basename(r.analysis.input.file).replace(/\.[^.]*$/, "")}.html`));
       const writeReport = (r: CheckResult) =>
         writeAtomic(reportPath(r), checkHtml(r, VERSION, now), { inputs: [...files, o.profile], force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
       if (files.length > 1) {
         if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
+        // Report writes run beside the batch; the first failure is kept and raised at the end.
         const reports: Promise<void>[] = [];
+        let reportError: unknown;
         const code = await many<CheckResult>(
-          files, o, profile, verdictCode,
+          files, { ...o, histogram: wantsReport }, profile, verdictCode,
           (r) => {
-            if (o.reportDir !== undefined) reports.push(writeReport(r));
+            if (o.reportDir !== undefined) reports.push(writeReport(r).catch((e: unknown) => void (reportError ??= e)));
             return r.channels.map((c, i) => {
               const ch = r.analysis.channels[i]!;
-              const w = [...c.excursions].sort((x, y) => Math.abs(y.worstDb - y.limitDb) - Math.abs(x.worstDb - x.limitDb))[0];
-              return [r.analysis.input.file, ch.name, `${sig(c.rms.measured, 4)} ${accelLabel(ch.units)}`, `${c.rms.deviationDb >= 0 ? "+" : ""}${fixed(c.rms.deviationDb, 2)} dB`, fixed(c.dof.achieved, 1), c.verdict,
-                w ? `${sig(w.worstHz, 5)} Hz ${w.worstDb >= 0 ? "+" : ""}${fixed(w.worstDb, 2)} dB ${w.clear ? "clear" : "marginal"}` : "none"];
+              const w = worstFirst(c.excursions)[0];
+              return [r.analysis.input.file, ch.name, `${sig(c.rms.measured, 4)} ${accelLabel(ch.units)}`, signedDb(c.rms.deviationDb), fixed(c.dof.achieved, 1), c.verdict,
+                w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.clear ? "clear" : "marginal"}` : "none"];
             });
           },
           ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION),
         );
         await Promise.all(reports);
+        if (reportError !== undefined) throw reportError;
         throw new Exit(code);
       }
-      const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), onProgress }));
+      const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, onProgress }));
       if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r);
       io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION)) + "\n" : checkText(r, VERSION));
       throw new Exit(verdictCode(r));
@@ -243,13 +253,12 @@ export function buildProgram(io: CliIo): Command {
     .option("--level-db <db>", "shift the whole profile by this many dB (a hot or cold run)", numberOption("--level-db", (x) => Math.abs(x) <= 60, "a level shift within ±60 dB"), 0)
     .option("--force", "replace an existing output file")
     .action(async (o: { profile: string; duration: number; rate: number; out: string; seed: number; channels: number; levelDb: number; force?: boolean }) => {
-      if (o.out === o.profile) throw new InputError("OUTPUT_IS_INPUT", { option: "--out", expected: "an output path different from the profile", received: o.out });
       const { loadProfile } = await checking();
       const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");
       const { synthesizeProfile } = await import("../synth/synthesizeProfile.js");
       const profile = await loadProfile(o.profile);
       const names = Array.from({ length: o.channels }, (_, i) => `ch${i + 1}`);
-      const writer = await createTimeHistoryWriter(o.out, { sampleRateHz: o.rate, channelNames: names, units: profile.units, force: o.force, option: "--out" });
+      const writer = await createTimeHistoryWriter(o.out, { sampleRateHz: o.rate, channelNames: names, units: profile.units, force: o.force, option: "--out", inputs: [o.profile] });
       let r;
       try {
         r = await synthesizeProfile(profile, { durationS: o.duration, sampleRateHz: o.rate, seed: o.seed, channels: o.channels, levelFactor: 10 ** (o.levelDb / 10) }, (b, n) => writer.write(b, n));

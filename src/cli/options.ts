@@ -81,6 +81,8 @@ export interface ParsedCommon {
   confidence?: number;
   fmin?: number;
   fmax?: number;
+  /** Set by the check command when a report will show the histogram. */
+  histogram?: boolean;
 }
 
 const DELIMS = { comma: ",", semicolon: ";", tab: "\t", whitespace: "whitespace", ",": ",", ";": ";" } as const;
@@ -106,5 +108,6 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     confidence: o.confidence,
     fminHz: o.fmin,
     fmaxHz: o.fmax,
+    histogram: o.histogram,
   };
 }

@@ -166,6 +166,11 @@ export function checkChannel(c: ChannelAnalysis, profile: TestProfile, confidenc
   };
 }
 
+/** Excursions ordered by how far their worst line lies beyond its limit, largest first (a copy). */
+export function worstFirst(excursions: Excursion[]): Excursion[] {
+  return [...excursions].sort((a, b) => Math.abs(b.worstDb - b.limitDb) - Math.abs(a.worstDb - a.limitDb));
+}
+
 /** Worst of the channel verdicts: fail over inconclusive over pass. */
 export function overallVerdict(vs: Verdict[]): Verdict {
   if (vs.includes("fail")) return "fail";

@@ -1,9 +1,9 @@
 import type { RecordingAnalysis } from "../analyzeRecording.js";
-import type { ChannelCompliance, Verdict } from "../compare/complianceCheck.js";
+import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
-import { fixed, sig } from "./format.js";
+import { fixed, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
@@ -17,10 +17,16 @@ export interface CheckResult {
 
 const WORD: Record<Verdict, string> = { pass: "PASS", fail: "FAIL", inconclusive: "INCONCLUSIVE" };
 
-export function excursionText(e: ChannelCompliance["excursions"][number]): string {
+/** Clear or marginal, and why (the confidence interval of the worst line against the limit). */
+export function excursionJudgement(e: Excursion): string {
+  return e.clear
+    ? `clear (whole confidence interval beyond the limit${e.clearAmongAllLines ? ", even allowing for the number of lines tested" : "; chance among many lines could still explain it"})`
+    : `marginal (interval straddles the limit${e.longerRecordFactor ? `; a record ${fixed(e.longerRecordFactor, 1)}x longer would tell` : ""})`;
+}
+
+export function excursionText(e: Excursion): string {
   const range = e.fromHz === e.toHz ? `${sig(e.fromHz, 5)} Hz` : `${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz`;
-  const how = e.clear ? `clear (whole confidence interval beyond the limit${e.clearAmongAllLines ? ", even allowing for the number of lines tested" : "; chance among many lines could still explain it"})` : `marginal (interval straddles the limit${e.longerRecordFactor ? `; a record ${fixed(e.longerRecordFactor, 1)}x longer would tell` : ""})`;
-  return `${range}: ${e.direction} by up to ${e.worstDb >= 0 ? "+" : ""}${fixed(e.worstDb, 2)} dB at ${sig(e.worstHz, 5)} Hz, limit ${e.limitDb >= 0 ? "+" : ""}${fixed(e.limitDb, 2)} dB, ${how}`;
+  return `${range}: ${e.direction} by up to ${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz, limit ${signedDb(e.limitDb)}, ${excursionJudgement(e)}`;
 }
 
 export function checkText(r: CheckResult, version: string): string {
@@ -42,10 +48,10 @@ export function checkText(r: CheckResult, version: string): string {
     out.push(`channel ${ch.position} "${ch.name}": ${WORD[c.verdict]}`);
     for (const reason of c.reasons) out.push(`  because    ${reason}`);
     const tol = c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
-    out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${c.rms.deviationDb >= 0 ? "+" : ""}${fixed(c.rms.deviationDb, 2)} dB${tol}`);
+    out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
     out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required` : ""} (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
     out.push(`  Parseval   time RMS ${sig(ch.parseval.rmsTime, 4)} ${u}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)} ${u}, ratio ${fixed(ch.parseval.ratio, 4)}`);
-    const shown = [...c.excursions].sort((x, y) => Math.abs(y.worstDb - y.limitDb) - Math.abs(x.worstDb - x.limitDb)).slice(0, 8);
+    const shown = worstFirst(c.excursions).slice(0, 8);
     if (shown.length === 0) out.push(`  excursions none: ${c.lines.length} lines checked`);
     else {
       out.push(`  excursions ${c.excursions.length} (worst first${c.excursions.length > shown.length ? `, ${shown.length} shown` : ""}):`);

@@ -11,6 +11,11 @@ export function fixed(x: number, decimals: number): string {
   return Number.isFinite(x) ? x.toFixed(decimals) : String(x);
 }
 
+/** "+1.23 dB" / "-0.40 dB": a level difference with its sign. */
+export function signedDb(x: number, decimals = 2): string {
+  return `${x >= 0 ? "+" : ""}${fixed(x, decimals)} dB`;
+}
+
 /** 10 log10(x), for factors shown in dB. */
 export function dB(x: number): number {
   return 10 * Math.log10(x);

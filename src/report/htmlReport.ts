@@ -1,11 +1,11 @@
 import type { ChannelAnalysis } from "../analyzeRecording.js";
-import type { ChannelCompliance, Verdict } from "../compare/complianceCheck.js";
+import { worstFirst, type ChannelCompliance, type Verdict } from "../compare/complianceCheck.js";
 import { profileLevel } from "../compare/testProfile.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { SHAKER_CAUTION, VERDICT_CAUTION } from "./cautions.js";
 import type { CheckResult } from "./checkReport.js";
-import { excursionText } from "./checkReport.js";
-import { fixed, sig } from "./format.js";
+import { excursionJudgement } from "./checkReport.js";
+import { fixed, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 
@@ -131,9 +131,8 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const tolRms = comp.rms.upperDb !== undefined ? `+${fixed(comp.rms.upperDb, 2)} / −${fixed(comp.rms.lowerDb!, 2)} dB` : "none stated";
   const exc = comp.excursions.length === 0
     ? `<p>No line lies outside its tolerance band (${comp.lines.length} lines checked).</p>`
-    : `<table class="excursions"><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr>${[...comp.excursions]
-      .sort((a, b) => Math.abs(b.worstDb - b.limitDb) - Math.abs(a.worstDb - a.limitDb)).slice(0, 20)
-      .map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${e.worstDb >= 0 ? "+" : ""}${fixed(e.worstDb, 2)} dB at ${sig(e.worstHz, 5)} Hz</td><td class="num">${e.limitDb >= 0 ? "+" : ""}${fixed(e.limitDb, 2)} dB</td><td>${esc(excursionText(e).replace(/^.*?dB, /, ""))}</td></tr>`).join("")}</table>${comp.excursions.length > 20 ? `<p class="muted">${comp.excursions.length - 20} more in the JSON output.</p>` : ""}`;
+    : `<table class="excursions"><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr>${worstFirst(comp.excursions).slice(0, 20)
+      .map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz</td><td class="num">${signedDb(e.limitDb)}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("")}</table>${comp.excursions.length > 20 ? `<p class="muted">${comp.excursions.length - 20} more in the JSON output.</p>` : ""}`;
   const s = c.stats;
   return `<section class="channel">
 <h2>Channel ${c.position} “${esc(c.name)}” <span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span></h2>
@@ -147,7 +146,7 @@ ${row("RMS from the PSD (whole band)", `${sig(c.parseval.rmsPsd, 4)} ${u}`, "num
 ${row("Parseval ratio (PSD / time)", `${fixed(c.parseval.ratio, 4)} (allowed ±${fixed(100 * c.parseval.tolerance, 0)} %)`, "num")}
 ${row("RMS in the profile's range, measured", `${sig(comp.rms.measured, 4)} ${u}`, "num")}
 ${row("RMS required", `${sig(comp.rms.required, 4)} ${u}`, "num")}
-${row("RMS deviation / tolerance", `${comp.rms.deviationDb >= 0 ? "+" : ""}${fixed(comp.rms.deviationDb, 2)} dB / ${tolRms}`, "num")}
+${row("RMS deviation / tolerance", `${signedDb(comp.rms.deviationDb)} / ${tolRms}`, "num")}
 ${row("Degrees of freedom", `${fixed(comp.dof.achieved, 1)} achieved${comp.dof.required !== undefined ? `, ${comp.dof.required} required` : ""} (${c.psd.averages} averages)`, "num")}
 ${row("Random error of one line", `±${fixed(100 * c.psd.randomError, 1)} % (1 σ)`, "num")}
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${sig(s.std, 4)} ${u}`, "num")}

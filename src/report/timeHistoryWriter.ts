@@ -1,7 +1,6 @@
-import { existsSync } from "node:fs";
 import { open, rename, rm, type FileHandle } from "node:fs/promises";
 import { InputError } from "../errors.js";
-import { temporaryPathFor } from "./writeAtomic.js";
+import { checkOutputPath, temporaryPathFor } from "./writeAtomic.js";
 import type { AccelUnit } from "../units.js";
 
 /**
@@ -20,6 +19,8 @@ export interface WriterOptions {
   units: AccelUnit;
   force?: boolean | undefined;
   option: string;
+  /** Files the output must never replace. */
+  inputs: string[];
 }
 
 export async function createTimeHistoryWriter(target: string, o: WriterOptions): Promise<TimeHistoryWriter> {
@@ -27,7 +28,7 @@ export async function createTimeHistoryWriter(target: string, o: WriterOptions):
   if (!wav && !/\.(csv|txt)$/i.test(target)) {
     throw new InputError("OUTPUT_FORMAT", { option: o.option, expected: "a file name ending in .wav or .csv", received: target });
   }
-  if (existsSync(target) && !o.force) throw new InputError("OUTPUT_EXISTS", { option: o.option, expected: "a new file", received: `${target} (exists)`, hint: "add --force to replace it" });
+  checkOutputPath(target, o.inputs, o.force, o.option);
   const tmp = temporaryPathFor(target);
   let fh: FileHandle;
   try {

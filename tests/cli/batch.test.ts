@@ -1,4 +1,4 @@
-import { existsSync, mkdirSync, readdirSync, writeFileSync } from "node:fs";
+import { existsSync, readdirSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { spawnSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
@@ -39,11 +39,14 @@ describe("several recordings", () => {
     expect((await cli("psd", "--files-from", list, "--json")).stdout.trim().split("\n").length).toBe(3);
     expect((await cli("psd", "samples/nothing-*.wav")).stderr).toContain("[NO_FILES_MATCH]");
   });
-  it("--report-dir writes one report per recording; --report with several files is refused", async () => {
-    const out = join(dir, "reports");
-    mkdirSync(out);
+  it("--report-dir makes its folder and writes one report per recording; --report with several files is refused", async () => {
+    const out = join(dir, "reports", "run-7");
     expect((await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", out)).code).toBe(3);
     expect(readdirSync(out).sort()).toEqual(["kb210-run-short.html", "kb210-run.html"]);
+    const again = await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", out);
+    expect(again.code).toBe(2);
+    expect(again.stderr).toContain("[OUTPUT_EXISTS]");
+    expect(again.stderr).not.toMatch(/\n\s+at /);
     const r = await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report", join(dir, "x.html"));
     expect(r.code).toBe(2);
     expect(r.stderr).toContain("--report-dir");

@@ -1,5 +1,5 @@
 import { existsSync, readFileSync, writeFileSync } from "node:fs";
-import { join } from "node:path";
+import { basename, join } from "node:path";
 import { spawnSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { cli, hasScipy, maxRelDiff, python, tempDir } from "../helpers.js";
@@ -91,6 +91,21 @@ describe("psdgate psd", () => {
     expect(self.code).toBe(2);
     expect(self.stderr).toContain("[OUTPUT_IS_INPUT]");
     expect(readFileSync("samples/kb210-run.wav").subarray(0, 4).toString()).toBe("RIFF");
+  });
+  it("synth never replaces its profile (a CSV profile is also a valid output), however the path is spelled, even with --force", async () => {
+    const prof = join(dir, "spec.csv");
+    writeFileSync(prof, "hz,level\n20,0.01\n80,0.04\n350,0.04\n2000,0.007\n");
+    const before = readFileSync(prof);
+    const r = await cli("synth", "-p", prof, "-d", "1", "--rate", "5120", "-o", join(dir, ".", "..", basename(dir), "spec.csv"), "--force");
+    expect(r.code).toBe(2);
+    expect(r.stderr).toContain("[OUTPUT_IS_INPUT]");
+    expect(readFileSync(prof).equals(before)).toBe(true);
+  });
+  it("an output onto an input is refused by real path, for every writer", async () => {
+    const prof = join(dir, "p2.json");
+    writeFileSync(prof, readFileSync("samples/profiles/kb210-controller.json"));
+    const { createTimeHistoryWriter } = await import("../../src/report/timeHistoryWriter.js");
+    await expect(createTimeHistoryWriter(`${dir}/./p2.wav`, { sampleRateHz: 10, channelNames: ["a"], units: "g", force: true, option: "--out", inputs: [`${dir}/p2.wav`] })).rejects.toThrow(/OUTPUT_IS_INPUT/);
   });
   it("inspect shows channels, rate, duration and statistics", async () => {
     const r = await cli("inspect", "samples/tern7-flight.csv");
