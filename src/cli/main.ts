@@ -3,7 +3,6 @@ import { availableParallelism } from "node:os";
 import { basename, join } from "node:path";
 import { Command, CommanderError } from "commander";
 import type { RecordingAnalysis } from "../analyzeRecording.js";
-import { worstFirst } from "../compare/complianceCheck.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { EXIT, InputError } from "../errors.js";
 import type { CheckResult } from "../report/checkReport.js";
@@ -24,6 +23,7 @@ const analysis = () => import("../analyzeRecording.js");
 const checking = () => import("../checkRecording.js");
 const html = () => import("../report/htmlReport.js");
 const checkReport = () => import("../report/checkReport.js");
+const compliance = () => import("../compare/complianceCheck.js");
 const profileReport = () => import("../report/profileText.js");
 const batch = () => import("./batch.js");
 
@@ -201,6 +201,7 @@ export function buildProgram(io: CliIo): Command {
       const { loadProfile, checkRecording } = await checking();
       const { checkHtml } = await html();
       const { checkJson, checkText } = await checkReport();
+      const { worstFirst } = await compliance();
       const profile = await loadProfile(o.profile);
       const files = await expandFiles(args, o.filesFrom, readStdin);
       if (o.reportDir !== undefined) {
