@@ -1,6 +1,6 @@
 import Papa from "papaparse";
 import { InputError, quoted } from "../errors.js";
-import { nonFiniteToken, parseNumberText, scanNumber, type ScanState } from "./csvNumber.js";
+import { nonFiniteToken, parseNumberText, POW10, scanNumber, type ScanState } from "./csvNumber.js";
 
 /**
  * The body of a delimited-text time history, parsed piece by piece. A piece is a run of whole lines;
@@ -79,6 +79,7 @@ export class CsvBodyParser {
   private readonly target: Int32Array;
   private readonly row: Float64Array;
   private readonly scan: ScanState = { end: 0, value: 0, fractionDigits: 0 };
+  private readonly plain: PlainRowsState = { end: 0, timeFrac: 0 };
 
   constructor(spec: CsvBodySpec) {
     this.spec = spec;
@@ -126,13 +127,41 @@ export class CsvBodyParser {
       }
       cap = n;
     };
+    // Where each file column's values go in the plain-row loop: its output column, or a scratch column.
+    let outs: Float64Array[] = [];
+    const route = () => {
+      let scratch: Float64Array | undefined;
+      outs = Array.from(this.target, (t) => (t >= 0 ? channels[t]! : t === -2 ? time! : (scratch ??= new Float64Array(cap))));
+    };
+    route();
+    const plain = this.plain;
     let p = s;
     while (p < e) {
+      if (this.delimByte >= 0) {
+        // Plain rows (numbers and delimiters only) in one tight loop; it stops at anything else.
+        const n = plainRows(buf, p, e, outs, rows, cap, this.ncol, this.delimByte, this.decimalByte, this.spec.timeIndex, plain);
+        if (n > 0) {
+          if (plain.timeFrac > timeFrac) timeFrac = plain.timeFrac;
+          if (rowLines) for (let i = 0; i < n; i++) rowLines[rows + i] = line + i;
+          rows += n;
+          line += n;
+          p = plain.end;
+          if (p >= e) break;
+        }
+        if (rows === cap) {
+          grow();
+          route();
+          continue;
+        }
+      }
       const frac = this.parseLine(buf, p, e, firstLine + line);
       const next = this.next;
       if (next - p > MAX_LINE_BYTES) this.fail("CSV_LINE_TOO_LONG", firstLine + line, undefined, `lines shorter than ${MAX_LINE_BYTES} bytes`, "a longer line");
       if (frac >= 0) {
-        if (rows === cap) grow();
+        if (rows === cap) {
+          grow();
+          route();
+        }
         const r = this.row;
         for (let c = 0; c < this.ncol; c++) {
           const t = this.target[c]!;
@@ -249,4 +278,79 @@ export class CsvBodyParser {
     }
     return frac;
   }
+}
+
+interface PlainRowsState {
+  /** Index of the first byte not parsed: the start of the line that stopped the loop. */
+  end: number;
+  /** Most fraction digits seen in the time column. */
+  timeFrac: number;
+}
+
+/**
+ * The common case in one loop: rows of exactly `ncol` plain numbers ([+-]digits[.digits], at most 15
+ * digits) separated by the delimiter byte and ended by LF or CRLF. Row r's values go to
+ * outs[column][row0 + r]. It stops before the first line that is anything else (spaces, exponents,
+ * quotes, comments, blank lines, a short row), when the columns are full (`cap`), or at `e`, and
+ * returns the rows parsed; the caller's general path takes the line it stopped at. The value is m / 10^k
+ * with m exact (at most 15 digits), one correctly rounded division: the same double as Number()
+ * (Clinger 1990, as in scanNumber).
+ */
+function plainRows(
+  buf: Uint8Array, p: number, e: number, outs: Float64Array[], row0: number, cap: number,
+  ncol: number, delim: number, decimal: number, timeIndex: number, state: PlainRowsState,
+): number {
+  let row = row0;
+  let timeFrac = 0;
+  const last = ncol - 1;
+  rows: while (p < e && row < cap) {
+    const lineStart = p;
+    for (let col = 0; col < ncol; col++) {
+      let c = buf[p]!;
+      const neg = c === 45; /* - */
+      if (neg || c === 43 /* + */) c = buf[++p]!;
+      const start = p;
+      let m = 0;
+      while (c >= 48 && c <= 57) {
+        m = m * 10 + (c - 48);
+        c = buf[++p]!;
+      }
+      let digits = p - start;
+      let frac = 0;
+      if (c === decimal) {
+        const f0 = ++p;
+        c = buf[p]!;
+        while (c >= 48 && c <= 57) {
+          m = m * 10 + (c - 48);
+          c = buf[++p]!;
+        }
+        frac = p - f0;
+        digits += frac;
+      }
+      if (digits === 0 || digits > 15) {
+        p = lineStart;
+        break rows;
+      }
+      if (col < last) {
+        if (c !== delim) {
+          p = lineStart;
+          break rows;
+        }
+      } else if (c !== 10) {
+        if (c !== 13 || buf[p + 1] !== 10) {
+          p = lineStart;
+          break rows;
+        }
+        p++;
+      }
+      p++;
+      const v = m / POW10[frac]!;
+      outs[col]![row] = neg ? -v : v;
+      if (col === timeIndex && frac > timeFrac) timeFrac = frac;
+    }
+    row++;
+  }
+  state.end = p;
+  state.timeFrac = timeFrac;
+  return row - row0;
 }

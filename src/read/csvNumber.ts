@@ -5,7 +5,8 @@
  * is one correctly rounded IEEE operation on exact operands (Clinger 1990, "How to read floating point
  * numbers accurately", PLDI); anything else goes to Number() on the text.
  */
-const POW10 = new Float64Array(23);
+/** Exact powers of ten 10^0 .. 10^22 (all exactly representable in a double). */
+export const POW10 = new Float64Array(23);
 for (let i = 0; i < 23; i++) POW10[i] = Number(`1e${i}`);
 
 export interface ScanState {
