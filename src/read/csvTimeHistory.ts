@@ -27,7 +27,7 @@ export interface CsvReadOptions {
   sampleRateHz?: number | undefined;
   delimiter?: "," | ";" | "\t" | "whitespace" | undefined;
   decimal?: "." | "," | undefined;
-  /** Worker threads for parsing the body (default: 1 for files of 8 MB and more when there is a second core, else 0). */
+  /** 1 to parse (and hash) the body on a worker thread, 0 for this thread (default: 1 for files of 8 MB and more when there is a second core). */
   parseWorkers?: number | undefined;
 }
 
@@ -243,7 +243,6 @@ async function readBody(
   const spec: CsvBodySpec = {
     file, columns: d.columns, columnNames: columns.map((c) => c.name), delimiter: d.delimiter, decimal: d.decimal, timeIndex, selectColumns: selectCols,
   };
-  const hash = createHash("sha256");
   let frames = 0;
   let lineNo = d.bodyLine;
 
@@ -340,28 +339,34 @@ async function readBody(
 
   const fh = await open(file, "r");
   const size = (await fh.stat()).size;
-  const workers = parseWorkers ?? (size >= PARALLEL_BYTES && existsSync(fileURLToPath(WORKER)) ? Math.min(1, availableParallelism() - 1) : 0);
-  const pool = Array.from({ length: workers }, () => new Worker(WORKER, { workerData: spec }));
-  const parser = workers === 0 ? new CsvBodyParser(spec) : undefined;
+  const useWorker = (parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 && existsSync(fileURLToPath(WORKER));
+  // With a worker, the worker hashes the bytes it is given, in file order, beside its parsing.
+  const worker = useWorker ? new Worker(WORKER, { workerData: spec }) : undefined;
+  const hash = worker ? undefined : createHash("sha256");
+  let sha256 = "";
+  const parser = worker ? undefined : new CsvBodyParser(spec);
   let pos = 0;
   try {
-    /** Piece buffers handed back (by the workers, or free again here), to be filled again: less garbage. */
+    /** Piece buffers handed back (by the worker, or free again here), to be filled again: less garbage. */
     const spare: ArrayBuffer[] = [];
     const columnsHere = columnPool();
-    // Pieces in flight on the workers, by sequence number; results are taken strictly in order.
-    const waiting = new Map<number, { resolve: (p: CsvPiece) => void; reject: (e: unknown) => void; promise: Promise<CsvPiece> }>();
+    // Pieces in flight on the worker, by sequence number; results are taken strictly in order.
+    const waiting = new Map<number, Deferred<CsvPiece>>();
+    let digest: Deferred<string> | undefined;
     let sent = 0;
     let taken = 0;
-    for (const w of pool) {
-      w.on("message", (m: { seq: number; piece?: CsvPiece; buffer?: ArrayBuffer; inputError?: { code: string; details: InputError["details"] }; internal?: string }) => {
-        if (m.buffer) spare.push(m.buffer);
-        const slot = waiting.get(m.seq)!;
-        if (m.piece) slot.resolve(m.piece);
-        else if (m.inputError) slot.reject(m.inputError);
-        else slot.reject(new Error(m.internal));
-      });
-      w.on("error", (e) => waiting.forEach((s) => s.reject(e)));
-    }
+    worker?.on("message", (m: WorkerReply) => {
+      if ("digest" in m) return digest?.resolve(m.digest);
+      if (m.buffer) spare.push(m.buffer);
+      const slot = waiting.get(m.seq)!;
+      if (m.piece) slot.resolve(m.piece);
+      else if (m.inputError) slot.reject(m.inputError);
+      else slot.reject(new Error(m.internal));
+    });
+    worker?.on("error", (e) => {
+      waiting.forEach((s) => s.reject(e));
+      digest?.reject(e);
+    });
     const takeNext = async () => {
       const slot = waiting.get(taken)!;
       try {
@@ -369,7 +374,7 @@ async function readBody(
         take(piece);
         // The sink has consumed the columns: hand their memory back to the worker that made them.
         const bufs = pieceBuffers(piece);
-        pool[taken % pool.length]!.postMessage({ recycle: bufs }, bufs);
+        worker!.postMessage({ recycle: bufs }, bufs);
       } catch (e) {
         if (e instanceof Error) throw e;
         // A worker's input error carries a line relative to its piece.
@@ -384,11 +389,14 @@ async function readBody(
     if (d.bodyStart > 0) {
       const head = Buffer.alloc(d.bodyStart);
       await fh.read(head, 0, d.bodyStart, 0);
-      hash.update(head);
+      if (worker) worker.postMessage({ hashOnly: head });
+      else hash!.update(head);
       pos = d.bodyStart;
     }
     // Each piece is read straight into a buffer of its own (after the carried partial line), which
-    // is then handed to the parser or transferred to a worker without another copy.
+    // is then handed to the parser or transferred to the worker without another copy. The pieces'
+    // bytes up to their cut are the file's bytes in order, each once; the partial line after the cut
+    // starts the next piece.
     let carry: Uint8Array | undefined;
     for (;;) {
       const carryLen = carry?.length ?? 0;
@@ -397,7 +405,6 @@ async function readBody(
       if (carry) own.set(carry, 0);
       const { bytesRead } = await fh.read(own, carryLen, PIECE_BYTES, pos);
       pos += bytesRead;
-      hash.update(own.subarray(carryLen, carryLen + bytesRead));
       const atEnd = bytesRead === 0;
       const len = carryLen + bytesRead;
       let cut = len;
@@ -412,32 +419,35 @@ async function readBody(
         cut = nl + 1;
         if (cut < len) carry = own.slice(cut, len);
       }
+      const fileBytes = cut;
       if (cut > 0 && own[cut - 1] !== 10) own[cut++] = 10; // the file's last line had no newline
       if (cut > 0) {
         if (parser) {
+          hash!.update(own.subarray(0, fileBytes));
           // In this thread the sink consumes a piece at once, so its memory is free again right after.
           const piece = parser.parse(own, 0, cut, lineNo, columnsHere.alloc);
           take(piece);
           columnsHere.give(pieceBuffers(piece));
           spare.push(own.buffer);
         } else {
-          let resolve!: (p: CsvPiece) => void;
-          let reject!: (e: unknown) => void;
-          const promise = new Promise<CsvPiece>((a, b) => ((resolve = a), (reject = b)));
-          promise.catch(() => undefined);
-          waiting.set(sent, { resolve, reject, promise });
-          pool[sent % pool.length]!.postMessage({ seq: sent, buffer: own.buffer, length: cut }, [own.buffer]);
+          waiting.set(sent, deferred<CsvPiece>());
+          worker!.postMessage({ seq: sent, buffer: own.buffer, length: cut, fileBytes }, [own.buffer]);
           sent++;
-          while (sent - taken > 2 * pool.length) await takeNext();
+          while (sent - taken > 2) await takeNext();
         }
       }
       onProgress?.(pos);
       if (atEnd) break;
     }
     while (taken < sent) await takeNext();
+    if (worker) {
+      digest = deferred<string>();
+      worker.postMessage({ digest: true });
+      sha256 = await digest.promise;
+    } else sha256 = hash!.digest("hex");
   } finally {
     await fh.close();
-    await Promise.all(pool.map((w) => w.terminate()));
+    await worker?.terminate();
   }
   if (frames <= PROBE) settleStep(frames);
   if (frames < 2) {
@@ -454,8 +464,26 @@ async function readBody(
     const whole = Math.round(rate);
     if (whole > 0 && Math.abs(whole - rate) <= (rate * q) / span) rate = whole;
   }
-  return { frames, sampleRateHz: rate, sha256: hash.digest("hex"), bytes: pos };
+  return { frames, sampleRateHz: rate, sha256, bytes: pos };
 }
+
+interface Deferred<T> {
+  promise: Promise<T>;
+  resolve: (v: T) => void;
+  reject: (e: unknown) => void;
+}
+
+function deferred<T>(): Deferred<T> {
+  let resolve!: (v: T) => void;
+  let reject!: (e: unknown) => void;
+  const promise = new Promise<T>((a, b) => ((resolve = a), (reject = b)));
+  promise.catch(() => undefined);
+  return { promise, resolve, reject };
+}
+
+type WorkerReply =
+  | { digest: string }
+  | { seq: number; piece?: CsvPiece; buffer?: ArrayBuffer; inputError?: { code: string; details: InputError["details"] }; internal?: string };
 
 function fmt(x: number): string {
   return Number(x.toPrecision(6)).toString();

@@ -1,0 +1,110 @@
+import { createHash } from "node:crypto";
+import { existsSync, readFileSync, writeFileSync } from "node:fs";
+import { join, resolve } from "node:path";
+import { describe, expect, it } from "vitest";
+import { InputError } from "../../src/errors.js";
+import { CsvBodyParser, type CsvBodySpec } from "../../src/read/csvBody.js";
+import { seeded, tempDir } from "../helpers.js";
+
+const spec: CsvBodySpec = { file: "body.csv", columns: 3, columnNames: ["t", "a", "b"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1, 2] };
+
+/** Lines in many spellings: most plain (the tight loop), some that only the general path reads. */
+function mixedBody(rows: number, seed: number): { text: string; a: number[]; b: number[]; t: number[] } {
+  const u = seeded(seed);
+  const lines: string[] = [];
+  const a: number[] = [];
+  const b: number[] = [];
+  const t: number[] = [];
+  for (let i = 0; i < rows; i++) {
+    const x = (u() - 0.5) * 10 ** Math.floor(u() * 10 - 4);
+    const y = (u() - 0.5) * 100;
+    const k = Math.floor(u() * 12);
+    // Spellings: plain fixed, +sign, 15 and 16 digits, exponent, leading/trailing spaces, CRLF, no integer part.
+    const xs = [x.toFixed(6), `+${Math.abs(x).toFixed(3)}`, x.toPrecision(15), x.toPrecision(16), x.toExponential(5), ` ${x.toFixed(2)}`, x.toFixed(0), `${x < 0 ? "-" : ""}.${Math.abs(x).toFixed(4).split(".")[1]}`][k % 8]!;
+    const ys = k === 9 ? `${y.toFixed(4)} ` : y.toFixed(9);
+    const ts = (i * 0.001).toFixed(3);
+    if (k === 10) lines.push("# a comment between rows");
+    if (k === 11) lines.push("");
+    lines.push(`${ts},${xs},${ys}${k === 3 ? "\r" : ""}`);
+    a.push(Number(xs));
+    b.push(Number(ys));
+    t.push(Number(ts));
+  }
+  return { text: lines.join("\n") + "\n", a, b, t };
+}
+
+describe("CsvBodyParser: the plain-row loop and the general path", () => {
+  it("every value is the double Number() gives for its text, across plain and irregular lines", () => {
+    const body = mixedBody(20000, 7);
+    const buf = Buffer.from(body.text);
+    const piece = new CsvBodyParser(spec).parse(buf, 0, buf.length, 1);
+    expect(piece.rows).toBe(20000);
+    for (let i = 0; i < piece.rows; i++) {
+      expect(Object.is(piece.channels[0]![i], body.a[i])).toBe(true);
+      expect(Object.is(piece.channels[1]![i], body.b[i])).toBe(true);
+      expect(piece.time![i]).toBe(body.t[i]);
+    }
+    // Rows after comments and blank lines know their own lines.
+    const lines = body.text.split("\n");
+    for (let i = 0; i < piece.rows; i += 997) {
+      const line = piece.rowLines ? piece.rowLines[i]! : i;
+      expect(lines[line]!.startsWith(body.t[i]!.toFixed(3))).toBe(true);
+    }
+    expect(piece.timeFractionDigits).toBe(3);
+  });
+
+  it("columns grow when rows are shorter than the first guess (four bytes a field)", () => {
+    const text = "0,1,2\n".repeat(5000);
+    const piece = new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 1);
+    expect(piece.rows).toBe(5000);
+    expect(piece.channels[1]![4999]).toBe(2);
+  });
+
+  it("a bad cell after many plain rows is named by its own line and column", () => {
+    const text = "0,1,2\n".repeat(300) + "0,1,x2\n";
+    let e: unknown;
+    try {
+      new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 2);
+    } catch (x) {
+      e = x;
+    }
+    expect(e).toBeInstanceOf(InputError);
+    expect((e as InputError).details).toMatchObject({ line: 302, column: 3 });
+  });
+
+  it("-0 stays negative zero, as Number('-0.0') does", () => {
+    const text = "0,-0.000,0\n";
+    const piece = new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 1);
+    expect(Object.is(piece.channels[0]![0], -0)).toBe(true);
+  });
+});
+
+// The worker runs built code (dist/read/csvParseWorker.js); under vitest the source reader would parse in
+// its own thread, so these tests import the built reader.
+const built = existsSync("dist/read/csvTimeHistory.js") && existsSync("dist/read/csvParseWorker.js");
+
+describe.skipIf(!built)("CSV read on the parse worker (built code)", () => {
+  const dir = tempDir();
+  for (const [name, tail] of [["ends with a newline", "\n"], ["last line without newline", ""], ["CRLF", "\r\n"]] as const) {
+    it(`the worker's SHA-256 is the file's (${name}) and the columns equal this thread's`, async () => {
+      const body = mixedBody(60000, 3);
+      const text = "# rig 4, run 17\nt,a,b\n" + body.text.replace(/\n$/, "").split("\n").join(tail === "\r\n" ? "\r\n" : "\n") + tail;
+      const file = join(dir, `w${name.length}.csv`);
+      writeFileSync(file, text);
+      const read = async (parseWorkers: number) => {
+        const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+        const src = await openCsvTimeHistory(file, { parseWorkers });
+        const cols: number[][] = [[], []];
+        const s = await src.read([0, 1], (ch, n) => ch.forEach((c, i) => cols[i]!.push(...c.subarray(0, n))));
+        return { s, cols };
+      };
+      const inWorker = await read(1);
+      const here = await read(0);
+      const sha = createHash("sha256").update(readFileSync(file)).digest("hex");
+      expect(inWorker.s.sha256).toBe(sha);
+      expect(here.s.sha256).toBe(sha);
+      expect(inWorker.s.frames).toBe(60000);
+      expect(inWorker.cols).toEqual(here.cols);
+    });
+  }
+});
