@@ -1,12 +1,12 @@
 import { existsSync } from "node:fs";
 import { open, stat } from "node:fs/promises";
-import { createHash } from "node:crypto";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import { InputError, quoted } from "../errors.js";
 import { parseAccelUnit } from "../units.js";
-import { columnPool, CsvBodyParser, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvBodySpec, type CsvPiece, type Delimiter } from "./csvBody.js";
+import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
+import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
 import { nonFiniteToken, parseNumberText } from "./csvNumber.js";
 import type { BlockSink, ChannelInfo, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
@@ -226,12 +226,9 @@ export async function openCsvTimeHistory(file: string, opts: CsvReadOptions = {}
   };
 }
 
-/** Pieces of about this size are parsed at a time (in workers for large files). */
-const PIECE_BYTES = 1 << 20;
 /**
- * Files at least this large are parsed on a worker thread while this thread hashes, checks time
- * stamps and runs the accumulators. One parser worker measured fastest on 2 cores (10 M rows x 4
- * columns: about 1.9 s, against 2.5 s with two and 3.2 s with none; see bench/README.md).
+ * Files at least this large are read on a worker thread (csvBodyPass there: read, hash, parse, check
+ * time stamps) while this thread runs the accumulators; see bench/README.md.
  */
 const PARALLEL_BYTES = 8 << 20;
 const WORKER = new URL("./csvParseWorker.js", import.meta.url);
@@ -240,251 +237,49 @@ async function readBody(
   file: string, d: Dialect, columns: Column[], timeIndex: number, timeFactor: number, rateOverride: number | undefined,
   selectCols: number[], sink: BlockSink, onProgress: ((bytes: number) => void) | undefined, parseWorkers: number | undefined,
 ): Promise<ReadSummary> {
-  const spec: CsvBodySpec = {
+  const job: CsvBodyJob = {
     file, columns: d.columns, columnNames: columns.map((c) => c.name), delimiter: d.delimiter, decimal: d.decimal, timeIndex, selectColumns: selectCols,
+    bodyStart: d.bodyStart, bodyLine: d.bodyLine, timeFactor, rateOverride,
   };
-  let frames = 0;
-  let lineNo = d.bodyLine;
-
-  // Time-step check: the median step of the first rows is the reference; every step must lie within
-  // 1 % of it plus the resolution of the printed stamps (so stamps rounded to 6 decimals pass).
-  const PROBE = 1024;
-  const probeT = new Float64Array(PROBE + 1);
-  const probeLine = new Float64Array(PROBE + 1);
-  let t0 = NaN;
-  let tPrev = NaN;
-  let tLast = NaN;
-  let dt = NaN;
-  let tol = NaN;
-  let maxFrac = 0;
-  const timeName = timeIndex >= 0 ? columns[timeIndex]!.name : undefined;
-  const checkStep = (t: number, line: number, prev: number) => {
-    const step = t - prev;
-    if (!(step > 0)) {
-      throw new InputError(step === 0 ? "CSV_TIME_DUPLICATE" : "CSV_TIME_DECREASING", {
-        file, line, column: timeIndex + 1, field: timeName, expected: "time stamps that increase", received: step === 0 ? `a repeated time ${t / timeFactor}` : `${t / timeFactor} after ${prev / timeFactor}`,
-      });
-    }
-    if (Math.abs(step - dt) > tol) {
-      throw new InputError("CSV_TIME_IRREGULAR", {
-        file, line, column: timeIndex + 1, field: timeName, expected: `a uniform time step of ${fmt(dt / timeFactor)} (within 1 %)`, received: `a step of ${fmt(step / timeFactor)}`,
-        hint: "psdgate needs uniformly sampled data; split the record at the gap or resample it",
-      });
-    }
-  };
-  const settleStep = (count: number) => {
-    if (timeIndex < 0 || count < 2) return;
-    // Order first, so a decreasing stamp is named as such; then the median step of the probe.
-    for (let i = 1; i < count; i++) {
-      if (!(probeT[i]! > probeT[i - 1]!)) {
-        dt = Infinity;
-        tol = Infinity;
-        checkStep(probeT[i]!, probeLine[i]!, probeT[i - 1]!);
-      }
-    }
-    const steps = new Float64Array(count - 1);
-    for (let i = 1; i < count; i++) steps[i - 1] = probeT[i]! - probeT[i - 1]!;
-    steps.sort();
-    dt = steps[(steps.length - 1) >> 1]!;
-    tol = 0.01 * dt + Math.min(1.01 * Math.pow(10, -maxFrac) * timeFactor, 0.5 * dt);
-    for (let i = 1; i < count; i++) checkStep(probeT[i]!, probeLine[i]!, probeT[i - 1]!);
-  };
-
-  /** Pieces come here in file order, from this thread's parser or from the workers. */
-  const take = (piece: CsvPiece) => {
-    const base = lineNo;
-    const lineOf = (i: number) => base + (piece.rowLines ? piece.rowLines[i]! : i);
-    if (piece.time) {
-      const tv = piece.time;
-      const rows = piece.rows;
-      let i = 0;
-      // The first rows settle the reference step (the probe); they take the careful path.
-      for (; i < rows && frames <= PROBE; i++) {
-        const t = tv[i]! * timeFactor;
-        if (!Number.isFinite(t)) {
-          throw new InputError("CSV_TIME_NOT_A_NUMBER", { file, line: lineOf(i), column: timeIndex + 1, field: timeName, expected: "a finite time stamp", received: String(tv[i]) });
-        }
-        if (frames === 0) t0 = t;
-        probeT[frames] = t;
-        probeLine[frames] = lineOf(i);
-        if (piece.timeFractionDigits > maxFrac) maxFrac = piece.timeFractionDigits;
-        if (frames === PROBE) settleStep(PROBE + 1);
-        tPrev = t;
-        frames++;
-      }
-      // Every later row: one subtraction and two comparisons on locals; the line only on failure.
-      const fastFrom = i;
-      let prev = tPrev;
-      const ref = dt;
-      const allowed = tol;
-      const k = timeFactor;
-      for (; i < rows; i++) {
-        const t = tv[i]! * k;
-        const step = t - prev;
-        if (!(step > 0 && Math.abs(step - ref) <= allowed)) {
-          if (!Number.isFinite(t)) {
-            throw new InputError("CSV_TIME_NOT_A_NUMBER", { file, line: lineOf(i), column: timeIndex + 1, field: timeName, expected: "a finite time stamp", received: String(tv[i]) });
-          }
-          checkStep(t, lineOf(i), prev);
-        }
-        prev = t;
-      }
-      frames += rows - fastFrom;
-      tPrev = prev;
-      tLast = prev;
-    } else frames += piece.rows;
-    if (piece.rows > 0) sink(piece.channels, piece.rows);
-    lineNo += piece.lines;
-  };
-
-  const fh = await open(file, "r");
-  const size = (await fh.stat()).size;
+  const size = (await stat(file)).size;
   const useWorker = (parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 && existsSync(fileURLToPath(WORKER));
-  // With a worker, the worker hashes the bytes it is given, in file order, beside its parsing.
-  const worker = useWorker ? new Worker(WORKER, { workerData: spec }) : undefined;
-  const hash = worker ? undefined : createHash("sha256");
-  let sha256 = "";
-  const parser = worker ? undefined : new CsvBodyParser(spec);
-  let pos = 0;
+  if (!useWorker) {
+    const pool = columnPool();
+    return csvBodyPass(job, (piece, bytes) => {
+      if (piece.rows > 0) sink(piece.channels, piece.rows);
+      pool.give(pieceBuffers(piece));
+      onProgress?.(bytes);
+    }, pool);
+  }
+  const worker = new Worker(WORKER, { workerData: job });
   try {
-    /** Piece buffers handed back (by the worker, or free again here), to be filled again: less garbage. */
-    const spare: ArrayBuffer[] = [];
-    const columnsHere = columnPool();
-    // Pieces in flight on the worker, by sequence number; results are taken strictly in order.
-    const waiting = new Map<number, Deferred<CsvPiece>>();
-    let digest: Deferred<string> | undefined;
-    let sent = 0;
-    let taken = 0;
-    worker?.on("message", (m: WorkerReply) => {
-      if ("digest" in m) return digest?.resolve(m.digest);
-      if (m.buffer) spare.push(m.buffer);
-      const slot = waiting.get(m.seq)!;
-      if (m.piece) slot.resolve(m.piece);
-      else if (m.inputError) slot.reject(m.inputError);
-      else slot.reject(new Error(m.internal));
+    return await new Promise<ReadSummary>((resolve, reject) => {
+      worker.on("message", (m: WorkerReply) => {
+        if ("piece" in m) {
+          try {
+            if (m.piece.rows > 0) sink(m.piece.channels, m.piece.rows);
+            onProgress?.(m.bytes);
+          } catch (e) {
+            reject(e);
+            return;
+          }
+          // The sink has consumed the columns: their memory goes back to the worker.
+          const bufs = pieceBuffers(m.piece);
+          worker.postMessage({ recycle: bufs }, bufs);
+        } else if ("done" in m) resolve(m.done);
+        else if ("inputError" in m) reject(new InputError(m.inputError.code, m.inputError.details));
+        else reject(new Error(m.internal));
+      });
+      worker.on("error", reject);
+      worker.on("exit", (code) => reject(new Error(`the CSV worker stopped (exit code ${code})`)));
     });
-    worker?.on("error", (e) => {
-      waiting.forEach((s) => s.reject(e));
-      digest?.reject(e);
-    });
-    const takeNext = async () => {
-      const slot = waiting.get(taken)!;
-      try {
-        const piece = await slot.promise;
-        take(piece);
-        // The sink has consumed the columns: hand their memory back to the worker that made them.
-        const bufs = pieceBuffers(piece);
-        worker!.postMessage({ recycle: bufs }, bufs);
-      } catch (e) {
-        if (e instanceof Error) throw e;
-        // A worker's input error carries a line relative to its piece.
-        const err = e as { code: string; details: InputError["details"] };
-        throw new InputError(err.code, { ...err.details, line: err.details.line !== undefined ? lineNo + err.details.line : undefined });
-      }
-      waiting.delete(taken);
-      taken++;
-    };
-
-    // The bytes before the body (comments, header) are hashed, not parsed.
-    if (d.bodyStart > 0) {
-      const head = Buffer.alloc(d.bodyStart);
-      await fh.read(head, 0, d.bodyStart, 0);
-      if (worker) worker.postMessage({ hashOnly: head });
-      else hash!.update(head);
-      pos = d.bodyStart;
-    }
-    // Each piece is read straight into a buffer of its own (after the carried partial line), which
-    // is then handed to the parser or transferred to the worker without another copy. The pieces'
-    // bytes up to their cut are the file's bytes in order, each once; the partial line after the cut
-    // starts the next piece.
-    let carry: Uint8Array | undefined;
-    for (;;) {
-      const carryLen = carry?.length ?? 0;
-      const reuse = spare.length > 0 && spare[spare.length - 1]!.byteLength >= carryLen + PIECE_BYTES + 1 ? spare.pop() : undefined;
-      const own = reuse ? new Uint8Array(reuse) : new Uint8Array(carryLen + PIECE_BYTES + 1);
-      if (carry) own.set(carry, 0);
-      const { bytesRead } = await fh.read(own, carryLen, PIECE_BYTES, pos);
-      pos += bytesRead;
-      const atEnd = bytesRead === 0;
-      const len = carryLen + bytesRead;
-      let cut = len;
-      carry = undefined;
-      if (!atEnd) {
-        const nl = own.lastIndexOf(10, len - 1);
-        if (nl < 0) {
-          if (len > MAX_LINE_BYTES) throw new InputError("CSV_LINE_TOO_LONG", { file, line: lineNo, expected: `lines shorter than ${MAX_LINE_BYTES} bytes`, received: "a longer line" });
-          carry = own.slice(0, len);
-          continue;
-        }
-        cut = nl + 1;
-        if (cut < len) carry = own.slice(cut, len);
-      }
-      const fileBytes = cut;
-      if (cut > 0 && own[cut - 1] !== 10) own[cut++] = 10; // the file's last line had no newline
-      if (cut > 0) {
-        if (parser) {
-          hash!.update(own.subarray(0, fileBytes));
-          // In this thread the sink consumes a piece at once, so its memory is free again right after.
-          const piece = parser.parse(own, 0, cut, lineNo, columnsHere.alloc);
-          take(piece);
-          columnsHere.give(pieceBuffers(piece));
-          spare.push(own.buffer);
-        } else {
-          waiting.set(sent, deferred<CsvPiece>());
-          worker!.postMessage({ seq: sent, buffer: own.buffer, length: cut, fileBytes }, [own.buffer]);
-          sent++;
-          while (sent - taken > 2) await takeNext();
-        }
-      }
-      onProgress?.(pos);
-      if (atEnd) break;
-    }
-    while (taken < sent) await takeNext();
-    if (worker) {
-      digest = deferred<string>();
-      worker.postMessage({ digest: true });
-      sha256 = await digest.promise;
-    } else sha256 = hash!.digest("hex");
   } finally {
-    await fh.close();
-    await worker?.terminate();
+    await worker.terminate();
   }
-  if (frames <= PROBE) settleStep(frames);
-  if (frames < 2) {
-    throw new InputError("CSV_TOO_SHORT", { file, expected: "at least 2 samples", received: `${frames}` });
-  }
-  let rate = rateOverride ?? NaN;
-  if (rateOverride === undefined) {
-    // Rate from the whole span. Each printed time stamp is rounded to its last digit (quantum q), so
-    // the span is uncertain by q and the rate by rate * q / span; a whole-Hz rate inside that margin
-    // is the logger's nominal rate (common practice: loggers run at whole-Hz rates).
-    const span = tLast - t0;
-    rate = (frames - 1) / span;
-    const q = Math.pow(10, -maxFrac) * timeFactor;
-    const whole = Math.round(rate);
-    if (whole > 0 && Math.abs(whole - rate) <= (rate * q) / span) rate = whole;
-  }
-  return { frames, sampleRateHz: rate, sha256, bytes: pos };
-}
-
-interface Deferred<T> {
-  promise: Promise<T>;
-  resolve: (v: T) => void;
-  reject: (e: unknown) => void;
-}
-
-function deferred<T>(): Deferred<T> {
-  let resolve!: (v: T) => void;
-  let reject!: (e: unknown) => void;
-  const promise = new Promise<T>((a, b) => ((resolve = a), (reject = b)));
-  promise.catch(() => undefined);
-  return { promise, resolve, reject };
 }
 
 type WorkerReply =
-  | { digest: string }
-  | { seq: number; piece?: CsvPiece; buffer?: ArrayBuffer; inputError?: { code: string; details: InputError["details"] }; internal?: string };
-
-function fmt(x: number): string {
-  return Number(x.toPrecision(6)).toString();
-}
+  | { piece: CsvPiece; bytes: number }
+  | { done: ReadSummary }
+  | { inputError: { code: string; details: InputError["details"] } }
+  | { internal: string };
