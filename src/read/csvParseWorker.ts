@@ -1,4 +1,4 @@
-import { parentPort, workerData } from "node:worker_threads";
+import { parentPort } from "node:worker_threads";
 import { InputError } from "../errors.js";
 import { columnPool, pieceBuffers } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
@@ -12,22 +12,26 @@ const IN_FLIGHT = 3;
 const columns = columnPool();
 let credits = IN_FLIGHT;
 let wake: (() => void) | undefined;
-parentPort!.on("message", (m: { recycle: ArrayBuffer[] }) => {
+parentPort!.on("message", (m: { job: CsvBodyJob } | { recycle: ArrayBuffer[] }) => {
+  if ("job" in m) return run(m.job);
   columns.give(m.recycle);
   credits++;
   wake?.();
 });
 
-csvBodyPass(workerData as CsvBodyJob, async (piece, bytes) => {
-  while (credits === 0) await new Promise<void>((r) => (wake = r));
-  credits--;
-  const transfer: ArrayBuffer[] = pieceBuffers(piece);
-  if (piece.rowLines) transfer.push(piece.rowLines.buffer as ArrayBuffer);
-  parentPort!.postMessage({ piece, bytes }, transfer);
-}, columns).then(
-  (done) => parentPort!.postMessage({ done }),
-  (e: unknown) => {
-    if (e instanceof InputError) parentPort!.postMessage({ inputError: { code: e.code, details: e.details } });
-    else parentPort!.postMessage({ internal: (e as Error)?.stack ?? String(e) });
-  },
-);
+/** The reader starts this worker before it has sniffed the file; the job comes once it has. */
+function run(job: CsvBodyJob): void {
+  csvBodyPass(job, async (piece, bytes) => {
+    while (credits === 0) await new Promise<void>((r) => (wake = r));
+    credits--;
+    const transfer: ArrayBuffer[] = pieceBuffers(piece);
+    if (piece.rowLines) transfer.push(piece.rowLines.buffer as ArrayBuffer);
+    parentPort!.postMessage({ piece, bytes }, transfer);
+  }, columns).then(
+    (done) => parentPort!.postMessage({ done }),
+    (e: unknown) => {
+      if (e instanceof InputError) parentPort!.postMessage({ inputError: { code: e.code, details: e.details } });
+      else parentPort!.postMessage({ internal: (e as Error)?.stack ?? String(e) });
+    },
+  );
+}

@@ -32,6 +32,12 @@ export interface CsvReadOptions {
 }
 
 const HEAD_BYTES = 65536;
+/**
+ * Files at least this large are read on a worker thread (csvBodyPass there: read, hash, parse, check
+ * time stamps) while this thread runs the accumulators; see bench/README.md.
+ */
+const PARALLEL_BYTES = 8 << 20;
+const WORKER = new URL("./csvParseWorker.js", import.meta.url);
 const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|zeit|temps|tiempo)$/i;
 const TIME_UNITS: Record<string, number> = { s: 1, sec: 1, secs: 1, seconds: 1, ms: 1e-3, us: 1e-6, µs: 1e-6, μs: 1e-6, ns: 1e-9, min: 60 };
 
@@ -148,6 +154,35 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
 
 export async function openCsvTimeHistory(file: string, opts: CsvReadOptions = {}): Promise<TimeHistorySource> {
   const { size } = await stat(file);
+  // A large file's body is read on a worker thread. It starts now, so that its start-up (about 45 ms)
+  // overlaps the sniffing here, and waits for its job; it is unref'd until then, so a source that is
+  // never read does not keep the process alive.
+  const worker = (opts.parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 && existsSync(fileURLToPath(WORKER)) ? startBodyWorker() : undefined;
+  try {
+    return await openSniffed(file, size, opts, worker);
+  } catch (e) {
+    await worker?.thread.terminate();
+    throw e;
+  }
+}
+
+interface BodyWorker {
+  thread: Worker;
+  /** Settles with the reason when the thread fails or stops, whenever that happens. */
+  ended: Promise<Error>;
+}
+
+function startBodyWorker(): BodyWorker {
+  const thread = new Worker(WORKER);
+  thread.unref();
+  const ended = new Promise<Error>((resolve) => {
+    thread.once("error", resolve);
+    thread.once("exit", (code) => resolve(new Error(`the CSV worker stopped (exit code ${code})`)));
+  });
+  return { thread, ended };
+}
+
+async function openSniffed(file: string, size: number, opts: CsvReadOptions, worker: BodyWorker | undefined): Promise<TimeHistorySource> {
   const fh = await open(file, "r");
   let head: Buffer;
   try {
@@ -221,29 +256,24 @@ export async function openCsvTimeHistory(file: string, opts: CsvReadOptions = {}
       file, format: "csv", sampleRateHz: provisionalRate, channels, bytes: size,
       layout: `delimited text, ${delimName} delimiter, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}` : ""}`,
     },
-    read: (select, sink, onProgress) =>
-      readBody(file, dialect, columns, timeIndex, timeFactor, opts.sampleRateHz, select.map((s) => channelCols[s]!.index), sink, onProgress, opts.parseWorkers),
+    read: (select, sink, onProgress) => {
+      // The worker serves one read; a later read of the same source parses here.
+      const w = worker;
+      worker = undefined;
+      return readBody(file, dialect, columns, timeIndex, timeFactor, opts.sampleRateHz, select.map((s) => channelCols[s]!.index), sink, onProgress, w);
+    },
   };
 }
 
-/**
- * Files at least this large are read on a worker thread (csvBodyPass there: read, hash, parse, check
- * time stamps) while this thread runs the accumulators; see bench/README.md.
- */
-const PARALLEL_BYTES = 8 << 20;
-const WORKER = new URL("./csvParseWorker.js", import.meta.url);
-
 async function readBody(
   file: string, d: Dialect, columns: Column[], timeIndex: number, timeFactor: number, rateOverride: number | undefined,
-  selectCols: number[], sink: BlockSink, onProgress: ((bytes: number) => void) | undefined, parseWorkers: number | undefined,
+  selectCols: number[], sink: BlockSink, onProgress: ((bytes: number) => void) | undefined, bodyWorker: BodyWorker | undefined,
 ): Promise<ReadSummary> {
   const job: CsvBodyJob = {
     file, columns: d.columns, columnNames: columns.map((c) => c.name), delimiter: d.delimiter, decimal: d.decimal, timeIndex, selectColumns: selectCols,
     bodyStart: d.bodyStart, bodyLine: d.bodyLine, timeFactor, rateOverride,
   };
-  const size = (await stat(file)).size;
-  const useWorker = (parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 && existsSync(fileURLToPath(WORKER));
-  if (!useWorker) {
+  if (!bodyWorker) {
     const pool = columnPool();
     return csvBodyPass(job, (piece, bytes) => {
       if (piece.rows > 0) sink(piece.channels, piece.rows);
@@ -251,9 +281,12 @@ async function readBody(
       onProgress?.(bytes);
     }, pool);
   }
-  const worker = new Worker(WORKER, { workerData: job });
+  const worker = bodyWorker.thread;
+  worker.ref();
+  worker.postMessage({ job });
   try {
     return await new Promise<ReadSummary>((resolve, reject) => {
+      void bodyWorker.ended.then(reject);
       worker.on("message", (m: WorkerReply) => {
         if ("piece" in m) {
           try {
@@ -270,8 +303,6 @@ async function readBody(
         else if ("inputError" in m) reject(new InputError(m.inputError.code, m.inputError.details));
         else reject(new Error(m.internal));
       });
-      worker.on("error", reject);
-      worker.on("exit", (code) => reject(new Error(`the CSV worker stopped (exit code ${code})`)));
     });
   } finally {
     await worker.terminate();

@@ -1,6 +1,8 @@
 import { createHash } from "node:crypto";
 import { existsSync, readFileSync, writeFileSync } from "node:fs";
 import { join, resolve } from "node:path";
+import { pathToFileURL } from "node:url";
+import { spawnSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { CsvBodyParser, type CsvBodySpec } from "../../src/read/csvBody.js";
@@ -107,4 +109,12 @@ describe.skipIf(!built)("CSV read on the parse worker (built code)", () => {
       expect(inWorker.cols).toEqual(here.cols);
     });
   }
+  it("a source that is opened but never read does not keep the process alive (its worker waits unref'd)", () => {
+    const file = join(dir, "never-read.csv");
+    writeFileSync(file, "t,a\n0,1\n0.5,2\n1,3\n");
+    const script = `const m = await import(${JSON.stringify(pathToFileURL(resolve("dist/read/csvTimeHistory.js")).href)}); await m.openCsvTimeHistory(${JSON.stringify(file)}, { parseWorkers: 1 }); console.log("opened");`;
+    const r = spawnSync("node", ["--input-type=module", "-e", script], { encoding: "utf8", timeout: 10000 });
+    expect(r.stdout.trim()).toBe("opened");
+    expect(r.status).toBe(0);
+  });
 });
