@@ -1,6 +1,7 @@
 // `npm run bench`: psdgate against the numpy/scipy route and the raw byte-scan limit, on the same
 // generated files, in one run. Prints a table and writes bench/out/results.json.
 //   node bench/run.mjs [--sizes 1e6,1e7,5e7] [--runs 3] [--big-runs 1] [--batch 8] [--batch-rows 3e6] [--keep]
+// (--batch 0 leaves the batch out.)
 // Times are wall-clock medians; peak RSS comes from GNU time (%M). The machine is shared and noisy:
 // compare the ratios, not the absolute times.
 import { execFileSync, spawnSync } from "node:child_process";
@@ -36,10 +37,17 @@ function median(xs) {
   const s = [...xs].sort((a, b) => a - b);
   return s[(s.length - 1) >> 1];
 }
+/**
+ * Runs the routes in turn, round after round (a, b, c, a, b, c, ...), so that the machine's slow
+ * moments fall on every route alike; returns each route's median and peak RSS.
+ */
+function measureTogether(routes, n) {
+  const rs = routes.map(() => []);
+  for (let i = 0; i < n; i++) routes.forEach((r, k) => rs[k].push(timed(r.cmd, r.args)));
+  return routes.map((r, k) => ({ label: r.label, seconds: median(rs[k].map((x) => x.seconds)), rssMb: Math.max(...rs[k].map((x) => x.rssMb)), runs: n }));
+}
 function measure(label, cmd, args, n) {
-  const rs = [];
-  for (let i = 0; i < n; i++) rs.push(timed(cmd, args));
-  return { label, seconds: median(rs.map((r) => r.seconds)), rssMb: Math.max(...rs.map((r) => r.rssMb)), runs: n };
+  return measureTogether([{ label, cmd, args }], n)[0];
 }
 
 const PY_CSV = (f) => `import numpy as np, scipy.signal as ss
@@ -61,11 +69,17 @@ for (const n of sizes) {
   const wavBytes = statSync(wav).size;
   const samples = 3 * n;
   const add = (format, bytes, m) => rows.push({ samplesPerChannel: n, format, route: m.label, seconds: m.seconds, mbPerS: bytes / 1e6 / m.seconds, msamplesPerS: samples / 1e6 / m.seconds, peakRssMb: m.rssMb, runs: m.runs });
-  add("csv", csvBytes, measure("psdgate psd", "node", [...PSD.slice(0, 2), csv, ...PSD.slice(2)], reps));
-  add("csv", csvBytes, measure("raw byte scan", "node", ["bench/rawScan.mjs", csv], reps));
-  if (hasScipy) add("csv", csvBytes, measure("numpy.loadtxt + scipy.welch", "python3", ["-c", PY_CSV(csv)], reps));
-  add("wav", wavBytes, measure("psdgate psd", "node", [...PSD.slice(0, 2), wav, ...PSD.slice(2)], reps));
-  if (hasScipy) add("wav", wavBytes, measure("scipy.io.wavfile + scipy.welch", "python3", ["-c", PY_WAV(wav)], reps));
+  const csvRoutes = [
+    { label: "psdgate psd", cmd: "node", args: [...PSD.slice(0, 2), csv, ...PSD.slice(2)] },
+    { label: "raw byte scan", cmd: "node", args: ["bench/rawScan.mjs", csv] },
+    ...(hasScipy ? [{ label: "numpy.loadtxt + scipy.welch", cmd: "python3", args: ["-c", PY_CSV(csv)] }] : []),
+  ];
+  for (const m of measureTogether(csvRoutes, reps)) add("csv", csvBytes, m);
+  const wavRoutes = [
+    { label: "psdgate psd", cmd: "node", args: [...PSD.slice(0, 2), wav, ...PSD.slice(2)] },
+    ...(hasScipy ? [{ label: "scipy.io.wavfile + scipy.welch", cmd: "python3", args: ["-c", PY_WAV(wav)] }] : []),
+  ];
+  for (const m of measureTogether(wavRoutes, reps)) add("wav", wavBytes, m);
   if (!keep && n >= 5e7) rmSync(csv, { force: true });
 }
 
@@ -76,8 +90,9 @@ for (let i = 0; i < batchFiles; i++) {
   if (!existsSync(f)) execFileSync("node", ["bench/generate.mjs", "csv", String(batchRows), f, String(100 + i)]);
   batch.push(f);
 }
-const jobs1 = measure(`psdgate psd, ${batchFiles} files, --jobs 1`, "node", ["bin/psdgate.js", "psd", ...batch, "--jobs", "1", "--json", "-q"], runs);
-const jobs2 = measure(`psdgate psd, ${batchFiles} files, --jobs 2`, "node", ["bin/psdgate.js", "psd", ...batch, "--jobs", "2", "--json", "-q"], runs);
+const [jobs1, jobs2] = batchFiles > 0
+  ? measureTogether([1, 2].map((j) => ({ label: `psdgate psd, ${batchFiles} files, --jobs ${j}`, cmd: "node", args: ["bin/psdgate.js", "psd", ...batch, "--jobs", String(j), "--json", "-q"] })), runs)
+  : [undefined, undefined];
 
 const find = (n, format, route) => rows.find((r) => r.samplesPerChannel === n && r.format === format && r.route === route);
 const ratios = sizes.map((n) => {
@@ -104,9 +119,9 @@ lines.push(`| samples/channel | CSV: numpy / psdgate | CSV: psdgate / raw scan |
 lines.push(`|---|---|---|---|`);
 for (const r of ratios) lines.push(`| ${r.samplesPerChannel.toExponential(0)} | ${fmt(r.csvSpeedupVsNumpy)}x | ${fmt(r.csvTimeVsRawScan)}x | ${fmt(r.wavSpeedupVsScipy)}x |`);
 lines.push("");
-lines.push(`Batch of ${batchFiles} x ${batchRows.toExponential(0)}-row CSV: --jobs 1 ${fmt(jobs1.seconds)} s, --jobs 2 ${fmt(jobs2.seconds)} s, speed-up ${fmt(jobs1.seconds / jobs2.seconds)}x (peak RSS ${fmt(jobs2.rssMb, 0)} MB)`);
+if (jobs1 && jobs2) lines.push(`Batch of ${batchFiles} x ${batchRows.toExponential(0)}-row CSV: --jobs 1 ${fmt(jobs1.seconds)} s, --jobs 2 ${fmt(jobs2.seconds)} s, speed-up ${fmt(jobs1.seconds / jobs2.seconds)}x (peak RSS ${fmt(jobs2.rssMb, 0)} MB)`);
 const text = lines.join("\n");
 console.log(text);
-writeFileSync("bench/out/results.json", JSON.stringify({ date: new Date().toISOString(), node: process.version, hasScipy, rows, ratios, batch: { files: batchFiles, rows: batchRows, jobs1, jobs2, speedup: jobs1.seconds / jobs2.seconds } }, null, 2));
+writeFileSync("bench/out/results.json", JSON.stringify({ date: new Date().toISOString(), node: process.version, hasScipy, rows, ratios, batch: jobs1 && jobs2 ? { files: batchFiles, rows: batchRows, jobs1, jobs2, speedup: jobs1.seconds / jobs2.seconds } : null }, null, 2));
 writeFileSync("bench/out/results.md", text + "\n");
 console.log("\nwrote bench/out/results.json and bench/out/results.md");
