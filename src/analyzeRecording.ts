@@ -3,7 +3,7 @@ import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
 import { InputError, quoted } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
 import { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
-import { RealFft } from "./estimate/realFft.js";
+import { SegmentPower } from "./estimate/segmentPower.js";
 import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./estimate/welchOptions.js";
 import { WelchAccumulator } from "./estimate/welchPsd.js";
@@ -98,9 +98,9 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   }
   const settings = normalizeWelchOptions(options, info.sampleRateHz);
   const window = spectralWindow(settings.window, settings.segmentLength);
-  const fft = new RealFft(settings.segmentLength);
+  const power = new SegmentPower(settings.segmentLength);
   const spectrum = options.spectrum !== false;
-  const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, fft) : undefined));
+  const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power) : undefined));
   const moments = select.map(() => new RunningMoments());
   const histograms = options.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
   const summary = await source.read(

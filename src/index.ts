@@ -10,6 +10,7 @@ export type { RecordingInfo, ChannelInfo, TimeHistorySource, ReadSummary, BlockS
 export { scaleSamples, channelConditioning } from "./condition/scaleSamples.js";
 export { spectralWindow, windowFigures, WINDOW_NAMES, type WindowName } from "./estimate/windows.js";
 export { RealFft } from "./estimate/realFft.js";
+export { SegmentPower } from "./estimate/segmentPower.js";
 export { WelchAccumulator, type Detrend, type WelchSettings, type WelchSums } from "./estimate/welchPsd.js";
 export { welchDof } from "./estimate/welchDof.js";
 export { normalizeWelchOptions, type WelchOptions, type ResolvedWelchOptions } from "./estimate/welchOptions.js";

@@ -1,5 +1,5 @@
 import { chiSquareIntervalFactors } from "./chiSquare.js";
-import { RealFft } from "./realFft.js";
+import { SegmentPower } from "./segmentPower.js";
 import { welchDof } from "./welchDof.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./welchOptions.js";
 import { WelchAccumulator, type WelchSums } from "./welchPsd.js";
@@ -70,7 +70,7 @@ export function completePsd(sums: WelchSums, window: Float64Array, s: ResolvedWe
 export function welchPsd(x: Float64Array, sampleRateHz: number, options: WelchOptions = {}): PsdEstimate & { settings: ResolvedWelchOptions } {
   const s = normalizeWelchOptions(options, sampleRateHz);
   const w = spectralWindow(s.window, s.segmentLength);
-  const acc = new WelchAccumulator({ segmentLength: s.segmentLength, hop: s.hop, window: w, detrend: s.detrend }, new RealFft(s.segmentLength));
+  const acc = new WelchAccumulator({ segmentLength: s.segmentLength, hop: s.hop, window: w, detrend: s.detrend }, new SegmentPower(s.segmentLength));
   acc.push(x);
   return { ...completePsd(acc.finish(sampleRateHz), w, s, sampleRateHz), settings: s };
 }

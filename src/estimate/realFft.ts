@@ -21,18 +21,6 @@ export class RealFft {
     this.inv = new Float64Array(2 * size);
   }
 
-  /** |X[k]|^2 for k = 0..N/2 of the real input, added into `acc` (length N/2+1). */
-  addPowerSpectrum(input: Float64Array, acc: Float64Array): void {
-    this.fft.realTransform(this.out, input);
-    const out = this.out;
-    const half = this.size >> 1;
-    for (let k = 0; k <= half; k++) {
-      const re = out[2 * k]!;
-      const im = out[2 * k + 1]!;
-      acc[k]! += re * re + im * im;
-    }
-  }
-
   /** Interleaved spectrum bins 0..N/2 (re, im), valid until the next call. */
   forward(input: Float64Array): Float64Array {
     this.fft.realTransform(this.out, input);

@@ -1,4 +1,4 @@
-import { RealFft } from "./realFft.js";
+import { SegmentPower } from "./segmentPower.js";
 
 /**
  * Welch's averaged modified periodogram, accumulated as samples arrive (Welch 1967, IEEE Trans. Audio
@@ -37,9 +37,8 @@ export class WelchAccumulator {
   private readonly hop: number;
   private readonly window: Float64Array;
   private readonly detrend: Detrend;
-  private readonly fft: RealFft;
+  private readonly power: SegmentPower;
   private readonly segment: Float64Array;
-  private readonly work: Float64Array;
   private readonly sum: Float64Array;
   private readonly sumW2: number;
   private fill = 0;
@@ -50,15 +49,15 @@ export class WelchAccumulator {
   private samples = 0;
   private weightedMs = 0;
 
-  constructor(settings: WelchSettings, fft?: RealFft) {
+  /** `power` may be shared by the accumulators of one segment length (it holds only scratch space). */
+  constructor(settings: WelchSettings, power?: SegmentPower) {
     this.n = settings.segmentLength;
     this.hop = settings.hop;
     this.window = settings.window;
     this.detrend = settings.detrend;
-    this.fft = fft ?? new RealFft(this.n);
-    if (this.fft.size !== this.n || this.window.length !== this.n) throw new RangeError("window, FFT and segment length differ");
+    this.power = power ?? new SegmentPower(this.n);
+    if (this.power.size !== this.n || this.window.length !== this.n) throw new RangeError("window, FFT and segment length differ");
     this.segment = new Float64Array(this.n);
-    this.work = new Float64Array(this.n);
     this.sum = new Float64Array(this.n / 2 + 1);
     let s = 0;
     for (let i = 0; i < this.n; i++) s += this.window[i]! * this.window[i]!;
@@ -95,8 +94,6 @@ export class WelchAccumulator {
   private processSegment(): void {
     const n = this.n;
     const x = this.segment;
-    const w = this.window;
-    const y = this.work;
     // Sums run on four accumulators: one chain of dependent additions would wait on every add.
     const sum = sumOf(x, n);
     if (!Number.isFinite(sum)) {
@@ -118,25 +115,9 @@ export class WelchAccumulator {
       for (; i < n; i++) a += (i - mid) * x[i]!;
       slope = (a + b) / ((n * (n * n - 1)) / 12);
     }
-    const c0 = -mean + slope * mid;
-    let m0 = 0;
-    let m1 = 0;
-    let i = 0;
-    for (; i + 1 < n; i += 2) {
-      const u = (x[i]! + c0 - slope * i) * w[i]!;
-      const v = (x[i + 1]! + c0 - slope * (i + 1)) * w[i + 1]!;
-      y[i] = u;
-      y[i + 1] = v;
-      m0 += u * u;
-      m1 += v * v;
-    }
-    for (; i < n; i++) {
-      const u = (x[i]! + c0 - slope * i) * w[i]!;
-      y[i] = u;
-      m0 += u * u;
-    }
-    this.weightedMs += (m0 + m1) / this.sumW2;
-    this.fft.addPowerSpectrum(y, this.sum);
+    // y[i] = (x[i] - mean - slope (i - mid)) w[i], applied as the kernel loads the segment.
+    const ms = this.power.add(x, this.window, mean - slope * mid, slope, this.sum);
+    this.weightedMs += ms / this.sumW2;
     this.segments++;
   }
 

@@ -1,5 +1,5 @@
 import { createHash } from "node:crypto";
-import { open } from "node:fs/promises";
+import { closeSync, openSync, readSync } from "node:fs";
 import { InputError } from "../errors.js";
 import { columnPool, CsvBodyParser, MAX_LINE_BYTES, type CsvBodySpec, type CsvPiece } from "./csvBody.js";
 import type { ReadSummary } from "./timeHistory.js";
@@ -127,13 +127,15 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
     } else frames += piece.rows;
   };
 
-  const fh = await open(file, "r");
+  // Plain blocking reads: the pass runs on a worker for large files, and an asynchronous read of each
+  // piece cost more (0.15-0.23 s on 10 M rows) than the copy itself (about 0.05 s).
+  const fd = openSync(file, "r");
   let pos = 0;
   try {
     // The bytes before the body (comments, header) are hashed, not parsed.
     if (job.bodyStart > 0) {
       const head = Buffer.alloc(job.bodyStart);
-      await fh.read(head, 0, job.bodyStart, 0);
+      readSync(fd, head, 0, job.bodyStart, 0);
       hash.update(head);
       pos = job.bodyStart;
     }
@@ -142,7 +144,7 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
     const buf = new Uint8Array(MAX_LINE_BYTES + PIECE_BYTES + 1);
     let carry = 0;
     for (;;) {
-      const { bytesRead } = await fh.read(buf, carry, PIECE_BYTES, pos);
+      const bytesRead = readSync(fd, buf, carry, PIECE_BYTES, pos);
       pos += bytesRead;
       const atEnd = bytesRead === 0;
       const len = carry + bytesRead;
@@ -170,7 +172,7 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
       carry = len - cut;
     }
   } finally {
-    await fh.close();
+    closeSync(fd);
   }
   if (frames <= PROBE) settleStep(frames);
   if (frames < 2) {
