@@ -2,7 +2,6 @@ import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import { analyzeRecording, type AnalysisOptions, type RecordingAnalysis } from "../analyzeRecording.js";
-import { checkRecording } from "../checkRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { InputError } from "../errors.js";
 import type { CheckResult } from "../report/checkReport.js";
@@ -59,7 +58,8 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
     for (let i = 0; i < files.length; i++) {
       try {
         const opts = { ...options, onProgress: (b: number) => report(i, b) };
-        const result = (profile ? await checkRecording(files[i]!, profile, opts) : await analyzeRecording(files[i]!, opts)) as T;
+        // The check modules (zod, yaml) load only for check: start-up is part of every batch.
+        const result = (profile ? await (await import("../checkRecording.js")).checkRecording(files[i]!, profile, opts) : await analyzeRecording(files[i]!, opts)) as T;
         deliver(i, { file: files[i]!, ok: true, result });
       } catch (e) {
         if (!(e instanceof InputError)) throw e;
