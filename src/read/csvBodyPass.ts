@@ -2,6 +2,7 @@ import { createHash } from "node:crypto";
 import { closeSync, openSync, readSync } from "node:fs";
 import { InputError } from "../errors.js";
 import { columnPool, CsvBodyParser, MAX_LINE_BYTES, type CsvBodySpec, type CsvPiece } from "./csvBody.js";
+import { TimeStampCheck } from "./timeStampCheck.js";
 import type { ReadSummary } from "./timeHistory.js";
 
 /**
@@ -38,94 +39,7 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
   let frames = 0;
   let lineNo = job.bodyLine;
 
-  // Time-step check: the median step of the first rows is the reference; every step must lie within
-  // 1 % of it plus the resolution of the printed stamps (so stamps rounded to 6 decimals pass).
-  const PROBE = 1024;
-  const probeT = new Float64Array(PROBE + 1);
-  const probeLine = new Float64Array(PROBE + 1);
-  let t0 = NaN;
-  let tPrev = NaN;
-  let tLast = NaN;
-  let dt = NaN;
-  let tol = NaN;
-  let maxFrac = 0;
-  const timeName = timeIndex >= 0 ? job.columnNames[timeIndex] : undefined;
-  const checkStep = (t: number, line: number, prev: number) => {
-    const step = t - prev;
-    if (!(step > 0)) {
-      throw new InputError(step === 0 ? "CSV_TIME_DUPLICATE" : "CSV_TIME_DECREASING", {
-        file, line, column: timeIndex + 1, field: timeName, expected: "time stamps that increase", received: step === 0 ? `a repeated time ${t / timeFactor}` : `${t / timeFactor} after ${prev / timeFactor}`,
-      });
-    }
-    if (Math.abs(step - dt) > tol) {
-      throw new InputError("CSV_TIME_IRREGULAR", {
-        file, line, column: timeIndex + 1, field: timeName, expected: `a uniform time step of ${fmt(dt / timeFactor)} (within 1 %)`, received: `a step of ${fmt(step / timeFactor)}`,
-        hint: "psdgate needs uniformly sampled data; split the record at the gap or resample it",
-      });
-    }
-  };
-  const settleStep = (count: number) => {
-    if (timeIndex < 0 || count < 2) return;
-    // Order first, so a decreasing stamp is named as such; then the median step of the probe.
-    for (let i = 1; i < count; i++) {
-      if (!(probeT[i]! > probeT[i - 1]!)) {
-        dt = Infinity;
-        tol = Infinity;
-        checkStep(probeT[i]!, probeLine[i]!, probeT[i - 1]!);
-      }
-    }
-    const steps = new Float64Array(count - 1);
-    for (let i = 1; i < count; i++) steps[i - 1] = probeT[i]! - probeT[i - 1]!;
-    steps.sort();
-    dt = steps[(steps.length - 1) >> 1]!;
-    tol = 0.01 * dt + Math.min(1.01 * Math.pow(10, -maxFrac) * timeFactor, 0.5 * dt);
-    for (let i = 1; i < count; i++) checkStep(probeT[i]!, probeLine[i]!, probeT[i - 1]!);
-  };
-
-  /** Checks the time stamps of each piece, in file order. */
-  const checkTimes = (piece: CsvPiece) => {
-    const base = lineNo;
-    const lineOf = (i: number) => base + (piece.rowLines ? piece.rowLines[i]! : i);
-    if (piece.time) {
-      const tv = piece.time;
-      const rows = piece.rows;
-      let i = 0;
-      // The first rows settle the reference step (the probe); they take the careful path.
-      for (; i < rows && frames <= PROBE; i++) {
-        const t = tv[i]! * timeFactor;
-        if (!Number.isFinite(t)) {
-          throw new InputError("CSV_TIME_NOT_A_NUMBER", { file, line: lineOf(i), column: timeIndex + 1, field: timeName, expected: "a finite time stamp", received: String(tv[i]) });
-        }
-        if (frames === 0) t0 = t;
-        probeT[frames] = t;
-        probeLine[frames] = lineOf(i);
-        if (piece.timeFractionDigits > maxFrac) maxFrac = piece.timeFractionDigits;
-        if (frames === PROBE) settleStep(PROBE + 1);
-        tPrev = t;
-        frames++;
-      }
-      // Every later row: one subtraction and two comparisons on locals; the line only on failure.
-      const fastFrom = i;
-      let prev = tPrev;
-      const ref = dt;
-      const allowed = tol;
-      const k = timeFactor;
-      for (; i < rows; i++) {
-        const t = tv[i]! * k;
-        const step = t - prev;
-        if (!(step > 0 && Math.abs(step - ref) <= allowed)) {
-          if (!Number.isFinite(t)) {
-            throw new InputError("CSV_TIME_NOT_A_NUMBER", { file, line: lineOf(i), column: timeIndex + 1, field: timeName, expected: "a finite time stamp", received: String(tv[i]) });
-          }
-          checkStep(t, lineOf(i), prev);
-        }
-        prev = t;
-      }
-      frames += rows - fastFrom;
-      tPrev = prev;
-      tLast = prev;
-    } else frames += piece.rows;
-  };
+  const times = timeIndex >= 0 ? new TimeStampCheck({ file, index: timeIndex, name: job.columnNames[timeIndex], factor: timeFactor }) : undefined;
 
   // Plain blocking reads: the pass runs on a worker for large files, and an asynchronous read of each
   // piece cost more (0.15-0.23 s on 10 M rows) than the copy itself (about 0.05 s).
@@ -163,7 +77,8 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
       if (end > 0 && buf[end - 1] !== 10) buf[end++] = 10; // the file's last line had no newline
       if (end > 0) {
         const piece = parser.parse(buf, 0, end, lineNo, columns.alloc);
-        checkTimes(piece);
+        if (times && piece.rows > 0) times.check(piece, lineNo);
+        frames += piece.rows;
         lineNo += piece.lines;
         await emit(piece, pos);
       }
@@ -174,24 +89,20 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
   } finally {
     closeSync(fd);
   }
-  if (frames <= PROBE) settleStep(frames);
+  const span = times?.finish();
   if (frames < 2) {
     throw new InputError("CSV_TOO_SHORT", { file, expected: "at least 2 samples", received: `${frames}` });
   }
   let rate = rateOverride ?? NaN;
-  if (rateOverride === undefined) {
+  if (rateOverride === undefined && span) {
     // Rate from the whole span. Each printed time stamp is rounded to its last digit (quantum q), so
     // the span is uncertain by q and the rate by rate * q / span; a whole-Hz rate inside that margin
     // is the logger's nominal rate (common practice: loggers run at whole-Hz rates).
-    const span = tLast - t0;
-    rate = (frames - 1) / span;
-    const q = Math.pow(10, -maxFrac) * timeFactor;
+    const t = span.tLast - span.t0;
+    rate = (frames - 1) / t;
+    const q = Math.pow(10, -span.fractionDigits) * timeFactor;
     const whole = Math.round(rate);
-    if (whole > 0 && Math.abs(whole - rate) <= (rate * q) / span) rate = whole;
+    if (whole > 0 && Math.abs(whole - rate) <= (rate * q) / t) rate = whole;
   }
   return { frames, sampleRateHz: rate, sha256: hash.digest("hex"), bytes: pos };
-}
-
-function fmt(x: number): string {
-  return Number(x.toPrecision(6)).toString();
 }
