@@ -1,6 +1,6 @@
 // `npm run bench`: psdgate against the numpy/scipy route and the raw byte-scan limit, on the same
 // generated files, in one run. Prints a table and writes bench/out/results.json.
-//   node bench/run.mjs [--sizes 1e6,1e7,5e7] [--runs 3] [--big-runs 1] [--batch 8] [--batch-rows 3e6] [--keep]
+//   node bench/run.mjs [--sizes 1e6,1e7,5e7] [--runs 5] [--big-runs 3] [--batch 8] [--batch-rows 3e6] [--keep]
 // (--batch 0 leaves the batch out.)
 // Times are wall-clock medians; peak RSS comes from GNU time (%M). The machine is shared and noisy:
 // compare the ratios, not the absolute times.
@@ -12,8 +12,8 @@ const arg = (name, dflt) => {
   return i >= 0 ? process.argv[i + 1] : dflt;
 };
 const sizes = arg("sizes", "1e6,1e7,5e7").split(",").map(Number);
-const runs = Number(arg("runs", "3"));
-const bigRuns = Number(arg("big-runs", "1"));
+const runs = Number(arg("runs", "5"));
+const bigRuns = Number(arg("big-runs", "3"));
 const batchFiles = Number(arg("batch", "8"));
 // Rows per batch file: 3e6 is about 2 minutes at 25.6 kHz, a short shaker run; smaller files let the
 // fixed start-up of the process and the pool weigh more (1e6 rows: about 1.6x instead of 1.75x).

@@ -10,9 +10,9 @@
  * inside the load, the others two at a time as radix-4 butterflies with three twiddle products
  * each, and a last radix-2 level when log2(N/2) is even.
  *
- * fft.js (the general transform elsewhere in psdgate) does the same job at 35 us per 4096-point
- * segment with the window pass and the power sum around it; this kernel takes 26 us (bench notes in
- * DEVELOPERS.md). Tests hold it to fft.js and numpy.fft within 1e-13 of the largest bin.
+ * fft.js (the general transform elsewhere in psdgate) does the same job in 35-44 us per 4096-point
+ * segment with the window pass and the power sum around it; this kernel takes about 25 us (see
+ * DEVELOPERS.md). Tests hold it to fft.js and a naive DFT within 1e-13 of the largest bin.
  */
 export class SegmentPower {
   readonly size: number;
@@ -87,7 +87,7 @@ export class SegmentPower {
       acc[1]! += (a - b) * (a - b);
       return a * a + b * b;
     }
-    const ms = slope === 0 ? this.loadLevel(x, window, offset) : this.loadLevelSloped(x, window, offset, slope);
+    const ms = this.loadLevel(x, window, offset, slope);
     this.radix4Stages();
     this.lastLevel();
     this.split(acc);
@@ -95,31 +95,7 @@ export class SegmentPower {
   }
 
   /** Bit-reversed load with the detrend and window, and the first radix-2 level. */
-  private loadLevel(x: Float64Array, w: Float64Array, offset: number): number {
-    const h = this.half >> 1;
-    const re = this.re;
-    const im = this.im;
-    const rev = this.rev;
-    let ms0 = 0;
-    let ms1 = 0;
-    for (let k = 0; k < h; k++) {
-      const s = 2 * rev[2 * k]!;
-      const t = s + 2 * h;
-      const ur = (x[s]! - offset) * w[s]!;
-      const ui = (x[s + 1]! - offset) * w[s + 1]!;
-      const vr = (x[t]! - offset) * w[t]!;
-      const vi = (x[t + 1]! - offset) * w[t + 1]!;
-      ms0 += ur * ur + vr * vr;
-      ms1 += ui * ui + vi * vi;
-      re[2 * k] = ur + vr;
-      im[2 * k] = ui + vi;
-      re[2 * k + 1] = ur - vr;
-      im[2 * k + 1] = ui - vi;
-    }
-    return ms0 + ms1;
-  }
-
-  private loadLevelSloped(x: Float64Array, w: Float64Array, offset: number, slope: number): number {
+  private loadLevel(x: Float64Array, w: Float64Array, offset: number, slope: number): number {
     const h = this.half >> 1;
     const re = this.re;
     const im = this.im;
