@@ -10,9 +10,9 @@
  * inside the load, the others two at a time as radix-4 butterflies with three twiddle products
  * each, and a last radix-2 level when log2(N/2) is even.
  *
- * fft.js (the general transform elsewhere in psdgate) does the same job in 35-44 us per 4096-point
- * segment with the window pass and the power sum around it; this kernel takes about 25 us (see
- * DEVELOPERS.md). Tests hold it to fft.js and a naive DFT within 1e-13 of the largest bin.
+ * fft.js (the general transform elsewhere in psdgate) does the same job in 35-45 us per 4096-point
+ * segment with the window pass and the power sum around it; this kernel takes about 25 us
+ * (npm run bench:kernels). Tests hold it to fft.js and a naive DFT within 1e-13 of the largest bin.
  */
 export class SegmentPower {
   readonly size: number;

@@ -117,6 +117,13 @@ export class CsvBodyParser {
     let rows = 0;
     let line = 0;
     let timeFrac = 0;
+    // Where each file column's values go in the plain-row loop: its output column, or a scratch column.
+    let outs: Float64Array[] = [];
+    const route = () => {
+      let scratch: Float64Array | undefined;
+      outs = Array.from(this.target, (t) => (t >= 0 ? channels[t]! : t === -2 ? time! : (scratch ??= new Float64Array(cap))));
+    };
+    route();
     const grow = () => {
       const n = cap * 2;
       channels = channels.map((c) => {
@@ -135,14 +142,8 @@ export class CsvBodyParser {
         rowLines = g;
       }
       cap = n;
+      route();
     };
-    // Where each file column's values go in the plain-row loop: its output column, or a scratch column.
-    let outs: Float64Array[] = [];
-    const route = () => {
-      let scratch: Float64Array | undefined;
-      outs = Array.from(this.target, (t) => (t >= 0 ? channels[t]! : t === -2 ? time! : (scratch ??= new Float64Array(cap))));
-    };
-    route();
     const plain = this.plain;
     let p = s;
     while (p < e) {
@@ -159,7 +160,6 @@ export class CsvBodyParser {
         }
         if (rows === cap) {
           grow();
-          route();
           continue;
         }
       }
@@ -167,10 +167,7 @@ export class CsvBodyParser {
       const next = this.next;
       if (next - p > MAX_LINE_BYTES) this.fail("CSV_LINE_TOO_LONG", firstLine + line, undefined, `lines shorter than ${MAX_LINE_BYTES} bytes`, "a longer line");
       if (frac >= 0) {
-        if (rows === cap) {
-          grow();
-          route();
-        }
+        if (rows === cap) grow();
         const r = this.row;
         for (let c = 0; c < this.ncol; c++) {
           const t = this.target[c]!;
