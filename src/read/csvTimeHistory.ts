@@ -156,7 +156,7 @@ export async function openCsvTimeHistory(file: string, opts: CsvReadOptions = {}
   const { size } = await stat(file);
   // A large file's body is read on a worker thread. It starts now, so that its start-up (about 45 ms)
   // overlaps the sniffing here, and waits for its job; it is unref'd until then, so a source that is
-  // never read does not keep the process alive.
+  // never read does not keep the process alive (and close() ends it).
   const worker = (opts.parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 && existsSync(fileURLToPath(WORKER)) ? startBodyWorker() : undefined;
   try {
     return await openSniffed(file, size, opts, worker);
@@ -261,6 +261,11 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       const w = worker;
       worker = undefined;
       return readBody(file, dialect, columns, timeIndex, timeFactor, opts.sampleRateHz, select.map((s) => channelCols[s]!.index), sink, onProgress, w);
+    },
+    close: async () => {
+      const w = worker;
+      worker = undefined;
+      await w?.thread.terminate();
     },
   };
 }

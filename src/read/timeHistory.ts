@@ -39,5 +39,7 @@ export interface TimeHistorySource {
   info: RecordingInfo;
   /** Streams the selected channels (indexes into info.channels) once through `sink`. */
   read(select: number[], sink: BlockSink, onProgress?: (bytesDone: number) => void): Promise<ReadSummary>;
+  /** Releases what the source holds for a read that will not come (a large CSV's waiting worker thread). */
+  close?(): Promise<void>;
 }
 

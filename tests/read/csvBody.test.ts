@@ -117,4 +117,15 @@ describe.skipIf(!built)("CSV read on the parse worker (built code)", () => {
     expect(r.stdout.trim()).toBe("opened");
     expect(r.status).toBe(0);
   });
+  it("close() ends the waiting worker; a read after it parses in this thread", async () => {
+    const file = join(dir, "closed.csv");
+    writeFileSync(file, "t,a\n0,1\n0.5,2\n1,3\n");
+    const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+    const src = await openCsvTimeHistory(file, { parseWorkers: 1 });
+    await src.close!();
+    const got: number[] = [];
+    const s = await src.read([0], (ch, n) => got.push(...ch[0]!.subarray(0, n)));
+    expect(got).toEqual([1, 2, 3]);
+    expect(s.sampleRateHz).toBe(2);
+  });
 });
