@@ -1,7 +1,7 @@
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import { analyzeRecording, type AnalysisOptions, type RecordingAnalysis } from "../analyzeRecording.js";
+import type { AnalysisOptions, RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { InputError } from "../errors.js";
 import type { CheckResult } from "../report/checkReport.js";
@@ -58,8 +58,9 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
     for (let i = 0; i < files.length; i++) {
       try {
         const opts = { ...options, onProgress: (b: number) => report(i, b) };
-        // The check modules (zod, yaml) load only for check: start-up is part of every batch.
-        const result = (profile ? await (await import("../checkRecording.js")).checkRecording(files[i]!, profile, opts) : await analyzeRecording(files[i]!, opts)) as T;
+        // The analysis modules load here, not with this module: with workers this thread needs none of
+        // them, and the pool starts sooner (start-up is part of every batch); zod and yaml only for check.
+        const result = (profile ? await (await import("../checkRecording.js")).checkRecording(files[i]!, profile, opts) : await (await import("../analyzeRecording.js")).analyzeRecording(files[i]!, opts)) as T;
         deliver(i, { file: files[i]!, ok: true, result });
       } catch (e) {
         if (!(e instanceof InputError)) throw e;

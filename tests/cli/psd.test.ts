@@ -170,4 +170,16 @@ describe("exit codes and messages", () => {
     expect(e.status).toBe(2);
     expect(e.stderr.trim().split("\n").length).toBe(1);
   });
+  it.skipIf(!existsSync("dist/cli/bin.js"))("a reader that stops early (| head) gets no stack trace, and the exit code is the work's", () => {
+    // 250 KB of JSON Lines into a reader that takes 100 bytes and leaves.
+    const piped = spawnSync("bash", ["-c", "set -o pipefail; node bin/psdgate.js check samples/kb210-run*.wav --profile samples/profiles/kb210-controller.json --json | head -c 100 > /dev/null"], { encoding: "utf8" });
+    expect(piped.stderr).toBe("");
+    expect(piped.status).toBe(1); // one of the three runs fails the profile: the worst verdict, as without the pipe
+  });
+  it.skipIf(!existsSync("dist/cli/bin.js") || !existsSync("/dev/full"))("an unwritable standard output is one line on stderr and exit 2", () => {
+    const r = spawnSync("sh", ["-c", "node bin/psdgate.js psd samples/kb210-run.wav > /dev/full"], { encoding: "utf8" });
+    expect(r.status).toBe(2);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r.stderr).toContain("[OUTPUT_UNWRITABLE]");
+  });
 });
