@@ -143,6 +143,11 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   const header = hasHeader ? rows[0] : undefined;
   const bodyIndex = hasHeader ? 1 : 0;
   const body = lines[bodyIndex];
+  if (body === undefined && !wholeFile) {
+    // More follows, but no whole row within the head: the line after the header is too long to sniff.
+    const line = head.toString("latin1").split("\n").length;
+    throw new InputError("CSV_LINE_TOO_LONG", { file, line, expected: `a first row of samples within the first ${HEAD_BYTES >> 10} KB`, received: "a longer line" });
+  }
   if (body === undefined) {
     throw new InputError("CSV_NO_DATA", { file, line: first.line, expected: "rows of samples after the header", received: "a header only" });
   }

@@ -140,6 +140,11 @@ describe("openCsvTimeHistory: errors name file, line and column", () => {
     expect(e.code).toBe("CSV_NOT_A_NUMBER");
     expect(e.message).toContain("--decimal comma");
   });
+  it("a header followed by a line longer than the sniffed head is named as that line, not as a header only", async () => {
+    const e = await failure(csv("# rig 2\ntime,ax\n" + "x".repeat(200000)));
+    expect(e.code).toBe("CSV_LINE_TOO_LONG");
+    expect(e.details.line).toBe(3);
+  });
   it("a very long line is refused, not buffered without end", async () => {
     const e = await failure(csv("t,a\n0,1\n1," + "9".repeat(2 << 20) + "\n"));
     expect(e.code).toBe("CSV_LINE_TOO_LONG");
