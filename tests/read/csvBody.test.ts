@@ -102,6 +102,7 @@ describe.skipIf(!built)("CSV read on the parse worker (built code)", () => {
       };
       const inWorker = await read(1);
       const here = await read(0);
+      // Reference: Node's crypto (OpenSSL SHA-256) over the whole file at once.
       const sha = createHash("sha256").update(readFileSync(file)).digest("hex");
       expect(inWorker.s.sha256).toBe(sha);
       expect(here.s.sha256).toBe(sha);
