@@ -20,7 +20,7 @@ export interface TimeColumn {
 
 export class TimeStampCheck {
   /** Rows checked so far. */
-  frames = 0;
+  private frames = 0;
   private readonly col: TimeColumn;
   private readonly probeT = new Float64Array(PROBE + 1);
   private readonly probeLine = new Float64Array(PROBE + 1);
@@ -65,10 +65,10 @@ export class TimeStampCheck {
     this.tLast = tv[rows - 1]! * k;
   }
 
-  /** Frames, first and last stamp (s), and the most digits after the decimal mark seen. */
-  finish(): { frames: number; t0: number; tLast: number; fractionDigits: number } {
+  /** First and last stamp (s), and the most digits after the decimal mark in the probe rows. */
+  finish(): { t0: number; tLast: number; fractionDigits: number } {
     if (this.frames <= PROBE) this.settle(this.frames);
-    return { frames: this.frames, t0: this.t0, tLast: this.tLast, fractionDigits: this.maxFrac };
+    return { t0: this.t0, tLast: this.tLast, fractionDigits: this.maxFrac };
   }
 
   private settle(count: number): void {
