@@ -43,7 +43,7 @@ describe("psdgate psd", () => {
   it("prints the human summary: RMS both ways, averages, DOF, peaks, band RMS", async () => {
     const r = await cli("psd", "samples/tern7-flight.csv", "--fmin", "10", "--fmax", "1500");
     expect(r.code).toBe(0);
-    expect(r.stdout).toMatch(/RMS +3\.5\d+ g from the time history, 3\.5\d+ g from the PSD, ratio 1\.00\d+ \(agree/);
+    expect(r.stdout).toMatch(/RMS +3\.5\d+ g from the time history \(trend removed\), 3\.5\d+ g of the detrended segments, 3\.5\d+ g from the PSD\n +Parseval +PSD \/ segments (1\.00|0\.99)\d+ \(agree/);
     expect(r.stdout).toMatch(/averages +\d+, [\d.]+ degrees of freedom/);
     expect(r.stdout).toMatch(/band +10–1500 Hz: RMS/);
     expect(r.stdout).toContain("g²/Hz");
