@@ -80,7 +80,7 @@ export function transferText(t: TransferAnalysis, version: string): string {
     if (o.resonances.length === 0) lines.push("    resonances   none found (a peak needs |H1| >= 1, coherence >= 0.5 and a half-power point on each side)");
     else {
       const rows = [["f Hz", "|H1|", "Q", "half-power band Hz", "coherence", ""]];
-      for (const r of o.resonances) rows.push([sig(r.frequencyHz, 5), sig(r.magnitude, 4), sig(r.q, 3), `${sig(r.halfPowerHz[0], 5)}–${sig(r.halfPowerHz[1], 5)}`, fixed(r.coherence, 3), r.resolutionLimited ? "Q limited by the line spacing" : ""]);
+      for (const r of o.resonances) rows.push([sig(r.frequencyHz, 5), sig(r.magnitude, 4), sig(r.q, 3), `${sig(r.halfPowerHz[0], 5)}–${sig(r.halfPowerHz[1], 5)}`, fixed(r.coherence, 3), r.resolutionLimited ? "Q reads low: under 10 lines across (finer --resolution)" : ""]);
       lines.push("    resonances (peaks of |H1|, Q from the half-power band)", table(rows, "      "));
     }
   }
