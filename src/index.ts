@@ -42,4 +42,5 @@ export { readPsdTable, parsePsdTable, type PsdTable } from "./read/psdTable.js";
 export { analyzeTransfer, analyzeTransferSource, type TransferOptions, type TransferAnalysis, type TransferOutput } from "./analyzeTransfer.js";
 export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sourceKind, type SpectrumSource, type SourceKind, type ResponseSpectra, type ResponseComparison } from "./responseSpectra.js";
 export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
+export { transferHtml } from "./report/transferHtml.js";
 export { responseJson, responseText } from "./report/responseReport.js";

@@ -10,6 +10,7 @@ interface TransferFlags extends ParsedCommon {
   out: string[];
   json?: boolean;
   csv?: string;
+  report?: string;
   force?: boolean;
   goodCoherence?: number;
 }
@@ -25,6 +26,7 @@ export function registerTransfer(program: Command, io: CliIo): void {
     .option("--good-coherence <c>", "coherence at or above which a line counts as explained by the input (default 0.9)", numberOption("--good-coherence", (x) => x > 0 && x < 1, "a coherence between 0 and 1"))
     .option("--json", "print the result as JSON")
     .option("--csv <out>", "also write frequency, input PSD and each output's |H1|, phase, |H2|, coherence, predicted and measured PSD to this CSV")
+    .option("--report <out.html>", "also write a self-contained HTML page with magnitude, phase, coherence and output-PSD plots")
     .option("--force", "replace an existing output file")
     .action(async (file: string, o: TransferFlags) => {
       if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "--in and --out to name the channels of transfer", received: o.channel.join(", ") });
@@ -34,6 +36,10 @@ export function registerTransfer(program: Command, io: CliIo): void {
       const { VERSION } = await import("../version.js");
       const t = await analyzeTransfer(file, { ...analysisOptions(o), inputChannel: o.in, outputChannels: o.out, goodCoherence: o.goodCoherence });
       if (o.csv !== undefined) await writeAtomic(o.csv, transferCsv(t), { inputs: [file], force: o.force, option: "--csv" });
+      if (o.report !== undefined) {
+        const { transferHtml } = await import("../report/transferHtml.js");
+        await writeAtomic(o.report, transferHtml(t, VERSION, new Date()), { inputs: [file], force: o.force, option: "--report" });
+      }
       io.stdout(o.json ? JSON.stringify(transferJson(t, VERSION)) + "\n" : transferText(t, VERSION));
     });
 }

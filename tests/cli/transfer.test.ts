@@ -94,3 +94,13 @@ print(json.dumps({"f": f.tolist(), "pxx": pxx.tolist(), "out": out}))`));
     }
   });
 });
+
+describe("psdgate transfer --report", () => {
+  it("writes the HTML page atomically beside the text output", async () => {
+    const out = join(dir, "survey.html");
+    const r = await cli("transfer", sample, "--in", "base", "--out", "clamp", "--report", out);
+    expect(r.code).toBe(0);
+    expect(readFileSync(out, "utf8")).toMatch(/^<!DOCTYPE html>[^]*id="coherence-1"[^]*<\/html>\n$/);
+    expect(r.stdout).toMatch(/output clamp/);
+  });
+});
