@@ -92,10 +92,17 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, op
   const kind = o.as ?? (await sourceKind(file));
   if (kind === "profile") {
     const p = await loadProfile(file);
-    return {
-      kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum: powerLawSpectrum(p.segments), durationS: p.durationS,
-      frequencyHz: Float64Array.from(p.breakpoints, (b) => b.hz), level: Float64Array.from(p.breakpoints, (b) => b.level),
-    };
+    // --fmin/--fmax cut the profile's own band (each segment keeps its power law).
+    const lo = Math.max(o.fminHz ?? 0, p.segments[0]!.f1);
+    const hi = Math.min(o.fmaxHz ?? Infinity, p.segments[p.segments.length - 1]!.f2);
+    if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "--fmin", expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`, received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz` });
+    const segments = p.segments.filter((s) => s.f2 > lo && s.f1 < hi).map((s) => {
+      const f1 = Math.max(s.f1, lo);
+      return { f1, f2: Math.min(s.f2, hi), g1: s.g1 * Math.pow(f1 / s.f1, s.exponent), exponent: s.exponent };
+    });
+    const spectrum = powerLawSpectrum(segments);
+    const hz = Float64Array.from([segments[0]!.f1, ...segments.map((s) => s.f2)]);
+    return { kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum, durationS: p.durationS, frequencyHz: hz, level: hz.map((f) => spectrum.level(f)) };
   }
   if (kind === "psd") {
     const t = await readPsdTable(file);

@@ -99,3 +99,13 @@ describe("responseSpectra on a profile", () => {
     expect(await inputError(() => loadSpectrumSource(table, { channel: "ch9" }))).toMatch(/^CHANNEL_NOT_FOUND .*expected a channel name or position: 1=ch2, received "ch9"/);
   });
 });
+
+describe("loadSpectrumSource on a profile with --fmin/--fmax", () => {
+  it("cuts the profile's band: 0.04 g^2/Hz on 100-1000 Hz gives sqrt(0.04 x 900) = 6 g, and a band outside the profile is refused", async () => {
+    const src = await loadSpectrumSource(profileFile, { fminHz: 100, fmaxHz: 1000 });
+    const r = responseSpectra(src, { fnHz: Float64Array.of(300), q: 10 });
+    expect(r.motion.accelerationRms).toBeCloseTo(6, 9);
+    expect(r.band).toEqual({ fromHz: 100, toHz: 1000 });
+    expect(await inputError(() => loadSpectrumSource(profileFile, { fminHz: 3000 }))).toMatch(/^OPTION_INVALID .*option --fmin: expected a band that overlaps the profile's 20–2000 Hz/);
+  });
+});

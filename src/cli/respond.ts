@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
 import type { CliIo } from "./main.js";
-import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
 
 interface RespondFlags extends ParsedCommon {
   fn: string;
@@ -22,10 +22,12 @@ const KINDS = ["recording", "profile", "psd"] as const;
 
 /** `psdgate respond SOURCE --fn A:B --q Q`: SDOF response, extreme-response and fatigue-damage spectra of an input. */
 export function registerRespond(program: Command, io: CliIo): void {
-  addBandOptions(addSpectrumOptions(addReadingOptions(
+  addSpectrumOptions(addReadingOptions(
     program.command("respond").argument("<source>", "input: a recording (CSV or WAV), a profile (JSON or YAML) or a PSD table written by psd --csv")
       .description("what a single-degree-of-freedom structure feels at each natural frequency: response RMS (exact and Miles), largest peak, fatigue damage, and the input's stroke"),
-  )))
+  ))
+    .option("--fmin <hz>", "lowest frequency of the input used (default: the first line above 0 Hz, or the profile's start)", numberOption("--fmin", (x) => x > 0, "a frequency in Hz above 0"))
+    .option("--fmax <hz>", "highest frequency of the input used (default: the last line, or the profile's end)", numberOption("--fmax", (x) => x > 0, "a frequency in Hz above 0"))
     .requiredOption("--fn <grid>", "natural frequencies: A:B (6 per octave), A:B:N (N per octave) or a list A,B,C, in Hz")
     .requiredOption("--q <Q>", "quality factor Q = 1 / (2 zeta), e.g. 10", numberOption("--q", (x) => x > 0.5 && x <= 1000, "a Q above 0.5 and at most 1000"))
     .option("--duration <s>", "exposure for the largest peak and the damage (default: the recording's length or the profile's durationS)", numberOption("--duration", (x) => x > 0, "a duration in s above 0"))

@@ -86,7 +86,7 @@ export function transferText(t: TransferAnalysis, version: string): string {
   }
   lines.push(
     "",
-    `  H1 = G_xy/G_xx (unbiased by output noise), H2 = G_yy/G_yx (unbiased by input noise); their ratio is the coherence. Random errors per line (Bendat & Piersol ch. 9): --json or --csv.`,
+    `  H1 = G_xy/G_xx (unbiased by output noise), H2 = G_yy/G_yx (unbiased by input noise); their ratio is the coherence. Per-line random errors (Bendat & Piersol ch. 9) and the |H1| bounds: --json, plotted by --report.`,
   );
   for (const w of t.warnings) lines.push(`  warning: ${w}`);
   return lines.join("\n") + "\n";
