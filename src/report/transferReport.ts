@@ -71,7 +71,9 @@ export function transferText(t: TransferAnalysis, version: string): string {
       "",
       `  output ${o.name} (channel ${o.position})`,
       `    RMS          measured ${sig(o.measuredRms, 4)} ${u}; predicted from the input |H1|² G_in ${sig(o.predictedRms, 4)} ${u} (${pct((o.predictedRms / o.measuredRms) ** 2)} of the mean square)`,
-      `    coherence    >= ${s.goodCoherence} on ${pct(w.lineFraction)} of the lines, which carry ${pct(w.powerFraction)} of the output's mean square; there the prediction is ${pct(w.meanSquareRatio)} of the measured`,
+      w.lineFraction > 0
+        ? `    coherence    >= ${s.goodCoherence} on ${pct(w.lineFraction)} of the lines, which carry ${pct(w.powerFraction)} of the output's mean square; there the prediction is ${pct(w.meanSquareRatio)} of the measured`
+        : `    coherence    below ${s.goodCoherence} on every line: the input explains little of this output`,
     );
     if (o.lowCoherenceBands.length > 0) {
       lines.push(`    low coherence (< 0.5), where the prediction falls short: ${o.lowCoherenceBands.map((b) => `${sig(b.fromHz, 4)}–${sig(b.toHz, 4)} Hz (${pct(b.powerFraction)} of the mean square)`).join(", ")}`);
