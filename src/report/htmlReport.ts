@@ -131,8 +131,8 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const tolRms = comp.rms.upperDb !== undefined ? `+${fixed(comp.rms.upperDb, 2)} / −${fixed(comp.rms.lowerDb!, 2)} dB` : "none stated";
   const exc = comp.excursions.length === 0
     ? `<p>No line lies outside its tolerance band (${comp.lines.length} lines checked).</p>`
-    : `<table class="excursions"><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr>${worstFirst(comp.excursions).slice(0, 20)
-      .map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz</td><td class="num">${signedDb(e.limitDb)}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("")}</table>${comp.excursions.length > 20 ? `<p class="muted">${comp.excursions.length - 20} more in the JSON output.</p>` : ""}`;
+    : `<table class="excursions"><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr>${worstFirst(comp.excursions)
+      .map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz</td><td class="num">${signedDb(e.limitDb)}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("")}</table>`;
   const s = c.stats;
   return `<section class="channel">
 <h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel (judged in the control spectrum above)" : "monitoring channel (shown, not judged)"}</span>`}</h2>
