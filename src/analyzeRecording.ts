@@ -43,6 +43,9 @@ export interface ChannelAnalysis {
   /** 1-based position among the file's channels. */
   position: number;
   units: AccelUnit;
+  /** Unit of the samples as read, and where it came from (the file's header, --units, or the default g). */
+  inputUnit?: AccelUnit | undefined;
+  unitFrom?: "file" | "option" | "default" | undefined;
   stats: SampleStatistics;
   psd: PsdEstimate;
   parseval: ParsevalCheck;
@@ -140,7 +143,8 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
     const { notes, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength, spectrum, summary.frames / fs);
     return {
-      name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
+      name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit,
+      inputUnit: conditioning[c]!.inputUnit, unitFrom: info.channels[idx]!.declaredUnit !== undefined ? "file" : options.inputUnits !== undefined ? "option" : "default", stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
       histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });

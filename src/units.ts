@@ -17,6 +17,11 @@ export function accelLabel(u: AccelUnit): string {
   return u === "g" ? "g" : "m/s²";
 }
 
+/** Label of the square of an acceleration in `u` (an area under a PSD): g², (m/s²)². Never `m/s²²`. */
+export function squaredLabel(u: AccelUnit): string {
+  return u === "g" ? "g²" : "(m/s²)²";
+}
+
 /** Label of the one-sided density of an acceleration in `u`. */
 export function densityLabel(u: AccelUnit): string {
   return u === "g" ? "g²/Hz" : "(m/s²)²/Hz";

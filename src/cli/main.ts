@@ -15,7 +15,7 @@ import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
 import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
-import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, choice, numberOption, type ParsedCommon } from "./options.js";
+import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, choice, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 import { registerRespond } from "./respond.js";
 import { registerTransfer } from "./transfer.js";
@@ -29,6 +29,8 @@ const checkReport = () => import("../report/checkReport.js");
 const compliance = () => import("../compare/complianceCheck.js");
 const profileReport = () => import("../report/profileText.js");
 const batch = () => import("./batch.js");
+const testMeta = () => import("../read/testMeta.js");
+const psdReport = () => import("../report/psdHtml.js");
 
 export interface CliIo {
   stdout: (s: string) => void;
@@ -176,10 +178,14 @@ export function buildProgram(io: CliIo): Command {
 
   addBatchOptions(addBandOptions(addSpectrumOptions(addReadingOptions(program.command("psd").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("one-sided PSD by Welch's method, chi-square bounds and the Parseval check")))))
     .option("--csv <out>", "also write frequency, PSD and bounds of each channel to this CSV file (one recording)")
-    .action(async (args: string[], o: ParsedCommon & BatchFlags & { csv?: string }) => {
+    .option("--report <out.html>", "also write a self-contained HTML record: PSD with its confidence band, statistics, histogram and the Parseval check per channel (one recording)")
+    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { csv?: string; report?: string; meta?: string }, cmd: Command) => {
       const files = await expandFiles(args, o.filesFrom, readStdin);
+      const meta = o.meta !== undefined ? await (await testMeta()).loadTestMeta(o.meta) : undefined;
       if (files.length > 1) {
         if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
+        if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report", received: `${files.length}` });
         throw new Exit(await many<RecordingAnalysis>(
           files, o, undefined, (r) => {
             const short = tooShort(r);
@@ -187,15 +193,20 @@ export function buildProgram(io: CliIo): Command {
             return short ? EXIT.input : EXIT.ok;
           },
           (r) => r.channels.map((c) => [r.input.file, c.name, `${sig(c.parseval.rmsTime, 4)} ${accelLabel(c.units)}`, `${sig(c.parseval.rmsPsd, 4)} ${accelLabel(c.units)}`, fixed(c.parseval.ratio, 4), fixed(c.psd.dof, 1), tooShort(r) ? "too short" : c.doubts.length ? "DOUBT" : "ok"]),
-          ["file", "channel", "RMS time", "RMS PSD", "ratio", "DOF", "status"], (r) => psdJson(r, VERSION),
+          ["file", "channel", "RMS time", "RMS PSD", "ratio", "DOF", "status"], (r) => psdJson(r, VERSION, meta),
         ));
       }
       const { analyzeRecording } = await analysis();
-      const a = await one(o, (onProgress) => analyzeRecording(files[0]!, { ...analysisOptions(o), onProgress }));
+      const options = { ...analysisOptions(o), histogram: o.report !== undefined ? true : o.histogram };
+      const a = await one(o, (onProgress) => analyzeRecording(files[0]!, { ...options, onProgress }));
       const short = tooShort(a);
       if (short) throw short;
       if (o.csv !== undefined) await writeAtomic(o.csv, psdCsv(a), { inputs: [a.input.file], force: o.force, option: "--csv" });
-      io.stdout(o.json ? JSON.stringify(psdJson(a, VERSION)) + "\n" : psdText(a, VERSION));
+      if (o.report !== undefined) {
+        const { psdHtml } = await psdReport();
+        await writeAtomic(o.report, psdHtml(a, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun: rerunOptions(options) }), { inputs: [a.input.file, ...(o.meta ? [o.meta] : [])], force: o.force, option: "--report" });
+      }
+      io.stdout(o.json ? JSON.stringify(psdJson(a, VERSION, meta)) + "\n" : psdText(a, VERSION));
     });
 
   program
@@ -217,13 +228,15 @@ export function buildProgram(io: CliIo): Command {
     .addHelpText("after", `\n${wrap(`Decision rule: ${RULE_SUMMARY}`, "")}\n\nVerdicts:\n${(["pass", "fail", "inconclusive"] as const).map((v) => wrap(`${v} (exit ${v === "pass" ? 0 : v === "fail" ? 1 : 3}): ${VERDICT_MEANING[v]}.`, "  ")).join("\n")}\n`)
     .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
     .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
-    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest" }) => {
+    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string }, cmd: Command) => {
       const { loadProfile, checkRecording } = await checking();
       const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
       const { checkHtml } = await html();
       const { checkJson, checkText } = await checkReport();
       const { worstFirst } = await compliance();
       const profile = await loadProfile(o.profile);
+      const meta = o.meta !== undefined ? await (await testMeta()).loadTestMeta(o.meta) : undefined;
       const files = await expandFiles(args, o.filesFrom, readStdin);
       if (o.reportDir !== undefined) {
         await mkdir(o.reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
@@ -233,8 +246,10 @@ export function buildProgram(io: CliIo): Command {
       const now = new Date();
       const wantsReport = o.report !== undefined || o.reportDir !== undefined;
       const reportPath = (r: CheckResult) => (o.report !== undefined ? o.report : join(o.reportDir!, `${basename(r.analysis.input.file).replace(/\.[^.]*$/, "")}.html`));
+      const given = givenOptions(cmd);
+      const rerun = rerunOptions({ ...analysisOptions(o), histogram: wantsReport, control });
       const writeReport = (r: CheckResult) =>
-        writeAtomic(reportPath(r), checkHtml(r, VERSION, now), { inputs: [...files, o.profile], force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
+        writeAtomic(reportPath(r), checkHtml(r, VERSION, now, { meta, given, rerun }), { inputs: [...files, o.profile, ...(o.meta ? [o.meta] : [])], force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
       if (files.length > 1) {
         if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
         // Report writes run beside the batch; the first failure is kept and raised at the end.
@@ -251,7 +266,7 @@ export function buildProgram(io: CliIo): Command {
                 w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.shown ? "shown" : "not shown"}` : "none"];
             });
           },
-          ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION),
+          ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION, meta),
         );
         await Promise.all(reports);
         if (reportError !== undefined) throw reportError;
@@ -259,7 +274,7 @@ export function buildProgram(io: CliIo): Command {
       }
       const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, control, onProgress }));
       if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r);
-      io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION)) + "\n" : checkText(r, VERSION));
+      io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION, meta)) + "\n" : checkText(r, VERSION));
       throw new Exit(verdictCode(r));
     });
 

@@ -111,3 +111,23 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     histogram: o.histogram,
   };
 }
+
+/** The options the user typed (not defaults), in words for the report: `--units m/s2`, `--force`. */
+export function givenOptions(cmd: Command): string[] {
+  const out: string[] = [];
+  for (const opt of cmd.options) {
+    const key = opt.attributeName();
+    if (cmd.getOptionValueSource(key) !== "cli") continue;
+    const v: unknown = cmd.getOptionValue(key);
+    const flag = opt.long ?? opt.short ?? key;
+    if (typeof v === "boolean") out.push(v || !opt.negate ? flag : flag);
+    else if (Array.isArray(v)) for (const x of v) out.push(`${flag} ${String(x)}`);
+    else out.push(`${flag} ${String(v)}`);
+  }
+  return out;
+}
+
+/** The analysis options as plain JSON (undefined dropped, no callbacks): what `verify` re-runs. */
+export function rerunOptions(o: AnalysisOptions & { control?: unknown }): Record<string, unknown> {
+  return JSON.parse(JSON.stringify({ ...o, onProgress: undefined })) as Record<string, unknown>;
+}

@@ -6,6 +6,7 @@ import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
 import { fixed, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
+import type { TestMeta } from "../read/testMeta.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
@@ -99,12 +100,13 @@ function judgementJson(c: ChannelCompliance) {
   };
 }
 
-export function checkJson(r: CheckResult, version: string) {
+export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
   const a = r.analysis;
   const p = r.profile;
   return {
     tool: toolInfo(version),
     verdict: r.verdict,
+    meta: meta ?? null,
     input: inputJson(a),
     profile: {
       file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null,

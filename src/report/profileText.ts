@@ -1,5 +1,5 @@
 import { profileMotion, type TestProfile } from "../compare/testProfile.js";
-import { accelLabel, densityAscii, densityLabel } from "../units.js";
+import { accelLabel, densityAscii, densityLabel, squaredLabel } from "../units.js";
 import { SHAKER_CAUTION } from "./cautions.js";
 import { fixed, sig, table } from "./format.js";
 import { toolInfo } from "./psdJson.js";
@@ -15,7 +15,7 @@ export function toleranceSummary(p: TestProfile): string {
 export function profileText(p: TestProfile, version: string): string {
   const u = accelLabel(p.units);
   const m = profileMotion(p);
-  const rows = [["Hz", `level ${densityLabel(p.units)}`, "slope to next dB/oct", `area ${u}²`]];
+  const rows = [["Hz", `level ${densityLabel(p.units)}`, "slope to next dB/oct", `area ${squaredLabel(p.units)}`]];
   p.breakpoints.forEach((b, i) => {
     const s = p.segments[i];
     rows.push([sig(b.hz, 5), sig(b.level, 5), s ? fixed(s.slopeDbPerOctave, 3) : "", s ? sig(s.area, 5) : ""]);

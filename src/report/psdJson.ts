@@ -1,4 +1,5 @@
 import type { RecordingAnalysis } from "../analyzeRecording.js";
+import type { TestMeta } from "../read/testMeta.js";
 import { densityAscii } from "../units.js";
 
 /** Plain numbers for JSON: NaN and infinities become null (JSON has no such values). */
@@ -15,7 +16,11 @@ export function toolInfo(version: string) {
 
 export function inputJson(a: RecordingAnalysis) {
   const i = a.input;
-  return { file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS };
+  const startTime = (i as { startTime?: unknown }).startTime;
+  return {
+    file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS,
+    ...(startTime !== undefined ? { startTime: startTime instanceof Date ? startTime.toISOString() : startTime } : {}),
+  };
 }
 
 export function settingsJson(a: RecordingAnalysis) {
@@ -29,9 +34,10 @@ export function statsJson(a: RecordingAnalysis["channels"][number]) {
 }
 
 /** The `psd --json` document (schema in README.md). */
-export function psdJson(a: RecordingAnalysis, version: string) {
+export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) {
   return {
     tool: toolInfo(version),
+    meta: meta ?? null,
     input: inputJson(a),
     settings: settingsJson(a),
     frequencyHz: arr(a.channels[0]?.psd.frequencyHz ?? new Float64Array()),

@@ -14,6 +14,8 @@ export interface Series {
   /** Optional second y for a filled band between y and y2. */
   y2?: ArrayLike<number> | undefined;
   className: string;
+  /** Draw a small marker at each point instead of a line (lines shown outside tolerance). */
+  markers?: boolean | undefined;
 }
 
 export interface PlotSpec {
@@ -27,31 +29,51 @@ export interface PlotSpec {
   series: Series[];
   /** Horizontal reference lines (linear plots). */
   rules?: number[] | undefined;
+  /** Height in SVG units (default 340; the width is always 720, so plots of one page share their x axis). */
+  height?: number | undefined;
+  /** Frequencies labelled on the x axis besides the 1-2-5 steps (the profile's ends). */
+  xMarks?: number[] | undefined;
 }
 
 const W = 720;
-const H = 340;
+const DEFAULT_H = 340;
 const M = { top: 40, right: 16, bottom: 44, left: 70 };
 
 export function escapeXml(s: string): string {
   return s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 }
 
-/** Tick labels on a log axis: 1, 2, 5 of each decade, in plain or exponent form. */
-function logTicks(s: ScaleContinuousNumeric<number, number>, count: number): { major: number[]; minor: number[] } {
+/**
+ * Ticks of a log axis: every 1-2-5 step labelled when the axis spans at most four decades (decades only
+ * beyond), the other d3 log ticks as minor grid lines, and any `marks` (the profile's ends) labelled too.
+ * A 1-2-5 label that would touch a mark's label is dropped.
+ */
+function logTicks(s: ScaleContinuousNumeric<number, number>, count: number, marks: number[] = [], minGapPx = 26): { major: number[]; minor: number[] } {
+  const [d0, d1] = s.domain() as [number, number];
+  const decades = Math.log10(d1 / d0);
   const all = s.ticks(count);
-  const major = all.filter((t) => {
-    const m = t / 10 ** Math.floor(Math.log10(t) + 1e-9);
-    return Math.abs(m - 1) < 1e-6 || (all.length < 12 && (Math.abs(m - 2) < 1e-6 || Math.abs(m - 5) < 1e-6));
-  });
-  return { major, minor: all.filter((t) => !major.includes(t)) };
+  const mant = (t: number) => t / 10 ** Math.floor(Math.log10(t) + 1e-9);
+  const near = (a: number, b: number) => Math.abs(a - b) < 1e-6;
+  const inside = marks.filter((m) => m >= d0 * (1 - 1e-9) && m <= d1 * (1 + 1e-9));
+  let major = all.filter((t) => near(mant(t), 1) || (decades <= 4 && (near(mant(t), 2) || near(mant(t), 5))));
+  major = major.filter((t) => inside.every((m) => Math.abs(s(m) - s(t)) >= minGapPx || near(m / t, 1)));
+  for (const m of inside) if (!major.some((t) => near(m / t, 1))) major.push(m);
+  major.sort((a, b) => a - b);
+  return { major, minor: all.filter((t) => !major.some((m) => near(m / t, 1))) };
 }
 
-function tickLabel(t: number): string {
-  if (t >= 1e-3 && t < 1e5) return String(Number(t.toPrecision(3)));
-  const e = Math.floor(Math.log10(t) + 1e-9);
-  const m = t / 10 ** e;
-  return `${Math.abs(m - 1) < 1e-6 ? "" : `${Number(m.toPrecision(2))}×`}10${superscript(e)}`;
+/**
+ * One number style per axis: plain decimals when every label fits them (0.001 to 99999), otherwise
+ * every label as a power of ten (2×10⁻³), so an axis never mixes "0.001" with "10⁻⁴".
+ */
+export function axisLabels(ticks: number[]): string[] {
+  const plain = ticks.every((t) => t === 0 || (Math.abs(t) >= 1e-3 && Math.abs(t) < 1e5));
+  return ticks.map((t) => {
+    if (plain || t === 0) return String(Number(t.toPrecision(4)));
+    const e = Math.floor(Math.log10(Math.abs(t)) + 1e-9);
+    const m = Number((t / 10 ** e).toPrecision(3));
+    return `${m === 1 ? "" : `${m}×`}10${superscript(e)}`;
+  });
 }
 
 function superscript(n: number): string {
@@ -60,6 +82,7 @@ function superscript(n: number): string {
 }
 
 export function svgPlot(p: PlotSpec): string {
+  const H = p.height ?? DEFAULT_H;
   const x = scaleLog().domain(p.xDomain).range([M.left, W - M.right]);
   const y = (p.yLog ? scaleLog() : scaleLinear()).domain(p.yDomain).range([H - M.bottom, M.top]);
   const inX = (v: number) => v >= p.xDomain[0] && v <= p.xDomain[1];
@@ -69,24 +92,28 @@ export function svgPlot(p: PlotSpec): string {
   out.push(`<svg id="${p.id}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(p.title)}</text>`);
   // Grid and ticks.
-  const xt = logTicks(x, 10);
+  const xt = logTicks(x, 10, p.xMarks);
   for (const t of xt.minor) out.push(`<line class="grid minor" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`);
-  for (const t of xt.major) {
+  const xl = axisLabels(xt.major);
+  xt.major.forEach((t, i) => {
     out.push(`<line class="grid" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`);
-    out.push(`<text class="tick" x="${x(t).toFixed(1)}" y="${H - M.bottom + 16}" text-anchor="middle">${tickLabel(t)}</text>`);
-  }
+    out.push(`<text class="tick x-tick" x="${x(t).toFixed(1)}" y="${H - M.bottom + 16}" text-anchor="middle">${xl[i]}</text>`);
+  });
   if (p.yLog) {
-    const yt = logTicks(y as ScaleContinuousNumeric<number, number>, 8);
+    const yt = logTicks(y as ScaleContinuousNumeric<number, number>, 8, [], 12);
     for (const t of yt.minor) out.push(`<line class="grid minor" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
-    for (const t of yt.major) {
+    const yl = axisLabels(yt.major);
+    yt.major.forEach((t, i) => {
       out.push(`<line class="grid" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
-      out.push(`<text class="tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${tickLabel(t)}</text>`);
-    }
+      out.push(`<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`);
+    });
   } else {
-    for (const t of y.ticks(8)) {
+    const yt = y.ticks(8);
+    const yl = axisLabels(yt);
+    yt.forEach((t, i) => {
       out.push(`<line class="grid${t === 0 ? " zero" : ""}" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
-      out.push(`<text class="tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${Number(t.toPrecision(3))}</text>`);
-    }
+      out.push(`<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`);
+    });
   }
   out.push(`<rect class="frame" x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/>`);
   out.push(`<text class="axis-label" x="${(M.left + W - M.right) / 2}" y="${H - 8}" text-anchor="middle">${escapeXml(p.xLabel)}</text>`);
@@ -97,7 +124,10 @@ export function svgPlot(p: PlotSpec): string {
     const idx: number[] = [];
     for (let i = 0; i < s.x.length; i++) if (inX(s.x[i]!) && ok(s.y[i]!) && (s.y2 === undefined || ok(s.y2[i]!))) idx.push(i);
     let d: string | null;
-    if (s.y2 !== undefined) {
+    if (s.markers) {
+      // A small diamond per point: visible in greyscale and where lines overlap.
+      d = idx.map((i) => { const px = x(s.x[i]!); const py = clampY(s.y[i]!); return `M${px.toFixed(1)},${(py - 3.5).toFixed(1)}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z`; }).join("");
+    } else if (s.y2 !== undefined) {
       const y2 = s.y2;
       d = area<number>().x((i) => x(s.x[i]!)).y0((i) => clampY(s.y[i]!)).y1((i) => clampY(y2[i]!))(idx);
     } else {
@@ -112,7 +142,10 @@ export function svgPlot(p: PlotSpec): string {
   for (const s of items) {
     const w = 28 + 6.2 * s.label.length;
     lx -= w;
-    out.push(`<g class="legend"><line class="${s.className} key" x1="${lx}" x2="${lx + 20}" y1="${M.top - 10}" y2="${M.top - 10}"/><text class="legend-text" x="${lx + 24}" y="${M.top - 6}">${escapeXml(s.label)}</text></g>`);
+    const key = s.markers
+      ? `<path class="${s.className} key" d="M${lx + 10},${M.top - 13.5}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z"/>`
+      : `<line class="${s.className} key" x1="${lx}" x2="${lx + 20}" y1="${M.top - 10}" y2="${M.top - 10}"/>`;
+    out.push(`<g class="legend">${key}<text class="legend-text" x="${lx + 24}" y="${M.top - 6}">${escapeXml(s.label)}</text></g>`);
   }
   out.push("</svg>");
   return out.join("\n");
@@ -128,11 +161,15 @@ export function svgHistogram(id: string, title: string, xLabel: string, edges: n
   const y = scaleLinear().domain([0, top]).range([h - M.bottom, M.top]);
   const out = [`<svg id="${id}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(title)}</text>`);
-  for (const t of x.ticks(10)) out.push(`<text class="tick" x="${x(t).toFixed(1)}" y="${h - M.bottom + 16}" text-anchor="middle">${Number(t.toPrecision(3))}</text>`);
-  for (const t of y.ticks(5)) {
+  const xt = x.ticks(10);
+  const xl = axisLabels(xt);
+  xt.forEach((t, i) => out.push(`<text class="tick x-tick" x="${x(t).toFixed(1)}" y="${h - M.bottom + 16}" text-anchor="middle">${xl[i]}</text>`));
+  const yt = y.ticks(5);
+  const yl = axisLabels(yt);
+  yt.forEach((t, i) => {
     out.push(`<line class="grid" x1="${M.left}" x2="${w - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
-    out.push(`<text class="tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${Number(t.toPrecision(3))}</text>`);
-  }
+    out.push(`<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`);
+  });
   const bars = density.map((d, i) => `M${x(edges[i]!).toFixed(1)},${y(0).toFixed(1)}V${y(d).toFixed(1)}H${x(edges[i + 1]!).toFixed(1)}V${y(0).toFixed(1)}Z`).join("");
   out.push(`<path class="bars" data-series="histogram" data-points="${density.length}" d="${bars}"/>`);
   const d = line<number>().x((i) => x(curve.x[i]!)).y((i) => y(curve.y[i]!))(curve.x.map((_, i) => i));

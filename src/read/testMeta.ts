@@ -1,0 +1,86 @@
+import { readFile } from "node:fs/promises";
+import { parse as parseYaml, YAMLParseError } from "yaml";
+import { z } from "zod";
+import { InputError } from "../errors.js";
+
+/**
+ * The identity of a test run, given with `--meta FILE` (YAML or JSON, psdgate's own keys): who ran
+ * what, on which item, axis, fixture and sensor. Every key is optional text; unknown keys are refused
+ * so that a misspelt key is not silently dropped from a signed record.
+ */
+const text = (what: string) => z.string({ error: `${what} (text)` }).min(1, { message: `${what} (non-empty text)` }).max(2000, { message: `${what} of at most 2000 characters` });
+const isoDate = z.string({ error: "a calibration date YYYY-MM-DD (text)" }).regex(/^\d{4}-\d{2}-\d{2}$/, { message: "a calibration date YYYY-MM-DD" })
+  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s), { message: "a calendar date YYYY-MM-DD" });
+
+const MetaSchema = z.strictObject({
+  testId: text("a test id").optional(),
+  workOrder: text("a work-order number").optional(),
+  item: text("the item under test").optional(),
+  serialNumber: text("the item's serial number").optional(),
+  axis: text("the test axis").optional(),
+  fixture: text("the fixture").optional(),
+  sensor: text("the sensor (model)").optional(),
+  sensorSerial: text("the sensor's serial number").optional(),
+  sensorCalibrated: isoDate.optional(),
+  operator: text("the operator").optional(),
+  location: text("the lab or site").optional(),
+  notes: text("notes").optional(),
+}, { error: "a mapping of test-identity keys" });
+
+export type TestMeta = z.infer<typeof MetaSchema>;
+
+/** The keys in the order a report shows them, with their labels. */
+export const META_LABELS: readonly (readonly [keyof TestMeta, string])[] = [
+  ["testId", "Test id"], ["workOrder", "Work order"], ["item", "Item under test"], ["serialNumber", "Item serial number"],
+  ["axis", "Axis"], ["fixture", "Fixture"], ["sensor", "Sensor"], ["sensorSerial", "Sensor serial number"],
+  ["sensorCalibrated", "Sensor calibrated on"], ["operator", "Operator"], ["location", "Lab or site"], ["notes", "Notes"],
+];
+
+function keyPath(path: readonly PropertyKey[]): string {
+  let s = "";
+  for (const k of path) s += typeof k === "number" ? `[${k}]` : s === "" ? String(k) : `.${String(k)}`;
+  return s === "" ? "(top level)" : s;
+}
+
+/** Validate a parsed test-identity document; the first problem names its key. */
+export function parseTestMeta(doc: unknown, file: string): TestMeta {
+  const r = MetaSchema.safeParse(doc);
+  if (!r.success) {
+    const issue = r.error.issues[0]!;
+    if (issue.code === "unrecognized_keys") {
+      throw new InputError("META_INVALID", { file, keyPath: issue.keys[0]!, expected: `one of the keys ${META_LABELS.map(([k]) => k).join(", ")}`, received: `unknown key "${issue.keys[0]}"` });
+    }
+    let v: unknown = doc;
+    for (const k of issue.path) v = v !== null && typeof v === "object" ? (v as Record<PropertyKey, unknown>)[k] : undefined;
+    const received = v === undefined ? "nothing" : JSON.stringify(v)?.slice(0, 40) ?? String(v);
+    throw new InputError("META_INVALID", { file, keyPath: keyPath(issue.path), expected: issue.message.replace(/^Invalid input: expected /, ""), received });
+  }
+  return r.data;
+}
+
+/** Read `--meta FILE`: YAML (.yaml, .yml) or JSON. */
+export async function loadTestMeta(file: string): Promise<TestMeta> {
+  let body: string;
+  try {
+    body = await readFile(file, "utf8");
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError("FILE_UNREADABLE", { file, option: "--meta", expected: "a readable test-identity file", received: code === "ENOENT" ? "no such file" : String(code) });
+  }
+  let doc: unknown;
+  if (/\.ya?ml$/i.test(file)) {
+    try {
+      doc = parseYaml(body);
+    } catch (e) {
+      const pos = e instanceof YAMLParseError ? e.linePos?.[0] : undefined;
+      throw new InputError("META_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
+    }
+  } else {
+    try {
+      doc = JSON.parse(body);
+    } catch (e) {
+      throw new InputError("META_SYNTAX", { file, expected: "valid JSON (or a .yaml file)", received: (e as Error).message.split("\n")[0] });
+    }
+  }
+  return parseTestMeta(doc, file);
+}
