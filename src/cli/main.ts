@@ -17,8 +17,10 @@ import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
 import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, choice, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
+import { Exit } from "./exit.js";
 import { registerRespond } from "./respond.js";
 import { registerTransfer } from "./transfer.js";
+import { registerVerify } from "./verify.js";
 
 // Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
 // load on first use, so that a plain `psd` starts fast.
@@ -69,12 +71,6 @@ function wrap(text: string, indent: string): string {
   return out.join("\n");
 }
 
-/** Thrown by an action to end with an exit code after its output is written. */
-class Exit extends Error {
-  constructor(readonly code: number) {
-    super(`exit ${code}`);
-  }
-}
 
 /** Exit code of a set of outcomes: input error over fail over inconclusive over pass. */
 const RANK: Record<number, number> = { [EXIT.ok]: 0, [EXIT.inconclusive]: 1, [EXIT.fail]: 2, [EXIT.input]: 3 };
@@ -310,7 +306,7 @@ export function buildProgram(io: CliIo): Command {
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
     });
 
-  for (const register of [registerTransfer, registerRespond]) register(program, io);
+  for (const register of [registerTransfer, registerRespond, registerVerify]) register(program, io);
 
   return program;
 }

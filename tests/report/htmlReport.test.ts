@@ -139,7 +139,7 @@ describe.skipIf(!WANT_PDF)("HTML reports in headless Chromium, printed to A4 and
     }
     expect(Number(await page.getAttribute(`#dev-1 path[data-series="deviation"]`, "data-points"))).toBeGreaterThan(700);
     // Measured, required and limits differ by dash pattern as well as colour (greyscale print).
-    const dash = async (s: string) => page.locator(`#psd-1 path[data-series="${s}"]`).evaluate((e) => getComputedStyle(e).strokeDasharray);
+    const dash = async (s: string) => page.locator(`#psd-1 path[data-series="${s}"]`).evaluate((e) => (globalThis as unknown as { getComputedStyle(el: unknown): { strokeDasharray: string } }).getComputedStyle(e).strokeDasharray);
     expect(new Set([await dash("measured"), await dash("required"), await dash("limits-upper")]).size).toBe(3);
     // x ticks: 1-2-5 steps and the profile's ends (20 and 2000 Hz); the two plots share the axis.
     const ticks = async (id: string) => page.locator(`#${id} .x-tick`).evaluateAll((es) => es.map((e) => [e.textContent, e.getAttribute("x")]));

@@ -1,0 +1,164 @@
+import { createHash } from "node:crypto";
+import { existsSync, readFileSync } from "node:fs";
+import { readFile } from "node:fs/promises";
+import { basename, dirname, join } from "node:path";
+import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
+import { checkRecording, loadProfile, type CheckOptions } from "./checkRecording.js";
+import { InputError } from "./errors.js";
+import type { TestMeta } from "./read/testMeta.js";
+import { checkJson } from "./report/checkReport.js";
+import { extractResult } from "./report/embeddedResult.js";
+import { psdJson } from "./report/psdJson.js";
+
+/**
+ * `psdgate verify REPORT.html`: is a report what psdgate wrote, and does re-running its recorded
+ * analysis on its inputs give the same numbers and verdict?
+ *
+ * 1. The embedded result's digest and the page digest inside it (report/embeddedResult.ts): an edit
+ *    to the page or to the result is found.
+ * 2. The recording and the profile it names, found where the options say, else beside the report, else
+ *    at the recorded path: SHA-256 against the recorded ones.
+ * 3. The recorded analysis re-run on them, and every number of the result compared within a relative
+ *    tolerance (strings and the verdict exactly).
+ */
+export interface VerifyOptions {
+  recording?: string | undefined;
+  profile?: string | undefined;
+  /** Relative tolerance on every number (default 1e-9: the same code on the same bytes gives the same bits). */
+  tolerance?: number | undefined;
+  /** The running psdgate's version (a report from another version is compared all the same, and says so). */
+  version: string;
+}
+
+export type VerifyStatus = "reproduced" | "differs" | "missing";
+
+export interface VerifyStep {
+  step: "result" | "page" | "recording" | "profile" | "rerun";
+  ok: boolean;
+  text: string;
+}
+
+export interface VerifyResult {
+  status: VerifyStatus;
+  report: string;
+  kind?: "check" | "psd" | undefined;
+  steps: VerifyStep[];
+  /** Up to 20 differences, each with its JSON path. */
+  differences: string[];
+  /** Inputs that could not be found, with where they were looked for. */
+  missing: string[];
+  /** Numbers compared in the re-run. */
+  compared: number;
+}
+
+const IGNORED = new Set(["input.file", "profile.file", "tool.version"]);
+
+/** Every difference between a recorded and a re-computed result, by JSON path. */
+export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number } = { diffs: [], compared: 0 }) {
+  if (IGNORED.has(path)) return out;
+  const add = (s: string) => out.diffs.push(s);
+  if (typeof recorded === "number" && typeof now === "number") {
+    out.compared++;
+    const scale = Math.max(Math.abs(recorded), Math.abs(now));
+    if (!(Math.abs(recorded - now) <= tolerance * scale)) add(`${path}: recorded ${recorded}, re-run ${now}`);
+  } else if (Array.isArray(recorded) && Array.isArray(now)) {
+    if (recorded.length !== now.length) add(`${path}: recorded ${recorded.length} values, re-run ${now.length}`);
+    else for (let i = 0; i < recorded.length; i++) compareResults(recorded[i], now[i], tolerance, `${path}[${i}]`, out);
+  } else if (recorded !== null && now !== null && typeof recorded === "object" && typeof now === "object") {
+    const keys = new Set([...Object.keys(recorded), ...Object.keys(now)]);
+    for (const k of keys) compareResults((recorded as Record<string, unknown>)[k], (now as Record<string, unknown>)[k], tolerance, path ? `${path}.${k}` : k, out);
+  } else if (recorded !== now) {
+    add(`${path}: recorded ${JSON.stringify(recorded)?.slice(0, 60)}, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
+  }
+  return out;
+}
+
+function sha256File(file: string): string {
+  return createHash("sha256").update(readFileSync(file)).digest("hex");
+}
+
+/** Where an input is: the option, else beside the report, else the path recorded. */
+function locate(given: string | undefined, recorded: string, report: string): { path?: string; looked: string[] } {
+  if (given !== undefined) return existsSync(given) ? { path: given, looked: [given] } : { looked: [given] };
+  const beside = join(dirname(report), basename(recorded));
+  for (const p of [beside, recorded]) if (existsSync(p)) return { path: p, looked: [beside, recorded] };
+  return { looked: [...new Set([beside, recorded])] };
+}
+
+export async function verifyReport(report: string, options: VerifyOptions): Promise<VerifyResult> {
+  let html: string;
+  try {
+    html = await readFile(report, "utf8");
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError("FILE_UNREADABLE", { file: report, expected: "a readable psdgate HTML report", received: code === "ENOENT" ? "no such file" : String(code) });
+  }
+  const tol = options.tolerance ?? 1e-9;
+  const steps: VerifyStep[] = [];
+  const missing: string[] = [];
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, steps, differences: [], missing, compared: 0, ...extra });
+  const x = extractResult(html);
+  if (!x.found || x.doc === undefined) {
+    steps.push({ step: "result", ok: false, text: x.found ? "the embedded result is not valid JSON (edited)" : "no embedded psdgate result (not a psdgate report, or the block was removed)" });
+    return done("differs");
+  }
+  const doc = x.doc as { kind?: "check" | "psd"; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
+  const result = (doc.result ?? {}) as { verdict?: string; input?: { file: string; sha256: string }; profile?: { file: string; sha256: string }; tool?: { version?: string } };
+  steps.push({ step: "result", ok: x.resultIntact, text: x.resultIntact ? "embedded result intact (its SHA-256 matches)" : "embedded result edited (its SHA-256 does not match)" });
+  const shownVerdict = /id="verdict" data-verdict="([a-z]+)"/.exec(html)?.[1];
+  const verdictOk = doc.kind !== "check" || shownVerdict === result.verdict;
+  steps.push({
+    step: "page", ok: x.pageIntact && verdictOk,
+    text: !verdictOk ? `the page shows verdict "${shownVerdict}", the result says "${result.verdict}" (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
+  });
+  if (doc.kind !== "check" && doc.kind !== "psd" || !result.input || !doc.rerun) {
+    steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
+    return done("differs", { kind: undefined });
+  }
+  let inputsOk = true;
+  const rec = locate(options.recording, result.input.file, report);
+  if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it with --recording)`);
+  else {
+    const ok = sha256File(rec.path) === result.input.sha256;
+    inputsOk &&= ok;
+    steps.push({ step: "recording", ok, text: `${rec.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.input.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  }
+  let prof: { path?: string; looked: string[] } = { looked: [] };
+  if (doc.kind === "check") {
+    if (!result.profile) return done("differs", { kind: doc.kind });
+    prof = locate(options.profile, result.profile.file, report);
+    if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it with --profile)`);
+    else {
+      const ok = sha256File(prof.path) === result.profile.sha256;
+      inputsOk &&= ok;
+      steps.push({ step: "profile", ok, text: `${prof.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.profile.sha256.slice(0, 12)}… (another or a changed file)`}` });
+    }
+  }
+  const intact = steps.every((s) => s.ok);
+  if (missing.length > 0) return done(intact ? "missing" : "differs", { kind: doc.kind });
+  if (!inputsOk) {
+    steps.push({ step: "rerun", ok: false, text: "not re-run: an input is not the one the report was made from" });
+    return done("differs", { kind: doc.kind });
+  }
+  const version = result.tool?.version ?? "?";
+  const meta = doc.meta ?? undefined;
+  let now: unknown;
+  if (doc.kind === "check") {
+    const profile = await loadProfile(prof.path!);
+    const r = await checkRecording(rec.path!, profile, doc.rerun as CheckOptions);
+    now = checkJson(r, version, meta);
+  } else {
+    now = psdJson(await analyzeRecording(rec.path!, doc.rerun as AnalysisOptions), version, meta);
+  }
+  const cmp = compareResults(doc.result, now, tol);
+  const again = (now as { verdict?: string }).verdict;
+  const sameVersion = version === options.version;
+  steps.push({
+    step: "rerun", ok: cmp.diffs.length === 0,
+    text: cmp.diffs.length === 0
+      ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}`
+      : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
+  });
+  const status: VerifyStatus = steps.every((s) => s.ok) ? "reproduced" : "differs";
+  return { status, report, kind: doc.kind, steps, differences: cmp.diffs.slice(0, 20), missing, compared: cmp.compared };
+}

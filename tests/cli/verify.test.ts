@@ -1,0 +1,125 @@
+import { copyFileSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { beforeAll, describe, expect, it } from "vitest";
+import { cli, tempDir } from "../helpers.js";
+
+// One check report made once (beside copies of its inputs); each case edits a copy of the folder.
+let base: string;
+beforeAll(async () => {
+  base = tempDir();
+  copyFileSync("samples/kb210-run-resonance.wav", join(base, "run.wav"));
+  copyFileSync("samples/profiles/kb210-controller.json", join(base, "profile.json"));
+  writeFileSync(join(base, "meta.json"), JSON.stringify({ testId: "KB-210-Q-0417", operator: "R. Okonkwo" }));
+  const r = await cli("check", join(base, "run.wav"), "-p", join(base, "profile.json"), "--meta", join(base, "meta.json"), "--report", join(base, "report.html"));
+  expect(r.code).toBe(1);
+});
+
+function copy(): string {
+  const d = tempDir();
+  for (const f of ["run.wav", "profile.json", "report.html"]) copyFileSync(join(base, f), join(d, f));
+  return d;
+}
+
+describe("psdgate verify", () => {
+  it("verify REPORT.html on an intact report and its inputs beside it: every step ok, numbers and verdict reproduced, exit 0", async () => {
+    const d = copy();
+    const r = await cli("verify", join(d, "report.html"));
+    expect(r.code, r.stdout + r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/REPRODUCED/);
+    expect(r.stdout).toMatch(/\d{4,} numbers and the verdict FAIL reproduced/);
+    const j = JSON.parse((await cli("verify", join(d, "report.html"), "--json")).stdout);
+    expect(j.status).toBe("reproduced");
+    expect(j.steps.map((s: { step: string }) => s.step)).toEqual(["result", "page", "recording", "profile", "rerun"]);
+  });
+
+  it("verify with --recording and --profile finds inputs that are not beside the report", async () => {
+    const d = tempDir();
+    copyFileSync(join(base, "report.html"), join(d, "report.html"));
+    const r = await cli("verify", join(d, "report.html"), "--recording", join(base, "run.wav"), "--profile", join(base, "profile.json"));
+    expect(r.code, r.stdout).toBe(0);
+  });
+
+  it("an edited page (a figure on the page changed) is caught: exit 1, the page step fails", async () => {
+    const d = copy();
+    const f = join(d, "report.html");
+    const html = readFileSync(f, "utf8");
+    const edited = html.replace(/9\.171&nbsp;g/, "8.486&nbsp;g");
+    expect(edited).not.toBe(html);
+    writeFileSync(f, edited);
+    const r = await cli("verify", f);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/FAIL\s+page\s+page edited outside the result/);
+    expect(r.stdout).toMatch(/DIFFERS/);
+  });
+
+  it("an edited verdict is caught, on the page and in the embedded result (the digest, and the re-run verdict)", async () => {
+    const d = copy();
+    const f = join(d, "report.html");
+    const html = readFileSync(f, "utf8");
+    writeFileSync(f, html.replace('data-verdict="fail"', 'data-verdict="pass"'));
+    const page = await cli("verify", f);
+    expect(page.code).toBe(1);
+    expect(page.stdout).toMatch(/the page shows verdict "pass", the result says "fail"/);
+    writeFileSync(f, html.replace(/(<template id="psdgate-result"[^>]*>\{[^]*?)"verdict":"fail"/, '$1"verdict":"pass"'));
+    const block = await cli("verify", f);
+    expect(block.code).toBe(1);
+    expect(block.stdout).toMatch(/embedded result edited/);
+    expect(block.stdout).toMatch(/the verdict re-runs as FAIL, the report says PASS/);
+    expect(block.stdout).toMatch(/differs: verdict: recorded "pass", re-run "fail"/);
+  });
+
+  it("an edited recording (one sample byte changed) is caught by its SHA-256: exit 1", async () => {
+    const d = copy();
+    const wav = readFileSync(join(d, "run.wav"));
+    wav[wav.length - 3] = wav[wav.length - 3]! ^ 0x01;
+    writeFileSync(join(d, "run.wav"), wav);
+    const r = await cli("verify", join(d, "report.html"));
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/FAIL\s+recording .*run\.wav: SHA-256 differs/);
+    expect(r.stdout).toMatch(/not re-run/);
+  });
+
+  it("an edited profile (one level changed) is caught by its SHA-256: exit 1", async () => {
+    const d = copy();
+    const p = join(d, "profile.json");
+    writeFileSync(p, readFileSync(p, "utf8").replace(/"level": 0\.05\b/, '"level": 0.051'));
+    expect(readFileSync(p, "utf8")).not.toBe(readFileSync(join(base, "profile.json"), "utf8"));
+    const r = await cli("verify", join(d, "report.html"));
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/FAIL\s+profile .*profile\.json: SHA-256 differs/);
+  });
+
+  it("a missing recording: exit 2, naming where it was looked for and the option that gives it", async () => {
+    // Its own report: the recorded path must not exist either (the base copy would be found there).
+    const d = tempDir();
+    copyFileSync("samples/kb210-run-resonance.wav", join(d, "run.wav"));
+    await cli("check", join(d, "run.wav"), "-p", "samples/profiles/kb210-controller.json", "--report", join(d, "report.html"));
+    rmSync(join(d, "run.wav"));
+    const r = await cli("verify", join(d, "report.html"));
+    expect(r.code).toBe(2);
+    expect(r.stdout).toMatch(/MISSING recording run\.wav \(looked for .*run\.wav.*--recording\)/);
+    expect(r.stdout).toMatch(/INPUT MISSING/);
+  });
+
+  it("a file that is not a psdgate report: exit 1; a report that does not exist: exit 2 with FILE_UNREADABLE", async () => {
+    const d = tempDir();
+    writeFileSync(join(d, "x.html"), "<html><body>hello</body></html>");
+    expect((await cli("verify", join(d, "x.html"))).code).toBe(1);
+    const none = await cli("verify", join(d, "none.html"));
+    expect(none.code).toBe(2);
+    expect(none.stderr).toMatch(/none\.html.*\[FILE_UNREADABLE\]/);
+  });
+
+  it("a psd --report is verified the same way (intact: exit 0; edited recording: exit 1)", async () => {
+    const d = tempDir();
+    copyFileSync("samples/kb210-run.wav", join(d, "run.wav"));
+    expect((await cli("psd", join(d, "run.wav"), "--units", "g", "--fmin", "20", "--fmax", "2000", "--report", join(d, "psd.html"))).code).toBe(0);
+    const ok = await cli("verify", join(d, "psd.html"));
+    expect(ok.code, ok.stdout).toBe(0);
+    expect(ok.stdout).toMatch(/\(psd report\)/);
+    const wav = readFileSync(join(d, "run.wav"));
+    wav[wav.length - 1] = wav[wav.length - 1]! ^ 0x80;
+    writeFileSync(join(d, "run.wav"), wav);
+    expect((await cli("verify", join(d, "psd.html"))).code).toBe(1);
+  });
+});

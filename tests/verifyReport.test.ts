@@ -1,0 +1,12 @@
+import { describe, expect, it } from "vitest";
+import { compareResults } from "../src/verifyReport.js";
+
+describe("compareResults", () => {
+  it("compareResults(recorded, now, 1e-9) passes numbers within the relative tolerance and names each difference by its JSON path", () => {
+    const a = { verdict: "fail", input: { file: "a/x.wav", sha256: "ab" }, lines: [1, 2, 3e-5], rms: { measured: 9.171 } };
+    expect(compareResults(a, { ...a, input: { file: "b/x.wav", sha256: "ab" }, lines: [1, 2 * (1 + 5e-10), 3e-5] }, 1e-9).diffs).toEqual([]);
+    const d = compareResults(a, { ...a, verdict: "pass", lines: [1, 2.0001, 3e-5], rms: { measured: 9.2 } }, 1e-9);
+    expect(d.diffs).toEqual(['verdict: recorded "fail", re-run "pass"', "lines[1]: recorded 2, re-run 2.0001", "rms.measured: recorded 9.171, re-run 9.2"]);
+    expect(compareResults({ x: [1, 2] }, { x: [1] }, 1e-9).diffs).toEqual(["x: recorded 2 values, re-run 1"]);
+  });
+});
