@@ -225,7 +225,8 @@ export function buildProgram(io: CliIo): Command {
     .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
     .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
-    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string }, cmd: Command) => {
+    .option("--csv <out>", "also write the lines judged (frequency, measured, required, deviation, limits, status, shown) to this CSV file (one recording)")
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string; csv?: string }, cmd: Command) => {
       const { loadProfile, checkRecording } = await checking();
       const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
       const { checkHtml } = await html();
@@ -248,13 +249,18 @@ export function buildProgram(io: CliIo): Command {
         writeAtomic(reportPath(r), checkHtml(r, VERSION, now, { meta, given, rerun }), { inputs: [...files, o.profile, ...(o.meta ? [o.meta] : [])], force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
       if (files.length > 1) {
         if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
+        if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
         // Report writes run beside the batch; the first failure is kept and raised at the end.
         const reports: Promise<void>[] = [];
+        const entries: import("../report/batchIndex.js").BatchEntry[] = [];
         let reportError: unknown;
         const code = await many<CheckResult>(
           files, { ...o, histogram: wantsReport, control }, profile, verdictCode,
           (r) => {
-            if (o.reportDir !== undefined) reports.push(writeReport(r).catch((e: unknown) => void (reportError ??= e)));
+            if (o.reportDir !== undefined) {
+              reports.push(writeReport(r).catch((e: unknown) => void (reportError ??= e)));
+              entries.push({ file: r.analysis.input.file, sha256: r.analysis.input.sha256, verdict: r.verdict, report: basename(reportPath(r)), channels: r.channels.map((c, i) => `${r.analysis.channels[i]!.name} ${r.roles[i] === "monitor" ? "monitor" : c.verdict}`).join(", ") });
+            }
             return r.channels.map((c, i) => {
               const ch = r.analysis.channels[i]!;
               const w = worstFirst(c.excursions)[0];
@@ -266,9 +272,17 @@ export function buildProgram(io: CliIo): Command {
         );
         await Promise.all(reports);
         if (reportError !== undefined) throw reportError;
+        if (o.reportDir !== undefined) {
+          const { batchIndexHtml, BATCH_INDEX_NAME } = await import("../report/batchIndex.js");
+          await writeAtomic(join(o.reportDir, BATCH_INDEX_NAME), batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now), { inputs: [...files, o.profile], force: o.force, option: "--report-dir" });
+        }
         throw new Exit(code);
       }
       const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, control, onProgress }));
+      if (o.csv !== undefined) {
+        const { checkCsv } = await import("../report/checkCsv.js");
+        await writeAtomic(o.csv, checkCsv(r), { inputs: [...files, o.profile], force: o.force, option: "--csv" });
+      }
       if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r);
       io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION, meta)) + "\n" : checkText(r, VERSION));
       throw new Exit(verdictCode(r));
