@@ -1,6 +1,6 @@
 // `npm run demo`: the main job on the bundled samples. Checks three KB-210 runs against their profile
-// (one passes, one fails a band, one is inconclusive), writes the review report of the passing run,
-// and prints the PSD summary of the Tern-7 CSV recording.
+// (one passes, one fails a band, one is inconclusive) and writes the review report of every run, writes
+// the PSD record of the Tern-7 CSV recording, then verifies one report against its inputs.
 import { spawnSync } from "node:child_process";
 import { mkdirSync } from "node:fs";
 
@@ -12,12 +12,14 @@ const run = (args) => {
   return r.status;
 };
 const profile = "samples/profiles/kb210-controller.json";
+const check = (name) => run(["check", `samples/${name}.wav`, "--profile", profile, "--report", `demo-output/${name}-report.html`, "--force"]);
 const codes = [
-  run(["check", "samples/kb210-run.wav", "--profile", profile, "--report", "demo-output/kb210-run-report.html", "--force"]),
-  run(["check", "samples/kb210-run-resonance.wav", "--profile", profile, "--report", "demo-output/kb210-run-resonance-report.html", "--force"]),
-  run(["check", "samples/kb210-run-short.wav", "--profile", profile]),
-  run(["psd", "samples/tern7-flight.csv", "--resolution", "2", "--fmin", "10", "--fmax", "1500"]),
+  check("kb210-run"),
+  check("kb210-run-resonance"),
+  check("kb210-run-short"),
+  run(["psd", "samples/tern7-flight.csv", "--resolution", "2", "--fmin", "10", "--fmax", "1500", "--report", "demo-output/tern7-flight-psd.html", "--force"]),
+  run(["verify", "demo-output/kb210-run-resonance-report.html"]),
 ];
-const expected = [0, 1, 3, 0];
-console.log(`\nReports written to demo-output/. Verdict exit codes ${codes.join(", ")} (expected ${expected.join(", ")}).`);
+const expected = [0, 1, 3, 0, 0];
+console.log(`\nReports written to demo-output/. Exit codes ${codes.join(", ")} (expected ${expected.join(", ")}).`);
 process.exit(codes.every((c, i) => c === expected[i]) ? 0 : 1);
