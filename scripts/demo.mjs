@@ -12,7 +12,7 @@ const run = (args) => {
   return r.status;
 };
 const profile = "samples/profiles/kb210-controller.json";
-const check = (name) => run(["check", `samples/${name}.wav`, "--profile", profile, "--report", `demo-output/${name}-report.html`, "--force"]);
+const check = (name) => run(["check", `samples/${name}.wav`, "--profile", profile, "--meta", "samples/kb210-run-meta.yaml", "--report", `demo-output/${name}-report.html`, "--force"]);
 const codes = [
   check("kb210-run"),
   check("kb210-run-resonance"),
