@@ -7,6 +7,7 @@ import { fixed, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
+import { printable } from "./printable.js";
 
 export interface CheckResult {
   verdict: Verdict;
@@ -33,9 +34,9 @@ export function checkText(r: CheckResult, version: string): string {
   const a = r.analysis;
   const p = r.profile;
   const out = [
-    `psdgate ${version}: check of ${a.input.file} against "${p.title}"`,
+    `psdgate ${version}: check of ${printable(a.input.file)} against "${printable(p.title)}"`,
     ...recordingLines(a),
-    `  profile    ${p.file}, sha256 ${p.sha256}`,
+    `  profile    ${printable(p.file)}, sha256 ${p.sha256}`,
     `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS; tolerance ${toleranceSummary(p)}`,
     settingsLine(a),
     "",
@@ -45,7 +46,7 @@ export function checkText(r: CheckResult, version: string): string {
   r.channels.forEach((c, i) => {
     const ch = a.channels[i]!;
     const u = accelLabel(ch.units);
-    out.push(`channel ${ch.position} "${ch.name}": ${WORD[c.verdict]}`);
+    out.push(`channel ${ch.position} "${printable(ch.name)}": ${WORD[c.verdict]}`);
     for (const reason of c.reasons) out.push(`  because    ${reason}`);
     const tol = c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
     out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
