@@ -8,7 +8,7 @@ import { openWavTimeHistory } from "./wavTimeHistory.js";
 /** Open a recording by its content: a RIFF/WAVE signature or a `.wav` name means WAV, anything else text. */
 export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): Promise<TimeHistorySource> {
   // Only a regular file is opened: a FIFO would block the read for ever, and /dev/zero is a device, not an empty file.
-  const { handle: fh } = await openRegularFile(file, "a readable recording");
+  const { handle: fh } = await openRegularFile(file, "a readable file");
   let magic: Buffer;
   try {
     const b = Buffer.alloc(4);

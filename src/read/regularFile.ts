@@ -74,7 +74,7 @@ export async function openRegularFile(file: string, what: string, option?: strin
   }
   if (!stats.isFile()) {
     await handle.close().catch(() => undefined);
-    throw new InputError("FILE_UNREADABLE", { file, option, expected: `${what} (a regular file)`, received: fileKind(stats) });
+    throw new InputError("FILE_UNREADABLE", { file, option, expected: what, received: fileKind(stats) });
   }
   return { handle, stats };
 }
