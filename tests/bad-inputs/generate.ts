@@ -31,7 +31,7 @@ export function generateCases(dir: string): void {
   writeFileSync(join(dir, "wide-32000.csv"), wide(32000, (i) => `c${i}`));
   writeFileSync(join(dir, "wide-1500.csv"), wide(1500, (i) => `c${i.toString(36)}`));
   writeFileSync(join(dir, "channels-32767.wav"), wavBytes({ bits: 16, channels: 32767, samples: new Array(32767 * 2).fill(0) }));
-  writeFileSync(join(dir, "channels-600.wav"), wavBytes({ bits: 16, channels: 600, samples: new Array(600 * 16).fill(1) }));
+  writeFileSync(join(dir, "channels-300.wav"), wavBytes({ bits: 16, channels: 300, samples: new Array(300 * 16).fill(1) }));
   writeFileSync(join(dir, "zero-frames.wav"), wavBytes({ bits: 16, channels: 1, samples: [] }));
   writeFileSync(join(dir, "deep.json"), "[".repeat(100000) + "]".repeat(100000));
   writeFileSync(join(dir, "deep-flow.yaml"), "title: " + "[".repeat(100000) + "]".repeat(100000) + "\n");
