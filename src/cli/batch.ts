@@ -32,6 +32,7 @@ const WORKER = new URL("./batchWorker.js", import.meta.url);
 export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   files: string[], options: Omit<AnalysisOptions, "onProgress">, profile: TestProfile | undefined, jobs: number,
   onOutcome: (o: Outcome<T>, index: number) => void, onProgress?: (bytesDone: number) => void,
+  limits: WorkerLimits = WORKER_LIMITS,
 ): Promise<void> {
   const useWorkers = jobs > 1 && files.length > 1 && existsSync(fileURLToPath(WORKER));
   // A batch is parallel across files only: one thread per recording, so --jobs says how many cores it uses.
@@ -86,7 +87,7 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
         if (++delivered === files.length) resolveAll();
       };
       const start = () => {
-        const w = new Worker(WORKER, { resourceLimits: WORKER_LIMITS });
+        const w = new Worker(WORKER, { resourceLimits: limits });
         workers.add(w);
         const inHand: number[] = [];
         let dead = false;
@@ -116,7 +117,7 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
             settle(culprit, {
               file: files[culprit]!, ok: false,
               error: new InputError("WORKER_LIMIT", {
-                file: files[culprit]!, expected: `a recording that one batch worker can analyse within ${WORKER_LIMITS.maxOldGenerationSizeMb} MB of heap`, received: why,
+                file: files[culprit]!, expected: `a recording that one batch worker can analyse within ${limits.maxOldGenerationSizeMb ?? WORKER_LIMITS.maxOldGenerationSizeMb} MB of heap`, received: why,
                 hint: "analyse it on its own, or select fewer --channel",
               }),
             });
@@ -139,6 +140,7 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
 
 /** Heap limits of one batch worker (node:worker_threads resourceLimits). Sample buffers live outside the heap and are bounded by the analysis limits (analyzeRecording.ts). */
 export const WORKER_LIMITS = { maxOldGenerationSizeMb: 1024, maxYoungGenerationSizeMb: 64, stackSizeMb: 8 } as const;
+export type WorkerLimits = { maxOldGenerationSizeMb?: number; maxYoungGenerationSizeMb?: number; stackSizeMb?: number };
 
 /** An error that is psdgate's fault, kept to its one recording in a batch. */
 export function internalError(file: string, message: string): InputError {
