@@ -1,7 +1,7 @@
 import { randomBytes } from "node:crypto";
-import { realpathSync, rmSync, statSync, type Stats } from "node:fs";
-import { copyFile, link, open, rename, rm, type FileHandle } from "node:fs/promises";
-import { constants } from "node:fs";
+import { close, constants, openSync, realpathSync, rmSync, statSync, write, type Stats } from "node:fs";
+import { copyFile, link, rename, rm } from "node:fs/promises";
+import { promisify } from "node:util";
 import { basename, dirname, join, resolve } from "node:path";
 import { InputError } from "../errors.js";
 import { fileKind, fsReason, isFsError } from "../read/regularFile.js";
@@ -35,6 +35,9 @@ export interface OutputOptions {
 }
 
 const live = new Set<string>();
+const writeAt = (fd: number, b: Uint8Array, off: number, len: number, pos: number) =>
+  new Promise<number>((resolve, reject) => write(fd, b, off, len, pos, (e, n) => (e ? reject(e) : resolve(n))));
+const closeFd = promisify(close);
 
 /** @internal Temporary files that exist now (for tests). */
 export function _liveTemporaryFiles(): string[] {
@@ -105,20 +108,22 @@ export function checkOutputPath(target: string, inputs: string[], force: boolean
 /** An output being written: a live temporary file that becomes the target on publish. */
 export class TemporaryOutput {
   private done = false;
-  private constructor(readonly target: string, readonly path: string, readonly handle: FileHandle, private readonly opts: OutputOptions) {}
+  private closed = false;
+  private constructor(readonly target: string, readonly path: string, readonly fd: number, private readonly opts: OutputOptions) {}
 
   static async create(target: string, opts: OutputOptions): Promise<TemporaryOutput> {
     checkOutputPath(target, opts.inputs, opts.force, opts.option);
     const tmp = temporaryPathFor(target);
-    live.add(tmp);
-    let fh: FileHandle;
+    // Created synchronously: an asynchronous open still running on libuv's thread pool when a signal
+    // handler has emptied the registry would create the file just before exit, and leave it behind.
+    let fd: number;
     try {
-      fh = await open(tmp, "wx");
+      fd = openSync(tmp, "wx");
     } catch (e) {
-      live.delete(tmp);
       throw unwritable(target, opts.option, e);
     }
-    return new TemporaryOutput(target, tmp, fh, opts);
+    live.add(tmp);
+    return new TemporaryOutput(target, tmp, fd, opts);
   }
 
   /** Write `b` at byte `position`; a file-system error becomes OUTPUT_UNWRITABLE. */
@@ -126,7 +131,7 @@ export class TemporaryOutput {
     try {
       let off = 0;
       while (off < b.length) {
-        const { bytesWritten } = await this.handle.write(b, off, b.length - off, position + off);
+        const bytesWritten = await writeAt(this.fd, b, off, b.length - off, position + off);
         off += bytesWritten;
       }
     } catch (e) {
@@ -137,7 +142,7 @@ export class TemporaryOutput {
   /** Close, then give the temporary file the target's name (link without force, rename with it). */
   async publish(): Promise<void> {
     try {
-      await this.handle.close();
+      await this.close();
       checkOutputPath(this.target, this.opts.inputs, this.opts.force, this.opts.option);
       if (this.opts.force) {
         await rename(this.path, this.target);
@@ -165,11 +170,17 @@ export class TemporaryOutput {
     }
   }
 
+  private async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    await closeFd(this.fd);
+  }
+
   /** Close and remove the temporary file (after an error). */
   async discard(): Promise<void> {
     if (this.done) return;
     this.done = true;
-    await this.handle.close().catch(() => undefined);
+    await this.close().catch(() => undefined);
     await rm(this.path, { force: true }).catch(() => undefined);
     live.delete(this.path);
   }

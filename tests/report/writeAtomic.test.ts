@@ -1,10 +1,10 @@
 import { spawn } from "node:child_process";
-import { existsSync, linkSync, readdirSync, readFileSync, statSync, symlinkSync, writeFileSync } from "node:fs";
+import { closeSync, existsSync, linkSync, readdirSync, readFileSync, statSync, symlinkSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { execFileSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
-import { _liveTemporaryFiles, TemporaryOutput, unwritable, writeAtomic } from "../../src/report/writeAtomic.js";
+import { _liveTemporaryFiles, removeTemporaryFilesSync, TemporaryOutput, unwritable, writeAtomic } from "../../src/report/writeAtomic.js";
 import { tempDir } from "../helpers.js";
 
 const built = existsSync("dist/cli/bin.js");
@@ -90,11 +90,22 @@ describe("writeAtomic (no-clobber publication)", () => {
     expect(unwritable("out.csv", "--csv", other)).toBe(other);
   });
 
+  it("removeTemporaryFilesSync (the CLI's signal handler): every live temporary file is gone at once, mid-write", async () => {
+    const dir = tempDir();
+    const outs = await Promise.all(["a.html", "b.html", "c.wav"].map((n) => TemporaryOutput.create(join(dir, n), { inputs: [], option: "--report-dir" })));
+    await Promise.all(outs.map((o) => o.write(Buffer.alloc(1 << 16, 1), 0)));
+    expect(readdirSync(dir).filter((f) => f.endsWith(".tmp")).length).toBe(3);
+    removeTemporaryFilesSync();
+    expect(readdirSync(dir)).toEqual([]);
+    expect(_liveTemporaryFiles()).toEqual([]);
+    for (const o of outs) closeSync(o.fd);
+  });
+
   it("TemporaryOutput: a write error after the file is open becomes OUTPUT_UNWRITABLE and discard removes the temporary", async () => {
     const dir = tempDir();
     const out = await TemporaryOutput.create(join(dir, "o.wav"), { inputs: [], option: "--out" });
     expect(_liveTemporaryFiles()).toEqual([out.path]);
-    await out.handle.close();
+    closeSync(out.fd);
     await expect(out.write(Buffer.from("x"), 0)).rejects.toMatchObject({ code: "OUTPUT_UNWRITABLE" });
     await out.discard();
     expect(readdirSync(dir)).toEqual([]);
