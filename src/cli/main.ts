@@ -296,6 +296,7 @@ export function buildProgram(io: CliIo): Command {
 
 const USAGE_EXPECTED: Record<string, string> = {
   "commander.unknownCommand": "one of the commands inspect, psd, profile, check, synth",
+  "commander.help": "a command: inspect, psd, profile, check or synth",
   "commander.unknownOption": "an option of this command",
   "commander.missingArgument": "the command's arguments",
   "commander.optionMissingArgument": "a value after the option",
@@ -307,7 +308,8 @@ const USAGE_EXPECTED: Record<string, string> = {
 /** commander's own error as one line with the USAGE code, like every other error. */
 function usageError(e: CommanderError): InputError {
   return new InputError("USAGE", {
-    expected: USAGE_EXPECTED[e.code] ?? "a valid command line", received: e.message.replace(/^error: /, "").split("\n")[0]!, hint: "run psdgate --help",
+    expected: USAGE_EXPECTED[e.code] ?? "a valid command line",
+    received: e.code === "commander.help" ? "no command (the help above lists them)" : e.message.replace(/^error: /, "").split("\n")[0]!, hint: "run psdgate --help",
   });
 }
 
