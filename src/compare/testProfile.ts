@@ -36,6 +36,8 @@ const ProfileSchema = z.object({
     bands: z.array(BandSchema, { error: "a list of tolerance bands" }).min(1, { message: "at least one tolerance band" }),
     rmsDb: z.number({ error: "an RMS tolerance in dB (a number > 0)" }).positive({ message: "an RMS tolerance in dB above 0" }).optional(),
     rmsPercent: z.number({ error: "an RMS tolerance in percent (a number)" }).positive().max(99, { message: "an RMS tolerance below 100 %" }).optional(),
+    allowedOutsidePercent: z.number({ error: "a share of the lines in percent (a number from 0 to 50)" }).min(0, { message: "a share from 0 to 50 %" }).max(50, { message: "a share from 0 to 50 %" }).optional(),
+    outerLimits: z.array(BandSchema, { error: "a list of outer-limit bands" }).min(1, { message: "at least one outer-limit band" }).optional(),
   }, { error: "a tolerance object with bands" }),
   minDof: positive("a minimum number of degrees of freedom").optional(),
   resolutionHz: positive("an analysis resolution in Hz").optional(),
@@ -79,6 +81,12 @@ export interface TestProfile {
   minDof: number | undefined;
   resolutionHz: number | undefined;
   durationS: number | undefined;
+  /** Percent of the judged lines that may lie outside the tolerance band (0 when not given). */
+  allowedOutsidePercent: number | undefined;
+  /** Outer limits no line may cross, at least as wide as the tolerance band everywhere. */
+  outerBands: ToleranceBand[] | undefined;
+  /** Values the file did not give and psdgate supplied (e.g. a CSV profile's tolerance), each said in words. */
+  defaultsApplied: string[];
 }
 
 const LOG10_2 = Math.log10(2);
@@ -114,7 +122,7 @@ function fail(file: string, keyPath: string, expected: string, received?: string
 }
 
 /** Build the normalised profile from a validated document. */
-export function normalizeProfile(doc: ProfileDocument, file: string, sha256: string): TestProfile {
+export function normalizeProfile(doc: ProfileDocument, file: string, sha256: string, defaultsApplied?: string[]): TestProfile {
   const pts = doc.points;
   const breakpoints: { hz: number; level: number }[] = [];
   for (let i = 0; i < pts.length; i++) {
@@ -139,17 +147,20 @@ export function normalizeProfile(doc: ProfileDocument, file: string, sha256: str
   const f0 = breakpoints[0]!.hz;
   const fN = breakpoints[breakpoints.length - 1]!.hz;
 
-  const bands = [...doc.tolerance.bands].map((b, i) => ({ ...b, i })).sort((a, b) => a.fromHz - b.fromHz);
-  for (const b of bands) if (!(b.toHz > b.fromHz)) fail(file, `tolerance.bands[${b.i}].toHz`, `a frequency above fromHz ${b.fromHz}`, String(b.toHz));
-  if (bands[0]!.fromHz > f0) fail(file, `tolerance.bands[${bands[0]!.i}].fromHz`, `bands that cover the profile from ${f0} Hz`, `a first band from ${bands[0]!.fromHz} Hz`);
-  for (let k = 1; k < bands.length; k++) {
-    const a = bands[k - 1]!;
-    const b = bands[k]!;
-    if (b.fromHz < a.toHz) fail(file, `tolerance.bands[${b.i}].fromHz`, `bands that do not overlap (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
-    if (b.fromHz > a.toHz) fail(file, `tolerance.bands[${b.i}].fromHz`, `bands without gaps (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+  const bands = coveringBands(doc.tolerance.bands, "tolerance.bands", f0, fN, file);
+  const outerBands = doc.tolerance.outerLimits ? coveringBands(doc.tolerance.outerLimits, "tolerance.outerLimits", f0, fN, file) : undefined;
+  if (outerBands) {
+    // Outer limits must lie on or outside the band at every frequency: check at every band edge and midpoint.
+    const probes = [...bands.flatMap((b) => [b.fromHz, b.toHz, (b.fromHz + b.toHz) / 2]), ...outerBands.flatMap((b) => [b.fromHz, b.toHz])];
+    for (const f of probes) {
+      const inner = bands.find((b) => f >= b.fromHz && f <= b.toHz);
+      const o = outerBands.findIndex((b) => f >= b.fromHz && f <= b.toHz);
+      if (!inner || o < 0) continue;
+      if (outerBands[o]!.upperDb < inner.upperDb || outerBands[o]!.lowerDb < inner.lowerDb) {
+        fail(file, `tolerance.outerLimits[${o}]`, `outer limits at least as wide as the tolerance band at ${f} Hz (+${inner.upperDb}/-${inner.lowerDb} dB)`, `+${outerBands[o]!.upperDb}/-${outerBands[o]!.lowerDb} dB`);
+      }
+    }
   }
-  const last = bands[bands.length - 1]!;
-  if (last.toHz < fN) fail(file, `tolerance.bands[${last.i}].toHz`, `bands that cover the profile up to ${fN} Hz`, String(last.toHz));
 
   const t = doc.tolerance;
   if (t.rmsDb !== undefined && t.rmsPercent !== undefined) fail(file, "tolerance", "either rmsDb or rmsPercent, not both", "both");
@@ -161,9 +172,26 @@ export function normalizeProfile(doc: ProfileDocument, file: string, sha256: str
   for (const s of segments) area += s.area;
   return {
     title: doc.title, file, sha256, units: doc.units === "g2/Hz" ? "g" : "m/s2", breakpoints, segments, rms: Math.sqrt(area),
-    bands: bands.map(({ fromHz, toHz, upperDb, lowerDb }) => ({ fromHz, toHz, upperDb, lowerDb })),
+    bands,
     rmsToleranceDb, minDof: doc.minDof, resolutionHz: doc.resolutionHz, durationS: doc.durationS,
+    allowedOutsidePercent: t.allowedOutsidePercent, outerBands, defaultsApplied: defaultsApplied ?? [],
   };
+}
+
+/** Bands sorted by frequency that cover f0..fN without gaps or overlaps; errors name the key path. */
+function coveringBands(list: ProfileDocument["tolerance"]["bands"], key: string, f0: number, fN: number, file: string): ToleranceBand[] {
+  const bands = [...list].map((b, i) => ({ ...b, i })).sort((a, b) => a.fromHz - b.fromHz);
+  for (const b of bands) if (!(b.toHz > b.fromHz)) fail(file, `${key}[${b.i}].toHz`, `a frequency above fromHz ${b.fromHz}`, String(b.toHz));
+  if (bands[0]!.fromHz > f0) fail(file, `${key}[${bands[0]!.i}].fromHz`, `bands that cover the profile from ${f0} Hz`, `a first band from ${bands[0]!.fromHz} Hz`);
+  for (let k = 1; k < bands.length; k++) {
+    const a = bands[k - 1]!;
+    const b = bands[k]!;
+    if (b.fromHz < a.toHz) fail(file, `${key}[${b.i}].fromHz`, `bands that do not overlap (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+    if (b.fromHz > a.toHz) fail(file, `${key}[${b.i}].fromHz`, `bands without gaps (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+  }
+  const last = bands[bands.length - 1]!;
+  if (last.toHz < fN) fail(file, `${key}[${last.i}].toHz`, `bands that cover the profile up to ${fN} Hz`, String(last.toHz));
+  return bands.map(({ fromHz, toHz, upperDb, lowerDb }) => ({ fromHz, toHz, upperDb, lowerDb }));
 }
 
 function keyPath(path: readonly PropertyKey[]): string {
@@ -195,25 +223,43 @@ export function validateProfileDocument(doc: unknown, file: string): ProfileDocu
   return r.data;
 }
 
-/** Two-column CSV (Hz, level) breakpoints; an optional header may name the unit, e.g. `level [(m/s2)2/Hz]`. */
-function profileFromCsv(text: string, file: string): unknown {
-  const rows = Papa.parse<string[]>(text.replace(/^\ufeff/, ""), { skipEmptyLines: "greedy", comments: "#" }).data;
+/** The tolerance a two-column CSV profile gets, since the format has no place for one (common practice: a ±3 dB band is the widest in general use; ../shared/REFERENCES.md sec. 7). */
+export const CSV_PROFILE_DEFAULTS = { bandDb: 3, rmsDb: 1.5 } as const;
+
+/**
+ * Two-column CSV (Hz, level) breakpoints; an optional header may name the unit, e.g. `level [(m/s2)2/Hz]`.
+ * Comma, semicolon or tab between the fields; with a semicolon or tab, a decimal comma is read too.
+ */
+function profileFromCsv(text: string, file: string): { doc: unknown; defaults: string[] } {
+  const body = text.replace(/^\ufeff/, "");
+  const dataLines = body.split(/\r?\n/).filter((l) => l.trim() !== "" && !l.trim().startsWith("#"));
+  const delimiter = dataLines.some((l) => l.includes(";")) ? ";" : dataLines.some((l) => l.includes("\t")) ? "\t" : ",";
+  const rows = Papa.parse<string[]>(body, { skipEmptyLines: "greedy", comments: "#", delimiter }).data;
+  const num = (f: string) => {
+    const t = f.trim();
+    if (t === "") return NaN;
+    // Decimal numbers only: Number() would also read "0x14" as 20 and "0b1" as 1.
+    return decimalNumber(delimiter !== "," ? t.replace(",", ".") : t);
+  };
   let units = "g2/Hz";
   let start = 0;
-  if (rows[0] && rows[0].some((f) => Number.isNaN(decimalNumber(f)))) {
+  if (rows[0] && rows[0].some((f) => Number.isNaN(num(f)))) {
     units = csvProfileUnits(rows[0], file);
     start = 1;
   }
   const points = rows.slice(start).map((r, i) => {
     if (r.length !== 2) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "2 fields: frequency in Hz, level", received: `${r.length}` });
-    // Decimal numbers only: Number() would also read "0x14" as 20, "0b1" as 1 and "" as 0.
-    const [hz, level] = r.map(decimalNumber);
-    if (!Number.isFinite(hz!) || !Number.isFinite(level!)) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "two numbers", received: describe(r.join(",")) });
+    const [hz, level] = r.map(num);
+    if (!Number.isFinite(hz!) || !Number.isFinite(level!)) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "two numbers", received: describe(r.join(delimiter)) });
     return { hz: hz!, level: level! };
   });
   const f0 = points[0]?.hz ?? 1;
   const fN = points[points.length - 1]?.hz ?? 2;
-  return { title: file.replace(/^.*\//, ""), units, points, tolerance: { bands: [{ fromHz: f0, toHz: fN, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 } };
+  const d = CSV_PROFILE_DEFAULTS;
+  return {
+    doc: { title: file.replace(/^.*\//, ""), units, points, tolerance: { bands: [{ fromHz: f0, toHz: fN, upperDb: d.bandDb, lowerDb: d.bandDb }], rmsDb: d.rmsDb } },
+    defaults: [`tolerance band ±${d.bandDb} dB and RMS tolerance ±${d.rmsDb} dB (a CSV profile has no place for them; use a JSON or YAML profile to set them)`, "no minimum DOF, resolution or duration"],
+  };
 }
 
 /** Parse a profile from its text (JSON, YAML or CSV by extension). */
@@ -221,7 +267,8 @@ export function parseProfile(text: string, file: string): TestProfile {
   const sha = createHash("sha256").update(text).digest("hex");
   checkProfileSize(text, file);
   let doc: unknown;
-  if (/\.csv$/i.test(file)) doc = profileFromCsv(text, file);
+  let defaults: string[] = [];
+  if (/\.csv$/i.test(file)) ({ doc, defaults } = profileFromCsv(text, file));
   else if (/\.ya?ml$/i.test(file)) {
     doc = parseYamlProfile(text, file);
   } else {
@@ -248,7 +295,7 @@ export function parseProfile(text: string, file: string): TestProfile {
     }
   }
   checkDocumentDepth(doc, file);
-  return checkProfileArithmetic(normalizeProfile(validateProfileDocument(doc, file), file, sha));
+  return checkProfileArithmetic(normalizeProfile(validateProfileDocument(doc, file), file, sha, defaults));
 }
 
 // ---- Limits on what a profile file may hold (issue #12): size, nesting, tags, number forms, finite arithmetic.
