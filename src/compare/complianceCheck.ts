@@ -5,7 +5,7 @@ import type { Detrend } from "../estimate/welchPsd.js";
 import { spectralWindow, type WindowName } from "../estimate/windows.js";
 import { DECISION_RULE, dofForPower, lowerFactor, powerAt, ruleLevels, upperFactor, type PowerAt } from "./decisionRule.js";
 import type { Finding } from "../findings.js";
-import { profileLevel, type TestProfile, type ToleranceBand } from "./testProfile.js";
+import { profileLevel, profileMeanSquare, type TestProfile, type ToleranceBand } from "./testProfile.js";
 
 /**
  * Judges a measured PSD against a required profile by psdgate's decision rule (decisionRule.ts):
@@ -396,15 +396,17 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   }
 
   // RMS over the profile's range, with each end line counted for the part of its cell inside.
-  const measuredMs = bandMeanSquare(sp, f0, Math.min(fN, nyquist));
+  // A record that cannot reach the profile's top is compared over the part it covers.
+  const top = Math.min(fN, nyquist);
+  const requiredRms = top < fN ? Math.sqrt(profileMeanSquare(profile, f0, top)) : profile.rms;
+  const measuredMs = bandMeanSquare(sp, f0, top);
   const measuredRms = Math.sqrt(measuredMs);
-  const rmsDev = 20 * Math.log10(measuredRms / profile.rms);
+  const rmsDev = 20 * Math.log10(measuredRms / requiredRms);
   const tol = profile.rmsToleranceDb;
   const rmsOk = tol === undefined || (rmsDev <= tol.upper && rmsDev >= -tol.lower);
   // Each line's contribution to that mean square, for the Satterthwaite DOF of the sum.
   const contrib = new Float64Array(half + 1);
   let nc = 0;
-  const top = Math.min(fN, nyquist);
   for (let i = 0; i <= half; i++) {
     const lo = Math.max(f0, (i - 0.5) * df);
     const hi = Math.min(top, (i + 0.5) * df);
@@ -413,7 +415,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const rmsDof = nu > 0 ? sumDof(contrib, nc, nu, kernel.lineCorrelation) : 0;
   let rmsShown = false;
   if (tol !== undefined && rmsDof > 0 && measuredMs > 0) {
-    const ms0 = profile.rms * profile.rms;
+    const ms0 = requiredRms * requiredRms;
     const hiLimit = ms0 * Math.pow(10, tol.upper / 10);
     const loLimit = ms0 * Math.pow(10, -tol.lower / 10);
     rmsShown = measuredMs / hiLimit > upperFactor(rmsDof, levels.upper.rmsTest) || measuredMs / loLimit < lowerFactor(rmsDof, levels.lower.rmsTest);
@@ -451,7 +453,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   }
   if (shownOuter > 0) fails.push({ code: "OUTER_LIMIT", text: `${shownOuter} line(s) shown beyond the outer limits, which no line may cross` });
   if (rmsShown) {
-    fails.push({ code: "RMS_OUTSIDE", text: `RMS ${measuredRms.toPrecision(4)} is ${signed(rmsDev)} dB from the required ${profile.rms.toPrecision(4)}, shown outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB` });
+    fails.push({ code: "RMS_OUTSIDE", text: `RMS ${measuredRms.toPrecision(4)} is ${signed(rmsDev)} dB from the required ${requiredRms.toPrecision(4)}${top < fN ? ` (over the ${f0}–${top} Hz the record covers)` : ""}, shown outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB` });
   } else if (!rmsOk) {
     blockers.push({ code: "RMS_UNRESOLVED", text: `RMS ${signed(rmsDev)} dB is outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB as measured, but within what chance explains at ${rmsDof.toFixed(0)} DOF` });
   }
@@ -494,7 +496,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   if (verdict === "pass") findings.push({ code: "PASS", text: `no line and not the RMS shown outside tolerance across ${m} lines, with the power to see a ${DECISION_RULE.departureDb} dB departure (${pct(power.least)}); false-fail rate here ${pctSmall(rule.falseFailAtProfile)} if the PSD equals the profile` });
   return {
     channel: sp.name, verdict, reasons: findings.map((f) => f.text), findings, lines, excursions, unjudged,
-    rms: { measured: measuredRms, required: profile.rms, deviationDb: rmsDev, upperDb: tol?.upper, lowerDb: tol?.lower, ok: rmsOk, shown: rmsShown, dof: rmsDof },
+    rms: { measured: measuredRms, required: requiredRms, deviationDb: rmsDev, upperDb: tol?.upper, lowerDb: tol?.lower, ok: rmsOk, shown: rmsShown, dof: rmsDof },
     dof: { achieved: nu, required, forPower, ok: dofOk },
     rule,
   };

@@ -117,6 +117,18 @@ export function profileLevel(p: Pick<TestProfile, "segments">, f: number): numbe
   return seg.g1 * Math.pow(f / seg.f1, seg.exponent);
 }
 
+/** Integral of the profile over [f1, f2] (clipped to its range), segment by segment in closed form. */
+export function profileMeanSquare(p: Pick<TestProfile, "segments">, f1: number, f2: number): number {
+  let area = 0;
+  for (const s of p.segments) {
+    const a = Math.max(f1, s.f1);
+    const b = Math.min(f2, s.f2);
+    if (b <= a) continue;
+    area += powerLawArea(a, b, s.g1 * Math.pow(a / s.f1, s.exponent), s.exponent);
+  }
+  return area;
+}
+
 function fail(file: string, keyPath: string, expected: string, received?: string): never {
   throw new InputError("PROFILE_INVALID", { file, keyPath, expected, received });
 }
