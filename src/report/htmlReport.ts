@@ -5,7 +5,7 @@ import { accelLabel, densityLabel } from "../units.js";
 import { SHAKER_CAUTION, VERDICT_CAUTION } from "./cautions.js";
 import type { CheckResult } from "../checkRecording.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
-import { fixed, sig, signedDb } from "./format.js";
+import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 
@@ -90,9 +90,8 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const vals: number[] = [];
   // The y range follows the profile's band (roll-off outside it would squash the plot); the rest is clipped.
   for (let k = 0; k < f.length; k++) if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
-  vals.push(...dn, ...up);
-  const ymin = Math.min(...vals) / 4;
-  const ymax = Math.max(...vals) * 3;
+  const ymin = minOf(vals, dn, up) / 4;
+  const ymax = maxOf(vals, dn, up) * 3;
   const psdPlot = svgPlot({
     id: `psd-${n}`, title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * r.analysis.settings.confidence, 0)} % confidence band`,
     xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(c.units)})`, xDomain: [lo, hi], yDomain: [ymin, ymax], yLog: true,
@@ -105,7 +104,7 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
     ],
   });
   const devs = comp.lines.map((l) => l.deviationDb);
-  const dmax = Math.max(6, ...comp.lines.map((l) => l.upperDb + 1), ...devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
+  const dmax = maxOf([6], comp.lines.map((l) => l.upperDb + 1), devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
   const devPlot = svgPlot({
     id: `dev-${n}`, title: "Deviation from the required profile", xLabel: "frequency (Hz)", yLabel: "deviation (dB)",
     xDomain: [Math.max(lo, f0), Math.min(hi, fN)], yDomain: [-dmax, dmax], yLog: false,
