@@ -32,7 +32,6 @@ export { checkHtml } from "./report/htmlReport.js";
 export { profileJson, profileText } from "./report/profileText.js";
 export { writeAtomic } from "./report/writeAtomic.js";
 export { createTimeHistoryWriter, type TimeHistoryWriter } from "./report/timeHistoryWriter.js";
-export { runCli } from "./cli/main.js";
 export { CrossSpectrumAccumulator, crossSpectralDensity, type CrossSpectrumSums } from "./estimate/crossSpectrum.js";
 export { frequencyResponse, findResonances, type FrequencyResponse, type Resonance, type ResonanceOptions } from "./estimate/frequencyResponse.js";
 export { powerLawSpectrum, lineSpectrum, spectralMoments, type InputSpectrum, type SpectralMoments } from "./estimate/inputSpectrum.js";
