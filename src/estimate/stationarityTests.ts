@@ -228,7 +228,8 @@ export function stationarityFinding(stretchMeanSquares: ArrayLike<number>, stret
   for (let i = 0; i < stretchMeanSquares.length; i++) if (Number.isFinite(stretchMeanSquares[i]!)) finite.push(stretchMeanSquares[i]!);
   const count = stretchMeanSquares.length;
   const departing = departingStretches(stretchMeanSquares, stretchS, startS, options.departing ?? 3);
-  if (finite.length < MIN_STRETCHES) return { tested: false, stretchS, stretches: count, pooled: 1, stationary: true, departing };
+  // Too few values, or all alike (a constant record): nothing to test.
+  if (finite.length < MIN_STRETCHES || finite.every((v) => v === finite[0])) return { tested: false, stretchS, stretches: count, pooled: 1, stationary: true, departing };
   const pooled = Math.ceil(finite.length / maxValues);
   const values: number[] = [];
   for (let i = 0; i + pooled <= finite.length; i += pooled) {
