@@ -16,6 +16,7 @@ import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
 import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
+import { registerRide } from "./ride.js";
 
 // Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
 // load on first use, so that a plain `psd` starts fast.
@@ -274,6 +275,7 @@ export function buildProgram(io: CliIo): Command {
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
     });
 
+  registerRide(program, io);
   return program;
 }
 

@@ -73,14 +73,14 @@ export interface DailyExposure {
 }
 
 export type DirectiveBand = "below the action value" | "at or above the action value" | "above the limit value";
-export type ZoneBand = "below the zone" | "in the zone" | "above the zone";
+export type ZoneBand = "below the caution zone" | "in the caution zone" | "above the caution zone";
 
 function directiveBand(v: number, action: number, limit: number): DirectiveBand {
   return v > limit ? "above the limit value" : v >= action ? "at or above the action value" : "below the action value";
 }
 
 function zoneBand(v: number, lower: number, upper: number): ZoneBand {
-  return v > upper ? "above the zone" : v >= lower ? "in the zone" : "below the zone";
+  return v > upper ? "above the caution zone" : v >= lower ? "in the caution zone" : "below the caution zone";
 }
 
 /** Daily exposure from one recording taken as representative of `durationS` of exposure a day. */
