@@ -110,3 +110,14 @@ describe("psd says when a record fails the stationarity test", () => {
     expect(j.input.window).toEqual({ fromS: 0, toS: 60, frames: 60000 });
   });
 });
+
+describe("--from/--to on psd and check (CLI)", () => {
+  it("psd and check record the window in their JSON and analyse only it", async () => {
+    const p = JSON.parse((await cli("psd", "samples/tern7-flight.csv", "--from", "5", "--to", "15", "--json")).stdout);
+    expect(p.input.window).toEqual({ fromS: 5, toS: 15, frames: 40960 });
+    expect(p.channels[0].stats.count).toBe(40960);
+    const c = await cli("check", "samples/tern7-flight.csv", "-p", "samples/profiles/tern7-gimbal.yaml", "--from", "5", "--json");
+    const j = JSON.parse(c.stdout);
+    expect(j.input.window).toEqual({ fromS: 5, toS: 20, frames: 61440 });
+  });
+});

@@ -37,7 +37,7 @@ export function rideText(r: RideResult, version: string): string {
   if (r.seat) out.push(`  seat       SEAT ${fixed(100 * r.seat.seat, 1)} %: seat z a_w ${sig(r.seat.awSeat, 4)} over floor z (${r.seat.floorChannel}) ${sig(r.seat.awFloor, 4)} m/s², Wk on both`);
   for (const x of r.axes) {
     const s = x.stationarity;
-    if (s.tested) out.push(`  ${x.axis} level    ${s.stationary ? "stationary" : "NOT stationary"} by reverse arrangements on ${s.stretches} weighted stretches of ${sig(s.stretchS, 3)} s (A = ${s.reverseArrangements!.statistic}, accepted ${s.reverseArrangements!.acceptAbove} < A <= ${s.reverseArrangements!.acceptAtMost})`);
+    if (s.tested) out.push(`  ${x.axis} level    ${s.stationary ? "stationary" : "NOT stationary"} by reverse arrangements on ${s.stretches} weighted stretches of ${sig(s.stretchS, 3)} s${s.pooled > 1 ? `, pooled ${s.pooled} at a time` : ""} (A = ${s.reverseArrangements!.statistic}, accepted ${s.reverseArrangements!.acceptAbove} < A <= ${s.reverseArrangements!.acceptAtMost})`);
   }
   out.push(...r.doubts.map((d) => `  DOUBT      ${d}`), ...r.notes.map((n) => `  note       ${n}`));
   out.push("", ...RIDE_CAUTIONS.map((c) => `  caution    ${c}`), "");
