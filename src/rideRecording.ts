@@ -7,11 +7,13 @@ import { InputError, quoted } from "./errors.js";
 import { stationarityFinding, type StationarityFinding } from "./estimate/stationarityTests.js";
 import { normalizeWelchOptions } from "./estimate/welchOptions.js";
 import { WelchWeightedMeanSquare } from "./estimate/welchTimeWeights.js";
+import { BandSpectrogramAccumulator, thirdOctaveBands, type BandSpectrogram } from "./estimate/bandSpectrogram.js";
+import { SegmentPower } from "./estimate/segmentPower.js";
 import { spectralWindow } from "./estimate/windows.js";
 import { openTimeHistory } from "./read/openTimeHistory.js";
 import type { TimeHistorySource } from "./read/timeHistory.js";
 import type { BiquadCascade } from "./weight/bilinearBiquads.js";
-import { weightingPowerGains, type WeightingName } from "./weight/isoWeightings.js";
+import { THIRD_OCTAVE_CENTRES_HZ, weightingPowerGains, type WeightingName } from "./weight/isoWeightings.js";
 import { VibrationDoseAccumulator, type VibrationDose } from "./weight/vibrationDose.js";
 import { designWeightingFilter, MIN_WEIGHTING_RATE_HZ, weightingCascade, type WeightingFilterDesign } from "./weight/weightingFilter.js";
 
@@ -31,6 +33,8 @@ export interface RideOptions extends Omit<AnalysisOptions, "channels" | "resultU
   floor?: string | undefined;
   /** Integration time of the running r.m.s. (MTVV), s; default 1. */
   runningRmsS?: number | undefined;
+  /** Also build a one-third-octave spectrogram of each axis (for the report): stretches of two segments. */
+  spectrogram?: boolean | undefined;
 }
 
 export interface RideAxis {
@@ -49,6 +53,8 @@ export interface RideAxis {
   /** Reverse-arrangements test on the weighted stretch mean squares. */
   stationarity: StationarityFinding;
   filter: { maxErrorPct: number; maxErrorAtHz: number; heldSamples: number };
+  /** Unweighted one-third-octave spectrogram, when asked for. */
+  spectrogram?: BandSpectrogram | undefined;
 }
 
 export interface RideResult {
@@ -68,8 +74,9 @@ export interface RideResult {
 export const ROUTE_TOLERANCE = 0.01;
 
 /** The extra accumulator: weights each listed channel in the time domain and feeds its dose figures. */
-class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: WeightingFilterDesign; heldSamples: number; welchMeanSquare: number }[]> {
+class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: WeightingFilterDesign; heldSamples: number; welchMeanSquare: number; spectrogram?: BandSpectrogram | undefined }[]> {
   private filters: BiquadCascade[] = [];
+  private spectrograms: (BandSpectrogramAccumulator | undefined)[] = [];
   private welch: WelchWeightedMeanSquare[] = [];
   private designs: WeightingFilterDesign[] = [];
   private doses: VibrationDoseAccumulator[] = [];
@@ -77,7 +84,7 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
 
   constructor(
     private readonly file: string, private readonly plan: { index: number; weighting: WeightingName }[], private readonly runningRmsS: number,
-    private readonly welchGeometry: { window: Float64Array; hop: number },
+    private readonly welchGeometry: { window: Float64Array; hop: number; detrend: "none" | "mean" | "linear"; spectrogram: boolean },
   ) {}
 
   start(designRateHz: number): void {
@@ -92,12 +99,18 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
     this.filters = this.designs.map(weightingCascade);
     this.doses = this.plan.map(() => new VibrationDoseAccumulator(designRateHz, { runningRmsS: this.runningRmsS }));
     this.welch = this.plan.map(() => new WelchWeightedMeanSquare(this.welchGeometry.window, this.welchGeometry.hop));
+    const g = this.welchGeometry;
+    const n = g.window.length;
+    const power = new SegmentPower(n);
+    const bands = thirdOctaveBands(THIRD_OCTAVE_CENTRES_HZ.filter((c) => c * 2 ** (1 / 6) < designRateHz / 2));
+    this.spectrograms = this.plan.map(() => (g.spectrogram ? new BandSpectrogramAccumulator({ segmentLength: n, hop: g.hop, window: g.window, detrend: g.detrend }, power, 2 * n, bands, designRateHz) : undefined));
   }
 
   push(blocks: Float64Array[], frames: number): void {
     if (this.scratch.length < frames) this.scratch = new Float64Array(frames);
     const y = this.scratch;
     for (let i = 0; i < this.plan.length; i++) {
+      this.spectrograms[i]?.push(blocks[this.plan[i]!.index]!, frames);
       this.filters[i]!.process(blocks[this.plan[i]!.index]!, y, frames);
       this.doses[i]!.push(y, frames);
       this.welch[i]!.push(y, frames);
@@ -105,7 +118,7 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
   }
 
   finish(sampleRateHz: number) {
-    return this.plan.map((_, i) => ({ dose: this.doses[i]!.finish(sampleRateHz), design: this.designs[i]!, heldSamples: this.filters[i]!.heldSamples, welchMeanSquare: this.welch[i]!.finish().meanSquare }));
+    return this.plan.map((_, i) => ({ dose: this.doses[i]!.finish(sampleRateHz), design: this.designs[i]!, heldSamples: this.filters[i]!.heldSamples, welchMeanSquare: this.welch[i]!.finish().meanSquare, spectrogram: this.spectrograms[i]?.finish(sampleRateHz) }));
   }
 }
 
@@ -155,7 +168,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     overlap: options.overlap ?? 0.75,
   };
   const geometry = normalizeWelchOptions({ ...options, ...welch }, info.sampleRateHz);
-  const weighted = new WeightedDoses(info.file, plan, runningRmsS, { window: spectralWindow(geometry.window, geometry.segmentLength), hop: geometry.hop });
+  const weighted = new WeightedDoses(info.file, plan, runningRmsS, { window: spectralWindow(geometry.window, geometry.segmentLength), hop: geometry.hop, detrend: geometry.detrend, spectrogram: options.spectrogram === true });
   const analysis = await analyzeSource(source, {
     ...options, ...welch, channels: indexes.map((i) => String(i + 1)), resultUnits: "m/s2", accumulators: [weighted], stretchS: options.stretchS ?? runningRmsS,
   });
@@ -192,6 +205,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     return {
       axis, channel: ch.name, weighting, rule: rules[axis], dose: d, awFromPsd, awWelchWeighted, routeRatio, basicMethod, stationarity,
       filter: { maxErrorPct: r.design.maxErrorPct, maxErrorAtHz: r.design.maxErrorAtHz, heldSamples: r.heldSamples },
+      spectrogram: r.spectrogram,
     };
   });
   const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));

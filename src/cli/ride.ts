@@ -53,6 +53,8 @@ interface RideFlags extends ParsedCommon {
   runningRms?: number;
   json?: boolean;
   quiet?: boolean;
+  report?: string;
+  force?: boolean;
 }
 
 /** Registers `psdgate ride` onto the program. */
@@ -70,6 +72,8 @@ export function registerRide(program: Command, io: CliIo): void {
     .option("--floor <channel>", "vertical floor channel beneath the seat: adds the seat's effective amplitude transmissibility (SEAT)")
     .option("--running-rms <s>", "integration time of the running r.m.s. and of the stationarity stretches (default 1 s)", numberOption("--running-rms", (x) => x > 0 && x <= 60, "an integration time in s, 0 < t <= 60"))
     .option("--json", "print the result as JSON (SI units)")
+    .option("--report <out.html>", "also write a self-contained HTML report: level over time, spectrograms, spectra, exposure against the limit values")
+    .option("--force", "replace an existing report file")
     .option("-q, --quiet", "no progress bar")
     .action(async (file: string, o: RideFlags) => {
       if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "channels given by --axes (and --floor) for ride", received: o.channel.join(",") });
@@ -80,9 +84,14 @@ export function registerRide(program: Command, io: CliIo): void {
       const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
       let r;
       try {
-        r = await rideRecording(file, { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, onProgress: (d, t) => progress.update(d, t) });
+        r = await rideRecording(file, { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, spectrogram: o.report !== undefined, onProgress: (d, t) => progress.update(d, t) });
       } finally {
         progress.end();
+      }
+      if (o.report !== undefined) {
+        const { rideHtml } = await import("../report/rideHtml.js");
+        const { writeAtomic } = await import("../report/writeAtomic.js");
+        await writeAtomic(o.report, rideHtml(r, VERSION, new Date()), { inputs: [file], force: o.force, option: "--report" });
       }
       io.stdout(o.json ? JSON.stringify(rideJson(r, VERSION)) + "\n" : rideText(r, VERSION));
     });
