@@ -28,14 +28,18 @@ export class StretchMeanSquares {
       let n = this.n;
       let shift = this.shift;
       this.seen += end - i;
+      if (shift !== shift) {
+        // The shift is the stretch's first finite sample.
+        while (i < end && x[i]! - x[i]! !== 0) i++;
+        if (i < end) shift = x[i]!;
+      }
       for (; i < end; i++) {
-        const v = x[i]!;
-        if (v - v !== 0) continue;
-        if (shift !== shift) shift = v;
-        const d = v - shift;
-        s1 += d;
-        s2 += d * d;
-        n++;
+        const d = x[i]! - shift;
+        if (d - d === 0) {
+          s1 += d;
+          s2 += d * d;
+          n++;
+        }
       }
       if (this.seen === len) {
         // Mean square about the stretch mean: (S2 - S1^2 / n) / n.

@@ -115,4 +115,12 @@ describe("stationarity on stretch mean squares, seeded Monte Carlo on records ma
     expect(ra.length).toBe(10);
     ra.forEach((v, i) => expect(rb[i]).toBeCloseTo(v, 10));
   });
+  it("StretchMeanSquares leaves non-finite samples out of their stretch, even a leading one; an all-NaN stretch is NaN", () => {
+    const a = new StretchMeanSquares(4);
+    a.push(Float64Array.from([NaN, 1, 3, 2, NaN, NaN, NaN, NaN, 5, 5, 5, Infinity]), 12);
+    const r = a.result();
+    expect(r[0]).toBeCloseTo(2 / 3, 12); // 1, 3, 2 about their mean 2
+    expect(r[1]).toBeNaN();
+    expect(r[2]).toBe(0);
+  });
 });
