@@ -59,11 +59,14 @@ interface RideFlags extends ParsedCommon {
 
 /** Registers `psdgate ride` onto the program. */
 export function registerRide(program: Command, io: CliIo): void {
-  addSpectrumOptions(addReadingOptions(
+  const cmd = addSpectrumOptions(addReadingOptions(
     program.command("ride").argument("<file>", "ride recording: CSV or WAV").description("whole-body vibration of a ride: ISO 2631-1 weighted r.m.s., VDV, MTVV, daily exposure A(8) and VDV, comfort, seat transmissibility"),
-  ))
+  ));
+  // Channels come from --axes and --floor, and results are SI: these two shared options stay out of ride's help (and are refused).
+  for (const opt of cmd.options) if (opt.long === "--channel" || opt.long === "--result-units") opt.hideHelp();
+  cmd
     .requiredOption("--axes <pairs>", "channel of each axis, e.g. x=seat_x,y=seat_y,z=seat_z (z vertical)", parseAxes)
-    .option("--posture <p>", `${POSTURES.join(", ")} (default seated)`, (t: string) => {
+    .option("--posture <p>", POSTURES.join(", "), (t: string) => {
       const p = t.toLowerCase() as Posture;
       if (!POSTURES.includes(p)) throw new InputError("OPTION_INVALID", { option: "--posture", expected: `one of ${POSTURES.join(", ")}`, received: quoted(t) });
       return p;
@@ -75,6 +78,7 @@ export function registerRide(program: Command, io: CliIo): void {
     .option("--report <out.html>", "also write a self-contained HTML report: level over time, spectrograms, spectra, exposure against the limit values")
     .option("--force", "replace an existing report file")
     .option("-q, --quiet", "no progress bar")
+    .addHelpText("after", "\nRide's Welch defaults differ from psd's: 0.125 Hz lines (--resolution) and 75 % overlap (--overlap).\nResults are in SI units (m/s², m/s^1.75); --units and --scale say what the file holds.\nAn engineering estimate from one recording, not an occupational-health assessment: local regulations and competent persons decide.\n")
     .action(async (file: string, o: RideFlags) => {
       if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "channels given by --axes (and --floor) for ride", received: o.channel.join(",") });
       if (o.resultUnits !== undefined && o.resultUnits !== "m/s2") throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: "m/s2 (ride results are SI)", received: o.resultUnits });
