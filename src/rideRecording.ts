@@ -65,7 +65,7 @@ export interface RideResult {
   totalValue: { health: number; comfort: number };
   comfort: { reactions: string[] };
   exposure: DailyExposure;
-  seat?: { floorChannel: string; awFloor: number; awFloorFromPsd: number; awSeat: number; seat: number } | undefined;
+  seat?: { floorChannel: string; awFloor: number; awFloorFromPsd: number; awFloorWelchWeighted: number; awSeat: number; seat: number } | undefined;
   notes: string[];
   doubts: string[];
 }
@@ -223,7 +223,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     const floorDose = results[c]!.dose;
     const zAxis = rideAxes.find((a) => a.axis === "z");
     if (zAxis === undefined) notes.push("--floor needs z on the seat for the seat's transmissibility (vertical, Wk on both)");
-    else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
+    else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
   }
   return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, seat, notes, doubts };
 }

@@ -89,7 +89,7 @@ export function rideJson(r: RideResult, version: string) {
       directive2002_44_EC: { a8: e.directive.a8, vdv: e.directive.vdv, ...DIRECTIVE_2002_44_EC },
       iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...ISO_2631_HEALTH_ZONE },
     },
-    seat: r.seat ? { floorChannel: r.seat.floorChannel, awFloor: r.seat.awFloor, awFloorFromPsd: r.seat.awFloorFromPsd, awSeat: r.seat.awSeat, seat: r.seat.seat } : null,
+    seat: r.seat ? { floorChannel: r.seat.floorChannel, awFloor: r.seat.awFloor, awFloorFromPsd: r.seat.awFloorFromPsd, awFloorWelchWeighted: r.seat.awFloorWelchWeighted, awSeat: r.seat.awSeat, seat: r.seat.seat } : null,
     notes: r.notes,
     doubts: r.doubts,
     cautions: RIDE_CAUTIONS,
