@@ -61,8 +61,10 @@ export function cascadeMagnitude(sections: readonly DigitalBiquad[], gain: numbe
 /**
  * A cascade of biquads run over blocks, transposed direct form II (one state pair per section).
  * State carries across blocks. Before the first sample the state is set to the steady state for a
- * constant input equal to that sample (as scipy.signal.lfilter_zi does), so a DC offset such as
- * gravity on a vertical axis starts no transient. A non-finite input is replaced by the last finite
+ * constant input (as scipy.signal.lfilter_zi gives it) equal to the mean of the first block, so a DC
+ * offset such as gravity on a vertical axis starts no transient. Starting at the first sample instead
+ * (lfilter_zi * x[0]) would kick the 0.4 Hz high-pass with a step of that sample's noise, which on a
+ * zero-mean record shows up as a second-long transient in the first MTVV window. A non-finite input is replaced by the last finite
  * one (counted in `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
  */
 export class BiquadCascade {
@@ -78,6 +80,16 @@ export class BiquadCascade {
     this.coef = new Float64Array(5 * this.count);
     this.state = new Float64Array(2 * this.count);
     sections.forEach((q, i) => this.coef.set([q.b0, q.b1, q.b2, q.a1, q.a2], 5 * i));
+  }
+
+  /**
+   * Start the filter as though the input had been u forever (steady state of every section). Called by
+   * the first `process` with the mean of its block unless called before.
+   */
+  startAt(u: number): void {
+    this.settle(u);
+    this.last = u;
+    this.started = true;
   }
 
   /** Steady state of every section for the constant input u (before the gain). */
@@ -98,16 +110,17 @@ export class BiquadCascade {
   process(x: Float64Array, y: Float64Array, frames: number): void {
     if (frames === 0) return;
     if (!this.started) {
-      let first = 0;
+      // The level before the record: the mean of the first block's finite samples (the DC estimate).
+      let sum = 0;
+      let n = 0;
       for (let i = 0; i < frames; i++) {
-        if (Number.isFinite(x[i]!)) {
-          first = x[i]!;
-          break;
+        const v = x[i]!;
+        if (v - v === 0) {
+          sum += v;
+          n++;
         }
       }
-      this.settle(first);
-      this.last = first;
-      this.started = true;
+      this.startAt(n > 0 ? sum / n : 0);
     }
     let held = 0;
     let last = this.last;
