@@ -189,9 +189,11 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     const stationarity = stationarityFinding(d.stretchMeanSquares, d.stretchS, analysis.window.fromS);
     const awWelchWeighted = Math.sqrt(r.welchMeanSquare);
     const routeRatio = awFromPsd / awWelchWeighted;
-    if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE)) doubts.push(`${axis} (${ch.name}): a_w from the PSD is ${((routeRatio - 1) * 100).toFixed(2)} % off a_w in time over the same samples (allowed ±${100 * ROUTE_TOLERANCE} %)`);
+    const noPsd = ch.psd.averages === 0;
+    if (noPsd) notes.push(`${axis}: the window holds no whole Welch segment of ${analysis.settings.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser --resolution or a shorter --segment gives one)`);
+    else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE)) doubts.push(`${axis} (${ch.name}): a_w from the PSD is ${((routeRatio - 1) * 100).toFixed(2)} % off a_w in time over the same samples (allowed ±${100 * ROUTE_TOLERANCE} %)`);
     const plain = awFromPsd / d.rms;
-    if (Math.abs(plain - 1) > ROUTE_TOLERANCE) notes.push(`${axis}: a_w from the PSD is ${((plain - 1) * 100).toFixed(2)} % off the plain time average because Welch tapers the record's ends and drops its last partial segment, which matters on a non-stationary record; a_w is the time-domain value`);
+    if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE) notes.push(`${axis}: a_w from the PSD is ${((plain - 1) * 100).toFixed(2)} % off the plain time average because Welch tapers the record's ends and drops its last partial segment, which matters on a non-stationary record; a_w is the time-domain value`);
     if (r.heldSamples > 0) doubts.push(`${axis} (${ch.name}): ${r.heldSamples} non-finite sample(s) were held at the last finite value before weighting`);
     if (r.design.maxErrorPct > 2) notes.push(`${axis}: at ${fs} Hz the time-domain ${weighting} is up to ${r.design.maxErrorPct.toFixed(1)} % off the analog weighting (at ${r.design.maxErrorAtHz} Hz); VDV, MTVV and crest factor carry that error, a_w from the PSD does not`);
     if (stationarity.tested && !stationarity.stationary) {
@@ -199,7 +201,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
       const dep = stationarity.departing[0];
       notes.push(`${axis}: weighted level not stationary (reverse arrangements A = ${t.statistic} outside ${t.acceptAbove} < A <= ${t.acceptAtMost}, ${t.n} values)${dep ? `; most departing ${dep.fromS.toFixed(0)}-${dep.toS.toFixed(0)} s at ${dep.levelDb >= 0 ? "+" : ""}${dep.levelDb.toFixed(1)} dB` : ""}: a_w averages unlike stretches, and A(8) assumes the recording stands for the whole exposure`);
     }
-    for (const w of ch.doubts) doubts.push(`${axis} (${ch.name}): ${w}`);
+    for (const f of ch.doubtFindings) if (f.code !== "TOO_SHORT") doubts.push(`${axis} (${ch.name}): ${f.text}`);
     const basicMethod = basicMethodCheck(d.rms, d.crestFactor, d.mtvv, d.vdv, d.durationS);
     if (!basicMethod.adequate) notes.push(`${axis}: the basic r.m.s. method may underestimate (${basicMethod.exceeded.join(", ")}): judge by VDV and MTVV as well (ISO 2631-1 6.3)`);
     return {

@@ -71,6 +71,12 @@ describe("rideRecording on records made here", () => {
     expect(r.axes[0]!.basicMethod.vdvRatio).toBeCloseTo(3 ** 0.25, 1);
     expect(r.axes[0]!.stationarity.stationary).toBe(true);
   });
+  it("a window shorter than one Welch segment keeps the time-domain figures and says the PSD route is missing (no NaN doubt)", async () => {
+    const r = await rideRecording(sample, { ...sampleOptions, fromS: 10, toS: 12 });
+    expect(r.axes[2]!.dose.rms).toBeGreaterThan(0);
+    expect(r.doubts.filter((d) => d.includes("NaN"))).toEqual([]);
+    expect(r.notes.join()).toContain("no whole Welch segment");
+  });
   it("input errors: an unknown axis channel names --axes; a rate below 200 Hz is refused", async () => {
     const file = write("slow.wav", 100, 30, () => [0, 0, 0, 0]);
     await expect(rideRecording(file, { axes: { z: "seat_z" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(/option --axes.*CHANNEL_NOT_FOUND/);
