@@ -17,3 +17,5 @@ for (const [profile, duration, rate, channels, seed, out] of runs) {
 }
 // The ride recording is not a profile synthesis: its own script models the vehicle (scripts/make-ride-sample.mjs).
 execFileSync("node", ["scripts/make-ride-sample.mjs"], { stdio: "inherit" });
+// Three-channel fixture survey (base, bracket tip, cable clamp) for `psdgate transfer`: its own script.
+execFileSync("node", ["scripts/make-fixture-survey.mjs"], { stdio: "inherit" });

@@ -44,3 +44,17 @@ export { reverseArrangementsTest, runTest, stationarityFinding, inversionDistrib
 export { WelchWeightedMeanSquare } from "./estimate/welchTimeWeights.js";
 export { axisRules, dailyExposure, vibrationTotalValue, comfortReactions, basicMethodCheck, seatTransmissibility, DIRECTIVE_2002_44_EC, ISO_2631_HEALTH_ZONE, COMFORT_REACTIONS, BASIC_METHOD_LIMITS, POSTURES, AXES, type Posture, type Axis, type AxisRule, type DailyExposure } from "./compare/wholeBodyExposure.js";
 export { type PassAccumulator, type FrameWindow, stationarityNote } from "./analyzeRecording.js";
+export { CrossSpectrumAccumulator, crossSpectralDensity, type CrossSpectrumSums } from "./estimate/crossSpectrum.js";
+export { frequencyResponse, findResonances, type FrequencyResponse, type Resonance, type ResonanceOptions } from "./estimate/frequencyResponse.js";
+export { powerLawSpectrum, lineSpectrum, spectralMoments, type InputSpectrum, type SpectralMoments } from "./estimate/inputSpectrum.js";
+export { absoluteTransmissibilitySquared, relativeDisplacementSquared, sdofResponse, milesRms, milesRelativeDisplacementRms, type SdofResponse } from "./estimate/sdofResponse.js";
+export { riceRates, davenportPeakFactor, type RiceRates } from "./estimate/peakStatistics.js";
+export { narrowBandDamage, SN_DEFAULTS, type SnCurve } from "./estimate/fatigueDamage.js";
+export { RainflowCounter, type RainflowCycle } from "./estimate/rainflow.js";
+export { velocityPsd, displacementPsd, spectrumMotion, type Motion } from "./estimate/kinematics.js";
+export { readPsdTable, parsePsdTable, type PsdTable } from "./read/psdTable.js";
+export { analyzeTransfer, analyzeTransferSource, type TransferOptions, type TransferAnalysis, type TransferOutput } from "./analyzeTransfer.js";
+export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sourceKind, type SpectrumSource, type SourceKind, type ResponseSpectra, type ResponseComparison } from "./responseSpectra.js";
+export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
+export { transferHtml } from "./report/transferHtml.js";
+export { responseJson, responseText } from "./report/responseReport.js";

@@ -58,8 +58,11 @@ export function psdJson(a: RecordingAnalysis, version: string) {
       dof: finiteOrNull(c.psd.dof),
       rmsTime: finiteOrNull(c.parseval.rmsTime),
       rmsPsd: finiteOrNull(c.parseval.rmsPsd),
+      rmsSegments: finiteOrNull(c.parseval.rmsSegments),
       parsevalRatio: finiteOrNull(c.parseval.ratio),
       parsevalTolerance: c.parseval.tolerance,
+      parsevalToleranceFrom: c.parseval.toleranceFrom,
+      belowFirstLineShare: finiteOrNull(c.parseval.belowFirstLineShare),
       windowedMeanSquare: finiteOrNull(c.psd.windowedMeanSquare),
       band: c.band ? { fminHz: c.band.fminHz, fmaxHz: c.band.fmaxHz, rms: finiteOrNull(c.band.rms) } : null,
       peaks: c.peaks,
@@ -67,6 +70,8 @@ export function psdJson(a: RecordingAnalysis, version: string) {
       stationarity: stationarityJson(c.stationarity),
       warnings: c.warnings,
       doubts: c.doubts,
+      notes: c.notes,
+      doubtFindings: c.doubtFindings,
     })),
   };
 }
