@@ -13,6 +13,7 @@ import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } f
 import { WelchAccumulator } from "./estimate/welchPsd.js";
 import { spectralWindow } from "./estimate/windows.js";
 import type { CsvReadOptions } from "./read/csvTimeHistory.js";
+import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
 import { openTimeHistory } from "./read/openTimeHistory.js";
 import type { ChannelInfo, RecordingInfo, TimeHistorySource } from "./read/timeHistory.js";
 import type { AccelUnit } from "./units.js";
@@ -147,10 +148,29 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     if (v !== undefined && !(v >= 0 && Number.isFinite(v))) throw new InputError("OPTION_INVALID", { option: name, expected: "a frequency in Hz >= 0", received: String(v) });
   }
   const settings = normalizeWelchOptions(options, info.sampleRateHz);
+  // Memory is bounded before it is taken: channels x segment length (read/analysisLimits.ts).
+  const spectrumChannels = options.spectrum !== false ? select.length : 0;
+  if (spectrumChannels * settings.segmentLength > MAX_SPECTRUM_SAMPLES) {
+    await source.close?.();
+    throw new InputError("ANALYSIS_TOO_LARGE", {
+      file: info.file, expected: `channels x segment length at most ${MAX_SPECTRUM_SAMPLES} (${Math.max(1, Math.floor(MAX_SPECTRUM_SAMPLES / settings.segmentLength))} channels at ${settings.segmentLength} points)`,
+      received: `${spectrumChannels} channels x ${settings.segmentLength}`, hint: "select fewer channels with --channel, or use a shorter --segment or a coarser --resolution",
+    });
+  }
   const designFs = info.sampleRateHz;
-  const { first, end } = frameWindow(options, designFs);
   const stretchS = options.stretchS ?? 1;
-  if (!(stretchS > 0 && Number.isFinite(stretchS))) throw new InputError("OPTION_INVALID", { option: "--stretch", expected: "a stretch length in s above 0", received: String(stretchS) });
+  const extras = options.accumulators ?? [];
+  let first = 0;
+  let end = Infinity;
+  try {
+    ({ first, end } = frameWindow(options, designFs));
+    if (!(stretchS > 0 && Number.isFinite(stretchS))) throw new InputError("OPTION_INVALID", { option: "--stretch", expected: "a stretch length in s above 0", received: String(stretchS) });
+    for (const e of extras) e.start(designFs);
+  } catch (e) {
+    // A read that will not come releases what the source holds (a large CSV's waiting worker).
+    await source.close?.();
+    throw e;
+  }
   const window = spectralWindow(settings.window, settings.segmentLength);
   const power = new SegmentPower(settings.segmentLength);
   const spectrum = options.spectrum !== false;
@@ -160,8 +180,6 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
   const stretchLength = Number.isFinite(designFs) && designFs > 0 ? Math.max(2, Math.round(stretchS * designFs)) : 2;
   const stretches = select.map(() => new StretchMeanSquares(stretchLength));
-  const extras = options.accumulators ?? [];
-  for (const e of extras) e.start(designFs);
   const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
   let taken = 0;
@@ -188,6 +206,9 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     },
     options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
   );
+  if (summary.frames === 0) {
+    throw new InputError("RECORD_TOO_SHORT", { file: info.file, expected: "at least one sample", received: "0 samples", hint: "the recording holds no data" });
+  }
   const fs = summary.sampleRateHz;
   const passDoubts: string[] = [];
   if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
