@@ -8,7 +8,7 @@ import { describe, expect, it } from "vitest";
  * shared base modules; the wiring modules at the top of src/ may use any stage; only the CLI uses the CLI;
  * the stages before report/ never import the wiring modules, and report/ only their types.
  */
-const STAGES = ["read", "condition", "estimate", "compare", "synth", "report"] as const;
+const STAGES = ["read", "condition", "estimate", "weight", "compare", "synth", "report"] as const;
 const BASE = new Set(["errors.ts", "units.ts", "version.ts", "findings.ts", "types"]);
 const SRC = resolve("src");
 

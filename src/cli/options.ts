@@ -44,7 +44,9 @@ export function addReadingOptions(cmd: Command): Command {
     .option("--decimal <mark>", "decimal mark: point or comma (default: detected)", choice("--decimal", ["point", "comma"]))
     .option("--units <u>", "unit of the samples where the file does not say: g or m/s2 (default g)", unitOption("--units"))
     .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit)", unitOption("--result-units"))
-    .option("--scale <k>", "calibration factor: engineering units per file unit (WAV: per full scale)", numberOption("--scale", (x) => x !== 0, "a non-zero number"));
+    .option("--scale <k>", "calibration factor: engineering units per file unit (WAV: per full scale)", numberOption("--scale", (x) => x !== 0, "a non-zero number"))
+    .option("--from <s>", "analyse from this time, in s from the first sample (the window is recorded in the results)", numberOption("--from", (x) => x >= 0, "a time in s >= 0"))
+    .option("--to <s>", "analyse up to this time, in s from the first sample", numberOption("--to", (x) => x > 0, "a time in s above 0"));
 }
 
 /** Options of the Welch estimate (shared by psd and check). */
@@ -74,6 +76,8 @@ export interface ParsedCommon {
   units?: AccelUnit;
   resultUnits?: AccelUnit;
   scale?: number;
+  from?: number;
+  to?: number;
   window?: WindowName;
   segment?: number;
   resolution?: number;
@@ -101,6 +105,8 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     inputUnits: o.units,
     resultUnits: o.resultUnits,
     scale: o.scale,
+    fromS: o.from,
+    toS: o.to,
     window: o.window,
     segmentLength: o.segment,
     resolutionHz: o.resolution,
