@@ -38,7 +38,17 @@ export { verifyReport, compareResults, type VerifyResult, type VerifyOptions } f
 export { profileJson, profileText } from "./report/profileText.js";
 export { writeAtomic } from "./report/writeAtomic.js";
 export { createTimeHistoryWriter, type TimeHistoryWriter } from "./report/timeHistoryWriter.js";
-export { runCli } from "./cli/main.js";
+export { rideRecording, rideSource, weightedRmsFromPsd, ROUTE_TOLERANCE, type RideOptions, type RideResult, type RideAxis } from "./rideRecording.js";
+export { rideJson, rideText, RIDE_CAUTIONS } from "./report/rideReport.js";
+export { WEIGHTING_NAMES, WEIGHTINGS, analogSections, weightingMagnitude, weightingPowerGains, THIRD_OCTAVE_CENTRES_HZ, type WeightingName, type AnalogSection, type WeightingParameters } from "./weight/isoWeightings.js";
+export { bilinearSection, cascadeMagnitude, BiquadCascade, type DigitalBiquad } from "./weight/bilinearBiquads.js";
+export { designWeightingFilter, weightingCascade, MIN_WEIGHTING_RATE_HZ, type WeightingFilterDesign } from "./weight/weightingFilter.js";
+export { VibrationDoseAccumulator, vibrationDose, type VibrationDose, type VibrationDoseOptions } from "./weight/vibrationDose.js";
+export { StretchMeanSquares } from "./estimate/stretchMeanSquares.js";
+export { reverseArrangementsTest, runTest, stationarityFinding, inversionDistribution, runsDistribution, reverseArrangementCount, normalQuantile, type StationarityTest, type StationarityFinding, type DepartingStretch } from "./estimate/stationarityTests.js";
+export { WelchWeightedMeanSquare } from "./estimate/welchTimeWeights.js";
+export { axisRules, dailyExposure, vibrationTotalValue, comfortReactions, basicMethodCheck, seatTransmissibility, DIRECTIVE_2002_44_EC, ISO_2631_HEALTH_ZONE, COMFORT_REACTIONS, BASIC_METHOD_LIMITS, POSTURES, AXES, type Posture, type Axis, type AxisRule, type DailyExposure } from "./compare/wholeBodyExposure.js";
+export { type PassAccumulator, type FrameWindow, stationarityNote } from "./analyzeRecording.js";
 export { CrossSpectrumAccumulator, crossSpectralDensity, type CrossSpectrumSums } from "./estimate/crossSpectrum.js";
 export { frequencyResponse, findResonances, type FrequencyResponse, type Resonance, type ResonanceOptions } from "./estimate/frequencyResponse.js";
 export { powerLawSpectrum, lineSpectrum, spectralMoments, type InputSpectrum, type SpectralMoments } from "./estimate/inputSpectrum.js";

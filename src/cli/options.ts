@@ -3,6 +3,7 @@ import type { AnalysisOptions } from "../analyzeRecording.js";
 import { InputError } from "../errors.js";
 import type { Detrend } from "../estimate/welchPsd.js";
 import type { WindowName } from "../estimate/windows.js";
+import { CONFIDENCE_RULE, MAX_CONFIDENCE, MIN_CONFIDENCE } from "../estimate/welchOptions.js";
 import { ACCEL_UNITS, parseAccelUnit, type AccelUnit } from "../units.js";
 
 /** Option parsers that fail with the option's name, the rule and the value received. */
@@ -43,7 +44,9 @@ export function addReadingOptions(cmd: Command): Command {
     .option("--decimal <mark>", "decimal mark: point or comma (default: detected)", choice("--decimal", ["point", "comma"]))
     .option("--units <u>", "unit of the samples where the file does not say: g or m/s2 (default g)", unitOption("--units"))
     .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit)", unitOption("--result-units"))
-    .option("--scale <k>", "calibration factor: engineering units per file unit (WAV: per full scale)", numberOption("--scale", (x) => x !== 0, "a non-zero number"));
+    .option("--scale <k>", "calibration factor: engineering units per file unit (WAV: per full scale)", numberOption("--scale", (x) => x !== 0, "a non-zero number"))
+    .option("--from <s>", "analyse from this time, in s from the first sample (the window is recorded in the results)", numberOption("--from", (x) => x >= 0, "a time in s >= 0"))
+    .option("--to <s>", "analyse up to this time, in s from the first sample", numberOption("--to", (x) => x > 0, "a time in s above 0"));
 }
 
 /** Options of the Welch estimate (shared by psd and check). */
@@ -54,7 +57,7 @@ export function addSpectrumOptions(cmd: Command, segmentDefault = "4096"): Comma
     .option("-r, --resolution <hz>", "line spacing wanted; picks the smallest power-of-two segment that gives it", numberOption("--resolution", (x) => x > 0, "a line spacing in Hz above 0"))
     .option("--overlap <f>", "overlap of segments as a fraction, 0 <= f < 1 (default 0.5)", numberOption("--overlap", () => true, "a fraction 0 <= F < 1"))
     .option("--detrend <how>", "per segment: none, mean or linear (default mean)", choice<Detrend>("--detrend", ["none", "mean", "linear"]))
-    .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", () => true, "a level between 0 and 1"));
+    .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", (x) => x >= MIN_CONFIDENCE && x <= MAX_CONFIDENCE, CONFIDENCE_RULE));
 }
 
 /** The band for a band RMS (psd only: check always uses the profile's range). */
@@ -73,6 +76,8 @@ export interface ParsedCommon {
   units?: AccelUnit;
   resultUnits?: AccelUnit;
   scale?: number;
+  from?: number;
+  to?: number;
   window?: WindowName;
   segment?: number;
   resolution?: number;
@@ -100,6 +105,8 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     inputUnits: o.units,
     resultUnits: o.resultUnits,
     scale: o.scale,
+    fromS: o.from,
+    toS: o.to,
     window: o.window,
     segmentLength: o.segment,
     resolutionHz: o.resolution,

@@ -7,7 +7,7 @@ import type { CheckResult } from "../checkRecording.js";
 import { checkJson } from "./checkReport.js";
 import { embedResult } from "./embeddedResult.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
-import { fixed, sig, signedDb } from "./format.js";
+import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { identityRows, qty, reportPage, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
@@ -22,6 +22,9 @@ export const VERDICT_TEXT: Record<Verdict, { word: string; line: string }> = {
   fail: { word: "FAIL", line: `Fail: ${VERDICT_MEANING.fail}.` },
   inconclusive: { word: "INCONCLUSIVE", line: `Inconclusive: ${VERDICT_MEANING.inconclusive}.` },
 };
+
+/** The shared style sheet, for pages built on the report frame (reportPage.ts). */
+export { STYLE } from "./reportPage.js";
 
 /** The plotted frequency range: the profile's, widened by a ninth of an octave each side, inside the record's lines. */
 export function plotRange(p: CheckResult["profile"], f: Float64Array): [number, number] {
@@ -65,9 +68,8 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const vals: number[] = [];
   // The y range follows the profile's band and the record inside it; the rest is clipped.
   for (let k = 0; k < f.length; k++) if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
-  vals.push(...dn, ...up);
-  const ymin = Math.min(...vals) / 3;
-  const ymax = Math.max(...vals) * 3;
+  const ymin = minOf(vals, dn, up) / 3;
+  const ymax = maxOf(vals, dn, up) * 3;
   const psdPlot = svgPlot({
     id: `psd-${n}`, title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
     xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(c.units)})`, xDomain: [lo, hi], yDomain: [ymin, ymax], yLog: true, xMarks: [f0, fN],
@@ -81,7 +83,7 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
     ],
   });
   const devs = comp.lines.map((l) => l.deviationDb);
-  const dmax = Math.max(6, ...comp.lines.map((l) => l.upperDb + 1), ...devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
+  const dmax = maxOf([6], comp.lines.map((l) => l.upperDb + 1), devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
   const devPlot = svgPlot({
     id: `dev-${n}`, title: "Deviation from the required profile (same frequency axis)", xLabel: "frequency (Hz)", yLabel: "deviation (dB)",
     xDomain: [lo, hi], yDomain: [-dmax, dmax], yLog: false, xMarks: [f0, fN], height: 250,

@@ -1,6 +1,8 @@
 import type { RecordingAnalysis } from "../analyzeRecording.js";
+import type { StationarityFinding, StationarityTest } from "../estimate/stationarityTests.js";
 import type { TestMeta } from "../read/testMeta.js";
 import { densityAscii } from "../units.js";
+import { csvField } from "./csvField.js";
 
 /** Plain numbers for JSON: NaN and infinities become null (JSON has no such values). */
 export function finiteOrNull(x: number): number | null {
@@ -16,9 +18,11 @@ export function toolInfo(version: string) {
 
 export function inputJson(a: RecordingAnalysis) {
   const i = a.input;
+  const w = a.window;
   const startTime = (i as { startTime?: unknown }).startTime;
   return {
     file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS,
+    window: { fromS: w.fromS, toS: w.toS, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}) },
     ...(startTime !== undefined ? { startTime: startTime instanceof Date ? startTime.toISOString() : startTime } : {}),
   };
 }
@@ -31,6 +35,12 @@ export function settingsJson(a: RecordingAnalysis) {
 export function statsJson(a: RecordingAnalysis["channels"][number]) {
   const s = a.stats;
   return Object.fromEntries(Object.entries(s).map(([k, v]) => [k, finiteOrNull(v)]));
+}
+
+/** The stationarity finding as plain JSON (the tests' regions, the deciding statistic, departing stretches). */
+export function stationarityJson(f: StationarityFinding) {
+  const t = (x: StationarityTest | undefined) => x && { statistic: x.statistic, n: x.n, acceptAbove: x.acceptAbove, acceptAtMost: x.acceptAtMost, alpha: x.alpha, method: x.method, stationary: x.stationary };
+  return { tested: f.tested, stationary: f.stationary, stretchS: f.stretchS, stretches: f.stretches, pooled: f.pooled, reverseArrangements: t(f.reverseArrangements) ?? null, runs: t(f.runs) ?? null, departing: f.departing };
 }
 
 /** The `psd --json` document (schema in README.md). */
@@ -62,6 +72,7 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
       band: c.band ? { fminHz: c.band.fminHz, fmaxHz: c.band.fmaxHz, rms: finiteOrNull(c.band.rms) } : null,
       peaks: c.peaks,
       stats: statsJson(c),
+      stationarity: stationarityJson(c.stationarity),
       warnings: c.warnings,
       doubts: c.doubts,
       notes: c.notes,
@@ -70,14 +81,15 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
   };
 }
 
-/** `--csv`: frequency, then psd/lower/upper of each channel. Full precision (shortest round-trip). */
+/** `--csv`: frequency, then psd/lower/upper of each channel. Full precision (shortest round-trip); RFC 4180 fields. */
 export function psdCsv(a: RecordingAnalysis): string {
   const head = ["frequency_hz"];
   for (const c of a.channels) {
     const u = densityAscii(c.units);
     head.push(`${c.name}_psd [${u}]`, `${c.name}_lower [${u}]`, `${c.name}_upper [${u}]`);
   }
-  const lines = [head.join(",")];
+  // Channel names come from the file: each header field is quoted and guarded (csvField).
+  const lines = [head.map(csvField).join(",")];
   const f = a.channels[0]?.psd.frequencyHz ?? new Float64Array();
   for (let k = 0; k < f.length; k++) {
     const row = [String(f[k])];

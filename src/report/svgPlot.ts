@@ -1,5 +1,6 @@
 import { scaleLinear, scaleLog, type ScaleContinuousNumeric } from "d3-scale";
 import { area, line } from "d3-shape";
+import { maxOf } from "./format.js";
 
 /**
  * Small SVG plots built as strings (no DOM): d3-scale for the scales and log ticks, d3-shape for the
@@ -26,6 +27,8 @@ export interface PlotSpec {
   xDomain: [number, number];
   yDomain: [number, number];
   yLog: boolean;
+  /** Log x axis (default true); false gives a linear x axis (time plots). */
+  xLog?: boolean | undefined;
   series: Series[];
   /** Horizontal reference lines (linear plots). */
   rules?: number[] | undefined;
@@ -83,7 +86,8 @@ function superscript(n: number): string {
 
 export function svgPlot(p: PlotSpec): string {
   const H = p.height ?? DEFAULT_H;
-  const x = scaleLog().domain(p.xDomain).range([M.left, W - M.right]);
+  const xLog = p.xLog !== false;
+  const x = (xLog ? scaleLog() : scaleLinear()).domain(p.xDomain).range([M.left, W - M.right]);
   const y = (p.yLog ? scaleLog() : scaleLinear()).domain(p.yDomain).range([H - M.bottom, M.top]);
   const inX = (v: number) => v >= p.xDomain[0] && v <= p.xDomain[1];
   const ok = (v: number) => Number.isFinite(v) && (!p.yLog || v > 0);
@@ -92,7 +96,7 @@ export function svgPlot(p: PlotSpec): string {
   out.push(`<svg id="${p.id}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(p.title)}</text>`);
   // Grid and ticks.
-  const xt = logTicks(x, 10, p.xMarks);
+  const xt = xLog ? logTicks(x, 10, p.xMarks) : { major: x.ticks(10), minor: [] as number[] };
   for (const t of xt.minor) out.push(`<line class="grid minor" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`);
   const xl = axisLabels(xt.major);
   xt.major.forEach((t, i) => {
@@ -157,7 +161,7 @@ export function svgHistogram(id: string, title: string, xLabel: string, edges: n
   const h = 260;
   if (density.length === 0) return `<p class="muted">No histogram (no finite samples).</p>`;
   const x = scaleLinear().domain([edges[0]!, edges[edges.length - 1]!]).range([M.left, w - M.right]);
-  const top = Math.max(...density, ...curve.y) * 1.1;
+  const top = maxOf(density, curve.y) * 1.1;
   const y = scaleLinear().domain([0, top]).range([h - M.bottom, M.top]);
   const out = [`<svg id="${id}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(title)}</text>`);
