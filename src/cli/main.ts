@@ -290,8 +290,8 @@ export function buildProgram(io: CliIo): Command {
         await Promise.all(reports);
         if (reportError !== undefined) throw reportError;
         if (o.reportDir !== undefined) {
-          const { batchIndexHtml, BATCH_INDEX_NAME } = await import("../report/batchIndex.js");
-          await writeAtomic(join(o.reportDir, BATCH_INDEX_NAME), batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now), { inputs, force: o.force, option: "--report-dir" });
+          const { batchIndexHtml, batchIndexName } = await import("../report/batchIndex.js");
+          await writeAtomic(join(o.reportDir, batchIndexName(names)), batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now), { inputs, force: o.force, option: "--report-dir" });
         }
         throw new Exit(code);
       }

@@ -1,7 +1,10 @@
-import { readFile } from "node:fs/promises";
-import { parse as parseYaml, YAMLParseError } from "yaml";
+import { parseDocument, YAMLParseError } from "yaml";
 import { z } from "zod";
 import { InputError } from "../errors.js";
+import { openRegularFile } from "./regularFile.js";
+
+/** Largest identity file read: a dozen short texts; 64 KiB is far beyond any real one. */
+export const MAX_META_BYTES = 64 << 10;
 
 /**
  * The identity of a test run, given with `--meta FILE` (YAML or JSON, psdgate's own keys): who ran
@@ -58,22 +61,42 @@ export function parseTestMeta(doc: unknown, file: string): TestMeta {
   return r.data;
 }
 
-/** Read `--meta FILE`: YAML (.yaml, .yml) or JSON. */
-export async function loadTestMeta(file: string): Promise<TestMeta> {
-  let body: string;
+async function readMetaText(file: string): Promise<string> {
+  const { handle, stats } = await openRegularFile(file, "a readable test-identity file", "--meta");
   try {
-    body = await readFile(file, "utf8");
+    if (stats.size > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "--meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: `${stats.size} bytes` });
+    const buf = Buffer.alloc(MAX_META_BYTES + 1);
+    let n = 0;
+    for (;;) {
+      const { bytesRead } = await handle.read(buf, n, buf.length - n, n);
+      if (bytesRead === 0) break;
+      n += bytesRead;
+      if (n > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "--meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: "a file that grew while it was read" });
+    }
+    return buf.toString("utf8", 0, n);
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, option: "--meta", expected: "a readable test-identity file", received: code === "ENOENT" ? "no such file" : String(code) });
+    if (e instanceof InputError) throw e;
+    throw new InputError("FILE_UNREADABLE", { file, option: "--meta", expected: "a readable test-identity file", received: String((e as NodeJS.ErrnoException).code ?? e) });
+  } finally {
+    await handle.close();
   }
+}
+
+/** Read `--meta FILE`: YAML (.yaml, .yml; core schema, no custom tags, aliases capped) or JSON. */
+export async function loadTestMeta(file: string): Promise<TestMeta> {
+  const body = await readMetaText(file);
   let doc: unknown;
   if (/\.ya?ml$/i.test(file)) {
+    const y = parseDocument(body, { logLevel: "silent", prettyErrors: true, uniqueKeys: true });
+    const problem = y.errors[0] ?? y.warnings.find((w) => w.code === "TAG_RESOLVE_FAILED");
+    if (problem) {
+      const pos = problem instanceof YAMLParseError || "linePos" in problem ? problem.linePos?.[0] : undefined;
+      throw new InputError("META_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: y.errors[0] ? "valid YAML" : "plain YAML values (no custom tags)", received: problem.message.split("\n")[0]!.slice(0, 120) });
+    }
     try {
-      doc = parseYaml(body);
+      doc = y.toJS({ maxAliasCount: 100 });
     } catch (e) {
-      const pos = e instanceof YAMLParseError ? e.linePos?.[0] : undefined;
-      throw new InputError("META_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
+      throw new InputError("META_SYNTAX", { file, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
     }
   } else {
     try {

@@ -15,6 +15,14 @@ export interface BatchEntry {
 /** The file name of the batch index inside `--report-dir` (not index.html, which a recording called index would take). */
 export const BATCH_INDEX_NAME = "psdgate-batch.html";
 
+/** BATCH_INDEX_NAME, or psdgate-batch-2.html, -3, … when a report of the batch already has that name. */
+export function batchIndexName(reportNames: readonly string[]): string {
+  const taken = new Set(reportNames.map((n) => n.toLowerCase()));
+  let name = BATCH_INDEX_NAME;
+  for (let i = 2; taken.has(name.toLowerCase()); i++) name = `psdgate-batch-${i}.html`;
+  return name;
+}
+
 /**
  * `check --report-dir DIR` also writes an index of the batch: one row per recording with its verdict,
  * short hash and a link to its report; the recordings that could not be read are counted. The page

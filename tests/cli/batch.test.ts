@@ -42,7 +42,7 @@ describe("several recordings", () => {
   it("--report-dir makes its folder and writes one report per recording; --report with several files is refused", async () => {
     const out = join(dir, "reports", "run-7");
     expect((await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", out)).code).toBe(3);
-    expect(readdirSync(out).sort()).toEqual(["kb210-run-short.html", "kb210-run.html"]);
+    expect(readdirSync(out).sort()).toEqual(["kb210-run-short.html", "kb210-run.html", "psdgate-batch.html"]);
     const again = await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", out);
     expect(again.code).toBe(2);
     expect(again.stderr).toContain("[OUTPUT_EXISTS]");

@@ -66,7 +66,7 @@ describe("batches with hostile members", () => {
     const reports = join(dir, "reports");
     const r = await cli("check", join(dir, "a", "run.wav"), join(dir, "b", "run.wav"), "--profile", kb, "--report-dir", reports, "--quiet");
     expect(r.code, r.stderr).toBe(1);
-    expect(readdirSync(reports).sort()).toEqual(["a__run.html", "b__run.html"]);
+    expect(readdirSync(reports).sort()).toEqual(["a__run.html", "b__run.html", "psdgate-batch.html"]);
     expect(readFileSync(join(reports, "b__run.html"), "utf8")).toMatch(/FAIL/);
     // Again without --force: both exist, nothing is replaced.
     const again = await cli("check", join(dir, "a", "run.wav"), join(dir, "b", "run.wav"), "--profile", kb, "--report-dir", reports, "--quiet");

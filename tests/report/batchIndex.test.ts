@@ -1,6 +1,7 @@
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
+import { batchIndexName } from "../../src/report/batchIndex.js";
 import { cli, tempDir } from "../helpers.js";
 
 describe("check --report-dir index page", () => {
@@ -16,5 +17,10 @@ describe("check --report-dir index page", () => {
       expect(readFileSync(join(d, `${name}.html`), "utf8")).toContain('id="psdgate-result"');
     }
     expect(html.match(/<tr><td><a /g)!.length).toBe(3);
+  });
+
+  it("batchIndexName never takes a report's name", () => {
+    expect(batchIndexName(["run.html"])).toBe("psdgate-batch.html");
+    expect(batchIndexName(["psdgate-batch.html", "PSDGATE-BATCH-2.html"])).toBe("psdgate-batch-3.html");
   });
 });
