@@ -9,7 +9,7 @@ import { embedResult } from "./embeddedResult.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
-import { identityRows, qty, reportPage, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import { identityRows, qty, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 
 /**
@@ -23,8 +23,8 @@ export const VERDICT_TEXT: Record<Verdict, { word: string; line: string }> = {
   inconclusive: { word: "INCONCLUSIVE", line: `Inconclusive: ${VERDICT_MEANING.inconclusive}.` },
 };
 
-/** The shared style sheet, for pages built on the report frame (reportPage.ts). */
-export { STYLE } from "./reportPage.js";
+/** The report pages' shared style sheet with a plain page margin, for pages not built on reportPage's frame (rideHtml). */
+export const STYLE = `@page { size: auto; margin: 14mm 12mm; }${PAGE_STYLE}`;
 
 /** The plotted frequency range: the profile's, widened by a ninth of an octave each side, inside the record's lines. */
 export function plotRange(p: CheckResult["profile"], f: Float64Array): [number, number] {
@@ -38,11 +38,17 @@ function range(e: Excursion): string {
   return e.fromHz === e.toHz ? qty(sig(e.fromHz, 5), "Hz") : `${qty(`${sig(e.fromHz, 5)}–${sig(e.toHz, 5)}`, "Hz")}`;
 }
 
+/** The judgement in a table cell: the words are explained once above the table. */
+function shortJudgement(e: Excursion): string {
+  if (e.shown) return `shown (adjusted p ${e.adjustedP < 1e-6 ? "< 1e-6" : e.adjustedP.toPrecision(2)})`;
+  return `not shown${e.longerRecordFactor ? ` (${fixed(e.longerRecordFactor, 1)}x longer)` : ""}`;
+}
+
 function excursionTable(list: Excursion[], linesChecked: number, id: string): string {
   if (list.length === 0) return `<p>No line lies outside its tolerance band (${linesChecked} lines checked).</p>`;
-  const rows = worstFirst(list).map((e) => `<tr${e.shown ? ' class="shown-row"' : ""}><td>${range(e)} (${e.direction}, ${e.lines} line${e.lines === 1 ? "" : "s"})</td><td class="num">${esc(signedDb(e.worstDb))} at ${qty(sig(e.worstHz, 5), "Hz")}</td><td class="num">${esc(signedDb(e.limitDb))}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("");
+  const rows = worstFirst(list).map((e) => `<tr${e.shown ? ' class="shown-row"' : ""}><td>${range(e)} (${e.direction}, ${e.lines} line${e.lines === 1 ? "" : "s"})</td><td class="num">${esc(signedDb(e.worstDb))} at ${qty(sig(e.worstHz, 5), "Hz")}</td><td class="num">${esc(signedDb(e.limitDb))}</td><td>${esc(shortJudgement(e))}</td></tr>`).join("");
   const shown = list.filter((e) => e.shown).length;
-  return `<p>${list.length} excursion${list.length === 1 ? "" : "s"} as measured (${shown} shown by the rule), worst first; every one is listed.</p>
+  return `<p>${list.length} excursion${list.length === 1 ? "" : "s"} as measured (${shown} shown by the rule), worst first; every one is listed. <em>Shown</em>: ${esc(excursionJudgement({ ...list[0]!, shown: true, adjustedP: 0 }).replace(/^shown \(|; adjusted p.*$/g, ""))}; <em>not shown</em>: chance among the lines tested could explain it, and a record the stated factor longer would settle it.</p>
 <table class="excursions grid" id="${id}"><thead><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 

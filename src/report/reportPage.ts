@@ -39,7 +39,7 @@ th { color: #4b5c63; font-weight: 600; width: 32%; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 table.grid th { width: auto; }
 table.levels th { width: 52%; } table.levels td.num { white-space: normal; }
-table.excursions td:last-child { width: 42%; }
+table.excursions td:last-child { width: 30%; } table.excursions { font-size: 8.5pt; } table.excursions td { padding: .6mm 2mm; }
 .hash { font-family: "DejaVu Sans Mono", Menlo, monospace; font-size: 8pt; word-break: break-all; }
 .nowrap { white-space: nowrap; }
 .verdict { display: flex; align-items: center; gap: 5mm; margin: 4mm 0; padding: 3mm 5mm; border: 2.5px solid; border-radius: 1mm; }
