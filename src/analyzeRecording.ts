@@ -1,4 +1,4 @@
-import { channelConditioning, scaleSamples } from "./condition/scaleSamples.js";
+import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
 import { InputError, quoted } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
@@ -21,12 +21,16 @@ export interface AnalysisOptions extends WelchOptions {
   csv?: CsvReadOptions | undefined;
   /** Channel names or 1-based positions; all channels when empty. */
   channels?: string[] | undefined;
-  /** Unit of the samples where the file does not say (default g). */
-  inputUnits?: AccelUnit | undefined;
+  /** Unit of the samples where the file does not say (default g): g, mg, ug, m/s2, mm/s2, cm/s2, in/s2, ft/s2 or another spelling of them. */
+  inputUnits?: string | undefined;
   /** Unit of the results (default: each channel's input unit). */
   resultUnits?: AccelUnit | undefined;
   /** Calibration: engineering units per file unit (per full scale for WAV). */
   scale?: number | undefined;
+  /** Calibration factors per channel (`--scale CH=K`); a channel at most once, and not with `scale`. */
+  channelScales?: ChannelSetting<number>[] | undefined;
+  /** Sensitivities of channels in volts, e.g. `100mV/g` or `10.2mV/(m/s2)` (`--sensitivity [CH=]S`). */
+  sensitivities?: ChannelSetting<string>[] | undefined;
   fminHz?: number | undefined;
   fmaxHz?: number | undefined;
   /** Estimate the PSD (default true; `inspect` needs only the statistics). */
@@ -41,6 +45,8 @@ export interface ChannelAnalysis {
   /** 1-based position among the file's channels. */
   position: number;
   units: AccelUnit;
+  /** How the file's numbers became accelerations: the file's unit, calibration, sensitivity, factor. */
+  reading: ChannelReading;
   stats: SampleStatistics;
   psd: PsdEstimate;
   parseval: ParsevalCheck;
@@ -89,7 +95,7 @@ export async function analyzeRecording(file: string, options: AnalysisOptions = 
 export async function analyzeSource(source: TimeHistorySource, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
   const { info } = source;
   const select = selectChannels(info, options.channels);
-  const conditioning = select.map((i) => channelConditioning(info.file, info.channels[i]!, options));
+  const conditioning = channelConditionings(info.file, info.channels, select, options);
   if (options.fminHz !== undefined && options.fmaxHz !== undefined && !(options.fminHz < options.fmaxHz)) {
     throw new InputError("OPTION_INVALID", { option: "--fmin", expected: "--fmin below --fmax", received: `${options.fminHz} >= ${options.fmaxHz}` });
   }
@@ -129,14 +135,14 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const hi = options.fmaxHz ?? fs / 2;
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
     const { warnings, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength, spectrum);
-    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings, doubts };
+    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings, doubts };
   });
   return {
     input: {
       file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
       sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs,
     },
-    settings: { ...resolved, scale: options.scale ?? 1 },
+    settings: { ...resolved, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
     channels,
   };
 }
@@ -154,7 +160,6 @@ export function clippingHintCount(samples: number): number {
 function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean) {
   const warnings: string[] = [];
   const doubts: string[] = [];
-  if (ch.declaredUnitText !== undefined) warnings.push(`header unit ${quoted(ch.declaredUnitText)} is not an acceleration unit; values were taken as given (use --scale for a sensitivity)`);
   if (s.nonFinite > 0) {
     doubts.push(`${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD`);
   }

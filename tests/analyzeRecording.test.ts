@@ -2,7 +2,7 @@ import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeRecording, clippingHintCount } from "../src/analyzeRecording.js";
-import { cli, gaussian, tempDir } from "./helpers.js";
+import { cli, gaussian, maxRelDiff, tempDir } from "./helpers.js";
 import { wavBytes } from "./wavBytes.js";
 
 const dir = tempDir();
@@ -36,5 +36,52 @@ describe("inspect", () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toContain("64 samples at 100 Hz");
     expect(r.stdout).not.toMatch(/segment|Parseval/);
+  });
+});
+
+describe("analyzeRecording: logger exports give the plain CSV's PSD (within 1e-12)", () => {
+  const n = 8192;
+  const x = gaussian(n, 31, 0.7);
+  const plainFile = join(dir, "plain-g.csv");
+  writeFileSync(plainFile, "time,ax\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v}`).join("\n") + "\n");
+  const opts = { segmentLength: 1024 };
+  async function expectSamePsd(file: string, o: Parameters<typeof analyzeRecording>[1] = {}, factor = 1) {
+    const a = await analyzeRecording(plainFile, opts);
+    const b = await analyzeRecording(file, { ...opts, ...o });
+    expect(b.input.sampleRateHz).toBe(a.input.sampleRateHz);
+    expect(b.input.samples).toBe(n);
+    const pa = a.channels[0]!.psd.psd;
+    const pb = b.channels[0]!.psd.psd;
+    expect(maxRelDiff(pb.map((v) => v / factor), pa)).toBeLessThanOrEqual(1e-12);
+    return b;
+  }
+  const write = (name: string, head: string, cell: (v: number, i: number) => string) => {
+    const f = join(dir, name);
+    writeFileSync(f, head + "\n" + Array.from(x, (v, i) => cell(v, i)).join("\n") + "\n");
+    return f;
+  };
+  it("a header in mg is read as g (factor 1e-3) and the reading is recorded", async () => {
+    const b = await expectSamePsd(write("mg.csv", "time,ax [mg]", (v, i) => `${(i / 1024).toFixed(6)},${v * 1000}`));
+    expect(b.channels[0]!.units).toBe("g");
+    expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "mg", unitFrom: "header", factor: 1e-3 });
+  });
+  it("a header in µg, and --units mg for a file that says nothing", async () => {
+    await expectSamePsd(write("ug.csv", "time,ax (µg)", (v, i) => `${(i / 1024).toFixed(6)},${v * 1e6}`));
+    await expectSamePsd(write("mg-opt.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v * 1000}`), { inputUnits: "mg" });
+  });
+  it("headers in mm/s^2, cm/s², in/s**2, ft s-2 and ms^-2 read as m/s^2 and give the g PSD times g_n^2 (SI Brochure 9th ed.)", async () => {
+    const gn = 9.80665;
+    for (const [unit, k] of [["mm/s^2", 1e-3], ["cm/s²", 1e-2], ["in/s**2", 0.0254], ["ft s-2", 0.3048], ["ms^-2", 1]] as const) {
+      const b = await expectSamePsd(write(`u${k}.csv`, `time,ax [${unit}]`, (v, i) => `${(i / 1024).toFixed(6)},${(v * gn) / k}`), {}, gn * gn);
+      expect(b.channels[0]!.units, unit).toBe("m/s2");
+    }
+  });
+  it("a channel in mV with --sensitivity 100mV/g, and one in V with 500mV/g for every channel", async () => {
+    await expectSamePsd(write("mv.csv", "time,ax [mV]", (v, i) => `${(i / 1024).toFixed(6)},${v * 100}`), { sensitivities: [{ channel: "ax", value: "100mV/g" }] });
+    const b = await expectSamePsd(write("v.csv", "time,ax [V]", (v, i) => `${(i / 1024).toFixed(6)},${v * 0.5}`), { sensitivities: [{ value: "500mV/g" }] });
+    expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "V", unitFrom: "sensitivity", sensitivity: "500mV/g" });
+  });
+  it("per-channel --scale ax=K", async () => {
+    await expectSamePsd(write("scaled.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v / 4}`), { channelScales: [{ channel: "ax", value: 4 }] });
   });
 });

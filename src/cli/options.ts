@@ -3,7 +3,8 @@ import type { AnalysisOptions } from "../analyzeRecording.js";
 import { InputError } from "../errors.js";
 import type { Detrend } from "../estimate/welchPsd.js";
 import type { WindowName } from "../estimate/windows.js";
-import { ACCEL_UNITS, parseAccelUnit, type AccelUnit } from "../units.js";
+import type { ChannelSetting } from "../condition/scaleSamples.js";
+import { ACCEL_UNITS, parseSensitivity, parseUnitSpec, UNIT_NAMES, type AccelUnit } from "../units.js";
 
 /** Option parsers that fail with the option's name, the rule and the value received. */
 export function numberOption(option: string, rule: (x: number) => boolean, expected: string) {
@@ -14,13 +15,44 @@ export function numberOption(option: string, rule: (x: number) => boolean, expec
   };
 }
 
-function unitOption(option: string) {
+/** `--result-units`: one of the two base units. */
+function baseUnitOption(option: string) {
   return (text: string): AccelUnit => {
-    const u = parseAccelUnit(text);
-    if (u === undefined) throw new InputError("OPTION_INVALID", { option, expected: `one of ${ACCEL_UNITS.join(", ")}`, received: JSON.stringify(text) });
-    return u;
+    const u = parseUnitSpec(text);
+    if (u === undefined || u.factor !== 1) throw new InputError("OPTION_INVALID", { option, expected: `one of ${ACCEL_UNITS.join(", ")}`, received: JSON.stringify(text) });
+    return u.base;
   };
 }
+
+/** `--units`: any acceleration unit psdgate knows, in any accepted spelling. */
+function anyUnitOption(option: string) {
+  return (text: string): string => {
+    const u = parseUnitSpec(text);
+    if (u === undefined) throw new InputError("OPTION_INVALID", { option, expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`, received: JSON.stringify(text) });
+    return u.name;
+  };
+}
+
+/**
+ * `[CH=]VALUE`, repeatable: the channel is the text before the last `=` (a name may hold `=` only if
+ * it is not the last one). Values are checked by `parse`.
+ */
+function channelSetting<T>(option: string, parse: (text: string) => T | undefined, expected: string) {
+  return (text: string, prev: ChannelSetting<T>[] = []): ChannelSetting<T>[] => {
+    const eq = text.lastIndexOf("=");
+    const channel = eq >= 0 ? text.slice(0, eq).trim() : undefined;
+    const valueText = eq >= 0 ? text.slice(eq + 1) : text;
+    const value = parse(valueText);
+    if (value === undefined || channel === "") throw new InputError("OPTION_INVALID", { option, expected, received: JSON.stringify(text) });
+    return [...prev, { channel, value }];
+  };
+}
+
+const scaleValue = (t: string) => {
+  const v = Number(t);
+  return t.trim() !== "" && Number.isFinite(v) && v !== 0 ? v : undefined;
+};
+const sensitivityValue = (t: string) => (parseSensitivity(t) ? t.trim() : undefined);
 
 function choice<T extends string>(option: string, values: readonly T[]) {
   return (text: string): T => {
@@ -41,9 +73,10 @@ export function addReadingOptions(cmd: Command): Command {
     .option("--no-time-column", "the CSV has no time column (then --rate is needed)")
     .option("--delimiter <d>", "CSV field delimiter: comma, semicolon, tab or whitespace (default: detected)", choice("--delimiter", ["comma", "semicolon", "tab", "whitespace", ",", ";"]))
     .option("--decimal <mark>", "decimal mark: point or comma (default: detected)", choice("--decimal", ["point", "comma"]))
-    .option("--units <u>", "unit of the samples where the file does not say: g or m/s2 (default g)", unitOption("--units"))
-    .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit)", unitOption("--result-units"))
-    .option("--scale <k>", "calibration factor: engineering units per file unit (WAV: per full scale)", numberOption("--scale", (x) => x !== 0, "a non-zero number"));
+    .option("--units <u>", `unit of the samples where the file does not say: ${UNIT_NAMES.join(", ")} (default g)`, anyUnitOption("--units"))
+    .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit's base, g or m/s2)", baseUnitOption("--result-units"))
+    .option("--scale <[ch=]k>", "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel", channelSetting("--scale", scaleValue, "a non-zero number K, or CH=K"))
+    .option("--sensitivity <[ch=]s>", "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel", channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"));
 }
 
 /** Options of the Welch estimate (shared by psd and check). */
@@ -70,9 +103,10 @@ export interface ParsedCommon {
   timeColumn?: string | false;
   delimiter?: string;
   decimal?: "point" | "comma";
-  units?: AccelUnit;
+  units?: string;
   resultUnits?: AccelUnit;
-  scale?: number;
+  scale?: ChannelSetting<number>[];
+  sensitivity?: ChannelSetting<string>[];
   window?: WindowName;
   segment?: number;
   resolution?: number;
@@ -99,7 +133,8 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     channels: o.channel,
     inputUnits: o.units,
     resultUnits: o.resultUnits,
-    scale: o.scale,
+    channelScales: o.scale,
+    sensitivities: o.sensitivity,
     window: o.window,
     segmentLength: o.segment,
     resolutionHz: o.resolution,

@@ -4,7 +4,7 @@ import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import { InputError, quoted } from "../errors.js";
-import { parseAccelUnit } from "../units.js";
+import { parseUnitSpec, parseVoltUnit } from "../units.js";
 import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
 import { nonFiniteToken, parseNumberText } from "./csvNumber.js";
@@ -50,6 +50,9 @@ interface Dialect {
   bodyStart: number;
   /** 1-based line number of the first body line. */
   bodyLine: number;
+  /** 1-based line of the header row, and of a units row under it. */
+  headerLine?: number | undefined;
+  unitLine?: number | undefined;
 }
 
 interface Column {
@@ -153,7 +156,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   }
   return {
     delimiter, decimal, header, columns: rows[0]!.length,
-    bodyStart: body.start, bodyLine: body.line,
+    bodyStart: body.start, bodyLine: body.line, headerLine: hasHeader ? first.line : undefined,
   };
 }
 
@@ -204,7 +207,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
     const seen = new Map<string, number>();
     for (const c of columns) {
       if (seen.has(c.name.toLowerCase())) {
-        throw new InputError("CSV_DUPLICATE_COLUMN", { file, line: dialect.bodyLine - 1, column: c.index + 1, expected: "distinct column names", received: quoted(c.name) });
+        throw new InputError("CSV_DUPLICATE_COLUMN", { file, line: dialect.headerLine, column: c.index + 1, expected: "distinct column names", received: quoted(c.name) });
       }
       seen.set(c.name.toLowerCase(), c.index);
     }
@@ -227,7 +230,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
     if (u !== undefined) {
       const f = TIME_UNITS[u.toLowerCase()];
       if (f === undefined) {
-        throw new InputError("CSV_TIME_UNIT", { file, line: dialect.bodyLine - 1, column: timeIndex + 1, expected: "a time unit (s, ms, us)", received: quoted(u) });
+        throw new InputError("CSV_TIME_UNIT", { file, line: dialect.headerLine, column: timeIndex + 1, expected: "a time unit (s, ms, us)", received: quoted(u) });
       }
       timeFactor = f;
     }
@@ -241,8 +244,12 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   const channelCols = columns.filter((c) => c.index !== timeIndex);
   if (channelCols.length === 0) throw new InputError("CSV_NO_CHANNELS", { file, expected: "at least one data column besides time", received: "only a time column" });
   const channels: ChannelInfo[] = channelCols.map((c) => {
-    const unit = c.unitText === undefined ? undefined : parseAccelUnit(c.unitText);
-    return { name: c.name, declaredUnit: unit, declaredUnitText: unit === undefined ? c.unitText : undefined };
+    if (c.unitText === undefined) return { name: c.name };
+    const spec = parseUnitSpec(c.unitText);
+    return {
+      name: c.name, declaredUnit: spec?.base, declaredUnitSpec: spec, declaredVolts: spec ? undefined : parseVoltUnit(c.unitText),
+      declaredUnitText: c.unitText, unitPlace: { line: dialect.unitLine ?? dialect.headerLine ?? 1, column: c.index + 1 },
+    };
   });
 
   // Provisional rate from the sniffed rows; the final one comes from the whole time column.

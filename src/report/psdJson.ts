@@ -39,6 +39,7 @@ export function psdJson(a: RecordingAnalysis, version: string) {
       name: c.name,
       position: c.position,
       units: densityAscii(c.units),
+      reading: c.reading,
       psd: arr(c.psd.psd),
       lower: arr(c.psd.lower),
       upper: arr(c.psd.upper),
