@@ -70,6 +70,10 @@ export interface RecordingAnalysis {
     sampleRateHz: number;
     samples: number;
     durationS: number;
+    /** ISO 8601 time of the first sample, when the file has date-time stamps. */
+    startTime?: string | undefined;
+    /** Lines before a CSV header (a logger's metadata), as text. */
+    preamble?: string[] | undefined;
   };
   settings: ResolvedWelchOptions & { scale: number };
   channels: ChannelAnalysis[];
@@ -140,7 +144,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   return {
     input: {
       file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
-      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs,
+      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs, startTime: summary.startTime, preamble: info.preamble,
     },
     settings: { ...resolved, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
     channels,

@@ -85,3 +85,82 @@ describe("analyzeRecording: logger exports give the plain CSV's PSD (within 1e-1
     await expectSamePsd(write("scaled.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v / 4}`), { channelScales: [{ channel: "ax", value: 4 }] });
   });
 });
+
+describe("analyzeRecording: time stamps and export quirks give the plain CSV's PSD (within 1e-12)", () => {
+  const n = 8192;
+  const x = gaussian(n, 32, 0.4);
+  const plainFile = join(dir, "plain-t.csv");
+  writeFileSync(plainFile, "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v},${-v}`).join("\n") + "\n");
+  const opts = { segmentLength: 1024 };
+  async function expectSamePsd(file: string, o: Parameters<typeof analyzeRecording>[1] = {}) {
+    const a = await analyzeRecording(plainFile, opts);
+    const b = await analyzeRecording(file, { ...opts, ...o });
+    expect(b.input.sampleRateHz).toBe(1024);
+    expect(b.input.samples).toBe(n);
+    expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+    return b;
+  }
+  const write = (name: string, text: string) => {
+    const f = join(dir, name);
+    writeFileSync(f, text);
+    return f;
+  };
+  const rows = (stamp: (i: number) => string, sep = ",", end = "") => Array.from(x, (v, i) => `${stamp(i)}${sep}${v}${sep}${-v}${end}`).join("\n") + "\n";
+  /** Microseconds since the start, as a date-time stamp from 2024-05-17 14:03:00. */
+  const iso = (i: number, t: string, zone: string) => {
+    const us = Math.round((i * 1e6) / 1024);
+    const s = Math.floor(us / 1e6);
+    return `2024-05-17${t}14:${String(3 + Math.floor(s / 60)).padStart(2, "0")}:${String(s % 60).padStart(2, "0")}.${String(us % 1e6).padStart(6, "0")}${zone}`;
+  };
+
+  it("scientific-notation stamps (%.6e, as numpy.savetxt writes them): the resolution comes from the digits and the exponent", async () => {
+    await expectSamePsd(write("sci-t.csv", "time,ax,ay\n" + rows((i) => (i / 1024).toExponential(6).replace(/e([+-])(\d)$/, "e$10$2"))));
+  });
+  it("significant-digit stamps (%.6g, trailing zeros dropped)", async () => {
+    await expectSamePsd(write("g6-t.csv", "time,ax,ay\n" + rows((i) => String(Number((i / 1024).toPrecision(6))))));
+  });
+  it("ISO 8601 stamps with T and Z: the rate from their differences, the start time in the results", async () => {
+    const b = await expectSamePsd(write("iso-z.csv", "timestamp,ax,ay\n" + rows((i) => iso(i, "T", "Z"))));
+    expect(b.input.startTime).toBe("2024-05-17T14:03:00.000000Z");
+  });
+  it("'YYYY-MM-DD hh:mm:ss.ffffff' stamps without a zone, semicolon-delimited; and with an offset (start time in UTC)", async () => {
+    const b = await expectSamePsd(write("iso-space.csv", "Date/Time;ax;ay\n" + rows((i) => iso(i, " ", ""), ";")));
+    expect(b.input.startTime).toBe("2024-05-17T14:03:00.000000");
+    const c = await expectSamePsd(write("iso-offset.csv", "time,ax,ay\n" + rows((i) => iso(i, "T", "+02:00"))));
+    expect(c.input.startTime).toBe("2024-05-17T12:03:00.000000Z");
+  });
+  it("a time column in milliseconds: --time-unit ms", async () => {
+    await expectSamePsd(write("ms-t.csv", "Time,ax,ay\n" + rows((i) => ((i * 1000) / 1024).toFixed(6))), { csv: { timeUnit: "ms" } });
+  });
+  it("--no-time-column --rate with a date-time column: the column is neither read nor a channel", async () => {
+    const b = await expectSamePsd(write("iso-ignored.csv", "stamp,ax,ay\n" + rows((i) => iso(i, " ", ""))), { csv: { timeColumn: false, sampleRateHz: 1024 } });
+    expect(b.channels.map((c) => c.name)).toEqual(["ax", "ay"]);
+    const c = await expectSamePsd(plainFile, { csv: { timeColumn: false, sampleRateHz: 1024 } });
+    expect(c.channels.map((ch) => ch.name)).toEqual(["ax", "ay"]);
+  });
+  it("--rate that agrees with the time column is accepted", async () => {
+    await expectSamePsd(plainFile, { csv: { sampleRateHz: 1024 } });
+  });
+  it("a trailing delimiter on every row (an empty last column) is ignored, with or without -c", async () => {
+    const f = write("trailing.csv", "time,ax,ay,\n" + rows((i) => (i / 1024).toFixed(6), ",", ","));
+    const b = await expectSamePsd(f);
+    expect(b.channels.map((c) => c.name)).toEqual(["ax", "ay"]);
+    expect(b.input.layout).toContain("empty last column ignored");
+    await expectSamePsd(f, { channels: ["ax"] });
+  });
+  it("a units row under the header is read as units (s, mg, mg)", async () => {
+    const b = await analyzeRecording(write("units-row.csv", "time,ax,ay\ns,mg,mg\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v * 1000},${-v * 1000}`).join("\n") + "\n"), opts);
+    const a = await analyzeRecording(plainFile, opts);
+    expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "mg", unitFrom: "header" });
+    expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+  });
+  it("a preamble of metadata lines before the header is skipped, kept, and counted", async () => {
+    const b = await expectSamePsd(write("preamble.csv", "Logger LX-9 field export\nSerial: 0042-K\nChannels: ax, ay\ntime,ax,ay\n" + rows((i) => (i / 1024).toFixed(6))));
+    expect(b.input.preamble).toEqual(["Logger LX-9 field export", "Serial: 0042-K", "Channels: ax, ay"]);
+    expect(b.input.layout).toContain("3 preamble lines before the header kept as metadata");
+  });
+  it("a 'sep=;' first line names the delimiter", async () => {
+    const b = await expectSamePsd(write("sep.csv", "sep=;\ntime;ax;ay\n" + rows((i) => (i / 1024).toFixed(6), ";")));
+    expect(b.input.layout).toContain("sep=");
+  });
+});

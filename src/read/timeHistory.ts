@@ -12,6 +12,8 @@ export interface RecordingInfo {
   bytes: number;
   /** Format details for the report (CSV dialect, WAV encoding). */
   layout: string;
+  /** Lines before a CSV header that are not comments (a logger's metadata), as text. */
+  preamble?: string[] | undefined;
 }
 
 export interface ChannelInfo {
@@ -33,6 +35,8 @@ export interface ChannelInfo {
 export interface ReadSummary {
   frames: number;
   sampleRateHz: number;
+  /** ISO 8601 time of the first sample, when the file's stamps are date-times (UTC with Z when they carried a zone). */
+  startTime?: string | undefined;
   sha256: string;
   bytes: number;
 }

@@ -15,7 +15,7 @@ export function toolInfo(version: string) {
 
 export function inputJson(a: RecordingAnalysis) {
   const i = a.input;
-  return { file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS };
+  return { file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS, startTime: i.startTime ?? null, preamble: i.preamble ?? [] };
 }
 
 export function settingsJson(a: RecordingAnalysis) {

@@ -9,7 +9,7 @@ export function recordingLines(a: RecordingAnalysis): string[] {
   const i = a.input;
   return [
     `  recording  ${i.layout}`,
-    `             ${i.samples} samples at ${sig(i.sampleRateHz, 6)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed`,
+    `             ${i.samples} samples at ${sig(i.sampleRateHz, 6)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed${i.startTime ? `, from ${i.startTime}` : ""}`,
     `             sha256 ${i.sha256}`,
   ];
 }

@@ -23,5 +23,10 @@ export function generateCases(dir: string): void {
   writeFileSync(join(dir, "not-riff.wav"), "time,ax\n0,1\n");
   writeFileSync(join(dir, "data-before-fmt.wav"), Buffer.concat([Buffer.from("RIFF\x1c\x00\x00\x00WAVEdata\x02\x00\x00\x00\x01\x00", "latin1"), Buffer.from("fmt ", "latin1")]));
   writeFileSync(join(dir, "extensible.wav"), wavBytes({ tag: 3, bits: 32, channels: 1, samples: pcm(64).map((v) => v / 32768), extensible: true }));
+  // Whole-millisecond stamps (resolution 1 ms) for 300 k rows, then 1.4 ms steps printed to 0.1 ms.
+  let ms = "time,ax\n";
+  for (let i = 0; i < 300000; i++) ms += `${(i / 1000).toFixed(3)},${(i % 7) / 10}\n`;
+  for (let k = 0; k < 1000; k++) ms += `${(300 + k * 0.0014).toFixed(4)},${(k % 7) / 10}\n`;
+  writeFileSync(join(dir, "ms-then-1.4ms.csv"), ms);
   writeFileSync(join(dir, "odd-chunk.wav"), wavBytes({ bits: 16, channels: 1, samples: pcm(64), extraChunks: [["LIST", Buffer.from("odd")]] }));
 }
