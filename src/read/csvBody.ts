@@ -367,20 +367,21 @@ interface PlainRowsState {
 }
 
 /**
- * The common case in one loop: rows of exactly `ncol` plain numbers ([+-]digits[.digits], at most 15
- * digits) separated by the delimiter byte and ended by LF or CRLF. Row r's values go to
- * outs[column][row0 + r]. It stops before the first line that is anything else (spaces, exponents,
- * quotes, comments, blank lines, a short row), when the columns are full (`cap`), or at `e`, and
+ * The common case in one loop: rows of exactly `ncol` plain numbers ([+-]digits[.digits][(e|E)[+-]digits],
+ * at most 15 digits, decimal exponent of the last digit within +-22, either decimal mark) separated by
+ * the delimiter byte and ended by LF or CRLF. Row r's values go to
+ * outs[column][row0 + r]. It stops before the first line that is anything else (spaces, longer
+ * exponents, quotes, comments, blank lines, a short row), when the columns are full (`cap`), or at `e`, and
  * returns the rows parsed; the caller's general path takes the line it stopped at. The value is m / 10^k
- * with m exact (at most 15 digits), one correctly rounded division: the same double as Number()
- * (Clinger 1990, as in scanNumber).
+ * or m * 10^-k with m exact (at most 15 digits), one correctly rounded operation: the same double as
+ * Number() (Clinger 1990, as in scanNumber).
  */
 function plainRows(
   buf: Uint8Array, p: number, e: number, outs: Float64Array[], row0: number, cap: number,
   ncol: number, delim: number, decimal: number, timeIndex: number, trailing: boolean, state: PlainRowsState,
 ): number {
   let row = row0;
-  let timeFrac = 0;
+  let timeMaxK = -99;
   let timeMant = 0;
   const last = ncol - 1;
   rows: while (p < e && row < cap) {
@@ -411,7 +412,29 @@ function plainRows(
         frac = p - f0;
         digits += frac;
       }
-      if (((digits - 1) >>> 0) > 14) {
+      // The value is m / 10^k; an exponent (e or E, then [+-]digits) moves k.
+      let k = frac;
+      if ((c | 32) === 101 /* e, E */) {
+        c = buf[++p]!;
+        const eneg = (((c ^ 45) - 1) >>> 31) as 0 | 1;
+        p += eneg;
+        c = buf[p]!;
+        if (c === 43 /* + */ && eneg === 0) c = buf[++p]!;
+        const e0 = p;
+        let ev = 0;
+        while (((c - 48) >>> 0) < 10) {
+          ev = ev * 10 + (c - 48);
+          c = buf[++p]!;
+        }
+        if (((p - e0 - 1) >>> 0) > 2) {
+          p = lineStart;
+          break rows;
+        }
+        k += eneg === 1 ? ev : -ev;
+      }
+      // At most 15 digits and |k| <= 22: m and 10^|k| are exact, and one division or product rounds
+      // correctly (Clinger 1990), so the double is Number()'s.
+      if (((digits - 1) >>> 0) > 14 || ((k + 22) >>> 0) > 44) {
         p = lineStart;
         break rows;
       }
@@ -435,16 +458,16 @@ function plainRows(
         p++;
       }
       p++;
-      outs[col]![row] = (m / POW10[frac]!) * SIGN[neg]!;
+      outs[col]![row] = (k >= 0 ? m / POW10[k]! : m * POW10[-k]!) * SIGN[neg]!;
       if (col === timeIndex) {
-        if (frac > timeFrac) timeFrac = frac;
+        if (k > timeMaxK) timeMaxK = k;
         if (m > timeMant) timeMant = m;
       }
     }
     row++;
   }
   state.end = p;
-  state.timeMinPlace = -timeFrac;
+  state.timeMinPlace = -timeMaxK;
   state.timeMaxMant = timeMant;
   return row - row0;
 }

@@ -56,6 +56,16 @@ describe("CsvBodyParser: the plain-row loop and the general path", () => {
     expect(piece.timeMaxMant).toBe(19999);
   });
 
+  it("scientific stamps: the resolution is the place of the last digit from digits and exponent (1.000020E+01: 1e-5), on both paths", () => {
+    const text = "1.000000E+01,1,2\n1.000020E+01,1.5e-3,2E2\n1.000040E+01,\"3\",4\n";
+    const piece = new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 1);
+    expect(piece.rows).toBe(3);
+    expect(piece.timeMinPlace).toBe(-5);
+    expect(piece.timeMaxMant).toBe(1000040);
+    expect(Array.from(piece.time!)).toEqual([10, 10.0002, 10.0004]);
+    expect(Array.from(piece.channels[0]!)).toEqual([1, 0.0015, 3]);
+  });
+
   it("columns grow when rows are shorter than the first guess (four bytes a field)", () => {
     const text = "0,1,2\n".repeat(5000);
     const piece = new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 1);
