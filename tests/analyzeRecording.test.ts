@@ -132,6 +132,11 @@ describe("analyzeRecording: time stamps and export quirks give the plain CSV's P
   it("a time column in milliseconds: --time-unit ms", async () => {
     await expectSamePsd(write("ms-t.csv", "Time,ax,ay\n" + rows((i) => ((i * 1000) / 1024).toFixed(6))), { csv: { timeUnit: "ms" } });
   });
+  it("spreadsheet serial day numbers with --time-unit serial-days: the rate from their differences, the start time from 1899-12-30", async () => {
+    // 45429.5 is 2024-05-17 12:00 in the 1900 date system (45292 = 2024-01-01, from memory; 137 days on).
+    const b = await expectSamePsd(write("serial.csv", "Time,ax,ay\n" + rows((i) => (45429.5 + i / (1024 * 86400)).toFixed(10))), { csv: { timeUnit: "serial-days" } });
+    expect(b.input.startTime).toBe("2024-05-17T12:00:00.000000");
+  });
   it("--no-time-column --rate with a date-time column: the column is neither read nor a channel", async () => {
     const b = await expectSamePsd(write("iso-ignored.csv", "stamp,ax,ay\n" + rows((i) => iso(i, " ", ""))), { csv: { timeColumn: false, sampleRateHz: 1024 } });
     expect(b.channels.map((c) => c.name)).toEqual(["ax", "ay"]);

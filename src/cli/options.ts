@@ -71,7 +71,7 @@ export function addReadingOptions(cmd: Command): Command {
     .option("--rate <hz>", "sample rate when the CSV has no time column", numberOption("--rate", (x) => x > 0, "a sample rate in Hz above 0"))
     .option("--time-column <name|n>", "the CSV column that holds time (default: a column named time, t, time [ms], …)")
     .option("--no-time-column", "do not use the CSV's time column (it is not read as a channel either; then --rate is needed)")
-    .option("--time-unit <u>", "unit of a time column whose header does not say: s, ms, us, or days (spreadsheet day numbers)", choice("--time-unit", ["s", "ms", "us", "days"]))
+    .option("--time-unit <u>", "unit of a time column whose header does not say: s, ms, us, days, or serial-days (spreadsheet date numbers: days since 1899-12-30, start time said)", choice("--time-unit", ["s", "ms", "us", "days", "serial-days"]))
     .option("--delimiter <d>", "CSV field delimiter: comma, semicolon, tab or whitespace (default: detected)", choice("--delimiter", ["comma", "semicolon", "tab", "whitespace", ",", ";"]))
     .option("--decimal <mark>", "decimal mark: point or comma (default: detected)", choice("--decimal", ["point", "comma"]))
     .option("--units <u>", `unit of the samples where the file does not say: ${UNIT_NAMES.join(", ")} (default g)`, anyUnitOption("--units"))
@@ -102,7 +102,7 @@ export interface ParsedCommon {
   channel?: string[];
   rate?: number;
   timeColumn?: string | false;
-  timeUnit?: "s" | "ms" | "us" | "days";
+  timeUnit?: "s" | "ms" | "us" | "days" | "serial-days";
   delimiter?: string;
   decimal?: "point" | "comma";
   units?: string;

@@ -2,7 +2,9 @@ import { createHash } from "node:crypto";
 import { closeSync, openSync, readSync } from "node:fs";
 import { InputError } from "../errors.js";
 import { columnPool, CsvBodyParser, MAX_LINE_BYTES, type CsvBodySpec, type CsvPiece } from "./csvBody.js";
-import { isoDateTime } from "./dateTimeStamp.js";
+import { daysFromCivil, isoDateTime } from "./dateTimeStamp.js";
+
+const SERIAL_EPOCH_DAYS = daysFromCivil(1899, 12, 30);
 import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, TimeStampCheck, type TimeColumnInfo } from "./timeStampCheck.js";
 import type { ReadSummary } from "./timeHistory.js";
 
@@ -21,6 +23,8 @@ export interface CsvBodyJob extends CsvBodySpec {
   timeFactor: number;
   /** The rate given by the user; a time column that disagrees with it is OPTION_CONFLICT. */
   rateOverride: number | undefined;
+  /** The time column holds spreadsheet serial day numbers (days since 1899-12-30): its start time is said. */
+  serialDays?: boolean | undefined;
   /** The time column, for the messages about its rate and the plausibility rule. */
   timeColumn?: TimeColumnInfo | undefined;
 }
@@ -116,6 +120,10 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
       rate = columnRate;
     }
     if (job.timeDateTime) startTime = isoDateTime(job.timeDateTime.baseDays, span.t0, span.fractionDigits, parser.zoned);
+    // Serial day numbers count from 1899-12-30 in the 1900 date system of spreadsheets (day 1 is
+    // 1900-01-01 there, and day 60 the 29 February 1900 that never was; from day 61 on the count is
+    // true, common practice). 10^-d day is 86.4 * 10^(3-d) s: about d - 4 digits of seconds.
+    if (job.serialDays) startTime = isoDateTime(SERIAL_EPOCH_DAYS, span.t0, Math.max(0, span.fractionDigits - 4), false);
   }
   return { frames, sampleRateHz: rate, sha256: hash.digest("hex"), bytes: pos, startTime };
 }

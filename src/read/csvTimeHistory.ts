@@ -30,7 +30,7 @@ export interface CsvReadOptions {
   delimiter?: "," | ";" | "\t" | "whitespace" | undefined;
   decimal?: "." | "," | undefined;
   /** Unit of a time column whose header does not say (default: seconds, with the plausibility rule). */
-  timeUnit?: "s" | "ms" | "us" | "days" | undefined;
+  timeUnit?: "s" | "ms" | "us" | "days" | "serial-days" | undefined;
   /** 1 to parse (and hash) the body on a worker thread, 0 for this thread (default: 1 for files of 8 MB and more when there is a second core). */
   parseWorkers?: number | undefined;
 }
@@ -364,7 +364,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       timeUnitDeclared = true;
     }
     if (opts.timeUnit !== undefined) {
-      const f = TIME_UNITS[opts.timeUnit]!;
+      const f = TIME_UNITS[opts.timeUnit === "serial-days" ? "days" : opts.timeUnit]!;
       if (timeUnitDeclared && f !== timeFactor) {
         throw new InputError("OPTION_CONFLICT", {
           file, option: "--time-unit", field: columns[timeIndex]!.name, expected: `the header's time unit ${quoted(u!)}`, received: opts.timeUnit, hint: "drop --time-unit (the header already says), or fix the header",
@@ -431,7 +431,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
         file, columns: dialect.columns, columnNames: columns.map((c) => c.name), delimiter: dialect.delimiter, decimal: dialect.decimal, timeIndex,
         selectColumns: select.map((s) => channelCols[s]!.index), bodyStart: dialect.bodyStart, bodyLine: dialect.bodyLine, timeFactor, rateOverride: opts.sampleRateHz,
         timeDateTime: baseDays !== undefined ? { baseDays } : undefined, ignoreColumns: ignoredTime >= 0 && dateTime ? [ignoredTime] : undefined,
-        trailingEmpty: dialect.trailingEmpty, timeColumn: timeCol,
+        trailingEmpty: dialect.trailingEmpty, timeColumn: timeCol, serialDays: opts.timeUnit === "serial-days" && timeIndex >= 0 && !dateTime,
       };
       return readBody(job, sink, onProgress, w);
     },
