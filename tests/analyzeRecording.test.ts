@@ -164,6 +164,21 @@ describe("analyzeRecording: time stamps and export quirks give the plain CSV's P
     expect(b.input.preamble).toEqual(["Logger LX-9 field export", "Serial: 0042-K", "Channels: ax, ay"]);
     expect(b.input.layout).toContain("3 preamble lines before the header kept as metadata");
   });
+  it("channels in %.6e, in %.6e with decimal commas, and integer counts read as the plain CSV of the same values", async () => {
+    const e6 = (v: number) => v.toExponential(6).replace(/e([+-])(\d)$/, "e$10$2");
+    const plain = write("plain-e6.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Number(e6(v))},${Number(e6(-v))}`).join("\n") + "\n");
+    const sci = write("e6.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${e6(v)},${e6(-v)}`).join("\n") + "\n");
+    const comma = write("e6-comma.csv", "time;ax;ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)};${e6(v)};${e6(-v)}`.replace(/\./g, ",")).join("\n") + "\n");
+    const a = await analyzeRecording(plain, opts);
+    for (const f of [sci, comma]) {
+      const b = await analyzeRecording(f, opts);
+      expect(b.input.sampleRateHz).toBe(1024);
+      expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+    }
+    const counts = write("counts.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)},0`).join("\n") + "\n");
+    const countsPlain = write("counts-plain.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)}.0,0.0`).join("\n") + "\n");
+    expect(maxRelDiff((await analyzeRecording(counts, opts)).channels[0]!.psd.psd, (await analyzeRecording(countsPlain, opts)).channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+  });
   it("a 'sep=;' first line names the delimiter", async () => {
     const b = await expectSamePsd(write("sep.csv", "sep=;\ntime;ax;ay\n" + rows((i) => (i / 1024).toFixed(6), ";")));
     expect(b.input.layout).toContain("sep=");
