@@ -155,7 +155,7 @@ function conditionChannel(
     if (optionUnit !== undefined && optionUnit.name !== known.name) {
       throw new InputError("UNIT_CONFLICT", {
         ...place, expected: `--units to agree with the ${ch.fileScale !== undefined ? "file's" : "header's"} unit ${known.name}`, received: optionUnit.name,
-        hint: "drop --units (the file already says), or fix the header",
+        hint: ch.fileScale !== undefined ? "drop --units (the file's calibration chunk already says)" : "drop --units (the file already says), or fix the header",
       });
     }
     unit = known;
