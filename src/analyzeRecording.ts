@@ -141,7 +141,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   }
   const channels = select.map((idx, c): ChannelAnalysis => {
     const stats = moments[c]!.result();
-    const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0 };
+    const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0, detrendedKurtosis: NaN, detrendedCrestFactor: NaN };
     const psd = completePsd(sums, window, resolved, fs);
     const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
     const parseval = parsevalCheck(rmsTime, psd, settings.window);

@@ -9,6 +9,7 @@ import type { CheckOptions, CheckResult } from "../checkRecording.js";
 import { fixed, sig, signedDb, table } from "../report/format.js";
 import { psdCsv, psdJson, toolInfo } from "../report/psdJson.js";
 import { inspectText, psdText } from "../report/psdText.js";
+import { RULE_SUMMARY, VERDICT_MEANING } from "../report/ruleText.js";
 import { writeAtomic } from "../report/writeAtomic.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
@@ -49,6 +50,20 @@ const processIo: CliIo = {
   readStdin: readProcessStdin,
   env: process.env,
 };
+
+/** Text folded at 100 columns, each line after the first indented by `indent` plus two spaces. */
+function wrap(text: string, indent: string): string {
+  const out: string[] = [];
+  let line = indent;
+  for (const word of text.split(" ")) {
+    if (line.trim() !== "" && line.length + word.length + 1 > 100) {
+      out.push(line);
+      line = `${indent}  ${word}`;
+    } else line += line.trim() === "" ? word : ` ${word}`;
+  }
+  out.push(line);
+  return out.join("\n");
+}
 
 /** Thrown by an action to end with an exit code after its output is written. */
 class Exit extends Error {
@@ -197,6 +212,7 @@ export function buildProgram(io: CliIo): Command {
     .requiredOption("-p, --profile <file>", "the required profile (JSON, YAML or CSV)")
     .option("--control <channels>", "judge these channels (names or positions, comma-separated) as one control spectrum; the others are monitoring channels, shown and not judged")
     .option("--control-rule <rule>", "how the control channels make one spectrum: average (mean PSD at each line) or largest (the highest at each line)", choice("--control-rule", ["average", "largest"]), "average")
+    .addHelpText("after", `\n${wrap(`Decision rule: ${RULE_SUMMARY}`, "")}\n\nVerdicts:\n${(["pass", "fail", "inconclusive"] as const).map((v) => wrap(`${v} (exit ${v === "pass" ? 0 : v === "fail" ? 1 : 3}): ${VERDICT_MEANING[v]}.`, "  ")).join("\n")}\n`)
     .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
     .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
     .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest" }) => {

@@ -26,6 +26,9 @@ export interface PsdEstimate {
   segmentMeanSquare: number;
   meanSquareGapError: number;
   meanSquareGapBatches: number;
+  /** Kurtosis and crest factor of the detrended segments (WelchSums). */
+  detrendedKurtosis: number;
+  detrendedCrestFactor: number;
   lineSpacingHz: number;
 }
 
@@ -70,6 +73,8 @@ export function completePsd(sums: WelchSums, window: Float64Array, s: ResolvedWe
     segmentMeanSquare: sums.segmentMeanSquare,
     meanSquareGapError: sums.meanSquareGapError,
     meanSquareGapBatches: sums.meanSquareGapBatches,
+    detrendedKurtosis: sums.detrendedKurtosis,
+    detrendedCrestFactor: sums.detrendedCrestFactor,
     lineSpacingHz: df,
   };
 }

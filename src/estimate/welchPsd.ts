@@ -39,6 +39,12 @@ export interface WelchSums {
   meanSquareGapError: number;
   /** Batches behind meanSquareGapError. */
   meanSquareGapBatches: number;
+  /**
+   * Amplitude figures of the detrended segments (so drift slower than the first line is not in them):
+   * Pearson kurtosis of all their samples and the crest factor max |d| / rms(d).
+   */
+  detrendedKurtosis: number;
+  detrendedCrestFactor: number;
 }
 
 const MAX_BATCHES = 64;
@@ -102,6 +108,8 @@ export class WelchAccumulator {
   private samples = 0;
   private weightedMs = 0;
   private plainMs = 0;
+  private fourth = 0;
+  private peak = 0;
   private readonly gaps = new BatchMeans();
 
   /** `power` may be shared by the accumulators of one segment length (it holds only scratch space). */
@@ -172,12 +180,29 @@ export class WelchAccumulator {
     }
     // y[i] = (x[i] - mean - slope (i - mid)) w[i], applied as the kernel loads the segment.
     const ms = this.power.add(x, this.window, mean - slope * mid, slope, this.sum);
-    // Plain residual mean square of the same detrended segment: sum x^2 - n mean^2 - slope^2 sum (i - mid)^2.
+    // Plain residual mean square of the same detrended segment: sum x^2 - n mean^2 - slope^2 sum (i - mid)^2;
+    // and its fourth power and peak, for the amplitude gates.
     const plain = Math.max(0, this.sq[0]! - n * mean * mean - (slope * slope * (n * (n * n - 1))) / 12) / n;
+    this.fourthAndPeak(x, mean - slope * mid, slope);
     this.weightedMs += ms / this.sumW2;
     this.plainMs += plain;
     this.gaps.push(ms / this.sumW2 - plain);
     this.segments++;
+  }
+
+  /** Sum of d^4 and the largest |d| for d = x - (offset + slope i), one pass over the segment. */
+  private fourthAndPeak(x: Float64Array, offset: number, slope: number): void {
+    let s4 = 0;
+    let pk = this.peak;
+    for (let i = 0; i < this.n; i++) {
+      const d = x[i]! - offset - slope * i;
+      const d2 = d * d;
+      s4 += d2 * d2;
+      const a = d < 0 ? -d : d;
+      if (a > pk) pk = a;
+    }
+    this.fourth += s4 / this.n;
+    this.peak = pk;
   }
 
   finish(sampleRateHz: number): WelchSums {
@@ -198,6 +223,8 @@ export class WelchAccumulator {
       segmentMeanSquare: k > 0 ? this.plainMs / k : NaN,
       meanSquareGapError: gap.error,
       meanSquareGapBatches: gap.batches,
+      detrendedKurtosis: k > 0 && this.plainMs > 0 ? (this.fourth / k) / (this.plainMs / k) ** 2 : NaN,
+      detrendedCrestFactor: k > 0 && this.plainMs > 0 ? this.peak / Math.sqrt(this.plainMs / k) : NaN,
     };
   }
 }

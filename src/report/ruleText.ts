@@ -6,7 +6,7 @@ import { fixed } from "./format.js";
 export const VERDICT_MEANING: Record<Verdict, string> = {
   pass: "no failure is shown, and the record had the degrees of freedom, coverage, resolution, duration and data quality to show one",
   fail: `the data show the profile is not met (lines outside their band beyond the allowance, a line beyond an outer limit, or the RMS outside its tolerance), with a false-fail rate of at most ${pct(DECISION_RULE.falseFailRate)} for any conforming record`,
-  inconclusive: "no failure is shown, but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration) or its data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch)",
+  inconclusive: "either no failure is shown but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration, an RMS too close to its limit to call), or the data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch), so no verdict can rest on them",
 };
 
 /** The decision rule in one paragraph. */

@@ -17,6 +17,8 @@ import { shapedRecord } from "../shapedRecords.js";
  * point only once in a thousand runs; the tests assert the observed count against those points for
  * the rate the rule promises (so a pass here proves the rate to that confidence, not to the digit).
  */
+/** More records for a longer table (PSDGATE_MC_SCALE=5 npx vitest run this file); CI runs the default. */
+const SCALE = Math.max(1, Number(process.env.PSDGATE_MC_SCALE ?? 1));
 const profile = parseProfile(readFileSync("samples/profiles/kb210-controller.json", "utf8"), "kb210-controller.json");
 const FS = 5120;
 const N = 2048;
@@ -68,7 +70,7 @@ describe("decision rule by Monte Carlo (records made by the test, not by synth)"
   const ks = [66, 79, 99, 127]; // 125.2, 149.8, 187.7, 240.6 DOF
 
   it("a record whose true PSD equals the profile never fails by chance: 0 of 200 at 125-241 DOF (analytic: below 1e-6)", () => {
-    const n = 200;
+    const n = 200 * SCALE;
     const mc = monteCarlo(nominal, ks, n, 10_000);
     ks.forEach((k, i) => {
       expect(mc[i]!.fail, `K ${k}, ${dofOf(k).toFixed(1)} DOF`).toBeLessThanOrEqual(upper999(n, 1e-6));
@@ -80,7 +82,7 @@ describe("decision rule by Monte Carlo (records made by the test, not by synth)"
   }, 300_000);
 
   it("a true PSD on the band edges everywhere (alternating +band/-band every 50 Hz, RMS inside) fails at most 5 %: analytic bound 4 %", () => {
-    const n = 200;
+    const n = 200 * SCALE;
     const edge = (f: number) => nominal(f) * 10 ** (((Math.floor(f / 50) % 2 ? 1 : -1) * bandDb(f)) / 10);
     const mc = monteCarlo(edge, [66, 127], n, 20_000);
     // The line tests' share of the false-fail rate is DECISION_RULE.lines = 4 % (Bonferroni bound).
@@ -88,13 +90,13 @@ describe("decision rule by Monte Carlo (records made by the test, not by synth)"
   }, 300_000);
 
   it("an RMS on its tolerance edge (all lines +1 dB) fails at most 5 %", () => {
-    const n = 100;
+    const n = 100 * SCALE;
     const mc = monteCarlo((f) => nominal(f) * 10 ** 0.1, [66, 127], n, 30_000);
     for (const c of mc) expect(c.fail).toBeLessThanOrEqual(upper999(n, DECISION_RULE.falseFailRate));
   }, 300_000);
 
   it("a departure 1.5 dB beyond the band over 5 % of the lines in one stretch (40 lines at 350-450 Hz) fails at least 95 % at 125 DOF", () => {
-    const n = 100;
+    const n = 100 * SCALE;
     const lv = ruleLevels(789, false);
     // Analytic: the one stretch of 16 lines inside the departure, its DOF nu 16 / (1 + 2 (15/16) 4/9 + 2 (14/16) 1/36).
     const nu16 = (dofOf(66) * 16) / (1 + 2 * (15 / 16) * (4 / 9) + 2 * (14 / 16) * (1 / 36));
@@ -111,7 +113,7 @@ describe("decision rule by Monte Carlo (records made by the test, not by synth)"
   }, 300_000);
 
   it("the same 5 % in five scattered stretches of 8 lines fails at least 95 % at the DOF the rule asks for a pass (analytic 95 %)", () => {
-    const n = 100;
+    const n = 100 * SCALE;
     const starts = [62.5, 237.5, 412.5, 612.5, 862.5];
     const inRuns = (f: number) => starts.some((s) => f >= s - 1.25 && f < s + 20 - 1.25);
     const probe = judge(shapedRecord(nominal, FS, LENGTH, 1), 66);
@@ -124,7 +126,7 @@ describe("decision rule by Monte Carlo (records made by the test, not by synth)"
   }, 300_000);
 
   it("an RMS 0.5 dB outside its tolerance (every line +-1.5 dB) fails at least 95 % at 125 DOF", () => {
-    const n = 50;
+    const n = 50 * SCALE;
     const hot = monteCarlo((f) => nominal(f) * 10 ** 0.15, [66], n, 80_000)[0]!;
     const cold = monteCarlo((f) => nominal(f) * 10 ** -0.15, [66], n, 90_000)[0]!;
     expect(hot.fail).toBeGreaterThanOrEqual(lower999(n, 0.95));
