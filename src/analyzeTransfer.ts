@@ -190,7 +190,7 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   });
   return {
     input: { file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes, sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs },
-    settings: { ...settings, resolutionHz: df, scale: options.scale ?? 1, goodCoherence: good },
+    settings: { ...settings, resolutionHz: df, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1, goodCoherence: good },
     averages: sums.segments,
     skippedSegments: sums.skippedSegments,
     dof,
