@@ -79,7 +79,8 @@ interface Column {
 function splitNameUnit(field: string, index: number): Column {
   const f = field.trim();
   const m = /^(.*?)\s*[[(]\s*([^\])]*?)\s*[\])]\s*$/.exec(f);
-  if (m && m[1] !== "") return { index, name: m[1]!, unitText: m[2] };
+  // A bracketed suffix is a unit only if it holds a letter (or µ, °): "ax (2)" is a name, "ax (mg)" a unit.
+  if (m && m[1] !== "" && /[\p{L}°]/u.test(m[2]!)) return { index, name: m[1]!, unitText: m[2] };
   const u = /^(.*?)_(ms|us|s)$/i.exec(f);
   if (u && TIME_NAMES.test(u[1]!)) return { index, name: f, unitText: u[2]!.toLowerCase() };
   return { index, name: f === "" ? `col${index + 1}` : f, unitText: undefined };

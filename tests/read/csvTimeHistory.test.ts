@@ -56,6 +56,10 @@ describe("openCsvTimeHistory: dialects", () => {
     expect(r.channels[0]).toEqual([1, 2, 3]);
     expect(r.summary.sampleRateHz).toBe(2);
   });
+  it("a bracketed suffix without a letter is part of the name, not a unit: 'ax (2)'", async () => {
+    const r = await readCsv(csv("time [s],ax (2),ay [mg]\n0,1,2\n1,3,4\n"));
+    expect(r.info.channels.map((c) => [c.name, c.declaredUnitText])).toEqual([["ax (2)", undefined], ["ay", "mg"]]);
+  });
   it("a time column in milliseconds declared by the header, and time_ms", async () => {
     expect((await readCsv(csv("time [ms],ax\n0,1\n0.5,2\n1.0,3\n"), { timeUnit: undefined })).summary.sampleRateHz).toBe(2000);
     expect((await readCsv(csv("time_ms,ax\n0,1\n2,2\n4,3\n"), { timeUnit: undefined })).summary.sampleRateHz).toBe(500);
