@@ -15,5 +15,7 @@ const runs = [
 for (const [profile, duration, rate, channels, seed, out] of runs) {
   execFileSync("node", ["bin/psdgate.js", "synth", "--profile", profile, "--duration", duration, "--rate", rate, "--channels", channels, "--seed", seed, "--out", out, "--force"], { stdio: "inherit" });
 }
+// The ride recording is not a profile synthesis: its own script models the vehicle (scripts/make-ride-sample.mjs).
+execFileSync("node", ["scripts/make-ride-sample.mjs"], { stdio: "inherit" });
 // Three-channel fixture survey (base, bracket tip, cable clamp) for `psdgate transfer`: its own script.
 execFileSync("node", ["scripts/make-fixture-survey.mjs"], { stdio: "inherit" });

@@ -7,6 +7,8 @@ import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPe
 import { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
 import { SegmentPower } from "./estimate/segmentPower.js";
 import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
+import { stationarityFinding, type StationarityFinding } from "./estimate/stationarityTests.js";
+import { StretchMeanSquares } from "./estimate/stretchMeanSquares.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./estimate/welchOptions.js";
 import { WelchAccumulator } from "./estimate/welchPsd.js";
 import { spectralWindow } from "./estimate/windows.js";
@@ -41,6 +43,42 @@ export interface AnalysisOptions extends WelchOptions {
   /** Also build the amplitude histogram of each channel (one more pass over each block). */
   histogram?: boolean | undefined;
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
+  /** Start of the analysed window, s from the first sample (default 0). The whole file is still read and hashed. */
+  fromS?: number | undefined;
+  /** End of the analysed window, s from the first sample (default: the end). */
+  toS?: number | undefined;
+  /** Length of the stretches whose mean squares the stationarity test compares, s (default 1). */
+  stretchS?: number | undefined;
+  /** More listeners on the same pass (see PassAccumulator); their results come back in `extras`, in order. */
+  accumulators?: PassAccumulator[] | undefined;
+}
+
+/**
+ * An extra listener on the one pass: the smallest seam for analyses beyond the built-in statistics and
+ * Welch (the ride weighting uses it); the reshape's pluggable accumulators (#10) will absorb it.
+ * - `start(designRateHz)` is called once before any sample flows, with the rate the reader announces
+ *   (provisional for a CSV with a time column: the final one is known only when the column is read).
+ *   Rate-dependent design (filters, window lengths) happens here.
+ * - `push(blocks, frames)` gets every block of the selected channels, in `channels` order, conditioned
+ *   (calibrated, in the result unit) and cut to the frame window. The arrays are reused: copy what must
+ *   outlive the call.
+ * - `finish(sampleRateHz)` gets the record's final rate and returns the result.
+ * Rate contract: when the final rate differs from the design rate (relative 1e-6), the analysis carries
+ * a doubt in `passDoubts`, since the accumulators were designed for a rate their samples did not have.
+ */
+export interface PassAccumulator<R = unknown> {
+  start(designRateHz: number): void;
+  push(blocks: Float64Array[], frames: number): void;
+  finish(sampleRateHz: number): R;
+}
+
+/** The analysed window, in s from the first sample at the final rate, and its length in frames. */
+export interface FrameWindow {
+  fromS: number;
+  toS: number;
+  frames: number;
+  /** The --to asked for, when it lay past the end (toS is then the end). */
+  requestedToS?: number | undefined;
 }
 
 export interface ChannelAnalysis {
@@ -57,6 +95,8 @@ export interface ChannelAnalysis {
   peaks: SpectralPeak[];
   /** Amplitude histogram, when asked for (the review report shows it). */
   histogram?: AmplitudeHistogram | undefined;
+  /** Reverse-arrangements test on the stretch mean squares (Bendat & Piersol 2010, sec. 10.3). */
+  stationarity: StationarityFinding;
   /** Findings that weaken trust in the result; each names what was seen. */
   warnings: string[];
   /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
@@ -82,7 +122,12 @@ export interface RecordingAnalysis {
     preamble?: string[] | undefined;
   };
   settings: ResolvedWelchOptions & { scale: number };
+  window: FrameWindow;
   channels: ChannelAnalysis[];
+  /** Results of `options.accumulators`, in order. */
+  extras: unknown[];
+  /** Doubts about the whole pass (the rate contract). */
+  passDoubts: string[];
 }
 
 export function selectChannels(info: RecordingInfo, wanted: string[] | undefined): number[] {
@@ -122,22 +167,52 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
       received: `${spectrumChannels} channels x ${settings.segmentLength}`, hint: "select fewer channels with --channel, or use a shorter --segment or a coarser --resolution",
     });
   }
+  const designFs = info.sampleRateHz;
+  const stretchS = options.stretchS ?? 1;
+  const extras = options.accumulators ?? [];
+  let first = 0;
+  let end = Infinity;
+  try {
+    ({ first, end } = frameWindow(options, designFs));
+    if (!(stretchS > 0 && Number.isFinite(stretchS))) throw new InputError("OPTION_INVALID", { option: "--stretch", expected: "a stretch length in s above 0", received: String(stretchS) });
+    for (const e of extras) e.start(designFs);
+  } catch (e) {
+    // A read that will not come releases what the source holds (a large CSV's waiting worker).
+    await source.close?.();
+    throw e;
+  }
   const window = spectralWindow(settings.window, settings.segmentLength);
   const power = new SegmentPower(settings.segmentLength);
   const spectrum = options.spectrum !== false;
   const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power) : undefined));
   const moments = select.map(() => new RunningMoments());
   const histograms = options.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
+  // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
+  const stretchLength = Number.isFinite(designFs) && designFs > 0 ? Math.max(2, Math.round(stretchS * designFs)) : 2;
+  const stretches = select.map(() => new StretchMeanSquares(stretchLength));
+  const views: Float64Array[] = select.map(() => new Float64Array(0));
+  let offset = 0;
+  let taken = 0;
   const summary = await source.read(
     select,
     (blocks, frames) => {
+      // The frame window [first, end) cut out of this block: [a, b).
+      const a = Math.max(0, first - offset);
+      const b = Math.min(frames, end - offset);
+      offset += frames;
+      if (b <= a) return;
+      const n = b - a;
+      taken += n;
       for (let c = 0; c < blocks.length; c++) {
-        const x = blocks[c]!;
-        scaleSamples(x, frames, conditioning[c]!.factor);
-        moments[c]!.push(x, frames);
-        histograms?.[c]!.push(x, frames);
-        welch[c]?.push(x, frames);
+        const x = a === 0 ? blocks[c]! : blocks[c]!.subarray(a, b);
+        views[c] = x;
+        scaleSamples(x, n, conditioning[c]!.factor);
+        moments[c]!.push(x, n);
+        histograms?.[c]!.push(x, n);
+        welch[c]?.push(x, n);
+        stretches[c]!.push(x, n);
       }
+      for (const e of extras) e.push(views, n);
     },
     options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
   );
@@ -145,6 +220,20 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     throw new InputError("RECORD_TOO_SHORT", { file: info.file, expected: "at least one sample", received: "0 samples", hint: "the recording holds no data" });
   }
   const fs = summary.sampleRateHz;
+  const passDoubts: string[] = [];
+  if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
+    passDoubts.push(`the record's rate is ${fmt(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${fmt(designFs)} Hz its first rows gave`);
+  }
+  if (taken === 0 && (options.fromS !== undefined || options.toS !== undefined)) {
+    throw new InputError("WINDOW_EMPTY", {
+      file: info.file, option: options.fromS !== undefined ? "--from" : "--to",
+      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `--from ${options.fromS ?? 0} --to ${options.toS ?? "end"}`,
+    });
+  }
+  const recordEndS = summary.frames / fs;
+  const windowInfo: FrameWindow = { fromS: Math.min(first, summary.frames) / fs, toS: Math.min(end, summary.frames) / fs, frames: taken };
+  if (options.toS !== undefined && end > summary.frames) windowInfo.requestedToS = options.toS;
+  const extraResults = extras.map((e) => e.finish(fs));
   // The line spacing follows the final rate (a CSV time column is only known once fully read).
   const resolved = { ...settings, resolutionHz: fs / settings.segmentLength };
   for (const [key, v] of [["fminHz", options.fminHz], ["fmaxHz", options.fmaxHz]] as const) {
@@ -161,10 +250,14 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const lo = options.fminHz ?? 0;
     const hi = options.fmaxHz ?? fs / 2;
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
-    const { notes, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength, spectrum, summary.frames / fs);
+    const stationarity = stationarityFinding(stretches[c]!.result(), stretchLength / fs, windowInfo.fromS);
+    const { notes, doubts } = findings(info.channels[idx]!, stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs);
+    const note = stationarityNote(stationarity);
+    if (note !== undefined) notes.push({ code: "NOT_STATIONARY", text: note });
+    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", text: `--to ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
-      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });
   return {
@@ -173,8 +266,36 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
       sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs, startTime: summary.startTime, preamble: info.preamble,
     },
     settings: { ...resolved, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
+    window: windowInfo,
     channels,
+    extras: extraResults,
+    passDoubts,
   };
+}
+
+/** First frame and end frame (exclusive) of --from/--to at the design rate: frames i with from <= i/fs < to. */
+function frameWindow(o: AnalysisOptions, fs: number): { first: number; end: number } {
+  for (const [name, v] of [["--from", o.fromS], ["--to", o.toS]] as const) {
+    if (v !== undefined && !(v >= 0 && Number.isFinite(v))) throw new InputError("OPTION_INVALID", { option: name, expected: "a time in s from the start of the record, >= 0", received: String(v) });
+  }
+  if (o.fromS !== undefined && o.toS !== undefined && !(o.fromS < o.toS)) {
+    throw new InputError("OPTION_INVALID", { option: "--from", expected: "--from before --to", received: `${o.fromS} >= ${o.toS}` });
+  }
+  const first = o.fromS === undefined ? 0 : Math.ceil(o.fromS * fs - 1e-9);
+  const end = o.toS === undefined ? Infinity : Math.ceil(o.toS * fs - 1e-9);
+  return { first, end };
+}
+
+/** The note `psd` and `check` print when a record fails the stationarity test. */
+export function stationarityNote(f: StationarityFinding): string | undefined {
+  if (!f.tested || f.stationary || f.reverseArrangements === undefined) return undefined;
+  const t = f.reverseArrangements;
+  const d = f.departing[0];
+  return `not stationary: reverse arrangements A = ${t.statistic} outside ${t.acceptAbove} < A <= ${t.acceptAtMost} (${t.n} values, ${fixedPct(t.alpha)} % test) on ${f.stretches} stretch mean squares of ${fmt(f.stretchS)} s${f.pooled > 1 ? ` pooled ${f.pooled} at a time` : ""}; the PSD averages unlike stretches${d ? `; most departing ${fmt(d.fromS)}-${fmt(d.toS)} s at ${d.levelDb >= 0 ? "+" : ""}${d.levelDb.toFixed(1)} dB from the median` : ""}`;
+}
+
+function fixedPct(a: number): string {
+  return Number((100 * a).toPrecision(3)).toString();
 }
 
 /**

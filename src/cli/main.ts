@@ -20,6 +20,7 @@ import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
 import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, choice, numberOption, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
+import { registerRide } from "./ride.js";
 import { registerRespond } from "./respond.js";
 import { registerTransfer } from "./transfer.js";
 
@@ -312,6 +313,7 @@ export function buildProgram(io: CliIo): Command {
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
     });
 
+  registerRide(program, io);
   for (const register of [registerTransfer, registerRespond]) register(program, io);
 
   return program;

@@ -78,7 +78,9 @@ export function addReadingOptions(cmd: Command): Command {
     .option("--units <u>", `unit of the samples where the file does not say: ${UNIT_NAMES.join(", ")} (default g)`, anyUnitOption("--units"))
     .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit's base, g or m/s2)", baseUnitOption("--result-units"))
     .option("--scale <[ch=]k>", "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel", channelSetting("--scale", scaleValue, "a non-zero number K, or CH=K"))
-    .option("--sensitivity <[ch=]s>", "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel", channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"));
+    .option("--sensitivity <[ch=]s>", "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel", channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"))
+    .option("--from <s>", "analyse from this time, in s from the first sample (the window is recorded in the results)", numberOption("--from", (x) => x >= 0, "a time in s >= 0"))
+    .option("--to <s>", "analyse up to this time, in s from the first sample", numberOption("--to", (x) => x > 0, "a time in s above 0"));
 }
 
 /** Options of the Welch estimate (shared by psd and check). */
@@ -110,6 +112,8 @@ export interface ParsedCommon {
   resultUnits?: AccelUnit;
   scale?: ChannelSetting<number>[];
   sensitivity?: ChannelSetting<string>[];
+  from?: number;
+  to?: number;
   window?: WindowName;
   segment?: number;
   resolution?: number;
@@ -139,6 +143,8 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     resultUnits: o.resultUnits,
     channelScales: o.scale,
     sensitivities: o.sensitivity,
+    fromS: o.from,
+    toS: o.to,
     window: o.window,
     segmentLength: o.segment,
     resolutionHz: o.resolution,

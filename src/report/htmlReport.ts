@@ -19,7 +19,8 @@ const VERDICT_TEXT: Record<Verdict, { word: string; line: string }> = {
   inconclusive: { word: "INCONCLUSIVE", line: `Inconclusive: ${VERDICT_MEANING.inconclusive}.` },
 };
 
-const STYLE = `
+/** The report pages' shared style sheet (print layout, plots, cautions, sign-off). */
+export const STYLE = `
 @page { size: auto; margin: 14mm 12mm; }
 * { box-sizing: border-box; }
 body { font: 10.5pt/1.4 "DejaVu Sans", "Helvetica Neue", Arial, sans-serif; color: #1d2428; margin: 0 auto; max-width: 190mm; padding: 10mm 4mm; }

@@ -1,4 +1,5 @@
 import type { RecordingAnalysis } from "../analyzeRecording.js";
+import type { StationarityFinding, StationarityTest } from "../estimate/stationarityTests.js";
 import { densityAscii } from "../units.js";
 import { csvField } from "./csvField.js";
 
@@ -16,7 +17,11 @@ export function toolInfo(version: string) {
 
 export function inputJson(a: RecordingAnalysis) {
   const i = a.input;
-  return { file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS, startTime: i.startTime ?? null, preamble: i.preamble ?? [] };
+  const w = a.window;
+  return {
+    file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS, startTime: i.startTime ?? null, preamble: i.preamble ?? [],
+    window: { fromS: w.fromS, toS: w.toS, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}) },
+  };
 }
 
 export function settingsJson(a: RecordingAnalysis) {
@@ -27,6 +32,12 @@ export function settingsJson(a: RecordingAnalysis) {
 export function statsJson(a: RecordingAnalysis["channels"][number]) {
   const s = a.stats;
   return Object.fromEntries(Object.entries(s).map(([k, v]) => [k, finiteOrNull(v)]));
+}
+
+/** The stationarity finding as plain JSON (the tests' regions, the deciding statistic, departing stretches). */
+export function stationarityJson(f: StationarityFinding) {
+  const t = (x: StationarityTest | undefined) => x && { statistic: x.statistic, n: x.n, acceptAbove: x.acceptAbove, acceptAtMost: x.acceptAtMost, alpha: x.alpha, method: x.method, stationary: x.stationary };
+  return { tested: f.tested, stationary: f.stationary, stretchS: f.stretchS, stretches: f.stretches, pooled: f.pooled, reverseArrangements: t(f.reverseArrangements) ?? null, runs: t(f.runs) ?? null, departing: f.departing };
 }
 
 /** The `psd --json` document (schema in README.md). */
@@ -58,6 +69,7 @@ export function psdJson(a: RecordingAnalysis, version: string) {
       band: c.band ? { fminHz: c.band.fminHz, fmaxHz: c.band.fmaxHz, rms: finiteOrNull(c.band.rms) } : null,
       peaks: c.peaks,
       stats: statsJson(c),
+      stationarity: stationarityJson(c.stationarity),
       warnings: c.warnings,
       doubts: c.doubts,
       notes: c.notes,

@@ -25,6 +25,8 @@ export interface PlotSpec {
   xDomain: [number, number];
   yDomain: [number, number];
   yLog: boolean;
+  /** Log x axis (default true); false gives a linear x axis (time plots). */
+  xLog?: boolean | undefined;
   series: Series[];
   /** Horizontal reference lines (linear plots). */
   rules?: number[] | undefined;
@@ -61,7 +63,8 @@ function superscript(n: number): string {
 }
 
 export function svgPlot(p: PlotSpec): string {
-  const x = scaleLog().domain(p.xDomain).range([M.left, W - M.right]);
+  const xLog = p.xLog !== false;
+  const x = (xLog ? scaleLog() : scaleLinear()).domain(p.xDomain).range([M.left, W - M.right]);
   const y = (p.yLog ? scaleLog() : scaleLinear()).domain(p.yDomain).range([H - M.bottom, M.top]);
   const inX = (v: number) => v >= p.xDomain[0] && v <= p.xDomain[1];
   const ok = (v: number) => Number.isFinite(v) && (!p.yLog || v > 0);
@@ -70,11 +73,11 @@ export function svgPlot(p: PlotSpec): string {
   out.push(`<svg id="${p.id}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(p.title)}</text>`);
   // Grid and ticks.
-  const xt = logTicks(x, 10);
+  const xt = xLog ? logTicks(x, 10) : { major: x.ticks(10), minor: [] as number[] };
   for (const t of xt.minor) out.push(`<line class="grid minor" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`);
   for (const t of xt.major) {
     out.push(`<line class="grid" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`);
-    out.push(`<text class="tick" x="${x(t).toFixed(1)}" y="${H - M.bottom + 16}" text-anchor="middle">${tickLabel(t)}</text>`);
+    out.push(`<text class="tick" x="${x(t).toFixed(1)}" y="${H - M.bottom + 16}" text-anchor="middle">${xLog ? tickLabel(t) : Number(t.toPrecision(3))}</text>`);
   }
   if (p.yLog) {
     const yt = logTicks(y as ScaleContinuousNumeric<number, number>, 8);

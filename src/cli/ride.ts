@@ -1,0 +1,102 @@
+import type { Command } from "commander";
+import { POSTURES, type Axis, type Posture } from "../compare/wholeBodyExposure.js";
+import { InputError, quoted } from "../errors.js";
+import { VERSION } from "../version.js";
+import type { CliIo } from "./main.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import { createProgress, progressEnabled } from "./progress.js";
+
+/** `x=seat_x,y=2,z=seat_z` → channel of each axis. */
+export function parseAxes(text: string): Partial<Record<Axis, string>> {
+  const out: Partial<Record<Axis, string>> = {};
+  for (const part of text.split(",")) {
+    const m = /^\s*([xyz])\s*=\s*(.+?)\s*$/i.exec(part);
+    const axis = m?.[1]?.toLowerCase() as Axis | undefined;
+    if (!m || axis === undefined || out[axis] !== undefined) {
+      throw new InputError("OPTION_INVALID", { option: "--axes", expected: "axis=channel pairs, each axis once: x=CH,y=CH,z=CH (a name or 1-based position)", received: quoted(part) });
+    }
+    out[axis] = m[2]!;
+  }
+  return out;
+}
+
+function exposureOption(text: string): number {
+  const s = parseDuration(text);
+  if (s === undefined || !(s > 0 && s <= 86400)) {
+    throw new InputError("OPTION_INVALID", { option: "--exposure", expected: "a daily exposure such as 8h, 6.5h, 2h30min, 90min or 07:30 (at most 24 h)", received: quoted(text) });
+  }
+  return s;
+}
+
+/** A duration written `8h`, `6.5 h`, `90min`, `2h30min`, `45s` or `hh:mm`, in s; undefined for anything else. */
+export function parseDuration(text: string): number | undefined {
+  const body = text.trim().toLowerCase().replace(/\s+/g, "");
+  const clock = /^(\d{1,2}):([0-5]\d)$/.exec(body);
+  if (clock) return Number(clock[1]) * 3600 + Number(clock[2]) * 60;
+  const part = /(\d+(?:\.\d+)?)(hours?|h|minutes?|min|seconds?|s)/y;
+  let total = 0;
+  let m: RegExpExecArray | null;
+  let at = 0;
+  while ((m = part.exec(body)) !== null) {
+    const v = Number(m[1]);
+    total += m[2]!.startsWith("h") ? v * 3600 : m[2]!.startsWith("m") ? v * 60 : v;
+    at = part.lastIndex;
+  }
+  return at === body.length && body.length > 0 ? total : undefined;
+}
+
+interface RideFlags extends ParsedCommon {
+  axes: Partial<Record<Axis, string>>;
+  posture: Posture;
+  exposure: number;
+  floor?: string;
+  runningRms?: number;
+  json?: boolean;
+  quiet?: boolean;
+  report?: string;
+  force?: boolean;
+}
+
+/** Registers `psdgate ride` onto the program. */
+export function registerRide(program: Command, io: CliIo): void {
+  const cmd = addSpectrumOptions(addReadingOptions(
+    program.command("ride").argument("<file>", "ride recording: CSV or WAV").description("whole-body vibration of a ride: ISO 2631-1 weighted r.m.s., VDV, MTVV, daily exposure A(8) and VDV, comfort, seat transmissibility"),
+  ));
+  // Channels come from --axes and --floor, and results are SI: these two shared options stay out of ride's help (and are refused).
+  for (const opt of cmd.options) if (opt.long === "--channel" || opt.long === "--result-units") opt.hideHelp();
+  cmd
+    .requiredOption("--axes <pairs>", "channel of each axis, e.g. x=seat_x,y=seat_y,z=seat_z (z vertical)", parseAxes)
+    .option("--posture <p>", POSTURES.join(", "), (t: string) => {
+      const p = t.toLowerCase() as Posture;
+      if (!POSTURES.includes(p)) throw new InputError("OPTION_INVALID", { option: "--posture", expected: `one of ${POSTURES.join(", ")}`, received: quoted(t) });
+      return p;
+    }, "seated" as Posture)
+    .requiredOption("--exposure <duration>", "daily exposure the recording stands for: 8h, 6.5h, 2h30min, 90min, 07:30", exposureOption)
+    .option("--floor <channel>", "vertical floor channel beneath the seat: adds the seat's effective amplitude transmissibility (SEAT)")
+    .option("--running-rms <s>", "integration time of the running r.m.s. and of the stationarity stretches (default 1 s)", numberOption("--running-rms", (x) => x > 0 && x <= 60, "an integration time in s, 0 < t <= 60"))
+    .option("--json", "print the result as JSON (SI units)")
+    .option("--report <out.html>", "also write a self-contained HTML report: level over time, spectrograms, spectra, exposure against the limit values")
+    .option("--force", "replace an existing report file")
+    .option("-q, --quiet", "no progress bar")
+    .addHelpText("after", "\nRide's Welch defaults differ from psd's: 0.125 Hz lines (--resolution) and 75 % overlap (--overlap).\nResults are in SI units (m/s², m/s^1.75); --units and --scale say what the file holds.\nAn engineering estimate from one recording, not an occupational-health assessment: local regulations and competent persons decide.\n")
+    .action(async (file: string, o: RideFlags) => {
+      if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "channels given by --axes (and --floor) for ride", received: o.channel.join(",") });
+      if (o.resultUnits !== undefined && o.resultUnits !== "m/s2") throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: "m/s2 (ride results are SI)", received: o.resultUnits });
+      const { rideRecording } = await import("../rideRecording.js");
+      const { rideJson, rideText } = await import("../report/rideReport.js");
+      const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
+      const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
+      let r;
+      try {
+        r = await rideRecording(file, { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, spectrogram: o.report !== undefined, onProgress: (d, t) => progress.update(d, t) });
+      } finally {
+        progress.end();
+      }
+      if (o.report !== undefined) {
+        const { rideHtml } = await import("../report/rideHtml.js");
+        const { writeAtomic } = await import("../report/writeAtomic.js");
+        await writeAtomic(o.report, rideHtml(r, VERSION, new Date()), { inputs: [file], force: o.force, option: "--report" });
+      }
+      io.stdout(o.json ? JSON.stringify(rideJson(r, VERSION)) + "\n" : rideText(r, VERSION));
+    });
+}

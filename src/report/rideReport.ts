@@ -1,0 +1,97 @@
+import { DIRECTIVE_2002_44_EC, ISO_2631_HEALTH_ZONE } from "../compare/wholeBodyExposure.js";
+import type { RideResult } from "../rideRecording.js";
+import { fixed, sig, table } from "./format.js";
+import { finiteOrNull, inputJson, settingsJson, stationarityJson, toolInfo } from "./psdJson.js";
+import { recordingLines, settingsLine } from "./psdText.js";
+
+/** Cautions every ride result carries, in text and JSON. */
+export const RIDE_CAUTIONS: readonly string[] = [
+  "An engineering estimate from one recording, not an occupational-health assessment: a daily exposure depends on the whole working day, every vehicle, route, speed and task, and on how the recording was made.",
+  "Local regulations (Directive 2002/44/EC as transposed where the work happens) and competent persons decide on exposure, risk and action; ISO 2631-1 governs the method. Values marked from memory in the documentation are to be checked against the standard before they are relied on.",
+];
+
+function hours(s: number): string {
+  if (!Number.isFinite(s)) return "never";
+  if (s >= 86400 * 2) return `${sig(s / 86400, 3)} days`;
+  return s >= 3600 ? `${sig(s / 3600, 3)} h` : `${sig(s / 60, 3)} min`;
+}
+
+export function rideText(r: RideResult, version: string): string {
+  const a = r.analysis;
+  const out = [`psdgate ${version}: whole-body vibration of ${a.input.file} (${r.posture}, ISO 2631-1 weightings, SI units)`, ...recordingLines(a), settingsLine(a), ""];
+  const rows = [["axis", "channel", "weighting", "a_w m/s²", "from PSD", "PSD vs time", "crest", "VDV m/s^1.75", "MTVV m/s²", "MTVV/a_w", "VDV/(a_w T^¼)", "k health", "k comfort"]];
+  for (const x of r.axes) {
+    const d = x.dose;
+    rows.push([x.axis, x.channel, x.weighting, sig(d.rms, 4), sig(x.awFromPsd, 4), `${x.routeRatio >= 1 ? "+" : ""}${fixed(100 * (x.routeRatio - 1), 2)} %`, fixed(d.crestFactor, 2), sig(d.vdv, 4), sig(d.mtvv, 4), fixed(x.basicMethod.mtvvRatio, 2), fixed(x.basicMethod.vdvRatio, 2), String(x.rule.healthK), String(x.rule.comfortK)]);
+  }
+  out.push(table(rows), "  (PSD vs time: a_w from |W(f)|² x PSD against a_w in time over the same samples with Welch's weights)", "");
+  const e = r.exposure;
+  const D = DIRECTIVE_2002_44_EC;
+  const Z = ISO_2631_HEALTH_ZONE;
+  out.push(`  total      vibration total value ${sig(r.totalValue.comfort, 3)} m/s² with the comfort factors, ${sig(r.totalValue.health, 3)} m/s² with the health factors`);
+  out.push(`  comfort    ISO 2631-1 Annex C, for ${sig(r.totalValue.comfort, 3)} m/s²: ${r.comfort.reactions.map((w) => `"${w}"`).join(" or ")}`);
+  out.push(`  exposure   ${hours(e.durationS)} a day: A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}), VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis})`);
+  out.push(`  Directive 2002/44/EC   A(8) ${e.directive.a8} (action ${D.a8ActionMs2}, reached after ${hours(e.a8ActionAfterS)}; limit ${D.a8LimitMs2}, after ${hours(e.a8LimitAfterS)})`);
+  out.push(`                         VDV ${e.directive.vdv} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`);
+  out.push(`  ISO 2631-1 Annex B     A(8) ${e.healthZone.a8} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s² at 8 h), VDV ${e.healthZone.vdv} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75)`);
+  if (r.seat) out.push(`  seat       SEAT ${fixed(100 * r.seat.seat, 1)} %: seat z a_w ${sig(r.seat.awSeat, 4)} over floor z (${r.seat.floorChannel}) ${sig(r.seat.awFloor, 4)} m/s², Wk on both`);
+  for (const x of r.axes) {
+    const s = x.stationarity;
+    if (s.tested) out.push(`  ${x.axis} level    ${s.stationary ? "stationary" : "NOT stationary"} by reverse arrangements on ${s.stretches} weighted stretches of ${sig(s.stretchS, 3)} s${s.pooled > 1 ? `, pooled ${s.pooled} at a time` : ""} (A = ${s.reverseArrangements!.statistic}, accepted ${s.reverseArrangements!.acceptAbove} < A <= ${s.reverseArrangements!.acceptAtMost})`);
+  }
+  out.push(...r.doubts.map((d) => `  DOUBT      ${d}`), ...r.notes.map((n) => `  note       ${n}`));
+  out.push("", ...RIDE_CAUTIONS.map((c) => `  caution    ${c}`), "");
+  return out.join("\n");
+}
+
+/** The `ride --json` document: SI units throughout (m/s², m/s^1.75, s). */
+export function rideJson(r: RideResult, version: string) {
+  const a = r.analysis;
+  const e = r.exposure;
+  return {
+    tool: toolInfo(version),
+    input: inputJson(a),
+    settings: { ...settingsJson(a), runningRmsS: r.axes[0]?.dose.runningRmsS ?? null, stretchS: r.axes[0]?.dose.stretchS ?? null },
+    posture: r.posture,
+    window: { fromS: a.window.fromS, toS: a.window.toS },
+    axes: r.axes.map((x) => ({
+      axis: x.axis,
+      channel: x.channel,
+      weighting: x.weighting,
+      aw: finiteOrNull(x.dose.rms),
+      awFromPsd: finiteOrNull(x.awFromPsd),
+      awWelchWeighted: finiteOrNull(x.awWelchWeighted),
+      routeRatio: finiteOrNull(x.routeRatio),
+      crestFactor: finiteOrNull(x.dose.crestFactor),
+      vdv: finiteOrNull(x.dose.vdv),
+      mtvv: finiteOrNull(x.dose.mtvv),
+      mtvvAtS: finiteOrNull(x.dose.mtvvAtS + a.window.fromS),
+      peak: finiteOrNull(x.dose.peak),
+      durationS: x.dose.durationS,
+      kHealth: x.rule.healthK,
+      kComfort: x.rule.comfortK,
+      mtvvRatio: finiteOrNull(x.basicMethod.mtvvRatio),
+      vdvRatio: finiteOrNull(x.basicMethod.vdvRatio),
+      basicMethodAdequate: x.basicMethod.adequate,
+      stationarity: stationarityJson(x.stationarity),
+      filterMaxErrorPct: x.filter.maxErrorPct,
+    })),
+    totalValue: { comfort: finiteOrNull(r.totalValue.comfort), health: finiteOrNull(r.totalValue.health) },
+    comfort: { reactions: r.comfort.reactions },
+    exposure: {
+      durationS: e.durationS,
+      a8: finiteOrNull(e.a8),
+      a8Axis: e.a8Axis,
+      vdv: finiteOrNull(e.vdv),
+      vdvAxis: e.vdvAxis,
+      a8ActionAfterS: finiteOrNull(e.a8ActionAfterS),
+      a8LimitAfterS: finiteOrNull(e.a8LimitAfterS),
+      directive2002_44_EC: { a8: e.directive.a8, vdv: e.directive.vdv, ...DIRECTIVE_2002_44_EC },
+      iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...ISO_2631_HEALTH_ZONE },
+    },
+    seat: r.seat ? { floorChannel: r.seat.floorChannel, awFloor: r.seat.awFloor, awFloorFromPsd: r.seat.awFloorFromPsd, awFloorWelchWeighted: r.seat.awFloorWelchWeighted, awSeat: r.seat.awSeat, seat: r.seat.seat } : null,
+    notes: r.notes,
+    doubts: r.doubts,
+    cautions: RIDE_CAUTIONS,
+  };
+}

@@ -1,0 +1,77 @@
+import { describe, expect, it } from "vitest";
+import { parseAxes, parseDuration } from "../../src/cli/ride.js";
+import { cli } from "../helpers.js";
+
+const base = ["ride", "samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3"];
+
+describe("psdgate ride", () => {
+  it("--json carries the documented interface: axes[] (axis, channel, weighting, aw, crestFactor, vdv, mtvv), exposure (a8, vdv), window (fromS, toS), SI units, cautions", async () => {
+    const r = await cli(...base, "--floor", "4", "--exposure", "8h", "--json");
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.axes.map((a: { axis: string }) => a.axis)).toEqual(["x", "y", "z"]);
+    for (const a of j.axes) for (const k of ["axis", "channel", "weighting", "aw", "crestFactor", "vdv", "mtvv"]) expect(a).toHaveProperty(k);
+    expect(j.axes.map((a: { weighting: string }) => a.weighting)).toEqual(["Wd", "Wd", "Wk"]);
+    expect(j.axes[2].channel).toBe("ch3");
+    expect(j.exposure.durationS).toBe(28800);
+    expect(typeof j.exposure.a8).toBe("number");
+    expect(typeof j.exposure.vdv).toBe("number");
+    expect(j.window).toEqual({ fromS: 0, toS: 240 });
+    expect(j.seat.seat).toBeGreaterThan(0);
+    expect(j.cautions.join(" ")).toMatch(/not an occupational-health assessment/);
+    expect(j.cautions.join(" ")).toMatch(/Local regulations .* competent persons decide/);
+    expect(j.input.sha256).toMatch(/^[0-9a-f]{64}$/);
+  });
+  it("--from/--to cut the window and record it; the exposure's VDV scales from the window's length", async () => {
+    const j = JSON.parse((await cli(...base, "--exposure", "2h30min", "--from", "100", "--to", "200", "--json")).stdout);
+    expect(j.window).toEqual({ fromS: 100, toS: 200 });
+    expect(j.axes[0].durationS).toBe(100);
+    expect(j.exposure.durationS).toBe(9000);
+  });
+  it("the text output names the figures, the Directive's values, the Annex B zone and carries the cautions", async () => {
+    const r = await cli(...base, "--exposure", "6h", "--posture", "standing");
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/A\(8\) [\d.]+ m\/s² \(z\), VDV [\d.]+ m\/s\^1\.75/);
+    expect(r.stdout).toContain("Directive 2002/44/EC");
+    expect(r.stdout).toContain("ISO 2631-1 Annex B");
+    expect(r.stdout).toContain("standing: ISO 2631-1 Annex B health guidance is written for seated persons");
+    expect(r.stdout).toMatch(/caution +An engineering estimate from one recording, not an occupational-health assessment/);
+  });
+  it("bad options are one line naming the option, with its code", async () => {
+    for (const [args, option, code] of [
+      [["--axes", "q=1", "--exposure", "8h"], "--axes", "OPTION_INVALID"],
+      [["--axes", "z=9", "--exposure", "8h"], "--axes", "CHANNEL_NOT_FOUND"],
+      [["--axes", "z=3", "--exposure", "8 parsecs"], "--exposure", "OPTION_INVALID"],
+      [["--axes", "z=3", "--exposure", "8h", "--posture", "kneeling"], "--posture", "OPTION_INVALID"],
+      [["--axes", "z=3", "--exposure", "8h", "--channel", "1"], "--channel", "OPTION_CONFLICT"],
+      [["--axes", "z=3", "--exposure", "8h", "--from", "300"], "--from", "WINDOW_EMPTY"],
+    ] as const) {
+      const r = await cli("ride", "samples/marlow-uv3-ride.wav", ...args);
+      expect(r.code, args.join(" ")).toBe(2);
+      expect(r.stderr.trim().split("\n").length).toBe(1);
+      expect(r.stderr).toContain(`option ${option}`);
+      expect(r.stderr).toContain(`[${code}]`);
+      expect(r.stdout).toBe("");
+    }
+  });
+  it("--help lists the ride options", async () => {
+    const r = await cli("ride", "--help");
+    for (const o of ["--axes", "--posture", "--exposure", "--floor", "--running-rms", "--from", "--to", "--json"]) expect(r.stdout).toContain(o);
+  });
+});
+
+describe("ride option parsers", () => {
+  it("parseDuration: 8h, 6.5 h, 2h30min, 90min, 45s, 07:30; nothing else", () => {
+    expect(parseDuration("8h")).toBe(28800);
+    expect(parseDuration("6.5 h")).toBe(23400);
+    expect(parseDuration("2h30min")).toBe(9000);
+    expect(parseDuration("90min")).toBe(5400);
+    expect(parseDuration("45s")).toBe(45);
+    expect(parseDuration("07:30")).toBe(27000);
+    for (const bad of ["", "8", "h", "8 parsecs", "8h-", "25:00x"]) expect(parseDuration(bad), bad).toBeUndefined();
+  });
+  it("parseAxes: each axis once", () => {
+    expect(parseAxes("x=seat_x, z = 3")).toEqual({ x: "seat_x", z: "3" });
+    expect(() => parseAxes("x=1,x=2")).toThrow(/--axes/);
+  });
+});

@@ -1,0 +1,117 @@
+import { readFileSync } from "node:fs";
+import { describe, expect, it } from "vitest";
+import { BiquadCascade, cascadeMagnitude } from "../../src/weight/bilinearBiquads.js";
+import { WEIGHTING_NAMES, weightingMagnitude, type WeightingName } from "../../src/weight/isoWeightings.js";
+import { designWeightingFilter, weightingCascade } from "../../src/weight/weightingFilter.js";
+import { gaussian } from "../helpers.js";
+
+interface Fixture {
+  source: string;
+  centresHz: number[];
+  signal: number[];
+  cases: { weighting: WeightingName; sampleRateHz: number; sos: number[][]; magnitude: number[]; output: number[] | null }[];
+}
+// scipy 1.17.1 signal.bilinear / sosfreqz / sosfilt (scripts/make_weighting_fixture.py)
+const fixture: Fixture = JSON.parse(readFileSync(new URL("../fixtures/scipy-weighting.json", import.meta.url), "utf8"));
+
+describe("bilinearSection / designWeightingFilter against scipy (fixture: " + fixture.source + ")", () => {
+  it("coefficients of every section, every weighting, at 512, 1000 and 5120 Hz, to 1e-12", () => {
+    for (const c of fixture.cases) {
+      const d = designWeightingFilter(c.weighting, c.sampleRateHz);
+      d.sections.forEach((q, i) => {
+        const r = c.sos[i]!;
+        const ours = [q.b0, q.b1, q.b2, 1, q.a1, q.a2];
+        ours.forEach((v, j) => expect(Math.abs(v - r[j]!), `${c.weighting} ${c.sampleRateHz} section ${i} coef ${j}`).toBeLessThan(1e-12 * Math.max(1, Math.abs(r[j]!))));
+      });
+      c.magnitude.forEach((m, k) => expect(Math.abs(cascadeMagnitude(d.sections, d.gain, fixture.centresHz[k]!, c.sampleRateHz) / m - 1)).toBeLessThan(1e-8));
+    }
+  });
+  it("BiquadCascade output equals sosfilt with zi = sosfilt_zi * x[0] (offset of 1 g on the input), to 1e-9", () => {
+    const x = Float64Array.from(fixture.signal);
+    for (const c of fixture.cases.filter((k) => k.output !== null)) {
+      const f = weightingCascade(designWeightingFilter(c.weighting, c.sampleRateHz));
+      f.startAt(x[0]!); // the fixture's zi = sosfilt_zi * x[0]
+      const y = new Float64Array(x.length);
+      f.process(x.subarray(0, 300), y, 300); // two blocks: state carries over
+      f.process(x.subarray(300), y.subarray(300), x.length - 300);
+      let m = 0;
+      c.output!.forEach((v, i) => (m = Math.max(m, Math.abs(y[i]! - v))));
+      expect(m, c.weighting).toBeLessThan(1e-9);
+    }
+  });
+});
+
+describe("designWeightingFilter: the stated error of the realisation against the analog |W(f)|", () => {
+  // Bounds stated in src/weight/bilinearBiquads.ts (measured over the nominal centres 0.5-80 Hz).
+  const bounds: [number, number][] = [[5120, 0.06], [2000, 0.4], [1000, 1.5], [512, 5.6]];
+  for (const [fs, pct] of bounds) {
+    it(`at ${fs} Hz every weighting is within ${pct} % at 0.5-80 Hz`, () => {
+      for (const w of WEIGHTING_NAMES) expect(designWeightingFilter(w, fs).maxErrorPct, w).toBeLessThan(pct);
+    });
+  }
+  it("at 8 Hz and below the error is under 0.1 % from 512 Hz up (the pre-warped corners)", () => {
+    for (const w of WEIGHTING_NAMES) {
+      const d = designWeightingFilter(w, 512);
+      for (const f of [0.5, 1, 2, 4, 6.3, 8]) expect(Math.abs(cascadeMagnitude(d.sections, d.gain, f, 512) / weightingMagnitude(w, f) - 1), `${w} ${f}`).toBeLessThan(1e-3);
+    }
+  });
+  it("refuses a rate whose Nyquist is below a pre-warp frequency", () => {
+    expect(() => designWeightingFilter("Wk", 150)).toThrow(RangeError);
+  });
+});
+
+describe("a sine through each weighting in the time domain", () => {
+  // REFERENCES.md sec. 8 suggested tests: a 4.0 Hz sine of r.m.s. 1 through Wk gives 0.9672, through Wd 0.5119.
+  it("4 Hz, r.m.s. 1 m/s^2, 2000 Hz: Wk 0.9672 and Wd 0.5119 after the transient (REFERENCES.md sec. 8)", () => {
+    expect(sineGain("Wk", 4, 2000)).toBeCloseTo(0.9672, 4);
+    expect(sineGain("Wd", 4, 2000)).toBeCloseTo(0.5119, 4);
+  });
+  for (const w of WEIGHTING_NAMES) {
+    it(`${w}: 1, 4 and 16 Hz sines come out at |W(f)| times their r.m.s. within 0.1 % (1000 Hz)`, () => {
+      for (const f of [1, 4, 16]) expect(sineGain(w, f, 1000) / weightingMagnitude(w, f) - 1).toBeLessThan(1e-3);
+    });
+  }
+  it("a constant offset (gravity) starts no transient: output of 9.80665 + noise has no step at the start", () => {
+    const fs = 1000;
+    const x = gaussian(20_000, 4, 0.1).map((v) => v + 9.80665);
+    const f = weightingCascade(designWeightingFilter("Wk", fs));
+    const y = new Float64Array(x.length);
+    f.process(x, y, x.length);
+    let early = 0;
+    for (let i = 0; i < 1000; i++) early = Math.max(early, Math.abs(y[i]!));
+    expect(early).toBeLessThan(0.5); // noise of 0.1 only; a 9.8 step through the 0.4 Hz high-pass would ring at several m/s^2
+  });
+  it("zero-mean noise whose first sample is large starts no transient: the filter starts at the first block's mean", () => {
+    const fs = 500;
+    const x = gaussian(30 * fs, 6, 0.3);
+    x[0] = 0.7; // a 2.3 sigma first sample
+    const y = new Float64Array(x.length);
+    weightingCascade(designWeightingFilter("Wd", fs)).process(x, y, x.length);
+    let first = 0;
+    let rest = 0;
+    for (let i = 0; i < fs; i++) first += y[i]! ** 2;
+    for (let i = fs; i < x.length; i++) rest += y[i]! ** 2;
+    expect(Math.sqrt(first / fs) / Math.sqrt(rest / (x.length - fs))).toBeLessThan(2);
+  });
+  it("a NaN is held at the last finite input (counted), so the output stays finite", () => {
+    const f = new BiquadCascade(designWeightingFilter("Wd", 1000).sections, 1);
+    const x = Float64Array.from([1, 2, NaN, 3, Infinity, 4]);
+    const y = new Float64Array(6);
+    f.process(x, y, 6);
+    expect(y.every(Number.isFinite)).toBe(true);
+    expect(f.heldSamples).toBe(2);
+  });
+});
+
+/** Output r.m.s. / input r.m.s. of a sine of frequency f, over whole periods after 5 s of settling. */
+function sineGain(w: WeightingName, f: number, fs: number): number {
+  const n = 20 * fs;
+  const x = new Float64Array(n);
+  for (let i = 0; i < n; i++) x[i] = Math.SQRT2 * Math.sin((2 * Math.PI * f * i) / fs);
+  const y = new Float64Array(n);
+  weightingCascade(designWeightingFilter(w, fs)).process(x, y, n);
+  let s = 0;
+  const start = 5 * fs;
+  for (let i = start; i < n; i++) s += y[i]! * y[i]!;
+  return Math.sqrt(s / (n - start));
+}
