@@ -16,6 +16,7 @@ import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
 import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
+import { addQueueCommands } from "./queue.js";
 
 // Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
 // load on first use, so that a plain `psd` starts fast.
@@ -273,6 +274,8 @@ export function buildProgram(io: CliIo): Command {
       io.stdout(`  profile "${profile.title}" ${sig(profile.rms, 4)} ${u} RMS${o.levelDb !== 0 ? `, shifted ${o.levelDb} dB to ${sig(profile.rms * 10 ** (o.levelDb / 20), 4)} ${u}` : ""}\n`);
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
     });
+
+  addQueueCommands(program, io);
 
   return program;
 }

@@ -1,0 +1,186 @@
+import type PgBoss from "pg-boss";
+import { VERSION } from "../version.js";
+import { redact } from "./connection.js";
+import { settingsDigest, type Job } from "./job.js";
+import { JobCrash, type JobPool } from "./jobPool.js";
+import { errorLine, type JobOutcome } from "./runJob.js";
+import { QUEUE_NAME, type QueueStore, type SqlRunner } from "./queueStore.js";
+
+export interface WorkOptions {
+  /** Analyses at once (one thread each). */
+  jobs: number;
+  /** Exit once no job is queued or active. */
+  drain: boolean;
+  /** Wait between looks at an empty queue, in seconds. */
+  pollSeconds: number;
+  /** Who finished a job, kept in its result row. */
+  workerName: string;
+  /** Stop taking jobs when this fires; jobs in hand are finished and their results written. */
+  signal: AbortSignal;
+  /** One line per event for stderr. */
+  log: (line: string) => void;
+  /** Per finished job, for the progress line (not called in quiet mode by the CLI). */
+  onFinished?: ((file: string, what: string, seconds: number) => void) | undefined;
+}
+
+export interface WorkSummary { done: number; failed: number; retried: number; discarded: number }
+
+type FetchedJob = PgBoss.JobWithMetadata<Job>;
+
+const sleep = (ms: number, signal?: AbortSignal) =>
+  new Promise<void>((resolve) => {
+    if (signal?.aborted) return resolve();
+    const t = setTimeout(done, ms);
+    function done() {
+      clearTimeout(t);
+      signal?.removeEventListener("abort", done);
+      resolve();
+    }
+    signal?.addEventListener("abort", done, { once: true });
+  });
+
+/** Back-off after a database error: 1, 2, 4, … 30 s. */
+const backoffMs = (failures: number) => Math.min(30000, 1000 * 2 ** Math.max(0, failures - 1));
+
+/** The job's row in pg-boss is still ours (active) and no other attempt has written a result: a rollback marker. */
+class NotOurs extends Error {}
+
+/**
+ * A worker: `jobs` loops, each fetching one job when it is free, running it on the pool, and writing
+ * its result in the same transaction that completes the job. Input errors fail the job at once; an
+ * internal error goes back to pg-boss for a retry (delay and limit of the queue), and on the last
+ * attempt is kept as a failed result. Database errors are retried with back-off, said on stderr.
+ */
+export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions): Promise<WorkSummary> {
+  const summary: WorkSummary = { done: 0, failed: 0, retried: 0, discarded: 0 };
+  let dbFailures = 0;
+  let lastExpire = 0;
+  const say = (s: string) => o.log(redact(s, store.target));
+
+  /** Runs `what` until the database answers (or we are told to stop and `untilStopped` is false). */
+  async function withDb<T>(what: string, fn: () => Promise<T>, keepTrying: boolean): Promise<T | undefined> {
+    for (;;) {
+      try {
+        const out = await fn();
+        if (dbFailures > 0) say(`psdgate: database reachable again (${store.target.label})`);
+        dbFailures = 0;
+        return out;
+      } catch (e) {
+        if (e instanceof NotOurs) throw e;
+        dbFailures++;
+        const wait = backoffMs(dbFailures);
+        say(`psdgate: database error while ${what}: ${(e as Error).message}; trying again in ${wait / 1000} s`);
+        if (!keepTrying && o.signal.aborted) return undefined;
+        await sleep(wait, keepTrying ? undefined : o.signal);
+        if (!keepTrying && o.signal.aborted) return undefined;
+      }
+    }
+  }
+
+  async function fetchOne(): Promise<FetchedJob | undefined> {
+    let error: unknown;
+    // pg-boss's fetch swallows query errors and returns no jobs; this runner keeps the error so a lost
+    // connection is seen (and retried with back-off) rather than read as an empty queue.
+    const db: SqlRunner = { executeSql: (t, v) => store.pool.query(t, v as unknown[]).catch((e: unknown) => { error = e; throw e; }) };
+    const jobs = await store.boss.fetch<Job>(QUEUE_NAME, { batchSize: 1, includeMetadata: true, db } as PgBoss.FetchOptions & { includeMetadata: true });
+    if (error !== undefined) throw error;
+    return jobs[0];
+  }
+
+  async function nothingLeft(): Promise<boolean> {
+    const { rows } = await store.pool.query<{ n: string }>(`SELECT count(*) AS n FROM pgboss.job WHERE name = $1 AND state IN ('created', 'retry', 'active')`, [QUEUE_NAME]);
+    return Number(rows[0]!.n) === 0;
+  }
+
+  async function writeResult(c: { query: SqlRunner["executeSql"] }, job: FetchedJob, outcome: JobOutcome | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } }) {
+    const j = job.data;
+    const r = await c.query(
+      `INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version)
+       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15) ON CONFLICT DO NOTHING RETURNING job_id`,
+      [job.id, j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j), outcome.ok ? "done" : "failed",
+        outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
+        outcome.ok ? JSON.stringify(outcome.figures) : null, JSON.stringify(outcome.line), o.workerName, job.retryCount + 1, VERSION],
+    );
+    if (r.rows.length !== 1) throw new NotOurs("a result for this job is already stored");
+  }
+
+  /** Result row + job completed (or failed for good), all or nothing. */
+  async function finish(job: FetchedJob, outcome: JobOutcome | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } }, final: "complete" | "fail") {
+    await store.transaction(async (c, db) => {
+      await writeResult({ query: (t, v) => c.query(t, v as unknown[]) }, job, outcome);
+      if (final === "complete") {
+        // pg-boss 10 returns { affected } here although its types say void.
+        const r = (await store.boss.complete(QUEUE_NAME, job.id, { verdict: outcome.ok ? outcome.verdict : null }, { db: db as never })) as unknown as { affected: number };
+        if (r.affected !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
+      } else {
+        // No retry for this one: an input error will not go away by trying again.
+        await c.query(`UPDATE pgboss.job SET retry_limit = retry_count WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]);
+        const r = (await store.boss.fail(QUEUE_NAME, job.id, outcome.ok ? {} : { code: outcome.error.code, message: outcome.error.message }, { db: db as never })) as unknown as { affected: number };
+        if (r.affected !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
+      }
+    });
+  }
+
+  async function handle(job: FetchedJob): Promise<void> {
+    const t0 = performance.now();
+    const file = job.data.file;
+    let outcome: JobOutcome | undefined;
+    let crash: Error | undefined;
+    try {
+      outcome = await pool.run(job.data);
+    } catch (e) {
+      crash = e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e));
+    }
+    const seconds = (performance.now() - t0) / 1000;
+    try {
+      if (outcome) {
+        await withDb("writing a result", () => finish(job, outcome, outcome.ok ? "complete" : "fail"), true);
+        if (outcome.ok) summary.done++;
+        else summary.failed++;
+        o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, seconds);
+        return;
+      }
+      const attempt = job.retryCount + 1;
+      const attempts = job.retryLimit + 1;
+      if (attempt >= attempts) {
+        const error = { code: "INTERNAL_ERROR", message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}` };
+        await withDb("writing a result", () => finish(job, { ok: false, line: errorLine(file, error), error }, "fail"), true);
+        summary.failed++;
+        say(`psdgate: ${file}: ${error.message}; kept as failed`);
+        return;
+      }
+      await withDb("handing a job back", () => store.boss.fail(QUEUE_NAME, job.id, { message: crash!.message }), true);
+      summary.retried++;
+      say(`psdgate: ${file}: internal error on attempt ${attempt} of ${attempts}: ${crash!.message}; it will be retried`);
+    } catch (e) {
+      if (!(e instanceof NotOurs)) throw e;
+      summary.discarded++;
+      say(`psdgate: ${file}: result not kept: ${e.message}`);
+    }
+  }
+
+  async function slot(): Promise<void> {
+    while (!o.signal.aborted) {
+      const job = await withDb("fetching a job", fetchOne, false);
+      if (o.signal.aborted) {
+        // Fetched just as we were told to stop: hand it straight back untouched.
+        if (job) await withDb("handing a job back", () => store.pool.query(`UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]), true);
+        return;
+      }
+      if (job) {
+        await handle(job);
+        continue;
+      }
+      if (Date.now() - lastExpire > 2000) {
+        lastExpire = Date.now();
+        // Jobs held by a worker that died are failed by timeout (and so retried) by this call.
+        await withDb("expiring lost jobs", () => store.boss.expire(), false);
+      }
+      if (o.drain && (await withDb("counting jobs", nothingLeft, false))) return;
+      await sleep(o.pollSeconds * 1000, o.signal);
+    }
+  }
+
+  await Promise.all(Array.from({ length: o.jobs }, () => slot()));
+  return summary;
+}

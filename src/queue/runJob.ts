@@ -1,0 +1,116 @@
+import { analyzeRecording, type RecordingAnalysis } from "../analyzeRecording.js";
+import type { TestProfile } from "../compare/testProfile.js";
+import { InputError } from "../errors.js";
+import type { CheckResult } from "../report/checkReport.js";
+import { psdJson, toolInfo } from "../report/psdJson.js";
+import { VERSION } from "../version.js";
+import type { Job } from "./job.js";
+import { resolveJobPath } from "./jobPath.js";
+
+/** The figures kept in their own columns beside the full JSON, one entry per channel. */
+export interface KeyFigures {
+  sampleRateHz: number;
+  durationS: number;
+  channels: { name: string; rms: number; rmsDeviationDb: number | null; dof: number; parsevalRatio: number | null; verdict: string | null }[];
+}
+
+/** What one job gave: the batch's JSON line for the recording, its verdict and key figures, or its input error. */
+export type JobOutcome =
+  | { ok: true; line: Record<string, unknown>; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures }
+  | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } };
+
+export interface JobContext {
+  /** The folder job paths are relative to. */
+  root: string;
+  /** Profiles already loaded, by SHA-256 (a worker sees the same few again and again). */
+  profiles?: Map<string, TestProfile> | undefined;
+}
+
+const finite = (x: number) => (Number.isFinite(x) ? x : null);
+
+/** An input error named by the job's own path rather than the worker's resolved one. */
+function asJobError(e: InputError, real: string | undefined, jobPath: string): InputError {
+  if (real === undefined || e.details.file !== real) return e;
+  return new InputError(e.code, { ...e.details, file: jobPath });
+}
+
+export function errorLine(file: string, e: { code: string; message: string }): Record<string, unknown> {
+  return { tool: toolInfo(VERSION), input: { file }, error: { code: e.code, message: e.message } };
+}
+
+/**
+ * Runs one job where it is called and returns its outcome: the same JSON line `psd --json` or
+ * `check --json` prints for the recording in a batch (paths as the job names them), or the error
+ * line for an input error. Anything else (a bug, memory) is thrown for the caller to retry.
+ */
+export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
+  let real: string | undefined;
+  try {
+    real = await resolveJobPath(ctx.root, job.file, "recording");
+    // One thread per job: the queue's parallelism is --jobs, as in the batch.
+    const options = { ...job.options, csv: { ...job.options.csv, parseWorkers: 0 } };
+    if (job.kind === "psd") {
+      const a = await analyzeRecording(real, options);
+      sameRecording(a, job);
+      const line = psdJson(a, VERSION);
+      line.input.file = job.file;
+      return { ok: true, line, verdict: null, figures: figuresOf(a, undefined) };
+    }
+    if (job.profile === undefined) throw new InputError("JOB_INVALID", { file: job.file, expected: "a check job with a profile", received: "none" });
+    const profile = await profileFor(job.profile, ctx);
+    const { checkRecording } = await import("../checkRecording.js");
+    const { checkJson } = await import("../report/checkReport.js");
+    const r = await checkRecording(real, profile, { ...options, histogram: false });
+    sameRecording(r.analysis, job);
+    const line = checkJson(r, VERSION);
+    line.input.file = job.file;
+    line.profile.file = job.profile.path;
+    return { ok: true, line, verdict: r.verdict, figures: figuresOf(r.analysis, r) };
+  } catch (e) {
+    if (!(e instanceof InputError)) throw e;
+    const err = asJobError(e, real, job.file);
+    return { ok: false, line: errorLine(job.file, err), error: { code: err.code, message: err.message } };
+  }
+}
+
+function sameRecording(a: RecordingAnalysis, job: Job): void {
+  if (a.input.sha256 !== job.sha256) {
+    throw new InputError("RECORDING_CHANGED", { file: job.file, expected: `the recording queued with SHA-256 ${job.sha256}`, received: `SHA-256 ${a.input.sha256}`, hint: "queue it again if the new file is meant" });
+  }
+}
+
+async function profileFor(p: { path: string; sha256: string }, ctx: JobContext): Promise<TestProfile> {
+  const cached = ctx.profiles?.get(p.sha256);
+  if (cached) return cached;
+  const real = await resolveJobPath(ctx.root, p.path, "profile");
+  const { loadProfile } = await import("../checkRecording.js");
+  let profile: TestProfile;
+  try {
+    profile = await loadProfile(real);
+  } catch (e) {
+    throw e instanceof InputError ? asJobError(e, real, p.path) : e;
+  }
+  if (profile.sha256 !== p.sha256) {
+    throw new InputError("PROFILE_CHANGED", { file: p.path, expected: `the profile queued with SHA-256 ${p.sha256}`, received: `SHA-256 ${profile.sha256}` });
+  }
+  ctx.profiles?.set(p.sha256, profile);
+  return profile;
+}
+
+function figuresOf(a: RecordingAnalysis, r: CheckResult | undefined): KeyFigures {
+  return {
+    sampleRateHz: a.input.sampleRateHz,
+    durationS: a.input.durationS,
+    channels: a.channels.map((c, i) => {
+      const k = r?.channels[i];
+      return {
+        name: c.name,
+        rms: k ? k.rms.measured : c.parseval.rmsTime,
+        rmsDeviationDb: k ? finite(k.rms.deviationDb) : null,
+        dof: c.psd.dof,
+        parsevalRatio: finite(c.parseval.ratio),
+        verdict: k ? k.verdict : null,
+      };
+    }),
+  };
+}
