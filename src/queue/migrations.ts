@@ -34,7 +34,9 @@ export const MIGRATIONS: { version: number; name: string; sql: string }[] = [
         error_code       text,
         error_message    text,
         figures          jsonb,
-        result           jsonb NOT NULL,
+        -- json, not jsonb: the batch's line kept as written (key order, number spelling), so
+        -- 'queue results --json' prints what 'check --json' prints; psql's -> and ->> work on it.
+        result           json NOT NULL,
         worker           text NOT NULL,
         attempt          integer NOT NULL,
         tool_version     text NOT NULL,
