@@ -9,7 +9,13 @@ import { join } from "node:path";
  * (15 here) in a temporary folder, listening on 127.0.0.1 only, on a free port, trust authentication
  * (acceptable only because of both). PostgreSQL refuses to run as root, so as root it runs as `postgres`.
  */
-export interface TestServer { url: string; stop(): void }
+export interface TestServer {
+  url: string;
+  /** Stops the server at once (as a crash would) and keeps its files, for `start` again on the same port. */
+  halt(): void;
+  start(): void;
+  stop(): void;
+}
 
 const BIN_DIRS = ["/usr/lib/postgresql/17/bin", "/usr/lib/postgresql/16/bin", "/usr/lib/postgresql/15/bin", "/usr/local/bin", "/usr/bin"];
 
@@ -46,9 +52,12 @@ export async function startTestServer(bin: string): Promise<TestServer> {
   const data = join(dir, "db");
   run("initdb", ["-D", data, "-A", "trust", "-U", "postgres", "--no-sync"]);
   const port = await freePort();
-  run("pg_ctl", ["-D", data, "-w", "-t", "60", "-o", `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=100`, "-l", join(dir, "log"), "start"]);
+  const start = () => run("pg_ctl", ["-D", data, "-w", "-t", "60", "-o", `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=100`, "-l", join(dir, "log"), "start"]);
+  start();
   return {
     url: `postgres://postgres@127.0.0.1:${port}/postgres`,
+    halt: () => run("pg_ctl", ["-D", data, "-w", "-m", "immediate", "stop"]),
+    start,
     stop() {
       try {
         run("pg_ctl", ["-D", data, "-w", "-m", "immediate", "stop"]);
