@@ -3,17 +3,17 @@ import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { TestProfile } from "../compare/testProfile.js";
 import type { Job } from "./job.js";
-import { runJob, type JobOutcome } from "./runJob.js";
+import { runJob, storedOutcome, type StoredOutcome } from "./runJob.js";
 
 export interface ThreadRequest { id: number; job: Job; root: string }
-export type ThreadReply = { id: number; outcome: JobOutcome } | { id: number; internal: string };
+export type ThreadReply = { id: number; outcome: StoredOutcome } | { id: number; internal: string };
 
 /** An internal failure of a job (a bug, a crashed thread): retried by the queue, unlike an input error. */
 export class JobCrash extends Error {}
 
 export interface JobPool {
   /** Runs a job on an idle thread; at most `size` at once. Rejects with JobCrash on an internal failure. */
-  run(job: Job): Promise<JobOutcome>;
+  run(job: Job): Promise<StoredOutcome>;
   close(): Promise<void>;
 }
 
@@ -29,14 +29,14 @@ export function createJobPool(size: number, root: string): JobPool {
     let chain: Promise<unknown> = Promise.resolve();
     return {
       run: (job) => {
-        const p = chain.then(() => runJob(job, { root, profiles }).catch((e: unknown) => Promise.reject(new JobCrash((e as Error)?.message ?? String(e)))));
+        const p = chain.then(() => runJob(job, { root, profiles }).then(storedOutcome, (e: unknown) => Promise.reject(new JobCrash((e as Error)?.message ?? String(e)))));
         chain = p.catch(() => undefined);
         return p;
       },
       close: async () => undefined,
     };
   }
-  interface Slot { worker: Worker; pending?: { resolve: (o: JobOutcome) => void; reject: (e: Error) => void } | undefined }
+  interface Slot { worker: Worker; pending?: { resolve: (o: StoredOutcome) => void; reject: (e: Error) => void } | undefined }
   const slots: Slot[] = [];
   let nextId = 0;
   const spawn = (): Slot => {
@@ -63,7 +63,7 @@ export function createJobPool(size: number, root: string): JobPool {
   for (let i = 0; i < size; i++) slots.push(spawn());
   return {
     run: (job) =>
-      new Promise<JobOutcome>((resolve, reject) => {
+      new Promise<StoredOutcome>((resolve, reject) => {
         const slot = slots.find((s) => s.pending === undefined);
         if (!slot) return reject(new Error("job pool: more jobs than threads"));
         slot.pending = { resolve, reject };

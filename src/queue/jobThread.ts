@@ -1,6 +1,6 @@
 import { parentPort } from "node:worker_threads";
 import type { TestProfile } from "../compare/testProfile.js";
-import { runJob } from "./runJob.js";
+import { runJob, storedOutcome } from "./runJob.js";
 import type { ThreadReply, ThreadRequest } from "./jobPool.js";
 
 /** One thread of a queue worker's pool: runs the dispatcher on one job per message, one after another. */
@@ -10,7 +10,8 @@ parentPort!.on("message", (m: ThreadRequest) => {
   chain = chain.then(async () => {
     let reply: ThreadReply;
     try {
-      reply = { id: m.id, outcome: await runJob(m.job, { root: m.root, profiles }) };
+      // The line goes back as text: one stringify here instead of a structured clone and a stringify there.
+      reply = { id: m.id, outcome: storedOutcome(await runJob(m.job, { root: m.root, profiles })) };
     } catch (e) {
       reply = { id: m.id, internal: (e as Error)?.message ?? String(e) };
     }

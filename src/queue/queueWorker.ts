@@ -3,7 +3,7 @@ import { VERSION } from "../version.js";
 import { redact } from "./connection.js";
 import { settingsDigest, type Job } from "./job.js";
 import { JobCrash, type JobPool } from "./jobPool.js";
-import { errorLine, type JobOutcome } from "./runJob.js";
+import { errorLine, type StoredOutcome } from "./runJob.js";
 import { QUEUE_NAME, type QueueStore, type SqlRunner } from "./queueStore.js";
 
 export interface WorkOptions {
@@ -92,21 +92,25 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     return Number(rows[0]!.n) === 0;
   }
 
-  async function writeResult(c: { query: SqlRunner["executeSql"] }, job: FetchedJob, outcome: JobOutcome | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } }) {
+  async function writeResult(c: { query: SqlRunner["executeSql"] }, job: FetchedJob, outcome: StoredOutcome) {
     const j = job.data;
     const r = await c.query(
       `INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version)
        VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15) ON CONFLICT DO NOTHING RETURNING job_id`,
       [job.id, j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j), outcome.ok ? "done" : "failed",
         outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
-        outcome.ok ? JSON.stringify(outcome.figures) : null, JSON.stringify(outcome.line), o.workerName, job.retryCount + 1, VERSION],
+        outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION],
     );
     if (r.rows.length !== 1) throw new NotOurs("a result for this job is already stored");
   }
 
   /** Result row + job completed (or failed for good), all or nothing. */
-  async function finish(job: FetchedJob, outcome: JobOutcome | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } }, final: "complete" | "fail") {
+  async function finish(job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail") {
     await store.transaction(async (c, db) => {
+      // Atomic but not waiting for the disk flush (30 ms a commit here): a server crash can lose the
+      // last fraction of a second of completions, and then loses each with its result, so those jobs
+      // are active again, expire and are redone. Never a result without its completion, or twice.
+      await c.query("SET LOCAL synchronous_commit = off");
       await writeResult({ query: (t, v) => c.query(t, v as unknown[]) }, job, outcome);
       if (final === "complete") {
         // pg-boss 10 returns { affected } here although its types say void.
@@ -121,30 +125,35 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     });
   }
 
-  async function handle(job: FetchedJob): Promise<void> {
+  type Ran = { outcome: StoredOutcome; crash?: undefined; seconds: number } | { outcome?: undefined; crash: Error; seconds: number };
+
+  async function runOne(job: FetchedJob): Promise<Ran> {
     const t0 = performance.now();
-    const file = job.data.file;
-    let outcome: JobOutcome | undefined;
-    let crash: Error | undefined;
     try {
-      outcome = await pool.run(job.data);
+      const outcome = await pool.run(job.data);
+      return { outcome, seconds: (performance.now() - t0) / 1000 };
     } catch (e) {
-      crash = e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e));
+      return { crash: e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e)), seconds: (performance.now() - t0) / 1000 };
     }
-    const seconds = (performance.now() - t0) / 1000;
+  }
+
+  /** Writes what a job gave: result and completion together, or the job handed back for a retry. */
+  async function record(job: FetchedJob, ran: Ran): Promise<void> {
+    const file = job.data.file;
+    const { outcome, crash } = ran;
     try {
       if (outcome) {
         await withDb("writing a result", () => finish(job, outcome, outcome.ok ? "complete" : "fail"), true);
         if (outcome.ok) summary.done++;
         else summary.failed++;
-        o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, seconds);
+        o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, ran.seconds);
         return;
       }
       const attempt = job.retryCount + 1;
       const attempts = job.retryLimit + 1;
       if (attempt >= attempts) {
         const error = { code: "INTERNAL_ERROR", message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}` };
-        await withDb("writing a result", () => finish(job, { ok: false, line: errorLine(file, error), error }, "fail"), true);
+        await withDb("writing a result", () => finish(job, { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error }, "fail"), true);
         summary.failed++;
         say(`psdgate: ${file}: ${error.message}; kept as failed`);
         return;
@@ -160,25 +169,31 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
   }
 
   async function slot(): Promise<void> {
+    // A job's result is written while the next job runs: the database's time hides behind the analysis.
+    let recording: Promise<void> = Promise.resolve();
     while (!o.signal.aborted) {
       const job = await withDb("fetching a job", fetchOne, false);
       if (o.signal.aborted) {
         // Fetched just as we were told to stop: hand it straight back untouched.
         if (job) await withDb("handing a job back", () => store.pool.query(`UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]), true);
-        return;
+        break;
       }
       if (job) {
-        await handle(job);
+        const ran = await runOne(job);
+        await recording;
+        recording = record(job, ran);
         continue;
       }
+      await recording;
       if (Date.now() - lastExpire > 2000) {
         lastExpire = Date.now();
         // Jobs held by a worker that died are failed by timeout (and so retried) by this call.
         await withDb("expiring lost jobs", () => store.boss.expire(), false);
       }
-      if (o.drain && (await withDb("counting jobs", nothingLeft, false))) return;
+      if (o.drain && (await withDb("counting jobs", nothingLeft, false))) break;
       await sleep(o.pollSeconds * 1000, o.signal);
     }
+    await recording;
   }
 
   await Promise.all(Array.from({ length: o.jobs }, () => slot()));

@@ -19,6 +19,16 @@ export type JobOutcome =
   | { ok: true; line: Record<string, unknown>; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures }
   | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } };
 
+/** An outcome with its line already as JSON text: made once, in the thread that ran the job, and stored as it is. */
+export type StoredOutcome =
+  | { ok: true; lineJson: string; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures }
+  | { ok: false; lineJson: string; error: { code: string; message: string } };
+
+export function storedOutcome(o: JobOutcome): StoredOutcome {
+  const lineJson = JSON.stringify(o.line);
+  return o.ok ? { ok: true, lineJson, verdict: o.verdict, figures: o.figures } : { ok: false, lineJson, error: o.error };
+}
+
 export interface JobContext {
   /** The folder job paths are relative to. */
   root: string;

@@ -8,18 +8,18 @@ import { migrate, SCHEMA_VERSION } from "../../src/queue/migrations.js";
 import { queueStatus } from "../../src/queue/queueReport.js";
 import { openQueue, QUEUE_NAME, RETRY, type QueueStore } from "../../src/queue/queueStore.js";
 import { runWorker, type WorkOptions } from "../../src/queue/queueWorker.js";
-import type { JobOutcome } from "../../src/queue/runJob.js";
+import type { StoredOutcome } from "../../src/queue/runJob.js";
 import { tempDir } from "../helpers.js";
 import { freshDatabase, postgresUrl } from "./database.js";
 import { findPostgresBin, startTestServer } from "./postgresServer.js";
 
 const url = postgresUrl("tests/queue/queueWorker.test.ts");
 const job = (file: string, sha = file.padEnd(64, "0")): Job => ({ kind: "psd", file, sha256: sha, options: {} });
-const ok = (file: string): JobOutcome => ({ ok: true, line: { input: { file } }, verdict: null, figures: { sampleRateHz: 1, durationS: 1, channels: [] } });
+const ok = (file: string): StoredOutcome => ({ ok: true, lineJson: JSON.stringify({ input: { file } }), verdict: null, figures: { sampleRateHz: 1, durationS: 1, channels: [] } });
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 /** A pool whose jobs are whatever `behave` says, to make internal errors and slow jobs at will. */
-function fakePool(behave: (j: Job) => Promise<JobOutcome>): JobPool {
+function fakePool(behave: (j: Job) => Promise<StoredOutcome>): JobPool {
   return { run: (j) => behave(j).catch((e: unknown) => Promise.reject(e instanceof JobCrash ? e : new JobCrash((e as Error).message))), close: async () => undefined };
 }
 
@@ -64,7 +64,7 @@ describe.skipIf(!url)("queue worker (in process, real PostgreSQL)", () => {
         crashes++;
         throw new Error("boom");
       }
-      return { ok: false, line: { input: { file: j.file }, error: { code: "CSV_NOT_A_NUMBER", message: "m" } }, error: { code: "CSV_NOT_A_NUMBER", message: "m" } };
+      return { ok: false, lineJson: JSON.stringify({ input: { file: j.file }, error: { code: "CSV_NOT_A_NUMBER", message: "m" } }), error: { code: "CSV_NOT_A_NUMBER", message: "m" } };
     }), options({}, log));
     expect(crashes).toBe(RETRY.limit + 1);
     expect(sum).toMatchObject({ failed: 2, retried: RETRY.limit });
