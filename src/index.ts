@@ -30,3 +30,5 @@ export { profileJson, profileText } from "./report/profileText.js";
 export { writeAtomic } from "./report/writeAtomic.js";
 export { createTimeHistoryWriter, type TimeHistoryWriter } from "./report/timeHistoryWriter.js";
 export { runCli } from "./cli/main.js";
+export { settingsDigest, type Job } from "./queue/job.js";
+export { runJob, type JobOutcome, type JobContext, type KeyFigures } from "./queue/runJob.js";
