@@ -100,8 +100,9 @@ export function addQueueCommands(program: Command, io: CliIo): void {
     .option("--root <dir>", "jobs may read only under this folder; their paths are relative to it (default: the current folder)")
     .option("--drain", "exit once no job is queued or active")
     .option("--poll <s>", "seconds between looks at an empty queue (default 0.5)", numberOption("--poll", (x) => x >= 0.5 && x <= 60, "seconds from 0.5 to 60"), 0.5)
+    .option("--report-dir <dir>", "write each check's HTML report here, at the recording's path with .html (made if missing)")
     .option("-q, --quiet", "no line per finished job on stderr")
-    .action(async (o: DbFlags & { jobs?: number; root?: string; drain?: boolean; poll: number; quiet?: boolean }) => {
+    .action(async (o: DbFlags & { jobs?: number; root?: string; drain?: boolean; poll: number; quiet?: boolean; reportDir?: string }) => {
       const { dbTarget, redact } = await connection();
       const { openQueue, DbUnreachable } = await store();
       const { createJobPool } = await import("../queue/jobPool.js");
@@ -112,6 +113,14 @@ export function addQueueCommands(program: Command, io: CliIo): void {
         throw new InputError("FILE_UNREADABLE", { option: "--root", expected: "a folder that exists", received: o.root ?? "." });
       });
       const jobs = o.jobs ?? availableParallelism();
+      let reportDir: string | undefined;
+      if (o.reportDir !== undefined) {
+        const { mkdir } = await import("node:fs/promises");
+        reportDir = resolve(o.reportDir);
+        await mkdir(reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
+          throw new InputError("OUTPUT_UNWRITABLE", { option: "--report-dir", expected: "a folder that exists or can be made", received: `${o.reportDir} (${e.code})` });
+        });
+      }
       const say = (s: string) => io.stderr(redact(s, target) + "\n");
       const stop = new AbortController();
       const onSignal = (sig: string) => () => {
@@ -140,8 +149,8 @@ export function addQueueCommands(program: Command, io: CliIo): void {
         }
         if (!s) return;
         const name = `${hostname()}:${process.pid}`;
-        say(`psdgate ${VERSION}: worker ${name} on ${target.label}, ${jobs} analyses at once, root ${root}${o.drain ? ", until the queue is empty" : ""}`);
-        const pool = createJobPool(jobs, root);
+        say(`psdgate ${VERSION}: worker ${name} on ${target.label}, ${jobs} analyses at once, root ${root}${reportDir ? `, reports in ${reportDir}` : ""}${o.drain ? ", until the queue is empty" : ""}`);
+        const pool = createJobPool(jobs, root, reportDir);
         try {
           const sum = await runWorker(s, pool, {
             jobs, drain: o.drain === true, pollSeconds: o.poll, workerName: name, signal: stop.signal, log: say,

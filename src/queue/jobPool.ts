@@ -5,7 +5,7 @@ import type { TestProfile } from "../compare/testProfile.js";
 import type { Job } from "./job.js";
 import { runJob, storedOutcome, type StoredOutcome } from "./runJob.js";
 
-export interface ThreadRequest { id: number; job: Job; root: string }
+export interface ThreadRequest { id: number; job: Job; root: string; reportDir?: string | undefined }
 export type ThreadReply = { id: number; outcome: StoredOutcome } | { id: number; internal: string };
 
 /** An internal failure of a job (a bug, a crashed thread): retried by the queue, unlike an input error. */
@@ -23,13 +23,13 @@ const THREAD = new URL("./jobThread.js", import.meta.url);
  * `size` long-lived threads (start-up paid once, not per job), each running the dispatcher. Where the
  * built thread module is missing (tests run the sources) jobs run in this thread, one at a time.
  */
-export function createJobPool(size: number, root: string): JobPool {
+export function createJobPool(size: number, root: string, reportDir?: string): JobPool {
   if (!existsSync(fileURLToPath(THREAD))) {
     const profiles = new Map<string, TestProfile>();
     let chain: Promise<unknown> = Promise.resolve();
     return {
       run: (job) => {
-        const p = chain.then(() => runJob(job, { root, profiles }).then(storedOutcome, (e: unknown) => Promise.reject(new JobCrash((e as Error)?.message ?? String(e)))));
+        const p = chain.then(() => runJob(job, { root, profiles, reportDir }).then(storedOutcome, (e: unknown) => Promise.reject(new JobCrash((e as Error)?.message ?? String(e)))));
         chain = p.catch(() => undefined);
         return p;
       },
@@ -67,7 +67,7 @@ export function createJobPool(size: number, root: string): JobPool {
         const slot = slots.find((s) => s.pending === undefined);
         if (!slot) return reject(new Error("job pool: more jobs than threads"));
         slot.pending = { resolve, reject };
-        slot.worker.postMessage({ id: nextId++, job, root } satisfies ThreadRequest);
+        slot.worker.postMessage({ id: nextId++, job, root, reportDir } satisfies ThreadRequest);
       }),
     close: async () => {
       closing = true;

@@ -11,7 +11,7 @@ parentPort!.on("message", (m: ThreadRequest) => {
     let reply: ThreadReply;
     try {
       // The line goes back as text: one stringify here instead of a structured clone and a stringify there.
-      reply = { id: m.id, outcome: storedOutcome(await runJob(m.job, { root: m.root, profiles })) };
+      reply = { id: m.id, outcome: storedOutcome(await runJob(m.job, { root: m.root, profiles, reportDir: m.reportDir })) };
     } catch (e) {
       reply = { id: m.id, internal: (e as Error)?.message ?? String(e) };
     }

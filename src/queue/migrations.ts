@@ -37,6 +37,8 @@ export const MIGRATIONS: { version: number; name: string; sql: string }[] = [
         -- json, not jsonb: the batch's line kept as written (key order, number spelling), so
         -- 'queue results --json' prints what 'check --json' prints; psql's -> and ->> work on it.
         result           json NOT NULL,
+        -- The HTML report, relative to the worker's --report-dir, when it wrote one.
+        report_path      text,
         worker           text NOT NULL,
         attempt          integer NOT NULL,
         tool_version     text NOT NULL,

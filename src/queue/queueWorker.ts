@@ -95,11 +95,11 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
   async function writeResult(c: { query: SqlRunner["executeSql"] }, job: FetchedJob, outcome: StoredOutcome) {
     const j = job.data;
     const r = await c.query(
-      `INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version)
-       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15) ON CONFLICT DO NOTHING RETURNING job_id`,
+      `INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version, report_path)
+       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16) ON CONFLICT DO NOTHING RETURNING job_id`,
       [job.id, j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j), outcome.ok ? "done" : "failed",
         outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
-        outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION],
+        outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null],
     );
     if (r.rows.length !== 1) throw new NotOurs("a result for this job is already stored");
   }

@@ -16,17 +16,17 @@ export interface KeyFigures {
 
 /** What one job gave: the batch's JSON line for the recording, its verdict and key figures, or its input error. */
 export type JobOutcome =
-  | { ok: true; line: Record<string, unknown>; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures }
+  | { ok: true; line: Record<string, unknown>; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
   | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } };
 
 /** An outcome with its line already as JSON text: made once, in the thread that ran the job, and stored as it is. */
 export type StoredOutcome =
-  | { ok: true; lineJson: string; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures }
+  | { ok: true; lineJson: string; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
   | { ok: false; lineJson: string; error: { code: string; message: string } };
 
 export function storedOutcome(o: JobOutcome): StoredOutcome {
   const lineJson = JSON.stringify(o.line);
-  return o.ok ? { ok: true, lineJson, verdict: o.verdict, figures: o.figures } : { ok: false, lineJson, error: o.error };
+  return o.ok ? { ok: true, lineJson, verdict: o.verdict, figures: o.figures, report: o.report } : { ok: false, lineJson, error: o.error };
 }
 
 export interface JobContext {
@@ -34,6 +34,8 @@ export interface JobContext {
   root: string;
   /** Profiles already loaded, by SHA-256 (a worker sees the same few again and again). */
   profiles?: Map<string, TestProfile> | undefined;
+  /** Write each check's HTML report here, at the recording's path with .html (runs/a.wav → DIR/runs/a.html). */
+  reportDir?: string | undefined;
 }
 
 const finite = (x: number) => (Number.isFinite(x) ? x : null);
@@ -70,17 +72,39 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
     const profile = await profileFor(job.profile, ctx);
     const { checkRecording } = await import("../checkRecording.js");
     const { checkJson } = await import("../report/checkReport.js");
-    const r = await checkRecording(real, profile, { ...options, histogram: false });
+    const r = await checkRecording(real, profile, { ...options, histogram: ctx.reportDir !== undefined });
     sameRecording(r.analysis, job);
     const line = checkJson(r, VERSION);
     line.input.file = job.file;
     line.profile.file = job.profile.path;
-    return { ok: true, line, verdict: r.verdict, figures: figuresOf(r.analysis, r) };
+    const report = ctx.reportDir === undefined ? undefined : await writeReport(ctx.reportDir, job, r, real);
+    return { ok: true, line, verdict: r.verdict, figures: figuresOf(r.analysis, r), report };
   } catch (e) {
     if (!(e instanceof InputError)) throw e;
     const err = asJobError(e, real, job.file);
     return { ok: false, line: errorLine(job.file, err), error: { code: err.code, message: err.message } };
   }
+}
+
+/**
+ * The HTML report of a check, at the job's path under `dir`. A report that cannot be written is the
+ * worker's problem, not the recording's: it is thrown as an internal error, so the job is retried.
+ */
+async function writeReport(dir: string, job: Job, r: CheckResult, recording: string): Promise<string> {
+  const { checkHtml } = await import("../report/htmlReport.js");
+  const { writeAtomic } = await import("../report/writeAtomic.js");
+  const { mkdir } = await import("node:fs/promises");
+  const { dirname, join } = await import("node:path");
+  const rel = job.file.replace(/\.[^./]*$/, "") + ".html";
+  const target = join(dir, rel);
+  try {
+    await mkdir(dirname(target), { recursive: true });
+    // A retried job writes its report again: same job, same report, so it may replace it.
+    await writeAtomic(target, checkHtml({ ...r, analysis: { ...r.analysis, input: { ...r.analysis.input, file: job.file } }, profile: { ...r.profile, file: job.profile!.path } }, VERSION, new Date()), { inputs: [recording], force: true, option: "--report-dir" });
+  } catch (e) {
+    throw new Error(`report ${target} not written: ${(e as Error).message}`);
+  }
+  return rel;
 }
 
 function sameRecording(a: RecordingAnalysis, job: Job): void {

@@ -1,4 +1,4 @@
-import { copyFileSync, mkdirSync, writeFileSync } from "node:fs";
+import { copyFileSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeRecording } from "../../src/analyzeRecording.js";
@@ -39,6 +39,18 @@ describe("runJob", () => {
     expect(JSON.stringify(o.line)).toBe(JSON.stringify(expected));
     expect(o.ok && o.verdict).toBe("inconclusive");
     if (o.ok) expect(o.figures.channels[0]).toMatchObject({ name: "ch1", verdict: "inconclusive", rms: r.channels[0]!.rms.measured, dof: r.analysis.channels[0]!.psd.dof });
+  });
+  it("runJob(check job, { reportDir }) writes the HTML report at the job's path and gives the same line", async () => {
+    const reportDir = join(tempDir(), "reports");
+    const job: Job = { kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } };
+    const plain = await runJob(job, { root });
+    const o = await runJob(job, { root, reportDir });
+    expect(o.ok && o.report).toBe("runs/short.html");
+    expect(JSON.stringify(o.line)).toBe(JSON.stringify(plain.line));
+    const html = readFileSync(join(reportDir, "runs", "short.html"), "utf8");
+    expect(html).toMatch(/^<!DOCTYPE html>/i);
+    expect(html).toContain("runs/short.wav");
+    expect((await runJob(job, { root, reportDir })).ok).toBe(true); // a retried job may replace its report
   });
   it("an input error is an outcome with its code and the batch's error line, named by the job's path", async () => {
     const o = await runJob({ kind: "psd", file: "runs/bad.csv", sha256: "0", options: {} }, { root });
