@@ -51,3 +51,12 @@ json.dump({"source": f"scipy {scipy.__version__}, numpy {np.__version__}", "samp
            "welch": cases, "windows": windows, "chi2": chi2, "moments": moments},
           open("tests/fixtures/scipy-reference.json", "w"))
 print("wrote tests/fixtures/scipy-reference.json", len(cases), "welch cases")
+
+# Far tails for the decision rule's family-wise limits (probabilities down to 1e-9, dof from 0.3 to 1e5):
+# chi2.ppf for lower tails, chi2.isf for upper tails given as the small probability itself.
+tails = []
+for nu in [0.3, 0.5, 0.9, 1, 1.5, 2, 3.7, 5, 10, 19.048, 30, 60, 120, 188.6, 377.2, 1000, 3000, 10000, 1e5]:
+    for q in [1e-9, 1e-7, 1e-6, 1e-5, 2.5e-5, 1e-4, 1e-3, 0.01, 0.05, 0.25]:
+        tails.append({"dof": nu, "q": q, "lower": float(st.chi2.ppf(q, nu)), "upper": float(st.chi2.isf(q, nu))})
+json.dump({"source": f"scipy {scipy.__version__}", "tails": tails}, open("tests/fixtures/scipy-chi2-tails.json", "w"))
+print("wrote tests/fixtures/scipy-chi2-tails.json", len(tails), "tail cases")

@@ -15,7 +15,7 @@ export { WelchAccumulator, type Detrend, type WelchSettings, type WelchSums } fr
 export { welchDof } from "./estimate/welchDof.js";
 export { normalizeWelchOptions, type WelchOptions, type ResolvedWelchOptions } from "./estimate/welchOptions.js";
 export { welchPsd, completePsd, bandRms, strongestPeaks, frequencyAxis, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
-export { chiSquareQuantile, chiSquareCdf, chiSquareIntervalFactors } from "./estimate/chiSquare.js";
+export { chiSquareQuantile, chiSquareUpperQuantile, chiSquareCdf, chiSquareSurvival, chiSquareIntervalFactors } from "./estimate/chiSquare.js";
 export { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
 export { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
 export { parsevalCheck, parsevalTolerance, type ParsevalCheck } from "./compare/parsevalCheck.js";

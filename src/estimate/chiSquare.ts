@@ -20,19 +20,26 @@ export function lnGamma(z: number): number {
   return 0.5 * Math.log(2 * Math.PI) + (x + 0.5) * Math.log(t) - t + Math.log(a);
 }
 
-/** Regularised lower incomplete gamma P(a, x). */
-export function regularizedGammaP(a: number, x: number): number {
-  if (x <= 0) return 0;
+/**
+ * Regularised lower and upper incomplete gamma, P(a, x) and Q(a, x) = 1 - P(a, x), each computed where it
+ * is accurate: the series gives P for x < a + 1, the continued fraction gives Q otherwise, and the other
+ * one is its complement. Both are needed to full relative precision in their own tails (a quantile at
+ * p = 1e-7 or 1 - 1e-7).
+ */
+function incompleteGamma(a: number, x: number): { p: number; q: number } {
+  if (x <= 0) return { p: 0, q: 1 };
+  if (x === Infinity) return { p: 1, q: 0 };
   const lnPre = a * Math.log(x) - x - lnGamma(a);
   if (x < a + 1) {
     let term = 1 / a;
     let sum = term;
-    for (let n = 1; n < 10000; n++) {
+    for (let n = 1; n < 100000; n++) {
       term *= x / (a + n);
       sum += term;
-      if (Math.abs(term) < Math.abs(sum) * 1e-16) break;
+      if (Math.abs(term) < Math.abs(sum) * 1e-17) break;
     }
-    return sum * Math.exp(lnPre);
+    const p = Math.min(1, sum * Math.exp(lnPre));
+    return { p, q: 1 - p };
   }
   // Continued fraction for Q(a, x), modified Lentz.
   const tiny = 1e-300;
@@ -40,7 +47,7 @@ export function regularizedGammaP(a: number, x: number): number {
   let c = 1 / tiny;
   let d = 1 / b;
   let h = d;
-  for (let i = 1; i < 10000; i++) {
+  for (let i = 1; i < 100000; i++) {
     const an = -i * (i - a);
     b += 2;
     d = an * d + b;
@@ -52,36 +59,78 @@ export function regularizedGammaP(a: number, x: number): number {
     h *= del;
     if (Math.abs(del - 1) < 1e-16) break;
   }
-  return 1 - Math.exp(lnPre) * h;
+  const q = Math.min(1, Math.exp(lnPre) * h);
+  return { p: 1 - q, q };
 }
 
+/** Regularised lower incomplete gamma P(a, x). */
+export function regularizedGammaP(a: number, x: number): number {
+  return incompleteGamma(a, x).p;
+}
+
+/** P(chi2_dof <= x). */
 export function chiSquareCdf(x: number, dof: number): number {
-  return regularizedGammaP(dof / 2, x / 2);
+  return incompleteGamma(dof / 2, x / 2).p;
+}
+
+/** P(chi2_dof > x), accurate in the far upper tail (no 1 - P cancellation). */
+export function chiSquareSurvival(x: number, dof: number): number {
+  return incompleteGamma(dof / 2, x / 2).q;
 }
 
 /**
  * Quantile of the chi-square distribution: the x with P(chi2_dof <= x) = p, for any real dof > 0.
- * Start from Wilson & Hilferty's cube-root normal approximation (Proc. Natl. Acad. Sci. 17, 1931),
- * then Newton steps on the CDF, kept inside a bisection bracket.
+ * For p > 0.5 the upper tail 1 - p is solved instead (see chiSquareUpperQuantile).
  */
 export function chiSquareQuantile(p: number, dof: number): number {
   if (!(p > 0 && p < 1)) throw new RangeError(`probability must be in (0, 1), got ${p}`);
+  return p <= 0.5 ? tailQuantile(p, dof, false) : tailQuantile(1 - p, dof, true);
+}
+
+/**
+ * The x with P(chi2_dof > x) = q: the quantile for a small upper-tail probability given exactly (1e-6
+ * is not representable as 1 - p to full precision). Used by the decision rule's family-wise limits.
+ */
+export function chiSquareUpperQuantile(q: number, dof: number): number {
+  if (!(q > 0 && q < 1)) throw new RangeError(`probability must be in (0, 1), got ${q}`);
+  return q <= 0.5 ? tailQuantile(q, dof, true) : tailQuantile(1 - q, dof, false);
+}
+
+/**
+ * Solve log(tail(x)) = log(t) for the lower (P) or upper (Q) tail probability t <= 0.5. Newton steps on
+ * the log of the tail (its slope is -+pdf/tail, smooth over many decades), kept inside a bisection
+ * bracket in log x, to a relative step of 1e-15. Starting value: Wilson & Hilferty's cube-root normal
+ * approximation (Proc. Natl. Acad. Sci. 17, 1931), or for a far lower tail the leading term of the
+ * series P(a, x) ~ x^a e^-x / Gamma(a + 1) (Abramowitz & Stegun 1964, 6.5.29).
+ */
+function tailQuantile(t: number, dof: number, upper: boolean): number {
   if (!(dof > 0) || !Number.isFinite(dof)) throw new RangeError(`degrees of freedom must be > 0, got ${dof}`);
-  const z = normalQuantile(p);
+  const a = dof / 2;
+  const lnT = Math.log(t);
+  const z = normalQuantile(upper ? 1 - t : t);
   const h = 2 / (9 * dof);
-  let x = dof * Math.pow(Math.max(1 - h + z * Math.sqrt(h), 1e-3), 3);
+  const wh = dof * Math.pow(1 - h + z * Math.sqrt(h), 3);
+  // x/2 ~ (t Gamma(a + 1))^(1/a) where the series' first term dominates.
+  const series = 2 * Math.exp((lnT + lnGamma(a + 1)) / a);
+  let x = !upper && (!(wh > 0) || series < wh) ? series : wh;
+  if (!(x > 0) || !Number.isFinite(x)) x = dof;
+  // Bracket [lo, hi] on x with lnTail(lo) and lnTail(hi) on either side of lnT.
   let lo = 0;
-  let hi = Math.max(2 * x, dof + 20 * Math.sqrt(2 * dof) + 50);
-  while (chiSquareCdf(hi, dof) < p) hi *= 2;
-  const lnNorm = (dof / 2) * Math.log(2) + lnGamma(dof / 2);
-  for (let i = 0; i < 200; i++) {
-    const f = chiSquareCdf(x, dof) - p;
-    if (f < 0) lo = x;
+  let hi = Infinity;
+  const lnNorm = a * Math.log(2) + lnGamma(a);
+  for (let i = 0; i < 400; i++) {
+    const g = incompleteGamma(a, x / 2);
+    const tail = upper ? g.q : g.p;
+    const f = Math.log(tail) - lnT;
+    // Lower tail grows with x, upper tail falls.
+    if ((f < 0) !== upper) lo = x;
     else hi = x;
-    const pdf = Math.exp((dof / 2 - 1) * Math.log(x) - x / 2 - lnNorm);
-    let next = pdf > 0 ? x - f / pdf : NaN;
-    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (Math.abs(next - x) <= 1e-14 * Math.max(1, x)) return next;
+    if (f === 0) return x;
+    const lnPdf = (a - 1) * Math.log(x) - x / 2 - lnNorm;
+    const slope = (upper ? -1 : 1) * Math.exp(lnPdf - Math.log(tail));
+    let next = Number.isFinite(slope) && slope !== 0 ? x - f / slope : NaN;
+    if (!(next > lo && next < hi)) next = hi === Infinity ? x * 4 : lo === 0 ? x / 4 : Math.sqrt(lo * hi);
+    if (Math.abs(next - x) <= 1e-15 * x) return next;
     x = next;
   }
   return x;
@@ -121,7 +170,7 @@ export function normalQuantile(p: number): number {
 export function chiSquareIntervalFactors(dof: number, confidence: number): { lower: number; upper: number } {
   const alpha = 1 - confidence;
   return {
-    lower: dof / chiSquareQuantile(1 - alpha / 2, dof),
+    lower: dof / chiSquareUpperQuantile(alpha / 2, dof),
     upper: dof / chiSquareQuantile(alpha / 2, dof),
   };
 }

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { chiSquareIntervalFactors, chiSquareQuantile, lnGamma } from "../../src/estimate/chiSquare.js";
+import { readFileSync } from "node:fs";
+import { chiSquareCdf, chiSquareIntervalFactors, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile, lnGamma } from "../../src/estimate/chiSquare.js";
 import { scipyReference } from "../helpers.js";
 
 describe("chiSquareQuantile", () => {
@@ -47,4 +48,28 @@ describe("chiSquareIntervalFactors", () => {
       expect(f.upper).toBeCloseTo(hi, 2);
     });
   }
+});
+
+describe("chi-square far tails (the range the decision rule asks for)", () => {
+  // scipy 1.17.1 chi2.ppf / chi2.isf, tests/fixtures/scipy-chi2-tails.json (scripts/make_scipy_fixtures.py)
+  const tails: { dof: number; q: number; lower: number; upper: number }[] = JSON.parse(
+    readFileSync(new URL("../fixtures/scipy-chi2-tails.json", import.meta.url), "utf8"),
+  ).tails;
+  it("chiSquareQuantile(q, dof) and chiSquareUpperQuantile(q, dof) match scipy to 1e-11 relative for q from 1e-9, dof 0.3 to 1e5", () => {
+    let worst = 0;
+    for (const t of tails) {
+      const lo = chiSquareQuantile(t.q, t.dof);
+      const hi = chiSquareUpperQuantile(t.q, t.dof);
+      worst = Math.max(worst, Math.abs(lo / t.lower - 1), Math.abs(hi / t.upper - 1));
+      expect(Math.abs(lo / t.lower - 1), `lower dof ${t.dof} q ${t.q}`).toBeLessThan(1e-11);
+      expect(Math.abs(hi / t.upper - 1), `upper dof ${t.dof} q ${t.q}`).toBeLessThan(1e-11);
+    }
+    expect(worst).toBeLessThan(1e-11);
+  });
+  it("chiSquareSurvival and chiSquareCdf invert the quantiles in their own tails", () => {
+    for (const t of tails) {
+      expect(Math.abs(chiSquareSurvival(t.upper, t.dof) / t.q - 1)).toBeLessThan(1e-9);
+      expect(Math.abs(chiSquareCdf(t.lower, t.dof) / t.q - 1)).toBeLessThan(1e-9);
+    }
+  });
 });
