@@ -75,10 +75,12 @@ const rows = [];
 const small = files("small", SMALL, 20000, 500);
 const big = BIG > 0 ? files("big", BIG, BIG_ROWS, 700) : [];
 const scenarios = [
-  { set: "small", list: small, label: "local batch --jobs 1", run: () => ({ wall: local(small, 1) }) },
-  { set: "small", list: small, label: "queue, 1 worker --jobs 1", run: () => queued(small, 1, 1) },
-  { set: "small", list: small, label: "local batch --jobs 2", run: () => ({ wall: local(small, 2) }) },
-  { set: "small", list: small, label: "queue, 1 worker --jobs 2", run: () => queued(small, 1, 2) },
+  ...(SMALL > 0 ? [
+    { set: "small", list: small, label: "local batch --jobs 1", run: () => ({ wall: local(small, 1) }) },
+    { set: "small", list: small, label: "queue, 1 worker --jobs 1", run: () => queued(small, 1, 1) },
+    { set: "small", list: small, label: "local batch --jobs 2", run: () => ({ wall: local(small, 2) }) },
+    { set: "small", list: small, label: "queue, 1 worker --jobs 2", run: () => queued(small, 1, 2) },
+  ] : []),
   ...(BIG > 0 ? [
     { set: "big", list: big, label: "local batch --jobs 1", run: () => ({ wall: local(big, 1) }) },
     { set: "big", list: big, label: "queue, 1 worker --jobs 1", run: () => queued(big, 1, 1) },
@@ -102,7 +104,8 @@ const find = (set, route) => rows.find((x) => x.set === set && x.route === route
 const overhead = (jobs) => (find("small", `queue, 1 worker --jobs ${jobs}`).wallS - find("small", `local batch --jobs ${jobs}`).wallS) / SMALL * 1000;
 const summary = {
   machine: `${cpus().length} cores, Node ${process.version}`, date: new Date().toISOString(), runs: RUNS, smallRows: 20000, bigRows: BIG_ROWS,
-  overheadMsPerJob: { jobs1: overhead(1), jobs2: overhead(2) },
+  load: (await import("node:os")).loadavg(),
+  overheadMsPerJob: SMALL > 0 ? { jobs1: overhead(1), jobs2: overhead(2) } : null,
   speedup2WorkersOver1: BIG > 0 ? find("big", "queue, 1 worker --jobs 1").wallS / find("big", "queue, 2 workers --jobs 1").wallS : null,
   rows,
 };
@@ -110,5 +113,6 @@ writeFileSync(join("bench/out", "queue.json"), JSON.stringify(summary, null, 2))
 console.log(`| set | files | route | wall s (median of ${RUNS}) | jobs/s | steady jobs/s (from result times) |`);
 console.log("|---|---|---|---|---|---|");
 for (const x of rows) console.log(`| ${x.set} | ${x.files} | ${x.route} | ${x.wallS.toFixed(2)} | ${x.jobsPerS.toFixed(1)} | ${x.steadyJobsPerS === null ? "" : x.steadyJobsPerS.toFixed(1)} |`);
-console.log(`\nper-job overhead of the queue on small files: ${summary.overheadMsPerJob.jobs1.toFixed(1)} ms (--jobs 1), ${summary.overheadMsPerJob.jobs2.toFixed(1)} ms (--jobs 2)`);
+if (summary.overheadMsPerJob) console.log(`\nper-job overhead of the queue on small files: ${summary.overheadMsPerJob.jobs1.toFixed(1)} ms (--jobs 1), ${summary.overheadMsPerJob.jobs2.toFixed(1)} ms (--jobs 2)`);
+console.log(`load average at the end (1, 5, 15 min): ${summary.load.map((x) => x.toFixed(1)).join(", ")}`);
 if (summary.speedup2WorkersOver1 !== null) console.log(`2 workers over 1 on ${BIG} files of ${BIG_ROWS} rows: ${summary.speedup2WorkersOver1.toFixed(2)}x`);

@@ -124,7 +124,12 @@ export function addQueueCommands(program: Command, io: CliIo): void {
       const say = (s: string) => io.stderr(redact(s, target) + "\n");
       const stop = new AbortController();
       const onSignal = (sig: string) => () => {
-        if (!stop.signal.aborted) say(`psdgate: ${sig}: finishing the jobs in hand, taking no more`);
+        if (stop.signal.aborted) {
+          // A second signal: stop now. Jobs in hand stay active and are handed on after their expiry.
+          say(`psdgate: ${sig} again: stopping now; the jobs in hand go back to the queue after their expiry`);
+          process.exit(sig === "SIGINT" ? 130 : 143);
+        }
+        say(`psdgate: ${sig}: finishing the jobs in hand, taking no more (send it again to stop at once)`);
         stop.abort();
       };
       const term = onSignal("SIGTERM");

@@ -42,6 +42,17 @@ const sleep = (ms: number, signal?: AbortSignal) =>
 /** Back-off after a database error: 1, 2, 4, … 30 s. */
 const backoffMs = (failures: number) => Math.min(30000, 1000 * 2 ** Math.max(0, failures - 1));
 
+/**
+ * Whether a database error may go away by waiting: no connection (ECONNREFUSED, ECONNRESET, …), the server
+ * shutting down or out of resources, a conflict with another transaction (SQLSTATE classes 08, 40, 53, 57,
+ * 58, PostgreSQL manual, appendix A). Anything else (a constraint, a type) is a bug here, not an outage.
+ */
+export function transientDbError(e: unknown): boolean {
+  const code = (e as { code?: unknown })?.code;
+  if (typeof code !== "string" || !/^[0-9A-Z]{5}$/.test(code)) return true;
+  return /^(08|40|53|57|58)/.test(code);
+}
+
 /** The job's row in pg-boss is still ours (active) and no other attempt has written a result: a rollback marker. */
 class NotOurs extends Error {}
 
@@ -66,7 +77,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
         dbFailures = 0;
         return out;
       } catch (e) {
-        if (e instanceof NotOurs) throw e;
+        if (e instanceof NotOurs || !transientDbError(e)) throw e;
         dbFailures++;
         const wait = backoffMs(dbFailures);
         say(`psdgate: database error while ${what}: ${(e as Error).message}; trying again in ${wait / 1000} s`);

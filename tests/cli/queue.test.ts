@@ -12,6 +12,7 @@ import { freshDatabase, postgresUrl } from "../queue/database.js";
 
 const url = postgresUrl("tests/cli/queue.test.ts");
 const built = existsSync("dist/cli/bin.js") && existsSync("dist/queue/jobThread.js");
+if (process.env.CI && !built) it("the built CLI is there for the queue's end-to-end test (CI)", () => expect(built, "run npm run build").toBe(true));
 const BIN = resolve("bin/psdgate.js");
 const root = tempDir();
 const FS = 1024;

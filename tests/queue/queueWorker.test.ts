@@ -7,7 +7,7 @@ import { createJobPool, JobCrash, type JobPool } from "../../src/queue/jobPool.j
 import { migrate, SCHEMA_VERSION } from "../../src/queue/migrations.js";
 import { queueStatus } from "../../src/queue/queueReport.js";
 import { openQueue, QUEUE_NAME, RETRY, type QueueStore } from "../../src/queue/queueStore.js";
-import { runWorker, type WorkOptions } from "../../src/queue/queueWorker.js";
+import { runWorker, transientDbError, type WorkOptions } from "../../src/queue/queueWorker.js";
 import type { StoredOutcome } from "../../src/queue/runJob.js";
 import { tempDir } from "../helpers.js";
 import { freshDatabase, postgresUrl } from "./database.js";
@@ -26,6 +26,13 @@ function fakePool(behave: (j: Job) => Promise<StoredOutcome>): JobPool {
 function options(extra: Partial<WorkOptions>, log: string[]): WorkOptions {
   return { jobs: 1, drain: true, pollSeconds: 0.5, workerName: "test:1", signal: new AbortController().signal, log: (l) => log.push(l), ...extra };
 }
+
+describe("transientDbError", () => {
+  it("transientDbError: network errors and SQLSTATE classes 08, 40, 53, 57, 58 wait; others are bugs (PostgreSQL 15 manual, appendix A)", () => {
+    expect(["ECONNREFUSED", "ECONNRESET", undefined, "08006", "40001", "53300", "57P01", "58030"].map((code) => transientDbError({ code }))).toEqual(Array(8).fill(true));
+    expect(["23505", "22P02", "42P01"].map((code) => transientDbError({ code }))).toEqual([false, false, false]);
+  });
+});
 
 describe.skipIf(!url)("queue worker (in process, real PostgreSQL)", () => {
   let store: QueueStore;
