@@ -3,6 +3,7 @@ import { resolve } from "node:path";
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
 import { fixed, sig, signedDb, table } from "../report/format.js";
+import { accelLabel, type AccelUnit } from "../units.js";
 import { VERSION } from "../version.js";
 import type { DbTarget } from "../queue/connection.js";
 import type { Job } from "../queue/job.js";
@@ -63,7 +64,7 @@ export function addQueueCommands(program: Command, io: CliIo): void {
     .option("-p, --profile <file>", "the required profile: jobs judge against it (JSON, YAML or CSV)")
     .option("--files-from <list>", "read recording paths, one per line, from this file (- for stdin)")
     .option("--root <dir>", "the folder job paths are relative to; every worker is started with the same folder as its --root (default: the current folder)")
-    .option("--expire-after <s>", "a job held this long by a worker that stopped answering is handed to another (default 900)", numberOption("--expire-after", (x) => Number.isInteger(x) && x >= 1 && x <= 86400, "whole seconds from 1 to 86400"), 900)
+    .option("--expire-after <s>", "seconds after which a job held by a worker that stopped answering goes back to the queue", numberOption("--expire-after", (x) => Number.isInteger(x) && x >= 1 && x <= 86400, "whole seconds from 1 to 86400"), 900)
     .option("--json", "one JSON line per recording: file, added (true/false), job id and, when not added, its state")
     .action(async (args: string[], o: ParsedCommon & DbFlags & { profile?: string; filesFrom?: string; root?: string; expireAfter: number }) => {
       const { jobPathOf } = await import("../queue/jobPath.js");
@@ -95,11 +96,11 @@ export function addQueueCommands(program: Command, io: CliIo): void {
       });
     });
 
-  dbOption(queue.command("work").description("work jobs from the queue: N analyses at once; SIGTERM finishes the jobs in hand, then exits"))
+  dbOption(queue.command("work").description("work jobs from the queue, N analyses at once. An input error fails its job at once; an internal error is retried twice (after 5-10 s, then 10-20 s). SIGTERM finishes the jobs in hand, then exits"))
     .option("-j, --jobs <n>", "analyses at once (default: the number of cores)", numberOption("--jobs", (x) => Number.isInteger(x) && x >= 1 && x <= 256, "a whole number from 1 to 256"))
     .option("--root <dir>", "jobs may read only under this folder; their paths are relative to it (default: the current folder)")
     .option("--drain", "exit once no job is queued or active")
-    .option("--poll <s>", "seconds between looks at an empty queue (default 0.5)", numberOption("--poll", (x) => x >= 0.5 && x <= 60, "seconds from 0.5 to 60"), 0.5)
+    .option("--poll <s>", "seconds between looks at an empty queue", numberOption("--poll", (x) => x >= 0.5 && x <= 60, "seconds from 0.5 to 60"), 0.5)
     .option("--report-dir <dir>", "write each check's HTML report here, at the recording's path with .html (made if missing)")
     .option("-q, --quiet", "no line per finished job on stderr")
     .action(async (o: DbFlags & { jobs?: number; root?: string; drain?: boolean; poll: number; quiet?: boolean; reportDir?: string }) => {
@@ -210,7 +211,7 @@ export function addQueueCommands(program: Command, io: CliIo): void {
             continue;
           }
           for (const c of r.figures.channels) {
-            rows.push([r.path, c.name, sig(c.rms, 4), c.rmsDeviationDb === null ? "" : signedDb(c.rmsDeviationDb), fixed(c.dof, 1), c.parsevalRatio === null ? "" : fixed(c.parsevalRatio, 4), c.verdict ?? "done"]);
+            rows.push([r.path, c.name, `${sig(c.rms, 4)} ${accelLabel(c.units as AccelUnit)}`, c.rmsDeviationDb === null ? "" : signedDb(c.rmsDeviationDb), fixed(c.dof, 1), c.parsevalRatio === null ? "" : fixed(c.parsevalRatio, 4), c.verdict ?? "done"]);
           }
         }
         if (!o.json) io.stdout(`psdgate ${VERSION}: ${n} result(s) on ${s.target.label}\n${table(rows)}\n`);

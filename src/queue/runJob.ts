@@ -11,7 +11,7 @@ import { resolveJobPath } from "./jobPath.js";
 export interface KeyFigures {
   sampleRateHz: number;
   durationS: number;
-  channels: { name: string; rms: number; rmsDeviationDb: number | null; dof: number; parsevalRatio: number | null; verdict: string | null }[];
+  channels: { name: string; units: string; rms: number; rmsDeviationDb: number | null; dof: number; parsevalRatio: number | null; verdict: string | null }[];
 }
 
 /** What one job gave: the batch's JSON line for the recording, its verdict and key figures, or its input error. */
@@ -139,6 +139,7 @@ function figuresOf(a: RecordingAnalysis, r: CheckResult | undefined): KeyFigures
       const k = r?.channels[i];
       return {
         name: c.name,
+        units: c.units,
         rms: k ? k.rms.measured : c.parseval.rmsTime,
         rmsDeviationDb: k ? finite(k.rms.deviationDb) : null,
         dof: c.psd.dof,

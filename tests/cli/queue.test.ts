@@ -143,7 +143,7 @@ describe.skipIf(!url || !built)("queue end to end (built CLI, real PostgreSQL)",
     const t = run("queue", "results", "--db", db);
     expect(t.stdout).toMatch(/40 result\(s\)/);
     expect(t.stdout).toMatch(/runs\/bad-empty\.csv\s+error [A-Z_]+/);
-    expect(t.stdout).toMatch(/runs\/good-001\.csv\s+ax\s+[\d.]+\s+[+-][\d.]+ dB\s+[\d.]+\s+[\d.]+\s+(pass|fail|inconclusive)/);
+    expect(t.stdout).toMatch(/runs\/good-001\.csv\s+ax\s+[\d.]+ g\s+[+-][\d.]+ dB\s+[\d.]+\s+[\d.]+\s+(pass|fail|inconclusive)/);
     expect(run("queue", "results", "--db", db, "--json", "--since", "2999-01-01T00:00Z").stdout).toBe("");
     expect(run("queue", "results", "--db", db, "--since", "yesterday").stderr).toContain("[OPTION_INVALID]");
   });
