@@ -142,7 +142,7 @@ export function addQueueCommands(program: Command, io: CliIo): void {
         // A worker may start before the server does, or outlive a restart of it: wait with back-off.
         for (let failures = 1; !s && !stop.signal.aborted; failures++) {
           try {
-            s = await openQueue(target, { poolSize: jobs + 2, supervise: true, onError: (m) => say(`psdgate: database: ${m}`) });
+            s = await openQueue(target, { poolSize: jobs + 2, supervise: true, asyncCommit: true, onError: (m) => say(`psdgate: database: ${m}`) });
           } catch (e) {
             if (!(e instanceof DbUnreachable)) throw new Error(redact((e as Error).message, target));
             const wait = Math.min(30, 2 ** (failures - 1));

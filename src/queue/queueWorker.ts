@@ -103,37 +103,38 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     return Number(rows[0]!.n) === 0;
   }
 
-  async function writeResult(c: { query: SqlRunner["executeSql"] }, job: FetchedJob, outcome: StoredOutcome) {
+  /**
+   * Result row and the job's end in one statement, so all or nothing without a transaction of several
+   * round trips. The job's update is the SQL of pg-boss 10's completeJobs (plans.js), and for a final
+   * failure the state pg-boss's failJobs gives a job out of retries; both only while the job is still
+   * active. The INSERT has no ON CONFLICT: a second result for a job is a unique violation, and then
+   * the statement changes nothing.
+   */
+  async function finish(job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail"): Promise<void> {
     const j = job.data;
-    const r = await c.query(
-      `INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version, report_path)
-       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16) ON CONFLICT DO NOTHING RETURNING job_id`,
-      [job.id, j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j), outcome.ok ? "done" : "failed",
-        outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
-        outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null],
-    );
-    if (r.rows.length !== 1) throw new NotOurs("a result for this job is already stored");
-  }
-
-  /** Result row + job completed (or failed for good), all or nothing. */
-  async function finish(job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail") {
-    await store.transaction(async (c, db) => {
-      // Atomic but not waiting for the disk flush (30 ms a commit here): a server crash can lose the
-      // last fraction of a second of completions, and then loses each with its result, so those jobs
-      // are active again, expire and are redone. Never a result without its completion, or twice.
-      await c.query("SET LOCAL synchronous_commit = off");
-      await writeResult({ query: (t, v) => c.query(t, v as unknown[]) }, job, outcome);
-      if (final === "complete") {
-        // pg-boss 10 returns { affected } here although its types say void.
-        const r = (await store.boss.complete(QUEUE_NAME, job.id, { verdict: outcome.ok ? outcome.verdict : null }, { db: db as never })) as unknown as { affected: number };
-        if (r.affected !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
-      } else {
-        // No retry for this one: an input error will not go away by trying again.
-        await c.query(`UPDATE pgboss.job SET retry_limit = retry_count WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]);
-        const r = (await store.boss.fail(QUEUE_NAME, job.id, outcome.ok ? {} : { code: outcome.error.code, message: outcome.error.message }, { db: db as never })) as unknown as { affected: number };
-        if (r.affected !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
-      }
-    });
+    const output = outcome.ok ? { verdict: outcome.verdict } : { code: outcome.error.code, message: outcome.error.message };
+    try {
+      const { rows } = await store.pool.query<{ stored: string }>(
+        `WITH ended AS (
+           UPDATE pgboss.job SET completed_on = now(), state = $17::pgboss.job_state, output = $18::jsonb
+            WHERE name = $19 AND id = $1 AND state = 'active'
+           RETURNING id
+         ), stored AS (
+           INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version, report_path)
+           SELECT id, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16 FROM ended
+           RETURNING job_id
+         )
+         SELECT count(*) AS stored FROM stored`,
+        [job.id, j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j), outcome.ok ? "done" : "failed",
+          outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
+          outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null,
+          final === "complete" ? "completed" : "failed", JSON.stringify(output), QUEUE_NAME],
+      );
+      if (Number(rows[0]!.stored) !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
+    } catch (e) {
+      if ((e as { code?: string }).code === "23505") throw new NotOurs("a result for this job or this recording and settings is already stored");
+      throw e;
+    }
   }
 
   type Ran = { outcome: StoredOutcome; crash?: undefined; seconds: number } | { outcome?: undefined; crash: Error; seconds: number };

@@ -37,11 +37,14 @@ describe("transientDbError", () => {
 describe.skipIf(!url)("queue worker (in process, real PostgreSQL)", () => {
   let store: QueueStore;
   beforeAll(async () => {
-    store = await openQueue(dbTarget(freshDatabase(url!), {}), { poolSize: 4 });
+    store = await openQueue(dbTarget(freshDatabase(url!), {}), { poolSize: 4, asyncCommit: true });
   });
   afterAll(async () => store?.close());
   const rows = async (sql: string, v: unknown[] = []) => (await store.pool.query(sql, v)).rows;
 
+  it("openQueue({ asyncCommit: true }): the worker's sessions commit without waiting for the flush", async () => {
+    expect((await rows("SHOW synchronous_commit"))[0].synchronous_commit).toBe("off");
+  });
   it("migrate() applies each step once; a database from a newer psdgate is refused", async () => {
     expect(await migrate(store.pool)).toEqual({ from: SCHEMA_VERSION, to: SCHEMA_VERSION });
     expect((await rows("SELECT version FROM psdgate.migration")).map((r) => r.version)).toEqual([1]);
