@@ -53,12 +53,12 @@ export function transientDbError(e: unknown): boolean {
   return /^(08|40|53|57|58)/.test(code);
 }
 
-/** The job's row in pg-boss is still ours (active) and no other attempt has written a result: a rollback marker. */
+/** The job is no longer ours (not active any more, or its result is stored already): nothing was changed. */
 class NotOurs extends Error {}
 
 /**
  * A worker: `jobs` loops, each fetching one job when it is free, running it on the pool, and writing
- * its result in the same transaction that completes the job. Input errors fail the job at once; an
+ * its result in the same statement (so the same transaction) that completes the job. Input errors fail the job at once; an
  * internal error goes back to pg-boss for a retry (delay and limit of the queue), and on the last
  * attempt is kept as a failed result. Database errors are retried with back-off, said on stderr.
  */
@@ -68,7 +68,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
   let lastExpire = 0;
   const say = (s: string) => o.log(redact(s, store.target));
 
-  /** Runs `what` until the database answers (or we are told to stop and `untilStopped` is false). */
+  /** Runs `fn` until the database answers; without `keepTrying`, gives up (undefined) once told to stop. */
   async function withDb<T>(what: string, fn: () => Promise<T>, keepTrying: boolean): Promise<T | undefined> {
     for (;;) {
       try {
@@ -194,6 +194,8 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
         const ran = await runOne(job);
         await recording;
         recording = record(job, ran);
+        // Marked as handled now (a bug's error is still thrown where it is awaited, one job later).
+        recording.catch(() => undefined);
         continue;
       }
       await recording;
