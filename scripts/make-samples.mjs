@@ -15,3 +15,5 @@ const runs = [
 for (const [profile, duration, rate, channels, seed, out] of runs) {
   execFileSync("node", ["bin/psdgate.js", "synth", "--profile", profile, "--duration", duration, "--rate", rate, "--channels", channels, "--seed", seed, "--out", out, "--force"], { stdio: "inherit" });
 }
+// Three-channel fixture survey (base, bracket tip, cable clamp) for `psdgate transfer`: its own script.
+execFileSync("node", ["scripts/make-fixture-survey.mjs"], { stdio: "inherit" });

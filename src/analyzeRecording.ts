@@ -1,5 +1,7 @@
 import { channelConditioning, scaleSamples } from "./condition/scaleSamples.js";
+import { amplitudeGates } from "./compare/amplitudeGates.js";
 import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
+import { texts, type Finding } from "./findings.js";
 import { InputError, quoted } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
 import { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
@@ -52,6 +54,9 @@ export interface ChannelAnalysis {
   warnings: string[];
   /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
   doubts: string[];
+  /** The same notes and doubts with their codes. */
+  notes: Finding[];
+  doubtFindings: Finding[];
 }
 
 export interface RecordingAnalysis {
@@ -119,17 +124,25 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const fs = summary.sampleRateHz;
   // The line spacing follows the final rate (a CSV time column is only known once fully read).
   const resolved = { ...settings, resolutionHz: fs / settings.segmentLength };
+  for (const [key, v] of [["fminHz", options.fminHz], ["fmaxHz", options.fmaxHz]] as const) {
+    if (v !== undefined && v > fs / 2) {
+      throw new InputError("OPTION_INVALID", { file: info.file, option: key === "fminHz" ? "--fmin" : "--fmax", expected: `a frequency inside the record's 0–${fs / 2} Hz (half its ${fs} Hz sample rate)`, received: `${v} Hz` });
+    }
+  }
   const channels = select.map((idx, c): ChannelAnalysis => {
     const stats = moments[c]!.result();
-    const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN };
+    const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0, detrendedKurtosis: NaN, detrendedCrestFactor: NaN };
     const psd = completePsd(sums, window, resolved, fs);
     const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
-    const parseval = parsevalCheck(rmsTime, psd.rmsPsd, settings.window, psd.averages);
+    const parseval = parsevalCheck(rmsTime, psd, settings.window);
     const lo = options.fminHz ?? 0;
     const hi = options.fmaxHz ?? fs / 2;
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
-    const { warnings, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength, spectrum);
-    return { name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5), histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings, doubts };
+    const { notes, doubts } = findings(info.channels[idx]!, stats, psd, parseval, summary.frames, settings.segmentLength, spectrum, summary.frames / fs);
+    return {
+      name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+    };
   });
   return {
     input: {
@@ -151,25 +164,38 @@ export function clippingHintCount(samples: number): number {
   return Math.max(3, Math.ceil(2e-5 * samples));
 }
 
-function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean) {
-  const warnings: string[] = [];
-  const doubts: string[] = [];
-  if (ch.declaredUnitText !== undefined) warnings.push(`header unit ${quoted(ch.declaredUnitText)} is not an acceleration unit; values were taken as given (use --scale for a sensitivity)`);
+function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number) {
+  const notes: Finding[] = [];
+  const doubts: Finding[] = [];
+  if (ch.declaredUnitText !== undefined) notes.push({ code: "UNIT_NOT_ACCELERATION", text: `header unit ${quoted(ch.declaredUnitText)} is not an acceleration unit; values were taken as given (use --scale for a sensitivity)` });
   if (s.nonFinite > 0) {
-    doubts.push(`${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD`);
+    doubts.push({ code: "NON_FINITE", text: `${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD` });
   }
   const clip = clippingHintCount(s.count);
   if (s.atMax >= clip || s.atMin >= clip) {
-    doubts.push(`possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}`);
+    doubts.push({ code: "CLIPPING", text: `possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}` });
   }
-  // Without a spectrum (inspect) there are no segment or Parseval findings.
-  if (spectrum && p.averages === 0) doubts.push(`record of ${frames} samples is shorter than one segment of ${segment}`);
-  else if (spectrum && p.averages < 8) warnings.push(`only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)`);
-  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) warnings.push(`DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)`);
-  if (p.averages > 0 && !pv.ok) {
-    doubts.push(`Parseval mismatch: RMS from the PSD is ${(100 * (pv.ratio - 1)).toFixed(2)} % off the time-domain RMS (allowed ±${(100 * pv.tolerance).toFixed(0)} %)`);
+  // Without a spectrum (inspect) there are no segment, Parseval or amplitude-gate findings.
+  if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", text: `record of ${frames} samples is shorter than one segment of ${segment}` });
+  else if (spectrum && p.averages < 8) notes.push({ code: "FEW_AVERAGES", text: `only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)` });
+  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) notes.push({ code: "DC_OFFSET", text: `DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)` });
+  if (spectrum && p.averages > 0) {
+    if (!pv.ok) {
+      doubts.push({
+        code: "PARSEVAL_MISMATCH",
+        text: `Parseval mismatch: RMS from the PSD is ${(100 * (pv.ratio - 1)).toFixed(2)} % off the RMS of the same detrended segments (allowed ±${(100 * pv.tolerance).toPrecision(2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""})`,
+      });
+    }
+    if (pv.belowFirstLineShare > 0.01) {
+      notes.push({ code: "BELOW_FIRST_LINE", text: `${(100 * pv.belowFirstLineShare).toFixed(1)} % of the record's mean square is slower than the first line (drift or a slow trend); the PSD leaves it out` });
+    }
+    if (s.count > 0 && s.std > 0) {
+      const g = amplitudeGates(s, p, durationS);
+      doubts.push(...g.doubts);
+      notes.push(...g.notes);
+    }
   }
-  return { warnings, doubts };
+  return { notes, doubts };
 }
 
 function fmt(x: number): string {

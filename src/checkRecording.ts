@@ -1,9 +1,35 @@
 import { readFile } from "node:fs/promises";
-import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
-import { checkChannel, overallVerdict } from "./compare/complianceCheck.js";
+import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
+import { judgeSpectrum, overallVerdict, withDoubts, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
-import { InputError } from "./errors.js";
-import type { CheckResult } from "./report/checkReport.js";
+import { InputError, quoted } from "./errors.js";
+
+/** How several control channels make one control spectrum (multipoint control). */
+export type ControlRule = "average" | "largest";
+export const CONTROL_RULES: readonly ControlRule[] = ["average", "largest"];
+
+export interface CheckOptions extends AnalysisOptions {
+  /** Judge these channels (names or 1-based positions) as one control spectrum; the others are monitoring channels. */
+  control?: { channels: string[]; rule: ControlRule } | undefined;
+}
+
+export interface ControlJudgement {
+  rule: ControlRule;
+  /** Names of the control channels. */
+  channels: string[];
+  judgement: ChannelCompliance;
+}
+
+export interface CheckResult {
+  verdict: Verdict;
+  analysis: RecordingAnalysis;
+  profile: TestProfile;
+  /** One per analysed channel, in the analysis's order. */
+  channels: ChannelCompliance[];
+  /** "judged" without control channels; otherwise "control" or "monitor" (shown, not judged). */
+  roles: ("judged" | "control" | "monitor")[];
+  control?: ControlJudgement | undefined;
+}
 
 /** Read and validate a profile file (JSON, YAML or two-column CSV). */
 export async function loadProfile(file: string): Promise<TestProfile> {
@@ -17,17 +43,74 @@ export async function loadProfile(file: string): Promise<TestProfile> {
   return parseProfile(text, file);
 }
 
+/** What the judgement needs of one analysed channel. */
+export function spectrumOf(c: ChannelAnalysis, a: RecordingAnalysis): SpectrumUnderTest {
+  const s = a.settings;
+  return {
+    name: c.name, frequencyHz: c.psd.frequencyHz, psd: c.psd.psd, dof: c.psd.dof, lineSpacingHz: c.psd.lineSpacingHz,
+    sampleRateHz: a.input.sampleRateHz, durationS: a.input.durationS, window: s.window, segmentLength: s.segmentLength, detrend: s.detrend, confidence: s.confidence,
+  };
+}
+
+/**
+ * One control spectrum from several channels: the line-by-line average or the largest. Its DOF is
+ * taken as the smallest of the channels' (the channels of one test are strongly correlated, so the
+ * average is worth no more than one channel: conservative). With the largest, the upper tests are
+ * shared by k estimates (decisionRule.ts ruleLevels).
+ */
+export function combineSpectra(list: SpectrumUnderTest[], rule: ControlRule): SpectrumUnderTest {
+  const first = list[0]!;
+  const psd = new Float64Array(first.psd.length);
+  for (let i = 0; i < psd.length; i++) {
+    let v = rule === "average" ? 0 : -Infinity;
+    for (const s of list) v = rule === "average" ? v + s.psd[i]! / list.length : Math.max(v, s.psd[i]!);
+    psd[i] = v;
+  }
+  return {
+    ...first, name: `${rule} of ${list.map((s) => s.name).join(", ")}`, psd, dof: Math.min(...list.map((s) => s.dof)),
+    upperSharedBy: rule === "largest" ? list.length : 1,
+  };
+}
+
+function controlPositions(a: RecordingAnalysis, wanted: string[]): number[] {
+  const out = wanted.map((w) => {
+    const i = a.channels.findIndex((c) => c.name.toLowerCase() === w.toLowerCase() || (/^\d+$/.test(w) && c.position === Number(w)));
+    if (i < 0) {
+      throw new InputError("CHANNEL_NOT_FOUND", { file: a.input.file, option: "control", expected: `an analysed channel: ${a.channels.map((c) => `${c.position}=${c.name}`).join(", ")}`, received: quoted(w) });
+    }
+    return i;
+  });
+  if (new Set(out).size !== out.length) throw new InputError("OPTION_INVALID", { option: "control", expected: "each control channel once", received: wanted.join(",") });
+  return out;
+}
+
 /**
  * Analyse a recording at the profile's resolution (unless the options set one) and in the profile's
- * units, then judge every channel against the profile. The amplitude histogram (for the report) is
- * built unless `histogram: false`.
+ * units, then judge every channel against the profile, or the control channels as one spectrum. The
+ * amplitude histogram (for the report) is built unless `histogram: false`.
  */
-export async function checkRecording(file: string, profile: TestProfile, options: AnalysisOptions = {}): Promise<CheckResult> {
+export async function checkRecording(file: string, profile: TestProfile, options: CheckOptions = {}): Promise<CheckResult> {
   const resolutionHz = options.segmentLength === undefined && options.resolutionHz === undefined ? profile.resolutionHz : options.resolutionHz;
   if (options.resultUnits !== undefined && options.resultUnits !== profile.units) {
-    throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: `the profile's unit ${profile.units} (or no --result-units)`, received: options.resultUnits });
+    throw new InputError("OPTION_CONFLICT", { option: "resultUnits", expected: `the profile's unit ${profile.units} (or none)`, received: options.resultUnits });
   }
-  const analysis = await analyzeRecording(file, { ...options, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true });
-  const channels = analysis.channels.map((c) => checkChannel(c, profile, analysis.settings.confidence));
-  return { verdict: overallVerdict(channels.map((c) => c.verdict)), analysis, profile, channels };
+  if (options.control && !CONTROL_RULES.includes(options.control.rule)) {
+    throw new InputError("OPTION_INVALID", { option: "control.rule", expected: CONTROL_RULES.join(" or "), received: String(options.control.rule) });
+  }
+  // Control channels are always analysed, with any channels asked for besides.
+  const channels = options.control && options.channels?.length ? [...new Set([...options.channels, ...options.control.channels])] : options.channels;
+  const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true });
+  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum(spectrumOf(c, analysis), profile), c.doubtFindings));
+  if (!options.control) {
+    return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
+  }
+  const pos = controlPositions(analysis, options.control.channels);
+  const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
+  const doubts = pos.flatMap((i) => analysis.channels[i]!.doubtFindings.map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
+  const judgement = withDoubts(judgeSpectrum(combined, profile), doubts);
+  return {
+    verdict: judgement.verdict, analysis, profile, channels: judged,
+    roles: analysis.channels.map((_, i) => (pos.includes(i) ? "control" : "monitor")),
+    control: { rule: options.control.rule, channels: pos.map((i) => analysis.channels[i]!.name), judgement },
+  };
 }

@@ -4,7 +4,7 @@ import { Worker } from "node:worker_threads";
 import type { AnalysisOptions, RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { InputError } from "../errors.js";
-import type { CheckResult } from "../report/checkReport.js";
+import type { CheckOptions, CheckResult } from "../checkRecording.js";
 
 /**
  * Runs one analysis per recording on a pool of worker threads (node:worker_threads: one message
@@ -15,7 +15,7 @@ import type { CheckResult } from "../report/checkReport.js";
 export interface BatchJob {
   id: number;
   file: string;
-  options: Omit<AnalysisOptions, "onProgress">;
+  options: Omit<CheckOptions, "onProgress">;
   profile?: TestProfile | undefined;
 }
 
@@ -29,7 +29,7 @@ export type Outcome<T> = { file: string; ok: true; result: T } | { file: string;
 const WORKER = new URL("./batchWorker.js", import.meta.url);
 
 export async function runBatch<T extends RecordingAnalysis | CheckResult>(
-  files: string[], options: Omit<AnalysisOptions, "onProgress">, profile: TestProfile | undefined, jobs: number,
+  files: string[], options: Omit<CheckOptions, "onProgress">, profile: TestProfile | undefined, jobs: number,
   onOutcome: (o: Outcome<T>, index: number) => void, onProgress?: (bytesDone: number) => void,
 ): Promise<void> {
   const useWorkers = jobs > 1 && files.length > 1 && existsSync(fileURLToPath(WORKER));

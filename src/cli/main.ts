@@ -5,18 +5,21 @@ import { Command, CommanderError } from "commander";
 import type { RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { EXIT, InputError } from "../errors.js";
-import type { CheckResult } from "../report/checkReport.js";
+import type { CheckOptions, CheckResult } from "../checkRecording.js";
 import { fixed, sig, signedDb, table } from "../report/format.js";
 import { psdCsv, psdJson, toolInfo } from "../report/psdJson.js";
 import { inspectText, psdText } from "../report/psdText.js";
+import { RULE_SUMMARY, VERDICT_MEANING } from "../report/ruleText.js";
 import { writeAtomic } from "../report/writeAtomic.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
 import type { Outcome } from "./batch.js";
 import { expandFiles } from "./fileList.js";
-import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, choice, numberOption, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
-import { addQueueCommands } from "./queue.js";
+import { registerRespond } from "./respond.js";
+import { registerTransfer } from "./transfer.js";
+import { registerQueue } from "./queue.js";
 
 // Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
 // load on first use, so that a plain `psd` starts fast.
@@ -50,6 +53,20 @@ const processIo: CliIo = {
   readStdin: readProcessStdin,
   env: process.env,
 };
+
+/** Text folded at 100 columns, each line after the first indented by `indent` plus two spaces. */
+function wrap(text: string, indent: string): string {
+  const out: string[] = [];
+  let line = indent;
+  for (const word of text.split(" ")) {
+    if (line.trim() !== "" && line.length + word.length + 1 > 100) {
+      out.push(line);
+      line = `${indent}  ${word}`;
+    } else line += line.trim() === "" ? word : ` ${word}`;
+  }
+  out.push(line);
+  return out.join("\n");
+}
 
 /** Thrown by an action to end with an exit code after its output is written. */
 class Exit extends Error {
@@ -117,7 +134,7 @@ export function buildProgram(io: CliIo): Command {
 
   /** Several recordings on the worker pool: JSON Lines or a summary table, exit code of the worst outcome. */
   async function many<T extends RecordingAnalysis | CheckResult>(
-    files: string[], o: ParsedCommon & BatchFlags, profile: TestProfile | undefined,
+    files: string[], o: ParsedCommon & BatchFlags & { control?: CheckOptions["control"] }, profile: TestProfile | undefined,
     code: (r: T) => number, summaryRow: (r: T) => string[][], header: string[], jsonOf: (r: T) => unknown,
   ): Promise<number> {
     const progress = progressFor(o);
@@ -128,7 +145,7 @@ export function buildProgram(io: CliIo): Command {
     let count = 0;
     const { runBatch } = await batch();
     await runBatch<T>(
-      files, analysisOptions(o), profile, o.jobs ?? availableParallelism(),
+      files, { ...analysisOptions(o), control: o.control }, profile, o.jobs ?? availableParallelism(),
       (out: Outcome<T>) => {
         count++;
         if (!out.ok) {
@@ -194,12 +211,16 @@ export function buildProgram(io: CliIo): Command {
       io.stdout(o.json ? JSON.stringify(profileJson(p, VERSION)) + "\n" : profileText(p, VERSION));
     });
 
-  addBatchOptions(addSpectrumOptions(addReadingOptions(program.command("check").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("judge recordings against a profile: pass (exit 0), fail (1), inconclusive (3)"))))
+  addBatchOptions(addSpectrumOptions(addReadingOptions(program.command("check").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("judge recordings against a profile: pass (exit 0), fail (1), inconclusive (3)")), "the profile's resolutionHz, else 4096"))
     .requiredOption("-p, --profile <file>", "the required profile (JSON, YAML or CSV)")
+    .option("--control <channels>", "judge these channels (names or positions, comma-separated) as one control spectrum; the others are monitoring channels, shown and not judged")
+    .option("--control-rule <rule>", "how the control channels make one spectrum: average (mean PSD at each line) or largest (the highest at each line)", choice("--control-rule", ["average", "largest"]), "average")
+    .addHelpText("after", `\n${wrap(`Decision rule: ${RULE_SUMMARY}`, "")}\n\nVerdicts:\n${(["pass", "fail", "inconclusive"] as const).map((v) => wrap(`${v} (exit ${v === "pass" ? 0 : v === "fail" ? 1 : 3}): ${VERDICT_MEANING[v]}.`, "  ")).join("\n")}\n`)
     .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
     .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
-    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string }) => {
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest" }) => {
       const { loadProfile, checkRecording } = await checking();
+      const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
       const { checkHtml } = await html();
       const { checkJson, checkText } = await checkReport();
       const { worstFirst } = await compliance();
@@ -221,14 +242,14 @@ export function buildProgram(io: CliIo): Command {
         const reports: Promise<void>[] = [];
         let reportError: unknown;
         const code = await many<CheckResult>(
-          files, { ...o, histogram: wantsReport }, profile, verdictCode,
+          files, { ...o, histogram: wantsReport, control }, profile, verdictCode,
           (r) => {
             if (o.reportDir !== undefined) reports.push(writeReport(r).catch((e: unknown) => void (reportError ??= e)));
             return r.channels.map((c, i) => {
               const ch = r.analysis.channels[i]!;
               const w = worstFirst(c.excursions)[0];
               return [r.analysis.input.file, ch.name, `${sig(c.rms.measured, 4)} ${accelLabel(ch.units)}`, signedDb(c.rms.deviationDb), fixed(c.dof.achieved, 1), c.verdict,
-                w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.clear ? "clear" : "marginal"}` : "none"];
+                w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.shown ? "shown" : "not shown"}` : "none"];
             });
           },
           ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION),
@@ -237,7 +258,7 @@ export function buildProgram(io: CliIo): Command {
         if (reportError !== undefined) throw reportError;
         throw new Exit(code);
       }
-      const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, onProgress }));
+      const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, control, onProgress }));
       if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r);
       io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION)) + "\n" : checkText(r, VERSION));
       throw new Exit(verdictCode(r));
@@ -275,7 +296,7 @@ export function buildProgram(io: CliIo): Command {
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
     });
 
-  addQueueCommands(program, io);
+  for (const register of [registerTransfer, registerRespond, registerQueue]) register(program, io);
 
   return program;
 }

@@ -22,7 +22,7 @@ function unitOption(option: string) {
   };
 }
 
-function choice<T extends string>(option: string, values: readonly T[]) {
+export function choice<T extends string>(option: string, values: readonly T[]) {
   return (text: string): T => {
     const t = text.toLowerCase() as T;
     if (!values.includes(t)) throw new InputError("OPTION_INVALID", { option, expected: `one of ${values.join(", ")}`, received: JSON.stringify(text) });
@@ -47,10 +47,10 @@ export function addReadingOptions(cmd: Command): Command {
 }
 
 /** Options of the Welch estimate (shared by psd and check). */
-export function addSpectrumOptions(cmd: Command): Command {
+export function addSpectrumOptions(cmd: Command, segmentDefault = "4096"): Command {
   return cmd
     .option("-w, --window <name>", "hann, hamming, blackman-harris, flattop or rectangular (default hann)", choice<WindowName>("--window", ["hann", "hamming", "blackman-harris", "flattop", "rectangular"]))
-    .option("-s, --segment <n>", "samples per segment, a power of two (default 4096)", numberOption("--segment", (x) => Number.isInteger(x), "a power of two, e.g. 4096"))
+    .option("-s, --segment <n>", `samples per segment, a power of two (default ${segmentDefault})`, numberOption("--segment", (x) => Number.isInteger(x), "a power of two, e.g. 4096"))
     .option("-r, --resolution <hz>", "line spacing wanted; picks the smallest power-of-two segment that gives it", numberOption("--resolution", (x) => x > 0, "a line spacing in Hz above 0"))
     .option("--overlap <f>", "overlap of segments as a fraction, 0 <= f < 1 (default 0.5)", numberOption("--overlap", () => true, "a fraction 0 <= F < 1"))
     .option("--detrend <how>", "per segment: none, mean or linear (default mean)", choice<Detrend>("--detrend", ["none", "mean", "linear"]))

@@ -25,7 +25,7 @@ const dbOption = (cmd: Command) =>
  * `psdgate queue add|work|status|results`: recordings as jobs in a PostgreSQL queue (pg-boss), worked
  * by any number of `queue work` processes on any number of machines, results kept in the database.
  */
-export function addQueueCommands(program: Command, io: CliIo): void {
+export function registerQueue(program: Command, io: CliIo): void {
   const env = io.env ?? {};
   const readStdin = io.readStdin ?? (async () => "");
   const queue = program.command("queue").description("recordings as jobs in a PostgreSQL queue, worked by any number of machines; results kept in the database");

@@ -35,6 +35,8 @@ const ProfileSchema = z.object({
     bands: z.array(BandSchema, { error: "a list of tolerance bands" }).min(1, { message: "at least one tolerance band" }),
     rmsDb: z.number({ error: "an RMS tolerance in dB (a number > 0)" }).positive({ message: "an RMS tolerance in dB above 0" }).optional(),
     rmsPercent: z.number({ error: "an RMS tolerance in percent (a number)" }).positive().max(99, { message: "an RMS tolerance below 100 %" }).optional(),
+    allowedOutsidePercent: z.number({ error: "a share of the lines in percent (a number from 0 to 50)" }).min(0, { message: "a share from 0 to 50 %" }).max(50, { message: "a share from 0 to 50 %" }).optional(),
+    outerLimits: z.array(BandSchema, { error: "a list of outer-limit bands" }).min(1, { message: "at least one outer-limit band" }).optional(),
   }, { error: "a tolerance object with bands" }),
   minDof: positive("a minimum number of degrees of freedom").optional(),
   resolutionHz: positive("an analysis resolution in Hz").optional(),
@@ -78,6 +80,12 @@ export interface TestProfile {
   minDof: number | undefined;
   resolutionHz: number | undefined;
   durationS: number | undefined;
+  /** Percent of the judged lines that may lie outside the tolerance band (0 when not given). */
+  allowedOutsidePercent: number | undefined;
+  /** Outer limits no line may cross, at least as wide as the tolerance band everywhere. */
+  outerBands: ToleranceBand[] | undefined;
+  /** Values the file did not give and psdgate supplied (e.g. a CSV profile's tolerance), each said in words. */
+  defaultsApplied: string[];
 }
 
 const LOG10_2 = Math.log10(2);
@@ -108,12 +116,24 @@ export function profileLevel(p: Pick<TestProfile, "segments">, f: number): numbe
   return seg.g1 * Math.pow(f / seg.f1, seg.exponent);
 }
 
+/** Integral of the profile over [f1, f2] (clipped to its range), segment by segment in closed form. */
+export function profileMeanSquare(p: Pick<TestProfile, "segments">, f1: number, f2: number): number {
+  let area = 0;
+  for (const s of p.segments) {
+    const a = Math.max(f1, s.f1);
+    const b = Math.min(f2, s.f2);
+    if (b <= a) continue;
+    area += powerLawArea(a, b, s.g1 * Math.pow(a / s.f1, s.exponent), s.exponent);
+  }
+  return area;
+}
+
 function fail(file: string, keyPath: string, expected: string, received?: string): never {
   throw new InputError("PROFILE_INVALID", { file, keyPath, expected, received });
 }
 
 /** Build the normalised profile from a validated document. */
-export function normalizeProfile(doc: ProfileDocument, file: string, sha256: string): TestProfile {
+export function normalizeProfile(doc: ProfileDocument, file: string, sha256: string, defaultsApplied?: string[]): TestProfile {
   const pts = doc.points;
   const breakpoints: { hz: number; level: number }[] = [];
   for (let i = 0; i < pts.length; i++) {
@@ -138,17 +158,20 @@ export function normalizeProfile(doc: ProfileDocument, file: string, sha256: str
   const f0 = breakpoints[0]!.hz;
   const fN = breakpoints[breakpoints.length - 1]!.hz;
 
-  const bands = [...doc.tolerance.bands].map((b, i) => ({ ...b, i })).sort((a, b) => a.fromHz - b.fromHz);
-  for (const b of bands) if (!(b.toHz > b.fromHz)) fail(file, `tolerance.bands[${b.i}].toHz`, `a frequency above fromHz ${b.fromHz}`, String(b.toHz));
-  if (bands[0]!.fromHz > f0) fail(file, `tolerance.bands[${bands[0]!.i}].fromHz`, `bands that cover the profile from ${f0} Hz`, `a first band from ${bands[0]!.fromHz} Hz`);
-  for (let k = 1; k < bands.length; k++) {
-    const a = bands[k - 1]!;
-    const b = bands[k]!;
-    if (b.fromHz < a.toHz) fail(file, `tolerance.bands[${b.i}].fromHz`, `bands that do not overlap (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
-    if (b.fromHz > a.toHz) fail(file, `tolerance.bands[${b.i}].fromHz`, `bands without gaps (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+  const bands = coveringBands(doc.tolerance.bands, "tolerance.bands", f0, fN, file);
+  const outerBands = doc.tolerance.outerLimits ? coveringBands(doc.tolerance.outerLimits, "tolerance.outerLimits", f0, fN, file) : undefined;
+  if (outerBands) {
+    // Outer limits must lie on or outside the band at every frequency: check at every band edge and midpoint.
+    const probes = [...bands.flatMap((b) => [b.fromHz, b.toHz, (b.fromHz + b.toHz) / 2]), ...outerBands.flatMap((b) => [b.fromHz, b.toHz])];
+    for (const f of probes) {
+      const inner = bands.find((b) => f >= b.fromHz && f <= b.toHz);
+      const o = outerBands.findIndex((b) => f >= b.fromHz && f <= b.toHz);
+      if (!inner || o < 0) continue;
+      if (outerBands[o]!.upperDb < inner.upperDb || outerBands[o]!.lowerDb < inner.lowerDb) {
+        fail(file, `tolerance.outerLimits[${o}]`, `outer limits at least as wide as the tolerance band at ${f} Hz (+${inner.upperDb}/-${inner.lowerDb} dB)`, `+${outerBands[o]!.upperDb}/-${outerBands[o]!.lowerDb} dB`);
+      }
+    }
   }
-  const last = bands[bands.length - 1]!;
-  if (last.toHz < fN) fail(file, `tolerance.bands[${last.i}].toHz`, `bands that cover the profile up to ${fN} Hz`, String(last.toHz));
 
   const t = doc.tolerance;
   if (t.rmsDb !== undefined && t.rmsPercent !== undefined) fail(file, "tolerance", "either rmsDb or rmsPercent, not both", "both");
@@ -160,9 +183,26 @@ export function normalizeProfile(doc: ProfileDocument, file: string, sha256: str
   for (const s of segments) area += s.area;
   return {
     title: doc.title, file, sha256, units: doc.units === "g2/Hz" ? "g" : "m/s2", breakpoints, segments, rms: Math.sqrt(area),
-    bands: bands.map(({ fromHz, toHz, upperDb, lowerDb }) => ({ fromHz, toHz, upperDb, lowerDb })),
+    bands,
     rmsToleranceDb, minDof: doc.minDof, resolutionHz: doc.resolutionHz, durationS: doc.durationS,
+    allowedOutsidePercent: t.allowedOutsidePercent, outerBands, defaultsApplied: defaultsApplied ?? [],
   };
+}
+
+/** Bands sorted by frequency that cover f0..fN without gaps or overlaps; errors name the key path. */
+function coveringBands(list: ProfileDocument["tolerance"]["bands"], key: string, f0: number, fN: number, file: string): ToleranceBand[] {
+  const bands = [...list].map((b, i) => ({ ...b, i })).sort((a, b) => a.fromHz - b.fromHz);
+  for (const b of bands) if (!(b.toHz > b.fromHz)) fail(file, `${key}[${b.i}].toHz`, `a frequency above fromHz ${b.fromHz}`, String(b.toHz));
+  if (bands[0]!.fromHz > f0) fail(file, `${key}[${bands[0]!.i}].fromHz`, `bands that cover the profile from ${f0} Hz`, `a first band from ${bands[0]!.fromHz} Hz`);
+  for (let k = 1; k < bands.length; k++) {
+    const a = bands[k - 1]!;
+    const b = bands[k]!;
+    if (b.fromHz < a.toHz) fail(file, `${key}[${b.i}].fromHz`, `bands that do not overlap (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+    if (b.fromHz > a.toHz) fail(file, `${key}[${b.i}].fromHz`, `bands without gaps (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+  }
+  const last = bands[bands.length - 1]!;
+  if (last.toHz < fN) fail(file, `${key}[${last.i}].toHz`, `bands that cover the profile up to ${fN} Hz`, String(last.toHz));
+  return bands.map(({ fromHz, toHz, upperDb, lowerDb }) => ({ fromHz, toHz, upperDb, lowerDb }));
 }
 
 function keyPath(path: readonly PropertyKey[]): string {
@@ -194,31 +234,50 @@ export function validateProfileDocument(doc: unknown, file: string): ProfileDocu
   return r.data;
 }
 
-/** Two-column CSV (Hz, level) breakpoints; an optional header may name the unit, e.g. `level [(m/s2)2/Hz]`. */
-function profileFromCsv(text: string, file: string): unknown {
-  const rows = Papa.parse<string[]>(text.replace(/^\ufeff/, ""), { skipEmptyLines: "greedy", comments: "#" }).data;
+/** The tolerance a two-column CSV profile gets, since the format has no place for one (common practice: a ±3 dB band is the widest in general use; ../shared/REFERENCES.md sec. 7). */
+export const CSV_PROFILE_DEFAULTS = { bandDb: 3, rmsDb: 1.5 } as const;
+
+/**
+ * Two-column CSV (Hz, level) breakpoints; an optional header may name the unit, e.g. `level [(m/s2)2/Hz]`.
+ * Comma, semicolon or tab between the fields; with a semicolon or tab, a decimal comma is read too.
+ */
+function profileFromCsv(text: string, file: string): { doc: unknown; defaults: string[] } {
+  const body = text.replace(/^\ufeff/, "");
+  const dataLines = body.split(/\r?\n/).filter((l) => l.trim() !== "" && !l.trim().startsWith("#"));
+  const delimiter = dataLines.some((l) => l.includes(";")) ? ";" : dataLines.some((l) => l.includes("\t")) ? "\t" : ",";
+  const rows = Papa.parse<string[]>(body, { skipEmptyLines: "greedy", comments: "#", delimiter }).data;
+  const num = (f: string) => {
+    const t = f.trim();
+    if (t === "") return NaN;
+    return Number(delimiter !== "," ? t.replace(",", ".") : t);
+  };
   let units = "g2/Hz";
   let start = 0;
-  if (rows[0] && rows[0].some((f) => Number.isNaN(Number(f)))) {
+  if (rows[0] && rows[0].some((f) => Number.isNaN(num(f)))) {
     if (rows[0].join(",").includes("m/s")) units = "(m/s2)2/Hz";
     start = 1;
   }
   const points = rows.slice(start).map((r, i) => {
     if (r.length !== 2) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "2 fields: frequency in Hz, level", received: `${r.length}` });
-    const [hz, level] = r.map((f) => (f.trim() === "" ? NaN : Number(f)));
-    if (!Number.isFinite(hz!) || !Number.isFinite(level!)) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "two numbers", received: describe(r.join(",")) });
+    const [hz, level] = r.map(num);
+    if (!Number.isFinite(hz!) || !Number.isFinite(level!)) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "two numbers", received: describe(r.join(delimiter)) });
     return { hz: hz!, level: level! };
   });
   const f0 = points[0]?.hz ?? 1;
   const fN = points[points.length - 1]?.hz ?? 2;
-  return { title: file.replace(/^.*\//, ""), units, points, tolerance: { bands: [{ fromHz: f0, toHz: fN, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 } };
+  const d = CSV_PROFILE_DEFAULTS;
+  return {
+    doc: { title: file.replace(/^.*\//, ""), units, points, tolerance: { bands: [{ fromHz: f0, toHz: fN, upperDb: d.bandDb, lowerDb: d.bandDb }], rmsDb: d.rmsDb } },
+    defaults: [`tolerance band ±${d.bandDb} dB and RMS tolerance ±${d.rmsDb} dB (a CSV profile has no place for them; use a JSON or YAML profile to set them)`, "no minimum DOF, resolution or duration"],
+  };
 }
 
 /** Parse a profile from its text (JSON, YAML or CSV by extension). */
 export function parseProfile(text: string, file: string): TestProfile {
   const sha = createHash("sha256").update(text).digest("hex");
   let doc: unknown;
-  if (/\.csv$/i.test(file)) doc = profileFromCsv(text, file);
+  let defaults: string[] = [];
+  if (/\.csv$/i.test(file)) ({ doc, defaults } = profileFromCsv(text, file));
   else if (/\.ya?ml$/i.test(file)) {
     try {
       doc = parseYaml(text);
@@ -249,7 +308,7 @@ export function parseProfile(text: string, file: string): TestProfile {
       throw new InputError("PROFILE_SYNTAX", { file, line, column, expected: "valid JSON", received: msg.replace(/ in JSON at position \d+.*$/, "").replace(/, (\.\.\.)?"[^]*$/, "") });
     }
   }
-  return normalizeProfile(validateProfileDocument(doc, file), file, sha);
+  return normalizeProfile(validateProfileDocument(doc, file), file, sha, defaults);
 }
 
 export interface ProfileMotion {

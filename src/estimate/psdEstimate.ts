@@ -21,6 +21,14 @@ export interface PsdEstimate {
   /** sqrt(sum P df). */
   rmsPsd: number;
   windowedMeanSquare: number;
+  /** Plain mean square of the detrended segments, and the record's own standard error of the gap to
+   * windowedMeanSquare (batch means; see WelchSums). */
+  segmentMeanSquare: number;
+  meanSquareGapError: number;
+  meanSquareGapBatches: number;
+  /** Kurtosis and crest factor of the detrended segments (WelchSums). */
+  detrendedKurtosis: number;
+  detrendedCrestFactor: number;
   lineSpacingHz: number;
 }
 
@@ -62,6 +70,11 @@ export function completePsd(sums: WelchSums, window: Float64Array, s: ResolvedWe
     randomError: dof > 0 ? Math.sqrt(2 / dof) : NaN,
     rmsPsd: Math.sqrt(area * df),
     windowedMeanSquare: sums.windowedMeanSquare,
+    segmentMeanSquare: sums.segmentMeanSquare,
+    meanSquareGapError: sums.meanSquareGapError,
+    meanSquareGapBatches: sums.meanSquareGapBatches,
+    detrendedKurtosis: sums.detrendedKurtosis,
+    detrendedCrestFactor: sums.detrendedCrestFactor,
     lineSpacingHz: df,
   };
 }
@@ -75,14 +88,32 @@ export function welchPsd(x: Float64Array, sampleRateHz: number, options: WelchOp
   return { ...completePsd(acc.finish(sampleRateHz), w, s, sampleRateHz), settings: s };
 }
 
-/** sqrt(sum of P df) over lines with fmin <= f <= fmax. */
-export function bandRms(p: PsdEstimate, fminHz: number, fmaxHz: number): number {
+/**
+ * Mean square in the band [fmin, fmax]: each line stands for the cell f_k +- df/2 (DC and Nyquist for
+ * the half cell inside 0..fs/2, at twice their stored density, since their single-sided value is not
+ * doubled), and only the part of each cell inside the band counts. So a band that ends mid-cell, or a
+ * one-line band, gets its true width, not a whole line at each end.
+ */
+export function bandMeanSquare(p: Pick<PsdEstimate, "psd" | "frequencyHz" | "lineSpacingHz">, fminHz: number, fmaxHz: number): number {
+  const df = p.lineSpacingHz;
+  const last = p.psd.length - 1;
+  const top = last * df;
   let s = 0;
-  for (let k = 0; k < p.psd.length; k++) {
-    const f = p.frequencyHz[k]!;
-    if (f >= fminHz && f <= fmaxHz) s += p.psd[k]!;
+  const k0 = Math.max(0, Math.floor(fminHz / df - 0.5));
+  const k1 = Math.min(last, Math.ceil(fmaxHz / df + 0.5));
+  for (let k = k0; k <= k1; k++) {
+    const lo = Math.max(0, (k - 0.5) * df, fminHz);
+    const hi = Math.min(top, (k + 0.5) * df, fmaxHz);
+    if (hi <= lo) continue;
+    const density = k === 0 || k === last ? 2 * p.psd[k]! : p.psd[k]!;
+    s += density * (hi - lo);
   }
-  return Math.sqrt(s * p.lineSpacingHz);
+  return s;
+}
+
+/** sqrt(bandMeanSquare): the RMS in [fmin, fmax]. */
+export function bandRms(p: Pick<PsdEstimate, "psd" | "frequencyHz" | "lineSpacingHz">, fminHz: number, fmaxHz: number): number {
+  return Math.sqrt(bandMeanSquare(p, fminHz, fmaxHz));
 }
 
 export interface SpectralPeak {

@@ -30,6 +30,63 @@ export interface WelchSums {
   psd: Float64Array;
   /** Average over segments of sum((detrended x * w)^2) / sum(w^2): what sum(P) df must equal exactly. */
   windowedMeanSquare: number;
+  /** Average over segments of the plain mean square of the detrended segment (no window). */
+  segmentMeanSquare: number;
+  /**
+   * Standard error of windowedMeanSquare - segmentMeanSquare from the record itself, by batch means
+   * over consecutive segments (so overlap and slow correlation are in it); NaN with fewer than 4 batches.
+   */
+  meanSquareGapError: number;
+  /** Batches behind meanSquareGapError. */
+  meanSquareGapBatches: number;
+  /**
+   * Amplitude figures of the detrended segments (so drift slower than the first line is not in them):
+   * Pearson kurtosis of all their samples and the crest factor max |d| / rms(d).
+   */
+  detrendedKurtosis: number;
+  detrendedCrestFactor: number;
+}
+
+const MAX_BATCHES = 64;
+
+/**
+ * Batch means of a stream of per-segment values in bounded memory: at most MAX_BATCHES batches; when
+ * they are full, neighbours merge and the batch size doubles (batch means method: Schmeiser 1982,
+ * Operations Research 30(3):556-568). The spread of the batch means estimates the standard error of
+ * the overall mean even when neighbouring values are correlated, as overlapping segments are.
+ */
+class BatchMeans {
+  private readonly sums = new Float64Array(MAX_BATCHES);
+  private size = 1;
+  private full = 0;
+  private partial = 0;
+  private partialCount = 0;
+
+  push(v: number): void {
+    this.partial += v;
+    this.partialCount++;
+    if (this.partialCount < this.size) return;
+    this.sums[this.full++] = this.partial;
+    this.partial = 0;
+    this.partialCount = 0;
+    if (this.full === MAX_BATCHES) {
+      for (let i = 0; i < MAX_BATCHES / 2; i++) this.sums[i] = this.sums[2 * i]! + this.sums[2 * i + 1]!;
+      this.full = MAX_BATCHES / 2;
+      this.size *= 2;
+    }
+  }
+
+  /** Standard error of the mean of all values pushed, from the complete batches; NaN below 4. */
+  standardError(): { error: number; batches: number } {
+    const b = this.full;
+    if (b < 4) return { error: NaN, batches: b };
+    let m = 0;
+    for (let i = 0; i < b; i++) m += this.sums[i]! / this.size;
+    m /= b;
+    let v = 0;
+    for (let i = 0; i < b; i++) v += (this.sums[i]! / this.size - m) ** 2;
+    return { error: Math.sqrt(v / (b - 1) / b), batches: b };
+  }
 }
 
 export class WelchAccumulator {
@@ -41,6 +98,8 @@ export class WelchAccumulator {
   private readonly segment: Float64Array;
   private readonly sum: Float64Array;
   private readonly sumW2: number;
+  /** Sum of squares of the current segment, written by sumOf. */
+  private readonly sq = new Float64Array(1);
   private fill = 0;
   /** Samples still to drop before the next segment starts (hop larger than the segment). */
   private skip = 0;
@@ -48,6 +107,10 @@ export class WelchAccumulator {
   private skipped = 0;
   private samples = 0;
   private weightedMs = 0;
+  private plainMs = 0;
+  private fourth = 0;
+  private peak = 0;
+  private readonly gaps = new BatchMeans();
 
   /** `power` may be shared by the accumulators of one segment length (it holds only scratch space). */
   constructor(settings: WelchSettings, power?: SegmentPower) {
@@ -95,7 +158,7 @@ export class WelchAccumulator {
     const n = this.n;
     const x = this.segment;
     // Sums run on four accumulators: one chain of dependent additions would wait on every add.
-    const sum = sumOf(x, n);
+    const sum = sumOf(x, n, this.sq);
     if (!Number.isFinite(sum)) {
       this.skipped++;
       return;
@@ -117,14 +180,36 @@ export class WelchAccumulator {
     }
     // y[i] = (x[i] - mean - slope (i - mid)) w[i], applied as the kernel loads the segment.
     const ms = this.power.add(x, this.window, mean - slope * mid, slope, this.sum);
+    // Plain residual mean square of the same detrended segment: sum x^2 - n mean^2 - slope^2 sum (i - mid)^2;
+    // and its fourth power and peak, for the amplitude gates.
+    const plain = Math.max(0, this.sq[0]! - n * mean * mean - (slope * slope * (n * (n * n - 1))) / 12) / n;
+    this.fourthAndPeak(x, mean - slope * mid, slope);
     this.weightedMs += ms / this.sumW2;
+    this.plainMs += plain;
+    this.gaps.push(ms / this.sumW2 - plain);
     this.segments++;
+  }
+
+  /** Sum of d^4 and the largest |d| for d = x - (offset + slope i), one pass over the segment. */
+  private fourthAndPeak(x: Float64Array, offset: number, slope: number): void {
+    let s4 = 0;
+    let pk = this.peak;
+    for (let i = 0; i < this.n; i++) {
+      const d = x[i]! - offset - slope * i;
+      const d2 = d * d;
+      s4 += d2 * d2;
+      const a = d < 0 ? -d : d;
+      if (a > pk) pk = a;
+    }
+    this.fourth += s4 / this.n;
+    this.peak = pk;
   }
 
   finish(sampleRateHz: number): WelchSums {
     const half = this.n / 2;
     const psd = new Float64Array(half + 1);
     const k = this.segments;
+    const gap = this.gaps.standardError();
     if (k > 0) {
       const scale = 1 / (sampleRateHz * this.sumW2 * k);
       for (let i = 0; i <= half; i++) psd[i] = this.sum[i]! * scale * (i === 0 || i === half ? 1 : 2);
@@ -135,23 +220,40 @@ export class WelchAccumulator {
       samples: this.samples,
       psd,
       windowedMeanSquare: k > 0 ? this.weightedMs / k : NaN,
+      segmentMeanSquare: k > 0 ? this.plainMs / k : NaN,
+      meanSquareGapError: gap.error,
+      meanSquareGapBatches: gap.batches,
+      detrendedKurtosis: k > 0 && this.plainMs > 0 ? (this.fourth / k) / (this.plainMs / k) ** 2 : NaN,
+      detrendedCrestFactor: k > 0 && this.plainMs > 0 ? this.peak / Math.sqrt(this.plainMs / k) : NaN,
     };
   }
 }
 
-/** Sum of x[0..n), on four accumulators. */
-function sumOf(x: Float64Array, n: number): number {
+/** Sum of x[0..n), on four accumulators; the sum of squares goes to sq[0]. */
+function sumOf(x: Float64Array, n: number, sq: Float64Array): number {
   let a = 0;
   let b = 0;
   let c = 0;
   let d = 0;
+  let qa = 0;
+  let qb = 0;
   let i = 0;
   for (; i + 3 < n; i += 4) {
-    a += x[i]!;
-    b += x[i + 1]!;
-    c += x[i + 2]!;
-    d += x[i + 3]!;
+    const x0 = x[i]!;
+    const x1 = x[i + 1]!;
+    const x2 = x[i + 2]!;
+    const x3 = x[i + 3]!;
+    a += x0;
+    b += x1;
+    c += x2;
+    d += x3;
+    qa += x0 * x0 + x2 * x2;
+    qb += x1 * x1 + x3 * x3;
   }
-  for (; i < n; i++) a += x[i]!;
+  for (; i < n; i++) {
+    a += x[i]!;
+    qa += x[i]! * x[i]!;
+  }
+  sq[0] = qa + qb;
   return a + b + (c + d);
 }

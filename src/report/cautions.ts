@@ -6,3 +6,11 @@ export const SHAKER_CAUTION =
 export const VERDICT_CAUTION =
   "This verdict compares a measured spectrum with the stated profile and tolerances only. It does not replace the governing test standard, " +
   "the lab's approved procedure or the judgement of a qualified engineer; a verdict that feeds a safety decision needs their review and signature.";
+
+export const STROKE_CAUTION =
+  "The stroke figure is an estimate from the acceleration spectrum alone (peak-to-peak taken as 6 x RMS displacement, a ±3 sigma excursion: common practice; " +
+  "the lowest frequency integrated dominates it). The exciter's and fixture's rated limits, with margin, the governing test standard and the lab's procedure decide whether a test may run.";
+
+export const RESPONSE_CAUTION =
+  "Single-degree-of-freedom estimates: a real structure has several modes, nonlinear damping and stress concentrations. Use these figures to compare environments, " +
+  "not as a structural qualification; the governing standard and a qualified engineer decide.";

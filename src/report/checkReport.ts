@@ -1,4 +1,5 @@
-import type { RecordingAnalysis } from "../analyzeRecording.js";
+import type { ChannelAnalysis } from "../analyzeRecording.js";
+import type { CheckResult } from "../checkRecording.js";
 import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { accelLabel, densityAscii } from "../units.js";
@@ -7,26 +8,36 @@ import { fixed, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
+import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 
-export interface CheckResult {
-  verdict: Verdict;
-  analysis: RecordingAnalysis;
-  profile: TestProfile;
-  channels: ChannelCompliance[];
-}
+export type { CheckResult };
 
 const WORD: Record<Verdict, string> = { pass: "PASS", fail: "FAIL", inconclusive: "INCONCLUSIVE" };
-
-/** Clear or marginal, and why (the confidence interval of the worst line against the limit). */
-export function excursionJudgement(e: Excursion): string {
-  return e.clear
-    ? `clear (whole confidence interval beyond the limit${e.clearAmongAllLines ? ", even allowing for the number of lines tested" : "; chance among many lines could still explain it"})`
-    : `marginal (interval straddles the limit${e.longerRecordFactor ? `; a record ${fixed(e.longerRecordFactor, 1)}x longer would tell` : ""})`;
-}
 
 export function excursionText(e: Excursion): string {
   const range = e.fromHz === e.toHz ? `${sig(e.fromHz, 5)} Hz` : `${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz`;
   return `${range}: ${e.direction} by up to ${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz, limit ${signedDb(e.limitDb)}, ${excursionJudgement(e)}`;
+}
+
+function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string): string[] {
+  const u = accelLabel(ch.units);
+  const out = [`${label}: ${WORD[c.verdict]}`];
+  for (const reason of c.reasons) out.push(`  because    ${reason}`);
+  const tol = c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
+  out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
+  out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
+  out.push(`  rule       ${ruleLine(c)}`);
+  const un = c.unjudged;
+  if (un.edge + un.detrend + un.aboveRecord > 0) {
+    out.push(`  unjudged   ${[un.edge ? `${un.edge} line(s) at the profile's ends (the window's kernel reaches past them)` : "", un.detrend ? `${un.detrend} line(s) biased by detrending` : "", un.aboveRecord ? `${un.aboveRecord} line(s) above the record's Nyquist frequency` : ""].filter(Boolean).join(", ")}`);
+  }
+  const shown = worstFirst(c.excursions).slice(0, 8);
+  if (shown.length === 0) out.push(`  excursions none: ${c.lines.length} lines checked`);
+  else {
+    out.push(`  excursions ${c.excursions.length} (worst first${c.excursions.length > shown.length ? `, ${shown.length} shown here, all in --json and the report` : ""}):`);
+    for (const e of shown) out.push(`             ${excursionText(e)}`);
+  }
+  return out;
 }
 
 export function checkText(r: CheckResult, version: string): string {
@@ -37,30 +48,55 @@ export function checkText(r: CheckResult, version: string): string {
     ...recordingLines(a),
     `  profile    ${p.file}, sha256 ${p.sha256}`,
     `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS; tolerance ${toleranceSummary(p)}`,
+    ...p.defaultsApplied.map((d) => `             default: ${d}`),
     settingsLine(a),
     "",
-    `VERDICT  ${WORD[r.verdict]}`,
+    `VERDICT  ${WORD[r.verdict]}: ${VERDICT_MEANING[r.verdict]}`,
     "",
   ];
+  if (r.control) {
+    out.push(...judgementLines(r.control.judgement, a.channels[a.channels.findIndex((c) => c.name === r.control!.channels[0])]!, `control (${r.control.rule} of ${r.control.channels.join(", ")})`), "");
+  }
   r.channels.forEach((c, i) => {
     const ch = a.channels[i]!;
-    const u = accelLabel(ch.units);
-    out.push(`channel ${ch.position} "${ch.name}": ${WORD[c.verdict]}`);
-    for (const reason of c.reasons) out.push(`  because    ${reason}`);
-    const tol = c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
-    out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
-    out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required` : ""} (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
-    out.push(`  Parseval   time RMS ${sig(ch.parseval.rmsTime, 4)} ${u}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)} ${u}, ratio ${fixed(ch.parseval.ratio, 4)}`);
-    const shown = worstFirst(c.excursions).slice(0, 8);
-    if (shown.length === 0) out.push(`  excursions none: ${c.lines.length} lines checked`);
-    else {
-      out.push(`  excursions ${c.excursions.length} (worst first${c.excursions.length > shown.length ? `, ${shown.length} shown` : ""}):`);
-      for (const e of shown) out.push(`             ${excursionText(e)}`);
+    const role = r.roles[i];
+    if (role === "monitor") {
+      out.push(`channel ${ch.position} "${ch.name}": monitoring (shown, not judged)`);
+      out.push(`  RMS        ${sig(c.rms.measured, 4)} ${accelLabel(ch.units)} in the profile's range, ${signedDb(c.rms.deviationDb)} from the profile; ${c.lines.filter((l) => l.status !== "within").length} of ${c.lines.length} lines outside the band as measured`);
+    } else if (role === "control") {
+      out.push(`channel ${ch.position} "${ch.name}": control channel`);
+      out.push(`  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`);
+    } else {
+      out.push(...judgementLines(c, ch, `channel ${ch.position} "${ch.name}"`));
+      out.push(`  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`);
     }
     out.push(...findingLines(ch).filter((l) => !l.startsWith("  DOUBT")), "");
   });
-  out.push(`CAUTION: ${VERDICT_CAUTION}`, "");
+  out.push(`RULE: ${RULE_SUMMARY}`, "", `CAUTION: ${VERDICT_CAUTION}`, "");
   return out.join("\n");
+}
+
+function judgementJson(c: ChannelCompliance) {
+  return {
+    verdict: c.verdict,
+    reasons: c.reasons,
+    findings: c.findings,
+    rms: { ...c.rms, upperDb: c.rms.upperDb ?? null, lowerDb: c.rms.lowerDb ?? null },
+    dof: { achieved: c.dof.achieved, required: c.dof.required ?? null, forPower: c.dof.forPower, ok: c.dof.ok },
+    rule: c.rule,
+    unjudged: c.unjudged,
+    excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null })),
+    lines: {
+      frequencyHz: c.lines.map((l) => l.frequencyHz),
+      measured: c.lines.map((l) => finiteOrNull(l.measured)),
+      required: c.lines.map((l) => l.required),
+      deviationDb: c.lines.map((l) => finiteOrNull(l.deviationDb)),
+      upperDb: c.lines.map((l) => l.upperDb),
+      lowerDb: c.lines.map((l) => l.lowerDb),
+      status: c.lines.map((l) => l.status),
+      shown: c.lines.map((l) => l.shown),
+    },
+  };
 }
 
 export function checkJson(r: CheckResult, version: string) {
@@ -70,32 +106,34 @@ export function checkJson(r: CheckResult, version: string) {
     tool: toolInfo(version),
     verdict: r.verdict,
     input: inputJson(a),
-    profile: { file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null },
+    profile: {
+      file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null,
+      resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
+    },
     settings: settingsJson(a),
+    rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict] },
+    control: r.control ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) } : null,
     channels: r.channels.map((c, i) => {
       const ch = a.channels[i]!;
+      const j = judgementJson(c);
       return {
         name: ch.name,
         position: ch.position,
-        verdict: c.verdict,
-        reasons: c.reasons,
-        rms: { ...c.rms, upperDb: c.rms.upperDb ?? null, lowerDb: c.rms.lowerDb ?? null, units: ch.units },
-        dof: { achieved: c.dof.achieved, required: c.dof.required ?? null, ok: c.dof.ok },
+        role: r.roles[i],
+        ...j,
+        verdict: r.roles[i] === "monitor" ? null : j.verdict,
+        rms: { ...j.rms, units: ch.units },
         averages: ch.psd.averages,
-        parseval: { rmsTime: finiteOrNull(ch.parseval.rmsTime), rmsPsd: finiteOrNull(ch.parseval.rmsPsd), ratio: finiteOrNull(ch.parseval.ratio), tolerance: ch.parseval.tolerance, ok: ch.parseval.ok },
-        excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null })),
-        lines: {
-          frequencyHz: c.lines.map((l) => l.frequencyHz),
-          measured: c.lines.map((l) => finiteOrNull(l.measured)),
-          required: c.lines.map((l) => l.required),
-          deviationDb: c.lines.map((l) => finiteOrNull(l.deviationDb)),
-          upperDb: c.lines.map((l) => l.upperDb),
-          lowerDb: c.lines.map((l) => l.lowerDb),
-          status: c.lines.map((l) => l.status),
+        parseval: {
+          rmsTime: finiteOrNull(ch.parseval.rmsTime), rmsPsd: finiteOrNull(ch.parseval.rmsPsd), rmsSegments: finiteOrNull(ch.parseval.rmsSegments),
+          ratio: finiteOrNull(ch.parseval.ratio), tolerance: ch.parseval.tolerance, toleranceFrom: ch.parseval.toleranceFrom, ok: ch.parseval.ok,
+          belowFirstLineShare: finiteOrNull(ch.parseval.belowFirstLineShare),
         },
         stats: statsJson(ch),
         warnings: ch.warnings,
         doubts: ch.doubts,
+        notes: ch.notes,
+        doubtFindings: ch.doubtFindings,
       };
     }),
     caution: VERDICT_CAUTION,

@@ -3,8 +3,8 @@ import { worstFirst, type ChannelCompliance, type Verdict } from "../compare/com
 import { profileLevel } from "../compare/testProfile.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { SHAKER_CAUTION, VERDICT_CAUTION } from "./cautions.js";
-import type { CheckResult } from "./checkReport.js";
-import { excursionJudgement } from "./checkReport.js";
+import type { CheckResult } from "../checkRecording.js";
+import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
@@ -14,9 +14,9 @@ import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
  * network; a Content-Security-Policy forbids any fetch), laid out for A4 and Letter printing.
  */
 const VERDICT_TEXT: Record<Verdict, { word: string; line: string }> = {
-  pass: { word: "PASS", line: "Every channel meets the profile within its tolerance bands, RMS tolerance and statistical requirement." },
-  fail: { word: "FAIL", line: "At least one channel lies outside the profile's tolerance." },
-  inconclusive: { word: "INCONCLUSIVE", line: "The data cannot support a verdict; see the reasons below." },
+  pass: { word: "PASS", line: `Pass: ${VERDICT_MEANING.pass}.` },
+  fail: { word: "FAIL", line: `Fail: ${VERDICT_MEANING.fail}.` },
+  inconclusive: { word: "INCONCLUSIVE", line: `Inconclusive: ${VERDICT_MEANING.inconclusive}.` },
 };
 
 const STYLE = `
@@ -67,7 +67,7 @@ function row(k: string, v: string, cls = ""): string {
   return `<tr><th>${esc(k)}</th><td${cls ? ` class="${cls}"` : ""}>${v}</td></tr>`;
 }
 
-function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckResult, n: number): string {
+function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckResult, n: number, role: CheckResult["roles"][number]): string {
   const p = r.profile;
   const u = accelLabel(c.units);
   const f = c.psd.frequencyHz;
@@ -135,28 +135,42 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
       .map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz</td><td class="num">${signedDb(e.limitDb)}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("")}</table>${comp.excursions.length > 20 ? `<p class="muted">${comp.excursions.length - 20} more in the JSON output.</p>` : ""}`;
   const s = c.stats;
   return `<section class="channel">
-<h2>Channel ${c.position} “${esc(c.name)}” <span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span></h2>
-<ul>${comp.reasons.map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
+<h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel (judged in the control spectrum above)" : "monitoring channel (shown, not judged)"}</span>`}</h2>
+${role === "judged" ? `<ul>${comp.reasons.map((x) => `<li>${esc(x)}</li>`).join("")}</ul>` : ""}
 ${psdPlot}
 ${devPlot}
 <div class="keep"><h3>Levels and statistics</h3>
 <table>
-${row("RMS from the time history", `${sig(c.parseval.rmsTime, 4)} ${u}`, "num")}
+${row("RMS from the time history (mean removed)", `${sig(c.parseval.rmsTime, 4)} ${u}`, "num")}
+${row("RMS of the detrended segments", `${sig(c.parseval.rmsSegments, 4)} ${u}`, "num")}
 ${row("RMS from the PSD (whole band)", `${sig(c.parseval.rmsPsd, 4)} ${u}`, "num")}
-${row("Parseval ratio (PSD / time)", `${fixed(c.parseval.ratio, 4)} (allowed ±${fixed(100 * c.parseval.tolerance, 0)} %)`, "num")}
+${row("Parseval ratio (PSD / segments)", `${fixed(c.parseval.ratio, 4)} (allowed ±${sig(100 * c.parseval.tolerance, 2)} %${c.parseval.toleranceFrom === "record" ? ", from the record's own spread" : ""})`, "num")}
 ${row("RMS in the profile's range, measured", `${sig(comp.rms.measured, 4)} ${u}`, "num")}
 ${row("RMS required", `${sig(comp.rms.required, 4)} ${u}`, "num")}
 ${row("RMS deviation / tolerance", `${signedDb(comp.rms.deviationDb)} / ${tolRms}`, "num")}
-${row("Degrees of freedom", `${fixed(comp.dof.achieved, 1)} achieved${comp.dof.required !== undefined ? `, ${comp.dof.required} required` : ""} (${c.psd.averages} averages)`, "num")}
+${row("Degrees of freedom", `${fixed(comp.dof.achieved, 1)} achieved${comp.dof.required !== undefined ? `, ${comp.dof.required} required by the profile` : ""}, ${comp.dof.forPower} for the rule's power (${c.psd.averages} averages)`, "num")}
+${row("Decision rule here", esc(ruleLine(comp)))}
 ${row("Random error of one line", `±${fixed(100 * c.psd.randomError, 1)} % (1 σ)`, "num")}
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${sig(s.std, 4)} ${u}`, "num")}
 ${row("Minimum / maximum", `${sig(s.min, 4)} / ${sig(s.max, 4)} ${u}`, "num")}
-${row("Crest factor (peak / σ)", fixed(s.crestFactor, 2), "num")}
+${row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num")}
 ${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num")}
 </table></div>
 <div class="keep"><h3>Excursions</h3>${exc}</div>
 <div class="keep">${hist}${h.underflow + h.overflow > 0 ? `<p class="muted">${h.underflow + h.overflow} samples fell outside the histogram's range.</p>` : ""}</div>
 ${c.warnings.length ? `<p class="muted">Notes: ${c.warnings.map(esc).join("; ")}</p>` : ""}
+</section>`;
+}
+
+function controlSection(r: CheckResult): string {
+  const c = r.control!;
+  const j = c.judgement;
+  return `<section class="channel"><h2>Control spectrum: ${esc(c.rule)} of ${c.channels.map(esc).join(", ")} <span class="chip ${j.verdict}">${VERDICT_TEXT[j.verdict].word}</span></h2>
+<ul>${j.reasons.map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
+<table>${row("RMS in the profile's range, measured / required", `${sig(j.rms.measured, 4)} / ${sig(j.rms.required, 4)} (${signedDb(j.rms.deviationDb)})`, "num")}
+${row("Degrees of freedom", `${fixed(j.dof.achieved, 1)} (the smallest of the control channels'), ${j.dof.forPower} for the rule's power`, "num")}
+${row("Decision rule here", esc(ruleLine(j)))}</table>
+<table class="excursions"><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr>${worstFirst(j.excursions).map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz</td><td class="num">${signedDb(e.limitDb)}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("")}</table>
 </section>`;
 }
 
@@ -190,7 +204,10 @@ ${row("Tolerance", esc(toleranceSummary(p)))}
 ${row("Analysis", `Welch PSD, ${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap, detrend ${s.detrend}, ${fixed(100 * s.confidence, 0)} % chi-square bounds${s.scale !== 1 ? `, calibration ×${s.scale}` : ""}`)}
 ${row("Tool", `psdgate ${esc(version)}`)}
 </table>
-${a.channels.map((c, i) => channelSection(c, r.channels[i]!, r, i + 1)).join("\n")}
+${r.control ? controlSection(r) : ""}
+${a.channels.map((c, i) => channelSection(c, r.channels[i]!, r, i + 1, r.roles[i]!)).join("\n")}
+<h2>Decision rule</h2>
+<p>${esc(RULE_SUMMARY)}</p>
 <h2>Cautions</h2>
 <div class="caution">${esc(VERDICT_CAUTION)}</div>
 <div class="caution">${esc(SHAKER_CAUTION)}</div>

@@ -7,7 +7,9 @@ import { toolInfo } from "./psdJson.js";
 export function toleranceSummary(p: TestProfile): string {
   const bands = p.bands.map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`).join(", ");
   const rms = p.rmsToleranceDb ? `, RMS +${fixed(p.rmsToleranceDb.upper, 2)}/-${fixed(p.rmsToleranceDb.lower, 2)} dB` : "";
-  return `${bands}${rms}${p.minDof !== undefined ? `, at least ${p.minDof} DOF` : ""}`;
+  const allow = p.allowedOutsidePercent ? `, ${sig(p.allowedOutsidePercent, 3)} % of lines may lie outside` : "";
+  const outer = p.outerBands ? `; outer limits ${p.outerBands.map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`).join(", ")}` : "";
+  return `${bands}${rms}${allow}${p.minDof !== undefined ? `, at least ${p.minDof} DOF` : ""}${outer}`;
 }
 
 export function profileText(p: TestProfile, version: string): string {
@@ -30,6 +32,7 @@ export function profileText(p: TestProfile, version: string): string {
     `  tolerance  ${toleranceSummary(p)}`,
     ...(p.resolutionHz !== undefined ? [`  analysis   ${p.resolutionHz} Hz resolution`] : []),
     ...(p.durationS !== undefined ? [`  duration   ${p.durationS} s`] : []),
+    ...p.defaultsApplied.map((d) => `  default    ${d}`),
     "",
     `CAUTION: ${SHAKER_CAUTION}`,
     "",
@@ -50,7 +53,8 @@ export function profileJson(p: TestProfile, version: string) {
     velocityRms: { value: m.velocityRms, units: "m/s" },
     displacementRms: { value: m.displacementRms, units: "m" },
     displacementPeakToPeak: { value: m.displacementPeakToPeak, units: "m", rule: "6 x RMS (±3 sigma), common practice" },
-    tolerance: { bands: p.bands, rmsDb: p.rmsToleranceDb ?? null },
+    tolerance: { bands: p.bands, rmsDb: p.rmsToleranceDb ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null },
+    defaultsApplied: p.defaultsApplied,
     minDof: p.minDof ?? null,
     resolutionHz: p.resolutionHz ?? null,
     durationS: p.durationS ?? null,

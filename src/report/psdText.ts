@@ -22,7 +22,7 @@ export function settingsLine(a: RecordingAnalysis): string {
 export function statsLine(c: ChannelAnalysis): string {
   const s = c.stats;
   const u = accelLabel(c.units);
-  return `  samples    mean ${sig(s.mean)} ${u}, std ${sig(s.std)}, min ${sig(s.min)}, max ${sig(s.max)}, crest factor ${fixed(s.crestFactor, 2)}, skewness ${fixed(s.skewness, 3)}, kurtosis ${fixed(s.kurtosis, 3)}`;
+  return `  samples    mean ${sig(s.mean)} ${u}, std ${sig(s.std)}, min ${sig(s.min)}, max ${sig(s.max)}, crest factor ${fixed(s.crestFactor, 2)} (max |x - mean| / std), skewness ${fixed(s.skewness, 3)}, kurtosis ${fixed(s.kurtosis, 3)}`;
 }
 
 export function findingLines(c: ChannelAnalysis): string[] {
@@ -35,7 +35,8 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
   const p = c.psd;
   const lines = [`channel ${c.position} "${c.name}" (${u})`];
   const pv = c.parseval;
-  lines.push(`  RMS        ${sig(pv.rmsTime)} ${u} from the time history, ${sig(pv.rmsPsd)} ${u} from the PSD, ratio ${fixed(pv.ratio, 4)} (${pv.ok ? "agree" : "DISAGREE"} within ±${fixed(100 * pv.tolerance, 0)} %)`);
+  lines.push(`  RMS        ${sig(pv.rmsTime)} ${u} from the time history (trend removed), ${sig(pv.rmsSegments)} ${u} of the detrended segments, ${sig(pv.rmsPsd)} ${u} from the PSD`);
+  lines.push(`  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${pv.ok ? "agree" : "DISAGREE"} within ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""})`);
   if (p.averages > 0) {
     const f = chiSquareIntervalFactors(p.dof, confidence);
     lines.push(`  averages   ${p.averages}, ${fixed(p.dof, 1)} degrees of freedom, each line ±${fixed(100 * p.randomError, 1)} % (1 sigma), ${fixed(100 * confidence, 0)} % bounds ${fixed(dB(f.lower), 2)} / +${fixed(dB(f.upper), 2)} dB`);

@@ -43,7 +43,7 @@ describe("psdgate psd", () => {
   it("prints the human summary: RMS both ways, averages, DOF, peaks, band RMS", async () => {
     const r = await cli("psd", "samples/tern7-flight.csv", "--fmin", "10", "--fmax", "1500");
     expect(r.code).toBe(0);
-    expect(r.stdout).toMatch(/RMS +3\.5\d+ g from the time history, 3\.5\d+ g from the PSD, ratio 1\.00\d+ \(agree/);
+    expect(r.stdout).toMatch(/RMS +3\.5\d+ g from the time history \(trend removed\), 3\.5\d+ g of the detrended segments, 3\.5\d+ g from the PSD\n +Parseval +PSD \/ segments (1\.00|0\.99)\d+ \(agree/);
     expect(r.stdout).toMatch(/averages +\d+, [\d.]+ degrees of freedom/);
     expect(r.stdout).toMatch(/band +10–1500 Hz: RMS/);
     expect(r.stdout).toContain("g²/Hz");
@@ -123,6 +123,7 @@ describe("exit codes and messages", () => {
     ["overlap >= 1", ["psd", "samples/kb210-run.wav", "--overlap", "1"], /option --overlap: expected a fraction 0 <= F < 1/],
     ["confidence outside (0, 1)", ["psd", "samples/kb210-run.wav", "--confidence", "1.5"], /option --confidence: expected a level between 0 and 1/],
     ["fmin >= fmax", ["psd", "samples/kb210-run.wav", "--fmin", "500", "--fmax", "100"], /option --fmin: expected --fmin below --fmax/],
+    ["a band above the record's Nyquist frequency", ["psd", "samples/kb210-run.wav", "--fmin", "3000"], /option --fmin: expected a frequency inside the record's 0–2560 Hz/],
     ["a channel that does not exist", ["psd", "samples/kb210-run.wav", "--channel", "az"], /option --channel: expected a channel name or position: 1=ch1, 2=ch2, received "az"/],
     ["an unknown window", ["psd", "samples/kb210-run.wav", "--window", "kaiser"], /option --window: expected one of hann/],
     ["both --segment and --resolution", ["psd", "samples/kb210-run.wav", "--segment", "1024", "--resolution", "2"], /either --segment or --resolution/],
@@ -160,6 +161,11 @@ describe("exit codes and messages", () => {
   it("--help and --version exit 0", async () => {
     expect((await cli("--help")).code).toBe(0);
     expect((await cli("psd", "--help")).stdout).toContain("--segment <n>");
+    const check = (await cli("check", "--help")).stdout;
+    expect(check).toMatch(/\(default the\s+profile's resolutionHz, else 4096\)/);
+    expect(check).toMatch(/Decision rule:[^]*at most 5\s%/);
+    expect(check).toMatch(/inconclusive \(exit 3\): /);
+    expect(check).toContain("--control <channels>");
     expect((await cli("--version")).stdout.trim()).toBe(JSON.parse(readFileSync("package.json", "utf8")).version);
   });
   it.skipIf(!existsSync("dist/cli/bin.js"))("the installed executable sets the process exit code (bin/psdgate.js)", () => {

@@ -88,10 +88,27 @@ describe("profile arithmetic", () => {
     expect(profileLevel(p, 19.99)).toBeNaN();
     expect(profileLevel(p, 80)).toBeCloseTo(0.04, 15);
   });
-  it("a two-column CSV of breakpoints is accepted (default +-3 dB band, +-1.5 dB RMS)", () => {
+  it("a two-column CSV of breakpoints is accepted (default +-3 dB band, +-1.5 dB RMS), and says so", () => {
     const p = parseProfile("hz,level\n20,0.01\n80,0.04\n350,0.04\n2000,0.007\n", "p.csv");
     expect(p.rms).toBeCloseTo(6.0582, 4);
     expect(p.bands).toEqual([{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }]);
+    expect(p.defaultsApplied.join(" ")).toMatch(/±3 dB.*±1.5 dB/);
+  });
+  it("a CSV profile with semicolons and decimal commas reads the same", () => {
+    const a = parseProfile("hz;level\n20;0,01\n80;0,04\n350;0,04\n2000;0,007\n", "p.csv");
+    expect(a.rms).toBeCloseTo(6.0582, 4);
+    expect(a.breakpoints[1]).toEqual({ hz: 80, level: 0.04 });
+  });
+  it("allowedOutsidePercent and outerLimits are read; outer limits must be at least as wide as the band", () => {
+    const p = profile([{ hz: 20, level: 0.01 }, { hz: 2000, level: 0.01 }], {
+      tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }], rmsDb: 1, allowedOutsidePercent: 5, outerLimits: [{ fromHz: 20, toHz: 2000, upperDb: 6, lowerDb: 6 }] },
+    });
+    expect(p.allowedOutsidePercent).toBe(5);
+    expect(p.outerBands).toEqual([{ fromHz: 20, toHz: 2000, upperDb: 6, lowerDb: 6 }]);
+    const narrow = () => profile([{ hz: 20, level: 0.01 }, { hz: 2000, level: 0.01 }], {
+      tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }], outerLimits: [{ fromHz: 20, toHz: 2000, upperDb: 2, lowerDb: 6 }] },
+    });
+    expect(narrow).toThrow(/tolerance.outerLimits\[0\]: expected outer limits at least as wide/);
   });
   it("rmsPercent 10 becomes +0.83 / -0.92 dB (REFERENCES.md sec. 7)", () => {
     const p = parseProfile(JSON.stringify({ title: "t", units: "g2/Hz", points: [{ hz: 10, level: 1 }, { hz: 20, level: 1 }], tolerance: { bands: [{ fromHz: 10, toHz: 20, upperDb: 3, lowerDb: 3 }], rmsPercent: 10 } }), "p.json");
@@ -126,6 +143,8 @@ describe("profile validation names the key path", () => {
     ["no bands", (d) => ((d.tolerance.bands = []), d), "tolerance.bands"],
     ["rmsDb and rmsPercent", (d) => (((d.tolerance as Record<string, unknown>).rmsPercent = 10), d), "tolerance"],
     ["minDof zero", (d) => ({ ...d, minDof: 0 }), "minDof"],
+    ["an allowance above 50 %", (d) => (((d.tolerance as Record<string, unknown>).allowedOutsidePercent = 60), d), "tolerance.allowedOutsidePercent"],
+    ["outer limits with a gap", (d) => (((d.tolerance as Record<string, unknown>).outerLimits = [{ fromHz: 20, toHz: 100, upperDb: 6, lowerDb: 6 }, { fromHz: 120, toHz: 350, upperDb: 9, lowerDb: 9 }]), d), "tolerance.outerLimits[1].fromHz"],
     ["not an object", () => [1, 2, 3], "(top level)"],
   ];
   for (const [name, mutate, path] of cases) {

@@ -1,0 +1,201 @@
+import { selectChannels } from "./analyzeRecording.js";
+import { channelConditioning, scaleSamples } from "./condition/scaleSamples.js";
+import { InputError } from "./errors.js";
+import { normalQuantile } from "./estimate/chiSquare.js";
+import { CrossSpectrumAccumulator } from "./estimate/crossSpectrum.js";
+import { findResonances, frequencyResponse, type Resonance } from "./estimate/frequencyResponse.js";
+import { frequencyAxis } from "./estimate/psdEstimate.js";
+import { welchDof } from "./estimate/welchDof.js";
+import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./estimate/welchOptions.js";
+import { spectralWindow } from "./estimate/windows.js";
+import type { CsvReadOptions } from "./read/csvTimeHistory.js";
+import { openTimeHistory } from "./read/openTimeHistory.js";
+import type { TimeHistorySource } from "./read/timeHistory.js";
+import type { AccelUnit } from "./units.js";
+
+/**
+ * Frequency response from one input channel to one or more output channels of a recording, in one
+ * pass of the samples through a cross-spectral Welch accumulator (estimate/crossSpectrum.ts): H1, H2,
+ * coherence, their random errors, the output spectrum the input predicts, and the resonances of H1.
+ */
+export interface TransferOptions extends WelchOptions {
+  csv?: CsvReadOptions | undefined;
+  /** Input (reference) channel: name or 1-based position. */
+  inputChannel: string;
+  /** Output channels: names or 1-based positions. */
+  outputChannels: string[];
+  inputUnits?: AccelUnit | undefined;
+  /** Unit every channel is converted to (default the input channel's), so H is dimensionless. */
+  resultUnits?: AccelUnit | undefined;
+  scale?: number | undefined;
+  /** Coherence at or above which a line counts as well explained by the input (default 0.9). */
+  goodCoherence?: number | undefined;
+  onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
+}
+
+export interface TransferOutput {
+  name: string;
+  position: number;
+  h1Magnitude: Float64Array;
+  /** |H1| (1 -+ z eps), z the normal quantile of the confidence (normal approximation of the error). */
+  h1Lower: Float64Array;
+  h1Upper: Float64Array;
+  h2Magnitude: Float64Array;
+  phaseDeg: Float64Array;
+  coherence: Float64Array;
+  magnitudeError: Float64Array;
+  phaseErrorDeg: Float64Array;
+  coherenceError: Float64Array;
+  predictedOutputPsd: Float64Array;
+  measuredOutputPsd: Float64Array;
+  /** sqrt(sum P df) of each, over all lines. */
+  predictedRms: number;
+  measuredRms: number;
+  /** Lines with coherence >= goodCoherence: their share of all lines and of the measured mean square, and predicted / measured mean square over them. */
+  wellExplained: { lineFraction: number; powerFraction: number; meanSquareRatio: number };
+  /** Contiguous ranges where the coherence is below 0.5 and the output carries at least 1 % of its mean square. */
+  lowCoherenceBands: { fromHz: number; toHz: number; powerFraction: number }[];
+  resonances: Resonance[];
+}
+
+export interface TransferAnalysis {
+  input: { file: string; format: "csv" | "wav"; layout: string; sha256: string; bytes: number; sampleRateHz: number; samples: number; durationS: number };
+  settings: ResolvedWelchOptions & { scale: number; goodCoherence: number };
+  averages: number;
+  skippedSegments: number;
+  /** Welch equivalent DOF of an auto spectrum, and n_d = DOF / 2 used in the random errors. */
+  dof: number;
+  disjointAverages: number;
+  units: AccelUnit;
+  frequencyHz: Float64Array;
+  reference: { name: string; position: number; psd: Float64Array; rms: number };
+  outputs: TransferOutput[];
+  warnings: string[];
+}
+
+export async function analyzeTransfer(file: string, options: TransferOptions): Promise<TransferAnalysis> {
+  const source = await openTimeHistory(file, { ...options.csv });
+  try {
+    return await analyzeTransferSource(source, options);
+  } finally {
+    await source.close?.();
+  }
+}
+
+export async function analyzeTransferSource(source: TimeHistorySource, options: TransferOptions): Promise<TransferAnalysis> {
+  const { info } = source;
+  if (options.outputChannels.length === 0) throw new InputError("OPTION_MISSING", { option: "--out", expected: "at least one output channel", received: "none" });
+  const pick = (option: string, wanted: string[]) => {
+    try {
+      return selectChannels(info, wanted);
+    } catch (e) {
+      if (e instanceof InputError) throw new InputError(e.code, { ...e.details, option });
+      throw e;
+    }
+  };
+  const [inIdx] = pick("--in", [options.inputChannel]);
+  const outIdx = pick("--out", options.outputChannels);
+  for (const [k, o] of outIdx.entries()) {
+    if (o === inIdx) throw new InputError("OPTION_INVALID", { option: "--out", expected: "an output channel other than the input", received: JSON.stringify(options.outputChannels[k]) });
+    if (outIdx.indexOf(o) !== k) throw new InputError("OPTION_INVALID", { option: "--out", expected: "each output channel once", received: JSON.stringify(options.outputChannels[k]) });
+  }
+  const select = [inIdx!, ...outIdx];
+  const refCond = channelConditioning(info.file, info.channels[inIdx!]!, options);
+  const common = options.resultUnits ?? refCond.resultUnit;
+  const conditioning = select.map((i) => channelConditioning(info.file, info.channels[i]!, { ...options, resultUnits: common }));
+  const good = options.goodCoherence ?? 0.9;
+  if (!(good > 0 && good < 1)) throw new InputError("OPTION_INVALID", { option: "--good-coherence", expected: "a coherence between 0 and 1", received: String(good) });
+  const settings = normalizeWelchOptions(options, info.sampleRateHz);
+  const window = spectralWindow(settings.window, settings.segmentLength);
+  const acc = new CrossSpectrumAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, select.length, 0);
+  const summary = await source.read(
+    select,
+    (blocks, frames) => {
+      for (let c = 0; c < blocks.length; c++) scaleSamples(blocks[c]!, frames, conditioning[c]!.factor);
+      acc.push(blocks, frames);
+    },
+    options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
+  );
+  const fs = summary.sampleRateHz;
+  const sums = acc.finish(fs);
+  if (sums.segments === 0) {
+    throw new InputError("RECORD_TOO_SHORT", {
+      file: info.file, expected: `at least one segment of ${settings.segmentLength} samples with finite values in every channel`, received: `${summary.frames} samples, ${sums.skippedSegments} segment(s) left out`,
+      hint: "use a shorter --segment or a coarser --resolution",
+    });
+  }
+  const frequencyHz = frequencyAxis(settings.segmentLength, fs);
+  const df = fs / settings.segmentLength;
+  const dof = welchDof(window, settings.hop, sums.segments);
+  const nd = dof / 2;
+  const z = normalQuantile(0.5 + settings.confidence / 2);
+  const rmsOf = (p: Float64Array) => {
+    let s = 0;
+    for (let k = 0; k < p.length; k++) s += p[k]!;
+    return Math.sqrt(s * df);
+  };
+  const gxx = sums.auto[0]!;
+  const warnings: string[] = [];
+  if (sums.skippedSegments > 0) warnings.push(`${sums.skippedSegments} segment(s) held a NaN or infinite sample in some channel and were left out of every spectrum`);
+  if (sums.segments < 8) warnings.push(`only ${sums.segments} average(s): coherence is biased upward by about 1/n_d (${(1 / Math.max(1, nd)).toFixed(2)}) and H is uncertain`);
+  const outputs = outIdx.map((idx, j): TransferOutput => {
+    const c = j + 1;
+    const gyy = sums.auto[c]!;
+    const r = frequencyResponse(gxx, gyy, sums.crossRe[c]!, sums.crossIm[c]!, nd);
+    const lower = new Float64Array(gxx.length);
+    const upper = new Float64Array(gxx.length);
+    for (let k = 0; k < gxx.length; k++) {
+      lower[k] = r.h1Magnitude[k]! * Math.max(0, 1 - z * r.magnitudeError[k]!);
+      upper[k] = r.h1Magnitude[k]! * (1 + z * r.magnitudeError[k]!);
+    }
+    let total = 0;
+    let goodLines = 0;
+    let goodMeasured = 0;
+    let goodPredicted = 0;
+    for (let k = 0; k < gyy.length; k++) total += gyy[k]!;
+    for (let k = 1; k < gyy.length; k++) {
+      if (r.coherence[k]! >= good) {
+        goodLines++;
+        goodMeasured += gyy[k]!;
+        goodPredicted += r.predictedOutputPsd[k]!;
+      }
+    }
+    const lowCoherenceBands: TransferOutput["lowCoherenceBands"] = [];
+    for (let k = 1; k < gyy.length; ) {
+      if (!(r.coherence[k]! < 0.5)) {
+        k++;
+        continue;
+      }
+      let e = k;
+      let p = 0;
+      while (e < gyy.length && r.coherence[e]! < 0.5) p += gyy[e++]!;
+      if (p >= 0.01 * total) lowCoherenceBands.push({ fromHz: frequencyHz[k]!, toHz: frequencyHz[e - 1]!, powerFraction: p / total });
+      k = e;
+    }
+    lowCoherenceBands.sort((a, b) => b.powerFraction - a.powerFraction);
+    return {
+      name: info.channels[idx]!.name,
+      position: idx + 1,
+      h1Magnitude: r.h1Magnitude, h1Lower: lower, h1Upper: upper, h2Magnitude: r.h2Magnitude, phaseDeg: r.phaseDeg, coherence: r.coherence,
+      magnitudeError: r.magnitudeError, phaseErrorDeg: r.phaseErrorDeg, coherenceError: r.coherenceError,
+      predictedOutputPsd: r.predictedOutputPsd, measuredOutputPsd: gyy,
+      predictedRms: rmsOf(r.predictedOutputPsd), measuredRms: rmsOf(gyy),
+      wellExplained: { lineFraction: goodLines / (gyy.length - 1), powerFraction: total > 0 ? goodMeasured / total : NaN, meanSquareRatio: goodMeasured > 0 ? goodPredicted / goodMeasured : NaN },
+      lowCoherenceBands: lowCoherenceBands.slice(0, 6).sort((a, b) => a.fromHz - b.fromHz),
+      resonances: findResonances(frequencyHz, r.h1Magnitude, r.coherence),
+    };
+  });
+  return {
+    input: { file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes, sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs },
+    settings: { ...settings, resolutionHz: df, scale: options.scale ?? 1, goodCoherence: good },
+    averages: sums.segments,
+    skippedSegments: sums.skippedSegments,
+    dof,
+    disjointAverages: nd,
+    units: common,
+    frequencyHz,
+    reference: { name: info.channels[inIdx!]!.name, position: inIdx! + 1, psd: gxx, rms: rmsOf(gxx) },
+    outputs,
+    warnings,
+  };
+}

@@ -1,0 +1,64 @@
+import type { Command } from "commander";
+import { InputError } from "../errors.js";
+import type { CliIo } from "./main.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+
+interface RespondFlags extends ParsedCommon {
+  fn: string;
+  q: number;
+  duration?: number;
+  basquin?: number;
+  snConstant?: number;
+  stressPerMetre?: number;
+  against?: string;
+  againstDuration?: number;
+  againstChannel?: string;
+  strokeMm?: number;
+  as?: "recording" | "profile" | "psd";
+  json?: boolean;
+}
+
+const KINDS = ["recording", "profile", "psd"] as const;
+
+/** `psdgate respond SOURCE --fn A:B --q Q`: SDOF response, extreme-response and fatigue-damage spectra of an input. */
+export function registerRespond(program: Command, io: CliIo): void {
+  addSpectrumOptions(addReadingOptions(
+    program.command("respond").argument("<source>", "input: a recording (CSV or WAV), a profile (JSON or YAML) or a PSD table written by psd --csv")
+      .description("what a single-degree-of-freedom structure feels at each natural frequency: response RMS (exact and Miles), largest peak, fatigue damage, and the input's stroke"),
+  ))
+    .option("--fmin <hz>", "lowest frequency of the input used (default: the first line above 0 Hz, or the profile's start)", numberOption("--fmin", (x) => x > 0, "a frequency in Hz above 0"))
+    .option("--fmax <hz>", "highest frequency of the input used (default: the last line, or the profile's end)", numberOption("--fmax", (x) => x > 0, "a frequency in Hz above 0"))
+    .requiredOption("--fn <grid>", "natural frequencies: A:B (6 per octave), A:B:N (N per octave) or a list A,B,C, in Hz")
+    .requiredOption("--q <Q>", "quality factor Q = 1 / (2 zeta), e.g. 10", numberOption("--q", (x) => x > 0.5 && x <= 1000, "a Q above 0.5 and at most 1000"))
+    .option("--duration <s>", "exposure for the largest peak and the damage (default: the recording's length or the profile's durationS)", numberOption("--duration", (x) => x > 0, "a duration in s above 0"))
+    .option("--basquin <b>", "Basquin exponent b of the S-N curve N S^b = C (default 8, common practice: choose the material's)", numberOption("--basquin", (x) => x >= 1 && x <= 30, "an exponent from 1 to 30"))
+    .option("--sn-constant <C>", "the constant C of N S^b = C (default 1: a relative damage)", numberOption("--sn-constant", (x) => x > 0, "a number above 0"))
+    .option("--stress-per-metre <K>", "stress per metre of relative displacement (default 1: a relative damage)", numberOption("--stress-per-metre", (x) => x > 0, "a number above 0"))
+    .option("--against <source>", "a second input to compare with (e.g. the lab profile against a field recording): where it under- or over-tests")
+    .option("--against-duration <s>", "exposure of the --against input (default its own)", numberOption("--against-duration", (x) => x > 0, "a duration in s above 0"))
+    .option("--against-channel <name|n>", "channel of the --against input (default the first)")
+    .option("--stroke-mm <mm>", "the exciter's rated peak-to-peak stroke, to check the displacement estimate against", numberOption("--stroke-mm", (x) => x > 0, "a stroke in mm above 0"))
+    .option("--as <kind>", "read SOURCE as recording, profile or psd (default: by extension and first line)", (v: string) => {
+      if (!(KINDS as readonly string[]).includes(v)) throw new InputError("OPTION_INVALID", { option: "--as", expected: `one of ${KINDS.join(", ")}`, received: JSON.stringify(v) });
+      return v;
+    })
+    .option("--json", "print the result as JSON")
+    .action(async (source: string, o: RespondFlags) => {
+      const { compareResponses, loadSpectrumSource, parseFnGrid, responseSpectra } = await import("../responseSpectra.js");
+      const { responseJson, responseText } = await import("../report/responseReport.js");
+      const { VERSION } = await import("../version.js");
+      if (o.channel !== undefined && o.channel.length > 1) throw new InputError("OPTION_INVALID", { option: "--channel", expected: "one channel", received: o.channel.join(", ") });
+      const fnHz = parseFnGrid(o.fn);
+      const base = analysisOptions(o);
+      const sn = { basquinB: o.basquin, snConstant: o.snConstant, stressPerUnit: o.stressPerMetre };
+      const a = await loadSpectrumSource(source, { ...base, as: o.as, channel: o.channel?.[0] });
+      const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.duration, sn, strokeMm: o.strokeMm });
+      let against;
+      if (o.against !== undefined) {
+        const bsrc = await loadSpectrumSource(o.against, { ...base, channel: o.againstChannel }, "--against-");
+        const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.againstDuration, sn });
+        against = { b, c: compareResponses(r, b) };
+      }
+      io.stdout(o.json ? JSON.stringify(responseJson(r, VERSION, against)) + "\n" : responseText(r, VERSION, against));
+    });
+}

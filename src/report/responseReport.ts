@@ -1,0 +1,147 @@
+import type { ResponseComparison, ResponseSpectra } from "../responseSpectra.js";
+import { accelLabel, densityAscii } from "../units.js";
+import { RESPONSE_CAUTION, STROKE_CAUTION } from "./cautions.js";
+import { fixed, sig, table } from "./format.js";
+import { finiteOrNull, toolInfo } from "./psdJson.js";
+
+function arr(a: Float64Array): (number | null)[] {
+  return Array.from(a, finiteOrNull);
+}
+
+function sourceJson(r: ResponseSpectra) {
+  const s = r.source;
+  return { kind: s.kind, file: s.file, sha256: s.sha256, label: s.label, units: densityAscii(s.units), settings: s.settings ?? null, band: r.band };
+}
+
+function spectraJson(r: ResponseSpectra) {
+  return {
+    accelRms: arr(r.accelRms),
+    milesRms: arr(r.milesRms),
+    relDispRms: arr(r.relDispRms),
+    relDispMilesRms: arr(r.relDispMilesRms),
+    upcrossingRateHz: arr(r.upcrossingRateHz),
+    peakRateHz: arr(r.peakRateHz),
+    irregularity: arr(r.irregularity),
+    peakFactor: arr(r.peakFactor),
+    extremePeak: arr(r.extremePeak),
+    durationS: r.durationS,
+    fatigueDamage: arr(r.fatigueDamage),
+  };
+}
+
+/** The `respond --json` document (README.md, "respond"). */
+export function responseJson(r: ResponseSpectra, version: string, against?: { b: ResponseSpectra; c: ResponseComparison }) {
+  const m = r.motion;
+  return {
+    tool: toolInfo(version),
+    source: sourceJson(r),
+    fnHz: arr(r.fnHz),
+    q: r.q,
+    units: { accel: r.source.units === "g" ? "g" : "m/s2", relDisp: "m", extremePeak: r.source.units === "g" ? "g" : "m/s2" },
+    ...spectraJson(r),
+    basquinB: r.sn.basquinB,
+    snConstant: r.sn.snConstant,
+    stressPerMetre: r.sn.stressPerUnit,
+    damageRule: "narrow-band Rayleigh (Miles 1954): E[D] = nu0+ T / C (sqrt 2 K sigma_z)^b Gamma(1 + b/2), stress K z, S-N curve N S^b = C; defaults b 8, C 1, K 1 are common practice for a relative spectrum",
+    extremeRule: "Davenport 1964: sigma (sqrt(2 ln(nu0+ T)) + 0.5772 / sqrt(2 ln(nu0+ T))), nu0+ of the acceleration response",
+    kinematics: {
+      band: { fromHz: m.fromHz, toHz: m.toHz },
+      accelerationRms: m.accelerationRms,
+      velocityRms: { value: m.velocityRms, units: "m/s" },
+      displacementRms: { value: m.displacementRms, units: "m" },
+      displacementPeakToPeak: { value: m.displacementPeakToPeak, units: "m", rule: "6 x RMS (±3 sigma), common practice" },
+      frequencyHz: arr(m.frequencyHz),
+      velocityPsd: { values: arr(m.velocityPsd), units: "(m/s)2/Hz" },
+      displacementPsd: { values: arr(m.displacementPsd), units: "m2/Hz" },
+      stroke: r.stroke ?? null,
+      caution: STROKE_CAUTION,
+    },
+    against: against
+      ? {
+          source: sourceJson(against.b),
+          ...spectraJson(against.b),
+          rmsRatioDb: arr(against.c.rmsRatioDb),
+          extremeRatioDb: arr(against.c.extremeRatioDb),
+          damageRatio: arr(against.c.damageRatio),
+          underTestsHz: against.c.underTestsHz,
+        }
+      : null,
+    caution: RESPONSE_CAUTION,
+  };
+}
+
+const mm = (m: number) => sig(m * 1000, 4);
+
+/** Ranges of consecutive grid points in a list, "20–45 Hz, 300 Hz". */
+function ranges(grid: Float64Array, hits: number[]): string {
+  if (hits.length === 0) return "none";
+  const set = new Set(hits);
+  const out: string[] = [];
+  let start = -1;
+  for (let i = 0; i <= grid.length; i++) {
+    const on = i < grid.length && set.has(grid[i]!);
+    if (on && start < 0) start = i;
+    if (!on && start >= 0) {
+      out.push(start === i - 1 ? `${sig(grid[start]!, 4)} Hz` : `${sig(grid[start]!, 4)}–${sig(grid[i - 1]!, 4)} Hz`);
+      start = -1;
+    }
+  }
+  return out.join(", ");
+}
+
+export function responseText(r: ResponseSpectra, version: string, against?: { b: ResponseSpectra; c: ResponseComparison }): string {
+  const u = accelLabel(r.source.units);
+  const s = r.source;
+  const what = s.kind === "profile" ? `profile "${s.label}"` : s.kind === "psd" ? `PSD table, channel ${s.label}` : `recording, channel ${s.label}`;
+  const lines = [
+    `psdgate ${version}: SDOF response to ${s.file} (${what})`,
+    `  input      ${sig(r.band.fromHz, 4)}–${sig(r.band.toHz, 5)} Hz, ${sig(r.motion.accelerationRms, 4)} ${u} RMS${s.settings ? `; PSD of ${s.settings.segmentLength}-point segments, ${sig(s.settings.resolutionHz, 4)} Hz lines, ${s.settings.averages} averages` : ""}`,
+    `  system     Q ${sig(r.q, 4)} (zeta ${sig(1 / (2 * r.q), 3)}), base-driven; exposure ${sig(r.durationS, 5)} s; Basquin b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement`,
+    "",
+  ];
+  const rows = [["fn Hz", `accel RMS ${u}`, `Miles ${u}`, "exact/Miles", "rel. disp. RMS mm", "nu0+ /s", `largest peak ${u}`, "damage"]];
+  for (let i = 0; i < r.fnHz.length; i++) {
+    rows.push([
+      sig(r.fnHz[i]!, 4), sig(r.accelRms[i]!, 4), Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "-",
+      Number.isFinite(r.milesRms[i]!) ? fixed(r.accelRms[i]! / r.milesRms[i]!, 3) : "-", mm(r.relDispRms[i]!), sig(r.upcrossingRateHz[i]!, 4),
+      sig(r.extremePeak[i]!, 4), r.fatigueDamage[i]!.toExponential(3),
+    ]);
+  }
+  lines.push(table(rows), "");
+  lines.push(
+    "  exact      integral of |T|² G (absolute acceleration) and of the relative-displacement transfer over the input, no white-noise assumption.",
+    "  Miles      sqrt(pi/2 fn Q G(fn)): assumes the input flat around fn and drops the 1/Q term, so exact/Miles is sqrt(1 + 1/Q²) on a flat input;",
+    "             it moves away from that where the input slopes or has peaks near fn, and near the band edges (part of the resonance falls outside).",
+    ...(s.kind !== "profile"
+      ? [`             On a measured PSD Miles reads the one line at fn, which scatters by ${s.settings ? `about ±${fixed(100 * Math.sqrt(2 / s.settings.dof), 0)} % (1 sigma, chi-square)` : "the PSD's random error"}, while the integral averages the lines across the resonance.`]
+      : []),
+    "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, tests/estimate/peakStatistics.test.ts).",
+    "  damage     narrow-band Rayleigh, relative: only ratios at the same b and C mean anything.",
+  );
+  const m = r.motion;
+  lines.push(
+    "",
+    `  kinematics ${sig(m.fromHz, 4)}–${sig(m.toHz, 5)} Hz: velocity ${sig(m.velocityRms * 1000, 4)} mm/s RMS, displacement ${mm(m.displacementRms)} mm RMS, peak-to-peak estimate ${mm(m.displacementPeakToPeak)} mm (6 x RMS)`,
+  );
+  if (s.kind !== "profile") lines.push("             (the lowest lines dominate the displacement: --fmin sets the band that matters)");
+  if (r.stroke) {
+    const st = r.stroke;
+    lines.push(`  stroke     ${fixed(st.estimateMm, 3)} mm estimated against ${sig(st.ratedMm, 4)} mm rated: ${st.withinRating ? `within the rating (margin x${fixed(st.margin, 2)})` : `EXCEEDS the rating by ${fixed(100 * (1 / st.margin - 1), 0)} %`}`);
+  }
+  if (against) {
+    const { b, c } = against;
+    lines.push(
+      "",
+      `  against    ${b.source.file} (${b.source.kind === "profile" ? `profile "${b.source.label}"` : `${b.source.kind}, channel ${b.source.label}`}), exposure ${sig(b.durationS, 5)} s against ${sig(r.durationS, 5)} s`,
+    );
+    const rows2 = [["fn Hz", "RMS B/A dB", "largest peak B/A dB", "damage B/A", ""]];
+    for (let i = 0; i < r.fnHz.length; i++) {
+      const short = c.rmsRatioDb[i]! < 0 || c.extremeRatioDb[i]! < 0 || c.damageRatio[i]! < 1;
+      rows2.push([sig(r.fnHz[i]!, 4), fixed(c.rmsRatioDb[i]!, 2), fixed(c.extremeRatioDb[i]!, 2), sig(c.damageRatio[i]!, 3), short ? "B under-tests" : ""]);
+    }
+    lines.push(table(rows2), "");
+    lines.push(`  B under-tests A in RMS at ${ranges(r.fnHz, c.underTestsHz.rms)}; in largest peak at ${ranges(r.fnHz, c.underTestsHz.extreme)}; in damage at ${ranges(r.fnHz, c.underTestsHz.damage)}`);
+  }
+  lines.push("", `CAUTION: ${RESPONSE_CAUTION}`, `CAUTION: ${STROKE_CAUTION}`, "");
+  return lines.join("\n");
+}

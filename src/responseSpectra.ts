@@ -1,0 +1,273 @@
+import { open } from "node:fs/promises";
+import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
+import { loadProfile } from "./checkRecording.js";
+import { InputError, quoted } from "./errors.js";
+import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "./estimate/fatigueDamage.js";
+import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "./estimate/inputSpectrum.js";
+import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "./estimate/kinematics.js";
+import { davenportPeakFactor, riceRates } from "./estimate/peakStatistics.js";
+import { milesRelativeDisplacementRms, milesRms, sdofResponse } from "./estimate/sdofResponse.js";
+import { looksLikePsdTable, readPsdTable } from "./read/psdTable.js";
+import { accelFactor, type AccelUnit } from "./units.js";
+
+/**
+ * What a structure feels: the response of single-degree-of-freedom systems at a grid of natural
+ * frequencies to an input spectrum (a recording's PSD, a profile, or a PSD table psdgate wrote),
+ * with Miles' equation beside the exact integral, Rice's rates, Davenport's expected largest peak,
+ * the narrow-band fatigue damage, and the input's velocity and displacement.
+ */
+export type SourceKind = "recording" | "profile" | "psd";
+
+export interface SpectrumSource {
+  kind: SourceKind;
+  file: string;
+  sha256: string;
+  /** Channel name (recording, PSD table) or profile title. */
+  label: string;
+  units: AccelUnit;
+  spectrum: InputSpectrum;
+  /** Natural length: the recording's duration or the profile's durationS. */
+  durationS: number | undefined;
+  /** Frequencies at which the source is defined: lines (recording, table) or breakpoints (profile). */
+  frequencyHz: Float64Array;
+  level: Float64Array;
+  /** Welch settings, for a recording. */
+  settings?: { segmentLength: number; resolutionHz: number; window: string; averages: number; dof: number } | undefined;
+}
+
+export interface SourceOptions extends AnalysisOptions {
+  /** Read the file as this kind (default: by extension and first line). */
+  as?: SourceKind | undefined;
+  /** The channel of a recording or PSD table (default the first). */
+  channel?: string | undefined;
+  /** Band of a recording or PSD table used as input (default: from the first line above 0 Hz to the last). */
+  fminHz?: number | undefined;
+  fmaxHz?: number | undefined;
+}
+
+async function firstLine(file: string): Promise<string> {
+  let fh;
+  try {
+    fh = await open(file, "r");
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "ENOENT" ? "no such file" : code === "EISDIR" ? "a folder" : String(code) });
+  }
+  try {
+    const b = Buffer.alloc(256);
+    const { bytesRead } = await fh.read(b, 0, 256, 0);
+    return b.subarray(0, bytesRead).toString("utf8").split(/\r?\n/)[0] ?? "";
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "EISDIR" ? "a folder" : String(code) });
+  } finally {
+    await fh.close();
+  }
+}
+
+/** The kind of a source file: .json/.yaml/.yml a profile, a CSV whose header starts frequency_hz a PSD table, else a recording. */
+export async function sourceKind(file: string): Promise<SourceKind> {
+  if (/\.(json|ya?ml)$/i.test(file)) return "profile";
+  if (/\.wave?$/i.test(file)) return "recording";
+  return looksLikePsdTable(await firstLine(file)) ? "psd" : "recording";
+}
+
+function pickChannel<T extends { name: string }>(file: string, list: T[], wanted: string | undefined, option: string): T {
+  if (wanted === undefined) return list[0]!;
+  const byName = list.find((c) => c.name.toLowerCase() === wanted.toLowerCase());
+  if (byName) return byName;
+  if (/^\d+$/.test(wanted) && Number(wanted) >= 1 && Number(wanted) <= list.length) return list[Number(wanted) - 1]!;
+  throw new InputError("CHANNEL_NOT_FOUND", { file, option, expected: `a channel name or position: ${list.map((c, i) => `${i + 1}=${c.name}`).join(", ")}`, received: quoted(wanted) });
+}
+
+function lineBand(file: string, f: Float64Array, o: SourceOptions): { lo: number; hi: number } {
+  const lo = o.fminHz ?? f[1]!;
+  const hi = o.fmaxHz ?? f[f.length - 1]!;
+  if (!(lo > 0)) throw new InputError("OPTION_INVALID", { file, option: "--fmin", expected: "a lower band edge above 0 Hz", received: String(lo) });
+  if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "--fmax", expected: `an upper band edge above --fmin ${lo} Hz`, received: String(hi) });
+  return { lo, hi };
+}
+
+export async function loadSpectrumSource(file: string, o: SourceOptions = {}, optionPrefix = ""): Promise<SpectrumSource> {
+  const kind = o.as ?? (await sourceKind(file));
+  if (kind === "profile") {
+    const p = await loadProfile(file);
+    // --fmin/--fmax cut the profile's own band (each segment keeps its power law).
+    const lo = Math.max(o.fminHz ?? 0, p.segments[0]!.f1);
+    const hi = Math.min(o.fmaxHz ?? Infinity, p.segments[p.segments.length - 1]!.f2);
+    if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "--fmin", expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`, received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz` });
+    const segments = p.segments.filter((s) => s.f2 > lo && s.f1 < hi).map((s) => {
+      const f1 = Math.max(s.f1, lo);
+      return { f1, f2: Math.min(s.f2, hi), g1: s.g1 * Math.pow(f1 / s.f1, s.exponent), exponent: s.exponent };
+    });
+    const spectrum = powerLawSpectrum(segments);
+    const hz = Float64Array.from([segments[0]!.f1, ...segments.map((s) => s.f2)]);
+    return { kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum, durationS: p.durationS, frequencyHz: hz, level: hz.map((f) => spectrum.level(f)) };
+  }
+  if (kind === "psd") {
+    const t = await readPsdTable(file);
+    const ch = pickChannel(file, t.channels, o.channel, `${optionPrefix}--channel`);
+    const { lo, hi } = lineBand(file, t.frequencyHz, o);
+    return { kind, file, sha256: t.sha256, label: ch.name, units: ch.units, spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi), durationS: undefined, frequencyHz: t.frequencyHz, level: ch.psd };
+  }
+  const a = await analyzeRecording(file, { ...o, channels: o.channel === undefined ? ["1"] : [o.channel], fminHz: undefined, fmaxHz: undefined });
+  const c = a.channels[0]!;
+  if (c.psd.averages === 0) {
+    throw new InputError("RECORD_TOO_SHORT", { file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.input.samples} samples`, hint: "use a shorter --segment or a coarser --resolution" });
+  }
+  const { lo, hi } = lineBand(file, c.psd.frequencyHz, o);
+  return {
+    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi), durationS: a.input.durationS,
+    frequencyHz: c.psd.frequencyHz, level: c.psd.psd,
+    settings: { segmentLength: a.settings.segmentLength, resolutionHz: a.settings.resolutionHz, window: a.settings.window, averages: c.psd.averages, dof: c.psd.dof },
+  };
+}
+
+export interface ResponseOptions {
+  fnHz: Float64Array;
+  q: number;
+  /** Exposure for the extreme peak and the damage (default the source's own). */
+  durationS?: number | undefined;
+  sn?: Partial<SnCurve> | undefined;
+  /** Rated peak-to-peak stroke of the exciter, mm, to check the displacement estimate against. */
+  strokeMm?: number | undefined;
+}
+
+export interface ResponseSpectra {
+  source: Omit<SpectrumSource, "spectrum" | "frequencyHz" | "level">;
+  band: { fromHz: number; toHz: number };
+  fnHz: Float64Array;
+  q: number;
+  durationS: number;
+  sn: SnCurve;
+  /** Exact RMS of the absolute-acceleration response, in the source's unit. */
+  accelRms: Float64Array;
+  /** Miles' equation with the input's level at f_n (NaN where f_n is outside the input's band). */
+  milesRms: Float64Array;
+  /** Relative displacement RMS, exact and by Miles' form, metres. */
+  relDispRms: Float64Array;
+  relDispMilesRms: Float64Array;
+  /** Rice's rates of the acceleration response. */
+  upcrossingRateHz: Float64Array;
+  peakRateHz: Float64Array;
+  irregularity: Float64Array;
+  /** Davenport's factor and the expected largest peak of the acceleration response over durationS. */
+  peakFactor: Float64Array;
+  extremePeak: Float64Array;
+  /** Up-crossing rate of the relative displacement (the stress cycles' rate) and the narrow-band damage. */
+  stressCycleRateHz: Float64Array;
+  fatigueDamage: Float64Array;
+  motion: Motion & { velocityPsd: Float64Array; displacementPsd: Float64Array; frequencyHz: Float64Array };
+  stroke?: { ratedMm: number; estimateMm: number; margin: number; withinRating: boolean } | undefined;
+}
+
+/** Grid "A:B[:N]" (N per octave, default 6, geometric from A to B inclusive), a list "A,B,C" or one value. */
+export function parseFnGrid(text: string, option = "--fn"): Float64Array {
+  const bad = (received: string): never => {
+    throw new InputError("OPTION_INVALID", { option, expected: "A:B or A:B:N (N natural frequencies per octave, default 6) or a list A,B,C of frequencies in Hz above 0", received });
+  };
+  const t = text.trim();
+  if (t.includes(":")) {
+    const parts = t.split(":").map(Number);
+    if (parts.length < 2 || parts.length > 3 || parts.some((x) => !Number.isFinite(x))) bad(JSON.stringify(text));
+    const [a, b, n = 6] = parts as [number, number, number?];
+    if (!(a > 0 && b > a && Number.isInteger(n) && n >= 1 && n <= 96)) bad(JSON.stringify(text));
+    const count = Math.floor(n * Math.log2(b / a) + 1e-9) + 1;
+    if (count > 2000) bad(`${count} natural frequencies (at most 2000)`);
+    const out = Array.from({ length: count }, (_, i) => a * 2 ** (i / n));
+    if (b / out[count - 1]! > 1 + 1e-9) out.push(b);
+    return Float64Array.from(out);
+  }
+  const list = t.split(",").map((s) => Number(s.trim()));
+  if (list.length === 0 || list.some((x) => !(x > 0) || !Number.isFinite(x))) bad(JSON.stringify(text));
+  return Float64Array.from(list).sort();
+}
+
+export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
+  const q = o.q;
+  if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "--q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
+  const durationS = o.durationS ?? src.durationS;
+  if (durationS === undefined) {
+    throw new InputError("OPTION_MISSING", { file: src.file, option: "--duration", expected: "an exposure time in s (the source has none of its own)", received: "nothing" });
+  }
+  if (!(durationS > 0) || !Number.isFinite(durationS)) throw new InputError("OPTION_INVALID", { option: "--duration", expected: "an exposure time in s above 0", received: String(durationS) });
+  const sn: SnCurve = { ...SN_DEFAULTS, ...Object.fromEntries(Object.entries(o.sn ?? {}).filter(([, v]) => v !== undefined)) };
+  if (!(sn.basquinB >= 1 && sn.basquinB <= 30)) throw new InputError("OPTION_INVALID", { option: "--basquin", expected: "a Basquin exponent b from 1 to 30", received: String(sn.basquinB) });
+  const toSi = accelFactor(src.units, "m/s2");
+  const s = src.spectrum;
+  const n = o.fnHz.length;
+  const out = (): Float64Array => new Float64Array(n);
+  const r = {
+    accelRms: out(), milesRms: out(), relDispRms: out(), relDispMilesRms: out(), upcrossingRateHz: out(), peakRateHz: out(), irregularity: out(),
+    peakFactor: out(), extremePeak: out(), stressCycleRateHz: out(), fatigueDamage: out(),
+  };
+  for (let i = 0; i < n; i++) {
+    const fn = o.fnHz[i]!;
+    const resp = sdofResponse(s, fn, q);
+    const a = resp.acceleration;
+    const z = resp.relativeDisplacement;
+    const inBand = fn >= s.fminHz && fn <= s.fmaxHz;
+    const g = inBand ? s.level(fn) : NaN;
+    r.accelRms[i] = Math.sqrt(a.m0);
+    r.milesRms[i] = milesRms(fn, q, g);
+    const zRms = Math.sqrt(z.m0) * toSi;
+    r.relDispRms[i] = zRms;
+    r.relDispMilesRms[i] = milesRelativeDisplacementRms(fn, q, g) * toSi;
+    const rice = riceRates(a);
+    r.upcrossingRateHz[i] = rice.upcrossingRateHz;
+    r.peakRateHz[i] = rice.peakRateHz;
+    r.irregularity[i] = rice.irregularity;
+    r.peakFactor[i] = davenportPeakFactor(rice.upcrossingRateHz * durationS);
+    r.extremePeak[i] = r.peakFactor[i]! * r.accelRms[i]!;
+    const nuZ = riceRates(z).upcrossingRateHz;
+    r.stressCycleRateHz[i] = nuZ;
+    r.fatigueDamage[i] = narrowBandDamage(zRms, nuZ, durationS, sn);
+  }
+  const m = spectrumMotion(s, toSi);
+  const keep = src.frequencyHz.map((f) => (f >= s.fminHz && f <= s.fmaxHz ? 1 : 0));
+  const fk = src.frequencyHz.filter((_, k) => keep[k] === 1);
+  const gk = src.level.filter((_, k) => keep[k] === 1);
+  let stroke: ResponseSpectra["stroke"];
+  if (o.strokeMm !== undefined) {
+    if (!(o.strokeMm > 0) || !Number.isFinite(o.strokeMm)) throw new InputError("OPTION_INVALID", { option: "--stroke-mm", expected: "a rated peak-to-peak stroke in mm above 0", received: String(o.strokeMm) });
+    const est = m.displacementPeakToPeak * 1000;
+    stroke = { ratedMm: o.strokeMm, estimateMm: est, margin: o.strokeMm / est, withinRating: est <= o.strokeMm };
+  }
+  const { spectrum: _s, frequencyHz: _f, level: _l, ...source } = src;
+  return {
+    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, ...r,
+    motion: { ...m, frequencyHz: fk, velocityPsd: velocityPsd(fk, gk, toSi), displacementPsd: displacementPsd(fk, gk, toSi) },
+    stroke,
+  };
+}
+
+export interface ResponseComparison {
+  /** 20 log10(B / A) of the response RMS and of the extreme peak, dB: below 0 where B under-tests A. */
+  rmsRatioDb: Float64Array;
+  extremeRatioDb: Float64Array;
+  /** Damage of B over damage of A, each over its own duration: below 1 where B under-tests A. */
+  damageRatio: Float64Array;
+  /** Natural frequencies where B falls short of A, per measure. */
+  underTestsHz: { rms: number[]; extreme: number[]; damage: number[] };
+}
+
+/** Where B (e.g. a lab profile) under- or over-tests A (e.g. a field recording), per natural frequency. */
+export function compareResponses(a: ResponseSpectra, b: ResponseSpectra): ResponseComparison {
+  const n = a.fnHz.length;
+  const rmsRatioDb = new Float64Array(n);
+  const extremeRatioDb = new Float64Array(n);
+  const damageRatio = new Float64Array(n);
+  const under = { rms: [] as number[], extreme: [] as number[], damage: [] as number[] };
+  if (b.fnHz.length !== n || b.fnHz.some((f, i) => f !== a.fnHz[i])) throw new RangeError("the two response spectra have different natural-frequency grids");
+  // Both in m/s^2 before the ratio (the damage is already in metres of relative displacement).
+  const unit = accelFactor(b.source.units, "m/s2") / accelFactor(a.source.units, "m/s2");
+  for (let i = 0; i < n; i++) {
+    rmsRatioDb[i] = 20 * Math.log10((unit * b.accelRms[i]!) / a.accelRms[i]!);
+    extremeRatioDb[i] = 20 * Math.log10((unit * b.extremePeak[i]!) / a.extremePeak[i]!);
+    damageRatio[i] = b.fatigueDamage[i]! / a.fatigueDamage[i]!;
+    if (rmsRatioDb[i]! < 0) under.rms.push(a.fnHz[i]!);
+    if (extremeRatioDb[i]! < 0) under.extreme.push(a.fnHz[i]!);
+    if (damageRatio[i]! < 1) under.damage.push(a.fnHz[i]!);
+  }
+  return { rmsRatioDb, extremeRatioDb, damageRatio, underTestsHz: under };
+}

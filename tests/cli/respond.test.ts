@@ -1,0 +1,50 @@
+import { describe, expect, it } from "vitest";
+import { cli } from "../helpers.js";
+
+describe("psdgate respond", () => {
+  it("--json carries the documented keys: fnHz, q, accelRms, milesRms, relDispRms (m), extremePeak, durationS, fatigueDamage, basquinB", async () => {
+    const r = await cli("respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "20:1000:3", "--q", "10", "--basquin", "6", "--json");
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    const n = j.fnHz.length;
+    expect(n).toBe(Math.floor(3 * Math.log2(50)) + 2);
+    for (const k of ["accelRms", "milesRms", "relDispRms", "extremePeak", "fatigueDamage"]) {
+      expect(j[k].length).toBe(n);
+      for (const v of j[k]) expect(v).toBeGreaterThan(0);
+    }
+    expect(j.q).toBe(10);
+    expect(j.basquinB).toBe(6);
+    expect(j.durationS).toBe(600);
+    expect(j.units.relDisp).toBe("m");
+    expect(j.kinematics.displacementPeakToPeak.units).toBe("m");
+    expect(j.caution).toMatch(/qualified engineer/);
+    // At 200-ish Hz, mid-plateau (0.005 g^2/Hz): exact / Miles near sqrt(1 + 1/Q^2) = 1.005.
+    const i = j.fnHz.findIndex((f: number) => f > 150 && f < 300);
+    expect(Math.abs(j.accelRms[i] / j.milesRms[i] - 1.005)).toBeLessThan(0.01);
+  });
+  it("a recording with --against the lab profile and --stroke-mm prints the comparison, the stroke check and both cautions", async () => {
+    const r = await cli("respond", "samples/quarry-bend-bracket.csv", "--channel", "base", "--fmin", "20", "--fmax", "1000", "--fn", "20:1000:1", "--q", "10",
+      "--duration", "3600", "--against", "samples/profiles/quarry-bend-bracket.yaml", "--stroke-mm", "25");
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/against +samples\/profiles\/quarry-bend-bracket\.yaml .*exposure 600 s against 3600 s/);
+    expect(r.stdout).toMatch(/B under-tests A in RMS at /);
+    expect(r.stdout).toMatch(/stroke +[\d.]+ mm estimated against 25 mm rated: within the rating/);
+    expect(r.stdout).toMatch(/CAUTION: The stroke figure is an estimate/);
+    expect(r.stdout).toMatch(/CAUTION: Single-degree-of-freedom estimates/);
+  });
+  it("bad input: one line, a code, exit 2, nothing on stdout", async () => {
+    for (const [args, code] of [
+      [["samples/profiles/quarry-bend-bracket.yaml", "--fn", "100:50", "--q", "10"], "OPTION_INVALID"],
+      [["samples/profiles/quarry-bend-bracket.yaml", "--fn", "100", "--q", "0.3"], "OPTION_INVALID"],
+      [["samples/kb210-run.wav", "--fn", "100", "--q", "10", "--as", "table"], "OPTION_INVALID"],
+      [["samples/no-such.yaml", "--fn", "100", "--q", "10"], "FILE_UNREADABLE"],
+      [["samples/quarry-bend-bracket.csv", "--channel", "seat", "--fn", "100", "--q", "10"], "CHANNEL_NOT_FOUND"],
+    ] as const) {
+      const r = await cli("respond", ...args);
+      expect(r.code, args.join(" ")).toBe(2);
+      expect(r.stdout).toBe("");
+      expect(r.stderr.trim().split("\n").length).toBe(1);
+      expect(r.stderr).toContain(`[${code}]`);
+    }
+  });
+});

@@ -1,0 +1,60 @@
+import { writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { describe, expect, it } from "vitest";
+import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { autocorrelationFourthSum } from "../../src/compare/amplitudeGates.js";
+import { welchPsd } from "../../src/estimate/psdEstimate.js";
+import { gaussian, tempDir } from "../helpers.js";
+import { shapedRecord } from "../shapedRecords.js";
+import { wavBytes } from "../wavBytes.js";
+
+const FS = 5120;
+const broadband = (f: number) => (f >= 20 && f <= 2000 ? 0.01 : 0);
+
+function wavFile(x: Float64Array, name: string): string {
+  const f = join(tempDir(), name);
+  writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FS, samples: Array.from(x) }));
+  return f;
+}
+
+describe("amplitudeGates", () => {
+  it("autocorrelationFourthSum: white noise gives 1 (independent samples), a narrow band much more", () => {
+    const w = welchPsd(gaussian(1 << 16, 1), 1024, { segmentLength: 256 });
+    expect(autocorrelationFourthSum(w)).toBeLessThan(1.05);
+    const nb = welchPsd(shapedRecord((f) => (f > 95 && f < 105 ? 1 : 0), 1024, 1 << 16, 2), 1024, { segmentLength: 1024 });
+    expect(autocorrelationFourthSum(nb)).toBeGreaterThan(10);
+  });
+  it("a record saturated at 2.2 sigma with 2 LSB of noise on top is in doubt (crest factor and kurtosis far below Gaussian)", async () => {
+    const x = shapedRecord(broadband, FS, 1 << 18, 3);
+    let s = 0;
+    for (const v of x) s += v * v;
+    const sigma = Math.sqrt(s / x.length);
+    const lsb = (4.4 * sigma) / 65536;
+    const noise = gaussian(x.length, 4);
+    for (let i = 0; i < x.length; i++) x[i] = Math.max(-2.2 * sigma, Math.min(2.2 * sigma, x[i]!)) + 2 * lsb * noise[i]!;
+    const a = await analyzeRecording(wavFile(x, "saturated.wav"), { segmentLength: 2048 });
+    const codes = a.channels[0]!.doubtFindings.map((d) => d.code);
+    expect(codes).toContain("CREST_LOW");
+    expect(codes).toContain("KURTOSIS_LOW");
+  });
+  it("a Gaussian record of the same spectrum raises neither doubt (20 records)", async () => {
+    for (let r = 0; r < 20; r++) {
+      const a = await analyzeRecording(wavFile(shapedRecord(broadband, FS, 1 << 16, 100 + r), `g${r}.wav`), { segmentLength: 2048 });
+      expect(a.channels[0]!.doubtFindings).toEqual([]);
+    }
+  });
+  it("a record with shocks on top gets a note (kurtosis above Gaussian), not a doubt", async () => {
+    const x = shapedRecord(broadband, FS, 1 << 17, 5);
+    for (let i = 1000; i < x.length; i += 9000) x[i] = x[i]! + 30;
+    const a = await analyzeRecording(wavFile(x, "shocks.wav"), { segmentLength: 2048 });
+    expect(a.channels[0]!.notes.map((n) => n.code)).toContain("KURTOSIS_HIGH");
+    expect(a.channels[0]!.doubtFindings.map((d) => d.code)).not.toContain("KURTOSIS_LOW");
+  });
+  it("a slow drift far below the first line is a note, and check is not made inconclusive by it", async () => {
+    const x = shapedRecord(broadband, FS, 1 << 18, 6);
+    for (let i = 0; i < x.length; i++) x[i] = x[i]! + 3 * Math.sin((2 * Math.PI * 0.05 * i) / FS) + 0.1 * (i / x.length);
+    const a = await analyzeRecording(wavFile(x, "drift.wav"), { segmentLength: 2048 });
+    expect(a.channels[0]!.notes.map((n) => n.code)).toContain("BELOW_FIRST_LINE");
+    expect(a.channels[0]!.doubtFindings).toEqual([]);
+  });
+});
