@@ -66,7 +66,7 @@ describe.skipIf(!url || !built)("queue end to end (built CLI, real PostgreSQL)",
   const activeJobs = async () => Number((await client.query("SELECT count(*) AS n FROM pgboss.job WHERE state = 'active'")).rows[0].n);
 
   beforeAll(async () => {
-    db = freshDatabase(url!);
+    db = await freshDatabase(url!);
     client = new pg.Client({ connectionString: db });
     await client.connect();
   });
@@ -151,8 +151,8 @@ describe.skipIf(!url || !built)("queue end to end (built CLI, real PostgreSQL)",
 
 describe.skipIf(!url || !built)("queue commands and the database password", () => {
   const run = (args: string[], env: NodeJS.ProcessEnv = {}) => spawnSync("node", [BIN, ...args], { encoding: "utf8", env: { ...process.env, ...env } });
-  it("a password in --db or PGPASSWORD never appears in output; an unreachable server is DB_UNREACHABLE", () => {
-    const db = new URL(freshDatabase(url!));
+  it("a password in --db or PGPASSWORD never appears in output; an unreachable server is DB_UNREACHABLE", async () => {
+    const db = new URL(await freshDatabase(url!));
     db.password = "s3cr3t-pw"; // trust authentication ignores it
     const s = run(["queue", "status", "--db", db.toString()]);
     expect(s.status, s.stderr).toBe(0);

@@ -1,5 +1,5 @@
 import { randomBytes } from "node:crypto";
-import { execFileSync } from "node:child_process";
+import pg from "pg";
 import { inject, it } from "vitest";
 
 /**
@@ -20,9 +20,15 @@ export function postgresUrl(file: string): string | undefined {
 }
 
 /** A fresh database on the server for one test file, so files can run side by side. */
-export function freshDatabase(url: string): string {
+export async function freshDatabase(url: string): Promise<string> {
   const name = `t_${randomBytes(6).toString("hex")}`;
-  execFileSync("psql", [url, "-q", "-v", "ON_ERROR_STOP=1", "-c", `CREATE DATABASE ${name}`], { stdio: "pipe" });
+  const c = new pg.Client({ connectionString: url });
+  await c.connect();
+  try {
+    await c.query(`CREATE DATABASE ${name}`);
+  } finally {
+    await c.end();
+  }
   const u = new URL(url);
   u.pathname = `/${name}`;
   return u.toString();

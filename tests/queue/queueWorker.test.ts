@@ -37,7 +37,7 @@ describe("transientDbError", () => {
 describe.skipIf(!url)("queue worker (in process, real PostgreSQL)", () => {
   let store: QueueStore;
   beforeAll(async () => {
-    store = await openQueue(dbTarget(freshDatabase(url!), {}), { poolSize: 4, asyncCommit: true });
+    store = await openQueue(dbTarget(await freshDatabase(url!), {}), { poolSize: 4, asyncCommit: true });
   });
   afterAll(async () => store?.close());
   const rows = async (sql: string, v: unknown[] = []) => (await store.pool.query(sql, v)).rows;
