@@ -11,6 +11,7 @@ import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } f
 import { WelchAccumulator } from "./estimate/welchPsd.js";
 import { spectralWindow } from "./estimate/windows.js";
 import type { CsvReadOptions } from "./read/csvTimeHistory.js";
+import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
 import { openTimeHistory } from "./read/openTimeHistory.js";
 import type { ChannelInfo, RecordingInfo, TimeHistorySource } from "./read/timeHistory.js";
 import type { AccelUnit } from "./units.js";
@@ -102,6 +103,15 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     if (v !== undefined && !(v >= 0 && Number.isFinite(v))) throw new InputError("OPTION_INVALID", { option: name, expected: "a frequency in Hz >= 0", received: String(v) });
   }
   const settings = normalizeWelchOptions(options, info.sampleRateHz);
+  // Memory is bounded before it is taken: channels x segment length (read/analysisLimits.ts).
+  const spectrumChannels = options.spectrum !== false ? select.length : 0;
+  if (spectrumChannels * settings.segmentLength > MAX_SPECTRUM_SAMPLES) {
+    await source.close?.();
+    throw new InputError("ANALYSIS_TOO_LARGE", {
+      file: info.file, expected: `channels x segment length at most ${MAX_SPECTRUM_SAMPLES} (${Math.max(1, Math.floor(MAX_SPECTRUM_SAMPLES / settings.segmentLength))} channels at ${settings.segmentLength} points)`,
+      received: `${spectrumChannels} channels x ${settings.segmentLength}`, hint: "select fewer channels with --channel, or use a shorter --segment or a coarser --resolution",
+    });
+  }
   const window = spectralWindow(settings.window, settings.segmentLength);
   const power = new SegmentPower(settings.segmentLength);
   const spectrum = options.spectrum !== false;
@@ -121,6 +131,9 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     },
     options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
   );
+  if (summary.frames === 0) {
+    throw new InputError("RECORD_TOO_SHORT", { file: info.file, expected: "at least one sample", received: "0 samples", hint: "the recording holds no data" });
+  }
   const fs = summary.sampleRateHz;
   // The line spacing follows the final rate (a CSV time column is only known once fully read).
   const resolved = { ...settings, resolutionHz: fs / settings.segmentLength };

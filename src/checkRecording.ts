@@ -1,8 +1,8 @@
-import { readFile } from "node:fs/promises";
 import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
 import { judgeSpectrum, overallVerdict, withDoubts, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
 import { InputError, quoted } from "./errors.js";
+import { readProfileText } from "./read/profileFile.js";
 
 /** How several control channels make one control spectrum (multipoint control). */
 export type ControlRule = "average" | "largest";
@@ -33,14 +33,8 @@ export interface CheckResult {
 
 /** Read and validate a profile file (JSON, YAML or two-column CSV). */
 export async function loadProfile(file: string): Promise<TestProfile> {
-  let text: string;
-  try {
-    text = await readFile(file, "utf8");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable profile file", received: code === "ENOENT" ? "no such file" : String(code) });
-  }
-  return parseProfile(text, file);
+  // A regular file of bounded size only (read/profileFile.ts): a FIFO never blocks, a huge file is refused.
+  return parseProfile(await readProfileText(file), file);
 }
 
 /** What the judgement needs of one analysed channel. */

@@ -25,6 +25,36 @@ export interface InputErrorDetails extends ErrorPlace {
   hint?: string | undefined;
 }
 
+/**
+ * Every code psdgate can give, by group. README's "Errors" section lists the same set
+ * (tests/errors.test.ts holds the two, and every code literal in src/, to each other).
+ */
+export const ERROR_CODES = {
+  csv: [
+    "CSV_EMPTY", "CSV_NO_DATA", "CSV_TOO_SHORT", "CSV_NOT_A_NUMBER", "CSV_EMPTY_CELL", "CSV_TOO_FEW_FIELDS", "CSV_TOO_MANY_FIELDS",
+    "CSV_TIME_DUPLICATE", "CSV_TIME_DECREASING", "CSV_TIME_IRREGULAR", "CSV_TIME_NOT_A_NUMBER", "CSV_TIME_UNIT", "CSV_NO_RATE",
+    "CSV_ENCODING", "CSV_BINARY", "CSV_DECIMAL_AMBIGUOUS", "CSV_LINE_TOO_LONG", "CSV_LINE_ENDS", "CSV_DUPLICATE_COLUMN", "CSV_NO_CHANNELS",
+  ],
+  wav: [
+    "WAV_NOT_RIFF", "WAV_TRUNCATED_HEADER", "WAV_NO_FMT", "WAV_BAD_FMT", "WAV_NO_DATA", "WAV_DATA_BEFORE_FMT", "WAV_DATA_TRUNCATED",
+    "WAV_UNSUPPORTED_ENCODING", "WAV_NO_CHANNELS",
+  ],
+  profile: ["PROFILE_INVALID", "PROFILE_SYNTAX", "PROFILE_CSV", "PROFILE_TOO_LARGE"],
+  psdTable: ["PSD_TABLE_HEADER", "PSD_TABLE_NUMBER", "PSD_TABLE_SPACING", "PSD_TABLE_SHORT", "OPTION_MISSING"],
+  limits: ["TOO_MANY_CHANNELS", "ANALYSIS_TOO_LARGE", "WORKER_LIMIT"],
+  usage: [
+    "USAGE", "OPTION_INVALID", "OPTION_CONFLICT", "OPTION_NOT_FOR_WAV", "CHANNEL_NOT_FOUND", "TIME_COLUMN_NOT_FOUND", "UNIT_CONFLICT",
+    "RECORD_TOO_SHORT", "NO_FILES", "NO_FILES_MATCH", "FILE_UNREADABLE",
+  ],
+  output: ["OUTPUT_EXISTS", "OUTPUT_IS_INPUT", "OUTPUT_UNWRITABLE", "OUTPUT_FORMAT"],
+  internal: ["INTERNAL"],
+} as const;
+
+export type ErrorCode = (typeof ERROR_CODES)[keyof typeof ERROR_CODES][number];
+
+/** All codes in one list. */
+export const ALL_ERROR_CODES: readonly ErrorCode[] = Object.values(ERROR_CODES).flat();
+
 export class InputError extends Error {
   readonly code: string;
   readonly details: InputErrorDetails;

@@ -24,13 +24,15 @@ export type BatchReply =
   | { id: number; inputError: { code: string; details: InputError["details"] } }
   | { id: number; internal: string };
 
-export type Outcome<T> = { file: string; ok: true; result: T } | { file: string; ok: false; error: InputError } ;
+/** `internal` marks an error that is psdgate's own fault (exit 70), not the input's. */
+export type Outcome<T> = { file: string; ok: true; result: T } | { file: string; ok: false; error: InputError; internal?: boolean };
 
 const WORKER = new URL("./batchWorker.js", import.meta.url);
 
 export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   files: string[], options: Omit<CheckOptions, "onProgress">, profile: TestProfile | undefined, jobs: number,
   onOutcome: (o: Outcome<T>, index: number) => void, onProgress?: (bytesDone: number) => void,
+  limits: WorkerLimits = WORKER_LIMITS,
 ): Promise<void> {
   const useWorkers = jobs > 1 && files.length > 1 && existsSync(fileURLToPath(WORKER));
   // A batch is parallel across files only: one thread per recording, so --jobs says how many cores it uses.
@@ -63,51 +65,84 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
         const result = (profile ? await (await import("../checkRecording.js")).checkRecording(files[i]!, profile, opts) : await (await import("../analyzeRecording.js")).analyzeRecording(files[i]!, opts)) as T;
         deliver(i, { file: files[i]!, ok: true, result });
       } catch (e) {
-        if (!(e instanceof InputError)) throw e;
-        deliver(i, { file: files[i]!, ok: false, error: e });
+        if (e instanceof InputError) deliver(i, { file: files[i]!, ok: false, error: e });
+        else deliver(i, { file: files[i]!, ok: false, internal: true, error: internalError(files[i]!, String((e as Error)?.message ?? e)) });
       }
     }
     return;
   }
 
-  const pool = Array.from({ length: Math.min(jobs, files.length) }, () => new Worker(WORKER));
+  // Each worker is capped (resourceLimits): a recording that needs more memory ends its worker, and
+  // that file alone gets a WORKER_LIMIT error; a fresh worker takes the rest of the queue.
+  const requeued: number[] = [];
   let next = 0;
-  let internal: Error | undefined;
+  let delivered = 0;
+  const workers = new Set<Worker>();
+  const take = (): number | undefined => (requeued.length > 0 ? requeued.shift() : next < files.length ? next++ : undefined);
+  const remaining = () => requeued.length > 0 || next < files.length;
   try {
-    await Promise.all(
-      pool.map(
-        (w) =>
-          new Promise<void>((resolve, reject) => {
-            let inHand = 0;
-            const send = () => {
-              if (next >= files.length || internal) {
-                if (inHand === 0) resolve();
-                return;
-              }
-              inHand++;
-              const id = next++;
-              w.postMessage({ id, file: files[id]!, options, profile } satisfies BatchJob);
-            };
-            w.on("message", (m: BatchReply | { id: number; progress: number }) => {
-              if ("progress" in m) return report(m.id, m.progress);
-              inHand--;
-              if ("result" in m) deliver(m.id, { file: files[m.id]!, ok: true, result: m.result as T });
-              else if ("inputError" in m) deliver(m.id, { file: files[m.id]!, ok: false, error: new InputError(m.inputError.code, m.inputError.details) });
-              else {
-                internal = new Error(`worker failed on ${files[m.id]}: ${m.internal}`);
-                reject(internal);
-                return;
-              }
-              send();
+    await new Promise<void>((resolveAll) => {
+      const settle = (id: number, o: Outcome<T>) => {
+        deliver(id, o);
+        if (++delivered === files.length) resolveAll();
+      };
+      const start = () => {
+        const w = new Worker(WORKER, { resourceLimits: limits });
+        workers.add(w);
+        const inHand: number[] = [];
+        let dead = false;
+        const send = () => {
+          const id = take();
+          if (id === undefined) return;
+          inHand.push(id);
+          w.postMessage({ id, file: files[id]!, options, profile } satisfies BatchJob);
+        };
+        w.on("message", (m: BatchReply | { id: number; progress: number }) => {
+          if ("progress" in m) return report(m.id, m.progress);
+          inHand.splice(inHand.indexOf(m.id), 1);
+          const file = files[m.id]!;
+          if ("result" in m) settle(m.id, { file, ok: true, result: m.result as T });
+          else if ("inputError" in m) settle(m.id, { file, ok: false, error: new InputError(m.inputError.code, m.inputError.details) });
+          else settle(m.id, { file, ok: false, internal: true, error: internalError(file, m.internal.split("\n")[0]!) });
+          send();
+        });
+        const died = (why: string) => {
+          if (dead) return;
+          dead = true;
+          workers.delete(w);
+          // The worker runs its jobs one after another: the first in hand is the one it died on.
+          const [culprit, ...waiting] = inHand;
+          requeued.unshift(...waiting);
+          if (culprit !== undefined) {
+            settle(culprit, {
+              file: files[culprit]!, ok: false,
+              error: new InputError("WORKER_LIMIT", {
+                file: files[culprit]!, expected: `a recording that one batch worker can analyse within ${limits.maxOldGenerationSizeMb ?? WORKER_LIMITS.maxOldGenerationSizeMb} MB of heap`, received: why,
+                hint: "analyse it on its own, or select fewer --channel",
+              }),
             });
-            w.on("error", reject);
-            // Two jobs in hand, so a worker never waits for this thread between recordings.
-            send();
-            send();
-          }),
-      ),
-    );
+          }
+          if (remaining()) start();
+        };
+        w.on("error", (e: Error & { code?: string }) => died(e.code === "ERR_WORKER_OUT_OF_MEMORY" ? "a worker that ran out of memory" : `a worker that failed (${e.message.split("\n")[0]})`));
+        w.on("exit", (code) => died(`a worker that stopped (exit code ${code})`));
+        // Two jobs in hand, so a worker never waits for this thread between recordings.
+        send();
+        send();
+      };
+      const n = Math.min(jobs, files.length);
+      for (let k = 0; k < n; k++) start();
+    });
   } finally {
-    await Promise.all(pool.map((w) => w.terminate()));
+    await Promise.all([...workers].map((w) => w.terminate()));
   }
+}
+
+/** Heap limits of one batch worker (node:worker_threads resourceLimits). Sample buffers live outside the heap and are bounded by the analysis limits (analyzeRecording.ts). */
+export const WORKER_LIMITS = { maxOldGenerationSizeMb: 1024, maxYoungGenerationSizeMb: 64, stackSizeMb: 8 } as const;
+export type WorkerLimits = { maxOldGenerationSizeMb?: number; maxYoungGenerationSizeMb?: number; stackSizeMb?: number };
+
+/** An error that is psdgate's fault, kept to its one recording in a batch. */
+export function internalError(file: string, message: string): InputError {
+  return new InputError("INTERNAL", { file, expected: "an analysis without an internal error (a bug in psdgate; please report it)", received: message });
 }

@@ -1,4 +1,5 @@
 import { EXIT, InputError } from "../errors.js";
+import { removeTemporaryFilesSync } from "../report/writeAtomic.js";
 import { runCli } from "./main.js";
 
 // A reader that stops early (`psdgate psd *.csv --json | head`) closes the pipe: the rest of the output
@@ -8,7 +9,18 @@ process.stdout.on("error", (e: NodeJS.ErrnoException) => {
   if (e.code === "EPIPE" || e.code === "ERR_STREAM_DESTROYED") return;
   const err = new InputError("OUTPUT_UNWRITABLE", { expected: "a writable standard output", received: e.code ?? e.message });
   process.stderr.write(`psdgate: ${err.message}\n`);
+  removeTemporaryFilesSync();
   process.exit(EXIT.input);
 });
+
+// Interrupted (Ctrl-C, a job engine's SIGTERM, a closed terminal): remove every temporary output
+// file still being written, then exit 128 + the signal number, as a shell reports it (common practice).
+for (const [signal, code] of [["SIGINT", 130], ["SIGTERM", 143], ["SIGHUP", 129]] as const) {
+  process.on(signal, () => {
+    removeTemporaryFilesSync();
+    process.exit(code);
+  });
+}
+process.on("exit", removeTemporaryFilesSync);
 
 process.exitCode = await runCli(process.argv.slice(2));

@@ -1,6 +1,6 @@
 import { mkdir, stat } from "node:fs/promises";
 import { availableParallelism } from "node:os";
-import { basename, join } from "node:path";
+import { join } from "node:path";
 import { Command, CommanderError } from "commander";
 import type { RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
@@ -10,7 +10,10 @@ import { fixed, sig, signedDb, table } from "../report/format.js";
 import { psdCsv, psdJson, toolInfo } from "../report/psdJson.js";
 import { inspectText, psdText } from "../report/psdText.js";
 import { RULE_SUMMARY, VERDICT_MEANING } from "../report/ruleText.js";
-import { writeAtomic } from "../report/writeAtomic.js";
+import { checkOutputPath, writeAtomic } from "../report/writeAtomic.js";
+import { reportFileNames } from "../report/reportNames.js";
+import { printable } from "../report/printable.js";
+import { fsReason } from "../read/regularFile.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
 import type { Outcome } from "./batch.js";
@@ -76,7 +79,7 @@ class Exit extends Error {
 }
 
 /** Exit code of a set of outcomes: input error over fail over inconclusive over pass. */
-const RANK: Record<number, number> = { [EXIT.ok]: 0, [EXIT.inconclusive]: 1, [EXIT.fail]: 2, [EXIT.input]: 3 };
+const RANK: Record<number, number> = { [EXIT.ok]: 0, [EXIT.inconclusive]: 1, [EXIT.fail]: 2, [EXIT.input]: 3, [EXIT.internal]: 4 };
 function worst(codes: number[]): number {
   return codes.reduce((a, b) => (RANK[b]! > RANK[a]! ? b : a), EXIT.ok);
 }
@@ -116,9 +119,9 @@ export function buildProgram(io: CliIo): Command {
   const program = new Command("psdgate")
     .description("Acceleration PSD by Welch's method with confidence bounds, checked against a test profile")
     .version(VERSION, "-V, --version")
-    .showHelpAfterError("(run with --help for usage)")
     .exitOverride()
-    .configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
+    // commander's own errors (unknown command or option, missing value) become one USAGE line in runCli.
+    .configureOutput({ writeOut: io.stdout, writeErr: io.stderr, outputError: () => undefined });
 
   const progressFor = (o: BatchFlags) => createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, env), io.stderr);
 
@@ -135,7 +138,7 @@ export function buildProgram(io: CliIo): Command {
   /** Several recordings on the worker pool: JSON Lines or a summary table, exit code of the worst outcome. */
   async function many<T extends RecordingAnalysis | CheckResult>(
     files: string[], o: ParsedCommon & BatchFlags & { control?: CheckOptions["control"] }, profile: TestProfile | undefined,
-    code: (r: T) => number, summaryRow: (r: T) => string[][], header: string[], jsonOf: (r: T) => unknown,
+    code: (r: T) => number, summaryRow: (r: T, index: number) => string[][], header: string[], jsonOf: (r: T) => unknown,
   ): Promise<number> {
     const progress = progressFor(o);
     let totalBytes = 0;
@@ -146,25 +149,25 @@ export function buildProgram(io: CliIo): Command {
     const { runBatch } = await batch();
     await runBatch<T>(
       files, { ...analysisOptions(o), control: o.control }, profile, o.jobs ?? availableParallelism(),
-      (out: Outcome<T>) => {
+      (out: Outcome<T>, index: number) => {
         count++;
         if (!out.ok) {
-          codes.push(EXIT.input);
-          io.stderr(`psdgate: ${out.error.message}\n`);
+          codes.push(out.internal ? EXIT.internal : EXIT.input);
+          io.stderr(`psdgate: ${printable(out.error.message)}\n`);
           if (o.json) io.stdout(JSON.stringify({ tool: toolInfo(VERSION), input: { file: out.file }, error: { code: out.error.code, message: out.error.message } }) + "\n");
           rows.push([out.file, "", "", "", "", "error", out.error.code]);
-          progress.line(`[${count}/${files.length}] ${out.file}  error ${out.error.code}`);
+          progress.line(`[${count}/${files.length}] ${printable(out.file)}  error ${out.error.code}`);
           return;
         }
         const c = code(out.result);
         codes.push(c);
         if (o.json) io.stdout(JSON.stringify(jsonOf(out.result)) + "\n");
-        rows.push(...summaryRow(out.result));
-        progress.line(`[${count}/${files.length}] ${out.file}  ${"verdict" in out.result ? out.result.verdict : "done"}`);
+        for (const row of summaryRow(out.result, index)) rows.push(row);
+        progress.line(`[${count}/${files.length}] ${printable(out.file)}  ${"verdict" in out.result ? out.result.verdict : "done"}`);
       },
       (b) => progress.update(b, totalBytes),
     ).finally(() => progress.end());
-    if (!o.json) io.stdout(`psdgate ${VERSION}: ${files.length} recordings\n${table(rows)}\n`);
+    if (!o.json) io.stdout(`psdgate ${VERSION}: ${files.length} recordings\n${table(rows.map((r) => r.map(printable)))}\n`);
     return worst(codes);
   }
 
@@ -179,23 +182,30 @@ export function buildProgram(io: CliIo): Command {
     .option("--csv <out>", "also write frequency, PSD and bounds of each channel to this CSV file (one recording)")
     .action(async (args: string[], o: ParsedCommon & BatchFlags & { csv?: string }) => {
       const files = await expandFiles(args, o.filesFrom, readStdin);
+      const inputs = o.filesFrom !== undefined ? [...files, o.filesFrom] : files;
       if (files.length > 1) {
         if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
         throw new Exit(await many<RecordingAnalysis>(
           files, o, undefined, (r) => {
             const short = tooShort(r);
-            if (short) io.stderr(`psdgate: ${short.message}\n`);
+            if (short) io.stderr(`psdgate: ${printable(short.message)}\n`);
             return short ? EXIT.input : EXIT.ok;
           },
           (r) => r.channels.map((c) => [r.input.file, c.name, `${sig(c.parseval.rmsTime, 4)} ${accelLabel(c.units)}`, `${sig(c.parseval.rmsPsd, 4)} ${accelLabel(c.units)}`, fixed(c.parseval.ratio, 4), fixed(c.psd.dof, 1), tooShort(r) ? "too short" : c.doubts.length ? "DOUBT" : "ok"]),
-          ["file", "channel", "RMS time", "RMS PSD", "ratio", "DOF", "status"], (r) => psdJson(r, VERSION),
+          ["file", "channel", "RMS time", "RMS PSD", "ratio", "DOF", "status"],
+          (r) => {
+            // A record too short for one segment is an input error: its JSON line says so, as an unreadable one does.
+            const short = tooShort(r);
+            return short ? { ...psdJson(r, VERSION), error: { code: short.code, message: short.message } } : psdJson(r, VERSION);
+          },
         ));
       }
+      if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
       const { analyzeRecording } = await analysis();
       const a = await one(o, (onProgress) => analyzeRecording(files[0]!, { ...analysisOptions(o), onProgress }));
       const short = tooShort(a);
       if (short) throw short;
-      if (o.csv !== undefined) await writeAtomic(o.csv, psdCsv(a), { inputs: [a.input.file], force: o.force, option: "--csv" });
+      if (o.csv !== undefined) await writeAtomic(o.csv, psdCsv(a), { inputs, force: o.force, option: "--csv" });
       io.stdout(o.json ? JSON.stringify(psdJson(a, VERSION)) + "\n" : psdText(a, VERSION));
     });
 
@@ -226,16 +236,20 @@ export function buildProgram(io: CliIo): Command {
       const { worstFirst } = await compliance();
       const profile = await loadProfile(o.profile);
       const files = await expandFiles(args, o.filesFrom, readStdin);
+      const inputs = [...files, o.profile, ...(o.filesFrom !== undefined ? [o.filesFrom] : [])];
+      if (o.report !== undefined && files.length === 1) checkOutputPath(o.report, inputs, o.force, "--report");
       if (o.reportDir !== undefined) {
         await mkdir(o.reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
-          throw new InputError("OUTPUT_UNWRITABLE", { option: "--report-dir", expected: "a folder that exists or can be made", received: `${o.reportDir} (${e.code})` });
+          throw new InputError("OUTPUT_UNWRITABLE", { option: "--report-dir", expected: "a folder that exists or can be made", received: `${o.reportDir} (${fsReason(e)})` });
         });
       }
       const now = new Date();
       const wantsReport = o.report !== undefined || o.reportDir !== undefined;
-      const reportPath = (r: CheckResult) => (o.report !== undefined ? o.report : join(o.reportDir!, `${basename(r.analysis.input.file).replace(/\.[^.]*$/, "")}.html`));
-      const writeReport = (r: CheckResult) =>
-        writeAtomic(reportPath(r), checkHtml(r, VERSION, now), { inputs: [...files, o.profile], force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
+      // One name per recording, derived from its path, never shared (report/reportNames.ts).
+      const names = o.reportDir !== undefined ? reportFileNames(files) : [];
+      const reportPath = (index: number) => (o.report !== undefined ? o.report : join(o.reportDir!, names[index]!));
+      const writeReport = (r: CheckResult, index: number) =>
+        writeAtomic(reportPath(index), checkHtml(r, VERSION, now), { inputs, force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
       if (files.length > 1) {
         if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
         // Report writes run beside the batch; the first failure is kept and raised at the end.
@@ -243,8 +257,8 @@ export function buildProgram(io: CliIo): Command {
         let reportError: unknown;
         const code = await many<CheckResult>(
           files, { ...o, histogram: wantsReport, control }, profile, verdictCode,
-          (r) => {
-            if (o.reportDir !== undefined) reports.push(writeReport(r).catch((e: unknown) => void (reportError ??= e)));
+          (r, index) => {
+            if (o.reportDir !== undefined) reports.push(writeReport(r, index).catch((e: unknown) => void (reportError ??= e)));
             return r.channels.map((c, i) => {
               const ch = r.analysis.channels[i]!;
               const w = worstFirst(c.excursions)[0];
@@ -259,7 +273,7 @@ export function buildProgram(io: CliIo): Command {
         throw new Exit(code);
       }
       const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, control, onProgress }));
-      if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r);
+      if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r, 0);
       io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION)) + "\n" : checkText(r, VERSION));
       throw new Exit(verdictCode(r));
     });
@@ -280,6 +294,9 @@ export function buildProgram(io: CliIo): Command {
       const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");
       const { synthesizeProfile } = await import("../synth/synthesizeProfile.js");
       const profile = await loadProfile(o.profile);
+      if (/\.wav$/i.test(o.out) && 44 + Math.ceil(o.duration * o.rate) * o.channels * 4 > 0xffffffff) {
+        throw new InputError("OPTION_INVALID", { option: "--duration", expected: "a WAV output under 4 GiB (the RIFF size field is 32-bit)", received: `${o.duration} s x ${o.rate} Hz x ${o.channels} channel(s)`, hint: "write .csv, or fewer seconds or channels" });
+      }
       const names = Array.from({ length: o.channels }, (_, i) => `ch${i + 1}`);
       const writer = await createTimeHistoryWriter(o.out, { sampleRateHz: o.rate, channelNames: names, units: profile.units, force: o.force, option: "--out", inputs: [o.profile] });
       let r;
@@ -291,14 +308,33 @@ export function buildProgram(io: CliIo): Command {
         throw e;
       }
       const u = accelLabel(profile.units);
-      io.stdout(`psdgate ${VERSION}: wrote ${o.out}: ${r.frames} samples x ${o.channels} channel(s) at ${o.rate} Hz, seed ${o.seed}, ${r.filterTaps}-tap shaping filter\n`);
-      io.stdout(`  profile "${profile.title}" ${sig(profile.rms, 4)} ${u} RMS${o.levelDb !== 0 ? `, shifted ${o.levelDb} dB to ${sig(profile.rms * 10 ** (o.levelDb / 20), 4)} ${u}` : ""}\n`);
+      io.stdout(`psdgate ${VERSION}: wrote ${printable(o.out)}: ${r.frames} samples x ${o.channels} channel(s) at ${o.rate} Hz, seed ${o.seed}, ${r.filterTaps}-tap shaping filter\n`);
+      io.stdout(`  profile "${printable(profile.title)}" ${sig(profile.rms, 4)} ${u} RMS${o.levelDb !== 0 ? `, shifted ${o.levelDb} dB to ${sig(profile.rms * 10 ** (o.levelDb / 20), 4)} ${u}` : ""}\n`);
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
     });
 
   for (const register of [registerTransfer, registerRespond, registerQueue]) register(program, io);
 
   return program;
+}
+
+const USAGE_EXPECTED: Record<string, string> = {
+  "commander.unknownCommand": "one of the commands inspect, psd, profile, check, synth",
+  "commander.help": "a command: inspect, psd, profile, check or synth",
+  "commander.unknownOption": "an option of this command",
+  "commander.missingArgument": "the command's arguments",
+  "commander.optionMissingArgument": "a value after the option",
+  "commander.missingMandatoryOptionValue": "every required option",
+  "commander.excessArguments": "no more arguments",
+  "commander.conflictingOption": "options that go together",
+};
+
+/** commander's own error as one line with the USAGE code, like every other error. */
+function usageError(e: CommanderError): InputError {
+  return new InputError("USAGE", {
+    expected: USAGE_EXPECTED[e.code] ?? "a valid command line",
+    received: e.code === "commander.help" ? "no command (the help above lists them)" : e.message.replace(/^error: /, "").split("\n")[0]!, hint: "run psdgate --help",
+  });
 }
 
 /** Runs the CLI and returns the exit code; never throws. */
@@ -310,12 +346,16 @@ export async function runCli(argv: string[], io: CliIo = processIo): Promise<num
   } catch (e) {
     if (e instanceof Exit) return e.code;
     if (e instanceof InputError) {
-      io.stderr(`psdgate: ${e.message}\n`);
+      io.stderr(`psdgate: ${printable(e.message)}\n`);
       return EXIT.input;
     }
-    if (e instanceof CommanderError) return e.exitCode === 0 ? EXIT.ok : EXIT.input;
+    if (e instanceof CommanderError) {
+      if (e.exitCode === 0) return EXIT.ok;
+      io.stderr(`psdgate: ${usageError(e).message}\n`);
+      return EXIT.input;
+    }
     const err = e as Error;
-    io.stderr(`psdgate: internal error: ${err?.message ?? String(e)}\nThis is a bug in psdgate ${VERSION}; please report it with the command line and input file.\n`);
+    io.stderr(`psdgate: internal error: ${printable(String(err?.message ?? e))} [INTERNAL]\nThis is a bug in psdgate ${VERSION}; please report it with the command line and input file.\n`);
     if (io.env?.PSDGATE_DEBUG) io.stderr(`${err?.stack}\n`);
     return EXIT.internal;
   }

@@ -3,6 +3,7 @@ import type { AnalysisOptions } from "../analyzeRecording.js";
 import { InputError } from "../errors.js";
 import type { Detrend } from "../estimate/welchPsd.js";
 import type { WindowName } from "../estimate/windows.js";
+import { CONFIDENCE_RULE, MAX_CONFIDENCE, MIN_CONFIDENCE } from "../estimate/welchOptions.js";
 import { ACCEL_UNITS, parseAccelUnit, type AccelUnit } from "../units.js";
 
 /** Option parsers that fail with the option's name, the rule and the value received. */
@@ -54,7 +55,7 @@ export function addSpectrumOptions(cmd: Command, segmentDefault = "4096"): Comma
     .option("-r, --resolution <hz>", "line spacing wanted; picks the smallest power-of-two segment that gives it", numberOption("--resolution", (x) => x > 0, "a line spacing in Hz above 0"))
     .option("--overlap <f>", "overlap of segments as a fraction, 0 <= f < 1 (default 0.5)", numberOption("--overlap", () => true, "a fraction 0 <= F < 1"))
     .option("--detrend <how>", "per segment: none, mean or linear (default mean)", choice<Detrend>("--detrend", ["none", "mean", "linear"]))
-    .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", () => true, "a level between 0 and 1"));
+    .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", (x) => x >= MIN_CONFIDENCE && x <= MAX_CONFIDENCE, CONFIDENCE_RULE));
 }
 
 /** The band for a band RMS (psd only: check always uses the profile's range). */

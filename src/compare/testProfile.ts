@@ -1,8 +1,9 @@
 import { createHash } from "node:crypto";
 import Papa from "papaparse";
-import { parse as parseYaml, YAMLParseError } from "yaml";
+import { isScalar, parseDocument, visit, YAMLParseError } from "yaml";
 import { z } from "zod";
 import { InputError } from "../errors.js";
+import { MAX_PROFILE_BYTES } from "../read/profileFile.js";
 import { STANDARD_GRAVITY_M_PER_S2, type AccelUnit } from "../units.js";
 
 /**
@@ -249,12 +250,13 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
   const num = (f: string) => {
     const t = f.trim();
     if (t === "") return NaN;
-    return Number(delimiter !== "," ? t.replace(",", ".") : t);
+    // Decimal numbers only: Number() would also read "0x14" as 20 and "0b1" as 1.
+    return decimalNumber(delimiter !== "," ? t.replace(",", ".") : t);
   };
   let units = "g2/Hz";
   let start = 0;
   if (rows[0] && rows[0].some((f) => Number.isNaN(num(f)))) {
-    if (rows[0].join(",").includes("m/s")) units = "(m/s2)2/Hz";
+    units = csvProfileUnits(rows[0], file);
     start = 1;
   }
   const points = rows.slice(start).map((r, i) => {
@@ -275,16 +277,12 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
 /** Parse a profile from its text (JSON, YAML or CSV by extension). */
 export function parseProfile(text: string, file: string): TestProfile {
   const sha = createHash("sha256").update(text).digest("hex");
+  checkProfileSize(text, file);
   let doc: unknown;
   let defaults: string[] = [];
   if (/\.csv$/i.test(file)) ({ doc, defaults } = profileFromCsv(text, file));
   else if (/\.ya?ml$/i.test(file)) {
-    try {
-      doc = parseYaml(text);
-    } catch (e) {
-      const pos = e instanceof YAMLParseError ? e.linePos?.[0] : undefined;
-      throw new InputError("PROFILE_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
-    }
+    doc = parseYamlProfile(text, file);
   } else {
     try {
       doc = JSON.parse(text);
@@ -308,8 +306,166 @@ export function parseProfile(text: string, file: string): TestProfile {
       throw new InputError("PROFILE_SYNTAX", { file, line, column, expected: "valid JSON", received: msg.replace(/ in JSON at position \d+.*$/, "").replace(/, (\.\.\.)?"[^]*$/, "") });
     }
   }
-  return normalizeProfile(validateProfileDocument(doc, file), file, sha, defaults);
+  checkDocumentDepth(doc, file);
+  return checkProfileArithmetic(normalizeProfile(validateProfileDocument(doc, file), file, sha, defaults));
 }
+
+// ---- Limits on what a profile file may hold (issue #12): size, nesting, tags, number forms, finite arithmetic.
+
+/** Deepest nesting of arrays and objects a profile may have; the format needs 3 (tolerance.bands[i]). */
+export const MAX_PROFILE_DEPTH = 32;
+
+/** Size and bracket nesting, checked on the text before any parser runs (a 100 000-deep JSON would overflow its stack). */
+function checkProfileSize(text: string, file: string): void {
+  if (text.length > MAX_PROFILE_BYTES) {
+    throw new InputError("PROFILE_TOO_LARGE", { file, expected: `a profile of at most ${MAX_PROFILE_BYTES} bytes`, received: `${text.length} characters` });
+  }
+  if (/\.csv$/i.test(file)) return;
+  // Depth of [ and { outside quoted strings: exact for JSON, and for YAML's flow collections.
+  const yaml = /\.ya?ml$/i.test(file);
+  let depth = 0;
+  let quote = "";
+  for (let i = 0; i < text.length; i++) {
+    const c = text[i]!;
+    if (quote !== "") {
+      if (c === "\\" && quote === '"') i++;
+      else if (c === quote) quote = "";
+      continue;
+    }
+    // In YAML a quote opens a string only where a value starts (`it's` in a plain title does not).
+    const valueStart = !yaml || i === 0 || /[\s[{,:]/.test(text[i - 1]!);
+    if ((c === '"' || (c === "'" && yaml)) && valueStart) quote = c;
+    else if (c === "#" && yaml && (i === 0 || /\s/.test(text[i - 1]!))) {
+      const nl = text.indexOf("\n", i);
+      i = nl < 0 ? text.length : nl;
+    } else if (c === "[" || c === "{") {
+      if (++depth > MAX_PROFILE_DEPTH) {
+        const before = text.slice(0, i);
+        throw new InputError("PROFILE_TOO_LARGE", {
+          file, line: before.split("\n").length, column: i - before.lastIndexOf("\n"), expected: `nesting at most ${MAX_PROFILE_DEPTH} deep`, received: `more than ${MAX_PROFILE_DEPTH} levels`,
+        });
+      }
+    } else if (c === "]" || c === "}") depth = Math.max(0, depth - 1);
+  }
+}
+
+/** Depth of the parsed document, walked without recursion (YAML block nesting is not bracketed). */
+function checkDocumentDepth(doc: unknown, file: string): void {
+  const stack: [unknown, number][] = [[doc, 0]];
+  while (stack.length > 0) {
+    const [v, d] = stack.pop()!;
+    if (v === null || typeof v !== "object") continue;
+    if (d >= MAX_PROFILE_DEPTH) throw new InputError("PROFILE_TOO_LARGE", { file, expected: `nesting at most ${MAX_PROFILE_DEPTH} deep`, received: `more than ${MAX_PROFILE_DEPTH} levels` });
+    for (const x of Object.values(v as object)) stack.push([x, d + 1]);
+  }
+}
+
+/**
+ * YAML with the YAML 1.2 core schema, quietly: no warnings printed (logLevel silent). A custom or
+ * language tag (`!!js/function`, `!foo`) is refused, not resolved; so are hexadecimal, octal and
+ * binary integers (a profile's numbers are decimal), and aliases are capped (yaml's maxAliasCount).
+ */
+function parseYamlProfile(text: string, file: string): unknown {
+  const doc = parseDocument(text, { logLevel: "silent", prettyErrors: true, uniqueKeys: true });
+  const first = doc.errors[0];
+  if (first) {
+    const pos = first instanceof YAMLParseError ? first.linePos?.[0] : undefined;
+    throw new InputError("PROFILE_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: "valid YAML", received: first.message.split("\n")[0] });
+  }
+  const tagWarning = doc.warnings.find((w) => w.code === "TAG_RESOLVE_FAILED");
+  if (tagWarning) {
+    const pos = tagWarning.linePos?.[0];
+    throw new InputError("PROFILE_SYNTAX", {
+      file, line: pos?.line, column: pos?.col, expected: "plain YAML values (no custom tags)", received: quotedShort(tagWarning.message.split("\n")[0]!.replace(/ at line \d+, column \d+:?$/, "")),
+    });
+  }
+  let bad: { format: string; at: number } | undefined;
+  visit(doc, {
+    Scalar(_key, node) {
+      if (isScalar(node) && (node.format === "HEX" || node.format === "OCT" || node.format === "BIN") && bad === undefined) bad = { format: node.format, at: node.range?.[0] ?? 0 };
+    },
+  });
+  if (bad) {
+    const before = text.slice(0, bad.at);
+    throw new InputError("PROFILE_INVALID", {
+      file, line: before.split("\n").length, column: bad.at - before.lastIndexOf("\n"), expected: "a decimal number",
+      received: `a ${bad.format === "HEX" ? "hexadecimal" : bad.format === "OCT" ? "octal" : "binary"} number ${quotedShort(text.slice(bad.at).split(/[\s,\]}]/)[0]!)}`,
+    });
+  }
+  try {
+    return doc.toJS({ maxAliasCount: 100 });
+  } catch (e) {
+    throw new InputError("PROFILE_SYNTAX", { file, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
+  }
+}
+
+function quotedShort(s: string): string {
+  return JSON.stringify(s.length > 40 ? `${s.slice(0, 40)}…` : s);
+}
+
+/** A decimal number (optionally signed, with fraction and exponent), or NaN: no hex, octal, binary, "", "Infinity". */
+export function decimalNumber(field: string): number {
+  const t = field.trim();
+  return /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t) ? Number(t) : NaN;
+}
+
+/**
+ * The unit of a CSV profile from its header: the level column may say `[g2/Hz]` (also g^2/Hz, g²/Hz)
+ * or `[(m/s2)2/Hz]` (also (m/s^2)^2/Hz, m2/s4/Hz, (m/s²)²/Hz); the frequency column `[Hz]`. Any other
+ * unit, such as mg2/Hz, is an error rather than a guess. No unit means g2/Hz.
+ */
+function csvProfileUnits(header: string[], file: string): string {
+  const unitOf = (f: string) => /[[(]\s*([^\])]*(?:\)[^\])]*)?)\s*[\])]\s*$/.exec(f.trim())?.[1]?.trim();
+  const norm = (u: string) => u.replace(/\s+/g, "").replace(/\^/g, "").replace(/²/g, "2").replace(/⁴/g, "4").toLowerCase();
+  const hzUnit = header[0] !== undefined ? unitOf(header[0]) : undefined;
+  if (hzUnit !== undefined && norm(hzUnit) !== "hz") {
+    throw new InputError("PROFILE_CSV", { file, line: 1, column: 1, expected: "a frequency column in Hz", received: quotedShort(hzUnit) });
+  }
+  const levelUnit = header[1] !== undefined ? unitOf(header[1]) : undefined;
+  if (levelUnit === undefined) return "g2/Hz";
+  const u = norm(levelUnit);
+  if (u === "g2/hz") return "g2/Hz";
+  if (u === "(m/s2)2/hz" || u === "m2/s4/hz" || u === "(m/s/s)2/hz") return "(m/s2)2/Hz";
+  throw new InputError("PROFILE_CSV", { file, line: 1, column: 2, expected: "a level unit g2/Hz or (m/s2)2/Hz", received: quotedShort(levelUnit) });
+}
+
+/**
+ * Numbers that stay finite through the arithmetic: every breakpoint level (a slope of 1e6 dB/octave
+ * overflows it), every segment area and the overall RMS (a level of 1e308 times a frequency does),
+ * and the velocity and displacement integrals. A non-finite value is an error naming the point,
+ * never a "NaN g RMS" on the page.
+ */
+function checkProfileArithmetic(p: TestProfile): TestProfile {
+  const file = p.file;
+  p.breakpoints.forEach((b, i) => {
+    if (!(Number.isFinite(b.level) && b.level > 0)) {
+      fail(file, `points[${i}]`, "a level that stays a finite positive number (check the slope and the level)", String(b.level));
+    }
+  });
+  p.segments.forEach((s, i) => {
+    if (!(Number.isFinite(s.area) && s.area >= 0 && Number.isFinite(s.exponent))) {
+      fail(file, `points[${i + 1}]`, `a segment ${s.f1}–${s.f2} Hz whose area is a finite number`, String(s.area));
+    }
+  });
+  if (!(Number.isFinite(p.rms) && p.rms > 0)) fail(file, "points", "levels whose overall RMS is a finite number above 0", String(p.rms));
+  const m = profileMotion(p);
+  if (!Number.isFinite(m.velocityRms) || !Number.isFinite(m.displacementRms)) {
+    fail(file, "points", "levels and frequencies whose velocity and displacement are finite", `velocity ${m.velocityRms}, displacement ${m.displacementRms}`);
+  }
+  for (const [k, b] of p.bands.entries()) {
+    if (!(b.upperDb <= MAX_TOLERANCE_DB && b.lowerDb <= MAX_TOLERANCE_DB)) {
+      fail(file, `tolerance.bands[${k}]`, `limits of at most ${MAX_TOLERANCE_DB} dB`, `+${b.upperDb}/-${b.lowerDb} dB`);
+    }
+  }
+  const t = p.rmsToleranceDb;
+  if (t && !(Number.isFinite(t.upper) && Number.isFinite(t.lower) && t.upper <= MAX_TOLERANCE_DB && t.lower <= MAX_TOLERANCE_DB)) {
+    fail(file, "tolerance", `an RMS tolerance of at most ${MAX_TOLERANCE_DB} dB`, `+${t.upper}/-${t.lower} dB`);
+  }
+  return p;
+}
+
+/** Widest tolerance, in dB, that keeps 10^(dB/10) finite and meaningful (10^10 in power). */
+const MAX_TOLERANCE_DB = 100;
 
 export interface ProfileMotion {
   /** RMS velocity, m/s. */

@@ -30,6 +30,9 @@ export interface ResolvedWelchOptions {
 
 export const WELCH_DEFAULTS = { window: "hann", segmentLength: 4096, overlap: 0.5, detrend: "mean", confidence: 0.9 } as const;
 const MAX_SEGMENT = 1 << 22;
+export const MIN_CONFIDENCE = 1e-9;
+export const MAX_CONFIDENCE = 1 - 1e-9;
+export const CONFIDENCE_RULE = "a level between 0 and 1, at most 0.999999999 (e.g. 0.9)";
 
 function bad(option: string, expected: string, received: unknown): never {
   throw new InputError("OPTION_INVALID", { option, expected, received: String(received) });
@@ -44,7 +47,8 @@ export function normalizeWelchOptions(o: WelchOptions, sampleRateHz: number): Re
   const overlap = o.overlap ?? WELCH_DEFAULTS.overlap;
   if (!(overlap >= 0 && overlap < 1)) bad("--overlap", "a fraction 0 <= F < 1 (e.g. 0.5)", overlap);
   const confidence = o.confidence ?? WELCH_DEFAULTS.confidence;
-  if (!(confidence > 0 && confidence < 1)) bad("--confidence", "a level between 0 and 1 (e.g. 0.9)", confidence);
+  // Beyond 1 - 1e-9 the tail probability (1 - c) / 2 rounds away in the chi-square quantiles.
+  if (!(confidence >= MIN_CONFIDENCE && confidence <= MAX_CONFIDENCE)) bad("--confidence", CONFIDENCE_RULE, confidence);
   if (o.segmentLength !== undefined && o.resolutionHz !== undefined) {
     throw new InputError("OPTION_CONFLICT", { option: "--segment", expected: "either --segment or --resolution", received: "both" });
   }

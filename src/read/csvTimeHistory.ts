@@ -97,6 +97,14 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
     const line = head.subarray(0, nul).toString("latin1").split("\n").length;
     throw new InputError("CSV_BINARY", { file, line, expected: "text", received: "binary data (a NUL byte)", hint: "is this really a CSV file?" });
   }
+  if (head.indexOf(10) < 0) {
+    // No line feed in the head: CR-only line ends (classic Mac), or a first line longer than the head.
+    const cr = head.indexOf(13);
+    if (cr >= 0 && cr < head.length - 1) {
+      throw new InputError("CSV_LINE_ENDS", { file, line: 1, expected: "LF or CRLF line ends", received: "CR-only line ends", hint: "convert the line ends to LF (e.g. tr '\\r' '\\n')" });
+    }
+    if (!wholeFile) throw new InputError("CSV_LINE_TOO_LONG", { file, line: 1, expected: `a first line within the first ${HEAD_BYTES >> 10} KB`, received: "a longer line" });
+  }
   const lines = headLines(head, wholeFile).slice(0, 64);
   if (lines.length === 0) throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "only comments or blank lines" });
   const first = lines[0]!;

@@ -1,18 +1,14 @@
-import { open } from "node:fs/promises";
 import { InputError } from "../errors.js";
+import { MAX_CHANNELS } from "./analysisLimits.js";
 import { openCsvTimeHistory, type CsvReadOptions } from "./csvTimeHistory.js";
+import { openRegularFile } from "./regularFile.js";
 import type { TimeHistorySource } from "./timeHistory.js";
 import { openWavTimeHistory } from "./wavTimeHistory.js";
 
 /** Open a recording by its content: a RIFF/WAVE signature or a `.wav` name means WAV, anything else text. */
 export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): Promise<TimeHistorySource> {
-  let fh;
-  try {
-    fh = await open(file, "r");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "ENOENT" ? "no such file" : code === "EISDIR" ? "a folder" : String(code) });
-  }
+  // Only a regular file is opened: a FIFO would block the read for ever, and /dev/zero is a device, not an empty file.
+  const { handle: fh } = await openRegularFile(file, "a readable file");
   let magic: Buffer;
   try {
     const b = Buffer.alloc(4);
@@ -25,11 +21,19 @@ export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): P
     await fh.close();
   }
   const sig = magic.toString("latin1");
+  let source: TimeHistorySource;
   if (sig === "RIFF" || sig === "RIFX" || /\.wave?$/i.test(file)) {
-    if (csv.timeColumn !== undefined || csv.delimiter !== undefined || csv.decimal !== undefined) {
-      throw new InputError("OPTION_NOT_FOR_WAV", { file, expected: "no CSV options (--time-column, --delimiter, --decimal) for a WAV file", received: "CSV options" });
+    if (csv.timeColumn !== undefined || csv.delimiter !== undefined || csv.decimal !== undefined || csv.sampleRateHz !== undefined) {
+      throw new InputError("OPTION_NOT_FOR_WAV", { file, expected: "no CSV options (--rate, --time-column, --no-time-column, --delimiter, --decimal) for a WAV file", received: "CSV options", hint: "a WAV file states its own sample rate" });
     }
-    return openWavTimeHistory(file);
+    source = await openWavTimeHistory(file);
+  } else source = await openCsvTimeHistory(file, csv);
+  // Checked before any per-channel buffer exists (analysis limits: analysisLimits.ts).
+  if (source.info.channels.length > MAX_CHANNELS) {
+    await source.close?.();
+    throw new InputError("TOO_MANY_CHANNELS", {
+      file, expected: `at most ${MAX_CHANNELS} channels (${source.info.format === "csv" ? "columns" : "channels in the format chunk"})`, received: `${source.info.channels.length}`,
+    });
   }
-  return openCsvTimeHistory(file, csv);
+  return source;
 }

@@ -8,6 +8,7 @@ import { fixed, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
+import { printable } from "./printable.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 
 export type { CheckResult };
@@ -44,9 +45,9 @@ export function checkText(r: CheckResult, version: string): string {
   const a = r.analysis;
   const p = r.profile;
   const out = [
-    `psdgate ${version}: check of ${a.input.file} against "${p.title}"`,
+    `psdgate ${version}: check of ${printable(a.input.file)} against "${printable(p.title)}"`,
     ...recordingLines(a),
-    `  profile    ${p.file}, sha256 ${p.sha256}`,
+    `  profile    ${printable(p.file)}, sha256 ${p.sha256}`,
     `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS; tolerance ${toleranceSummary(p)}`,
     ...p.defaultsApplied.map((d) => `             default: ${d}`),
     settingsLine(a),
@@ -55,19 +56,19 @@ export function checkText(r: CheckResult, version: string): string {
     "",
   ];
   if (r.control) {
-    out.push(...judgementLines(r.control.judgement, a.channels[a.channels.findIndex((c) => c.name === r.control!.channels[0])]!, `control (${r.control.rule} of ${r.control.channels.join(", ")})`), "");
+    out.push(...judgementLines(r.control.judgement, a.channels[a.channels.findIndex((c) => c.name === r.control!.channels[0])]!, `control (${r.control.rule} of ${printable(r.control.channels.join(", "))})`), "");
   }
   r.channels.forEach((c, i) => {
     const ch = a.channels[i]!;
     const role = r.roles[i];
     if (role === "monitor") {
-      out.push(`channel ${ch.position} "${ch.name}": monitoring (shown, not judged)`);
+      out.push(`channel ${ch.position} "${printable(ch.name)}": monitoring (shown, not judged)`);
       out.push(`  RMS        ${sig(c.rms.measured, 4)} ${accelLabel(ch.units)} in the profile's range, ${signedDb(c.rms.deviationDb)} from the profile; ${c.lines.filter((l) => l.status !== "within").length} of ${c.lines.length} lines outside the band as measured`);
     } else if (role === "control") {
-      out.push(`channel ${ch.position} "${ch.name}": control channel`);
+      out.push(`channel ${ch.position} "${printable(ch.name)}": control channel`);
       out.push(`  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`);
     } else {
-      out.push(...judgementLines(c, ch, `channel ${ch.position} "${ch.name}"`));
+      out.push(...judgementLines(c, ch, `channel ${ch.position} "${printable(ch.name)}"`));
       out.push(`  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`);
     }
     out.push(...findingLines(ch).filter((l) => !l.startsWith("  DOUBT")), "");

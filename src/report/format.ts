@@ -30,3 +30,19 @@ export function table(rows: string[][], indent = "  "): string {
   const pad = (c: string, i: number) => (numeric[i] ? c.padStart(widths[i]! + c.length - [...c].length) : c.padEnd(widths[i]! + c.length - [...c].length));
   return rows.map((r) => indent + r.map(pad).join("  ").trimEnd()).join("\n");
 }
+
+/**
+ * Largest and smallest value of several arrays, by a loop: `Math.max(...a)` passes every element as an
+ * argument and overflows the call stack on long arrays (a fine resolution has ~10^5 lines).
+ */
+export function maxOf(...arrays: ArrayLike<number>[]): number {
+  let m = -Infinity;
+  for (const a of arrays) for (let i = 0; i < a.length; i++) if (a[i]! > m) m = a[i]!;
+  return m;
+}
+
+export function minOf(...arrays: ArrayLike<number>[]): number {
+  let m = Infinity;
+  for (const a of arrays) for (let i = 0; i < a.length; i++) if (a[i]! < m) m = a[i]!;
+  return m;
+}

@@ -5,7 +5,7 @@ import { accelLabel, densityLabel } from "../units.js";
 import { SHAKER_CAUTION, VERDICT_CAUTION } from "./cautions.js";
 import type { CheckResult } from "../checkRecording.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
-import { fixed, sig, signedDb } from "./format.js";
+import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 
@@ -90,9 +90,8 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const vals: number[] = [];
   // The y range follows the profile's band (roll-off outside it would squash the plot); the rest is clipped.
   for (let k = 0; k < f.length; k++) if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
-  vals.push(...dn, ...up);
-  const ymin = Math.min(...vals) / 4;
-  const ymax = Math.max(...vals) * 3;
+  const ymin = minOf(vals, dn, up) / 4;
+  const ymax = maxOf(vals, dn, up) * 3;
   const psdPlot = svgPlot({
     id: `psd-${n}`, title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * r.analysis.settings.confidence, 0)} % confidence band`,
     xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(c.units)})`, xDomain: [lo, hi], yDomain: [ymin, ymax], yLog: true,
@@ -105,7 +104,7 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
     ],
   });
   const devs = comp.lines.map((l) => l.deviationDb);
-  const dmax = Math.max(6, ...comp.lines.map((l) => l.upperDb + 1), ...devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
+  const dmax = maxOf([6], comp.lines.map((l) => l.upperDb + 1), devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
   const devPlot = svgPlot({
     id: `dev-${n}`, title: "Deviation from the required profile", xLabel: "frequency (Hz)", yLabel: "deviation (dB)",
     xDomain: [Math.max(lo, f0), Math.min(hi, fN)], yDomain: [-dmax, dmax], yLog: false,
@@ -131,8 +130,8 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const tolRms = comp.rms.upperDb !== undefined ? `+${fixed(comp.rms.upperDb, 2)} / −${fixed(comp.rms.lowerDb!, 2)} dB` : "none stated";
   const exc = comp.excursions.length === 0
     ? `<p>No line lies outside its tolerance band (${comp.lines.length} lines checked).</p>`
-    : `<table class="excursions"><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr>${worstFirst(comp.excursions).slice(0, 20)
-      .map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz</td><td class="num">${signedDb(e.limitDb)}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("")}</table>${comp.excursions.length > 20 ? `<p class="muted">${comp.excursions.length - 20} more in the JSON output.</p>` : ""}`;
+    : `<table class="excursions"><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr>${worstFirst(comp.excursions)
+      .map((e) => `<tr><td>${sig(e.fromHz, 5)}–${sig(e.toHz, 5)} Hz (${e.direction})</td><td class="num">${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz</td><td class="num">${signedDb(e.limitDb)}</td><td>${esc(excursionJudgement(e))}</td></tr>`).join("")}</table>`;
   const s = c.stats;
   return `<section class="channel">
 <h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel (judged in the control spectrum above)" : "monitoring channel (shown, not judged)"}</span>`}</h2>

@@ -3,6 +3,7 @@ import { accelLabel, densityAscii, densityLabel } from "../units.js";
 import { SHAKER_CAUTION } from "./cautions.js";
 import { fixed, sig, table } from "./format.js";
 import { toolInfo } from "./psdJson.js";
+import { printable } from "./printable.js";
 
 export function toleranceSummary(p: TestProfile): string {
   const bands = p.bands.map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`).join(", ");
@@ -21,8 +22,8 @@ export function profileText(p: TestProfile, version: string): string {
     rows.push([sig(b.hz, 5), sig(b.level, 5), s ? fixed(s.slopeDbPerOctave, 3) : "", s ? sig(s.area, 5) : ""]);
   });
   return [
-    `psdgate ${version}: profile "${p.title}"`,
-    `  file       ${p.file}, sha256 ${p.sha256}`,
+    `psdgate ${version}: profile "${printable(p.title)}"`,
+    `  file       ${printable(p.file)}, sha256 ${p.sha256}`,
     "",
     table(rows),
     "",

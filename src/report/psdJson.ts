@@ -1,5 +1,6 @@
 import type { RecordingAnalysis } from "../analyzeRecording.js";
 import { densityAscii } from "../units.js";
+import { csvField } from "./csvField.js";
 
 /** Plain numbers for JSON: NaN and infinities become null (JSON has no such values). */
 export function finiteOrNull(x: number): number | null {
@@ -64,14 +65,15 @@ export function psdJson(a: RecordingAnalysis, version: string) {
   };
 }
 
-/** `--csv`: frequency, then psd/lower/upper of each channel. Full precision (shortest round-trip). */
+/** `--csv`: frequency, then psd/lower/upper of each channel. Full precision (shortest round-trip); RFC 4180 fields. */
 export function psdCsv(a: RecordingAnalysis): string {
   const head = ["frequency_hz"];
   for (const c of a.channels) {
     const u = densityAscii(c.units);
     head.push(`${c.name}_psd [${u}]`, `${c.name}_lower [${u}]`, `${c.name}_upper [${u}]`);
   }
-  const lines = [head.join(",")];
+  // Channel names come from the file: each header field is quoted and guarded (csvField).
+  const lines = [head.map(csvField).join(",")];
   const f = a.channels[0]?.psd.frequencyHz ?? new Float64Array();
   for (let k = 0; k < f.length; k++) {
     const row = [String(f[k])];

@@ -2,6 +2,7 @@ import type { ChannelAnalysis, RecordingAnalysis } from "../analyzeRecording.js"
 import { chiSquareIntervalFactors } from "../estimate/chiSquare.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { dB, fixed, sig } from "./format.js";
+import { printable } from "./printable.js";
 
 const DETREND_WORDS = { none: "nothing removed", mean: "mean removed per segment", linear: "linear trend removed per segment" } as const;
 
@@ -33,7 +34,7 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
   const u = accelLabel(c.units);
   const du = densityLabel(c.units);
   const p = c.psd;
-  const lines = [`channel ${c.position} "${c.name}" (${u})`];
+  const lines = [`channel ${c.position} "${printable(c.name)}" (${u})`];
   const pv = c.parseval;
   lines.push(`  RMS        ${sig(pv.rmsTime)} ${u} from the time history (trend removed), ${sig(pv.rmsSegments)} ${u} of the detrended segments, ${sig(pv.rmsPsd)} ${u} from the PSD`);
   lines.push(`  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${pv.ok ? "agree" : "DISAGREE"} within ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""})`);
@@ -49,7 +50,7 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
 
 export function psdText(a: RecordingAnalysis, version: string): string {
   return [
-    `psdgate ${version}: PSD of ${a.input.file}`,
+    `psdgate ${version}: PSD of ${printable(a.input.file)}`,
     ...recordingLines(a),
     settingsLine(a),
     "",
@@ -58,9 +59,9 @@ export function psdText(a: RecordingAnalysis, version: string): string {
 }
 
 export function inspectText(a: RecordingAnalysis, version: string): string {
-  const out = [`psdgate ${version}: contents of ${a.input.file}`, ...recordingLines(a), ""];
+  const out = [`psdgate ${version}: contents of ${printable(a.input.file)}`, ...recordingLines(a), ""];
   for (const c of a.channels) {
-    out.push(`channel ${c.position} "${c.name}" (${accelLabel(c.units)})`, `  RMS        ${sig(c.stats.rms)} ${accelLabel(c.units)} (mean included), ${c.stats.count} finite samples`, statsLine(c));
+    out.push(`channel ${c.position} "${printable(c.name)}" (${accelLabel(c.units)})`, `  RMS        ${sig(c.stats.rms)} ${accelLabel(c.units)} (mean included), ${c.stats.count} finite samples`, statsLine(c));
     out.push(...findingLines(c), "");
   }
   return out.join("\n");

@@ -1,5 +1,6 @@
 import { scaleLinear, scaleLog, type ScaleContinuousNumeric } from "d3-scale";
 import { area, line } from "d3-shape";
+import { maxOf } from "./format.js";
 
 /**
  * Small SVG plots built as strings (no DOM): d3-scale for the scales and log ticks, d3-shape for the
@@ -124,7 +125,7 @@ export function svgHistogram(id: string, title: string, xLabel: string, edges: n
   const h = 260;
   if (density.length === 0) return `<p class="muted">No histogram (no finite samples).</p>`;
   const x = scaleLinear().domain([edges[0]!, edges[edges.length - 1]!]).range([M.left, w - M.right]);
-  const top = Math.max(...density, ...curve.y) * 1.1;
+  const top = maxOf(density, curve.y) * 1.1;
   const y = scaleLinear().domain([0, top]).range([h - M.bottom, M.top]);
   const out = [`<svg id="${id}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(title)}</text>`);

@@ -1,11 +1,12 @@
-import { open, rename, rm, type FileHandle } from "node:fs/promises";
 import { InputError } from "../errors.js";
-import { checkOutputPath, temporaryPathFor } from "./writeAtomic.js";
+import { csvField } from "./csvField.js";
+import { TemporaryOutput } from "./writeAtomic.js";
 import type { AccelUnit } from "../units.js";
 
 /**
  * Streams a time history to a WAV (IEEE float 32-bit) or CSV file through a temporary file in the
- * target folder, renamed on close: a crash or an error never leaves a half-written output.
+ * target folder, published on close (report/writeAtomic.ts): a crash, an error or a signal never
+ * leaves a half-written output or a temporary file.
  */
 export interface TimeHistoryWriter {
   write(channels: Float64Array[], frames: number): Promise<void>;
@@ -28,26 +29,19 @@ export async function createTimeHistoryWriter(target: string, o: WriterOptions):
   if (!wav && !/\.(csv|txt)$/i.test(target)) {
     throw new InputError("OUTPUT_FORMAT", { option: o.option, expected: "a file name ending in .wav or .csv", received: target });
   }
-  checkOutputPath(target, o.inputs, o.force, o.option);
-  const tmp = temporaryPathFor(target);
-  let fh: FileHandle;
-  try {
-    fh = await open(tmp, "wx");
-  } catch (e) {
-    throw new InputError("OUTPUT_UNWRITABLE", { option: o.option, expected: "a writable path", received: `${target} (${(e as NodeJS.ErrnoException).code})` });
-  }
+  const out = await TemporaryOutput.create(target, { inputs: o.inputs, force: o.force, option: o.option });
   const nch = o.channelNames.length;
   let frames = 0;
   // Every write names its position: positional writes do not move the file offset.
   let pos = 0;
   const append = async (b: Buffer) => {
-    await fh.write(b, 0, b.length, pos);
+    await out.write(b, pos);
     pos += b.length;
   };
   if (wav) await append(Buffer.alloc(44));
   else {
     const u = o.units === "g" ? "g" : "m/s^2";
-    await append(Buffer.from(`time [s],${o.channelNames.map((n) => `${n} [${u}]`).join(",")}\n`));
+    await append(Buffer.from(`time [s],${o.channelNames.map((n) => csvField(`${n} [${u}]`)).join(",")}\n`));
   }
   const decimals = Math.max(6, Math.ceil(Math.log10(o.sampleRateHz)) + 4);
   return {
@@ -84,14 +78,12 @@ export async function createTimeHistoryWriter(target: string, o: WriterOptions):
         h.writeUInt16LE(32, 34);
         h.write("data", 36, "latin1");
         h.writeUInt32LE(dataBytes, 40);
-        await fh.write(h, 0, 44, 0);
+        await out.write(h, 0);
       }
-      await fh.close();
-      await rename(tmp, target);
+      await out.publish();
     },
     async abort() {
-      await fh.close().catch(() => undefined);
-      await rm(tmp, { force: true });
+      await out.discard();
     },
   };
 }

@@ -1,3 +1,4 @@
+import { execFileSync } from "node:child_process";
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { wavBytes } from "../wavBytes.js";
@@ -24,4 +25,18 @@ export function generateCases(dir: string): void {
   writeFileSync(join(dir, "data-before-fmt.wav"), Buffer.concat([Buffer.from("RIFF\x1c\x00\x00\x00WAVEdata\x02\x00\x00\x00\x01\x00", "latin1"), Buffer.from("fmt ", "latin1")]));
   writeFileSync(join(dir, "extensible.wav"), wavBytes({ tag: 3, bits: 32, channels: 1, samples: pcm(64).map((v) => v / 32768), extensible: true }));
   writeFileSync(join(dir, "odd-chunk.wav"), wavBytes({ bits: 16, channels: 1, samples: pcm(64), extraChunks: [["LIST", Buffer.from("odd")]] }));
+  // Issue #12: hostile inputs. Named pipes (they must never block a read), memory bombs, deep profiles.
+  execFileSync("mkfifo", [join(dir, "fifo.csv"), join(dir, "fifo-profile.json"), join(dir, "fifo-list.txt")]);
+  const wide = (n: number, name: (i: number) => string) => `time,${Array.from({ length: n }, (_, i) => name(i)).join(",")}\n0,${"1,".repeat(n - 1)}1\n0.01,${"2,".repeat(n - 1)}2\n`;
+  writeFileSync(join(dir, "wide-32000.csv"), wide(32000, (i) => `c${i}`));
+  writeFileSync(join(dir, "wide-1500.csv"), wide(1500, (i) => `c${i.toString(36)}`));
+  writeFileSync(join(dir, "channels-32767.wav"), wavBytes({ bits: 16, channels: 32767, samples: new Array(32767 * 2).fill(0) }));
+  writeFileSync(join(dir, "channels-300.wav"), wavBytes({ bits: 16, channels: 300, samples: new Array(300 * 16).fill(1) }));
+  writeFileSync(join(dir, "zero-frames.wav"), wavBytes({ bits: 16, channels: 1, samples: [] }));
+  writeFileSync(join(dir, "deep.json"), "[".repeat(100000) + "]".repeat(100000));
+  writeFileSync(join(dir, "deep-flow.yaml"), "title: " + "[".repeat(100000) + "]".repeat(100000) + "\n");
+  writeFileSync(join(dir, "deep-block.yaml"), Array.from({ length: 40 }, (_, i) => `${" ".repeat(i)}k${i}:`).join("\n") + " 1\n");
+  writeFileSync(join(dir, "huge.json"), JSON.stringify({ title: "x".repeat(2 << 20) }));
+  writeFileSync(join(dir, "long-header.csv"), `time,${"a".repeat(100 << 10)}\n0,1\n0.01,2\n`);
+  writeFileSync(join(dir, "list.txt"), "samples/kb210-run-short.wav\n");
 }

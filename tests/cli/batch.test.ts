@@ -121,3 +121,34 @@ describe("progress", () => {
     expect(out).toBe("");
   });
 });
+
+describe.skipIf(!built)("batch worker limits (built code, issue #12)", () => {
+  it("runBatch with a 2 MB worker heap: every recording gets one WORKER_LIMIT outcome, in order, and the batch still completes", async () => {
+    const { runBatch } = await import(join(process.cwd(), "dist/cli/batch.js"));
+    const got: [number, boolean, string][] = [];
+    await runBatch(runs, {}, undefined, 2, (o: { ok: boolean; error?: { code: string } }, i: number) => got.push([i, o.ok, o.error?.code ?? ""]), undefined, { maxOldGenerationSizeMb: 2 });
+    expect(got).toEqual(runs.map((_, i) => [i, false, "WORKER_LIMIT"]));
+  }, 60_000);
+  it("the built CLI: a file over the channel limit in a batch is one error line and the other recordings complete", () => {
+    const big = join(dir, "channels-32767.wav");
+    const wav = Buffer.alloc(44 + 32767 * 2 * 2);
+    wav.write("RIFF", 0, "latin1");
+    wav.writeUInt32LE(wav.length - 8, 4);
+    wav.write("WAVEfmt ", 8, "latin1");
+    wav.writeUInt32LE(16, 16);
+    wav.writeUInt16LE(1, 20);
+    wav.writeUInt16LE(32767, 22);
+    wav.writeUInt32LE(1000, 24);
+    wav.writeUInt32LE(1000 * 32767 * 2, 28);
+    wav.writeUInt16LE(32767 * 2, 32);
+    wav.writeUInt16LE(16, 34);
+    wav.write("data", 36, "latin1");
+    wav.writeUInt32LE(32767 * 2 * 2, 40);
+    writeFileSync(big, wav);
+    const r = spawnSync(process.execPath, ["bin/psdgate.js", "check", runs[0]!, big, runs[1]!, runs[2]!, "--profile", kb, "--json", "--jobs", "2"], { encoding: "utf8" });
+    expect(r.status).toBe(2);
+    const lines = r.stdout.trim().split("\n").map((l) => JSON.parse(l));
+    expect(lines.map((l) => l.verdict ?? l.error.code)).toEqual(["pass", "TOO_MANY_CHANNELS", "fail", "inconclusive"]);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+  }, 60_000);
+});

@@ -1,4 +1,4 @@
-import { describe, expect, it } from "vitest";
+import { describe, expect, it, vi } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { parseProfile, powerLawArea, profileLevel, profileMotion, type TestProfile } from "../../src/compare/testProfile.js";
 
@@ -172,5 +172,63 @@ describe("profile validation names the key path", () => {
     const e = (() => { try { parseProfile("hz,level\n20,0.01\n80,x\n", "p.csv"); } catch (x) { return x as InputError; } })()!;
     expect(e.code).toBe("PROFILE_CSV");
     expect(e.details.line).toBe(3);
+  });
+});
+
+describe("parseProfile limits (issue #12)", () => {
+  const yaml = (title: string, hz = "20") =>
+    `title: ${title}\nunits: g2/Hz\npoints: [{hz: ${hz}, level: 0.01}, {hz: 2000, level: 0.01}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}], rmsDb: 1.5}\n`;
+  const codeOf = (f: () => unknown) => {
+    try {
+      f();
+    } catch (e) {
+      return (e as { code?: string }).code;
+    }
+    return "none";
+  };
+
+  it("parseProfile(): a YAML custom tag is PROFILE_SYNTAX and prints no warning (process.emitWarning, console.warn)", () => {
+    const emit = vi.spyOn(process, "emitWarning");
+    const warn = vi.spyOn(console, "warn");
+    try {
+      expect(codeOf(() => parseProfile(yaml('!!js/function "function () {}"'), "t.yaml"))).toBe("PROFILE_SYNTAX");
+      expect(codeOf(() => parseProfile(yaml("!custom x"), "t.yaml"))).toBe("PROFILE_SYNTAX");
+      expect(emit).not.toHaveBeenCalled();
+      expect(warn).not.toHaveBeenCalled();
+    } finally {
+      emit.mockRestore();
+      warn.mockRestore();
+    }
+  });
+
+  it("parseProfile(): hexadecimal, octal and binary numbers are refused in YAML; decimal and exponent forms are read", () => {
+    for (const hz of ["0x14", "0o24"]) expect(codeOf(() => parseProfile(yaml("t", hz), "t.yaml")), hz).toBe("PROFILE_INVALID");
+    expect(parseProfile(yaml("t", "2.0e1"), "t.yaml").breakpoints[0]!.hz).toBe(20);
+    expect(parseProfile(yaml("it's fine [a] {b}"), "t.yaml").title).toBe("it's fine [a] {b}");
+  });
+
+  it("parseProfile(): nesting beyond 32 and text beyond 1 MiB are PROFILE_TOO_LARGE, before any parser runs", () => {
+    expect(codeOf(() => parseProfile("[".repeat(100000) + "]".repeat(100000), "deep.json"))).toBe("PROFILE_TOO_LARGE");
+    expect(codeOf(() => parseProfile(`{"title": "${"[".repeat(100)}"}`, "ok.json"))).toBe("PROFILE_INVALID");
+    expect(codeOf(() => parseProfile(" ".repeat((1 << 20) + 1), "big.json"))).toBe("PROFILE_TOO_LARGE");
+  });
+
+  it("parseProfile(): levels and slopes that overflow the arithmetic are PROFILE_INVALID naming the point, never a NaN RMS", () => {
+    const json = (points: unknown[]) => JSON.stringify({ title: "t", units: "g2/Hz", points, tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 } });
+    const e1 = (() => { try { parseProfile(json([{ hz: 20, level: 1e308 }, { hz: 2000, level: 1e308 }]), "a.json"); } catch (e) { return e as Error; } })();
+    expect(e1?.message).toMatch(/points\[1\].*\[PROFILE_INVALID\]/);
+    expect(codeOf(() => parseProfile(json([{ hz: 20, level: 0.01 }, { hz: 2000, slopeDbPerOctave: 1e6 }]), "b.json"))).toBe("PROFILE_INVALID");
+    expect(codeOf(() => parseProfile(json([{ hz: 20, level: 0.01 }, { hz: 2000, slopeDbPerOctave: -1e6 }]), "c.json"))).toBe("PROFILE_INVALID");
+    const ok = parseProfile(json([{ hz: 20, level: 0.01 }, { hz: 2000, slopeDbPerOctave: -6 }]), "d.json");
+    expect(Number.isFinite(ok.rms)).toBe(true);
+  });
+
+  it("parseProfile(): a CSV profile reads only decimal numbers and only the units it knows", () => {
+    expect(codeOf(() => parseProfile("hz,level\n0x14,0.01\n2000,0.01\n", "p.csv"))).toBe("PROFILE_CSV");
+    expect(codeOf(() => parseProfile("Hz,level [mg2/Hz]\n20,0.01\n2000,0.01\n", "p.csv"))).toBe("PROFILE_CSV");
+    expect(codeOf(() => parseProfile("f [kHz],level\n20,0.01\n2000,0.01\n", "p.csv"))).toBe("PROFILE_CSV");
+    expect(parseProfile("Hz,level [(m/s^2)^2/Hz]\n20,0.01\n2000,0.01\n", "p.csv").units).toBe("m/s2");
+    expect(parseProfile("Hz [Hz],level [g²/Hz]\n20,0.01\n2000,0.01\n", "p.csv").units).toBe("g");
+    expect(parseProfile("20,0.01\n2000,1e-2\n", "p.csv").breakpoints[1]!.level).toBe(0.01);
   });
 });
