@@ -80,7 +80,7 @@ describe.skipIf(!url)("queue worker (in process, real PostgreSQL)", () => {
     expect(sum).toMatchObject({ failed: 2, retried: RETRY.limit });
     const r = await rows("SELECT path, error_code, error_message, attempt FROM psdgate.result WHERE outcome = 'failed' ORDER BY path");
     expect(r).toEqual([
-      { path: "crash.csv", error_code: "INTERNAL_ERROR", error_message: `internal error on attempt 3 of 3: boom`, attempt: 3 },
+      { path: "crash.csv", error_code: "INTERNAL", error_message: `internal error on attempt 3 of 3: boom`, attempt: 3 },
       { path: "input.csv", error_code: "CSV_NOT_A_NUMBER", error_message: "m", attempt: 1 },
     ]);
     expect(log.filter((l) => l.includes("it will be retried")).length).toBe(RETRY.limit);
