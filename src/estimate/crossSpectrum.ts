@@ -1,5 +1,6 @@
 import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./welchOptions.js";
 import { RealFft } from "./realFft.js";
+import { oneSidedDensity, SegmentRing } from "./segmentRing.js";
 import type { WelchSettings } from "./welchPsd.js";
 import { spectralWindow } from "./windows.js";
 
@@ -35,7 +36,8 @@ export class CrossSpectrumAccumulator {
   private readonly channels: number;
   private readonly reference: number;
   private readonly fft: RealFft;
-  private readonly segment: Float64Array[];
+  private readonly ring: SegmentRing;
+  private readonly onFull = () => this.processSegment();
   private readonly work: Float64Array;
   /** Bins 0..N/2 of each channel's current segment. */
   private readonly specRe: Float64Array[];
@@ -44,8 +46,6 @@ export class CrossSpectrumAccumulator {
   private readonly crossRe: (Float64Array | undefined)[];
   private readonly crossIm: (Float64Array | undefined)[];
   private readonly sumW2: number;
-  private fill = 0;
-  private skip = 0;
   private segments = 0;
   private skipped = 0;
   private samples = 0;
@@ -62,7 +62,7 @@ export class CrossSpectrumAccumulator {
     this.reference = reference;
     this.fft = new RealFft(this.n);
     const half = this.n / 2 + 1;
-    this.segment = Array.from({ length: channels }, () => new Float64Array(this.n));
+    this.ring = new SegmentRing(this.n, this.hop, channels);
     this.work = new Float64Array(this.n);
     this.specRe = Array.from({ length: channels }, () => new Float64Array(half));
     this.specIm = Array.from({ length: channels }, () => new Float64Array(half));
@@ -78,35 +78,13 @@ export class CrossSpectrumAccumulator {
   push(blocks: Float64Array[], count = blocks[0]?.length ?? 0): void {
     if (blocks.length !== this.channels) throw new RangeError(`expected ${this.channels} channel blocks, got ${blocks.length}`);
     this.samples += count;
-    let i = 0;
-    while (i < count) {
-      if (this.skip > 0) {
-        const d = Math.min(this.skip, count - i);
-        this.skip -= d;
-        i += d;
-        continue;
-      }
-      const m = Math.min(this.n - this.fill, count - i);
-      for (let c = 0; c < this.channels; c++) this.segment[c]!.set(blocks[c]!.subarray(i, i + m), this.fill);
-      this.fill += m;
-      i += m;
-      if (this.fill === this.n) {
-        this.processSegment();
-        if (this.hop < this.n) {
-          for (let c = 0; c < this.channels; c++) this.segment[c]!.copyWithin(0, this.hop, this.n);
-          this.fill = this.n - this.hop;
-        } else {
-          this.fill = 0;
-          this.skip = this.hop - this.n;
-        }
-      }
-    }
+    this.ring.push(blocks, count, this.onFull);
   }
 
   private processSegment(): void {
     const n = this.n;
     for (let c = 0; c < this.channels; c++) {
-      const x = this.segment[c]!;
+      const x = this.ring.segments[c]!;
       let s = 0;
       for (let i = 0; i < n; i++) s += x[i]!;
       if (!Number.isFinite(s)) {
@@ -117,7 +95,7 @@ export class CrossSpectrumAccumulator {
     const mid = (n - 1) / 2;
     const half = n / 2;
     for (let c = 0; c < this.channels; c++) {
-      const x = this.segment[c]!;
+      const x = this.ring.segments[c]!;
       let mean = 0;
       let slope = 0;
       if (this.detrend !== "none") {
@@ -169,14 +147,8 @@ export class CrossSpectrumAccumulator {
   finish(sampleRateHz: number): CrossSpectrumSums {
     const half = this.n / 2;
     const k = this.segments;
-    const scaled = (s: Float64Array | undefined): Float64Array | undefined => {
-      if (s === undefined) return undefined;
-      const p = new Float64Array(half + 1);
-      if (k === 0) return p.fill(NaN);
-      const scale = 1 / (sampleRateHz * this.sumW2 * k);
-      for (let i = 0; i <= half; i++) p[i] = s[i]! * scale * (i === 0 || i === half ? 1 : 2);
-      return p;
-    };
+    const scaled = (s: Float64Array | undefined): Float64Array | undefined =>
+      s === undefined ? undefined : k === 0 ? new Float64Array(half + 1).fill(NaN) : oneSidedDensity(s, sampleRateHz, this.sumW2, k);
     return {
       segments: k,
       skippedSegments: this.skipped,

@@ -1,4 +1,5 @@
 import { SegmentPower } from "./segmentPower.js";
+import { oneSidedDensity, SegmentRing } from "./segmentRing.js";
 
 /**
  * Welch's averaged modified periodogram, accumulated as samples arrive (Welch 1967, IEEE Trans. Audio
@@ -95,14 +96,13 @@ export class WelchAccumulator {
   private readonly window: Float64Array;
   private readonly detrend: Detrend;
   private readonly power: SegmentPower;
-  private readonly segment: Float64Array;
+  private readonly ring: SegmentRing;
+  private readonly one: Float64Array[] = [new Float64Array(0)];
+  private readonly onFull = () => this.processSegment();
   private readonly sum: Float64Array;
   private readonly sumW2: number;
   /** Sum of squares of the current segment, written by sumOf. */
   private readonly sq = new Float64Array(1);
-  private fill = 0;
-  /** Samples still to drop before the next segment starts (hop larger than the segment). */
-  private skip = 0;
   private segments = 0;
   private skipped = 0;
   private samples = 0;
@@ -120,7 +120,7 @@ export class WelchAccumulator {
     this.detrend = settings.detrend;
     this.power = power ?? new SegmentPower(this.n);
     if (this.power.size !== this.n || this.window.length !== this.n) throw new RangeError("window, FFT and segment length differ");
-    this.segment = new Float64Array(this.n);
+    this.ring = new SegmentRing(this.n, this.hop, 1);
     this.sum = new Float64Array(this.n / 2 + 1);
     let s = 0;
     for (let i = 0; i < this.n; i++) s += this.window[i]! * this.window[i]!;
@@ -129,34 +129,13 @@ export class WelchAccumulator {
 
   push(x: Float64Array, count = x.length): void {
     this.samples += count;
-    let i = 0;
-    while (i < count) {
-      if (this.skip > 0) {
-        const d = Math.min(this.skip, count - i);
-        this.skip -= d;
-        i += d;
-        continue;
-      }
-      const m = Math.min(this.n - this.fill, count - i);
-      this.segment.set(x.subarray(i, i + m), this.fill);
-      this.fill += m;
-      i += m;
-      if (this.fill === this.n) {
-        this.processSegment();
-        if (this.hop < this.n) {
-          this.segment.copyWithin(0, this.hop, this.n);
-          this.fill = this.n - this.hop;
-        } else {
-          this.fill = 0;
-          this.skip = this.hop - this.n;
-        }
-      }
-    }
+    this.one[0] = x;
+    this.ring.push(this.one, count, this.onFull);
   }
 
   private processSegment(): void {
     const n = this.n;
-    const x = this.segment;
+    const x = this.ring.segments[0]!;
     // Sums run on four accumulators: one chain of dependent additions would wait on every add.
     const sum = sumOf(x, n, this.sq);
     if (!Number.isFinite(sum)) {
@@ -206,14 +185,9 @@ export class WelchAccumulator {
   }
 
   finish(sampleRateHz: number): WelchSums {
-    const half = this.n / 2;
-    const psd = new Float64Array(half + 1);
     const k = this.segments;
     const gap = this.gaps.standardError();
-    if (k > 0) {
-      const scale = 1 / (sampleRateHz * this.sumW2 * k);
-      for (let i = 0; i <= half; i++) psd[i] = this.sum[i]! * scale * (i === 0 || i === half ? 1 : 2);
-    }
+    const psd = oneSidedDensity(this.sum, sampleRateHz, this.sumW2, k);
     return {
       segments: k,
       skippedSegments: this.skipped,
