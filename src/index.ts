@@ -57,3 +57,5 @@ export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sou
 export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
 export { transferHtml } from "./report/transferHtml.js";
 export { responseJson, responseText } from "./report/responseReport.js";
+export { settingsDigest, type Job } from "./queue/job.js";
+export { runJob, type JobOutcome, type JobContext, type KeyFigures } from "./queue/runJob.js";

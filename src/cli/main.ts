@@ -23,6 +23,7 @@ import { createProgress, progressEnabled } from "./progress.js";
 import { registerRide } from "./ride.js";
 import { registerRespond } from "./respond.js";
 import { registerTransfer } from "./transfer.js";
+import { registerQueue } from "./queue.js";
 
 // Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
 // load on first use, so that a plain `psd` starts fast.
@@ -314,7 +315,7 @@ export function buildProgram(io: CliIo): Command {
     });
 
   registerRide(program, io);
-  for (const register of [registerTransfer, registerRespond]) register(program, io);
+  for (const register of [registerTransfer, registerRespond, registerQueue]) register(program, io);
 
   return program;
 }
