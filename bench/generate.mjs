@@ -1,10 +1,14 @@
 // Deterministic benchmark data: a CSV with a time column and 3 channels, and a 3-channel float32 WAV,
 // both at 25.6 kHz, Gaussian noise from psdgate's seeded generator.
-// node bench/generate.mjs csv|wav FRAMES OUT [SEED]
+// node bench/generate.mjs csv|wav FRAMES OUT [SEED] [SPELLING]
+// CSV spellings: fixed (6 decimals, the default), sci (channels %.6e as numpy.savetxt writes them, time
+// %.9e), comma (semicolon delimiter and decimal commas, 6 decimals), counts (integer ADC counts).
 import { openSync, writeSync, closeSync } from "node:fs";
 import { GaussianNoise } from "../dist/synth/gaussianNoise.js";
 
-const [kind, framesText, out, seedText] = process.argv.slice(2);
+const [kind, framesText, out, seedText, spelling = "fixed"] = process.argv.slice(2);
+/** C's %.Ne: the exponent with at least two digits (1.234567e-01). */
+const sci = (v, d) => v.toExponential(d).replace(/e([+-])(\d)$/, "e$10$2");
 const frames = Number(framesText);
 const fs = 25600;
 const noise = [0, 1, 2].map((c) => new GaussianNoise(Number(seedText ?? 1), c));
@@ -12,12 +16,19 @@ const B = 8192;
 const x = [new Float64Array(B), new Float64Array(B), new Float64Array(B)];
 const fd = openSync(out, "w");
 if (kind === "csv") {
-  writeSync(fd, "time,ax [g],ay [g],az [g]\n");
+  const row = {
+    fixed: (t, a, b, c) => `${t.toFixed(6)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}\n`,
+    sci: (t, a, b, c) => `${sci(t, 9)},${sci(a, 6)},${sci(b, 6)},${sci(c, 6)}\n`,
+    comma: (t, a, b, c) => `${t.toFixed(6)};${a.toFixed(6)};${b.toFixed(6)};${c.toFixed(6)}\n`.replace(/\./g, ","),
+    counts: (t, a, b, c) => `${t.toFixed(6)},${Math.round(a * 3000)},${Math.round(b * 3000)},${Math.round(c * 3000)}\n`,
+  }[spelling];
+  if (!row) throw new Error(`unknown spelling ${spelling}`);
+  writeSync(fd, spelling === "comma" ? "time;ax [g];ay [g];az [g]\n" : "time,ax [g],ay [g],az [g]\n");
   for (let i = 0; i < frames; i += B) {
     const n = Math.min(B, frames - i);
     x.forEach((a, c) => noise[c].fill(a));
     let s = "";
-    for (let k = 0; k < n; k++) s += `${((i + k) / fs).toFixed(6)},${x[0][k].toFixed(6)},${x[1][k].toFixed(6)},${x[2][k].toFixed(6)}\n`;
+    for (let k = 0; k < n; k++) s += row((i + k) / fs, x[0][k], x[1][k], x[2][k]);
     writeSync(fd, s);
   }
 } else {

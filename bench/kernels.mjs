@@ -9,30 +9,40 @@ import { SegmentPower } from "../dist/estimate/segmentPower.js";
 
 const median = (xs) => [...xs].sort((a, b) => a - b)[(xs.length - 1) >> 1];
 
-// Rows as bench/generate.mjs writes them: time with 6 decimals, three channels with 6 decimals.
+// Rows as bench/generate.mjs writes them: time and three channels, in each CSV spelling.
 let seed = 7;
 const rand = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
-const lines = [];
-for (let i = 0; i < 500_000; i++) lines.push(`${(i / 25600).toFixed(6)},${((rand() - 0.5) * 4).toFixed(6)},${((rand() - 0.5) * 4).toFixed(6)},${((rand() - 0.5) * 4).toFixed(6)}`);
-const body = Buffer.from(lines.join("\n") + "\n");
-const spec = { file: "bench", columns: 4, columnNames: ["time", "ax", "ay", "az"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1, 2, 3] };
-const parser = new CsvBodyParser(spec);
-const pool = columnPool();
-const parseRound = () => {
-  const t = performance.now();
-  let s = 0;
-  let rows = 0;
-  while (s < body.length) {
-    const e = body.lastIndexOf(10, Math.min(body.length, s + (1 << 20)) - 1) + 1;
-    const piece = parser.parse(body, s, e, 1, pool.alloc);
-    rows += piece.rows;
-    pool.give(pieceBuffers(piece));
-    s = e;
-  }
-  return ((performance.now() - t) * 1e6) / (rows * 4);
+const sci = (v, d) => v.toExponential(d).replace(/e([+-])(\d)$/, "e$10$2");
+const spellings = {
+  fixed: (t, a, b, c) => `${t.toFixed(6)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}`,
+  "sci (%.6e)": (t, a, b, c) => `${sci(t, 9)},${sci(a, 6)},${sci(b, 6)},${sci(c, 6)}`,
+  "decimal comma": (t, a, b, c) => `${t.toFixed(6)};${a.toFixed(6)};${b.toFixed(6)};${c.toFixed(6)}`.replace(/\./g, ","),
+  counts: (t, a, b, c) => `${t.toFixed(6)},${Math.round(a * 3000)},${Math.round(b * 3000)},${Math.round(c * 3000)}`,
 };
-parseRound();
-console.log(`CSV plain rows: ${median(Array.from({ length: 7 }, parseRound)).toFixed(1)} ns a number (${(body.length / 1e6).toFixed(0)} MB, 4 columns)`);
+for (const [name, row] of Object.entries(spellings)) {
+  const lines = [];
+  for (let i = 0; i < 500_000; i++) lines.push(row(i / 25600, (rand() - 0.5) * 4, (rand() - 0.5) * 4, (rand() - 0.5) * 4));
+  const body = Buffer.from(lines.join("\n") + "\n");
+  const comma = name === "decimal comma";
+  const spec = { file: "bench", columns: 4, columnNames: ["time", "ax", "ay", "az"], delimiter: comma ? ";" : ",", decimal: comma ? "," : ".", timeIndex: 0, selectColumns: [1, 2, 3] };
+  const parser = new CsvBodyParser(spec);
+  const pool = columnPool();
+  const parseRound = () => {
+    const t = performance.now();
+    let s = 0;
+    let rows = 0;
+    while (s < body.length) {
+      const e = body.lastIndexOf(10, Math.min(body.length, s + (1 << 20)) - 1) + 1;
+      const piece = parser.parse(body, s, e, 1, pool.alloc);
+      rows += piece.rows;
+      pool.give(pieceBuffers(piece));
+      s = e;
+    }
+    return ((performance.now() - t) * 1e6) / (rows * 4);
+  };
+  parseRound();
+  console.log(`CSV plain rows, ${name}: ${median(Array.from({ length: 7 }, parseRound)).toFixed(1)} ns a number (${(body.length / 1e6).toFixed(0)} MB, 4 columns)`);
+}
 
 const N = 4096;
 const x = Float64Array.from({ length: N }, () => rand() - 0.5);

@@ -1,7 +1,10 @@
 // `npm run bench`: psdgate against the numpy/scipy route and the raw byte-scan limit, on the same
 // generated files, in one run. Prints a table and writes bench/out/results.json.
 //   node bench/run.mjs [--sizes 1e6,1e7,5e7] [--runs 5] [--big-runs 3] [--batch 8] [--batch-rows 3e6] [--keep]
-// (--batch 0 leaves the batch out.)
+//                      [--spellings fixed,sci,comma,counts] [--spelling-rows 3e6,1e7]
+// (--batch 0 leaves the batch out; --sizes none, --spellings none leave those parts out.)
+// The spellings part times each CSV spelling against numpy.loadtxt + scipy.signal.welch and against
+// pandas.read_csv (C engine) + scipy.signal.welch; pandas is Debian's python3-pandas for /usr/bin/python3.
 // Times are wall-clock medians; peak RSS comes from GNU time (%M). The machine is shared and noisy:
 // compare the ratios, not the absolute times.
 import { execFileSync, spawnSync } from "node:child_process";
@@ -11,7 +14,10 @@ const arg = (name, dflt) => {
   const i = process.argv.indexOf(`--${name}`);
   return i >= 0 ? process.argv[i + 1] : dflt;
 };
-const sizes = arg("sizes", "1e6,1e7,5e7").split(",").map(Number);
+const list = (text) => (text === "none" || text === "" ? [] : text.split(","));
+const sizes = list(arg("sizes", "1e6,1e7,5e7")).map(Number);
+const spellings = list(arg("spellings", "fixed,sci,comma,counts"));
+const spellingRows = list(arg("spelling-rows", "3e6,1e7")).map(Number);
 const runs = Number(arg("runs", "5"));
 const bigRuns = Number(arg("big-runs", "3"));
 const batchFiles = Number(arg("batch", "8"));
@@ -23,6 +29,9 @@ const dir = "bench/out/data";
 mkdirSync(dir, { recursive: true });
 const TIME = existsSync("/usr/bin/time") ? "/usr/bin/time" : undefined;
 const hasScipy = spawnSync("python3", ["-c", "import scipy.signal, numpy"]).status === 0;
+const SYS_PY = "/usr/bin/python3";
+const hasPandas = spawnSync(SYS_PY, ["-c", "import pandas, scipy.signal"]).status === 0;
+const pyVersions = (py, mods) => spawnSync(py, ["-c", `import ${mods.join(", ")}; print(" ".join(m.__name__ + " " + m.__version__ for m in (${mods.join(", ")},)))`], { encoding: "utf8" }).stdout.trim();
 
 function timed(cmd, args) {
   const full = TIME ? [TIME, ["-f", "__BENCH__ %e %M", cmd, ...args]] : [cmd, args];
@@ -58,7 +67,35 @@ fs, x = wf.read("${f}")
 for c in (0, 1, 2): ss.welch(x[:, c].astype(np.float64), fs=fs, window="hann", nperseg=4096, noverlap=2048)`;
 const PSD = ["bin/psdgate.js", "psd", "--segment", "4096", "--overlap", "0.5", "--window", "hann", "--json", "-q"];
 
+/** numpy and pandas routes for a spelling: delimiter and decimal mark; numpy.loadtxt has no decimal option, so decimal commas go through a converter. */
+const PY_NUMPY = (f, sp) => `import numpy as np, scipy.signal as ss
+d = np.loadtxt("${f}", delimiter="${sp === "comma" ? ";" : ","}", skiprows=1${sp === "comma" ? ', converters=lambda s: float(s.replace(",", "."))' : ""})
+for c in (1, 2, 3): ss.welch(d[:, c], fs=25600, window="hann", nperseg=4096, noverlap=2048)`;
+const PY_PANDAS = (f, sp) => `import pandas as pd, scipy.signal as ss
+d = pd.read_csv("${f}", sep="${sp === "comma" ? ";" : ","}", decimal="${sp === "comma" ? "," : "."}", engine="c").to_numpy(dtype="float64")
+for c in (1, 2, 3): ss.welch(d[:, c], fs=25600, window="hann", nperseg=4096, noverlap=2048)`;
+
 const rows = [];
+const spellingRowsOut = [];
+for (const n of spellingRows) {
+  for (const sp of spellings) {
+    const csv = `${dir}/sp-${sp}-${n.toExponential(0).replace("+", "")}.csv`;
+    if (!existsSync(csv)) execFileSync("node", ["bench/generate.mjs", "csv", String(n), csv, "1", sp]);
+    const bytes = statSync(csv).size;
+    const routes = [
+      { label: "psdgate psd", cmd: "node", args: [...PSD.slice(0, 2), csv, ...PSD.slice(2)] },
+      ...(hasScipy ? [{ label: "numpy.loadtxt + scipy.welch", cmd: "python3", args: ["-c", PY_NUMPY(csv, sp)] }] : []),
+      ...(hasPandas ? [{ label: "pandas.read_csv (C) + scipy.welch", cmd: SYS_PY, args: ["-c", PY_PANDAS(csv, sp)] }] : []),
+    ];
+    const ms = measureTogether(routes, n >= 1e7 ? bigRuns : runs);
+    const ours = ms[0];
+    const np = ms.find((m) => m.label.startsWith("numpy"));
+    const pd = ms.find((m) => m.label.startsWith("pandas"));
+    spellingRowsOut.push({ rows: n, spelling: sp, bytes, routes: ms, vsNumpy: np ? np.seconds / ours.seconds : null, vsPandas: pd ? pd.seconds / ours.seconds : null });
+    console.error(`${sp} ${n}: ${ms.map((m) => `${m.label} ${m.seconds.toFixed(2)} s`).join(", ")}`);
+    if (!keep && n >= 1e7) rmSync(csv, { force: true });
+  }
+}
 for (const n of sizes) {
   const reps = n >= 5e7 ? bigRuns : runs;
   const csv = `${dir}/bench-${n}.csv`;
@@ -120,8 +157,19 @@ lines.push(`|---|---|---|---|`);
 for (const r of ratios) lines.push(`| ${r.samplesPerChannel.toExponential(0)} | ${fmt(r.csvSpeedupVsNumpy)}x | ${fmt(r.csvTimeVsRawScan)}x | ${fmt(r.wavSpeedupVsScipy)}x |`);
 lines.push("");
 if (jobs1 && jobs2) lines.push(`Batch of ${batchFiles} x ${batchRows.toExponential(0)}-row CSV: --jobs 1 ${fmt(jobs1.seconds)} s, --jobs 2 ${fmt(jobs2.seconds)} s, speed-up ${fmt(jobs1.seconds / jobs2.seconds)}x (peak RSS ${fmt(jobs2.rssMb, 0)} MB)`);
+if (spellingRowsOut.length > 0) {
+  lines.push("");
+  lines.push(`CSV spellings (time + 3 channels; numpy route: ${pyVersions("python3", ["numpy", "scipy"])}; pandas route: ${pyVersions(SYS_PY, ["pandas", "numpy", "scipy"])})`);
+  lines.push("");
+  lines.push(`| rows | spelling | MB | psdgate s | numpy.loadtxt+welch s | pandas.read_csv(C)+welch s | numpy / psdgate | pandas / psdgate | psdgate peak RSS MB | runs |`);
+  lines.push(`|---|---|---|---|---|---|---|---|---|---|`);
+  for (const r of spellingRowsOut) {
+    const [o, np, pd] = [r.routes[0], r.routes.find((m) => m.label.startsWith("numpy")), r.routes.find((m) => m.label.startsWith("pandas"))];
+    lines.push(`| ${r.rows.toExponential(0)} | ${r.spelling} | ${fmt(r.bytes / 1e6, 0)} | ${fmt(o.seconds)} | ${fmt(np?.seconds)} | ${fmt(pd?.seconds)} | ${fmt(r.vsNumpy)}x | ${fmt(r.vsPandas)}x | ${fmt(o.rssMb, 0)} | ${o.runs} |`);
+  }
+}
 const text = lines.join("\n");
 console.log(text);
-writeFileSync("bench/out/results.json", JSON.stringify({ date: new Date().toISOString(), node: process.version, hasScipy, rows, ratios, batch: jobs1 && jobs2 ? { files: batchFiles, rows: batchRows, jobs1, jobs2, speedup: jobs1.seconds / jobs2.seconds } : null }, null, 2));
+writeFileSync("bench/out/results.json", JSON.stringify({ date: new Date().toISOString(), node: process.version, hasScipy, hasPandas, rows, ratios, spellings: spellingRowsOut, batch: jobs1 && jobs2 ? { files: batchFiles, rows: batchRows, jobs1, jobs2, speedup: jobs1.seconds / jobs2.seconds } : null }, null, 2));
 writeFileSync("bench/out/results.md", text + "\n");
 console.log("\nwrote bench/out/results.json and bench/out/results.md");

@@ -1,4 +1,4 @@
-import { channelConditioning, scaleSamples } from "./condition/scaleSamples.js";
+import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { amplitudeGates } from "./compare/amplitudeGates.js";
 import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
 import { texts, type Finding } from "./findings.js";
@@ -26,12 +26,16 @@ export interface AnalysisOptions extends WelchOptions {
   csv?: CsvReadOptions | undefined;
   /** Channel names or 1-based positions; all channels when empty. */
   channels?: string[] | undefined;
-  /** Unit of the samples where the file does not say (default g). */
-  inputUnits?: AccelUnit | undefined;
+  /** Unit of the samples where the file does not say (default g): g, mg, ug, m/s2, mm/s2, cm/s2, in/s2, ft/s2 or another spelling of them. */
+  inputUnits?: string | undefined;
   /** Unit of the results (default: each channel's input unit). */
   resultUnits?: AccelUnit | undefined;
   /** Calibration: engineering units per file unit (per full scale for WAV). */
   scale?: number | undefined;
+  /** Calibration factors per channel (`--scale CH=K`); a channel at most once, and not with `scale`. */
+  channelScales?: ChannelSetting<number>[] | undefined;
+  /** Sensitivities of channels in volts, e.g. `100mV/g` or `10.2mV/(m/s2)` (`--sensitivity [CH=]S`). */
+  sensitivities?: ChannelSetting<string>[] | undefined;
   fminHz?: number | undefined;
   fmaxHz?: number | undefined;
   /** Estimate the PSD (default true; `inspect` needs only the statistics). */
@@ -82,9 +86,8 @@ export interface ChannelAnalysis {
   /** 1-based position among the file's channels. */
   position: number;
   units: AccelUnit;
-  /** Unit of the samples as read, and where it came from (the file's header, --units, or the default g). */
-  inputUnit?: AccelUnit | undefined;
-  unitFrom?: "file" | "option" | "default" | undefined;
+  /** How the file's numbers became accelerations: the file's unit, calibration, sensitivity, factor. */
+  reading: ChannelReading;
   stats: SampleStatistics;
   psd: PsdEstimate;
   parseval: ParsevalCheck;
@@ -113,6 +116,10 @@ export interface RecordingAnalysis {
     sampleRateHz: number;
     samples: number;
     durationS: number;
+    /** ISO 8601 time of the first sample, when the file has date-time stamps. */
+    startTime?: string | undefined;
+    /** Lines before a CSV header (a logger's metadata), as text. */
+    preamble?: string[] | undefined;
   };
   settings: ResolvedWelchOptions & { scale: number };
   window: FrameWindow;
@@ -143,7 +150,7 @@ export async function analyzeRecording(file: string, options: AnalysisOptions = 
 export async function analyzeSource(source: TimeHistorySource, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
   const { info } = source;
   const select = selectChannels(info, options.channels);
-  const conditioning = select.map((i) => channelConditioning(info.file, info.channels[i]!, options));
+  const conditioning = channelConditionings(info.file, info.channels, select, options);
   if (options.fminHz !== undefined && options.fmaxHz !== undefined && !(options.fminHz < options.fmaxHz)) {
     throw new InputError("OPTION_INVALID", { option: "--fmin", expected: "--fmin below --fmax", received: `${options.fminHz} >= ${options.fmaxHz}` });
   }
@@ -249,17 +256,16 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     if (note !== undefined) notes.push({ code: "NOT_STATIONARY", text: note });
     if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", text: `--to ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
-      name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit,
-      inputUnit: conditioning[c]!.inputUnit, unitFrom: info.channels[idx]!.declaredUnit !== undefined ? "file" : options.inputUnits !== undefined ? "option" : "default", stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
+      name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
       histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });
   return {
     input: {
       file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
-      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs,
+      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs, startTime: summary.startTime, preamble: info.preamble,
     },
-    settings: { ...resolved, scale: options.scale ?? 1 },
+    settings: { ...resolved, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
     window: windowInfo,
     channels,
     extras: extraResults,
@@ -302,10 +308,9 @@ export function clippingHintCount(samples: number): number {
   return Math.max(3, Math.ceil(2e-5 * samples));
 }
 
-function findings(ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number) {
+function findings(_ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number) {
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
-  if (ch.declaredUnitText !== undefined) notes.push({ code: "UNIT_NOT_ACCELERATION", text: `header unit ${quoted(ch.declaredUnitText)} is not an acceleration unit; values were taken as given (use --scale for a sensitivity)` });
   if (s.nonFinite > 0) {
     doubts.push({ code: "NON_FINITE", text: `${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD` });
   }

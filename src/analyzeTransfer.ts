@@ -1,5 +1,5 @@
 import { selectChannels } from "./analyzeRecording.js";
-import { channelConditioning, scaleSamples } from "./condition/scaleSamples.js";
+import { channelConditionings, scaleSamples, type ChannelSetting } from "./condition/scaleSamples.js";
 import { InputError } from "./errors.js";
 import { normalQuantile } from "./estimate/chiSquare.js";
 import { CrossSpectrumAccumulator } from "./estimate/crossSpectrum.js";
@@ -24,10 +24,13 @@ export interface TransferOptions extends WelchOptions {
   inputChannel: string;
   /** Output channels: names or 1-based positions. */
   outputChannels: string[];
-  inputUnits?: AccelUnit | undefined;
+  /** Unit of the samples where the file does not say (any spelling parseUnitSpec knows; default g). */
+  inputUnits?: string | undefined;
   /** Unit every channel is converted to (default the input channel's), so H is dimensionless. */
   resultUnits?: AccelUnit | undefined;
   scale?: number | undefined;
+  channelScales?: ChannelSetting<number>[] | undefined;
+  sensitivities?: ChannelSetting<string>[] | undefined;
   /** Coherence at or above which a line counts as well explained by the input (default 0.9). */
   goodCoherence?: number | undefined;
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
@@ -100,9 +103,9 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
     if (outIdx.indexOf(o) !== k) throw new InputError("OPTION_INVALID", { option: "--out", expected: "each output channel once", received: JSON.stringify(options.outputChannels[k]) });
   }
   const select = [inIdx!, ...outIdx];
-  const refCond = channelConditioning(info.file, info.channels[inIdx!]!, options);
+  const refCond = channelConditionings(info.file, info.channels, [inIdx!], options)[0]!;
   const common = options.resultUnits ?? refCond.resultUnit;
-  const conditioning = select.map((i) => channelConditioning(info.file, info.channels[i]!, { ...options, resultUnits: common }));
+  const conditioning = channelConditionings(info.file, info.channels, select, { ...options, resultUnits: common });
   const good = options.goodCoherence ?? 0.9;
   if (!(good > 0 && good < 1)) throw new InputError("OPTION_INVALID", { option: "--good-coherence", expected: "a coherence between 0 and 1", received: String(good) });
   const settings = normalizeWelchOptions(options, info.sampleRateHz);
@@ -187,7 +190,7 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   });
   return {
     input: { file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes, sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs },
-    settings: { ...settings, resolutionHz: df, scale: options.scale ?? 1, goodCoherence: good },
+    settings: { ...settings, resolutionHz: df, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1, goodCoherence: good },
     averages: sums.segments,
     skippedSegments: sums.skippedSegments,
     dof,

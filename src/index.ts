@@ -2,12 +2,12 @@
 export { analyzeRecording, analyzeSource, selectChannels, clippingHintCount, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
 export { checkRecording, loadProfile, combineSpectra, spectrumOf, CONTROL_RULES, type CheckResult, type CheckOptions, type ControlRule } from "./checkRecording.js";
 export { InputError, formatInputError, EXIT, type ErrorPlace, type InputErrorDetails } from "./errors.js";
-export { STANDARD_GRAVITY_M_PER_S2, accelFactor, type AccelUnit } from "./units.js";
+export { STANDARD_GRAVITY_M_PER_S2, INCH_M, FOOT_M, accelFactor, parseUnitSpec, parseSensitivity, type AccelUnit, type UnitSpec } from "./units.js";
 export { openTimeHistory } from "./read/openTimeHistory.js";
 export { openCsvTimeHistory, type CsvReadOptions } from "./read/csvTimeHistory.js";
 export { openWavTimeHistory } from "./read/wavTimeHistory.js";
 export type { RecordingInfo, ChannelInfo, TimeHistorySource, ReadSummary, BlockSink } from "./read/timeHistory.js";
-export { scaleSamples, channelConditioning } from "./condition/scaleSamples.js";
+export { scaleSamples, channelConditioning, channelConditionings, type ChannelConditioning, type ChannelReading, type ChannelSetting, type ConditioningOptions } from "./condition/scaleSamples.js";
 export { spectralWindow, windowFigures, WINDOW_NAMES, type WindowName } from "./estimate/windows.js";
 export { RealFft } from "./estimate/realFft.js";
 export { SegmentPower } from "./estimate/segmentPower.js";
@@ -63,3 +63,5 @@ export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sou
 export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
 export { transferHtml } from "./report/transferHtml.js";
 export { responseJson, responseText } from "./report/responseReport.js";
+export { settingsDigest, type Job } from "./queue/job.js";
+export { runJob, type JobOutcome, type JobContext, type KeyFigures } from "./queue/runJob.js";

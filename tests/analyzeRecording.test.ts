@@ -3,7 +3,7 @@ import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeRecording, analyzeSource, clippingHintCount, type PassAccumulator } from "../src/analyzeRecording.js";
 import type { TimeHistorySource } from "../src/read/timeHistory.js";
-import { cli, gaussian, tempDir } from "./helpers.js";
+import { cli, gaussian, maxRelDiff, tempDir } from "./helpers.js";
 import { wavBytes } from "./wavBytes.js";
 
 const dir = tempDir();
@@ -37,6 +37,152 @@ describe("inspect", () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toContain("64 samples at 100 Hz");
     expect(r.stdout).not.toMatch(/segment|Parseval/);
+  });
+});
+
+describe("analyzeRecording: logger exports give the plain CSV's PSD (within 1e-12)", () => {
+  const n = 8192;
+  const x = gaussian(n, 31, 0.7);
+  const plainFile = join(dir, "plain-g.csv");
+  writeFileSync(plainFile, "time,ax\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v}`).join("\n") + "\n");
+  const opts = { segmentLength: 1024 };
+  async function expectSamePsd(file: string, o: Parameters<typeof analyzeRecording>[1] = {}, factor = 1) {
+    const a = await analyzeRecording(plainFile, opts);
+    const b = await analyzeRecording(file, { ...opts, ...o });
+    expect(b.input.sampleRateHz).toBe(a.input.sampleRateHz);
+    expect(b.input.samples).toBe(n);
+    const pa = a.channels[0]!.psd.psd;
+    const pb = b.channels[0]!.psd.psd;
+    expect(maxRelDiff(pb.map((v) => v / factor), pa)).toBeLessThanOrEqual(1e-12);
+    return b;
+  }
+  const write = (name: string, head: string, cell: (v: number, i: number) => string) => {
+    const f = join(dir, name);
+    writeFileSync(f, head + "\n" + Array.from(x, (v, i) => cell(v, i)).join("\n") + "\n");
+    return f;
+  };
+  it("a header in mg is read as g (factor 1e-3) and the reading is recorded", async () => {
+    const b = await expectSamePsd(write("mg.csv", "time,ax [mg]", (v, i) => `${(i / 1024).toFixed(6)},${v * 1000}`));
+    expect(b.channels[0]!.units).toBe("g");
+    expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "mg", unitFrom: "header", factor: 1e-3 });
+  });
+  it("a header in µg, and --units mg for a file that says nothing", async () => {
+    await expectSamePsd(write("ug.csv", "time,ax (µg)", (v, i) => `${(i / 1024).toFixed(6)},${v * 1e6}`));
+    await expectSamePsd(write("mg-opt.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v * 1000}`), { inputUnits: "mg" });
+  });
+  it("headers in mm/s^2, cm/s², in/s**2, ft s-2 and ms^-2 read as m/s^2 and give the g PSD times g_n^2 (SI Brochure 9th ed.)", async () => {
+    const gn = 9.80665;
+    for (const [unit, k] of [["mm/s^2", 1e-3], ["cm/s²", 1e-2], ["in/s**2", 0.0254], ["ft s-2", 0.3048], ["ms^-2", 1]] as const) {
+      const b = await expectSamePsd(write(`u${k}.csv`, `time,ax [${unit}]`, (v, i) => `${(i / 1024).toFixed(6)},${(v * gn) / k}`), {}, gn * gn);
+      expect(b.channels[0]!.units, unit).toBe("m/s2");
+    }
+  });
+  it("a channel in mV with --sensitivity 100mV/g, and one in V with 500mV/g for every channel", async () => {
+    await expectSamePsd(write("mv.csv", "time,ax [mV]", (v, i) => `${(i / 1024).toFixed(6)},${v * 100}`), { sensitivities: [{ channel: "ax", value: "100mV/g" }] });
+    const b = await expectSamePsd(write("v.csv", "time,ax [V]", (v, i) => `${(i / 1024).toFixed(6)},${v * 0.5}`), { sensitivities: [{ value: "500mV/g" }] });
+    expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "V", unitFrom: "sensitivity", sensitivity: "500mV/g" });
+  });
+  it("per-channel --scale ax=K", async () => {
+    await expectSamePsd(write("scaled.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v / 4}`), { channelScales: [{ channel: "ax", value: 4 }] });
+  });
+});
+
+describe("analyzeRecording: time stamps and export quirks give the plain CSV's PSD (within 1e-12)", () => {
+  const n = 8192;
+  const x = gaussian(n, 32, 0.4);
+  const plainFile = join(dir, "plain-t.csv");
+  writeFileSync(plainFile, "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v},${-v}`).join("\n") + "\n");
+  const opts = { segmentLength: 1024 };
+  async function expectSamePsd(file: string, o: Parameters<typeof analyzeRecording>[1] = {}) {
+    const a = await analyzeRecording(plainFile, opts);
+    const b = await analyzeRecording(file, { ...opts, ...o });
+    expect(b.input.sampleRateHz).toBe(1024);
+    expect(b.input.samples).toBe(n);
+    expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+    return b;
+  }
+  const write = (name: string, text: string) => {
+    const f = join(dir, name);
+    writeFileSync(f, text);
+    return f;
+  };
+  const rows = (stamp: (i: number) => string, sep = ",", end = "") => Array.from(x, (v, i) => `${stamp(i)}${sep}${v}${sep}${-v}${end}`).join("\n") + "\n";
+  /** Microseconds since the start, as a date-time stamp from 2024-05-17 14:03:00. */
+  const iso = (i: number, t: string, zone: string) => {
+    const us = Math.round((i * 1e6) / 1024);
+    const s = Math.floor(us / 1e6);
+    return `2024-05-17${t}14:${String(3 + Math.floor(s / 60)).padStart(2, "0")}:${String(s % 60).padStart(2, "0")}.${String(us % 1e6).padStart(6, "0")}${zone}`;
+  };
+
+  it("scientific-notation stamps (%.6e, as numpy.savetxt writes them): the resolution comes from the digits and the exponent", async () => {
+    await expectSamePsd(write("sci-t.csv", "time,ax,ay\n" + rows((i) => (i / 1024).toExponential(6).replace(/e([+-])(\d)$/, "e$10$2"))));
+  });
+  it("significant-digit stamps (%.6g, trailing zeros dropped)", async () => {
+    await expectSamePsd(write("g6-t.csv", "time,ax,ay\n" + rows((i) => String(Number((i / 1024).toPrecision(6))))));
+  });
+  it("ISO 8601 stamps with T and Z: the rate from their differences, the start time in the results", async () => {
+    const b = await expectSamePsd(write("iso-z.csv", "timestamp,ax,ay\n" + rows((i) => iso(i, "T", "Z"))));
+    expect(b.input.startTime).toBe("2024-05-17T14:03:00.000000Z");
+  });
+  it("'YYYY-MM-DD hh:mm:ss.ffffff' stamps without a zone, semicolon-delimited; and with an offset (start time in UTC)", async () => {
+    const b = await expectSamePsd(write("iso-space.csv", "Date/Time;ax;ay\n" + rows((i) => iso(i, " ", ""), ";")));
+    expect(b.input.startTime).toBe("2024-05-17T14:03:00.000000");
+    const c = await expectSamePsd(write("iso-offset.csv", "time,ax,ay\n" + rows((i) => iso(i, "T", "+02:00"))));
+    expect(c.input.startTime).toBe("2024-05-17T12:03:00.000000Z");
+  });
+  it("a time column in milliseconds: --time-unit ms", async () => {
+    await expectSamePsd(write("ms-t.csv", "Time,ax,ay\n" + rows((i) => ((i * 1000) / 1024).toFixed(6))), { csv: { timeUnit: "ms" } });
+  });
+  it("spreadsheet serial day numbers with --time-unit serial-days: the rate from their differences, the start time from 1899-12-30", async () => {
+    // 45429.5 is 2024-05-17 12:00 in the 1900 date system (45292 = 2024-01-01, from memory; 137 days on).
+    const b = await expectSamePsd(write("serial.csv", "Time,ax,ay\n" + rows((i) => (45429.5 + i / (1024 * 86400)).toFixed(10))), { csv: { timeUnit: "serial-days" } });
+    expect(b.input.startTime).toBe("2024-05-17T12:00:00.000000");
+  });
+  it("--no-time-column --rate with a date-time column: the column is neither read nor a channel", async () => {
+    const b = await expectSamePsd(write("iso-ignored.csv", "stamp,ax,ay\n" + rows((i) => iso(i, " ", ""))), { csv: { timeColumn: false, sampleRateHz: 1024 } });
+    expect(b.channels.map((c) => c.name)).toEqual(["ax", "ay"]);
+    const c = await expectSamePsd(plainFile, { csv: { timeColumn: false, sampleRateHz: 1024 } });
+    expect(c.channels.map((ch) => ch.name)).toEqual(["ax", "ay"]);
+  });
+  it("--rate that agrees with the time column is accepted", async () => {
+    await expectSamePsd(plainFile, { csv: { sampleRateHz: 1024 } });
+  });
+  it("a trailing delimiter on every row (an empty last column) is ignored, with or without -c", async () => {
+    const f = write("trailing.csv", "time,ax,ay,\n" + rows((i) => (i / 1024).toFixed(6), ",", ","));
+    const b = await expectSamePsd(f);
+    expect(b.channels.map((c) => c.name)).toEqual(["ax", "ay"]);
+    expect(b.input.layout).toContain("empty last column ignored");
+    await expectSamePsd(f, { channels: ["ax"] });
+  });
+  it("a units row under the header is read as units (s, mg, mg)", async () => {
+    const b = await analyzeRecording(write("units-row.csv", "time,ax,ay\ns,mg,mg\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v * 1000},${-v * 1000}`).join("\n") + "\n"), opts);
+    const a = await analyzeRecording(plainFile, opts);
+    expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "mg", unitFrom: "header" });
+    expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+  });
+  it("a preamble of metadata lines before the header is skipped, kept, and counted", async () => {
+    const b = await expectSamePsd(write("preamble.csv", "Logger LX-9 field export\nSerial: 0042-K\nChannels: ax, ay\ntime,ax,ay\n" + rows((i) => (i / 1024).toFixed(6))));
+    expect(b.input.preamble).toEqual(["Logger LX-9 field export", "Serial: 0042-K", "Channels: ax, ay"]);
+    expect(b.input.layout).toContain("3 preamble lines before the header kept as metadata");
+  });
+  it("channels in %.6e, in %.6e with decimal commas, and integer counts read as the plain CSV of the same values", async () => {
+    const e6 = (v: number) => v.toExponential(6).replace(/e([+-])(\d)$/, "e$10$2");
+    const plain = write("plain-e6.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Number(e6(v))},${Number(e6(-v))}`).join("\n") + "\n");
+    const sci = write("e6.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${e6(v)},${e6(-v)}`).join("\n") + "\n");
+    const comma = write("e6-comma.csv", "time;ax;ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)};${e6(v)};${e6(-v)}`.replace(/\./g, ",")).join("\n") + "\n");
+    const a = await analyzeRecording(plain, opts);
+    for (const f of [sci, comma]) {
+      const b = await analyzeRecording(f, opts);
+      expect(b.input.sampleRateHz).toBe(1024);
+      expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+    }
+    const counts = write("counts.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)},0`).join("\n") + "\n");
+    const countsPlain = write("counts-plain.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)}.0,0.0`).join("\n") + "\n");
+    expect(maxRelDiff((await analyzeRecording(counts, opts)).channels[0]!.psd.psd, (await analyzeRecording(countsPlain, opts)).channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+  });
+  it("a 'sep=;' first line names the delimiter", async () => {
+    const b = await expectSamePsd(write("sep.csv", "sep=;\ntime;ax;ay\n" + rows((i) => (i / 1024).toFixed(6), ";")));
+    expect(b.input.layout).toContain("sep=");
   });
 });
 

@@ -17,6 +17,8 @@ process.stdout.on("error", (e: NodeJS.ErrnoException) => {
 // file still being written, then exit 128 + the signal number, as a shell reports it (common practice).
 for (const [signal, code] of [["SIGINT", 130], ["SIGTERM", 143], ["SIGHUP", 129]] as const) {
   process.on(signal, () => {
+    // A command that listens for the signal itself (`queue work`: finish the jobs in hand) handles it.
+    if (process.listenerCount(signal) > 1) return;
     removeTemporaryFilesSync();
     process.exit(code);
   });

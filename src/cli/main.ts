@@ -25,6 +25,7 @@ import { registerRide } from "./ride.js";
 import { registerRespond } from "./respond.js";
 import { registerTransfer } from "./transfer.js";
 import { registerVerify } from "./verify.js";
+import { registerQueue } from "./queue.js";
 
 // Modules that only some commands need (zod and yaml for profiles, d3 for the report, the batch pool)
 // load on first use, so that a plain `psd` starts fast.
@@ -341,7 +342,7 @@ export function buildProgram(io: CliIo): Command {
     });
 
   registerRide(program, io);
-  for (const register of [registerTransfer, registerRespond, registerVerify]) register(program, io);
+  for (const register of [registerTransfer, registerRespond, registerQueue, registerVerify]) register(program, io);
 
   return program;
 }

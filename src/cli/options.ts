@@ -3,8 +3,9 @@ import type { AnalysisOptions } from "../analyzeRecording.js";
 import { InputError } from "../errors.js";
 import type { Detrend } from "../estimate/welchPsd.js";
 import type { WindowName } from "../estimate/windows.js";
+import type { ChannelSetting } from "../condition/scaleSamples.js";
+import { ACCEL_UNITS, parseSensitivity, parseUnitSpec, UNIT_NAMES, type AccelUnit } from "../units.js";
 import { CONFIDENCE_RULE, MAX_CONFIDENCE, MIN_CONFIDENCE } from "../estimate/welchOptions.js";
-import { ACCEL_UNITS, parseAccelUnit, type AccelUnit } from "../units.js";
 
 /** Option parsers that fail with the option's name, the rule and the value received. */
 export function numberOption(option: string, rule: (x: number) => boolean, expected: string) {
@@ -15,13 +16,44 @@ export function numberOption(option: string, rule: (x: number) => boolean, expec
   };
 }
 
-function unitOption(option: string) {
+/** `--result-units`: one of the two base units. */
+function baseUnitOption(option: string) {
   return (text: string): AccelUnit => {
-    const u = parseAccelUnit(text);
-    if (u === undefined) throw new InputError("OPTION_INVALID", { option, expected: `one of ${ACCEL_UNITS.join(", ")}`, received: JSON.stringify(text) });
-    return u;
+    const u = parseUnitSpec(text);
+    if (u === undefined || u.factor !== 1) throw new InputError("OPTION_INVALID", { option, expected: `one of ${ACCEL_UNITS.join(", ")}`, received: JSON.stringify(text) });
+    return u.base;
   };
 }
+
+/** `--units`: any acceleration unit psdgate knows, in any accepted spelling. */
+function anyUnitOption(option: string) {
+  return (text: string): string => {
+    const u = parseUnitSpec(text);
+    if (u === undefined) throw new InputError("OPTION_INVALID", { option, expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`, received: JSON.stringify(text) });
+    return u.name;
+  };
+}
+
+/**
+ * `[CH=]VALUE`, repeatable: the channel is the text before the last `=` (a name may hold `=` only if
+ * it is not the last one). Values are checked by `parse`.
+ */
+function channelSetting<T>(option: string, parse: (text: string) => T | undefined, expected: string) {
+  return (text: string, prev: ChannelSetting<T>[] = []): ChannelSetting<T>[] => {
+    const eq = text.lastIndexOf("=");
+    const channel = eq >= 0 ? text.slice(0, eq).trim() : undefined;
+    const valueText = eq >= 0 ? text.slice(eq + 1) : text;
+    const value = parse(valueText);
+    if (value === undefined || channel === "") throw new InputError("OPTION_INVALID", { option, expected, received: JSON.stringify(text) });
+    return [...prev, { channel, value }];
+  };
+}
+
+const scaleValue = (t: string) => {
+  const v = Number(t);
+  return t.trim() !== "" && Number.isFinite(v) && v !== 0 ? v : undefined;
+};
+const sensitivityValue = (t: string) => (parseSensitivity(t) ? t.trim() : undefined);
 
 export function choice<T extends string>(option: string, values: readonly T[]) {
   return (text: string): T => {
@@ -39,12 +71,14 @@ export function addReadingOptions(cmd: Command): Command {
     .option("-c, --channel <name|n>", "analyse this channel (name or 1-based position); repeat for more", collect)
     .option("--rate <hz>", "sample rate when the CSV has no time column", numberOption("--rate", (x) => x > 0, "a sample rate in Hz above 0"))
     .option("--time-column <name|n>", "the CSV column that holds time (default: a column named time, t, time [ms], …)")
-    .option("--no-time-column", "the CSV has no time column (then --rate is needed)")
+    .option("--no-time-column", "do not use the CSV's time column (it is not read as a channel either; then --rate is needed)")
+    .option("--time-unit <u>", "unit of a time column whose header does not say: s, ms, us, days, or serial-days (spreadsheet date numbers: days since 1899-12-30, start time said)", choice("--time-unit", ["s", "ms", "us", "days", "serial-days"]))
     .option("--delimiter <d>", "CSV field delimiter: comma, semicolon, tab or whitespace (default: detected)", choice("--delimiter", ["comma", "semicolon", "tab", "whitespace", ",", ";"]))
     .option("--decimal <mark>", "decimal mark: point or comma (default: detected)", choice("--decimal", ["point", "comma"]))
-    .option("--units <u>", "unit of the samples where the file does not say: g or m/s2 (default g)", unitOption("--units"))
-    .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit)", unitOption("--result-units"))
-    .option("--scale <k>", "calibration factor: engineering units per file unit (WAV: per full scale)", numberOption("--scale", (x) => x !== 0, "a non-zero number"))
+    .option("--units <u>", `unit of the samples where the file does not say: ${UNIT_NAMES.join(", ")} (default g)`, anyUnitOption("--units"))
+    .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit's base, g or m/s2)", baseUnitOption("--result-units"))
+    .option("--scale <[ch=]k>", "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel", channelSetting("--scale", scaleValue, "a non-zero number K, or CH=K"))
+    .option("--sensitivity <[ch=]s>", "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel", channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"))
     .option("--from <s>", "analyse from this time, in s from the first sample (the window is recorded in the results)", numberOption("--from", (x) => x >= 0, "a time in s >= 0"))
     .option("--to <s>", "analyse up to this time, in s from the first sample", numberOption("--to", (x) => x > 0, "a time in s above 0"));
 }
@@ -71,11 +105,13 @@ export interface ParsedCommon {
   channel?: string[];
   rate?: number;
   timeColumn?: string | false;
+  timeUnit?: "s" | "ms" | "us" | "days" | "serial-days";
   delimiter?: string;
   decimal?: "point" | "comma";
-  units?: AccelUnit;
+  units?: string;
   resultUnits?: AccelUnit;
-  scale?: number;
+  scale?: ChannelSetting<number>[];
+  sensitivity?: ChannelSetting<string>[];
   from?: number;
   to?: number;
   window?: WindowName;
@@ -98,13 +134,15 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     csv: {
       timeColumn: typeof tc === "string" && /^\d+$/.test(tc) ? Number(tc) : tc,
       sampleRateHz: o.rate,
+      timeUnit: o.timeUnit,
       delimiter: o.delimiter === undefined ? undefined : DELIMS[o.delimiter as keyof typeof DELIMS],
       decimal: o.decimal === undefined ? undefined : o.decimal === "comma" ? "," : ".",
     },
     channels: o.channel,
     inputUnits: o.units,
     resultUnits: o.resultUnits,
-    scale: o.scale,
+    channelScales: o.scale,
+    sensitivities: o.sensitivity,
     fromS: o.from,
     toS: o.to,
     window: o.window,

@@ -1,7 +1,8 @@
 import { createRequire } from "node:module";
 import type Papa from "papaparse";
 import { InputError, quoted } from "../errors.js";
-import { nonFiniteToken, parseNumberText, POW10, scanNumber, type ScanState } from "./csvNumber.js";
+import { nonFiniteToken, numberTextResolution, parseNumberText, POW10, scanNumber, type ScanState } from "./csvNumber.js";
+import { parseDateTimeText, scanDateTime, type DateTimeScan } from "./dateTimeStamp.js";
 
 /**
  * The body of a delimited-text time history, parsed piece by piece. A piece is a run of whole lines;
@@ -23,6 +24,12 @@ export interface CsvBodySpec {
   timeIndex: number;
   /** File columns of the selected channels, in output order. */
   selectColumns: number[];
+  /** The time column holds date-time stamps (dateTimeStamp.ts), counted in seconds from this day. */
+  timeDateTime?: { baseDays: number } | undefined;
+  /** Columns that are not read at all (a date-time column under --no-time-column). */
+  ignoreColumns?: number[] | undefined;
+  /** Every row ends with one more delimiter (an empty last column, not counted in `columns`). */
+  trailingEmpty?: boolean | undefined;
 }
 
 export interface CsvPiece {
@@ -34,8 +41,13 @@ export interface CsvPiece {
   time: Float64Array | undefined;
   /** Line of each row relative to the piece's first line; undefined when row i is line i. */
   rowLines: Uint32Array | undefined;
-  /** Most digits after the decimal mark in the time column. */
-  timeFractionDigits: number;
+  /**
+   * Resolution of the printed time stamps: the smallest decimal place of a last digit (-3 for
+   * "1.234", -5 for "1.000020E+01"; 99 without stamps), and the largest mantissa as an integer
+   * (1000020 for "1.000020E+01"), whose digit count is the stamps' significant digits.
+   */
+  timeMinPlace: number;
+  timeMaxMant: number;
 }
 
 export const MAX_LINE_BYTES = 1 << 20;
@@ -87,8 +99,21 @@ export class CsvBodyParser {
   /** Where each file column goes: -1 dropped, -2 time, else the output channel. */
   private readonly target: Int32Array;
   private readonly row: Float64Array;
-  private readonly scan: ScanState = { end: 0, value: 0, fractionDigits: 0 };
-  private readonly plain: PlainRowsState = { end: 0, timeFrac: 0 };
+  private readonly scan: ScanState = { end: 0, value: 0, fractionDigits: 0, place: 0, mant: 0 };
+  private readonly dateScan: DateTimeScan = { end: -1, value: 0, fractionDigits: 0, zone: 0, days: 0 };
+  private readonly plain: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0 };
+  /** Whether the plain-row loop may run (not with date-time stamps or ignored columns). */
+  private readonly plainOk: boolean;
+  private readonly trailing: boolean;
+  /** Zone state of the date-time stamps: -1 before the first, else 0 (none) or 1 (with a zone). */
+  private zoneMode = -1;
+  /** Whether the date-time stamps carried a zone (Z or an offset). */
+  get zoned(): boolean {
+    return this.zoneMode === 1;
+  }
+  /** The time field of the line parsed last: place of its last digit and its mantissa. */
+  private rowPlace = 0;
+  private rowMant = 0;
 
   constructor(spec: CsvBodySpec) {
     this.spec = spec;
@@ -98,7 +123,10 @@ export class CsvBodyParser {
     this.target = new Int32Array(this.ncol).fill(-1);
     spec.selectColumns.forEach((c, i) => (this.target[c] = i));
     if (spec.timeIndex >= 0) this.target[spec.timeIndex] = -2;
+    for (const c of spec.ignoreColumns ?? []) this.target[c] = -3;
     this.row = new Float64Array(this.ncol);
+    this.plainOk = this.delimByte >= 0 && spec.timeDateTime === undefined && (spec.ignoreColumns ?? []).length === 0;
+    this.trailing = spec.trailingEmpty === true;
   }
 
   /**
@@ -116,7 +144,8 @@ export class CsvBodyParser {
     let rowLines: Uint32Array | undefined;
     let rows = 0;
     let line = 0;
-    let timeFrac = 0;
+    let minPlace = 99;
+    let maxMant = 0;
     // Where each file column's values go in the plain-row loop: its output column, or a scratch column.
     let outs: Float64Array[] = [];
     const route = () => {
@@ -147,11 +176,12 @@ export class CsvBodyParser {
     const plain = this.plain;
     let p = s;
     while (p < e) {
-      if (this.delimByte >= 0) {
+      if (this.plainOk) {
         // Plain rows (numbers and delimiters only) in one tight loop; it stops at anything else.
-        const n = plainRows(buf, p, e, outs, rows, cap, this.ncol, this.delimByte, this.decimalByte, this.spec.timeIndex, plain);
+        const n = plainRows(buf, p, e, outs, rows, cap, this.ncol, this.delimByte, this.decimalByte, this.spec.timeIndex, this.trailing, plain);
         if (n > 0) {
-          if (plain.timeFrac > timeFrac) timeFrac = plain.timeFrac;
+          if (plain.timeMinPlace < minPlace) minPlace = plain.timeMinPlace;
+          if (plain.timeMaxMant > maxMant) maxMant = plain.timeMaxMant;
           if (rowLines) for (let i = 0; i < n; i++) rowLines[rows + i] = line + i;
           rows += n;
           line += n;
@@ -163,10 +193,10 @@ export class CsvBodyParser {
           continue;
         }
       }
-      const frac = this.parseLine(buf, p, e, firstLine + line);
+      const got = this.parseLine(buf, p, e, firstLine + line);
       const next = this.next;
       if (next - p > MAX_LINE_BYTES) this.fail("CSV_LINE_TOO_LONG", firstLine + line, undefined, `lines shorter than ${MAX_LINE_BYTES} bytes`, "a longer line");
-      if (frac >= 0) {
+      if (got >= 0) {
         if (rows === cap) grow();
         const r = this.row;
         for (let c = 0; c < this.ncol; c++) {
@@ -175,7 +205,8 @@ export class CsvBodyParser {
         }
         if (time) {
           time[rows] = r[this.spec.timeIndex]!;
-          if (frac > timeFrac) timeFrac = frac;
+          if (this.rowPlace < minPlace) minPlace = this.rowPlace;
+          if (this.rowMant > maxMant) maxMant = this.rowMant;
         }
         if (rowLines) rowLines[rows] = line;
         else if (line !== rows) {
@@ -191,7 +222,7 @@ export class CsvBodyParser {
     return {
       rows, lines: line,
       channels: channels.map((c) => c.subarray(0, rows)),
-      time: time?.subarray(0, rows), rowLines: rowLines?.subarray(0, rows), timeFractionDigits: timeFrac,
+      time: time?.subarray(0, rows), rowLines: rowLines?.subarray(0, rows), timeMinPlace: minPlace, timeMaxMant: maxMant,
     };
   }
 
@@ -211,9 +242,10 @@ export class CsvBodyParser {
   }
 
   /**
-   * Parses the line starting at s into this.row and sets this.next past it. Returns the time
-   * field's fraction digits (0 without time), or -1 for a line without data. The fast path finds the
-   * line's end while it scans; anything unusual goes to slowLine with the line's exact extent.
+   * Parses the line starting at s into this.row and sets this.next past it. Returns 0 for a row
+   * (the time field's resolution in rowPlace and rowMant), or -1 for a line without data. The fast
+   * path finds the line's end while it scans; anything unusual goes to slowLine with the line's
+   * exact extent.
    */
   private parseLine(buf: Uint8Array, s: number, e: number, line: number): number {
     let p = s;
@@ -227,15 +259,32 @@ export class CsvBodyParser {
     const delim = this.delimByte;
     const scan = this.scan;
     const ti = this.spec.timeIndex;
-    let frac = 0;
+    const dt = this.spec.timeDateTime;
     for (let col = 0; col < ncol; col++) {
       c = buf[p]!;
       while (c === SPACE || (delim < 0 && c === TAB)) c = buf[++p]!;
-      scanNumber(buf, p, this.decimalByte, scan);
-      if (scan.end < 0) return this.slowLine(buf, s, e, line);
-      this.row[col] = scan.value;
-      if (col === ti) frac = scan.fractionDigits;
-      p = scan.end;
+      if (this.target[col] === -3) {
+        // An ignored column: its bytes up to the next delimiter (or end of line), unread.
+        while (c !== 10 && c !== CR && (delim >= 0 ? c !== delim : c !== SPACE && c !== TAB)) c = buf[++p]!;
+      } else if (col === ti && dt !== undefined) {
+        const d = this.dateScan;
+        scanDateTime(buf, p, dt.baseDays, d);
+        if (d.end < 0 || (this.zoneMode >= 0 && d.zone !== this.zoneMode)) return this.slowLine(buf, s, e, line);
+        this.zoneMode = d.zone;
+        this.row[col] = d.value;
+        this.rowPlace = -d.fractionDigits;
+        this.rowMant = 0;
+        p = d.end;
+      } else {
+        scanNumber(buf, p, this.decimalByte, scan);
+        if (scan.end < 0) return this.slowLine(buf, s, e, line);
+        this.row[col] = scan.value;
+        if (col === ti) {
+          this.rowPlace = scan.place;
+          this.rowMant = scan.mant;
+        }
+        p = scan.end;
+      }
       c = buf[p]!;
       while (c === SPACE || (delim < 0 && c === TAB)) c = buf[++p]!;
       if (col < ncol - 1) {
@@ -245,10 +294,15 @@ export class CsvBodyParser {
         } else if (c === 10 || c === CR) return this.slowLine(buf, s, e, line);
       }
     }
+    if (this.trailing) {
+      if (c !== delim) return this.slowLine(buf, s, e, line);
+      c = buf[++p]!;
+      while (c === SPACE) c = buf[++p]!;
+    }
     if (c === CR) c = buf[++p]!;
     if (c !== 10) return this.slowLine(buf, s, e, line);
     this.next = p + 1;
-    return frac;
+    return 0;
   }
 
   private slowLine(buf: Uint8Array, s: number, e: number, line: number): number {
@@ -258,14 +312,29 @@ export class CsvBodyParser {
     const text = Buffer.from(buf.buffer, buf.byteOffset + s, e - s).toString("utf8");
     const fields = splitRow(text, this.spec.delimiter);
     const ncol = this.ncol;
+    // An empty last field after the trailing delimiter is no column; a row without it is read too.
+    if (this.trailing && fields.length === ncol + 1 && fields[ncol]!.trim() === "") fields.pop();
     const names = this.spec.columnNames;
     if (fields.length !== ncol) {
       const few = fields.length < ncol;
       this.fail(few ? "CSV_TOO_FEW_FIELDS" : "CSV_TOO_MANY_FIELDS", line, few ? fields.length + 1 : ncol + 1, `${ncol} fields as in the first row`, `${fields.length}`);
     }
-    let frac = 0;
+    const dt = this.spec.timeDateTime;
     for (let c = 0; c < ncol; c++) {
       const f = fields[c]!.trim();
+      if (this.target[c] === -3) continue;
+      if (c === this.spec.timeIndex && dt !== undefined) {
+        const d = parseDateTimeText(f, dt.baseDays);
+        if (d === undefined) this.fail("CSV_TIME_FORMAT", line, c + 1, "a date-time stamp like 2024-05-17T14:03:00.000 (ISO 8601) as in the first row", quoted(f));
+        if (this.zoneMode >= 0 && d!.zone !== this.zoneMode) {
+          this.fail("CSV_TIME_FORMAT", line, c + 1, this.zoneMode ? "a time zone (Z or an offset) as in the rows before" : "no time zone, as in the rows before", quoted(f));
+        }
+        this.zoneMode = d!.zone;
+        this.row[c] = d!.value;
+        this.rowPlace = -d!.fractionDigits;
+        this.rowMant = 0;
+        continue;
+      }
       if (f === "") this.fail("CSV_EMPTY_CELL", line, c + 1, `a number in column ${quoted(names[c]!)}`, "an empty cell");
       let v = parseNumberText(f, this.spec.decimal);
       if (Number.isNaN(v)) {
@@ -278,11 +347,12 @@ export class CsvBodyParser {
       }
       this.row[c] = v;
       if (c === this.spec.timeIndex) {
-        const m = /[.,](\d+)/.exec(f);
-        frac = m ? m[1]!.length : 0;
+        const r = numberTextResolution(f);
+        this.rowPlace = r.place;
+        this.rowMant = r.mant;
       }
     }
-    return frac;
+    return 0;
   }
 }
 
@@ -291,25 +361,28 @@ const SIGN = new Float64Array([1, -1]);
 interface PlainRowsState {
   /** Index of the first byte not parsed: the start of the line that stopped the loop. */
   end: number;
-  /** Most fraction digits seen in the time column. */
-  timeFrac: number;
+  /** Resolution of the time column's stamps (CsvPiece.timeMinPlace, timeMaxMant). */
+  timeMinPlace: number;
+  timeMaxMant: number;
 }
 
 /**
- * The common case in one loop: rows of exactly `ncol` plain numbers ([+-]digits[.digits], at most 15
- * digits) separated by the delimiter byte and ended by LF or CRLF. Row r's values go to
- * outs[column][row0 + r]. It stops before the first line that is anything else (spaces, exponents,
- * quotes, comments, blank lines, a short row), when the columns are full (`cap`), or at `e`, and
+ * The common case in one loop: rows of exactly `ncol` plain numbers ([+-]digits[.digits][(e|E)[+-]digits],
+ * at most 15 digits, decimal exponent of the last digit within +-22, either decimal mark) separated by
+ * the delimiter byte and ended by LF or CRLF. Row r's values go to
+ * outs[column][row0 + r]. It stops before the first line that is anything else (spaces, longer
+ * exponents, quotes, comments, blank lines, a short row), when the columns are full (`cap`), or at `e`, and
  * returns the rows parsed; the caller's general path takes the line it stopped at. The value is m / 10^k
- * with m exact (at most 15 digits), one correctly rounded division: the same double as Number()
- * (Clinger 1990, as in scanNumber).
+ * or m * 10^-k with m exact (at most 15 digits), one correctly rounded operation: the same double as
+ * Number() (Clinger 1990, as in scanNumber).
  */
 function plainRows(
   buf: Uint8Array, p: number, e: number, outs: Float64Array[], row0: number, cap: number,
-  ncol: number, delim: number, decimal: number, timeIndex: number, state: PlainRowsState,
+  ncol: number, delim: number, decimal: number, timeIndex: number, trailing: boolean, state: PlainRowsState,
 ): number {
   let row = row0;
-  let timeFrac = 0;
+  let timeMaxK = -99;
+  let timeMant = 0;
   const last = ncol - 1;
   rows: while (p < e && row < cap) {
     const lineStart = p;
@@ -339,7 +412,29 @@ function plainRows(
         frac = p - f0;
         digits += frac;
       }
-      if (((digits - 1) >>> 0) > 14) {
+      // The value is m / 10^k; an exponent (e or E, then [+-]digits) moves k.
+      let k = frac;
+      if ((c | 32) === 101 /* e, E */) {
+        c = buf[++p]!;
+        const eneg = (((c ^ 45) - 1) >>> 31) as 0 | 1;
+        p += eneg;
+        c = buf[p]!;
+        if (c === 43 /* + */ && eneg === 0) c = buf[++p]!;
+        const e0 = p;
+        let ev = 0;
+        while (((c - 48) >>> 0) < 10) {
+          ev = ev * 10 + (c - 48);
+          c = buf[++p]!;
+        }
+        if (((p - e0 - 1) >>> 0) > 2) {
+          p = lineStart;
+          break rows;
+        }
+        k += eneg === 1 ? ev : -ev;
+      }
+      // At most 15 digits and |k| <= 22: m and 10^|k| are exact, and one division or product rounds
+      // correctly (Clinger 1990), so the double is Number()'s.
+      if (((digits - 1) >>> 0) > 14 || ((k + 22) >>> 0) > 44) {
         p = lineStart;
         break rows;
       }
@@ -348,6 +443,13 @@ function plainRows(
           p = lineStart;
           break rows;
         }
+      } else if (trailing && c !== 10 && c !== 13) {
+        // The empty last column: its delimiter, then the line's end.
+        if (c !== delim || (buf[p + 1] !== 10 && (buf[p + 1] !== 13 || buf[p + 2] !== 10))) {
+          p = lineStart;
+          break rows;
+        }
+        p += buf[p + 1] === 13 ? 2 : 1;
       } else if (c !== 10) {
         if (c !== 13 || buf[p + 1] !== 10) {
           p = lineStart;
@@ -356,13 +458,17 @@ function plainRows(
         p++;
       }
       p++;
-      outs[col]![row] = (m / POW10[frac]!) * SIGN[neg]!;
-      if (col === timeIndex && frac > timeFrac) timeFrac = frac;
+      outs[col]![row] = (k >= 0 ? m / POW10[k]! : m * POW10[-k]!) * SIGN[neg]!;
+      if (col === timeIndex) {
+        if (k > timeMaxK) timeMaxK = k;
+        if (m > timeMant) timeMant = m;
+      }
     }
     row++;
   }
   state.end = p;
-  state.timeFrac = timeFrac;
+  state.timeMinPlace = -timeMaxK;
+  state.timeMaxMant = timeMant;
   return row - row0;
 }
 
@@ -372,6 +478,6 @@ function plainRows(
 {
   const row = new Uint8Array([49, 44, 50, 10]); // "1,2\n"
   const outs = [new Float64Array(1), new Float64Array(1)];
-  const state: PlainRowsState = { end: 0, timeFrac: 0 };
-  for (let i = 0; i < 32; i++) plainRows(row, 0, row.length, outs, 0, 1, 2, 44, 46, 0, state);
+  const state: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0 };
+  for (let i = 0; i < 32; i++) plainRows(row, 0, row.length, outs, 0, 1, 2, 44, 46, 0, false, state);
 }

@@ -2,7 +2,10 @@ import { createHash } from "node:crypto";
 import { closeSync, openSync, readSync } from "node:fs";
 import { InputError } from "../errors.js";
 import { columnPool, CsvBodyParser, MAX_LINE_BYTES, type CsvBodySpec, type CsvPiece } from "./csvBody.js";
-import { TimeStampCheck } from "./timeStampCheck.js";
+import { daysFromCivil, isoDateTime } from "./dateTimeStamp.js";
+
+const SERIAL_EPOCH_DAYS = daysFromCivil(1899, 12, 30);
+import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, TimeStampCheck, type TimeColumnInfo } from "./timeStampCheck.js";
 import type { ReadSummary } from "./timeHistory.js";
 
 /**
@@ -18,8 +21,12 @@ export interface CsvBodyJob extends CsvBodySpec {
   bodyLine: number;
   /** Seconds per unit of the time column. */
   timeFactor: number;
-  /** The rate given by the user, which overrides the time column's. */
+  /** The rate given by the user; a time column that disagrees with it is OPTION_CONFLICT. */
   rateOverride: number | undefined;
+  /** The time column holds spreadsheet serial day numbers (days since 1899-12-30): its start time is said. */
+  serialDays?: boolean | undefined;
+  /** The time column, for the messages about its rate and the plausibility rule. */
+  timeColumn?: TimeColumnInfo | undefined;
 }
 
 /**
@@ -94,15 +101,29 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
     throw new InputError("CSV_TOO_SHORT", { file, expected: "at least 2 samples", received: `${frames}` });
   }
   let rate = rateOverride ?? NaN;
-  if (rateOverride === undefined && span) {
+  let startTime: string | undefined;
+  if (span) {
     // Rate from the whole span. Each printed time stamp is rounded to its last digit (quantum q), so
     // the span is uncertain by q and the rate by rate * q / span; a whole-Hz rate inside that margin
     // is the logger's nominal rate (common practice: loggers run at whole-Hz rates).
     const t = span.tLast - span.t0;
-    rate = (frames - 1) / t;
-    const q = Math.pow(10, -span.fractionDigits) * timeFactor;
-    const whole = Math.round(rate);
-    if (whole > 0 && Math.abs(whole - rate) <= (rate * q) / t) rate = whole;
+    let columnRate = (frames - 1) / t;
+    const margin = (columnRate * span.quantum) / t;
+    const whole = Math.round(columnRate);
+    if (whole > 0 && Math.abs(whole - columnRate) <= margin) columnRate = whole;
+    const col = job.timeColumn;
+    if (rateOverride !== undefined) {
+      // --rate against a time column: they must agree within the stamps' rounding, or 0.1 % (common practice: clock tolerance of a logger).
+      if (col && Math.abs(columnRate - rateOverride) > Math.max(margin, 1e-3 * rateOverride)) throw rateConflict(col, rateOverride, columnRate);
+    } else {
+      if (col && !col.unitDeclared && columnRate < MIN_PLAUSIBLE_RATE_HZ) throw implausibleRate(col, columnRate);
+      rate = columnRate;
+    }
+    if (job.timeDateTime) startTime = isoDateTime(job.timeDateTime.baseDays, span.t0, span.fractionDigits, parser.zoned);
+    // Serial day numbers count from 1899-12-30 in the 1900 date system of spreadsheets (day 1 is
+    // 1900-01-01 there, and day 60 the 29 February 1900 that never was; from day 61 on the count is
+    // true, common practice). 10^-d day is 86.4 * 10^(3-d) s: about d - 4 digits of seconds.
+    if (job.serialDays) startTime = isoDateTime(SERIAL_EPOCH_DAYS, span.t0, Math.max(0, span.fractionDigits - 4), false);
   }
-  return { frames, sampleRateHz: rate, sha256: hash.digest("hex"), bytes: pos };
+  return { frames, sampleRateHz: rate, sha256: hash.digest("hex"), bytes: pos, startTime };
 }

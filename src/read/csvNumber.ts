@@ -15,6 +15,10 @@ export interface ScanState {
   value: number;
   /** Digits after the decimal mark. */
   fractionDigits: number;
+  /** Decimal place of the last digit: the exponent minus the fraction digits (-5 for 1.000020E+01). */
+  place: number;
+  /** The digits as one integer (exact up to 15 digits): 1000020 for 1.000020E+01. */
+  mant: number;
 }
 
 /**
@@ -68,6 +72,8 @@ export function scanNumber(buf: Uint8Array, p: number, decimal: number, out: Sca
   }
   out.end = p;
   out.fractionDigits = frac;
+  out.place = exp10;
+  out.mant = mant;
   if (digits + frac <= 15 && exp10 >= -22 && exp10 <= 22) {
     const v = exp10 < 0 ? mant / POW10[-exp10]! : mant * POW10[exp10]!;
     out.value = neg ? -v : v;
@@ -94,4 +100,12 @@ export function parseNumberText(text: string, decimal: "." | ","): number {
   if (decimal === "." && t.includes(",")) return NaN;
   if (decimal === "," && t.includes(".")) return NaN;
   return Number(decimal === "," ? t.replace(",", ".") : t);
+}
+
+/** Resolution of a number's text (slow path): the place of its last digit and its digits as an integer. */
+export function numberTextResolution(text: string): { place: number; mant: number } {
+  const m = /^[+-]?(\d*)(?:[.,](\d*))?(?:[eE]([+-]?\d+))?$/.exec(text.trim());
+  if (!m) return { place: 0, mant: 0 };
+  const frac = m[2] ?? "";
+  return { place: Number(m[3] ?? 0) - frac.length, mant: Number((m[1] ?? "") + frac) || 0 };
 }

@@ -4,10 +4,12 @@ import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import { InputError, quoted } from "../errors.js";
-import { parseAccelUnit } from "../units.js";
+import { parseUnitSpec, parseVoltUnit } from "../units.js";
 import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
+import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, type TimeColumnInfo } from "./timeStampCheck.js";
 import { nonFiniteToken, parseNumberText } from "./csvNumber.js";
+import { looksLikeDateTime, parseDateTimeText } from "./dateTimeStamp.js";
 import type { BlockSink, ChannelInfo, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
 /**
@@ -27,6 +29,8 @@ export interface CsvReadOptions {
   sampleRateHz?: number | undefined;
   delimiter?: "," | ";" | "\t" | "whitespace" | undefined;
   decimal?: "." | "," | undefined;
+  /** Unit of a time column whose header does not say (default: seconds, with the plausibility rule). */
+  timeUnit?: "s" | "ms" | "us" | "days" | "serial-days" | undefined;
   /** 1 to parse (and hash) the body on a worker thread, 0 for this thread (default: 1 for files of 8 MB and more when there is a second core). */
   parseWorkers?: number | undefined;
 }
@@ -38,8 +42,8 @@ const HEAD_BYTES = 65536;
  */
 const PARALLEL_BYTES = 8 << 20;
 const WORKER = new URL("./csvParseWorker.js", import.meta.url);
-const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|zeit|temps|tiempo)$/i;
-const TIME_UNITS: Record<string, number> = { s: 1, sec: 1, secs: 1, seconds: 1, ms: 1e-3, us: 1e-6, µs: 1e-6, μs: 1e-6, ns: 1e-9, min: 60 };
+const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
+const TIME_UNITS: Record<string, number> = { s: 1, sec: 1, secs: 1, seconds: 1, ms: 1e-3, us: 1e-6, µs: 1e-6, μs: 1e-6, ns: 1e-9, min: 60, days: 86400, day: 86400, d: 86400 };
 
 interface Dialect {
   delimiter: Delimiter;
@@ -50,6 +54,20 @@ interface Dialect {
   bodyStart: number;
   /** 1-based line number of the first body line. */
   bodyLine: number;
+  /** 1-based line of the header row, and of a units row under it. */
+  headerLine?: number | undefined;
+  unitLine?: number | undefined;
+  /** The units row's fields, if there is one. */
+  units?: string[] | undefined;
+  /** Every row ends with a delimiter: an empty last column that is not read. */
+  trailingEmpty: boolean;
+  /** Lines before the header that are not comments (a logger's metadata), kept as text. */
+  preamble: string[];
+  preambleLines: number;
+  /** Line of a `sep=` line, if any. */
+  sepLine?: number | undefined;
+  /** Fields of the first row of samples. */
+  firstRow: string[];
 }
 
 interface Column {
@@ -61,7 +79,8 @@ interface Column {
 function splitNameUnit(field: string, index: number): Column {
   const f = field.trim();
   const m = /^(.*?)\s*[[(]\s*([^\])]*?)\s*[\])]\s*$/.exec(f);
-  if (m && m[1] !== "") return { index, name: m[1]!, unitText: m[2] };
+  // A bracketed suffix is a unit only if it holds a letter (or µ, °): "ax (2)" is a name, "ax (mg)" a unit.
+  if (m && m[1] !== "" && /[\p{L}°]/u.test(m[2]!)) return { index, name: m[1]!, unitText: m[2] };
   const u = /^(.*?)_(ms|us|s)$/i.exec(f);
   if (u && TIME_NAMES.test(u[1]!)) return { index, name: f, unitText: u[2]!.toLowerCase() };
   return { index, name: f === "" ? `col${index + 1}` : f, unitText: undefined };
@@ -87,6 +106,49 @@ function headLines(head: Buffer, wholeFile: boolean): { text: string; line: numb
   return out;
 }
 
+/** A field that reads as a number, a non-finite token or a date-time stamp (either decimal mark). */
+function dataField(f: string): boolean {
+  return /^\s*"?[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?"?\s*$/.test(f) || nonFiniteToken(f.replace(/"/g, "")) !== undefined || looksLikeDateTime(f.replace(/"/g, ""));
+}
+
+/** A row of the units a header's columns are in (`s,g,m/s^2` or `[s],[mV],[g]`); empty fields allowed. */
+function unitsRow(fields: string[]): boolean {
+  let any = false;
+  for (const raw of fields) {
+    const f = raw.trim().replace(/^"(.*)"$/, "$1").trim();
+    if (f === "") continue;
+    any = true;
+    const inner = /^[[(](.*)[\])]$/.exec(f);
+    const u = inner ? inner[1]!.trim() : f;
+    if (!inner && parseUnitSpec(u) === undefined && parseVoltUnit(u) === undefined && TIME_UNITS[u.toLowerCase()] === undefined) return false;
+  }
+  return any;
+}
+
+/** Whether a split row is a row of samples: >= 2 fields, all data (an empty last field allowed: a trailing delimiter). */
+function sampleRow(row: string[]): boolean {
+  if (row.length < 2) return false;
+  for (let c = 0; c < row.length; c++) if (!(dataField(row[c]!) || (c === row.length - 1 && c >= 2 && row[c]!.trim() === ""))) return false;
+  return true;
+}
+
+/**
+ * Where the data begins when the rows are split on one delimiter: the first row of samples (k, or -1
+ * when there is none). `consistent` says whether every sniffed row after it is one too, with the same
+ * number of fields; `trailing` whether it ends with an empty field. Rows before k are the
+ * header, a units row and a preamble.
+ */
+function dataStart(rows: string[][]): { k: number; consistent: boolean; trailing: boolean } {
+  const k = rows.findIndex(sampleRow);
+  if (k < 0) return { k, consistent: false, trailing: false };
+  const count = rows[k]!.length;
+  let consistent = true;
+  for (let r = k; r < rows.length && consistent; r++) consistent = rows[r]!.length === count && sampleRow(rows[r]!);
+  // A trailing delimiter: the first row of samples ends with an empty field (a later row with a value
+  // there is named by the body pass as a row with too many fields).
+  return { k, consistent, trailing: rows[k]![count - 1]!.trim() === "" };
+}
+
 function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOptions): Dialect {
   if (head.length === 0) throw new InputError("CSV_EMPTY", { file, expected: "a CSV time history", received: "an empty file" });
   if ((head[0] === 0xff && head[1] === 0xfe) || (head[0] === 0xfe && head[1] === 0xff)) {
@@ -105,7 +167,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
     }
     if (!wholeFile) throw new InputError("CSV_LINE_TOO_LONG", { file, line: 1, expected: `a first line within the first ${HEAD_BYTES >> 10} KB`, received: "a longer line" });
   }
-  const lines = headLines(head, wholeFile).slice(0, 64);
+  let lines = headLines(head, wholeFile).slice(0, 256);
   if (lines.length === 0) throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "only comments or blank lines" });
   const first = lines[0]!;
   if (first.end - first.start > MAX_LINE_BYTES || (!wholeFile && lines.length < 2 && head.indexOf(10) < 0)) {
@@ -113,32 +175,76 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   }
 
   let delimiter: Delimiter | undefined = opts.delimiter;
-  if (delimiter === undefined) {
-    // A candidate must split every sniffed row into the same number (>= 2) of fields, and the rows
-    // after the first must read as numbers (with either decimal mark): mixed space/tab alignment
-    // splits consistently on tabs but gives fields like "0.00   1.5", so it falls through to whitespace.
-    const numeric = (f: string) => /^\s*"?[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?"?\s*$/.test(f) || nonFiniteToken(f.replace(/"/g, "")) !== undefined;
-    const fits = (d: Delimiter) => {
-      const rows = lines.map((l) => splitRow(l.text, d));
-      return rows[0]!.length >= 2 && rows.every((r) => r.length === rows[0]!.length) && rows.slice(1).every((r) => r.every(numeric));
-    };
-    delimiter = (["\t", ";", ",", "whitespace"] as const).find(fits) ?? ",";
+  // A spreadsheet's `sep=;` first line names the delimiter; an option given by the user still wins.
+  const sep = /^\s*"?sep=(.)"?\s*$/i.exec(first.text);
+  let sepLine: number | undefined;
+  if (sep) {
+    const d = sep[1] === "\t" ? "\t" : sep[1];
+    if (d !== "," && d !== ";" && d !== "\t") throw new InputError("CSV_SEP_LINE", { file, line: first.line, expected: "sep=, sep=; or sep=<tab>", received: quoted(first.text.trim()) });
+    delimiter ??= d;
+    sepLine = first.line;
+    lines = lines.slice(1);
+    if (lines.length === 0) throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "a sep= line only" });
   }
+  // A candidate must split the data rows at the end of the head into the same number (>= 2) of
+  // fields that read as numbers (either decimal mark) or date-time stamps: mixed space/tab alignment
+  // splits consistently on tabs but gives fields like "0.00   1.5", so it falls through to whitespace.
+  let found: { k: number; consistent: boolean; trailing: boolean } = { k: -1, consistent: false, trailing: false };
+  if (delimiter === undefined) {
+    // The first delimiter (in this order) under which all rows after the first row of samples agree;
+    // failing that (a bad cell in the head), the first that finds a row of samples at all.
+    const order = ["\t", ";", ",", "whitespace"] as const;
+    const tries = order.map((d) => dataStart(lines.map((l) => splitRow(l.text, d))));
+    let i = tries.findIndex((f) => f.k >= 0 && f.consistent);
+    if (i < 0) i = tries.findIndex((f) => f.k >= 0);
+    delimiter = i >= 0 ? order[i]! : ",";
+    if (i >= 0) found = tries[i]!;
+  } else found = dataStart(lines.map((l) => splitRow(l.text, delimiter!)));
 
   const rows = lines.map((l) => splitRow(l.text, delimiter!).map((f) => f.trim()));
+  // Rows before the data: a header (the row just before), a units row under it, and a preamble.
+  let k = found.k;
+  if (k < 0) {
+    // No data rows in the head: the first row is a header (if it is not numbers), and what follows is checked by the body pass.
+    k = rows[0]!.every(dataField) ? 0 : 1;
+  }
+  const count = rows[Math.min(k, rows.length - 1)]!.length;
+  let header: string[] | undefined;
+  let headerIndex = -1;
+  let units: string[] | undefined;
+  let unitIndex = -1;
+  if (k > 0) {
+    const fits = (r: string[]) => r.length === count || (found.trailing && r.length === count - 1);
+    if (k >= 2 && unitsRow(rows[k - 1]!) && fits(rows[k - 1]!) && fits(rows[k - 2]!) && !unitsRow(rows[k - 2]!)) {
+      units = rows[k - 1];
+      unitIndex = k - 1;
+      headerIndex = k - 2;
+    } else headerIndex = k - 1;
+    header = rows[headerIndex];
+  }
+  // The header sets the number of columns; a row of samples with another count is named by the body pass.
+  let columnsCount = found.trailing ? count - 1 : count;
+  if (header && header.length !== columnsCount && !(found.trailing && header.length === count)) {
+    columnsCount = header.length;
+    found.trailing = false;
+  }
+  const preamble = lines.slice(0, Math.max(0, headerIndex)).map((l) => l.text.trim());
+  if (header) header = header.slice(0, columnsCount);
+  if (units) units = units.slice(0, columnsCount);
+
   let decimal: "." | "," | undefined = opts.decimal;
   if (decimal === ",") {
     if (delimiter === ",") {
       throw new InputError("OPTION_CONFLICT", { option: "--decimal", expected: "a delimiter other than ',' with decimal commas", received: "comma as both", hint: "add --delimiter ';'" });
     }
   } else if (decimal === undefined) {
-    const body = rows.slice(1).flat();
+    const body = rows.slice(k).flat();
     const commaNum = body.some((f) => /^[+-]?\d*,\d+([eE][+-]?\d+)?$/.test(f));
     const pointNum = body.some((f) => /^[+-]?\d*\.\d+([eE][+-]?\d+)?$/.test(f));
     if (commaNum && delimiter !== ",") {
       if (pointNum) {
         throw new InputError("CSV_DECIMAL_AMBIGUOUS", {
-          file, line: lines[1]?.line, expected: "one decimal mark throughout", received: "both '.' and ',' in numbers",
+          file, line: lines[k]?.line, expected: "one decimal mark throughout", received: "both '.' and ',' in numbers",
           hint: "declare it with --decimal point or --decimal comma",
         });
       }
@@ -146,11 +252,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
     } else decimal = ".";
   }
 
-  const isNumeric = (f: string) => !Number.isNaN(parseNumberText(f, decimal!)) || nonFiniteToken(f) !== undefined;
-  const hasHeader = !rows[0]!.every(isNumeric);
-  const header = hasHeader ? rows[0] : undefined;
-  const bodyIndex = hasHeader ? 1 : 0;
-  const body = lines[bodyIndex];
+  const body = lines[k];
   if (body === undefined && !wholeFile) {
     // More follows, but no whole row within the head: the line after the header is too long to sniff.
     const line = head.toString("latin1").split("\n").length;
@@ -160,8 +262,12 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
     throw new InputError("CSV_NO_DATA", { file, line: first.line, expected: "rows of samples after the header", received: "a header only" });
   }
   return {
-    delimiter, decimal, header, columns: rows[0]!.length,
+    delimiter, decimal, header, columns: columnsCount, trailingEmpty: found.trailing,
     bodyStart: body.start, bodyLine: body.line,
+    headerLine: headerIndex >= 0 ? lines[headerIndex]!.line : undefined,
+    units, unitLine: unitIndex >= 0 ? lines[unitIndex]!.line : undefined,
+    preamble, preambleLines: preamble.length, sepLine,
+    firstRow: rows[k]!,
   };
 }
 
@@ -208,17 +314,31 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   const dialect = sniff(file, head, head.length >= size, opts);
   const columns: Column[] = [];
   for (let i = 0; i < dialect.columns; i++) columns.push(dialect.header ? splitNameUnit(dialect.header[i]!, i) : { index: i, name: `ch${i + 1}`, unitText: undefined });
+  if (dialect.units) {
+    // A units row under the header: each non-empty field is its column's unit.
+    for (const c of columns) {
+      const raw = (dialect.units[c.index] ?? "").replace(/^"(.*)"$/, "$1").trim();
+      const u = raw.replace(/^[[(](.*)[\])]$/, "$1").trim();
+      if (u === "") continue;
+      if (c.unitText !== undefined && c.unitText !== u) {
+        throw new InputError("UNIT_CONFLICT", { file, line: dialect.unitLine, column: c.index + 1, field: c.name, expected: `the units row to agree with the header's unit ${quoted(c.unitText)}`, received: quoted(u) });
+      }
+      c.unitText = u;
+    }
+  }
   if (dialect.header) {
     const seen = new Map<string, number>();
     for (const c of columns) {
       if (seen.has(c.name.toLowerCase())) {
-        throw new InputError("CSV_DUPLICATE_COLUMN", { file, line: dialect.bodyLine - 1, column: c.index + 1, expected: "distinct column names", received: quoted(c.name) });
+        throw new InputError("CSV_DUPLICATE_COLUMN", { file, line: dialect.headerLine, column: c.index + 1, expected: "distinct column names", received: quoted(c.name) });
       }
       seen.set(c.name.toLowerCase(), c.index);
     }
   }
+  const unitLine = dialect.unitLine ?? dialect.headerLine ?? 1;
 
-  // Time column.
+  // Time column: named by the option, else by its header, else the first column of date-time stamps.
+  // With --no-time-column it is still found, and left out of the channels (neither time nor a channel).
   let timeIndex = -1;
   if (opts.timeColumn !== undefined && opts.timeColumn !== false) {
     const tc = opts.timeColumn;
@@ -226,54 +346,103 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
     if (timeIndex < 0 || timeIndex >= columns.length) {
       throw new InputError("TIME_COLUMN_NOT_FOUND", { file, option: "--time-column", expected: `one of ${columns.map((c) => quoted(c.name)).join(", ")} or 1..${columns.length}`, received: quoted(String(tc)) });
     }
-  } else if (opts.timeColumn !== false && dialect.header) {
-    timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name));
+  } else {
+    if (dialect.header) timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name));
+    if (timeIndex < 0) timeIndex = dialect.firstRow.slice(0, columns.length).findIndex((f) => looksLikeDateTime(f.replace(/"/g, "")));
+  }
+  const dateTime = timeIndex >= 0 && looksLikeDateTime((dialect.firstRow[timeIndex] ?? "").replace(/"/g, ""));
+  let ignoredTime = -1;
+  if (opts.timeColumn === false && timeIndex >= 0) {
+    ignoredTime = timeIndex;
+    timeIndex = -1;
   }
   let timeFactor = 1;
-  if (timeIndex >= 0) {
+  let timeUnitDeclared = dateTime;
+  if (timeIndex >= 0 && dateTime) {
+    if (opts.timeUnit !== undefined) {
+      throw new InputError("OPTION_CONFLICT", { file, option: "--time-unit", field: columns[timeIndex]!.name, expected: "no time unit for a column of date-time stamps", received: opts.timeUnit });
+    }
+  } else if (timeIndex >= 0) {
     const u = columns[timeIndex]!.unitText;
     if (u !== undefined) {
       const f = TIME_UNITS[u.toLowerCase()];
       if (f === undefined) {
-        throw new InputError("CSV_TIME_UNIT", { file, line: dialect.bodyLine - 1, column: timeIndex + 1, expected: "a time unit (s, ms, us)", received: quoted(u) });
+        throw new InputError("CSV_TIME_UNIT", { file, line: unitLine, column: timeIndex + 1, expected: "a time unit (s, ms, us)", received: quoted(u) });
       }
       timeFactor = f;
+      timeUnitDeclared = true;
+    }
+    if (opts.timeUnit !== undefined) {
+      const f = TIME_UNITS[opts.timeUnit === "serial-days" ? "days" : opts.timeUnit]!;
+      if (timeUnitDeclared && f !== timeFactor) {
+        throw new InputError("OPTION_CONFLICT", {
+          file, option: "--time-unit", field: columns[timeIndex]!.name, expected: `the header's time unit ${quoted(u!)}`, received: opts.timeUnit, hint: "drop --time-unit (the header already says), or fix the header",
+        });
+      }
+      timeFactor = f;
+      timeUnitDeclared = true;
     }
   }
   if (timeIndex < 0 && opts.sampleRateHz === undefined) {
     throw new InputError("CSV_NO_RATE", {
       file, expected: "a time column (header 'time', 't', 'time [ms]', …) or a sample rate", received: dialect.header ? `columns ${dialect.header.map((h) => quoted(h)).join(", ")}` : "no header",
-      hint: "give --rate HZ, or --time-column NAME",
+      hint: opts.timeColumn === false ? "give --rate HZ with --no-time-column" : "give --rate HZ, or --time-column NAME",
     });
   }
-  const channelCols = columns.filter((c) => c.index !== timeIndex);
+  const skip = timeIndex >= 0 ? timeIndex : ignoredTime;
+  const channelCols = columns.filter((c) => c.index !== skip);
   if (channelCols.length === 0) throw new InputError("CSV_NO_CHANNELS", { file, expected: "at least one data column besides time", received: "only a time column" });
   const channels: ChannelInfo[] = channelCols.map((c) => {
-    const unit = c.unitText === undefined ? undefined : parseAccelUnit(c.unitText);
-    return { name: c.name, declaredUnit: unit, declaredUnitText: unit === undefined ? c.unitText : undefined };
+    if (c.unitText === undefined) return { name: c.name };
+    const spec = parseUnitSpec(c.unitText);
+    return {
+      name: c.name, declaredUnit: spec?.base, declaredUnitSpec: spec, declaredVolts: spec ? undefined : parseVoltUnit(c.unitText),
+      declaredUnitText: c.unitText, unitPlace: { line: unitLine, column: c.index + 1 },
+    };
   });
 
+  // Date-time stamps count seconds from the first stamp's day.
+  const baseDays = dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, ""))!.days : undefined;
   // Provisional rate from the sniffed rows; the final one comes from the whole time column.
-  let provisionalRate = opts.sampleRateHz ?? NaN;
-  if (opts.sampleRateHz === undefined) {
+  let columnRate = NaN;
+  if (timeIndex >= 0) {
     const times = headLines(head, head.length >= size)
       .filter((l) => l.start >= dialect.bodyStart)
-      .map((l) => parseNumberText(splitRow(l.text, dialect.delimiter)[timeIndex] ?? "", dialect.decimal) * timeFactor)
+      .map((l) => {
+        const f = (splitRow(l.text, dialect.delimiter)[timeIndex] ?? "").replace(/"/g, "");
+        return baseDays !== undefined ? (parseDateTimeText(f, baseDays)?.value ?? NaN) : parseNumberText(f, dialect.decimal) * timeFactor;
+      })
       .filter((t) => Number.isFinite(t));
-    if (times.length >= 2) provisionalRate = (times.length - 1) / (times[times.length - 1]! - times[0]!);
+    if (times.length >= 2) columnRate = (times.length - 1) / (times[times.length - 1]! - times[0]!);
   }
+  const timeCol: TimeColumnInfo | undefined = timeIndex >= 0 ? { file, line: dialect.bodyLine, column: timeIndex + 1, name: columns[timeIndex]!.name, unitDeclared: timeUnitDeclared } : undefined;
+  if (timeCol && Number.isFinite(columnRate)) {
+    // Early, on the head's rows: a gross disagreement or an implausible rate is said before the whole file is read.
+    if (opts.sampleRateHz !== undefined && Math.abs(columnRate - opts.sampleRateHz) > 0.05 * opts.sampleRateHz) throw rateConflict(timeCol, opts.sampleRateHz, columnRate);
+    if (opts.sampleRateHz === undefined && !timeUnitDeclared && columnRate < MIN_PLAUSIBLE_RATE_HZ) throw implausibleRate(timeCol, columnRate);
+  }
+  const provisionalRate = opts.sampleRateHz ?? columnRate;
 
   const delimName = dialect.delimiter === "\t" ? "tab" : dialect.delimiter === "whitespace" ? "whitespace" : `'${dialect.delimiter}'`;
   return {
     info: {
       file, format: "csv", sampleRateHz: provisionalRate, channels, bytes: size,
-      layout: `delimited text, ${delimName} delimiter, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}` : ""}`,
+      layout: `delimited text, ${delimName} delimiter${dialect.sepLine !== undefined ? " (from its sep= line)" : ""}, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${dialect.units ? " and units row" : ""}`
+        + `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used (--no-time-column)` : ""}`
+        + `${dialect.trailingEmpty ? ", empty last column ignored" : ""}${dialect.preambleLines > 0 ? `, ${dialect.preambleLines} preamble line${dialect.preambleLines > 1 ? "s" : ""} before the header kept as metadata` : ""}`,
+      preamble: dialect.preamble.length > 0 ? dialect.preamble : undefined,
     },
     read: (select, sink, onProgress) => {
       // The worker serves one read; a later read of the same source parses here.
       const w = worker;
       worker = undefined;
-      return readBody(file, dialect, columns, timeIndex, timeFactor, opts.sampleRateHz, select.map((s) => channelCols[s]!.index), sink, onProgress, w);
+      const job: CsvBodyJob = {
+        file, columns: dialect.columns, columnNames: columns.map((c) => c.name), delimiter: dialect.delimiter, decimal: dialect.decimal, timeIndex,
+        selectColumns: select.map((s) => channelCols[s]!.index), bodyStart: dialect.bodyStart, bodyLine: dialect.bodyLine, timeFactor, rateOverride: opts.sampleRateHz,
+        timeDateTime: baseDays !== undefined ? { baseDays } : undefined, ignoreColumns: ignoredTime >= 0 && dateTime ? [ignoredTime] : undefined,
+        trailingEmpty: dialect.trailingEmpty, timeColumn: timeCol, serialDays: opts.timeUnit === "serial-days" && timeIndex >= 0 && !dateTime,
+      };
+      return readBody(job, sink, onProgress, w);
     },
     close: async () => {
       const w = worker;
@@ -283,14 +452,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   };
 }
 
-async function readBody(
-  file: string, d: Dialect, columns: Column[], timeIndex: number, timeFactor: number, rateOverride: number | undefined,
-  selectCols: number[], sink: BlockSink, onProgress: ((bytes: number) => void) | undefined, bodyWorker: BodyWorker | undefined,
-): Promise<ReadSummary> {
-  const job: CsvBodyJob = {
-    file, columns: d.columns, columnNames: columns.map((c) => c.name), delimiter: d.delimiter, decimal: d.decimal, timeIndex, selectColumns: selectCols,
-    bodyStart: d.bodyStart, bodyLine: d.bodyLine, timeFactor, rateOverride,
-  };
+async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: number) => void) | undefined, bodyWorker: BodyWorker | undefined): Promise<ReadSummary> {
   if (!bodyWorker) {
     const pool = columnPool();
     return csvBodyPass(job, (piece, bytes) => {

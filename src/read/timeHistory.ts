@@ -1,4 +1,4 @@
-import type { AccelUnit } from "../units.js";
+import type { AccelUnit, UnitSpec } from "../units.js";
 
 /** What a reader learns from a file before the samples flow. */
 export interface RecordingInfo {
@@ -12,19 +12,31 @@ export interface RecordingInfo {
   bytes: number;
   /** Format details for the report (CSV dialect, WAV encoding). */
   layout: string;
+  /** Lines before a CSV header that are not comments (a logger's metadata), as text. */
+  preamble?: string[] | undefined;
 }
 
 export interface ChannelInfo {
   name: string;
-  /** Unit stated by the file itself (a CSV header such as `az [m/s^2]`), if any. */
+  /** Base unit (g or m/s2) of the acceleration unit the file states (a CSV header such as `az [mg]`), if any. */
   declaredUnit?: AccelUnit | undefined;
-  /** A unit text the file states that is not an acceleration unit (e.g. `mV`). */
+  /** That unit in full: its name and its factor to the base unit. */
+  declaredUnitSpec?: UnitSpec | undefined;
+  /** Volts per file unit, when the file states a voltage (`V`, `mV`). */
+  declaredVolts?: number | undefined;
+  /** The unit text exactly as the file states it (known or not). */
   declaredUnitText?: string | undefined;
+  /** Where the unit text stands (1-based line and column), for messages. */
+  unitPlace?: { line: number; column: number } | undefined;
+  /** A calibration the file itself carries (psdgate's WAV 'pgcl' chunk): file value x scale = declaredUnitSpec. */
+  fileScale?: number | undefined;
 }
 
 export interface ReadSummary {
   frames: number;
   sampleRateHz: number;
+  /** ISO 8601 time of the first sample, when the file's stamps are date-times (UTC with Z when they carried a zone). */
+  startTime?: string | undefined;
   sha256: string;
   bytes: number;
 }

@@ -1,8 +1,9 @@
 import { closeSync, fstatSync, openSync, readSync } from "node:fs";
-import { open, stat } from "node:fs/promises";
+import { stat } from "node:fs/promises";
 import { endianness } from "node:os";
 import { createHash } from "node:crypto";
 import { InputError } from "../errors.js";
+import { parseUnitSpec, type UnitSpec } from "../units.js";
 import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
 /**
@@ -12,7 +13,10 @@ import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js
  * DataView (the data chunk need not be 4-byte aligned).
  *
  * Encodings: PCM 8 (unsigned), 16, 24, 32 bit; IEEE float 32 and 64 bit; both also inside
- * WAVE_FORMAT_EXTENSIBLE (the SubFormat GUID's first two bytes give the tag). Integers are scaled by
+ * WAVE_FORMAT_EXTENSIBLE (the SubFormat GUID's first two bytes give the tag, the other 14 must be the
+ * KSDATAFORMAT_SUBTYPE tail). RF64 and BW64 files (EBU Tech 3306) are read through their ds64 chunk.
+ * The whole chunk list is walked in 64 KB windows: a second 'fmt ' or 'data' chunk is an error, not
+ * a silent choice. Integers are scaled by
  * 1/2^(bits-1) for both signs, so full scale is +-1 and the scale is linear; 64-bit floats stay 64-bit.
  * These are exactly the points where wav-decoder 1.3.0 falls short (see DEVELOPERS.md): it is kept as
  * the reference the tests compare with where it is exact.
@@ -27,40 +31,107 @@ interface WavFormat {
   bits: number;
 }
 
+/**
+ * psdgate's own calibration chunk, 'pgcl', written by `synth` (report/timeHistoryWriter.ts): a UTF-8
+ * JSON object `{"unit": "m/s2", "scale": 1}` saying that file value x scale is an acceleration in
+ * `unit` (any unit parseUnitSpec knows), for every channel. Other readers skip unknown chunks (RIFF
+ * spec, Microsoft/IBM 1991).
+ */
+export const CALIBRATION_CHUNK = "pgcl";
+
+/** The KSDATAFORMAT_SUBTYPE GUID after its first two bytes (the format tag): -0000-0010-8000-00AA00389B71 (Microsoft, WAVEFORMATEXTENSIBLE). */
+const SUBTYPE_TAIL = Buffer.from("000000001000800000aa00389b71", "hex");
+/** Size of the windows the chunk walk reads: one read covers many small chunks. */
+const WALK_BYTES = 1 << 16;
+const U32_MAX = 0xffffffff;
+
+/** Positional reads through a window of WALK_BYTES, so a walk over many small chunks makes few reads. */
+class WindowReader {
+  private buf = Buffer.alloc(WALK_BYTES);
+  private start = 0;
+  private len = 0;
+  constructor(private readonly fd: number, private readonly size: number) {}
+  /** n bytes at pos (fewer at the end of the file); valid until the next call. */
+  at(pos: number, n: number): Buffer {
+    if (pos < this.start || pos + n > this.start + this.len) {
+      if (n > this.buf.length) this.buf = Buffer.alloc(n);
+      this.start = pos;
+      this.len = readSync(this.fd, this.buf, 0, Math.min(this.buf.length, this.size - pos), pos);
+    }
+    const o = pos - this.start;
+    return this.buf.subarray(o, Math.min(o + n, this.len));
+  }
+}
+
+function printable(id: string): boolean {
+  return /^[\x20-\x7e]{4}$/.test(id);
+}
+
 export async function openWavTimeHistory(file: string): Promise<TimeHistorySource> {
   const { size } = await stat(file);
-  const fh = await open(file, "r");
   let fmt: WavFormat | undefined;
   let dataStart = -1;
   let dataBytes = 0;
+  let calibration: { unit: UnitSpec; text: string; scale: number } | undefined;
+  let rf64 = false;
+  let note = "";
+  const fd = openSync(file, "r");
   try {
-    const hdr = Buffer.alloc(12);
-    const { bytesRead } = await fh.read(hdr, 0, 12, 0);
-    if (bytesRead < 12) throw new InputError("WAV_TRUNCATED_HEADER", { file, expected: "a 12-byte RIFF/WAVE header", received: `${bytesRead} bytes` });
+    const r = new WindowReader(fd, size);
+    const hdr = r.at(0, 12);
+    if (hdr.length < 12) throw new InputError("WAV_TRUNCATED_HEADER", { file, expected: "a 12-byte RIFF/WAVE header", received: `${hdr.length} bytes` });
     const riff = hdr.toString("latin1", 0, 4);
-    if ((riff !== "RIFF" && riff !== "RIFX") || hdr.toString("latin1", 8, 12) !== "WAVE") {
-      throw new InputError("WAV_NOT_RIFF", { file, expected: "a RIFF/WAVE file", received: JSON.stringify(hdr.toString("latin1", 0, 4)) });
+    if ((riff !== "RIFF" && riff !== "RIFX" && riff !== "RF64" && riff !== "BW64") || hdr.toString("latin1", 8, 12) !== "WAVE") {
+      throw new InputError("WAV_NOT_RIFF", { file, expected: "a RIFF/WAVE file (or RF64/BW64)", received: JSON.stringify(hdr.toString("latin1", 0, 4)) });
     }
     if (riff === "RIFX") throw new InputError("WAV_UNSUPPORTED_ENCODING", { file, expected: "little-endian RIFF", received: "big-endian RIFX" });
+    rf64 = riff !== "RIFF";
+    // RF64/BW64 (EBU Tech 3306, 2009): a 'ds64' chunk first holds the 64-bit sizes of the RIFF and
+    // data chunks, whose 32-bit size fields then say 0xFFFFFFFF.
+    let ds64Data: number | undefined;
     let pos = 12;
-    const ch = Buffer.alloc(8);
+    let seenData = false;
     while (pos + 8 <= size) {
-      await fh.read(ch, 0, 8, pos);
+      const ch = r.at(pos, 8);
       const id = ch.toString("latin1", 0, 4);
-      const len = ch.readUInt32LE(4);
+      let len = ch.readUInt32LE(4);
       const body = pos + 8;
-      if (id === "fmt ") {
+      if (id === "ds64") {
+        if (!rf64 || pos !== 12 || len < 28) {
+          throw new InputError("WAV_BAD_DS64", { file, chunk: "ds64", expected: "one ds64 chunk of at least 28 bytes, first in an RF64/BW64 file", received: !rf64 ? "a ds64 chunk in a RIFF file" : pos !== 12 ? "a ds64 chunk after others" : `${len} bytes` });
+        }
+        const d = r.at(body, 28);
+        if (d.length < 28) throw new InputError("WAV_TRUNCATED_HEADER", { file, chunk: "ds64", expected: "a 28-byte ds64 chunk", received: `${d.length} bytes` });
+        ds64Data = Number(d.readBigUInt64LE(8));
+      } else if (rf64 && pos === 12) {
+        throw new InputError("WAV_BAD_DS64", { file, chunk: "ds64", expected: "a ds64 chunk first in an RF64/BW64 file (EBU Tech 3306)", received: JSON.stringify(id) });
+      } else if (id === "fmt ") {
+        if (fmt !== undefined) throw new InputError("WAV_DUPLICATE_CHUNK", { file, chunk: "fmt ", expected: "one format chunk", received: "a second 'fmt ' chunk" });
         if (len < 16 || body + len > size) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "a format chunk of at least 16 bytes", received: `${Math.min(len, size - body)} bytes` });
-        const f = Buffer.alloc(Math.min(len, 40));
-        await fh.read(f, 0, f.length, body);
+        const f = Buffer.from(r.at(body, Math.min(len, 40)));
         let tag = f.readUInt16LE(0);
         if (tag === 0xfffe) {
-          if (f.length < 26) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "an extensible format chunk of 40 bytes", received: `${len} bytes` });
+          if (f.length < 40) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "an extensible format chunk of 40 bytes", received: `${len} bytes` });
           tag = f.readUInt16LE(24);
+          if (!f.subarray(26, 40).equals(SUBTYPE_TAIL)) {
+            throw new InputError("WAV_UNSUPPORTED_ENCODING", {
+              file, chunk: "fmt ", expected: "an extensible sub-format GUID of the KSDATAFORMAT_SUBTYPE family (…-0000-0010-8000-00AA00389B71)", received: `GUID ${f.subarray(24, 40).toString("hex")}`,
+            });
+          }
         }
         fmt = { tag, channels: f.readUInt16LE(2), sampleRate: f.readUInt32LE(4), blockAlign: f.readUInt16LE(12), bits: f.readUInt16LE(14) };
       } else if (id === "data") {
         if (fmt === undefined) throw new InputError("WAV_DATA_BEFORE_FMT", { file, chunk: "data", expected: "the 'fmt ' chunk before the data chunk", received: "data first" });
+        if (seenData) throw new InputError("WAV_DUPLICATE_CHUNK", { file, chunk: "data", expected: "one data chunk", received: "a second 'data' chunk" });
+        seenData = true;
+        if (rf64 && len === U32_MAX) {
+          if (ds64Data === undefined) throw new InputError("WAV_BAD_DS64", { file, chunk: "ds64", expected: "a ds64 chunk with the data size", received: "none" });
+          len = ds64Data;
+        } else if (len === 0 && body + 8 <= size && (!printable(r.at(body, 4).toString("latin1")) || body + 8 + r.at(body, 8).readUInt32LE(4) > size)) {
+          // A recorder that never closed its file leaves the size 0 with the samples after it: read them to the end.
+          len = size - body;
+          note = ", data size 0 in the header (an unfinished recording): read to the end of the file";
+        }
         dataStart = body;
         dataBytes = len;
         if (body + len > size) {
@@ -69,12 +140,13 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
             hint: "the recording was probably not closed properly",
           });
         }
-        break;
+      } else if (id === CALIBRATION_CHUNK) {
+        calibration = readCalibration(file, Buffer.from(r.at(body, Math.min(len, 4096))).toString("utf8"));
       }
       pos = body + len + (len & 1);
     }
   } finally {
-    await fh.close();
+    closeSync(fd);
   }
   if (fmt === undefined) throw new InputError("WAV_NO_FMT", { file, chunk: "fmt ", expected: "a format chunk", received: size < 20 ? "a truncated header" : "none" });
   if (dataStart < 0) throw new InputError("WAV_NO_DATA", { file, chunk: "data", expected: "a data chunk", received: "none (the header may be truncated)" });
@@ -94,14 +166,37 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
   if (dataBytes % blockAlign !== 0) {
     throw new InputError("WAV_DATA_TRUNCATED", { file, chunk: "data", expected: `a whole number of ${blockAlign}-byte frames`, received: `${dataBytes} bytes` });
   }
+  const cal = calibration;
   return {
     info: {
       file, format: "wav", sampleRateHz: sampleRate, frames, bytes: size,
-      channels: Array.from({ length: channels }, (_, i) => ({ name: `ch${i + 1}` })),
-      layout: `WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}`,
+      channels: Array.from({ length: channels }, (_, i) => ({
+        name: `ch${i + 1}`,
+        ...(cal ? { declaredUnit: cal.unit.base, declaredUnitSpec: cal.unit, declaredUnitText: cal.text, fileScale: cal.scale } : {}),
+      })),
+      layout: `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}`
+        + `${cal ? `, calibration chunk: x${cal.scale} ${cal.unit.name}` : ""}${note}`,
     },
     read: (select, sink, onProgress) => readWavData(file, fmt!, dataStart, frames, select, sink, onProgress),
   };
+}
+
+function readCalibration(file: string, text: string): { unit: UnitSpec; text: string; scale: number } {
+  let doc: unknown;
+  try {
+    doc = JSON.parse(text);
+  } catch {
+    doc = undefined;
+  }
+  const o = doc as { unit?: unknown; scale?: unknown } | undefined;
+  const unit = typeof o?.unit === "string" ? parseUnitSpec(o.unit) : undefined;
+  const scale = o?.scale === undefined ? 1 : o.scale;
+  if (unit === undefined || typeof scale !== "number" || !Number.isFinite(scale) || scale === 0) {
+    throw new InputError("WAV_BAD_CALIBRATION", {
+      file, chunk: CALIBRATION_CHUNK, expected: 'a JSON object {"unit": an acceleration unit, "scale": a non-zero number}', received: JSON.stringify(text.slice(0, 60)),
+    });
+  }
+  return { unit, text: o!.unit as string, scale };
 }
 
 /** Frames per read: about 1 MB. */

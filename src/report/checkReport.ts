@@ -126,6 +126,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
         ...j,
         verdict: r.roles[i] === "monitor" ? null : j.verdict,
         rms: { ...j.rms, units: ch.units },
+        reading: ch.reading,
         averages: ch.psd.averages,
         parseval: {
           rmsTime: finiteOrNull(ch.parseval.rmsTime), rmsPsd: finiteOrNull(ch.parseval.rmsPsd), rmsSegments: finiteOrNull(ch.parseval.rmsSegments),

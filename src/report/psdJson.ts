@@ -19,11 +19,9 @@ export function toolInfo(version: string) {
 export function inputJson(a: RecordingAnalysis) {
   const i = a.input;
   const w = a.window;
-  const startTime = (i as { startTime?: unknown }).startTime;
   return {
-    file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS,
+    file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS, startTime: i.startTime ?? null, preamble: i.preamble ?? [],
     window: { fromS: w.fromS, toS: w.toS, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}) },
-    ...(startTime !== undefined ? { startTime: startTime instanceof Date ? startTime.toISOString() : startTime } : {}),
   };
 }
 
@@ -55,6 +53,7 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
       name: c.name,
       position: c.position,
       units: densityAscii(c.units),
+      reading: c.reading,
       psd: arr(c.psd.psd),
       lower: arr(c.psd.lower),
       upper: arr(c.psd.upper),

@@ -10,7 +10,7 @@ export function recordingLines(a: RecordingAnalysis): string[] {
   const i = a.input;
   return [
     `  recording  ${i.layout}`,
-    `             ${i.samples} samples at ${sig(i.sampleRateHz, 6)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed`,
+    `             ${i.samples} samples at ${sig(i.sampleRateHz, 6)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed${i.startTime ? `, from ${i.startTime}` : ""}`,
     `             sha256 ${i.sha256}`,
     ...(a.window.frames !== i.samples ? [`  window     ${fixed(a.window.fromS, 3)} to ${fixed(a.window.toS, 3)} s: ${a.window.frames} samples analysed`] : []),
     ...a.passDoubts.map((d) => `  DOUBT      ${d}`),

@@ -134,21 +134,37 @@ export function segmentRmsLabel(a: RecordingAnalysis): string {
   return `RMS of the Welch segments (${DETREND_WORDS[a.settings.detrend]} per segment)`;
 }
 
-const UNIT_FROM = { file: "stated in the file's header", option: "given with --units", default: "not stated by the file: g assumed (the default; --units sets it)" } as const;
+const UNIT_FROM: Record<string, string> = {
+  header: "stated in the file's header", "file calibration": "from the file's own calibration", "--units": "given with --units",
+  default: "not stated by the file: g assumed (the default; --units sets it)", sensitivity: "from the sensitivity given",
+};
+
+/** How the file's numbers became accelerations, per channel (unit and its source, calibration, sensitivity). */
+function readingText(c: ChannelAnalysis): string {
+  const r = c.reading;
+  const parts = [`${r.fileUnit} ${UNIT_FROM[r.unitFrom] ?? r.unitFrom}`];
+  if (r.sensitivity) parts.push(`sensitivity ${r.sensitivity}`);
+  if (r.fileScale !== 1) parts.push(`the file's calibration ×${r.fileScale}`);
+  if (r.scale !== 1) parts.push(`--scale ×${r.scale}`);
+  if (r.unitFactor !== 1) parts.push(`unit factor ×${r.unitFactor}`);
+  return parts.join(", ");
+}
 
 /** Every setting and assumption the numbers rest on, as table rows. */
 export function settingsRows(a: RecordingAnalysis, ctx: ReportContext): string {
   const s = a.settings;
   const rerun = (ctx.rerun ?? {}) as { csv?: { sampleRateHz?: number }; scale?: number; resultUnits?: string };
   const rateFrom = a.input.format === "wav" ? "the WAV header" : rerun.csv?.sampleRateHz !== undefined ? "given with --rate" : "the CSV time column (span ÷ (samples − 1))";
-  const units = [...new Set(a.channels.map((c: ChannelAnalysis) => `${c.inputUnit !== undefined ? accelLabel(c.inputUnit) : "?"} ${c.unitFrom ? UNIT_FROM[c.unitFrom] : ""}`.trim()))];
+  const units = [...new Set(a.channels.map(readingText))];
   const result = [...new Set(a.channels.map((c) => accelLabel(c.units)))].join(", ");
   const given = ctx.given && ctx.given.length > 0 ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default or from the profile)</span>`;
   return [
     row("Sample rate", `${qty(sig(a.input.sampleRateHz, 8), "Hz")}, from ${esc(rateFrom)}`),
     row("Units of the samples", esc(units.join("; "))),
     row("Units of the results", esc(result)),
-    row("Calibration", s.scale !== 1 ? `×${esc(String(s.scale))} engineering units per file unit${a.input.format === "wav" ? " (per full scale)" : ""}, given with --scale` : a.input.format === "wav" ? "none given: full scale read as 1 (--scale sets the sensor's sensitivity)" : "none given: samples read as written (×1)"),
+    row("Calibration", a.channels.some((c) => c.reading.factor !== 1)
+      ? esc([...new Set(a.channels.map((c) => `×${sig(c.reading.factor, 8)} from file number to result${a.input.format === "wav" ? " (per full scale)" : ""}`))].join("; "))
+      : a.input.format === "wav" ? "none: full scale read as 1 (--scale or a sensitivity sets it)" : "none: samples read as written (×1)"),
     row("Channels analysed", esc(a.channels.map((c) => `${c.position} "${c.name}"`).join(", "))),
     row("PSD estimate", `Welch, one-sided, ${esc(s.window)} window (periodic), ${s.segmentLength}-point segments = ${qty(sig(s.resolutionHz, 4), "Hz")} lines, ${fixed(100 * s.overlap, 1)} % overlap (hop ${s.hop}), ${esc(DETREND_WORDS[s.detrend])} per segment`),
     row("Confidence bounds", `${fixed(100 * s.confidence, 0)} % chi-square interval with the equivalent DOF of the overlapped segments`),

@@ -24,6 +24,25 @@ export function generateCases(dir: string): void {
   writeFileSync(join(dir, "not-riff.wav"), "time,ax\n0,1\n");
   writeFileSync(join(dir, "data-before-fmt.wav"), Buffer.concat([Buffer.from("RIFF\x1c\x00\x00\x00WAVEdata\x02\x00\x00\x00\x01\x00", "latin1"), Buffer.from("fmt ", "latin1")]));
   writeFileSync(join(dir, "extensible.wav"), wavBytes({ tag: 3, bits: 32, channels: 1, samples: pcm(64).map((v) => v / 32768), extensible: true }));
+  // Whole-millisecond stamps (resolution 1 ms) for 300 k rows, then 1.4 ms steps printed to 0.1 ms.
+  let ms = "time,ax\n";
+  for (let i = 0; i < 300000; i++) ms += `${(i / 1000).toFixed(3)},${(i % 7) / 10}\n`;
+  for (let k = 0; k < 1000; k++) ms += `${(300 + k * 0.0014).toFixed(4)},${(k % 7) / 10}\n`;
+  writeFileSync(join(dir, "ms-then-1.4ms.csv"), ms);
+  const fmt16 = wavBytes({ bits: 16, channels: 1, samples: pcm(64) });
+  const fmtChunk = fmt16.subarray(12, 36);
+  writeFileSync(join(dir, "two-fmt.wav"), wavBytes({ bits: 16, channels: 1, samples: pcm(64), extraChunks: [["fmt ", fmtChunk.subarray(8)]] }));
+  const dataChunk = fmt16.subarray(36);
+  const twoData = Buffer.concat([fmt16, dataChunk]);
+  twoData.writeUInt32LE(twoData.length - 8, 4);
+  writeFileSync(join(dir, "two-data.wav"), twoData);
+  const guid = wavBytes({ tag: 3, bits: 32, channels: 1, samples: pcm(64).map((v) => v / 32768), extensible: true });
+  guid.writeUInt8(guid.readUInt8(59) ^ 0xff, 59); // last byte of the sub-format GUID (fmt body at 20, GUID at 24..39)
+  writeFileSync(join(dir, "bad-guid.wav"), guid);
+  writeFileSync(join(dir, "bad-calibration.wav"), wavBytes({ bits: 16, channels: 1, samples: pcm(64), extraChunks: [["pgcl", Buffer.from('{"unit":"furlong/fortnight2"}')]] }));
+  const noDs64 = wavBytes({ bits: 16, channels: 1, samples: pcm(64) });
+  noDs64.write("RF64", 0, "latin1");
+  writeFileSync(join(dir, "rf64-no-ds64.wav"), noDs64);
   writeFileSync(join(dir, "odd-chunk.wav"), wavBytes({ bits: 16, channels: 1, samples: pcm(64), extraChunks: [["LIST", Buffer.from("odd")]] }));
   // Issue #12: hostile inputs. Named pipes (they must never block a read), memory bombs, deep profiles.
   execFileSync("mkfifo", [join(dir, "fifo.csv"), join(dir, "fifo-profile.json"), join(dir, "fifo-list.txt")]);

@@ -68,6 +68,20 @@ describe("psdgate psd", () => {
     expect(b.units).toBe("(m/s2)2/Hz");
     expect(b.psd[100] / a.psd[100]).toBeCloseTo(9.80665 ** 2, 9);
   });
+  it("--sensitivity CH=S and --scale CH=K are recorded per channel in the JSON (reading)", async () => {
+    const f = join(dir, "volts.csv");
+    let s = "time,v1 [mV],v2 [V]\n";
+    for (let i = 0; i < 64; i++) s += `${(i / 100).toFixed(2)},${(Math.sin(i) * 100).toFixed(3)},${Math.cos(i).toFixed(4)}\n`;
+    writeFileSync(f, s);
+    const r = await cli("psd", f, "--segment", "16", "--sensitivity", "v1=100mV/g", "--sensitivity", "v2=10mV/(m/s2)", "--scale", "v2=0.5", "--json");
+    expect(r.code, r.stderr).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.channels[0].reading).toMatchObject({ fileUnit: "mV", unitFrom: "sensitivity", sensitivity: "100mV/g", scale: 1 });
+    expect(j.channels[0].units).toBe("g2/Hz");
+    expect(j.channels[1].reading).toMatchObject({ fileUnit: "V", sensitivity: "10mV/(m/s2)", scale: 0.5 });
+    expect(j.channels[1].units).toBe("(m/s2)2/Hz");
+    expect(j.channels[1].reading.factor).toBeCloseTo(50, 12);
+  });
   it("CSV and WAV of the same synthesised record give the same PSD (to float32 precision)", async () => {
     const wav = join(dir, "same.wav");
     const csv = join(dir, "same.csv");

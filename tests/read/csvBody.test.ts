@@ -52,7 +52,18 @@ describe("CsvBodyParser: the plain-row loop and the general path", () => {
       const line = piece.rowLines ? piece.rowLines[i]! : i;
       expect(lines[line]!.startsWith(body.t[i]!.toFixed(3))).toBe(true);
     }
-    expect(piece.timeFractionDigits).toBe(3);
+    expect(piece.timeMinPlace).toBe(-3);
+    expect(piece.timeMaxMant).toBe(19999);
+  });
+
+  it("scientific stamps: the resolution is the place of the last digit from digits and exponent (1.000020E+01: 1e-5), on both paths", () => {
+    const text = "1.000000E+01,1,2\n1.000020E+01,1.5e-3,2E2\n1.000040E+01,\"3\",4\n";
+    const piece = new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 1);
+    expect(piece.rows).toBe(3);
+    expect(piece.timeMinPlace).toBe(-5);
+    expect(piece.timeMaxMant).toBe(1000040);
+    expect(Array.from(piece.time!)).toEqual([10, 10.0002, 10.0004]);
+    expect(Array.from(piece.channels[0]!)).toEqual([1, 0.0015, 3]);
   });
 
   it("columns grow when rows are shorter than the first guess (four bytes a field)", () => {
@@ -112,7 +123,7 @@ describe.skipIf(!built)("CSV read on the parse worker (built code)", () => {
   }
   it("a source that is opened but never read does not keep the process alive (its worker waits unref'd)", () => {
     const file = join(dir, "never-read.csv");
-    writeFileSync(file, "t,a\n0,1\n0.5,2\n1,3\n");
+    writeFileSync(file, "t [s],a\n0,1\n0.5,2\n1,3\n");
     const script = `const m = await import(${JSON.stringify(pathToFileURL(resolve("dist/read/csvTimeHistory.js")).href)}); await m.openCsvTimeHistory(${JSON.stringify(file)}, { parseWorkers: 1 }); console.log("opened");`;
     const r = spawnSync("node", ["--input-type=module", "-e", script], { encoding: "utf8", timeout: 10000 });
     expect(r.stdout.trim()).toBe("opened");
@@ -120,7 +131,7 @@ describe.skipIf(!built)("CSV read on the parse worker (built code)", () => {
   });
   it("close() ends the waiting worker; a read after it parses in this thread", async () => {
     const file = join(dir, "closed.csv");
-    writeFileSync(file, "t,a\n0,1\n0.5,2\n1,3\n");
+    writeFileSync(file, "t [s],a\n0,1\n0.5,2\n1,3\n");
     const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
     const src = await openCsvTimeHistory(file, { parseWorkers: 1 });
     await src.close!();

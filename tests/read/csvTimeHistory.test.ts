@@ -13,8 +13,13 @@ function csv(text: string | Buffer, ext = "csv"): string {
   return p;
 }
 
+/**
+ * Most files here are a few rows at toy rates (1-10 Hz): they say --time-unit s, or the plausibility
+ * rule (a rate below 20 Hz from a time column without a unit) would refuse them. A test of the rule
+ * itself passes `timeUnit: undefined`.
+ */
 async function readCsv(p: string, opts: CsvReadOptions = {}) {
-  const src = await openCsvTimeHistory(p, opts);
+  const src = await openCsvTimeHistory(p, "timeUnit" in opts ? opts : { timeUnit: "s", ...opts });
   const out: number[][] = src.info.channels.map(() => []);
   const s = await src.read(src.info.channels.map((_, i) => i), (ch, n) => ch.forEach((c, i) => out[i]!.push(...c.subarray(0, n))));
   return { info: src.info, channels: out, summary: s };
@@ -51,19 +56,23 @@ describe("openCsvTimeHistory: dialects", () => {
     expect(r.channels[0]).toEqual([1, 2, 3]);
     expect(r.summary.sampleRateHz).toBe(2);
   });
+  it("a bracketed suffix without a letter is part of the name, not a unit: 'ax (2)'", async () => {
+    const r = await readCsv(csv("time [s],ax (2),ay [mg]\n0,1,2\n1,3,4\n"));
+    expect(r.info.channels.map((c) => [c.name, c.declaredUnitText])).toEqual([["ax (2)", undefined], ["ay", "mg"]]);
+  });
   it("a time column in milliseconds declared by the header, and time_ms", async () => {
-    expect((await readCsv(csv("time [ms],ax\n0,1\n0.5,2\n1.0,3\n"))).summary.sampleRateHz).toBe(2000);
-    expect((await readCsv(csv("time_ms,ax\n0,1\n2,2\n4,3\n"))).summary.sampleRateHz).toBe(500);
+    expect((await readCsv(csv("time [ms],ax\n0,1\n0.5,2\n1.0,3\n"), { timeUnit: undefined })).summary.sampleRateHz).toBe(2000);
+    expect((await readCsv(csv("time_ms,ax\n0,1\n2,2\n4,3\n"), { timeUnit: undefined })).summary.sampleRateHz).toBe(500);
   });
   it("printed time stamps rounded to 6 decimals at 25.6 kHz are accepted and give 25600 Hz", async () => {
     let s = "t,ax\n";
     for (let i = 0; i < 3000; i++) s += `${(i / 25600).toFixed(6)},${i % 7}\n`;
     expect((await readCsv(csv(s))).summary.sampleRateHz).toBe(25600);
   });
-  it("--time-column by name or position; --no-time-column with --rate keeps every column", async () => {
+  it("--time-column by name or position; --no-time-column with --rate leaves the time column out (neither time nor a channel)", async () => {
     expect((await readCsv(csv("a,stamp,b\n1,0,2\n3,0.1,4\n"), { timeColumn: "stamp" })).info.channels.map((c) => c.name)).toEqual(["a", "b"]);
     expect((await readCsv(csv("a,stamp,b\n1,0,2\n3,0.1,4\n"), { timeColumn: 2 })).summary.sampleRateHz).toBe(10);
-    expect((await readCsv(csv("time,b\n1,0\n3,0\n"), { timeColumn: false, sampleRateHz: 5 })).info.channels.length).toBe(2);
+    expect((await readCsv(csv("time,b\n1,0\n3,0\n"), { timeColumn: false, sampleRateHz: 5 })).info.channels.map((c) => c.name)).toEqual(["b"]);
   });
   it("NaN and Inf cells are read as non-finite samples (flagged downstream), not as errors", async () => {
     const r = await readCsv(csv("t,ax\n0,1\n1,NaN\n2,-inf\n"));

@@ -4,7 +4,9 @@ import { decode } from "wav-decoder";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { openWavTimeHistory } from "../../src/read/wavTimeHistory.js";
-import { tempDir } from "../helpers.js";
+import { cli, maxRelDiff, tempDir } from "../helpers.js";
+import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { createTimeHistoryWriter } from "../../src/report/timeHistoryWriter.js";
 import { wavBytes, type WavSpec } from "../wavBytes.js";
 
 const dir = tempDir();
@@ -118,4 +120,96 @@ describe("openWavTimeHistory errors name the chunk", () => {
       expect((e as InputError).message).toContain(p);
     });
   }
+});
+
+/** A RIFF file rebuilt as RF64 (EBU Tech 3306): a ds64 chunk first, the 32-bit sizes 0xFFFFFFFF. */
+function asRf64(riff: Buffer, magic = "RF64"): Buffer {
+  const body = riff.subarray(12);
+  const dataAt = body.indexOf("data", 0, "latin1");
+  const dataBytes = body.readUInt32LE(dataAt + 4);
+  const ds64 = Buffer.alloc(36);
+  ds64.write("ds64", 0, "latin1");
+  ds64.writeUInt32LE(28, 4);
+  const copy = Buffer.from(body);
+  copy.writeUInt32LE(0xffffffff, dataAt + 4);
+  const h = Buffer.alloc(12);
+  h.write(magic, 0, "latin1");
+  h.writeUInt32LE(0xffffffff, 4);
+  h.write("WAVE", 8, "latin1");
+  ds64.writeBigUInt64LE(BigInt(4 + 36 + copy.length), 8);
+  ds64.writeBigUInt64LE(BigInt(dataBytes), 16);
+  ds64.writeBigUInt64LE(0n, 24);
+  return Buffer.concat([h, ds64, copy]);
+}
+
+describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration chunk", () => {
+  const samples = Array.from({ length: 400 }, (_, i) => Math.round(9000 * Math.sin(i * 0.3)));
+  it("an RF64 and a BW64 file (ds64 chunk written here, EBU Tech 3306) read as the same samples as the RIFF file", async () => {
+    const riff = wavBytes({ bits: 16, channels: 2, samples, extraChunks: [["LIST", Buffer.from("info")]] });
+    const ref = await readAll(file(riff));
+    for (const magic of ["RF64", "BW64"]) {
+      const src = await openWavTimeHistory(file(asRf64(riff, magic)));
+      expect(src.info.layout).toContain("RF64");
+      expect((await readAll(file(asRf64(riff, magic)))).channels).toEqual(ref.channels);
+    }
+  });
+  it("the writer turns a large output into RF64 on close (threshold lowered for the test), and the reader reads it back", async () => {
+    const p = join(dir, "rf64-out.wav");
+    const w = await createTimeHistoryWriter(p, { sampleRateHz: 1000, channelNames: ["a"], units: "m/s2", option: "--out", inputs: [], rf64Above: 100 });
+    const x = Float64Array.from({ length: 256 }, (_, i) => i / 256 - 0.5);
+    await w.write([x], x.length);
+    await w.close();
+    expect(readFileSync(p).toString("latin1", 0, 4)).toBe("RF64");
+    const r = await readAll(p);
+    expect(r.channels[0]).toEqual(Array.from(Float32Array.from(x)));
+  });
+  it("many empty chunks before the data are walked in large reads (100 000 chunks)", async () => {
+    const extra: [string, Buffer][] = Array.from({ length: 100000 }, () => ["junk", Buffer.alloc(0)]);
+    const r = await readAll(file({ bits: 16, channels: 1, samples, extraChunks: extra }));
+    expect(r.channels[0]!.length).toBe(400);
+  });
+  it("a data size of 0 followed by the samples (an unfinished recording) is read to the end of the file, and said", async () => {
+    const b = wavBytes({ bits: 16, channels: 1, samples });
+    const ref = await readAll(file(b));
+    b.writeUInt32LE(0, b.indexOf("data", 12, "latin1") + 4);
+    b.writeUInt32LE(0, 4);
+    const p = file(b);
+    expect((await openWavTimeHistory(p)).info.layout).toContain("data size 0");
+    expect((await readAll(p)).channels).toEqual(ref.channels);
+  });
+  it("the calibration chunk says the unit and scale: x2 in mm/s2 reads as 0.002 m/s^2 per file unit", async () => {
+    const p = file({ tag: 3, bits: 32, channels: 1, samples: [0.5, -0.25], extraChunks: [["pgcl", Buffer.from('{"unit":"mm/s2","scale":2}')]] });
+    const a = await analyzeRecording(p, { segmentLength: 2 });
+    expect(a.channels[0]!.units).toBe("m/s2");
+    expect(a.channels[0]!.reading).toMatchObject({ fileUnit: "mm/s2", unitFrom: "file calibration", fileScale: 2, factor: 0.002 });
+    expect(a.channels[0]!.stats.max).toBeCloseTo(0.001, 15);
+  });
+  it("synth from an m/s^2 profile, then check against that profile: the unit travels in the WAV and the run passes", async () => {
+    const prof = join(dir, "si-profile.json");
+    writeFileSync(prof, JSON.stringify({
+      title: "Invented rig in SI units", units: "(m/s2)2/Hz",
+      points: [{ hz: 20, level: 0.5 }, { hz: 100, level: 5 }, { hz: 800, level: 5 }],
+      tolerance: { bands: [{ fromHz: 20, toHz: 800, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 }, resolutionHz: 5,
+    }));
+    const out = join(dir, "si-run.wav");
+    expect((await cli("synth", "--profile", prof, "--duration", "20", "--rate", "2048", "--out", out, "--seed", "4")).code).toBe(0);
+    const r = await cli("check", out, "--profile", prof, "--json");
+    const j = JSON.parse(r.stdout);
+    expect(j.verdict, r.stdout.slice(0, 400)).toBe("pass");
+    expect(Math.abs(j.channels[0].rms.deviationDb)).toBeLessThan(0.5);
+  });
+  it("the same synth WAV read with and without its calibration chunk: the m/s^2 PSD equals the plain reading with --units m/s2 (1e-12)", async () => {
+    const prof = join(dir, "si-profile2.json");
+    writeFileSync(prof, JSON.stringify({ title: "Invented", units: "(m/s2)2/Hz", points: [{ hz: 20, level: 1 }, { hz: 400, level: 1 }], tolerance: { bands: [{ fromHz: 20, toHz: 400, upperDb: 3, lowerDb: 3 }] } }));
+    const out = join(dir, "si-run2.wav");
+    expect((await cli("synth", "--profile", prof, "--duration", "4", "--rate", "1024", "--out", out)).code).toBe(0);
+    const withChunk = await analyzeRecording(out, { segmentLength: 512 });
+    const b = readFileSync(out);
+    b.write("junk", b.indexOf("pgcl", 12, "latin1"), "latin1");
+    const stripped = join(dir, "si-run2-plain.wav");
+    writeFileSync(stripped, b);
+    const plain = await analyzeRecording(stripped, { segmentLength: 512, inputUnits: "m/s2" });
+    expect(withChunk.channels[0]!.units).toBe("m/s2");
+    expect(maxRelDiff(withChunk.channels[0]!.psd.psd, plain.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+  });
 });

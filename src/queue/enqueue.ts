@@ -1,0 +1,49 @@
+import { createHash } from "node:crypto";
+import { createReadStream } from "node:fs";
+import { InputError } from "../errors.js";
+import { settingsDigest, type Job } from "./job.js";
+import { QUEUE_NAME, type QueueStore } from "./queueStore.js";
+
+/** SHA-256 of a file's bytes, streamed. */
+export async function fileSha256(file: string, shown: string): Promise<string> {
+  const h = createHash("sha256");
+  try {
+    for await (const chunk of createReadStream(file, { highWaterMark: 1 << 20 })) h.update(chunk as Buffer);
+  } catch (e) {
+    throw new InputError("FILE_UNREADABLE", { file: shown, expected: "a readable file", received: String((e as NodeJS.ErrnoException).code) });
+  }
+  return h.digest("hex");
+}
+
+export type AddResult = { file: string; added: true; jobId: string } | { file: string; added: false; jobId: string; state: string };
+
+/**
+ * Queues one job unless the same recording (by SHA-256) was queued before with the same settings
+ * digest: the key row and the pg-boss job are written in one transaction, so two nodes adding the same
+ * files at once still make one job each.
+ */
+export async function addJob(store: QueueStore, job: Job, expireInSeconds: number): Promise<AddResult> {
+  const digest = settingsDigest(job);
+  return store.transaction(async (c, db) => {
+    const { rows } = await c.query<{ job_id: string }>(
+      `INSERT INTO psdgate.submission (recording_sha256, settings_digest, path, kind, profile_sha256, job_id)
+       VALUES ($1, $2, $3, $4, $5, gen_random_uuid()) ON CONFLICT DO NOTHING RETURNING job_id`,
+      [job.sha256, digest, job.file, job.kind, job.profile?.sha256 ?? null],
+    );
+    if (rows.length === 1) {
+      const id = rows[0]!.job_id;
+      await store.boss.send(QUEUE_NAME, job as unknown as object, { id, expireInSeconds, db: db as never });
+      return { file: job.file, added: true, jobId: id };
+    }
+    const prior = await c.query<{ job_id: string; path: string; outcome: string | null; state: string | null }>(
+      `SELECT s.job_id, s.path, r.outcome, j.state::text AS state
+         FROM psdgate.submission s
+         LEFT JOIN psdgate.result r ON r.job_id = s.job_id
+         LEFT JOIN pgboss.job j ON j.id = s.job_id AND j.name = $3
+        WHERE s.recording_sha256 = $1 AND s.settings_digest = $2`,
+      [job.sha256, digest, QUEUE_NAME],
+    );
+    const p = prior.rows[0]!;
+    return { file: job.file, added: false, jobId: p.job_id, state: p.outcome ?? p.state ?? "archived" };
+  });
+}

@@ -1,0 +1,215 @@
+import type PgBoss from "pg-boss";
+import { VERSION } from "../version.js";
+import { redact } from "./connection.js";
+import { settingsDigest, type Job } from "./job.js";
+import { JobCrash, type JobPool } from "./jobPool.js";
+import { errorLine, type StoredOutcome } from "./runJob.js";
+import { QUEUE_NAME, type QueueStore, type SqlRunner } from "./queueStore.js";
+
+export interface WorkOptions {
+  /** Analyses at once (one thread each). */
+  jobs: number;
+  /** Exit once no job is queued or active. */
+  drain: boolean;
+  /** Wait between looks at an empty queue, in seconds. */
+  pollSeconds: number;
+  /** Who finished a job, kept in its result row. */
+  workerName: string;
+  /** Stop taking jobs when this fires; jobs in hand are finished and their results written. */
+  signal: AbortSignal;
+  /** One line per event for stderr. */
+  log: (line: string) => void;
+  /** Per finished job, for the progress line (not called in quiet mode by the CLI). */
+  onFinished?: ((file: string, what: string, seconds: number) => void) | undefined;
+}
+
+export interface WorkSummary { done: number; failed: number; retried: number; discarded: number }
+
+type FetchedJob = PgBoss.JobWithMetadata<Job>;
+
+const sleep = (ms: number, signal?: AbortSignal) =>
+  new Promise<void>((resolve) => {
+    if (signal?.aborted) return resolve();
+    const t = setTimeout(done, ms);
+    function done() {
+      clearTimeout(t);
+      signal?.removeEventListener("abort", done);
+      resolve();
+    }
+    signal?.addEventListener("abort", done, { once: true });
+  });
+
+/** Back-off after a database error: 1, 2, 4, … 30 s. */
+const backoffMs = (failures: number) => Math.min(30000, 1000 * 2 ** Math.max(0, failures - 1));
+
+/**
+ * Whether a database error may go away by waiting: no connection (ECONNREFUSED, ECONNRESET, …), the server
+ * shutting down or out of resources, a conflict with another transaction (SQLSTATE classes 08, 40, 53, 57,
+ * 58, PostgreSQL manual, appendix A). Anything else (a constraint, a type) is a bug here, not an outage.
+ */
+export function transientDbError(e: unknown): boolean {
+  const code = (e as { code?: unknown })?.code;
+  if (typeof code !== "string" || !/^[0-9A-Z]{5}$/.test(code)) return true;
+  return /^(08|40|53|57|58)/.test(code);
+}
+
+/** The job is no longer ours (not active any more, or its result is stored already): nothing was changed. */
+class NotOurs extends Error {}
+
+/**
+ * A worker: `jobs` loops, each fetching one job when it is free, running it on the pool, and writing
+ * its result in the same statement (so the same transaction) that completes the job. Input errors fail the job at once; an
+ * internal error goes back to pg-boss for a retry (delay and limit of the queue), and on the last
+ * attempt is kept as a failed result. Database errors are retried with back-off, said on stderr.
+ */
+export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions): Promise<WorkSummary> {
+  const summary: WorkSummary = { done: 0, failed: 0, retried: 0, discarded: 0 };
+  let dbFailures = 0;
+  let lastExpire = 0;
+  const say = (s: string) => o.log(redact(s, store.target));
+
+  /** Runs `fn` until the database answers; without `keepTrying`, gives up (undefined) once told to stop. */
+  async function withDb<T>(what: string, fn: () => Promise<T>, keepTrying: boolean): Promise<T | undefined> {
+    for (;;) {
+      try {
+        const out = await fn();
+        if (dbFailures > 0) say(`psdgate: database reachable again (${store.target.label})`);
+        dbFailures = 0;
+        return out;
+      } catch (e) {
+        if (e instanceof NotOurs || !transientDbError(e)) throw e;
+        dbFailures++;
+        const wait = backoffMs(dbFailures);
+        say(`psdgate: database error while ${what}: ${(e as Error).message}; trying again in ${wait / 1000} s`);
+        if (!keepTrying && o.signal.aborted) return undefined;
+        await sleep(wait, keepTrying ? undefined : o.signal);
+        if (!keepTrying && o.signal.aborted) return undefined;
+      }
+    }
+  }
+
+  async function fetchOne(): Promise<FetchedJob | undefined> {
+    let error: unknown;
+    // pg-boss's fetch swallows query errors and returns no jobs; this runner keeps the error so a lost
+    // connection is seen (and retried with back-off) rather than read as an empty queue.
+    const db: SqlRunner = { executeSql: (t, v) => store.pool.query(t, v as unknown[]).catch((e: unknown) => { error = e; throw e; }) };
+    const jobs = await store.boss.fetch<Job>(QUEUE_NAME, { batchSize: 1, includeMetadata: true, db } as PgBoss.FetchOptions & { includeMetadata: true });
+    if (error !== undefined) throw error;
+    return jobs[0];
+  }
+
+  async function nothingLeft(): Promise<boolean> {
+    const { rows } = await store.pool.query<{ n: string }>(`SELECT count(*) AS n FROM pgboss.job WHERE name = $1 AND state IN ('created', 'retry', 'active')`, [QUEUE_NAME]);
+    return Number(rows[0]!.n) === 0;
+  }
+
+  /**
+   * Result row and the job's end in one statement, so all or nothing without a transaction of several
+   * round trips. The job's update is the SQL of pg-boss 10's completeJobs (plans.js), and for a final
+   * failure the state pg-boss's failJobs gives a job out of retries; both only while the job is still
+   * active. The INSERT has no ON CONFLICT: a second result for a job is a unique violation, and then
+   * the statement changes nothing.
+   */
+  async function finish(job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail"): Promise<void> {
+    const j = job.data;
+    const output = outcome.ok ? { verdict: outcome.verdict } : { code: outcome.error.code, message: outcome.error.message };
+    try {
+      const { rows } = await store.pool.query<{ stored: string }>(
+        `WITH ended AS (
+           UPDATE pgboss.job SET completed_on = now(), state = $17::pgboss.job_state, output = $18::jsonb
+            WHERE name = $19 AND id = $1 AND state = 'active'
+           RETURNING id
+         ), stored AS (
+           INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version, report_path)
+           SELECT id, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16 FROM ended
+           RETURNING job_id
+         )
+         SELECT count(*) AS stored FROM stored`,
+        [job.id, j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j), outcome.ok ? "done" : "failed",
+          outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
+          outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null,
+          final === "complete" ? "completed" : "failed", JSON.stringify(output), QUEUE_NAME],
+      );
+      if (Number(rows[0]!.stored) !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
+    } catch (e) {
+      if ((e as { code?: string }).code === "23505") throw new NotOurs("a result for this job or this recording and settings is already stored");
+      throw e;
+    }
+  }
+
+  type Ran = { outcome: StoredOutcome; crash?: undefined; seconds: number } | { outcome?: undefined; crash: Error; seconds: number };
+
+  async function runOne(job: FetchedJob): Promise<Ran> {
+    const t0 = performance.now();
+    try {
+      const outcome = await pool.run(job.data);
+      return { outcome, seconds: (performance.now() - t0) / 1000 };
+    } catch (e) {
+      return { crash: e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e)), seconds: (performance.now() - t0) / 1000 };
+    }
+  }
+
+  /** Writes what a job gave: result and completion together, or the job handed back for a retry. */
+  async function record(job: FetchedJob, ran: Ran): Promise<void> {
+    const file = job.data.file;
+    const { outcome, crash } = ran;
+    try {
+      if (outcome) {
+        await withDb("writing a result", () => finish(job, outcome, outcome.ok ? "complete" : "fail"), true);
+        if (outcome.ok) summary.done++;
+        else summary.failed++;
+        o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, ran.seconds);
+        return;
+      }
+      const attempt = job.retryCount + 1;
+      const attempts = job.retryLimit + 1;
+      if (attempt >= attempts) {
+        const error = { code: "INTERNAL", message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}` };
+        await withDb("writing a result", () => finish(job, { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error }, "fail"), true);
+        summary.failed++;
+        say(`psdgate: ${file}: ${error.message}; kept as failed`);
+        return;
+      }
+      await withDb("handing a job back", () => store.boss.fail(QUEUE_NAME, job.id, { message: crash!.message }), true);
+      summary.retried++;
+      say(`psdgate: ${file}: internal error on attempt ${attempt} of ${attempts}: ${crash!.message}; it will be retried`);
+    } catch (e) {
+      if (!(e instanceof NotOurs)) throw e;
+      summary.discarded++;
+      say(`psdgate: ${file}: result not kept: ${e.message}`);
+    }
+  }
+
+  async function slot(): Promise<void> {
+    // A job's result is written while the next job runs: the database's time hides behind the analysis.
+    let recording: Promise<void> = Promise.resolve();
+    while (!o.signal.aborted) {
+      const job = await withDb("fetching a job", fetchOne, false);
+      if (o.signal.aborted) {
+        // Fetched just as we were told to stop: hand it straight back untouched.
+        if (job) await withDb("handing a job back", () => store.pool.query(`UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]), true);
+        break;
+      }
+      if (job) {
+        const ran = await runOne(job);
+        await recording;
+        recording = record(job, ran);
+        // Marked as handled now (a bug's error is still thrown where it is awaited, one job later).
+        recording.catch(() => undefined);
+        continue;
+      }
+      await recording;
+      if (Date.now() - lastExpire > 2000) {
+        lastExpire = Date.now();
+        // Jobs held by a worker that died are failed by timeout (and so retried) by this call.
+        await withDb("expiring lost jobs", () => store.boss.expire(), false);
+      }
+      if (o.drain && (await withDb("counting jobs", nothingLeft, false))) break;
+      await sleep(o.pollSeconds * 1000, o.signal);
+    }
+    await recording;
+  }
+
+  await Promise.all(Array.from({ length: o.jobs }, () => slot()));
+  return summary;
+}

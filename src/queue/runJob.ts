@@ -1,0 +1,151 @@
+import { analyzeRecording, type RecordingAnalysis } from "../analyzeRecording.js";
+import type { TestProfile } from "../compare/testProfile.js";
+import { InputError } from "../errors.js";
+import type { CheckResult } from "../report/checkReport.js";
+import { psdJson, toolInfo } from "../report/psdJson.js";
+import { VERSION } from "../version.js";
+import type { Job } from "./job.js";
+import { resolveJobPath } from "./jobPath.js";
+
+/** The figures kept in their own columns beside the full JSON, one entry per channel. */
+export interface KeyFigures {
+  sampleRateHz: number;
+  durationS: number;
+  channels: { name: string; units: string; rms: number; rmsDeviationDb: number | null; dof: number; parsevalRatio: number | null; verdict: string | null }[];
+}
+
+/** What one job gave: the batch's JSON line for the recording, its verdict and key figures, or its input error. */
+export type JobOutcome =
+  | { ok: true; line: Record<string, unknown>; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
+  | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } };
+
+/** An outcome with its line already as JSON text: made once, in the thread that ran the job, and stored as it is. */
+export type StoredOutcome =
+  | { ok: true; lineJson: string; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
+  | { ok: false; lineJson: string; error: { code: string; message: string } };
+
+export function storedOutcome(o: JobOutcome): StoredOutcome {
+  const lineJson = JSON.stringify(o.line);
+  return o.ok ? { ok: true, lineJson, verdict: o.verdict, figures: o.figures, report: o.report } : { ok: false, lineJson, error: o.error };
+}
+
+export interface JobContext {
+  /** The folder job paths are relative to. */
+  root: string;
+  /** Profiles already loaded, by SHA-256 (a worker sees the same few again and again). */
+  profiles?: Map<string, TestProfile> | undefined;
+  /** Write each check's HTML report here, at the recording's path with .html (runs/a.wav → DIR/runs/a.html). */
+  reportDir?: string | undefined;
+}
+
+const finite = (x: number) => (Number.isFinite(x) ? x : null);
+
+/** An input error named by the job's own path rather than the worker's resolved one. */
+function asJobError(e: InputError, real: string | undefined, jobPath: string): InputError {
+  if (real === undefined || e.details.file !== real) return e;
+  return new InputError(e.code, { ...e.details, file: jobPath });
+}
+
+export function errorLine(file: string, e: { code: string; message: string }): Record<string, unknown> {
+  return { tool: toolInfo(VERSION), input: { file }, error: { code: e.code, message: e.message } };
+}
+
+/**
+ * Runs one job where it is called and returns its outcome: the same JSON line `psd --json` or
+ * `check --json` prints for the recording in a batch (paths as the job names them), or the error
+ * line for an input error. Anything else (a bug, memory) is thrown for the caller to retry.
+ */
+export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
+  let real: string | undefined;
+  try {
+    real = await resolveJobPath(ctx.root, job.file, "recording");
+    // One thread per job: the queue's parallelism is --jobs, as in the batch.
+    const options = { ...job.options, csv: { ...job.options.csv, parseWorkers: 0 } };
+    if (job.kind === "psd") {
+      const a = await analyzeRecording(real, options);
+      sameRecording(a, job);
+      const line = psdJson(a, VERSION);
+      line.input.file = job.file;
+      return { ok: true, line, verdict: null, figures: figuresOf(a, undefined) };
+    }
+    if (job.profile === undefined) throw new InputError("JOB_INVALID", { file: job.file, expected: "a check job with a profile", received: "none" });
+    const profile = await profileFor(job.profile, ctx);
+    const { checkRecording } = await import("../checkRecording.js");
+    const { checkJson } = await import("../report/checkReport.js");
+    const r = await checkRecording(real, profile, { ...options, histogram: ctx.reportDir !== undefined });
+    sameRecording(r.analysis, job);
+    const line = checkJson(r, VERSION);
+    line.input.file = job.file;
+    line.profile.file = job.profile.path;
+    const report = ctx.reportDir === undefined ? undefined : await writeReport(ctx.reportDir, job, r, real);
+    return { ok: true, line, verdict: r.verdict, figures: figuresOf(r.analysis, r), report };
+  } catch (e) {
+    if (!(e instanceof InputError)) throw e;
+    const err = asJobError(e, real, job.file);
+    return { ok: false, line: errorLine(job.file, err), error: { code: err.code, message: err.message } };
+  }
+}
+
+/**
+ * The HTML report of a check, at the job's path under `dir`. A report that cannot be written is the
+ * worker's problem, not the recording's: it is thrown as an internal error, so the job is retried.
+ */
+async function writeReport(dir: string, job: Job, r: CheckResult, recording: string): Promise<string> {
+  const { checkHtml } = await import("../report/htmlReport.js");
+  const { writeAtomic } = await import("../report/writeAtomic.js");
+  const { mkdir } = await import("node:fs/promises");
+  const { dirname, join } = await import("node:path");
+  const rel = job.file.replace(/\.[^./]*$/, "") + ".html";
+  const target = join(dir, rel);
+  try {
+    await mkdir(dirname(target), { recursive: true });
+    // A retried job writes its report again: same job, same report, so it may replace it.
+    await writeAtomic(target, checkHtml({ ...r, analysis: { ...r.analysis, input: { ...r.analysis.input, file: job.file } }, profile: { ...r.profile, file: job.profile!.path } }, VERSION, new Date()), { inputs: [recording], force: true, option: "--report-dir" });
+  } catch (e) {
+    throw new Error(`report ${target} not written: ${(e as Error).message}`);
+  }
+  return rel;
+}
+
+function sameRecording(a: RecordingAnalysis, job: Job): void {
+  if (a.input.sha256 !== job.sha256) {
+    throw new InputError("RECORDING_CHANGED", { file: job.file, expected: `the recording queued with SHA-256 ${job.sha256}`, received: `SHA-256 ${a.input.sha256}`, hint: "queue it again if the new file is meant" });
+  }
+}
+
+async function profileFor(p: { path: string; sha256: string }, ctx: JobContext): Promise<TestProfile> {
+  const cached = ctx.profiles?.get(p.sha256);
+  if (cached) return cached;
+  const real = await resolveJobPath(ctx.root, p.path, "profile");
+  const { loadProfile } = await import("../checkRecording.js");
+  let profile: TestProfile;
+  try {
+    profile = await loadProfile(real);
+  } catch (e) {
+    throw e instanceof InputError ? asJobError(e, real, p.path) : e;
+  }
+  if (profile.sha256 !== p.sha256) {
+    throw new InputError("PROFILE_CHANGED", { file: p.path, expected: `the profile queued with SHA-256 ${p.sha256}`, received: `SHA-256 ${profile.sha256}` });
+  }
+  ctx.profiles?.set(p.sha256, profile);
+  return profile;
+}
+
+function figuresOf(a: RecordingAnalysis, r: CheckResult | undefined): KeyFigures {
+  return {
+    sampleRateHz: a.input.sampleRateHz,
+    durationS: a.input.durationS,
+    channels: a.channels.map((c, i) => {
+      const k = r?.channels[i];
+      return {
+        name: c.name,
+        units: c.units,
+        rms: k ? k.rms.measured : c.parseval.rmsTime,
+        rmsDeviationDb: k ? finite(k.rms.deviationDb) : null,
+        dof: c.psd.dof,
+        parsevalRatio: finite(c.parseval.ratio),
+        verdict: k ? k.verdict : null,
+      };
+    }),
+  };
+}

@@ -1,0 +1,72 @@
+import { copyFileSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { describe, expect, it } from "vitest";
+import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { checkRecording, loadProfile } from "../../src/checkRecording.js";
+import { checkJson } from "../../src/report/checkReport.js";
+import { psdJson } from "../../src/report/psdJson.js";
+import { VERSION } from "../../src/version.js";
+import type { Job } from "../../src/queue/job.js";
+import { runJob } from "../../src/queue/runJob.js";
+import { tempDir } from "../helpers.js";
+
+const root = tempDir();
+mkdirSync(join(root, "runs"));
+mkdirSync(join(root, "specs"));
+copyFileSync("samples/kb210-run-short.wav", join(root, "runs", "short.wav"));
+copyFileSync("samples/profiles/kb210-controller.json", join(root, "specs", "kb210.json"));
+writeFileSync(join(root, "runs", "bad.csv"), "time,ax [g]\n0,1\n0.001,oops\n");
+const profile = await loadProfile(join(root, "specs", "kb210.json"));
+const local = await analyzeRecording("samples/kb210-run-short.wav");
+const sha = local.input.sha256;
+
+describe("runJob", () => {
+  it("runJob(psd job) gives psdJson's line for the recording, named by the job's path", async () => {
+    const o = await runJob({ kind: "psd", file: "runs/short.wav", sha256: sha, options: {} }, { root });
+    expect(o.ok).toBe(true);
+    const expected = psdJson(local, VERSION);
+    expected.input.file = "runs/short.wav";
+    expect(JSON.stringify(o.line)).toBe(JSON.stringify(expected));
+    if (o.ok) expect(o.verdict).toBe(null);
+  });
+  it("runJob(check job) gives checkJson's line and the verdict, profile named by the job's path", async () => {
+    const job: Job = { kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } };
+    const o = await runJob(job, { root, profiles: new Map() });
+    const r = await checkRecording("samples/kb210-run-short.wav", profile, { histogram: false });
+    const expected = checkJson(r, VERSION);
+    expected.input.file = "runs/short.wav";
+    expected.profile.file = "specs/kb210.json";
+    expect(JSON.stringify(o.line)).toBe(JSON.stringify(expected));
+    expect(o.ok && o.verdict).toBe("inconclusive");
+    if (o.ok) expect(o.figures.channels[0]).toMatchObject({ name: "ch1", verdict: "inconclusive", rms: r.channels[0]!.rms.measured, dof: r.analysis.channels[0]!.psd.dof });
+  });
+  it("runJob(check job, { reportDir }) writes the HTML report at the job's path and gives the same line", async () => {
+    const reportDir = join(tempDir(), "reports");
+    const job: Job = { kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } };
+    const plain = await runJob(job, { root });
+    const o = await runJob(job, { root, reportDir });
+    expect(o.ok && o.report).toBe("runs/short.html");
+    expect(JSON.stringify(o.line)).toBe(JSON.stringify(plain.line));
+    const html = readFileSync(join(reportDir, "runs", "short.html"), "utf8");
+    expect(html).toMatch(/^<!DOCTYPE html>/i);
+    expect(html).toContain("runs/short.wav");
+    expect((await runJob(job, { root, reportDir })).ok).toBe(true); // a retried job may replace its report
+  });
+  it("an input error is an outcome with its code and the batch's error line, named by the job's path", async () => {
+    const o = await runJob({ kind: "psd", file: "runs/bad.csv", sha256: "0", options: {} }, { root });
+    expect(o.ok).toBe(false);
+    if (!o.ok) {
+      expect(o.error.code).toBe("CSV_NOT_A_NUMBER");
+      expect(o.error.message).toMatch(/^runs\/bad\.csv:3:2 \(ax\): expected a number/);
+      expect(o.line).toEqual({ tool: { name: "psdgate", version: VERSION }, input: { file: "runs/bad.csv" }, error: o.error });
+    }
+  });
+  it("a recording or profile changed since it was queued, and a path out of the root, are refused", async () => {
+    const changed = await runJob({ kind: "psd", file: "runs/short.wav", sha256: "f".repeat(64), options: {} }, { root });
+    expect(!changed.ok && changed.error.code).toBe("RECORDING_CHANGED");
+    const prof = await runJob({ kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: "e".repeat(64) } }, { root });
+    expect(!prof.ok && prof.error.code).toBe("PROFILE_CHANGED");
+    const out = await runJob({ kind: "psd", file: "../x.wav", sha256: sha, options: {} }, { root });
+    expect(!out.ok && out.error.code).toBe("JOB_PATH_REFUSED");
+  });
+});
