@@ -27,6 +27,8 @@ function placeOf(file: string): Place {
   const top = rel[0]!;
   if (BASE.has(top)) return { kind: "base" };
   if (top === "cli") return { kind: "cli" };
+  // queue/ is an edge (DEVELOPERS.md, Layout): like the wiring modules it uses the stages and touches files.
+  if (top === "queue") return { kind: "wiring" };
   const rank = (STAGES as readonly string[]).indexOf(top);
   return rank >= 0 ? { kind: "stage", rank, name: top } : { kind: "other", name: top };
 }

@@ -61,6 +61,15 @@ describe("check --report and psd --report pages (no browser)", () => {
     expect(prof.stdout).not.toContain("m/s²²");
   });
 
+  it("psd --report on a CSV with date-time stamps shows when the recording started", async () => {
+    const d = tempDir();
+    const rows = ["time,az [g]"];
+    for (let i = 0; i < 4000; i++) rows.push(`2026-11-30T08:15:${(i / 1000).toFixed(3).padStart(6, "0")}Z,${Math.sin(i * 0.7).toFixed(5)}`);
+    writeFileSync(join(d, "dt.csv"), rows.join("\n") + "\n");
+    expect((await cli("psd", join(d, "dt.csv"), "--segment", "512", "--report", join(d, "dt.html"))).code).toBe(0);
+    expect(readFileSync(join(d, "dt.html"), "utf8")).toContain("<th>Recording started</th><td>2026-11-30T08:15:00.000Z");
+  });
+
   it("psd --meta FILE carries the identity into --json; a misspelt key is refused with its name", async () => {
     const { dir: d, meta } = dir();
     const r = await cli("psd", "samples/kb210-run.wav", "--meta", meta, "--json");
