@@ -494,5 +494,5 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
 type WorkerReply =
   | { piece: CsvPiece; bytes: number }
   | { done: ReadSummary }
-  | { inputError: { code: string; details: InputError["details"] } }
+  | { inputError: { code: InputError["code"]; details: InputError["details"] } }
   | { internal: string };
