@@ -1,6 +1,6 @@
 import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { amplitudeGates } from "./compare/amplitudeGates.js";
-import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
+import { parsevalCheck, type ParsevalCheck } from "./estimate/parsevalCheck.js";
 import { texts, type Finding } from "./findings.js";
 import { InputError, quoted } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
