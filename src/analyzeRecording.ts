@@ -1,6 +1,6 @@
 import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { amplitudeGates } from "./compare/amplitudeGates.js";
-import { parsevalCheck, type ParsevalCheck } from "./compare/parsevalCheck.js";
+import { parsevalCheck, type ParsevalCheck } from "./estimate/parsevalCheck.js";
 import { texts, type Finding } from "./findings.js";
 import { InputError, quoted } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
@@ -14,6 +14,7 @@ import { WelchAccumulator } from "./estimate/welchPsd.js";
 import { spectralWindow } from "./estimate/windows.js";
 import type { CsvReadOptions } from "./read/csvTimeHistory.js";
 import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
+import { isoDateTime, parseDateTimeText } from "./read/dateTimeStamp.js";
 import { openTimeHistory } from "./read/openTimeHistory.js";
 import type { ChannelInfo, RecordingInfo, TimeHistorySource } from "./read/timeHistory.js";
 import type { AccelUnit } from "./units.js";
@@ -45,6 +46,10 @@ export interface AnalysisOptions extends WelchOptions {
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
   /** Start of the analysed window, s from the first sample (default 0). The whole file is still read and hashed. */
   fromS?: number | undefined;
+  /** --from as a clock time (ISO 8601 date-time, or a time of day on the first stamp's day); needs date-time stamps. */
+  fromClock?: string | undefined;
+  /** --to as a clock time. */
+  toClock?: string | undefined;
   /** End of the analysed window, s from the first sample (default: the end). */
   toS?: number | undefined;
   /** Length of the stretches whose mean squares the stationarity test compares, s (default 1). */
@@ -79,6 +84,9 @@ export interface FrameWindow {
   frames: number;
   /** The --to asked for, when it lay past the end (toS is then the end). */
   requestedToS?: number | undefined;
+  /** --from/--to as the clock times given, when they were. */
+  fromClock?: string | undefined;
+  toClock?: string | undefined;
 }
 
 export interface ChannelAnalysis {
@@ -172,8 +180,10 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const extras = options.accumulators ?? [];
   let first = 0;
   let end = Infinity;
+  let asked: AnalysisOptions = options;
   try {
-    ({ first, end } = frameWindow(options, designFs));
+    asked = clockWindow(options, info);
+    ({ first, end } = frameWindow(asked, designFs));
     if (!(stretchS > 0 && Number.isFinite(stretchS))) throw new InputError("OPTION_INVALID", { option: "--stretch", expected: "a stretch length in s above 0", received: String(stretchS) });
     for (const e of extras) e.start(designFs);
   } catch (e) {
@@ -224,15 +234,17 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
     passDoubts.push(`the record's rate is ${fmt(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${fmt(designFs)} Hz its first rows gave`);
   }
-  if (taken === 0 && (options.fromS !== undefined || options.toS !== undefined)) {
+  if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
     throw new InputError("WINDOW_EMPTY", {
-      file: info.file, option: options.fromS !== undefined ? "--from" : "--to",
-      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `--from ${options.fromS ?? 0} --to ${options.toS ?? "end"}`,
+      file: info.file, option: asked.fromS !== undefined ? "--from" : "--to",
+      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `--from ${asked.fromS ?? 0} --to ${asked.toS ?? "end"}`,
     });
   }
   const recordEndS = summary.frames / fs;
   const windowInfo: FrameWindow = { fromS: Math.min(first, summary.frames) / fs, toS: Math.min(end, summary.frames) / fs, frames: taken };
-  if (options.toS !== undefined && end > summary.frames) windowInfo.requestedToS = options.toS;
+  if (asked.toS !== undefined && end > summary.frames) windowInfo.requestedToS = asked.toS;
+  if (options.fromClock !== undefined) windowInfo.fromClock = options.fromClock;
+  if (options.toClock !== undefined) windowInfo.toClock = options.toClock;
   const extraResults = extras.map((e) => e.finish(fs));
   // The line spacing follows the final rate (a CSV time column is only known once fully read).
   const resolved = { ...settings, resolutionHz: fs / settings.segmentLength };
@@ -270,6 +282,37 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     channels,
     extras: extraResults,
     passDoubts,
+  };
+}
+
+/**
+ * --from/--to given as clock times (`fromClock`, `toClock`: an ISO 8601 date-time, or a time of day on the
+ * first stamp's day) turned into seconds from the first sample, for a record with date-time stamps.
+ */
+function clockWindow(o: AnalysisOptions, info: RecordingInfo): AnalysisOptions {
+  if (o.fromClock === undefined && o.toClock === undefined) return o;
+  const stamp = info.firstStamp;
+  const seconds = (text: string, option: string): number => {
+    if (!stamp) {
+      throw new InputError("OPTION_INVALID", { file: info.file, option, expected: "a time in s (a clock time needs a record with date-time stamps)", received: quoted(text) });
+    }
+    const day = isoDateTime(stamp.baseDays, 0, 0, false).slice(0, 10);
+    const full = /^\d{1,2}:\d{2}/.test(text.trim()) ? `${day} ${text.trim()}` : text.trim();
+    const scan = parseDateTimeText(full, stamp.baseDays);
+    if (!scan || (scan.zone !== 0) !== stamp.zoned) {
+      throw new InputError("OPTION_INVALID", {
+        file: info.file, option, received: quoted(text),
+        expected: `a clock time like the record's stamps (${stamp.zoned ? "with" : "without"} a zone), e.g. ${isoDateTime(stamp.baseDays, stamp.seconds, 0, stamp.zoned)} or ${isoDateTime(stamp.baseDays, stamp.seconds, 0, false).slice(11)}`,
+      });
+    }
+    const s = scan.value - stamp.seconds;
+    if (s < 0) throw new InputError("OPTION_INVALID", { file: info.file, option, expected: `a time at or after the first sample, ${isoDateTime(stamp.baseDays, stamp.seconds, 3, stamp.zoned)}`, received: quoted(text) });
+    return s;
+  };
+  return {
+    ...o,
+    fromS: o.fromClock !== undefined ? seconds(o.fromClock, "--from") : o.fromS,
+    toS: o.toClock !== undefined ? seconds(o.toClock, "--to") : o.toS,
   };
 }
 

@@ -59,9 +59,9 @@ export type ErrorCode = (typeof ERROR_CODES)[keyof typeof ERROR_CODES][number];
 export const ALL_ERROR_CODES: readonly ErrorCode[] = Object.values(ERROR_CODES).flat();
 
 export class InputError extends Error {
-  readonly code: string;
+  readonly code: ErrorCode;
   readonly details: InputErrorDetails;
-  constructor(code: string, details: InputErrorDetails) {
+  constructor(code: ErrorCode, details: InputErrorDetails) {
     super(formatInputError(code, details));
     this.name = "InputError";
     this.code = code;

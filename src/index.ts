@@ -18,7 +18,7 @@ export { welchPsd, completePsd, bandRms, bandMeanSquare, strongestPeaks, frequen
 export { chiSquareQuantile, chiSquareUpperQuantile, chiSquareCdf, chiSquareSurvival, chiSquareIntervalFactors } from "./estimate/chiSquare.js";
 export { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
 export { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
-export { parsevalCheck, parsevalTolerance, studentTQuantile, type ParsevalCheck } from "./compare/parsevalCheck.js";
+export { parsevalCheck, parsevalTolerance, studentTQuantile, type ParsevalCheck } from "./estimate/parsevalCheck.js";
 export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfile, type ProfileSegment, type ToleranceBand } from "./compare/testProfile.js";
 export { judgeSpectrum, withDoubts, overallVerdict, bandAt, longerRecordFactor, type Verdict, type ChannelCompliance, type Excursion, type LineDeviation, type SpectrumUnderTest, type Finding } from "./compare/complianceCheck.js";
 export { DECISION_RULE, ruleLevels, powerAt, dofForPower, binomialAtLeast } from "./compare/decisionRule.js";

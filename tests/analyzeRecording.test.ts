@@ -267,3 +267,30 @@ describe("--from/--to on psd and check (CLI)", () => {
     expect(j.input.window).toEqual({ fromS: 5, toS: 20, frames: 61440 });
   });
 });
+
+describe("analyzeRecording with --from/--to as clock times (records with date-time stamps)", () => {
+  const dir = tempDir();
+  const iso = (i: number) => {
+    const ms = 14 * 3600 * 1000 + 3 * 60 * 1000 + i; // 14:03:00.000 + i ms, at 1000 Hz
+    const p2 = (n: number, w = 2) => String(n).padStart(w, "0");
+    return `2024-05-17 ${p2(Math.floor(ms / 3600000))}:${p2(Math.floor(ms / 60000) % 60)}:${p2(Math.floor(ms / 1000) % 60)}.${p2(ms % 1000, 3)}`;
+  };
+  const x = gaussian(10000, 21);
+  const file = join(dir, "stamped.csv");
+  writeFileSync(file, ["time,az [g]", ...Array.from(x, (v, i) => `${iso(i)},${v}`)].join("\n"));
+  it("a time of day and a full date-time select the same window as seconds from the first sample", async () => {
+    const byClock = await analyzeRecording(file, { segmentLength: 256, fromClock: "14:03:02", toClock: "2024-05-17 14:03:05.5" });
+    const bySeconds = await analyzeRecording(file, { segmentLength: 256, fromS: 2, toS: 5.5 });
+    // The frame window is set at the head's provisional rate, so it lands within a sample of the time asked.
+    expect(byClock.window.fromS).toBeCloseTo(2, 2);
+    expect(byClock.window.toS).toBeCloseTo(5.5, 2);
+    expect(byClock.window.fromS).toBe(bySeconds.window.fromS);
+    expect(byClock.window.fromClock).toBe("14:03:02");
+    expect(Array.from(byClock.channels[0]!.psd.psd)).toEqual(Array.from(bySeconds.channels[0]!.psd.psd));
+  });
+  it("a clock time before the first sample, in another zone form, or on a record without date-time stamps is an option error", async () => {
+    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "14:02:59" })).rejects.toThrow(/--from: expected a time at or after the first sample/);
+    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "2024-05-17T14:03:02Z" })).rejects.toThrow(/like the record's stamps \(without a zone\)/);
+    await expect(analyzeRecording("samples/kb210-run.wav", { fromClock: "14:03:02" })).rejects.toThrow(/a clock time needs a record with date-time stamps/);
+  });
+});

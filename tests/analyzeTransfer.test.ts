@@ -4,7 +4,7 @@ import { describe, expect, it } from "vitest";
 import { analyzeTransfer } from "../src/analyzeTransfer.js";
 import { InputError } from "../src/errors.js";
 import { sdofRecords } from "./estimate/sdofSimulation.js";
-import { gaussian, tempDir } from "./helpers.js";
+import { cli, gaussian, tempDir } from "./helpers.js";
 
 const dir = tempDir();
 const rate = 2048;
@@ -61,5 +61,17 @@ describe("analyzeTransfer", () => {
     expect(await msg({ inputChannel: "base", outputChannels: ["1"] })).toMatch(/^OPTION_INVALID option --out: expected an output channel other than the input/);
     expect(await msg({ inputChannel: "base", outputChannels: ["tip", "2"] })).toMatch(/^OPTION_INVALID option --out: expected each output channel once/);
     expect(await msg({ inputChannel: "floor", outputChannels: ["tip"] })).toMatch(/^CHANNEL_NOT_FOUND .*option --in: expected a channel name or position: 1=base, 2=tip, 3=other, received "floor"/);
+  });
+  it("works on the seat and floor of a ride record: the Marlow UV-3 seat mode (3.2 Hz in the sample's model) and the predicted seat RMS", async () => {
+    const r = await cli("transfer", "samples/marlow-uv3-ride.wav", "--in", "4", "--out", "3", "--units", "m/s2", "--scale", "40", "--resolution", "0.25", "--json");
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    const out = j.outputs[0];
+    const mode = out.resonances[0];
+    // scripts/make-ride-sample.mjs puts the suspension seat at 3.2 Hz; heavy seat damping and 0.24 Hz lines move the |H1| peak a little.
+    expect(Math.abs(mode.frequencyHz / 3.2 - 1)).toBeLessThan(0.1);
+    expect(mode.magnitude).toBeGreaterThan(1.5);
+    const rms = (a: number[]) => Math.sqrt(a.reduce((s, v) => s + v, 0) * j.frequencyHz[1]);
+    expect(Math.abs(rms(out.predictedOutputPsd) / rms(out.measuredOutputPsd) - 1)).toBeLessThan(0.01);
   });
 });

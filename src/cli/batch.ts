@@ -21,7 +21,7 @@ export interface BatchJob {
 
 export type BatchReply =
   | { id: number; result: RecordingAnalysis | CheckResult }
-  | { id: number; inputError: { code: string; details: InputError["details"] } }
+  | { id: number; inputError: { code: InputError["code"]; details: InputError["details"] } }
   | { id: number; internal: string };
 
 /** `internal` marks an error that is psdgate's own fault (exit 70), not the input's. */

@@ -55,6 +55,16 @@ const scaleValue = (t: string) => {
 };
 const sensitivityValue = (t: string) => (parseSensitivity(t) ? t.trim() : undefined);
 
+/** A time option: seconds from the first sample (a plain number), or clock text kept as given (checked against the record's stamps later). */
+function timeOption(option: string) {
+  return (v: string): number | string => {
+    const t = v.trim();
+    if (/^[+]?(\d+\.?\d*|\.\d+)$/.test(t)) return Number(t);
+    if (/^\d{4}-\d{2}-\d{2}[T ]\d{1,2}:\d{2}|^\d{1,2}:\d{2}/.test(t)) return t;
+    throw new InputError("OPTION_INVALID", { option, expected: "a time in s >= 0, or a clock time such as 2024-05-17T14:03:10 or 14:03:10", received: JSON.stringify(v) });
+  };
+}
+
 export function choice<T extends string>(option: string, values: readonly T[]) {
   return (text: string): T => {
     const t = text.toLowerCase() as T;
@@ -79,8 +89,8 @@ export function addReadingOptions(cmd: Command): Command {
     .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit's base, g or m/s2)", baseUnitOption("--result-units"))
     .option("--scale <[ch=]k>", "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel", channelSetting("--scale", scaleValue, "a non-zero number K, or CH=K"))
     .option("--sensitivity <[ch=]s>", "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel", channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"))
-    .option("--from <s>", "analyse from this time, in s from the first sample (the window is recorded in the results)", numberOption("--from", (x) => x >= 0, "a time in s >= 0"))
-    .option("--to <s>", "analyse up to this time, in s from the first sample", numberOption("--to", (x) => x > 0, "a time in s above 0"));
+    .option("--from <time>", "analyse from this time: s from the first sample, or a clock time (2024-05-17T14:03:10, or 14:03:10 on the first stamp's day) for a record with date-time stamps; recorded in the results", timeOption("--from"))
+    .option("--to <time>", "analyse up to this time, in the same forms as --from", timeOption("--to"));
 }
 
 /** Options of the Welch estimate (shared by psd and check). */
@@ -112,8 +122,8 @@ export interface ParsedCommon {
   resultUnits?: AccelUnit;
   scale?: ChannelSetting<number>[];
   sensitivity?: ChannelSetting<string>[];
-  from?: number;
-  to?: number;
+  from?: number | string;
+  to?: number | string;
   window?: WindowName;
   segment?: number;
   resolution?: number;
@@ -143,8 +153,10 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     resultUnits: o.resultUnits,
     channelScales: o.scale,
     sensitivities: o.sensitivity,
-    fromS: o.from,
-    toS: o.to,
+    fromS: typeof o.from === "number" ? o.from : undefined,
+    toS: typeof o.to === "number" ? o.to : undefined,
+    fromClock: typeof o.from === "string" ? o.from : undefined,
+    toClock: typeof o.to === "string" ? o.to : undefined,
     window: o.window,
     segmentLength: o.segment,
     resolutionHz: o.resolution,

@@ -42,7 +42,8 @@ export interface WelchSums {
   meanSquareGapBatches: number;
   /**
    * Amplitude figures of the detrended segments (so drift slower than the first line is not in them):
-   * Pearson kurtosis of all their samples and the crest factor max |d| / rms(d).
+   * Pearson kurtosis and the crest factor max |d| / rms(d), over the segments that tile the record (with
+   * 50 % overlap every other one), so each sample counts once.
    */
   detrendedKurtosis: number;
   detrendedCrestFactor: number;
@@ -110,6 +111,10 @@ export class WelchAccumulator {
   private plainMs = 0;
   private fourth = 0;
   private peak = 0;
+  private tiled = 0;
+  private tiledPlain = 0;
+  /** Every tileStride-th segment starts where the last one ended (N / hop, at least 1). */
+  private readonly tileStride: number;
   private readonly gaps = new BatchMeans();
 
   /** `power` may be shared by the accumulators of one segment length (it holds only scratch space). */
@@ -121,6 +126,7 @@ export class WelchAccumulator {
     this.power = power ?? new SegmentPower(this.n);
     if (this.power.size !== this.n || this.window.length !== this.n) throw new RangeError("window, FFT and segment length differ");
     this.ring = new SegmentRing(this.n, this.hop, 1);
+    this.tileStride = Math.max(1, Math.floor(this.n / this.hop));
     this.sum = new Float64Array(this.n / 2 + 1);
     let s = 0;
     for (let i = 0; i < this.n; i++) s += this.window[i]! * this.window[i]!;
@@ -162,26 +168,47 @@ export class WelchAccumulator {
     // Plain residual mean square of the same detrended segment: sum x^2 - n mean^2 - slope^2 sum (i - mid)^2;
     // and its fourth power and peak, for the amplitude gates.
     const plain = Math.max(0, this.sq[0]! - n * mean * mean - (slope * slope * (n * (n * n - 1))) / 12) / n;
-    this.fourthAndPeak(x, mean - slope * mid, slope);
+    // Amplitude figures from segments that tile the record (every stride-th one): each sample once.
+    if (this.segments % this.tileStride === 0) {
+      this.fourthAndPeak(x, mean - slope * mid, slope);
+      this.tiledPlain += plain;
+      this.tiled++;
+    }
     this.weightedMs += ms / this.sumW2;
     this.plainMs += plain;
     this.gaps.push(ms / this.sumW2 - plain);
     this.segments++;
   }
 
-  /** Sum of d^4 and the largest |d| for d = x - (offset + slope i), one pass over the segment. */
+  /**
+   * Sum of d^4 and the largest |d| for d = x - (offset + slope i), one pass over the segment. Branch-free
+   * (Math.max / Math.min, no sign test: a branch on random data costs more than the pass), two chains.
+   */
   private fourthAndPeak(x: Float64Array, offset: number, slope: number): void {
-    let s4 = 0;
-    let pk = this.peak;
-    for (let i = 0; i < this.n; i++) {
-      const d = x[i]! - offset - slope * i;
-      const d2 = d * d;
-      s4 += d2 * d2;
-      const a = d < 0 ? -d : d;
-      if (a > pk) pk = a;
+    const n = this.n;
+    let s4a = 0;
+    let s4b = 0;
+    let hi = -Infinity;
+    let lo = Infinity;
+    let i = 0;
+    for (; i + 1 < n; i += 2) {
+      const d0 = x[i]! - offset - slope * i;
+      const d1 = x[i + 1]! - offset - slope * (i + 1);
+      const q0 = d0 * d0;
+      const q1 = d1 * d1;
+      s4a += q0 * q0;
+      s4b += q1 * q1;
+      hi = Math.max(hi, d0, d1);
+      lo = Math.min(lo, d0, d1);
     }
-    this.fourth += s4 / this.n;
-    this.peak = pk;
+    for (; i < n; i++) {
+      const d = x[i]! - offset - slope * i;
+      s4a += d * d * d * d;
+      hi = Math.max(hi, d);
+      lo = Math.min(lo, d);
+    }
+    this.fourth += (s4a + s4b) / n;
+    this.peak = Math.max(this.peak, hi, -lo);
   }
 
   finish(sampleRateHz: number): WelchSums {
@@ -197,8 +224,8 @@ export class WelchAccumulator {
       segmentMeanSquare: k > 0 ? this.plainMs / k : NaN,
       meanSquareGapError: gap.error,
       meanSquareGapBatches: gap.batches,
-      detrendedKurtosis: k > 0 && this.plainMs > 0 ? (this.fourth / k) / (this.plainMs / k) ** 2 : NaN,
-      detrendedCrestFactor: k > 0 && this.plainMs > 0 ? this.peak / Math.sqrt(this.plainMs / k) : NaN,
+      detrendedKurtosis: this.tiled > 0 && this.tiledPlain > 0 ? this.fourth / this.tiled / (this.tiledPlain / this.tiled) ** 2 : NaN,
+      detrendedCrestFactor: this.tiled > 0 && this.tiledPlain > 0 ? this.peak / Math.sqrt(this.tiledPlain / this.tiled) : NaN,
     };
   }
 }

@@ -1,6 +1,6 @@
 import { createRequire } from "node:module";
 import type Papa from "papaparse";
-import { InputError, quoted } from "../errors.js";
+import { InputError, quoted, type ErrorCode } from "../errors.js";
 import { nonFiniteToken, numberTextResolution, parseNumberText, POW10, scanNumber, type ScanState } from "./csvNumber.js";
 import { parseDateTimeText, scanDateTime, type DateTimeScan } from "./dateTimeStamp.js";
 
@@ -226,7 +226,7 @@ export class CsvBodyParser {
     };
   }
 
-  private fail(code: string, line: number, column: number | undefined, expected: string, received: string, hint?: string): never {
+  private fail(code: ErrorCode, line: number, column: number | undefined, expected: string, received: string, hint?: string): never {
     throw new InputError(code, {
       file: this.spec.file, line, column, field: column !== undefined ? this.spec.columnNames[column - 1] : undefined, expected, received, hint,
     });

@@ -402,7 +402,8 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   });
 
   // Date-time stamps count seconds from the first stamp's day.
-  const baseDays = dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, ""))!.days : undefined;
+  const firstScan = dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, "")) : undefined;
+  const baseDays = firstScan?.days;
   // Provisional rate from the sniffed rows; the final one comes from the whole time column.
   let columnRate = NaN;
   if (timeIndex >= 0) {
@@ -431,6 +432,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
         + `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used (--no-time-column)` : ""}`
         + `${dialect.trailingEmpty ? ", empty last column ignored" : ""}${dialect.preambleLines > 0 ? `, ${dialect.preambleLines} preamble line${dialect.preambleLines > 1 ? "s" : ""} before the header kept as metadata` : ""}`,
       preamble: dialect.preamble.length > 0 ? dialect.preamble : undefined,
+      firstStamp: firstScan ? { baseDays: firstScan.days, seconds: firstScan.value, zoned: firstScan.zone !== 0 } : undefined,
     },
     read: (select, sink, onProgress) => {
       // The worker serves one read; a later read of the same source parses here.
@@ -492,5 +494,5 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
 type WorkerReply =
   | { piece: CsvPiece; bytes: number }
   | { done: ReadSummary }
-  | { inputError: { code: string; details: InputError["details"] } }
+  | { inputError: { code: InputError["code"]; details: InputError["details"] } }
   | { internal: string };

@@ -14,6 +14,8 @@ export interface RecordingInfo {
   layout: string;
   /** Lines before a CSV header that are not comments (a logger's metadata), as text. */
   preamble?: string[] | undefined;
+  /** The first date-time stamp, when the file has them (so --from/--to can be clock times). */
+  firstStamp?: FirstStamp | undefined;
 }
 
 export interface ChannelInfo {
@@ -30,6 +32,16 @@ export interface ChannelInfo {
   unitPlace?: { line: number; column: number } | undefined;
   /** A calibration the file itself carries (psdgate's WAV 'pgcl' chunk): file value x scale = declaredUnitSpec. */
   fileScale?: number | undefined;
+}
+
+/** The first time stamp of a record with date-time stamps, known from the sniffed head (before the read). */
+export interface FirstStamp {
+  /** Day number (days since 1970-01-01) the stamps count seconds from. */
+  baseDays: number;
+  /** Seconds of the first stamp after 00:00 of baseDays (UTC when `zoned`). */
+  seconds: number;
+  /** The stamps carry a zone (Z or an offset). */
+  zoned: boolean;
 }
 
 export interface ReadSummary {

@@ -21,7 +21,10 @@ export function inputJson(a: RecordingAnalysis) {
   const w = a.window;
   return {
     file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS, startTime: i.startTime ?? null, preamble: i.preamble ?? [],
-    window: { fromS: w.fromS, toS: w.toS, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}) },
+    window: {
+      fromS: w.fromS, toS: w.toS, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}),
+      ...(w.fromClock !== undefined ? { fromClock: w.fromClock } : {}), ...(w.toClock !== undefined ? { toClock: w.toClock } : {}),
+    },
   };
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { parsevalCheck, parsevalTolerance, studentTQuantile } from "../../src/compare/parsevalCheck.js";
+import { parsevalCheck, parsevalTolerance, studentTQuantile } from "../../src/estimate/parsevalCheck.js";
 import { welchPsd } from "../../src/estimate/psdEstimate.js";
 import { shapedRecord } from "../shapedRecords.js";
 

@@ -1,6 +1,6 @@
-import { normalQuantile } from "../estimate/chiSquare.js";
-import type { PsdEstimate } from "../estimate/psdEstimate.js";
-import type { WindowName } from "../estimate/windows.js";
+import { normalQuantile } from "./chiSquare.js";
+import type { PsdEstimate } from "./psdEstimate.js";
+import type { WindowName } from "./windows.js";
 
 /**
  * Parseval cross-check of the PSD against the time history, over the same detrended data.
