@@ -51,7 +51,7 @@ describe("several recordings", () => {
     expect(r.code).toBe(2);
     expect(r.stderr).toContain("--report-dir");
   });
-  it.skipIf(!built)("the worker pool (--jobs 2, built CLI) gives the same JSON lines as --jobs 1", () => {
+  it.skipIf(!process.env.CI && (!built))("the worker pool (--jobs 2, built CLI) gives the same JSON lines as --jobs 1", () => {
     const a = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "1"], { encoding: "utf8" });
     const b = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "2"], { encoding: "utf8" });
     expect(b.status).toBe(1);
@@ -59,7 +59,7 @@ describe("several recordings", () => {
   });
 });
 
-describe.skipIf(!built)("CSV parsed on a worker thread (files of 8 MB and more, built code)", () => {
+describe.skipIf(!process.env.CI && (!built))("CSV parsed on a worker thread (files of 8 MB and more, built code)", () => {
   const big = join(dir, "big.csv");
   let s = "time,ax [g],ay [g]\n";
   for (let i = 0; i < 330000; i++) s += `${(i / 2048).toFixed(7)},${Math.sin(i * 0.37).toFixed(6)},${(Math.cos(i * 0.11) * 2).toFixed(6)}\n`;
@@ -122,7 +122,7 @@ describe("progress", () => {
   });
 });
 
-describe.skipIf(!built)("batch worker limits (built code, issue #12)", () => {
+describe.skipIf(!process.env.CI && (!built))("batch worker limits (built code, issue #12)", () => {
   it("runBatch with a 2 MB worker heap: every recording gets one WORKER_LIMIT outcome, in order, and the batch still completes", async () => {
     const { runBatch } = await import(join(process.cwd(), "dist/cli/batch.js"));
     const got: [number, boolean, string][] = [];

@@ -34,7 +34,7 @@ describe("weightingMagnitude (closed form of the ISO 2631-1 Annex A analog proto
     expect(sig4(weightingMagnitude("Wk", 6.3))).toBe(1.054);
     expect(weightingMagnitude("Wk", 6.3)).toBeCloseTo(1.05438, 5);
   });
-  it("Wd at 10 Hz is the filter's 0.2017, not the 0.212 printed in transcriptions of Table 3 (REFERENCES.md, disagreements item 2)", () => {
+  it("Wd at 10 Hz is the filter's 0.2017, not the 0.212 printed in some copies of Table 3 (REFERENCES.md, disagreements item 2)", () => {
     expect(sig4(weightingMagnitude("Wd", 10))).toBe(0.2017);
   });
   it("every weighting is 0 at DC and falls off above 100 Hz (band limits 0.4-100 Hz, Annex A)", () => {
