@@ -9,7 +9,7 @@ import { embedResult } from "./embeddedResult.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
-import { identityRows, qty, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import { identityRows, qty, recordingRows, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 
 /**
@@ -187,10 +187,7 @@ ${identityRows(m, a)}
 </table>
 <h2>Record</h2>
 <table class="meta">
-${row("Recording", esc(a.input.file))}
-${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
-${row("Format", esc(a.input.layout))}
-${row("Samples", `${a.input.samples} at ${qty(sig(a.input.sampleRateHz, 6), "Hz")} = ${qty(fixed(a.input.durationS, 3), "s")}, ${a.channels.length} channel(s) analysed`)}
+${recordingRows(a)}
 ${row("Duration required", p.durationS !== undefined ? `${qty(sig(p.durationS, 4), "s")} (the profile's durationS): ${a.input.durationS >= p.durationS ? "met" : "NOT met"}` : "none stated by the profile")}
 ${row("Profile", esc(p.file))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}

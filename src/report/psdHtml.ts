@@ -5,7 +5,7 @@ import { embedResult } from "./embeddedResult.js";
 import { dB, fixed, sig } from "./format.js";
 import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
-import { identityRows, qty, reportPage, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import { identityRows, qty, recordingRows, reportPage, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
 /**
@@ -90,10 +90,7 @@ ${identityRows(m, a)}
 </table>
 <h2>Record</h2>
 <table class="meta">
-${row("Recording", esc(a.input.file))}
-${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
-${row("Format", esc(a.input.layout))}
-${row("Samples", `${a.input.samples} at ${qty(sig(a.input.sampleRateHz, 6), "Hz")} = ${qty(fixed(a.input.durationS, 3), "s")}, ${a.channels.length} channel(s) analysed`)}
+${recordingRows(a)}
 </table>
 <h2>Settings and assumptions</h2>
 <table class="meta" id="settings">

@@ -115,6 +115,14 @@ export function startTimeOf(a: RecordingAnalysis): string | undefined {
 }
 
 /** The test's identity as table rows (every key given), or a line saying none was given. */
+/** The recording's rows of the "Record" table, shared by the check and psd reports. */
+export function recordingRows(a: RecordingAnalysis): string {
+  return `${row("Recording", esc(a.input.file))}
+${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
+${row("Format", esc(a.input.layout))}
+${row("Samples", `${a.input.samples} at ${qty(sig(a.input.sampleRateHz, 6), "Hz")} = ${qty(fixed(a.input.durationS, 3), "s")}, ${a.channels.length} channel(s) analysed`)}`;
+}
+
 export function identityRows(meta: TestMeta | undefined, a: RecordingAnalysis): string {
   const rows = META_LABELS.filter(([k]) => meta?.[k] !== undefined).map(([k, label]) => row(label, esc(meta![k]!)));
   const start = startTimeOf(a);
