@@ -3,7 +3,7 @@ import { channelConditionings, scaleSamples, type ChannelSetting } from "./condi
 import { InputError } from "./errors.js";
 import { normalQuantile } from "./estimate/chiSquare.js";
 import { CrossSpectrumAccumulator } from "./estimate/crossSpectrum.js";
-import { findResonances, frequencyResponse, type Resonance } from "./estimate/frequencyResponse.js";
+import { findResonances, frequencyResponse, type FrequencyResponse, type Resonance } from "./estimate/frequencyResponse.js";
 import { frequencyAxis } from "./estimate/psdEstimate.js";
 import { welchDof } from "./estimate/welchDof.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./estimate/welchOptions.js";
@@ -36,20 +36,12 @@ export interface TransferOptions extends WelchOptions {
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
 }
 
-export interface TransferOutput {
+export interface TransferOutput extends FrequencyResponse {
   name: string;
   position: number;
-  h1Magnitude: Float64Array;
   /** |H1| (1 -+ z eps), z the normal quantile of the confidence (normal approximation of the error). */
   h1Lower: Float64Array;
   h1Upper: Float64Array;
-  h2Magnitude: Float64Array;
-  phaseDeg: Float64Array;
-  coherence: Float64Array;
-  magnitudeError: Float64Array;
-  phaseErrorDeg: Float64Array;
-  coherenceError: Float64Array;
-  predictedOutputPsd: Float64Array;
   measuredOutputPsd: Float64Array;
   /** sqrt(sum P df) of each, over all lines. */
   predictedRms: number;
