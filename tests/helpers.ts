@@ -59,11 +59,6 @@ export async function cli(...argv: string[]): Promise<{ code: number; stdout: st
   return { code, stdout, stderr };
 }
 
-export const hasScipy: boolean = (() => {
-  const r = spawnSync("python3", ["-c", "import scipy.signal"], { encoding: "utf8" });
-  return r.status === 0;
-})();
-
 export function python(code: string): string {
   const r = spawnSync("python3", ["-c", code], { encoding: "utf8", maxBuffer: 1 << 28 });
   if (r.status !== 0) throw new Error(r.stderr);

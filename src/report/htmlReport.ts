@@ -9,7 +9,7 @@ import { embedResult } from "./embeddedResult.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { toleranceSummary } from "./profileText.js";
-import { identityRows, qty, recordingRows, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import { qty, reportOpening, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 
 /**
@@ -180,27 +180,17 @@ export function checkHtml(r: CheckResult, version: string, when: Date, context: 
   const p = r.profile;
   const v = VERDICT_TEXT[r.verdict];
   const m = ctx.meta;
-  const body = `<div class="verdict ${r.verdict}" id="verdict" data-verdict="${r.verdict}"><span class="word">${v.word}</span><span>${esc(v.line)}</span></div>
-<h2>Test identity</h2>
-<table class="meta" id="identity">
-${identityRows(m, a)}
-</table>
-<h2>Record</h2>
-<table class="meta">
-${recordingRows(a)}
-${row("Duration required", p.durationS !== undefined ? `${qty(sig(p.durationS, 4), "s")} (the profile's durationS): ${a.input.durationS >= p.durationS ? "met" : "NOT met"}` : "none stated by the profile")}
+  const body = `${reportOpening({
+    verdictClass: r.verdict, word: v.word, line: v.line, meta: m, a, ctx,
+    extraRecordRows: `${row("Duration required", p.durationS !== undefined ? `${qty(sig(p.durationS, 4), "s")} (the profile's durationS): ${a.input.durationS >= p.durationS ? "met" : "NOT met"}` : "none stated by the profile")}
 ${row("Profile", esc(p.file))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
 ${row("Profile range and level", `${qty(`${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)}`, "Hz")}, ${qty(sig(p.rms, 4), accelLabel(p.units))} RMS`)}
 ${row("Tolerance", esc(toleranceSummary(p)))}
 ${p.resolutionHz !== undefined ? row("Resolution required", qty(sig(p.resolutionHz, 4), "Hz")) : ""}
-${p.defaultsApplied.length ? row("Profile defaults applied", esc(p.defaultsApplied.join("; "))) : ""}
-</table>
-<h2>Settings and assumptions</h2>
-<table class="meta" id="settings">
-${settingsRows(a, ctx)}
-${r.control ? row("Control", `${esc(r.control.rule)} of ${esc(r.control.channels.join(", "))}; the other channels are monitoring channels`) : ""}
-</table>
+${p.defaultsApplied.length ? row("Profile defaults applied", esc(p.defaultsApplied.join("; "))) : ""}`,
+    extraSettingsRows: `${r.control ? row("Control", `${esc(r.control.rule)} of ${esc(r.control.channels.join(", "))}; the other channels are monitoring channels`) : ""}`,
+  })}
 ${r.control ? controlSection(r) : ""}
 ${a.channels.map((c, i) => channelSection(c, r.channels[i]!, r, i + 1, r.roles[i]!)).join("\n")}
 <h2>Decision rule</h2>

@@ -5,7 +5,7 @@ import { embedResult } from "./embeddedResult.js";
 import { dB, fixed, sig } from "./format.js";
 import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
-import { identityRows, qty, recordingRows, reportPage, row, segmentRmsLabel, settingsRows, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import { qty, reportOpening, reportPage, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
 /**
@@ -83,19 +83,7 @@ export function psdHtml(a: RecordingAnalysis, version: string, when: Date, conte
   const summary = doubts > 0
     ? `PSD of ${a.channels.length} channel(s); ${doubts} channel(s) carry doubts (see their sections): read their spectra with care.`
     : `PSD of ${a.channels.length} channel(s); no data doubts found. No profile was given, so there is no verdict.`;
-  const body = `<div class="verdict none" id="verdict" data-verdict="none"><span class="word">PSD</span><span>${esc(summary)}</span></div>
-<h2>Test identity</h2>
-<table class="meta" id="identity">
-${identityRows(m, a)}
-</table>
-<h2>Record</h2>
-<table class="meta">
-${recordingRows(a)}
-</table>
-<h2>Settings and assumptions</h2>
-<table class="meta" id="settings">
-${settingsRows(a, ctx)}
-</table>
+  const body = `${reportOpening({ verdictClass: "none", word: "PSD", line: summary, meta: m, a, ctx })}
 ${a.channels.map((c, i) => channelSection(c, a, i + 1)).join("\n")}
 <h2>Caution</h2>
 <div class="caution">A PSD describes the record as measured. It is not a compliance verdict; where it feeds a decision about people or equipment (a test level, a fixture or exciter limit) the governing standard, the lab's procedure and a qualified engineer decide.</div>

@@ -115,6 +115,32 @@ export function startTimeOf(a: RecordingAnalysis): string | undefined {
 }
 
 /** The test's identity as table rows (every key given), or a line saying none was given. */
+/**
+ * The opening of a report, the same for check and psd: the verdict box (class, word, sentence), the test
+ * identity, the "Record" table (the recording's rows, then `extraRecordRows`) and "Settings and assumptions"
+ * (`extraSettingsRows` after the shared ones).
+ */
+export function reportOpening(o: {
+  verdictClass: string; word: string; line: string; meta: TestMeta | undefined; a: RecordingAnalysis; ctx: ReportContext;
+  extraRecordRows?: string; extraSettingsRows?: string;
+}): string {
+  return `<div class="verdict ${o.verdictClass}" id="verdict" data-verdict="${o.verdictClass}"><span class="word">${o.word}</span><span>${esc(o.line)}</span></div>
+<h2>Test identity</h2>
+<table class="meta" id="identity">
+${identityRows(o.meta, o.a)}
+</table>
+<h2>Record</h2>
+<table class="meta">
+${recordingRows(o.a)}
+${o.extraRecordRows ?? ""}
+</table>
+<h2>Settings and assumptions</h2>
+<table class="meta" id="settings">
+${settingsRows(o.a, o.ctx)}
+${o.extraSettingsRows ?? ""}
+</table>`;
+}
+
 /** The recording's rows of the "Record" table, shared by the check and psd reports. */
 export function recordingRows(a: RecordingAnalysis): string {
   return `${row("Recording", esc(a.input.file))}

@@ -6,7 +6,6 @@ import { analyzeRecording } from "../../src/analyzeRecording.js";
 import { createProgress, progressEnabled } from "../../src/cli/progress.js";
 import { cli, tempDir } from "../helpers.js";
 
-const built = existsSync("dist/cli/bin.js") && existsSync("dist/read/csvParseWorker.js");
 const dir = tempDir();
 const kb = "samples/profiles/kb210-controller.json";
 const runs = ["samples/kb210-run.wav", "samples/kb210-run-resonance.wav", "samples/kb210-run-short.wav"];
@@ -51,7 +50,7 @@ describe("several recordings", () => {
     expect(r.code).toBe(2);
     expect(r.stderr).toContain("--report-dir");
   });
-  it.skipIf(!process.env.CI && (!built))("the worker pool (--jobs 2, built CLI) gives the same JSON lines as --jobs 1", () => {
+  it("the worker pool (--jobs 2, built CLI) gives the same JSON lines as --jobs 1", () => {
     const a = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "1"], { encoding: "utf8" });
     const b = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "2"], { encoding: "utf8" });
     expect(b.status).toBe(1);
@@ -59,7 +58,7 @@ describe("several recordings", () => {
   });
 });
 
-describe.skipIf(!process.env.CI && (!built))("CSV parsed on a worker thread (files of 8 MB and more, built code)", () => {
+describe("CSV parsed on a worker thread (files of 8 MB and more, built code)", () => {
   const big = join(dir, "big.csv");
   let s = "time,ax [g],ay [g]\n";
   for (let i = 0; i < 330000; i++) s += `${(i / 2048).toFixed(7)},${Math.sin(i * 0.37).toFixed(6)},${(Math.cos(i * 0.11) * 2).toFixed(6)}\n`;
@@ -122,7 +121,7 @@ describe("progress", () => {
   });
 });
 
-describe.skipIf(!process.env.CI && (!built))("batch worker limits (built code, issue #12)", () => {
+describe("batch worker limits (built code, issue #12)", () => {
   it("runBatch with a 2 MB worker heap: every recording gets one WORKER_LIMIT outcome, in order, and the batch still completes", async () => {
     const { runBatch } = await import(join(process.cwd(), "dist/cli/batch.js"));
     const got: [number, boolean, string][] = [];

@@ -6,7 +6,6 @@ import { tempDir } from "../helpers.js";
 
 // The built CLI is run as a child and sent a signal while it writes: it must exit 128 + signal number
 // (common practice, as a shell reports it) and leave neither a temporary file nor a half output.
-const built = existsSync("dist/cli/bin.js");
 const bin = join(process.cwd(), "bin/psdgate.js");
 const kb = join(process.cwd(), "samples/profiles/kb210-controller.json");
 
@@ -32,7 +31,7 @@ function interrupt(args: string[], cwd: string, signal: NodeJS.Signals, when: ()
   });
 }
 
-describe.skipIf(!built && !process.env.CI)("signals during a write (built CLI)", () => {
+describe("signals during a write (built CLI)", () => {
   for (const [signal, code] of [["SIGTERM", 143], ["SIGINT", 130]] as const) {
     it(`synth interrupted by ${signal} while its output is a temporary file: exit ${code}, no .tmp, no output`, async () => {
       const dir = tempDir();

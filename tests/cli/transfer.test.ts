@@ -1,13 +1,13 @@
 import { existsSync, readFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { cli, hasScipy, maxRelDiff, python, tempDir } from "../helpers.js";
+import { cli, maxRelDiff, python, tempDir } from "../helpers.js";
 
 const dir = tempDir();
 const sample = "samples/quarry-bend-bracket.csv";
 
 describe("psdgate transfer", () => {
-  it.skipIf(!hasScipy)("--json on the Quarry Bend survey matches scipy 1.17.1 csd/welch/coherence (numpy.loadtxt) to 1e-9: |H1|, |H2|, phase, coherence, both PSDs", async () => {
+  it("--json on the Quarry Bend survey matches scipy 1.17.1 csd/welch/coherence (numpy.loadtxt) to 1e-9: |H1|, |H2|, phase, coherence, both PSDs", async () => {
     const r = await cli("transfer", sample, "--in", "base", "--out", "tip", "--out", "clamp", "--segment", "2048", "--json");
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);

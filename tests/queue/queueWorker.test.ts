@@ -34,7 +34,7 @@ describe("transientDbError", () => {
   });
 });
 
-describe.skipIf(!url)("queue worker (in process, real PostgreSQL)", () => {
+describe.skipIf(!url && !process.env.CI)("queue worker (in process, real PostgreSQL)", () => {
   let store: QueueStore;
   beforeAll(async () => {
     store = await openQueue(dbTarget(await freshDatabase(url!), {}), { poolSize: 4, asyncCommit: true });
@@ -110,7 +110,7 @@ describe.skipIf(!url)("queue worker (in process, real PostgreSQL)", () => {
   });
 });
 
-describe.skipIf(!url || !findPostgresBin())("queue worker and a lost database connection (its own server, stopped and started)", () => {
+describe.skipIf((!url || !findPostgresBin()) && !process.env.CI)("queue worker and a lost database connection (its own server, stopped and started)", () => {
   it("database errors are said on stderr and retried with back-off; the job is done once the server is back", async () => {
     const server = await startTestServer(findPostgresBin()!);
     const store = await openQueue(dbTarget(server.url, {}), { poolSize: 3 });

@@ -94,9 +94,8 @@ describe("CsvBodyParser: the plain-row loop and the general path", () => {
 
 // The worker runs built code (dist/read/csvParseWorker.js); under vitest the source reader would parse in
 // its own thread, so these tests import the built reader.
-const built = existsSync("dist/read/csvTimeHistory.js") && existsSync("dist/read/csvParseWorker.js");
 
-describe.skipIf(!built)("CSV read on the parse worker (built code)", () => {
+describe("CSV read on the parse worker (built code)", () => {
   const dir = tempDir();
   for (const [name, tail] of [["ends with a newline", "\n"], ["last line without newline", ""], ["CRLF", "\r\n"]] as const) {
     it(`the worker's SHA-256 is the file's (${name}) and the columns equal this thread's`, async () => {
