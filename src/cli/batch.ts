@@ -4,6 +4,7 @@ import { Worker } from "node:worker_threads";
 import type { AnalysisOptions, RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { InputError } from "../errors.js";
+import { retireThread } from "../threadEnd.js";
 import type { CheckOptions, CheckResult } from "../checkRecording.js";
 
 /**
@@ -78,6 +79,7 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   let next = 0;
   let delivered = 0;
   const workers = new Set<Worker>();
+  let closing = false;
   const take = (): number | undefined => (requeued.length > 0 ? requeued.shift() : next < files.length ? next++ : undefined);
   const remaining = () => requeued.length > 0 || next < files.length;
   try {
@@ -122,7 +124,7 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
               }),
             });
           }
-          if (remaining()) start();
+          if (remaining() && !closing) start();
         };
         w.on("error", (e: Error & { code?: string }) => died(e.code === "ERR_WORKER_OUT_OF_MEMORY" ? "a worker that ran out of memory" : `a worker that failed (${e.message.split("\n")[0]})`));
         w.on("exit", (code) => died(`a worker that stopped (exit code ${code})`));
@@ -134,7 +136,9 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
       for (let k = 0; k < n; k++) start();
     });
   } finally {
-    await Promise.all([...workers].map((w) => w.terminate()));
+    // Each worker ends once idle (threadEnd.ts), not by terminate(), which can race V8 and abort the process.
+    closing = true;
+    await Promise.all([...workers].map((w) => retireThread(w)));
   }
 }
 

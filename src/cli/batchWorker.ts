@@ -1,13 +1,17 @@
 import { parentPort } from "node:worker_threads";
 import { analyzeRecording } from "../analyzeRecording.js";
 import { InputError } from "../errors.js";
+import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import type { BatchJob, BatchReply } from "./batch.js";
 
 /** One worker of the batch pool: analyses or checks one recording per message, one after another. */
 let queue: Promise<void> = Promise.resolve();
 parentPort!.on("message", (job: BatchJob) => {
+  if (isLeaveRequest(job)) return;
   queue = queue.then(() => run(job));
 });
+
+leaveWhenAsked(parentPort!, () => queue);
 
 async function run(job: BatchJob): Promise<void> {
   let reply: BatchReply;

@@ -3,6 +3,7 @@ import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { TestProfile } from "../compare/testProfile.js";
 import type { Job } from "./job.js";
+import { retireThread } from "../threadEnd.js";
 import { runJob, storedOutcome, type StoredOutcome } from "./runJob.js";
 
 export interface ThreadRequest { id: number; job: Job; root: string; reportDir?: string | undefined }
@@ -71,7 +72,8 @@ export function createJobPool(size: number, root: string, reportDir?: string): J
       }),
     close: async () => {
       closing = true;
-      await Promise.all(slots.map((s) => s.worker.terminate()));
+      // Each thread ends once idle (threadEnd.ts), not by terminate(), which can race V8 and abort the process.
+      await Promise.all(slots.map((s) => retireThread(s.worker)));
     },
   };
 }

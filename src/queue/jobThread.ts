@@ -1,4 +1,5 @@
 import { parentPort } from "node:worker_threads";
+import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { runJob, storedOutcome } from "./runJob.js";
 import type { ThreadReply, ThreadRequest } from "./jobPool.js";
@@ -7,6 +8,7 @@ import type { ThreadReply, ThreadRequest } from "./jobPool.js";
 const profiles = new Map<string, TestProfile>();
 let chain: Promise<void> = Promise.resolve();
 parentPort!.on("message", (m: ThreadRequest) => {
+  if (isLeaveRequest(m)) return;
   chain = chain.then(async () => {
     let reply: ThreadReply;
     try {
@@ -18,3 +20,4 @@ parentPort!.on("message", (m: ThreadRequest) => {
     parentPort!.postMessage(reply);
   });
 });
+leaveWhenAsked(parentPort!, () => chain);

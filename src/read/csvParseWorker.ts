@@ -1,5 +1,6 @@
 import { parentPort } from "node:worker_threads";
 import { InputError } from "../errors.js";
+import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import { columnPool, pieceBuffers } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
 
@@ -13,11 +14,14 @@ const columns = columnPool();
 let credits = IN_FLIGHT;
 let wake: (() => void) | undefined;
 parentPort!.on("message", (m: { job: CsvBodyJob } | { recycle: ArrayBuffer[] }) => {
+  if (isLeaveRequest(m)) return;
   if ("job" in m) return run(m.job);
   columns.give(m.recycle);
   credits++;
   wake?.();
 });
+
+leaveWhenAsked(parentPort!);
 
 /** The reader starts this worker before it has sniffed the file; the job comes once it has. */
 function run(job: CsvBodyJob): void {

@@ -4,6 +4,7 @@ import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import { InputError, quoted } from "../errors.js";
+import { retireThread } from "../threadEnd.js";
 import { parseUnitSpec, parseVoltUnit } from "../units.js";
 import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
@@ -467,7 +468,7 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
   worker.ref();
   worker.postMessage({ job });
   try {
-    return await new Promise<ReadSummary>((resolve, reject) => {
+    const summary = await new Promise<ReadSummary>((resolve, reject) => {
       void bodyWorker.ended.then(reject);
       worker.on("message", (m: WorkerReply) => {
         if ("piece" in m) {
@@ -486,8 +487,13 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
         else reject(new Error(m.internal));
       });
     });
-  } finally {
+    // A pass that ended leaves the thread idle: it ends on its own (threadEnd.ts), without holding the
+    // process up. A pass that failed (or was cut short here because the sink threw) is terminated.
+    await retireThread(worker, { wait: false });
+    return summary;
+  } catch (e) {
     await worker.terminate();
+    throw e;
   }
 }
 
