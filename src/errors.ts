@@ -97,3 +97,33 @@ export function quoted(value: string, max = 40): string {
 }
 
 export const EXIT = { ok: 0, fail: 1, input: 2, inconclusive: 3, internal: 70 } as const;
+
+/**
+ * An error as it crosses a thread or a process (postMessage, the job queue): plain data that a
+ * structured clone or JSON keeps whole. An input error keeps its code and details, so the other side
+ * rebuilds the same InputError (same message); anything else is INTERNAL, with its message and stack.
+ */
+export interface WireError {
+  code: ErrorCode;
+  /** The message as the error gave it: what is printed and stored. */
+  message: string;
+  /** An input error's details (absent for an internal error). */
+  details?: InputErrorDetails | undefined;
+  /** An internal error's stack, where it had one. */
+  stack?: string | undefined;
+}
+
+/** The wire form of anything thrown. */
+export function errorToWire(e: unknown): WireError {
+  if (e instanceof InputError) return { code: e.code, message: e.message, details: e.details };
+  if (e instanceof Error) return { code: "INTERNAL", message: e.message, stack: e.stack };
+  return { code: "INTERNAL", message: String(e) };
+}
+
+/** The error a wire form stands for: the InputError it was made from, or an internal Error with its message and stack. */
+export function errorFromWire(w: WireError): Error {
+  if (w.details !== undefined) return new InputError(w.code, w.details);
+  const e = new Error(w.message);
+  if (w.stack !== undefined) e.stack = w.stack;
+  return e;
+}

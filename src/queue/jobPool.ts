@@ -2,12 +2,14 @@ import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { TestProfile } from "../compare/testProfile.js";
+import { errorFromWire, errorToWire, type WireError } from "../errors.js";
 import type { Job } from "./job.js";
 import { retireThread } from "../threadEnd.js";
 import { runJob, storedOutcome, type StoredOutcome } from "./runJob.js";
 
 export interface ThreadRequest { id: number; job: Job; root: string; reportDir?: string | undefined }
-export type ThreadReply = { id: number; outcome: StoredOutcome } | { id: number; internal: string };
+/** A job's outcome, or the internal error it ended on (retried by the queue). */
+export type ThreadReply = { id: number; outcome: StoredOutcome } | { id: number; crash: WireError };
 
 /** An internal failure of a job (a bug, a crashed thread): retried by the queue, unlike an input error. */
 export class JobCrash extends Error {}
@@ -30,7 +32,7 @@ export function createJobPool(size: number, root: string, reportDir?: string): J
     let chain: Promise<unknown> = Promise.resolve();
     return {
       run: (job) => {
-        const p = chain.then(() => runJob(job, { root, profiles, reportDir }).then(storedOutcome, (e: unknown) => Promise.reject(new JobCrash((e as Error)?.message ?? String(e)))));
+        const p = chain.then(() => runJob(job, { root, profiles, reportDir }).then(storedOutcome, (e: unknown) => Promise.reject(new JobCrash(errorToWire(e).message))));
         chain = p.catch(() => undefined);
         return p;
       },
@@ -46,7 +48,7 @@ export function createJobPool(size: number, root: string, reportDir?: string): J
       const p = slot.pending;
       slot.pending = undefined;
       if ("outcome" in m) p?.resolve(m.outcome);
-      else p?.reject(new JobCrash(m.internal));
+      else p?.reject(new JobCrash(errorFromWire(m.crash).message));
     });
     // A thread that dies (out of memory, a crash in native code) fails its job and is replaced.
     const died = (e: Error) => {

@@ -1,4 +1,5 @@
 import { parentPort } from "node:worker_threads";
+import { errorToWire } from "../errors.js";
 import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { runJob, storedOutcome } from "./runJob.js";
@@ -15,7 +16,7 @@ parentPort!.on("message", (m: ThreadRequest) => {
       // The line goes back as text: one stringify here instead of a structured clone and a stringify there.
       reply = { id: m.id, outcome: storedOutcome(await runJob(m.job, { root: m.root, profiles, reportDir: m.reportDir })) };
     } catch (e) {
-      reply = { id: m.id, internal: (e as Error)?.message ?? String(e) };
+      reply = { id: m.id, crash: errorToWire(e) };
     }
     parentPort!.postMessage(reply);
   });

@@ -1,3 +1,4 @@
+import { errorToWire, InputError } from "../errors.js";
 import { errorLine } from "./runJob.js";
 import { QUEUE_NAME, type QueueStore } from "./queueStore.js";
 import type { KeyFigures } from "./runJob.js";
@@ -67,7 +68,7 @@ export async function* queueResults(store: QueueStore, since: Date | undefined):
   }
   const lost = await store.pool.query<{ data: { file: string; kind: string }; retry_count: number; completed_on: Date }>(`${LOST} AND ($2::timestamptz IS NULL OR f.completed_on > $2) ORDER BY f.completed_on`, [QUEUE_NAME, since ?? null]);
   for (const r of lost.rows) {
-    const error = { code: "JOB_LOST", message: `${r.data.file}: expected a worker to finish the job, received no answer on any of ${r.retry_count + 1} attempts (each expired) [JOB_LOST]` };
+    const error = errorToWire(new InputError("JOB_LOST", { file: r.data.file, expected: "a worker to finish the job", received: `no answer on any of ${r.retry_count + 1} attempts (each expired)` }));
     yield { path: r.data.file, kind: r.data.kind, outcome: "failed", verdict: null, errorCode: error.code, figures: null, line: errorLine(r.data.file, error), finishedOn: r.completed_on };
   }
 }

@@ -1,5 +1,6 @@
 import type PgBoss from "pg-boss";
 import { VERSION } from "../version.js";
+import type { WireError } from "../errors.js";
 import { redact } from "./connection.js";
 import { settingsDigest, type Job } from "./job.js";
 import { JobCrash, type JobPool } from "./jobPool.js";
@@ -164,7 +165,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
       const attempt = job.retryCount + 1;
       const attempts = job.retryLimit + 1;
       if (attempt >= attempts) {
-        const error = { code: "INTERNAL", message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}` };
+        const error: WireError = { code: "INTERNAL", message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}` };
         await withDb("writing a result", () => finish(job, { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error }, "fail"), true);
         summary.failed++;
         say(`psdgate: ${file}: ${error.message}; kept as failed`);

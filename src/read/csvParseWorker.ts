@@ -1,5 +1,5 @@
 import { parentPort } from "node:worker_threads";
-import { InputError } from "../errors.js";
+import { errorToWire } from "../errors.js";
 import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import { columnPool, pieceBuffers } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
@@ -33,9 +33,6 @@ function run(job: CsvBodyJob): void {
     parentPort!.postMessage({ piece, bytes }, transfer);
   }, columns).then(
     (done) => parentPort!.postMessage({ done }),
-    (e: unknown) => {
-      if (e instanceof InputError) parentPort!.postMessage({ inputError: { code: e.code, details: e.details } });
-      else parentPort!.postMessage({ internal: (e as Error)?.stack ?? String(e) });
-    },
+    (e: unknown) => parentPort!.postMessage({ error: errorToWire(e) }),
   );
 }

@@ -3,7 +3,7 @@ import { open, stat } from "node:fs/promises";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import { InputError, quoted } from "../errors.js";
+import { errorFromWire, InputError, quoted, type WireError } from "../errors.js";
 import { retireThread } from "../threadEnd.js";
 import { parseUnitSpec, parseVoltUnit } from "../units.js";
 import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
@@ -483,8 +483,7 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
           const bufs = pieceBuffers(m.piece);
           worker.postMessage({ recycle: bufs }, bufs);
         } else if ("done" in m) resolve(m.done);
-        else if ("inputError" in m) reject(new InputError(m.inputError.code, m.inputError.details));
-        else reject(new Error(m.internal));
+        else reject(errorFromWire(m.error));
       });
     });
     // A pass that ended leaves the thread idle: it ends on its own (threadEnd.ts), without holding the
@@ -500,5 +499,4 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
 type WorkerReply =
   | { piece: CsvPiece; bytes: number }
   | { done: ReadSummary }
-  | { inputError: { code: InputError["code"]; details: InputError["details"] } }
-  | { internal: string };
+  | { error: WireError };
