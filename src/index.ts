@@ -1,7 +1,7 @@
 // The public library API of psdgate, one name per line.
 export { analyzeRecording, analyzeSource, selectChannels, clippingHintCount, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
 export { checkRecording, loadProfile, combineSpectra, spectrumOf, CONTROL_RULES, type CheckResult, type CheckOptions, type ControlRule } from "./checkRecording.js";
-export { InputError, formatInputError, EXIT, type ErrorPlace, type InputErrorDetails } from "./errors.js";
+export { InputError, formatInputError, EXIT, errorToWire, errorFromWire, type ErrorPlace, type InputErrorDetails, type WireError } from "./errors.js";
 export { STANDARD_GRAVITY_M_PER_S2, INCH_M, FOOT_M, accelFactor, parseUnitSpec, parseSensitivity, type AccelUnit, type UnitSpec } from "./units.js";
 export { openTimeHistory } from "./read/openTimeHistory.js";
 export { openCsvTimeHistory, type CsvReadOptions } from "./read/csvTimeHistory.js";
@@ -63,5 +63,6 @@ export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sou
 export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
 export { transferHtml } from "./report/transferHtml.js";
 export { responseJson, responseText } from "./report/responseReport.js";
+export { runAnalysis, type AnalysisJob, type AnalysisResult } from "./runAnalysis.js";
 export { settingsDigest, type Job } from "./queue/job.js";
 export { runJob, type JobOutcome, type JobContext, type KeyFigures } from "./queue/runJob.js";

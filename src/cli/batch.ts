@@ -1,35 +1,34 @@
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import type { AnalysisOptions, RecordingAnalysis } from "../analyzeRecording.js";
+import type { RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
-import { InputError } from "../errors.js";
+import { errorFromWire, errorToWire, InputError, type WireError } from "../errors.js";
 import { retireThread } from "../threadEnd.js";
 import type { CheckOptions, CheckResult } from "../checkRecording.js";
+import type { AnalysisJob } from "../runAnalysis.js";
 
-/**
- * Runs one analysis per recording on a pool of worker threads (node:worker_threads: one message
- * per job, nothing more is needed), and hands the outcomes back in input order as each becomes
- * available. With one job, or where the built worker is missing (tests run the sources), it runs
- * in this thread.
- */
+/** One recording of a batch, as a worker gets it: the job as data (its profile loaded) and its place. */
 export interface BatchJob {
   id: number;
-  file: string;
-  options: Omit<CheckOptions, "onProgress">;
-  profile?: TestProfile | undefined;
+  job: AnalysisJob;
 }
 
 export type BatchReply =
   | { id: number; result: RecordingAnalysis | CheckResult }
-  | { id: number; inputError: { code: InputError["code"]; details: InputError["details"] } }
-  | { id: number; internal: string };
+  | { id: number; error: WireError };
 
 /** `internal` marks an error that is psdgate's own fault (exit 70), not the input's. */
 export type Outcome<T> = { file: string; ok: true; result: T } | { file: string; ok: false; error: InputError; internal?: boolean };
 
 const WORKER = new URL("./batchWorker.js", import.meta.url);
 
+/**
+ * Runs one analysis per recording on a pool of worker threads (node:worker_threads: one message
+ * per job, nothing more is needed), and hands the outcomes back in input order as each becomes
+ * available. With one job, or where the built worker is missing (tests run the sources), it runs
+ * in this thread. Either way each recording is a job (runAnalysis.ts) run by the one dispatcher.
+ */
 export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   files: string[], options: Omit<CheckOptions, "onProgress">, profile: TestProfile | undefined, jobs: number,
   onOutcome: (o: Outcome<T>, index: number) => void, onProgress?: (bytesDone: number) => void,
@@ -38,6 +37,10 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   const useWorkers = jobs > 1 && files.length > 1 && existsSync(fileURLToPath(WORKER));
   // A batch is parallel across files only: one thread per recording, so --jobs says how many cores it uses.
   if (files.length > 1) options = { ...options, csv: { ...options.csv, parseWorkers: 0 } };
+  const jobOf = (file: string): AnalysisJob => ({ kind: profile === undefined ? "psd" : "check", file, options, profile });
+  // An error from either path becomes the recording's outcome the same way.
+  const failed = (file: string, e: Error): Outcome<T> =>
+    e instanceof InputError ? { file, ok: false, error: e } : { file, ok: false, internal: true, error: internalError(file, e.message) };
   const outcomes: (Outcome<T> | undefined)[] = new Array(files.length);
   let nextOut = 0;
   const deliver = (i: number, o: Outcome<T>) => {
@@ -58,16 +61,16 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   };
 
   if (!useWorkers) {
+    // The analysis modules load on the first job, not with this module: with workers this thread needs
+    // none of them, and the pool starts sooner (start-up is part of every batch).
+    const { runAnalysis } = await import("../runAnalysis.js");
     for (let i = 0; i < files.length; i++) {
       try {
-        const opts = { ...options, onProgress: (b: number) => report(i, b) };
-        // The analysis modules load here, not with this module: with workers this thread needs none of
-        // them, and the pool starts sooner (start-up is part of every batch); zod and yaml only for check.
-        const result = (profile ? await (await import("../checkRecording.js")).checkRecording(files[i]!, profile, opts) : await (await import("../analyzeRecording.js")).analyzeRecording(files[i]!, opts)) as T;
+        const result = (await runAnalysis(jobOf(files[i]!), (b: number) => report(i, b))) as T;
         deliver(i, { file: files[i]!, ok: true, result });
       } catch (e) {
-        if (e instanceof InputError) deliver(i, { file: files[i]!, ok: false, error: e });
-        else deliver(i, { file: files[i]!, ok: false, internal: true, error: internalError(files[i]!, String((e as Error)?.message ?? e)) });
+        // The error takes the same form as one from a worker (a thrown non-Error becomes an Error).
+        deliver(i, failed(files[i]!, errorFromWire(errorToWire(e))));
       }
     }
     return;
@@ -97,15 +100,13 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
           const id = take();
           if (id === undefined) return;
           inHand.push(id);
-          w.postMessage({ id, file: files[id]!, options, profile } satisfies BatchJob);
+          w.postMessage({ id, job: jobOf(files[id]!) } satisfies BatchJob);
         };
         w.on("message", (m: BatchReply | { id: number; progress: number }) => {
           if ("progress" in m) return report(m.id, m.progress);
           inHand.splice(inHand.indexOf(m.id), 1);
           const file = files[m.id]!;
-          if ("result" in m) settle(m.id, { file, ok: true, result: m.result as T });
-          else if ("inputError" in m) settle(m.id, { file, ok: false, error: new InputError(m.inputError.code, m.inputError.details) });
-          else settle(m.id, { file, ok: false, internal: true, error: internalError(file, m.internal.split("\n")[0]!) });
+          settle(m.id, "result" in m ? { file, ok: true, result: m.result as T } : failed(file, errorFromWire(m.error)));
           send();
         });
         const died = (why: string) => {

@@ -1,28 +1,28 @@
 import { parentPort } from "node:worker_threads";
-import { analyzeRecording } from "../analyzeRecording.js";
-import { InputError } from "../errors.js";
+import { errorToWire } from "../errors.js";
+import { runAnalysis } from "../runAnalysis.js";
 import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import type { BatchJob, BatchReply } from "./batch.js";
 
-/** One worker of the batch pool: analyses or checks one recording per message, one after another. */
+/** One worker of the batch pool: runs one recording's job per message through the dispatcher, one after another. */
 let queue: Promise<void> = Promise.resolve();
-parentPort!.on("message", (job: BatchJob) => {
-  if (isLeaveRequest(job)) return;
-  queue = queue.then(() => run(job));
+parentPort!.on("message", (m: BatchJob) => {
+  if (isLeaveRequest(m)) return;
+  queue = queue.then(() => run(m));
 });
 
 leaveWhenAsked(parentPort!, () => queue);
 
-async function run(job: BatchJob): Promise<void> {
+// The PSD modules load while the worker waits for its first job (the check modules, zod and yaml,
+// only when a job needs them: worker start-up is part of every batch).
+void import("../analyzeRecording.js");
+
+async function run({ id, job }: BatchJob): Promise<void> {
   let reply: BatchReply;
   try {
-    const onProgress = (done: number, total: number) => parentPort!.postMessage({ id: job.id, progress: done, total });
-    const options = { ...job.options, onProgress };
-    // The check modules (zod, yaml) load only when a job needs them: worker start-up is part of every batch.
-    const result = job.profile ? await (await import("../checkRecording.js")).checkRecording(job.file, job.profile, options) : await analyzeRecording(job.file, options);
-    reply = { id: job.id, result };
+    reply = { id, result: await runAnalysis(job, (done, total) => parentPort!.postMessage({ id, progress: done, total })) };
   } catch (e) {
-    reply = e instanceof InputError ? { id: job.id, inputError: { code: e.code, details: e.details } } : { id: job.id, internal: (e as Error)?.stack ?? String(e) };
+    reply = { id, error: errorToWire(e) };
   }
   parentPort!.postMessage(reply);
 }

@@ -1,19 +1,17 @@
 import { createHash } from "node:crypto";
-import type { AnalysisOptions } from "../analyzeRecording.js";
+import type { AnalysisJob } from "../runAnalysis.js";
 
 /**
  * A job as data: everything a worker needs to analyse one recording, and nothing it could only get
  * from the machine that made the job. Paths are relative to the worker's root folder (`--root`), so
- * the same job means the same file on every node that mounts the same archive.
+ * the same job means the same file on every node that mounts the same archive. The dispatcher
+ * (runAnalysis.ts) runs it once runJob.ts has resolved its paths and loaded its profile.
  */
-export interface Job {
-  kind: "psd" | "check";
+export interface Job extends AnalysisJob<{ path: string; sha256: string }> {
   /** The recording, relative to the root, with forward slashes. */
   file: string;
   /** SHA-256 of the recording's bytes when the job was made; the worker refuses a changed file. */
   sha256: string;
-  /** The analysis options as resolved from the command line (no progress callback). */
-  options: Omit<AnalysisOptions, "onProgress">;
   /** The profile of a check job, by path (relative to the root) and SHA-256 of its text. */
   profile?: { path: string; sha256: string } | undefined;
 }

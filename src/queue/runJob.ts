@@ -1,8 +1,9 @@
-import { analyzeRecording, type RecordingAnalysis } from "../analyzeRecording.js";
+import type { RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
-import { InputError } from "../errors.js";
+import { errorToWire, InputError, type WireError } from "../errors.js";
 import type { CheckResult } from "../report/checkReport.js";
 import { psdJson, toolInfo } from "../report/psdJson.js";
+import { runAnalysis } from "../runAnalysis.js";
 import { VERSION } from "../version.js";
 import type { Job } from "./job.js";
 import { resolveJobPath } from "./jobPath.js";
@@ -17,12 +18,12 @@ export interface KeyFigures {
 /** What one job gave: the batch's JSON line for the recording, its verdict and key figures, or its input error. */
 export type JobOutcome =
   | { ok: true; line: Record<string, unknown>; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
-  | { ok: false; line: Record<string, unknown>; error: { code: string; message: string } };
+  | { ok: false; line: Record<string, unknown>; error: WireError };
 
 /** An outcome with its line already as JSON text: made once, in the thread that ran the job, and stored as it is. */
 export type StoredOutcome =
   | { ok: true; lineJson: string; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
-  | { ok: false; lineJson: string; error: { code: string; message: string } };
+  | { ok: false; lineJson: string; error: WireError };
 
 export function storedOutcome(o: JobOutcome): StoredOutcome {
   const lineJson = JSON.stringify(o.line);
@@ -46,7 +47,7 @@ function asJobError(e: InputError, real: string | undefined, jobPath: string): I
   return new InputError(e.code, { ...e.details, file: jobPath });
 }
 
-export function errorLine(file: string, e: { code: string; message: string }): Record<string, unknown> {
+export function errorLine(file: string, e: Pick<WireError, "code" | "message">): Record<string, unknown> {
   return { tool: toolInfo(VERSION), input: { file }, error: { code: e.code, message: e.message } };
 }
 
@@ -61,28 +62,27 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
     real = await resolveJobPath(ctx.root, job.file, "recording");
     // One thread per job: the queue's parallelism is --jobs, as in the batch.
     const options = { ...job.options, csv: { ...job.options.csv, parseWorkers: 0 } };
-    if (job.kind === "psd") {
-      const a = await analyzeRecording(real, options);
-      sameRecording(a, job);
-      const line = psdJson(a, VERSION);
+    // A check's profile is loaded (and held to its SHA-256) here; the dispatcher refuses a check without one.
+    const check = job.kind === "check";
+    const profile = check && job.profile !== undefined ? await profileFor(job.profile, ctx) : undefined;
+    const r = await runAnalysis({ kind: job.kind, file: real, profile, options: check ? { ...options, histogram: ctx.reportDir !== undefined } : options });
+    if (!("verdict" in r)) {
+      sameRecording(r, job);
+      const line = psdJson(r, VERSION);
       line.input.file = job.file;
-      return { ok: true, line, verdict: null, figures: figuresOf(a, undefined) };
+      return { ok: true, line, verdict: null, figures: figuresOf(r, undefined) };
     }
-    if (job.profile === undefined) throw new InputError("JOB_INVALID", { file: job.file, expected: "a check job with a profile", received: "none" });
-    const profile = await profileFor(job.profile, ctx);
-    const { checkRecording } = await import("../checkRecording.js");
-    const { checkJson } = await import("../report/checkReport.js");
-    const r = await checkRecording(real, profile, { ...options, histogram: ctx.reportDir !== undefined });
     sameRecording(r.analysis, job);
+    const { checkJson } = await import("../report/checkReport.js");
     const line = checkJson(r, VERSION);
     line.input.file = job.file;
-    line.profile.file = job.profile.path;
+    line.profile.file = job.profile!.path;
     const report = ctx.reportDir === undefined ? undefined : await writeReport(ctx.reportDir, job, r, real);
     return { ok: true, line, verdict: r.verdict, figures: figuresOf(r.analysis, r), report };
   } catch (e) {
     if (!(e instanceof InputError)) throw e;
     const err = asJobError(e, real, job.file);
-    return { ok: false, line: errorLine(job.file, err), error: { code: err.code, message: err.message } };
+    return { ok: false, line: errorLine(job.file, err), error: errorToWire(err) };
   }
 }
 

@@ -5,6 +5,7 @@ import { analyzeRecording } from "../../src/analyzeRecording.js";
 import { checkRecording, loadProfile } from "../../src/checkRecording.js";
 import { checkJson } from "../../src/report/checkReport.js";
 import { psdJson } from "../../src/report/psdJson.js";
+import { errorFromWire, InputError } from "../../src/errors.js";
 import { VERSION } from "../../src/version.js";
 import type { Job } from "../../src/queue/job.js";
 import { runJob } from "../../src/queue/runJob.js";
@@ -58,7 +59,12 @@ describe("runJob", () => {
     if (!o.ok) {
       expect(o.error.code).toBe("CSV_NOT_A_NUMBER");
       expect(o.error.message).toMatch(/^runs\/bad\.csv:3:2 \(ax\): expected a number/);
-      expect(o.line).toEqual({ tool: { name: "psdgate", version: VERSION }, input: { file: "runs/bad.csv" }, error: o.error });
+      expect(o.line).toEqual({ tool: { name: "psdgate", version: VERSION }, input: { file: "runs/bad.csv" }, error: { code: o.error.code, message: o.error.message } });
+      // The outcome carries the error in its wire form: the same InputError rebuilds from it on the other side.
+      expect(o.error.details).toMatchObject({ file: "runs/bad.csv", line: 3, column: 2, field: "ax" });
+      const back = errorFromWire(o.error);
+      expect(back).toBeInstanceOf(InputError);
+      expect([(back as InputError).code, back.message]).toEqual([o.error.code, o.error.message]);
     }
   });
   it("a recording or profile changed since it was queued, and a path out of the root, are refused", async () => {
