@@ -16,7 +16,7 @@ import type { CsvReadOptions } from "./read/csvTimeHistory.js";
 import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
 import { isoDateTime, parseDateTimeText } from "./read/dateTimeStamp.js";
 import { openTimeHistory } from "./read/openTimeHistory.js";
-import type { ChannelInfo, RecordingInfo, TimeHistorySource } from "./read/timeHistory.js";
+import type { RecordingInfo, TimeHistorySource } from "./read/timeHistory.js";
 import type { AccelUnit } from "./units.js";
 
 /**
@@ -263,10 +263,10 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const hi = options.fmaxHz ?? fs / 2;
     const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
     const stationarity = stationarityFinding(stretches[c]!.result(), stretchLength / fs, windowInfo.fromS);
-    const { notes, doubts } = findings(info.channels[idx]!, stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs);
+    const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs);
     const note = stationarityNote(stationarity);
-    if (note !== undefined) notes.push({ code: "NOT_STATIONARY", text: note });
-    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", text: `--to ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
+    if (note !== undefined) notes.push({ code: "NOT_STATIONARY", values: stationarityValues(stationarity), text: note });
+    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS }, text: `--to ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
       histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
@@ -337,6 +337,16 @@ export function stationarityNote(f: StationarityFinding): string | undefined {
   return `not stationary: reverse arrangements A = ${t.statistic} outside ${t.acceptAbove} < A <= ${t.acceptAtMost} (${t.n} values, ${fixedPct(t.alpha)} % test) on ${f.stretches} stretch mean squares of ${fmt(f.stretchS)} s${f.pooled > 1 ? ` pooled ${f.pooled} at a time` : ""}; the PSD averages unlike stretches${d ? `; most departing ${fmt(d.fromS)}-${fmt(d.toS)} s at ${d.levelDb >= 0 ? "+" : ""}${d.levelDb.toFixed(1)} dB from the median` : ""}`;
 }
 
+/** The numbers stationarityNote states, by name (a finding's values). */
+function stationarityValues(f: StationarityFinding): Record<string, number> {
+  const t = f.reverseArrangements!;
+  const d = f.departing[0];
+  return {
+    statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, testPercent: 100 * t.alpha, stretches: f.stretches, stretchS: f.stretchS,
+    ...(f.pooled > 1 ? { pooled: f.pooled } : {}), ...(d ? { departingFromS: d.fromS, departingToS: d.toS, departingDb: d.levelDb } : {}),
+  };
+}
+
 function fixedPct(a: number): string {
   return Number((100 * a).toPrecision(3)).toString();
 }
@@ -351,29 +361,31 @@ export function clippingHintCount(samples: number): number {
   return Math.max(3, Math.ceil(2e-5 * samples));
 }
 
-function findings(_ch: ChannelInfo, s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number) {
+/** The notes and doubts of one channel. @internal (exported for tests/findings.test.ts, which holds their values to their texts) */
+export function _channelFindings( s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number) {
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
   if (s.nonFinite > 0) {
-    doubts.push({ code: "NON_FINITE", text: `${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD` });
+    doubts.push({ code: "NON_FINITE", values: { samples: s.nonFinite, segmentsLeftOut: p.skippedSegments }, text: `${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD` });
   }
   const clip = clippingHintCount(s.count);
   if (s.atMax >= clip || s.atMin >= clip) {
-    doubts.push({ code: "CLIPPING", text: `possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}` });
+    doubts.push({ code: "CLIPPING", values: { atMax: s.atMax, max: s.max, atMin: s.atMin, min: s.min }, text: `possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}` });
   }
   // Without a spectrum (inspect) there are no segment, Parseval or amplitude-gate findings.
-  if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", text: `record of ${frames} samples is shorter than one segment of ${segment}` });
-  else if (spectrum && p.averages < 8) notes.push({ code: "FEW_AVERAGES", text: `only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)` });
-  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) notes.push({ code: "DC_OFFSET", text: `DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)` });
+  if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", values: { samples: frames, segmentLength: segment }, text: `record of ${frames} samples is shorter than one segment of ${segment}` });
+  else if (spectrum && p.averages < 8) notes.push({ code: "FEW_AVERAGES", values: { averages: p.averages, lineErrorPercent: 100 * p.randomError }, text: `only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)` });
+  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) notes.push({ code: "DC_OFFSET", values: { mean: s.mean, meanPercentOfStd: 100 * Math.abs(s.mean / s.std) }, text: `DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)` });
   if (spectrum && p.averages > 0) {
     if (!pv.ok) {
       doubts.push({
         code: "PARSEVAL_MISMATCH",
+        values: { offPercent: 100 * (pv.ratio - 1), allowedPercent: 100 * pv.tolerance },
         text: `Parseval mismatch: RMS from the PSD is ${(100 * (pv.ratio - 1)).toFixed(2)} % off the RMS of the same detrended segments (allowed ±${(100 * pv.tolerance).toPrecision(2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""})`,
       });
     }
     if (pv.belowFirstLineShare > 0.01) {
-      notes.push({ code: "BELOW_FIRST_LINE", text: `${(100 * pv.belowFirstLineShare).toFixed(1)} % of the record's mean square is slower than the first line (drift or a slow trend); the PSD leaves it out` });
+      notes.push({ code: "BELOW_FIRST_LINE", values: { sharePercent: 100 * pv.belowFirstLineShare }, text: `${(100 * pv.belowFirstLineShare).toFixed(1)} % of the record's mean square is slower than the first line (drift or a slow trend); the PSD leaves it out` });
     }
     if (s.count > 0 && s.std > 0) {
       const g = amplitudeGates(s, p, durationS);

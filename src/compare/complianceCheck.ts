@@ -448,38 +448,46 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   if (shownOut > allowanceLines) {
     fails.push({
       code: "LINES_OUTSIDE",
+      values: { lines: shownOut, judged: m, ...(allowanceLines > 0 ? { allowance: allowanceLines } : {}), falseFailPercent: percent(DECISION_RULE.falseFailRate) },
       text: `${shownOut} of ${m} lines shown outside their tolerance band${allowanceLines > 0 ? ` (the profile allows ${allowanceLines})` : ""}, beyond what chance among all lines explains (false-fail rate at most ${pct(DECISION_RULE.falseFailRate)})`,
     });
   }
-  if (shownOuter > 0) fails.push({ code: "OUTER_LIMIT", text: `${shownOuter} line(s) shown beyond the outer limits, which no line may cross` });
+  if (shownOuter > 0) fails.push({ code: "OUTER_LIMIT", values: { lines: shownOuter }, text: `${shownOuter} line(s) shown beyond the outer limits, which no line may cross` });
   if (rmsShown) {
-    fails.push({ code: "RMS_OUTSIDE", text: `RMS ${measuredRms.toPrecision(4)} is ${signed(rmsDev)} dB from the required ${requiredRms.toPrecision(4)}${top < fN ? ` (over the ${f0}–${top} Hz the record covers)` : ""}, shown outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB` });
+    fails.push({
+      code: "RMS_OUTSIDE",
+      values: { rms: measuredRms, deviationDb: rmsDev, requiredRms, ...(top < fN ? { fromHz: f0, toHz: top } : {}), upperDb: tol!.upper, lowerDb: tol!.lower },
+      text: `RMS ${measuredRms.toPrecision(4)} is ${signed(rmsDev)} dB from the required ${requiredRms.toPrecision(4)}${top < fN ? ` (over the ${f0}–${top} Hz the record covers)` : ""}, shown outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB` });
   } else if (!rmsOk) {
-    blockers.push({ code: "RMS_UNRESOLVED", text: `RMS ${signed(rmsDev)} dB is outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB as measured, but within what chance explains at ${rmsDof.toFixed(0)} DOF` });
+    blockers.push({ code: "RMS_UNRESOLVED", values: { deviationDb: rmsDev, upperDb: tol!.upper, lowerDb: tol!.lower, dof: rmsDof }, text: `RMS ${signed(rmsDev)} dB is outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB as measured, but within what chance explains at ${rmsDof.toFixed(0)} DOF` });
   }
-  if (m === 0) blockers.push({ code: "NO_LINES", text: "no spectral line of the record can be judged inside the profile's range" });
+  if (m === 0) blockers.push({ code: "NO_LINES", values: {}, text: "no spectral line of the record can be judged inside the profile's range" });
   if (required !== undefined && nu < required) {
-    blockers.push({ code: "DOF_BELOW_PROFILE", text: `degrees of freedom ${nu.toFixed(1)} below the required ${required}: record too short for the statistical accuracy the profile asks` });
+    blockers.push({ code: "DOF_BELOW_PROFILE", values: { dof: nu, requiredDof: required }, text: `degrees of freedom ${nu.toFixed(1)} below the required ${required}: record too short for the statistical accuracy the profile asks` });
   }
   if (m > 0 && nu < forPower) {
     blockers.push({
       code: "DOF_BELOW_POWER",
+      values: {
+        dof: nu, dofForPower: forPower, departureDb: DECISION_RULE.departureDb, departurePercent: percent(DECISION_RULE.departureShare), lines: m,
+        powerPercent: percent(DECISION_RULE.power), achievedPowerPercent: percent(power.least),
+      },
       text: `degrees of freedom ${nu.toFixed(1)} below the ${forPower} at which a ${DECISION_RULE.departureDb} dB departure beyond the band over ${pct(DECISION_RULE.departureShare)} of the ${m} lines would be seen with ${pct(DECISION_RULE.power)} probability (here ${pct(power.least)})`,
     });
   }
   if (fN > nyquist * (1 + 1e-12)) {
-    blockers.push({ code: "RANGE_ABOVE_RECORD", text: `the profile runs to ${fN} Hz but the record's sample rate ${sp.sampleRateHz} Hz shows only up to ${nyquist} Hz: ${unjudged.aboveRecord} line(s) of the profile cannot be seen` });
+    blockers.push({ code: "RANGE_ABOVE_RECORD", values: { profileTopHz: fN, sampleRateHz: sp.sampleRateHz, nyquistHz: nyquist, linesUnseen: unjudged.aboveRecord }, text: `the profile runs to ${fN} Hz but the record's sample rate ${sp.sampleRateHz} Hz shows only up to ${nyquist} Hz: ${unjudged.aboveRecord} line(s) of the profile cannot be seen` });
   }
   if (m > 0) {
     const gapLow = lines[0]!.frequencyHz - f0;
     const allowed = (kernel.halfWidthBins + 1) * df;
-    if (gapLow > allowed) blockers.push({ code: "RANGE_BELOW_JUDGED", text: `the first judged line is ${lines[0]!.frequencyHz} Hz, ${gapLow.toPrecision(3)} Hz above the profile's start (lines below are biased by detrending or leakage): the analysis cannot show the bottom of the range; use a finer resolution or --detrend none` });
+    if (gapLow > allowed) blockers.push({ code: "RANGE_BELOW_JUDGED", values: { firstLineHz: lines[0]!.frequencyHz, gapHz: gapLow }, text: `the first judged line is ${lines[0]!.frequencyHz} Hz, ${gapLow.toPrecision(3)} Hz above the profile's start (lines below are biased by detrending or leakage): the analysis cannot show the bottom of the range; use a finer resolution or --detrend none` });
   }
   if (profile.resolutionHz !== undefined && df > profile.resolutionHz * (1 + 1e-9)) {
-    blockers.push({ code: "RESOLUTION_COARSE", text: `line spacing ${df.toPrecision(4)} Hz is coarser than the profile's resolution ${profile.resolutionHz} Hz: narrow excursions could hide between lines` });
+    blockers.push({ code: "RESOLUTION_COARSE", values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz }, text: `line spacing ${df.toPrecision(4)} Hz is coarser than the profile's resolution ${profile.resolutionHz} Hz: narrow excursions could hide between lines` });
   }
   if (profile.durationS !== undefined && sp.durationS < profile.durationS * (1 - 1e-9)) {
-    blockers.push({ code: "DURATION_SHORT", text: `the record lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` });
+    blockers.push({ code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS }, text: `the record lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` });
   }
 
   const rule: RuleReport = {
@@ -493,7 +501,10 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   };
   const findings = [...fails, ...blockers];
   const verdict: Verdict = fails.length > 0 ? "fail" : blockers.length > 0 ? "inconclusive" : "pass";
-  if (verdict === "pass") findings.push({ code: "PASS", text: `no line and not the RMS shown outside tolerance across ${m} lines, with the power to see a ${DECISION_RULE.departureDb} dB departure (${pct(power.least)}); false-fail rate here ${pctSmall(rule.falseFailAtProfile)} if the PSD equals the profile` });
+  if (verdict === "pass") findings.push({
+    code: "PASS",
+    values: { lines: m, departureDb: DECISION_RULE.departureDb, powerPercent: percent(power.least), falseFailPercent: percent(rule.falseFailAtProfile) },
+    text: `no line and not the RMS shown outside tolerance across ${m} lines, with the power to see a ${DECISION_RULE.departureDb} dB departure (${pct(power.least)}); false-fail rate here ${pctSmall(rule.falseFailAtProfile)} if the PSD equals the profile` });
   return {
     channel: sp.name, verdict, reasons: findings.map((f) => f.text), findings, lines, excursions, unjudged,
     rms: { measured: measuredRms, required: requiredRms, deviationDb: rmsDev, upperDb: tol?.upper, lowerDb: tol?.lower, ok: rmsOk, shown: rmsShown, dof: rmsDof },
@@ -509,7 +520,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
  */
 export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelCompliance {
   if (doubts.length === 0) return c;
-  const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", text: "a failure was shown, but the data are in doubt (above), so it cannot stand as a verdict" }] : [];
+  const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {}, text: "a failure was shown, but the data are in doubt (above), so it cannot stand as a verdict" }] : [];
   const findings = [...doubts, ...c.findings.filter((f) => f.code !== "PASS"), ...note];
   return { ...c, verdict: "inconclusive", findings, reasons: findings.map((f) => f.text) };
 }
@@ -527,7 +538,12 @@ export function overallVerdict(vs: Verdict[]): Verdict {
 }
 
 function pct(x: number): string {
-  return `${Number((100 * x).toPrecision(3))} %`;
+  return `${Number(percent(x).toPrecision(3))} %`;
+}
+
+/** A share in percent, as a finding's values keep it. */
+function percent(x: number): number {
+  return 100 * x;
 }
 
 function pctSmall(x: number): string {
