@@ -113,6 +113,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
       resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
     },
     settings: settingsJson(a),
+    analysis: a.analysis,
     rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict] },
     control: r.control ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) } : null,
     channels: r.channels.map((c, i) => {
