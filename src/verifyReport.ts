@@ -51,7 +51,7 @@ export interface VerifyResult {
   compared: number;
 }
 
-const IGNORED = new Set(["input.file", "profile.file", "tool.version"]);
+const IGNORED = new Set(["input.file", "analysis.file", "profile.file", "tool.version"]);
 
 /** Every difference between a recorded and a re-computed result, by JSON path. */
 export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number } = { diffs: [], compared: 0 }) {
@@ -117,7 +117,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   }
   let inputsOk = true;
   const rec = locate(options.recording, result.input.file, report);
-  if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it with --recording)`);
+  if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`);
   else {
     const ok = sha256File(rec.path) === result.input.sha256;
     inputsOk &&= ok;
@@ -127,7 +127,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   if (doc.kind === "check") {
     if (!result.profile) return done("differs", { kind: doc.kind });
     prof = locate(options.profile, result.profile.file, report);
-    if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it with --profile)`);
+    if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`);
     else {
       const ok = sha256File(prof.path) === result.profile.sha256;
       inputsOk &&= ok;

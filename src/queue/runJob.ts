@@ -70,12 +70,14 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
       sameRecording(r, job);
       const line = psdJson(r, VERSION);
       line.input.file = job.file;
+      line.analysis = { ...line.analysis, file: job.file };
       return { ok: true, line, verdict: null, figures: figuresOf(r, undefined) };
     }
     sameRecording(r.analysis, job);
     const { checkJson } = await import("../report/checkReport.js");
     const line = checkJson(r, VERSION);
     line.input.file = job.file;
+    line.analysis = { ...line.analysis, file: job.file };
     line.profile.file = job.profile!.path;
     const report = ctx.reportDir === undefined ? undefined : await writeReport(ctx.reportDir, job, r, real);
     return { ok: true, line, verdict: r.verdict, figures: figuresOf(r.analysis, r), report };

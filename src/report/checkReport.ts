@@ -1,7 +1,6 @@
 import type { ChannelAnalysis } from "../analyzeRecording.js";
 import type { CheckResult } from "../checkRecording.js";
 import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
-import type { TestProfile } from "../compare/testProfile.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
 import { fixed, sig, signedDb } from "./format.js";
@@ -114,6 +113,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
       resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
     },
     settings: settingsJson(a),
+    analysis: a.analysis,
     rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict] },
     control: r.control ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) } : null,
     channels: r.channels.map((c, i) => {
