@@ -21,8 +21,9 @@ export interface AnalysisJob<P = TestProfile> {
 export type AnalysisResult = RecordingAnalysis | CheckResult;
 
 /**
- * The one place that chooses between a PSD and a check and calls the library for it: the batch (in
- * this thread and on its pool) and the queue's threads all run a recording through here. The modules
+ * The one place that chooses between a PSD and a check and calls the library for it: single runs
+ * (cli/psd.ts, cli/check.ts), the batch (in this thread and on its pool) and the queue's threads all
+ * run a recording through here. The modules
  * load on first use: a thread that only runs PSDs never loads the profile code (zod, yaml).
  */
 export async function runAnalysis(job: AnalysisJob & { kind: "psd" }, onProgress?: AnalysisOptions["onProgress"]): Promise<RecordingAnalysis>;

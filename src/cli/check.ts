@@ -49,7 +49,7 @@ export function registerCheck(program: Command, io: CliIo): void {
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
     .option("--csv <out>", "also write the lines judged (frequency, measured, required, deviation, limits, status, shown) to this CSV file (one recording)")
     .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string; csv?: string }, cmd: Command) => {
-      const { loadProfile, checkRecording } = await import("../checkRecording.js");
+      const { loadProfile } = await import("../checkRecording.js");
       const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
       const { checkHtml } = await import("../report/htmlReport.js");
       const { checkJson, checkText } = await import("../report/checkReport.js");
@@ -105,7 +105,8 @@ export function registerCheck(program: Command, io: CliIo): void {
         }
         throw new Exit(code);
       }
-      const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, control, onProgress }));
+      const { runAnalysis } = await import("../runAnalysis.js");
+      const r = await one(o, (onProgress) => runAnalysis({ kind: "check", file: files[0]!, profile, options: { ...analysisOptions(o), histogram: wantsReport, control } }, onProgress));
       if (o.csv !== undefined) {
         const { checkCsv } = await import("../report/checkCsv.js");
         await writeAtomic(o.csv, checkCsv(r), { inputs, force: o.force, option: "--csv" });

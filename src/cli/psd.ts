@@ -48,9 +48,9 @@ export function registerPsd(program: Command, io: CliIo): void {
       }
       if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
       if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
-      const { analyzeRecording } = await import("../analyzeRecording.js");
+      const { runAnalysis } = await import("../runAnalysis.js");
       const options = { ...analysisOptions(o), histogram: o.report !== undefined ? true : o.histogram };
-      const a = await one(o, (onProgress) => analyzeRecording(files[0]!, { ...options, onProgress }));
+      const a = await one(o, (onProgress) => runAnalysis({ kind: "psd", file: files[0]!, options }, onProgress));
       const short = recordTooShort(a);
       if (short) throw short;
       if (o.csv !== undefined) await writeAtomic(o.csv, psdCsv(a), { inputs, force: o.force, option: "--csv" });
