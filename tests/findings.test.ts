@@ -12,9 +12,9 @@ import { wavBytes } from "./wavBytes.js";
 
 /**
  * Findings, doubts and verdict reasons carry their numbers twice: in `values` for programs and in the
- * sentence for people. This file makes every finding code psdgate has (found in src/ by their
- * `code: "…", values:` literals) and holds each value to a number its text states, as the text rounds
- * it, so the two cannot drift apart.
+ * sentence for people. This file makes every finding code psdgate has (the `code: "…"` literals of
+ * the modules that make findings) and holds each value to a number its text states, as the text
+ * rounds it, so the two cannot drift apart.
  */
 
 function sources(dir: string): string[] {
@@ -24,10 +24,14 @@ function sources(dir: string): string[] {
   });
 }
 
-/** Every finding code in src/: the literal before a `values:` key. */
+/** Every finding code in src/: each `code: "…"` literal in a module that makes findings (imports findings.ts). */
 function codesInSource(): Set<string> {
   const found = new Set<string>();
-  for (const f of sources("src")) for (const m of readFileSync(f, "utf8").matchAll(/code: "([A-Z][A-Z0-9_]*)",\s*values:/g)) found.add(m[1]!);
+  for (const f of sources("src")) {
+    const text = readFileSync(f, "utf8");
+    if (!/from "\.{1,2}\/(\.\.\/)*findings\.js"/.test(text)) continue;
+    for (const m of text.matchAll(/code: "([A-Z][A-Z0-9_]*)"/g)) found.add(m[1]!);
+  }
   return found;
 }
 
