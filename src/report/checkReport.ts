@@ -5,7 +5,7 @@ import type { TestProfile } from "../compare/testProfile.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
 import { fixed, sig, signedDb } from "./format.js";
-import { toleranceSummary } from "./profileText.js";
+import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import type { TestMeta } from "../read/testMeta.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
@@ -51,6 +51,7 @@ export function checkText(r: CheckResult, version: string): string {
     `  profile    ${printable(p.file)}, sha256 ${p.sha256}`,
     `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS; tolerance ${toleranceSummary(p)}`,
     ...p.defaultsApplied.map((d) => `             default: ${d}`),
+    ...(p.provenance ? [`             profile ${printable(provenanceSummary(p)!)}`] : []),
     settingsLine(a),
     "",
     `VERDICT  ${WORD[r.verdict]}: ${VERDICT_MEANING[r.verdict]}`,
@@ -112,6 +113,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
     profile: {
       file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null,
       resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
+      provenance: p.provenance ?? null, origin: provenanceSummary(p) ?? null,
     },
     settings: settingsJson(a),
     rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict] },
