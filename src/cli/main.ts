@@ -23,6 +23,7 @@ import { createProgress, progressEnabled } from "./progress.js";
 import { Exit } from "./exit.js";
 import { registerRide } from "./ride.js";
 import { registerRespond } from "./respond.js";
+import { registerDerive } from "./derive.js";
 import { registerTransfer } from "./transfer.js";
 import { registerVerify } from "./verify.js";
 import { registerQueue } from "./queue.js";
@@ -342,7 +343,7 @@ export function buildProgram(io: CliIo): Command {
     });
 
   registerRide(program, io);
-  for (const register of [registerTransfer, registerRespond, registerQueue, registerVerify]) register(program, io);
+  for (const register of [registerTransfer, registerRespond, registerDerive, registerQueue, registerVerify]) register(program, io);
 
   return program;
 }
