@@ -159,6 +159,21 @@ function segmentsOf(points: readonly Breakpoint[]) {
   });
 }
 
+/** Mean of the lines within a factor `half` either side of f (the nearest line when none falls inside). */
+function cellMean(f: Float64Array, g: Float64Array, at: number, half: number): number {
+  let s = 0;
+  let n = 0;
+  let nearest = 0;
+  for (let k = 1; k < f.length; k++) {
+    if (Math.abs(f[k]! - at) < Math.abs(f[nearest]! - at)) nearest = k;
+    if (f[k]! >= at / half && f[k]! <= at * half) {
+      s += g[k]!;
+      n++;
+    }
+  }
+  return n > 0 ? s / n : g[nearest]!;
+}
+
 export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const q = o.q ?? DERIVE_DEFAULTS.q;
   const b = o.basquinB ?? DERIVE_DEFAULTS.basquinB;
@@ -260,9 +275,15 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   // 4. The profile: fit against the field's damage times the margin, over the test duration.
   const target = fieldFatigue.map((d) => d * margin);
   const test = { fnHz, q, durationS: o.testDurationS, sn, toSi };
-  const ref = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
-  const startLevel = target.map((d, i) => (d / ref[i]!) ** (2 / b));
-  const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevel, basquinB: b, maxBreakpoints: nMax, damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage });
+  // The inverted FDS, with the field's own mean spectrum as the reference shape: G_inv(f_n) = G_mean(f_n) (D_target / D_mean)^(2/b),
+  // D_mean the mean spectrum's damage over the test. Where the damage at f_n comes from elsewhere in the spectrum (the
+  // quasi-static response to a low-frequency peak), this keeps the level at f_n near the field's instead of loading it all there.
+  // A flat reference is the second start (the local Miles inversion); the fit keeps whichever ends with less over-test.
+  const ref = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, mean, fromHz, toHz), fromHz, toHz), test).damage;
+  const fromMean = target.map((d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b));
+  const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
+  const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
+  const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevels: [fromMean, fromFlat], basquinB: b, maxBreakpoints: nMax, damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage });
   const testSpectra = damageSpectra(powerLawSpectrum(segmentsOf(fit.points)), test);
   const testFatigue = testSpectra.damage;
   const extremeRatio = testSpectra.extreme.map((v, i) => v / fieldExtreme[i]!);

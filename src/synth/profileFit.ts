@@ -9,7 +9,7 @@
  *    sec. 14), so G_inv = G_ref (D_target / D_ref)^(2/b) for any reference spectrum G_ref and its damage D_ref.
  * 2. The upper envelope of G_inv by at most N breakpoints on the grid, on log-log axes, that minimises the
  *    summed log excess over the grid: dynamic programming over (grid point, level) with levels in 0.5 dB steps
- *    up to 6 dB above G_inv and 1 dB steps above that (exact for the discretised problem).
+ *    up to 6 dB above G_inv and coarser steps above that (exact for the discretised problem).
  * 3. The damage of that profile by the full computation; the whole profile scaled by the smallest factor
  *    that makes coverage hold everywhere (a uniform scale s multiplies every damage by exactly s^(b/2)).
  * 4. Again from a corrected target (the envelope's level times (D_target / D_test)^(2/b) at each f_n), up to
@@ -28,8 +28,8 @@ export interface ProfileFitOptions {
   fnHz: Float64Array;
   /** Damage the test must reach at each f_n (the field's, times the margin). */
   targetDamage: Float64Array;
-  /** First guess of the level at each f_n (e.g. the inverted FDS). */
-  startLevel: Float64Array;
+  /** First guesses of the level at each f_n (e.g. inverted FDS with different reference shapes); each is refined, the best fit kept. */
+  startLevels: Float64Array[];
   basquinB: number;
   maxBreakpoints: number;
   /** Damage of a candidate profile over the test duration, on the same grid (the full computation). */
@@ -51,6 +51,8 @@ export interface ProfileFit {
 }
 
 const DB = Math.log(10) / 10;
+/** Level offsets above 6 dB tried by the envelope, dB (a line far above a point is rarely the best; the final scale fixes coverage). */
+const COARSE_DB = [7, 8, 9, 10, 12, 14, 17, 20, 25, 30, 40, 50, 60, 80, 100];
 
 /** Level of a log-log broken line at f (f inside its range). */
 export function brokenLineLevel(points: readonly Breakpoint[], f: number): number {
@@ -78,7 +80,7 @@ export function upperEnvelope(x: Float64Array, y: Float64Array, maxPoints: numbe
   for (let k = 0; k < m; k++) {
     const v: number[] = [];
     for (let d = 0; d <= 6 + 1e-9; d += 0.5) v.push(y[k]! + d * DB);
-    for (let d = 7; y[k]! + (d - 1) * DB <= yMax + DB; d += 1) v.push(y[k]! + d * DB);
+    for (const d of COARSE_DB) if (y[k]! + d * DB <= yMax + 3 * DB) v.push(y[k]! + d * DB);
     if (yMax > y[k]!) v.push(yMax);
     levels.push(Float64Array.from(v));
   }
@@ -88,27 +90,33 @@ export function upperEnvelope(x: Float64Array, y: Float64Array, maxPoints: numbe
   const fromK = Array.from({ length: segs + 1 }, () => levels.map((l) => new Int32Array(l.length).fill(-1)));
   const fromA = Array.from({ length: segs + 1 }, () => levels.map((l) => new Int32Array(l.length).fill(-1)));
   for (let a = 0; a < levels[0]!.length; a++) best[0]![0]![a] = levels[0]![a]! - y[0]!;
-  for (let j = 1; j < m; j++) {
-    const lj = levels[j]!;
-    for (let b = 0; b < lj.length; b++) {
-      const vb = lj[b]!;
-      for (let i = 0; i < j; i++) {
-        const li = levels[i]!;
+  // Prefix sums of x and y, so a segment's summed excess is O(1): sum_{k=i+1..j} (va + slope (x_k - x_i) - y_k).
+  const sx = new Float64Array(m + 1);
+  const sy = new Float64Array(m + 1);
+  for (let k = 0; k < m; k++) {
+    sx[k + 1] = sx[k]! + x[k]!;
+    sy[k + 1] = sy[k]! + y[k]!;
+  }
+  // Push from (i, a), i ascending: best[.][i][.] is final once every earlier point has pushed.
+  for (let i = 0; i < m - 1; i++) {
+    const li = levels[i]!;
+    for (let a = 0; a < li.length; a++) {
+      let any = false;
+      for (let s = 0; s < segs; s++) if (best[s]![i]![a]! < Infinity) any = true;
+      if (!any) continue;
+      const va = li[a]!;
+      // The line from (x_i, va) stays on or above y_k for i < k < j iff its slope >= minSlope over those k.
+      let minSlope = -Infinity;
+      for (let j = i + 1; j < m; j++) {
+        const lj = levels[j]!;
         const dx = x[j]! - x[i]!;
-        for (let a = 0; a < li.length; a++) {
-          const va = li[a]!;
-          // Cost of the segment: excess at i+1..j; infeasible if it dips below any y between.
-          let cost = vb - y[j]!;
-          let ok = true;
-          for (let k = i + 1; k < j; k++) {
-            const v = va + ((vb - va) * (x[k]! - x[i]!)) / dx;
-            if (v < y[k]! - 1e-12) {
-              ok = false;
-              break;
-            }
-            cost += v - y[k]!;
-          }
-          if (!ok) continue;
+        const n = j - i;
+        const sumDx = sx[j + 1]! - sx[i + 1]! - n * x[i]!;
+        const sumY = sy[j + 1]! - sy[i + 1]!;
+        for (let b = 0; b < lj.length; b++) {
+          const slope = (lj[b]! - va) / dx;
+          if (slope < minSlope - 1e-12) continue;
+          const cost = n * va + slope * sumDx - sumY;
           for (let s = 1; s <= segs; s++) {
             const c = best[s - 1]![i]![a]! + cost;
             if (c < best[s]![j]![b]!) {
@@ -118,6 +126,7 @@ export function upperEnvelope(x: Float64Array, y: Float64Array, maxPoints: numbe
             }
           }
         }
+        minSlope = Math.max(minSlope, (y[j]! - va) / dx);
       }
     }
   }
@@ -185,8 +194,9 @@ function scaled(points: Breakpoint[], o: ProfileFitOptions): { points: Breakpoin
 export function fitDamageProfile(o: ProfileFitOptions): ProfileFit {
   const m = o.fnHz.length;
   const x = o.fnHz.map(Math.log);
-  let y = o.startLevel.map(Math.log);
   let bestFit: ProfileFit | undefined;
+  for (const start of o.startLevels) {
+  let y = start.map(Math.log);
   let stale = 0;
   for (let pass = 0; pass < 12 && stale < 3; pass++) {
     const env = upperEnvelope(x, y, o.maxBreakpoints);
@@ -205,6 +215,7 @@ export function fitDamageProfile(o: ProfileFitOptions): ProfileFit {
     const ny = new Float64Array(m);
     for (let k = 0; k < m; k++) ny[k] = Math.log(brokenLineLevel(raw, o.fnHz[k]!)) + (2 / o.basquinB) * Math.log(o.targetDamage[k]! / before[k]!);
     y = ny;
+  }
   }
   return bestFit!;
 }
