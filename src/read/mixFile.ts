@@ -73,7 +73,8 @@ function keyPath(path: readonly PropertyKey[]): string {
 export function parseServiceMix(doc: unknown, file: string, sha256: string, baseDir = dirname(file)): ServiceMix {
   const r = MixSchema.safeParse(doc);
   if (!r.success) {
-    const issue = r.error.issues[0]!;
+    // An unknown key first: a misspelt key (hour for hours) also leaves the right one missing, and the misspelling is the news.
+    const issue = r.error.issues.find((i) => i.code === "unrecognized_keys") ?? r.error.issues[0]!;
     if (issue.code === "unrecognized_keys") {
       throw new InputError("MIX_INVALID", { file, keyPath: keyPath([...issue.path, issue.keys[0]!]), expected: "the keys title, groups (name, hours, recordings: file, from, to)", received: `unknown key "${issue.keys[0]}"` });
     }
