@@ -1,5 +1,5 @@
 import type { DeriveResult } from "../deriveProfile.js";
-import { profileLevel } from "../compare/testProfile.js";
+import { profileLevel, profileMotion } from "../compare/testProfile.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";
 import { DAMAGE_RULE, deriveJson, EXTREME_RULE, TOLERANCE_RULE } from "./deriveReport.js";
@@ -27,6 +27,13 @@ const EXTRA_STYLE = `<style>
 .key.rec0, .key.rec1, .key.rec2, .key.rec3, .key.rec4, .key.rec5 { stroke-width: 2; }
 </style>`;
 
+/** A short legend name: the group when it has one recording, else the file's base name; at most 16 characters. */
+function legendName(x: DeriveResult["recordings"][number], r: DeriveResult): string {
+  const alone = r.recordings.filter((y) => y.group === x.group).length === 1 && r.recordings.length > 1;
+  const n = alone ? x.group : (x.file.split(/[\\/]/).pop() ?? x.file).replace(/\.[^.]*$/, "");
+  return n.length > 16 ? `${n.slice(0, 15)}…` : n;
+}
+
 export function deriveHtml(r: DeriveResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> & { outFile: string }): string {
   const ctx: ReportContext = { ...context, version, when };
   const u = accelLabel(r.units);
@@ -50,7 +57,7 @@ export function deriveHtml(r: DeriveResult, version: string, when: Date, context
   const px = Float64Array.from(p.breakpoints.map((b) => b.hz));
   const py = px.map((x) => profileLevel(p, x));
   const psdSeries: Series[] = [
-    ...r.recordings.slice(0, 6).map((x, i) => ({ id: `field-${i}`, label: x.file.split(/[\\/]/).pop() ?? x.file, x: f, y: x.psd, className: `rec${i}` })),
+    ...r.recordings.slice(0, 6).map((x, i) => ({ id: `field-${i}`, label: legendName(x, r), x: f, y: x.psd, className: `rec${i}` })),
     { id: "envelope", label: "envelope", x: f, y: r.envelope, className: "envelope" },
     { id: "mean", label: "mean", x: f, y: r.mean, className: "mean" },
     ...(tl ? [{ id: "tolerance-limit", label: `P${fixed(100 * tl.coverage, 0)}/${fixed(100 * tl.confidence, 0)} limit`, x: f, y: tl.limit, className: "tlimit" }] : []),
@@ -70,16 +77,17 @@ export function deriveHtml(r: DeriveResult, version: string, when: Date, context
   const ersTop = maxOf(r.fieldExtreme, r.testExtreme);
   const ersBottom = minOf(r.fieldExtreme, r.testExtreme);
   const ersPlot = svgPlot({
-    id: "ers", title: "Extreme-response spectra: expected largest response peak, field over the life, test over its duration",
+    id: "ers", title: "Extreme-response spectra: expected largest peak, field over its life, test over its duration",
     xLabel: "natural frequency (Hz)", yLabel: `largest peak (${u})`, xDomain: [lo, hi], yDomain: [ersBottom / 1.5, ersTop * 1.5], yLog: true, xMarks: [lo, hi],
     series: [{ id: "field-ers", label: "field", x: r.fnHz, y: r.fieldExtreme, className: "field" }, { id: "test-ers", label: "test", x: r.fnHz, y: r.testExtreme, className: "test" }],
   });
   const over = Float64Array.from(r.fnHz.filter((_, i) => r.extremeRatio[i]! > r.extremeLimit));
   const fdsRatio = r.testFatigue.map((v, i) => v / r.fieldFatigue[i]!);
   const ratioPlot = svgPlot({
-    id: "ratios", title: `Test over field: extreme response (limit ×${r.extremeLimit} dashed) and damage^(1/b) (1 = just covered)`,
-    xLabel: "natural frequency (Hz)", yLabel: "ratio", xDomain: [lo, hi], yDomain: [Math.min(0.9, minOf(r.extremeRatio) * 0.95), Math.max(r.extremeLimit, maxOf(r.extremeRatio)) * 1.1], yLog: false, xMarks: [lo, hi], rules: [1, r.extremeLimit], height: 280,
+    id: "ratios", title: "Test over field: extreme response, and damage^(1/b) (1 = just covered)",
+    xLabel: "natural frequency (Hz)", yLabel: "ratio", xDomain: [lo, hi], yDomain: [Math.min(0.9, minOf(r.extremeRatio) * 0.95), Math.max(r.extremeLimit, maxOf(r.extremeRatio)) * 1.1], yLog: false, xMarks: [lo, hi], height: 280,
     series: [
+      { id: "extreme-limit", label: `limit ×${r.extremeLimit}`, x: Float64Array.of(lo, hi), y: Float64Array.of(r.extremeLimit, r.extremeLimit), className: "limit" },
       { id: "extreme-ratio", label: "test ERS / field ERS", x: r.fnHz, y: r.extremeRatio, className: "ratio" },
       { id: "damage-ratio", label: "(test FDS / field FDS)^(1/b)", x: r.fnHz, y: fdsRatio.map((v) => v ** (1 / r.sn.basquinB)), className: "test" },
       { id: "extreme-over", label: over.length ? "above the limit" : "", x: over, y: over.map((x) => r.extremeRatio[[...r.fnHz].indexOf(x)]!), className: "over", markers: true },
@@ -102,6 +110,7 @@ ${row("Profile file", esc(context.outFile))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
 ${row("Title", esc(d.title))}
 ${row("Range and level", `${qty(`${sig(lo)}–${sig(hi)}`, "Hz")}, ${qty(sig(p.rms, 4), u)} RMS, ${qty(sig(r.testDurationS, 6), "s")}`)}
+${row("Velocity and stroke", (() => { const m = profileMotion(p); return `${qty(sig(m.velocityRms * 1000, 4), "mm/s")} RMS velocity, ${qty(sig(m.displacementRms * 1000, 4), "mm")} RMS displacement, ${qty(sig(m.displacementPeakToPeak * 1000, 4), "mm")} peak-to-peak estimate (6 × RMS)`; })())}
 ${row("Tolerance written", `±${d.tolerance.bands[0]!.upperDb} dB band, RMS ±${d.tolerance.rmsPercent} %, at least ${d.minDof} DOF, ${sig(d.resolutionHz!, 4)} Hz lines (defaults: ±3 dB, ±10 %, 120 DOF as recalled for IEC 60068-2-64 and MIL-STD-810H, from memory; the field's line spacing)`)}
 ${row("Coverage", `test FDS / field FDS from ${fixed(r.fit.minRatio, 4)} (at ${sig(r.fit.minRatioHz, 4)} Hz) to ${fixed(r.fit.maxRatio, 3)}, median ${fixed(r.fit.medianRatio, 3)}; damage margin ×${r.margin}`)}
 ${row("Time compression", `flat case G_test = G_field (T_field / T_test)^(2/b) = ×${sig(r.compression.flatFactor, 4)} in level; this profile ${sig(p.rms, 4)} ${esc(u)} RMS against the mean field's ${sig(r.compression.meanFieldRms, 4)} ${esc(u)} (×${sig(r.compression.rmsRatio ** 2, 4)} in power)`)}
