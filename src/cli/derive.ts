@@ -2,7 +2,7 @@ import type { Command } from "commander";
 import { InputError } from "../errors.js";
 import { expandFiles } from "./fileList.js";
 import type { CliIo } from "./main.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, durationOption, givenOptions, numberOption, type ParsedCommon } from "./options.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, durationOption, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
 
 interface DeriveFlags extends ParsedCommon {
   mix?: string;
@@ -84,18 +84,19 @@ export function registerDerive(program: Command, io: CliIo): void {
       checkOutputPath(o.out, read, o.force, "--out");
       if (o.report !== undefined) checkOutputPath(o.report, [...read, o.out], o.force, "--report");
       const created = new Date();
-      const r = await deriveProfile({
+      const settings = {
         ...inputs, testDurationS: o.testDuration, analysis: analysisOptions(o), channel: o.channel?.[0], q: o.q, basquinB: o.basquin, maxBreakpoints: o.breakpoints, margin: o.margin,
         fromHz: o.fmin, toHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, confidence: o.toleranceConfidence, extremeLimit: o.extremeLimit,
-        bandDb: o.bandDb, rmsPercent: o.rmsPercent, minDof: o.minDof, version: VERSION, created, outFile: o.out,
-      });
+        bandDb: o.bandDb, rmsPercent: o.rmsPercent, minDof: o.minDof, outFile: o.out,
+      };
+      const r = await deriveProfile({ ...settings, version: VERSION, created });
       const text = profileDocumentText(r.document, o.out);
       // The profile as `check` will read it from the file written (its SHA-256 is the file's).
       r.profile = parseProfile(text, o.out);
       await writeAtomic(o.out, text, { inputs: read, force: o.force, option: "--out" });
       if (o.report !== undefined) {
         const { deriveHtml } = await import("../report/deriveHtml.js");
-        await writeAtomic(o.report, deriveHtml(r, VERSION, created, { given: givenOptions(cmd), outFile: o.out }), { inputs: [...read, o.out], force: o.force, option: "--report" });
+        await writeAtomic(o.report, deriveHtml(r, VERSION, created, { given: givenOptions(cmd), outFile: o.out, rerun: rerunOptions(settings) }), { inputs: [...read, o.out], force: o.force, option: "--report" });
       }
       io.stdout(o.json ? JSON.stringify(deriveJson(r, VERSION)) + "\n" : deriveText(r, VERSION, o.out));
     });

@@ -156,5 +156,5 @@ ${signOff(`<strong>Derived profile</strong>: ${esc(summary)}`, [
     title: `Derived test profile: ${d.title}`, verdictClass: "none", verdictWord: DERIVE_WORD, recordingSha256: p.sha256, recordingName: name,
     kindLine: "Field-to-lab derivation record", body, hashLabel: "profile",
   }, ctx);
-  return embedResult(page, { kind: "derive", created: when.toISOString(), given: ctx.given ?? [], result: deriveJson(r, version) });
+  return embedResult(page, { kind: "derive", created: when.toISOString(), given: ctx.given ?? [], rerun: ctx.rerun ?? null, result: deriveJson(r, version) });
 }

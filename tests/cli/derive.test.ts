@@ -74,6 +74,10 @@ describe("psdgate derive", () => {
     expect(h).toMatch(/governing test standard's tailoring process and a qualified engineer decide/);
     expect(h).not.toMatch(/<script/i);
     expect(h).toContain(JSON.parse(readFileSync(out, "utf8")).provenance.inputs[0].sha256);
+    // verify re-runs the derivation from the recorded settings on the recordings it finds by SHA-256.
+    const v = await cli("verify", rep);
+    expect(v.stdout).toMatch(/rerun +\d+ numbers of the derivation reproduced/);
+    expect(v.code).toBe(0);
   });
 
   it("two recordings: no tolerance limit, said so", async () => {
