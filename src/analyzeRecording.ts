@@ -286,6 +286,19 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
 }
 
 /**
+ * A record too short for one Welch segment in some channel has no PSD: an input error (RECORD_TOO_SHORT),
+ * not a result. The analysis itself returns, so a batch can still print the recording's other figures
+ * beside the error; every command that needs a spectrum raises this.
+ */
+export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
+  if (!a.channels.some((c) => c.psd.averages === 0)) return undefined;
+  return new InputError("RECORD_TOO_SHORT", {
+    file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.input.samples} samples`,
+    hint: "use a shorter --segment or a coarser --resolution",
+  });
+}
+
+/**
  * --from/--to given as clock times (`fromClock`, `toClock`: an ISO 8601 date-time, or a time of day on the
  * first stamp's day) turned into seconds from the first sample, for a record with date-time stamps.
  */

@@ -1,5 +1,5 @@
 import { open } from "node:fs/promises";
-import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
+import { analyzeRecording, recordTooShort, type AnalysisOptions } from "./analyzeRecording.js";
 import { loadProfile } from "./checkRecording.js";
 import { InputError, quoted } from "./errors.js";
 import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "./estimate/fatigueDamage.js";
@@ -112,9 +112,8 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, op
   }
   const a = await analyzeRecording(file, { ...o, channels: o.channel === undefined ? ["1"] : [o.channel], fminHz: undefined, fmaxHz: undefined });
   const c = a.channels[0]!;
-  if (c.psd.averages === 0) {
-    throw new InputError("RECORD_TOO_SHORT", { file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.input.samples} samples`, hint: "use a shorter --segment or a coarser --resolution" });
-  }
+  const short = recordTooShort(a);
+  if (short) throw short;
   const { lo, hi } = lineBand(file, c.psd.frequencyHz, o);
   return {
     kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi), durationS: a.input.durationS,

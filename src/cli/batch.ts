@@ -1,7 +1,7 @@
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import type { AnalysisOptions, RecordingAnalysis } from "../analyzeRecording.js";
+import type { RecordingAnalysis } from "../analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { InputError } from "../errors.js";
 import { retireThread } from "../threadEnd.js";

@@ -298,7 +298,6 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const outer = profile.outerBands !== undefined;
   const widths = allowanceLines === 0 ? stretchWidths(m) : [];
   const levels = ruleLevels(m, outer, k);
-  const lineAlpha = DECISION_RULE.lines - (outer ? DECISION_RULE.outer : 0);
   // Single lines get the line alpha less the stretches' share; each stretch width an equal part of that share.
   const singleShare = widths.length > 0 ? 1 - STRETCH_SHARE : 1;
   const upLevel = levels.upper.lineTest * singleShare;

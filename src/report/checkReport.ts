@@ -1,7 +1,6 @@
 import type { ChannelAnalysis } from "../analyzeRecording.js";
 import type { CheckResult } from "../checkRecording.js";
 import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
-import type { TestProfile } from "../compare/testProfile.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
 import { fixed, sig, signedDb } from "./format.js";

@@ -1,4 +1,3 @@
-import pg from "pg";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { dbTarget } from "../../src/queue/connection.js";
 import { addJob } from "../../src/queue/enqueue.js";

@@ -1,0 +1,117 @@
+import { mkdir } from "node:fs/promises";
+import { basename, join } from "node:path";
+import type { Command } from "commander";
+import type { CheckResult } from "../checkRecording.js";
+import { EXIT, InputError } from "../errors.js";
+import { fixed, sig, signedDb } from "../report/format.js";
+import { reportFileNames } from "../report/reportNames.js";
+import { RULE_SUMMARY, VERDICT_MEANING } from "../report/ruleText.js";
+import { checkOutputPath, writeAtomic } from "../report/writeAtomic.js";
+import { fsReason } from "../read/regularFile.js";
+import { accelLabel } from "../units.js";
+import { VERSION } from "../version.js";
+import { Exit } from "./exit.js";
+import { expandFiles } from "./fileList.js";
+import type { CliIo } from "./main.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, choice, givenOptions, rerunOptions, type ParsedCommon } from "./options.js";
+import { addBatchOptions, runnerFor, type BatchFlags } from "./runner.js";
+
+/** Text folded at 100 columns, each line after the first indented by `indent` plus two spaces. */
+function wrap(text: string, indent: string): string {
+  const out: string[] = [];
+  let line = indent;
+  for (const word of text.split(" ")) {
+    if (line.trim() !== "" && line.length + word.length + 1 > 100) {
+      out.push(line);
+      line = `${indent}  ${word}`;
+    } else line += line.trim() === "" ? word : ` ${word}`;
+  }
+  out.push(line);
+  return out.join("\n");
+}
+
+
+function verdictCode(r: CheckResult): number {
+  return r.verdict === "pass" ? EXIT.ok : r.verdict === "fail" ? EXIT.fail : EXIT.inconclusive;
+}
+
+/** `psdgate check FILE… --profile P`: the verdict of one or several recordings against a profile. */
+export function registerCheck(program: Command, io: CliIo): void {
+  const { one, many } = runnerFor(io);
+  const readStdin = io.readStdin ?? (async () => "");
+  addBatchOptions(addSpectrumOptions(addReadingOptions(program.command("check").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("judge recordings against a profile: pass (exit 0), fail (1), inconclusive (3)")), "the profile's resolutionHz, else 4096"))
+    .requiredOption("-p, --profile <file>", "the required profile (JSON, YAML or CSV)")
+    .option("--control <channels>", "judge these channels (names or positions, comma-separated) as one control spectrum; the others are monitoring channels, shown and not judged")
+    .option("--control-rule <rule>", "how the control channels make one spectrum: average (mean PSD at each line) or largest (the highest at each line)", choice("--control-rule", ["average", "largest"]), "average")
+    .addHelpText("after", `\n${wrap(`Decision rule: ${RULE_SUMMARY}`, "")}\n\nVerdicts:\n${(["pass", "fail", "inconclusive"] as const).map((v) => wrap(`${v} (exit ${v === "pass" ? 0 : v === "fail" ? 1 : 3}): ${VERDICT_MEANING[v]}.`, "  ")).join("\n")}\n`)
+    .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
+    .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
+    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
+    .option("--csv <out>", "also write the lines judged (frequency, measured, required, deviation, limits, status, shown) to this CSV file (one recording)")
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string; csv?: string }, cmd: Command) => {
+      const { loadProfile, checkRecording } = await import("../checkRecording.js");
+      const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
+      const { checkHtml } = await import("../report/htmlReport.js");
+      const { checkJson, checkText } = await import("../report/checkReport.js");
+      const { worstFirst } = await import("../compare/complianceCheck.js");
+      const profile = await loadProfile(o.profile);
+      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+      const files = await expandFiles(args, o.filesFrom, readStdin);
+      const inputs = [...files, o.profile, ...(o.filesFrom !== undefined ? [o.filesFrom] : []), ...(o.meta !== undefined ? [o.meta] : [])];
+      if (o.report !== undefined && files.length === 1) checkOutputPath(o.report, inputs, o.force, "--report");
+      if (o.csv !== undefined && files.length === 1) checkOutputPath(o.csv, inputs, o.force, "--csv");
+      if (o.reportDir !== undefined) {
+        await mkdir(o.reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
+          throw new InputError("OUTPUT_UNWRITABLE", { option: "--report-dir", expected: "a folder that exists or can be made", received: `${o.reportDir} (${fsReason(e)})` });
+        });
+      }
+      const now = new Date();
+      const wantsReport = o.report !== undefined || o.reportDir !== undefined;
+      // One name per recording, derived from its path, never shared (report/reportNames.ts).
+      const names = o.reportDir !== undefined ? reportFileNames(files) : [];
+      const reportPath = (index: number) => (o.report !== undefined ? o.report : join(o.reportDir!, names[index]!));
+      const given = givenOptions(cmd);
+      const rerun = rerunOptions({ ...analysisOptions(o), histogram: wantsReport, control });
+      const writeReport = (r: CheckResult, index: number) =>
+        writeAtomic(reportPath(index), checkHtml(r, VERSION, now, { meta, given, rerun }), { inputs, force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
+      if (files.length > 1) {
+        if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
+        if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
+        // Report writes run beside the batch; the first failure is kept and raised at the end.
+        const reports: Promise<void>[] = [];
+        const entries: import("../report/batchIndex.js").BatchEntry[] = [];
+        let reportError: unknown;
+        const code = await many<CheckResult>(
+          files, { ...o, histogram: wantsReport, control }, profile, verdictCode,
+          (r, index) => {
+            if (o.reportDir !== undefined) {
+              reports.push(writeReport(r, index).catch((e: unknown) => void (reportError ??= e)));
+              entries.push({ file: r.analysis.input.file, sha256: r.analysis.input.sha256, verdict: r.verdict, report: basename(reportPath(index)), channels: r.channels.map((c, i) => `${r.analysis.channels[i]!.name} ${r.roles[i] === "monitor" ? "monitor" : c.verdict}`).join(", ") });
+            }
+            return r.channels.map((c, i) => {
+              const ch = r.analysis.channels[i]!;
+              const w = worstFirst(c.excursions)[0];
+              return [r.analysis.input.file, ch.name, `${sig(c.rms.measured, 4)} ${accelLabel(ch.units)}`, signedDb(c.rms.deviationDb), fixed(c.dof.achieved, 1), c.verdict,
+                w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.shown ? "shown" : "not shown"}` : "none"];
+            });
+          },
+          ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION, meta),
+        );
+        await Promise.all(reports);
+        if (reportError !== undefined) throw reportError;
+        if (o.reportDir !== undefined) {
+          const { batchIndexHtml, batchIndexName } = await import("../report/batchIndex.js");
+          await writeAtomic(join(o.reportDir, batchIndexName(names)), batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now), { inputs, force: o.force, option: "--report-dir" });
+        }
+        throw new Exit(code);
+      }
+      const r = await one(o, (onProgress) => checkRecording(files[0]!, profile, { ...analysisOptions(o), histogram: wantsReport, control, onProgress }));
+      if (o.csv !== undefined) {
+        const { checkCsv } = await import("../report/checkCsv.js");
+        await writeAtomic(o.csv, checkCsv(r), { inputs, force: o.force, option: "--csv" });
+      }
+      if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r, 0);
+      io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION, meta)) + "\n" : checkText(r, VERSION));
+      throw new Exit(verdictCode(r));
+    });
+}

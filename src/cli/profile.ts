@@ -1,0 +1,19 @@
+import type { Command } from "commander";
+import { VERSION } from "../version.js";
+import type { CliIo } from "./main.js";
+
+
+/** `psdgate profile FILE`: what a required profile asks for. */
+export function registerProfile(program: Command, io: CliIo): void {
+  program
+    .command("profile")
+    .argument("<file>", "test profile: JSON, YAML or two-column CSV (Hz, level)")
+    .description("breakpoints, slopes, overall RMS, velocity and stroke of a required profile")
+    .option("--json", "print the result as JSON")
+    .action(async (file: string, o: { json?: boolean }) => {
+      const { loadProfile } = await import("../checkRecording.js");
+      const { profileJson, profileText } = await import("../report/profileText.js");
+      const p = await loadProfile(file);
+      io.stdout(o.json ? JSON.stringify(profileJson(p, VERSION)) + "\n" : profileText(p, VERSION));
+    });
+}

@@ -1,0 +1,47 @@
+import type { Command } from "commander";
+import { InputError } from "../errors.js";
+import { sig } from "../report/format.js";
+import { printable } from "../report/printable.js";
+import { accelLabel } from "../units.js";
+import { VERSION } from "../version.js";
+import type { CliIo } from "./main.js";
+import { numberOption } from "./options.js";
+
+
+/** `psdgate synth --profile P`: a seeded random record that follows a profile. */
+export function registerSynth(program: Command, io: CliIo): void {
+  program
+    .command("synth")
+    .description("a seeded Gaussian random time history whose PSD follows a profile (WAV float32 or CSV)")
+    .requiredOption("-p, --profile <file>", "profile to follow")
+    .requiredOption("-d, --duration <s>", "length in seconds", numberOption("--duration", (x) => x > 0 && x <= 86400, "a duration in s, 0 < d <= 86400"))
+    .requiredOption("--rate <hz>", "sample rate", numberOption("--rate", (x) => x > 0 && Number.isInteger(x), "a whole sample rate in Hz"))
+    .requiredOption("-o, --out <file>", "output .wav or .csv")
+    .option("--seed <n>", "random seed (same seed, same record)", numberOption("--seed", (x) => Number.isInteger(x) && x >= 0 && x < 2 ** 32, "a whole number 0 <= n < 2^32"), 1)
+    .option("--channels <n>", "independent channels", numberOption("--channels", (x) => Number.isInteger(x) && x >= 1 && x <= 64, "1 to 64"), 1)
+    .option("--level-db <db>", "shift the whole profile by this many dB (a hot or cold run)", numberOption("--level-db", (x) => Math.abs(x) <= 60, "a level shift within ±60 dB"), 0)
+    .option("--force", "replace an existing output file")
+    .action(async (o: { profile: string; duration: number; rate: number; out: string; seed: number; channels: number; levelDb: number; force?: boolean }) => {
+      const { loadProfile } = await import("../checkRecording.js");
+      const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");
+      const { synthesizeProfile } = await import("../synth/synthesizeProfile.js");
+      const profile = await loadProfile(o.profile);
+      if (/\.wav$/i.test(o.out) && 44 + Math.ceil(o.duration * o.rate) * o.channels * 4 > 0xffffffff) {
+        throw new InputError("OPTION_INVALID", { option: "--duration", expected: "a WAV output under 4 GiB (the RIFF size field is 32-bit)", received: `${o.duration} s x ${o.rate} Hz x ${o.channels} channel(s)`, hint: "write .csv, or fewer seconds or channels" });
+      }
+      const names = Array.from({ length: o.channels }, (_, i) => `ch${i + 1}`);
+      const writer = await createTimeHistoryWriter(o.out, { sampleRateHz: o.rate, channelNames: names, units: profile.units, force: o.force, option: "--out", inputs: [o.profile] });
+      let r;
+      try {
+        r = await synthesizeProfile(profile, { durationS: o.duration, sampleRateHz: o.rate, seed: o.seed, channels: o.channels, levelFactor: 10 ** (o.levelDb / 10) }, (b, n) => writer.write(b, n));
+        await writer.close();
+      } catch (e) {
+        await writer.abort();
+        throw e;
+      }
+      const u = accelLabel(profile.units);
+      io.stdout(`psdgate ${VERSION}: wrote ${printable(o.out)}: ${r.frames} samples x ${o.channels} channel(s) at ${o.rate} Hz, seed ${o.seed}, ${r.filterTaps}-tap shaping filter\n`);
+      io.stdout(`  profile "${printable(profile.title)}" ${sig(profile.rms, 4)} ${u} RMS${o.levelDb !== 0 ? `, shifted ${o.levelDb} dB to ${sig(profile.rms * 10 ** (o.levelDb / 20), 4)} ${u}` : ""}\n`);
+      r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
+    });
+}
