@@ -1,8 +1,8 @@
 import { createHash } from "node:crypto";
 import { dirname, isAbsolute, join } from "node:path";
-import { parseDocument, YAMLParseError } from "yaml";
 import { z } from "zod";
 import { InputError } from "../errors.js";
+import { plainDocument } from "./plainDocument.js";
 import { openRegularFile } from "./regularFile.js";
 
 /**
@@ -115,25 +115,6 @@ export async function loadServiceMix(file: string): Promise<ServiceMix> {
     await handle.close();
   }
   const sha = createHash("sha256").update(body).digest("hex");
-  let doc: unknown;
-  if (/\.json$/i.test(file)) {
-    try {
-      doc = JSON.parse(body);
-    } catch (e) {
-      throw new InputError("MIX_SYNTAX", { file, expected: "valid JSON (or a .yaml file)", received: (e as Error).message.split("\n")[0] });
-    }
-  } else {
-    const y = parseDocument(body, { logLevel: "silent", prettyErrors: true, uniqueKeys: true });
-    const problem = y.errors[0] ?? y.warnings.find((w) => w.code === "TAG_RESOLVE_FAILED");
-    if (problem) {
-      const pos = problem instanceof YAMLParseError || "linePos" in problem ? problem.linePos?.[0] : undefined;
-      throw new InputError("MIX_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: y.errors[0] ? "valid YAML" : "plain YAML values (no custom tags)", received: problem.message.split("\n")[0]!.slice(0, 120) });
-    }
-    try {
-      doc = y.toJS({ maxAliasCount: 100 });
-    } catch (e) {
-      throw new InputError("MIX_SYNTAX", { file, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
-    }
-  }
+  const doc = plainDocument(body, file, "MIX_SYNTAX");
   return parseServiceMix(doc, file, sha);
 }
