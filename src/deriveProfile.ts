@@ -289,7 +289,8 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const extremeRatio = testSpectra.extreme.map((v, i) => v / fieldExtreme[i]!);
   const extremeWarnings = [...fnHz].filter((_, i) => extremeRatio[i]! > extremeLimit);
   if (extremeWarnings.length) {
-    notes.push(`the test's expected largest response exceeds the field's by more than ×${extremeLimit} at ${extremeWarnings.length} natural frequencies (${extremeWarnings.map((f) => f.toPrecision(4)).join(", ")} Hz): a compressed test can break parts that the road never would`);
+    const where = extremeWarnings.length === n ? `at every natural frequency (${n})` : `at ${extremeWarnings.length} natural frequencies (${extremeWarnings.map((f) => f.toPrecision(4)).join(", ")} Hz)`;
+    notes.push(`the test's expected largest response exceeds the field's by more than ×${extremeLimit} ${where}: a compressed test can break parts that the road never would`);
   }
 
   // 5. The profile document: tolerances, DOF, resolution, duration and provenance.
