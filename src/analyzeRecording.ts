@@ -1,22 +1,21 @@
-import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
+import { scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { amplitudeGates } from "./compare/amplitudeGates.js";
 import { parsevalCheck, type ParsevalCheck } from "./estimate/parsevalCheck.js";
 import { texts, type Finding } from "./findings.js";
-import { InputError, quoted } from "./errors.js";
+import { InputError } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
 import { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
 import { SegmentPower } from "./estimate/segmentPower.js";
 import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
 import { stationarityFinding, type StationarityFinding } from "./estimate/stationarityTests.js";
 import { StretchMeanSquares } from "./estimate/stretchMeanSquares.js";
-import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./estimate/welchOptions.js";
+import type { ResolvedWelchOptions, WelchOptions } from "./estimate/welchOptions.js";
 import { WelchAccumulator } from "./estimate/welchPsd.js";
 import { spectralWindow } from "./estimate/windows.js";
 import type { CsvReadOptions } from "./read/csvTimeHistory.js";
-import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
-import { isoDateTime, parseDateTimeText } from "./read/dateTimeStamp.js";
 import { openTimeHistory } from "./read/openTimeHistory.js";
-import type { ChannelInfo, RecordingInfo, TimeHistorySource } from "./read/timeHistory.js";
+import type { ChannelInfo, TimeHistorySource } from "./read/timeHistory.js";
+import { atFinalRate, resolveAnalysis, type AnalysisPlan, type ResolvedAnalysis } from "./resolveAnalysis.js";
 import type { AccelUnit } from "./units.js";
 
 /**
@@ -131,23 +130,13 @@ export interface RecordingAnalysis {
   };
   settings: ResolvedWelchOptions & { scale: number };
   window: FrameWindow;
+  /** The options and the reader's findings as resolved: everything needed to reproduce this result. */
+  analysis: ResolvedAnalysis;
   channels: ChannelAnalysis[];
   /** Results of `options.accumulators`, in order. */
   extras: unknown[];
   /** Doubts about the whole pass (the rate contract). */
   passDoubts: string[];
-}
-
-export function selectChannels(info: RecordingInfo, wanted: string[] | undefined): number[] {
-  if (wanted === undefined || wanted.length === 0) return info.channels.map((_, i) => i);
-  return wanted.map((w) => {
-    const byName = info.channels.findIndex((c) => c.name.toLowerCase() === w.toLowerCase());
-    if (byName >= 0) return byName;
-    if (/^\d+$/.test(w) && Number(w) >= 1 && Number(w) <= info.channels.length) return Number(w) - 1;
-    throw new InputError("CHANNEL_NOT_FOUND", {
-      file: info.file, option: "--channel", expected: `a channel name or position: ${info.channels.map((c, i) => `${i + 1}=${c.name}`).join(", ")}`, received: quoted(w),
-    });
-  });
 }
 
 export async function analyzeRecording(file: string, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
@@ -157,40 +146,21 @@ export async function analyzeRecording(file: string, options: AnalysisOptions = 
 
 export async function analyzeSource(source: TimeHistorySource, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
   const { info } = source;
-  const select = selectChannels(info, options.channels);
-  const conditioning = channelConditionings(info.file, info.channels, select, options);
-  if (options.fminHz !== undefined && options.fmaxHz !== undefined && !(options.fminHz < options.fmaxHz)) {
-    throw new InputError("OPTION_INVALID", { option: "--fmin", expected: "--fmin below --fmax", received: `${options.fminHz} >= ${options.fmaxHz}` });
-  }
-  for (const [name, v] of [["--fmin", options.fminHz], ["--fmax", options.fmaxHz]] as const) {
-    if (v !== undefined && !(v >= 0 && Number.isFinite(v))) throw new InputError("OPTION_INVALID", { option: name, expected: "a frequency in Hz >= 0", received: String(v) });
-  }
-  const settings = normalizeWelchOptions(options, info.sampleRateHz);
-  // Memory is bounded before it is taken: channels x segment length (read/analysisLimits.ts).
-  const spectrumChannels = options.spectrum !== false ? select.length : 0;
-  if (spectrumChannels * settings.segmentLength > MAX_SPECTRUM_SAMPLES) {
-    await source.close?.();
-    throw new InputError("ANALYSIS_TOO_LARGE", {
-      file: info.file, expected: `channels x segment length at most ${MAX_SPECTRUM_SAMPLES} (${Math.max(1, Math.floor(MAX_SPECTRUM_SAMPLES / settings.segmentLength))} channels at ${settings.segmentLength} points)`,
-      received: `${spectrumChannels} channels x ${settings.segmentLength}`, hint: "select fewer channels with --channel, or use a shorter --segment or a coarser --resolution",
-    });
-  }
-  const designFs = info.sampleRateHz;
-  const stretchS = options.stretchS ?? 1;
+  let plan: AnalysisPlan;
   const extras = options.accumulators ?? [];
-  let first = 0;
-  let end = Infinity;
-  let asked: AnalysisOptions = options;
   try {
-    asked = clockWindow(options, info);
-    ({ first, end } = frameWindow(asked, designFs));
-    if (!(stretchS > 0 && Number.isFinite(stretchS))) throw new InputError("OPTION_INVALID", { option: "--stretch", expected: "a stretch length in s above 0", received: String(stretchS) });
-    for (const e of extras) e.start(designFs);
+    plan = resolveAnalysis(options, info);
+    for (const e of extras) e.start(info.sampleRateHz);
   } catch (e) {
     // A read that will not come releases what the source holds (a large CSV's waiting worker).
     await source.close?.();
     throw e;
   }
+  const { select, conditioning, first, end } = plan;
+  const settings = plan.analysis.welch;
+  const asked = plan.analysis.window;
+  const designFs = info.sampleRateHz;
+  const stretchS = plan.analysis.stretchS;
   const window = spectralWindow(settings.window, settings.segmentLength);
   const power = new SegmentPower(settings.segmentLength);
   const spectrum = options.spectrum !== false;
@@ -236,8 +206,8 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   }
   if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
     throw new InputError("WINDOW_EMPTY", {
-      file: info.file, option: asked.fromS !== undefined ? "--from" : "--to",
-      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `--from ${asked.fromS ?? 0} --to ${asked.toS ?? "end"}`,
+      file: info.file, option: asked.fromS !== undefined ? "fromS" : "toS",
+      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `${asked.fromS ?? 0} s to ${asked.toS ?? "the end"}`,
     });
   }
   const recordEndS = summary.frames / fs;
@@ -246,27 +216,20 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   if (options.fromClock !== undefined) windowInfo.fromClock = options.fromClock;
   if (options.toClock !== undefined) windowInfo.toClock = options.toClock;
   const extraResults = extras.map((e) => e.finish(fs));
-  // The line spacing follows the final rate (a CSV time column is only known once fully read).
-  const resolved = { ...settings, resolutionHz: fs / settings.segmentLength };
-  for (const [key, v] of [["fminHz", options.fminHz], ["fmaxHz", options.fmaxHz]] as const) {
-    if (v !== undefined && v > fs / 2) {
-      throw new InputError("OPTION_INVALID", { file: info.file, option: key === "fminHz" ? "--fmin" : "--fmax", expected: `a frequency inside the record's 0–${fs / 2} Hz (half its ${fs} Hz sample rate)`, received: `${v} Hz` });
-    }
-  }
+  const analysis = atFinalRate(plan.analysis, fs, options);
+  const resolved = analysis.welch;
   const channels = select.map((idx, c): ChannelAnalysis => {
     const stats = moments[c]!.result();
     const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0, detrendedKurtosis: NaN, detrendedCrestFactor: NaN };
     const psd = completePsd(sums, window, resolved, fs);
     const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
     const parseval = parsevalCheck(rmsTime, psd, settings.window);
-    const lo = options.fminHz ?? 0;
-    const hi = options.fmaxHz ?? fs / 2;
-    const band = options.fminHz !== undefined || options.fmaxHz !== undefined ? { fminHz: lo, fmaxHz: hi, rms: bandRms(psd, lo, hi) } : undefined;
+    const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
     const stationarity = stationarityFinding(stretches[c]!.result(), stretchLength / fs, windowInfo.fromS);
     const { notes, doubts } = findings(info.channels[idx]!, stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs);
     const note = stationarityNote(stationarity);
     if (note !== undefined) notes.push({ code: "NOT_STATIONARY", text: note });
-    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", text: `--to ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
+    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", text: `the window's end ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
       histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
@@ -279,6 +242,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     },
     settings: { ...resolved, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
     window: windowInfo,
+    analysis,
     channels,
     extras: extraResults,
     passDoubts,
@@ -294,52 +258,8 @@ export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
   if (!a.channels.some((c) => c.psd.averages === 0)) return undefined;
   return new InputError("RECORD_TOO_SHORT", {
     file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.input.samples} samples`,
-    hint: "use a shorter --segment or a coarser --resolution",
+    hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
   });
-}
-
-/**
- * --from/--to given as clock times (`fromClock`, `toClock`: an ISO 8601 date-time, or a time of day on the
- * first stamp's day) turned into seconds from the first sample, for a record with date-time stamps.
- */
-function clockWindow(o: AnalysisOptions, info: RecordingInfo): AnalysisOptions {
-  if (o.fromClock === undefined && o.toClock === undefined) return o;
-  const stamp = info.firstStamp;
-  const seconds = (text: string, option: string): number => {
-    if (!stamp) {
-      throw new InputError("OPTION_INVALID", { file: info.file, option, expected: "a time in s (a clock time needs a record with date-time stamps)", received: quoted(text) });
-    }
-    const day = isoDateTime(stamp.baseDays, 0, 0, false).slice(0, 10);
-    const full = /^\d{1,2}:\d{2}/.test(text.trim()) ? `${day} ${text.trim()}` : text.trim();
-    const scan = parseDateTimeText(full, stamp.baseDays);
-    if (!scan || (scan.zone !== 0) !== stamp.zoned) {
-      throw new InputError("OPTION_INVALID", {
-        file: info.file, option, received: quoted(text),
-        expected: `a clock time like the record's stamps (${stamp.zoned ? "with" : "without"} a zone), e.g. ${isoDateTime(stamp.baseDays, stamp.seconds, 0, stamp.zoned)} or ${isoDateTime(stamp.baseDays, stamp.seconds, 0, false).slice(11)}`,
-      });
-    }
-    const s = scan.value - stamp.seconds;
-    if (s < 0) throw new InputError("OPTION_INVALID", { file: info.file, option, expected: `a time at or after the first sample, ${isoDateTime(stamp.baseDays, stamp.seconds, 3, stamp.zoned)}`, received: quoted(text) });
-    return s;
-  };
-  return {
-    ...o,
-    fromS: o.fromClock !== undefined ? seconds(o.fromClock, "--from") : o.fromS,
-    toS: o.toClock !== undefined ? seconds(o.toClock, "--to") : o.toS,
-  };
-}
-
-/** First frame and end frame (exclusive) of --from/--to at the design rate: frames i with from <= i/fs < to. */
-function frameWindow(o: AnalysisOptions, fs: number): { first: number; end: number } {
-  for (const [name, v] of [["--from", o.fromS], ["--to", o.toS]] as const) {
-    if (v !== undefined && !(v >= 0 && Number.isFinite(v))) throw new InputError("OPTION_INVALID", { option: name, expected: "a time in s from the start of the record, >= 0", received: String(v) });
-  }
-  if (o.fromS !== undefined && o.toS !== undefined && !(o.fromS < o.toS)) {
-    throw new InputError("OPTION_INVALID", { option: "--from", expected: "--from before --to", received: `${o.fromS} >= ${o.toS}` });
-  }
-  const first = o.fromS === undefined ? 0 : Math.ceil(o.fromS * fs - 1e-9);
-  const end = o.toS === undefined ? Infinity : Math.ceil(o.toS * fs - 1e-9);
-  return { first, end };
 }
 
 /** The note `psd` and `check` print when a record fails the stationarity test. */

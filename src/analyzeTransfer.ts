@@ -1,4 +1,4 @@
-import { selectChannels } from "./analyzeRecording.js";
+import { selectChannels } from "./resolveAnalysis.js";
 import { channelConditionings, scaleSamples, type ChannelSetting } from "./condition/scaleSamples.js";
 import { InputError } from "./errors.js";
 import { normalQuantile } from "./estimate/chiSquare.js";
@@ -79,7 +79,7 @@ export async function analyzeTransfer(file: string, options: TransferOptions): P
 
 export async function analyzeTransferSource(source: TimeHistorySource, options: TransferOptions): Promise<TransferAnalysis> {
   const { info } = source;
-  if (options.outputChannels.length === 0) throw new InputError("OPTION_MISSING", { option: "--out", expected: "at least one output channel", received: "none" });
+  if (options.outputChannels.length === 0) throw new InputError("OPTION_MISSING", { option: "outputChannels", expected: "at least one output channel", received: "none" });
   const pick = (option: string, wanted: string[]) => {
     try {
       return selectChannels(info, wanted);
@@ -88,18 +88,18 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
       throw e;
     }
   };
-  const [inIdx] = pick("--in", [options.inputChannel]);
-  const outIdx = pick("--out", options.outputChannels);
+  const [inIdx] = pick("inputChannel", [options.inputChannel]);
+  const outIdx = pick("outputChannels", options.outputChannels);
   for (const [k, o] of outIdx.entries()) {
-    if (o === inIdx) throw new InputError("OPTION_INVALID", { option: "--out", expected: "an output channel other than the input", received: JSON.stringify(options.outputChannels[k]) });
-    if (outIdx.indexOf(o) !== k) throw new InputError("OPTION_INVALID", { option: "--out", expected: "each output channel once", received: JSON.stringify(options.outputChannels[k]) });
+    if (o === inIdx) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "an output channel other than the input", received: JSON.stringify(options.outputChannels[k]) });
+    if (outIdx.indexOf(o) !== k) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "each output channel once", received: JSON.stringify(options.outputChannels[k]) });
   }
   const select = [inIdx!, ...outIdx];
   const refCond = channelConditionings(info.file, info.channels, [inIdx!], options)[0]!;
   const common = options.resultUnits ?? refCond.resultUnit;
   const conditioning = channelConditionings(info.file, info.channels, select, { ...options, resultUnits: common });
   const good = options.goodCoherence ?? 0.9;
-  if (!(good > 0 && good < 1)) throw new InputError("OPTION_INVALID", { option: "--good-coherence", expected: "a coherence between 0 and 1", received: String(good) });
+  if (!(good > 0 && good < 1)) throw new InputError("OPTION_INVALID", { option: "goodCoherence", expected: "a coherence between 0 and 1", received: String(good) });
   const settings = normalizeWelchOptions(options, info.sampleRateHz);
   const window = spectralWindow(settings.window, settings.segmentLength);
   const acc = new CrossSpectrumAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, select.length, 0);
@@ -116,7 +116,7 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   if (sums.segments === 0) {
     throw new InputError("RECORD_TOO_SHORT", {
       file: info.file, expected: `at least one segment of ${settings.segmentLength} samples with finite values in every channel`, received: `${summary.frames} samples, ${sums.skippedSegments} segment(s) left out`,
-      hint: "use a shorter --segment or a coarser --resolution",
+      hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
     });
   }
   const frequencyHz = frequencyAxis(settings.segmentLength, fs);

@@ -69,7 +69,7 @@ export interface DeriveOptions {
   toHz?: number | undefined;
   perOctave?: number | undefined;
   coverage?: number | undefined;
-  confidence?: number | undefined;
+  toleranceConfidence?: number | undefined;
   extremeLimit?: number | undefined;
   bandDb?: number | undefined;
   rmsPercent?: number | undefined;
@@ -181,17 +181,17 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const margin = o.margin ?? DERIVE_DEFAULTS.margin;
   const perOctave = o.perOctave ?? DERIVE_DEFAULTS.perOctave;
   const coverage = o.coverage ?? DERIVE_DEFAULTS.coverage;
-  const confidence = o.confidence ?? DERIVE_DEFAULTS.confidence;
+  const confidence = o.toleranceConfidence ?? DERIVE_DEFAULTS.confidence;
   const extremeLimit = o.extremeLimit ?? DERIVE_DEFAULTS.extremeLimit;
-  checkRange("--q", q, q > 0.5 && q <= 1000, "a Q above 0.5 and at most 1000");
-  checkRange("--basquin", b, b >= 1 && b <= 30, "a Basquin exponent b from 1 to 30");
-  checkRange("--breakpoints", nMax, Number.isInteger(nMax) && nMax >= 2 && nMax <= 40, "a whole number of breakpoints from 2 to 40");
-  checkRange("--margin", margin, margin >= 1 && margin <= 1e6, "a damage margin factor from 1 (none) up");
-  checkRange("--per-octave", perOctave, Number.isInteger(perOctave) && perOctave >= 1 && perOctave <= 24, "1 to 24 natural frequencies per octave");
-  checkRange("--coverage", coverage, coverage > 0.5 && coverage < 1, "a coverage between 0.5 and 1, e.g. 0.95");
-  checkRange("--tolerance-confidence", confidence, confidence > 0 && confidence < 1, "a confidence between 0 and 1, e.g. 0.5");
-  checkRange("--extreme-limit", extremeLimit, extremeLimit >= 1, "a factor of at least 1");
-  checkRange("--test-duration", o.testDurationS, o.testDurationS > 0, "a test duration above 0");
+  checkRange("q", q, q > 0.5 && q <= 1000, "a Q above 0.5 and at most 1000");
+  checkRange("basquinB", b, b >= 1 && b <= 30, "a Basquin exponent b from 1 to 30");
+  checkRange("maxBreakpoints", nMax, Number.isInteger(nMax) && nMax >= 2 && nMax <= 40, "a whole number of breakpoints from 2 to 40");
+  checkRange("margin", margin, margin >= 1 && margin <= 1e6, "a damage margin factor from 1 (none) up");
+  checkRange("perOctave", perOctave, Number.isInteger(perOctave) && perOctave >= 1 && perOctave <= 24, "1 to 24 natural frequencies per octave");
+  checkRange("coverage", coverage, coverage > 0.5 && coverage < 1, "a coverage between 0.5 and 1, e.g. 0.95");
+  checkRange("toleranceConfidence", confidence, confidence > 0 && confidence < 1, "a confidence between 0 and 1, e.g. 0.5");
+  checkRange("extremeLimit", extremeLimit, extremeLimit >= 1, "a factor of at least 1");
+  checkRange("testDurationS", o.testDurationS, o.testDurationS > 0, "a test duration above 0");
   if (o.recordings.length === 0) throw new InputError("NO_FILES", { expected: "at least one field recording", received: "none" });
   const sn: SnCurve = { ...SN_DEFAULTS, basquinB: b };
 
@@ -203,7 +203,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     const a = await analyzeRecording(r.file, { ...base, channels: [o.channel ?? "1"], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined });
     const c = a.channels[0]!;
     if (c.psd.averages === 0) {
-      throw new InputError("RECORD_TOO_SHORT", { file: r.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.window.frames} samples`, hint: "use a shorter --segment or a coarser --resolution" });
+      throw new InputError("RECORD_TOO_SHORT", { file: r.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.window.frames} samples`, hint: "use a shorter `segmentLength` or a coarser `resolutionHz`" });
     }
     analysed.push({ r, a, c });
   }
@@ -211,7 +211,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const df = first.c.psd.lineSpacingHz;
   for (const x of analysed) {
     if (Math.abs(x.c.psd.lineSpacingHz / df - 1) > 1e-9) {
-      throw new InputError("RECORDINGS_UNLIKE", { file: x.r.file, expected: `the line spacing of ${first.r.file}, ${df} Hz (record at one sample rate, or give --segment for each rate's lines)`, received: `${x.c.psd.lineSpacingHz} Hz` });
+      throw new InputError("RECORDINGS_UNLIKE", { file: x.r.file, expected: `the line spacing of ${first.r.file}, ${df} Hz (record at one sample rate, or give \`segmentLength\` for each rate's lines)`, received: `${x.c.psd.lineSpacingHz} Hz` });
     }
     if (x.c.units !== first.c.units) throw new InputError("RECORDINGS_UNLIKE", { file: x.r.file, expected: `results in ${first.c.units}`, received: x.c.units });
   }
@@ -221,8 +221,8 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const minRate = Math.min(...analysed.map((x) => x.a.input.sampleRateHz));
   const fromHz = o.fromHz ?? Math.max(5, 4 * df);
   const toHz = o.toHz ?? Math.min(2000, 0.4 * minRate);
-  checkRange("--fmin", fromHz, fromHz >= 2 * df, `a lower band edge of at least 2 lines (${2 * df} Hz)`);
-  checkRange("--fmax", toHz, toHz > fromHz * 1.5 && toHz <= topHz - df, `an upper band edge above 1.5 x --fmin (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`);
+  checkRange("fromHz", fromHz, fromHz >= 2 * df, `a lower band edge of at least 2 lines (${2 * df} Hz)`);
+  checkRange("toHz", toHz, toHz > fromHz * 1.5 && toHz <= topHz - df, `an upper band edge above 1.5 x \`fromHz\` (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`);
   const fnHz = octaveGrid(fromHz, toHz, perOctave);
   const units = first.c.units;
   const toSi = accelFactor(units, "m/s2");
@@ -232,7 +232,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const groupDur = new Map<string, number>();
   for (const x of analysed) groupDur.set(x.r.group, (groupDur.get(x.r.group) ?? 0) + x.a.window.frames / x.a.input.sampleRateHz);
   const lifeS = o.groups.reduce((s, g) => s + g.serviceS, 0);
-  checkRange("--life", lifeS, lifeS > 0, "a service life above 0");
+  checkRange("lifeS", lifeS, lifeS > 0, "a service life above 0");
 
   const n = fnHz.length;
   const fieldFatigue = new Float64Array(n);
@@ -297,9 +297,9 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const bandDb = o.bandDb ?? DERIVE_DEFAULTS.bandDb;
   const rmsPercent = o.rmsPercent ?? DERIVE_DEFAULTS.rmsPercent;
   const minDof = o.minDof ?? DERIVE_DEFAULTS.minDof;
-  checkRange("--band-db", bandDb, bandDb > 0 && bandDb <= 20, "a tolerance band in dB above 0 and at most 20");
-  checkRange("--rms-percent", rmsPercent, rmsPercent > 0 && rmsPercent < 99, "an RMS tolerance in percent above 0 and below 99");
-  checkRange("--min-dof", minDof, minDof > 0, "a minimum DOF above 0");
+  checkRange("bandDb", bandDb, bandDb > 0 && bandDb <= 20, "a tolerance band in dB above 0 and at most 20");
+  checkRange("rmsPercent", rmsPercent, rmsPercent > 0 && rmsPercent < 99, "an RMS tolerance in percent above 0 and below 99");
+  checkRange("minDof", minDof, minDof > 0, "a minimum DOF above 0");
   const unitText = units === "g" ? "g2/Hz" : "(m/s2)2/Hz";
   const parameters: Record<string, number | string | boolean | null> = {
     lifeS, lifeHours: lifeS / 3600, lifeRule: o.lifeRule, testDurationS: o.testDurationS, q, basquinB: b, damageMargin: margin, maxBreakpoints: nMax,

@@ -1,5 +1,6 @@
 // The public library API of psdgate, one name per line.
-export { analyzeRecording, analyzeSource, selectChannels, clippingHintCount, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
+export { resolveAnalysis, selectChannels, type ResolvedAnalysis } from "./resolveAnalysis.js";
+export { analyzeRecording, analyzeSource, recordTooShort, clippingHintCount, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
 export { checkRecording, loadProfile, combineSpectra, spectrumOf, CONTROL_RULES, type CheckResult, type CheckOptions, type ControlRule } from "./checkRecording.js";
 export { InputError, formatInputError, EXIT, type ErrorPlace, type InputErrorDetails } from "./errors.js";
 export { STANDARD_GRAVITY_M_PER_S2, INCH_M, FOOT_M, accelFactor, parseUnitSpec, parseSensitivity, type AccelUnit, type UnitSpec } from "./units.js";

@@ -83,19 +83,19 @@ function pickChannel<T extends { name: string }>(file: string, list: T[], wanted
 function lineBand(file: string, f: Float64Array, o: SourceOptions): { lo: number; hi: number } {
   const lo = o.fminHz ?? f[1]!;
   const hi = o.fmaxHz ?? f[f.length - 1]!;
-  if (!(lo > 0)) throw new InputError("OPTION_INVALID", { file, option: "--fmin", expected: "a lower band edge above 0 Hz", received: String(lo) });
-  if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "--fmax", expected: `an upper band edge above --fmin ${lo} Hz`, received: String(hi) });
+  if (!(lo > 0)) throw new InputError("OPTION_INVALID", { file, option: "fminHz", expected: "a lower band edge above 0 Hz", received: String(lo) });
+  if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "fmaxHz", expected: `an upper band edge above \`fminHz\` ${lo} Hz`, received: String(hi) });
   return { lo, hi };
 }
 
-export async function loadSpectrumSource(file: string, o: SourceOptions = {}, optionPrefix = ""): Promise<SpectrumSource> {
+export async function loadSpectrumSource(file: string, o: SourceOptions = {}, channelOption = "channel"): Promise<SpectrumSource> {
   const kind = o.as ?? (await sourceKind(file));
   if (kind === "profile") {
     const p = await loadProfile(file);
     // --fmin/--fmax cut the profile's own band (each segment keeps its power law).
     const lo = Math.max(o.fminHz ?? 0, p.segments[0]!.f1);
     const hi = Math.min(o.fmaxHz ?? Infinity, p.segments[p.segments.length - 1]!.f2);
-    if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "--fmin", expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`, received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz` });
+    if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "fminHz", expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`, received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz` });
     const segments = p.segments.filter((s) => s.f2 > lo && s.f1 < hi).map((s) => {
       const f1 = Math.max(s.f1, lo);
       return { f1, f2: Math.min(s.f2, hi), g1: s.g1 * Math.pow(f1 / s.f1, s.exponent), exponent: s.exponent };
@@ -106,7 +106,7 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, op
   }
   if (kind === "psd") {
     const t = await readPsdTable(file);
-    const ch = pickChannel(file, t.channels, o.channel, `${optionPrefix}--channel`);
+    const ch = pickChannel(file, t.channels, o.channel, channelOption);
     const { lo, hi } = lineBand(file, t.frequencyHz, o);
     return { kind, file, sha256: t.sha256, label: ch.name, units: ch.units, spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi), durationS: undefined, frequencyHz: t.frequencyHz, level: ch.psd };
   }
@@ -161,7 +161,7 @@ export interface ResponseSpectra {
 }
 
 /** Grid "A:B[:N]" (N per octave, default 6, geometric from A to B inclusive), a list "A,B,C" or one value. */
-export function parseFnGrid(text: string, option = "--fn"): Float64Array {
+export function parseFnGrid(text: string, option = "fn"): Float64Array {
   const bad = (received: string): never => {
     throw new InputError("OPTION_INVALID", { option, expected: "A:B or A:B:N (N natural frequencies per octave, default 6) or a list A,B,C of frequencies in Hz above 0", received });
   };
@@ -184,14 +184,14 @@ export function parseFnGrid(text: string, option = "--fn"): Float64Array {
 
 export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
   const q = o.q;
-  if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "--q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
+  if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
   const durationS = o.durationS ?? src.durationS;
   if (durationS === undefined) {
-    throw new InputError("OPTION_MISSING", { file: src.file, option: "--duration", expected: "an exposure time in s (the source has none of its own)", received: "nothing" });
+    throw new InputError("OPTION_MISSING", { file: src.file, option: "durationS", expected: "an exposure time in s (the source has none of its own)", received: "nothing" });
   }
-  if (!(durationS > 0) || !Number.isFinite(durationS)) throw new InputError("OPTION_INVALID", { option: "--duration", expected: "an exposure time in s above 0", received: String(durationS) });
+  if (!(durationS > 0) || !Number.isFinite(durationS)) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure time in s above 0", received: String(durationS) });
   const sn: SnCurve = { ...SN_DEFAULTS, ...Object.fromEntries(Object.entries(o.sn ?? {}).filter(([, v]) => v !== undefined)) };
-  if (!(sn.basquinB >= 1 && sn.basquinB <= 30)) throw new InputError("OPTION_INVALID", { option: "--basquin", expected: "a Basquin exponent b from 1 to 30", received: String(sn.basquinB) });
+  if (!(sn.basquinB >= 1 && sn.basquinB <= 30)) throw new InputError("OPTION_INVALID", { option: "basquinB", expected: "a Basquin exponent b from 1 to 30", received: String(sn.basquinB) });
   const toSi = accelFactor(src.units, "m/s2");
   const s = src.spectrum;
   const n = o.fnHz.length;
@@ -228,7 +228,7 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
   const gk = src.level.filter((_, k) => keep[k] === 1);
   let stroke: ResponseSpectra["stroke"];
   if (o.strokeMm !== undefined) {
-    if (!(o.strokeMm > 0) || !Number.isFinite(o.strokeMm)) throw new InputError("OPTION_INVALID", { option: "--stroke-mm", expected: "a rated peak-to-peak stroke in mm above 0", received: String(o.strokeMm) });
+    if (!(o.strokeMm > 0) || !Number.isFinite(o.strokeMm)) throw new InputError("OPTION_INVALID", { option: "strokeMm", expected: "a rated peak-to-peak stroke in mm above 0", received: String(o.strokeMm) });
     const est = m.displacementPeakToPeak * 1000;
     stroke = { ratedMm: o.strokeMm, estimateMm: est, margin: o.strokeMm / est, withinRating: est <= o.strokeMm };
   }

@@ -1,4 +1,5 @@
-import { analyzeSource, selectChannels, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "./analyzeRecording.js";
+import { selectChannels } from "./resolveAnalysis.js";
+import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "./analyzeRecording.js";
 import {
   axisRules, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue,
   type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
@@ -138,9 +139,9 @@ export async function rideRecording(file: string, options: RideOptions): Promise
 export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
   const { info } = source;
   const axes = (["x", "y", "z"] as const).filter((a) => options.axes[a] !== undefined);
-  if (axes.length === 0) throw new InputError("OPTION_INVALID", { option: "--axes", expected: "at least one of x=CH, y=CH, z=CH", received: "none" });
+  if (axes.length === 0) throw new InputError("OPTION_INVALID", { option: "axes", expected: "at least one of x=CH, y=CH, z=CH", received: "none" });
   if (!(options.exposureS > 0 && options.exposureS <= 86400)) {
-    throw new InputError("OPTION_INVALID", { option: "--exposure", expected: "a daily exposure above 0 and at most 24 h", received: String(options.exposureS) });
+    throw new InputError("OPTION_INVALID", { option: "exposureS", expected: "a daily exposure above 0 and at most 24 h", received: String(options.exposureS) });
   }
   const names = axes.map((a) => options.axes[a]!);
   if (options.floor !== undefined) names.push(options.floor);
@@ -149,17 +150,17 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
       return selectChannels(info, [n])[0]!;
     } catch (e) {
       if (e instanceof InputError) {
-        throw new InputError("CHANNEL_NOT_FOUND", { ...e.details, option: i < axes.length ? "--axes" : "--floor" });
+        throw new InputError("CHANNEL_NOT_FOUND", { ...e.details, option: i < axes.length ? "axes" : "floor" });
       }
       throw e;
     }
   });
   const dup = indexes.findIndex((v, i) => indexes.indexOf(v) !== i);
-  if (dup >= 0) throw new InputError("OPTION_INVALID", { option: dup < axes.length ? "--axes" : "--floor", expected: "a different channel for each axis and the floor", received: quoted(names[dup]!) });
+  if (dup >= 0) throw new InputError("OPTION_INVALID", { option: dup < axes.length ? "axes" : "floor", expected: "a different channel for each axis and the floor", received: quoted(names[dup]!) });
   const rules = axisRules(options.posture);
   const plan = names.map((_, i) => ({ index: i, weighting: i < axes.length ? rules[axes[i]!].weighting : ("Wk" as WeightingName) }));
   const runningRmsS = options.runningRmsS ?? 1;
-  if (!(runningRmsS > 0 && runningRmsS <= 60)) throw new InputError("OPTION_INVALID", { option: "--running-rms", expected: "an integration time in s, 0 < t <= 60", received: String(runningRmsS) });
+  if (!(runningRmsS > 0 && runningRmsS <= 60)) throw new InputError("OPTION_INVALID", { option: "runningRmsS", expected: "an integration time in s, 0 < t <= 60", received: String(runningRmsS) });
   // Ride defaults: lines of 0.125 Hz or finer, so the 0.4 Hz band limit and the Wd plateau near 1 Hz are
   // resolved (common practice), and 75 % overlap, where a Hann window's w^2 adds up to a constant, so
   // every sample inside the record counts alike in the PSD (a pothole weighs the same wherever it falls).
@@ -190,7 +191,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     const awWelchWeighted = Math.sqrt(r.welchMeanSquare);
     const routeRatio = awFromPsd / awWelchWeighted;
     const noPsd = ch.psd.averages === 0;
-    if (noPsd) notes.push(`${axis}: the window holds no whole Welch segment of ${analysis.settings.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser --resolution or a shorter --segment gives one)`);
+    if (noPsd) notes.push(`${axis}: the window holds no whole Welch segment of ${analysis.settings.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser resolution or a shorter segment gives one)`);
     else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE)) doubts.push(`${axis} (${ch.name}): a_w from the PSD is ${((routeRatio - 1) * 100).toFixed(2)} % off a_w in time over the same samples (allowed ±${100 * ROUTE_TOLERANCE} %)`);
     const plain = awFromPsd / d.rms;
     if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE) notes.push(`${axis}: a_w from the PSD is ${((plain - 1) * 100).toFixed(2)} % off the plain time average because Welch tapers the record's ends and drops its last partial segment, which matters on a non-stationary record; a_w is the time-domain value`);
@@ -224,7 +225,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     const c = axes.length;
     const floorDose = results[c]!.dose;
     const zAxis = rideAxes.find((a) => a.axis === "z");
-    if (zAxis === undefined) notes.push("--floor needs z on the seat for the seat's transmissibility (vertical, Wk on both)");
+    if (zAxis === undefined) notes.push("a floor channel needs z on the seat for the seat's transmissibility (vertical, Wk on both)");
     else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
   }
   return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, seat, notes, doubts };

@@ -52,7 +52,7 @@ export interface VerifyResult {
   compared: number;
 }
 
-const IGNORED = new Set(["input.file", "profile.file", "tool.version"]);
+const IGNORED = new Set(["input.file", "analysis.file", "profile.file", "tool.version"]);
 /** Input paths inside a derive result: where the files were found may differ from where they were read. */
 const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[\d+\]\.file)$/;
 
@@ -121,7 +121,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   }
   let inputsOk = true;
   const rec = locate(options.recording, result.input.file, report);
-  if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it with --recording)`);
+  if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`);
   else {
     const ok = sha256File(rec.path) === result.input.sha256;
     inputsOk &&= ok;
@@ -131,7 +131,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   if (doc.kind === "check") {
     if (!result.profile) return done("differs", { kind: doc.kind });
     prof = locate(options.profile, result.profile.file, report);
-    if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it with --profile)`);
+    if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`);
     else {
       const ok = sha256File(prof.path) === result.profile.sha256;
       inputsOk &&= ok;

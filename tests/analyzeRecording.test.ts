@@ -230,11 +230,11 @@ describe("analyzeSource: extra accumulators, the rate contract and the frame win
     expect(a.channels[0]!.stats.count).toBe(2399);
     expect(a.channels[0]!.stats.min).toBe(701);
   });
-  it("a window past the end is an input error naming the option; --to past the end is kept with a note", async () => {
-    await expect(analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, fromS: 60 })).rejects.toThrow(/--from.*WINDOW_EMPTY/);
+  it("a window past the end is an input error naming the option (the library key); toS past the end is kept with a note", async () => {
+    await expect(analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, fromS: 60 })).rejects.toThrow(/option fromS.*WINDOW_EMPTY/);
     const a = await analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, toS: 80 });
     expect(a.window.toS).toBe(50);
-    expect(a.channels[0]!.warnings.join()).toContain("--to 80 s lies past the end");
+    expect(a.channels[0]!.warnings.join()).toContain("the window's end 80 s lies past the end");
   });
 });
 
@@ -289,8 +289,33 @@ describe("analyzeRecording with --from/--to as clock times (records with date-ti
     expect(Array.from(byClock.channels[0]!.psd.psd)).toEqual(Array.from(bySeconds.channels[0]!.psd.psd));
   });
   it("a clock time before the first sample, in another zone form, or on a record without date-time stamps is an option error", async () => {
-    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "14:02:59" })).rejects.toThrow(/--from: expected a time at or after the first sample/);
+    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "14:02:59" })).rejects.toThrow(/option fromClock: expected a time at or after the first sample/);
     await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "2024-05-17T14:03:02Z" })).rejects.toThrow(/like the record's stamps \(without a zone\)/);
     await expect(analyzeRecording("samples/kb210-run.wav", { fromClock: "14:03:02" })).rejects.toThrow(/a clock time needs a record with date-time stamps/);
+  });
+});
+
+describe("the resolved analysis is recorded whole in the result (issue #10)", () => {
+  it("says how the CSV was read and with which settings; re-running from it alone gives the same PSD bit for bit", async () => {
+    const dir = tempDir();
+    const file = join(dir, "rec.csv");
+    const x = gaussian(20000, 7);
+    // A semicolon file with decimal commas and a time column in ms: the dialect must be found, not assumed.
+    writeFileSync(file, "time [ms];az [mg];ay [mg]\n" + Array.from(x, (v, i) => `${(i * 0.5).toFixed(1).replace(".", ",")};${(1000 * v).toFixed(3).replace(".", ",")};${(500 * v).toFixed(3).replace(".", ",")}`).join("\n") + "\n");
+    const a = await analyzeRecording(file, { channels: ["ay"], segmentLength: 1024, overlap: 0.25, detrend: "linear", fromS: 1, toS: 8 });
+    const r = a.analysis;
+    expect(r.reading.dialect).toMatchObject({ delimiter: ";", decimal: ",", header: true, timeColumn: "time", timeUnitS: 0.001, rateFrom: "time column" });
+    expect(r.channels).toEqual([expect.objectContaining({ name: "ay", position: 2, resultUnits: "g" })]);
+    expect(r.channels[0]!.reading).toMatchObject({ fileUnit: "mg", unitFrom: "header", unitFactor: 0.001 });
+    expect(r.welch).toMatchObject({ window: "hann", segmentLength: 1024, overlap: 0.25, hop: 768, detrend: "linear", resolutionHz: 2000 / 1024 });
+    expect(r.window).toEqual({ fromS: 1, toS: 8 });
+    const again = await analyzeRecording(file, {
+      csv: { delimiter: r.reading.dialect!.delimiter, decimal: r.reading.dialect!.decimal, timeColumn: r.reading.dialect!.timeColumn!, timeUnit: "ms" },
+      channels: r.channels.map((c) => String(c.position)), window: r.welch.window, segmentLength: r.welch.segmentLength, overlap: r.welch.overlap,
+      detrend: r.welch.detrend, confidence: r.welch.confidence, fromS: r.window.fromS, toS: r.window.toS,
+    });
+    expect(Array.from(again.channels[0]!.psd.psd)).toEqual(Array.from(a.channels[0]!.psd.psd));
+    const json = JSON.parse((await cli("psd", file, "-c", "ay", "--json")).stdout) as { analysis: typeof r };
+    expect(json.analysis.reading.dialect?.decimal).toBe(",");
   });
 });

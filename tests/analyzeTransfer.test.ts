@@ -58,9 +58,9 @@ describe("analyzeTransfer", () => {
       }
       return "no error";
     };
-    expect(await msg({ inputChannel: "base", outputChannels: ["1"] })).toMatch(/^OPTION_INVALID option --out: expected an output channel other than the input/);
-    expect(await msg({ inputChannel: "base", outputChannels: ["tip", "2"] })).toMatch(/^OPTION_INVALID option --out: expected each output channel once/);
-    expect(await msg({ inputChannel: "floor", outputChannels: ["tip"] })).toMatch(/^CHANNEL_NOT_FOUND .*option --in: expected a channel name or position: 1=base, 2=tip, 3=other, received "floor"/);
+    expect(await msg({ inputChannel: "base", outputChannels: ["1"] })).toMatch(/^OPTION_INVALID option outputChannels: expected an output channel other than the input/);
+    expect(await msg({ inputChannel: "base", outputChannels: ["tip", "2"] })).toMatch(/^OPTION_INVALID option outputChannels: expected each output channel once/);
+    expect(await msg({ inputChannel: "floor", outputChannels: ["tip"] })).toMatch(/^CHANNEL_NOT_FOUND .*option inputChannel: expected a channel name or position: 1=base, 2=tip, 3=other, received "floor"/);
   });
   it("works on the seat and floor of a ride record: the Marlow UV-3 seat mode (3.2 Hz in the sample's model) and the predicted seat RMS", async () => {
     const r = await cli("transfer", "samples/marlow-uv3-ride.wav", "--in", "4", "--out", "3", "--units", "m/s2", "--scale", "40", "--resolution", "0.25", "--json");

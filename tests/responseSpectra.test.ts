@@ -26,11 +26,11 @@ async function inputError(f: () => Promise<unknown> | unknown): Promise<string> 
 }
 
 describe("parseFnGrid", () => {
-  it("A:B:N is geometric with N per octave and ends at B; a list is sorted; bad text names --fn", async () => {
+  it("A:B:N is geometric with N per octave and ends at B; a list is sorted; bad text names the option fn", async () => {
     expect(Array.from(parseFnGrid("100:400:2"), (x) => Number(x.toFixed(6)))).toEqual([100, 141.421356, 200, 282.842712, 400]);
     expect(parseFnGrid("20:2000").length).toBe(Math.floor(6 * Math.log2(100)) + 2);
     expect(Array.from(parseFnGrid("300, 100"))).toEqual([100, 300]);
-    expect(await inputError(() => parseFnGrid("100:50"))).toMatch(/^OPTION_INVALID option --fn: expected A:B or A:B:N/);
+    expect(await inputError(() => parseFnGrid("100:50"))).toMatch(/^OPTION_INVALID option fn: expected A:B or A:B:N/);
   });
 });
 
@@ -79,7 +79,7 @@ describe("responseSpectra on a profile", () => {
     // The largest peak grows with the shorter exposure's smaller factor: less than +3 dB.
     expect(c.extremeRatioDb[0]!).toBeLessThan(3.0103);
   });
-  it("a PSD table (psd --csv) gives the recording's own response to 1e-9; it has no duration, so --duration is asked for", async () => {
+  it("a PSD table (psd --csv) gives the recording's own response to 1e-9; it has no duration, so durationS is asked for", async () => {
     const a = await analyzeRecording("samples/tern7-flight.csv", { channels: ["ch2"], csv: { parseWorkers: 0 } });
     const table = join(dir, "tern.csv");
     writeFileSync(table, psdCsv(a));
@@ -95,7 +95,7 @@ describe("responseSpectra on a profile", () => {
       expect(Math.abs(r1.accelRms[i]! / r2.accelRms[i]! - 1)).toBeLessThan(1e-9);
       expect(Math.abs(r1.fatigueDamage[i]! / r2.fatigueDamage[i]! - 1)).toBeLessThan(1e-9);
     }
-    expect(await inputError(() => responseSpectra(fromTable, { fnHz, q: 20 }))).toMatch(/^OPTION_MISSING .*option --duration: expected an exposure time in s/);
+    expect(await inputError(() => responseSpectra(fromTable, { fnHz, q: 20 }))).toMatch(/^OPTION_MISSING .*option durationS: expected an exposure time in s/);
     expect(await inputError(() => loadSpectrumSource(table, { channel: "ch9" }))).toMatch(/^CHANNEL_NOT_FOUND .*expected a channel name or position: 1=ch2, received "ch9"/);
   });
 });
@@ -106,6 +106,6 @@ describe("loadSpectrumSource on a profile with --fmin/--fmax", () => {
     const r = responseSpectra(src, { fnHz: Float64Array.of(300), q: 10 });
     expect(r.motion.accelerationRms).toBeCloseTo(6, 9);
     expect(r.band).toEqual({ fromHz: 100, toHz: 1000 });
-    expect(await inputError(() => loadSpectrumSource(profileFile, { fminHz: 3000 }))).toMatch(/^OPTION_INVALID .*option --fmin: expected a band that overlaps the profile's 20–2000 Hz/);
+    expect(await inputError(() => loadSpectrumSource(profileFile, { fminHz: 3000 }))).toMatch(/^OPTION_INVALID .*option fminHz: expected a band that overlaps the profile's 20–2000 Hz/);
   });
 });

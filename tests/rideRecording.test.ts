@@ -77,10 +77,10 @@ describe("rideRecording on records made here", () => {
     expect(r.doubts.filter((d) => d.includes("NaN"))).toEqual([]);
     expect(r.notes.join()).toContain("no whole Welch segment");
   });
-  it("input errors: an unknown axis channel names --axes; a rate below 200 Hz is refused", async () => {
+  it("input errors: an unknown axis channel names the option axes; a rate below 200 Hz is refused", async () => {
     const file = write("slow.wav", 100, 30, () => [0, 0, 0, 0]);
-    await expect(rideRecording(file, { axes: { z: "seat_z" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(/option --axes.*CHANNEL_NOT_FOUND/);
+    await expect(rideRecording(file, { axes: { z: "seat_z" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(/option axes.*CHANNEL_NOT_FOUND/);
     await expect(rideRecording(file, { axes: { z: "3" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(/RIDE_RATE_TOO_LOW/);
-    await expect(rideRecording(file, { axes: { z: "3" }, floor: "3", posture: "seated", exposureS: 3600 })).rejects.toThrow(/--floor/);
+    await expect(rideRecording(file, { axes: { z: "3" }, floor: "3", posture: "seated", exposureS: 3600 })).rejects.toThrow(/option floor/);
   });
 });

@@ -86,7 +86,7 @@ export function registerDerive(program: Command, io: CliIo): void {
       const created = new Date();
       const settings = {
         ...inputs, testDurationS: o.testDuration, analysis: analysisOptions(o), channel: o.channel?.[0], q: o.q, basquinB: o.basquin, maxBreakpoints: o.breakpoints, margin: o.margin,
-        fromHz: o.fmin, toHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, confidence: o.toleranceConfidence, extremeLimit: o.extremeLimit,
+        fromHz: o.fmin, toHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, toleranceConfidence: o.toleranceConfidence, extremeLimit: o.extremeLimit,
         bandDb: o.bandDb, rmsPercent: o.rmsPercent, minDof: o.minDof, outFile: o.out,
       };
       const r = await deriveProfile({ ...settings, version: VERSION, created });

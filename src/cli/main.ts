@@ -6,6 +6,7 @@ import { registerCheck } from "./check.js";
 import { registerDerive } from "./derive.js";
 import { Exit } from "./exit.js";
 import { registerInspect } from "./inspect.js";
+import { asCliError } from "./optionFlags.js";
 import { registerProfile } from "./profile.js";
 import { registerPsd } from "./psd.js";
 import { registerQueue } from "./queue.js";
@@ -82,7 +83,7 @@ export async function runCli(argv: string[], io: CliIo = processIo): Promise<num
   } catch (e) {
     if (e instanceof Exit) return e.code;
     if (e instanceof InputError) {
-      io.stderr(`psdgate: ${printable(e.message)}\n`);
+      io.stderr(`psdgate: ${printable(asCliError(e).message)}\n`);
       return EXIT.input;
     }
     if (e instanceof CommanderError) {

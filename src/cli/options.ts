@@ -1,8 +1,8 @@
 import type { Command } from "commander";
 import type { AnalysisOptions } from "../analyzeRecording.js";
 import { InputError } from "../errors.js";
-import type { Detrend } from "../estimate/welchPsd.js";
-import type { WindowName } from "../estimate/windows.js";
+import { DETREND_NAMES, type Detrend } from "../estimate/welchPsd.js";
+import { WINDOW_NAMES, type WindowName } from "../estimate/windows.js";
 import type { ChannelSetting } from "../condition/scaleSamples.js";
 import { ACCEL_UNITS, parseSensitivity, parseUnitSpec, UNIT_NAMES, type AccelUnit } from "../units.js";
 import { CONFIDENCE_RULE, MAX_CONFIDENCE, MIN_CONFIDENCE } from "../estimate/welchOptions.js";
@@ -96,11 +96,11 @@ export function addReadingOptions(cmd: Command): Command {
 /** Options of the Welch estimate (shared by psd and check). */
 export function addSpectrumOptions(cmd: Command, segmentDefault = "4096"): Command {
   return cmd
-    .option("-w, --window <name>", "hann, hamming, blackman-harris, flattop or rectangular (default hann)", choice<WindowName>("--window", ["hann", "hamming", "blackman-harris", "flattop", "rectangular"]))
+    .option("-w, --window <name>", `${WINDOW_NAMES.join(", ")} (default hann)`, choice<WindowName>("--window", WINDOW_NAMES))
     .option("-s, --segment <n>", `samples per segment, a power of two (default ${segmentDefault})`, numberOption("--segment", (x) => Number.isInteger(x), "a power of two, e.g. 4096"))
     .option("-r, --resolution <hz>", "line spacing wanted; picks the smallest power-of-two segment that gives it", numberOption("--resolution", (x) => x > 0, "a line spacing in Hz above 0"))
     .option("--overlap <f>", "overlap of segments as a fraction, 0 <= f < 1 (default 0.5)", numberOption("--overlap", () => true, "a fraction 0 <= F < 1"))
-    .option("--detrend <how>", "per segment: none, mean or linear (default mean)", choice<Detrend>("--detrend", ["none", "mean", "linear"]))
+    .option("--detrend <how>", `per segment: ${DETREND_NAMES.join(", ")} (default mean)`, choice<Detrend>("--detrend", DETREND_NAMES))
     .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", (x) => x >= MIN_CONFIDENCE && x <= MAX_CONFIDENCE, CONFIDENCE_RULE));
 }
 

@@ -10,6 +10,7 @@ import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
 import { Exit } from "./exit.js";
 import { expandFiles } from "./fileList.js";
+import { asCliError } from "./optionFlags.js";
 import type { CliIo } from "./main.js";
 import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, rerunOptions, type ParsedCommon } from "./options.js";
 import { addBatchOptions, runnerFor, type BatchFlags } from "./runner.js";
@@ -33,7 +34,7 @@ export function registerPsd(program: Command, io: CliIo): void {
         throw new Exit(await many<RecordingAnalysis>(
           files, o, undefined, (r) => {
             const short = recordTooShort(r);
-            if (short) io.stderr(`psdgate: ${printable(short.message)}\n`);
+            if (short) io.stderr(`psdgate: ${printable(asCliError(short).message)}\n`);
             return short ? EXIT.input : EXIT.ok;
           },
           (r) => r.channels.map((c) => [r.input.file, c.name, `${sig(c.parseval.rmsTime, 4)} ${accelLabel(c.units)}`, `${sig(c.parseval.rmsPsd, 4)} ${accelLabel(c.units)}`, fixed(c.parseval.ratio, 4), fixed(c.psd.dof, 1), recordTooShort(r) ? "too short" : c.doubts.length ? "DOUBT" : "ok"]),
@@ -41,7 +42,7 @@ export function registerPsd(program: Command, io: CliIo): void {
           (r) => {
             // A record too short for one segment is an input error: its JSON line says so, as an unreadable one does.
             const short = recordTooShort(r);
-            return short ? { ...psdJson(r, VERSION, meta), error: { code: short.code, message: short.message } } : psdJson(r, VERSION, meta);
+            return short ? { ...psdJson(r, VERSION, meta), error: { code: short.code, message: asCliError(short).message } } : psdJson(r, VERSION, meta);
           },
         ));
       }

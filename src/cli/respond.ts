@@ -55,7 +55,7 @@ export function registerRespond(program: Command, io: CliIo): void {
       const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.duration, sn, strokeMm: o.strokeMm });
       let against;
       if (o.against !== undefined) {
-        const bsrc = await loadSpectrumSource(o.against, { ...base, channel: o.againstChannel }, "--against-");
+        const bsrc = await loadSpectrumSource(o.against, { ...base, channel: o.againstChannel }, "againstChannel");
         const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.againstDuration, sn });
         against = { b, c: compareResponses(r, b) };
       }

@@ -11,6 +11,7 @@ import { toolInfo } from "../report/psdJson.js";
 import { VERSION } from "../version.js";
 import type { Outcome } from "./batch.js";
 import type { CliIo } from "./main.js";
+import { asCliError } from "./optionFlags.js";
 import { analysisOptions, numberOption, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 
@@ -81,9 +82,10 @@ export function runnerFor(io: CliIo): Runner {
       (out: Outcome<T>, index: number) => {
         count++;
         if (!out.ok) {
+          const error = asCliError(out.error);
           codes.push(out.internal ? EXIT.internal : EXIT.input);
-          io.stderr(`psdgate: ${printable(out.error.message)}\n`);
-          if (o.json) io.stdout(JSON.stringify({ tool: toolInfo(VERSION), input: { file: out.file }, error: { code: out.error.code, message: out.error.message } }) + "\n");
+          io.stderr(`psdgate: ${printable(error.message)}\n`);
+          if (o.json) io.stdout(JSON.stringify({ tool: toolInfo(VERSION), input: { file: out.file }, error: { code: out.error.code, message: error.message } }) + "\n");
           rows.push([out.file, "", "", "", "", "error", out.error.code]);
           progress.line(`[${count}/${files.length}] ${printable(out.file)}  error ${out.error.code}`);
           return;

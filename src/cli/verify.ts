@@ -2,6 +2,7 @@ import type { Command } from "commander";
 import { EXIT } from "../errors.js";
 import { Exit } from "./exit.js";
 import type { CliIo } from "./main.js";
+import { inFlags } from "./optionFlags.js";
 import { numberOption } from "./options.js";
 
 interface VerifyFlags {
@@ -36,7 +37,7 @@ export function registerVerify(program: Command, io: CliIo): void {
       else {
         const out = [`psdgate ${VERSION}: verify ${report}${v.kind ? ` (${v.kind} report)` : ""}`];
         for (const s of v.steps) out.push(`  ${s.ok ? "ok  " : "FAIL"}  ${s.step.padEnd(9)} ${s.text}`);
-        for (const m of v.missing) out.push(`  MISSING ${m}`);
+        for (const m of v.missing) out.push(`  MISSING ${inFlags(m)}`);
         for (const d of v.differences) out.push(`        differs: ${d}`);
         out.push("", `${WORD[v.status]}: ${MEANING[v.status]}`, "");
         io.stdout(out.join("\n"));

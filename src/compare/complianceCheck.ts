@@ -472,7 +472,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   if (m > 0) {
     const gapLow = lines[0]!.frequencyHz - f0;
     const allowed = (kernel.halfWidthBins + 1) * df;
-    if (gapLow > allowed) blockers.push({ code: "RANGE_BELOW_JUDGED", text: `the first judged line is ${lines[0]!.frequencyHz} Hz, ${gapLow.toPrecision(3)} Hz above the profile's start (lines below are biased by detrending or leakage): the analysis cannot show the bottom of the range; use a finer resolution or --detrend none` });
+    if (gapLow > allowed) blockers.push({ code: "RANGE_BELOW_JUDGED", text: `the first judged line is ${lines[0]!.frequencyHz} Hz, ${gapLow.toPrecision(3)} Hz above the profile's start (lines below are biased by detrending or leakage): the analysis cannot show the bottom of the range; use a finer resolution or no detrending` });
   }
   if (profile.resolutionHz !== undefined && df > profile.resolutionHz * (1 + 1e-9)) {
     blockers.push({ code: "RESOLUTION_COARSE", text: `line spacing ${df.toPrecision(4)} Hz is coarser than the profile's resolution ${profile.resolutionHz} Hz: narrow excursions could hide between lines` });

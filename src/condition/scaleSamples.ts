@@ -110,14 +110,14 @@ function perChannel<T>(channels: ChannelInfo[], file: string, option: string, li
  * never read as g. Results are in `resultUnits` when given, else in the channel's base unit.
  */
 export function channelConditionings(file: string, channels: ChannelInfo[], select: number[], opts: ConditioningOptions): ChannelConditioning[] {
-  if (opts.scale !== undefined) checkScale("--scale", opts.scale);
-  for (const s of opts.channelScales ?? []) checkScale("--scale", s.value);
-  const scales = perChannel(channels, file, "--scale", opts.channelScales, opts.scale);
-  const sens = perChannel(channels, file, "--sensitivity", opts.sensitivities, undefined);
+  if (opts.scale !== undefined) checkScale("scale", opts.scale);
+  for (const s of opts.channelScales ?? []) checkScale("channelScales", s.value);
+  const scales = perChannel(channels, file, "channelScales", opts.channelScales, opts.scale);
+  const sens = perChannel(channels, file, "sensitivities", opts.sensitivities, undefined);
   let optionUnit: UnitSpec | undefined;
   if (opts.inputUnits !== undefined) {
     optionUnit = parseUnitSpec(opts.inputUnits);
-    if (optionUnit === undefined) throw new InputError("OPTION_INVALID", { option: "--units", expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`, received: quoted(opts.inputUnits) });
+    if (optionUnit === undefined) throw new InputError("OPTION_INVALID", { option: "inputUnits", expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`, received: quoted(opts.inputUnits) });
   }
   return select.map((i) => conditionChannel(file, channels[i]!, optionUnit, opts.resultUnits, scales[i], sens[i]));
 }
@@ -137,12 +137,12 @@ function conditionChannel(
   if (sensitivityText !== undefined) {
     const s = parseSensitivity(sensitivityText);
     if (s === undefined) {
-      throw new InputError("OPTION_INVALID", { option: "--sensitivity", field: ch.name, expected: "a sensitivity such as 100mV/g or 10.2mV/(m/s2)", received: quoted(sensitivityText) });
+      throw new InputError("OPTION_INVALID", { option: "sensitivities", field: ch.name, expected: "a sensitivity such as 100mV/g or 10.2mV/(m/s2)", received: quoted(sensitivityText) });
     }
     if (known !== undefined) {
       throw new InputError("UNIT_CONFLICT", {
-        ...place, expected: "a channel in volts (V or mV, or no unit) for --sensitivity", received: `a channel already in ${quoted(ch.declaredUnitText ?? known.name)}`,
-        hint: "drop --sensitivity for this channel, or fix the header",
+        ...place, expected: "a channel in volts (V or mV, or no unit) for `sensitivities`", received: `a channel already in ${quoted(ch.declaredUnitText ?? known.name)}`,
+        hint: "drop `sensitivities` for this channel, or fix the header",
       });
     }
     if (ch.declaredUnitText !== undefined && ch.declaredVolts === undefined) unknownUnit(place, ch.declaredUnitText);
@@ -154,8 +154,8 @@ function conditionChannel(
   } else if (known !== undefined) {
     if (optionUnit !== undefined && optionUnit.name !== known.name) {
       throw new InputError("UNIT_CONFLICT", {
-        ...place, expected: `--units to agree with the ${ch.fileScale !== undefined ? "file's" : "header's"} unit ${known.name}`, received: optionUnit.name,
-        hint: ch.fileScale !== undefined ? "drop --units (the file's calibration chunk already says)" : "drop --units (the file already says), or fix the header",
+        ...place, expected: `\`inputUnits\` to agree with the ${ch.fileScale !== undefined ? "file's" : "header's"} unit ${known.name}`, received: optionUnit.name,
+        hint: ch.fileScale !== undefined ? "drop `inputUnits` (the file's calibration chunk already says)" : "drop `inputUnits` (the file already says), or fix the header",
       });
     }
     unit = known;
@@ -166,7 +166,7 @@ function conditionChannel(
     if (userScale === undefined) {
       throw new InputError("UNIT_NEEDS_SENSITIVITY", {
         ...place, expected: "an acceleration unit, or a sensitivity for a channel in volts", received: quoted(ch.declaredUnitText),
-        hint: `give --sensitivity ${ch.name}=100mV/g (your sensor's value), or --scale ${ch.name}=K with --units`,
+        hint: `give \`sensitivities\` ${ch.name}=100mV/g (your sensor's value), or \`channelScales\` ${ch.name}=K with \`inputUnits\``,
       });
     }
     unit = optionUnit ?? parseUnitSpec("g")!;
@@ -187,7 +187,7 @@ function conditionChannel(
 
 function unknownUnit(place: { file: string; line?: number | undefined; column?: number | undefined; field: string }, text: string): never {
   throw new InputError("UNIT_UNKNOWN", {
-    ...place, expected: `an acceleration unit (${UNIT_NAMES.join(", ")}, also spelt m/s^2, m/s**2, m s-2, ms^-2) or a voltage (V, mV) with --sensitivity`,
+    ...place, expected: `an acceleration unit (${UNIT_NAMES.join(", ")}, also spelt m/s^2, m/s**2, m s-2, ms^-2) or a voltage (V, mV) with \`sensitivities\``,
     received: quoted(text),
   });
 }

@@ -12,6 +12,7 @@ import { oneSidedDensity, SegmentRing } from "./segmentRing.js";
  * scipy.signal.welch. Each segment is detrended (none, mean, least-squares line) before windowing.
  */
 export type Detrend = "none" | "mean" | "linear";
+export const DETREND_NAMES: readonly Detrend[] = ["none", "mean", "linear"];
 
 export interface WelchSettings {
   segmentLength: number;

@@ -66,6 +66,7 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
       sameRecording(a, job);
       const line = psdJson(a, VERSION);
       line.input.file = job.file;
+      line.analysis = { ...line.analysis, file: job.file };
       return { ok: true, line, verdict: null, figures: figuresOf(a, undefined) };
     }
     if (job.profile === undefined) throw new InputError("JOB_INVALID", { file: job.file, expected: "a check job with a profile", received: "none" });
@@ -76,6 +77,7 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
     sameRecording(r.analysis, job);
     const line = checkJson(r, VERSION);
     line.input.file = job.file;
+    line.analysis = { ...line.analysis, file: job.file };
     line.profile.file = job.profile.path;
     const report = ctx.reportDir === undefined ? undefined : await writeReport(ctx.reportDir, job, r, real);
     return { ok: true, line, verdict: r.verdict, figures: figuresOf(r.analysis, r), report };

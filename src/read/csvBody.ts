@@ -340,7 +340,7 @@ export class CsvBodyParser {
       if (Number.isNaN(v)) {
         const nf = nonFiniteToken(f);
         if (nf === undefined) {
-          const hint = this.spec.decimal === "." && /^[+-]?\d+,\d+$/.test(f) ? "the file may use decimal commas: give --delimiter ';' --decimal comma" : undefined;
+          const hint = this.spec.decimal === "." && /^[+-]?\d+,\d+$/.test(f) ? "the file may use decimal commas: give `csv.delimiter: \";\"` `csv.decimal: \",\"`" : undefined;
           this.fail("CSV_NOT_A_NUMBER", line, c + 1, `a number in column ${quoted(names[c]!)}`, quoted(f), hint);
         }
         v = nf!;

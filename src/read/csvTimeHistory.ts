@@ -236,7 +236,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   let decimal: "." | "," | undefined = opts.decimal;
   if (decimal === ",") {
     if (delimiter === ",") {
-      throw new InputError("OPTION_CONFLICT", { option: "--decimal", expected: "a delimiter other than ',' with decimal commas", received: "comma as both", hint: "add --delimiter ';'" });
+      throw new InputError("OPTION_CONFLICT", { option: "csv.decimal", expected: "a delimiter other than ',' with decimal commas", received: "comma as both", hint: "add `csv.delimiter: \";\"`" });
     }
   } else if (decimal === undefined) {
     const body = rows.slice(k).flat();
@@ -246,7 +246,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
       if (pointNum) {
         throw new InputError("CSV_DECIMAL_AMBIGUOUS", {
           file, line: lines[k]?.line, expected: "one decimal mark throughout", received: "both '.' and ',' in numbers",
-          hint: "declare it with --decimal point or --decimal comma",
+          hint: "declare it with `csv.decimal: \".\"` or `csv.decimal: \",\"`",
         });
       }
       decimal = ",";
@@ -345,7 +345,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
     const tc = opts.timeColumn;
     timeIndex = typeof tc === "number" ? tc - 1 : columns.findIndex((c) => c.name.toLowerCase() === tc.toLowerCase());
     if (timeIndex < 0 || timeIndex >= columns.length) {
-      throw new InputError("TIME_COLUMN_NOT_FOUND", { file, option: "--time-column", expected: `one of ${columns.map((c) => quoted(c.name)).join(", ")} or 1..${columns.length}`, received: quoted(String(tc)) });
+      throw new InputError("TIME_COLUMN_NOT_FOUND", { file, option: "csv.timeColumn", expected: `one of ${columns.map((c) => quoted(c.name)).join(", ")} or 1..${columns.length}`, received: quoted(String(tc)) });
     }
   } else {
     if (dialect.header) timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name));
@@ -361,7 +361,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   let timeUnitDeclared = dateTime;
   if (timeIndex >= 0 && dateTime) {
     if (opts.timeUnit !== undefined) {
-      throw new InputError("OPTION_CONFLICT", { file, option: "--time-unit", field: columns[timeIndex]!.name, expected: "no time unit for a column of date-time stamps", received: opts.timeUnit });
+      throw new InputError("OPTION_CONFLICT", { file, option: "csv.timeUnit", field: columns[timeIndex]!.name, expected: "no time unit for a column of date-time stamps", received: opts.timeUnit });
     }
   } else if (timeIndex >= 0) {
     const u = columns[timeIndex]!.unitText;
@@ -377,7 +377,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       const f = TIME_UNITS[opts.timeUnit === "serial-days" ? "days" : opts.timeUnit]!;
       if (timeUnitDeclared && f !== timeFactor) {
         throw new InputError("OPTION_CONFLICT", {
-          file, option: "--time-unit", field: columns[timeIndex]!.name, expected: `the header's time unit ${quoted(u!)}`, received: opts.timeUnit, hint: "drop --time-unit (the header already says), or fix the header",
+          file, option: "csv.timeUnit", field: columns[timeIndex]!.name, expected: `the header's time unit ${quoted(u!)}`, received: opts.timeUnit, hint: "drop `csv.timeUnit` (the header already says), or fix the header",
         });
       }
       timeFactor = f;
@@ -387,7 +387,7 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   if (timeIndex < 0 && opts.sampleRateHz === undefined) {
     throw new InputError("CSV_NO_RATE", {
       file, expected: "a time column (header 'time', 't', 'time [ms]', …) or a sample rate", received: dialect.header ? `columns ${dialect.header.map((h) => quoted(h)).join(", ")}` : "no header",
-      hint: opts.timeColumn === false ? "give --rate HZ with --no-time-column" : "give --rate HZ, or --time-column NAME",
+      hint: opts.timeColumn === false ? "give `csv.sampleRateHz: HZ` with `csv.timeColumn: false`" : "give `csv.sampleRateHz: HZ`, or `csv.timeColumn: NAME`",
     });
   }
   const skip = timeIndex >= 0 ? timeIndex : ignoredTime;
@@ -430,10 +430,16 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
     info: {
       file, format: "csv", sampleRateHz: provisionalRate, channels, bytes: size,
       layout: `delimited text, ${delimName} delimiter${dialect.sepLine !== undefined ? " (from its sep= line)" : ""}, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${dialect.units ? " and units row" : ""}`
-        + `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used (--no-time-column)` : ""}`
+        + `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used, as asked` : ""}`
         + `${dialect.trailingEmpty ? ", empty last column ignored" : ""}${dialect.preambleLines > 0 ? `, ${dialect.preambleLines} preamble line${dialect.preambleLines > 1 ? "s" : ""} before the header kept as metadata` : ""}`,
       preamble: dialect.preamble.length > 0 ? dialect.preamble : undefined,
       firstStamp: firstScan ? { baseDays: firstScan.days, seconds: firstScan.value, zoned: firstScan.zone !== 0 } : undefined,
+      dialect: {
+        delimiter: dialect.delimiter, decimal: dialect.decimal, header: dialect.header !== undefined, unitsRow: dialect.units !== undefined, preambleLines: dialect.preambleLines,
+        timeColumn: timeIndex >= 0 ? columns[timeIndex]!.name : null, ignoredTimeColumn: ignoredTime >= 0 ? columns[ignoredTime]!.name : null,
+        timeUnitS: timeIndex >= 0 && !dateTime ? timeFactor : null, dateTimeStamps: dateTime && timeIndex >= 0, rateFrom: opts.sampleRateHz !== undefined ? "given" : "time column",
+        trailingEmptyColumn: dialect.trailingEmpty === true,
+      },
     },
     read: (select, sink, onProgress) => {
       // The worker serves one read; a later read of the same source parses here.

@@ -103,14 +103,14 @@ export function parseServiceMix(doc: unknown, file: string, sha256: string, base
 
 /** Read a mix file: YAML (.yaml, .yml; core schema, no custom tags, aliases capped) or JSON. */
 export async function loadServiceMix(file: string): Promise<ServiceMix> {
-  const { handle, stats } = await openRegularFile(file, "a readable mix file", "--mix");
+  const { handle, stats } = await openRegularFile(file, "a readable mix file", "mix");
   let body: string;
   try {
-    if (stats.size > MAX_MIX_BYTES) throw new InputError("MIX_INVALID", { file, option: "--mix", expected: `a mix file of at most ${MAX_MIX_BYTES} bytes`, received: `${stats.size} bytes` });
+    if (stats.size > MAX_MIX_BYTES) throw new InputError("MIX_INVALID", { file, option: "mix", expected: `a mix file of at most ${MAX_MIX_BYTES} bytes`, received: `${stats.size} bytes` });
     body = await handle.readFile("utf8");
   } catch (e) {
     if (e instanceof InputError) throw e;
-    throw new InputError("FILE_UNREADABLE", { file, option: "--mix", expected: "a readable mix file", received: String((e as NodeJS.ErrnoException).code ?? e) });
+    throw new InputError("FILE_UNREADABLE", { file, option: "mix", expected: "a readable mix file", received: String((e as NodeJS.ErrnoException).code ?? e) });
   } finally {
     await handle.close();
   }

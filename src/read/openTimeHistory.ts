@@ -24,7 +24,7 @@ export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): P
   let source: TimeHistorySource;
   if (sig === "RIFF" || sig === "RIFX" || /\.wave?$/i.test(file)) {
     if (csv.timeColumn !== undefined || csv.delimiter !== undefined || csv.decimal !== undefined || csv.sampleRateHz !== undefined) {
-      throw new InputError("OPTION_NOT_FOR_WAV", { file, expected: "no CSV options (--rate, --time-column, --no-time-column, --delimiter, --decimal) for a WAV file", received: "CSV options", hint: "a WAV file states its own sample rate" });
+      throw new InputError("OPTION_NOT_FOR_WAV", { file, expected: "no CSV options (`csv.sampleRateHz`, `csv.timeColumn`, `csv.delimiter`, `csv.decimal`) for a WAV file", received: "CSV options", hint: "a WAV file states its own sample rate" });
     }
     source = await openWavTimeHistory(file);
   } else source = await openCsvTimeHistory(file, csv);

@@ -36,7 +36,7 @@ export function parsePsdTable(text: string, file: string): PsdTable {
   const sha256 = createHash("sha256").update(text).digest("hex");
   const rows = Papa.parse<string[]>(text.replace(/^\ufeff/, ""), { skipEmptyLines: "greedy" }).data;
   const head = rows[0] ?? [];
-  if (!looksLikePsdTable(head.join(","))) throw new InputError("PSD_TABLE_HEADER", { file, line: 1, column: 1, expected: "a header starting frequency_hz (as psd --csv writes)", received: quoted(head.join(",")) });
+  if (!looksLikePsdTable(head.join(","))) throw new InputError("PSD_TABLE_HEADER", { file, line: 1, column: 1, expected: "a header starting frequency_hz (a PSD table as psdgate writes it)", received: quoted(head.join(",")) });
   const channels: { name: string; units: AccelUnit; column: number }[] = [];
   for (let c = 1; c < head.length; c++) {
     const m = /^(.*)_psd \[(.+)\]$/.exec(head[c]!.trim());

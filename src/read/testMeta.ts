@@ -62,21 +62,21 @@ export function parseTestMeta(doc: unknown, file: string): TestMeta {
 }
 
 async function readMetaText(file: string): Promise<string> {
-  const { handle, stats } = await openRegularFile(file, "a readable test-identity file", "--meta");
+  const { handle, stats } = await openRegularFile(file, "a readable test-identity file", "meta");
   try {
-    if (stats.size > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "--meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: `${stats.size} bytes` });
+    if (stats.size > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: `${stats.size} bytes` });
     const buf = Buffer.alloc(MAX_META_BYTES + 1);
     let n = 0;
     for (;;) {
       const { bytesRead } = await handle.read(buf, n, buf.length - n, n);
       if (bytesRead === 0) break;
       n += bytesRead;
-      if (n > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "--meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: "a file that grew while it was read" });
+      if (n > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: "a file that grew while it was read" });
     }
     return buf.toString("utf8", 0, n);
   } catch (e) {
     if (e instanceof InputError) throw e;
-    throw new InputError("FILE_UNREADABLE", { file, option: "--meta", expected: "a readable test-identity file", received: String((e as NodeJS.ErrnoException).code ?? e) });
+    throw new InputError("FILE_UNREADABLE", { file, option: "meta", expected: "a readable test-identity file", received: String((e as NodeJS.ErrnoException).code ?? e) });
   } finally {
     await handle.close();
   }

@@ -16,6 +16,27 @@ export interface RecordingInfo {
   preamble?: string[] | undefined;
   /** The first date-time stamp, when the file has them (so --from/--to can be clock times). */
   firstStamp?: FirstStamp | undefined;
+  /** How a CSV was read (detected or as told), for a result that says how to reproduce it. */
+  dialect?: CsvDialect | undefined;
+}
+
+export interface CsvDialect {
+  delimiter: "," | ";" | "\t" | "whitespace";
+  decimal: "." | ",";
+  header: boolean;
+  unitsRow: boolean;
+  /** Lines before the header kept as metadata. */
+  preambleLines: number;
+  /** The time column used (null: none; the rate was given). */
+  timeColumn: string | null;
+  /** A time column found and left unused, as asked (`csv.timeColumn: false`). */
+  ignoredTimeColumn: string | null;
+  /** Seconds per unit of the time column's numbers (1 for s, 0.001 for ms; 86400 for days); null for date-time stamps or no column. */
+  timeUnitS: number | null;
+  dateTimeStamps: boolean;
+  /** Where the rate comes from: the time column, or the rate given (`csv.sampleRateHz`). */
+  rateFrom: "time column" | "given";
+  trailingEmptyColumn: boolean;
 }
 
 export interface ChannelInfo {

@@ -133,7 +133,7 @@ export class TimeStampCheck {
         file, line, column: index + 1, field: name, expected: `a uniform time step of ${fmt(this.dt / factor)} (within 1 %)`, received: `a step of ${fmt(step / factor)}`,
         hint: Math.abs(step - this.dt) > 0.5 * this.dt
           ? "psdgate needs uniformly sampled data; split the record at the gap or resample it"
-          : "psdgate needs uniformly sampled data; the stamps jitter by more than their printed resolution allows: resample the record, or give --no-time-column --rate HZ if the rate is known",
+          : "psdgate needs uniformly sampled data; the stamps jitter by more than their printed resolution allows: resample the record, or give `csv.timeColumn: false` `csv.sampleRateHz: HZ` if the rate is known",
       });
     }
   }
@@ -192,13 +192,13 @@ export function implausibleRate(t: TimeColumnInfo, rateHz: number): InputError {
   return new InputError("CSV_RATE_IMPLAUSIBLE", {
     file: t.file, line: t.line, column: t.column, field: t.name,
     expected: `a sample rate of at least ${MIN_PLAUSIBLE_RATE_HZ} Hz from a time column without a unit (read as seconds)`, received: hz(rateHz),
-    hint: `if the stamps are milliseconds (${hz(rateHz * 1000)}) give --time-unit ms; to keep seconds give --time-unit s`,
+    hint: `if the stamps are milliseconds (${hz(rateHz * 1000)}) give \`csv.timeUnit: ms\`; to keep seconds give \`csv.timeUnit: s\``,
   });
 }
 
 export function rateConflict(t: TimeColumnInfo, optionHz: number, columnHz: number): InputError {
   return new InputError("OPTION_CONFLICT", {
-    file: t.file, option: "--rate", expected: `a rate that agrees with the time column ${JSON.stringify(t.name)} (${hz(columnHz)})`, received: hz(optionHz),
-    hint: "drop --rate to use the time column, or give --no-time-column to analyse at --rate",
+    file: t.file, option: "csv.sampleRateHz", expected: `a rate that agrees with the time column ${JSON.stringify(t.name)} (${hz(columnHz)})`, received: hz(optionHz),
+    hint: "drop `csv.sampleRateHz` to use the time column, or give `csv.timeColumn: false` to analyse at `csv.sampleRateHz`",
   });
 }

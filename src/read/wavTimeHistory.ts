@@ -8,7 +8,7 @@ import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js
 
 /**
  * Streaming WAV reader. The RIFF chunk list is walked with positional reads (odd-sized chunks are
- * followed by a pad byte, RIFF spec, Microsoft/IBM 1991), then the file is read once in 64 KB pieces:
+ * followed by a pad byte, RIFF spec, Microsoft/IBM 1991), then the file is read once in 1 MiB pieces (PIECE_BYTES):
  * every byte goes into the SHA-256, and the bytes of the data chunk are decoded frame by frame with a
  * DataView (the data chunk need not be 4-byte aligned).
  *

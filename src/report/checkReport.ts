@@ -115,6 +115,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
       provenance: p.provenance ?? null, origin: provenanceSummary(p) ?? null,
     },
     settings: settingsJson(a),
+    analysis: a.analysis,
     rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict] },
     control: r.control ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) } : null,
     channels: r.channels.map((c, i) => {

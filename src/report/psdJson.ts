@@ -51,6 +51,7 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
     meta: meta ?? null,
     input: inputJson(a),
     settings: settingsJson(a),
+    analysis: a.analysis,
     frequencyHz: arr(a.channels[0]?.psd.frequencyHz ?? new Float64Array()),
     channels: a.channels.map((c) => ({
       name: c.name,

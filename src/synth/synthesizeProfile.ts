@@ -58,9 +58,9 @@ async function run(profile: TestProfile, o: SynthOptions, sink: (channels: Float
   const fs = o.sampleRateHz;
   const fTop = profile.breakpoints[profile.breakpoints.length - 1]!.hz;
   if (!(fs > 2 * fTop)) {
-    throw new InputError("OPTION_INVALID", { option: "--rate", expected: `a sample rate above twice the profile's top frequency (> ${2 * fTop} Hz)`, received: String(fs) });
+    throw new InputError("OPTION_INVALID", { option: "sampleRateHz", expected: `a sample rate above twice the profile's top frequency (> ${2 * fTop} Hz)`, received: String(fs) });
   }
-  if (!(o.durationS > 0)) throw new InputError("OPTION_INVALID", { option: "--duration", expected: "a duration in s above 0", received: String(o.durationS) });
+  if (!(o.durationS > 0)) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "a duration in s above 0", received: String(o.durationS) });
   const nch = o.channels ?? 1;
   const total = Math.round(o.durationS * fs);
   const L = synthesisFilterLength(profile, fs);

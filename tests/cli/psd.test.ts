@@ -50,7 +50,7 @@ describe("psdgate psd", () => {
   });
   it("--json carries the documented keys", async () => {
     const j = JSON.parse((await cli("psd", "samples/kb210-run.wav", "--json", "--channel", "2")).stdout);
-    expect(Object.keys(j)).toEqual(["tool", "meta", "input", "settings", "frequencyHz", "channels"]);
+    expect(Object.keys(j)).toEqual(["tool", "meta", "input", "settings", "analysis", "frequencyHz", "channels"]);
     expect(j.tool.name).toBe("psdgate");
     for (const k of ["file", "sha256", "sampleRateHz", "samples", "durationS"]) expect(j.input).toHaveProperty(k);
     for (const k of ["window", "segment", "overlap", "detrend", "confidence", "resolutionHz"]) expect(j.settings).toHaveProperty(k);

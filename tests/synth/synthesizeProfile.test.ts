@@ -84,6 +84,6 @@ describe("synthesizeProfile", () => {
     }
   });
   it("refuses a sample rate at or below twice the top frequency", async () => {
-    await expect(synthesizeProfile(profile, { durationS: 1, sampleRateHz: 4000, seed: 1 }, () => undefined)).rejects.toThrow(/--rate/);
+    await expect(synthesizeProfile(profile, { durationS: 1, sampleRateHz: 4000, seed: 1 }, () => undefined)).rejects.toThrow(/option sampleRateHz/);
   });
 });
