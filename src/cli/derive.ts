@@ -2,7 +2,7 @@ import type { Command } from "commander";
 import { InputError } from "../errors.js";
 import { expandFiles } from "./fileList.js";
 import type { CliIo } from "./main.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, durationOption, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, durationOption, givenOptions, numberOption, type ParsedCommon } from "./options.js";
 
 interface DeriveFlags extends ParsedCommon {
   mix?: string;
@@ -96,7 +96,7 @@ export function registerDerive(program: Command, io: CliIo): void {
       await writeAtomic(o.out, text, { inputs: read, force: o.force, option: "--out" });
       if (o.report !== undefined) {
         const { deriveHtml } = await import("../report/deriveHtml.js");
-        await writeAtomic(o.report, deriveHtml(r, VERSION, created, { given: givenOptions(cmd), outFile: o.out, rerun: rerunOptions(settings) }), { inputs: [...read, o.out], force: o.force, option: "--report" });
+        await writeAtomic(o.report, deriveHtml(r, VERSION, created, { given: givenOptions(cmd), outFile: o.out, rerun: JSON.parse(JSON.stringify(settings)) as Record<string, unknown> }), { inputs: [...read, o.out], force: o.force, option: "--report" });
       }
       io.stdout(o.json ? JSON.stringify(deriveJson(r, VERSION)) + "\n" : deriveText(r, VERSION, o.out));
     });
