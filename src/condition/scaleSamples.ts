@@ -80,10 +80,10 @@ function perChannel<T>(channels: ChannelInfo[], file: string, option: string, li
   if (list === undefined || list.length === 0) return out;
   const global = list.filter((s) => s.channel === undefined);
   if (global.length > 1 || (global.length === 1 && all !== undefined)) {
-    throw new InputError("OPTION_CONFLICT", { option, expected: `${option} without a channel at most once`, received: `${global.length + (all !== undefined ? 1 : 0)} times` });
+    throw new InputError("OPTION_CONFLICT", { option, expected: `\`${option}\` without a channel at most once`, received: `${global.length + (all !== undefined ? 1 : 0)} times` });
   }
   if (global.length === 1 && list.length > 1) {
-    throw new InputError("OPTION_CONFLICT", { option, expected: `either one ${option} for every channel or ${option} CH=… per channel`, received: "both", hint: "give the value for each channel" });
+    throw new InputError("OPTION_CONFLICT", { option, expected: `either one \`${option}\` for every channel or \`${option}\` CH=… per channel`, received: "both", hint: "give the value for each channel" });
   }
   const seen = new Set<number>();
   for (const s of list) {
@@ -93,7 +93,7 @@ function perChannel<T>(channels: ChannelInfo[], file: string, option: string, li
     }
     const i = channelIndex(channels, s.channel, option, file);
     if (seen.has(i)) {
-      throw new InputError("OPTION_CONFLICT", { option, field: channels[i]!.name, expected: `one ${option} per channel`, received: `a second value for ${quoted(channels[i]!.name)} (${quoted(s.channel)})` });
+      throw new InputError("OPTION_CONFLICT", { option, field: channels[i]!.name, expected: `one \`${option}\` per channel`, received: `a second value for ${quoted(channels[i]!.name)} (${quoted(s.channel)})` });
     }
     seen.add(i);
     out[i] = s.value;
