@@ -76,6 +76,11 @@ export interface PassAccumulator<R = unknown> {
   finish(sampleRateHz: number): R;
 }
 
+/** What listens to one channel's conditioned samples in the pass (the built-in accumulators). */
+interface SampleListener {
+  push(x: Float64Array, n: number): void;
+}
+
 /** The analysed window, in s from the first sample at the final rate, and its length in frames. */
 export interface FrameWindow {
   fromS: number;
@@ -163,13 +168,16 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const stretchS = plan.analysis.stretchS;
   const window = spectralWindow(settings.window, settings.segmentLength);
   const power = new SegmentPower(settings.segmentLength);
-  const spectrum = options.spectrum !== false;
+  const spectrum = plan.analysis.spectrum;
+  // The built-in listeners of each channel, chosen from the resolved analysis: the moments and the
+  // stationarity stretches always, Welch when a spectrum is asked for, the histogram for a report.
   const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power) : undefined));
   const moments = select.map(() => new RunningMoments());
-  const histograms = options.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
+  const histograms = plan.analysis.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
   // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
   const stretchLength = Number.isFinite(designFs) && designFs > 0 ? Math.max(2, Math.round(stretchS * designFs)) : 2;
   const stretches = select.map(() => new StretchMeanSquares(stretchLength));
+  const listeners: SampleListener[][] = select.map((_, c) => ([moments[c]!, histograms?.[c], welch[c], stretches[c]!] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
   const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
   let taken = 0;
@@ -187,10 +195,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
         const x = a === 0 ? blocks[c]! : blocks[c]!.subarray(a, b);
         views[c] = x;
         scaleSamples(x, n, conditioning[c]!.factor);
-        moments[c]!.push(x, n);
-        histograms?.[c]!.push(x, n);
-        welch[c]?.push(x, n);
-        stretches[c]!.push(x, n);
+        for (const l of listeners[c]!) l.push(x, n);
       }
       for (const e of extras) e.push(views, n);
     },
