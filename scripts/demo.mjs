@@ -1,7 +1,7 @@
 // `npm run demo`: the main job on the bundled samples. Checks three KB-210 runs against their profile
 // (one passes, one fails a band, one is inconclusive) and writes the review report of every run, writes
 // the PSD record of the Tern-7 CSV recording and the whole-body vibration of the Marlow UV-3 ride, then
-// verifies one report against its inputs.
+// verifies one report against its inputs; derives a lab profile from the Corran K7 field recordings.
 import { spawnSync } from "node:child_process";
 import { mkdirSync } from "node:fs";
 
@@ -22,7 +22,9 @@ const codes = [
   // A ride: whole-body vibration of the invented Marlow UV-3 recording, with its report.
   run(["ride", "samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3", "--floor", "4", "--exposure", "8h", "--report", "demo-output/marlow-uv3-ride-report.html", "--force"]),
   run(["verify", "demo-output/kb210-run-resonance-report.html"]),
+  // Field to lab: a fatigue-equivalent profile from the invented Corran K7 road recordings and their service mix.
+  run(["derive", "--mix", "samples/corran-k7-mix.yaml", "--test-duration", "1h", "--fmin", "5", "--fmax", "500", "--out", "demo-output/corran-k7-lab.yaml", "--report", "demo-output/corran-k7-derive.html", "--force"]),
 ];
-const expected = [0, 1, 3, 0, 0, 0];
+const expected = [0, 1, 3, 0, 0, 0, 0];
 console.log(`\nReports written to demo-output/. Exit codes ${codes.join(", ")} (expected ${expected.join(", ")}).`);
 process.exit(codes.every((c, i) => c === expected[i]) ? 0 : 1);

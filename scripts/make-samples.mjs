@@ -19,3 +19,5 @@ for (const [profile, duration, rate, channels, seed, out] of runs) {
 execFileSync("node", ["scripts/make-ride-sample.mjs"], { stdio: "inherit" });
 // Three-channel fixture survey (base, bracket tip, cable clamp) for `psdgate transfer`: its own script.
 execFileSync("node", ["scripts/make-fixture-survey.mjs"], { stdio: "inherit" });
+// Three road recordings of the Corran K7 van for `psdgate derive`: its own script.
+execFileSync("node", ["scripts/make-field-samples.mjs"], { stdio: "inherit" });

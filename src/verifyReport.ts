@@ -9,6 +9,7 @@ import type { TestMeta } from "./read/testMeta.js";
 import { checkJson } from "./report/checkReport.js";
 import { extractResult } from "./report/embeddedResult.js";
 import { psdJson } from "./report/psdJson.js";
+import type { DeriveOptions } from "./deriveProfile.js";
 
 /**
  * `psdgate verify REPORT.html`: is a report what psdgate wrote, and does re-running its recorded
@@ -41,7 +42,7 @@ export interface VerifyStep {
 export interface VerifyResult {
   status: VerifyStatus;
   report: string;
-  kind?: "check" | "psd" | undefined;
+  kind?: "check" | "psd" | "derive" | undefined;
   steps: VerifyStep[];
   /** Up to 20 differences, each with its JSON path. */
   differences: string[];
@@ -52,10 +53,12 @@ export interface VerifyResult {
 }
 
 const IGNORED = new Set(["input.file", "analysis.file", "profile.file", "tool.version"]);
+/** Input paths inside a derive result: where the files were found may differ from where they were read. */
+const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[\d+\]\.file)$/;
 
 /** Every difference between a recorded and a re-computed result, by JSON path. */
 export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number } = { diffs: [], compared: 0 }) {
-  if (IGNORED.has(path)) return out;
+  if (IGNORED.has(path) || IGNORED_PATTERN.test(path)) return out;
   const add = (s: string) => out.diffs.push(s);
   if (typeof recorded === "number" && typeof now === "number") {
     out.compared++;
@@ -102,7 +105,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     steps.push({ step: "result", ok: false, text: x.found ? "the embedded result is not valid JSON (edited)" : "no embedded psdgate result (not a psdgate report, or the block was removed)" });
     return done("differs");
   }
-  const doc = x.doc as { kind?: "check" | "psd"; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
+  const doc = x.doc as { kind?: "check" | "psd" | "derive"; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
   const result = (doc.result ?? {}) as { verdict?: string; input?: { file: string; sha256: string }; profile?: { file: string; sha256: string }; tool?: { version?: string } };
   steps.push({ step: "result", ok: x.resultIntact, text: x.resultIntact ? "embedded result intact (its SHA-256 matches)" : "embedded result edited (its SHA-256 does not match)" });
   const shownVerdict = /id="verdict" data-verdict="([a-z]+)"/.exec(html)?.[1];
@@ -111,6 +114,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     step: "page", ok: x.pageIntact && verdictOk,
     text: !verdictOk ? `the page shows verdict "${shownVerdict}", the result says "${result.verdict}" (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
   });
+  if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
   if (doc.kind !== "check" && doc.kind !== "psd" || !result.input || !doc.rerun) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
     return done("differs", { kind: undefined });
@@ -161,4 +165,52 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   });
   const status: VerifyStatus = steps.every((s) => s.ok) ? "reproduced" : "differs";
   return { status, report, kind: doc.kind, steps, differences: cmp.diffs.slice(0, 20), missing, compared: cmp.compared };
+}
+
+interface DerivationDoc {
+  kind: "derive";
+  created: string;
+  rerun: Omit<DeriveOptions, "version" | "created">;
+  result: { tool?: { version?: string }; recordings?: { file: string; sha256: string }[] };
+}
+
+/** A derive record: every field recording (and the mix file) by SHA-256, then the derivation re-run with its recorded settings. */
+async function verifyDerivation(report: string, doc: DerivationDoc, steps: VerifyStep[], tol: number, running: string): Promise<VerifyResult> {
+  const missing: string[] = [];
+  const recorded = doc.result.recordings ?? [];
+  const given = doc.rerun.recordings ?? [];
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, kind: "derive", steps, differences: [], missing, compared: 0, ...extra });
+  if (recorded.length !== given.length || recorded.length === 0) {
+    steps.push({ step: "result", ok: false, text: "the embedded result does not list its field recordings" });
+    return done("differs");
+  }
+  let inputsOk = true;
+  const found: string[] = [];
+  recorded.forEach((r, i) => {
+    const at = locate(undefined, r.file, report);
+    if (!at.path) {
+      missing.push(`recording ${basename(r.file)} (looked for ${at.looked.join(", ")})`);
+      return;
+    }
+    const ok = sha256File(at.path) === r.sha256;
+    inputsOk &&= ok;
+    found[i] = at.path;
+    steps.push({ step: "recording", ok, text: `${at.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${r.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  });
+  const intact = steps.every((s) => s.ok);
+  if (missing.length > 0) return done(intact ? "missing" : "differs");
+  if (!inputsOk) {
+    steps.push({ step: "rerun", ok: false, text: "not re-run: an input is not the one the report was made from" });
+    return done("differs");
+  }
+  const version = doc.result.tool?.version ?? "?";
+  const { deriveProfile } = await import("./deriveProfile.js");
+  const { deriveJson } = await import("./report/deriveReport.js");
+  const r = await deriveProfile({ ...doc.rerun, recordings: given.map((g, i) => ({ ...g, file: found[i]! })), version, created: new Date(doc.created) });
+  const cmp = compareResults(doc.result, deriveJson(r, version), tol);
+  steps.push({
+    step: "rerun", ok: cmp.diffs.length === 0,
+    text: cmp.diffs.length === 0 ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}` : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  });
+  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
 }

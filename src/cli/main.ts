@@ -3,6 +3,7 @@ import { EXIT, InputError } from "../errors.js";
 import { printable } from "../report/printable.js";
 import { VERSION } from "../version.js";
 import { registerCheck } from "./check.js";
+import { registerDerive } from "./derive.js";
 import { Exit } from "./exit.js";
 import { registerInspect } from "./inspect.js";
 import { asCliError } from "./optionFlags.js";
@@ -50,7 +51,7 @@ export function buildProgram(io: CliIo): Command {
     .exitOverride()
     // commander's own errors (unknown command or option, missing value) become one USAGE line in runCli.
     .configureOutput({ writeOut: io.stdout, writeErr: io.stderr, outputError: () => undefined });
-  for (const register of [registerInspect, registerPsd, registerProfile, registerCheck, registerSynth, registerRide, registerTransfer, registerRespond, registerQueue, registerVerify]) register(program, io);
+  for (const register of [registerInspect, registerPsd, registerProfile, registerCheck, registerSynth, registerRide, registerTransfer, registerRespond, registerDerive, registerQueue, registerVerify]) register(program, io);
   return program;
 }
 

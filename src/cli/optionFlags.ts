@@ -55,6 +55,21 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   runningRmsS: "--running-rms",
   // synth
   sampleRateHz: "--rate",
+  // derive
+  mix: "--mix",
+  lifeS: "--life",
+  testDurationS: "--test-duration",
+  maxBreakpoints: "--breakpoints",
+  margin: "--margin",
+  fromHz: "--fmin",
+  toHz: "--fmax",
+  perOctave: "--per-octave",
+  coverage: "--coverage",
+  toleranceConfidence: "--tolerance-confidence",
+  extremeLimit: "--extreme-limit",
+  bandDb: "--band-db",
+  rmsPercent: "--rms-percent",
+  minDof: "--min-dof",
   // verify
   recording: "--recording",
   profile: "--profile",

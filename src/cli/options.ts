@@ -188,3 +188,32 @@ export function givenOptions(cmd: Command): string[] {
 export function rerunOptions(o: AnalysisOptions & { control?: unknown }): Record<string, unknown> {
   return JSON.parse(JSON.stringify({ ...o, onProgress: undefined })) as Record<string, unknown>;
 }
+
+/** A duration written `8h`, `6.5 h`, `90min`, `2h30min`, `45s` or `hh:mm`, in s; undefined for anything else. */
+export function parseDuration(text: string): number | undefined {
+  const body = text.trim().toLowerCase().replace(/\s+/g, "");
+  const clock = /^(\d{1,2}):([0-5]\d)$/.exec(body);
+  if (clock) return Number(clock[1]) * 3600 + Number(clock[2]) * 60;
+  const part = /(\d+(?:\.\d+)?)(hours?|h|minutes?|min|seconds?|s)/y;
+  let total = 0;
+  let m: RegExpExecArray | null;
+  let at = 0;
+  while ((m = part.exec(body)) !== null) {
+    const v = Number(m[1]);
+    total += m[2]!.startsWith("h") ? v * 3600 : m[2]!.startsWith("m") ? v * 60 : v;
+    at = part.lastIndex;
+  }
+  return at === body.length && body.length > 0 ? total : undefined;
+}
+
+/** `--life`, `--test-duration`: a number of seconds, or a number with s, min or h (`3600`, `90min`, `1.5h`, `2h30min`). */
+export function durationOption(option: string) {
+  return (text: string): number => {
+    const t = text.trim();
+    const s = /^[+]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t) ? Number(t) : /^\d{1,2}:\d{2}$/.test(t) ? undefined : parseDuration(t);
+    if (s === undefined || !(s > 0) || !Number.isFinite(s)) {
+      throw new InputError("OPTION_INVALID", { option, expected: "a duration above 0: seconds, or a number with s, min or h (3600, 90min, 1.5h, 2h30min)", received: JSON.stringify(text) });
+    }
+    return s;
+  };
+}

@@ -3,7 +3,7 @@ import { POSTURES, type Axis, type Posture } from "../compare/wholeBodyExposure.
 import { InputError, quoted } from "../errors.js";
 import { VERSION } from "../version.js";
 import type { CliIo } from "./main.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, parseDuration, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 
 /** `x=seat_x,y=2,z=seat_z` → channel of each axis. */
@@ -28,22 +28,7 @@ function exposureOption(text: string): number {
   return s;
 }
 
-/** A duration written `8h`, `6.5 h`, `90min`, `2h30min`, `45s` or `hh:mm`, in s; undefined for anything else. */
-export function parseDuration(text: string): number | undefined {
-  const body = text.trim().toLowerCase().replace(/\s+/g, "");
-  const clock = /^(\d{1,2}):([0-5]\d)$/.exec(body);
-  if (clock) return Number(clock[1]) * 3600 + Number(clock[2]) * 60;
-  const part = /(\d+(?:\.\d+)?)(hours?|h|minutes?|min|seconds?|s)/y;
-  let total = 0;
-  let m: RegExpExecArray | null;
-  let at = 0;
-  while ((m = part.exec(body)) !== null) {
-    const v = Number(m[1]);
-    total += m[2]!.startsWith("h") ? v * 3600 : m[2]!.startsWith("m") ? v * 60 : v;
-    at = part.lastIndex;
-  }
-  return at === body.length && body.length > 0 ? total : undefined;
-}
+export { parseDuration };
 
 interface RideFlags extends ParsedCommon {
   axes: Partial<Record<Axis, string>>;

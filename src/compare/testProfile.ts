@@ -28,6 +28,27 @@ const BandSchema = z.object({
   lowerDb: z.number({ error: "allowed shortfall in dB (a number >= 0)" }).min(0, { message: "allowed shortfall in dB >= 0 (both limits are positive numbers)" }),
 });
 
+/**
+ * Where a derived profile came from (`psdgate derive` writes it): the tool, the inputs by SHA-256 and every
+ * parameter. Optional; `profile` shows it and every `check` report names it.
+ */
+const ProvenanceSchema = z.object({
+  derivedBy: z.string({ error: "the tool that derived the profile (text)" }).min(1),
+  created: z.string({ error: "a date-time (text)" }).optional(),
+  method: z.string({ error: "the method in words (text)" }).optional(),
+  inputs: z.array(z.object({
+    file: z.string({ error: "an input file name (text)" }).min(1),
+    sha256: z.string({ error: "a SHA-256 (64 hex digits)" }).regex(/^[0-9a-f]{64}$/, { message: "a SHA-256 (64 lower-case hex digits)" }),
+    role: z.string({ error: "the input's role (text)" }).optional(),
+    group: z.string({ error: "a group name (text)" }).optional(),
+    serviceHours: z.number({ error: "service hours (a number)" }).optional(),
+    durationS: z.number({ error: "a duration in s (a number)" }).optional(),
+  }, { error: "an input: file and sha256" }), { error: "a list of inputs" }).min(1, { message: "at least one input" }),
+  parameters: z.record(z.string(), z.union([z.number(), z.string(), z.boolean(), z.null()]), { error: "a mapping of parameters (numbers, text, true/false)" }),
+}, { error: "a provenance mapping: derivedBy, inputs, parameters" });
+
+export type ProfileProvenance = z.infer<typeof ProvenanceSchema>;
+
 const ProfileSchema = z.object({
   title: z.string({ error: "a title (text)" }).min(1, { message: "a non-empty title" }),
   units: z.enum(["g2/Hz", "(m/s2)2/Hz"], { error: 'units "g2/Hz" or "(m/s2)2/Hz"' }),
@@ -43,6 +64,7 @@ const ProfileSchema = z.object({
   resolutionHz: positive("an analysis resolution in Hz").optional(),
   durationS: positive("a test duration in s").optional(),
   description: z.string().optional(),
+  provenance: ProvenanceSchema.optional(),
 });
 
 export type ProfileDocument = z.infer<typeof ProfileSchema>;
@@ -87,6 +109,8 @@ export interface TestProfile {
   outerBands: ToleranceBand[] | undefined;
   /** Values the file did not give and psdgate supplied (e.g. a CSV profile's tolerance), each said in words. */
   defaultsApplied: string[];
+  /** Where a derived profile came from (absent for a hand-written one). */
+  provenance?: ProfileProvenance | undefined;
 }
 
 const LOG10_2 = Math.log10(2);
@@ -187,6 +211,7 @@ export function normalizeProfile(doc: ProfileDocument, file: string, sha256: str
     bands,
     rmsToleranceDb, minDof: doc.minDof, resolutionHz: doc.resolutionHz, durationS: doc.durationS,
     allowedOutsidePercent: t.allowedOutsidePercent, outerBands, defaultsApplied: defaultsApplied ?? [],
+    ...(doc.provenance !== undefined ? { provenance: doc.provenance } : {}),
   };
 }
 

@@ -65,6 +65,19 @@ export function lineSpectrum(frequencyHz: Float64Array, psd: Float64Array, fminH
   };
 }
 
+/**
+ * The same spectrum cut to exactly [loHz, hiHz] (inside its range): a line spectrum's first and last
+ * lines then hold their level over part of their band only, so two spectra cut alike cover the same band
+ * to the Hz, whatever their lines.
+ */
+export function clippedSpectrum(s: InputSpectrum, loHz: number, hiHz: number): InputSpectrum {
+  const lo = Math.max(loHz, s.fminHz);
+  const hi = Math.min(hiHz, s.fmaxHz);
+  if (!(hi > lo)) throw new RangeError(`no part of the spectrum between ${loHz} and ${hiHz} Hz`);
+  const inner = [...s.breaksHz].filter((f) => f > lo && f < hi);
+  return { fminHz: lo, fmaxHz: hi, breaksHz: Float64Array.from([lo, ...inner, hi]), level: (f) => s.level(f) };
+}
+
 // 8-point Gauss-Legendre nodes and weights on [-1, 1] (Abramowitz & Stegun 1964, Table 25.4).
 const GL_X = [0.1834346424956498, 0.525532409916329, 0.7966664774136267, 0.9602898564975363];
 const GL_W = [0.362683783378362, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763];

@@ -1,6 +1,6 @@
-import { parseDocument, YAMLParseError } from "yaml";
 import { z } from "zod";
 import { InputError } from "../errors.js";
+import { plainDocument } from "./plainDocument.js";
 import { openRegularFile } from "./regularFile.js";
 
 /** Largest identity file read: a dozen short texts; 64 KiB is far beyond any real one. */
@@ -85,25 +85,6 @@ async function readMetaText(file: string): Promise<string> {
 /** Read `--meta FILE`: YAML (.yaml, .yml; core schema, no custom tags, aliases capped) or JSON. */
 export async function loadTestMeta(file: string): Promise<TestMeta> {
   const body = await readMetaText(file);
-  let doc: unknown;
-  if (/\.ya?ml$/i.test(file)) {
-    const y = parseDocument(body, { logLevel: "silent", prettyErrors: true, uniqueKeys: true });
-    const problem = y.errors[0] ?? y.warnings.find((w) => w.code === "TAG_RESOLVE_FAILED");
-    if (problem) {
-      const pos = problem instanceof YAMLParseError || "linePos" in problem ? problem.linePos?.[0] : undefined;
-      throw new InputError("META_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: y.errors[0] ? "valid YAML" : "plain YAML values (no custom tags)", received: problem.message.split("\n")[0]!.slice(0, 120) });
-    }
-    try {
-      doc = y.toJS({ maxAliasCount: 100 });
-    } catch (e) {
-      throw new InputError("META_SYNTAX", { file, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
-    }
-  } else {
-    try {
-      doc = JSON.parse(body);
-    } catch (e) {
-      throw new InputError("META_SYNTAX", { file, expected: "valid JSON (or a .yaml file)", received: (e as Error).message.split("\n")[0] });
-    }
-  }
+  const doc = plainDocument(body, file, "META_SYNTAX", !/\.ya?ml$/i.test(file));
   return parseTestMeta(doc, file);
 }

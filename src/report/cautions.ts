@@ -14,3 +14,8 @@ export const STROKE_CAUTION =
 export const RESPONSE_CAUTION =
   "Single-degree-of-freedom estimates: a real structure has several modes, nonlinear damping and stress concentrations. Use these figures to compare environments, " +
   "not as a structural qualification; the governing standard and a qualified engineer decide.";
+
+export const DERIVE_CAUTION =
+  "A derived profile rests on a linear, lightly damped single-degree-of-freedom model with Gaussian, stationary response and on Miner's rule, and on field recordings that represent the service life. " +
+  "Time compression raises the test's levels above the field's: check the extreme-response ratio, the item's and fixture's limits and any nonlinearity. " +
+  "The governing test standard's tailoring process and a qualified engineer decide whether and how the profile is used.";

@@ -4,7 +4,7 @@ import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
 import { fixed, sig, signedDb } from "./format.js";
-import { toleranceSummary } from "./profileText.js";
+import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import type { TestMeta } from "../read/testMeta.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
@@ -50,6 +50,7 @@ export function checkText(r: CheckResult, version: string): string {
     `  profile    ${printable(p.file)}, sha256 ${p.sha256}`,
     `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS; tolerance ${toleranceSummary(p)}`,
     ...p.defaultsApplied.map((d) => `             default: ${d}`),
+    ...(p.provenance ? [`             profile ${printable(provenanceSummary(p)!)}`] : []),
     settingsLine(a),
     "",
     `VERDICT  ${WORD[r.verdict]}: ${VERDICT_MEANING[r.verdict]}`,
@@ -111,6 +112,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
     profile: {
       file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null,
       resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
+      provenance: p.provenance ?? null, origin: provenanceSummary(p) ?? null,
     },
     settings: settingsJson(a),
     analysis: a.analysis,

@@ -8,7 +8,7 @@ import { checkJson } from "./checkReport.js";
 import { embedResult } from "./embeddedResult.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
-import { toleranceSummary } from "./profileText.js";
+import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import { qty, reportOpening, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 
@@ -188,7 +188,8 @@ ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
 ${row("Profile range and level", `${qty(`${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)}`, "Hz")}, ${qty(sig(p.rms, 4), accelLabel(p.units))} RMS`)}
 ${row("Tolerance", esc(toleranceSummary(p)))}
 ${p.resolutionHz !== undefined ? row("Resolution required", qty(sig(p.resolutionHz, 4), "Hz")) : ""}
-${p.defaultsApplied.length ? row("Profile defaults applied", esc(p.defaultsApplied.join("; "))) : ""}`,
+${p.defaultsApplied.length ? row("Profile defaults applied", esc(p.defaultsApplied.join("; "))) : ""}
+${p.provenance ? row("Profile origin", `profile ${esc(provenanceSummary(p)!)}`) : ""}`,
     extraSettingsRows: `${r.control ? row("Control", `${esc(r.control.rule)} of ${esc(r.control.channels.join(", "))}; the other channels are monitoring channels`) : ""}`,
   })}
 ${r.control ? controlSection(r) : ""}

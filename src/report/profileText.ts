@@ -13,6 +13,21 @@ export function toleranceSummary(p: TestProfile): string {
   return `${bands}${rms}${allow}${p.minDof !== undefined ? `, at least ${p.minDof} DOF` : ""}${outer}`;
 }
 
+/** Where a derived profile came from, in one line: "derived from 3 recording(s): a.wav 1a2b3c4d5e6f, … (by psdgate 0.1.0 derive, date)". */
+export function provenanceSummary(p: TestProfile): string | undefined {
+  const v = p.provenance;
+  if (!v) return undefined;
+  const name = (f: string) => f.split(/[\\/]/).pop() ?? f;
+  const recordings = v.inputs.filter((i) => i.role === undefined || i.role === "recording");
+  const others = v.inputs.filter((i) => i.role !== undefined && i.role !== "recording");
+  return `derived from ${recordings.length} recording(s): ${recordings.map((i) => `${name(i.file)}${i.group ? ` (${i.group})` : ""} ${i.sha256.slice(0, 12)}`).join(", ")}${others.map((i) => `; ${i.role} ${name(i.file)} ${i.sha256.slice(0, 12)}`).join("")} (by ${v.derivedBy}${v.created ? `, ${v.created}` : ""})`;
+}
+
+/** The derivation's parameters as "key value" pairs, in the file's order. */
+export function provenanceParameters(p: TestProfile): string[] {
+  return Object.entries(p.provenance?.parameters ?? {}).map(([k, v]) => `${k} ${v === null ? "none" : String(v)}`);
+}
+
 export function profileText(p: TestProfile, version: string): string {
   const u = accelLabel(p.units);
   const m = profileMotion(p);
@@ -34,6 +49,12 @@ export function profileText(p: TestProfile, version: string): string {
     ...(p.resolutionHz !== undefined ? [`  analysis   ${p.resolutionHz} Hz resolution`] : []),
     ...(p.durationS !== undefined ? [`  duration   ${p.durationS} s`] : []),
     ...p.defaultsApplied.map((d) => `  default    ${d}`),
+    ...(p.provenance ? [
+      `  origin     ${printable(provenanceSummary(p)!)}`,
+      ...(p.provenance.method ? [`  method     ${printable(p.provenance.method)}`] : []),
+      `  parameters ${printable(provenanceParameters(p).join(", "))}`,
+      ...p.provenance.inputs.map((i) => `  input      ${printable(i.file)}${i.group ? ` [${printable(i.group)}]` : ""}${i.serviceHours !== undefined ? ` ${sig(i.serviceHours, 5)} h of service` : ""}, sha256 ${i.sha256}`),
+    ] : []),
     "",
     `CAUTION: ${SHAKER_CAUTION}`,
     "",
@@ -59,6 +80,7 @@ export function profileJson(p: TestProfile, version: string) {
     minDof: p.minDof ?? null,
     resolutionHz: p.resolutionHz ?? null,
     durationS: p.durationS ?? null,
+    provenance: p.provenance ?? null,
     caution: SHAKER_CAUTION,
   };
 }

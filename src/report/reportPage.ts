@@ -217,10 +217,13 @@ export interface PageParts {
   recordingName: string;
   kindLine: string;
   body: string;
+  /** What the hash in the header and margins is of (default "recording"). */
+  hashLabel?: string | undefined;
 }
 
 export function reportPage(parts: PageParts, ctx: ReportContext): string {
-  const identity = `${parts.verdictWord} · recording ${shortHash(parts.recordingSha256)}`;
+  const hashLabel = parts.hashLabel ?? "recording";
+  const identity = `${parts.verdictWord} · ${hashLabel} ${shortHash(parts.recordingSha256)}`;
   const footer = `psdgate ${ctx.version} · ${parts.recordingName}${ctx.meta?.testId ? ` · test ${ctx.meta.testId}` : ""}`;
   return `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8">
@@ -231,7 +234,7 @@ export function reportPage(parts: PageParts, ctx: ReportContext): string {
 <body>
 <header>
 <h1>${esc(parts.title)}</h1>
-<div class="muted">${esc(parts.kindLine)}, computed by psdgate ${esc(ctx.version)} on ${esc(stamp(ctx.when))}. Recording SHA-256 <span class="hash">${esc(shortHash(parts.recordingSha256))}…</span> (in full below). Prepared and reviewed by the people who sign at the end.</div>
+<div class="muted">${esc(parts.kindLine)}, computed by psdgate ${esc(ctx.version)} on ${esc(stamp(ctx.when))}. ${esc(hashLabel[0]!.toUpperCase() + hashLabel.slice(1))} SHA-256 <span class="hash">${esc(shortHash(parts.recordingSha256))}…</span> (in full below). Prepared and reviewed by the people who sign at the end.</div>
 </header>
 ${parts.body}
 ${RESULT_PLACEHOLDER}

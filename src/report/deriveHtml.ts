@@ -1,0 +1,160 @@
+import type { DeriveResult } from "../deriveProfile.js";
+import { profileLevel, profileMotion } from "../compare/testProfile.js";
+import { accelLabel, densityLabel } from "../units.js";
+import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";
+import { DAMAGE_RULE, deriveJson, EXTREME_RULE, TOLERANCE_RULE } from "./deriveReport.js";
+import { embedResult } from "./embeddedResult.js";
+import { fixed, maxOf, minOf, sig } from "./format.js";
+import { qty, reportPage, row, shortHash, signOff, stamp, type ReportContext } from "./reportPage.js";
+import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
+
+/**
+ * The record of a derivation (`derive --report`): the field's spectra with their envelope, mean and
+ * statistical limit, the derived profile, the fatigue-damage and extreme-response spectra of field and
+ * test, the breakpoints, every input by SHA-256 and every parameter, the cautions and a sign-off. The
+ * same page frame as the check and psd records (report/reportPage.ts).
+ */
+export const DERIVE_WORD = "DERIVED PROFILE";
+
+// Series styles of this page only (the frame's STYLE has the check report's).
+const EXTRA_STYLE = `<style>
+.rec0 { fill: none; stroke: #6a9fc4; stroke-width: .8; } .rec1 { fill: none; stroke: #8fb996; stroke-width: .8; } .rec2 { fill: none; stroke: #c9a26b; stroke-width: .8; }
+.rec3 { fill: none; stroke: #b58db5; stroke-width: .8; } .rec4 { fill: none; stroke: #9aa7ad; stroke-width: .8; } .rec5 { fill: none; stroke: #d08c8c; stroke-width: .8; }
+.envelope { fill: none; stroke: #1d2428; stroke-width: 1.1; } .mean { fill: none; stroke: #1b4f7a; stroke-width: 1.8; }
+.tlimit { fill: none; stroke: #b0552f; stroke-width: 1.4; stroke-dasharray: 5 3; }
+.field { fill: none; stroke: #1b4f7a; stroke-width: 1.8; } .test { fill: none; stroke: #111; stroke-width: 2; stroke-dasharray: 9 4; }
+.ratio { fill: none; stroke: #1b4f7a; stroke-width: 1.6; } .over { fill: #c0392b; stroke: #111; stroke-width: .6; }
+.key.rec0, .key.rec1, .key.rec2, .key.rec3, .key.rec4, .key.rec5 { stroke-width: 2; }
+</style>`;
+
+/** A short legend name: the group when it has one recording, else the file's base name; at most 16 characters. */
+function legendName(x: DeriveResult["recordings"][number], r: DeriveResult): string {
+  const alone = r.recordings.filter((y) => y.group === x.group).length === 1 && r.recordings.length > 1;
+  const n = alone ? x.group : (x.file.split(/[\\/]/).pop() ?? x.file).replace(/\.[^.]*$/, "");
+  return n.length > 16 ? `${n.slice(0, 15)}…` : n;
+}
+
+export function deriveHtml(r: DeriveResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> & { outFile: string }): string {
+  const ctx: ReportContext = { ...context, version, when };
+  const u = accelLabel(r.units);
+  const d = r.document;
+  const p = r.profile;
+  const name = context.outFile.split(/[\\/]/).pop() ?? context.outFile;
+  const [lo, hi] = [r.band.fromHz, r.band.toHz];
+  const f = r.frequencyHz;
+  const inBand = (k: number) => f[k]! >= lo && f[k]! <= hi;
+  let top = 0;
+  let bottom = Infinity;
+  const tl = "missing" in r.tolerance ? undefined : r.tolerance;
+  for (let k = 0; k < f.length; k++) {
+    if (!inBand(k)) continue;
+    top = Math.max(top, r.envelope[k]!, tl ? tl.limit[k]! || 0 : 0);
+    for (const x of r.recordings) if (x.psd[k]! > 0) bottom = Math.min(bottom, x.psd[k]!);
+  }
+  for (const b of p.breakpoints) top = Math.max(top, b.level);
+  if (!(top > 0) || !Number.isFinite(bottom)) { top = 1; bottom = 1e-6; }
+  bottom = Math.max(bottom, top * 1e-6);
+  const px = Float64Array.from(p.breakpoints.map((b) => b.hz));
+  const py = px.map((x) => profileLevel(p, x));
+  const psdSeries: Series[] = [
+    ...r.recordings.slice(0, 6).map((x, i) => ({ id: `field-${i}`, label: legendName(x, r), x: f, y: x.psd, className: `rec${i}` })),
+    { id: "envelope", label: "envelope", x: f, y: r.envelope, className: "envelope" },
+    { id: "mean", label: "mean", x: f, y: r.mean, className: "mean" },
+    ...(tl ? [{ id: "tolerance-limit", label: `P${fixed(100 * tl.coverage, 0)}/${fixed(100 * tl.confidence, 0)} limit`, x: f, y: tl.limit, className: "tlimit" }] : []),
+    { id: "profile", label: "derived profile", x: px, y: py, className: "required" },
+  ];
+  const psdPlot = svgPlot({
+    id: "field-psd", title: `Field PSDs (${sig(r.lineSpacingHz, 3)} Hz lines) with their envelope, mean and limit, and the derived profile`,
+    xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(r.units)})`, xDomain: [lo, hi], yDomain: [bottom / 2, top * 2], yLog: true, xMarks: [lo, hi], series: psdSeries, height: 380,
+  });
+  const fdsTop = maxOf(r.fieldFatigue, r.testFatigue);
+  const fdsBottom = minOf(r.fieldFatigue, r.testFatigue);
+  const fdsPlot = svgPlot({
+    id: "fds", title: `Fatigue-damage spectra: field over ${sig(r.lifeS / 3600, 4)} h, test over ${sig(r.testDurationS, 4)} s (Q ${r.q}, b ${r.sn.basquinB})`,
+    xLabel: "natural frequency (Hz)", yLabel: "damage (relative)", xDomain: [lo, hi], yDomain: [fdsBottom / 3, fdsTop * 3], yLog: true, xMarks: [lo, hi],
+    series: [{ id: "field-fds", label: "field", x: r.fnHz, y: r.fieldFatigue, className: "field" }, { id: "test-fds", label: "test", x: r.fnHz, y: r.testFatigue, className: "test" }],
+  });
+  const ersTop = maxOf(r.fieldExtreme, r.testExtreme);
+  const ersBottom = minOf(r.fieldExtreme, r.testExtreme);
+  const ersPlot = svgPlot({
+    id: "ers", title: "Extreme-response spectra: expected largest peak, field over its life, test over its duration",
+    xLabel: "natural frequency (Hz)", yLabel: `largest peak (${u})`, xDomain: [lo, hi], yDomain: [ersBottom / 1.5, ersTop * 1.5], yLog: true, xMarks: [lo, hi],
+    series: [{ id: "field-ers", label: "field", x: r.fnHz, y: r.fieldExtreme, className: "field" }, { id: "test-ers", label: "test", x: r.fnHz, y: r.testExtreme, className: "test" }],
+  });
+  const over = Float64Array.from(r.fnHz.filter((_, i) => r.extremeRatio[i]! > r.extremeLimit));
+  const fdsRatio = r.testFatigue.map((v, i) => v / r.fieldFatigue[i]!);
+  const ratioPlot = svgPlot({
+    id: "ratios", title: "Test over field: extreme response, and damage^(1/b) (1 = just covered)",
+    xLabel: "natural frequency (Hz)", yLabel: "ratio", xDomain: [lo, hi], yDomain: [Math.min(0.9, minOf(r.extremeRatio) * 0.95), Math.max(r.extremeLimit, maxOf(r.extremeRatio)) * 1.1], yLog: false, xMarks: [lo, hi], height: 280,
+    series: [
+      { id: "extreme-limit", label: `limit ×${r.extremeLimit}`, x: Float64Array.of(lo, hi), y: Float64Array.of(r.extremeLimit, r.extremeLimit), className: "limit" },
+      { id: "extreme-ratio", label: "test ERS / field ERS", x: r.fnHz, y: r.extremeRatio, className: "ratio" },
+      { id: "damage-ratio", label: "(test FDS / field FDS)^(1/b)", x: r.fnHz, y: fdsRatio.map((v) => v ** (1 / r.sn.basquinB)), className: "test" },
+      { id: "extreme-over", label: over.length ? "above the limit" : "", x: over, y: over.map((x) => r.extremeRatio[[...r.fnHz].indexOf(x)]!), className: "over", markers: true },
+    ],
+  });
+  const t = r.tolerance;
+  const summary = `${d.points.length} breakpoints, ${sig(p.rms, 4)} ${u} RMS for ${sig(r.testDurationS, 5)} s: test damage ≥ ${fixed(r.fit.minRatio, 3)} × the field's over ${sig(r.lifeS / 3600, 5)} h at every natural frequency from ${sig(lo)} to ${sig(hi)} Hz${r.extremeWarnings.length ? `; the extreme-response ratio exceeds ×${r.extremeLimit} at ${r.extremeWarnings.length} of ${r.fnHz.length} natural frequencies` : ""}.`;
+  const given = ctx.given && ctx.given.length ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
+  const rec = r.recordings.map((x) => `<tr><td>${esc(x.file)}<br><span class="hash">${x.sha256}</span></td><td>${esc(x.group)}</td><td class="num">${fixed(x.durationS, 1)}</td><td class="num">${sig(x.serviceS / 3600, 5)}</td><td class="num">${sig(x.bandRms, 4)}</td><td class="num">${fixed(x.dof, 0)}</td><td>${x.stationary === undefined ? "not tested" : x.stationary ? "yes" : `<strong>no</strong>: ${esc(x.stationarityNote ?? "")}`}</td></tr>`).join("\n");
+  const pts = p.breakpoints.map((b, i) => `<tr><td class="num">${sig(b.hz, 5)}</td><td class="num">${sig(b.level, 4)}</td><td class="num">${p.segments[i] ? fixed(p.segments[i]!.slopeDbPerOctave, 2) : ""}</td></tr>`).join("\n");
+  const groups = r.groups.map((g) => {
+    const share = [...g.damageShare];
+    return `<tr><td>${esc(g.name)}</td><td class="num">${sig(g.serviceS / 3600, 5)}</td><td class="num">${fixed(100 * Math.min(...share), 1)}–${fixed(100 * Math.max(...share), 1)} %</td></tr>`;
+  }).join("\n");
+  const body = `${EXTRA_STYLE}
+<div class="verdict none" id="verdict" data-verdict="none"><span class="word">PROFILE</span><span>${esc(summary)}</span></div>
+<h2>The derived profile</h2>
+<table class="meta" id="derived">
+${row("Profile file", esc(context.outFile))}
+${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
+${row("Title", esc(d.title))}
+${row("Range and level", `${qty(`${sig(lo)}–${sig(hi)}`, "Hz")}, ${qty(sig(p.rms, 4), u)} RMS, ${qty(sig(r.testDurationS, 6), "s")}`)}
+${row("Velocity and stroke", (() => { const m = profileMotion(p); return `${qty(sig(m.velocityRms * 1000, 4), "mm/s")} RMS velocity, ${qty(sig(m.displacementRms * 1000, 4), "mm")} RMS displacement, ${qty(sig(m.displacementPeakToPeak * 1000, 4), "mm")} peak-to-peak estimate (6 × RMS)`; })())}
+${row("Tolerance written", `±${d.tolerance.bands[0]!.upperDb} dB band, RMS ±${d.tolerance.rmsPercent} %, at least ${d.minDof} DOF, ${sig(d.resolutionHz!, 4)} Hz lines (defaults: ±3 dB, ±10 %, 120 DOF as recalled for IEC 60068-2-64 and MIL-STD-810H, from memory; the field's line spacing)`)}
+${row("Coverage", `test FDS / field FDS from ${fixed(r.fit.minRatio, 4)} (at ${sig(r.fit.minRatioHz, 4)} Hz) to ${fixed(r.fit.maxRatio, 3)}, median ${fixed(r.fit.medianRatio, 3)}; damage margin ×${r.margin}`)}
+${row("Time compression", `flat case G_test = G_field (T_field / T_test)^(2/b) = ×${sig(r.compression.flatFactor, 4)} in level; this profile ${sig(p.rms, 4)} ${esc(u)} RMS against the mean field's ${sig(r.compression.meanFieldRms, 4)} ${esc(u)} (×${sig(r.compression.rmsRatio ** 2, 4)} in power)`)}
+${row("Extreme response", `test / field from ${fixed(minOf(r.extremeRatio), 3)} to ${fixed(maxOf(r.extremeRatio), 3)}, limit ×${r.extremeLimit}: ${r.extremeWarnings.length === r.fnHz.length ? "<strong>exceeded</strong> at every natural frequency" : r.extremeWarnings.length ? `<strong>exceeded</strong> at ${esc(r.extremeWarnings.map((x) => sig(x, 4)).join(", "))} Hz` : "not exceeded"}`)}
+</table>
+<table class="grid"><tr><th class="num">Hz</th><th class="num">level ${esc(densityLabel(r.units))}</th><th class="num">slope to next, dB/oct</th></tr>
+${pts}
+</table>
+${psdPlot}
+<h2>Field recordings and the service life</h2>
+<table class="meta">
+${row("Service life", `${qty(sig(r.lifeS / 3600, 6), "h")} (${esc(r.lifeRule === "mix file hours" ? "the mix file's hours" : "given with --life, shared by the recordings' analysed durations")}); each group's time is shared among its recordings by their analysed durations`)}
+${row("Mean PSD", "each recording weighted by the service time it stands for")}
+${row("Statistical limit", "missing" in t ? esc(t.missing) : `P${fixed(100 * t.coverage, 0)}/${fixed(100 * t.confidence, 0)}: ${esc(TOLERANCE_RULE)}; n = ${t.n}, k = ${fixed(t.k, 4)}`)}
+</table>
+<table class="grid"><tr><th>group</th><th class="num">service h</th><th class="num">share of the damage</th></tr>
+${groups}
+</table>
+<table class="grid"><tr><th>recording and SHA-256</th><th>group</th><th class="num">analysed s</th><th class="num">service h</th><th class="num">RMS ${esc(u)}</th><th class="num">DOF</th><th>stationary</th></tr>
+${rec}
+</table>
+<h2>Damage and extremes</h2>
+${fdsPlot}
+${ersPlot}
+${ratioPlot}
+<table class="meta" id="settings">
+${row("Damage", esc(DAMAGE_RULE))}
+${row("Extreme response", esc(EXTREME_RULE))}
+${row("SDOF systems", `Q ${r.q} (default 10, common practice), Basquin b ${r.sn.basquinB} (default 8, common practice: use the material's), ${r.fnHz.length} natural frequencies from ${sig(lo)} to ${sig(hi)} Hz; field and test spectra both cut to that band`)}
+${row("Fit", `at most ${r.fit.maxBreakpoints} breakpoints on the grid, log-log; upper envelope of the inverted FDS by dynamic programming, then one uniform scale (×${fixed(r.fit.scale, 4)}) so that coverage holds everywhere, checked with the full computation`)}
+${row("Options given", given)}
+${row("Computed", `psdgate ${esc(version)}, ${esc(stamp(when))}`)}
+</table>
+${r.notes.length ? `<h2>Notes</h2><ul>${r.notes.map((n) => `<li>${esc(n)}</li>`).join("")}</ul>` : ""}
+<h2>Caution</h2>
+<div class="caution">${esc(DERIVE_CAUTION)}</div>
+<div class="caution">${esc(SHAKER_CAUTION)}</div>
+${signOff(`<strong>Derived profile</strong>: ${esc(summary)}`, [
+    ["Profile", `${esc(d.title)} <span class="hash">${shortHash(p.sha256)}</span>`],
+    ["Field recordings", esc(`${r.recordings.length} (${r.groups.map((g) => g.name).join(", ")})`)],
+  ])}`;
+  const page = reportPage({
+    title: `Derived test profile: ${d.title}`, verdictClass: "none", verdictWord: DERIVE_WORD, recordingSha256: p.sha256, recordingName: name,
+    kindLine: "Field-to-lab derivation record", body, hashLabel: "profile",
+  }, ctx);
+  return embedResult(page, { kind: "derive", created: when.toISOString(), given: ctx.given ?? [], rerun: ctx.rerun ?? null, result: deriveJson(r, version) });
+}
