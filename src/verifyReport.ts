@@ -56,9 +56,18 @@ const IGNORED = new Set(["input.file", "analysis.file", "profile.file", "tool.ve
 /** Input paths inside a derive result: where the files were found may differ from where they were read. */
 const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[\d+\]\.file)$/;
 
-/** Every difference between a recorded and a re-computed result, by JSON path. */
-export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number } = { diffs: [], compared: 0 }) {
+/**
+ * Every difference between a recorded and a re-computed result, by JSON path. A field the recorded result
+ * lacks and the re-run has was added by a later psdgate (e.g. `analysis`, findings' `values`): it is listed
+ * in `added`, not counted as a difference, so an older report still verifies on every number it holds. A
+ * recorded field the re-run lacks is a difference.
+ */
+export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number; added: string[] } = { diffs: [], compared: 0, added: [] }) {
   if (IGNORED.has(path) || IGNORED_PATTERN.test(path)) return out;
+  if (recorded === undefined && now !== undefined) {
+    out.added.push(path);
+    return out;
+  }
   const add = (s: string) => out.diffs.push(s);
   if (typeof recorded === "number" && typeof now === "number") {
     out.compared++;
@@ -74,6 +83,13 @@ export function compareResults(recorded: unknown, now: unknown, tolerance: numbe
     add(`${path}: recorded ${JSON.stringify(recorded)?.slice(0, 60)}, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
   }
   return out;
+}
+
+/** The fields a later psdgate adds, named once each (array indices folded), for the re-run's line. */
+function addedNote(added: string[]): string {
+  if (added.length === 0) return "";
+  const names = [...new Set(added.map((p) => p.replace(/\[\d+\]/g, "[]")))];
+  return `; not in the report, so not compared (added by a later psdgate): ${names.slice(0, 6).join(", ")}${names.length > 6 ? ` and ${names.length - 6} more` : ""}`;
 }
 
 function sha256File(file: string): string {
@@ -160,7 +176,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   steps.push({
     step: "rerun", ok: cmp.diffs.length === 0,
     text: cmp.diffs.length === 0
-      ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}`
+      ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
       : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
   });
   const status: VerifyStatus = steps.every((s) => s.ok) ? "reproduced" : "differs";
@@ -210,7 +226,7 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   const cmp = compareResults(doc.result, deriveJson(r, version), tol);
   steps.push({
     step: "rerun", ok: cmp.diffs.length === 0,
-    text: cmp.diffs.length === 0 ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}` : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+    text: cmp.diffs.length === 0 ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp.added)}` : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
   });
   return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
 }

@@ -9,4 +9,12 @@ describe("compareResults", () => {
     expect(d.diffs).toEqual(['verdict: recorded "fail", re-run "pass"', "lines[1]: recorded 2, re-run 2.0001", "rms.measured: recorded 9.171, re-run 9.2"]);
     expect(compareResults({ x: [1, 2] }, { x: [1] }, 1e-9).diffs).toEqual(["x: recorded 2 values, re-run 1"]);
   });
+  it("a field only the re-run has (added by a later version) is listed, not a difference; a recorded field the re-run lacks is one", () => {
+    const older = { rms: 1, findings: [{ code: "PASS", text: "t" }] };
+    const now = { rms: 1, analysis: { welch: { segmentLength: 4096 } }, findings: [{ code: "PASS", values: { lines: 3 }, text: "t" }] };
+    const c = compareResults(older, now, 1e-9);
+    expect(c.diffs).toEqual([]);
+    expect(c.added).toEqual(["findings[0].values", "analysis"]);
+    expect(compareResults(now, older, 1e-9).diffs).toEqual(["analysis: recorded {\"welch\":{\"segmentLength\":4096}}, re-run undefined", "findings[0].values: recorded {\"lines\":3}, re-run undefined"]);
+  });
 });
