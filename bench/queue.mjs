@@ -4,10 +4,10 @@
 //   --big N        large recordings (--big-rows frames, 3 M by default: about 115 MB each) for the speed-up (default 6)
 //   --runs N       repetitions, medians reported (default 3)
 import { execFileSync, spawn, spawnSync } from "node:child_process";
-import { chownSync, existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { createServer } from "node:net";
-import { cpus, tmpdir, userInfo } from "node:os";
+import { existsSync, mkdirSync, writeFileSync } from "node:fs";
+import { cpus } from "node:os";
 import { join, resolve } from "node:path";
+import { startBenchServer } from "./pgServer.mjs";
 
 const arg = (name, dflt) => {
   const i = process.argv.indexOf(`--${name}`);
@@ -29,18 +29,9 @@ function files(kind, n, rows, seed0) {
   return out;
 }
 
-// A throwaway PostgreSQL, as in tests/queue/postgresServer.ts.
-const bin = ["/usr/lib/postgresql/15/bin", "/usr/local/bin", "/usr/bin"].find((d) => existsSync(join(d, "initdb")));
-if (!bin) throw new Error("no initdb: apt-get install postgresql");
-const pgDir = mkdtempSync(join(tmpdir(), "psdgate-bench-pg-"));
-const asRoot = userInfo().uid === 0;
-const pgRun = (cmd, args) => (asRoot ? execFileSync("runuser", ["-u", "postgres", "--", join(bin, cmd), ...args], { stdio: "pipe" }) : execFileSync(join(bin, cmd), args, { stdio: "pipe" }));
-if (asRoot) chownSync(pgDir, Number(execFileSync("id", ["-u", "postgres"], { encoding: "utf8" })), Number(execFileSync("id", ["-g", "postgres"], { encoding: "utf8" })));
-const port = await new Promise((r) => { const s = createServer(); s.listen(0, "127.0.0.1", () => { const p = s.address().port; s.close(() => r(p)); }); });
-pgRun("initdb", ["-D", join(pgDir, "db"), "-A", "trust", "-U", "postgres"]);
-// Durable settings (fsync on, as a lab's server would run): the commit of each result is part of the cost.
-pgRun("pg_ctl", ["-D", join(pgDir, "db"), "-w", "-o", `-p ${port} -k ${pgDir} -c listen_addresses=127.0.0.1`, "-l", join(pgDir, "log"), "start"]);
-const server = `postgres://postgres@127.0.0.1:${port}`;
+// A throwaway PostgreSQL (bench/pgServer.mjs), durable settings.
+const pg = await startBenchServer();
+const server = pg.url;
 let dbCount = 0;
 const freshDb = () => {
   const name = `bench_${dbCount++}`;
@@ -92,7 +83,7 @@ const results = new Map(scenarios.map((s) => [s, []]));
 try {
   for (let r = 0; r < RUNS; r++) for (const s of scenarios) results.get(s).push(await s.run());
 } finally {
-  try { pgRun("pg_ctl", ["-D", join(pgDir, "db"), "-w", "-m", "fast", "stop"]); } finally { rmSync(pgDir, { recursive: true, force: true }); }
+  pg.stop();
 }
 for (const s of scenarios) {
   const rs = results.get(s);
