@@ -43,14 +43,15 @@ export function spectrumOf(c: ChannelAnalysis, a: RecordingAnalysis): SpectrumUn
   return {
     name: c.name, frequencyHz: c.psd.frequencyHz, psd: c.psd.psd, dof: c.psd.dof, lineSpacingHz: c.psd.lineSpacingHz,
     sampleRateHz: a.input.sampleRateHz, durationS: a.input.durationS, window: s.window, segmentLength: s.segmentLength, detrend: s.detrend, confidence: s.confidence,
+    overlap: s.overlap,
   };
 }
 
 /**
  * One control spectrum from several channels: the line-by-line average or the largest. Its DOF is
  * taken as the smallest of the channels' (the channels of one test are strongly correlated, so the
- * average is worth no more than one channel: conservative). With the largest, the upper tests are
- * shared by k estimates (decisionRule.ts ruleLevels).
+ * average is worth no more than one channel: conservative). With the largest, judgeSpectrum tests it
+ * by the distribution of the largest of k (decisionRule.ts largestUpperFactor, largestOfMoments).
  */
 export function combineSpectra(list: SpectrumUnderTest[], rule: ControlRule): SpectrumUnderTest {
   const first = list[0]!;
@@ -94,7 +95,11 @@ export async function checkRecording(file: string, profile: TestProfile, options
   // Control channels are always analysed, with any channels asked for besides.
   const channels = options.control && options.channels?.length ? [...new Set([...options.channels, ...options.control.channels])] : options.channels;
   const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true });
-  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum(spectrumOf(c, analysis), profile), c.doubtFindings));
+  // Without control every channel is judged and the record's verdict rests on all of them: the record's 5 %
+  // is split over them (family). With control only the control spectrum decides; the channels are judged
+  // alone for the reader, each as if it were the record's one spectrum.
+  const family = options.control ? 1 : analysis.channels.length;
+  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum({ ...spectrumOf(c, analysis), family }, profile), c.doubtFindings));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }

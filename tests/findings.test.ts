@@ -120,6 +120,11 @@ async function allFindings(): Promise<Finding[]> {
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 1000, { minDof: 1000, durationS: 900, resolutionHz: 1 })), // DOF_BELOW_PROFILE, DURATION_SHORT, RESOLUTION_COARSE
     judgeSpectrum(exact((f) => (f >= 20 ? 0.01 * db(3) : 0), { dof: 200 }), flat(20, 2000)), // RANGE_ABOVE_RECORD, RMS over what the record covers
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 21)), // NO_LINES
+    // NOTCH_LINES_LEFT_OUT: a 40 dB notch 35 Hz above the profile's start, where the wide kernel reaches past it.
+    judgeSpectrum(exact(on, { dof: 400 }), parseProfile(JSON.stringify({
+      title: "notch", units: "g2/Hz", points: [{ hz: 20, level: 0.01 }, { hz: 50, level: 0.01 }, { hz: 55, level: 0.000001 }, { hz: 60, level: 0.01 }, { hz: 1000, level: 0.01 }],
+      tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
+    }), "notch.json")),
   ];
   for (const c of judged) out.push(...c.findings);
   out.push(...withDoubts(judged[1]!, [{ code: "CLIPPING", values: {}, text: "in doubt" }]).findings.filter((f) => f.code === "FAIL_IN_DOUBT"));

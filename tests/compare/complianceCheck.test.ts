@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { chanceAbove } from "../../src/compare/decisionRule.js";
 import { bandAt, judgeSpectrum, longerRecordFactor, overallVerdict, type SpectrumUnderTest } from "../../src/compare/complianceCheck.js";
 import { parseProfile } from "../../src/compare/testProfile.js";
 import { bandMeanSquare, bandRms, welchPsd } from "../../src/estimate/psdEstimate.js";
@@ -18,12 +19,14 @@ describe("bandAt", () => {
 });
 
 describe("longerRecordFactor", () => {
-  it("is the DOF multiple at which a ratio to the limit would first be shown at the per-test level", () => {
+  it("is the DOF multiple at which a line truly at that ratio to the limit is shown with 90 % probability (not the 50 % where its mean meets the threshold)", () => {
     const level = 2.5e-5;
     const f = longerRecordFactor(1.2, 30, level)!;
     expect(f).toBeGreaterThan(1);
-    expect(1.2).toBeGreaterThan(upperFactor(30 * f, level));
-    expect(1.2).toBeLessThan(upperFactor(30 * f * 0.98, level));
+    expect(chanceAbove(30 * f, 1.2, upperFactor(30 * f, level))).toBeGreaterThanOrEqual(0.9);
+    expect(chanceAbove(30 * f * 0.98, 1.2, upperFactor(30 * f * 0.98, level))).toBeLessThan(0.9);
+    // The 50 % factor (mean at the threshold) is shorter.
+    expect(longerRecordFactor(1.2, 30, level, 0.5)!).toBeLessThan(f);
     expect(longerRecordFactor(0.8, 30, level)).toBeGreaterThan(1);
     expect(longerRecordFactor(3, 100, level)).toBe(1);
   });
