@@ -207,6 +207,8 @@ export interface PowerInputs {
   upperSharedBy: number;
   /** Spectra the record's verdict rests on (ruleLevels `family`); 1 when absent. */
   family?: number | undefined;
+  /** The single lines' part of the line alpha (the rest goes to the stretches); 1 when absent. */
+  singleLineShare?: number | undefined;
   /**
    * The kernel's weight on a departure `widthLines` wide, centred on a line (spectralKernel
    * `departureShare`): how much of it the centre line sees. Absent: 1 (the departure seen whole).
@@ -251,9 +253,10 @@ export function powerAt(dof: number, p: PowerInputs, req: PowerRequirement = DEF
   const need = Math.floor(p.allowance / p.inflation) + 1;
   // With the largest of k control channels, the departure is taken on every one of them alike: the largest
   // shows a line above its threshold unless all k stay below it, 1 - (1 - P1)^k.
-  const one = chanceAbove(dof, seenUp, largestUpperFactor(dof, lv.upper.lineTest, k));
+  const single = p.singleLineShare ?? 1;
+  const one = chanceAbove(dof, seenUp, largestUpperFactor(dof, lv.upper.lineTest * single, k));
   const up = k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(one, 1 - 1e-16))) : one;
-  const down = chanceBelow(dof, seenDown, lowerFactor(dof, lv.lower.lineTest));
+  const down = chanceBelow(dof, seenDown, lowerFactor(dof, lv.lower.lineTest * single));
   const linesAbove = binomialAtLeast(need, looks, up);
   const linesBelow = binomialAtLeast(need, looks, down);
   const nuR = dof * p.rmsDofRatio;
