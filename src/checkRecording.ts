@@ -1,5 +1,6 @@
 import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
-import { judgeSpectrum, overallVerdict, withDoubts, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
+import { levelGate } from "./compare/levelGate.js";
+import { judgeSpectrum, overallVerdict, withDoubts, withGate, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
 import { InputError, quoted } from "./errors.js";
 import { readProfileText } from "./read/profileFile.js";
@@ -99,14 +100,18 @@ export async function checkRecording(file: string, profile: TestProfile, options
   // is split over them (family). With control only the control spectrum decides; the channels are judged
   // alone for the reader, each as if it were the record's one spectrum.
   const family = options.control ? 1 : analysis.channels.length;
-  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum({ ...spectrumOf(c, analysis), family }, profile), c.doubtFindings));
+  // The level gate (level swings beyond the tolerance over the run, drift dominating): a pass needs it clear.
+  const tolDb = profile.rmsToleranceDb ? Math.min(profile.rmsToleranceDb.upper, profile.rmsToleranceDb.lower) : Math.min(...profile.bands.map((b) => Math.min(b.upperDb, b.lowerDb)));
+  const gate = (c: ChannelAnalysis) => levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, c.parseval.belowFirstLineShare);
+  const judged = analysis.channels.map((c) => withDoubts(withGate(judgeSpectrum({ ...spectrumOf(c, analysis), family }, profile), gate(c)), c.doubtFindings));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }
   const pos = controlPositions(analysis, options.control.channels);
   const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
   const doubts = pos.flatMap((i) => analysis.channels[i]!.doubtFindings.map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
-  const judgement = withDoubts(judgeSpectrum(combined, profile), doubts);
+  const gates = pos.flatMap((i) => gate(analysis.channels[i]!).map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
+  const judgement = withDoubts(withGate(judgeSpectrum(combined, profile), gates), doubts);
   return {
     verdict: judgement.verdict, analysis, profile, channels: judged,
     roles: analysis.channels.map((_, i) => (pos.includes(i) ? "control" : "monitor")),

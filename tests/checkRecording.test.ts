@@ -42,7 +42,18 @@ describe("checkRecording with control channels (multipoint control)", () => {
   it("the largest of channels 1 and 2 fails (the hot channel is above the band)", async () => {
     const r = await checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["ch1", "ch2"], rule: "largest" } });
     expect(r.verdict).toBe("fail");
-    expect(r.control!.judgement.rule.lineTestLevel).toBeLessThan(r.channels[2]!.rule.lineTestLevel);
+    // The largest of 2 is tested by its own distribution (F^2): its upper limits carry its mean reading at the limit.
+    expect(r.control!.judgement.rule.largestOf!.channels).toBe(2);
+    expect(r.control!.judgement.rule.largestOf!.meanAllowanceDb).toBeGreaterThan(0);
+    expect(r.control!.judgement.rule.family).toBe(1);
+  });
+  it("without control every channel is judged at 5 % / n, so the false-fail rate holds per record", async () => {
+    const r = await checkRecording(file, profile, { segmentLength: 1024 });
+    const n = r.channels.length;
+    expect(n).toBeGreaterThan(1);
+    for (const c of r.channels) expect(c.rule.family).toBe(n);
+    const alone = await checkRecording(file, profile, { segmentLength: 1024, channels: ["1"] });
+    expect(r.channels[0]!.rule.lineTestLevel).toBeCloseTo(alone.channels[0]!.rule.lineTestLevel / n, 15);
   });
   it("an unknown control channel is an input error naming the channels there are", async () => {
     await expect(checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["9"], rule: "average" } })).rejects.toThrow(/CHANNEL_NOT_FOUND/);

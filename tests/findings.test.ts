@@ -4,6 +4,7 @@ import { describe, expect, it } from "vitest";
 import { _channelFindings, analyzeRecording } from "../src/analyzeRecording.js";
 import { checkRecording, loadProfile } from "../src/checkRecording.js";
 import { judgeSpectrum, withDoubts, type SpectrumUnderTest } from "../src/compare/complianceCheck.js";
+import { levelGate } from "../src/compare/levelGate.js";
 import { parseProfile } from "../src/compare/testProfile.js";
 import type { Finding } from "../src/findings.js";
 import { tempDir } from "./helpers.js";
@@ -127,6 +128,9 @@ async function allFindings(): Promise<Finding[]> {
     }), "notch.json")),
   ];
   for (const c of judged) out.push(...c.findings);
+  // The level gate: a run loud for its first half and quiet for its second, and drift that dominates.
+  const step = Array.from({ length: 64 }, (_, i) => (i < 32 ? db(2) : db(-2.9)));
+  out.push(...levelGate(step, 1, 1, 0.64));
   out.push(...withDoubts(judged[1]!, [{ code: "CLIPPING", values: {}, text: "in doubt" }]).findings.filter((f) => f.code === "FAIL_IN_DOUBT"));
 
   // And the real thing: the samples checked as a user would, control channels as one spectrum.

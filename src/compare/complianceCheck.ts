@@ -823,6 +823,17 @@ export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelComp
   return { ...c, verdict: "inconclusive", findings, reasons: findings.map((f) => f.text), decide: undefined };
 }
 
+/**
+ * The level gate's findings (compare/levelGate.ts: level swings beyond the tolerance over the run, drift
+ * dominating) stop a pass: it becomes INCONCLUSIVE with the reason. A shown failure stays a failure (the
+ * average is outside whatever the run did), with the finding added.
+ */
+export function withGate(c: ChannelCompliance, gate: Finding[]): ChannelCompliance {
+  if (gate.length === 0) return c;
+  const findings = [...gate, ...c.findings.filter((f) => f.code !== "PASS")];
+  return { ...c, verdict: c.verdict === "pass" ? "inconclusive" : c.verdict, findings, reasons: findings.map((f) => f.text) };
+}
+
 /** Excursions ordered by how far their worst line lies beyond its limit, largest first (a copy). */
 export function worstFirst(excursions: Excursion[]): Excursion[] {
   return [...excursions].sort((a, b) => Math.abs(b.worstDb - b.limitDb) - Math.abs(a.worstDb - a.limitDb));

@@ -184,6 +184,22 @@ describe("judgeSpectrum known answers (records made by the test: tests/shapedRec
     expect(c3.verdict).toBe("fail");
     expect(codes(c3)).toContain("OUTER_LIMIT");
   });
+  it("a profile's own power requirement decides the DOF a pass needs; every verdict states the power against the default too; none asks nothing", () => {
+    const x = shapedRecord((f) => (f >= 20 && f <= 1000 ? 0.01 : 0), 2560, 1 << 16, 13);
+    const sp = spectrum(x, 2560, 1024);
+    const dflt = judgeSpectrum(sp, flat(20, 1000));
+    const lax = judgeSpectrum(sp, flat(20, 1000, { power: { departureDb: 3, probabilityPercent: 90 } }));
+    const none = judgeSpectrum(sp, flat(20, 1000, { power: "none" }));
+    expect(dflt.rule.requirement!.source).toBe("default");
+    expect(lax.rule.requirement).toMatchObject({ source: "profile", departureDb: 3, probability: 0.9, widthLines: 3 });
+    expect(lax.dof.forPower).toBeLessThan(dflt.dof.forPower);
+    expect(lax.rule.powerDefault.least).toBeCloseTo(dflt.rule.power.least, 12);
+    expect(lax.rule.dofForDefaultPower).toBe(dflt.dof.forPower);
+    expect(none.rule.requirement).toBeNull();
+    expect(none.dof.forPower).toBe(0);
+    expect(none.findings.some((f) => f.code === "DOF_BELOW_POWER")).toBe(false);
+    expect(() => flat(20, 1000, { power: { departureDb: 3, share: 5 } })).toThrow(/power/);
+  });
   it("band RMS counts the part of each end line inside the band: 100-110 Hz of a flat 0.01 g2/Hz is sqrt(0.1), a one-line band its width", () => {
     const n = 2049;
     const est = { psd: new Float64Array(n).fill(0.01), frequencyHz: new Float64Array(n).map((_, k) => k * 1.25), lineSpacingHz: 1.25 };
