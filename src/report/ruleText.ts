@@ -18,6 +18,7 @@ export const RULE_SUMMARY =
   `With the largest of k control channels, the upper tests use the distribution of the largest of k estimates (the k-th power of the chi-square CDF; channels of one test are bounded by it), and its upper limits carry the largest's mean reading at the limit. ` +
   `PASS also needs the DOF at which a ${DECISION_RULE.departureDb} dB departure beyond the band over ${pct(DECISION_RULE.departureShare)} of the lines, in runs of ${DECISION_RULE.departureWidthLines} neighbouring lines or wider (seen through the window's kernel), or an RMS ${DECISION_RULE.rmsBeyondDb} dB outside its tolerance, fails with at least ${pct(DECISION_RULE.power)} probability, and the profile's minDof; ` +
   `a profile may state its own requirement (power) or none, and every verdict states the power against this default. Narrower departures are seen with less power (one line: about 60 % of its excess reaches the line). ` +
+  `A run whose level swings beyond the tolerance over its course (blocks of 1 s stretch mean squares, at most 1 % false doubts on a stationary record) or whose drift holds most of its mean square is not a pass: inconclusive. ` +
   `An inconclusive verdict gives the run length in seconds that would decide it with at least 90 % probability if the spectrum is as measured.`;
 
 /** The rule as it applied to one judged spectrum: its rates at the achieved DOF. */

@@ -61,22 +61,22 @@ describe("largest-of control by Monte Carlo (records made by the test, not by sy
       for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
       // At 629 DOF the rule has its power: a conforming largest-of record passes (more than half the time).
       expect(passes[2]!).toBeGreaterThanOrEqual(lower999(n, 0.5));
-    }, 120_000);
+    }, 120_000 * SCALE);
     it(`${k} channels all on the +1 dB band edge (RMS on its +1 dB edge too): false fails at most 5 % (analytic bound 5 %)`, () => {
       const { fails } = run((f) => nominal(f) * db(1), k, 2000 * k);
       for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
-    }, 120_000);
+    }, 120_000 * SCALE);
   }
   it("3 correlated channels (rho 0.8) on the +1 dB edge: the independent case bounds them, at most 5 %", () => {
     const { fails } = run((f) => nominal(f) * db(1), 3, 5000, 0.8);
     for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
-  }, 120_000);
+  }, 120_000 * SCALE);
   it("3 channels each +0.5 dB (inside band and RMS tolerance), 28.5 DOF: at most 5 % (was 68 %)", () => {
     const { fails } = run((f) => nominal(f) * db(0.5), 3, 6000);
     expect(fails[0]!).toBeLessThanOrEqual(limit);
-  }, 120_000);
+  }, 120_000 * SCALE);
   it("the largest of 3 with a real departure (+2.5 dB on every channel, 1.5 dB beyond the band) still fails at 208 DOF (power kept)", () => {
     const { fails } = run((f) => nominal(f) * db(2.5), 3, 7000);
     expect(fails[1]!).toBeGreaterThanOrEqual(lower999(n, 0.95));
-  }, 120_000);
+  }, 120_000 * SCALE);
 });

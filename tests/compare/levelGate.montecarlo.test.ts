@@ -34,7 +34,7 @@ describe("level gate: false doubts on stationary records, at most 1 %", () => {
       }
       console.log(`${name}: ${doubted} of ${n} stationary records doubted`);
       expect(doubted).toBeLessThanOrEqual(upper999(n, LEVEL_GATE.falseDoubtRate));
-    }, 60_000);
+    }, 60_000 * SCALE);
   }
 });
 
@@ -48,7 +48,7 @@ describe("level gate: a run that swings outside the tolerance is caught", () => 
     }
     console.log(`step +2/-2.9 dB: ${doubted} of ${n} doubted`);
     expect(doubted).toBeGreaterThanOrEqual(lower999(n, 0.99));
-  }, 60_000);
+  }, 60_000 * SCALE);
   it("a swing inside the tolerance (+-0.5 dB halves, +-1 dB allowed) is not doubted more than 1 %", () => {
     let doubted = 0;
     for (let r = 0; r < n; r++) {
@@ -57,7 +57,7 @@ describe("level gate: a run that swings outside the tolerance is caught", () => 
       if (levelSwing(stretchMs(x), 1).excessDb > 0) doubted++;
     }
     expect(doubted).toBeLessThanOrEqual(upper999(n, LEVEL_GATE.falseDoubtRate));
-  }, 60_000);
+  }, 60_000 * SCALE);
   it("drift holding 64 % of the mean square dominates: DRIFT_DOMINATES; 10 % does not", () => {
     expect(levelGate(undefined, 1, 1, 0.64).map((f) => f.code)).toEqual(["DRIFT_DOMINATES"]);
     expect(levelGate(undefined, 1, 1, 0.1)).toEqual([]);

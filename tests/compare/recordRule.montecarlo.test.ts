@@ -27,7 +27,7 @@ describe("the false-fail rate per record (records of 1, 3 and 6 judged channels)
       }
       console.log(`${count} channel(s) on the +1 dB edge: record fails ${fails[0]} at 208.5 DOF, ${fails[1]} at 629.2 DOF, of ${n}`);
       for (const f of fails) expect(f).toBeLessThanOrEqual(upper999(n, 0.05));
-    }, 120_000);
+    }, 120_000 * SCALE);
   }
 });
 
@@ -66,7 +66,7 @@ describe("narrow departures: the power covers departures 3 lines wide or wider, 
       expect(fails).toBeGreaterThanOrEqual(lower999(n, analytic));
       if (width === 3) expect(analytic).toBeGreaterThanOrEqual(0.95);
       if (width === 1) expect(analytic).toBeLessThan(0.95);
-    }, 120_000);
+    }, 120_000 * SCALE);
   }
 });
 
@@ -105,7 +105,7 @@ describe("the run length that decides an inconclusive verdict with at least 90 %
     }
     console.log(`conforming: ${decided} of ${bases * reruns} decided at the stated lengths (${seconds.map((s) => s.toFixed(1)).join(", ")} s)`);
     expect(decided).toBeGreaterThanOrEqual(lower999(bases * reruns, 0.9));
-  }, 300_000);
+  }, 300_000 * SCALE);
   it(`records with a departure 1 dB beyond the band over 3 lines at 208 DOF (not yet shown): at least 90 % decide at the stated length`, () => {
     let decided = 0;
     let tried = 0;
@@ -119,5 +119,5 @@ describe("the run length that decides an inconclusive verdict with at least 90 %
     console.log(`departure: ${decided} of ${tried * reruns} decided`);
     expect(tried).toBeGreaterThan(0);
     expect(decided).toBeGreaterThanOrEqual(lower999(tried * reruns, 0.9));
-  }, 300_000);
+  }, 300_000 * SCALE);
 });
