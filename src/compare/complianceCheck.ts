@@ -61,7 +61,8 @@ export interface Excursion {
   adjustedP: number;
   /**
    * For a run not shown: how many times longer a record would show its worst line with at least 90 %
-   * probability, if that line's true level is what was measured (1: already shown).
+   * probability, if the true spectrum is what was measured (read again through the window's kernel, as a
+   * new run would show it). Undefined when that reading is inside the limit: no run length shows it.
    */
   longerRecordFactor: number | undefined;
   /** The same as a run length in seconds at this sample rate, segment and overlap. */
@@ -508,6 +509,23 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
 
   const secondsAt = (v: number | undefined) => (v === undefined ? undefined : secondsForDof(sp, v));
 
+  // The measured spectrum taken as the truth over each line's cell, read again through the window's kernel
+  // (what a new run would show on average): c_0 of the line's own cell, c_d of each cell d lines away.
+  const cellShare: number[] = [departureShare(kernel, 1)];
+  for (let d = 1; d <= kernel.wideHalfWidthBins; d++) cellShare.push((departureShare(kernel, 2 * d + 1) - departureShare(kernel, 2 * d - 1)) / 2);
+  const reread = (i: number) => {
+    let e = 0;
+    let wsum = 0;
+    for (let d = -(cellShare.length - 1); d < cellShare.length; d++) {
+      const q = i + d;
+      if (q < 1 || q > half) continue;
+      const c = cellShare[Math.abs(d)]!;
+      e += c * (q === half ? 2 * sp.psd[q]! : sp.psd[q]!);
+      wsum += c;
+    }
+    return e / wsum;
+  };
+
   // Excursions: runs of neighbouring lines outside the band as measured.
   const excursions: Excursion[] = [];
   const plain = nu > 0 ? chiSquareIntervalFactors(nu, sp.confidence) : { lower: 0, upper: Infinity };
@@ -535,9 +553,11 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
     const pOne = v > 0 ? (above ? chiSquareSurvival(v * ratio, v) : chiSquareCdf(v * ratio, v)) : 1;
     // With the largest of k, the chance that any of k at the limit reaches this: 1 - (1 - p)^k.
     const p = above && k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(pOne, 1 - 1e-16))) : pOne;
-    // The worst line's true level taken as measured (for the largest of k: measured / its mean at the limit, per channel).
-    const trueRatio = above ? ratio / meanAt(v) : ratio;
-    const factor = shown ? undefined : longerRecordFactor(trueRatio, v, above ? upLevel : loLevel, DECIDE_PROBABILITY, above ? k : 1);
+    // The worst line's true level taken as measured, read again through the kernel as a new run would (for the
+    // largest of k: over its mean at the limit, per channel); undefined when that reading is inside the limit.
+    const again = reread(idx[worst]!) / limit;
+    const trueRatio = above ? again / meanAt(v) : again;
+    const factor = shown || (above ? trueRatio <= 1 : trueRatio >= 1) ? undefined : longerRecordFactor(trueRatio, v, above ? upLevel : loLevel, DECIDE_PROBABILITY, above ? k : 1);
     excursions.push({
       fromHz: l.frequencyHz, toHz: lines[j]!.frequencyHz, direction: l.status as "above" | "below", lines: j - i + 1,
       worstDb: w.deviationDb, worstHz: w.frequencyHz, limitDb: above ? w.upperDb : -w.lowerDb,
@@ -691,23 +711,12 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
     // The measured spectrum taken as the truth, over each line's cell: a new run reads it through the
     // window's kernel, c_0 of the line's own cell and c_d of each cell d lines away (departureShare), so a
     // lone outlying line reads about 0.6 of its excess again. The lines outside as read that way count.
-    const cellShare: number[] = [departureShare(kernel, 1)];
-    for (let d = 1; d <= kernel.wideHalfWidthBins; d++) cellShare.push((departureShare(kernel, 2 * d + 1) - departureShare(kernel, 2 * d - 1)) / 2);
     const expectUp: number[] = [];
     const expectLo: number[] = [];
     const outside: number[] = [];
     for (let j = 0; j < m; j++) {
       const i = idx[j]!;
-      let e = 0;
-      let wsum = 0;
-      for (let d = -(cellShare.length - 1); d < cellShare.length; d++) {
-        const q = i + d;
-        if (q < 1 || q > half) continue;
-        const c = cellShare[Math.abs(d)]!;
-        e += c * (q === half ? 2 * sp.psd[q]! : sp.psd[q]!);
-        wsum += c;
-      }
-      e /= wsum;
+      const e = reread(i);
       const per = e / meanAt(nuAt(i));
       expectUp.push(per / limitsUp[j]!);
       expectLo.push(e / limitsLo[j]!);

@@ -9,7 +9,7 @@ import type { TestMeta } from "../read/testMeta.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
 import { printable } from "./printable.js";
-import { decideLine, excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
+import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 
 export type { CheckResult };
 
@@ -40,8 +40,6 @@ function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string
   out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
   out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
   out.push(`  rule       ${ruleLine(c)}`);
-  const decide = decideLine(c);
-  if (decide) out.push(`  decide     ${decide}`);
   const un = unjudgedText(c);
   if (un) out.push(`  unjudged   ${un}`);
   const shown = worstFirst(c.excursions).slice(0, 8);

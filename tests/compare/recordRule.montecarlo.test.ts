@@ -4,7 +4,7 @@ import { chanceAbove, chanceBelow, lowerFactor, upperFactor } from "../../src/co
 import { departureShare, spectralKernel } from "../../src/estimate/spectralKernel.js";
 import { spectralWindow } from "../../src/estimate/windows.js";
 import { shapedRecord } from "../shapedRecords.js";
-import { channels, db, dofOf, FS, K208, K629, lower999, N, nominal, SCALE, slopes, spectrumOfRecord, upper999 } from "./mcRecords.js";
+import { channels, db, dofOf, FS, K208, K629, LENGTH, lower999, N, nominal, SCALE, slopes, spectrumOfRecord, upper999 } from "./mcRecords.js";
 
 /**
  * The rate per record, the departure width the power covers, and the run length that decides, by seeded
@@ -38,7 +38,7 @@ describe("narrow departures: the power covers departures 3 lines wide or wider, 
   /** True PSD 1.5 dB beyond the +-1 dB band (+-2.5 dB) over `width` lines centred on each of `centres` (Hz), the rest on the profile. */
   const departure = (centres: number[], width: number, sign: 1 | -1) => (f: number) =>
     nominal(f) * (centres.some((c) => Math.abs(f - c) < (width * df) / 2) ? db(2.5 * sign) : 1);
-  const probe = judgeSpectrum(spectrumOfRecord(shapedRecord(nominal, FS, 1 << 16, 1), K208), slopes);
+  const probe = judgeSpectrum(spectrumOfRecord(shapedRecord(nominal, FS, LENGTH, 1), K208), slopes);
   const forPower = probe.dof.forPower;
   const K = Math.ceil((19 * forPower) / 36 + 1);
 
@@ -51,7 +51,7 @@ describe("narrow departures: the power covers departures 3 lines wide or wider, 
   for (const [width, sign] of [[3, 1], [3, -1], [2, 1], [1, 1], [1, -1]] as const) {
     it(`a departure ${sign > 0 ? "above" : "below"} over ${width} line(s) at one place, at the DOF a pass needs: fail rate at least the analytic one${width === 3 ? " (>= 95 %, the claim)" : " (below 95 %: outside the claim)"}`, () => {
       expect(dofOf(K)).toBeGreaterThanOrEqual(forPower);
-      const c = judgeSpectrum(spectrumOfRecord(shapedRecord(nominal, FS, 1 << 16, 2), K), slopes);
+      const c = judgeSpectrum(spectrumOfRecord(shapedRecord(nominal, FS, LENGTH, 2), K), slopes);
       const nu = c.dof.achieved;
       const s = departureShare(kernel, width);
       // The centre line sees s of the departure and 1 - s of the profile around it (the band's +-1 dB).
@@ -60,7 +60,7 @@ describe("narrow departures: the power covers departures 3 lines wide or wider, 
       const analytic = sign > 0 ? chanceAbove(nu, seen, upperFactor(nu, level)) : chanceBelow(nu, seen, lowerFactor(nu, level));
       let fails = 0;
       for (let r = 0; r < n; r++) {
-        if (judgeSpectrum(spectrumOfRecord(shapedRecord(departure([200], width, sign), FS, 1 << 16, 40_000 + 1000 * width + (sign > 0 ? 0 : 500) + r), K), slopes).verdict === "fail") fails++;
+        if (judgeSpectrum(spectrumOfRecord(shapedRecord(departure([200], width, sign), FS, LENGTH, 40_000 + 1000 * width + (sign > 0 ? 0 : 500) + r), K), slopes).verdict === "fail") fails++;
       }
       console.log(`${width} line(s) ${sign > 0 ? "above" : "below"} at ${dofOf(K).toFixed(1)} DOF: ${fails} of ${n} fail; analytic (centre line alone) ${(100 * analytic).toFixed(1)} %`);
       expect(fails).toBeGreaterThanOrEqual(lower999(n, analytic));
@@ -76,11 +76,11 @@ describe("the run length that decides an inconclusive verdict with at least 90 %
    * that spectrum (each line's value over its cell), as long as psdgate says, and count the decided verdicts.
    */
   function trial(truth: (f: number) => number, seed: number, K: number, reruns: number) {
-    const base = judgeSpectrum(spectrumOfRecord(shapedRecord(truth, FS, 1 << 16, seed), K), slopes);
+    const base = judgeSpectrum(spectrumOfRecord(shapedRecord(truth, FS, LENGTH, seed), K), slopes);
     expect(base.verdict).toBe("inconclusive");
     const d = base.decide!;
     expect(d.seconds).toBeDefined();
-    const sp = spectrumOfRecord(shapedRecord(truth, FS, 1 << 16, seed), K);
+    const sp = spectrumOfRecord(shapedRecord(truth, FS, LENGTH, seed), K);
     const measured = (f: number) => sp.psd[Math.min(sp.psd.length - 1, Math.round(f / sp.lineSpacingHz))]! * (Math.round(f / sp.lineSpacingHz) === sp.psd.length - 1 ? 2 : 1);
     const samples = Math.ceil(d.seconds! * FS);
     const length = 1 << Math.ceil(Math.log2(samples));
@@ -111,7 +111,7 @@ describe("the run length that decides an inconclusive verdict with at least 90 %
     let tried = 0;
     const dep = (f: number) => nominal(f) * (Math.abs(f - 200) < 12 ? db(2) : 1);
     for (let b = 0; b < bases * 3 && tried < bases; b++) {
-      const base = judgeSpectrum(spectrumOfRecord(shapedRecord(dep, FS, 1 << 16, 70_000 + b), K208), slopes);
+      const base = judgeSpectrum(spectrumOfRecord(shapedRecord(dep, FS, LENGTH, 70_000 + b), K208), slopes);
       if (base.verdict !== "inconclusive") continue;
       tried++;
       decided += trial(dep, 70_000 + b, K208, reruns).decided;

@@ -58,7 +58,7 @@ describe("check --report and psd --report pages (no browser)", () => {
     expect(html.slice(reasons, html.indexOf("Test identity"))).toMatch(/DOF of \d+ a pass needs/);
     for (const id of ["outer-upper", "outer-lower", "dev-outer-upper", "dev-outer-lower"]) expect(html).toMatch(new RegExp(`data-series="${id}" data-points="[1-9]`));
     expect(r.stdout).toMatch(/control channel judged alone; the record's verdict rests on the control spectrum\): (PASS|FAIL|INCONCLUSIVE)/);
-    if (r.code === 3) expect(r.stdout).toMatch(/decide {5}a run of [\d.]+ s/);
+    if (r.code === 3) expect(r.stdout).toMatch(/because {4}a run of [\d.]+ s \(\d+ DOF\) would decide this verdict/);
   });
 
   it("check --report in m/s2: every unit label is an acceleration or its square, never m/s²²", async () => {
