@@ -1,5 +1,6 @@
 import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
 import { levelGate } from "./compare/levelGate.js";
+import { bandMeanSquare } from "./estimate/psdEstimate.js";
 import { judgeSpectrum, overallVerdict, withDoubts, withGate, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
 import { InputError, quoted } from "./errors.js";
@@ -102,7 +103,14 @@ export async function checkRecording(file: string, profile: TestProfile, options
   const family = options.control ? 1 : analysis.channels.length;
   // The level gate (level swings beyond the tolerance over the run, drift dominating): a pass needs it clear.
   const tolDb = profile.rmsToleranceDb ? Math.min(profile.rmsToleranceDb.upper, profile.rmsToleranceDb.lower) : Math.min(...profile.bands.map((b) => Math.min(b.upperDb, b.lowerDb)));
-  const gate = (c: ChannelAnalysis) => levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, c.parseval.belowFirstLineShare);
+  // The share of the record's mean square (about its mean) below the profile's first frequency: what the
+  // segments' detrending removed plus the lines below it.
+  const f0 = profile.breakpoints[0]!.hz;
+  const belowShare = (c: ChannelAnalysis) => {
+    const total = c.parseval.rmsTime * c.parseval.rmsTime;
+    return total > 0 ? Math.max(0, 1 - bandMeanSquare(c.psd, f0, analysis.input.sampleRateHz / 2) / total) : 0;
+  };
+  const gate = (c: ChannelAnalysis) => levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, belowShare(c), f0);
   const judged = analysis.channels.map((c) => withDoubts(withGate(judgeSpectrum({ ...spectrumOf(c, analysis), family }, profile), gate(c)), c.doubtFindings));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };

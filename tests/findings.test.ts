@@ -130,7 +130,7 @@ async function allFindings(): Promise<Finding[]> {
   for (const c of judged) out.push(...c.findings);
   // The level gate: a run loud for its first half and quiet for its second, and drift that dominates.
   const step = Array.from({ length: 64 }, (_, i) => (i < 32 ? db(2) : db(-2.9)));
-  out.push(...levelGate(step, 1, 1, 0.64));
+  out.push(...levelGate(step, 1, 1, 0.64, 20));
   out.push(...withDoubts(judged[1]!, [{ code: "CLIPPING", values: {}, text: "in doubt" }]).findings.filter((f) => f.code === "FAIL_IN_DOUBT"));
 
   // And the real thing: the samples checked as a user would, control channels as one spectrum.

@@ -17,15 +17,15 @@ import type { Finding } from "../findings.js";
  * tolerance itself: the false-doubt rate is at most 1 % (normal approximation of a block mean of n_b >= 8
  * values; tests/compare/levelGate.montecarlo.test.ts measures it).
  *
- * Drift: the share of the record's mean square that the segments' detrending removes (Parseval's
- * belowFirstLineShare: the content below the first line of the analysis) above one half: it dominates.
+ * Drift: the share of the record's mean square (about its mean) below the profile's first frequency (what
+ * the segments' detrending removes, and the lines below it) above one half: it dominates.
  */
 export const LEVEL_GATE = {
   /** Family-wise false-doubt rate of the level-swing test on a stationary record. */
   falseDoubtRate: 0.01,
   blocks: 8,
   minPerBlock: 8,
-  /** The share of the mean square below the first line above which drift dominates. */
+  /** The share of the mean square below the profile's first frequency above which it dominates. */
   driftShare: 0.5,
 } as const;
 
@@ -87,7 +87,7 @@ export function levelSwing(stretchMs: ArrayLike<number>, toleranceDb: number): L
  * The gate's findings for one channel (empty when it clears): LEVEL_SWING and DRIFT_DOMINATES.
  * `toleranceDb`: the profile's RMS tolerance as a level (the smaller side), else its narrowest band.
  */
-export function levelGate(stretchMs: ArrayLike<number> | undefined, stretchS: number, toleranceDb: number, belowFirstLineShare: number): Finding[] {
+export function levelGate(stretchMs: ArrayLike<number> | undefined, stretchS: number, toleranceDb: number, belowShare: number, belowHz: number): Finding[] {
   const out: Finding[] = [];
   if (stretchMs !== undefined) {
     const s = levelSwing(stretchMs, toleranceDb);
@@ -103,11 +103,11 @@ export function levelGate(stretchMs: ArrayLike<number> | undefined, stretchS: nu
       });
     }
   }
-  if (Number.isFinite(belowFirstLineShare) && belowFirstLineShare > LEVEL_GATE.driftShare) {
+  if (Number.isFinite(belowShare) && belowShare > LEVEL_GATE.driftShare) {
     out.push({
       code: "DRIFT_DOMINATES",
-      values: { sharePercent: 100 * belowFirstLineShare, limitPercent: 100 * LEVEL_GATE.driftShare },
-      text: `${(100 * belowFirstLineShare).toFixed(1)} % of the record's mean square lies below the analysis's first line (drift or a slow swing), more than ${(100 * LEVEL_GATE.driftShare).toFixed(0)} %: the record is not the random vibration the profile describes`,
+      values: { sharePercent: 100 * belowShare, limitPercent: 100 * LEVEL_GATE.driftShare, belowHz },
+      text: `${(100 * belowShare).toFixed(1)} % of the record's mean square lies below the profile's first frequency ${belowHz} Hz (drift or a slow swing), more than ${(100 * LEVEL_GATE.driftShare).toFixed(0)} %: the record is not the random vibration the profile describes`,
     });
   }
   return out;

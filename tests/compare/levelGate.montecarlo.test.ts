@@ -59,8 +59,8 @@ describe("level gate: a run that swings outside the tolerance is caught", () => 
     expect(doubted).toBeLessThanOrEqual(upper999(n, LEVEL_GATE.falseDoubtRate));
   }, 60_000 * SCALE);
   it("drift holding 64 % of the mean square dominates: DRIFT_DOMINATES; 10 % does not", () => {
-    expect(levelGate(undefined, 1, 1, 0.64).map((f) => f.code)).toEqual(["DRIFT_DOMINATES"]);
-    expect(levelGate(undefined, 1, 1, 0.1)).toEqual([]);
+    expect(levelGate(undefined, 1, 1, 0.64, 20).map((f) => f.code)).toEqual(["DRIFT_DOMINATES"]);
+    expect(levelGate(undefined, 1, 1, 0.1, 20)).toEqual([]);
   });
   it("too short a run (fewer than 16 stretches) is not tested", () => {
     expect(levelSwing(new Float64Array(15).fill(1), 1).tested).toBe(false);
