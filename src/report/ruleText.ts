@@ -6,7 +6,7 @@ import { fixed } from "./format.js";
 export const VERDICT_MEANING: Record<Verdict, string> = {
   pass: "no failure is shown, and the record had the degrees of freedom, coverage, resolution, duration and data quality to show one",
   fail: `the data show the profile is not met (lines outside their band beyond the allowance, a line beyond an outer limit, or the RMS outside its tolerance), with a false-fail rate of at most ${pct(DECISION_RULE.falseFailRate)} per record (over every channel the verdict rests on) for any conforming record`,
-  inconclusive: "either no failure is shown but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration, an RMS too close to its limit to call: the run length that would decide is given), or the data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch), so no verdict can rest on them",
+  inconclusive: "either no failure is shown but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration, an RMS too close to its limit to call, a level that swings beyond the tolerance over the run or drift that dominates: the run length that would decide is given where a longer run can), or the data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch), so no verdict can rest on them",
 };
 
 /** The decision rule in one paragraph. */
@@ -17,7 +17,7 @@ export const RULE_SUMMARY =
   `The rate is per record: with n channels judged, each is tested at ${pct(DECISION_RULE.falseFailRate)}/n. ` +
   `With the largest of k control channels, the upper tests use the distribution of the largest of k estimates (the k-th power of the chi-square CDF; channels of one test are bounded by it), and its upper limits carry the largest's mean reading at the limit. ` +
   `PASS also needs the DOF at which a ${DECISION_RULE.departureDb} dB departure beyond the band over ${pct(DECISION_RULE.departureShare)} of the lines, in runs of ${DECISION_RULE.departureWidthLines} neighbouring lines or wider (seen through the window's kernel), or an RMS ${DECISION_RULE.rmsBeyondDb} dB outside its tolerance, fails with at least ${pct(DECISION_RULE.power)} probability, and the profile's minDof; ` +
-  `a profile may state its own requirement (power) or none, and every verdict states the power against this default. Narrower departures are seen with less power (one line: about 60 % of its excess reaches the line). ` +
+  `a profile may state its own requirement (key power: departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent; or "none"), and every verdict states the power against this default. Narrower departures are seen with less power (one line: about 60 % of its excess reaches the line). ` +
   `A run whose level swings beyond the tolerance over its course (blocks of 1 s stretch mean squares, at most 1 % false doubts on a stationary record) or whose drift holds most of its mean square is not a pass: inconclusive. ` +
   `An inconclusive verdict gives the run length in seconds that would decide it with at least 90 % probability if the spectrum is as measured.`;
 
