@@ -60,12 +60,18 @@ export function cascadeMagnitude(sections: readonly DigitalBiquad[], gain: numbe
 
 /**
  * A cascade of biquads run over blocks, transposed direct form II (one state pair per section).
- * State carries across blocks. Before the first sample the state is set to the steady state for a
- * constant input (as scipy.signal.lfilter_zi gives it) equal to the mean of the first block, so a DC
- * offset such as gravity on a vertical axis starts no transient. Starting at the first sample instead
- * (lfilter_zi * x[0]) would kick the 0.4 Hz high-pass with a step of that sample's noise, which on a
- * zero-mean record shows up as a second-long transient in the first MTVV window. A non-finite input is replaced by the last finite
- * one (counted in `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
+ * State carries across blocks. Before the first sample the cascade settles on the record's own start
+ * played backwards: it starts in the steady state for a constant input equal to the mean of the first
+ * `settleSamples` samples (scipy.signal.lfilter_zi times that level), then runs over x[K-1], ..., x[1]
+ * (the even reflection about x[0] that scipy.signal.filtfilt pads with, Gustafsson 1996 discusses the
+ * choice), output discarded. The state at x[0] is then that of a record that had been running at its
+ * start's level and with its start's content, so neither gravity on an axis nor a tilted start sets off
+ * a transient, and no sample of the record is left out. Starting at x[0] instead (lfilter_zi * x[0])
+ * kicks the 0.4 Hz high-pass with that sample's noise; starting at the mean of a long first block kicks
+ * it with the difference between that mean and the start's level (a sensor that tilts during the ride).
+ * Whatever the steady start leaves in the state decays through the reflection: exp(-zeta w1 K/fs) for
+ * the slowest section (0.4 Hz, zeta 0.707: 1e-4 after 5 s). A non-finite input is replaced by the last
+ * finite one (counted in `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
  */
 export class BiquadCascade {
   private readonly coef: Float64Array;
@@ -75,7 +81,11 @@ export class BiquadCascade {
   private last = 0;
   heldSamples = 0;
 
-  constructor(sections: readonly DigitalBiquad[], readonly gain: number) {
+  /** Samples of the start the cascade settles on before the first sample (0: steady state for the first block's mean only). */
+  readonly settleSamples: number;
+
+  constructor(sections: readonly DigitalBiquad[], readonly gain: number, settleSamples = 0) {
+    this.settleSamples = Math.max(0, Math.floor(settleSamples));
     this.count = sections.length;
     this.coef = new Float64Array(5 * this.count);
     this.state = new Float64Array(2 * this.count);
@@ -83,8 +93,8 @@ export class BiquadCascade {
   }
 
   /**
-   * Start the filter as though the input had been u forever (steady state of every section). Called by
-   * the first `process` with the mean of its block unless called before.
+   * Start the filter as though the input had been u forever (steady state of every section). The first
+   * `process` settles the cascade on the record's start (settleOn) unless this was called before.
    */
   startAt(u: number): void {
     this.settle(u);
@@ -92,48 +102,34 @@ export class BiquadCascade {
     this.started = true;
   }
 
-  /** Steady state of every section for the constant input u (before the gain). */
-  private settle(u: number): void {
-    let x = u;
-    const c = this.coef;
-    for (let i = 0; i < this.count; i++) {
-      const b0 = c[5 * i]!, b1 = c[5 * i + 1]!, b2 = c[5 * i + 2]!, a1 = c[5 * i + 3]!, a2 = c[5 * i + 4]!;
-      const y = ((b0 + b1 + b2) / (1 + a1 + a2)) * x;
-      const s2 = b2 * x - a2 * y;
-      this.state[2 * i + 1] = s2;
-      this.state[2 * i] = b1 * x - a1 * y + s2;
-      x = y;
+  /**
+   * Steady state for the mean of the first K = min(settleSamples, frames) finite samples (all of the block
+   * when settleSamples is 0), then the reflection x[K-1] ... x[1] run through the cascade, output discarded.
+   */
+  private settleOn(x: Float64Array, frames: number): void {
+    const k = this.settleSamples > 0 ? Math.min(this.settleSamples, frames) : frames;
+    let sum = 0;
+    let n = 0;
+    for (let i = 0; i < k; i++) {
+      const v = x[i]!;
+      if (v - v === 0) {
+        sum += v;
+        n++;
+      }
     }
+    const level = n > 0 ? sum / n : 0;
+    this.startAt(level);
+    if (this.settleSamples === 0 || k < 2) return;
+    const r = new Float64Array(k - 1);
+    for (let i = 0; i < k - 1; i++) {
+      const v = x[k - 1 - i]!;
+      r[i] = v - v === 0 ? v : level;
+    }
+    this.run(r, k - 1);
   }
 
-  /** y[i] = H{x}[i] for i < frames; y may be x (in place). */
-  process(x: Float64Array, y: Float64Array, frames: number): void {
-    if (frames === 0) return;
-    if (!this.started) {
-      // The level before the record: the mean of the first block's finite samples (the DC estimate).
-      let sum = 0;
-      let n = 0;
-      for (let i = 0; i < frames; i++) {
-        const v = x[i]!;
-        if (v - v === 0) {
-          sum += v;
-          n++;
-        }
-      }
-      this.startAt(n > 0 ? sum / n : 0);
-    }
-    let held = 0;
-    let last = this.last;
-    for (let i = 0; i < frames; i++) {
-      let v = x[i]!;
-      if (v - v !== 0) {
-        v = last;
-        held++;
-      } else last = v;
-      y[i] = v;
-    }
-    this.last = last;
-    this.heldSamples += held;
+  /** The cascade over y[0..frames) in place (no gain, no NaN handling). */
+  private run(y: Float64Array, frames: number): void {
     const c = this.coef;
     const st = this.state;
     for (let k = 0; k < this.count; k++) {
@@ -154,6 +150,39 @@ export class BiquadCascade {
       st[2 * k] = s1;
       st[2 * k + 1] = s2;
     }
+  }
+
+  /** Steady state of every section for the constant input u (before the gain). */
+  private settle(u: number): void {
+    let x = u;
+    const c = this.coef;
+    for (let i = 0; i < this.count; i++) {
+      const b0 = c[5 * i]!, b1 = c[5 * i + 1]!, b2 = c[5 * i + 2]!, a1 = c[5 * i + 3]!, a2 = c[5 * i + 4]!;
+      const y = ((b0 + b1 + b2) / (1 + a1 + a2)) * x;
+      const s2 = b2 * x - a2 * y;
+      this.state[2 * i + 1] = s2;
+      this.state[2 * i] = b1 * x - a1 * y + s2;
+      x = y;
+    }
+  }
+
+  /** y[i] = H{x}[i] for i < frames; y may be x (in place). */
+  process(x: Float64Array, y: Float64Array, frames: number): void {
+    if (frames === 0) return;
+    if (!this.started) this.settleOn(x, frames);
+    let held = 0;
+    let last = this.last;
+    for (let i = 0; i < frames; i++) {
+      let v = x[i]!;
+      if (v - v !== 0) {
+        v = last;
+        held++;
+      } else last = v;
+      y[i] = v;
+    }
+    this.last = last;
+    this.heldSamples += held;
+    this.run(y, frames);
     const g = this.gain;
     if (g !== 1) for (let i = 0; i < frames; i++) y[i]! *= g;
   }
