@@ -76,7 +76,7 @@ export interface RideResult {
   doubtFindings: Finding[];
 }
 
-/** Largest allowed difference between the two routes to a_w before the result carries a doubt. */
+/** Largest allowed difference between the two routes to a_w before the result carries a doubt, beyond the weighting filter's stated error at the rate. */
 export const ROUTE_TOLERANCE = 0.01;
 
 /** The extra accumulator: weights each listed channel in the time domain and feeds its dose figures. */
@@ -230,8 +230,9 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     const movingValues: Record<string, number> = moving ? { statistic: moving.reverseArrangements!.statistic, acceptAbove: moving.reverseArrangements!.acceptAbove, acceptAtMost: moving.reverseArrangements!.acceptAtMost, values: moving.reverseArrangements!.n } : {};
     const movingText = moving ? `the ${moving === stationarity ? "weighted" : "unweighted"} level is not stationary (reverse arrangements A = ${moving.reverseArrangements!.statistic} outside ${moving.reverseArrangements!.acceptAbove} < A <= ${moving.reverseArrangements!.acceptAtMost}, ${moving.reverseArrangements!.n} values)` : "";
     if (noPsd) notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, text: `${axis}: the window holds no whole Welch segment of ${analysis.settings.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser resolution or a shorter segment gives one)` });
-    else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE)) {
-      const values = { offPercent: 100 * (routeRatio - 1), allowedPercent: 100 * ROUTE_TOLERANCE };
+    // The two routes differ by the realisation's own error too (|W| is exact on the PSD route): allowed 1 % plus it.
+    else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE + r.design.maxErrorPct / 100)) {
+      const values = { offPercent: 100 * (routeRatio - 1), allowedPercent: Number((100 * ROUTE_TOLERANCE + r.design.maxErrorPct).toPrecision(2)) };
       if (moving) notes.push({ code: "ROUTES_DIFFER_NOT_STATIONARY", values: { ...values, ...movingValues }, text: `${axis} (${ch.name}): a_w from the PSD is ${pct(values.offPercent)} % off a_w in time over the same samples (±${values.allowedPercent} % on a stationary record); ${movingText}, and Welch's segments and the weighting filter's memory share a changing level out unlike each other; a_w is the time-domain value` });
       else doubts.push({ code: "ROUTES_DIFFER", values, text: `${axis} (${ch.name}): a_w from the PSD is ${pct(values.offPercent)} % off a_w in time over the same samples of a stationary record (allowed ±${values.allowedPercent} %): the weighting or the spectrum is in question` });
     }
