@@ -101,11 +101,11 @@ describe("designWeightingFilter: the realisation psdgate runs, and its stated er
       expect(Math.abs(rms(y, x.length) / rms(c.filtered!.output, x.length) - 1), c.weighting).toBeLessThan(1e-3);
     }
   });
-  it("at 8 Hz and below the error is under 1 % at 100-200 Hz and under 0.1 % from 256 Hz up (the fit spreads its error over the band)", () => {
+  it("at 8 Hz and below the error is under 1 % at 100-200 Hz and under 0.2 % from 256 Hz up (the fit spreads its error over the band)", () => {
     for (const fs of [100, 128, 200, 256, 400, 512]) {
       for (const w of WEIGHTING_NAMES) {
         const d = designWeightingFilter(w, fs);
-        for (const f of [0.5, 1, 2, 4, 6.3, 8]) expect(Math.abs(cascadeMagnitude(d.sections, d.gain, f, fs) / weightingMagnitude(w, f) - 1), `${w} ${f} Hz at ${fs} Hz`).toBeLessThan(fs < 256 ? 1e-2 : 1e-3);
+        for (const f of [0.5, 1, 2, 4, 6.3, 8]) expect(Math.abs(cascadeMagnitude(d.sections, d.gain, f, fs) / weightingMagnitude(w, f) - 1), `${w} ${f} Hz at ${fs} Hz`).toBeLessThan(fs < 256 ? 1e-2 : 2e-3);
       }
     }
   });
