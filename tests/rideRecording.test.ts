@@ -180,6 +180,18 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
     const worst = (fs: number) => Math.max(...fixture.fitted.filter((c) => c.sampleRateHz === fs).map((c) => c.maxErrorPct));
     expect([100, 128, 200, 256, 400].map((fs) => Number(worst(fs).toPrecision(2)))).toEqual([2.3, 2.1, 2.7, 0.72, 0.093]);
   });
+  for (const factor of [2, 4]) {
+    it(`a phone record at 200 Hz whose sensor updated at ${200 / factor} Hz (held ${factor}x): ride names the update rate and raises no clipping doubt from the repeated extremes`, async () => {
+      const readings = gaussian((60 * 200) / factor, 41 + factor, 0.5);
+      const z = new Float64Array(60 * 200);
+      for (let i = 0; i < z.length; i++) z[i] = 9.80665 + readings[Math.floor(i / factor)]!;
+      const r = await rideRecording(wav(`held-${factor}.wav`, 200, [z]), { inputUnits: "m/s2", axes: { z: "1" }, posture: "seated" });
+      const note = r.noteFindings.find((f) => f.code === "HELD_SAMPLES")!;
+      expect(note.values.updateRateHz).toBe(200 / factor);
+      expect(note.text).toMatch(/^z \(ch1\): held samples/);
+      expect(r.doubtFindings.map((f) => f.code)).not.toContain("CLIPPING");
+    });
+  }
   it("a lateral axis starting at -1.0 m/s² of gravity and tilting to +0.8: a_w, VDV, MTVV and crest within 1 % of scipy's sosfilt started in the steady state for -1.0", async () => {
     const fs = 200;
     const n = 120 * fs;
