@@ -271,11 +271,12 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     };
   });
   // The realisation's error, in every result: which figures carry it and which do not.
+  const carriers = ["a_w", "crest factor", "VDV", "MTVV", "the total value", ...(options.exposureS !== undefined ? ["A(8)", "the daily VDV"] : []), ...(options.floor !== undefined ? ["SEAT"] : [])];
   const worst = results.reduce((w, r) => (r.design.maxErrorPct > w.design.maxErrorPct ? r : w), results[0]!).design;
   notes.unshift({
     code: "WEIGHTING_ERROR",
     values: { rateHz: fs, maxErrorPercent: Number(worst.maxErrorPct.toPrecision(2)), atHz: worst.maxErrorAtHz, topCentreHz: worst.topCentreHz },
-    text: `at ${fs} Hz the time-domain weighting${results.length > 1 ? "s are" : " is"} within ${Number(worst.maxErrorPct.toPrecision(2))} % of ISO 2631-1's |W(f)| at the one-third-octave centres to ${worst.topCentreHz} Hz (largest at ${worst.maxErrorAtHz} Hz): a_w, crest factor, VDV, MTVV${options.exposureS !== undefined ? ", A(8) and the daily VDV" : ""}${options.floor !== undefined ? " and SEAT" : ""} carry it; a_w from the PSD applies |W(f)| exactly`,
+    text: `at ${fs} Hz the time-domain weighting${results.length > 1 ? "s are" : " is"} within ${Number(worst.maxErrorPct.toPrecision(2))} % of ISO 2631-1's |W(f)| at the one-third-octave centres to ${worst.topCentreHz} Hz (largest at ${worst.maxErrorAtHz} Hz): ${carriers.slice(0, -1).join(", ")} and ${carriers[carriers.length - 1]} carry it; a_w from the PSD applies |W(f)| exactly`,
   });
   if (worst.topCentreHz < 80) {
     notes.splice(1, 0, {

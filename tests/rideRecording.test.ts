@@ -170,7 +170,7 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
       const e = r.noteFindings.find((f) => f.code === "WEIGHTING_ERROR")!;
       expect(e.values.rateHz).toBe(fs);
       expect(e.values.maxErrorPercent).toBe(Number(Math.max(wk, wd).toPrecision(2)));
-      expect(e.text).toMatch(/a_w, crest factor, VDV, MTVV and SEAT carry it/);
+      expect(e.text).toMatch(/a_w, crest factor, VDV, MTVV, the total value and SEAT carry it/);
       expect(r.noteFindings.some((f) => f.code === "BAND_SHORT")).toBe(fs < 180);
       // Pure sines trip the amplitude gates (a deterministic signal's crest and kurtosis), not the weighting checks.
       expect(r.doubtFindings.filter((f) => f.code === "ROUTES_DIFFER" || f.code === "PARSEVAL_MISMATCH")).toEqual([]);

@@ -83,7 +83,7 @@ describe("psdgate ride", () => {
     const e = j.findings.notes.find((f: { code: string }) => f.code === "WEIGHTING_ERROR");
     expect(e.values.rateHz).toBe(200);
     expect(e.values.maxErrorPercent).toBe(2.7);
-    expect(e.text).toContain("a_w, crest factor, VDV, MTVV carry it");
+    expect(e.text).toContain("a_w, crest factor, VDV, MTVV and the total value carry it");
   });
   it("--help lists the ride options", async () => {
     const r = await cli("ride", "--help");
