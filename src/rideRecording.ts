@@ -226,9 +226,15 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     // A level that changes along the record (stops, curves, a tilting sensor) is a property of the ride, not a
     // fault: where the weighted or the unweighted level failed the stationarity test, the two spectral checks
     // below are notes that say so, with the test's result; on a stationary record they stay doubts.
-    const moving = [stationarity, ch.stationarity].find((t) => t.tested && !t.stationary && t.reverseArrangements !== undefined);
-    const movingValues: Record<string, number> = moving ? { statistic: moving.reverseArrangements!.statistic, acceptAbove: moving.reverseArrangements!.acceptAbove, acceptAtMost: moving.reverseArrangements!.acceptAtMost, values: moving.reverseArrangements!.n } : {};
-    const movingText = moving ? `the ${moving === stationarity ? "weighted" : "unweighted"} level is not stationary (reverse arrangements A = ${moving.reverseArrangements!.statistic} outside ${moving.reverseArrangements!.acceptAbove} < A <= ${moving.reverseArrangements!.acceptAtMost}, ${moving.reverseArrangements!.n} values)` : "";
+    // The first failed test among the weighted and unweighted stretches: reverse arrangements (trends) or the
+    // run test (clusters, such as a stop mid-record, which a trend test does not see).
+    const tests = [
+      { t: stationarity.reverseArrangements, of: "weighted" }, { t: stationarity.runs, of: "weighted" },
+      { t: ch.stationarity.reverseArrangements, of: "unweighted" }, { t: ch.stationarity.runs, of: "unweighted" },
+    ];
+    const moving = tests.find((x) => x.t !== undefined && !x.t.stationary);
+    const movingValues: Record<string, number> = moving ? { statistic: moving.t!.statistic, acceptAbove: moving.t!.acceptAbove, acceptAtMost: moving.t!.acceptAtMost, values: moving.t!.n } : {};
+    const movingText = moving ? `the ${moving.of} level is not stationary (${moving.t!.test === "runs" ? "run test: R" : "reverse arrangements A"} = ${moving.t!.statistic} outside ${moving.t!.acceptAbove} < ${moving.t!.test === "runs" ? "R" : "A"} <= ${moving.t!.acceptAtMost}, ${moving.t!.n} values)` : "";
     if (noPsd) notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, text: `${axis}: the window holds no whole Welch segment of ${analysis.settings.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser resolution or a shorter segment gives one)` });
     // The two routes differ by the realisation's own error too (|W| is exact on the PSD route): allowed 1 % plus it.
     else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE + r.design.maxErrorPct / 100)) {

@@ -192,6 +192,25 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
       expect(r.doubtFindings.map((f) => f.code)).not.toContain("CLIPPING");
     });
   }
+  it("curves (the lateral axis tilting between -1.0 and +0.8 every 20 s) and a 60 s stop: the Parseval and route mismatches are notes with the failed stationarity test beside them, not doubts", async () => {
+    for (const fs of [200, 1000]) {
+      const n = 300 * fs;
+      const noise = gaussian(n, 5, 0.15);
+      const y = Float64Array.from(noise, (v, i) => {
+        const t = i / fs;
+        return (Math.floor(t / 20) % 2 === 1 ? 0.8 : -1) + (t > 100 && t < 160 ? 0.2 : 1) * v;
+      });
+      const r = await rideRecording(wav(`curves-${fs}.wav`, fs, [y]), { inputUnits: "m/s2", axes: { y: "1" }, posture: "seated" });
+      expect(r.doubtFindings.map((f) => f.code), `${fs} Hz`).toEqual([]);
+      const parseval = r.noteFindings.find((f) => f.code === "PARSEVAL_NOT_STATIONARY")!;
+      expect(parseval.values.offPercent).toBeLessThan(-10); // the issue's rides: -19 %
+      expect(parseval.text).toMatch(/the (weighted|unweighted) level is not stationary \((run test: R|reverse arrangements A) = \d+ outside/);
+      if (fs === 1000) {
+        const route = r.noteFindings.find((f) => f.code === "ROUTES_DIFFER_NOT_STATIONARY")!;
+        expect(Math.abs(route.values.offPercent!)).toBeGreaterThan(1);
+      }
+    }
+  });
   it("a lateral axis starting at -1.0 m/s² of gravity and tilting to +0.8: a_w, VDV, MTVV and crest within 1 % of scipy's sosfilt started in the steady state for -1.0", async () => {
     const fs = 200;
     const n = 120 * fs;
