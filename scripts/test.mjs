@@ -3,17 +3,32 @@
 //   node scripts/test.mjs [vitest args]          the default set: tests/**/*.test.ts without the slow files
 //   node scripts/test.mjs --slow [vitest args]   `npm run test:slow`: the slow set alone (CI runs it too)
 //   node scripts/test.mjs --total                the closing line of every run recorded in $PSDGATE_TEST_TALLY
+//   node scripts/test.mjs --all                  `npm run test:all` (README's test command, what CI runs): the
+//                                                default set, then the slow set, then one closing line for both
 // The slow set is named by its files: *.montecarlo.test.ts (a decision rule or a rate proven by Monte Carlo) and
 // *.slow.test.ts (anything else that takes long); a new file of either name goes there with no list to edit.
 // With PSDGATE_TEST_TALLY set (.ci/run sets it), each run appends its counts to that file and words its own
 // line "fast set: N tests passed, N failed", so that the one "N passed, N failed" line of the CI log is the
 // total from `--total`.
 import { spawnSync } from "node:child_process";
-import { appendFileSync, readFileSync, rmSync } from "node:fs";
+import { appendFileSync, mkdtempSync, readFileSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 
 const SLOW_FILES = ["tests/**/*.montecarlo.test.ts", "tests/**/*.slow.test.ts"];
 const args = process.argv.slice(2);
 const tally = process.env.PSDGATE_TEST_TALLY || undefined;
+
+if (args[0] === "--all") {
+  // Both sets, always (a failing fast set does not hide the slow one), counted into one tally.
+  const dir = mkdtempSync(join(tmpdir(), "psdgate-tally-"));
+  const env = { ...process.env, PSDGATE_TEST_TALLY: join(dir, "tally") };
+  const self = process.argv[1];
+  for (const part of [[], ["--slow"]]) spawnSync(process.execPath, [self, ...part, ...args.slice(1)], { stdio: "inherit", env });
+  const total = spawnSync(process.execPath, [self, "--total"], { stdio: "inherit", env });
+  rmSync(dir, { recursive: true, force: true });
+  process.exit(total.status ?? 1);
+}
 
 if (args[0] === "--total") {
   let parts = [];
