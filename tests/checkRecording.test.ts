@@ -67,21 +67,21 @@ describe("checkRecording's level gate (compare/levelGate.ts): a run that is not 
     writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FS, samples: Array.from(x) }));
     return f;
   };
-  // 1 << 19 samples at 2560 Hz: 204.8 s, about 760 DOF at 1024-point segments (the rule's power is there).
+  // 1 << 17 samples at 2560 Hz: 51.2 s, about 480 DOF at 1024-point segments (the rule's power is there), 51 stretches.
   it("a stationary conforming run passes, with no gate finding", async () => {
-    const r = await checkRecording(wav(shapedRecord(on, FS, 1 << 19, 21), "steady.wav"), profile, { segmentLength: 1024, histogram: false });
+    const r = await checkRecording(wav(shapedRecord(on, FS, 1 << 17, 21), "steady.wav"), profile, { segmentLength: 1024, histogram: false });
     expect(r.verdict).toBe("pass");
     expect(r.channels[0]!.findings.map((f) => f.code)).not.toContain("LEVEL_SWING");
   });
   it("+2 dB for the first half and -2.9 dB for the second (the average near the profile): INCONCLUSIVE, LEVEL_SWING", async () => {
-    const x = shapedRecord(on, FS, 1 << 19, 22);
+    const x = shapedRecord(on, FS, 1 << 17, 22);
     for (let i = 0; i < x.length; i++) x[i] = x[i]! * Math.sqrt(10 ** ((i < x.length / 2 ? 2 : -2.9) / 10));
     const r = await checkRecording(wav(x, "step.wav"), profile, { segmentLength: 1024, histogram: false });
     expect(r.verdict).toBe("inconclusive");
     expect(r.channels[0]!.findings.map((f) => f.code)).toContain("LEVEL_SWING");
   });
   it("a slow 0.3 Hz swing holding about 64 % of the mean square: INCONCLUSIVE, DRIFT_DOMINATES", async () => {
-    const x = shapedRecord(on, FS, 1 << 19, 23);
+    const x = shapedRecord(on, FS, 1 << 17, 23);
     // Noise mean square 0.01 x 980 = 9.8; a sine of amplitude a adds a^2 / 2: 64 % needs a^2 / 2 = 9.8 x 0.64 / 0.36.
     const a = Math.sqrt((2 * 9.8 * 0.64) / 0.36);
     for (let i = 0; i < x.length; i++) x[i] = x[i]! + a * Math.sin((2 * Math.PI * 0.3 * i) / FS);
