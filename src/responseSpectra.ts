@@ -31,6 +31,8 @@ export interface SpectrumSource {
   /** Frequencies at which the source is defined: lines (recording, table) or breakpoints (profile). */
   frequencyHz: Float64Array;
   level: Float64Array;
+  /** The analysed window of a recording (--from/--to; the whole record without them), s. */
+  window?: { fromS: number; toS: number; durationS: number; whole: boolean } | undefined;
   /** Welch settings, for a recording. */
   settings?: { segmentLength: number; resolutionHz: number; window: string; averages: number; dof: number } | undefined;
 }
@@ -116,7 +118,10 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
   if (short) throw short;
   const { lo, hi } = lineBand(file, c.psd.frequencyHz, o);
   return {
-    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi), durationS: a.input.durationS,
+    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi),
+    // The natural length is the analysed window's (--from/--to), not the file's.
+    durationS: a.window.frames / a.input.sampleRateHz,
+    window: { fromS: a.window.fromS, toS: a.window.toS, durationS: a.window.frames / a.input.sampleRateHz, whole: a.window.frames === a.input.samples },
     frequencyHz: c.psd.frequencyHz, level: c.psd.psd,
     settings: { segmentLength: a.settings.segmentLength, resolutionHz: a.settings.resolutionHz, window: a.settings.window, averages: c.psd.averages, dof: c.psd.dof },
   };

@@ -1,7 +1,7 @@
 import type { ChannelAnalysis, RecordingAnalysis } from "../analyzeRecording.js";
 import { chiSquareIntervalFactors } from "../estimate/chiSquare.js";
 import { accelLabel, densityLabel } from "../units.js";
-import { dB, fixed, sig } from "./format.js";
+import { dB, fixed, rateText, sig } from "./format.js";
 import { printable } from "./printable.js";
 
 const DETREND_WORDS = { none: "nothing removed", mean: "mean removed per segment", linear: "linear trend removed per segment" } as const;
@@ -10,11 +10,17 @@ export function recordingLines(a: RecordingAnalysis): string[] {
   const i = a.input;
   return [
     `  recording  ${i.layout}`,
-    `             ${i.samples} samples at ${sig(i.sampleRateHz, 6)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed${i.startTime ? `, from ${i.startTime}` : ""}`,
+    `             ${i.samples} samples at ${rateText(i.sampleRateHz)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed${i.startTime ? `, from ${i.startTime}` : ""}`,
     `             sha256 ${i.sha256}`,
-    ...(a.window.frames !== i.samples ? [`  window     ${fixed(a.window.fromS, 3)} to ${fixed(a.window.toS, 3)} s: ${a.window.frames} samples analysed`] : []),
+    ...(a.window.frames !== i.samples ? [`  window     ${windowText(a)}`] : []),
     ...a.passDoubts.map((d) => `  DOUBT      ${d}`),
   ];
+}
+
+/** The analysed window in words: from, to, length and samples (the --from/--to of the analysis). */
+export function windowText(a: RecordingAnalysis): string {
+  const w = a.window;
+  return `${fixed(w.fromS, 3)} to ${fixed(w.toS, 3)} s (${fixed(w.frames / a.input.sampleRateHz, 3)} s): ${w.frames} samples analysed${w.frames === a.input.samples ? ", the whole record" : ""}`;
 }
 
 export function settingsLine(a: RecordingAnalysis): string {
