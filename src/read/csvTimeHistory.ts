@@ -8,8 +8,9 @@ import { retireThread } from "../threadEnd.js";
 import { parseUnitSpec, parseVoltUnit } from "../units.js";
 import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
+import { roundRate, stampQuantum } from "./roundRate.js";
 import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, type TimeColumnInfo } from "./timeStampCheck.js";
-import { nonFiniteToken, parseNumberText } from "./csvNumber.js";
+import { nonFiniteToken, numberTextResolution, parseNumberText } from "./csvNumber.js";
 import { looksLikeDateTime, parseDateTimeText } from "./dateTimeStamp.js";
 import type { BlockSink, ChannelInfo, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
@@ -406,16 +407,38 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   const firstScan = dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, "")) : undefined;
   const baseDays = firstScan?.days;
   // Provisional rate from the sniffed rows; the final one comes from the whole time column.
+  // It is snapped by the rule the whole column's rate follows (read/roundRate.ts), on the head's stamps and
+  // their printed resolution, so the segment chosen for a resolution is the one the final rate gives.
   let columnRate = NaN;
   if (timeIndex >= 0) {
+    let minPlace = 99;
+    let maxSig = 0;
     const times = headLines(head, head.length >= size)
       .filter((l) => l.start >= dialect.bodyStart)
       .map((l) => {
-        const f = (splitRow(l.text, dialect.delimiter)[timeIndex] ?? "").replace(/"/g, "");
-        return baseDays !== undefined ? (parseDateTimeText(f, baseDays)?.value ?? NaN) : parseNumberText(f, dialect.decimal) * timeFactor;
+        const f = (splitRow(l.text, dialect.delimiter)[timeIndex] ?? "").replace(/"/g, "").trim();
+        if (baseDays !== undefined) {
+          const scan = parseDateTimeText(f, baseDays);
+          if (scan) minPlace = Math.min(minPlace, -scan.fractionDigits);
+          return scan?.value ?? NaN;
+        }
+        const v = parseNumberText(f, dialect.decimal) * timeFactor;
+        if (Number.isFinite(v)) {
+          const r = numberTextResolution(dialect.decimal === "," ? f.replace(",", ".") : f);
+          minPlace = Math.min(minPlace, r.place);
+          if (r.mant > 0) maxSig = Math.max(maxSig, Math.floor(Math.log10(r.mant)) + 1);
+        }
+        return v;
       })
       .filter((t) => Number.isFinite(t));
-    if (times.length >= 2) columnRate = (times.length - 1) / (times[times.length - 1]! - times[0]!);
+    if (times.length >= 2) {
+      const t0 = times[0]!;
+      const t1 = times[times.length - 1]!;
+      const estimate = (times.length - 1) / (t1 - t0);
+      const k = baseDays !== undefined ? 1 : timeFactor;
+      const quantum = stampQuantum(minPlace, maxSig, Math.max(Math.abs(t0), Math.abs(t1)) / k) * k;
+      columnRate = roundRate(estimate, (estimate * quantum) / (t1 - t0));
+    }
   }
   const timeCol: TimeColumnInfo | undefined = timeIndex >= 0 ? { file, line: dialect.bodyLine, column: timeIndex + 1, name: columns[timeIndex]!.name, unitDeclared: timeUnitDeclared } : undefined;
   if (timeCol && Number.isFinite(columnRate)) {
