@@ -113,19 +113,28 @@ function dataField(f: string): boolean {
   return /^\s*"?[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?"?\s*$/.test(f) || nonFiniteToken(f.replace(/"/g, "")) !== undefined || looksLikeDateTime(f.replace(/"/g, ""));
 }
 
-/** A row of the units a header's columns are in (`s,g,m/s^2` or `[s],[mV],[g]`); empty fields allowed. */
+/**
+ * A row of the units a header's columns are in (`s,g,m/s^2` or `[s],[mV],[g]`); empty fields allowed.
+ * At least one field is a unit psdgate knows (time, acceleration or voltage) or is bracketed; every
+ * other field is shaped like a unit (a short token of letters, digits and / ^ * · - . µ °, not a
+ * time column's name). So `ms,gee` is a units row whose `gee` the channel's conditioning refuses as
+ * UNIT_UNKNOWN (naming its line, column and text), never a header whose data would be read as g.
+ */
 function unitsRow(fields: string[]): boolean {
-  let any = false;
+  let known = false;
   for (const raw of fields) {
     const f = raw.trim().replace(/^"(.*)"$/, "$1").trim();
     if (f === "") continue;
-    any = true;
     const inner = /^[[(](.*)[\])]$/.exec(f);
     const u = inner ? inner[1]!.trim() : f;
-    if (!inner && parseUnitSpec(u) === undefined && parseVoltUnit(u) === undefined && TIME_UNITS[u.toLowerCase()] === undefined) return false;
+    if (inner || parseUnitSpec(u) !== undefined || parseVoltUnit(u) !== undefined || TIME_UNITS[u.toLowerCase()] !== undefined) known = true;
+    else if (!UNIT_SHAPED.test(u) || TIME_NAMES.test(u)) return false;
   }
-  return any;
+  return known;
 }
+
+/** A token that could be a unit nobody taught psdgate (`gee`, `m/s²`, `counts`): no spaces, at most 16 characters, not a number. */
+const UNIT_SHAPED = /^[A-Za-zµμ°%][A-Za-z0-9µμ°%/^*·.²³\-]{0,15}$/;
 
 /** Whether a split row is a row of samples: >= 2 fields, all data (an empty last field allowed: a trailing delimiter). */
 function sampleRow(row: string[]): boolean {
