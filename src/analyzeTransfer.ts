@@ -1,6 +1,6 @@
 import { clockWindow, frameWindow, selectChannels } from "./resolveAnalysis.js";
 import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
-import { channelConditionings, scaleSamples, type ChannelSetting } from "./condition/scaleSamples.js";
+import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { InputError } from "./errors.js";
 import { normalQuantile } from "./estimate/chiSquare.js";
 import { CrossSpectrumAccumulator } from "./estimate/crossSpectrum.js";
@@ -74,6 +74,8 @@ export interface TransferAnalysis {
   units: AccelUnit;
   frequencyHz: Float64Array;
   reference: { name: string; position: number; psd: Float64Array; rms: number };
+  /** How each channel's numbers became accelerations (input first, then the outputs). */
+  channels: { name: string; position: number; reading: ChannelReading }[];
   outputs: TransferOutput[];
   warnings: string[];
 }
@@ -236,6 +238,7 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
     units: common,
     frequencyHz,
     reference: { name: info.channels[inIdx!]!.name, position: inIdx! + 1, psd: gxx, rms: rmsOf(gxx) },
+    channels: select.map((idx, c) => ({ name: info.channels[idx]!.name, position: idx + 1, reading: conditioning[c]!.reading })),
     outputs,
     warnings,
   };
