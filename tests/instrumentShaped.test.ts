@@ -187,6 +187,15 @@ describe("units rows", () => {
     }
   });
 
+  it("a header `sec,ch1` under a logger's preamble line stays a header (its `sec` is the time column), not a units row", async () => {
+    const file = join(dir, "preamble.csv");
+    writeFileSync(file, ["Device,KX9", "sec,ch1", ...Array.from({ length: 2048 }, (_, i) => `${(i / 1000).toFixed(3)},${Math.sin(i)}`)].join("\n") + "\n");
+    const a = await analyzeRecording(file, { segmentLength: 256 });
+    expect(a.analysis.reading.dialect).toMatchObject({ timeColumn: "sec", unitsRow: false, preambleLines: 1 });
+    expect(a.input.sampleRateHz).toBe(1000);
+    expect(a.channels.map((c) => c.name)).toEqual(["ch1"]);
+  });
+
   it("an m/s2 column beside an unknown one is read in m/s2 when only it is chosen", async () => {
     const file = join(dir, "mixed.csv");
     writeFileSync(file, ["time,x,y", "s,gee,m/s2", ...Array.from({ length: 2048 }, (_, i) => `${(i / 1024).toFixed(6)},1,${8.5 * Math.SQRT2 * Math.sin((2 * Math.PI * 50 * i) / 1024)}`)].join("\n") + "\n");

@@ -115,22 +115,33 @@ function dataField(f: string): boolean {
 
 /**
  * A row of the units a header's columns are in (`s,g,m/s^2` or `[s],[mV],[g]`); empty fields allowed.
- * At least one field is a unit psdgate knows (time, acceleration or voltage) or is bracketed; every
- * other field is shaped like a unit (a short token of letters, digits and / ^ * · - . µ °, not a
- * time column's name). So `ms,gee` is a units row whose `gee` the channel's conditioning refuses as
- * UNIT_UNKNOWN (naming its line, column and text), never a header whose data would be read as g.
+ * Every field a unit psdgate knows (time, acceleration or voltage) or bracketed, as before; or, with
+ * fields psdgate does not know, each of them shaped like a unit (a short token of letters, digits and
+ * / ^ * · - . µ °, not a time column's name) and the row anchored as units: an acceleration or voltage
+ * unit psdgate knows among its fields, or a time unit under a time column's name in the row `above`
+ * (so `sec,ch1` under a preamble line stays a header). Then `ms,gee` under `time,accel` is a units row
+ * whose `gee` the channel's conditioning refuses as UNIT_UNKNOWN (naming its line, column and text),
+ * never a header whose data would be read as g.
  */
-function unitsRow(fields: string[]): boolean {
+function unitsRow(fields: string[], above?: string[]): boolean {
   let known = false;
-  for (const raw of fields) {
-    const f = raw.trim().replace(/^"(.*)"$/, "$1").trim();
+  let unknown = false;
+  let anchored = false;
+  for (let i = 0; i < fields.length; i++) {
+    const f = fields[i]!.trim().replace(/^"(.*)"$/, "$1").trim();
     if (f === "") continue;
     const inner = /^[[(](.*)[\])]$/.exec(f);
     const u = inner ? inner[1]!.trim() : f;
-    if (inner || parseUnitSpec(u) !== undefined || parseVoltUnit(u) !== undefined || TIME_UNITS[u.toLowerCase()] !== undefined) known = true;
-    else if (!UNIT_SHAPED.test(u) || TIME_NAMES.test(u)) return false;
+    if (inner || parseUnitSpec(u) !== undefined || parseVoltUnit(u) !== undefined) {
+      known = true;
+      anchored = true;
+    } else if (TIME_UNITS[u.toLowerCase()] !== undefined) {
+      known = true;
+      if (above !== undefined && TIME_NAMES.test((above[i] ?? "").trim().replace(/^"(.*)"$/, "$1").trim())) anchored = true;
+    } else if (!UNIT_SHAPED.test(u) || TIME_NAMES.test(u)) return false;
+    else unknown = true;
   }
-  return known;
+  return known && (!unknown || anchored);
 }
 
 /** A token that could be a unit nobody taught psdgate (`gee`, `m/s²`, `counts`): no spaces, at most 16 characters, not a number. */
@@ -226,7 +237,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   let unitIndex = -1;
   if (k > 0) {
     const fits = (r: string[]) => r.length === count || (found.trailing && r.length === count - 1);
-    if (k >= 2 && unitsRow(rows[k - 1]!) && fits(rows[k - 1]!) && fits(rows[k - 2]!) && !unitsRow(rows[k - 2]!)) {
+    if (k >= 2 && unitsRow(rows[k - 1]!, rows[k - 2]!) && fits(rows[k - 1]!) && fits(rows[k - 2]!) && !unitsRow(rows[k - 2]!)) {
       units = rows[k - 1];
       unitIndex = k - 1;
       headerIndex = k - 2;
