@@ -140,6 +140,19 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     expect(c.channels[0]!.dof.achieved).toBe(w.channels[0]!.dof.achieved);
   });
 
+  it("a phone at 128 Hz with whole-millisecond epoch stamps (7.8125 ms steps printed 8, 16, 23, …) and gravity on z: 128 Hz and 256-point segments for 0.5 Hz lines", async () => {
+    const n = 128 * 60;
+    const x = gaussian(n, 64, 0.3);
+    const file = join(dir, "phone.csv");
+    const rows = ["timestamp_ms,ax,ay,az"];
+    for (let i = 0; i < n; i++) rows.push(`${Math.round(1700000000000 + (i * 1000) / 128)},${x[i]!.toFixed(4)},${(0.5 * x[(i + 7) % n]!).toFixed(4)},${(9.81 + x[(i + 13) % n]!).toFixed(4)}`);
+    writeFileSync(file, rows.join("\n") + "\n");
+    const a = await analyzeRecording(file, { csv: { timeColumn: "timestamp_ms", timeUnit: "ms" }, inputUnits: "m/s2", resolutionHz: 0.5 });
+    expect(a.input.sampleRateHz).toBe(128);
+    expect(a.settings.segmentLength).toBe(256);
+    expect(a.channels[2]!.stats.mean).toBeCloseTo(9.81, 1);
+  });
+
   it("a logger at a 300 us period (stamps %.3f ms) gets 1 / 0.0003 s, its round period", async () => {
     const csv = writeStampedCsv(dir, "period.csv", { channels: [{ name: "a", samples: gaussian(8192, 62) }], sampleRateHz: 1 / 0.0003, timeUnit: "ms", format: { fixed: 3 } });
     const a = await analyzeRecording(csv, { segmentLength: 1024 });
