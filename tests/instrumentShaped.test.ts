@@ -114,6 +114,8 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     // Stamps too coarse to pin the rate to 0.1 %: a whole-Hz rate only (never 5000 for 5120).
     expect(roundRate(5121.3, 20)).toBe(5121);
     expect(roundRate(5121.3, 0.2)).toBe(5121.3);
+    // A whole-Hz rate before a round period: 1652 Hz, not 1 / 0.000605 s = 1652.89 Hz, when both lie inside.
+    expect(roundRate(1652.4, 0.9)).toBe(1652);
   });
 
   const fs = 5120;

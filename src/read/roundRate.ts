@@ -5,9 +5,9 @@
  * span from the first to the last stamp is uncertain by q and the rate (n - 1) / span by
  * rate x q / span (the margin). Loggers and DAQs run at round rates (common practice: 5120, 25600,
  * 204.8, 1024 Hz, or a round period such as 300 us), and a rate inside the margin of the estimate is
- * one the stamps cannot tell apart from it. So the rate taken is the roundest value inside the margin:
- * the one with the fewest significant digits, as a rate (at most 5 digits, or a whole number of Hz) or
- * as a period (at most 5 digits); rate before period at the same count. With none inside, the estimate
+ * one the stamps cannot tell apart from it. So the rate taken is the roundest rate inside the margin:
+ * the one with the fewest significant digits (at most 5, or a whole number of Hz); failing that, the
+ * rate whose period has the fewest significant digits (at most 5). With none inside, the estimate
  * stands as it is, and the reports print it in full. Stamps too coarse to pin the rate to 0.1 %
  * (a margin above rate / 1000, a record of a few rows) get only a whole-Hz rate inside the margin.
  *
@@ -28,10 +28,10 @@ export function roundRate(rateHz: number, marginHz: number): number {
   for (let d = 1; d <= maxDigits; d++) {
     const r = roundTo(rateHz, d);
     if (Math.abs(r - rateHz) <= marginHz) return r;
-    if (d <= 5) {
-      const p = roundTo(period, d);
-      if (p > 0 && Math.abs(p - period) <= periodMargin) return 1 / p;
-    }
+  }
+  for (let d = 1; d <= 5; d++) {
+    const p = roundTo(period, d);
+    if (p > 0 && Math.abs(p - period) <= periodMargin) return 1 / p;
   }
   return rateHz;
 }
