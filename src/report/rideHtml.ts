@@ -4,6 +4,7 @@ import { weightingPowerGains } from "../weight/isoWeightings.js";
 import { fixed, rateText, sig } from "./format.js";
 import { STYLE } from "./htmlReport.js";
 import { RIDE_CAUTIONS } from "./rideReport.js";
+import { windowText } from "./psdText.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
 /**
@@ -160,7 +161,7 @@ ${row("Recording", esc(a.input.file))}
 ${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
 ${row("Format", esc(a.input.layout))}
 ${row("Samples", `${a.input.samples} at ${rateText(a.input.sampleRateHz)} Hz (${fixed(a.input.durationS, 3)} s)`)}
-${row("Window analysed", `${fixed(a.window.fromS, 3)} to ${fixed(a.window.toS, 3)} s (${a.window.frames} samples)`)}
+${row("Window analysed", esc(windowText(a)))}
 ${row("Posture", esc(r.posture))}
 ${row("Analysis", `Welch PSD, ${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap; running r.m.s. ${sig(r.axes[0]?.dose.runningRmsS ?? 1, 3)} s, linear${s.scale !== 1 ? `; calibration ×${s.scale}` : ""}`)}
 ${row("Tool", `psdgate ${esc(version)}`)}
