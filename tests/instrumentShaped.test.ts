@@ -155,6 +155,24 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     expect(a.channels[2]!.stats.mean).toBeCloseTo(9.81, 1);
   });
 
+  it("ISO 8601 date-time stamps with milliseconds at 512 Hz (a DAQ's export): exactly 512 Hz, 1024-point segments for 0.5 Hz lines, and --from as a clock time", async () => {
+    const n = 512 * 20;
+    const x = gaussian(n, 65);
+    const stamp = (i: number) => {
+      const ms = Math.round((14 * 3600 + 3 * 60 + 7.5 + i / 512) * 1000);
+      const p = (v: number, w = 2) => String(v).padStart(w, "0");
+      return `2024-05-17T${p(Math.floor(ms / 3600000))}:${p(Math.floor(ms / 60000) % 60)}:${p(Math.floor(ms / 1000) % 60)}.${p(ms % 1000, 3)}Z`;
+    };
+    const file = join(dir, "daq-iso.csv");
+    writeFileSync(file, ["time,z [g]", ...Array.from(x, (v, i) => `${stamp(i)},${v}`)].join("\n") + "\n");
+    const a = await analyzeRecording(file, { resolutionHz: 0.5, fromClock: "14:03:10.5Z" });
+    expect(a.analysis.reading.designRateHz).toBe(512);
+    expect(a.input.sampleRateHz).toBe(512);
+    expect(a.settings.segmentLength).toBe(1024);
+    expect(a.window.fromS).toBe(3);
+    expect(a.window.frames).toBe(n - 3 * 512);
+  });
+
   it("a logger at a 300 us period (stamps %.3f ms) gets 1 / 0.0003 s, its round period", async () => {
     const csv = writeStampedCsv(dir, "period.csv", { channels: [{ name: "a", samples: gaussian(8192, 62) }], sampleRateHz: 1 / 0.0003, timeUnit: "ms", format: { fixed: 3 } });
     const a = await analyzeRecording(csv, { segmentLength: 1024 });
