@@ -277,6 +277,14 @@ describe("integer WAVs with and without calibration", () => {
     expect((await cli("transfer", two, "--in", "1", "--out", "2", "--segment", "1024")).stdout).toContain(`  reading    "ch1", "ch2": integer WAV codes with no calibration, read as ±1 g full scale`);
   });
 
+  it("a batch of several recordings says it under its summary table, for the uncalibrated file only", async () => {
+    for (const cmd of [["psd"], ["check", "-p", "samples/profiles/kb210-controller.json"]]) {
+      const out = (await cli(cmd[0]!, bare, calibrated, ...cmd.slice(1))).stdout;
+      expect(out).toContain(`  reading    ${bare}: "ch1": integer WAV codes with no calibration, read as ±1 g full scale`);
+      expect(out).not.toContain(`${calibrated}: "ch1"`);
+    }
+  });
+
   it("with a calibration chunk, --scale or a float WAV: no such line", async () => {
     expect((await cli("psd", calibrated)).stdout).not.toContain("  reading ");
     expect((await cli("psd", bare, "--scale", "16")).stdout).not.toContain("  reading ");
