@@ -149,7 +149,9 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     const rows = ["timestamp_ms,ax,ay,az"];
     for (let i = 0; i < n; i++) rows.push(`${Math.round(1700000000000 + (i * 1000) / 128)},${x[i]!.toFixed(4)},${(0.5 * x[(i + 7) % n]!).toFixed(4)},${(9.81 + x[(i + 13) % n]!).toFixed(4)}`);
     writeFileSync(file, rows.join("\n") + "\n");
-    const a = await analyzeRecording(file, { csv: { timeColumn: "timestamp_ms", timeUnit: "ms" }, inputUnits: "m/s2", resolutionHz: 0.5 });
+    // `timestamp_ms` is found as the time column, in ms, without options (a phone app's header).
+    const a = await analyzeRecording(file, { inputUnits: "m/s2", resolutionHz: 0.5 });
+    expect(a.analysis.reading.dialect).toMatchObject({ timeColumn: "timestamp_ms", timeUnitS: 0.001 });
     expect(a.input.sampleRateHz).toBe(128);
     expect(a.settings.segmentLength).toBe(256);
     expect(a.channels[2]!.stats.mean).toBeCloseTo(9.81, 1);
@@ -171,6 +173,15 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     expect(a.settings.segmentLength).toBe(1024);
     expect(a.window.fromS).toBe(3);
     expect(a.window.frames).toBe(n - 3 * 512);
+  });
+
+  it("`elapsed_s` and `seconds_elapsed` headers are time columns in s; `ax_s` is not", async () => {
+    for (const [name, isTime] of [["elapsed_s", true], ["seconds_elapsed", true], ["ax_s", false]] as const) {
+      const file = join(dir, `${name}.csv`);
+      writeFileSync(file, [`${name},az`, ...Array.from({ length: 600 }, (_, i) => `${(i / 200).toFixed(3)},${i % 7}`)].join("\n") + "\n");
+      if (isTime) expect((await analyzeRecording(file, { spectrum: false })).input.sampleRateHz).toBe(200);
+      else expect((await inputError(analyzeRecording(file, { spectrum: false }))).code).toBe("CSV_NO_RATE");
+    }
   });
 
   it("a logger at a 300 us period (stamps %.3f ms) gets 1 / 0.0003 s, its round period", async () => {

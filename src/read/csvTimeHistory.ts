@@ -44,7 +44,7 @@ const HEAD_BYTES = 65536;
  */
 const PARALLEL_BYTES = 8 << 20;
 const WORKER = new URL("./csvParseWorker.js", import.meta.url);
-const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
+const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|elapsed|elapsed_?time|time_?elapsed|seconds_?elapsed|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
 const TIME_UNITS: Record<string, number> = { s: 1, sec: 1, secs: 1, seconds: 1, ms: 1e-3, us: 1e-6, µs: 1e-6, μs: 1e-6, ns: 1e-9, min: 60, days: 86400, day: 86400, d: 86400 };
 
 interface Dialect {
@@ -369,7 +369,8 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       throw new InputError("TIME_COLUMN_NOT_FOUND", { file, option: "csv.timeColumn", expected: `one of ${columns.map((c) => quoted(c.name)).join(", ")} or 1..${columns.length}`, received: quoted(String(tc)) });
     }
   } else {
-    if (dialect.header) timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name));
+    // A name with its unit as a suffix (`timestamp_ms`, `elapsed_s`) is a time name too.
+    if (dialect.header) timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name) || (c.unitText !== undefined && TIME_NAMES.test(c.name.replace(/_(ms|us|s)$/i, ""))));
     if (timeIndex < 0) timeIndex = dialect.firstRow.slice(0, columns.length).findIndex((f) => looksLikeDateTime(f.replace(/"/g, "")));
   }
   const dateTime = timeIndex >= 0 && looksLikeDateTime((dialect.firstRow[timeIndex] ?? "").replace(/"/g, ""));
