@@ -1,6 +1,8 @@
 import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
 import { judgeSpectrum, overallVerdict, withDoubts, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
+import { combineFits, judgeMixedMode, toneSearchHalfWidthHz } from "./compare/toneCheck.js";
+import { ToneFitAccumulator, type ToneFit } from "./estimate/toneEstimate.js";
 import { InputError, quoted } from "./errors.js";
 import { readProfileText } from "./read/profileFile.js";
 
@@ -93,15 +95,21 @@ export async function checkRecording(file: string, profile: TestProfile, options
   }
   // Control channels are always analysed, with any channels asked for besides.
   const channels = options.control && options.channels?.length ? [...new Set([...options.channels, ...options.control.channels])] : options.channels;
-  const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true });
-  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum(spectrumOf(c, analysis), profile), c.doubtFindings));
+  // Mixed mode: the tones are fitted on the same pass (one more listener).
+  const toneAcc = profile.tones.length > 0 ? new ToneFitAccumulator(profile.tones.map((t, i) => ({ hz: t.hz, searchHalfWidthHz: toneSearchHalfWidthHz(profile, i) }))) : undefined;
+  const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true, accumulators: [...(options.accumulators ?? []), ...(toneAcc ? [toneAcc] : [])] });
+  const fits = toneAcc ? (analysis.extras[analysis.extras.length - 1] as ToneFit[][]) : undefined;
+  if (toneAcc) analysis.extras = analysis.extras.slice(0, -1);
+  const judge = (sp: SpectrumUnderTest, f: (ToneFit | undefined)[] | undefined) => (profile.tones.length > 0 ? judgeMixedMode(sp, profile, f ?? []) : judgeSpectrum(sp, profile));
+  const judged = analysis.channels.map((c, i) => withDoubts(judge(spectrumOf(c, analysis), fits?.[i]), c.doubtFindings));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }
   const pos = controlPositions(analysis, options.control.channels);
   const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
   const doubts = pos.flatMap((i) => analysis.channels[i]!.doubtFindings.map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
-  const judgement = withDoubts(judgeSpectrum(combined, profile), doubts);
+  const controlFits = fits ? profile.tones.map((_, t) => combineFits(pos.map((i) => fits[i]?.[t]), options.control!.rule)) : undefined;
+  const judgement = withDoubts(judge(combined, controlFits), doubts);
   return {
     verdict: judgement.verdict, analysis, profile, channels: judged,
     roles: analysis.channels.map((_, i) => (pos.includes(i) ? "control" : "monitor")),

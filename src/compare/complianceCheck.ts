@@ -80,8 +80,8 @@ export interface ChannelCompliance {
   findings: Finding[];
   lines: LineDeviation[];
   excursions: Excursion[];
-  /** Lines in the profile's range that were not judged, and why. */
-  unjudged: { edge: number; detrend: number; aboveRecord: number };
+  /** Lines in the profile's range that were not judged, and why (tone: a mixed-mode tone's lines, judged as a tone). */
+  unjudged: { edge: number; detrend: number; aboveRecord: number; tone?: number };
   rms: {
     measured: number; required: number; deviationDb: number; upperDb: number | undefined; lowerDb: number | undefined;
     /** Within tolerance as measured. */
@@ -93,6 +93,22 @@ export interface ChannelCompliance {
   };
   dof: { achieved: number; required: number | undefined; forPower: number; ok: boolean };
   rule: RuleReport;
+  /** Mixed mode: each required tone and its verdict (compare/toneCheck.ts). */
+  tones?: import("./toneCheck.js").ToneJudgement[] | undefined;
+}
+
+/**
+ * Mixed mode (compare/toneCheck.ts): the lines the tones occupy are left out of the background's judgement,
+ * the tones' mean square is added to the required RMS (the RMS is the total), and the tones' share of the
+ * family-wise budget is taken from the lines'.
+ */
+export interface BackgroundExclusion {
+  /** 1 for each line (by index in the spectrum) a tone occupies. */
+  excludedLines: Uint8Array;
+  /** Sum of peak^2 / 2 of the required tones inside the compared range. */
+  toneMeanSquare: number;
+  /** Alpha taken from the lines' share for the tones. */
+  toneShare: number;
 }
 
 /** What the judgement needs of a measured spectrum. */
@@ -260,7 +276,25 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
   return g;
 }
 
-export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): ChannelCompliance {
+/** The judged grid less the lines a tone occupies (their count in unjudged.tone). */
+function withoutLines(g: JudgedGrid, excluded: Uint8Array): JudgedGrid & { unjudged: { tone: number } } {
+  const out: JudgedGrid & { unjudged: { edge: number; detrend: number; tone: number } } = { idx: [], req: [], up: [], lo: [], oUp: [], oLo: [], unjudged: { ...g.unjudged, tone: 0 } };
+  for (let j = 0; j < g.idx.length; j++) {
+    if (excluded[g.idx[j]!]) {
+      out.unjudged.tone++;
+      continue;
+    }
+    out.idx.push(g.idx[j]!);
+    out.req.push(g.req[j]!);
+    out.up.push(g.up[j]!);
+    out.lo.push(g.lo[j]!);
+    out.oUp.push(g.oUp[j]!);
+    out.oLo.push(g.oLo[j]!);
+  }
+  return out;
+}
+
+export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, exclusion?: BackgroundExclusion): ChannelCompliance {
   const df = sp.lineSpacingHz;
   const nyquist = sp.sampleRateHz / 2;
   const half = sp.psd.length - 1;
@@ -271,8 +305,8 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const k = sp.upperSharedBy ?? 1;
 
   // Which lines are judged, and what each should show (cached per profile and analysis grid).
-  const grid = judgedGrid(profile, kernel, sp, f0, fN);
-  const unjudged = { ...grid.unjudged, aboveRecord: 0 };
+  const grid = exclusion ? withoutLines(judgedGrid(profile, kernel, sp, f0, fN), exclusion.excludedLines) : judgedGrid(profile, kernel, sp, f0, fN);
+  const unjudged: ChannelCompliance["unjudged"] = { ...grid.unjudged, aboveRecord: 0 };
   const lines: LineDeviation[] = [];
   const idx = grid.idx;
   const limitsUp = grid.up;
@@ -297,7 +331,8 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const allowanceLines = Math.floor(((profile.allowedOutsidePercent ?? 0) / 100) * m);
   const outer = profile.outerBands !== undefined;
   const widths = allowanceLines === 0 ? stretchWidths(m) : [];
-  const levels = ruleLevels(m, outer, k);
+  const toneShare = exclusion?.toneShare ?? 0;
+  const levels = ruleLevels(m, outer, k, toneShare);
   // Single lines get the line alpha less the stretches' share; each stretch width an equal part of that share.
   const singleShare = widths.length > 0 ? 1 - STRETCH_SHARE : 1;
   const upLevel = levels.upper.lineTest * singleShare;
@@ -397,7 +432,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   // RMS over the profile's range, with each end line counted for the part of its cell inside.
   // A record that cannot reach the profile's top is compared over the part it covers.
   const top = Math.min(fN, nyquist);
-  const requiredRms = top < fN ? Math.sqrt(profileMeanSquare(profile, f0, top)) : profile.rms;
+  const requiredRms = Math.sqrt((top < fN ? profileMeanSquare(profile, f0, top) : profile.rms * profile.rms) + (exclusion?.toneMeanSquare ?? 0));
   const measuredMs = bandMeanSquare(sp, f0, top);
   const measuredRms = Math.sqrt(measuredMs);
   const rmsDev = 20 * Math.log10(measuredRms / requiredRms);
@@ -421,7 +456,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   }
 
   // Power and the DOF a pass needs.
-  const powerInputs = { lines: Math.max(1, m), allowance: allowanceLines, inflation, rmsDofRatio: nu > 0 && rmsDof > 0 ? rmsDof / nu : Math.max(1, m) / inflation, outerLimits: outer, upperSharedBy: k };
+  const powerInputs = { lines: Math.max(1, m), allowance: allowanceLines, inflation, rmsDofRatio: nu > 0 && rmsDof > 0 ? rmsDof / nu : Math.max(1, m) / inflation, outerLimits: outer, upperSharedBy: k, toneShare };
   const forPower = dofForPower(powerInputs);
   const power = powerAt(Math.max(nu, 1e-9), powerInputs);
   const required = profile.minDof;

@@ -30,6 +30,8 @@ export const DECISION_RULE = {
   outer: 0.005,
   /** Its share for the RMS, both directions together. */
   rms: 0.01,
+  /** Its share for the sine tones of a mixed-mode profile (taken from the lines' share when the profile has tones; toneCheck.ts). */
+  tones: 0.01,
   /** The departure a pass must have been able to see. */
   departureDb: 1.5,
   departureShare: 0.05,
@@ -50,9 +52,9 @@ export interface RuleLevels {
  * Per-test levels for m judged lines. With the largest of k control channels taken at each line, the
  * upper tests are shared by k estimates (P(max > t) <= k P(one > t)), so their level is divided by k.
  */
-export function ruleLevels(lines: number, outerLimits: boolean, upperSharedBy = 1): { upper: RuleLevels; lower: RuleLevels } {
+export function ruleLevels(lines: number, outerLimits: boolean, upperSharedBy = 1, toneShare = 0): { upper: RuleLevels; lower: RuleLevels } {
   const m = Math.max(1, lines);
-  const lineAlpha = DECISION_RULE.lines - (outerLimits ? DECISION_RULE.outer : 0);
+  const lineAlpha = DECISION_RULE.lines - (outerLimits ? DECISION_RULE.outer : 0) - toneShare;
   const make = (k: number): RuleLevels => ({
     lineTest: lineAlpha / (2 * m * k),
     outerTest: outerLimits ? DECISION_RULE.outer / (2 * m * k) : undefined,
@@ -119,6 +121,8 @@ export interface PowerInputs {
   rmsDofRatio: number;
   outerLimits: boolean;
   upperSharedBy: number;
+  /** The tones' share of the lines' alpha (mixed mode), 0 without tones. */
+  toneShare?: number | undefined;
 }
 
 export interface PowerAt {
@@ -137,7 +141,7 @@ export interface PowerAt {
  * lines is fewer looks: a conservative count); the FAIL needs more than allowance / inflation of them.
  */
 export function powerAt(dof: number, p: PowerInputs): PowerAt {
-  const lv = ruleLevels(p.lines, p.outerLimits, p.upperSharedBy);
+  const lv = ruleLevels(p.lines, p.outerLimits, p.upperSharedBy, p.toneShare ?? 0);
   const g = Math.pow(10, DECISION_RULE.departureDb / 10);
   const n = p.allowance + Math.ceil(DECISION_RULE.departureShare * p.lines);
   const looks = Math.max(1, Math.round(n / p.inflation));

@@ -79,24 +79,28 @@ export class ToneFitAccumulator {
   private designFs = NaN;
   private n = 0;
 
-  constructor(readonly tones: ToneRequest[], readonly channels: number) {}
+  /** `tones`: what to fit; the channels are those the pass hands over, in its order. */
+  constructor(public tones: ToneRequest[]) {}
 
   start(designRateHz: number): void {
     this.designFs = designRateHz;
+    // The search never reaches past fs/16, so a stretch holds at least one sample.
+    this.tones = this.tones.map((t) => ({ ...t, searchHalfWidthHz: Math.min(t.searchHalfWidthHz, designRateHz / 16) }));
     this.stretchLength = this.tones.map((t) => Math.max(1, Math.floor(designRateHz / (8 * t.searchHalfWidthHz))));
-    this.tracks = Array.from({ length: this.channels }, () => this.tones.map(() => new ToneTrack()));
+    this.tracks = [];
     this.n = 0;
   }
 
   push(blocks: Float64Array[], frames: number): void {
     const fs = this.designFs;
+    while (this.tracks.length < blocks.length) this.tracks.push(this.tones.map(() => new ToneTrack()));
     for (let t = 0; t < this.tones.length; t++) {
       const L = this.stretchLength[t]!;
       const hz = this.tones[t]!.hz;
       const w = (2 * Math.PI * hz) / fs;
       const cw = Math.cos(w);
       const sw = Math.sin(w);
-      for (let c = 0; c < blocks.length && c < this.channels; c++) {
+      for (let c = 0; c < blocks.length; c++) {
         const x = blocks[c]!;
         const tr = this.tracks[c]![t]!;
         const m = tr.cur;

@@ -28,9 +28,12 @@ function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string
   out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
   out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
   out.push(`  rule       ${ruleLine(c)}`);
+  for (const t of c.tones ?? []) {
+    out.push(`  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, peak ${sig(t.measuredPeak, 4)} ${u} at ${sig(t.measuredHz, 7)} Hz (required ${sig(t.requiredPeak, 4)}, limits ${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)} ${u}, ±${sig(t.toleranceHz, 3)} Hz; ${signedDb(t.deviationDb)}, sd ${sig(t.peakSd, 2)} ${u})`);
+  }
   const un = c.unjudged;
-  if (un.edge + un.detrend + un.aboveRecord > 0) {
-    out.push(`  unjudged   ${[un.edge ? `${un.edge} line(s) at the profile's ends (the window's kernel reaches past them)` : "", un.detrend ? `${un.detrend} line(s) biased by detrending` : "", un.aboveRecord ? `${un.aboveRecord} line(s) above the record's Nyquist frequency` : ""].filter(Boolean).join(", ")}`);
+  if (un.edge + un.detrend + un.aboveRecord + (un.tone ?? 0) > 0) {
+    out.push(`  unjudged   ${[un.edge ? `${un.edge} line(s) at the profile's ends (the window's kernel reaches past them)` : "", un.detrend ? `${un.detrend} line(s) biased by detrending` : "", un.aboveRecord ? `${un.aboveRecord} line(s) above the record's Nyquist frequency` : "", un.tone ? `${un.tone} line(s) occupied by the tones (judged as tones)` : ""].filter(Boolean).join(", ")}`);
   }
   const shown = worstFirst(c.excursions).slice(0, 8);
   if (shown.length === 0) out.push(`  excursions none: ${c.lines.length} lines checked`);
@@ -48,7 +51,7 @@ export function checkText(r: CheckResult, version: string): string {
     `psdgate ${version}: check of ${printable(a.input.file)} against "${printable(p.title)}"`,
     ...recordingLines(a),
     `  profile    ${printable(p.file)}, sha256 ${p.sha256}`,
-    `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS; tolerance ${toleranceSummary(p)}`,
+    `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS${p.tones.length > 0 ? ` random, ${p.tones.length} tone(s), ${sig(p.totalRms, 4)} ${accelLabel(p.units)} RMS total` : ""}; tolerance ${toleranceSummary(p)}`,
     ...p.defaultsApplied.map((d) => `             default: ${d}`),
     ...(p.provenance ? [`             profile ${printable(provenanceSummary(p)!)}`] : []),
     settingsLine(a),
@@ -88,6 +91,12 @@ function judgementJson(c: ChannelCompliance) {
     rule: c.rule,
     unjudged: c.unjudged,
     excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null })),
+    // Mixed mode: each required tone (empty for a random-only profile).
+    tones: (c.tones ?? []).map((t) => ({
+      name: t.name, hz: t.hz, requiredPeak: t.requiredPeak, measuredPeak: t.measuredPeak, lowerPeak: t.lowerPeak, upperPeak: t.upperPeak, verdict: t.verdict,
+      measuredHz: t.measuredHz, toleranceHz: t.toleranceHz, deviationDb: finiteOrNull(t.deviationDb), status: t.status, shown: t.shown, peakSd: t.peakSd, frequencySd: finiteOrNull(t.frequencySd),
+      backgroundDensity: t.backgroundDensity, linesFromHz: t.linesFromHz, linesToHz: t.linesToHz, testLevel: t.testLevel, falseFailRate: t.falseFailRate,
+    })),
     lines: {
       frequencyHz: c.lines.map((l) => l.frequencyHz),
       measured: c.lines.map((l) => finiteOrNull(l.measured)),
@@ -113,6 +122,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
       file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null,
       resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
       provenance: p.provenance ?? null, origin: provenanceSummary(p) ?? null,
+      tones: p.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, upperDb: t.upperDb, lowerDb: t.lowerDb, toleranceHz: t.toleranceHz })), totalRms: p.totalRms,
     },
     settings: settingsJson(a),
     analysis: a.analysis,

@@ -75,7 +75,7 @@ function lsFit(x: Float64Array, fs: number, f0: number, half: number): { hz: num
 }
 
 function fitOf(x: Float64Array, fs: number, tones: { hz: number; searchHalfWidthHz: number }[], block = 1000) {
-  const acc = new ToneFitAccumulator(tones, 1);
+  const acc = new ToneFitAccumulator(tones);
   acc.start(fs);
   for (let i = 0; i < x.length; i += block) {
     const b = x.slice(i, Math.min(x.length, i + block));
