@@ -139,7 +139,7 @@ function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompli
   const fails: Finding[] = [];
   const blockers: Finding[] = [];
   for (const t of tones) {
-    const where = `${t.name} (${fmt(t.hz)} Hz)`;
+    const where = `${t.name} (${fmt(t.hz, 6)} Hz)`;
     if (t.status === "missing") {
       fails.push({ code: "TONE_MISSING", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, lowerPeak: t.lowerPeak },
         text: `${where} is missing: fitted peak ${fmt(t.measuredPeak)} against the required ${fmt(t.requiredPeak)} (at least ${fmt(t.lowerPeak)}), no more than the background's own noise there` });
@@ -148,7 +148,7 @@ function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompli
         text: `${where}: peak ${fmt(t.measuredPeak)} is ${signed(t.deviationDb)} dB from the required ${fmt(t.requiredPeak)}, shown ${t.status === "low" ? "below" : "above"} its limits ${fmt(t.lowerPeak)}–${fmt(t.upperPeak)}` });
     } else if (t.status === "off-frequency") {
       fails.push({ code: "TONE_OFF_FREQUENCY", values: { hz: t.hz, measuredHz: t.measuredHz, toleranceHz: t.toleranceHz },
-        text: `${where} lies at ${fmt(t.measuredHz, 6)} Hz, shown further from ${fmt(t.hz)} Hz than the ±${fmt(t.toleranceHz)} Hz allowed` });
+        text: `${where} lies at ${fmt(t.measuredHz, 6)} Hz, shown further from ${fmt(t.hz, 6)} Hz than the ±${fmt(t.toleranceHz)} Hz allowed` });
     } else if (t.verdict === "inconclusive") {
       blockers.push({ code: "TONE_UNRESOLVED", values: { hz: t.hz, peak: t.measuredPeak, deviationDb: t.deviationDb, peakSd: t.peakSd },
         text: `${where}: peak ${fmt(t.measuredPeak)} (${signed(t.deviationDb)} dB) is ${t.measuredPeak < t.lowerPeak || t.measuredPeak > t.upperPeak || Math.abs(t.measuredHz - t.hz) > t.toleranceHz ? "outside its tolerance as measured but not beyond what the background's noise explains" : `within its tolerance, but with a standard deviation of ${fmt(t.peakSd)} the record could not show a ${DECISION_RULE.departureDb} dB departure with ${Math.round(100 * DECISION_RULE.power)} % probability`}` });
