@@ -5,6 +5,7 @@ import { _channelFindings, analyzeRecording } from "../src/analyzeRecording.js";
 import { checkRecording, loadProfile } from "../src/checkRecording.js";
 import { judgeSpectrum, withDoubts, type SpectrumUnderTest } from "../src/compare/complianceCheck.js";
 import { parseProfile } from "../src/compare/testProfile.js";
+import { judgeMixedMode } from "../src/compare/toneCheck.js";
 import type { Finding } from "../src/findings.js";
 import { tempDir } from "./helpers.js";
 import { shapedRecord } from "./shapedRecords.js";
@@ -122,6 +123,11 @@ async function allFindings(): Promise<Finding[]> {
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 21)), // NO_LINES
   ];
   for (const c of judged) out.push(...c.findings);
+
+  // Mixed mode on an exact spectrum with hand-made tone fits: pass, low, missing, off frequency, unresolved.
+  const mixed = flat(20, 1000, { tones: [{ name: "hum", hz: 120, peak: 2, toleranceDb: 1, toleranceHz: 0.5 }] });
+  const fit = (peak: number, hz = 120, durationS = 600) => [{ nominalHz: 120, frequencyHz: hz, peak, phaseRad: 0, samples: 1, durationS, searchHalfWidthHz: 1 }];
+  for (const f of [fit(2), fit(1.5), fit(0.01), fit(2, 121.5), fit(1.95, 120, 0.01), fit(1.7, 120, 0.5)]) out.push(...judgeMixedMode(exact(on, { dof: 400 }), mixed, f).findings);
   out.push(...withDoubts(judged[1]!, [{ code: "CLIPPING", values: {}, text: "in doubt" }]).findings.filter((f) => f.code === "FAIL_IN_DOUBT"));
 
   // And the real thing: the samples checked as a user would, control channels as one spectrum.

@@ -150,14 +150,15 @@ function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompli
       fails.push({ code: "TONE_OFF_FREQUENCY", values: { hz: t.hz, measuredHz: t.measuredHz, toleranceHz: t.toleranceHz },
         text: `${where} lies at ${fmt(t.measuredHz, 6)} Hz, shown further from ${fmt(t.hz, 6)} Hz than the ±${fmt(t.toleranceHz)} Hz allowed` });
     } else if (t.verdict === "inconclusive") {
-      blockers.push({ code: "TONE_UNRESOLVED", values: { hz: t.hz, peak: t.measuredPeak, deviationDb: t.deviationDb, peakSd: t.peakSd },
-        text: `${where}: peak ${fmt(t.measuredPeak)} (${signed(t.deviationDb)} dB) is ${t.measuredPeak < t.lowerPeak || t.measuredPeak > t.upperPeak || Math.abs(t.measuredHz - t.hz) > t.toleranceHz ? "outside its tolerance as measured but not beyond what the background's noise explains" : `within its tolerance, but with a standard deviation of ${fmt(t.peakSd)} the record could not show a ${DECISION_RULE.departureDb} dB departure with ${Math.round(100 * DECISION_RULE.power)} % probability`}` });
+      const outside = t.measuredPeak < t.lowerPeak || t.measuredPeak > t.upperPeak || Math.abs(t.measuredHz - t.hz) > t.toleranceHz;
+      blockers.push({ code: "TONE_UNRESOLVED", values: { hz: t.hz, peak: t.measuredPeak, deviationDb: t.deviationDb, ...(outside ? {} : { peakSd: t.peakSd, departureDb: DECISION_RULE.departureDb, powerPercent: 100 * DECISION_RULE.power }) },
+        text: `${where}: peak ${fmt(t.measuredPeak)} (${signed(t.deviationDb)} dB) is ${outside ? "outside its tolerance as measured but not beyond what the background's noise explains" : `within its tolerance, but with a standard deviation of ${fmt(t.peakSd)} the record could not show a ${DECISION_RULE.departureDb} dB departure with ${Math.round(100 * DECISION_RULE.power)} % probability`}` });
     }
   }
   const findings = [...fails, ...c.findings.filter((f) => f.code !== "PASS" || (fails.length === 0 && blockers.length === 0)), ...blockers];
   const verdict: Verdict = fails.length > 0 || c.verdict === "fail" ? "fail" : blockers.length > 0 || c.verdict === "inconclusive" ? "inconclusive" : "pass";
   if (verdict === "pass") {
-    findings.push({ code: "TONES_PASS", values: { tones: tones.length, falseFailPercent: 100 * DECISION_RULE.tones },
+    findings.push({ code: "TONES_PASS", values: { tones: tones.length, departureDb: DECISION_RULE.departureDb, falseFailPercent: 100 * DECISION_RULE.tones },
       text: `${tones.length} tone(s) within their tolerance, each shown in place with the power to see a ${DECISION_RULE.departureDb} dB departure (the tones' share of the false-fail rate ${100 * DECISION_RULE.tones} %)` });
   }
   return { ...c, verdict, findings, reasons: findings.map((f) => f.text), tones };
