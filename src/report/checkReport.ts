@@ -9,7 +9,7 @@ import type { TestMeta } from "../read/testMeta.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
 import { printable } from "./printable.js";
-import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
+import { excursionJudgement, RULE_SUMMARY, ruleLine, TONE_RULE, VERDICT_MEANING } from "./ruleText.js";
 
 export type { CheckResult };
 
@@ -77,7 +77,7 @@ export function checkText(r: CheckResult, version: string): string {
     }
     out.push(...findingLines(ch).filter((l) => !l.startsWith("  DOUBT")), "");
   });
-  out.push(`RULE: ${RULE_SUMMARY}`, "", `CAUTION: ${VERDICT_CAUTION}`, "");
+  out.push(`RULE: ${RULE_SUMMARY}`, ...(p.tones.length > 0 ? ["", `TONES: ${TONE_RULE}`] : []), "", `CAUTION: ${VERDICT_CAUTION}`, "");
   return out.join("\n");
 }
 
@@ -126,7 +126,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
     },
     settings: settingsJson(a),
     analysis: a.analysis,
-    rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict] },
+    rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict], ...(p.tones.length > 0 ? { tones: TONE_RULE } : {}) },
     control: r.control ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) } : null,
     channels: r.channels.map((c, i) => {
       const ch = a.channels[i]!;

@@ -16,6 +16,13 @@ export const RULE_SUMMARY =
   `FAIL when more lines are shown outside than the profile allows, any line beyond an outer limit, or the RMS outside its tolerance: at most ${pct(DECISION_RULE.falseFailRate)} of records whose true PSD lies inside the bands (RMS inside its tolerance) fail, at any DOF. ` +
   `PASS also needs the DOF at which a ${DECISION_RULE.departureDb} dB departure beyond the band over ${pct(DECISION_RULE.departureShare)} of the lines, or an RMS ${DECISION_RULE.rmsBeyondDb} dB outside its tolerance, fails with at least ${pct(DECISION_RULE.power)} probability, and the profile's minDof.`;
 
+/** The mixed-mode part of the rule (profiles with sine tones), in one paragraph. */
+export const TONE_RULE =
+  `With sine tones (mixed mode): the lines each tone occupies through the window's kernel are left out of the background's tests and the RMS is the total (random plus each tone's peak²/2). ` +
+  `Each tone's peak is a least-squares sine fit over the whole record at the frequency that maximises its periodogram, with standard deviation √(G/T) from the background density G around it and the record length T. ` +
+  `A tone is shown low, high or off its frequency when it lies beyond its limit by more than the normal quantile at ${pct(DECISION_RULE.tones)} / (4 × tones) of that deviation; the tones' ${pct(DECISION_RULE.tones)} is taken from the lines' share, so the whole stays at ${pct(DECISION_RULE.falseFailRate)}. ` +
+  `A missing tone, one shown outside its tolerance or off its frequency FAILs by name; a pass needs the power to see a tone ${DECISION_RULE.departureDb} dB beyond its limits with ${pct(DECISION_RULE.power)} probability.`;
+
 /** The rule as it applied to one judged spectrum: its rates at the achieved DOF. */
 export function ruleLine(c: ChannelCompliance): string {
   const r = c.rule;
