@@ -304,7 +304,8 @@ export interface SpectralTone {
  * Tones a Welch spectrum shows: lines standing far above their neighbours. A line is a candidate when it is
  * the largest within the kernel's reach, at least `minDb` (10 dB) above the median of the 2 x 16 lines beyond
  * that reach, and above that median by more than chance among all lines explains (chi-square at 1 % over all
- * lines, Bonferroni). Its peak amplitude and frequency come from fitting the kernel h(k - delta) to the
+ * lines, Bonferroni), and when the three lines just past the kernel's reach on each side lie within 3 dB of that median
+ * (a tone is as narrow as the kernel; a resonance is wider). Its peak amplitude and frequency come from fitting the kernel h(k - delta) to the
  * excess over the background on the lines it occupies (least squares in amplitude, delta on a 1/32-bin grid),
  * so the window's scalloping does not bias it (Percival & Walden 1993, sec. 6.3; the periodic window's
  * kernel sums to 1 over the lines). A narrow resonance of random vibration can also pass: these are candidates.
@@ -333,6 +334,15 @@ export function spectralTones(
     nb.sort((a, b) => a - b);
     const bg = nb[nb.length >> 1]!;
     if (!(p > ratio * bg)) continue;
+    // A tone is as narrow as the kernel: the three lines just past its reach on each side lie near the background
+    // (mean below 2x, +3 dB). A resonance of random vibration a few lines wide does not (chosen here).
+    let near = 0;
+    let cnt = 0;
+    for (let k = reach + 1; k <= reach + 3; k++) {
+      if (i - k >= 1) { near += sp.psd[i - k]!; cnt++; }
+      if (i + k < n) { near += sp.psd[i + k]!; cnt++; }
+    }
+    if (cnt > 0 && near / cnt > 2 * bg) continue;
     // Kernel fit on the lines within reach.
     let bestD = 0;
     let bestA = 0;
