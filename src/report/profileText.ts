@@ -28,6 +28,11 @@ export function provenanceParameters(p: TestProfile): string[] {
   return Object.entries(p.provenance?.parameters ?? {}).map(([k, v]) => `${k} ${v === null ? "none" : String(v)}`);
 }
 
+/** The shaker caution, saying how the stroke was estimated when the profile has tones. */
+function shakerCaution(p: TestProfile): string {
+  return p.tones.length === 0 ? SHAKER_CAUTION : SHAKER_CAUTION.replace("(peak-to-peak taken as 6 x RMS, a ±3 sigma excursion: common practice)", "(peak-to-peak taken as 6 x the random part's RMS, a ±3 sigma excursion: common practice, plus twice each tone's displacement peak, since the peaks can line up)");
+}
+
 /** The tones of a mixed-mode profile and the total RMS (random plus the sum of peak^2 / 2). */
 function toneLines(p: TestProfile): string[] {
   if (p.tones.length === 0) return [];
@@ -67,7 +72,7 @@ export function profileText(p: TestProfile, version: string): string {
       ...p.provenance.inputs.map((i) => `  input      ${printable(i.file)}${i.group ? ` [${printable(i.group)}]` : ""}${i.serviceHours !== undefined ? ` ${sig(i.serviceHours, 5)} h of service` : ""}, sha256 ${i.sha256}`),
     ] : []),
     "",
-    `CAUTION: ${SHAKER_CAUTION}`,
+    `CAUTION: ${shakerCaution(p)}`,
     "",
   ].join("\n");
 }
@@ -94,6 +99,6 @@ export function profileJson(p: TestProfile, version: string) {
     resolutionHz: p.resolutionHz ?? null,
     durationS: p.durationS ?? null,
     provenance: p.provenance ?? null,
-    caution: SHAKER_CAUTION,
+    caution: shakerCaution(p),
   };
 }
