@@ -128,6 +128,8 @@ async function allFindings(): Promise<Finding[]> {
   const mixed = flat(20, 1000, { tones: [{ name: "hum", hz: 120, peak: 2, toleranceDb: 1, toleranceHz: 0.5 }] });
   const fit = (peak: number, hz = 120, durationS = 600) => [{ nominalHz: 120, frequencyHz: hz, peak, phaseRad: 0, samples: 1, durationS, searchHalfWidthHz: 1 }];
   for (const f of [fit(2), fit(1.5), fit(0.01), fit(2, 121.5), fit(1.95, 120, 0.01), fit(1.7, 120, 0.5)]) out.push(...judgeMixedMode(exact(on, { dof: 400 }), mixed, f).findings);
+  // A tone the record cannot hold (a profile to 2000 Hz, a record at 2560 Hz).
+  out.push(...judgeMixedMode(exact(on, { dof: 400 }), flat(20, 2000, { tones: [{ hz: 1500, peak: 1, toleranceDb: 1 }] }), fit(1)).findings);
   out.push(...withDoubts(judged[1]!, [{ code: "CLIPPING", values: {}, text: "in doubt" }]).findings.filter((f) => f.code === "FAIL_IN_DOUBT"));
 
   // And the real thing: the samples checked as a user would, control channels as one spectrum.

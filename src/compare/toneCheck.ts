@@ -51,6 +51,8 @@ export interface ToneJudgement {
   status: "within" | "low" | "high" | "missing" | "off-frequency";
   /** Shown outside its tolerance (peak or frequency) at the tone's level. */
   shown: boolean;
+  /** The tone lies at or above the record's Nyquist frequency (with its allowance): not seen, inconclusive. */
+  unseen?: boolean | undefined;
   /** Per-test level (each of the tone's four tests), and the tone's share of the false-fail rate. */
   testLevel: number;
   falseFailRate: number;
@@ -116,6 +118,14 @@ export function judgeMixedMode(sp: SpectrumUnderTest, profile: TestProfile, fits
     const sd = tonePeakSd(G, T);
     const fSd = toneFrequencySd(G, peak, T);
     const { lo, up } = limits(t);
+    if (t.hz + t.toleranceHz >= sp.sampleRateHz / 2) {
+      // The record cannot hold the tone: nothing can be shown either way.
+      return {
+        name: t.label, hz: t.hz, toleranceHz: t.toleranceHz, requiredPeak: t.peak, measuredPeak: NaN, measuredHz: NaN, lowerPeak: lo, upperPeak: up,
+        deviationDb: NaN, peakSd: NaN, frequencySd: NaN, backgroundDensity: NaN, linesFromHz: span.first * df, linesToHz: span.last * df,
+        status: "within" as const, shown: false, testLevel: level, falseFailRate: 4 * level, verdict: "inconclusive" as const, unseen: true,
+      };
+    }
     const low = peak < lo - z * sd;
     const high = peak > up + z * sd;
     const missing = low && peak < MISSING_SD * sd;
@@ -140,7 +150,9 @@ function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompli
   const blockers: Finding[] = [];
   for (const t of tones) {
     const where = `${t.name} (${fmt(t.hz, 6)} Hz)`;
-    if (t.status === "missing") {
+    if (t.unseen) {
+      blockers.push({ code: "TONE_ABOVE_RECORD", values: { hz: t.hz, toleranceHz: t.toleranceHz }, text: `${where}: the tone (±${fmt(t.toleranceHz)} Hz) does not lie below the record's Nyquist frequency, so the record cannot show it` });
+    } else if (t.status === "missing") {
       fails.push({ code: "TONE_MISSING", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, lowerPeak: t.lowerPeak },
         text: `${where} is missing: fitted peak ${fmt(t.measuredPeak)} against the required ${fmt(t.requiredPeak)} (at least ${fmt(t.lowerPeak)}), no more than the background's own noise there` });
     } else if (t.status === "low" || t.status === "high") {

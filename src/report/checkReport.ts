@@ -29,6 +29,10 @@ function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string
   out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
   out.push(`  rule       ${ruleLine(c)}`);
   for (const t of c.tones ?? []) {
+    if (t.unseen) {
+      out.push(`  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, not seen (at or above the record's Nyquist frequency)`);
+      continue;
+    }
     out.push(`  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, peak ${sig(t.measuredPeak, 4)} ${u} at ${sig(t.measuredHz, 7)} Hz (required ${sig(t.requiredPeak, 4)}, limits ${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)} ${u}, ±${sig(t.toleranceHz, 3)} Hz; ${signedDb(t.deviationDb)}, sd ${sig(t.peakSd, 2)} ${u})`);
   }
   const un = c.unjudged;
@@ -93,9 +97,9 @@ function judgementJson(c: ChannelCompliance) {
     excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null })),
     // Mixed mode: each required tone (empty for a random-only profile).
     tones: (c.tones ?? []).map((t) => ({
-      name: t.name, hz: t.hz, requiredPeak: t.requiredPeak, measuredPeak: t.measuredPeak, lowerPeak: t.lowerPeak, upperPeak: t.upperPeak, verdict: t.verdict,
-      measuredHz: t.measuredHz, toleranceHz: t.toleranceHz, deviationDb: finiteOrNull(t.deviationDb), status: t.status, shown: t.shown, peakSd: t.peakSd, frequencySd: finiteOrNull(t.frequencySd),
-      backgroundDensity: t.backgroundDensity, linesFromHz: t.linesFromHz, linesToHz: t.linesToHz, testLevel: t.testLevel, falseFailRate: t.falseFailRate,
+      name: t.name, hz: t.hz, requiredPeak: t.requiredPeak, measuredPeak: finiteOrNull(t.measuredPeak), lowerPeak: t.lowerPeak, upperPeak: t.upperPeak, verdict: t.verdict,
+      measuredHz: finiteOrNull(t.measuredHz), toleranceHz: t.toleranceHz, deviationDb: finiteOrNull(t.deviationDb), status: t.status, shown: t.shown, peakSd: finiteOrNull(t.peakSd), frequencySd: finiteOrNull(t.frequencySd),
+      backgroundDensity: finiteOrNull(t.backgroundDensity), linesFromHz: t.linesFromHz, linesToHz: t.linesToHz, testLevel: t.testLevel, falseFailRate: t.falseFailRate,
     })),
     lines: {
       frequencyHz: c.lines.map((l) => l.frequencyHz),
