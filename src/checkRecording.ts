@@ -4,6 +4,7 @@ import { parseProfile, type TestProfile } from "./compare/testProfile.js";
 import { combineFits, judgeMixedMode, toneSearchHalfWidthHz } from "./compare/toneCheck.js";
 import { ToneFitAccumulator, type ToneFit } from "./estimate/toneEstimate.js";
 import { InputError, quoted } from "./errors.js";
+import type { Finding } from "./findings.js";
 import { readProfileText } from "./read/profileFile.js";
 
 /** How several control channels make one control spectrum (multipoint control). */
@@ -31,6 +32,18 @@ export interface CheckResult {
   /** "judged" without control channels; otherwise "control" or "monitor" (shown, not judged). */
   roles: ("judged" | "control" | "monitor")[];
   control?: ControlJudgement | undefined;
+}
+
+/**
+ * A held channel (sample-and-hold, HELD_SAMPLES) shows above its sensor's Nyquist frequency only the hold's
+ * images: where the profile reaches above it, those lines cannot support a verdict, so the check is in doubt.
+ */
+function heldBand(c: ChannelAnalysis, profile: TestProfile): Finding[] {
+  const h = c.hold;
+  const top = profile.breakpoints[profile.breakpoints.length - 1]!.hz;
+  if (!h?.held || !(top > h.updateRateHz / 2)) return [];
+  const nyq = Number((h.updateRateHz / 2).toPrecision(4));
+  return [{ code: "HELD_BAND", values: { profileTopHz: top, nyquistHz: nyq }, text: `the profile runs to ${top} Hz, but the sensor behind this channel updated only up to ${nyq} Hz (held samples): the lines above show the hold's images, not the motion` }];
 }
 
 /** Read and validate a profile file (JSON, YAML or two-column CSV). */
@@ -101,13 +114,13 @@ export async function checkRecording(file: string, profile: TestProfile, options
   const fits = toneAcc ? (analysis.extras[analysis.extras.length - 1] as ToneFit[][]) : undefined;
   if (toneAcc) analysis.extras = analysis.extras.slice(0, -1);
   const judge = (sp: SpectrumUnderTest, f: (ToneFit | undefined)[] | undefined) => (profile.tones.length > 0 ? judgeMixedMode(sp, profile, f ?? []) : judgeSpectrum(sp, profile));
-  const judged = analysis.channels.map((c, i) => withDoubts(judge(spectrumOf(c, analysis), fits?.[i]), c.doubtFindings));
+  const judged = analysis.channels.map((c, i) => withDoubts(judge(spectrumOf(c, analysis), fits?.[i]), [...c.doubtFindings, ...heldBand(c, profile)]));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }
   const pos = controlPositions(analysis, options.control.channels);
   const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
-  const doubts = pos.flatMap((i) => analysis.channels[i]!.doubtFindings.map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
+  const doubts = pos.flatMap((i) => [...analysis.channels[i]!.doubtFindings, ...heldBand(analysis.channels[i]!, profile)].map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
   const controlFits = fits ? profile.tones.map((_, t) => combineFits(pos.map((i) => fits[i]?.[t]), options.control!.rule)) : undefined;
   const judgement = withDoubts(judge(combined, controlFits), doubts);
   return {
