@@ -25,7 +25,9 @@ export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfi
 export { judgeSpectrum, withDoubts, overallVerdict, bandAt, longerRecordFactor, type Verdict, type ChannelCompliance, type Excursion, type LineDeviation, type SpectrumUnderTest, type Finding } from "./compare/complianceCheck.js";
 export { DECISION_RULE, ruleLevels, powerAt, dofForPower, binomialAtLeast } from "./compare/decisionRule.js";
 export { amplitudeGates, autocorrelationFourthSum, GATE_RATE } from "./compare/amplitudeGates.js";
-export { spectralKernel, lineVarianceInflation, detrendBiasedLines } from "./estimate/spectralKernel.js";
+export { spectralKernel, lineVarianceInflation, detrendBiasedLines, kernelDensityAt } from "./estimate/spectralKernel.js";
+export { ToneFitAccumulator, spectralTones, toneLines, tonePeakSd, toneFrequencySd, type ToneFit, type ToneRequest, type SpectralTone } from "./estimate/toneEstimate.js";
+export { judgeMixedMode, toneSearchHalfWidthHz, combineFits, type ToneJudgement } from "./compare/toneCheck.js";
 export { synthesizeProfile, type SynthOptions, type SynthResult } from "./synth/synthesizeProfile.js";
 export { GaussianNoise } from "./synth/gaussianNoise.js";
 export { psdJson, psdCsv } from "./report/psdJson.js";
@@ -78,4 +80,4 @@ export { fitDamageProfile, upperEnvelope, brokenLineLevel, type Breakpoint, type
 export { deriveJson, deriveText, profileDocumentText } from "./report/deriveReport.js";
 export { deriveHtml } from "./report/deriveHtml.js";
 export { provenanceSummary } from "./report/profileText.js";
-export type { ProfileProvenance } from "./compare/testProfile.js";
+export type { ProfileProvenance, ProfileTone } from "./compare/testProfile.js";
