@@ -114,6 +114,8 @@ export interface ChannelAnalysis {
   histogram?: AmplitudeHistogram | undefined;
   /** Reverse-arrangements test on the stretch mean squares (Bendat & Piersol 2010, sec. 10.3). */
   stationarity: StationarityFinding;
+  /** The stretch mean squares the stationarity test looked at (one per stretchS; for check's level gate). */
+  stretchMeanSquares?: Float64Array | undefined;
   /** Runs of repeated values: is the record a slower sensor's readings held to the file's rate? */
   hold?: SampleHold | undefined;
   /** Findings that weaken trust in the result; each names what was seen. */
@@ -216,7 +218,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const fs = summary.sampleRateHz;
   const passDoubts: string[] = [];
   if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
-    passDoubts.push(`the record's rate is ${fmt(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${fmt(designFs)} Hz its first rows gave`);
+    passDoubts.push(`the record's rate is ${String(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${String(designFs)} Hz its first rows gave`);
   }
   if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
     throw new InputError("WINDOW_EMPTY", {
@@ -239,7 +241,8 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
     const parseval = parsevalCheck(rmsTime, psd, settings.window);
     const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
-    const stationarity = stationarityFinding(stretches[c]!.result(), stretchLength / fs, windowInfo.fromS);
+    const stretchMs = stretches[c]!.result();
+    const stationarity = stationarityFinding(stretchMs, stretchLength / fs, windowInfo.fromS);
     const hold = holds[c]!.result(fs);
     const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
     const note = stationarityNote(stationarity);
@@ -248,7 +251,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
       tones: spectrum && psd.dof > 0 ? spectralTones(psd, window, spectralKernel(settings.window, window, settings.detrend).halfWidthBins, { max: 8 }) : [],
-      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, stretchMeanSquares: stretchMs, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });
   return {

@@ -4,6 +4,7 @@ import { describe, expect, it } from "vitest";
 import { _channelFindings, analyzeRecording } from "../src/analyzeRecording.js";
 import { checkRecording, loadProfile } from "../src/checkRecording.js";
 import { judgeSpectrum, withDoubts, type SpectrumUnderTest } from "../src/compare/complianceCheck.js";
+import { levelGate } from "../src/compare/levelGate.js";
 import { parseProfile } from "../src/compare/testProfile.js";
 import { judgeMixedMode } from "../src/compare/toneCheck.js";
 import type { Finding } from "../src/findings.js";
@@ -119,8 +120,14 @@ async function allFindings(): Promise<Finding[]> {
     judgeSpectrum(exact((f) => on(f) * (f > 400 && f < 430 ? 10 : 1), { dof: 200 }), flat(20, 1000, {}, { allowedOutsidePercent: 5, outerLimits: [{ fromHz: 20, toHz: 1000, upperDb: 6, lowerDb: 6 }] })), // OUTER_LIMIT
     judgeSpectrum(exact((f) => on(f) * db(1.3), { dof: 2 }), flat(20, 1000)), // RMS_UNRESOLVED, DOF_BELOW_POWER
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 1000, { minDof: 1000, durationS: 900, resolutionHz: 1 })), // DOF_BELOW_PROFILE, DURATION_SHORT, RESOLUTION_COARSE
+    judgeSpectrum({ ...exact(on, { dof: 400, durationS: 25 }), analysedWindow: { fromS: 5, toS: 30 } }, flat(20, 1000, { durationS: 40 })), // DURATION_SHORT of a --from/--to window
     judgeSpectrum(exact((f) => (f >= 20 ? 0.01 * db(3) : 0), { dof: 200 }), flat(20, 2000)), // RANGE_ABOVE_RECORD, RMS over what the record covers
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 21)), // NO_LINES
+    // NOTCH_LINES_LEFT_OUT: a 40 dB notch 35 Hz above the profile's start, where the wide kernel reaches past it.
+    judgeSpectrum(exact(on, { dof: 400 }), parseProfile(JSON.stringify({
+      title: "notch", units: "g2/Hz", points: [{ hz: 20, level: 0.01 }, { hz: 50, level: 0.01 }, { hz: 55, level: 0.000001 }, { hz: 60, level: 0.01 }, { hz: 1000, level: 0.01 }],
+      tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
+    }), "notch.json")),
   ];
   for (const c of judged) out.push(...c.findings);
 
@@ -130,6 +137,9 @@ async function allFindings(): Promise<Finding[]> {
   for (const f of [fit(2), fit(1.5), fit(0.01), fit(2, 121.5), fit(1.95, 120, 0.01), fit(1.7, 120, 0.5)]) out.push(...judgeMixedMode(exact(on, { dof: 400 }), mixed, f).findings);
   // A tone the record cannot hold (a profile to 2000 Hz, a record at 2560 Hz).
   out.push(...judgeMixedMode(exact(on, { dof: 400 }), flat(20, 2000, { tones: [{ hz: 1500, peak: 1, toleranceDb: 1 }] }), fit(1)).findings);
+  // The level gate: a run loud for its first half and quiet for its second, and drift that dominates.
+  const step = Array.from({ length: 64 }, (_, i) => (i < 32 ? db(2) : db(-2.9)));
+  out.push(...levelGate(step, 1, 1, 0.64, 20));
   out.push(...withDoubts(judged[1]!, [{ code: "CLIPPING", values: {}, text: "in doubt" }]).findings.filter((f) => f.code === "FAIL_IN_DOUBT"));
 
   // And the real thing: the samples checked as a user would, control channels as one spectrum.

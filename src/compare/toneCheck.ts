@@ -97,9 +97,12 @@ export function judgeMixedMode(sp: SpectrumUnderTest, profile: TestProfile, fits
   const top = Math.min(profile.breakpoints[profile.breakpoints.length - 1]!.hz, sp.sampleRateHz / 2);
   let toneMs = 0;
   for (const t of tones) if (t.hz >= f0 && t.hz <= top) toneMs += (t.peak * t.peak) / 2;
-  const background = judgeSpectrum(sp, profile, { excludedLines: excluded, toneMeanSquare: toneMs, toneShare: DECISION_RULE.tones });
+  // The caller's own mask (if any) and the tones' lines together.
+  if (sp.excludedLines) for (let k = 0; k < nLines && k < sp.excludedLines.length; k++) if (sp.excludedLines[k]) excluded[k] = 1;
+  const background = judgeSpectrum({ ...sp, excludedLines: excluded }, profile, { toneMeanSquare: toneMs, toneShare: DECISION_RULE.tones });
 
-  const level = DECISION_RULE.tones / (4 * tones.length);
+  // Each spectrum of a record judged as several (sp.family) gets its share of the record's rate, as the lines do.
+  const level = DECISION_RULE.tones / (4 * tones.length * Math.max(1, sp.family ?? 1));
   const z = normalQuantile(1 - level);
   const zPower = normalQuantile(DECISION_RULE.power);
   const g = Math.pow(10, DECISION_RULE.departureDb / 20);
