@@ -10,6 +10,8 @@ import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments
 import { SampleHoldAccumulator, type SampleHold } from "./estimate/sampleHold.js";
 import { stationarityFinding, type StationarityFinding } from "./estimate/stationarityTests.js";
 import { StretchMeanSquares } from "./estimate/stretchMeanSquares.js";
+import { spectralKernel } from "./estimate/spectralKernel.js";
+import { spectralTones, type SpectralTone } from "./estimate/toneEstimate.js";
 import type { ResolvedWelchOptions, WelchOptions } from "./estimate/welchOptions.js";
 import { WelchAccumulator } from "./estimate/welchPsd.js";
 import { spectralWindow } from "./estimate/windows.js";
@@ -106,6 +108,8 @@ export interface ChannelAnalysis {
   parseval: ParsevalCheck;
   band?: { fminHz: number; fmaxHz: number; rms: number } | undefined;
   peaks: SpectralPeak[];
+  /** Lines standing far above their neighbours: candidate sine tones, with their amplitude (toneEstimate.ts spectralTones). */
+  tones: SpectralTone[];
   /** Amplitude histogram, when asked for (the review report shows it). */
   histogram?: AmplitudeHistogram | undefined;
   /** Reverse-arrangements test on the stretch mean squares (Bendat & Piersol 2010, sec. 10.3). */
@@ -246,6 +250,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS }, text: `the window's end ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
+      tones: spectrum && psd.dof > 0 ? spectralTones(psd, window, spectralKernel(settings.window, window, settings.detrend).halfWidthBins, { max: 8 }) : [],
       histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, stretchMeanSquares: stretchMs, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });

@@ -5,6 +5,8 @@ import { damageSpectra } from "./estimate/damageSpectrum.js";
 import { SN_DEFAULTS, type SnCurve } from "./estimate/fatigueDamage.js";
 import { clippedSpectrum, lineSpectrum, powerLawSpectrum } from "./estimate/inputSpectrum.js";
 import { bandRms } from "./estimate/psdEstimate.js";
+import { spectralKernel } from "./estimate/spectralKernel.js";
+import { spectralWindow } from "./estimate/windows.js";
 import { logToleranceLimit, MIN_TOLERANCE_SAMPLES, type LogToleranceLimit } from "./estimate/toleranceLimit.js";
 import type { ServiceMix } from "./read/mixFile.js";
 import { fitDamageProfile, type Breakpoint } from "./synth/profileFit.js";
@@ -135,6 +137,12 @@ export interface DeriveResult {
   /** Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's. */
   compression: { flatFactor: number; profileRms: number; meanFieldRms: number; rmsRatio: number };
   notes: string[];
+  /**
+   * Lines standing far above their neighbours in a field recording (estimate/toneEstimate.ts spectralTones): candidate
+   * sine tones for a mixed-mode lab profile. Their lines are replaced by the background around them before the
+   * envelope, mean, tolerance limit and damage, so the random profile is not fitted to them.
+   */
+  candidateTones: { file: string; frequencyHz: number; peak: number; aboveBackgroundDb: number }[];
   /** The profile document as written, and as psdgate reads it back. */
   document: ProfileDocument;
   profile: TestProfile;
@@ -240,10 +248,19 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const mean = new Float64Array(lines);
   const envelope = new Float64Array(lines);
   const notes: string[] = [];
+  const candidateTones: DeriveResult["candidateTones"] = [];
   const recordings: FieldRecordingResult[] = analysed.map(({ r, a, c }) => {
     const durationS = a.window.frames / a.input.sampleRateHz;
     const serviceS = (groupTime.get(r.group) ?? 0) * (durationS / groupDur.get(r.group)!);
     const psd = c.psd.psd.slice(0, lines);
+    // Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around it.
+    const reach = Math.ceil(spectralKernel(a.settings.window, spectralWindow(a.settings.window, a.settings.segmentLength), a.settings.detrend).halfWidthBins) + 1;
+    for (const t of c.tones) {
+      if (t.frequencyHz < fromHz || t.frequencyHz > toHz) continue;
+      candidateTones.push({ file: r.file, frequencyHz: t.frequencyHz, peak: t.peak, aboveBackgroundDb: t.aboveBackgroundDb });
+      const k0 = Math.round(t.frequencyHz / df);
+      for (let k = Math.max(1, k0 - reach); k <= Math.min(lines - 1, k0 + reach); k++) psd[k] = Math.min(psd[k]!, t.backgroundDensity);
+    }
     const ds = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), { fnHz, q, durationS: serviceS, sn, toSi });
     for (let i = 0; i < n; i++) {
       fieldFatigue[i] = fieldFatigue[i]! + ds.damage[i]!;
@@ -261,6 +278,9 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz), stationary: c.stationarity.tested ? c.stationarity.stationary : undefined, stationarityNote: note, psd, damage: ds.damage, extreme: ds.extreme,
     };
   });
+  if (candidateTones.length > 0) {
+    notes.push(`${candidateTones.length} candidate sine tone(s) in the field recordings (listed): kept out of the random envelope, mean, tolerance limit and damage; give them to the lab profile as tones (mixed mode) if they are real`);
+  }
   const groups = o.groups.map((g) => {
     const share = new Float64Array(n);
     for (const r of recordings) if (r.group === g.name) for (let i = 0; i < n; i++) share[i] = share[i]! + r.damage[i]! / fieldFatigue[i]!;
@@ -336,7 +356,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     fnHz, q, sn, margin, fieldFatigue, testFatigue, fieldExtreme, testExtreme: testSpectra.extreme, extremeRatio, extremeLimit, extremeWarnings,
     fit: { maxBreakpoints: nMax, minRatio: fit.minRatio, minRatioHz: fit.minRatioHz, maxRatio: fit.maxRatio, medianRatio: fit.medianRatio, scale: fit.scale },
     compression: { flatFactor: (lifeS / o.testDurationS) ** (2 / b), profileRms: profile.rms, meanFieldRms, rmsRatio: profile.rms / meanFieldRms },
-    notes, document, profile,
+    notes, candidateTones, document, profile,
   };
 }
 

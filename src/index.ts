@@ -26,7 +26,9 @@ export { judgeSpectrum, withDoubts, withGate, overallVerdict, bandAt, longerReco
 export { DECISION_RULE, DEFAULT_POWER, ruleLevels, powerAt, dofForPower, binomialAtLeast, largestUpperFactor, largestOfMoments, largestEffectiveDof, type PowerRequirement } from "./compare/decisionRule.js";
 export { levelGate, levelSwing, LEVEL_GATE, type LevelSwing } from "./compare/levelGate.js";
 export { amplitudeGates, autocorrelationFourthSum, GATE_RATE } from "./compare/amplitudeGates.js";
-export { spectralKernel, lineVarianceInflation, detrendBiasedLines, departureShare } from "./estimate/spectralKernel.js";
+export { spectralKernel, lineVarianceInflation, detrendBiasedLines, departureShare, kernelDensityAt } from "./estimate/spectralKernel.js";
+export { ToneFitAccumulator, spectralTones, toneLines, tonePeakSd, toneFrequencySd, type ToneFit, type ToneRequest, type SpectralTone } from "./estimate/toneEstimate.js";
+export { judgeMixedMode, toneSearchHalfWidthHz, combineFits, type ToneJudgement } from "./compare/toneCheck.js";
 export { synthesizeProfile, type SynthOptions, type SynthResult } from "./synth/synthesizeProfile.js";
 export { GaussianNoise } from "./synth/gaussianNoise.js";
 export { psdJson, psdCsv } from "./report/psdJson.js";
@@ -79,4 +81,4 @@ export { fitDamageProfile, upperEnvelope, brokenLineLevel, type Breakpoint, type
 export { deriveJson, deriveText, profileDocumentText } from "./report/deriveReport.js";
 export { deriveHtml } from "./report/deriveHtml.js";
 export { provenanceSummary } from "./report/profileText.js";
-export type { ProfileProvenance } from "./compare/testProfile.js";
+export type { ProfileProvenance, ProfileTone } from "./compare/testProfile.js";

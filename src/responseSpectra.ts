@@ -7,7 +7,7 @@ import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "./estimate/fatigueD
 import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "./estimate/inputSpectrum.js";
 import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "./estimate/kinematics.js";
 import { davenportPeakFactor, riceRates } from "./estimate/peakStatistics.js";
-import { milesRelativeDisplacementRms, milesRms, sdofResponse } from "./estimate/sdofResponse.js";
+import { absoluteTransmissibilitySquared, milesRelativeDisplacementRms, milesRms, relativeDisplacementSquared, sdofResponse } from "./estimate/sdofResponse.js";
 import { looksLikePsdTable, readPsdTable } from "./read/psdTable.js";
 import { accelFactor, type AccelUnit } from "./units.js";
 
@@ -32,6 +32,8 @@ export interface SpectrumSource {
   /** Frequencies at which the source is defined: lines (recording, table) or breakpoints (profile). */
   frequencyHz: Float64Array;
   level: Float64Array;
+  /** A mixed-mode profile's sine tones inside the band (a recording's or table's tones are already in its lines). */
+  tones?: { label: string; hz: number; peak: number }[] | undefined;
   /** The analysed window of a recording (--from/--to; the whole record without them), s. */
   window?: { fromS: number; toS: number; durationS: number; whole: boolean } | undefined;
   /** How a recording's numbers became accelerations. */
@@ -107,7 +109,8 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
     });
     const spectrum = powerLawSpectrum(segments);
     const hz = Float64Array.from([segments[0]!.f1, ...segments.map((s) => s.f2)]);
-    return { kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum, durationS: p.durationS, frequencyHz: hz, level: hz.map((f) => spectrum.level(f)) };
+    const tones = p.tones.filter((t) => t.hz >= lo && t.hz <= hi).map((t) => ({ label: t.label, hz: t.hz, peak: t.peak }));
+    return { kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum, durationS: p.durationS, frequencyHz: hz, level: hz.map((f) => spectrum.level(f)), ...(tones.length > 0 ? { tones } : {}) };
   }
   if (kind === "psd") {
     const t = await readPsdTable(file);
@@ -170,6 +173,14 @@ export interface ResponseSpectra {
   fatigueDamage: Float64Array;
   motion: Motion & { velocityPsd: Float64Array; displacementPsd: Float64Array; frequencyHz: Float64Array };
   stroke?: { ratedMm: number; estimateMm: number; margin: number; withinRating: boolean } | undefined;
+  /**
+   * A mixed-mode profile's tones: each tone's response is deterministic, its peak times |T(f)| (absolute
+   * acceleration) and times |Z/A| (relative displacement), per natural frequency. Miles' equation does not apply
+   * to a tone; the other columns (Miles, Rice's rates, the largest peak, the damage) are the random part alone.
+   */
+  tones?: { label: string; hz: number; peak: number; accelPeak: Float64Array; relDispPeak: Float64Array }[] | undefined;
+  /** With tones: RMS of the whole acceleration response, sqrt(random^2 + sum (peak |T|)^2 / 2). */
+  totalAccelRms?: Float64Array | undefined;
 }
 
 /** Grid "A:B[:N]" (N per octave, default 6, geometric from A to B inclusive), a list "A,B,C" or one value. */
@@ -243,11 +254,31 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     const est = m.displacementPeakToPeak * 1000;
     stroke = { ratedMm: o.strokeMm, estimateMm: est, margin: o.strokeMm / est, withinRating: est <= o.strokeMm };
   }
-  const { spectrum: _s, frequencyHz: _f, level: _l, ...source } = src;
+  // Tones: deterministic responses (standard SDOF steady state: peak x |T(f)|, REFERENCES.md sec. 4 form).
+  const tones = src.tones?.map((t) => {
+    const accelPeak = out();
+    const relDispPeak = out();
+    for (let i = 0; i < n; i++) {
+      accelPeak[i] = t.peak * Math.sqrt(absoluteTransmissibilitySquared(t.hz, o.fnHz[i]!, q));
+      relDispPeak[i] = t.peak * toSi * Math.sqrt(relativeDisplacementSquared(t.hz, o.fnHz[i]!, q));
+    }
+    return { ...t, accelPeak, relDispPeak };
+  });
+  let totalAccelRms: Float64Array | undefined;
+  if (tones) {
+    totalAccelRms = out();
+    for (let i = 0; i < n; i++) {
+      let ms = r.accelRms[i]! ** 2;
+      for (const t of tones) ms += t.accelPeak[i]! ** 2 / 2;
+      totalAccelRms[i] = Math.sqrt(ms);
+    }
+  }
+  const { spectrum: _s, frequencyHz: _f, level: _l, tones: _t, ...source } = src;
   return {
     source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, needsDuration: durationS === undefined ? ["the largest peak (Davenport)", "the fatigue damage"] : [], ...r,
     motion: { ...m, frequencyHz: fk, velocityPsd: velocityPsd(fk, gk, toSi), displacementPsd: displacementPsd(fk, gk, toSi) },
     stroke,
+    ...(tones ? { tones, totalAccelRms } : {}),
   };
 }
 

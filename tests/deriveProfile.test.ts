@@ -116,3 +116,39 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
 });
 
 
+
+describe("deriveProfile with a tone in the field (mixed mode)", () => {
+  it("lists a field tone as a candidate and keeps it out of the envelope and the damage: the derived profile equals the tone-free one within 2 %", async () => {
+    const { shapedRecord } = await import("./shapedRecords.js");
+    const { wavBytes } = await import("./wavBytes.js");
+    const { writeFileSync } = await import("node:fs");
+    const dir = tempDir();
+    const g0 = 0.01;
+    const files = [1, 2].map((s) => {
+      const x = shapedRecord(flat(g0), FIELD_RATE_HZ, FIELD_LENGTH, 700 + s);
+      const noTone = join(dir, `plain${s}.wav`);
+      writeFileSync(noTone, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
+      // An engine order: 1.5 g peak at 123.4 Hz, far above the 0.01 g2/Hz background.
+      for (let i = 0; i < x.length; i++) x[i] = x[i]! + 1.5 * Math.cos((2 * Math.PI * 123.4 * i) / FIELD_RATE_HZ);
+      const withTone = join(dir, `tone${s}.wav`);
+      writeFileSync(withTone, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
+      return { noTone, withTone };
+    });
+    const common = { testDurationS: 3600, fromHz: 10, toHz: 500, version: "test", created: new Date(0) };
+    const a = await deriveProfile({ ...plainInputs(files.map((f) => f.withTone), 100 * 3600), ...common });
+    const b = await deriveProfile({ ...plainInputs(files.map((f) => f.noTone), 100 * 3600), ...common });
+    expect(a.candidateTones.length).toBe(2);
+    for (const t of a.candidateTones) {
+      expect(Math.abs(t.frequencyHz - 123.4)).toBeLessThan(0.1);
+      expect(Math.abs(t.peak / 1.5 - 1)).toBeLessThan(0.05);
+    }
+    expect(b.candidateTones.length).toBe(0);
+    expect(a.notes.join(" ")).toMatch(/2 candidate sine tone\(s\)/);
+    const k = Math.round(123.4 / a.lineSpacingHz);
+    expect(a.envelope[k]! / b.envelope[k]!).toBeLessThan(1.6);
+    const la = a.profile.breakpoints.map((p) => p.level);
+    const lb = b.profile.breakpoints.map((p) => p.level);
+    expect(la.length).toBe(lb.length);
+    la.forEach((v, i) => expect(Math.abs(v / lb[i]! - 1)).toBeLessThan(0.02));
+  }, 120_000);
+});

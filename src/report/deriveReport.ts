@@ -62,6 +62,7 @@ export function deriveJson(r: DeriveResult, version: string) {
     },
     profile: r.document,
     notes: r.notes,
+    candidateTones: r.candidateTones,
     caution: DERIVE_CAUTION,
   };
 }
@@ -96,6 +97,7 @@ export function deriveText(r: DeriveResult, version: string, outFile: string): s
     "",
     table(grid),
     "",
+    ...r.candidateTones.map((t) => `TONE: ${printable(t.file)}: ${sig(t.frequencyHz, 6)} Hz, ${sig(t.peak, 3)} peak, ${fixed(t.aboveBackgroundDb, 1)} dB above the lines around it (a candidate for the lab profile's tones)`),
     ...r.notes.map((n) => `NOTE: ${printable(n)}`),
     ...(r.notes.length ? [""] : []),
     `CAUTION: ${DERIVE_CAUTION}`,

@@ -65,6 +65,7 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
   }
   if (c.band) lines.push(`  band       ${sig(c.band.fminHz)}–${sig(c.band.fmaxHz)} Hz: RMS ${sig(c.band.rms)} ${u} from the PSD`);
   if (c.peaks.length > 0) lines.push(`  peaks      ${c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ")} ${du}`);
+  if (c.tones.length > 0) lines.push(`  tones      ${c.tones.map((t) => `${sig(t.frequencyHz, 6)} Hz ${sig(t.peak, 3)} ${u} peak (+${fixed(t.aboveBackgroundDb, 1)} dB)`).join(", ")}: lines standing far above their neighbours, amplitude from the window's kernel (candidates: a narrow resonance can look alike)`);
   lines.push(statsLine(c), ...findingLines(c));
   return lines.join("\n");
 }

@@ -28,6 +28,11 @@ function spectraJson(r: ResponseSpectra) {
     durationS: r.durationS ?? null,
     fatigueDamage: arr(r.fatigueDamage),
     needsDuration: r.needsDuration,
+    ...(r.tones ? {
+      tones: r.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, accelPeak: arr(t.accelPeak), relDispPeak: arr(t.relDispPeak) })),
+      totalAccelRms: arr(r.totalAccelRms!),
+      toneRule: "a tone's response is deterministic: its peak x |T(f)| (relative displacement: x |Z/A|). Miles' equation does not apply to tones; milesRms, the rates, extremePeak and fatigueDamage are the random part alone",
+    } : {}),
   };
 }
 
@@ -112,6 +117,18 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     ]);
   }
   lines.push(table(rows), "");
+  if (r.tones) {
+    const rowsT = [["fn Hz", ...r.tones.map((t) => `${sig(t.hz, 5)} Hz tone peak ${u}`), `total RMS ${u}`]];
+    for (let i = 0; i < r.fnHz.length; i++) rowsT.push([sig(r.fnHz[i]!, 4), ...r.tones.map((t) => sig(t.accelPeak[i]!, 4)), sig(r.totalAccelRms![i]!, 4)]);
+    lines.push(
+      `  tones      the profile's sine tones (${r.tones.map((t) => `${sig(t.hz, 5)} Hz ${sig(t.peak, 4)} ${u} peak`).join(", ")}): each tone's response is deterministic, its peak x |T(f)|;`,
+      "             Miles' equation does not apply to a tone. The columns above (Miles, rates, largest peak, damage) are the random part alone;",
+      "             total RMS = sqrt(random² + sum of (tone response peak)² / 2). The damage and largest peak of sine plus random together are not computed.",
+      "",
+      table(rowsT),
+      "",
+    );
+  }
   if (r.needsDuration.length > 0) lines.push(`  exposure   not given and the source has none (a profile without durationS, a PSD table): ${r.needsDuration.join(" and ")} need one (--duration); the RMS, Miles, displacement and rates above do not`, "");
   lines.push(
     "  exact      integral of |T|² G (absolute acceleration) and of the relative-displacement transfer over the input, no white-noise assumption.",
@@ -126,7 +143,7 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
   const m = r.motion;
   lines.push(
     "",
-    `  kinematics ${sig(m.fromHz, 4)}–${sig(m.toHz, 5)} Hz: velocity ${sig(m.velocityRms * 1000, 4)} mm/s RMS, displacement ${mm(m.displacementRms)} mm RMS, peak-to-peak estimate ${mm(m.displacementPeakToPeak)} mm (6 x RMS)`,
+    `  kinematics ${sig(m.fromHz, 4)}–${sig(m.toHz, 5)} Hz${r.tones ? " (random part; `profile` gives velocity and stroke with the tones)" : ""}: velocity ${sig(m.velocityRms * 1000, 4)} mm/s RMS, displacement ${mm(m.displacementRms)} mm RMS, peak-to-peak estimate ${mm(m.displacementPeakToPeak)} mm (6 x RMS)`,
   );
   if (s.kind !== "profile") lines.push("             (the lowest lines dominate the displacement: --fmin sets the band that matters)");
   if (r.stroke) {
