@@ -15,7 +15,8 @@ import { accelFactor, type AccelUnit } from "./units.js";
  * record's length: a few numbers per natural frequency and channel, plus the events found.
  */
 export interface ShockOptions extends Omit<AnalysisOptions, "accumulators" | "spectrum" | "histogram"> {
-  fnHz: Float64Array;
+  /** Natural frequencies, Hz (an array as well: a record's re-run options are JSON). */
+  fnHz: Float64Array | readonly number[];
   q: number;
   /** Threshold on |x - mean| in the result unit; default: `thresholdFactor` x the background r.m.s. */
   threshold?: number | undefined;
@@ -136,7 +137,7 @@ function zeroUpcrossingRate(psd: Float64Array, f: Float64Array): number {
 
 export async function shockRecording(file: string, options: ShockOptions): Promise<ShockResult> {
   const q = options.q;
-  const fnHz = options.fnHz;
+  const fnHz = Float64Array.from(options.fnHz);
   if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
   const holdS = options.holdS ?? DEFAULT_HOLD_S;
   if (!(holdS > 0 && holdS <= 60)) throw new InputError("OPTION_INVALID", { option: "holdS", expected: "a hold time in s, 0 < t <= 60", received: String(holdS) });

@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
 import type { CliIo } from "./main.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 
 interface ShockFlags extends ParsedCommon {
@@ -15,6 +15,8 @@ interface ShockFlags extends ParsedCommon {
   top: number;
   json?: boolean;
   csv?: string;
+  report?: string;
+  meta?: string;
   force?: boolean;
   quiet?: boolean;
 }
@@ -35,10 +37,12 @@ export function registerShock(program: Command, io: CliIo): void {
     .option("--top <n>", "events listed in the text (default 10; --json and --csv hold all)", numberOption("--top", (x) => Number.isInteger(x) && x >= 1, "a whole number of at least 1"), 10)
     .option("--json", "print the result as JSON")
     .option("--csv <out>", "also write every spectrum (the record's and each event's) to this CSV file, one row per natural frequency")
+    .option("--report <out.html>", "also write a self-contained HTML record: event timeline, SRS plots, the event table, identity and sign-off (psdgate verify re-runs it)")
+    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into the report")
     .option("--force", "replace an existing output file")
     .option("-q, --quiet", "no progress bar")
     .addHelpText("after", "\nThe recording is read twice: first for each channel's mean and background level, then for the events and spectra.\nAn SRS is one engineering summary of a shock, not a structural verdict.\n")
-    .action(async (file: string, o: ShockFlags) => {
+    .action(async (file: string, o: ShockFlags, cmd: Command) => {
       if (o.threshold !== undefined && o.thresholdFactor !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--threshold", expected: "--threshold or --threshold-factor, not both", received: "both" });
       const { parseFnGrid } = await import("../responseSpectra.js");
       const { shockRecording } = await import("../shockRecording.js");
@@ -46,19 +50,25 @@ export function registerShock(program: Command, io: CliIo): void {
       const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
       const { VERSION } = await import("../version.js");
       const fnHz = parseFnGrid(o.fn, "--fn");
-      if (o.csv !== undefined) checkOutputPath(o.csv, [file], o.force, "--csv");
+      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+      const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
+      if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
+      if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
       const { histogram: _h, ...base } = analysisOptions(o);
       const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
+      const options = { ...base, fnHz, q: o.q, threshold: o.threshold, thresholdFactor: o.thresholdFactor, holdS: o.hold, preS: o.pre, postS: o.post };
       let r;
       try {
-        r = await shockRecording(file, {
-          ...base, fnHz, q: o.q, threshold: o.threshold, thresholdFactor: o.thresholdFactor, holdS: o.hold, preS: o.pre, postS: o.post,
-          onProgress: (d, t) => progress.update(d, t),
-        });
+        r = await shockRecording(file, { ...options, onProgress: (d, t) => progress.update(d, t) });
       } finally {
         progress.end();
       }
-      if (o.csv !== undefined) await writeAtomic(o.csv, shockCsv(r), { inputs: [file], force: o.force, option: "--csv" });
+      if (o.csv !== undefined) await writeAtomic(o.csv, shockCsv(r), { inputs, force: o.force, option: "--csv" });
+      if (o.report !== undefined) {
+        const { shockHtml } = await import("../report/shockHtml.js");
+        const rerun = rerunOptions({ ...options, fnHz: Array.from(fnHz) } as never);
+        await writeAtomic(o.report, shockHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun }), { inputs, force: o.force, option: "--report" });
+      }
       io.stdout(o.json ? JSON.stringify(shockJson(r, VERSION)) + "\n" : shockText(r, VERSION, o.top));
     });
 }

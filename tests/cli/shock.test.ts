@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, writeFileSync } from "node:fs";
+import { copyFileSync, existsSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { cli, tempDir } from "../helpers.js";
@@ -96,5 +96,30 @@ describe("psdgate shock", () => {
     expect(existsSync(f)).toBe(true);
     expect(j.channels[0].events).toHaveLength(1);
     expect(j.channels[0].events[0].timeS).toBeCloseTo(12.015, 2);
+  });
+
+  it("--report writes a record on the shared frame (identity from --meta, event table, SRS plot, sign-off) that verify re-runs; a changed recording differs", async () => {
+    const dir = tempDir();
+    const rec = join(dir, "brackley-ft2-warehouse.csv");
+    copyFileSync(SAMPLE, rec);
+    const out = join(dir, "shock.html");
+    const r = await cli("shock", rec, "--fn", "5:160:2", "--channel", "z", "--report", out, "--meta", "samples/kb210-run-meta.yaml");
+    expect(r.code).toBe(0);
+    const html = readFileSync(out, "utf8");
+    expect(html).toContain('id="identity"');
+    expect(html).toContain('id="signoff"');
+    expect(html).toContain('id="srs-1"');
+    expect(html).toContain('id="timeline-1"');
+    expect(html).toContain("not a structural verdict");
+    expect(html).not.toMatch(/<script/i);
+    const v = await cli("verify", out);
+    expect(v.code).toBe(0);
+    expect(v.stdout).toMatch(/\(shock report\)/);
+    expect(v.stdout).toMatch(/REPRODUCED/);
+    // The same bytes but one sample changed: the SHA-256 differs, so verify does not re-run.
+    writeFileSync(rec, readFileSync(rec, "utf8").replace("\n0.0005,", "\n0.0005,9"));
+    const w = await cli("verify", out);
+    expect(w.code).not.toBe(0);
+    expect(w.stdout).toMatch(/SHA-256 differs/);
   });
 });
