@@ -7,7 +7,8 @@ import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "./estimate/i
 import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "./estimate/kinematics.js";
 import { davenportPeakFactor, riceRates } from "./estimate/peakStatistics.js";
 import { milesRelativeDisplacementRms, milesRms, sdofResponse } from "./estimate/sdofResponse.js";
-import { TimeResponseAccumulator, type TimeResponse } from "./estimate/timeResponse.js";
+import type { TimeResponse } from "./estimate/timeResponse.js";
+import { responseThreads, timeResponseSink, type TimeResponseSink } from "./timeResponsePool.js";
 import { looksLikePsdTable, readPsdTable } from "./read/psdTable.js";
 import { accelFactor, type AccelUnit } from "./units.js";
 
@@ -47,15 +48,17 @@ export interface SourceOptions extends AnalysisOptions {
   fminHz?: number | undefined;
   fmaxHz?: number | undefined;
   /** For a recording: also filter it through each SDOF of this grid in time (rainflow damage, largest response). */
-  response?: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number } | undefined;
+  response?: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined } | undefined;
 }
 
 /** The time-domain SDOF responses as a listener on the recording's one pass (one channel). */
 class TimeResponses implements PassAccumulator<TimeResponse | undefined> {
-  private acc: TimeResponseAccumulator | undefined;
-  constructor(private readonly o: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number }) {}
+  private acc: TimeResponseSink | undefined;
+  constructor(private readonly o: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined }) {}
   start(designRateHz: number): void {
-    if (Number.isFinite(designRateHz) && designRateHz > 0) this.acc = new TimeResponseAccumulator(Float64Array.from(this.o.fnHz), this.o.q, designRateHz, this.o.basquinB);
+    if (!(Number.isFinite(designRateHz) && designRateHz > 0)) return;
+    const fn = Float64Array.from(this.o.fnHz);
+    this.acc = timeResponseSink(fn, this.o.q, designRateHz, this.o.basquinB, responseThreads(fn.length, this.o.expectedSamples ?? Infinity));
   }
   push(blocks: Float64Array[], frames: number): void {
     this.acc?.push(blocks[0]!, frames);
