@@ -2,6 +2,7 @@ import type { ShockResult } from "../shockRecording.js";
 import type { ShockSpectrum } from "../estimate/shockResponse.js";
 import { accelLabel } from "../units.js";
 import { csvField } from "./csvField.js";
+import { printable } from "./printable.js";
 import { fixed, sig, table } from "./format.js";
 import { toolInfo } from "./psdJson.js";
 
@@ -74,7 +75,7 @@ export function shockCsv(r: ShockResult): string {
 export function shockText(r: ShockResult, version: string, top = 10): string {
   const a = r.analysis;
   const lines = [
-    `psdgate ${version}: shocks in ${a.input.file} (${sig(a.window.toS - a.window.fromS, 5)} s at ${sig(a.input.sampleRateHz, 6)} Hz)`,
+    `psdgate ${version}: shocks in ${printable(a.input.file)} (${sig(a.window.toS - a.window.fromS, 5)} s at ${sig(a.input.sampleRateHz, 6)} Hz)`,
     `  method     ${SHOCK_METHOD}`,
     `  settings   Q ${sig(r.settings.q, 4)}; ${r.settings.fnHz.length} natural frequencies ${sig(r.settings.fnHz[0]!, 4)}–${sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5)} Hz; hold ${sig(r.settings.holdS, 3)} s; event window from ${sig(r.settings.preS, 3)} s before to ${sig(r.settings.postS, 3)} s after; the mean removed`,
     `  rate       ${sig(r.rate.samplesPerPeriod, 3)} samples per period at the highest fn (at least 10 asked; the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one)`,
@@ -84,7 +85,7 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
   for (const c of r.channels) {
     const u = accelLabel(c.units);
     lines.push(
-      `  ${c.name}: background ${sig(c.backgroundRms, 4)} ${u} r.m.s. (median of 1 s stretches), threshold ${sig(c.threshold, 4)} ${u} = ${sig(c.thresholdFactor, 3)} x background; ` +
+      `  ${printable(c.name)}: background ${sig(c.backgroundRms, 4)} ${u} r.m.s. (median of 1 s stretches), threshold ${sig(c.threshold, 4)} ${u} = ${sig(c.thresholdFactor, 3)} x background; ` +
         `${c.events.length} event(s); by chance on a Gaussian background ${c.expectedFalseEvents < 0.01 ? c.expectedFalseEvents.toExponential(1) : sig(c.expectedFalseEvents, 2)} expected (Rice, nu0 ${sig(c.zeroUpcrossingRateHz, 3)} Hz)`,
     );
   }
@@ -98,7 +99,7 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
       let pv = 0;
       for (let i = 0; i < e.srs.pseudoVelocity.length; i++) pv = Math.max(pv, e.srs.pseudoVelocity[i]!);
       const u = accelLabel(c.units);
-      rows.push([String(k + 1), c.name, fixed(e.timeS, 3), `${e.peak >= 0 ? "+" : ""}${sig(e.peak, 4)} ${u}`, sig(1000 * e.durationS, 3), `${sig(e.srs.maximax[best]!, 4)} ${u}`, sig(e.srs.fnHz[best]!, 4), sig(pv * (c.units === "g" ? G : 1), 3)]);
+      rows.push([String(k + 1), printable(c.name), fixed(e.timeS, 3), `${e.peak >= 0 ? "+" : ""}${sig(e.peak, 4)} ${u}`, sig(1000 * e.durationS, 3), `${sig(e.srs.maximax[best]!, 4)} ${u}`, sig(e.srs.fnHz[best]!, 4), sig(pv * (c.units === "g" ? G : 1), 3)]);
     });
     lines.push(`  largest events${all.length > top ? ` (${top} of ${all.length}; --top for more, --json for all)` : ""}`, table(rows), "");
   }
@@ -106,10 +107,10 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
     const u = accelLabel(c.units);
     const rows = [["fn Hz", `maximax ${u}`, `positive ${u}`, `negative ${u}`, "PVSS m/s"]];
     for (let i = 0; i < c.srs.fnHz.length; i++) rows.push([sig(c.srs.fnHz[i]!, 4), sig(c.srs.maximax[i]!, 4), sig(c.srs.positive[i]!, 4), sig(c.srs.negative[i]!, 4), sig(c.pvssMPerS[i]!, 3)]);
-    lines.push(`  ${c.name}: SRS of the whole record`, table(rows), "");
+    lines.push(`  ${printable(c.name)}: SRS of the whole record`, table(rows), "");
   }
-  for (const n of r.notes) lines.push(`  note: ${n}`);
-  for (const d of r.doubts) lines.push(`  DOUBT: ${d}`);
+  for (const n of r.notes) lines.push(`  note: ${printable(n)}`);
+  for (const d of r.doubts) lines.push(`  DOUBT: ${printable(d)}`);
   if (r.notes.length + r.doubts.length > 0) lines.push("");
   lines.push(`  ${SHOCK_CAUTION}`, "");
   return lines.join("\n");

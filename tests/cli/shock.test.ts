@@ -122,4 +122,18 @@ describe("psdgate shock", () => {
     expect(w.code).not.toBe(0);
     expect(w.stdout).toMatch(/SHA-256 differs/);
   });
+
+  it("a channel name from the file with ESC and a formula start is printed escaped and written to --csv as text", async () => {
+    const dir = tempDir();
+    const f = join(dir, "names.csv");
+    const rows = ['time,"=cmd\u001b[2J"'];
+    for (let i = 0; i < 4000; i++) rows.push(`${(i / 1000).toFixed(3)},${(0.01 * Math.sin(0.7 * i) + (i === 2000 ? 1 : 0)).toFixed(4)}`);
+    writeFileSync(f, rows.join("\n") + "\n");
+    const out = join(dir, "o.csv");
+    const r = await cli("shock", f, "--fn", "5:50", "--csv", out);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).not.toContain("\u001b");
+    expect(r.stdout).toContain("=cmd\\x1b[2J");
+    expect(readFileSync(out, "utf8").split("\n")[1]).toMatch(/^'=cmd/);
+  });
 });
