@@ -103,6 +103,17 @@ export interface FieldRecordingResult {
   extreme: Float64Array;
 }
 
+export interface FieldShocks {
+  /** Each natural frequency's largest maximax SRS over the recordings' whole records (NaN above a recording's fs/4, where none is computed). */
+  fieldSrs: Float64Array;
+  /** The largest events over all recordings, largest |peak| first (at most 5). */
+  largestEvents: { file: string; timeS: number; peak: number; durationS: number }[];
+  /** Events found per recording (threshold 6 x its background r.m.s., hold 0.05 s). */
+  eventsPerRecording: { file: string; events: number }[];
+  /** Natural frequencies where the test's expected largest response falls below the field's measured one. */
+  shortfallHz: number[];
+}
+
 export interface DeriveResult {
   units: AccelUnit;
   lifeS: number;
@@ -132,6 +143,8 @@ export interface DeriveResult {
   extremeLimit: number;
   extremeWarnings: number[];
   fit: { maxBreakpoints: number; minRatio: number; minRatioHz: number; maxRatio: number; medianRatio: number; scale: number };
+  /** The field's shocks (as `psdgate shock` finds them) against the random test's largest response. */
+  shocks: FieldShocks;
   /** Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's. */
   compression: { flatFactor: number; profileRms: number; meanFieldRms: number; rmsRatio: number };
   notes: string[];
@@ -293,6 +306,32 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     notes.push(`the test's expected largest response exceeds the field's by more than ×${extremeLimit} ${where}: a compressed test can break parts that the road never would`);
   }
 
+  // 4b. The field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
+  // spectra of the whole records, which keep the shocks a Gaussian PSD hides) beside the random test's ERS. Where the test falls
+  // short, the random test does not reach the field's shocks and a shock test is needed for them.
+  const { shockRecording } = await import("./shockRecording.js");
+  const fieldSrs = new Float64Array(n).fill(NaN);
+  const events: FieldShocks["largestEvents"] = [];
+  const eventsPerRecording: FieldShocks["eventsPerRecording"] = [];
+  for (const { r, a } of analysed) {
+    const keep = [...fnHz.keys()].filter((i) => fnHz[i]! <= a.input.sampleRateHz / 4);
+    if (keep.length === 0) continue;
+    const sr = await shockRecording(r.file, { ...base, channels: [o.channel ?? "1"], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined, fnHz: keep.map((i) => fnHz[i]!), q });
+    const ch = sr.channels[0]!;
+    keep.forEach((i, k) => {
+      const v = ch.srs.maximax[k]!;
+      fieldSrs[i] = Number.isNaN(fieldSrs[i]!) ? v : Math.max(fieldSrs[i]!, v);
+    });
+    eventsPerRecording.push({ file: r.file, events: ch.events.length });
+    for (const e of ch.events) events.push({ file: r.file, timeS: e.timeS, peak: e.peak, durationS: e.durationS });
+  }
+  events.sort((x, y) => Math.abs(y.peak) - Math.abs(x.peak) || x.timeS - y.timeS);
+  const shortfallHz = [...fnHz].filter((_, i) => testSpectra.extreme[i]! < fieldSrs[i]!);
+  if (shortfallHz.length) {
+    notes.push(`the random test's expected largest response falls below the field's measured largest response (its SRS, shocks included) at ${shortfallHz.length} natural frequencies (${shortfallHz.map((f) => f.toPrecision(4)).join(", ")} Hz): the random test does not reach the field's shocks there, so a shock test is needed for them`);
+  }
+  const shocks: FieldShocks = { fieldSrs, largestEvents: events.slice(0, 5), eventsPerRecording, shortfallHz };
+
   // 5. The profile document: tolerances, DOF, resolution, duration and provenance.
   const bandDb = o.bandDb ?? DERIVE_DEFAULTS.bandDb;
   const rmsPercent = o.rmsPercent ?? DERIVE_DEFAULTS.rmsPercent;
@@ -334,6 +373,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     units, lifeS, lifeRule: o.lifeRule, testDurationS: o.testDurationS, groups, recordings, frequencyHz, lineSpacingHz: df, band: { fromHz, toHz }, envelope, mean, tolerance,
     fnHz, q, sn, margin, fieldFatigue, testFatigue, fieldExtreme, testExtreme: testSpectra.extreme, extremeRatio, extremeLimit, extremeWarnings,
     fit: { maxBreakpoints: nMax, minRatio: fit.minRatio, minRatioHz: fit.minRatioHz, maxRatio: fit.maxRatio, medianRatio: fit.medianRatio, scale: fit.scale },
+    shocks,
     compression: { flatFactor: (lifeS / o.testDurationS) ** (2 / b), profileRms: profile.rms, meanFieldRms, rmsRatio: profile.rms / meanFieldRms },
     notes, document, profile,
   };

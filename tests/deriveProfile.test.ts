@@ -116,3 +116,18 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
 });
 
 
+
+describe("derive: the field's shocks beside the random test's largest response (issue 26, item 4)", () => {
+  it("the forklift record's shocks (the sample's five known events) are reported, and where the test's ERS falls below the field's SRS a shock test is called for", async () => {
+    const r = await deriveProfile({ ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fromHz: 5, toHz: 400, version: "test", created: new Date(0) });
+    expect(r.shocks.eventsPerRecording).toEqual([{ file: "samples/brackley-ft2-warehouse.csv", events: 5 }]);
+    expect(r.shocks.largestEvents[0]!.peak).toBeLessThan(-2.7);
+    expect(r.shocks.largestEvents[0]!.timeS).toBeCloseTo(19.503, 2);
+    // Every f_n here is below fs/4 = 500 Hz, so the field's SRS is defined everywhere.
+    expect(r.shocks.fieldSrs.every((v) => Number.isFinite(v) && v > 0)).toBe(true);
+    const below = [...r.fnHz].filter((_, i) => r.testExtreme[i]! < r.shocks.fieldSrs[i]!);
+    expect(r.shocks.shortfallHz).toEqual(below);
+    expect(below.length).toBeGreaterThan(0);
+    expect(r.notes.join("\n")).toMatch(/a shock test is needed/);
+  });
+});
