@@ -117,6 +117,7 @@ function spectrumPlot(a: RideAxis, r: RideResult, n: number): string {
 
 function exposurePlot(r: RideResult): string {
   const e = r.exposure;
+  if (e === undefined) return "";
   const D = DIRECTIVE_2002_44_EC;
   const worst = e.a8 / Math.sqrt(e.durationS / EIGHT_HOURS_S);
   const hours = Float64Array.from({ length: 121 }, (_, i) => i / 10);
@@ -171,10 +172,10 @@ ${axisRows}
 </table>
 <h2>Exposure</h2>
 <table class="meta" id="exposure-table">
-${row("Stated exposure", `${sig(e.durationS / 3600, 3)} h a day`)}
+${e ? `${row("Stated exposure", `${sig(e.durationS / 3600, 3)} h a day`)}
 ${row("A(8)", `${sig(e.a8, 3)} m/s² (${e.a8Axis}): ${esc(e.directive.a8)} of Directive 2002/44/EC (action ${D.a8ActionMs2}, limit ${D.a8LimitMs2} m/s²)`)}
 ${row("VDV for the exposure", `${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${esc(e.directive.vdv)} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`)}
-${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75); zone values from memory`)}
+${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75); zone values from memory`)}` : row("Stated exposure", "not stated: no A(8), daily VDV or judgement against the Directive and Annex B")}
 ${row("Vibration total value", `${sig(r.totalValue.comfort, 3)} m/s² (comfort factors), ${sig(r.totalValue.health, 3)} m/s² (health factors)`)}
 ${row("Comfort (ISO 2631-1 Annex C)", esc(r.comfort.reactions.join(" or ")))}
 ${r.seat ? row("Seat (SEAT)", `${fixed(100 * r.seat.seat, 1)} %: seat z ${sig(r.seat.awSeat, 4)} over floor z (${esc(r.seat.floorChannel)}) ${sig(r.seat.awFloor, 4)} m/s²`) : ""}
