@@ -1,9 +1,10 @@
 import { DIRECTIVE_2002_44_EC, EIGHT_HOURS_S, ISO_2631_HEALTH_ZONE } from "../compare/wholeBodyExposure.js";
 import type { RideAxis, RideResult } from "../rideRecording.js";
 import { weightingPowerGains } from "../weight/isoWeightings.js";
-import { fixed, sig } from "./format.js";
+import { fixed, rateText, sig } from "./format.js";
 import { STYLE } from "./htmlReport.js";
 import { RIDE_CAUTIONS } from "./rideReport.js";
+import { windowText } from "./psdText.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
 /**
@@ -160,8 +161,8 @@ export function rideHtml(r: RideResult, version: string, when: Date): string {
 ${row("Recording", esc(a.input.file))}
 ${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
 ${row("Format", esc(a.input.layout))}
-${row("Samples", `${a.input.samples} at ${sig(a.input.sampleRateHz, 6)} Hz (${fixed(a.input.durationS, 3)} s)`)}
-${row("Window analysed", `${fixed(a.window.fromS, 3)} to ${fixed(a.window.toS, 3)} s (${a.window.frames} samples)`)}
+${row("Samples", `${a.input.samples} at ${rateText(a.input.sampleRateHz)} Hz (${fixed(a.input.durationS, 3)} s)`)}
+${row("Window analysed", esc(windowText(a)))}
 ${row("Posture", esc(r.posture))}
 ${row("Analysis", `Welch PSD, ${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap; running r.m.s. ${sig(r.axes[0]?.dose.runningRmsS ?? 1, 3)} s, linear${s.scale !== 1 ? `; calibration ×${s.scale}` : ""}`)}
 ${row("Tool", `psdgate ${esc(version)}`)}
