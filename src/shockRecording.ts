@@ -163,6 +163,8 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   const fs = analysis.input.sampleRateHz;
   const notes: string[] = [];
   const doubts: string[] = [...analysis.passDoubts];
+  // The read's own doubts (non-finite samples, a clipped or saturated signal, held samples) carry over: a clipped shock's peak and SRS are too low.
+  for (const ch of analysis.channels) for (const d of ch.doubts) doubts.push(`${ch.name}: ${d}`);
   const per = analysis.channels.map((ch, c) => {
     const b = backgroundRms(stretches[c] ?? []);
     const threshold = options.threshold ?? factor * b;

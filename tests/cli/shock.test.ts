@@ -136,4 +136,20 @@ describe("psdgate shock", () => {
     expect(r.stdout).toContain("=cmd\\x1b[2J");
     expect(readFileSync(out, "utf8").split("\n")[1]).toMatch(/^'=cmd/);
   });
+
+  it("a clipped shock carries the read's clipping doubt into the result (its peak and SRS are too low)", async () => {
+    const dir = tempDir();
+    const f = join(dir, "clip.csv");
+    const rows = ["t,a"];
+    for (let i = 0; i < 20000; i++) {
+      const t = i / 1000;
+      let v = 0.05 * Math.sin(2 * Math.PI * 7 * t) + 0.03 * Math.sin(2 * Math.PI * 23 * t + 1);
+      if (t >= 10 && t < 10.02) v += 3 * Math.sin((Math.PI * (t - 10)) / 0.02);
+      rows.push(`${t.toFixed(3)},${Math.max(-1, Math.min(1, v)).toFixed(4)}`);
+    }
+    writeFileSync(f, rows.join("\n") + "\n");
+    const j = JSON.parse((await cli("shock", f, "--fn", "2:100", "--json")).stdout);
+    expect(j.channels[0].events).toHaveLength(1);
+    expect(j.doubts.join(" ")).toMatch(/clipping/);
+  });
 });
