@@ -20,8 +20,8 @@ const PULSES = {
 
 /**
  * The exact SDOF simulation, independent of the recursive filter: scipy.signal.lsim (scipy 1.17.1) on the
- * continuous pulse sampled every 2.5 us (25 000 steps per 100 ms, 8 per period at 50 kHz), so the maximum
- * of the fine output is the continuous maximum within 1 - cos(pi 2000 / 400000) = 1e-4.
+ * continuous pulse sampled every 2.5 us (400 kHz: 200 steps per period at 2 kHz), so the maximum of the fine
+ * output is the continuous maximum within 1 - cos(pi 2000 / 400000) = 1.2e-4.
  * Absolute acceleration (2 zeta w s + w^2)/(s^2 + 2 zeta w s + w^2); relative displacement -1/(s^2 + 2 zeta w s + w^2).
  */
 function exactSpectra(): Record<keyof typeof PULSES, { pos: number[]; neg: number[]; pv: number[] }> {
@@ -100,7 +100,7 @@ describe("SRS of classic pulses against an exact simulation (scipy.signal.lsim, 
     expect(Math.abs(s.maximax[1]! / 50 - 1)).toBeLessThan(0.002);
   });
   it("classic shapes: half-sine maximax peaks near fn T = 0.8; sawtooth's negative (residual) is small beside its positive at high fn; the burst peaks at its own frequency", () => {
-    const grid = Float64Array.from({ length: 97 }, (_, i) => 10 * 2 ** (i / 12)); // 10 Hz .. 2560 Hz is too high: cut below
+    const grid = Float64Array.from({ length: 97 }, (_, i) => 10 * 2 ** (i / 12)); // 10 Hz to 2560 Hz, cut to 2000 Hz (fs/10) below
     const fn = grid.filter((f) => f <= 2000);
     const half = shockSpectrum(sampled(PULSES.half.f, FS, 0.25), fn, Q, FS);
     let best = 0;
