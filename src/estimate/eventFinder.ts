@@ -177,7 +177,7 @@ export function backgroundRms(stretchMeanSquares: ArrayLike<number>): number {
 /**
  * Expected false events per second on a stationary Gaussian background of r.m.s. sigma at a threshold of
  * k sigma on |x|: the rate of up-crossings of +k sigma plus down-crossings of -k sigma, 2 nu0 exp(-k^2 / 2)
- * (Rice, S. O., "Mathematical analysis of random noise", Bell System Technical Journal 23-24, 1944-45),
+ * (Rice, S. O., "Mathematical analysis of random noise", Bell System Technical Journal 23-24, 1944-45; from memory),
  * nu0 the zero up-crossing rate sqrt(m2 / m0). Merging within a hold time can only lower the count.
  */
 export function gaussianFalseEventRate(k: number, zeroUpcrossingRateHz: number): number {

@@ -2,7 +2,7 @@ import { InputError } from "../errors.js";
 
 /**
  * Shock response spectra by ramp-invariant recursive filters (Smallwood, D. O., "An improved recursive
- * formula for calculating shock response spectra", Shock and Vibration Bulletin 51, 1981; the method
+ * formula for calculating shock response spectra", Shock and Vibration Bulletin 51, 1981, venue from memory; the method
  * ISO 18431-4:2007 specifies, from memory). Each SDOF (natural frequency f_n, Q = 1 / (2 zeta)) is a
  * second-order recursion whose output equals, at every sample, the exact response of the continuous SDOF
  * to the input joined by straight lines between the samples (the input "ramps" from sample to sample).
