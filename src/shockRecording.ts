@@ -29,6 +29,8 @@ export interface ShockOptions extends Omit<AnalysisOptions, "accumulators" | "sp
   /** ... and ends this long after its last, s; default the larger of the hold time and one period of the lowest natural frequency. */
   postS?: number | undefined;
   maxEvents?: number | undefined;
+  /** Also give each event's primary (to its last exceedance) and residual (after it) spectra. */
+  primaryResidual?: boolean | undefined;
 }
 
 /**
@@ -45,6 +47,9 @@ export interface ShockEventResult {
   /** First to last sample at or above the threshold, plus one sample step, s. */
   durationS: number;
   srs: ShockSpectrum;
+  /** Primary (to the event's last exceedance, the pre window included) and residual (after it) spectra, when asked for. */
+  primary?: ShockSpectrum | undefined;
+  residual?: ShockSpectrum | undefined;
   /** The SRS window ended with the record. */
   truncated: boolean;
 }
@@ -72,7 +77,7 @@ export interface ShockChannel {
 
 export interface ShockResult {
   analysis: RecordingAnalysis;
-  settings: { fnHz: Float64Array; q: number; holdS: number; preS: number; postS: number; thresholdGiven?: number | undefined; thresholdFactor?: number | undefined };
+  settings: { fnHz: Float64Array; q: number; holdS: number; preS: number; postS: number; thresholdGiven?: number | undefined; thresholdFactor?: number | undefined; primaryResidual: boolean };
   rate: { sampleRateHz: number; highestFnHz: number; samplesPerPeriod: number; peakShortfallBound: number };
   channels: ShockChannel[];
   notes: string[];
@@ -188,6 +193,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
     const expectedFalseEvents = gaussianFalseEventRate(k, p.nu0) * analysis.window.frames / fs;
     const events = found[c]!.events.map((e) => ({
       timeS: analysis.window.fromS + e.peakIndex / fs, peak: e.peak, durationS: (e.lastIndex - e.firstIndex + 1) / fs, srs: e.srs!, truncated: e.truncated,
+      ...(options.primaryResidual ? { primary: e.primary, residual: e.residual } : {}),
     })).sort((a, b) => Math.abs(b.peak) - Math.abs(a.peak) || a.timeS - b.timeS);
     const srs = found[c]!.srs;
     const toMs = accelFactor(ch.units, "m/s2");
@@ -200,7 +206,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   });
   return {
     analysis,
-    settings: { fnHz, q, holdS, preS, postS, thresholdGiven: options.threshold, thresholdFactor: options.threshold === undefined ? factor : undefined },
+    settings: { fnHz, q, holdS, preS, postS, thresholdGiven: options.threshold, thresholdFactor: options.threshold === undefined ? factor : undefined, primaryResidual: options.primaryResidual === true },
     rate, channels, notes, doubts,
   };
 }

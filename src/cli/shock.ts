@@ -13,6 +13,7 @@ interface ShockFlags extends ParsedCommon {
   pre?: number;
   post?: number;
   top: number;
+  primaryResidual?: boolean;
   json?: boolean;
   csv?: string;
   report?: string;
@@ -34,6 +35,7 @@ export function registerShock(program: Command, io: CliIo): void {
     .option("--hold <s>", "exceedances closer than this are one event (default 0.05 s)", numberOption("--hold", (x) => x > 0 && x <= 60, "a time in s, 0 < t <= 60"))
     .option("--pre <s>", "an event's SRS window starts this long before its first exceedance (default: the hold time)", numberOption("--pre", (x) => x >= 0 && x <= 600, "a time in s from 0 to 600"))
     .option("--post <s>", "... and ends this long after its last (default: the larger of the hold time and one period of the lowest fn)", numberOption("--post", (x) => x >= 0 && x <= 600, "a time in s from 0 to 600"))
+    .option("--primary-residual", "also each event's primary spectrum (up to its last exceedance) and residual spectrum (after it), in --json")
     .option("--top <n>", "events listed in the text (default 10; --json and --csv hold all)", numberOption("--top", (x) => Number.isInteger(x) && x >= 1, "a whole number of at least 1"), 10)
     .option("--json", "print the result as JSON")
     .option("--csv <out>", "also write every spectrum (the record's and each event's) to this CSV file, one row per natural frequency")
@@ -56,7 +58,7 @@ export function registerShock(program: Command, io: CliIo): void {
       if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
       const { histogram: _h, ...base } = analysisOptions(o);
       const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
-      const options = { ...base, fnHz, q: o.q, threshold: o.threshold, thresholdFactor: o.thresholdFactor, holdS: o.hold, preS: o.pre, postS: o.post };
+      const options = { ...base, fnHz, q: o.q, threshold: o.threshold, thresholdFactor: o.thresholdFactor, holdS: o.hold, preS: o.pre, postS: o.post, primaryResidual: o.primaryResidual };
       let r;
       try {
         r = await shockRecording(file, { ...options, onProgress: (d, t) => progress.update(d, t) });

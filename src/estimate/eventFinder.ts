@@ -22,6 +22,12 @@ export interface ShockEvent {
   peak: number;
   /** SRS of the event window, when natural frequencies were given. */
   srs?: ShockSpectrum | undefined;
+  /**
+   * The same window split at the event's end (its last exceedance): primary, from the window's start to there (the pre
+   * window included), and residual, after it. `srs` is their envelope.
+   */
+  primary?: ShockSpectrum | undefined;
+  residual?: ShockSpectrum | undefined;
   /** The window ended with the record before the post window was complete. */
   truncated: boolean;
 }
@@ -42,6 +48,12 @@ interface Bank {
   next: number;
   /** Feed up to (exclusive) this absolute index; Infinity while the event is open. */
   until: number;
+  /** The primary part ends before this absolute index (the event's last exceedance + 1); Infinity while the event is open. */
+  split: number;
+  primary?: ShockSpectrum | undefined;
+  /** While the event is open: the samples after its latest exceedance, not yet fed (they are primary if another exceedance comes, else residual). At most the hold time. */
+  pending: Float64Array;
+  pendingLength: number;
 }
 
 export class EventFinder {
@@ -110,7 +122,7 @@ export class EventFinder {
       for (let k = 0; k < have; k++) pre[k] = this.ring[(this.ringStart + this.ringFill - have + k) % this.ring.length]!;
       acc.push(pre);
     }
-    const bank: Bank = { event: ev, acc, next: Math.max(from, base), until: Infinity };
+    const bank: Bank = { event: ev, acc, next: Math.max(from, base), until: Infinity, split: Infinity, pending: new Float64Array(this.o.holdSamples + 1), pendingLength: 0 };
     this.banks.push(bank);
     this.openBank = bank;
   }
@@ -119,7 +131,10 @@ export class EventFinder {
     const ev = this.open!;
     this.open = undefined;
     const s = this.o.srs;
-    if (s !== undefined && this.openBank !== undefined) this.openBank.until = ev.lastIndex + 1 + s.postSamples;
+    if (s !== undefined && this.openBank !== undefined) {
+      this.openBank.until = ev.lastIndex + 1 + s.postSamples;
+      this.openBank.split = ev.lastIndex + 1;
+    }
     this.openBank = undefined;
   }
 
@@ -127,15 +142,53 @@ export class EventFinder {
     if (this.banks.length === 0) return;
     const keep: Bank[] = [];
     for (const b of this.banks) {
-      const end = Math.min(base + frames, b.until);
-      if (end > b.next) {
-        b.acc.push(x, end - base, b.next - base);
-        b.next = end;
+      const open = b.until === Infinity;
+      // The primary part may reach the latest exceedance (open) or ends at the split (closed).
+      const primaryEnd = open ? b.event.lastIndex + 1 : b.split;
+      this.feedTo(b, Math.min(primaryEnd, base + frames), x, base);
+      if (!open && b.primary === undefined && b.next === b.split) b.primary = b.acc.split();
+      if (open) {
+        // Keep what lies after the latest exceedance until the event decides (at most the hold time of samples).
+        for (let i = Math.max(b.next + b.pendingLength, base); i < base + frames; i++) {
+          if (b.pendingLength === b.pending.length) {
+            const grown = new Float64Array(b.pending.length * 2);
+            grown.set(b.pending);
+            b.pending = grown;
+          }
+          b.pending[b.pendingLength++] = x[i - base]!;
+        }
+        keep.push(b);
+        continue;
       }
-      if (b.next >= b.until) b.event.srs = b.acc.finish();
+      this.feedTo(b, Math.min(b.until, base + frames), x, base);
+      if (b.next >= b.until) this.close1(b);
       else keep.push(b);
     }
     this.banks = keep;
+  }
+
+  /** Feeds a bank from its pending samples, then the block, up to (not including) absolute index `to`. */
+  private feedTo(b: Bank, to: number, x: Float64Array, base: number): void {
+    if (to <= b.next) return;
+    if (b.pendingLength > 0) {
+      const m = Math.min(b.pendingLength, to - b.next);
+      b.acc.push(b.pending, m, 0);
+      b.pending.copyWithin(0, m, b.pendingLength);
+      b.pendingLength -= m;
+      b.next += m;
+      if (b.next >= to) return;
+    }
+    b.acc.push(x, to - base, b.next - base);
+    b.next = to;
+  }
+
+  /** A bank's window is complete: its primary and residual spectra, and their envelope. */
+  private close1(b: Bank): void {
+    const residual = b.acc.finish();
+    const primary = b.primary ?? residual;
+    b.event.primary = primary;
+    b.event.residual = b.primary ? residual : undefined;
+    b.event.srs = b.primary ? envelope(primary, residual) : residual;
   }
 
   private remember(x: Float64Array, frames: number): void {
@@ -154,12 +207,30 @@ export class EventFinder {
   finish(): ShockEvent[] {
     if (this.open !== undefined) this.close();
     for (const b of this.banks) {
-      b.event.srs = b.acc.finish();
+      // The record ends: what is pending after the latest exceedance is residual.
+      if (b.primary === undefined) {
+        if (b.until === Infinity) {
+          b.split = b.event.lastIndex + 1;
+        }
+        if (b.next === b.split) b.primary = b.acc.split();
+      }
+      if (b.pendingLength > 0) {
+        b.acc.push(b.pending, b.pendingLength, 0);
+        b.next += b.pendingLength;
+        b.pendingLength = 0;
+      }
+      this.close1(b);
       b.event.truncated = true;
     }
     this.banks = [];
     return this.events;
   }
+}
+
+/** The larger of two spectra on one grid, value by value. */
+function envelope(a: ShockSpectrum, b: ShockSpectrum): ShockSpectrum {
+  const mx = (p: Float64Array, q: Float64Array) => p.map((v, i) => Math.max(v, q[i]!));
+  return { fnHz: a.fnHz, q: a.q, maximax: mx(a.maximax, b.maximax), positive: mx(a.positive, b.positive), negative: mx(a.negative, b.negative), pseudoVelocity: mx(a.pseudoVelocity, b.pseudoVelocity) };
 }
 
 /**

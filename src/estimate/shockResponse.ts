@@ -217,6 +217,18 @@ export class ShockSpectrumAccumulator {
     return this.count;
   }
 
+  /**
+   * The spectrum so far, then the extremes start again from here while the filters run on: called at the end
+   * of a pulse it splits the primary spectrum (during the pulse) from the residual one (after it).
+   */
+  split(): ShockSpectrum {
+    const s = this.finish();
+    this.maxA.fill(0);
+    this.minA.fill(0);
+    this.maxZ.fill(0);
+    return s;
+  }
+
   finish(): ShockSpectrum {
     const maximax = new Float64Array(this.n);
     const pv = new Float64Array(this.n);

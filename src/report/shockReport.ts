@@ -44,7 +44,11 @@ export function shockJson(r: ShockResult, version: string) {
         thresholdFactor: c.thresholdFactor, zeroUpcrossingRateHz: c.zeroUpcrossingRateHz, expectedFalseEvents: c.expectedFalseEvents,
         events: c.events.map((e) => {
           const s = srsJson(e.srs, toMs);
-          return { timeS: e.timeS, peak: e.peak, durationS: e.durationS, srs: { fnHz: s.fnHz, maximax: s.maximax, positive: s.positive, negative: s.negative }, pvss: s.pvss, truncated: e.truncated };
+          const part = (p: ShockSpectrum | undefined) => (p ? { maximax: arr(p.maximax), positive: arr(p.positive), negative: arr(p.negative) } : null);
+          return {
+            timeS: e.timeS, peak: e.peak, durationS: e.durationS, srs: { fnHz: s.fnHz, maximax: s.maximax, positive: s.positive, negative: s.negative }, pvss: s.pvss, truncated: e.truncated,
+            ...(r.settings.primaryResidual ? { primary: part(e.primary), residual: part(e.residual) } : {}),
+          };
         }),
         srs: srsJson(c.srs, toMs),
       };

@@ -1,7 +1,7 @@
 import FFT from "fft.js";
 import { describe, expect, it } from "vitest";
 import { backgroundRms, EventFinder, gaussianFalseEventRate } from "../../src/estimate/eventFinder.js";
-import { shockSpectrum } from "../../src/estimate/shockResponse.js";
+import { shockSpectrum, ShockSpectrumAccumulator } from "../../src/estimate/shockResponse.js";
 import { gaussian, seeded } from "../helpers.js";
 
 const FS = 1000;
@@ -85,6 +85,38 @@ describe("EventFinder", () => {
       expect(e.srs!.pseudoVelocity[i]).toBeCloseTo(ref.pseudoVelocity[i]!, 12);
     }
     expect(e.truncated).toBe(false);
+  });
+
+  it("primary and residual: the window split at the event's last exceedance, pushed in random blocks, matches the split made on the whole window; residual leads at low fn T, primary at high", () => {
+    const fs = 4000;
+    const T = 0.011;
+    for (const seed of [5, 6, 7]) {
+      const x = new Float64Array(3 * fs);
+      const i0 = Math.round(1.2345 * fs);
+      const n = Math.round(T * fs);
+      for (let i = 0; i < n; i++) x[i0 + i] = 20 * Math.sin((Math.PI * (i + 0.5)) / n);
+      const fn = Float64Array.from([5, 20, 73, 400]);
+      const pre = 200;
+      const post = 1600;
+      const ev = run(new EventFinder({ threshold: 0.5, holdSamples: 300, srs: { fnHz: fn, q: 10, sampleRateHz: fs, preSamples: pre, postSamples: post } }), x, seed);
+      expect(ev).toHaveLength(1);
+      const e = ev[0]!;
+      const ref = new ShockSpectrumAccumulator(fn, 10, fs);
+      ref.push(x.slice(e.firstIndex - pre, e.lastIndex + 1));
+      const primary = ref.split();
+      ref.push(x.slice(e.lastIndex + 1, e.lastIndex + 1 + post));
+      const residual = ref.finish();
+      for (let i = 0; i < fn.length; i++) {
+        expect(e.primary!.maximax[i]).toBeCloseTo(primary.maximax[i]!, 12);
+        expect(e.residual!.maximax[i]).toBeCloseTo(residual.maximax[i]!, 12);
+        expect(e.srs!.maximax[i]).toBeCloseTo(Math.max(primary.maximax[i]!, residual.maximax[i]!), 12);
+      }
+      // fn T = 0.055: the pulse is over before the SDOF moves much, the residual leads (common practice).
+      expect(e.residual!.maximax[0]! / e.primary!.maximax[0]!).toBeGreaterThan(2);
+      // fn T = 4.4: the SDOF follows the pulse, primary near the input's 20 and the residual small.
+      expect(Math.abs(e.primary!.maximax[3]! / 20 - 1)).toBeLessThan(0.1);
+      expect(e.residual!.maximax[3]! / e.primary!.maximax[3]!).toBeLessThan(0.2);
+    }
   });
 
   it("exceedances closer than the hold time are one event; farther apart, two", () => {
