@@ -25,3 +25,5 @@ execFileSync("node", ["scripts/make-ride-sample.mjs"], { stdio: "inherit" });
 execFileSync("node", ["scripts/make-fixture-survey.mjs"], { stdio: "inherit" });
 // Three road recordings of the Corran K7 van for `psdgate derive`: its own script.
 execFileSync("node", ["scripts/make-field-samples.mjs"], { stdio: "inherit" });
+// The forklift recording with known shocks for `psdgate shock`: its own script.
+execFileSync("node", ["scripts/make-shock-sample.mjs"], { stdio: "inherit" });

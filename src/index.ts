@@ -66,6 +66,10 @@ export { velocityPsd, displacementPsd, spectrumMotion, type Motion } from "./est
 export { readPsdTable, parsePsdTable, type PsdTable } from "./read/psdTable.js";
 export { analyzeTransfer, analyzeTransferSource, type TransferOptions, type TransferAnalysis, type TransferOutput } from "./analyzeTransfer.js";
 export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sourceKind, type SpectrumSource, type SourceKind, type ResponseSpectra, type ResponseComparison } from "./responseSpectra.js";
+export { absoluteAccelerationFilter, relativeDisplacementFilter, shockSpectrum, ShockSpectrumAccumulator, srsRateLimit, checkSrsGrid, SRS_SAMPLES_PER_PERIOD, SRS_MIN_SAMPLES_PER_PERIOD, type ShockSpectrum, type SdofFilter } from "./estimate/shockResponse.js";
+export { TimeResponseAccumulator, type TimeResponse } from "./estimate/timeResponse.js";
+export { EventFinder, backgroundRms, gaussianFalseEventRate, type ShockEvent, type EventFinderOptions } from "./estimate/eventFinder.js";
+export { shockRecording, DEFAULT_THRESHOLD_FACTOR, DEFAULT_HOLD_S, type ShockOptions, type ShockResult, type ShockChannel, type ShockEventResult } from "./shockRecording.js";
 export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
 export { transferHtml } from "./report/transferHtml.js";
 export { responseJson, responseText } from "./report/responseReport.js";

@@ -75,6 +75,7 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
       band: c.band ? { fminHz: c.band.fminHz, fmaxHz: c.band.fmaxHz, rms: finiteOrNull(c.band.rms) } : null,
       peaks: c.peaks,
       tones: c.tones,
+      ...(c.peakHold ? { peakHold: { stretchS: c.peakHold.stretchS, stretches: c.peakHold.stretches, averagesPerStretch: c.peakHold.averagesPerStretch, psd: arr(c.peakHold.psd), atS: arr(c.peakHold.atS) } } : {}),
       stats: statsJson(c),
       stationarity: stationarityJson(c.stationarity),
       warnings: c.warnings,
