@@ -1,7 +1,7 @@
 import { chiSquareCdf, chiSquareIntervalFactors, chiSquareSurvival } from "../estimate/chiSquare.js";
 import { bandMeanSquare } from "../estimate/psdEstimate.js";
 import { departureShare, detrendBiasedLines, lineVarianceInflation, spectralKernel, type SpectralKernel } from "../estimate/spectralKernel.js";
-import { welchDof } from "../estimate/welchDof.js";
+import { welchDofBySegments } from "../estimate/welchDof.js";
 import type { Detrend } from "../estimate/welchPsd.js";
 import { spectralWindow, type WindowName } from "../estimate/windows.js";
 import {
@@ -237,6 +237,81 @@ function smoothed(p: TestProfile, kv: KernelView, f: number, nyquist: number, f0
   return { req: req / total, up: up / total, lo: lo / total, oUp: oUp / total, oLo: oLo / total };
 }
 
+interface FineGrid {
+  /** Sub-bins per line, and the index of the Nyquist frequency on the sub-bin grid. */
+  oversample: number;
+  nyquistIndex: number;
+  /** Profile, band limits and outer limits at m x df / oversample; NaN outside the profile's range. */
+  req: Float64Array;
+  up: Float64Array;
+  lo: Float64Array;
+  oUp: Float64Array;
+  oLo: Float64Array;
+}
+
+/** The values `smoothed` reads, sampled once on the sub-bin grid; undefined where the lines do not sit on that grid. */
+function fineGrid(p: TestProfile, kernel: SpectralKernel, sp: SpectrumUnderTest, nyquist: number, f0: number, fN: number): FineGrid | undefined {
+  const os = kernel.oversample;
+  const df = sp.lineSpacingHz;
+  const m = Math.round((nyquist * os) / df);
+  if (!Number.isInteger(os) || Math.abs((nyquist * os) / df - m) > 1e-6 || ![kernel.weights, kernel.wideWeights].every((w) => w.length % 2 === 1)) return undefined;
+  for (let i = 0; i < sp.frequencyHz.length; i++) if (Math.abs(sp.frequencyHz[i]! - i * df) > 1e-9 * df * (i + 1)) return undefined;
+  const n = m + 1;
+  const grid: FineGrid = { oversample: os, nyquistIndex: m, req: new Float64Array(n), up: new Float64Array(n), lo: new Float64Array(n), oUp: new Float64Array(n), oLo: new Float64Array(n) };
+  const tol = 1e-9 * (fN - f0);
+  for (let k = 0; k < n; k++) {
+    let g = (k / os) * df;
+    if (g < f0 - tol || g > fN + tol) {
+      grid.req[k] = grid.up[k] = grid.lo[k] = grid.oUp[k] = grid.oLo[k] = NaN;
+      continue;
+    }
+    g = Math.min(fN, Math.max(f0, g));
+    const level = profileLevel(p, g);
+    const b = bandAt(p.bands, g)!;
+    grid.req[k] = level;
+    grid.up[k] = level * Math.pow(10, b.upperDb / 10);
+    grid.lo[k] = level * Math.pow(10, -b.lowerDb / 10);
+    if (p.outerBands) {
+      const o = bandAt(p.outerBands, g)!;
+      grid.oUp[k] = level * Math.pow(10, o.upperDb / 10);
+      grid.oLo[k] = level * Math.pow(10, -o.lowerDb / 10);
+    }
+  }
+  return grid;
+}
+
+/** `smoothed` for line i on a fine grid: the kernel's samples fall on sub-bins i x oversample - (j - mh), folded at 0 and Nyquist. */
+function smoothedOnGrid(grid: FineGrid, weights: Float64Array, i: number, partial: boolean) {
+  const mh = (weights.length - 1) / 2;
+  const centre = i * grid.oversample + mh;
+  const top = grid.nyquistIndex;
+  let req = 0;
+  let up = 0;
+  let lo = 0;
+  let oUp = 0;
+  let oLo = 0;
+  let total = 0;
+  for (let j = 0; j < weights.length; j++) {
+    let k = centre - j;
+    if (k < 0) k = -k;
+    if (k > top) k = 2 * top - k;
+    const level = k >= 0 && k <= top ? grid.req[k]! : NaN;
+    if (Number.isNaN(level)) {
+      if (partial) continue;
+      return undefined;
+    }
+    const w = weights[j]!;
+    total += w;
+    req += w * level;
+    up += w * grid.up[k]!;
+    lo += w * grid.lo[k]!;
+    oUp += w * grid.oUp[k]!;
+    oLo += w * grid.oLo[k]!;
+  }
+  if (!(total > 0)) return undefined;
+  return { req: req / total, up: up / total, lo: lo / total, oUp: oUp / total, oLo: oLo / total };
+}
+
 /** Where the core kernel and the wide one differ by more than this, a line near the profile's ends is left out (1 %, 0.04 dB; chosen here). */
 const NOTCH_LIMIT = 0.01;
 
@@ -310,6 +385,11 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
   const biased = detrendBiasedLines(kernel);
   const nyquist = sp.sampleRateHz / 2;
   const g: JudgedGrid = { idx: [], req: [], up: [], lo: [], oUp: [], oLo: [], unjudged: { edge: 0, detrend: 0, notch: 0 } };
+  // The profile and limits sampled once on the kernel's sub-bin grid (when the lines sit on it, as Welch's do): each
+  // line then reads them by index instead of evaluating the profile again under every kernel sample. Same values.
+  const fine = fineGrid(profile, kernel, sp, nyquist, f0, fN);
+  const look = (view: KernelView, i: number, partial = false) =>
+    fine ? smoothedOnGrid(fine, view.weights, i, partial) : smoothed(profile, view, sp.frequencyHz[i]!, nyquist, f0, fN, partial);
   for (let i = 1; i < sp.frequencyHz.length; i++) {
     const f = sp.frequencyHz[i]!;
     if (f < f0 || f > fN) continue;
@@ -317,7 +397,7 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
       g.unjudged.detrend++;
       continue;
     }
-    const core = smoothed(profile, kv, f, nyquist, f0, fN);
+    const core = look(kv, i);
     if (core === undefined) {
       g.unjudged.edge++;
       continue;
@@ -325,9 +405,9 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
     // The wide kernel where it fits inside the profile (exact to its 1e-9 tails: the bottom of a deep notch
     // sees the walls through the far side lobes). Near the ends it does not fit: the core kernel stands if
     // the wide one over the part inside agrees with it, else the line is left out (a notch near an end).
-    let s = smoothed(profile, kw, f, nyquist, f0, fN);
+    let s = look(kw, i);
     if (s === undefined) {
-      const probe = smoothed(profile, kw, f, nyquist, f0, fN, true);
+      const probe = look(kw, i, true);
       if (probe !== undefined && (Math.abs(probe.req / core.req - 1) > NOTCH_LIMIT || Math.abs(probe.up / core.up - 1) > NOTCH_LIMIT || Math.abs(probe.lo / core.lo - 1) > NOTCH_LIMIT)) {
         g.unjudged.notch++;
         continue;
@@ -364,25 +444,35 @@ export function powerRequirement(profile: TestProfile): (PowerRequirement & { so
 /** The probability a run-length estimate aims at (chosen here; the issue's 90 %). */
 export const DECIDE_PROBABILITY = 0.9;
 
+const dofCurves = new Map<string, (segments: number) => number>();
+
 /**
  * Seconds of record that give `dof` at this sample rate, segment and overlap: the fewest segments K whose
  * Welch DOF (welchDof, Percival & Walden 1993 eq. 292b) reaches it, then (K - 1) hop + N samples.
  */
 export function secondsForDof(sp: Pick<SpectrumUnderTest, "window" | "segmentLength" | "overlap" | "sampleRateHz">, dof: number): number | undefined {
   if (!(dof > 0) || !Number.isFinite(dof)) return undefined;
-  const w = spectralWindow(sp.window, sp.segmentLength);
   const n = sp.segmentLength;
   const hop = Math.max(1, n - Math.round((sp.overlap ?? 0.5) * n));
+  // One curve per window, length and hop: a check asks this for every excursion, and a 131072-point window's lag
+  // correlations cost milliseconds each time.
+  const key = `${sp.window}|${n}|${hop}`;
+  let welchDof = dofCurves.get(key);
+  if (welchDof === undefined) {
+    if (dofCurves.size > 8) dofCurves.clear();
+    welchDof = welchDofBySegments(spectralWindow(sp.window, n), hop);
+    dofCurves.set(key, welchDof);
+  }
   let hi = 1;
-  while (welchDof(w, hop, hi) < dof) {
+  while (welchDof(hi) < dof) {
     hi *= 2;
     if (hi > 1e9) return undefined;
   }
   let lo = Math.max(1, Math.floor(hi / 2));
-  if (welchDof(w, hop, lo) >= dof) hi = lo;
+  if (welchDof(lo) >= dof) hi = lo;
   while (hi - lo > 1) {
     const mid = Math.floor((lo + hi) / 2);
-    if (welchDof(w, hop, mid) >= dof) hi = mid;
+    if (welchDof(mid) >= dof) hi = mid;
     else lo = mid;
   }
   return ((hi - 1) * hop + n) / sp.sampleRateHz;

@@ -20,3 +20,27 @@ export function welchDof(window: Float64Array, hop: number, segments: number): n
   }
   return (2 * segments) / denom;
 }
+
+/**
+ * welchDof for any number of segments of one window and hop: the lag correlations are computed once (O(N) per lag
+ * that overlaps), so each call after is O(lags). Same formula and order of sums as welchDof, so the same value.
+ */
+export function welchDofBySegments(window: Float64Array, hop: number): (segments: number) => number {
+  const n = window.length;
+  let sumW2 = 0;
+  for (let i = 0; i < n; i++) sumW2 += window[i]! * window[i]!;
+  const r2: number[] = [];
+  for (let m = 1; m * hop < n; m++) {
+    const lag = m * hop;
+    let r = 0;
+    for (let t = 0; t + lag < n; t++) r += window[t]! * window[t + lag]!;
+    r /= sumW2;
+    r2.push(r * r);
+  }
+  return (segments) => {
+    if (segments < 1) return 0;
+    let denom = 1;
+    for (let m = 1; m < segments && m <= r2.length; m++) denom += 2 * (1 - m / segments) * r2[m - 1]!;
+    return (2 * segments) / denom;
+  };
+}
