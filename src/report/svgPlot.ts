@@ -93,7 +93,7 @@ export function svgPlot(p: PlotSpec): string {
   const ok = (v: number) => Number.isFinite(v) && (!p.yLog || v > 0);
   const clampY = (v: number) => Math.max(M.top, Math.min(H - M.bottom, y(v)));
   const out: string[] = [];
-  out.push(`<svg id="${p.id}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
+  out.push(`<svg id="${escapeXml(p.id)}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(p.title)}</text>`);
   // Grid and ticks.
   const xt = xLog ? logTicks(x, 10, p.xMarks) : { major: x.ticks(10), minor: [] as number[] };
@@ -122,7 +122,7 @@ export function svgPlot(p: PlotSpec): string {
   out.push(`<rect class="frame" x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/>`);
   out.push(`<text class="axis-label" x="${(M.left + W - M.right) / 2}" y="${H - 8}" text-anchor="middle">${escapeXml(p.xLabel)}</text>`);
   out.push(`<text class="axis-label" transform="translate(16 ${(M.top + H - M.bottom) / 2}) rotate(-90)" text-anchor="middle">${escapeXml(p.yLabel)}</text>`);
-  out.push(`<clipPath id="${p.id}-clip"><rect x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/></clipPath>`);
+  out.push(`<clipPath id="${escapeXml(p.id)}-clip"><rect x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/></clipPath>`);
   out.push(`<g clip-path="url(#${p.id}-clip)">`);
   for (const s of p.series) {
     const idx: number[] = [];
@@ -137,7 +137,7 @@ export function svgPlot(p: PlotSpec): string {
     } else {
       d = line<number>().x((i) => x(s.x[i]!)).y((i) => clampY(s.y[i]!))(idx);
     }
-    out.push(`<path class="${s.className}" data-series="${s.id}" data-points="${idx.length}" d="${d ?? ""}"/>`);
+    out.push(`<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${idx.length}" d="${d ?? ""}"/>`);
   }
   out.push("</g>");
   // Legend.
@@ -147,8 +147,8 @@ export function svgPlot(p: PlotSpec): string {
     const w = 28 + 6.2 * s.label.length;
     lx -= w;
     const key = s.markers
-      ? `<path class="${s.className} key" d="M${lx + 10},${M.top - 13.5}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z"/>`
-      : `<line class="${s.className} key" x1="${lx}" x2="${lx + 20}" y1="${M.top - 10}" y2="${M.top - 10}"/>`;
+      ? `<path class="${escapeXml(s.className)} key" d="M${lx + 10},${M.top - 13.5}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z"/>`
+      : `<line class="${escapeXml(s.className)} key" x1="${lx}" x2="${lx + 20}" y1="${M.top - 10}" y2="${M.top - 10}"/>`;
     out.push(`<g class="legend">${key}<text class="legend-text" x="${lx + 24}" y="${M.top - 6}">${escapeXml(s.label)}</text></g>`);
   }
   out.push("</svg>");
@@ -163,7 +163,7 @@ export function svgHistogram(id: string, title: string, xLabel: string, edges: n
   const x = scaleLinear().domain([edges[0]!, edges[edges.length - 1]!]).range([M.left, w - M.right]);
   const top = maxOf(density, curve.y) * 1.1;
   const y = scaleLinear().domain([0, top]).range([h - M.bottom, M.top]);
-  const out = [`<svg id="${id}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
+  const out = [`<svg id="${escapeXml(id)}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(title)}</text>`);
   const xt = x.ticks(10);
   const xl = axisLabels(xt);
