@@ -105,6 +105,20 @@ function pageRules(title: string, identity: string, footer: string): string {
 }`;
 }
 
+/**
+ * Whether `text` is the style element the frame writes: the @page rules with any three margin strings as
+ * cssString writes them (hex escapes only, no raw quote, backslash or angle bracket), then STYLE exactly.
+ * `verify` accepts no other style in the frame's place, so an edited page cannot restyle its banner.
+ */
+export function isFrameStyle(text: string): boolean {
+  const slots = ["\u0001", "\u0002", "\u0003"];
+  const template = pageRules(slots[0]!, slots[1]!, slots[2]!) + STYLE;
+  const literal = '"(?:[A-Za-z0-9 .,:_()+#%!?=\\u00a0-\\uffff-]|\\\\[0-9a-f]{1,6} )*"';
+  let re = template.replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
+  for (const s of slots) re = re.replace(cssString(s).replace(/[.*+?^${}()|[\]\\]/g, "\\$&"), literal);
+  return new RegExp(`^${re}$`, "u").test(text);
+}
+
 /** The first 12 hex digits of a SHA-256: enough to tell recordings apart on a printed page. */
 export function shortHash(sha256: string): string {
   return sha256.slice(0, 12);
