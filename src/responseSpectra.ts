@@ -1,4 +1,3 @@
-import { open } from "node:fs/promises";
 import { analyzeRecording, recordTooShort, type AnalysisOptions } from "./analyzeRecording.js";
 import { loadProfile } from "./checkRecording.js";
 import { InputError, quoted } from "./errors.js";
@@ -8,6 +7,7 @@ import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "./est
 import { davenportPeakFactor, riceRates } from "./estimate/peakStatistics.js";
 import { milesRelativeDisplacementRms, milesRms, sdofResponse } from "./estimate/sdofResponse.js";
 import { looksLikePsdTable, readPsdTable } from "./read/psdTable.js";
+import { readHead } from "./read/regularFile.js";
 import { accelFactor, type AccelUnit } from "./units.js";
 
 /**
@@ -46,23 +46,7 @@ export interface SourceOptions extends AnalysisOptions {
 }
 
 async function firstLine(file: string): Promise<string> {
-  let fh;
-  try {
-    fh = await open(file, "r");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "ENOENT" ? "no such file" : code === "EISDIR" ? "a folder" : String(code) });
-  }
-  try {
-    const b = Buffer.alloc(256);
-    const { bytesRead } = await fh.read(b, 0, 256, 0);
-    return b.subarray(0, bytesRead).toString("utf8").split(/\r?\n/)[0] ?? "";
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "EISDIR" ? "a folder" : String(code) });
-  } finally {
-    await fh.close();
-  }
+  return (await readHead(file, 256, "a readable file")).toString("utf8").split(/\r?\n/)[0] ?? "";
 }
 
 /** The kind of a source file: .json/.yaml/.yml a profile, a CSV whose header starts frequency_hz a PSD table, else a recording. */

@@ -1,10 +1,9 @@
-import { createHash } from "node:crypto";
-import { existsSync, readFileSync } from "node:fs";
-import { readFile } from "node:fs/promises";
+import { existsSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
 import { checkRecording, loadProfile, type CheckOptions } from "./checkRecording.js";
 import { InputError } from "./errors.js";
+import { readSmallText, sha256OfFile } from "./read/regularFile.js";
 import type { TestMeta } from "./read/testMeta.js";
 import { checkJson } from "./report/checkReport.js";
 import { DERIVE_STYLE } from "./report/deriveHtml.js";
@@ -162,8 +161,12 @@ function pageCheck(html: string, kind: string | undefined, verdict: string | und
   return undefined;
 }
 
-function sha256File(file: string): string {
-  return createHash("sha256").update(readFileSync(file)).digest("hex");
+/** Largest report `verify` reads: a record bounded as report writers bound it is a few MB; 256 MiB is far beyond. */
+export const MAX_REPORT_BYTES = 256 << 20;
+
+/** SHA-256 of an input by streaming, a regular file only (a FIFO or device is FILE_UNREADABLE at once). */
+async function sha256File(file: string, what: string, option: string | undefined): Promise<string> {
+  return (await sha256OfFile(file, what, option)).sha256;
 }
 
 /** Where an input is: the option, else beside the report, else the path recorded. */
@@ -175,13 +178,7 @@ function locate(given: string | undefined, recorded: string, report: string): { 
 }
 
 export async function verifyReport(report: string, options: VerifyOptions): Promise<VerifyResult> {
-  let html: string;
-  try {
-    html = await readFile(report, "utf8");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file: report, expected: "a readable psdgate HTML report", received: code === "ENOENT" ? "no such file" : String(code) });
-  }
+  const html = (await readSmallText(report, { what: "a readable psdgate HTML report", maxBytes: MAX_REPORT_BYTES, tooLarge: "INPUT_TOO_LARGE" })).text;
   const tol = options.tolerance ?? 1e-9;
   const steps: VerifyStep[] = [];
   const missing: string[] = [];
@@ -213,7 +210,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   const rec = locate(options.recording, result.input.file, report);
   if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`);
   else {
-    const ok = sha256File(rec.path) === result.input.sha256;
+    const ok = (await sha256File(rec.path, "a readable recording", options.recording !== undefined ? "recording" : undefined)) === result.input.sha256;
     inputsOk &&= ok;
     steps.push({ step: "recording", ok, text: `${rec.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.input.sha256.slice(0, 12)}… (another or a changed file)`}` });
   }
@@ -223,7 +220,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     prof = locate(options.profile, result.profile.file, report);
     if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`);
     else {
-      const ok = sha256File(prof.path) === result.profile.sha256;
+      const ok = (await sha256File(prof.path, "a readable profile file", options.profile !== undefined ? "profile" : undefined)) === result.profile.sha256;
       inputsOk &&= ok;
       steps.push({ step: "profile", ok, text: `${prof.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.profile.sha256.slice(0, 12)}… (another or a changed file)`}` });
     }
@@ -276,17 +273,17 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   }
   let inputsOk = true;
   const found: string[] = [];
-  recorded.forEach((r, i) => {
+  for (const [i, r] of recorded.entries()) {
     const at = locate(undefined, r.file, report);
     if (!at.path) {
       missing.push(`recording ${basename(r.file)} (looked for ${at.looked.join(", ")})`);
-      return;
+      continue;
     }
-    const ok = sha256File(at.path) === r.sha256;
+    const ok = (await sha256File(at.path, "a readable recording", undefined)) === r.sha256;
     inputsOk &&= ok;
     found[i] = at.path;
     steps.push({ step: "recording", ok, text: `${at.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${r.sha256.slice(0, 12)}… (another or a changed file)`}` });
-  });
+  }
   const intact = steps.every((s) => s.ok);
   if (missing.length > 0) return done(intact ? "missing" : "differs");
   if (!inputsOk) {

@@ -1,18 +1,16 @@
-import { createHash } from "node:crypto";
-import { createReadStream } from "node:fs";
 import { InputError } from "../errors.js";
+import { sha256OfFile } from "../read/regularFile.js";
 import { settingsDigest, type Job } from "./job.js";
 import { QUEUE_NAME, type QueueStore } from "./queueStore.js";
 
-/** SHA-256 of a file's bytes, streamed. */
+/** SHA-256 of a file's bytes, streamed; a FIFO, device or folder is FILE_UNREADABLE at once (named as `shown`). */
 export async function fileSha256(file: string, shown: string): Promise<string> {
-  const h = createHash("sha256");
   try {
-    for await (const chunk of createReadStream(file, { highWaterMark: 1 << 20 })) h.update(chunk as Buffer);
+    return (await sha256OfFile(file, "a readable regular file")).sha256;
   } catch (e) {
-    throw new InputError("FILE_UNREADABLE", { file: shown, expected: "a readable file", received: String((e as NodeJS.ErrnoException).code) });
+    if (e instanceof InputError) throw new InputError(e.code, { ...e.details, file: shown });
+    throw e;
   }
-  return h.digest("hex");
 }
 
 export type AddResult = { file: string; added: true; jobId: string } | { file: string; added: false; jobId: string; state: string };
