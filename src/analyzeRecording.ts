@@ -42,6 +42,8 @@ export interface AnalysisOptions extends WelchOptions {
   spectrum?: boolean | undefined;
   /** Also build the amplitude histogram of each channel (one more pass over each block). */
   histogram?: boolean | undefined;
+  /** The result goes into an HTML record: channels x segment length is held to MAX_REPORT_SAMPLES before the work. */
+  forReport?: boolean | undefined;
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
   /** Start of the analysed window, s from the first sample (default 0). The whole file is still read and hashed. */
   fromS?: number | undefined;

@@ -134,6 +134,8 @@ export interface ParsedCommon {
   fmax?: number;
   /** Set by the check command when a report will show the histogram. */
   histogram?: boolean;
+  /** Set when the result goes into an HTML record (its size is bounded before the work). */
+  forReport?: boolean | undefined;
 }
 
 const DELIMS = { comma: ",", semicolon: ";", tab: "\t", whitespace: "whitespace", ",": ",", ";": ";" } as const;
@@ -166,6 +168,7 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     fminHz: o.fmin,
     fmaxHz: o.fmax,
     histogram: o.histogram,
+    forReport: o.forReport,
   };
 }
 
