@@ -105,6 +105,6 @@ export function parseServiceMix(doc: unknown, file: string, sha256: string, base
 export async function loadServiceMix(file: string): Promise<ServiceMix> {
   const { text: body, bytes } = await readSmallText(file, { what: "a readable mix file", option: "mix", maxBytes: MAX_MIX_BYTES, tooLarge: "MIX_INVALID" });
   const sha = createHash("sha256").update(bytes).digest("hex");
-  const doc = plainDocument(body, file, "MIX_SYNTAX");
+  const doc = plainDocument(body, file, "MIX_SYNTAX", /\.json$/i.test(file), "MIX_INVALID");
   return parseServiceMix(doc, file, sha);
 }

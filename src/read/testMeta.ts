@@ -68,6 +68,6 @@ async function readMetaText(file: string): Promise<string> {
 /** Read `--meta FILE`: YAML (.yaml, .yml; core schema, no custom tags, aliases capped) or JSON. */
 export async function loadTestMeta(file: string): Promise<TestMeta> {
   const body = await readMetaText(file);
-  const doc = plainDocument(body, file, "META_SYNTAX", !/\.ya?ml$/i.test(file));
+  const doc = plainDocument(body, file, "META_SYNTAX", !/\.ya?ml$/i.test(file), "META_INVALID");
   return parseTestMeta(doc, file);
 }
