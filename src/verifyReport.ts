@@ -1,9 +1,8 @@
-import { existsSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
 import { checkRecording, loadProfile, type CheckOptions } from "./checkRecording.js";
 import { InputError } from "./errors.js";
-import { readSmallText, sha256OfFile } from "./read/regularFile.js";
+import { pathExists, readSmallText, sha256OfFile } from "./read/regularFile.js";
 import type { TestMeta } from "./read/testMeta.js";
 import { checkJson } from "./report/checkReport.js";
 import { DERIVE_STYLE } from "./report/deriveHtml.js";
@@ -171,9 +170,9 @@ async function sha256File(file: string, what: string, option: string | undefined
 
 /** Where an input is: the option, else beside the report, else the path recorded. */
 function locate(given: string | undefined, recorded: string, report: string): { path?: string; looked: string[] } {
-  if (given !== undefined) return existsSync(given) ? { path: given, looked: [given] } : { looked: [given] };
+  if (given !== undefined) return pathExists(given) ? { path: given, looked: [given] } : { looked: [given] };
   const beside = join(dirname(report), basename(recorded));
-  for (const p of [beside, recorded]) if (existsSync(p)) return { path: p, looked: [beside, recorded] };
+  for (const p of [beside, recorded]) if (pathExists(p)) return { path: p, looked: [beside, recorded] };
   return { looked: [...new Set([beside, recorded])] };
 }
 

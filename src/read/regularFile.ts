@@ -1,5 +1,5 @@
 import { createHash } from "node:crypto";
-import { constants, type Stats } from "node:fs";
+import { constants, existsSync, type Stats } from "node:fs";
 import { open, type FileHandle } from "node:fs/promises";
 import { InputError, type ErrorCode } from "../errors.js";
 
@@ -166,4 +166,9 @@ export async function readHead(file: string, bytes: number, what: string, option
   } finally {
     await handle.close().catch(() => undefined);
   }
+}
+
+/** Whether anything is at `path` (a file, a folder, a device, a FIFO): where to look, not whether to read it. */
+export function pathExists(path: string): boolean {
+  return existsSync(path);
 }
