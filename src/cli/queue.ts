@@ -34,6 +34,7 @@ export function registerQueue(program: Command, io: CliIo): void {
   async function open(o: DbFlags, poolSize = 2): Promise<QueueStore> {
     const { dbTarget, redact } = await connection();
     const target = dbTarget(o.db, env);
+    if (target.warning) io.stderr(`${target.warning}\n`);
     const { openQueue, DbUnreachable } = await store();
     try {
       return await openQueue(target, { poolSize });
@@ -110,6 +111,7 @@ export function registerQueue(program: Command, io: CliIo): void {
       const { runWorker } = await import("../queue/queueWorker.js");
       const { realpath } = await import("node:fs/promises");
       const target: DbTarget = dbTarget(o.db, env);
+      if (target.warning) io.stderr(`${target.warning}\n`);
       const root = await realpath(resolve(o.root ?? ".")).catch(() => {
         throw new InputError("FILE_UNREADABLE", { option: "--root", expected: "a folder that exists", received: o.root ?? "." });
       });
