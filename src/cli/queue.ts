@@ -69,7 +69,7 @@ export function registerQueue(program: Command, io: CliIo): void {
     .option("--json", "one JSON line per recording: file, added (true/false), job id and, when not added, its state")
     .action(async (args: string[], o: ParsedCommon & DbFlags & { profile?: string; filesFrom?: string; root?: string; expireAfter: number }) => {
       const { jobPathOf } = await import("../queue/jobPath.js");
-      const { fileSha256, addJob } = await import("../queue/enqueue.js");
+      const { fileIdentity, addJob } = await import("../queue/enqueue.js");
       const root = resolve(o.root ?? ".");
       const files = await expandFiles(args, o.filesFrom, readStdin);
       let profile: Job["profile"];
@@ -83,7 +83,8 @@ export function registerQueue(program: Command, io: CliIo): void {
       const jobs: Job[] = [];
       for (const f of files) {
         const file = await jobPathOf(root, f, "--root");
-        jobs.push({ kind: profile ? "check" : "psd", file, sha256: await fileSha256(f, f), options, profile });
+        const id = await fileIdentity(f, f);
+        jobs.push({ kind: profile ? "check" : "psd", file, sha256: id.sha256, bytes: id.bytes, options, profile });
       }
       await withQueue(o, async (s) => {
         let added = 0;

@@ -5,8 +5,13 @@ import { QUEUE_NAME, type QueueStore } from "./queueStore.js";
 
 /** SHA-256 of a file's bytes, streamed; a FIFO, device or folder is FILE_UNREADABLE at once (named as `shown`). */
 export async function fileSha256(file: string, shown: string): Promise<string> {
+  return (await fileIdentity(file, shown)).sha256;
+}
+
+/** A file's SHA-256 and size, what a queued job carries so a worker can tell the file is still the one queued. */
+export async function fileIdentity(file: string, shown: string): Promise<{ sha256: string; bytes: number }> {
   try {
-    return (await sha256OfFile(file, "a readable regular file")).sha256;
+    return await sha256OfFile(file, "a readable regular file");
   } catch (e) {
     if (e instanceof InputError) throw new InputError(e.code, { ...e.details, file: shown });
     throw e;

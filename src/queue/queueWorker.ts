@@ -67,6 +67,7 @@ export function jobProblem(data: unknown): string | undefined {
   if (typeof j.file !== "string" || j.file === "") return "it has no recording path (file)";
   if (j.kind !== "psd" && j.kind !== "check") return `its kind is ${JSON.stringify(j.kind)?.slice(0, 40)}, not psd or check`;
   if (typeof j.sha256 !== "string" || !DIGEST.test(j.sha256)) return "it has no recording SHA-256";
+  if (j.bytes !== undefined && !(typeof j.bytes === "number" && Number.isSafeInteger(j.bytes) && j.bytes >= 0)) return "its size (bytes) is not a whole number";
   if (j.options !== undefined && (j.options === null || typeof j.options !== "object" || Array.isArray(j.options))) return "its options are not an object";
   if (j.profile !== undefined) {
     const p = j.profile as Record<string, unknown> | null;
