@@ -92,7 +92,8 @@ export function registerQueue(program: Command, io: CliIo): void {
           const r = await addJob(s, job, o.expireAfter);
           if (r.added) added++;
           if (o.json) io.stdout(JSON.stringify(r) + "\n");
-          else if (!r.added) io.stderr(`psdgate: ${r.file}: already queued with the same recording (SHA-256) and settings, job ${r.jobId} (${r.state}): nothing added\n`);
+          else if (!r.added) io.stderr(`psdgate: ${r.file}: already queued with the same recording (SHA-256) and settings, job ${r.jobId} (${r.state}): nothing added (a failed job is queued again by adding it again)\n`);
+          else if (r.requeued) io.stderr(`psdgate: ${r.file}: queued again as job ${r.jobId} (job ${r.requeued.jobId} had failed; its failed result is replaced)\n`);
         }
         io.stderr(`psdgate: ${added} job(s) added, ${jobs.length - added} already there, on ${s.target.label}\n`);
       });

@@ -148,6 +148,21 @@ describe.skipIf(!url && !process.env.CI)("queue worker (in process, real Postgre
     await store.pool.query("DELETE FROM psdgate.result");
   });
 
+  it("a job that failed is queued again by adding it again (its failed result replaced); one that is done or queued is not", async () => {
+    const j = job("retry-me.csv");
+    expect((await addJob(store, j, 60)).added).toBe(true);
+    const fail: StoredOutcome = { ok: false, lineJson: "{}", error: { code: "FILE_UNREADABLE", message: "wrong root" } };
+    await runWorker(store, fakePool(async (x) => (x.file === "retry-me.csv" ? fail : ok(x.file))), options({}, []));
+    expect(await rows("SELECT outcome, error_code FROM psdgate.result WHERE path = 'retry-me.csv'")).toEqual([{ outcome: "failed", error_code: "FILE_UNREADABLE" }]);
+    const again = await addJob(store, j, 60);
+    expect(again).toMatchObject({ added: true, requeued: { state: "failed" } });
+    const twice = await addJob(store, j, 60);
+    expect(twice).toMatchObject({ added: false, state: "created" });
+    await runWorker(store, fakePool(async (x) => ok(x.file)), options({}, []));
+    expect(await rows("SELECT outcome FROM psdgate.result WHERE path = 'retry-me.csv'")).toEqual([{ outcome: "done" }]);
+    expect(await addJob(store, j, 60)).toMatchObject({ added: false, state: "done" });
+  });
+
   it("a job whose path leaves the worker's root fails at once with JOB_PATH_REFUSED", async () => {
     const root = tempDir();
     await store.boss.send(QUEUE_NAME, job("../../etc/passwd") as unknown as object);
