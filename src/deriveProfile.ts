@@ -244,6 +244,12 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     const durationS = a.window.frames / a.input.sampleRateHz;
     const serviceS = (groupTime.get(r.group) ?? 0) * (durationS / groupDur.get(r.group)!);
     const psd = c.psd.psd.slice(0, lines);
+    // No figures from no data: a recording with no vibration in the band (all zero, constant) has no damage to cover.
+    let inBand = 0;
+    for (let k = 0; k < lines; k++) if (frequencyHz[k]! >= fromHz && frequencyHz[k]! <= toHz && psd[k]! > 0 && Number.isFinite(psd[k]!)) inBand++;
+    if (inBand === 0) {
+      throw new InputError("NO_VIBRATION", { file: r.file, expected: `vibration between ${fromHz} and ${toHz} Hz to derive a profile from`, received: "a PSD of zero at every line in the band (a recording that is all zero or constant)" });
+    }
     const ds = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), { fnHz, q, durationS: serviceS, sn, toSi });
     for (let i = 0; i < n; i++) {
       fieldFatigue[i] = fieldFatigue[i]! + ds.damage[i]!;
@@ -260,6 +266,14 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz), stationary: c.stationarity.tested ? c.stationarity.stationary : undefined, stationarityNote: note, psd, damage: ds.damage, extreme: ds.extreme,
     };
   });
+  for (let i = 0; i < n; i++) {
+    if (!(fieldFatigue[i]! > 0 && Number.isFinite(fieldFatigue[i]!) && fieldExtreme[i]! > 0 && Number.isFinite(fieldExtreme[i]!))) {
+      throw new InputError("OPTION_INVALID", {
+        option: "lifeS", expected: "a service life over which the field's damage is a finite number above 0 at every natural frequency",
+        received: `${lifeS} s (at ${Number(fnHz[i]!.toPrecision(4))} Hz: damage ${fieldFatigue[i]}, largest response ${fieldExtreme[i]})`, hint: "give the life in hours of real service (a mix file's hours, or --life)",
+      });
+    }
+  }
   const groups = o.groups.map((g) => {
     const share = new Float64Array(n);
     for (const r of recordings) if (r.group === g.name) for (let i = 0; i < n; i++) share[i] = share[i]! + r.damage[i]! / fieldFatigue[i]!;
