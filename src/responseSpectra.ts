@@ -205,6 +205,16 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     const nuZ = riceRates(z).upcrossingRateHz;
     r.stressCycleRateHz[i] = nuZ;
     r.fatigueDamage[i] = narrowBandDamage(zRms, nuZ, durationS, sn);
+    // A figure that overflows is not a result: name the settings that made it, rather than print Infinity.
+    if (!Number.isFinite(r.extremePeak[i]!)) {
+      throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure for which the largest peak is a finite number", received: `${durationS} s (largest peak ${r.extremePeak[i]} at ${o.fnHz[i]} Hz)` });
+    }
+    if (!Number.isFinite(r.fatigueDamage[i]!)) {
+      throw new InputError("OPTION_INVALID", {
+        option: "stressPerUnit", expected: "an S-N curve, stress per metre and exposure for which the damage is a finite number",
+        received: `damage ${r.fatigueDamage[i]} at ${o.fnHz[i]} Hz (b ${sn.basquinB}, C ${sn.snConstant}, stress ${sn.stressPerUnit} per metre, ${durationS} s)`,
+      });
+    }
   }
   const m = spectrumMotion(s, toSi);
   const keep = src.frequencyHz.map((f) => (f >= s.fminHz && f <= s.fmaxHz ? 1 : 0));
