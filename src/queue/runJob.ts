@@ -99,15 +99,22 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
 async function writeReport(dir: string, job: Job, r: CheckResult, recording: string): Promise<string> {
   const { checkHtml } = await import("../report/htmlReport.js");
   const { writeAtomic } = await import("../report/writeAtomic.js");
-  const { mkdir } = await import("node:fs/promises");
-  const { dirname, join } = await import("node:path");
+  const { mkdir, realpath } = await import("node:fs/promises");
+  const { dirname, join, sep } = await import("node:path");
   const rel = job.file.replace(/\.[^./]*$/, "") + ".html";
   const target = join(dir, rel);
   try {
     await mkdir(dirname(target), { recursive: true });
+    // Reports stay inside the folder given: a folder link planted under it (runs -> /etc) is not followed.
+    const root = await realpath(dir);
+    const real = await realpath(dirname(target));
+    if (real !== root && !real.startsWith(root + sep)) {
+      throw new InputError("JOB_PATH_REFUSED", { file: job.file, option: "--report-dir", expected: `a report folder inside ${dir}`, received: `${dirname(rel)} leads to ${real} (a link out of the folder)` });
+    }
     // A retried job writes its report again: same job, same report, so it may replace it.
     await writeAtomic(target, checkHtml({ ...r, analysis: { ...r.analysis, input: { ...r.analysis.input, file: job.file } }, profile: { ...r.profile, file: job.profile!.path } }, VERSION, new Date()), { inputs: [recording], force: true, option: "--report-dir" });
   } catch (e) {
+    if (e instanceof InputError) throw e;
     throw new Error(`report ${target} not written: ${(e as Error).message}`);
   }
   return rel;

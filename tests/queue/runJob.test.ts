@@ -99,4 +99,14 @@ describe("runJob", () => {
     const s2 = await runJob({ kind: "psd", file: "runs/same-size.wav", sha256: sha, bytes, options: {} }, { root });
     expect(!s2.ok && s2.error.code).toBe("RECORDING_CHANGED");
   });
+  it("a folder link planted inside --report-dir is not followed: the job fails alone with JOB_PATH_REFUSED, nothing written outside", async () => {
+    const { symlinkSync, readdirSync } = await import("node:fs");
+    const reportDir = tempDir();
+    const outside = tempDir();
+    symlinkSync(outside, join(reportDir, "runs"));
+    const r = await runJob({ kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } }, { root, reportDir });
+    expect(!r.ok && r.error.code).toBe("JOB_PATH_REFUSED");
+    expect(!r.ok && r.error.message).toMatch(/option --report-dir|report folder inside/);
+    expect(readdirSync(outside)).toEqual([]);
+  });
 });
