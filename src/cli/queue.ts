@@ -40,6 +40,7 @@ export function registerQueue(program: Command, io: CliIo): void {
       return await openQueue(target, { poolSize });
     } catch (e) {
       if (e instanceof DbUnreachable) throw new InputError("DB_UNREACHABLE", { option: "--db", expected: "a PostgreSQL server that accepts the connection", received: e.message });
+      if (e instanceof InputError) throw e;
       throw new Error(redact((e as Error).message, target));
     }
   }
@@ -148,6 +149,7 @@ export function registerQueue(program: Command, io: CliIo): void {
           try {
             s = await openQueue(target, { poolSize: jobs + 2, supervise: true, asyncCommit: true, onError: (m) => say(`psdgate: database: ${m}`) });
           } catch (e) {
+            if (e instanceof InputError) throw e;
             if (!(e instanceof DbUnreachable)) throw new Error(redact((e as Error).message, target));
             const wait = Math.min(30, 2 ** (failures - 1));
             say(`psdgate: cannot reach ${e.message}; trying again in ${wait} s`);

@@ -173,6 +173,31 @@ describe.skipIf(!url && !process.env.CI)("queue worker (in process, real Postgre
   });
 });
 
+describe.skipIf(!url && !process.env.CI)("a database role without CREATE rights", () => {
+  it("queue status as a role that may not create the schemas: DB_PERMISSION, exit 2, one line (was exit 70)", async () => {
+    const { cli } = await import("../helpers.js");
+    const pg = (await import("pg")).default;
+    const db = await freshDatabase(url!);
+    const role = `lowly_${Date.now().toString(36)}`;
+    const c = new pg.Client({ connectionString: db });
+    await c.connect();
+    try {
+      await c.query(`CREATE ROLE ${role} LOGIN`);
+      await c.query(`REVOKE CREATE ON DATABASE ${new URL(db).pathname.slice(1)} FROM PUBLIC`);
+      await c.query("REVOKE CREATE ON SCHEMA public FROM PUBLIC");
+    } finally {
+      await c.end();
+    }
+    const u = new URL(db);
+    u.username = role;
+    u.password = "";
+    const r = await cli("queue", "status", "--db", u.toString());
+    expect(r.code, r.stderr).toBe(2);
+    expect(r.stderr).toMatch(/option --db: expected a role that may create and use the pgboss and psdgate schemas.*\[DB_PERMISSION\]/);
+    expect(r.stderr.trim().split("\n").length).toBe(1);
+  });
+});
+
 describe.skipIf((!url || !findPostgresBin()) && !process.env.CI)("queue worker and a lost database connection (its own server, stopped and started)", () => {
   it("database errors are said on stderr and retried with back-off; the job is done once the server is back", async () => {
     const server = await startTestServer(findPostgresBin()!);
