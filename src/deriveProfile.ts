@@ -297,6 +297,15 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const fromMean = target.map((d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b));
   const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
   const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
+  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations.
+  for (let i = 0; i < n; i++) {
+    if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
+      throw new InputError("OPTION_INVALID", {
+        option: "testDurationS", expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,
+        received: `${o.testDurationS} s (the starting levels at ${Number(fnHz[i]!.toPrecision(4))} Hz would be ${fromMean[i]} and ${fromFlat[i]})`, hint: "give the test's real duration (e.g. 1h); the life-to-test ratio sets the levels",
+      });
+    }
+  }
   const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevels: [fromMean, fromFlat], basquinB: b, maxBreakpoints: nMax, damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage });
   const testSpectra = damageSpectra(powerLawSpectrum(segmentsOf(fit.points)), test);
   const testFatigue = testSpectra.damage;

@@ -158,5 +158,8 @@ describe("derive on no data: exit 2 with a code, never an internal error", () =>
     const t = await cli("derive", "--mix", join(d, "tiny.yaml"), "--test-duration", "1h", "--out", join(d, "t.yaml"));
     expect(t.code, t.stderr).toBe(2);
     expect(t.stderr).toMatch(/\[OPTION_INVALID\]/);
+    const short = await cli("derive", "samples/corran-k7-motorway.wav", "--life", "10h", "--test-duration", "1e-300", "--out", join(d, "s.yaml"));
+    expect(short.code, short.stderr).toBe(2);
+    expect(short.stderr).toMatch(/option --test-duration: expected a test duration over which a finite level covers the field's damage.*\[OPTION_INVALID\]/);
   }, 60_000);
 });
