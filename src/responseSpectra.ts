@@ -1,4 +1,5 @@
 import { analyzeRecording, recordTooShort, type AnalysisOptions } from "./analyzeRecording.js";
+import type { ChannelReading } from "./condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
 import { InputError, quoted } from "./errors.js";
 import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "./estimate/fatigueDamage.js";
@@ -31,6 +32,10 @@ export interface SpectrumSource {
   /** Frequencies at which the source is defined: lines (recording, table) or breakpoints (profile). */
   frequencyHz: Float64Array;
   level: Float64Array;
+  /** The analysed window of a recording (--from/--to; the whole record without them), s. */
+  window?: { fromS: number; toS: number; durationS: number; whole: boolean } | undefined;
+  /** How a recording's numbers became accelerations. */
+  reading?: ChannelReading | undefined;
   /** Welch settings, for a recording. */
   settings?: { segmentLength: number; resolutionHz: number; window: string; averages: number; dof: number } | undefined;
 }
@@ -100,7 +105,11 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
   if (short) throw short;
   const { lo, hi } = lineBand(file, c.psd.frequencyHz, o);
   return {
-    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi), durationS: a.input.durationS,
+    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi),
+    // The natural length is the analysed window's (--from/--to), not the file's.
+    durationS: a.window.frames / a.input.sampleRateHz,
+    reading: c.reading,
+    window: { fromS: a.window.fromS, toS: a.window.toS, durationS: a.window.frames / a.input.sampleRateHz, whole: a.window.frames === a.input.samples },
     frequencyHz: c.psd.frequencyHz, level: c.psd.psd,
     settings: { segmentLength: a.settings.segmentLength, resolutionHz: a.settings.resolutionHz, window: a.settings.window, averages: c.psd.averages, dof: c.psd.dof },
   };
@@ -121,8 +130,11 @@ export interface ResponseSpectra {
   band: { fromHz: number; toHz: number };
   fnHz: Float64Array;
   q: number;
-  durationS: number;
+  /** Exposure of the largest peak and the damage; undefined when neither the options nor the source give one (those figures are then NaN). */
+  durationS: number | undefined;
   sn: SnCurve;
+  /** What the result leaves out for want of an exposure time (empty when it has one). */
+  needsDuration: string[];
   /** Exact RMS of the absolute-acceleration response, in the source's unit. */
   accelRms: Float64Array;
   /** Miles' equation with the input's level at f_n (NaN where f_n is outside the input's band). */
@@ -169,11 +181,10 @@ export function parseFnGrid(text: string, option = "fn"): Float64Array {
 export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
   const q = o.q;
   if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
+  // A profile without durationS or a PSD table has no length of its own: the response RMS, Miles, the
+  // displacement and Rice's rates need none; the largest peak and the damage do, and stay NaN without it.
   const durationS = o.durationS ?? src.durationS;
-  if (durationS === undefined) {
-    throw new InputError("OPTION_MISSING", { file: src.file, option: "durationS", expected: "an exposure time in s (the source has none of its own)", received: "nothing" });
-  }
-  if (!(durationS > 0) || !Number.isFinite(durationS)) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure time in s above 0", received: String(durationS) });
+  if (durationS !== undefined && (!(durationS > 0) || !Number.isFinite(durationS))) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure time in s above 0", received: String(durationS) });
   const sn: SnCurve = { ...SN_DEFAULTS, ...Object.fromEntries(Object.entries(o.sn ?? {}).filter(([, v]) => v !== undefined)) };
   if (!(sn.basquinB >= 1 && sn.basquinB <= 30)) throw new InputError("OPTION_INVALID", { option: "basquinB", expected: "a Basquin exponent b from 1 to 30", received: String(sn.basquinB) });
   const toSi = accelFactor(src.units, "m/s2");
@@ -200,16 +211,17 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     r.upcrossingRateHz[i] = rice.upcrossingRateHz;
     r.peakRateHz[i] = rice.peakRateHz;
     r.irregularity[i] = rice.irregularity;
-    r.peakFactor[i] = davenportPeakFactor(rice.upcrossingRateHz * durationS);
+    r.peakFactor[i] = durationS === undefined ? NaN : davenportPeakFactor(rice.upcrossingRateHz * durationS);
     r.extremePeak[i] = r.peakFactor[i]! * r.accelRms[i]!;
     const nuZ = riceRates(z).upcrossingRateHz;
     r.stressCycleRateHz[i] = nuZ;
-    r.fatigueDamage[i] = narrowBandDamage(zRms, nuZ, durationS, sn);
+    r.fatigueDamage[i] = durationS === undefined ? NaN : narrowBandDamage(zRms, nuZ, durationS, sn);
     // A figure that overflows is not a result: name the settings that made it, rather than print Infinity.
-    if (!Number.isFinite(r.extremePeak[i]!)) {
+    // (Without an exposure the figures that need one are left out, as NaN, by design.)
+    if (durationS !== undefined && !Number.isFinite(r.extremePeak[i]!)) {
       throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure for which the largest peak is a finite number", received: `${durationS} s (largest peak ${r.extremePeak[i]} at ${o.fnHz[i]} Hz)` });
     }
-    if (!Number.isFinite(r.fatigueDamage[i]!)) {
+    if (durationS !== undefined && !Number.isFinite(r.fatigueDamage[i]!)) {
       throw new InputError("OPTION_INVALID", {
         option: "stressPerUnit", expected: "an S-N curve, stress per metre and exposure for which the damage is a finite number",
         received: `damage ${r.fatigueDamage[i]} at ${o.fnHz[i]} Hz (b ${sn.basquinB}, C ${sn.snConstant}, stress ${sn.stressPerUnit} per metre, ${durationS} s)`,
@@ -228,7 +240,7 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
   }
   const { spectrum: _s, frequencyHz: _f, level: _l, ...source } = src;
   return {
-    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, ...r,
+    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, needsDuration: durationS === undefined ? ["the largest peak (Davenport)", "the fatigue damage"] : [], ...r,
     motion: { ...m, frequencyHz: fk, velocityPsd: velocityPsd(fk, gk, toSi), displacementPsd: displacementPsd(fk, gk, toSi) },
     stroke,
   };

@@ -55,7 +55,8 @@ export function registerRespond(program: Command, io: CliIo): void {
       const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.duration, sn, strokeMm: o.strokeMm });
       let against;
       if (o.against !== undefined) {
-        const bsrc = await loadSpectrumSource(o.against, { ...base, channel: o.againstChannel }, "againstChannel");
+        // --from/--to cut SOURCE; the --against input is taken whole (its own length is its exposure).
+        const bsrc = await loadSpectrumSource(o.against, { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channel: o.againstChannel }, "againstChannel");
         const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.againstDuration, sn });
         against = { b, c: compareResponses(r, b) };
       }

@@ -1,9 +1,10 @@
 import { DIRECTIVE_2002_44_EC, EIGHT_HOURS_S, ISO_2631_HEALTH_ZONE } from "../compare/wholeBodyExposure.js";
 import type { RideAxis, RideResult } from "../rideRecording.js";
 import { weightingPowerGains } from "../weight/isoWeightings.js";
-import { fixed, sig } from "./format.js";
+import { fixed, rateText, sig } from "./format.js";
 import { STYLE } from "./htmlReport.js";
 import { RIDE_CAUTIONS } from "./rideReport.js";
+import { windowText } from "./psdText.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
 /**
@@ -117,6 +118,7 @@ function spectrumPlot(a: RideAxis, r: RideResult, n: number): string {
 
 function exposurePlot(r: RideResult): string {
   const e = r.exposure;
+  if (e === undefined) return "";
   const D = DIRECTIVE_2002_44_EC;
   const worst = e.a8 / Math.sqrt(e.durationS / EIGHT_HOURS_S);
   const hours = Float64Array.from({ length: 121 }, (_, i) => i / 10);
@@ -159,8 +161,8 @@ export function rideHtml(r: RideResult, version: string, when: Date): string {
 ${row("Recording", esc(a.input.file))}
 ${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
 ${row("Format", esc(a.input.layout))}
-${row("Samples", `${a.input.samples} at ${sig(a.input.sampleRateHz, 6)} Hz (${fixed(a.input.durationS, 3)} s)`)}
-${row("Window analysed", `${fixed(a.window.fromS, 3)} to ${fixed(a.window.toS, 3)} s (${a.window.frames} samples)`)}
+${row("Samples", `${a.input.samples} at ${rateText(a.input.sampleRateHz)} Hz (${fixed(a.input.durationS, 3)} s)`)}
+${row("Window analysed", esc(windowText(a)))}
 ${row("Posture", esc(r.posture))}
 ${row("Analysis", `Welch PSD, ${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap; running r.m.s. ${sig(r.axes[0]?.dose.runningRmsS ?? 1, 3)} s, linear${s.scale !== 1 ? `; calibration ×${s.scale}` : ""}`)}
 ${row("Tool", `psdgate ${esc(version)}`)}
@@ -171,10 +173,10 @@ ${axisRows}
 </table>
 <h2>Exposure</h2>
 <table class="meta" id="exposure-table">
-${row("Stated exposure", `${sig(e.durationS / 3600, 3)} h a day`)}
+${e ? `${row("Stated exposure", `${sig(e.durationS / 3600, 3)} h a day`)}
 ${row("A(8)", `${sig(e.a8, 3)} m/s² (${e.a8Axis}): ${esc(e.directive.a8)} of Directive 2002/44/EC (action ${D.a8ActionMs2}, limit ${D.a8LimitMs2} m/s²)`)}
 ${row("VDV for the exposure", `${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${esc(e.directive.vdv)} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`)}
-${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75); zone values from memory`)}
+${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75); zone values from memory`)}` : row("Stated exposure", "not stated: no A(8), daily VDV or judgement against the Directive and Annex B")}
 ${row("Vibration total value", `${sig(r.totalValue.comfort, 3)} m/s² (comfort factors), ${sig(r.totalValue.health, 3)} m/s² (health factors)`)}
 ${row("Comfort (ISO 2631-1 Annex C)", esc(r.comfort.reactions.join(" or ")))}
 ${r.seat ? row("Seat (SEAT)", `${fixed(100 * r.seat.seat, 1)} %: seat z ${sig(r.seat.awSeat, 4)} over floor z (${esc(r.seat.floorChannel)}) ${sig(r.seat.awFloor, 4)} m/s²`) : ""}

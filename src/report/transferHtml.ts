@@ -1,6 +1,6 @@
 import type { TransferAnalysis, TransferOutput } from "../analyzeTransfer.js";
 import { accelLabel, densityLabel } from "../units.js";
-import { fixed, sig } from "./format.js";
+import { fixed, rateText, sig } from "./format.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
 /**
@@ -102,7 +102,8 @@ export function transferHtml(t: TransferAnalysis, version: string, when: Date): 
 <table>
 <tr><th>Recording</th><td>${esc(t.input.file)}</td></tr>
 <tr><th>SHA-256</th><td><span class="hash">${t.input.sha256}</span></td></tr>
-<tr><th>Samples</th><td>${t.input.samples} at ${sig(t.input.sampleRateHz, 6)} Hz (${fixed(t.input.durationS, 3)} s)</td></tr>
+<tr><th>Samples</th><td>${t.input.samples} at ${rateText(t.input.sampleRateHz)} Hz (${fixed(t.input.durationS, 3)} s)</td></tr>
+<tr><th>Window analysed</th><td>${fixed(t.window.fromS, 3)} to ${fixed(t.window.toS, 3)} s (${fixed(t.window.durationS, 3)} s): ${t.window.frames} samples${t.window.frames === t.input.samples ? ", the whole record" : ""}</td></tr>
 <tr><th>Input</th><td>${esc(t.reference.name)} (channel ${t.reference.position}), ${sig(t.reference.rms, 4)} ${accelLabel(t.units)} RMS</td></tr>
 <tr><th>Analysis</th><td>${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap, detrend ${s.detrend}; ${t.averages} averages, ${fixed(t.dof, 1)} DOF; H1 bounds at ${fixed(100 * s.confidence, 0)} % (Bendat &amp; Piersol, Random Data, ch. 9)</td></tr>
 </table>
