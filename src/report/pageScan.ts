@@ -128,12 +128,17 @@ export function scanPage(html: string): ScannedPage {
 }
 
 /** Start tags and attributes psdgate never writes into a report page. */
-const FORBIDDEN_TAGS = new Set(["script", "link", "iframe", "frame", "frameset", "object", "embed", "base", "img", "image", "input", "form", "button", "video", "audio", "source", "track", "portal", "noscript", "foreignobject", "use", "a", "textarea", "select", "animate", "set", "animatemotion", "animatetransform"]);
+const FORBIDDEN_TAGS = new Set(["details", "dialog", "slot", "marquee", "script", "link", "iframe", "frame", "frameset", "object", "embed", "base", "img", "image", "input", "form", "button", "video", "audio", "source", "track", "portal", "noscript", "foreignobject", "use", "a", "textarea", "select", "animate", "set", "animatemotion", "animatetransform"]);
 
 /** The first thing in a page that psdgate never writes, in words, or undefined. */
 export function foreignContent(page: ScannedPage): string | undefined {
   if (page.malformed) return page.malformed;
+  // One template, the result's: content inside any other template is never rendered (a banner could hide there).
+  const templates = page.tags.filter((t) => t.name === "template");
+  if (templates.length !== 1 || templates[0]!.attrs.get("id") !== "psdgate-result") return `${templates.length} <template> elements (psdgate writes one, its result)`;
   for (const t of page.tags) {
+    // Attributes that hide an element without any style: hidden, a popover (hidden until shown).
+    if (t.attrs.has("hidden") || t.attrs.has("popover")) return `a ${t.attrs.has("hidden") ? "hidden" : "popover"} attribute on <${t.name}>`;
     if (FORBIDDEN_TAGS.has(t.name)) return `a <${t.name}> element`;
     if (t.name === "meta" && t.attrs.has("http-equiv") && t.attrs.get("http-equiv")!.toLowerCase() !== "content-security-policy") return `a <meta http-equiv="${t.attrs.get("http-equiv")}"> element`;
     for (const k of t.attrs.keys()) {

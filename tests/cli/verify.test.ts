@@ -126,6 +126,9 @@ describe("psdgate verify", () => {
       ["second banner", (p) => p.replace("<h2>Test identity</h2>", '<div class="verdict pass" id="verdict" data-verdict="pass"><span class="word">PASS</span></div><h2>Test identity</h2>'), /2 verdict banners/],
       ["script", (p) => p.replace("</body>", "<script>document.querySelector('.word').textContent='PASS'</script></body>"), /<script> element/],
       ["style attribute", (p) => p.replace('<span class="word">FAIL</span>', '<span class="word" style="display:none">FAIL</span>'), /style attribute/],
+      ["banner hidden by an attribute", (p) => p.replace('id="verdict" data-verdict="fail"', 'id="verdict" data-verdict="fail" hidden'), /hidden attribute/],
+      ["banner inside a closed details", (p) => p.replace('<div class="verdict fail"', '<details><summary></summary><div class="verdict fail"').replace("<h2>Test identity</h2>", "</details><h2>Test identity</h2>"), /<details> element/],
+      ["banner inside an inert template", (p) => p.replace('<div class="verdict fail"', '<template><div class="verdict fail"').replace("<h2>Test identity</h2>", "</template><h2>Test identity</h2>"), /2 <template> elements/],
       ["uppercase closing tag", (p) => p.replace("</head>", "<STYLE>.verdict{display:none}</STYLE ></head>"), /style element psdgate did not write/],
     ];
     for (const [what, edit, want] of cases) {
