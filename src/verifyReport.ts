@@ -43,7 +43,7 @@ export interface VerifyStep {
 export interface VerifyResult {
   status: VerifyStatus;
   report: string;
-  kind?: "check" | "psd" | "derive" | undefined;
+  kind?: "check" | "psd" | "derive" | "shock" | undefined;
   steps: VerifyStep[];
   /** Up to 20 differences, each with its JSON path. */
   differences: string[];
@@ -187,7 +187,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     steps.push({ step: "result", ok: false, text: x.found ? "the embedded result is not valid JSON (edited)" : "no embedded psdgate result (not a psdgate report, or the block was removed)" });
     return done("differs");
   }
-  const doc = x.doc as { kind?: "check" | "psd" | "derive"; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
+  const doc = x.doc as { kind?: "check" | "psd" | "derive" | "shock"; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
   const result = (doc.result ?? {}) as { verdict?: string; input?: { file: string; sha256: string }; profile?: { file: string; sha256: string }; tool?: { version?: string } };
   steps.push({ step: "result", ok: x.resultIntact, text: x.resultIntact ? "embedded result intact (its SHA-256 matches)" : "embedded result edited (its SHA-256 does not match)" });
   const pageProblem = pageCheck(html, doc.kind, result.verdict);
@@ -201,7 +201,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     return done("differs", { kind: doc.kind });
   }
   if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
-  if (doc.kind !== "check" && doc.kind !== "psd" || !result.input || !doc.rerun) {
+  if (doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock" || !result.input || !doc.rerun) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
     return done("differs", { kind: undefined });
   }
@@ -237,6 +237,11 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     const profile = await loadProfile(prof.path!);
     const r = await checkRecording(rec.path!, profile, doc.rerun as CheckOptions);
     now = checkJson(r, version, meta);
+  } else if (doc.kind === "shock") {
+    // A shock record: the events and spectra re-run from the recorded options (two reads of the recording).
+    const { shockRecording } = await import("./shockRecording.js");
+    const { shockJson } = await import("./report/shockReport.js");
+    now = shockJson(await shockRecording(rec.path!, doc.rerun as never), version);
   } else {
     now = psdJson(await analyzeRecording(rec.path!, doc.rerun as AnalysisOptions), version, meta);
   }

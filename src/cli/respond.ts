@@ -51,12 +51,14 @@ export function registerRespond(program: Command, io: CliIo): void {
       const fnHz = parseFnGrid(o.fn);
       const base = analysisOptions(o);
       const sn = { basquinB: o.basquin, snConstant: o.snConstant, stressPerUnit: o.stressPerMetre };
-      const a = await loadSpectrumSource(source, { ...base, as: o.as, channel: o.channel?.[0] });
+      // A recording is also filtered through each SDOF in time: damage by rainflow, the largest response (the non-Gaussian part the PSD hides).
+      const response = { fnHz, q: o.q, basquinB: o.basquin ?? (await import("../estimate/fatigueDamage.js")).SN_DEFAULTS.basquinB };
+      const a = await loadSpectrumSource(source, { ...base, as: o.as, channel: o.channel?.[0], response });
       const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.duration, sn, strokeMm: o.strokeMm });
       let against;
       if (o.against !== undefined) {
         // --from/--to cut SOURCE; the --against input is taken whole (its own length is its exposure).
-        const bsrc = await loadSpectrumSource(o.against, { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channel: o.againstChannel }, "againstChannel");
+        const bsrc = await loadSpectrumSource(o.against, { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channel: o.againstChannel, response }, "againstChannel");
         const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.againstDuration, sn });
         against = { b, c: compareResponses(r, b) };
       }

@@ -36,6 +36,7 @@ interface RideFlags extends ParsedCommon {
   exposure?: number;
   floor?: string;
   runningRms?: number;
+  peakHold?: number;
   json?: boolean;
   quiet?: boolean;
   report?: string;
@@ -59,6 +60,7 @@ export function registerRide(program: Command, io: CliIo): void {
     .option("--exposure <duration>", "daily exposure the recording stands for: 8h, 6.5h, 2h30min, 90min, 07:30; needed for A(8), the daily VDV and the Directive's values (a_w, VDV, MTVV come without it)", exposureOption)
     .option("--floor <channel>", "vertical floor channel beneath the seat: adds the seat's effective amplitude transmissibility (SEAT)")
     .option("--running-rms <s>", "integration time of the running r.m.s. and of the stationarity stretches (default 1 s)", numberOption("--running-rms", (x) => x > 0 && x <= 60, "an integration time in s, 0 < t <= 60"))
+    .option("--peak-hold <s>", "also a peak-hold spectrum of each axis (unweighted): at each line the largest Welch PSD of consecutive stretches of this length (s), beside the average", numberOption("--peak-hold", (x) => x > 0 && Number.isFinite(x), "a stretch length in s above 0"))
     .option("--json", "print the result as JSON (SI units)")
     .option("--report <out.html>", "also write a self-contained HTML report: level over time, spectrograms, spectra, exposure against the limit values")
     .option("--force", "replace an existing report file")
@@ -73,7 +75,7 @@ export function registerRide(program: Command, io: CliIo): void {
       const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
       let r;
       try {
-        r = await rideRecording(file, { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, spectrogram: o.report !== undefined, onProgress: (d, t) => progress.update(d, t) });
+        r = await rideRecording(file, { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, peakHoldS: o.peakHold, spectrogram: o.report !== undefined, onProgress: (d, t) => progress.update(d, t) });
       } finally {
         progress.end();
       }
