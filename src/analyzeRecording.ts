@@ -46,6 +46,8 @@ export interface AnalysisOptions extends WelchOptions {
   spectrum?: boolean | undefined;
   /** Also build the amplitude histogram of each channel (one more pass over each block). */
   histogram?: boolean | undefined;
+  /** The result goes into an HTML record: channels x segment length is held to MAX_REPORT_SAMPLES before the work. */
+  forReport?: boolean | undefined;
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
   /** Start of the analysed window, s from the first sample (default 0). The whole file is still read and hashed. */
   fromS?: number | undefined;
@@ -284,8 +286,18 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
  */
 export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
   if (!a.channels.some((c) => c.psd.averages === 0)) return undefined;
+  const frames = a.window.frames;
+  if (frames >= a.settings.segmentLength) {
+    // Long enough, but every segment holds a NaN or an infinite sample: say that, not a length it has.
+    const bad = a.channels.find((c) => c.psd.averages === 0);
+    const nonFinite = bad?.stats.nonFinite ?? 0;
+    return new InputError("RECORD_TOO_SHORT", {
+      file: a.input.file, field: bad?.name, expected: `at least one segment of ${a.settings.segmentLength} samples free of NaN and infinite values`,
+      received: `${frames} samples, ${nonFinite} of them NaN or infinite, in every segment`, hint: "check the recording (or its --scale) for the non-finite values",
+    });
+  }
   return new InputError("RECORD_TOO_SHORT", {
-    file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.input.samples} samples`,
+    file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${frames} samples${frames !== a.input.samples ? ` in the window (${a.input.samples} in the file)` : ""}`,
     hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
   });
 }

@@ -295,6 +295,12 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     const durationS = a.window.frames / a.input.sampleRateHz;
     const serviceS = (groupTime.get(r.group) ?? 0) * (durationS / groupDur.get(r.group)!);
     const psd = c.psd.psd.slice(0, lines);
+    // No figures from no data: a recording with no vibration in the band (all zero, constant) has no damage to cover.
+    let inBand = 0;
+    for (let k = 0; k < lines; k++) if (frequencyHz[k]! >= fromHz && frequencyHz[k]! <= toHz && psd[k]! > 0 && Number.isFinite(psd[k]!)) inBand++;
+    if (inBand === 0) {
+      throw new InputError("NO_VIBRATION", { file: r.file, expected: `vibration between ${fromHz} and ${toHz} Hz to derive a profile from`, received: "a PSD of zero at every line in the band (a recording that is all zero or constant)" });
+    }
     // Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around it.
     const reach = Math.ceil(spectralKernel(a.settings.window, spectralWindow(a.settings.window, a.settings.segmentLength), a.settings.detrend).halfWidthBins) + 1;
     for (const t of c.tones) {
@@ -323,6 +329,14 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       fromPsd: timeFigures ? { damage: ds0.damage, extreme: ds0.extreme, kurtosis: c.stats.kurtosis } : undefined,
     };
   });
+  for (let i = 0; i < n; i++) {
+    if (!(fieldFatigue[i]! > 0 && Number.isFinite(fieldFatigue[i]!) && fieldExtreme[i]! > 0 && Number.isFinite(fieldExtreme[i]!))) {
+      throw new InputError("OPTION_INVALID", {
+        option: "lifeS", expected: "a service life over which the field's damage is a finite number above 0 at every natural frequency",
+        received: `${lifeS} s (at ${Number(fnHz[i]!.toPrecision(4))} Hz: damage ${fieldFatigue[i]}, largest response ${fieldExtreme[i]})`, hint: "give the life in hours of real service (a mix file's hours, or --life)",
+      });
+    }
+  }
   if (candidateTones.length > 0) {
     notes.push(`${candidateTones.length} candidate sine tone(s) in the field recordings (listed): kept out of the random envelope, mean, tolerance limit and damage; give them to the lab profile as tones (mixed mode) if they are real`);
   }
@@ -349,6 +363,15 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const fromMean = target.map((d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b));
   const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
   const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
+  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations.
+  for (let i = 0; i < n; i++) {
+    if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
+      throw new InputError("OPTION_INVALID", {
+        option: "testDurationS", expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,
+        received: `${o.testDurationS} s (the starting levels at ${Number(fnHz[i]!.toPrecision(4))} Hz would be ${fromMean[i]} and ${fromFlat[i]})`, hint: "give the test's real duration (e.g. 1h); the life-to-test ratio sets the levels",
+      });
+    }
+  }
   const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevels: [fromMean, fromFlat], basquinB: b, maxBreakpoints: nMax, damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage });
   const testSpectra = damageSpectra(powerLawSpectrum(segmentsOf(fit.points)), test);
   const testFatigue = testSpectra.damage;

@@ -3,7 +3,7 @@ import { channelConditionings, type ChannelConditioning, type ChannelReading } f
 import { InputError, quoted } from "./errors.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions } from "./estimate/welchOptions.js";
 import type { CsvReadOptions } from "./read/csvTimeHistory.js";
-import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
+import { MAX_REPORT_SAMPLES, MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
 import { isoDateTime, parseDateTimeText } from "./read/dateTimeStamp.js";
 import type { CsvDialect, RecordingInfo } from "./read/timeHistory.js";
 import type { AccelUnit } from "./units.js";
@@ -84,6 +84,13 @@ export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): 
     throw new InputError("ANALYSIS_TOO_LARGE", {
       file: info.file, expected: `channels x segment length at most ${MAX_SPECTRUM_SAMPLES} (${Math.max(1, Math.floor(MAX_SPECTRUM_SAMPLES / welch.segmentLength))} channels at ${welch.segmentLength} points)`,
       received: `${spectrumChannels} channels x ${welch.segmentLength}`, hint: "select fewer `channels`, or use a shorter `segmentLength` or a coarser `resolutionHz`",
+    });
+  }
+  if (options.forReport === true && spectrumChannels * welch.segmentLength > MAX_REPORT_SAMPLES) {
+    throw new InputError("REPORT_TOO_LARGE", {
+      file: info.file, expected: `for an HTML record, channels x segment length at most ${MAX_REPORT_SAMPLES} (${Math.max(1, Math.floor(MAX_REPORT_SAMPLES / welch.segmentLength))} channels at ${welch.segmentLength} points)`,
+      received: `${spectrumChannels} channels x ${welch.segmentLength} (${Number(welch.resolutionHz.toPrecision(4))} Hz lines)`,
+      hint: "write the full data with --csv or --json instead of --report, or select fewer `channels`, or use a coarser `resolutionHz`",
     });
   }
   const stretchS = options.stretchS ?? 1;

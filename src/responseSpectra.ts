@@ -1,4 +1,3 @@
-import { open } from "node:fs/promises";
 import { analyzeRecording, recordTooShort, type AnalysisOptions, type PassAccumulator } from "./analyzeRecording.js";
 import type { ChannelReading } from "./condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
@@ -11,6 +10,7 @@ import { absoluteTransmissibilitySquared, milesRelativeDisplacementRms, milesRms
 import type { TimeResponse } from "./estimate/timeResponse.js";
 import { responseThreads, timeResponseSink, type TimeResponseSink } from "./timeResponsePool.js";
 import { looksLikePsdTable, readPsdTable } from "./read/psdTable.js";
+import { readHead } from "./read/regularFile.js";
 import { accelFactor, type AccelUnit } from "./units.js";
 
 /**
@@ -76,23 +76,7 @@ class TimeResponses implements PassAccumulator<TimeResponse | undefined> {
 }
 
 async function firstLine(file: string): Promise<string> {
-  let fh;
-  try {
-    fh = await open(file, "r");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "ENOENT" ? "no such file" : code === "EISDIR" ? "a folder" : String(code) });
-  }
-  try {
-    const b = Buffer.alloc(256);
-    const { bytesRead } = await fh.read(b, 0, 256, 0);
-    return b.subarray(0, bytesRead).toString("utf8").split(/\r?\n/)[0] ?? "";
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "EISDIR" ? "a folder" : String(code) });
-  } finally {
-    await fh.close();
-  }
+  return (await readHead(file, 256, "a readable file")).toString("utf8").split(/\r?\n/)[0] ?? "";
 }
 
 /** The kind of a source file: .json/.yaml/.yml a profile, a CSV whose header starts frequency_hz a PSD table, else a recording. */
@@ -326,6 +310,17 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     const nuZ = riceRates(z).upcrossingRateHz;
     r.stressCycleRateHz[i] = nuZ;
     r.fatigueDamage[i] = durationS === undefined ? NaN : narrowBandDamage(zRms, nuZ, durationS, sn);
+    // A figure that overflows is not a result: name the settings that made it, rather than print Infinity.
+    // (Without an exposure the figures that need one are left out, as NaN, by design.)
+    if (durationS !== undefined && !Number.isFinite(r.extremePeak[i]!)) {
+      throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure for which the largest peak is a finite number", received: `${durationS} s (largest peak ${r.extremePeak[i]} at ${o.fnHz[i]} Hz)` });
+    }
+    if (durationS !== undefined && !Number.isFinite(r.fatigueDamage[i]!)) {
+      throw new InputError("OPTION_INVALID", {
+        option: "stressPerUnit", expected: "an S-N curve, stress per metre and exposure for which the damage is a finite number",
+        received: `damage ${r.fatigueDamage[i]} at ${o.fnHz[i]} Hz (b ${sn.basquinB}, C ${sn.snConstant}, stress ${sn.stressPerUnit} per metre, ${durationS} s)`,
+      });
+    }
   }
   const m = spectrumMotion(s, toSi);
   const keep = src.frequencyHz.map((f) => (f >= s.fminHz && f <= s.fmaxHz ? 1 : 0));

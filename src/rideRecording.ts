@@ -208,6 +208,13 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     ...options, ...welch, channels: indexes.map((i) => String(i + 1)), resultUnits: "m/s2", accumulators: [weighted], stretchS: options.stretchS ?? runningRmsS,
   });
   const results = analysis.extras[0] as ReturnType<WeightedDoses["finish"]>;
+  // No figures from no data: an axis whose every sample is NaN or infinite has no a_w, VDV or MTVV (the
+  // filters hold the last finite value, and there is none), so it is refused rather than shown as 0.
+  for (const ch of analysis.channels) {
+    if (analysis.window.frames === 0 || ch.stats.nonFinite >= analysis.window.frames) {
+      throw new InputError("RECORD_TOO_SHORT", { file: analysis.input.file, field: ch.name, expected: "finite samples to weight", received: `${analysis.window.frames} samples, ${analysis.window.frames === 0 ? "none" : "all"} of them NaN or infinite` });
+    }
+  }
   const notes: Finding[] = [];
   const doubts: Finding[] = analysis.passDoubts.map((text) => ({ code: "RATE_MOVED", values: {}, text }));
   const fs = analysis.input.sampleRateHz;

@@ -1,4 +1,4 @@
-import { existsSync } from "node:fs";
+import { pathExists } from "./read/regularFile.js";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
@@ -60,7 +60,7 @@ export function responseThreads(fnCount: number, expectedSamples: number, env: N
 }
 
 export function timeResponseSink(fnHz: Float64Array, q: number, sampleRateHz: number, basquinB: number, threads: number): TimeResponseSink {
-  if (threads < 1 || !existsSync(fileURLToPath(WORKER))) return new TimeResponseAccumulator(fnHz, q, sampleRateHz, basquinB);
+  if (threads < 1 || !pathExists(fileURLToPath(WORKER))) return new TimeResponseAccumulator(fnHz, q, sampleRateHz, basquinB);
   return new TimeResponsePool(fnHz, q, sampleRateHz, basquinB, threads);
 }
 

@@ -1,13 +1,14 @@
-import { createHash } from "node:crypto";
-import { existsSync, readFileSync } from "node:fs";
-import { readFile } from "node:fs/promises";
 import { basename, dirname, join } from "node:path";
 import { analyzeRecording, type AnalysisOptions } from "./analyzeRecording.js";
 import { checkRecording, loadProfile, type CheckOptions } from "./checkRecording.js";
 import { InputError } from "./errors.js";
+import { pathExists, readSmallText, sha256OfFile } from "./read/regularFile.js";
 import type { TestMeta } from "./read/testMeta.js";
 import { checkJson } from "./report/checkReport.js";
+import { DERIVE_STYLE } from "./report/deriveHtml.js";
 import { extractResult } from "./report/embeddedResult.js";
+import { foreignContent, scanPage, shownVerdict } from "./report/pageScan.js";
+import { isFrameStyle } from "./report/reportPage.js";
 import { psdJson } from "./report/psdJson.js";
 import type { DeriveOptions } from "./deriveProfile.js";
 
@@ -57,15 +58,29 @@ const IGNORED = new Set(["input.file", "analysis.file", "profile.file", "tool.ve
 const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[\d+\]\.file)$/;
 
 /**
- * Every difference between a recorded and a re-computed result, by JSON path. A field the recorded result
- * lacks and the re-run has was added by a later psdgate (e.g. `analysis`, findings' `values`): it is listed
- * in `added`, not counted as a difference, so an older report still verifies on every number it holds. A
- * recorded field the re-run lacks is a difference.
+ * The fields a later psdgate added to a result, array indices folded to `[]`. They carry no verdict and no
+ * evidence of one (the resolved analysis, a finding's values beside its text, a profile's provenance), so a
+ * report made before them still verifies on every number it holds. Nothing else may be missing.
  */
-export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number; added: string[] } = { diffs: [], compared: 0, added: [] }) {
+const ADDED_LATER = [/^analysis$/, /(^|\.)\w*[fF]indings\[\]\.values$/, /^profile\.(provenance|origin)$/];
+
+export interface CompareOptions {
+  /** The report was made by another psdgate version: a field in ADDED_LATER that only the re-run has is listed, not a difference. */
+  olderReport?: boolean | undefined;
+}
+
+/**
+ * Every difference between a recorded and a re-computed result, by JSON path. A field the re-run has and the
+ * record lacks is a difference: a verdict, a rule or a channel deleted from a record is not "not compared".
+ * The one exception is a field a later psdgate added (ADDED_LATER) when the report came from another
+ * version: it is listed in `added`. A recorded field the re-run lacks is a difference.
+ */
+export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number; added: string[] } = { diffs: [], compared: 0, added: [] }, opts: CompareOptions = { olderReport: true }) {
   if (IGNORED.has(path) || IGNORED_PATTERN.test(path)) return out;
   if (recorded === undefined && now !== undefined) {
-    out.added.push(path);
+    const folded = path.replace(/\[\d+\]/g, "[]");
+    if (opts.olderReport && ADDED_LATER.some((re) => re.test(folded))) out.added.push(path);
+    else out.diffs.push(`${path}: not in the report, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
     return out;
   }
   const add = (s: string) => out.diffs.push(s);
@@ -75,10 +90,10 @@ export function compareResults(recorded: unknown, now: unknown, tolerance: numbe
     if (!(Math.abs(recorded - now) <= tolerance * scale)) add(`${path}: recorded ${recorded}, re-run ${now}`);
   } else if (Array.isArray(recorded) && Array.isArray(now)) {
     if (recorded.length !== now.length) add(`${path}: recorded ${recorded.length} values, re-run ${now.length}`);
-    else for (let i = 0; i < recorded.length; i++) compareResults(recorded[i], now[i], tolerance, `${path}[${i}]`, out);
+    else for (let i = 0; i < recorded.length; i++) compareResults(recorded[i], now[i], tolerance, `${path}[${i}]`, out, opts);
   } else if (recorded !== null && now !== null && typeof recorded === "object" && typeof now === "object") {
     const keys = new Set([...Object.keys(recorded), ...Object.keys(now)]);
-    for (const k of keys) compareResults((recorded as Record<string, unknown>)[k], (now as Record<string, unknown>)[k], tolerance, path ? `${path}.${k}` : k, out);
+    for (const k of keys) compareResults((recorded as Record<string, unknown>)[k], (now as Record<string, unknown>)[k], tolerance, path ? `${path}.${k}` : k, out, opts);
   } else if (recorded !== now) {
     add(`${path}: recorded ${JSON.stringify(recorded)?.slice(0, 60)}, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
   }
@@ -89,29 +104,80 @@ export function compareResults(recorded: unknown, now: unknown, tolerance: numbe
 function addedNote(added: string[]): string {
   if (added.length === 0) return "";
   const names = [...new Set(added.map((p) => p.replace(/\[\d+\]/g, "[]")))];
-  return `; not in the report, so not compared (added by a later psdgate): ${names.slice(0, 6).join(", ")}${names.length > 6 ? ` and ${names.length - 6} more` : ""}`;
+  return `; not in the report, so not compared (added by a later psdgate than the report's): ${names.slice(0, 6).join(", ")}${names.length > 6 ? ` and ${names.length - 6} more` : ""}`;
 }
 
-function sha256File(file: string): string {
-  return createHash("sha256").update(readFileSync(file)).digest("hex");
+
+/** The fields each kind of record must hold: its verdict (where it has one) and the evidence for it. */
+export const REQUIRED_FIELDS: Record<string, readonly string[]> = {
+  check: ["tool", "verdict", "input", "profile", "settings", "rule", "control", "channels"],
+  psd: ["tool", "input", "settings", "channels"],
+  derive: ["tool", "recordings", "groups", "fnHz", "fieldFatigue", "testFatigue", "fieldExtreme", "testExtreme", "fit"],
+};
+const VERDICTS = ["pass", "fail", "inconclusive"];
+
+/** The first required field a record lacks (or holds in a form psdgate never writes), or undefined. */
+function requiredMissing(kind: string | undefined, result: Record<string, unknown>): string | undefined {
+  const need = kind !== undefined ? REQUIRED_FIELDS[kind] : undefined;
+  if (!need) return undefined;
+  for (const k of need) if (!(k in result) || result[k] === undefined) return `"${k}"`;
+  if (kind === "check" && !VERDICTS.includes(result.verdict as string)) return "verdict psdgate gives (pass, fail or inconclusive)";
+  if ((kind === "check" || kind === "psd") && (!Array.isArray(result.channels) || result.channels.length === 0)) return "channels";
+  return undefined;
+}
+
+/** Style elements a page of each kind carries besides the frame's (report/reportPage.ts). */
+const EXTRA_STYLES: Record<string, readonly string[]> = { derive: [DERIVE_STYLE] };
+const BANNER_WORD: Record<string, string> = { psd: "PSD", derive: "PROFILE" };
+
+/**
+ * What is wrong with the page as psdgate would write it, or undefined: the page is parsed (report/pageScan.ts),
+ * and it must hold no script, handler, fetch or style attribute, only the style elements psdgate writes, and
+ * exactly one verdict banner whose attribute, class and word all say the recorded verdict.
+ */
+function pageCheck(html: string, kind: string | undefined, verdict: string | undefined): string | undefined {
+  const page = scanPage(html);
+  const foreign = foreignContent(page);
+  if (foreign) return `the page holds ${foreign}, which psdgate never writes`;
+  const extras = [...(EXTRA_STYLES[kind ?? ""] ?? [])];
+  let frame = 0;
+  for (const st of page.styles) {
+    if (isFrameStyle(st)) frame++;
+    else {
+      const i = extras.indexOf(st);
+      if (i < 0) return "the page holds a style element psdgate did not write";
+      extras.splice(i, 1);
+    }
+  }
+  if (frame !== 1) return `the page holds ${frame} frame style elements, psdgate writes one`;
+  const v = shownVerdict(html, page);
+  if (v.count !== 1) return `the page shows ${v.count} verdict banners, psdgate writes one`;
+  const want = kind === "check" ? verdict : "none";
+  const word = kind === "check" ? String(verdict).toUpperCase() : BANNER_WORD[kind ?? ""];
+  if (v.dataVerdict !== want || v.classVerdict !== want || (word !== undefined && v.word !== word)) {
+    return `the page shows verdict "${v.dataVerdict}" (class "${v.classVerdict}", word "${v.word}"), the result says "${want}"`;
+  }
+  return undefined;
+}
+
+/** Largest report `verify` reads: a record bounded as report writers bound it is a few MB; 256 MiB is far beyond. */
+export const MAX_REPORT_BYTES = 256 << 20;
+
+/** SHA-256 of an input by streaming, a regular file only (a FIFO or device is FILE_UNREADABLE at once). */
+async function sha256File(file: string, what: string, option: string | undefined): Promise<string> {
+  return (await sha256OfFile(file, what, option)).sha256;
 }
 
 /** Where an input is: the option, else beside the report, else the path recorded. */
 function locate(given: string | undefined, recorded: string, report: string): { path?: string; looked: string[] } {
-  if (given !== undefined) return existsSync(given) ? { path: given, looked: [given] } : { looked: [given] };
+  if (given !== undefined) return pathExists(given) ? { path: given, looked: [given] } : { looked: [given] };
   const beside = join(dirname(report), basename(recorded));
-  for (const p of [beside, recorded]) if (existsSync(p)) return { path: p, looked: [beside, recorded] };
+  for (const p of [beside, recorded]) if (pathExists(p)) return { path: p, looked: [beside, recorded] };
   return { looked: [...new Set([beside, recorded])] };
 }
 
 export async function verifyReport(report: string, options: VerifyOptions): Promise<VerifyResult> {
-  let html: string;
-  try {
-    html = await readFile(report, "utf8");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file: report, expected: "a readable psdgate HTML report", received: code === "ENOENT" ? "no such file" : String(code) });
-  }
+  const html = (await readSmallText(report, { what: "a readable psdgate HTML report", maxBytes: MAX_REPORT_BYTES, tooLarge: "INPUT_TOO_LARGE" })).text;
   const tol = options.tolerance ?? 1e-9;
   const steps: VerifyStep[] = [];
   const missing: string[] = [];
@@ -124,12 +190,16 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   const doc = x.doc as { kind?: "check" | "psd" | "derive" | "shock"; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
   const result = (doc.result ?? {}) as { verdict?: string; input?: { file: string; sha256: string }; profile?: { file: string; sha256: string }; tool?: { version?: string } };
   steps.push({ step: "result", ok: x.resultIntact, text: x.resultIntact ? "embedded result intact (its SHA-256 matches)" : "embedded result edited (its SHA-256 does not match)" });
-  const shownVerdict = /id="verdict" data-verdict="([a-z]+)"/.exec(html)?.[1];
-  const verdictOk = doc.kind !== "check" || shownVerdict === result.verdict;
+  const pageProblem = pageCheck(html, doc.kind, result.verdict);
   steps.push({
-    step: "page", ok: x.pageIntact && verdictOk,
-    text: !verdictOk ? `the page shows verdict "${shownVerdict}", the result says "${result.verdict}" (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
+    step: "page", ok: x.pageIntact && pageProblem === undefined,
+    text: pageProblem !== undefined ? `${pageProblem} (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
   });
+  const missingField = requiredMissing(doc.kind, result as Record<string, unknown>);
+  if (missingField !== undefined) {
+    steps.push({ step: "result", ok: false, text: `the embedded result has no ${missingField}: a record without its verdict or evidence is not one psdgate writes` });
+    return done("differs", { kind: doc.kind });
+  }
   if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
   if (doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock" || !result.input || !doc.rerun) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
@@ -139,7 +209,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   const rec = locate(options.recording, result.input.file, report);
   if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`);
   else {
-    const ok = sha256File(rec.path) === result.input.sha256;
+    const ok = (await sha256File(rec.path, "a readable recording", options.recording !== undefined ? "recording" : undefined)) === result.input.sha256;
     inputsOk &&= ok;
     steps.push({ step: "recording", ok, text: `${rec.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.input.sha256.slice(0, 12)}… (another or a changed file)`}` });
   }
@@ -149,7 +219,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     prof = locate(options.profile, result.profile.file, report);
     if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`);
     else {
-      const ok = sha256File(prof.path) === result.profile.sha256;
+      const ok = (await sha256File(prof.path, "a readable profile file", options.profile !== undefined ? "profile" : undefined)) === result.profile.sha256;
       inputsOk &&= ok;
       steps.push({ step: "profile", ok, text: `${prof.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.profile.sha256.slice(0, 12)}… (another or a changed file)`}` });
     }
@@ -175,7 +245,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   } else {
     now = psdJson(await analyzeRecording(rec.path!, doc.rerun as AnalysisOptions), version, meta);
   }
-  const cmp = compareResults(doc.result, now, tol);
+  const cmp = compareResults(doc.result, now, tol, "", undefined, { olderReport: version !== options.version });
   const again = (now as { verdict?: string }).verdict;
   const sameVersion = version === options.version;
   steps.push({
@@ -207,17 +277,17 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   }
   let inputsOk = true;
   const found: string[] = [];
-  recorded.forEach((r, i) => {
+  for (const [i, r] of recorded.entries()) {
     const at = locate(undefined, r.file, report);
     if (!at.path) {
       missing.push(`recording ${basename(r.file)} (looked for ${at.looked.join(", ")})`);
-      return;
+      continue;
     }
-    const ok = sha256File(at.path) === r.sha256;
+    const ok = (await sha256File(at.path, "a readable recording", undefined)) === r.sha256;
     inputsOk &&= ok;
     found[i] = at.path;
     steps.push({ step: "recording", ok, text: `${at.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${r.sha256.slice(0, 12)}… (another or a changed file)`}` });
-  });
+  }
   const intact = steps.every((s) => s.ok);
   if (missing.length > 0) return done(intact ? "missing" : "differs");
   if (!inputsOk) {
@@ -228,7 +298,7 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   const { deriveProfile } = await import("./deriveProfile.js");
   const { deriveJson } = await import("./report/deriveReport.js");
   const r = await deriveProfile({ ...doc.rerun, recordings: given.map((g, i) => ({ ...g, file: found[i]! })), version, created: new Date(doc.created) });
-  const cmp = compareResults(doc.result, deriveJson(r, version), tol);
+  const cmp = compareResults(doc.result, deriveJson(r, version), tol, "", undefined, { olderReport: version !== running });
   steps.push({
     step: "rerun", ok: cmp.diffs.length === 0,
     text: cmp.diffs.length === 0 ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp.added)}` : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,

@@ -17,4 +17,12 @@ describe("compareResults", () => {
     expect(c.added).toEqual(["findings[0].values", "analysis"]);
     expect(compareResults(now, older, 1e-9).diffs).toEqual(["analysis: recorded {\"welch\":{\"segmentLength\":4096}}, re-run undefined", "findings[0].values: recorded {\"lines\":3}, re-run undefined"]);
   });
+  it("a field the re-run has and the record lacks is a difference, except a field a later psdgate added, and that only for a report of another version", () => {
+    const now = { verdict: "fail", rule: { summary: "s" }, channels: [{ lines: [1, 2] }], analysis: { a: 1 } };
+    const stripped = { analysis: { a: 1 } };
+    expect(compareResults(stripped, now, 1e-9).diffs).toEqual(['verdict: not in the report, re-run "fail"', 'rule: not in the report, re-run {"summary":"s"}', 'channels: not in the report, re-run [{"lines":[1,2]}]']);
+    const noAnalysis = { verdict: "fail", rule: { summary: "s" }, channels: [{ lines: [1, 2] }] };
+    expect(compareResults(noAnalysis, now, 1e-9, "", undefined, { olderReport: true }).diffs).toEqual([]);
+    expect(compareResults(noAnalysis, now, 1e-9, "", undefined, { olderReport: false }).diffs).toEqual(["analysis: not in the report, re-run {\"a\":1}"]);
+  });
 });

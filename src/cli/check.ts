@@ -71,7 +71,7 @@ export function registerCheck(program: Command, io: CliIo): void {
       const names = o.reportDir !== undefined ? reportFileNames(files) : [];
       const reportPath = (index: number) => (o.report !== undefined ? o.report : join(o.reportDir!, names[index]!));
       const given = givenOptions(cmd);
-      const rerun = rerunOptions({ ...analysisOptions(o), histogram: wantsReport, control });
+      const rerun = rerunOptions({ ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control });
       const writeReport = (r: CheckResult, index: number) =>
         writeAtomic(reportPath(index), checkHtml(r, VERSION, now, { meta, given, rerun }), { inputs, force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
       if (files.length > 1) {
@@ -82,7 +82,7 @@ export function registerCheck(program: Command, io: CliIo): void {
         const entries: import("../report/batchIndex.js").BatchEntry[] = [];
         let reportError: unknown;
         const code = await many<CheckResult>(
-          files, { ...o, histogram: wantsReport, control }, profile, verdictCode,
+          files, { ...o, histogram: wantsReport, forReport: wantsReport || undefined, control }, profile, verdictCode,
           (r, index) => {
             if (o.reportDir !== undefined) {
               reports.push(writeReport(r, index).catch((e: unknown) => void (reportError ??= e)));
@@ -106,7 +106,7 @@ export function registerCheck(program: Command, io: CliIo): void {
         throw new Exit(code);
       }
       const { runAnalysis } = await import("../runAnalysis.js");
-      const r = await one(o, (onProgress) => runAnalysis({ kind: "check", file: files[0]!, profile, options: { ...analysisOptions(o), histogram: wantsReport, control } }, onProgress));
+      const r = await one(o, (onProgress) => runAnalysis({ kind: "check", file: files[0]!, profile, options: { ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control } }, onProgress));
       if (o.csv !== undefined) {
         const { checkCsv } = await import("../report/checkCsv.js");
         await writeAtomic(o.csv, checkCsv(r), { inputs, force: o.force, option: "--csv" });

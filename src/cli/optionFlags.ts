@@ -53,6 +53,8 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   floor: "--floor",
   exposureS: "--exposure",
   runningRmsS: "--running-rms",
+  // respond
+  stressPerUnit: "--stress-per-metre",
   // synth
   sampleRateHz: "--rate",
   // derive

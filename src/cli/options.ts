@@ -49,9 +49,15 @@ function channelSetting<T>(option: string, parse: (text: string) => T | undefine
   };
 }
 
+/**
+ * A calibration factor with room for the arithmetic: 1e-12 <= |K| <= 1e12. A sample times K is squared
+ * and summed over segments, so K = 1e200 made every PSD line infinite (NaN results, exit 0) and 1e308
+ * made the samples themselves infinite.
+ */
+export const MAX_SCALE = 1e12;
 const scaleValue = (t: string) => {
   const v = Number(t);
-  return t.trim() !== "" && Number.isFinite(v) && v !== 0 ? v : undefined;
+  return t.trim() !== "" && Number.isFinite(v) && Math.abs(v) >= 1 / MAX_SCALE && Math.abs(v) <= MAX_SCALE ? v : undefined;
 };
 const sensitivityValue = (t: string) => (parseSensitivity(t) ? t.trim() : undefined);
 
@@ -87,7 +93,7 @@ export function addReadingOptions(cmd: Command): Command {
     .option("--decimal <mark>", "decimal mark: point or comma (default: detected)", choice("--decimal", ["point", "comma"]))
     .option("--units <u>", `unit of the samples where the file does not say: ${UNIT_NAMES.join(", ")} (default g)`, anyUnitOption("--units"))
     .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit's base, g or m/s2)", baseUnitOption("--result-units"))
-    .option("--scale <[ch=]k>", "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel", channelSetting("--scale", scaleValue, "a non-zero number K, or CH=K"))
+    .option("--scale <[ch=]k>", "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel", channelSetting("--scale", scaleValue, "a number K with 1e-12 <= |K| <= 1e12, or CH=K"))
     .option("--sensitivity <[ch=]s>", "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel", channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"))
     .option("--from <time>", "analyse from this time: s from the first sample, or a clock time (2024-05-17T14:03:10, or 14:03:10 on the first stamp's day) for a record with date-time stamps; recorded in the results", timeOption("--from"))
     .option("--to <time>", "analyse up to this time, in the same forms as --from", timeOption("--to"));
@@ -134,6 +140,8 @@ export interface ParsedCommon {
   fmax?: number;
   /** Set by the check command when a report will show the histogram. */
   histogram?: boolean;
+  /** Set when the result goes into an HTML record (its size is bounded before the work). */
+  forReport?: boolean | undefined;
 }
 
 const DELIMS = { comma: ",", semicolon: ";", tab: "\t", whitespace: "whitespace", ",": ",", ";": ";" } as const;
@@ -166,6 +174,7 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
     fminHz: o.fmin,
     fmaxHz: o.fmax,
     histogram: o.histogram,
+    forReport: o.forReport,
   };
 }
 

@@ -51,7 +51,7 @@ export function registerPsd(program: Command, io: CliIo): void {
       if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
       if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
       const { runAnalysis } = await import("../runAnalysis.js");
-      const options = { ...analysisOptions(o), histogram: o.report !== undefined ? true : o.histogram, peakHoldS: o.peakHold };
+      const options = { ...analysisOptions(o), histogram: o.report !== undefined ? true : o.histogram, peakHoldS: o.peakHold, forReport: o.report !== undefined || undefined };
       const a = await one(o, (onProgress) => runAnalysis({ kind: "psd", file: files[0]!, options }, onProgress));
       const short = recordTooShort(a);
       if (short) throw short;

@@ -34,11 +34,13 @@ export function registerQueue(program: Command, io: CliIo): void {
   async function open(o: DbFlags, poolSize = 2): Promise<QueueStore> {
     const { dbTarget, redact } = await connection();
     const target = dbTarget(o.db, env);
+    if (target.warning) io.stderr(`${target.warning}\n`);
     const { openQueue, DbUnreachable } = await store();
     try {
       return await openQueue(target, { poolSize });
     } catch (e) {
       if (e instanceof DbUnreachable) throw new InputError("DB_UNREACHABLE", { option: "--db", expected: "a PostgreSQL server that accepts the connection", received: e.message });
+      if (e instanceof InputError) throw e;
       throw new Error(redact((e as Error).message, target));
     }
   }
@@ -68,7 +70,7 @@ export function registerQueue(program: Command, io: CliIo): void {
     .option("--json", "one JSON line per recording: file, added (true/false), job id and, when not added, its state")
     .action(async (args: string[], o: ParsedCommon & DbFlags & { profile?: string; filesFrom?: string; root?: string; expireAfter: number }) => {
       const { jobPathOf } = await import("../queue/jobPath.js");
-      const { fileSha256, addJob } = await import("../queue/enqueue.js");
+      const { fileIdentity, addJob } = await import("../queue/enqueue.js");
       const root = resolve(o.root ?? ".");
       const files = await expandFiles(args, o.filesFrom, readStdin);
       let profile: Job["profile"];
@@ -82,7 +84,8 @@ export function registerQueue(program: Command, io: CliIo): void {
       const jobs: Job[] = [];
       for (const f of files) {
         const file = await jobPathOf(root, f, "--root");
-        jobs.push({ kind: profile ? "check" : "psd", file, sha256: await fileSha256(f, f), options, profile });
+        const id = await fileIdentity(f, f);
+        jobs.push({ kind: profile ? "check" : "psd", file, sha256: id.sha256, bytes: id.bytes, options, profile });
       }
       await withQueue(o, async (s) => {
         let added = 0;
@@ -90,7 +93,8 @@ export function registerQueue(program: Command, io: CliIo): void {
           const r = await addJob(s, job, o.expireAfter);
           if (r.added) added++;
           if (o.json) io.stdout(JSON.stringify(r) + "\n");
-          else if (!r.added) io.stderr(`psdgate: ${r.file}: already queued with the same recording (SHA-256) and settings, job ${r.jobId} (${r.state}): nothing added\n`);
+          else if (!r.added) io.stderr(`psdgate: ${r.file}: already queued with the same recording (SHA-256) and settings, job ${r.jobId} (${r.state}): nothing added (a failed job is queued again by adding it again)\n`);
+          else if (r.requeued) io.stderr(`psdgate: ${r.file}: queued again as job ${r.jobId} (job ${r.requeued.jobId} had failed; its failed result is replaced)\n`);
         }
         io.stderr(`psdgate: ${added} job(s) added, ${jobs.length - added} already there, on ${s.target.label}\n`);
       });
@@ -110,6 +114,7 @@ export function registerQueue(program: Command, io: CliIo): void {
       const { runWorker } = await import("../queue/queueWorker.js");
       const { realpath } = await import("node:fs/promises");
       const target: DbTarget = dbTarget(o.db, env);
+      if (target.warning) io.stderr(`${target.warning}\n`);
       const root = await realpath(resolve(o.root ?? ".")).catch(() => {
         throw new InputError("FILE_UNREADABLE", { option: "--root", expected: "a folder that exists", received: o.root ?? "." });
       });
@@ -144,6 +149,7 @@ export function registerQueue(program: Command, io: CliIo): void {
           try {
             s = await openQueue(target, { poolSize: jobs + 2, supervise: true, asyncCommit: true, onError: (m) => say(`psdgate: database: ${m}`) });
           } catch (e) {
+            if (e instanceof InputError) throw e;
             if (!(e instanceof DbUnreachable)) throw new Error(redact((e as Error).message, target));
             const wait = Math.min(30, 2 ** (failures - 1));
             say(`psdgate: cannot reach ${e.message}; trying again in ${wait} s`);

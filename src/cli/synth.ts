@@ -28,6 +28,13 @@ export function registerSynth(program: Command, io: CliIo): void {
       const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");
       const { synthesizeProfile } = await import("../synth/synthesizeProfile.js");
       const profile = await loadProfile(o.profile);
+      if (!/\.(wav|csv)$/i.test(o.out)) {
+        throw new InputError("OUTPUT_FORMAT", { option: "--out", expected: "a file name ending .wav or .csv (what synth writes)", received: JSON.stringify(o.out) });
+      }
+      const frames = Math.round(o.duration * o.rate);
+      if (!(frames >= 2)) {
+        throw new InputError("OPTION_INVALID", { option: "--duration", expected: "a duration of at least 2 samples at the rate", received: `${o.duration} s x ${o.rate} Hz = ${frames} samples` });
+      }
       if (/\.wav$/i.test(o.out) && 44 + Math.ceil(o.duration * o.rate) * o.channels * 4 > 0xffffffff) {
         throw new InputError("OPTION_INVALID", { option: "--duration", expected: "a WAV output under 4 GiB (the RIFF size field is 32-bit)", received: `${o.duration} s x ${o.rate} Hz x ${o.channels} channel(s)`, hint: "write .csv, or fewer seconds or channels" });
       }

@@ -1,8 +1,8 @@
 import { createHash } from "node:crypto";
 import Papa from "papaparse";
-import { isScalar, parseDocument, visit, YAMLParseError } from "yaml";
 import { z } from "zod";
 import { InputError } from "../errors.js";
+import { strictDocument } from "../read/plainDocument.js";
 import { MAX_PROFILE_BYTES } from "../read/profileFile.js";
 import { STANDARD_GRAVITY_M_PER_S2, type AccelUnit } from "../units.js";
 
@@ -403,32 +403,7 @@ export function parseProfile(text: string, file: string): TestProfile {
   let doc: unknown;
   let defaults: string[] = [];
   if (/\.csv$/i.test(file)) ({ doc, defaults } = profileFromCsv(text, file));
-  else if (/\.ya?ml$/i.test(file)) {
-    doc = parseYamlProfile(text, file);
-  } else {
-    try {
-      doc = JSON.parse(text);
-    } catch (e) {
-      const msg = (e as Error).message;
-      // V8 gives either "at position N" or a quoted snippet around an unexpected token.
-      let at = /position (\d+)/.exec(msg) ? Number(/position (\d+)/.exec(msg)![1]) : -1;
-      const tok = /Unexpected token '(.)', (?:\.\.\.)?"([^]*?)"(?:\.\.\.)? is not valid JSON/.exec(msg);
-      if (at < 0 && tok) {
-        const i = text.indexOf(tok[2]!);
-        if (i >= 0) at = i + tok[2]!.indexOf(tok[1]!);
-      }
-      if (at < 0 && /Unexpected end/.test(msg)) at = text.length;
-      let line: number | undefined;
-      let column: number | undefined;
-      if (at >= 0) {
-        const before = text.slice(0, at);
-        line = before.split("\n").length;
-        column = before.length - before.lastIndexOf("\n");
-      }
-      throw new InputError("PROFILE_SYNTAX", { file, line, column, expected: "valid JSON", received: msg.replace(/ in JSON at position \d+.*$/, "").replace(/, (\.\.\.)?"[^]*$/, "") });
-    }
-  }
-  checkDocumentDepth(doc, file);
+  else doc = strictDocument(text, file, { syntax: "PROFILE_SYNTAX", invalid: "PROFILE_INVALID", tooDeep: "PROFILE_TOO_LARGE" }, !/\.ya?ml$/i.test(file), MAX_PROFILE_DEPTH);
   return checkProfileArithmetic(normalizeProfile(validateProfileDocument(doc, file), file, sha, defaults));
 }
 
@@ -437,87 +412,10 @@ export function parseProfile(text: string, file: string): TestProfile {
 /** Deepest nesting of arrays and objects a profile may have; the format needs 3 (tolerance.bands[i]). */
 export const MAX_PROFILE_DEPTH = 32;
 
-/** Size and bracket nesting, checked on the text before any parser runs (a 100 000-deep JSON would overflow its stack). */
+/** Size, checked on the text before any parser runs; nesting, tags and number forms are read/plainDocument.ts's rules. */
 function checkProfileSize(text: string, file: string): void {
   if (text.length > MAX_PROFILE_BYTES) {
     throw new InputError("PROFILE_TOO_LARGE", { file, expected: `a profile of at most ${MAX_PROFILE_BYTES} bytes`, received: `${text.length} characters` });
-  }
-  if (/\.csv$/i.test(file)) return;
-  // Depth of [ and { outside quoted strings: exact for JSON, and for YAML's flow collections.
-  const yaml = /\.ya?ml$/i.test(file);
-  let depth = 0;
-  let quote = "";
-  for (let i = 0; i < text.length; i++) {
-    const c = text[i]!;
-    if (quote !== "") {
-      if (c === "\\" && quote === '"') i++;
-      else if (c === quote) quote = "";
-      continue;
-    }
-    // In YAML a quote opens a string only where a value starts (`it's` in a plain title does not).
-    const valueStart = !yaml || i === 0 || /[\s[{,:]/.test(text[i - 1]!);
-    if ((c === '"' || (c === "'" && yaml)) && valueStart) quote = c;
-    else if (c === "#" && yaml && (i === 0 || /\s/.test(text[i - 1]!))) {
-      const nl = text.indexOf("\n", i);
-      i = nl < 0 ? text.length : nl;
-    } else if (c === "[" || c === "{") {
-      if (++depth > MAX_PROFILE_DEPTH) {
-        const before = text.slice(0, i);
-        throw new InputError("PROFILE_TOO_LARGE", {
-          file, line: before.split("\n").length, column: i - before.lastIndexOf("\n"), expected: `nesting at most ${MAX_PROFILE_DEPTH} deep`, received: `more than ${MAX_PROFILE_DEPTH} levels`,
-        });
-      }
-    } else if (c === "]" || c === "}") depth = Math.max(0, depth - 1);
-  }
-}
-
-/** Depth of the parsed document, walked without recursion (YAML block nesting is not bracketed). */
-function checkDocumentDepth(doc: unknown, file: string): void {
-  const stack: [unknown, number][] = [[doc, 0]];
-  while (stack.length > 0) {
-    const [v, d] = stack.pop()!;
-    if (v === null || typeof v !== "object") continue;
-    if (d >= MAX_PROFILE_DEPTH) throw new InputError("PROFILE_TOO_LARGE", { file, expected: `nesting at most ${MAX_PROFILE_DEPTH} deep`, received: `more than ${MAX_PROFILE_DEPTH} levels` });
-    for (const x of Object.values(v as object)) stack.push([x, d + 1]);
-  }
-}
-
-/**
- * YAML with the YAML 1.2 core schema, quietly: no warnings printed (logLevel silent). A custom or
- * language tag (`!!js/function`, `!foo`) is refused, not resolved; so are hexadecimal, octal and
- * binary integers (a profile's numbers are decimal), and aliases are capped (yaml's maxAliasCount).
- */
-function parseYamlProfile(text: string, file: string): unknown {
-  const doc = parseDocument(text, { logLevel: "silent", prettyErrors: true, uniqueKeys: true });
-  const first = doc.errors[0];
-  if (first) {
-    const pos = first instanceof YAMLParseError ? first.linePos?.[0] : undefined;
-    throw new InputError("PROFILE_SYNTAX", { file, line: pos?.line, column: pos?.col, expected: "valid YAML", received: first.message.split("\n")[0] });
-  }
-  const tagWarning = doc.warnings.find((w) => w.code === "TAG_RESOLVE_FAILED");
-  if (tagWarning) {
-    const pos = tagWarning.linePos?.[0];
-    throw new InputError("PROFILE_SYNTAX", {
-      file, line: pos?.line, column: pos?.col, expected: "plain YAML values (no custom tags)", received: quotedShort(tagWarning.message.split("\n")[0]!.replace(/ at line \d+, column \d+:?$/, "")),
-    });
-  }
-  let bad: { format: string; at: number } | undefined;
-  visit(doc, {
-    Scalar(_key, node) {
-      if (isScalar(node) && (node.format === "HEX" || node.format === "OCT" || node.format === "BIN") && bad === undefined) bad = { format: node.format, at: node.range?.[0] ?? 0 };
-    },
-  });
-  if (bad) {
-    const before = text.slice(0, bad.at);
-    throw new InputError("PROFILE_INVALID", {
-      file, line: before.split("\n").length, column: bad.at - before.lastIndexOf("\n"), expected: "a decimal number",
-      received: `a ${bad.format === "HEX" ? "hexadecimal" : bad.format === "OCT" ? "octal" : "binary"} number ${quotedShort(text.slice(bad.at).split(/[\s,\]}]/)[0]!)}`,
-    });
-  }
-  try {
-    return doc.toJS({ maxAliasCount: 100 });
-  } catch (e) {
-    throw new InputError("PROFILE_SYNTAX", { file, expected: "valid YAML", received: (e as Error).message.split("\n")[0] });
   }
 }
 

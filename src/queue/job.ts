@@ -12,6 +12,8 @@ export interface Job extends AnalysisJob<{ path: string; sha256: string }> {
   file: string;
   /** SHA-256 of the recording's bytes when the job was made; the worker refuses a changed file. */
   sha256: string;
+  /** Its size in bytes then: a worker compares it (at once) and the SHA-256 (by streaming) before analysing. */
+  bytes?: number | undefined;
   /** The profile of a check job, by path (relative to the root) and SHA-256 of its text. */
   profile?: { path: string; sha256: string } | undefined;
 }

@@ -56,6 +56,16 @@ export const MIGRATIONS: { version: number; name: string; sql: string }[] = [
       END $$;
     `,
   },
+  {
+    version: 2,
+    name: "results of malformed jobs",
+    sql: `
+      -- A job row that is not a psdgate job (its data not an object, no path, no SHA-256) fails alone with
+      -- JOB_INVALID; its result is kept under kind 'invalid' and a key of its own job id.
+      ALTER TABLE psdgate.result DROP CONSTRAINT result_kind_check;
+      ALTER TABLE psdgate.result ADD CONSTRAINT result_kind_check CHECK (kind IN ('psd', 'check', 'invalid'));
+    `,
+  },
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS[MIGRATIONS.length - 1]!.version;

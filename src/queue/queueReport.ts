@@ -52,23 +52,29 @@ export interface StoredResult {
  * Every finished job, oldest first (finished after `since` if given), read a page at a time so a long
  * history does not sit in memory; then the jobs lost for good, as error lines with code JOB_LOST.
  */
-export async function* queueResults(store: QueueStore, since: Date | undefined): AsyncGenerator<StoredResult> {
-  let after: { t: Date; id: string } | undefined;
+export async function* queueResults(store: QueueStore, since: Date | undefined, pageSize = 200): AsyncGenerator<StoredResult> {
+  // The page key is the last row's exact finishing time, carried as PostgreSQL's own text (microseconds):
+  // a JavaScript Date holds milliseconds, and a key cut to them sorts before the row it came from, which
+  // was then read again at the top of the next page.
+  let after: { t: string; id: string } | undefined;
   for (;;) {
-    const { rows } = await store.pool.query<{ job_id: string; path: string; kind: string; outcome: "done" | "failed"; verdict: string | null; error_code: string | null; figures: KeyFigures | null; result: Record<string, unknown>; finished_on: Date }>(
-      `SELECT job_id, path, kind, outcome, verdict, error_code, figures, result, finished_on FROM psdgate.result
-        WHERE ($1::timestamptz IS NULL OR finished_on > $1) AND ($2::timestamptz IS NULL OR (finished_on, job_id) > ($2, $3::uuid))
-        ORDER BY finished_on, job_id LIMIT 200`,
-      [since ?? null, after?.t ?? null, after?.id ?? null],
+    const { rows } = await store.pool.query<{ job_id: string; path: string; kind: string; outcome: "done" | "failed"; verdict: string | null; error_code: string | null; figures: KeyFigures | null; result: Record<string, unknown>; finished_on: Date; finished_key: string }>(
+      `SELECT job_id, path, kind, outcome, verdict, error_code, figures, result, finished_on, finished_on::text AS finished_key FROM psdgate.result
+        WHERE ($1::timestamptz IS NULL OR finished_on > $1) AND ($2::timestamptz IS NULL OR (finished_on, job_id) > ($2::timestamptz, $3::uuid))
+        ORDER BY finished_on, job_id LIMIT $4`,
+      [since ?? null, after?.t ?? null, after?.id ?? null, pageSize],
     );
     for (const r of rows) yield { path: r.path, kind: r.kind, outcome: r.outcome, verdict: r.verdict, errorCode: r.error_code, figures: r.figures, line: r.result, finishedOn: r.finished_on };
-    if (rows.length < 200) break;
+    if (rows.length < pageSize) break;
     const last = rows[rows.length - 1]!;
-    after = { t: last.finished_on, id: last.job_id };
+    after = { t: last.finished_key, id: last.job_id };
   }
-  const lost = await store.pool.query<{ data: { file: string; kind: string }; retry_count: number; completed_on: Date }>(`${LOST} AND ($2::timestamptz IS NULL OR f.completed_on > $2) ORDER BY f.completed_on`, [QUEUE_NAME, since ?? null]);
+  const lost = await store.pool.query<{ id: string; data: unknown; retry_count: number; completed_on: Date }>(`${LOST} AND ($2::timestamptz IS NULL OR f.completed_on > $2) ORDER BY f.completed_on`, [QUEUE_NAME, since ?? null]);
   for (const r of lost.rows) {
-    const error = errorToWire(new InputError("JOB_LOST", { file: r.data.file, expected: "a worker to finish the job", received: `no answer on any of ${r.retry_count + 1} attempts (each expired)` }));
-    yield { path: r.data.file, kind: r.data.kind, outcome: "failed", verdict: null, errorCode: error.code, figures: null, line: errorLine(r.data.file, error), finishedOn: r.completed_on };
+    // A row's data may be anything a database user stored: name it by its id when it has no path.
+    const d = (r.data !== null && typeof r.data === "object" ? r.data : {}) as { file?: unknown; kind?: unknown };
+    const file = typeof d.file === "string" && d.file !== "" ? d.file : `(job ${r.id})`;
+    const error = errorToWire(new InputError("JOB_LOST", { file, expected: "a worker to finish the job", received: `no answer on any of ${r.retry_count + 1} attempts (each expired)` }));
+    yield { path: file, kind: d.kind === "psd" || d.kind === "check" ? d.kind : "invalid", outcome: "failed", verdict: null, errorCode: error.code, figures: null, line: errorLine(file, error), finishedOn: r.completed_on };
   }
 }

@@ -1,6 +1,7 @@
 import pg from "pg";
 import PgBoss from "pg-boss";
 import { redact, type DbTarget } from "./connection.js";
+import { InputError } from "../errors.js";
 import { migrate } from "./migrations.js";
 
 /** The one pg-boss queue psdgate uses. */
@@ -67,6 +68,13 @@ export async function openQueue(target: DbTarget, o: OpenOptions = {}): Promise<
   } catch (e) {
     await boss.stop({ graceful: false, close: false }).catch(() => undefined);
     await pool.end().catch(() => undefined);
+    // SQLSTATE 42501 insufficient_privilege (PostgreSQL manual, appendix A): the role's rights, not a bug.
+    if ((e as { code?: unknown }).code === "42501") {
+      throw new InputError("DB_PERMISSION", {
+        option: "--db", expected: `a role that may create and use the pgboss and psdgate schemas on ${target.label} (CREATE on the database)`,
+        received: redact((e as Error).message, target), hint: "grant CREATE on the database to the role, or let an owner run `psdgate queue status` once to make the schemas",
+      });
+    }
     throw e;
   }
   return {

@@ -1,6 +1,6 @@
 import type PgBoss from "pg-boss";
 import { VERSION } from "../version.js";
-import type { WireError } from "../errors.js";
+import { errorToWire, InputError, type WireError } from "../errors.js";
 import { redact } from "./connection.js";
 import { settingsDigest, type Job } from "./job.js";
 import { JobCrash, type JobPool } from "./jobPool.js";
@@ -54,6 +54,35 @@ export function transientDbError(e: unknown): boolean {
   return /^(08|40|53|57|58)/.test(code);
 }
 
+/** A digest as a job carries it: text of reasonable length (the worker compares it with the file's own). */
+const DIGEST = /^[^]{1,200}$/;
+
+/**
+ * What makes a fetched row not a psdgate job, in words, or undefined. A row can be anything a database
+ * user put into pgboss.job: it is checked before anything reads it, so one bad row fails alone.
+ */
+export function jobProblem(data: unknown): string | undefined {
+  if (data === null || typeof data !== "object" || Array.isArray(data)) return `its data is ${data === null ? "null" : Array.isArray(data) ? "a list" : `a ${typeof data}`}, not a job object`;
+  const j = data as Record<string, unknown>;
+  if (typeof j.file !== "string" || j.file === "") return "it has no recording path (file)";
+  if (j.kind !== "psd" && j.kind !== "check") return `its kind is ${JSON.stringify(j.kind)?.slice(0, 40)}, not psd or check`;
+  if (typeof j.sha256 !== "string" || !DIGEST.test(j.sha256)) return "it has no recording SHA-256";
+  if (j.bytes !== undefined && !(typeof j.bytes === "number" && Number.isSafeInteger(j.bytes) && j.bytes >= 0)) return "its size (bytes) is not a whole number";
+  if (j.options !== undefined && (j.options === null || typeof j.options !== "object" || Array.isArray(j.options))) return "its options are not an object";
+  if (j.profile !== undefined) {
+    const p = j.profile as Record<string, unknown> | null;
+    if (p === null || typeof p !== "object" || typeof p.path !== "string" || typeof p.sha256 !== "string" || !DIGEST.test(p.sha256)) return "its profile is not a path and a SHA-256";
+  }
+  if (j.kind === "check" && j.profile === undefined) return "a check job without a profile";
+  return undefined;
+}
+
+/** The job's path for messages and the result row: its own, or a name made from its id when it has none. */
+function jobFile(job: { id: string; data: unknown }): string {
+  const f = (job.data as { file?: unknown } | null)?.file;
+  return typeof f === "string" && f !== "" ? f : `(job ${job.id})`;
+}
+
 /** The job is no longer ours (not active any more, or its result is stored already): nothing was changed. */
 class NotOurs extends Error {}
 
@@ -68,6 +97,8 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
   let dbFailures = 0;
   let lastExpire = 0;
   const say = (s: string) => o.log(redact(s, store.target));
+  const stopAll = new AbortController();
+  const signal = AbortSignal.any([o.signal, stopAll.signal]);
 
   /** Runs `fn` until the database answers; without `keepTrying`, gives up (undefined) once told to stop. */
   async function withDb<T>(what: string, fn: () => Promise<T>, keepTrying: boolean): Promise<T | undefined> {
@@ -82,9 +113,9 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
         dbFailures++;
         const wait = backoffMs(dbFailures);
         say(`psdgate: database error while ${what}: ${(e as Error).message}; trying again in ${wait / 1000} s`);
-        if (!keepTrying && o.signal.aborted) return undefined;
-        await sleep(wait, keepTrying ? undefined : o.signal);
-        if (!keepTrying && o.signal.aborted) return undefined;
+        if (!keepTrying && signal.aborted) return undefined;
+        await sleep(wait, keepTrying ? undefined : signal);
+        if (!keepTrying && signal.aborted) return undefined;
       }
     }
   }
@@ -113,6 +144,10 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
    */
   async function finish(job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail"): Promise<void> {
     const j = job.data;
+    // A malformed row's result is keyed by its own id: it cannot collide with a real job's (recording, settings).
+    const key = jobProblem(j) === undefined
+      ? [j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j)]
+      : [jobFile(job), "invalid", `invalid:${job.id}`, null, "invalid"];
     const output = outcome.ok ? { verdict: outcome.verdict } : { code: outcome.error.code, message: outcome.error.message };
     try {
       const { rows } = await store.pool.query<{ stored: string }>(
@@ -126,7 +161,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
            RETURNING job_id
          )
          SELECT count(*) AS stored FROM stored`,
-        [job.id, j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j), outcome.ok ? "done" : "failed",
+        [job.id, ...key, outcome.ok ? "done" : "failed",
           outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
           outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null,
           final === "complete" ? "completed" : "failed", JSON.stringify(output), QUEUE_NAME],
@@ -152,7 +187,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
 
   /** Writes what a job gave: result and completion together, or the job handed back for a retry. */
   async function record(job: FetchedJob, ran: Ran): Promise<void> {
-    const file = job.data.file;
+    const file = jobFile(job);
     const { outcome, crash } = ran;
     try {
       if (outcome) {
@@ -181,18 +216,27 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     }
   }
 
+  /** The failed outcome of a row that is not a psdgate job: JOB_INVALID, stored like any input error. */
+  function invalidJob(job: FetchedJob, problem: string): StoredOutcome {
+    const file = jobFile(job);
+    const error = errorToWire(new InputError("JOB_INVALID", { file, expected: "a psdgate job (an object with kind, file, sha256 and options)", received: problem }));
+    say(`psdgate: ${file}: not a psdgate job (${problem}); kept as failed with JOB_INVALID`);
+    return { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error };
+  }
+
   async function slot(): Promise<void> {
     // A job's result is written while the next job runs: the database's time hides behind the analysis.
     let recording: Promise<void> = Promise.resolve();
-    while (!o.signal.aborted) {
+    while (!signal.aborted) {
       const job = await withDb("fetching a job", fetchOne, false);
-      if (o.signal.aborted) {
+      if (signal.aborted) {
         // Fetched just as we were told to stop: hand it straight back untouched.
         if (job) await withDb("handing a job back", () => store.pool.query(`UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]), true);
         break;
       }
       if (job) {
-        const ran = await runOne(job);
+        const problem = jobProblem(job.data);
+        const ran: Ran = problem === undefined ? await runOne(job) : { outcome: invalidJob(job, problem), seconds: 0 };
         await recording;
         recording = record(job, ran);
         // Marked as handled now (a bug's error is still thrown where it is awaited, one job later).
@@ -206,11 +250,18 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
         await withDb("expiring lost jobs", () => store.boss.expire(), false);
       }
       if (o.drain && (await withDb("counting jobs", nothingLeft, false))) break;
-      await sleep(o.pollSeconds * 1000, o.signal);
+      await sleep(o.pollSeconds * 1000, signal);
     }
     await recording;
   }
 
-  await Promise.all(Array.from({ length: o.jobs }, () => slot()));
+  // A bug in one slot stops the others (they finish the job in hand) before it is thrown: no slot goes on
+  // with a pool the caller closes once this returns.
+  const settled = await Promise.allSettled(Array.from({ length: o.jobs }, () => slot().catch((e: unknown) => {
+    stopAll.abort();
+    throw e;
+  })));
+  const failed = settled.find((s) => s.status === "rejected");
+  if (failed) throw (failed as PromiseRejectedResult).reason;
   return summary;
 }

@@ -6,6 +6,7 @@ import { psdJson, toolInfo } from "../report/psdJson.js";
 import { runAnalysis } from "../runAnalysis.js";
 import { VERSION } from "../version.js";
 import type { Job } from "./job.js";
+import { openRegularFile, sha256OfFile } from "../read/regularFile.js";
 import { resolveJobPath } from "./jobPath.js";
 
 /** The figures kept in their own columns beside the full JSON, one entry per channel. */
@@ -60,6 +61,9 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
   let real: string | undefined;
   try {
     real = await resolveJobPath(ctx.root, job.file, "recording");
+    // The file's identity before any analysis: its size at once, then its SHA-256 by streaming. A file swapped
+    // after `queue add` (even a 40 GB sparse one) is refused before a worker spends its expiry on it.
+    await sameFile(real, job);
     // One thread per job: the queue's parallelism is --jobs, as in the batch.
     const options = { ...job.options, csv: { ...job.options.csv, parseWorkers: 0 } };
     // A check's profile is loaded (and held to its SHA-256) here; the dispatcher refuses a check without one.
@@ -95,18 +99,35 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
 async function writeReport(dir: string, job: Job, r: CheckResult, recording: string): Promise<string> {
   const { checkHtml } = await import("../report/htmlReport.js");
   const { writeAtomic } = await import("../report/writeAtomic.js");
-  const { mkdir } = await import("node:fs/promises");
-  const { dirname, join } = await import("node:path");
+  const { mkdir, realpath } = await import("node:fs/promises");
+  const { dirname, join, sep } = await import("node:path");
   const rel = job.file.replace(/\.[^./]*$/, "") + ".html";
   const target = join(dir, rel);
   try {
     await mkdir(dirname(target), { recursive: true });
+    // Reports stay inside the folder given: a folder link planted under it (runs -> /etc) is not followed.
+    const root = await realpath(dir);
+    const real = await realpath(dirname(target));
+    if (real !== root && !real.startsWith(root + sep)) {
+      throw new InputError("JOB_PATH_REFUSED", { file: job.file, option: "--report-dir", expected: `a report folder inside ${dir}`, received: `${dirname(rel)} leads to ${real} (a link out of the folder)` });
+    }
     // A retried job writes its report again: same job, same report, so it may replace it.
     await writeAtomic(target, checkHtml({ ...r, analysis: { ...r.analysis, input: { ...r.analysis.input, file: job.file } }, profile: { ...r.profile, file: job.profile!.path } }, VERSION, new Date()), { inputs: [recording], force: true, option: "--report-dir" });
   } catch (e) {
+    if (e instanceof InputError) throw e;
     throw new Error(`report ${target} not written: ${(e as Error).message}`);
   }
   return rel;
+}
+
+async function sameFile(real: string, job: Job): Promise<void> {
+  const changed = (received: string) => new InputError("RECORDING_CHANGED", { file: job.file, expected: `the recording queued with SHA-256 ${job.sha256}${job.bytes !== undefined ? ` (${job.bytes} bytes)` : ""}`, received, hint: "queue it again if the new file is meant" });
+  if (job.bytes !== undefined) {
+    const { stats } = await openRegularFile(real, "a readable recording").then(async (o) => (await o.handle.close(), o));
+    if (stats.size !== job.bytes) throw changed(`${stats.size} bytes`);
+  }
+  const { sha256 } = await sha256OfFile(real, "a readable recording");
+  if (sha256 !== job.sha256) throw changed(`SHA-256 ${sha256}`);
 }
 
 function sameRecording(a: RecordingAnalysis, job: Job): void {

@@ -3,7 +3,7 @@ import { dirname, isAbsolute, join } from "node:path";
 import { z } from "zod";
 import { InputError } from "../errors.js";
 import { plainDocument } from "./plainDocument.js";
-import { openRegularFile } from "./regularFile.js";
+import { readSmallText } from "./regularFile.js";
 
 /**
  * A service-life mix for `psdgate derive --mix FILE` (YAML or JSON, psdgate's own keys): groups of field
@@ -103,18 +103,8 @@ export function parseServiceMix(doc: unknown, file: string, sha256: string, base
 
 /** Read a mix file: YAML (.yaml, .yml; core schema, no custom tags, aliases capped) or JSON. */
 export async function loadServiceMix(file: string): Promise<ServiceMix> {
-  const { handle, stats } = await openRegularFile(file, "a readable mix file", "mix");
-  let body: string;
-  try {
-    if (stats.size > MAX_MIX_BYTES) throw new InputError("MIX_INVALID", { file, option: "mix", expected: `a mix file of at most ${MAX_MIX_BYTES} bytes`, received: `${stats.size} bytes` });
-    body = await handle.readFile("utf8");
-  } catch (e) {
-    if (e instanceof InputError) throw e;
-    throw new InputError("FILE_UNREADABLE", { file, option: "mix", expected: "a readable mix file", received: String((e as NodeJS.ErrnoException).code ?? e) });
-  } finally {
-    await handle.close();
-  }
-  const sha = createHash("sha256").update(body).digest("hex");
-  const doc = plainDocument(body, file, "MIX_SYNTAX");
+  const { text: body, bytes } = await readSmallText(file, { what: "a readable mix file", option: "mix", maxBytes: MAX_MIX_BYTES, tooLarge: "MIX_INVALID" });
+  const sha = createHash("sha256").update(bytes).digest("hex");
+  const doc = plainDocument(body, file, "MIX_SYNTAX", /\.json$/i.test(file), "MIX_INVALID");
   return parseServiceMix(doc, file, sha);
 }

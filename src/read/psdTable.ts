@@ -1,8 +1,8 @@
 import { createHash } from "node:crypto";
-import { readFile } from "node:fs/promises";
 import Papa from "papaparse";
 import { InputError, quoted } from "../errors.js";
 import type { AccelUnit } from "../units.js";
+import { readSmallText } from "./regularFile.js";
 
 /**
  * A PSD table that `psdgate psd --csv` wrote: a `frequency_hz` column, then per channel
@@ -21,14 +21,11 @@ export function looksLikePsdTable(firstLine: string): boolean {
   return /^\ufeff?frequency_hz\s*,/.test(firstLine);
 }
 
+/** Largest PSD table read: 64 MiB holds a million lines of several channels. */
+export const MAX_PSD_TABLE_BYTES = 64 << 20;
+
 export async function readPsdTable(file: string): Promise<PsdTable> {
-  let text: string;
-  try {
-    text = await readFile(file, "utf8");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable PSD table", received: code === "ENOENT" ? "no such file" : String(code) });
-  }
+  const { text } = await readSmallText(file, { what: "a readable PSD table", maxBytes: MAX_PSD_TABLE_BYTES, tooLarge: "INPUT_TOO_LARGE" });
   return parsePsdTable(text, file);
 }
 

@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { InputError } from "../errors.js";
 import { plainDocument } from "./plainDocument.js";
-import { openRegularFile } from "./regularFile.js";
+import { readSmallText } from "./regularFile.js";
 
 /** Largest identity file read: a dozen short texts; 64 KiB is far beyond any real one. */
 export const MAX_META_BYTES = 64 << 10;
@@ -62,29 +62,12 @@ export function parseTestMeta(doc: unknown, file: string): TestMeta {
 }
 
 async function readMetaText(file: string): Promise<string> {
-  const { handle, stats } = await openRegularFile(file, "a readable test-identity file", "meta");
-  try {
-    if (stats.size > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: `${stats.size} bytes` });
-    const buf = Buffer.alloc(MAX_META_BYTES + 1);
-    let n = 0;
-    for (;;) {
-      const { bytesRead } = await handle.read(buf, n, buf.length - n, n);
-      if (bytesRead === 0) break;
-      n += bytesRead;
-      if (n > MAX_META_BYTES) throw new InputError("META_INVALID", { file, option: "meta", expected: `a test-identity file of at most ${MAX_META_BYTES} bytes`, received: "a file that grew while it was read" });
-    }
-    return buf.toString("utf8", 0, n);
-  } catch (e) {
-    if (e instanceof InputError) throw e;
-    throw new InputError("FILE_UNREADABLE", { file, option: "meta", expected: "a readable test-identity file", received: String((e as NodeJS.ErrnoException).code ?? e) });
-  } finally {
-    await handle.close();
-  }
+  return (await readSmallText(file, { what: "a readable test-identity file", option: "meta", maxBytes: MAX_META_BYTES, tooLarge: "META_INVALID" })).text;
 }
 
 /** Read `--meta FILE`: YAML (.yaml, .yml; core schema, no custom tags, aliases capped) or JSON. */
 export async function loadTestMeta(file: string): Promise<TestMeta> {
   const body = await readMetaText(file);
-  const doc = plainDocument(body, file, "META_SYNTAX", !/\.ya?ml$/i.test(file));
+  const doc = plainDocument(body, file, "META_SYNTAX", !/\.ya?ml$/i.test(file), "META_INVALID");
   return parseTestMeta(doc, file);
 }

@@ -107,7 +107,8 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
         throw new InputError("WAV_BAD_DS64", { file, chunk: "ds64", expected: "a ds64 chunk first in an RF64/BW64 file (EBU Tech 3306)", received: JSON.stringify(id) });
       } else if (id === "fmt ") {
         if (fmt !== undefined) throw new InputError("WAV_DUPLICATE_CHUNK", { file, chunk: "fmt ", expected: "one format chunk", received: "a second 'fmt ' chunk" });
-        if (len < 16 || body + len > size) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "a format chunk of at least 16 bytes", received: `${Math.min(len, size - body)} bytes` });
+        if (len < 16) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "a format chunk of at least 16 bytes", received: `${len} bytes` });
+        if (body + len > size) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: `the ${len} bytes its chunk header gives`, received: `${Math.max(0, size - body)} bytes before the file ends` });
         const f = Buffer.from(r.at(body, Math.min(len, 40)));
         let tag = f.readUInt16LE(0);
         if (tag === 0xfffe) {

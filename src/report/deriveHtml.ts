@@ -17,7 +17,7 @@ import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 export const DERIVE_WORD = "DERIVED PROFILE";
 
 // Series styles of this page only (the frame's STYLE has the check report's).
-const EXTRA_STYLE = `<style>
+export const DERIVE_STYLE = `
 .rec0 { fill: none; stroke: #6a9fc4; stroke-width: .8; } .rec1 { fill: none; stroke: #8fb996; stroke-width: .8; } .rec2 { fill: none; stroke: #c9a26b; stroke-width: .8; }
 .rec3 { fill: none; stroke: #b58db5; stroke-width: .8; } .rec4 { fill: none; stroke: #9aa7ad; stroke-width: .8; } .rec5 { fill: none; stroke: #d08c8c; stroke-width: .8; }
 .envelope { fill: none; stroke: #1d2428; stroke-width: 1.1; } .mean { fill: none; stroke: #1b4f7a; stroke-width: 1.8; }
@@ -25,7 +25,8 @@ const EXTRA_STYLE = `<style>
 .field { fill: none; stroke: #1b4f7a; stroke-width: 1.8; } .test { fill: none; stroke: #111; stroke-width: 2; stroke-dasharray: 9 4; }
 .ratio { fill: none; stroke: #1b4f7a; stroke-width: 1.6; } .over { fill: #c0392b; stroke: #111; stroke-width: .6; }
 .key.rec0, .key.rec1, .key.rec2, .key.rec3, .key.rec4, .key.rec5 { stroke-width: 2; }
-</style>`;
+`;
+const EXTRA_STYLE = `<style>${DERIVE_STYLE}</style>`;
 
 /** A short legend name: the group when it has one recording, else the file's base name; at most 16 characters. */
 function legendName(x: DeriveResult["recordings"][number], r: DeriveResult): string {

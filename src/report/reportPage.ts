@@ -3,6 +3,7 @@ import { META_LABELS, type TestMeta } from "../read/testMeta.js";
 import { accelLabel } from "../units.js";
 import { RESULT_PLACEHOLDER } from "./embeddedResult.js";
 import { fixed, rateText, sig } from "./format.js";
+import { printable } from "./printable.js";
 import { windowText } from "./psdText.js";
 import { escapeXml as esc } from "./svgPlot.js";
 
@@ -77,19 +78,47 @@ details > summary { font-weight: 600; cursor: pointer; }
 @media print { body { padding: 0; max-width: none; } h2, h3 { break-after: avoid; } details > summary { list-style: none; } }
 `;
 
-function cssString(s: string): string {
-  return `"${s.replace(/[\\"]/g, (c) => `\\${c}`).replace(/[\r\n]+/g, " ")}"`;
+/**
+ * A CSS string literal that is safe inside an HTML <style> element. The style element is raw text to the
+ * HTML parser: it ends at the first `</style`, whatever CSS thinks is a string. So every character but
+ * letters, digits, space and a few harmless marks is written as a CSS hex escape (`\3c ` for `<`; CSS
+ * Syntax Level 3, 4.3.7), and control and bidirectional characters are first made visible (printable):
+ * no `<`, `>`, `&`, quote, backslash, brace or semicolon from user text ever reaches the style element
+ * as itself, and the margin shows the text as written. Characters above U+009F other than those printable
+ * names are kept: none of them can end the element or the string.
+ */
+export function cssString(s: string): string {
+  return `"${printable(s).replace(/[^A-Za-z0-9 .,:_()+#%!?=·…\u00a0-\uffff-]|[\ud800-\udfff]/gu, (c) => `\\${c.codePointAt(0)!.toString(16)} `)}"`;
+}
+
+/** At most `n` characters (code points), an ellipsis marking a cut: a long title or test id cannot push "page N of M" off the margin. */
+function clip(s: string, n: number): string {
+  const cps = [...s];
+  return cps.length > n ? `${cps.slice(0, n - 1).join("")}…` : s;
 }
 
 /** Printed page margins: identity on top, "page N of M" below (CSS Paged Media Level 3 margin boxes). */
 function pageRules(title: string, identity: string, footer: string): string {
-  const t = title.length > 70 ? `${title.slice(0, 69)}…` : title;
   return `@page { size: auto; margin: 17mm 12mm 15mm;
-  @top-left { content: ${cssString(t)}; font: 600 8pt "DejaVu Sans", Arial, sans-serif; color: #223a44; vertical-align: bottom; padding-bottom: 2mm; }
-  @top-right { content: ${cssString(identity)}; font: 8pt "DejaVu Sans", Arial, sans-serif; color: #223a44; vertical-align: bottom; padding-bottom: 2mm; }
-  @bottom-left { content: ${cssString(footer)}; font: 7.5pt "DejaVu Sans", Arial, sans-serif; color: #4b5c63; vertical-align: top; padding-top: 2mm; }
+  @top-left { content: ${cssString(clip(title, 70))}; font: 600 8pt "DejaVu Sans", Arial, sans-serif; color: #223a44; vertical-align: bottom; padding-bottom: 2mm; }
+  @top-right { content: ${cssString(clip(identity, 60))}; font: 8pt "DejaVu Sans", Arial, sans-serif; color: #223a44; vertical-align: bottom; padding-bottom: 2mm; }
+  @bottom-left { content: ${cssString(clip(footer, 90))}; font: 7.5pt "DejaVu Sans", Arial, sans-serif; color: #4b5c63; vertical-align: top; padding-top: 2mm; }
   @bottom-right { content: "page " counter(page) " of " counter(pages); font: 8pt "DejaVu Sans", Arial, sans-serif; color: #223a44; vertical-align: top; padding-top: 2mm; }
 }`;
+}
+
+/**
+ * Whether `text` is the style element the frame writes: the @page rules with any three margin strings as
+ * cssString writes them (hex escapes only, no raw quote, backslash or angle bracket), then STYLE exactly.
+ * `verify` accepts no other style in the frame's place, so an edited page cannot restyle its banner.
+ */
+export function isFrameStyle(text: string): boolean {
+  const slots = ["\u0001", "\u0002", "\u0003"];
+  const template = pageRules(slots[0]!, slots[1]!, slots[2]!) + STYLE;
+  const literal = '"(?:[A-Za-z0-9 .,:_()+#%!?=\\u00a0-\\uffff-]|\\\\[0-9a-f]{1,6} )*"';
+  let re = template.replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
+  for (const s of slots) re = re.replace(cssString(s).replace(/[.*+?^${}()|[\]\\]/g, "\\$&"), literal);
+  return new RegExp(`^${re}$`, "u").test(text);
 }
 
 /** The first 12 hex digits of a SHA-256: enough to tell recordings apart on a printed page. */

@@ -44,6 +44,58 @@ const W = 720;
 const DEFAULT_H = 340;
 const M = { top: 40, right: 16, bottom: 44, left: 70 };
 
+/**
+ * A line of more points than a page can show, thinned per pixel column: each column keeps its first,
+ * lowest, highest and last point, in order (min/max decimation, common practice for plotting long
+ * records), so every peak and notch is drawn where it is. A line with at most 2 points per column is kept whole.
+ * A 2-million-line PSD becomes at most 4 points per column of the plot (about 2500), not 2 million.
+ */
+export function thinLine(pts: (readonly [number, number])[]): (readonly [number, number])[] {
+  if (pts.length <= 2 * (W - M.left - M.right)) return pts;
+  const out: (readonly [number, number])[] = [];
+  let i = 0;
+  while (i < pts.length) {
+    const col = Math.floor(pts[i]![0]);
+    let j = i;
+    let lo = i;
+    let hi = i;
+    while (j < pts.length && Math.floor(pts[j]![0]) === col) {
+      if (pts[j]![1] < pts[lo]![1]) lo = j;
+      if (pts[j]![1] > pts[hi]![1]) hi = j;
+      j++;
+    }
+    for (const k of [...new Set([i, lo, hi, j - 1])].sort((a, b) => a - b)) out.push(pts[k]!);
+    i = j;
+  }
+  return out;
+}
+
+/** A band (x, y0, y1) thinned per pixel column: the column's outermost y0 and y1, so the band never looks narrower than it is. */
+export function thinBand(pts: (readonly [number, number, number])[]): (readonly [number, number, number])[] {
+  if (pts.length <= 2 * (W - M.left - M.right)) return pts;
+  const out: (readonly [number, number, number])[] = [];
+  const down = pts[0]![1] >= pts[0]![2];
+  let i = 0;
+  while (i < pts.length) {
+    const col = Math.floor(pts[i]![0]);
+    let y0 = pts[i]![1];
+    let y1 = pts[i]![2];
+    let j = i;
+    let xs = 0;
+    while (j < pts.length && Math.floor(pts[j]![0]) === col) {
+      // Screen y grows downward: the band's lower edge is the larger y (taken from the first point's order).
+      const [, a, b] = pts[j]!;
+      y0 = down ? Math.max(y0, a) : Math.min(y0, a);
+      y1 = down ? Math.min(y1, b) : Math.max(y1, b);
+      xs += pts[j]![0];
+      j++;
+    }
+    out.push([xs / (j - i), y0, y1]);
+    i = j;
+  }
+  return out;
+}
+
 export function escapeXml(s: string): string {
   return s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 }
@@ -95,7 +147,7 @@ export function svgPlot(p: PlotSpec): string {
   const ok = (v: number) => Number.isFinite(v) && (!p.yLog || v > 0);
   const clampY = (v: number) => Math.max(M.top, Math.min(H - M.bottom, y(v)));
   const out: string[] = [];
-  out.push(`<svg id="${p.id}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
+  out.push(`<svg id="${escapeXml(p.id)}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(p.title)}</text>`);
   // Grid and ticks.
   const xt = xLog ? logTicks(x, 10, p.xMarks) : { major: x.ticks(10), minor: [] as number[] };
@@ -124,22 +176,36 @@ export function svgPlot(p: PlotSpec): string {
   out.push(`<rect class="frame" x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/>`);
   out.push(`<text class="axis-label" x="${(M.left + W - M.right) / 2}" y="${H - 8}" text-anchor="middle">${escapeXml(p.xLabel)}</text>`);
   out.push(`<text class="axis-label" transform="translate(16 ${(M.top + H - M.bottom) / 2}) rotate(-90)" text-anchor="middle">${escapeXml(p.yLabel)}</text>`);
-  out.push(`<clipPath id="${p.id}-clip"><rect x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/></clipPath>`);
+  out.push(`<clipPath id="${escapeXml(p.id)}-clip"><rect x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/></clipPath>`);
   out.push(`<g clip-path="url(#${p.id}-clip)">`);
   for (const s of p.series) {
     const idx: number[] = [];
     for (let i = 0; i < s.x.length; i++) if (inX(s.x[i]!) && ok(s.y[i]!) && (s.y2 === undefined || ok(s.y2[i]!))) idx.push(i);
     let d: string | null;
+    let drawn: number;
     if (s.markers) {
-      // A small diamond per point: visible in greyscale and where lines overlap.
-      d = idx.map((i) => { const px = x(s.x[i]!); const py = clampY(s.y[i]!); return `M${px.toFixed(1)},${(py - 3.5).toFixed(1)}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z`; }).join("");
+      // A small diamond per point: visible in greyscale and where lines overlap. One per tenth of a pixel.
+      const seen = new Set<string>();
+      const marks: string[] = [];
+      for (const i of idx) {
+        const px = x(s.x[i]!).toFixed(1);
+        const py = (clampY(s.y[i]!) - 3.5).toFixed(1);
+        if (seen.has(`${px},${py}`)) continue;
+        seen.add(`${px},${py}`);
+        marks.push(`M${px},${py}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z`);
+      }
+      d = marks.join("");
+      drawn = marks.length;
     } else if (s.y2 !== undefined) {
-      const y2 = s.y2;
-      d = area<number>().x((i) => x(s.x[i]!)).y0((i) => clampY(s.y[i]!)).y1((i) => clampY(y2[i]!))(idx);
+      const pts = thinBand(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!), clampY(s.y2![i]!)] as const));
+      d = area<readonly [number, number, number]>().x((q) => q[0]).y0((q) => q[1]).y1((q) => q[2])(pts);
+      drawn = pts.length;
     } else {
-      d = line<number>().x((i) => x(s.x[i]!)).y((i) => clampY(s.y[i]!))(idx);
+      const pts = thinLine(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!)] as const));
+      d = line<readonly [number, number]>().x((q) => q[0]).y((q) => q[1])(pts);
+      drawn = pts.length;
     }
-    out.push(`<path class="${s.className}" data-series="${s.id}" data-points="${idx.length}" d="${d ?? ""}"/>`);
+    out.push(`<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${drawn}" d="${d ?? ""}" data-lines="${idx.length}"/>`);
   }
   out.push("</g>");
   for (const t of p.notes ?? []) {
@@ -156,8 +222,8 @@ export function svgPlot(p: PlotSpec): string {
     const w = 28 + 6.2 * s.label.length;
     lx -= w;
     const key = s.markers
-      ? `<path class="${s.className} key" d="M${lx + 10},${M.top - 13.5}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z"/>`
-      : `<line class="${s.className} key" x1="${lx}" x2="${lx + 20}" y1="${M.top - 10}" y2="${M.top - 10}"/>`;
+      ? `<path class="${escapeXml(s.className)} key" d="M${lx + 10},${M.top - 13.5}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z"/>`
+      : `<line class="${escapeXml(s.className)} key" x1="${lx}" x2="${lx + 20}" y1="${M.top - 10}" y2="${M.top - 10}"/>`;
     out.push(`<g class="legend">${key}<text class="legend-text" x="${lx + 24}" y="${M.top - 6}">${escapeXml(s.label)}</text></g>`);
   }
   out.push("</svg>");
@@ -172,7 +238,7 @@ export function svgHistogram(id: string, title: string, xLabel: string, edges: n
   const x = scaleLinear().domain([edges[0]!, edges[edges.length - 1]!]).range([M.left, w - M.right]);
   const top = maxOf(density, curve.y) * 1.1;
   const y = scaleLinear().domain([0, top]).range([h - M.bottom, M.top]);
-  const out = [`<svg id="${id}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
+  const out = [`<svg id="${escapeXml(id)}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(title)}</text>`);
   const xt = x.ticks(10);
   const xl = axisLabels(xt);

@@ -142,3 +142,24 @@ describe("psdgate derive", () => {
     expect(() => statSync(out)).toThrow();
   });
 });
+
+describe("derive on no data: exit 2 with a code, never an internal error", () => {
+  it("an all-zero or constant recording is NO_VIBRATION; a life of 1e-300 h is OPTION_INVALID", async () => {
+    const d = tempDir();
+    const rows = (v: (i: number) => string) => `time,az [g]\n${Array.from({ length: 1024 * 20 }, (_, i) => `${(i / 1024).toFixed(6)},${v(i)}`).join("\n")}\n`;
+    writeFileSync(join(d, "zero.csv"), rows(() => "0"));
+    writeFileSync(join(d, "const.csv"), rows(() => "0.5"));
+    for (const f of ["zero.csv", "const.csv"]) {
+      const r = await cli("derive", join(d, f), "--life", "10h", "--test-duration", "1h", "--out", join(d, `${f}.yaml`));
+      expect(r.code, r.stderr).toBe(2);
+      expect(r.stderr).toMatch(/a PSD of zero at every line in the band .*\[NO_VIBRATION\]/);
+    }
+    writeFileSync(join(d, "tiny.yaml"), `groups:\n  - name: a\n    hours: 1e-300\n    recordings: [${join(process.cwd(), "samples/corran-k7-motorway.wav")}]\n`);
+    const t = await cli("derive", "--mix", join(d, "tiny.yaml"), "--test-duration", "1h", "--out", join(d, "t.yaml"));
+    expect(t.code, t.stderr).toBe(2);
+    expect(t.stderr).toMatch(/\[OPTION_INVALID\]/);
+    const short = await cli("derive", "samples/corran-k7-motorway.wav", "--life", "10h", "--test-duration", "1e-300", "--out", join(d, "s.yaml"));
+    expect(short.code, short.stderr).toBe(2);
+    expect(short.stderr).toMatch(/option --test-duration: expected a test duration over which a finite level covers the field's damage.*\[OPTION_INVALID\]/);
+  }, 60_000);
+});

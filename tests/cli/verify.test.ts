@@ -1,7 +1,22 @@
 import { copyFileSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
+import { embedResult, RESULT_PLACEHOLDER } from "../../src/report/embeddedResult.js";
 import { cli, tempDir } from "../helpers.js";
+
+/**
+ * Re-sign a report as a forger who knows how psdgate makes its digests would: edit the page and the
+ * embedded result, then recompute the page digest and the result digest (embedResult does both).
+ */
+function forge(html: string, editPage: (page: string) => string, editResult: (doc: Record<string, unknown>) => void): string {
+  const m = /<template id="psdgate-result" data-sha256="[0-9a-f]{64}">([^]*?)<\/template>/.exec(html)!;
+  const doc = JSON.parse(m[1]!.replace(/&lt;/g, "<").replace(/&gt;/g, ">").replace(/&amp;/g, "&")) as Record<string, unknown>;
+  delete doc.format;
+  delete doc.page;
+  editResult(doc);
+  const page = editPage(html.slice(0, m.index) + RESULT_PLACEHOLDER + html.slice(m.index + m[0].length));
+  return embedResult(page, doc);
+}
 
 // One check report made once (beside copies of its inputs); each case edits a copy of the folder.
 let base: string;
@@ -59,13 +74,69 @@ describe("psdgate verify", () => {
     writeFileSync(f, html.replace('data-verdict="fail"', 'data-verdict="pass"'));
     const page = await cli("verify", f);
     expect(page.code).toBe(1);
-    expect(page.stdout).toMatch(/the page shows verdict "pass", the result says "fail"/);
+    expect(page.stdout).toMatch(/the page shows verdict "pass" \(class "fail", word "FAIL"\), the result says "fail"/);
     writeFileSync(f, html.replace(/(<template id="psdgate-result"[^>]*>\{[^]*?)"verdict":"fail"/, '$1"verdict":"pass"'));
     const block = await cli("verify", f);
     expect(block.code).toBe(1);
     expect(block.stdout).toMatch(/embedded result edited/);
     expect(block.stdout).toMatch(/the verdict re-runs as FAIL, the report says PASS/);
     expect(block.stdout).toMatch(/differs: verdict: recorded "pass", re-run "fail"/);
+  });
+
+  it("a re-signed FAIL turned PASS is caught: verdict, rule, control and channels deleted, banner attributes reordered, both digests recomputed", async () => {
+    const d = copy();
+    const f = join(d, "report.html");
+    const html = readFileSync(f, "utf8");
+    const toPass = (p: string) => p.replace('<div class="verdict fail" id="verdict" data-verdict="fail"><span class="word">FAIL</span>', '<div data-verdict="pass" class="verdict pass" id="verdict"><span class="word">PASS</span>').replace(/FAIL · recording/g, "PASS · recording");
+    const strip = (doc: Record<string, unknown>) => {
+      const r = doc.result as Record<string, unknown>;
+      for (const k of ["verdict", "rule", "control", "channels"]) delete r[k];
+    };
+    writeFileSync(f, forge(html, toPass, strip));
+    const v = await cli("verify", f);
+    expect(v.code).toBe(1);
+    expect(v.stdout).toMatch(/DIFFERS|differs/);
+    expect(v.stdout).toMatch(/the page shows verdict "pass" \(class "pass", word "PASS"\), the result says "undefined"|no "verdict"/);
+    expect(v.stdout).toMatch(/the embedded result has no "verdict"/);
+    // The page alone turned PASS, every attribute order and quoting: the parsed banner still says so.
+    for (const banner of ["<div data-verdict='pass' class='verdict pass' id='verdict'>", "<div ID=verdict DATA-VERDICT=pass class=\"pass verdict\">"]) {
+      writeFileSync(f, forge(html, (p) => p.replace('<div class="verdict fail" id="verdict" data-verdict="fail">', banner), () => undefined));
+      const w = await cli("verify", f);
+      expect(w.code, banner).toBe(1);
+      expect(w.stdout, banner).toMatch(/the page shows verdict "pass"/);
+    }
+    // Only the deleted fields, page untouched: each is a difference of the re-run, not "added later".
+    writeFileSync(f, forge(html, (p) => p, (doc) => { delete (doc.result as Record<string, unknown>).control; }));
+    const c = await cli("verify", f);
+    expect(c.code).toBe(1);
+    expect(c.stdout).toMatch(/no "control"/);
+    writeFileSync(f, forge(html, (p) => p, (doc) => { delete ((doc.result as { channels: Record<string, unknown>[] }).channels[0]!).lines; }));
+    const l = await cli("verify", f);
+    expect(l.code).toBe(1);
+    expect(l.stdout).toMatch(/channels\[0\]\.lines: not in the report/);
+  });
+
+  it("a re-signed page with injected style, a second banner, a script or a style attribute is caught (the page is parsed, not matched)", async () => {
+    const d = copy();
+    const f = join(d, "report.html");
+    const html = readFileSync(f, "utf8");
+    const cases: [string, (p: string) => string, RegExp][] = [
+      ["style element", (p) => p.replace("</head>", "<style>.verdict.fail .word { font-size: 0 } .verdict.fail .word::after { content: 'PASS'; font-size: 22pt }</style></head>"), /style element psdgate did not write/],
+      ["style inside the frame's", (p) => p.replace("* { box-sizing: border-box; }", "* { box-sizing: border-box; } .verdict.fail { display: none }"), /style element psdgate did not write/],
+      ["second banner", (p) => p.replace("<h2>Test identity</h2>", '<div class="verdict pass" id="verdict" data-verdict="pass"><span class="word">PASS</span></div><h2>Test identity</h2>'), /2 verdict banners/],
+      ["script", (p) => p.replace("</body>", "<script>document.querySelector('.word').textContent='PASS'</script></body>"), /<script> element/],
+      ["style attribute", (p) => p.replace('<span class="word">FAIL</span>', '<span class="word" style="display:none">FAIL</span>'), /style attribute/],
+      ["banner hidden by an attribute", (p) => p.replace('id="verdict" data-verdict="fail"', 'id="verdict" data-verdict="fail" hidden'), /hidden attribute/],
+      ["banner inside a closed details", (p) => p.replace('<div class="verdict fail"', '<details><summary></summary><div class="verdict fail"').replace("<h2>Test identity</h2>", "</details><h2>Test identity</h2>"), /<details> element/],
+      ["banner inside an inert template", (p) => p.replace('<div class="verdict fail"', '<template><div class="verdict fail"').replace("<h2>Test identity</h2>", "</template><h2>Test identity</h2>"), /2 <template> elements/],
+      ["uppercase closing tag", (p) => p.replace("</head>", "<STYLE>.verdict{display:none}</STYLE ></head>"), /style element psdgate did not write/],
+    ];
+    for (const [what, edit, want] of cases) {
+      writeFileSync(f, forge(html, edit, () => undefined));
+      const v = await cli("verify", f);
+      expect(v.code, what).toBe(1);
+      expect(v.stdout, what).toMatch(want);
+    }
   });
 
   it("an edited recording (one sample byte changed) is caught by its SHA-256: exit 1", async () => {

@@ -4,9 +4,9 @@ import { addJob } from "../../src/queue/enqueue.js";
 import type { Job } from "../../src/queue/job.js";
 import { createJobPool, JobCrash, type JobPool } from "../../src/queue/jobPool.js";
 import { migrate, SCHEMA_VERSION } from "../../src/queue/migrations.js";
-import { queueStatus } from "../../src/queue/queueReport.js";
+import { queueResults, queueStatus } from "../../src/queue/queueReport.js";
 import { openQueue, QUEUE_NAME, RETRY, type QueueStore } from "../../src/queue/queueStore.js";
-import { runWorker, transientDbError, type WorkOptions } from "../../src/queue/queueWorker.js";
+import { jobProblem, runWorker, transientDbError, type WorkOptions } from "../../src/queue/queueWorker.js";
 import type { StoredOutcome } from "../../src/queue/runJob.js";
 import { tempDir } from "../helpers.js";
 import { freshDatabase, postgresUrl } from "./database.js";
@@ -46,7 +46,7 @@ describe.skipIf(!url && !process.env.CI)("queue worker (in process, real Postgre
   });
   it("migrate() applies each step once; a database from a newer psdgate is refused", async () => {
     expect(await migrate(store.pool)).toEqual({ from: SCHEMA_VERSION, to: SCHEMA_VERSION });
-    expect((await rows("SELECT version FROM psdgate.migration")).map((r) => r.version)).toEqual([1]);
+    expect((await rows("SELECT version FROM psdgate.migration ORDER BY version")).map((r) => r.version)).toEqual([1, 2]);
     await store.pool.query("INSERT INTO psdgate.migration (version, name) VALUES (99, 'future')");
     await expect(migrate(store.pool)).rejects.toThrow(/version 99, newer than this psdgate knows/);
     await store.pool.query("DELETE FROM psdgate.migration WHERE version = 99");
@@ -99,6 +99,70 @@ describe.skipIf(!url && !process.env.CI)("queue worker (in process, real Postgre
     await runWorker(store, fakePool(async (j) => ok(j.file)), options({}, []));
   });
 
+  it("malformed job rows (data a string, null, a list, a number path, a bad hash) among good ones fail alone with JOB_INVALID; with --jobs 1 and 2 every good job is done", async () => {
+    const poison: unknown[] = ["a string", null, [1, 2], { kind: "psd", file: 5, sha256: "0".repeat(64), options: {} }, { kind: "psd", file: "nohash.csv", sha256: "", options: {} }, { kind: "check", file: "noprofile.csv", sha256: "a".repeat(64), options: {} }];
+    for (const jobs of [1, 2]) {
+      await store.pool.query("DELETE FROM psdgate.result");
+      const ids: string[] = [];
+      for (let i = 0; i < 10; i++) {
+        if (i % 2 === 0) {
+          const id = await store.pool.query<{ id: string }>(
+            "INSERT INTO pgboss.job (name, data) VALUES ($1, $2::jsonb) RETURNING id", [QUEUE_NAME, JSON.stringify(poison[(i / 2) % poison.length])]);
+          ids.push(id.rows[0]!.id);
+        }
+        await addJob(store, job(`good-${jobs}-${i}.csv`), 60);
+      }
+      const log: string[] = [];
+      const ran: string[] = [];
+      const sum = await runWorker(store, fakePool(async (j) => {
+        ran.push(j.file);
+        return ok(j.file);
+      }), options({ jobs }, log));
+      expect(sum, `--jobs ${jobs}`).toMatchObject({ done: 10, failed: 5 });
+      expect(ran.sort()).toEqual(Array.from({ length: 10 }, (_, i) => `good-${jobs}-${i}.csv`).sort());
+      const bad = await rows("SELECT path, kind, error_code, outcome FROM psdgate.result WHERE kind = 'invalid' ORDER BY path");
+      expect(bad.length).toBe(5);
+      for (const b of bad) expect(b).toMatchObject({ kind: "invalid", error_code: "JOB_INVALID", outcome: "failed" });
+      expect(bad.map((b) => b.path)).toContain(`(job ${ids[0]})`);
+      expect(log.filter((l) => l.includes("JOB_INVALID")).length).toBe(5);
+      expect(await queueStatus(store)).toMatchObject({ queued: 0, active: 0 });
+    }
+    expect(jobProblem("x")).toBe("its data is a string, not a job object");
+    expect(jobProblem({ kind: "psd", file: "a.csv", sha256: "0".repeat(64), options: {} })).toBeUndefined();
+  });
+
+  it("queue results pages on an exact key: 250 results finished within the same milliseconds come out once each, at any page size", async () => {
+    await store.pool.query("DELETE FROM psdgate.result");
+    await store.pool.query(`
+      INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, settings_digest, outcome, result, worker, attempt, tool_version, finished_on)
+      SELECT gen_random_uuid(), 'p' || i || '.csv', 'psd', lpad(i::text, 64, '0'), 'd', 'done', '{}'::json, 'w', 1, 'v',
+             timestamptz '2026-03-01 10:00:00.000100+00' + (i / 7) * interval '1 microsecond' + (i / 50) * interval '1 millisecond'
+        FROM generate_series(1, 250) AS i`);
+    for (const page of [200, 7, 1]) {
+      const seen: string[] = [];
+      // Jobs of the earlier tests whose results were deleted come after, as lost: only the stored rows count here.
+      for await (const r of queueResults(store, undefined, page)) if (r.errorCode !== "JOB_LOST") seen.push(r.path);
+      expect(seen.length, `page ${page}`).toBe(250);
+      expect(new Set(seen).size, `page ${page}`).toBe(250);
+    }
+    await store.pool.query("DELETE FROM psdgate.result");
+  });
+
+  it("a job that failed is queued again by adding it again (its failed result replaced); one that is done or queued is not", async () => {
+    const j = job("retry-me.csv");
+    expect((await addJob(store, j, 60)).added).toBe(true);
+    const fail: StoredOutcome = { ok: false, lineJson: "{}", error: { code: "FILE_UNREADABLE", message: "wrong root" } };
+    await runWorker(store, fakePool(async (x) => (x.file === "retry-me.csv" ? fail : ok(x.file))), options({}, []));
+    expect(await rows("SELECT outcome, error_code FROM psdgate.result WHERE path = 'retry-me.csv'")).toEqual([{ outcome: "failed", error_code: "FILE_UNREADABLE" }]);
+    const again = await addJob(store, j, 60);
+    expect(again).toMatchObject({ added: true, requeued: { state: "failed" } });
+    const twice = await addJob(store, j, 60);
+    expect(twice).toMatchObject({ added: false, state: "created" });
+    await runWorker(store, fakePool(async (x) => ok(x.file)), options({}, []));
+    expect(await rows("SELECT outcome FROM psdgate.result WHERE path = 'retry-me.csv'")).toEqual([{ outcome: "done" }]);
+    expect(await addJob(store, j, 60)).toMatchObject({ added: false, state: "done" });
+  });
+
   it("a job whose path leaves the worker's root fails at once with JOB_PATH_REFUSED", async () => {
     const root = tempDir();
     await store.boss.send(QUEUE_NAME, job("../../etc/passwd") as unknown as object);
@@ -106,6 +170,31 @@ describe.skipIf(!url && !process.env.CI)("queue worker (in process, real Postgre
     await runWorker(store, pool, options({}, []));
     await pool.close();
     expect(await rows("SELECT error_code, attempt FROM psdgate.result WHERE path = '../../etc/passwd'")).toEqual([{ error_code: "JOB_PATH_REFUSED", attempt: 1 }]);
+  });
+});
+
+describe.skipIf(!url && !process.env.CI)("a database role without CREATE rights", () => {
+  it("queue status as a role that may not create the schemas: DB_PERMISSION, exit 2, one line (was exit 70)", async () => {
+    const { cli } = await import("../helpers.js");
+    const pg = (await import("pg")).default;
+    const db = await freshDatabase(url!);
+    const role = `lowly_${Date.now().toString(36)}`;
+    const c = new pg.Client({ connectionString: db });
+    await c.connect();
+    try {
+      await c.query(`CREATE ROLE ${role} LOGIN`);
+      await c.query(`REVOKE CREATE ON DATABASE ${new URL(db).pathname.slice(1)} FROM PUBLIC`);
+      await c.query("REVOKE CREATE ON SCHEMA public FROM PUBLIC");
+    } finally {
+      await c.end();
+    }
+    const u = new URL(db);
+    u.username = role;
+    u.password = "";
+    const r = await cli("queue", "status", "--db", u.toString());
+    expect(r.code, r.stderr).toBe(2);
+    expect(r.stderr).toMatch(/option --db: expected a role that may create and use the pgboss and psdgate schemas.*\[DB_PERMISSION\]/);
+    expect(r.stderr.trim().split("\n").length).toBe(1);
   });
 });
 

@@ -59,7 +59,9 @@ describe("runJob", () => {
     expect((await runJob(job, { root, reportDir })).ok).toBe(true); // a retried job may replace its report
   });
   it("an input error is an outcome with its code and the batch's error line, named by the job's path", async () => {
-    const o = await runJob({ kind: "psd", file: "runs/bad.csv", sha256: "0", options: {} }, { root });
+    // Its real SHA-256: the file's identity is checked before it is read as a recording.
+    const badSha = (await import("node:crypto")).createHash("sha256").update(readFileSync(join(root, "runs", "bad.csv"))).digest("hex");
+    const o = await runJob({ kind: "psd", file: "runs/bad.csv", sha256: badSha, options: {} }, { root });
     expect(o.ok).toBe(false);
     if (!o.ok) {
       expect(o.error.code).toBe("CSV_NOT_A_NUMBER");
@@ -79,5 +81,32 @@ describe("runJob", () => {
     expect(!prof.ok && prof.error.code).toBe("PROFILE_CHANGED");
     const out = await runJob({ kind: "psd", file: "../x.wav", sha256: sha, options: {} }, { root });
     expect(!out.ok && out.error.code).toBe("JOB_PATH_REFUSED");
+  });
+  it("a recording swapped after add for a 40 GB sparse file is refused by its size at once, before any analysis or hash", async () => {
+    const { truncateSync, statSync } = await import("node:fs");
+    const d = join(root, "runs", "swapped.wav");
+    copyFileSync("samples/kb210-run-short.wav", d);
+    const bytes = statSync(d).size;
+    truncateSync(d, 40 * 2 ** 30);
+    const t0 = Date.now();
+    const r = await runJob({ kind: "psd", file: "runs/swapped.wav", sha256: sha, bytes, options: {} }, { root });
+    expect(Date.now() - t0).toBeLessThan(1000);
+    expect(!r.ok && r.error.code).toBe("RECORDING_CHANGED");
+    expect(!r.ok && r.error.message).toMatch(new RegExp(`runs/swapped\\.wav: expected the recording queued with SHA-256 ${sha} \\(${bytes} bytes\\), received 42949672960 bytes`));
+    // The same size but other bytes: the streamed SHA-256 refuses it before the analysis.
+    const same = join(root, "runs", "same-size.wav");
+    writeFileSync(same, Buffer.alloc(bytes, 7));
+    const s2 = await runJob({ kind: "psd", file: "runs/same-size.wav", sha256: sha, bytes, options: {} }, { root });
+    expect(!s2.ok && s2.error.code).toBe("RECORDING_CHANGED");
+  });
+  it("a folder link planted inside --report-dir is not followed: the job fails alone with JOB_PATH_REFUSED, nothing written outside", async () => {
+    const { symlinkSync, readdirSync } = await import("node:fs");
+    const reportDir = tempDir();
+    const outside = tempDir();
+    symlinkSync(outside, join(reportDir, "runs"));
+    const r = await runJob({ kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } }, { root, reportDir });
+    expect(!r.ok && r.error.code).toBe("JOB_PATH_REFUSED");
+    expect(!r.ok && r.error.message).toMatch(/option --report-dir|report folder inside/);
+    expect(readdirSync(outside)).toEqual([]);
   });
 });

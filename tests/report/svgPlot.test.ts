@@ -20,3 +20,26 @@ describe("svgPlot", () => {
     expect(svg).toContain(">marked<");
   });
 });
+
+describe("thinLine and thinBand: a plot holds what a page can show", () => {
+  it("a 200 000-point line keeps at most 4 points per pixel column, every column's extremes among them; a short line is kept whole", async () => {
+    const { thinLine, thinBand } = await import("../../src/report/svgPlot.js");
+    const n = 200_000;
+    const pts: [number, number][] = [];
+    for (let i = 0; i < n; i++) pts.push([70 + (634 * i) / n, 200 + 100 * Math.sin(i / 37) + (i === 123_457 ? -150 : 0)]);
+    const lo = (a: number[]) => a.reduce((m, v) => Math.min(m, v), Infinity);
+    const hi = (a: number[]) => a.reduce((m, v) => Math.max(m, v), -Infinity);
+    const thin = thinLine(pts);
+    expect(thin.length).toBeLessThanOrEqual(4 * 635);
+    expect(thin.length).toBeGreaterThan(634);
+    expect(lo(thin.map((p) => p[1]))).toBe(lo(pts.map((p) => p[1])));
+    expect(hi(thin.map((p) => p[1]))).toBe(hi(pts.map((p) => p[1])));
+    for (let k = 1; k < thin.length; k++) expect(thin[k]![0]).toBeGreaterThanOrEqual(thin[k - 1]![0]);
+    const few: [number, number][] = [[70, 1], [80, 2], [90, 3]];
+    expect(thinLine(few)).toBe(few);
+    const band = thinBand(pts.map(([x, y]) => [x, y + 10, y - 10] as const));
+    expect(band.length).toBeLessThanOrEqual(635);
+    expect(hi(band.map((b) => b[1]))).toBe(hi(pts.map((p) => p[1] + 10)));
+    expect(lo(band.map((b) => b[2]))).toBe(lo(pts.map((p) => p[1] - 10)));
+  });
+});
