@@ -1,7 +1,7 @@
 import { selectChannels } from "./resolveAnalysis.js";
 import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "./analyzeRecording.js";
 import {
-  axisRules, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue,
+  axisRules, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue, ISO_2631_HEALTH_ZONE, type HealthZone,
   type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
 } from "./compare/wholeBodyExposure.js";
 import { InputError, quoted } from "./errors.js";
@@ -36,6 +36,8 @@ export interface RideOptions extends Omit<AnalysisOptions, "channels" | "resultU
   runningRmsS?: number | undefined;
   /** Also build a one-third-octave spectrogram of each axis (for the report): stretches of two segments. */
   spectrogram?: boolean | undefined;
+  /** The ISO 2631-1 Annex B caution zone the lab confirmed (default ISO_2631_HEALTH_ZONE, psdgate's values). */
+  healthZone?: HealthZone | undefined;
 }
 
 export interface RideAxis {
@@ -66,6 +68,8 @@ export interface RideResult {
   totalValue: { health: number; comfort: number };
   comfort: { reactions: string[] };
   exposure: DailyExposure;
+  /** The caution zone the exposure was placed in, and where its values came from. */
+  healthZone: HealthZone & { from: "default" | "given" };
   seat?: { floorChannel: string; awFloor: number; awFloorFromPsd: number; awFloorWelchWeighted: number; awSeat: number; seat: number } | undefined;
   notes: string[];
   doubts: string[];
@@ -212,7 +216,8 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     };
   });
   const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));
-  const exposure = dailyExposure(figures, rules, options.exposureS);
+  const exposure = dailyExposure(figures, rules, options.exposureS, options.healthZone ?? ISO_2631_HEALTH_ZONE);
+  const healthZone = { ...(options.healthZone ?? ISO_2631_HEALTH_ZONE), from: options.healthZone ? "given" as const : "default" as const };
   const totalValue = {
     health: vibrationTotalValue(figures, (a) => rules[a].healthK),
     comfort: vibrationTotalValue(figures, (a) => rules[a].comfortK),
@@ -228,5 +233,5 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     if (zAxis === undefined) notes.push("a floor channel needs z on the seat for the seat's transmissibility (vertical, Wk on both)");
     else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
   }
-  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, seat, notes, doubts };
+  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, healthZone, seat, notes, doubts };
 }

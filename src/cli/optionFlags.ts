@@ -46,7 +46,7 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   againstChannel: "--against-channel",
   // transfer
   inputChannel: "--in",
-  outputChannels: "--out",
+  outputChannels: "--output-channel",
   goodCoherence: "--good-coherence",
   // ride
   axes: "--axes",

@@ -251,3 +251,40 @@ export function signOff(summary: string, identity: [string, string][]): string {
 <div class="signoff"><div>Prepared by (name, signature)</div><div>Reviewed by (name, signature)</div><div>Date</div></div>
 </section>`;
 }
+
+/**
+ * The record frame's parts for every kind that is not a single-recording check or psd (ride, transfer,
+ * respond, derive): the identity rows from --meta, a sign-off naming the test, the item and every input
+ * by short hash, and the embedded result document, one shape for every kind (what `verify` dispatches on).
+ */
+export type RecordKind = "check" | "psd" | "ride" | "transfer" | "respond" | "derive";
+
+/** The test identity from --meta as table rows (every key given), or a line saying none was given. */
+export function metaRows(meta: TestMeta | undefined, startTime?: string): string {
+  const rows = META_LABELS.filter(([k]) => meta?.[k] !== undefined).map(([k, label]) => row(label, esc(meta![k]!)));
+  if (startTime !== undefined) rows.push(row("Recording started", esc(startTime)));
+  if (rows.length === 0) rows.push(row("Identity", `<span class="muted">none given (psdgate --meta FILE names the test, item, serial, axis, fixture, sensor and operator)</span>`));
+  return rows.join("\n");
+}
+
+/** The sign-off of any record: its word and summary, the test, the item, every input by short hash, the operator. */
+export function recordSignOff(word: string, summary: string, meta: TestMeta | undefined, inputs: { label: string; file: string; sha256: string }[]): string {
+  const m = meta;
+  return signOff(`<strong>${esc(word)}</strong>: ${esc(summary)}`, [
+    ["Test", esc([m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
+    ["Item", esc([m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`].filter(Boolean).join(", ") || "not stated")],
+    ...inputs.map((i): [string, string] => [i.label, `${esc(i.file)} <span class="hash">${shortHash(i.sha256)}</span>`]),
+    ["Operator", esc(m?.operator ?? "not stated")],
+  ]);
+}
+
+/** The result embedded in a record: kind, when, identity, the options that re-run it, the options given, the result. */
+export function recordDocument(kind: RecordKind, ctx: ReportContext, result: unknown, extra: Record<string, unknown> = {}): Record<string, unknown> {
+  return { kind, created: ctx.when.toISOString(), meta: ctx.meta ?? null, rerun: ctx.rerun ?? null, given: ctx.given ?? [], ...extra, result };
+}
+
+/** "Options given" as a table row: each flag as code, or a line saying none was given. */
+export function givenRow(ctx: ReportContext): string {
+  const given = ctx.given && ctx.given.length > 0 ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
+  return row("Options given", given);
+}

@@ -115,7 +115,7 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     ...(s.kind !== "profile"
       ? [`             On a measured PSD Miles reads the one line at fn, which scatters by ${s.settings ? `about ±${fixed(100 * Math.sqrt(2 / s.settings.dof), 0)} % (1 sigma, chi-square)` : "the PSD's random error"}, while the integral averages the lines across the resonance.`]
       : []),
-    "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, tests/estimate/peakStatistics.test.ts).",
+    "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, by psdgate's own simulation check).",
     "  damage     narrow-band Rayleigh, relative: only ratios at the same b and C mean anything.",
   );
   const m = r.motion;
