@@ -170,6 +170,16 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
 }
 
 /** The options the user typed (not defaults), in words for the report: `--units m/s2`, `--force`. */
+/** A parsed option value in words: plain values as written, a parsed pair list (`--axes`, `--scale CH=K`) as key=value. */
+function givenValue(v: unknown): string {
+  if (v === null || typeof v !== "object") return String(v);
+  const o = v as Record<string, unknown>;
+  // A per-channel setting ({ channel?, value }, from `--scale`, `--sensitivity`) reads back as written: CH=K, or K for every channel.
+  const keys = Object.keys(o);
+  if ("value" in o && keys.every((k) => k === "value" || k === "channel")) return o.channel === undefined ? givenValue(o.value) : `${String(o.channel)}=${givenValue(o.value)}`;
+  return keys.filter((k) => o[k] !== undefined).map((k) => `${k}=${typeof o[k] === "object" ? JSON.stringify(o[k]) : String(o[k])}`).join(",");
+}
+
 export function givenOptions(cmd: Command): string[] {
   const out: string[] = [];
   for (const opt of cmd.options) {
@@ -178,8 +188,8 @@ export function givenOptions(cmd: Command): string[] {
     const v: unknown = cmd.getOptionValue(key);
     const flag = opt.long ?? opt.short ?? key;
     if (typeof v === "boolean") out.push(v || !opt.negate ? flag : flag);
-    else if (Array.isArray(v)) for (const x of v) out.push(`${flag} ${String(x)}`);
-    else out.push(`${flag} ${String(v)}`);
+    else if (Array.isArray(v)) for (const x of v) out.push(`${flag} ${givenValue(x)}`);
+    else out.push(`${flag} ${givenValue(v)}`);
   }
   return out;
 }

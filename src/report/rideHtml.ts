@@ -54,8 +54,15 @@ function svgSpectrogram(id: string, a: RideAxis, fromS: number): string {
     }
   }
   for (let b = 0; b < ny; b += 3) out.push(`<text class="tick" x="${m.left - 6}" y="${(h - m.bottom - (b + 0.5) * ch + 4).toFixed(1)}" text-anchor="end">${s.bandsHz[b]!.centre}</text>`);
-  const step = Math.max(1, Math.ceil(nx / 8));
-  for (let i = 0; i <= nx; i += step) out.push(`<text class="tick" x="${(m.left + i * cw).toFixed(1)}" y="${h - m.bottom + 16}" text-anchor="middle">${sig(fromS + i * s.stretchS, 4)}</text>`);
+  // Time ticks at round values (1, 2 or 5 × a power of ten, about 8 across), placed where they fall in the stretches.
+  const span = nx * s.stretchS;
+  const raw = span / 8;
+  const p10 = 10 ** Math.floor(Math.log10(raw));
+  const tickStep = [1, 2, 5, 10].map((k) => k * p10).find((v) => v >= raw) ?? 10 * p10;
+  for (let t = Math.ceil(fromS / tickStep) * tickStep; t <= fromS + span + 1e-9; t += tickStep) {
+    const x = m.left + ((t - fromS) / span) * (w - m.left - m.right);
+    out.push(`<line class="grid" x1="${x.toFixed(1)}" x2="${x.toFixed(1)}" y1="${h - m.bottom}" y2="${h - m.bottom + 4}"/><text class="tick" x="${x.toFixed(1)}" y="${h - m.bottom + 16}" text-anchor="middle">${sig(t, 6)}</text>`);
+  }
   out.push(`<rect class="frame" x="${m.left}" y="${m.top}" width="${w - m.left - m.right}" height="${h - m.top - m.bottom}"/>`);
   out.push(`<text class="axis-label" x="${(m.left + w - m.right) / 2}" y="${h - 8}" text-anchor="middle">time, s</text>`);
   out.push(`<text class="axis-label" transform="translate(16 ${(m.top + h - m.bottom) / 2}) rotate(-90)" text-anchor="middle">band centre, Hz</text>`);
