@@ -120,7 +120,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   const x = extractResult(html);
   if (!x.found) {
     // Not a record at all (any file, or a page whose result block was removed): a usage error, one line, exit 2.
-    throw new InputError("NOT_A_REPORT", { file: report, expected: "an HTML record written by psdgate (--report), with its embedded result", received: /<html/i.test(html.slice(0, 4096)) ? "an HTML page with no psdgate result in it" : "a file that is not a psdgate record" });
+    throw new InputError("NOT_A_REPORT", { file: report, expected: "an HTML record written by psdgate, with its embedded result", received: /<html/i.test(html.slice(0, 4096)) ? "an HTML page with no psdgate result in it" : "a file that is not a psdgate record" });
   }
   if (x.doc === undefined) {
     steps.push({ step: "result", ok: false, text: "the embedded result is not valid JSON (edited)" });
