@@ -1,5 +1,6 @@
 import type { TransferAnalysis, TransferOutput } from "../analyzeTransfer.js";
 import { accelLabel, densityLabel } from "../units.js";
+import { TRANSFER_CAUTION } from "./cautions.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, sig } from "./format.js";
 import { givenRow, metaRows, qty, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
@@ -18,11 +19,6 @@ const EXTRA_STYLE = `
 .predicted { fill: none; stroke: #1b4f7a; stroke-width: 1.1; stroke-dasharray: 5 2; }
 table.resonances th { width: auto; }
 `;
-
-/** The caution of a transfer record: it speaks of the figures this page shows (|H|, Q, resonances, coherence). */
-export const TRANSFER_CAUTION =
-  "The frequency responses, resonance frequencies and Q values on this page describe this fixture, item and mounting at the levels of this recording only: a response can shift with level, preload and temperature. " +
-  "Where they feed a decision about a fixture's or an item's fitness (a fixture survey, a notch, a test level) check them against the fixture's and exciter's rated limits with margin; the governing test standard, the lab's procedure and a qualified test engineer decide.";
 
 function positiveRange(a: Float64Array, from: number): [number, number] {
   let lo = Infinity;
