@@ -136,6 +136,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     text: !verdictOk ? `the page shows verdict "${shownVerdict}", the result says "${result.verdict}" (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
   });
   if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
+  if (doc.kind === "batch") return verifyBatch(report, doc.result as BatchDoc, steps);
   if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun) return verifyRecord(report, doc as RecordDoc, steps, tol, options);
   if (doc.kind !== "check" && doc.kind !== "psd" || !result.input || !doc.rerun) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
@@ -362,4 +363,25 @@ function strip(result: Record<string, unknown>): Record<string, unknown> {
   };
   drop(copy, "");
   return copy;
+}
+
+interface BatchDoc { entries?: { file: string; report: string; reportSha256?: string }[] }
+
+/** A batch index: every linked report beside it, by the SHA-256 the index recorded (each report verifies on its own). */
+function verifyBatch(report: string, doc: BatchDoc, steps: VerifyStep[]): VerifyResult {
+  const missing: string[] = [];
+  let ok = 0;
+  for (const e of doc.entries ?? []) {
+    const at = join(dirname(report), e.report);
+    if (!existsSync(at)) {
+      missing.push(`report ${e.report} of ${basename(e.file)} (looked for ${at})`);
+      continue;
+    }
+    const same = e.reportSha256 !== undefined && sha256File(at) === e.reportSha256;
+    if (same) ok++;
+    else steps.push({ step: "recording", ok: false, text: `${at}: ${e.reportSha256 === undefined ? "no SHA-256 recorded for it" : "SHA-256 differs from the one the index recorded (the report was replaced or edited)"}` });
+  }
+  steps.push({ step: "recording", ok: steps.every((s) => s.ok), text: `${ok} of ${(doc.entries ?? []).length} linked reports are the ones the index lists (SHA-256); verify each report to re-run it` });
+  const intact = steps.every((s) => s.ok);
+  return { status: !intact ? "differs" : missing.length ? "missing" : "reproduced", report, kind: "batch", steps, differences: [], missing, compared: 0 };
 }

@@ -257,7 +257,7 @@ export function signOff(summary: string, identity: [string, string][]): string {
  * respond, derive): the identity rows from --meta, a sign-off naming the test, the item and every input
  * by short hash, and the embedded result document, one shape for every kind (what `verify` dispatches on).
  */
-export type RecordKind = "check" | "psd" | "ride" | "transfer" | "respond" | "derive";
+export type RecordKind = "check" | "psd" | "ride" | "transfer" | "respond" | "derive" | "batch";
 
 /** The test identity from --meta as table rows (every key given), or a line saying none was given. */
 export function metaRows(meta: TestMeta | undefined, startTime?: string): string {

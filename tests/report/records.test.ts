@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, writeFileSync } from "node:fs";
+import { copyFileSync, existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
 import { chromium, type Browser } from "playwright-core";
@@ -51,6 +51,14 @@ beforeAll(async () => {
     expect([0, 1, 3], `${k.kind}: ${r.stderr}`).toContain(r.code);
     made.set(k.kind, out);
   }
+  // A batch: three recordings copied into one folder, one with its own meta file beside it.
+  const b = join(dir, "batch");
+  mkdirSync(b);
+  for (const f of ["kb210-run.wav", "kb210-run-resonance.wav", "kb210-run-short.wav"]) copyFileSync(join("samples", f), join(b, f));
+  writeFileSync(join(b, "kb210-run-short.meta.yaml"), "testId: HF-QA-2292\nserialNumber: SN 8\n");
+  const r = await cli("check", join(b, "kb210-run.wav"), join(b, "kb210-run-resonance.wav"), join(b, "kb210-run-short.wav"), "-p", "samples/profiles/kb210-controller.json", "--meta", join(dir, "meta.yaml"), "--report-dir", join(b, "out"), "-q");
+  expect(r.code, r.stderr).toBe(1);
+  made.set("batch", join(b, "out", "psdgate-batch.html"));
 }, 120_000);
 
 /** Change one number in a record's embedded result and recompute both digests (what a forger with psdgate's source could do). */
@@ -98,6 +106,29 @@ describe("every kind of record: identity, verify, an edited number named", () =>
     }, 60_000);
   }
 
+  it("the batch index is a record: per recording its verdict, reason, worst excursion, test id (its own meta file) and link; a caution; verify checks every linked report", async () => {
+    const file = made.get("batch")!;
+    const html = readFileSync(file, "utf8");
+    const rows = [...html.matchAll(/<tr><td><a href="([^"]+)">[^]*?<\/tr>/g)].map((m) => m[0]);
+    expect(rows).toHaveLength(3);
+    const short = rows.find((x) => x.includes("kb210-run-short"))!;
+    expect(short).toContain("test HF-QA-2292");
+    expect(short).toMatch(/INCONCLUSIVE.*degrees of freedom/);
+    const res = rows.find((x) => x.includes("kb210-run-resonance"))!;
+    expect(res).toMatch(/FAIL.*ch1: \d+ of \d+ lines shown outside.*Hz \+\d\.\d+ dB \(limit \+\d\.\d+ dB\), shown/);
+    expect(rows.find((x) => x.includes("kb210-run.wav"))).toContain("test HF-QA-2291");
+    expect(html).toContain("It does not replace the governing test standard");
+    expect(readFileSync(join(dir, "batch", "out", "kb210-run-short.html"), "utf8")).toContain("HF-QA-2292");
+    const v = await cli("verify", file);
+    expect(v.code, v.stdout).toBe(0);
+    expect(v.stdout).toMatch(/3 of 3 linked reports are the ones the index lists/);
+    const edited = readFileSync(join(dir, "batch", "out", "kb210-run.html"), "utf8").replace("J. Amadi", "J. Amado");
+    writeFileSync(join(dir, "batch", "out", "kb210-run.html"), edited);
+    const e = await cli("verify", file);
+    expect(e.code).toBe(1);
+    expect(e.stdout).toMatch(/kb210-run\.html: SHA-256 differs from the one the index recorded/);
+  });
+
   it("verify on a file that is not a record: one line, NOT_A_REPORT, exit 2", async () => {
     const d = tempDir();
     writeFileSync(join(d, "x.html"), "<!DOCTYPE html><html><body>hello</body></html>");
@@ -124,13 +155,13 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("every kind of record printed to A
     }
     const page = await browser.newPage();
     const seen: string[] = [];
-    for (const k of KINDS) {
+    for (const k of [...KINDS, { kind: "batch", word: "BATCH", hash: "profile" } as const]) {
       const file = made.get(k.kind)!;
-      const doc = extractResult(readFileSync(file, "utf8")).doc as { result: Record<string, unknown> };
-      const res = doc.result as { input?: { sha256: string }; source?: { sha256: string } };
-      await page.goto(pathToFileURL(file).href);
       const html = readFileSync(file, "utf8");
-      const short = k.kind === "derive" ? /DERIVED PROFILE · profile ([0-9a-f]{12})/.exec(html)![1]! : (res.input ?? res.source)!.sha256.slice(0, 12);
+      const res = (extractResult(html).doc as { result: { input?: { sha256: string }; source?: { sha256: string }; profile?: { sha256: string } } }).result;
+      // The printed identity: the recording's (or respond's source's) hash; derive and the batch index name their profile.
+      const short = k.kind === "derive" ? /DERIVED PROFILE · profile ([0-9a-f]{12})/.exec(html)![1]! : (res.input ?? res.source ?? res.profile)!.sha256.slice(0, 12);
+      await page.goto(pathToFileURL(file).href);
       for (const format of ["A4", "Letter"] as const) {
         const pages = printedPages(await page.pdf({ format }), { top: 17, bottom: 15 });
         expect(pages.length, `${k.kind} ${format}`).toBeGreaterThan(1);
@@ -147,6 +178,6 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("every kind of record printed to A
         seen.push(`${k.kind} ${format} ${pages.length}`);
       }
     }
-    expect(seen).toHaveLength(KINDS.length * 2);
+    expect(seen).toHaveLength((KINDS.length + 1) * 2);
   }, 180_000);
 });
