@@ -7,6 +7,7 @@ import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPe
 import { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
 import { SegmentPower } from "./estimate/segmentPower.js";
 import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
+import { SampleHoldAccumulator, type SampleHold } from "./estimate/sampleHold.js";
 import { stationarityFinding, type StationarityFinding } from "./estimate/stationarityTests.js";
 import { StretchMeanSquares } from "./estimate/stretchMeanSquares.js";
 import type { ResolvedWelchOptions, WelchOptions } from "./estimate/welchOptions.js";
@@ -109,6 +110,8 @@ export interface ChannelAnalysis {
   histogram?: AmplitudeHistogram | undefined;
   /** Reverse-arrangements test on the stretch mean squares (Bendat & Piersol 2010, sec. 10.3). */
   stationarity: StationarityFinding;
+  /** Runs of repeated values: is the record a slower sensor's readings held to the file's rate? */
+  hold?: SampleHold | undefined;
   /** Findings that weaken trust in the result; each names what was seen. */
   warnings: string[];
   /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
@@ -177,7 +180,9 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
   const stretchLength = Number.isFinite(designFs) && designFs > 0 ? Math.max(2, Math.round(stretchS * designFs)) : 2;
   const stretches = select.map(() => new StretchMeanSquares(stretchLength));
-  const listeners: SampleListener[][] = select.map((_, c) => ([moments[c]!, histograms?.[c], welch[c], stretches[c]!] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
+  // Runs of repeated values (sample-and-hold), on every command's pass.
+  const holds = select.map(() => new SampleHoldAccumulator());
+  const listeners: SampleListener[][] = select.map((_, c) => ([moments[c]!, holds[c]!, histograms?.[c], welch[c], stretches[c]!] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
   const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
   let taken = 0;
@@ -231,13 +236,14 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const parseval = parsevalCheck(rmsTime, psd, settings.window);
     const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
     const stationarity = stationarityFinding(stretches[c]!.result(), stretchLength / fs, windowInfo.fromS);
-    const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs);
+    const hold = holds[c]!.result(fs);
+    const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
     const note = stationarityNote(stationarity);
     if (note !== undefined) notes.push({ code: "NOT_STATIONARY", values: stationarityValues(stationarity), text: note });
     if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS }, text: `the window's end ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
-      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });
   return {
@@ -300,15 +306,27 @@ export function clippingHintCount(samples: number): number {
 }
 
 /** The notes and doubts of one channel. @internal (exported for tests/findings.test.ts, which holds their values to their texts) */
-export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number) {
+export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number, hold?: SampleHold) {
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
   if (s.nonFinite > 0) {
     doubts.push({ code: "NON_FINITE", values: { samples: s.nonFinite, segmentsLeftOut: p.skippedSegments }, text: `${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD` });
   }
-  const clip = clippingHintCount(s.count);
-  if (s.atMax >= clip || s.atMin >= clip) {
-    doubts.push({ code: "CLIPPING", values: { atMax: s.atMax, max: s.max, atMin: s.atMin, min: s.min }, text: `possible clipping: ${s.atMax} sample(s) at the maximum ${fmt(s.max)} and ${s.atMin} at the minimum ${fmt(s.min)}` });
+  const held = hold?.held === true ? hold : undefined;
+  if (held) {
+    const fs = held.updateRateHz * held.meanRun; // the file's rate
+    notes.push({
+      code: "HELD_SAMPLES",
+      values: { meanRun: held.meanRun, heldPercent: 100 * held.heldShare, updateRateHz: held.updateRateHz, sampleRateHz: fs, nyquistHz: held.updateRateHz / 2 },
+      text: `held samples: values repeat in runs of ${held.meanRun.toFixed(2)} on average (${(100 * held.heldShare).toFixed(1)} % of samples in runs of two or more): the sensor updated at about ${fmt(held.updateRateHz)} Hz and the file repeats its readings to ${fmt(fs)} Hz; content above ${fmt(held.updateRateHz / 2)} Hz is the hold's images, not motion, and the clipping count takes each held extreme once`,
+    });
+  }
+  // A held extreme is one reading: count runs at the extremes, not samples, when the record is held.
+  const atMax = held ? held.runsAtMax : s.atMax;
+  const atMin = held ? held.runsAtMin : s.atMin;
+  const clip = clippingHintCount(held ? held.runs : s.count);
+  if (atMax >= clip || atMin >= clip) {
+    doubts.push({ code: "CLIPPING", values: { atMax, max: s.max, atMin, min: s.min }, text: `possible clipping: ${atMax} ${held ? "held reading(s)" : "sample(s)"} at the maximum ${fmt(s.max)} and ${atMin} at the minimum ${fmt(s.min)}` });
   }
   // Without a spectrum (inspect) there are no segment, Parseval or amplitude-gate findings.
   if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", values: { samples: frames, segmentLength: segment }, text: `record of ${frames} samples is shorter than one segment of ${segment}` });
@@ -326,7 +344,8 @@ export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: Parsev
       notes.push({ code: "BELOW_FIRST_LINE", values: { sharePercent: 100 * pv.belowFirstLineShare }, text: `${(100 * pv.belowFirstLineShare).toFixed(1)} % of the record's mean square is slower than the first line (drift or a slow trend); the PSD leaves it out` });
     }
     if (s.count > 0 && s.std > 0) {
-      const g = amplitudeGates(s, p, durationS);
+      // Held readings are not independent samples: the gates count readings (updates), not samples.
+      const g = amplitudeGates(held ? { ...s, count: Math.max(1, Math.round(s.count / held.meanRun)) } : s, p, durationS);
       doubts.push(...g.doubts);
       notes.push(...g.notes);
     }

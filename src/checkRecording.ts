@@ -2,6 +2,7 @@ import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type Reco
 import { judgeSpectrum, overallVerdict, withDoubts, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
 import { InputError, quoted } from "./errors.js";
+import type { Finding } from "./findings.js";
 import { readProfileText } from "./read/profileFile.js";
 
 /** How several control channels make one control spectrum (multipoint control). */
@@ -29,6 +30,18 @@ export interface CheckResult {
   /** "judged" without control channels; otherwise "control" or "monitor" (shown, not judged). */
   roles: ("judged" | "control" | "monitor")[];
   control?: ControlJudgement | undefined;
+}
+
+/**
+ * A held channel (sample-and-hold, HELD_SAMPLES) shows above its sensor's Nyquist frequency only the hold's
+ * images: where the profile reaches above it, those lines cannot support a verdict, so the check is in doubt.
+ */
+function heldBand(c: ChannelAnalysis, profile: TestProfile): Finding[] {
+  const h = c.hold;
+  const top = profile.breakpoints[profile.breakpoints.length - 1]!.hz;
+  if (!h?.held || !(top > h.updateRateHz / 2)) return [];
+  const nyq = Number((h.updateRateHz / 2).toPrecision(4));
+  return [{ code: "HELD_BAND", values: { profileTopHz: top, nyquistHz: nyq }, text: `the profile runs to ${top} Hz, but the sensor behind this channel updated only up to ${nyq} Hz (held samples): the lines above show the hold's images, not the motion` }];
 }
 
 /** Read and validate a profile file (JSON, YAML or two-column CSV). */
@@ -94,13 +107,13 @@ export async function checkRecording(file: string, profile: TestProfile, options
   // Control channels are always analysed, with any channels asked for besides.
   const channels = options.control && options.channels?.length ? [...new Set([...options.channels, ...options.control.channels])] : options.channels;
   const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true });
-  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum(spectrumOf(c, analysis), profile), c.doubtFindings));
+  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum(spectrumOf(c, analysis), profile), [...c.doubtFindings, ...heldBand(c, profile)]));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }
   const pos = controlPositions(analysis, options.control.channels);
   const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
-  const doubts = pos.flatMap((i) => analysis.channels[i]!.doubtFindings.map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
+  const doubts = pos.flatMap((i) => [...analysis.channels[i]!.doubtFindings, ...heldBand(analysis.channels[i]!, profile)].map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
   const judgement = withDoubts(judgeSpectrum(combined, profile), doubts);
   return {
     verdict: judgement.verdict, analysis, profile, channels: judged,

@@ -18,6 +18,7 @@ export { normalizeWelchOptions, type WelchOptions, type ResolvedWelchOptions } f
 export { welchPsd, completePsd, bandRms, bandMeanSquare, strongestPeaks, frequencyAxis, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
 export { chiSquareQuantile, chiSquareUpperQuantile, chiSquareCdf, chiSquareSurvival, chiSquareIntervalFactors } from "./estimate/chiSquare.js";
 export { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
+export { SampleHoldAccumulator, type SampleHold } from "./estimate/sampleHold.js";
 export { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
 export { parsevalCheck, parsevalTolerance, studentTQuantile, type ParsevalCheck } from "./estimate/parsevalCheck.js";
 export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfile, type ProfileSegment, type ToleranceBand } from "./compare/testProfile.js";
@@ -43,7 +44,8 @@ export { rideRecording, rideSource, weightedRmsFromPsd, ROUTE_TOLERANCE, type Ri
 export { rideJson, rideText, RIDE_CAUTIONS } from "./report/rideReport.js";
 export { WEIGHTING_NAMES, WEIGHTINGS, analogSections, weightingMagnitude, weightingPowerGains, THIRD_OCTAVE_CENTRES_HZ, type WeightingName, type AnalogSection, type WeightingParameters } from "./weight/isoWeightings.js";
 export { bilinearSection, cascadeMagnitude, BiquadCascade, type DigitalBiquad } from "./weight/bilinearBiquads.js";
-export { designWeightingFilter, weightingCascade, MIN_WEIGHTING_RATE_HZ, type WeightingFilterDesign } from "./weight/weightingFilter.js";
+export { fittedSection } from "./weight/fittedBiquads.js";
+export { designWeightingFilter, weightingCascade, coveredCentresHz, MIN_WEIGHTING_RATE_HZ, SETTLE_S, type WeightingFilterDesign } from "./weight/weightingFilter.js";
 export { VibrationDoseAccumulator, vibrationDose, type VibrationDose, type VibrationDoseOptions } from "./weight/vibrationDose.js";
 export { StretchMeanSquares } from "./estimate/stretchMeanSquares.js";
 export { reverseArrangementsTest, runTest, stationarityFinding, inversionDistribution, runsDistribution, reverseArrangementCount, normalQuantile, type StationarityTest, type StationarityFinding, type DepartingStretch } from "./estimate/stationarityTests.js";

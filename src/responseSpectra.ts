@@ -137,8 +137,11 @@ export interface ResponseSpectra {
   band: { fromHz: number; toHz: number };
   fnHz: Float64Array;
   q: number;
-  durationS: number;
+  /** Exposure of the largest peak and the damage; undefined when neither the options nor the source give one (those figures are then NaN). */
+  durationS: number | undefined;
   sn: SnCurve;
+  /** What the result leaves out for want of an exposure time (empty when it has one). */
+  needsDuration: string[];
   /** Exact RMS of the absolute-acceleration response, in the source's unit. */
   accelRms: Float64Array;
   /** Miles' equation with the input's level at f_n (NaN where f_n is outside the input's band). */
@@ -185,11 +188,10 @@ export function parseFnGrid(text: string, option = "fn"): Float64Array {
 export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
   const q = o.q;
   if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
+  // A profile without durationS or a PSD table has no length of its own: the response RMS, Miles, the
+  // displacement and Rice's rates need none; the largest peak and the damage do, and stay NaN without it.
   const durationS = o.durationS ?? src.durationS;
-  if (durationS === undefined) {
-    throw new InputError("OPTION_MISSING", { file: src.file, option: "durationS", expected: "an exposure time in s (the source has none of its own)", received: "nothing" });
-  }
-  if (!(durationS > 0) || !Number.isFinite(durationS)) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure time in s above 0", received: String(durationS) });
+  if (durationS !== undefined && (!(durationS > 0) || !Number.isFinite(durationS))) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure time in s above 0", received: String(durationS) });
   const sn: SnCurve = { ...SN_DEFAULTS, ...Object.fromEntries(Object.entries(o.sn ?? {}).filter(([, v]) => v !== undefined)) };
   if (!(sn.basquinB >= 1 && sn.basquinB <= 30)) throw new InputError("OPTION_INVALID", { option: "basquinB", expected: "a Basquin exponent b from 1 to 30", received: String(sn.basquinB) });
   const toSi = accelFactor(src.units, "m/s2");
@@ -216,11 +218,11 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     r.upcrossingRateHz[i] = rice.upcrossingRateHz;
     r.peakRateHz[i] = rice.peakRateHz;
     r.irregularity[i] = rice.irregularity;
-    r.peakFactor[i] = davenportPeakFactor(rice.upcrossingRateHz * durationS);
+    r.peakFactor[i] = durationS === undefined ? NaN : davenportPeakFactor(rice.upcrossingRateHz * durationS);
     r.extremePeak[i] = r.peakFactor[i]! * r.accelRms[i]!;
     const nuZ = riceRates(z).upcrossingRateHz;
     r.stressCycleRateHz[i] = nuZ;
-    r.fatigueDamage[i] = narrowBandDamage(zRms, nuZ, durationS, sn);
+    r.fatigueDamage[i] = durationS === undefined ? NaN : narrowBandDamage(zRms, nuZ, durationS, sn);
   }
   const m = spectrumMotion(s, toSi);
   const keep = src.frequencyHz.map((f) => (f >= s.fminHz && f <= s.fmaxHz ? 1 : 0));
@@ -234,7 +236,7 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
   }
   const { spectrum: _s, frequencyHz: _f, level: _l, ...source } = src;
   return {
-    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, ...r,
+    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, needsDuration: durationS === undefined ? ["the largest peak (Davenport)", "the fatigue damage"] : [], ...r,
     motion: { ...m, frequencyHz: fk, velocityPsd: velocityPsd(fk, gk, toSi), displacementPsd: displacementPsd(fk, gk, toSi) },
     stroke,
   };

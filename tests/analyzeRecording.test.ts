@@ -319,3 +319,38 @@ describe("the resolved analysis is recorded whole in the result (issue #10)", ()
     expect(json.analysis.reading.dialect?.decimal).toBe(",");
   });
 });
+
+describe("sample-and-hold on the shared pass (psd, check and ride all read it)", () => {
+  // A phone app logging a 50 Hz sensor at 200 Hz: every reading four times (and 2x: 100 Hz held to 200 Hz).
+  const readings = gaussian(12000, 31, 0.2);
+  for (const factor of [2, 4]) {
+    it(`held ${factor}x: HELD_SAMPLES names the update rate ${200 / factor} Hz; the repeated extremes raise no clipping doubt; check with a profile above its Nyquist is in doubt (HELD_BAND)`, async () => {
+      const x: number[] = [];
+      for (const v of readings.subarray(0, (12000 * factor) / 4)) for (let j = 0; j < factor; j++) x.push(Math.fround(v));
+      const file = join(tempDir(), `held-${factor}x.wav`);
+      writeFileSync(file, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: 200, samples: x }));
+      const a = await analyzeRecording(file, { segmentLength: 256 });
+      const c = a.channels[0]!;
+      const note = c.notes.find((f) => f.code === "HELD_SAMPLES")!;
+      expect(note.values.updateRateHz).toBe(200 / factor);
+      expect(note.values.nyquistHz).toBe(100 / factor);
+      expect(note.text).toContain(`about ${200 / factor} Hz`);
+      expect(c.stats.atMax).toBe(factor); // the samples repeat: the old count would call it clipping
+      expect(c.doubtFindings.map((f) => f.code)).not.toContain("CLIPPING");
+      const { checkRecording } = await import("../src/checkRecording.js");
+      const { parseProfile } = await import("../src/compare/testProfile.js");
+      const profile = parseProfile(JSON.stringify({ title: "to 80 Hz", units: "g2/Hz", points: [{ hz: 5, level: 1e-5 }, { hz: 80, level: 1e-5 }], tolerance: { bands: [{ fromHz: 5, toHz: 80, upperDb: 3, lowerDb: 3 }] } }), "p.json");
+      const r = await checkRecording(file, profile, { inputUnits: "g", histogram: false });
+      const band = r.channels[0]!.findings.find((f) => f.code === "HELD_BAND");
+      expect(band?.values.nyquistHz).toBe(100 / factor);
+      expect(r.verdict).not.toBe("PASS");
+    });
+  }
+  it("not held: seeded noise at 200 Hz carries no HELD_SAMPLES note", async () => {
+    const file = join(tempDir(), "unheld.wav");
+    writeFileSync(file, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: 200, samples: Array.from(readings) }));
+    const a = await analyzeRecording(file, { segmentLength: 256 });
+    expect(a.channels[0]!.notes.map((f) => f.code)).not.toContain("HELD_SAMPLES");
+    expect(a.channels[0]!.hold!.held).toBe(false);
+  });
+});

@@ -49,7 +49,7 @@ export function parseHealthZone(text: string): HealthZone {
 interface RideFlags extends ParsedCommon {
   axes: Partial<Record<Axis, string>>;
   posture: Posture;
-  exposure: number;
+  exposure?: number;
   floor?: string;
   runningRms?: number;
   json?: boolean;
@@ -74,7 +74,7 @@ export function registerRide(program: Command, io: CliIo): void {
       if (!POSTURES.includes(p)) throw new InputError("OPTION_INVALID", { option: "--posture", expected: `one of ${POSTURES.join(", ")}`, received: quoted(t) });
       return p;
     }, "seated" as Posture)
-    .requiredOption("--exposure <duration>", "daily exposure the recording stands for: 8h, 6.5h, 2h30min, 90min, 07:30", exposureOption)
+    .option("--exposure <duration>", "daily exposure the recording stands for: 8h, 6.5h, 2h30min, 90min, 07:30; needed for A(8), the daily VDV and the Directive's values (a_w, VDV, MTVV come without it)", exposureOption)
     .option("--floor <channel>", "vertical floor channel beneath the seat: adds the seat's effective amplitude transmissibility (SEAT)")
     .option("--running-rms <s>", "integration time of the running r.m.s. and of the stationarity stretches (default 1 s)", numberOption("--running-rms", (x) => x > 0 && x <= 60, "an integration time in s, 0 < t <= 60"))
     .option("--health-zone <bounds>", "the ISO 2631-1 Annex B caution zone at 8 h as the lab has confirmed it: a8=LOWER-UPPER,vdv=LOWER-UPPER (default psdgate's a8=0.43-0.86,vdv=8.5-17, to be confirmed)", parseHealthZone)
@@ -83,7 +83,7 @@ export function registerRide(program: Command, io: CliIo): void {
     .option("--report <out.html>", "also write a self-contained HTML report: level over time, spectrograms, spectra, exposure against the limit values")
     .option("--force", "replace an existing report file")
     .option("-q, --quiet", "no progress bar")
-    .addHelpText("after", "\nRide's Welch defaults differ from psd's: 0.125 Hz lines (--resolution) and 75 % overlap (--overlap).\nResults are in SI units (m/s², m/s^1.75); --units and --scale say what the file holds.\nAn engineering estimate from one recording, not an occupational-health assessment: local regulations and competent persons decide.\n")
+    .addHelpText("after", "\nWithout --exposure: a_w, crest factor, VDV, MTVV, total value and comfort of the recording; A(8), the daily VDV and their judgement need it.\nRates from 100 Hz up; every result states the weighting filter's error at its rate (a_w, VDV, MTVV, crest, A(8) carry it).\nRide's Welch defaults differ from psd's: 0.125 Hz lines (--resolution) and 75 % overlap (--overlap).\nResults are in SI units (m/s², m/s^1.75); --units and --scale say what the file holds.\nAn engineering estimate from one recording, not an occupational-health assessment: local regulations and competent persons decide.\n")
     .action(async (file: string, o: RideFlags, cmd: Command) => {
       if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "channels given by --axes (and --floor) for ride", received: o.channel.join(",") });
       if (o.resultUnits !== undefined && o.resultUnits !== "m/s2") throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: "m/s2 (ride results are SI)", received: o.resultUnits });

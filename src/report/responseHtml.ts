@@ -61,8 +61,8 @@ export function responseHtml(r: ResponseSpectra, version: string, when: Date, co
   ];
   const plots = [
     svgPlot({ id: "response-rms", title: `Response RMS (absolute acceleration), Q ${sig(r.q, 4)}`, xLabel: "natural frequency (Hz)", yLabel: `RMS (${u})`, xDomain, yDomain: range(r.accelRms, r.milesRms, ...(against ? [against.b.accelRms] : [])), yLog: true, series: accelSeries }),
-    svgPlot({
-      id: "extreme", title: `Expected largest peak over ${sig(r.durationS, 5)} s${against ? ` (against: ${sig(against.b.durationS, 5)} s)` : ""}`, xLabel: "natural frequency (Hz)", yLabel: `peak (${u})`, xDomain,
+    ...(r.durationS === undefined ? [] : [svgPlot({
+      id: "extreme", title: `Expected largest peak over ${sig(r.durationS, 5)} s${against?.b.durationS !== undefined ? ` (against: ${sig(against.b.durationS, 5)} s)` : ""}`, xLabel: "natural frequency (Hz)", yLabel: `peak (${u})`, xDomain,
       yDomain: range(r.extremePeak, ...(against ? [against.b.extremePeak] : [])), yLog: true,
       series: [{ id: "extreme-a", label: "this input", x: fn, y: r.extremePeak, className: "exact" }, ...(against ? [{ id: "extreme-b", label: "against", x: fn, y: against.b.extremePeak, className: "against" }] : [])],
     }),
@@ -70,9 +70,9 @@ export function responseHtml(r: ResponseSpectra, version: string, when: Date, co
       id: "damage", title: `Fatigue damage (relative; b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)})`, xLabel: "natural frequency (Hz)", yLabel: "damage", xDomain,
       yDomain: range(r.fatigueDamage, ...(against ? [against.b.fatigueDamage] : [])), yLog: true,
       series: [{ id: "damage-a", label: "this input", x: fn, y: r.fatigueDamage, className: "exact" }, ...(against ? [{ id: "damage-b", label: "against", x: fn, y: against.b.fatigueDamage, className: "against" }] : [])],
-    }),
+    })]),
   ];
-  const rows = Array.from(fn, (f, i) => `<tr><td class="num">${sig(f, 4)}</td><td class="num">${sig(r.accelRms[i]!, 4)}</td><td class="num">${Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "–"}</td><td class="num">${sig(r.relDispRms[i]! * 1000, 4)}</td><td class="num">${sig(r.extremePeak[i]!, 4)}</td><td class="num">${r.fatigueDamage[i]!.toExponential(3)}</td>${against ? `<td class="num">${fixed(against.c.rmsRatioDb[i]!, 2)}</td><td class="num">${sig(against.c.damageRatio[i]!, 3)}</td>` : ""}</tr>`).join("\n");
+  const rows = Array.from(fn, (f, i) => `<tr><td class="num">${sig(f, 4)}</td><td class="num">${sig(r.accelRms[i]!, 4)}</td><td class="num">${Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "–"}</td><td class="num">${sig(r.relDispRms[i]! * 1000, 4)}</td><td class="num">${Number.isFinite(r.extremePeak[i]!) ? sig(r.extremePeak[i]!, 4) : "–"}</td><td class="num">${Number.isFinite(r.fatigueDamage[i]!) ? r.fatigueDamage[i]!.toExponential(3) : "–"}</td>${against ? `<td class="num">${fixed(against.c.rmsRatioDb[i]!, 2)}</td><td class="num">${sig(against.c.damageRatio[i]!, 3)}</td>` : ""}</tr>`).join("\n");
   const mo = r.motion;
   const body = `<style>${EXTRA_STYLE}</style>
 <div class="verdict none" id="verdict" data-verdict="none"><span class="word">SDOF</span><span>${esc(summary)}</span></div>
@@ -86,12 +86,12 @@ ${row("Source", `${esc(s.file)} (${esc(sourceWords(r))})`)}
 ${row("Source SHA-256", `<span class="hash">${s.sha256}</span>`)}
 ${row("Band used", `${qty(sig(r.band.fromHz, 4), "Hz")} to ${qty(sig(r.band.toHz, 5), "Hz")}, ${qty(sig(mo.accelerationRms, 4), u)} RMS`)}
 ${s.settings ? row("PSD of the recording", `${s.settings.segmentLength}-point segments, ${qty(sig(s.settings.resolutionHz, 4), "Hz")} lines, ${s.settings.averages} averages, ${fixed(s.settings.dof, 1)} DOF`) : ""}
-${against ? row("Compared against", `${esc(against.b.source.file)} (${esc(sourceWords(against.b))}), <span class="hash">${against.b.source.sha256.slice(0, 12)}</span>, exposure ${qty(sig(against.b.durationS, 5), "s")}`) : ""}
+${against ? row("Compared against", `${esc(against.b.source.file)} (${esc(sourceWords(against.b))}), <span class="hash">${against.b.source.sha256.slice(0, 12)}</span>, exposure ${against.b.durationS === undefined ? "not given" : qty(sig(against.b.durationS, 5), "s")}`) : ""}
 </table>
 <h2>Settings and assumptions</h2>
 <table class="meta" id="settings">
 ${row("System", `single degree of freedom, base-driven, Q ${sig(r.q, 4)} (ζ ${sig(1 / (2 * r.q), 3)}), ${fn.length} natural frequencies`)}
-${row("Exposure", `${qty(sig(r.durationS, 5), "s")} for the largest peak and the damage`)}
+${row("Exposure", r.durationS === undefined ? `not given and the source has none: ${esc(r.needsDuration.join(" and "))} need one (--duration)` : `${qty(sig(r.durationS, 5), "s")} for the largest peak and the damage`)}
 ${row("S-N curve", `N S^b = C with b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement${r.sn.snConstant === 1 && r.sn.stressPerUnit === 1 ? " (a relative damage: only ratios at the same b mean anything)" : ""}`)}
 ${row("Rules", "response RMS by integrating |T|² G (no white-noise assumption) beside Miles' equation; largest peak by Davenport 1964; damage narrow-band Rayleigh (Miles 1954)")}
 ${row("Units", `${esc(u)} for accelerations, as the source states; relative displacement in mm; velocity in mm/s`)}

@@ -24,8 +24,9 @@ function spectraJson(r: ResponseSpectra) {
     irregularity: arr(r.irregularity),
     peakFactor: arr(r.peakFactor),
     extremePeak: arr(r.extremePeak),
-    durationS: r.durationS,
+    durationS: r.durationS ?? null,
     fatigueDamage: arr(r.fatigueDamage),
+    needsDuration: r.needsDuration,
   };
 }
 
@@ -96,7 +97,7 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
   const lines = [
     `psdgate ${version}: SDOF response to ${s.file} (${what})`,
     `  input      ${sig(r.band.fromHz, 4)}–${sig(r.band.toHz, 5)} Hz, ${sig(r.motion.accelerationRms, 4)} ${u} RMS${s.settings ? `; PSD of ${s.settings.segmentLength}-point segments, ${sig(s.settings.resolutionHz, 4)} Hz lines, ${s.settings.averages} averages` : ""}`,
-    `  system     Q ${sig(r.q, 4)} (zeta ${sig(1 / (2 * r.q), 3)}), base-driven; exposure ${sig(r.durationS, 5)} s; Basquin b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement`,
+    `  system     Q ${sig(r.q, 4)} (zeta ${sig(1 / (2 * r.q), 3)}), base-driven; exposure ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}; Basquin b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement`,
     "",
   ];
   const rows = [["fn Hz", `accel RMS ${u}`, `Miles ${u}`, "exact/Miles", "rel. disp. RMS mm", "nu0+ /s", `largest peak ${u}`, "damage"]];
@@ -104,10 +105,11 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     rows.push([
       sig(r.fnHz[i]!, 4), sig(r.accelRms[i]!, 4), Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "-",
       Number.isFinite(r.milesRms[i]!) ? fixed(r.accelRms[i]! / r.milesRms[i]!, 3) : "-", mm(r.relDispRms[i]!), sig(r.upcrossingRateHz[i]!, 4),
-      sig(r.extremePeak[i]!, 4), r.fatigueDamage[i]!.toExponential(3),
+      Number.isFinite(r.extremePeak[i]!) ? sig(r.extremePeak[i]!, 4) : "-", Number.isFinite(r.fatigueDamage[i]!) ? r.fatigueDamage[i]!.toExponential(3) : "-",
     ]);
   }
   lines.push(table(rows), "");
+  if (r.needsDuration.length > 0) lines.push(`  exposure   not given and the source has none (a profile without durationS, a PSD table): ${r.needsDuration.join(" and ")} need one (--duration); the RMS, Miles, displacement and rates above do not`, "");
   lines.push(
     "  exact      integral of |T|² G (absolute acceleration) and of the relative-displacement transfer over the input, no white-noise assumption.",
     "  Miles      sqrt(pi/2 fn Q G(fn)): assumes the input flat around fn and drops the 1/Q term, so exact/Miles is sqrt(1 + 1/Q²) on a flat input;",
@@ -132,7 +134,7 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     const { b, c } = against;
     lines.push(
       "",
-      `  against    ${b.source.file} (${b.source.kind === "profile" ? `profile "${b.source.label}"` : `${b.source.kind}, channel ${b.source.label}`}), exposure ${sig(b.durationS, 5)} s against ${sig(r.durationS, 5)} s`,
+      `  against    ${b.source.file} (${b.source.kind === "profile" ? `profile "${b.source.label}"` : `${b.source.kind}, channel ${b.source.label}`}), exposure ${b.durationS === undefined ? "not given" : `${sig(b.durationS, 5)} s`} against ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}`,
     );
     const rows2 = [["fn Hz", "RMS B/A dB", "largest peak B/A dB", "damage B/A", ""]];
     for (let i = 0; i < r.fnHz.length; i++) {

@@ -122,6 +122,7 @@ function spectrumPlot(a: RideAxis, r: RideResult, n: number): string {
 
 function exposurePlot(r: RideResult): string {
   const e = r.exposure;
+  if (e === undefined) return "";
   const D = DIRECTIVE_2002_44_EC;
   const worst = e.a8 / Math.sqrt(e.durationS / EIGHT_HOURS_S);
   const hours = Float64Array.from({ length: 121 }, (_, i) => i / 10);
@@ -156,7 +157,10 @@ export function rideHtml(r: RideResult, version: string, when: Date, context: Om
   const name = a.input.file.split(/[\\/]/).pop() ?? a.input.file;
   const title = m?.testId ? `Whole-body vibration, test ${m.testId}: ${name}` : `Whole-body vibration: ${name}`;
   const axisRows = r.axes.map((x) => `<tr><td>${esc(x.axis)}</td><td>${esc(x.channel)}</td><td>${x.weighting}</td><td class="num">${sig(x.dose.rms, 4)}</td><td class="num">${sig(x.awFromPsd, 4)}</td><td class="num">${fixed(x.dose.crestFactor, 2)}</td><td class="num">${sig(x.dose.vdv, 4)}</td><td class="num">${sig(x.dose.mtvv, 4)}</td><td class="num">${x.rule.healthK}</td><td>${x.basicMethod.adequate ? "adequate" : esc(x.basicMethod.exceeded.join("; "))}</td><td>${x.stationarity.tested ? (x.stationarity.stationary ? "stationary" : "not stationary") : "not tested"}</td></tr>`).join("\n");
-  const summary = `A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}) for ${sig(e.durationS / 3600, 3)} h a day: ${e.directive.a8} of Directive 2002/44/EC; VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${e.directive.vdv}.`;
+  const top = r.axes.reduce((w, x) => (x.rule.healthK * x.dose.rms > w.rule.healthK * w.dose.rms ? x : w), r.axes[0]!);
+  const summary = e
+    ? `A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}) for ${sig(e.durationS / 3600, 3)} h a day: ${e.directive.a8} of Directive 2002/44/EC; VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${e.directive.vdv}.`
+    : `k a_w ${sig(top.rule.healthK * top.dose.rms, 3)} m/s² on ${top.axis}, VDV of the recording ${sig(top.dose.vdv, 3)} m/s^1.75; no daily exposure stated, so no A(8) or judgement against the Directive.`;
   const body = `<style>${RIDE_STYLE}</style>
 <div class="verdict none" id="verdict" data-verdict="none"><span class="word">RIDE</span><span>${esc(summary)}</span></div>
 <h2>Test identity</h2>
@@ -183,10 +187,10 @@ ${row("Caution zone", `A(8) ${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s², VDV ${Z.vdv
 </table>
 <h2>Exposure</h2>
 <table class="meta" id="exposure-table">
-${row("Stated exposure", `${sig(e.durationS / 3600, 3)} h a day`)}
+${e ? `${row("Stated exposure", `${sig(e.durationS / 3600, 3)} h a day`)}
 ${row("A(8)", `${sig(e.a8, 3)} m/s² (${e.a8Axis}): ${esc(e.directive.a8)} of Directive 2002/44/EC (action ${D.a8ActionMs2}, limit ${D.a8LimitMs2} m/s²)`)}
 ${row("VDV for the exposure", `${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${esc(e.directive.vdv)} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`)}
-${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75)`)}
+${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75)`)}` : row("Stated exposure", "not stated: no A(8), daily VDV or judgement against the Directive and Annex B")}
 ${row("Vibration total value", `${sig(r.totalValue.comfort, 3)} m/s² (comfort factors), ${sig(r.totalValue.health, 3)} m/s² (health factors)`)}
 ${row("Comfort (ISO 2631-1 Annex C)", esc(r.comfort.reactions.join(" or ")))}
 ${r.seat ? row("Seat (SEAT)", `${fixed(100 * r.seat.seat, 1)} %: seat z ${sig(r.seat.awSeat, 4)} over floor z (${esc(r.seat.floorChannel)}) ${sig(r.seat.awFloor, 4)} m/s²`) : ""}

@@ -35,10 +35,12 @@ export function rideText(r: RideResult, version: string): string {
   const Z = r.healthZone;
   out.push(`  total      vibration total value ${sig(r.totalValue.comfort, 3)} m/s² with the comfort factors, ${sig(r.totalValue.health, 3)} m/s² with the health factors`);
   out.push(`  comfort    ISO 2631-1 Annex C, for ${sig(r.totalValue.comfort, 3)} m/s²: ${r.comfort.reactions.map((w) => `"${w}"`).join(" or ")}`);
-  out.push(`  exposure   ${hours(e.durationS)} a day: A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}), VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis})`);
-  out.push(`  Directive 2002/44/EC   A(8) ${e.directive.a8} (action ${D.a8ActionMs2}, reached after ${hours(e.a8ActionAfterS)}; limit ${D.a8LimitMs2}, after ${hours(e.a8LimitAfterS)})`);
-  out.push(`                         VDV ${e.directive.vdv} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`);
-  out.push(`  ISO 2631-1 Annex B     A(8) ${e.healthZone.a8} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s² at 8 h), VDV ${e.healthZone.vdv} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75; ${zoneFrom(r)})`);
+  if (e) {
+    out.push(`  exposure   ${hours(e.durationS)} a day: A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}), VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis})`);
+    out.push(`  Directive 2002/44/EC   A(8) ${e.directive.a8} (action ${D.a8ActionMs2}, reached after ${hours(e.a8ActionAfterS)}; limit ${D.a8LimitMs2}, after ${hours(e.a8LimitAfterS)})`);
+    out.push(`                         VDV ${e.directive.vdv} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`);
+    out.push(`  ISO 2631-1 Annex B     A(8) ${e.healthZone.a8} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s² at 8 h), VDV ${e.healthZone.vdv} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75; ${zoneFrom(r)})`);
+  } else out.push("  exposure   not stated (--exposure): no A(8), daily VDV or judgement against Directive 2002/44/EC and ISO 2631-1 Annex B");
   if (r.seat) out.push(`  seat       SEAT ${fixed(100 * r.seat.seat, 1)} %: seat z a_w ${sig(r.seat.awSeat, 4)} over floor z (${r.seat.floorChannel}) ${sig(r.seat.awFloor, 4)} m/s², Wk on both`);
   for (const x of r.axes) {
     const s = x.stationarity;
@@ -80,10 +82,13 @@ export function rideJson(r: RideResult, version: string) {
       basicMethodAdequate: x.basicMethod.adequate,
       stationarity: stationarityJson(x.stationarity),
       filterMaxErrorPct: x.filter.maxErrorPct,
+      filterMaxErrorAtHz: x.filter.maxErrorAtHz,
+      filterTopCentreHz: x.filter.topCentreHz,
+      filterMethod: x.filter.method,
     })),
     totalValue: { comfort: finiteOrNull(r.totalValue.comfort), health: finiteOrNull(r.totalValue.health) },
     comfort: { reactions: r.comfort.reactions },
-    exposure: {
+    exposure: e ? {
       durationS: e.durationS,
       a8: finiteOrNull(e.a8),
       a8Axis: e.a8Axis,
@@ -93,10 +98,11 @@ export function rideJson(r: RideResult, version: string) {
       a8LimitAfterS: finiteOrNull(e.a8LimitAfterS),
       directive2002_44_EC: { a8: e.directive.a8, vdv: e.directive.vdv, ...DIRECTIVE_2002_44_EC },
       iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...r.healthZone },
-    },
+    } : null,
     seat: r.seat ? { floorChannel: r.seat.floorChannel, awFloor: r.seat.awFloor, awFloorFromPsd: r.seat.awFloorFromPsd, awFloorWelchWeighted: r.seat.awFloorWelchWeighted, awSeat: r.seat.awSeat, seat: r.seat.seat } : null,
     notes: r.notes,
     doubts: r.doubts,
+    findings: { notes: r.noteFindings, doubts: r.doubtFindings },
     cautions: RIDE_CAUTIONS,
   };
 }

@@ -10,9 +10,10 @@ import type { AnalogSection } from "./isoWeightings.js";
  * at its own pole frequency: the corners of the band limits (0.4 and 100 Hz) and of the transition and
  * step sit where the analog ones do, and the warping error of a section grows only towards Nyquist,
  * as (pi f / fs)^2 / 3 in frequency (Taylor series of tan). The error of the realised magnitude against
- * the analog one is stated by `cascadeError` and checked in tests/weight/bilinearBiquads.test.ts: at the
- * one-third-octave centres 0.5-80 Hz it is within 0.06 % at fs = 5120 Hz, 0.4 % at 2000 Hz, 1.5 % at
- * 1000 Hz and 5.6 % at 512 Hz, most of it near 80 Hz (at 8 Hz and below it stays under 0.1 % from 512 Hz up).
+ * the analog one, at the one-third-octave centres 0.5-80 Hz, is within 0.06 % at fs = 5120 Hz, 0.4 % at
+ * 2000 Hz, 1.5 % at 1000 Hz, 5.6 % at 512 Hz and 11 % at 400 Hz, most of it near 80 Hz; at 200 Hz the 100 Hz
+ * band limit cannot be pre-warped at all. weightingFilter.ts therefore also makes the fitted realisation
+ * (fittedBiquads.ts) and keeps the closer of the two; this file keeps the high-pass and the cascade.
  */
 export interface DigitalBiquad {
   b0: number;
@@ -60,12 +61,19 @@ export function cascadeMagnitude(sections: readonly DigitalBiquad[], gain: numbe
 
 /**
  * A cascade of biquads run over blocks, transposed direct form II (one state pair per section).
- * State carries across blocks. Before the first sample the state is set to the steady state for a
- * constant input (as scipy.signal.lfilter_zi gives it) equal to the mean of the first block, so a DC
- * offset such as gravity on a vertical axis starts no transient. Starting at the first sample instead
- * (lfilter_zi * x[0]) would kick the 0.4 Hz high-pass with a step of that sample's noise, which on a
- * zero-mean record shows up as a second-long transient in the first MTVV window. A non-finite input is replaced by the last finite
- * one (counted in `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
+ * State carries across blocks. Before the first sample the cascade settles on the record's own start
+ * played backwards: the odd reflection of the first `settleSamples` samples about their mean
+ * (scipy.signal.filtfilt pads with the odd reflection about x[0]; about the mean, one sample's noise does
+ * not set the level), run from the steady state for that mean (scipy.signal.lfilter_zi times it), output
+ * discarded. The state at x[0] is then that of a record that had been running at its start's level, with
+ * its start's content, so neither gravity on an axis nor the gravity a tilting sensor starts with sets off
+ * a transient, and no sample of the record is left out. (A straight-line fit in place of the mean was
+ * tried: over 5 s it reads a 4 Hz sine as a slope of 0.02 /s and kicked the high-pass with it.) Starting at x[0] instead (lfilter_zi * x[0])
+ * kicks the 0.4 Hz high-pass with that sample's noise; starting at the mean of a long first block kicks
+ * it with the difference between that mean and the start's level (a sensor that tilts during the ride).
+ * Whatever the steady start leaves in the state decays through the reflection: exp(-zeta w1 K/fs) for
+ * the slowest section (0.4 Hz, zeta 0.707: 1e-4 after 5 s). A non-finite input is replaced by the last
+ * finite one (counted in `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
  */
 export class BiquadCascade {
   private readonly coef: Float64Array;
@@ -75,7 +83,11 @@ export class BiquadCascade {
   private last = 0;
   heldSamples = 0;
 
-  constructor(sections: readonly DigitalBiquad[], readonly gain: number) {
+  /** Samples of the start the cascade settles on before the first sample (0: steady state for the first block's mean only). */
+  readonly settleSamples: number;
+
+  constructor(sections: readonly DigitalBiquad[], readonly gain: number, settleSamples = 0) {
+    this.settleSamples = Math.max(0, Math.floor(settleSamples));
     this.count = sections.length;
     this.coef = new Float64Array(5 * this.count);
     this.state = new Float64Array(2 * this.count);
@@ -83,8 +95,8 @@ export class BiquadCascade {
   }
 
   /**
-   * Start the filter as though the input had been u forever (steady state of every section). Called by
-   * the first `process` with the mean of its block unless called before.
+   * Start the filter as though the input had been u forever (steady state of every section). The first
+   * `process` settles the cascade on the record's start (settleOn) unless this was called before.
    */
   startAt(u: number): void {
     this.settle(u);
@@ -92,48 +104,36 @@ export class BiquadCascade {
     this.started = true;
   }
 
-  /** Steady state of every section for the constant input u (before the gain). */
-  private settle(u: number): void {
-    let x = u;
-    const c = this.coef;
-    for (let i = 0; i < this.count; i++) {
-      const b0 = c[5 * i]!, b1 = c[5 * i + 1]!, b2 = c[5 * i + 2]!, a1 = c[5 * i + 3]!, a2 = c[5 * i + 4]!;
-      const y = ((b0 + b1 + b2) / (1 + a1 + a2)) * x;
-      const s2 = b2 * x - a2 * y;
-      this.state[2 * i + 1] = s2;
-      this.state[2 * i] = b1 * x - a1 * y + s2;
-      x = y;
+  /**
+   * Settle on the start: the mean m of the first K = min(settleSamples, frames) finite samples, the steady
+   * state for m, then the odd reflection of the start about m, x[-k] = 2 m - x[k] for k = K-1 ... 1, run
+   * through the cascade with its output discarded. The reflection has the start's level and spectrum, and a
+   * sine keeps its phase through it. settleSamples 0: the steady state for the block's mean only.
+   */
+  private settleOn(x: Float64Array, frames: number): void {
+    const k = this.settleSamples > 0 ? Math.min(this.settleSamples, frames) : frames;
+    let n = 0;
+    let sum = 0;
+    for (let i = 0; i < k; i++) {
+      const v = x[i]!;
+      if (v - v === 0) {
+        n++;
+        sum += v;
+      }
     }
+    const m = n > 0 ? sum / n : 0;
+    this.startAt(m);
+    if (this.settleSamples === 0 || k < 2) return;
+    const r = new Float64Array(k - 1);
+    for (let j = 0; j < k - 1; j++) {
+      const v = x[k - 1 - j]!;
+      r[j] = v - v === 0 ? 2 * m - v : m;
+    }
+    this.run(r, k - 1);
   }
 
-  /** y[i] = H{x}[i] for i < frames; y may be x (in place). */
-  process(x: Float64Array, y: Float64Array, frames: number): void {
-    if (frames === 0) return;
-    if (!this.started) {
-      // The level before the record: the mean of the first block's finite samples (the DC estimate).
-      let sum = 0;
-      let n = 0;
-      for (let i = 0; i < frames; i++) {
-        const v = x[i]!;
-        if (v - v === 0) {
-          sum += v;
-          n++;
-        }
-      }
-      this.startAt(n > 0 ? sum / n : 0);
-    }
-    let held = 0;
-    let last = this.last;
-    for (let i = 0; i < frames; i++) {
-      let v = x[i]!;
-      if (v - v !== 0) {
-        v = last;
-        held++;
-      } else last = v;
-      y[i] = v;
-    }
-    this.last = last;
-    this.heldSamples += held;
+  /** The cascade over y[0..frames) in place (no gain, no NaN handling). */
+  private run(y: Float64Array, frames: number): void {
     const c = this.coef;
     const st = this.state;
     for (let k = 0; k < this.count; k++) {
@@ -154,6 +154,39 @@ export class BiquadCascade {
       st[2 * k] = s1;
       st[2 * k + 1] = s2;
     }
+  }
+
+  /** Steady state of every section for the constant input u (before the gain). */
+  private settle(u: number): void {
+    let x = u;
+    const c = this.coef;
+    for (let i = 0; i < this.count; i++) {
+      const b0 = c[5 * i]!, b1 = c[5 * i + 1]!, b2 = c[5 * i + 2]!, a1 = c[5 * i + 3]!, a2 = c[5 * i + 4]!;
+      const y = ((b0 + b1 + b2) / (1 + a1 + a2)) * x;
+      const s2 = b2 * x - a2 * y;
+      this.state[2 * i + 1] = s2;
+      this.state[2 * i] = b1 * x - a1 * y + s2;
+      x = y;
+    }
+  }
+
+  /** y[i] = H{x}[i] for i < frames; y may be x (in place). */
+  process(x: Float64Array, y: Float64Array, frames: number): void {
+    if (frames === 0) return;
+    if (!this.started) this.settleOn(x, frames);
+    let held = 0;
+    let last = this.last;
+    for (let i = 0; i < frames; i++) {
+      let v = x[i]!;
+      if (v - v !== 0) {
+        v = last;
+        held++;
+      } else last = v;
+      y[i] = v;
+    }
+    this.last = last;
+    this.heldSamples += held;
+    this.run(y, frames);
     const g = this.gain;
     if (g !== 1) for (let i = 0; i < frames; i++) y[i]! *= g;
   }

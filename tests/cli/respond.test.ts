@@ -1,5 +1,7 @@
 import { describe, expect, it } from "vitest";
-import { cli } from "../helpers.js";
+import { writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { cli, tempDir } from "../helpers.js";
 
 describe("psdgate respond", () => {
   it("--json carries the documented keys: fnHz, q, accelRms, milesRms, relDispRms (m), extremePeak, durationS, fatigueDamage, basquinB", async () => {
@@ -46,5 +48,21 @@ describe("psdgate respond", () => {
       expect(r.stderr.trim().split("\n").length).toBe(1);
       expect(r.stderr).toContain(`[${code}]`);
     }
+  });
+  it("a profile without durationS and no --duration: exit 0 with the response RMS and Miles; the largest peak and damage are null and the text says they need --duration", async () => {
+    const file = join(tempDir(), "no-duration.yaml");
+    writeFileSync(file, "title: flat\nunits: g2/Hz\npoints: [{hz: 20, level: 0.04}, {hz: 2000, level: 0.04}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\n");
+    const r = await cli("respond", file, "--fn", "100", "--q", "10", "--json");
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.durationS).toBeNull();
+    expect(j.accelRms[0]).toBeGreaterThan(7.8); // 7.914 g (REFERENCES.md sec. 4)
+    expect(j.milesRms[0]).toBeCloseTo(7.927, 3);
+    expect(j.extremePeak).toEqual([null]);
+    expect(j.fatigueDamage).toEqual([null]);
+    expect(j.needsDuration).toEqual(["the largest peak (Davenport)", "the fatigue damage"]);
+    const t = await cli("respond", file, "--fn", "100", "--q", "10");
+    expect(t.code).toBe(0);
+    expect(t.stdout).toContain("need one (--duration)");
   });
 });

@@ -1,6 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { parseAxes, parseDuration } from "../../src/cli/ride.js";
-import { cli } from "../helpers.js";
+import { writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { cli, tempDir } from "../helpers.js";
 
 const base = ["ride", "samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3"];
 
@@ -53,6 +55,35 @@ describe("psdgate ride", () => {
       expect(r.stderr).toContain(`[${code}]`);
       expect(r.stdout).toBe("");
     }
+  });
+  it("without --exposure: exit 0 with a_w, VDV and MTVV; exposure null in JSON; the text says what the exposure is needed for", async () => {
+    const r = await cli(...base, "--json");
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.exposure).toBeNull();
+    for (const a of j.axes) for (const k of ["aw", "vdv", "mtvv"]) expect(typeof a[k]).toBe("number");
+    expect(j.findings.notes.map((f: { code: string }) => f.code)).toContain("EXPOSURE_NOT_GIVEN");
+    const t = await cli(...base);
+    expect(t.stdout).toContain("exposure   not stated (--exposure)");
+    expect(t.stdout).toMatch(/note +at 1000 Hz the time-domain weightings are within [\d.e-]+ % of ISO 2631-1's \|W\(f\)\|/);
+  });
+  it("a phone CSV at exactly 200 Hz (stamps in s, 3 decimals, gravity on z) runs: exit 0, and the result states the weighting's error at 200 Hz", async () => {
+    const rows = ["time,ax,ay,az"];
+    for (let i = 0; i < 200 * 30; i++) {
+      const t = i / 200;
+      rows.push(`${t.toFixed(3)},${(0.2 * Math.sin(2 * Math.PI * 1.3 * t)).toFixed(5)},${(-1 + 0.1 * Math.sin(2 * Math.PI * 2.1 * t)).toFixed(5)},${(9.81 + 0.5 * Math.sin(2 * Math.PI * 5.2 * t)).toFixed(5)}`);
+    }
+    const file = join(tempDir(), "phone-200hz.csv");
+    writeFileSync(file, rows.join("\n") + "\n");
+    const r = await cli("ride", file, "--units", "m/s2", "--axes", "x=ax,y=ay,z=az", "--json");
+    expect(r.stderr).toBe("");
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.input.sampleRateHz).toBe(200);
+    const e = j.findings.notes.find((f: { code: string }) => f.code === "WEIGHTING_ERROR");
+    expect(e.values.rateHz).toBe(200);
+    expect(e.values.maxErrorPercent).toBe(2.7);
+    expect(e.text).toContain("a_w, crest factor, VDV, MTVV and the total value carry it");
   });
   it("--help lists the ride options", async () => {
     const r = await cli("ride", "--help");

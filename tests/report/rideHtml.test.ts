@@ -22,6 +22,13 @@ describe("rideHtml", () => {
     expect(html).toContain("not an occupational-health assessment");
     expect(html).toContain("competent persons decide");
   });
+  it("without an exposure: no A(8) plot, the exposure row says what is missing, and the weighting's error is among the notes", async () => {
+    const r = await rideRecording("samples/marlow-uv3-ride.wav", { inputUnits: "m/s2", scale: 40, axes: { z: "3" }, posture: "seated", spectrogram: true, fromS: 100, toS: 140 });
+    const html = rideHtml(r, "9.9.9", new Date("2026-12-02T01:00:00Z"));
+    expect(html).not.toContain(`data-series="a8-curve"`);
+    expect(html).toContain("not stated: no A(8), daily VDV or judgement against the Directive and Annex B");
+    expect(html).toMatch(/time-domain weighting is within [\d.]+ % of ISO 2631-1&#39;s \|W\(f\)\||time-domain weighting is within [\d.]+ % of ISO 2631-1's \|W\(f\)\|/);
+  });
   it("the spectrogram has one row per whole stretch inside the window (40 s: two of 16.4 s), every band mean square >= 0", async () => {
     const r = await rideRecording("samples/marlow-uv3-ride.wav", { inputUnits: "m/s2", scale: 40, axes: { z: "3" }, posture: "seated", exposureS: 3600, spectrogram: true, fromS: 100, toS: 140 });
     const s = r.axes[0]!.spectrogram!;
