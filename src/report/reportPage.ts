@@ -65,7 +65,8 @@ table.excursions td:last-child { width: 30%; } table.excursions { font-size: 8.5
 .deviation { fill: none; stroke: #1b4f7a; stroke-width: 1.1; }
 .shown { fill: #c0392b; stroke: #111; stroke-width: .6; }
 .bars { fill: #9fb8c8; stroke: #5d7f93; stroke-width: .4; } .gauss { fill: none; stroke: #b0552f; stroke-width: 1.6; stroke-dasharray: 6 3; }
-.caution { border-left: 4px solid #b0552f; padding: 2mm 4mm; background: #fbf3ee; margin: 3mm 0; }
+.caution { border-left: 4px solid #b0552f; padding: 2mm 4mm; background: #fbf3ee; margin: 3mm 0; break-inside: avoid; }
+thead { display: table-header-group; break-inside: avoid; break-after: avoid; } table.grid tbody tr:first-child { break-before: avoid; }
 .signoff-block { break-inside: avoid; margin-top: 6mm; }
 .signoff { margin-top: 5mm; display: grid; grid-template-columns: 1fr 1fr 0.6fr; gap: 8mm; }
 .signoff div { border-top: 1px solid #1d2428; padding-top: 1.5mm; font-size: 9pt; color: #4b5c63; height: 17mm; }
