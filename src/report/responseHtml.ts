@@ -55,7 +55,7 @@ export function responseHtml(r: ResponseSpectra, version: string, when: Date, co
   const st = r.stroke;
   const summary = `Q ${sig(r.q, 4)} over ${sig(fn[0]!, 4)}–${sig(fn[fn.length - 1]!, 4)} Hz: largest response ${sig(r.accelRms[worst]!, 4)} ${u} RMS at ${sig(fn[worst]!, 4)} Hz; displacement ${sig(r.motion.displacementPeakToPeak * 1000, 4)} mm peak-to-peak${st ? ` against ${sig(st.ratedMm, 4)} mm rated stroke: ${st.withinRating ? "within" : "EXCEEDS"}` : " (no rated stroke given)"}.`;
   const accelSeries: Series[] = [
-    { id: "accel-exact", label: "exact", x: fn, y: r.accelRms, className: "exact", markers: fn.length < 40 },
+    { id: "accel-exact", label: "exact", x: fn, y: r.accelRms, className: "exact" },
     { id: "accel-miles", label: "Miles", x: fn, y: r.milesRms, className: "miles" },
     ...(against ? [{ id: "accel-against", label: `against: ${against.b.source.label}`, x: fn, y: against.b.accelRms, className: "against" }] : []),
   ];

@@ -50,8 +50,8 @@ function outputSection(t: TransferAnalysis, o: TransferOutput, n: number): strin
         { id: "h2", label: "H2", x: f, y: o.h2Magnitude, className: "h2" },
       ],
     }),
-    svgPlot({ id: `phase-${n}`, title: `phase of ${o.name} relative to ${t.reference.name}`, xLabel: "frequency (Hz)", yLabel: "phase (degrees)", xDomain, yDomain: [-180, 180], yLog: false, series: [{ id: "phase", label: "", x: f, y: o.phaseDeg, className: "phase" }] }),
-    svgPlot({ id: `coherence-${n}`, title: "coherence γ²", xLabel: "frequency (Hz)", yLabel: "coherence", xDomain, yDomain: [0, 1], yLog: false, series: [{ id: "coherence", label: "", x: f, y: o.coherence, className: "coherence" }] }),
+    svgPlot({ id: `phase-${n}`, title: `phase of ${o.name} relative to ${t.reference.name}`, xLabel: "frequency (Hz)", yLabel: "phase (degrees)", xDomain, yDomain: [-180, 180], yLog: false, height: 230, series: [{ id: "phase", label: "", x: f, y: o.phaseDeg, className: "phase" }] }),
+    svgPlot({ id: `coherence-${n}`, title: "coherence γ²", xLabel: "frequency (Hz)", yLabel: "coherence", xDomain, yDomain: [0, 1], yLog: false, height: 230, series: [{ id: "coherence", label: "", x: f, y: o.coherence, className: "coherence" }] }),
     svgPlot({
       id: `psd-${n}`, title: `output PSD of ${o.name}: measured and predicted |H1|² G_in`, xLabel: "frequency (Hz)", yLabel: u, xDomain, yDomain: psdRange, yLog: true,
       series: [
