@@ -1,6 +1,16 @@
+import { availableParallelism } from "node:os";
 import { defineConfig } from "vitest/config";
 
 export default defineConfig({
-  // globalSetup: the throwaway PostgreSQL server of the queue tests (tests/queue/globalSetup.ts).
-  test: { include: ["tests/**/*.test.ts"], testTimeout: 60000, hookTimeout: 60000, globalSetup: ["tests/queue/globalSetup.ts"] },
+  test: {
+    // `npm run test:slow` narrows this to the slow set (scripts/test.mjs, which `npm test` leaves it out of).
+    include: process.env.PSDGATE_TEST_INCLUDE ? process.env.PSDGATE_TEST_INCLUDE.split(",") : ["tests/**/*.test.ts"],
+    testTimeout: 60000,
+    hookTimeout: 60000,
+    // The throwaway PostgreSQL server of the queue tests (tests/queue/globalSetup.ts).
+    globalSetup: ["tests/queue/globalSetup.ts"],
+    // One test file per core. vitest's default keeps a core for itself (cores - 1), which on a 2-core machine
+    // ran one file at a time; its own process is idle while the files run.
+    maxWorkers: Math.max(2, availableParallelism()),
+  },
 });

@@ -1,10 +1,12 @@
 // `npm run bench:kernels`: the two hot kernels alone, on one thread, on built code (npm run build).
-//   - the CSV body parser: ns a number on generated rows like the benchmark CSV (time + 3 channels);
+//   - the CSV body parser: ns a number on generated rows like the benchmark CSV (time + 3 channels), each spelling
+//     (--spellings fixed,tab,... for some);
 //   - the Welch kernel SegmentPower.add against the same job done around fft.js (window pass,
 //     realTransform, power pass), at 4096 points.
 // Prints medians of 7 rounds. The figures in DEVELOPERS.md and bench/README.md come from here.
 import FFT from "fft.js";
 import { CsvBodyParser, columnPool, pieceBuffers } from "../dist/read/csvBody.js";
+import { daysFromCivil } from "../dist/read/dateTimeStamp.js";
 import { SegmentPower } from "../dist/estimate/segmentPower.js";
 
 const median = (xs) => [...xs].sort((a, b) => a - b)[(xs.length - 1) >> 1];
@@ -13,18 +15,40 @@ const median = (xs) => [...xs].sort((a, b) => a - b)[(xs.length - 1) >> 1];
 let seed = 7;
 const rand = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
 const sci = (v, d) => v.toExponential(d).replace(/e([+-])(\d)$/, "e$10$2");
+const cg = (v, p = 6) => {
+  if (v === 0) return "0";
+  const x = Number(v.toExponential(p - 1).split("e")[1]);
+  if (x < -4 || x >= p) return sci(v, p - 1).replace(/\.?0+e/, "e");
+  const f = v.toFixed(p - 1 - x);
+  return f.includes(".") ? f.replace(/\.?0+$/, "") : f;
+};
+const pad = (n, w) => String(n).padStart(w, "0");
+const iso = (t) => {
+  const us = Math.round(t * 1e6);
+  const s = Math.floor(us / 1e6);
+  const m = 15 + Math.floor(s / 60);
+  return `2026-03-09T${pad(8 + Math.floor(m / 60), 2)}:${pad(m % 60, 2)}:${pad(s % 60, 2)}.${pad(us % 1e6, 6)}`;
+};
 const spellings = {
   fixed: (t, a, b, c) => `${t.toFixed(6)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}`,
   "sci (%.6e)": (t, a, b, c) => `${sci(t, 9)},${sci(a, 6)},${sci(b, 6)},${sci(c, 6)}`,
   "decimal comma": (t, a, b, c) => `${t.toFixed(6)};${a.toFixed(6)};${b.toFixed(6)};${c.toFixed(6)}`.replace(/\./g, ","),
   counts: (t, a, b, c) => `${t.toFixed(6)},${Math.round(a * 3000)},${Math.round(b * 3000)},${Math.round(c * 3000)}`,
+  "%g": (t, a, b, c) => `${cg(t, 10)},${cg(a)},${cg(b)},${cg(c)}`,
+  tab: (t, a, b, c) => `${t.toFixed(6)}\t${a.toFixed(6)}\t${b.toFixed(6)}\t${c.toFixed(6)}`,
+  "ISO stamps": (t, a, b, c) => `${iso(t)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}`,
 };
+const only = process.argv.indexOf("--spellings") >= 0 ? process.argv[process.argv.indexOf("--spellings") + 1].split(",") : undefined;
 for (const [name, row] of Object.entries(spellings)) {
+  if (only && !only.includes(name)) continue;
   const lines = [];
   for (let i = 0; i < 500_000; i++) lines.push(row(i / 25600, (rand() - 0.5) * 4, (rand() - 0.5) * 4, (rand() - 0.5) * 4));
   const body = Buffer.from(lines.join("\n") + "\n");
   const comma = name === "decimal comma";
-  const spec = { file: "bench", columns: 4, columnNames: ["time", "ax", "ay", "az"], delimiter: comma ? ";" : ",", decimal: comma ? "," : ".", timeIndex: 0, selectColumns: [1, 2, 3] };
+  const spec = {
+    file: "bench", columns: 4, columnNames: ["time", "ax", "ay", "az"], delimiter: comma ? ";" : name === "tab" ? "\t" : ",", decimal: comma ? "," : ".", timeIndex: 0, selectColumns: [1, 2, 3],
+    timeDateTime: name === "ISO stamps" ? { baseDays: daysFromCivil(2026, 3, 9) } : undefined,
+  };
   const parser = new CsvBodyParser(spec);
   const pool = columnPool();
   const parseRound = () => {

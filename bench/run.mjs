@@ -1,14 +1,15 @@
 // `npm run bench`: psdgate against the numpy/scipy route and the raw byte-scan limit, on the same
 // generated files, in one run. Prints a table and writes bench/out/results.json.
 //   node bench/run.mjs [--sizes 1e6,1e7,5e7] [--runs 5] [--big-runs 3] [--batch 8] [--batch-rows 3e6] [--keep]
-//                      [--spellings fixed,sci,comma,counts] [--spelling-rows 3e6,1e7]
+//                      [--spellings fixed,sci,g,comma,tab,iso,counts] [--spelling-rows 3e6,1e7]
 // (--batch 0 leaves the batch out; --sizes none, --spellings none leave those parts out.)
 // The spellings part times each CSV spelling against numpy.loadtxt + scipy.signal.welch and against
 // pandas.read_csv (C engine) + scipy.signal.welch; pandas is Debian's python3-pandas for /usr/bin/python3.
 // Times are wall-clock medians; peak RSS comes from GNU time (%M). The machine is shared and noisy:
 // compare the ratios, not the absolute times.
 import { execFileSync, spawnSync } from "node:child_process";
-import { existsSync, mkdirSync, rmSync, statSync, writeFileSync } from "node:fs";
+import { existsSync, mkdirSync, readFileSync, rmSync, statSync, writeFileSync } from "node:fs";
+import { availableParallelism } from "node:os";
 
 const arg = (name, dflt) => {
   const i = process.argv.indexOf(`--${name}`);
@@ -16,7 +17,7 @@ const arg = (name, dflt) => {
 };
 const list = (text) => (text === "none" || text === "" ? [] : text.split(","));
 const sizes = list(arg("sizes", "1e6,1e7,5e7")).map(Number);
-const spellings = list(arg("spellings", "fixed,sci,comma,counts"));
+const spellings = list(arg("spellings", "fixed,sci,g,comma,tab,iso,counts"));
 const spellingRows = list(arg("spelling-rows", "3e6,1e7")).map(Number);
 const runs = Number(arg("runs", "5"));
 const bigRuns = Number(arg("big-runs", "3"));
@@ -52,8 +53,10 @@ function median(xs) {
  */
 function measureTogether(routes, n) {
   const rs = routes.map(() => []);
+  const load = [loadNow()];
   for (let i = 0; i < n; i++) routes.forEach((r, k) => rs[k].push(timed(r.cmd, r.args)));
-  return routes.map((r, k) => ({ label: r.label, seconds: median(rs[k].map((x) => x.seconds)), rssMb: Math.max(...rs[k].map((x) => x.rssMb)), runs: n }));
+  load.push(loadNow());
+  return routes.map((r, k) => ({ label: r.label, seconds: median(rs[k].map((x) => x.seconds)), rssMb: Math.max(...rs[k].map((x) => x.rssMb)), runs: n, load }));
 }
 function measure(label, cmd, args, n) {
   return measureTogether([{ label, cmd, args }], n)[0];
@@ -67,13 +70,20 @@ fs, x = wf.read("${f}")
 for c in (0, 1, 2): ss.welch(x[:, c].astype(np.float64), fs=fs, window="hann", nperseg=4096, noverlap=2048)`;
 const PSD = ["bin/psdgate.js", "psd", "--segment", "4096", "--overlap", "0.5", "--window", "hann", "--json", "-q"];
 
-/** numpy and pandas routes for a spelling: delimiter and decimal mark; numpy.loadtxt has no decimal option, so decimal commas go through a converter. */
+/**
+ * numpy and pandas routes for a spelling: delimiter and decimal mark; numpy.loadtxt has no decimal option, so decimal
+ * commas go through a converter. With ISO stamps both read the three channels only (usecols): neither turns the
+ * stamps into seconds, which psdgate does (and checks), so that row is in their favour.
+ */
+const SEP = { comma: ";", tab: "\\t" };
 const PY_NUMPY = (f, sp) => `import numpy as np, scipy.signal as ss
-d = np.loadtxt("${f}", delimiter="${sp === "comma" ? ";" : ","}", skiprows=1${sp === "comma" ? ', converters=lambda s: float(s.replace(",", "."))' : ""})
-for c in (1, 2, 3): ss.welch(d[:, c], fs=25600, window="hann", nperseg=4096, noverlap=2048)`;
+d = np.loadtxt("${f}", delimiter="${SEP[sp] ?? ","}", skiprows=1${sp === "comma" ? ', converters=lambda s: float(s.replace(",", "."))' : ""}${sp === "iso" ? ", usecols=(1, 2, 3)" : ""})
+for c in (${sp === "iso" ? "0, 1, 2" : "1, 2, 3"}): ss.welch(d[:, c], fs=25600, window="hann", nperseg=4096, noverlap=2048)`;
 const PY_PANDAS = (f, sp) => `import pandas as pd, scipy.signal as ss
-d = pd.read_csv("${f}", sep="${sp === "comma" ? ";" : ","}", decimal="${sp === "comma" ? "," : "."}", engine="c").to_numpy(dtype="float64")
-for c in (1, 2, 3): ss.welch(d[:, c], fs=25600, window="hann", nperseg=4096, noverlap=2048)`;
+d = pd.read_csv("${f}", sep="${SEP[sp] ?? ","}", decimal="${sp === "comma" ? "," : "."}", engine="c"${sp === "iso" ? ", usecols=[1, 2, 3]" : ""}).to_numpy(dtype="float64")
+for c in (${sp === "iso" ? "0, 1, 2" : "1, 2, 3"}): ss.welch(d[:, c], fs=25600, window="hann", nperseg=4096, noverlap=2048)`;
+/** The machine's load while a measurement ran: the 1-minute load average before and after it. */
+const loadNow = () => Number(readFileSync("/proc/loadavg", "utf8").split(" ")[0]);
 
 const rows = [];
 const spellingRowsOut = [];
@@ -148,6 +158,7 @@ const ratios = sizes.map((n) => {
 
 const fmt = (x, d = 2) => (x === null || x === undefined || Number.isNaN(x) ? "-" : x.toFixed(d));
 const lines = [];
+if (rows.length > 0) {
 lines.push(`| samples/channel | format | route | s (median) | MB/s | Msamples/s | peak RSS MB | runs |`);
 lines.push(`|---|---|---|---|---|---|---|---|`);
 for (const r of rows) lines.push(`| ${r.samplesPerChannel.toExponential(0)} | ${r.format} | ${r.route} | ${fmt(r.seconds)} | ${fmt(r.mbPerS, 0)} | ${fmt(r.msamplesPerS, 1)} | ${fmt(r.peakRssMb, 0)} | ${r.runs} |`);
@@ -156,16 +167,17 @@ lines.push(`| samples/channel | CSV: numpy / psdgate | CSV: psdgate / raw scan |
 lines.push(`|---|---|---|---|`);
 for (const r of ratios) lines.push(`| ${r.samplesPerChannel.toExponential(0)} | ${fmt(r.csvSpeedupVsNumpy)}x | ${fmt(r.csvTimeVsRawScan)}x | ${fmt(r.wavSpeedupVsScipy)}x |`);
 lines.push("");
+}
 if (jobs1 && jobs2) lines.push(`Batch of ${batchFiles} x ${batchRows.toExponential(0)}-row CSV: --jobs 1 ${fmt(jobs1.seconds)} s, --jobs 2 ${fmt(jobs2.seconds)} s, speed-up ${fmt(jobs1.seconds / jobs2.seconds)}x (peak RSS ${fmt(jobs2.rssMb, 0)} MB)`);
 if (spellingRowsOut.length > 0) {
   lines.push("");
-  lines.push(`CSV spellings (time + 3 channels; numpy route: ${pyVersions("python3", ["numpy", "scipy"])}; pandas route: ${pyVersions(SYS_PY, ["pandas", "numpy", "scipy"])})`);
+  lines.push(`CSV spellings (time + 3 channels; ${process.version}; numpy route: ${pyVersions("python3", ["numpy", "scipy"])}; pandas route: ${pyVersions(SYS_PY, ["pandas", "numpy", "scipy"])}; ${availableParallelism()} cores)`);
   lines.push("");
-  lines.push(`| rows | spelling | MB | psdgate s | numpy.loadtxt+welch s | pandas.read_csv(C)+welch s | numpy / psdgate | pandas / psdgate | psdgate peak RSS MB | runs |`);
-  lines.push(`|---|---|---|---|---|---|---|---|---|---|`);
+  lines.push(`| rows | spelling | MB | psdgate s | numpy.loadtxt+welch s | pandas.read_csv(C)+welch s | numpy / psdgate | pandas / psdgate | psdgate MB/s | psdgate peak RSS MB | runs | load (1 min) |`);
+  lines.push(`|---|---|---|---|---|---|---|---|---|---|---|---|`);
   for (const r of spellingRowsOut) {
     const [o, np, pd] = [r.routes[0], r.routes.find((m) => m.label.startsWith("numpy")), r.routes.find((m) => m.label.startsWith("pandas"))];
-    lines.push(`| ${r.rows.toExponential(0)} | ${r.spelling} | ${fmt(r.bytes / 1e6, 0)} | ${fmt(o.seconds)} | ${fmt(np?.seconds)} | ${fmt(pd?.seconds)} | ${fmt(r.vsNumpy)}x | ${fmt(r.vsPandas)}x | ${fmt(o.rssMb, 0)} | ${o.runs} |`);
+    lines.push(`| ${r.rows.toExponential(0)} | ${r.spelling} | ${fmt(r.bytes / 1e6, 0)} | ${fmt(o.seconds)} | ${fmt(np?.seconds)} | ${fmt(pd?.seconds)} | ${fmt(r.vsNumpy)}x | ${fmt(r.vsPandas)}x | ${fmt(r.bytes / 1e6 / o.seconds, 0)} | ${fmt(o.rssMb, 0)} | ${o.runs} | ${o.load.map((x) => x.toFixed(1)).join("–")} |`);
   }
 }
 const text = lines.join("\n");

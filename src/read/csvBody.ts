@@ -101,8 +101,8 @@ export class CsvBodyParser {
   private readonly row: Float64Array;
   private readonly scan: ScanState = { end: 0, value: 0, fractionDigits: 0, place: 0, mant: 0 };
   private readonly dateScan: DateTimeScan = { end: -1, value: 0, fractionDigits: 0, zone: 0, days: 0 };
-  private readonly plain: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0 };
-  /** Whether the plain-row loop may run (not with date-time stamps or ignored columns). */
+  private readonly plain: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0, zoneMode: -1 };
+  /** Whether the plain-row loop may run (not with ignored columns, or whitespace between fields). */
   private readonly plainOk: boolean;
   private readonly trailing: boolean;
   /** Zone state of the date-time stamps: -1 before the first, else 0 (none) or 1 (with a zone). */
@@ -125,9 +125,12 @@ export class CsvBodyParser {
     if (spec.timeIndex >= 0) this.target[spec.timeIndex] = -2;
     for (const c of spec.ignoreColumns ?? []) this.target[c] = -3;
     this.row = new Float64Array(this.ncol);
-    this.plainOk = this.delimByte >= 0 && spec.timeDateTime === undefined && (spec.ignoreColumns ?? []).length === 0;
+    this.plainOk = this.delimByte >= 0 && (spec.ignoreColumns ?? []).length === 0;
     this.trailing = spec.trailingEmpty === true;
+    this.stampBase = spec.timeDateTime?.baseDays ?? NaN;
   }
+  /** Day the date-time stamps count from, or NaN when the time column holds numbers. */
+  private readonly stampBase: number;
 
   /**
    * Parse the lines of buf[s, e). The piece must end with a newline (buf[e - 1] is LF): the readers
@@ -178,7 +181,9 @@ export class CsvBodyParser {
     while (p < e) {
       if (this.plainOk) {
         // Plain rows (numbers and delimiters only) in one tight loop; it stops at anything else.
-        const n = plainRows(buf, p, e, outs, rows, cap, this.ncol, this.delimByte, this.decimalByte, this.spec.timeIndex, this.trailing, plain);
+        plain.zoneMode = this.zoneMode;
+        const n = plainRows(buf, p, e, outs, rows, cap, this.ncol, this.delimByte, this.decimalByte, this.spec.timeIndex, this.stampBase, this.trailing, plain);
+        this.zoneMode = plain.zoneMode;
         if (n > 0) {
           if (plain.timeMinPlace < minPlace) minPlace = plain.timeMinPlace;
           if (plain.timeMaxMant > maxMant) maxMant = plain.timeMaxMant;
@@ -364,7 +369,11 @@ interface PlainRowsState {
   /** Resolution of the time column's stamps (CsvPiece.timeMinPlace, timeMaxMant). */
   timeMinPlace: number;
   timeMaxMant: number;
+  /** Zone state of date-time stamps, in and out (CsvBodyParser.zoneMode). */
+  zoneMode: number;
 }
+
+const stampScan: DateTimeScan = { end: -1, value: 0, fractionDigits: 0, zone: 0, days: 0 };
 
 /**
  * The common case in one loop: rows of exactly `ncol` plain numbers ([+-]digits[.digits][(e|E)[+-]digits],
@@ -378,15 +387,42 @@ interface PlainRowsState {
  */
 function plainRows(
   buf: Uint8Array, p: number, e: number, outs: Float64Array[], row0: number, cap: number,
-  ncol: number, delim: number, decimal: number, timeIndex: number, trailing: boolean, state: PlainRowsState,
+  ncol: number, delim: number, decimal: number, timeIndex: number, stampBase: number, trailing: boolean, state: PlainRowsState,
 ): number {
   let row = row0;
   let timeMaxK = -99;
   let timeMant = 0;
+  let zone = state.zoneMode;
   const last = ncol - 1;
+  // The column of date-time stamps, or -1: the same scanner as the general parser's, so the same double.
+  const stampCol = stampBase === stampBase ? timeIndex : -1;
   rows: while (p < e && row < cap) {
     const lineStart = p;
     for (let col = 0; col < ncol; col++) {
+      if (col === stampCol) {
+        scanDateTime(buf, p, stampBase, stampScan);
+        if (stampScan.end < 0 || (zone >= 0 && stampScan.zone !== zone)) {
+          p = lineStart;
+          break rows;
+        }
+        zone = stampScan.zone;
+        p = stampScan.end;
+        const c = buf[p]!;
+        if (col < last) {
+          if (c !== delim) {
+            p = lineStart;
+            break rows;
+          }
+        } else if (trailing || c !== 10) {
+          // A stamp ends the row only plainly (LF); anything else goes to the general parser.
+          p = lineStart;
+          break rows;
+        }
+        p++;
+        outs[col]![row] = stampScan.value;
+        if (stampScan.fractionDigits > timeMaxK) timeMaxK = stampScan.fractionDigits;
+        continue;
+      }
       // The sign without a branch (signs are random in vibration data, so a branch would be mispredicted
       // half the time; this took the loop from 20 to 14 ns a number): neg is 1 for '-' else 0, by integer
       // arithmetic; p skips it, and the value is multiplied by SIGN[neg] at the end.
@@ -469,6 +505,7 @@ function plainRows(
   state.end = p;
   state.timeMinPlace = -timeMaxK;
   state.timeMaxMant = timeMant;
+  state.zoneMode = zone;
   return row - row0;
 }
 
@@ -478,6 +515,8 @@ function plainRows(
 {
   const row = new Uint8Array([49, 44, 50, 10]); // "1,2\n"
   const outs = [new Float64Array(1), new Float64Array(1)];
-  const state: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0 };
-  for (let i = 0; i < 32; i++) plainRows(row, 0, row.length, outs, 0, 1, 2, 44, 46, 0, false, state);
+  const state: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0, zoneMode: -1 };
+  for (let i = 0; i < 32; i++) plainRows(row, 0, row.length, outs, 0, 1, 2, 44, 46, 0, NaN, false, state);
+  const stamped = new Uint8Array(Buffer.from("2026-03-09T08:15:00.000039,2\n", "latin1"));
+  for (let i = 0; i < 32; i++) plainRows(stamped, 0, stamped.length, outs, 0, 1, 2, 44, 46, 0, 0, false, { ...state, zoneMode: -1 });
 }

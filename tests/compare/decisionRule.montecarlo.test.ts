@@ -3,8 +3,12 @@ import { describe, expect, it } from "vitest";
 import { judgeSpectrum, type ChannelCompliance } from "../../src/compare/complianceCheck.js";
 import { chanceAbove, chanceBelow, DECISION_RULE, lowerFactor, ruleLevels, upperFactor } from "../../src/compare/decisionRule.js";
 import { parseProfile, profileLevel } from "../../src/compare/testProfile.js";
-import { welchPsd } from "../../src/estimate/psdEstimate.js";
-import { shapedRecord } from "../shapedRecords.js";
+import { completePsd, welchPsd } from "../../src/estimate/psdEstimate.js";
+import { SegmentPower } from "../../src/estimate/segmentPower.js";
+import { normalizeWelchOptions } from "../../src/estimate/welchOptions.js";
+import { WelchAccumulator } from "../../src/estimate/welchPsd.js";
+import { spectralWindow } from "../../src/estimate/windows.js";
+import { recordShaper, shapedRecord } from "../shapedRecords.js";
 
 /**
  * The decision rule's rates, proven by seeded Monte Carlo on records this test makes itself
@@ -16,6 +20,17 @@ import { shapedRecord } from "../shapedRecords.js";
  * Bounds on the counts: with n records and a true rate p, the count exceeds the binomial 99.9 %
  * point only once in a thousand runs; the tests assert the observed count against those points for
  * the rate the rule promises (so a pass here proves the rate to that confidence, not to the digit).
+ *
+ * What each bound catches (binomial tails, scipy.stats.binom 1.17.1): "0 of 200 fail" fails the test with
+ * probability 0.87 if the true false-fail rate is 1 % and 0.98 at 2 %; "at least 179 of 200 pass" (the 95 %
+ * power at 188 DOF) with 0.96 if the true power is 85 %; "at most 18 of 200" (4 %) with 0.63 at 10 %;
+ * "at most 13 of 100" (5 %) with 0.65 at 15 %; "at least 87 of 100 fail" (95 %) with 0.95 at 80 %;
+ * "at least 42 of 50" with 0.91 at 75 %. Each bound wrongly fails a correct rule once in a thousand runs.
+ *
+ * The file is in the slow set (`npm run test:slow`, which CI runs after `npm test`). It is made cheaper, not
+ * smaller: each PSD's records come from one recordShaper (FFT tables and gains once) and every record length is
+ * judged from one Welch pass; the same seeds give the same records, counts and verdicts as one welchPsd per
+ * length (checked by the first test). A/B on this 2-core machine, load 10-16: 43 s of CPU before, 29 s after.
  */
 /** More records for a longer table (PSDGATE_MC_SCALE=5 npx vitest run this file); CI runs the default. */
 const SCALE = Math.max(1, Number(process.env.PSDGATE_MC_SCALE ?? 1));
@@ -28,20 +43,41 @@ const dofOf = (k: number) => (36 * k * k) / (19 * k - 1);
 const nominal = (f: number) => (f >= 20 && f <= 2000 ? profileLevel(profile, f) : 0);
 const bandDb = (f: number) => (f <= 1000 ? 1.5 : 3);
 
-function judge(x: Float64Array, k: number): ChannelCompliance {
-  const p = welchPsd(x.subarray(0, samplesFor(k)), FS, { segmentLength: N });
+type Psd = Pick<ReturnType<typeof welchPsd>, "frequencyHz" | "psd" | "dof" | "lineSpacingHz">;
+function judgePsd(p: Psd): ChannelCompliance {
   return judgeSpectrum(
     { name: "mc", frequencyHz: p.frequencyHz, psd: p.psd, dof: p.dof, lineSpacingHz: p.lineSpacingHz, sampleRateHz: FS, durationS: Infinity, window: "hann", segmentLength: N, detrend: "mean", confidence: 0.9 },
     profile,
   );
 }
+function judge(x: Float64Array, k: number): ChannelCompliance {
+  return judgePsd(welchPsd(x.subarray(0, samplesFor(k)), FS, { segmentLength: N }));
+}
+
+const settings = normalizeWelchOptions({ segmentLength: N }, FS);
+const hann = spectralWindow(settings.window, N);
+/**
+ * The record's first K segments judged for every K in `ks` (ascending) from one Welch pass: the
+ * accumulator is read after each prefix (reading it changes nothing), so each estimate is the very
+ * double array welchPsd gives on that prefix, at a third of the work of one pass per K.
+ */
+function judgePrefixes(x: Float64Array, ks: number[]): ChannelCompliance[] {
+  const acc = new WelchAccumulator({ segmentLength: N, hop: settings.hop, window: hann, detrend: settings.detrend }, new SegmentPower(N));
+  let pushed = 0;
+  return ks.map((k) => {
+    const end = samplesFor(k);
+    acc.push(x.subarray(pushed, end));
+    pushed = end;
+    return judgePsd(completePsd(acc.finish(FS), hann, settings, FS));
+  });
+}
 
 /** Verdict counts over `records` seeded records of the PSD `level`, each judged at every K (prefixes of one record). */
 function monteCarlo(level: (f: number) => number, ks: number[], records: number, seed: number) {
   const out = ks.map(() => ({ fail: 0, pass: 0, inconclusive: 0 }));
+  const record = recordShaper(level, FS, LENGTH);
   for (let r = 0; r < records; r++) {
-    const x = shapedRecord(level, FS, LENGTH, seed + r);
-    ks.forEach((k, i) => out[i]![judge(x, k).verdict]++);
+    judgePrefixes(record(seed + r), ks).forEach((c, i) => out[i]![c.verdict]++);
   }
   // The table behind each assertion, printed with the test run (DEVELOPERS.md quotes a longer run).
   console.log(ks.map((k, i) => `${dofOf(k).toFixed(1)} DOF: fail ${out[i]!.fail}, pass ${out[i]!.pass}, inconclusive ${out[i]!.inconclusive} of ${records}`).join("; "));
@@ -68,6 +104,21 @@ function lower999(n: number, p: number): number {
 
 describe("decision rule by Monte Carlo (records made by the test, not by synth)", () => {
   const ks = [66, 79, 99, 127]; // 125.2, 149.8, 187.7, 240.6 DOF
+
+  it("the one-pass prefixes give welchPsd's own estimate and verdict at every K (bit for bit)", () => {
+    const x = shapedRecord(nominal, FS, LENGTH, 7);
+    const acc = new WelchAccumulator({ segmentLength: N, hop: settings.hop, window: hann, detrend: settings.detrend }, new SegmentPower(N));
+    let pushed = 0;
+    for (const k of ks) {
+      acc.push(x.subarray(pushed, samplesFor(k)));
+      pushed = samplesFor(k);
+      const one = completePsd(acc.finish(FS), hann, settings, FS);
+      const own = welchPsd(x.subarray(0, samplesFor(k)), FS, { segmentLength: N });
+      expect(Buffer.compare(Buffer.from(one.psd.buffer), Buffer.from(own.psd.buffer)), `K ${k}`).toBe(0);
+      expect(one.dof).toEqual(own.dof);
+    }
+    expect(judgePrefixes(x, ks).map((c) => c.verdict)).toEqual(ks.map((k) => judge(x, k).verdict));
+  });
 
   it("a record whose true PSD equals the profile never fails by chance: 0 of 200 at 125-241 DOF (analytic: below 1e-6)", () => {
     const n = 200 * SCALE;
