@@ -18,6 +18,7 @@ interface RespondFlags extends ParsedCommon {
   as?: "recording" | "profile" | "psd";
   json?: boolean;
   report?: string;
+  csv?: string;
   meta?: string;
   force?: boolean;
   quiet?: boolean;
@@ -49,6 +50,7 @@ export function registerRespond(program: Command, io: CliIo): void {
     })
     .option("--json", "print the result as JSON")
     .option("--report <out.html>", "also write a self-contained HTML record: response spectra, kinematics and stroke, identity and sign-off (psdgate verify re-runs it)")
+    .option("--csv <out>", "also write per natural frequency the response RMS (exact, Miles), relative displacement, largest peak and damage (and --against's, with the ratios) to this CSV")
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
     .option("--force", "replace an existing report file")
     .option("-q, --quiet", "no progress bar (respond shows none; accepted so every analysis command takes it)")
@@ -61,16 +63,21 @@ export function registerRespond(program: Command, io: CliIo): void {
       const base = analysisOptions(o);
       const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
       const inputs = [source, ...(o.against !== undefined ? [o.against] : []), ...(o.meta !== undefined ? [o.meta] : [])];
-      if (o.report !== undefined) (await import("../report/writeAtomic.js")).checkOutputPath(o.report, inputs, o.force, "--report");
+      const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+      if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
+      if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
       const rerun: RespondRerun = {
         fn: o.fn, q: o.q, durationS: o.duration, sn: { basquinB: o.basquin, snConstant: o.snConstant, stressPerUnit: o.stressPerMetre }, strokeMm: o.strokeMm,
         source: { ...base, as: o.as, channel: o.channel?.[0] },
         against: o.against !== undefined ? { file: o.against, options: { ...base, channel: o.againstChannel }, durationS: o.againstDuration } : undefined,
       };
       const { r, against } = await runResponse(source, rerun);
+      if (o.csv !== undefined) {
+        const { responseCsv } = await import("../report/responseReport.js");
+        await writeAtomic(o.csv, responseCsv(r, against), { inputs, force: o.force, option: "--csv" });
+      }
       if (o.report !== undefined) {
         const { responseHtml } = await import("../report/responseHtml.js");
-        const { writeAtomic } = await import("../report/writeAtomic.js");
         const { rerunOptions } = await import("./options.js");
         await writeAtomic(o.report, responseHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun: rerunOptions(rerun as never) }, against), { inputs, force: o.force, option: "--report" });
       }

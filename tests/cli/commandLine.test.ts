@@ -43,6 +43,12 @@ describe("one command line across the commands", () => {
     const r = await cli("respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "20:1000:3", "--q", "10");
     expect(r.code).toBe(0);
     expect(r.stdout).not.toMatch(/tests\//);
+    const d0 = tempDir();
+    const c = await cli("respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "20:1000:3", "--q", "10", "--csv", join(d0, "r.csv"), "-q");
+    expect(c.code, c.stderr).toBe(0);
+    const rows = readFileSync(join(d0, "r.csv"), "utf8").trim().split("\n");
+    expect(rows[0]).toMatch(/^fn_hz,accel_rms \[g\],miles_rms \[g\]/);
+    expect(rows).toHaveLength(1 + 18);
     const i = await cli("inspect", "samples/kb210-run.wav", "--json", "-q");
     expect(i.code).toBe(0);
     expect(JSON.parse(i.stdout).channels).toHaveLength(2);
