@@ -1,5 +1,5 @@
 import { selectChannels } from "./resolveAnalysis.js";
-import { channelConditionings, scaleSamples, type ChannelSetting } from "./condition/scaleSamples.js";
+import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { InputError } from "./errors.js";
 import { normalQuantile } from "./estimate/chiSquare.js";
 import { CrossSpectrumAccumulator } from "./estimate/crossSpectrum.js";
@@ -64,6 +64,8 @@ export interface TransferAnalysis {
   units: AccelUnit;
   frequencyHz: Float64Array;
   reference: { name: string; position: number; psd: Float64Array; rms: number };
+  /** How each channel's numbers became accelerations in `units` (the input first, then the outputs). */
+  readings: (ChannelReading & { channel: string; factor: number })[];
   outputs: TransferOutput[];
   warnings: string[];
 }
@@ -189,6 +191,7 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
     skippedSegments: sums.skippedSegments,
     dof,
     disjointAverages: nd,
+    readings: conditioning.map((c, k) => ({ ...c.reading, channel: info.channels[select[k]!]!.name, factor: c.factor })),
     units: common,
     frequencyHz,
     reference: { name: info.channels[inIdx!]!.name, position: inIdx! + 1, psd: gxx, rms: rmsOf(gxx) },

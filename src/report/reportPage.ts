@@ -289,3 +289,13 @@ export function givenRow(ctx: ReportContext): string {
   const given = ctx.given && ctx.given.length > 0 ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
   return row("Options given", given);
 }
+
+/** How one channel's file numbers became accelerations, in words (unit and its source, sensitivity, calibration, conversion). */
+export function readingWords(r: ChannelAnalysis["reading"], factor: number, resultUnit: string): string {
+  const parts = [`${r.fileUnit} ${UNIT_FROM[r.unitFrom] ?? r.unitFrom}`];
+  if (r.sensitivity) parts.push(`sensitivity ${r.sensitivity}`);
+  if (r.fileScale !== 1) parts.push(`the file's calibration ×${r.fileScale}`);
+  if (r.scale !== 1) parts.push(`--scale ×${r.scale}`);
+  parts.push(factor === 1 ? `read as ${resultUnit} (×1)` : `overall ×${sig(factor, 8)} from file number to ${resultUnit}`);
+  return parts.join(", ");
+}

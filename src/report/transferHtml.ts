@@ -3,7 +3,7 @@ import { accelLabel, densityLabel } from "../units.js";
 import { TRANSFER_CAUTION } from "./cautions.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, sig } from "./format.js";
-import { givenRow, metaRows, qty, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
+import { givenRow, metaRows, qty, readingWords, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
 import { transferJson } from "./transferReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
@@ -109,7 +109,8 @@ ${row("Outputs", esc(t.outputs.map((o) => `${o.name} (channel ${o.position})`).j
 </table>
 <h2>Settings and assumptions</h2>
 <table class="meta" id="settings">
-${row("Units", `every channel in ${accelLabel(t.units)} (the input's unit); |H| is output unit per input unit`)}
+${row("Units", `every channel in ${accelLabel(t.units)} (the input's unit, or --result-units); |H| is output unit per input unit`)}
+${t.readings.map((x) => row(`Channel ${x.channel}`, esc(readingWords(x, x.factor, accelLabel(t.units))))).join("\n")}
 ${row("Analysis", `${s.window} window, ${s.segmentLength}-point segments (${qty(sig(s.resolutionHz, 4), "Hz")} lines), ${fixed(100 * s.overlap, 1)} % overlap, detrend ${s.detrend}; ${t.averages} averages, ${fixed(t.dof, 1)} DOF`)}
 ${row("Estimators", `H1 = G_xy / G_xx and H2 = G_yy / G_yx, coherence γ²; H1 bounds at ${fixed(100 * s.confidence, 0)} % (Bendat &amp; Piersol, Random Data, ch. 9)`)}
 ${row("Good coherence", `γ² ≥ ${s.goodCoherence}`)}

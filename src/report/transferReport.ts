@@ -20,6 +20,7 @@ export function transferJson(t: TransferAnalysis, version: string) {
     dof: t.dof,
     disjointAverages: t.disjointAverages,
     units: { acceleration: t.units === "g" ? "g" : "m/s2", psd: densityAscii(t.units), magnitude: "1 (output unit per input unit)", phase: "degrees, output relative to input (negative: the output lags)" },
+    readings: t.readings,
     frequencyHz: arr(t.frequencyHz),
     inputChannel: { name: t.reference.name, position: t.reference.position, psd: arr(t.reference.psd), rms: t.reference.rms },
     outputs: t.outputs.map((o) => ({
