@@ -26,7 +26,7 @@ const codes = [
   run(["transfer", "samples/quarry-bend-bracket.csv", "--in", "base", "--meta", "samples/quarry-bend-meta.yaml", "--report", "demo-output/quarry-bend-transfer.html", "--force"]),
   run(["respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "20:1000", "--q", "10", "--stroke-mm", "25", "--meta", "samples/quarry-bend-meta.yaml", "--report", "demo-output/quarry-bend-respond.html", "--force"]),
   // Field to lab: a fatigue-equivalent profile from the invented Corran K7 road recordings and their service mix.
-  run(["derive", "--mix", "samples/corran-k7-mix.yaml", "--test-duration", "1h", "--fmin", "5", "--fmax", "500", "--stroke-mm", "51", "--out", "demo-output/corran-k7-lab.yaml", "--report", "demo-output/corran-k7-derive.html", "--force"]),
+  run(["derive", "--mix", "samples/corran-k7-mix.yaml", "--test-duration", "1h", "--fmin", "5", "--fmax", "500", "--stroke-mm", "51", "--meta", "samples/corran-k7-meta.yaml", "--out", "demo-output/corran-k7-lab.yaml", "--report", "demo-output/corran-k7-derive.html", "--force"]),
   // Every record re-run by verify.
   ...["marlow-uv3-ride-report", "quarry-bend-transfer", "quarry-bend-respond", "corran-k7-derive"].map((n) => run(["verify", `demo-output/${n}.html`])),
 ];
