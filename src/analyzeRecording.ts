@@ -212,7 +212,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const fs = summary.sampleRateHz;
   const passDoubts: string[] = [];
   if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
-    passDoubts.push(`the record's rate is ${fmt(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${fmt(designFs)} Hz its first rows gave`);
+    passDoubts.push(`the record's rate is ${String(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${String(designFs)} Hz its first rows gave`);
   }
   if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
     throw new InputError("WINDOW_EMPTY", {

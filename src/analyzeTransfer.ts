@@ -1,4 +1,5 @@
-import { selectChannels } from "./resolveAnalysis.js";
+import { clockWindow, frameWindow, selectChannels } from "./resolveAnalysis.js";
+import { MAX_SPECTRUM_SAMPLES } from "./read/analysisLimits.js";
 import { channelConditionings, scaleSamples, type ChannelReading, type ChannelSetting } from "./condition/scaleSamples.js";
 import { InputError } from "./errors.js";
 import { normalQuantile } from "./estimate/chiSquare.js";
@@ -34,6 +35,13 @@ export interface TransferOptions extends WelchOptions {
   /** Coherence at or above which a line counts as well explained by the input (default 0.9). */
   goodCoherence?: number | undefined;
   onProgress?: ((bytesDone: number, bytesTotal: number) => void) | undefined;
+  /** Start of the analysed window, s from the first sample (default 0); the whole file is still read and hashed. */
+  fromS?: number | undefined;
+  /** End of the analysed window, s from the first sample (default: the end). */
+  toS?: number | undefined;
+  /** --from/--to as clock times (records with date-time stamps). */
+  fromClock?: string | undefined;
+  toClock?: string | undefined;
 }
 
 export interface TransferOutput extends FrequencyResponse {
@@ -55,6 +63,8 @@ export interface TransferOutput extends FrequencyResponse {
 
 export interface TransferAnalysis {
   input: { file: string; format: "csv" | "wav"; layout: string; sha256: string; bytes: number; sampleRateHz: number; samples: number; durationS: number };
+  /** The analysed window (--from/--to), s from the first sample, and its frames; the whole record without them. */
+  window: { fromS: number; toS: number; durationS: number; frames: number; fromClock?: string | undefined; toClock?: string | undefined };
   settings: ResolvedWelchOptions & { scale: number; goodCoherence: number };
   averages: number;
   skippedSegments: number;
@@ -64,8 +74,8 @@ export interface TransferAnalysis {
   units: AccelUnit;
   frequencyHz: Float64Array;
   reference: { name: string; position: number; psd: Float64Array; rms: number };
-  /** How each channel's numbers became accelerations in `units` (the input first, then the outputs). */
-  readings: (ChannelReading & { channel: string; factor: number })[];
+  /** How each channel's numbers became accelerations (input first, then the outputs). */
+  channels: { name: string; position: number; reading: ChannelReading }[];
   outputs: TransferOutput[];
   warnings: string[];
 }
@@ -105,21 +115,53 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   const good = options.goodCoherence ?? 0.9;
   if (!(good > 0 && good < 1)) throw new InputError("OPTION_INVALID", { option: "goodCoherence", expected: "a coherence between 0 and 1", received: String(good) });
   const settings = normalizeWelchOptions(options, info.sampleRateHz);
+  // Memory is bounded before it is taken, as in every pass (read/analysisLimits.ts): the cross-spectral
+  // accumulator holds an auto spectrum per channel and a complex cross spectrum per output, so it counts
+  // channels + outputs segment lengths.
+  const held = (2 * select.length - 1) * settings.segmentLength;
+  if (held > MAX_SPECTRUM_SAMPLES) {
+    throw new InputError("ANALYSIS_TOO_LARGE", {
+      file: info.file, expected: `(channels + outputs) x segment length at most ${MAX_SPECTRUM_SAMPLES}`,
+      received: `${2 * select.length - 1} spectra x ${settings.segmentLength}`, hint: "name fewer `outputChannels`, or use a shorter `segmentLength` or a coarser `resolutionHz`",
+    });
+  }
+  // The frame window [first, end) of --from/--to at the announced rate, cut inside the pass (resolveAnalysis.ts).
+  const asked = clockWindow(options, info);
+  const { first, end } = frameWindow(asked, info.sampleRateHz);
   const window = spectralWindow(settings.window, settings.segmentLength);
   const acc = new CrossSpectrumAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, select.length, 0);
+  const views: Float64Array[] = select.map(() => new Float64Array(0));
+  let offset = 0;
+  let taken = 0;
   const summary = await source.read(
     select,
     (blocks, frames) => {
-      for (let c = 0; c < blocks.length; c++) scaleSamples(blocks[c]!, frames, conditioning[c]!.factor);
-      acc.push(blocks, frames);
+      const a = Math.max(0, first - offset);
+      const b = Math.min(frames, end - offset);
+      offset += frames;
+      if (b <= a) return;
+      const n = b - a;
+      taken += n;
+      for (let c = 0; c < blocks.length; c++) {
+        const x = a === 0 ? blocks[c]! : blocks[c]!.subarray(a, b);
+        views[c] = x;
+        scaleSamples(x, n, conditioning[c]!.factor);
+      }
+      acc.push(views, n);
     },
     options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
   );
   const fs = summary.sampleRateHz;
+  if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
+    throw new InputError("WINDOW_EMPTY", {
+      file: info.file, option: asked.fromS !== undefined ? "fromS" : "toS",
+      expected: `a window inside the record (0 to ${Number((summary.frames / fs).toPrecision(5))} s)`, received: `${asked.fromS ?? 0} s to ${asked.toS ?? "the end"}`,
+    });
+  }
   const sums = acc.finish(fs);
   if (sums.segments === 0) {
     throw new InputError("RECORD_TOO_SHORT", {
-      file: info.file, expected: `at least one segment of ${settings.segmentLength} samples with finite values in every channel`, received: `${summary.frames} samples, ${sums.skippedSegments} segment(s) left out`,
+      file: info.file, expected: `at least one segment of ${settings.segmentLength} samples with finite values in every channel`, received: `${taken} samples${taken !== summary.frames ? " in the window" : ""}, ${sums.skippedSegments} segment(s) left out`,
       hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
     });
   }
@@ -186,15 +228,19 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   });
   return {
     input: { file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes, sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs },
+    window: {
+      fromS: Math.min(first, summary.frames) / fs, toS: Math.min(end, summary.frames) / fs, durationS: taken / fs, frames: taken,
+      ...(options.fromClock !== undefined ? { fromClock: options.fromClock } : {}), ...(options.toClock !== undefined ? { toClock: options.toClock } : {}),
+    },
     settings: { ...settings, resolutionHz: df, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1, goodCoherence: good },
     averages: sums.segments,
     skippedSegments: sums.skippedSegments,
     dof,
     disjointAverages: nd,
-    readings: conditioning.map((c, k) => ({ ...c.reading, channel: info.channels[select[k]!]!.name, factor: c.factor })),
     units: common,
     frequencyHz,
     reference: { name: info.channels[inIdx!]!.name, position: inIdx! + 1, psd: gxx, rms: rmsOf(gxx) },
+    channels: select.map((idx, c) => ({ name: info.channels[idx]!.name, position: idx + 1, reading: conditioning[c]!.reading })),
     outputs,
     warnings,
   };

@@ -55,7 +55,9 @@ export function spectrumOf(c: ChannelAnalysis, a: RecordingAnalysis): SpectrumUn
   const s = a.settings;
   return {
     name: c.name, frequencyHz: c.psd.frequencyHz, psd: c.psd.psd, dof: c.psd.dof, lineSpacingHz: c.psd.lineSpacingHz,
-    sampleRateHz: a.input.sampleRateHz, durationS: a.input.durationS, window: s.window, segmentLength: s.segmentLength, detrend: s.detrend, confidence: s.confidence,
+    // The duration judged is the analysed window's (--from/--to), not the file's.
+    sampleRateHz: a.input.sampleRateHz, durationS: a.window.frames / a.input.sampleRateHz, window: s.window,
+    analysedWindow: a.window.frames !== a.input.samples ? { fromS: a.window.fromS, toS: a.window.toS } : undefined, segmentLength: s.segmentLength, detrend: s.detrend, confidence: s.confidence,
   };
 }
 

@@ -261,6 +261,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     }
     const note = stationarityNote(c.stationarity);
     if (note) notes.push(`${r.file}: ${note}`);
+    if (c.reading.fullScaleAssumed) notes.push(`${r.file}: integer WAV codes with no calibration, read as ±1 ${c.reading.fileUnit} full scale (no calibration chunk, scale or sensitivity): every level rests on that`);
     return {
       file: r.file, sha256: a.input.sha256, group: r.group, channel: c.name, durationS, serviceS, sampleRateHz: a.input.sampleRateHz, dof: c.psd.dof, averages: c.psd.averages,
       bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz), stationary: c.stationarity.tested ? c.stationarity.stationary : undefined, stationarityNote: note, psd, damage: ds.damage, extreme: ds.extreme,

@@ -1,5 +1,6 @@
 import { open } from "node:fs/promises";
 import { analyzeRecording, recordTooShort, type AnalysisOptions } from "./analyzeRecording.js";
+import type { ChannelReading } from "./condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
 import { InputError, quoted } from "./errors.js";
 import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "./estimate/fatigueDamage.js";
@@ -31,6 +32,10 @@ export interface SpectrumSource {
   /** Frequencies at which the source is defined: lines (recording, table) or breakpoints (profile). */
   frequencyHz: Float64Array;
   level: Float64Array;
+  /** The analysed window of a recording (--from/--to; the whole record without them), s. */
+  window?: { fromS: number; toS: number; durationS: number; whole: boolean } | undefined;
+  /** How a recording's numbers became accelerations. */
+  reading?: ChannelReading | undefined;
   /** Welch settings, for a recording. */
   settings?: { segmentLength: number; resolutionHz: number; window: string; averages: number; dof: number } | undefined;
 }
@@ -116,7 +121,11 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
   if (short) throw short;
   const { lo, hi } = lineBand(file, c.psd.frequencyHz, o);
   return {
-    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi), durationS: a.input.durationS,
+    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi),
+    // The natural length is the analysed window's (--from/--to), not the file's.
+    durationS: a.window.frames / a.input.sampleRateHz,
+    reading: c.reading,
+    window: { fromS: a.window.fromS, toS: a.window.toS, durationS: a.window.frames / a.input.sampleRateHz, whole: a.window.frames === a.input.samples },
     frequencyHz: c.psd.frequencyHz, level: c.psd.psd,
     settings: { segmentLength: a.settings.segmentLength, resolutionHz: a.settings.resolutionHz, window: a.settings.window, averages: c.psd.averages, dof: c.psd.dof },
   };

@@ -253,18 +253,18 @@ describe("psd says when a record fails the stationarity test", () => {
     expect(j.channels[0].stationarity.stationary).toBe(false);
     expect(j.channels[0].stationarity.stretches).toBe(60);
     expect(j.channels[0].warnings.join()).toMatch(/not stationary: reverse arrangements A = \d+ outside/);
-    expect(j.input.window).toEqual({ fromS: 0, toS: 60, frames: 60000 });
+    expect(j.input.window).toEqual({ fromS: 0, toS: 60, durationS: 60, frames: 60000 });
   });
 });
 
 describe("--from/--to on psd and check (CLI)", () => {
   it("psd and check record the window in their JSON and analyse only it", async () => {
     const p = JSON.parse((await cli("psd", "samples/tern7-flight.csv", "--from", "5", "--to", "15", "--json")).stdout);
-    expect(p.input.window).toEqual({ fromS: 5, toS: 15, frames: 40960 });
+    expect(p.input.window).toEqual({ fromS: 5, toS: 15, durationS: 10, frames: 40960 });
     expect(p.channels[0].stats.count).toBe(40960);
     const c = await cli("check", "samples/tern7-flight.csv", "-p", "samples/profiles/tern7-gimbal.yaml", "--from", "5", "--json");
     const j = JSON.parse(c.stdout);
-    expect(j.input.window).toEqual({ fromS: 5, toS: 20, frames: 61440 });
+    expect(j.input.window).toEqual({ fromS: 5, toS: 20, durationS: 15, frames: 61440 });
   });
 });
 

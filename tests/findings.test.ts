@@ -118,6 +118,7 @@ async function allFindings(): Promise<Finding[]> {
     judgeSpectrum(exact((f) => on(f) * (f > 400 && f < 430 ? 10 : 1), { dof: 200 }), flat(20, 1000, {}, { allowedOutsidePercent: 5, outerLimits: [{ fromHz: 20, toHz: 1000, upperDb: 6, lowerDb: 6 }] })), // OUTER_LIMIT
     judgeSpectrum(exact((f) => on(f) * db(1.3), { dof: 2 }), flat(20, 1000)), // RMS_UNRESOLVED, DOF_BELOW_POWER
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 1000, { minDof: 1000, durationS: 900, resolutionHz: 1 })), // DOF_BELOW_PROFILE, DURATION_SHORT, RESOLUTION_COARSE
+    judgeSpectrum({ ...exact(on, { dof: 400, durationS: 25 }), analysedWindow: { fromS: 5, toS: 30 } }, flat(20, 1000, { durationS: 40 })), // DURATION_SHORT of a --from/--to window
     judgeSpectrum(exact((f) => (f >= 20 ? 0.01 * db(3) : 0), { dof: 200 }), flat(20, 2000)), // RANGE_ABOVE_RECORD, RMS over what the record covers
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 21)), // NO_LINES
   ];

@@ -69,7 +69,8 @@ export function registerRespond(program: Command, io: CliIo): void {
       const rerun: RespondRerun = {
         fn: o.fn, q: o.q, durationS: o.duration, sn: { basquinB: o.basquin, snConstant: o.snConstant, stressPerUnit: o.stressPerMetre }, strokeMm: o.strokeMm,
         source: { ...base, as: o.as, channel: o.channel?.[0] },
-        against: o.against !== undefined ? { file: o.against, options: { ...base, channel: o.againstChannel }, durationS: o.againstDuration } : undefined,
+        // --from/--to cut SOURCE; the --against input is taken whole (its own length is its exposure).
+        against: o.against !== undefined ? { file: o.against, options: { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channel: o.againstChannel }, durationS: o.againstDuration } : undefined,
       };
       const { r, against } = await runResponse(source, rerun);
       if (o.csv !== undefined) {

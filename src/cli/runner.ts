@@ -8,6 +8,7 @@ import { EXIT } from "../errors.js";
 import { table } from "../report/format.js";
 import { printable } from "../report/printable.js";
 import { toolInfo } from "../report/psdJson.js";
+import { fullScaleLines } from "../report/psdText.js";
 import { VERSION } from "../version.js";
 import type { Outcome } from "./batch.js";
 import type { CliIo } from "./main.js";
@@ -75,6 +76,8 @@ export function runnerFor(io: CliIo): Runner {
     for (const f of files) totalBytes += await stat(f).then((x) => x.size, () => 0);
     const codes: number[] = [];
     const rows: string[][] = [header];
+    // Recordings read as ±1 full scale (integer WAVs with no calibration): said under the table, one line each.
+    const readings: string[] = [];
     let count = 0;
     const { runBatch } = await batch();
     await runBatch<T>(
@@ -94,11 +97,13 @@ export function runnerFor(io: CliIo): Runner {
         codes.push(c);
         if (o.json) io.stdout(JSON.stringify(jsonOf(out.result)) + "\n");
         for (const row of summaryRow(out.result, index)) rows.push(row);
+        const a: RecordingAnalysis = "verdict" in out.result ? out.result.analysis : out.result;
+        for (const l of fullScaleLines(a.channels)) readings.push(l.replace(/^ {2}reading {4}/, `  reading    ${printable(a.input.file)}: `));
         progress.line(`[${count}/${files.length}] ${printable(out.file)}  ${"verdict" in out.result ? out.result.verdict : "done"}`);
       },
       (b) => progress.update(b, totalBytes),
     ).finally(() => progress.end());
-    if (!o.json) io.stdout(`psdgate ${VERSION}: ${files.length} recordings\n${table(rows.map((r) => r.map(printable)))}\n`);
+    if (!o.json) io.stdout(`psdgate ${VERSION}: ${files.length} recordings\n${table(rows.map((r) => r.map(printable)))}\n${readings.map((l) => l + "\n").join("")}`);
     return worst(codes);
   }
 

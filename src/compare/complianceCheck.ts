@@ -104,7 +104,10 @@ export interface SpectrumUnderTest {
   dof: number;
   lineSpacingHz: number;
   sampleRateHz: number;
+  /** Length of what was analysed, s: the --from/--to window when there is one. */
   durationS: number;
+  /** The --from/--to window (s from the record's first sample), when only part of the record was analysed. */
+  analysedWindow?: { fromS: number; toS: number } | undefined;
   window: WindowName;
   segmentLength: number;
   detrend: Detrend;
@@ -486,7 +489,10 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
     blockers.push({ code: "RESOLUTION_COARSE", values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz }, text: `line spacing ${df.toPrecision(4)} Hz is coarser than the profile's resolution ${profile.resolutionHz} Hz: narrow excursions could hide between lines` });
   }
   if (profile.durationS !== undefined && sp.durationS < profile.durationS * (1 - 1e-9)) {
-    blockers.push({ code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS }, text: `the record lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` });
+    const w = sp.analysedWindow;
+    blockers.push(w
+      ? { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS, fromS: w.fromS, toS: w.toS }, text: `the analysed window ${w.fromS.toFixed(3)} to ${w.toS.toFixed(3)} s lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` }
+      : { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS }, text: `the record lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` });
   }
 
   const rule: RuleReport = {

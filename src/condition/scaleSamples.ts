@@ -52,6 +52,11 @@ export interface ChannelReading {
   unitFactor: number;
   /** Everything multiplied: file number x factor = result. */
   factor: number;
+  /**
+   * Integer codes (a PCM WAV) with no calibration at all (none in the file, no `scale`, no sensitivity):
+   * full scale is read as 1 of the unit, a guess every command says aloud.
+   */
+  fullScaleAssumed: boolean;
 }
 
 function checkScale(option: string, k: number): void {
@@ -181,7 +186,10 @@ function conditionChannel(
   const factor = scale * fileScale * volts * unit.factor * accelFactor(unit.base, resultUnit);
   return {
     inputUnit: unit.base, resultUnit, factor,
-    reading: { fileUnit, unitFrom, scale, fileScale, sensitivity, unitFactor: volts * unit.factor, factor },
+    reading: {
+      fileUnit, unitFrom, scale, fileScale, sensitivity, unitFactor: volts * unit.factor, factor,
+      fullScaleAssumed: ch.integerFullScale === true && ch.fileScale === undefined && userScale === undefined && sensitivityText === undefined,
+    },
   };
 }
 

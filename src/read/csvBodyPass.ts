@@ -6,6 +6,7 @@ import { daysFromCivil, isoDateTime } from "./dateTimeStamp.js";
 
 const SERIAL_EPOCH_DAYS = daysFromCivil(1899, 12, 30);
 import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, TimeStampCheck, type TimeColumnInfo } from "./timeStampCheck.js";
+import { roundRate } from "./roundRate.js";
 import type { ReadSummary } from "./timeHistory.js";
 
 /**
@@ -103,14 +104,13 @@ export async function csvBodyPass(job: CsvBodyJob, emit: PieceSink, columns = co
   let rate = rateOverride ?? NaN;
   let startTime: string | undefined;
   if (span) {
-    // Rate from the whole span. Each printed time stamp is rounded to its last digit (quantum q), so
-    // the span is uncertain by q and the rate by rate * q / span; a whole-Hz rate inside that margin
-    // is the logger's nominal rate (common practice: loggers run at whole-Hz rates).
+    // Rate from the whole span, snapped to the roundest rate its printed stamps cannot tell apart
+    // from it (read/roundRate.ts): each stamp is rounded to its last digit (quantum q), so the span is
+    // uncertain by q and the rate by rate * q / span.
     const t = span.tLast - span.t0;
-    let columnRate = (frames - 1) / t;
-    const margin = (columnRate * span.quantum) / t;
-    const whole = Math.round(columnRate);
-    if (whole > 0 && Math.abs(whole - columnRate) <= margin) columnRate = whole;
+    const estimate = (frames - 1) / t;
+    const margin = (estimate * span.quantum) / t;
+    const columnRate = roundRate(estimate, margin);
     const col = job.timeColumn;
     if (rateOverride !== undefined) {
       // --rate against a time column: they must agree within the stamps' rounding, or 0.1 % (common practice: clock tolerance of a logger).

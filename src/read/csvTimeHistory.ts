@@ -8,8 +8,9 @@ import { retireThread } from "../threadEnd.js";
 import { parseUnitSpec, parseVoltUnit } from "../units.js";
 import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
+import { roundRate, stampQuantum } from "./roundRate.js";
 import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, type TimeColumnInfo } from "./timeStampCheck.js";
-import { nonFiniteToken, parseNumberText } from "./csvNumber.js";
+import { nonFiniteToken, numberTextResolution, parseNumberText } from "./csvNumber.js";
 import { looksLikeDateTime, parseDateTimeText } from "./dateTimeStamp.js";
 import type { BlockSink, ChannelInfo, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
@@ -43,7 +44,7 @@ const HEAD_BYTES = 65536;
  */
 const PARALLEL_BYTES = 8 << 20;
 const WORKER = new URL("./csvParseWorker.js", import.meta.url);
-const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
+const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|elapsed|elapsed_?time|time_?elapsed|seconds_?elapsed|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
 const TIME_UNITS: Record<string, number> = { s: 1, sec: 1, secs: 1, seconds: 1, ms: 1e-3, us: 1e-6, µs: 1e-6, μs: 1e-6, ns: 1e-9, min: 60, days: 86400, day: 86400, d: 86400 };
 
 interface Dialect {
@@ -112,19 +113,39 @@ function dataField(f: string): boolean {
   return /^\s*"?[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?"?\s*$/.test(f) || nonFiniteToken(f.replace(/"/g, "")) !== undefined || looksLikeDateTime(f.replace(/"/g, ""));
 }
 
-/** A row of the units a header's columns are in (`s,g,m/s^2` or `[s],[mV],[g]`); empty fields allowed. */
-function unitsRow(fields: string[]): boolean {
-  let any = false;
-  for (const raw of fields) {
-    const f = raw.trim().replace(/^"(.*)"$/, "$1").trim();
+/**
+ * A row of the units a header's columns are in (`s,g,m/s^2` or `[s],[mV],[g]`); empty fields allowed.
+ * Every field a unit psdgate knows (time, acceleration or voltage) or bracketed, as before; or, with
+ * fields psdgate does not know, each of them shaped like a unit (a short token of letters, digits and
+ * / ^ * · - . µ °, not a time column's name) and the row anchored as units: an acceleration or voltage
+ * unit psdgate knows among its fields, or a time unit under a time column's name in the row `above`
+ * (so `sec,ch1` under a preamble line stays a header). Then `ms,gee` under `time,accel` is a units row
+ * whose `gee` the channel's conditioning refuses as UNIT_UNKNOWN (naming its line, column and text),
+ * never a header whose data would be read as g.
+ */
+function unitsRow(fields: string[], above?: string[]): boolean {
+  let known = false;
+  let unknown = false;
+  let anchored = false;
+  for (let i = 0; i < fields.length; i++) {
+    const f = fields[i]!.trim().replace(/^"(.*)"$/, "$1").trim();
     if (f === "") continue;
-    any = true;
     const inner = /^[[(](.*)[\])]$/.exec(f);
     const u = inner ? inner[1]!.trim() : f;
-    if (!inner && parseUnitSpec(u) === undefined && parseVoltUnit(u) === undefined && TIME_UNITS[u.toLowerCase()] === undefined) return false;
+    if (inner || parseUnitSpec(u) !== undefined || parseVoltUnit(u) !== undefined) {
+      known = true;
+      anchored = true;
+    } else if (TIME_UNITS[u.toLowerCase()] !== undefined) {
+      known = true;
+      if (above !== undefined && TIME_NAMES.test((above[i] ?? "").trim().replace(/^"(.*)"$/, "$1").trim())) anchored = true;
+    } else if (!UNIT_SHAPED.test(u) || TIME_NAMES.test(u)) return false;
+    else unknown = true;
   }
-  return any;
+  return known && (!unknown || anchored);
 }
+
+/** A token that could be a unit nobody taught psdgate (`gee`, `m/s²`, `counts`): no spaces, at most 16 characters, not a number. */
+const UNIT_SHAPED = /^[A-Za-zµμ°%][A-Za-z0-9µμ°%/^*·.²³\-]{0,15}$/;
 
 /** Whether a split row is a row of samples: >= 2 fields, all data (an empty last field allowed: a trailing delimiter). */
 function sampleRow(row: string[]): boolean {
@@ -216,7 +237,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   let unitIndex = -1;
   if (k > 0) {
     const fits = (r: string[]) => r.length === count || (found.trailing && r.length === count - 1);
-    if (k >= 2 && unitsRow(rows[k - 1]!) && fits(rows[k - 1]!) && fits(rows[k - 2]!) && !unitsRow(rows[k - 2]!)) {
+    if (k >= 2 && unitsRow(rows[k - 1]!, rows[k - 2]!) && fits(rows[k - 1]!) && fits(rows[k - 2]!) && !unitsRow(rows[k - 2]!)) {
       units = rows[k - 1];
       unitIndex = k - 1;
       headerIndex = k - 2;
@@ -348,7 +369,8 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       throw new InputError("TIME_COLUMN_NOT_FOUND", { file, option: "csv.timeColumn", expected: `one of ${columns.map((c) => quoted(c.name)).join(", ")} or 1..${columns.length}`, received: quoted(String(tc)) });
     }
   } else {
-    if (dialect.header) timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name));
+    // A name with its unit as a suffix (`timestamp_ms`, `elapsed_s`) is a time name too.
+    if (dialect.header) timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name) || (c.unitText !== undefined && TIME_NAMES.test(c.name.replace(/_(ms|us|s)$/i, ""))));
     if (timeIndex < 0) timeIndex = dialect.firstRow.slice(0, columns.length).findIndex((f) => looksLikeDateTime(f.replace(/"/g, "")));
   }
   const dateTime = timeIndex >= 0 && looksLikeDateTime((dialect.firstRow[timeIndex] ?? "").replace(/"/g, ""));
@@ -406,16 +428,38 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   const firstScan = dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, "")) : undefined;
   const baseDays = firstScan?.days;
   // Provisional rate from the sniffed rows; the final one comes from the whole time column.
+  // It is snapped by the rule the whole column's rate follows (read/roundRate.ts), on the head's stamps and
+  // their printed resolution, so the segment chosen for a resolution is the one the final rate gives.
   let columnRate = NaN;
   if (timeIndex >= 0) {
+    let minPlace = 99;
+    let maxSig = 0;
     const times = headLines(head, head.length >= size)
       .filter((l) => l.start >= dialect.bodyStart)
       .map((l) => {
-        const f = (splitRow(l.text, dialect.delimiter)[timeIndex] ?? "").replace(/"/g, "");
-        return baseDays !== undefined ? (parseDateTimeText(f, baseDays)?.value ?? NaN) : parseNumberText(f, dialect.decimal) * timeFactor;
+        const f = (splitRow(l.text, dialect.delimiter)[timeIndex] ?? "").replace(/"/g, "").trim();
+        if (baseDays !== undefined) {
+          const scan = parseDateTimeText(f, baseDays);
+          if (scan) minPlace = Math.min(minPlace, -scan.fractionDigits);
+          return scan?.value ?? NaN;
+        }
+        const v = parseNumberText(f, dialect.decimal) * timeFactor;
+        if (Number.isFinite(v)) {
+          const r = numberTextResolution(dialect.decimal === "," ? f.replace(",", ".") : f);
+          minPlace = Math.min(minPlace, r.place);
+          if (r.mant > 0) maxSig = Math.max(maxSig, Math.floor(Math.log10(r.mant)) + 1);
+        }
+        return v;
       })
       .filter((t) => Number.isFinite(t));
-    if (times.length >= 2) columnRate = (times.length - 1) / (times[times.length - 1]! - times[0]!);
+    if (times.length >= 2) {
+      const t0 = times[0]!;
+      const t1 = times[times.length - 1]!;
+      const estimate = (times.length - 1) / (t1 - t0);
+      const k = baseDays !== undefined ? 1 : timeFactor;
+      const quantum = stampQuantum(minPlace, maxSig, Math.max(Math.abs(t0), Math.abs(t1)) / k) * k;
+      columnRate = roundRate(estimate, (estimate * quantum) / (t1 - t0));
+    }
   }
   const timeCol: TimeColumnInfo | undefined = timeIndex >= 0 ? { file, line: dialect.bodyLine, column: timeIndex + 1, name: columns[timeIndex]!.name, unitDeclared: timeUnitDeclared } : undefined;
   if (timeCol && Number.isFinite(columnRate)) {

@@ -51,6 +51,8 @@ export interface ChannelInfo {
   declaredUnitText?: string | undefined;
   /** Where the unit text stands (1-based line and column), for messages. */
   unitPlace?: { line: number; column: number } | undefined;
+  /** The file holds integer converter codes (a PCM WAV), read as fractions of full scale (±1). */
+  integerFullScale?: boolean | undefined;
   /** A calibration the file itself carries (psdgate's WAV 'pgcl' chunk): file value x scale = declaredUnitSpec. */
   fileScale?: number | undefined;
 }

@@ -1,5 +1,6 @@
 import { InputError } from "../errors.js";
 import type { CsvPiece } from "./csvBody.js";
+import { stampQuantum } from "./roundRate.js";
 
 /**
  * The time column's checks, piece by piece in file order: finite stamps that increase, in uniform
@@ -88,9 +89,7 @@ export class TimeStampCheck {
 
   /** Rounding quantum of a printed stamp of magnitude `abs` (file units), from the column's figures. */
   private quantum(abs: number): number {
-    const fixed = Math.pow(10, this.minPlace);
-    if (this.maxSig === 0 || !(abs > 0)) return fixed;
-    return Math.max(fixed, Math.pow(10, Math.floor(Math.log10(abs)) - this.maxSig + 1));
+    return stampQuantum(this.minPlace, this.maxSig, abs);
   }
 
   /** Allowed deviation of a step from the reference (s) near stamps of magnitude `abs` (file units). */

@@ -172,6 +172,7 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
       file, format: "wav", sampleRateHz: sampleRate, frames, bytes: size,
       channels: Array.from({ length: channels }, (_, i) => ({
         name: `ch${i + 1}`,
+        ...(pcm ? { integerFullScale: true } : {}),
         ...(cal ? { declaredUnit: cal.unit.base, declaredUnitSpec: cal.unit, declaredUnitText: cal.text, fileScale: cal.scale } : {}),
       })),
       layout: `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}`

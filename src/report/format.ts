@@ -46,3 +46,13 @@ export function minOf(...arrays: ArrayLike<number>[]): number {
   for (const a of arrays) for (let i = 0; i < a.length; i++) if (a[i]! < m) m = a[i]!;
   return m;
 }
+
+/**
+ * A sample rate in Hz as text: short when it is round (at most 6 significant digits hold it exactly:
+ * 5120, 204.8, 25600), in full otherwise (5120.000007, 3333.3333333333335), so a rate that is not the
+ * round value a reader would assume is never shown as one.
+ */
+export function rateText(hz: number): string {
+  const short = Number(hz.toPrecision(6));
+  return short === hz ? String(short) : String(hz);
+}

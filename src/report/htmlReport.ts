@@ -182,7 +182,7 @@ export function checkHtml(r: CheckResult, version: string, when: Date, context: 
   const m = ctx.meta;
   const body = `${reportOpening({
     verdictClass: r.verdict, word: v.word, line: v.line, meta: m, a, ctx,
-    extraRecordRows: `${row("Duration required", p.durationS !== undefined ? `${qty(sig(p.durationS, 4), "s")} (the profile's durationS): ${a.input.durationS >= p.durationS ? "met" : "NOT met"}` : "none stated by the profile")}
+    extraRecordRows: `${row("Duration required", p.durationS !== undefined ? `${qty(sig(p.durationS, 4), "s")} (the profile's durationS): ${a.window.frames / a.input.sampleRateHz >= p.durationS * (1 - 1e-9) ? "met" : "NOT met"} by the ${a.window.frames === a.input.samples ? "record's" : "analysed window's"} ${qty(fixed(a.window.frames / a.input.sampleRateHz, 3), "s")}` : "none stated by the profile")}
 ${row("Profile", esc(p.file))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
 ${row("Profile range and level", `${qty(`${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)}`, "Hz")}, ${qty(sig(p.rms, 4), accelLabel(p.units))} RMS`)}

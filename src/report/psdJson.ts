@@ -22,7 +22,7 @@ export function inputJson(a: RecordingAnalysis) {
   return {
     file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS, startTime: i.startTime ?? null, preamble: i.preamble ?? [],
     window: {
-      fromS: w.fromS, toS: w.toS, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}),
+      fromS: w.fromS, toS: w.toS, durationS: w.frames / i.sampleRateHz, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}),
       ...(w.fromClock !== undefined ? { fromClock: w.fromClock } : {}), ...(w.toClock !== undefined ? { toClock: w.toClock } : {}),
     },
   };

@@ -1,7 +1,8 @@
 import type { ChannelAnalysis, RecordingAnalysis } from "../analyzeRecording.js";
+import type { ChannelReading } from "../condition/scaleSamples.js";
 import { chiSquareIntervalFactors } from "../estimate/chiSquare.js";
 import { accelLabel, densityLabel } from "../units.js";
-import { dB, fixed, sig } from "./format.js";
+import { dB, fixed, rateText, sig } from "./format.js";
 import { printable } from "./printable.js";
 
 const DETREND_WORDS = { none: "nothing removed", mean: "mean removed per segment", linear: "linear trend removed per segment" } as const;
@@ -10,11 +11,29 @@ export function recordingLines(a: RecordingAnalysis): string[] {
   const i = a.input;
   return [
     `  recording  ${i.layout}`,
-    `             ${i.samples} samples at ${sig(i.sampleRateHz, 6)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed${i.startTime ? `, from ${i.startTime}` : ""}`,
+    `             ${i.samples} samples at ${rateText(i.sampleRateHz)} Hz = ${fixed(i.durationS, 3)} s, ${a.channels.length} channel(s) analysed${i.startTime ? `, from ${i.startTime}` : ""}`,
     `             sha256 ${i.sha256}`,
-    ...(a.window.frames !== i.samples ? [`  window     ${fixed(a.window.fromS, 3)} to ${fixed(a.window.toS, 3)} s: ${a.window.frames} samples analysed`] : []),
+    ...(a.window.frames !== i.samples ? [`  window     ${windowText(a)}`] : []),
+    ...fullScaleLines(a.channels),
     ...a.passDoubts.map((d) => `  DOUBT      ${d}`),
   ];
+}
+
+/**
+ * What every command prints when integer samples (a PCM WAV) were read with no calibration at all: full
+ * scale was taken as 1 of the unit, so every level rests on that guess (the HTML report says it too).
+ */
+export function fullScaleLines(channels: { name: string; reading: ChannelReading }[]): string[] {
+  const assumed = channels.filter((c) => c.reading.fullScaleAssumed);
+  if (assumed.length === 0) return [];
+  const units = [...new Set(assumed.map((c) => c.reading.fileUnit))].join(" or ");
+  return [`  reading    ${assumed.map((c) => `"${printable(c.name)}"`).join(", ")}: integer WAV codes with no calibration, read as ±1 ${units} full scale (no calibration chunk, --scale or --sensitivity); --scale K reads K ${units} per full scale`];
+}
+
+/** The analysed window in words: from, to, length and samples (the --from/--to of the analysis). */
+export function windowText(a: RecordingAnalysis): string {
+  const w = a.window;
+  return `${fixed(w.fromS, 3)} to ${fixed(w.toS, 3)} s (${fixed(w.frames / a.input.sampleRateHz, 3)} s): ${w.frames} samples analysed${w.frames === a.input.samples ? ", the whole record" : ""}`;
 }
 
 export function settingsLine(a: RecordingAnalysis): string {

@@ -2,7 +2,8 @@ import type { ChannelAnalysis, RecordingAnalysis } from "../analyzeRecording.js"
 import { META_LABELS, type TestMeta } from "../read/testMeta.js";
 import { accelLabel } from "../units.js";
 import { RESULT_PLACEHOLDER } from "./embeddedResult.js";
-import { fixed, sig } from "./format.js";
+import { fixed, rateText, sig } from "./format.js";
+import { windowText } from "./psdText.js";
 import { escapeXml as esc } from "./svgPlot.js";
 
 /**
@@ -147,7 +148,8 @@ export function recordingRows(a: RecordingAnalysis): string {
   return `${row("Recording", esc(a.input.file))}
 ${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
 ${row("Format", esc(a.input.layout))}
-${row("Samples", `${a.input.samples} at ${qty(sig(a.input.sampleRateHz, 6), "Hz")} = ${qty(fixed(a.input.durationS, 3), "s")}, ${a.channels.length} channel(s) analysed`)}`;
+${row("Samples", `${a.input.samples} at ${qty(rateText(a.input.sampleRateHz), "Hz")} = ${qty(fixed(a.input.durationS, 3), "s")}, ${a.channels.length} channel(s) analysed`)}
+${row("Window analysed", esc(windowText(a)))}`;
 }
 
 export function identityRows(meta: TestMeta | undefined, a: RecordingAnalysis): string {
@@ -194,7 +196,7 @@ export function settingsRows(a: RecordingAnalysis, ctx: ReportContext): string {
   const result = [...new Set(a.channels.map((c) => accelLabel(c.units)))].join(", ");
   const given = ctx.given && ctx.given.length > 0 ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default or from the profile)</span>`;
   return [
-    row("Sample rate", `${qty(sig(a.input.sampleRateHz, 8), "Hz")}, from ${esc(rateFrom)}`),
+    row("Sample rate", `${qty(rateText(a.input.sampleRateHz), "Hz")}, from ${esc(rateFrom)}`),
     row("Units of the samples", esc(units.join("; "))),
     row("Units of the results", esc(result)),
     row("Calibration", a.channels.some((c) => c.reading.factor !== 1)

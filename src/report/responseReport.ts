@@ -2,6 +2,7 @@ import type { ResponseComparison, ResponseSpectra } from "../responseSpectra.js"
 import { accelLabel, densityAscii } from "../units.js";
 import { RESPONSE_CAUTION, STROKE_CAUTION } from "./cautions.js";
 import { fixed, sig, table } from "./format.js";
+import { fullScaleLines } from "./psdText.js";
 import { finiteOrNull, toolInfo } from "./psdJson.js";
 
 function arr(a: Float64Array): (number | null)[] {
@@ -10,7 +11,7 @@ function arr(a: Float64Array): (number | null)[] {
 
 function sourceJson(r: ResponseSpectra) {
   const s = r.source;
-  return { kind: s.kind, file: s.file, sha256: s.sha256, label: s.label, units: densityAscii(s.units), settings: s.settings ?? null, band: r.band };
+  return { kind: s.kind, file: s.file, sha256: s.sha256, label: s.label, units: densityAscii(s.units), settings: s.settings ?? null, window: s.window ?? null, reading: s.reading ?? null, band: r.band };
 }
 
 function spectraJson(r: ResponseSpectra) {
@@ -97,6 +98,8 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
   const lines = [
     `psdgate ${version}: SDOF response to ${s.file} (${what})`,
     `  input      ${sig(r.band.fromHz, 4)}–${sig(r.band.toHz, 5)} Hz, ${sig(r.motion.accelerationRms, 4)} ${u} RMS${s.settings ? `; PSD of ${s.settings.segmentLength}-point segments, ${sig(s.settings.resolutionHz, 4)} Hz lines, ${s.settings.averages} averages` : ""}`,
+    ...(s.reading ? fullScaleLines([{ name: s.label, reading: s.reading }]) : []),
+    ...(s.window && !s.window.whole ? [`  window     ${fixed(s.window.fromS, 3)} to ${fixed(s.window.toS, 3)} s of the recording (${fixed(s.window.durationS, 3)} s)`] : []),
     `  system     Q ${sig(r.q, 4)} (zeta ${sig(1 / (2 * r.q), 3)}), base-driven; exposure ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}; Basquin b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement`,
     "",
   ];

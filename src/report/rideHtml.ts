@@ -1,10 +1,11 @@
 import { DIRECTIVE_2002_44_EC, EIGHT_HOURS_S } from "../compare/wholeBodyExposure.js";
 import type { RideAxis, RideResult } from "../rideRecording.js";
 import { weightingPowerGains } from "../weight/isoWeightings.js";
-import { fixed, sig } from "./format.js";
+import { fixed, rateText, sig } from "./format.js";
 import { embedResult } from "./embeddedResult.js";
 import { metaRows, recordDocument, recordingRows, recordSignOff, reportPage, row, settingsRows, startTimeOf, type ReportContext } from "./reportPage.js";
 import { RIDE_CAUTIONS, rideJson, zoneFrom } from "./rideReport.js";
+import { windowText } from "./psdText.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
 /**
@@ -170,7 +171,7 @@ ${metaRows(m, startTimeOf(a))}
 <h2>Record</h2>
 <table class="meta">
 ${recordingRows(a)}
-${row("Window analysed", `${fixed(a.window.fromS, 3)} to ${fixed(a.window.toS, 3)} s (${a.window.frames} samples)`)}
+${row("Window analysed", esc(windowText(a)))}
 ${row("Posture", esc(r.posture))}
 </table>
 <h2>Settings and assumptions</h2>

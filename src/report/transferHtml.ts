@@ -2,7 +2,7 @@ import type { TransferAnalysis, TransferOutput } from "../analyzeTransfer.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { TRANSFER_CAUTION } from "./cautions.js";
 import { embedResult } from "./embeddedResult.js";
-import { fixed, sig } from "./format.js";
+import { fixed, rateText, sig } from "./format.js";
 import { givenRow, metaRows, qty, readingWords, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
 import { transferJson } from "./transferReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
@@ -103,14 +103,15 @@ ${metaRows(m)}
 ${row("Recording", esc(t.input.file))}
 ${row("Recording SHA-256", `<span class="hash">${t.input.sha256}</span>`)}
 ${row("Format", esc(t.input.layout))}
-${row("Samples", `${t.input.samples} at ${qty(sig(t.input.sampleRateHz, 6), "Hz")} = ${qty(fixed(t.input.durationS, 3), "s")}`)}
+${row("Samples", `${t.input.samples} at ${qty(rateText(t.input.sampleRateHz), "Hz")} = ${qty(fixed(t.input.durationS, 3), "s")}`)}
+${row("Window analysed", `${fixed(t.window.fromS, 3)} to ${fixed(t.window.toS, 3)} s (${fixed(t.window.durationS, 3)} s): ${t.window.frames} samples${t.window.frames === t.input.samples ? ", the whole record" : ""}`)}
 ${row("Input (reference)", `${esc(t.reference.name)} (channel ${t.reference.position}), ${qty(sig(t.reference.rms, 4), accelLabel(t.units))} RMS`)}
 ${row("Outputs", esc(t.outputs.map((o) => `${o.name} (channel ${o.position})`).join(", ")))}
 </table>
 <h2>Settings and assumptions</h2>
 <table class="meta" id="settings">
 ${row("Units", `every channel in ${accelLabel(t.units)} (the input's unit, or --result-units); |H| is output unit per input unit`)}
-${t.readings.map((x) => row(`Channel ${x.channel}`, esc(readingWords(x, x.factor, accelLabel(t.units))))).join("\n")}
+${t.channels.map((x) => row(`Channel ${x.name}`, esc(readingWords(x.reading, x.reading.factor, accelLabel(t.units))))).join("\n")}
 ${row("Analysis", `${s.window} window, ${s.segmentLength}-point segments (${qty(sig(s.resolutionHz, 4), "Hz")} lines), ${fixed(100 * s.overlap, 1)} % overlap, detrend ${s.detrend}; ${t.averages} averages, ${fixed(t.dof, 1)} DOF`)}
 ${row("Estimators", `H1 = G_xy / G_xx and H2 = G_yy / G_yx, coherence γ²; H1 bounds at ${fixed(100 * s.confidence, 0)} % (Bendat &amp; Piersol, Random Data, ch. 9)`)}
 ${row("Good coherence", `γ² ≥ ${s.goodCoherence}`)}

@@ -1,7 +1,8 @@
 import type { TransferAnalysis } from "../analyzeTransfer.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { TRANSFER_CAUTION } from "./cautions.js";
-import { fixed, sig, table } from "./format.js";
+import { fixed, rateText, sig, table } from "./format.js";
+import { fullScaleLines } from "./psdText.js";
 import { finiteOrNull, toolInfo } from "./psdJson.js";
 
 function arr(a: Float64Array): (number | null)[] {
@@ -14,13 +15,14 @@ export function transferJson(t: TransferAnalysis, version: string) {
   return {
     tool: toolInfo(version),
     input: t.input,
+    window: t.window,
+    channels: t.channels,
     settings: { window: s.window, segment: s.segmentLength, overlap: s.overlap, hop: s.hop, detrend: s.detrend, confidence: s.confidence, resolutionHz: s.resolutionHz, scale: s.scale, goodCoherence: s.goodCoherence },
     averages: t.averages,
     skippedSegments: t.skippedSegments,
     dof: t.dof,
     disjointAverages: t.disjointAverages,
     units: { acceleration: t.units === "g" ? "g" : "m/s2", psd: densityAscii(t.units), magnitude: "1 (output unit per input unit)", phase: "degrees, output relative to input (negative: the output lags)" },
-    readings: t.readings,
     frequencyHz: arr(t.frequencyHz),
     inputChannel: { name: t.reference.name, position: t.reference.position, psd: arr(t.reference.psd), rms: t.reference.rms },
     outputs: t.outputs.map((o) => ({
@@ -64,7 +66,9 @@ export function transferText(t: TransferAnalysis, version: string): string {
   const s = t.settings;
   const lines = [
     `psdgate ${version}: transfer ${t.reference.name} -> ${t.outputs.map((o) => o.name).join(", ")} in ${t.input.file}`,
-    `  record     ${sig(t.input.durationS, 4)} s at ${sig(t.input.sampleRateHz, 6)} Hz (${t.input.samples} samples), sha256 ${t.input.sha256}`,
+    `  record     ${sig(t.input.durationS, 4)} s at ${rateText(t.input.sampleRateHz)} Hz (${t.input.samples} samples), sha256 ${t.input.sha256}`,
+    ...fullScaleLines(t.channels),
+    ...(t.window.frames !== t.input.samples ? [`  window     ${fixed(t.window.fromS, 3)} to ${fixed(t.window.toS, 3)} s (${fixed(t.window.durationS, 3)} s): ${t.window.frames} samples analysed`] : []),
     `  analysis   ${s.window}, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 0)} % overlap, detrend ${s.detrend}; ${t.averages} averages, ${fixed(t.dof, 1)} DOF (n_d = ${fixed(t.disjointAverages, 1)})`,
     `  input      ${t.reference.name} (channel ${t.reference.position}): ${sig(t.reference.rms, 4)} ${u} RMS`,
   ];

@@ -18,7 +18,7 @@ describe("psdgate ride", () => {
     expect(j.exposure.durationS).toBe(28800);
     expect(typeof j.exposure.a8).toBe("number");
     expect(typeof j.exposure.vdv).toBe("number");
-    expect(j.window).toEqual({ fromS: 0, toS: 240 });
+    expect(j.window).toEqual({ fromS: 0, toS: 240, durationS: 240, frames: 240000 });
     expect(j.seat.seat).toBeGreaterThan(0);
     expect(j.cautions.join(" ")).toMatch(/not an occupational-health assessment/);
     expect(j.cautions.join(" ")).toMatch(/Local regulations .* competent persons decide/);
@@ -26,7 +26,7 @@ describe("psdgate ride", () => {
   });
   it("--from/--to cut the window and record it; the exposure's VDV scales from the window's length", async () => {
     const j = JSON.parse((await cli(...base, "--exposure", "2h30min", "--from", "100", "--to", "200", "--json")).stdout);
-    expect(j.window).toEqual({ fromS: 100, toS: 200 });
+    expect(j.window).toEqual({ fromS: 100, toS: 200, durationS: 100, frames: 100000 });
     expect(j.axes[0].durationS).toBe(100);
     expect(j.exposure.durationS).toBe(9000);
   });
