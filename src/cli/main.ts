@@ -120,8 +120,11 @@ export async function runCli(argv: string[], io: CliIo = processIo): Promise<num
     }
     if (e instanceof CommanderError) {
       if (e.exitCode === 0) return EXIT.ok;
+      // The command whose help answers it: `ride`, or `queue work` for a subcommand.
       const sub = program.commands.find((c) => c.name() === argv[0]);
-      io.stderr(`psdgate: ${usageError(e, program, e.code === "commander.unknownOption" || e.code === "commander.missingMandatoryOptionValue" || e.code === "commander.optionMissingArgument" ? sub?.name() : undefined).message}\n`);
+      const subsub = sub?.commands.find((c) => c.name() === argv[1]);
+      const where = sub ? `${sub.name()}${subsub ? ` ${subsub.name()}` : ""}` : undefined;
+      io.stderr(`psdgate: ${usageError(e, program, e.code === "commander.unknownOption" || e.code === "commander.missingMandatoryOptionValue" || e.code === "commander.optionMissingArgument" ? where : undefined).message}\n`);
       return EXIT.input;
     }
     const err = e as Error;
