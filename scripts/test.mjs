@@ -62,11 +62,11 @@ if (build.status !== 0) finish(0, 1, 0, build.status || 1);
 
 const report = slow ? ".vitest-slow.json" : ".vitest.json";
 rmSync(report, { force: true });
-// The fast set leaves the slow files out; the slow set is vitest's include list (vitest.config.ts reads
-// PSDGATE_TEST_INCLUDE), so file filters given after it narrow the slow set rather than add to it.
-const select = slow ? [] : SLOW_FILES.flatMap((g) => ["--exclude", g]);
-const env = slow ? { ...process.env, PSDGATE_TEST_INCLUDE: SLOW_FILES.join(",") } : process.env;
-const r = spawnSync("npx", ["vitest", "run", "--reporter=default", "--reporter=json", `--outputFile=${report}`, ...select, ...rest], { stdio: "inherit", env });
+// The fast set leaves the slow files out (vitest.config.ts reads PSDGATE_TEST_EXCLUDE); the slow set is vitest's
+// include list (PSDGATE_TEST_INCLUDE), so file filters given after it narrow the slow set rather than add to it.
+// Both go by environment, not as arguments: tests/queue/globalSetup.ts reads file filters from the arguments.
+const env = { ...process.env, [slow ? "PSDGATE_TEST_INCLUDE" : "PSDGATE_TEST_EXCLUDE"]: SLOW_FILES.join(",") };
+const r = spawnSync("npx", ["vitest", "run", "--reporter=default", "--reporter=json", `--outputFile=${report}`, ...rest], { stdio: "inherit", env });
 let j;
 try {
   j = JSON.parse(readFileSync(report, "utf8"));

@@ -110,6 +110,8 @@ export interface ChannelAnalysis {
   histogram?: AmplitudeHistogram | undefined;
   /** Reverse-arrangements test on the stretch mean squares (Bendat & Piersol 2010, sec. 10.3). */
   stationarity: StationarityFinding;
+  /** The stretch mean squares the stationarity test looked at (one per stretchS; for check's level gate). */
+  stretchMeanSquares?: Float64Array | undefined;
   /** Runs of repeated values: is the record a slower sensor's readings held to the file's rate? */
   hold?: SampleHold | undefined;
   /** Findings that weaken trust in the result; each names what was seen. */
@@ -235,7 +237,8 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
     const parseval = parsevalCheck(rmsTime, psd, settings.window);
     const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
-    const stationarity = stationarityFinding(stretches[c]!.result(), stretchLength / fs, windowInfo.fromS);
+    const stretchMs = stretches[c]!.result();
+    const stationarity = stationarityFinding(stretchMs, stretchLength / fs, windowInfo.fromS);
     const hold = holds[c]!.result(fs);
     const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
     const note = stationarityNote(stationarity);
@@ -243,7 +246,7 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS }, text: `the window's end ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
-      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, stretchMeanSquares: stretchMs, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });
   return {

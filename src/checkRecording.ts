@@ -1,5 +1,7 @@
 import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./analyzeRecording.js";
-import { judgeSpectrum, overallVerdict, withDoubts, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
+import { levelGate } from "./compare/levelGate.js";
+import { bandMeanSquare } from "./estimate/psdEstimate.js";
+import { judgeSpectrum, overallVerdict, withDoubts, withGate, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
 import { InputError, quoted } from "./errors.js";
 import type { Finding } from "./findings.js";
@@ -58,14 +60,15 @@ export function spectrumOf(c: ChannelAnalysis, a: RecordingAnalysis): SpectrumUn
     // The duration judged is the analysed window's (--from/--to), not the file's.
     sampleRateHz: a.input.sampleRateHz, durationS: a.window.frames / a.input.sampleRateHz, window: s.window,
     analysedWindow: a.window.frames !== a.input.samples ? { fromS: a.window.fromS, toS: a.window.toS } : undefined, segmentLength: s.segmentLength, detrend: s.detrend, confidence: s.confidence,
+    overlap: s.overlap,
   };
 }
 
 /**
  * One control spectrum from several channels: the line-by-line average or the largest. Its DOF is
  * taken as the smallest of the channels' (the channels of one test are strongly correlated, so the
- * average is worth no more than one channel: conservative). With the largest, the upper tests are
- * shared by k estimates (decisionRule.ts ruleLevels).
+ * average is worth no more than one channel: conservative). With the largest, judgeSpectrum tests it
+ * by the distribution of the largest of k (decisionRule.ts largestUpperFactor, largestOfMoments).
  */
 export function combineSpectra(list: SpectrumUnderTest[], rule: ControlRule): SpectrumUnderTest {
   const first = list[0]!;
@@ -109,14 +112,29 @@ export async function checkRecording(file: string, profile: TestProfile, options
   // Control channels are always analysed, with any channels asked for besides.
   const channels = options.control && options.channels?.length ? [...new Set([...options.channels, ...options.control.channels])] : options.channels;
   const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true });
-  const judged = analysis.channels.map((c) => withDoubts(judgeSpectrum(spectrumOf(c, analysis), profile), [...c.doubtFindings, ...heldBand(c, profile)]));
+  // Without control every channel is judged and the record's verdict rests on all of them: the record's 5 %
+  // is split over them (family). With control only the control spectrum decides; the channels are judged
+  // alone for the reader, each as if it were the record's one spectrum.
+  const family = options.control ? 1 : analysis.channels.length;
+  // The level gate (level swings beyond the tolerance over the run, drift dominating): a pass needs it clear.
+  const tolDb = profile.rmsToleranceDb ? Math.min(profile.rmsToleranceDb.upper, profile.rmsToleranceDb.lower) : Math.min(...profile.bands.map((b) => Math.min(b.upperDb, b.lowerDb)));
+  // The share of the record's mean square (about its mean) below the profile's first frequency: what the
+  // segments' detrending removed plus the lines below it.
+  const f0 = profile.breakpoints[0]!.hz;
+  const belowShare = (c: ChannelAnalysis) => {
+    const total = c.parseval.rmsTime * c.parseval.rmsTime;
+    return total > 0 ? Math.max(0, 1 - bandMeanSquare(c.psd, f0, analysis.input.sampleRateHz / 2) / total) : 0;
+  };
+  const gate = (c: ChannelAnalysis) => levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, belowShare(c), f0);
+  const judged = analysis.channels.map((c) => withDoubts(withGate(judgeSpectrum({ ...spectrumOf(c, analysis), family }, profile), gate(c)), [...c.doubtFindings, ...heldBand(c, profile)]));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }
   const pos = controlPositions(analysis, options.control.channels);
   const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
   const doubts = pos.flatMap((i) => [...analysis.channels[i]!.doubtFindings, ...heldBand(analysis.channels[i]!, profile)].map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
-  const judgement = withDoubts(judgeSpectrum(combined, profile), doubts);
+  const gates = pos.flatMap((i) => gate(analysis.channels[i]!).map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
+  const judgement = withDoubts(withGate(judgeSpectrum(combined, profile), gates), doubts);
   return {
     verdict: judgement.verdict, analysis, profile, channels: judged,
     roles: analysis.channels.map((_, i) => (pos.includes(i) ? "control" : "monitor")),

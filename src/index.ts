@@ -22,10 +22,11 @@ export { SampleHoldAccumulator, type SampleHold } from "./estimate/sampleHold.js
 export { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
 export { parsevalCheck, parsevalTolerance, studentTQuantile, type ParsevalCheck } from "./estimate/parsevalCheck.js";
 export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfile, type ProfileSegment, type ToleranceBand } from "./compare/testProfile.js";
-export { judgeSpectrum, withDoubts, overallVerdict, bandAt, longerRecordFactor, type Verdict, type ChannelCompliance, type Excursion, type LineDeviation, type SpectrumUnderTest, type Finding } from "./compare/complianceCheck.js";
-export { DECISION_RULE, ruleLevels, powerAt, dofForPower, binomialAtLeast } from "./compare/decisionRule.js";
+export { judgeSpectrum, withDoubts, withGate, overallVerdict, bandAt, longerRecordFactor, powerRequirement, secondsForDof, type Verdict, type ChannelCompliance, type Excursion, type LineDeviation, type SpectrumUnderTest, type DecideEstimate, type Finding } from "./compare/complianceCheck.js";
+export { DECISION_RULE, DEFAULT_POWER, ruleLevels, powerAt, dofForPower, binomialAtLeast, largestUpperFactor, largestOfMoments, largestEffectiveDof, type PowerRequirement } from "./compare/decisionRule.js";
+export { levelGate, levelSwing, LEVEL_GATE, type LevelSwing } from "./compare/levelGate.js";
 export { amplitudeGates, autocorrelationFourthSum, GATE_RATE } from "./compare/amplitudeGates.js";
-export { spectralKernel, lineVarianceInflation, detrendBiasedLines } from "./estimate/spectralKernel.js";
+export { spectralKernel, lineVarianceInflation, detrendBiasedLines, departureShare } from "./estimate/spectralKernel.js";
 export { synthesizeProfile, type SynthOptions, type SynthResult } from "./synth/synthesizeProfile.js";
 export { GaussianNoise } from "./synth/gaussianNoise.js";
 export { psdJson, psdCsv } from "./report/psdJson.js";

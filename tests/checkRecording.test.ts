@@ -42,9 +42,53 @@ describe("checkRecording with control channels (multipoint control)", () => {
   it("the largest of channels 1 and 2 fails (the hot channel is above the band)", async () => {
     const r = await checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["ch1", "ch2"], rule: "largest" } });
     expect(r.verdict).toBe("fail");
-    expect(r.control!.judgement.rule.lineTestLevel).toBeLessThan(r.channels[2]!.rule.lineTestLevel);
+    // The largest of 2 is tested by its own distribution (F^2): its upper limits carry its mean reading at the limit.
+    expect(r.control!.judgement.rule.largestOf!.channels).toBe(2);
+    expect(r.control!.judgement.rule.largestOf!.meanAllowanceDb).toBeGreaterThan(0);
+    expect(r.control!.judgement.rule.family).toBe(1);
+  });
+  it("without control every channel is judged at 5 % / n, so the false-fail rate holds per record", async () => {
+    const r = await checkRecording(file, profile, { segmentLength: 1024 });
+    const n = r.channels.length;
+    expect(n).toBeGreaterThan(1);
+    for (const c of r.channels) expect(c.rule.family).toBe(n);
+    const alone = await checkRecording(file, profile, { segmentLength: 1024, channels: ["1"] });
+    expect(r.channels[0]!.rule.lineTestLevel).toBeCloseTo(alone.channels[0]!.rule.lineTestLevel / n, 15);
   });
   it("an unknown control channel is an input error naming the channels there are", async () => {
     await expect(checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["9"], rule: "average" } })).rejects.toThrow(/CHANNEL_NOT_FOUND/);
+  });
+});
+
+describe("checkRecording's level gate (compare/levelGate.ts): a run that is not what its average says is not a pass", () => {
+  const on = (f: number) => (f >= 20 && f <= 1000 ? 0.01 : 0);
+  const wav = (x: Float64Array, name: string) => {
+    const f = join(tempDir(), name);
+    writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FS, samples: Array.from(x) }));
+    return f;
+  };
+  // 1 << 17 samples at 2560 Hz: 51.2 s, about 480 DOF at 1024-point segments (the rule's power is there), 51 stretches.
+  it("a stationary conforming run passes, with no gate finding", async () => {
+    const r = await checkRecording(wav(shapedRecord(on, FS, 1 << 17, 21), "steady.wav"), profile, { segmentLength: 1024, histogram: false });
+    expect(r.verdict).toBe("pass");
+    expect(r.channels[0]!.findings.map((f) => f.code)).not.toContain("LEVEL_SWING");
+  });
+  it("+2 dB for the first half and -2.9 dB for the second (the average near the profile): INCONCLUSIVE, LEVEL_SWING", async () => {
+    const x = shapedRecord(on, FS, 1 << 17, 22);
+    for (let i = 0; i < x.length; i++) x[i] = x[i]! * Math.sqrt(10 ** ((i < x.length / 2 ? 2 : -2.9) / 10));
+    const r = await checkRecording(wav(x, "step.wav"), profile, { segmentLength: 1024, histogram: false });
+    expect(r.verdict).toBe("inconclusive");
+    expect(r.channels[0]!.findings.map((f) => f.code)).toContain("LEVEL_SWING");
+  });
+  it("a slow 0.3 Hz swing holding about 64 % of the mean square: INCONCLUSIVE, DRIFT_DOMINATES", async () => {
+    const x = shapedRecord(on, FS, 1 << 17, 23);
+    // Noise mean square 0.01 x 980 = 9.8; a sine of amplitude a adds a^2 / 2: 64 % needs a^2 / 2 = 9.8 x 0.64 / 0.36.
+    const a = Math.sqrt((2 * 9.8 * 0.64) / 0.36);
+    for (let i = 0; i < x.length; i++) x[i] = x[i]! + a * Math.sin((2 * Math.PI * 0.3 * i) / FS);
+    const r = await checkRecording(wav(x, "drift.wav"), profile, { segmentLength: 1024, histogram: false });
+    expect(r.verdict).toBe("inconclusive");
+    const f = r.channels[0]!.findings.find((x) => x.code === "DRIFT_DOMINATES")!;
+    expect(f.values.sharePercent).toBeGreaterThan(60);
+    expect(f.values.sharePercent).toBeLessThan(68);
   });
 });

@@ -4,6 +4,7 @@ import { describe, expect, it } from "vitest";
 import { _channelFindings, analyzeRecording } from "../src/analyzeRecording.js";
 import { checkRecording, loadProfile } from "../src/checkRecording.js";
 import { judgeSpectrum, withDoubts, type SpectrumUnderTest } from "../src/compare/complianceCheck.js";
+import { levelGate } from "../src/compare/levelGate.js";
 import { parseProfile } from "../src/compare/testProfile.js";
 import type { Finding } from "../src/findings.js";
 import { tempDir } from "./helpers.js";
@@ -121,8 +122,16 @@ async function allFindings(): Promise<Finding[]> {
     judgeSpectrum({ ...exact(on, { dof: 400, durationS: 25 }), analysedWindow: { fromS: 5, toS: 30 } }, flat(20, 1000, { durationS: 40 })), // DURATION_SHORT of a --from/--to window
     judgeSpectrum(exact((f) => (f >= 20 ? 0.01 * db(3) : 0), { dof: 200 }), flat(20, 2000)), // RANGE_ABOVE_RECORD, RMS over what the record covers
     judgeSpectrum(exact(on, { dof: 400 }), flat(20, 21)), // NO_LINES
+    // NOTCH_LINES_LEFT_OUT: a 40 dB notch 35 Hz above the profile's start, where the wide kernel reaches past it.
+    judgeSpectrum(exact(on, { dof: 400 }), parseProfile(JSON.stringify({
+      title: "notch", units: "g2/Hz", points: [{ hz: 20, level: 0.01 }, { hz: 50, level: 0.01 }, { hz: 55, level: 0.000001 }, { hz: 60, level: 0.01 }, { hz: 1000, level: 0.01 }],
+      tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
+    }), "notch.json")),
   ];
   for (const c of judged) out.push(...c.findings);
+  // The level gate: a run loud for its first half and quiet for its second, and drift that dominates.
+  const step = Array.from({ length: 64 }, (_, i) => (i < 32 ? db(2) : db(-2.9)));
+  out.push(...levelGate(step, 1, 1, 0.64, 20));
   out.push(...withDoubts(judged[1]!, [{ code: "CLIPPING", values: {}, text: "in doubt" }]).findings.filter((f) => f.code === "FAIL_IN_DOUBT"));
 
   // And the real thing: the samples checked as a user would, control channels as one spectrum.

@@ -1,9 +1,13 @@
 import { chiSquareCdf, chiSquareIntervalFactors, chiSquareSurvival } from "../estimate/chiSquare.js";
 import { bandMeanSquare } from "../estimate/psdEstimate.js";
-import { detrendBiasedLines, lineVarianceInflation, spectralKernel, type SpectralKernel } from "../estimate/spectralKernel.js";
+import { departureShare, detrendBiasedLines, lineVarianceInflation, spectralKernel, type SpectralKernel } from "../estimate/spectralKernel.js";
+import { welchDof } from "../estimate/welchDof.js";
 import type { Detrend } from "../estimate/welchPsd.js";
 import { spectralWindow, type WindowName } from "../estimate/windows.js";
-import { DECISION_RULE, dofForPower, lowerFactor, powerAt, ruleLevels, upperFactor, type PowerAt } from "./decisionRule.js";
+import {
+  chanceAbove, chanceBelow, DECISION_RULE, DEFAULT_POWER, dofForPower, largestEffectiveDof, largestOfMoments, largestUpperFactor, lowerFactor, powerAt, ruleLevels, upperFactor,
+  type PowerAt, type PowerInputs, type PowerRequirement,
+} from "./decisionRule.js";
 import type { Finding } from "../findings.js";
 import { profileLevel, profileMeanSquare, type TestProfile, type ToleranceBand } from "./testProfile.js";
 
@@ -34,6 +38,9 @@ export interface LineDeviation {
   shown: boolean;
   /** Shown beyond an outer limit. */
   beyondOuter: boolean;
+  /** The outer limits at this line, dB, as seen through the kernel (when the profile has them). */
+  outerUpperDb?: number | undefined;
+  outerLowerDb?: number | undefined;
 }
 
 export interface Excursion {
@@ -52,8 +59,14 @@ export interface Excursion {
   shown: boolean;
   /** Bonferroni-adjusted p-value of the worst line: the chance of a line this far out among all tests if the PSD were on the limit. */
   adjustedP: number;
-  /** For a run not shown: how many times longer a record would show it (same level assumed). */
+  /**
+   * For a run not shown: how many times longer a record would show its worst line with at least 90 %
+   * probability, if the true spectrum is what was measured (read again through the window's kernel, as a
+   * new run would show it). Undefined when that reading is inside the limit: no run length shows it.
+   */
   longerRecordFactor: number | undefined;
+  /** The same as a run length in seconds at this sample rate, segment and overlap. */
+  secondsToShow: number | undefined;
 }
 
 export interface RuleReport {
@@ -67,10 +80,32 @@ export interface RuleReport {
   stretchWidths: number[];
   /** Lines the profile allows outside the band. */
   allowanceLines: number;
-  /** Power at the achieved DOF, each case. */
+  /** Power at the achieved DOF, each case, against the requirement that applies (the profile's or the default). */
   power: PowerAt;
-  /** The DOF at which a pass has the stated power. */
+  /** The DOF at which a pass has the stated power (0 when the profile asks none). */
   dofForPower: number;
+  /** The power requirement that applies: psdgate's default, the profile's own, or none (null). */
+  requirement: (PowerRequirement & { source: "default" | "profile" }) | null;
+  /** Power at the achieved DOF against psdgate's default requirement, whatever the profile asks. */
+  powerDefault: PowerAt;
+  /** The DOF at which the default requirement is met. */
+  dofForDefaultPower: number;
+  /** The kernel's share on a departure of the requirement's width at its centre line (how much of it a line shows). */
+  departureSeenShare: number;
+  /** Spectra the record's verdict rests on; each is tested at falseFailBound / family. */
+  family: number;
+  /** With the largest of k control channels: k, the mean of the largest at the limit (dB), its moment-matched DOF. */
+  largestOf: { channels: number; meanAllowanceDb: number; effectiveDof: number } | null;
+}
+
+/** How long a run must be for the verdict to be decided (pass or fail) with `probability`, if the spectrum is what was measured. */
+export interface DecideEstimate {
+  probability: number;
+  /** The DOF and the run length in seconds at this sample rate, segment and overlap; undefined when not within 1000x this run. */
+  dof: number | undefined;
+  seconds: number | undefined;
+  /** The decision most likely at that length. */
+  likely: "pass" | "fail" | undefined;
 }
 
 export interface ChannelCompliance {
@@ -80,8 +115,8 @@ export interface ChannelCompliance {
   findings: Finding[];
   lines: LineDeviation[];
   excursions: Excursion[];
-  /** Lines in the profile's range that were not judged, and why. */
-  unjudged: { edge: number; detrend: number; aboveRecord: number };
+  /** Lines in the profile's range that were not judged, and why (notch: the window's kernel is not modelled well enough there; excluded: left out by the caller's mask). */
+  unjudged: { edge: number; detrend: number; aboveRecord: number; notch: number; excluded: number };
   rms: {
     measured: number; required: number; deviationDb: number; upperDb: number | undefined; lowerDb: number | undefined;
     /** Within tolerance as measured. */
@@ -93,6 +128,8 @@ export interface ChannelCompliance {
   };
   dof: { achieved: number; required: number | undefined; forPower: number; ok: boolean };
   rule: RuleReport;
+  /** For an inconclusive verdict that a longer run could decide: how long. Undefined otherwise. */
+  decide?: DecideEstimate | undefined;
 }
 
 /** What the judgement needs of a measured spectrum. */
@@ -112,8 +149,17 @@ export interface SpectrumUnderTest {
   segmentLength: number;
   detrend: Detrend;
   confidence: number;
-  /** With the largest of k control channels taken at each line, k (it shares the upper tests); else 1. */
+  /** With the largest of k control channels taken at each line, k (its upper tests use the largest's distribution); else 1. */
   upperSharedBy?: number | undefined;
+  /** Spectra the record's verdict rests on (every judged channel, or the one control spectrum): the 5 % is split over them. Default 1. */
+  family?: number | undefined;
+  /** Fraction of a segment shared with the next (for run lengths in seconds); default 0.5. */
+  overlap?: number | undefined;
+  /**
+   * Lines left out of the judgement by the caller (index into psd, non-zero to leave out), e.g. the lines
+   * of a sine tone on a sine-on-random profile. They are counted in `unjudged.excluded`; the RMS is not changed.
+   */
+  excludedLines?: Uint8Array | undefined;
 }
 
 /** The band of a line; at a shared edge (e.g. exactly 1000 Hz) the tighter band applies (common practice: read a shared edge strictly). */
@@ -141,33 +187,39 @@ interface KernelView {
   weights: Float64Array;
 }
 
-function kernelView(k: SpectralKernel, df: number): KernelView {
-  const mh = (k.weights.length - 1) / 2;
-  const offsetsHz = new Float64Array(k.weights.length);
-  for (let j = 0; j < offsetsHz.length; j++) offsetsHz[j] = ((j - mh) / k.oversample) * df;
-  return { offsetsHz, weights: k.weights };
+function kernelView(weights: Float64Array, oversample: number, df: number): KernelView {
+  const mh = (weights.length - 1) / 2;
+  const offsetsHz = new Float64Array(weights.length);
+  for (let j = 0; j < offsetsHz.length; j++) offsetsHz[j] = ((j - mh) / oversample) * df;
+  return { offsetsHz, weights };
 }
 
 /**
  * The profile, band limits and outer limits at f seen through the kernel: sum of weight x value at
  * f - offset, with offsets past 0 or fs/2 folded back (the one-sided spectrum of a sampled record).
  * Undefined when any sample falls outside the profile's range: the record's content there is not
- * specified, so the line cannot be held to it (an edge line).
+ * specified, so the line cannot be held to it (an edge line). With `partial`, such samples are left out
+ * and the rest renormalised instead (a probe of how much the far kernel matters near the ends).
  */
-function smoothed(p: TestProfile, kv: KernelView, f: number, nyquist: number, f0: number, fN: number) {
+function smoothed(p: TestProfile, kv: KernelView, f: number, nyquist: number, f0: number, fN: number, partial = false) {
   let req = 0;
   let up = 0;
   let lo = 0;
   let oUp = 0;
   let oLo = 0;
+  let total = 0;
   const tol = 1e-9 * (fN - f0);
   for (let j = 0; j < kv.weights.length; j++) {
     let g = f - kv.offsetsHz[j]!;
     if (g < 0) g = -g;
     if (g > nyquist) g = 2 * nyquist - g;
-    if (g < f0 - tol || g > fN + tol) return undefined;
+    if (g < f0 - tol || g > fN + tol) {
+      if (partial) continue;
+      return undefined;
+    }
     g = Math.min(fN, Math.max(f0, g));
     const w = kv.weights[j]!;
+    total += w;
     const level = profileLevel(p, g);
     const b = bandAt(p.bands, g)!;
     req += w * level;
@@ -179,13 +231,29 @@ function smoothed(p: TestProfile, kv: KernelView, f: number, nyquist: number, f0
       oLo += w * level * Math.pow(10, -o.lowerDb / 10);
     }
   }
-  return { req, up, lo, oUp, oLo };
+  if (!(total > 0)) return undefined;
+  return { req: req / total, up: up / total, lo: lo / total, oUp: oUp / total, oLo: oLo / total };
 }
 
-/** Smallest DOF multiple at which `ratio` (measured / limit) would be shown at the per-test level. */
-export function longerRecordFactor(ratio: number, dof: number, level: number): number | undefined {
+/** Where the core kernel and the wide one differ by more than this, a line near the profile's ends is left out (1 %, 0.04 dB; chosen here). */
+const NOTCH_LIMIT = 0.01;
+
+/**
+ * Smallest DOF multiple at which a line whose true level is `ratio` x its limit would be shown at the
+ * per-test level with at least `probability` (0.9 by default; 0.5 is where the expected estimate just
+ * reaches the threshold). With `k` > 1 (above, the largest of k channels each at that level), the chance
+ * is 1 - (1 - P1)^k. Undefined for a line on or inside its limit, or past 1e6 times the DOF.
+ */
+export function longerRecordFactor(ratio: number, dof: number, level: number, probability = DECIDE_PROBABILITY, k = 1): number | undefined {
   if (!(dof > 0) || ratio === 1 || !Number.isFinite(ratio) || ratio <= 0) return undefined;
-  const shows = (nu: number) => (ratio > 1 ? ratio > upperFactor(nu, level) : ratio < lowerFactor(nu, level));
+  const chance = (nu: number) => {
+    if (ratio > 1) {
+      const one = chanceAbove(nu, ratio, largestUpperFactor(nu, level, k));
+      return k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(one, 1 - 1e-16))) : one;
+    }
+    return chanceBelow(nu, ratio, lowerFactor(nu, level));
+  };
+  const shows = (nu: number) => chance(nu) >= probability;
   if (shows(dof)) return 1;
   let hi = dof * 2;
   while (!shows(hi)) {
@@ -223,7 +291,7 @@ interface JudgedGrid {
   lo: number[];
   oUp: number[];
   oLo: number[];
-  unjudged: { edge: number; detrend: number };
+  unjudged: { edge: number; detrend: number; notch: number };
 }
 
 const gridCache = new WeakMap<TestProfile, Map<string, JudgedGrid>>();
@@ -235,10 +303,11 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
   if (!byProfile) gridCache.set(profile, (byProfile = new Map()));
   const hit = byProfile.get(key);
   if (hit) return hit;
-  const kv = kernelView(kernel, sp.lineSpacingHz);
+  const kv = kernelView(kernel.weights, kernel.oversample, sp.lineSpacingHz);
+  const kw = kernelView(kernel.wideWeights, kernel.oversample, sp.lineSpacingHz);
   const biased = detrendBiasedLines(kernel);
   const nyquist = sp.sampleRateHz / 2;
-  const g: JudgedGrid = { idx: [], req: [], up: [], lo: [], oUp: [], oLo: [], unjudged: { edge: 0, detrend: 0 } };
+  const g: JudgedGrid = { idx: [], req: [], up: [], lo: [], oUp: [], oLo: [], unjudged: { edge: 0, detrend: 0, notch: 0 } };
   for (let i = 1; i < sp.frequencyHz.length; i++) {
     const f = sp.frequencyHz[i]!;
     if (f < f0 || f > fN) continue;
@@ -246,10 +315,22 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
       g.unjudged.detrend++;
       continue;
     }
-    const s = smoothed(profile, kv, f, nyquist, f0, fN);
-    if (s === undefined) {
+    const core = smoothed(profile, kv, f, nyquist, f0, fN);
+    if (core === undefined) {
       g.unjudged.edge++;
       continue;
+    }
+    // The wide kernel where it fits inside the profile (exact to its 1e-9 tails: the bottom of a deep notch
+    // sees the walls through the far side lobes). Near the ends it does not fit: the core kernel stands if
+    // the wide one over the part inside agrees with it, else the line is left out (a notch near an end).
+    let s = smoothed(profile, kw, f, nyquist, f0, fN);
+    if (s === undefined) {
+      const probe = smoothed(profile, kw, f, nyquist, f0, fN, true);
+      if (probe !== undefined && (Math.abs(probe.req / core.req - 1) > NOTCH_LIMIT || Math.abs(probe.up / core.up - 1) > NOTCH_LIMIT || Math.abs(probe.lo / core.lo - 1) > NOTCH_LIMIT)) {
+        g.unjudged.notch++;
+        continue;
+      }
+      s = core;
     }
     g.idx.push(i);
     g.req.push(s.req);
@@ -263,6 +344,48 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
   return g;
 }
 
+/** The power requirement that applies to a profile: its own (parts it leaves out from the default), none, or the default. */
+export function powerRequirement(profile: TestProfile): (PowerRequirement & { source: "default" | "profile" }) | null {
+  const p = profile.power;
+  if (p === "none") return null;
+  if (p === undefined) return { ...DEFAULT_POWER, source: "default" };
+  return {
+    departureDb: p.departureDb ?? DEFAULT_POWER.departureDb,
+    departureShare: p.departurePercent !== undefined ? p.departurePercent / 100 : DEFAULT_POWER.departureShare,
+    widthLines: p.widthLines ?? DEFAULT_POWER.widthLines,
+    rmsBeyondDb: p.rmsBeyondDb ?? DEFAULT_POWER.rmsBeyondDb,
+    probability: p.probabilityPercent !== undefined ? p.probabilityPercent / 100 : DEFAULT_POWER.probability,
+    source: "profile",
+  };
+}
+
+/** The probability a run-length estimate aims at (chosen here; the issue's 90 %). */
+export const DECIDE_PROBABILITY = 0.9;
+
+/**
+ * Seconds of record that give `dof` at this sample rate, segment and overlap: the fewest segments K whose
+ * Welch DOF (welchDof, Percival & Walden 1993 eq. 292b) reaches it, then (K - 1) hop + N samples.
+ */
+export function secondsForDof(sp: Pick<SpectrumUnderTest, "window" | "segmentLength" | "overlap" | "sampleRateHz">, dof: number): number | undefined {
+  if (!(dof > 0) || !Number.isFinite(dof)) return undefined;
+  const w = spectralWindow(sp.window, sp.segmentLength);
+  const n = sp.segmentLength;
+  const hop = Math.max(1, n - Math.round((sp.overlap ?? 0.5) * n));
+  let hi = 1;
+  while (welchDof(w, hop, hi) < dof) {
+    hi *= 2;
+    if (hi > 1e9) return undefined;
+  }
+  let lo = Math.max(1, Math.floor(hi / 2));
+  if (welchDof(w, hop, lo) >= dof) hi = lo;
+  while (hi - lo > 1) {
+    const mid = Math.floor((lo + hi) / 2);
+    if (welchDof(w, hop, mid) >= dof) hi = mid;
+    else lo = mid;
+  }
+  return ((hi - 1) * hop + n) / sp.sampleRateHz;
+}
+
 export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): ChannelCompliance {
   const df = sp.lineSpacingHz;
   const nyquist = sp.sampleRateHz / 2;
@@ -271,26 +394,50 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const fN = profile.breakpoints[profile.breakpoints.length - 1]!.hz;
   const kernel = spectralKernel(sp.window, spectralWindow(sp.window, sp.segmentLength), sp.detrend);
   const inflation = lineVarianceInflation(kernel);
-  const k = sp.upperSharedBy ?? 1;
+  const k = Math.max(1, sp.upperSharedBy ?? 1);
+  const family = Math.max(1, sp.family ?? 1);
 
   // Which lines are judged, and what each should show (cached per profile and analysis grid).
   const grid = judgedGrid(profile, kernel, sp, f0, fN);
-  const unjudged = { ...grid.unjudged, aboveRecord: 0 };
+  const unjudged = { edge: grid.unjudged.edge, detrend: grid.unjudged.detrend, aboveRecord: 0, notch: grid.unjudged.notch, excluded: 0 };
+  const idx: number[] = [];
+  const req: number[] = [];
+  const limitsUp: number[] = [];
+  const limitsLo: number[] = [];
+  const outerUp: number[] = [];
+  const outerLo: number[] = [];
+  for (let j = 0; j < grid.idx.length; j++) {
+    const i = grid.idx[j]!;
+    if (sp.excludedLines?.[i]) {
+      unjudged.excluded++;
+      continue;
+    }
+    idx.push(i);
+    req.push(grid.req[j]!);
+    limitsUp.push(grid.up[j]!);
+    limitsLo.push(grid.lo[j]!);
+    outerUp.push(grid.oUp[j]!);
+    outerLo.push(grid.oLo[j]!);
+  }
+  const nu = sp.dof;
+  const nuAt = (i: number) => (i === half ? nu / 2 : nu);
+  // The largest of k estimates at the limit reads mean(nu) x the limit on average (largestOfMoments): its
+  // upper limits as the estimate should show them carry that allowance, and its sums are tested with the
+  // moment-matched DOF. One spectrum: mean 1, nu itself.
+  const meanAt = (v: number) => (k > 1 && v > 0 ? largestOfMoments(v, k).mean : 1);
+  const effAt = (v: number) => (k > 1 && v > 0 ? largestEffectiveDof(v, k) : v);
+  const upEff = limitsUp.map((u, j) => u * meanAt(nuAt(idx[j]!)));
+
   const lines: LineDeviation[] = [];
-  const idx = grid.idx;
-  const limitsUp = grid.up;
-  const limitsLo = grid.lo;
-  const outerUp = grid.oUp;
-  const outerLo = grid.oLo;
   for (let j = 0; j < idx.length; j++) {
     const i = idx[j]!;
-    const req = grid.req[j]!;
     // The Nyquist line's one-sided value is not doubled (so sum P df is the mean square): judge twice it.
     const measured = i === half ? 2 * sp.psd[i]! : sp.psd[i]!;
-    const status = measured > limitsUp[j]! ? "above" : measured < limitsLo[j]! || !(measured > 0) ? "below" : "within";
+    const status = measured > upEff[j]! ? "above" : measured < limitsLo[j]! || !(measured > 0) ? "below" : "within";
     lines.push({
-      frequencyHz: sp.frequencyHz[i]!, measured, required: req, deviationDb: 10 * Math.log10(measured / req),
-      upperDb: 10 * Math.log10(limitsUp[j]! / req), lowerDb: -10 * Math.log10(limitsLo[j]! / req), status, shown: false, beyondOuter: false,
+      frequencyHz: sp.frequencyHz[i]!, measured, required: req[j]!, deviationDb: 10 * Math.log10(measured / req[j]!),
+      upperDb: 10 * Math.log10(upEff[j]! / req[j]!), lowerDb: -10 * Math.log10(limitsLo[j]! / req[j]!), status, shown: false, beyondOuter: false,
+      ...(profile.outerBands ? { outerUpperDb: 10 * Math.log10((outerUp[j]! * meanAt(nuAt(i))) / req[j]!), outerLowerDb: -10 * Math.log10(outerLo[j]! / req[j]!) } : {}),
     });
   }
   if (fN > nyquist * (1 + 1e-12)) {
@@ -300,18 +447,20 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const allowanceLines = Math.floor(((profile.allowedOutsidePercent ?? 0) / 100) * m);
   const outer = profile.outerBands !== undefined;
   const widths = allowanceLines === 0 ? stretchWidths(m) : [];
-  const levels = ruleLevels(m, outer, k);
+  const levels = ruleLevels(m, outer, family);
   // Single lines get the line alpha less the stretches' share; each stretch width an equal part of that share.
   const singleShare = widths.length > 0 ? 1 - STRETCH_SHARE : 1;
   const upLevel = levels.upper.lineTest * singleShare;
   const loLevel = levels.lower.lineTest * singleShare;
-  const nu = sp.dof;
-  const nuAt = (i: number) => (i === half ? nu / 2 : nu);
-  const factorCache = new Map<number, { up: number; lo: number }>();
+  const factorCache = new Map<number, { up: number; lo: number; oUp: number; oLo: number }>();
+  // Thresholds on measured / raw limit: above, the largest-of-k quantile (k = 1: chi-square); below, chi-square.
   const factors = (v: number) => {
     let f = factorCache.get(v);
     if (!f) {
-      f = { up: upperFactor(v, upLevel), lo: lowerFactor(v, loLevel) };
+      f = {
+        up: largestUpperFactor(v, upLevel, k), lo: lowerFactor(v, loLevel),
+        oUp: outer ? largestUpperFactor(v, levels.upper.outerTest!, k) : Infinity, oLo: outer ? lowerFactor(v, levels.lower.outerTest!) : 0,
+      };
       factorCache.set(v, f);
     }
     return f;
@@ -324,28 +473,27 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
       const l = lines[j]!;
       const f = factors(nuAt(idx[j]!));
       if (l.measured / limitsUp[j]! > f.up || l.measured / limitsLo[j]! < f.lo) l.shown = true;
-      if (outer) {
-        const oUpF = upperFactor(nuAt(idx[j]!), levels.upper.outerTest!);
-        const oLoF = lowerFactor(nuAt(idx[j]!), levels.lower.outerTest!);
-        if (l.measured / outerUp[j]! > oUpF || l.measured / outerLo[j]! < oLoF) l.beyondOuter = true;
-      }
+      if (outer && (l.measured / outerUp[j]! > f.oUp || l.measured / outerLo[j]! < f.oLo)) l.beyondOuter = true;
     }
     // Stretches of w neighbouring lines, every w/2 lines: the mean of measured / limit, with the
     // DOF of a sum of correlated lines (Satterthwaite), Bonferroni over the stretches of each width.
+    // Above, the limit carries the largest-of allowance and the DOF is the moment-matched one.
+    const nuUpEff = effAt(nu);
     for (const w of widths) {
       let c = 1;
       for (let d = 1; d < Math.min(w, kernel.lineCorrelation.length); d++) c += 2 * (1 - d / w) * kernel.lineCorrelation[d]!;
       const nuW = (nu * w) / c;
+      const nuWUp = (nuUpEff * w) / c;
       const count = Math.max(1, Math.floor((m - w) / (w / 2)) + 1);
       // This width's part of the stretches' share, over its `count` stretches (per direction).
       const part = (m * STRETCH_SHARE) / (widths.length * count);
-      const upF = upperFactor(nuW, levels.upper.lineTest * part);
+      const upF = upperFactor(nuWUp, levels.upper.lineTest * part);
       const loF = lowerFactor(nuW, levels.lower.lineTest * part);
       for (let s = 0; s + w <= m; s += w / 2) {
         let ru = 0;
         let rl = 0;
         for (let j = s; j < s + w; j++) {
-          ru += lines[j]!.measured / limitsUp[j]!;
+          ru += lines[j]!.measured / upEff[j]!;
           rl += lines[j]!.measured / limitsLo[j]!;
         }
         ru /= w;
@@ -362,10 +510,29 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
     }
   }
 
+  const secondsAt = (v: number | undefined) => (v === undefined ? undefined : secondsForDof(sp, v));
+
+  // The measured spectrum taken as the truth over each line's cell, read again through the window's kernel
+  // (what a new run would show on average): c_0 of the line's own cell, c_d of each cell d lines away.
+  const cellShare: number[] = [departureShare(kernel, 1)];
+  for (let d = 1; d <= kernel.wideHalfWidthBins; d++) cellShare.push((departureShare(kernel, 2 * d + 1) - departureShare(kernel, 2 * d - 1)) / 2);
+  const reread = (i: number) => {
+    let e = 0;
+    let wsum = 0;
+    for (let d = -(cellShare.length - 1); d < cellShare.length; d++) {
+      const q = i + d;
+      if (q < 1 || q > half) continue;
+      const c = cellShare[Math.abs(d)]!;
+      e += c * (q === half ? 2 * sp.psd[q]! : sp.psd[q]!);
+      wsum += c;
+    }
+    return e / wsum;
+  };
+
   // Excursions: runs of neighbouring lines outside the band as measured.
   const excursions: Excursion[] = [];
   const plain = nu > 0 ? chiSquareIntervalFactors(nu, sp.confidence) : { lower: 0, upper: Infinity };
-  const tests = 2 * Math.max(1, m);
+  const tests = 2 * Math.max(1, m) * family;
   for (let i = 0; i < m; ) {
     const l = lines[i]!;
     if (l.status === "within") {
@@ -386,13 +553,20 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
     const limit = above ? limitsUp[worst]! : limitsLo[worst]!;
     const ratio = w.measured / limit;
     const v = nuAt(idx[worst]!);
-    const p = v > 0 ? (above ? chiSquareSurvival(v * ratio, v) : chiSquareCdf(v * ratio, v)) : 1;
+    const pOne = v > 0 ? (above ? chiSquareSurvival(v * ratio, v) : chiSquareCdf(v * ratio, v)) : 1;
+    // With the largest of k, the chance that any of k at the limit reaches this: 1 - (1 - p)^k.
+    const p = above && k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(pOne, 1 - 1e-16))) : pOne;
+    // The worst line's true level taken as measured, read again through the kernel as a new run would (for the
+    // largest of k: over its mean at the limit, per channel); undefined when that reading is inside the limit.
+    const again = reread(idx[worst]!) / limit;
+    const trueRatio = above ? again / meanAt(v) : again;
+    const factor = shown || (above ? trueRatio <= 1 : trueRatio >= 1) ? undefined : longerRecordFactor(trueRatio, v, above ? upLevel : loLevel, DECIDE_PROBABILITY, above ? k : 1);
     excursions.push({
       fromHz: l.frequencyHz, toHz: lines[j]!.frequencyHz, direction: l.status as "above" | "below", lines: j - i + 1,
       worstDb: w.deviationDb, worstHz: w.frequencyHz, limitDb: above ? w.upperDb : -w.lowerDb,
-      clear: above ? ratio * plain.lower > 1 : ratio * plain.upper < 1,
-      shown, adjustedP: Math.min(1, p * tests * (above ? k : 1)),
-      longerRecordFactor: shown ? undefined : longerRecordFactor(ratio, v, above ? upLevel : loLevel),
+      clear: above ? (ratio / meanAt(v)) * plain.lower > 1 : ratio * plain.upper < 1,
+      shown, adjustedP: Math.min(1, p * tests),
+      longerRecordFactor: factor, secondsToShow: factor === undefined ? undefined : secondsAt(factor * v),
     });
     i = j + 1;
   }
@@ -405,7 +579,9 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const measuredRms = Math.sqrt(measuredMs);
   const rmsDev = 20 * Math.log10(measuredRms / requiredRms);
   const tol = profile.rmsToleranceDb;
-  const rmsOk = tol === undefined || (rmsDev <= tol.upper && rmsDev >= -tol.lower);
+  const muNow = meanAt(nu);
+  // As measured: above against the tolerance with the largest-of allowance (its mean at the limit), below plain.
+  const rmsOk = tol === undefined || (rmsDev - 10 * Math.log10(muNow) <= tol.upper && rmsDev >= -tol.lower);
   // Each line's contribution to that mean square, for the Satterthwaite DOF of the sum.
   const contrib = new Float64Array(half + 1);
   let nc = 0;
@@ -415,18 +591,28 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
     if (hi > lo) contrib[nc++] = bandMeanSquare(sp, lo, hi);
   }
   const rmsDof = nu > 0 ? sumDof(contrib, nc, nu, kernel.lineCorrelation) : 0;
+  const rmsRatio = nu > 0 && rmsDof > 0 ? rmsDof / nu : Math.max(1, m) / inflation;
+  const ms0 = requiredRms * requiredRms;
+  const hiLimit = tol !== undefined ? ms0 * Math.pow(10, tol.upper / 10) : Infinity;
+  const loLimit = tol !== undefined ? ms0 * Math.pow(10, -tol.lower / 10) : 0;
   let rmsShown = false;
   if (tol !== undefined && rmsDof > 0 && measuredMs > 0) {
-    const ms0 = requiredRms * requiredRms;
-    const hiLimit = ms0 * Math.pow(10, tol.upper / 10);
-    const loLimit = ms0 * Math.pow(10, -tol.lower / 10);
-    rmsShown = measuredMs / hiLimit > upperFactor(rmsDof, levels.upper.rmsTest) || measuredMs / loLimit < lowerFactor(rmsDof, levels.lower.rmsTest);
+    const rmsDofUp = rmsDof * (effAt(nu) / nu);
+    rmsShown = measuredMs / (hiLimit * muNow) > upperFactor(rmsDofUp, levels.upper.rmsTest) || measuredMs / loLimit < lowerFactor(rmsDof, levels.lower.rmsTest);
   }
 
-  // Power and the DOF a pass needs.
-  const powerInputs = { lines: Math.max(1, m), allowance: allowanceLines, inflation, rmsDofRatio: nu > 0 && rmsDof > 0 ? rmsDof / nu : Math.max(1, m) / inflation, outerLimits: outer, upperSharedBy: k };
-  const forPower = dofForPower(powerInputs);
-  const power = powerAt(Math.max(nu, 1e-9), powerInputs);
+  // Power and the DOF a pass needs: against the requirement that applies, and against the default always.
+  const bandsUp = Math.max(...profile.bands.map((b) => b.upperDb));
+  const bandsLo = Math.max(...profile.bands.map((b) => b.lowerDb));
+  const powerInputs: PowerInputs = {
+    lines: Math.max(1, m), allowance: allowanceLines, inflation, rmsDofRatio: rmsRatio, outerLimits: outer, upperSharedBy: k, family,
+    seenShare: (w) => departureShare(kernel, w), widestUpperDb: bandsUp, widestLowerDb: bandsLo, singleLineShare: singleShare,
+  };
+  const requirement = powerRequirement(profile);
+  const forDefault = dofForPower(powerInputs, DEFAULT_POWER);
+  const powerDefault = powerAt(Math.max(nu, 1e-9), powerInputs, DEFAULT_POWER);
+  const forPower = requirement === null ? 0 : requirement.source === "default" ? forDefault : dofForPower(powerInputs, requirement);
+  const power = requirement === null ? powerDefault : requirement.source === "default" ? powerDefault : powerAt(Math.max(nu, 1e-9), powerInputs, requirement);
   const required = profile.minDof;
   const dofOk = nu >= (required ?? 0) && nu >= forPower;
 
@@ -434,15 +620,20 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   let atProfile = 0;
   if (nu > 0) {
     for (let j = 0; j < m; j++) {
-      const f = factors(nuAt(idx[j]!));
       const v = nuAt(idx[j]!);
-      atProfile += chiSquareSurvival((v * f.up * limitsUp[j]!) / lines[j]!.required, v) + chiSquareCdf((v * f.lo * limitsLo[j]!) / lines[j]!.required, v);
+      const f = factors(v);
+      const qUp = chiSquareSurvival((v * f.up * limitsUp[j]!) / req[j]!, v);
+      atProfile += (k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(qUp, 1 - 1e-16))) : qUp) + chiSquareCdf((v * f.lo * limitsLo[j]!) / req[j]!, v);
     }
     if (tol !== undefined && rmsDof > 0) {
-      atProfile += chiSquareSurvival(rmsDof * upperFactor(rmsDof, levels.upper.rmsTest) * Math.pow(10, tol.upper / 10), rmsDof);
+      const rmsDofUp = rmsDof * (effAt(nu) / nu);
+      atProfile += chiSquareSurvival(rmsDofUp * upperFactor(rmsDofUp, levels.upper.rmsTest) * Math.pow(10, tol.upper / 10), rmsDofUp);
       atProfile += chiSquareCdf(rmsDof * lowerFactor(rmsDof, levels.lower.rmsTest) * Math.pow(10, -tol.lower / 10), rmsDof);
     }
   }
+  const perRecord = DECISION_RULE.falseFailRate;
+  const perSpectrum = perRecord / family;
+  const rateWords = `false-fail rate at most ${pct(perRecord)} per record${family > 1 ? ` (${family} spectra judged, ${pct(perSpectrum)} each)` : ""}`;
 
   // Failures the data show, and what else a pass needs.
   const fails: Finding[] = [];
@@ -450,8 +641,8 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   if (shownOut > allowanceLines) {
     fails.push({
       code: "LINES_OUTSIDE",
-      values: { lines: shownOut, judged: m, ...(allowanceLines > 0 ? { allowance: allowanceLines } : {}), falseFailPercent: percent(DECISION_RULE.falseFailRate) },
-      text: `${shownOut} of ${m} lines shown outside their tolerance band${allowanceLines > 0 ? ` (the profile allows ${allowanceLines})` : ""}, beyond what chance among all lines explains (false-fail rate at most ${pct(DECISION_RULE.falseFailRate)})`,
+      values: { lines: shownOut, judged: m, ...(allowanceLines > 0 ? { allowance: allowanceLines } : {}), falseFailPercent: percent(perRecord) },
+      text: `${shownOut} of ${m} lines shown outside their tolerance band${allowanceLines > 0 ? ` (the profile allows ${allowanceLines})` : ""}, beyond what chance among all lines explains (${rateWords})`,
     });
   }
   if (shownOuter > 0) fails.push({ code: "OUTER_LIMIT", values: { lines: shownOuter }, text: `${shownOuter} line(s) shown beyond the outer limits, which no line may cross` });
@@ -465,28 +656,33 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   }
   if (m === 0) blockers.push({ code: "NO_LINES", values: {}, text: "no spectral line of the record can be judged inside the profile's range" });
   if (required !== undefined && nu < required) {
-    blockers.push({ code: "DOF_BELOW_PROFILE", values: { dof: nu, requiredDof: required }, text: `degrees of freedom ${nu.toFixed(1)} below the required ${required}: record too short for the statistical accuracy the profile asks` });
+    const sec = secondsAt(required);
+    blockers.push({
+      code: "DOF_BELOW_PROFILE", values: { dof: nu, requiredDof: required, ...(sec !== undefined ? { secondsForDof: sec } : {}) },
+      text: `degrees of freedom ${nu.toFixed(1)} below the required ${required}: record too short for the statistical accuracy the profile asks${sec !== undefined ? ` (${required} DOF take a run of ${sec.toFixed(1)} s at this rate, segment and overlap)` : ""}` });
   }
-  if (m > 0 && nu < forPower) {
+  if (m > 0 && requirement !== null && nu < forPower) {
+    const sec = secondsAt(forPower);
     blockers.push({
       code: "DOF_BELOW_POWER",
       values: {
-        dof: nu, dofForPower: forPower, departureDb: DECISION_RULE.departureDb, departurePercent: percent(DECISION_RULE.departureShare), lines: m,
-        powerPercent: percent(DECISION_RULE.power), achievedPowerPercent: percent(power.least),
+        dof: nu, dofForPower: forPower, departureDb: requirement.departureDb, departurePercent: percent(requirement.departureShare), widthLines: requirement.widthLines, lines: m,
+        powerPercent: percent(requirement.probability), achievedPowerPercent: percent(power.least), ...(sec !== undefined ? { secondsForPower: sec } : {}),
       },
-      text: `degrees of freedom ${nu.toFixed(1)} below the ${forPower} at which a ${DECISION_RULE.departureDb} dB departure beyond the band over ${pct(DECISION_RULE.departureShare)} of the ${m} lines would be seen with ${pct(DECISION_RULE.power)} probability (here ${pct(power.least)})`,
+      text: `degrees of freedom ${nu.toFixed(1)} below the ${forPower} at which a ${requirement.departureDb} dB departure beyond the band over ${pct(requirement.departureShare)} of the ${m} lines, in runs of ${requirement.widthLines} line(s) or wider, would be seen with ${pct(requirement.probability)} probability (here ${pct(power.least)})${sec !== undefined ? `; ${forPower} DOF take a run of ${sec.toFixed(1)} s` : ""}`,
     });
   }
+  const fixedBlockers: Finding[] = [];
   if (fN > nyquist * (1 + 1e-12)) {
-    blockers.push({ code: "RANGE_ABOVE_RECORD", values: { profileTopHz: fN, sampleRateHz: sp.sampleRateHz, nyquistHz: nyquist, linesUnseen: unjudged.aboveRecord }, text: `the profile runs to ${fN} Hz but the record's sample rate ${sp.sampleRateHz} Hz shows only up to ${nyquist} Hz: ${unjudged.aboveRecord} line(s) of the profile cannot be seen` });
+    fixedBlockers.push({ code: "RANGE_ABOVE_RECORD", values: { profileTopHz: fN, sampleRateHz: sp.sampleRateHz, nyquistHz: nyquist, linesUnseen: unjudged.aboveRecord }, text: `the profile runs to ${fN} Hz but the record's sample rate ${sp.sampleRateHz} Hz shows only up to ${nyquist} Hz: ${unjudged.aboveRecord} line(s) of the profile cannot be seen` });
   }
   if (m > 0) {
     const gapLow = lines[0]!.frequencyHz - f0;
     const allowed = (kernel.halfWidthBins + 1) * df;
-    if (gapLow > allowed) blockers.push({ code: "RANGE_BELOW_JUDGED", values: { firstLineHz: lines[0]!.frequencyHz, gapHz: gapLow }, text: `the first judged line is ${lines[0]!.frequencyHz} Hz, ${gapLow.toPrecision(3)} Hz above the profile's start (lines below are biased by detrending or leakage): the analysis cannot show the bottom of the range; use a finer resolution or no detrending` });
+    if (gapLow > allowed) fixedBlockers.push({ code: "RANGE_BELOW_JUDGED", values: { firstLineHz: lines[0]!.frequencyHz, gapHz: gapLow }, text: `the first judged line is ${lines[0]!.frequencyHz} Hz, ${gapLow.toPrecision(3)} Hz above the profile's start (lines below are biased by detrending or leakage): the analysis cannot show the bottom of the range; use a finer resolution or no detrending` });
   }
   if (profile.resolutionHz !== undefined && df > profile.resolutionHz * (1 + 1e-9)) {
-    blockers.push({ code: "RESOLUTION_COARSE", values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz }, text: `line spacing ${df.toPrecision(4)} Hz is coarser than the profile's resolution ${profile.resolutionHz} Hz: narrow excursions could hide between lines` });
+    fixedBlockers.push({ code: "RESOLUTION_COARSE", values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz }, text: `line spacing ${df.toPrecision(4)} Hz is coarser than the profile's resolution ${profile.resolutionHz} Hz: narrow excursions could hide between lines` });
   }
   if (profile.durationS !== undefined && sp.durationS < profile.durationS * (1 - 1e-9)) {
     const w = sp.analysedWindow;
@@ -494,27 +690,138 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
       ? { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS, fromS: w.fromS, toS: w.toS }, text: `the analysed window ${w.fromS.toFixed(3)} to ${w.toS.toFixed(3)} s lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` }
       : { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS }, text: `the record lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` });
   }
-
   const rule: RuleReport = {
-    falseFailBound: DECISION_RULE.falseFailRate,
+    falseFailBound: perRecord,
     falseFailAtProfile: Math.min(1, atProfile),
     lineTestLevel: upLevel,
     stretchWidths: widths,
     allowanceLines,
     power,
     dofForPower: forPower,
+    requirement,
+    powerDefault,
+    dofForDefaultPower: forDefault,
+    departureSeenShare: departureShare(kernel, (requirement ?? DEFAULT_POWER).widthLines),
+    family,
+    largestOf: k > 1 && nu > 0 ? { channels: k, meanAllowanceDb: 10 * Math.log10(muNow), effectiveDof: effAt(nu) } : null,
   };
-  const findings = [...fails, ...blockers];
-  const verdict: Verdict = fails.length > 0 ? "fail" : blockers.length > 0 ? "inconclusive" : "pass";
-  if (verdict === "pass") findings.push({
-    code: "PASS",
-    values: { lines: m, departureDb: DECISION_RULE.departureDb, powerPercent: percent(power.least), falseFailPercent: percent(rule.falseFailAtProfile) },
-    text: `no line and not the RMS shown outside tolerance across ${m} lines, with the power to see a ${DECISION_RULE.departureDb} dB departure (${pct(power.least)}); false-fail rate here ${pctSmall(rule.falseFailAtProfile)} if the PSD equals the profile` });
+  const allBlockers = [...blockers, ...fixedBlockers];
+  const findings = [...fails, ...allBlockers];
+  const verdict: Verdict = fails.length > 0 ? "fail" : allBlockers.length > 0 ? "inconclusive" : "pass";
+
+  // How long a run would decide an inconclusive verdict, if the spectrum is what was measured.
+  let decide: DecideEstimate | undefined;
+  if (verdict === "inconclusive" && m > 0 && nu > 0) {
+    const passPossible = fixedBlockers.length === 0;
+    const needForPass = Math.max(forPower, required ?? 0);
+    // The measured spectrum taken as the truth, over each line's cell: a new run reads it through the
+    // window's kernel, c_0 of the line's own cell and c_d of each cell d lines away (departureShare), so a
+    // lone outlying line reads about 0.6 of its excess again. The lines outside as read that way count.
+    const expectUp: number[] = [];
+    const expectLo: number[] = [];
+    const outside: number[] = [];
+    for (let j = 0; j < m; j++) {
+      const i = idx[j]!;
+      const e = reread(i);
+      const per = e / meanAt(nuAt(i));
+      expectUp.push(per / limitsUp[j]!);
+      expectLo.push(e / limitsLo[j]!);
+      if (per > limitsUp[j]! || e < limitsLo[j]!) outside.push(j);
+    }
+    const msTrue = measuredMs / muNow;
+    const chance = (v: number) => {
+      // Lines outside as measured, each at its measured level (per channel: over the largest's mean now).
+      let lnNone = 0;
+      for (const j of outside) {
+        const vj = nuAt(idx[j]!) * (v / nu);
+        const f = { up: largestUpperFactor(vj, upLevel, k), lo: lowerFactor(vj, loLevel) };
+        let pj: number;
+        if (expectUp[j]! > 1) {
+          const one = chanceAbove(vj, expectUp[j]!, f.up);
+          pj = k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(one, 1 - 1e-16))) : one;
+        } else pj = chanceBelow(vj, expectLo[j]!, f.lo);
+        lnNone += Math.log1p(-Math.min(pj, 1 - 1e-16)) / inflation;
+      }
+      const pLines = -Math.expm1(lnNone);
+      let pRmsFail = 0;
+      let pRmsOk = 1;
+      if (tol !== undefined && rmsDof > 0 && msTrue > 0) {
+        const vR = rmsDof * (v / nu);
+        const vRe = vR * (effAt(v) / v);
+        pRmsFail = chanceAbove(vRe, msTrue / hiLimit, upperFactor(vRe, levels.upper.rmsTest)) + chanceBelow(vR, msTrue / loLimit, lowerFactor(vR, levels.lower.rmsTest));
+        pRmsOk = Math.max(0, chiSquareCdf((vRe * hiLimit) / msTrue, vRe) - chiSquareCdf((vR * loLimit) / msTrue, vR));
+      }
+      const pFail = 1 - (1 - pLines) * (1 - Math.min(1, pRmsFail));
+      const durationOk = profile.durationS === undefined || (secondsAt(v) ?? 0) >= profile.durationS * (1 - 1e-9);
+      const pPass = passPossible && v >= needForPass && durationOk ? (1 - pFail) * pRmsOk : 0;
+      return { decided: pFail + pPass, likely: pFail >= pPass ? ("fail" as const) : ("pass" as const) };
+    };
+    // Doubling, then bisection between the last two points; the DOF a pass needs is tried as well.
+    const target = DECIDE_PROBABILITY;
+    let found: number | undefined;
+    let prev = nu;
+    for (let f = 1; f <= 1024; f *= 2) {
+      const v = nu * f;
+      const cand = needForPass > prev && needForPass <= v ? [needForPass, v] : [v];
+      for (const c of cand) {
+        if (chance(c).decided >= target) {
+          found = c;
+          break;
+        }
+        prev = c;
+      }
+      if (found !== undefined) break;
+    }
+    if (found !== undefined && found > nu) {
+      let lo = prev;
+      let hi = found;
+      for (let i = 0; i < 30 && hi / lo > 1.01; i++) {
+        const mid = Math.sqrt(lo * hi);
+        if (chance(mid).decided >= target) hi = mid;
+        else lo = mid;
+      }
+      found = hi;
+    }
+    if (found !== undefined) {
+      const seconds = secondsAt(found);
+      const likely = chance(found).likely;
+      decide = { probability: target, dof: found, seconds, likely };
+      if (seconds !== undefined) {
+        findings.push({
+          code: "RUN_TO_DECIDE",
+          values: { seconds, dof: found, probabilityPercent: percent(target) },
+          text: `a run of ${seconds.toFixed(1)} s (${found.toFixed(0)} DOF) would decide this verdict with at least ${pct(target)} probability if the spectrum is as measured (most likely ${likely === "pass" ? "a pass" : "a fail"})`,
+        });
+      }
+    } else {
+      decide = { probability: target, dof: undefined, seconds: undefined, likely: undefined };
+      findings.push({
+        code: "RUN_TO_DECIDE",
+        values: { probabilityPercent: percent(target) },
+        text: passPossible ? `no run up to 1024 times this one would decide this verdict with ${pct(target)} probability if the spectrum is as measured (it sits on a limit)` : `a longer run alone cannot make this a pass (coverage or resolution); none up to 1024 times this one would show a failure with ${pct(target)} probability`,
+      });
+    }
+  }
+  if (unjudged.notch > 0) {
+    findings.push({ code: "NOTCH_LINES_LEFT_OUT", values: { lines: unjudged.notch }, text: `${unjudged.notch} line(s) near the profile's ends left out: the profile changes too steeply there for the window's kernel to say what the line should show` });
+  }
+  if (verdict === "pass") {
+    const rq = requirement ?? DEFAULT_POWER;
+    findings.push({
+      code: "PASS",
+      values: {
+        lines: m, departureDb: rq.departureDb, widthLines: rq.widthLines, powerPercent: percent(power.least), defaultPowerPercent: percent(powerDefault.least),
+        falseFailPercent: percent(rule.falseFailAtProfile), recordFalseFailPercent: percent(perRecord),
+      },
+      text: `no line and not the RMS shown outside tolerance across ${m} lines, ${requirement === null ? "with no power asked by the profile" : `with the power to see a ${rq.departureDb} dB departure in runs of ${rq.widthLines} line(s) or wider (${pct(power.least)}${requirement.source === "profile" ? ", the profile's requirement" : ""})`}; against psdgate's default requirement ${pct(powerDefault.least)}; ${rateWords}, ${pctSmall(rule.falseFailAtProfile)} here if the PSD equals the profile`,
+    });
+  }
   return {
     channel: sp.name, verdict, reasons: findings.map((f) => f.text), findings, lines, excursions, unjudged,
     rms: { measured: measuredRms, required: requiredRms, deviationDb: rmsDev, upperDb: tol?.upper, lowerDb: tol?.lower, ok: rmsOk, shown: rmsShown, dof: rmsDof },
     dof: { achieved: nu, required, forPower, ok: dofOk },
     rule,
+    ...(decide !== undefined ? { decide } : {}),
   };
 }
 
@@ -526,8 +833,20 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
 export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelCompliance {
   if (doubts.length === 0) return c;
   const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {}, text: "a failure was shown, but the data are in doubt (above), so it cannot stand as a verdict" }] : [];
-  const findings = [...doubts, ...c.findings.filter((f) => f.code !== "PASS"), ...note];
-  return { ...c, verdict: "inconclusive", findings, reasons: findings.map((f) => f.text) };
+  // A longer run does not remove a doubt about the data: no run length is promised.
+  const findings = [...doubts, ...c.findings.filter((f) => f.code !== "PASS" && f.code !== "RUN_TO_DECIDE"), ...note];
+  return { ...c, verdict: "inconclusive", findings, reasons: findings.map((f) => f.text), decide: undefined };
+}
+
+/**
+ * The level gate's findings (compare/levelGate.ts: level swings beyond the tolerance over the run, drift
+ * dominating) stop a pass: it becomes INCONCLUSIVE with the reason. A shown failure stays a failure (the
+ * average is outside whatever the run did), with the finding added.
+ */
+export function withGate(c: ChannelCompliance, gate: Finding[]): ChannelCompliance {
+  if (gate.length === 0) return c;
+  const findings = [...gate, ...c.findings.filter((f) => f.code !== "PASS")];
+  return { ...c, verdict: c.verdict === "pass" ? "inconclusive" : c.verdict, findings, reasons: findings.map((f) => f.text) };
 }
 
 /** Excursions ordered by how far their worst line lies beyond its limit, largest first (a copy). */

@@ -63,6 +63,20 @@ const ProfileSchema = z.object({
   minDof: positive("a minimum number of degrees of freedom").optional(),
   resolutionHz: positive("an analysis resolution in Hz").optional(),
   durationS: positive("a test duration in s").optional(),
+  /**
+   * The procedure's own power requirement for a pass (what a pass must have been able to see), or "none";
+   * absent: psdgate's default (compare/decisionRule.ts DEFAULT_POWER).
+   */
+  power: z.union([
+    z.literal("none"),
+    z.object({
+      departureDb: positive("a departure beyond the band in dB").optional(),
+      departurePercent: z.number({ error: "a share of the lines in percent (a number above 0, at most 100)" }).positive({ message: "a share above 0 %" }).max(100, { message: "a share of at most 100 %" }).optional(),
+      widthLines: z.number({ error: "a width in neighbouring lines (a whole number from 1 to 64)" }).int({ message: "a whole number of lines" }).min(1, { message: "at least 1 line" }).max(64, { message: "at most 64 lines" }).optional(),
+      rmsBeyondDb: positive("an RMS departure beyond its tolerance in dB").optional(),
+      probabilityPercent: z.number({ error: "a probability in percent (a number from 50 to 99.9)" }).min(50, { message: "a probability from 50 %" }).max(99.9, { message: "a probability up to 99.9 %" }).optional(),
+    }, { error: 'a power requirement (departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent) or "none"' }).strict(),
+  ], { error: 'a power requirement (departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent) or "none"' }).optional(),
   description: z.string().optional(),
   provenance: ProvenanceSchema.optional(),
 });
@@ -111,6 +125,11 @@ export interface TestProfile {
   defaultsApplied: string[];
   /** Where a derived profile came from (absent for a hand-written one). */
   provenance?: ProfileProvenance | undefined;
+  /**
+   * The profile's own power requirement: "none", or the parts it states (the rest from psdgate's default);
+   * absent: psdgate's default applies.
+   */
+  power?: "none" | { departureDb?: number | undefined; departurePercent?: number | undefined; widthLines?: number | undefined; rmsBeyondDb?: number | undefined; probabilityPercent?: number | undefined } | undefined;
 }
 
 const LOG10_2 = Math.log10(2);
@@ -212,6 +231,7 @@ export function normalizeProfile(doc: ProfileDocument, file: string, sha256: str
     rmsToleranceDb, minDof: doc.minDof, resolutionHz: doc.resolutionHz, durationS: doc.durationS,
     allowedOutsidePercent: t.allowedOutsidePercent, outerBands, defaultsApplied: defaultsApplied ?? [],
     ...(doc.provenance !== undefined ? { provenance: doc.provenance } : {}),
+    ...(doc.power !== undefined ? { power: doc.power } : {}),
   };
 }
 

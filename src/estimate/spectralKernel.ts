@@ -22,6 +22,13 @@ export interface SpectralKernel {
   /** Kernel weights at offsets j / oversample bins, j = -halfWidth*oversample .. +halfWidth*oversample, summing to 1. */
   weights: Float64Array;
   /**
+   * The same kernel sampled out to WIDE_HALF_WIDTH bins (or n/4), normalised over that width: what a line
+   * shows where the profile changes by tens of dB within a few bins (the bottom of a deep notch), where the
+   * 1 % tails the core kernel leaves out matter.
+   */
+  wideWeights: Float64Array;
+  wideHalfWidthBins: number;
+  /**
    * Correlation of the periodogram values of two lines d bins apart for a spectrum smooth across them:
    * rho[d] = |sum w^2 e^(-2 pi i d n / N)|^2 / (sum w^2)^2 (Percival & Walden 1993, sec. 6.6; for Hann
    * rho[1] = 4/9 and rho[2] = 1/36). rho[0] = 1.
@@ -39,6 +46,8 @@ export const DETREND_BIAS_LIMIT = 0.01;
 export const KERNEL_TAIL_SHARE = 0.01;
 const OVERSAMPLE = 8;
 const MAX_HALF_WIDTH = 32;
+/** Half-width of the wide kernel, bins: Hann's side lobes fall 18 dB/octave, so past 32 bins less than 1e-9 of it lies each side (chosen here). */
+export const WIDE_HALF_WIDTH = 32;
 
 const cache = new Map<string, SpectralKernel>();
 
@@ -97,6 +106,21 @@ export function spectralKernel(windowName: string, window: Float64Array, detrend
       }
     }
   }
+  const wideHalf = Math.min(WIDE_HALF_WIDTH, Math.max(1, Math.floor(n / 4)));
+  for (let j = side.length; j <= wideHalf * OVERSAMPLE; j++) side.push(dtftPower(window, j / OVERSAMPLE) / (n * sumW2));
+  const sampled = (h: number) => {
+    const m = h * OVERSAMPLE;
+    const out = new Float64Array(2 * m + 1);
+    let sum = 0;
+    for (let j = -m; j <= m; j++) {
+      const edge = j === -m || j === m ? 0.5 : 1;
+      out[j + m] = side[Math.abs(j)]! * edge;
+      sum += out[j + m]!;
+    }
+    for (let j = 0; j < out.length; j++) out[j] = out[j]! / sum;
+    return out;
+  };
+  const wideWeights = sampled(Math.max(wideHalf, half));
   const mh = half * OVERSAMPLE;
   const weights = new Float64Array(2 * mh + 1);
   let total = 0;
@@ -128,7 +152,7 @@ export function spectralKernel(windowName: string, window: Float64Array, detrend
       detrendBias[k] = -p / sumW2;
     }
   }
-  const kernel: SpectralKernel = { oversample: OVERSAMPLE, halfWidthBins: half, tailShare: tail, weights, lineCorrelation, detrendBias };
+  const kernel: SpectralKernel = { oversample: OVERSAMPLE, halfWidthBins: half, tailShare: tail, weights, wideWeights, wideHalfWidthBins: Math.max(wideHalf, half), lineCorrelation, detrendBias };
   cache.set(key, kernel);
   return kernel;
 }
@@ -148,4 +172,22 @@ export function detrendBiasedLines(k: SpectralKernel): number {
   let last = -1;
   for (let i = 0; i < k.detrendBias.length; i++) if (Math.abs(k.detrendBias[i]!) > DETREND_BIAS_LIMIT) last = i;
   return last + 1;
+}
+
+/**
+ * The share of the kernel on a band `widthLines` bins wide centred on the line: how much of a departure
+ * that wide (the rest of the spectrum unchanged) the centre line shows. Hann: about 0.50 for one line and
+ * 0.97 for three (tests/estimate/spectralKernel.test.ts).
+ */
+export function departureShare(k: SpectralKernel, widthLines: number): number {
+  const w = k.wideWeights;
+  const mh = (w.length - 1) / 2;
+  const halfSamples = (widthLines / 2) * k.oversample;
+  let s = 0;
+  for (let j = 0; j < w.length; j++) {
+    const d = Math.abs(j - mh);
+    if (d < halfSamples - 1e-9) s += w[j]!;
+    else if (Math.abs(d - halfSamples) <= 1e-9) s += w[j]! / 2;
+  }
+  return Math.min(1, s);
 }

@@ -20,6 +20,18 @@ export function excursionText(e: Excursion): string {
   return `${range}: ${e.direction} by up to ${signedDb(e.worstDb)} at ${sig(e.worstHz, 5)} Hz, limit ${signedDb(e.limitDb)}, ${excursionJudgement(e)}`;
 }
 
+/** Lines of the profile's range not judged, and why, in words (empty when all were judged). */
+export function unjudgedText(c: ChannelCompliance): string {
+  const un = c.unjudged;
+  return [
+    un.edge ? `${un.edge} line(s) at the profile's ends (the window's kernel reaches past them)` : "",
+    un.detrend ? `${un.detrend} line(s) biased by detrending` : "",
+    un.aboveRecord ? `${un.aboveRecord} line(s) above the record's Nyquist frequency` : "",
+    un.notch ? `${un.notch} line(s) in a steep notch near the profile's ends (the kernel cannot say what they should show)` : "",
+    un.excluded ? `${un.excluded} line(s) left out by the caller (e.g. sine tones)` : "",
+  ].filter(Boolean).join(", ");
+}
+
 function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string): string[] {
   const u = accelLabel(ch.units);
   const out = [`${label}: ${WORD[c.verdict]}`];
@@ -28,10 +40,8 @@ function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string
   out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
   out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
   out.push(`  rule       ${ruleLine(c)}`);
-  const un = c.unjudged;
-  if (un.edge + un.detrend + un.aboveRecord > 0) {
-    out.push(`  unjudged   ${[un.edge ? `${un.edge} line(s) at the profile's ends (the window's kernel reaches past them)` : "", un.detrend ? `${un.detrend} line(s) biased by detrending` : "", un.aboveRecord ? `${un.aboveRecord} line(s) above the record's Nyquist frequency` : ""].filter(Boolean).join(", ")}`);
-  }
+  const un = unjudgedText(c);
+  if (un) out.push(`  unjudged   ${un}`);
   const shown = worstFirst(c.excursions).slice(0, 8);
   if (shown.length === 0) out.push(`  excursions none: ${c.lines.length} lines checked`);
   else {
@@ -62,15 +72,14 @@ export function checkText(r: CheckResult, version: string): string {
   r.channels.forEach((c, i) => {
     const ch = a.channels[i]!;
     const role = r.roles[i];
-    if (role === "monitor") {
-      out.push(`channel ${ch.position} "${printable(ch.name)}": monitoring (shown, not judged)`);
-      out.push(`  RMS        ${sig(c.rms.measured, 4)} ${accelLabel(ch.units)} in the profile's range, ${signedDb(c.rms.deviationDb)} from the profile; ${c.lines.filter((l) => l.status !== "within").length} of ${c.lines.length} lines outside the band as measured`);
-    } else if (role === "control") {
-      out.push(`channel ${ch.position} "${printable(ch.name)}": control channel`);
-      out.push(`  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`);
+    const parseval = `  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`;
+    if (role === "monitor" || role === "control") {
+      // Under control every channel's own verdict is still shown: judged alone, it is not the record's verdict.
+      out.push(...judgementLines(c, ch, `channel ${ch.position} "${printable(ch.name)}" (${role === "monitor" ? "monitoring" : "control"} channel judged alone; the record's verdict rests on the control spectrum)`));
+      out.push(parseval);
     } else {
       out.push(...judgementLines(c, ch, `channel ${ch.position} "${printable(ch.name)}"`));
-      out.push(`  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`);
+      out.push(parseval);
     }
     out.push(...findingLines(ch).filter((l) => !l.startsWith("  DOUBT")), "");
   });
@@ -87,7 +96,8 @@ function judgementJson(c: ChannelCompliance) {
     dof: { achieved: c.dof.achieved, required: c.dof.required ?? null, forPower: c.dof.forPower, ok: c.dof.ok },
     rule: c.rule,
     unjudged: c.unjudged,
-    excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null })),
+    excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null, secondsToShow: e.secondsToShow ?? null })),
+    decide: c.decide ? { probability: c.decide.probability, dof: c.decide.dof ?? null, seconds: c.decide.seconds ?? null, likely: c.decide.likely ?? null } : null,
     lines: {
       frequencyHz: c.lines.map((l) => l.frequencyHz),
       measured: c.lines.map((l) => finiteOrNull(l.measured)),
@@ -127,6 +137,8 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
         role: r.roles[i],
         ...j,
         verdict: r.roles[i] === "monitor" ? null : j.verdict,
+        // A monitoring channel's verdict judged alone (its `verdict` stays null: it does not decide the record).
+        aloneVerdict: j.verdict,
         rms: { ...j.rms, units: ch.units },
         reading: ch.reading,
         averages: ch.psd.averages,

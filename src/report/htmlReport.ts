@@ -6,7 +6,7 @@ import { VERDICT_CAUTION } from "./cautions.js";
 import type { CheckResult } from "../checkRecording.js";
 import { checkJson } from "./checkReport.js";
 import { embedResult } from "./embeddedResult.js";
-import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
+import { decideLine, excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import { qty, reportOpening, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
@@ -41,14 +41,14 @@ function range(e: Excursion): string {
 /** The judgement in a table cell: the words are explained once above the table. */
 function shortJudgement(e: Excursion): string {
   if (e.shown) return `shown (adjusted p ${e.adjustedP < 1e-6 ? "< 1e-6" : e.adjustedP.toPrecision(2)})`;
-  return `not shown${e.longerRecordFactor ? ` (${fixed(e.longerRecordFactor, 1)}x longer)` : ""}`;
+  return `not shown${e.longerRecordFactor ? ` (${e.secondsToShow !== undefined ? `${fixed(e.secondsToShow, 1)} s, ` : ""}${fixed(e.longerRecordFactor, 1)}x as long, shows it at 90 %)` : ""}`;
 }
 
 function excursionTable(list: Excursion[], linesChecked: number, id: string): string {
   if (list.length === 0) return `<p>No line lies outside its tolerance band (${linesChecked} lines checked).</p>`;
   const rows = worstFirst(list).map((e) => `<tr${e.shown ? ' class="shown-row"' : ""}><td>${range(e)} (${e.direction}, ${e.lines} line${e.lines === 1 ? "" : "s"})</td><td class="num">${esc(signedDb(e.worstDb))} at ${qty(sig(e.worstHz, 5), "Hz")}</td><td class="num">${esc(signedDb(e.limitDb))}</td><td>${esc(shortJudgement(e))}</td></tr>`).join("");
   const shown = list.filter((e) => e.shown).length;
-  return `<p>${list.length} excursion${list.length === 1 ? "" : "s"} as measured (${shown} shown by the rule), worst first; every one is listed. <em>Shown</em>: ${esc(excursionJudgement({ ...list[0]!, shown: true, adjustedP: 0 }).replace(/^shown \(|; adjusted p.*$/g, ""))}; <em>not shown</em>: chance among the lines tested could explain it, and a record the stated factor longer would settle it.</p>
+  return `<p>${list.length} excursion${list.length === 1 ? "" : "s"} as measured (${shown} shown by the rule), worst first; every one is listed. <em>Shown</em>: ${esc(excursionJudgement({ ...list[0]!, shown: true, adjustedP: 0 }).replace(/^shown \(|; adjusted p.*$/g, ""))}; <em>not shown</em>: chance among the lines tested could explain it; a run of the stated length would show it with 90 % probability if it is as measured.</p>
 <table class="excursions grid" id="${id}"><thead><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 
@@ -68,14 +68,20 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
     dn.push(l.required * 10 ** (-l.lowerDb / 10));
   }
   const shownLines = comp.lines.filter((l) => l.shown);
+  const outerLines = comp.lines.filter((l) => l.outerUpperDb !== undefined);
+  const outerSeries = (dev: boolean) => outerLines.length === 0 ? [] : [
+    { id: dev ? "dev-outer-upper" : "outer-upper", label: "outer limits", x: outerLines.map((l) => l.frequencyHz), y: outerLines.map((l) => (dev ? l.outerUpperDb! : l.required * 10 ** (l.outerUpperDb! / 10))), className: "outer" },
+    { id: dev ? "dev-outer-lower" : "outer-lower", label: "", x: outerLines.map((l) => l.frequencyHz), y: outerLines.map((l) => (dev ? -l.outerLowerDb! : l.required * 10 ** (-l.outerLowerDb! / 10))), className: "outer" },
+  ];
   // Required profile drawn through its breakpoints (exact corners).
   const reqX = p.breakpoints.map((b) => b.hz);
   const reqY = reqX.map((x) => profileLevel(p, x));
   const vals: number[] = [];
   // The y range follows the profile's band and the record inside it; the rest is clipped.
   for (let k = 0; k < f.length; k++) if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
-  const ymin = minOf(vals, dn, up) / 3;
-  const ymax = maxOf(vals, dn, up) * 3;
+  const oy = outerLines.flatMap((l) => [l.required * 10 ** (l.outerUpperDb! / 10), l.required * 10 ** (-l.outerLowerDb! / 10)]);
+  const ymin = minOf(vals, dn, up, oy) / 3;
+  const ymax = maxOf(vals, dn, up, oy) * 3;
   const psdPlot = svgPlot({
     id: `psd-${n}`, title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
     xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(c.units)})`, xDomain: [lo, hi], yDomain: [ymin, ymax], yLog: true, xMarks: [f0, fN],
@@ -83,19 +89,21 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
       { id: "confidence", label: "confidence band", x: f, y: c.psd.lower, y2: c.psd.upper, className: "band" },
       { id: "limits-upper", label: "tolerance", x: lx, y: up, className: "limit" },
       { id: "limits-lower", label: "", x: lx, y: dn, className: "limit" },
+      ...outerSeries(false),
       { id: "required", label: "required", x: reqX, y: reqY, className: "required" },
       { id: "measured", label: "measured", x: f, y: c.psd.psd, className: "measured" },
       ...(shownLines.length > 0 ? [{ id: "shown", label: "line shown outside", x: shownLines.map((l) => l.frequencyHz), y: shownLines.map((l) => l.measured), className: "shown", markers: true }] : []),
     ],
   });
   const devs = comp.lines.map((l) => l.deviationDb);
-  const dmax = maxOf([6], comp.lines.map((l) => l.upperDb + 1), devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
+  const dmax = maxOf([6], comp.lines.map((l) => l.upperDb + 1), outerLines.map((l) => Math.max(l.outerUpperDb!, l.outerLowerDb!) + 1), devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
   const devPlot = svgPlot({
     id: `dev-${n}`, title: "Deviation from the required profile (same frequency axis)", xLabel: "frequency (Hz)", yLabel: "deviation (dB)",
     xDomain: [lo, hi], yDomain: [-dmax, dmax], yLog: false, xMarks: [f0, fN], height: 250,
     series: [
       { id: "dev-upper", label: "band limits", x: lx, y: comp.lines.map((l) => l.upperDb), className: "limit" },
       { id: "dev-lower", label: "", x: lx, y: comp.lines.map((l) => -l.lowerDb), className: "limit" },
+      ...outerSeries(true),
       { id: "deviation", label: "10 log10(measured / required)", x: lx, y: devs, className: "deviation" },
       ...(shownLines.length > 0 ? [{ id: "dev-shown", label: "shown outside", x: shownLines.map((l) => l.frequencyHz), y: shownLines.map((l) => l.deviationDb), className: "shown", markers: true }] : []),
     ],
@@ -107,8 +115,8 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const unjudged = [un.edge ? `${un.edge} at the profile's ends (the window's kernel reaches past them)` : "", un.detrend ? `${un.detrend} biased by detrending` : "", un.aboveRecord ? `${un.aboveRecord} above the record's Nyquist frequency` : ""].filter(Boolean).join(", ");
   const judged = role !== "monitor";
   return `<section class="channel" id="channel-${n}">
-<h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel (judged in the control spectrum above)" : "monitoring channel (shown, not judged)"}</span>`}</h2>
-${role === "judged" ? `<ul>${comp.reasons.map((x) => `<li>${esc(x)}</li>`).join("")}</ul>` : ""}
+<h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel" : "monitoring channel"} judged alone (the record's verdict rests on the control spectrum above):</span> <span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>`}</h2>
+<ul>${comp.reasons.map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
 ${psdPlot}
 ${devPlot}
 <h3>Levels and statistics</h3>
@@ -122,6 +130,7 @@ ${row("RMS required over the same range", qty(sig(comp.rms.required, 4), u), "nu
 ${row("RMS deviation / tolerance", `${esc(signedDb(comp.rms.deviationDb))} / ${esc(tolRms)}`, "num")}
 ${row("Degrees of freedom", `${fixed(comp.dof.achieved, 1)} achieved${comp.dof.required !== undefined ? `, ${comp.dof.required} required by the profile` : ""}, ${comp.dof.forPower} for the rule's power (${c.psd.averages} averages)`, "num")}
 ${judged ? row("Decision rule here", esc(ruleLine(comp))) : ""}
+${decideLine(comp) ? row("Run length to decide", esc(decideLine(comp)!)) : ""}
 ${row("Lines judged", `${comp.lines.length}${unjudged ? `; not judged: ${esc(unjudged)}` : ""}`)}
 ${row("Random error of one line", `±${fixed(100 * c.psd.randomError, 1)} % (1 σ)`, "num")}
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${qty(sig(s.std, 4), u)}`, "num")}
@@ -166,6 +175,24 @@ ${excursionTable(j.excursions, j.lines.length, "excursions-control")}
 </section>`;
 }
 
+/**
+ * This run's reasons, for page 1: each spectrum the verdict rests on (the control spectrum, or every
+ * judged channel) with its verdict, its findings, the worst excursion (lines and band) and, when
+ * inconclusive, the DOF and seconds that would decide it.
+ */
+function runReasons(r: CheckResult): string {
+  const deciding: [string, ChannelCompliance][] = r.control
+    ? [[`control spectrum (${r.control.rule} of ${r.control.channels.join(", ")})`, r.control.judgement]]
+    : r.channels.map((c, i) => [`channel ${r.analysis.channels[i]!.position} “${r.analysis.channels[i]!.name}”`, c] as [string, ChannelCompliance]);
+  const items = deciding.map(([name, c]) => {
+    const w = worstFirst(c.excursions)[0];
+    const worst = w ? `worst excursion ${w.fromHz === w.toHz ? `${sig(w.fromHz, 5)} Hz` : `${sig(w.fromHz, 5)}–${sig(w.toHz, 5)} Hz`} (${w.lines} line${w.lines === 1 ? "" : "s"}, ${w.direction}) ${signedDb(w.worstDb)} against a limit of ${signedDb(w.limitDb)}, ${w.shown ? "shown" : "not shown"}` : "no line outside its band";
+    const decide = decideLine(c);
+    return `<li><strong>${esc(name)}: ${VERDICT_TEXT[c.verdict].word}</strong>. ${c.reasons.map((x) => esc(x)).join("; ")}. ${esc(worst)}; ${fixed(c.dof.achieved, 1)} DOF of ${Math.max(c.dof.forPower, c.dof.required ?? 0)} a pass needs.${decide ? ` ${esc(decide.charAt(0).toUpperCase() + decide.slice(1))}.` : ""}</li>`;
+  });
+  return `<div id="run-reasons"><h2>This run</h2><ul>${items.join("")}</ul></div>`;
+}
+
 /** The result embedded in every check report (what `psdgate verify` re-runs and compares). */
 export function checkResultDocument(r: CheckResult, ctx: ReportContext): Record<string, unknown> {
   return {
@@ -181,7 +208,7 @@ export function checkHtml(r: CheckResult, version: string, when: Date, context: 
   const v = VERDICT_TEXT[r.verdict];
   const m = ctx.meta;
   const body = `${reportOpening({
-    verdictClass: r.verdict, word: v.word, line: v.line, meta: m, a, ctx,
+    verdictClass: r.verdict, word: v.word, line: v.line, meta: m, a, ctx, reasons: runReasons(r),
     extraRecordRows: `${row("Duration required", p.durationS !== undefined ? `${qty(sig(p.durationS, 4), "s")} (the profile's durationS): ${a.window.frames / a.input.sampleRateHz >= p.durationS * (1 - 1e-9) ? "met" : "NOT met"} by the ${a.window.frames === a.input.samples ? "record's" : "analysed window's"} ${qty(fixed(a.window.frames / a.input.sampleRateHz, 3), "s")}` : "none stated by the profile")}
 ${row("Profile", esc(p.file))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}

@@ -125,8 +125,11 @@ export function startTimeOf(a: RecordingAnalysis): string | undefined {
 export function reportOpening(o: {
   verdictClass: string; word: string; line: string; meta: TestMeta | undefined; a: RecordingAnalysis; ctx: ReportContext;
   extraRecordRows?: string; extraSettingsRows?: string;
+  /** This run's reasons (HTML), right under the verdict on page 1. */
+  reasons?: string;
 }): string {
   return `<div class="verdict ${o.verdictClass}" id="verdict" data-verdict="${o.verdictClass}"><span class="word">${o.word}</span><span>${esc(o.line)}</span></div>
+${o.reasons ?? ""}
 <h2>Test identity</h2>
 <table class="meta" id="identity">
 ${identityRows(o.meta, o.a)}

@@ -5,8 +5,8 @@ import { fixed } from "./format.js";
 /** What each verdict means, said the same way in the text, the HTML report and the help. */
 export const VERDICT_MEANING: Record<Verdict, string> = {
   pass: "no failure is shown, and the record had the degrees of freedom, coverage, resolution, duration and data quality to show one",
-  fail: `the data show the profile is not met (lines outside their band beyond the allowance, a line beyond an outer limit, or the RMS outside its tolerance), with a false-fail rate of at most ${pct(DECISION_RULE.falseFailRate)} for any conforming record`,
-  inconclusive: "either no failure is shown but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration, an RMS too close to its limit to call), or the data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch), so no verdict can rest on them",
+  fail: `the data show the profile is not met (lines outside their band beyond the allowance, a line beyond an outer limit, or the RMS outside its tolerance), with a false-fail rate of at most ${pct(DECISION_RULE.falseFailRate)} per record (over every channel the verdict rests on) for any conforming record`,
+  inconclusive: "either no failure is shown but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration, an RMS too close to its limit to call, a level that swings beyond the tolerance over the run or drift that dominates: the run length that would decide is given where a longer run can), or the data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch), so no verdict can rest on them",
 };
 
 /** The decision rule in one paragraph. */
@@ -14,18 +14,36 @@ export const RULE_SUMMARY =
   `A line is shown outside its tolerance band only when its estimate lies beyond the band by more than chance explains among all the lines tested ` +
   `(chi-square with the achieved DOF, Bonferroni over the lines, both directions and stretches of 4, 16 and 64 neighbouring lines), and the RMS likewise with the DOF of the whole range. ` +
   `FAIL when more lines are shown outside than the profile allows, any line beyond an outer limit, or the RMS outside its tolerance: at most ${pct(DECISION_RULE.falseFailRate)} of records whose true PSD lies inside the bands (RMS inside its tolerance) fail, at any DOF. ` +
-  `PASS also needs the DOF at which a ${DECISION_RULE.departureDb} dB departure beyond the band over ${pct(DECISION_RULE.departureShare)} of the lines, or an RMS ${DECISION_RULE.rmsBeyondDb} dB outside its tolerance, fails with at least ${pct(DECISION_RULE.power)} probability, and the profile's minDof.`;
+  `The rate is per record: with n channels judged, each is tested at ${pct(DECISION_RULE.falseFailRate)}/n. ` +
+  `With the largest of k control channels, the upper tests use the distribution of the largest of k estimates (the k-th power of the chi-square CDF; channels of one test are bounded by it), and its upper limits carry the largest's mean reading at the limit. ` +
+  `PASS also needs the DOF at which a ${DECISION_RULE.departureDb} dB departure beyond the band over ${pct(DECISION_RULE.departureShare)} of the lines, in runs of ${DECISION_RULE.departureWidthLines} neighbouring lines or wider (seen through the window's kernel), or an RMS ${DECISION_RULE.rmsBeyondDb} dB outside its tolerance, fails with at least ${pct(DECISION_RULE.power)} probability, and the profile's minDof; ` +
+  `a profile may state its own requirement (key power: departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent; or "none"), and every verdict states the power against this default. Narrower departures are seen with less power (one line: about 60 % of its excess reaches the line). ` +
+  `A run whose level swings beyond the tolerance over its course (blocks of 1 s stretch mean squares, at most 1 % false doubts on a stationary record) or whose drift holds most of its mean square is not a pass: inconclusive. ` +
+  `An inconclusive verdict gives the run length in seconds that would decide it with at least 90 % probability if the spectrum is as measured.`;
 
 /** The rule as it applied to one judged spectrum: its rates at the achieved DOF. */
 export function ruleLine(c: ChannelCompliance): string {
   const r = c.rule;
-  return `false-fail rate at most ${pct(r.falseFailBound)} (${pctSmall(r.falseFailAtProfile)} if the PSD equals the profile) at ${fixed(c.dof.achieved, 1)} DOF; power ${pct(r.power.least)} against a ${DECISION_RULE.departureDb} dB departure over ${pct(DECISION_RULE.departureShare)} of the lines; a pass needs ${Math.max(r.dofForPower, c.dof.required ?? 0)} DOF${r.allowanceLines > 0 ? `; ${r.allowanceLines} line(s) allowed outside` : ""}`;
+  const rq = r.requirement;
+  const own = rq === null ? "the profile asks no power" : `power ${pct(r.power.least)} against a ${rq.departureDb} dB departure over ${pct(rq.departureShare)} of the lines in runs of ${rq.widthLines} line(s) or wider${rq.source === "profile" ? " (the profile's requirement)" : ""}`;
+  const dflt = rq === null || rq.source === "profile" ? `; ${pct(r.powerDefault.least)} against psdgate's default (${r.dofForDefaultPower} DOF for 95 %)` : "";
+  const family = r.family > 1 ? ` per record (${r.family} spectra, ${pct(r.falseFailBound / r.family)} each)` : " per record";
+  const largest = r.largestOf ? `; largest of ${r.largestOf.channels}: upper limits +${fixed(r.largestOf.meanAllowanceDb, 2)} dB for its mean reading, ${fixed(r.largestOf.effectiveDof, 1)} DOF for sums` : "";
+  return `false-fail rate at most ${pct(r.falseFailBound)}${family} (${pctSmall(r.falseFailAtProfile)} if the PSD equals the profile) at ${fixed(c.dof.achieved, 1)} DOF; ${own}${dflt}; a pass needs ${Math.max(r.dofForPower, c.dof.required ?? 0)} DOF${r.allowanceLines > 0 ? `; ${r.allowanceLines} line(s) allowed outside` : ""}${largest}`;
+}
+
+/** The run length that would decide an inconclusive verdict, in words (undefined when there is none to give). */
+export function decideLine(c: ChannelCompliance): string | undefined {
+  const d = c.decide;
+  if (!d) return undefined;
+  if (d.seconds === undefined) return `no run up to 1024 times this one decides it with ${pct(d.probability)} probability if the spectrum is as measured`;
+  return `a run of ${fixed(d.seconds, 1)} s (${fixed(d.dof!, 0)} DOF) decides it with at least ${pct(d.probability)} probability if the spectrum is as measured; most likely ${d.likely === "pass" ? "a pass" : "a fail"}`;
 }
 
 /** Shown or not, and why (against chance among all the lines tested). */
 export function excursionJudgement(e: Excursion): string {
   if (e.shown) return `shown (beyond what chance among all lines explains; adjusted p ${e.adjustedP < 1e-6 ? "< 1e-6" : e.adjustedP.toPrecision(2)})`;
-  return `not shown (chance among the lines tested could explain it${e.longerRecordFactor ? `; a record ${fixed(e.longerRecordFactor, 1)}x longer would settle it` : ""})`;
+  return `not shown (chance among the lines tested could explain it${e.longerRecordFactor ? `; a run ${fixed(e.longerRecordFactor, 1)}x as long${e.secondsToShow !== undefined ? ` (${fixed(e.secondsToShow, 1)} s)` : ""} shows it with 90 % probability if it is as measured` : ""})`;
 }
 
 function pct(x: number): string {

@@ -126,10 +126,10 @@ describe("decision rule by Monte Carlo (records made by the test, not by synth)"
     ks.forEach((k, i) => {
       expect(mc[i]!.fail, `K ${k}, ${dofOf(k).toFixed(1)} DOF`).toBeLessThanOrEqual(upper999(n, 1e-6));
     });
-    // Below the DOF the rule's power needs (176 here), no pass; above it, a pass (the right verdict only grows with length).
-    expect(mc[0]!.pass + mc[1]!.pass).toBe(0);
-    expect(mc[2]!.pass).toBeGreaterThanOrEqual(lower999(n, 0.95));
-    expect(mc[3]!.pass).toBeGreaterThanOrEqual(mc[2]!.pass);
+    // Below the DOF the rule's power needs (228 here: departures in runs of 3 lines or wider, seen through the
+    // Hann kernel, beside the widest band), no pass; above it, a pass (the right verdict only grows with length).
+    expect(mc[0]!.pass + mc[1]!.pass + mc[2]!.pass).toBe(0);
+    expect(mc[3]!.pass).toBeGreaterThanOrEqual(lower999(n, 0.95));
   }, 300_000);
 
   it("a true PSD on the band edges everywhere (alternating +band/-band every 50 Hz, RMS inside) fails at most 5 %: analytic bound 4 %", () => {

@@ -22,11 +22,12 @@ describe("ruleLevels", () => {
     expect((o.upper.lineTest + o.upper.outerTest!) * 2 * 789).toBeCloseTo(DECISION_RULE.lines, 15);
     expect(DECISION_RULE.lines + DECISION_RULE.rms).toBeCloseTo(DECISION_RULE.falseFailRate, 15);
   });
-  it("the largest of k channels divides the upper tests' level by k (P(max > t) <= k P(one > t)), not the lower ones'", () => {
+  it("a record of n judged spectra splits the 5 % over them: every level divided by n (Bonferroni over the family)", () => {
     const one = ruleLevels(100, false);
     const three = ruleLevels(100, false, 3);
     expect(three.upper.lineTest).toBeCloseTo(one.upper.lineTest / 3, 18);
-    expect(three.lower.lineTest).toBe(one.lower.lineTest);
+    expect(three.lower.lineTest).toBeCloseTo(one.lower.lineTest / 3, 18);
+    expect(three.upper.rmsTest).toBeCloseTo(one.upper.rmsTest / 3, 18);
   });
   it("factors are the chi-square quantiles over nu (Bendat & Piersol 2010, ch. 8)", () => {
     expect(upperFactor(120, 2.5e-5)).toBeCloseTo(chiSquareUpperQuantile(2.5e-5, 120) / 120, 14);

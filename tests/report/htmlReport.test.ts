@@ -43,6 +43,24 @@ describe("check --report and psd --report pages (no browser)", () => {
     expect(html).not.toContain("m/s²²");
   });
 
+  it("check under control: page 1 says this run's reasons before the identity, outer limits are drawn on both plots, and the text shows every channel's own verdict", async () => {
+    const d = tempDir();
+    const profile = join(d, "outer.json");
+    const p = JSON.parse(readFileSync(PROFILE, "utf8"));
+    p.tolerance.outerLimits = [{ fromHz: 20, toHz: 2000, upperDb: 6, lowerDb: 6 }];
+    writeFileSync(profile, JSON.stringify(p));
+    const out = join(d, "r.html");
+    const r = await cli("check", "samples/kb210-run-short.wav", "--profile", profile, "--control", "1", "--report", out);
+    const html = readFileSync(out, "utf8");
+    const reasons = html.indexOf('id="run-reasons"');
+    expect(reasons).toBeGreaterThan(0);
+    expect(reasons).toBeLessThan(html.indexOf("Test identity"));
+    expect(html.slice(reasons, html.indexOf("Test identity"))).toMatch(/DOF of \d+ a pass needs/);
+    for (const id of ["outer-upper", "outer-lower", "dev-outer-upper", "dev-outer-lower"]) expect(html).toMatch(new RegExp(`data-series="${id}" data-points="[1-9]`));
+    expect(r.stdout).toMatch(/control channel judged alone; the record's verdict rests on the control spectrum\): (PASS|FAIL|INCONCLUSIVE)/);
+    if (r.code === 3) expect(r.stdout).toMatch(/because {4}a run of [\d.]+ s \(\d+ DOF\) would decide this verdict/);
+  });
+
   it("check --report in m/s2: every unit label is an acceleration or its square, never m/s²²", async () => {
     const d = tempDir();
     const profile = join(d, "p.json");
