@@ -1,7 +1,8 @@
 // `npm run demo`: the main job on the bundled samples. Checks three KB-210 runs against their profile
 // (one passes, one fails a band, one is inconclusive) and writes the review report of every run, writes
 // the PSD record of the Tern-7 CSV recording and the whole-body vibration of the Marlow UV-3 ride, then
-// verifies one report against its inputs; derives a lab profile from the Corran K7 field recordings.
+// verifies one report against its inputs; derives a lab profile from the Corran K7 field recordings; finds the
+// shocks in the Brackley FT-2 forklift recording.
 import { spawnSync } from "node:child_process";
 import { mkdirSync } from "node:fs";
 
@@ -29,7 +30,9 @@ const codes = [
   run(["derive", "--mix", "samples/corran-k7-mix.yaml", "--test-duration", "1h", "--fmin", "5", "--fmax", "500", "--stroke-mm", "51", "--meta", "samples/corran-k7-meta.yaml", "--out", "demo-output/corran-k7-lab.yaml", "--report", "demo-output/corran-k7-derive.html", "--force"]),
   // Every record re-run by verify.
   ...["marlow-uv3-ride-report", "quarry-bend-transfer", "quarry-bend-respond", "corran-k7-derive"].map((n) => run(["verify", `demo-output/${n}.html`])),
+  // Shocks: the events and shock response spectra of the invented Brackley FT-2 forklift recording, with its record.
+  run(["shock", "samples/brackley-ft2-warehouse.csv", "--fn", "5:160:2", "--top", "5", "--report", "demo-output/brackley-ft2-shock.html", "--force"]),
 ];
-const expected = [0, 1, 3, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0];
+const expected = [0, 1, 3, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0];
 console.log(`\nReports written to demo-output/. Exit codes ${codes.join(", ")} (expected ${expected.join(", ")}).`);
 process.exit(codes.every((c, i) => c === expected[i]) ? 0 : 1);

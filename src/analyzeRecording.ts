@@ -5,11 +5,14 @@ import { texts, type Finding } from "./findings.js";
 import { InputError } from "./errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "./estimate/psdEstimate.js";
 import { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/amplitudeHistogram.js";
+import { PeakHoldPsdAccumulator, type PeakHoldPsd } from "./estimate/peakHoldPsd.js";
 import { SegmentPower } from "./estimate/segmentPower.js";
 import { RunningMoments, type SampleStatistics } from "./estimate/runningMoments.js";
 import { SampleHoldAccumulator, type SampleHold } from "./estimate/sampleHold.js";
 import { stationarityFinding, type StationarityFinding } from "./estimate/stationarityTests.js";
 import { StretchMeanSquares } from "./estimate/stretchMeanSquares.js";
+import { spectralKernel } from "./estimate/spectralKernel.js";
+import { spectralTones, type SpectralTone } from "./estimate/toneEstimate.js";
 import type { ResolvedWelchOptions, WelchOptions } from "./estimate/welchOptions.js";
 import { WelchAccumulator } from "./estimate/welchPsd.js";
 import { spectralWindow } from "./estimate/windows.js";
@@ -52,6 +55,8 @@ export interface AnalysisOptions extends WelchOptions {
   toClock?: string | undefined;
   /** End of the analysed window, s from the first sample (default: the end). */
   toS?: number | undefined;
+  /** Also a peak-hold spectrum: the largest Welch PSD of consecutive stretches of this length, s, at each line. */
+  peakHoldS?: number | undefined;
   /** Length of the stretches whose mean squares the stationarity test compares, s (default 1). */
   stretchS?: number | undefined;
   /** More listeners on the same pass (see PassAccumulator); their results come back in `extras`, in order. */
@@ -106,8 +111,12 @@ export interface ChannelAnalysis {
   parseval: ParsevalCheck;
   band?: { fminHz: number; fmaxHz: number; rms: number } | undefined;
   peaks: SpectralPeak[];
+  /** Lines standing far above their neighbours: candidate sine tones, with their amplitude (toneEstimate.ts spectralTones). */
+  tones: SpectralTone[];
   /** Amplitude histogram, when asked for (the review report shows it). */
   histogram?: AmplitudeHistogram | undefined;
+  /** Peak-hold spectrum, when asked for (`peakHoldS`). */
+  peakHold?: PeakHoldPsd | undefined;
   /** Reverse-arrangements test on the stretch mean squares (Bendat & Piersol 2010, sec. 10.3). */
   stationarity: StationarityFinding;
   /** The stretch mean squares the stationarity test looked at (one per stretchS; for check's level gate). */
@@ -179,12 +188,16 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power) : undefined));
   const moments = select.map(() => new RunningMoments());
   const histograms = plan.analysis.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
+  const holdS = plan.analysis.peakHoldS;
+  const peakHolds = spectrum && holdS !== undefined && Number.isFinite(designFs) && designFs > 0
+    ? select.map(() => new PeakHoldPsdAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power, Math.max(settings.segmentLength, Math.round(holdS * designFs)), designFs))
+    : undefined;
   // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
   const stretchLength = Number.isFinite(designFs) && designFs > 0 ? Math.max(2, Math.round(stretchS * designFs)) : 2;
   const stretches = select.map(() => new StretchMeanSquares(stretchLength));
   // Runs of repeated values (sample-and-hold), on every command's pass.
   const holds = select.map(() => new SampleHoldAccumulator());
-  const listeners: SampleListener[][] = select.map((_, c) => ([moments[c]!, holds[c]!, histograms?.[c], welch[c], stretches[c]!] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
+  const listeners: SampleListener[][] = select.map((_, c) => ([moments[c]!, holds[c]!, histograms?.[c], welch[c], stretches[c]!, peakHolds?.[c]] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
   const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
   let taken = 0;
@@ -246,7 +259,8 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS }, text: `the window's end ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
-      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), stationarity, stretchMeanSquares: stretchMs, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+      tones: spectrum && psd.dof > 0 ? spectralTones(psd, window, spectralKernel(settings.window, window, settings.detrend).halfWidthBins, { max: 8 }) : [],
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), peakHold: peakHolds?.[c]!.finish(fs), stationarity, stretchMeanSquares: stretchMs, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
     };
   });
   return {

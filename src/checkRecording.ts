@@ -3,6 +3,8 @@ import { levelGate } from "./compare/levelGate.js";
 import { bandMeanSquare } from "./estimate/psdEstimate.js";
 import { judgeSpectrum, overallVerdict, withDoubts, withGate, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "./compare/testProfile.js";
+import { combineFits, judgeMixedMode, toneSearchHalfWidthHz } from "./compare/toneCheck.js";
+import { ToneFitAccumulator, type ToneFit } from "./estimate/toneEstimate.js";
 import { InputError, quoted } from "./errors.js";
 import type { Finding } from "./findings.js";
 import { readProfileText } from "./read/profileFile.js";
@@ -111,7 +113,12 @@ export async function checkRecording(file: string, profile: TestProfile, options
   }
   // Control channels are always analysed, with any channels asked for besides.
   const channels = options.control && options.channels?.length ? [...new Set([...options.channels, ...options.control.channels])] : options.channels;
-  const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true });
+  // Mixed mode: the tones are fitted on the same pass (one more listener).
+  const toneAcc = profile.tones.length > 0 ? new ToneFitAccumulator(profile.tones.map((t, i) => ({ hz: t.hz, searchHalfWidthHz: toneSearchHalfWidthHz(profile, i) }))) : undefined;
+  const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true, accumulators: [...(options.accumulators ?? []), ...(toneAcc ? [toneAcc] : [])] });
+  const fits = toneAcc ? (analysis.extras[analysis.extras.length - 1] as ToneFit[][]) : undefined;
+  if (toneAcc) analysis.extras = analysis.extras.slice(0, -1);
+  const judge = (sp: SpectrumUnderTest, f: (ToneFit | undefined)[] | undefined) => (profile.tones.length > 0 ? judgeMixedMode(sp, profile, f ?? []) : judgeSpectrum(sp, profile));
   // Without control every channel is judged and the record's verdict rests on all of them: the record's 5 %
   // is split over them (family). With control only the control spectrum decides; the channels are judged
   // alone for the reader, each as if it were the record's one spectrum.
@@ -126,7 +133,7 @@ export async function checkRecording(file: string, profile: TestProfile, options
     return total > 0 ? Math.max(0, 1 - bandMeanSquare(c.psd, f0, analysis.input.sampleRateHz / 2) / total) : 0;
   };
   const gate = (c: ChannelAnalysis) => levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, belowShare(c), f0);
-  const judged = analysis.channels.map((c) => withDoubts(withGate(judgeSpectrum({ ...spectrumOf(c, analysis), family }, profile), gate(c)), [...c.doubtFindings, ...heldBand(c, profile)]));
+  const judged = analysis.channels.map((c, i) => withDoubts(withGate(judge({ ...spectrumOf(c, analysis), family }, fits?.[i]), gate(c)), [...c.doubtFindings, ...heldBand(c, profile)]));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }
@@ -134,7 +141,8 @@ export async function checkRecording(file: string, profile: TestProfile, options
   const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
   const doubts = pos.flatMap((i) => [...analysis.channels[i]!.doubtFindings, ...heldBand(analysis.channels[i]!, profile)].map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
   const gates = pos.flatMap((i) => gate(analysis.channels[i]!).map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
-  const judgement = withDoubts(withGate(judgeSpectrum(combined, profile), gates), doubts);
+  const controlFits = fits ? profile.tones.map((_, t) => combineFits(pos.map((i) => fits[i]?.[t]), options.control!.rule)) : undefined;
+  const judgement = withDoubts(withGate(judge(combined, controlFits), gates), doubts);
   return {
     verdict: judgement.verdict, analysis, profile, channels: judged,
     roles: analysis.channels.map((_, i) => (pos.includes(i) ? "control" : "monitor")),

@@ -5,6 +5,8 @@ import { damageSpectra } from "./estimate/damageSpectrum.js";
 import { SN_DEFAULTS, type SnCurve } from "./estimate/fatigueDamage.js";
 import { clippedSpectrum, lineSpectrum, powerLawSpectrum } from "./estimate/inputSpectrum.js";
 import { bandRms } from "./estimate/psdEstimate.js";
+import { spectralKernel } from "./estimate/spectralKernel.js";
+import { spectralWindow } from "./estimate/windows.js";
 import { logToleranceLimit, MIN_TOLERANCE_SAMPLES, type LogToleranceLimit } from "./estimate/toleranceLimit.js";
 import type { ServiceMix } from "./read/mixFile.js";
 import { fitDamageProfile, type Breakpoint } from "./synth/profileFit.js";
@@ -71,6 +73,12 @@ export interface DeriveOptions {
   coverage?: number | undefined;
   toleranceConfidence?: number | undefined;
   extremeLimit?: number | undefined;
+  /**
+   * Where the field's FDS and ERS come from: "psd" (default: narrow-band damage and Davenport's peak of each recording's PSD)
+   * or "time" (each recording filtered through each SDOF in time: rainflow damage and its largest response, as respond does
+   * for a recording; the shocks a Gaussian PSD hides are kept).
+   */
+  fieldDamage?: "psd" | "time" | undefined;
   bandDb?: number | undefined;
   rmsPercent?: number | undefined;
   minDof?: number | undefined;
@@ -100,9 +108,22 @@ export interface FieldRecordingResult {
   stationary: boolean | undefined;
   stationarityNote: string | undefined;
   psd: Float64Array;
-  /** Damage over its service time and expected largest response over it, per f_n. */
+  /** Damage over its service time and expected largest response over it, per f_n (from the PSD, or in time with fieldDamage "time"). */
   damage: Float64Array;
   extreme: Float64Array;
+  /** With fieldDamage "time": the PSD's narrow-band damage and Davenport peak beside them, and the record's kurtosis. */
+  fromPsd?: { damage: Float64Array; extreme: Float64Array; kurtosis: number } | undefined;
+}
+
+export interface FieldShocks {
+  /** Each natural frequency's largest maximax SRS over the recordings' whole records (NaN above a recording's fs/4, where none is computed). */
+  fieldSrs: Float64Array;
+  /** The largest events over all recordings, largest |peak| first (at most 5); `recording` indexes `recordings` (not a path, so a re-run elsewhere compares alike). */
+  largestEvents: { recording: number; timeS: number; peak: number; durationS: number }[];
+  /** Events found in each recording, in the order of `recordings` (threshold 6 x its background r.m.s., hold 0.05 s). */
+  eventsPerRecording: number[];
+  /** Natural frequencies where the test's expected largest response falls below the field's measured one. */
+  shortfallHz: number[];
 }
 
 export interface DeriveResult {
@@ -134,6 +155,8 @@ export interface DeriveResult {
   extremeLimit: number;
   extremeWarnings: number[];
   fit: { maxBreakpoints: number; minRatio: number; minRatioHz: number; maxRatio: number; medianRatio: number; scale: number };
+  /** The field's shocks (as `psdgate shock` finds them) against the random test's largest response. */
+  shocks: FieldShocks;
   /** Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's. */
   compression: { flatFactor: number; profileRms: number; meanFieldRms: number; rmsRatio: number };
   notes: string[];
@@ -141,6 +164,12 @@ export interface DeriveResult {
   motion: ProfileMotion;
   /** The displacement against the exciter's rated stroke, when given. */
   stroke?: { ratedMm: number; estimateMm: number; margin: number; withinRating: boolean } | undefined;
+  /**
+   * Lines standing far above their neighbours in a field recording (estimate/toneEstimate.ts spectralTones): candidate
+   * sine tones for a mixed-mode lab profile. Their lines are replaced by the background around them before the
+   * envelope, mean, tolerance limit and damage, so the random profile is not fitted to them.
+   */
+  candidateTones: { file: string; frequencyHz: number; peak: number; aboveBackgroundDb: number }[];
   /** The profile document as written, and as psdgate reads it back. */
   document: ProfileDocument;
   profile: TestProfile;
@@ -241,16 +270,48 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   checkRange("lifeS", lifeS, lifeS > 0, "a service life above 0");
 
   const n = fnHz.length;
+  // The field's damage in time (fieldDamage "time"): per recording, the rainflow damage per second of record and a function
+  // giving its largest response grown to a service time (Davenport's factor at nu0+ T over the one at nu0+ T_record, nu0+ from the PSD).
+  const fieldDamage = o.fieldDamage ?? "psd";
+  if (fieldDamage !== "psd" && fieldDamage !== "time") throw new InputError("OPTION_INVALID", { option: "fieldDamage", expected: "psd or time", received: String(fieldDamage) });
+  const timeDamage = new Map<string, { damage: Float64Array; extreme: (serviceS: number) => Float64Array }>();
+  let timeNote: string | undefined;
+  if (fieldDamage === "time") {
+    const { loadSpectrumSource, responseSpectra } = await import("./responseSpectra.js");
+    for (const { r } of analysed) {
+      const src = await loadSpectrumSource(r.file, { ...base, as: "recording", channel: o.channel ?? "1", fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: fromHz, fmaxHz: toHz, response: { fnHz, q, basquinB: b } });
+      const t = src.timeResponse!;
+      const perSecond = responseSpectra(src, { fnHz, q, durationS: t.recordS, sn: { ...sn, stressPerUnit: 1, snConstant: 1 } });
+      const td = perSecond.timeDomain!;
+      timeDamage.set(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""), {
+        damage: td.recordDamage.map((d) => d / t.recordS),
+        extreme: (serviceS) => responseSpectra(src, { fnHz, q, durationS: serviceS, sn }).extremePeak,
+      });
+    }
+    timeNote = ("the field's fatigue-damage and extreme-response spectra come from the recordings themselves (each filtered through each SDOF in time: rainflow damage scaled by service time, the largest response grown by Davenport's factors), while the test's come from the profile's PSD (narrow-band, Gaussian): on a Gaussian field the rainflow damage runs 5-17 % below narrow-band, so the test then over-tests by about that much (less in level: the 2/b power)");
+  }
   const fieldFatigue = new Float64Array(n);
   const fieldExtreme = new Float64Array(n);
   const mean = new Float64Array(lines);
   const envelope = new Float64Array(lines);
   const notes: string[] = [];
+  const candidateTones: DeriveResult["candidateTones"] = [];
+  if (timeNote) notes.push(timeNote);
   const recordings: FieldRecordingResult[] = analysed.map(({ r, a, c }) => {
     const durationS = a.window.frames / a.input.sampleRateHz;
     const serviceS = (groupTime.get(r.group) ?? 0) * (durationS / groupDur.get(r.group)!);
     const psd = c.psd.psd.slice(0, lines);
-    const ds = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), { fnHz, q, durationS: serviceS, sn, toSi });
+    // Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around it.
+    const reach = Math.ceil(spectralKernel(a.settings.window, spectralWindow(a.settings.window, a.settings.segmentLength), a.settings.detrend).halfWidthBins) + 1;
+    for (const t of c.tones) {
+      if (t.frequencyHz < fromHz || t.frequencyHz > toHz) continue;
+      candidateTones.push({ file: r.file, frequencyHz: t.frequencyHz, peak: t.peak, aboveBackgroundDb: t.aboveBackgroundDb });
+      const k0 = Math.round(t.frequencyHz / df);
+      for (let k = Math.max(1, k0 - reach); k <= Math.min(lines - 1, k0 + reach); k++) psd[k] = Math.min(psd[k]!, t.backgroundDensity);
+    }
+    const ds0 = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), { fnHz, q, durationS: serviceS, sn, toSi });
+    const timeFigures = timeDamage.get(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""));
+    const ds = timeFigures ? { damage: timeFigures.damage.map((d) => d * serviceS), extreme: timeFigures.extreme(serviceS) } : ds0;
     for (let i = 0; i < n; i++) {
       fieldFatigue[i] = fieldFatigue[i]! + ds.damage[i]!;
       fieldExtreme[i] = Math.max(fieldExtreme[i]!, ds.extreme[i]!);
@@ -265,8 +326,12 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     return {
       file: r.file, sha256: a.input.sha256, group: r.group, channel: c.name, durationS, serviceS, sampleRateHz: a.input.sampleRateHz, dof: c.psd.dof, averages: c.psd.averages,
       bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz), stationary: c.stationarity.tested ? c.stationarity.stationary : undefined, stationarityNote: note, psd, damage: ds.damage, extreme: ds.extreme,
+      fromPsd: timeFigures ? { damage: ds0.damage, extreme: ds0.extreme, kurtosis: c.stats.kurtosis } : undefined,
     };
   });
+  if (candidateTones.length > 0) {
+    notes.push(`${candidateTones.length} candidate sine tone(s) in the field recordings (listed): kept out of the random envelope, mean, tolerance limit and damage; give them to the lab profile as tones (mixed mode) if they are real`);
+  }
   const groups = o.groups.map((g) => {
     const share = new Float64Array(n);
     for (const r of recordings) if (r.group === g.name) for (let i = 0; i < n; i++) share[i] = share[i]! + r.damage[i]! / fieldFatigue[i]!;
@@ -300,6 +365,35 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     notes.push(`the test's expected largest response exceeds the field's by more than ×${extremeLimit} ${where}: a compressed test can break parts that the road never would`);
   }
 
+  // 4b. The field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
+  // spectra of the whole records, which keep the shocks a Gaussian PSD hides) beside the random test's ERS. Where the test falls
+  // short, the random test does not reach the field's shocks and a shock test is needed for them.
+  const { shockRecording } = await import("./shockRecording.js");
+  const fieldSrs = new Float64Array(n).fill(NaN);
+  const events: FieldShocks["largestEvents"] = [];
+  const eventsPerRecording: FieldShocks["eventsPerRecording"] = [];
+  for (const [index, { r, a }] of analysed.entries()) {
+    const keep = [...fnHz.keys()].filter((i) => fnHz[i]! <= a.input.sampleRateHz / 4);
+    if (keep.length === 0) {
+      eventsPerRecording.push(0);
+      continue;
+    }
+    const sr = await shockRecording(r.file, { ...base, channels: [o.channel ?? "1"], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined, fnHz: keep.map((i) => fnHz[i]!), q });
+    const ch = sr.channels[0]!;
+    keep.forEach((i, k) => {
+      const v = ch.srs.maximax[k]!;
+      fieldSrs[i] = Number.isNaN(fieldSrs[i]!) ? v : Math.max(fieldSrs[i]!, v);
+    });
+    eventsPerRecording.push(ch.events.length);
+    for (const e of ch.events) events.push({ recording: index, timeS: e.timeS, peak: e.peak, durationS: e.durationS });
+  }
+  events.sort((x, y) => Math.abs(y.peak) - Math.abs(x.peak) || x.recording - y.recording || x.timeS - y.timeS);
+  const shortfallHz = [...fnHz].filter((_, i) => testSpectra.extreme[i]! < fieldSrs[i]!);
+  if (shortfallHz.length) {
+    notes.push(`the random test's expected largest response falls below the field's measured largest response (its SRS, shocks included) at ${shortfallHz.length} natural frequencies (${shortfallHz.map((f) => f.toPrecision(4)).join(", ")} Hz): the random test does not reach the field's shocks there, so a shock test is needed for them`);
+  }
+  const shocks: FieldShocks = { fieldSrs, largestEvents: events.slice(0, 5), eventsPerRecording, shortfallHz };
+
   // 5. The profile document: tolerances, DOF, resolution, duration and provenance.
   const bandDb = o.bandDb ?? DERIVE_DEFAULTS.bandDb;
   const rmsPercent = o.rmsPercent ?? DERIVE_DEFAULTS.rmsPercent;
@@ -313,6 +407,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     fnGrid: `${fromHz}:${toHz}:${perOctave} (Hz, per octave)`, fromHz, toHz, channel: o.channel ?? "1", resolutionHz: df,
     window: first.a.settings.window, segmentLength: first.a.settings.segmentLength, overlap: first.a.settings.overlap, detrend: first.a.settings.detrend,
     toleranceCoverage: coverage, toleranceConfidence: confidence, extremeLimit, bandDb, rmsPercent, minDof,
+    ...(fieldDamage === "time" ? { fieldDamage } : {}),
   };
   const document: ProfileDocument = {
     title: o.title ?? `Derived profile: ${o.groups.map((g) => g.name).join(" + ")}, ${(lifeS / 3600).toPrecision(4)} h in ${o.testDurationS} s`,
@@ -326,7 +421,9 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     provenance: {
       derivedBy: `psdgate ${o.version} derive`,
       created: o.created.toISOString(),
-      method: "narrow-band Miner damage of a linear SDOF (relative displacement, Rayleigh peaks), field FDS = sum over groups of damage rate x service time; breakpoints fitted on log-log axes to cover it over the test duration",
+      method: fieldDamage === "time"
+        ? "field FDS from the recordings in time: each filtered through a linear SDOF (ramp-invariant filters), rainflow (ASTM E1049-85) Miner damage of the relative displacement, times service time over record length, summed over groups; test FDS narrow-band Miner damage of the profile (Rayleigh peaks); breakpoints fitted on log-log axes to cover the field's over the test duration"
+        : "narrow-band Miner damage of a linear SDOF (relative displacement, Rayleigh peaks), field FDS = sum over groups of damage rate x service time; breakpoints fitted on log-log axes to cover it over the test duration",
       inputs: [
         ...recordings.map((r) => ({ file: r.file, sha256: r.sha256, role: "recording", group: r.group, serviceHours: r.serviceS / 3600, durationS: r.durationS })),
         ...(o.mix ? [{ file: o.mix.file, sha256: o.mix.sha256, role: "mix" }] : []),
@@ -341,8 +438,9 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     units, lifeS, lifeRule: o.lifeRule, testDurationS: o.testDurationS, groups, recordings, frequencyHz, lineSpacingHz: df, band: { fromHz, toHz }, envelope, mean, tolerance,
     fnHz, q, sn, margin, fieldFatigue, testFatigue, fieldExtreme, testExtreme: testSpectra.extreme, extremeRatio, extremeLimit, extremeWarnings,
     fit: { maxBreakpoints: nMax, minRatio: fit.minRatio, minRatioHz: fit.minRatioHz, maxRatio: fit.maxRatio, medianRatio: fit.medianRatio, scale: fit.scale },
+    shocks,
     compression: { flatFactor: (lifeS / o.testDurationS) ** (2 / b), profileRms: profile.rms, meanFieldRms, rmsRatio: profile.rms / meanFieldRms },
-    notes, document, profile, ...strokeOf(profile, o.strokeMm),
+    notes, candidateTones, document, profile, ...strokeOf(profile, o.strokeMm),
   };
 }
 

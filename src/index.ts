@@ -26,7 +26,9 @@ export { judgeSpectrum, withDoubts, withGate, overallVerdict, bandAt, longerReco
 export { DECISION_RULE, DEFAULT_POWER, ruleLevels, powerAt, dofForPower, binomialAtLeast, largestUpperFactor, largestOfMoments, largestEffectiveDof, type PowerRequirement } from "./compare/decisionRule.js";
 export { levelGate, levelSwing, LEVEL_GATE, type LevelSwing } from "./compare/levelGate.js";
 export { amplitudeGates, autocorrelationFourthSum, GATE_RATE } from "./compare/amplitudeGates.js";
-export { spectralKernel, lineVarianceInflation, detrendBiasedLines, departureShare } from "./estimate/spectralKernel.js";
+export { spectralKernel, lineVarianceInflation, detrendBiasedLines, departureShare, kernelDensityAt } from "./estimate/spectralKernel.js";
+export { ToneFitAccumulator, spectralTones, toneLines, tonePeakSd, toneFrequencySd, type ToneFit, type ToneRequest, type SpectralTone } from "./estimate/toneEstimate.js";
+export { judgeMixedMode, toneSearchHalfWidthHz, combineFits, type ToneJudgement } from "./compare/toneCheck.js";
 export { synthesizeProfile, type SynthOptions, type SynthResult } from "./synth/synthesizeProfile.js";
 export { GaussianNoise } from "./synth/gaussianNoise.js";
 export { psdJson, psdCsv } from "./report/psdJson.js";
@@ -64,6 +66,10 @@ export { velocityPsd, displacementPsd, spectrumMotion, type Motion } from "./est
 export { readPsdTable, parsePsdTable, type PsdTable } from "./read/psdTable.js";
 export { analyzeTransfer, analyzeTransferSource, type TransferOptions, type TransferAnalysis, type TransferOutput } from "./analyzeTransfer.js";
 export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sourceKind, type SpectrumSource, type SourceKind, type ResponseSpectra, type ResponseComparison } from "./responseSpectra.js";
+export { absoluteAccelerationFilter, relativeDisplacementFilter, shockSpectrum, ShockSpectrumAccumulator, srsRateLimit, checkSrsGrid, SRS_SAMPLES_PER_PERIOD, SRS_MIN_SAMPLES_PER_PERIOD, type ShockSpectrum, type SdofFilter } from "./estimate/shockResponse.js";
+export { TimeResponseAccumulator, type TimeResponse } from "./estimate/timeResponse.js";
+export { EventFinder, backgroundRms, gaussianFalseEventRate, type ShockEvent, type EventFinderOptions } from "./estimate/eventFinder.js";
+export { shockRecording, DEFAULT_THRESHOLD_FACTOR, DEFAULT_HOLD_S, type ShockOptions, type ShockResult, type ShockChannel, type ShockEventResult } from "./shockRecording.js";
 export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
 export { transferHtml } from "./report/transferHtml.js";
 export { responseJson, responseText } from "./report/responseReport.js";
@@ -79,4 +85,4 @@ export { fitDamageProfile, upperEnvelope, brokenLineLevel, type Breakpoint, type
 export { deriveJson, deriveText, profileDocumentText } from "./report/deriveReport.js";
 export { deriveHtml } from "./report/deriveHtml.js";
 export { provenanceSummary } from "./report/profileText.js";
-export type { ProfileProvenance } from "./compare/testProfile.js";
+export type { ProfileProvenance, ProfileTone } from "./compare/testProfile.js";

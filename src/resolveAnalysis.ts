@@ -39,6 +39,8 @@ export interface ResolvedAnalysis {
   stretchS: number;
   spectrum: boolean;
   histogram: boolean;
+  /** Length of the peak-hold spectrum's stretches, s, when one is asked for. */
+  peakHoldS?: number | undefined;
 }
 
 /** What the pass needs beside the record: channel indices, conditioning factors and the frame window at the design rate. */
@@ -86,6 +88,11 @@ export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): 
   }
   const stretchS = options.stretchS ?? 1;
   if (!(stretchS > 0 && Number.isFinite(stretchS))) throw new InputError("OPTION_INVALID", { option: "stretchS", expected: "a stretch length in s above 0", received: String(stretchS) });
+  const peakHoldS = options.peakHoldS;
+  if (peakHoldS !== undefined) {
+    const segS = welch.segmentLength / info.sampleRateHz;
+    if (!(peakHoldS >= segS && Number.isFinite(peakHoldS))) throw new InputError("OPTION_INVALID", { option: "peakHoldS", expected: `a peak-hold stretch of at least one segment (${segS} s)`, received: String(peakHoldS) });
+  }
   const asked = clockWindow(options, info);
   const { first, end } = frameWindow(asked, info.sampleRateHz);
   const csvGiven = options.csv ? (JSON.parse(JSON.stringify({ ...options.csv, parseWorkers: undefined })) as Omit<CsvReadOptions, "parseWorkers">) : undefined;
@@ -99,6 +106,7 @@ export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): 
     stretchS,
     spectrum,
     histogram: options.histogram === true,
+    peakHoldS,
   };
   return { analysis, select, conditioning, first, end };
 }

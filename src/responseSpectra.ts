@@ -1,5 +1,5 @@
 import { open } from "node:fs/promises";
-import { analyzeRecording, recordTooShort, type AnalysisOptions } from "./analyzeRecording.js";
+import { analyzeRecording, recordTooShort, type AnalysisOptions, type PassAccumulator } from "./analyzeRecording.js";
 import type { ChannelReading } from "./condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
 import { InputError, quoted } from "./errors.js";
@@ -7,7 +7,9 @@ import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "./estimate/fatigueD
 import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "./estimate/inputSpectrum.js";
 import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "./estimate/kinematics.js";
 import { davenportPeakFactor, riceRates } from "./estimate/peakStatistics.js";
-import { milesRelativeDisplacementRms, milesRms, sdofResponse } from "./estimate/sdofResponse.js";
+import { absoluteTransmissibilitySquared, milesRelativeDisplacementRms, milesRms, relativeDisplacementSquared, sdofResponse } from "./estimate/sdofResponse.js";
+import type { TimeResponse } from "./estimate/timeResponse.js";
+import { responseThreads, timeResponseSink, type TimeResponseSink } from "./timeResponsePool.js";
 import { looksLikePsdTable, readPsdTable } from "./read/psdTable.js";
 import { accelFactor, type AccelUnit } from "./units.js";
 
@@ -32,6 +34,10 @@ export interface SpectrumSource {
   /** Frequencies at which the source is defined: lines (recording, table) or breakpoints (profile). */
   frequencyHz: Float64Array;
   level: Float64Array;
+  /** A mixed-mode profile's sine tones inside the band (a recording's or table's tones are already in its lines). */
+  tones?: { label: string; hz: number; peak: number }[] | undefined;
+  /** A recording's own SDOF responses in time (when SourceOptions.response asked for them), with its mean, kurtosis and analysed length. */
+  timeResponse?: (TimeResponse & { mean: number; kurtosis: number; recordS: number; sampleRateHz: number }) | undefined;
   /** The analysed window of a recording (--from/--to; the whole record without them), s. */
   window?: { fromS: number; toS: number; durationS: number; whole: boolean } | undefined;
   /** How a recording's numbers became accelerations. */
@@ -48,6 +54,25 @@ export interface SourceOptions extends AnalysisOptions {
   /** Band of a recording or PSD table used as input (default: from the first line above 0 Hz to the last). */
   fminHz?: number | undefined;
   fmaxHz?: number | undefined;
+  /** For a recording: also filter it through each SDOF of this grid in time (rainflow damage, largest response). */
+  response?: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined } | undefined;
+}
+
+/** The time-domain SDOF responses as a listener on the recording's one pass (one channel). */
+class TimeResponses implements PassAccumulator<TimeResponse | undefined> {
+  private acc: TimeResponseSink | undefined;
+  constructor(private readonly o: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined }) {}
+  start(designRateHz: number): void {
+    if (!(Number.isFinite(designRateHz) && designRateHz > 0)) return;
+    const fn = Float64Array.from(this.o.fnHz);
+    this.acc = timeResponseSink(fn, this.o.q, designRateHz, this.o.basquinB, responseThreads(fn.length, this.o.expectedSamples ?? Infinity));
+  }
+  push(blocks: Float64Array[], frames: number): void {
+    this.acc?.push(blocks[0]!, frames);
+  }
+  finish(): TimeResponse | undefined {
+    return this.acc?.finish();
+  }
 }
 
 async function firstLine(file: string): Promise<string> {
@@ -107,7 +132,8 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
     });
     const spectrum = powerLawSpectrum(segments);
     const hz = Float64Array.from([segments[0]!.f1, ...segments.map((s) => s.f2)]);
-    return { kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum, durationS: p.durationS, frequencyHz: hz, level: hz.map((f) => spectrum.level(f)) };
+    const tones = p.tones.filter((t) => t.hz >= lo && t.hz <= hi).map((t) => ({ label: t.label, hz: t.hz, peak: t.peak }));
+    return { kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum, durationS: p.durationS, frequencyHz: hz, level: hz.map((f) => spectrum.level(f)), ...(tones.length > 0 ? { tones } : {}) };
   }
   if (kind === "psd") {
     const t = await readPsdTable(file);
@@ -115,8 +141,11 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
     const { lo, hi } = lineBand(file, t.frequencyHz, o);
     return { kind, file, sha256: t.sha256, label: ch.name, units: ch.units, spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi), durationS: undefined, frequencyHz: t.frequencyHz, level: ch.psd };
   }
-  const a = await analyzeRecording(file, { ...o, channels: o.channel === undefined ? ["1"] : [o.channel], fminHz: undefined, fmaxHz: undefined });
+  const { response, ...reading } = o;
+  const listener = response !== undefined ? new TimeResponses(response) : undefined;
+  const a = await analyzeRecording(file, { ...reading, channels: o.channel === undefined ? ["1"] : [o.channel], fminHz: undefined, fmaxHz: undefined, accumulators: listener ? [listener] : undefined });
   const c = a.channels[0]!;
+  const tr = a.extras[0] as TimeResponse | undefined;
   const short = recordTooShort(a);
   if (short) throw short;
   const { lo, hi } = lineBand(file, c.psd.frequencyHz, o);
@@ -127,6 +156,7 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
     reading: c.reading,
     window: { fromS: a.window.fromS, toS: a.window.toS, durationS: a.window.frames / a.input.sampleRateHz, whole: a.window.frames === a.input.samples },
     frequencyHz: c.psd.frequencyHz, level: c.psd.psd,
+    timeResponse: tr ? { ...tr, mean: c.stats.mean, kurtosis: c.stats.kurtosis, recordS: tr.samples / a.input.sampleRateHz, sampleRateHz: a.input.sampleRateHz } : undefined,
     settings: { segmentLength: a.settings.segmentLength, resolutionHz: a.settings.resolutionHz, window: a.settings.window, averages: c.psd.averages, dof: c.psd.dof },
   };
 }
@@ -170,6 +200,70 @@ export interface ResponseSpectra {
   fatigueDamage: Float64Array;
   motion: Motion & { velocityPsd: Float64Array; displacementPsd: Float64Array; frequencyHz: Float64Array };
   stroke?: { ratedMm: number; estimateMm: number; margin: number; withinRating: boolean } | undefined;
+  /**
+   * A mixed-mode profile's tones: each tone's response is deterministic, its peak times |T(f)| (absolute
+   * acceleration) and times |Z/A| (relative displacement), per natural frequency. Miles' equation does not apply
+   * to a tone; the other columns (Miles, Rice's rates, the largest peak, the damage) are the random part alone.
+   */
+  tones?: { label: string; hz: number; peak: number; accelPeak: Float64Array; relDispPeak: Float64Array }[] | undefined;
+  /** With tones: RMS of the whole acceleration response, sqrt(random^2 + sum (peak |T|)^2 / 2). */
+  totalAccelRms?: Float64Array | undefined;
+  /**
+   * For a recording: fatigueDamage and extremePeak above come from the record itself (rainflow of the simulated
+   * relative displacement; its largest |acceleration response|), and the PSD-based values move here.
+   */
+  fromPsd?: { fatigueDamage: Float64Array; extremePeak: Float64Array } | undefined;
+  timeDomain?: {
+    recordS: number; kurtosis: number; sampleRateHz: number;
+    /** Largest |absolute-acceleration response - mean| over the record, per f_n. */
+    recordPeak: Float64Array;
+    /** Rainflow damage over the record alone (before scaling to the exposure). */
+    recordDamage: Float64Array;
+    /** Natural frequencies above fs/4, left out (NaN): the sampled response cannot follow them. */
+    skippedHz: number[];
+    /** Natural frequencies between fs/10 and fs/4: the sampled peak can fall short by up to 1 - cos(pi fn / fs). */
+    coarseHz: number[];
+    heldSamples: number;
+  } | undefined;
+}
+
+/**
+ * The time-domain figures of a recording over the exposure T (record length T_r):
+ * - damage: Miner's sum of the rainflow cycles of S = K z (z the relative displacement in m), D_r = sum n_i S_i^b / C,
+ *   scaled by T / T_r (damage is linear in exposure, the record repeated);
+ * - largest peak: the record's largest |response| times Davenport's factor at nu0+ T over the one at nu0+ T_r
+ *   (Davenport 1964; nu0+ of the response from the PSD): the record's peak grown as a Gaussian tail would over a
+ *   longer exposure (1 when T = T_r). This keeps the record's non-Gaussian excess; it does not know the shocks
+ *   of a service longer than the record.
+ */
+function timeDomainFigures(src: SpectrumSource, o: ResponseOptions, sn: SnCurve, durationS: number, upcrossingRateHz: Float64Array) {
+  const t = src.timeResponse!;
+  const n = o.fnHz.length;
+  const toSi = accelFactor(src.units, "m/s2");
+  const damage = new Float64Array(n);
+  const peak = new Float64Array(n);
+  const recordDamage = new Float64Array(n);
+  const recordPeak = new Float64Array(n);
+  const skippedHz: number[] = [];
+  const coarseHz: number[] = [];
+  for (let i = 0; i < n; i++) {
+    const fn = o.fnHz[i]!;
+    if (fn > t.sampleRateHz / 4) {
+      skippedHz.push(fn);
+      damage[i] = peak[i] = recordDamage[i] = recordPeak[i] = NaN;
+      continue;
+    }
+    if (fn > t.sampleRateHz / 10) coarseHz.push(fn);
+    const p = Math.max(t.maxAccel[i]! - t.mean, t.mean - t.minAccel[i]!);
+    recordPeak[i] = p;
+    const sum = t.rainflowSum[i]!;
+    // sum (K toSi range/2)^b / C, in logs (the sum is in input units x s^2).
+    recordDamage[i] = sum > 0 ? Math.exp(Math.log(sum) + sn.basquinB * Math.log(sn.stressPerUnit * toSi) - Math.log(sn.snConstant)) : 0;
+    damage[i] = recordDamage[i]! * (durationS / t.recordS);
+    const grow = davenportPeakFactor(upcrossingRateHz[i]! * durationS) / davenportPeakFactor(upcrossingRateHz[i]! * t.recordS);
+    peak[i] = p * (Number.isFinite(grow) ? grow : 1);
+  }
+  return { damage, peak, recordDamage, recordPeak, skippedHz, coarseHz };
 }
 
 /** Grid "A:B[:N]" (N per octave, default 6, geometric from A to B inclusive), a list "A,B,C" or one value. */
@@ -243,11 +337,42 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     const est = m.displacementPeakToPeak * 1000;
     stroke = { ratedMm: o.strokeMm, estimateMm: est, margin: o.strokeMm / est, withinRating: est <= o.strokeMm };
   }
-  const { spectrum: _s, frequencyHz: _f, level: _l, ...source } = src;
+  // Tones: deterministic responses (standard SDOF steady state: peak x |T(f)|, REFERENCES.md sec. 4 form).
+  const tones = src.tones?.map((t) => {
+    const accelPeak = out();
+    const relDispPeak = out();
+    for (let i = 0; i < n; i++) {
+      accelPeak[i] = t.peak * Math.sqrt(absoluteTransmissibilitySquared(t.hz, o.fnHz[i]!, q));
+      relDispPeak[i] = t.peak * toSi * Math.sqrt(relativeDisplacementSquared(t.hz, o.fnHz[i]!, q));
+    }
+    return { ...t, accelPeak, relDispPeak };
+  });
+  let totalAccelRms: Float64Array | undefined;
+  if (tones) {
+    totalAccelRms = out();
+    for (let i = 0; i < n; i++) {
+      let ms = r.accelRms[i]! ** 2;
+      for (const t of tones) ms += t.accelPeak[i]! ** 2 / 2;
+      totalAccelRms[i] = Math.sqrt(ms);
+    }
+  }
+  let fromPsd: ResponseSpectra["fromPsd"];
+  let timeDomain: ResponseSpectra["timeDomain"];
+  const t = src.timeResponse;
+  if (t !== undefined && durationS !== undefined) {
+    if (t.q !== q || t.basquinB !== sn.basquinB || t.fnHz.length !== n || t.fnHz.some((f, i) => f !== o.fnHz[i])) throw new RangeError("the recording's time-domain responses were computed for another grid, Q or b");
+    const td = timeDomainFigures(src, o, sn, durationS, r.upcrossingRateHz);
+    fromPsd = { fatigueDamage: r.fatigueDamage, extremePeak: r.extremePeak };
+    r.fatigueDamage = td.damage;
+    r.extremePeak = td.peak;
+    timeDomain = { recordS: t.recordS, kurtosis: t.kurtosis, sampleRateHz: t.sampleRateHz, recordPeak: td.recordPeak, recordDamage: td.recordDamage, skippedHz: td.skippedHz, coarseHz: td.coarseHz, heldSamples: t.heldSamples };
+  }
+  const { spectrum: _s, frequencyHz: _f, level: _l, tones: _t, timeResponse: _tr, ...source } = src;
   return {
-    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, needsDuration: durationS === undefined ? ["the largest peak (Davenport)", "the fatigue damage"] : [], ...r,
+    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, needsDuration: durationS === undefined ? ["the largest peak (Davenport)", "the fatigue damage"] : [], ...r, fromPsd, timeDomain,
     motion: { ...m, frequencyHz: fk, velocityPsd: velocityPsd(fk, gk, toSi), displacementPsd: displacementPsd(fk, gk, toSi) },
     stroke,
+    ...(tones ? { tones, totalAccelRms } : {}),
   };
 }
 
@@ -299,10 +424,12 @@ export interface RespondRerun {
 /** Run `respond` on a source (and its --against input, when given) with the options of a RespondRerun. */
 export async function runResponse(source: string, o: RespondRerun, againstFile?: string): Promise<{ r: ResponseSpectra; against?: { b: ResponseSpectra; c: ResponseComparison } | undefined }> {
   const fnHz = parseFnGrid(o.fn);
-  const a = await loadSpectrumSource(source, o.source);
+  // A recording is also filtered through each SDOF in time: damage by rainflow, the largest response (the non-Gaussian part the PSD hides).
+  const response = { fnHz, q: o.q, basquinB: o.sn?.basquinB ?? SN_DEFAULTS.basquinB };
+  const a = await loadSpectrumSource(source, { ...o.source, response });
   const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.durationS, sn: o.sn, strokeMm: o.strokeMm });
   if (o.against === undefined) return { r };
-  const bsrc = await loadSpectrumSource(againstFile ?? o.against.file, o.against.options, "againstChannel");
+  const bsrc = await loadSpectrumSource(againstFile ?? o.against.file, { ...o.against.options, response }, "againstChannel");
   const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.against.durationS, sn: o.sn });
   return { r, against: { b, c: compareResponses(r, b) } };
 }

@@ -5,6 +5,7 @@ import {
   type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
 } from "./compare/wholeBodyExposure.js";
 import { InputError, quoted } from "./errors.js";
+import type { PeakHoldPsd } from "./estimate/peakHoldPsd.js";
 import { texts, type Finding } from "./findings.js";
 import { stationarityFinding, type StationarityFinding } from "./estimate/stationarityTests.js";
 import { normalizeWelchOptions } from "./estimate/welchOptions.js";
@@ -59,6 +60,8 @@ export interface RideAxis {
   filter: { method: "bilinear" | "fitted"; maxErrorPct: number; maxErrorAtHz: number; topCentreHz: number; heldSamples: number };
   /** Unweighted one-third-octave spectrogram, when asked for. */
   spectrogram?: BandSpectrogram | undefined;
+  /** Unweighted peak-hold spectrum (the largest stretch PSD at each line), when `peakHoldS` asks for one. */
+  peakHold?: PeakHoldPsd | undefined;
 }
 
 export interface RideResult {
@@ -278,6 +281,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
       axis, channel: ch.name, weighting, rule: rules[axis], dose: d, awFromPsd, awWelchWeighted, routeRatio, basicMethod, stationarity,
       filter: { method: r.design.method, maxErrorPct: r.design.maxErrorPct, maxErrorAtHz: r.design.maxErrorAtHz, topCentreHz: r.design.topCentreHz, heldSamples: r.heldSamples },
       spectrogram: r.spectrogram,
+      peakHold: ch.peakHold,
     };
   });
   // The realisation's error, in every result: which figures carry it and which do not.

@@ -138,7 +138,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
   if (doc.kind === "batch") return verifyBatch(report, doc.result as BatchDoc, steps);
   if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun) return verifyRecord(report, doc as RecordDoc, steps, tol, options);
-  if (doc.kind !== "check" && doc.kind !== "psd" || !result.input || !doc.rerun) {
+  if (doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock" || !result.input || !doc.rerun) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
     return done("differs", { kind: undefined });
   }
@@ -174,6 +174,11 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     const profile = await loadProfile(prof.path!);
     const r = await checkRecording(rec.path!, profile, doc.rerun as CheckOptions);
     now = checkJson(r, version, meta);
+  } else if (doc.kind === "shock") {
+    // A shock record: the events and spectra re-run from the recorded options (two reads of the recording).
+    const { shockRecording } = await import("./shockRecording.js");
+    const { shockJson } = await import("./report/shockReport.js");
+    now = shockJson(await shockRecording(rec.path!, doc.rerun as never), version);
   } else {
     now = psdJson(await analyzeRecording(rec.path!, doc.rerun as AnalysisOptions), version, meta);
   }

@@ -116,3 +116,75 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
 });
 
 
+
+describe("deriveProfile with a tone in the field (mixed mode)", () => {
+  it("lists a field tone as a candidate and keeps it out of the envelope and the damage: the derived profile equals the tone-free one within 2 %", async () => {
+    const { shapedRecord } = await import("./shapedRecords.js");
+    const { wavBytes } = await import("./wavBytes.js");
+    const { writeFileSync } = await import("node:fs");
+    const dir = tempDir();
+    const g0 = 0.01;
+    const files = [1, 2].map((s) => {
+      const x = shapedRecord(flat(g0), FIELD_RATE_HZ, FIELD_LENGTH, 700 + s);
+      const noTone = join(dir, `plain${s}.wav`);
+      writeFileSync(noTone, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
+      // An engine order: 1.5 g peak at 123.4 Hz, far above the 0.01 g2/Hz background.
+      for (let i = 0; i < x.length; i++) x[i] = x[i]! + 1.5 * Math.cos((2 * Math.PI * 123.4 * i) / FIELD_RATE_HZ);
+      const withTone = join(dir, `tone${s}.wav`);
+      writeFileSync(withTone, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
+      return { noTone, withTone };
+    });
+    const common = { testDurationS: 3600, fromHz: 10, toHz: 500, version: "test", created: new Date(0) };
+    const a = await deriveProfile({ ...plainInputs(files.map((f) => f.withTone), 100 * 3600), ...common });
+    const b = await deriveProfile({ ...plainInputs(files.map((f) => f.noTone), 100 * 3600), ...common });
+    expect(a.candidateTones.length).toBe(2);
+    for (const t of a.candidateTones) {
+      expect(Math.abs(t.frequencyHz - 123.4)).toBeLessThan(0.1);
+      expect(Math.abs(t.peak / 1.5 - 1)).toBeLessThan(0.05);
+    }
+    expect(b.candidateTones.length).toBe(0);
+    expect(a.notes.join(" ")).toMatch(/2 candidate sine tone\(s\)/);
+    const k = Math.round(123.4 / a.lineSpacingHz);
+    expect(a.envelope[k]! / b.envelope[k]!).toBeLessThan(1.6);
+    const la = a.profile.breakpoints.map((p) => p.level);
+    const lb = b.profile.breakpoints.map((p) => p.level);
+    expect(la.length).toBe(lb.length);
+    la.forEach((v, i) => expect(Math.abs(v / lb[i]! - 1)).toBeLessThan(0.02));
+  }, 120_000);
+});
+
+describe("derive: the field's shocks beside the random test's largest response (issue 26, item 4)", () => {
+  it("the forklift record's shocks (the sample's five known events) are reported, and where the test's ERS falls below the field's SRS a shock test is called for", async () => {
+    const r = await deriveProfile({ ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fromHz: 5, toHz: 400, version: "test", created: new Date(0) });
+    expect(r.shocks.eventsPerRecording).toEqual([5]);
+    expect(r.shocks.largestEvents[0]!.recording).toBe(0);
+    expect(r.shocks.largestEvents[0]!.peak).toBeLessThan(-2.7);
+    expect(r.shocks.largestEvents[0]!.timeS).toBeCloseTo(19.503, 2);
+    // Every f_n here is below fs/4 = 500 Hz, so the field's SRS is defined everywhere.
+    expect(r.shocks.fieldSrs.every((v) => Number.isFinite(v) && v > 0)).toBe(true);
+    const below = [...r.fnHz].filter((_, i) => r.testExtreme[i]! < r.shocks.fieldSrs[i]!);
+    expect(r.shocks.shortfallHz).toEqual(below);
+    expect(below.length).toBeGreaterThan(0);
+    expect(r.notes.join("\n")).toMatch(/a shock test is needed/);
+  });
+});
+
+describe("derive --field-damage time: the field's FDS and ERS from the recordings themselves (issue 26, item 0)", () => {
+  it("on the forklift's shocks the field's damage in time is far above the PSD's; the record says how it was made; the PSD's values are kept beside", async () => {
+    const args = { ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fromHz: 5, toHz: 400, version: "test", created: new Date(0) };
+    const psd = await deriveProfile(args);
+    const time = await deriveProfile({ ...args, fieldDamage: "time" });
+    const ratio = [...time.fieldFatigue].map((d, i) => d / psd.fieldFatigue[i]!);
+    // Measured: 1.25 (at the 14 Hz mast mode, where the random part carries the damage) to 1.0e6; median 1.4e4.
+    expect(Math.min(...ratio)).toBeGreaterThan(1);
+    expect(ratio.sort((a, b) => a - b)[ratio.length >> 1]!).toBeGreaterThan(100);
+    expect(time.recordings[0]!.fromPsd!.damage).toEqual(psd.recordings[0]!.damage);
+    expect(time.recordings[0]!.fromPsd!.kurtosis).toBeGreaterThan(10);
+    expect(time.document.provenance!.method).toMatch(/rainflow \(ASTM E1049-85\)/);
+    expect(time.document.provenance!.parameters.fieldDamage).toBe("time");
+    expect(time.notes.join("\n")).toMatch(/come from the recordings themselves/);
+    // Damage is linear in service time in time as well: doubling the life doubles the field's damage.
+    const twice = await deriveProfile({ ...args, ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 4 * 3600), fieldDamage: "time" });
+    for (let i = 0; i < time.fnHz.length; i++) expect(twice.fieldFatigue[i]! / time.fieldFatigue[i]!).toBeCloseTo(2, 10);
+  });
+});

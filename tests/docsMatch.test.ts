@@ -12,6 +12,8 @@ describe("docs match what the commands print", () => {
       ["kb210-run-resonance.wav", "samples/profiles/kb210-controller.json", "fail"],
       ["kb210-run-short.wav", "samples/profiles/kb210-controller.json", "inconclusive"],
       ["tern7-flight.csv", "samples/profiles/tern7-gimbal.yaml", "inconclusive"],
+      ["hx4-dcu-run.wav", "samples/profiles/hx4-avionics.yaml", "pass"],
+      ["hx4-dcu-run-tones-low.wav", "samples/profiles/hx4-avionics.yaml", "fail"],
     ];
     for (const [file, profile, verdict] of rows) {
       const line = table.split("\n").find((l) => l.startsWith(`| \`${file}\``))!;

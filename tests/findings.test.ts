@@ -6,6 +6,7 @@ import { checkRecording, loadProfile } from "../src/checkRecording.js";
 import { judgeSpectrum, withDoubts, type SpectrumUnderTest } from "../src/compare/complianceCheck.js";
 import { levelGate } from "../src/compare/levelGate.js";
 import { parseProfile } from "../src/compare/testProfile.js";
+import { judgeMixedMode } from "../src/compare/toneCheck.js";
 import type { Finding } from "../src/findings.js";
 import { tempDir } from "./helpers.js";
 import { shapedRecord } from "./shapedRecords.js";
@@ -129,6 +130,13 @@ async function allFindings(): Promise<Finding[]> {
     }), "notch.json")),
   ];
   for (const c of judged) out.push(...c.findings);
+
+  // Mixed mode on an exact spectrum with hand-made tone fits: pass, low, missing, off frequency, unresolved.
+  const mixed = flat(20, 1000, { tones: [{ name: "hum", hz: 120, peak: 2, toleranceDb: 1, toleranceHz: 0.5 }] });
+  const fit = (peak: number, hz = 120, durationS = 600) => [{ nominalHz: 120, frequencyHz: hz, peak, phaseRad: 0, samples: 1, durationS, searchHalfWidthHz: 1 }];
+  for (const f of [fit(2), fit(1.5), fit(0.01), fit(2, 121.5), fit(1.95, 120, 0.01), fit(1.7, 120, 0.5)]) out.push(...judgeMixedMode(exact(on, { dof: 400 }), mixed, f).findings);
+  // A tone the record cannot hold (a profile to 2000 Hz, a record at 2560 Hz).
+  out.push(...judgeMixedMode(exact(on, { dof: 400 }), flat(20, 2000, { tones: [{ hz: 1500, peak: 1, toleranceDb: 1 }] }), fit(1)).findings);
   // The level gate: a run loud for its first half and quiet for its second, and drift that dominates.
   const step = Array.from({ length: 64 }, (_, i) => (i < 32 ? db(2) : db(-2.9)));
   out.push(...levelGate(step, 1, 1, 0.64, 20));

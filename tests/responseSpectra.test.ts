@@ -146,3 +146,21 @@ describe("loadSpectrumSource on a profile with --fmin/--fmax", () => {
     expect(await inputError(() => loadSpectrumSource(profileFile, { fminHz: 3000 }))).toMatch(/^OPTION_INVALID .*option fminHz: expected a band that overlaps the profile's 20–2000 Hz/);
   });
 });
+
+describe("respond with a mixed-mode profile (tones)", () => {
+  it("each tone's response is its peak x |T(f)| (the closed form, computed here), and the total RMS adds (peak |T|)^2 / 2 to the random part", async () => {
+    const { loadSpectrumSource: load, responseSpectra: respond } = await import("../src/responseSpectra.js");
+    const src = await load("samples/profiles/hx4-avionics.yaml");
+    expect(src.tones?.map((t) => t.hz)).toEqual([21.2, 42.4, 84.8]);
+    const fn = Float64Array.from([20, 1000]);
+    const r = respond(src, { fnHz: fn, q: 10 });
+    // |T|^2 = (1 + (r/Q)^2) / ((1 - r^2)^2 + (r/Q)^2), r = f / fn (base-driven SDOF steady state, common practice).
+    const T = (f: number, n: number) => { const x = f / n; const c = (x / 10) ** 2; return Math.sqrt((1 + c) / ((1 - x * x) ** 2 + c)); };
+    expect(r.tones![0]!.accelPeak[0]).toBeCloseTo(1.2 * T(21.2, 20), 12);
+    expect(r.tones![0]!.accelPeak[0]).toBeCloseTo(7.411, 3);
+    // Far above the tone the structure follows its base: the tone passes at its own peak.
+    expect(Math.abs(r.tones![2]!.accelPeak[1]! / 0.5 - 1)).toBeLessThan(0.01);
+    const total = Math.sqrt(r.accelRms[0]! ** 2 + r.tones!.reduce((a, t) => a + t.accelPeak[0]! ** 2 / 2, 0));
+    expect(r.totalAccelRms![0]).toBeCloseTo(total, 12);
+  });
+});

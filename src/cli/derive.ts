@@ -22,6 +22,7 @@ interface DeriveFlags extends ParsedCommon {
   coverage?: number;
   toleranceConfidence?: number;
   extremeLimit?: number;
+  fieldDamage?: "psd" | "time";
   bandDb?: number;
   rmsPercent?: number;
   minDof?: number;
@@ -56,6 +57,10 @@ export function registerDerive(program: Command, io: CliIo): void {
     .option("--per-octave <n>", "natural frequencies per octave of the grid (default 6)", num("--per-octave", "1 to 24", (x) => Number.isInteger(x) && x >= 1 && x <= 24))
     .option("--coverage <p>", "coverage of the statistical upper limit across recordings (default 0.95)", num("--coverage", "a coverage between 0.5 and 1", (x) => x > 0.5 && x < 1))
     .option("--tolerance-confidence <c>", "confidence of that limit (default 0.50: P95/50)", num("--tolerance-confidence", "a confidence between 0 and 1", (x) => x > 0 && x < 1))
+    .option("--field-damage <from>", "the field's FDS and ERS from the PSD (psd, the default) or from the recordings in time (time: rainflow damage and the largest response, shocks kept)", (v: string) => {
+      if (v !== "psd" && v !== "time") throw new InputError("OPTION_INVALID", { option: "--field-damage", expected: "psd or time", received: JSON.stringify(v) });
+      return v;
+    })
     .option("--extreme-limit <factor>", "warn where the test's expected largest response exceeds the field's by more than this factor (default 1.5)", num("--extreme-limit", "a factor of at least 1", (x) => x >= 1))
     .option("--band-db <dB>", "the profile's tolerance band, ± dB (default 3)", num("--band-db", "a band in dB above 0 and at most 20", (x) => x > 0 && x <= 20))
     .option("--rms-percent <pct>", "the profile's RMS tolerance, ± % (default 10)", num("--rms-percent", "a percentage above 0 and below 99", (x) => x > 0 && x < 99))
@@ -94,7 +99,7 @@ export function registerDerive(program: Command, io: CliIo): void {
       const created = new Date();
       const settings = {
         ...inputs, testDurationS: o.testDuration, analysis: analysisOptions(o), channel: o.channel?.[0], q: o.q, basquinB: o.basquin, maxBreakpoints: o.breakpoints, margin: o.margin,
-        fromHz: o.fmin, toHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, toleranceConfidence: o.toleranceConfidence, extremeLimit: o.extremeLimit,
+        fromHz: o.fmin, toHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, toleranceConfidence: o.toleranceConfidence, extremeLimit: o.extremeLimit, fieldDamage: o.fieldDamage,
         bandDb: o.bandDb, rmsPercent: o.rmsPercent, minDof: o.minDof, strokeMm: o.strokeMm, outFile: o.out,
       };
       const r = await deriveProfile({ ...settings, version: VERSION, created });

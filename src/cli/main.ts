@@ -13,6 +13,7 @@ import { registerPsd } from "./psd.js";
 import { registerQueue } from "./queue.js";
 import { registerRespond } from "./respond.js";
 import { registerRide } from "./ride.js";
+import { registerShock } from "./shock.js";
 import { registerSynth } from "./synth.js";
 import { registerTransfer } from "./transfer.js";
 import { registerVerify } from "./verify.js";
@@ -52,7 +53,7 @@ export function buildProgram(io: CliIo): Command {
     .exitOverride()
     // commander's own errors (unknown command or option, missing value) become one USAGE line in runCli.
     .configureOutput({ writeOut: io.stdout, writeErr: io.stderr, outputError: () => undefined });
-  for (const register of [registerInspect, registerPsd, registerProfile, registerCheck, registerSynth, registerRide, registerTransfer, registerRespond, registerDerive, registerQueue, registerVerify]) register(program, io);
+  for (const register of [registerInspect, registerPsd, registerProfile, registerCheck, registerSynth, registerRide, registerTransfer, registerRespond, registerShock, registerDerive, registerQueue, registerVerify]) register(program, io);
   return program;
 }
 

@@ -52,6 +52,7 @@ interface RideFlags extends ParsedCommon {
   exposure?: number;
   floor?: string;
   runningRms?: number;
+  peakHold?: number;
   json?: boolean;
   quiet?: boolean;
   report?: string;
@@ -77,6 +78,7 @@ export function registerRide(program: Command, io: CliIo): void {
     .option("--exposure <duration>", "daily exposure the recording stands for: 8h, 6.5h, 2h30min, 90min, 07:30; needed for A(8), the daily VDV and the Directive's values (a_w, VDV, MTVV come without it)", exposureOption)
     .option("--floor <channel>", "vertical floor channel beneath the seat: adds the seat's effective amplitude transmissibility (SEAT)")
     .option("--running-rms <s>", "integration time of the running r.m.s. and of the stationarity stretches (default 1 s)", numberOption("--running-rms", (x) => x > 0 && x <= 60, "an integration time in s, 0 < t <= 60"))
+    .option("--peak-hold <s>", "also a peak-hold spectrum of each axis (unweighted): at each line the largest Welch PSD of consecutive stretches of this length (s), beside the average", numberOption("--peak-hold", (x) => x > 0 && Number.isFinite(x), "a stretch length in s above 0"))
     .option("--health-zone <bounds>", "the ISO 2631-1 Annex B caution zone at 8 h as the lab has confirmed it: a8=LOWER-UPPER,vdv=LOWER-UPPER (default psdgate's a8=0.43-0.86,vdv=8.5-17, to be confirmed)", parseHealthZone)
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
     .option("--json", "print the result as JSON (SI units)")
@@ -94,7 +96,7 @@ export function registerRide(program: Command, io: CliIo): void {
       if (o.report !== undefined) (await import("../report/writeAtomic.js")).checkOutputPath(o.report, inputs, o.force, "--report");
       const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
       const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
-      const options = { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, healthZone: o.healthZone };
+      const options = { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, peakHoldS: o.peakHold, healthZone: o.healthZone };
       let r;
       try {
         r = await rideRecording(file, { ...options, spectrogram: o.report !== undefined, onProgress: (d, t) => progress.update(d, t) });

@@ -130,6 +130,8 @@ export interface ChannelCompliance {
   rule: RuleReport;
   /** For an inconclusive verdict that a longer run could decide: how long. Undefined otherwise. */
   decide?: DecideEstimate | undefined;
+  /** Mixed mode: each required tone and its verdict (compare/toneCheck.ts). */
+  tones?: import("./toneCheck.js").ToneJudgement[] | undefined;
 }
 
 /** What the judgement needs of a measured spectrum. */
@@ -386,7 +388,18 @@ export function secondsForDof(sp: Pick<SpectrumUnderTest, "window" | "segmentLen
   return ((hi - 1) * hop + n) / sp.sampleRateHz;
 }
 
-export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): ChannelCompliance {
+/**
+ * Mixed mode (compare/toneCheck.ts): the tones' lines come in `excludedLines`; here the tones' mean square is added to
+ * the required RMS (the RMS is the total) and the tones' share of the family-wise budget is taken from the lines'.
+ */
+export interface ToneAllowance {
+  /** Sum of peak^2 / 2 of the required tones inside the compared range. */
+  toneMeanSquare: number;
+  /** Alpha taken from the lines' share for the tones. */
+  toneShare: number;
+}
+
+export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones?: ToneAllowance): ChannelCompliance {
   const df = sp.lineSpacingHz;
   const nyquist = sp.sampleRateHz / 2;
   const half = sp.psd.length - 1;
@@ -447,7 +460,8 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const allowanceLines = Math.floor(((profile.allowedOutsidePercent ?? 0) / 100) * m);
   const outer = profile.outerBands !== undefined;
   const widths = allowanceLines === 0 ? stretchWidths(m) : [];
-  const levels = ruleLevels(m, outer, family);
+  const toneShare = tones?.toneShare ?? 0;
+  const levels = ruleLevels(m, outer, family, toneShare);
   // Single lines get the line alpha less the stretches' share; each stretch width an equal part of that share.
   const singleShare = widths.length > 0 ? 1 - STRETCH_SHARE : 1;
   const upLevel = levels.upper.lineTest * singleShare;
@@ -574,7 +588,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   // RMS over the profile's range, with each end line counted for the part of its cell inside.
   // A record that cannot reach the profile's top is compared over the part it covers.
   const top = Math.min(fN, nyquist);
-  const requiredRms = top < fN ? Math.sqrt(profileMeanSquare(profile, f0, top)) : profile.rms;
+  const requiredRms = Math.sqrt((top < fN ? profileMeanSquare(profile, f0, top) : profile.rms * profile.rms) + (tones?.toneMeanSquare ?? 0));
   const measuredMs = bandMeanSquare(sp, f0, top);
   const measuredRms = Math.sqrt(measuredMs);
   const rmsDev = 20 * Math.log10(measuredRms / requiredRms);
@@ -605,7 +619,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Chan
   const bandsUp = Math.max(...profile.bands.map((b) => b.upperDb));
   const bandsLo = Math.max(...profile.bands.map((b) => b.lowerDb));
   const powerInputs: PowerInputs = {
-    lines: Math.max(1, m), allowance: allowanceLines, inflation, rmsDofRatio: rmsRatio, outerLimits: outer, upperSharedBy: k, family,
+    lines: Math.max(1, m), allowance: allowanceLines, inflation, rmsDofRatio: rmsRatio, outerLimits: outer, upperSharedBy: k, family, toneShare,
     seenShare: (w) => departureShare(kernel, w), widestUpperDb: bandsUp, widestLowerDb: bandsLo, singleLineShare: singleShare,
   };
   const requirement = powerRequirement(profile);

@@ -30,6 +30,8 @@ export const DECISION_RULE = {
   outer: 0.005,
   /** Its share for the RMS, both directions together. */
   rms: 0.01,
+  /** Its share for the sine tones of a mixed-mode profile (taken from the lines' share when the profile has tones; toneCheck.ts). */
+  tones: 0.01,
   /** The departure a pass must have been able to see (psdgate's default power requirement). */
   departureDb: 1.5,
   departureShare: 0.05,
@@ -74,10 +76,10 @@ export interface RuleLevels {
  * control channels does not change the levels: its tests use the distribution of the largest
  * (largestUpperFactor, largestOfMoments).
  */
-export function ruleLevels(lines: number, outerLimits: boolean, family = 1): { upper: RuleLevels; lower: RuleLevels } {
+export function ruleLevels(lines: number, outerLimits: boolean, family = 1, toneShare = 0): { upper: RuleLevels; lower: RuleLevels } {
   const m = Math.max(1, lines);
   const n = Math.max(1, family);
-  const lineAlpha = DECISION_RULE.lines - (outerLimits ? DECISION_RULE.outer : 0);
+  const lineAlpha = DECISION_RULE.lines - (outerLimits ? DECISION_RULE.outer : 0) - toneShare;
   const make = (): RuleLevels => ({
     lineTest: lineAlpha / (2 * m * n),
     outerTest: outerLimits ? DECISION_RULE.outer / (2 * m * n) : undefined,
@@ -207,6 +209,8 @@ export interface PowerInputs {
   upperSharedBy: number;
   /** Spectra the record's verdict rests on (ruleLevels `family`); 1 when absent. */
   family?: number | undefined;
+  /** The tones' share of the lines' alpha (mixed mode), 0 without tones. */
+  toneShare?: number | undefined;
   /** The single lines' part of the line alpha (the rest goes to the stretches); 1 when absent. */
   singleLineShare?: number | undefined;
   /**
@@ -239,7 +243,7 @@ export interface PowerAt {
  * The other lines of a run and the stretches only add power.
  */
 export function powerAt(dof: number, p: PowerInputs, req: PowerRequirement = DEFAULT_POWER): PowerAt {
-  const lv = ruleLevels(p.lines, p.outerLimits, p.family ?? 1);
+  const lv = ruleLevels(p.lines, p.outerLimits, p.family ?? 1, p.toneShare ?? 0);
   const k = p.upperSharedBy;
   const g = Math.pow(10, req.departureDb / 10);
   const s = p.seenShare ? p.seenShare(req.widthLines) : 1;

@@ -15,13 +15,13 @@ import { STANDARD_GRAVITY_M_PER_S2, type AccelUnit } from "../units.js";
 
 const positive = (what: string) => z.number({ error: `${what} (a number)` }).refine((v) => v > 0 && Number.isFinite(v), { message: `${what} above 0` });
 
-const PointSchema = z.object({
+const PointSchema = z.strictObject({
   hz: positive("a frequency in Hz"),
   level: positive("a level").optional(),
   slopeDbPerOctave: z.number({ error: "a slope in dB/octave (a number)" }).refine(Number.isFinite, { message: "a finite slope" }).optional(),
 });
 
-const BandSchema = z.object({
+const BandSchema = z.strictObject({
   fromHz: positive("a frequency in Hz"),
   toHz: positive("a frequency in Hz"),
   upperDb: z.number({ error: "allowed excess in dB (a number >= 0)" }).min(0, { message: "allowed excess in dB >= 0 (both limits are positive numbers)" }),
@@ -32,11 +32,11 @@ const BandSchema = z.object({
  * Where a derived profile came from (`psdgate derive` writes it): the tool, the inputs by SHA-256 and every
  * parameter. Optional; `profile` shows it and every `check` report names it.
  */
-const ProvenanceSchema = z.object({
+const ProvenanceSchema = z.strictObject({
   derivedBy: z.string({ error: "the tool that derived the profile (text)" }).min(1),
   created: z.string({ error: "a date-time (text)" }).optional(),
   method: z.string({ error: "the method in words (text)" }).optional(),
-  inputs: z.array(z.object({
+  inputs: z.array(z.strictObject({
     file: z.string({ error: "an input file name (text)" }).min(1),
     sha256: z.string({ error: "a SHA-256 (64 hex digits)" }).regex(/^[0-9a-f]{64}$/, { message: "a SHA-256 (64 lower-case hex digits)" }),
     role: z.string({ error: "the input's role (text)" }).optional(),
@@ -49,11 +49,26 @@ const ProvenanceSchema = z.object({
 
 export type ProfileProvenance = z.infer<typeof ProvenanceSchema>;
 
-const ProfileSchema = z.object({
+/**
+ * A sine tone on the random background (sine-on-random, mixed mode): its frequency, its required peak
+ * acceleration in the profile's unit root (g or m/s2), and its tolerance: ±toleranceDb on the peak, or
+ * lowerDb/upperDb apart; toleranceHz is how far the tone's frequency may lie from hz.
+ */
+const ToneSchema = z.strictObject({
+  hz: positive("a tone frequency in Hz"),
+  peak: positive("a peak acceleration in the profile's unit (g or m/s2)"),
+  toleranceDb: positive("a tolerance on the peak in dB").optional(),
+  upperDb: z.number({ error: "allowed excess of the peak in dB (a number >= 0)" }).min(0, { message: "allowed excess in dB >= 0" }).optional(),
+  lowerDb: z.number({ error: "allowed shortfall of the peak in dB (a number >= 0)" }).min(0, { message: "allowed shortfall in dB >= 0" }).optional(),
+  toleranceHz: positive("how far the tone may lie from its frequency, Hz").optional(),
+  name: z.string({ error: "a name for the tone (text)" }).min(1).optional(),
+}, { error: "a tone: hz, peak and a tolerance" });
+
+const ProfileSchema = z.strictObject({
   title: z.string({ error: "a title (text)" }).min(1, { message: "a non-empty title" }),
   units: z.enum(["g2/Hz", "(m/s2)2/Hz"], { error: 'units "g2/Hz" or "(m/s2)2/Hz"' }),
   points: z.array(PointSchema, { error: "a list of breakpoints" }).min(2, { message: "at least 2 breakpoints" }),
-  tolerance: z.object({
+  tolerance: z.strictObject({
     bands: z.array(BandSchema, { error: "a list of tolerance bands" }).min(1, { message: "at least one tolerance band" }),
     rmsDb: z.number({ error: "an RMS tolerance in dB (a number > 0)" }).positive({ message: "an RMS tolerance in dB above 0" }).optional(),
     rmsPercent: z.number({ error: "an RMS tolerance in percent (a number)" }).positive().max(99, { message: "an RMS tolerance below 100 %" }).optional(),
@@ -63,6 +78,7 @@ const ProfileSchema = z.object({
   minDof: positive("a minimum number of degrees of freedom").optional(),
   resolutionHz: positive("an analysis resolution in Hz").optional(),
   durationS: positive("a test duration in s").optional(),
+  tones: z.array(ToneSchema, { error: "a list of tones" }).optional(),
   /**
    * The procedure's own power requirement for a pass (what a pass must have been able to see), or "none";
    * absent: psdgate's default (compare/decisionRule.ts DEFAULT_POWER).
@@ -102,6 +118,25 @@ export interface ToleranceBand {
   lowerDb: number;
 }
 
+/** A required sine tone, normalised: limits on the peak in dB either side, frequency allowance in Hz. */
+export interface ProfileTone {
+  /** A label for messages: the profile's name for it, else "tone at N Hz". */
+  label: string;
+  hz: number;
+  /** Required peak acceleration, profile unit (g or m/s2). */
+  peak: number;
+  upperDb: number;
+  lowerDb: number;
+  toleranceHz: number;
+  /** Index in the profile's `tones` list. */
+  index: number;
+}
+
+/** Frequency allowance of a tone that does not give one: ±0.5 % of its frequency, at least 0.05 Hz (chosen here). */
+export function defaultToneToleranceHz(hz: number): number {
+  return Math.max(0.05, 0.005 * hz);
+}
+
 export interface TestProfile {
   title: string;
   file: string;
@@ -109,8 +144,12 @@ export interface TestProfile {
   units: AccelUnit;
   breakpoints: { hz: number; level: number }[];
   segments: ProfileSegment[];
-  /** Overall RMS acceleration over the profile's range. */
+  /** Overall RMS acceleration of the random part over the profile's range. */
   rms: number;
+  /** Sine tones on the random (mixed mode); empty for a random-only profile. */
+  tones: ProfileTone[];
+  /** RMS of random and tones together: sqrt(rms^2 + sum of peak^2 / 2). Equal to rms without tones. */
+  totalRms: number;
   bands: ToleranceBand[];
   /** Allowed RMS excess and shortfall in dB (20 log10 of the RMS ratio). */
   rmsToleranceDb: { upper: number; lower: number } | undefined;
@@ -225,8 +264,27 @@ export function normalizeProfile(doc: ProfileDocument, file: string, sha256: str
         : undefined;
   let area = 0;
   for (const s of segments) area += s.area;
+  const tones = (doc.tones ?? []).map((t, i): ProfileTone => {
+    const at = `tones[${i}]`;
+    if (t.toleranceDb !== undefined && (t.upperDb !== undefined || t.lowerDb !== undefined)) fail(file, at, "either toleranceDb or upperDb/lowerDb, not both", "both");
+    if (t.toleranceDb === undefined && (t.upperDb === undefined || t.lowerDb === undefined)) fail(file, at, "a tolerance: toleranceDb, or both upperDb and lowerDb", t.upperDb !== undefined || t.lowerDb !== undefined ? "only one of upperDb/lowerDb" : "none");
+    if (t.hz < f0 || t.hz > fN) fail(file, `${at}.hz`, `a tone inside the profile's range ${f0}–${fN} Hz`, String(t.hz));
+    return {
+      label: t.name ?? `tone at ${t.hz} Hz`, hz: t.hz, peak: t.peak,
+      upperDb: t.toleranceDb ?? t.upperDb!, lowerDb: t.toleranceDb ?? t.lowerDb!, toleranceHz: t.toleranceHz ?? defaultToneToleranceHz(t.hz), index: i,
+    };
+  });
+  const sorted = [...tones].sort((a, b) => a.hz - b.hz);
+  for (let k = 1; k < sorted.length; k++) {
+    const a = sorted[k - 1]!;
+    const b = sorted[k]!;
+    if (b.hz - b.toleranceHz <= a.hz + a.toleranceHz) fail(file, `tones[${b.index}].hz`, `tones whose frequency allowances do not overlap (tones[${a.index}] at ${a.hz} ± ${a.toleranceHz} Hz)`, `${b.hz} ± ${b.toleranceHz} Hz`);
+  }
+  let toneMs = 0;
+  for (const t of tones) toneMs += (t.peak * t.peak) / 2;
   return {
     title: doc.title, file, sha256, units: doc.units === "g2/Hz" ? "g" : "m/s2", breakpoints, segments, rms: Math.sqrt(area),
+    tones, totalRms: Math.sqrt(area + toneMs),
     bands,
     rmsToleranceDb, minDof: doc.minDof, resolutionHz: doc.resolutionHz, durationS: doc.durationS,
     allowedOutsidePercent: t.allowedOutsidePercent, outerBands, defaultsApplied: defaultsApplied ?? [],
@@ -269,11 +327,30 @@ function valueAt(doc: unknown, path: readonly PropertyKey[]): unknown {
   return v;
 }
 
+/** The schema's keys for the object at a path (for the unknown-key message). */
+function knownKeysAt(path: readonly PropertyKey[]): Record<string, unknown> {
+  const names = path.filter((k) => typeof k === "string");
+  const last = names[names.length - 1];
+  if (last === undefined) return ProfileSchema.shape;
+  if (last === "points") return PointSchema.shape;
+  if (last === "tones") return ToneSchema.shape;
+  if (last === "bands" || last === "outerLimits") return BandSchema.shape;
+  if (last === "tolerance") return ProfileSchema.shape.tolerance.shape;
+  if (last === "provenance") return ProvenanceSchema.shape;
+  return {};
+}
+
 /** Validate a parsed document; the first problem becomes an error naming its key path. */
 export function validateProfileDocument(doc: unknown, file: string): ProfileDocument {
   const r = ProfileSchema.safeParse(doc);
   if (!r.success) {
     const issue = r.error.issues[0]!;
+    if (issue.code === "unrecognized_keys") {
+      // A key psdgate does not know is an error naming it, never silently ignored (a misspelt `tones` would drop the tones).
+      const key = issue.keys[0]!;
+      const known = Object.keys(knownKeysAt(issue.path)).join(", ");
+      fail(file, keyPath([...issue.path, key]), `a key psdgate knows here (${known})`, JSON.stringify(key));
+    }
     const expected = issue.message.replace(/^Invalid input: expected /, "").replace(/^Invalid option: expected one of /, "one of ");
     fail(file, keyPath(issue.path), expected, describe(valueAt(doc, issue.path)));
   }
@@ -517,7 +594,7 @@ export interface ProfileMotion {
   velocityRms: number;
   /** RMS displacement, m. */
   displacementRms: number;
-  /** Peak-to-peak displacement estimate, 6 x RMS (a +-3 sigma excursion; common practice), m. */
+  /** Peak-to-peak displacement estimate, m: 6 x the random part's RMS (a +-3 sigma excursion; common practice), plus twice each tone's displacement peak. Equal to 6 x RMS without tones. */
   displacementPeakToPeak: number;
 }
 
@@ -534,7 +611,23 @@ export function profileMotion(p: TestProfile): ProfileMotion {
     v += powerLawArea(s.f1, s.f2, s.g1 / s.f1 ** 2, s.exponent - 2);
     d += powerLawArea(s.f1, s.f2, s.g1 / s.f1 ** 4, s.exponent - 4);
   }
-  const velocityRms = Math.sqrt((v * toSi) / (4 * Math.PI ** 2));
-  const displacementRms = Math.sqrt((d * toSi) / (16 * Math.PI ** 4));
-  return { velocityRms, displacementRms, displacementPeakToPeak: 6 * displacementRms };
+  let vRandom = (v * toSi) / (4 * Math.PI ** 2);
+  let dRandom = (d * toSi) / (16 * Math.PI ** 4);
+  // A tone of peak A at f: velocity peak A/(2 pi f), displacement peak A/(2 pi f)^2, mean squares half
+  // their squares; they add to the random part's mean squares (uncorrelated). The peak-to-peak stroke is
+  // the random part's 6 sigma plus twice each tone's displacement peak (the peaks can line up).
+  const toneSi = Math.sqrt(toSi);
+  let tonesPeakToPeak = 0;
+  for (const t of p.tones ?? []) {
+    const w = 2 * Math.PI * t.hz;
+    const vp = (t.peak * toneSi) / w;
+    const dp = (t.peak * toneSi) / (w * w);
+    vRandom += (vp * vp) / 2;
+    dRandom += (dp * dp) / 2;
+    tonesPeakToPeak += 2 * dp;
+  }
+  const randomDisp = Math.sqrt((d * toSi) / (16 * Math.PI ** 4));
+  const velocityRms = Math.sqrt(vRandom);
+  const displacementRms = Math.sqrt(dRandom);
+  return { velocityRms, displacementRms, displacementPeakToPeak: 6 * randomDisp + tonesPeakToPeak };
 }

@@ -27,31 +27,38 @@ export class RainflowCounter {
   private dir = 0;
   private damage = 0;
   private readonly b: number;
+  /** b when it is a whole number from 1 to 64 (powers by squaring, several times faster than Math.pow), else 0. */
+  private readonly bInt: number;
   private readonly record: RainflowCycle[] | undefined;
 
   /** `basquinB` sets the damage exponent; `keepCycles` keeps the list of cycles (tests, small records). */
   constructor(basquinB: number, keepCycles = false) {
     this.b = basquinB;
+    this.bInt = Number.isInteger(basquinB) && basquinB >= 1 && basquinB <= 64 ? basquinB : 0;
     this.record = keepCycles ? [] : undefined;
   }
 
   /** Samples x[0..count). Non-finite samples are skipped. */
   push(x: Float64Array | readonly number[], count = x.length): void {
+    // Locals in the loop (this is the hot path of the time-domain damage: every sample of every natural frequency).
+    let last = this.last;
+    let dir = this.dir;
     for (let i = 0; i < count; i++) {
       const v = x[i]!;
-      if (!Number.isFinite(v)) continue;
-      if (Number.isNaN(this.last)) {
-        this.last = v;
+      if (v - v !== 0) continue; // NaN or infinite
+      if (last !== last) {
+        last = v;
         continue;
       }
-      if (v === this.last) continue;
-      const d = v > this.last ? 1 : -1;
-      // A reversal makes the previous sample a turning point (the first sample is always one).
-      if (this.dir === 0) this.point(this.last);
-      else if (d !== this.dir) this.point(this.last);
-      this.dir = d;
-      this.last = v;
+      if (v === last) continue;
+      const d = v > last ? 1 : -1;
+      // A reversal makes the previous sample a turning point (the first sample is always one: dir starts at 0).
+      if (d !== dir) this.point(last);
+      dir = d;
+      last = v;
     }
+    this.last = last;
+    this.dir = dir;
   }
 
   private point(p: number): void {
@@ -66,27 +73,37 @@ export class RainflowCounter {
       }
     }
     const st = this.stack;
-    st[this.head + this.size] = p;
-    this.size++;
-    while (this.size >= 3) {
-      const e = this.head + this.size - 1;
+    let head = this.head;
+    let size = this.size + 1;
+    st[head + size - 1] = p;
+    const b = this.b;
+    const bInt = this.bInt;
+    const keep = this.record !== undefined;
+    let damage = this.damage;
+    while (size >= 3) {
+      const e = head + size - 1;
       const x = Math.abs(st[e]! - st[e - 1]!);
       const y = Math.abs(st[e - 1]! - st[e - 2]!);
       if (x < y) break;
-      if (e - 2 === this.head) {
-        this.count(y, 0.5);
-        this.head++;
-        this.size--;
+      if (e - 2 === head) {
+        damage += 0.5 * (bInt > 0 ? powInt(y / 2, bInt) : Math.pow(y / 2, b));
+        if (keep) this.record!.push({ range: y, count: 0.5 });
+        head++;
+        size--;
       } else {
-        this.count(y, 1);
+        damage += bInt > 0 ? powInt(y / 2, bInt) : Math.pow(y / 2, b);
+        if (keep) this.record!.push({ range: y, count: 1 });
         st[e - 2] = st[e]!;
-        this.size -= 2;
+        size -= 2;
       }
     }
+    this.head = head;
+    this.size = size;
+    this.damage = damage;
   }
 
   private count(range: number, weight: number): void {
-    this.damage += weight * Math.pow(range / 2, this.b);
+    this.damage += weight * (this.bInt > 0 ? powInt(range / 2, this.bInt) : Math.pow(range / 2, this.b));
     this.record?.push({ range, count: weight });
   }
 
@@ -104,4 +121,17 @@ export class RainflowCounter {
   cycles(): RainflowCycle[] {
     return this.record ?? [];
   }
+}
+
+/** x^n for a whole n >= 1 by repeated squaring (within a few ulp of Math.pow). */
+function powInt(x: number, n: number): number {
+  let r = 1;
+  let p = x;
+  let e = n;
+  while (e > 0) {
+    if (e & 1) r *= p;
+    p *= p;
+    e >>= 1;
+  }
+  return r;
 }

@@ -47,3 +47,23 @@ export class RealFft {
 export function isPowerOfTwo(n: number): boolean {
   return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
 }
+
+/** Complex forward transform (fft.js `transform`) of an interleaved (re, im) sequence, unnormalised, e^(-i...) convention. */
+export class ComplexFft {
+  readonly size: number;
+  private readonly fft: FFT;
+  private readonly out: Float64Array;
+
+  constructor(size: number) {
+    if (!isPowerOfTwo(size)) throw new RangeError(`FFT size must be a power of two >= 2, got ${size}`);
+    this.size = size;
+    this.fft = new FFT(size);
+    this.out = new Float64Array(2 * size);
+  }
+
+  /** Interleaved bins 0..N-1 (re, im), valid until the next call; `input` interleaved, length 2N. */
+  forward(input: Float64Array): Float64Array {
+    this.fft.transform(this.out, input);
+    return this.out;
+  }
+}

@@ -73,6 +73,17 @@ function dtftPower(v: Float64Array, delta: number): number {
 }
 
 /**
+ * The kernel's density at an offset of `deltaBins` from a line, in bins: h(delta) = |W(delta)|^2 / (N sum w^2),
+ * which sums to 1 over the lines k - delta of a periodic window (Parseval). A tone of power A^2/2 at an
+ * offset delta from line k puts E[P_k] df = (A^2/2) h(delta) on that line (Percival & Walden 1993, sec. 6.3).
+ */
+export function kernelDensityAt(window: Float64Array, deltaBins: number): number {
+  let sumW2 = 0;
+  for (let i = 0; i < window.length; i++) sumW2 += window[i]! * window[i]!;
+  return dtftPower(window, deltaBins) / (window.length * sumW2);
+}
+
+/**
  * The kernel of a window (by name, for the cache) and segment length under a detrend mode. Costs one
  * DTFT per sub-bin sample; cached, so a batch of recordings pays once.
  */

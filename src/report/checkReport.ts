@@ -9,7 +9,7 @@ import type { TestMeta } from "../read/testMeta.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
 import { printable } from "./printable.js";
-import { excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
+import { excursionJudgement, RULE_SUMMARY, ruleLine, TONE_RULE, VERDICT_MEANING } from "./ruleText.js";
 
 export type { CheckResult };
 
@@ -28,7 +28,7 @@ export function unjudgedText(c: ChannelCompliance): string {
     un.detrend ? `${un.detrend} line(s) biased by detrending` : "",
     un.aboveRecord ? `${un.aboveRecord} line(s) above the record's Nyquist frequency` : "",
     un.notch ? `${un.notch} line(s) in a steep notch near the profile's ends (the kernel cannot say what they should show)` : "",
-    un.excluded ? `${un.excluded} line(s) left out by the caller (e.g. sine tones)` : "",
+    un.excluded ? `${un.excluded} line(s) ${c.tones?.length ? "occupied by the tones (judged as tones)" : "left out by the caller"}` : "",
   ].filter(Boolean).join(", ");
 }
 
@@ -40,6 +40,13 @@ function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string
   out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
   out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
   out.push(`  rule       ${ruleLine(c)}`);
+  for (const t of c.tones ?? []) {
+    if (t.unseen) {
+      out.push(`  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, not seen (at or above the record's Nyquist frequency)`);
+      continue;
+    }
+    out.push(`  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, peak ${sig(t.measuredPeak, 4)} ${u} at ${sig(t.measuredHz, 7)} Hz (required ${sig(t.requiredPeak, 4)}, limits ${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)} ${u}, ±${sig(t.toleranceHz, 3)} Hz; ${signedDb(t.deviationDb)}, sd ${sig(t.peakSd, 2)} ${u})`);
+  }
   const un = unjudgedText(c);
   if (un) out.push(`  unjudged   ${un}`);
   const shown = worstFirst(c.excursions).slice(0, 8);
@@ -58,7 +65,7 @@ export function checkText(r: CheckResult, version: string): string {
     `psdgate ${version}: check of ${printable(a.input.file)} against "${printable(p.title)}"`,
     ...recordingLines(a),
     `  profile    ${printable(p.file)}, sha256 ${p.sha256}`,
-    `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS; tolerance ${toleranceSummary(p)}`,
+    `             ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz, ${sig(p.rms, 4)} ${accelLabel(p.units)} RMS${p.tones.length > 0 ? ` random, ${p.tones.length} tone(s), ${sig(p.totalRms, 4)} ${accelLabel(p.units)} RMS total` : ""}; tolerance ${toleranceSummary(p)}`,
     ...p.defaultsApplied.map((d) => `             default: ${d}`),
     ...(p.provenance ? [`             profile ${printable(provenanceSummary(p)!)}`] : []),
     settingsLine(a),
@@ -83,7 +90,7 @@ export function checkText(r: CheckResult, version: string): string {
     }
     out.push(...findingLines(ch).filter((l) => !l.startsWith("  DOUBT")), "");
   });
-  out.push(`RULE: ${RULE_SUMMARY}`, "", `CAUTION: ${VERDICT_CAUTION}`, "");
+  out.push(`RULE: ${RULE_SUMMARY}`, ...(p.tones.length > 0 ? ["", `TONES: ${TONE_RULE}`] : []), "", `CAUTION: ${VERDICT_CAUTION}`, "");
   return out.join("\n");
 }
 
@@ -98,6 +105,12 @@ function judgementJson(c: ChannelCompliance) {
     unjudged: c.unjudged,
     excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null, secondsToShow: e.secondsToShow ?? null })),
     decide: c.decide ? { probability: c.decide.probability, dof: c.decide.dof ?? null, seconds: c.decide.seconds ?? null, likely: c.decide.likely ?? null } : null,
+    // Mixed mode: each required tone (empty for a random-only profile).
+    tones: (c.tones ?? []).map((t) => ({
+      name: t.name, hz: t.hz, requiredPeak: t.requiredPeak, measuredPeak: finiteOrNull(t.measuredPeak), lowerPeak: t.lowerPeak, upperPeak: t.upperPeak, verdict: t.verdict,
+      measuredHz: finiteOrNull(t.measuredHz), toleranceHz: t.toleranceHz, deviationDb: finiteOrNull(t.deviationDb), status: t.status, shown: t.shown, peakSd: finiteOrNull(t.peakSd), frequencySd: finiteOrNull(t.frequencySd),
+      backgroundDensity: finiteOrNull(t.backgroundDensity), linesFromHz: t.linesFromHz, linesToHz: t.linesToHz, testLevel: t.testLevel, falseFailRate: t.falseFailRate,
+    })),
     lines: {
       frequencyHz: c.lines.map((l) => l.frequencyHz),
       measured: c.lines.map((l) => finiteOrNull(l.measured)),
@@ -123,10 +136,11 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
       file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null,
       resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
       provenance: p.provenance ?? null, origin: provenanceSummary(p) ?? null,
+      tones: p.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, upperDb: t.upperDb, lowerDb: t.lowerDb, toleranceHz: t.toleranceHz })), totalRms: p.totalRms,
     },
     settings: settingsJson(a),
     analysis: a.analysis,
-    rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict] },
+    rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict], ...(p.tones.length > 0 ? { tones: TONE_RULE } : {}) },
     control: r.control ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) } : null,
     channels: r.channels.map((c, i) => {
       const ch = a.channels[i]!;

@@ -45,11 +45,16 @@ export function deriveJson(r: DeriveResult, version: string) {
     extremeLimit: r.extremeLimit,
     extremeWarningsHz: r.extremeWarnings,
     fit: r.fit,
+    shocks: {
+      rule: "each recording's shock response spectrum (maximax absolute acceleration, whole record, mean removed; ramp-invariant filters as psdgate shock) at the same Q; fieldSrs is the largest over the recordings, null above a recording's fs/4; events at 6 x the background r.m.s., hold 0.05 s; largestEvents[].recording and eventsPerRecording[] follow the order of recordings",
+      fieldSrs: arr(r.shocks.fieldSrs), shortfallHz: r.shocks.shortfallHz, largestEvents: r.shocks.largestEvents, eventsPerRecording: r.shocks.eventsPerRecording,
+    },
     compression: { ...r.compression, rule: "flat spectrum: G_test = G_field (T_field / T_test)^(2/b) (equal narrow-band damage; ../shared/REFERENCES.md sec. 14)" },
     groups: r.groups.map((g) => ({ name: g.name, serviceS: g.serviceS, damageShare: arr(g.damageShare) })),
     recordings: r.recordings.map((x) => ({
       file: x.file, sha256: x.sha256, group: x.group, channel: x.channel, durationS: x.durationS, serviceS: x.serviceS, sampleRateHz: x.sampleRateHz, dof: x.dof, averages: x.averages,
       bandRms: x.bandRms, stationary: x.stationary ?? null, stationarityNote: x.stationarityNote ?? null, fatigue: arr(x.damage), extreme: arr(x.extreme),
+      ...(x.fromPsd ? { fatigueFromPsd: arr(x.fromPsd.damage), extremeFromPsd: arr(x.fromPsd.extreme), kurtosis: x.fromPsd.kurtosis } : {}),
     })),
     field: {
       frequencyHz: arr(r.frequencyHz),
@@ -64,6 +69,7 @@ export function deriveJson(r: DeriveResult, version: string) {
     motion: { velocityRmsMs: r.motion.velocityRms, displacementRmsM: r.motion.displacementRms, displacementPeakToPeakM: r.motion.displacementPeakToPeak, rule: "closed form over the profile's band; peak-to-peak 6 x RMS (±3 sigma), common practice" },
     stroke: r.stroke ?? null,
     notes: r.notes,
+    candidateTones: r.candidateTones,
     caution: DERIVE_CAUTION,
   };
 }
@@ -96,10 +102,13 @@ export function deriveText(r: DeriveResult, version: string, outFile: string): s
     `  stroke     ${r.stroke ? `${fixed(r.stroke.estimateMm, 2)} mm against ${sig(r.stroke.ratedMm, 4)} mm rated: ${r.stroke.withinRating ? `within the rating (margin x${fixed(r.stroke.margin, 2)})` : `EXCEEDS the rating by ${fixed(100 * (1 / r.stroke.margin - 1), 0)} %`}` : "not checked: give the exciter's rated peak-to-peak stroke with --stroke-mm"}`,
     `  coverage   test FDS / field FDS ≥ ${fixed(r.fit.minRatio, 4)} everywhere (lowest at ${sig(r.fit.minRatioHz, 4)} Hz); median ${fixed(r.fit.medianRatio, 3)}, largest ${fixed(r.fit.maxRatio, 3)} (the over-test the fit leaves)`,
     `  compression flat case G_test = G_field (T_field / T_test)^(2/b) = ×${sig(r.compression.flatFactor, 4)} in level; this profile's RMS is ×${sig(r.compression.rmsRatio, 4)} the mean field's (×${sig(r.compression.rmsRatio ** 2, 4)} in power)`,
+    `  shocks     ${r.shocks.eventsPerRecording.reduce((s, x) => s + x, 0)} event(s) in the field recordings${r.shocks.largestEvents.length ? ` (largest ${r.shocks.largestEvents[0]!.peak >= 0 ? "+" : ""}${sig(r.shocks.largestEvents[0]!.peak, 4)} ${u} at ${fixed(r.shocks.largestEvents[0]!.timeS, 3)} s in ${printable(r.recordings[r.shocks.largestEvents[0]!.recording]!.file)})` : ""}; ` +
+      (r.shocks.shortfallHz.length ? `the test's largest response falls below the field's SRS at ${r.shocks.shortfallHz.length} natural frequencies: a shock test is needed (NOTE below)` : "the test's largest response reaches the field's SRS at every natural frequency"),
     `  extremes   test ERS / field ERS from ${fixed(Math.min(...r.extremeRatio), 3)} to ${fixed(Math.max(...r.extremeRatio), 3)}; limit ×${r.extremeLimit}${r.extremeWarnings.length ? `: EXCEEDED at ${r.extremeWarnings.length} natural frequencies (! below)` : ": not exceeded"}`,
     "",
     table(grid),
     "",
+    ...r.candidateTones.map((t) => `TONE: ${printable(t.file)}: ${sig(t.frequencyHz, 6)} Hz, ${sig(t.peak, 3)} peak, ${fixed(t.aboveBackgroundDb, 1)} dB above the lines around it (a candidate for the lab profile's tones)`),
     ...r.notes.map((n) => `NOTE: ${printable(n)}`),
     ...(r.notes.length ? [""] : []),
     `CAUTION: ${DERIVE_CAUTION}`,

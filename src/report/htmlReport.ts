@@ -6,7 +6,7 @@ import { VERDICT_CAUTION } from "./cautions.js";
 import type { CheckResult } from "../checkRecording.js";
 import { checkJson } from "./checkReport.js";
 import { embedResult } from "./embeddedResult.js";
-import { decideLine, excursionJudgement, RULE_SUMMARY, ruleLine, VERDICT_MEANING } from "./ruleText.js";
+import { decideLine, excursionJudgement, RULE_SUMMARY, ruleLine, TONE_RULE, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import { qty, reportOpening, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
@@ -44,6 +44,16 @@ function shortJudgement(e: Excursion): string {
   return `not shown${e.longerRecordFactor ? ` (${e.secondsToShow !== undefined ? `${fixed(e.secondsToShow, 1)} s, ` : ""}${fixed(e.longerRecordFactor, 1)}x as long, shows it at 90 %)` : ""}`;
 }
 
+/** Mixed mode: each required tone, its fit and its verdict. */
+function toneTable(comp: ChannelCompliance, u: string, n: number): string {
+  const tones = comp.tones ?? [];
+  if (tones.length === 0) return "";
+  const rows = tones.map((t) => `<tr><td>${esc(t.name)}</td><td class="num">${sig(t.hz, 6)} ± ${sig(t.toleranceHz, 3)}</td><td class="num">${t.unseen ? "not seen" : sig(t.measuredHz, 7)}</td><td class="num">${sig(t.requiredPeak, 4)} (${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)})</td><td class="num">${t.unseen ? "above Nyquist" : `${sig(t.measuredPeak, 4)} ± ${sig(t.peakSd, 2)}`}</td><td class="num">${t.unseen ? "" : esc(signedDb(t.deviationDb))}</td><td><span class="chip ${t.verdict}">${VERDICT_TEXT[t.verdict].word}</span>${t.status !== "within" ? ` ${esc(t.status)}` : ""}</td></tr>`).join("");
+  return `<h3>Tones</h3>
+<p>Each tone's peak is a least-squares sine fit over the whole record at the frequency that maximises its periodogram; ± is its standard deviation √(G/T) on the background around it. Its lines (${tones.map((t) => `${sig(t.linesFromHz, 5)}–${sig(t.linesToHz, 5)} Hz`).join(", ")}) are left out of the background's judgement. Each tone's false-fail rate is at most ${sig(100 * tones[0]!.falseFailRate, 2)} % (the tones share 1 % of the 5 %).</p>
+<table class="tones grid" id="tones-${n}"><thead><tr><th>tone</th><th class="num">Hz required</th><th class="num">Hz measured</th><th class="num">peak required (limits), ${esc(u)}</th><th class="num">peak measured, ${esc(u)}</th><th class="num">deviation</th><th>verdict</th></tr></thead><tbody>${rows}</tbody></table>`;
+}
+
 function excursionTable(list: Excursion[], linesChecked: number, id: string): string {
   if (list.length === 0) return `<p>No line lies outside its tolerance band (${linesChecked} lines checked).</p>`;
   const rows = worstFirst(list).map((e) => `<tr${e.shown ? ' class="shown-row"' : ""}><td>${range(e)} (${e.direction}, ${e.lines} line${e.lines === 1 ? "" : "s"})</td><td class="num">${esc(signedDb(e.worstDb))} at ${qty(sig(e.worstHz, 5), "Hz")}</td><td class="num">${esc(signedDb(e.limitDb))}</td><td>${esc(shortJudgement(e))}</td></tr>`).join("");
@@ -79,6 +89,12 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const vals: number[] = [];
   // The y range follows the profile's band and the record inside it; the rest is clipped.
   for (let k = 0; k < f.length; k++) if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
+  // Mixed mode: each tone marked on the measured PSD's highest line within its lines, with its required and measured peak.
+  const tonePeaks = (comp.tones ?? []).map((t) => {
+    let best = -1;
+    for (let k = 0; k < f.length; k++) if (f[k]! >= t.linesFromHz && f[k]! <= t.linesToHz && (best < 0 || c.psd.psd[k]! > c.psd.psd[best]!)) best = k;
+    return { x: best >= 0 ? f[best]! : t.hz, y: best >= 0 ? c.psd.psd[best]! : NaN, id: `tone-${sig(t.hz, 6)}`, text: `${sig(t.hz, 5)} Hz: ${sig(t.requiredPeak, 3)} required, ${sig(t.measuredPeak, 3)} ${u} peak measured` };
+  });
   const oy = outerLines.flatMap((l) => [l.required * 10 ** (l.outerUpperDb! / 10), l.required * 10 ** (-l.outerLowerDb! / 10)]);
   const ymin = minOf(vals, dn, up, oy) / 3;
   const ymax = maxOf(vals, dn, up, oy) * 3;
@@ -93,7 +109,9 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
       { id: "required", label: "required", x: reqX, y: reqY, className: "required" },
       { id: "measured", label: "measured", x: f, y: c.psd.psd, className: "measured" },
       ...(shownLines.length > 0 ? [{ id: "shown", label: "line shown outside", x: shownLines.map((l) => l.frequencyHz), y: shownLines.map((l) => l.measured), className: "shown", markers: true }] : []),
+      ...(tonePeaks.length > 0 ? [{ id: "tones", label: "tone", x: tonePeaks.map((t) => t.x), y: tonePeaks.map((t) => t.y), className: "tone", markers: true }] : []),
     ],
+    notes: tonePeaks.map((t) => ({ x: t.x, y: t.y, text: t.text, id: t.id })),
   });
   const devs = comp.lines.map((l) => l.deviationDb);
   const dmax = maxOf([6], comp.lines.map((l) => l.upperDb + 1), outerLines.map((l) => Math.max(l.outerUpperDb!, l.outerLowerDb!) + 1), devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
@@ -138,6 +156,7 @@ ${row("Minimum / maximum", `${sig(s.min, 4)} / ${qty(sig(s.max, 4), u)}`, "num")
 ${row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num")}
 ${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num")}
 </table>
+${toneTable(comp, u, n)}
 <h3>Excursions</h3>${excursionTable(comp.excursions, comp.lines.length, `excursions-${n}`)}
 ${hist}
 ${c.warnings.length ? `<p class="muted">Notes: ${c.warnings.map(esc).join("; ")}</p>` : ""}
@@ -222,7 +241,7 @@ ${p.provenance ? row("Profile origin", `profile ${esc(provenanceSummary(p)!)}`) 
 ${r.control ? controlSection(r) : ""}
 ${a.channels.map((c, i) => channelSection(c, r.channels[i]!, r, i + 1, r.roles[i]!)).join("\n")}
 <h2>Decision rule</h2>
-<p id="rule">${esc(RULE_SUMMARY)}</p>
+<p id="rule">${esc(RULE_SUMMARY)}</p>${r.profile.tones.length > 0 ? `\n<p id="tone-rule">${esc(TONE_RULE)}</p>` : ""}
 <h2>Caution</h2>
 <div class="caution">${esc(VERDICT_CAUTION)}</div>
 ${signOff(`<strong>${v.word}</strong>: ${esc(VERDICT_MEANING[r.verdict])}.`, [

@@ -28,6 +28,21 @@ export function provenanceParameters(p: TestProfile): string[] {
   return Object.entries(p.provenance?.parameters ?? {}).map(([k, v]) => `${k} ${v === null ? "none" : String(v)}`);
 }
 
+/** The shaker caution, saying how the stroke was estimated when the profile has tones. */
+function shakerCaution(p: TestProfile): string {
+  return p.tones.length === 0 ? SHAKER_CAUTION : SHAKER_CAUTION.replace("(peak-to-peak taken as 6 x RMS, a ±3 sigma excursion: common practice)", "(peak-to-peak taken as 6 x the random part's RMS, a ±3 sigma excursion: common practice, plus twice each tone's displacement peak, since the peaks can line up)");
+}
+
+/** The tones of a mixed-mode profile and the total RMS (random plus the sum of peak^2 / 2). */
+function toneLines(p: TestProfile): string[] {
+  if (p.tones.length === 0) return [];
+  const u = accelLabel(p.units);
+  return [
+    ...p.tones.map((t) => `  tone       ${sig(t.hz, 6)} Hz ± ${sig(t.toleranceHz, 3)} Hz, ${sig(t.peak, 5)} ${u} peak (+${sig(t.upperDb, 3)}/-${sig(t.lowerDb, 3)} dB)${t.label !== `tone at ${t.hz} Hz` ? `: ${printable(t.label)}` : ""}`),
+    `  total      ${sig(p.totalRms, 5)} ${u} RMS, random and tones (each tone adds peak²/2 to the mean square)`,
+  ];
+}
+
 export function profileText(p: TestProfile, version: string): string {
   const u = accelLabel(p.units);
   const m = profileMotion(p);
@@ -42,9 +57,10 @@ export function profileText(p: TestProfile, version: string): string {
     "",
     table(rows),
     "",
-    `  overall    ${sig(p.rms, 5)} ${u} RMS over ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz`,
+    `  ${p.tones.length > 0 ? "random " : "overall"}    ${sig(p.rms, 5)} ${u} RMS over ${sig(p.breakpoints[0]!.hz)}–${sig(p.breakpoints[p.breakpoints.length - 1]!.hz)} Hz`,
+    ...toneLines(p),
     `  velocity   ${sig(m.velocityRms * 1000, 4)} mm/s RMS`,
-    `  stroke     ${sig(m.displacementRms * 1000, 4)} mm RMS displacement, ${sig(m.displacementPeakToPeak * 1000, 4)} mm peak-to-peak estimate (6 x RMS)`,
+    `  stroke     ${sig(m.displacementRms * 1000, 4)} mm RMS displacement, ${sig(m.displacementPeakToPeak * 1000, 4)} mm peak-to-peak estimate (${p.tones.length > 0 ? "6 x the random part's RMS plus twice each tone's peak" : "6 x RMS"})`,
     `  tolerance  ${toleranceSummary(p)}`,
     ...(p.resolutionHz !== undefined ? [`  analysis   ${p.resolutionHz} Hz resolution`] : []),
     ...(p.durationS !== undefined ? [`  duration   ${p.durationS} s`] : []),
@@ -56,7 +72,7 @@ export function profileText(p: TestProfile, version: string): string {
       ...p.provenance.inputs.map((i) => `  input      ${printable(i.file)}${i.group ? ` [${printable(i.group)}]` : ""}${i.serviceHours !== undefined ? ` ${sig(i.serviceHours, 5)} h of service` : ""}, sha256 ${i.sha256}`),
     ] : []),
     "",
-    `CAUTION: ${SHAKER_CAUTION}`,
+    `CAUTION: ${shakerCaution(p)}`,
     "",
   ].join("\n");
 }
@@ -72,15 +88,17 @@ export function profileJson(p: TestProfile, version: string) {
     points: p.breakpoints.map((b, i) => ({ hz: b.hz, level: b.level, slopeDbPerOctave: p.segments[i]?.slopeDbPerOctave ?? null, area: p.segments[i]?.area ?? null })),
     rms: p.rms,
     rmsUnits: p.units === "g" ? "g" : "m/s2",
+    tones: p.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, upperDb: t.upperDb, lowerDb: t.lowerDb, toleranceHz: t.toleranceHz })),
+    totalRms: p.totalRms,
     velocityRms: { value: m.velocityRms, units: "m/s" },
     displacementRms: { value: m.displacementRms, units: "m" },
-    displacementPeakToPeak: { value: m.displacementPeakToPeak, units: "m", rule: "6 x RMS (±3 sigma), common practice" },
+    displacementPeakToPeak: { value: m.displacementPeakToPeak, units: "m", rule: p.tones.length > 0 ? "6 x the random part's RMS (±3 sigma, common practice) plus twice each tone's displacement peak" : "6 x RMS (±3 sigma), common practice" },
     tolerance: { bands: p.bands, rmsDb: p.rmsToleranceDb ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null },
     defaultsApplied: p.defaultsApplied,
     minDof: p.minDof ?? null,
     resolutionHz: p.resolutionHz ?? null,
     durationS: p.durationS ?? null,
     provenance: p.provenance ?? null,
-    caution: SHAKER_CAUTION,
+    caution: shakerCaution(p),
   };
 }

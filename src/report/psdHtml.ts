@@ -33,13 +33,20 @@ function channelSection(c: ChannelAnalysis, a: RecordingAnalysis, n: number): st
   // The floor stops 10 decades under the top, so a roll-off to nothing does not squash the plot.
   for (let k = 0; k < f.length; k++) if (f[k]! >= lo && f[k]! <= hi && c.psd.lower[k]! > top * 1e-10) bottom = Math.min(bottom, c.psd.lower[k]!);
   if (!(top > 0) || !Number.isFinite(bottom)) { top = 1; bottom = 1e-6; }
+  // Candidate tones (lines far above their neighbours), marked at their line with their peak amplitude.
+  const toneMarks = c.tones.map((t) => {
+    const k = Math.min(f.length - 1, Math.max(0, Math.round(t.frequencyHz / c.psd.lineSpacingHz)));
+    return { x: f[k]!, y: c.psd.psd[k]!, text: `${sig(t.frequencyHz, 5)} Hz: ${sig(t.peak, 3)} ${u} peak`, id: `tone-${sig(t.frequencyHz, 6)}` };
+  });
   const plot = svgPlot({
     id: `psd-${n}`, title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
     xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(c.units)})`, xDomain: [lo, hi], yDomain: [bottom / 2, top * 2], yLog: true, xMarks: c.band ? [lo, hi] : [],
     series: [
       { id: "confidence", label: "confidence band", x: f, y: c.psd.lower, y2: c.psd.upper, className: "band" },
       { id: "measured", label: "measured PSD", x: f, y: c.psd.psd, className: "measured" },
+      ...(toneMarks.length > 0 ? [{ id: "tones", label: "candidate tone", x: toneMarks.map((t) => t.x), y: toneMarks.map((t) => t.y), className: "tone", markers: true }] : []),
     ],
+    notes: toneMarks,
   });
   const pv = c.parseval;
   const p = c.psd;
@@ -58,6 +65,7 @@ ${c.band ? row(`RMS from the PSD over ${sig(c.band.fminHz)}–${sig(c.band.fmaxH
 ${row("Averages / degrees of freedom", `${p.averages}${p.skippedSegments ? ` (${p.skippedSegments} segments skipped)` : ""} / ${fixed(p.dof, 1)}`, "num")}
 ${row("Random error of one line", `±${fixed(100 * p.randomError, 1)} % (1 σ)`, "num")}
 ${bounds ? row(`${fixed(100 * a.settings.confidence, 0)} % bounds of a line`, `${fixed(dB(bounds.lower), 2)} / +${fixed(dB(bounds.upper), 2)} dB`, "num") : ""}
+${c.tones.length ? row("Candidate tones (lines far above their neighbours; peak from the window's kernel)", esc(c.tones.map((t) => `${sig(t.frequencyHz, 6)} Hz ${sig(t.peak, 3)} ${u} peak (+${fixed(t.aboveBackgroundDb, 1)} dB)`).join(", "))) : ""}
 ${c.peaks.length ? row("Strongest peaks", esc(c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ") + ` ${densityLabel(c.units)}`)) : ""}
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${qty(sig(s.std, 4), u)}`, "num")}
 ${row("Minimum / maximum", `${sig(s.min, 4)} / ${qty(sig(s.max, 4), u)}`, "num")}

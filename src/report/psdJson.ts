@@ -74,6 +74,8 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
       windowedMeanSquare: finiteOrNull(c.psd.windowedMeanSquare),
       band: c.band ? { fminHz: c.band.fminHz, fmaxHz: c.band.fmaxHz, rms: finiteOrNull(c.band.rms) } : null,
       peaks: c.peaks,
+      tones: c.tones,
+      ...(c.peakHold ? { peakHold: { stretchS: c.peakHold.stretchS, stretches: c.peakHold.stretches, averagesPerStretch: c.peakHold.averagesPerStretch, psd: arr(c.peakHold.psd), atS: arr(c.peakHold.atS) } } : {}),
       stats: statsJson(c),
       stationarity: stationarityJson(c.stationarity),
       warnings: c.warnings,

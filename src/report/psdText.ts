@@ -65,6 +65,14 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
   }
   if (c.band) lines.push(`  band       ${sig(c.band.fminHz)}–${sig(c.band.fmaxHz)} Hz: RMS ${sig(c.band.rms)} ${u} from the PSD`);
   if (c.peaks.length > 0) lines.push(`  peaks      ${c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ")} ${du}`);
+  if (c.tones.length > 0) lines.push(`  tones      ${c.tones.map((t) => `${sig(t.frequencyHz, 6)} Hz ${sig(t.peak, 3)} ${u} peak (+${fixed(t.aboveBackgroundDb, 1)} dB)`).join(", ")}: lines standing far above their neighbours, amplitude from the window's kernel (candidates: a narrow resonance can look alike)`);
+  if (c.peakHold && c.peakHold.stretches > 0 && p.averages > 0) {
+    // Where the loudest stretch stands furthest above the whole record's average (lines above 0 Hz).
+    const h = c.peakHold;
+    let k = 1;
+    for (let i = 1; i < h.psd.length; i++) if (p.psd[i]! > 0 && h.psd[i]! / p.psd[i]! > h.psd[k]! / p.psd[k]!) k = i;
+    lines.push(`  peak-hold  largest of ${h.stretches} stretches of ${sig(h.stretchS, 3)} s (${h.averagesPerStretch} averages each) at each line; furthest above the average at ${sig(p.frequencyHz[k]!, 5)} Hz: ${fixed(dB(h.psd[k]! / p.psd[k]!), 1)} dB (the stretch from ${sig(h.atS[k]!, 5)} s); --json holds it line by line`);
+  }
   lines.push(statsLine(c), ...findingLines(c));
   return lines.join("\n");
 }

@@ -65,6 +65,7 @@ table.excursions td:last-child { width: 30%; } table.excursions { font-size: 8.5
 .outer { fill: none; stroke: #7a2a6f; stroke-width: 1.2; stroke-dasharray: 8 3 2 3; }
 .deviation { fill: none; stroke: #1b4f7a; stroke-width: 1.1; }
 .shown { fill: #c0392b; stroke: #111; stroke-width: .6; }
+.tone { fill: #f2c14e; stroke: #111; stroke-width: .6; } .note-tick { stroke: #111; stroke-width: .6; } .note-text { font-size: 9.5px; fill: #111; }
 .bars { fill: #9fb8c8; stroke: #5d7f93; stroke-width: .4; } .gauss { fill: none; stroke: #b0552f; stroke-width: 1.6; stroke-dasharray: 6 3; }
 .caution { border-left: 4px solid #b0552f; padding: 2mm 4mm; background: #fbf3ee; margin: 3mm 0; break-inside: avoid; }
 thead { display: table-header-group; break-inside: avoid; break-after: avoid; } table.grid tbody tr:first-child { break-before: avoid; }
@@ -263,7 +264,7 @@ export function signOff(summary: string, identity: [string, string][]): string {
  * respond, derive): the identity rows from --meta, a sign-off naming the test, the item and every input
  * by short hash, and the embedded result document, one shape for every kind (what `verify` dispatches on).
  */
-export type RecordKind = "check" | "psd" | "ride" | "transfer" | "respond" | "derive" | "batch";
+export type RecordKind = "check" | "psd" | "ride" | "transfer" | "respond" | "derive" | "batch" | "shock";
 
 /** The test identity from --meta as table rows (every key given), or a line saying none was given. */
 export function metaRows(meta: TestMeta | undefined, startTime?: string): string {

@@ -27,9 +27,29 @@ function spectraJson(r: ResponseSpectra) {
     extremePeak: arr(r.extremePeak),
     durationS: r.durationS ?? null,
     fatigueDamage: arr(r.fatigueDamage),
+    ...(r.fromPsd && r.timeDomain
+      ? {
+          fatigueDamageFromPsd: arr(r.fromPsd.fatigueDamage),
+          extremePeakFromPsd: arr(r.fromPsd.extremePeak),
+          timeDomain: {
+            rule: TIME_DOMAIN_RULE, recordS: r.timeDomain.recordS, kurtosis: finiteOrNull(r.timeDomain.kurtosis), recordPeak: arr(r.timeDomain.recordPeak),
+            recordDamage: arr(r.timeDomain.recordDamage), skippedHz: r.timeDomain.skippedHz, coarseHz: r.timeDomain.coarseHz, heldSamples: r.timeDomain.heldSamples,
+          },
+        }
+      : {}),
     needsDuration: r.needsDuration,
+    ...(r.tones ? {
+      tones: r.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, accelPeak: arr(t.accelPeak), relDispPeak: arr(t.relDispPeak) })),
+      totalAccelRms: arr(r.totalAccelRms!),
+      toneRule: "a tone's response is deterministic: its peak x |T(f)| (relative displacement: x |Z/A|). Miles' equation does not apply to tones; milesRms, the rates, extremePeak and fatigueDamage are the random part alone",
+    } : {}),
   };
 }
+
+/** How a recording's fatigueDamage and extremePeak are made (respond --json, the text's legend). */
+export const TIME_DOMAIN_RULE =
+  "from the recording itself: each sample through the SDOF's ramp-invariant filters (Smallwood 1981); damage = Miner's sum of the rainflow cycles (ASTM E1049-85) of K x relative displacement, N S^b = C, times exposure / record length; " +
+  "largest peak = the record's largest |absolute-acceleration response - mean| times Davenport's factor at nu0+ x exposure over the one at nu0+ x record length";
 
 /** The `respond --json` document (README.md, "respond"). */
 export function responseJson(r: ResponseSpectra, version: string, against?: { b: ResponseSpectra; c: ResponseComparison }) {
@@ -103,15 +123,31 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     `  system     Q ${sig(r.q, 4)} (zeta ${sig(1 / (2 * r.q), 3)}), base-driven; exposure ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}; Basquin b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement`,
     "",
   ];
-  const rows = [["fn Hz", `accel RMS ${u}`, `Miles ${u}`, "exact/Miles", "rel. disp. RMS mm", "nu0+ /s", `largest peak ${u}`, "damage"]];
+  const td = r.timeDomain;
+  const psd = r.fromPsd;
+  const num = (x: number, f: (v: number) => string) => (Number.isFinite(x) ? f(x) : "-");
+  const rows = [["fn Hz", `accel RMS ${u}`, `Miles ${u}`, "exact/Miles", "rel. disp. RMS mm", "nu0+ /s", `largest peak ${u}`, "damage", ...(td ? ["peak rec/PSD", "damage rec/PSD"] : [])]];
   for (let i = 0; i < r.fnHz.length; i++) {
     rows.push([
       sig(r.fnHz[i]!, 4), sig(r.accelRms[i]!, 4), Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "-",
       Number.isFinite(r.milesRms[i]!) ? fixed(r.accelRms[i]! / r.milesRms[i]!, 3) : "-", mm(r.relDispRms[i]!), sig(r.upcrossingRateHz[i]!, 4),
-      Number.isFinite(r.extremePeak[i]!) ? sig(r.extremePeak[i]!, 4) : "-", Number.isFinite(r.fatigueDamage[i]!) ? r.fatigueDamage[i]!.toExponential(3) : "-",
+      num(r.extremePeak[i]!, (v) => sig(v, 4)), num(r.fatigueDamage[i]!, (v) => v.toExponential(3)),
+      ...(td && psd ? [num(r.extremePeak[i]! / psd.extremePeak[i]!, (v) => fixed(v, 2)), num(r.fatigueDamage[i]! / psd.fatigueDamage[i]!, (v) => sig(v, 3))] : []),
     ]);
   }
   lines.push(table(rows), "");
+  if (r.tones) {
+    const rowsT = [["fn Hz", ...r.tones.map((t) => `${sig(t.hz, 5)} Hz tone peak ${u}`), `total RMS ${u}`]];
+    for (let i = 0; i < r.fnHz.length; i++) rowsT.push([sig(r.fnHz[i]!, 4), ...r.tones.map((t) => sig(t.accelPeak[i]!, 4)), sig(r.totalAccelRms![i]!, 4)]);
+    lines.push(
+      `  tones      the profile's sine tones (${r.tones.map((t) => `${sig(t.hz, 5)} Hz ${sig(t.peak, 4)} ${u} peak`).join(", ")}): each tone's response is deterministic, its peak x |T(f)|;`,
+      "             Miles' equation does not apply to a tone. The columns above (Miles, rates, largest peak, damage) are the random part alone;",
+      "             total RMS = sqrt(random² + sum of (tone response peak)² / 2). The damage and largest peak of sine plus random together are not computed.",
+      "",
+      table(rowsT),
+      "",
+    );
+  }
   if (r.needsDuration.length > 0) lines.push(`  exposure   not given and the source has none (a profile without durationS, a PSD table): ${r.needsDuration.join(" and ")} need one (--duration); the RMS, Miles, displacement and rates above do not`, "");
   lines.push(
     "  exact      integral of |T|² G (absolute acceleration) and of the relative-displacement transfer over the input, no white-noise assumption.",
@@ -120,13 +156,23 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     ...(s.kind !== "profile"
       ? [`             On a measured PSD Miles reads the one line at fn, which scatters by ${s.settings ? `about ±${fixed(100 * Math.sqrt(2 / s.settings.dof), 0)} % (1 sigma, chi-square)` : "the PSD's random error"}, while the integral averages the lines across the resonance.`]
       : []),
+    ...(td
+      ? [
+          `  recording  largest peak and damage come from the record itself (${sig(td.recordS, 5)} s, kurtosis ${fixed(td.kurtosis, 2)}; 3 for a Gaussian record): the SDOF filtered in time, its largest`,
+          "             |response| grown to the exposure by Davenport's factors, the damage by rainflow (ASTM E1049-85) scaled by exposure / record length.",
+          "             rec/PSD compares them with the PSD's Davenport peak and narrow-band damage (in --json as extremePeakFromPsd, fatigueDamageFromPsd):",
+          "             well above 1 where shocks or other non-Gaussian content carry the damage, a little below 1 on a Gaussian record.",
+          ...(td.skippedHz.length ? [`             Not computed in time above fs/4 (${td.skippedHz.map((f) => sig(f, 4)).join(", ")} Hz): shown as -.`] : []),
+          ...(td.coarseHz.length ? [`             Between fs/10 and fs/4 (${td.coarseHz.map((f) => sig(f, 4)).join(", ")} Hz) the sampled peak can fall short by up to 1 - cos(pi fn/fs).`] : []),
+        ]
+      : []),
     "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, by psdgate's own simulation check).",
     "  damage     narrow-band Rayleigh, relative: only ratios at the same b and C mean anything.",
   );
   const m = r.motion;
   lines.push(
     "",
-    `  kinematics ${sig(m.fromHz, 4)}–${sig(m.toHz, 5)} Hz: velocity ${sig(m.velocityRms * 1000, 4)} mm/s RMS, displacement ${mm(m.displacementRms)} mm RMS, peak-to-peak estimate ${mm(m.displacementPeakToPeak)} mm (6 x RMS)`,
+    `  kinematics ${sig(m.fromHz, 4)}–${sig(m.toHz, 5)} Hz${r.tones ? " (random part; `profile` gives velocity and stroke with the tones)" : ""}: velocity ${sig(m.velocityRms * 1000, 4)} mm/s RMS, displacement ${mm(m.displacementRms)} mm RMS, peak-to-peak estimate ${mm(m.displacementPeakToPeak)} mm (6 x RMS)`,
   );
   if (s.kind !== "profile") lines.push("             (the lowest lines dominate the displacement: --fmin sets the band that matters)");
   if (r.stroke) {

@@ -21,6 +21,8 @@ function hours(s: number): string {
   return s >= 3600 ? `${sig(s / 3600, 3)} h` : `${sig(s / 60, 3)} min`;
 }
 
+const arr = (a: Float64Array): (number | null)[] => Array.from(a, finiteOrNull);
+
 export function rideText(r: RideResult, version: string): string {
   const a = r.analysis;
   const out = [`psdgate ${version}: whole-body vibration of ${a.input.file} (${r.posture}, ISO 2631-1 weightings, SI units)`, ...recordingLines(a), settingsLine(a), ""];
@@ -45,6 +47,14 @@ export function rideText(r: RideResult, version: string): string {
   for (const x of r.axes) {
     const s = x.stationarity;
     if (s.tested) out.push(`  ${x.axis} level    ${s.stationary ? "stationary" : "NOT stationary"} by reverse arrangements on ${s.stretches} weighted stretches of ${sig(s.stretchS, 3)} s${s.pooled > 1 ? `, pooled ${s.pooled} at a time` : ""} (A = ${s.reverseArrangements!.statistic}, accepted ${s.reverseArrangements!.acceptAbove} < A <= ${s.reverseArrangements!.acceptAtMost})`);
+  }
+  for (const [c, x] of r.axes.entries()) {
+    const h = x.peakHold;
+    const p = a.channels[c]!.psd;
+    if (!h || h.stretches === 0 || p.averages === 0) continue;
+    let k = 1;
+    for (let i = 1; i < h.psd.length; i++) if (p.psd[i]! > 0 && h.psd[i]! / p.psd[i]! > h.psd[k]! / p.psd[k]!) k = i;
+    out.push(`  ${x.axis} peak-hold largest of ${h.stretches} stretches of ${sig(h.stretchS, 3)} s at each line (unweighted); furthest above the average at ${sig(p.frequencyHz[k]!, 4)} Hz: ${fixed(10 * Math.log10(h.psd[k]! / p.psd[k]!), 1)} dB (the stretch from ${sig(h.atS[k]! + a.window.fromS, 5)} s); --json holds it`);
   }
   out.push(...r.doubts.map((d) => `  DOUBT      ${d}`), ...r.notes.map((n) => `  note       ${n}`));
   out.push("", ...RIDE_CAUTIONS.map((c) => `  caution    ${c}`), "");
@@ -85,6 +95,7 @@ export function rideJson(r: RideResult, version: string) {
       filterMaxErrorAtHz: x.filter.maxErrorAtHz,
       filterTopCentreHz: x.filter.topCentreHz,
       filterMethod: x.filter.method,
+      ...(x.peakHold ? { peakHold: { stretchS: x.peakHold.stretchS, stretches: x.peakHold.stretches, averagesPerStretch: x.peakHold.averagesPerStretch, frequencyHz: arr(a.channels[r.axes.indexOf(x)]!.psd.frequencyHz), psd: arr(x.peakHold.psd), average: arr(a.channels[r.axes.indexOf(x)]!.psd.psd), atS: arr(x.peakHold.atS), units: "(m/s2)2/Hz, unweighted" } } : {}),
     })),
     totalValue: { comfort: finiteOrNull(r.totalValue.comfort), health: finiteOrNull(r.totalValue.health) },
     comfort: { reactions: r.comfort.reactions },

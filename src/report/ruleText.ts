@@ -21,6 +21,13 @@ export const RULE_SUMMARY =
   `A run whose level swings beyond the tolerance over its course (blocks of 1 s stretch mean squares, at most 1 % false doubts on a stationary record) or whose drift holds most of its mean square is not a pass: inconclusive. ` +
   `An inconclusive verdict gives the run length in seconds that would decide it with at least 90 % probability if the spectrum is as measured.`;
 
+/** The mixed-mode part of the rule (profiles with sine tones), in one paragraph. */
+export const TONE_RULE =
+  `With sine tones (mixed mode): the lines each tone occupies through the window's kernel are left out of the background's tests and the RMS is the total (random plus each tone's peak²/2). ` +
+  `Each tone's peak is a least-squares sine fit over the whole record at the frequency that maximises its periodogram, with standard deviation √(G/T) from the background density G around it and the record length T. ` +
+  `A tone is shown low, high or off its frequency when it lies beyond its limit by more than the normal quantile at ${pct(DECISION_RULE.tones)} / (4 × tones) of that deviation; the tones' ${pct(DECISION_RULE.tones)} is taken from the lines' share, so the whole stays at ${pct(DECISION_RULE.falseFailRate)}. ` +
+  `A missing tone, one shown outside its tolerance or off its frequency FAILs by name; a pass needs the power to see a tone ${DECISION_RULE.departureDb} dB beyond its limits with ${pct(DECISION_RULE.power)} probability.`;
+
 /** The rule as it applied to one judged spectrum: its rates at the achieved DOF. */
 export function ruleLine(c: ChannelCompliance): string {
   const r = c.rule;

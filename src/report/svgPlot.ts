@@ -36,6 +36,8 @@ export interface PlotSpec {
   height?: number | undefined;
   /** Frequencies labelled on the x axis besides the 1-2-5 steps (the profile's ends). */
   xMarks?: number[] | undefined;
+  /** Text placed at data points (mixed-mode tones: required and measured peak). */
+  notes?: { x: number; y: number; text: string; id: string }[] | undefined;
 }
 
 const W = 720;
@@ -140,6 +142,13 @@ export function svgPlot(p: PlotSpec): string {
     out.push(`<path class="${s.className}" data-series="${s.id}" data-points="${idx.length}" d="${d ?? ""}"/>`);
   }
   out.push("</g>");
+  for (const t of p.notes ?? []) {
+    if (!inX(t.x) || !ok(t.y)) continue;
+    const px = x(t.x);
+    const py = clampY(t.y);
+    const right = px < W - M.right - 180;
+    out.push(`<g class="plot-note" data-note="${escapeXml(t.id)}"><line class="note-tick" x1="${px.toFixed(1)}" x2="${px.toFixed(1)}" y1="${(py - 4).toFixed(1)}" y2="${Math.max(M.top, py - 16).toFixed(1)}"/><text class="note-text" x="${(px + (right ? 3 : -3)).toFixed(1)}" y="${Math.max(M.top + 10, py - 18).toFixed(1)}" text-anchor="${right ? "start" : "end"}">${escapeXml(t.text)}</text></g>`);
+  }
   // Legend.
   let lx = W - M.right - 8;
   const items = p.series.filter((s) => s.label !== "").reverse();

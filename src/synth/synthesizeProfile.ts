@@ -21,6 +21,11 @@ export interface SynthOptions {
   channels?: number | undefined;
   /** Multiply the profile by this factor in level (10^(dB/10)) before shaping: to make a hot or cold run. */
   levelFactor?: number | undefined;
+  /**
+   * Sine tones added to every channel (sine-on-random): peak * cos(2 pi hz t + phaseRad), t from the first
+   * output sample. The random part is unchanged by them.
+   */
+  tones?: { hz: number; peak: number; phaseRad: number }[] | undefined;
 }
 
 export interface SynthResult {
@@ -119,6 +124,23 @@ async function run(profile: TestProfile, o: SynthOptions, sink: (channels: Float
       continue;
     }
     const n = Math.min(L, total - done);
+    for (const t of o.tones ?? []) {
+      // The phase from the sample index in cycles (exact over long records), then rotated sample by sample.
+      const cyc = (t.hz * done) / fs;
+      const ph = 2 * Math.PI * (cyc - Math.floor(cyc)) + t.phaseRad;
+      const w = (2 * Math.PI * t.hz) / fs;
+      const cw = Math.cos(w);
+      const sw = Math.sin(w);
+      let cr = Math.cos(ph);
+      let ci = Math.sin(ph);
+      for (let i = 0; i < n; i++) {
+        const v = t.peak * cr;
+        for (let c = 0; c < nch; c++) blocks[c]![i] = blocks[c]![i]! + v;
+        const t2 = cr * cw - ci * sw;
+        ci = ci * cw + cr * sw;
+        cr = t2;
+      }
+    }
     for (let c = 0; c < nch; c++) stats[c]!.push(blocks[c]!, n);
     await sink(blocks, n);
     done += n;

@@ -34,6 +34,24 @@ describe("psdgate respond", () => {
     expect(r.stdout).toMatch(/CAUTION: The stroke figure is an estimate/);
     expect(r.stdout).toMatch(/CAUTION: Single-degree-of-freedom estimates/);
   });
+  it("a recording: fatigueDamage and extremePeak from the record itself, the PSD's beside them, the ratio and the kurtosis in the text; a profile keeps the PSD figures", async () => {
+    const j = JSON.parse((await cli("respond", "samples/brackley-ft2-warehouse.csv", "--channel", "z", "--fn", "10,40,160", "--q", "10", "--json")).stdout);
+    for (const k of ["fatigueDamage", "extremePeak", "fatigueDamageFromPsd", "extremePeakFromPsd"]) expect(j[k]).toHaveLength(3);
+    expect(j.timeDomain.kurtosis).toBeGreaterThan(10);
+    expect(j.timeDomain.recordS).toBeCloseTo(30, 6);
+    // The forklift's shocks: the record's damage and largest response above the Gaussian PSD's at every fn.
+    for (let i = 0; i < 3; i++) {
+      expect(j.fatigueDamage[i] / j.fatigueDamageFromPsd[i]).toBeGreaterThan(1);
+      expect(j.extremePeak[i] / j.extremePeakFromPsd[i]).toBeGreaterThan(1);
+      // Exposure = the record: the largest peak is the record's own.
+      expect(j.extremePeak[i]).toBeCloseTo(j.timeDomain.recordPeak[i], 12);
+    }
+    const t = await cli("respond", "samples/brackley-ft2-warehouse.csv", "--channel", "z", "--fn", "10,40,160", "--q", "10", "--duration", "3600");
+    expect(t.stdout).toMatch(/peak rec\/PSD +damage rec\/PSD/);
+    expect(t.stdout).toMatch(/kurtosis \d+\.\d\d; 3 for a Gaussian record/);
+    const p = JSON.parse((await cli("respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "100", "--q", "10", "--json")).stdout);
+    expect(p.fatigueDamageFromPsd).toBeUndefined();
+  });
   it("bad input: one line, a code, exit 2, nothing on stdout", async () => {
     for (const [args, code] of [
       [["samples/profiles/quarry-bend-bracket.yaml", "--fn", "100:50", "--q", "10"], "OPTION_INVALID"],

@@ -232,3 +232,52 @@ describe("parseProfile limits (issue #12)", () => {
     expect(parseProfile("20,0.01\n2000,1e-2\n", "p.csv").breakpoints[1]!.level).toBe(0.01);
   });
 });
+
+describe("mixed-mode profiles (tones)", () => {
+  const flatPts = [{ hz: 10, level: 0.01 }, { hz: 1000, level: 0.01 }];
+  const msgOf = (f: () => unknown) => {
+    try {
+      f();
+    } catch (e) {
+      return { code: (e as InputError).code, message: (e as Error).message };
+    }
+    return undefined;
+  };
+
+  it("a key psdgate does not know is PROFILE_INVALID naming the key, at the top level and inside tones, bands and points", () => {
+    const top = msgOf(() => profile(flatPts, { tone: [{ hz: 50, peak: 1, toleranceDb: 1 }] }));
+    expect(top?.code).toBe("PROFILE_INVALID");
+    expect(top?.message).toMatch(/p\.json: tone: expected a key psdgate knows here \(title, units, points, .*tones.*\), received "tone"/);
+    const inTone = msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: 1, toleranceDb: 1, phase: 0 }] }));
+    expect(inTone?.message).toMatch(/tones\[0\]\.phase.*received "phase"/);
+    const inBand = msgOf(() => parseProfile(JSON.stringify({ title: "t", units: "g2/Hz", points: flatPts, tolerance: { bands: [{ fromHz: 10, toHz: 1000, upperDb: 3, lowerDb: 3, widthDb: 1 }] } }), "p.json"));
+    expect(inBand?.message).toMatch(/tolerance\.bands\[0\]\.widthDb/);
+    expect(msgOf(() => profile([{ hz: 10, level: 0.01, note: "x" }, { hz: 1000, level: 0.01 }]))?.message).toMatch(/points\[0\]\.note/);
+  });
+
+  it("tones: total RMS = sqrt(random^2 + sum peak^2 / 2); velocity and stroke include each tone in closed form", () => {
+    const p = profile(flatPts, { tones: [{ hz: 20, peak: 2, toleranceDb: 1 }, { hz: 200, peak: 1, upperDb: 1, lowerDb: 2, toleranceHz: 1 }] });
+    expect(p.tones.map((t) => [t.hz, t.peak, t.upperDb, t.lowerDb, t.toleranceHz])).toEqual([[20, 2, 1, 1, 0.1], [200, 1, 1, 2, 1]]);
+    // Random 0.01 g^2/Hz over 990 Hz = 9.9 g^2; tones 2 + 0.5 g^2.
+    expect(p.rms).toBeCloseTo(Math.sqrt(9.9), 12);
+    expect(p.totalRms).toBeCloseTo(Math.sqrt(9.9 + 2 + 0.5), 12);
+    const g = 9.80665;
+    const random = profileMotion(profile(flatPts));
+    const m = profileMotion(p);
+    // A sine of peak A at f: velocity peak A/(2 pi f), displacement peak A/(2 pi f)^2 (common practice).
+    const v = (a: number, f: number) => (a * g) / (2 * Math.PI * f);
+    const d = (a: number, f: number) => (a * g) / (2 * Math.PI * f) ** 2;
+    expect(m.velocityRms).toBeCloseTo(Math.sqrt(random.velocityRms ** 2 + v(2, 20) ** 2 / 2 + v(1, 200) ** 2 / 2), 12);
+    expect(m.displacementRms).toBeCloseTo(Math.sqrt(random.displacementRms ** 2 + d(2, 20) ** 2 / 2 + d(1, 200) ** 2 / 2), 12);
+    expect(m.displacementPeakToPeak).toBeCloseTo(6 * random.displacementRms + 2 * d(2, 20) + 2 * d(1, 200), 12);
+    // The sine formula against its known answer: 1 g peak at 10 Hz moves 2.484 mm peak (REFERENCES.md sec. 6).
+    expect(d(1, 10) * 1000).toBeCloseTo(2.484, 3);
+  });
+
+  it("a tone without a tolerance, outside the profile's range, or overlapping another's allowance is PROFILE_INVALID naming it", () => {
+    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: 1 }] }))?.message).toMatch(/tones\[0\].*a tolerance/);
+    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 5, peak: 1, toleranceDb: 1 }] }))?.message).toMatch(/tones\[0\]\.hz.*inside the profile's range/);
+    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: 1, toleranceDb: 1, toleranceHz: 2 }, { hz: 53, peak: 1, toleranceDb: 1, toleranceHz: 2 }] }))?.message).toMatch(/tones\[1\]\.hz.*do not overlap/);
+    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: -1, toleranceDb: 1 }] }))?.code).toBe("PROFILE_INVALID");
+  });
+});

@@ -192,7 +192,7 @@ describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration ch
       tolerance: { bands: [{ fromHz: 20, toHz: 800, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 }, resolutionHz: 5,
     }));
     const out = join(dir, "si-run.wav");
-    expect((await cli("synth", "--profile", prof, "--duration", "20", "--rate", "2048", "--out", out, "--seed", "4")).code).toBe(0);
+    expect((await cli("synth", "--profile", prof, "--duration", "30", "--rate", "2048", "--out", out, "--seed", "4")).code).toBe(0);
     const r = await cli("check", out, "--profile", prof, "--json");
     const j = JSON.parse(r.stdout);
     expect(j.verdict, r.stdout.slice(0, 400)).toBe("pass");
