@@ -21,13 +21,18 @@ const codes = [
   check("kb210-run-short"),
   run(["psd", "samples/tern7-flight.csv", "--resolution", "2", "--fmin", "10", "--fmax", "1500", "--report", "demo-output/tern7-flight-psd.html", "--force"]),
   // A ride: whole-body vibration of the invented Marlow UV-3 recording, with its report.
-  run(["ride", "samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3", "--floor", "4", "--exposure", "8h", "--report", "demo-output/marlow-uv3-ride-report.html", "--force"]),
+  run(["ride", "samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3", "--floor", "4", "--exposure", "8h", "--meta", "samples/marlow-uv3-meta.yaml", "--report", "demo-output/marlow-uv3-ride-report.html", "--force"]),
   run(["verify", "demo-output/kb210-run-resonance-report.html"]),
+  // The Quarry Bend fixture survey: the bracket's frequency response, and what its lab profile does to a single mode.
+  run(["transfer", "samples/quarry-bend-bracket.csv", "--in", "base", "--meta", "samples/quarry-bend-meta.yaml", "--report", "demo-output/quarry-bend-transfer.html", "--force"]),
+  run(["respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "20:1000", "--q", "10", "--stroke-mm", "25", "--meta", "samples/quarry-bend-meta.yaml", "--report", "demo-output/quarry-bend-respond.html", "--force"]),
   // Field to lab: a fatigue-equivalent profile from the invented Corran K7 road recordings and their service mix.
-  run(["derive", "--mix", "samples/corran-k7-mix.yaml", "--test-duration", "1h", "--fmin", "5", "--fmax", "500", "--out", "demo-output/corran-k7-lab.yaml", "--report", "demo-output/corran-k7-derive.html", "--force"]),
+  run(["derive", "--mix", "samples/corran-k7-mix.yaml", "--test-duration", "1h", "--fmin", "5", "--fmax", "500", "--stroke-mm", "51", "--meta", "samples/corran-k7-meta.yaml", "--out", "demo-output/corran-k7-lab.yaml", "--report", "demo-output/corran-k7-derive.html", "--force"]),
+  // Every record re-run by verify.
+  ...["marlow-uv3-ride-report", "quarry-bend-transfer", "quarry-bend-respond", "corran-k7-derive"].map((n) => run(["verify", `demo-output/${n}.html`])),
   // Shocks: the events and shock response spectra of the invented Brackley FT-2 forklift recording, with its record.
   run(["shock", "samples/brackley-ft2-warehouse.csv", "--fn", "5:160:2", "--top", "5", "--report", "demo-output/brackley-ft2-shock.html", "--force"]),
 ];
-const expected = [0, 1, 3, 0, 0, 0, 0, 0];
+const expected = [0, 1, 3, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0];
 console.log(`\nReports written to demo-output/. Exit codes ${codes.join(", ")} (expected ${expected.join(", ")}).`);
 process.exit(codes.every((c, i) => c === expected[i]) ? 0 : 1);

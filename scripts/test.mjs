@@ -11,7 +11,7 @@
 // line "fast set: N tests passed, N failed", so that the one "N passed, N failed" line of the CI log is the
 // total from `--total`.
 import { spawnSync } from "node:child_process";
-import { appendFileSync, mkdtempSync, readFileSync, rmSync } from "node:fs";
+import { appendFileSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 
@@ -73,4 +73,28 @@ try {
 } catch {
   finish(0, 1, 0, r.status || 1);
 }
+const skippedNow = (j.numPendingTests ?? 0) + (j.numTodoTests ?? 0);
+if (skippedNow) explainSkipped(j);
 finish(j.numPassedTests, j.numFailedTests, (j.numPendingTests ?? 0) + (j.numTodoTests ?? 0), r.status ?? 1);
+/**
+ * Before the summary: which tests skipped, why, and the one command that makes them run. Only the browser tests
+ * (Chromium; poppler-utils reads their PDFs back) and the queue tests (PostgreSQL) ever skip, and only outside CI.
+ */
+function explainSkipped(j) {
+  const byFile = new Map();
+  for (const f of j.testResults ?? []) {
+    const n = (f.assertionResults ?? []).filter((a) => a.status === "pending" || a.status === "skipped" || a.status === "todo").length;
+    if (n) byFile.set(f.name.replace(process.cwd() + "/", ""), n);
+  }
+  const has = (cmd) => spawnSync("sh", ["-c", `command -v ${cmd}`]).status === 0;
+  const chromium = existsSync(process.env.CHROMIUM ?? "/usr/bin/chromium");
+  const pg = has("initdb") || (existsSync("/usr/lib/postgresql") && readdirSync("/usr/lib/postgresql").length > 0);
+  const missing = [...(chromium ? [] : ["chromium"]), ...(has("pdftotext") ? [] : ["poppler-utils"]), ...(pg ? [] : ["postgresql"])];
+  console.log("\nSkipped tests (they need system packages this machine lacks):");
+  for (const [file, n] of byFile) {
+    const why = /queue/.test(file) ? "PostgreSQL (initdb, pg_ctl)" : /report/.test(file) ? "Chromium (and poppler-utils to read the PDFs back)" : "a system package";
+    console.log(`  ${file}: ${n} skipped, needs ${why}`);
+  }
+  console.log(missing.length ? `To run them: sudo apt-get install -y ${missing.join(" ")} && npm run test:all` : "To run them: npm run test:all (the packages are present now)");
+  console.log("");
+}

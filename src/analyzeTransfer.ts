@@ -23,8 +23,8 @@ export interface TransferOptions extends WelchOptions {
   csv?: CsvReadOptions | undefined;
   /** Input (reference) channel: name or 1-based position. */
   inputChannel: string;
-  /** Output channels: names or 1-based positions. */
-  outputChannels: string[];
+  /** Output channels: names or 1-based positions (default: every channel but the input). */
+  outputChannels?: string[] | undefined;
   /** Unit of the samples where the file does not say (any spelling parseUnitSpec knows; default g). */
   inputUnits?: string | undefined;
   /** Unit every channel is converted to (default the input channel's), so H is dimensionless. */
@@ -91,7 +91,6 @@ export async function analyzeTransfer(file: string, options: TransferOptions): P
 
 export async function analyzeTransferSource(source: TimeHistorySource, options: TransferOptions): Promise<TransferAnalysis> {
   const { info } = source;
-  if (options.outputChannels.length === 0) throw new InputError("OPTION_MISSING", { option: "outputChannels", expected: "at least one output channel", received: "none" });
   const pick = (option: string, wanted: string[]) => {
     try {
       return selectChannels(info, wanted);
@@ -101,10 +100,13 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
     }
   };
   const [inIdx] = pick("inputChannel", [options.inputChannel]);
-  const outIdx = pick("outputChannels", options.outputChannels);
+  const outIdx = options.outputChannels !== undefined && options.outputChannels.length > 0
+    ? pick("outputChannels", options.outputChannels)
+    : info.channels.map((_, i) => i).filter((i) => i !== inIdx);
+  if (outIdx.length === 0) throw new InputError("OPTION_MISSING", { file: info.file, option: "outputChannels", expected: "an output channel besides the input (the file has only one channel)", received: "none" });
   for (const [k, o] of outIdx.entries()) {
-    if (o === inIdx) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "an output channel other than the input", received: JSON.stringify(options.outputChannels[k]) });
-    if (outIdx.indexOf(o) !== k) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "each output channel once", received: JSON.stringify(options.outputChannels[k]) });
+    if (o === inIdx) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "an output channel other than the input", received: JSON.stringify(options.outputChannels?.[k]) });
+    if (outIdx.indexOf(o) !== k) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "each output channel once", received: JSON.stringify(options.outputChannels?.[k]) });
   }
   const select = [inIdx!, ...outIdx];
   const refCond = channelConditionings(info.file, info.channels, [inIdx!], options)[0]!;

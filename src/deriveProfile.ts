@@ -1,5 +1,5 @@
 import { analyzeRecording, stationarityNote, type AnalysisOptions } from "./analyzeRecording.js";
-import { parseProfile, type ProfileDocument, type TestProfile } from "./compare/testProfile.js";
+import { parseProfile, profileMotion, type ProfileDocument, type ProfileMotion, type TestProfile } from "./compare/testProfile.js";
 import { InputError } from "./errors.js";
 import { damageSpectra } from "./estimate/damageSpectrum.js";
 import { SN_DEFAULTS, type SnCurve } from "./estimate/fatigueDamage.js";
@@ -83,6 +83,8 @@ export interface DeriveOptions {
   rmsPercent?: number | undefined;
   minDof?: number | undefined;
   title?: string | undefined;
+  /** Rated peak-to-peak stroke of the exciter, mm, to check the profile's displacement estimate against. */
+  strokeMm?: number | undefined;
   version: string;
   created: Date;
   /** File name the profile will be written to (its `file` in the parsed profile). */
@@ -158,6 +160,10 @@ export interface DeriveResult {
   /** Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's. */
   compression: { flatFactor: number; profileRms: number; meanFieldRms: number; rmsRatio: number };
   notes: string[];
+  /** The profile's velocity and displacement in closed form (peak-to-peak 6 x RMS, common practice). */
+  motion: ProfileMotion;
+  /** The displacement against the exciter's rated stroke, when given. */
+  stroke?: { ratedMm: number; estimateMm: number; margin: number; withinRating: boolean } | undefined;
   /**
    * Lines standing far above their neighbours in a field recording (estimate/toneEstimate.ts spectralTones): candidate
    * sine tones for a mixed-mode lab profile. Their lines are replaced by the background around them before the
@@ -457,8 +463,17 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     fit: { maxBreakpoints: nMax, minRatio: fit.minRatio, minRatioHz: fit.minRatioHz, maxRatio: fit.maxRatio, medianRatio: fit.medianRatio, scale: fit.scale },
     shocks,
     compression: { flatFactor: (lifeS / o.testDurationS) ** (2 / b), profileRms: profile.rms, meanFieldRms, rmsRatio: profile.rms / meanFieldRms },
-    notes, candidateTones, document, profile,
+    notes, candidateTones, document, profile, ...strokeOf(profile, o.strokeMm),
   };
+}
+
+/** The profile's velocity and displacement (closed form) and, with a rated stroke, the check against it. */
+export function strokeOf(profile: TestProfile, strokeMm: number | undefined): Pick<DeriveResult, "motion" | "stroke"> {
+  const motion = profileMotion(profile);
+  if (strokeMm === undefined) return { motion, stroke: undefined };
+  checkRange("strokeMm", strokeMm, strokeMm > 0 && Number.isFinite(strokeMm), "a rated peak-to-peak stroke in mm above 0");
+  const est = motion.displacementPeakToPeak * 1000;
+  return { motion, stroke: { ratedMm: strokeMm, estimateMm: est, margin: strokeMm / est, withinRating: est <= strokeMm } };
 }
 
 /** The groups and recordings of a mix file, as deriveProfile takes them. */

@@ -401,3 +401,30 @@ export function compareResponses(a: ResponseSpectra, b: ResponseSpectra): Respon
   }
   return { rmsRatioDb, extremeRatioDb, damageRatio, underTestsHz: under };
 }
+
+/**
+ * What `respond` ran, as plain data: the grid as written, Q, exposure, S-N curve and stroke, the source's
+ * reading options and the `--against` input with its own. `respond` and `verify` both run it through runResponse.
+ */
+export interface RespondRerun {
+  fn: string;
+  q: number;
+  durationS?: number | undefined;
+  sn?: Partial<SnCurve> | undefined;
+  strokeMm?: number | undefined;
+  source: SourceOptions;
+  against?: { file: string; options: SourceOptions; durationS?: number | undefined } | undefined;
+}
+
+/** Run `respond` on a source (and its --against input, when given) with the options of a RespondRerun. */
+export async function runResponse(source: string, o: RespondRerun, againstFile?: string): Promise<{ r: ResponseSpectra; against?: { b: ResponseSpectra; c: ResponseComparison } | undefined }> {
+  const fnHz = parseFnGrid(o.fn);
+  // A recording is also filtered through each SDOF in time: damage by rainflow, the largest response (the non-Gaussian part the PSD hides).
+  const response = { fnHz, q: o.q, basquinB: o.sn?.basquinB ?? SN_DEFAULTS.basquinB };
+  const a = await loadSpectrumSource(source, { ...o.source, response });
+  const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.durationS, sn: o.sn, strokeMm: o.strokeMm });
+  if (o.against === undefined) return { r };
+  const bsrc = await loadSpectrumSource(againstFile ?? o.against.file, { ...o.against.options, response }, "againstChannel");
+  const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.against.durationS, sn: o.sn });
+  return { r, against: { b, c: compareResponses(r, b) } };
+}

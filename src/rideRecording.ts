@@ -1,7 +1,7 @@
 import { selectChannels } from "./resolveAnalysis.js";
 import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "./analyzeRecording.js";
 import {
-  axisRules, BASIC_METHOD_LIMITS, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue,
+  axisRules, BASIC_METHOD_LIMITS, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue, ISO_2631_HEALTH_ZONE, type HealthZone,
   type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
 } from "./compare/wholeBodyExposure.js";
 import { InputError, quoted } from "./errors.js";
@@ -38,6 +38,8 @@ export interface RideOptions extends Omit<AnalysisOptions, "channels" | "resultU
   runningRmsS?: number | undefined;
   /** Also build a one-third-octave spectrogram of each axis (for the report): stretches of two segments. */
   spectrogram?: boolean | undefined;
+  /** The ISO 2631-1 Annex B caution zone the lab confirmed (default ISO_2631_HEALTH_ZONE, psdgate's values). */
+  healthZone?: HealthZone | undefined;
 }
 
 export interface RideAxis {
@@ -71,6 +73,8 @@ export interface RideResult {
   comfort: { reactions: string[] };
   /** The daily exposure, when one was stated. */
   exposure?: DailyExposure | undefined;
+  /** The caution zone the exposure is placed in, and where its values came from. */
+  healthZone: HealthZone & { from: "default" | "given" };
   seat?: { floorChannel: string; awFloor: number; awFloorFromPsd: number; awFloorWelchWeighted: number; awSeat: number; seat: number } | undefined;
   notes: string[];
   doubts: string[];
@@ -303,7 +307,8 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     });
   }
   const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));
-  const exposure = options.exposureS !== undefined ? dailyExposure(figures, rules, options.exposureS) : undefined;
+  const exposure = options.exposureS !== undefined ? dailyExposure(figures, rules, options.exposureS, options.healthZone ?? ISO_2631_HEALTH_ZONE) : undefined;
+  const healthZone = { ...(options.healthZone ?? ISO_2631_HEALTH_ZONE), from: options.healthZone ? "given" as const : "default" as const };
   if (exposure === undefined) notes.push({ code: "EXPOSURE_NOT_GIVEN", values: {}, text: "no daily exposure stated: a_w, crest factor, VDV, MTVV, the total value and the comfort words are the recording's own; A(8), the daily VDV and their judgement against Directive 2002/44/EC and ISO 2631-1 Annex B need the daily exposure the recording stands for (--exposure)" });
   const totalValue = {
     health: vibrationTotalValue(figures, (a) => rules[a].healthK),
@@ -320,5 +325,5 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     if (zAxis === undefined) notes.push({ code: "FLOOR_WITHOUT_Z", values: {}, text: "a floor channel needs z on the seat for the seat's transmissibility (vertical, Wk on both)" });
     else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
   }
-  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, seat, notes: texts(notes), doubts: texts(doubts), noteFindings: notes, doubtFindings: doubts };
+  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, healthZone, seat, notes: texts(notes), doubts: texts(doubts), noteFindings: notes, doubtFindings: doubts };
 }

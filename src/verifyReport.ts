@@ -5,12 +5,17 @@ import { InputError } from "./errors.js";
 import { pathExists, readSmallText, sha256OfFile } from "./read/regularFile.js";
 import type { TestMeta } from "./read/testMeta.js";
 import { checkJson } from "./report/checkReport.js";
+import { BATCH_STYLE } from "./report/batchIndex.js";
 import { DERIVE_STYLE } from "./report/deriveHtml.js";
+import { EXTRA_STYLE as RESPOND_STYLE } from "./report/responseHtml.js";
+import { RIDE_STYLE } from "./report/rideHtml.js";
+import { EXTRA_STYLE as TRANSFER_STYLE } from "./report/transferHtml.js";
 import { extractResult } from "./report/embeddedResult.js";
 import { foreignContent, scanPage, shownVerdict } from "./report/pageScan.js";
 import { isFrameStyle } from "./report/reportPage.js";
 import { psdJson } from "./report/psdJson.js";
 import type { DeriveOptions } from "./deriveProfile.js";
+import type { RecordKind } from "./report/reportPage.js";
 
 /**
  * `psdgate verify REPORT.html`: is a report what psdgate wrote, and does re-running its recorded
@@ -43,7 +48,7 @@ export interface VerifyStep {
 export interface VerifyResult {
   status: VerifyStatus;
   report: string;
-  kind?: "check" | "psd" | "derive" | "shock" | undefined;
+  kind?: RecordKind | undefined;
   steps: VerifyStep[];
   /** Up to 20 differences, each with its JSON path. */
   differences: string[];
@@ -113,6 +118,11 @@ export const REQUIRED_FIELDS: Record<string, readonly string[]> = {
   check: ["tool", "verdict", "input", "profile", "settings", "rule", "control", "channels"],
   psd: ["tool", "input", "settings", "channels"],
   derive: ["tool", "recordings", "groups", "fnHz", "fieldFatigue", "testFatigue", "fieldExtreme", "testExtreme", "fit"],
+  ride: ["tool", "input", "axes"],
+  transfer: ["tool", "input", "outputs"],
+  respond: ["tool", "source", "fnHz", "accelRms"],
+  shock: ["tool", "input", "channels"],
+  batch: ["tool", "profile", "entries", "failed"],
 };
 const VERDICTS = ["pass", "fail", "inconclusive"];
 
@@ -127,8 +137,8 @@ function requiredMissing(kind: string | undefined, result: Record<string, unknow
 }
 
 /** Style elements a page of each kind carries besides the frame's (report/reportPage.ts). */
-const EXTRA_STYLES: Record<string, readonly string[]> = { derive: [DERIVE_STYLE] };
-const BANNER_WORD: Record<string, string> = { psd: "PSD", derive: "PROFILE" };
+const EXTRA_STYLES: Record<string, readonly string[]> = { derive: [DERIVE_STYLE], ride: [RIDE_STYLE], transfer: [TRANSFER_STYLE], respond: [RESPOND_STYLE], batch: [BATCH_STYLE] };
+const BANNER_WORD: Record<string, string> = { psd: "PSD", derive: "PROFILE", ride: "RIDE", transfer: "FRF", respond: "SDOF", batch: "BATCH", shock: "SHOCK" };
 
 /**
  * What is wrong with the page as psdgate would write it, or undefined: the page is parsed (report/pageScan.ts),
@@ -137,7 +147,7 @@ const BANNER_WORD: Record<string, string> = { psd: "PSD", derive: "PROFILE" };
  */
 function pageCheck(html: string, kind: string | undefined, verdict: string | undefined): string | undefined {
   const page = scanPage(html);
-  const foreign = foreignContent(page);
+  const foreign = foreignContent(page, { links: kind === "batch" });
   if (foreign) return `the page holds ${foreign}, which psdgate never writes`;
   const extras = [...(EXTRA_STYLES[kind ?? ""] ?? [])];
   let frame = 0;
@@ -152,7 +162,7 @@ function pageCheck(html: string, kind: string | undefined, verdict: string | und
   if (frame !== 1) return `the page holds ${frame} frame style elements, psdgate writes one`;
   const v = shownVerdict(html, page);
   if (v.count !== 1) return `the page shows ${v.count} verdict banners, psdgate writes one`;
-  const want = kind === "check" ? verdict : "none";
+  const want = kind === "check" || kind === "batch" ? verdict : "none";
   const word = kind === "check" ? String(verdict).toUpperCase() : BANNER_WORD[kind ?? ""];
   if (v.dataVerdict !== want || v.classVerdict !== want || (word !== undefined && v.word !== word)) {
     return `the page shows verdict "${v.dataVerdict}" (class "${v.classVerdict}", word "${v.word}"), the result says "${want}"`;
@@ -183,14 +193,18 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   const missing: string[] = [];
   const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, steps, differences: [], missing, compared: 0, ...extra });
   const x = extractResult(html);
-  if (!x.found || x.doc === undefined) {
-    steps.push({ step: "result", ok: false, text: x.found ? "the embedded result is not valid JSON (edited)" : "no embedded psdgate result (not a psdgate report, or the block was removed)" });
+  if (!x.found) {
+    // Not a record at all (any file, or a page whose result block was removed): a usage error, one line, exit 2.
+    throw new InputError("NOT_A_REPORT", { file: report, expected: "an HTML record written by psdgate, with its embedded result", received: /<html/i.test(html.slice(0, 4096)) ? "an HTML page with no psdgate result in it" : "a file that is not a psdgate record" });
+  }
+  if (x.doc === undefined) {
+    steps.push({ step: "result", ok: false, text: "the embedded result is not valid JSON (edited)" });
     return done("differs");
   }
-  const doc = x.doc as { kind?: "check" | "psd" | "derive" | "shock"; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
+  const doc = x.doc as { kind?: RecordKind; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
   const result = (doc.result ?? {}) as { verdict?: string; input?: { file: string; sha256: string }; profile?: { file: string; sha256: string }; tool?: { version?: string } };
   steps.push({ step: "result", ok: x.resultIntact, text: x.resultIntact ? "embedded result intact (its SHA-256 matches)" : "embedded result edited (its SHA-256 does not match)" });
-  const pageProblem = pageCheck(html, doc.kind, result.verdict);
+  const pageProblem = pageCheck(html, doc.kind, doc.kind === "batch" ? batchVerdict(result as BatchDoc) : result.verdict);
   steps.push({
     step: "page", ok: x.pageIntact && pageProblem === undefined,
     text: pageProblem !== undefined ? `${pageProblem} (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
@@ -201,6 +215,8 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     return done("differs", { kind: doc.kind });
   }
   if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
+  if (doc.kind === "batch") return verifyBatch(report, doc.result as BatchDoc, steps);
+  if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun) return verifyRecord(report, doc as RecordDoc, steps, tol, options);
   if (doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock" || !result.input || !doc.rerun) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
     return done("differs", { kind: undefined });
@@ -262,7 +278,9 @@ interface DerivationDoc {
   kind: "derive";
   created: string;
   rerun: Omit<DeriveOptions, "version" | "created">;
-  result: { tool?: { version?: string }; recordings?: { file: string; sha256: string }[] };
+  /** The profile file the derivation wrote, by SHA-256 (records from before it was kept lack it). */
+  written?: { file: string; sha256: string };
+  result: { tool?: { version?: string }; recordings?: { file: string; sha256: string }[]; profile?: { provenance?: { inputs?: { file: string; sha256: string; role?: string }[] } } };
 }
 
 /** A derive record: every field recording (and the mix file) by SHA-256, then the derivation re-run with its recorded settings. */
@@ -288,6 +306,19 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
     found[i] = at.path;
     steps.push({ step: "recording", ok, text: `${at.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${r.sha256.slice(0, 12)}… (another or a changed file)`}` });
   }
+  // The mix file (its hours are in the recorded settings) and the profile written, by SHA-256.
+  const mix = doc.result.profile?.provenance?.inputs?.find((i) => i.role === "mix");
+  for (const [label, f] of [["mix file", mix], ["profile written", doc.written]] as const) {
+    if (!f) continue;
+    const at = locate(undefined, f.file, report);
+    if (!at.path) {
+      missing.push(`${label} ${basename(f.file)} (looked for ${at.looked.join(", ")})`);
+      continue;
+    }
+    const ok = (await sha256File(at.path, "a readable file", undefined)) === f.sha256;
+    inputsOk &&= ok;
+    steps.push({ step: "profile", ok, text: `${at.path} (${label}): ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${f.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  }
   const intact = steps.every((s) => s.ok);
   if (missing.length > 0) return done(intact ? "missing" : "differs");
   if (!inputsOk) {
@@ -295,13 +326,152 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
     return done("differs");
   }
   const version = doc.result.tool?.version ?? "?";
-  const { deriveProfile } = await import("./deriveProfile.js");
-  const { deriveJson } = await import("./report/deriveReport.js");
+  const { deriveProfile, strokeOf } = await import("./deriveProfile.js");
+  const { deriveJson, profileDocumentText } = await import("./report/deriveReport.js");
+  const { parseProfile } = await import("./compare/testProfile.js");
   const r = await deriveProfile({ ...doc.rerun, recordings: given.map((g, i) => ({ ...g, file: found[i]! })), version, created: new Date(doc.created) });
+  // As `derive` does: the profile read back from the text it writes, and the stroke checked on that.
+  const outFile = doc.rerun.outFile ?? doc.written?.file ?? "derived.json";
+  const text = profileDocumentText(r.document, outFile);
+  r.profile = parseProfile(text, outFile);
+  Object.assign(r, strokeOf(r.profile, doc.rerun.strokeMm));
+  if (doc.written) {
+    const same = r.profile.sha256 === doc.written.sha256;
+    steps.push({ step: "profile", ok: same, text: same ? "the re-run writes the same profile, byte for byte (SHA-256)" : `the re-run writes a different profile (SHA-256 ${r.profile.sha256.slice(0, 12)}…, recorded ${doc.written.sha256.slice(0, 12)}…)` });
+  }
   const cmp = compareResults(doc.result, deriveJson(r, version), tol, "", undefined, { olderReport: version !== running });
   steps.push({
     step: "rerun", ok: cmp.diffs.length === 0,
     text: cmp.diffs.length === 0 ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp.added)}` : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
   });
   return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
+}
+
+interface RecordDoc {
+  kind: "ride" | "transfer" | "respond";
+  created: string;
+  meta?: TestMeta | null;
+  rerun: Record<string, unknown>;
+  result: Record<string, unknown> & { tool?: { version?: string } };
+}
+
+/** One input of a record: what it is, where the record says it was, its SHA-256, and the path an option gives. */
+interface RecordInput { role: "recording" | "profile"; label: string; file: string; sha256: string; given?: string | undefined }
+
+/** The inputs a ride, transfer or respond record names (respond: its source and any --against input). */
+function recordInputs(doc: RecordDoc, options: VerifyOptions): RecordInput[] | undefined {
+  const r = doc.result as { input?: { file: string; sha256: string }; source?: { file: string; sha256: string; kind?: string }; against?: { source?: { file: string; sha256: string; kind?: string } } | null };
+  if (doc.kind === "respond") {
+    if (!r.source?.file || !r.source.sha256) return undefined;
+    const role = (k?: string) => (k === "recording" ? "recording" : "profile") as RecordInput["role"];
+    const list: RecordInput[] = [{ role: role(r.source.kind), label: "source", file: r.source.file, sha256: r.source.sha256, given: r.source.kind === "recording" ? options.recording : options.profile }];
+    const b = r.against?.source;
+    if (b?.file && b.sha256) list.push({ role: role(b.kind), label: "against", file: b.file, sha256: b.sha256 });
+    return list;
+  }
+  if (!r.input?.file || !r.input.sha256) return undefined;
+  return [{ role: "recording", label: "recording", file: r.input.file, sha256: r.input.sha256, given: options.recording }];
+}
+
+/** The result a record's rerun options give on the inputs found: the same function the command printed it with. */
+async function rerunRecord(doc: RecordDoc, paths: string[], version: string): Promise<unknown> {
+  if (doc.kind === "ride") {
+    const { rideRecording } = await import("./rideRecording.js");
+    const { rideJson } = await import("./report/rideReport.js");
+    return rideJson(await rideRecording(paths[0]!, doc.rerun as never), version);
+  }
+  if (doc.kind === "transfer") {
+    const { analyzeTransfer } = await import("./analyzeTransfer.js");
+    const { transferJson } = await import("./report/transferReport.js");
+    return transferJson(await analyzeTransfer(paths[0]!, doc.rerun as never), version);
+  }
+  const { runResponse } = await import("./responseSpectra.js");
+  const { responseJson } = await import("./report/responseReport.js");
+  const { r, against } = await runResponse(paths[0]!, doc.rerun as never, paths[1]);
+  return responseJson(r, version, against);
+}
+
+/** JSON paths that hold where an input was read, not what it held (respond names its source files). */
+const RECORD_IGNORED = /^(source\.file|against\.source\.file)$/;
+
+/** A ride, transfer or respond record: its inputs by SHA-256, then its analysis re-run with the recorded options and every number compared. */
+async function verifyRecord(report: string, doc: RecordDoc, steps: VerifyStep[], tol: number, options: VerifyOptions): Promise<VerifyResult> {
+  const missing: string[] = [];
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, kind: doc.kind, steps, differences: [], missing, compared: 0, ...extra });
+  const inputs = recordInputs(doc, options);
+  if (!inputs) {
+    steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
+    return done("differs");
+  }
+  let inputsOk = true;
+  const paths: string[] = [];
+  for (const i of inputs) {
+    const at = locate(i.given, i.file, report);
+    if (!at.path) {
+      missing.push(`${i.label} ${basename(i.file)} (looked for ${at.looked.join(", ")}${i.given === undefined && i.label !== "against" ? `; give it as \`${i.role}\`` : ""})`);
+      continue;
+    }
+    const ok = (await sha256File(at.path, "a readable file", undefined)) === i.sha256;
+    inputsOk &&= ok;
+    paths.push(at.path);
+    steps.push({ step: i.role, ok, text: `${at.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${i.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  }
+  const intact = steps.every((s) => s.ok);
+  if (missing.length > 0) return done(intact ? "missing" : "differs");
+  if (!inputsOk) {
+    steps.push({ step: "rerun", ok: false, text: "not re-run: an input is not the one the report was made from" });
+    return done("differs");
+  }
+  const version = doc.result.tool?.version ?? "?";
+  const now = await rerunRecord(doc, paths, version);
+  const cmp = compareResults(strip(doc.result), strip(now as Record<string, unknown>), tol, "", undefined, { olderReport: version !== options.version });
+  steps.push({
+    step: "rerun", ok: cmp.diffs.length === 0,
+    text: cmp.diffs.length === 0
+      ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
+      : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  });
+  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
+}
+
+/** A result with the paths it was read from left out (compared by SHA-256 above instead). */
+function strip(result: Record<string, unknown>): Record<string, unknown> {
+  const copy = JSON.parse(JSON.stringify(result)) as Record<string, unknown>;
+  const drop = (o: unknown, path: string) => {
+    if (o === null || typeof o !== "object" || Array.isArray(o)) return;
+    for (const k of Object.keys(o)) {
+      const p = path ? `${path}.${k}` : k;
+      if (RECORD_IGNORED.test(p)) delete (o as Record<string, unknown>)[k];
+      else drop((o as Record<string, unknown>)[k], p);
+    }
+  };
+  drop(copy, "");
+  return copy;
+}
+
+interface BatchDoc { entries?: { file: string; report: string; reportSha256?: string; verdict?: string }[]; failed?: number }
+
+/** The verdict a batch index's banner shows: its worst (report/batchIndex.ts). */
+function batchVerdict(doc: BatchDoc): string {
+  const v = (doc.entries ?? []).map((e) => e.verdict);
+  return v.includes("fail") ? "fail" : v.includes("inconclusive") || (doc.failed ?? 0) > 0 ? "inconclusive" : "pass";
+}
+
+/** A batch index: every linked report beside it, by the SHA-256 the index recorded (each report verifies on its own). */
+async function verifyBatch(report: string, doc: BatchDoc, steps: VerifyStep[]): Promise<VerifyResult> {
+  const missing: string[] = [];
+  let ok = 0;
+  for (const e of doc.entries ?? []) {
+    const at = join(dirname(report), e.report);
+    if (!pathExists(at)) {
+      missing.push(`report ${e.report} of ${basename(e.file)} (looked for ${at})`);
+      continue;
+    }
+    const same = e.reportSha256 !== undefined && (await sha256File(at, "a readable file", undefined)) === e.reportSha256;
+    if (same) ok++;
+    else steps.push({ step: "recording", ok: false, text: `${at}: ${e.reportSha256 === undefined ? "no SHA-256 recorded for it" : "SHA-256 differs from the one the index recorded (the report was replaced or edited)"}` });
+  }
+  steps.push({ step: "recording", ok: steps.every((s) => s.ok), text: `${ok} of ${(doc.entries ?? []).length} linked reports are the ones the index lists (SHA-256); verify each report to re-run it` });
+  const intact = steps.every((s) => s.ok);
+  return { status: !intact ? "differs" : missing.length ? "missing" : "reproduced", report, kind: "batch", steps, differences: [], missing, compared: 0 };
 }

@@ -63,7 +63,7 @@ describe("analyzeTransfer", () => {
     expect(await msg({ inputChannel: "floor", outputChannels: ["tip"] })).toMatch(/^CHANNEL_NOT_FOUND .*option inputChannel: expected a channel name or position: 1=base, 2=tip, 3=other, received "floor"/);
   });
   it("works on the seat and floor of a ride record: the Marlow UV-3 seat mode (3.2 Hz in the sample's model) and the predicted seat RMS", async () => {
-    const r = await cli("transfer", "samples/marlow-uv3-ride.wav", "--in", "4", "--out", "3", "--units", "m/s2", "--scale", "40", "--resolution", "0.25", "--json");
+    const r = await cli("transfer", "samples/marlow-uv3-ride.wav", "--in", "4", "--output-channel", "3", "--units", "m/s2", "--scale", "40", "--resolution", "0.25", "--json");
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);
     const out = j.outputs[0];

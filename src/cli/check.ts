@@ -72,8 +72,18 @@ export function registerCheck(program: Command, io: CliIo): void {
       const reportPath = (index: number) => (o.report !== undefined ? o.report : join(o.reportDir!, names[index]!));
       const given = givenOptions(cmd);
       const rerun = rerunOptions({ ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control });
-      const writeReport = (r: CheckResult, index: number) =>
-        writeAtomic(reportPath(index), checkHtml(r, VERSION, now, { meta, given, rerun }), { inputs, force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
+      // Each recording's identity: a meta file beside it overrides --meta key by key (read/testMeta.ts).
+      const { recordingMeta } = await import("../read/testMeta.js");
+      const metas = new Map<string, { meta: typeof meta; from: string | undefined }>();
+      for (const f of files) metas.set(f, await recordingMeta(f, meta));
+      for (const m of metas.values()) if (m.from !== undefined) inputs.push(m.from);
+      const metaOf = (r: CheckResult) => metas.get(r.analysis.input.file)?.meta ?? meta;
+      const { sha256Hex } = await import("../report/embeddedResult.js");
+      const writeReport = async (r: CheckResult, index: number) => {
+        const html = checkHtml(r, VERSION, now, { meta: metaOf(r), given, rerun });
+        await writeAtomic(reportPath(index), html, { inputs, force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
+        return sha256Hex(html);
+      };
       if (files.length > 1) {
         if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
         if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
@@ -85,8 +95,13 @@ export function registerCheck(program: Command, io: CliIo): void {
           files, { ...o, histogram: wantsReport, forReport: wantsReport || undefined, control }, profile, verdictCode,
           (r, index) => {
             if (o.reportDir !== undefined) {
-              reports.push(writeReport(r, index).catch((e: unknown) => void (reportError ??= e)));
-              entries.push({ file: r.analysis.input.file, sha256: r.analysis.input.sha256, verdict: r.verdict, report: basename(reportPath(index)), channels: r.channels.map((c, i) => `${r.analysis.channels[i]!.name} ${r.roles[i] === "monitor" ? "monitor" : c.verdict}`).join(", ") });
+              const entry: import("../report/batchIndex.js").BatchEntry = {
+                file: r.analysis.input.file, sha256: r.analysis.input.sha256, verdict: r.verdict, report: basename(reportPath(index)),
+                channels: r.channels.map((c, i) => `${r.analysis.channels[i]!.name} ${r.roles[i] === "monitor" ? "monitor" : c.verdict}`).join(", "),
+                ...batchWhy(r), testId: metaOf(r)?.testId, metaFrom: metas.get(r.analysis.input.file)?.from,
+              };
+              entries.push(entry);
+              reports.push(writeReport(r, index).then((h) => void (entry.reportSha256 = h)).catch((e: unknown) => void (reportError ??= e)));
             }
             return r.channels.map((c, i) => {
               const ch = r.analysis.channels[i]!;
@@ -95,13 +110,13 @@ export function registerCheck(program: Command, io: CliIo): void {
                 w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.shown ? "shown" : "not shown"}` : "none"];
             });
           },
-          ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION, meta),
+          ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION, metaOf(r)),
         );
         await Promise.all(reports);
         if (reportError !== undefined) throw reportError;
         if (o.reportDir !== undefined) {
           const { batchIndexHtml, batchIndexName } = await import("../report/batchIndex.js");
-          await writeAtomic(join(o.reportDir, batchIndexName(names)), batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now), { inputs, force: o.force, option: "--report-dir" });
+          await writeAtomic(join(o.reportDir, batchIndexName(names)), batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now, { meta, given }), { inputs, force: o.force, option: "--report-dir" });
         }
         throw new Exit(code);
       }
@@ -112,7 +127,20 @@ export function registerCheck(program: Command, io: CliIo): void {
         await writeAtomic(o.csv, checkCsv(r), { inputs, force: o.force, option: "--csv" });
       }
       if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r, 0);
-      io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION, meta)) + "\n" : checkText(r, VERSION));
+      io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION, metaOf(r))) + "\n" : checkText(r, VERSION));
       throw new Exit(verdictCode(r));
     });
+}
+
+/** A batch row's reason and worst excursion: from the worst judged channel (fail, then inconclusive, then pass). */
+function batchWhy(r: CheckResult): { reason: string; worst: string } {
+  const rank = { fail: 0, inconclusive: 1, pass: 2 } as const;
+  const judged = r.channels.map((c, i) => ({ c, i })).filter(({ i }) => r.roles[i] !== "monitor").sort((a, b) => rank[a.c.verdict] - rank[b.c.verdict]);
+  const top = judged[0];
+  if (!top) return { reason: "", worst: "none" };
+  const name = r.analysis.channels[top.i]!.name;
+  const reason = top.c.verdict === "pass" ? (top.c.reasons[0] ?? "every judged line and the RMS within tolerance") : `${name}: ${top.c.reasons[0] ?? top.c.verdict}`;
+  let worst: { w: import("../compare/complianceCheck.js").Excursion; ch: string } | undefined;
+  for (const { c, i } of judged) for (const w of c.excursions) if (!worst || Math.abs(w.worstDb) - Math.abs(w.limitDb) > Math.abs(worst.w.worstDb) - Math.abs(worst.w.limitDb)) worst = { w, ch: r.analysis.channels[i]!.name };
+  return { reason, worst: worst ? `${worst.ch}: ${sig(worst.w.worstHz, 5)} Hz ${signedDb(worst.w.worstDb)} (limit ${signedDb(worst.w.limitDb)}), ${worst.w.shown ? "shown" : "not shown"}` : "none" };
 }

@@ -26,6 +26,9 @@ interface DeriveFlags extends ParsedCommon {
   bandDb?: number;
   rmsPercent?: number;
   minDof?: number;
+  strokeMm?: number;
+  meta?: string;
+  quiet?: boolean;
 }
 
 const num = (option: string, expected: string, rule: (x: number) => boolean = () => true) => numberOption(option, rule, expected);
@@ -62,8 +65,11 @@ export function registerDerive(program: Command, io: CliIo): void {
     .option("--band-db <dB>", "the profile's tolerance band, ± dB (default 3)", num("--band-db", "a band in dB above 0 and at most 20", (x) => x > 0 && x <= 20))
     .option("--rms-percent <pct>", "the profile's RMS tolerance, ± % (default 10)", num("--rms-percent", "a percentage above 0 and below 99", (x) => x > 0 && x < 99))
     .option("--min-dof <n>", "the profile's minimum DOF (default 120)", num("--min-dof", "a number above 0", (x) => x > 0))
+    .option("--stroke-mm <mm>", "the exciter's rated peak-to-peak stroke: the profile's displacement estimate is checked against it", num("--stroke-mm", "a stroke in mm above 0", (x) => x > 0))
+    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
+    .option("-q, --quiet", "no progress output (derive shows none; accepted so every analysis command takes it)")
     .action(async (args: string[], o: DeriveFlags, cmd: Command) => {
-      const { deriveProfile, mixInputs, plainInputs } = await import("../deriveProfile.js");
+      const { deriveProfile, mixInputs, plainInputs, strokeOf } = await import("../deriveProfile.js");
       const { deriveJson, deriveText, profileDocumentText } = await import("../report/deriveReport.js");
       const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
       const { VERSION } = await import("../version.js");
@@ -86,23 +92,26 @@ export function registerDerive(program: Command, io: CliIo): void {
         if (o.filesFrom !== undefined) read.push(o.filesFrom);
       }
       read.push(...inputs.recordings.map((r) => r.file));
+      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+      if (o.meta !== undefined) read.push(o.meta);
       checkOutputPath(o.out, read, o.force, "--out");
       if (o.report !== undefined) checkOutputPath(o.report, [...read, o.out], o.force, "--report");
       const created = new Date();
       const settings = {
         ...inputs, testDurationS: o.testDuration, analysis: analysisOptions(o), channel: o.channel?.[0], q: o.q, basquinB: o.basquin, maxBreakpoints: o.breakpoints, margin: o.margin,
         fromHz: o.fmin, toHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, toleranceConfidence: o.toleranceConfidence, extremeLimit: o.extremeLimit, fieldDamage: o.fieldDamage,
-        bandDb: o.bandDb, rmsPercent: o.rmsPercent, minDof: o.minDof, outFile: o.out,
+        bandDb: o.bandDb, rmsPercent: o.rmsPercent, minDof: o.minDof, strokeMm: o.strokeMm, outFile: o.out,
       };
       const r = await deriveProfile({ ...settings, version: VERSION, created });
       const text = profileDocumentText(r.document, o.out);
       // The profile as `check` will read it from the file written (its SHA-256 is the file's).
       r.profile = parseProfile(text, o.out);
+      Object.assign(r, strokeOf(r.profile, o.strokeMm));
       await writeAtomic(o.out, text, { inputs: read, force: o.force, option: "--out" });
       if (o.report !== undefined) {
         const { deriveHtml } = await import("../report/deriveHtml.js");
-        await writeAtomic(o.report, deriveHtml(r, VERSION, created, { given: givenOptions(cmd), outFile: o.out, rerun: JSON.parse(JSON.stringify(settings)) as Record<string, unknown> }), { inputs: [...read, o.out], force: o.force, option: "--report" });
+        await writeAtomic(o.report, deriveHtml(r, VERSION, created, { meta, given: givenOptions(cmd), outFile: o.out, rerun: JSON.parse(JSON.stringify(settings)) as Record<string, unknown> }), { inputs: [...read, o.out], force: o.force, option: "--report" });
       }
-      io.stdout(o.json ? JSON.stringify(deriveJson(r, VERSION)) + "\n" : deriveText(r, VERSION, o.out));
+      io.stdout(o.json ? JSON.stringify({ ...deriveJson(r, VERSION), ...(meta ? { meta } : {}) }) + "\n" : deriveText(r, VERSION, o.out));
     });
 }

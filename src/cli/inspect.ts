@@ -9,8 +9,15 @@ import { addReadingOptions, analysisOptions, type ParsedCommon } from "./options
 export function registerInspect(program: Command, io: CliIo): void {
   addReadingOptions(
     program.command("inspect").argument("<file>", "recording: CSV or WAV").description("what is in a recording: channels, rate, length, statistics, warnings"),
-  ).action(async (file: string, o: ParsedCommon) => {
-    const { analyzeRecording } = await import("../analyzeRecording.js");
-    io.stdout(inspectText(await analyzeRecording(file, { ...analysisOptions(o), spectrum: false }), VERSION));
-  });
+  )
+    .option("--json", "print what was found as JSON (the recording, and per channel its unit, statistics and warnings)")
+    .option("-q, --quiet", "no progress output (inspect shows none; accepted so every analysis command takes it)")
+    .action(async (file: string, o: ParsedCommon & { json?: boolean }) => {
+      const { analyzeRecording } = await import("../analyzeRecording.js");
+      const a = await analyzeRecording(file, { ...analysisOptions(o), spectrum: false });
+      if (o.json) {
+        const { inputJson, statsJson, toolInfo } = await import("../report/psdJson.js");
+        io.stdout(JSON.stringify({ tool: toolInfo(VERSION), input: inputJson(a), channels: a.channels.map((c) => ({ name: c.name, position: c.position, units: c.units, reading: c.reading, stats: statsJson(c), warnings: c.warnings, doubts: c.doubts })) }) + "\n");
+      } else io.stdout(inspectText(a, VERSION));
+    });
 }

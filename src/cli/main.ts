@@ -7,6 +7,7 @@ import { registerDerive } from "./derive.js";
 import { Exit } from "./exit.js";
 import { registerInspect } from "./inspect.js";
 import { asCliError } from "./optionFlags.js";
+import { joinDurationUnits } from "./options.js";
 import { registerProfile } from "./profile.js";
 import { registerPsd } from "./psd.js";
 import { registerQueue } from "./queue.js";
@@ -56,9 +57,13 @@ export function buildProgram(io: CliIo): Command {
   return program;
 }
 
+/** Every command's name, in the order the help lists them. */
+function commandNames(program: Command): string {
+  const names = program.commands.map((c) => c.name());
+  return `${names.slice(0, -1).join(", ")} or ${names[names.length - 1]}`;
+}
+
 const USAGE_EXPECTED: Record<string, string> = {
-  "commander.unknownCommand": "one of the commands inspect, psd, profile, check, synth",
-  "commander.help": "a command: inspect, psd, profile, check or synth",
   "commander.unknownOption": "an option of this command",
   "commander.missingArgument": "the command's arguments",
   "commander.optionMissingArgument": "a value after the option",
@@ -67,18 +72,45 @@ const USAGE_EXPECTED: Record<string, string> = {
   "commander.conflictingOption": "options that go together",
 };
 
-/** commander's own error as one line with the USAGE code, like every other error. */
-function usageError(e: CommanderError): InputError {
+/** commander's own error as one line with the USAGE code, like every other error ("did you mean" kept on it). */
+function usageError(e: CommanderError, program: Command, command?: string): InputError {
+  const expected = e.code === "commander.unknownCommand" ? `one of the commands ${commandNames(program)}`
+    : e.code === "commander.help" ? `a command: ${commandNames(program)}` : USAGE_EXPECTED[e.code] ?? "a valid command line";
   return new InputError("USAGE", {
-    expected: USAGE_EXPECTED[e.code] ?? "a valid command line",
-    received: e.code === "commander.help" ? "no command (the help above lists them)" : e.message.replace(/^error: /, "").split("\n")[0]!, hint: "run psdgate --help",
+    expected,
+    received: e.code === "commander.help" ? "no command (the help above lists them)" : e.message.replace(/^error: /, "").split("\n").map((l) => l.trim()).filter(Boolean).join(" "),
+    hint: command !== undefined ? `run psdgate ${command} --help` : "run psdgate --help",
   });
+}
+
+/**
+ * An unknown option is named before anything else is checked (commander checks required options first, so
+ * `ride --axis x=1` said "--axes not specified"): the options are parsed once on a throwaway program, which
+ * stores nothing that the real parse sees.
+ */
+/** Options that an earlier psdgate spelt otherwise: the new name, and why. */
+const RENAMED: Record<string, [string, string]> = {
+  "transfer --out": ["--output-channel CH", "--out names an output file in every command; without --output-channel every channel but --in is an output"],
+};
+
+function unknownOptionFirst(argv: string[], io: CliIo): void {
+  const probe = buildProgram(io);
+  const sub = probe.commands.find((c) => c.name() === argv[0] || c.aliases().includes(argv[0] ?? ""));
+  if (!sub || sub.commands.length > 0) return;
+  const { unknown } = sub.parseOptions(argv.slice(1));
+  const flag = unknown.find((u) => u.startsWith("-") && u !== "-" && u !== "--");
+  const renamed = RENAMED[`${sub.name()} ${flag?.replace(/=.*$/, "")}`];
+  if (renamed) throw new InputError("USAGE", { option: flag, expected: `${renamed[0]} (${renamed[1]})`, received: `unknown option '${flag}'`, hint: `run psdgate ${sub.name()} --help` });
+  if (flag !== undefined && !/^--?(h|help)$/.test(flag)) (sub as unknown as { unknownOption(flag: string): never }).unknownOption(flag.replace(/=.*$/, ""));
 }
 
 /** Runs the CLI and returns the exit code; never throws. */
 export async function runCli(argv: string[], io: CliIo = processIo): Promise<number> {
   const program = buildProgram(io);
   try {
+    // `--life 5 days`: the unit goes back on its number (never a file named `days`).
+    argv = joinDurationUnits(argv, ["--life", "--test-duration", "--exposure"]);
+    unknownOptionFirst(argv, io);
     await program.parseAsync(argv, { from: "user" });
     return EXIT.ok;
   } catch (e) {
@@ -89,7 +121,11 @@ export async function runCli(argv: string[], io: CliIo = processIo): Promise<num
     }
     if (e instanceof CommanderError) {
       if (e.exitCode === 0) return EXIT.ok;
-      io.stderr(`psdgate: ${usageError(e).message}\n`);
+      // The command whose help answers it: `ride`, or `queue work` for a subcommand.
+      const sub = program.commands.find((c) => c.name() === argv[0]);
+      const subsub = sub?.commands.find((c) => c.name() === argv[1]);
+      const where = sub ? `${sub.name()}${subsub ? ` ${subsub.name()}` : ""}` : undefined;
+      io.stderr(`psdgate: ${usageError(e, program, e.code === "commander.unknownOption" || e.code === "commander.missingMandatoryOptionValue" || e.code === "commander.optionMissingArgument" ? where : undefined).message}\n`);
       return EXIT.input;
     }
     const err = e as Error;

@@ -46,7 +46,7 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   againstChannel: "--against-channel",
   // transfer
   inputChannel: "--in",
-  outputChannels: "--out",
+  outputChannels: "--output-channel",
   goodCoherence: "--good-coherence",
   // ride
   axes: "--axes",
@@ -75,6 +75,12 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   // verify
   recording: "--recording",
   profile: "--profile",
+  // derive, shock, psd/ride
+  fieldDamage: "--field-damage",
+  threshold: "--threshold",
+  thresholdFactor: "--threshold-factor",
+  holdS: "--hold",
+  peakHoldS: "--peak-hold",
 };
 
 /** Flags whose `false` has a flag of its own. */

@@ -179,6 +179,16 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
 }
 
 /** The options the user typed (not defaults), in words for the report: `--units m/s2`, `--force`. */
+/** A parsed option value in words: plain values as written, a parsed pair list (`--axes`, `--scale CH=K`) as key=value. */
+function givenValue(v: unknown): string {
+  if (v === null || typeof v !== "object") return String(v);
+  const o = v as Record<string, unknown>;
+  // A per-channel setting ({ channel?, value }, from `--scale`, `--sensitivity`) reads back as written: CH=K, or K for every channel.
+  const keys = Object.keys(o);
+  if ("value" in o && keys.every((k) => k === "value" || k === "channel")) return o.channel === undefined ? givenValue(o.value) : `${String(o.channel)}=${givenValue(o.value)}`;
+  return keys.filter((k) => o[k] !== undefined).map((k) => `${k}=${typeof o[k] === "object" ? JSON.stringify(o[k]) : String(o[k])}`).join(",");
+}
+
 export function givenOptions(cmd: Command): string[] {
   const out: string[] = [];
   for (const opt of cmd.options) {
@@ -187,8 +197,8 @@ export function givenOptions(cmd: Command): string[] {
     const v: unknown = cmd.getOptionValue(key);
     const flag = opt.long ?? opt.short ?? key;
     if (typeof v === "boolean") out.push(v || !opt.negate ? flag : flag);
-    else if (Array.isArray(v)) for (const x of v) out.push(`${flag} ${String(x)}`);
-    else out.push(`${flag} ${String(v)}`);
+    else if (Array.isArray(v)) for (const x of v) out.push(`${flag} ${givenValue(x)}`);
+    else out.push(`${flag} ${givenValue(v)}`);
   }
   return out;
 }
@@ -198,18 +208,18 @@ export function rerunOptions(o: AnalysisOptions & { control?: unknown }): Record
   return JSON.parse(JSON.stringify({ ...o, onProgress: undefined })) as Record<string, unknown>;
 }
 
-/** A duration written `8h`, `6.5 h`, `90min`, `2h30min`, `45s` or `hh:mm`, in s; undefined for anything else. */
+/** A duration written `8h`, `6.5 h`, `90min`, `2h30min`, `45s`, `5d`, `5 days` or `hh:mm`, in s; undefined for anything else. */
 export function parseDuration(text: string): number | undefined {
   const body = text.trim().toLowerCase().replace(/\s+/g, "");
   const clock = /^(\d{1,2}):([0-5]\d)$/.exec(body);
   if (clock) return Number(clock[1]) * 3600 + Number(clock[2]) * 60;
-  const part = /(\d+(?:\.\d+)?)(hours?|h|minutes?|min|seconds?|s)/y;
+  const part = /(\d+(?:\.\d+)?)(days?|d|hours?|h|minutes?|min|seconds?|s)/y;
   let total = 0;
   let m: RegExpExecArray | null;
   let at = 0;
   while ((m = part.exec(body)) !== null) {
     const v = Number(m[1]);
-    total += m[2]!.startsWith("h") ? v * 3600 : m[2]!.startsWith("m") ? v * 60 : v;
+    total += m[2]!.startsWith("d") ? v * 86400 : m[2]!.startsWith("h") ? v * 3600 : m[2]!.startsWith("m") ? v * 60 : v;
     at = part.lastIndex;
   }
   return at === body.length && body.length > 0 ? total : undefined;
@@ -221,8 +231,32 @@ export function durationOption(option: string) {
     const t = text.trim();
     const s = /^[+]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t) ? Number(t) : /^\d{1,2}:\d{2}$/.test(t) ? undefined : parseDuration(t);
     if (s === undefined || !(s > 0) || !Number.isFinite(s)) {
-      throw new InputError("OPTION_INVALID", { option, expected: "a duration above 0: seconds, or a number with s, min or h (3600, 90min, 1.5h, 2h30min)", received: JSON.stringify(text) });
+      throw new InputError("OPTION_INVALID", { option, expected: "a duration above 0: seconds, or a number with s, min, h or d (3600, 90min, 1.5h, 2h30min, 5d)", received: JSON.stringify(text) });
     }
     return s;
   };
+}
+
+/** A word that only a duration's unit would be: `--life 5 days` leaves `days` as a file argument. */
+export const UNIT_WORD = /^(s|sec|secs|seconds?|min|mins|minutes?|h|hr|hrs|hours?|d|days?|weeks?|years?)$/i;
+
+/**
+ * A duration option written with a space before its unit (`--life 5 days`) splits in two, and the unit would be
+ * read as a file named `days`: the option's value and the unit are put back together, or refused with one line.
+ */
+export function joinDurationUnits(argv: readonly string[], options: readonly string[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i]!;
+    const next = argv[i + 1];
+    if (options.includes(a) && next !== undefined && argv[i + 2] !== undefined && /^[+]?\d+(\.\d*)?$/.test(next) && UNIT_WORD.test(argv[i + 2]!)) {
+      const unit = argv[i + 2]!.toLowerCase();
+      if (/^(weeks?|years?)$/.test(unit)) throw new InputError("OPTION_INVALID", { option: a, expected: "a duration in s, min, h or d (a week is 7d, a year of service is its hours)", received: JSON.stringify(`${next} ${argv[i + 2]}`) });
+      out.push(a, `${next}${unit}`);
+      i += 2;
+      continue;
+    }
+    out.push(a);
+  }
+  return out;
 }

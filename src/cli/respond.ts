@@ -1,7 +1,8 @@
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
 import type { CliIo } from "./main.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
+import type { RespondRerun } from "../responseSpectra.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, type ParsedCommon } from "./options.js";
 
 interface RespondFlags extends ParsedCommon {
   fn: string;
@@ -16,6 +17,11 @@ interface RespondFlags extends ParsedCommon {
   strokeMm?: number;
   as?: "recording" | "profile" | "psd";
   json?: boolean;
+  report?: string;
+  csv?: string;
+  meta?: string;
+  force?: boolean;
+  quiet?: boolean;
 }
 
 const KINDS = ["recording", "profile", "psd"] as const;
@@ -43,25 +49,39 @@ export function registerRespond(program: Command, io: CliIo): void {
       return v;
     })
     .option("--json", "print the result as JSON")
-    .action(async (source: string, o: RespondFlags) => {
-      const { compareResponses, loadSpectrumSource, parseFnGrid, responseSpectra } = await import("../responseSpectra.js");
+    .option("--report <out.html>", "also write a self-contained HTML record: response spectra, kinematics and stroke, identity and sign-off (psdgate verify re-runs it)")
+    .option("--csv <out>", "also write per natural frequency the response RMS (exact, Miles), relative displacement, largest peak and damage (and --against's, with the ratios) to this CSV")
+    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
+    .option("--force", "replace an existing report file")
+    .option("-q, --quiet", "no progress bar (respond shows none; accepted so every analysis command takes it)")
+    .action(async (source: string, o: RespondFlags, cmd: Command) => {
+      const { parseFnGrid, runResponse } = await import("../responseSpectra.js");
       const { responseJson, responseText } = await import("../report/responseReport.js");
       const { VERSION } = await import("../version.js");
       if (o.channel !== undefined && o.channel.length > 1) throw new InputError("OPTION_INVALID", { option: "--channel", expected: "one channel", received: o.channel.join(", ") });
       const fnHz = parseFnGrid(o.fn);
       const base = analysisOptions(o);
-      const sn = { basquinB: o.basquin, snConstant: o.snConstant, stressPerUnit: o.stressPerMetre };
-      // A recording is also filtered through each SDOF in time: damage by rainflow, the largest response (the non-Gaussian part the PSD hides).
-      const response = { fnHz, q: o.q, basquinB: o.basquin ?? (await import("../estimate/fatigueDamage.js")).SN_DEFAULTS.basquinB };
-      const a = await loadSpectrumSource(source, { ...base, as: o.as, channel: o.channel?.[0], response });
-      const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.duration, sn, strokeMm: o.strokeMm });
-      let against;
-      if (o.against !== undefined) {
+      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+      const inputs = [source, ...(o.against !== undefined ? [o.against] : []), ...(o.meta !== undefined ? [o.meta] : [])];
+      const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+      if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
+      if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
+      const rerun: RespondRerun = {
+        fn: o.fn, q: o.q, durationS: o.duration, sn: { basquinB: o.basquin, snConstant: o.snConstant, stressPerUnit: o.stressPerMetre }, strokeMm: o.strokeMm,
+        source: { ...base, as: o.as, channel: o.channel?.[0] },
         // --from/--to cut SOURCE; the --against input is taken whole (its own length is its exposure).
-        const bsrc = await loadSpectrumSource(o.against, { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channel: o.againstChannel, response }, "againstChannel");
-        const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.againstDuration, sn });
-        against = { b, c: compareResponses(r, b) };
+        against: o.against !== undefined ? { file: o.against, options: { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channel: o.againstChannel }, durationS: o.againstDuration } : undefined,
+      };
+      const { r, against } = await runResponse(source, rerun);
+      if (o.csv !== undefined) {
+        const { responseCsv } = await import("../report/responseReport.js");
+        await writeAtomic(o.csv, responseCsv(r, against), { inputs, force: o.force, option: "--csv" });
       }
-      io.stdout(o.json ? JSON.stringify(responseJson(r, VERSION, against)) + "\n" : responseText(r, VERSION, against));
+      if (o.report !== undefined) {
+        const { responseHtml } = await import("../report/responseHtml.js");
+        const { rerunOptions } = await import("./options.js");
+        await writeAtomic(o.report, responseHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun: rerunOptions(rerun as never) }, against), { inputs, force: o.force, option: "--report" });
+      }
+      io.stdout(o.json ? JSON.stringify({ ...responseJson(r, VERSION, against), ...(meta ? { meta } : {}) }) + "\n" : responseText(r, VERSION, against));
     });
 }

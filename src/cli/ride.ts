@@ -1,9 +1,9 @@
 import type { Command } from "commander";
-import { POSTURES, type Axis, type Posture } from "../compare/wholeBodyExposure.js";
+import { POSTURES, type Axis, type HealthZone, type Posture } from "../compare/wholeBodyExposure.js";
 import { InputError, quoted } from "../errors.js";
 import { VERSION } from "../version.js";
 import type { CliIo } from "./main.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, parseDuration, type ParsedCommon } from "./options.js";
+import { addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, parseDuration, rerunOptions, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 
 /** `x=seat_x,y=2,z=seat_z` → channel of each axis. */
@@ -30,6 +30,22 @@ function exposureOption(text: string): number {
 
 export { parseDuration };
 
+/** `a8=0.43-0.86,vdv=8.5-17` → the caution zone's bounds at 8 h (both pairs, lower below upper). */
+export function parseHealthZone(text: string): HealthZone {
+  const got: Record<string, [number, number]> = {};
+  for (const part of text.split(",")) {
+    const m = /^\s*(a8|vdv)\s*=\s*([0-9.]+)\s*[-–:]\s*([0-9.]+)\s*$/i.exec(part);
+    const lo = Number(m?.[2]);
+    const hi = Number(m?.[3]);
+    if (!m || !(lo > 0 && hi > lo) || got[m[1]!.toLowerCase()]) {
+      throw new InputError("OPTION_INVALID", { option: "--health-zone", expected: "a8=LOWER-UPPER,vdv=LOWER-UPPER (m/s² and m/s^1.75 at 8 h, lower below upper), e.g. a8=0.43-0.86,vdv=8.5-17", received: quoted(part) });
+    }
+    got[m[1]!.toLowerCase()] = [lo, hi];
+  }
+  if (!got.a8 || !got.vdv) throw new InputError("OPTION_INVALID", { option: "--health-zone", expected: "both bounds: a8=LOWER-UPPER,vdv=LOWER-UPPER", received: quoted(text) });
+  return { a8LowerMs2: got.a8[0], a8UpperMs2: got.a8[1], vdvLowerMs175: got.vdv[0], vdvUpperMs175: got.vdv[1] };
+}
+
 interface RideFlags extends ParsedCommon {
   axes: Partial<Record<Axis, string>>;
   posture: Posture;
@@ -41,6 +57,8 @@ interface RideFlags extends ParsedCommon {
   quiet?: boolean;
   report?: string;
   force?: boolean;
+  meta?: string;
+  healthZone?: HealthZone;
 }
 
 /** Registers `psdgate ride` onto the program. */
@@ -61,29 +79,35 @@ export function registerRide(program: Command, io: CliIo): void {
     .option("--floor <channel>", "vertical floor channel beneath the seat: adds the seat's effective amplitude transmissibility (SEAT)")
     .option("--running-rms <s>", "integration time of the running r.m.s. and of the stationarity stretches (default 1 s)", numberOption("--running-rms", (x) => x > 0 && x <= 60, "an integration time in s, 0 < t <= 60"))
     .option("--peak-hold <s>", "also a peak-hold spectrum of each axis (unweighted): at each line the largest Welch PSD of consecutive stretches of this length (s), beside the average", numberOption("--peak-hold", (x) => x > 0 && Number.isFinite(x), "a stretch length in s above 0"))
+    .option("--health-zone <bounds>", "the ISO 2631-1 Annex B caution zone at 8 h as the lab has confirmed it: a8=LOWER-UPPER,vdv=LOWER-UPPER (default psdgate's a8=0.43-0.86,vdv=8.5-17, to be confirmed)", parseHealthZone)
+    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
     .option("--json", "print the result as JSON (SI units)")
     .option("--report <out.html>", "also write a self-contained HTML report: level over time, spectrograms, spectra, exposure against the limit values")
     .option("--force", "replace an existing report file")
     .option("-q, --quiet", "no progress bar")
     .addHelpText("after", "\nWithout --exposure: a_w, crest factor, VDV, MTVV, total value and comfort of the recording; A(8), the daily VDV and their judgement need it.\nRates from 100 Hz up; every result states the weighting filter's error at its rate (a_w, VDV, MTVV, crest, A(8) carry it).\nRide's Welch defaults differ from psd's: 0.125 Hz lines (--resolution) and 75 % overlap (--overlap).\nResults are in SI units (m/s², m/s^1.75); --units and --scale say what the file holds.\nAn engineering estimate from one recording, not an occupational-health assessment: local regulations and competent persons decide.\n")
-    .action(async (file: string, o: RideFlags) => {
+    .action(async (file: string, o: RideFlags, cmd: Command) => {
       if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "channels given by --axes (and --floor) for ride", received: o.channel.join(",") });
       if (o.resultUnits !== undefined && o.resultUnits !== "m/s2") throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: "m/s2 (ride results are SI)", received: o.resultUnits });
       const { rideRecording } = await import("../rideRecording.js");
       const { rideJson, rideText } = await import("../report/rideReport.js");
+      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+      const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
+      if (o.report !== undefined) (await import("../report/writeAtomic.js")).checkOutputPath(o.report, inputs, o.force, "--report");
       const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
       const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
+      const options = { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, peakHoldS: o.peakHold, healthZone: o.healthZone };
       let r;
       try {
-        r = await rideRecording(file, { ...base, axes: o.axes, posture: o.posture, exposureS: o.exposure, floor: o.floor, runningRmsS: o.runningRms, peakHoldS: o.peakHold, spectrogram: o.report !== undefined, onProgress: (d, t) => progress.update(d, t) });
+        r = await rideRecording(file, { ...options, spectrogram: o.report !== undefined, onProgress: (d, t) => progress.update(d, t) });
       } finally {
         progress.end();
       }
       if (o.report !== undefined) {
         const { rideHtml } = await import("../report/rideHtml.js");
         const { writeAtomic } = await import("../report/writeAtomic.js");
-        await writeAtomic(o.report, rideHtml(r, VERSION, new Date()), { inputs: [file], force: o.force, option: "--report" });
+        await writeAtomic(o.report, rideHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun: rerunOptions(options) }), { inputs, force: o.force, option: "--report" });
       }
-      io.stdout(o.json ? JSON.stringify(rideJson(r, VERSION)) + "\n" : rideText(r, VERSION));
+      io.stdout(o.json ? JSON.stringify({ ...rideJson(r, VERSION), ...(meta ? { meta } : {}) }) + "\n" : rideText(r, VERSION));
     });
 }

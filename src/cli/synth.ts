@@ -23,7 +23,9 @@ export function registerSynth(program: Command, io: CliIo): void {
     .option("--tone-db <db>", "shift the profile's sine tones by this many dB on top of --level-db (a tone low or high)", numberOption("--tone-db", (x) => Math.abs(x) <= 60, "a level shift within ±60 dB"), 0)
     .option("--without-tones", "leave out the profile's sine tones (random only)")
     .option("--force", "replace an existing output file")
-    .action(async (o: { profile: string; duration: number; rate: number; out: string; seed: number; channels: number; levelDb: number; toneDb: number; withoutTones?: boolean; force?: boolean }) => {
+    .option("--json", "print what was written as JSON (file, samples, seed, per channel RMS, kurtosis, crest factor; the profile's stroke)")
+    .option("-q, --quiet", "no progress output (synth shows none; accepted so every command that writes takes it)")
+    .action(async (o: { profile: string; duration: number; rate: number; out: string; seed: number; channels: number; levelDb: number; toneDb: number; withoutTones?: boolean; force?: boolean; json?: boolean }) => {
       const { loadProfile } = await import("../checkRecording.js");
       const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");
       const { synthesizeProfile } = await import("../synth/synthesizeProfile.js");
@@ -52,10 +54,24 @@ export function registerSynth(program: Command, io: CliIo): void {
         throw e;
       }
       const u = accelLabel(profile.units);
+      const { profileMotion } = await import("../compare/testProfile.js");
+      const { STROKE_CAUTION } = await import("../report/cautions.js");
+      const level = 10 ** (o.levelDb / 20);
+      const m = profileMotion(profile);
+      const pkpkMm = m.displacementPeakToPeak * level * 1000;
+      if (o.json) {
+        io.stdout(JSON.stringify({
+          tool: { name: "psdgate", version: VERSION }, file: o.out, samples: r.frames, channels: o.channels, sampleRateHz: o.rate, seed: o.seed, filterTaps: r.filterTaps, levelDb: o.levelDb,
+          profile: { file: profile.file, sha256: profile.sha256, title: profile.title, rms: profile.rms * level, displacementPeakToPeakM: pkpkMm / 1000 },
+          channelStats: r.stats.map((s, i) => ({ name: names[i], rms: s.rms, kurtosis: s.kurtosis, crestFactor: s.crestFactor })), caution: STROKE_CAUTION,
+        }) + "\n");
+        return;
+      }
       io.stdout(`psdgate ${VERSION}: wrote ${printable(o.out)}: ${r.frames} samples x ${o.channels} channel(s) at ${o.rate} Hz, seed ${o.seed}, ${r.filterTaps}-tap shaping filter\n`);
-      io.stdout(`  profile "${printable(profile.title)}" ${sig(profile.rms, 4)} ${u} RMS${o.levelDb !== 0 ? `, shifted ${o.levelDb} dB to ${sig(profile.rms * 10 ** (o.levelDb / 20), 4)} ${u}` : ""}\n`);
+      io.stdout(`  profile "${printable(profile.title)}" ${sig(profile.rms, 4)} ${u} RMS${o.levelDb !== 0 ? `, shifted ${o.levelDb} dB to ${sig(profile.rms * level, 4)} ${u}` : ""}; stroke ${sig(pkpkMm, 4)} mm peak-to-peak estimate (6 x RMS displacement over the profile's band)\n`);
       for (const t of tones) io.stdout(`  tone ${sig(t.hz, 6)} Hz  ${sig(t.peak, 4)} ${u} peak, cosine at phase 0 rad on the first sample, every channel\n`);
       if (o.withoutTones && profile.tones.length > 0) io.stdout(`  tones left out (--without-tones): random only\n`);
       r.stats.forEach((s, i) => io.stdout(`  ${names[i]}  RMS ${sig(s.rms, 4)} ${u}, kurtosis ${s.kurtosis.toFixed(3)}, crest factor ${s.crestFactor.toFixed(2)}\n`));
+      io.stdout(`CAUTION: ${STROKE_CAUTION}\n`);
     });
 }

@@ -23,10 +23,10 @@ const MEANING = {
 export function registerVerify(program: Command, io: CliIo): void {
   program
     .command("verify")
-    .argument("<report.html>", "an HTML report written by psdgate check --report or psd --report")
+    .argument("<report.html>", "an HTML record written by any psdgate command's --report (check, psd, ride, transfer, respond, derive)")
     .description("check a report: its embedded result and page unedited, its recording and profile the ones it names (SHA-256), and its analysis re-run to the same numbers and verdict: reproduced (exit 0), differs (1), input missing (2)")
-    .option("--recording <file>", "the recording (default: the file of the recorded name beside the report, else at the recorded path)")
-    .option("--profile <file>", "the profile, for a check report (default: beside the report, else at the recorded path)")
+    .option("--recording <file>", "the recording (or respond's source recording; default: the file of the recorded name beside the report, else at the recorded path)")
+    .option("--profile <file>", "the profile, for a check record (or respond's source profile; default: beside the report, else at the recorded path)")
     .option("--tolerance <rel>", "relative tolerance on every number (default 1e-9)", numberOption("--tolerance", (x) => x >= 0 && x < 1, "a relative tolerance 0 <= t < 1"))
     .option("--json", "print the result as JSON")
     .action(async (report: string, o: VerifyFlags) => {

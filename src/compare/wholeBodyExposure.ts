@@ -46,6 +46,9 @@ export const DIRECTIVE_2002_44_EC = { a8ActionMs2: 0.5, a8LimitMs2: 1.15, vdvAct
  */
 export const ISO_2631_HEALTH_ZONE = { a8LowerMs2: 0.43, a8UpperMs2: 0.86, vdvLowerMs175: 8.5, vdvUpperMs175: 17 } as const;
 
+/** The caution zone's bounds at 8 h: ISO_2631_HEALTH_ZONE by default, or the lab's confirmed values (ride --health-zone). */
+export interface HealthZone { a8LowerMs2: number; a8UpperMs2: number; vdvLowerMs175: number; vdvUpperMs175: number }
+
 export const EIGHT_HOURS_S = 8 * 3600;
 
 export interface AxisFigures {
@@ -84,7 +87,7 @@ function zoneBand(v: number, lower: number, upper: number): ZoneBand {
 }
 
 /** Daily exposure from one recording taken as representative of `durationS` of exposure a day. */
-export function dailyExposure(axes: readonly AxisFigures[], rules: Record<Axis, AxisRule>, durationS: number): DailyExposure {
+export function dailyExposure(axes: readonly AxisFigures[], rules: Record<Axis, AxisRule>, durationS: number, zone: HealthZone = ISO_2631_HEALTH_ZONE): DailyExposure {
   let a8 = -Infinity;
   let a8Axis: Axis = "z";
   let vdv = -Infinity;
@@ -106,7 +109,7 @@ export function dailyExposure(axes: readonly AxisFigures[], rules: Record<Axis, 
     }
   }
   const d = DIRECTIVE_2002_44_EC;
-  const z = ISO_2631_HEALTH_ZONE;
+  const z = zone;
   // A(8) = k a_w sqrt(T / T0) reaches a value V after T = T0 (V / k a_w)^2.
   const after = (v: number) => (worstKaw > 0 ? EIGHT_HOURS_S * (v / worstKaw) ** 2 : Infinity);
   return {

@@ -71,3 +71,20 @@ export async function loadTestMeta(file: string): Promise<TestMeta> {
   const doc = plainDocument(body, file, "META_SYNTAX", !/\.ya?ml$/i.test(file), "META_INVALID");
   return parseTestMeta(doc, file);
 }
+
+/** The meta files psdgate looks for beside a recording (`run1.wav` → `run1.meta.yaml`, `.meta.yml`, `.meta.json`). */
+export function besideMetaNames(recording: string): string[] {
+  const stem = recording.replace(/\.[^./\\]*$/, "");
+  return [".meta.yaml", ".meta.yml", ".meta.json"].map((x) => stem + x);
+}
+
+/**
+ * One recording's test identity in a batch: a meta file beside it (besideMetaNames) overrides the batch's
+ * `--meta` key by key, so the lab states once what the batch shares and beside each recording what differs.
+ */
+export async function recordingMeta(recording: string, shared: TestMeta | undefined): Promise<{ meta: TestMeta | undefined; from: string | undefined }> {
+  const { existsSync } = await import("node:fs");
+  const file = besideMetaNames(recording).find((f) => existsSync(f));
+  if (file === undefined) return { meta: shared, from: undefined };
+  return { meta: { ...shared, ...(await loadTestMeta(file)) }, from: file };
+}

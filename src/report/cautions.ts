@@ -19,3 +19,8 @@ export const DERIVE_CAUTION =
   "A derived profile rests on a linear, lightly damped single-degree-of-freedom model with Gaussian, stationary response and on Miner's rule, and on field recordings that represent the service life. " +
   "Time compression raises the test's levels above the field's: check the extreme-response ratio, the item's and fixture's limits and any nonlinearity. " +
   "The governing test standard's tailoring process and a qualified engineer decide whether and how the profile is used.";
+
+/** The caution of a transfer record: it speaks of the figures this page shows (|H|, Q, resonances, coherence). */
+export const TRANSFER_CAUTION =
+  "The frequency responses, resonance frequencies and Q values on this page describe this fixture, item and mounting at the levels of this recording only: a response can shift with level, preload and temperature. " +
+  "Where they feed a decision about a fixture's or an item's fitness (a fixture survey, a notch, a test level) check them against the fixture's and exciter's rated limits with margin; the governing test standard, the lab's procedure and a qualified test engineer decide.";

@@ -1,11 +1,11 @@
 import type { DeriveResult } from "../deriveProfile.js";
-import { profileLevel, profileMotion } from "../compare/testProfile.js";
+import { profileLevel } from "../compare/testProfile.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";
 import { DAMAGE_RULE, deriveJson, EXTREME_RULE, TOLERANCE_RULE } from "./deriveReport.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, maxOf, minOf, sig } from "./format.js";
-import { qty, reportPage, row, shortHash, signOff, stamp, type ReportContext } from "./reportPage.js";
+import { metaRows, qty, recordDocument, reportPage, row, shortHash, signOff, stamp, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
 /**
@@ -27,6 +27,17 @@ export const DERIVE_STYLE = `
 .key.rec0, .key.rec1, .key.rec2, .key.rec3, .key.rec4, .key.rec5 { stroke-width: 2; }
 `;
 const EXTRA_STYLE = `<style>${DERIVE_STYLE}</style>`;
+
+/** Where the written tolerances came from: options given, or psdgate's defaults that the lab confirms against its governing standard. */
+function toleranceFrom(ctx: ReportContext): string {
+  const flags = ["--band-db", "--rms-percent", "--min-dof"];
+  const given = flags.filter((f) => ctx.given?.some((g) => g === f || g.startsWith(`${f} `)));
+  const defaults = flags.filter((f) => !given.includes(f));
+  return [
+    given.length ? `Given with ${given.join(", ")}.` : "",
+    defaults.length ? `${defaults.join(", ")} at psdgate's defaults (±3 dB, ±10 %, 120 DOF): settings the lab confirms against the test standard it works to.` : "",
+  ].filter(Boolean).join(" ");
+}
 
 /** A short legend name: the group when it has one recording, else the file's base name; at most 16 characters. */
 function legendName(x: DeriveResult["recordings"][number], r: DeriveResult): string {
@@ -105,14 +116,19 @@ export function deriveHtml(r: DeriveResult, version: string, when: Date, context
   }).join("\n");
   const body = `${EXTRA_STYLE}
 <div class="verdict none" id="verdict" data-verdict="none"><span class="word">PROFILE</span><span>${esc(summary)}</span></div>
+<h2>Test identity</h2>
+<table class="meta" id="identity">
+${metaRows(ctx.meta)}
+</table>
 <h2>The derived profile</h2>
 <table class="meta" id="derived">
 ${row("Profile file", esc(context.outFile))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
 ${row("Title", esc(d.title))}
 ${row("Range and level", `${qty(`${sig(lo)}–${sig(hi)}`, "Hz")}, ${qty(sig(p.rms, 4), u)} RMS, ${qty(sig(r.testDurationS, 6), "s")}`)}
-${row("Velocity and stroke", (() => { const m = profileMotion(p); return `${qty(sig(m.velocityRms * 1000, 4), "mm/s")} RMS velocity, ${qty(sig(m.displacementRms * 1000, 4), "mm")} RMS displacement, ${qty(sig(m.displacementPeakToPeak * 1000, 4), "mm")} peak-to-peak estimate (6 × RMS)`; })())}
-${row("Tolerance written", `±${d.tolerance.bands[0]!.upperDb} dB band, RMS ±${d.tolerance.rmsPercent} %, at least ${d.minDof} DOF, ${sig(d.resolutionHz!, 4)} Hz lines (defaults: ±3 dB, ±10 %, 120 DOF as recalled for IEC 60068-2-64 and MIL-STD-810H, from memory; the field's line spacing)`)}
+${row("Velocity and displacement", `${qty(sig(r.motion.velocityRms * 1000, 4), "mm/s")} RMS velocity, ${qty(sig(r.motion.displacementRms * 1000, 4), "mm")} RMS displacement, ${qty(sig(r.motion.displacementPeakToPeak * 1000, 4), "mm")} peak-to-peak estimate (6 × RMS)`)}
+${row("Against the rated stroke", r.stroke ? `${qty(fixed(r.stroke.estimateMm, 2), "mm")} against ${qty(sig(r.stroke.ratedMm, 4), "mm")} rated (--stroke-mm): ${r.stroke.withinRating ? `within the rating (margin ×${fixed(r.stroke.margin, 2)})` : `<strong>EXCEEDS</strong> the rating by ${fixed(100 * (1 / r.stroke.margin - 1), 0)} %`}` : `<strong>not checked</strong>: no rated stroke given (--stroke-mm)`)}
+${row("Tolerance written", `±${d.tolerance.bands[0]!.upperDb} dB band, RMS ±${d.tolerance.rmsPercent} %, at least ${d.minDof} DOF, ${sig(d.resolutionHz!, 4)} Hz lines (the field's line spacing). ${esc(toleranceFrom(ctx))}`)}
 ${row("Coverage", `test FDS / field FDS from ${fixed(r.fit.minRatio, 4)} (at ${sig(r.fit.minRatioHz, 4)} Hz) to ${fixed(r.fit.maxRatio, 3)}, median ${fixed(r.fit.medianRatio, 3)}; damage margin ×${r.margin}`)}
 ${row("Time compression", `flat case G_test = G_field (T_field / T_test)^(2/b) = ×${sig(r.compression.flatFactor, 4)} in level; this profile ${sig(p.rms, 4)} ${esc(u)} RMS against the mean field's ${sig(r.compression.meanFieldRms, 4)} ${esc(u)} (×${sig(r.compression.rmsRatio ** 2, 4)} in power)`)}
 ${row("Extreme response", `test / field from ${fixed(minOf(r.extremeRatio), 3)} to ${fixed(maxOf(r.extremeRatio), 3)}, limit ×${r.extremeLimit}: ${r.extremeWarnings.length === r.fnHz.length ? "<strong>exceeded</strong> at every natural frequency" : r.extremeWarnings.length ? `<strong>exceeded</strong> at ${esc(r.extremeWarnings.map((x) => sig(x, 4)).join(", "))} Hz` : "not exceeded"}`)}
@@ -140,22 +156,25 @@ ${ratioPlot}
 <table class="meta" id="settings">
 ${row("Damage", esc(DAMAGE_RULE))}
 ${row("Extreme response", esc(EXTREME_RULE))}
-${row("SDOF systems", `Q ${r.q} (default 10, common practice), Basquin b ${r.sn.basquinB} (default 8, common practice: use the material's), ${r.fnHz.length} natural frequencies from ${sig(lo)} to ${sig(hi)} Hz; field and test spectra both cut to that band`)}
+${row("SDOF systems", `Q ${r.q}${ctx.given?.some((g) => g.startsWith("--q ")) ? " (given with --q)" : " (psdgate's default 10, common practice; --q sets it)"}, Basquin b ${r.sn.basquinB}${ctx.given?.some((g) => g.startsWith("--basquin ")) ? " (given with --basquin)" : " (psdgate's default 8, common practice: the lab sets the material's with --basquin)"}, ${r.fnHz.length} natural frequencies from ${sig(lo)} to ${sig(hi)} Hz; field and test spectra both cut to that band`)}
 ${row("Fit", `at most ${r.fit.maxBreakpoints} breakpoints on the grid, log-log; upper envelope of the inverted FDS by dynamic programming, then one uniform scale (×${fixed(r.fit.scale, 4)}) so that coverage holds everywhere, checked with the full computation`)}
 ${row("Options given", given)}
 ${row("Computed", `psdgate ${esc(version)}, ${esc(stamp(when))}`)}
 </table>
 ${r.notes.length ? `<h2>Notes</h2><ul>${r.notes.map((n) => `<li>${esc(n)}</li>`).join("")}</ul>` : ""}
 <h2>Caution</h2>
-<div class="caution">${esc(DERIVE_CAUTION)}</div>
-<div class="caution">${esc(SHAKER_CAUTION)}</div>
+<div class="caution keep">${esc(DERIVE_CAUTION)}</div>
+<div class="caution keep">${esc(SHAKER_CAUTION)}</div>
 ${signOff(`<strong>Derived profile</strong>: ${esc(summary)}`, [
+    ["Test", esc([ctx.meta?.testId, ctx.meta?.workOrder && `work order ${ctx.meta.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
+    ["Item", esc([ctx.meta?.item, ctx.meta?.serialNumber && `serial ${ctx.meta.serialNumber}`].filter(Boolean).join(", ") || "not stated")],
     ["Profile", `${esc(d.title)} <span class="hash">${shortHash(p.sha256)}</span>`],
     ["Field recordings", esc(`${r.recordings.length} (${r.groups.map((g) => g.name).join(", ")})`)],
+    ["Operator", esc(ctx.meta?.operator ?? "not stated")],
   ])}`;
   const page = reportPage({
-    title: `Derived test profile: ${d.title}`, verdictClass: "none", verdictWord: DERIVE_WORD, recordingSha256: p.sha256, recordingName: name,
+    title: ctx.meta?.testId ? `Derived test profile, test ${ctx.meta.testId}: ${d.title}` : `Derived test profile: ${d.title}`, verdictClass: "none", verdictWord: DERIVE_WORD, recordingSha256: p.sha256, recordingName: name,
     kindLine: "Field-to-lab derivation record", body, hashLabel: "profile",
   }, ctx);
-  return embedResult(page, { kind: "derive", created: when.toISOString(), given: ctx.given ?? [], rerun: ctx.rerun ?? null, result: deriveJson(r, version) });
+  return embedResult(page, recordDocument("derive", ctx, deriveJson(r, version), { written: { file: context.outFile, sha256: p.sha256 } }));
 }

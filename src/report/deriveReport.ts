@@ -19,7 +19,7 @@ export function profileDocumentText(doc: ProfileDocument, file: string): string 
 
 export const DAMAGE_RULE = "narrow-band Rayleigh (Miles 1954): E[D] = nu0+ T / C (sqrt 2 K sigma_z)^b Gamma(1 + b/2), stress K z (relative displacement, m), S-N curve N S^b = C with C = K = 1 (a relative damage, as respond gives it)";
 export const EXTREME_RULE = "Davenport 1964: expected largest peak of the absolute-acceleration response, sigma (sqrt(2 ln(nu0+ T)) + 0.5772 / sqrt(2 ln(nu0+ T)))";
-export const TOLERANCE_RULE = "one-sided normal tolerance limit on log10 PSD per line: 10^(mean + k s), k = t'_gamma(n - 1, z_p sqrt(n)) / sqrt(n) from the noncentral t (Natrella 1963; NIST/SEMATECH e-Handbook sec. 7.2.6.3; from memory)";
+export const TOLERANCE_RULE = "one-sided normal tolerance limit on log10 PSD per line: 10^(mean + k s), k = t'_gamma(n - 1, z_p sqrt(n)) / sqrt(n) from the noncentral t (Natrella 1963; NIST/SEMATECH e-Handbook sec. 7.2.6.3; k checked against scipy.stats.nct in psdgate's tests)";
 
 /** The `derive --json` document (README.md, "derive"). */
 export function deriveJson(r: DeriveResult, version: string) {
@@ -66,6 +66,8 @@ export function deriveJson(r: DeriveResult, version: string) {
         : { n: t.n, coverage: t.coverage, confidence: t.confidence, k: t.k, limit: arr(t.limit), rule: TOLERANCE_RULE },
     },
     profile: r.document,
+    motion: { velocityRmsMs: r.motion.velocityRms, displacementRmsM: r.motion.displacementRms, displacementPeakToPeakM: r.motion.displacementPeakToPeak, rule: "closed form over the profile's band; peak-to-peak 6 x RMS (±3 sigma), common practice" },
+    stroke: r.stroke ?? null,
     notes: r.notes,
     candidateTones: r.candidateTones,
     caution: DERIVE_CAUTION,
@@ -96,6 +98,8 @@ export function deriveText(r: DeriveResult, version: string, outFile: string): s
     table(pts),
     "",
     `  profile    ${sig(r.profile.rms, 4)} ${u} RMS, ${r.document.points.length} breakpoints (at most ${r.fit.maxBreakpoints}); tolerance ±${r.document.tolerance.bands[0]!.upperDb} dB, RMS ±${r.document.tolerance.rmsPercent} %, ${r.document.minDof} DOF, ${r.document.resolutionHz} Hz lines, ${r.document.durationS} s`,
+    `  motion     ${sig(r.motion.velocityRms * 1000, 4)} mm/s RMS velocity, ${sig(r.motion.displacementRms * 1000, 4)} mm RMS displacement, ${sig(r.motion.displacementPeakToPeak * 1000, 4)} mm peak-to-peak estimate (6 x RMS)`,
+    `  stroke     ${r.stroke ? `${fixed(r.stroke.estimateMm, 2)} mm against ${sig(r.stroke.ratedMm, 4)} mm rated: ${r.stroke.withinRating ? `within the rating (margin x${fixed(r.stroke.margin, 2)})` : `EXCEEDS the rating by ${fixed(100 * (1 / r.stroke.margin - 1), 0)} %`}` : "not checked: give the exciter's rated peak-to-peak stroke with --stroke-mm"}`,
     `  coverage   test FDS / field FDS ≥ ${fixed(r.fit.minRatio, 4)} everywhere (lowest at ${sig(r.fit.minRatioHz, 4)} Hz); median ${fixed(r.fit.medianRatio, 3)}, largest ${fixed(r.fit.maxRatio, 3)} (the over-test the fit leaves)`,
     `  compression flat case G_test = G_field (T_field / T_test)^(2/b) = ×${sig(r.compression.flatFactor, 4)} in level; this profile's RMS is ×${sig(r.compression.rmsRatio, 4)} the mean field's (×${sig(r.compression.rmsRatio ** 2, 4)} in power)`,
     `  shocks     ${r.shocks.eventsPerRecording.reduce((s, x) => s + x, 0)} event(s) in the field recordings${r.shocks.largestEvents.length ? ` (largest ${r.shocks.largestEvents[0]!.peak >= 0 ? "+" : ""}${sig(r.shocks.largestEvents[0]!.peak, 4)} ${u} at ${fixed(r.shocks.largestEvents[0]!.timeS, 3)} s in ${printable(r.recordings[r.shocks.largestEvents[0]!.recording]!.file)})` : ""}; ` +

@@ -130,8 +130,13 @@ export function scanPage(html: string): ScannedPage {
 /** Start tags and attributes psdgate never writes into a report page. */
 const FORBIDDEN_TAGS = new Set(["details", "dialog", "slot", "marquee", "script", "link", "iframe", "frame", "frameset", "object", "embed", "base", "img", "image", "input", "form", "button", "video", "audio", "source", "track", "portal", "noscript", "foreignobject", "use", "a", "textarea", "select", "animate", "set", "animatemotion", "animatetransform"]);
 
+/** A relative link to a file in the same folder (encoded as encodeURI writes it), as a batch index writes. */
+function isSiblingFile(href: string | undefined): boolean {
+  return href !== undefined && /^[^:/\\?#]+\.html$/i.test(href) && !href.startsWith(".");
+}
+
 /** The first thing in a page that psdgate never writes, in words, or undefined. */
-export function foreignContent(page: ScannedPage): string | undefined {
+export function foreignContent(page: ScannedPage, opts: { links?: boolean } = {}): string | undefined {
   if (page.malformed) return page.malformed;
   // One template, the result's: content inside any other template is never rendered (a banner could hide there).
   const templates = page.tags.filter((t) => t.name === "template");
@@ -139,6 +144,8 @@ export function foreignContent(page: ScannedPage): string | undefined {
   for (const t of page.tags) {
     // Attributes that hide an element without any style: hidden, a popover (hidden until shown).
     if (t.attrs.has("hidden") || t.attrs.has("popover")) return `a ${t.attrs.has("hidden") ? "hidden" : "popover"} attribute on <${t.name}>`;
+    // A batch index links its reports: <a href> to a file beside it (no scheme, no absolute or parent path), nothing else.
+    if (opts.links === true && t.name === "a" && isSiblingFile(t.attrs.get("href")) && [...t.attrs.keys()].every((k) => k === "href")) continue;
     if (FORBIDDEN_TAGS.has(t.name)) return `a <${t.name}> element`;
     if (t.name === "meta" && t.attrs.has("http-equiv") && t.attrs.get("http-equiv")!.toLowerCase() !== "content-security-policy") return `a <meta http-equiv="${t.attrs.get("http-equiv")}"> element`;
     for (const k of t.attrs.keys()) {

@@ -68,7 +68,8 @@ table.excursions td:last-child { width: 30%; } table.excursions { font-size: 8.5
 .shown { fill: #c0392b; stroke: #111; stroke-width: .6; }
 .tone { fill: #f2c14e; stroke: #111; stroke-width: .6; } .note-tick { stroke: #111; stroke-width: .6; } .note-text { font-size: 9.5px; fill: #111; }
 .bars { fill: #9fb8c8; stroke: #5d7f93; stroke-width: .4; } .gauss { fill: none; stroke: #b0552f; stroke-width: 1.6; stroke-dasharray: 6 3; }
-.caution { border-left: 4px solid #b0552f; padding: 2mm 4mm; background: #fbf3ee; margin: 3mm 0; }
+.caution { border-left: 4px solid #b0552f; padding: 2mm 4mm; background: #fbf3ee; margin: 3mm 0; break-inside: avoid; }
+thead { display: table-header-group; break-inside: avoid; break-after: avoid; } table.grid tbody tr:first-child { break-before: avoid; }
 .signoff-block { break-inside: avoid; margin-top: 6mm; }
 .signoff { margin-top: 5mm; display: grid; grid-template-columns: 1fr 1fr 0.6fr; gap: 8mm; }
 .signoff div { border-top: 1px solid #1d2428; padding-top: 1.5mm; font-size: 9pt; color: #4b5c63; height: 17mm; }
@@ -285,4 +286,51 @@ export function signOff(summary: string, identity: [string, string][]): string {
 <table>${identity.map(([k, v]) => row(k, v)).join("")}</table>
 <div class="signoff"><div>Prepared by (name, signature)</div><div>Reviewed by (name, signature)</div><div>Date</div></div>
 </section>`;
+}
+
+/**
+ * The record frame's parts for every kind that is not a single-recording check or psd (ride, transfer,
+ * respond, derive): the identity rows from --meta, a sign-off naming the test, the item and every input
+ * by short hash, and the embedded result document, one shape for every kind (what `verify` dispatches on).
+ */
+export type RecordKind = "check" | "psd" | "ride" | "transfer" | "respond" | "derive" | "batch" | "shock";
+
+/** The test identity from --meta as table rows (every key given), or a line saying none was given. */
+export function metaRows(meta: TestMeta | undefined, startTime?: string): string {
+  const rows = META_LABELS.filter(([k]) => meta?.[k] !== undefined).map(([k, label]) => row(label, esc(meta![k]!)));
+  if (startTime !== undefined) rows.push(row("Recording started", esc(startTime)));
+  if (rows.length === 0) rows.push(row("Identity", `<span class="muted">none given (psdgate --meta FILE names the test, item, serial, axis, fixture, sensor and operator)</span>`));
+  return rows.join("\n");
+}
+
+/** The sign-off of any record: its word and summary, the test, the item, every input by short hash, the operator. */
+export function recordSignOff(word: string, summary: string, meta: TestMeta | undefined, inputs: { label: string; file: string; sha256: string }[]): string {
+  const m = meta;
+  return signOff(`<strong>${esc(word)}</strong>: ${esc(summary)}`, [
+    ["Test", esc([m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
+    ["Item", esc([m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`].filter(Boolean).join(", ") || "not stated")],
+    ...inputs.map((i): [string, string] => [i.label, `${esc(i.file)} <span class="hash">${shortHash(i.sha256)}</span>`]),
+    ["Operator", esc(m?.operator ?? "not stated")],
+  ]);
+}
+
+/** The result embedded in a record: kind, when, identity, the options that re-run it, the options given, the result. */
+export function recordDocument(kind: RecordKind, ctx: ReportContext, result: unknown, extra: Record<string, unknown> = {}): Record<string, unknown> {
+  return { kind, created: ctx.when.toISOString(), meta: ctx.meta ?? null, rerun: ctx.rerun ?? null, given: ctx.given ?? [], ...extra, result };
+}
+
+/** "Options given" as a table row: each flag as code, or a line saying none was given. */
+export function givenRow(ctx: ReportContext): string {
+  const given = ctx.given && ctx.given.length > 0 ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
+  return row("Options given", given);
+}
+
+/** How one channel's file numbers became accelerations, in words (unit and its source, sensitivity, calibration, conversion). */
+export function readingWords(r: ChannelAnalysis["reading"], factor: number, resultUnit: string): string {
+  const parts = [`${r.fileUnit} ${UNIT_FROM[r.unitFrom] ?? r.unitFrom}`];
+  if (r.sensitivity) parts.push(`sensitivity ${r.sensitivity}`);
+  if (r.fileScale !== 1) parts.push(`the file's calibration ×${r.fileScale}`);
+  if (r.scale !== 1) parts.push(`--scale ×${r.scale}`);
+  parts.push(factor === 1 ? `read as ${resultUnit} (×1)` : `overall ×${sig(factor, 8)} from file number to ${resultUnit}`);
+  return parts.join(", ");
 }

@@ -166,7 +166,7 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
           ...(td.coarseHz.length ? [`             Between fs/10 and fs/4 (${td.coarseHz.map((f) => sig(f, 4)).join(", ")} Hz) the sampled peak can fall short by up to 1 - cos(pi fn/fs).`] : []),
         ]
       : []),
-    "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, tests/estimate/peakStatistics.test.ts).",
+    "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, by psdgate's own simulation check).",
     "  damage     narrow-band Rayleigh, relative: only ratios at the same b and C mean anything.",
   );
   const m = r.motion;
@@ -195,4 +195,18 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
   }
   lines.push("", `CAUTION: ${RESPONSE_CAUTION}`, `CAUTION: ${STROKE_CAUTION}`, "");
   return lines.join("\n");
+}
+
+/** `respond --csv`: per natural frequency the response RMS (exact, Miles), relative displacement, largest peak and damage; with --against, B's and the ratios. */
+export function responseCsv(r: ResponseSpectra, against?: { b: ResponseSpectra; c: ResponseComparison }): string {
+  const u = r.source.units === "g" ? "g" : "m/s2";
+  const head = ["fn_hz", `accel_rms [${u}]`, `miles_rms [${u}]`, "rel_disp_rms [m]", `extreme_peak [${u}]`, "fatigue_damage [relative]"];
+  if (against) head.push(`against_accel_rms [${u}]`, `against_extreme_peak [${u}]`, "against_fatigue_damage [relative]", "rms_ratio_db", "extreme_ratio_db", "damage_ratio");
+  const lines = [head.join(",")];
+  for (let i = 0; i < r.fnHz.length; i++) {
+    const row = [r.fnHz[i], r.accelRms[i], r.milesRms[i], r.relDispRms[i], r.extremePeak[i], r.fatigueDamage[i]];
+    if (against) row.push(against.b.accelRms[i], against.b.extremePeak[i], against.b.fatigueDamage[i], against.c.rmsRatioDb[i], against.c.extremeRatioDb[i], against.c.damageRatio[i]);
+    lines.push(row.map((v) => (Number.isFinite(v!) ? String(v) : "")).join(","));
+  }
+  return lines.join("\n") + "\n";
 }

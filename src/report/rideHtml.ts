@@ -1,9 +1,10 @@
-import { DIRECTIVE_2002_44_EC, EIGHT_HOURS_S, ISO_2631_HEALTH_ZONE } from "../compare/wholeBodyExposure.js";
+import { DIRECTIVE_2002_44_EC, EIGHT_HOURS_S } from "../compare/wholeBodyExposure.js";
 import type { RideAxis, RideResult } from "../rideRecording.js";
 import { weightingPowerGains } from "../weight/isoWeightings.js";
 import { fixed, rateText, sig } from "./format.js";
-import { STYLE } from "./htmlReport.js";
-import { RIDE_CAUTIONS } from "./rideReport.js";
+import { embedResult } from "./embeddedResult.js";
+import { metaRows, recordDocument, recordingRows, recordSignOff, reportPage, row, settingsRows, startTimeOf, type ReportContext } from "./reportPage.js";
+import { RIDE_CAUTIONS, rideJson, zoneFrom } from "./rideReport.js";
 import { windowText } from "./psdText.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
@@ -14,7 +15,7 @@ import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
  * departing stretches marked, a one-third-octave spectrogram per axis, the unweighted and weighted
  * spectra, the notes, the cautions and a sign-off block.
  */
-const RIDE_STYLE = `
+export const RIDE_STYLE = `
 .heat rect.cell { stroke: none; }
 .stretch-mark { fill: #b0552f; fill-opacity: .18; stroke: none; } .key.stretch-mark { stroke: #b0552f; stroke-width: 8; stroke-opacity: .3; }
 .axis-x { fill: none; stroke: #1b4f7a; stroke-width: 1.1; } .axis-y { fill: none; stroke: #3d8a5a; stroke-width: 1.1; } .axis-z { fill: none; stroke: #7a2f6b; stroke-width: 1.3; }
@@ -22,9 +23,6 @@ const RIDE_STYLE = `
 .action { fill: none; stroke: #8a6400; stroke-width: 1.2; stroke-dasharray: 6 3; } .limitline { fill: none; stroke: #9c2f1c; stroke-width: 1.4; }
 `;
 
-function row(k: string, v: string): string {
-  return `<tr><th>${esc(k)}</th><td>${v}</td></tr>`;
-}
 
 /** Colour of a level in dB between lo and hi: a light-to-dark blue ramp. */
 function heatColour(db: number, lo: number, hi: number): string {
@@ -57,8 +55,15 @@ function svgSpectrogram(id: string, a: RideAxis, fromS: number): string {
     }
   }
   for (let b = 0; b < ny; b += 3) out.push(`<text class="tick" x="${m.left - 6}" y="${(h - m.bottom - (b + 0.5) * ch + 4).toFixed(1)}" text-anchor="end">${s.bandsHz[b]!.centre}</text>`);
-  const step = Math.max(1, Math.ceil(nx / 8));
-  for (let i = 0; i <= nx; i += step) out.push(`<text class="tick" x="${(m.left + i * cw).toFixed(1)}" y="${h - m.bottom + 16}" text-anchor="middle">${sig(fromS + i * s.stretchS, 4)}</text>`);
+  // Time ticks at round values (1, 2 or 5 × a power of ten, about 8 across), placed where they fall in the stretches.
+  const span = nx * s.stretchS;
+  const raw = span / 8;
+  const p10 = 10 ** Math.floor(Math.log10(raw));
+  const tickStep = [1, 2, 5, 10].map((k) => k * p10).find((v) => v >= raw) ?? 10 * p10;
+  for (let t = Math.ceil(fromS / tickStep) * tickStep; t <= fromS + span + 1e-9; t += tickStep) {
+    const x = m.left + ((t - fromS) / span) * (w - m.left - m.right);
+    out.push(`<line class="grid" x1="${x.toFixed(1)}" x2="${x.toFixed(1)}" y1="${h - m.bottom}" y2="${h - m.bottom + 4}"/><text class="tick" x="${x.toFixed(1)}" y="${h - m.bottom + 16}" text-anchor="middle">${sig(t, 6)}</text>`);
+  }
   out.push(`<rect class="frame" x="${m.left}" y="${m.top}" width="${w - m.left - m.right}" height="${h - m.top - m.bottom}"/>`);
   out.push(`<text class="axis-label" x="${(m.left + w - m.right) / 2}" y="${h - 8}" text-anchor="middle">time, s</text>`);
   out.push(`<text class="axis-label" transform="translate(16 ${(m.top + h - m.bottom) / 2}) rotate(-90)" text-anchor="middle">band centre, Hz</text>`);
@@ -136,47 +141,57 @@ function exposurePlot(r: RideResult): string {
   });
 }
 
-export function rideHtml(r: RideResult, version: string, when: Date): string {
+/** The result embedded in a ride record (what `psdgate verify` re-runs and compares). */
+export function rideResultDocument(r: RideResult, ctx: ReportContext): Record<string, unknown> {
+  return recordDocument("ride", ctx, rideJson(r, ctx.version));
+}
+
+export const RIDE_WORD = "RIDE RECORD";
+
+export function rideHtml(r: RideResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}): string {
+  const ctx: ReportContext = { ...context, version, when };
+  const m = ctx.meta;
   const a = r.analysis;
-  const s = a.settings;
   const e = r.exposure;
   const D = DIRECTIVE_2002_44_EC;
-  const Z = ISO_2631_HEALTH_ZONE;
-  const title = `Whole-body vibration: ${a.input.file}`;
-  const axisRows = r.axes.map((x) => `<tr><td>${esc(x.axis)}</td><td>${esc(x.channel)}</td><td>${x.weighting}</td><td class="num">${sig(x.dose.rms, 4)}</td><td class="num">${sig(x.awFromPsd, 4)}</td><td class="num">${fixed(x.dose.crestFactor, 2)}</td><td class="num">${sig(x.dose.vdv, 4)}</td><td class="num">${sig(x.dose.mtvv, 4)}</td><td class="num">${x.rule.healthK}</td><td>${x.basicMethod.adequate ? "basic method adequate" : esc(x.basicMethod.exceeded.join("; "))}</td><td>${x.stationarity.tested ? (x.stationarity.stationary ? "stationary" : "not stationary") : "not tested"}</td></tr>`).join("\n");
-  return `<!DOCTYPE html>
-<html lang="en"><head><meta charset="utf-8">
-<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:">
-<meta name="generator" content="psdgate ${esc(version)}">
-<title>${esc(title)}</title>
-<style>${STYLE}${RIDE_STYLE}</style></head>
-<body>
-<header>
-<h1>${esc(title)}</h1>
-<div class="muted">Ride vibration record (ISO 2631-1 weightings, Directive 2002/44/EC values), prepared by psdgate ${esc(version)} on ${esc(when.toISOString().replace("T", " ").replace(/\.\d+Z$/, " UTC"))}</div>
-</header>
-<div class="caution">${esc(RIDE_CAUTIONS[0]!)}</div>
+  const Z = r.healthZone;
+  const name = a.input.file.split(/[\\/]/).pop() ?? a.input.file;
+  const title = m?.testId ? `Whole-body vibration, test ${m.testId}: ${name}` : `Whole-body vibration: ${name}`;
+  const axisRows = r.axes.map((x) => `<tr><td>${esc(x.axis)}</td><td>${esc(x.channel)}</td><td>${x.weighting}</td><td class="num">${sig(x.dose.rms, 4)}</td><td class="num">${sig(x.awFromPsd, 4)}</td><td class="num">${fixed(x.dose.crestFactor, 2)}</td><td class="num">${sig(x.dose.vdv, 4)}</td><td class="num">${sig(x.dose.mtvv, 4)}</td><td class="num">${x.rule.healthK}</td><td>${x.basicMethod.adequate ? "adequate" : esc(x.basicMethod.exceeded.join("; "))}</td><td>${x.stationarity.tested ? (x.stationarity.stationary ? "stationary" : "not stationary") : "not tested"}</td></tr>`).join("\n");
+  const top = r.axes.reduce((w, x) => (x.rule.healthK * x.dose.rms > w.rule.healthK * w.dose.rms ? x : w), r.axes[0]!);
+  const summary = e
+    ? `A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}) for ${sig(e.durationS / 3600, 3)} h a day: ${e.directive.a8} of Directive 2002/44/EC; VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${e.directive.vdv}.`
+    : `k a_w ${sig(top.rule.healthK * top.dose.rms, 3)} m/s² on ${top.axis}, VDV of the recording ${sig(top.dose.vdv, 3)} m/s^1.75; no daily exposure stated, so no A(8) or judgement against the Directive.`;
+  const body = `<style>${RIDE_STYLE}</style>
+<div class="verdict none" id="verdict" data-verdict="none"><span class="word">RIDE</span><span>${esc(summary)}</span></div>
+<h2>Test identity</h2>
+<table class="meta" id="identity">
+${metaRows(m, startTimeOf(a))}
+</table>
 <h2>Record</h2>
 <table class="meta">
-${row("Recording", esc(a.input.file))}
-${row("Recording SHA-256", `<span class="hash">${a.input.sha256}</span>`)}
-${row("Format", esc(a.input.layout))}
-${row("Samples", `${a.input.samples} at ${rateText(a.input.sampleRateHz)} Hz (${fixed(a.input.durationS, 3)} s)`)}
+${recordingRows(a)}
 ${row("Window analysed", esc(windowText(a)))}
 ${row("Posture", esc(r.posture))}
-${row("Analysis", `Welch PSD, ${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap; running r.m.s. ${sig(r.axes[0]?.dose.runningRmsS ?? 1, 3)} s, linear${s.scale !== 1 ? `; calibration ×${s.scale}` : ""}`)}
-${row("Tool", `psdgate ${esc(version)}`)}
+</table>
+<h2>Settings and assumptions</h2>
+<table class="meta" id="settings">
+${settingsRows(a, ctx)}
+${row("Running r.m.s.", `${sig(r.axes[0]?.dose.runningRmsS ?? 1, 3)} s, linear integration (MTVV and the level over time)`)}
+${row("Weightings", "ISO 2631-1:1997 Wk (z) and Wd (x, y), with the k factors of its health guidance (1.4 on x and y seated)")}
+${row("Exposure values", `Directive 2002/44/EC Article 3: A(8) action ${D.a8ActionMs2}, limit ${D.a8LimitMs2} m/s²; VDV action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75`)}
+${row("Caution zone", `A(8) ${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s², VDV ${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75 at 8 h: ${esc(zoneFrom(r))}`)}
 </table>
 <h2>Per axis (m/s², VDV in m/s^1.75)</h2>
-<table class="axes"><tr><th>axis</th><th>channel</th><th>weighting</th><th class="num">a_w</th><th class="num">a_w from PSD</th><th class="num">crest</th><th class="num">VDV</th><th class="num">MTVV</th><th class="num">k health</th><th>method</th><th>level</th></tr>
-${axisRows}
+<table class="grid axes"><thead><tr><th>axis</th><th>channel</th><th>weighting</th><th class="num">a_w</th><th class="num">a_w from PSD</th><th class="num">crest</th><th class="num">VDV</th><th class="num">MTVV</th><th class="num">k health</th><th>basic method</th><th>level</th></tr></thead>
+<tbody>${axisRows}</tbody>
 </table>
 <h2>Exposure</h2>
 <table class="meta" id="exposure-table">
 ${e ? `${row("Stated exposure", `${sig(e.durationS / 3600, 3)} h a day`)}
 ${row("A(8)", `${sig(e.a8, 3)} m/s² (${e.a8Axis}): ${esc(e.directive.a8)} of Directive 2002/44/EC (action ${D.a8ActionMs2}, limit ${D.a8LimitMs2} m/s²)`)}
 ${row("VDV for the exposure", `${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${esc(e.directive.vdv)} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`)}
-${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75); zone values from memory`)}` : row("Stated exposure", "not stated: no A(8), daily VDV or judgement against the Directive and Annex B")}
+${row("ISO 2631-1 Annex B", `A(8) ${esc(e.healthZone.a8)} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s²), VDV ${esc(e.healthZone.vdv)} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75)`)}` : row("Stated exposure", "not stated: no A(8), daily VDV or judgement against the Directive and Annex B")}
 ${row("Vibration total value", `${sig(r.totalValue.comfort, 3)} m/s² (comfort factors), ${sig(r.totalValue.health, 3)} m/s² (health factors)`)}
 ${row("Comfort (ISO 2631-1 Annex C)", esc(r.comfort.reactions.join(" or ")))}
 ${r.seat ? row("Seat (SEAT)", `${fixed(100 * r.seat.seat, 1)} %: seat z ${sig(r.seat.awSeat, 4)} over floor z (${esc(r.seat.floorChannel)}) ${sig(r.seat.awFloor, 4)} m/s²`) : ""}
@@ -191,9 +206,8 @@ ${r.axes.map((x, i) => spectrumPlot(x, r, i + 1)).join("\n")}
 <h2>Notes</h2>
 ${r.doubts.length + r.notes.length === 0 ? `<p class="muted">None.</p>` : `<ul>${[...r.doubts.map((d) => `<li><b>DOUBT</b> ${esc(d)}</li>`), ...r.notes.map((n) => `<li>${esc(n)}</li>`)].join("")}</ul>`}
 <h2>Cautions</h2>
-${RIDE_CAUTIONS.map((c) => `<div class="caution">${esc(c)}</div>`).join("\n")}
-<h2>Sign-off</h2>
-<div class="signoff keep"><div>Measured by (name, signature)</div><div>Reviewed by (name, signature)</div><div>Date</div></div>
-</body></html>
-`;
+${RIDE_CAUTIONS.map((c) => `<div class="caution keep">${esc(c)}</div>`).join("\n")}
+${recordSignOff("Ride record", summary, m, [{ label: "Recording", file: a.input.file, sha256: a.input.sha256 }])}`;
+  const page = reportPage({ title, verdictClass: "none", verdictWord: RIDE_WORD, recordingSha256: a.input.sha256, recordingName: name, kindLine: "Ride vibration record (ISO 2631-1 weightings, Directive 2002/44/EC values)", body }, ctx);
+  return embedResult(page, rideResultDocument(r, ctx));
 }

@@ -1,4 +1,4 @@
-import { DIRECTIVE_2002_44_EC, ISO_2631_HEALTH_ZONE } from "../compare/wholeBodyExposure.js";
+import { DIRECTIVE_2002_44_EC } from "../compare/wholeBodyExposure.js";
 import type { RideResult } from "../rideRecording.js";
 import { fixed, sig, table } from "./format.js";
 import { finiteOrNull, inputJson, settingsJson, stationarityJson, toolInfo } from "./psdJson.js";
@@ -7,8 +7,13 @@ import { recordingLines, settingsLine } from "./psdText.js";
 /** Cautions every ride result carries, in text and JSON. */
 export const RIDE_CAUTIONS: readonly string[] = [
   "An engineering estimate from one recording, not an occupational-health assessment: a daily exposure depends on the whole working day, every vehicle, route, speed and task, and on how the recording was made.",
-  "Local regulations (Directive 2002/44/EC as transposed where the work happens) and competent persons decide on exposure, risk and action; ISO 2631-1 governs the method. Values marked from memory in the documentation are to be checked against the standard before they are relied on.",
+  "Local regulations (Directive 2002/44/EC as transposed where the work happens) and competent persons decide on exposure, risk and action; ISO 2631-1 governs the method. The caution-zone bounds shown are psdgate's defaults for ISO 2631-1:1997 Annex B unless --health-zone gave the lab's own: confirm them against the standard before relying on them.",
 ];
+
+/** Where the caution zone's bounds came from, in words (text, JSON notes and the record). */
+export function zoneFrom(r: RideResult): string {
+  return r.healthZone.from === "given" ? "bounds given with --health-zone" : "psdgate's default bounds for ISO 2631-1:1997 Annex B, to be confirmed by the lab (--health-zone sets them)";
+}
 
 function hours(s: number): string {
   if (!Number.isFinite(s)) return "never";
@@ -29,14 +34,14 @@ export function rideText(r: RideResult, version: string): string {
   out.push(table(rows), "  (PSD vs time: a_w from |W(f)|² x PSD against a_w in time over the same samples with Welch's weights)", "");
   const e = r.exposure;
   const D = DIRECTIVE_2002_44_EC;
-  const Z = ISO_2631_HEALTH_ZONE;
+  const Z = r.healthZone;
   out.push(`  total      vibration total value ${sig(r.totalValue.comfort, 3)} m/s² with the comfort factors, ${sig(r.totalValue.health, 3)} m/s² with the health factors`);
   out.push(`  comfort    ISO 2631-1 Annex C, for ${sig(r.totalValue.comfort, 3)} m/s²: ${r.comfort.reactions.map((w) => `"${w}"`).join(" or ")}`);
   if (e) {
     out.push(`  exposure   ${hours(e.durationS)} a day: A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}), VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis})`);
     out.push(`  Directive 2002/44/EC   A(8) ${e.directive.a8} (action ${D.a8ActionMs2}, reached after ${hours(e.a8ActionAfterS)}; limit ${D.a8LimitMs2}, after ${hours(e.a8LimitAfterS)})`);
     out.push(`                         VDV ${e.directive.vdv} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`);
-    out.push(`  ISO 2631-1 Annex B     A(8) ${e.healthZone.a8} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s² at 8 h), VDV ${e.healthZone.vdv} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75)`);
+    out.push(`  ISO 2631-1 Annex B     A(8) ${e.healthZone.a8} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s² at 8 h), VDV ${e.healthZone.vdv} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75; ${zoneFrom(r)})`);
   } else out.push("  exposure   not stated (--exposure): no A(8), daily VDV or judgement against Directive 2002/44/EC and ISO 2631-1 Annex B");
   if (r.seat) out.push(`  seat       SEAT ${fixed(100 * r.seat.seat, 1)} %: seat z a_w ${sig(r.seat.awSeat, 4)} over floor z (${r.seat.floorChannel}) ${sig(r.seat.awFloor, 4)} m/s², Wk on both`);
   for (const x of r.axes) {
@@ -103,7 +108,7 @@ export function rideJson(r: RideResult, version: string) {
       a8ActionAfterS: finiteOrNull(e.a8ActionAfterS),
       a8LimitAfterS: finiteOrNull(e.a8LimitAfterS),
       directive2002_44_EC: { a8: e.directive.a8, vdv: e.directive.vdv, ...DIRECTIVE_2002_44_EC },
-      iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...ISO_2631_HEALTH_ZONE },
+      iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...r.healthZone },
     } : null,
     seat: r.seat ? { floorChannel: r.seat.floorChannel, awFloor: r.seat.awFloor, awFloorFromPsd: r.seat.awFloorFromPsd, awFloorWelchWeighted: r.seat.awFloorWelchWeighted, awSeat: r.seat.awSeat, seat: r.seat.seat } : null,
     notes: r.notes,

@@ -1,6 +1,10 @@
 import type { TransferAnalysis, TransferOutput } from "../analyzeTransfer.js";
 import { accelLabel, densityLabel } from "../units.js";
+import { TRANSFER_CAUTION } from "./cautions.js";
+import { embedResult } from "./embeddedResult.js";
 import { fixed, rateText, sig } from "./format.js";
+import { givenRow, metaRows, qty, readingWords, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
+import { transferJson } from "./transferReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
 /**
@@ -8,25 +12,12 @@ import { escapeXml as esc, svgPlot } from "./svgPlot.js";
  * Content-Security-Policy that forbids any fetch) with, per output channel, |H1| and |H2| with the
  * |H1| bounds, the phase, the coherence, and the predicted against the measured output PSD.
  */
-const STYLE = `
-* { box-sizing: border-box; }
-body { font: 10.5pt/1.4 "DejaVu Sans", "Helvetica Neue", Arial, sans-serif; color: #1d2428; margin: 0 auto; max-width: 190mm; padding: 10mm 4mm; }
-h1 { font-size: 16pt; margin: 0 0 2mm; } h2 { font-size: 12.5pt; margin: 7mm 0 2mm; border-bottom: 1.5px solid #35505c; color: #223a44; }
-table { border-collapse: collapse; width: 100%; margin: 1mm 0 3mm; font-size: 9.5pt; }
-th, td { text-align: left; padding: 1.2mm 2mm; border-bottom: 1px solid #d5dde0; vertical-align: top; }
-th { color: #4b5c63; font-weight: 600; } td.num { text-align: right; font-variant-numeric: tabular-nums; }
-.hash { font-family: "DejaVu Sans Mono", Menlo, monospace; font-size: 8.2pt; word-break: break-all; }
-.plot { width: 100%; height: auto; display: block; margin: 2mm 0; }
-.plot-title { font-size: 12px; font-weight: 600; fill: #223a44; } .tick { font-size: 10px; fill: #4b5c63; }
-.axis-label { font-size: 11px; fill: #223a44; } .legend-text { font-size: 10px; fill: #223a44; }
-.grid { stroke: #c9d3d7; stroke-width: .7; } .grid.minor { stroke: #e7ecee; stroke-width: .5; } .grid.zero { stroke: #6d8188; }
-.frame { fill: none; stroke: #6d8188; stroke-width: .8; }
-.band { fill: #7fa7c9; fill-opacity: .35; stroke: none; } .key.band { stroke: #7fa7c9; stroke-width: 8; stroke-opacity: .5; }
+// Series styles of this page only (the frame's STYLE has the rest).
+export const EXTRA_STYLE = `
 .h1 { fill: none; stroke: #1b4f7a; stroke-width: 1.2; } .h2 { fill: none; stroke: #b0552f; stroke-width: 1; stroke-dasharray: 4 2; }
 .coherence { fill: none; stroke: #1f6f5c; stroke-width: 1.1; } .phase { fill: none; stroke: #1b4f7a; stroke-width: 1; }
-.measured { fill: none; stroke: #202020; stroke-width: 1.6; } .predicted { fill: none; stroke: #1b4f7a; stroke-width: 1.1; stroke-dasharray: 5 2; }
-.muted { color: #6d8188; }
-@media print { body { padding: 0; max-width: none; } .plot { break-inside: avoid; } }
+.predicted { fill: none; stroke: #1b4f7a; stroke-width: 1.1; stroke-dasharray: 5 2; }
+table.resonances th { width: auto; }
 `;
 
 function positiveRange(a: Float64Array, from: number): [number, number] {
@@ -59,8 +50,8 @@ function outputSection(t: TransferAnalysis, o: TransferOutput, n: number): strin
         { id: "h2", label: "H2", x: f, y: o.h2Magnitude, className: "h2" },
       ],
     }),
-    svgPlot({ id: `phase-${n}`, title: `phase of ${o.name} relative to ${t.reference.name}`, xLabel: "frequency (Hz)", yLabel: "phase (degrees)", xDomain, yDomain: [-180, 180], yLog: false, series: [{ id: "phase", label: "", x: f, y: o.phaseDeg, className: "phase" }] }),
-    svgPlot({ id: `coherence-${n}`, title: "coherence γ²", xLabel: "frequency (Hz)", yLabel: "coherence", xDomain, yDomain: [0, 1], yLog: false, series: [{ id: "coherence", label: "", x: f, y: o.coherence, className: "coherence" }] }),
+    svgPlot({ id: `phase-${n}`, title: `phase of ${o.name} relative to ${t.reference.name}`, xLabel: "frequency (Hz)", yLabel: "phase (degrees)", xDomain, yDomain: [-180, 180], yLog: false, height: 230, series: [{ id: "phase", label: "", x: f, y: o.phaseDeg, className: "phase" }] }),
+    svgPlot({ id: `coherence-${n}`, title: "coherence γ²", xLabel: "frequency (Hz)", yLabel: "coherence", xDomain, yDomain: [0, 1], yLog: false, height: 230, series: [{ id: "coherence", label: "", x: f, y: o.coherence, className: "coherence" }] }),
     svgPlot({
       id: `psd-${n}`, title: `output PSD of ${o.name}: measured and predicted |H1|² G_in`, xLabel: "frequency (Hz)", yLabel: u, xDomain, yDomain: psdRange, yLog: true,
       series: [
@@ -71,11 +62,11 @@ function outputSection(t: TransferAnalysis, o: TransferOutput, n: number): strin
   ];
   const res = o.resonances.length === 0
     ? `<p class="muted">No resonance found (a peak needs |H1| ≥ 1, coherence ≥ 0.5 and a half-power point on each side).</p>`
-    : `<table><tr><th>f Hz</th><th>|H1|</th><th>Q</th><th>half-power band Hz</th><th>coherence</th><th></th></tr>${o.resonances.map((r) => `<tr><td class="num">${sig(r.frequencyHz, 5)}</td><td class="num">${sig(r.magnitude, 4)}</td><td class="num">${sig(r.q, 3)}</td><td>${sig(r.halfPowerHz[0], 5)}–${sig(r.halfPowerHz[1], 5)}</td><td class="num">${fixed(r.coherence, 3)}</td><td>${r.resolutionLimited ? "Q reads low: under 10 lines across" : ""}</td></tr>`).join("")}</table>`;
+    : `<table class="grid resonances"><thead><tr><th class="num">f, Hz</th><th class="num">|H1|</th><th class="num">Q</th><th class="num">half-power band, Hz</th><th class="num">coherence</th><th>note</th></tr></thead><tbody>${o.resonances.map((r) => `<tr><td class="num">${sig(r.frequencyHz, 5)}</td><td class="num">${sig(r.magnitude, 4)}</td><td class="num">${sig(r.q, 3)}</td><td class="num">${sig(r.halfPowerHz[0], 5)}–${sig(r.halfPowerHz[1], 5)}</td><td class="num">${fixed(r.coherence, 3)}</td><td>${r.resolutionLimited ? "Q reads low: under 10 lines across" : ""}</td></tr>`).join("")}</tbody></table>`;
   const a = accelLabel(t.units);
   return `<section class="output" id="output-${n}">
 <h2>Output ${esc(o.name)} (channel ${o.position})</h2>
-<table>
+<table class="meta">
 <tr><th>RMS measured</th><td>${sig(o.measuredRms, 4)} ${a}</td></tr>
 <tr><th>RMS predicted from the input</th><td>${sig(o.predictedRms, 4)} ${a} (${fixed(100 * (o.predictedRms / o.measuredRms) ** 2, 1)} % of the mean square)</td></tr>
 <tr><th>Coherence ≥ ${t.settings.goodCoherence}</th><td>${fixed(100 * o.wellExplained.lineFraction, 1)} % of the lines, carrying ${fixed(100 * o.wellExplained.powerFraction, 1)} % of the output's mean square</td></tr>
@@ -86,29 +77,51 @@ ${res}
 </section>`;
 }
 
-export function transferHtml(t: TransferAnalysis, version: string, when: Date): string {
+/** The result embedded in a transfer record (what `psdgate verify` re-runs and compares). */
+export function transferResultDocument(t: TransferAnalysis, ctx: ReportContext): Record<string, unknown> {
+  return recordDocument("transfer", ctx, transferJson(t, ctx.version));
+}
+
+export const TRANSFER_WORD = "TRANSFER RECORD";
+
+export function transferHtml(t: TransferAnalysis, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}): string {
+  const ctx: ReportContext = { ...context, version, when };
+  const m = ctx.meta;
   const s = t.settings;
-  const title = `Frequency response: ${t.reference.name} to ${t.outputs.map((o) => o.name).join(", ")}`;
-  return `<!DOCTYPE html>
-<html lang="en"><head><meta charset="utf-8">
-<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:">
-<meta name="generator" content="psdgate ${esc(version)}">
-<title>${esc(title)}</title>
-<style>${STYLE}</style></head>
-<body>
-<h1>${esc(title)}</h1>
-<div class="muted">Prepared by psdgate ${esc(version)} on ${esc(when.toISOString().replace("T", " ").replace(/\.\d+Z$/, " UTC"))}</div>
+  const name = t.input.file.split(/[\\/]/).pop() ?? t.input.file;
+  const title = `${m?.testId ? `Frequency response, test ${m.testId}` : "Frequency response"}: ${t.reference.name} to ${t.outputs.map((o) => o.name).join(", ")}`;
+  const peaks = t.outputs.flatMap((o) => o.resonances.map((r) => ({ o, r }))).sort((x, y) => y.r.magnitude - x.r.magnitude);
+  const summary = `${t.outputs.length} output(s) against ${t.reference.name}; ${peaks.length === 0 ? "no resonance found" : `${peaks.length} resonance(s), the strongest |H1| ${sig(peaks[0]!.r.magnitude, 3)} at ${sig(peaks[0]!.r.frequencyHz, 4)} Hz on ${peaks[0]!.o.name} (Q ${sig(peaks[0]!.r.q, 3)})`}.`;
+  const body = `<style>${EXTRA_STYLE}</style>
+<div class="verdict none" id="verdict" data-verdict="none"><span class="word">FRF</span><span>${esc(summary)}</span></div>
+<h2>Test identity</h2>
+<table class="meta" id="identity">
+${metaRows(m)}
+</table>
 <h2>Record</h2>
-<table>
-<tr><th>Recording</th><td>${esc(t.input.file)}</td></tr>
-<tr><th>SHA-256</th><td><span class="hash">${t.input.sha256}</span></td></tr>
-<tr><th>Samples</th><td>${t.input.samples} at ${rateText(t.input.sampleRateHz)} Hz (${fixed(t.input.durationS, 3)} s)</td></tr>
-<tr><th>Window analysed</th><td>${fixed(t.window.fromS, 3)} to ${fixed(t.window.toS, 3)} s (${fixed(t.window.durationS, 3)} s): ${t.window.frames} samples${t.window.frames === t.input.samples ? ", the whole record" : ""}</td></tr>
-<tr><th>Input</th><td>${esc(t.reference.name)} (channel ${t.reference.position}), ${sig(t.reference.rms, 4)} ${accelLabel(t.units)} RMS</td></tr>
-<tr><th>Analysis</th><td>${s.window} window, ${s.segmentLength}-point segments (${sig(s.resolutionHz, 4)} Hz lines), ${fixed(100 * s.overlap, 1)} % overlap, detrend ${s.detrend}; ${t.averages} averages, ${fixed(t.dof, 1)} DOF; H1 bounds at ${fixed(100 * s.confidence, 0)} % (Bendat &amp; Piersol, Random Data, ch. 9)</td></tr>
+<table class="meta">
+${row("Recording", esc(t.input.file))}
+${row("Recording SHA-256", `<span class="hash">${t.input.sha256}</span>`)}
+${row("Format", esc(t.input.layout))}
+${row("Samples", `${t.input.samples} at ${qty(rateText(t.input.sampleRateHz), "Hz")} = ${qty(fixed(t.input.durationS, 3), "s")}`)}
+${row("Window analysed", `${fixed(t.window.fromS, 3)} to ${fixed(t.window.toS, 3)} s (${fixed(t.window.durationS, 3)} s): ${t.window.frames} samples${t.window.frames === t.input.samples ? ", the whole record" : ""}`)}
+${row("Input (reference)", `${esc(t.reference.name)} (channel ${t.reference.position}), ${qty(sig(t.reference.rms, 4), accelLabel(t.units))} RMS`)}
+${row("Outputs", esc(t.outputs.map((o) => `${o.name} (channel ${o.position})`).join(", ")))}
+</table>
+<h2>Settings and assumptions</h2>
+<table class="meta" id="settings">
+${row("Units", `every channel in ${accelLabel(t.units)} (the input's unit, or --result-units); |H| is output unit per input unit`)}
+${t.channels.map((x) => row(`Channel ${x.name}`, esc(readingWords(x.reading, x.reading.factor, accelLabel(t.units))))).join("\n")}
+${row("Analysis", `${s.window} window, ${s.segmentLength}-point segments (${qty(sig(s.resolutionHz, 4), "Hz")} lines), ${fixed(100 * s.overlap, 1)} % overlap, detrend ${s.detrend}; ${t.averages} averages, ${fixed(t.dof, 1)} DOF`)}
+${row("Estimators", `H1 = G_xy / G_xx and H2 = G_yy / G_yx, coherence γ²; H1 bounds at ${fixed(100 * s.confidence, 0)} % (Bendat &amp; Piersol, Random Data, ch. 9)`)}
+${row("Good coherence", `γ² ≥ ${s.goodCoherence}`)}
+${givenRow(ctx)}
 </table>
 ${t.outputs.map((o, i) => outputSection(t, o, i + 1)).join("\n")}
-${t.warnings.map((w) => `<p class="muted">warning: ${esc(w)}</p>`).join("\n")}
-</body></html>
-`;
+${t.warnings.length ? `<h2>Notes</h2><ul>${t.warnings.map((w) => `<li>${esc(w)}</li>`).join("")}</ul>` : ""}
+<h2>Caution</h2>
+<div class="caution keep">${esc(TRANSFER_CAUTION)}</div>
+${recordSignOff("Transfer record", summary, m, [{ label: "Recording", file: t.input.file, sha256: t.input.sha256 }])}`;
+  const page = reportPage({ title, verdictClass: "none", verdictWord: TRANSFER_WORD, recordingSha256: t.input.sha256, recordingName: name, kindLine: "Frequency-response (transfer) record", body }, ctx);
+  return embedResult(page, transferResultDocument(t, ctx));
 }

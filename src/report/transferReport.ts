@@ -1,5 +1,6 @@
 import type { TransferAnalysis } from "../analyzeTransfer.js";
 import { accelLabel, densityAscii } from "../units.js";
+import { TRANSFER_CAUTION } from "./cautions.js";
 import { fixed, rateText, sig, table } from "./format.js";
 import { fullScaleLines } from "./psdText.js";
 import { finiteOrNull, toolInfo } from "./psdJson.js";
@@ -40,6 +41,7 @@ export function transferJson(t: TransferAnalysis, version: string) {
       resonances: o.resonances.map((r) => ({ frequencyHz: r.frequencyHz, magnitude: r.magnitude, q: r.q, halfPowerHz: r.halfPowerHz, coherence: r.coherence, resolutionLimited: r.resolutionLimited })),
     })),
     warnings: t.warnings,
+    caution: TRANSFER_CAUTION,
   };
 }
 
@@ -96,5 +98,6 @@ export function transferText(t: TransferAnalysis, version: string): string {
     `  H1 = G_xy/G_xx (unbiased by output noise), H2 = G_yy/G_yx (unbiased by input noise); their ratio is the coherence. Per-line random errors (Bendat & Piersol ch. 9) and the |H1| bounds: --json, plotted by --report.`,
   );
   for (const w of t.warnings) lines.push(`  warning: ${w}`);
+  lines.push("", `CAUTION: ${TRANSFER_CAUTION}`);
   return lines.join("\n") + "\n";
 }

@@ -8,7 +8,7 @@ const sample = "samples/quarry-bend-bracket.csv";
 
 describe("psdgate transfer", () => {
   it("--json on the Quarry Bend survey matches scipy 1.17.1 csd/welch/coherence (numpy.loadtxt) to 1e-9: |H1|, |H2|, phase, coherence, both PSDs", async () => {
-    const r = await cli("transfer", sample, "--in", "base", "--out", "tip", "--out", "clamp", "--segment", "2048", "--json");
+    const r = await cli("transfer", sample, "--in", "base", "--output-channel", "tip", "--output-channel", "clamp", "--segment", "2048", "--json");
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);
     // scipy 1.17.1 (the version on this machine; TOOLCHAIN.md)
@@ -41,7 +41,7 @@ print(json.dumps({"f": f.tolist(), "pxx": pxx.tolist(), "out": out}))`));
     }
   });
   it("--json carries the documented keys; the sample's invented modes come out (tip 185 Hz Q 12 and 620 Hz Q 18, clamp 410 Hz Q 8, within 3 % and 8 %)", async () => {
-    const r = await cli("transfer", sample, "--in", "base", "--out", "tip", "--out", "3", "--json");
+    const r = await cli("transfer", sample, "--in", "base", "--output-channel", "tip", "--output-channel", "3", "--json");
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);
     for (const k of ["tool", "input", "settings", "frequencyHz", "inputChannel", "outputs"]) expect(j).toHaveProperty(k);
@@ -62,28 +62,28 @@ print(json.dumps({"f": f.tolist(), "pxx": pxx.tolist(), "out": out}))`));
     expect(near(modes[1][0], 410, 8)).toBe(true);
   });
   it("prints the summary: RMS measured against predicted, coherence, resonances table", async () => {
-    const r = await cli("transfer", sample, "--in", "base", "--out", "tip");
+    const r = await cli("transfer", sample, "--in", "base", "--output-channel", "tip");
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/RMS +measured [\d.]+ g; predicted from the input \|H1\|² G_in [\d.]+ g \(\d+\.\d % of the mean square\)/);
     expect(r.stdout).toMatch(/resonances \(peaks of \|H1\|, Q from the half-power band\)/);
   });
   it("--csv writes one row per line with each output's columns, and refuses to overwrite without --force", async () => {
     const out = join(dir, "h.csv");
-    expect((await cli("transfer", sample, "--in", "base", "--out", "tip", "--csv", out)).code).toBe(0);
+    expect((await cli("transfer", sample, "--in", "base", "--output-channel", "tip", "--csv", out)).code).toBe(0);
     const lines = readFileSync(out, "utf8").trim().split("\n");
     expect(lines[0]).toBe("frequency_hz,base_psd [g2/Hz],tip_h1,tip_phase_deg,tip_h2,tip_coherence,tip_predicted_psd [g2/Hz],tip_measured_psd [g2/Hz]");
     expect(lines.length).toBe(4096 / 2 + 2);
-    const again = await cli("transfer", sample, "--in", "base", "--out", "tip", "--csv", out);
+    const again = await cli("transfer", sample, "--in", "base", "--output-channel", "tip", "--csv", out);
     expect(again.code).toBe(2);
     expect(again.stderr).toMatch(/OUTPUT_EXISTS/);
     expect(existsSync(out)).toBe(true);
   });
   it("bad input: one line, a code, exit 2, nothing on stdout", async () => {
     for (const [args, code] of [
-      [["--in", "base", "--out", "base"], "OPTION_INVALID"],
-      [["--in", "seat", "--out", "tip"], "CHANNEL_NOT_FOUND"],
-      [["--in", "base", "--out", "tip", "--channel", "tip"], "OPTION_CONFLICT"],
-      [["--in", "base", "--out", "tip", "--segment", "262144"], "RECORD_TOO_SHORT"],
+      [["--in", "base", "--output-channel", "base"], "OPTION_INVALID"],
+      [["--in", "seat", "--output-channel", "tip"], "CHANNEL_NOT_FOUND"],
+      [["--in", "base", "--output-channel", "tip", "--channel", "tip"], "OPTION_CONFLICT"],
+      [["--in", "base", "--output-channel", "tip", "--segment", "262144"], "RECORD_TOO_SHORT"],
     ] as const) {
       const r = await cli("transfer", sample, ...args);
       expect(r.code).toBe(2);
@@ -98,7 +98,7 @@ print(json.dumps({"f": f.tolist(), "pxx": pxx.tolist(), "out": out}))`));
 describe("psdgate transfer --report", () => {
   it("writes the HTML page atomically beside the text output", async () => {
     const out = join(dir, "survey.html");
-    const r = await cli("transfer", sample, "--in", "base", "--out", "clamp", "--report", out);
+    const r = await cli("transfer", sample, "--in", "base", "--output-channel", "clamp", "--report", out);
     expect(r.code).toBe(0);
     expect(readFileSync(out, "utf8")).toMatch(/^<!DOCTYPE html>[^]*id="coherence-1"[^]*<\/html>\n$/);
     expect(r.stdout).toMatch(/output clamp/);

@@ -172,10 +172,12 @@ describe("psdgate verify", () => {
     expect(r.stdout).toMatch(/INPUT MISSING/);
   });
 
-  it("a file that is not a psdgate report: exit 1; a report that does not exist: exit 2 with FILE_UNREADABLE", async () => {
+  it("a file that is not a psdgate report: exit 2, one line NOT_A_REPORT; a report that does not exist: exit 2 with FILE_UNREADABLE", async () => {
     const d = tempDir();
     writeFileSync(join(d, "x.html"), "<html><body>hello</body></html>");
-    expect((await cli("verify", join(d, "x.html"))).code).toBe(1);
+    const not = await cli("verify", join(d, "x.html"));
+    expect(not.code).toBe(2);
+    expect(not.stderr).toMatch(/x\.html.*an HTML page with no psdgate result in it \[NOT_A_REPORT\]/);
     const none = await cli("verify", join(d, "none.html"));
     expect(none.code).toBe(2);
     expect(none.stderr).toMatch(/none\.html.*\[FILE_UNREADABLE\]/);

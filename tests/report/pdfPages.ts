@@ -19,7 +19,7 @@ export function havePdftotext(): boolean {
 export function printedPages(pdf: Buffer, marginsMm: { top: number; bottom: number }): PrintedPage[] {
   const run = (args: string[]) => {
     const r = spawnSync("pdftotext", [...args, "-", "-"], { input: pdf, maxBuffer: 64 << 20 });
-    if (r.status !== 0) throw new Error(`pdftotext failed: ${r.stderr}`);
+    if (r.status !== 0) throw new Error(`pdftotext failed: ${r.stderr} ${r.error} ${r.signal}`);
     return r.stdout.toString("utf8");
   };
   const texts = run(["-layout"]).split("\f").slice(0, -1);
