@@ -293,7 +293,7 @@ export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
     const nonFinite = bad?.stats.nonFinite ?? 0;
     return new InputError("RECORD_TOO_SHORT", {
       file: a.input.file, field: bad?.name, expected: `at least one segment of ${a.settings.segmentLength} samples free of NaN and infinite values`,
-      received: `${frames} samples, ${nonFinite} of them NaN or infinite, in every segment`, hint: "check the recording (or its --scale) for the non-finite values",
+      received: `${frames} samples, ${nonFinite} of them NaN or infinite, in every segment`, hint: "check the recording (or its `scale`) for the non-finite values",
     });
   }
   return new InputError("RECORD_TOO_SHORT", {

@@ -339,7 +339,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     if (!(fieldFatigue[i]! > 0 && Number.isFinite(fieldFatigue[i]!) && fieldExtreme[i]! > 0 && Number.isFinite(fieldExtreme[i]!))) {
       throw new InputError("OPTION_INVALID", {
         option: "lifeS", expected: "a service life over which the field's damage is a finite number above 0 at every natural frequency",
-        received: `${lifeS} s (at ${Number(fnHz[i]!.toPrecision(4))} Hz: damage ${fieldFatigue[i]}, largest response ${fieldExtreme[i]})`, hint: "give the life in hours of real service (a mix file's hours, or --life)",
+        received: `${lifeS} s (at ${Number(fnHz[i]!.toPrecision(4))} Hz: damage ${fieldFatigue[i]}, largest response ${fieldExtreme[i]})`, hint: "give the life in hours of real service (a mix file's hours, or `lifeS`)",
       });
     }
   }

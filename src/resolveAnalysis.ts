@@ -90,7 +90,7 @@ export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): 
     throw new InputError("REPORT_TOO_LARGE", {
       file: info.file, expected: `for an HTML record, channels x segment length at most ${MAX_REPORT_SAMPLES} (${Math.max(1, Math.floor(MAX_REPORT_SAMPLES / welch.segmentLength))} channels at ${welch.segmentLength} points)`,
       received: `${spectrumChannels} channels x ${welch.segmentLength} (${Number(welch.resolutionHz.toPrecision(4))} Hz lines)`,
-      hint: "write the full data with --csv or --json instead of --report, or select fewer `channels`, or use a coarser `resolutionHz`",
+      hint: "write the full data as CSV or JSON instead of an HTML record, or select fewer `channels`, or use a coarser `resolutionHz`",
     });
   }
   const stretchS = options.stretchS ?? 1;
