@@ -174,7 +174,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
     const b = backgroundRms(stretches[c] ?? []);
     const threshold = options.threshold ?? factor * b;
     if (!(threshold > 0)) {
-      throw new InputError("SHOCK_NO_BACKGROUND", { file, option: "threshold", expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give `threshold` in units`, received: String(b) });
+      throw new InputError("SHOCK_NO_BACKGROUND", { file, option: "threshold", expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`, received: String(b) });
     }
     return { mean: ch.stats.mean, background: b, threshold, nu0: zeroUpcrossingRate(ch.psd.psd, ch.psd.frequencyHz) };
   });

@@ -104,7 +104,7 @@ export class EventFinder {
   private start(i: number, v: number, base: number): void {
     if (this.events.length >= this.maxEvents) {
       throw new InputError("SHOCK_TOO_MANY_EVENTS", {
-        option: "threshold", expected: `at most ${this.maxEvents} events (a threshold above the background: raise `threshold` or `thresholdFactor`)`, received: `more than ${this.maxEvents} at ${this.o.threshold}`,
+        option: "threshold", expected: `at most ${this.maxEvents} events (a threshold above the background: raise \`threshold\` or \`thresholdFactor\`)`, received: `more than ${this.maxEvents} at ${this.o.threshold}`,
       });
     }
     const ev: ShockEvent = { peakIndex: i, firstIndex: i, lastIndex: i, peak: v, truncated: false };

@@ -1,4 +1,4 @@
-import FFT from "fft.js";
+import { sdofFiltered } from "./sdofSimulation.js";
 import { RainflowCounter } from "../../src/estimate/rainflow.js";
 import { TimeResponseAccumulator } from "../../src/estimate/timeResponse.js";
 
@@ -15,41 +15,7 @@ export const Q = 10;
  * spectral moments m0, m1, m2, m4 (Hz) of a white input of one-sided density g0.
  */
 export function exactSdof(base: Float64Array, fn: number, q: number) {
-  const n = 2 * base.length;
-  const f = new FFT(n);
-  const x = new Float64Array(n);
-  x.set(base);
-  const spec = f.createComplexArray();
-  f.realTransform(spec, x);
-  f.completeSpectrum(spec);
-  const a = f.createComplexArray();
-  const z = f.createComplexArray();
-  const zeta = 1 / (2 * q);
-  const wn2 = (2 * Math.PI * fn) ** 2;
-  for (let k = 0; k < n; k++) {
-    const r = ((k <= n / 2 ? k : k - n) * FS) / n / fn;
-    const dr = 1 - r * r;
-    const di = 2 * zeta * r;
-    const den = dr * dr + di * di;
-    const ir = dr / den;
-    const ii = -di / den;
-    const tr = ir - di * ii;
-    const ti = ii + di * ir;
-    const xr = spec[2 * k]!;
-    const xi = spec[2 * k + 1]!;
-    a[2 * k] = xr * tr - xi * ti;
-    a[2 * k + 1] = xr * ti + xi * tr;
-    z[2 * k] = -(xr * ir - xi * ii) / wn2;
-    z[2 * k + 1] = -(xr * ii + xi * ir) / wn2;
-  }
-  const out = f.createComplexArray();
-  const real = (c: number[]) => {
-    f.inverseTransform(out, c);
-    const y = new Float64Array(base.length);
-    for (let i = 0; i < base.length; i++) y[i] = out[2 * i]!;
-    return y;
-  };
-  return { accel: real(a), relDisp: real(z) };
+  return sdofFiltered(base, FS, fn, q, 2 * base.length);
 }
 
 /** Spectral moments (Hz) of the relative displacement for a white input of one-sided density g0 on 0..fs/2. */

@@ -9,9 +9,21 @@ import { gaussian } from "../helpers.js";
  */
 export function sdofRecords(n: number, rate: number, fnHz: number, q: number, seed: number): { base: Float64Array; accel: Float64Array; relDisp: Float64Array } {
   const base = gaussian(n, seed);
+  return { base, ...sdofFiltered(base, rate, fnHz, q, n) };
+}
+
+/**
+ * The SDOF's responses to `base` by the exact complex transfer functions on a circular transform of `length`
+ * points (fft.js): `length` = base.length filters circularly; 2 x base.length zero-pads, so the response starts at
+ * rest and nothing wraps. The first base.length samples are returned.
+ */
+export function sdofFiltered(base: Float64Array, rate: number, fnHz: number, q: number, length: number): { accel: Float64Array; relDisp: Float64Array } {
+  const n = length;
   const f = new FFT(n);
+  const x = new Float64Array(n);
+  x.set(base);
   const spec = f.createComplexArray();
-  f.realTransform(spec, base);
+  f.realTransform(spec, x);
   f.completeSpectrum(spec);
   const a = f.createComplexArray();
   const z = f.createComplexArray();
@@ -38,9 +50,9 @@ export function sdofRecords(n: number, rate: number, fnHz: number, q: number, se
   const out = f.createComplexArray();
   const real = (c: number[]) => {
     f.inverseTransform(out, c);
-    const y = new Float64Array(n);
-    for (let i = 0; i < n; i++) y[i] = out[2 * i]!;
+    const y = new Float64Array(base.length);
+    for (let i = 0; i < base.length; i++) y[i] = out[2 * i]!;
     return y;
   };
-  return { base, accel: real(a), relDisp: real(z) };
+  return { accel: real(a), relDisp: real(z) };
 }
