@@ -289,7 +289,7 @@ describe("integer WAVs with and without calibration", () => {
       expect((await cli(...argv)).stdout).toContain(line);
     }
     const two = writeInt16Wav(dir, "bare2.wav", [x, x.map((v) => 0.5 * v)], fs, 16);
-    expect((await cli("transfer", two, "--in", "1", "--out", "2", "--segment", "1024")).stdout).toContain(`  reading    "ch1", "ch2": integer WAV codes with no calibration, read as ±1 g full scale`);
+    expect((await cli("transfer", two, "--in", "1", "--output-channel", "2", "--segment", "1024")).stdout).toContain(`  reading    "ch1", "ch2": integer WAV codes with no calibration, read as ±1 g full scale`);
   });
 
   it("a batch of several recordings says it under its summary table, for the uncalibrated file only", async () => {

@@ -19,7 +19,7 @@ describe("--report is bounded before the work", () => {
       const t0 = Date.now();
       const r = await cli(...args);
       expect(r.code, args.join(" ")).toBe(2);
-      expect(r.stderr, args.join(" ")).toMatch(/for an HTML record, channels x segment length at most 262144 .*\[REPORT_TOO_LARGE\].*--csv or --json/);
+      expect(r.stderr, args.join(" ")).toMatch(/for an HTML record, channels x segment length at most 262144 .*\[REPORT_TOO_LARGE\].*CSV or JSON instead of an HTML record/);
       expect(Date.now() - t0).toBeLessThan(3000);
     }
     expect(existsSync(join(d, "a.html")) || existsSync(join(d, "b.html"))).toBe(false);
