@@ -207,7 +207,8 @@ function runReasons(r: CheckResult): string {
     const w = worstFirst(c.excursions)[0];
     const worst = w ? `worst excursion ${w.fromHz === w.toHz ? `${sig(w.fromHz, 5)} Hz` : `${sig(w.fromHz, 5)}–${sig(w.toHz, 5)} Hz`} (${w.lines} line${w.lines === 1 ? "" : "s"}, ${w.direction}) ${signedDb(w.worstDb)} against a limit of ${signedDb(w.limitDb)}, ${w.shown ? "shown" : "not shown"}` : "no line outside its band";
     const decide = decideLine(c);
-    return `<li><strong>${esc(name)}: ${VERDICT_TEXT[c.verdict].word}</strong>. ${c.reasons.map((x) => esc(x)).join("; ")}. ${esc(worst)}; ${fixed(c.dof.achieved, 1)} DOF of ${Math.max(c.dof.forPower, c.dof.required ?? 0)} a pass needs.${decide ? ` ${esc(decide.charAt(0).toUpperCase() + decide.slice(1))}.` : ""}</li>`;
+    const because = c.reasons.map((x) => esc(x)).join("; ");
+    return `<li><strong>${esc(name)}: ${VERDICT_TEXT[c.verdict].word}</strong>. ${because.charAt(0).toUpperCase() + because.slice(1)}. ${esc(worst.charAt(0).toUpperCase() + worst.slice(1))}; ${fixed(c.dof.achieved, 1)} DOF of ${Math.max(c.dof.forPower, c.dof.required ?? 0)} a pass needs.${decide ? ` ${esc(decide.charAt(0).toUpperCase() + decide.slice(1))}.` : ""}</li>`;
   });
   return `<div id="run-reasons"><h2>This run</h2><ul>${items.join("")}</ul></div>`;
 }

@@ -5,7 +5,6 @@ import { fixed, rateText, sig } from "./format.js";
 import { embedResult } from "./embeddedResult.js";
 import { metaRows, recordDocument, recordingRows, recordSignOff, reportPage, row, settingsRows, startTimeOf, type ReportContext } from "./reportPage.js";
 import { RIDE_CAUTIONS, rideJson, zoneFrom } from "./rideReport.js";
-import { windowText } from "./psdText.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
 /**
@@ -171,7 +170,6 @@ ${metaRows(m, startTimeOf(a))}
 <h2>Record</h2>
 <table class="meta">
 ${recordingRows(a)}
-${row("Window analysed", esc(windowText(a)))}
 ${row("Posture", esc(r.posture))}
 </table>
 <h2>Settings and assumptions</h2>
