@@ -10,7 +10,8 @@ export function registerProfile(program: Command, io: CliIo): void {
     .argument("<file>", "test profile: JSON, YAML or two-column CSV (Hz, level)")
     .description("breakpoints, slopes, overall RMS, velocity and stroke of a required profile")
     .option("--json", "print the result as JSON")
-    .action(async (file: string, o: { json?: boolean }) => {
+    .option("-q, --quiet", "no progress output (profile shows none; accepted so every command takes it)")
+    .action(async (file: string, o: { json?: boolean; quiet?: boolean }) => {
       const { loadProfile } = await import("../checkRecording.js");
       const { profileJson, profileText } = await import("../report/profileText.js");
       const p = await loadProfile(file);

@@ -10,6 +10,7 @@ interface VerifyFlags {
   profile?: string;
   tolerance?: number;
   json?: boolean;
+  quiet?: boolean;
 }
 
 const WORD = { reproduced: "REPRODUCED", differs: "DIFFERS", missing: "INPUT MISSING" } as const;
@@ -29,6 +30,7 @@ export function registerVerify(program: Command, io: CliIo): void {
     .option("--profile <file>", "the profile, for a check record (or respond's source profile; default: beside the report, else at the recorded path)")
     .option("--tolerance <rel>", "relative tolerance on every number (default 1e-9)", numberOption("--tolerance", (x) => x >= 0 && x < 1, "a relative tolerance 0 <= t < 1"))
     .option("--json", "print the result as JSON")
+    .option("-q, --quiet", "no progress output (verify shows none; accepted so every command takes it)")
     .action(async (report: string, o: VerifyFlags) => {
       const { verifyReport } = await import("../verifyReport.js");
       const { VERSION } = await import("../version.js");

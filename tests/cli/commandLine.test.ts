@@ -60,4 +60,24 @@ describe("one command line across the commands", () => {
     expect(j.caution).toMatch(/stroke/);
     expect(readFileSync(join(d, "s.csv"), "utf8").split("\n").length).toBeGreaterThan(4096);
   });
+  it("profile and verify take -q/--quiet (no progress output), and print the same without it", async () => {
+    const plain = await cli("profile", "samples/profiles/kb210-controller.json", "--json");
+    const quiet = await cli("profile", "samples/profiles/kb210-controller.json", "--json", "-q");
+    expect(quiet.code, quiet.stderr).toBe(0);
+    expect(quiet.stderr).toBe("");
+    expect(quiet.stdout).toBe(plain.stdout);
+    expect((await cli("profile", "samples/profiles/kb210-controller.json", "--quiet")).code).toBe(0);
+    const d = tempDir();
+    const rep = join(d, "psd.html");
+    expect((await cli("psd", "samples/kb210-run.wav", "--report", rep, "-q")).code).toBe(0);
+    const v = await cli("verify", rep, "-q");
+    expect(v.code, v.stdout + v.stderr).toBe(0);
+    expect(v.stderr).toBe("");
+    expect(v.stdout).toMatch(/REPRODUCED/);
+    const vj = await cli("verify", rep, "--json", "--quiet");
+    expect(JSON.parse(vj.stdout).status).toBe("reproduced");
+    const notReport = await cli("verify", "samples/profiles/kb210-controller.json", "-q");
+    expect(notReport.code).toBe(2);
+    expect(notReport.stderr.trim().split("\n")).toHaveLength(1);
+  });
 });
