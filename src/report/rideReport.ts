@@ -1,5 +1,7 @@
 import { DIRECTIVE_2002_44_EC } from "../compare/wholeBodyExposure.js";
 import type { RideResult } from "../rideRecording.js";
+import { weightingPowerGains } from "../weight/isoWeightings.js";
+import { csvField } from "./csvField.js";
 import { fixed, sig, table } from "./format.js";
 import { finiteOrNull, inputJson, settingsJson, stationarityJson, toolInfo } from "./psdJson.js";
 import { recordingLines, settingsLine } from "./psdText.js";
@@ -116,4 +118,51 @@ export function rideJson(r: RideResult, version: string) {
     findings: { notes: r.noteFindings, doubts: r.doubtFindings },
     cautions: RIDE_CAUTIONS,
   };
+}
+
+/**
+ * `ride --csv OUT`: every figure as one row (long form, one value a row, ready for a pivot table or
+ * a filter): `axis,channel,quantity,frequency_hz,time_s,value,unit`. Per axis its figures (a_w, a_w
+ * from the PSD, crest factor, VDV, MTVV with its time, peak, the k factors, the filter's error), then
+ * its unweighted and weighted PSD at each line (`psd`, `weighted_psd` = |W(f)|² × PSD, with
+ * `frequency_hz`), then its weighted running r.m.s. at the end of each stretch (`running_rms`, with
+ * `time_s` from the record's first sample); last the whole-ride figures (the total values with an
+ * empty axis; A(8) and the daily VDV with --exposure, on the axis that gives each, `time_s` the daily
+ * exposure; SEAT with --floor, its channel the floor's). SI units; numbers at full precision
+ * (shortest round-trip); a figure that could not be had is an empty field.
+ */
+export function rideCsv(r: RideResult): string {
+  const a = r.analysis;
+  const from = a.window.fromS;
+  const lines = ["axis,channel,quantity,frequency_hz,time_s,value,unit"];
+  const num = (v: number | undefined) => (v !== undefined && Number.isFinite(v) ? String(v) : "");
+  const add = (axis: string, channel: string, quantity: string, f: number | undefined, t: number | undefined, v: number, unit: string) =>
+    lines.push([axis, channel === "" ? "" : csvField(channel), quantity, num(f), num(t), num(v), unit].join(","));
+  r.axes.forEach((x, i) => {
+    const ch = x.channel;
+    add(x.axis, ch, "aw", undefined, undefined, x.dose.rms, "m/s2");
+    add(x.axis, ch, "aw_from_psd", undefined, undefined, x.awFromPsd, "m/s2");
+    add(x.axis, ch, "crest_factor", undefined, undefined, x.dose.crestFactor, "1");
+    add(x.axis, ch, "vdv", undefined, undefined, x.dose.vdv, "m/s1.75");
+    add(x.axis, ch, "mtvv", undefined, x.dose.mtvvAtS + from, x.dose.mtvv, "m/s2");
+    add(x.axis, ch, "peak", undefined, undefined, x.dose.peak, "m/s2");
+    add(x.axis, ch, "k_health", undefined, undefined, x.rule.healthK, "1");
+    add(x.axis, ch, "k_comfort", undefined, undefined, x.rule.comfortK, "1");
+    add(x.axis, ch, "filter_max_error", x.filter.maxErrorAtHz, undefined, x.filter.maxErrorPct, "%");
+    const psd = a.channels[i]!.psd;
+    const g = weightingPowerGains(x.weighting, psd.frequencyHz);
+    for (let k = 0; k < psd.frequencyHz.length; k++) add(x.axis, ch, "psd", psd.frequencyHz[k], undefined, psd.psd[k]!, "(m/s2)2/Hz");
+    for (let k = 0; k < psd.frequencyHz.length; k++) add(x.axis, ch, "weighted_psd", psd.frequencyHz[k], undefined, psd.psd[k]! * g[k]!, "(m/s2)2/Hz");
+    const v = x.dose.stretchRms;
+    for (let k = 0; k < v.length; k++) add(x.axis, ch, "running_rms", undefined, from + (k + 1) * x.dose.stretchS, v[k]!, "m/s2");
+  });
+  add("", "", "total_value_health", undefined, undefined, r.totalValue.health, "m/s2");
+  add("", "", "total_value_comfort", undefined, undefined, r.totalValue.comfort, "m/s2");
+  const e = r.exposure;
+  if (e) {
+    add(e.a8Axis, "", "a8", undefined, e.durationS, e.a8, "m/s2");
+    add(e.vdvAxis, "", "daily_vdv", undefined, e.durationS, e.vdv, "m/s1.75");
+  }
+  if (r.seat) add("z", r.seat.floorChannel, "seat", undefined, undefined, r.seat.seat, "1");
+  return lines.join("\n") + "\n";
 }

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { parseAxes, parseDuration } from "../../src/cli/ride.js";
-import { writeFileSync } from "node:fs";
+import { readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { cli, tempDir } from "../helpers.js";
 
@@ -99,6 +99,55 @@ describe("psdgate ride", () => {
     expect(e.values.rateHz).toBe(200);
     expect(e.values.maxErrorPercent).toBe(2.7);
     expect(e.text).toContain("a_w, crest factor, VDV, MTVV and the total value carry it");
+  });
+  it("--csv writes the per-axis figures, unweighted and weighted PSD and the running r.m.s., one value a row; refuses to clobber without --force", async () => {
+    const d = tempDir();
+    const out = join(d, "ride.csv");
+    const r = await cli(...base, "--floor", "4", "--exposure", "8h", "--from", "100", "--to", "160", "--json", "--csv", out, "-q");
+    expect(r.code, r.stderr).toBe(0);
+    const j = JSON.parse(r.stdout);
+    const text = readFileSync(out, "utf8");
+    const rows = text.trim().split("\n").map((l) => l.split(","));
+    expect(rows[0]!.join(",")).toBe("axis,channel,quantity,frequency_hz,time_s,value,unit");
+    const pick = (axis: string, q: string) => rows.filter((x) => x[0] === axis && x[2] === q);
+    for (const a of j.axes) {
+      // The figures are the JSON's to the last digit.
+      expect(Number(pick(a.axis, "aw")[0]![5])).toBe(a.aw);
+      expect(Number(pick(a.axis, "vdv")[0]![5])).toBe(a.vdv);
+      expect(Number(pick(a.axis, "mtvv")[0]![5])).toBe(a.mtvv);
+      expect(Number(pick(a.axis, "mtvv")[0]![4])).toBe(a.mtvvAtS);
+      expect(pick(a.axis, "aw")[0]![1]).toBe(a.channel);
+      // The running r.m.s. per 1 s stretch: one per whole stretch of the 60 s window, ending at 101..160 s, none above MTVV.
+      const run = pick(a.axis, "running_rms");
+      expect(run).toHaveLength(60);
+      expect(Number(run[0]![4])).toBe(101);
+      expect(Number(run[59]![4])).toBe(160);
+      expect(Math.max(...run.map((x) => Number(x[5])))).toBeLessThanOrEqual(a.mtvv * (1 + 1e-12));
+      // weighted_psd / psd at the line nearest 1 Hz (0.977 Hz) is |W|² there: Wk 0.482, Wd 1.011 at 1 Hz (ISO 2631-1:1997 Table 3, from memory), both flat within 1 % over 0.8-1.25 Hz; 2 %.
+      const near1 = (q: string) => pick(a.axis, q).reduce((b, x) => (Math.abs(Number(x[3]) - 1) < Math.abs(Number(b[3]) - 1) ? x : b));
+      expect(Number(near1("psd")[3])).toBeCloseTo(0.9765625, 12);
+      const w = a.weighting === "Wk" ? 0.482 : 1.011;
+      expect(Math.abs(Math.sqrt(Number(near1("weighted_psd")[5]) / Number(near1("psd")[5])) / w - 1)).toBeLessThan(0.02);
+      expect(pick(a.axis, "psd").length).toBe(pick(a.axis, "weighted_psd").length);
+      // The weighted PSD integrates (sum × line spacing) to the JSON's a_w from the PSD.
+      const wp = pick(a.axis, "weighted_psd");
+      const df = Number(wp[1]![3]) - Number(wp[0]![3]);
+      expect(Math.abs(Math.sqrt(wp.reduce((t, x) => t + Number(x[5]), 0) * df) / a.awFromPsd - 1)).toBeLessThan(1e-9);
+    }
+    expect(Number(rows.find((x) => x[2] === "total_value_health")![5])).toBe(j.totalValue.health);
+    expect(Number(rows.find((x) => x[2] === "a8")![5])).toBe(j.exposure.a8);
+    expect(Number(rows.find((x) => x[2] === "seat")![5])).toBe(j.seat.seat);
+    // Never clobbered without --force; the file stays as it was.
+    const again = await cli(...base, "--csv", out);
+    expect(again.code).toBe(2);
+    expect(again.stderr).toMatch(/OUTPUT_EXISTS/);
+    expect(again.stderr.trim().split("\n")).toHaveLength(1);
+    expect(readFileSync(out, "utf8")).toBe(text);
+    expect((await cli(...base, "--from", "0", "--to", "30", "--csv", out, "--force")).code).toBe(0);
+    expect(readFileSync(out, "utf8")).not.toBe(text);
+    const same = await cli(...base, "--csv", join(d, "x.html"), "--report", join(d, "x.html"));
+    expect(same.code).toBe(2);
+    expect(same.stderr).toMatch(/OPTION_CONFLICT/);
   });
   it("--help lists the ride options", async () => {
     const r = await cli("ride", "--help");
