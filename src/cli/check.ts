@@ -47,8 +47,9 @@ export function registerCheck(program: Command, io: CliIo): void {
     .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
     .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
+    .option("--meta-table <file>", "per recording its test identity: a CSV (header recording,testId,... with any --meta keys) or a YAML/JSON mapping from each recording's file name to its keys; a row overrides --meta key by key, a RECORDING.meta.yaml beside it overrides the row")
     .option("--csv <out>", "also write the lines judged (frequency, measured, required, deviation, limits, status, shown) to this CSV file (one recording)")
-    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string; csv?: string }, cmd: Command) => {
+    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string; metaTable?: string; csv?: string }, cmd: Command) => {
       const { loadProfile } = await import("../checkRecording.js");
       const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
       const { checkHtml } = await import("../report/htmlReport.js");
@@ -57,7 +58,9 @@ export function registerCheck(program: Command, io: CliIo): void {
       const profile = await loadProfile(o.profile);
       const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
       const files = await expandFiles(args, o.filesFrom, readStdin);
-      const inputs = [...files, o.profile, ...(o.filesFrom !== undefined ? [o.filesFrom] : []), ...(o.meta !== undefined ? [o.meta] : [])];
+      const inputs = [...files, o.profile, ...(o.filesFrom !== undefined ? [o.filesFrom] : []), ...(o.meta !== undefined ? [o.meta] : []), ...(o.metaTable !== undefined ? [o.metaTable] : [])];
+      const { loadMetaTable, matchMetaTable, recordingMeta } = await import("../read/testMeta.js");
+      const table = o.metaTable !== undefined ? matchMetaTable(await loadMetaTable(o.metaTable), files, o.metaTable) : undefined;
       if (o.report !== undefined && files.length === 1) checkOutputPath(o.report, inputs, o.force, "--report");
       if (o.csv !== undefined && files.length === 1) checkOutputPath(o.csv, inputs, o.force, "--csv");
       if (o.reportDir !== undefined) {
@@ -72,11 +75,13 @@ export function registerCheck(program: Command, io: CliIo): void {
       const reportPath = (index: number) => (o.report !== undefined ? o.report : join(o.reportDir!, names[index]!));
       const given = givenOptions(cmd);
       const rerun = rerunOptions({ ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control });
-      // Each recording's identity: a meta file beside it overrides --meta key by key (read/testMeta.ts).
-      const { recordingMeta } = await import("../read/testMeta.js");
-      const metas = new Map<string, { meta: typeof meta; from: string | undefined }>();
-      for (const f of files) metas.set(f, await recordingMeta(f, meta));
-      for (const m of metas.values()) if (m.from !== undefined) inputs.push(m.from);
+      // Each recording's identity, key by key: --meta, its --meta-table row, a meta file beside it (read/testMeta.ts).
+      const metas = new Map<string, { meta: typeof meta; from: string | undefined; file: string | undefined }>();
+      for (const f of files) {
+        const m = await recordingMeta(f, meta, table?.get(f));
+        metas.set(f, m);
+        if (m.file !== undefined) inputs.push(m.file);
+      }
       const metaOf = (r: CheckResult) => metas.get(r.analysis.input.file)?.meta ?? meta;
       const { sha256Hex } = await import("../report/embeddedResult.js");
       const writeReport = async (r: CheckResult, index: number) => {

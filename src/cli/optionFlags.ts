@@ -32,6 +32,7 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   fmaxHz: "--fmax",
   stretchS: "--stretch",
   meta: "--meta",
+  metaTable: "--meta-table",
   // check
   control: "--control",
   "control.channels": "--control",

@@ -1,5 +1,7 @@
+import path from "node:path";
+import Papa from "papaparse";
 import { z } from "zod";
-import { InputError } from "../errors.js";
+import { InputError, quoted } from "../errors.js";
 import { plainDocument } from "./plainDocument.js";
 import { readSmallText } from "./regularFile.js";
 
@@ -79,12 +81,141 @@ export function besideMetaNames(recording: string): string[] {
 }
 
 /**
- * One recording's test identity in a batch: a meta file beside it (besideMetaNames) overrides the batch's
- * `--meta` key by key, so the lab states once what the batch shares and beside each recording what differs.
+ * One recording's test identity in a batch, key by key: the batch's `--meta`, then its row of the
+ * `--meta-table` (loadMetaTable), then a meta file beside it (besideMetaNames). So the lab states once
+ * what the batch shares, and per recording what differs.
  */
-export async function recordingMeta(recording: string, shared: TestMeta | undefined): Promise<{ meta: TestMeta | undefined; from: string | undefined }> {
+export async function recordingMeta(recording: string, shared: TestMeta | undefined, row?: MetaTableRow): Promise<{ meta: TestMeta | undefined; from: string | undefined; file: string | undefined }> {
   const { existsSync } = await import("node:fs");
   const file = besideMetaNames(recording).find((f) => existsSync(f));
-  if (file === undefined) return { meta: shared, from: undefined };
-  return { meta: { ...shared, ...(await loadTestMeta(file)) }, from: file };
+  const base = row ? { ...shared, ...row.meta } : shared;
+  const from = [row?.table, file].filter((x): x is string => x !== undefined).join(" and ") || undefined;
+  if (file === undefined) return { meta: base, from, file };
+  return { meta: { ...base, ...(await loadTestMeta(file)) }, from, file };
+}
+
+/** Largest meta table read: thousands of recordings of a dozen short keys. */
+export const MAX_META_TABLE_BYTES = 4 << 20;
+
+/** One row of a meta table: the recording as the table names it, its identity, and where the row stands. */
+export interface MetaTableRow {
+  name: string;
+  meta: TestMeta;
+  /** `FILE line N` (CSV) or `FILE key NAME` (YAML, JSON): for messages and the batch index. */
+  from: string;
+  /** The table file itself. */
+  table: string;
+  line?: number | undefined;
+}
+
+/**
+ * `check --meta-table FILE`: per recording its test identity, as the other form beside RECORDING.meta.yaml.
+ * - CSV (.csv): a header `recording,KEY,KEY...` (KEY one of the --meta keys), then one row per recording;
+ *   an empty cell leaves that key unset. Fields quoted as RFC 4180 says.
+ * - YAML or JSON: a mapping from each recording to a mapping of --meta keys.
+ * A recording is named by its path as given on the command line or by its file name alone.
+ */
+export async function loadMetaTable(file: string): Promise<MetaTableRow[]> {
+  const { text: body } = await readSmallText(file, { what: "a readable meta table", option: "metaTable", maxBytes: MAX_META_TABLE_BYTES, tooLarge: "META_INVALID" });
+  if (/\.csv$/i.test(file)) return csvMetaTable(body, file);
+  let doc: unknown;
+  try {
+    // JSON too goes through the YAML reader, which refuses a key given twice (JSON.parse keeps the last).
+    doc = plainDocument(body, file, "META_SYNTAX", false, "META_INVALID");
+  } catch (e) {
+    if (e instanceof InputError && /unique/i.test(e.message)) {
+      throw new InputError("META_TABLE_DUPLICATE", { file, line: e.details.line, column: e.details.column, expected: "each recording named once", received: "a recording named twice" });
+    }
+    throw e;
+  }
+  if (doc === null || typeof doc !== "object" || Array.isArray(doc)) {
+    throw new InputError("META_INVALID", { file, expected: "a mapping from each recording's file name to its test identity (testId: ..., ...)", received: Array.isArray(doc) ? "a list" : JSON.stringify(doc)?.slice(0, 40) ?? "nothing" });
+  }
+  return Object.entries(doc as Record<string, unknown>).map(([name, m]) => {
+    let meta: TestMeta;
+    try {
+      meta = parseTestMeta(m, file);
+    } catch (e) {
+      if (e instanceof InputError) throw new InputError(e.code, { ...e.details, keyPath: e.details.keyPath && e.details.keyPath !== "(top level)" ? `${name}.${e.details.keyPath}` : name });
+      throw e;
+    }
+    return { name, meta, from: `${file} key ${name}`, table: file };
+  });
+}
+
+function csvMetaTable(body: string, file: string): MetaTableRow[] {
+  const keys = META_LABELS.map(([k]) => k as string);
+  const rows: { cells: string[]; line: number }[] = [];
+  let line = 1;
+  let at = 0;
+  const text = body.replace(/^\uFEFF/, "");
+  Papa.parse<string[]>(text, {
+    header: false, skipEmptyLines: "greedy",
+    step: (r) => {
+      const end = r.meta.cursor;
+      // The row starts after any blank lines skipped before it.
+      let start = at;
+      while (start < end && (text[start] === "\n" || text[start] === "\r")) {
+        if (text[start] === "\n") line++;
+        start++;
+      }
+      rows.push({ cells: r.data, line });
+      for (let i = start; i < end; i++) if (text[i] === "\n") line++;
+      at = end;
+    },
+  });
+  const head = rows.shift();
+  if (!head || head.cells[0]?.trim().toLowerCase() !== "recording") {
+    throw new InputError("META_INVALID", { file, line: head?.line ?? 1, column: 1, expected: `a header starting "recording", then --meta keys (${keys.join(", ")})`, received: JSON.stringify(head?.cells[0] ?? "")?.slice(0, 40) });
+  }
+  const columns = head.cells.map((c) => c.trim());
+  columns.slice(1).forEach((c, i) => {
+    if (!keys.includes(c) || columns.indexOf(c) !== i + 1) {
+      throw new InputError("META_INVALID", { file, line: head.line, column: i + 2, expected: `each of the keys ${keys.join(", ")} at most once`, received: JSON.stringify(c).slice(0, 40) });
+    }
+  });
+  return rows.map(({ cells, line: l }) => {
+    const name = cells[0]?.trim() ?? "";
+    if (name === "") throw new InputError("META_INVALID", { file, line: l, column: 1, expected: "the recording's file name", received: "an empty field" });
+    if (cells.length > columns.length) throw new InputError("META_INVALID", { file, line: l, column: columns.length + 1, expected: `${columns.length} fields as the header has`, received: `${cells.length}` });
+    const doc: Record<string, string> = {};
+    columns.forEach((k, i) => {
+      const v = cells[i]?.trim() ?? "";
+      if (i > 0 && v !== "") doc[k] = v;
+    });
+    let meta: TestMeta;
+    try {
+      meta = parseTestMeta(doc, file);
+    } catch (e) {
+      if (e instanceof InputError) throw new InputError(e.code, { ...e.details, line: l, column: columns.indexOf(e.details.keyPath ?? "") + 1 || undefined });
+      throw e;
+    }
+    return { name, meta, from: `${file} line ${l}`, table: file, line: l };
+  });
+}
+
+/**
+ * Each recording of the batch to its table row. A row that names no recording of the batch, a name that
+ * fits two of them, and a recording named by two rows are errors: a test id is never put on the wrong run.
+ */
+export function matchMetaTable(rows: MetaTableRow[], recordings: string[], file: string): Map<string, MetaTableRow> {
+  const { basename, resolve } = path;
+  const out = new Map<string, MetaTableRow>();
+  for (const row of rows) {
+    const byPath = recordings.filter((f) => f === row.name || resolve(f) === resolve(row.name));
+    const hits = byPath.length > 0 ? byPath : /[\\/]/.test(row.name) ? [] : recordings.filter((f) => basename(f) === row.name);
+    const where = { file, line: row.line, keyPath: row.line === undefined ? row.name : undefined };
+    if (hits.length === 0) {
+      throw new InputError("META_TABLE_UNKNOWN", { ...where, expected: "a recording of this batch (its path as given, or its file name)", received: quoted(row.name) });
+    }
+    if (hits.length > 1) {
+      throw new InputError("META_TABLE_AMBIGUOUS", { ...where, expected: "a name that fits one recording of the batch", received: `${quoted(row.name)}, which fits ${hits.length}: ${hits.slice(0, 3).join(", ")}`, hint: "name it by its path" });
+    }
+    const before = out.get(hits[0]!);
+    if (before !== undefined) {
+      throw new InputError("META_TABLE_DUPLICATE", { ...where, expected: "each recording named once", received: `${quoted(hits[0]!)} again (first at ${before.from})` });
+    }
+    out.set(hits[0]!, row);
+  }
+  return out;
 }

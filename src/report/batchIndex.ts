@@ -56,7 +56,7 @@ export function batchIndexHtml(entries: BatchEntry[], failed: number, profile: {
 <h2>Test identity</h2>
 <table class="meta" id="identity">
 ${metaRows(ctx.meta)}
-${row("Per recording", metaFrom.length ? esc(`test ids from ${metaFrom.join("; ")}`) : `<span class="muted">no meta file beside any recording (RECORDING.meta.yaml names one recording's test)</span>`)}
+${row("Per recording", metaFrom.length ? esc(`test ids from ${metaFrom.join("; ")}`) : `<span class="muted">no meta file beside any recording and no --meta-table (RECORDING.meta.yaml or a row of the table names one recording's test)</span>`)}
 </table>
 <h2>Profile</h2>
 <table class="meta">
@@ -72,7 +72,7 @@ ${rows}
 <h2>Caution</h2>
 <div class="caution keep">${esc(VERDICT_CAUTION)}</div>
 ${signOff(`<strong>Batch</strong>: ${esc(counts)}.`, [
-    ["Test", esc([ctx.meta?.testId, ctx.meta?.workOrder && `work order ${ctx.meta.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)") + (metaFrom.length ? "; per recording where its own meta file names one (see the table)" : "")],
+    ["Test", esc([ctx.meta?.testId, ctx.meta?.workOrder && `work order ${ctx.meta.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)") + (metaFrom.length ? "; per recording where its own meta file or the meta table names one (see the table)" : "")],
     ["Profile", `${esc(profile.title)} <span class="hash">${shortHash(profile.sha256)}</span>`],
     ["Operator", esc(ctx.meta?.operator ?? "not stated")],
   ])}`;

@@ -1,4 +1,4 @@
-import { readdirSync, writeFileSync } from "node:fs";
+import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { spawnSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
@@ -150,4 +150,59 @@ describe("batch worker limits (built code, issue #12)", () => {
     expect(lines.map((l) => l.verdict ?? l.error.code)).toEqual(["pass", "TOO_MANY_CHANNELS", "fail", "inconclusive"]);
     expect(r.stderr.trim().split("\n")).toHaveLength(1);
   }, 60_000);
+});
+
+describe("check --meta-table: per recording its test identity from one table", () => {
+  const names = ["kb210-run.wav", "kb210-run-resonance.wav", "kb210-run-short.wav"];
+  const setup = () => {
+    const d = tempDir();
+    for (const n of names) copyFileSync(join("samples", n), join(d, n));
+    writeFileSync(join(d, "shared.yaml"), "workOrder: WO-5531\noperator: T. Hallberg\n");
+    return { d, recs: names.map((n) => join(d, n)) };
+  };
+  it("a CSV or YAML table names each recording's test; --meta, then the row, then a meta file beside the recording, key by key; the batch index shows them", async () => {
+    const { d, recs } = setup();
+    // One row by file name, one by the path as given (quoted, with a comma in its notes); the third recording has no row.
+    writeFileSync(join(d, "runs.csv"), `recording,testId,serialNumber,notes\nkb210-run.wav,HF-QA-3001,SN 11,\n\n"${recs[1]}",HF-QA-3002,SN 12,"fixture re-torqued, then run"\n`);
+    writeFileSync(join(d, "kb210-run-short.meta.yaml"), "testId: HF-QA-3003\n");
+    writeFileSync(join(d, "kb210-run.meta.yaml"), "notes: beside file\n");
+    const out = join(d, "out");
+    const r = await cli("check", ...recs, "-p", kb, "--meta", join(d, "shared.yaml"), "--meta-table", join(d, "runs.csv"), "--report-dir", out, "--json", "-q");
+    expect(r.code, r.stderr).toBe(1);
+    const metas = r.stdout.trim().split("\n").map((l) => JSON.parse(l).meta);
+    expect(metas[0]).toEqual({ workOrder: "WO-5531", operator: "T. Hallberg", testId: "HF-QA-3001", serialNumber: "SN 11", notes: "beside file" });
+    expect(metas[1]).toEqual({ workOrder: "WO-5531", operator: "T. Hallberg", testId: "HF-QA-3002", serialNumber: "SN 12", notes: "fixture re-torqued, then run" });
+    expect(metas[2]).toEqual({ workOrder: "WO-5531", operator: "T. Hallberg", testId: "HF-QA-3003" });
+    const index = readFileSync(join(out, "psdgate-batch.html"), "utf8");
+    for (const id of ["HF-QA-3001", "HF-QA-3002", "HF-QA-3003"]) expect(index).toContain(`test ${id}`);
+    expect(index).toContain("runs.csv");
+    expect((await cli("verify", join(out, "psdgate-batch.html"), "-q")).code).toBe(0);
+    // The same table in YAML.
+    writeFileSync(join(d, "runs.yaml"), `kb210-run.wav: {testId: HF-QA-3001}\nkb210-run-resonance.wav:\n  testId: HF-QA-3002\n`);
+    const y = await cli("check", ...recs, "-p", kb, "--meta-table", join(d, "runs.yaml"), "--json", "-q");
+    expect(y.stdout.trim().split("\n").map((l) => JSON.parse(l).meta?.testId)).toEqual(["HF-QA-3001", "HF-QA-3002", "HF-QA-3003"]);
+  });
+  it("a row for a recording not in the batch, a recording named twice, a name that fits two, an unknown key: one line with file, line and code; nothing written", async () => {
+    const { d, recs } = setup();
+    const bad = async (file: string, text: string, code: string, where: RegExp, files = recs) => {
+      writeFileSync(join(d, file), text);
+      const out = join(d, `out-${file}`);
+      const r = await cli("check", ...files, "-p", kb, "--meta-table", join(d, file), "--report-dir", out, "-q");
+      expect(r.code, r.stderr).toBe(2);
+      expect(r.stderr.trim().split("\n")).toHaveLength(1);
+      expect(r.stderr).toContain(`[${code}]`);
+      expect(r.stderr).toMatch(where);
+      expect(existsSync(out) ? readdirSync(out) : []).toEqual([]);
+    };
+    await bad("t1.csv", "recording,testId\nkb210-run.wav,A\nkb210-run-typo.wav,B\n", "META_TABLE_UNKNOWN", /t1\.csv:3: .*"kb210-run-typo\.wav"/);
+    await bad("t2.csv", "recording,testId\nkb210-run.wav,A\nkb210-run-short.wav,B\nkb210-run.wav,C\n", "META_TABLE_DUPLICATE", /t2\.csv:4: .*first at .*t2\.csv line 2/);
+    await bad("t3.csv", `recording,testId\nkb210-run.wav,A\n${recs[0]},C\n`, "META_TABLE_DUPLICATE", /t3\.csv:3:/);
+    await bad("t4.yaml", "kb210-run.wav: {testId: A}\nkb210-run.wav: {testId: B}\n", "META_TABLE_DUPLICATE", /t4\.yaml:2/);
+    await bad("t5.json", '{"kb210-run.wav": {"testId": "A"}, "nope.wav": {"testId": "B"}}', "META_TABLE_UNKNOWN", /t5\.json.*nope\.wav/);
+    await bad("t6.csv", "recording,testid\nkb210-run.wav,A\n", "META_INVALID", /t6\.csv:1:2: .*"testid"/);
+    await bad("t7.csv", "recording,testId,sensorCalibrated\nkb210-run.wav,A,2025-13-40\n", "META_INVALID", /t7\.csv:2:3: .*calendar date/);
+    mkdirSync(join(d, "b"));
+    copyFileSync(join("samples", names[0]!), join(d, "b", names[0]!));
+    await bad("t8.csv", "recording,testId\nkb210-run.wav,A\n", "META_TABLE_AMBIGUOUS", /t8\.csv:2: .*fits 2/, [recs[0]!, join(d, "b", names[0]!)]);
+  });
 });
