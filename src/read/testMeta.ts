@@ -166,7 +166,7 @@ function csvMetaTable(body: string, file: string): MetaTableRow[] {
   });
   const head = rows.shift();
   if (!head || head.cells[0]?.trim().toLowerCase() !== "recording") {
-    throw new InputError("META_INVALID", { file, line: head?.line ?? 1, column: 1, expected: `a header starting "recording", then --meta keys (${keys.join(", ")})`, received: JSON.stringify(head?.cells[0] ?? "")?.slice(0, 40) });
+    throw new InputError("META_INVALID", { file, line: head?.line ?? 1, column: 1, expected: `a header starting "recording", then test-identity keys (${keys.join(", ")})`, received: JSON.stringify(head?.cells[0] ?? "")?.slice(0, 40) });
   }
   const columns = head.cells.map((c) => c.trim());
   columns.slice(1).forEach((c, i) => {
