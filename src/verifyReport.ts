@@ -12,7 +12,7 @@ import { RIDE_STYLE } from "./report/rideHtml.js";
 import { EXTRA_STYLE as TRANSFER_STYLE } from "./report/transferHtml.js";
 import { extractResult } from "./report/embeddedResult.js";
 import { foreignContent, scanPage, shownVerdict } from "./report/pageScan.js";
-import { isFrameStyle } from "./report/reportPage.js";
+import { isFrameStyle, PEAK_HOLD_STYLE } from "./report/reportPage.js";
 import { psdJson } from "./report/psdJson.js";
 import type { DeriveOptions } from "./deriveProfile.js";
 import type { RecordKind } from "./report/reportPage.js";
@@ -137,7 +137,7 @@ function requiredMissing(kind: string | undefined, result: Record<string, unknow
 }
 
 /** Style elements a page of each kind carries besides the frame's (report/reportPage.ts). */
-const EXTRA_STYLES: Record<string, readonly string[]> = { derive: [DERIVE_STYLE], ride: [RIDE_STYLE], transfer: [TRANSFER_STYLE], respond: [RESPOND_STYLE], batch: [BATCH_STYLE] };
+const EXTRA_STYLES: Record<string, readonly string[]> = { psd: [PEAK_HOLD_STYLE], derive: [DERIVE_STYLE], ride: [RIDE_STYLE, PEAK_HOLD_STYLE], transfer: [TRANSFER_STYLE], respond: [RESPOND_STYLE], batch: [BATCH_STYLE] };
 const BANNER_WORD: Record<string, string> = { psd: "PSD", derive: "PROFILE", ride: "RIDE", transfer: "FRF", respond: "SDOF", batch: "BATCH", shock: "SHOCK" };
 
 /**

@@ -25,4 +25,17 @@ for (const [signal, code] of [["SIGINT", 130], ["SIGTERM", 143], ["SIGHUP", 129]
 }
 process.on("exit", removeTemporaryFilesSync);
 
+// A rejection no psdgate code awaits. The one seen: node-postgres asks whether `Response` exists (its
+// Cloudflare check), which makes Node load its bundled HTTP client, whose parser compiles WebAssembly in a
+// promise nobody awaits; under a memory cap (ulimit -v) that compile fails after the command's own line was
+// printed, and Node printed a raw stack. psdgate never makes an HTTP request, so that one is dropped; any
+// other is a bug, said in one line with exit 70.
+process.on("unhandledRejection", (reason: unknown) => {
+  const e = reason instanceof Error ? reason : new Error(String(reason));
+  if (e instanceof RangeError && /WebAssembly/.test(e.message) && /undici/.test(e.stack ?? "")) return;
+  process.stderr.write(`psdgate: internal error (a bug; please report it): ${e.message} [INTERNAL]\n`);
+  removeTemporaryFilesSync();
+  process.exit(EXIT.internal);
+});
+
 process.exitCode = await runCli(process.argv.slice(2));

@@ -21,7 +21,7 @@ export function registerPsd(program: Command, io: CliIo): void {
   const { one, many } = runnerFor(io);
   const readStdin = io.readStdin ?? (async () => "");
   addBatchOptions(addBandOptions(addSpectrumOptions(addReadingOptions(program.command("psd").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("one-sided PSD by Welch's method, chi-square bounds and the Parseval check")))))
-    .option("--csv <out>", "also write frequency, PSD and bounds of each channel to this CSV file (one recording)")
+    .option("--csv <out>", "also write frequency, PSD and bounds of each channel (and its peak-hold with --peak-hold) to this CSV file (one recording)")
     .option("--report <out.html>", "also write a self-contained HTML record: PSD with its confidence band, statistics, histogram and the Parseval check per channel (one recording)")
     .option("--peak-hold <s>", "also a peak-hold spectrum: at each line the largest Welch PSD of consecutive stretches of this length (s), beside the average (--json: peakHold)", numberOption("--peak-hold", (x) => x > 0 && Number.isFinite(x), "a stretch length in s above 0"))
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")

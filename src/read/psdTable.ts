@@ -7,7 +7,7 @@ import { readSmallText } from "./regularFile.js";
 /**
  * A PSD table that `psdgate psd --csv` wrote: a `frequency_hz` column, then per channel
  * `NAME_psd [UNIT]`, `NAME_lower [UNIT]`, `NAME_upper [UNIT]`, UNIT `g2/Hz` or `(m/s2)2/Hz`, lines
- * equally spaced from 0 Hz.
+ * equally spaced from 0 Hz. Other columns (`NAME_peak_hold [UNIT]` with `--peak-hold`) are not read.
  */
 export interface PsdTable {
   file: string;

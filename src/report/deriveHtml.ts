@@ -46,6 +46,43 @@ function legendName(x: DeriveResult["recordings"][number], r: DeriveResult): str
   return n.length > 16 ? `${n.slice(0, 15)}…` : n;
 }
 
+/**
+ * The field's shocks beside the random test (issue #26): the largest events psdgate shock finds in the recordings, and the
+ * field's measured largest response (its SRS, shocks included) against the test's expected largest response (its ERS) on a
+ * plot and in a row naming the natural frequencies where the test falls short, where a shock test is needed.
+ */
+function shockSection(r: DeriveResult, lo: number, hi: number, u: string): string {
+  const s = r.shocks;
+  const total = s.eventsPerRecording.reduce((a, x) => a + x, 0);
+  const fn = r.fnHz;
+  const short = new Set(s.shortfallHz);
+  const shortX = Float64Array.from(fn.filter((x) => short.has(x)));
+  const shortY = shortX.map((x) => s.fieldSrs[[...fn].indexOf(x)]!);
+  const finite = [...s.fieldSrs, ...r.testExtreme].filter((v) => Number.isFinite(v) && v > 0);
+  const plot = finite.length === 0 ? `<p class="muted">No field SRS: every natural frequency lies above a quarter of the recordings' sample rates.</p>` : svgPlot({
+    id: "field-srs", title: `Field SRS (measured largest response, shocks included) against the test's ERS, Q ${r.q}`,
+    xLabel: "natural frequency (Hz)", yLabel: `largest response (${u})`, xDomain: [lo, hi], yDomain: [Math.min(...finite) / 1.5, Math.max(...finite) * 1.5], yLog: true, xMarks: [lo, hi],
+    series: [
+      { id: "field-srs", label: "field SRS", x: fn, y: s.fieldSrs, className: "field" },
+      { id: "test-ers-shock", label: "test ERS", x: fn, y: r.testExtreme, className: "test" },
+      { id: "shock-shortfall", label: shortX.length ? "test falls short" : "", x: shortX, y: shortY, className: "over", markers: true },
+    ],
+  });
+  const rows = s.largestEvents.map((e, k) => `<tr><td class="num">${k + 1}</td><td>${esc(r.recordings[e.recording]?.file ?? "?")}</td><td class="num">${fixed(e.timeS, 3)}</td><td class="num">${e.peak >= 0 ? "+" : ""}${sig(e.peak, 4)}</td><td class="num">${sig(1000 * e.durationS, 3)}</td></tr>`).join("\n");
+  const verdict = s.shortfallHz.length
+    ? `<strong>The test falls short</strong> ${s.shortfallHz.length === fn.length ? `at every one of the ${fn.length} natural frequencies (${sig(fn[0]!, 4)}–${sig(fn[fn.length - 1]!, 4)} Hz)` : `at ${s.shortfallHz.length} of ${fn.length} natural frequencies (${esc(s.shortfallHz.map((x) => sig(x, 4)).join(", "))} Hz)`}: the random test does not reach the field's shocks there, so a shock test is needed for them.`
+    : "The test's expected largest response reaches the field's SRS at every natural frequency.";
+  return `<h2>Field shocks</h2>
+<table class="meta" id="shocks">
+${row("Events", `${total} in the field recordings (${esc(s.eventsPerRecording.join(", "))} by recording; threshold 6 × each record's background r.m.s., hold 0.05 s, as psdgate shock)`)}
+${row("Field SRS against the test's ERS", verdict)}
+</table>
+${rows ? `<table class="grid"><tr><th class="num">#</th><th>recording</th><th class="num">time s</th><th class="num">peak ${esc(u)}</th><th class="num">duration ms</th></tr>
+${rows}
+</table>` : ""}
+${plot}`;
+}
+
 export function deriveHtml(r: DeriveResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> & { outFile: string }): string {
   const ctx: ReportContext = { ...context, version, when };
   const u = accelLabel(r.units);
@@ -105,6 +142,7 @@ export function deriveHtml(r: DeriveResult, version: string, when: Date, context
       { id: "extreme-over", label: over.length ? "above the limit" : "", x: over, y: over.map((x) => r.extremeRatio[[...r.fnHz].indexOf(x)]!), className: "over", markers: true },
     ],
   });
+  const shocks = shockSection(r, lo, hi, u);
   const t = r.tolerance;
   const summary = `${d.points.length} breakpoints, ${sig(p.rms, 4)} ${u} RMS for ${sig(r.testDurationS, 5)} s: test damage ≥ ${fixed(r.fit.minRatio, 3)} × the field's over ${sig(r.lifeS / 3600, 5)} h at every natural frequency from ${sig(lo)} to ${sig(hi)} Hz${r.extremeWarnings.length ? `; the extreme-response ratio exceeds ×${r.extremeLimit} at ${r.extremeWarnings.length} of ${r.fnHz.length} natural frequencies` : ""}.`;
   const given = ctx.given && ctx.given.length ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
@@ -161,6 +199,7 @@ ${row("Fit", `at most ${r.fit.maxBreakpoints} breakpoints on the grid, log-log; 
 ${row("Options given", given)}
 ${row("Computed", `psdgate ${esc(version)}, ${esc(stamp(when))}`)}
 </table>
+${shocks}
 ${r.notes.length ? `<h2>Notes</h2><ul>${r.notes.map((n) => `<li>${esc(n)}</li>`).join("")}</ul>` : ""}
 <h2>Caution</h2>
 <div class="caution keep">${esc(DERIVE_CAUTION)}</div>

@@ -5,7 +5,7 @@ import { embedResult } from "./embeddedResult.js";
 import { dB, fixed, sig } from "./format.js";
 import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
-import { qty, reportOpening, reportPage, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import { PEAK_HOLD_STYLE, qty, reportOpening, reportPage, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
 /**
@@ -32,6 +32,8 @@ function channelSection(c: ChannelAnalysis, a: RecordingAnalysis, n: number): st
   let bottom = Infinity;
   // The floor stops 10 decades under the top, so a roll-off to nothing does not squash the plot.
   for (let k = 0; k < f.length; k++) if (f[k]! >= lo && f[k]! <= hi && c.psd.lower[k]! > top * 1e-10) bottom = Math.min(bottom, c.psd.lower[k]!);
+  const hold = c.peakHold && c.peakHold.stretches > 0 && c.psd.averages > 0 ? c.peakHold : undefined;
+  if (hold) for (let k = 0; k < f.length; k++) if (f[k]! >= lo && f[k]! <= hi && Number.isFinite(hold.psd[k]!)) top = Math.max(top, hold.psd[k]!);
   if (!(top > 0) || !Number.isFinite(bottom)) { top = 1; bottom = 1e-6; }
   // Candidate tones (lines far above their neighbours), marked at their line with their peak amplitude.
   const toneMarks = c.tones.map((t) => {
@@ -44,6 +46,7 @@ function channelSection(c: ChannelAnalysis, a: RecordingAnalysis, n: number): st
     series: [
       { id: "confidence", label: "confidence band", x: f, y: c.psd.lower, y2: c.psd.upper, className: "band" },
       { id: "measured", label: "measured PSD", x: f, y: c.psd.psd, className: "measured" },
+      ...(hold ? [{ id: "peak-hold", label: `peak-hold (${sig(hold.stretchS, 3)} s stretches)`, x: f, y: hold.psd, className: "peakhold" }] : []),
       ...(toneMarks.length > 0 ? [{ id: "tones", label: "candidate tone", x: toneMarks.map((t) => t.x), y: toneMarks.map((t) => t.y), className: "tone", markers: true }] : []),
     ],
     notes: toneMarks,
@@ -66,6 +69,7 @@ ${row("Averages / degrees of freedom", `${p.averages}${p.skippedSegments ? ` (${
 ${row("Random error of one line", `±${fixed(100 * p.randomError, 1)} % (1 σ)`, "num")}
 ${bounds ? row(`${fixed(100 * a.settings.confidence, 0)} % bounds of a line`, `${fixed(dB(bounds.lower), 2)} / +${fixed(dB(bounds.upper), 2)} dB`, "num") : ""}
 ${c.tones.length ? row("Candidate tones (lines far above their neighbours; peak from the window's kernel)", esc(c.tones.map((t) => `${sig(t.frequencyHz, 6)} Hz ${sig(t.peak, 3)} ${u} peak (+${fixed(t.aboveBackgroundDb, 1)} dB)`).join(", "))) : ""}
+${hold ? row("Peak-hold (largest stretch level at each line)", esc(peakHoldLine(c, hold))) : ""}
 ${c.peaks.length ? row("Strongest peaks", esc(c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ") + ` ${densityLabel(c.units)}`)) : ""}
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${qty(sig(s.std, 4), u)}`, "num")}
 ${row("Minimum / maximum", `${sig(s.min, 4)} / ${qty(sig(s.max, 4), u)}`, "num")}
@@ -76,6 +80,14 @@ ${histogramOf(c, n)}
 ${c.warnings.length ? `<p class="muted">Notes: ${c.warnings.map(esc).join("; ")}</p>` : ""}
 ${c.doubts.length ? `<p><strong>Doubts:</strong> ${c.doubts.map(esc).join("; ")}</p>` : ""}
 </section>`;
+}
+
+/** Where the loudest stretch stands furthest above the whole record's average (lines above 0 Hz), as psd's text says it. */
+function peakHoldLine(c: ChannelAnalysis, h: NonNullable<ChannelAnalysis["peakHold"]>): string {
+  const p = c.psd;
+  let k = 1;
+  for (let i = 1; i < h.psd.length; i++) if (p.psd[i]! > 0 && h.psd[i]! / p.psd[i]! > h.psd[k]! / p.psd[k]!) k = i;
+  return `${h.stretches} stretches of ${sig(h.stretchS, 3)} s (${h.averagesPerStretch} averages each); furthest above the average at ${sig(p.frequencyHz[k]!, 5)} Hz: +${fixed(dB(h.psd[k]! / p.psd[k]!), 1)} dB, the stretch from ${sig(h.atS[k]!, 5)} s. A largest of many short estimates: read it as "at most this loud", not as a stationary level.`;
 }
 
 /** The result embedded in every PSD report (what `psdgate verify` re-runs and compares). */
@@ -91,7 +103,8 @@ export function psdHtml(a: RecordingAnalysis, version: string, when: Date, conte
   const summary = doubts > 0
     ? `PSD of ${a.channels.length} channel(s); ${doubts} channel(s) carry doubts (see their sections): read their spectra with care.`
     : `PSD of ${a.channels.length} channel(s); no data doubts found. No profile was given, so there is no verdict.`;
-  const body = `${reportOpening({ verdictClass: "none", word: "PSD", line: summary, meta: m, a, ctx })}
+  const holds = a.channels.some((c) => c.peakHold && c.peakHold.stretches > 0 && c.psd.averages > 0);
+  const body = `${holds ? `<style>${PEAK_HOLD_STYLE}</style>\n` : ""}${reportOpening({ verdictClass: "none", word: "PSD", line: summary, meta: m, a, ctx })}
 ${a.channels.map((c, i) => channelSection(c, a, i + 1)).join("\n")}
 <h2>Caution</h2>
 <div class="caution">A PSD describes the record as measured. It is not a compliance verdict; where it feeds a decision about people or equipment (a test level, a fixture or exciter limit) the governing standard, the lab's procedure and a qualified engineer decide.</div>

@@ -92,13 +92,17 @@ export function psdCsv(a: RecordingAnalysis): string {
   for (const c of a.channels) {
     const u = densityAscii(c.units);
     head.push(`${c.name}_psd [${u}]`, `${c.name}_lower [${u}]`, `${c.name}_upper [${u}]`);
+    if (c.peakHold) head.push(`${c.name}_peak_hold [${u}]`);
   }
   // Channel names come from the file: each header field is quoted and guarded (csvField).
   const lines = [head.map(csvField).join(",")];
   const f = a.channels[0]?.psd.frequencyHz ?? new Float64Array();
   for (let k = 0; k < f.length; k++) {
     const row = [String(f[k])];
-    for (const c of a.channels) row.push(String(c.psd.psd[k]), String(c.psd.lower[k]), String(c.psd.upper[k]));
+    for (const c of a.channels) {
+      row.push(String(c.psd.psd[k]), String(c.psd.lower[k]), String(c.psd.upper[k]));
+      if (c.peakHold) row.push(String(c.peakHold.psd[k]));
+    }
     lines.push(row.join(","));
   }
   return lines.join("\n") + "\n";

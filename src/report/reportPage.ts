@@ -80,6 +80,13 @@ details > summary { font-weight: 600; cursor: pointer; }
 `;
 
 /**
+ * The style element a page with a peak-hold spectrum adds (psd, ride): the peak-hold curve dashed in violet
+ * beside the blue Welch average (and ride's orange weighted PSD), told apart in greyscale by its dash. A separate element, not part of the
+ * frame's STYLE, so records written before it still pass verify's frame check.
+ */
+export const PEAK_HOLD_STYLE = ".peakhold { fill: none; stroke: #8e44ad; stroke-width: 1; stroke-dasharray: 5 2; }";
+
+/**
  * A CSS string literal that is safe inside an HTML <style> element. The style element is raw text to the
  * HTML parser: it ends at the first `</style`, whatever CSS thinks is a string. So every character but
  * letters, digits, space and a few harmless marks is written as a CSS hex escape (`\3c ` for `<`; CSS

@@ -3,7 +3,7 @@ import type { RideAxis, RideResult } from "../rideRecording.js";
 import { weightingPowerGains } from "../weight/isoWeightings.js";
 import { fixed, rateText, sig } from "./format.js";
 import { embedResult } from "./embeddedResult.js";
-import { metaRows, recordDocument, recordingRows, recordSignOff, reportPage, row, settingsRows, startTimeOf, type ReportContext } from "./reportPage.js";
+import { metaRows, PEAK_HOLD_STYLE, recordDocument, recordingRows, recordSignOff, reportPage, row, settingsRows, startTimeOf, type ReportContext } from "./reportPage.js";
 import { RIDE_CAUTIONS, rideJson, zoneFrom } from "./rideReport.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
@@ -109,13 +109,16 @@ function spectrumPlot(a: RideAxis, r: RideResult, n: number): string {
     if (c.psd.psd[k]! > 0) top = Math.max(top, c.psd.psd[k]!);
     if (weighted[k]! > 0) bottom = Math.min(bottom, weighted[k]!);
   }
+  const hold = a.peakHold && a.peakHold.stretches > 0 && c.psd.averages > 0 ? a.peakHold : undefined;
+  if (hold) for (let k = 0; k < f.length; k++) if (f[k]! >= 0.3 && f[k]! <= 100 && Number.isFinite(hold.psd[k]!)) top = Math.max(top, hold.psd[k]!);
   const lo = Math.max(bottom, top * 1e-8);
   return svgPlot({
-    id: `spectrum-${n}`, title: `${a.axis} (${a.channel}): unweighted and ${a.weighting}-weighted PSD`, xLabel: "frequency, Hz", yLabel: "PSD, (m/s²)²/Hz",
+    id: `spectrum-${n}`, title: `${a.axis} (${a.channel}): unweighted${hold ? " (average and peak-hold)" : ""} and ${a.weighting}-weighted PSD`, xLabel: "frequency, Hz", yLabel: "PSD, (m/s²)²/Hz",
     xDomain: [0.3, 100], yDomain: [lo, top * 2 || 1], yLog: true,
     series: [
       { id: `psd-${a.axis}`, label: "unweighted", x: f, y: c.psd.psd, className: "measured" },
       { id: `weighted-${a.axis}`, label: `|${a.weighting}|² × PSD`, x: f, y: weighted, className: "weighted" },
+      ...(hold ? [{ id: `peak-hold-${a.axis}`, label: `unweighted peak-hold (${sig(hold.stretchS, 3)} s)`, x: f, y: hold.psd, className: "peakhold" }] : []),
     ],
   });
 }
@@ -161,7 +164,8 @@ export function rideHtml(r: RideResult, version: string, when: Date, context: Om
   const summary = e
     ? `A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}) for ${sig(e.durationS / 3600, 3)} h a day: ${e.directive.a8} of Directive 2002/44/EC; VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${e.directive.vdv}.`
     : `k a_w ${sig(top.rule.healthK * top.dose.rms, 3)} m/s² on ${top.axis}, VDV of the recording ${sig(top.dose.vdv, 3)} m/s^1.75; no daily exposure stated, so no A(8) or judgement against the Directive.`;
-  const body = `<style>${RIDE_STYLE}</style>
+  const holds = r.axes.some((x) => x.peakHold && x.peakHold.stretches > 0);
+  const body = `<style>${RIDE_STYLE}</style>${holds ? `<style>${PEAK_HOLD_STYLE}</style>` : ""}
 <div class="verdict none" id="verdict" data-verdict="none"><span class="word">RIDE</span><span>${esc(summary)}</span></div>
 <h2>Test identity</h2>
 <table class="meta" id="identity">

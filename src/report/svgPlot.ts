@@ -30,7 +30,7 @@ export interface PlotSpec {
   /** Log x axis (default true); false gives a linear x axis (time plots). */
   xLog?: boolean | undefined;
   series: Series[];
-  /** Horizontal reference lines (linear plots). */
+  /** Horizontal reference lines (an event threshold), drawn dashed across the plot where they fall inside the y domain. */
   rules?: number[] | undefined;
   /** Height in SVG units (default 340; the width is always 720, so plots of one page share their x axis). */
   height?: number | undefined;
@@ -208,6 +208,11 @@ export function svgPlot(p: PlotSpec): string {
     out.push(`<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${drawn}" d="${d ?? ""}" data-lines="${idx.length}"/>`);
   }
   out.push("</g>");
+  // Horizontal reference lines (an event threshold): dashed across the plot, each with its value for readers and tests.
+  for (const v of p.rules ?? []) {
+    if (!ok(v) || v < Math.min(...p.yDomain) || v > Math.max(...p.yDomain)) continue;
+    out.push(`<line class="limit rule" data-rule="${v}" x1="${M.left}" x2="${W - M.right}" y1="${y(v).toFixed(1)}" y2="${y(v).toFixed(1)}"/>`);
+  }
   for (const t of p.notes ?? []) {
     if (!inX(t.x) || !ok(t.y)) continue;
     const px = x(t.x);

@@ -74,10 +74,34 @@ describe("psdgate derive", () => {
     expect(h).toMatch(/governing test standard's tailoring process and a qualified engineer decide/);
     expect(h).not.toMatch(/<script/i);
     expect(h).toContain(JSON.parse(readFileSync(out, "utf8")).provenance.inputs[0].sha256);
+    // The K7 recordings hold no shocks: the shock section says the test reaches the field's SRS.
+    expect(h).toContain("The test's expected largest response reaches the field's SRS at every natural frequency.");
     // verify re-runs the derivation from the recorded settings on the recordings it finds by SHA-256.
     const v = await cli("verify", rep);
     expect(v.stdout).toMatch(/rerun +\d+ numbers of the derivation reproduced/);
     expect(v.code).toBe(0);
+  });
+
+  it("--report shows the field's shocks: the events table, the field SRS against the test's ERS, and that a shock test is needed where the ERS falls short", async () => {
+    const dir = tempDir();
+    const rep = join(dir, "ft2.html");
+    const r = await cli("derive", "samples/brackley-ft2-warehouse.csv", "--life", "2h", "--test-duration", "1h", "--fmin", "5", "--fmax", "400", "--out", join(dir, "ft2.json"), "--report", rep, "--json");
+    expect(r.code, r.stderr).toBe(0);
+    const j = JSON.parse(r.stdout);
+    const h = readFileSync(rep, "utf8");
+    const section = h.slice(h.indexOf("<h2>Field shocks</h2>"), h.indexOf("<h2>Notes</h2>"));
+    expect(section.length).toBeGreaterThan(100);
+    // The sample's five events (samples/README.md), largest first, as the JSON has them.
+    expect(j.shocks.eventsPerRecording).toEqual([5]);
+    expect(section).toContain("5 in the field recordings");
+    const peaks = [...section.matchAll(/<tr><td class="num">\d<\/td><td>[^<]*<\/td><td class="num">[^<]*<\/td><td class="num">([^<]*)<\/td>/g)].map((m) => Number(m[1]));
+    expect(peaks).toHaveLength(j.shocks.largestEvents.length);
+    peaks.forEach((p, i) => expect(Math.abs(p / j.shocks.largestEvents[i].peak - 1)).toBeLessThan(5e-4));
+    for (const id of ["field-srs", "test-ers-shock", "shock-shortfall"]) expect(section).toContain(`data-series="${id}"`);
+    expect(j.shocks.shortfallHz.length).toBeGreaterThan(0);
+    expect(section).toMatch(/The test falls short<\/strong> at every one of the 39 natural frequencies \(5–400 Hz\): the random test does not reach the field's shocks there, so a shock test is needed/);
+    const v = await cli("verify", rep);
+    expect(v.code, v.stdout).toBe(0);
   });
 
   it("two recordings: no tolerance limit, said so", async () => {

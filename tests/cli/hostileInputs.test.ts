@@ -1,5 +1,5 @@
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
-import { execFileSync } from "node:child_process";
+import { execFileSync, spawnSync } from "node:child_process";
 import { join } from "node:path";
 import Papa from "papaparse";
 import { describe, expect, it } from "vitest";
@@ -112,4 +112,14 @@ describe("report at a fine resolution", () => {
     expect(r.code, r.stderr).toBe(3);
     expect(existsSync(out)).toBe(true);
   }, 30_000);
+});
+
+describe("under a memory cap", () => {
+  it("a queue command under ulimit -v says its one line and exits 2: no raw stack from the HTTP parser node-postgres makes Node load", () => {
+    // The built CLI (bin/psdgate.js) in a shell with a 1.5 GB address-space cap; port 1 refuses the connection.
+    const r = spawnSync("bash", ["-c", "ulimit -v 1500000 && exec node bin/psdgate.js queue status --db postgres://nobody@127.0.0.1:1/none"], { encoding: "utf8", timeout: 30_000 });
+    expect(r.status, r.stderr).toBe(2);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r.stderr).toMatch(/\[DB_UNREACHABLE\]/);
+  }, 40_000);
 });

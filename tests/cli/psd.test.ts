@@ -106,6 +106,28 @@ describe("psdgate psd", () => {
     expect(self.stderr).toContain("[OUTPUT_IS_INPUT]");
     expect(readFileSync("samples/kb210-run.wav").subarray(0, 4).toString()).toBe("RIFF");
   });
+  it("--peak-hold: --csv adds a peak_hold column per channel (the --json peakHold line by line), and --report draws it beside the average with a legend entry, which verify reproduces", async () => {
+    const out = join(dir, "hold.csv");
+    const page = join(dir, "hold.html");
+    const r = await cli("psd", "samples/kb210-run.wav", "--peak-hold", "2", "--csv", out, "--report", page);
+    expect(r.code).toBe(0);
+    const lines = readFileSync(out, "utf8").trim().split("\n");
+    expect(lines[0]).toBe("frequency_hz,ch1_psd [g2/Hz],ch1_lower [g2/Hz],ch1_upper [g2/Hz],ch1_peak_hold [g2/Hz],ch2_psd [g2/Hz],ch2_lower [g2/Hz],ch2_upper [g2/Hz],ch2_peak_hold [g2/Hz]");
+    const j = JSON.parse((await cli("psd", "samples/kb210-run.wav", "--peak-hold", "2", "--json")).stdout);
+    const hold = j.channels[1].peakHold.psd as number[];
+    expect(lines.length).toBe(hold.length + 1);
+    for (const k of [1, 100, 1000, hold.length - 1]) expect(Number(lines[k + 1]!.split(",")[8])).toBe(hold[k]);
+    const html = readFileSync(page, "utf8");
+    expect(html.match(/data-series="peak-hold"/g)).toHaveLength(2);
+    expect(html.match(/class="legend-text"[^>]*>peak-hold \(2 s stretches\)</g)).toHaveLength(2);
+    expect(html).toContain("Peak-hold (largest stretch level at each line)");
+    const v = await cli("verify", page);
+    expect(v.code).toBe(0);
+    expect(v.stdout).toMatch(/REPRODUCED/);
+    // Without --peak-hold: no column, no curve, no extra style element.
+    expect((await cli("psd", "samples/kb210-run.wav", "--report", page, "--force")).code).toBe(0);
+    expect(readFileSync(page, "utf8")).not.toContain("peak-hold");
+  });
   it("synth never replaces its profile (a CSV profile is also a valid output), however the path is spelled, even with --force", async () => {
     const prof = join(dir, "spec.csv");
     writeFileSync(prof, "hz,level\n20,0.01\n80,0.04\n350,0.04\n2000,0.007\n");

@@ -110,6 +110,14 @@ describe("psdgate shock", () => {
     expect(html).toContain('id="signoff"');
     expect(html).toContain('id="srs-1"');
     expect(html).toContain('id="timeline-1"');
+    // The timeline draws the threshold either side of zero: the two rules are the embedded result's threshold.
+    const { extractResult } = await import("../../src/report/embeddedResult.js");
+    const threshold = ((extractResult(html).doc?.result as { channels: { threshold: number }[] }).channels[0]!).threshold;
+    const timeline = html.slice(html.indexOf('id="timeline-1"'), html.indexOf("</svg>", html.indexOf('id="timeline-1"')));
+    const rules = [...timeline.matchAll(/data-rule="([^"]+)"/g)].map((m) => Number(m[1]));
+    expect(rules).toHaveLength(2);
+    expect(threshold).toBeGreaterThan(0);
+    expect(rules).toEqual([threshold, -threshold]);
     expect(html).toContain("not a structural verdict");
     expect(html).not.toMatch(/<script/i);
     const v = await cli("verify", out);

@@ -22,6 +22,18 @@ describe("rideHtml", () => {
     expect(html).toContain("not an occupational-health assessment");
     expect(html).toContain("competent persons decide");
   });
+  it("with a peak-hold spectrum each axis's spectrum plot draws it beside the average, with a legend entry and its style element; without one, neither", async () => {
+    const opts = { inputUnits: "m/s2" as const, scale: 40, axes: { x: "1", y: "2", z: "3" }, posture: "seated" as const, exposureS: 8 * 3600 };
+    const r = await rideRecording("samples/marlow-uv3-ride.wav", { ...opts, peakHoldS: 10 });
+    const html = rideHtml(r, "9.9.9", new Date("2026-12-02T01:00:00Z"));
+    const { PEAK_HOLD_STYLE } = await import("../../src/report/reportPage.js");
+    for (const axis of ["x", "y", "z"]) expect(html).toMatch(new RegExp(`class="peakhold" data-series="peak-hold-${axis}" data-points="[1-9]`));
+    expect(html.match(/>unweighted peak-hold \(10 s\)</g)).toHaveLength(3);
+    expect(html).toContain(`<style>${PEAK_HOLD_STYLE}</style>`);
+    const plain = rideHtml(await rideRecording("samples/marlow-uv3-ride.wav", opts), "9.9.9", new Date("2026-12-02T01:00:00Z"));
+    expect(plain).not.toContain("peak-hold");
+    expect(plain).not.toContain(PEAK_HOLD_STYLE);
+  });
   it("without an exposure: no A(8) plot, the exposure row says what is missing, and the weighting's error is among the notes", async () => {
     const r = await rideRecording("samples/marlow-uv3-ride.wav", { inputUnits: "m/s2", scale: 40, axes: { z: "3" }, posture: "seated", spectrogram: true, fromS: 100, toS: 140 });
     const html = rideHtml(r, "9.9.9", new Date("2026-12-02T01:00:00Z"));

@@ -19,6 +19,13 @@ describe("svgPlot", () => {
     expect(svg).toMatch(/data-series="m" data-points="3" d="(M[^M]*){3}"/);
     expect(svg).toContain(">marked<");
   });
+
+  it("svgPlot draws each rule inside the y domain as a dashed horizontal line at its value, and none outside", () => {
+    const svg = svgPlot({ id: "p", title: "t", xLabel: "s", yLabel: "g", xDomain: [0, 10], yDomain: [-2, 2], yLog: false, xLog: false, rules: [1, -1, 5], series: [] });
+    const rules = [...svg.matchAll(/<line class="limit rule" data-rule="([^"]+)" x1="70" x2="704" y1="([^"]+)" y2="\2"\/>/g)].map((m) => [Number(m[1]), Number(m[2])]);
+    // Height 340, margins 40 top and 44 bottom: y runs 296 (at -2) to 40 (at +2), so ±1 fall at 232 and 104.
+    expect(rules).toEqual([[1, 104], [-1, 232]]);
+  });
 });
 
 describe("thinLine and thinBand: a plot holds what a page can show", () => {
