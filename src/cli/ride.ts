@@ -84,7 +84,7 @@ export function registerRide(program: Command, io: CliIo): void {
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
     .option("--json", "print the result as JSON (SI units)")
     .option("--report <out.html>", "also write a self-contained HTML report: level over time, spectrograms, spectra, exposure against the limit values")
-    .option("--csv <out>", "also write the per-axis figures, each axis's unweighted and weighted PSD and its weighted running r.m.s. per stretch to this CSV (one value a row: axis,channel,quantity,frequency_hz,time_s,value,unit)")
+    .option("--csv <out>", "also write the per-axis figures, each axis's unweighted and weighted PSD (and --peak-hold's) and its weighted running r.m.s. per stretch to this CSV (one value a row: axis,channel,quantity,frequency_hz,time_s,value,unit)")
     .option("--force", "replace an existing report or CSV file")
     .option("-q, --quiet", "no progress bar")
     .addHelpText("after", "\nWithout --exposure: a_w, crest factor, VDV, MTVV, total value and comfort of the recording; A(8), the daily VDV and their judgement need it.\nRates from 100 Hz up; every result states the weighting filter's error at its rate (a_w, VDV, MTVV, crest, A(8) carry it).\nRide's Welch defaults differ from psd's: 0.125 Hz lines (--resolution) and 75 % overlap (--overlap).\nResults are in SI units (m/s², m/s^1.75); --units and --scale say what the file holds.\nAn engineering estimate from one recording, not an occupational-health assessment: local regulations and competent persons decide.\n")

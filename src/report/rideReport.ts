@@ -125,7 +125,8 @@ export function rideJson(r: RideResult, version: string) {
  * a filter): `axis,channel,quantity,frequency_hz,time_s,value,unit`. Per axis its figures (a_w, a_w
  * from the PSD, crest factor, VDV, MTVV with its time, peak, the k factors, the filter's error), then
  * its unweighted and weighted PSD at each line (`psd`, `weighted_psd` = |W(f)|² × PSD, with
- * `frequency_hz`), then its weighted running r.m.s. at the end of each stretch (`running_rms`, with
+ * `frequency_hz`; with --peak-hold also `peak_hold_psd`, `time_s` the start of the stretch that holds
+ * it), then its weighted running r.m.s. at the end of each stretch (`running_rms`, with
  * `time_s` from the record's first sample); last the whole-ride figures (the total values with an
  * empty axis; A(8) and the daily VDV with --exposure, on the axis that gives each, `time_s` the daily
  * exposure; SEAT with --floor, its channel the floor's). SI units; numbers at full precision
@@ -153,6 +154,8 @@ export function rideCsv(r: RideResult): string {
     const g = weightingPowerGains(x.weighting, psd.frequencyHz);
     for (let k = 0; k < psd.frequencyHz.length; k++) add(x.axis, ch, "psd", psd.frequencyHz[k], undefined, psd.psd[k]!, "(m/s2)2/Hz");
     for (let k = 0; k < psd.frequencyHz.length; k++) add(x.axis, ch, "weighted_psd", psd.frequencyHz[k], undefined, psd.psd[k]! * g[k]!, "(m/s2)2/Hz");
+    const ph = x.peakHold;
+    if (ph) for (let k = 0; k < ph.psd.length; k++) add(x.axis, ch, "peak_hold_psd", psd.frequencyHz[k], from + ph.atS[k]!, ph.psd[k]!, "(m/s2)2/Hz");
     const v = x.dose.stretchRms;
     for (let k = 0; k < v.length; k++) add(x.axis, ch, "running_rms", undefined, from + (k + 1) * x.dose.stretchS, v[k]!, "m/s2");
   });

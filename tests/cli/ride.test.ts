@@ -143,7 +143,13 @@ describe("psdgate ride", () => {
     expect(again.stderr).toMatch(/OUTPUT_EXISTS/);
     expect(again.stderr.trim().split("\n")).toHaveLength(1);
     expect(readFileSync(out, "utf8")).toBe(text);
-    expect((await cli(...base, "--from", "0", "--to", "30", "--csv", out, "--force")).code).toBe(0);
+    const ph = await cli(...base, "--from", "0", "--to", "30", "--peak-hold", "10", "--csv", out, "--force", "--json");
+    expect(ph.code, ph.stderr).toBe(0);
+    const jp = JSON.parse(ph.stdout);
+    const prow = readFileSync(out, "utf8").trim().split("\n").map((l) => l.split(",")).filter((x) => x[0] === "z" && x[2] === "peak_hold_psd");
+    const zph = jp.axes[2].peakHold;
+    expect(prow.map((x) => Number(x[5]))).toEqual(zph.psd);
+    expect(prow.map((x) => Number(x[4]))).toEqual(zph.atS);
     expect(readFileSync(out, "utf8")).not.toBe(text);
     const same = await cli(...base, "--csv", join(d, "x.html"), "--report", join(d, "x.html"));
     expect(same.code).toBe(2);
