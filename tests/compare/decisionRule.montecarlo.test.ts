@@ -9,6 +9,7 @@ import { normalizeWelchOptions } from "../../src/estimate/welchOptions.js";
 import { WelchAccumulator } from "../../src/estimate/welchPsd.js";
 import { spectralWindow } from "../../src/estimate/windows.js";
 import { recordShaper, shapedRecord } from "../shapedRecords.js";
+import { lower999, upper999 } from "../binomialBounds.js";
 
 /**
  * The decision rule's rates, proven by seeded Monte Carlo on records this test makes itself
@@ -82,24 +83,6 @@ function monteCarlo(level: (f: number) => number, ks: number[], records: number,
   // The table behind each assertion, printed with the test run (DEVELOPERS.md quotes a longer run).
   console.log(ks.map((k, i) => `${dofOf(k).toFixed(1)} DOF: fail ${out[i]!.fail}, pass ${out[i]!.pass}, inconclusive ${out[i]!.inconclusive} of ${records}`).join("; "));
   return out;
-}
-
-/** Smallest c with P(Binomial(n, p) > c) <= 0.001. */
-function upper999(n: number, p: number): number {
-  let c = 0;
-  let term = (1 - p) ** n;
-  let cdf = term;
-  while (1 - cdf > 0.001) {
-    term *= ((n - c) / (c + 1)) * (p / (1 - p));
-    c++;
-    cdf += term;
-  }
-  return c;
-}
-
-/** Largest c with P(Binomial(n, p) < c) <= 0.001: a count at or above it is consistent with a rate of at least p. */
-function lower999(n: number, p: number): number {
-  return n - upper999(n, 1 - p);
 }
 
 describe("decision rule by Monte Carlo (records made by the test, not by synth)", () => {

@@ -3,6 +3,8 @@ import { parseProfile, profileLevel, type TestProfile } from "../../src/compare/
 import { combineSpectra, type ControlRule } from "../../src/checkRecording.js";
 import { welchPsd } from "../../src/estimate/psdEstimate.js";
 import { shapedRecord } from "../shapedRecords.js";
+import { lower999, upper999 } from "../binomialBounds.js";
+export { lower999, upper999 };
 
 /**
  * Small, fast set-ups for the decision rule's Monte Carlo files (records made here: tests/shapedRecords.ts,
@@ -58,24 +60,6 @@ export function channels(level: (f: number) => number, k: number, seed: number, 
 
 export function judgeControl(xs: Float64Array[], k: number, rule: ControlRule, profile: TestProfile = slopes): ChannelCompliance {
   return judgeSpectrum(combineSpectra(xs.map((x, i) => spectrumOfRecord(x, k, `c${i}`)), rule), profile);
-}
-
-/** Smallest c with P(Binomial(n, p) > c) <= 0.001. */
-export function upper999(n: number, p: number): number {
-  let c = 0;
-  let term = (1 - p) ** n;
-  let cdf = term;
-  while (1 - cdf > 0.001) {
-    term *= ((n - c) / (c + 1)) * (p / (1 - p));
-    c++;
-    cdf += term;
-  }
-  return c;
-}
-
-/** Largest c with P(Binomial(n, p) < c) <= 0.001: a count at or above it is consistent with a rate of at least p. */
-export function lower999(n: number, p: number): number {
-  return n - upper999(n, 1 - p);
 }
 
 /** More records for a longer table (PSDGATE_MC_SCALE=10); CI runs the default. */

@@ -3,6 +3,7 @@ import { DECISION_RULE, ruleLevels } from "../../src/compare/decisionRule.js";
 import { profileLevel } from "../../src/compare/testProfile.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { addTones, FS, judgeMixed, mixedProfile, TONES } from "./toneRecords.js";
+import { lower999, upper999 } from "../binomialBounds.js";
 
 /**
  * The mixed-mode rule's rates, by seeded Monte Carlo on sine-on-random records this test makes itself
@@ -16,32 +17,6 @@ const LENGTH = 1 << 17;
 const nominal = (f: number) => (f >= 20 && f <= 2000 ? profileLevel(mixedProfile, f) : 0);
 const bandDb = (f: number) => (f <= 1000 ? 1.5 : 3);
 const edge = (f: number) => nominal(f) * 10 ** (((Math.floor(f / 50) % 2 ? 1 : -1) * bandDb(f)) / 10);
-
-/** Smallest c with P(Binomial(n, p) > c) <= 0.001. */
-function upper999(n: number, p: number): number {
-  let c = 0;
-  let term = (1 - p) ** n;
-  let cdf = term;
-  while (1 - cdf > 0.001) {
-    term *= ((n - c) / (c + 1)) * (p / (1 - p));
-    c++;
-    cdf += term;
-  }
-  return c;
-}
-
-/** Largest c with P(Binomial(n, p) < c) <= 0.001, summed from 0 (no (1-p)^n underflow for small p). */
-function lower999(n: number, p: number): number {
-  let c = 0;
-  let term = (1 - p) ** n;
-  let cdf = 0;
-  while (cdf + term <= 0.001) {
-    cdf += term;
-    term *= ((n - c) / (c + 1)) * (p / (1 - p));
-    c++;
-  }
-  return c;
-}
 
 function run(level: (f: number) => number, toneDb: number, records: number, seed: number) {
   let fail = 0;
