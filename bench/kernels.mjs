@@ -8,27 +8,13 @@ import FFT from "fft.js";
 import { CsvBodyParser, columnPool, pieceBuffers } from "../dist/read/csvBody.js";
 import { daysFromCivil } from "../dist/read/dateTimeStamp.js";
 import { SegmentPower } from "../dist/estimate/segmentPower.js";
+import { cg, iso, sci } from "./spellings.mjs";
 
 const median = (xs) => [...xs].sort((a, b) => a - b)[(xs.length - 1) >> 1];
 
 // Rows as bench/generate.mjs writes them: time and three channels, in each CSV spelling.
 let seed = 7;
 const rand = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
-const sci = (v, d) => v.toExponential(d).replace(/e([+-])(\d)$/, "e$10$2");
-const cg = (v, p = 6) => {
-  if (v === 0) return "0";
-  const x = Number(v.toExponential(p - 1).split("e")[1]);
-  if (x < -4 || x >= p) return sci(v, p - 1).replace(/\.?0+e/, "e");
-  const f = v.toFixed(p - 1 - x);
-  return f.includes(".") ? f.replace(/\.?0+$/, "") : f;
-};
-const pad = (n, w) => String(n).padStart(w, "0");
-const iso = (t) => {
-  const us = Math.round(t * 1e6);
-  const s = Math.floor(us / 1e6);
-  const m = 15 + Math.floor(s / 60);
-  return `2026-03-09T${pad(8 + Math.floor(m / 60), 2)}:${pad(m % 60, 2)}:${pad(s % 60, 2)}.${pad(us % 1e6, 6)}`;
-};
 const spellings = {
   fixed: (t, a, b, c) => `${t.toFixed(6)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}`,
   "sci (%.6e)": (t, a, b, c) => `${sci(t, 9)},${sci(a, 6)},${sci(b, 6)},${sci(c, 6)}`,
