@@ -5,7 +5,7 @@ import { embedResult } from "./embeddedResult.js";
 import { dB, fixed, sig } from "./format.js";
 import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
-import { PEAK_HOLD_STYLE, qty, reportOpening, reportPage, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import { PEAK_HOLD_STYLE, qty, reportOpening, reportPage, row, segmentRmsLabel, recordSignOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
 /**
@@ -108,12 +108,7 @@ export function psdHtml(a: RecordingAnalysis, version: string, when: Date, conte
 ${a.channels.map((c, i) => channelSection(c, a, i + 1)).join("\n")}
 <h2>Caution</h2>
 <div class="caution">A PSD describes the record as measured. It is not a compliance verdict; where it feeds a decision about people or equipment (a test level, a fixture or exciter limit) the governing standard, the lab's procedure and a qualified engineer decide.</div>
-${signOff(`<strong>PSD record</strong>: ${esc(summary)}`, [
-    ["Test", esc([m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
-    ["Item", esc([m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`].filter(Boolean).join(", ") || "not stated")],
-    ["Recording", `${esc(a.input.file)} <span class="hash">${shortHash(a.input.sha256)}</span>`],
-    ["Operator", esc(m?.operator ?? "not stated")],
-  ])}`;
+${recordSignOff("PSD record", summary, m, [{ label: "Recording", file: a.input.file, sha256: a.input.sha256 }])}`;
   const page = reportPage({
     title: m?.testId ? `PSD record, test ${m.testId}: ${name}` : `PSD record: ${name}`, verdictClass: "none", verdictWord: PSD_WORD,
     recordingSha256: a.input.sha256, recordingName: name, kindLine: "Random-vibration PSD record", body,

@@ -2,7 +2,7 @@ import type { ShockChannel, ShockResult } from "../shockRecording.js";
 import { accelLabel } from "../units.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, sig } from "./format.js";
-import { qty, reportOpening, reportPage, row, shortHash, signOff, type ReportContext } from "./reportPage.js";
+import { qty, reportOpening, reportPage, row, recordSignOff, type ReportContext } from "./reportPage.js";
 import { SHOCK_CAUTION, SHOCK_METHOD, shockJson } from "./shockReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 
@@ -101,12 +101,7 @@ ${r.notes.length ? `<p class="muted">Notes: ${r.notes.map(esc).join("; ")}</p>` 
 ${r.doubts.length ? `<p><strong>Doubts:</strong> ${r.doubts.map(esc).join("; ")}</p>` : ""}
 <h2>Caution</h2>
 <div class="caution">${esc(SHOCK_CAUTION)}</div>
-${signOff(`<strong>Shock record</strong>: ${esc(summary)}`, [
-    ["Test", esc([m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
-    ["Item", esc([m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`].filter(Boolean).join(", ") || "not stated")],
-    ["Recording", `${esc(a.input.file)} <span class="hash">${shortHash(a.input.sha256)}</span>`],
-    ["Operator", esc(m?.operator ?? "not stated")],
-  ])}`;
+${recordSignOff("Shock record", summary, m, [{ label: "Recording", file: a.input.file, sha256: a.input.sha256 }])}`;
   const page = reportPage({
     title: m?.testId ? `Shock record, test ${m.testId}: ${name}` : `Shock record: ${name}`, verdictClass: "none", verdictWord: SHOCK_WORD,
     recordingSha256: a.input.sha256, recordingName: name, kindLine: "Shock events and shock response spectra record", body,
