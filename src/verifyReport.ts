@@ -283,6 +283,26 @@ interface DerivationDoc {
   result: { tool?: { version?: string }; recordings?: { file: string; sha256: string }[]; profile?: { provenance?: { inputs?: { file: string; sha256: string; role?: string }[] } } };
 }
 
+/**
+ * One recorded input of a record: looked for (given, beside the report, at its recorded path) and hashed by
+ * streaming; its step, or its miss, recorded. `ok` is false only for a file found with another SHA-256.
+ */
+async function hashedInput(
+  report: string,
+  i: { given?: string | undefined; file: string; sha256: string; step: VerifyStep["step"]; name: string; label?: string; hint?: string; what?: string },
+  steps: VerifyStep[],
+  missing: string[],
+): Promise<{ path?: string; ok: boolean }> {
+  const at = locate(i.given, i.file, report);
+  if (!at.path) {
+    missing.push(`${i.name} ${basename(i.file)} (looked for ${at.looked.join(", ")}${i.hint ?? ""})`);
+    return { ok: true };
+  }
+  const ok = (await sha256File(at.path, i.what ?? "a readable file", undefined)) === i.sha256;
+  steps.push({ step: i.step, ok, text: `${at.path}${i.label ? ` (${i.label})` : ""}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${i.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  return { path: at.path, ok };
+}
+
 /** A derive record: every field recording (and the mix file) by SHA-256, then the derivation re-run with its recorded settings. */
 async function verifyDerivation(report: string, doc: DerivationDoc, steps: VerifyStep[], tol: number, running: string): Promise<VerifyResult> {
   const missing: string[] = [];
@@ -296,28 +316,14 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   let inputsOk = true;
   const found: string[] = [];
   for (const [i, r] of recorded.entries()) {
-    const at = locate(undefined, r.file, report);
-    if (!at.path) {
-      missing.push(`recording ${basename(r.file)} (looked for ${at.looked.join(", ")})`);
-      continue;
-    }
-    const ok = (await sha256File(at.path, "a readable recording", undefined)) === r.sha256;
-    inputsOk &&= ok;
-    found[i] = at.path;
-    steps.push({ step: "recording", ok, text: `${at.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${r.sha256.slice(0, 12)}… (another or a changed file)`}` });
+    const at = await hashedInput(report, { file: r.file, sha256: r.sha256, step: "recording", name: "recording", what: "a readable recording" }, steps, missing);
+    inputsOk &&= at.ok;
+    if (at.path) found[i] = at.path;
   }
   // The mix file (its hours are in the recorded settings) and the profile written, by SHA-256.
   const mix = doc.result.profile?.provenance?.inputs?.find((i) => i.role === "mix");
   for (const [label, f] of [["mix file", mix], ["profile written", doc.written]] as const) {
-    if (!f) continue;
-    const at = locate(undefined, f.file, report);
-    if (!at.path) {
-      missing.push(`${label} ${basename(f.file)} (looked for ${at.looked.join(", ")})`);
-      continue;
-    }
-    const ok = (await sha256File(at.path, "a readable file", undefined)) === f.sha256;
-    inputsOk &&= ok;
-    steps.push({ step: "profile", ok, text: `${at.path} (${label}): ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${f.sha256.slice(0, 12)}… (another or a changed file)`}` });
+    if (f) inputsOk &&= (await hashedInput(report, { file: f.file, sha256: f.sha256, step: "profile", name: label, label }, steps, missing)).ok;
   }
   const intact = steps.every((s) => s.ok);
   if (missing.length > 0) return done(intact ? "missing" : "differs");
@@ -406,15 +412,10 @@ async function verifyRecord(report: string, doc: RecordDoc, steps: VerifyStep[],
   let inputsOk = true;
   const paths: string[] = [];
   for (const i of inputs) {
-    const at = locate(i.given, i.file, report);
-    if (!at.path) {
-      missing.push(`${i.label} ${basename(i.file)} (looked for ${at.looked.join(", ")}${i.given === undefined && i.label !== "against" ? `; give it as \`${i.role}\`` : ""})`);
-      continue;
-    }
-    const ok = (await sha256File(at.path, "a readable file", undefined)) === i.sha256;
-    inputsOk &&= ok;
-    paths.push(at.path);
-    steps.push({ step: i.role, ok, text: `${at.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${i.sha256.slice(0, 12)}… (another or a changed file)`}` });
+    const hint = i.given === undefined && i.label !== "against" ? `; give it as \`${i.role}\`` : "";
+    const at = await hashedInput(report, { given: i.given, file: i.file, sha256: i.sha256, step: i.role, name: i.label, hint }, steps, missing);
+    inputsOk &&= at.ok;
+    if (at.path) paths.push(at.path);
   }
   const intact = steps.every((s) => s.ok);
   if (missing.length > 0) return done(intact ? "missing" : "differs");
