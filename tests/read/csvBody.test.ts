@@ -120,6 +120,41 @@ describe("CSV read on the parse worker (built code)", () => {
       expect(inWorker.cols).toEqual(here.cols);
     });
   }
+  it("a comment line of nearly 1 MB, a bad cell far in, a line too long: the worker's hash, columns and messages are this thread's", async () => {
+    // The reader hashes the worker's shared read buffers (csvParseWorker.ts), which come round many times here; a
+    // read that ends no line (the line too long) makes no piece, and its bytes wait in the worker.
+    const body = mixedBody(60000, 3);
+    const lines = body.text.split("\n");
+    lines.splice(20000, 0, "# " + "x".repeat(1_040_000));
+    const file = join(dir, "long-comment.csv");
+    writeFileSync(file, "t,a,b\n" + lines.join("\n"));
+    const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+    const read = async (parseWorkers: number) => {
+      const src = await openCsvTimeHistory(file, { parseWorkers });
+      const cols: number[][] = [[], []];
+      const s = await src.read([0, 1], (ch, n) => ch.forEach((c, i) => cols[i]!.push(...c.subarray(0, n))));
+      return { s, cols };
+    };
+    const inWorker = await read(1);
+    const here = await read(0);
+    expect(inWorker.s.sha256).toBe(createHash("sha256").update(readFileSync(file)).digest("hex"));
+    expect(here.s.sha256).toBe(inWorker.s.sha256);
+    expect(inWorker.cols).toEqual(here.cols);
+    lines[50000] = "x,1,2";
+    writeFileSync(file, "t,a,b\n" + lines.join("\n"));
+    const message = async (parseWorkers: number) => {
+      const src = await openCsvTimeHistory(file, { parseWorkers });
+      return src.read([0, 1], () => undefined).then(() => "read", (e: Error) => e.message);
+    };
+    const [w, h] = [await message(1), await message(0)];
+    expect(w).toMatch(/long-comment\.csv:50002:1 .*CSV_NOT_A_NUMBER/);
+    expect(w).toBe(h);
+    lines[50000] = "# " + "y".repeat(1_100_000);
+    writeFileSync(file, "t,a,b\n" + lines.join("\n"));
+    const [w2, h2] = [await message(1), await message(0)];
+    expect(w2).toMatch(/long-comment\.csv:50002.*CSV_LINE_TOO_LONG/);
+    expect(w2).toBe(h2);
+  });
   it("a source that is opened but never read does not keep the process alive (its worker waits unref'd)", () => {
     const file = join(dir, "never-read.csv");
     writeFileSync(file, "t [s],a\n0,1\n0.5,2\n1,3\n");
