@@ -518,7 +518,8 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
   const worker = bodyWorker.thread;
   worker.ref();
   worker.postMessage({ job });
-  // The worker reads into shared buffers and this thread hashes their new bytes (csvParseWorker.ts).
+  // The worker reads into shared buffers; when its parse is the longer job, this thread hashes their new
+  // bytes (csvParseWorker.ts), and the worker's summary comes without a SHA-256.
   const hash = createHash("sha256");
   let shared: Uint8Array[] = [];
   let busy: Int32Array<ArrayBufferLike> = new Int32Array(0);
@@ -550,7 +551,7 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
           // The sink has consumed the columns: their memory goes back to the worker.
           const bufs = pieceBuffers(m.piece);
           worker.postMessage({ recycle: bufs }, bufs);
-        } else if ("done" in m) resolve({ ...m.done, sha256: hash.digest("hex") });
+        } else if ("done" in m) resolve(m.done.sha256 !== "" ? m.done : { ...m.done, sha256: hash.digest("hex") });
         else reject(errorFromWire(m.error));
       });
     });
