@@ -100,12 +100,14 @@ const hashing: HashHandOff = {
 function run(job: CsvBodyJob): void {
   parentPort!.postMessage({ buffers: shared, busy: busy.buffer });
   csvBodyPass(job, async (piece, bytes) => {
+    // The first piece decides (the sniffer found a row within the first 64 KB, so it has rows).
     if (hashWhere === "undecided" && piece.rows > 0) decide(bytes > HASH_ON_READER_BYTES_PER_VALUE * piece.rows * piece.channels.length ? "reader" : "here");
     while (credits === 0) await new Promise<void>((r) => (wake = r));
     credits--;
     const transfer: ArrayBuffer[] = pieceBuffers(piece);
     if (piece.rowLines) transfer.push(piece.rowLines.buffer as ArrayBuffer);
-    parentPort!.postMessage({ piece, bytes, ...hashPart() }, transfer);
+    // Until the place is decided, the ranges stay here (all hashed on one thread, in order).
+    parentPort!.postMessage({ piece, bytes, ...(hashWhere === "reader" ? hashPart() : { hash: [] }) }, transfer);
   }, columns, hashing).then(
     (done) => {
       if (hashWhere === "reader" && (ranges.length > 0 || head)) parentPort!.postMessage(hashPart());
