@@ -7,7 +7,7 @@
 import FFT from "fft.js";
 import { CsvBodyParser, columnPool, pieceBuffers } from "../dist/read/csvBody.js";
 import { daysFromCivil } from "../dist/read/dateTimeStamp.js";
-import { SegmentPower } from "../dist/estimate/segmentPower.js";
+import { SegmentPower } from "../dist/estimate/spectral/segmentPower.js";
 import { cg, iso, sci } from "./spellings.mjs";
 
 const median = (xs) => [...xs].sort((a, b) => a - b)[(xs.length - 1) >> 1];

@@ -1,8 +1,8 @@
 import { readdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { _channelFindings, analyzeRecording } from "../src/analyzeRecording.js";
-import { checkRecording, loadProfile } from "../src/checkRecording.js";
+import { _channelFindings, analyzeRecording } from "../src/pass/analyzeRecording.js";
+import { checkRecording, loadProfile } from "../src/analyses/checkRecording.js";
 import { judgeSpectrum, withDoubts, type SpectrumUnderTest } from "../src/compare/complianceCheck.js";
 import { levelGate } from "../src/compare/levelGate.js";
 import { parseProfile } from "../src/compare/testProfile.js";
@@ -156,7 +156,7 @@ async function allFindings(): Promise<Finding[]> {
   out.push(...held.analysis.channels[0]!.notes, ...held.channels[0]!.findings);
 
   // ride: the weighting's error and band, exposure, axes, postures, the floor, a short window, held and NaN samples.
-  const { rideRecording } = await import("../src/rideRecording.js");
+  const { rideRecording } = await import("../src/analyses/rideRecording.js");
   const ride = "samples/marlow-uv3-ride.wav";
   const rideBase = { inputUnits: "m/s2", scale: 40 } as const;
   const rides = [

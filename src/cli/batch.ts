@@ -1,12 +1,12 @@
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import type { RecordingAnalysis } from "../analyzeRecording.js";
+import type { RecordingAnalysis } from "../pass/analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { errorFromWire, errorToWire, InputError, type WireError } from "../errors.js";
 import { retireThread } from "../threadEnd.js";
-import type { CheckOptions, CheckResult } from "../checkRecording.js";
-import type { AnalysisJob } from "../runAnalysis.js";
+import type { CheckOptions, CheckResult } from "../analyses/checkRecording.js";
+import type { AnalysisJob } from "../analyses/runAnalysis.js";
 
 /** One recording of a batch, as a worker gets it: the job as data (its profile loaded) and its place. */
 export interface BatchJob {
@@ -63,7 +63,7 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   if (!useWorkers) {
     // The analysis modules load on the first job, not with this module: with workers this thread needs
     // none of them, and the pool starts sooner (start-up is part of every batch).
-    const { runAnalysis } = await import("../runAnalysis.js");
+    const { runAnalysis } = await import("../analyses/runAnalysis.js");
     for (let i = 0; i < files.length; i++) {
       try {
         const result = (await runAnalysis(jobOf(files[i]!), (b: number) => report(i, b))) as T;

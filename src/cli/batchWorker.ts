@@ -1,6 +1,6 @@
 import { parentPort } from "node:worker_threads";
 import { errorToWire } from "../errors.js";
-import { runAnalysis } from "../runAnalysis.js";
+import { runAnalysis } from "../analyses/runAnalysis.js";
 import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import type { BatchJob, BatchReply } from "./batch.js";
 
@@ -15,7 +15,7 @@ leaveWhenAsked(parentPort!, () => queue);
 
 // The PSD modules load while the worker waits for its first job (the check modules, zod and yaml,
 // only when a job needs them: worker start-up is part of every batch).
-void import("../analyzeRecording.js");
+void import("../pass/analyzeRecording.js");
 
 async function run({ id, job }: BatchJob): Promise<void> {
   let reply: BatchReply;

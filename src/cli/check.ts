@@ -1,7 +1,7 @@
 import { mkdir } from "node:fs/promises";
 import { basename, join } from "node:path";
 import type { Command } from "commander";
-import type { CheckResult } from "../checkRecording.js";
+import type { CheckResult } from "../analyses/checkRecording.js";
 import { EXIT, InputError } from "../errors.js";
 import { fixed, sig, signedDb } from "../report/format.js";
 import { reportFileNames } from "../report/reportNames.js";
@@ -12,7 +12,7 @@ import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
 import { Exit } from "./exit.js";
 import { expandFiles } from "./fileList.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, choice, givenOptions, rerunOptions, type ParsedCommon } from "./options.js";
 import { addBatchOptions, runnerFor, type BatchFlags } from "./runner.js";
 
@@ -50,7 +50,7 @@ export function registerCheck(program: Command, io: CliIo): void {
     .option("--meta-table <file>", "per recording its test identity: a CSV (header recording,testId,... with any --meta keys) or a YAML/JSON mapping from each recording's file name to its keys; a row overrides --meta key by key, a RECORDING.meta.yaml beside it overrides the row")
     .option("--csv <out>", "also write the lines judged (frequency, measured, required, deviation, limits, status, shown) to this CSV file (one recording)")
     .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string; metaTable?: string; csv?: string }, cmd: Command) => {
-      const { loadProfile } = await import("../checkRecording.js");
+      const { loadProfile } = await import("../analyses/checkRecording.js");
       const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
       const { checkHtml } = await import("../report/htmlReport.js");
       const { checkJson, checkText } = await import("../report/checkReport.js");
@@ -125,7 +125,7 @@ export function registerCheck(program: Command, io: CliIo): void {
         }
         throw new Exit(code);
       }
-      const { runAnalysis } = await import("../runAnalysis.js");
+      const { runAnalysis } = await import("../analyses/runAnalysis.js");
       const r = await one(o, (onProgress) => runAnalysis({ kind: "check", file: files[0]!, profile, options: { ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control } }, onProgress));
       if (o.csv !== undefined) {
         const { checkCsv } = await import("../report/checkCsv.js");

@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
 import { expandFiles } from "./fileList.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, durationOption, givenOptions, numberOption, type ParsedCommon } from "./options.js";
 
 interface DeriveFlags extends ParsedCommon {
@@ -69,7 +69,7 @@ export function registerDerive(program: Command, io: CliIo): void {
     .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
     .option("-q, --quiet", "no progress output (derive shows none; accepted so every analysis command takes it)")
     .action(async (args: string[], o: DeriveFlags, cmd: Command) => {
-      const { deriveProfile, mixInputs, plainInputs, strokeOf } = await import("../deriveProfile.js");
+      const { deriveProfile, mixInputs, plainInputs, strokeOf } = await import("../analyses/deriveProfile.js");
       const { deriveJson, deriveText, profileDocumentText } = await import("../report/deriveReport.js");
       const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
       const { VERSION } = await import("../version.js");

@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { inspectText } from "../report/psdText.js";
 import { VERSION } from "../version.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addReadingOptions, analysisOptions, type ParsedCommon } from "./options.js";
 
 
@@ -13,7 +13,7 @@ export function registerInspect(program: Command, io: CliIo): void {
     .option("--json", "print what was found as JSON (the recording, and per channel its unit, statistics and warnings)")
     .option("-q, --quiet", "no progress output (inspect shows none; accepted so every analysis command takes it)")
     .action(async (file: string, o: ParsedCommon & { json?: boolean }) => {
-      const { analyzeRecording } = await import("../analyzeRecording.js");
+      const { analyzeRecording } = await import("../pass/analyzeRecording.js");
       const a = await analyzeRecording(file, { ...analysisOptions(o), spectrum: false });
       if (o.json) {
         const { inputJson, statsJson, toolInfo } = await import("../report/psdJson.js");

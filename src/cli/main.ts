@@ -5,6 +5,7 @@ import { VERSION } from "../version.js";
 import { registerCheck } from "./check.js";
 import { registerDerive } from "./derive.js";
 import { Exit } from "./exit.js";
+import type { CliIo } from "./io.js";
 import { registerInspect } from "./inspect.js";
 import { asCliError } from "./optionFlags.js";
 import { joinDurationUnits } from "./options.js";
@@ -22,15 +23,7 @@ import { registerVerify } from "./verify.js";
 // profiles, d3 for the report, the batch pool) load on first use inside the actions, so a plain `psd`
 // starts fast.
 
-
-export interface CliIo {
-  stdout: (s: string) => void;
-  stderr: (s: string) => void;
-  /** Whether stderr is a terminal (progress bars are drawn only there). */
-  stderrIsTTY?: boolean | undefined;
-  readStdin?: (() => Promise<string>) | undefined;
-  env?: NodeJS.ProcessEnv | undefined;
-}
+export type { CliIo };
 
 async function readProcessStdin(): Promise<string> {
   let s = "";

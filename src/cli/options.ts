@@ -1,11 +1,11 @@
 import type { Command } from "commander";
-import type { AnalysisOptions } from "../analyzeRecording.js";
+import type { AnalysisOptions } from "../pass/analyzeRecording.js";
 import { InputError } from "../errors.js";
-import { DETREND_NAMES, type Detrend } from "../estimate/welchPsd.js";
-import { WINDOW_NAMES, type WindowName } from "../estimate/windows.js";
+import { DETREND_NAMES, type Detrend } from "../estimate/spectral/welchPsd.js";
+import { WINDOW_NAMES, type WindowName } from "../estimate/spectral/windows.js";
 import type { ChannelSetting } from "../condition/scaleSamples.js";
 import { ACCEL_UNITS, parseSensitivity, parseUnitSpec, UNIT_NAMES, type AccelUnit } from "../units.js";
-import { CONFIDENCE_RULE, MAX_CONFIDENCE, MIN_CONFIDENCE } from "../estimate/welchOptions.js";
+import { CONFIDENCE_RULE, MAX_CONFIDENCE, MIN_CONFIDENCE } from "../estimate/spectral/welchOptions.js";
 
 /** Option parsers that fail with the option's name, the rule and the value received. */
 export function numberOption(option: string, rule: (x: number) => boolean, expected: string) {

@@ -1,5 +1,5 @@
 import type { Command } from "commander";
-import { recordTooShort, type RecordingAnalysis } from "../analyzeRecording.js";
+import { recordTooShort, type RecordingAnalysis } from "../pass/analyzeRecording.js";
 import { EXIT, InputError } from "../errors.js";
 import { fixed, sig } from "../report/format.js";
 import { printable } from "../report/printable.js";
@@ -11,7 +11,7 @@ import { VERSION } from "../version.js";
 import { Exit } from "./exit.js";
 import { expandFiles } from "./fileList.js";
 import { asCliError } from "./optionFlags.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
 import { addBatchOptions, runnerFor, type BatchFlags } from "./runner.js";
 
@@ -50,7 +50,7 @@ export function registerPsd(program: Command, io: CliIo): void {
       }
       if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
       if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
-      const { runAnalysis } = await import("../runAnalysis.js");
+      const { runAnalysis } = await import("../analyses/runAnalysis.js");
       const options = { ...analysisOptions(o), histogram: o.report !== undefined ? true : o.histogram, peakHoldS: o.peakHold, forReport: o.report !== undefined || undefined };
       const a = await one(o, (onProgress) => runAnalysis({ kind: "psd", file: files[0]!, options }, onProgress));
       const short = recordTooShort(a);

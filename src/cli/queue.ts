@@ -9,7 +9,7 @@ import type { DbTarget } from "../queue/connection.js";
 import type { Job } from "../queue/job.js";
 import type { QueueStore } from "../queue/queueStore.js";
 import { expandFiles } from "./fileList.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addBandOptions, addReadingOptions, addSpectrumOptions, analysisOptions, numberOption, type ParsedCommon } from "./options.js";
 
 // pg and pg-boss load only when a queue command runs: the other commands never pay for them.
@@ -75,7 +75,7 @@ export function registerQueue(program: Command, io: CliIo): void {
       const files = await expandFiles(args, o.filesFrom, readStdin);
       let profile: Job["profile"];
       if (o.profile !== undefined) {
-        const { loadProfile } = await import("../checkRecording.js");
+        const { loadProfile } = await import("../analyses/checkRecording.js");
         const p = await loadProfile(o.profile);
         profile = { path: await jobPathOf(root, o.profile, "--profile"), sha256: p.sha256 };
       }

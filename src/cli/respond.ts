@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
-import type { CliIo } from "./main.js";
-import type { RespondRerun } from "../responseSpectra.js";
+import type { CliIo } from "./io.js";
+import type { RespondRerun } from "../analyses/responseSpectra.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, type ParsedCommon } from "./options.js";
 
 interface RespondFlags extends ParsedCommon {
@@ -55,7 +55,7 @@ export function registerRespond(program: Command, io: CliIo): void {
     .option("--force", "replace an existing report file")
     .option("-q, --quiet", "no progress bar (respond shows none; accepted so every analysis command takes it)")
     .action(async (source: string, o: RespondFlags, cmd: Command) => {
-      const { parseFnGrid, runResponse } = await import("../responseSpectra.js");
+      const { parseFnGrid, runResponse } = await import("../analyses/responseSpectra.js");
       const { responseJson, responseText } = await import("../report/responseReport.js");
       const { VERSION } = await import("../version.js");
       if (o.channel !== undefined && o.channel.length > 1) throw new InputError("OPTION_INVALID", { option: "--channel", expected: "one channel", received: o.channel.join(", ") });

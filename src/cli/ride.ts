@@ -2,7 +2,7 @@ import type { Command } from "commander";
 import { POSTURES, type Axis, type HealthZone, type Posture } from "../compare/wholeBodyExposure.js";
 import { InputError, quoted } from "../errors.js";
 import { VERSION } from "../version.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, parseDuration, rerunOptions, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 
@@ -91,7 +91,7 @@ export function registerRide(program: Command, io: CliIo): void {
     .action(async (file: string, o: RideFlags, cmd: Command) => {
       if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "channels given by --axes (and --floor) for ride", received: o.channel.join(",") });
       if (o.resultUnits !== undefined && o.resultUnits !== "m/s2") throw new InputError("OPTION_CONFLICT", { option: "--result-units", expected: "m/s2 (ride results are SI)", received: o.resultUnits });
-      const { rideRecording } = await import("../rideRecording.js");
+      const { rideRecording } = await import("../analyses/rideRecording.js");
       const { rideCsv, rideJson, rideText } = await import("../report/rideReport.js");
       const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
       const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];

@@ -1,6 +1,6 @@
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
 import { createProgress, progressEnabled } from "./progress.js";
 
@@ -46,8 +46,8 @@ export function registerShock(program: Command, io: CliIo): void {
     .addHelpText("after", "\nThe recording is read twice: first for each channel's mean and background level, then for the events and spectra.\nAn SRS is one engineering summary of a shock, not a structural verdict.\n")
     .action(async (file: string, o: ShockFlags, cmd: Command) => {
       if (o.threshold !== undefined && o.thresholdFactor !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--threshold", expected: "--threshold or --threshold-factor, not both", received: "both" });
-      const { parseFnGrid } = await import("../responseSpectra.js");
-      const { shockRecording } = await import("../shockRecording.js");
+      const { parseFnGrid } = await import("../analyses/responseSpectra.js");
+      const { shockRecording } = await import("../analyses/shockRecording.js");
       const { shockCsv, shockJson, shockText } = await import("../report/shockReport.js");
       const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
       const { VERSION } = await import("../version.js");

@@ -4,7 +4,7 @@ import { sig } from "../report/format.js";
 import { printable } from "../report/printable.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { numberOption } from "./options.js";
 
 
@@ -26,7 +26,7 @@ export function registerSynth(program: Command, io: CliIo): void {
     .option("--json", "print what was written as JSON (file, samples, seed, per channel RMS, kurtosis, crest factor; the profile's stroke)")
     .option("-q, --quiet", "no progress output (synth shows none; accepted so every command that writes takes it)")
     .action(async (o: { profile: string; duration: number; rate: number; out: string; seed: number; channels: number; levelDb: number; toneDb: number; withoutTones?: boolean; force?: boolean; json?: boolean }) => {
-      const { loadProfile } = await import("../checkRecording.js");
+      const { loadProfile } = await import("../analyses/checkRecording.js");
       const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");
       const { synthesizeProfile } = await import("../synth/synthesizeProfile.js");
       const profile = await loadProfile(o.profile);

@@ -1,6 +1,6 @@
 import type { Command } from "commander";
 import { InputError } from "../errors.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, givenOptions, numberOption, rerunOptions, type ParsedCommon } from "./options.js";
 
 const collect = (v: string, prev: string[] = []) => [...prev, v];
@@ -34,7 +34,7 @@ export function registerTransfer(program: Command, io: CliIo): void {
     .option("-q, --quiet", "no progress bar (transfer shows none; accepted so every analysis command takes it)")
     .action(async (file: string, o: TransferFlags, cmd: Command) => {
       if (o.channel !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--channel", expected: "--in and --output-channel to name the channels of transfer", received: o.channel.join(", ") });
-      const { analyzeTransfer } = await import("../analyzeTransfer.js");
+      const { analyzeTransfer } = await import("../analyses/analyzeTransfer.js");
       const { transferCsv, transferJson, transferText } = await import("../report/transferReport.js");
       const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
       const { VERSION } = await import("../version.js");

@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { EXIT } from "../errors.js";
 import { Exit } from "./exit.js";
-import type { CliIo } from "./main.js";
+import type { CliIo } from "./io.js";
 import { inFlags } from "./optionFlags.js";
 import { numberOption } from "./options.js";
 
@@ -32,7 +32,7 @@ export function registerVerify(program: Command, io: CliIo): void {
     .option("--json", "print the result as JSON")
     .option("-q, --quiet", "no progress output (verify shows none; accepted so every command takes it)")
     .action(async (report: string, o: VerifyFlags) => {
-      const { verifyReport } = await import("../verifyReport.js");
+      const { verifyReport } = await import("../verify/verifyReport.js");
       const { VERSION } = await import("../version.js");
       const v = await verifyReport(report, { recording: o.recording, profile: o.profile, tolerance: o.tolerance, version: VERSION });
       if (o.json) io.stdout(JSON.stringify({ tool: { name: "psdgate", version: VERSION }, ...v, meaning: MEANING[v.status] }) + "\n");

@@ -1,8 +1,8 @@
 import type { Finding } from "../findings.js";
-import { normalQuantile } from "../estimate/chiSquare.js";
-import type { PsdEstimate } from "../estimate/psdEstimate.js";
-import { RealFft } from "../estimate/realFft.js";
-import type { SampleStatistics } from "../estimate/runningMoments.js";
+import { normalQuantile } from "../estimate/statistics/chiSquare.js";
+import type { PsdEstimate } from "../estimate/spectral/psdEstimate.js";
+import { RealFft } from "../estimate/spectral/realFft.js";
+import type { SampleStatistics } from "../estimate/statistics/runningMoments.js";
 
 /**
  * Is the amplitude distribution that of a Gaussian record with this spectrum and length? A random

@@ -1,9 +1,9 @@
-import { chiSquareCdf, chiSquareIntervalFactors, chiSquareSurvival } from "../estimate/chiSquare.js";
-import { bandMeanSquare } from "../estimate/psdEstimate.js";
-import { departureShare, detrendBiasedLines, lineVarianceInflation, spectralKernel, type SpectralKernel } from "../estimate/spectralKernel.js";
-import { welchDofBySegments } from "../estimate/welchDof.js";
-import type { Detrend } from "../estimate/welchPsd.js";
-import { spectralWindow, type WindowName } from "../estimate/windows.js";
+import { chiSquareCdf, chiSquareIntervalFactors, chiSquareSurvival } from "../estimate/statistics/chiSquare.js";
+import { bandMeanSquare } from "../estimate/spectral/psdEstimate.js";
+import { departureShare, detrendBiasedLines, lineVarianceInflation, spectralKernel, type SpectralKernel } from "../estimate/spectral/spectralKernel.js";
+import { welchDofBySegments } from "../estimate/spectral/welchDof.js";
+import type { Detrend } from "../estimate/spectral/welchPsd.js";
+import { spectralWindow, type WindowName } from "../estimate/spectral/windows.js";
 import {
   chanceAbove, chanceBelow, DECISION_RULE, DEFAULT_POWER, dofForPower, largestEffectiveDof, largestOfMoments, largestUpperFactor, lowerFactor, powerAt, ruleLevels, upperFactor,
   type PowerAt, type PowerInputs, type PowerRequirement,
@@ -131,7 +131,7 @@ export interface ChannelCompliance {
   /** For an inconclusive verdict that a longer run could decide: how long. Undefined otherwise. */
   decide?: DecideEstimate | undefined;
   /** Mixed mode: each required tone and its verdict (compare/toneCheck.ts). */
-  tones?: import("./toneCheck.js").ToneJudgement[] | undefined;
+  tones?: ToneJudgement[] | undefined;
 }
 
 /** What the judgement needs of a measured spectrum. */
@@ -980,4 +980,36 @@ function pctSmall(x: number): string {
 
 function signed(x: number): string {
   return `${x >= 0 ? "+" : ""}${x.toFixed(2)}`;
+}
+
+/** One sine tone of a mixed-mode profile as judged (compare/toneCheck.ts). */
+export interface ToneJudgement {
+  name: string;
+  /** Nominal frequency, Hz, and how far the tone may lie from it. */
+  hz: number;
+  toleranceHz: number;
+  requiredPeak: number;
+  /** Fitted peak and frequency. */
+  measuredPeak: number;
+  measuredHz: number;
+  lowerPeak: number;
+  upperPeak: number;
+  /** 20 log10(measured / required). */
+  deviationDb: number;
+  /** Standard deviation of the fitted peak and frequency, and the background density they rest on. */
+  peakSd: number;
+  frequencySd: number;
+  backgroundDensity: number;
+  /** The lines the tone occupies (left out of the background's judgement). */
+  linesFromHz: number;
+  linesToHz: number;
+  status: "within" | "low" | "high" | "missing" | "off-frequency";
+  /** Shown outside its tolerance (peak or frequency) at the tone's level. */
+  shown: boolean;
+  /** The tone lies at or above the record's Nyquist frequency (with its allowance): not seen, inconclusive. */
+  unseen?: boolean | undefined;
+  /** Per-test level (each of the tone's four tests), and the tone's share of the false-fail rate. */
+  testLevel: number;
+  falseFailRate: number;
+  verdict: Verdict;
 }

@@ -1,4 +1,4 @@
-import { chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile } from "../estimate/chiSquare.js";
+import { chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile } from "../estimate/statistics/chiSquare.js";
 
 /**
  * psdgate's decision rule: when a measured PSD shows a profile is not met, and when the evidence is

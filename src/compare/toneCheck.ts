@@ -1,10 +1,12 @@
-import { normalQuantile } from "../estimate/chiSquare.js";
-import { toneFrequencySd, toneLines, tonePeakSd, type ToneFit } from "../estimate/toneEstimate.js";
-import { spectralWindow } from "../estimate/windows.js";
+import { normalQuantile } from "../estimate/statistics/chiSquare.js";
+import { toneFrequencySd, toneLines, tonePeakSd, type ToneFit } from "../estimate/spectral/toneEstimate.js";
+import { spectralWindow } from "../estimate/spectral/windows.js";
 import type { Finding } from "../findings.js";
-import { judgeSpectrum, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "./complianceCheck.js";
+import { judgeSpectrum, type ChannelCompliance, type SpectrumUnderTest, type ToneJudgement, type Verdict } from "./complianceCheck.js";
 import { DECISION_RULE } from "./decisionRule.js";
 import { profileLevel, type ProfileTone, type TestProfile } from "./testProfile.js";
+
+export type { ToneJudgement };
 
 /**
  * Mixed mode (sine-on-random): the random background judged by the decision rule with the tones' lines left
@@ -27,37 +29,6 @@ import { profileLevel, type ProfileTone, type TestProfile } from "./testProfile.
  *   (U (10^(1.5/20) - 1)) and (L (1 - 10^(-1.5/20))) at least (z + z_0.95) s. Below that, an unshown tone
  *   outside its limits, or inside them but unresolved, is inconclusive.
  */
-
-export interface ToneJudgement {
-  name: string;
-  /** Nominal frequency, Hz, and how far the tone may lie from it. */
-  hz: number;
-  toleranceHz: number;
-  requiredPeak: number;
-  /** Fitted peak and frequency. */
-  measuredPeak: number;
-  measuredHz: number;
-  lowerPeak: number;
-  upperPeak: number;
-  /** 20 log10(measured / required). */
-  deviationDb: number;
-  /** Standard deviation of the fitted peak and frequency, and the background density they rest on. */
-  peakSd: number;
-  frequencySd: number;
-  backgroundDensity: number;
-  /** The lines the tone occupies (left out of the background's judgement). */
-  linesFromHz: number;
-  linesToHz: number;
-  status: "within" | "low" | "high" | "missing" | "off-frequency";
-  /** Shown outside its tolerance (peak or frequency) at the tone's level. */
-  shown: boolean;
-  /** The tone lies at or above the record's Nyquist frequency (with its allowance): not seen, inconclusive. */
-  unseen?: boolean | undefined;
-  /** Per-test level (each of the tone's four tests), and the tone's share of the false-fail rate. */
-  testLevel: number;
-  falseFailRate: number;
-  verdict: Verdict;
-}
 
 const MISSING_SD = 5;
 

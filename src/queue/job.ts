@@ -1,5 +1,5 @@
 import { createHash } from "node:crypto";
-import type { AnalysisJob } from "../runAnalysis.js";
+import type { AnalysisJob } from "../analyses/runAnalysis.js";
 
 /**
  * A job as data: everything a worker needs to analyse one recording, and nothing it could only get

@@ -1,9 +1,9 @@
-import type { RecordingAnalysis } from "../analyzeRecording.js";
+import type { RecordingAnalysis } from "../pass/analyzeRecording.js";
 import type { TestProfile } from "../compare/testProfile.js";
 import { errorToWire, InputError, type WireError } from "../errors.js";
 import type { CheckResult } from "../report/checkReport.js";
 import { psdJson, toolInfo } from "../report/psdJson.js";
-import { runAnalysis } from "../runAnalysis.js";
+import { runAnalysis } from "../analyses/runAnalysis.js";
 import { VERSION } from "../version.js";
 import type { Job } from "./job.js";
 import { openRegularFile, sha256OfFile } from "../read/regularFile.js";
@@ -140,7 +140,7 @@ async function profileFor(p: { path: string; sha256: string }, ctx: JobContext):
   const cached = ctx.profiles?.get(p.sha256);
   if (cached) return cached;
   const real = await resolveJobPath(ctx.root, p.path, "profile");
-  const { loadProfile } = await import("../checkRecording.js");
+  const { loadProfile } = await import("../analyses/checkRecording.js");
   let profile: TestProfile;
   try {
     profile = await loadProfile(real);

@@ -34,7 +34,7 @@ export function batchIndexName(reportNames: readonly string[]): string {
   return name;
 }
 
-/** The batch page's own style element (verify knows it: src/verifyReport.ts). */
+/** The batch page's own style element (verify knows it: src/verify/verifyReport.ts). */
 export const BATCH_STYLE = "table.batch th:nth-child(1) { width: 27%; } table.batch th:nth-child(2) { width: 13%; } table.batch th:nth-child(3) { width: 32%; } table.batch th:nth-child(4) { width: 16%; } table.batch td:nth-child(1) { word-break: break-word; }";
 
 /**

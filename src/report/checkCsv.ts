@@ -1,4 +1,4 @@
-import type { CheckResult } from "../checkRecording.js";
+import type { CheckResult } from "../analyses/checkRecording.js";
 import type { ChannelCompliance } from "../compare/complianceCheck.js";
 import { densityAscii } from "../units.js";
 

@@ -1,5 +1,5 @@
-import type { ChannelAnalysis } from "../analyzeRecording.js";
-import type { CheckResult } from "../checkRecording.js";
+import type { ChannelAnalysis } from "../pass/analyzeRecording.js";
+import type { CheckResult } from "../analyses/checkRecording.js";
 import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";

@@ -1,4 +1,4 @@
-import type { DeriveResult } from "../deriveProfile.js";
+import type { DeriveResult } from "../analyses/deriveProfile.js";
 import { profileLevel } from "../compare/testProfile.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";

@@ -1,6 +1,6 @@
 import { stringify } from "yaml";
 import type { ProfileDocument } from "../compare/testProfile.js";
-import type { DeriveResult } from "../deriveProfile.js";
+import type { DeriveResult } from "../analyses/deriveProfile.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";
 import { fixed, sig, table } from "./format.js";

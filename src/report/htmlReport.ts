@@ -1,9 +1,9 @@
-import type { ChannelAnalysis } from "../analyzeRecording.js";
+import type { ChannelAnalysis } from "../pass/analyzeRecording.js";
 import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
 import { profileLevel } from "../compare/testProfile.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
-import type { CheckResult } from "../checkRecording.js";
+import type { CheckResult } from "../analyses/checkRecording.js";
 import { checkJson } from "./checkReport.js";
 import { embedResult } from "./embeddedResult.js";
 import { decideLine, excursionJudgement, RULE_SUMMARY, ruleLine, TONE_RULE, VERDICT_MEANING } from "./ruleText.js";

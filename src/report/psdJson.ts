@@ -1,5 +1,5 @@
-import type { RecordingAnalysis } from "../analyzeRecording.js";
-import type { StationarityFinding, StationarityTest } from "../estimate/stationarityTests.js";
+import type { RecordingAnalysis } from "../pass/analyzeRecording.js";
+import type { StationarityFinding, StationarityTest } from "../estimate/statistics/stationarityTests.js";
 import type { TestMeta } from "../read/testMeta.js";
 import { densityAscii } from "../units.js";
 import { csvField } from "./csvField.js";

@@ -1,4 +1,4 @@
-import type { ChannelAnalysis, RecordingAnalysis } from "../analyzeRecording.js";
+import type { ChannelAnalysis, RecordingAnalysis } from "../pass/analyzeRecording.js";
 import { META_LABELS, type TestMeta } from "../read/testMeta.js";
 import { accelLabel } from "../units.js";
 import { RESULT_PLACEHOLDER } from "./embeddedResult.js";

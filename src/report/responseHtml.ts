@@ -1,4 +1,4 @@
-import type { ResponseComparison, ResponseSpectra } from "../responseSpectra.js";
+import type { ResponseComparison, ResponseSpectra } from "../analyses/responseSpectra.js";
 import { accelLabel } from "../units.js";
 import { RESPONSE_CAUTION, STROKE_CAUTION } from "./cautions.js";
 import { embedResult } from "./embeddedResult.js";

@@ -1,4 +1,4 @@
-import type { ResponseComparison, ResponseSpectra } from "../responseSpectra.js";
+import type { ResponseComparison, ResponseSpectra } from "../analyses/responseSpectra.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { RESPONSE_CAUTION, STROKE_CAUTION } from "./cautions.js";
 import { fixed, sig, table } from "./format.js";

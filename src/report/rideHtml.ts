@@ -1,5 +1,5 @@
 import { DIRECTIVE_2002_44_EC, EIGHT_HOURS_S } from "../compare/wholeBodyExposure.js";
-import type { RideAxis, RideResult } from "../rideRecording.js";
+import type { RideAxis, RideResult } from "../analyses/rideRecording.js";
 import { weightingPowerGains } from "../weight/isoWeightings.js";
 import { fixed, rateText, sig } from "./format.js";
 import { embedResult } from "./embeddedResult.js";

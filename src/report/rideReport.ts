@@ -1,5 +1,5 @@
 import { DIRECTIVE_2002_44_EC } from "../compare/wholeBodyExposure.js";
-import type { RideResult } from "../rideRecording.js";
+import type { RideResult } from "../analyses/rideRecording.js";
 import { weightingPowerGains } from "../weight/isoWeightings.js";
 import { csvField } from "./csvField.js";
 import { fixed, sig, table } from "./format.js";

@@ -1,4 +1,4 @@
-import type { ShockChannel, ShockResult } from "../shockRecording.js";
+import type { ShockChannel, ShockResult } from "../analyses/shockRecording.js";
 import { accelLabel } from "../units.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, sig } from "./format.js";

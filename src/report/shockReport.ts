@@ -1,5 +1,5 @@
-import type { ShockResult } from "../shockRecording.js";
-import type { ShockSpectrum } from "../estimate/shockResponse.js";
+import type { ShockResult } from "../analyses/shockRecording.js";
+import type { ShockSpectrum } from "../estimate/response/shockResponse.js";
 import { accelLabel } from "../units.js";
 import { csvField } from "./csvField.js";
 import { printable } from "./printable.js";

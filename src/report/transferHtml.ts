@@ -1,4 +1,4 @@
-import type { TransferAnalysis, TransferOutput } from "../analyzeTransfer.js";
+import type { TransferAnalysis, TransferOutput } from "../analyses/analyzeTransfer.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { TRANSFER_CAUTION } from "./cautions.js";
 import { embedResult } from "./embeddedResult.js";

@@ -1,4 +1,4 @@
-import type { TransferAnalysis } from "../analyzeTransfer.js";
+import type { TransferAnalysis } from "../analyses/analyzeTransfer.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { TRANSFER_CAUTION } from "./cautions.js";
 import { fixed, rateText, sig, table } from "./format.js";

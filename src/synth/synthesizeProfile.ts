@@ -1,8 +1,8 @@
 import { InputError } from "../errors.js";
 import { profileLevel, type TestProfile } from "../compare/testProfile.js";
-import { RealFft } from "../estimate/realFft.js";
-import { RunningMoments, type SampleStatistics } from "../estimate/runningMoments.js";
-import { spectralWindow } from "../estimate/windows.js";
+import { RealFft } from "../estimate/spectral/realFft.js";
+import { RunningMoments, type SampleStatistics } from "../estimate/statistics/runningMoments.js";
+import { spectralWindow } from "../estimate/spectral/windows.js";
 import { GaussianNoise } from "./gaussianNoise.js";
 
 /**

@@ -1,4 +1,4 @@
-import { StretchMeanSquares } from "../estimate/stretchMeanSquares.js";
+import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js";
 
 /**
  * Evaluation quantities of a frequency-weighted acceleration a_w(t), in one pass (ISO 2631-1:1997

@@ -2,7 +2,7 @@ import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFi
 import { join } from "node:path";
 import { spawnSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
-import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { createProgress, progressEnabled } from "../../src/cli/progress.js";
 import { cli, tempDir } from "../helpers.js";
 

@@ -2,7 +2,7 @@ import { readdirSync, readFileSync, statSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
-import { normalizeWelchOptions } from "../../src/estimate/welchOptions.js";
+import { normalizeWelchOptions } from "../../src/estimate/spectral/welchOptions.js";
 import { asCliError, inFlags, OPTION_FLAGS } from "../../src/cli/optionFlags.js";
 import { runCli } from "../../src/cli/main.js";
 

@@ -1,9 +1,9 @@
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { autocorrelationFourthSum } from "../../src/compare/amplitudeGates.js";
-import { welchPsd } from "../../src/estimate/psdEstimate.js";
+import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { gaussian, tempDir } from "../helpers.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { wavBytes } from "../wavBytes.js";

@@ -1,10 +1,10 @@
 import { describe, expect, it } from "vitest";
 import { chanceAbove } from "../../src/compare/decisionRule.js";
-import { spectralWindow } from "../../src/estimate/windows.js";
+import { spectralWindow } from "../../src/estimate/spectral/windows.js";
 import { profileLevel } from "../../src/compare/testProfile.js";
 import { bandAt, judgeSpectrum, longerRecordFactor, overallVerdict, type SpectrumUnderTest } from "../../src/compare/complianceCheck.js";
 import { parseProfile } from "../../src/compare/testProfile.js";
-import { bandMeanSquare, bandRms, welchPsd } from "../../src/estimate/psdEstimate.js";
+import { bandMeanSquare, bandRms, welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { upperFactor } from "../../src/compare/decisionRule.js";
 import { cli } from "../helpers.js";

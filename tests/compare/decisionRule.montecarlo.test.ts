@@ -3,11 +3,11 @@ import { describe, expect, it } from "vitest";
 import { judgeSpectrum, type ChannelCompliance } from "../../src/compare/complianceCheck.js";
 import { chanceAbove, chanceBelow, DECISION_RULE, lowerFactor, ruleLevels, upperFactor } from "../../src/compare/decisionRule.js";
 import { parseProfile, profileLevel } from "../../src/compare/testProfile.js";
-import { completePsd, welchPsd } from "../../src/estimate/psdEstimate.js";
-import { SegmentPower } from "../../src/estimate/segmentPower.js";
-import { normalizeWelchOptions } from "../../src/estimate/welchOptions.js";
-import { WelchAccumulator } from "../../src/estimate/welchPsd.js";
-import { spectralWindow } from "../../src/estimate/windows.js";
+import { completePsd, welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
+import { SegmentPower } from "../../src/estimate/spectral/segmentPower.js";
+import { normalizeWelchOptions } from "../../src/estimate/spectral/welchOptions.js";
+import { WelchAccumulator } from "../../src/estimate/spectral/welchPsd.js";
+import { spectralWindow } from "../../src/estimate/spectral/windows.js";
 import { recordShaper, shapedRecord } from "../shapedRecords.js";
 import { lower999, upper999 } from "../binomialBounds.js";
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { binomialAtLeast, DECISION_RULE, dofForPower, powerAt, ruleLevels, upperFactor, lowerFactor } from "../../src/compare/decisionRule.js";
-import { chiSquareUpperQuantile } from "../../src/estimate/chiSquare.js";
+import { chiSquareUpperQuantile } from "../../src/estimate/statistics/chiSquare.js";
 
 describe("binomialAtLeast", () => {
   it("matches scipy.stats.binom.sf (scipy 1.17.1) to 1e-12", () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { LEVEL_GATE, levelGate, levelSwing } from "../../src/compare/levelGate.js";
-import { StretchMeanSquares } from "../../src/estimate/stretchMeanSquares.js";
+import { StretchMeanSquares } from "../../src/estimate/statistics/stretchMeanSquares.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { lower999, SCALE, upper999 } from "./mcRecords.js";
 

@@ -1,7 +1,7 @@
 import { judgeSpectrum, type ChannelCompliance, type SpectrumUnderTest } from "../../src/compare/complianceCheck.js";
 import { parseProfile, profileLevel, type TestProfile } from "../../src/compare/testProfile.js";
-import { combineSpectra, type ControlRule } from "../../src/checkRecording.js";
-import { welchPsd } from "../../src/estimate/psdEstimate.js";
+import { combineSpectra, type ControlRule } from "../../src/analyses/checkRecording.js";
+import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { lower999, upper999 } from "../binomialBounds.js";
 export { lower999, upper999 };

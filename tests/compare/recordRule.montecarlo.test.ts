@@ -1,8 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { judgeSpectrum } from "../../src/compare/complianceCheck.js";
 import { chanceAbove, chanceBelow, lowerFactor, upperFactor } from "../../src/compare/decisionRule.js";
-import { departureShare, spectralKernel } from "../../src/estimate/spectralKernel.js";
-import { spectralWindow } from "../../src/estimate/windows.js";
+import { departureShare, spectralKernel } from "../../src/estimate/spectral/spectralKernel.js";
+import { spectralWindow } from "../../src/estimate/spectral/windows.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { channels, db, dofOf, FS, K208, K629, LENGTH, lower999, N, nominal, SCALE, slopes, spectrumOfRecord, upper999 } from "./mcRecords.js";
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { judgeSpectrum } from "../../src/compare/complianceCheck.js";
 import { profileLevel } from "../../src/compare/testProfile.js";
-import { welchPsd } from "../../src/estimate/psdEstimate.js";
+import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { addTones, FS, judgeMixed, mixedProfile, N, TONES } from "./toneRecords.js";
 

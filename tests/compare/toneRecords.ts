@@ -2,8 +2,8 @@ import { readFileSync } from "node:fs";
 import type { ChannelCompliance } from "../../src/compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "../../src/compare/testProfile.js";
 import { judgeMixedMode } from "../../src/compare/toneCheck.js";
-import { welchPsd } from "../../src/estimate/psdEstimate.js";
-import { ToneFitAccumulator } from "../../src/estimate/toneEstimate.js";
+import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
+import { ToneFitAccumulator } from "../../src/estimate/spectral/toneEstimate.js";
 import { toneSearchHalfWidthHz } from "../../src/compare/toneCheck.js";
 
 /**

@@ -1,7 +1,7 @@
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { parseProfile } from "../../src/compare/testProfile.js";
 import { InputError } from "../../src/errors.js";
 import { MAX_CHANNELS } from "../../src/read/analysisLimits.js";

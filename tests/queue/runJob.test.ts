@@ -1,8 +1,8 @@
 import { copyFileSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { analyzeRecording } from "../../src/analyzeRecording.js";
-import { checkRecording, loadProfile } from "../../src/checkRecording.js";
+import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
+import { checkRecording, loadProfile } from "../../src/analyses/checkRecording.js";
 import { checkJson } from "../../src/report/checkReport.js";
 import { psdJson } from "../../src/report/psdJson.js";
 import { errorFromWire, InputError } from "../../src/errors.js";

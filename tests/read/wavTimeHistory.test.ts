@@ -5,7 +5,7 @@ import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { openWavTimeHistory } from "../../src/read/wavTimeHistory.js";
 import { cli, maxRelDiff, tempDir } from "../helpers.js";
-import { analyzeRecording } from "../../src/analyzeRecording.js";
+import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { createTimeHistoryWriter } from "../../src/report/timeHistoryWriter.js";
 import { wavBytes, type WavSpec } from "../wavBytes.js";
 

@@ -1,7 +1,7 @@
 import { existsSync, readFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { rideRecording } from "../../src/rideRecording.js";
+import { rideRecording } from "../../src/analyses/rideRecording.js";
 import { rideHtml } from "../../src/report/rideHtml.js";
 import { cli, tempDir } from "../helpers.js";
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { analyzeTransfer } from "../../src/analyzeTransfer.js";
+import { analyzeTransfer } from "../../src/analyses/analyzeTransfer.js";
 import { transferHtml } from "../../src/report/transferHtml.js";
 
 describe("transferHtml", () => {

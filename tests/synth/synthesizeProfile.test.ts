@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { lowerFactor, upperFactor } from "../../src/compare/decisionRule.js";
 import { parseProfile, profileLevel } from "../../src/compare/testProfile.js";
-import { welchPsd } from "../../src/estimate/psdEstimate.js";
+import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { synthesizeProfile } from "../../src/synth/synthesizeProfile.js";
 import { GaussianNoise } from "../../src/synth/gaussianNoise.js";
 

@@ -1,0 +1,329 @@
+import { selectChannels } from "../pass/resolveAnalysis.js";
+import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "../pass/analyzeRecording.js";
+import {
+  axisRules, BASIC_METHOD_LIMITS, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue, ISO_2631_HEALTH_ZONE, type HealthZone,
+  type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
+} from "../compare/wholeBodyExposure.js";
+import { InputError, quoted } from "../errors.js";
+import type { PeakHoldPsd } from "../estimate/spectral/peakHoldPsd.js";
+import { texts, type Finding } from "../findings.js";
+import { stationarityFinding, type StationarityFinding } from "../estimate/statistics/stationarityTests.js";
+import { normalizeWelchOptions } from "../estimate/spectral/welchOptions.js";
+import { WelchWeightedMeanSquare } from "../estimate/spectral/welchTimeWeights.js";
+import { BandSpectrogramAccumulator, thirdOctaveBands, type BandSpectrogram } from "../estimate/spectral/bandSpectrogram.js";
+import { SegmentPower } from "../estimate/spectral/segmentPower.js";
+import { spectralWindow } from "../estimate/spectral/windows.js";
+import { openTimeHistory } from "../read/openTimeHistory.js";
+import type { TimeHistorySource } from "../read/timeHistory.js";
+import type { BiquadCascade } from "../weight/bilinearBiquads.js";
+import { THIRD_OCTAVE_CENTRES_HZ, weightingPowerGains, type WeightingName } from "../weight/isoWeightings.js";
+import { VibrationDoseAccumulator, type VibrationDose } from "../weight/vibrationDose.js";
+import { designWeightingFilter, MIN_WEIGHTING_RATE_HZ, SETTLE_S, weightingCascade, type WeightingFilterDesign } from "../weight/weightingFilter.js";
+
+/**
+ * A ride recording judged for whole-body vibration (ISO 2631-1:1997, Directive 2002/44/EC): one pass
+ * gives the unweighted PSD of every axis (the psd machinery) and, through an extra accumulator, the
+ * time-domain weighted signal's a_w, crest factor, VDV, running r.m.s. and MTVV. a_w also comes from the
+ * PSD, sum |W(f)|^2 P(f) df, and the two routes are compared.
+ */
+export interface RideOptions extends Omit<AnalysisOptions, "channels" | "resultUnits" | "accumulators" | "spectrum" | "histogram"> {
+  /** Channel (name or 1-based position) of each measured axis; at least one. */
+  axes: Partial<Record<Axis, string>>;
+  posture: Posture;
+  /** Stated daily exposure the recording stands for, s. Without it there is no A(8), daily VDV or judgement against the Directive (EXPOSURE_NOT_GIVEN). */
+  exposureS?: number | undefined;
+  /** Channel of the vertical floor acceleration beneath the seat, for the seat's transmissibility. */
+  floor?: string | undefined;
+  /** Integration time of the running r.m.s. (MTVV), s; default 1. */
+  runningRmsS?: number | undefined;
+  /** Also build a one-third-octave spectrogram of each axis (for the report): stretches of two segments. */
+  spectrogram?: boolean | undefined;
+  /** The ISO 2631-1 Annex B caution zone the lab confirmed (default ISO_2631_HEALTH_ZONE, psdgate's values). */
+  healthZone?: HealthZone | undefined;
+}
+
+export interface RideAxis {
+  axis: Axis;
+  channel: string;
+  weighting: WeightingName;
+  rule: AxisRule;
+  dose: VibrationDose;
+  /** a_w from the unweighted PSD and |W(f)|^2. */
+  awFromPsd: number;
+  /** a_w in time with the weights Welch gives each sample (tapered ends, no trailing partial segment). */
+  awWelchWeighted: number;
+  /** a_w from the PSD over a_w in time with Welch's sample weights: the like-for-like check of the two routes. */
+  routeRatio: number;
+  basicMethod: BasicMethodCheck;
+  /** Reverse-arrangements test on the weighted stretch mean squares. */
+  stationarity: StationarityFinding;
+  filter: { method: "bilinear" | "fitted"; maxErrorPct: number; maxErrorAtHz: number; topCentreHz: number; heldSamples: number };
+  /** Unweighted one-third-octave spectrogram, when asked for. */
+  spectrogram?: BandSpectrogram | undefined;
+  /** Unweighted peak-hold spectrum (the largest stretch PSD at each line), when `peakHoldS` asks for one. */
+  peakHold?: PeakHoldPsd | undefined;
+}
+
+export interface RideResult {
+  analysis: RecordingAnalysis;
+  posture: Posture;
+  axes: RideAxis[];
+  /** Vibration total values: with the health factors and with the comfort factors. */
+  totalValue: { health: number; comfort: number };
+  comfort: { reactions: string[] };
+  /** The daily exposure, when one was stated. */
+  exposure?: DailyExposure | undefined;
+  /** The caution zone the exposure is placed in, and where its values came from. */
+  healthZone: HealthZone & { from: "default" | "given" };
+  seat?: { floorChannel: string; awFloor: number; awFloorFromPsd: number; awFloorWelchWeighted: number; awSeat: number; seat: number } | undefined;
+  notes: string[];
+  doubts: string[];
+  /** The same notes and doubts as findings, with their codes and numbers. */
+  noteFindings: Finding[];
+  doubtFindings: Finding[];
+}
+
+/** Largest allowed difference between the two routes to a_w before the result carries a doubt, beyond the weighting filter's stated error at the rate. */
+export const ROUTE_TOLERANCE = 0.01;
+
+/** The extra accumulator: weights each listed channel in the time domain and feeds its dose figures. */
+class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: WeightingFilterDesign; heldSamples: number; welchMeanSquare: number; spectrogram?: BandSpectrogram | undefined }[]> {
+  private filters: BiquadCascade[] = [];
+  private spectrograms: (BandSpectrogramAccumulator | undefined)[] = [];
+  private welch: WelchWeightedMeanSquare[] = [];
+  private designs: WeightingFilterDesign[] = [];
+  private doses: VibrationDoseAccumulator[] = [];
+  private scratch = new Float64Array(0);
+  /** The record's first samples per channel, held until the filters can settle on them (SETTLE_S). */
+  private head: Float64Array[] = [];
+  private headFill = 0;
+  private settled = false;
+
+  constructor(
+    private readonly file: string, private readonly plan: { index: number; weighting: WeightingName }[], private readonly runningRmsS: number,
+    private readonly welchGeometry: { window: Float64Array; hop: number; detrend: "none" | "mean" | "linear"; spectrogram: boolean },
+  ) {}
+
+  start(designRateHz: number): void {
+    if (!(designRateHz >= MIN_WEIGHTING_RATE_HZ)) {
+      // A rate the reader could not settle (a degenerate CSV) is left to the read's own error.
+      if (!Number.isFinite(designRateHz)) return;
+      throw new InputError("RIDE_RATE_TOO_LOW", {
+        file: this.file, expected: `a sample rate of at least ${MIN_WEIGHTING_RATE_HZ} Hz (below it the record covers less than the ISO 2631-1 bands to 40 Hz)`, received: `${designRateHz} Hz`,
+      });
+    }
+    this.designs = this.plan.map((p) => designWeightingFilter(p.weighting, designRateHz));
+    this.filters = this.designs.map(weightingCascade);
+    this.head = this.plan.map(() => new Float64Array(Math.round(SETTLE_S * designRateHz)));
+    this.doses = this.plan.map(() => new VibrationDoseAccumulator(designRateHz, { runningRmsS: this.runningRmsS }));
+    this.welch = this.plan.map(() => new WelchWeightedMeanSquare(this.welchGeometry.window, this.welchGeometry.hop));
+    const g = this.welchGeometry;
+    const n = g.window.length;
+    const power = new SegmentPower(n);
+    const bands = thirdOctaveBands(THIRD_OCTAVE_CENTRES_HZ.filter((c) => c * 2 ** (1 / 6) < designRateHz / 2));
+    this.spectrograms = this.plan.map(() => (g.spectrogram ? new BandSpectrogramAccumulator({ segmentLength: n, hop: g.hop, window: g.window, detrend: g.detrend }, power, 2 * n, bands, designRateHz) : undefined));
+  }
+
+  push(blocks: Float64Array[], frames: number): void {
+    for (let i = 0; i < this.plan.length; i++) this.spectrograms[i]?.push(blocks[this.plan[i]!.index]!, frames);
+    let from = 0;
+    if (!this.settled) {
+      // Hold the first SETTLE_S seconds: the filters settle on them (played backwards) before the first sample.
+      const len = this.head[0]?.length ?? 0;
+      const take = Math.min(frames, len - this.headFill);
+      for (let i = 0; i < this.plan.length; i++) this.head[i]!.set(blocks[this.plan[i]!.index]!.subarray(0, take), this.headFill);
+      this.headFill += take;
+      from = take;
+      if (this.headFill < len) return;
+      this.flushHead();
+    }
+    if (from < frames) this.weigh((i) => blocks[this.plan[i]!.index]!.subarray(from, frames), frames - from);
+  }
+
+  private flushHead(): void {
+    this.settled = true;
+    if (this.headFill > 0) this.weigh((i) => this.head[i]!, this.headFill);
+  }
+
+  private weigh(input: (i: number) => Float64Array, frames: number): void {
+    if (this.scratch.length < frames) this.scratch = new Float64Array(frames);
+    const y = this.scratch;
+    for (let i = 0; i < this.plan.length; i++) {
+      this.filters[i]!.process(input(i), y, frames);
+      this.doses[i]!.push(y, frames);
+      this.welch[i]!.push(y, frames);
+    }
+  }
+
+  finish(sampleRateHz: number) {
+    if (!this.settled) this.flushHead();
+    return this.plan.map((_, i) => ({ dose: this.doses[i]!.finish(sampleRateHz), design: this.designs[i]!, heldSamples: this.filters[i]!.heldSamples, welchMeanSquare: this.welch[i]!.finish().meanSquare, spectrogram: this.spectrograms[i]?.finish(sampleRateHz) }));
+  }
+}
+
+/** a_w from a one-sided PSD: sqrt(sum_k |W(f_k)|^2 P_k df), the DC line included at its own weight (zero). */
+export function weightedRmsFromPsd(psd: Float64Array, frequencyHz: Float64Array, lineSpacingHz: number, weighting: WeightingName): number {
+  const g = weightingPowerGains(weighting, frequencyHz);
+  let s = 0;
+  for (let k = 0; k < psd.length; k++) s += g[k]! * psd[k]!;
+  return Math.sqrt(s * lineSpacingHz);
+}
+
+export async function rideRecording(file: string, options: RideOptions): Promise<RideResult> {
+  const source = await openTimeHistory(file, { ...options.csv, sampleRateHz: options.csv?.sampleRateHz });
+  return rideSource(source, options);
+}
+
+export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
+  const { info } = source;
+  const axes = (["x", "y", "z"] as const).filter((a) => options.axes[a] !== undefined);
+  if (axes.length === 0) throw new InputError("OPTION_INVALID", { option: "axes", expected: "at least one of x=CH, y=CH, z=CH", received: "none" });
+  if (options.exposureS !== undefined && !(options.exposureS > 0 && options.exposureS <= 86400)) {
+    throw new InputError("OPTION_INVALID", { option: "exposureS", expected: "a daily exposure above 0 and at most 24 h", received: String(options.exposureS) });
+  }
+  const names = axes.map((a) => options.axes[a]!);
+  if (options.floor !== undefined) names.push(options.floor);
+  const indexes = names.map((n, i) => {
+    try {
+      return selectChannels(info, [n])[0]!;
+    } catch (e) {
+      if (e instanceof InputError) {
+        throw new InputError("CHANNEL_NOT_FOUND", { ...e.details, option: i < axes.length ? "axes" : "floor" });
+      }
+      throw e;
+    }
+  });
+  const dup = indexes.findIndex((v, i) => indexes.indexOf(v) !== i);
+  if (dup >= 0) throw new InputError("OPTION_INVALID", { option: dup < axes.length ? "axes" : "floor", expected: "a different channel for each axis and the floor", received: quoted(names[dup]!) });
+  const rules = axisRules(options.posture);
+  const plan = names.map((_, i) => ({ index: i, weighting: i < axes.length ? rules[axes[i]!].weighting : ("Wk" as WeightingName) }));
+  const runningRmsS = options.runningRmsS ?? 1;
+  if (!(runningRmsS > 0 && runningRmsS <= 60)) throw new InputError("OPTION_INVALID", { option: "runningRmsS", expected: "an integration time in s, 0 < t <= 60", received: String(runningRmsS) });
+  // Ride defaults: lines of 0.125 Hz or finer, so the 0.4 Hz band limit and the Wd plateau near 1 Hz are
+  // resolved (common practice), and 75 % overlap, where a Hann window's w^2 adds up to a constant, so
+  // every sample inside the record counts alike in the PSD (a pothole weighs the same wherever it falls).
+  const welch = {
+    ...(options.segmentLength === undefined && options.resolutionHz === undefined ? { resolutionHz: 0.125 } : {}),
+    overlap: options.overlap ?? 0.75,
+  };
+  const geometry = normalizeWelchOptions({ ...options, ...welch }, info.sampleRateHz);
+  const weighted = new WeightedDoses(info.file, plan, runningRmsS, { window: spectralWindow(geometry.window, geometry.segmentLength), hop: geometry.hop, detrend: geometry.detrend, spectrogram: options.spectrogram === true });
+  const analysis = await analyzeSource(source, {
+    ...options, ...welch, channels: indexes.map((i) => String(i + 1)), resultUnits: "m/s2", accumulators: [weighted], stretchS: options.stretchS ?? runningRmsS,
+  });
+  const results = analysis.extras[0] as ReturnType<WeightedDoses["finish"]>;
+  // No figures from no data: an axis whose every sample is NaN or infinite has no a_w, VDV or MTVV (the
+  // filters hold the last finite value, and there is none), so it is refused rather than shown as 0.
+  for (const ch of analysis.channels) {
+    if (analysis.window.frames === 0 || ch.stats.nonFinite >= analysis.window.frames) {
+      throw new InputError("RECORD_TOO_SHORT", { file: analysis.input.file, field: ch.name, expected: "finite samples to weight", received: `${analysis.window.frames} samples, ${analysis.window.frames === 0 ? "none" : "all"} of them NaN or infinite` });
+    }
+  }
+  const notes: Finding[] = [];
+  const doubts: Finding[] = analysis.passDoubts.map((text) => ({ code: "RATE_MOVED", values: {}, text }));
+  const fs = analysis.input.sampleRateHz;
+  const fromPsd = (c: number, w: WeightingName) => {
+    const p = analysis.channels[c]!.psd;
+    return weightedRmsFromPsd(p.psd, p.frequencyHz, p.lineSpacingHz, w);
+  };
+  const pct = (x: number) => `${x >= 0 ? "+" : ""}${x.toFixed(2)}`;
+  const rideAxes: RideAxis[] = axes.map((axis, c) => {
+    const r = results[c]!;
+    const ch = analysis.channels[c]!;
+    const weighting = plan[c]!.weighting;
+    const awFromPsd = fromPsd(c, weighting);
+    const d = r.dose;
+    const stationarity = stationarityFinding(d.stretchMeanSquares, d.stretchS, analysis.window.fromS);
+    const awWelchWeighted = Math.sqrt(r.welchMeanSquare);
+    const routeRatio = awFromPsd / awWelchWeighted;
+    const noPsd = ch.psd.averages === 0;
+    // A level that changes along the record (stops, curves, a tilting sensor) is a property of the ride, not a
+    // fault: where the weighted or the unweighted level failed the stationarity test, the two spectral checks
+    // below are notes that say so, with the test's result; on a stationary record they stay doubts.
+    // The first failed test among the weighted and unweighted stretches: reverse arrangements (trends) or the
+    // run test (clusters, such as a stop mid-record, which a trend test does not see).
+    const tests = [
+      { t: stationarity.reverseArrangements, of: "weighted" }, { t: stationarity.runs, of: "weighted" },
+      { t: ch.stationarity.reverseArrangements, of: "unweighted" }, { t: ch.stationarity.runs, of: "unweighted" },
+    ];
+    const moving = tests.find((x) => x.t !== undefined && !x.t.stationary);
+    const movingValues: Record<string, number> = moving ? { statistic: moving.t!.statistic, acceptAbove: moving.t!.acceptAbove, acceptAtMost: moving.t!.acceptAtMost, values: moving.t!.n } : {};
+    const movingText = moving ? `the ${moving.of} level is not stationary (${moving.t!.test === "runs" ? "run test: R" : "reverse arrangements A"} = ${moving.t!.statistic} outside ${moving.t!.acceptAbove} < ${moving.t!.test === "runs" ? "R" : "A"} <= ${moving.t!.acceptAtMost}, ${moving.t!.n} values)` : "";
+    if (noPsd) notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, text: `${axis}: the window holds no whole Welch segment of ${analysis.settings.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser resolution or a shorter segment gives one)` });
+    // The two routes differ by the realisation's own error too (|W| is exact on the PSD route): allowed 1 % plus it.
+    else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE + r.design.maxErrorPct / 100)) {
+      const values = { offPercent: 100 * (routeRatio - 1), allowedPercent: Number((100 * ROUTE_TOLERANCE + r.design.maxErrorPct).toPrecision(2)) };
+      if (moving) notes.push({ code: "ROUTES_DIFFER_NOT_STATIONARY", values: { ...values, ...movingValues }, text: `${axis} (${ch.name}): a_w from the PSD is ${pct(values.offPercent)} % off a_w in time over the same samples (±${values.allowedPercent} % on a stationary record); ${movingText}, and Welch's segments and the weighting filter's memory share a changing level out unlike each other; a_w is the time-domain value` });
+      else doubts.push({ code: "ROUTES_DIFFER", values, text: `${axis} (${ch.name}): a_w from the PSD is ${pct(values.offPercent)} % off a_w in time over the same samples of a stationary record (allowed ±${values.allowedPercent} %): the weighting or the spectrum is in question` });
+    }
+    const plain = awFromPsd / d.rms;
+    if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE) notes.push({ code: "PSD_VS_PLAIN", values: { offPercent: 100 * (plain - 1) }, text: `${axis}: a_w from the PSD is ${pct(100 * (plain - 1))} % off the plain time average because Welch tapers the record's ends and drops its last partial segment, which matters on a non-stationary record; a_w is the time-domain value` });
+    if (r.heldSamples > 0) doubts.push({ code: "NON_FINITE_HELD", values: { samples: r.heldSamples }, text: `${axis} (${ch.name}): ${r.heldSamples} non-finite sample(s) were held at the last finite value before weighting` });
+    if (stationarity.tested && !stationarity.stationary) {
+      const t = stationarity.reverseArrangements!;
+      const dep = stationarity.departing[0];
+      notes.push({
+        code: "LEVEL_NOT_STATIONARY",
+        values: { statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, ...(dep ? { departingFromS: Math.round(dep.fromS), departingToS: Math.round(dep.toS), departingDb: Math.round(10 * dep.levelDb) / 10 } : {}) },
+        text: `${axis}: weighted level not stationary (reverse arrangements A = ${t.statistic} outside ${t.acceptAbove} < A <= ${t.acceptAtMost}, ${t.n} values)${dep ? `; most departing ${dep.fromS.toFixed(0)}-${dep.toS.toFixed(0)} s at ${dep.levelDb >= 0 ? "+" : ""}${dep.levelDb.toFixed(1)} dB` : ""}: a_w averages unlike stretches${options.exposureS !== undefined ? ", and A(8) assumes the recording stands for the whole exposure" : ""}`,
+      });
+    }
+    for (const f of ch.doubtFindings) {
+      if (f.code === "TOO_SHORT") continue;
+      if (f.code === "PARSEVAL_MISMATCH" && moving) notes.push({ code: "PARSEVAL_NOT_STATIONARY", values: { ...f.values, ...movingValues }, text: `${axis} (${ch.name}): ${f.text}; ${movingText}: Hann segments weigh a changing level unlike a plain mean over the same samples, so this is expected of the ride and the PSD stands for its average` });
+      else doubts.push({ ...f, text: `${axis} (${ch.name}): ${f.text}` });
+    }
+    for (const f of ch.notes) if (f.code === "HELD_SAMPLES") notes.push({ ...f, text: `${axis} (${ch.name}): ${f.text}` });
+    const basicMethod = basicMethodCheck(d.rms, d.crestFactor, d.mtvv, d.vdv, d.durationS);
+    if (!basicMethod.adequate) {
+      const L = BASIC_METHOD_LIMITS;
+      const items = [
+        `crest factor ${basicMethod.crestFactor.toFixed(2)}${basicMethod.crestFactor > L.crestFactor ? ` > ${L.crestFactor}` : ""}`,
+        `MTVV/a_w ${basicMethod.mtvvRatio.toFixed(2)}${basicMethod.mtvvRatio > L.mtvvRatio ? ` > ${L.mtvvRatio}` : ""}`,
+        `VDV/(a_w T^1/4) ${basicMethod.vdvRatio.toFixed(2)}${basicMethod.vdvRatio > L.vdvRatio ? ` > ${L.vdvRatio}` : ""}`,
+      ];
+      notes.push({ code: "BASIC_METHOD_EXCEEDED", values: { crestFactor: basicMethod.crestFactor, mtvvRatio: basicMethod.mtvvRatio, vdvRatio: basicMethod.vdvRatio }, text: `${axis}: the basic r.m.s. method may underestimate (${items.join(", ")}): judge by VDV and MTVV as well (ISO 2631-1 6.3)` });
+    }
+    return {
+      axis, channel: ch.name, weighting, rule: rules[axis], dose: d, awFromPsd, awWelchWeighted, routeRatio, basicMethod, stationarity,
+      filter: { method: r.design.method, maxErrorPct: r.design.maxErrorPct, maxErrorAtHz: r.design.maxErrorAtHz, topCentreHz: r.design.topCentreHz, heldSamples: r.heldSamples },
+      spectrogram: r.spectrogram,
+      peakHold: ch.peakHold,
+    };
+  });
+  // The realisation's error, in every result: which figures carry it and which do not.
+  const carriers = ["a_w", "crest factor", "VDV", "MTVV", "the total value", ...(options.exposureS !== undefined ? ["A(8)", "the daily VDV"] : []), ...(options.floor !== undefined ? ["SEAT"] : [])];
+  const worst = results.reduce((w, r) => (r.design.maxErrorPct > w.design.maxErrorPct ? r : w), results[0]!).design;
+  notes.unshift({
+    code: "WEIGHTING_ERROR",
+    values: { rateHz: fs, maxErrorPercent: Number(worst.maxErrorPct.toPrecision(2)), atHz: worst.maxErrorAtHz, topCentreHz: worst.topCentreHz },
+    text: `at ${fs} Hz the time-domain weighting${results.length > 1 ? "s are" : " is"} within ${Number(worst.maxErrorPct.toPrecision(2))} % of ISO 2631-1's |W(f)| at the one-third-octave centres to ${worst.topCentreHz} Hz (largest at ${worst.maxErrorAtHz} Hz): ${carriers.slice(0, -1).join(", ")} and ${carriers[carriers.length - 1]} carry it; a_w from the PSD applies |W(f)| exactly`,
+  });
+  if (worst.topCentreHz < 80) {
+    notes.splice(1, 0, {
+      code: "BAND_SHORT",
+      values: { nyquistHz: fs / 2, topCentreHz: worst.topCentreHz },
+      text: `the record holds nothing above its Nyquist frequency ${fs / 2} Hz: the weighted figures cover ISO 2631-1's one-third-octave bands to ${worst.topCentreHz} Hz of 0.5-80 Hz and leave out any motion above`,
+    });
+  }
+  const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));
+  const exposure = options.exposureS !== undefined ? dailyExposure(figures, rules, options.exposureS, options.healthZone ?? ISO_2631_HEALTH_ZONE) : undefined;
+  const healthZone = { ...(options.healthZone ?? ISO_2631_HEALTH_ZONE), from: options.healthZone ? "given" as const : "default" as const };
+  if (exposure === undefined) notes.push({ code: "EXPOSURE_NOT_GIVEN", values: {}, text: "no daily exposure stated: a_w, crest factor, VDV, MTVV, the total value and the comfort words are the recording's own; A(8), the daily VDV and their judgement against Directive 2002/44/EC and ISO 2631-1 Annex B need the daily exposure the recording stands for (--exposure)" });
+  const totalValue = {
+    health: vibrationTotalValue(figures, (a) => rules[a].healthK),
+    comfort: vibrationTotalValue(figures, (a) => rules[a].comfortK),
+  };
+  if (axes.length < 3) notes.push({ code: "AXES_MISSING", values: {}, text: `only ${axes.join(", ")} measured: the vibration total value${exposure ? " and the daily exposure leave" : " leaves"} out the other axes` });
+  if (options.posture === "recumbent") notes.push({ code: "POSTURE_RECUMBENT", values: {}, text: "recumbent: Directive 2002/44/EC states its axis factors for seated or standing workers and ISO 2631-1 Annex B guides seated exposure; the seated factors were used" });
+  if (options.posture !== "seated") notes.push({ code: "POSTURE_NOT_SEATED", values: {}, text: `${options.posture}: ISO 2631-1 Annex B health guidance is written for seated persons; the zone is shown for reference` });
+  let seat: RideResult["seat"];
+  if (options.floor !== undefined) {
+    const c = axes.length;
+    const floorDose = results[c]!.dose;
+    const zAxis = rideAxes.find((a) => a.axis === "z");
+    if (zAxis === undefined) notes.push({ code: "FLOOR_WITHOUT_Z", values: {}, text: "a floor channel needs z on the seat for the seat's transmissibility (vertical, Wk on both)" });
+    else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
+  }
+  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, healthZone, seat, notes: texts(notes), doubts: texts(doubts), noteFindings: notes, doubtFindings: doubts };
+}

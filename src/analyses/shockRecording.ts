@@ -1,0 +1,216 @@
+import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "../pass/analyzeRecording.js";
+import { InputError } from "../errors.js";
+import { backgroundRms, EventFinder, gaussianFalseEventRate, type ShockEvent } from "../estimate/response/eventFinder.js";
+import { checkSrsGrid, ShockSpectrumAccumulator, srsRateLimit, SRS_SAMPLES_PER_PERIOD, type ShockSpectrum } from "../estimate/response/shockResponse.js";
+import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js";
+import { openTimeHistory } from "../read/openTimeHistory.js";
+import { accelFactor, type AccelUnit } from "../units.js";
+
+/**
+ * `psdgate shock`: the events of a recording and their shock response spectra, in two reads of the file.
+ * Read 1 (the one pass, with the PSD) gives each channel's mean, its background level (the median of
+ * 1 s stretch r.m.s. values, each about its own mean) and its zero up-crossing rate from the PSD.
+ * Read 2 removes the mean, finds the events at the threshold (given, or a multiple of the background),
+ * and runs the SDOF filters over each event's window and over the whole record. Memory stays flat in the
+ * record's length: a few numbers per natural frequency and channel, plus the events found.
+ */
+export interface ShockOptions extends Omit<AnalysisOptions, "accumulators" | "spectrum" | "histogram"> {
+  /** Natural frequencies, Hz (an array as well: a record's re-run options are JSON). */
+  fnHz: Float64Array | readonly number[];
+  q: number;
+  /** Threshold on |x - mean| in the result unit; default: `thresholdFactor` x the background r.m.s. */
+  threshold?: number | undefined;
+  /** Default 6 (see DEFAULT_THRESHOLD_FACTOR). */
+  thresholdFactor?: number | undefined;
+  /** Exceedances closer than this belong to one event, s; default 0.05. */
+  holdS?: number | undefined;
+  /** The event's SRS window starts this long before its first exceedance, s; default the hold time. */
+  preS?: number | undefined;
+  /** ... and ends this long after its last, s; default the larger of the hold time and one period of the lowest natural frequency. */
+  postS?: number | undefined;
+  maxEvents?: number | undefined;
+  /** Also give each event's primary (to its last exceedance) and residual (after it) spectra. */
+  primaryResidual?: boolean | undefined;
+}
+
+/**
+ * 6 background r.m.s.: on a Gaussian background with a zero up-crossing rate of 100 Hz this expects one false
+ * event in about 4.6 days (2 nu0 exp(-18), Rice 1944-45); at 1 kHz in about 11 h.
+ */
+export const DEFAULT_THRESHOLD_FACTOR = 6;
+export const DEFAULT_HOLD_S = 0.05;
+
+export interface ShockEventResult {
+  /** Time of the peak, s from the first sample of the file (the --from window included). */
+  timeS: number;
+  peak: number;
+  /** First to last sample at or above the threshold, plus one sample step, s. */
+  durationS: number;
+  srs: ShockSpectrum;
+  /** Primary (to the event's last exceedance, the pre window included) and residual (after it) spectra, when asked for. */
+  primary?: ShockSpectrum | undefined;
+  residual?: ShockSpectrum | undefined;
+  /** The SRS window ended with the record. */
+  truncated: boolean;
+}
+
+export interface ShockChannel {
+  name: string;
+  units: AccelUnit;
+  /** The mean removed before events and spectra (gravity on an axis, offsets). */
+  mean: number;
+  backgroundRms: number;
+  threshold: number;
+  /** Threshold over the background r.m.s. */
+  thresholdFactor: number;
+  /** sqrt(m2 / m0) of the record's PSD. */
+  zeroUpcrossingRateHz: number;
+  /** On a stationary Gaussian background of this r.m.s. and rate: expected false events over the record (Rice). */
+  expectedFalseEvents: number;
+  /** Largest |peak| first. */
+  events: ShockEventResult[];
+  /** The whole record's SRS. */
+  srs: ShockSpectrum;
+  /** Pseudo-velocity in m/s (the spectra's pseudoVelocity is in the channel's unit x s). */
+  pvssMPerS: Float64Array;
+}
+
+export interface ShockResult {
+  analysis: RecordingAnalysis;
+  settings: { fnHz: Float64Array; q: number; holdS: number; preS: number; postS: number; thresholdGiven?: number | undefined; thresholdFactor?: number | undefined; primaryResidual: boolean };
+  rate: { sampleRateHz: number; highestFnHz: number; samplesPerPeriod: number; peakShortfallBound: number };
+  channels: ShockChannel[];
+  notes: string[];
+  doubts: string[];
+}
+
+class Background implements PassAccumulator<number[][]> {
+  private s: StretchMeanSquares[] = [];
+  private length = 2;
+  start(designRateHz: number): void {
+    this.length = Number.isFinite(designRateHz) && designRateHz > 0 ? Math.max(2, Math.round(designRateHz)) : 2;
+  }
+  push(blocks: Float64Array[], frames: number): void {
+    while (this.s.length < blocks.length) this.s.push(new StretchMeanSquares(this.length));
+    for (let c = 0; c < blocks.length; c++) this.s[c]!.push(blocks[c]!, frames);
+  }
+  finish(): number[][] {
+    return this.s.map((s) => [...s.result()]);
+  }
+}
+
+class Events implements PassAccumulator<{ events: ShockEvent[]; srs: ShockSpectrum }[]> {
+  private finders: EventFinder[] = [];
+  private whole: ShockSpectrumAccumulator[] = [];
+  private scratch = new Float64Array(0);
+  constructor(private readonly o: { means: number[]; thresholds: number[]; holdS: number; preS: number; postS: number; fnHz: Float64Array; q: number; maxEvents?: number | undefined; file: string }) {}
+  start(designRateHz: number): void {
+    if (!(Number.isFinite(designRateHz) && designRateHz > 0)) return;
+    checkSrsGrid(this.o.fnHz, this.o.q, designRateHz, this.o.file);
+    const toSamples = (s: number) => Math.max(1, Math.round(s * designRateHz));
+    this.finders = this.o.thresholds.map((threshold) => new EventFinder({
+      threshold, holdSamples: toSamples(this.o.holdS), maxEvents: this.o.maxEvents,
+      srs: { fnHz: this.o.fnHz, q: this.o.q, sampleRateHz: designRateHz, preSamples: toSamples(this.o.preS), postSamples: toSamples(this.o.postS) },
+    }));
+    this.whole = this.o.thresholds.map(() => new ShockSpectrumAccumulator(this.o.fnHz, this.o.q, designRateHz));
+  }
+  push(blocks: Float64Array[], frames: number): void {
+    if (this.scratch.length < frames) this.scratch = new Float64Array(frames);
+    const y = this.scratch;
+    for (let c = 0; c < blocks.length; c++) {
+      const x = blocks[c]!;
+      const m = this.o.means[c]!;
+      for (let i = 0; i < frames; i++) y[i] = x[i]! - m;
+      this.finders[c]!.push(y, frames);
+      this.whole[c]!.push(y, frames);
+    }
+  }
+  finish() {
+    return this.finders.map((f, c) => ({ events: f.finish(), srs: this.whole[c]!.finish() }));
+  }
+}
+
+function zeroUpcrossingRate(psd: Float64Array, f: Float64Array): number {
+  let m0 = 0;
+  let m2 = 0;
+  for (let k = 1; k < psd.length; k++) {
+    m0 += psd[k]!;
+    m2 += f[k]! * f[k]! * psd[k]!;
+  }
+  return m0 > 0 ? Math.sqrt(m2 / m0) : NaN;
+}
+
+export async function shockRecording(file: string, options: ShockOptions): Promise<ShockResult> {
+  const q = options.q;
+  const fnHz = Float64Array.from(options.fnHz);
+  if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
+  const holdS = options.holdS ?? DEFAULT_HOLD_S;
+  if (!(holdS > 0 && holdS <= 60)) throw new InputError("OPTION_INVALID", { option: "holdS", expected: "a hold time in s, 0 < t <= 60", received: String(holdS) });
+  const factor = options.thresholdFactor ?? DEFAULT_THRESHOLD_FACTOR;
+  if (options.threshold !== undefined && options.thresholdFactor !== undefined) throw new InputError("OPTION_CONFLICT", { option: "threshold", expected: "a threshold in units or a factor on the background, not both", received: "both" });
+  if (!(factor > 0 && factor <= 1000)) throw new InputError("OPTION_INVALID", { option: "thresholdFactor", expected: "a factor above 0 and at most 1000", received: String(factor) });
+  if (options.threshold !== undefined && !(options.threshold > 0 && Number.isFinite(options.threshold))) throw new InputError("OPTION_INVALID", { option: "threshold", expected: "a threshold above 0", received: String(options.threshold) });
+  let fnMin = Infinity;
+  for (const f of fnHz) fnMin = Math.min(fnMin, f);
+  const preS = options.preS ?? holdS;
+  const postS = options.postS ?? Math.max(holdS, 1 / fnMin);
+  for (const [k, v] of [["preS", preS], ["postS", postS]] as const) if (!(v >= 0 && v <= 600)) throw new InputError("OPTION_INVALID", { option: k, expected: "a time in s from 0 to 600", received: String(v) });
+  const base: AnalysisOptions = { ...options };
+  delete (base as Partial<ShockOptions>).fnHz;
+  const open = () => openTimeHistory(file, { ...options.csv, sampleRateHz: options.csv?.sampleRateHz });
+  // Read 1: mean, background, PSD.
+  const src1 = await open();
+  if (Number.isFinite(src1.info.sampleRateHz)) checkSrsGrid(fnHz, q, src1.info.sampleRateHz, file);
+  const bg = new Background();
+  const progress = options.onProgress;
+  const analysis = await analyzeSource(src1, { ...base, accumulators: [bg], onProgress: progress && ((d, t) => progress(d / 2, t)) });
+  const stretches = analysis.extras[0] as number[][];
+  const fs = analysis.input.sampleRateHz;
+  const notes: string[] = [];
+  const doubts: string[] = [...analysis.passDoubts];
+  // The read's own doubts (non-finite samples, a clipped or saturated signal, held samples) carry over: a clipped shock's peak and SRS are too low.
+  for (const ch of analysis.channels) for (const d of ch.doubts) doubts.push(`${ch.name}: ${d}`);
+  const per = analysis.channels.map((ch, c) => {
+    const b = backgroundRms(stretches[c] ?? []);
+    const threshold = options.threshold ?? factor * b;
+    if (!(threshold > 0)) {
+      throw new InputError("SHOCK_NO_BACKGROUND", { file, option: "threshold", expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`, received: String(b) });
+    }
+    return { mean: ch.stats.mean, background: b, threshold, nu0: zeroUpcrossingRate(ch.psd.psd, ch.psd.frequencyHz) };
+  });
+  // Read 2: events and spectra.
+  const ev = new Events({ means: per.map((p) => p.mean), thresholds: per.map((p) => p.threshold), holdS, preS, postS, fnHz, q, maxEvents: options.maxEvents, file });
+  const pass2 = await analyzeSource(await open(), { ...base, spectrum: false, accumulators: [ev], onProgress: progress && ((d, t) => progress(t / 2 + d / 2, t)) });
+  if (pass2.input.sha256 !== analysis.input.sha256) throw new InputError("RECORDING_CHANGED", { file, expected: "the same file on both reads", received: "a different SHA-256 on the second read" });
+  const found = pass2.extras[0] as ReturnType<Events["finish"]>;
+  const rate = { sampleRateHz: fs, ...srsRateLimit(fnHz, fs) };
+  if (rate.samplesPerPeriod < SRS_SAMPLES_PER_PERIOD) {
+    notes.push(`the highest natural frequency ${rate.highestFnHz} Hz has ${rate.samplesPerPeriod.toFixed(1)} samples per period (fewer than ${SRS_SAMPLES_PER_PERIOD}): its spectrum values can fall up to ${(100 * rate.peakShortfallBound).toFixed(1)} % short of the continuous response's peak, which lies between samples`);
+  }
+  const channels: ShockChannel[] = analysis.channels.map((ch, c) => {
+    const p = per[c]!;
+    const k = p.threshold / p.background;
+    const expectedFalseEvents = gaussianFalseEventRate(k, p.nu0) * analysis.window.frames / fs;
+    const events = found[c]!.events.map((e) => ({
+      timeS: analysis.window.fromS + e.peakIndex / fs, peak: e.peak, durationS: (e.lastIndex - e.firstIndex + 1) / fs, srs: e.srs!, truncated: e.truncated,
+      ...(options.primaryResidual ? { primary: e.primary, residual: e.residual } : {}),
+    })).sort((a, b) => Math.abs(b.peak) - Math.abs(a.peak) || a.timeS - b.timeS);
+    const srs = found[c]!.srs;
+    const toMs = accelFactor(ch.units, "m/s2");
+    if (!(k >= 4.5)) notes.push(`${ch.name}: the threshold is ${k.toFixed(2)} x the background r.m.s.; on a Gaussian background of this level about ${fmtCount(expectedFalseEvents)} event(s) would be found by chance (Rice)`);
+    if (events.some((e) => e.truncated)) notes.push(`${ch.name}: an event's SRS window ran past the end of the record (post window ${postS} s): its residual response may be cut short`);
+    return {
+      name: ch.name, units: ch.units, mean: p.mean, backgroundRms: p.background, threshold: p.threshold, thresholdFactor: k, zeroUpcrossingRateHz: p.nu0,
+      expectedFalseEvents, events, srs, pvssMPerS: srs.pseudoVelocity.map((v) => v * toMs),
+    };
+  });
+  return {
+    analysis,
+    settings: { fnHz, q, holdS, preS, postS, thresholdGiven: options.threshold, thresholdFactor: options.threshold === undefined ? factor : undefined, primaryResidual: options.primaryResidual === true },
+    rate, channels, notes, doubts,
+  };
+}
+
+function fmtCount(x: number): string {
+  return x >= 10 ? x.toFixed(0) : x.toPrecision(2);
+}

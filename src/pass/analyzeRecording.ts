@@ -1,0 +1,333 @@
+import { scaleSamples, type ChannelReading, type ChannelSetting } from "../condition/scaleSamples.js";
+import { amplitudeGates } from "../compare/amplitudeGates.js";
+import { parsevalCheck, type ParsevalCheck } from "../estimate/spectral/parsevalCheck.js";
+import { texts, type Finding } from "../findings.js";
+import { InputError } from "../errors.js";
+import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "../estimate/spectral/psdEstimate.js";
+import { HistogramAccumulator, type AmplitudeHistogram } from "../estimate/statistics/amplitudeHistogram.js";
+import { PeakHoldPsdAccumulator, type PeakHoldPsd } from "../estimate/spectral/peakHoldPsd.js";
+import { SegmentPower } from "../estimate/spectral/segmentPower.js";
+import { RunningMoments, type SampleStatistics } from "../estimate/statistics/runningMoments.js";
+import { SampleHoldAccumulator, type SampleHold } from "../estimate/statistics/sampleHold.js";
+import { stationarityFinding, type StationarityFinding } from "../estimate/statistics/stationarityTests.js";
+import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js";
+import { spectralKernel } from "../estimate/spectral/spectralKernel.js";
+import { spectralTones, type SpectralTone } from "../estimate/spectral/toneEstimate.js";
+import type { ResolvedWelchOptions, WelchOptions } from "../estimate/spectral/welchOptions.js";
+import { WelchAccumulator } from "../estimate/spectral/welchPsd.js";
+import { spectralWindow } from "../estimate/spectral/windows.js";
+import type { CsvReadOptions } from "../read/csvTimeHistory.js";
+import { openTimeHistory } from "../read/openTimeHistory.js";
+import type { TimeHistorySource } from "../read/timeHistory.js";
+import { atFinalRate, resolveAnalysis, type AnalysisPlan, type ResolvedAnalysis } from "./resolveAnalysis.js";
+import type { AccelUnit } from "../units.js";
+
+export type { AnalysisOptions, PassAccumulator } from "./analysisOptions.js";
+import type { AnalysisOptions, PassAccumulator } from "./analysisOptions.js";
+
+/**
+ * The one pass: read blocks, condition them, feed every channel's statistics and Welch accumulators,
+ * then finish into plain result objects. Memory: a few segments per channel, whatever the length.
+ */
+
+/** What listens to one channel's conditioned samples in the pass (the built-in accumulators). */
+interface SampleListener {
+  push(x: Float64Array, n: number): void;
+}
+
+/** The analysed window, in s from the first sample at the final rate, and its length in frames. */
+export interface FrameWindow {
+  fromS: number;
+  toS: number;
+  frames: number;
+  /** The --to asked for, when it lay past the end (toS is then the end). */
+  requestedToS?: number | undefined;
+  /** --from/--to as the clock times given, when they were. */
+  fromClock?: string | undefined;
+  toClock?: string | undefined;
+}
+
+export interface ChannelAnalysis {
+  name: string;
+  /** 1-based position among the file's channels. */
+  position: number;
+  units: AccelUnit;
+  /** How the file's numbers became accelerations: the file's unit, calibration, sensitivity, factor. */
+  reading: ChannelReading;
+  stats: SampleStatistics;
+  psd: PsdEstimate;
+  parseval: ParsevalCheck;
+  band?: { fminHz: number; fmaxHz: number; rms: number } | undefined;
+  peaks: SpectralPeak[];
+  /** Lines standing far above their neighbours: candidate sine tones, with their amplitude (toneEstimate.ts spectralTones). */
+  tones: SpectralTone[];
+  /** Amplitude histogram, when asked for (the review report shows it). */
+  histogram?: AmplitudeHistogram | undefined;
+  /** Peak-hold spectrum, when asked for (`peakHoldS`). */
+  peakHold?: PeakHoldPsd | undefined;
+  /** Reverse-arrangements test on the stretch mean squares (Bendat & Piersol 2010, sec. 10.3). */
+  stationarity: StationarityFinding;
+  /** The stretch mean squares the stationarity test looked at (one per stretchS; for check's level gate). */
+  stretchMeanSquares?: Float64Array | undefined;
+  /** Runs of repeated values: is the record a slower sensor's readings held to the file's rate? */
+  hold?: SampleHold | undefined;
+  /** Findings that weaken trust in the result; each names what was seen. */
+  warnings: string[];
+  /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
+  doubts: string[];
+  /** The same notes and doubts with their codes. */
+  notes: Finding[];
+  doubtFindings: Finding[];
+}
+
+export interface RecordingAnalysis {
+  input: {
+    file: string;
+    format: "csv" | "wav";
+    layout: string;
+    sha256: string;
+    bytes: number;
+    sampleRateHz: number;
+    samples: number;
+    durationS: number;
+    /** ISO 8601 time of the first sample, when the file has date-time stamps. */
+    startTime?: string | undefined;
+    /** Lines before a CSV header (a logger's metadata), as text. */
+    preamble?: string[] | undefined;
+  };
+  settings: ResolvedWelchOptions & { scale: number };
+  window: FrameWindow;
+  /** The options and the reader's findings as resolved: everything needed to reproduce this result. */
+  analysis: ResolvedAnalysis;
+  channels: ChannelAnalysis[];
+  /** Results of `options.accumulators`, in order. */
+  extras: unknown[];
+  /** Doubts about the whole pass (the rate contract). */
+  passDoubts: string[];
+}
+
+export async function analyzeRecording(file: string, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
+  const source = await openTimeHistory(file, { ...options.csv, sampleRateHz: options.csv?.sampleRateHz });
+  return analyzeSource(source, options);
+}
+
+export async function analyzeSource(source: TimeHistorySource, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
+  const { info } = source;
+  let plan: AnalysisPlan;
+  const extras = options.accumulators ?? [];
+  try {
+    plan = resolveAnalysis(options, info);
+    for (const e of extras) e.start(info.sampleRateHz);
+  } catch (e) {
+    // A read that will not come releases what the source holds (a large CSV's waiting worker).
+    await source.close?.();
+    throw e;
+  }
+  const { select, conditioning, first, end } = plan;
+  const settings = plan.analysis.welch;
+  const asked = plan.analysis.window;
+  const designFs = info.sampleRateHz;
+  const stretchS = plan.analysis.stretchS;
+  const window = spectralWindow(settings.window, settings.segmentLength);
+  const power = new SegmentPower(settings.segmentLength);
+  const spectrum = plan.analysis.spectrum;
+  // The built-in listeners of each channel, chosen from the resolved analysis: the moments and the
+  // stationarity stretches always, Welch when a spectrum is asked for, the histogram for a report.
+  const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power) : undefined));
+  const moments = select.map(() => new RunningMoments());
+  const histograms = plan.analysis.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
+  const holdS = plan.analysis.peakHoldS;
+  const peakHolds = spectrum && holdS !== undefined && Number.isFinite(designFs) && designFs > 0
+    ? select.map(() => new PeakHoldPsdAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power, Math.max(settings.segmentLength, Math.round(holdS * designFs)), designFs))
+    : undefined;
+  // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
+  const stretchLength = Number.isFinite(designFs) && designFs > 0 ? Math.max(2, Math.round(stretchS * designFs)) : 2;
+  const stretches = select.map(() => new StretchMeanSquares(stretchLength));
+  // Runs of repeated values (sample-and-hold), on every command's pass.
+  const holds = select.map(() => new SampleHoldAccumulator());
+  const listeners: SampleListener[][] = select.map((_, c) => ([moments[c]!, holds[c]!, histograms?.[c], welch[c], stretches[c]!, peakHolds?.[c]] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
+  const views: Float64Array[] = select.map(() => new Float64Array(0));
+  let offset = 0;
+  let taken = 0;
+  const summary = await source.read(
+    select,
+    (blocks, frames) => {
+      // The frame window [first, end) cut out of this block: [a, b).
+      const a = Math.max(0, first - offset);
+      const b = Math.min(frames, end - offset);
+      offset += frames;
+      if (b <= a) return;
+      const n = b - a;
+      taken += n;
+      for (let c = 0; c < blocks.length; c++) {
+        const x = a === 0 ? blocks[c]! : blocks[c]!.subarray(a, b);
+        views[c] = x;
+        scaleSamples(x, n, conditioning[c]!.factor);
+        for (const l of listeners[c]!) l.push(x, n);
+      }
+      for (const e of extras) e.push(views, n);
+    },
+    options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
+  );
+  if (summary.frames === 0) {
+    throw new InputError("RECORD_TOO_SHORT", { file: info.file, expected: "at least one sample", received: "0 samples", hint: "the recording holds no data" });
+  }
+  const fs = summary.sampleRateHz;
+  const passDoubts: string[] = [];
+  if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
+    passDoubts.push(`the record's rate is ${String(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${String(designFs)} Hz its first rows gave`);
+  }
+  if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
+    throw new InputError("WINDOW_EMPTY", {
+      file: info.file, option: asked.fromS !== undefined ? "fromS" : "toS",
+      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `${asked.fromS ?? 0} s to ${asked.toS ?? "the end"}`,
+    });
+  }
+  const recordEndS = summary.frames / fs;
+  const windowInfo: FrameWindow = { fromS: Math.min(first, summary.frames) / fs, toS: Math.min(end, summary.frames) / fs, frames: taken };
+  if (asked.toS !== undefined && end > summary.frames) windowInfo.requestedToS = asked.toS;
+  if (options.fromClock !== undefined) windowInfo.fromClock = options.fromClock;
+  if (options.toClock !== undefined) windowInfo.toClock = options.toClock;
+  const extraResults = extras.map((e) => e.finish(fs));
+  const analysis = atFinalRate(plan.analysis, fs, options);
+  const resolved = analysis.welch;
+  const channels = select.map((idx, c): ChannelAnalysis => {
+    const stats = moments[c]!.result();
+    const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0, detrendedKurtosis: NaN, detrendedCrestFactor: NaN };
+    const psd = completePsd(sums, window, resolved, fs);
+    const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
+    const parseval = parsevalCheck(rmsTime, psd, settings.window);
+    const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
+    const stretchMs = stretches[c]!.result();
+    const stationarity = stationarityFinding(stretchMs, stretchLength / fs, windowInfo.fromS);
+    const hold = holds[c]!.result(fs);
+    const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
+    const note = stationarityNote(stationarity);
+    if (note !== undefined) notes.push({ code: "NOT_STATIONARY", values: stationarityValues(stationarity), text: note });
+    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS }, text: `the window's end ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
+    return {
+      name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
+      tones: spectrum && psd.dof > 0 ? spectralTones(psd, window, spectralKernel(settings.window, window, settings.detrend).halfWidthBins, { max: 8 }) : [],
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), peakHold: peakHolds?.[c]!.finish(fs), stationarity, stretchMeanSquares: stretchMs, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+    };
+  });
+  return {
+    input: {
+      file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
+      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs, startTime: summary.startTime, preamble: info.preamble,
+    },
+    settings: { ...resolved, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
+    window: windowInfo,
+    analysis,
+    channels,
+    extras: extraResults,
+    passDoubts,
+  };
+}
+
+/**
+ * A record too short for one Welch segment in some channel has no PSD: an input error (RECORD_TOO_SHORT),
+ * not a result. The analysis itself returns, so a batch can still print the recording's other figures
+ * beside the error; every command that needs a spectrum raises this.
+ */
+export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
+  if (!a.channels.some((c) => c.psd.averages === 0)) return undefined;
+  const frames = a.window.frames;
+  if (frames >= a.settings.segmentLength) {
+    // Long enough, but every segment holds a NaN or an infinite sample: say that, not a length it has.
+    const bad = a.channels.find((c) => c.psd.averages === 0);
+    const nonFinite = bad?.stats.nonFinite ?? 0;
+    return new InputError("RECORD_TOO_SHORT", {
+      file: a.input.file, field: bad?.name, expected: `at least one segment of ${a.settings.segmentLength} samples free of NaN and infinite values`,
+      received: `${frames} samples, ${nonFinite} of them NaN or infinite, in every segment`, hint: "check the recording (or its `scale`) for the non-finite values",
+    });
+  }
+  return new InputError("RECORD_TOO_SHORT", {
+    file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${frames} samples${frames !== a.input.samples ? ` in the window (${a.input.samples} in the file)` : ""}`,
+    hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
+  });
+}
+
+/** The note `psd` and `check` print when a record fails the stationarity test. */
+export function stationarityNote(f: StationarityFinding): string | undefined {
+  if (!f.tested || f.stationary || f.reverseArrangements === undefined) return undefined;
+  const t = f.reverseArrangements;
+  const d = f.departing[0];
+  return `not stationary: reverse arrangements A = ${t.statistic} outside ${t.acceptAbove} < A <= ${t.acceptAtMost} (${t.n} values, ${fixedPct(t.alpha)} % test) on ${f.stretches} stretch mean squares of ${fmt(f.stretchS)} s${f.pooled > 1 ? ` pooled ${f.pooled} at a time` : ""}; the PSD averages unlike stretches${d ? `; most departing ${fmt(d.fromS)}-${fmt(d.toS)} s at ${d.levelDb >= 0 ? "+" : ""}${d.levelDb.toFixed(1)} dB from the median` : ""}`;
+}
+
+/** The numbers stationarityNote states, by name (a finding's values). */
+function stationarityValues(f: StationarityFinding): Record<string, number> {
+  const t = f.reverseArrangements!;
+  const d = f.departing[0];
+  return {
+    statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, testPercent: 100 * t.alpha, stretches: f.stretches, stretchS: f.stretchS,
+    ...(f.pooled > 1 ? { pooled: f.pooled } : {}), ...(d ? { departingFromS: d.fromS, departingToS: d.toS, departingDb: d.levelDb } : {}),
+  };
+}
+
+function fixedPct(a: number): string {
+  return Number((100 * a).toPrecision(3)).toString();
+}
+
+/**
+ * Clipping hint: more samples at the exact record maximum or minimum than chance explains, at least 3
+ * and at least 2e-5 of the record (common practice, a heuristic). A Gaussian record quantised at
+ * 0.5 sigma per code hits its top code about 7 times per million samples by chance; one clipped at
+ * 4 sigma puts about 63 per million on the rail (Gaussian tail 6.3e-5, REFERENCES.md sec. 10).
+ */
+export function clippingHintCount(samples: number): number {
+  return Math.max(3, Math.ceil(2e-5 * samples));
+}
+
+/** The notes and doubts of one channel. @internal (exported for tests/findings.test.ts, which holds their values to their texts) */
+export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number, hold?: SampleHold) {
+  const notes: Finding[] = [];
+  const doubts: Finding[] = [];
+  if (s.nonFinite > 0) {
+    doubts.push({ code: "NON_FINITE", values: { samples: s.nonFinite, segmentsLeftOut: p.skippedSegments }, text: `${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD` });
+  }
+  const held = hold?.held === true ? hold : undefined;
+  if (held) {
+    const fs = held.updateRateHz * held.meanRun; // the file's rate
+    notes.push({
+      code: "HELD_SAMPLES",
+      values: { meanRun: held.meanRun, heldPercent: 100 * held.heldShare, updateRateHz: held.updateRateHz, sampleRateHz: fs, nyquistHz: held.updateRateHz / 2 },
+      text: `held samples: values repeat in runs of ${held.meanRun.toFixed(2)} on average (${(100 * held.heldShare).toFixed(1)} % of samples in runs of two or more): the sensor updated at about ${fmt(held.updateRateHz)} Hz and the file repeats its readings to ${fmt(fs)} Hz; content above ${fmt(held.updateRateHz / 2)} Hz is the hold's images, not motion, and the clipping count takes each held extreme once`,
+    });
+  }
+  // A held extreme is one reading: count runs at the extremes, not samples, when the record is held.
+  const atMax = held ? held.runsAtMax : s.atMax;
+  const atMin = held ? held.runsAtMin : s.atMin;
+  const clip = clippingHintCount(held ? held.runs : s.count);
+  if (atMax >= clip || atMin >= clip) {
+    doubts.push({ code: "CLIPPING", values: { atMax, max: s.max, atMin, min: s.min }, text: `possible clipping: ${atMax} ${held ? "held reading(s)" : "sample(s)"} at the maximum ${fmt(s.max)} and ${atMin} at the minimum ${fmt(s.min)}` });
+  }
+  // Without a spectrum (inspect) there are no segment, Parseval or amplitude-gate findings.
+  if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", values: { samples: frames, segmentLength: segment }, text: `record of ${frames} samples is shorter than one segment of ${segment}` });
+  else if (spectrum && p.averages < 8) notes.push({ code: "FEW_AVERAGES", values: { averages: p.averages, lineErrorPercent: 100 * p.randomError }, text: `only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)` });
+  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) notes.push({ code: "DC_OFFSET", values: { mean: s.mean, meanPercentOfStd: 100 * Math.abs(s.mean / s.std) }, text: `DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)` });
+  if (spectrum && p.averages > 0) {
+    if (!pv.ok) {
+      doubts.push({
+        code: "PARSEVAL_MISMATCH",
+        values: { offPercent: 100 * (pv.ratio - 1), allowedPercent: 100 * pv.tolerance },
+        text: `Parseval mismatch: RMS from the PSD is ${(100 * (pv.ratio - 1)).toFixed(2)} % off the RMS of the same detrended segments (allowed ±${(100 * pv.tolerance).toPrecision(2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""})`,
+      });
+    }
+    if (pv.belowFirstLineShare > 0.01) {
+      notes.push({ code: "BELOW_FIRST_LINE", values: { sharePercent: 100 * pv.belowFirstLineShare }, text: `${(100 * pv.belowFirstLineShare).toFixed(1)} % of the record's mean square is slower than the first line (drift or a slow trend); the PSD leaves it out` });
+    }
+    if (s.count > 0 && s.std > 0) {
+      // Held readings are not independent samples: the gates count readings (updates), not samples.
+      const g = amplitudeGates(held ? { ...s, count: Math.max(1, Math.round(s.count / held.meanRun)) } : s, p, durationS);
+      doubts.push(...g.doubts);
+      notes.push(...g.notes);
+    }
+  }
+  return { notes, doubts };
+}
+
+function fmt(x: number): string {
+  return Number(x.toPrecision(5)).toString();
+}

@@ -1,0 +1,478 @@
+import { basename, dirname, join } from "node:path";
+import { analyzeRecording, type AnalysisOptions } from "../pass/analyzeRecording.js";
+import { checkRecording, loadProfile, type CheckOptions } from "../analyses/checkRecording.js";
+import { InputError } from "../errors.js";
+import { pathExists, readSmallText, sha256OfFile } from "../read/regularFile.js";
+import type { TestMeta } from "../read/testMeta.js";
+import { checkJson } from "../report/checkReport.js";
+import { BATCH_STYLE } from "../report/batchIndex.js";
+import { DERIVE_STYLE } from "../report/deriveHtml.js";
+import { EXTRA_STYLE as RESPOND_STYLE } from "../report/responseHtml.js";
+import { RIDE_STYLE } from "../report/rideHtml.js";
+import { EXTRA_STYLE as TRANSFER_STYLE } from "../report/transferHtml.js";
+import { extractResult } from "../report/embeddedResult.js";
+import { foreignContent, scanPage, shownVerdict } from "./pageScan.js";
+import { isFrameStyle, PEAK_HOLD_STYLE } from "../report/reportPage.js";
+import { psdJson } from "../report/psdJson.js";
+import type { DeriveOptions } from "../analyses/deriveProfile.js";
+import type { RecordKind } from "../report/reportPage.js";
+
+/**
+ * `psdgate verify REPORT.html`: is a report what psdgate wrote, and does re-running its recorded
+ * analysis on its inputs give the same numbers and verdict?
+ *
+ * 1. The embedded result's digest and the page digest inside it (report/embeddedResult.ts): an edit
+ *    to the page or to the result is found.
+ * 2. The recording and the profile it names, found where the options say, else beside the report, else
+ *    at the recorded path: SHA-256 against the recorded ones.
+ * 3. The recorded analysis re-run on them, and every number of the result compared within a relative
+ *    tolerance (strings and the verdict exactly).
+ */
+export interface VerifyOptions {
+  recording?: string | undefined;
+  profile?: string | undefined;
+  /** Relative tolerance on every number (default 1e-9: the same code on the same bytes gives the same bits). */
+  tolerance?: number | undefined;
+  /** The running psdgate's version (a report from another version is compared all the same, and says so). */
+  version: string;
+}
+
+export type VerifyStatus = "reproduced" | "differs" | "missing";
+
+export interface VerifyStep {
+  step: "result" | "page" | "recording" | "profile" | "rerun";
+  ok: boolean;
+  text: string;
+}
+
+export interface VerifyResult {
+  status: VerifyStatus;
+  report: string;
+  kind?: RecordKind | undefined;
+  steps: VerifyStep[];
+  /** Up to 20 differences, each with its JSON path. */
+  differences: string[];
+  /** Inputs that could not be found, with where they were looked for. */
+  missing: string[];
+  /** Numbers compared in the re-run. */
+  compared: number;
+}
+
+const IGNORED = new Set(["input.file", "analysis.file", "profile.file", "tool.version"]);
+/** Input paths inside a derive result: where the files were found may differ from where they were read. */
+const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[\d+\]\.file)$/;
+
+/**
+ * The fields a later psdgate added to a result, array indices folded to `[]`. They carry no verdict and no
+ * evidence of one (the resolved analysis, a finding's values beside its text, a profile's provenance), so a
+ * report made before them still verifies on every number it holds. Nothing else may be missing.
+ */
+const ADDED_LATER = [/^analysis$/, /(^|\.)\w*[fF]indings\[\]\.values$/, /^profile\.(provenance|origin)$/];
+
+export interface CompareOptions {
+  /** The report was made by another psdgate version: a field in ADDED_LATER that only the re-run has is listed, not a difference. */
+  olderReport?: boolean | undefined;
+}
+
+/**
+ * Every difference between a recorded and a re-computed result, by JSON path. A field the re-run has and the
+ * record lacks is a difference: a verdict, a rule or a channel deleted from a record is not "not compared".
+ * The one exception is a field a later psdgate added (ADDED_LATER) when the report came from another
+ * version: it is listed in `added`. A recorded field the re-run lacks is a difference.
+ */
+export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number; added: string[] } = { diffs: [], compared: 0, added: [] }, opts: CompareOptions = { olderReport: true }) {
+  if (IGNORED.has(path) || IGNORED_PATTERN.test(path)) return out;
+  if (recorded === undefined && now !== undefined) {
+    const folded = path.replace(/\[\d+\]/g, "[]");
+    if (opts.olderReport && ADDED_LATER.some((re) => re.test(folded))) out.added.push(path);
+    else out.diffs.push(`${path}: not in the report, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
+    return out;
+  }
+  const add = (s: string) => out.diffs.push(s);
+  if (typeof recorded === "number" && typeof now === "number") {
+    out.compared++;
+    const scale = Math.max(Math.abs(recorded), Math.abs(now));
+    if (!(Math.abs(recorded - now) <= tolerance * scale)) add(`${path}: recorded ${recorded}, re-run ${now}`);
+  } else if (Array.isArray(recorded) && Array.isArray(now)) {
+    if (recorded.length !== now.length) add(`${path}: recorded ${recorded.length} values, re-run ${now.length}`);
+    else for (let i = 0; i < recorded.length; i++) compareResults(recorded[i], now[i], tolerance, `${path}[${i}]`, out, opts);
+  } else if (recorded !== null && now !== null && typeof recorded === "object" && typeof now === "object") {
+    const keys = new Set([...Object.keys(recorded), ...Object.keys(now)]);
+    for (const k of keys) compareResults((recorded as Record<string, unknown>)[k], (now as Record<string, unknown>)[k], tolerance, path ? `${path}.${k}` : k, out, opts);
+  } else if (recorded !== now) {
+    add(`${path}: recorded ${JSON.stringify(recorded)?.slice(0, 60)}, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
+  }
+  return out;
+}
+
+/** The fields a later psdgate adds, named once each (array indices folded), for the re-run's line. */
+function addedNote(added: string[]): string {
+  if (added.length === 0) return "";
+  const names = [...new Set(added.map((p) => p.replace(/\[\d+\]/g, "[]")))];
+  return `; not in the report, so not compared (added by a later psdgate than the report's): ${names.slice(0, 6).join(", ")}${names.length > 6 ? ` and ${names.length - 6} more` : ""}`;
+}
+
+
+/** The fields each kind of record must hold: its verdict (where it has one) and the evidence for it. */
+export const REQUIRED_FIELDS: Record<string, readonly string[]> = {
+  check: ["tool", "verdict", "input", "profile", "settings", "rule", "control", "channels"],
+  psd: ["tool", "input", "settings", "channels"],
+  derive: ["tool", "recordings", "groups", "fnHz", "fieldFatigue", "testFatigue", "fieldExtreme", "testExtreme", "fit"],
+  ride: ["tool", "input", "axes"],
+  transfer: ["tool", "input", "outputs"],
+  respond: ["tool", "source", "fnHz", "accelRms"],
+  shock: ["tool", "input", "channels"],
+  batch: ["tool", "profile", "entries", "failed"],
+};
+const VERDICTS = ["pass", "fail", "inconclusive"];
+
+/** The first required field a record lacks (or holds in a form psdgate never writes), or undefined. */
+function requiredMissing(kind: string | undefined, result: Record<string, unknown>): string | undefined {
+  const need = kind !== undefined ? REQUIRED_FIELDS[kind] : undefined;
+  if (!need) return undefined;
+  for (const k of need) if (!(k in result) || result[k] === undefined) return `"${k}"`;
+  if (kind === "check" && !VERDICTS.includes(result.verdict as string)) return "verdict psdgate gives (pass, fail or inconclusive)";
+  if ((kind === "check" || kind === "psd") && (!Array.isArray(result.channels) || result.channels.length === 0)) return "channels";
+  return undefined;
+}
+
+/** Style elements a page of each kind carries besides the frame's (report/reportPage.ts). */
+const EXTRA_STYLES: Record<string, readonly string[]> = { psd: [PEAK_HOLD_STYLE], derive: [DERIVE_STYLE], ride: [RIDE_STYLE, PEAK_HOLD_STYLE], transfer: [TRANSFER_STYLE], respond: [RESPOND_STYLE], batch: [BATCH_STYLE] };
+const BANNER_WORD: Record<string, string> = { psd: "PSD", derive: "PROFILE", ride: "RIDE", transfer: "FRF", respond: "SDOF", batch: "BATCH", shock: "SHOCK" };
+
+/**
+ * What is wrong with the page as psdgate would write it, or undefined: the page is parsed (verify/pageScan.ts),
+ * and it must hold no script, handler, fetch or style attribute, only the style elements psdgate writes, and
+ * exactly one verdict banner whose attribute, class and word all say the recorded verdict.
+ */
+function pageCheck(html: string, kind: string | undefined, verdict: string | undefined): string | undefined {
+  const page = scanPage(html);
+  const foreign = foreignContent(page, { links: kind === "batch" });
+  if (foreign) return `the page holds ${foreign}, which psdgate never writes`;
+  const extras = [...(EXTRA_STYLES[kind ?? ""] ?? [])];
+  let frame = 0;
+  for (const st of page.styles) {
+    if (isFrameStyle(st)) frame++;
+    else {
+      const i = extras.indexOf(st);
+      if (i < 0) return "the page holds a style element psdgate did not write";
+      extras.splice(i, 1);
+    }
+  }
+  if (frame !== 1) return `the page holds ${frame} frame style elements, psdgate writes one`;
+  const v = shownVerdict(html, page);
+  if (v.count !== 1) return `the page shows ${v.count} verdict banners, psdgate writes one`;
+  const want = kind === "check" || kind === "batch" ? verdict : "none";
+  const word = kind === "check" ? String(verdict).toUpperCase() : BANNER_WORD[kind ?? ""];
+  if (v.dataVerdict !== want || v.classVerdict !== want || (word !== undefined && v.word !== word)) {
+    return `the page shows verdict "${v.dataVerdict}" (class "${v.classVerdict}", word "${v.word}"), the result says "${want}"`;
+  }
+  return undefined;
+}
+
+/** Largest report `verify` reads: a record bounded as report writers bound it is a few MB; 256 MiB is far beyond. */
+export const MAX_REPORT_BYTES = 256 << 20;
+
+/** SHA-256 of an input by streaming, a regular file only (a FIFO or device is FILE_UNREADABLE at once). */
+async function sha256File(file: string, what: string, option: string | undefined): Promise<string> {
+  return (await sha256OfFile(file, what, option)).sha256;
+}
+
+/** Where an input is: the option, else beside the report, else the path recorded. */
+function locate(given: string | undefined, recorded: string, report: string): { path?: string; looked: string[] } {
+  if (given !== undefined) return pathExists(given) ? { path: given, looked: [given] } : { looked: [given] };
+  const beside = join(dirname(report), basename(recorded));
+  for (const p of [beside, recorded]) if (pathExists(p)) return { path: p, looked: [beside, recorded] };
+  return { looked: [...new Set([beside, recorded])] };
+}
+
+export async function verifyReport(report: string, options: VerifyOptions): Promise<VerifyResult> {
+  const html = (await readSmallText(report, { what: "a readable psdgate HTML report", maxBytes: MAX_REPORT_BYTES, tooLarge: "INPUT_TOO_LARGE" })).text;
+  const tol = options.tolerance ?? 1e-9;
+  const steps: VerifyStep[] = [];
+  const missing: string[] = [];
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, steps, differences: [], missing, compared: 0, ...extra });
+  const x = extractResult(html);
+  if (!x.found) {
+    // Not a record at all (any file, or a page whose result block was removed): a usage error, one line, exit 2.
+    throw new InputError("NOT_A_REPORT", { file: report, expected: "an HTML record written by psdgate, with its embedded result", received: /<html/i.test(html.slice(0, 4096)) ? "an HTML page with no psdgate result in it" : "a file that is not a psdgate record" });
+  }
+  if (x.doc === undefined) {
+    steps.push({ step: "result", ok: false, text: "the embedded result is not valid JSON (edited)" });
+    return done("differs");
+  }
+  const doc = x.doc as { kind?: RecordKind; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
+  const result = (doc.result ?? {}) as { verdict?: string; input?: { file: string; sha256: string }; profile?: { file: string; sha256: string }; tool?: { version?: string } };
+  steps.push({ step: "result", ok: x.resultIntact, text: x.resultIntact ? "embedded result intact (its SHA-256 matches)" : "embedded result edited (its SHA-256 does not match)" });
+  const pageProblem = pageCheck(html, doc.kind, doc.kind === "batch" ? batchVerdict(result as BatchDoc) : result.verdict);
+  steps.push({
+    step: "page", ok: x.pageIntact && pageProblem === undefined,
+    text: pageProblem !== undefined ? `${pageProblem} (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
+  });
+  const missingField = requiredMissing(doc.kind, result as Record<string, unknown>);
+  if (missingField !== undefined) {
+    steps.push({ step: "result", ok: false, text: `the embedded result has no ${missingField}: a record without its verdict or evidence is not one psdgate writes` });
+    return done("differs", { kind: doc.kind });
+  }
+  if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
+  if (doc.kind === "batch") return verifyBatch(report, doc.result as BatchDoc, steps);
+  if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun) return verifyRecord(report, doc as RecordDoc, steps, tol, options);
+  if (doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock" || !result.input || !doc.rerun) {
+    steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
+    return done("differs", { kind: undefined });
+  }
+  let inputsOk = true;
+  const rec = locate(options.recording, result.input.file, report);
+  if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`);
+  else {
+    const ok = (await sha256File(rec.path, "a readable recording", options.recording !== undefined ? "recording" : undefined)) === result.input.sha256;
+    inputsOk &&= ok;
+    steps.push({ step: "recording", ok, text: `${rec.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.input.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  }
+  let prof: { path?: string; looked: string[] } = { looked: [] };
+  if (doc.kind === "check") {
+    if (!result.profile) return done("differs", { kind: doc.kind });
+    prof = locate(options.profile, result.profile.file, report);
+    if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`);
+    else {
+      const ok = (await sha256File(prof.path, "a readable profile file", options.profile !== undefined ? "profile" : undefined)) === result.profile.sha256;
+      inputsOk &&= ok;
+      steps.push({ step: "profile", ok, text: `${prof.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.profile.sha256.slice(0, 12)}… (another or a changed file)`}` });
+    }
+  }
+  const intact = steps.every((s) => s.ok);
+  if (missing.length > 0) return done(intact ? "missing" : "differs", { kind: doc.kind });
+  if (!inputsOk) {
+    steps.push({ step: "rerun", ok: false, text: "not re-run: an input is not the one the report was made from" });
+    return done("differs", { kind: doc.kind });
+  }
+  const version = result.tool?.version ?? "?";
+  const meta = doc.meta ?? undefined;
+  let now: unknown;
+  if (doc.kind === "check") {
+    const profile = await loadProfile(prof.path!);
+    const r = await checkRecording(rec.path!, profile, doc.rerun as CheckOptions);
+    now = checkJson(r, version, meta);
+  } else if (doc.kind === "shock") {
+    // A shock record: the events and spectra re-run from the recorded options (two reads of the recording).
+    const { shockRecording } = await import("../analyses/shockRecording.js");
+    const { shockJson } = await import("../report/shockReport.js");
+    now = shockJson(await shockRecording(rec.path!, doc.rerun as never), version);
+  } else {
+    now = psdJson(await analyzeRecording(rec.path!, doc.rerun as AnalysisOptions), version, meta);
+  }
+  const cmp = compareResults(doc.result, now, tol, "", undefined, { olderReport: version !== options.version });
+  const again = (now as { verdict?: string }).verdict;
+  const sameVersion = version === options.version;
+  steps.push({
+    step: "rerun", ok: cmp.diffs.length === 0,
+    text: cmp.diffs.length === 0
+      ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
+      : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
+  });
+  const status: VerifyStatus = steps.every((s) => s.ok) ? "reproduced" : "differs";
+  return { status, report, kind: doc.kind, steps, differences: cmp.diffs.slice(0, 20), missing, compared: cmp.compared };
+}
+
+interface DerivationDoc {
+  kind: "derive";
+  created: string;
+  rerun: Omit<DeriveOptions, "version" | "created">;
+  /** The profile file the derivation wrote, by SHA-256 (records from before it was kept lack it). */
+  written?: { file: string; sha256: string };
+  result: { tool?: { version?: string }; recordings?: { file: string; sha256: string }[]; profile?: { provenance?: { inputs?: { file: string; sha256: string; role?: string }[] } } };
+}
+
+/**
+ * One recorded input of a record: looked for (given, beside the report, at its recorded path) and hashed by
+ * streaming; its step, or its miss, recorded. `ok` is false only for a file found with another SHA-256.
+ */
+async function hashedInput(
+  report: string,
+  i: { given?: string | undefined; file: string; sha256: string; step: VerifyStep["step"]; name: string; label?: string; hint?: string; what?: string },
+  steps: VerifyStep[],
+  missing: string[],
+): Promise<{ path?: string; ok: boolean }> {
+  const at = locate(i.given, i.file, report);
+  if (!at.path) {
+    missing.push(`${i.name} ${basename(i.file)} (looked for ${at.looked.join(", ")}${i.hint ?? ""})`);
+    return { ok: true };
+  }
+  const ok = (await sha256File(at.path, i.what ?? "a readable file", undefined)) === i.sha256;
+  steps.push({ step: i.step, ok, text: `${at.path}${i.label ? ` (${i.label})` : ""}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${i.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  return { path: at.path, ok };
+}
+
+/** A derive record: every field recording (and the mix file) by SHA-256, then the derivation re-run with its recorded settings. */
+async function verifyDerivation(report: string, doc: DerivationDoc, steps: VerifyStep[], tol: number, running: string): Promise<VerifyResult> {
+  const missing: string[] = [];
+  const recorded = doc.result.recordings ?? [];
+  const given = doc.rerun.recordings ?? [];
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, kind: "derive", steps, differences: [], missing, compared: 0, ...extra });
+  if (recorded.length !== given.length || recorded.length === 0) {
+    steps.push({ step: "result", ok: false, text: "the embedded result does not list its field recordings" });
+    return done("differs");
+  }
+  let inputsOk = true;
+  const found: string[] = [];
+  for (const [i, r] of recorded.entries()) {
+    const at = await hashedInput(report, { file: r.file, sha256: r.sha256, step: "recording", name: "recording", what: "a readable recording" }, steps, missing);
+    inputsOk &&= at.ok;
+    if (at.path) found[i] = at.path;
+  }
+  // The mix file (its hours are in the recorded settings) and the profile written, by SHA-256.
+  const mix = doc.result.profile?.provenance?.inputs?.find((i) => i.role === "mix");
+  for (const [label, f] of [["mix file", mix], ["profile written", doc.written]] as const) {
+    if (f) inputsOk &&= (await hashedInput(report, { file: f.file, sha256: f.sha256, step: "profile", name: label, label }, steps, missing)).ok;
+  }
+  const intact = steps.every((s) => s.ok);
+  if (missing.length > 0) return done(intact ? "missing" : "differs");
+  if (!inputsOk) {
+    steps.push({ step: "rerun", ok: false, text: "not re-run: an input is not the one the report was made from" });
+    return done("differs");
+  }
+  const version = doc.result.tool?.version ?? "?";
+  const { deriveProfile, strokeOf } = await import("../analyses/deriveProfile.js");
+  const { deriveJson, profileDocumentText } = await import("../report/deriveReport.js");
+  const { parseProfile } = await import("../compare/testProfile.js");
+  const r = await deriveProfile({ ...doc.rerun, recordings: given.map((g, i) => ({ ...g, file: found[i]! })), version, created: new Date(doc.created) });
+  // As `derive` does: the profile read back from the text it writes, and the stroke checked on that.
+  const outFile = doc.rerun.outFile ?? doc.written?.file ?? "derived.json";
+  const text = profileDocumentText(r.document, outFile);
+  r.profile = parseProfile(text, outFile);
+  Object.assign(r, strokeOf(r.profile, doc.rerun.strokeMm));
+  if (doc.written) {
+    const same = r.profile.sha256 === doc.written.sha256;
+    steps.push({ step: "profile", ok: same, text: same ? "the re-run writes the same profile, byte for byte (SHA-256)" : `the re-run writes a different profile (SHA-256 ${r.profile.sha256.slice(0, 12)}…, recorded ${doc.written.sha256.slice(0, 12)}…)` });
+  }
+  const cmp = compareResults(doc.result, deriveJson(r, version), tol, "", undefined, { olderReport: version !== running });
+  steps.push({
+    step: "rerun", ok: cmp.diffs.length === 0,
+    text: cmp.diffs.length === 0 ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp.added)}` : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  });
+  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
+}
+
+interface RecordDoc {
+  kind: "ride" | "transfer" | "respond";
+  created: string;
+  meta?: TestMeta | null;
+  rerun: Record<string, unknown>;
+  result: Record<string, unknown> & { tool?: { version?: string } };
+}
+
+/** One input of a record: what it is, where the record says it was, its SHA-256, and the path an option gives. */
+interface RecordInput { role: "recording" | "profile"; label: string; file: string; sha256: string; given?: string | undefined }
+
+/** The inputs a ride, transfer or respond record names (respond: its source and any --against input). */
+function recordInputs(doc: RecordDoc, options: VerifyOptions): RecordInput[] | undefined {
+  const r = doc.result as { input?: { file: string; sha256: string }; source?: { file: string; sha256: string; kind?: string }; against?: { source?: { file: string; sha256: string; kind?: string } } | null };
+  if (doc.kind === "respond") {
+    if (!r.source?.file || !r.source.sha256) return undefined;
+    const role = (k?: string) => (k === "recording" ? "recording" : "profile") as RecordInput["role"];
+    const list: RecordInput[] = [{ role: role(r.source.kind), label: "source", file: r.source.file, sha256: r.source.sha256, given: r.source.kind === "recording" ? options.recording : options.profile }];
+    const b = r.against?.source;
+    if (b?.file && b.sha256) list.push({ role: role(b.kind), label: "against", file: b.file, sha256: b.sha256 });
+    return list;
+  }
+  if (!r.input?.file || !r.input.sha256) return undefined;
+  return [{ role: "recording", label: "recording", file: r.input.file, sha256: r.input.sha256, given: options.recording }];
+}
+
+/** The result a record's rerun options give on the inputs found: the same function the command printed it with. */
+async function rerunRecord(doc: RecordDoc, paths: string[], version: string): Promise<unknown> {
+  if (doc.kind === "ride") {
+    const { rideRecording } = await import("../analyses/rideRecording.js");
+    const { rideJson } = await import("../report/rideReport.js");
+    return rideJson(await rideRecording(paths[0]!, doc.rerun as never), version);
+  }
+  if (doc.kind === "transfer") {
+    const { analyzeTransfer } = await import("../analyses/analyzeTransfer.js");
+    const { transferJson } = await import("../report/transferReport.js");
+    return transferJson(await analyzeTransfer(paths[0]!, doc.rerun as never), version);
+  }
+  const { runResponse } = await import("../analyses/responseSpectra.js");
+  const { responseJson } = await import("../report/responseReport.js");
+  const { r, against } = await runResponse(paths[0]!, doc.rerun as never, paths[1]);
+  return responseJson(r, version, against);
+}
+
+/** JSON paths that hold where an input was read, not what it held (respond names its source files). */
+const RECORD_IGNORED = /^(source\.file|against\.source\.file)$/;
+
+/** A ride, transfer or respond record: its inputs by SHA-256, then its analysis re-run with the recorded options and every number compared. */
+async function verifyRecord(report: string, doc: RecordDoc, steps: VerifyStep[], tol: number, options: VerifyOptions): Promise<VerifyResult> {
+  const missing: string[] = [];
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, kind: doc.kind, steps, differences: [], missing, compared: 0, ...extra });
+  const inputs = recordInputs(doc, options);
+  if (!inputs) {
+    steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
+    return done("differs");
+  }
+  let inputsOk = true;
+  const paths: string[] = [];
+  for (const i of inputs) {
+    const hint = i.given === undefined && i.label !== "against" ? `; give it as \`${i.role}\`` : "";
+    const at = await hashedInput(report, { given: i.given, file: i.file, sha256: i.sha256, step: i.role, name: i.label, hint }, steps, missing);
+    inputsOk &&= at.ok;
+    if (at.path) paths.push(at.path);
+  }
+  const intact = steps.every((s) => s.ok);
+  if (missing.length > 0) return done(intact ? "missing" : "differs");
+  if (!inputsOk) {
+    steps.push({ step: "rerun", ok: false, text: "not re-run: an input is not the one the report was made from" });
+    return done("differs");
+  }
+  const version = doc.result.tool?.version ?? "?";
+  const now = await rerunRecord(doc, paths, version);
+  const cmp = compareResults(strip(doc.result), strip(now as Record<string, unknown>), tol, "", undefined, { olderReport: version !== options.version });
+  steps.push({
+    step: "rerun", ok: cmp.diffs.length === 0,
+    text: cmp.diffs.length === 0
+      ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
+      : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  });
+  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
+}
+
+/** A result with the paths it was read from left out (compared by SHA-256 above instead). */
+function strip(result: Record<string, unknown>): Record<string, unknown> {
+  const copy = JSON.parse(JSON.stringify(result)) as Record<string, unknown>;
+  const drop = (o: unknown, path: string) => {
+    if (o === null || typeof o !== "object" || Array.isArray(o)) return;
+    for (const k of Object.keys(o)) {
+      const p = path ? `${path}.${k}` : k;
+      if (RECORD_IGNORED.test(p)) delete (o as Record<string, unknown>)[k];
+      else drop((o as Record<string, unknown>)[k], p);
+    }
+  };
+  drop(copy, "");
+  return copy;
+}
+
+interface BatchDoc { entries?: { file: string; report: string; reportSha256?: string; verdict?: string }[]; failed?: number }
+
+/** The verdict a batch index's banner shows: its worst (report/batchIndex.ts). */
+function batchVerdict(doc: BatchDoc): string {
+  const v = (doc.entries ?? []).map((e) => e.verdict);
+  return v.includes("fail") ? "fail" : v.includes("inconclusive") || (doc.failed ?? 0) > 0 ? "inconclusive" : "pass";
+}
+
+/** A batch index: every linked report beside it, by the SHA-256 the index recorded (each report verifies on its own). */
+async function verifyBatch(report: string, doc: BatchDoc, steps: VerifyStep[]): Promise<VerifyResult> {
+  const missing: string[] = [];
+  let ok = 0;
+  for (const e of doc.entries ?? []) {
+    const at = join(dirname(report), e.report);
+    if (!pathExists(at)) {
+      missing.push(`report ${e.report} of ${basename(e.file)} (looked for ${at})`);
+      continue;
+    }
+    const same = e.reportSha256 !== undefined && (await sha256File(at, "a readable file", undefined)) === e.reportSha256;
+    if (same) ok++;
+    else steps.push({ step: "recording", ok: false, text: `${at}: ${e.reportSha256 === undefined ? "no SHA-256 recorded for it" : "SHA-256 differs from the one the index recorded (the report was replaced or edited)"}` });
+  }
+  steps.push({ step: "recording", ok: steps.every((s) => s.ok), text: `${ok} of ${(doc.entries ?? []).length} linked reports are the ones the index lists (SHA-256); verify each report to re-run it` });
+  const intact = steps.every((s) => s.ok);
+  return { status: !intact ? "differs" : missing.length ? "missing" : "reproduced", report, kind: "batch", steps, differences: [], missing, compared: 0 };
+}
