@@ -85,6 +85,7 @@ for c in (${sp === "iso" ? "0, 1, 2" : "1, 2, 3"}): ss.welch(d[:, c], fs=25600, 
 /** The machine's load while a measurement ran: the 1-minute load average before and after it. */
 const loadNow = () => Number(readFileSync("/proc/loadavg", "utf8").split(" ")[0]);
 
+const loadAtStart = loadNow();
 const rows = [];
 const spellingRowsOut = [];
 for (const n of spellingRows) {
@@ -171,13 +172,15 @@ lines.push("");
 if (jobs1 && jobs2) lines.push(`Batch of ${batchFiles} x ${batchRows.toExponential(0)}-row CSV: --jobs 1 ${fmt(jobs1.seconds)} s, --jobs 2 ${fmt(jobs2.seconds)} s, speed-up ${fmt(jobs1.seconds / jobs2.seconds)}x (peak RSS ${fmt(jobs2.rssMb, 0)} MB)`);
 if (spellingRowsOut.length > 0) {
   lines.push("");
+  lines.push(`Machine load: 1-minute load average ${loadAtStart.toFixed(1)} at the start, ${loadNow().toFixed(1)} at the end, on ${availableParallelism()} cores (other work on the machine slows psdgate's two threads more than the one-thread Python routes).`);
+  lines.push("");
   lines.push(`CSV spellings (time + 3 channels; ${process.version}; numpy route: ${pyVersions("python3", ["numpy", "scipy"])}; pandas route: ${pyVersions(SYS_PY, ["pandas", "numpy", "scipy"])}; ${availableParallelism()} cores)`);
   lines.push("");
-  lines.push(`| rows | spelling | MB | psdgate s | numpy.loadtxt+welch s | pandas.read_csv(C)+welch s | numpy / psdgate | pandas / psdgate | psdgate MB/s | psdgate peak RSS MB | runs | load (1 min) |`);
+  lines.push(`| rows | spelling | MB | psdgate s | numpy.loadtxt+welch s | pandas.read_csv(C)+welch s | numpy / psdgate | pandas / psdgate | psdgate GB/s | psdgate peak RSS MB | runs | load (1 min) |`);
   lines.push(`|---|---|---|---|---|---|---|---|---|---|---|---|`);
   for (const r of spellingRowsOut) {
     const [o, np, pd] = [r.routes[0], r.routes.find((m) => m.label.startsWith("numpy")), r.routes.find((m) => m.label.startsWith("pandas"))];
-    lines.push(`| ${r.rows.toExponential(0)} | ${r.spelling} | ${fmt(r.bytes / 1e6, 0)} | ${fmt(o.seconds)} | ${fmt(np?.seconds)} | ${fmt(pd?.seconds)} | ${fmt(r.vsNumpy)}x | ${fmt(r.vsPandas)}x | ${fmt(r.bytes / 1e6 / o.seconds, 0)} | ${fmt(o.rssMb, 0)} | ${o.runs} | ${o.load.map((x) => x.toFixed(1)).join("–")} |`);
+    lines.push(`| ${r.rows.toExponential(0)} | ${r.spelling} | ${fmt(r.bytes / 1e6, 0)} | ${fmt(o.seconds)} | ${fmt(np?.seconds)} | ${fmt(pd?.seconds)} | ${fmt(r.vsNumpy)}x | ${fmt(r.vsPandas)}x | ${fmt(r.bytes / 1e9 / o.seconds, 3)} | ${fmt(o.rssMb, 0)} | ${o.runs} | ${o.load.map((x) => x.toFixed(1)).join("–")} |`);
   }
 }
 const text = lines.join("\n");

@@ -1,3 +1,4 @@
+import { createHash } from "node:crypto";
 import { existsSync } from "node:fs";
 import { open, stat } from "node:fs/promises";
 import { availableParallelism } from "node:os";
@@ -517,14 +518,32 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
   const worker = bodyWorker.thread;
   worker.ref();
   worker.postMessage({ job });
+  // The worker reads into shared buffers; when its parse is the longer job, this thread hashes their new
+  // bytes (csvParseWorker.ts), and the worker's summary comes without a SHA-256.
+  const hash = createHash("sha256");
+  let shared: Uint8Array[] = [];
+  let busy: Int32Array<ArrayBufferLike> = new Int32Array(0);
   try {
     const summary = await new Promise<ReadSummary>((resolve, reject) => {
       void bodyWorker.ended.then(reject);
       worker.on("message", (m: WorkerReply) => {
-        if ("piece" in m) {
+        if ("buffers" in m) {
+          shared = m.buffers.map((b) => new Uint8Array(b));
+          busy = new Int32Array(m.busy);
+          return;
+        }
+        if ("hash" in m) {
+          if (m.head) hash.update(m.head);
+          const r = m.hash;
+          for (let k = 0; k < r.length; k += 3) {
+            hash.update(shared[r[k]!]!.subarray(r[k + 1], r[k + 2]));
+            Atomics.store(busy, r[k]!, 0);
+            Atomics.notify(busy, r[k]!);
+          }
+          if (m.piece === undefined) return;
           try {
             if (m.piece.rows > 0) sink(m.piece.channels, m.piece.rows);
-            onProgress?.(m.bytes);
+            onProgress?.(m.bytes!);
           } catch (e) {
             reject(e);
             return;
@@ -532,7 +551,7 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
           // The sink has consumed the columns: their memory goes back to the worker.
           const bufs = pieceBuffers(m.piece);
           worker.postMessage({ recycle: bufs }, bufs);
-        } else if ("done" in m) resolve(m.done);
+        } else if ("done" in m) resolve(m.done.sha256 !== "" ? m.done : { ...m.done, sha256: hash.digest("hex") });
         else reject(errorFromWire(m.error));
       });
     });
@@ -547,6 +566,11 @@ async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: n
 }
 
 type WorkerReply =
-  | { piece: CsvPiece; bytes: number }
+  | { buffers: SharedArrayBuffer[]; busy: SharedArrayBuffer }
+  /**
+   * Ranges of new bytes in the shared buffers (buffer, start, end, ...) to hash first, with the bytes
+   * before the body ahead of them in the first message; then a piece's columns, when there is one.
+   */
+  | { hash: number[]; head?: Uint8Array; piece?: CsvPiece; bytes?: number }
   | { done: ReadSummary }
   | { error: WireError };

@@ -1,7 +1,7 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import { CsvBodyParser, type CsvBodySpec, type CsvPiece } from "../../src/read/csvBody.js";
-import { daysFromCivil, parseDateTimeText } from "../../src/read/dateTimeStamp.js";
+import { civilFromDays, daysFromCivil, parseDateTimeText } from "../../src/read/dateTimeStamp.js";
 
 /**
  * Property: every CSV spelling a logger or script writes is read to the same double as the reference,
@@ -141,6 +141,49 @@ describe("CSV spellings: every value is the reference double, on either path and
       );
     });
   }
+
+  it("ISO stamps of a running clock (many rows share their date and minute): the value from the stamp's own fields, bit for bit", () => {
+    // scanDateTime keeps the last `YYYY-MM-DDThh:mm` prefix and reuses it; this holds every stamp to a reference
+    // computed here from the text's fields alone (same formula, no cache), across minute, hour, day and month
+    // boundaries, and checks that a bad seconds field after a reused prefix still sends the row to the general
+    // parser, which names it.
+    const toText = (us: number, frac: number, sep: string, zone: string) => {
+      const sec = Math.floor(us / 1e6);
+      const day = Math.floor(sec / 86400);
+      const [y, mo, d] = civilFromDays(day);
+      const sod = sec - day * 86400;
+      const f = frac > 0 ? "." + pad(us % 1e6, 6).slice(0, frac) : "";
+      return `${y}-${pad(mo, 2)}-${pad(d, 2)}${sep}${pad(Math.floor(sod / 3600), 2)}:${pad(Math.floor(sod / 60) % 60, 2)}:${pad(sod % 60, 2)}${f}${zone}`;
+    };
+    const reference = (t: string, base: number) => {
+      const m = /^(\d{4})-(\d\d)-(\d\d)[T ](\d\d):(\d\d):(\d\d)(?:\.(\d+))?(Z|[+-]\d\d:\d\d)?$/.exec(t)!;
+      const off = m[8] && m[8] !== "Z" ? (m[8][0] === "+" ? 1 : -1) * (Number(m[8].slice(1, 3)) * 3600 + Number(m[8].slice(4, 6)) * 60) : 0;
+      const whole = (daysFromCivil(Number(m[1]), Number(m[2]), Number(m[3])) - base) * 86400 + Number(m[4]) * 3600 + Number(m[5]) * 60 + Number(m[6]) - off;
+      return m[7] ? whole + Number(m[7]) / 10 ** m[7].length : whole;
+    };
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 0, max: 4e9 }),
+        // Steps of up to 40 s (most rows share a minute), whole hours and days (the minute stays, the rest moves), or up to 27 h.
+        fc.oneof(fc.integer({ min: 1, max: 4e7 }), fc.integer({ min: 1, max: 48 }).map((h) => h * 3.6e9), fc.integer({ min: 1, max: 1e11 })), fc.integer({ min: 0, max: 6 }), fc.constantFrom("T", " "), fc.constantFrom("", "Z", "+02:00"),
+        fc.array(fc.nat(), { maxLength: 3 }),
+        (startS, stepUs, frac, sep, zone, cuts) => {
+          const t0 = (1.7e9 + startS) * 1e6 - 3e7; // about 30 s before a minute boundary of some day from 2023 on
+          const stamps = Array.from({ length: 40 }, (_, i) => toText(t0 + i * stepUs, frac, sep, zone));
+          const base = daysFromCivil(Number(stamps[0]!.slice(0, 4)), Number(stamps[0]!.slice(5, 7)), Number(stamps[0]!.slice(8, 10)));
+          const spec: CsvBodySpec = { file: "p.csv", columns: 3, columnNames: ["t", "a", "b"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1, 2], timeDateTime: { baseDays: base } };
+          const plain = parseInPieces(spec, stamps.map((t, i) => `${t},${i},-${i}.5\n`).join(""), cuts);
+          expect(plain.rows).toBe(stamps.length);
+          expect(same(plain.cols[0]!, stamps.map((t) => reference(t, base))), "stamps").toBe(true);
+          // The same prefix as the row before, then seconds 60: an error on its line, after the prefix was reused.
+          const bad = stamps[1]!.slice(0, 17) + "60" + stamps[1]!.slice(19);
+          const text = `${stamps[0]},1,2\n${stamps[1]},1,2\n${bad},1,2\n`;
+          expect(() => new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 2)).toThrow(/CSV_TIME_FORMAT/);
+        },
+      ),
+      { numRuns: 200, seed: 20261202 },
+    );
+  });
 
   it("a stamp whose zone form differs from the rows before is an error on the plain path too", () => {
     const spec: CsvBodySpec = { file: "p.csv", columns: 2, columnNames: ["t", "a"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1], timeDateTime: { baseDays: daysFromCivil(2026, 3, 9) } };

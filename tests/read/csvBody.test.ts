@@ -6,6 +6,7 @@ import { spawnSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { CsvBodyParser, type CsvBodySpec } from "../../src/read/csvBody.js";
+import { HASH_ON_READER_BYTES_PER_VALUE } from "../../src/read/csvBodyPass.js";
 import { seeded, tempDir } from "../helpers.js";
 
 const spec: CsvBodySpec = { file: "body.csv", columns: 3, columnNames: ["t", "a", "b"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1, 2] };
@@ -120,6 +121,65 @@ describe("CSV read on the parse worker (built code)", () => {
       expect(inWorker.cols).toEqual(here.cols);
     });
   }
+  for (const [name, spell, wide] of [["integer counts", (x: number) => String(Math.round(x * 1000)), false], ["%.17e", (x: number) => x.toExponential(17), true]] as const) {
+    it(`the SHA-256 on either thread (${name}: ${wide ? "many" : "few"} bytes a value, so the ${wide ? "reader" : "worker"} hashes)`, async () => {
+      // csvParseWorker.ts hashes on the reader's thread when the first piece has more than
+      // HASH_ON_READER_BYTES_PER_VALUE file bytes a selected value, else on the worker: both give the file's hash.
+      const u = seeded(11);
+      const rows = Array.from({ length: 80000 }, (_, i) => `${i},${spell(u() - 0.5)},${spell(u() - 0.5)}`);
+      const text = "# rig 2\nt [ms],a,b\n" + rows.join("\n") + "\n";
+      const file = join(dir, `hash-${wide ? "wide" : "narrow"}.csv`);
+      writeFileSync(file, text);
+      const perValue = Buffer.byteLength(text) / (rows.length * 2);
+      expect(wide ? perValue > HASH_ON_READER_BYTES_PER_VALUE : perValue < HASH_ON_READER_BYTES_PER_VALUE).toBe(true);
+      const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+      const read = async (parseWorkers: number) => {
+        const src = await openCsvTimeHistory(file, { parseWorkers });
+        const cols: number[][] = [[], []];
+        const s = await src.read([0, 1], (ch, n) => ch.forEach((c, i) => cols[i]!.push(...c.subarray(0, n))));
+        return { s, cols };
+      };
+      const [w, h] = [await read(1), await read(0)];
+      expect(w.s.sha256).toBe(createHash("sha256").update(readFileSync(file)).digest("hex"));
+      expect(h.s.sha256).toBe(w.s.sha256);
+      expect(w.cols).toEqual(h.cols);
+    });
+  }
+  it("a comment line of nearly 1 MB, a bad cell far in, a line too long: the worker's hash, columns and messages are this thread's", async () => {
+    // The reader hashes the worker's shared read buffers (csvParseWorker.ts), which come round many times here; a
+    // read that ends no line (the line too long) makes no piece, and its bytes wait in the worker.
+    const body = mixedBody(60000, 3);
+    const lines = body.text.split("\n");
+    lines.splice(20000, 0, "# " + "x".repeat(1_040_000));
+    const file = join(dir, "long-comment.csv");
+    writeFileSync(file, "t,a,b\n" + lines.join("\n"));
+    const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+    const read = async (parseWorkers: number) => {
+      const src = await openCsvTimeHistory(file, { parseWorkers });
+      const cols: number[][] = [[], []];
+      const s = await src.read([0, 1], (ch, n) => ch.forEach((c, i) => cols[i]!.push(...c.subarray(0, n))));
+      return { s, cols };
+    };
+    const inWorker = await read(1);
+    const here = await read(0);
+    expect(inWorker.s.sha256).toBe(createHash("sha256").update(readFileSync(file)).digest("hex"));
+    expect(here.s.sha256).toBe(inWorker.s.sha256);
+    expect(inWorker.cols).toEqual(here.cols);
+    lines[50000] = "x,1,2";
+    writeFileSync(file, "t,a,b\n" + lines.join("\n"));
+    const message = async (parseWorkers: number) => {
+      const src = await openCsvTimeHistory(file, { parseWorkers });
+      return src.read([0, 1], () => undefined).then(() => "read", (e: Error) => e.message);
+    };
+    const [w, h] = [await message(1), await message(0)];
+    expect(w).toMatch(/long-comment\.csv:50002:1 .*CSV_NOT_A_NUMBER/);
+    expect(w).toBe(h);
+    lines[50000] = "# " + "y".repeat(1_100_000);
+    writeFileSync(file, "t,a,b\n" + lines.join("\n"));
+    const [w2, h2] = [await message(1), await message(0)];
+    expect(w2).toMatch(/long-comment\.csv:50002.*CSV_LINE_TOO_LONG/);
+    expect(w2).toBe(h2);
+  });
   it("a source that is opened but never read does not keep the process alive (its worker waits unref'd)", () => {
     const file = join(dir, "never-read.csv");
     writeFileSync(file, "t [s],a\n0,1\n0.5,2\n1,3\n");
