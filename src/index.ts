@@ -22,7 +22,10 @@ export { SampleHoldAccumulator, type SampleHold } from "./estimate/statistics/sa
 export { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/statistics/amplitudeHistogram.js";
 export { parsevalCheck, parsevalTolerance, studentTQuantile, type ParsevalCheck } from "./estimate/spectral/parsevalCheck.js";
 export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfile, type ProfileSegment, type ToleranceBand } from "./compare/testProfile.js";
-export { judgeSpectrum, withDoubts, withGate, overallVerdict, bandAt, longerRecordFactor, powerRequirement, secondsForDof, type Verdict, type ChannelCompliance, type Excursion, type LineDeviation, type SpectrumUnderTest, type DecideEstimate, type Finding } from "./compare/complianceCheck.js";
+export { bandAt } from "./compare/judgedGrid.js";
+export { longerRecordFactor, secondsForDof } from "./compare/runLength.js";
+export { powerRequirement } from "./compare/passPower.js";
+export { judgeSpectrum, withDoubts, withGate, overallVerdict, type Verdict, type ChannelCompliance, type Excursion, type LineDeviation, type SpectrumUnderTest, type DecideEstimate, type Finding } from "./compare/complianceCheck.js";
 export { DECISION_RULE, DEFAULT_POWER, ruleLevels, powerAt, dofForPower, binomialAtLeast, largestUpperFactor, largestOfMoments, largestEffectiveDof, type PowerRequirement } from "./compare/decisionRule.js";
 export { levelGate, levelSwing, LEVEL_GATE, type LevelSwing } from "./compare/levelGate.js";
 export { amplitudeGates, autocorrelationFourthSum, GATE_RATE } from "./compare/amplitudeGates.js";

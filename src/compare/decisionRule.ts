@@ -26,6 +26,11 @@ export const DECISION_RULE = {
   falseFailRate: 0.05,
   /** Its share for the lines against the tolerance band (less `outer` when the profile has outer limits). */
   lines: 0.04,
+  /**
+   * The part of the lines' share given to stretches of neighbouring lines (4, 16 and 64), when any are tested
+   * (none with an allowance): single lines get the rest, 3 % of the 4 %.
+   */
+  stretchShare: 0.25,
   /** Its share for the lines against the outer limits, when the profile has them. */
   outer: 0.005,
   /** Its share for the RMS, both directions together. */
