@@ -7,7 +7,7 @@ import { chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuant
  * - Each judged line's Welch estimate is G * chi2(nu) / nu (Bendat & Piersol, Random Data, 4th ed.,
  *   Wiley 2010, ch. 8). A line is *shown* above its upper limit U when G_hat / U exceeds the
  *   chi-square quantile chi2_{1-a}(nu) / nu, and below its lower limit L when G_hat / L falls below
- *   chi2_a(nu) / nu, at a per-test level a = alphaLines / (2 m) for m judged lines (Bonferroni 1936;
+ *   chi2_a(nu) / nu, at a per-test level a = alphaLines (less the stretches' share, `stretchShare`) / (2 m) for m judged lines (Bonferroni 1936;
  *   Miller, Simultaneous Statistical Inference, 2nd ed., Springer 1981, ch. 1). Whatever the true PSD
  *   inside the bands, the chance that any line is shown outside is then at most alphaLines.
  * - The RMS over the profile's range is shown outside its tolerance the same way, with the

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { binomialAtLeast, DECISION_RULE, dofForPower, powerAt, ruleLevels, upperFactor, lowerFactor } from "../../src/compare/decisionRule.js";
+import { lineTestLevels } from "../../src/compare/lineTests.js";
 import { chiSquareUpperQuantile } from "../../src/estimate/statistics/chiSquare.js";
 
 describe("binomialAtLeast", () => {
@@ -14,8 +15,16 @@ describe("binomialAtLeast", () => {
 });
 
 describe("ruleLevels", () => {
-  it("splits the 5 % family-wise rate: lines 4 % over 2 m tests, RMS 1 % over two directions; outer limits take their 0.5 % from the lines", () => {
+  const pct = (x: number) => `${Number((100 * x).toPrecision(3))} %`;
+  const R = DECISION_RULE;
+  it(`splits the ${pct(R.falseFailRate)} family-wise rate: lines ${pct(R.lines)} (single lines ${pct(R.lines * (1 - R.stretchShare))} over 2 m tests, stretches ${pct(R.lines * R.stretchShare)}), RMS ${pct(R.rms)} over two directions; outer limits take their ${pct(R.outer)} from the lines`, () => {
     const l = ruleLevels(789, false);
+    const t = lineTestLevels(789, 0, false, 1, 0, 1);
+    expect(t.widths).toEqual([4, 16, 64]);
+    expect(t.upLevel * 2 * 789).toBeCloseTo(R.lines * (1 - R.stretchShare), 15);
+    expect(t.loLevel * 2 * 789).toBeCloseTo(R.lines * (1 - R.stretchShare), 15);
+    // With an allowance no stretches are tested: the single lines get the whole share.
+    expect(lineTestLevels(789, 3, false, 1, 0, 1).upLevel * 2 * 789).toBeCloseTo(R.lines, 15);
     expect(l.upper.lineTest * 2 * 789).toBeCloseTo(DECISION_RULE.lines, 15);
     expect(l.upper.rmsTest * 2).toBeCloseTo(DECISION_RULE.rms, 15);
     const o = ruleLevels(789, true);
