@@ -1,4 +1,4 @@
-import { chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile } from "../estimate/statistics/chiSquare.js";
+import { binomialAtLeast, chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile } from "../estimate/statistics/distributions.js";
 
 /**
  * psdgate's decision rule: when a measured PSD shows a profile is not met, and when the evidence is
@@ -171,33 +171,6 @@ export function chanceAbove(dof: number, ratio: number, factor: number): number 
 /** P(chi2(nu)/nu * ratio < factor). */
 export function chanceBelow(dof: number, ratio: number, factor: number): number {
   return chiSquareCdf((dof * factor) / ratio, dof);
-}
-
-/** P(X >= r) for X ~ Binomial(n, p), by summing the terms (n is at most a few thousand here). */
-export function binomialAtLeast(r: number, n: number, p: number): number {
-  if (r <= 0) return 1;
-  if (r > n) return 0;
-  if (p <= 0) return 0;
-  if (p >= 1) return 1;
-  let term = Math.pow(1 - p, n);
-  let below = 0;
-  if (term > 0) {
-    for (let i = 0; i < r; i++) {
-      below += term;
-      term *= ((n - i) / (i + 1)) * (p / (1 - p));
-    }
-    return Math.max(0, Math.min(1, 1 - below));
-  }
-  // (1 - p)^n underflowed: work in logs from the mode outwards.
-  const lnP = Math.log(p);
-  const ln1p = Math.log1p(-p);
-  let lnC = 0;
-  let sum = 0;
-  for (let i = 0; i <= n; i++) {
-    if (i > 0) lnC += Math.log((n - i + 1) / i);
-    if (i >= r) sum += Math.exp(lnC + i * lnP + (n - i) * ln1p);
-  }
-  return Math.min(1, sum);
 }
 
 export interface PowerInputs {

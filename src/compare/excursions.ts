@@ -1,4 +1,4 @@
-import { chiSquareCdf, chiSquareIntervalFactors, chiSquareSurvival } from "../estimate/statistics/chiSquare.js";
+import { chiSquareCdf, chiSquareIntervalFactors, chiSquareSurvival } from "../estimate/statistics/distributions.js";
 import type { Excursion, LineDeviation } from "./complianceTypes.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { LineTestLevels } from "./lineTests.js";

@@ -1,4 +1,4 @@
-import { chiSquareCdf, chiSquareSurvival } from "../estimate/statistics/chiSquare.js";
+import { chiSquareCdf, chiSquareSurvival } from "../estimate/statistics/distributions.js";
 import type { LineDeviation } from "./complianceTypes.js";
 import { DECISION_RULE, largestUpperFactor, lowerFactor, ruleLevels, upperFactor } from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";

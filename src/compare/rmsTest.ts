@@ -1,4 +1,4 @@
-import { chiSquareCdf, chiSquareSurvival } from "../estimate/statistics/chiSquare.js";
+import { chiSquareCdf, chiSquareSurvival } from "../estimate/statistics/distributions.js";
 import { bandMeanSquare } from "../estimate/spectral/psdEstimate.js";
 import type { ToneAllowance } from "./complianceTypes.js";
 import { lowerFactor, upperFactor, type RuleLevels } from "./decisionRule.js";

@@ -1,4 +1,4 @@
-import { chiSquareCdf } from "../estimate/statistics/chiSquare.js";
+import { chiSquareCdf } from "../estimate/statistics/distributions.js";
 import { departureShare, type SpectralKernel } from "../estimate/spectral/spectralKernel.js";
 import { welchDofBySegments } from "../estimate/spectral/welchDof.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";

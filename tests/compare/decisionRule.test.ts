@@ -1,18 +1,7 @@
 import { describe, expect, it } from "vitest";
-import { binomialAtLeast, DECISION_RULE, dofForPower, powerAt, ruleLevels, upperFactor, lowerFactor } from "../../src/compare/decisionRule.js";
+import { DECISION_RULE, dofForPower, powerAt, ruleLevels, upperFactor, lowerFactor } from "../../src/compare/decisionRule.js";
 import { lineTestLevels } from "../../src/compare/lineTests.js";
-import { chiSquareUpperQuantile } from "../../src/estimate/statistics/chiSquare.js";
-
-describe("binomialAtLeast", () => {
-  it("matches scipy.stats.binom.sf (scipy 1.17.1) to 1e-12", () => {
-    // binom.sf(r - 1, n, p) = P(X >= r)
-    expect(binomialAtLeast(3, 40, 0.1)).toBeCloseTo(0.7771918756605969, 12);
-    expect(binomialAtLeast(1, 20, 0.2)).toBeCloseTo(0.9884707849539315, 12);
-    expect(binomialAtLeast(10, 100, 0.05)).toBeCloseTo(0.02818829416341614, 12);
-    expect(binomialAtLeast(0, 5, 0.3)).toBe(1);
-    expect(binomialAtLeast(6, 5, 0.3)).toBe(0);
-  });
-});
+import { chiSquareUpperQuantile } from "../../src/estimate/statistics/distributions.js";
 
 describe("ruleLevels", () => {
   const pct = (x: number) => `${Number((100 * x).toPrecision(3))} %`;
