@@ -21,7 +21,8 @@ export { RunningMoments, type SampleStatistics } from "./estimate/statistics/run
 export { SampleHoldAccumulator, type SampleHold } from "./estimate/statistics/sampleHold.js";
 export { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/statistics/amplitudeHistogram.js";
 export { parsevalCheck, parsevalTolerance, type ParsevalCheck } from "./estimate/spectral/parsevalCheck.js";
-export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfile, type ProfileSegment, type ToleranceBand } from "./compare/testProfile.js";
+export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfile, type ProfileSegment } from "./compare/testProfile.js";
+export { readProfileSpec, type ProfileSpec, type ToleranceBand } from "./read/profileFile.js";
 export { bandAt } from "./compare/judgedGrid.js";
 export { longerRecordFactor, secondsForDof } from "./compare/runLength.js";
 export { powerRequirement } from "./compare/passPower.js";
@@ -86,4 +87,4 @@ export { fitDamageProfile, upperEnvelope, brokenLineLevel, type Breakpoint, type
 export { deriveJson, deriveText, profileDocumentText } from "./report/deriveReport.js";
 export { deriveHtml } from "./report/deriveHtml.js";
 export { provenanceSummary } from "./report/profileText.js";
-export type { ProfileProvenance, ProfileTone } from "./compare/testProfile.js";
+export type { ProfileProvenance, ProfileTone } from "./read/profileFile.js";
