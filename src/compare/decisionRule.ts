@@ -50,7 +50,7 @@ export const DECISION_RULE = {
  * What a pass must have been able to see: a departure `departureDb` beyond the band over `departureShare`
  * of the judged lines, in runs at least `widthLines` wide, or an RMS `rmsBeyondDb` outside its tolerance,
  * each failing with probability at least `probability`. psdgate's default is DEFAULT_POWER; a profile may
- * state its own (testProfile.ts `power`), or none.
+ * state its own (read/profileFile.ts `power`), or none.
  */
 export interface PowerRequirement {
   departureDb: number;
