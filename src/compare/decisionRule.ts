@@ -153,6 +153,14 @@ export function largestEffectiveDof(dof: number, k: number): number {
   return (2 * m.mean * m.mean) / m.variance;
 }
 
+/**
+ * The chance that the largest of k channels shows what one channel shows with chance p: 1 - (1 - p)^k, in
+ * logs (exact for independent channels, a bound for channels of one test: largestUpperFactor). p itself for k = 1.
+ */
+export function largestChance(p: number, k: number): number {
+  return k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(p, 1 - 1e-16))) : p;
+}
+
 /** G_hat / limit above this factor shows the line above its limit: chi2 upper quantile / nu. */
 export function upperFactor(dof: number, level: number): number {
   return chiSquareUpperQuantile(level, dof) / dof;
@@ -237,7 +245,7 @@ export function powerAt(dof: number, p: PowerInputs, req: PowerRequirement = DEF
   // shows a line above its threshold unless all k stay below it, 1 - (1 - P1)^k.
   const single = p.singleLineShare ?? 1;
   const one = chanceAbove(dof, seenUp, largestUpperFactor(dof, lv.upper.lineTest * single, k));
-  const up = k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(one, 1 - 1e-16))) : one;
+  const up = largestChance(one, k);
   const down = chanceBelow(dof, seenDown, lowerFactor(dof, lv.lower.lineTest * single));
   const linesAbove = binomialAtLeast(need, looks, up);
   const linesBelow = binomialAtLeast(need, looks, down);

@@ -1,5 +1,6 @@
 import { chiSquareCdf, chiSquareIntervalFactors, chiSquareSurvival } from "../estimate/statistics/distributions.js";
 import type { Excursion, LineDeviation } from "./complianceTypes.js";
+import { largestChance } from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { LineTestLevels } from "./lineTests.js";
 import { DECIDE_PROBABILITY, longerRecordFactor } from "./runLength.js";
@@ -56,7 +57,7 @@ function excursion(js: JudgedSpectrum, lines: LineDeviation[], i: number, j: num
   const v = js.nuAt(idx[worst]!);
   const pOne = v > 0 ? (above ? chiSquareSurvival(v * ratio, v) : chiSquareCdf(v * ratio, v)) : 1;
   // With the largest of k, the chance that any of k at the limit reaches this: 1 - (1 - p)^k.
-  const p = above && k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(pOne, 1 - 1e-16))) : pOne;
+  const p = largestChance(pOne, above ? k : 1);
   // The worst line's true level taken as measured, read again through the kernel as a new run would (for the
   // largest of k: over its mean at the limit, per channel); undefined when that reading is inside the limit.
   const again = c.reread(idx[worst]!) / limit;

@@ -1,6 +1,6 @@
 import { chiSquareCdf, chiSquareSurvival } from "../estimate/statistics/distributions.js";
 import type { LineDeviation } from "./complianceTypes.js";
-import { DECISION_RULE, largestUpperFactor, lowerFactor, ruleLevels, upperFactor } from "./decisionRule.js";
+import { DECISION_RULE, largestChance, largestUpperFactor, lowerFactor, ruleLevels, upperFactor } from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 
 /**
@@ -138,7 +138,7 @@ export function linesFalseFailAtProfile(js: JudgedSpectrum, t: LineTestLevels): 
     const v = js.nuAt(idx[j]!);
     const f = t.factors(v);
     const qUp = chiSquareSurvival((v * f.up * limitsUp[j]!) / req[j]!, v);
-    atProfile += (k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(qUp, 1 - 1e-16))) : qUp) + chiSquareCdf((v * f.lo * limitsLo[j]!) / req[j]!, v);
+    atProfile += largestChance(qUp, k) + chiSquareCdf((v * f.lo * limitsLo[j]!) / req[j]!, v);
   }
   return atProfile;
 }

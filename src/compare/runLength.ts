@@ -4,7 +4,7 @@ import { welchDofBySegments } from "../estimate/spectral/welchDof.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import type { Finding } from "../findings.js";
 import type { DecideEstimate, SpectrumUnderTest } from "./complianceTypes.js";
-import { chanceAbove, chanceBelow, largestUpperFactor, lowerFactor, upperFactor } from "./decisionRule.js";
+import { chanceAbove, chanceBelow, largestChance, largestUpperFactor, lowerFactor, upperFactor } from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { LineTestLevels } from "./lineTests.js";
 import { pct, percent } from "./percentWords.js";
@@ -64,7 +64,7 @@ export function longerRecordFactor(ratio: number, dof: number, level: number, pr
   const chance = (nu: number) => {
     if (ratio > 1) {
       const one = chanceAbove(nu, ratio, largestUpperFactor(nu, level, k));
-      return k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(one, 1 - 1e-16))) : one;
+      return largestChance(one, k);
     }
     return chanceBelow(nu, ratio, lowerFactor(nu, level));
   };
@@ -153,7 +153,7 @@ function decideChance(js: JudgedSpectrum, d: DecideInputs): (v: number) => { dec
       let pj: number;
       if (expectUp[j]! > 1) {
         const one = chanceAbove(vj, expectUp[j]!, f.up);
-        pj = k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(one, 1 - 1e-16))) : one;
+        pj = largestChance(one, k);
       } else pj = chanceBelow(vj, expectLo[j]!, f.lo);
       lnNone += Math.log1p(-Math.min(pj, 1 - 1e-16)) / inflation;
     }
