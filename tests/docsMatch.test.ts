@@ -1,6 +1,8 @@
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
+import { DECISION_RULE } from "../src/compare/decisionRule.js";
+import { RULE_LEVELS, RULE_SUMMARY, SINGLE_LINES_SHARE } from "../src/report/ruleText.js";
 import { cli, tempDir } from "./helpers.js";
 
 /** The docs state what the commands print (issue #20): the samples' verdicts and README's verify example. */
@@ -29,5 +31,39 @@ describe("docs match what the commands print", () => {
     await cli("check", "samples/kb210-run-resonance.wav", "--profile", "samples/profiles/kb210-controller.json", "--meta", "samples/kb210-run-meta.yaml", "--report", report);
     const v = await cli("verify", report);
     expect(v.stdout).toContain(`ok    rerun     ${stated} numbers and the verdict FAIL reproduced`);
+  });
+});
+
+/** The decision rule's levels are worded from DECISION_RULE (report/ruleText.ts); the docs state the same levels. */
+describe("the rule's wording matches DECISION_RULE", () => {
+  const pct = (x: number) => `${Number((100 * x).toPrecision(3))} %`;
+  const flat = (t: string) => t.replace(/\s+/g, " ");
+
+  it(`the levels sentence states the true split: single lines ${pct(SINGLE_LINES_SHARE)}, stretches ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)}, RMS ${pct(DECISION_RULE.rms)}`, () => {
+    expect(SINGLE_LINES_SHARE).toBeCloseTo(DECISION_RULE.lines * (1 - DECISION_RULE.stretchShare), 15);
+    expect(RULE_LEVELS).toContain(`the single-line tests get ${pct(SINGLE_LINES_SHARE)} and the stretches ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)}`);
+    expect(RULE_LEVELS).toContain(`the RMS ${pct(DECISION_RULE.rms)}`);
+    expect(RULE_LEVELS).toContain(`take ${pct(DECISION_RULE.outer)} and sine tones ${pct(DECISION_RULE.tones)} from the lines' ${pct(DECISION_RULE.lines)}`);
+    expect(RULE_SUMMARY).toContain(RULE_LEVELS);
+  });
+
+  it("README states the rule summary check prints and the levels sentence, and its per-test level is the single lines' share", () => {
+    const readme = readFileSync("README.md", "utf8");
+    expect(readme).toContain(`RULE: ${RULE_SUMMARY}\n`);
+    expect(readme.split(RULE_LEVELS).length - 1).toBe(2);
+    expect(readme).toContain(`each single-line test is at ${pct(SINGLE_LINES_SHARE)} divided by twice the number of lines (Bonferroni)`);
+    expect(readme).toContain(`the stretches sharing ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)}`);
+  });
+
+  it("DEVELOPERS.md's list of the tests states the same levels", () => {
+    const dev = flat(readFileSync("DEVELOPERS.md", "utf8"));
+    expect(dev).toContain(`- ${pct(SINGLE_LINES_SHARE)} over the 2m single-line tests (a = ${Number(SINGLE_LINES_SHARE.toPrecision(3))} / 2m;`);
+    expect(dev).toContain(`- ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)} over stretches of 4, 16 and 64 neighbouring lines`);
+    expect(dev).toContain(`- ${pct(DECISION_RULE.rms)} for the RMS over the range`);
+    expect(dev).toContain(`- ${pct(DECISION_RULE.outer)} (taken from the lines' share) for outer limits`);
+  });
+
+  it("check --help states the levels", async () => {
+    expect(flat((await cli("check", "--help")).stdout)).toContain(RULE_LEVELS);
   });
 });

@@ -1,4 +1,4 @@
-import { chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile } from "../estimate/statistics/chiSquare.js";
+import { binomialAtLeast, chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile } from "../estimate/statistics/distributions.js";
 
 /**
  * psdgate's decision rule: when a measured PSD shows a profile is not met, and when the evidence is
@@ -7,7 +7,7 @@ import { chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuant
  * - Each judged line's Welch estimate is G * chi2(nu) / nu (Bendat & Piersol, Random Data, 4th ed.,
  *   Wiley 2010, ch. 8). A line is *shown* above its upper limit U when G_hat / U exceeds the
  *   chi-square quantile chi2_{1-a}(nu) / nu, and below its lower limit L when G_hat / L falls below
- *   chi2_a(nu) / nu, at a per-test level a = alphaLines / (2 m) for m judged lines (Bonferroni 1936;
+ *   chi2_a(nu) / nu, at a per-test level a = alphaLines (less the stretches' share, `stretchShare`) / (2 m) for m judged lines (Bonferroni 1936;
  *   Miller, Simultaneous Statistical Inference, 2nd ed., Springer 1981, ch. 1). Whatever the true PSD
  *   inside the bands, the chance that any line is shown outside is then at most alphaLines.
  * - The RMS over the profile's range is shown outside its tolerance the same way, with the
@@ -26,6 +26,11 @@ export const DECISION_RULE = {
   falseFailRate: 0.05,
   /** Its share for the lines against the tolerance band (less `outer` when the profile has outer limits). */
   lines: 0.04,
+  /**
+   * The part of the lines' share given to stretches of neighbouring lines (4, 16 and 64), when any are tested
+   * (none with an allowance): single lines get the rest, 3 % of the 4 %.
+   */
+  stretchShare: 0.25,
   /** Its share for the lines against the outer limits, when the profile has them. */
   outer: 0.005,
   /** Its share for the RMS, both directions together. */
@@ -45,7 +50,7 @@ export const DECISION_RULE = {
  * What a pass must have been able to see: a departure `departureDb` beyond the band over `departureShare`
  * of the judged lines, in runs at least `widthLines` wide, or an RMS `rmsBeyondDb` outside its tolerance,
  * each failing with probability at least `probability`. psdgate's default is DEFAULT_POWER; a profile may
- * state its own (testProfile.ts `power`), or none.
+ * state its own (read/profileFile.ts `power`), or none.
  */
 export interface PowerRequirement {
   departureDb: number;
@@ -148,6 +153,14 @@ export function largestEffectiveDof(dof: number, k: number): number {
   return (2 * m.mean * m.mean) / m.variance;
 }
 
+/**
+ * The chance that the largest of k channels shows what one channel shows with chance p: 1 - (1 - p)^k, in
+ * logs (exact for independent channels, a bound for channels of one test: largestUpperFactor). p itself for k = 1.
+ */
+export function largestChance(p: number, k: number): number {
+  return k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(p, 1 - 1e-16))) : p;
+}
+
 /** G_hat / limit above this factor shows the line above its limit: chi2 upper quantile / nu. */
 export function upperFactor(dof: number, level: number): number {
   return chiSquareUpperQuantile(level, dof) / dof;
@@ -166,33 +179,6 @@ export function chanceAbove(dof: number, ratio: number, factor: number): number 
 /** P(chi2(nu)/nu * ratio < factor). */
 export function chanceBelow(dof: number, ratio: number, factor: number): number {
   return chiSquareCdf((dof * factor) / ratio, dof);
-}
-
-/** P(X >= r) for X ~ Binomial(n, p), by summing the terms (n is at most a few thousand here). */
-export function binomialAtLeast(r: number, n: number, p: number): number {
-  if (r <= 0) return 1;
-  if (r > n) return 0;
-  if (p <= 0) return 0;
-  if (p >= 1) return 1;
-  let term = Math.pow(1 - p, n);
-  let below = 0;
-  if (term > 0) {
-    for (let i = 0; i < r; i++) {
-      below += term;
-      term *= ((n - i) / (i + 1)) * (p / (1 - p));
-    }
-    return Math.max(0, Math.min(1, 1 - below));
-  }
-  // (1 - p)^n underflowed: work in logs from the mode outwards.
-  const lnP = Math.log(p);
-  const ln1p = Math.log1p(-p);
-  let lnC = 0;
-  let sum = 0;
-  for (let i = 0; i <= n; i++) {
-    if (i > 0) lnC += Math.log((n - i + 1) / i);
-    if (i >= r) sum += Math.exp(lnC + i * lnP + (n - i) * ln1p);
-  }
-  return Math.min(1, sum);
 }
 
 export interface PowerInputs {
@@ -259,7 +245,7 @@ export function powerAt(dof: number, p: PowerInputs, req: PowerRequirement = DEF
   // shows a line above its threshold unless all k stay below it, 1 - (1 - P1)^k.
   const single = p.singleLineShare ?? 1;
   const one = chanceAbove(dof, seenUp, largestUpperFactor(dof, lv.upper.lineTest * single, k));
-  const up = k > 1 ? -Math.expm1(k * Math.log1p(-Math.min(one, 1 - 1e-16))) : one;
+  const up = largestChance(one, k);
   const down = chanceBelow(dof, seenDown, lowerFactor(dof, lv.lower.lineTest * single));
   const linesAbove = binomialAtLeast(need, looks, up);
   const linesBelow = binomialAtLeast(need, looks, down);

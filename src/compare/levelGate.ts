@@ -1,4 +1,4 @@
-import { normalQuantile } from "../estimate/statistics/chiSquare.js";
+import { normalQuantile } from "../estimate/statistics/distributions.js";
 import type { Finding } from "../findings.js";
 
 /**

@@ -1,4 +1,4 @@
-import { normalQuantile } from "../estimate/statistics/chiSquare.js";
+import { normalQuantile } from "../estimate/statistics/distributions.js";
 import { toneFrequencySd, toneLines, tonePeakSd, type ToneFit } from "../estimate/spectral/toneEstimate.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import type { Finding } from "../findings.js";

@@ -1,5 +1,5 @@
 import { stringify } from "yaml";
-import type { ProfileDocument } from "../compare/testProfile.js";
+import type { ProfileDocument } from "../read/profileFile.js";
 import type { DeriveResult } from "../analyses/deriveProfile.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";

@@ -1,5 +1,5 @@
 import type { ChannelAnalysis, RecordingAnalysis } from "../pass/analyzeRecording.js";
-import { chiSquareIntervalFactors } from "../estimate/statistics/chiSquare.js";
+import { chiSquareIntervalFactors } from "../estimate/statistics/distributions.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { embedResult } from "./embeddedResult.js";
 import { dB, fixed, sig } from "./format.js";

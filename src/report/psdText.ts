@@ -1,6 +1,6 @@
 import type { ChannelAnalysis, RecordingAnalysis } from "../pass/analyzeRecording.js";
 import type { ChannelReading } from "../condition/scaleSamples.js";
-import { chiSquareIntervalFactors } from "../estimate/statistics/chiSquare.js";
+import { chiSquareIntervalFactors } from "../estimate/statistics/distributions.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { dB, fixed, rateText, sig } from "./format.js";
 import { printable } from "./printable.js";

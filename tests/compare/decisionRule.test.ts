@@ -1,21 +1,19 @@
 import { describe, expect, it } from "vitest";
-import { binomialAtLeast, DECISION_RULE, dofForPower, powerAt, ruleLevels, upperFactor, lowerFactor } from "../../src/compare/decisionRule.js";
-import { chiSquareUpperQuantile } from "../../src/estimate/statistics/chiSquare.js";
-
-describe("binomialAtLeast", () => {
-  it("matches scipy.stats.binom.sf (scipy 1.17.1) to 1e-12", () => {
-    // binom.sf(r - 1, n, p) = P(X >= r)
-    expect(binomialAtLeast(3, 40, 0.1)).toBeCloseTo(0.7771918756605969, 12);
-    expect(binomialAtLeast(1, 20, 0.2)).toBeCloseTo(0.9884707849539315, 12);
-    expect(binomialAtLeast(10, 100, 0.05)).toBeCloseTo(0.02818829416341614, 12);
-    expect(binomialAtLeast(0, 5, 0.3)).toBe(1);
-    expect(binomialAtLeast(6, 5, 0.3)).toBe(0);
-  });
-});
+import { DECISION_RULE, dofForPower, powerAt, ruleLevels, upperFactor, lowerFactor } from "../../src/compare/decisionRule.js";
+import { lineTestLevels } from "../../src/compare/lineTests.js";
+import { chiSquareUpperQuantile } from "../../src/estimate/statistics/distributions.js";
 
 describe("ruleLevels", () => {
-  it("splits the 5 % family-wise rate: lines 4 % over 2 m tests, RMS 1 % over two directions; outer limits take their 0.5 % from the lines", () => {
+  const pct = (x: number) => `${Number((100 * x).toPrecision(3))} %`;
+  const R = DECISION_RULE;
+  it(`splits the ${pct(R.falseFailRate)} family-wise rate: lines ${pct(R.lines)} (single lines ${pct(R.lines * (1 - R.stretchShare))} over 2 m tests, stretches ${pct(R.lines * R.stretchShare)}), RMS ${pct(R.rms)} over two directions; outer limits take their ${pct(R.outer)} from the lines`, () => {
     const l = ruleLevels(789, false);
+    const t = lineTestLevels(789, 0, false, 1, 0, 1);
+    expect(t.widths).toEqual([4, 16, 64]);
+    expect(t.upLevel * 2 * 789).toBeCloseTo(R.lines * (1 - R.stretchShare), 15);
+    expect(t.loLevel * 2 * 789).toBeCloseTo(R.lines * (1 - R.stretchShare), 15);
+    // With an allowance no stretches are tested: the single lines get the whole share.
+    expect(lineTestLevels(789, 3, false, 1, 0, 1).upLevel * 2 * 789).toBeCloseTo(R.lines, 15);
     expect(l.upper.lineTest * 2 * 789).toBeCloseTo(DECISION_RULE.lines, 15);
     expect(l.upper.rmsTest * 2).toBeCloseTo(DECISION_RULE.rms, 15);
     const o = ruleLevels(789, true);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { largestEffectiveDof, largestOfMoments, largestUpperFactor } from "../../src/compare/decisionRule.js";
-import { chiSquareSurvival } from "../../src/estimate/statistics/chiSquare.js";
+import { chiSquareSurvival } from "../../src/estimate/statistics/distributions.js";
 import { channels, db, dofOf, judgeControl, K208, K28, K629, lower999, nominal, SCALE, upper999 } from "./mcRecords.js";
 
 /**

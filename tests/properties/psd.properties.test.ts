@@ -2,7 +2,7 @@ import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import { lowerFactor, upperFactor } from "../../src/compare/decisionRule.js";
 import { parseProfile, profileLevel } from "../../src/compare/testProfile.js";
-import { chiSquareIntervalFactors } from "../../src/estimate/statistics/chiSquare.js";
+import { chiSquareIntervalFactors } from "../../src/estimate/statistics/distributions.js";
 import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { WINDOW_NAMES } from "../../src/estimate/spectral/windows.js";
 import { gaussian } from "../helpers.js";

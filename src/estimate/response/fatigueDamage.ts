@@ -1,4 +1,4 @@
-import { lnGamma } from "../statistics/chiSquare.js";
+import { lnGamma } from "../statistics/distributions.js";
 
 /**
  * Basquin's S-N curve N S^b = C, S the stress amplitude, with the stress taken proportional to the

@@ -1,4 +1,4 @@
-import { normalQuantile } from "../statistics/chiSquare.js";
+import { studentTQuantile } from "../statistics/distributions.js";
 import type { PsdEstimate } from "./psdEstimate.js";
 import type { WindowName } from "./windows.js";
 
@@ -41,21 +41,6 @@ const MIN_BATCHES = 8;
 
 export function parsevalTolerance(window: WindowName, averages: number): number {
   return window !== "flattop" && averages >= 16 ? 0.02 : 0.05;
-}
-
-/**
- * Student-t quantile by the Cornish-Fisher expansion in the normal quantile z (Abramowitz & Stegun,
- * Handbook of Mathematical Functions, 1964, 26.7.5), four terms; within about 1 % for nu >= 7 at the
- * tail used here (checked against scipy in the tests).
- */
-export function studentTQuantile(p: number, nu: number): number {
-  const z = normalQuantile(p);
-  const z2 = z * z;
-  const g1 = (z * (z2 + 1)) / 4;
-  const g2 = (z * ((5 * z2 + 16) * z2 + 3)) / 96;
-  const g3 = (z * (((3 * z2 + 19) * z2 + 17) * z2 - 15)) / 384;
-  const g4 = (z * ((((79 * z2 + 776) * z2 + 1482) * z2 - 1920) * z2 - 945)) / 92160;
-  return z + g1 / nu + g2 / nu ** 2 + g3 / nu ** 3 + g4 / nu ** 4;
 }
 
 export function parsevalCheck(rmsTime: number, psd: PsdEstimate, window: WindowName): ParsevalCheck {

@@ -1,4 +1,4 @@
-import { chiSquareIntervalFactors } from "../statistics/chiSquare.js";
+import { chiSquareIntervalFactors } from "../statistics/distributions.js";
 import { SegmentPower } from "./segmentPower.js";
 import { welchDof } from "./welchDof.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions, type WelchOptions } from "./welchOptions.js";

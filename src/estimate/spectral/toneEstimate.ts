@@ -1,4 +1,4 @@
-import { chiSquareUpperQuantile } from "../statistics/chiSquare.js";
+import { chiSquareUpperQuantile } from "../statistics/distributions.js";
 import { ComplexFft } from "./realFft.js";
 import { kernelDensityAt } from "./spectralKernel.js";
 

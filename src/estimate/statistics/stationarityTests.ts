@@ -1,4 +1,4 @@
-import { normalQuantile } from "./chiSquare.js";
+import { normalQuantile } from "./distributions.js";
 /**
  * Non-parametric tests of stationarity on a sequence of stretch mean squares (Bendat & Piersol,
  * Random Data, 4th ed. 2010, sec. 4.5.2 and 10.3.1). Under stationarity the values are independent
@@ -82,9 +82,6 @@ export function reverseArrangementCount(x: ArrayLike<number>): number {
   }
   return count;
 }
-
-/** The standard normal quantile: the one in chiSquare.ts (Acklam's approximation), re-exported here for the tests' API. */
-export { normalQuantile };
 
 /** Two-sided region from a discrete distribution p[v - offset]: L largest with P(<= L) <= a/2, U smallest with P(> U) <= a/2. */
 function exactRegion(p: Float64Array, offset: number, alpha: number): { low: number; high: number; rate: number } {

@@ -1,7 +1,10 @@
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
-import { chiSquareCdf, chiSquareIntervalFactors, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile, lnGamma } from "../../../src/estimate/statistics/chiSquare.js";
-import { scipyReference } from "../../helpers.js";
+import {
+  binomialAtLeast, chiSquareCdf, chiSquareIntervalFactors, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile, lnGamma, noncentralTCdf, noncentralTQuantile, normalCdf,
+  normalQuantile, normalSurvival, studentTQuantile,
+} from "../../../src/estimate/statistics/distributions.js";
+import { python, scipyReference } from "../../helpers.js";
 
 describe("chiSquareQuantile", () => {
   // NIST/SEMATECH e-Handbook of Statistical Methods, sec. 1.3.6.7.4, critical values of chi-square
@@ -71,5 +74,65 @@ describe("chi-square far tails (the range the decision rule asks for)", () => {
       expect(Math.abs(chiSquareSurvival(t.upper, t.dof) / t.q - 1)).toBeLessThan(1e-9);
       expect(Math.abs(chiSquareCdf(t.lower, t.dof) / t.q - 1)).toBeLessThan(1e-9);
     }
+  });
+});
+
+describe("the normal distribution", () => {
+  it("normalQuantile matches scipy.stats.norm.ppf to 1.2e-9 relative (Acklam's bound), both tails and the centre", () => {
+    const ps = [1e-12, 1e-7, 1e-4, 0.01, 0.02425, 0.1, 0.3, 0.5, 0.7, 0.9, 0.975, 0.99, 1 - 1e-4, 1 - 1e-7];
+    const ref = JSON.parse(python(`
+import json
+from scipy.stats import norm
+print(json.dumps([float(norm.ppf(p)) for p in ${JSON.stringify(ps)}]))`)) as number[];
+    ps.forEach((p, i) => expect(Math.abs(normalQuantile(p) - ref[i]!), `p ${p}`).toBeLessThanOrEqual(1.2e-9 * Math.max(1, Math.abs(ref[i]!))));
+  });
+  it("normalSurvival matches scipy.stats.norm.sf to 1e-13 relative out to 1e-40, and normalCdf + normalSurvival = 1", () => {
+    const xs = [-8, -3, -1, 0, 0.5, 1, 2, 3, 5, 8.5, 13];
+    const ref = JSON.parse(python(`
+import json
+from scipy.stats import norm
+print(json.dumps([float(norm.sf(x)) for x in ${JSON.stringify(xs)}]))`)) as number[];
+    xs.forEach((x, i) => {
+      expect(Math.abs(normalSurvival(x) / ref[i]! - 1), `x ${x}`).toBeLessThan(1e-13);
+      expect(normalCdf(x) + normalSurvival(x)).toBeCloseTo(1, 15);
+    });
+  });
+  it("noncentral t CDF and normal CDF match scipy (scipy.stats.nct.cdf, norm.cdf)", () => {
+    const ref = JSON.parse(python(`
+import json
+from scipy.stats import nct, norm
+print(json.dumps([nct.cdf(2, 5, 1), nct.cdf(-1, 2, 0.5), nct.cdf(8, 3, 4), norm.cdf(-2.5), norm.cdf(1.3)]))`)) as number[];
+    const got = [noncentralTCdf(2, 5, 1), noncentralTCdf(-1, 2, 0.5), noncentralTCdf(8, 3, 4), normalCdf(-2.5), normalCdf(1.3)];
+    got.forEach((g, i) => expect(Math.abs(g - ref[i]!)).toBeLessThan(1e-9));
+  });
+  it("noncentralTQuantile inverts noncentralTCdf; with no noncentrality it is Student's t (scipy.stats.t.ppf)", () => {
+    const ref = JSON.parse(python(`
+import json
+from scipy.stats import t
+print(json.dumps([float(t.ppf(0.95, 9)), float(t.ppf(0.01, 4))]))`)) as number[];
+    expect(noncentralTQuantile(0.95, 9, 0)).toBeCloseTo(ref[0]!, 8);
+    expect(noncentralTQuantile(0.01, 4, 0)).toBeCloseTo(ref[1]!, 8);
+    expect(noncentralTCdf(noncentralTQuantile(0.9, 6, 1.5), 6, 1.5)).toBeCloseTo(0.9, 10);
+  });
+});
+
+describe("studentTQuantile (Cornish-Fisher, for the Parseval tolerance)", () => {
+  // scipy 1.17.1 stats.t.ppf(1 - 5e-5, nu) for nu = 7, 15, 31, 63, rounded to 4 decimals
+  const ref: [number, number][] = [[7, 7.8846], [15, 5.2391], [31, 4.461], [63, 4.1546]];
+  for (const [nu, t] of ref) {
+    it(`t(0.99995; ${nu}) within 2 % of scipy's ${t}`, () => {
+      expect(Math.abs(studentTQuantile(1 - 5e-5, nu) / t - 1)).toBeLessThan(0.02);
+    });
+  }
+});
+
+describe("binomialAtLeast", () => {
+  it("matches scipy.stats.binom.sf (scipy 1.17.1) to 1e-12", () => {
+    // binom.sf(r - 1, n, p) = P(X >= r)
+    expect(binomialAtLeast(3, 40, 0.1)).toBeCloseTo(0.7771918756605969, 12);
+    expect(binomialAtLeast(1, 20, 0.2)).toBeCloseTo(0.9884707849539315, 12);
+    expect(binomialAtLeast(10, 100, 0.05)).toBeCloseTo(0.02818829416341614, 12);
+    expect(binomialAtLeast(0, 5, 0.3)).toBe(1);
+    expect(binomialAtLeast(6, 5, 0.3)).toBe(0);
   });
 });
