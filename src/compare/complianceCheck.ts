@@ -111,7 +111,7 @@ export interface DecideEstimate {
 export interface ChannelCompliance {
   channel: string;
   verdict: Verdict;
-  reasons: string[];
+  /** Why the verdict is what it is, as findings (report/findingTexts.ts says them). */
   findings: Finding[];
   lines: LineDeviation[];
   excursions: Excursion[];
@@ -736,8 +736,8 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
     }
   }
   const perRecord = DECISION_RULE.falseFailRate;
-  const perSpectrum = perRecord / family;
-  const rateWords = `false-fail rate at most ${pct(perRecord)} per record${family > 1 ? ` (${family} spectra judged, ${pct(perSpectrum)} each)` : ""}`;
+  // The false-fail rate is said per record, and per spectrum when several are judged (the family).
+  const ofFamily = family > 1 ? { about: { family } } : {};
 
   // Failures the data show, and what else a pass needs.
   const fails: Finding[] = [];
@@ -746,24 +746,22 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
     fails.push({
       code: "LINES_OUTSIDE",
       values: { lines: shownOut, judged: m, ...(allowanceLines > 0 ? { allowance: allowanceLines } : {}), falseFailPercent: percent(perRecord) },
-      text: `${shownOut} of ${m} lines shown outside their tolerance band${allowanceLines > 0 ? ` (the profile allows ${allowanceLines})` : ""}, beyond what chance among all lines explains (${rateWords})`,
+      ...ofFamily,
     });
   }
-  if (shownOuter > 0) fails.push({ code: "OUTER_LIMIT", values: { lines: shownOuter }, text: `${shownOuter} line(s) shown beyond the outer limits, which no line may cross` });
+  if (shownOuter > 0) fails.push({ code: "OUTER_LIMIT", values: { lines: shownOuter } });
   if (rmsShown) {
     fails.push({
       code: "RMS_OUTSIDE",
-      values: { rms: measuredRms, deviationDb: rmsDev, requiredRms, ...(top < fN ? { fromHz: f0, toHz: top } : {}), upperDb: tol!.upper, lowerDb: tol!.lower },
-      text: `RMS ${measuredRms.toPrecision(4)} is ${signed(rmsDev)} dB from the required ${requiredRms.toPrecision(4)}${top < fN ? ` (over the ${f0}–${top} Hz the record covers)` : ""}, shown outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB` });
+      values: { rms: measuredRms, deviationDb: rmsDev, requiredRms, ...(top < fN ? { fromHz: f0, toHz: top } : {}), upperDb: tol!.upper, lowerDb: tol!.lower } });
   } else if (!rmsOk) {
-    blockers.push({ code: "RMS_UNRESOLVED", values: { deviationDb: rmsDev, upperDb: tol!.upper, lowerDb: tol!.lower, dof: rmsDof }, text: `RMS ${signed(rmsDev)} dB is outside the allowed +${tol!.upper.toFixed(2)} / -${tol!.lower.toFixed(2)} dB as measured, but within what chance explains at ${rmsDof.toFixed(0)} DOF` });
+    blockers.push({ code: "RMS_UNRESOLVED", values: { deviationDb: rmsDev, upperDb: tol!.upper, lowerDb: tol!.lower, dof: rmsDof } });
   }
-  if (m === 0) blockers.push({ code: "NO_LINES", values: {}, text: "no spectral line of the record can be judged inside the profile's range" });
+  if (m === 0) blockers.push({ code: "NO_LINES", values: {} });
   if (required !== undefined && nu < required) {
     const sec = secondsAt(required);
     blockers.push({
-      code: "DOF_BELOW_PROFILE", values: { dof: nu, requiredDof: required, ...(sec !== undefined ? { secondsForDof: sec } : {}) },
-      text: `degrees of freedom ${nu.toFixed(1)} below the required ${required}: record too short for the statistical accuracy the profile asks${sec !== undefined ? ` (${required} DOF take a run of ${sec.toFixed(1)} s at this rate, segment and overlap)` : ""}` });
+      code: "DOF_BELOW_PROFILE", values: { dof: nu, requiredDof: required, ...(sec !== undefined ? { secondsForDof: sec } : {}) } });
   }
   if (m > 0 && requirement !== null && nu < forPower) {
     const sec = secondsAt(forPower);
@@ -773,26 +771,25 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
         dof: nu, dofForPower: forPower, departureDb: requirement.departureDb, departurePercent: percent(requirement.departureShare), widthLines: requirement.widthLines, lines: m,
         powerPercent: percent(requirement.probability), achievedPowerPercent: percent(power.least), ...(sec !== undefined ? { secondsForPower: sec } : {}),
       },
-      text: `degrees of freedom ${nu.toFixed(1)} below the ${forPower} at which a ${requirement.departureDb} dB departure beyond the band over ${pct(requirement.departureShare)} of the ${m} lines, in runs of ${requirement.widthLines} line(s) or wider, would be seen with ${pct(requirement.probability)} probability (here ${pct(power.least)})${sec !== undefined ? `; ${forPower} DOF take a run of ${sec.toFixed(1)} s` : ""}`,
     });
   }
   const fixedBlockers: Finding[] = [];
   if (fN > nyquist * (1 + 1e-12)) {
-    fixedBlockers.push({ code: "RANGE_ABOVE_RECORD", values: { profileTopHz: fN, sampleRateHz: sp.sampleRateHz, nyquistHz: nyquist, linesUnseen: unjudged.aboveRecord }, text: `the profile runs to ${fN} Hz but the record's sample rate ${sp.sampleRateHz} Hz shows only up to ${nyquist} Hz: ${unjudged.aboveRecord} line(s) of the profile cannot be seen` });
+    fixedBlockers.push({ code: "RANGE_ABOVE_RECORD", values: { profileTopHz: fN, sampleRateHz: sp.sampleRateHz, nyquistHz: nyquist, linesUnseen: unjudged.aboveRecord } });
   }
   if (m > 0) {
     const gapLow = lines[0]!.frequencyHz - f0;
     const allowed = (kernel.halfWidthBins + 1) * df;
-    if (gapLow > allowed) fixedBlockers.push({ code: "RANGE_BELOW_JUDGED", values: { firstLineHz: lines[0]!.frequencyHz, gapHz: gapLow }, text: `the first judged line is ${lines[0]!.frequencyHz} Hz, ${gapLow.toPrecision(3)} Hz above the profile's start (lines below are biased by detrending or leakage): the analysis cannot show the bottom of the range; use a finer resolution or no detrending` });
+    if (gapLow > allowed) fixedBlockers.push({ code: "RANGE_BELOW_JUDGED", values: { firstLineHz: lines[0]!.frequencyHz, gapHz: gapLow } });
   }
   if (profile.resolutionHz !== undefined && df > profile.resolutionHz * (1 + 1e-9)) {
-    fixedBlockers.push({ code: "RESOLUTION_COARSE", values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz }, text: `line spacing ${df.toPrecision(4)} Hz is coarser than the profile's resolution ${profile.resolutionHz} Hz: narrow excursions could hide between lines` });
+    fixedBlockers.push({ code: "RESOLUTION_COARSE", values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz } });
   }
   if (profile.durationS !== undefined && sp.durationS < profile.durationS * (1 - 1e-9)) {
     const w = sp.analysedWindow;
     blockers.push(w
-      ? { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS, fromS: w.fromS, toS: w.toS }, text: `the analysed window ${w.fromS.toFixed(3)} to ${w.toS.toFixed(3)} s lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` }
-      : { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS }, text: `the record lasts ${sp.durationS.toFixed(2)} s, shorter than the ${profile.durationS} s the profile requires: it cannot show the whole test` });
+      ? { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS, fromS: w.fromS, toS: w.toS }}
+      : { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: profile.durationS } });
   }
   const rule: RuleReport = {
     falseFailBound: perRecord,
@@ -894,7 +891,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
         findings.push({
           code: "RUN_TO_DECIDE",
           values: { seconds, dof: found, probabilityPercent: percent(target) },
-          text: `a run of ${seconds.toFixed(1)} s (${found.toFixed(0)} DOF) would decide this verdict with at least ${pct(target)} probability if the spectrum is as measured (most likely ${likely === "pass" ? "a pass" : "a fail"})`,
+          about: { likely },
         });
       }
     } else {
@@ -902,12 +899,12 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
       findings.push({
         code: "RUN_TO_DECIDE",
         values: { probabilityPercent: percent(target) },
-        text: passPossible ? `no run up to 1024 times this one would decide this verdict with ${pct(target)} probability if the spectrum is as measured (it sits on a limit)` : `a longer run alone cannot make this a pass (coverage or resolution); none up to 1024 times this one would show a failure with ${pct(target)} probability`,
+        about: { passPossible },
       });
     }
   }
   if (unjudged.notch > 0) {
-    findings.push({ code: "NOTCH_LINES_LEFT_OUT", values: { lines: unjudged.notch }, text: `${unjudged.notch} line(s) near the profile's ends left out: the profile changes too steeply there for the window's kernel to say what the line should show` });
+    findings.push({ code: "NOTCH_LINES_LEFT_OUT", values: { lines: unjudged.notch } });
   }
   if (verdict === "pass") {
     const rq = requirement ?? DEFAULT_POWER;
@@ -917,11 +914,11 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
         lines: m, departureDb: rq.departureDb, widthLines: rq.widthLines, powerPercent: percent(power.least), defaultPowerPercent: percent(powerDefault.least),
         falseFailPercent: percent(rule.falseFailAtProfile), recordFalseFailPercent: percent(perRecord),
       },
-      text: `no line and not the RMS shown outside tolerance across ${m} lines, ${requirement === null ? "with no power asked by the profile" : `with the power to see a ${rq.departureDb} dB departure in runs of ${rq.widthLines} line(s) or wider (${pct(power.least)}${requirement.source === "profile" ? ", the profile's requirement" : ""})`}; against psdgate's default requirement ${pct(powerDefault.least)}; ${rateWords}, ${pctSmall(rule.falseFailAtProfile)} here if the PSD equals the profile`,
+      about: { requirement: requirement === null ? "none" : requirement.source === "profile" ? "profile" : "default", ...(family > 1 ? { family } : {}) },
     });
   }
   return {
-    channel: sp.name, verdict, reasons: findings.map((f) => f.text), findings, lines, excursions, unjudged,
+    channel: sp.name, verdict, findings, lines, excursions, unjudged,
     rms: { measured: measuredRms, required: requiredRms, deviationDb: rmsDev, upperDb: tol?.upper, lowerDb: tol?.lower, ok: rmsOk, shown: rmsShown, dof: rmsDof },
     dof: { achieved: nu, required, forPower, ok: dofOk },
     rule,
@@ -936,10 +933,10 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
  */
 export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelCompliance {
   if (doubts.length === 0) return c;
-  const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {}, text: "a failure was shown, but the data are in doubt (above), so it cannot stand as a verdict" }] : [];
+  const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {} }] : [];
   // A longer run does not remove a doubt about the data: no run length is promised.
   const findings = [...doubts, ...c.findings.filter((f) => f.code !== "PASS" && f.code !== "RUN_TO_DECIDE"), ...note];
-  return { ...c, verdict: "inconclusive", findings, reasons: findings.map((f) => f.text), decide: undefined };
+  return { ...c, verdict: "inconclusive", findings, decide: undefined };
 }
 
 /**
@@ -950,7 +947,7 @@ export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelComp
 export function withGate(c: ChannelCompliance, gate: Finding[]): ChannelCompliance {
   if (gate.length === 0) return c;
   const findings = [...gate, ...c.findings.filter((f) => f.code !== "PASS")];
-  return { ...c, verdict: c.verdict === "pass" ? "inconclusive" : c.verdict, findings, reasons: findings.map((f) => f.text) };
+  return { ...c, verdict: c.verdict === "pass" ? "inconclusive" : c.verdict, findings };
 }
 
 /** Excursions ordered by how far their worst line lies beyond its limit, largest first (a copy). */
