@@ -47,6 +47,8 @@ export const FINDING_CODES = [
   "FIELD_DAMAGE_IN_TIME", "FULL_SCALE_ASSUMED", "FIELD_TONES", "TOLERANCE_LIMIT_MISSING", "TEST_EXTREME_ABOVE_FIELD", "SHOCK_TEST_NEEDED",
   // shock (analyses/shockRecording.ts; the pass's doubts carry over, said of their channel).
   "SRS_FEW_SAMPLES", "THRESHOLD_LOW", "EVENT_CUT_SHORT",
+  // transfer (analyses/analyzeTransfer.ts).
+  "SEGMENTS_LEFT_OUT", "FEW_AVERAGES_COHERENCE",
 ] as const;
 
 export type FindingCode = (typeof FINDING_CODES)[number];

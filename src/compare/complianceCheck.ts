@@ -962,21 +962,9 @@ export function overallVerdict(vs: Verdict[]): Verdict {
   return "pass";
 }
 
-function pct(x: number): string {
-  return `${Number(percent(x).toPrecision(3))} %`;
-}
-
 /** A share in percent, as a finding's values keep it. */
 function percent(x: number): number {
   return 100 * x;
-}
-
-function pctSmall(x: number): string {
-  return x < 1e-4 ? "below 0.01 %" : pct(x);
-}
-
-function signed(x: number): string {
-  return `${x >= 0 ? "+" : ""}${x.toFixed(2)}`;
 }
 
 /** One sine tone of a mixed-mode profile as judged (compare/toneCheck.ts). */

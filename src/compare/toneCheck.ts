@@ -161,11 +161,3 @@ export function combineFits(list: (ToneFit | undefined)[], rule: "average" | "la
   return rule === "largest" ? pick : { ...pick, peak: ok.reduce((a, b) => a + b.peak, 0) / ok.length, frequencyHz: ok.reduce((a, b) => a + b.frequencyHz, 0) / ok.length };
 }
 
-
-function fmt(x: number, digits = 4): string {
-  return Number(x.toPrecision(digits)).toString();
-}
-
-function signed(x: number): string {
-  return `${x >= 0 ? "+" : ""}${x.toFixed(2)}`;
-}

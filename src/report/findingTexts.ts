@@ -1,4 +1,4 @@
-import { BASIC_METHOD_LIMITS } from "../compare/wholeBodyExposure.js";
+import { BASIC_METHOD_LIMITS, type BasicMethodCheck } from "../compare/wholeBodyExposure.js";
 import type { Finding, FindingAbout, FindingCode } from "../findings.js";
 
 /**
@@ -138,6 +138,14 @@ const VERDICT_TEXTS = {
   HELD_BAND: (v) => `the profile runs to ${v.profileTopHz} Hz, but the sensor behind this channel updated only up to ${v.nyquistHz} Hz (held samples): the lines above show the hold's images, not the motion`,
 } satisfies Partial<Record<FindingCode, Text>>;
 
+/** ISO 2631-1's basic-method figures by name, as the sentences say them. */
+const BASIC_METHOD_FIGURES = [["crestFactor", "crest factor"], ["mtvvRatio", "MTVV/a_w"], ["vdvRatio", "VDV/(a_w T^1/4)"]] as const;
+
+/** The basic-method limits a ride axis exceeded, each with its figure ("crest factor 9.40 > 9; …"; ride's HTML table). */
+export function basicMethodExceeded(b: BasicMethodCheck): string {
+  return BASIC_METHOD_FIGURES.filter(([key]) => b.exceeded.includes(key)).map(([key, name]) => `${name} ${b[key].toFixed(2)} > ${BASIC_METHOD_LIMITS[key]}`).join("; ");
+}
+
 const RIDE_TEXTS = {
   NO_PSD_ROUTE: (v) => `the window holds no whole Welch segment of ${v.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser resolution or a shorter segment gives one)`,
   ROUTES_DIFFER: (v) => `a_w from the PSD is ${signed(v.offPercent!)} % off a_w in time over the same samples of a stationary record (allowed ±${v.allowedPercent} %): the weighting or the spectrum is in question`,
@@ -151,12 +159,7 @@ const RIDE_TEXTS = {
   PARSEVAL_NOT_STATIONARY: (v, a) =>
     `${PASS_TEXTS.PARSEVAL_MISMATCH(v, a)}; ${movingText(v, a)}: Hann segments weigh a changing level unlike a plain mean over the same samples, so this is expected of the ride and the PSD stands for its average`,
   BASIC_METHOD_EXCEEDED: (v) => {
-    const L = BASIC_METHOD_LIMITS;
-    const items = [
-      `crest factor ${v.crestFactor!.toFixed(2)}${v.crestFactor! > L.crestFactor ? ` > ${L.crestFactor}` : ""}`,
-      `MTVV/a_w ${v.mtvvRatio!.toFixed(2)}${v.mtvvRatio! > L.mtvvRatio ? ` > ${L.mtvvRatio}` : ""}`,
-      `VDV/(a_w T^1/4) ${v.vdvRatio!.toFixed(2)}${v.vdvRatio! > L.vdvRatio ? ` > ${L.vdvRatio}` : ""}`,
-    ];
+    const items = BASIC_METHOD_FIGURES.map(([key, name]) => `${name} ${v[key]!.toFixed(2)}${v[key]! > BASIC_METHOD_LIMITS[key] ? ` > ${BASIC_METHOD_LIMITS[key]}` : ""}`);
     return `the basic r.m.s. method may underestimate (${items.join(", ")}): judge by VDV and MTVV as well (ISO 2631-1 6.3)`;
   },
   WEIGHTING_ERROR: (v, a) => {
@@ -197,4 +200,9 @@ const SHOCK_TEXTS = {
   EVENT_CUT_SHORT: (v) => `an event's SRS window ran past the end of the record (post window ${v.postS} s): its residual response may be cut short`,
 } satisfies Partial<Record<FindingCode, Text>>;
 
-const TEXTS: Record<FindingCode, Text> = { ...PASS_TEXTS, ...VERDICT_TEXTS, ...RIDE_TEXTS, ...DERIVE_TEXTS, ...SHOCK_TEXTS };
+const TRANSFER_TEXTS = {
+  SEGMENTS_LEFT_OUT: (v) => `${v.segments} segment(s) held a NaN or infinite sample in some channel and were left out of every spectrum`,
+  FEW_AVERAGES_COHERENCE: (v) => `only ${v.averages} average(s): coherence is biased upward by about 1/n_d (${v.coherenceBias!.toFixed(2)}) and H is uncertain`,
+} satisfies Partial<Record<FindingCode, Text>>;
+
+const TEXTS: Record<FindingCode, Text> = { ...PASS_TEXTS, ...VERDICT_TEXTS, ...RIDE_TEXTS, ...DERIVE_TEXTS, ...SHOCK_TEXTS, ...TRANSFER_TEXTS };
