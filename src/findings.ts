@@ -21,7 +21,7 @@ export interface FindingAbout {
   axis?: string;
   /** The recording file a finding of a set (derive) is about. */
   file?: string;
-  [key: string]: string | number | boolean | number[] | undefined;
+  [key: string]: string | number | boolean | number[] | string[] | undefined;
 }
 
 /**

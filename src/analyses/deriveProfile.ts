@@ -387,7 +387,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const extremeRatio = testSpectra.extreme.map((v, i) => v / fieldExtreme[i]!);
   const extremeWarnings = [...fnHz].filter((_, i) => extremeRatio[i]! > extremeLimit);
   if (extremeWarnings.length) {
-    notes.push({ code: "TEST_EXTREME_ABOVE_FIELD", values: { limit: extremeLimit, frequencies: extremeWarnings.length, naturalFrequencies: n }, about: { frequenciesHz: extremeWarnings } });
+    notes.push({ code: "TEST_EXTREME_ABOVE_FIELD", values: { limit: extremeLimit, frequencies: extremeWarnings.length }, about: { every: extremeWarnings.length === n, frequenciesHz: extremeWarnings } });
   }
 
   // 4b. The field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response

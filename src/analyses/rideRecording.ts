@@ -307,7 +307,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     health: vibrationTotalValue(figures, (a) => rules[a].healthK),
     comfort: vibrationTotalValue(figures, (a) => rules[a].comfortK),
   };
-  if (axes.length < 3) notes.push({ code: "AXES_MISSING", values: {}, about: { axes: axes.join(", "), exposure: exposure !== undefined } });
+  if (axes.length < 3) notes.push({ code: "AXES_MISSING", values: {}, about: { axes: [...axes], exposure: exposure !== undefined } });
   if (options.posture === "recumbent") notes.push({ code: "POSTURE_RECUMBENT", values: {} });
   if (options.posture !== "seated") notes.push({ code: "POSTURE_NOT_SEATED", values: {}, about: { posture: options.posture } });
   let seat: RideResult["seat"];

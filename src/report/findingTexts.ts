@@ -169,7 +169,7 @@ const RIDE_TEXTS = {
   BAND_SHORT: (v) => `the record holds nothing above its Nyquist frequency ${v.nyquistHz} Hz: the weighted figures cover ISO 2631-1's one-third-octave bands to ${v.topCentreHz} Hz of 0.5-80 Hz and leave out any motion above`,
   EXPOSURE_NOT_GIVEN: () =>
     "no daily exposure stated: a_w, crest factor, VDV, MTVV, the total value and the comfort words are the recording's own; A(8), the daily VDV and their judgement against Directive 2002/44/EC and ISO 2631-1 Annex B need the daily exposure the recording stands for (--exposure)",
-  AXES_MISSING: (_v, a) => `only ${a.axes} measured: the vibration total value${a.exposure === true ? " and the daily exposure leave" : " leaves"} out the other axes`,
+  AXES_MISSING: (_v, a) => `only ${((a.axes ?? []) as string[]).join(", ")} measured: the vibration total value${a.exposure === true ? " and the daily exposure leave" : " leaves"} out the other axes`,
   POSTURE_RECUMBENT: () => "recumbent: Directive 2002/44/EC states its axis factors for seated or standing workers and ISO 2631-1 Annex B guides seated exposure; the seated factors were used",
   POSTURE_NOT_SEATED: (_v, a) => `${a.posture}: ISO 2631-1 Annex B health guidance is written for seated persons; the zone is shown for reference`,
   FLOOR_WITHOUT_Z: () => "a floor channel needs z on the seat for the seat's transmissibility (vertical, Wk on both)",
@@ -187,7 +187,7 @@ const DERIVE_TEXTS = {
   FIELD_TONES: (v) => `${v.tones} candidate sine tone(s) in the field recordings (listed): kept out of the random envelope, mean, tolerance limit and damage; give them to the lab profile as tones (mixed mode) if they are real`,
   TOLERANCE_LIMIT_MISSING: (v) => `a normal tolerance limit needs at least ${v.required} recordings; ${v.recordings} given, so none is computed`,
   TEST_EXTREME_ABOVE_FIELD: (v, a) =>
-    `the test's expected largest response exceeds the field's by more than ×${v.limit} ${v.frequencies === v.naturalFrequencies ? `at every natural frequency (${v.naturalFrequencies})` : `at ${v.frequencies} natural frequencies (${frequencies(a)} Hz)`}: a compressed test can break parts that the road never would`,
+    `the test's expected largest response exceeds the field's by more than ×${v.limit} ${a.every === true ? `at every natural frequency (${v.frequencies})` : `at ${v.frequencies} natural frequencies (${frequencies(a)} Hz)`}: a compressed test can break parts that the road never would`,
   SHOCK_TEST_NEEDED: (v, a) =>
     `the random test's expected largest response falls below the field's measured largest response (its SRS, shocks included) at ${v.frequencies} natural frequencies (${frequencies(a)} Hz): the random test does not reach the field's shocks there, so a shock test is needed for them`,
 } satisfies Partial<Record<FindingCode, Text>>;
