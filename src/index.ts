@@ -35,6 +35,8 @@ export { ToneFitAccumulator, spectralTones, toneLines, tonePeakSd, toneFrequency
 export { judgeMixedMode, toneSearchHalfWidthHz, combineFits, type ToneJudgement } from "./compare/toneCheck.js";
 export { synthesizeProfile, type SynthOptions, type SynthResult } from "./synth/synthesizeProfile.js";
 export { GaussianNoise } from "./synth/gaussianNoise.js";
+export { FINDING_CODES, type FindingCode, type FindingAbout } from "./findings.js";
+export { findingText, findingTexts, findingJson } from "./report/findingTexts.js";
 export { psdJson, psdCsv } from "./report/psdJson.js";
 export { checkJson, checkText } from "./report/checkReport.js";
 export { checkHtml } from "./report/htmlReport.js";

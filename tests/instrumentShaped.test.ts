@@ -12,6 +12,7 @@ import { loadSpectrumSource, responseSpectra } from "../src/analyses/responseSpe
 import { cli, gaussian, tempDir } from "./helpers.js";
 import { onGravity, printStamp, settlingStart, writeFloatWav, writeInt16Wav, writeStampedCsv, type StampFormat } from "./instrumentRecords.js";
 import { shapedRecord } from "./shapedRecords.js";
+import { findingText } from "../src/report/findingTexts.js";
 
 /**
  * Files shaped the way loggers, phones and DAQs write them (tests/instrumentRecords.ts), read by every
@@ -40,7 +41,7 @@ describe("--from/--to: what depends on the record's length is of the analysed wi
     expect(cut.verdict).toBe("inconclusive");
     const f = cut.channels[0]!.findings.find((x) => x.code === "DURATION_SHORT")!;
     expect(f.values).toEqual({ durationS: 25, requiredDurationS: 40, fromS: 0, toS: 25 });
-    expect(f.text).toBe("the analysed window 0.000 to 25.000 s lasts 25.00 s, shorter than the 40 s the profile requires: it cannot show the whole test");
+    expect(findingText(f)).toBe("the analysed window 0.000 to 25.000 s lasts 25.00 s, shorter than the 40 s the profile requires: it cannot show the whole test");
   });
 
   it("the text, JSON and HTML report of check show the window (from, to, length) and judge the duration on it; exit 3", async () => {

@@ -13,6 +13,7 @@ import type { CsvReadOptions } from "../read/csvTimeHistory.js";
 import { openTimeHistory } from "../read/openTimeHistory.js";
 import type { TimeHistorySource } from "../read/timeHistory.js";
 import type { AccelUnit } from "../units.js";
+import type { Finding } from "../findings.js";
 
 /**
  * Frequency response from one input channel to one or more output channels of a recording, in one
@@ -77,7 +78,8 @@ export interface TransferAnalysis {
   /** How each channel's numbers became accelerations (input first, then the outputs). */
   channels: { name: string; position: number; reading: ChannelReading }[];
   outputs: TransferOutput[];
-  warnings: string[];
+  /** What weakens the spectra, as findings (report/findingTexts.ts says them). */
+  warnings: Finding[];
 }
 
 export async function analyzeTransfer(file: string, options: TransferOptions): Promise<TransferAnalysis> {
@@ -176,9 +178,9 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
     return Math.sqrt(s * df);
   };
   const gxx = sums.auto[0]!;
-  const warnings: string[] = [];
-  if (sums.skippedSegments > 0) warnings.push(`${sums.skippedSegments} segment(s) held a NaN or infinite sample in some channel and were left out of every spectrum`);
-  if (sums.segments < 8) warnings.push(`only ${sums.segments} average(s): coherence is biased upward by about 1/n_d (${(1 / Math.max(1, nd)).toFixed(2)}) and H is uncertain`);
+  const warnings: Finding[] = [];
+  if (sums.skippedSegments > 0) warnings.push({ code: "SEGMENTS_LEFT_OUT", values: { segments: sums.skippedSegments } });
+  if (sums.segments < 8) warnings.push({ code: "FEW_AVERAGES_COHERENCE", values: { averages: sums.segments, coherenceBias: 1 / Math.max(1, nd) } });
   const outputs = outIdx.map((idx, j): TransferOutput => {
     const c = j + 1;
     const gyy = sums.auto[c]!;

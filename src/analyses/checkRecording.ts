@@ -36,6 +36,11 @@ export interface CheckResult {
   control?: ControlJudgement | undefined;
 }
 
+/** A channel's finding said of the control spectrum, which several channels make: the channel named first. */
+function aboutChannel(f: Finding, channel: string): Finding {
+  return { ...f, about: { ...f.about, channel } };
+}
+
 /**
  * A held channel (sample-and-hold, HELD_SAMPLES) shows above its sensor's Nyquist frequency only the hold's
  * images: where the profile reaches above it, those lines cannot support a verdict, so the check is in doubt.
@@ -45,7 +50,7 @@ function heldBand(c: ChannelAnalysis, profile: TestProfile): Finding[] {
   const top = profile.breakpoints[profile.breakpoints.length - 1]!.hz;
   if (!h?.held || !(top > h.updateRateHz / 2)) return [];
   const nyq = Number((h.updateRateHz / 2).toPrecision(4));
-  return [{ code: "HELD_BAND", values: { profileTopHz: top, nyquistHz: nyq }, text: `the profile runs to ${top} Hz, but the sensor behind this channel updated only up to ${nyq} Hz (held samples): the lines above show the hold's images, not the motion` }];
+  return [{ code: "HELD_BAND", values: { profileTopHz: top, nyquistHz: nyq } }];
 }
 
 /** Read and validate a profile file (JSON, YAML or two-column CSV). */
@@ -133,14 +138,14 @@ export async function checkRecording(file: string, profile: TestProfile, options
     return total > 0 ? Math.max(0, 1 - bandMeanSquare(c.psd, f0, analysis.input.sampleRateHz / 2) / total) : 0;
   };
   const gate = (c: ChannelAnalysis) => levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, belowShare(c), f0);
-  const judged = analysis.channels.map((c, i) => withDoubts(withGate(judge({ ...spectrumOf(c, analysis), family }, fits?.[i]), gate(c)), [...c.doubtFindings, ...heldBand(c, profile)]));
+  const judged = analysis.channels.map((c, i) => withDoubts(withGate(judge({ ...spectrumOf(c, analysis), family }, fits?.[i]), gate(c)), [...c.doubts, ...heldBand(c, profile)]));
   if (!options.control) {
     return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
   }
   const pos = controlPositions(analysis, options.control.channels);
   const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
-  const doubts = pos.flatMap((i) => [...analysis.channels[i]!.doubtFindings, ...heldBand(analysis.channels[i]!, profile)].map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
-  const gates = pos.flatMap((i) => gate(analysis.channels[i]!).map((d) => ({ ...d, text: `${analysis.channels[i]!.name}: ${d.text}` })));
+  const doubts = pos.flatMap((i) => [...analysis.channels[i]!.doubts, ...heldBand(analysis.channels[i]!, profile)].map((d) => aboutChannel(d, analysis.channels[i]!.name)));
+  const gates = pos.flatMap((i) => gate(analysis.channels[i]!).map((d) => aboutChannel(d, analysis.channels[i]!.name)));
   const controlFits = fits ? profile.tones.map((_, t) => combineFits(pos.map((i) => fits[i]?.[t]), options.control!.rule)) : undefined;
   const judgement = withDoubts(withGate(judge(combined, controlFits), gates), doubts);
   return {

@@ -11,6 +11,7 @@ import { logToleranceLimit, MIN_TOLERANCE_SAMPLES, type LogToleranceLimit } from
 import type { ServiceMix } from "../read/mixFile.js";
 import { fitDamageProfile, type Breakpoint } from "../synth/profileFit.js";
 import { accelFactor, type AccelUnit } from "../units.js";
+import type { Finding } from "../findings.js";
 
 /**
  * `psdgate derive`: from field recordings to a lab test profile. Each recording's PSD on one resolution,
@@ -106,7 +107,8 @@ export interface FieldRecordingResult {
   /** RMS over the profile's band, in `units`. */
   bandRms: number;
   stationary: boolean | undefined;
-  stationarityNote: string | undefined;
+  /** NOT_STATIONARY when the recording failed the stationarity test. */
+  stationarityNote: Finding | undefined;
   psd: Float64Array;
   /** Damage over its service time and expected largest response over it, per f_n (from the PSD, or in time with fieldDamage "time"). */
   damage: Float64Array;
@@ -141,7 +143,7 @@ export interface DeriveResult {
   /** Service-weighted mean PSD: each recording weighted by its share of the life. */
   mean: Float64Array;
   /** The normal tolerance limit on log10 PSD, or why it was not computed. */
-  tolerance: LogToleranceLimit | { n: number; coverage: number; confidence: number; missing: string };
+  tolerance: LogToleranceLimit | { n: number; coverage: number; confidence: number; missing: Finding };
   fnHz: Float64Array;
   q: number;
   sn: SnCurve;
@@ -159,7 +161,8 @@ export interface DeriveResult {
   shocks: FieldShocks;
   /** Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's. */
   compression: { flatFactor: number; profileRms: number; meanFieldRms: number; rmsRatio: number };
-  notes: string[];
+  /** What the derivation notes, as findings (report/findingTexts.ts says them). */
+  notes: Finding[];
   /** The profile's velocity and displacement in closed form (peak-to-peak 6 x RMS, common practice). */
   motion: ProfileMotion;
   /** The displacement against the exciter's rated stroke, when given. */
@@ -275,7 +278,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const fieldDamage = o.fieldDamage ?? "psd";
   if (fieldDamage !== "psd" && fieldDamage !== "time") throw new InputError("OPTION_INVALID", { option: "fieldDamage", expected: "psd or time", received: String(fieldDamage) });
   const timeDamage = new Map<string, { damage: Float64Array; extreme: (serviceS: number) => Float64Array }>();
-  let timeNote: string | undefined;
+  let timeNote: Finding | undefined;
   if (fieldDamage === "time") {
     const { loadSpectrumSource, responseSpectra } = await import("./responseSpectra.js");
     for (const { r } of analysed) {
@@ -288,13 +291,13 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
         extreme: (serviceS) => responseSpectra(src, { fnHz, q, durationS: serviceS, sn }).extremePeak,
       });
     }
-    timeNote = ("the field's fatigue-damage and extreme-response spectra come from the recordings themselves (each filtered through each SDOF in time: rainflow damage scaled by service time, the largest response grown by Davenport's factors), while the test's come from the profile's PSD (narrow-band, Gaussian): on a Gaussian field the rainflow damage runs 5-17 % below narrow-band, so the test then over-tests by about that much (less in level: the 2/b power)");
+    timeNote = { code: "FIELD_DAMAGE_IN_TIME", values: {} };
   }
   const fieldFatigue = new Float64Array(n);
   const fieldExtreme = new Float64Array(n);
   const mean = new Float64Array(lines);
   const envelope = new Float64Array(lines);
-  const notes: string[] = [];
+  const notes: Finding[] = [];
   const candidateTones: DeriveResult["candidateTones"] = [];
   if (timeNote) notes.push(timeNote);
   const recordings: FieldRecordingResult[] = analysed.map(({ r, a, c }) => {
@@ -327,8 +330,8 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       envelope[k] = Math.max(envelope[k]!, psd[k]!);
     }
     const note = stationarityNote(c.stationarity);
-    if (note) notes.push(`${r.file}: ${note}`);
-    if (c.reading.fullScaleAssumed) notes.push(`${r.file}: integer WAV codes with no calibration, read as ±1 ${c.reading.fileUnit} full scale (no calibration chunk, scale or sensitivity): every level rests on that`);
+    if (note) notes.push({ ...note, about: { file: r.file } });
+    if (c.reading.fullScaleAssumed) notes.push({ code: "FULL_SCALE_ASSUMED", values: {}, about: { file: r.file, unit: c.reading.fileUnit } });
     return {
       file: r.file, sha256: a.input.sha256, group: r.group, channel: c.name, durationS, serviceS, sampleRateHz: a.input.sampleRateHz, dof: c.psd.dof, averages: c.psd.averages,
       bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz), stationary: c.stationarity.tested ? c.stationarity.stationary : undefined, stationarityNote: note, psd, damage: ds.damage, extreme: ds.extreme,
@@ -344,7 +347,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     }
   }
   if (candidateTones.length > 0) {
-    notes.push(`${candidateTones.length} candidate sine tone(s) in the field recordings (listed): kept out of the random envelope, mean, tolerance limit and damage; give them to the lab profile as tones (mixed mode) if they are real`);
+    notes.push({ code: "FIELD_TONES", values: { tones: candidateTones.length } });
   }
   const groups = o.groups.map((g) => {
     const share = new Float64Array(n);
@@ -354,7 +357,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
 
   // 3. The statistical upper limit across recordings.
   const tl = logToleranceLimit(recordings.map((r) => r.psd), coverage, confidence);
-  const missing = `a normal tolerance limit needs at least ${MIN_TOLERANCE_SAMPLES} recordings; ${recordings.length} given, so none is computed`;
+  const missing: Finding = { code: "TOLERANCE_LIMIT_MISSING", values: { required: MIN_TOLERANCE_SAMPLES, recordings: recordings.length } };
   const tolerance = tl ?? { n: recordings.length, coverage, confidence, missing };
   if (!tl) notes.push(missing);
 
@@ -384,8 +387,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const extremeRatio = testSpectra.extreme.map((v, i) => v / fieldExtreme[i]!);
   const extremeWarnings = [...fnHz].filter((_, i) => extremeRatio[i]! > extremeLimit);
   if (extremeWarnings.length) {
-    const where = extremeWarnings.length === n ? `at every natural frequency (${n})` : `at ${extremeWarnings.length} natural frequencies (${extremeWarnings.map((f) => f.toPrecision(4)).join(", ")} Hz)`;
-    notes.push(`the test's expected largest response exceeds the field's by more than ×${extremeLimit} ${where}: a compressed test can break parts that the road never would`);
+    notes.push({ code: "TEST_EXTREME_ABOVE_FIELD", values: { limit: extremeLimit, frequencies: extremeWarnings.length }, about: { every: extremeWarnings.length === n, frequenciesHz: extremeWarnings } });
   }
 
   // 4b. The field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
@@ -413,7 +415,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   events.sort((x, y) => Math.abs(y.peak) - Math.abs(x.peak) || x.recording - y.recording || x.timeS - y.timeS);
   const shortfallHz = [...fnHz].filter((_, i) => testSpectra.extreme[i]! < fieldSrs[i]!);
   if (shortfallHz.length) {
-    notes.push(`the random test's expected largest response falls below the field's measured largest response (its SRS, shocks included) at ${shortfallHz.length} natural frequencies (${shortfallHz.map((f) => f.toPrecision(4)).join(", ")} Hz): the random test does not reach the field's shocks there, so a shock test is needed for them`);
+    notes.push({ code: "SHOCK_TEST_NEEDED", values: { frequencies: shortfallHz.length }, about: { frequenciesHz: shortfallHz } });
   }
   const shocks: FieldShocks = { fieldSrs, largestEvents: events.slice(0, 5), eventsPerRecording, shortfallHz };
 

@@ -1,12 +1,12 @@
 import { selectChannels } from "../pass/resolveAnalysis.js";
 import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "../pass/analyzeRecording.js";
 import {
-  axisRules, BASIC_METHOD_LIMITS, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue, ISO_2631_HEALTH_ZONE, type HealthZone,
+  axisRules, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue, ISO_2631_HEALTH_ZONE, type HealthZone,
   type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
 } from "../compare/wholeBodyExposure.js";
 import { InputError, quoted } from "../errors.js";
 import type { PeakHoldPsd } from "../estimate/spectral/peakHoldPsd.js";
-import { texts, type Finding } from "../findings.js";
+import type { Finding } from "../findings.js";
 import { stationarityFinding, type StationarityFinding } from "../estimate/statistics/stationarityTests.js";
 import { normalizeWelchOptions } from "../estimate/spectral/welchOptions.js";
 import { WelchWeightedMeanSquare } from "../estimate/spectral/welchTimeWeights.js";
@@ -76,11 +76,9 @@ export interface RideResult {
   /** The caution zone the exposure is placed in, and where its values came from. */
   healthZone: HealthZone & { from: "default" | "given" };
   seat?: { floorChannel: string; awFloor: number; awFloorFromPsd: number; awFloorWelchWeighted: number; awSeat: number; seat: number } | undefined;
-  notes: string[];
-  doubts: string[];
-  /** The same notes and doubts as findings, with their codes and numbers. */
-  noteFindings: Finding[];
-  doubtFindings: Finding[];
+  /** What the ride notes and doubts, as findings with their codes and numbers (report/findingTexts.ts says them). */
+  notes: Finding[];
+  doubts: Finding[];
 }
 
 /** Largest allowed difference between the two routes to a_w before the result carries a doubt, beyond the weighting filter's stated error at the rate. */
@@ -220,13 +218,12 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     }
   }
   const notes: Finding[] = [];
-  const doubts: Finding[] = analysis.passDoubts.map((text) => ({ code: "RATE_MOVED", values: {}, text }));
+  const doubts: Finding[] = [...analysis.passDoubts];
   const fs = analysis.input.sampleRateHz;
   const fromPsd = (c: number, w: WeightingName) => {
     const p = analysis.channels[c]!.psd;
     return weightedRmsFromPsd(p.psd, p.frequencyHz, p.lineSpacingHz, w);
   };
-  const pct = (x: number) => `${x >= 0 ? "+" : ""}${x.toFixed(2)}`;
   const rideAxes: RideAxis[] = axes.map((axis, c) => {
     const r = results[c]!;
     const ch = analysis.channels[c]!;
@@ -248,41 +245,38 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     ];
     const moving = tests.find((x) => x.t !== undefined && !x.t.stationary);
     const movingValues: Record<string, number> = moving ? { statistic: moving.t!.statistic, acceptAbove: moving.t!.acceptAbove, acceptAtMost: moving.t!.acceptAtMost, values: moving.t!.n } : {};
-    const movingText = moving ? `the ${moving.of} level is not stationary (${moving.t!.test === "runs" ? "run test: R" : "reverse arrangements A"} = ${moving.t!.statistic} outside ${moving.t!.acceptAbove} < ${moving.t!.test === "runs" ? "R" : "A"} <= ${moving.t!.acceptAtMost}, ${moving.t!.n} values)` : "";
-    if (noPsd) notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, text: `${axis}: the window holds no whole Welch segment of ${analysis.settings.segmentLength} samples, so there is no a_w from the PSD to check against (a coarser resolution or a shorter segment gives one)` });
+    // Which level failed which test: the sentence names them (report/findingTexts.ts).
+    const movingAbout = moving ? { level: moving.of, test: moving.t!.test === "runs" ? "runs" : "reverse-arrangements" } : {};
+    const onAxis = { axis };
+    const onChannel = { axis, channel: ch.name };
+    if (noPsd) notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, about: onAxis });
     // The two routes differ by the realisation's own error too (|W| is exact on the PSD route): allowed 1 % plus it.
     else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE + r.design.maxErrorPct / 100)) {
       const values = { offPercent: 100 * (routeRatio - 1), allowedPercent: Number((100 * ROUTE_TOLERANCE + r.design.maxErrorPct).toPrecision(2)) };
-      if (moving) notes.push({ code: "ROUTES_DIFFER_NOT_STATIONARY", values: { ...values, ...movingValues }, text: `${axis} (${ch.name}): a_w from the PSD is ${pct(values.offPercent)} % off a_w in time over the same samples (±${values.allowedPercent} % on a stationary record); ${movingText}, and Welch's segments and the weighting filter's memory share a changing level out unlike each other; a_w is the time-domain value` });
-      else doubts.push({ code: "ROUTES_DIFFER", values, text: `${axis} (${ch.name}): a_w from the PSD is ${pct(values.offPercent)} % off a_w in time over the same samples of a stationary record (allowed ±${values.allowedPercent} %): the weighting or the spectrum is in question` });
+      if (moving) notes.push({ code: "ROUTES_DIFFER_NOT_STATIONARY", values: { ...values, ...movingValues }, about: { ...onChannel, ...movingAbout } });
+      else doubts.push({ code: "ROUTES_DIFFER", values, about: onChannel });
     }
     const plain = awFromPsd / d.rms;
-    if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE) notes.push({ code: "PSD_VS_PLAIN", values: { offPercent: 100 * (plain - 1) }, text: `${axis}: a_w from the PSD is ${pct(100 * (plain - 1))} % off the plain time average because Welch tapers the record's ends and drops its last partial segment, which matters on a non-stationary record; a_w is the time-domain value` });
-    if (r.heldSamples > 0) doubts.push({ code: "NON_FINITE_HELD", values: { samples: r.heldSamples }, text: `${axis} (${ch.name}): ${r.heldSamples} non-finite sample(s) were held at the last finite value before weighting` });
+    if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE) notes.push({ code: "PSD_VS_PLAIN", values: { offPercent: 100 * (plain - 1) }, about: onAxis });
+    if (r.heldSamples > 0) doubts.push({ code: "NON_FINITE_HELD", values: { samples: r.heldSamples }, about: onChannel });
     if (stationarity.tested && !stationarity.stationary) {
       const t = stationarity.reverseArrangements!;
       const dep = stationarity.departing[0];
       notes.push({
         code: "LEVEL_NOT_STATIONARY",
         values: { statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, ...(dep ? { departingFromS: Math.round(dep.fromS), departingToS: Math.round(dep.toS), departingDb: Math.round(10 * dep.levelDb) / 10 } : {}) },
-        text: `${axis}: weighted level not stationary (reverse arrangements A = ${t.statistic} outside ${t.acceptAbove} < A <= ${t.acceptAtMost}, ${t.n} values)${dep ? `; most departing ${dep.fromS.toFixed(0)}-${dep.toS.toFixed(0)} s at ${dep.levelDb >= 0 ? "+" : ""}${dep.levelDb.toFixed(1)} dB` : ""}: a_w averages unlike stretches${options.exposureS !== undefined ? ", and A(8) assumes the recording stands for the whole exposure" : ""}`,
+        about: { ...onAxis, exposure: options.exposureS !== undefined },
       });
     }
-    for (const f of ch.doubtFindings) {
+    for (const f of ch.doubts) {
       if (f.code === "TOO_SHORT") continue;
-      if (f.code === "PARSEVAL_MISMATCH" && moving) notes.push({ code: "PARSEVAL_NOT_STATIONARY", values: { ...f.values, ...movingValues }, text: `${axis} (${ch.name}): ${f.text}; ${movingText}: Hann segments weigh a changing level unlike a plain mean over the same samples, so this is expected of the ride and the PSD stands for its average` });
-      else doubts.push({ ...f, text: `${axis} (${ch.name}): ${f.text}` });
+      if (f.code === "PARSEVAL_MISMATCH" && moving) notes.push({ code: "PARSEVAL_NOT_STATIONARY", values: { ...f.values, ...movingValues }, about: { ...f.about, ...onChannel, ...movingAbout } });
+      else doubts.push({ ...f, about: { ...f.about, ...onChannel } });
     }
-    for (const f of ch.notes) if (f.code === "HELD_SAMPLES") notes.push({ ...f, text: `${axis} (${ch.name}): ${f.text}` });
+    for (const f of ch.notes) if (f.code === "HELD_SAMPLES") notes.push({ ...f, about: { ...f.about, ...onChannel } });
     const basicMethod = basicMethodCheck(d.rms, d.crestFactor, d.mtvv, d.vdv, d.durationS);
     if (!basicMethod.adequate) {
-      const L = BASIC_METHOD_LIMITS;
-      const items = [
-        `crest factor ${basicMethod.crestFactor.toFixed(2)}${basicMethod.crestFactor > L.crestFactor ? ` > ${L.crestFactor}` : ""}`,
-        `MTVV/a_w ${basicMethod.mtvvRatio.toFixed(2)}${basicMethod.mtvvRatio > L.mtvvRatio ? ` > ${L.mtvvRatio}` : ""}`,
-        `VDV/(a_w T^1/4) ${basicMethod.vdvRatio.toFixed(2)}${basicMethod.vdvRatio > L.vdvRatio ? ` > ${L.vdvRatio}` : ""}`,
-      ];
-      notes.push({ code: "BASIC_METHOD_EXCEEDED", values: { crestFactor: basicMethod.crestFactor, mtvvRatio: basicMethod.mtvvRatio, vdvRatio: basicMethod.vdvRatio }, text: `${axis}: the basic r.m.s. method may underestimate (${items.join(", ")}): judge by VDV and MTVV as well (ISO 2631-1 6.3)` });
+      notes.push({ code: "BASIC_METHOD_EXCEEDED", values: { crestFactor: basicMethod.crestFactor, mtvvRatio: basicMethod.mtvvRatio, vdvRatio: basicMethod.vdvRatio }, about: onAxis });
     }
     return {
       axis, channel: ch.name, weighting, rule: rules[axis], dose: d, awFromPsd, awWelchWeighted, routeRatio, basicMethod, stationarity,
@@ -292,38 +286,37 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     };
   });
   // The realisation's error, in every result: which figures carry it and which do not.
-  const carriers = ["a_w", "crest factor", "VDV", "MTVV", "the total value", ...(options.exposureS !== undefined ? ["A(8)", "the daily VDV"] : []), ...(options.floor !== undefined ? ["SEAT"] : [])];
   const worst = results.reduce((w, r) => (r.design.maxErrorPct > w.design.maxErrorPct ? r : w), results[0]!).design;
   notes.unshift({
     code: "WEIGHTING_ERROR",
     values: { rateHz: fs, maxErrorPercent: Number(worst.maxErrorPct.toPrecision(2)), atHz: worst.maxErrorAtHz, topCentreHz: worst.topCentreHz },
-    text: `at ${fs} Hz the time-domain weighting${results.length > 1 ? "s are" : " is"} within ${Number(worst.maxErrorPct.toPrecision(2))} % of ISO 2631-1's |W(f)| at the one-third-octave centres to ${worst.topCentreHz} Hz (largest at ${worst.maxErrorAtHz} Hz): ${carriers.slice(0, -1).join(", ")} and ${carriers[carriers.length - 1]} carry it; a_w from the PSD applies |W(f)| exactly`,
+    // Which figures carry the error: those of the exposure and the seat as well, when asked for.
+    about: { filters: results.length, exposure: options.exposureS !== undefined, floor: options.floor !== undefined },
   });
   if (worst.topCentreHz < 80) {
     notes.splice(1, 0, {
       code: "BAND_SHORT",
       values: { nyquistHz: fs / 2, topCentreHz: worst.topCentreHz },
-      text: `the record holds nothing above its Nyquist frequency ${fs / 2} Hz: the weighted figures cover ISO 2631-1's one-third-octave bands to ${worst.topCentreHz} Hz of 0.5-80 Hz and leave out any motion above`,
     });
   }
   const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));
   const exposure = options.exposureS !== undefined ? dailyExposure(figures, rules, options.exposureS, options.healthZone ?? ISO_2631_HEALTH_ZONE) : undefined;
   const healthZone = { ...(options.healthZone ?? ISO_2631_HEALTH_ZONE), from: options.healthZone ? "given" as const : "default" as const };
-  if (exposure === undefined) notes.push({ code: "EXPOSURE_NOT_GIVEN", values: {}, text: "no daily exposure stated: a_w, crest factor, VDV, MTVV, the total value and the comfort words are the recording's own; A(8), the daily VDV and their judgement against Directive 2002/44/EC and ISO 2631-1 Annex B need the daily exposure the recording stands for (--exposure)" });
+  if (exposure === undefined) notes.push({ code: "EXPOSURE_NOT_GIVEN", values: {} });
   const totalValue = {
     health: vibrationTotalValue(figures, (a) => rules[a].healthK),
     comfort: vibrationTotalValue(figures, (a) => rules[a].comfortK),
   };
-  if (axes.length < 3) notes.push({ code: "AXES_MISSING", values: {}, text: `only ${axes.join(", ")} measured: the vibration total value${exposure ? " and the daily exposure leave" : " leaves"} out the other axes` });
-  if (options.posture === "recumbent") notes.push({ code: "POSTURE_RECUMBENT", values: {}, text: "recumbent: Directive 2002/44/EC states its axis factors for seated or standing workers and ISO 2631-1 Annex B guides seated exposure; the seated factors were used" });
-  if (options.posture !== "seated") notes.push({ code: "POSTURE_NOT_SEATED", values: {}, text: `${options.posture}: ISO 2631-1 Annex B health guidance is written for seated persons; the zone is shown for reference` });
+  if (axes.length < 3) notes.push({ code: "AXES_MISSING", values: {}, about: { axes: [...axes], exposure: exposure !== undefined } });
+  if (options.posture === "recumbent") notes.push({ code: "POSTURE_RECUMBENT", values: {} });
+  if (options.posture !== "seated") notes.push({ code: "POSTURE_NOT_SEATED", values: {}, about: { posture: options.posture } });
   let seat: RideResult["seat"];
   if (options.floor !== undefined) {
     const c = axes.length;
     const floorDose = results[c]!.dose;
     const zAxis = rideAxes.find((a) => a.axis === "z");
-    if (zAxis === undefined) notes.push({ code: "FLOOR_WITHOUT_Z", values: {}, text: "a floor channel needs z on the seat for the seat's transmissibility (vertical, Wk on both)" });
+    if (zAxis === undefined) notes.push({ code: "FLOOR_WITHOUT_Z", values: {} });
     else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
   }
-  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, healthZone, seat, notes: texts(notes), doubts: texts(doubts), noteFindings: notes, doubtFindings: doubts };
+  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, healthZone, seat, notes, doubts };
 }

@@ -5,6 +5,7 @@ import { checkSrsGrid, ShockSpectrumAccumulator, srsRateLimit, SRS_SAMPLES_PER_P
 import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js";
 import { openTimeHistory } from "../read/openTimeHistory.js";
 import { accelFactor, type AccelUnit } from "../units.js";
+import type { Finding } from "../findings.js";
 
 /**
  * `psdgate shock`: the events of a recording and their shock response spectra, in two reads of the file.
@@ -80,8 +81,9 @@ export interface ShockResult {
   settings: { fnHz: Float64Array; q: number; holdS: number; preS: number; postS: number; thresholdGiven?: number | undefined; thresholdFactor?: number | undefined; primaryResidual: boolean };
   rate: { sampleRateHz: number; highestFnHz: number; samplesPerPeriod: number; peakShortfallBound: number };
   channels: ShockChannel[];
-  notes: string[];
-  doubts: string[];
+  /** What the analysis notes and doubts, as findings (report/findingTexts.ts says them). */
+  notes: Finding[];
+  doubts: Finding[];
 }
 
 class Background implements PassAccumulator<number[][]> {
@@ -166,10 +168,10 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   const analysis = await analyzeSource(src1, { ...base, accumulators: [bg], onProgress: progress && ((d, t) => progress(d / 2, t)) });
   const stretches = analysis.extras[0] as number[][];
   const fs = analysis.input.sampleRateHz;
-  const notes: string[] = [];
-  const doubts: string[] = [...analysis.passDoubts];
+  const notes: Finding[] = [];
+  const doubts: Finding[] = [...analysis.passDoubts];
   // The read's own doubts (non-finite samples, a clipped or saturated signal, held samples) carry over: a clipped shock's peak and SRS are too low.
-  for (const ch of analysis.channels) for (const d of ch.doubts) doubts.push(`${ch.name}: ${d}`);
+  for (const ch of analysis.channels) for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
   const per = analysis.channels.map((ch, c) => {
     const b = backgroundRms(stretches[c] ?? []);
     const threshold = options.threshold ?? factor * b;
@@ -185,7 +187,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   const found = pass2.extras[0] as ReturnType<Events["finish"]>;
   const rate = { sampleRateHz: fs, ...srsRateLimit(fnHz, fs) };
   if (rate.samplesPerPeriod < SRS_SAMPLES_PER_PERIOD) {
-    notes.push(`the highest natural frequency ${rate.highestFnHz} Hz has ${rate.samplesPerPeriod.toFixed(1)} samples per period (fewer than ${SRS_SAMPLES_PER_PERIOD}): its spectrum values can fall up to ${(100 * rate.peakShortfallBound).toFixed(1)} % short of the continuous response's peak, which lies between samples`);
+    notes.push({ code: "SRS_FEW_SAMPLES", values: { highestFnHz: rate.highestFnHz, samplesPerPeriod: rate.samplesPerPeriod, minimum: SRS_SAMPLES_PER_PERIOD, shortfallPercent: 100 * rate.peakShortfallBound } });
   }
   const channels: ShockChannel[] = analysis.channels.map((ch, c) => {
     const p = per[c]!;
@@ -197,8 +199,8 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
     })).sort((a, b) => Math.abs(b.peak) - Math.abs(a.peak) || a.timeS - b.timeS);
     const srs = found[c]!.srs;
     const toMs = accelFactor(ch.units, "m/s2");
-    if (!(k >= 4.5)) notes.push(`${ch.name}: the threshold is ${k.toFixed(2)} x the background r.m.s.; on a Gaussian background of this level about ${fmtCount(expectedFalseEvents)} event(s) would be found by chance (Rice)`);
-    if (events.some((e) => e.truncated)) notes.push(`${ch.name}: an event's SRS window ran past the end of the record (post window ${postS} s): its residual response may be cut short`);
+    if (!(k >= 4.5)) notes.push({ code: "THRESHOLD_LOW", values: { thresholdFactor: k, expectedFalseEvents }, about: { channel: ch.name } });
+    if (events.some((e) => e.truncated)) notes.push({ code: "EVENT_CUT_SHORT", values: { postS }, about: { channel: ch.name } });
     return {
       name: ch.name, units: ch.units, mean: p.mean, backgroundRms: p.background, threshold: p.threshold, thresholdFactor: k, zeroUpcrossingRateHz: p.nu0,
       expectedFalseEvents, events, srs, pvssMPerS: srs.pseudoVelocity.map((v) => v * toMs),
@@ -211,6 +213,3 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   };
 }
 
-function fmtCount(x: number): string {
-  return x >= 10 ? x.toFixed(0) : x.toPrecision(2);
-}

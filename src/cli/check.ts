@@ -15,6 +15,7 @@ import { expandFiles } from "./fileList.js";
 import type { CliIo } from "./io.js";
 import { addReadingOptions, addSpectrumOptions, analysisOptions, choice, givenOptions, rerunOptions, type ParsedCommon } from "./options.js";
 import { addBatchOptions, runnerFor, type BatchFlags } from "./runner.js";
+import { findingText } from "../report/findingTexts.js";
 
 /** Text folded at 100 columns, each line after the first indented by `indent` plus two spaces. */
 function wrap(text: string, indent: string): string {
@@ -144,7 +145,7 @@ function batchWhy(r: CheckResult): { reason: string; worst: string } {
   const top = judged[0];
   if (!top) return { reason: "", worst: "none" };
   const name = r.analysis.channels[top.i]!.name;
-  const reason = top.c.verdict === "pass" ? (top.c.reasons[0] ?? "every judged line and the RMS within tolerance") : `${name}: ${top.c.reasons[0] ?? top.c.verdict}`;
+  const reason = top.c.findings[0] === undefined ? (top.c.verdict === "pass" ? "every judged line and the RMS within tolerance" : `${name}: ${top.c.verdict}`) : top.c.verdict === "pass" ? findingText(top.c.findings[0]) : `${name}: ${findingText(top.c.findings[0])}`;
   let worst: { w: import("../compare/complianceCheck.js").Excursion; ch: string } | undefined;
   for (const { c, i } of judged) for (const w of c.excursions) if (!worst || Math.abs(w.worstDb) - Math.abs(w.limitDb) > Math.abs(worst.w.worstDb) - Math.abs(worst.w.limitDb)) worst = { w, ch: r.analysis.channels[i]!.name };
   return { reason, worst: worst ? `${worst.ch}: ${sig(worst.w.worstHz, 5)} Hz ${signedDb(worst.w.worstDb)} (limit ${signedDb(worst.w.limitDb)}), ${worst.w.shown ? "shown" : "not shown"}` : "none" };

@@ -3,6 +3,7 @@ import { inspectText } from "../report/psdText.js";
 import { VERSION } from "../version.js";
 import type { CliIo } from "./io.js";
 import { addReadingOptions, analysisOptions, type ParsedCommon } from "./options.js";
+import { findingTexts } from "../report/findingTexts.js";
 
 
 /** `psdgate inspect FILE`: what is in a recording. */
@@ -17,7 +18,7 @@ export function registerInspect(program: Command, io: CliIo): void {
       const a = await analyzeRecording(file, { ...analysisOptions(o), spectrum: false });
       if (o.json) {
         const { inputJson, statsJson, toolInfo } = await import("../report/psdJson.js");
-        io.stdout(JSON.stringify({ tool: toolInfo(VERSION), input: inputJson(a), channels: a.channels.map((c) => ({ name: c.name, position: c.position, units: c.units, reading: c.reading, stats: statsJson(c), warnings: c.warnings, doubts: c.doubts })) }) + "\n");
+        io.stdout(JSON.stringify({ tool: toolInfo(VERSION), input: inputJson(a), channels: a.channels.map((c) => ({ name: c.name, position: c.position, units: c.units, reading: c.reading, stats: statsJson(c), warnings: findingTexts(c.notes), doubts: findingTexts(c.doubts) })) }) + "\n");
       } else io.stdout(inspectText(a, VERSION));
     });
 }

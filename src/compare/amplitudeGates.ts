@@ -122,17 +122,16 @@ export function amplitudeGates(s: SampleStatistics, p: PsdEstimate, durationS: n
     doubts.push({
       code: "CREST_LOW",
       values: { crestFactor: c, crossings },
-      text: `crest factor ${c.toFixed(2)} (max |x - trend| / rms) is far below a Gaussian record's: one this long would pass ±${c.toFixed(2)} sigma about ${crossings.toPrecision(3)} times (saturated or clipped signal?)`,
     });
   }
   if (Number.isFinite(kurt) && kurt < 3 - z * kSpread) {
-    doubts.push({ code: "KURTOSIS_LOW", values: { kurtosis: kurt, spread: kSpread }, text: `kurtosis ${kurt.toFixed(3)} is far below a Gaussian record's 3 (±${kSpread.toPrecision(2)} for this record): peaks cut off or a deterministic signal` });
+    doubts.push({ code: "KURTOSIS_LOW", values: { kurtosis: kurt, spread: kSpread } });
   }
   if (Number.isFinite(kurt) && kurt > 3 + z * kSpread) {
-    notes.push({ code: "KURTOSIS_HIGH", values: { kurtosis: kurt, spread: kSpread }, text: `kurtosis ${kurt.toFixed(3)} is above a Gaussian record's 3 (±${kSpread.toPrecision(2)}): more large peaks than Gaussian (shocks, impacts); the PSD alone understates them` });
+    notes.push({ code: "KURTOSIS_HIGH", values: { kurtosis: kurt, spread: kSpread } });
   }
   if (Number.isFinite(crossings) && crossings < GATE_RATE) {
-    notes.push({ code: "CREST_HIGH", values: { crestFactor: c }, text: `crest factor ${c.toFixed(2)} is above what a Gaussian record this long reaches (shock or spike?)` });
+    notes.push({ code: "CREST_HIGH", values: { crestFactor: c } });
   }
   void durationS;
   return { upCrossingRateHz: nu0, crossingsAtCrest: crossings, kurtosisSpread: kSpread, doubts, notes };

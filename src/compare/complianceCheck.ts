@@ -82,7 +82,7 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
   findings.push(...notchFinding(js.unjudged.notch));
   if (verdict === "pass") findings.push(passFinding(m, power, rule, family));
   return {
-    channel: sp.name, verdict, reasons: findings.map((f) => f.text), findings, lines, excursions, unjudged: js.unjudged,
+    channel: sp.name, verdict, findings, lines, excursions, unjudged: js.unjudged,
     rms: { measured: rms.measuredRms, required: rms.requiredRms, deviationDb: rms.deviationDb, upperDb: rms.tolerance?.upper, lowerDb: rms.tolerance?.lower, ok: rms.ok, shown: rms.shown, dof: rms.dof },
     dof: { achieved: nu, required, forPower: power.forPower, ok: nu >= (required ?? 0) && nu >= power.forPower },
     rule,
@@ -97,10 +97,10 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
  */
 export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelCompliance {
   if (doubts.length === 0) return c;
-  const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {}, text: "a failure was shown, but the data are in doubt (above), so it cannot stand as a verdict" }] : [];
+  const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {} }] : [];
   // A longer run does not remove a doubt about the data: no run length is promised.
   const findings = [...doubts, ...c.findings.filter((f) => f.code !== "PASS" && f.code !== "RUN_TO_DECIDE"), ...note];
-  return { ...c, verdict: "inconclusive", findings, reasons: findings.map((f) => f.text), decide: undefined };
+  return { ...c, verdict: "inconclusive", findings, decide: undefined };
 }
 
 /**
@@ -111,7 +111,7 @@ export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelComp
 export function withGate(c: ChannelCompliance, gate: Finding[]): ChannelCompliance {
   if (gate.length === 0) return c;
   const findings = [...gate, ...c.findings.filter((f) => f.code !== "PASS")];
-  return { ...c, verdict: c.verdict === "pass" ? "inconclusive" : c.verdict, findings, reasons: findings.map((f) => f.text) };
+  return { ...c, verdict: c.verdict === "pass" ? "inconclusive" : c.verdict, findings };
 }
 
 /** Excursions ordered by how far their worst line lies beyond its limit, largest first (a copy). */

@@ -99,7 +99,7 @@ export interface DecideEstimate {
 export interface ChannelCompliance {
   channel: string;
   verdict: Verdict;
-  reasons: string[];
+  /** Why the verdict is what it is, as findings (report/findingTexts.ts says them). */
   findings: Finding[];
   lines: LineDeviation[];
   excursions: Excursion[];

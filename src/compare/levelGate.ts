@@ -99,7 +99,6 @@ export function levelGate(stretchMs: ArrayLike<number> | undefined, stretchS: nu
       out.push({
         code: "LEVEL_SWING",
         values: { fromS: from, toS: to, levelDb: d, toleranceDb, falseDoubtPercent: 100 * LEVEL_GATE.falseDoubtRate },
-        text: `the level swings over the run: ${from.toFixed(0)}-${to.toFixed(0)} s sits ${d >= 0 ? "+" : ""}${d.toFixed(2)} dB from the run's mean, beyond the ±${toleranceDb.toFixed(2)} dB the profile allows by more than chance explains (false-doubt rate at most ${(100 * LEVEL_GATE.falseDoubtRate).toFixed(0)} % on a stationary record): the average spectrum does not describe the run`,
       });
     }
   }
@@ -107,7 +106,6 @@ export function levelGate(stretchMs: ArrayLike<number> | undefined, stretchS: nu
     out.push({
       code: "DRIFT_DOMINATES",
       values: { sharePercent: 100 * belowShare, limitPercent: 100 * LEVEL_GATE.driftShare, belowHz },
-      text: `${(100 * belowShare).toFixed(1)} % of the record's mean square lies below the profile's first frequency ${belowHz} Hz (drift or a slow swing), more than ${(100 * LEVEL_GATE.driftShare).toFixed(0)} %: the record is not the random vibration the profile describes`,
     });
   }
   return out;

@@ -7,7 +7,7 @@ import type { DecideEstimate, SpectrumUnderTest } from "./complianceTypes.js";
 import { chanceAbove, chanceBelow, largestChance, largestUpperFactor, lowerFactor, upperFactor } from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { LineTestLevels } from "./lineTests.js";
-import { pct, percent } from "./percentWords.js";
+import { percent } from "./percentWords.js";
 import type { RmsTest } from "./rmsTest.js";
 
 /**
@@ -213,7 +213,7 @@ export function decideRunLength(js: JudgedSpectrum, d: DecideInputs): { decide: 
       finding: {
         code: "RUN_TO_DECIDE",
         values: { probabilityPercent: percent(target) },
-        text: d.passPossible ? `no run up to 1024 times this one would decide this verdict with ${pct(target)} probability if the spectrum is as measured (it sits on a limit)` : `a longer run alone cannot make this a pass (coverage or resolution); none up to 1024 times this one would show a failure with ${pct(target)} probability`,
+        about: { passPossible: d.passPossible },
       },
     };
   }
@@ -226,7 +226,7 @@ export function decideRunLength(js: JudgedSpectrum, d: DecideInputs): { decide: 
     finding: {
       code: "RUN_TO_DECIDE",
       values: { seconds, dof: found, probabilityPercent: percent(target) },
-      text: `a run of ${seconds.toFixed(1)} s (${found.toFixed(0)} DOF) would decide this verdict with at least ${pct(target)} probability if the spectrum is as measured (most likely ${likely === "pass" ? "a pass" : "a fail"})`,
+      about: { likely },
     },
   };
 }

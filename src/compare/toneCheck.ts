@@ -123,31 +123,26 @@ function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompli
   const fails: Finding[] = [];
   const blockers: Finding[] = [];
   for (const t of tones) {
-    const where = `${t.name} (${fmt(t.hz, 6)} Hz)`;
+    const about = { tone: t.name };
     if (t.unseen) {
-      blockers.push({ code: "TONE_ABOVE_RECORD", values: { hz: t.hz, toleranceHz: t.toleranceHz }, text: `${where}: the tone (±${fmt(t.toleranceHz)} Hz) does not lie below the record's Nyquist frequency, so the record cannot show it` });
+      blockers.push({ code: "TONE_ABOVE_RECORD", values: { hz: t.hz, toleranceHz: t.toleranceHz }, about });
     } else if (t.status === "missing") {
-      fails.push({ code: "TONE_MISSING", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, lowerPeak: t.lowerPeak },
-        text: `${where} is missing: fitted peak ${fmt(t.measuredPeak)} against the required ${fmt(t.requiredPeak)} (at least ${fmt(t.lowerPeak)}), no more than the background's own noise there` });
+      fails.push({ code: "TONE_MISSING", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, lowerPeak: t.lowerPeak }, about });
     } else if (t.status === "low" || t.status === "high") {
-      fails.push({ code: "TONE_OUTSIDE", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, deviationDb: t.deviationDb, lowerPeak: t.lowerPeak, upperPeak: t.upperPeak },
-        text: `${where}: peak ${fmt(t.measuredPeak)} is ${signed(t.deviationDb)} dB from the required ${fmt(t.requiredPeak)}, shown ${t.status === "low" ? "below" : "above"} its limits ${fmt(t.lowerPeak)}–${fmt(t.upperPeak)}` });
+      fails.push({ code: "TONE_OUTSIDE", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, deviationDb: t.deviationDb, lowerPeak: t.lowerPeak, upperPeak: t.upperPeak }, about: { ...about, status: t.status } });
     } else if (t.status === "off-frequency") {
-      fails.push({ code: "TONE_OFF_FREQUENCY", values: { hz: t.hz, measuredHz: t.measuredHz, toleranceHz: t.toleranceHz },
-        text: `${where} lies at ${fmt(t.measuredHz, 6)} Hz, shown further from ${fmt(t.hz, 6)} Hz than the ±${fmt(t.toleranceHz)} Hz allowed` });
+      fails.push({ code: "TONE_OFF_FREQUENCY", values: { hz: t.hz, measuredHz: t.measuredHz, toleranceHz: t.toleranceHz }, about });
     } else if (t.verdict === "inconclusive") {
       const outside = t.measuredPeak < t.lowerPeak || t.measuredPeak > t.upperPeak || Math.abs(t.measuredHz - t.hz) > t.toleranceHz;
-      blockers.push({ code: "TONE_UNRESOLVED", values: { hz: t.hz, peak: t.measuredPeak, deviationDb: t.deviationDb, ...(outside ? {} : { peakSd: t.peakSd, departureDb: DECISION_RULE.departureDb, powerPercent: 100 * DECISION_RULE.power }) },
-        text: `${where}: peak ${fmt(t.measuredPeak)} (${signed(t.deviationDb)} dB) is ${outside ? "outside its tolerance as measured but not beyond what the background's noise explains" : `within its tolerance, but with a standard deviation of ${fmt(t.peakSd)} the record could not show a ${DECISION_RULE.departureDb} dB departure with ${Math.round(100 * DECISION_RULE.power)} % probability`}` });
+      blockers.push({ code: "TONE_UNRESOLVED", values: { hz: t.hz, peak: t.measuredPeak, deviationDb: t.deviationDb, ...(outside ? {} : { peakSd: t.peakSd, departureDb: DECISION_RULE.departureDb, powerPercent: 100 * DECISION_RULE.power }) }, about });
     }
   }
   const findings = [...fails, ...c.findings.filter((f) => f.code !== "PASS" || (fails.length === 0 && blockers.length === 0)), ...blockers];
   const verdict: Verdict = fails.length > 0 || c.verdict === "fail" ? "fail" : blockers.length > 0 || c.verdict === "inconclusive" ? "inconclusive" : "pass";
   if (verdict === "pass") {
-    findings.push({ code: "TONES_PASS", values: { tones: tones.length, departureDb: DECISION_RULE.departureDb, falseFailPercent: 100 * DECISION_RULE.tones },
-      text: `${tones.length} tone(s) within their tolerance, each shown in place with the power to see a ${DECISION_RULE.departureDb} dB departure (the tones' share of the false-fail rate ${100 * DECISION_RULE.tones} %)` });
+    findings.push({ code: "TONES_PASS", values: { tones: tones.length, departureDb: DECISION_RULE.departureDb, falseFailPercent: 100 * DECISION_RULE.tones } });
   }
-  return { ...c, verdict, findings, reasons: findings.map((f) => f.text), tones };
+  return { ...c, verdict, findings, tones };
 }
 
 /** The search half-width of a tone's fit: twice its frequency allowance, at least 0.5 Hz, and never reaching a neighbouring tone's allowance (chosen here). */
@@ -166,11 +161,3 @@ export function combineFits(list: (ToneFit | undefined)[], rule: "average" | "la
   return rule === "largest" ? pick : { ...pick, peak: ok.reduce((a, b) => a + b.peak, 0) / ok.length, frequencyHz: ok.reduce((a, b) => a + b.frequencyHz, 0) / ok.length };
 }
 
-
-function fmt(x: number, digits = 4): string {
-  return Number(x.toPrecision(digits)).toString();
-}
-
-function signed(x: number): string {
-  return `${x >= 0 ? "+" : ""}${x.toFixed(2)}`;
-}

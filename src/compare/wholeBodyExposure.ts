@@ -158,17 +158,18 @@ export interface BasicMethodCheck {
   vdvRatio: number;
   /** The limits passed: the r.m.s. figures are enough on their own. */
   adequate: boolean;
-  exceeded: string[];
+  /** The limits exceeded, by name (report/findingTexts.ts says them). */
+  exceeded: (keyof typeof BASIC_METHOD_LIMITS)[];
 }
 
 export function basicMethodCheck(aw: number, crestFactor: number, mtvv: number, vdv: number, durationS: number): BasicMethodCheck {
   const mtvvRatio = mtvv / aw;
   const vdvRatio = vdv / (aw * Math.pow(durationS, 0.25));
   const L = BASIC_METHOD_LIMITS;
-  const exceeded: string[] = [];
-  if (crestFactor > L.crestFactor) exceeded.push(`crest factor ${crestFactor.toFixed(2)} > ${L.crestFactor}`);
-  if (mtvvRatio > L.mtvvRatio) exceeded.push(`MTVV/a_w ${mtvvRatio.toFixed(2)} > ${L.mtvvRatio}`);
-  if (vdvRatio > L.vdvRatio) exceeded.push(`VDV/(a_w T^1/4) ${vdvRatio.toFixed(2)} > ${L.vdvRatio}`);
+  const exceeded: BasicMethodCheck["exceeded"] = [];
+  if (crestFactor > L.crestFactor) exceeded.push("crestFactor");
+  if (mtvvRatio > L.mtvvRatio) exceeded.push("mtvvRatio");
+  if (vdvRatio > L.vdvRatio) exceeded.push("vdvRatio");
   return { crestFactor, mtvvRatio, vdvRatio, adequate: exceeded.length === 0, exceeded };
 }
 

@@ -1,7 +1,7 @@
 import { scaleSamples, type ChannelReading, type ChannelSetting } from "../condition/scaleSamples.js";
 import { amplitudeGates } from "../compare/amplitudeGates.js";
 import { parsevalCheck, type ParsevalCheck } from "../estimate/spectral/parsevalCheck.js";
-import { texts, type Finding } from "../findings.js";
+import type { Finding } from "../findings.js";
 import { InputError } from "../errors.js";
 import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "../estimate/spectral/psdEstimate.js";
 import { HistogramAccumulator, type AmplitudeHistogram } from "../estimate/statistics/amplitudeHistogram.js";
@@ -71,13 +71,10 @@ export interface ChannelAnalysis {
   stretchMeanSquares?: Float64Array | undefined;
   /** Runs of repeated values: is the record a slower sensor's readings held to the file's rate? */
   hold?: SampleHold | undefined;
-  /** Findings that weaken trust in the result; each names what was seen. */
-  warnings: string[];
-  /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
-  doubts: string[];
-  /** The same notes and doubts with their codes. */
+  /** Findings that weaken trust in the result; each names what was seen (rendered by report/findingTexts.ts). */
   notes: Finding[];
-  doubtFindings: Finding[];
+  /** Reasons this channel cannot support a verdict (clipping hint, non-finite samples, …). */
+  doubts: Finding[];
 }
 
 export interface RecordingAnalysis {
@@ -103,7 +100,7 @@ export interface RecordingAnalysis {
   /** Results of `options.accumulators`, in order. */
   extras: unknown[];
   /** Doubts about the whole pass (the rate contract). */
-  passDoubts: string[];
+  passDoubts: Finding[];
 }
 
 export async function analyzeRecording(file: string, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
@@ -173,9 +170,9 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     throw new InputError("RECORD_TOO_SHORT", { file: info.file, expected: "at least one sample", received: "0 samples", hint: "the recording holds no data" });
   }
   const fs = summary.sampleRateHz;
-  const passDoubts: string[] = [];
+  const passDoubts: Finding[] = [];
   if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
-    passDoubts.push(`the record's rate is ${String(fs)} Hz from its whole time column, but the window and the rate-dependent analyses were set up for the ${String(designFs)} Hz its first rows gave`);
+    passDoubts.push({ code: "RATE_MOVED", values: { sampleRateHz: fs, designRateHz: designFs } });
   }
   if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
     throw new InputError("WINDOW_EMPTY", {
@@ -203,12 +200,12 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
     const hold = holds[c]!.result(fs);
     const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
     const note = stationarityNote(stationarity);
-    if (note !== undefined) notes.push({ code: "NOT_STATIONARY", values: stationarityValues(stationarity), text: note });
-    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS }, text: `the window's end ${windowInfo.requestedToS} s lies past the end of the record; the window ends at ${fmt(recordEndS)} s` });
+    if (note !== undefined) notes.push(note);
+    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS } });
     return {
       name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
       tones: spectrum && psd.dof > 0 ? spectralTones(psd, window, spectralKernel(settings.window, window, settings.detrend).halfWidthBins, { max: 8 }) : [],
-      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), peakHold: peakHolds?.[c]!.finish(fs), stationarity, stretchMeanSquares: stretchMs, hold, warnings: texts(notes), doubts: texts(doubts), notes, doubtFindings: doubts,
+      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), peakHold: peakHolds?.[c]!.finish(fs), stationarity, stretchMeanSquares: stretchMs, hold, notes, doubts,
     };
   });
   return {
@@ -248,26 +245,18 @@ export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
   });
 }
 
-/** The note `psd` and `check` print when a record fails the stationarity test. */
-export function stationarityNote(f: StationarityFinding): string | undefined {
+/** The note `psd` and `check` give when a record fails the stationarity test (NOT_STATIONARY, with the numbers it rests on). */
+export function stationarityNote(f: StationarityFinding): Finding | undefined {
   if (!f.tested || f.stationary || f.reverseArrangements === undefined) return undefined;
   const t = f.reverseArrangements;
   const d = f.departing[0];
-  return `not stationary: reverse arrangements A = ${t.statistic} outside ${t.acceptAbove} < A <= ${t.acceptAtMost} (${t.n} values, ${fixedPct(t.alpha)} % test) on ${f.stretches} stretch mean squares of ${fmt(f.stretchS)} s${f.pooled > 1 ? ` pooled ${f.pooled} at a time` : ""}; the PSD averages unlike stretches${d ? `; most departing ${fmt(d.fromS)}-${fmt(d.toS)} s at ${d.levelDb >= 0 ? "+" : ""}${d.levelDb.toFixed(1)} dB from the median` : ""}`;
-}
-
-/** The numbers stationarityNote states, by name (a finding's values). */
-function stationarityValues(f: StationarityFinding): Record<string, number> {
-  const t = f.reverseArrangements!;
-  const d = f.departing[0];
   return {
-    statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, testPercent: 100 * t.alpha, stretches: f.stretches, stretchS: f.stretchS,
-    ...(f.pooled > 1 ? { pooled: f.pooled } : {}), ...(d ? { departingFromS: d.fromS, departingToS: d.toS, departingDb: d.levelDb } : {}),
+    code: "NOT_STATIONARY",
+    values: {
+      statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, testPercent: 100 * t.alpha, stretches: f.stretches, stretchS: f.stretchS,
+      ...(f.pooled > 1 ? { pooled: f.pooled } : {}), ...(d ? { departingFromS: d.fromS, departingToS: d.toS, departingDb: d.levelDb } : {}),
+    },
   };
-}
-
-function fixedPct(a: number): string {
-  return Number((100 * a).toPrecision(3)).toString();
 }
 
 /**
@@ -285,7 +274,7 @@ export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: Parsev
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
   if (s.nonFinite > 0) {
-    doubts.push({ code: "NON_FINITE", values: { samples: s.nonFinite, segmentsLeftOut: p.skippedSegments }, text: `${s.nonFinite} sample(s) are NaN or infinite; ${p.skippedSegments} segment(s) left out of the PSD` });
+    doubts.push({ code: "NON_FINITE", values: { samples: s.nonFinite, segmentsLeftOut: p.skippedSegments } });
   }
   const held = hold?.held === true ? hold : undefined;
   if (held) {
@@ -293,7 +282,6 @@ export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: Parsev
     notes.push({
       code: "HELD_SAMPLES",
       values: { meanRun: held.meanRun, heldPercent: 100 * held.heldShare, updateRateHz: held.updateRateHz, sampleRateHz: fs, nyquistHz: held.updateRateHz / 2 },
-      text: `held samples: values repeat in runs of ${held.meanRun.toFixed(2)} on average (${(100 * held.heldShare).toFixed(1)} % of samples in runs of two or more): the sensor updated at about ${fmt(held.updateRateHz)} Hz and the file repeats its readings to ${fmt(fs)} Hz; content above ${fmt(held.updateRateHz / 2)} Hz is the hold's images, not motion, and the clipping count takes each held extreme once`,
     });
   }
   // A held extreme is one reading: count runs at the extremes, not samples, when the record is held.
@@ -301,22 +289,22 @@ export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: Parsev
   const atMin = held ? held.runsAtMin : s.atMin;
   const clip = clippingHintCount(held ? held.runs : s.count);
   if (atMax >= clip || atMin >= clip) {
-    doubts.push({ code: "CLIPPING", values: { atMax, max: s.max, atMin, min: s.min }, text: `possible clipping: ${atMax} ${held ? "held reading(s)" : "sample(s)"} at the maximum ${fmt(s.max)} and ${atMin} at the minimum ${fmt(s.min)}` });
+    doubts.push({ code: "CLIPPING", values: { atMax, max: s.max, atMin, min: s.min }, ...(held ? { about: { held: true } } : {}) });
   }
   // Without a spectrum (inspect) there are no segment, Parseval or amplitude-gate findings.
-  if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", values: { samples: frames, segmentLength: segment }, text: `record of ${frames} samples is shorter than one segment of ${segment}` });
-  else if (spectrum && p.averages < 8) notes.push({ code: "FEW_AVERAGES", values: { averages: p.averages, lineErrorPercent: 100 * p.randomError }, text: `only ${p.averages} average(s): each line is uncertain by ±${(100 * p.randomError).toFixed(0)} % (1 sigma)` });
-  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) notes.push({ code: "DC_OFFSET", values: { mean: s.mean, meanPercentOfStd: 100 * Math.abs(s.mean / s.std) }, text: `DC offset: mean ${fmt(s.mean)} is ${(100 * Math.abs(s.mean / s.std)).toFixed(0)} % of the standard deviation (sensor bias or gravity?)` });
+  if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", values: { samples: frames, segmentLength: segment } });
+  else if (spectrum && p.averages < 8) notes.push({ code: "FEW_AVERAGES", values: { averages: p.averages, lineErrorPercent: 100 * p.randomError } });
+  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) notes.push({ code: "DC_OFFSET", values: { mean: s.mean, meanPercentOfStd: 100 * Math.abs(s.mean / s.std) } });
   if (spectrum && p.averages > 0) {
     if (!pv.ok) {
       doubts.push({
         code: "PARSEVAL_MISMATCH",
         values: { offPercent: 100 * (pv.ratio - 1), allowedPercent: 100 * pv.tolerance },
-        text: `Parseval mismatch: RMS from the PSD is ${(100 * (pv.ratio - 1)).toFixed(2)} % off the RMS of the same detrended segments (allowed ±${(100 * pv.tolerance).toPrecision(2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""})`,
+        ...(pv.toleranceFrom === "record" ? { about: { toleranceFrom: "record" } } : {}),
       });
     }
     if (pv.belowFirstLineShare > 0.01) {
-      notes.push({ code: "BELOW_FIRST_LINE", values: { sharePercent: 100 * pv.belowFirstLineShare }, text: `${(100 * pv.belowFirstLineShare).toFixed(1)} % of the record's mean square is slower than the first line (drift or a slow trend); the PSD leaves it out` });
+      notes.push({ code: "BELOW_FIRST_LINE", values: { sharePercent: 100 * pv.belowFirstLineShare } });
     }
     if (s.count > 0 && s.std > 0) {
       // Held readings are not independent samples: the gates count readings (updates), not samples.

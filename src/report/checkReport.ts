@@ -10,6 +10,7 @@ import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./ps
 import { findingLines, recordingLines, settingsLine } from "./psdText.js";
 import { printable } from "./printable.js";
 import { excursionJudgement, RULE_SUMMARY, ruleLine, TONE_RULE, VERDICT_MEANING } from "./ruleText.js";
+import { findingsJson, findingTexts } from "./findingTexts.js";
 
 export type { CheckResult };
 
@@ -35,7 +36,7 @@ export function unjudgedText(c: ChannelCompliance): string {
 function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string): string[] {
   const u = accelLabel(ch.units);
   const out = [`${label}: ${WORD[c.verdict]}`];
-  for (const reason of c.reasons) out.push(`  because    ${reason}`);
+  for (const reason of findingTexts(c.findings)) out.push(`  because    ${reason}`);
   const tol = c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
   out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
   out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
@@ -97,8 +98,8 @@ export function checkText(r: CheckResult, version: string): string {
 function judgementJson(c: ChannelCompliance) {
   return {
     verdict: c.verdict,
-    reasons: c.reasons,
-    findings: c.findings,
+    reasons: findingTexts(c.findings),
+    findings: findingsJson(c.findings),
     rms: { ...c.rms, upperDb: c.rms.upperDb ?? null, lowerDb: c.rms.lowerDb ?? null },
     dof: { achieved: c.dof.achieved, required: c.dof.required ?? null, forPower: c.dof.forPower, ok: c.dof.ok },
     rule: c.rule,
@@ -162,10 +163,10 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
           belowFirstLineShare: finiteOrNull(ch.parseval.belowFirstLineShare),
         },
         stats: statsJson(ch),
-        warnings: ch.warnings,
-        doubts: ch.doubts,
-        notes: ch.notes,
-        doubtFindings: ch.doubtFindings,
+        warnings: findingTexts(ch.notes),
+        doubts: findingTexts(ch.doubts),
+        notes: findingsJson(ch.notes),
+        doubtFindings: findingsJson(ch.doubts),
       };
     }),
     caution: VERDICT_CAUTION,

@@ -7,6 +7,7 @@ import { embedResult } from "./embeddedResult.js";
 import { fixed, maxOf, minOf, sig } from "./format.js";
 import { metaRows, qty, recordDocument, reportPage, row, shortHash, signOff, stamp, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
+import { findingText, findingTexts } from "./findingTexts.js";
 
 /**
  * The record of a derivation (`derive --report`): the field's spectra with their envelope, mean and
@@ -146,7 +147,7 @@ export function deriveHtml(r: DeriveResult, version: string, when: Date, context
   const t = r.tolerance;
   const summary = `${d.points.length} breakpoints, ${sig(p.rms, 4)} ${u} RMS for ${sig(r.testDurationS, 5)} s: test damage ≥ ${fixed(r.fit.minRatio, 3)} × the field's over ${sig(r.lifeS / 3600, 5)} h at every natural frequency from ${sig(lo)} to ${sig(hi)} Hz${r.extremeWarnings.length ? `; the extreme-response ratio exceeds ×${r.extremeLimit} at ${r.extremeWarnings.length} of ${r.fnHz.length} natural frequencies` : ""}.`;
   const given = ctx.given && ctx.given.length ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
-  const rec = r.recordings.map((x) => `<tr><td>${esc(x.file)}<br><span class="hash">${x.sha256}</span></td><td>${esc(x.group)}</td><td class="num">${fixed(x.durationS, 1)}</td><td class="num">${sig(x.serviceS / 3600, 5)}</td><td class="num">${sig(x.bandRms, 4)}</td><td class="num">${fixed(x.dof, 0)}</td><td>${x.stationary === undefined ? "not tested" : x.stationary ? "yes" : `<strong>no</strong>: ${esc(x.stationarityNote ?? "")}`}</td></tr>`).join("\n");
+  const rec = r.recordings.map((x) => `<tr><td>${esc(x.file)}<br><span class="hash">${x.sha256}</span></td><td>${esc(x.group)}</td><td class="num">${fixed(x.durationS, 1)}</td><td class="num">${sig(x.serviceS / 3600, 5)}</td><td class="num">${sig(x.bandRms, 4)}</td><td class="num">${fixed(x.dof, 0)}</td><td>${x.stationary === undefined ? "not tested" : x.stationary ? "yes" : `<strong>no</strong>: ${esc(x.stationarityNote ? findingText(x.stationarityNote) : "")}`}</td></tr>`).join("\n");
   const pts = p.breakpoints.map((b, i) => `<tr><td class="num">${sig(b.hz, 5)}</td><td class="num">${sig(b.level, 4)}</td><td class="num">${p.segments[i] ? fixed(p.segments[i]!.slopeDbPerOctave, 2) : ""}</td></tr>`).join("\n");
   const groups = r.groups.map((g) => {
     const share = [...g.damageShare];
@@ -179,7 +180,7 @@ ${psdPlot}
 <table class="meta">
 ${row("Service life", `${qty(sig(r.lifeS / 3600, 6), "h")} (${esc(r.lifeRule === "mix file hours" ? "the mix file's hours" : "given with --life, shared by the recordings' analysed durations")}); each group's time is shared among its recordings by their analysed durations`)}
 ${row("Mean PSD", "each recording weighted by the service time it stands for")}
-${row("Statistical limit", "missing" in t ? esc(t.missing) : `P${fixed(100 * t.coverage, 0)}/${fixed(100 * t.confidence, 0)}: ${esc(TOLERANCE_RULE)}; n = ${t.n}, k = ${fixed(t.k, 4)}`)}
+${row("Statistical limit", "missing" in t ? esc(findingText(t.missing)) : `P${fixed(100 * t.coverage, 0)}/${fixed(100 * t.confidence, 0)}: ${esc(TOLERANCE_RULE)}; n = ${t.n}, k = ${fixed(t.k, 4)}`)}
 </table>
 <table class="grid"><tr><th>group</th><th class="num">service h</th><th class="num">share of the damage</th></tr>
 ${groups}
@@ -200,7 +201,7 @@ ${row("Options given", given)}
 ${row("Computed", `psdgate ${esc(version)}, ${esc(stamp(when))}`)}
 </table>
 ${shocks}
-${r.notes.length ? `<h2>Notes</h2><ul>${r.notes.map((n) => `<li>${esc(n)}</li>`).join("")}</ul>` : ""}
+${r.notes.length ? `<h2>Notes</h2><ul>${findingTexts(r.notes).map((n) => `<li>${esc(n)}</li>`).join("")}</ul>` : ""}
 <h2>Caution</h2>
 <div class="caution keep">${esc(DERIVE_CAUTION)}</div>
 <div class="caution keep">${esc(SHAKER_CAUTION)}</div>

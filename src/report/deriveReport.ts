@@ -6,6 +6,7 @@ import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";
 import { fixed, sig, table } from "./format.js";
 import { printable } from "./printable.js";
 import { finiteOrNull, toolInfo } from "./psdJson.js";
+import { findingText, findingTexts } from "./findingTexts.js";
 
 function arr(a: Float64Array): (number | null)[] {
   return Array.from(a, finiteOrNull);
@@ -53,7 +54,7 @@ export function deriveJson(r: DeriveResult, version: string) {
     groups: r.groups.map((g) => ({ name: g.name, serviceS: g.serviceS, damageShare: arr(g.damageShare) })),
     recordings: r.recordings.map((x) => ({
       file: x.file, sha256: x.sha256, group: x.group, channel: x.channel, durationS: x.durationS, serviceS: x.serviceS, sampleRateHz: x.sampleRateHz, dof: x.dof, averages: x.averages,
-      bandRms: x.bandRms, stationary: x.stationary ?? null, stationarityNote: x.stationarityNote ?? null, fatigue: arr(x.damage), extreme: arr(x.extreme),
+      bandRms: x.bandRms, stationary: x.stationary ?? null, stationarityNote: x.stationarityNote ? findingText(x.stationarityNote) : null, fatigue: arr(x.damage), extreme: arr(x.extreme),
       ...(x.fromPsd ? { fatigueFromPsd: arr(x.fromPsd.damage), extremeFromPsd: arr(x.fromPsd.extreme), kurtosis: x.fromPsd.kurtosis } : {}),
     })),
     field: {
@@ -62,13 +63,13 @@ export function deriveJson(r: DeriveResult, version: string) {
       envelope: arr(r.envelope),
       mean: arr(r.mean),
       meanRule: "each recording weighted by the service time it stands for",
-      tolerance: "missing" in t ? { n: t.n, coverage: t.coverage, confidence: t.confidence, k: null, limit: null, missing: t.missing }
+      tolerance: "missing" in t ? { n: t.n, coverage: t.coverage, confidence: t.confidence, k: null, limit: null, missing: findingText(t.missing) }
         : { n: t.n, coverage: t.coverage, confidence: t.confidence, k: t.k, limit: arr(t.limit), rule: TOLERANCE_RULE },
     },
     profile: r.document,
     motion: { velocityRmsMs: r.motion.velocityRms, displacementRmsM: r.motion.displacementRms, displacementPeakToPeakM: r.motion.displacementPeakToPeak, rule: "closed form over the profile's band; peak-to-peak 6 x RMS (±3 sigma), common practice" },
     stroke: r.stroke ?? null,
-    notes: r.notes,
+    notes: findingTexts(r.notes),
     candidateTones: r.candidateTones,
     caution: DERIVE_CAUTION,
   };
@@ -92,7 +93,7 @@ export function deriveText(r: DeriveResult, version: string, outFile: string): s
     table(rec),
     "",
     `  field      ${sig(r.lineSpacingHz, 4)} Hz lines; band ${sig(r.band.fromHz)}–${sig(r.band.toHz)} Hz; service-weighted mean ${sig(r.compression.meanFieldRms, 4)} ${u} RMS`,
-    `  limit      ${"missing" in t ? t.missing : `P${fixed(100 * t.coverage, 0)}/${fixed(100 * t.confidence, 0)} normal tolerance limit on log10 PSD over ${t.n} recordings, k = ${fixed(t.k, 4)}`}`,
+    `  limit      ${"missing" in t ? findingText(t.missing) : `P${fixed(100 * t.coverage, 0)}/${fixed(100 * t.confidence, 0)} normal tolerance limit on log10 PSD over ${t.n} recordings, k = ${fixed(t.k, 4)}`}`,
     `  damage     Q ${r.q}, Basquin b ${r.sn.basquinB} (defaults Q 10, b 8: common practice), narrow-band Miner, damage margin ×${r.margin}`,
     "",
     table(pts),
@@ -109,7 +110,7 @@ export function deriveText(r: DeriveResult, version: string, outFile: string): s
     table(grid),
     "",
     ...r.candidateTones.map((t) => `TONE: ${printable(t.file)}: ${sig(t.frequencyHz, 6)} Hz, ${sig(t.peak, 3)} peak, ${fixed(t.aboveBackgroundDb, 1)} dB above the lines around it (a candidate for the lab profile's tones)`),
-    ...r.notes.map((n) => `NOTE: ${printable(n)}`),
+    ...findingTexts(r.notes).map((n) => `NOTE: ${printable(n)}`),
     ...(r.notes.length ? [""] : []),
     `CAUTION: ${DERIVE_CAUTION}`,
     `CAUTION: ${SHAKER_CAUTION}`,

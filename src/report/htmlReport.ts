@@ -11,6 +11,7 @@ import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import { qty, reportOpening, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
+import { findingTexts } from "./findingTexts.js";
 
 /**
  * The review report of a check: the verdict, the test's identity, every setting and assumption, per
@@ -134,7 +135,7 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   const judged = role !== "monitor";
   return `<section class="channel" id="channel-${n}">
 <h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel" : "monitoring channel"} judged alone (the record's verdict rests on the control spectrum above):</span> <span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>`}</h2>
-<ul>${comp.reasons.map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
+<ul>${findingTexts(comp.findings).map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
 ${psdPlot}
 ${devPlot}
 <h3>Levels and statistics</h3>
@@ -159,8 +160,8 @@ ${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixe
 ${toneTable(comp, u, n)}
 <h3>Excursions</h3>${excursionTable(comp.excursions, comp.lines.length, `excursions-${n}`)}
 ${hist}
-${c.warnings.length ? `<p class="muted">Notes: ${c.warnings.map(esc).join("; ")}</p>` : ""}
-${c.doubts.length ? `<p><strong>Doubts:</strong> ${c.doubts.map(esc).join("; ")}</p>` : ""}
+${c.notes.length ? `<p class="muted">Notes: ${findingTexts(c.notes).map(esc).join("; ")}</p>` : ""}
+${c.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(c.doubts).map(esc).join("; ")}</p>` : ""}
 </section>`;
 }
 
@@ -186,7 +187,7 @@ function controlSection(r: CheckResult): string {
   const c = r.control!;
   const j = c.judgement;
   return `<section class="channel" id="control"><h2>Control spectrum: ${esc(c.rule)} of ${c.channels.map(esc).join(", ")} <span class="chip ${j.verdict}">${VERDICT_TEXT[j.verdict].word}</span></h2>
-<ul>${j.reasons.map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
+<ul>${findingTexts(j.findings).map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
 <table>${row("RMS in the profile's range, measured / required", `${sig(j.rms.measured, 4)} / ${sig(j.rms.required, 4)} (${esc(signedDb(j.rms.deviationDb))})`, "num")}
 ${row("Degrees of freedom", `${fixed(j.dof.achieved, 1)} (the smallest of the control channels'), ${j.dof.forPower} for the rule's power`, "num")}
 ${row("Decision rule here", esc(ruleLine(j)))}</table>
@@ -207,7 +208,7 @@ function runReasons(r: CheckResult): string {
     const w = worstFirst(c.excursions)[0];
     const worst = w ? `worst excursion ${w.fromHz === w.toHz ? `${sig(w.fromHz, 5)} Hz` : `${sig(w.fromHz, 5)}–${sig(w.toHz, 5)} Hz`} (${w.lines} line${w.lines === 1 ? "" : "s"}, ${w.direction}) ${signedDb(w.worstDb)} against a limit of ${signedDb(w.limitDb)}, ${w.shown ? "shown" : "not shown"}` : "no line outside its band";
     const decide = decideLine(c);
-    const because = c.reasons.map((x) => esc(x)).join("; ");
+    const because = findingTexts(c.findings).map((x) => esc(x)).join("; ");
     return `<li><strong>${esc(name)}: ${VERDICT_TEXT[c.verdict].word}</strong>. ${because.charAt(0).toUpperCase() + because.slice(1)}. ${esc(worst.charAt(0).toUpperCase() + worst.slice(1))}; ${fixed(c.dof.achieved, 1)} DOF of ${Math.max(c.dof.forPower, c.dof.required ?? 0)} a pass needs.${decide ? ` ${esc(decide.charAt(0).toUpperCase() + decide.slice(1))}.` : ""}</li>`;
   });
   return `<div id="run-reasons"><h2>This run</h2><ul>${items.join("")}</ul></div>`;

@@ -7,6 +7,7 @@ import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
 import { PEAK_HOLD_STYLE, qty, reportOpening, reportPage, row, segmentRmsLabel, recordSignOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
+import { findingTexts } from "./findingTexts.js";
 
 /**
  * The record of a PSD with no profile (`psd --report`): per channel the PSD with its confidence band,
@@ -77,8 +78,8 @@ ${row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num")}
 ${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num")}
 </table>
 ${histogramOf(c, n)}
-${c.warnings.length ? `<p class="muted">Notes: ${c.warnings.map(esc).join("; ")}</p>` : ""}
-${c.doubts.length ? `<p><strong>Doubts:</strong> ${c.doubts.map(esc).join("; ")}</p>` : ""}
+${c.notes.length ? `<p class="muted">Notes: ${findingTexts(c.notes).map(esc).join("; ")}</p>` : ""}
+${c.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(c.doubts).map(esc).join("; ")}</p>` : ""}
 </section>`;
 }
 

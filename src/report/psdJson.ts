@@ -3,6 +3,7 @@ import type { StationarityFinding, StationarityTest } from "../estimate/statisti
 import type { TestMeta } from "../read/testMeta.js";
 import { densityAscii } from "../units.js";
 import { csvField } from "./csvField.js";
+import { findingsJson, findingTexts } from "./findingTexts.js";
 
 /** Plain numbers for JSON: NaN and infinities become null (JSON has no such values). */
 export function finiteOrNull(x: number): number | null {
@@ -78,10 +79,10 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
       ...(c.peakHold ? { peakHold: { stretchS: c.peakHold.stretchS, stretches: c.peakHold.stretches, averagesPerStretch: c.peakHold.averagesPerStretch, psd: arr(c.peakHold.psd), atS: arr(c.peakHold.atS) } } : {}),
       stats: statsJson(c),
       stationarity: stationarityJson(c.stationarity),
-      warnings: c.warnings,
-      doubts: c.doubts,
-      notes: c.notes,
-      doubtFindings: c.doubtFindings,
+      warnings: findingTexts(c.notes),
+      doubts: findingTexts(c.doubts),
+      notes: findingsJson(c.notes),
+      doubtFindings: findingsJson(c.doubts),
     })),
   };
 }

@@ -4,6 +4,7 @@ import { chiSquareIntervalFactors } from "../estimate/statistics/distributions.j
 import { accelLabel, densityLabel } from "../units.js";
 import { dB, fixed, rateText, sig } from "./format.js";
 import { printable } from "./printable.js";
+import { findingTexts } from "./findingTexts.js";
 
 const DETREND_WORDS = { none: "nothing removed", mean: "mean removed per segment", linear: "linear trend removed per segment" } as const;
 
@@ -15,7 +16,7 @@ export function recordingLines(a: RecordingAnalysis): string[] {
     `             sha256 ${i.sha256}`,
     ...(a.window.frames !== i.samples ? [`  window     ${windowText(a)}`] : []),
     ...fullScaleLines(a.channels),
-    ...a.passDoubts.map((d) => `  DOUBT      ${d}`),
+    ...findingTexts(a.passDoubts).map((d) => `  DOUBT      ${d}`),
   ];
 }
 
@@ -48,7 +49,7 @@ export function statsLine(c: ChannelAnalysis): string {
 }
 
 export function findingLines(c: ChannelAnalysis): string[] {
-  return [...c.doubts.map((d) => `  DOUBT      ${d}`), ...c.warnings.map((w) => `  note       ${w}`)];
+  return [...findingTexts(c.doubts).map((d) => `  DOUBT      ${d}`), ...findingTexts(c.notes).map((w) => `  note       ${w}`)];
 }
 
 export function psdChannelText(c: ChannelAnalysis, confidence: number): string {

@@ -6,6 +6,7 @@ import { embedResult } from "./embeddedResult.js";
 import { metaRows, PEAK_HOLD_STYLE, recordDocument, recordingRows, recordSignOff, reportPage, row, settingsRows, startTimeOf, type ReportContext } from "./reportPage.js";
 import { RIDE_CAUTIONS, rideJson, zoneFrom } from "./rideReport.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
+import { basicMethodExceeded, findingTexts } from "./findingTexts.js";
 
 /**
  * The ride report: one self-contained HTML page (inline CSS and SVG, no scripts, a Content-Security-Policy
@@ -159,7 +160,7 @@ export function rideHtml(r: RideResult, version: string, when: Date, context: Om
   const Z = r.healthZone;
   const name = a.input.file.split(/[\\/]/).pop() ?? a.input.file;
   const title = m?.testId ? `Whole-body vibration, test ${m.testId}: ${name}` : `Whole-body vibration: ${name}`;
-  const axisRows = r.axes.map((x) => `<tr><td>${esc(x.axis)}</td><td>${esc(x.channel)}</td><td>${x.weighting}</td><td class="num">${sig(x.dose.rms, 4)}</td><td class="num">${sig(x.awFromPsd, 4)}</td><td class="num">${fixed(x.dose.crestFactor, 2)}</td><td class="num">${sig(x.dose.vdv, 4)}</td><td class="num">${sig(x.dose.mtvv, 4)}</td><td class="num">${x.rule.healthK}</td><td>${x.basicMethod.adequate ? "adequate" : esc(x.basicMethod.exceeded.join("; "))}</td><td>${x.stationarity.tested ? (x.stationarity.stationary ? "stationary" : "not stationary") : "not tested"}</td></tr>`).join("\n");
+  const axisRows = r.axes.map((x) => `<tr><td>${esc(x.axis)}</td><td>${esc(x.channel)}</td><td>${x.weighting}</td><td class="num">${sig(x.dose.rms, 4)}</td><td class="num">${sig(x.awFromPsd, 4)}</td><td class="num">${fixed(x.dose.crestFactor, 2)}</td><td class="num">${sig(x.dose.vdv, 4)}</td><td class="num">${sig(x.dose.mtvv, 4)}</td><td class="num">${x.rule.healthK}</td><td>${x.basicMethod.adequate ? "adequate" : esc(basicMethodExceeded(x.basicMethod))}</td><td>${x.stationarity.tested ? (x.stationarity.stationary ? "stationary" : "not stationary") : "not tested"}</td></tr>`).join("\n");
   const top = r.axes.reduce((w, x) => (x.rule.healthK * x.dose.rms > w.rule.healthK * w.dose.rms ? x : w), r.axes[0]!);
   const summary = e
     ? `A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}) for ${sig(e.durationS / 3600, 3)} h a day: ${e.directive.a8} of Directive 2002/44/EC; VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis}): ${e.directive.vdv}.`
@@ -206,7 +207,7 @@ ${r.axes.map((x, i) => svgSpectrogram(`spectrogram-${i + 1}`, x, a.window.fromS)
 <h2>Spectra</h2>
 ${r.axes.map((x, i) => spectrumPlot(x, r, i + 1)).join("\n")}
 <h2>Notes</h2>
-${r.doubts.length + r.notes.length === 0 ? `<p class="muted">None.</p>` : `<ul>${[...r.doubts.map((d) => `<li><b>DOUBT</b> ${esc(d)}</li>`), ...r.notes.map((n) => `<li>${esc(n)}</li>`)].join("")}</ul>`}
+${r.doubts.length + r.notes.length === 0 ? `<p class="muted">None.</p>` : `<ul>${[...findingTexts(r.doubts).map((d) => `<li><b>DOUBT</b> ${esc(d)}</li>`), ...findingTexts(r.notes).map((n) => `<li>${esc(n)}</li>`)].join("")}</ul>`}
 <h2>Cautions</h2>
 ${RIDE_CAUTIONS.map((c) => `<div class="caution keep">${esc(c)}</div>`).join("\n")}
 ${recordSignOff("Ride record", summary, m, [{ label: "Recording", file: a.input.file, sha256: a.input.sha256 }])}`;

@@ -5,6 +5,7 @@ import { csvField } from "./csvField.js";
 import { fixed, sig, table } from "./format.js";
 import { finiteOrNull, inputJson, settingsJson, stationarityJson, toolInfo } from "./psdJson.js";
 import { recordingLines, settingsLine } from "./psdText.js";
+import { findingsJson, findingTexts } from "./findingTexts.js";
 
 /** Cautions every ride result carries, in text and JSON. */
 export const RIDE_CAUTIONS: readonly string[] = [
@@ -58,7 +59,7 @@ export function rideText(r: RideResult, version: string): string {
     for (let i = 1; i < h.psd.length; i++) if (p.psd[i]! > 0 && h.psd[i]! / p.psd[i]! > h.psd[k]! / p.psd[k]!) k = i;
     out.push(`  ${x.axis} peak-hold largest of ${h.stretches} stretches of ${sig(h.stretchS, 3)} s at each line (unweighted); furthest above the average at ${sig(p.frequencyHz[k]!, 4)} Hz: ${fixed(10 * Math.log10(h.psd[k]! / p.psd[k]!), 1)} dB (the stretch from ${sig(h.atS[k]! + a.window.fromS, 5)} s); --json holds it`);
   }
-  out.push(...r.doubts.map((d) => `  DOUBT      ${d}`), ...r.notes.map((n) => `  note       ${n}`));
+  out.push(...findingTexts(r.doubts).map((d) => `  DOUBT      ${d}`), ...findingTexts(r.notes).map((n) => `  note       ${n}`));
   out.push("", ...RIDE_CAUTIONS.map((c) => `  caution    ${c}`), "");
   return out.join("\n");
 }
@@ -113,9 +114,9 @@ export function rideJson(r: RideResult, version: string) {
       iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...r.healthZone },
     } : null,
     seat: r.seat ? { floorChannel: r.seat.floorChannel, awFloor: r.seat.awFloor, awFloorFromPsd: r.seat.awFloorFromPsd, awFloorWelchWeighted: r.seat.awFloorWelchWeighted, awSeat: r.seat.awSeat, seat: r.seat.seat } : null,
-    notes: r.notes,
-    doubts: r.doubts,
-    findings: { notes: r.noteFindings, doubts: r.doubtFindings },
+    notes: findingTexts(r.notes),
+    doubts: findingTexts(r.doubts),
+    findings: { notes: findingsJson(r.notes), doubts: findingsJson(r.doubts) },
     cautions: RIDE_CAUTIONS,
   };
 }

@@ -5,6 +5,7 @@ import { fixed, sig } from "./format.js";
 import { qty, reportOpening, reportPage, row, recordSignOff, type ReportContext } from "./reportPage.js";
 import { SHOCK_CAUTION, SHOCK_METHOD, shockJson } from "./shockReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
+import { findingTexts } from "./findingTexts.js";
 
 /**
  * `shock --report`: the shared record frame (identity, record, settings, sign-off, embedded result for
@@ -97,8 +98,8 @@ export function shockHtml(r: ShockResult, version: string, when: Date, context: 
   ].join("\n");
   const body = `${reportOpening({ verdictClass: "none", word: SHOCK_WORD, line: summary, meta: m, a, ctx, extraSettingsRows: settings })}
 ${r.channels.map((c, i) => channelSection(c, r, i + 1)).join("\n")}
-${r.notes.length ? `<p class="muted">Notes: ${r.notes.map(esc).join("; ")}</p>` : ""}
-${r.doubts.length ? `<p><strong>Doubts:</strong> ${r.doubts.map(esc).join("; ")}</p>` : ""}
+${r.notes.length ? `<p class="muted">Notes: ${findingTexts(r.notes).map(esc).join("; ")}</p>` : ""}
+${r.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(r.doubts).map(esc).join("; ")}</p>` : ""}
 <h2>Caution</h2>
 <div class="caution">${esc(SHOCK_CAUTION)}</div>
 ${recordSignOff("Shock record", summary, m, [{ label: "Recording", file: a.input.file, sha256: a.input.sha256 }])}`;

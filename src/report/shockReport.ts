@@ -5,6 +5,7 @@ import { csvField } from "./csvField.js";
 import { printable } from "./printable.js";
 import { fixed, sig, table } from "./format.js";
 import { toolInfo } from "./psdJson.js";
+import { findingTexts } from "./findingTexts.js";
 
 export const SHOCK_CAUTION =
   "A shock response spectrum is one engineering summary of a shock: the peak responses of a family of linear, lightly damped single-degree-of-freedom systems at one Q. " +
@@ -53,8 +54,8 @@ export function shockJson(r: ShockResult, version: string) {
         srs: srsJson(c.srs, toMs),
       };
     }),
-    notes: r.notes,
-    doubts: r.doubts,
+    notes: findingTexts(r.notes),
+    doubts: findingTexts(r.doubts),
     caution: SHOCK_CAUTION,
   };
 }
@@ -113,8 +114,8 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
     for (let i = 0; i < c.srs.fnHz.length; i++) rows.push([sig(c.srs.fnHz[i]!, 4), sig(c.srs.maximax[i]!, 4), sig(c.srs.positive[i]!, 4), sig(c.srs.negative[i]!, 4), sig(c.pvssMPerS[i]!, 3)]);
     lines.push(`  ${printable(c.name)}: SRS of the whole record`, table(rows), "");
   }
-  for (const n of r.notes) lines.push(`  note: ${printable(n)}`);
-  for (const d of r.doubts) lines.push(`  DOUBT: ${printable(d)}`);
+  for (const n of findingTexts(r.notes)) lines.push(`  note: ${printable(n)}`);
+  for (const d of findingTexts(r.doubts)) lines.push(`  DOUBT: ${printable(d)}`);
   if (r.notes.length + r.doubts.length > 0) lines.push("");
   lines.push(`  ${SHOCK_CAUTION}`, "");
   return lines.join("\n");

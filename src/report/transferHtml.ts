@@ -6,6 +6,7 @@ import { fixed, rateText, sig } from "./format.js";
 import { givenRow, metaRows, qty, readingWords, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
 import { transferJson } from "./transferReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
+import { findingTexts } from "./findingTexts.js";
 
 /**
  * `transfer --report`: one self-contained HTML page (inline CSS and SVG, no scripts, a
@@ -118,7 +119,7 @@ ${row("Good coherence", `γ² ≥ ${s.goodCoherence}`)}
 ${givenRow(ctx)}
 </table>
 ${t.outputs.map((o, i) => outputSection(t, o, i + 1)).join("\n")}
-${t.warnings.length ? `<h2>Notes</h2><ul>${t.warnings.map((w) => `<li>${esc(w)}</li>`).join("")}</ul>` : ""}
+${t.warnings.length ? `<h2>Notes</h2><ul>${findingTexts(t.warnings).map((w) => `<li>${esc(w)}</li>`).join("")}</ul>` : ""}
 <h2>Caution</h2>
 <div class="caution keep">${esc(TRANSFER_CAUTION)}</div>
 ${recordSignOff("Transfer record", summary, m, [{ label: "Recording", file: t.input.file, sha256: t.input.sha256 }])}`;

@@ -4,6 +4,7 @@ import { TRANSFER_CAUTION } from "./cautions.js";
 import { fixed, rateText, sig, table } from "./format.js";
 import { fullScaleLines } from "./psdText.js";
 import { finiteOrNull, toolInfo } from "./psdJson.js";
+import { findingTexts } from "./findingTexts.js";
 
 function arr(a: Float64Array): (number | null)[] {
   return Array.from(a, finiteOrNull);
@@ -40,7 +41,7 @@ export function transferJson(t: TransferAnalysis, version: string) {
       lowCoherenceBands: o.lowCoherenceBands,
       resonances: o.resonances.map((r) => ({ frequencyHz: r.frequencyHz, magnitude: r.magnitude, q: r.q, halfPowerHz: r.halfPowerHz, coherence: r.coherence, resolutionLimited: r.resolutionLimited })),
     })),
-    warnings: t.warnings,
+    warnings: findingTexts(t.warnings),
     caution: TRANSFER_CAUTION,
   };
 }
@@ -97,7 +98,7 @@ export function transferText(t: TransferAnalysis, version: string): string {
     "",
     `  H1 = G_xy/G_xx (unbiased by output noise), H2 = G_yy/G_yx (unbiased by input noise); their ratio is the coherence. Per-line random errors (Bendat & Piersol ch. 9) and the |H1| bounds: --json, plotted by --report.`,
   );
-  for (const w of t.warnings) lines.push(`  warning: ${w}`);
+  for (const w of findingTexts(t.warnings)) lines.push(`  warning: ${w}`);
   lines.push("", `CAUTION: ${TRANSFER_CAUTION}`);
   return lines.join("\n") + "\n";
 }

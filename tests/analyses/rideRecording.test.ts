@@ -1,6 +1,7 @@
 import { readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
+import { findingText, findingTexts } from "../../src/report/findingTexts.js";
 import { rideRecording, weightedRmsFromPsd } from "../../src/analyses/rideRecording.js";
 import { weightingMagnitude } from "../../src/weight/isoWeightings.js";
 import { designWeightingFilter } from "../../src/weight/weightingFilter.js";
@@ -67,14 +68,14 @@ print(json.dumps({"aw": aw, "vdv": vdv, "a8": float(a8), "vdvDay": float(vd)}))
     const [a, b] = await Promise.all([rideRecording(sample, noExposure), rideRecording(sample, sampleOptions)]);
     expect(a.exposure).toBeUndefined();
     expect(a.axes.map((x) => [x.dose.rms, x.dose.vdv, x.dose.mtvv, x.dose.crestFactor])).toEqual(b.axes.map((x) => [x.dose.rms, x.dose.vdv, x.dose.mtvv, x.dose.crestFactor]));
-    const note = a.noteFindings.find((f) => f.code === "EXPOSURE_NOT_GIVEN")!;
-    expect(note.text).toMatch(/A\(8\), the daily VDV .* need the daily exposure/);
-    expect(b.noteFindings.some((f) => f.code === "EXPOSURE_NOT_GIVEN")).toBe(false);
+    const note = a.notes.find((f) => f.code === "EXPOSURE_NOT_GIVEN")!;
+    expect(findingText(note)).toMatch(/A\(8\), the daily VDV .* need the daily exposure/);
+    expect(b.notes.some((f) => f.code === "EXPOSURE_NOT_GIVEN")).toBe(false);
   });
   it("a non-stationary ride: the route and Parseval checks are notes with the stationarity test beside them, never doubts", async () => {
     const r = await rideRecording(sample, sampleOptions);
-    expect(r.doubtFindings.map((f) => f.code)).toEqual([]);
-    for (const f of r.noteFindings.filter((n) => n.code === "ROUTES_DIFFER_NOT_STATIONARY" || n.code === "PARSEVAL_NOT_STATIONARY")) expect(f.text).toMatch(/not stationary \(reverse arrangements A = \d+/);
+    expect(r.doubts.map((f) => f.code)).toEqual([]);
+    for (const f of r.notes.filter((n) => n.code === "ROUTES_DIFFER_NOT_STATIONARY" || n.code === "PARSEVAL_NOT_STATIONARY")) expect(findingText(f)).toMatch(/not stationary \(reverse arrangements A = \d+/);
   });
 });
 
@@ -108,7 +109,7 @@ describe("rideRecording on records made here", () => {
     expect(Math.abs(z!.dose.mtvv / 0.9672 - 1)).toBeLessThan(1e-3);
     expect(Math.abs(r.seat!.seat / (1 / 0.8) - 1)).toBeLessThan(1e-3);
     expect(Math.abs(r.exposure!.a8 / 0.9672 - 1)).toBeLessThan(1e-3); // 1.4 x 0.256 < 0.967, 8 h
-    expect(r.notes.join()).toContain("only x, z measured");
+    expect(findingTexts(r.notes).join()).toContain("only x, z measured");
   });
   it("weightedRmsFromPsd on white noise equals sigma x the weighting's noise bandwidth, sqrt(2/fs sum |W|^2 df) (Parseval)", () => {
     const fs = 1000;
@@ -144,8 +145,8 @@ describe("rideRecording on records made here", () => {
   it("a window shorter than one Welch segment keeps the time-domain figures and says the PSD route is missing (no NaN doubt)", async () => {
     const r = await rideRecording(sample, { ...sampleOptions, fromS: 10, toS: 12 });
     expect(r.axes[2]!.dose.rms).toBeGreaterThan(0);
-    expect(r.doubts.filter((d) => d.includes("NaN"))).toEqual([]);
-    expect(r.notes.join()).toContain("no whole Welch segment");
+    expect(findingTexts(r.doubts).filter((d) => d.includes("NaN"))).toEqual([]);
+    expect(findingTexts(r.notes).join()).toContain("no whole Welch segment");
   });
   it("input errors: an unknown axis channel names the option axes; a rate below 100 Hz is refused", async () => {
     const file = write("slow.wav", 80, 30, () => [0, 0, 0, 0]);
@@ -182,13 +183,13 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
       expect(Math.abs(r.axes[1]!.dose.rms / table.Wk![4]! - 1)).toBeLessThan(1e-3 + wk / 100); // Table 3 rounding 5e-5
       expect(Math.abs(r.seat!.awFloor / table.Wk![top]! - 1)).toBeLessThan(2e-3 + wk / 100);
       expect(Math.abs(r.axes[0]!.dose.rms / table.Wd![top]! - 1)).toBeLessThan(1e-2 + wd / 100); // 0.0632 and 0.0295: 3 figures
-      const e = r.noteFindings.find((f) => f.code === "WEIGHTING_ERROR")!;
+      const e = r.notes.find((f) => f.code === "WEIGHTING_ERROR")!;
       expect(e.values.rateHz).toBe(fs);
       expect(e.values.maxErrorPercent).toBe(Number(Math.max(wk, wd).toPrecision(2)));
-      expect(e.text).toMatch(/a_w, crest factor, VDV, MTVV, the total value and SEAT carry it/);
-      expect(r.noteFindings.some((f) => f.code === "BAND_SHORT")).toBe(fs < 180);
+      expect(findingText(e)).toMatch(/a_w, crest factor, VDV, MTVV, the total value and SEAT carry it/);
+      expect(r.notes.some((f) => f.code === "BAND_SHORT")).toBe(fs < 180);
       // Pure sines trip the amplitude gates (a deterministic signal's crest and kurtosis), not the weighting checks.
-      expect(r.doubtFindings.filter((f) => f.code === "ROUTES_DIFFER" || f.code === "PARSEVAL_MISMATCH")).toEqual([]);
+      expect(r.doubts.filter((f) => f.code === "ROUTES_DIFFER" || f.code === "PARSEVAL_MISMATCH")).toEqual([]);
     });
   }
   it("the stated error per rate (README's table) is the scipy-measured one: 100 Hz 2.3 %, 128 Hz 2.1 %, 200 Hz 2.7 %, 256 Hz 0.72 %, 400 Hz 0.093 % at most over the weightings", () => {
@@ -201,10 +202,10 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
       const z = new Float64Array(60 * 200);
       for (let i = 0; i < z.length; i++) z[i] = 9.80665 + readings[Math.floor(i / factor)]!;
       const r = await rideRecording(wav(`held-${factor}.wav`, 200, [z]), { inputUnits: "m/s2", axes: { z: "1" }, posture: "seated" });
-      const note = r.noteFindings.find((f) => f.code === "HELD_SAMPLES")!;
+      const note = r.notes.find((f) => f.code === "HELD_SAMPLES")!;
       expect(note.values.updateRateHz).toBe(200 / factor);
-      expect(note.text).toMatch(/^z \(ch1\): held samples/);
-      expect(r.doubtFindings.map((f) => f.code)).not.toContain("CLIPPING");
+      expect(findingText(note)).toMatch(/^z \(ch1\): held samples/);
+      expect(r.doubts.map((f) => f.code)).not.toContain("CLIPPING");
     });
   }
   it("curves (the lateral axis tilting between -1.0 and +0.8 every 20 s) and a 60 s stop: the Parseval and route mismatches are notes with the failed stationarity test beside them, not doubts", async () => {
@@ -216,12 +217,12 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
         return (Math.floor(t / 20) % 2 === 1 ? 0.8 : -1) + (t > 100 && t < 160 ? 0.2 : 1) * v;
       });
       const r = await rideRecording(wav(`curves-${fs}.wav`, fs, [y]), { inputUnits: "m/s2", axes: { y: "1" }, posture: "seated" });
-      expect(r.doubtFindings.map((f) => f.code), `${fs} Hz`).toEqual([]);
-      const parseval = r.noteFindings.find((f) => f.code === "PARSEVAL_NOT_STATIONARY")!;
+      expect(r.doubts.map((f) => f.code), `${fs} Hz`).toEqual([]);
+      const parseval = r.notes.find((f) => f.code === "PARSEVAL_NOT_STATIONARY")!;
       expect(parseval.values.offPercent).toBeLessThan(-10); // the issue's rides: -19 %
-      expect(parseval.text).toMatch(/the (weighted|unweighted) level is not stationary \((run test: R|reverse arrangements A) = \d+ outside/);
+      expect(findingText(parseval)).toMatch(/the (weighted|unweighted) level is not stationary \((run test: R|reverse arrangements A) = \d+ outside/);
       if (fs === 1000) {
-        const route = r.noteFindings.find((f) => f.code === "ROUTES_DIFFER_NOT_STATIONARY")!;
+        const route = r.notes.find((f) => f.code === "ROUTES_DIFFER_NOT_STATIONARY")!;
         expect(Math.abs(route.values.offPercent!)).toBeGreaterThan(1);
       }
     }

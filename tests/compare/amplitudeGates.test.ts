@@ -33,14 +33,14 @@ describe("amplitudeGates", () => {
     const noise = gaussian(x.length, 4);
     for (let i = 0; i < x.length; i++) x[i] = Math.max(-2.2 * sigma, Math.min(2.2 * sigma, x[i]!)) + 2 * lsb * noise[i]!;
     const a = await analyzeRecording(wavFile(x, "saturated.wav"), { segmentLength: 2048 });
-    const codes = a.channels[0]!.doubtFindings.map((d) => d.code);
+    const codes = a.channels[0]!.doubts.map((d) => d.code);
     expect(codes).toContain("CREST_LOW");
     expect(codes).toContain("KURTOSIS_LOW");
   });
   it("a Gaussian record of the same spectrum raises neither doubt (20 records)", async () => {
     for (let r = 0; r < 20; r++) {
       const a = await analyzeRecording(wavFile(shapedRecord(broadband, FS, 1 << 16, 100 + r), `g${r}.wav`), { segmentLength: 2048 });
-      expect(a.channels[0]!.doubtFindings).toEqual([]);
+      expect(a.channels[0]!.doubts).toEqual([]);
     }
   });
   it("a record with shocks on top gets a note (kurtosis above Gaussian), not a doubt", async () => {
@@ -48,13 +48,13 @@ describe("amplitudeGates", () => {
     for (let i = 1000; i < x.length; i += 9000) x[i] = x[i]! + 30;
     const a = await analyzeRecording(wavFile(x, "shocks.wav"), { segmentLength: 2048 });
     expect(a.channels[0]!.notes.map((n) => n.code)).toContain("KURTOSIS_HIGH");
-    expect(a.channels[0]!.doubtFindings.map((d) => d.code)).not.toContain("KURTOSIS_LOW");
+    expect(a.channels[0]!.doubts.map((d) => d.code)).not.toContain("KURTOSIS_LOW");
   });
   it("a slow drift far below the first line is a note, and check is not made inconclusive by it", async () => {
     const x = shapedRecord(broadband, FS, 1 << 18, 6);
     for (let i = 0; i < x.length; i++) x[i] = x[i]! + 3 * Math.sin((2 * Math.PI * 0.05 * i) / FS) + 0.1 * (i / x.length);
     const a = await analyzeRecording(wavFile(x, "drift.wav"), { segmentLength: 2048 });
     expect(a.channels[0]!.notes.map((n) => n.code)).toContain("BELOW_FIRST_LINE");
-    expect(a.channels[0]!.doubtFindings).toEqual([]);
+    expect(a.channels[0]!.doubts).toEqual([]);
   });
 });

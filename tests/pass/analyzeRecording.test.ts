@@ -5,6 +5,7 @@ import { analyzeRecording, analyzeSource, clippingHintCount, type PassAccumulato
 import type { TimeHistorySource } from "../../src/read/timeHistory.js";
 import { cli, gaussian, maxRelDiff, tempDir } from "../helpers.js";
 import { wavBytes } from "../wavBytes.js";
+import { findingText, findingTexts } from "../../src/report/findingTexts.js";
 
 const dir = tempDir();
 
@@ -19,7 +20,7 @@ describe("clipping hint", () => {
     writeFileSync(f, wavBytes({ bits: 16, channels: 1, samples: Array.from(x) }));
     const a = await analyzeRecording(f, { segmentLength: 1024 });
     expect(a.channels[0]!.stats.atMax).toBeGreaterThan(0);
-    expect(a.channels[0]!.doubts.filter((d) => d.includes("clipping"))).toEqual([]);
+    expect(findingTexts(a.channels[0]!.doubts).filter((d) => d.includes("clipping"))).toEqual([]);
   });
   it("a recording clipped at 4 sigma is flagged (Gaussian tail beyond 4 sigma: 6.3e-5, REFERENCES.md sec. 10)", async () => {
     const x = gaussian(400_000, 9, 3000).map((v) => Math.round(Math.max(-12000, Math.min(12000, v))));
@@ -27,7 +28,7 @@ describe("clipping hint", () => {
     writeFileSync(f, wavBytes({ bits: 16, channels: 1, samples: Array.from(x) }));
     const a = await analyzeRecording(f, { segmentLength: 1024 });
     expect(a.channels[0]!.stats.atMax).toBeGreaterThanOrEqual(clippingHintCount(400_000));
-    expect(a.channels[0]!.doubts.join()).toContain("possible clipping");
+    expect(findingTexts(a.channels[0]!.doubts).join()).toContain("possible clipping");
   });
 });
 
@@ -218,7 +219,7 @@ describe("analyzeSource: extra accumulators, the rate contract and the frame win
   });
   it("a final rate other than the design rate is a doubt on the pass (the rate contract)", async () => {
     const a = await analyzeSource(source(new Float64Array(5000), 100, 100.5), { segmentLength: 256, accumulators: [new Counter()] });
-    expect(a.passDoubts.join()).toMatch(/100\.5 Hz .* 100 Hz/);
+    expect(findingTexts(a.passDoubts).join()).toMatch(/100\.5 Hz .* 100 Hz/);
   });
   it("--from/--to cut frames i with from <= i/fs < to, recorded in the window, for every accumulator alike", async () => {
     const x = Float64Array.from({ length: 5000 }, (_, i) => i);
@@ -234,7 +235,7 @@ describe("analyzeSource: extra accumulators, the rate contract and the frame win
     await expect(analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, fromS: 60 })).rejects.toThrow(/option fromS.*WINDOW_EMPTY/);
     const a = await analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, toS: 80 });
     expect(a.window.toS).toBe(50);
-    expect(a.channels[0]!.warnings.join()).toContain("the window's end 80 s lies past the end");
+    expect(findingTexts(a.channels[0]!.notes).join()).toContain("the window's end 80 s lies past the end");
   });
 });
 
@@ -334,9 +335,9 @@ describe("sample-and-hold on the shared pass (psd, check and ride all read it)",
       const note = c.notes.find((f) => f.code === "HELD_SAMPLES")!;
       expect(note.values.updateRateHz).toBe(200 / factor);
       expect(note.values.nyquistHz).toBe(100 / factor);
-      expect(note.text).toContain(`about ${200 / factor} Hz`);
+      expect(findingText(note)).toContain(`about ${200 / factor} Hz`);
       expect(c.stats.atMax).toBe(factor); // the samples repeat: the old count would call it clipping
-      expect(c.doubtFindings.map((f) => f.code)).not.toContain("CLIPPING");
+      expect(c.doubts.map((f) => f.code)).not.toContain("CLIPPING");
       const { checkRecording } = await import("../../src/analyses/checkRecording.js");
       const { parseProfile } = await import("../../src/compare/testProfile.js");
       const profile = parseProfile(JSON.stringify({ title: "to 80 Hz", units: "g2/Hz", points: [{ hz: 5, level: 1e-5 }, { hz: 80, level: 1e-5 }], tolerance: { bands: [{ fromHz: 5, toHz: 80, upperDb: 3, lowerDb: 3 }] } }), "p.json");
