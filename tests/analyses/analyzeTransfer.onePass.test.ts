@@ -29,7 +29,7 @@ async function ownPass(file: string, o: { input: number; outputs: number[] } & O
   const { first, end } = frameWindow(clockWindow(o, info), info.sampleRateHz);
   const window = spectralWindow(s.window, s.segmentLength);
   const acc = new CrossSpectrumAccumulator({ segmentLength: s.segmentLength, hop: s.hop, window, detrend: s.detrend }, select.length, 0);
-  const views = select.map(() => new Float64Array(0));
+  const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
   let taken = 0;
   const summary = await source.read(select, (blocks, frames) => {
