@@ -9,6 +9,7 @@ import { spectralKernel } from "../estimate/spectral/spectralKernel.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import { logToleranceLimit, MIN_TOLERANCE_SAMPLES, type LogToleranceLimit } from "../estimate/statistics/toleranceLimit.js";
 import type { ServiceMix } from "../read/mixFile.js";
+import type { ChannelName } from "../read/channelChoice.js";
 import { fitDamageProfile, type Breakpoint } from "../synth/profileFit.js";
 import { accelFactor, type AccelUnit } from "../units.js";
 
@@ -61,14 +62,15 @@ export interface DeriveOptions {
   mix?: Pick<ServiceMix, "file" | "sha256"> | undefined;
   testDurationS: number;
   analysis?: AnalysisOptions | undefined;
-  /** The one channel of each recording used (default the first). */
-  channel?: string | undefined;
+  /** The one channel of each recording used, as a list of one (default the first): `channels`, as every command spells it. */
+  channels?: ChannelName[] | undefined;
   q?: number | undefined;
   basquinB?: number | undefined;
   maxBreakpoints?: number | undefined;
   margin?: number | undefined;
-  fromHz?: number | undefined;
-  toHz?: number | undefined;
+  /** The band of the profile and of the natural-frequency grid (`fminHz`/`fmaxHz`, as psd and respond spell it). */
+  fminHz?: number | undefined;
+  fmaxHz?: number | undefined;
   perOctave?: number | undefined;
   coverage?: number | undefined;
   toleranceConfidence?: number | undefined;
@@ -231,11 +233,13 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const sn: SnCurve = { ...SN_DEFAULTS, basquinB: b };
 
   // 1. Each recording's PSD, one channel, on one resolution, in one unit.
+  if ((o.channels?.length ?? 0) > 1) throw new InputError("OPTION_INVALID", { option: "channels", expected: "one channel", received: o.channels!.join(", ") });
+  const channel = o.channels?.[0] ?? "1";
   const base: AnalysisOptions = { ...o.analysis, resultUnits: o.analysis?.resultUnits ?? "g" };
   if (base.resolutionHz === undefined && base.segmentLength === undefined) base.resolutionHz = DERIVE_DEFAULTS.resolutionHz;
   const analysed = [];
   for (const r of o.recordings) {
-    const a = await analyzeRecording(r.file, { ...base, channels: [o.channel ?? "1"], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined });
+    const a = await analyzeRecording(r.file, { ...base, channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined });
     const c = a.channels[0]!;
     if (c.psd.averages === 0) {
       throw new InputError("RECORD_TOO_SHORT", { file: r.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.window.frames} samples`, hint: "use a shorter `segmentLength` or a coarser `resolutionHz`" });
@@ -254,10 +258,10 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const frequencyHz = first.c.psd.frequencyHz.slice(0, lines);
   const topHz = frequencyHz[lines - 1]!;
   const minRate = Math.min(...analysed.map((x) => x.a.input.sampleRateHz));
-  const fromHz = o.fromHz ?? Math.max(5, 4 * df);
-  const toHz = o.toHz ?? Math.min(2000, 0.4 * minRate);
-  checkRange("fromHz", fromHz, fromHz >= 2 * df, `a lower band edge of at least 2 lines (${2 * df} Hz)`);
-  checkRange("toHz", toHz, toHz > fromHz * 1.5 && toHz <= topHz - df, `an upper band edge above 1.5 x \`fromHz\` (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`);
+  const fromHz = o.fminHz ?? Math.max(5, 4 * df);
+  const toHz = o.fmaxHz ?? Math.min(2000, 0.4 * minRate);
+  checkRange("fminHz", fromHz, fromHz >= 2 * df, `a lower band edge of at least 2 lines (${2 * df} Hz)`);
+  checkRange("fmaxHz", toHz, toHz > fromHz * 1.5 && toHz <= topHz - df, `an upper band edge above 1.5 x \`fminHz\` (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`);
   const fnHz = octaveGrid(fromHz, toHz, perOctave);
   const units = first.c.units;
   const toSi = accelFactor(units, "m/s2");
@@ -279,7 +283,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   if (fieldDamage === "time") {
     const { loadSpectrumSource, responseSpectra } = await import("./responseSpectra.js");
     for (const { r } of analysed) {
-      const src = await loadSpectrumSource(r.file, { ...base, as: "recording", channel: o.channel ?? "1", fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: fromHz, fmaxHz: toHz, response: { fnHz, q, basquinB: b } });
+      const src = await loadSpectrumSource(r.file, { ...base, as: "recording", channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: fromHz, fmaxHz: toHz, response: { fnHz, q, basquinB: b } });
       const t = src.timeResponse!;
       const perSecond = responseSpectra(src, { fnHz, q, durationS: t.recordS, sn: { ...sn, stressPerUnit: 1, snConstant: 1 } });
       const td = perSecond.timeDomain!;
@@ -401,7 +405,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       eventsPerRecording.push(0);
       continue;
     }
-    const sr = await shockRecording(r.file, { ...base, channels: [o.channel ?? "1"], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined, fnHz: keep.map((i) => fnHz[i]!), q });
+    const sr = await shockRecording(r.file, { ...base, channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined, fnHz: keep.map((i) => fnHz[i]!), q });
     const ch = sr.channels[0]!;
     keep.forEach((i, k) => {
       const v = ch.srs.maximax[k]!;
@@ -427,7 +431,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const unitText = units === "g" ? "g2/Hz" : "(m/s2)2/Hz";
   const parameters: Record<string, number | string | boolean | null> = {
     lifeS, lifeHours: lifeS / 3600, lifeRule: o.lifeRule, testDurationS: o.testDurationS, q, basquinB: b, damageMargin: margin, maxBreakpoints: nMax,
-    fnGrid: `${fromHz}:${toHz}:${perOctave} (Hz, per octave)`, fromHz, toHz, channel: o.channel ?? "1", resolutionHz: df,
+    fnGrid: `${fromHz}:${toHz}:${perOctave} (Hz, per octave)`, fromHz, toHz, channel: String(channel), resolutionHz: df,
     window: first.a.settings.window, segmentLength: first.a.settings.segmentLength, overlap: first.a.settings.overlap, detrend: first.a.settings.detrend,
     toleranceCoverage: coverage, toleranceConfidence: confidence, extremeLimit, bandDb, rmsPercent, minDof,
     ...(fieldDamage === "time" ? { fieldDamage } : {}),
