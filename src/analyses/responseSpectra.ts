@@ -1,7 +1,7 @@
 import { analyzeRecording, recordTooShort, type AnalysisOptions, type PassAccumulator } from "../pass/analyzeRecording.js";
 import type { ChannelReading } from "../condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
-import { InputError, quoted } from "../errors.js";
+import { InputError } from "../errors.js";
 import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "../estimate/response/fatigueDamage.js";
 import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "../estimate/response/inputSpectrum.js";
 import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "../estimate/response/kinematics.js";
