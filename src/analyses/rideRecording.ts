@@ -176,7 +176,11 @@ export async function rideRecording(file: string, options: RideOptions): Promise
   return rideSource(source, options);
 }
 
-export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
+/**
+ * Ride's pass: the axes and the floor picked the one way (read/channelChoice.ts), checked, and the one pass
+ * with the weighting listener, Welch resolved once with ride's defaults (in the pass's resolved analysis).
+ */
+async function ridePass(source: TimeHistorySource, options: RideOptions) {
   const { info } = source;
   const axes = (["x", "y", "z"] as const).filter((a) => options.axes[a] !== undefined);
   if (axes.length === 0) throw new InputError("OPTION_INVALID", { option: "axes", expected: "at least one of x=CH, y=CH, z=CH", received: "none" });
@@ -212,6 +216,11 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
       throw new InputError("RECORD_TOO_SHORT", { file: analysis.input.file, field: ch.name, expected: "finite samples to weight", received: `${analysis.window.frames} samples, ${analysis.window.frames === 0 ? "none" : "all"} of them NaN or infinite` });
     }
   }
+  return { axes, rules, plan, analysis, results };
+}
+
+export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
+  const { axes, rules, plan, analysis, results } = await ridePass(source, options);
   const notes: Finding[] = [];
   const doubts: Finding[] = analysis.passDoubts.map((text) => ({ code: "RATE_MOVED", values: {}, text }));
   const fs = analysis.input.sampleRateHz;
