@@ -109,9 +109,10 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   }
   // The one pass: reading, conditioning, the window cut and the memory bound (the listener's 2k - 1
   // spectra, before a byte is read) are the pass's; its own Welch spectra are not needed (the cross
-  // spectra hold the auto spectra), so `spectrum` is off and the band, peak-hold and histogram unasked.
+  // spectra hold the auto spectra), so `spectrum` is off, and so are the channels' statistics (nothing of
+  // transfer's result comes from them; they cost a fifth of its time); the band, peak-hold, histogram unasked.
   const a = await analyzeSource(source, {
-    ...options, channels: select.map((i) => i + 1), resultUnits: common, spectrum: false, histogram: false, forReport: undefined,
+    ...options, channels: select.map((i) => i + 1), resultUnits: common, spectrum: false, statistics: false, histogram: false, forReport: undefined,
     fminHz: undefined, fmaxHz: undefined, peakHoldS: undefined, stretchS: undefined, accumulators: [cross],
   });
   const sums = a.extras[0] as ReturnType<CrossSpectrumListener["finish"]>;

@@ -50,6 +50,12 @@ export interface AnalysisOptions extends RecordingOptions {
   spectrum?: boolean | undefined;
   /** Also build the amplitude histogram of each channel (one more pass over each block). */
   histogram?: boolean | undefined;
+  /**
+   * The built-in per-channel statistics (moments, sample-and-hold runs, stationarity stretches; default true).
+   * Only without a spectrum can they be turned off: `transfer`'s listener holds every figure it reports, and
+   * the channels' `stats` are then empty.
+   */
+  statistics?: boolean | undefined;
   /** The result goes into an HTML record: channels x segment length is held to MAX_REPORT_SAMPLES before the work. */
   forReport?: boolean | undefined;
   /** Also a peak-hold spectrum: the largest Welch PSD of consecutive stretches of this length, s, at each line. */
@@ -90,6 +96,8 @@ export interface ResolvedAnalysis {
   stretchS: number;
   spectrum: boolean;
   histogram: boolean;
+  /** Present (false) only when the built-in statistics were off (AnalysisOptions.statistics). */
+  statistics?: false | undefined;
   /** Length of the peak-hold spectrum's stretches, s, when one is asked for. */
   peakHoldS?: number | undefined;
 }

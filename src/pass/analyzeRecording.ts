@@ -181,7 +181,9 @@ function builtInListeners(plan: AnalysisPlan, designFs: number): BuiltIn {
   const stretchLength = rateKnown ? Math.max(2, Math.round(a.stretchS * designFs)) : 2;
   const stretches = select.map(() => new StretchMeanSquares(stretchLength));
   const holds = select.map(() => new SampleHoldAccumulator());
-  const perChannel = select.map((_, c) => ([moments[c]!, holds[c]!, histograms?.[c], welch[c], stretches[c]!, peakHolds?.[c]] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
+  // Without the statistics (a.statistics false, no spectrum) the moments, runs and stretches stay unfed: empty.
+  const stats = a.statistics !== false;
+  const perChannel = select.map((_, c) => ([stats ? moments[c] : undefined, stats ? holds[c] : undefined, histograms?.[c], welch[c], stats ? stretches[c] : undefined, peakHolds?.[c]] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
   return { window, welch, moments, histograms, peakHolds, stretchLength, stretches, holds, perChannel };
 }
 

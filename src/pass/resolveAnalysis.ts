@@ -58,6 +58,7 @@ export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): 
     stretchS,
     spectrum,
     histogram: options.histogram === true,
+    ...(options.statistics === false && !spectrum ? { statistics: false as const } : {}),
     peakHoldS,
   };
   return { analysis, select, conditioning, first, end };
