@@ -1,6 +1,8 @@
 // The public library API of psdgate, one name per line.
 export { resolveAnalysis, selectChannels, type ResolvedAnalysis } from "./pass/resolveAnalysis.js";
 export { analyzeRecording, analyzeSource, recordTooShort, clippingHintCount, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./pass/analyzeRecording.js";
+export type { RecordingOptions } from "./pass/analysisOptions.js";
+export { channelIndex, channelIndices, type ChannelName } from "./read/channelChoice.js";
 export { checkRecording, loadProfile, combineSpectra, spectrumOf, CONTROL_RULES, type CheckResult, type CheckOptions, type ControlRule } from "./analyses/checkRecording.js";
 export { InputError, formatInputError, EXIT, errorToWire, errorFromWire, type ErrorPlace, type InputErrorDetails, type WireError } from "./errors.js";
 export { STANDARD_GRAVITY_M_PER_S2, INCH_M, FOOT_M, accelFactor, parseUnitSpec, parseSensitivity, type AccelUnit, type UnitSpec } from "./units.js";
@@ -61,7 +63,7 @@ export { reverseArrangementsTest, runTest, stationarityFinding, inversionDistrib
 export { WelchWeightedMeanSquare } from "./estimate/spectral/welchTimeWeights.js";
 export { axisRules, dailyExposure, vibrationTotalValue, comfortReactions, basicMethodCheck, seatTransmissibility, DIRECTIVE_2002_44_EC, ISO_2631_HEALTH_ZONE, COMFORT_REACTIONS, BASIC_METHOD_LIMITS, POSTURES, AXES, type Posture, type Axis, type AxisRule, type DailyExposure } from "./compare/wholeBodyExposure.js";
 export { type PassAccumulator, type FrameWindow, stationarityNote } from "./pass/analyzeRecording.js";
-export { CrossSpectrumAccumulator, crossSpectralDensity, type CrossSpectrumSums } from "./estimate/spectral/crossSpectrum.js";
+export { CrossSpectrumAccumulator, CrossSpectrumListener, crossSpectralDensity, type CrossSpectrumSums } from "./estimate/spectral/crossSpectrum.js";
 export { frequencyResponse, findResonances, type FrequencyResponse, type Resonance, type ResonanceOptions } from "./estimate/spectral/frequencyResponse.js";
 export { powerLawSpectrum, lineSpectrum, spectralMoments, type InputSpectrum, type SpectralMoments } from "./estimate/response/inputSpectrum.js";
 export { absoluteTransmissibilitySquared, relativeDisplacementSquared, sdofResponse, milesRms, milesRelativeDisplacementRms, type SdofResponse } from "./estimate/response/sdofResponse.js";

@@ -331,8 +331,8 @@ async function allFindings(): Promise<Finding[]> {
     return f;
   });
   const dated = { testDurationS: 3600, version: "test", created: new Date(0) };
-  out.push(...(await deriveProfile({ ...plainInputs(toned, 100 * 3600), ...dated, fromHz: 10, toHz: 400 })).notes);
-  out.push(...(await deriveProfile({ ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), ...dated, fromHz: 5, toHz: 400, fieldDamage: "time" })).notes);
+  out.push(...(await deriveProfile({ ...plainInputs(toned, 100 * 3600), ...dated, fminHz: 10, fmaxHz: 400 })).notes);
+  out.push(...(await deriveProfile({ ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), ...dated, fminHz: 5, fmaxHz: 400, fieldDamage: "time" })).notes);
   return out;
 }
 

@@ -210,7 +210,7 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     const files = ([[{ fixed: 3 }, "ms", 0], [{ significant: 6 }, "s", 0], [{ fixed: 4 }, "s", 3600.125]] as [StampFormat, "s" | "ms", number][]).map(([format, unit, startS], i) =>
       writeStampedCsv(dir, `road-${i}.csv`, { channels: [{ name: "z", unit: "g", samples: shapedRecord((f) => (f >= 2 && f <= 400 ? 0.004 * (i + 1) : 0), 1024, 1 << 15, 70 + i) }], sampleRateHz: 1024, timeUnit: unit, format, startS }),
     );
-    const r = await deriveProfile({ ...plainInputs(files, 100 * 3600), testDurationS: 3600, fromHz: 5, toHz: 300, version: "test", created: new Date(0) });
+    const r = await deriveProfile({ ...plainInputs(files, 100 * 3600), testDurationS: 3600, fminHz: 5, fmaxHz: 300, version: "test", created: new Date(0) });
     expect(r.recordings.map((x) => x.sampleRateHz)).toEqual([1024, 1024, 1024]);
     expect(r.document.resolutionHz).toBe(1);
   });

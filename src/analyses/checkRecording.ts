@@ -5,7 +5,8 @@ import { judgeSpectrum, overallVerdict, withDoubts, withGate, type ChannelCompli
 import { parseProfile, type TestProfile } from "../compare/testProfile.js";
 import { combineFits, judgeMixedMode, toneSearchHalfWidthHz } from "../compare/toneCheck.js";
 import { ToneFitAccumulator, type ToneFit } from "../estimate/spectral/toneEstimate.js";
-import { InputError, quoted } from "../errors.js";
+import { channelIndex } from "../read/channelChoice.js";
+import { InputError } from "../errors.js";
 import type { Finding } from "../findings.js";
 import { readProfileText } from "../read/profileFile.js";
 
@@ -92,13 +93,8 @@ export function combineSpectra(list: SpectrumUnderTest[], rule: ControlRule): Sp
 }
 
 function controlPositions(a: RecordingAnalysis, wanted: string[]): number[] {
-  const out = wanted.map((w) => {
-    const i = a.channels.findIndex((c) => c.name.toLowerCase() === w.toLowerCase() || (/^\d+$/.test(w) && c.position === Number(w)));
-    if (i < 0) {
-      throw new InputError("CHANNEL_NOT_FOUND", { file: a.input.file, option: "control", expected: `an analysed channel: ${a.channels.map((c) => `${c.position}=${c.name}`).join(", ")}`, received: quoted(w) });
-    }
-    return i;
-  });
+  const positions = a.channels.map((c) => c.position);
+  const out = wanted.map((w) => channelIndex(a.channels, w, { option: "control", file: a.input.file, positions, expected: "an analysed channel" }));
   if (new Set(out).size !== out.length) throw new InputError("OPTION_INVALID", { option: "control", expected: "each control channel once", received: wanted.join(",") });
   return out;
 }

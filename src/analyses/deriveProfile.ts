@@ -1,4 +1,4 @@
-import { analyzeRecording, stationarityNote, type AnalysisOptions } from "../pass/analyzeRecording.js";
+import { analyzeRecording, stationarityNote, type AnalysisOptions, type RecordingAnalysis } from "../pass/analyzeRecording.js";
 import { parseProfile, profileMotion, type ProfileDocument, type ProfileMotion, type TestProfile } from "../compare/testProfile.js";
 import { InputError } from "../errors.js";
 import { damageSpectra } from "../estimate/response/damageSpectrum.js";
@@ -9,6 +9,7 @@ import { spectralKernel } from "../estimate/spectral/spectralKernel.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import { logToleranceLimit, MIN_TOLERANCE_SAMPLES, type LogToleranceLimit } from "../estimate/statistics/toleranceLimit.js";
 import type { ServiceMix } from "../read/mixFile.js";
+import type { ChannelName } from "../read/channelChoice.js";
 import { fitDamageProfile, type Breakpoint } from "../synth/profileFit.js";
 import { accelFactor, type AccelUnit } from "../units.js";
 import type { Finding } from "../findings.js";
@@ -62,14 +63,15 @@ export interface DeriveOptions {
   mix?: Pick<ServiceMix, "file" | "sha256"> | undefined;
   testDurationS: number;
   analysis?: AnalysisOptions | undefined;
-  /** The one channel of each recording used (default the first). */
-  channel?: string | undefined;
+  /** The one channel of each recording used, as a list of one (default the first): `channels`, as every command spells it. */
+  channels?: ChannelName[] | undefined;
   q?: number | undefined;
   basquinB?: number | undefined;
   maxBreakpoints?: number | undefined;
   margin?: number | undefined;
-  fromHz?: number | undefined;
-  toHz?: number | undefined;
+  /** The band of the profile and of the natural-frequency grid (`fminHz`/`fmaxHz`, as psd and respond spell it). */
+  fminHz?: number | undefined;
+  fmaxHz?: number | undefined;
   perOctave?: number | undefined;
   coverage?: number | undefined;
   toleranceConfidence?: number | undefined;
@@ -212,7 +214,8 @@ function cellMean(f: Float64Array, g: Float64Array, at: number, half: number): n
   return n > 0 ? s / n : g[nearest]!;
 }
 
-export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
+/** derive's settings with their defaults, each checked. */
+function deriveSettings(o: DeriveOptions) {
   const q = o.q ?? DERIVE_DEFAULTS.q;
   const b = o.basquinB ?? DERIVE_DEFAULTS.basquinB;
   const nMax = o.maxBreakpoints ?? DERIVE_DEFAULTS.maxBreakpoints;
@@ -232,13 +235,19 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   checkRange("testDurationS", o.testDurationS, o.testDurationS > 0, "a test duration above 0");
   if (o.recordings.length === 0) throw new InputError("NO_FILES", { expected: "at least one field recording", received: "none" });
   const sn: SnCurve = { ...SN_DEFAULTS, basquinB: b };
+  return { q, b, nMax, margin, perOctave, coverage, confidence, extremeLimit, sn };
 
-  // 1. Each recording's PSD, one channel, on one resolution, in one unit.
+}
+
+/** Step 1: each recording's PSD, one channel, on one resolution, in one unit; recordings whose lines or units differ are refused. */
+async function analyseField(o: DeriveOptions) {
+  if ((o.channels?.length ?? 0) > 1) throw new InputError("OPTION_INVALID", { option: "channels", expected: "one channel", received: o.channels!.join(", ") });
+  const channel = o.channels?.[0] ?? "1";
   const base: AnalysisOptions = { ...o.analysis, resultUnits: o.analysis?.resultUnits ?? "g" };
   if (base.resolutionHz === undefined && base.segmentLength === undefined) base.resolutionHz = DERIVE_DEFAULTS.resolutionHz;
   const analysed = [];
   for (const r of o.recordings) {
-    const a = await analyzeRecording(r.file, { ...base, channels: [o.channel ?? "1"], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined });
+    const a = await analyzeRecording(r.file, { ...base, channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined });
     const c = a.channels[0]!;
     if (c.psd.averages === 0) {
       throw new InputError("RECORD_TOO_SHORT", { file: r.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.window.frames} samples`, hint: "use a shorter `segmentLength` or a coarser `resolutionHz`" });
@@ -253,44 +262,175 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     }
     if (x.c.units !== first.c.units) throw new InputError("RECORDINGS_UNLIKE", { file: x.r.file, expected: `results in ${first.c.units}`, received: x.c.units });
   }
+  return { channel, base, analysed, first, df };
+}
+
+/** Step 4b's figures: each recording's shock spectrum of the whole record (natural frequencies above its fs/4 left out), the largest at each f_n, and the events. */
+async function fieldShockSpectra(analysed: { r: FieldRecordingInput; a: RecordingAnalysis }[], base: AnalysisOptions, channel: ChannelName, fnHz: Float64Array, q: number) {
+  const n = fnHz.length;
+  const { shockRecording } = await import("./shockRecording.js");
+  const fieldSrs = new Float64Array(n).fill(NaN);
+  const events: FieldShocks["largestEvents"] = [];
+  const eventsPerRecording: FieldShocks["eventsPerRecording"] = [];
+  for (const [index, { r, a }] of analysed.entries()) {
+    const keep = [...fnHz.keys()].filter((i) => fnHz[i]! <= a.input.sampleRateHz / 4);
+    if (keep.length === 0) {
+      eventsPerRecording.push(0);
+      continue;
+    }
+    const sr = await shockRecording(r.file, { ...base, channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined, fnHz: keep.map((i) => fnHz[i]!), q });
+    const ch = sr.channels[0]!;
+    keep.forEach((i, k) => {
+      const v = ch.srs.maximax[k]!;
+      fieldSrs[i] = Number.isNaN(fieldSrs[i]!) ? v : Math.max(fieldSrs[i]!, v);
+    });
+    eventsPerRecording.push(ch.events.length);
+    for (const e of ch.events) events.push({ recording: index, timeS: e.timeS, peak: e.peak, durationS: e.durationS });
+  }
+  events.sort((x, y) => Math.abs(y.peak) - Math.abs(x.peak) || x.recording - y.recording || x.timeS - y.timeS);
+  return { fieldSrs, events, eventsPerRecording };
+}
+
+/** The field's damage in time (fieldDamage "time"), per recording (keyed by file and window): rainflow damage per second of record, and its largest response grown to a service time. */
+interface TimeDamage { damage: Float64Array; extreme: (serviceS: number) => Float64Array }
+
+async function fieldTimeDamage(analysed: { r: FieldRecordingInput }[], base: AnalysisOptions, channel: ChannelName, band: { fromHz: number; toHz: number }, fnHz: Float64Array, q: number, sn: SnCurve): Promise<Map<string, TimeDamage>> {
+  const { fromHz, toHz } = band;
+  const timeDamage = new Map<string, TimeDamage>();
+  const { loadSpectrumSource, responseSpectra } = await import("./responseSpectra.js");
+  for (const { r } of analysed) {
+    const src = await loadSpectrumSource(r.file, { ...base, as: "recording", channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: fromHz, fmaxHz: toHz, response: { fnHz, q, basquinB: sn.basquinB } });
+    const t = src.timeResponse!;
+    const perSecond = responseSpectra(src, { fnHz, q, durationS: t.recordS, sn: { ...sn, stressPerUnit: 1, snConstant: 1 } });
+    const td = perSecond.timeDomain!;
+    timeDamage.set(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""), {
+      damage: td.recordDamage.map((d) => d / t.recordS),
+      extreme: (serviceS) => responseSpectra(src, { fnHz, q, durationS: serviceS, sn }).extremePeak,
+    });
+  }
+  return timeDamage;
+}
+
+/** Step 4's fit: the profile's breakpoints whose damage over the test covers the field's times the margin, from two starts (the field's mean shape, flat). */
+function fitProfile(g: { fieldFatigue: Float64Array; mean: Float64Array; frequencyHz: Float64Array; fnHz: Float64Array; fromHz: number; toHz: number; perOctave: number; margin: number; q: number; b: number; sn: SnCurve; toSi: number; nMax: number; lifeS: number; testDurationS: number }) {
+  const { fieldFatigue, mean, frequencyHz, fnHz, fromHz, toHz, perOctave, margin, q, b, sn, toSi, nMax, lifeS } = g;
+  const o = { testDurationS: g.testDurationS };
+  const n = fnHz.length;
+  const target = fieldFatigue.map((d) => d * margin);
+  const test = { fnHz, q, durationS: o.testDurationS, sn, toSi };
+  // The inverted FDS, with the field's own mean spectrum as the reference shape: G_inv(f_n) = G_mean(f_n) (D_target / D_mean)^(2/b),
+  // D_mean the mean spectrum's damage over the test. Where the damage at f_n comes from elsewhere in the spectrum (the
+  // quasi-static response to a low-frequency peak), this keeps the level at f_n near the field's instead of loading it all there.
+  // A flat reference is the second start (the local Miles inversion); the fit keeps whichever ends with less over-test.
+  const ref = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, mean, fromHz, toHz), fromHz, toHz), test).damage;
+  const fromMean = target.map((d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b));
+  const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
+  const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
+  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations.
+  for (let i = 0; i < n; i++) {
+    if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
+      throw new InputError("OPTION_INVALID", {
+        option: "testDurationS", expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,
+        received: `${o.testDurationS} s (the starting levels at ${Number(fnHz[i]!.toPrecision(4))} Hz would be ${fromMean[i]} and ${fromFlat[i]})`, hint: "give the test's real duration (e.g. 1h); the life-to-test ratio sets the levels",
+      });
+    }
+  }
+  const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevels: [fromMean, fromFlat], basquinB: b, maxBreakpoints: nMax, damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage });
+  return { fit, test };
+}
+
+/** Step 5: the profile document (tolerances, DOF, resolution, duration and provenance), as it will be written. */
+function profileDocumentOf(
+  o: DeriveOptions,
+  g: {
+    lifeS: number; q: number; b: number; margin: number; nMax: number; fromHz: number; toHz: number; perOctave: number; channel: ChannelName; df: number;
+    settings: RecordingAnalysis["settings"]; coverage: number; confidence: number; extremeLimit: number; fieldDamage: "psd" | "time"; units: AccelUnit;
+    fit: { points: Breakpoint[] }; recordings: FieldRecordingResult[];
+  },
+): ProfileDocument {
+  const { lifeS, q, b, margin, nMax, fromHz, toHz, perOctave, channel, df, coverage, confidence, extremeLimit, fieldDamage, units, fit, recordings } = g;
+  const first = { a: { settings: g.settings } };
+  const bandDb = o.bandDb ?? DERIVE_DEFAULTS.bandDb;
+  const rmsPercent = o.rmsPercent ?? DERIVE_DEFAULTS.rmsPercent;
+  const minDof = o.minDof ?? DERIVE_DEFAULTS.minDof;
+  checkRange("bandDb", bandDb, bandDb > 0 && bandDb <= 20, "a tolerance band in dB above 0 and at most 20");
+  checkRange("rmsPercent", rmsPercent, rmsPercent > 0 && rmsPercent < 99, "an RMS tolerance in percent above 0 and below 99");
+  checkRange("minDof", minDof, minDof > 0, "a minimum DOF above 0");
+  const unitText = units === "g" ? "g2/Hz" : "(m/s2)2/Hz";
+  const parameters: Record<string, number | string | boolean | null> = {
+    lifeS, lifeHours: lifeS / 3600, lifeRule: o.lifeRule, testDurationS: o.testDurationS, q, basquinB: b, damageMargin: margin, maxBreakpoints: nMax,
+    fnGrid: `${fromHz}:${toHz}:${perOctave} (Hz, per octave)`, fromHz, toHz, channel: String(channel), resolutionHz: df,
+    window: first.a.settings.window, segmentLength: first.a.settings.segmentLength, overlap: first.a.settings.overlap, detrend: first.a.settings.detrend,
+    toleranceCoverage: coverage, toleranceConfidence: confidence, extremeLimit, bandDb, rmsPercent, minDof,
+    ...(fieldDamage === "time" ? { fieldDamage } : {}),
+  };
+  const document: ProfileDocument = {
+    title: o.title ?? `Derived profile: ${o.groups.map((g) => g.name).join(" + ")}, ${(lifeS / 3600).toPrecision(4)} h in ${o.testDurationS} s`,
+    units: unitText,
+    points: fit.points.map((p) => ({ hz: p.hz, level: p.level })),
+    tolerance: { bands: [{ fromHz: fit.points[0]!.hz, toHz: fit.points[fit.points.length - 1]!.hz, upperDb: bandDb, lowerDb: bandDb }], rmsPercent },
+    minDof,
+    resolutionHz: df,
+    durationS: o.testDurationS,
+    description: `Fatigue-equivalent test: its fatigue-damage spectrum over ${o.testDurationS} s covers the field's over ${(lifeS / 3600).toPrecision(5)} h of service (Q ${q}, Basquin b ${b}, damage margin ${margin}) at every natural frequency from ${fromHz} to ${toHz} Hz. For review under the governing standard's tailoring process by a qualified engineer.`,
+    provenance: {
+      derivedBy: `psdgate ${o.version} derive`,
+      created: o.created.toISOString(),
+      method: fieldDamage === "time"
+        ? "field FDS from the recordings in time: each filtered through a linear SDOF (ramp-invariant filters), rainflow (ASTM E1049-85) Miner damage of the relative displacement, times service time over record length, summed over groups; test FDS narrow-band Miner damage of the profile (Rayleigh peaks); breakpoints fitted on log-log axes to cover the field's over the test duration"
+        : "narrow-band Miner damage of a linear SDOF (relative displacement, Rayleigh peaks), field FDS = sum over groups of damage rate x service time; breakpoints fitted on log-log axes to cover it over the test duration",
+      inputs: [
+        ...recordings.map((r) => ({ file: r.file, sha256: r.sha256, role: "recording", group: r.group, serviceHours: r.serviceS / 3600, durationS: r.durationS })),
+        ...(o.mix ? [{ file: o.mix.file, sha256: o.mix.sha256, role: "mix" }] : []),
+      ],
+      parameters,
+    },
+  };
+  return document;
+}
+
+/** The lines the recordings share, the band (fminHz/fmaxHz or the defaults, checked against the lines and the lowest Nyquist), its natural frequencies and unit. */
+function fieldBand(o: DeriveOptions, analysed: { a: RecordingAnalysis; c: RecordingAnalysis["channels"][number] }[], perOctave: number, df: number) {
+  const first = analysed[0]!;
   const lines = Math.min(...analysed.map((x) => x.c.psd.frequencyHz.length));
   const frequencyHz = first.c.psd.frequencyHz.slice(0, lines);
   const topHz = frequencyHz[lines - 1]!;
   const minRate = Math.min(...analysed.map((x) => x.a.input.sampleRateHz));
-  const fromHz = o.fromHz ?? Math.max(5, 4 * df);
-  const toHz = o.toHz ?? Math.min(2000, 0.4 * minRate);
-  checkRange("fromHz", fromHz, fromHz >= 2 * df, `a lower band edge of at least 2 lines (${2 * df} Hz)`);
-  checkRange("toHz", toHz, toHz > fromHz * 1.5 && toHz <= topHz - df, `an upper band edge above 1.5 x \`fromHz\` (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`);
+  const fromHz = o.fminHz ?? Math.max(5, 4 * df);
+  const toHz = o.fmaxHz ?? Math.min(2000, 0.4 * minRate);
+  checkRange("fminHz", fromHz, fromHz >= 2 * df, `a lower band edge of at least 2 lines (${2 * df} Hz)`);
+  checkRange("fmaxHz", toHz, toHz > fromHz * 1.5 && toHz <= topHz - df, `an upper band edge above 1.5 x \`fminHz\` (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`);
   const fnHz = octaveGrid(fromHz, toHz, perOctave);
   const units = first.c.units;
   const toSi = accelFactor(units, "m/s2");
+  return { lines, frequencyHz, fromHz, toHz, fnHz, units, toSi };
+}
 
-  // 2. Service share: each group's time split among its recordings by their analysed durations.
+/** Step 2: each group's service time, and the analysed duration of its recordings (their share of it), and the life. */
+function serviceShare(o: DeriveOptions, analysed: { r: FieldRecordingInput; a: RecordingAnalysis }[]) {
   const groupTime = new Map(o.groups.map((g) => [g.name, g.serviceS]));
   const groupDur = new Map<string, number>();
   for (const x of analysed) groupDur.set(x.r.group, (groupDur.get(x.r.group) ?? 0) + x.a.window.frames / x.a.input.sampleRateHz);
   const lifeS = o.groups.reduce((s, g) => s + g.serviceS, 0);
   checkRange("lifeS", lifeS, lifeS > 0, "a service life above 0");
+  return { groupTime, groupDur, lifeS };
+}
 
+export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
+  const { q, b, nMax, margin, perOctave, coverage, confidence, extremeLimit, sn } = deriveSettings(o);
+  // 1. Each recording's PSD, one channel, on one resolution, in one unit.
+  const { channel, base, analysed, first, df } = await analyseField(o);
+  const { lines, frequencyHz, fromHz, toHz, fnHz, units, toSi } = fieldBand(o, analysed, perOctave, df);
+  // 2. Service share: each group's time split among its recordings by their analysed durations.
+  const { groupTime, groupDur, lifeS } = serviceShare(o, analysed);
   const n = fnHz.length;
   // The field's damage in time (fieldDamage "time"): per recording, the rainflow damage per second of record and a function
   // giving its largest response grown to a service time (Davenport's factor at nu0+ T over the one at nu0+ T_record, nu0+ from the PSD).
   const fieldDamage = o.fieldDamage ?? "psd";
   if (fieldDamage !== "psd" && fieldDamage !== "time") throw new InputError("OPTION_INVALID", { option: "fieldDamage", expected: "psd or time", received: String(fieldDamage) });
-  const timeDamage = new Map<string, { damage: Float64Array; extreme: (serviceS: number) => Float64Array }>();
+  const timeDamage = fieldDamage === "time" ? await fieldTimeDamage(analysed, base, channel, { fromHz, toHz }, fnHz, q, sn) : new Map<string, TimeDamage>();
   let timeNote: Finding | undefined;
   if (fieldDamage === "time") {
-    const { loadSpectrumSource, responseSpectra } = await import("./responseSpectra.js");
-    for (const { r } of analysed) {
-      const src = await loadSpectrumSource(r.file, { ...base, as: "recording", channel: o.channel ?? "1", fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: fromHz, fmaxHz: toHz, response: { fnHz, q, basquinB: b } });
-      const t = src.timeResponse!;
-      const perSecond = responseSpectra(src, { fnHz, q, durationS: t.recordS, sn: { ...sn, stressPerUnit: 1, snConstant: 1 } });
-      const td = perSecond.timeDomain!;
-      timeDamage.set(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""), {
-        damage: td.recordDamage.map((d) => d / t.recordS),
-        extreme: (serviceS) => responseSpectra(src, { fnHz, q, durationS: serviceS, sn }).extremePeak,
-      });
-    }
     timeNote = { code: "FIELD_DAMAGE_IN_TIME", values: {} };
   }
   const fieldFatigue = new Float64Array(n);
@@ -362,26 +502,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   if (!tl) notes.push(missing);
 
   // 4. The profile: fit against the field's damage times the margin, over the test duration.
-  const target = fieldFatigue.map((d) => d * margin);
-  const test = { fnHz, q, durationS: o.testDurationS, sn, toSi };
-  // The inverted FDS, with the field's own mean spectrum as the reference shape: G_inv(f_n) = G_mean(f_n) (D_target / D_mean)^(2/b),
-  // D_mean the mean spectrum's damage over the test. Where the damage at f_n comes from elsewhere in the spectrum (the
-  // quasi-static response to a low-frequency peak), this keeps the level at f_n near the field's instead of loading it all there.
-  // A flat reference is the second start (the local Miles inversion); the fit keeps whichever ends with less over-test.
-  const ref = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, mean, fromHz, toHz), fromHz, toHz), test).damage;
-  const fromMean = target.map((d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b));
-  const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
-  const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
-  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations.
-  for (let i = 0; i < n; i++) {
-    if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
-      throw new InputError("OPTION_INVALID", {
-        option: "testDurationS", expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,
-        received: `${o.testDurationS} s (the starting levels at ${Number(fnHz[i]!.toPrecision(4))} Hz would be ${fromMean[i]} and ${fromFlat[i]})`, hint: "give the test's real duration (e.g. 1h); the life-to-test ratio sets the levels",
-      });
-    }
-  }
-  const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevels: [fromMean, fromFlat], basquinB: b, maxBreakpoints: nMax, damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage });
+  const { fit, test } = fitProfile({ fieldFatigue, mean, frequencyHz, fnHz, fromHz, toHz, perOctave, margin, q, b, sn, toSi, nMax, lifeS, testDurationS: o.testDurationS });
   const testSpectra = damageSpectra(powerLawSpectrum(segmentsOf(fit.points)), test);
   const testFatigue = testSpectra.damage;
   const extremeRatio = testSpectra.extreme.map((v, i) => v / fieldExtreme[i]!);
@@ -393,26 +514,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   // 4b. The field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
   // spectra of the whole records, which keep the shocks a Gaussian PSD hides) beside the random test's ERS. Where the test falls
   // short, the random test does not reach the field's shocks and a shock test is needed for them.
-  const { shockRecording } = await import("./shockRecording.js");
-  const fieldSrs = new Float64Array(n).fill(NaN);
-  const events: FieldShocks["largestEvents"] = [];
-  const eventsPerRecording: FieldShocks["eventsPerRecording"] = [];
-  for (const [index, { r, a }] of analysed.entries()) {
-    const keep = [...fnHz.keys()].filter((i) => fnHz[i]! <= a.input.sampleRateHz / 4);
-    if (keep.length === 0) {
-      eventsPerRecording.push(0);
-      continue;
-    }
-    const sr = await shockRecording(r.file, { ...base, channels: [o.channel ?? "1"], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined, fnHz: keep.map((i) => fnHz[i]!), q });
-    const ch = sr.channels[0]!;
-    keep.forEach((i, k) => {
-      const v = ch.srs.maximax[k]!;
-      fieldSrs[i] = Number.isNaN(fieldSrs[i]!) ? v : Math.max(fieldSrs[i]!, v);
-    });
-    eventsPerRecording.push(ch.events.length);
-    for (const e of ch.events) events.push({ recording: index, timeS: e.timeS, peak: e.peak, durationS: e.durationS });
-  }
-  events.sort((x, y) => Math.abs(y.peak) - Math.abs(x.peak) || x.recording - y.recording || x.timeS - y.timeS);
+  const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(analysed, base, channel, fnHz, q);
   const shortfallHz = [...fnHz].filter((_, i) => testSpectra.extreme[i]! < fieldSrs[i]!);
   if (shortfallHz.length) {
     notes.push({ code: "SHOCK_TEST_NEEDED", values: { frequencies: shortfallHz.length }, about: { frequenciesHz: shortfallHz } });
@@ -420,42 +522,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const shocks: FieldShocks = { fieldSrs, largestEvents: events.slice(0, 5), eventsPerRecording, shortfallHz };
 
   // 5. The profile document: tolerances, DOF, resolution, duration and provenance.
-  const bandDb = o.bandDb ?? DERIVE_DEFAULTS.bandDb;
-  const rmsPercent = o.rmsPercent ?? DERIVE_DEFAULTS.rmsPercent;
-  const minDof = o.minDof ?? DERIVE_DEFAULTS.minDof;
-  checkRange("bandDb", bandDb, bandDb > 0 && bandDb <= 20, "a tolerance band in dB above 0 and at most 20");
-  checkRange("rmsPercent", rmsPercent, rmsPercent > 0 && rmsPercent < 99, "an RMS tolerance in percent above 0 and below 99");
-  checkRange("minDof", minDof, minDof > 0, "a minimum DOF above 0");
-  const unitText = units === "g" ? "g2/Hz" : "(m/s2)2/Hz";
-  const parameters: Record<string, number | string | boolean | null> = {
-    lifeS, lifeHours: lifeS / 3600, lifeRule: o.lifeRule, testDurationS: o.testDurationS, q, basquinB: b, damageMargin: margin, maxBreakpoints: nMax,
-    fnGrid: `${fromHz}:${toHz}:${perOctave} (Hz, per octave)`, fromHz, toHz, channel: o.channel ?? "1", resolutionHz: df,
-    window: first.a.settings.window, segmentLength: first.a.settings.segmentLength, overlap: first.a.settings.overlap, detrend: first.a.settings.detrend,
-    toleranceCoverage: coverage, toleranceConfidence: confidence, extremeLimit, bandDb, rmsPercent, minDof,
-    ...(fieldDamage === "time" ? { fieldDamage } : {}),
-  };
-  const document: ProfileDocument = {
-    title: o.title ?? `Derived profile: ${o.groups.map((g) => g.name).join(" + ")}, ${(lifeS / 3600).toPrecision(4)} h in ${o.testDurationS} s`,
-    units: unitText,
-    points: fit.points.map((p) => ({ hz: p.hz, level: p.level })),
-    tolerance: { bands: [{ fromHz: fit.points[0]!.hz, toHz: fit.points[fit.points.length - 1]!.hz, upperDb: bandDb, lowerDb: bandDb }], rmsPercent },
-    minDof,
-    resolutionHz: df,
-    durationS: o.testDurationS,
-    description: `Fatigue-equivalent test: its fatigue-damage spectrum over ${o.testDurationS} s covers the field's over ${(lifeS / 3600).toPrecision(5)} h of service (Q ${q}, Basquin b ${b}, damage margin ${margin}) at every natural frequency from ${fromHz} to ${toHz} Hz. For review under the governing standard's tailoring process by a qualified engineer.`,
-    provenance: {
-      derivedBy: `psdgate ${o.version} derive`,
-      created: o.created.toISOString(),
-      method: fieldDamage === "time"
-        ? "field FDS from the recordings in time: each filtered through a linear SDOF (ramp-invariant filters), rainflow (ASTM E1049-85) Miner damage of the relative displacement, times service time over record length, summed over groups; test FDS narrow-band Miner damage of the profile (Rayleigh peaks); breakpoints fitted on log-log axes to cover the field's over the test duration"
-        : "narrow-band Miner damage of a linear SDOF (relative displacement, Rayleigh peaks), field FDS = sum over groups of damage rate x service time; breakpoints fitted on log-log axes to cover it over the test duration",
-      inputs: [
-        ...recordings.map((r) => ({ file: r.file, sha256: r.sha256, role: "recording", group: r.group, serviceHours: r.serviceS / 3600, durationS: r.durationS })),
-        ...(o.mix ? [{ file: o.mix.file, sha256: o.mix.sha256, role: "mix" }] : []),
-      ],
-      parameters,
-    },
-  };
+  const document = profileDocumentOf(o, { lifeS, q, b, margin, nMax, fromHz, toHz, perOctave, channel, df, settings: first.a.settings, coverage, confidence, extremeLimit, fieldDamage, units, fit, recordings });
   // Read back exactly as `check` and `profile` will (a document psdgate cannot read is a bug, caught here).
   const profile = parseProfile(JSON.stringify(document), o.outFile ?? "derived.json");
   const meanFieldRms = bandRms({ psd: mean, frequencyHz, lineSpacingHz: df }, fromHz, toHz);

@@ -1,7 +1,7 @@
 import { analyzeRecording, recordTooShort, type AnalysisOptions, type PassAccumulator } from "../pass/analyzeRecording.js";
 import type { ChannelReading } from "../condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
-import { InputError, quoted } from "../errors.js";
+import { InputError } from "../errors.js";
 import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "../estimate/response/fatigueDamage.js";
 import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "../estimate/response/inputSpectrum.js";
 import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "../estimate/response/kinematics.js";
@@ -10,6 +10,7 @@ import { absoluteTransmissibilitySquared, milesRelativeDisplacementRms, milesRms
 import type { TimeResponse } from "../estimate/response/timeResponse.js";
 import { responseThreads, timeResponseSink, type TimeResponseSink } from "./timeResponsePool.js";
 import { looksLikePsdTable, readPsdTable } from "../read/psdTable.js";
+import { channelIndex } from "../read/channelChoice.js";
 import { readHead } from "../read/regularFile.js";
 import { accelFactor, type AccelUnit } from "../units.js";
 
@@ -46,14 +47,14 @@ export interface SpectrumSource {
   settings?: { segmentLength: number; resolutionHz: number; window: string; averages: number; dof: number } | undefined;
 }
 
+/**
+ * How a source is read: the family's options (AnalysisOptions), where `channels` names the one channel of a
+ * recording or PSD table (default the first) and `fminHz`/`fmaxHz` the band used as input (default: from
+ * the first line above 0 Hz to the last, or the profile's own band).
+ */
 export interface SourceOptions extends AnalysisOptions {
   /** Read the file as this kind (default: by extension and first line). */
   as?: SourceKind | undefined;
-  /** The channel of a recording or PSD table (default the first). */
-  channel?: string | undefined;
-  /** Band of a recording or PSD table used as input (default: from the first line above 0 Hz to the last). */
-  fminHz?: number | undefined;
-  fmaxHz?: number | undefined;
   /** For a recording: also filter it through each SDOF of this grid in time (rainflow damage, largest response). */
   response?: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined } | undefined;
 }
@@ -86,14 +87,6 @@ export async function sourceKind(file: string): Promise<SourceKind> {
   return looksLikePsdTable(await firstLine(file)) ? "psd" : "recording";
 }
 
-function pickChannel<T extends { name: string }>(file: string, list: T[], wanted: string | undefined, option: string): T {
-  if (wanted === undefined) return list[0]!;
-  const byName = list.find((c) => c.name.toLowerCase() === wanted.toLowerCase());
-  if (byName) return byName;
-  if (/^\d+$/.test(wanted) && Number(wanted) >= 1 && Number(wanted) <= list.length) return list[Number(wanted) - 1]!;
-  throw new InputError("CHANNEL_NOT_FOUND", { file, option, expected: `a channel name or position: ${list.map((c, i) => `${i + 1}=${c.name}`).join(", ")}`, received: quoted(wanted) });
-}
-
 function lineBand(file: string, f: Float64Array, o: SourceOptions): { lo: number; hi: number } {
   const lo = o.fminHz ?? f[1]!;
   const hi = o.fmaxHz ?? f[f.length - 1]!;
@@ -102,7 +95,9 @@ function lineBand(file: string, f: Float64Array, o: SourceOptions): { lo: number
   return { lo, hi };
 }
 
-export async function loadSpectrumSource(file: string, o: SourceOptions = {}, channelOption = "channel"): Promise<SpectrumSource> {
+export async function loadSpectrumSource(file: string, o: SourceOptions = {}, channelOption = "channels"): Promise<SpectrumSource> {
+  if ((o.channels?.length ?? 0) > 1) throw new InputError("OPTION_INVALID", { file, option: channelOption, expected: "one channel", received: o.channels!.join(", ") });
+  const channel = o.channels?.[0];
   const kind = o.as ?? (await sourceKind(file));
   if (kind === "profile") {
     const p = await loadProfile(file);
@@ -121,13 +116,16 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
   }
   if (kind === "psd") {
     const t = await readPsdTable(file);
-    const ch = pickChannel(file, t.channels, o.channel, channelOption);
+    const ch = t.channels[channel === undefined ? 0 : channelIndex(t.channels, channel, { option: channelOption, file })]!;
     const { lo, hi } = lineBand(file, t.frequencyHz, o);
     return { kind, file, sha256: t.sha256, label: ch.name, units: ch.units, spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi), durationS: undefined, frequencyHz: t.frequencyHz, level: ch.psd };
   }
   const { response, ...reading } = o;
   const listener = response !== undefined ? new TimeResponses(response) : undefined;
-  const a = await analyzeRecording(file, { ...reading, channels: o.channel === undefined ? ["1"] : [o.channel], fminHz: undefined, fmaxHz: undefined, accumulators: listener ? [listener] : undefined });
+  const a = await analyzeRecording(file, { ...reading, channels: [channel ?? "1"], fminHz: undefined, fmaxHz: undefined, accumulators: listener ? [listener] : undefined }).catch((e: unknown) => {
+    // The pass names its own key; the channel came from `channelOption` (respond's --against input: `againstChannel`).
+    throw e instanceof InputError && e.code === "CHANNEL_NOT_FOUND" && e.details.option === "channels" ? new InputError(e.code, { ...e.details, option: channelOption }) : e;
+  });
   const c = a.channels[0]!;
   const tr = a.extras[0] as TimeResponse | undefined;
   const short = recordTooShort(a);

@@ -1,5 +1,6 @@
-import { selectChannels } from "../pass/resolveAnalysis.js";
 import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "../pass/analyzeRecording.js";
+import type { ResolvedAnalysis } from "../pass/analysisOptions.js";
+import { channelIndex } from "../read/channelChoice.js";
 import {
   axisRules, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue, ISO_2631_HEALTH_ZONE, type HealthZone,
   type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
@@ -8,7 +9,6 @@ import { InputError, quoted } from "../errors.js";
 import type { PeakHoldPsd } from "../estimate/spectral/peakHoldPsd.js";
 import type { Finding } from "../findings.js";
 import { stationarityFinding, type StationarityFinding } from "../estimate/statistics/stationarityTests.js";
-import { normalizeWelchOptions } from "../estimate/spectral/welchOptions.js";
 import { WelchWeightedMeanSquare } from "../estimate/spectral/welchTimeWeights.js";
 import { BandSpectrogramAccumulator, thirdOctaveBands, type BandSpectrogram } from "../estimate/spectral/bandSpectrogram.js";
 import { SegmentPower } from "../estimate/spectral/segmentPower.js";
@@ -99,10 +99,11 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
 
   constructor(
     private readonly file: string, private readonly plan: { index: number; weighting: WeightingName }[], private readonly runningRmsS: number,
-    private readonly welchGeometry: { window: Float64Array; hop: number; detrend: "none" | "mean" | "linear"; spectrogram: boolean },
+    private readonly spectrogram: boolean,
   ) {}
 
-  start(designRateHz: number): void {
+  /** The filters at the announced rate; Welch's geometry (for the like-for-like mean square and the spectrogram) from the pass's one resolved analysis. */
+  start(designRateHz: number, analysis: ResolvedAnalysis): void {
     if (!(designRateHz >= MIN_WEIGHTING_RATE_HZ)) {
       // A rate the reader could not settle (a degenerate CSV) is left to the read's own error.
       if (!Number.isFinite(designRateHz)) return;
@@ -114,12 +115,13 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
     this.filters = this.designs.map(weightingCascade);
     this.head = this.plan.map(() => new Float64Array(Math.round(SETTLE_S * designRateHz)));
     this.doses = this.plan.map(() => new VibrationDoseAccumulator(designRateHz, { runningRmsS: this.runningRmsS }));
-    this.welch = this.plan.map(() => new WelchWeightedMeanSquare(this.welchGeometry.window, this.welchGeometry.hop));
-    const g = this.welchGeometry;
-    const n = g.window.length;
+    const g = analysis.welch;
+    const n = g.segmentLength;
+    const window = spectralWindow(g.window, n);
+    this.welch = this.plan.map(() => new WelchWeightedMeanSquare(window, g.hop));
     const power = new SegmentPower(n);
     const bands = thirdOctaveBands(THIRD_OCTAVE_CENTRES_HZ.filter((c) => c * 2 ** (1 / 6) < designRateHz / 2));
-    this.spectrograms = this.plan.map(() => (g.spectrogram ? new BandSpectrogramAccumulator({ segmentLength: n, hop: g.hop, window: g.window, detrend: g.detrend }, power, 2 * n, bands, designRateHz) : undefined));
+    this.spectrograms = this.plan.map(() => (this.spectrogram ? new BandSpectrogramAccumulator({ segmentLength: n, hop: g.hop, window, detrend: g.detrend }, power, 2 * n, bands, designRateHz) : undefined));
   }
 
   push(blocks: Float64Array[], frames: number): void {
@@ -172,7 +174,11 @@ export async function rideRecording(file: string, options: RideOptions): Promise
   return rideSource(source, options);
 }
 
-export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
+/**
+ * Ride's pass: the axes and the floor picked the one way (read/channelChoice.ts), checked, and the one pass
+ * with the weighting listener, Welch resolved once with ride's defaults (in the pass's resolved analysis).
+ */
+async function ridePass(source: TimeHistorySource, options: RideOptions) {
   const { info } = source;
   const axes = (["x", "y", "z"] as const).filter((a) => options.axes[a] !== undefined);
   if (axes.length === 0) throw new InputError("OPTION_INVALID", { option: "axes", expected: "at least one of x=CH, y=CH, z=CH", received: "none" });
@@ -181,16 +187,7 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
   }
   const names = axes.map((a) => options.axes[a]!);
   if (options.floor !== undefined) names.push(options.floor);
-  const indexes = names.map((n, i) => {
-    try {
-      return selectChannels(info, [n])[0]!;
-    } catch (e) {
-      if (e instanceof InputError) {
-        throw new InputError("CHANNEL_NOT_FOUND", { ...e.details, option: i < axes.length ? "axes" : "floor" });
-      }
-      throw e;
-    }
-  });
+  const indexes = names.map((n, i) => channelIndex(info.channels, n, { option: i < axes.length ? "axes" : "floor", file: info.file }));
   const dup = indexes.findIndex((v, i) => indexes.indexOf(v) !== i);
   if (dup >= 0) throw new InputError("OPTION_INVALID", { option: dup < axes.length ? "axes" : "floor", expected: "a different channel for each axis and the floor", received: quoted(names[dup]!) });
   const rules = axisRules(options.posture);
@@ -204,10 +201,10 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     ...(options.segmentLength === undefined && options.resolutionHz === undefined ? { resolutionHz: 0.125 } : {}),
     overlap: options.overlap ?? 0.75,
   };
-  const geometry = normalizeWelchOptions({ ...options, ...welch }, info.sampleRateHz);
-  const weighted = new WeightedDoses(info.file, plan, runningRmsS, { window: spectralWindow(geometry.window, geometry.segmentLength), hop: geometry.hop, detrend: geometry.detrend, spectrogram: options.spectrogram === true });
+  const weighted = new WeightedDoses(info.file, plan, runningRmsS, options.spectrogram === true);
+  // One resolveAnalysis: the pass resolves Welch's settings with ride's defaults and hands them to the listener.
   const analysis = await analyzeSource(source, {
-    ...options, ...welch, channels: indexes.map((i) => String(i + 1)), resultUnits: "m/s2", accumulators: [weighted], stretchS: options.stretchS ?? runningRmsS,
+    ...options, ...welch, channels: indexes.map((i) => i + 1), resultUnits: "m/s2", accumulators: [weighted], stretchS: options.stretchS ?? runningRmsS,
   });
   const results = analysis.extras[0] as ReturnType<WeightedDoses["finish"]>;
   // No figures from no data: an axis whose every sample is NaN or infinite has no a_w, VDV or MTVV (the
@@ -217,6 +214,11 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
       throw new InputError("RECORD_TOO_SHORT", { file: analysis.input.file, field: ch.name, expected: "finite samples to weight", received: `${analysis.window.frames} samples, ${analysis.window.frames === 0 ? "none" : "all"} of them NaN or infinite` });
     }
   }
+  return { axes, rules, plan, analysis, results };
+}
+
+export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
+  const { axes, rules, plan, analysis, results } = await ridePass(source, options);
   const notes: Finding[] = [];
   const doubts: Finding[] = [...analysis.passDoubts];
   const fs = analysis.input.sampleRateHz;

@@ -98,8 +98,8 @@ export function registerDerive(program: Command, io: CliIo): void {
       if (o.report !== undefined) checkOutputPath(o.report, [...read, o.out], o.force, "--report");
       const created = new Date();
       const settings = {
-        ...inputs, testDurationS: o.testDuration, analysis: analysisOptions(o), channel: o.channel?.[0], q: o.q, basquinB: o.basquin, maxBreakpoints: o.breakpoints, margin: o.margin,
-        fromHz: o.fmin, toHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, toleranceConfidence: o.toleranceConfidence, extremeLimit: o.extremeLimit, fieldDamage: o.fieldDamage,
+        ...inputs, testDurationS: o.testDuration, analysis: analysisOptions(o), channels: o.channel, q: o.q, basquinB: o.basquin, maxBreakpoints: o.breakpoints, margin: o.margin,
+        fminHz: o.fmin, fmaxHz: o.fmax, perOctave: o.perOctave, coverage: o.coverage, toleranceConfidence: o.toleranceConfidence, extremeLimit: o.extremeLimit, fieldDamage: o.fieldDamage,
         bandDb: o.bandDb, rmsPercent: o.rmsPercent, minDof: o.minDof, strokeMm: o.strokeMm, outFile: o.out,
       };
       const r = await deriveProfile({ ...settings, version: VERSION, created });

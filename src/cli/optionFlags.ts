@@ -30,7 +30,6 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   confidence: "--confidence",
   fminHz: "--fmin",
   fmaxHz: "--fmax",
-  stretchS: "--stretch",
   meta: "--meta",
   metaTable: "--meta-table",
   // check
@@ -43,7 +42,6 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   durationS: "--duration",
   basquinB: "--basquin",
   strokeMm: "--stroke-mm",
-  channel: "--channel",
   againstChannel: "--against-channel",
   // transfer
   inputChannel: "--in",
@@ -54,6 +52,8 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   floor: "--floor",
   exposureS: "--exposure",
   runningRmsS: "--running-rms",
+  // No command takes the stationarity stretch on its own: ride sets it from --running-rms (others use 1 s).
+  stretchS: "--running-rms",
   // respond
   stressPerUnit: "--stress-per-metre",
   // synth
@@ -64,8 +64,6 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   testDurationS: "--test-duration",
   maxBreakpoints: "--breakpoints",
   margin: "--margin",
-  fromHz: "--fmin",
-  toHz: "--fmax",
   perOctave: "--per-octave",
   coverage: "--coverage",
   toleranceConfidence: "--tolerance-confidence",

@@ -68,9 +68,9 @@ export function registerRespond(program: Command, io: CliIo): void {
       if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
       const rerun: RespondRerun = {
         fn: o.fn, q: o.q, durationS: o.duration, sn: { basquinB: o.basquin, snConstant: o.snConstant, stressPerUnit: o.stressPerMetre }, strokeMm: o.strokeMm,
-        source: { ...base, as: o.as, channel: o.channel?.[0] },
+        source: { ...base, as: o.as },
         // --from/--to cut SOURCE; the --against input is taken whole (its own length is its exposure).
-        against: o.against !== undefined ? { file: o.against, options: { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channel: o.againstChannel }, durationS: o.againstDuration } : undefined,
+        against: o.against !== undefined ? { file: o.against, options: { ...base, fromS: undefined, toS: undefined, fromClock: undefined, toClock: undefined, channels: o.againstChannel === undefined ? undefined : [o.againstChannel] }, durationS: o.againstDuration } : undefined,
       };
       const { r, against } = await runResponse(source, rerun);
       if (o.csv !== undefined) {

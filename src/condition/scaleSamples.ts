@@ -1,5 +1,6 @@
 import { InputError, quoted } from "../errors.js";
 import type { ChannelInfo } from "../read/timeHistory.js";
+import { channelIndex } from "../read/channelChoice.js";
 import { accelFactor, parseSensitivity, parseUnitSpec, UNIT_NAMES, type AccelUnit, type UnitSpec } from "../units.js";
 
 /** x[i] *= factor for the first `count` samples, in place. */
@@ -64,19 +65,6 @@ function checkScale(option: string, k: number): void {
 }
 
 /**
- * Index of the channel a `CH=` key names (name, case-insensitive, or 1-based position), or an error
- * naming the option.
- */
-function channelIndex(channels: ChannelInfo[], key: string, option: string, file: string): number {
-  const byName = channels.findIndex((c) => c.name.toLowerCase() === key.toLowerCase());
-  if (byName >= 0) return byName;
-  if (/^\d+$/.test(key) && Number(key) >= 1 && Number(key) <= channels.length) return Number(key) - 1;
-  throw new InputError("CHANNEL_NOT_FOUND", {
-    file, option, expected: `a channel name or position: ${channels.map((c, i) => `${i + 1}=${c.name}`).join(", ")}`, received: quoted(key),
-  });
-}
-
-/**
  * The per-channel settings of one option, one value per channel index: each channel at most once
  * (by name or by position), and either one value for all or values per channel, never both.
  */
@@ -96,7 +84,7 @@ function perChannel<T>(channels: ChannelInfo[], file: string, option: string, li
       out.fill(s.value);
       continue;
     }
-    const i = channelIndex(channels, s.channel, option, file);
+    const i = channelIndex(channels, s.channel, { option, file });
     if (seen.has(i)) {
       throw new InputError("OPTION_CONFLICT", { option, field: channels[i]!.name, expected: `one \`${option}\` per channel`, received: `a second value for ${quoted(channels[i]!.name)} (${quoted(s.channel)})` });
     }

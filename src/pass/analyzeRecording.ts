@@ -114,35 +114,82 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const extras = options.accumulators ?? [];
   try {
     plan = resolveAnalysis(options, info);
-    for (const e of extras) e.start(info.sampleRateHz);
+    for (const e of extras) e.start(info.sampleRateHz, plan.analysis);
   } catch (e) {
     // A read that will not come releases what the source holds (a large CSV's waiting worker).
     await source.close?.();
     throw e;
   }
-  const { select, conditioning, first, end } = plan;
-  const settings = plan.analysis.welch;
-  const asked = plan.analysis.window;
-  const designFs = info.sampleRateHz;
-  const stretchS = plan.analysis.stretchS;
+  const built = builtInListeners(plan, info.sampleRateHz);
+  const { summary, taken } = await readWindow(source, plan, built.perChannel, extras, options.onProgress);
+  const fs = summary.sampleRateHz;
+  const { windowInfo, passDoubts } = passWindow(plan, info, summary, taken, extras.length > 0);
+  const extraResults = extras.map((e) => e.finish(fs));
+  const analysis = atFinalRate(plan.analysis, fs, options);
+  const channels = plan.select.map((idx, c) => channelResult(c, idx, plan, analysis, built, windowInfo, summary.frames, fs, info));
+  return {
+    input: {
+      file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
+      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs, startTime: summary.startTime, preamble: info.preamble,
+    },
+    settings: { ...analysis.welch, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
+    window: windowInfo,
+    analysis,
+    channels,
+    extras: extraResults,
+    passDoubts,
+  };
+}
+
+/** The built-in listeners of each channel, from the resolved analysis. */
+interface BuiltIn {
+  window: Float64Array;
+  welch: (WelchAccumulator | undefined)[];
+  moments: RunningMoments[];
+  histograms: HistogramAccumulator[] | undefined;
+  peakHolds: PeakHoldPsdAccumulator[] | undefined;
+  stretchLength: number;
+  stretches: StretchMeanSquares[];
+  holds: SampleHoldAccumulator[];
+  /** Each channel's listeners, in the order they hear a block. */
+  perChannel: SampleListener[][];
+}
+
+/**
+ * The built-in listeners of each channel, chosen from the resolved analysis: the moments, the runs of
+ * repeated values (sample-and-hold) and the stationarity stretches always, Welch when a spectrum is asked
+ * for, the histogram for a report, the peak-hold spectrum when asked for.
+ */
+function builtInListeners(plan: AnalysisPlan, designFs: number): BuiltIn {
+  const { select, analysis: a } = plan;
+  const settings = a.welch;
   const window = spectralWindow(settings.window, settings.segmentLength);
   const power = new SegmentPower(settings.segmentLength);
-  const spectrum = plan.analysis.spectrum;
-  // The built-in listeners of each channel, chosen from the resolved analysis: the moments and the
-  // stationarity stretches always, Welch when a spectrum is asked for, the histogram for a report.
-  const welch = select.map(() => (spectrum ? new WelchAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power) : undefined));
+  const geometry = { segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend };
+  const welch = select.map(() => (a.spectrum ? new WelchAccumulator(geometry, power) : undefined));
   const moments = select.map(() => new RunningMoments());
-  const histograms = plan.analysis.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
-  const holdS = plan.analysis.peakHoldS;
-  const peakHolds = spectrum && holdS !== undefined && Number.isFinite(designFs) && designFs > 0
-    ? select.map(() => new PeakHoldPsdAccumulator({ segmentLength: settings.segmentLength, hop: settings.hop, window, detrend: settings.detrend }, power, Math.max(settings.segmentLength, Math.round(holdS * designFs)), designFs))
+  const histograms = a.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
+  const holdS = a.peakHoldS;
+  const rateKnown = Number.isFinite(designFs) && designFs > 0;
+  const peakHolds = a.spectrum && holdS !== undefined && rateKnown
+    ? select.map(() => new PeakHoldPsdAccumulator(geometry, power, Math.max(settings.segmentLength, Math.round(holdS * designFs)), designFs))
     : undefined;
   // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
-  const stretchLength = Number.isFinite(designFs) && designFs > 0 ? Math.max(2, Math.round(stretchS * designFs)) : 2;
+  const stretchLength = rateKnown ? Math.max(2, Math.round(a.stretchS * designFs)) : 2;
   const stretches = select.map(() => new StretchMeanSquares(stretchLength));
-  // Runs of repeated values (sample-and-hold), on every command's pass.
   const holds = select.map(() => new SampleHoldAccumulator());
-  const listeners: SampleListener[][] = select.map((_, c) => ([moments[c]!, holds[c]!, histograms?.[c], welch[c], stretches[c]!, peakHolds?.[c]] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
+  // Without the statistics (a.statistics false, no spectrum) the moments, runs and stretches stay unfed: empty.
+  const stats = a.statistics !== false;
+  const perChannel = select.map((_, c) => ([stats ? moments[c] : undefined, stats ? holds[c] : undefined, histograms?.[c], welch[c], stats ? stretches[c] : undefined, peakHolds?.[c]] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
+  return { window, welch, moments, histograms, peakHolds, stretchLength, stretches, holds, perChannel };
+}
+
+/**
+ * The read: each block's frame window [first, end) cut once, conditioned in place, heard by each channel's
+ * built-in listeners and then by the pass's listeners (all channels at once).
+ */
+async function readWindow(source: TimeHistorySource, plan: AnalysisPlan, perChannel: SampleListener[][], extras: PassAccumulator[], onProgress: AnalysisOptions["onProgress"]) {
+  const { select, conditioning, first, end } = plan;
   const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
   let taken = 0;
@@ -160,18 +207,26 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
         const x = a === 0 ? blocks[c]! : blocks[c]!.subarray(a, b);
         views[c] = x;
         scaleSamples(x, n, conditioning[c]!.factor);
-        for (const l of listeners[c]!) l.push(x, n);
+        for (const l of perChannel[c]!) l.push(x, n);
       }
       for (const e of extras) e.push(views, n);
     },
-    options.onProgress ? (b) => options.onProgress!(b, info.bytes) : undefined,
+    onProgress ? (b) => onProgress(b, source.info.bytes) : undefined,
   );
+  return { summary, taken };
+}
+
+/** The analysed window at the final rate, the pass's errors (no samples, an empty window) and its doubts (the rate contract). */
+function passWindow(plan: AnalysisPlan, info: TimeHistorySource["info"], summary: { frames: number; sampleRateHz: number }, taken: number, listeners: boolean) {
+  const { first, end } = plan;
+  const asked = plan.analysis.window;
   if (summary.frames === 0) {
     throw new InputError("RECORD_TOO_SHORT", { file: info.file, expected: "at least one sample", received: "0 samples", hint: "the recording holds no data" });
   }
   const fs = summary.sampleRateHz;
+  const designFs = info.sampleRateHz;
   const passDoubts: Finding[] = [];
-  if (Math.abs(fs - designFs) > 1e-6 * designFs && (extras.length > 0 || first > 0 || end < Infinity)) {
+  if (Math.abs(fs - designFs) > 1e-6 * designFs && (listeners || first > 0 || end < Infinity)) {
     passDoubts.push({ code: "RATE_MOVED", values: { sampleRateHz: fs, designRateHz: designFs } });
   }
   if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
@@ -180,45 +235,37 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
       expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `${asked.fromS ?? 0} s to ${asked.toS ?? "the end"}`,
     });
   }
-  const recordEndS = summary.frames / fs;
   const windowInfo: FrameWindow = { fromS: Math.min(first, summary.frames) / fs, toS: Math.min(end, summary.frames) / fs, frames: taken };
   if (asked.toS !== undefined && end > summary.frames) windowInfo.requestedToS = asked.toS;
-  if (options.fromClock !== undefined) windowInfo.fromClock = options.fromClock;
-  if (options.toClock !== undefined) windowInfo.toClock = options.toClock;
-  const extraResults = extras.map((e) => e.finish(fs));
-  const analysis = atFinalRate(plan.analysis, fs, options);
-  const resolved = analysis.welch;
-  const channels = select.map((idx, c): ChannelAnalysis => {
-    const stats = moments[c]!.result();
-    const sums = welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: summary.frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0, detrendedKurtosis: NaN, detrendedCrestFactor: NaN };
-    const psd = completePsd(sums, window, resolved, fs);
-    const rmsTime = Math.sqrt(moments[c]!.residualMeanSquare(settings.detrend));
-    const parseval = parsevalCheck(rmsTime, psd, settings.window);
-    const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
-    const stretchMs = stretches[c]!.result();
-    const stationarity = stationarityFinding(stretchMs, stretchLength / fs, windowInfo.fromS);
-    const hold = holds[c]!.result(fs);
-    const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
-    const note = stationarityNote(stationarity);
-    if (note !== undefined) notes.push(note);
-    if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS } });
-    return {
-      name: info.channels[idx]!.name, position: idx + 1, units: conditioning[c]!.resultUnit, reading: conditioning[c]!.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
-      tones: spectrum && psd.dof > 0 ? spectralTones(psd, window, spectralKernel(settings.window, window, settings.detrend).halfWidthBins, { max: 8 }) : [],
-      histogram: histograms?.[c]!.densityAround(stats.mean, stats.std), peakHold: peakHolds?.[c]!.finish(fs), stationarity, stretchMeanSquares: stretchMs, hold, notes, doubts,
-    };
-  });
+  if (asked.fromClock !== undefined) windowInfo.fromClock = asked.fromClock;
+  if (asked.toClock !== undefined) windowInfo.toClock = asked.toClock;
+  return { windowInfo, passDoubts };
+}
+
+/** One channel's figures from its built-in listeners, at the final rate. */
+function channelResult(c: number, idx: number, plan: AnalysisPlan, analysis: ResolvedAnalysis, b: BuiltIn, windowInfo: FrameWindow, frames: number, fs: number, info: TimeHistorySource["info"]): ChannelAnalysis {
+  const settings = analysis.welch;
+  const taken = windowInfo.frames;
+  const conditioning = plan.conditioning[c]!;
+  const stats = b.moments[c]!.result();
+  const sums = b.welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0, detrendedKurtosis: NaN, detrendedCrestFactor: NaN };
+  const psd = completePsd(sums, b.window, settings, fs);
+  const rmsTime = Math.sqrt(b.moments[c]!.residualMeanSquare(settings.detrend));
+  const parseval = parsevalCheck(rmsTime, psd, settings.window);
+  const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
+  const stretchMs = b.stretches[c]!.result();
+  const stationarity = stationarityFinding(stretchMs, b.stretchLength / fs, windowInfo.fromS);
+  const hold = b.holds[c]!.result(fs);
+  const spectrum = analysis.spectrum;
+  const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
+  const note = stationarityNote(stationarity);
+  if (note !== undefined) notes.push(note);
+  const recordEndS = frames / fs;
+  if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS } });
   return {
-    input: {
-      file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
-      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs, startTime: summary.startTime, preamble: info.preamble,
-    },
-    settings: { ...resolved, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
-    window: windowInfo,
-    analysis,
-    channels,
-    extras: extraResults,
-    passDoubts,
+    name: info.channels[idx]!.name, position: idx + 1, units: conditioning.resultUnit, reading: conditioning.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
+    tones: spectrum && psd.dof > 0 ? spectralTones(psd, b.window, spectralKernel(settings.window, b.window, settings.detrend).halfWidthBins, { max: 8 }) : [],
+    histogram: b.histograms?.[c]!.densityAround(stats.mean, stats.std), peakHold: b.peakHolds?.[c]!.finish(fs), stationarity, stretchMeanSquares: stretchMs, hold, notes, doubts,
   };
 }
 

@@ -1,47 +1,14 @@
-import type { AnalysisOptions } from "./analysisOptions.js";
-import { channelConditionings, type ChannelConditioning, type ChannelReading } from "../condition/scaleSamples.js";
+import type { AnalysisOptions, RecordingOptions, ResolvedAnalysis } from "./analysisOptions.js";
+import { channelConditionings, type ChannelConditioning } from "../condition/scaleSamples.js";
 import { InputError, quoted } from "../errors.js";
 import { normalizeWelchOptions, type ResolvedWelchOptions } from "../estimate/spectral/welchOptions.js";
+import { channelIndices, type ChannelName } from "../read/channelChoice.js";
 import type { CsvReadOptions } from "../read/csvTimeHistory.js";
 import { MAX_REPORT_SAMPLES, MAX_SPECTRUM_SAMPLES } from "../read/analysisLimits.js";
 import { isoDateTime, parseDateTimeText } from "../read/dateTimeStamp.js";
-import type { CsvDialect, RecordingInfo } from "../read/timeHistory.js";
-import type { AccelUnit } from "../units.js";
+import type { RecordingInfo } from "../read/timeHistory.js";
 
-/**
- * One resolved analysis: the options a caller gave and what the reader found (format, CSV dialect, time
- * column, rate, channels and their units, calibration, sensitivity), turned once into the settings the
- * pass runs with, every rule checked here and nowhere else. It is plain data and is recorded whole in every
- * result (`analysis` in the JSON and in the report's embedded result), so a result says exactly how to
- * reproduce it. Errors name the library's keys (`segmentLength`); the CLI shows them as flags
- * (cli/optionFlags.ts).
- */
-export interface ResolvedAnalysis {
-  file: string;
-  reading: {
-    format: "csv" | "wav";
-    layout: string;
-    /** The rate the reader announced before the read (a CSV's time column is final only at its end). */
-    designRateHz: number;
-    /** How a CSV was read (detected or as given). */
-    dialect?: CsvDialect | undefined;
-    /** The CSV options as given (undefined fields dropped). */
-    csvGiven?: Omit<CsvReadOptions, "parseWorkers"> | undefined;
-  };
-  /** The channels analysed, in order, with how their numbers became accelerations. */
-  channels: { name: string; position: number; resultUnits: AccelUnit; reading: ChannelReading }[];
-  welch: ResolvedWelchOptions;
-  /** The band of the band RMS, when one was asked for. */
-  band?: { fminHz: number; fmaxHz: number } | undefined;
-  /** The analysed window as asked (seconds from the first sample; clock times as given). */
-  window: { fromS?: number | undefined; toS?: number | undefined; fromClock?: string | undefined; toClock?: string | undefined };
-  /** Length of the stretches of the stationarity test, s. */
-  stretchS: number;
-  spectrum: boolean;
-  histogram: boolean;
-  /** Length of the peak-hold spectrum's stretches, s, when one is asked for. */
-  peakHoldS?: number | undefined;
-}
+export type { ResolvedAnalysis } from "./analysisOptions.js";
 
 /** What the pass needs beside the record: channel indices, conditioning factors and the frame window at the design rate. */
 export interface AnalysisPlan {
@@ -53,18 +20,10 @@ export interface AnalysisPlan {
   end: number;
 }
 
-export function selectChannels(info: RecordingInfo, wanted: string[] | undefined): number[] {
-  if (wanted === undefined || wanted.length === 0) return info.channels.map((_, i) => i);
-  return wanted.map((w) => {
-    const byName = info.channels.findIndex((c) => c.name.toLowerCase() === w.toLowerCase());
-    if (byName >= 0) return byName;
-    if (/^\d+$/.test(w) && Number(w) >= 1 && Number(w) <= info.channels.length) return Number(w) - 1;
-    throw new InputError("CHANNEL_NOT_FOUND", {
-      file: info.file, option: "channels", expected: `a channel name or position: ${info.channels.map((c, i) => `${i + 1}=${c.name}`).join(", ")}`, received: quoted(w),
-    });
-  });
+/** The indices of the channels `channels` names (read/channelChoice.ts, the one way a channel is picked); all when empty. */
+export function selectChannels(info: RecordingInfo, wanted: readonly ChannelName[] | undefined, option = "channels"): number[] {
+  return channelIndices(info.channels, wanted, { option, file: info.file });
 }
-
 
 /** Turns options and the reader's findings into the one resolved analysis; every option rule is checked here. */
 export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): AnalysisPlan {
@@ -78,21 +37,7 @@ export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): 
   }
   const welch = normalizeWelchOptions(options, info.sampleRateHz);
   const spectrum = options.spectrum !== false;
-  // Memory is bounded before it is taken: channels x segment length (read/analysisLimits.ts).
-  const spectrumChannels = spectrum ? select.length : 0;
-  if (spectrumChannels * welch.segmentLength > MAX_SPECTRUM_SAMPLES) {
-    throw new InputError("ANALYSIS_TOO_LARGE", {
-      file: info.file, expected: `channels x segment length at most ${MAX_SPECTRUM_SAMPLES} (${Math.max(1, Math.floor(MAX_SPECTRUM_SAMPLES / welch.segmentLength))} channels at ${welch.segmentLength} points)`,
-      received: `${spectrumChannels} channels x ${welch.segmentLength}`, hint: "select fewer `channels`, or use a shorter `segmentLength` or a coarser `resolutionHz`",
-    });
-  }
-  if (options.forReport === true && spectrumChannels * welch.segmentLength > MAX_REPORT_SAMPLES) {
-    throw new InputError("REPORT_TOO_LARGE", {
-      file: info.file, expected: `for an HTML record, channels x segment length at most ${MAX_REPORT_SAMPLES} (${Math.max(1, Math.floor(MAX_REPORT_SAMPLES / welch.segmentLength))} channels at ${welch.segmentLength} points)`,
-      received: `${spectrumChannels} channels x ${welch.segmentLength} (${Number(welch.resolutionHz.toPrecision(4))} Hz lines)`,
-      hint: "write the full data as CSV or JSON instead of an HTML record, or select fewer `channels`, or use a coarser `resolutionHz`",
-    });
-  }
+  checkMemory(options, info, spectrum ? select.length : 0, welch);
   const stretchS = options.stretchS ?? 1;
   if (!(stretchS > 0 && Number.isFinite(stretchS))) throw new InputError("OPTION_INVALID", { option: "stretchS", expected: "a stretch length in s above 0", received: String(stretchS) });
   const peakHoldS = options.peakHoldS;
@@ -113,9 +58,39 @@ export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): 
     stretchS,
     spectrum,
     histogram: options.histogram === true,
+    ...(options.statistics === false && !spectrum ? { statistics: false as const } : {}),
     peakHoldS,
   };
   return { analysis, select, conditioning, first, end };
+}
+
+/**
+ * Memory is bounded before it is taken (read/analysisLimits.ts): the segment-length spectra the pass holds,
+ * its own Welch spectrum per channel and those its listeners declare (transfer's cross spectra), times the
+ * segment length; for an HTML record, the channels' spectra against the page's bound.
+ */
+function checkMemory(options: AnalysisOptions, info: RecordingInfo, spectrumChannels: number, welch: ResolvedWelchOptions): void {
+  const { segmentLength } = welch;
+  const listeners = (options.accumulators ?? []).flatMap((a) => (a.spectra ? [a.spectra] : []));
+  const held = spectrumChannels + listeners.reduce((n, l) => n + l.count, 0);
+  if (held * segmentLength > MAX_SPECTRUM_SAMPLES) {
+    const fewer = listeners.length > 0 ? listeners.map((l) => `\`${l.option}\``).join(" or ") : "`channels`";
+    throw new InputError("ANALYSIS_TOO_LARGE", {
+      file: info.file,
+      expected: listeners.length > 0
+        ? `spectra held x segment length at most ${MAX_SPECTRUM_SAMPLES} (${Math.max(1, Math.floor(MAX_SPECTRUM_SAMPLES / segmentLength))} spectra at ${segmentLength} points)`
+        : `channels x segment length at most ${MAX_SPECTRUM_SAMPLES} (${Math.max(1, Math.floor(MAX_SPECTRUM_SAMPLES / segmentLength))} channels at ${segmentLength} points)`,
+      received: listeners.length > 0 ? `${held} spectra x ${segmentLength}` : `${spectrumChannels} channels x ${segmentLength}`,
+      hint: `select fewer ${fewer}, or use a shorter \`segmentLength\` or a coarser \`resolutionHz\``,
+    });
+  }
+  if (options.forReport === true && spectrumChannels * segmentLength > MAX_REPORT_SAMPLES) {
+    throw new InputError("REPORT_TOO_LARGE", {
+      file: info.file, expected: `for an HTML record, channels x segment length at most ${MAX_REPORT_SAMPLES} (${Math.max(1, Math.floor(MAX_REPORT_SAMPLES / segmentLength))} channels at ${segmentLength} points)`,
+      received: `${spectrumChannels} channels x ${segmentLength} (${Number(welch.resolutionHz.toPrecision(4))} Hz lines)`,
+      hint: "write the full data as CSV or JSON instead of an HTML record, or select fewer `channels`, or use a coarser `resolutionHz`",
+    });
+  }
 }
 
 /**
@@ -139,7 +114,7 @@ export function atFinalRate(a: ResolvedAnalysis, fs: number, asked: { fminHz?: n
  * --from/--to given as clock times (`fromClock`, `toClock`: an ISO 8601 date-time, or a time of day on the
  * first stamp's day) turned into seconds from the first sample, for a record with date-time stamps.
  */
-export function clockWindow(o: AnalysisOptions, info: RecordingInfo): AnalysisOptions {
+export function clockWindow<T extends RecordingOptions>(o: T, info: RecordingInfo): T {
   if (o.fromClock === undefined && o.toClock === undefined) return o;
   const stamp = info.firstStamp;
   const seconds = (text: string, option: string): number => {
@@ -167,7 +142,7 @@ export function clockWindow(o: AnalysisOptions, info: RecordingInfo): AnalysisOp
 }
 
 /** First frame and end frame (exclusive) of --from/--to at the design rate: frames i with from <= i/fs < to. */
-export function frameWindow(o: AnalysisOptions, fs: number): { first: number; end: number } {
+export function frameWindow(o: RecordingOptions, fs: number): { first: number; end: number } {
   for (const [name, v] of [["fromS", o.fromS], ["toS", o.toS]] as const) {
     if (v !== undefined && !(v >= 0 && Number.isFinite(v))) throw new InputError("OPTION_INVALID", { option: name, expected: "a time in s from the start of the record, >= 0", received: String(v) });
   }

@@ -72,6 +72,7 @@ export function rideJson(r: RideResult, version: string) {
     tool: toolInfo(version),
     input: inputJson(a),
     settings: { ...settingsJson(a), runningRmsS: r.axes[0]?.dose.runningRmsS ?? null, stretchS: r.axes[0]?.dose.stretchS ?? null },
+    analysis: a.analysis,
     posture: r.posture,
     window: { fromS: a.window.fromS, toS: a.window.toS, durationS: a.window.frames / a.input.sampleRateHz, frames: a.window.frames },
     axes: r.axes.map((x) => ({

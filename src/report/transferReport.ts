@@ -19,6 +19,7 @@ export function transferJson(t: TransferAnalysis, version: string) {
     window: t.window,
     channels: t.channels,
     settings: { window: s.window, segment: s.segmentLength, overlap: s.overlap, hop: s.hop, detrend: s.detrend, confidence: s.confidence, resolutionHz: s.resolutionHz, scale: s.scale, goodCoherence: s.goodCoherence },
+    analysis: t.analysis,
     averages: t.averages,
     skippedSegments: t.skippedSegments,
     dof: t.dof,

@@ -274,6 +274,26 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   return { status, report, kind: doc.kind, steps, differences: cmp.diffs.slice(0, 20), missing, compared: cmp.compared };
 }
 
+/**
+ * Re-run options as a record made before the options family (issue #23) wrote them, in today's keys: one
+ * channel as `channel` becomes `channels: [it]`, derive's band `fromHz`/`toHz` becomes `fminHz`/`fmaxHz`.
+ */
+function channelSpelled(o: Record<string, unknown> | undefined): Record<string, unknown> | undefined {
+  if (o === undefined || !("channel" in o)) return o;
+  const { channel, ...rest } = o;
+  return { ...rest, channels: rest.channels ?? (channel === undefined || channel === null ? undefined : [channel]) };
+}
+
+function respondRerunSpelled(rerun: Record<string, unknown>): Record<string, unknown> {
+  const against = rerun.against as { options?: Record<string, unknown> } | undefined;
+  return { ...rerun, source: channelSpelled(rerun.source as Record<string, unknown> | undefined), ...(against ? { against: { ...against, options: channelSpelled(against.options) } } : {}) };
+}
+
+function deriveRerunSpelled(rerun: DerivationDoc["rerun"]): DerivationDoc["rerun"] {
+  const { fromHz, toHz, ...rest } = channelSpelled(rerun as unknown as Record<string, unknown>)! as Record<string, unknown>;
+  return { ...rest, fminHz: rest.fminHz ?? fromHz, fmaxHz: rest.fmaxHz ?? toHz } as unknown as DerivationDoc["rerun"];
+}
+
 interface DerivationDoc {
   kind: "derive";
   created: string;
@@ -335,7 +355,7 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   const { deriveProfile, strokeOf } = await import("../analyses/deriveProfile.js");
   const { deriveJson, profileDocumentText } = await import("../report/deriveReport.js");
   const { parseProfile } = await import("../compare/testProfile.js");
-  const r = await deriveProfile({ ...doc.rerun, recordings: given.map((g, i) => ({ ...g, file: found[i]! })), version, created: new Date(doc.created) });
+  const r = await deriveProfile({ ...deriveRerunSpelled(doc.rerun), recordings: given.map((g, i) => ({ ...g, file: found[i]! })), version, created: new Date(doc.created) });
   // As `derive` does: the profile read back from the text it writes, and the stroke checked on that.
   const outFile = doc.rerun.outFile ?? doc.written?.file ?? "derived.json";
   const text = profileDocumentText(r.document, outFile);
@@ -393,7 +413,7 @@ async function rerunRecord(doc: RecordDoc, paths: string[], version: string): Pr
   }
   const { runResponse } = await import("../analyses/responseSpectra.js");
   const { responseJson } = await import("../report/responseReport.js");
-  const { r, against } = await runResponse(paths[0]!, doc.rerun as never, paths[1]);
+  const { r, against } = await runResponse(paths[0]!, respondRerunSpelled(doc.rerun) as never, paths[1]);
   return responseJson(r, version, against);
 }
 

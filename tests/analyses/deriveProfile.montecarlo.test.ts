@@ -25,7 +25,7 @@ describe("derive on seeded flat records: spread of the damage-equivalent level (
     let fn: Float64Array | undefined;
     for (const s of seeds) {
       const file = writeFieldRecord(dir, `mc${s}.wav`, flat(g0), s, length);
-      const r = await deriveProfile({ ...plainInputs([file], lifeS), testDurationS: 3600, fromHz: 10, toHz: 400, perOctave: 2, maxBreakpoints: 4, version: "test", created: new Date(0) });
+      const r = await deriveProfile({ ...plainInputs([file], lifeS), testDurationS: 3600, fminHz: 10, fmaxHz: 400, perOctave: 2, maxBreakpoints: 4, version: "test", created: new Date(0) });
       fn = r.fnHz;
       // The true field damage: the flat G0 itself over the life (the same band, the same computation).
       const truth = damageSpectra(powerLawSpectrum([{ f1: 10, f2: 400, g1: g0, exponent: 0 }]), { fnHz: r.fnHz, q, durationS: lifeS, sn: { ...SN_DEFAULTS, basquinB: b }, toSi: 9.80665 }).damage;

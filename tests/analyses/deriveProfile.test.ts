@@ -44,7 +44,7 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     const g0 = 0.01;
     const files = [1, 2, 3].map((s) => writeFieldRecord(dir, `flat${s}.wav`, flat(g0), 300 + s));
     const lifeS = 100 * 3600;
-    const r = await deriveProfile({ ...plainInputs(files, lifeS), testDurationS: 3600, fromHz: 10, toHz: 500, version: "test", created: new Date(0) });
+    const r = await deriveProfile({ ...plainInputs(files, lifeS), testDurationS: 3600, fminHz: 10, fmaxHz: 500, version: "test", created: new Date(0) });
     // Equal narrow-band damage: T_1 G_1^(b/2) = T_2 G_2^(b/2) (../shared/REFERENCES.md sec. 14; MIL-STD-810H 514.8 Annex A, from memory).
     const closed = g0 * (lifeS / 3600) ** (2 / 8);
     expect(r.compression.flatFactor).toBeCloseTo(100 ** 0.25, 12);
@@ -66,7 +66,7 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
   it("the derived profile's FDS covers the field's at every grid point, checked by numpy; fewer breakpoints still cover, and a margin is met", async () => {
     const dir = tempDir();
     const files = [1, 2, 3].map((s) => writeFieldRecord(dir, `peaky${s}.wav`, peaky(0.002 * s), 400 + s));
-    const base = { ...plainInputs(files, 500 * 3600), testDurationS: 7200, fromHz: 5, toHz: 400, version: "test", created: new Date(0) };
+    const base = { ...plainInputs(files, 500 * 3600), testDurationS: 7200, fminHz: 5, fmaxHz: 400, version: "test", created: new Date(0) };
     const seen: string[] = [];
     for (const [n, margin] of [[8, 1], [3, 1], [5, 2]] as const) {
       const r = await deriveProfile({ ...base, maxBreakpoints: n, margin });
@@ -88,7 +88,7 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     writeFieldRecord(dir, "smooth.wav", peaky(0.001), 501, 1 << 15);
     writeFieldRecord(dir, "rough.wav", peaky(0.004), 502, 1 << 15);
     const mix = (roughHours: number) => parseServiceMix({ groups: [{ name: "smooth", hours: 300, recordings: ["smooth.wav"] }, { name: "rough", hours: roughHours, recordings: ["rough.wav"] }] }, join(dir, "mix.yaml"), "0".repeat(64));
-    const common = { testDurationS: 3600, fromHz: 10, toHz: 400, version: "test", created: new Date(0) };
+    const common = { testDurationS: 3600, fminHz: 10, fmaxHz: 400, version: "test", created: new Date(0) };
     const a = await deriveProfile({ ...mixInputs(mix(50)), ...common });
     const b = await deriveProfile({ ...mixInputs(mix(100)), ...common });
     expect(a.lifeS).toBe(350 * 3600);
@@ -135,7 +135,7 @@ describe("deriveProfile with a tone in the field (mixed mode)", () => {
       writeFileSync(withTone, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
       return { noTone, withTone };
     });
-    const common = { testDurationS: 3600, fromHz: 10, toHz: 500, version: "test", created: new Date(0) };
+    const common = { testDurationS: 3600, fminHz: 10, fmaxHz: 500, version: "test", created: new Date(0) };
     const a = await deriveProfile({ ...plainInputs(files.map((f) => f.withTone), 100 * 3600), ...common });
     const b = await deriveProfile({ ...plainInputs(files.map((f) => f.noTone), 100 * 3600), ...common });
     expect(a.candidateTones.length).toBe(2);
@@ -156,7 +156,7 @@ describe("deriveProfile with a tone in the field (mixed mode)", () => {
 
 describe("derive: the field's shocks beside the random test's largest response (issue 26, item 4)", () => {
   it("the forklift record's shocks (the sample's five known events) are reported, and where the test's ERS falls below the field's SRS a shock test is called for", async () => {
-    const r = await deriveProfile({ ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fromHz: 5, toHz: 400, version: "test", created: new Date(0) });
+    const r = await deriveProfile({ ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fminHz: 5, fmaxHz: 400, version: "test", created: new Date(0) });
     expect(r.shocks.eventsPerRecording).toEqual([5]);
     expect(r.shocks.largestEvents[0]!.recording).toBe(0);
     expect(r.shocks.largestEvents[0]!.peak).toBeLessThan(-2.7);
@@ -172,7 +172,7 @@ describe("derive: the field's shocks beside the random test's largest response (
 
 describe("derive --field-damage time: the field's FDS and ERS from the recordings themselves (issue 26, item 0)", () => {
   it("on the forklift's shocks the field's damage in time is far above the PSD's; the record says how it was made; the PSD's values are kept beside", async () => {
-    const args = { ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fromHz: 5, toHz: 400, version: "test", created: new Date(0) };
+    const args = { ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fminHz: 5, fmaxHz: 400, version: "test", created: new Date(0) };
     const psd = await deriveProfile(args);
     const time = await deriveProfile({ ...args, fieldDamage: "time" });
     const ratio = [...time.fieldFatigue].map((d, i) => d / psd.fieldFatigue[i]!);

@@ -115,8 +115,8 @@ print(json.dumps(out))
     const a = await analyzeRecording("samples/tern7-flight.csv", { channels: ["ch2"], csv: { parseWorkers: 0 } });
     const table = join(dir, "tern.csv");
     writeFileSync(table, psdCsv(a));
-    const fromTable = await loadSpectrumSource(table, { channel: "ch2" });
-    const fromRecording = await loadSpectrumSource("samples/tern7-flight.csv", { channel: "ch2", csv: { parseWorkers: 0 } });
+    const fromTable = await loadSpectrumSource(table, { channels: ["ch2"] });
+    const fromRecording = await loadSpectrumSource("samples/tern7-flight.csv", { channels: ["ch2"], csv: { parseWorkers: 0 } });
     expect(fromTable.kind).toBe("psd");
     expect(fromRecording.kind).toBe("recording");
     const fnHz = parseFnGrid("20:1000:2");
@@ -133,7 +133,7 @@ print(json.dumps(out))
     expect(Array.from(r3.milesRms)).toEqual(Array.from(r1.milesRms));
     expect(r3.extremePeak.every(Number.isNaN) && r3.fatigueDamage.every(Number.isNaN)).toBe(true);
     expect(r3.needsDuration).toEqual(["the largest peak (Davenport)", "the fatigue damage"]);
-    expect(await inputError(() => loadSpectrumSource(table, { channel: "ch9" }))).toMatch(/^CHANNEL_NOT_FOUND .*expected a channel name or position: 1=ch2, received "ch9"/);
+    expect(await inputError(() => loadSpectrumSource(table, { channels: ["ch9"] }))).toMatch(/^CHANNEL_NOT_FOUND .*expected a channel name or position: 1=ch2, received "ch9"/);
   });
 });
 

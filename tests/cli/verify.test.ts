@@ -195,4 +195,56 @@ describe("psdgate verify", () => {
     writeFileSync(join(d, "run.wav"), wav);
     expect((await cli("verify", join(d, "psd.html"))).code).toBe(1);
   });
+
+  it("records written before the options family (respond's `channel`, derive's `fromHz`/`toHz`/`channel`) still re-run and reproduce", async () => {
+    const d = tempDir();
+    copyFileSync("samples/kb210-run.wav", join(d, "run.wav"));
+    copyFileSync("samples/kb210-run-short.wav", join(d, "short.wav"));
+    copyFileSync("samples/brackley-ft2-warehouse.csv", join(d, "field.csv"));
+    expect((await cli("respond", join(d, "run.wav"), "--fn", "20:400", "--q", "10", "--channel", "2", "--against", join(d, "short.wav"), "--against-channel", "1", "--report", join(d, "r.html"))).code).toBe(0);
+    const derived = await cli("derive", join(d, "field.csv"), "--life", "2h", "--test-duration", "1h", "--fmin", "8", "--fmax", "300", "--channel", "1", "--out", join(d, "p.yaml"), "--report", join(d, "d.html"));
+    expect(derived.code, derived.stderr).toBe(0);
+    const old = (file: string, edit: (rerun: Record<string, unknown>) => void) => {
+      const f = join(d, file);
+      writeFileSync(f, forge(readFileSync(f, "utf8"), (p) => p, (doc) => edit(doc.rerun as Record<string, unknown>)));
+    };
+    old("r.html", (rerun) => {
+      const source = rerun.source as Record<string, unknown>;
+      const against = (rerun.against as { options: Record<string, unknown> }).options;
+      expect([source.channels, against.channels]).toEqual([["2"], ["1"]]);
+      source.channel = "2";
+      against.channel = "1";
+      delete source.channels;
+      delete against.channels;
+    });
+    old("d.html", (rerun) => {
+      expect([rerun.fminHz, rerun.fmaxHz, rerun.channels]).toEqual([8, 300, ["1"]]);
+      Object.assign(rerun, { fromHz: 8, toHz: 300, channel: "1" });
+      delete rerun.fminHz;
+      delete rerun.fmaxHz;
+      delete rerun.channels;
+    });
+    for (const f of ["r.html", "d.html"]) {
+      const r = await cli("verify", join(d, f));
+      expect(r.code, r.stdout).toBe(0);
+      expect(r.stdout).toMatch(/REPRODUCED/);
+    }
+  });
+
+  it("ride and transfer records carry the resolved analysis, and verify compares it: a changed line spacing in it is named", async () => {
+    const d = tempDir();
+    copyFileSync("samples/quarry-bend-bracket.csv", join(d, "bracket.csv"));
+    expect((await cli("transfer", join(d, "bracket.csv"), "--in", "base", "--output-channel", "tip", "--from", "2", "--to", "9.5", "--report", join(d, "t.html"))).code).toBe(0);
+    const ok = await cli("verify", join(d, "t.html"));
+    expect(ok.code, ok.stdout).toBe(0);
+    const f = join(d, "t.html");
+    writeFileSync(f, forge(readFileSync(f, "utf8"), (p) => p, (doc) => {
+      const a = (doc.result as { analysis: { welch: { resolutionHz: number }; channels: unknown[] } }).analysis;
+      expect(a.channels.length).toBe(2);
+      a.welch.resolutionHz *= 2;
+    }));
+    const bad = await cli("verify", f, "--json");
+    expect(bad.code).toBe(1);
+    expect(JSON.parse(bad.stdout).differences.join("\n")).toMatch(/analysis\.welch\.resolutionHz/);
+  });
 });

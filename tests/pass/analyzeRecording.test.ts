@@ -355,3 +355,17 @@ describe("sample-and-hold on the shared pass (psd, check and ride all read it)",
     expect(a.channels[0]!.hold!.held).toBe(false);
   });
 });
+
+describe("the built-in statistics can be left out only without a spectrum (transfer's pass)", () => {
+  it("statistics: false with spectrum: false leaves the channels' stats empty, says so in the resolved analysis, and the listeners hear every sample; with a spectrum it is ignored", async () => {
+    const heard: number[] = [];
+    const listener: PassAccumulator<number> = { start: () => undefined, push: (_b, n) => void heard.push(n), finish: () => heard.reduce((s, n) => s + n, 0) };
+    const off = await analyzeRecording("samples/kb210-run-short.wav", { spectrum: false, statistics: false, accumulators: [listener] });
+    expect(off.analysis.statistics).toBe(false);
+    expect(off.channels[0]!.stats.count).toBe(0);
+    expect(off.extras[0]).toBe(off.window.frames);
+    const on = await analyzeRecording("samples/kb210-run-short.wav", { statistics: false });
+    expect("statistics" in on.analysis).toBe(false);
+    expect(on.channels[0]!.stats.count).toBe(on.window.frames);
+  });
+});

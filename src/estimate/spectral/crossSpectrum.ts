@@ -161,6 +161,37 @@ export class CrossSpectrumAccumulator {
   }
 }
 
+/**
+ * The cross spectra as a listener on the one pass (the shape of pass/analysisOptions.ts PassAccumulator):
+ * built at start() from the resolved Welch geometry, pushed the conditioned, window-cut blocks of every
+ * channel (the reference first, by default), finished at the record's final rate. It holds an auto
+ * spectrum per channel and a complex cross spectrum per other channel, 2k - 1 segment-length spectra,
+ * which it declares so the pass bounds memory before the read (`option`: the key that sets k).
+ */
+export class CrossSpectrumListener {
+  readonly spectra: { count: number; option: string };
+  private acc: CrossSpectrumAccumulator | undefined;
+  private taper: Float64Array | undefined;
+
+  constructor(private readonly channels: number, option: string, private readonly reference = 0) {
+    this.spectra = { count: 2 * channels - 1, option };
+  }
+
+  start(_designRateHz: number, analysis: { welch: ResolvedWelchOptions }): void {
+    const w = analysis.welch;
+    this.taper = spectralWindow(w.window, w.segmentLength);
+    this.acc = new CrossSpectrumAccumulator({ segmentLength: w.segmentLength, hop: w.hop, window: this.taper, detrend: w.detrend }, this.channels, this.reference);
+  }
+
+  push(blocks: Float64Array[], frames: number): void {
+    this.acc!.push(blocks, frames);
+  }
+
+  finish(sampleRateHz: number): CrossSpectrumSums & { window: Float64Array } {
+    return { ...this.acc!.finish(sampleRateHz), window: this.taper! };
+  }
+}
+
 /** Cross-spectral density of two whole signals held in memory (for files, analyzeTransfer streams). */
 export function crossSpectralDensity(x: Float64Array, y: Float64Array, sampleRateHz: number, options: WelchOptions = {}): CrossSpectrumSums & { settings: ResolvedWelchOptions; window: Float64Array } {
   if (x.length !== y.length) throw new RangeError(`x and y differ in length (${x.length} and ${y.length})`);
