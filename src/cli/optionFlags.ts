@@ -30,7 +30,9 @@ export const OPTION_FLAGS: Readonly<Record<string, string>> = {
   confidence: "--confidence",
   fminHz: "--fmin",
   fmaxHz: "--fmax",
-  stretchS: "--stretch",
+  // No command takes a stretch length: psd and check keep the library's 1 s, and ride sets it to its
+  // --running-rms time (which ride checks first), so this is the one flag that can carry it.
+  stretchS: "--running-rms",
   meta: "--meta",
   metaTable: "--meta-table",
   // check

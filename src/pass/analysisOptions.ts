@@ -47,8 +47,8 @@ export interface AnalysisOptions extends WelchOptions {
 }
 
 /**
- * An extra listener on the one pass: the smallest seam for analyses beyond the built-in statistics and
- * Welch (the ride weighting uses it); the reshape's pluggable accumulators (#10) will absorb it.
+ * An extra listener on the one pass: how an analysis beyond the built-in statistics and Welch joins it
+ * (ride's weighting, respond's time response, shock's events, the tone fit).
  * - `start(designRateHz)` is called once before any sample flows, with the rate the reader announces
  *   (provisional for a CSV with a time column: the final one is known only when the column is read).
  *   Rate-dependent design (filters, window lengths) happens here.

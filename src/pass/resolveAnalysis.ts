@@ -11,7 +11,9 @@ import type { AccelUnit } from "../units.js";
 /**
  * One resolved analysis: the options a caller gave and what the reader found (format, CSV dialect, time
  * column, rate, channels and their units, calibration, sensitivity), turned once into the settings the
- * pass runs with, every rule checked here and nowhere else. It is plain data and is recorded whole in every
+ * pass runs with. The rules on the options every pass shares (channels, window, band, stretches, memory
+ * bounds; the Welch ones through normalizeWelchOptions) are checked here, once; an analysis checks only the
+ * options of its own (ride's axes, respond's Q, ...). It is plain data and is recorded whole in every
  * result (`analysis` in the JSON and in the report's embedded result), so a result says exactly how to
  * reproduce it. Errors name the library's keys (`segmentLength`); the CLI shows them as flags
  * (cli/optionFlags.ts).
