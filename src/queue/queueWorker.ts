@@ -86,6 +86,67 @@ function jobFile(job: { id: string; data: unknown }): string {
 /** The job is no longer ours (not active any more, or its result is stored already): nothing was changed. */
 class NotOurs extends Error {}
 
+async function fetchOne(store: QueueStore): Promise<FetchedJob | undefined> {
+  let error: unknown;
+  // pg-boss's fetch swallows query errors and returns no jobs; this runner keeps the error so a lost
+  // connection is seen (and retried with back-off) rather than read as an empty queue.
+  const db: SqlRunner = { executeSql: (t, v) => store.pool.query(t, v as unknown[]).catch((e: unknown) => { error = e; throw e; }) };
+  const jobs = await store.boss.fetch<Job>(QUEUE_NAME, { batchSize: 1, includeMetadata: true, db } as PgBoss.FetchOptions & { includeMetadata: true });
+  if (error !== undefined) throw error;
+  return jobs[0];
+}
+
+async function nothingLeft(store: QueueStore): Promise<boolean> {
+  const { rows } = await store.pool.query<{ n: string }>(`SELECT count(*) AS n FROM pgboss.job WHERE name = $1 AND state IN ('created', 'retry', 'active')`, [QUEUE_NAME]);
+  return Number(rows[0]!.n) === 0;
+}
+
+/**
+ * Result row and the job's end in one statement, so all or nothing without a transaction of several
+ * round trips. The job's update is the SQL of pg-boss 10's completeJobs (plans.js), and for a final
+ * failure the state pg-boss's failJobs gives a job out of retries; both only while the job is still
+ * active. The INSERT has no ON CONFLICT: a second result for a job is a unique violation, and then
+ * the statement changes nothing.
+ */
+async function finish(store: QueueStore, workerName: string, job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail"): Promise<void> {
+  const j = job.data;
+  // A malformed row's result is keyed by its own id: it cannot collide with a real job's (recording, settings).
+  const key = jobProblem(j) === undefined
+    ? [j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j)]
+    : [jobFile(job), "invalid", `invalid:${job.id}`, null, "invalid"];
+  const output = outcome.ok ? { verdict: outcome.verdict } : { code: outcome.error.code, message: outcome.error.message };
+  try {
+    const { rows } = await store.pool.query<{ stored: string }>(
+      `WITH ended AS (
+         UPDATE pgboss.job SET completed_on = now(), state = $17::pgboss.job_state, output = $18::jsonb
+          WHERE name = $19 AND id = $1 AND state = 'active'
+         RETURNING id
+       ), stored AS (
+         INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version, report_path)
+         SELECT id, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16 FROM ended
+         RETURNING job_id
+       )
+       SELECT count(*) AS stored FROM stored`,
+      [job.id, ...key, outcome.ok ? "done" : "failed",
+        outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
+        outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null,
+        final === "complete" ? "completed" : "failed", JSON.stringify(output), QUEUE_NAME],
+    );
+    if (Number(rows[0]!.stored) !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
+  } catch (e) {
+    if ((e as { code?: string }).code === "23505") throw new NotOurs("a result for this job or this recording and settings is already stored");
+    throw e;
+  }
+}
+
+/** The failed outcome of a row that is not a psdgate job: JOB_INVALID, stored like any input error. */
+function invalidJob(job: FetchedJob, problem: string, say: (s: string) => void): StoredOutcome {
+  const file = jobFile(job);
+  const error = errorToWire(new InputError("JOB_INVALID", { file, expected: "a psdgate job (an object with kind, file, sha256 and options)", received: problem }));
+  say(`psdgate: ${file}: not a psdgate job (${problem}); kept as failed with JOB_INVALID`);
+  return { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error };
+}
+
 /**
  * A worker: `jobs` loops, each fetching one job when it is free, running it on the pool, and writing
  * its result in the same statement (so the same transaction) that completes the job. Input errors fail the job at once; an
@@ -120,59 +181,6 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     }
   }
 
-  async function fetchOne(): Promise<FetchedJob | undefined> {
-    let error: unknown;
-    // pg-boss's fetch swallows query errors and returns no jobs; this runner keeps the error so a lost
-    // connection is seen (and retried with back-off) rather than read as an empty queue.
-    const db: SqlRunner = { executeSql: (t, v) => store.pool.query(t, v as unknown[]).catch((e: unknown) => { error = e; throw e; }) };
-    const jobs = await store.boss.fetch<Job>(QUEUE_NAME, { batchSize: 1, includeMetadata: true, db } as PgBoss.FetchOptions & { includeMetadata: true });
-    if (error !== undefined) throw error;
-    return jobs[0];
-  }
-
-  async function nothingLeft(): Promise<boolean> {
-    const { rows } = await store.pool.query<{ n: string }>(`SELECT count(*) AS n FROM pgboss.job WHERE name = $1 AND state IN ('created', 'retry', 'active')`, [QUEUE_NAME]);
-    return Number(rows[0]!.n) === 0;
-  }
-
-  /**
-   * Result row and the job's end in one statement, so all or nothing without a transaction of several
-   * round trips. The job's update is the SQL of pg-boss 10's completeJobs (plans.js), and for a final
-   * failure the state pg-boss's failJobs gives a job out of retries; both only while the job is still
-   * active. The INSERT has no ON CONFLICT: a second result for a job is a unique violation, and then
-   * the statement changes nothing.
-   */
-  async function finish(job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail"): Promise<void> {
-    const j = job.data;
-    // A malformed row's result is keyed by its own id: it cannot collide with a real job's (recording, settings).
-    const key = jobProblem(j) === undefined
-      ? [j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j)]
-      : [jobFile(job), "invalid", `invalid:${job.id}`, null, "invalid"];
-    const output = outcome.ok ? { verdict: outcome.verdict } : { code: outcome.error.code, message: outcome.error.message };
-    try {
-      const { rows } = await store.pool.query<{ stored: string }>(
-        `WITH ended AS (
-           UPDATE pgboss.job SET completed_on = now(), state = $17::pgboss.job_state, output = $18::jsonb
-            WHERE name = $19 AND id = $1 AND state = 'active'
-           RETURNING id
-         ), stored AS (
-           INSERT INTO psdgate.result (job_id, path, kind, recording_sha256, profile_sha256, settings_digest, outcome, verdict, error_code, error_message, figures, result, worker, attempt, tool_version, report_path)
-           SELECT id, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16 FROM ended
-           RETURNING job_id
-         )
-         SELECT count(*) AS stored FROM stored`,
-        [job.id, ...key, outcome.ok ? "done" : "failed",
-          outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
-          outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, o.workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null,
-          final === "complete" ? "completed" : "failed", JSON.stringify(output), QUEUE_NAME],
-      );
-      if (Number(rows[0]!.stored) !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
-    } catch (e) {
-      if ((e as { code?: string }).code === "23505") throw new NotOurs("a result for this job or this recording and settings is already stored");
-      throw e;
-    }
-  }
-
   type Ran = { outcome: StoredOutcome; crash?: undefined; seconds: number } | { outcome?: undefined; crash: Error; seconds: number };
 
   async function runOne(job: FetchedJob): Promise<Ran> {
@@ -191,7 +199,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     const { outcome, crash } = ran;
     try {
       if (outcome) {
-        await withDb("writing a result", () => finish(job, outcome, outcome.ok ? "complete" : "fail"), true);
+        await withDb("writing a result", () => finish(store, o.workerName, job, outcome, outcome.ok ? "complete" : "fail"), true);
         if (outcome.ok) summary.done++;
         else summary.failed++;
         o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, ran.seconds);
@@ -201,7 +209,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
       const attempts = job.retryLimit + 1;
       if (attempt >= attempts) {
         const error: WireError = { code: "INTERNAL", message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}` };
-        await withDb("writing a result", () => finish(job, { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error }, "fail"), true);
+        await withDb("writing a result", () => finish(store, o.workerName, job, { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error }, "fail"), true);
         summary.failed++;
         say(`psdgate: ${file}: ${error.message}; kept as failed`);
         return;
@@ -216,19 +224,11 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     }
   }
 
-  /** The failed outcome of a row that is not a psdgate job: JOB_INVALID, stored like any input error. */
-  function invalidJob(job: FetchedJob, problem: string): StoredOutcome {
-    const file = jobFile(job);
-    const error = errorToWire(new InputError("JOB_INVALID", { file, expected: "a psdgate job (an object with kind, file, sha256 and options)", received: problem }));
-    say(`psdgate: ${file}: not a psdgate job (${problem}); kept as failed with JOB_INVALID`);
-    return { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error };
-  }
-
   async function slot(): Promise<void> {
     // A job's result is written while the next job runs: the database's time hides behind the analysis.
     let recording: Promise<void> = Promise.resolve();
     while (!signal.aborted) {
-      const job = await withDb("fetching a job", fetchOne, false);
+      const job = await withDb("fetching a job", () => fetchOne(store), false);
       if (signal.aborted) {
         // Fetched just as we were told to stop: hand it straight back untouched.
         if (job) await withDb("handing a job back", () => store.pool.query(`UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]), true);
@@ -236,7 +236,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
       }
       if (job) {
         const problem = jobProblem(job.data);
-        const ran: Ran = problem === undefined ? await runOne(job) : { outcome: invalidJob(job, problem), seconds: 0 };
+        const ran: Ran = problem === undefined ? await runOne(job) : { outcome: invalidJob(job, problem, say), seconds: 0 };
         await recording;
         recording = record(job, ran);
         // Marked as handled now (a bug's error is still thrown where it is awaited, one job later).
@@ -249,7 +249,7 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
         // Jobs held by a worker that died are failed by timeout (and so retried) by this call.
         await withDb("expiring lost jobs", () => store.boss.expire(), false);
       }
-      if (o.drain && (await withDb("counting jobs", nothingLeft, false))) break;
+      if (o.drain && (await withDb("counting jobs", () => nothingLeft(store), false))) break;
       await sleep(o.pollSeconds * 1000, signal);
     }
     await recording;
