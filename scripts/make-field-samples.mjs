@@ -5,7 +5,8 @@
 // Q 10), so `psdgate derive` has realistic, known inputs. 32 s at 2048 Hz, 16-bit PCM with psdgate's
 // 'pgcl' calibration chunk (16 g full scale). Deterministic (same bytes every run). Needs a build.
 import { writeFileSync } from "node:fs";
-import { GaussianNoise, RealFft } from "../dist/index.js";
+import { GaussianNoise } from "../dist/index.js";
+import { RealFft } from "../dist/estimate/spectral/realFft.js";
 
 const fs = 2048;
 const n = 1 << 16;

@@ -5,7 +5,8 @@
 // noise, so `psdgate transfer` has known answers: tip modes at 185 Hz (Q 12) and 620 Hz (Q 18),
 // clamp mode at 410 Hz (Q 8). Deterministic (same bytes every run). Needs a build (npm ci does it).
 import { writeFileSync } from "node:fs";
-import { RealFft, GaussianNoise } from "../dist/index.js";
+import { GaussianNoise } from "../dist/index.js";
+import { RealFft } from "../dist/estimate/spectral/realFft.js";
 
 const fs = 2560;
 const n = 1 << 16; // 25.6 s

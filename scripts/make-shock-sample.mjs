@@ -6,7 +6,8 @@
 // ringing the carriage's own 38 Hz mode (Q 12). 30 s at 2000 Hz, CSV with a time column, 4 decimals.
 // Deterministic (same bytes every run). Needs a build.
 import { writeFileSync } from "node:fs";
-import { GaussianNoise, RealFft } from "../dist/index.js";
+import { GaussianNoise } from "../dist/index.js";
+import { RealFft } from "../dist/estimate/spectral/realFft.js";
 
 const fs = 2000;
 const n = 1 << 16; // shaped as a power of two, then cut to 30 s

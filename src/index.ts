@@ -1,94 +1,277 @@
-// The public library API of psdgate, one name per line.
-export { resolveAnalysis, selectChannels, type ResolvedAnalysis } from "./pass/resolveAnalysis.js";
-export { analyzeRecording, analyzeSource, recordTooShort, clippingHintCount, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "./pass/analyzeRecording.js";
-export type { RecordingOptions } from "./pass/analysisOptions.js";
-export { channelIndex, channelIndices, type ChannelName } from "./read/channelChoice.js";
-export { checkRecording, loadProfile, combineSpectra, spectrumOf, CONTROL_RULES, type CheckResult, type CheckOptions, type ControlRule } from "./analyses/checkRecording.js";
-export { InputError, formatInputError, EXIT, errorToWire, errorFromWire, type ErrorPlace, type InputErrorDetails, type WireError } from "./errors.js";
-export { STANDARD_GRAVITY_M_PER_S2, INCH_M, FOOT_M, accelFactor, parseUnitSpec, parseSensitivity, type AccelUnit, type UnitSpec } from "./units.js";
-export { openTimeHistory } from "./read/openTimeHistory.js";
-export { openCsvTimeHistory, type CsvReadOptions } from "./read/csvTimeHistory.js";
-export { openWavTimeHistory } from "./read/wavTimeHistory.js";
-export type { RecordingInfo, ChannelInfo, TimeHistorySource, ReadSummary, BlockSink } from "./read/timeHistory.js";
-export { scaleSamples, channelConditioning, channelConditionings, type ChannelConditioning, type ChannelReading, type ChannelSetting, type ConditioningOptions } from "./condition/scaleSamples.js";
-export { spectralWindow, windowFigures, WINDOW_NAMES, type WindowName } from "./estimate/spectral/windows.js";
-export { RealFft } from "./estimate/spectral/realFft.js";
-export { SegmentPower } from "./estimate/spectral/segmentPower.js";
-export { WelchAccumulator, type Detrend, type WelchSettings, type WelchSums } from "./estimate/spectral/welchPsd.js";
-export { welchDof } from "./estimate/spectral/welchDof.js";
-export { normalizeWelchOptions, type WelchOptions, type ResolvedWelchOptions } from "./estimate/spectral/welchOptions.js";
-export { welchPsd, completePsd, bandRms, bandMeanSquare, strongestPeaks, frequencyAxis, type PsdEstimate, type SpectralPeak } from "./estimate/spectral/psdEstimate.js";
-export { chiSquareQuantile, chiSquareUpperQuantile, chiSquareCdf, chiSquareSurvival, chiSquareIntervalFactors, normalQuantile, normalCdf, normalSurvival, studentTQuantile, noncentralTCdf, noncentralTQuantile, binomialAtLeast } from "./estimate/statistics/distributions.js";
-export { RunningMoments, type SampleStatistics } from "./estimate/statistics/runningMoments.js";
-export { SampleHoldAccumulator, type SampleHold } from "./estimate/statistics/sampleHold.js";
-export { HistogramAccumulator, type AmplitudeHistogram } from "./estimate/statistics/amplitudeHistogram.js";
-export { parsevalCheck, parsevalTolerance, type ParsevalCheck } from "./estimate/spectral/parsevalCheck.js";
-export { parseProfile, profileLevel, profileMotion, powerLawArea, type TestProfile, type ProfileSegment } from "./compare/testProfile.js";
-export { readProfileSpec, type ProfileSpec, type ToleranceBand } from "./read/profileFile.js";
-export { bandAt } from "./compare/judgedGrid.js";
-export { longerRecordFactor, secondsForDof } from "./compare/runLength.js";
-export { powerRequirement } from "./compare/passPower.js";
-export { judgeSpectrum, withDoubts, withGate, overallVerdict, type Verdict, type ChannelCompliance, type Excursion, type LineDeviation, type SpectrumUnderTest, type DecideEstimate, type Finding } from "./compare/complianceCheck.js";
-export { DECISION_RULE, DEFAULT_POWER, ruleLevels, powerAt, dofForPower, largestUpperFactor, largestOfMoments, largestEffectiveDof, type PowerRequirement } from "./compare/decisionRule.js";
-export { levelGate, levelSwing, LEVEL_GATE, type LevelSwing } from "./compare/levelGate.js";
-export { amplitudeGates, autocorrelationFourthSum, GATE_RATE } from "./compare/amplitudeGates.js";
-export { spectralKernel, lineVarianceInflation, detrendBiasedLines, departureShare, kernelDensityAt } from "./estimate/spectral/spectralKernel.js";
-export { ToneFitAccumulator, spectralTones, toneLines, tonePeakSd, toneFrequencySd, type ToneFit, type ToneRequest, type SpectralTone } from "./estimate/spectral/toneEstimate.js";
-export { judgeMixedMode, toneSearchHalfWidthHz, combineFits, type ToneJudgement } from "./compare/toneCheck.js";
-export { synthesizeProfile, type SynthOptions, type SynthResult } from "./synth/synthesizeProfile.js";
-export { GaussianNoise } from "./synth/gaussianNoise.js";
-export { FINDING_CODES, type FindingCode, type FindingAbout } from "./findings.js";
-export { findingText, findingTexts, findingJson } from "./report/findingTexts.js";
-export { psdJson, psdCsv } from "./report/psdJson.js";
-export { checkJson, checkText } from "./report/checkReport.js";
-export { checkHtml } from "./report/htmlReport.js";
-export { psdHtml } from "./report/psdHtml.js";
-export { checkCsv } from "./report/checkCsv.js";
-export { embedResult, extractResult, RESULT_FORMAT } from "./report/embeddedResult.js";
-export type { ReportContext } from "./report/reportPage.js";
-export { loadTestMeta, parseTestMeta, type TestMeta } from "./read/testMeta.js";
-export { verifyReport, compareResults, type VerifyResult, type VerifyOptions } from "./verify/verifyReport.js";
-export { profileJson, profileText } from "./report/profileText.js";
-export { writeAtomic } from "./report/writeAtomic.js";
-export { createTimeHistoryWriter, type TimeHistoryWriter } from "./report/timeHistoryWriter.js";
-export { rideRecording, rideSource, weightedRmsFromPsd, ROUTE_TOLERANCE, type RideOptions, type RideResult, type RideAxis } from "./analyses/rideRecording.js";
-export { rideJson, rideText, RIDE_CAUTIONS } from "./report/rideReport.js";
-export { WEIGHTING_NAMES, WEIGHTINGS, analogSections, weightingMagnitude, weightingPowerGains, THIRD_OCTAVE_CENTRES_HZ, type WeightingName, type AnalogSection, type WeightingParameters } from "./weight/isoWeightings.js";
-export { bilinearSection, cascadeMagnitude, BiquadCascade, type DigitalBiquad } from "./weight/bilinearBiquads.js";
-export { fittedSection } from "./weight/fittedBiquads.js";
-export { designWeightingFilter, weightingCascade, coveredCentresHz, MIN_WEIGHTING_RATE_HZ, SETTLE_S, type WeightingFilterDesign } from "./weight/weightingFilter.js";
-export { VibrationDoseAccumulator, vibrationDose, type VibrationDose, type VibrationDoseOptions } from "./weight/vibrationDose.js";
-export { StretchMeanSquares } from "./estimate/statistics/stretchMeanSquares.js";
-export { reverseArrangementsTest, runTest, stationarityFinding, inversionDistribution, runsDistribution, reverseArrangementCount, type StationarityTest, type StationarityFinding, type DepartingStretch } from "./estimate/statistics/stationarityTests.js";
-export { WelchWeightedMeanSquare } from "./estimate/spectral/welchTimeWeights.js";
-export { axisRules, dailyExposure, vibrationTotalValue, comfortReactions, basicMethodCheck, seatTransmissibility, DIRECTIVE_2002_44_EC, ISO_2631_HEALTH_ZONE, COMFORT_REACTIONS, BASIC_METHOD_LIMITS, POSTURES, AXES, type Posture, type Axis, type AxisRule, type DailyExposure } from "./compare/wholeBodyExposure.js";
-export { type PassAccumulator, type FrameWindow, stationarityNote } from "./pass/analyzeRecording.js";
-export { CrossSpectrumAccumulator, CrossSpectrumListener, crossSpectralDensity, type CrossSpectrumSums } from "./estimate/spectral/crossSpectrum.js";
-export { frequencyResponse, findResonances, type FrequencyResponse, type Resonance, type ResonanceOptions } from "./estimate/spectral/frequencyResponse.js";
-export { powerLawSpectrum, lineSpectrum, spectralMoments, type InputSpectrum, type SpectralMoments } from "./estimate/response/inputSpectrum.js";
-export { absoluteTransmissibilitySquared, relativeDisplacementSquared, sdofResponse, milesRms, milesRelativeDisplacementRms, type SdofResponse } from "./estimate/response/sdofResponse.js";
-export { riceRates, davenportPeakFactor, type RiceRates } from "./estimate/response/peakStatistics.js";
-export { narrowBandDamage, SN_DEFAULTS, type SnCurve } from "./estimate/response/fatigueDamage.js";
-export { RainflowCounter, type RainflowCycle } from "./estimate/response/rainflow.js";
-export { velocityPsd, displacementPsd, spectrumMotion, type Motion } from "./estimate/response/kinematics.js";
-export { readPsdTable, parsePsdTable, type PsdTable } from "./read/psdTable.js";
-export { analyzeTransfer, analyzeTransferSource, type TransferOptions, type TransferAnalysis, type TransferOutput } from "./analyses/analyzeTransfer.js";
-export { loadSpectrumSource, responseSpectra, compareResponses, parseFnGrid, sourceKind, type SpectrumSource, type SourceKind, type ResponseSpectra, type ResponseComparison } from "./analyses/responseSpectra.js";
-export { absoluteAccelerationFilter, relativeDisplacementFilter, shockSpectrum, ShockSpectrumAccumulator, srsRateLimit, checkSrsGrid, SRS_SAMPLES_PER_PERIOD, SRS_MIN_SAMPLES_PER_PERIOD, type ShockSpectrum, type SdofFilter } from "./estimate/response/shockResponse.js";
-export { TimeResponseAccumulator, type TimeResponse } from "./estimate/response/timeResponse.js";
-export { EventFinder, backgroundRms, gaussianFalseEventRate, type ShockEvent, type EventFinderOptions } from "./estimate/response/eventFinder.js";
-export { shockRecording, DEFAULT_THRESHOLD_FACTOR, DEFAULT_HOLD_S, type ShockOptions, type ShockResult, type ShockChannel, type ShockEventResult } from "./analyses/shockRecording.js";
-export { transferJson, transferText, transferCsv } from "./report/transferReport.js";
-export { transferHtml } from "./report/transferHtml.js";
-export { responseJson, responseText } from "./report/responseReport.js";
-export { runAnalysis, type AnalysisJob, type AnalysisResult } from "./analyses/runAnalysis.js";
-export { deriveProfile, mixInputs, plainInputs, octaveGrid, DERIVE_DEFAULTS, type DeriveOptions, type DeriveResult, type FieldRecordingInput, type FieldRecordingResult } from "./analyses/deriveProfile.js";
-export { loadServiceMix, parseServiceMix, type ServiceMix, type MixGroup, type MixRecording } from "./read/mixFile.js";
-export { oneSidedToleranceFactor, logToleranceLimit, MIN_TOLERANCE_SAMPLES, type LogToleranceLimit } from "./estimate/statistics/toleranceLimit.js";
-export { damageSpectra, type DamageSpectra, type DamageSpectraOptions } from "./estimate/response/damageSpectrum.js";
-export { clippedSpectrum } from "./estimate/response/inputSpectrum.js";
-export { fitDamageProfile, upperEnvelope, brokenLineLevel, type Breakpoint, type ProfileFit, type ProfileFitOptions } from "./synth/profileFit.js";
-export { deriveJson, deriveText, profileDocumentText } from "./report/deriveReport.js";
-export { deriveHtml } from "./report/deriveHtml.js";
-export { provenanceSummary } from "./report/profileText.js";
-export type { ProfileProvenance, ProfileTone } from "./read/profileFile.js";
+// The public library API of psdgate, one name per line: the main jobs and the types their results are made
+// of (DEVELOPERS.md, "The library's index"). Internals (thread helpers, accumulators, the pass's pieces, the
+// queue) are imported from their own modules by the code that needs them, not offered here.
+
+// Errors, units, version
+export {
+  InputError,
+  formatInputError,
+  EXIT,
+  type InputErrorDetails,
+  type ErrorPlace,
+} from "./errors.js";
+export {
+  STANDARD_GRAVITY_M_PER_S2,
+  accelFactor,
+  type AccelUnit,
+} from "./units.js";
+export {
+  VERSION,
+} from "./version.js";
+export {
+  FINDING_CODES,
+  type Finding,
+  type FindingCode,
+} from "./findings.js";
+export {
+  findingText,
+  findingTexts,
+} from "./report/findingTexts.js";
+
+// Read a recording (and the other inputs: a PSD table, test identity, a service mix)
+export {
+  openTimeHistory,
+} from "./read/openTimeHistory.js";
+export {
+  type CsvReadOptions,
+} from "./read/csvTimeHistory.js";
+export {
+  type ChannelName,
+} from "./read/channelChoice.js";
+export type {
+  RecordingInfo,
+  ChannelInfo,
+  TimeHistorySource,
+} from "./read/timeHistory.js";
+export {
+  readPsdTable,
+  type PsdTable,
+} from "./read/psdTable.js";
+export {
+  loadTestMeta,
+  type TestMeta,
+} from "./read/testMeta.js";
+export {
+  loadServiceMix,
+  type ServiceMix,
+} from "./read/mixFile.js";
+
+// Analyse: the one pass (psd, inspect) and Welch's estimate in memory
+export {
+  analyzeRecording,
+  analyzeSource,
+  type ChannelAnalysis,
+  type RecordingAnalysis,
+  type FrameWindow,
+} from "./pass/analyzeRecording.js";
+export {
+  type AnalysisOptions,
+  type PassAccumulator,
+} from "./pass/analysisOptions.js";
+export {
+  type ResolvedAnalysis,
+  type RecordingOptions,
+} from "./pass/analysisOptions.js";
+export {
+  welchPsd,
+  bandRms,
+  type PsdEstimate,
+} from "./estimate/spectral/psdEstimate.js";
+export {
+  type WelchOptions,
+} from "./estimate/spectral/welchOptions.js";
+export {
+  WINDOW_NAMES,
+  type WindowName,
+} from "./estimate/spectral/windows.js";
+export {
+  welchDof,
+} from "./estimate/spectral/welchDof.js";
+export {
+  chiSquareIntervalFactors,
+} from "./estimate/statistics/distributions.js";
+
+// Check against a test profile; profiles
+export {
+  checkRecording,
+  loadProfile,
+  CONTROL_RULES,
+  type CheckResult,
+  type CheckOptions,
+  type ControlRule,
+} from "./analyses/checkRecording.js";
+export {
+  parseProfile,
+  profileLevel,
+  profileMotion,
+  type TestProfile,
+  type ProfileSegment,
+} from "./compare/testProfile.js";
+export {
+  type ToleranceBand,
+} from "./read/profileFile.js";
+export {
+  judgeSpectrum,
+  type Verdict,
+  type ChannelCompliance,
+  type Excursion,
+} from "./compare/complianceCheck.js";
+export {
+  DECISION_RULE,
+} from "./compare/decisionRule.js";
+
+// Ride (ISO 2631-1)
+export {
+  rideRecording,
+  type RideOptions,
+  type RideResult,
+  type RideAxis,
+} from "./analyses/rideRecording.js";
+export {
+  WEIGHTING_NAMES,
+  weightingMagnitude,
+  type WeightingName,
+} from "./weight/isoWeightings.js";
+export {
+  dailyExposure,
+  DIRECTIVE_2002_44_EC,
+  type DailyExposure,
+} from "./compare/wholeBodyExposure.js";
+
+// Transfer
+export {
+  analyzeTransfer,
+  type TransferOptions,
+  type TransferAnalysis,
+  type TransferOutput,
+} from "./analyses/analyzeTransfer.js";
+
+// Respond (SDOF response spectra)
+export {
+  loadSpectrumSource,
+  responseSpectra,
+  compareResponses,
+  type SpectrumSource,
+  type ResponseOptions,
+  type ResponseSpectra,
+  type ResponseComparison,
+} from "./analyses/responseSpectra.js";
+export {
+  milesRms,
+} from "./estimate/response/sdofResponse.js";
+
+// Derive a test profile from field recordings
+export {
+  deriveProfile,
+  mixInputs,
+  plainInputs,
+  DERIVE_DEFAULTS,
+  type DeriveOptions,
+  type DeriveResult,
+  type FieldRecordingInput,
+  type FieldRecordingResult,
+} from "./analyses/deriveProfile.js";
+
+// Shock
+export {
+  shockRecording,
+  type ShockOptions,
+  type ShockResult,
+} from "./analyses/shockRecording.js";
+export {
+  shockSpectrum,
+  type ShockSpectrum,
+} from "./estimate/response/shockResponse.js";
+
+// Verify a record
+export {
+  verifyReport,
+  type VerifyResult,
+  type VerifyOptions,
+} from "./verify/verifyReport.js";
+
+// Synthesise a recording
+export {
+  synthesizeProfile,
+  type SynthOptions,
+  type SynthResult,
+} from "./synth/synthesizeProfile.js";
+export {
+  GaussianNoise,
+} from "./synth/gaussianNoise.js";
+
+// Report writers (text, JSON, CSV, HTML) and the one way to write a file
+export {
+  psdText,
+} from "./report/psdText.js";
+export {
+  psdJson,
+  psdCsv,
+} from "./report/psdJson.js";
+export {
+  psdHtml,
+} from "./report/psdHtml.js";
+export {
+  checkText,
+  checkJson,
+} from "./report/checkReport.js";
+export {
+  checkCsv,
+} from "./report/checkCsv.js";
+export {
+  checkHtml,
+} from "./report/htmlReport.js";
+export {
+  profileText,
+  profileJson,
+} from "./report/profileText.js";
+export {
+  rideText,
+  rideJson,
+  rideCsv,
+} from "./report/rideReport.js";
+export {
+  rideHtml,
+} from "./report/rideHtml.js";
+export {
+  transferText,
+  transferJson,
+  transferCsv,
+} from "./report/transferReport.js";
+export {
+  transferHtml,
+} from "./report/transferHtml.js";
+export {
+  responseText,
+  responseJson,
+  responseCsv,
+} from "./report/responseReport.js";
+export {
+  responseHtml,
+} from "./report/responseHtml.js";
+export {
+  deriveText,
+  deriveJson,
+  profileDocumentText,
+} from "./report/deriveReport.js";
+export {
+  deriveHtml,
+} from "./report/deriveHtml.js";
+export {
+  shockText,
+  shockJson,
+  shockCsv,
+} from "./report/shockReport.js";
+export {
+  shockHtml,
+} from "./report/shockHtml.js";
+export {
+  type ReportContext,
+} from "./report/reportPage.js";
+export {
+  writeAtomic,
+} from "./report/writeAtomic.js";
+export {
+  createTimeHistoryWriter,
+  type TimeHistoryWriter,
+} from "./report/timeHistoryWriter.js";

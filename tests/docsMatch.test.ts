@@ -1,4 +1,4 @@
-import { readFileSync } from "node:fs";
+import { readdirSync, readFileSync, statSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { DECISION_RULE } from "../src/compare/decisionRule.js";
@@ -65,5 +65,40 @@ describe("the rule's wording matches DECISION_RULE", () => {
 
   it("check --help states the levels", async () => {
     expect(flat((await cli("check", "--help")).stdout)).toContain(RULE_LEVELS);
+  });
+});
+
+/** Text files under a folder (fixtures' data files left out: they hold numbers, not pointers). */
+function textFiles(dir: string): string[] {
+  return readdirSync(dir).flatMap((f) => {
+    const p = join(dir, f);
+    if (statSync(p).isDirectory()) return p === join("tests", "fixtures") ? [] : textFiles(p);
+    return /\.(ts|mts|mjs|js|md)$/.test(p) ? [p] : [];
+  });
+}
+
+describe("comments point only inside the repository (issue #23)", () => {
+  const files = [...textFiles("src"), ...textFiles("tests"), "README.md", "DEVELOPERS.md"];
+  it("no file in src/, tests/, README.md or DEVELOPERS.md names a path outside the repository", () => {
+    // Built from parts so that this file does not name them itself.
+    const outside = new RegExp(["\\.\\./", "shared", "|", "/", "work/"].join(""));
+    const found = files.flatMap((f) => readFileSync(f, "utf8").split("\n").flatMap((l, i) => (outside.test(l) ? [`${f}:${i + 1} ${l.trim()}`] : [])));
+    expect(found).toEqual([]);
+  });
+  it("every docs/REFERENCES.md section a comment names is on the page", () => {
+    const page = readFileSync("docs/REFERENCES.md", "utf8");
+    const sections = new Set([...page.matchAll(/^## (\d+)\. /gm)].map((m) => m[1]));
+    const items = [...page.slice(page.indexOf("## Disagreements found")).matchAll(/^(\d+)\. /gm)].map((m) => m[1]);
+    const broken: string[] = [];
+    for (const f of files) {
+      // A pointer may wrap onto the comment's next line ("docs/REFERENCES.md\n * sec. 8").
+      const text = readFileSync(f, "utf8").replace(/\n\s*(\*|\/\/)\s*/g, " ");
+      for (const m of text.matchAll(/docs\/REFERENCES\.md,? (sec\. (\d+)|disagreements item (\d+))/g)) {
+        if (m[2] !== undefined && !sections.has(m[2])) broken.push(`${f}: sec. ${m[2]}`);
+        if (m[3] !== undefined && !items.includes(m[3])) broken.push(`${f}: disagreements item ${m[3]}`);
+      }
+    }
+    expect(broken).toEqual([]);
+    expect(files.filter((f) => /\bREFERENCES\.md/.test(readFileSync(f, "utf8"))).length).toBeGreaterThan(30);
   });
 });

@@ -2,7 +2,7 @@ import { analyzeSource, type RecordingAnalysis } from "../pass/analyzeRecording.
 import type { RecordingOptions, ResolvedAnalysis } from "../pass/analysisOptions.js";
 import { channelConditionings, type ChannelReading } from "../condition/scaleSamples.js";
 import { InputError } from "../errors.js";
-import { normalQuantile } from "../estimate/statistics/chiSquare.js";
+import { normalQuantile } from "../estimate/statistics/distributions.js";
 import { CrossSpectrumListener, type CrossSpectrumSums } from "../estimate/spectral/crossSpectrum.js";
 import { findResonances, frequencyResponse, type FrequencyResponse, type Resonance } from "../estimate/spectral/frequencyResponse.js";
 import { frequencyAxis } from "../estimate/spectral/psdEstimate.js";

@@ -38,7 +38,7 @@ export const DERIVE_DEFAULTS = {
   confidence: 0.5,
   /** Warn where the test's expected largest response exceeds the field's by more than this factor (psdgate's default, not a standard's). */
   extremeLimit: 1.5,
-  /** ±3 dB band and ±10 % RMS, 120 DOF: the tolerances recalled for IEC 60068-2-64 and MIL-STD-810H (from memory; ../shared/REFERENCES.md sec. 7). */
+  /** ±3 dB band and ±10 % RMS, 120 DOF: the tolerances recalled for IEC 60068-2-64 and MIL-STD-810H (from memory; docs/REFERENCES.md sec. 7). */
   bandDb: 3,
   rmsPercent: 10,
   minDof: 120,

@@ -330,7 +330,7 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     const est = m.displacementPeakToPeak * 1000;
     stroke = { ratedMm: o.strokeMm, estimateMm: est, margin: o.strokeMm / est, withinRating: est <= o.strokeMm };
   }
-  // Tones: deterministic responses (standard SDOF steady state: peak x |T(f)|, REFERENCES.md sec. 4 form).
+  // Tones: deterministic responses (standard SDOF steady state: peak x |T(f)|, docs/REFERENCES.md sec. 4 form).
   const tones = src.tones?.map((t) => {
     const accelPeak = out();
     const relDispPeak = out();

@@ -143,7 +143,7 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   }
 }
 
-/** Heap limits of one batch worker (node:worker_threads resourceLimits). Sample buffers live outside the heap and are bounded by the analysis limits (analyzeRecording.ts). */
+/** Heap limits of one batch worker (node:worker_threads resourceLimits). Sample buffers live outside the heap and are bounded by the analysis limits (read/analysisLimits.ts, checked in pass/resolveAnalysis.ts). */
 export const WORKER_LIMITS = { maxOldGenerationSizeMb: 1024, maxYoungGenerationSizeMb: 64, stackSizeMb: 8 } as const;
 export type WorkerLimits = { maxOldGenerationSizeMb?: number; maxYoungGenerationSizeMb?: number; stackSizeMb?: number };
 

@@ -76,16 +76,16 @@ function usageError(e: CommanderError, program: Command, command?: string): Inpu
   });
 }
 
-/**
- * An unknown option is named before anything else is checked (commander checks required options first, so
- * `ride --axis x=1` said "--axes not specified"): the options are parsed once on a throwaway program, which
- * stores nothing that the real parse sees.
- */
 /** Options that an earlier psdgate spelt otherwise: the new name, and why. */
 const RENAMED: Record<string, [string, string]> = {
   "transfer --out": ["--output-channel CH", "--out names an output file in every command; without --output-channel every channel but --in is an output"],
 };
 
+/**
+ * An unknown option is named before anything else is checked (commander checks required options first, so
+ * `ride --axis x=1` said "--axes not specified"): the options are parsed once on a throwaway program, which
+ * stores nothing that the real parse sees.
+ */
 function unknownOptionFirst(argv: string[], io: CliIo): void {
   const probe = buildProgram(io);
   const sub = probe.commands.find((c) => c.name() === argv[0] || c.aliases().includes(argv[0] ?? ""));

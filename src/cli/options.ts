@@ -178,7 +178,6 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
   };
 }
 
-/** The options the user typed (not defaults), in words for the report: `--units m/s2`, `--force`. */
 /** A parsed option value in words: plain values as written, a parsed pair list (`--axes`, `--scale CH=K`) as key=value. */
 function givenValue(v: unknown): string {
   if (v === null || typeof v !== "object") return String(v);
@@ -189,6 +188,7 @@ function givenValue(v: unknown): string {
   return keys.filter((k) => o[k] !== undefined).map((k) => `${k}=${typeof o[k] === "object" ? JSON.stringify(o[k]) : String(o[k])}`).join(",");
 }
 
+/** The options the user typed (not defaults), in words for the report: `--units m/s2`, `--force`. */
 export function givenOptions(cmd: Command): string[] {
   const out: string[] = [];
   for (const opt of cmd.options) {

@@ -20,6 +20,7 @@ import { createProgress, progressEnabled } from "./progress.js";
  * The one runner behind the commands that take many recordings (psd, check): one recording in this
  * thread with a progress bar, several on the batch pool with JSON Lines or a summary table.
  */
+
 /** Exit code of a set of outcomes: input error over fail over inconclusive over pass. */
 const RANK: Record<number, number> = { [EXIT.ok]: 0, [EXIT.inconclusive]: 1, [EXIT.fail]: 2, [EXIT.input]: 3, [EXIT.internal]: 4 };
 export function worst(codes: number[]): number {

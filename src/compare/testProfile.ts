@@ -73,7 +73,7 @@ const LOG10_2 = Math.log10(2);
 /**
  * Area under g1 (f/f1)^n from f1 to f2: g1 f1 / (n+1) ((f2/f1)^(n+1) - 1), and g1 f1 ln(f2/f1) when
  * n = -1 (a slope of -3.0103 dB/octave), where the general form divides by zero. Standard log-log
- * segment integration (../shared/REFERENCES.md sec. 5).
+ * segment integration (docs/REFERENCES.md sec. 5).
  */
 export function powerLawArea(f1: number, f2: number, g1: number, n: number): number {
   const r = f2 / f1;

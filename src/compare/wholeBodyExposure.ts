@@ -3,7 +3,7 @@ import type { WeightingName } from "../weight/isoWeightings.js";
 /**
  * Whole-body vibration figures judged against published values: axis factors, vibration total value,
  * daily exposure A(8) and VDV against Directive 2002/44/EC, the ISO 2631-1 Annex B health guidance
- * caution zone and the Annex C comfort reactions. Forms and values: ../shared/REFERENCES.md sec. 8,
+ * caution zone and the Annex C comfort reactions. Forms and values: docs/REFERENCES.md sec. 8,
  * with each value's status (confirmed / from memory) named beside it below.
  */
 export const POSTURES = ["seated", "standing", "recumbent"] as const;
@@ -36,11 +36,11 @@ export function axisRules(posture: Posture): Record<Axis, AxisRule> {
   };
 }
 
-/** Directive 2002/44/EC Article 3(2), whole-body (REFERENCES.md sec. 8, confirmed at legislation.gov.uk). */
+/** Directive 2002/44/EC Article 3(2), whole-body (docs/REFERENCES.md sec. 8, confirmed at legislation.gov.uk). */
 export const DIRECTIVE_2002_44_EC = { a8ActionMs2: 0.5, a8LimitMs2: 1.15, vdvActionMs175: 9.1, vdvLimitMs175: 21 } as const;
 
 /**
- * ISO 2631-1:1997 Annex B health guidance caution zone at 8 h (REFERENCES.md sec. 8, from memory, medium-low
+ * ISO 2631-1:1997 Annex B health guidance caution zone at 8 h (docs/REFERENCES.md sec. 8, from memory, medium-low
  * confidence): 0.43-0.86 m/s^2 by the square-root time rule (Eq. B.1), VDV 8.5-17 m/s^1.75 by the
  * fourth-power rule (Eq. B.2).
  */
@@ -147,7 +147,7 @@ export function comfortReactions(aV: number): string[] {
 
 /**
  * When the basic (r.m.s.) method may underestimate (ISO 2631-1 6.2-6.3): crest factor above 9, or
- * MTVV / a_w above 1.5, or VDV / (a_w T^(1/4)) above 1.75 (REFERENCES.md sec. 8; 9 confirmed in use by
+ * MTVV / a_w above 1.5, or VDV / (a_w T^(1/4)) above 1.75 (docs/REFERENCES.md sec. 8; 9 confirmed in use by
  * Griffin 1998, the two ratios from memory).
  */
 export const BASIC_METHOD_LIMITS = { crestFactor: 9, mtvvRatio: 1.5, vdvRatio: 1.75 } as const;

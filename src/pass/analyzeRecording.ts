@@ -310,7 +310,7 @@ export function stationarityNote(f: StationarityFinding): Finding | undefined {
  * Clipping hint: more samples at the exact record maximum or minimum than chance explains, at least 3
  * and at least 2e-5 of the record (common practice, a heuristic). A Gaussian record quantised at
  * 0.5 sigma per code hits its top code about 7 times per million samples by chance; one clipped at
- * 4 sigma puts about 63 per million on the rail (Gaussian tail 6.3e-5, REFERENCES.md sec. 10).
+ * 4 sigma puts about 63 per million on the rail (Gaussian tail 6.3e-5, docs/REFERENCES.md sec. 10).
  */
 export function clippingHintCount(samples: number): number {
   return Math.max(3, Math.ceil(2e-5 * samples));

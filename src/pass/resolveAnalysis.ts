@@ -25,7 +25,13 @@ export function selectChannels(info: RecordingInfo, wanted: readonly ChannelName
   return channelIndices(info.channels, wanted, { option, file: info.file });
 }
 
-/** Turns options and the reader's findings into the one resolved analysis; every option rule is checked here. */
+/**
+ * Turns options and the reader's findings into the one resolved analysis. The rules on the options every
+ * pass shares (channels, window, band, stretches, memory bounds; the Welch ones through
+ * normalizeWelchOptions) are checked here, once; an analysis checks only the options of its own (ride's
+ * axes, respond's Q, ...). Errors name the library's keys (`segmentLength`); the CLI shows them as flags
+ * (cli/optionFlags.ts).
+ */
 export function resolveAnalysis(options: AnalysisOptions, info: RecordingInfo): AnalysisPlan {
   const select = selectChannels(info, options.channels);
   const conditioning = channelConditionings(info.file, info.channels, select, options);

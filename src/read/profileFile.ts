@@ -313,7 +313,7 @@ export function validateProfileDocument(doc: unknown, file: string): ProfileDocu
   return r.data;
 }
 
-/** The tolerance a two-column CSV profile gets, since the format has no place for one (common practice: a ±3 dB band is the widest in general use; ../shared/REFERENCES.md sec. 7). */
+/** The tolerance a two-column CSV profile gets, since the format has no place for one (common practice: a ±3 dB band is the widest in general use; docs/REFERENCES.md sec. 7). */
 export const CSV_PROFILE_DEFAULTS = { bandDb: 3, rmsDb: 1.5 } as const;
 
 /**

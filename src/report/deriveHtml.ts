@@ -84,13 +84,9 @@ ${rows}
 ${plot}`;
 }
 
-export function deriveHtml(r: DeriveResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> & { outFile: string }): string {
-  const ctx: ReportContext = { ...context, version, when };
-  const u = accelLabel(r.units);
-  const d = r.document;
+/** The field PSDs with their envelope, mean and limit, and the derived profile, on one log plot. */
+function fieldPsdPlot(r: DeriveResult, lo: number, hi: number): string {
   const p = r.profile;
-  const name = context.outFile.split(/[\\/]/).pop() ?? context.outFile;
-  const [lo, hi] = [r.band.fromHz, r.band.toHz];
   const f = r.frequencyHz;
   const inBand = (k: number) => f[k]! >= lo && f[k]! <= hi;
   let top = 0;
@@ -113,10 +109,14 @@ export function deriveHtml(r: DeriveResult, version: string, when: Date, context
     ...(tl ? [{ id: "tolerance-limit", label: `P${fixed(100 * tl.coverage, 0)}/${fixed(100 * tl.confidence, 0)} limit`, x: f, y: tl.limit, className: "tlimit" }] : []),
     { id: "profile", label: "derived profile", x: px, y: py, className: "required" },
   ];
-  const psdPlot = svgPlot({
+  return svgPlot({
     id: "field-psd", title: `Field PSDs (${sig(r.lineSpacingHz, 3)} Hz lines) with their envelope, mean and limit, and the derived profile`,
     xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(r.units)})`, xDomain: [lo, hi], yDomain: [bottom / 2, top * 2], yLog: true, xMarks: [lo, hi], series: psdSeries, height: 380,
   });
+}
+
+/** The fatigue-damage and extreme-response spectra, field and test, and their ratios, one plot each. */
+function damagePlots(r: DeriveResult, lo: number, hi: number, u: string): string {
   const fdsTop = maxOf(r.fieldFatigue, r.testFatigue);
   const fdsBottom = minOf(r.fieldFatigue, r.testFatigue);
   const fdsPlot = svgPlot({
@@ -143,25 +143,19 @@ export function deriveHtml(r: DeriveResult, version: string, when: Date, context
       { id: "extreme-over", label: over.length ? "above the limit" : "", x: over, y: over.map((x) => r.extremeRatio[[...r.fnHz].indexOf(x)]!), className: "over", markers: true },
     ],
   });
-  const shocks = shockSection(r, lo, hi, u);
-  const t = r.tolerance;
-  const summary = `${d.points.length} breakpoints, ${sig(p.rms, 4)} ${u} RMS for ${sig(r.testDurationS, 5)} s: test damage ≥ ${fixed(r.fit.minRatio, 3)} × the field's over ${sig(r.lifeS / 3600, 5)} h at every natural frequency from ${sig(lo)} to ${sig(hi)} Hz${r.extremeWarnings.length ? `; the extreme-response ratio exceeds ×${r.extremeLimit} at ${r.extremeWarnings.length} of ${r.fnHz.length} natural frequencies` : ""}.`;
-  const given = ctx.given && ctx.given.length ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
-  const rec = r.recordings.map((x) => `<tr><td>${esc(x.file)}<br><span class="hash">${x.sha256}</span></td><td>${esc(x.group)}</td><td class="num">${fixed(x.durationS, 1)}</td><td class="num">${sig(x.serviceS / 3600, 5)}</td><td class="num">${sig(x.bandRms, 4)}</td><td class="num">${fixed(x.dof, 0)}</td><td>${x.stationary === undefined ? "not tested" : x.stationary ? "yes" : `<strong>no</strong>: ${esc(x.stationarityNote ? findingText(x.stationarityNote) : "")}`}</td></tr>`).join("\n");
+  return `${fdsPlot}
+${ersPlot}
+${ratioPlot}`;
+}
+
+/** "The derived profile": its file, hash, level, motion, stroke, tolerance, coverage and extremes, its breakpoints and the PSD plot. */
+function derivedSection(r: DeriveResult, ctx: ReportContext, outFile: string, lo: number, hi: number, u: string): string {
+  const d = r.document;
+  const p = r.profile;
   const pts = p.breakpoints.map((b, i) => `<tr><td class="num">${sig(b.hz, 5)}</td><td class="num">${sig(b.level, 4)}</td><td class="num">${p.segments[i] ? fixed(p.segments[i]!.slopeDbPerOctave, 2) : ""}</td></tr>`).join("\n");
-  const groups = r.groups.map((g) => {
-    const share = [...g.damageShare];
-    return `<tr><td>${esc(g.name)}</td><td class="num">${sig(g.serviceS / 3600, 5)}</td><td class="num">${fixed(100 * Math.min(...share), 1)}–${fixed(100 * Math.max(...share), 1)} %</td></tr>`;
-  }).join("\n");
-  const body = `${EXTRA_STYLE}
-<div class="verdict none" id="verdict" data-verdict="none"><span class="word">PROFILE</span><span>${esc(summary)}</span></div>
-<h2>Test identity</h2>
-<table class="meta" id="identity">
-${metaRows(ctx.meta)}
-</table>
-<h2>The derived profile</h2>
+  return `<h2>The derived profile</h2>
 <table class="meta" id="derived">
-${row("Profile file", esc(context.outFile))}
+${row("Profile file", esc(outFile))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
 ${row("Title", esc(d.title))}
 ${row("Range and level", `${qty(`${sig(lo)}–${sig(hi)}`, "Hz")}, ${qty(sig(p.rms, 4), u)} RMS, ${qty(sig(r.testDurationS, 6), "s")}`)}
@@ -175,8 +169,18 @@ ${row("Extreme response", `test / field from ${fixed(minOf(r.extremeRatio), 3)} 
 <table class="grid"><tr><th class="num">Hz</th><th class="num">level ${esc(densityLabel(r.units))}</th><th class="num">slope to next, dB/oct</th></tr>
 ${pts}
 </table>
-${psdPlot}
-<h2>Field recordings and the service life</h2>
+${fieldPsdPlot(r, lo, hi)}`;
+}
+
+/** "Field recordings and the service life": how the life was shared, the mean and the limit, the groups and each recording. */
+function fieldSection(r: DeriveResult, u: string): string {
+  const t = r.tolerance;
+  const rec = r.recordings.map((x) => `<tr><td>${esc(x.file)}<br><span class="hash">${x.sha256}</span></td><td>${esc(x.group)}</td><td class="num">${fixed(x.durationS, 1)}</td><td class="num">${sig(x.serviceS / 3600, 5)}</td><td class="num">${sig(x.bandRms, 4)}</td><td class="num">${fixed(x.dof, 0)}</td><td>${x.stationary === undefined ? "not tested" : x.stationary ? "yes" : `<strong>no</strong>: ${esc(x.stationarityNote ? findingText(x.stationarityNote) : "")}`}</td></tr>`).join("\n");
+  const groups = r.groups.map((g) => {
+    const share = [...g.damageShare];
+    return `<tr><td>${esc(g.name)}</td><td class="num">${sig(g.serviceS / 3600, 5)}</td><td class="num">${fixed(100 * Math.min(...share), 1)}–${fixed(100 * Math.max(...share), 1)} %</td></tr>`;
+  }).join("\n");
+  return `<h2>Field recordings and the service life</h2>
 <table class="meta">
 ${row("Service life", `${qty(sig(r.lifeS / 3600, 6), "h")} (${esc(r.lifeRule === "mix file hours" ? "the mix file's hours" : "given with --life, shared by the recordings' analysed durations")}); each group's time is shared among its recordings by their analysed durations`)}
 ${row("Mean PSD", "each recording weighted by the service time it stands for")}
@@ -187,20 +191,42 @@ ${groups}
 </table>
 <table class="grid"><tr><th>recording and SHA-256</th><th>group</th><th class="num">analysed s</th><th class="num">service h</th><th class="num">RMS ${esc(u)}</th><th class="num">DOF</th><th>stationary</th></tr>
 ${rec}
-</table>
-<h2>Damage and extremes</h2>
-${fdsPlot}
-${ersPlot}
-${ratioPlot}
-<table class="meta" id="settings">
+</table>`;
+}
+
+/** The settings table: damage and extreme rules, the SDOF systems, the fit, the options given, the version. */
+function settingsTable(r: DeriveResult, ctx: ReportContext, version: string, when: Date, lo: number, hi: number): string {
+  const given = ctx.given && ctx.given.length ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
+  return `<table class="meta" id="settings">
 ${row("Damage", esc(DAMAGE_RULE))}
 ${row("Extreme response", esc(EXTREME_RULE))}
 ${row("SDOF systems", `Q ${r.q}${ctx.given?.some((g) => g.startsWith("--q ")) ? " (given with --q)" : " (psdgate's default 10, common practice; --q sets it)"}, Basquin b ${r.sn.basquinB}${ctx.given?.some((g) => g.startsWith("--basquin ")) ? " (given with --basquin)" : " (psdgate's default 8, common practice: the lab sets the material's with --basquin)"}, ${r.fnHz.length} natural frequencies from ${sig(lo)} to ${sig(hi)} Hz; field and test spectra both cut to that band`)}
 ${row("Fit", `at most ${r.fit.maxBreakpoints} breakpoints on the grid, log-log; upper envelope of the inverted FDS by dynamic programming, then one uniform scale (×${fixed(r.fit.scale, 4)}) so that coverage holds everywhere, checked with the full computation`)}
 ${row("Options given", given)}
 ${row("Computed", `psdgate ${esc(version)}, ${esc(stamp(when))}`)}
+</table>`;
+}
+
+export function deriveHtml(r: DeriveResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> & { outFile: string }): string {
+  const ctx: ReportContext = { ...context, version, when };
+  const u = accelLabel(r.units);
+  const d = r.document;
+  const p = r.profile;
+  const name = context.outFile.split(/[\\/]/).pop() ?? context.outFile;
+  const [lo, hi] = [r.band.fromHz, r.band.toHz];
+  const summary = `${d.points.length} breakpoints, ${sig(p.rms, 4)} ${u} RMS for ${sig(r.testDurationS, 5)} s: test damage ≥ ${fixed(r.fit.minRatio, 3)} × the field's over ${sig(r.lifeS / 3600, 5)} h at every natural frequency from ${sig(lo)} to ${sig(hi)} Hz${r.extremeWarnings.length ? `; the extreme-response ratio exceeds ×${r.extremeLimit} at ${r.extremeWarnings.length} of ${r.fnHz.length} natural frequencies` : ""}.`;
+  const body = `${EXTRA_STYLE}
+<div class="verdict none" id="verdict" data-verdict="none"><span class="word">PROFILE</span><span>${esc(summary)}</span></div>
+<h2>Test identity</h2>
+<table class="meta" id="identity">
+${metaRows(ctx.meta)}
 </table>
-${shocks}
+${derivedSection(r, ctx, context.outFile, lo, hi, u)}
+${fieldSection(r, u)}
+<h2>Damage and extremes</h2>
+${damagePlots(r, lo, hi, u)}
+${settingsTable(r, ctx, version, when, lo, hi)}
+${shockSection(r, lo, hi, u)}
 ${r.notes.length ? `<h2>Notes</h2><ul>${findingTexts(r.notes).map((n) => `<li>${esc(n)}</li>`).join("")}</ul>` : ""}
 <h2>Caution</h2>
 <div class="caution keep">${esc(DERIVE_CAUTION)}</div>

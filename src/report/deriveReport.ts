@@ -50,7 +50,7 @@ export function deriveJson(r: DeriveResult, version: string) {
       rule: "each recording's shock response spectrum (maximax absolute acceleration, whole record, mean removed; ramp-invariant filters as psdgate shock) at the same Q; fieldSrs is the largest over the recordings, null above a recording's fs/4; events at 6 x the background r.m.s., hold 0.05 s; largestEvents[].recording and eventsPerRecording[] follow the order of recordings",
       fieldSrs: arr(r.shocks.fieldSrs), shortfallHz: r.shocks.shortfallHz, largestEvents: r.shocks.largestEvents, eventsPerRecording: r.shocks.eventsPerRecording,
     },
-    compression: { ...r.compression, rule: "flat spectrum: G_test = G_field (T_field / T_test)^(2/b) (equal narrow-band damage; ../shared/REFERENCES.md sec. 14)" },
+    compression: { ...r.compression, rule: "flat spectrum: G_test = G_field (T_field / T_test)^(2/b) (equal narrow-band damage, from Miles' 1954 narrow-band form)" },
     groups: r.groups.map((g) => ({ name: g.name, serviceS: g.serviceS, damageShare: arr(g.damageShare) })),
     recordings: r.recordings.map((x) => ({
       file: x.file, sha256: x.sha256, group: x.group, channel: x.channel, durationS: x.durationS, serviceS: x.serviceS, sampleRateHz: x.sampleRateHz, dof: x.dof, averages: x.averages,

@@ -153,7 +153,6 @@ export function startTimeOf(a: RecordingAnalysis): string | undefined {
   return typeof s === "string" ? s : s instanceof Date ? s.toISOString() : undefined;
 }
 
-/** The test's identity as table rows (every key given), or a line saying none was given. */
 /**
  * The opening of a report, the same for check and psd: the verdict box (class, word, sentence), the test
  * identity, the "Record" table (the recording's rows, then `extraRecordRows`) and "Settings and assumptions"
@@ -192,6 +191,7 @@ ${row("Samples", `${a.input.samples} at ${qty(rateText(a.input.sampleRateHz), "H
 ${row("Window analysed", esc(windowText(a)))}`;
 }
 
+/** The test's identity as table rows (every key given), or a line saying none was given. */
 export function identityRows(meta: TestMeta | undefined, a: RecordingAnalysis): string {
   const rows = META_LABELS.filter(([k]) => meta?.[k] !== undefined).map(([k, label]) => row(label, esc(meta![k]!)));
   const start = startTimeOf(a);

@@ -5,7 +5,7 @@
  *
  * Method (psdgate's own; the steps are common practice in fatigue-equivalent test tailoring):
  * 1. Start from the inverted FDS: the level whose damage over the test would equal the target at each f_n.
- *    Damage goes as G^(b/2) at fixed shape (Miles' sigma^2 proportional to G(f_n); ../shared/REFERENCES.md
+ *    Damage goes as G^(b/2) at fixed shape (Miles' sigma^2 proportional to G(f_n); docs/REFERENCES.md
  *    sec. 14), so G_inv = G_ref (D_target / D_ref)^(2/b) for any reference spectrum G_ref and its damage D_ref.
  * 2. The upper envelope of G_inv by at most N breakpoints on the grid, on log-log axes, that minimises the
  *    summed log excess over the grid: dynamic programming over (grid point, level) with levels in 0.5 dB steps

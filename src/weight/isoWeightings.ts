@@ -8,10 +8,10 @@
  *   Ht = (1 + s/w3) / (1 + s/(w4 Q4) + s^2/w4^2)              acceleration-velocity transition
  *   Hs = (1 + s/(w5 Q5) + s^2/w5^2) / (1 + s/(w6 Q6) + s^2/w6^2) (w5/w6)^2   upward step
  *
- * A missing Ht or Hs (f = infinity in the standard's table) is a factor 1. Parameters: ../shared/REFERENCES.md
+ * A missing Ht or Hs (f = infinity in the standard's table) is a factor 1. Parameters: docs/REFERENCES.md
  * sec. 8 (confirmed against a published reproduction of the ISO 8041 table). Wb's row (f3 = f4 = 16 Hz,
  * Q4 = 0.55, f5 = 2.5 Hz, Q5 = 0.9, f6 = 4 Hz, Q6 = 0.95, K = 1.024) is from memory; it reproduces the
- * ISO 8041 reference value |Wb| = 0.8126 at 100 rad/s that REFERENCES.md sec. 8 confirms.
+ * ISO 8041 reference value |Wb| = 0.8126 at 100 rad/s that docs/REFERENCES.md sec. 8 confirms.
  */
 export const WEIGHTING_NAMES = ["Wk", "Wd", "Wc", "We", "Wj", "Wb"] as const;
 export type WeightingName = (typeof WEIGHTING_NAMES)[number];

@@ -2,7 +2,7 @@ import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js
 
 /**
  * Evaluation quantities of a frequency-weighted acceleration a_w(t), in one pass (ISO 2631-1:1997
- * clause 6; forms in ../shared/REFERENCES.md sec. 8):
+ * clause 6; forms in docs/REFERENCES.md sec. 8):
  *
  *   a_w  = sqrt((1/T) sum a_w^2 dt)                      weighted r.m.s. (6.1)
  *   CF   = max |a_w(t)| / a_w                            crest factor (6.2)
@@ -11,7 +11,7 @@ import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js
  *   MTVV = max over t0 of a_w(t0)                        maximum transient vibration value
  *
  * with dt = 1/fs. The running r.m.s. is the linear (rectangular) form over the last tau seconds, tau = 1 s
- * by default as the standard recommends for MTVV (integration time 1 s: REFERENCES.md sec. 8, from memory;
+ * by default as the standard recommends for MTVV (integration time 1 s: docs/REFERENCES.md sec. 8, from memory;
  * the standard also allows exponential averaging, not used here). It is evaluated at every sample once a
  * full tau has passed, from a running sum of squares over a ring of tau * fs values that is summed afresh
  * at each wrap, so rounding cannot drift over an hour. Memory: the ring (tau * fs values) and one mean

@@ -17,8 +17,8 @@ const peaky = (g: number) => (f: number) => {
 
 /**
  * Narrow-band damage of the derived profile at each f_n, computed independently in numpy: a dense log grid of
- * the profile (log-log interpolation), |Z/A|^2 = 1 / ((2 pi fn)^4 ((1 - r^2)^2 + (r/Q)^2)) (REFERENCES.md sec. 4),
- * trapezoid moments m0, m2, nu0+ = sqrt(m2/m0) (Rice), E[D] = nu T (sqrt 2 sigma)^b Gamma(1 + b/2) (Miles 1954; REFERENCES.md sec. 14).
+ * the profile (log-log interpolation), |Z/A|^2 = 1 / ((2 pi fn)^4 ((1 - r^2)^2 + (r/Q)^2)) (docs/REFERENCES.md sec. 4),
+ * trapezoid moments m0, m2, nu0+ = sqrt(m2/m0) (Rice), E[D] = nu T (sqrt 2 sigma)^b Gamma(1 + b/2) (Miles 1954; docs/REFERENCES.md sec. 14).
  */
 function numpyProfileDamage(points: { hz: number; level: number }[], fnHz: number[], q: number, b: number, durationS: number, toSi: number): number[] {
   return JSON.parse(python(`
@@ -45,7 +45,7 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     const files = [1, 2, 3].map((s) => writeFieldRecord(dir, `flat${s}.wav`, flat(g0), 300 + s));
     const lifeS = 100 * 3600;
     const r = await deriveProfile({ ...plainInputs(files, lifeS), testDurationS: 3600, fminHz: 10, fmaxHz: 500, version: "test", created: new Date(0) });
-    // Equal narrow-band damage: T_1 G_1^(b/2) = T_2 G_2^(b/2) (../shared/REFERENCES.md sec. 14; MIL-STD-810H 514.8 Annex A, from memory).
+    // Equal narrow-band damage: T_1 G_1^(b/2) = T_2 G_2^(b/2) (docs/REFERENCES.md sec. 14; MIL-STD-810H 514.8 Annex A, from memory).
     const closed = g0 * (lifeS / 3600) ** (2 / 8);
     expect(r.compression.flatFactor).toBeCloseTo(100 ** 0.25, 12);
     // Spread: the response mean square of an SDOF from records of total length T has relative sd 1 / sqrt(B_s T), B_s = pi f_n / Q

@@ -11,7 +11,7 @@ import { python, tempDir } from "../helpers.js";
 
 const dir = tempDir();
 const profileFile = join(dir, "flat.yaml");
-// 0.04 g^2/Hz on 20-2000 Hz (the band-limited case of ../shared/REFERENCES.md sec. 4 and 6), 600 s.
+// 0.04 g^2/Hz on 20-2000 Hz (the band-limited case of docs/REFERENCES.md sec. 4 and 6), 600 s.
 writeFileSync(profileFile, "title: flat\nunits: g2/Hz\npoints: [{hz: 20, level: 0.04}, {hz: 2000, level: 0.04}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\ndurationS: 600\n");
 
 async function inputError(f: () => Promise<unknown> | unknown): Promise<string> {
@@ -34,13 +34,13 @@ describe("parseFnGrid", () => {
 });
 
 describe("responseSpectra on a profile", () => {
-  it("f_n 100 Hz, Q 10 on 0.04 g^2/Hz 20-2000 Hz: 7.914 g (REFERENCES.md sec. 4, 0.5 %), Miles 7.927 g, relative displacement near 0.1969 mm, duration from the profile", async () => {
+  it("f_n 100 Hz, Q 10 on 0.04 g^2/Hz 20-2000 Hz: 7.914 g (docs/REFERENCES.md sec. 4, 0.5 %), Miles 7.927 g, relative displacement near 0.1969 mm, duration from the profile", async () => {
     const src = await loadSpectrumSource(profileFile);
     expect(src.kind).toBe("profile");
     const r = responseSpectra(src, { fnHz: Float64Array.of(100), q: 10 });
     expect(Math.abs(r.accelRms[0]! / 7.914 - 1)).toBeLessThan(0.005);
     expect(r.milesRms[0]!).toBeCloseTo(7.927, 3);
-    // The white-noise closed form is exact over 0..inf; the 20-2000 Hz band loses a little (REFERENCES.md sec. 4).
+    // The white-noise closed form is exact over 0..inf; the 20-2000 Hz band loses a little (docs/REFERENCES.md sec. 4).
     expect(Math.abs(r.relDispRms[0]! * 1000 / 0.1969 - 1)).toBeLessThan(0.01);
     expect(r.relDispMilesRms[0]! * 1000).toBeCloseTo(0.1969, 4);
     expect(r.durationS).toBe(600);
@@ -53,9 +53,9 @@ describe("responseSpectra on a profile", () => {
     // scipy.integrate.quad over 20-2000 Hz, split at f_n: m0, m2 of the absolute acceleration
     // |T|^2 = (1 + (2 zeta f/fn)^2) / ((1 - (f/fn)^2)^2 + (2 zeta f/fn)^2) and of the relative displacement
     // 1 / ((wn^2 - w^2)^2 + (2 zeta wn w)^2) times G = 0.04 g^2/Hz (g = 9.80665 m/s^2 for metres). Rice:
-    // nu0+ = sqrt(m2 / m0) (REFERENCES.md sec. 10 and Surprises 7); Davenport 1964: largest peak over sigma
+    // nu0+ = sqrt(m2 / m0) (docs/REFERENCES.md sec. 10 and disagreements item 3); Davenport 1964: largest peak over sigma
     // sqrt(2 ln nu T) + 0.5772 / sqrt(2 ln nu T); damage (nu0+ T / C) (sqrt 2 K sigma_z)^b Gamma(1 + b/2),
-    // b = 8, C = K = 1, T = 600 s (REFERENCES.md sec. 14).
+    // b = 8, C = K = 1, T = 600 s (docs/REFERENCES.md sec. 14).
     const ref = JSON.parse(python(`
 import json, numpy as np
 from scipy.integrate import quad
@@ -82,7 +82,7 @@ print(json.dumps(out))
       expect(Math.abs(r.fatigueDamage[i]! / x.damage - 1), `damage at ${fnHz[i]} Hz`).toBeLessThan(1e-4);
     });
   });
-  it("kinematics equal the profile's closed form (profileMotion) to 1e-6 and REFERENCES.md sec. 6 (69.45 mm/s, 0.3207 mm); the stroke check compares 6 x RMS with the rating", async () => {
+  it("kinematics equal the profile's closed form (profileMotion) to 1e-6 and docs/REFERENCES.md sec. 6 (69.45 mm/s, 0.3207 mm); the stroke check compares 6 x RMS with the rating", async () => {
     const src = await loadSpectrumSource(profileFile);
     const r = responseSpectra(src, { fnHz: Float64Array.of(100), q: 10, strokeMm: 2.5 });
     const closed = profileMotion(await loadProfile(profileFile));
@@ -94,7 +94,7 @@ print(json.dumps(out))
     expect(r.stroke!.margin).toBeCloseTo(2.5 / (6 * 0.3207), 3);
     expect(responseSpectra(src, { fnHz: Float64Array.of(100), q: 10, strokeMm: 1.5 }).stroke!.withinRating).toBe(false);
   });
-  it("--against the same input at 3 dB more: +3 dB in RMS and largest peak, damage x 2^(b/2) x T_B/T_A (REFERENCES.md sec. 14 equivalence)", async () => {
+  it("--against the same input at 3 dB more: +3 dB in RMS and largest peak, damage x 2^(b/2) x T_B/T_A (docs/REFERENCES.md sec. 14 equivalence)", async () => {
     const hot = join(dir, "hot.yaml");
     writeFileSync(hot, "title: hot\nunits: g2/Hz\npoints: [{hz: 20, level: 0.08}, {hz: 2000, level: 0.08}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\ndurationS: 60\n");
     const fnHz = parseFnGrid("50:500:1");

@@ -23,9 +23,9 @@ describe("rideRecording on the Marlow UV-3 sample (invented, scripts/make-ride-s
     const r = await rideRecording(sample, { ...sampleOptions, exposureS: 6 * 3600 });
     // Independent reference: scipy.io.wavfile decodes the 16-bit PCM (x 40 / 32768, the sample's full scale);
     // each channel is weighted by multiplying its whole-record FFT by the analog H(j 2 pi f) of ISO 2631-1
-    // Annex A (REFERENCES.md sec. 8), written here again from the standard's parameters; then a_w, VDV and
+    // Annex A (docs/REFERENCES.md sec. 8), written here again from the standard's parameters; then a_w, VDV and
     // A(8) = max(1.4 a_wx, 1.4 a_wy, a_wz) sqrt(T / 8 h), VDV_day = max(k VDV) (T / T_meas)^(1/4)
-    // (Directive 2002/44/EC Annex part B; REFERENCES.md sec. 8).
+    // (Directive 2002/44/EC Annex part B; docs/REFERENCES.md sec. 8).
     const ref = JSON.parse(python(`
 import json, numpy as np
 from scipy.io import wavfile
@@ -94,12 +94,12 @@ describe("rideRecording on records made here", () => {
     const file = write("sines.wav", 1000, 60, (t) => [0.5 * Math.SQRT2 * Math.sin(w * t), 0, 9.80665 + Math.SQRT2 * Math.sin(w * t), 0.8 * Math.SQRT2 * Math.sin(w * t)]);
     const r = await rideRecording(file, { inputUnits: "m/s2", axes: { x: "1", z: "3" }, floor: "4", posture: "seated", exposureS: 8 * 3600 });
     const [x, z] = r.axes;
-    // REFERENCES.md sec. 8: 4 Hz through Wk 0.9672, through Wd 0.5119 (4 significant figures).
+    // docs/REFERENCES.md sec. 8: 4 Hz through Wk 0.9672, through Wd 0.5119 (4 significant figures).
     expect(Math.abs(z!.dose.rms / 0.9672 - 1)).toBeLessThan(1e-3); // the sine starts abruptly at t = 0: its transient costs 0.07 % over 60 s
     // The PSD route spreads the tone over the Hann main lobe (4 Hz lies between 0.122 Hz lines) where Wk slopes: 0.1 %.
     expect(Math.abs(z!.awFromPsd / 0.9672 - 1)).toBeLessThan(2e-3);
     expect(Math.abs(x!.dose.rms / (0.5 * 0.5119) - 1)).toBeLessThan(1e-3);
-    // Closed forms for a sine of r.m.s. a (REFERENCES.md sec. 8): crest sqrt 2, MTVV = a (every 1 s window
+    // Closed forms for a sine of r.m.s. a (docs/REFERENCES.md sec. 8): crest sqrt 2, MTVV = a (every 1 s window
     // holds four whole periods), VDV = (3/8)^(1/4) sqrt 2 a T^(1/4). The 4 Hz sine sampled at 1000 Hz has
     // a sample within 0.0025 periods of each crest (cos(2 pi 0.0025) = 0.99988).
     const aw = z!.dose.rms;
@@ -125,7 +125,7 @@ describe("rideRecording on records made here", () => {
     const file = write("noise.wav", fs, 120, (t) => [0, 0, x[Math.round(t * fs)]!, 0]);
     const r = await rideRecording(file, { inputUnits: "m/s2", axes: { z: "3" }, posture: "seated", exposureS: 3600 });
     // VDV^4 / (a_w^4 T) is the weighted record's sample kurtosis (mean ~0 after the 0.4 Hz high-pass), 3 for a
-    // Gaussian (REFERENCES.md sec. 8: Gaussian VDV = 3^(1/4) a_w T^(1/4)). Its spread for a correlated Gaussian
+    // Gaussian (docs/REFERENCES.md sec. 8: Gaussian VDV = 3^(1/4) a_w T^(1/4)). Its spread for a correlated Gaussian
     // record is sqrt(24 sum_tau rho(tau)^4 / n) (Lomnicki 1961, the form amplitudeGates.ts uses; from memory),
     // rho the autocorrelation of white noise through |Wk|^2; the fourth root scales that by 3^(-3/4) / 4.
     const m = 4096;
@@ -169,7 +169,7 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
     return file;
   }
   const sine = (fs: number, seconds: number, f: number, rms: number, offset = 0) => Float64Array.from({ length: fs * seconds }, (_, i) => offset + rms * Math.SQRT2 * Math.sin((2 * Math.PI * f * i) / fs));
-  // |W| at nominal centres, ISO 2631-1 Table 3 as computed in REFERENCES.md sec. 8 (4 significant figures).
+  // |W| at nominal centres, ISO 2631-1 Table 3 as computed in docs/REFERENCES.md sec. 8 (4 significant figures).
   const table: Record<string, Record<number, number>> = { Wk: { 4: 0.9672, 16: 0.7687, 31.5: 0.4048, 63: 0.1861 }, Wd: { 1: 1.011, 4: 0.5119, 16: 0.1254, 31.5: 0.0632, 63: 0.0295 } };
   for (const [fs, top] of [[100, 31.5], [128, 31.5], [200, 63], [256, 63], [400, 63]] as const) {
     it(`${fs} Hz: ride runs; sines at 4 Hz and ${top} Hz come out at |W| x r.m.s. within the stated error; every result states that error and which figures carry it`, async () => {
@@ -242,7 +242,7 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
     const dataFile = join(dir, "tilted.f64");
     writeFileSync(dataFile, Buffer.from(y.buffer));
     // Independent of psdgate's start: scipy.signal.sosfilt with zi = sosfilt_zi(sos) * (-1.0), the gravity the
-    // record starts with; a_w, VDV, 1 s running r.m.s. and crest in numpy (ISO 2631-1 6.1-6.3 as REFERENCES.md sec. 8).
+    // record starts with; a_w, VDV, 1 s running r.m.s. and crest in numpy (ISO 2631-1 6.1-6.3 as docs/REFERENCES.md sec. 8).
     const ref = JSON.parse(python(`
 import json, numpy as np, scipy.signal as ss
 sos = np.array(${JSON.stringify(d.sections.map((q) => [q.b0, q.b1, q.b2, 1, q.a1, q.a2]))})

@@ -1,10 +1,11 @@
 import { readdirSync, readFileSync, statSync } from "node:fs";
 import { join } from "node:path";
+import type { Command } from "commander";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { normalizeWelchOptions } from "../../src/estimate/spectral/welchOptions.js";
 import { asCliError, inFlags, OPTION_FLAGS } from "../../src/cli/optionFlags.js";
-import { runCli } from "../../src/cli/main.js";
+import { buildProgram, runCli } from "../../src/cli/main.js";
 
 /** Library sources: everything under src/ but the CLI and the queue edge. */
 function librarySources(dir = "src"): string[] {
@@ -13,6 +14,11 @@ function librarySources(dir = "src"): string[] {
     if (statSync(p).isDirectory()) return p === join("src", "cli") || p === join("src", "queue") ? [] : librarySources(p);
     return p.endsWith(".ts") ? [p] : [];
   });
+}
+
+/** Every long flag of a command and of its subcommands. */
+function flagsOf(cmd: Command): string[] {
+  return [...cmd.options.flatMap((o) => (o.long ? [o.long] : [])), ...cmd.commands.flatMap(flagsOf)];
 }
 
 describe("the library names its own keys; the CLI holds the one table from keys to flags", () => {
@@ -53,5 +59,10 @@ describe("the library names its own keys; the CLI holds the one table from keys 
     }
     expect(unknownKeys).toEqual([]);
     expect(flagsInLibrary).toEqual([]);
+  });
+  it("every flag the table maps a key to is an option of some command (buildProgram's)", () => {
+    const flags = new Set(flagsOf(buildProgram({ stdout: () => undefined, stderr: () => undefined })));
+    const missing = Object.entries(OPTION_FLAGS).filter(([, flag]) => !flags.has(flag)).map(([key, flag]) => `${key} -> ${flag}`);
+    expect(missing).toEqual([]);
   });
 });

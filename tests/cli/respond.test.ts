@@ -74,7 +74,7 @@ describe("psdgate respond", () => {
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);
     expect(j.durationS).toBeNull();
-    expect(j.accelRms[0]).toBeGreaterThan(7.8); // 7.914 g (REFERENCES.md sec. 4)
+    expect(j.accelRms[0]).toBeGreaterThan(7.8); // 7.914 g (docs/REFERENCES.md sec. 4)
     expect(j.milesRms[0]).toBeCloseTo(7.927, 3);
     expect(j.extremePeak).toEqual([null]);
     expect(j.fatigueDamage).toEqual([null]);

@@ -251,6 +251,6 @@ describe("judgeSpectrum known answers (records made by the test: tests/shapedRec
     const est = { psd: new Float64Array(n).fill(0.01), frequencyHz: new Float64Array(n).map((_, k) => k * 1.25), lineSpacingHz: 1.25 };
     expect(bandRms(est, 100, 110)).toBeCloseTo(Math.sqrt(0.1), 12); // common practice: integrate the band's width, not whole end lines
     expect(bandRms(est, 100, 101.25)).toBeCloseTo(Math.sqrt(0.0125), 12);
-    expect(bandMeanSquare(est, 0, 2560)).toBeCloseTo(0.01 * 2049 * 1.25, 9); // the whole band is sum(P) df (REFERENCES.md sec. 11)
+    expect(bandMeanSquare(est, 0, 2560)).toBeCloseTo(0.01 * 2049 * 1.25, 9); // the whole band is sum(P) df (docs/REFERENCES.md sec. 11)
   });
 });

@@ -16,7 +16,7 @@ import { lower999, upper999 } from "../binomialBounds.js";
  * (tests/shapedRecords.ts: white Gaussian noise shaped by one FFT with fft.js; not psdgate's synth),
  * each beside its analytic rate. Profile: the KB-210 sample (20-2000 Hz, +-1.5 dB to 1 kHz, +-3 dB
  * above, RMS +-1 dB, minDof 120), 2.5 Hz Hann lines at 5120 Hz, 50 % overlap: 793 lines, 789 judged.
- * A record of K segments has 36 K^2 / (19 K - 1) DOF (../shared/REFERENCES.md sec. 2).
+ * A record of K segments has 36 K^2 / (19 K - 1) DOF (docs/REFERENCES.md sec. 2).
  *
  * Bounds on the counts: with n records and a true rate p, the count exceeds the binomial 99.9 %
  * point only once in a thousand runs; the tests assert the observed count against those points for

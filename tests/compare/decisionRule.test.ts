@@ -29,7 +29,7 @@ describe("ruleLevels", () => {
   });
   it("factors are the chi-square quantiles over nu (Bendat & Piersol 2010, ch. 8)", () => {
     expect(upperFactor(120, 2.5e-5)).toBeCloseTo(chiSquareUpperQuantile(2.5e-5, 120) / 120, 14);
-    expect(lowerFactor(120, 0.05)).toBeCloseTo(95.7046 / 120, 5); // REFERENCES.md sec. 2: chi2(0.05; 120) = 95.7046
+    expect(lowerFactor(120, 0.05)).toBeCloseTo(95.7046 / 120, 5); // docs/REFERENCES.md sec. 2: chi2(0.05; 120) = 95.7046
   });
 });
 

@@ -27,7 +27,7 @@ export const slopes: TestProfile = parseProfile(JSON.stringify({
 export const nominal = (f: number): number => (f >= 16 && f <= 496 ? profileLevel(slopes, f) : 0);
 export const db = (x: number): number => 10 ** (x / 10);
 
-/** Segments for a DOF target: a record of K Hann segments at 50 % has 36 K^2 / (19 K - 1) DOF (../shared/REFERENCES.md sec. 2). */
+/** Segments for a DOF target: a record of K Hann segments at 50 % has 36 K^2 / (19 K - 1) DOF (docs/REFERENCES.md sec. 2). */
 export const dofOf = (k: number): number => (36 * k * k) / (19 * k - 1);
 export const samplesFor = (k: number): number => (k - 1) * (N / 2) + N;
 /** 28.5, 208.5 and 629.2 DOF. */

@@ -30,7 +30,7 @@ function numericRms(p: TestProfile, weight = (_f: number) => 1): number {
 }
 
 describe("profile arithmetic", () => {
-  it("NAVMAT P-9492 screening spectrum: 6.0582 g (REFERENCES.md sec. 5; NAVMAT P-9492 prints 'Overall Grms = 6.0')", () => {
+  it("NAVMAT P-9492 screening spectrum: 6.0582 g (docs/REFERENCES.md sec. 5; NAVMAT P-9492 prints 'Overall Grms = 6.0')", () => {
     const p = profile([{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 350, level: 0.04 }, { hz: 2000, level: 0.007 }]);
     expect(p.rms).toBeCloseTo(6.0582, 4);
     expect(Number.isFinite(p.segments[2]!.area)).toBe(true);
@@ -39,17 +39,17 @@ describe("profile arithmetic", () => {
     expect(p.segments[0]!.slopeDbPerOctave).toBeCloseTo(3.0103, 4);
     expect(Math.abs(numericRms(p) / p.rms - 1)).toBeLessThan(1e-6);
   });
-  it("NASA-STD-7001 workmanship level: 6.784 g (overall 6.8 grms confirmed; breakpoints from memory, REFERENCES.md sec. 5)", () => {
+  it("NASA-STD-7001 workmanship level: 6.784 g (overall 6.8 grms confirmed; breakpoints from memory, docs/REFERENCES.md sec. 5)", () => {
     const p = profile([{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 500, level: 0.04 }, { hz: 2000, level: 0.01 }]);
     expect(p.rms).toBeCloseTo(6.784, 3);
   });
-  it("invented profiles C and D: 8.4862 g and 3.5236 g (computed, REFERENCES.md sec. 5)", () => {
+  it("invented profiles C and D: 8.4862 g and 3.5236 g (computed, docs/REFERENCES.md sec. 5)", () => {
     expect(profile([{ hz: 20, level: 0.005 }, { hz: 100, level: 0.05 }, { hz: 1000, level: 0.05 }, { hz: 2000, level: 0.0125 }]).rms).toBeCloseTo(8.4862, 4);
     const d = profile([{ hz: 10, level: 0.001 }, { hz: 40, level: 0.02 }, { hz: 300, level: 0.02 }, { hz: 1500, level: 0.002 }]);
     expect(d.rms).toBeCloseTo(3.5236, 4);
     expect(d.segments.map((s) => s.slopeDbPerOctave)).toEqual([expect.closeTo(6.5052, 3), expect.closeTo(0, 9), expect.closeTo(-4.3068, 3)]);
   });
-  it("levels given by slope: exactly +-3 dB/oct from the plateau gives ends 0.010048 / 0.0070419 and 6.064 g (REFERENCES.md sec. 5)", () => {
+  it("levels given by slope: exactly +-3 dB/oct from the plateau gives ends 0.010048 / 0.0070419 and 6.064 g (docs/REFERENCES.md sec. 5)", () => {
     const p = profile([{ hz: 20, level: 0.010048 }, { hz: 80, slopeDbPerOctave: 3 }, { hz: 350, level: 0.04 }, { hz: 2000, slopeDbPerOctave: -3 }]);
     expect(p.breakpoints[1]!.level).toBeCloseTo(0.04, 5);
     expect(p.breakpoints[3]!.level).toBeCloseTo(0.0070419, 7);
@@ -60,7 +60,7 @@ describe("profile arithmetic", () => {
     expect(powerLawArea(350, 2000, 0.04, -1 + 1e-7)).toBeCloseTo(exact, 5);
     expect(powerLawArea(350, 2000, 0.04, -1 - 1e-7)).toBeCloseTo(exact, 5);
   });
-  it("flat 0.04 g2/Hz 20-2000 Hz: 8.8994 g, 69.45 mm/s, 0.3207 mm RMS (closed forms, REFERENCES.md sec. 6)", () => {
+  it("flat 0.04 g2/Hz 20-2000 Hz: 8.8994 g, 69.45 mm/s, 0.3207 mm RMS (closed forms, docs/REFERENCES.md sec. 6)", () => {
     const p = profile([{ hz: 20, level: 0.04 }, { hz: 2000, level: 0.04 }]);
     const m = profileMotion(p);
     expect(p.rms).toBeCloseTo(8.8994, 4);
@@ -68,7 +68,7 @@ describe("profile arithmetic", () => {
     expect(m.displacementRms * 1000).toBeCloseTo(0.3207, 4);
     expect(m.displacementPeakToPeak).toBeCloseTo(6 * m.displacementRms, 15);
   });
-  it("NAVMAT P-9492 velocity 52.56 mm/s and displacement 0.1943 mm RMS (numerical, REFERENCES.md sec. 6)", () => {
+  it("NAVMAT P-9492 velocity 52.56 mm/s and displacement 0.1943 mm RMS (numerical, docs/REFERENCES.md sec. 6)", () => {
     const p = profile([{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 350, level: 0.04 }, { hz: 2000, level: 0.007 }]);
     const m = profileMotion(p);
     expect(m.velocityRms * 1000).toBeCloseTo(52.56, 1);
@@ -118,7 +118,7 @@ describe("mixed-mode profiles (tones)", () => {
     expect(m.velocityRms).toBeCloseTo(Math.sqrt(random.velocityRms ** 2 + v(2, 20) ** 2 / 2 + v(1, 200) ** 2 / 2), 12);
     expect(m.displacementRms).toBeCloseTo(Math.sqrt(random.displacementRms ** 2 + d(2, 20) ** 2 / 2 + d(1, 200) ** 2 / 2), 12);
     expect(m.displacementPeakToPeak).toBeCloseTo(6 * random.displacementRms + 2 * d(2, 20) + 2 * d(1, 200), 12);
-    // The sine formula against its known answer: 1 g peak at 10 Hz moves 2.484 mm peak (REFERENCES.md sec. 6).
+    // The sine formula against its known answer: 1 g peak at 10 Hz moves 2.484 mm peak (docs/REFERENCES.md sec. 6).
     expect(d(1, 10) * 1000).toBeCloseTo(2.484, 3);
   });
 });

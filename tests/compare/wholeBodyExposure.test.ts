@@ -3,7 +3,7 @@ import { axisRules, basicMethodCheck, comfortReactions, dailyExposure, EIGHT_HOU
 
 const seated = axisRules("seated");
 
-describe("dailyExposure (Directive 2002/44/EC Annex part B; worked values REFERENCES.md sec. 8)", () => {
+describe("dailyExposure (Directive 2002/44/EC Annex part B; worked values docs/REFERENCES.md sec. 8)", () => {
   it("a_wz = 0.7 m/s^2 for 6 h gives A(8) = 0.606 m/s^2, at or above the action value", () => {
     const e = dailyExposure([{ axis: "z", aw: 0.7, vdv: 1, durationS: 600 }], seated, 6 * 3600);
     expect(e.a8).toBeCloseTo(0.606, 3);

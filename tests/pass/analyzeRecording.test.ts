@@ -22,7 +22,7 @@ describe("clipping hint", () => {
     expect(a.channels[0]!.stats.atMax).toBeGreaterThan(0);
     expect(findingTexts(a.channels[0]!.doubts).filter((d) => d.includes("clipping"))).toEqual([]);
   });
-  it("a recording clipped at 4 sigma is flagged (Gaussian tail beyond 4 sigma: 6.3e-5, REFERENCES.md sec. 10)", async () => {
+  it("a recording clipped at 4 sigma is flagged (Gaussian tail beyond 4 sigma: 6.3e-5, docs/REFERENCES.md sec. 10)", async () => {
     const x = gaussian(400_000, 9, 3000).map((v) => Math.round(Math.max(-12000, Math.min(12000, v))));
     const f = join(dir, "clipped.wav");
     writeFileSync(f, wavBytes({ bits: 16, channels: 1, samples: Array.from(x) }));

@@ -102,7 +102,7 @@ describe("synthesis properties (fast-check, seeded)", () => {
 
 describe("statistical honesty (Monte Carlo, seeded)", () => {
   it("over 400 white-noise records the 90 % interval covers the true density on 90 % of lines, within 1.5 %", () => {
-    // White noise of variance 1 at fs has one-sided density 2/fs (REFERENCES.md sec. 1); Bendat & Piersol 2010, ch. 8.
+    // White noise of variance 1 at fs has one-sided density 2/fs (docs/REFERENCES.md sec. 1); Bendat & Piersol 2010, ch. 8.
     const fs = 1000;
     const truth = 2 / fs;
     let inside = 0;
@@ -116,7 +116,7 @@ describe("statistical honesty (Monte Carlo, seeded)", () => {
     }
     expect(Math.abs(inside / total - 0.9)).toBeLessThan(0.015);
   });
-  it("the spread of the estimate matches sqrt(2 / dof) within 5 % (REFERENCES.md sec. 3)", () => {
+  it("the spread of the estimate matches sqrt(2 / dof) within 5 % (docs/REFERENCES.md sec. 3)", () => {
     const r = welchPsd(gaussian(1 << 18, 77), 1000, { segmentLength: 512, overlap: 0.5 });
     let s = 0;
     let s2 = 0;

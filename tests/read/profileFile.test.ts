@@ -25,7 +25,7 @@ describe("what a profile file states", () => {
     });
     expect(narrow).toThrow(/tolerance.outerLimits\[0\]: expected outer limits at least as wide/);
   });
-  it("rmsPercent 10 becomes +0.83 / -0.92 dB (REFERENCES.md sec. 7)", () => {
+  it("rmsPercent 10 becomes +0.83 / -0.92 dB (docs/REFERENCES.md sec. 7)", () => {
     const p = readProfileSpec(JSON.stringify({ title: "t", units: "g2/Hz", points: [{ hz: 10, level: 1 }, { hz: 20, level: 1 }], tolerance: { bands: [{ fromHz: 10, toHz: 20, upperDb: 3, lowerDb: 3 }], rmsPercent: 10 } }), "p.json");
     expect(p.rmsToleranceDb!.upper).toBeCloseTo(0.83, 2);
     expect(p.rmsToleranceDb!.lower).toBeCloseTo(0.92, 2);

@@ -48,7 +48,7 @@ describe("synthesizeProfile", () => {
     expect(Array.from(await record(3, 1))).toEqual(Array.from(a));
     expect((await record(4, 1))[100]).not.toBe(a[100]);
   });
-  it("gives the profile's RMS (8.4862 g, REFERENCES.md sec. 5) within 2 % and a Gaussian kurtosis 3 +- 0.1", async () => {
+  it("gives the profile's RMS (8.4862 g, docs/REFERENCES.md sec. 5) within 2 % and a Gaussian kurtosis 3 +- 0.1", async () => {
     const x = await record(11, 30);
     let s2 = 0;
     let s4 = 0;

@@ -118,8 +118,8 @@ describe("designWeightingFilter: the realisation psdgate runs, and its stated er
 });
 
 describe("a sine through each weighting in the time domain", () => {
-  // REFERENCES.md sec. 8 suggested tests: a 4.0 Hz sine of r.m.s. 1 through Wk gives 0.9672, through Wd 0.5119.
-  it("4 Hz, r.m.s. 1 m/s^2, 2000 Hz: Wk 0.9672 and Wd 0.5119 after the transient (REFERENCES.md sec. 8)", () => {
+  // docs/REFERENCES.md sec. 8: a 4.0 Hz sine of r.m.s. 1 through Wk gives 0.9672, through Wd 0.5119.
+  it("4 Hz, r.m.s. 1 m/s^2, 2000 Hz: Wk 0.9672 and Wd 0.5119 after the transient (docs/REFERENCES.md sec. 8)", () => {
     expect(sineGain("Wk", 4, 2000)).toBeCloseTo(0.9672, 4);
     expect(sineGain("Wd", 4, 2000)).toBeCloseTo(0.5119, 4);
   });

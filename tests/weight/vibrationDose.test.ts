@@ -10,7 +10,7 @@ function sine(rms: number, f: number, fs: number, seconds: number): Float64Array
 }
 
 describe("vibrationDose", () => {
-  it("VDV of 60 s of a 4 Hz sine of r.m.s. 1 is (3/8)^(1/4) sqrt(2) 60^(1/4) = 3.0801 m/s^1.75 (REFERENCES.md sec. 8, computed)", () => {
+  it("VDV of 60 s of a 4 Hz sine of r.m.s. 1 is (3/8)^(1/4) sqrt(2) 60^(1/4) = 3.0801 m/s^1.75 (docs/REFERENCES.md sec. 8, computed)", () => {
     const d = vibrationDose(sine(1, 4, 1000, 60), 1000);
     expect(d.vdv).toBeCloseTo(3.0801, 4);
     expect(d.vdv).toBeCloseTo((3 / 8) ** 0.25 * Math.SQRT2 * 60 ** 0.25, 6);
@@ -18,7 +18,7 @@ describe("vibrationDose", () => {
     expect(d.crestFactor).toBeCloseTo(Math.SQRT2, 3); // the sampled peak misses the crest by at most 1 - cos(pi f / fs)
     expect(d.mtvv).toBeCloseTo(1, 6); // a whole number of periods in every 1 s window
   });
-  it("VDV of seeded Gaussian noise of r.m.s. sigma is 3^(1/4) sigma T^(1/4) within 0.5 % (E[a^4] = 3 sigma^4; REFERENCES.md sec. 8)", () => {
+  it("VDV of seeded Gaussian noise of r.m.s. sigma is 3^(1/4) sigma T^(1/4) within 0.5 % (E[a^4] = 3 sigma^4; docs/REFERENCES.md sec. 8)", () => {
     // 1e6 samples: the fourth moment's standard error is sqrt(96/1e6)/3 = 0.33 %, a quarter of that in VDV.
     const fs = 1000;
     const x = gaussian(1_000_000, 77, 0.8);

@@ -20,7 +20,7 @@ export const SN_DEFAULTS: SnCurve = { basquinB: 8, snConstant: 1, stressPerUnit:
  * Expected fatigue damage of a narrow-band Gaussian response, its peaks Rayleigh distributed, by
  * Miner's rule: E[D] = (nu_0+ T / C) (sqrt(2) K sigma)^b Gamma(1 + b/2) (Miles 1954; the form used by
  * Henderson & Piersol and by Lalanne, Mechanical Vibration and Shock Analysis vol. 5; from memory,
- * ../shared/REFERENCES.md sec. 14; checked against rainflow counting in tests/estimate/response/fatigueDamage.test.ts).
+ * docs/REFERENCES.md sec. 14; checked against rainflow counting in tests/estimate/response/fatigueDamage.test.ts).
  */
 export function narrowBandDamage(sigma: number, upcrossingRateHz: number, durationS: number, sn: SnCurve): number {
   const b = sn.basquinB;

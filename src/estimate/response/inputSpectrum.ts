@@ -83,7 +83,7 @@ const GL_X = [0.1834346424956498, 0.525532409916329, 0.7966664774136267, 0.96028
 const GL_W = [0.362683783378362, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763];
 
 export interface SpectralMoments {
-  /** m_n = integral f^n weight(f) G(f) df, f in Hz (one-sided Hz moments, ../shared/REFERENCES.md sec. 10). */
+  /** m_n = integral f^n weight(f) G(f) df, f in Hz (one-sided Hz moments, docs/REFERENCES.md sec. 10). */
   m0: number;
   m2: number;
   m4: number;

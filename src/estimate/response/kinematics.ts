@@ -3,7 +3,7 @@ import { spectralMoments, type InputSpectrum } from "./inputSpectrum.js";
 /**
  * Velocity and displacement of a stationary random acceleration: G_v(f) = G_a(f) / (2 pi f)^2 and
  * G_d(f) = G_a(f) / (2 pi f)^4, one division by omega^2 per integration (Bendat & Piersol 2010; from
- * memory, ../shared/REFERENCES.md sec. 6). `toSi` converts the acceleration unit to m/s^2 (9.80665 for
+ * memory, docs/REFERENCES.md sec. 6). `toSi` converts the acceleration unit to m/s^2 (9.80665 for
  * g), so G_v is in (m/s)^2/Hz and G_d in m^2/Hz. Lines at 0 Hz have no finite velocity and are left as NaN.
  */
 export function velocityPsd(frequencyHz: Float64Array, accelPsd: Float64Array, toSi: number): Float64Array {

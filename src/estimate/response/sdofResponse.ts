@@ -2,7 +2,7 @@ import { spectralMoments, type InputSpectrum, type SpectralMoments } from "./inp
 
 /**
  * Single-degree-of-freedom system driven at its base, damping ratio zeta = 1 / (2 Q), r = f / f_n
- * (the standard SDOF base-excitation result; form as ../shared/REFERENCES.md sec. 4 gives it):
+ * (the standard SDOF base-excitation result; form as docs/REFERENCES.md sec. 4 gives it):
  *   absolute acceleration   |T(r)|^2 = (1 + (2 zeta r)^2) / ((1 - r^2)^2 + (2 zeta r)^2)
  *   relative displacement   |Z / A_base|^2 = 1 / ((2 pi f_n)^4 ((1 - r^2)^2 + (2 zeta r)^2))   [s^4]
  * The response mean square is integral |H|^2 G df, taken over the input spectrum without Miles'
@@ -45,7 +45,7 @@ export function sdofResponse(input: InputSpectrum, fnHz: number, q: number): Sdo
  * Miles' equation: response RMS = sqrt((pi / 2) f_n Q G(f_n)) (Miles 1954, J. Aeronautical Sciences
  * 21(11); assumptions as the NASA GSFC FEMCI "Miles' Equation" page states them: white input, light
  * damping). For a white input over 0..infinity the exact answer is (pi / 2) f_n G0 (Q + 1/Q): Miles
- * drops the 1/Q term (REFERENCES.md sec. 4).
+ * drops the 1/Q term (docs/REFERENCES.md sec. 4).
  */
 export function milesRms(fnHz: number, q: number, levelAtFn: number): number {
   return Math.sqrt((Math.PI / 2) * fnHz * q * levelAtFn);

@@ -5,10 +5,10 @@
  *   H2 = G_yy / G_yx          unbiased by noise on the input (G_yx = conj G_xy)
  *   gamma^2 = |G_xy|^2 / (G_xx G_yy) = |H1| / |H2|
  * H1 and H2 share the phase of G_xy. The cross spectrum is conj(X) Y (scipy.signal.csd's convention,
- * ../shared/REFERENCES.md sec. 9), so an output that lags the input has a negative phase.
+ * docs/REFERENCES.md sec. 9), so an output that lags the input has a negative phase.
  *
  * Normalised random errors with n_d independent averages (Bendat & Piersol, Random Data, 2nd ed.,
- * p. 317, as REFERENCES.md sec. 9 gives them):
+ * p. 317, as docs/REFERENCES.md sec. 9 gives them):
  *   eps[|H|] = sqrt(1 - gamma^2) / (|gamma| sqrt(2 n_d))      and the phase's standard deviation in rad
  *   eps[gamma^2] = sqrt(2) (1 - gamma^2) / (|gamma| sqrt(n_d))
  * With overlapped segments n_d is taken as half the Welch equivalent degrees of freedom (welchDof), the

@@ -6,12 +6,12 @@ import type { WindowName } from "./windows.js";
  * Parseval cross-check of the PSD against the time history, over the same detrended data.
  *
  * sum(P) df equals, to rounding, the window-weighted mean square of the detrended segments (an identity;
- * ../shared/REFERENCES.md sec. 11). What can differ is the plain (unweighted) mean square of the same
+ * docs/REFERENCES.md sec. 11). What can differ is the plain (unweighted) mean square of the same
  * segments: the window weights the middle of each segment more than its ends, so the two agree only
  * statistically. The allowed spread comes from the record itself: the standard error of the per-segment
  * difference by batch means over consecutive segments (WelchAccumulator), times a Student-t factor for
  * a two-sided false-doubt rate of 1e-4 per channel. With fewer than MIN_BATCHES batches the fixed
- * tolerances of REFERENCES.md sec. 11 apply: 2 % with 16 or more averages for every window but the
+ * tolerances of docs/REFERENCES.md sec. 11 apply: 2 % with 16 or more averages for every window but the
  * flat-top (hann, hamming, blackman-harris, rectangular), else 5 %; the flat-top's strongly negative
  * lobes make its weighted and plain mean squares part more, so it always gets 5 %.
  *

@@ -9,14 +9,14 @@ import { normalQuantile } from "./distributions.js";
  * P_n(k) = (1/n) sum_{j=0}^{min(k, n-1)} P_{n-1}(k - j); E[A] = n(n-1)/4, Var[A] = n(2n+5)(n-1)/72.
  * Two-sided acceptance region at level alpha: L < A <= M - L - 1 with M = n(n-1)/2 and L the largest a
  * with P(A <= a) <= alpha/2 (the distribution is symmetric about M/2). This reproduces Bendat & Piersol's
- * Table A.6 (../shared/REFERENCES.md sec. 13: n = 10: 11..33, n = 20: 64..125, ..., n = 100: 2145..2804).
+ * Table A.6 (docs/REFERENCES.md sec. 13: n = 10: 11..33, n = 20: 64..125, ..., n = 100: 2145..2804).
  *
  * Run test: runs of values above and below the median (values equal to the median dropped). With n1
  * above and n2 below, P(R = 2k) = 2 C(n1-1, k-1) C(n2-1, k-1) / C(n, n1) and P(R = 2k+1) =
  * [C(n1-1, k) C(n2-1, k-1) + C(n1-1, k-1) C(n2-1, k)] / C(n, n1) (Wald & Wolfowitz 1940, Ann. Math.
  * Statist. 11(2):147-162); E[R] = 2 n1 n2 / n + 1, Var[R] = 2 n1 n2 (2 n1 n2 - n) / (n^2 (n - 1)).
  * Acceptance region L < R <= U, L the largest r with P(R <= r) <= alpha/2, U the smallest with
- * P(R > U) <= alpha/2 (n = 20: 6 < R <= 15, REFERENCES.md sec. 13).
+ * P(R > U) <= alpha/2 (n = 20: 6 < R <= 15, docs/REFERENCES.md sec. 13).
  *
  * Exact distributions up to EXACT_LIMIT values, the normal approximation above it.
  */

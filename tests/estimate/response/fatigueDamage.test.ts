@@ -6,7 +6,7 @@ import { RainflowCounter } from "../../../src/estimate/response/rainflow.js";
 import { sdofResponse } from "../../../src/estimate/response/sdofResponse.js";
 import { sdofRecords } from "./sdofSimulation.js";
 
-describe("narrowBandDamage (Miles 1954 Rayleigh form; REFERENCES.md sec. 14, from memory)", () => {
+describe("narrowBandDamage (Miles 1954 Rayleigh form; docs/REFERENCES.md sec. 14, from memory)", () => {
   it("hand value: sigma 1, nu 100 /s, 10 s, b 4, C 1: 1000 x (sqrt 2)^4 x Gamma(3) = 8000", () => {
     expect(narrowBandDamage(1, 100, 10, { basquinB: 4, snConstant: 1, stressPerUnit: 1 })).toBeCloseTo(8000, 8);
     expect(narrowBandDamage(2, 100, 10, { basquinB: 4, snConstant: 16, stressPerUnit: 1 })).toBeCloseTo(8000, 8);

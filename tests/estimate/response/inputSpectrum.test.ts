@@ -20,7 +20,7 @@ describe("inputSpectrum", () => {
     const p = parseProfile("title: D\nunits: g2/Hz\npoints: [{hz: 10, level: 0.001}, {hz: 40, level: 0.02}, {hz: 300, level: 0.02}, {hz: 1500, level: 0.002}]\ntolerance: {bands: [{fromHz: 10, toHz: 1500, upperDb: 3, lowerDb: 3}]}\n", "d.yaml");
     const s = powerLawSpectrum(p.segments);
     for (const f of [10, 17.3, 40, 299.9, 1500]) expect(s.level(f)).toBeCloseTo(profileLevel(p, f), 14);
-    // Invented profile D of ../shared/REFERENCES.md sec. 5: 3.5236 g.
+    // Invented profile D of docs/REFERENCES.md sec. 5: 3.5236 g.
     expect(Math.sqrt(spectralMoments(s, () => 1, 100, 1).m0)).toBeCloseTo(3.5236, 4);
   });
   it("lineSpectrum holds each line over its own band: the integral is sum(P) df over the lines kept, DC over [0, df/2]", () => {

@@ -3,7 +3,7 @@ import { lineSpectrum, powerLawSpectrum } from "../../../src/estimate/response/i
 import { displacementPsd, spectrumMotion, velocityPsd } from "../../../src/estimate/response/kinematics.js";
 import { STANDARD_GRAVITY_M_PER_S2 as G } from "../../../src/units.js";
 
-describe("spectrumMotion (REFERENCES.md sec. 6)", () => {
+describe("spectrumMotion (docs/REFERENCES.md sec. 6)", () => {
   it("flat 0.04 g^2/Hz on 20-2000 Hz: 8.8994 g, 69.45 mm/s, 0.3207 mm RMS (closed forms, computed), 1e-6 against the closed forms", () => {
     const m = spectrumMotion(powerLawSpectrum([{ f1: 20, f2: 2000, g1: 0.04, exponent: 0 }]), G);
     expect(m.accelerationRms).toBeCloseTo(8.8994, 4);
@@ -15,7 +15,7 @@ describe("spectrumMotion (REFERENCES.md sec. 6)", () => {
     expect(Math.abs(m.displacementRms ** 2 / d2 - 1)).toBeLessThan(1e-6);
     expect(m.displacementPeakToPeak).toBeCloseTo(6 * m.displacementRms, 15);
   });
-  it("profile A (20/80/350/2000 Hz, NAVMAT P-9492): 52.56 mm/s and 0.1943 mm RMS, 6-sigma stroke 1.166 mm (REFERENCES.md sec. 6, 1e-3)", () => {
+  it("profile A (20/80/350/2000 Hz, NAVMAT P-9492): 52.56 mm/s and 0.1943 mm RMS, 6-sigma stroke 1.166 mm (docs/REFERENCES.md sec. 6, 1e-3)", () => {
     const pts = [[20, 0.01], [80, 0.04], [350, 0.04], [2000, 0.007]] as const;
     const segs = pts.slice(1).map(([f2, g2], i) => ({ f1: pts[i]![0], f2, g1: pts[i]![1], exponent: Math.log(g2 / pts[i]![1]) / Math.log(f2 / pts[i]![0]) }));
     const m = spectrumMotion(powerLawSpectrum(segs), G);

@@ -6,7 +6,7 @@ import { sdofRecords } from "./sdofSimulation.js";
 
 const flat = (f1: number, f2: number) => spectralMoments(powerLawSpectrum([{ f1, f2, g1: 1, exponent: 0 }]), () => 1, 0, 1);
 
-describe("riceRates (Rice 1944-45, Hz moments; worked numbers of ../shared/REFERENCES.md sec. 10)", () => {
+describe("riceRates (Rice 1944-45, Hz moments; worked numbers of docs/REFERENCES.md sec. 10)", () => {
   it("flat 0-1000 Hz: nu0+ 577.35 /s, nu_p 774.60 /s, alpha 0.7454", () => {
     const r = riceRates(flat(0, 1000));
     expect(r.upcrossingRateHz).toBeCloseTo(577.35, 2);
@@ -21,7 +21,7 @@ describe("riceRates (Rice 1944-45, Hz moments; worked numbers of ../shared/REFER
   });
 });
 
-describe("davenportPeakFactor (Davenport 1964, from memory; REFERENCES.md sec. 10)", () => {
+describe("davenportPeakFactor (Davenport 1964, from memory; docs/REFERENCES.md sec. 10)", () => {
   it("3.87 at nu0 T = 1e3, 4.43 at 1e4, 4.92 at 1e5; NaN below 3 crossings", () => {
     expect(davenportPeakFactor(1e3)).toBeCloseTo(3.87, 2);
     expect(davenportPeakFactor(1e4)).toBeCloseTo(4.43, 2);

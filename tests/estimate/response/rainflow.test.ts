@@ -9,7 +9,7 @@ function histogram(c: RainflowCounter): Record<number, number> {
 }
 
 describe("RainflowCounter (ASTM E1049-85, sec. 5.4.4)", () => {
-  it("the standard's example -2, 1, -3, 5, -1, 3, -4, 4, -2 counts 3: 0.5, 4: 1.5, 6: 0.5, 8: 1.0, 9: 0.5 (REFERENCES.md sec. 14, from memory)", () => {
+  it("the standard's example -2, 1, -3, 5, -1, 3, -4, 4, -2 counts 3: 0.5, 4: 1.5, 6: 0.5, 8: 1.0, 9: 0.5 (docs/REFERENCES.md sec. 14, from memory)", () => {
     const c = new RainflowCounter(1, true);
     c.push([-2, 1, -3, 5, -1, 3, -4, 4, -2]);
     c.finish();

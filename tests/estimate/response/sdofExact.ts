@@ -44,7 +44,7 @@ export function lnGamma(z: number): number {
 
 /**
  * Dirlik's rainflow-range density (Dirlik, T., "Application of computers in fatigue analysis", PhD thesis,
- * University of Warwick, 1985; its constants from memory, REFERENCES.md sec. 17 says check before citing):
+ * University of Warwick, 1985; its constants from memory, docs/REFERENCES.md sec. 17 says check before citing):
  * E[D] = nu_p T E[(range/2)^b] with nu_p = sqrt(m4/m2) and
  * E[(range/2)^b] = m0^(b/2) [D1 Q^b Gamma(1+b) + 2^(b/2) Gamma(1+b/2) (D2 |R|^b + D3)].
  */

@@ -93,7 +93,7 @@ describe("SRS of classic pulses against an exact simulation (scipy.signal.lsim, 
       }
     });
   }
-  it("half-sine: the known answer at fn T = 0.8 (82.55 g, REFERENCES.md sec. 15, computed with lsim) and the high-frequency asymptote at the input's peak", () => {
+  it("half-sine: the known answer at fn T = 0.8 (82.55 g, docs/REFERENCES.md sec. 15, computed with lsim) and the high-frequency asymptote at the input's peak", () => {
     const x = sampled(PULSES.half.f, FS, 0.25);
     const s = shockSpectrum(x, Float64Array.from([72.7, 2000]), Q, FS);
     expect(s.maximax[0]! / 82.55).toBeCloseTo(1, 2);

@@ -22,7 +22,7 @@ function interiorMean(a: Float64Array): number {
   return s / (a.length - 2);
 }
 
-describe("frequencyResponse known answers (../shared/REFERENCES.md sec. 9, Bendat & Piersol ch. 9)", () => {
+describe("frequencyResponse known answers (docs/REFERENCES.md sec. 9, Bendat & Piersol ch. 9)", () => {
   it("y = x + n, n independent with the same variance: gamma^2 0.5, |H1| 1, |H2| 2 (within 2 %)", () => {
     const x = gaussian(N, 11);
     const n = gaussian(N, 12);
@@ -41,7 +41,7 @@ describe("frequencyResponse known answers (../shared/REFERENCES.md sec. 9, Benda
     expect(Math.abs(interiorMean(r.h1Magnitude) / 0.5 - 1)).toBeLessThan(0.02);
     expect(Math.abs(interiorMean(r.h2Magnitude) - 1)).toBeLessThan(0.02);
   });
-  it("two independent noises, 20 disjoint segments: mean coherence near the 1/n_d bias, 0.05 (REFERENCES.md sec. 9: 0.0501 simulated; Carter, Knapp & Nuttall 1973, from memory)", () => {
+  it("two independent noises, 20 disjoint segments: mean coherence near the 1/n_d bias, 0.05 (docs/REFERENCES.md sec. 9: 0.0501 simulated; Carter, Knapp & Nuttall 1973, from memory)", () => {
     // 10 seeded records x 127 interior lines: the mean's standard error is about 0.0015.
     let sum = 0;
     for (let seed = 0; seed < 10; seed++) {
@@ -70,7 +70,7 @@ describe("frequencyResponse known answers (../shared/REFERENCES.md sec. 9, Benda
     }
     expect(worst).toBeLessThan(0.5);
   });
-  it("an output lagging 45 degrees has a cross-spectrum phase of -45 (scipy csd's conj(X) Y, REFERENCES.md sec. 9)", () => {
+  it("an output lagging 45 degrees has a cross-spectrum phase of -45 (scipy csd's conj(X) Y, docs/REFERENCES.md sec. 9)", () => {
     const n = 1 << 14;
     const x = new Float64Array(n);
     const y = new Float64Array(n);
@@ -141,7 +141,7 @@ describe("findResonances", () => {
     expect(res.length).toBe(1);
     const p = res[0]!;
     expect(Math.abs(p.frequencyHz / 200 - 1)).toBeLessThan(0.005);
-    // |T(f_n)|^2 = (1 + (2 zeta)^2) / (2 zeta)^2 = 1 + Q^2 (REFERENCES.md sec. 4, at r = 1)
+    // |T(f_n)|^2 = (1 + (2 zeta)^2) / (2 zeta)^2 = 1 + Q^2 (docs/REFERENCES.md sec. 4, at r = 1)
     expect(Math.abs(p.magnitude / Math.sqrt(101) - 1)).toBeLessThan(0.03);
     expect(Math.abs(p.q / 10 - 1)).toBeLessThan(0.05);
     expect(p.resolutionLimited).toBe(false);

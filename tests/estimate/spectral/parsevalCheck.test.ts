@@ -19,7 +19,7 @@ describe("parsevalCheck", () => {
     const c = parsevalCheck(residualRms(x), p, "hann");
     expect(c.toleranceFrom).toBe("record");
     expect(c.ok).toBe(true);
-    // REFERENCES.md sec. 11: Hann, 2^16 samples, sd of the ratio about 0.14 %; the tolerance is a few of those.
+    // docs/REFERENCES.md sec. 11: Hann, 2^16 samples, sd of the ratio about 0.14 %; the tolerance is a few of those.
     expect(c.tolerance).toBeLessThan(0.01);
     expect(Math.abs(c.belowFirstLineShare)).toBeLessThan(0.01);
   });

@@ -25,7 +25,7 @@ describe("spectralKernel", () => {
     expect(detrendBiasedLines(hann)).toBe(2);
     // Seeded white noise, 4000 averages: line 1 reads 1/6 low (within 3 sigma of sqrt(2/nu)).
     const p = welchPsd(gaussian(1024 * 4000, 3), 1024, { segmentLength: 1024 });
-    const level = 2 / 1024; // REFERENCES.md sec. 1: unit-variance white noise has one-sided density 2/fs
+    const level = 2 / 1024; // docs/REFERENCES.md sec. 1: unit-variance white noise has one-sided density 2/fs
     expect(Math.abs(p.psd[1]! / level - (1 - 1 / 6))).toBeLessThan(3 * Math.sqrt(2 / p.dof));
   });
   it("flat top with mean removal biases DC and lines 1 and 2 by more than 1 % (line 1 by about -25 %)", () => {

@@ -13,7 +13,7 @@ describe("welchDof", () => {
   it("rectangular without overlap: 2K (independent segments)", () => {
     expect(welchDof(spectralWindow("rectangular", 256), 256, 17)).toBeCloseTo(34, 12);
   });
-  // Large-K DOF per segment, ../shared/REFERENCES.md sec. 2 (computed from eq. 292b, N = 1024).
+  // Large-K DOF per segment, docs/REFERENCES.md sec. 2 (computed from eq. 292b, N = 1024).
   const perSegment: [string, number, number][] = [
     ["rectangular", 0.5, 1.333], ["hann", 0.75, 1.039], ["hamming", 0.5, 1.803], ["blackman-harris", 0.75, 1.403], ["flattop", 0.5, 1.999],
   ];

@@ -26,21 +26,21 @@ describe("welchPsd invariants", () => {
     expect(Array.from(r.psd)).toEqual([1 / 32, 2 / 32, 1 / 32]);
   });
   for (const w of ["hann", "hamming", "blackman-harris", "flattop", "rectangular"] as const) {
-    it(`${w}: a sine of amplitude A puts A^2/2 under the PSD (common practice; REFERENCES.md sec. 11)`, () => {
+    it(`${w}: a sine of amplitude A puts A^2/2 under the PSD (common practice; docs/REFERENCES.md sec. 11)`, () => {
       const n = 1 << 16;
       const s = new Float64Array(n);
       for (let i = 0; i < n; i++) s[i] = 2 * Math.sin((2 * Math.PI * 123.4 * i) / 2048);
       const r = welchPsd(s, 2048, { window: w, segmentLength: 2048 });
       expect(r.rmsPsd ** 2).toBeCloseTo(2, 2);
     });
-    it(`${w}: white noise of variance 1 has mean density 2/fs over interior lines (REFERENCES.md sec. 1)`, () => {
+    it(`${w}: white noise of variance 1 has mean density 2/fs over interior lines (docs/REFERENCES.md sec. 1)`, () => {
       const r = welchPsd(gaussian(1 << 18, 7), 1000, { window: w, segmentLength: 512 });
       let s = 0;
       for (let k = 1; k < 256; k++) s += r.psd[k]!;
       expect(s / 255 / (2 / 1000)).toBeCloseTo(1, 1);
     });
   }
-  it("Parseval, exact: sum(P) df equals the average window-weighted mean square (REFERENCES.md sec. 11)", () => {
+  it("Parseval, exact: sum(P) df equals the average window-weighted mean square (docs/REFERENCES.md sec. 11)", () => {
     for (const d of ["none", "mean", "linear"] as const) {
       const r = welchPsd(x, fs, { window: "hann", segmentLength: 256, overlap: 0.6, detrend: d });
       expect(Math.abs(r.rmsPsd ** 2 / r.windowedMeanSquare - 1)).toBeLessThan(1e-12);

@@ -40,7 +40,7 @@ describe("chiSquareQuantile", () => {
 });
 
 describe("chiSquareIntervalFactors", () => {
-  // ../shared/REFERENCES.md sec. 2, interval factors computed from the confirmed quantile table.
+  // docs/REFERENCES.md sec. 2, interval factors computed from the confirmed quantile table.
   const rows: [number, number, number, number][] = [
     [10, 0.9, 0.546, 2.538], [10, 0.95, 0.488, 3.08], [60, 0.9, 0.759, 1.389], [120, 0.9, 0.819, 1.254], [240, 0.95, 0.843, 1.206],
   ];

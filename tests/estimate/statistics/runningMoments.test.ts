@@ -17,7 +17,7 @@ describe("RunningMoments", () => {
     expect(r.count).toBe(3000);
     for (const k of ["mean", "std", "skewness", "kurtosis", "min", "max"] as const) expect(Math.abs(r[k] - ref[k]!) / Math.abs(ref[k]!)).toBeLessThan(1e-11);
   });
-  it("Gaussian noise: kurtosis 3 +- 0.05 with 1e6 samples (Pearson; REFERENCES.md sec. 10)", () => {
+  it("Gaussian noise: kurtosis 3 +- 0.05 with 1e6 samples (Pearson; docs/REFERENCES.md sec. 10)", () => {
     const m = new RunningMoments();
     m.push(gaussian(1_000_000, 11));
     expect(m.result().kurtosis).toBeGreaterThan(2.95);

@@ -4,7 +4,7 @@ import { inversionDistribution, reverseArrangementCount, reverseArrangementsTest
 import { gaussian, seeded } from "../../helpers.js";
 
 describe("reverse arrangements test", () => {
-  it("acceptance regions reproduce Bendat & Piersol Table A.6 at alpha = 0.05 (REFERENCES.md sec. 13)", () => {
+  it("acceptance regions reproduce Bendat & Piersol Table A.6 at alpha = 0.05 (docs/REFERENCES.md sec. 13)", () => {
     const table: [number, number, number][] = [[10, 11, 33], [20, 64, 125], [30, 162, 272], [50, 495, 729], [100, 2145, 2804]];
     for (const [n, lo, hi] of table) {
       const t = reverseArrangementsTest(Float64Array.from({ length: n }, (_, i) => i), 0.05);
@@ -42,7 +42,7 @@ describe("reverse arrangements test", () => {
 });
 
 describe("run test", () => {
-  it("n = 20 (10 above, 10 below the median): 95 % region 6 < r <= 15 (Bendat & Piersol Table A.5, REFERENCES.md sec. 13, from memory)", () => {
+  it("n = 20 (10 above, 10 below the median): 95 % region 6 < r <= 15 (Bendat & Piersol Table A.5, docs/REFERENCES.md sec. 13, from memory)", () => {
     const t = runTest(Float64Array.from({ length: 20 }, (_, i) => i));
     expect([t.acceptAbove, t.acceptAtMost]).toEqual([6, 15]);
     expect(t.statistic).toBe(2);
@@ -78,7 +78,7 @@ describe("stationarity on stretch mean squares, seeded Monte Carlo on records ma
       nominal = t.falseAlarmRate;
       if (!t.stationary) alarms++;
     }
-    expect(nominal).toBeCloseTo(2 * 0.023384, 5); // 2 P(A <= 64), exact (REFERENCES.md sec. 13)
+    expect(nominal).toBeCloseTo(2 * 0.023384, 5); // 2 P(A <= 64), exact (docs/REFERENCES.md sec. 13)
     const sd = Math.sqrt((nominal * (1 - nominal)) / runs);
     expect(Math.abs(alarms / runs - nominal)).toBeLessThan(3 * sd);
   });
