@@ -5,7 +5,10 @@ export default defineConfig({
   test: {
     // `npm run test:slow` narrows this to the slow set (scripts/test.mjs, which `npm test` leaves it out of).
     include: process.env.PSDGATE_TEST_INCLUDE ? process.env.PSDGATE_TEST_INCLUDE.split(",") : ["tests/**/*.test.ts"],
-    exclude: [...configDefaults.exclude, ...(process.env.PSDGATE_TEST_EXCLUDE ? process.env.PSDGATE_TEST_EXCLUDE.split(",") : [])],
+    exclude: [
+      ...configDefaults.exclude,
+      ...(process.env.PSDGATE_TEST_EXCLUDE ? process.env.PSDGATE_TEST_EXCLUDE.split(",") : []),
+    ],
     testTimeout: 60000,
     hookTimeout: 60000,
     // The throwaway PostgreSQL server of the queue tests (tests/queue/globalSetup.ts).

@@ -26,7 +26,11 @@ if (kind === "csv") {
     iso: (t, a, b, c) => `${iso(t)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}\n`,
   }[spelling];
   if (!row) throw new Error(`unknown spelling ${spelling}`);
-  writeSync(fd, { comma: "time;ax [g];ay [g];az [g]\n", tab: "time\tax [g]\tay [g]\taz [g]\n" }[spelling] ?? "time,ax [g],ay [g],az [g]\n");
+  writeSync(
+    fd,
+    { comma: "time;ax [g];ay [g];az [g]\n", tab: "time\tax [g]\tay [g]\taz [g]\n" }[spelling] ??
+      "time,ax [g],ay [g],az [g]\n",
+  );
   for (let i = 0; i < frames; i += B) {
     const n = Math.min(B, frames - i);
     x.forEach((a, c) => noise[c].fill(a));
@@ -37,9 +41,18 @@ if (kind === "csv") {
 } else {
   const h = Buffer.alloc(44);
   const bytes = frames * 12;
-  h.write("RIFF", 0); h.writeUInt32LE(36 + bytes, 4); h.write("WAVEfmt ", 8); h.writeUInt32LE(16, 16); h.writeUInt16LE(3, 20);
-  h.writeUInt16LE(3, 22); h.writeUInt32LE(fs, 24); h.writeUInt32LE(fs * 12, 28); h.writeUInt16LE(12, 32); h.writeUInt16LE(32, 34);
-  h.write("data", 36); h.writeUInt32LE(bytes, 40);
+  h.write("RIFF", 0);
+  h.writeUInt32LE(36 + bytes, 4);
+  h.write("WAVEfmt ", 8);
+  h.writeUInt32LE(16, 16);
+  h.writeUInt16LE(3, 20);
+  h.writeUInt16LE(3, 22);
+  h.writeUInt32LE(fs, 24);
+  h.writeUInt32LE(fs * 12, 28);
+  h.writeUInt16LE(12, 32);
+  h.writeUInt16LE(32, 34);
+  h.write("data", 36);
+  h.writeUInt32LE(bytes, 40);
   writeSync(fd, h);
   const buf = Buffer.alloc(B * 12);
   for (let i = 0; i < frames; i += B) {

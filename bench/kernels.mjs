@@ -14,25 +14,36 @@ const median = (xs) => [...xs].sort((a, b) => a - b)[(xs.length - 1) >> 1];
 
 // Rows as bench/generate.mjs writes them: time and three channels, in each CSV spelling.
 let seed = 7;
-const rand = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
+const rand = () => (seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32;
 const spellings = {
   fixed: (t, a, b, c) => `${t.toFixed(6)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}`,
   "sci (%.6e)": (t, a, b, c) => `${sci(t, 9)},${sci(a, 6)},${sci(b, 6)},${sci(c, 6)}`,
-  "decimal comma": (t, a, b, c) => `${t.toFixed(6)};${a.toFixed(6)};${b.toFixed(6)};${c.toFixed(6)}`.replace(/\./g, ","),
+  "decimal comma": (t, a, b, c) =>
+    `${t.toFixed(6)};${a.toFixed(6)};${b.toFixed(6)};${c.toFixed(6)}`.replace(/\./g, ","),
   counts: (t, a, b, c) => `${t.toFixed(6)},${Math.round(a * 3000)},${Math.round(b * 3000)},${Math.round(c * 3000)}`,
   "%g": (t, a, b, c) => `${cg(t, 10)},${cg(a)},${cg(b)},${cg(c)}`,
   tab: (t, a, b, c) => `${t.toFixed(6)}\t${a.toFixed(6)}\t${b.toFixed(6)}\t${c.toFixed(6)}`,
   "ISO stamps": (t, a, b, c) => `${iso(t)},${a.toFixed(6)},${b.toFixed(6)},${c.toFixed(6)}`,
 };
-const only = process.argv.indexOf("--spellings") >= 0 ? process.argv[process.argv.indexOf("--spellings") + 1].split(",") : undefined;
+const only =
+  process.argv.indexOf("--spellings") >= 0
+    ? process.argv[process.argv.indexOf("--spellings") + 1].split(",")
+    : undefined;
 for (const [name, row] of Object.entries(spellings)) {
   if (only && !only.includes(name)) continue;
   const lines = [];
-  for (let i = 0; i < 500_000; i++) lines.push(row(i / 25600, (rand() - 0.5) * 4, (rand() - 0.5) * 4, (rand() - 0.5) * 4));
+  for (let i = 0; i < 500_000; i++)
+    lines.push(row(i / 25600, (rand() - 0.5) * 4, (rand() - 0.5) * 4, (rand() - 0.5) * 4));
   const body = Buffer.from(lines.join("\n") + "\n");
   const comma = name === "decimal comma";
   const spec = {
-    file: "bench", columns: 4, columnNames: ["time", "ax", "ay", "az"], delimiter: comma ? ";" : name === "tab" ? "\t" : ",", decimal: comma ? "," : ".", timeIndex: 0, selectColumns: [1, 2, 3],
+    file: "bench",
+    columns: 4,
+    columnNames: ["time", "ax", "ay", "az"],
+    delimiter: comma ? ";" : name === "tab" ? "\t" : ",",
+    decimal: comma ? "," : ".",
+    timeIndex: 0,
+    selectColumns: [1, 2, 3],
     timeDateTime: name === "ISO stamps" ? { baseDays: daysFromCivil(2026, 3, 9) } : undefined,
   };
   const parser = new CsvBodyParser(spec);
@@ -51,7 +62,9 @@ for (const [name, row] of Object.entries(spellings)) {
     return ((performance.now() - t) * 1e6) / (rows * 4);
   };
   parseRound();
-  console.log(`CSV plain rows, ${name}: ${median(Array.from({ length: 7 }, parseRound)).toFixed(1)} ns a number (${(body.length / 1e6).toFixed(0)} MB, 4 columns)`);
+  console.log(
+    `CSV plain rows, ${name}: ${median(Array.from({ length: 7 }, parseRound)).toFixed(1)} ns a number (${(body.length / 1e6).toFixed(0)} MB, 4 columns)`,
+  );
 }
 
 const N = 4096;
@@ -86,4 +99,6 @@ for (let r = 0; r < 7; r++) {
   a.push(perCall(aroundFftJs));
   b.push(perCall(ours));
 }
-console.log(`Welch segment, N = ${N}: fft.js with window and power passes ${median(a).toFixed(1)} us, SegmentPower.add ${median(b).toFixed(1)} us`);
+console.log(
+  `Welch segment, N = ${N}: fft.js with window and power passes ${median(a).toFixed(1)} us, SegmentPower.add ${median(b).toFixed(1)} us`,
+);

@@ -12,15 +12,42 @@ export async function startBenchServer() {
   if (!bin) throw new Error("no initdb: apt-get install postgresql");
   const dir = mkdtempSync(join(tmpdir(), "psdgate-bench-pg-"));
   const asRoot = userInfo().uid === 0;
-  const pgRun = (cmd, args) => (asRoot ? execFileSync("runuser", ["-u", "postgres", "--", join(bin, cmd), ...args], { stdio: "pipe" }) : execFileSync(join(bin, cmd), args, { stdio: "pipe" }));
-  if (asRoot) chownSync(dir, Number(execFileSync("id", ["-u", "postgres"], { encoding: "utf8" })), Number(execFileSync("id", ["-g", "postgres"], { encoding: "utf8" })));
-  const port = await new Promise((r) => { const s = createServer(); s.listen(0, "127.0.0.1", () => { const p = s.address().port; s.close(() => r(p)); }); });
+  const pgRun = (cmd, args) =>
+    asRoot
+      ? execFileSync("runuser", ["-u", "postgres", "--", join(bin, cmd), ...args], { stdio: "pipe" })
+      : execFileSync(join(bin, cmd), args, { stdio: "pipe" });
+  if (asRoot)
+    chownSync(
+      dir,
+      Number(execFileSync("id", ["-u", "postgres"], { encoding: "utf8" })),
+      Number(execFileSync("id", ["-g", "postgres"], { encoding: "utf8" })),
+    );
+  const port = await new Promise((r) => {
+    const s = createServer();
+    s.listen(0, "127.0.0.1", () => {
+      const p = s.address().port;
+      s.close(() => r(p));
+    });
+  });
   pgRun("initdb", ["-D", join(dir, "db"), "-A", "trust", "-U", "postgres"]);
-  pgRun("pg_ctl", ["-D", join(dir, "db"), "-w", "-o", `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1`, "-l", join(dir, "log"), "start"]);
+  pgRun("pg_ctl", [
+    "-D",
+    join(dir, "db"),
+    "-w",
+    "-o",
+    `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1`,
+    "-l",
+    join(dir, "log"),
+    "start",
+  ]);
   return {
     url: `postgres://postgres@127.0.0.1:${port}`,
     stop() {
-      try { pgRun("pg_ctl", ["-D", join(dir, "db"), "-w", "-m", "fast", "stop"]); } finally { rmSync(dir, { recursive: true, force: true }); }
+      try {
+        pgRun("pg_ctl", ["-D", join(dir, "db"), "-w", "-m", "fast", "stop"]);
+      } finally {
+        rmSync(dir, { recursive: true, force: true });
+      }
     },
   };
 }

@@ -28,7 +28,11 @@ for (;;) {
         const v = mant / P10[frac];
         sum += neg ? -v : v;
       }
-      mant = 0; frac = 0; inFrac = false; neg = false; any = false;
+      mant = 0;
+      frac = 0;
+      inFrac = false;
+      neg = false;
+      any = false;
     }
   }
 }

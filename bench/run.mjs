@@ -32,14 +32,23 @@ const TIME = existsSync("/usr/bin/time") ? "/usr/bin/time" : undefined;
 const hasScipy = spawnSync("python3", ["-c", "import scipy.signal, numpy"]).status === 0;
 const SYS_PY = "/usr/bin/python3";
 const hasPandas = spawnSync(SYS_PY, ["-c", "import pandas, scipy.signal"]).status === 0;
-const pyVersions = (py, mods) => spawnSync(py, ["-c", `import ${mods.join(", ")}; print(" ".join(m.__name__ + " " + m.__version__ for m in (${mods.join(", ")},)))`], { encoding: "utf8" }).stdout.trim();
+const pyVersions = (py, mods) =>
+  spawnSync(
+    py,
+    [
+      "-c",
+      `import ${mods.join(", ")}; print(" ".join(m.__name__ + " " + m.__version__ for m in (${mods.join(", ")},)))`,
+    ],
+    { encoding: "utf8" },
+  ).stdout.trim();
 
 function timed(cmd, args) {
   const full = TIME ? [TIME, ["-f", "__BENCH__ %e %M", cmd, ...args]] : [cmd, args];
   const t = performance.now();
   const r = spawnSync(full[0], full[1], { encoding: "utf8", maxBuffer: 1 << 30 });
   const wall = (performance.now() - t) / 1000;
-  if (r.status !== 0 && r.status !== 1 && r.status !== 3) throw new Error(`${cmd} ${args.join(" ")} failed: ${r.stderr}`);
+  if (r.status !== 0 && r.status !== 1 && r.status !== 3)
+    throw new Error(`${cmd} ${args.join(" ")} failed: ${r.stderr}`);
   const m = /__BENCH__ ([\d.]+) (\d+)/.exec(r.stderr ?? "");
   return { seconds: wall, rssMb: m ? Number(m[2]) / 1024 : NaN };
 }
@@ -56,10 +65,13 @@ function measureTogether(routes, n) {
   const load = [loadNow()];
   for (let i = 0; i < n; i++) routes.forEach((r, k) => rs[k].push(timed(r.cmd, r.args)));
   load.push(loadNow());
-  return routes.map((r, k) => ({ label: r.label, seconds: median(rs[k].map((x) => x.seconds)), rssMb: Math.max(...rs[k].map((x) => x.rssMb)), runs: n, load }));
-}
-function measure(label, cmd, args, n) {
-  return measureTogether([{ label, cmd, args }], n)[0];
+  return routes.map((r, k) => ({
+    label: r.label,
+    seconds: median(rs[k].map((x) => x.seconds)),
+    rssMb: Math.max(...rs[k].map((x) => x.rssMb)),
+    runs: n,
+    load,
+  }));
 }
 
 const PY_CSV = (f) => `import numpy as np, scipy.signal as ss
@@ -96,13 +108,22 @@ for (const n of spellingRows) {
     const routes = [
       { label: "psdgate psd", cmd: "node", args: [...PSD.slice(0, 2), csv, ...PSD.slice(2)] },
       ...(hasScipy ? [{ label: "numpy.loadtxt + scipy.welch", cmd: "python3", args: ["-c", PY_NUMPY(csv, sp)] }] : []),
-      ...(hasPandas ? [{ label: "pandas.read_csv (C) + scipy.welch", cmd: SYS_PY, args: ["-c", PY_PANDAS(csv, sp)] }] : []),
+      ...(hasPandas
+        ? [{ label: "pandas.read_csv (C) + scipy.welch", cmd: SYS_PY, args: ["-c", PY_PANDAS(csv, sp)] }]
+        : []),
     ];
     const ms = measureTogether(routes, n >= 1e7 ? bigRuns : runs);
     const ours = ms[0];
     const np = ms.find((m) => m.label.startsWith("numpy"));
     const pd = ms.find((m) => m.label.startsWith("pandas"));
-    spellingRowsOut.push({ rows: n, spelling: sp, bytes, routes: ms, vsNumpy: np ? np.seconds / ours.seconds : null, vsPandas: pd ? pd.seconds / ours.seconds : null });
+    spellingRowsOut.push({
+      rows: n,
+      spelling: sp,
+      bytes,
+      routes: ms,
+      vsNumpy: np ? np.seconds / ours.seconds : null,
+      vsPandas: pd ? pd.seconds / ours.seconds : null,
+    });
     console.error(`${sp} ${n}: ${ms.map((m) => `${m.label} ${m.seconds.toFixed(2)} s`).join(", ")}`);
     if (!keep && n >= 1e7) rmSync(csv, { force: true });
   }
@@ -116,7 +137,17 @@ for (const n of sizes) {
   const csvBytes = statSync(csv).size;
   const wavBytes = statSync(wav).size;
   const samples = 3 * n;
-  const add = (format, bytes, m) => rows.push({ samplesPerChannel: n, format, route: m.label, seconds: m.seconds, mbPerS: bytes / 1e6 / m.seconds, msamplesPerS: samples / 1e6 / m.seconds, peakRssMb: m.rssMb, runs: m.runs });
+  const add = (format, bytes, m) =>
+    rows.push({
+      samplesPerChannel: n,
+      format,
+      route: m.label,
+      seconds: m.seconds,
+      mbPerS: bytes / 1e6 / m.seconds,
+      msamplesPerS: samples / 1e6 / m.seconds,
+      peakRssMb: m.rssMb,
+      runs: m.runs,
+    });
   const csvRoutes = [
     { label: "psdgate psd", cmd: "node", args: [...PSD.slice(0, 2), csv, ...PSD.slice(2)] },
     { label: "raw byte scan", cmd: "node", args: ["bench/rawScan.mjs", csv] },
@@ -138,11 +169,20 @@ for (let i = 0; i < batchFiles; i++) {
   if (!existsSync(f)) execFileSync("node", ["bench/generate.mjs", "csv", String(batchRows), f, String(100 + i)]);
   batch.push(f);
 }
-const [jobs1, jobs2] = batchFiles > 0
-  ? measureTogether([1, 2].map((j) => ({ label: `psdgate psd, ${batchFiles} files, --jobs ${j}`, cmd: "node", args: ["bin/psdgate.js", "psd", ...batch, "--jobs", String(j), "--json", "-q"] })), runs)
-  : [undefined, undefined];
+const [jobs1, jobs2] =
+  batchFiles > 0
+    ? measureTogether(
+        [1, 2].map((j) => ({
+          label: `psdgate psd, ${batchFiles} files, --jobs ${j}`,
+          cmd: "node",
+          args: ["bin/psdgate.js", "psd", ...batch, "--jobs", String(j), "--json", "-q"],
+        })),
+        runs,
+      )
+    : [undefined, undefined];
 
-const find = (n, format, route) => rows.find((r) => r.samplesPerChannel === n && r.format === format && r.route === route);
+const find = (n, format, route) =>
+  rows.find((r) => r.samplesPerChannel === n && r.format === format && r.route === route);
 const ratios = sizes.map((n) => {
   const ours = find(n, "csv", "psdgate psd");
   const np = find(n, "csv", "numpy.loadtxt + scipy.welch");
@@ -160,31 +200,71 @@ const ratios = sizes.map((n) => {
 const fmt = (x, d = 2) => (x === null || x === undefined || Number.isNaN(x) ? "-" : x.toFixed(d));
 const lines = [];
 if (rows.length > 0) {
-lines.push(`| samples/channel | format | route | s (median) | MB/s | Msamples/s | peak RSS MB | runs |`);
-lines.push(`|---|---|---|---|---|---|---|---|`);
-for (const r of rows) lines.push(`| ${r.samplesPerChannel.toExponential(0)} | ${r.format} | ${r.route} | ${fmt(r.seconds)} | ${fmt(r.mbPerS, 0)} | ${fmt(r.msamplesPerS, 1)} | ${fmt(r.peakRssMb, 0)} | ${r.runs} |`);
-lines.push("");
-lines.push(`| samples/channel | CSV: numpy / psdgate | CSV: psdgate / raw scan | WAV: scipy / psdgate |`);
-lines.push(`|---|---|---|---|`);
-for (const r of ratios) lines.push(`| ${r.samplesPerChannel.toExponential(0)} | ${fmt(r.csvSpeedupVsNumpy)}x | ${fmt(r.csvTimeVsRawScan)}x | ${fmt(r.wavSpeedupVsScipy)}x |`);
-lines.push("");
+  lines.push(`| samples/channel | format | route | s (median) | MB/s | Msamples/s | peak RSS MB | runs |`);
+  lines.push(`|---|---|---|---|---|---|---|---|`);
+  for (const r of rows)
+    lines.push(
+      `| ${r.samplesPerChannel.toExponential(0)} | ${r.format} | ${r.route} | ${fmt(r.seconds)} | ${fmt(r.mbPerS, 0)} | ${fmt(r.msamplesPerS, 1)} | ${fmt(r.peakRssMb, 0)} | ${r.runs} |`,
+    );
+  lines.push("");
+  lines.push(`| samples/channel | CSV: numpy / psdgate | CSV: psdgate / raw scan | WAV: scipy / psdgate |`);
+  lines.push(`|---|---|---|---|`);
+  for (const r of ratios)
+    lines.push(
+      `| ${r.samplesPerChannel.toExponential(0)} | ${fmt(r.csvSpeedupVsNumpy)}x | ${fmt(r.csvTimeVsRawScan)}x | ${fmt(r.wavSpeedupVsScipy)}x |`,
+    );
+  lines.push("");
 }
-if (jobs1 && jobs2) lines.push(`Batch of ${batchFiles} x ${batchRows.toExponential(0)}-row CSV: --jobs 1 ${fmt(jobs1.seconds)} s, --jobs 2 ${fmt(jobs2.seconds)} s, speed-up ${fmt(jobs1.seconds / jobs2.seconds)}x (peak RSS ${fmt(jobs2.rssMb, 0)} MB)`);
+if (jobs1 && jobs2)
+  lines.push(
+    `Batch of ${batchFiles} x ${batchRows.toExponential(0)}-row CSV: --jobs 1 ${fmt(jobs1.seconds)} s, --jobs 2 ${fmt(jobs2.seconds)} s, speed-up ${fmt(jobs1.seconds / jobs2.seconds)}x (peak RSS ${fmt(jobs2.rssMb, 0)} MB)`,
+  );
 if (spellingRowsOut.length > 0) {
   lines.push("");
-  lines.push(`Machine load: 1-minute load average ${loadAtStart.toFixed(1)} at the start, ${loadNow().toFixed(1)} at the end, on ${availableParallelism()} cores (other work on the machine slows psdgate's two threads more than the one-thread Python routes).`);
+  lines.push(
+    `Machine load: 1-minute load average ${loadAtStart.toFixed(1)} at the start, ${loadNow().toFixed(1)} at the end, on ${availableParallelism()} cores (other work on the machine slows psdgate's two threads more than the one-thread Python routes).`,
+  );
   lines.push("");
-  lines.push(`CSV spellings (time + 3 channels; ${process.version}; numpy route: ${pyVersions("python3", ["numpy", "scipy"])}; pandas route: ${pyVersions(SYS_PY, ["pandas", "numpy", "scipy"])}; ${availableParallelism()} cores)`);
+  lines.push(
+    `CSV spellings (time + 3 channels; ${process.version}; numpy route: ${pyVersions("python3", ["numpy", "scipy"])}; pandas route: ${pyVersions(SYS_PY, ["pandas", "numpy", "scipy"])}; ${availableParallelism()} cores)`,
+  );
   lines.push("");
-  lines.push(`| rows | spelling | MB | psdgate s | numpy.loadtxt+welch s | pandas.read_csv(C)+welch s | numpy / psdgate | pandas / psdgate | psdgate GB/s | psdgate peak RSS MB | runs | load (1 min) |`);
+  lines.push(
+    `| rows | spelling | MB | psdgate s | numpy.loadtxt+welch s | pandas.read_csv(C)+welch s | numpy / psdgate | pandas / psdgate | psdgate GB/s | psdgate peak RSS MB | runs | load (1 min) |`,
+  );
   lines.push(`|---|---|---|---|---|---|---|---|---|---|---|---|`);
   for (const r of spellingRowsOut) {
-    const [o, np, pd] = [r.routes[0], r.routes.find((m) => m.label.startsWith("numpy")), r.routes.find((m) => m.label.startsWith("pandas"))];
-    lines.push(`| ${r.rows.toExponential(0)} | ${r.spelling} | ${fmt(r.bytes / 1e6, 0)} | ${fmt(o.seconds)} | ${fmt(np?.seconds)} | ${fmt(pd?.seconds)} | ${fmt(r.vsNumpy)}x | ${fmt(r.vsPandas)}x | ${fmt(r.bytes / 1e9 / o.seconds, 3)} | ${fmt(o.rssMb, 0)} | ${o.runs} | ${o.load.map((x) => x.toFixed(1)).join("–")} |`);
+    const [o, np, pd] = [
+      r.routes[0],
+      r.routes.find((m) => m.label.startsWith("numpy")),
+      r.routes.find((m) => m.label.startsWith("pandas")),
+    ];
+    lines.push(
+      `| ${r.rows.toExponential(0)} | ${r.spelling} | ${fmt(r.bytes / 1e6, 0)} | ${fmt(o.seconds)} | ${fmt(np?.seconds)} | ${fmt(pd?.seconds)} | ${fmt(r.vsNumpy)}x | ${fmt(r.vsPandas)}x | ${fmt(r.bytes / 1e9 / o.seconds, 3)} | ${fmt(o.rssMb, 0)} | ${o.runs} | ${o.load.map((x) => x.toFixed(1)).join("–")} |`,
+    );
   }
 }
 const text = lines.join("\n");
 console.log(text);
-writeFileSync("bench/out/results.json", JSON.stringify({ date: new Date().toISOString(), node: process.version, hasScipy, hasPandas, rows, ratios, spellings: spellingRowsOut, batch: jobs1 && jobs2 ? { files: batchFiles, rows: batchRows, jobs1, jobs2, speedup: jobs1.seconds / jobs2.seconds } : null }, null, 2));
+writeFileSync(
+  "bench/out/results.json",
+  JSON.stringify(
+    {
+      date: new Date().toISOString(),
+      node: process.version,
+      hasScipy,
+      hasPandas,
+      rows,
+      ratios,
+      spellings: spellingRowsOut,
+      batch:
+        jobs1 && jobs2
+          ? { files: batchFiles, rows: batchRows, jobs1, jobs2, speedup: jobs1.seconds / jobs2.seconds }
+          : null,
+    },
+    null,
+    2,
+  ),
+);
 writeFileSync("bench/out/results.md", text + "\n");
 console.log("\nwrote bench/out/results.json and bench/out/results.md");

@@ -31,8 +31,8 @@ function band(f) {
   const lo = Math.log2(20);
   const hi = Math.log2(1000);
   if (o < lo - 0.5 || o > hi + 0.5) return 0;
-  if (o < lo) return 0.5 - 0.5 * Math.cos(Math.PI * (o - lo + 0.5) / 0.5);
-  if (o > hi) return 0.5 + 0.5 * Math.cos(Math.PI * (o - hi) / 0.5);
+  if (o < lo) return 0.5 - 0.5 * Math.cos((Math.PI * (o - lo + 0.5)) / 0.5);
+  if (o > hi) return 0.5 + 0.5 * Math.cos((Math.PI * (o - hi)) / 0.5);
   return 1;
 }
 const gain = 2.5; // sets the base near 2.4 g RMS

@@ -23,10 +23,14 @@ function biquad(b, a, fp) {
   const c = wp / Math.tan(wp / (2 * fs));
   const a0 = a[0] * c * c + a[1] * c + a[2];
   const k = {
-    b0: (b[0] * c * c + b[1] * c + b[2]) / a0, b1: (2 * b[2] - 2 * b[0] * c * c) / a0, b2: (b[0] * c * c - b[1] * c + b[2]) / a0,
-    a1: (2 * a[2] - 2 * a[0] * c * c) / a0, a2: (a[0] * c * c - a[1] * c + a[2]) / a0,
+    b0: (b[0] * c * c + b[1] * c + b[2]) / a0,
+    b1: (2 * b[2] - 2 * b[0] * c * c) / a0,
+    b2: (b[0] * c * c - b[1] * c + b[2]) / a0,
+    a1: (2 * a[2] - 2 * a[0] * c * c) / a0,
+    a2: (a[0] * c * c - a[1] * c + a[2]) / a0,
   };
-  let s1 = 0, s2 = 0;
+  let s1 = 0,
+    s2 = 0;
   return (x) => {
     const y = k.b0 * x + s1;
     s1 = k.b1 * x - k.a1 * y + s2;
@@ -35,21 +39,33 @@ function biquad(b, a, fp) {
   };
 }
 /** Resonance with unit gain at DC: w^2 / (s^2 + w s / Q + w^2). */
-const resonance = (f, q) => { const w = 2 * Math.PI * f; return biquad([0, 0, w * w], [1, w / q, w * w], f); };
+const resonance = (f, q) => {
+  const w = 2 * Math.PI * f;
+  return biquad([0, 0, w * w], [1, w / q, w * w], f);
+};
 /** Band-pass w s / Q / (s^2 + w s / Q + w^2) with unit gain at f. */
-const bandPass = (f, q) => { const w = 2 * Math.PI * f; return biquad([0, w / q, 0], [1, w / q, w * w], f); };
+const bandPass = (f, q) => {
+  const w = 2 * Math.PI * f;
+  return biquad([0, w / q, 0], [1, w / q, w * w], f);
+};
 /** Base-excitation transmissibility of a seat: (2 zeta w s + w^2) / (s^2 + 2 zeta w s + w^2). */
-const seatMount = (f, zeta) => { const w = 2 * Math.PI * f; return biquad([0, 2 * zeta * w, w * w], [1, 2 * zeta * w, w * w], f); };
+const seatMount = (f, zeta) => {
+  const w = 2 * Math.PI * f;
+  return biquad([0, 2 * zeta * w, w * w], [1, 2 * zeta * w, w * w], f);
+};
 
 // Road roughness per phase (m/s^2 of the input noise), engine order (Hz) and its amplitude.
 const phases = [
-  { until: 20, road: 0.0, engineHz: 26, engine: 0.08 },   // idle in the yard
-  { until: 100, road: 0.9, engineHz: 45, engine: 0.12 },  // town lanes, two stops
-  { until: 200, road: 1.5, engineHz: 58, engine: 0.1 },   // estate highway
-  { until: 225, road: 2.6, engineHz: 40, engine: 0.15 },  // rough farm track
-  { until: 240, road: 0.0, engineHz: 26, engine: 0.08 },  // back in the yard, idling
+  { until: 20, road: 0.0, engineHz: 26, engine: 0.08 }, // idle in the yard
+  { until: 100, road: 0.9, engineHz: 45, engine: 0.12 }, // town lanes, two stops
+  { until: 200, road: 1.5, engineHz: 58, engine: 0.1 }, // estate highway
+  { until: 225, road: 2.6, engineHz: 40, engine: 0.15 }, // rough farm track
+  { until: 240, road: 0.0, engineHz: 26, engine: 0.08 }, // back in the yard, idling
 ];
-const stops = [[48, 56], [78, 84]];
+const stops = [
+  [48, 56],
+  [78, 84],
+];
 function phaseAt(t) {
   return phases.find((p) => t < p.until) ?? phases[phases.length - 1];
 }
@@ -124,4 +140,6 @@ head.writeUInt16LE(16, 34);
 head.write("data", 36);
 head.writeUInt32LE(data.length, 40);
 writeFileSync("samples/marlow-uv3-ride.wav", Buffer.concat([head, data]));
-console.log(`wrote samples/marlow-uv3-ride.wav: ${n} frames x 4 channels at ${fs} Hz (seat x, y, z; floor z), 16-bit, full scale ${fullScale} m/s^2`);
+console.log(
+  `wrote samples/marlow-uv3-ride.wav: ${n} frames x 4 channels at ${fs} Hz (seat x, y, z; floor z), 16-bit, full scale ${fullScale} m/s^2`,
+);

@@ -15,10 +15,50 @@ const runs = [
   ["samples/profiles/hx4-avionics.yaml", "60", "4096", "1", "425", "samples/hx4-dcu-run.wav"],
 ];
 for (const [profile, duration, rate, channels, seed, out] of runs) {
-  execFileSync("node", ["bin/psdgate.js", "synth", "--profile", profile, "--duration", duration, "--rate", rate, "--channels", channels, "--seed", seed, "--out", out, "--force"], { stdio: "inherit" });
+  execFileSync(
+    "node",
+    [
+      "bin/psdgate.js",
+      "synth",
+      "--profile",
+      profile,
+      "--duration",
+      duration,
+      "--rate",
+      rate,
+      "--channels",
+      channels,
+      "--seed",
+      seed,
+      "--out",
+      out,
+      "--force",
+    ],
+    { stdio: "inherit" },
+  );
 }
 // The same test with the blade-pass tones 2 dB low (the drive's sine amplitudes set short): fails, naming each tone.
-execFileSync("node", ["bin/psdgate.js", "synth", "--profile", "samples/profiles/hx4-avionics.yaml", "--duration", "60", "--rate", "4096", "--seed", "426", "--tone-db", "-2", "--out", "samples/hx4-dcu-run-tones-low.wav", "--force"], { stdio: "inherit" });
+execFileSync(
+  "node",
+  [
+    "bin/psdgate.js",
+    "synth",
+    "--profile",
+    "samples/profiles/hx4-avionics.yaml",
+    "--duration",
+    "60",
+    "--rate",
+    "4096",
+    "--seed",
+    "426",
+    "--tone-db",
+    "-2",
+    "--out",
+    "samples/hx4-dcu-run-tones-low.wav",
+    "--force",
+  ],
+  { stdio: "inherit" },
+);
 // The ride recording is not a profile synthesis: its own script models the vehicle (scripts/make-ride-sample.mjs).
 execFileSync("node", ["scripts/make-ride-sample.mjs"], { stdio: "inherit" });
 // Three-channel fixture survey (base, bracket tip, cable clamp) for `psdgate transfer`: its own script.

@@ -57,11 +57,11 @@ const z = background(2601, 0.08);
 const xAxis = background(2602, 0.05);
 // The known events (vertical): time of start, duration, peak, shape.
 const events = [
-  { t: 4.2, T: 0.010, peak: 1.6, shape: "half-sine", what: "floor joint, front wheels" },
-  { t: 5.35, T: 0.010, peak: 1.3, shape: "half-sine", what: "floor joint, rear wheels" },
+  { t: 4.2, T: 0.01, peak: 1.6, shape: "half-sine", what: "floor joint, front wheels" },
+  { t: 5.35, T: 0.01, peak: 1.3, shape: "half-sine", what: "floor joint, rear wheels" },
   { t: 11.8, T: 0.016, peak: 2.4, shape: "sawtooth", what: "dock plate edge" },
   { t: 19.5, T: 0.006, peak: -3.1, shape: "half-sine", what: "pallet set down hard (downward)" },
-  { t: 24.05, T: 0.010, peak: 1.5, shape: "half-sine", what: "floor joint, front wheels" },
+  { t: 24.05, T: 0.01, peak: 1.5, shape: "half-sine", what: "floor joint, front wheels" },
 ];
 for (const e of events) {
   const p = e.shape === "sawtooth" ? (t) => (e.peak * t) / e.T : (t) => e.peak * Math.sin((Math.PI * t) / e.T);

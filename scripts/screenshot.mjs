@@ -5,7 +5,15 @@ import { pathToFileURL } from "node:url";
 const [, , html, png] = process.argv;
 const browser = await chromium.launch({
   executablePath: process.env.CHROMIUM ?? "/usr/bin/chromium",
-  args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+  args: [
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-quic",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+  ],
 });
 const page = await browser.newPage({ viewport: { width: 900, height: 1200 } });
 await page.goto(pathToFileURL(html).href);

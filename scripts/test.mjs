@@ -24,7 +24,8 @@ if (args[0] === "--all") {
   const dir = mkdtempSync(join(tmpdir(), "psdgate-tally-"));
   const env = { ...process.env, PSDGATE_TEST_TALLY: join(dir, "tally") };
   const self = process.argv[1];
-  for (const part of [[], ["--slow"]]) spawnSync(process.execPath, [self, ...part, ...args.slice(1)], { stdio: "inherit", env });
+  for (const part of [[], ["--slow"]])
+    spawnSync(process.execPath, [self, ...part, ...args.slice(1)], { stdio: "inherit", env });
   const total = spawnSync(process.execPath, [self, "--total"], { stdio: "inherit", env });
   rmSync(dir, { recursive: true, force: true });
   process.exit(total.status ?? 1);
@@ -33,12 +34,16 @@ if (args[0] === "--all") {
 if (args[0] === "--total") {
   let parts = [];
   try {
-    parts = readFileSync(tally ?? "", "utf8").split("\n").filter(Boolean).map((l) => JSON.parse(l));
+    parts = readFileSync(tally ?? "", "utf8")
+      .split("\n")
+      .filter(Boolean)
+      .map((l) => JSON.parse(l));
   } catch {
     // No tally: nothing ran, which is a failure.
   }
   const sum = (k) => parts.reduce((t, p) => t + p[k], 0);
-  const failed = sum("failed") + parts.filter((p) => p.status !== 0 && p.failed === 0).length + (parts.length === 0 ? 1 : 0);
+  const failed =
+    sum("failed") + parts.filter((p) => p.status !== 0 && p.failed === 0).length + (parts.length === 0 ? 1 : 0);
   const skipped = sum("skipped");
   console.log(`${sum("passed")} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ""}`);
   process.exit(failed > 0 ? 1 : 0);
@@ -66,7 +71,11 @@ rmSync(report, { force: true });
 // include list (PSDGATE_TEST_INCLUDE), so file filters given after it narrow the slow set rather than add to it.
 // Both go by environment, not as arguments: tests/queue/globalSetup.ts reads file filters from the arguments.
 const env = { ...process.env, [slow ? "PSDGATE_TEST_INCLUDE" : "PSDGATE_TEST_EXCLUDE"]: SLOW_FILES.join(",") };
-const r = spawnSync("npx", ["vitest", "run", "--reporter=default", "--reporter=json", `--outputFile=${report}`, ...rest], { stdio: "inherit", env });
+const r = spawnSync(
+  "npx",
+  ["vitest", "run", "--reporter=default", "--reporter=json", `--outputFile=${report}`, ...rest],
+  { stdio: "inherit", env },
+);
 let j;
 try {
   j = JSON.parse(readFileSync(report, "utf8"));
@@ -83,18 +92,32 @@ finish(j.numPassedTests, j.numFailedTests, (j.numPendingTests ?? 0) + (j.numTodo
 function explainSkipped(j) {
   const byFile = new Map();
   for (const f of j.testResults ?? []) {
-    const n = (f.assertionResults ?? []).filter((a) => a.status === "pending" || a.status === "skipped" || a.status === "todo").length;
+    const n = (f.assertionResults ?? []).filter(
+      (a) => a.status === "pending" || a.status === "skipped" || a.status === "todo",
+    ).length;
     if (n) byFile.set(f.name.replace(process.cwd() + "/", ""), n);
   }
   const has = (cmd) => spawnSync("sh", ["-c", `command -v ${cmd}`]).status === 0;
   const chromium = existsSync(process.env.CHROMIUM ?? "/usr/bin/chromium");
   const pg = has("initdb") || (existsSync("/usr/lib/postgresql") && readdirSync("/usr/lib/postgresql").length > 0);
-  const missing = [...(chromium ? [] : ["chromium"]), ...(has("pdftotext") ? [] : ["poppler-utils"]), ...(pg ? [] : ["postgresql"])];
+  const missing = [
+    ...(chromium ? [] : ["chromium"]),
+    ...(has("pdftotext") ? [] : ["poppler-utils"]),
+    ...(pg ? [] : ["postgresql"]),
+  ];
   console.log("\nSkipped tests (they need system packages this machine lacks):");
   for (const [file, n] of byFile) {
-    const why = /queue/.test(file) ? "PostgreSQL (initdb, pg_ctl)" : /report/.test(file) ? "Chromium (and poppler-utils to read the PDFs back)" : "a system package";
+    const why = /queue/.test(file)
+      ? "PostgreSQL (initdb, pg_ctl)"
+      : /report/.test(file)
+        ? "Chromium (and poppler-utils to read the PDFs back)"
+        : "a system package";
     console.log(`  ${file}: ${n} skipped, needs ${why}`);
   }
-  console.log(missing.length ? `To run them: sudo apt-get install -y ${missing.join(" ")} && npm run test:all` : "To run them: npm run test:all (the packages are present now)");
+  console.log(
+    missing.length
+      ? `To run them: sudo apt-get install -y ${missing.join(" ")} && npm run test:all`
+      : "To run them: npm run test:all (the packages are present now)",
+  );
   console.log("");
 }

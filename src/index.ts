@@ -15,9 +15,7 @@ export {
   accelFactor,
   type AccelUnit,
 } from "./units.js";
-export {
-  VERSION,
-} from "./version.js";
+export { VERSION } from "./version.js";
 export {
   FINDING_CODES,
   type Finding,
@@ -29,15 +27,9 @@ export {
 } from "./report/findingTexts.js";
 
 // Read a recording (and the other inputs: a PSD table, test identity, a service mix)
-export {
-  openTimeHistory,
-} from "./read/openTimeHistory.js";
-export {
-  type CsvReadOptions,
-} from "./read/csvTimeHistory.js";
-export {
-  type ChannelName,
-} from "./read/channelChoice.js";
+export { openTimeHistory } from "./read/openTimeHistory.js";
+export type { CsvReadOptions } from "./read/csvTimeHistory.js";
+export type { ChannelName } from "./read/channelChoice.js";
 export type {
   RecordingInfo,
   ChannelInfo,
@@ -64,32 +56,26 @@ export {
   type RecordingAnalysis,
   type FrameWindow,
 } from "./pass/analyzeRecording.js";
-export {
-  type AnalysisOptions,
-  type PassAccumulator,
+export type {
+  AnalysisOptions,
+  PassAccumulator,
 } from "./pass/analysisOptions.js";
-export {
-  type ResolvedAnalysis,
-  type RecordingOptions,
+export type {
+  ResolvedAnalysis,
+  RecordingOptions,
 } from "./pass/analysisOptions.js";
 export {
   welchPsd,
   bandRms,
   type PsdEstimate,
 } from "./estimate/spectral/psdEstimate.js";
-export {
-  type WelchOptions,
-} from "./estimate/spectral/welchOptions.js";
+export type { WelchOptions } from "./estimate/spectral/welchOptions.js";
 export {
   WINDOW_NAMES,
   type WindowName,
 } from "./estimate/spectral/windows.js";
-export {
-  welchDof,
-} from "./estimate/spectral/welchDof.js";
-export {
-  chiSquareIntervalFactors,
-} from "./estimate/statistics/distributions.js";
+export { welchDof } from "./estimate/spectral/welchDof.js";
+export { chiSquareIntervalFactors } from "./estimate/statistics/distributions.js";
 
 // Check against a test profile; profiles
 export {
@@ -107,18 +93,14 @@ export {
   type TestProfile,
   type ProfileSegment,
 } from "./compare/testProfile.js";
-export {
-  type ToleranceBand,
-} from "./read/profileFile.js";
+export type { ToleranceBand } from "./read/profileFile.js";
 export {
   judgeSpectrum,
   type Verdict,
   type ChannelCompliance,
   type Excursion,
 } from "./compare/complianceCheck.js";
-export {
-  DECISION_RULE,
-} from "./compare/decisionRule.js";
+export { DECISION_RULE } from "./compare/decisionRule.js";
 
 // Ride (ISO 2631-1)
 export {
@@ -156,9 +138,7 @@ export {
   type ResponseSpectra,
   type ResponseComparison,
 } from "./analyses/responseSpectra.js";
-export {
-  milesRms,
-} from "./estimate/response/sdofResponse.js";
+export { milesRms } from "./estimate/response/sdofResponse.js";
 
 // Derive a test profile from field recordings
 export {
@@ -196,31 +176,21 @@ export {
   type SynthOptions,
   type SynthResult,
 } from "./synth/synthesizeProfile.js";
-export {
-  GaussianNoise,
-} from "./synth/gaussianNoise.js";
+export { GaussianNoise } from "./synth/gaussianNoise.js";
 
 // Report writers (text, JSON, CSV, HTML) and the one way to write a file
-export {
-  psdText,
-} from "./report/psdText.js";
+export { psdText } from "./report/psdText.js";
 export {
   psdJson,
   psdCsv,
 } from "./report/psdJson.js";
-export {
-  psdHtml,
-} from "./report/psdHtml.js";
+export { psdHtml } from "./report/psdHtml.js";
 export {
   checkText,
   checkJson,
 } from "./report/checkReport.js";
-export {
-  checkCsv,
-} from "./report/checkCsv.js";
-export {
-  checkHtml,
-} from "./report/htmlReport.js";
+export { checkCsv } from "./report/checkCsv.js";
+export { checkHtml } from "./report/htmlReport.js";
 export {
   profileText,
   profileJson,
@@ -230,47 +200,33 @@ export {
   rideJson,
   rideCsv,
 } from "./report/rideReport.js";
-export {
-  rideHtml,
-} from "./report/rideHtml.js";
+export { rideHtml } from "./report/rideHtml.js";
 export {
   transferText,
   transferJson,
   transferCsv,
 } from "./report/transferReport.js";
-export {
-  transferHtml,
-} from "./report/transferHtml.js";
+export { transferHtml } from "./report/transferHtml.js";
 export {
   responseText,
   responseJson,
   responseCsv,
 } from "./report/responseReport.js";
-export {
-  responseHtml,
-} from "./report/responseHtml.js";
+export { responseHtml } from "./report/responseHtml.js";
 export {
   deriveText,
   deriveJson,
   profileDocumentText,
 } from "./report/deriveReport.js";
-export {
-  deriveHtml,
-} from "./report/deriveHtml.js";
+export { deriveHtml } from "./report/deriveHtml.js";
 export {
   shockText,
   shockJson,
   shockCsv,
 } from "./report/shockReport.js";
-export {
-  shockHtml,
-} from "./report/shockHtml.js";
-export {
-  type ReportContext,
-} from "./report/reportPage.js";
-export {
-  writeAtomic,
-} from "./report/writeAtomic.js";
+export { shockHtml } from "./report/shockHtml.js";
+export type { ReportContext } from "./report/reportPage.js";
+export { writeAtomic } from "./report/writeAtomic.js";
 export {
   createTimeHistoryWriter,
   type TimeHistoryWriter,

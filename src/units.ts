@@ -73,11 +73,19 @@ export function densityAscii(u: AccelUnit): string {
  * Returns undefined for anything else.
  */
 export function parseUnitSpec(text: string): UnitSpec | undefined {
-  let t = text.trim().replace(/\s+/g, " ").replace(/ ?([/^*·.-]) ?/g, "$1");
+  let t = text
+    .trim()
+    .replace(/\s+/g, " ")
+    .replace(/ ?([/^*·.-]) ?/g, "$1");
   if (t === "G" || t === "g" || t === "gn" || t === "g0" || t === "gₙ") return UNIT_SPECS.g;
   if (t === "mg" || t === "mG") return UNIT_SPECS.mg;
   if (t === "µg" || t === "μg" || t === "ug" || t === "µG" || t === "μG" || t === "uG") return UNIT_SPECS.ug;
-  t = t.toLowerCase().replace(/²/g, "2").replace(/\*\*/g, "^").replace(/sec(?![a-z])/g, "s").replace(/\^/g, "");
+  t = t
+    .toLowerCase()
+    .replace(/²/g, "2")
+    .replace(/\*\*/g, "^")
+    .replace(/sec(?![a-z])/g, "s")
+    .replace(/\^/g, "");
   const m = /^(m|mm|cm|in|ft)(?:\/s2|\/s\/s| ?[·*.]? ?s-2)$/.exec(t);
   return m ? UNIT_SPECS[`${m[1]}/s2`] : undefined;
 }
@@ -104,7 +112,9 @@ export function parseVoltUnit(text: string): number | undefined {
  * unit, and that base unit. Returns undefined when the text is not one.
  */
 export function parseSensitivity(text: string): { voltsPerUnit: number; unit: UnitSpec; text: string } | undefined {
-  const m = /^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(µV|μV|uV|mV|V)\s*\/\s*(?:\((.+)\)|(.+?))\s*$/.exec(text);
+  const m = /^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(µV|μV|uV|mV|V)\s*\/\s*(?:\((.+)\)|(.+?))\s*$/.exec(
+    text,
+  );
   if (!m) return undefined;
   const v = Number(m[1]);
   const unit = parseUnitSpec(m[3] ?? m[4]!);

@@ -6,16 +6,30 @@ function rows(): { concept: string; file: string; names: string[] }[] {
   const md = readFileSync("DEVELOPERS.md", "utf8");
   const at = md.indexOf("## Where to find");
   const section = md.slice(at, md.indexOf("\n## ", at + 1));
-  return section.split("\n").filter((l) => /^\| .*`/.test(l)).map((l) => {
-    const cells = l.replace(/\\\|/g, "¦").split("|").slice(1, -1).map((c) => c.trim());
-    return { concept: cells[0]!, file: cells[1]!.replace(/`/g, ""), names: [...cells[2]!.matchAll(/`([A-Za-z_$][\w$]*)`/g)].map((m) => m[1]!) };
-  });
+  return section
+    .split("\n")
+    .filter((l) => /^\| .*`/.test(l))
+    .map((l) => {
+      const cells = l
+        .replace(/\\\|/g, "¦")
+        .split("|")
+        .slice(1, -1)
+        .map((c) => c.trim());
+      return {
+        concept: cells[0]!,
+        file: cells[1]!.replace(/`/g, ""),
+        names: [...cells[2]!.matchAll(/`([A-Za-z_$][\w$]*)`/g)].map((m) => m[1]!),
+      };
+    });
 }
 
-describe("DEVELOPERS.md's \"Where to find\" points at what is there", () => {
+describe('DEVELOPERS.md\'s "Where to find" points at what is there', () => {
   it("names Welch's density, the chi-square bound, Wk, Miles' equation and the Bonferroni levels", () => {
-    const concepts = rows().map((r) => r.concept).join("\n");
-    for (const c of [/one-sided density/, /chi-square bound/, /Wk/, /Miles' equation/, /Bonferroni/]) expect(concepts).toMatch(c);
+    const concepts = rows()
+      .map((r) => r.concept)
+      .join("\n");
+    for (const c of [/one-sided density/, /chi-square bound/, /Wk/, /Miles' equation/, /Bonferroni/])
+      expect(concepts).toMatch(c);
   });
   it("each file exists and declares each name listed beside it", () => {
     const wrong: string[] = [];
@@ -26,7 +40,8 @@ describe("DEVELOPERS.md's \"Where to find\" points at what is there", () => {
       }
       const text = readFileSync(r.file, "utf8");
       for (const n of r.names) {
-        if (!new RegExp(`export (async )?(function|const|class|interface|type) ${n}\\b`).test(text)) wrong.push(`${r.file}: ${n}`);
+        if (!new RegExp(`export (async )?(function|const|class|interface|type) ${n}\\b`).test(text))
+          wrong.push(`${r.file}: ${n}`);
       }
     }
     expect(wrong).toEqual([]);

@@ -28,7 +28,16 @@ describe("docs match what the commands print", () => {
   it("README's verify example states the number count verify prints", async () => {
     const stated = /ok {4}rerun {5}(\d+) numbers and the verdict FAIL/.exec(readFileSync("README.md", "utf8"))![1];
     const report = join(tempDir(), "r.html");
-    await cli("check", "samples/kb210-run-resonance.wav", "--profile", "samples/profiles/kb210-controller.json", "--meta", "samples/kb210-run-meta.yaml", "--report", report);
+    await cli(
+      "check",
+      "samples/kb210-run-resonance.wav",
+      "--profile",
+      "samples/profiles/kb210-controller.json",
+      "--meta",
+      "samples/kb210-run-meta.yaml",
+      "--report",
+      report,
+    );
     const v = await cli("verify", report);
     expect(v.stdout).toContain(`ok    rerun     ${stated} numbers and the verdict FAIL reproduced`);
   });
@@ -41,9 +50,13 @@ describe("the rule's wording matches DECISION_RULE", () => {
 
   it(`the levels sentence states the true split: single lines ${pct(SINGLE_LINES_SHARE)}, stretches ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)}, RMS ${pct(DECISION_RULE.rms)}`, () => {
     expect(SINGLE_LINES_SHARE).toBeCloseTo(DECISION_RULE.lines * (1 - DECISION_RULE.stretchShare), 15);
-    expect(RULE_LEVELS).toContain(`the single-line tests get ${pct(SINGLE_LINES_SHARE)} and the stretches ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)}`);
+    expect(RULE_LEVELS).toContain(
+      `the single-line tests get ${pct(SINGLE_LINES_SHARE)} and the stretches ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)}`,
+    );
     expect(RULE_LEVELS).toContain(`the RMS ${pct(DECISION_RULE.rms)}`);
-    expect(RULE_LEVELS).toContain(`take ${pct(DECISION_RULE.outer)} and sine tones ${pct(DECISION_RULE.tones)} from the lines' ${pct(DECISION_RULE.lines)}`);
+    expect(RULE_LEVELS).toContain(
+      `take ${pct(DECISION_RULE.outer)} and sine tones ${pct(DECISION_RULE.tones)} from the lines' ${pct(DECISION_RULE.lines)}`,
+    );
     expect(RULE_SUMMARY).toContain(RULE_LEVELS);
   });
 
@@ -51,14 +64,20 @@ describe("the rule's wording matches DECISION_RULE", () => {
     const readme = readFileSync("README.md", "utf8");
     expect(readme).toContain(`RULE: ${RULE_SUMMARY}\n`);
     expect(readme.split(RULE_LEVELS).length - 1).toBe(2);
-    expect(readme).toContain(`each single-line test is at ${pct(SINGLE_LINES_SHARE)} divided by twice the number of lines (Bonferroni)`);
+    expect(readme).toContain(
+      `each single-line test is at ${pct(SINGLE_LINES_SHARE)} divided by twice the number of lines (Bonferroni)`,
+    );
     expect(readme).toContain(`the stretches sharing ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)}`);
   });
 
   it("DEVELOPERS.md's list of the tests states the same levels", () => {
     const dev = flat(readFileSync("DEVELOPERS.md", "utf8"));
-    expect(dev).toContain(`- ${pct(SINGLE_LINES_SHARE)} over the 2m single-line tests (a = ${Number(SINGLE_LINES_SHARE.toPrecision(3))} / 2m;`);
-    expect(dev).toContain(`- ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)} over stretches of 4, 16 and 64 neighbouring lines`);
+    expect(dev).toContain(
+      `- ${pct(SINGLE_LINES_SHARE)} over the 2m single-line tests (a = ${Number(SINGLE_LINES_SHARE.toPrecision(3))} / 2m;`,
+    );
+    expect(dev).toContain(
+      `- ${pct(DECISION_RULE.lines * DECISION_RULE.stretchShare)} over stretches of 4, 16 and 64 neighbouring lines`,
+    );
     expect(dev).toContain(`- ${pct(DECISION_RULE.rms)} for the RMS over the range`);
     expect(dev).toContain(`- ${pct(DECISION_RULE.outer)} (taken from the lines' share) for outer limits`);
   });
@@ -82,7 +101,11 @@ describe("comments point only inside the repository (issue #23)", () => {
   it("no file in src/, tests/, README.md or DEVELOPERS.md names a path outside the repository", () => {
     // Built from parts so that this file does not name them itself.
     const outside = new RegExp(["\\.\\./", "shared", "|", "/", "work/"].join(""));
-    const found = files.flatMap((f) => readFileSync(f, "utf8").split("\n").flatMap((l, i) => (outside.test(l) ? [`${f}:${i + 1} ${l.trim()}`] : [])));
+    const found = files.flatMap((f) =>
+      readFileSync(f, "utf8")
+        .split("\n")
+        .flatMap((l, i) => (outside.test(l) ? [`${f}:${i + 1} ${l.trim()}`] : [])),
+    );
     expect(found).toEqual([]);
   });
   it("every docs/REFERENCES.md section a comment names is on the page", () => {

@@ -10,7 +10,13 @@ import { wavBytes } from "./wavBytes.js";
 export const FIELD_RATE_HZ = 2048;
 export const FIELD_LENGTH = 1 << 17;
 
-export function writeFieldRecord(dir: string, name: string, level: (f: number) => number, seed: number, length = FIELD_LENGTH): string {
+export function writeFieldRecord(
+  dir: string,
+  name: string,
+  level: (f: number) => number,
+  seed: number,
+  length = FIELD_LENGTH,
+): string {
   const x = shapedRecord(level, FIELD_RATE_HZ, length, seed);
   const file = join(dir, name);
   writeFileSync(file, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));

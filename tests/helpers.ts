@@ -8,13 +8,22 @@ export interface Reference {
   source: string;
   sampleRateHz: number;
   signal: number[];
-  welch: { window: string; segmentLength: number; overlap: number; detrend: string; frequencyHz: number[]; psd: number[] }[];
+  welch: {
+    window: string;
+    segmentLength: number;
+    overlap: number;
+    detrend: string;
+    frequencyHz: number[];
+    psd: number[];
+  }[];
   windows: Record<string, { coherentGain: number; enbwBins: number }>;
   chi2: { dof: number; p: number; quantile: number }[];
   moments: Record<string, number>;
 }
 
-export const scipyReference: Reference = JSON.parse(readFileSync(new URL("./fixtures/scipy-reference.json", import.meta.url), "utf8"));
+export const scipyReference: Reference = JSON.parse(
+  readFileSync(new URL("./fixtures/scipy-reference.json", import.meta.url), "utf8"),
+);
 
 export function tempDir(): string {
   return mkdtempSync(join(tmpdir(), "psdgate-test-"));

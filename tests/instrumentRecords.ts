@@ -44,7 +44,9 @@ export function stampedCsvText(o: StampedCsv): string {
     lines.push(["time", ...o.channels.map((c) => c.name)].join(","));
     lines.push([o.timeUnit, ...o.channels.map((c) => c.unit ?? "")].join(","));
   } else {
-    lines.push([`time [${o.timeUnit}]`, ...o.channels.map((c) => (c.unit ? `${c.name} [${c.unit}]` : c.name))].join(","));
+    lines.push(
+      [`time [${o.timeUnit}]`, ...o.channels.map((c) => (c.unit ? `${c.name} [${c.unit}]` : c.name))].join(","),
+    );
   }
   for (let i = 0; i < n; i++) {
     let row = printStamp((start + i / o.sampleRateHz) * k, o.format);
@@ -64,7 +66,8 @@ export function writeStampedCsv(dir: string, name: string, o: StampedCsv): strin
 export function writeFloatWav(dir: string, name: string, channels: Float64Array[], sampleRateHz: number): string {
   const n = channels[0]!.length;
   const samples: number[] = new Array(n * channels.length);
-  for (let i = 0; i < n; i++) for (let c = 0; c < channels.length; c++) samples[i * channels.length + c] = channels[c]![i]!;
+  for (let i = 0; i < n; i++)
+    for (let c = 0; c < channels.length; c++) samples[i * channels.length + c] = channels[c]![i]!;
   const file = join(dir, name);
   writeFileSync(file, wavBytes({ tag: 3, bits: 64, channels: channels.length, sampleRate: sampleRateHz, samples }));
   return file;
@@ -75,17 +78,35 @@ export function writeFloatWav(dir: string, name: string, channels: Float64Array[
  * With `calibration`, psdgate's `pgcl` chunk says what full scale is ({"unit", "scale"}); without, the
  * file holds bare codes, as most recorders write them.
  */
-export function writeInt16Wav(dir: string, name: string, channels: Float64Array[], sampleRateHz: number, fullScale: number, calibration?: { unit: string; scale: number }): string {
+export function writeInt16Wav(
+  dir: string,
+  name: string,
+  channels: Float64Array[],
+  sampleRateHz: number,
+  fullScale: number,
+  calibration?: { unit: string; scale: number },
+): string {
   const n = channels[0]!.length;
   const samples: number[] = new Array(n * channels.length);
   for (let i = 0; i < n; i++) {
-    for (let c = 0; c < channels.length; c++) samples[i * channels.length + c] = Math.max(-32768, Math.min(32767, Math.round((channels[c]![i]! / fullScale) * 32768)));
+    for (let c = 0; c < channels.length; c++)
+      samples[i * channels.length + c] = Math.max(
+        -32768,
+        Math.min(32767, Math.round((channels[c]![i]! / fullScale) * 32768)),
+      );
   }
   const file = join(dir, name);
-  writeFileSync(file, wavBytes({
-    tag: 1, bits: 16, channels: channels.length, sampleRate: sampleRateHz, samples,
-    extraChunks: calibration ? [["pgcl", Buffer.from(JSON.stringify(calibration))]] : undefined,
-  }));
+  writeFileSync(
+    file,
+    wavBytes({
+      tag: 1,
+      bits: 16,
+      channels: channels.length,
+      sampleRate: sampleRateHz,
+      samples,
+      extraChunks: calibration ? [["pgcl", Buffer.from(JSON.stringify(calibration))]] : undefined,
+    }),
+  );
   return file;
 }
 

@@ -10,7 +10,15 @@ import { InputError } from "../src/errors.js";
 import { roundRate } from "../src/read/roundRate.js";
 import { loadSpectrumSource, responseSpectra } from "../src/analyses/responseSpectra.js";
 import { cli, gaussian, tempDir } from "./helpers.js";
-import { onGravity, printStamp, settlingStart, writeFloatWav, writeInt16Wav, writeStampedCsv, type StampFormat } from "./instrumentRecords.js";
+import {
+  onGravity,
+  printStamp,
+  settlingStart,
+  writeFloatWav,
+  writeInt16Wav,
+  writeStampedCsv,
+  type StampFormat,
+} from "./instrumentRecords.js";
 import { shapedRecord } from "./shapedRecords.js";
 import { findingText } from "../src/report/findingTexts.js";
 
@@ -41,25 +49,55 @@ describe("--from/--to: what depends on the record's length is of the analysed wi
     expect(cut.verdict).toBe("inconclusive");
     const f = cut.channels[0]!.findings.find((x) => x.code === "DURATION_SHORT")!;
     expect(f.values).toEqual({ durationS: 25, requiredDurationS: 40, fromS: 0, toS: 25 });
-    expect(findingText(f)).toBe("the analysed window 0.000 to 25.000 s lasts 25.00 s, shorter than the 40 s the profile requires: it cannot show the whole test");
+    expect(findingText(f)).toBe(
+      "the analysed window 0.000 to 25.000 s lasts 25.00 s, shorter than the 40 s the profile requires: it cannot show the whole test",
+    );
   });
 
   it("the text, JSON and HTML report of check show the window (from, to, length) and judge the duration on it; exit 3", async () => {
     const report = join(dir, "window.html");
-    const r = await cli("check", "samples/kb210-run.wav", "-p", "samples/profiles/kb210-controller.json", "--to", "25", "--report", report);
+    const r = await cli(
+      "check",
+      "samples/kb210-run.wav",
+      "-p",
+      "samples/profiles/kb210-controller.json",
+      "--to",
+      "25",
+      "--report",
+      report,
+    );
     expect(r.code).toBe(3);
     expect(r.stdout).toContain("  window     0.000 to 25.000 s (25.000 s): 128000 samples analysed");
     const html = (await import("node:fs")).readFileSync(report, "utf8");
     expect(html).toContain("0.000 to 25.000 s (25.000 s): 128000 samples analysed");
     expect(html).toMatch(/Duration required.*NOT met by the analysed window's/);
-    const j = JSON.parse((await cli("check", "samples/kb210-run.wav", "-p", "samples/profiles/kb210-controller.json", "--from", "10", "--to", "35", "--json")).stdout);
+    const j = JSON.parse(
+      (
+        await cli(
+          "check",
+          "samples/kb210-run.wav",
+          "-p",
+          "samples/profiles/kb210-controller.json",
+          "--from",
+          "10",
+          "--to",
+          "35",
+          "--json",
+        )
+      ).stdout,
+    );
     expect(j.input.window).toEqual({ fromS: 10, toS: 35, durationS: 25, frames: 128000 });
     expect(j.channels[0].findings.map((x: { code: string }) => x.code)).toContain("DURATION_SHORT");
   });
 
   it("a gravity axis whose sensor settles for 2 s: --from 2 gives exactly the PSD of the record without those 2 s (psd and check)", async () => {
     const fs = 2048;
-    const x = settlingStart(onGravity(shapedRecord((f) => (f >= 10 && f <= 800 ? 0.002 : 0), fs, 1 << 15, 41)), fs, 2, 3);
+    const x = settlingStart(
+      onGravity(shapedRecord((f) => (f >= 10 && f <= 800 ? 0.002 : 0), fs, 1 << 15, 41)),
+      fs,
+      2,
+      3,
+    );
     const full = writeFloatWav(dir, "settling.wav", [x], fs);
     const tail = writeFloatWav(dir, "settled.wav", [x.subarray(2 * fs)], fs);
     const a = await analyzeRecording(full, { segmentLength: 1024, fromS: 2 });
@@ -83,7 +121,13 @@ describe("--from/--to: what depends on the record's length is of the analysed wi
     const tip = base.map((v, i) => 0.5 * v + 0.3 * (i > 0 ? base[i - 1]! : 0));
     const full = writeFloatWav(dir, "pair.wav", [base, tip], fs);
     const cut = writeFloatWav(dir, "pair-cut.wav", [base.subarray(3 * fs, 11 * fs), tip.subarray(3 * fs, 11 * fs)], fs);
-    const a = await analyzeTransfer(full, { inputChannel: "1", outputChannels: ["2"], segmentLength: 1024, fromS: 3, toS: 11 });
+    const a = await analyzeTransfer(full, {
+      inputChannel: "1",
+      outputChannels: ["2"],
+      segmentLength: 1024,
+      fromS: 3,
+      toS: 11,
+    });
     const b = await analyzeTransfer(cut, { inputChannel: "1", outputChannels: ["2"], segmentLength: 1024 });
     const whole = await analyzeTransfer(full, { inputChannel: "1", outputChannels: ["2"], segmentLength: 1024 });
     expect(a.window).toEqual({ fromS: 3, toS: 11, durationS: 8, frames: 8 * fs });
@@ -91,13 +135,22 @@ describe("--from/--to: what depends on the record's length is of the analysed wi
     expect(a.averages).toBeLessThan(whole.averages);
     expect(Array.from(a.outputs[0]!.coherence)).toEqual(Array.from(b.outputs[0]!.coherence));
     expect(Array.from(a.reference.psd)).toEqual(Array.from(b.reference.psd));
-    const empty = await inputError(analyzeTransfer(full, { inputChannel: "1", outputChannels: ["2"], segmentLength: 1024, fromS: 30 }));
+    const empty = await inputError(
+      analyzeTransfer(full, { inputChannel: "1", outputChannels: ["2"], segmentLength: 1024, fromS: 30 }),
+    );
     expect(empty.code).toBe("WINDOW_EMPTY");
   });
 
   it("transfer refuses a segment whose spectra exceed the memory limit before it reads a byte", async () => {
     let read = 0;
-    const e = await inputError(analyzeTransfer("samples/quarry-bend-bracket.csv", { inputChannel: "base", outputChannels: ["tip", "clamp"], segmentLength: 1 << 21, onProgress: (b) => (read = b) }));
+    const e = await inputError(
+      analyzeTransfer("samples/quarry-bend-bracket.csv", {
+        inputChannel: "base",
+        outputChannels: ["tip", "clamp"],
+        segmentLength: 1 << 21,
+        onProgress: (b) => (read = b),
+      }),
+    );
     expect(e.code).toBe("ANALYSIS_TOO_LARGE");
     expect(e.message).toContain("received 5 spectra x 2097152");
     expect(read).toBe(0);
@@ -131,28 +184,39 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     ["ms %.3f", "ms", { fixed: 3 }],
     ["s %.6g", "s", { significant: 6 }],
   ];
-  it.each(formats)("stamps in %s at 5120 Hz: exactly 5120 Hz, the WAV's 2048-point segment for 2.5 Hz lines, the WAV's PSD and verdict", async (label, unit, format) => {
-    const csv = writeStampedCsv(dir, `kb-${label.replace(/\W+/g, "_")}.csv`, { channels: [{ name: "a", unit: "g", samples: x }], sampleRateHz: fs, timeUnit: unit, format });
-    const a = await analyzeRecording(csv, { resolutionHz: 2.5 });
-    const b = (await wavCheck).analysis;
-    expect(a.input.sampleRateHz).toBe(5120);
-    expect(a.analysis.reading.designRateHz).toBe(5120);
-    expect(a.settings.segmentLength).toBe(2048);
-    expect(a.channels[0]!.psd.dof).toBe(b.channels[0]!.psd.dof);
-    expect(Array.from(a.channels[0]!.psd.psd)).toEqual(Array.from(b.channels[0]!.psd.psd));
-    const c = await checkRecording(csv, await kb210, { histogram: false });
-    const w = await wavCheck;
-    expect(w.analysis.settings.segmentLength).toBe(2048);
-    expect(c.verdict).toBe(w.verdict);
-    expect(c.channels[0]!.dof.achieved).toBe(w.channels[0]!.dof.achieved);
-  });
+  it.each(formats)(
+    "stamps in %s at 5120 Hz: exactly 5120 Hz, the WAV's 2048-point segment for 2.5 Hz lines, the WAV's PSD and verdict",
+    async (label, unit, format) => {
+      const csv = writeStampedCsv(dir, `kb-${label.replace(/\W+/g, "_")}.csv`, {
+        channels: [{ name: "a", unit: "g", samples: x }],
+        sampleRateHz: fs,
+        timeUnit: unit,
+        format,
+      });
+      const a = await analyzeRecording(csv, { resolutionHz: 2.5 });
+      const b = (await wavCheck).analysis;
+      expect(a.input.sampleRateHz).toBe(5120);
+      expect(a.analysis.reading.designRateHz).toBe(5120);
+      expect(a.settings.segmentLength).toBe(2048);
+      expect(a.channels[0]!.psd.dof).toBe(b.channels[0]!.psd.dof);
+      expect(Array.from(a.channels[0]!.psd.psd)).toEqual(Array.from(b.channels[0]!.psd.psd));
+      const c = await checkRecording(csv, await kb210, { histogram: false });
+      const w = await wavCheck;
+      expect(w.analysis.settings.segmentLength).toBe(2048);
+      expect(c.verdict).toBe(w.verdict);
+      expect(c.channels[0]!.dof.achieved).toBe(w.channels[0]!.dof.achieved);
+    },
+  );
 
   it("a phone at 128 Hz with whole-millisecond epoch stamps (7.8125 ms steps printed 8, 16, 23, …) and gravity on z: 128 Hz and 256-point segments for 0.5 Hz lines", async () => {
     const n = 128 * 60;
     const x = gaussian(n, 64, 0.3);
     const file = join(dir, "phone.csv");
     const rows = ["timestamp_ms,ax,ay,az"];
-    for (let i = 0; i < n; i++) rows.push(`${Math.round(1700000000000 + (i * 1000) / 128)},${x[i]!.toFixed(4)},${(0.5 * x[(i + 7) % n]!).toFixed(4)},${(9.81 + x[(i + 13) % n]!).toFixed(4)}`);
+    for (let i = 0; i < n; i++)
+      rows.push(
+        `${Math.round(1700000000000 + (i * 1000) / 128)},${x[i]!.toFixed(4)},${(0.5 * x[(i + 7) % n]!).toFixed(4)},${(9.81 + x[(i + 13) % n]!).toFixed(4)}`,
+      );
     writeFileSync(file, rows.join("\n") + "\n");
     // `timestamp_ms` is found as the time column, in ms, without options (a phone app's header).
     const a = await analyzeRecording(file, { inputUnits: "m/s2", resolutionHz: 0.5 });
@@ -181,23 +245,41 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
   });
 
   it("`elapsed_s` and `seconds_elapsed` headers are time columns in s; `ax_s` is not", async () => {
-    for (const [name, isTime] of [["elapsed_s", true], ["seconds_elapsed", true], ["ax_s", false]] as const) {
+    for (const [name, isTime] of [
+      ["elapsed_s", true],
+      ["seconds_elapsed", true],
+      ["ax_s", false],
+    ] as const) {
       const file = join(dir, `${name}.csv`);
-      writeFileSync(file, [`${name},az`, ...Array.from({ length: 600 }, (_, i) => `${(i / 200).toFixed(3)},${i % 7}`)].join("\n") + "\n");
+      writeFileSync(
+        file,
+        [`${name},az`, ...Array.from({ length: 600 }, (_, i) => `${(i / 200).toFixed(3)},${i % 7}`)].join("\n") + "\n",
+      );
       if (isTime) expect((await analyzeRecording(file, { spectrum: false })).input.sampleRateHz).toBe(200);
       else expect((await inputError(analyzeRecording(file, { spectrum: false }))).code).toBe("CSV_NO_RATE");
     }
   });
 
   it("a logger at a 300 us period (stamps %.3f ms) gets 1 / 0.0003 s, its round period", async () => {
-    const csv = writeStampedCsv(dir, "period.csv", { channels: [{ name: "a", samples: gaussian(8192, 62) }], sampleRateHz: 1 / 0.0003, timeUnit: "ms", format: { fixed: 3 } });
+    const csv = writeStampedCsv(dir, "period.csv", {
+      channels: [{ name: "a", samples: gaussian(8192, 62) }],
+      sampleRateHz: 1 / 0.0003,
+      timeUnit: "ms",
+      format: { fixed: 3 },
+    });
     const a = await analyzeRecording(csv, { segmentLength: 1024 });
     expect(a.input.sampleRateHz).toBe(1 / 0.0003);
   });
 
   it("a rate that stays non-round (a clock 14 ppm slow, stamps %.6f s) is kept and printed in full", async () => {
     const rate = 5120 * (1 - 14e-6);
-    const csv = writeStampedCsv(dir, "slow.csv", { channels: [{ name: "a", samples: gaussian(1 << 15, 63) }], sampleRateHz: rate, timeUnit: "s", format: { fixed: 6 }, startS: 1234.5 });
+    const csv = writeStampedCsv(dir, "slow.csv", {
+      channels: [{ name: "a", samples: gaussian(1 << 15, 63) }],
+      sampleRateHz: rate,
+      timeUnit: "s",
+      format: { fixed: 6 },
+      startS: 1234.5,
+    });
     const r = await cli("psd", csv, "--json");
     const got = JSON.parse(r.stdout).input.sampleRateHz as number;
     expect(Math.abs(got / rate - 1)).toBeLessThan(1e-7);
@@ -207,10 +289,35 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
   });
 
   it("derive on three 1024 Hz CSVs printed three ways (%.3f ms, %.6g s, %.4f s from 3600 s) is no longer RECORDINGS_UNLIKE: 1 Hz lines on each", async () => {
-    const files = ([[{ fixed: 3 }, "ms", 0], [{ significant: 6 }, "s", 0], [{ fixed: 4 }, "s", 3600.125]] as [StampFormat, "s" | "ms", number][]).map(([format, unit, startS], i) =>
-      writeStampedCsv(dir, `road-${i}.csv`, { channels: [{ name: "z", unit: "g", samples: shapedRecord((f) => (f >= 2 && f <= 400 ? 0.004 * (i + 1) : 0), 1024, 1 << 15, 70 + i) }], sampleRateHz: 1024, timeUnit: unit, format, startS }),
+    const files = (
+      [
+        [{ fixed: 3 }, "ms", 0],
+        [{ significant: 6 }, "s", 0],
+        [{ fixed: 4 }, "s", 3600.125],
+      ] as [StampFormat, "s" | "ms", number][]
+    ).map(([format, unit, startS], i) =>
+      writeStampedCsv(dir, `road-${i}.csv`, {
+        channels: [
+          {
+            name: "z",
+            unit: "g",
+            samples: shapedRecord((f) => (f >= 2 && f <= 400 ? 0.004 * (i + 1) : 0), 1024, 1 << 15, 70 + i),
+          },
+        ],
+        sampleRateHz: 1024,
+        timeUnit: unit,
+        format,
+        startS,
+      }),
     );
-    const r = await deriveProfile({ ...plainInputs(files, 100 * 3600), testDurationS: 3600, fminHz: 5, fmaxHz: 300, version: "test", created: new Date(0) });
+    const r = await deriveProfile({
+      ...plainInputs(files, 100 * 3600),
+      testDurationS: 3600,
+      fminHz: 5,
+      fmaxHz: 300,
+      version: "test",
+      created: new Date(0),
+    });
     expect(r.recordings.map((x) => x.sampleRateHz)).toEqual([1024, 1024, 1024]);
     expect(r.document.resolutionHz).toBe(1);
   });
@@ -226,19 +333,33 @@ describe("units rows", () => {
   it("`ms,gee` is UNIT_UNKNOWN at line 2, column 2, naming the text, with or without --rate; never read as g", async () => {
     const x = gaussian(4096, 81);
     const file = join(dir, "gee.csv");
-    writeFileSync(file, ["time,accel", "ms,gee", ...Array.from(x, (v, i) => `${printStamp((i * 1000) / 1024, { fixed: 3 })},${v}`)].join("\n") + "\n");
+    writeFileSync(
+      file,
+      ["time,accel", "ms,gee", ...Array.from(x, (v, i) => `${printStamp((i * 1000) / 1024, { fixed: 3 })},${v}`)].join(
+        "\n",
+      ) + "\n",
+    );
     for (const extra of [[], ["--rate", "1024"]]) {
       const r = await cli("psd", file, ...extra);
       expect(r.code).toBe(2);
       expect(r.stdout).toBe("");
       expect(r.stderr.trim().split("\n")).toHaveLength(1);
-      expect(r.stderr).toMatch(/gee\.csv:2:2 \(accel\): expected an acceleration unit .* received "gee" \[UNIT_UNKNOWN\]/);
+      expect(r.stderr).toMatch(
+        /gee\.csv:2:2 \(accel\): expected an acceleration unit .* received "gee" \[UNIT_UNKNOWN\]/,
+      );
     }
   });
 
   it("a header `sec,ch1` under a logger's preamble line stays a header (its `sec` is the time column), not a units row", async () => {
     const file = join(dir, "preamble.csv");
-    writeFileSync(file, ["Device,KX9", "sec,ch1", ...Array.from({ length: 2048 }, (_, i) => `${(i / 1000).toFixed(3)},${Math.sin(i)}`)].join("\n") + "\n");
+    writeFileSync(
+      file,
+      [
+        "Device,KX9",
+        "sec,ch1",
+        ...Array.from({ length: 2048 }, (_, i) => `${(i / 1000).toFixed(3)},${Math.sin(i)}`),
+      ].join("\n") + "\n",
+    );
     const a = await analyzeRecording(file, { segmentLength: 256 });
     expect(a.analysis.reading.dialect).toMatchObject({ timeColumn: "sec", unitsRow: false, preambleLines: 1 });
     expect(a.input.sampleRateHz).toBe(1000);
@@ -247,7 +368,17 @@ describe("units rows", () => {
 
   it("an m/s2 column beside an unknown one is read in m/s2 when only it is chosen", async () => {
     const file = join(dir, "mixed.csv");
-    writeFileSync(file, ["time,x,y", "s,gee,m/s2", ...Array.from({ length: 2048 }, (_, i) => `${(i / 1024).toFixed(6)},1,${8.5 * Math.SQRT2 * Math.sin((2 * Math.PI * 50 * i) / 1024)}`)].join("\n") + "\n");
+    writeFileSync(
+      file,
+      [
+        "time,x,y",
+        "s,gee,m/s2",
+        ...Array.from(
+          { length: 2048 },
+          (_, i) => `${(i / 1024).toFixed(6)},1,${8.5 * Math.SQRT2 * Math.sin((2 * Math.PI * 50 * i) / 1024)}`,
+        ),
+      ].join("\n") + "\n",
+    );
     const a = await analyzeRecording(file, { channels: ["y"], segmentLength: 1024 });
     expect(a.channels[0]!.units).toBe("m/s2");
     expect(a.channels[0]!.stats.rms).toBeCloseTo(8.5, 3);
@@ -256,8 +387,18 @@ describe("units rows", () => {
 
   it("a units row with every unit psdgate knows reads each column in its own unit (exact factors: NIST SP 811, g_n = 9.80665)", async () => {
     const units: [string, number, "g" | "m/s2"][] = [
-      ["g", 1, "g"], ["mg", 1e-3, "g"], ["ug", 1e-6, "g"], ["µg", 1e-6, "g"], ["m/s2", 1, "m/s2"], ["m/s^2", 1, "m/s2"], ["m/s**2", 1, "m/s2"], ["m/s²", 1, "m/s2"],
-      ["mm/s2", 1e-3, "m/s2"], ["cm/s2", 1e-2, "m/s2"], ["in/s2", 0.0254, "m/s2"], ["ft/s2", 0.3048, "m/s2"], // NIST SP 811, Appendix B
+      ["g", 1, "g"],
+      ["mg", 1e-3, "g"],
+      ["ug", 1e-6, "g"],
+      ["µg", 1e-6, "g"],
+      ["m/s2", 1, "m/s2"],
+      ["m/s^2", 1, "m/s2"],
+      ["m/s**2", 1, "m/s2"],
+      ["m/s²", 1, "m/s2"],
+      ["mm/s2", 1e-3, "m/s2"],
+      ["cm/s2", 1e-2, "m/s2"],
+      ["in/s2", 0.0254, "m/s2"],
+      ["ft/s2", 0.3048, "m/s2"], // NIST SP 811, Appendix B
     ];
     const file = join(dir, "units.csv");
     const rows = ["time," + units.map((_, i) => `a${i}`).join(","), "s," + units.map((u) => u[0]).join(",")];
@@ -286,17 +427,26 @@ describe("integer WAVs with and without calibration", () => {
     expect(a.channels[0]!.reading.fullScaleAssumed).toBe(true);
     expect(b.channels[0]!.reading.fullScaleAssumed).toBe(false);
     expect(a.channels[0]!.stats.rms * 16).toBeCloseTo(b.channels[0]!.stats.rms, 12);
-    for (const argv of [["psd", bare], ["inspect", bare], ["check", bare, "-p", "samples/profiles/kb210-controller.json"], ["respond", bare, "--fn", "20:200", "--q", "10"]]) {
+    for (const argv of [
+      ["psd", bare],
+      ["inspect", bare],
+      ["check", bare, "-p", "samples/profiles/kb210-controller.json"],
+      ["respond", bare, "--fn", "20:200", "--q", "10"],
+    ]) {
       expect((await cli(...argv)).stdout).toContain(line);
     }
     const two = writeInt16Wav(dir, "bare2.wav", [x, x.map((v) => 0.5 * v)], fs, 16);
-    expect((await cli("transfer", two, "--in", "1", "--output-channel", "2", "--segment", "1024")).stdout).toContain(`  reading    "ch1", "ch2": integer WAV codes with no calibration, read as ±1 g full scale`);
+    expect((await cli("transfer", two, "--in", "1", "--output-channel", "2", "--segment", "1024")).stdout).toContain(
+      `  reading    "ch1", "ch2": integer WAV codes with no calibration, read as ±1 g full scale`,
+    );
   });
 
   it("a batch of several recordings says it under its summary table, for the uncalibrated file only", async () => {
     for (const cmd of [["psd"], ["check", "-p", "samples/profiles/kb210-controller.json"]]) {
       const out = (await cli(cmd[0]!, bare, calibrated, ...cmd.slice(1))).stdout;
-      expect(out).toContain(`  reading    ${bare}: "ch1": integer WAV codes with no calibration, read as ±1 g full scale`);
+      expect(out).toContain(
+        `  reading    ${bare}: "ch1": integer WAV codes with no calibration, read as ±1 g full scale`,
+      );
       expect(out).not.toContain(`${calibrated}: "ch1"`);
     }
   });
@@ -316,12 +466,28 @@ describe("integer WAVs with and without calibration", () => {
 describe("a profile is judged on the window of a record that holds the whole test elsewhere", () => {
   it("a 16 s record against a 15 s profile: the whole record meets the duration, --from 4 does not", async () => {
     const fs = 2048;
-    const profile = parseProfile(JSON.stringify({
-      title: "flat", units: "g2/Hz", points: [{ hz: 20, level: 0.01 }, { hz: 800, level: 0.01 }], durationS: 15, resolutionHz: 4,
-      tolerance: { bands: [{ fromHz: 20, toHz: 800, upperDb: 3, lowerDb: 3 }], rmsDb: 1 },
-    }), "flat.json");
-    const file = writeFloatWav(dir, "sixteen.wav", [shapedRecord((f) => (f >= 20 && f <= 800 ? 0.01 : 0), fs, 1 << 15, 95)], fs);
-    const codes = async (o: { fromS?: number }) => (await checkRecording(file, profile, { histogram: false, ...o })).channels[0]!.findings.map((f) => f.code);
+    const profile = parseProfile(
+      JSON.stringify({
+        title: "flat",
+        units: "g2/Hz",
+        points: [
+          { hz: 20, level: 0.01 },
+          { hz: 800, level: 0.01 },
+        ],
+        durationS: 15,
+        resolutionHz: 4,
+        tolerance: { bands: [{ fromHz: 20, toHz: 800, upperDb: 3, lowerDb: 3 }], rmsDb: 1 },
+      }),
+      "flat.json",
+    );
+    const file = writeFloatWav(
+      dir,
+      "sixteen.wav",
+      [shapedRecord((f) => (f >= 20 && f <= 800 ? 0.01 : 0), fs, 1 << 15, 95)],
+      fs,
+    );
+    const codes = async (o: { fromS?: number }) =>
+      (await checkRecording(file, profile, { histogram: false, ...o })).channels[0]!.findings.map((f) => f.code);
     expect(await codes({})).not.toContain("DURATION_SHORT");
     expect(await codes({ fromS: 4 })).toContain("DURATION_SHORT");
   });

@@ -12,7 +12,18 @@ import { describe, expect, it } from "vitest";
  * - no module is on a circle of imports;
  * - node:fs only in read/ (the one way in for files), the two output writers, cli/ and queue/.
  */
-const LAYERS = ["read", "condition", "estimate", "weight", "compare", "synth", "pass", "analyses", "report", "verify"] as const;
+const LAYERS = [
+  "read",
+  "condition",
+  "estimate",
+  "weight",
+  "compare",
+  "synth",
+  "pass",
+  "analyses",
+  "report",
+  "verify",
+] as const;
 const BASE = new Set(["errors.ts", "units.ts", "version.ts", "findings.ts", "threadEnd.ts", "types"]);
 const ROOT_FILES = new Set([...BASE, "index.ts"].filter((f) => f.endsWith(".ts")));
 const EDGES = new Set(["cli", "queue"]);
@@ -25,19 +36,28 @@ function files(dir: string): string[] {
   });
 }
 
-type Place = { kind: "layer"; rank: number; name: string } | { kind: "base" } | { kind: "index" } | { kind: "edge" } | { kind: "unknown"; name: string };
+type Place =
+  | { kind: "layer"; rank: number; name: string }
+  | { kind: "base" }
+  | { kind: "index" }
+  | { kind: "edge" }
+  | { kind: "unknown"; name: string };
 
 function placeOf(file: string): Place {
   const rel = relative(SRC, file).split("/");
   const top = rel[0]!;
-  if (rel.length === 1) return top === "index.ts" ? { kind: "index" } : BASE.has(top) ? { kind: "base" } : { kind: "unknown", name: top };
+  if (rel.length === 1)
+    return top === "index.ts" ? { kind: "index" } : BASE.has(top) ? { kind: "base" } : { kind: "unknown", name: top };
   if (BASE.has(top)) return { kind: "base" };
   if (EDGES.has(top)) return { kind: "edge" };
   const rank = (LAYERS as readonly string[]).indexOf(top);
   return rank >= 0 ? { kind: "layer", rank, name: top } : { kind: "unknown", name: top };
 }
 
-interface Edge { from: string; to: string }
+interface Edge {
+  from: string;
+  to: string;
+}
 
 function edges(): Edge[] {
   const out: Edge[] = [];
@@ -97,7 +117,11 @@ describe("layering of src/ (DEVELOPERS.md, Layout)", () => {
     const root = readdirSync(SRC).filter((f) => statSync(join(SRC, f)).isFile());
     expect(root.filter((f) => !ROOT_FILES.has(f))).toEqual([]);
     expect(root.length).toBeLessThanOrEqual(6);
-    expect(files(SRC).map(placeOf).filter((p) => p.kind === "unknown")).toEqual([]);
+    expect(
+      files(SRC)
+        .map(placeOf)
+        .filter((p) => p.kind === "unknown"),
+    ).toEqual([]);
   });
   it("a layer imports only from itself, earlier layers and the base modules; the base modules import only each other", () => {
     const bad: string[] = [];
@@ -112,7 +136,9 @@ describe("layering of src/ (DEVELOPERS.md, Layout)", () => {
     expect(bad).toEqual([]);
   });
   it("only the edges (cli/, queue/) import the edges, and index.ts (the library) does not", () => {
-    const bad = all.filter((e) => placeOf(e.to).kind === "edge" && placeOf(e.from).kind !== "edge").map((e) => relative(SRC, e.from));
+    const bad = all
+      .filter((e) => placeOf(e.to).kind === "edge" && placeOf(e.from).kind !== "edge")
+      .map((e) => relative(SRC, e.from));
     expect(bad).toEqual([]);
   });
   it("no module is on a circle of imports", () => {
@@ -123,8 +149,17 @@ describe("layering of src/ (DEVELOPERS.md, Layout)", () => {
     const bad = files(SRC).filter((f) => {
       const rel = relative(SRC, f);
       // version.ts reads the package's own package.json once at load: the one base module allowed to.
-      if (rel.startsWith("read/") || rel.startsWith("cli/") || rel.startsWith("queue/") || writers.has(rel) || rel === "version.ts") return false;
-      return /from\s+["']node:fs(\/promises)?["']|import\(\s*["']node:fs(\/promises)?["']\s*\)|require\(\s*["'](node:)?fs/.test(readFileSync(f, "utf8"));
+      if (
+        rel.startsWith("read/") ||
+        rel.startsWith("cli/") ||
+        rel.startsWith("queue/") ||
+        writers.has(rel) ||
+        rel === "version.ts"
+      )
+        return false;
+      return /from\s+["']node:fs(\/promises)?["']|import\(\s*["']node:fs(\/promises)?["']\s*\)|require\(\s*["'](node:)?fs/.test(
+        readFileSync(f, "utf8"),
+      );
     });
     expect(bad.map((f) => relative(SRC, f))).toEqual([]);
   });

@@ -8,7 +8,12 @@ import { gaussian } from "./helpers.js";
  * result is a stationary Gaussian record (circular over its length) whose PSD at every fine bin is G.
  * G = 0 outside the function's support (a drive that stops at the profile's ends).
  */
-export function shapedRecord(level: (fHz: number) => number, sampleRateHz: number, length: number, seed: number): Float64Array {
+export function shapedRecord(
+  level: (fHz: number) => number,
+  sampleRateHz: number,
+  length: number,
+  seed: number,
+): Float64Array {
   return recordShaper(level, sampleRateHz, length)(seed);
 }
 
@@ -17,7 +22,11 @@ export function shapedRecord(level: (fHz: number) => number, sampleRateHz: numbe
  * (a Monte Carlo loop spent more time on them and on G(f) than on the transforms). Same bytes as
  * shapedRecord for the same seed.
  */
-export function recordShaper(level: (fHz: number) => number, sampleRateHz: number, length: number): (seed: number) => Float64Array {
+export function recordShaper(
+  level: (fHz: number) => number,
+  sampleRateHz: number,
+  length: number,
+): (seed: number) => Float64Array {
   const fft = new FFT(length);
   const gain = new Float64Array(length);
   for (let k = 0; k < length; k++) {

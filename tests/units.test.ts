@@ -8,7 +8,22 @@ describe("units", () => {
     expect(FOOT_M).toBe(0.3048);
   });
   it("parseUnitSpec reads every spelling of metres per second squared as m/s2, factor 1", () => {
-    for (const t of ["m/s2", "m/s^2", "m/s**2", "m/s²", "m s-2", "m s^-2", "ms-2", "ms^-2", "m·s-2", "m*s^-2", "m/s/s", "m/sec^2", "M/S2", " m / s ^ 2 "]) {
+    for (const t of [
+      "m/s2",
+      "m/s^2",
+      "m/s**2",
+      "m/s²",
+      "m s-2",
+      "m s^-2",
+      "ms-2",
+      "ms^-2",
+      "m·s-2",
+      "m*s^-2",
+      "m/s/s",
+      "m/sec^2",
+      "M/S2",
+      " m / s ^ 2 ",
+    ]) {
       expect(parseUnitSpec(t), t).toEqual({ name: "m/s2", base: "m/s2", factor: 1 });
     }
   });
@@ -29,6 +44,7 @@ describe("units", () => {
     expect(parseSensitivity("100mV/g")).toMatchObject({ voltsPerUnit: 0.1, unit: { base: "g" } });
     expect(parseSensitivity("10.2 mV/(m/s2)")).toMatchObject({ voltsPerUnit: 10.2 / 1000, unit: { base: "m/s2" } });
     expect(parseSensitivity("1.02V/(m/s^2)")).toMatchObject({ voltsPerUnit: 1.02, unit: { base: "m/s2" } });
-    for (const t of ["100", "100mV", "mV/g", "0mV/g", "-5mV/g", "100mA/g", "100mV/furlong"]) expect(parseSensitivity(t), t).toBeUndefined();
+    for (const t of ["100", "100mV", "mV/g", "0mV/g", "-5mV/g", "100mA/g", "100mV/furlong"])
+      expect(parseSensitivity(t), t).toBeUndefined();
   });
 });

@@ -4,7 +4,12 @@ import { channelConditionings, type ChannelReading } from "../condition/scaleSam
 import { InputError } from "../errors.js";
 import { normalQuantile } from "../estimate/statistics/distributions.js";
 import { CrossSpectrumListener, type CrossSpectrumSums } from "../estimate/spectral/crossSpectrum.js";
-import { findResonances, frequencyResponse, type FrequencyResponse, type Resonance } from "../estimate/spectral/frequencyResponse.js";
+import {
+  findResonances,
+  frequencyResponse,
+  type FrequencyResponse,
+  type Resonance,
+} from "../estimate/spectral/frequencyResponse.js";
 import { frequencyAxis } from "../estimate/spectral/psdEstimate.js";
 import { welchDof } from "../estimate/spectral/welchDof.js";
 import type { ResolvedWelchOptions } from "../estimate/spectral/welchOptions.js";
@@ -48,9 +53,25 @@ export interface TransferOutput extends FrequencyResponse {
 }
 
 export interface TransferAnalysis {
-  input: { file: string; format: "csv" | "wav"; layout: string; sha256: string; bytes: number; sampleRateHz: number; samples: number; durationS: number };
+  input: {
+    file: string;
+    format: "csv" | "wav";
+    layout: string;
+    sha256: string;
+    bytes: number;
+    sampleRateHz: number;
+    samples: number;
+    durationS: number;
+  };
   /** The analysed window (--from/--to), s from the first sample, and its frames; the whole record without them. */
-  window: { fromS: number; toS: number; durationS: number; frames: number; fromClock?: string | undefined; toClock?: string | undefined };
+  window: {
+    fromS: number;
+    toS: number;
+    durationS: number;
+    frames: number;
+    fromClock?: string | undefined;
+    toClock?: string | undefined;
+  };
   settings: ResolvedWelchOptions & { scale: number; goodCoherence: number };
   averages: number;
   skippedSegments: number;
@@ -82,18 +103,38 @@ export async function analyzeTransfer(file: string, options: TransferOptions): P
 function transferChannels(info: RecordingInfo, options: TransferOptions): { select: number[]; outIdx: number[] } {
   const at = (option: string) => ({ option, file: info.file });
   const inIdx = channelIndex(info.channels, options.inputChannel, at("inputChannel"));
-  const outIdx = options.outputChannels !== undefined && options.outputChannels.length > 0
-    ? options.outputChannels.map((w) => channelIndex(info.channels, w, at("outputChannels")))
-    : info.channels.map((_, i) => i).filter((i) => i !== inIdx);
-  if (outIdx.length === 0) throw new InputError("OPTION_MISSING", { file: info.file, option: "outputChannels", expected: "an output channel besides the input (the file has only one channel)", received: "none" });
+  const outIdx =
+    options.outputChannels !== undefined && options.outputChannels.length > 0
+      ? options.outputChannels.map((w) => channelIndex(info.channels, w, at("outputChannels")))
+      : info.channels.map((_, i) => i).filter((i) => i !== inIdx);
+  if (outIdx.length === 0)
+    throw new InputError("OPTION_MISSING", {
+      file: info.file,
+      option: "outputChannels",
+      expected: "an output channel besides the input (the file has only one channel)",
+      received: "none",
+    });
   for (const [k, o] of outIdx.entries()) {
-    if (o === inIdx) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "an output channel other than the input", received: JSON.stringify(options.outputChannels?.[k]) });
-    if (outIdx.indexOf(o) !== k) throw new InputError("OPTION_INVALID", { option: "outputChannels", expected: "each output channel once", received: JSON.stringify(options.outputChannels?.[k]) });
+    if (o === inIdx)
+      throw new InputError("OPTION_INVALID", {
+        option: "outputChannels",
+        expected: "an output channel other than the input",
+        received: JSON.stringify(options.outputChannels?.[k]),
+      });
+    if (outIdx.indexOf(o) !== k)
+      throw new InputError("OPTION_INVALID", {
+        option: "outputChannels",
+        expected: "each output channel once",
+        received: JSON.stringify(options.outputChannels?.[k]),
+      });
   }
   return { select: [inIdx, ...outIdx], outIdx };
 }
 
-export async function analyzeTransferSource(source: TimeHistorySource, options: TransferOptions): Promise<TransferAnalysis> {
+export async function analyzeTransferSource(
+  source: TimeHistorySource,
+  options: TransferOptions,
+): Promise<TransferAnalysis> {
   const { info } = source;
   let cross: CrossSpectrumListener;
   let select: number[];
@@ -101,9 +142,15 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   const good = options.goodCoherence ?? 0.9;
   try {
     select = transferChannels(info, options).select;
-    if (!(good > 0 && good < 1)) throw new InputError("OPTION_INVALID", { option: "goodCoherence", expected: "a coherence between 0 and 1", received: String(good) });
+    if (!(good > 0 && good < 1))
+      throw new InputError("OPTION_INVALID", {
+        option: "goodCoherence",
+        expected: "a coherence between 0 and 1",
+        received: String(good),
+      });
     // Every channel in the input channel's result unit, so H is dimensionless.
-    common = options.resultUnits ?? channelConditionings(info.file, info.channels, [select[0]!], options)[0]!.resultUnit;
+    common =
+      options.resultUnits ?? channelConditionings(info.file, info.channels, [select[0]!], options)[0]!.resultUnit;
     cross = new CrossSpectrumListener(select.length, "outputChannels");
   } catch (e) {
     await source.close?.();
@@ -114,21 +161,38 @@ export async function analyzeTransferSource(source: TimeHistorySource, options: 
   // spectra hold the auto spectra), so `spectrum` is off, and so are the channels' statistics (nothing of
   // transfer's result comes from them; they cost a fifth of its time); the band, peak-hold, histogram unasked.
   const a = await analyzeSource(source, {
-    ...options, channels: select.map((i) => i + 1), resultUnits: common, spectrum: false, statistics: false, histogram: false, forReport: undefined,
-    fminHz: undefined, fmaxHz: undefined, peakHoldS: undefined, stretchS: undefined, accumulators: [cross],
+    ...options,
+    channels: select.map((i) => i + 1),
+    resultUnits: common,
+    spectrum: false,
+    statistics: false,
+    histogram: false,
+    forReport: undefined,
+    fminHz: undefined,
+    fmaxHz: undefined,
+    peakHoldS: undefined,
+    stretchS: undefined,
+    accumulators: [cross],
   });
   const sums = a.extras[0] as ReturnType<CrossSpectrumListener["finish"]>;
   return transferResult(a, sums, common, good);
 }
 
 /** The transfer result from the pass and the cross-spectral sums at the final rate. */
-function transferResult(a: RecordingAnalysis, sums: CrossSpectrumSums & { window: Float64Array }, common: AccelUnit, good: number): TransferAnalysis {
+function transferResult(
+  a: RecordingAnalysis,
+  sums: CrossSpectrumSums & { window: Float64Array },
+  common: AccelUnit,
+  good: number,
+): TransferAnalysis {
   const settings = a.settings;
   const fs = a.input.sampleRateHz;
   const taken = a.window.frames;
   if (sums.segments === 0) {
     throw new InputError("RECORD_TOO_SHORT", {
-      file: a.input.file, expected: `at least one segment of ${settings.segmentLength} samples with finite values in every channel`, received: `${taken} samples${taken !== a.input.samples ? " in the window" : ""}, ${sums.skippedSegments} segment(s) left out`,
+      file: a.input.file,
+      expected: `at least one segment of ${settings.segmentLength} samples with finite values in every channel`,
+      received: `${taken} samples${taken !== a.input.samples ? " in the window" : ""}, ${sums.skippedSegments} segment(s) left out`,
       hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
     });
   }
@@ -138,16 +202,29 @@ function transferResult(a: RecordingAnalysis, sums: CrossSpectrumSums & { window
   const nd = dof / 2;
   const gxx = sums.auto[0]!;
   const warnings: Finding[] = [];
-  if (sums.skippedSegments > 0) warnings.push({ code: "SEGMENTS_LEFT_OUT", values: { segments: sums.skippedSegments } });
-  if (sums.segments < 8) warnings.push({ code: "FEW_AVERAGES_COHERENCE", values: { averages: sums.segments, coherenceBias: 1 / Math.max(1, nd) } });
-  const outputs = a.channels.slice(1).map((ch, j) => transferOutput(ch, sums, j + 1, { frequencyHz, df, nd, good, z: normalQuantile(0.5 + settings.confidence / 2) }));
+  if (sums.skippedSegments > 0)
+    warnings.push({ code: "SEGMENTS_LEFT_OUT", values: { segments: sums.skippedSegments } });
+  if (sums.segments < 8)
+    warnings.push({
+      code: "FEW_AVERAGES_COHERENCE",
+      values: { averages: sums.segments, coherenceBias: 1 / Math.max(1, nd) },
+    });
+  const outputs = a.channels
+    .slice(1)
+    .map((ch, j) =>
+      transferOutput(ch, sums, j + 1, { frequencyHz, df, nd, good, z: normalQuantile(0.5 + settings.confidence / 2) }),
+    );
   const ref = a.channels[0]!;
   const { startTime: _t, preamble: _p, ...input } = a.input;
   return {
     input,
     window: {
-      fromS: a.window.fromS, toS: a.window.toS, durationS: taken / fs, frames: taken,
-      ...(a.window.fromClock !== undefined ? { fromClock: a.window.fromClock } : {}), ...(a.window.toClock !== undefined ? { toClock: a.window.toClock } : {}),
+      fromS: a.window.fromS,
+      toS: a.window.toS,
+      durationS: taken / fs,
+      frames: taken,
+      ...(a.window.fromClock !== undefined ? { fromClock: a.window.fromClock } : {}),
+      ...(a.window.toClock !== undefined ? { toClock: a.window.toClock } : {}),
     },
     settings: { ...settings, resolutionHz: df, goodCoherence: good },
     averages: sums.segments,
@@ -172,7 +249,12 @@ function rmsOf(p: Float64Array, df: number): number {
 }
 
 /** One output's frequency response, its |H1| bounds, how well the input explains it, and its resonances. */
-function transferOutput(ch: { name: string; position: number }, sums: CrossSpectrumSums, c: number, g: { frequencyHz: Float64Array; df: number; nd: number; good: number; z: number }): TransferOutput {
+function transferOutput(
+  ch: { name: string; position: number },
+  sums: CrossSpectrumSums,
+  c: number,
+  g: { frequencyHz: Float64Array; df: number; nd: number; good: number; z: number },
+): TransferOutput {
   const { frequencyHz, good, z } = g;
   const gxx = sums.auto[0]!;
   const gyy = sums.auto[c]!;
@@ -204,18 +286,32 @@ function transferOutput(ch: { name: string; position: number }, sums: CrossSpect
     let e = k;
     let p = 0;
     while (e < gyy.length && r.coherence[e]! < 0.5) p += gyy[e++]!;
-    if (p >= 0.01 * total) lowCoherenceBands.push({ fromHz: frequencyHz[k]!, toHz: frequencyHz[e - 1]!, powerFraction: p / total });
+    if (p >= 0.01 * total)
+      lowCoherenceBands.push({ fromHz: frequencyHz[k]!, toHz: frequencyHz[e - 1]!, powerFraction: p / total });
     k = e;
   }
   lowCoherenceBands.sort((a, b) => b.powerFraction - a.powerFraction);
   return {
     name: ch.name,
     position: ch.position,
-    h1Magnitude: r.h1Magnitude, h1Lower: lower, h1Upper: upper, h2Magnitude: r.h2Magnitude, phaseDeg: r.phaseDeg, coherence: r.coherence,
-    magnitudeError: r.magnitudeError, phaseErrorDeg: r.phaseErrorDeg, coherenceError: r.coherenceError,
-    predictedOutputPsd: r.predictedOutputPsd, measuredOutputPsd: gyy,
-    predictedRms: rmsOf(r.predictedOutputPsd, g.df), measuredRms: rmsOf(gyy, g.df),
-    wellExplained: { lineFraction: goodLines / (gyy.length - 1), powerFraction: total > 0 ? goodMeasured / total : NaN, meanSquareRatio: goodMeasured > 0 ? goodPredicted / goodMeasured : NaN },
+    h1Magnitude: r.h1Magnitude,
+    h1Lower: lower,
+    h1Upper: upper,
+    h2Magnitude: r.h2Magnitude,
+    phaseDeg: r.phaseDeg,
+    coherence: r.coherence,
+    magnitudeError: r.magnitudeError,
+    phaseErrorDeg: r.phaseErrorDeg,
+    coherenceError: r.coherenceError,
+    predictedOutputPsd: r.predictedOutputPsd,
+    measuredOutputPsd: gyy,
+    predictedRms: rmsOf(r.predictedOutputPsd, g.df),
+    measuredRms: rmsOf(gyy, g.df),
+    wellExplained: {
+      lineFraction: goodLines / (gyy.length - 1),
+      powerFraction: total > 0 ? goodMeasured / total : NaN,
+      meanSquareRatio: goodMeasured > 0 ? goodPredicted / goodMeasured : NaN,
+    },
     lowCoherenceBands: lowCoherenceBands.slice(0, 6).sort((a, b) => a.fromHz - b.fromHz),
     resonances: findResonances(frequencyHz, r.h1Magnitude, r.coherence),
   };

@@ -1,7 +1,20 @@
-import { analyzeRecording, type AnalysisOptions, type ChannelAnalysis, type RecordingAnalysis } from "../pass/analyzeRecording.js";
+import {
+  analyzeRecording,
+  type AnalysisOptions,
+  type ChannelAnalysis,
+  type RecordingAnalysis,
+} from "../pass/analyzeRecording.js";
 import { levelGate } from "../compare/levelGate.js";
 import { bandMeanSquare } from "../estimate/spectral/psdEstimate.js";
-import { judgeSpectrum, overallVerdict, withDoubts, withGate, type ChannelCompliance, type SpectrumUnderTest, type Verdict } from "../compare/complianceCheck.js";
+import {
+  judgeSpectrum,
+  overallVerdict,
+  withDoubts,
+  withGate,
+  type ChannelCompliance,
+  type SpectrumUnderTest,
+  type Verdict,
+} from "../compare/complianceCheck.js";
 import { parseProfile, type TestProfile } from "../compare/testProfile.js";
 import { combineFits, judgeMixedMode, toneSearchHalfWidthHz } from "../compare/toneCheck.js";
 import { ToneFitAccumulator, type ToneFit } from "../estimate/spectral/toneEstimate.js";
@@ -64,10 +77,19 @@ export async function loadProfile(file: string): Promise<TestProfile> {
 export function spectrumOf(c: ChannelAnalysis, a: RecordingAnalysis): SpectrumUnderTest {
   const s = a.settings;
   return {
-    name: c.name, frequencyHz: c.psd.frequencyHz, psd: c.psd.psd, dof: c.psd.dof, lineSpacingHz: c.psd.lineSpacingHz,
+    name: c.name,
+    frequencyHz: c.psd.frequencyHz,
+    psd: c.psd.psd,
+    dof: c.psd.dof,
+    lineSpacingHz: c.psd.lineSpacingHz,
     // The duration judged is the analysed window's (--from/--to), not the file's.
-    sampleRateHz: a.input.sampleRateHz, durationS: a.window.frames / a.input.sampleRateHz, window: s.window,
-    analysedWindow: a.window.frames !== a.input.samples ? { fromS: a.window.fromS, toS: a.window.toS } : undefined, segmentLength: s.segmentLength, detrend: s.detrend, confidence: s.confidence,
+    sampleRateHz: a.input.sampleRateHz,
+    durationS: a.window.frames / a.input.sampleRateHz,
+    window: s.window,
+    analysedWindow: a.window.frames !== a.input.samples ? { fromS: a.window.fromS, toS: a.window.toS } : undefined,
+    segmentLength: s.segmentLength,
+    detrend: s.detrend,
+    confidence: s.confidence,
     overlap: s.overlap,
   };
 }
@@ -87,15 +109,25 @@ export function combineSpectra(list: SpectrumUnderTest[], rule: ControlRule): Sp
     psd[i] = v;
   }
   return {
-    ...first, name: `${rule} of ${list.map((s) => s.name).join(", ")}`, psd, dof: Math.min(...list.map((s) => s.dof)),
+    ...first,
+    name: `${rule} of ${list.map((s) => s.name).join(", ")}`,
+    psd,
+    dof: Math.min(...list.map((s) => s.dof)),
     upperSharedBy: rule === "largest" ? list.length : 1,
   };
 }
 
 function controlPositions(a: RecordingAnalysis, wanted: string[]): number[] {
   const positions = a.channels.map((c) => c.position);
-  const out = wanted.map((w) => channelIndex(a.channels, w, { option: "control", file: a.input.file, positions, expected: "an analysed channel" }));
-  if (new Set(out).size !== out.length) throw new InputError("OPTION_INVALID", { option: "control", expected: "each control channel once", received: wanted.join(",") });
+  const out = wanted.map((w) =>
+    channelIndex(a.channels, w, { option: "control", file: a.input.file, positions, expected: "an analysed channel" }),
+  );
+  if (new Set(out).size !== out.length)
+    throw new InputError("OPTION_INVALID", {
+      option: "control",
+      expected: "each control channel once",
+      received: wanted.join(","),
+    });
   return out;
 }
 
@@ -104,28 +136,61 @@ function controlPositions(a: RecordingAnalysis, wanted: string[]): number[] {
  * units, then judge every channel against the profile, or the control channels as one spectrum. The
  * amplitude histogram (for the report) is built unless `histogram: false`.
  */
-export async function checkRecording(file: string, profile: TestProfile, options: CheckOptions = {}): Promise<CheckResult> {
-  const resolutionHz = options.segmentLength === undefined && options.resolutionHz === undefined ? profile.resolutionHz : options.resolutionHz;
+export async function checkRecording(
+  file: string,
+  profile: TestProfile,
+  options: CheckOptions = {},
+): Promise<CheckResult> {
+  const resolutionHz =
+    options.segmentLength === undefined && options.resolutionHz === undefined
+      ? profile.resolutionHz
+      : options.resolutionHz;
   if (options.resultUnits !== undefined && options.resultUnits !== profile.units) {
-    throw new InputError("OPTION_CONFLICT", { option: "resultUnits", expected: `the profile's unit ${profile.units} (or none)`, received: options.resultUnits });
+    throw new InputError("OPTION_CONFLICT", {
+      option: "resultUnits",
+      expected: `the profile's unit ${profile.units} (or none)`,
+      received: options.resultUnits,
+    });
   }
   if (options.control && !CONTROL_RULES.includes(options.control.rule)) {
-    throw new InputError("OPTION_INVALID", { option: "control.rule", expected: CONTROL_RULES.join(" or "), received: String(options.control.rule) });
+    throw new InputError("OPTION_INVALID", {
+      option: "control.rule",
+      expected: CONTROL_RULES.join(" or "),
+      received: String(options.control.rule),
+    });
   }
   // Control channels are always analysed, with any channels asked for besides.
-  const channels = options.control && options.channels?.length ? [...new Set([...options.channels, ...options.control.channels])] : options.channels;
+  const channels =
+    options.control && options.channels?.length
+      ? [...new Set([...options.channels, ...options.control.channels])]
+      : options.channels;
   // Mixed mode: the tones are fitted on the same pass (one more listener).
-  const toneAcc = profile.tones.length > 0 ? new ToneFitAccumulator(profile.tones.map((t, i) => ({ hz: t.hz, searchHalfWidthHz: toneSearchHalfWidthHz(profile, i) }))) : undefined;
-  const analysis = await analyzeRecording(file, { ...options, channels, resolutionHz, resultUnits: profile.units, histogram: options.histogram ?? true, accumulators: [...(options.accumulators ?? []), ...(toneAcc ? [toneAcc] : [])] });
+  const toneAcc =
+    profile.tones.length > 0
+      ? new ToneFitAccumulator(
+          profile.tones.map((t, i) => ({ hz: t.hz, searchHalfWidthHz: toneSearchHalfWidthHz(profile, i) })),
+        )
+      : undefined;
+  const analysis = await analyzeRecording(file, {
+    ...options,
+    channels,
+    resolutionHz,
+    resultUnits: profile.units,
+    histogram: options.histogram ?? true,
+    accumulators: [...(options.accumulators ?? []), ...(toneAcc ? [toneAcc] : [])],
+  });
   const fits = toneAcc ? (analysis.extras[analysis.extras.length - 1] as ToneFit[][]) : undefined;
   if (toneAcc) analysis.extras = analysis.extras.slice(0, -1);
-  const judge = (sp: SpectrumUnderTest, f: (ToneFit | undefined)[] | undefined) => (profile.tones.length > 0 ? judgeMixedMode(sp, profile, f ?? []) : judgeSpectrum(sp, profile));
+  const judge = (sp: SpectrumUnderTest, f: (ToneFit | undefined)[] | undefined) =>
+    profile.tones.length > 0 ? judgeMixedMode(sp, profile, f ?? []) : judgeSpectrum(sp, profile);
   // Without control every channel is judged and the record's verdict rests on all of them: the record's 5 %
   // is split over them (family). With control only the control spectrum decides; the channels are judged
   // alone for the reader, each as if it were the record's one spectrum.
   const family = options.control ? 1 : analysis.channels.length;
   // The level gate (level swings beyond the tolerance over the run, drift dominating): a pass needs it clear.
-  const tolDb = profile.rmsToleranceDb ? Math.min(profile.rmsToleranceDb.upper, profile.rmsToleranceDb.lower) : Math.min(...profile.bands.map((b) => Math.min(b.upperDb, b.lowerDb)));
+  const tolDb = profile.rmsToleranceDb
+    ? Math.min(profile.rmsToleranceDb.upper, profile.rmsToleranceDb.lower)
+    : Math.min(...profile.bands.map((b) => Math.min(b.upperDb, b.lowerDb)));
   // The share of the record's mean square (about its mean) below the profile's first frequency: what the
   // segments' detrending removed plus the lines below it.
   const f0 = profile.breakpoints[0]!.hz;
@@ -133,19 +198,48 @@ export async function checkRecording(file: string, profile: TestProfile, options
     const total = c.parseval.rmsTime * c.parseval.rmsTime;
     return total > 0 ? Math.max(0, 1 - bandMeanSquare(c.psd, f0, analysis.input.sampleRateHz / 2) / total) : 0;
   };
-  const gate = (c: ChannelAnalysis) => levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, belowShare(c), f0);
-  const judged = analysis.channels.map((c, i) => withDoubts(withGate(judge({ ...spectrumOf(c, analysis), family }, fits?.[i]), gate(c)), [...c.doubts, ...heldBand(c, profile)]));
+  const gate = (c: ChannelAnalysis) =>
+    levelGate(c.stretchMeanSquares, c.stationarity.stretchS, tolDb, belowShare(c), f0);
+  const judged = analysis.channels.map((c, i) =>
+    withDoubts(withGate(judge({ ...spectrumOf(c, analysis), family }, fits?.[i]), gate(c)), [
+      ...c.doubts,
+      ...heldBand(c, profile),
+    ]),
+  );
   if (!options.control) {
-    return { verdict: overallVerdict(judged.map((c) => c.verdict)), analysis, profile, channels: judged, roles: judged.map(() => "judged") };
+    return {
+      verdict: overallVerdict(judged.map((c) => c.verdict)),
+      analysis,
+      profile,
+      channels: judged,
+      roles: judged.map(() => "judged"),
+    };
   }
   const pos = controlPositions(analysis, options.control.channels);
-  const combined = combineSpectra(pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)), options.control.rule);
-  const doubts = pos.flatMap((i) => [...analysis.channels[i]!.doubts, ...heldBand(analysis.channels[i]!, profile)].map((d) => aboutChannel(d, analysis.channels[i]!.name)));
+  const combined = combineSpectra(
+    pos.map((i) => spectrumOf(analysis.channels[i]!, analysis)),
+    options.control.rule,
+  );
+  const doubts = pos.flatMap((i) =>
+    [...analysis.channels[i]!.doubts, ...heldBand(analysis.channels[i]!, profile)].map((d) =>
+      aboutChannel(d, analysis.channels[i]!.name),
+    ),
+  );
   const gates = pos.flatMap((i) => gate(analysis.channels[i]!).map((d) => aboutChannel(d, analysis.channels[i]!.name)));
-  const controlFits = fits ? profile.tones.map((_, t) => combineFits(pos.map((i) => fits[i]?.[t]), options.control!.rule)) : undefined;
+  const controlFits = fits
+    ? profile.tones.map((_, t) =>
+        combineFits(
+          pos.map((i) => fits[i]?.[t]),
+          options.control!.rule,
+        ),
+      )
+    : undefined;
   const judgement = withDoubts(withGate(judge(combined, controlFits), gates), doubts);
   return {
-    verdict: judgement.verdict, analysis, profile, channels: judged,
+    verdict: judgement.verdict,
+    analysis,
+    profile,
+    channels: judged,
     roles: analysis.channels.map((_, i) => (pos.includes(i) ? "control" : "monitor")),
     control: { rule: options.control.rule, channels: pos.map((i) => analysis.channels[i]!.name), judgement },
   };

@@ -1,5 +1,16 @@
-import { analyzeRecording, stationarityNote, type AnalysisOptions, type RecordingAnalysis } from "../pass/analyzeRecording.js";
-import { parseProfile, profileMotion, type ProfileDocument, type ProfileMotion, type TestProfile } from "../compare/testProfile.js";
+import {
+  analyzeRecording,
+  stationarityNote,
+  type AnalysisOptions,
+  type RecordingAnalysis,
+} from "../pass/analyzeRecording.js";
+import {
+  parseProfile,
+  profileMotion,
+  type ProfileDocument,
+  type ProfileMotion,
+  type TestProfile,
+} from "../compare/testProfile.js";
 import { InputError } from "../errors.js";
 import { damageSpectra } from "../estimate/response/damageSpectrum.js";
 import { SN_DEFAULTS, type SnCurve } from "../estimate/response/fatigueDamage.js";
@@ -7,7 +18,11 @@ import { clippedSpectrum, lineSpectrum, powerLawSpectrum } from "../estimate/res
 import { bandRms } from "../estimate/spectral/psdEstimate.js";
 import { spectralKernel } from "../estimate/spectral/spectralKernel.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
-import { logToleranceLimit, MIN_TOLERANCE_SAMPLES, type LogToleranceLimit } from "../estimate/statistics/toleranceLimit.js";
+import {
+  logToleranceLimit,
+  MIN_TOLERANCE_SAMPLES,
+  type LogToleranceLimit,
+} from "../estimate/statistics/toleranceLimit.js";
 import type { ServiceMix } from "../read/mixFile.js";
 import type { ChannelName } from "../read/channelChoice.js";
 import { fitDamageProfile, type Breakpoint } from "../synth/profileFit.js";
@@ -158,7 +173,14 @@ export interface DeriveResult {
   extremeRatio: Float64Array;
   extremeLimit: number;
   extremeWarnings: number[];
-  fit: { maxBreakpoints: number; minRatio: number; minRatioHz: number; maxRatio: number; medianRatio: number; scale: number };
+  fit: {
+    maxBreakpoints: number;
+    minRatio: number;
+    minRatioHz: number;
+    maxRatio: number;
+    medianRatio: number;
+    scale: number;
+  };
   /** The field's shocks (as `psdgate shock` finds them) against the random test's largest response. */
   shocks: FieldShocks;
   /** Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's. */
@@ -226,31 +248,64 @@ function deriveSettings(o: DeriveOptions) {
   const extremeLimit = o.extremeLimit ?? DERIVE_DEFAULTS.extremeLimit;
   checkRange("q", q, q > 0.5 && q <= 1000, "a Q above 0.5 and at most 1000");
   checkRange("basquinB", b, b >= 1 && b <= 30, "a Basquin exponent b from 1 to 30");
-  checkRange("maxBreakpoints", nMax, Number.isInteger(nMax) && nMax >= 2 && nMax <= 40, "a whole number of breakpoints from 2 to 40");
+  checkRange(
+    "maxBreakpoints",
+    nMax,
+    Number.isInteger(nMax) && nMax >= 2 && nMax <= 40,
+    "a whole number of breakpoints from 2 to 40",
+  );
   checkRange("margin", margin, margin >= 1 && margin <= 1e6, "a damage margin factor from 1 (none) up");
-  checkRange("perOctave", perOctave, Number.isInteger(perOctave) && perOctave >= 1 && perOctave <= 24, "1 to 24 natural frequencies per octave");
+  checkRange(
+    "perOctave",
+    perOctave,
+    Number.isInteger(perOctave) && perOctave >= 1 && perOctave <= 24,
+    "1 to 24 natural frequencies per octave",
+  );
   checkRange("coverage", coverage, coverage > 0.5 && coverage < 1, "a coverage between 0.5 and 1, e.g. 0.95");
-  checkRange("toleranceConfidence", confidence, confidence > 0 && confidence < 1, "a confidence between 0 and 1, e.g. 0.5");
+  checkRange(
+    "toleranceConfidence",
+    confidence,
+    confidence > 0 && confidence < 1,
+    "a confidence between 0 and 1, e.g. 0.5",
+  );
   checkRange("extremeLimit", extremeLimit, extremeLimit >= 1, "a factor of at least 1");
   checkRange("testDurationS", o.testDurationS, o.testDurationS > 0, "a test duration above 0");
-  if (o.recordings.length === 0) throw new InputError("NO_FILES", { expected: "at least one field recording", received: "none" });
+  if (o.recordings.length === 0)
+    throw new InputError("NO_FILES", { expected: "at least one field recording", received: "none" });
   const sn: SnCurve = { ...SN_DEFAULTS, basquinB: b };
   return { q, b, nMax, margin, perOctave, coverage, confidence, extremeLimit, sn };
-
 }
 
 /** Step 1: each recording's PSD, one channel, on one resolution, in one unit; recordings whose lines or units differ are refused. */
 async function analyseField(o: DeriveOptions) {
-  if ((o.channels?.length ?? 0) > 1) throw new InputError("OPTION_INVALID", { option: "channels", expected: "one channel", received: o.channels!.join(", ") });
+  if ((o.channels?.length ?? 0) > 1)
+    throw new InputError("OPTION_INVALID", {
+      option: "channels",
+      expected: "one channel",
+      received: o.channels!.join(", "),
+    });
   const channel = o.channels?.[0] ?? "1";
   const base: AnalysisOptions = { ...o.analysis, resultUnits: o.analysis?.resultUnits ?? "g" };
-  if (base.resolutionHz === undefined && base.segmentLength === undefined) base.resolutionHz = DERIVE_DEFAULTS.resolutionHz;
+  if (base.resolutionHz === undefined && base.segmentLength === undefined)
+    base.resolutionHz = DERIVE_DEFAULTS.resolutionHz;
   const analysed = [];
   for (const r of o.recordings) {
-    const a = await analyzeRecording(r.file, { ...base, channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined });
+    const a = await analyzeRecording(r.file, {
+      ...base,
+      channels: [channel],
+      fromS: r.fromS ?? base.fromS,
+      toS: r.toS ?? base.toS,
+      fminHz: undefined,
+      fmaxHz: undefined,
+    });
     const c = a.channels[0]!;
     if (c.psd.averages === 0) {
-      throw new InputError("RECORD_TOO_SHORT", { file: r.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${a.window.frames} samples`, hint: "use a shorter `segmentLength` or a coarser `resolutionHz`" });
+      throw new InputError("RECORD_TOO_SHORT", {
+        file: r.file,
+        expected: `at least one segment of ${a.settings.segmentLength} samples`,
+        received: `${a.window.frames} samples`,
+        hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
+      });
     }
     analysed.push({ r, a, c });
   }
@@ -258,15 +313,30 @@ async function analyseField(o: DeriveOptions) {
   const df = first.c.psd.lineSpacingHz;
   for (const x of analysed) {
     if (Math.abs(x.c.psd.lineSpacingHz / df - 1) > 1e-9) {
-      throw new InputError("RECORDINGS_UNLIKE", { file: x.r.file, expected: `the line spacing of ${first.r.file}, ${df} Hz (record at one sample rate, or give \`segmentLength\` for each rate's lines)`, received: `${x.c.psd.lineSpacingHz} Hz` });
+      throw new InputError("RECORDINGS_UNLIKE", {
+        file: x.r.file,
+        expected: `the line spacing of ${first.r.file}, ${df} Hz (record at one sample rate, or give \`segmentLength\` for each rate's lines)`,
+        received: `${x.c.psd.lineSpacingHz} Hz`,
+      });
     }
-    if (x.c.units !== first.c.units) throw new InputError("RECORDINGS_UNLIKE", { file: x.r.file, expected: `results in ${first.c.units}`, received: x.c.units });
+    if (x.c.units !== first.c.units)
+      throw new InputError("RECORDINGS_UNLIKE", {
+        file: x.r.file,
+        expected: `results in ${first.c.units}`,
+        received: x.c.units,
+      });
   }
   return { channel, base, analysed, first, df };
 }
 
 /** Step 4b's figures: each recording's shock spectrum of the whole record (natural frequencies above its fs/4 left out), the largest at each f_n, and the events. */
-async function fieldShockSpectra(analysed: { r: FieldRecordingInput; a: RecordingAnalysis }[], base: AnalysisOptions, channel: ChannelName, fnHz: Float64Array, q: number) {
+async function fieldShockSpectra(
+  analysed: { r: FieldRecordingInput; a: RecordingAnalysis }[],
+  base: AnalysisOptions,
+  channel: ChannelName,
+  fnHz: Float64Array,
+  q: number,
+) {
   const n = fnHz.length;
   const { shockRecording } = await import("./shockRecording.js");
   const fieldSrs = new Float64Array(n).fill(NaN);
@@ -278,7 +348,16 @@ async function fieldShockSpectra(analysed: { r: FieldRecordingInput; a: Recordin
       eventsPerRecording.push(0);
       continue;
     }
-    const sr = await shockRecording(r.file, { ...base, channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: undefined, fmaxHz: undefined, fnHz: keep.map((i) => fnHz[i]!), q });
+    const sr = await shockRecording(r.file, {
+      ...base,
+      channels: [channel],
+      fromS: r.fromS ?? base.fromS,
+      toS: r.toS ?? base.toS,
+      fminHz: undefined,
+      fmaxHz: undefined,
+      fnHz: keep.map((i) => fnHz[i]!),
+      q,
+    });
     const ch = sr.channels[0]!;
     keep.forEach((i, k) => {
       const v = ch.srs.maximax[k]!;
@@ -292,16 +371,41 @@ async function fieldShockSpectra(analysed: { r: FieldRecordingInput; a: Recordin
 }
 
 /** The field's damage in time (fieldDamage "time"), per recording (keyed by file and window): rainflow damage per second of record, and its largest response grown to a service time. */
-interface TimeDamage { damage: Float64Array; extreme: (serviceS: number) => Float64Array }
+interface TimeDamage {
+  damage: Float64Array;
+  extreme: (serviceS: number) => Float64Array;
+}
 
-async function fieldTimeDamage(analysed: { r: FieldRecordingInput }[], base: AnalysisOptions, channel: ChannelName, band: { fromHz: number; toHz: number }, fnHz: Float64Array, q: number, sn: SnCurve): Promise<Map<string, TimeDamage>> {
+async function fieldTimeDamage(
+  analysed: { r: FieldRecordingInput }[],
+  base: AnalysisOptions,
+  channel: ChannelName,
+  band: { fromHz: number; toHz: number },
+  fnHz: Float64Array,
+  q: number,
+  sn: SnCurve,
+): Promise<Map<string, TimeDamage>> {
   const { fromHz, toHz } = band;
   const timeDamage = new Map<string, TimeDamage>();
   const { loadSpectrumSource, responseSpectra } = await import("./responseSpectra.js");
   for (const { r } of analysed) {
-    const src = await loadSpectrumSource(r.file, { ...base, as: "recording", channels: [channel], fromS: r.fromS ?? base.fromS, toS: r.toS ?? base.toS, fminHz: fromHz, fmaxHz: toHz, response: { fnHz, q, basquinB: sn.basquinB } });
+    const src = await loadSpectrumSource(r.file, {
+      ...base,
+      as: "recording",
+      channels: [channel],
+      fromS: r.fromS ?? base.fromS,
+      toS: r.toS ?? base.toS,
+      fminHz: fromHz,
+      fmaxHz: toHz,
+      response: { fnHz, q, basquinB: sn.basquinB },
+    });
     const t = src.timeResponse!;
-    const perSecond = responseSpectra(src, { fnHz, q, durationS: t.recordS, sn: { ...sn, stressPerUnit: 1, snConstant: 1 } });
+    const perSecond = responseSpectra(src, {
+      fnHz,
+      q,
+      durationS: t.recordS,
+      sn: { ...sn, stressPerUnit: 1, snConstant: 1 },
+    });
     const td = perSecond.timeDomain!;
     timeDamage.set(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""), {
       damage: td.recordDamage.map((d) => d / t.recordS),
@@ -312,7 +416,23 @@ async function fieldTimeDamage(analysed: { r: FieldRecordingInput }[], base: Ana
 }
 
 /** Step 4's fit: the profile's breakpoints whose damage over the test covers the field's times the margin, from two starts (the field's mean shape, flat). */
-function fitProfile(g: { fieldFatigue: Float64Array; mean: Float64Array; frequencyHz: Float64Array; fnHz: Float64Array; fromHz: number; toHz: number; perOctave: number; margin: number; q: number; b: number; sn: SnCurve; toSi: number; nMax: number; lifeS: number; testDurationS: number }) {
+function fitProfile(g: {
+  fieldFatigue: Float64Array;
+  mean: Float64Array;
+  frequencyHz: Float64Array;
+  fnHz: Float64Array;
+  fromHz: number;
+  toHz: number;
+  perOctave: number;
+  margin: number;
+  q: number;
+  b: number;
+  sn: SnCurve;
+  toSi: number;
+  nMax: number;
+  lifeS: number;
+  testDurationS: number;
+}) {
   const { fieldFatigue, mean, frequencyHz, fnHz, fromHz, toHz, perOctave, margin, q, b, sn, toSi, nMax, lifeS } = g;
   const o = { testDurationS: g.testDurationS };
   const n = fnHz.length;
@@ -323,19 +443,30 @@ function fitProfile(g: { fieldFatigue: Float64Array; mean: Float64Array; frequen
   // quasi-static response to a low-frequency peak), this keeps the level at f_n near the field's instead of loading it all there.
   // A flat reference is the second start (the local Miles inversion); the fit keeps whichever ends with less over-test.
   const ref = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, mean, fromHz, toHz), fromHz, toHz), test).damage;
-  const fromMean = target.map((d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b));
+  const fromMean = target.map(
+    (d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b),
+  );
   const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
   const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
   // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations.
   for (let i = 0; i < n; i++) {
     if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
       throw new InputError("OPTION_INVALID", {
-        option: "testDurationS", expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,
-        received: `${o.testDurationS} s (the starting levels at ${Number(fnHz[i]!.toPrecision(4))} Hz would be ${fromMean[i]} and ${fromFlat[i]})`, hint: "give the test's real duration (e.g. 1h); the life-to-test ratio sets the levels",
+        option: "testDurationS",
+        expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,
+        received: `${o.testDurationS} s (the starting levels at ${Number(fnHz[i]!.toPrecision(4))} Hz would be ${fromMean[i]} and ${fromFlat[i]})`,
+        hint: "give the test's real duration (e.g. 1h); the life-to-test ratio sets the levels",
       });
     }
   }
-  const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevels: [fromMean, fromFlat], basquinB: b, maxBreakpoints: nMax, damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage });
+  const fit = fitDamageProfile({
+    fnHz,
+    targetDamage: target,
+    startLevels: [fromMean, fromFlat],
+    basquinB: b,
+    maxBreakpoints: nMax,
+    damageOf: (pts) => damageSpectra(powerLawSpectrum(segmentsOf(pts)), test).damage,
+  });
   return { fit, test };
 }
 
@@ -343,32 +474,96 @@ function fitProfile(g: { fieldFatigue: Float64Array; mean: Float64Array; frequen
 function profileDocumentOf(
   o: DeriveOptions,
   g: {
-    lifeS: number; q: number; b: number; margin: number; nMax: number; fromHz: number; toHz: number; perOctave: number; channel: ChannelName; df: number;
-    settings: RecordingAnalysis["settings"]; coverage: number; confidence: number; extremeLimit: number; fieldDamage: "psd" | "time"; units: AccelUnit;
-    fit: { points: Breakpoint[] }; recordings: FieldRecordingResult[];
+    lifeS: number;
+    q: number;
+    b: number;
+    margin: number;
+    nMax: number;
+    fromHz: number;
+    toHz: number;
+    perOctave: number;
+    channel: ChannelName;
+    df: number;
+    settings: RecordingAnalysis["settings"];
+    coverage: number;
+    confidence: number;
+    extremeLimit: number;
+    fieldDamage: "psd" | "time";
+    units: AccelUnit;
+    fit: { points: Breakpoint[] };
+    recordings: FieldRecordingResult[];
   },
 ): ProfileDocument {
-  const { lifeS, q, b, margin, nMax, fromHz, toHz, perOctave, channel, df, coverage, confidence, extremeLimit, fieldDamage, units, fit, recordings } = g;
+  const {
+    lifeS,
+    q,
+    b,
+    margin,
+    nMax,
+    fromHz,
+    toHz,
+    perOctave,
+    channel,
+    df,
+    coverage,
+    confidence,
+    extremeLimit,
+    fieldDamage,
+    units,
+    fit,
+    recordings,
+  } = g;
   const first = { a: { settings: g.settings } };
   const bandDb = o.bandDb ?? DERIVE_DEFAULTS.bandDb;
   const rmsPercent = o.rmsPercent ?? DERIVE_DEFAULTS.rmsPercent;
   const minDof = o.minDof ?? DERIVE_DEFAULTS.minDof;
   checkRange("bandDb", bandDb, bandDb > 0 && bandDb <= 20, "a tolerance band in dB above 0 and at most 20");
-  checkRange("rmsPercent", rmsPercent, rmsPercent > 0 && rmsPercent < 99, "an RMS tolerance in percent above 0 and below 99");
+  checkRange(
+    "rmsPercent",
+    rmsPercent,
+    rmsPercent > 0 && rmsPercent < 99,
+    "an RMS tolerance in percent above 0 and below 99",
+  );
   checkRange("minDof", minDof, minDof > 0, "a minimum DOF above 0");
   const unitText = units === "g" ? "g2/Hz" : "(m/s2)2/Hz";
   const parameters: Record<string, number | string | boolean | null> = {
-    lifeS, lifeHours: lifeS / 3600, lifeRule: o.lifeRule, testDurationS: o.testDurationS, q, basquinB: b, damageMargin: margin, maxBreakpoints: nMax,
-    fnGrid: `${fromHz}:${toHz}:${perOctave} (Hz, per octave)`, fromHz, toHz, channel: String(channel), resolutionHz: df,
-    window: first.a.settings.window, segmentLength: first.a.settings.segmentLength, overlap: first.a.settings.overlap, detrend: first.a.settings.detrend,
-    toleranceCoverage: coverage, toleranceConfidence: confidence, extremeLimit, bandDb, rmsPercent, minDof,
+    lifeS,
+    lifeHours: lifeS / 3600,
+    lifeRule: o.lifeRule,
+    testDurationS: o.testDurationS,
+    q,
+    basquinB: b,
+    damageMargin: margin,
+    maxBreakpoints: nMax,
+    fnGrid: `${fromHz}:${toHz}:${perOctave} (Hz, per octave)`,
+    fromHz,
+    toHz,
+    channel: String(channel),
+    resolutionHz: df,
+    window: first.a.settings.window,
+    segmentLength: first.a.settings.segmentLength,
+    overlap: first.a.settings.overlap,
+    detrend: first.a.settings.detrend,
+    toleranceCoverage: coverage,
+    toleranceConfidence: confidence,
+    extremeLimit,
+    bandDb,
+    rmsPercent,
+    minDof,
     ...(fieldDamage === "time" ? { fieldDamage } : {}),
   };
   const document: ProfileDocument = {
-    title: o.title ?? `Derived profile: ${o.groups.map((g) => g.name).join(" + ")}, ${(lifeS / 3600).toPrecision(4)} h in ${o.testDurationS} s`,
+    title:
+      o.title ??
+      `Derived profile: ${o.groups.map((g) => g.name).join(" + ")}, ${(lifeS / 3600).toPrecision(4)} h in ${o.testDurationS} s`,
     units: unitText,
     points: fit.points.map((p) => ({ hz: p.hz, level: p.level })),
-    tolerance: { bands: [{ fromHz: fit.points[0]!.hz, toHz: fit.points[fit.points.length - 1]!.hz, upperDb: bandDb, lowerDb: bandDb }], rmsPercent },
+    tolerance: {
+      bands: [
+        { fromHz: fit.points[0]!.hz, toHz: fit.points[fit.points.length - 1]!.hz, upperDb: bandDb, lowerDb: bandDb },
+      ],
+      rmsPercent,
+    },
     minDof,
     resolutionHz: df,
     durationS: o.testDurationS,
@@ -376,11 +571,19 @@ function profileDocumentOf(
     provenance: {
       derivedBy: `psdgate ${o.version} derive`,
       created: o.created.toISOString(),
-      method: fieldDamage === "time"
-        ? "field FDS from the recordings in time: each filtered through a linear SDOF (ramp-invariant filters), rainflow (ASTM E1049-85) Miner damage of the relative displacement, times service time over record length, summed over groups; test FDS narrow-band Miner damage of the profile (Rayleigh peaks); breakpoints fitted on log-log axes to cover the field's over the test duration"
-        : "narrow-band Miner damage of a linear SDOF (relative displacement, Rayleigh peaks), field FDS = sum over groups of damage rate x service time; breakpoints fitted on log-log axes to cover it over the test duration",
+      method:
+        fieldDamage === "time"
+          ? "field FDS from the recordings in time: each filtered through a linear SDOF (ramp-invariant filters), rainflow (ASTM E1049-85) Miner damage of the relative displacement, times service time over record length, summed over groups; test FDS narrow-band Miner damage of the profile (Rayleigh peaks); breakpoints fitted on log-log axes to cover the field's over the test duration"
+          : "narrow-band Miner damage of a linear SDOF (relative displacement, Rayleigh peaks), field FDS = sum over groups of damage rate x service time; breakpoints fitted on log-log axes to cover it over the test duration",
       inputs: [
-        ...recordings.map((r) => ({ file: r.file, sha256: r.sha256, role: "recording", group: r.group, serviceHours: r.serviceS / 3600, durationS: r.durationS })),
+        ...recordings.map((r) => ({
+          file: r.file,
+          sha256: r.sha256,
+          role: "recording",
+          group: r.group,
+          serviceHours: r.serviceS / 3600,
+          durationS: r.durationS,
+        })),
         ...(o.mix ? [{ file: o.mix.file, sha256: o.mix.sha256, role: "mix" }] : []),
       ],
       parameters,
@@ -390,7 +593,12 @@ function profileDocumentOf(
 }
 
 /** The lines the recordings share, the band (fminHz/fmaxHz or the defaults, checked against the lines and the lowest Nyquist), its natural frequencies and unit. */
-function fieldBand(o: DeriveOptions, analysed: { a: RecordingAnalysis; c: RecordingAnalysis["channels"][number] }[], perOctave: number, df: number) {
+function fieldBand(
+  o: DeriveOptions,
+  analysed: { a: RecordingAnalysis; c: RecordingAnalysis["channels"][number] }[],
+  perOctave: number,
+  df: number,
+) {
   const first = analysed[0]!;
   const lines = Math.min(...analysed.map((x) => x.c.psd.frequencyHz.length));
   const frequencyHz = first.c.psd.frequencyHz.slice(0, lines);
@@ -399,7 +607,12 @@ function fieldBand(o: DeriveOptions, analysed: { a: RecordingAnalysis; c: Record
   const fromHz = o.fminHz ?? Math.max(5, 4 * df);
   const toHz = o.fmaxHz ?? Math.min(2000, 0.4 * minRate);
   checkRange("fminHz", fromHz, fromHz >= 2 * df, `a lower band edge of at least 2 lines (${2 * df} Hz)`);
-  checkRange("fmaxHz", toHz, toHz > fromHz * 1.5 && toHz <= topHz - df, `an upper band edge above 1.5 x \`fminHz\` (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`);
+  checkRange(
+    "fmaxHz",
+    toHz,
+    toHz > fromHz * 1.5 && toHz <= topHz - df,
+    `an upper band edge above 1.5 x \`fminHz\` (${fromHz} Hz) and at most ${topHz - df} Hz (below the lowest Nyquist frequency)`,
+  );
   const fnHz = octaveGrid(fromHz, toHz, perOctave);
   const units = first.c.units;
   const toSi = accelFactor(units, "m/s2");
@@ -410,7 +623,8 @@ function fieldBand(o: DeriveOptions, analysed: { a: RecordingAnalysis; c: Record
 function serviceShare(o: DeriveOptions, analysed: { r: FieldRecordingInput; a: RecordingAnalysis }[]) {
   const groupTime = new Map(o.groups.map((g) => [g.name, g.serviceS]));
   const groupDur = new Map<string, number>();
-  for (const x of analysed) groupDur.set(x.r.group, (groupDur.get(x.r.group) ?? 0) + x.a.window.frames / x.a.input.sampleRateHz);
+  for (const x of analysed)
+    groupDur.set(x.r.group, (groupDur.get(x.r.group) ?? 0) + x.a.window.frames / x.a.input.sampleRateHz);
   const lifeS = o.groups.reduce((s, g) => s + g.serviceS, 0);
   checkRange("lifeS", lifeS, lifeS > 0, "a service life above 0");
   return { groupTime, groupDur, lifeS };
@@ -427,8 +641,16 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   // The field's damage in time (fieldDamage "time"): per recording, the rainflow damage per second of record and a function
   // giving its largest response grown to a service time (Davenport's factor at nu0+ T over the one at nu0+ T_record, nu0+ from the PSD).
   const fieldDamage = o.fieldDamage ?? "psd";
-  if (fieldDamage !== "psd" && fieldDamage !== "time") throw new InputError("OPTION_INVALID", { option: "fieldDamage", expected: "psd or time", received: String(fieldDamage) });
-  const timeDamage = fieldDamage === "time" ? await fieldTimeDamage(analysed, base, channel, { fromHz, toHz }, fnHz, q, sn) : new Map<string, TimeDamage>();
+  if (fieldDamage !== "psd" && fieldDamage !== "time")
+    throw new InputError("OPTION_INVALID", {
+      option: "fieldDamage",
+      expected: "psd or time",
+      received: String(fieldDamage),
+    });
+  const timeDamage =
+    fieldDamage === "time"
+      ? await fieldTimeDamage(analysed, base, channel, { fromHz, toHz }, fnHz, q, sn)
+      : new Map<string, TimeDamage>();
   let timeNote: Finding | undefined;
   if (fieldDamage === "time") {
     timeNote = { code: "FIELD_DAMAGE_IN_TIME", values: {} };
@@ -446,21 +668,47 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     const psd = c.psd.psd.slice(0, lines);
     // No figures from no data: a recording with no vibration in the band (all zero, constant) has no damage to cover.
     let inBand = 0;
-    for (let k = 0; k < lines; k++) if (frequencyHz[k]! >= fromHz && frequencyHz[k]! <= toHz && psd[k]! > 0 && Number.isFinite(psd[k]!)) inBand++;
+    for (let k = 0; k < lines; k++)
+      if (frequencyHz[k]! >= fromHz && frequencyHz[k]! <= toHz && psd[k]! > 0 && Number.isFinite(psd[k]!)) inBand++;
     if (inBand === 0) {
-      throw new InputError("NO_VIBRATION", { file: r.file, expected: `vibration between ${fromHz} and ${toHz} Hz to derive a profile from`, received: "a PSD of zero at every line in the band (a recording that is all zero or constant)" });
+      throw new InputError("NO_VIBRATION", {
+        file: r.file,
+        expected: `vibration between ${fromHz} and ${toHz} Hz to derive a profile from`,
+        received: "a PSD of zero at every line in the band (a recording that is all zero or constant)",
+      });
     }
     // Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around it.
-    const reach = Math.ceil(spectralKernel(a.settings.window, spectralWindow(a.settings.window, a.settings.segmentLength), a.settings.detrend).halfWidthBins) + 1;
+    const reach =
+      Math.ceil(
+        spectralKernel(
+          a.settings.window,
+          spectralWindow(a.settings.window, a.settings.segmentLength),
+          a.settings.detrend,
+        ).halfWidthBins,
+      ) + 1;
     for (const t of c.tones) {
       if (t.frequencyHz < fromHz || t.frequencyHz > toHz) continue;
-      candidateTones.push({ file: r.file, frequencyHz: t.frequencyHz, peak: t.peak, aboveBackgroundDb: t.aboveBackgroundDb });
+      candidateTones.push({
+        file: r.file,
+        frequencyHz: t.frequencyHz,
+        peak: t.peak,
+        aboveBackgroundDb: t.aboveBackgroundDb,
+      });
       const k0 = Math.round(t.frequencyHz / df);
-      for (let k = Math.max(1, k0 - reach); k <= Math.min(lines - 1, k0 + reach); k++) psd[k] = Math.min(psd[k]!, t.backgroundDensity);
+      for (let k = Math.max(1, k0 - reach); k <= Math.min(lines - 1, k0 + reach); k++)
+        psd[k] = Math.min(psd[k]!, t.backgroundDensity);
     }
-    const ds0 = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), { fnHz, q, durationS: serviceS, sn, toSi });
+    const ds0 = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), {
+      fnHz,
+      q,
+      durationS: serviceS,
+      sn,
+      toSi,
+    });
     const timeFigures = timeDamage.get(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""));
-    const ds = timeFigures ? { damage: timeFigures.damage.map((d) => d * serviceS), extreme: timeFigures.extreme(serviceS) } : ds0;
+    const ds = timeFigures
+      ? { damage: timeFigures.damage.map((d) => d * serviceS), extreme: timeFigures.extreme(serviceS) }
+      : ds0;
     for (let i = 0; i < n; i++) {
       fieldFatigue[i] = fieldFatigue[i]! + ds.damage[i]!;
       fieldExtreme[i] = Math.max(fieldExtreme[i]!, ds.extreme[i]!);
@@ -471,18 +719,41 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     }
     const note = stationarityNote(c.stationarity);
     if (note) notes.push({ ...note, about: { file: r.file } });
-    if (c.reading.fullScaleAssumed) notes.push({ code: "FULL_SCALE_ASSUMED", values: {}, about: { file: r.file, unit: c.reading.fileUnit } });
+    if (c.reading.fullScaleAssumed)
+      notes.push({ code: "FULL_SCALE_ASSUMED", values: {}, about: { file: r.file, unit: c.reading.fileUnit } });
     return {
-      file: r.file, sha256: a.input.sha256, group: r.group, channel: c.name, durationS, serviceS, sampleRateHz: a.input.sampleRateHz, dof: c.psd.dof, averages: c.psd.averages,
-      bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz), stationary: c.stationarity.tested ? c.stationarity.stationary : undefined, stationarityNote: note, psd, damage: ds.damage, extreme: ds.extreme,
+      file: r.file,
+      sha256: a.input.sha256,
+      group: r.group,
+      channel: c.name,
+      durationS,
+      serviceS,
+      sampleRateHz: a.input.sampleRateHz,
+      dof: c.psd.dof,
+      averages: c.psd.averages,
+      bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz),
+      stationary: c.stationarity.tested ? c.stationarity.stationary : undefined,
+      stationarityNote: note,
+      psd,
+      damage: ds.damage,
+      extreme: ds.extreme,
       fromPsd: timeFigures ? { damage: ds0.damage, extreme: ds0.extreme, kurtosis: c.stats.kurtosis } : undefined,
     };
   });
   for (let i = 0; i < n; i++) {
-    if (!(fieldFatigue[i]! > 0 && Number.isFinite(fieldFatigue[i]!) && fieldExtreme[i]! > 0 && Number.isFinite(fieldExtreme[i]!))) {
+    if (
+      !(
+        fieldFatigue[i]! > 0 &&
+        Number.isFinite(fieldFatigue[i]!) &&
+        fieldExtreme[i]! > 0 &&
+        Number.isFinite(fieldExtreme[i]!)
+      )
+    ) {
       throw new InputError("OPTION_INVALID", {
-        option: "lifeS", expected: "a service life over which the field's damage is a finite number above 0 at every natural frequency",
-        received: `${lifeS} s (at ${Number(fnHz[i]!.toPrecision(4))} Hz: damage ${fieldFatigue[i]}, largest response ${fieldExtreme[i]})`, hint: "give the life in hours of real service (a mix file's hours, or `lifeS`)",
+        option: "lifeS",
+        expected: "a service life over which the field's damage is a finite number above 0 at every natural frequency",
+        received: `${lifeS} s (at ${Number(fnHz[i]!.toPrecision(4))} Hz: damage ${fieldFatigue[i]}, largest response ${fieldExtreme[i]})`,
+        hint: "give the life in hours of real service (a mix file's hours, or `lifeS`)",
       });
     }
   }
@@ -491,24 +762,52 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   }
   const groups = o.groups.map((g) => {
     const share = new Float64Array(n);
-    for (const r of recordings) if (r.group === g.name) for (let i = 0; i < n; i++) share[i] = share[i]! + r.damage[i]! / fieldFatigue[i]!;
+    for (const r of recordings)
+      if (r.group === g.name) for (let i = 0; i < n; i++) share[i] = share[i]! + r.damage[i]! / fieldFatigue[i]!;
     return { name: g.name, serviceS: g.serviceS, damageShare: share };
   });
 
   // 3. The statistical upper limit across recordings.
-  const tl = logToleranceLimit(recordings.map((r) => r.psd), coverage, confidence);
-  const missing: Finding = { code: "TOLERANCE_LIMIT_MISSING", values: { required: MIN_TOLERANCE_SAMPLES, recordings: recordings.length } };
+  const tl = logToleranceLimit(
+    recordings.map((r) => r.psd),
+    coverage,
+    confidence,
+  );
+  const missing: Finding = {
+    code: "TOLERANCE_LIMIT_MISSING",
+    values: { required: MIN_TOLERANCE_SAMPLES, recordings: recordings.length },
+  };
   const tolerance = tl ?? { n: recordings.length, coverage, confidence, missing };
   if (!tl) notes.push(missing);
 
   // 4. The profile: fit against the field's damage times the margin, over the test duration.
-  const { fit, test } = fitProfile({ fieldFatigue, mean, frequencyHz, fnHz, fromHz, toHz, perOctave, margin, q, b, sn, toSi, nMax, lifeS, testDurationS: o.testDurationS });
+  const { fit, test } = fitProfile({
+    fieldFatigue,
+    mean,
+    frequencyHz,
+    fnHz,
+    fromHz,
+    toHz,
+    perOctave,
+    margin,
+    q,
+    b,
+    sn,
+    toSi,
+    nMax,
+    lifeS,
+    testDurationS: o.testDurationS,
+  });
   const testSpectra = damageSpectra(powerLawSpectrum(segmentsOf(fit.points)), test);
   const testFatigue = testSpectra.damage;
   const extremeRatio = testSpectra.extreme.map((v, i) => v / fieldExtreme[i]!);
   const extremeWarnings = [...fnHz].filter((_, i) => extremeRatio[i]! > extremeLimit);
   if (extremeWarnings.length) {
-    notes.push({ code: "TEST_EXTREME_ABOVE_FIELD", values: { limit: extremeLimit, frequencies: extremeWarnings.length }, about: { every: extremeWarnings.length === n, frequenciesHz: extremeWarnings } });
+    notes.push({
+      code: "TEST_EXTREME_ABOVE_FIELD",
+      values: { limit: extremeLimit, frequencies: extremeWarnings.length },
+      about: { every: extremeWarnings.length === n, frequenciesHz: extremeWarnings },
+    });
   }
 
   // 4b. The field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
@@ -517,22 +816,82 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(analysed, base, channel, fnHz, q);
   const shortfallHz = [...fnHz].filter((_, i) => testSpectra.extreme[i]! < fieldSrs[i]!);
   if (shortfallHz.length) {
-    notes.push({ code: "SHOCK_TEST_NEEDED", values: { frequencies: shortfallHz.length }, about: { frequenciesHz: shortfallHz } });
+    notes.push({
+      code: "SHOCK_TEST_NEEDED",
+      values: { frequencies: shortfallHz.length },
+      about: { frequenciesHz: shortfallHz },
+    });
   }
   const shocks: FieldShocks = { fieldSrs, largestEvents: events.slice(0, 5), eventsPerRecording, shortfallHz };
 
   // 5. The profile document: tolerances, DOF, resolution, duration and provenance.
-  const document = profileDocumentOf(o, { lifeS, q, b, margin, nMax, fromHz, toHz, perOctave, channel, df, settings: first.a.settings, coverage, confidence, extremeLimit, fieldDamage, units, fit, recordings });
+  const document = profileDocumentOf(o, {
+    lifeS,
+    q,
+    b,
+    margin,
+    nMax,
+    fromHz,
+    toHz,
+    perOctave,
+    channel,
+    df,
+    settings: first.a.settings,
+    coverage,
+    confidence,
+    extremeLimit,
+    fieldDamage,
+    units,
+    fit,
+    recordings,
+  });
   // Read back exactly as `check` and `profile` will (a document psdgate cannot read is a bug, caught here).
   const profile = parseProfile(JSON.stringify(document), o.outFile ?? "derived.json");
   const meanFieldRms = bandRms({ psd: mean, frequencyHz, lineSpacingHz: df }, fromHz, toHz);
   return {
-    units, lifeS, lifeRule: o.lifeRule, testDurationS: o.testDurationS, groups, recordings, frequencyHz, lineSpacingHz: df, band: { fromHz, toHz }, envelope, mean, tolerance,
-    fnHz, q, sn, margin, fieldFatigue, testFatigue, fieldExtreme, testExtreme: testSpectra.extreme, extremeRatio, extremeLimit, extremeWarnings,
-    fit: { maxBreakpoints: nMax, minRatio: fit.minRatio, minRatioHz: fit.minRatioHz, maxRatio: fit.maxRatio, medianRatio: fit.medianRatio, scale: fit.scale },
+    units,
+    lifeS,
+    lifeRule: o.lifeRule,
+    testDurationS: o.testDurationS,
+    groups,
+    recordings,
+    frequencyHz,
+    lineSpacingHz: df,
+    band: { fromHz, toHz },
+    envelope,
+    mean,
+    tolerance,
+    fnHz,
+    q,
+    sn,
+    margin,
+    fieldFatigue,
+    testFatigue,
+    fieldExtreme,
+    testExtreme: testSpectra.extreme,
+    extremeRatio,
+    extremeLimit,
+    extremeWarnings,
+    fit: {
+      maxBreakpoints: nMax,
+      minRatio: fit.minRatio,
+      minRatioHz: fit.minRatioHz,
+      maxRatio: fit.maxRatio,
+      medianRatio: fit.medianRatio,
+      scale: fit.scale,
+    },
     shocks,
-    compression: { flatFactor: (lifeS / o.testDurationS) ** (2 / b), profileRms: profile.rms, meanFieldRms, rmsRatio: profile.rms / meanFieldRms },
-    notes, candidateTones, document, profile, ...strokeOf(profile, o.strokeMm),
+    compression: {
+      flatFactor: (lifeS / o.testDurationS) ** (2 / b),
+      profileRms: profile.rms,
+      meanFieldRms,
+      rmsRatio: profile.rms / meanFieldRms,
+    },
+    notes,
+    candidateTones,
+    document,
+    profile,
+    ...strokeOf(profile, o.strokeMm),
   };
 }
 
@@ -540,15 +899,25 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
 export function strokeOf(profile: TestProfile, strokeMm: number | undefined): Pick<DeriveResult, "motion" | "stroke"> {
   const motion = profileMotion(profile);
   if (strokeMm === undefined) return { motion, stroke: undefined };
-  checkRange("strokeMm", strokeMm, strokeMm > 0 && Number.isFinite(strokeMm), "a rated peak-to-peak stroke in mm above 0");
+  checkRange(
+    "strokeMm",
+    strokeMm,
+    strokeMm > 0 && Number.isFinite(strokeMm),
+    "a rated peak-to-peak stroke in mm above 0",
+  );
   const est = motion.displacementPeakToPeak * 1000;
-  return { motion, stroke: { ratedMm: strokeMm, estimateMm: est, margin: strokeMm / est, withinRating: est <= strokeMm } };
+  return {
+    motion,
+    stroke: { ratedMm: strokeMm, estimateMm: est, margin: strokeMm / est, withinRating: est <= strokeMm },
+  };
 }
 
 /** The groups and recordings of a mix file, as deriveProfile takes them. */
 export function mixInputs(mix: ServiceMix): Pick<DeriveOptions, "recordings" | "groups" | "lifeRule" | "mix"> {
   return {
-    recordings: mix.groups.flatMap((g) => g.recordings.map((r) => ({ file: r.file, group: g.name, fromS: r.fromS, toS: r.toS }))),
+    recordings: mix.groups.flatMap((g) =>
+      g.recordings.map((r) => ({ file: r.file, group: g.name, fromS: r.fromS, toS: r.toS })),
+    ),
     groups: mix.groups.map((g) => ({ name: g.name, serviceS: g.hours * 3600 })),
     lifeRule: "mix file hours",
     mix: { file: mix.file, sha256: mix.sha256 },
@@ -557,5 +926,9 @@ export function mixInputs(mix: ServiceMix): Pick<DeriveOptions, "recordings" | "
 
 /** Plain recordings sharing a life by their recorded durations: one group, "field". */
 export function plainInputs(files: string[], lifeS: number): Pick<DeriveOptions, "recordings" | "groups" | "lifeRule"> {
-  return { recordings: files.map((file) => ({ file, group: "field" })), groups: [{ name: "field", serviceS: lifeS }], lifeRule: "recorded durations" };
+  return {
+    recordings: files.map((file) => ({ file, group: "field" })),
+    groups: [{ name: "field", serviceS: lifeS }],
+    lifeRule: "recorded durations",
+  };
 }

@@ -1,4 +1,9 @@
-import { analyzeRecording, recordTooShort, type AnalysisOptions, type PassAccumulator } from "../pass/analyzeRecording.js";
+import {
+  analyzeRecording,
+  recordTooShort,
+  type AnalysisOptions,
+  type PassAccumulator,
+} from "../pass/analyzeRecording.js";
 import type { ChannelReading } from "../condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
 import { InputError } from "../errors.js";
@@ -6,7 +11,13 @@ import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "../estimate/respons
 import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "../estimate/response/inputSpectrum.js";
 import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "../estimate/response/kinematics.js";
 import { davenportPeakFactor, riceRates } from "../estimate/response/peakStatistics.js";
-import { absoluteTransmissibilitySquared, milesRelativeDisplacementRms, milesRms, relativeDisplacementSquared, sdofResponse } from "../estimate/response/sdofResponse.js";
+import {
+  absoluteTransmissibilitySquared,
+  milesRelativeDisplacementRms,
+  milesRms,
+  relativeDisplacementSquared,
+  sdofResponse,
+} from "../estimate/response/sdofResponse.js";
 import type { TimeResponse } from "../estimate/response/timeResponse.js";
 import { responseThreads, timeResponseSink, type TimeResponseSink } from "./timeResponsePool.js";
 import { looksLikePsdTable, readPsdTable } from "../read/psdTable.js";
@@ -56,17 +67,32 @@ export interface SourceOptions extends AnalysisOptions {
   /** Read the file as this kind (default: by extension and first line). */
   as?: SourceKind | undefined;
   /** For a recording: also filter it through each SDOF of this grid in time (rainflow damage, largest response). */
-  response?: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined } | undefined;
+  response?:
+    | { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined }
+    | undefined;
 }
 
 /** The time-domain SDOF responses as a listener on the recording's one pass (one channel). */
 class TimeResponses implements PassAccumulator<TimeResponse | undefined> {
   private acc: TimeResponseSink | undefined;
-  constructor(private readonly o: { fnHz: Float64Array | readonly number[]; q: number; basquinB: number; expectedSamples?: number | undefined }) {}
+  constructor(
+    private readonly o: {
+      fnHz: Float64Array | readonly number[];
+      q: number;
+      basquinB: number;
+      expectedSamples?: number | undefined;
+    },
+  ) {}
   start(designRateHz: number): void {
     if (!(Number.isFinite(designRateHz) && designRateHz > 0)) return;
     const fn = Float64Array.from(this.o.fnHz);
-    this.acc = timeResponseSink(fn, this.o.q, designRateHz, this.o.basquinB, responseThreads(fn.length, this.o.expectedSamples ?? Infinity));
+    this.acc = timeResponseSink(
+      fn,
+      this.o.q,
+      designRateHz,
+      this.o.basquinB,
+      responseThreads(fn.length, this.o.expectedSamples ?? Infinity),
+    );
   }
   push(blocks: Float64Array[], frames: number): void {
     this.acc?.push(blocks[0]!, frames);
@@ -90,13 +116,35 @@ export async function sourceKind(file: string): Promise<SourceKind> {
 function lineBand(file: string, f: Float64Array, o: SourceOptions): { lo: number; hi: number } {
   const lo = o.fminHz ?? f[1]!;
   const hi = o.fmaxHz ?? f[f.length - 1]!;
-  if (!(lo > 0)) throw new InputError("OPTION_INVALID", { file, option: "fminHz", expected: "a lower band edge above 0 Hz", received: String(lo) });
-  if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "fmaxHz", expected: `an upper band edge above \`fminHz\` ${lo} Hz`, received: String(hi) });
+  if (!(lo > 0))
+    throw new InputError("OPTION_INVALID", {
+      file,
+      option: "fminHz",
+      expected: "a lower band edge above 0 Hz",
+      received: String(lo),
+    });
+  if (!(hi > lo))
+    throw new InputError("OPTION_INVALID", {
+      file,
+      option: "fmaxHz",
+      expected: `an upper band edge above \`fminHz\` ${lo} Hz`,
+      received: String(hi),
+    });
   return { lo, hi };
 }
 
-export async function loadSpectrumSource(file: string, o: SourceOptions = {}, channelOption = "channels"): Promise<SpectrumSource> {
-  if ((o.channels?.length ?? 0) > 1) throw new InputError("OPTION_INVALID", { file, option: channelOption, expected: "one channel", received: o.channels!.join(", ") });
+export async function loadSpectrumSource(
+  file: string,
+  o: SourceOptions = {},
+  channelOption = "channels",
+): Promise<SpectrumSource> {
+  if ((o.channels?.length ?? 0) > 1)
+    throw new InputError("OPTION_INVALID", {
+      file,
+      option: channelOption,
+      expected: "one channel",
+      received: o.channels!.join(", "),
+    });
   const channel = o.channels?.[0];
   const kind = o.as ?? (await sourceKind(file));
   if (kind === "profile") {
@@ -104,27 +152,67 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
     // --fmin/--fmax cut the profile's own band (each segment keeps its power law).
     const lo = Math.max(o.fminHz ?? 0, p.segments[0]!.f1);
     const hi = Math.min(o.fmaxHz ?? Infinity, p.segments[p.segments.length - 1]!.f2);
-    if (!(hi > lo)) throw new InputError("OPTION_INVALID", { file, option: "fminHz", expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`, received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz` });
-    const segments = p.segments.filter((s) => s.f2 > lo && s.f1 < hi).map((s) => {
-      const f1 = Math.max(s.f1, lo);
-      return { f1, f2: Math.min(s.f2, hi), g1: s.g1 * Math.pow(f1 / s.f1, s.exponent), exponent: s.exponent };
-    });
+    if (!(hi > lo))
+      throw new InputError("OPTION_INVALID", {
+        file,
+        option: "fminHz",
+        expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`,
+        received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz`,
+      });
+    const segments = p.segments
+      .filter((s) => s.f2 > lo && s.f1 < hi)
+      .map((s) => {
+        const f1 = Math.max(s.f1, lo);
+        return { f1, f2: Math.min(s.f2, hi), g1: s.g1 * Math.pow(f1 / s.f1, s.exponent), exponent: s.exponent };
+      });
     const spectrum = powerLawSpectrum(segments);
     const hz = Float64Array.from([segments[0]!.f1, ...segments.map((s) => s.f2)]);
-    const tones = p.tones.filter((t) => t.hz >= lo && t.hz <= hi).map((t) => ({ label: t.label, hz: t.hz, peak: t.peak }));
-    return { kind, file, sha256: p.sha256, label: p.title, units: p.units, spectrum, durationS: p.durationS, frequencyHz: hz, level: hz.map((f) => spectrum.level(f)), ...(tones.length > 0 ? { tones } : {}) };
+    const tones = p.tones
+      .filter((t) => t.hz >= lo && t.hz <= hi)
+      .map((t) => ({ label: t.label, hz: t.hz, peak: t.peak }));
+    return {
+      kind,
+      file,
+      sha256: p.sha256,
+      label: p.title,
+      units: p.units,
+      spectrum,
+      durationS: p.durationS,
+      frequencyHz: hz,
+      level: hz.map((f) => spectrum.level(f)),
+      ...(tones.length > 0 ? { tones } : {}),
+    };
   }
   if (kind === "psd") {
     const t = await readPsdTable(file);
-    const ch = t.channels[channel === undefined ? 0 : channelIndex(t.channels, channel, { option: channelOption, file })]!;
+    const ch =
+      t.channels[channel === undefined ? 0 : channelIndex(t.channels, channel, { option: channelOption, file })]!;
     const { lo, hi } = lineBand(file, t.frequencyHz, o);
-    return { kind, file, sha256: t.sha256, label: ch.name, units: ch.units, spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi), durationS: undefined, frequencyHz: t.frequencyHz, level: ch.psd };
+    return {
+      kind,
+      file,
+      sha256: t.sha256,
+      label: ch.name,
+      units: ch.units,
+      spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi),
+      durationS: undefined,
+      frequencyHz: t.frequencyHz,
+      level: ch.psd,
+    };
   }
   const { response, ...reading } = o;
   const listener = response !== undefined ? new TimeResponses(response) : undefined;
-  const a = await analyzeRecording(file, { ...reading, channels: [channel ?? "1"], fminHz: undefined, fmaxHz: undefined, accumulators: listener ? [listener] : undefined }).catch((e: unknown) => {
+  const a = await analyzeRecording(file, {
+    ...reading,
+    channels: [channel ?? "1"],
+    fminHz: undefined,
+    fmaxHz: undefined,
+    accumulators: listener ? [listener] : undefined,
+  }).catch((e: unknown) => {
     // The pass names its own key; the channel came from `channelOption` (respond's --against input: `againstChannel`).
-    throw e instanceof InputError && e.code === "CHANNEL_NOT_FOUND" && e.details.option === "channels" ? new InputError(e.code, { ...e.details, option: channelOption }) : e;
+    throw e instanceof InputError && e.code === "CHANNEL_NOT_FOUND" && e.details.option === "channels"
+      ? new InputError(e.code, { ...e.details, option: channelOption })
+      : e;
   });
   const c = a.channels[0]!;
   const tr = a.extras[0] as TimeResponse | undefined;
@@ -132,14 +220,39 @@ export async function loadSpectrumSource(file: string, o: SourceOptions = {}, ch
   if (short) throw short;
   const { lo, hi } = lineBand(file, c.psd.frequencyHz, o);
   return {
-    kind, file, sha256: a.input.sha256, label: c.name, units: c.units, spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi),
+    kind,
+    file,
+    sha256: a.input.sha256,
+    label: c.name,
+    units: c.units,
+    spectrum: lineSpectrum(c.psd.frequencyHz, c.psd.psd, lo, hi),
     // The natural length is the analysed window's (--from/--to), not the file's.
     durationS: a.window.frames / a.input.sampleRateHz,
     reading: c.reading,
-    window: { fromS: a.window.fromS, toS: a.window.toS, durationS: a.window.frames / a.input.sampleRateHz, whole: a.window.frames === a.input.samples },
-    frequencyHz: c.psd.frequencyHz, level: c.psd.psd,
-    timeResponse: tr ? { ...tr, mean: c.stats.mean, kurtosis: c.stats.kurtosis, recordS: tr.samples / a.input.sampleRateHz, sampleRateHz: a.input.sampleRateHz } : undefined,
-    settings: { segmentLength: a.settings.segmentLength, resolutionHz: a.settings.resolutionHz, window: a.settings.window, averages: c.psd.averages, dof: c.psd.dof },
+    window: {
+      fromS: a.window.fromS,
+      toS: a.window.toS,
+      durationS: a.window.frames / a.input.sampleRateHz,
+      whole: a.window.frames === a.input.samples,
+    },
+    frequencyHz: c.psd.frequencyHz,
+    level: c.psd.psd,
+    timeResponse: tr
+      ? {
+          ...tr,
+          mean: c.stats.mean,
+          kurtosis: c.stats.kurtosis,
+          recordS: tr.samples / a.input.sampleRateHz,
+          sampleRateHz: a.input.sampleRateHz,
+        }
+      : undefined,
+    settings: {
+      segmentLength: a.settings.segmentLength,
+      resolutionHz: a.settings.resolutionHz,
+      window: a.settings.window,
+      averages: c.psd.averages,
+      dof: c.psd.dof,
+    },
   };
 }
 
@@ -195,18 +308,22 @@ export interface ResponseSpectra {
    * relative displacement; its largest |acceleration response|), and the PSD-based values move here.
    */
   fromPsd?: { fatigueDamage: Float64Array; extremePeak: Float64Array } | undefined;
-  timeDomain?: {
-    recordS: number; kurtosis: number; sampleRateHz: number;
-    /** Largest |absolute-acceleration response - mean| over the record, per f_n. */
-    recordPeak: Float64Array;
-    /** Rainflow damage over the record alone (before scaling to the exposure). */
-    recordDamage: Float64Array;
-    /** Natural frequencies above fs/4, left out (NaN): the sampled response cannot follow them. */
-    skippedHz: number[];
-    /** Natural frequencies between fs/10 and fs/4: the sampled peak can fall short by up to 1 - cos(pi fn / fs). */
-    coarseHz: number[];
-    heldSamples: number;
-  } | undefined;
+  timeDomain?:
+    | {
+        recordS: number;
+        kurtosis: number;
+        sampleRateHz: number;
+        /** Largest |absolute-acceleration response - mean| over the record, per f_n. */
+        recordPeak: Float64Array;
+        /** Rainflow damage over the record alone (before scaling to the exposure). */
+        recordDamage: Float64Array;
+        /** Natural frequencies above fs/4, left out (NaN): the sampled response cannot follow them. */
+        skippedHz: number[];
+        /** Natural frequencies between fs/10 and fs/4: the sampled peak can fall short by up to 1 - cos(pi fn / fs). */
+        coarseHz: number[];
+        heldSamples: number;
+      }
+    | undefined;
 }
 
 /**
@@ -218,7 +335,13 @@ export interface ResponseSpectra {
  *   longer exposure (1 when T = T_r). This keeps the record's non-Gaussian excess; it does not know the shocks
  *   of a service longer than the record.
  */
-function timeDomainFigures(src: SpectrumSource, o: ResponseOptions, sn: SnCurve, durationS: number, upcrossingRateHz: Float64Array) {
+function timeDomainFigures(
+  src: SpectrumSource,
+  o: ResponseOptions,
+  sn: SnCurve,
+  durationS: number,
+  upcrossingRateHz: Float64Array,
+) {
   const t = src.timeResponse!;
   const n = o.fnHz.length;
   const toSi = accelFactor(src.units, "m/s2");
@@ -240,9 +363,11 @@ function timeDomainFigures(src: SpectrumSource, o: ResponseOptions, sn: SnCurve,
     recordPeak[i] = p;
     const sum = t.rainflowSum[i]!;
     // sum (K toSi range/2)^b / C, in logs (the sum is in input units x s^2).
-    recordDamage[i] = sum > 0 ? Math.exp(Math.log(sum) + sn.basquinB * Math.log(sn.stressPerUnit * toSi) - Math.log(sn.snConstant)) : 0;
+    recordDamage[i] =
+      sum > 0 ? Math.exp(Math.log(sum) + sn.basquinB * Math.log(sn.stressPerUnit * toSi) - Math.log(sn.snConstant)) : 0;
     damage[i] = recordDamage[i]! * (durationS / t.recordS);
-    const grow = davenportPeakFactor(upcrossingRateHz[i]! * durationS) / davenportPeakFactor(upcrossingRateHz[i]! * t.recordS);
+    const grow =
+      davenportPeakFactor(upcrossingRateHz[i]! * durationS) / davenportPeakFactor(upcrossingRateHz[i]! * t.recordS);
     peak[i] = p * (Number.isFinite(grow) ? grow : 1);
   }
   return { damage, peak, recordDamage, recordPeak, skippedHz, coarseHz };
@@ -251,7 +376,12 @@ function timeDomainFigures(src: SpectrumSource, o: ResponseOptions, sn: SnCurve,
 /** Grid "A:B[:N]" (N per octave, default 6, geometric from A to B inclusive), a list "A,B,C" or one value. */
 export function parseFnGrid(text: string, option = "fn"): Float64Array {
   const bad = (received: string): never => {
-    throw new InputError("OPTION_INVALID", { option, expected: "A:B or A:B:N (N natural frequencies per octave, default 6) or a list A,B,C of frequencies in Hz above 0", received });
+    throw new InputError("OPTION_INVALID", {
+      option,
+      expected:
+        "A:B or A:B:N (N natural frequencies per octave, default 6) or a list A,B,C of frequencies in Hz above 0",
+      received,
+    });
   };
   const t = text.trim();
   if (t.includes(":")) {
@@ -272,20 +402,47 @@ export function parseFnGrid(text: string, option = "fn"): Float64Array {
 
 export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
   const q = o.q;
-  if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
+  if (!(q > 0.5 && q <= 1000))
+    throw new InputError("OPTION_INVALID", {
+      option: "q",
+      expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))",
+      received: String(q),
+    });
   // A profile without durationS or a PSD table has no length of its own: the response RMS, Miles, the
   // displacement and Rice's rates need none; the largest peak and the damage do, and stay NaN without it.
   const durationS = o.durationS ?? src.durationS;
-  if (durationS !== undefined && (!(durationS > 0) || !Number.isFinite(durationS))) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure time in s above 0", received: String(durationS) });
-  const sn: SnCurve = { ...SN_DEFAULTS, ...Object.fromEntries(Object.entries(o.sn ?? {}).filter(([, v]) => v !== undefined)) };
-  if (!(sn.basquinB >= 1 && sn.basquinB <= 30)) throw new InputError("OPTION_INVALID", { option: "basquinB", expected: "a Basquin exponent b from 1 to 30", received: String(sn.basquinB) });
+  if (durationS !== undefined && (!(durationS > 0) || !Number.isFinite(durationS)))
+    throw new InputError("OPTION_INVALID", {
+      option: "durationS",
+      expected: "an exposure time in s above 0",
+      received: String(durationS),
+    });
+  const sn: SnCurve = {
+    ...SN_DEFAULTS,
+    ...Object.fromEntries(Object.entries(o.sn ?? {}).filter(([, v]) => v !== undefined)),
+  };
+  if (!(sn.basquinB >= 1 && sn.basquinB <= 30))
+    throw new InputError("OPTION_INVALID", {
+      option: "basquinB",
+      expected: "a Basquin exponent b from 1 to 30",
+      received: String(sn.basquinB),
+    });
   const toSi = accelFactor(src.units, "m/s2");
   const s = src.spectrum;
   const n = o.fnHz.length;
   const out = (): Float64Array => new Float64Array(n);
   const r = {
-    accelRms: out(), milesRms: out(), relDispRms: out(), relDispMilesRms: out(), upcrossingRateHz: out(), peakRateHz: out(), irregularity: out(),
-    peakFactor: out(), extremePeak: out(), stressCycleRateHz: out(), fatigueDamage: out(),
+    accelRms: out(),
+    milesRms: out(),
+    relDispRms: out(),
+    relDispMilesRms: out(),
+    upcrossingRateHz: out(),
+    peakRateHz: out(),
+    irregularity: out(),
+    peakFactor: out(),
+    extremePeak: out(),
+    stressCycleRateHz: out(),
+    fatigueDamage: out(),
   };
   for (let i = 0; i < n; i++) {
     const fn = o.fnHz[i]!;
@@ -311,11 +468,16 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     // A figure that overflows is not a result: name the settings that made it, rather than print Infinity.
     // (Without an exposure the figures that need one are left out, as NaN, by design.)
     if (durationS !== undefined && !Number.isFinite(r.extremePeak[i]!)) {
-      throw new InputError("OPTION_INVALID", { option: "durationS", expected: "an exposure for which the largest peak is a finite number", received: `${durationS} s (largest peak ${r.extremePeak[i]} at ${o.fnHz[i]} Hz)` });
+      throw new InputError("OPTION_INVALID", {
+        option: "durationS",
+        expected: "an exposure for which the largest peak is a finite number",
+        received: `${durationS} s (largest peak ${r.extremePeak[i]} at ${o.fnHz[i]} Hz)`,
+      });
     }
     if (durationS !== undefined && !Number.isFinite(r.fatigueDamage[i]!)) {
       throw new InputError("OPTION_INVALID", {
-        option: "stressPerUnit", expected: "an S-N curve, stress per metre and exposure for which the damage is a finite number",
+        option: "stressPerUnit",
+        expected: "an S-N curve, stress per metre and exposure for which the damage is a finite number",
         received: `damage ${r.fatigueDamage[i]} at ${o.fnHz[i]} Hz (b ${sn.basquinB}, C ${sn.snConstant}, stress ${sn.stressPerUnit} per metre, ${durationS} s)`,
       });
     }
@@ -326,7 +488,12 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
   const gk = src.level.filter((_, k) => keep[k] === 1);
   let stroke: ResponseSpectra["stroke"];
   if (o.strokeMm !== undefined) {
-    if (!(o.strokeMm > 0) || !Number.isFinite(o.strokeMm)) throw new InputError("OPTION_INVALID", { option: "strokeMm", expected: "a rated peak-to-peak stroke in mm above 0", received: String(o.strokeMm) });
+    if (!(o.strokeMm > 0) || !Number.isFinite(o.strokeMm))
+      throw new InputError("OPTION_INVALID", {
+        option: "strokeMm",
+        expected: "a rated peak-to-peak stroke in mm above 0",
+        received: String(o.strokeMm),
+      });
     const est = m.displacementPeakToPeak * 1000;
     stroke = { ratedMm: o.strokeMm, estimateMm: est, margin: o.strokeMm / est, withinRating: est <= o.strokeMm };
   }
@@ -353,17 +520,41 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
   let timeDomain: ResponseSpectra["timeDomain"];
   const t = src.timeResponse;
   if (t !== undefined && durationS !== undefined) {
-    if (t.q !== q || t.basquinB !== sn.basquinB || t.fnHz.length !== n || t.fnHz.some((f, i) => f !== o.fnHz[i])) throw new RangeError("the recording's time-domain responses were computed for another grid, Q or b");
+    if (t.q !== q || t.basquinB !== sn.basquinB || t.fnHz.length !== n || t.fnHz.some((f, i) => f !== o.fnHz[i]))
+      throw new RangeError("the recording's time-domain responses were computed for another grid, Q or b");
     const td = timeDomainFigures(src, o, sn, durationS, r.upcrossingRateHz);
     fromPsd = { fatigueDamage: r.fatigueDamage, extremePeak: r.extremePeak };
     r.fatigueDamage = td.damage;
     r.extremePeak = td.peak;
-    timeDomain = { recordS: t.recordS, kurtosis: t.kurtosis, sampleRateHz: t.sampleRateHz, recordPeak: td.recordPeak, recordDamage: td.recordDamage, skippedHz: td.skippedHz, coarseHz: td.coarseHz, heldSamples: t.heldSamples };
+    timeDomain = {
+      recordS: t.recordS,
+      kurtosis: t.kurtosis,
+      sampleRateHz: t.sampleRateHz,
+      recordPeak: td.recordPeak,
+      recordDamage: td.recordDamage,
+      skippedHz: td.skippedHz,
+      coarseHz: td.coarseHz,
+      heldSamples: t.heldSamples,
+    };
   }
   const { spectrum: _s, frequencyHz: _f, level: _l, tones: _t, timeResponse: _tr, ...source } = src;
   return {
-    source, band: { fromHz: s.fminHz, toHz: s.fmaxHz }, fnHz: o.fnHz, q, durationS, sn, needsDuration: durationS === undefined ? ["the largest peak (Davenport)", "the fatigue damage"] : [], ...r, fromPsd, timeDomain,
-    motion: { ...m, frequencyHz: fk, velocityPsd: velocityPsd(fk, gk, toSi), displacementPsd: displacementPsd(fk, gk, toSi) },
+    source,
+    band: { fromHz: s.fminHz, toHz: s.fmaxHz },
+    fnHz: o.fnHz,
+    q,
+    durationS,
+    sn,
+    needsDuration: durationS === undefined ? ["the largest peak (Davenport)", "the fatigue damage"] : [],
+    ...r,
+    fromPsd,
+    timeDomain,
+    motion: {
+      ...m,
+      frequencyHz: fk,
+      velocityPsd: velocityPsd(fk, gk, toSi),
+      displacementPsd: displacementPsd(fk, gk, toSi),
+    },
     stroke,
     ...(tones ? { tones, totalAccelRms } : {}),
   };
@@ -386,7 +577,8 @@ export function compareResponses(a: ResponseSpectra, b: ResponseSpectra): Respon
   const extremeRatioDb = new Float64Array(n);
   const damageRatio = new Float64Array(n);
   const under = { rms: [] as number[], extreme: [] as number[], damage: [] as number[] };
-  if (b.fnHz.length !== n || b.fnHz.some((f, i) => f !== a.fnHz[i])) throw new RangeError("the two response spectra have different natural-frequency grids");
+  if (b.fnHz.length !== n || b.fnHz.some((f, i) => f !== a.fnHz[i]))
+    throw new RangeError("the two response spectra have different natural-frequency grids");
   // Both in m/s^2 before the ratio (the damage is already in metres of relative displacement).
   const unit = accelFactor(b.source.units, "m/s2") / accelFactor(a.source.units, "m/s2");
   for (let i = 0; i < n; i++) {
@@ -415,14 +607,22 @@ export interface RespondRerun {
 }
 
 /** Run `respond` on a source (and its --against input, when given) with the options of a RespondRerun. */
-export async function runResponse(source: string, o: RespondRerun, againstFile?: string): Promise<{ r: ResponseSpectra; against?: { b: ResponseSpectra; c: ResponseComparison } | undefined }> {
+export async function runResponse(
+  source: string,
+  o: RespondRerun,
+  againstFile?: string,
+): Promise<{ r: ResponseSpectra; against?: { b: ResponseSpectra; c: ResponseComparison } | undefined }> {
   const fnHz = parseFnGrid(o.fn);
   // A recording is also filtered through each SDOF in time: damage by rainflow, the largest response (the non-Gaussian part the PSD hides).
   const response = { fnHz, q: o.q, basquinB: o.sn?.basquinB ?? SN_DEFAULTS.basquinB };
   const a = await loadSpectrumSource(source, { ...o.source, response });
   const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.durationS, sn: o.sn, strokeMm: o.strokeMm });
   if (o.against === undefined) return { r };
-  const bsrc = await loadSpectrumSource(againstFile ?? o.against.file, { ...o.against.options, response }, "againstChannel");
+  const bsrc = await loadSpectrumSource(
+    againstFile ?? o.against.file,
+    { ...o.against.options, response },
+    "againstChannel",
+  );
   const b = responseSpectra(bsrc, { fnHz, q: o.q, durationS: o.against.durationS, sn: o.sn });
   return { r, against: { b, c: compareResponses(r, b) } };
 }

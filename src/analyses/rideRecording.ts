@@ -1,16 +1,36 @@
-import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "../pass/analyzeRecording.js";
+import {
+  analyzeSource,
+  type AnalysisOptions,
+  type PassAccumulator,
+  type RecordingAnalysis,
+} from "../pass/analyzeRecording.js";
 import type { ResolvedAnalysis } from "../pass/analysisOptions.js";
 import { channelIndex } from "../read/channelChoice.js";
 import {
-  axisRules, basicMethodCheck, comfortReactions, dailyExposure, seatTransmissibility, vibrationTotalValue, ISO_2631_HEALTH_ZONE, type HealthZone,
-  type Axis, type AxisRule, type BasicMethodCheck, type DailyExposure, type Posture,
+  axisRules,
+  basicMethodCheck,
+  comfortReactions,
+  dailyExposure,
+  seatTransmissibility,
+  vibrationTotalValue,
+  ISO_2631_HEALTH_ZONE,
+  type HealthZone,
+  type Axis,
+  type AxisRule,
+  type BasicMethodCheck,
+  type DailyExposure,
+  type Posture,
 } from "../compare/wholeBodyExposure.js";
 import { InputError, quoted } from "../errors.js";
 import type { PeakHoldPsd } from "../estimate/spectral/peakHoldPsd.js";
 import type { Finding } from "../findings.js";
 import { stationarityFinding, type StationarityFinding } from "../estimate/statistics/stationarityTests.js";
 import { WelchWeightedMeanSquare } from "../estimate/spectral/welchTimeWeights.js";
-import { BandSpectrogramAccumulator, thirdOctaveBands, type BandSpectrogram } from "../estimate/spectral/bandSpectrogram.js";
+import {
+  BandSpectrogramAccumulator,
+  thirdOctaveBands,
+  type BandSpectrogram,
+} from "../estimate/spectral/bandSpectrogram.js";
 import { SegmentPower } from "../estimate/spectral/segmentPower.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import { openTimeHistory } from "../read/openTimeHistory.js";
@@ -18,7 +38,13 @@ import type { TimeHistorySource } from "../read/timeHistory.js";
 import type { BiquadCascade } from "../weight/bilinearBiquads.js";
 import { THIRD_OCTAVE_CENTRES_HZ, weightingPowerGains, type WeightingName } from "../weight/isoWeightings.js";
 import { VibrationDoseAccumulator, type VibrationDose } from "../weight/vibrationDose.js";
-import { designWeightingFilter, MIN_WEIGHTING_RATE_HZ, SETTLE_S, weightingCascade, type WeightingFilterDesign } from "../weight/weightingFilter.js";
+import {
+  designWeightingFilter,
+  MIN_WEIGHTING_RATE_HZ,
+  SETTLE_S,
+  weightingCascade,
+  type WeightingFilterDesign,
+} from "../weight/weightingFilter.js";
 
 /**
  * A ride recording judged for whole-body vibration (ISO 2631-1:1997, Directive 2002/44/EC): one pass
@@ -26,7 +52,8 @@ import { designWeightingFilter, MIN_WEIGHTING_RATE_HZ, SETTLE_S, weightingCascad
  * time-domain weighted signal's a_w, crest factor, VDV, running r.m.s. and MTVV. a_w also comes from the
  * PSD, sum |W(f)|^2 P(f) df, and the two routes are compared.
  */
-export interface RideOptions extends Omit<AnalysisOptions, "channels" | "resultUnits" | "accumulators" | "spectrum" | "histogram"> {
+export interface RideOptions
+  extends Omit<AnalysisOptions, "channels" | "resultUnits" | "accumulators" | "spectrum" | "histogram"> {
   /** Channel (name or 1-based position) of each measured axis; at least one. */
   axes: Partial<Record<Axis, string>>;
   posture: Posture;
@@ -57,7 +84,13 @@ export interface RideAxis {
   basicMethod: BasicMethodCheck;
   /** Reverse-arrangements test on the weighted stretch mean squares. */
   stationarity: StationarityFinding;
-  filter: { method: "bilinear" | "fitted"; maxErrorPct: number; maxErrorAtHz: number; topCentreHz: number; heldSamples: number };
+  filter: {
+    method: "bilinear" | "fitted";
+    maxErrorPct: number;
+    maxErrorAtHz: number;
+    topCentreHz: number;
+    heldSamples: number;
+  };
   /** Unweighted one-third-octave spectrogram, when asked for. */
   spectrogram?: BandSpectrogram | undefined;
   /** Unweighted peak-hold spectrum (the largest stretch PSD at each line), when `peakHoldS` asks for one. */
@@ -75,7 +108,16 @@ export interface RideResult {
   exposure?: DailyExposure | undefined;
   /** The caution zone the exposure is placed in, and where its values came from. */
   healthZone: HealthZone & { from: "default" | "given" };
-  seat?: { floorChannel: string; awFloor: number; awFloorFromPsd: number; awFloorWelchWeighted: number; awSeat: number; seat: number } | undefined;
+  seat?:
+    | {
+        floorChannel: string;
+        awFloor: number;
+        awFloorFromPsd: number;
+        awFloorWelchWeighted: number;
+        awSeat: number;
+        seat: number;
+      }
+    | undefined;
   /** What the ride notes and doubts, as findings with their codes and numbers (report/findingTexts.ts says them). */
   notes: Finding[];
   doubts: Finding[];
@@ -85,7 +127,18 @@ export interface RideResult {
 export const ROUTE_TOLERANCE = 0.01;
 
 /** The extra accumulator: weights each listed channel in the time domain and feeds its dose figures. */
-class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: WeightingFilterDesign; heldSamples: number; welchMeanSquare: number; spectrogram?: BandSpectrogram | undefined }[]> {
+class WeightedDoses
+  implements
+    PassAccumulator<
+      {
+        dose: VibrationDose;
+        design: WeightingFilterDesign;
+        heldSamples: number;
+        welchMeanSquare: number;
+        spectrogram?: BandSpectrogram | undefined;
+      }[]
+    >
+{
   private filters: BiquadCascade[] = [];
   private spectrograms: (BandSpectrogramAccumulator | undefined)[] = [];
   private welch: WelchWeightedMeanSquare[] = [];
@@ -98,7 +151,9 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
   private settled = false;
 
   constructor(
-    private readonly file: string, private readonly plan: { index: number; weighting: WeightingName }[], private readonly runningRmsS: number,
+    private readonly file: string,
+    private readonly plan: { index: number; weighting: WeightingName }[],
+    private readonly runningRmsS: number,
     private readonly spectrogram: boolean,
   ) {}
 
@@ -108,7 +163,9 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
       // A rate the reader could not settle (a degenerate CSV) is left to the read's own error.
       if (!Number.isFinite(designRateHz)) return;
       throw new InputError("RIDE_RATE_TOO_LOW", {
-        file: this.file, expected: `a sample rate of at least ${MIN_WEIGHTING_RATE_HZ} Hz (below it the record covers less than the ISO 2631-1 bands to 40 Hz)`, received: `${designRateHz} Hz`,
+        file: this.file,
+        expected: `a sample rate of at least ${MIN_WEIGHTING_RATE_HZ} Hz (below it the record covers less than the ISO 2631-1 bands to 40 Hz)`,
+        received: `${designRateHz} Hz`,
       });
     }
     this.designs = this.plan.map((p) => designWeightingFilter(p.weighting, designRateHz));
@@ -121,7 +178,17 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
     this.welch = this.plan.map(() => new WelchWeightedMeanSquare(window, g.hop));
     const power = new SegmentPower(n);
     const bands = thirdOctaveBands(THIRD_OCTAVE_CENTRES_HZ.filter((c) => c * 2 ** (1 / 6) < designRateHz / 2));
-    this.spectrograms = this.plan.map(() => (this.spectrogram ? new BandSpectrogramAccumulator({ segmentLength: n, hop: g.hop, window, detrend: g.detrend }, power, 2 * n, bands, designRateHz) : undefined));
+    this.spectrograms = this.plan.map(() =>
+      this.spectrogram
+        ? new BandSpectrogramAccumulator(
+            { segmentLength: n, hop: g.hop, window, detrend: g.detrend },
+            power,
+            2 * n,
+            bands,
+            designRateHz,
+          )
+        : undefined,
+    );
   }
 
   push(blocks: Float64Array[], frames: number): void {
@@ -131,7 +198,8 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
       // Hold the first SETTLE_S seconds: the filters settle on them (played backwards) before the first sample.
       const len = this.head[0]?.length ?? 0;
       const take = Math.min(frames, len - this.headFill);
-      for (let i = 0; i < this.plan.length; i++) this.head[i]!.set(blocks[this.plan[i]!.index]!.subarray(0, take), this.headFill);
+      for (let i = 0; i < this.plan.length; i++)
+        this.head[i]!.set(blocks[this.plan[i]!.index]!.subarray(0, take), this.headFill);
       this.headFill += take;
       from = take;
       if (this.headFill < len) return;
@@ -157,12 +225,23 @@ class WeightedDoses implements PassAccumulator<{ dose: VibrationDose; design: We
 
   finish(sampleRateHz: number) {
     if (!this.settled) this.flushHead();
-    return this.plan.map((_, i) => ({ dose: this.doses[i]!.finish(sampleRateHz), design: this.designs[i]!, heldSamples: this.filters[i]!.heldSamples, welchMeanSquare: this.welch[i]!.finish().meanSquare, spectrogram: this.spectrograms[i]?.finish(sampleRateHz) }));
+    return this.plan.map((_, i) => ({
+      dose: this.doses[i]!.finish(sampleRateHz),
+      design: this.designs[i]!,
+      heldSamples: this.filters[i]!.heldSamples,
+      welchMeanSquare: this.welch[i]!.finish().meanSquare,
+      spectrogram: this.spectrograms[i]?.finish(sampleRateHz),
+    }));
   }
 }
 
 /** a_w from a one-sided PSD: sqrt(sum_k |W(f_k)|^2 P_k df), the DC line included at its own weight (zero). */
-export function weightedRmsFromPsd(psd: Float64Array, frequencyHz: Float64Array, lineSpacingHz: number, weighting: WeightingName): number {
+export function weightedRmsFromPsd(
+  psd: Float64Array,
+  frequencyHz: Float64Array,
+  lineSpacingHz: number,
+  weighting: WeightingName,
+): number {
   const g = weightingPowerGains(weighting, frequencyHz);
   let s = 0;
   for (let k = 0; k < psd.length; k++) s += g[k]! * psd[k]!;
@@ -181,19 +260,43 @@ export async function rideRecording(file: string, options: RideOptions): Promise
 async function ridePass(source: TimeHistorySource, options: RideOptions) {
   const { info } = source;
   const axes = (["x", "y", "z"] as const).filter((a) => options.axes[a] !== undefined);
-  if (axes.length === 0) throw new InputError("OPTION_INVALID", { option: "axes", expected: "at least one of x=CH, y=CH, z=CH", received: "none" });
+  if (axes.length === 0)
+    throw new InputError("OPTION_INVALID", {
+      option: "axes",
+      expected: "at least one of x=CH, y=CH, z=CH",
+      received: "none",
+    });
   if (options.exposureS !== undefined && !(options.exposureS > 0 && options.exposureS <= 86400)) {
-    throw new InputError("OPTION_INVALID", { option: "exposureS", expected: "a daily exposure above 0 and at most 24 h", received: String(options.exposureS) });
+    throw new InputError("OPTION_INVALID", {
+      option: "exposureS",
+      expected: "a daily exposure above 0 and at most 24 h",
+      received: String(options.exposureS),
+    });
   }
   const names = axes.map((a) => options.axes[a]!);
   if (options.floor !== undefined) names.push(options.floor);
-  const indexes = names.map((n, i) => channelIndex(info.channels, n, { option: i < axes.length ? "axes" : "floor", file: info.file }));
+  const indexes = names.map((n, i) =>
+    channelIndex(info.channels, n, { option: i < axes.length ? "axes" : "floor", file: info.file }),
+  );
   const dup = indexes.findIndex((v, i) => indexes.indexOf(v) !== i);
-  if (dup >= 0) throw new InputError("OPTION_INVALID", { option: dup < axes.length ? "axes" : "floor", expected: "a different channel for each axis and the floor", received: quoted(names[dup]!) });
+  if (dup >= 0)
+    throw new InputError("OPTION_INVALID", {
+      option: dup < axes.length ? "axes" : "floor",
+      expected: "a different channel for each axis and the floor",
+      received: quoted(names[dup]!),
+    });
   const rules = axisRules(options.posture);
-  const plan = names.map((_, i) => ({ index: i, weighting: i < axes.length ? rules[axes[i]!].weighting : ("Wk" as WeightingName) }));
+  const plan = names.map((_, i) => ({
+    index: i,
+    weighting: i < axes.length ? rules[axes[i]!].weighting : ("Wk" as WeightingName),
+  }));
   const runningRmsS = options.runningRmsS ?? 1;
-  if (!(runningRmsS > 0 && runningRmsS <= 60)) throw new InputError("OPTION_INVALID", { option: "runningRmsS", expected: "an integration time in s, 0 < t <= 60", received: String(runningRmsS) });
+  if (!(runningRmsS > 0 && runningRmsS <= 60))
+    throw new InputError("OPTION_INVALID", {
+      option: "runningRmsS",
+      expected: "an integration time in s, 0 < t <= 60",
+      received: String(runningRmsS),
+    });
   // Ride defaults: lines of 0.125 Hz or finer, so the 0.4 Hz band limit and the Wd plateau near 1 Hz are
   // resolved (common practice), and 75 % overlap, where a Hann window's w^2 adds up to a constant, so
   // every sample inside the record counts alike in the PSD (a pothole weighs the same wherever it falls).
@@ -204,14 +307,24 @@ async function ridePass(source: TimeHistorySource, options: RideOptions) {
   const weighted = new WeightedDoses(info.file, plan, runningRmsS, options.spectrogram === true);
   // One resolveAnalysis: the pass resolves Welch's settings with ride's defaults and hands them to the listener.
   const analysis = await analyzeSource(source, {
-    ...options, ...welch, channels: indexes.map((i) => i + 1), resultUnits: "m/s2", accumulators: [weighted], stretchS: options.stretchS ?? runningRmsS,
+    ...options,
+    ...welch,
+    channels: indexes.map((i) => i + 1),
+    resultUnits: "m/s2",
+    accumulators: [weighted],
+    stretchS: options.stretchS ?? runningRmsS,
   });
   const results = analysis.extras[0] as ReturnType<WeightedDoses["finish"]>;
   // No figures from no data: an axis whose every sample is NaN or infinite has no a_w, VDV or MTVV (the
   // filters hold the last finite value, and there is none), so it is refused rather than shown as 0.
   for (const ch of analysis.channels) {
     if (analysis.window.frames === 0 || ch.stats.nonFinite >= analysis.window.frames) {
-      throw new InputError("RECORD_TOO_SHORT", { file: analysis.input.file, field: ch.name, expected: "finite samples to weight", received: `${analysis.window.frames} samples, ${analysis.window.frames === 0 ? "none" : "all"} of them NaN or infinite` });
+      throw new InputError("RECORD_TOO_SHORT", {
+        file: analysis.input.file,
+        field: ch.name,
+        expected: "finite samples to weight",
+        received: `${analysis.window.frames} samples, ${analysis.window.frames === 0 ? "none" : "all"} of them NaN or infinite`,
+      });
     }
   }
   return { axes, rules, plan, analysis, results };
@@ -242,47 +355,109 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     // The first failed test among the weighted and unweighted stretches: reverse arrangements (trends) or the
     // run test (clusters, such as a stop mid-record, which a trend test does not see).
     const tests = [
-      { t: stationarity.reverseArrangements, of: "weighted" }, { t: stationarity.runs, of: "weighted" },
-      { t: ch.stationarity.reverseArrangements, of: "unweighted" }, { t: ch.stationarity.runs, of: "unweighted" },
+      { t: stationarity.reverseArrangements, of: "weighted" },
+      { t: stationarity.runs, of: "weighted" },
+      { t: ch.stationarity.reverseArrangements, of: "unweighted" },
+      { t: ch.stationarity.runs, of: "unweighted" },
     ];
     const moving = tests.find((x) => x.t !== undefined && !x.t.stationary);
-    const movingValues: Record<string, number> = moving ? { statistic: moving.t!.statistic, acceptAbove: moving.t!.acceptAbove, acceptAtMost: moving.t!.acceptAtMost, values: moving.t!.n } : {};
+    const movingValues: Record<string, number> = moving
+      ? {
+          statistic: moving.t!.statistic,
+          acceptAbove: moving.t!.acceptAbove,
+          acceptAtMost: moving.t!.acceptAtMost,
+          values: moving.t!.n,
+        }
+      : {};
     // Which level failed which test: the sentence names them (report/findingTexts.ts).
-    const movingAbout = moving ? { level: moving.of, test: moving.t!.test === "runs" ? "runs" : "reverse-arrangements" } : {};
+    const movingAbout = moving
+      ? { level: moving.of, test: moving.t!.test === "runs" ? "runs" : "reverse-arrangements" }
+      : {};
     const onAxis = { axis };
     const onChannel = { axis, channel: ch.name };
-    if (noPsd) notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, about: onAxis });
+    if (noPsd)
+      notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, about: onAxis });
     // The two routes differ by the realisation's own error too (|W| is exact on the PSD route): allowed 1 % plus it.
     else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE + r.design.maxErrorPct / 100)) {
-      const values = { offPercent: 100 * (routeRatio - 1), allowedPercent: Number((100 * ROUTE_TOLERANCE + r.design.maxErrorPct).toPrecision(2)) };
-      if (moving) notes.push({ code: "ROUTES_DIFFER_NOT_STATIONARY", values: { ...values, ...movingValues }, about: { ...onChannel, ...movingAbout } });
+      const values = {
+        offPercent: 100 * (routeRatio - 1),
+        allowedPercent: Number((100 * ROUTE_TOLERANCE + r.design.maxErrorPct).toPrecision(2)),
+      };
+      if (moving)
+        notes.push({
+          code: "ROUTES_DIFFER_NOT_STATIONARY",
+          values: { ...values, ...movingValues },
+          about: { ...onChannel, ...movingAbout },
+        });
       else doubts.push({ code: "ROUTES_DIFFER", values, about: onChannel });
     }
     const plain = awFromPsd / d.rms;
-    if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE) notes.push({ code: "PSD_VS_PLAIN", values: { offPercent: 100 * (plain - 1) }, about: onAxis });
-    if (r.heldSamples > 0) doubts.push({ code: "NON_FINITE_HELD", values: { samples: r.heldSamples }, about: onChannel });
+    if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE)
+      notes.push({ code: "PSD_VS_PLAIN", values: { offPercent: 100 * (plain - 1) }, about: onAxis });
+    if (r.heldSamples > 0)
+      doubts.push({ code: "NON_FINITE_HELD", values: { samples: r.heldSamples }, about: onChannel });
     if (stationarity.tested && !stationarity.stationary) {
       const t = stationarity.reverseArrangements!;
       const dep = stationarity.departing[0];
       notes.push({
         code: "LEVEL_NOT_STATIONARY",
-        values: { statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, ...(dep ? { departingFromS: Math.round(dep.fromS), departingToS: Math.round(dep.toS), departingDb: Math.round(10 * dep.levelDb) / 10 } : {}) },
+        values: {
+          statistic: t.statistic,
+          acceptAbove: t.acceptAbove,
+          acceptAtMost: t.acceptAtMost,
+          values: t.n,
+          ...(dep
+            ? {
+                departingFromS: Math.round(dep.fromS),
+                departingToS: Math.round(dep.toS),
+                departingDb: Math.round(10 * dep.levelDb) / 10,
+              }
+            : {}),
+        },
         about: { ...onAxis, exposure: options.exposureS !== undefined },
       });
     }
     for (const f of ch.doubts) {
       if (f.code === "TOO_SHORT") continue;
-      if (f.code === "PARSEVAL_MISMATCH" && moving) notes.push({ code: "PARSEVAL_NOT_STATIONARY", values: { ...f.values, ...movingValues }, about: { ...f.about, ...onChannel, ...movingAbout } });
+      if (f.code === "PARSEVAL_MISMATCH" && moving)
+        notes.push({
+          code: "PARSEVAL_NOT_STATIONARY",
+          values: { ...f.values, ...movingValues },
+          about: { ...f.about, ...onChannel, ...movingAbout },
+        });
       else doubts.push({ ...f, about: { ...f.about, ...onChannel } });
     }
     for (const f of ch.notes) if (f.code === "HELD_SAMPLES") notes.push({ ...f, about: { ...f.about, ...onChannel } });
     const basicMethod = basicMethodCheck(d.rms, d.crestFactor, d.mtvv, d.vdv, d.durationS);
     if (!basicMethod.adequate) {
-      notes.push({ code: "BASIC_METHOD_EXCEEDED", values: { crestFactor: basicMethod.crestFactor, mtvvRatio: basicMethod.mtvvRatio, vdvRatio: basicMethod.vdvRatio }, about: onAxis });
+      notes.push({
+        code: "BASIC_METHOD_EXCEEDED",
+        values: {
+          crestFactor: basicMethod.crestFactor,
+          mtvvRatio: basicMethod.mtvvRatio,
+          vdvRatio: basicMethod.vdvRatio,
+        },
+        about: onAxis,
+      });
     }
     return {
-      axis, channel: ch.name, weighting, rule: rules[axis], dose: d, awFromPsd, awWelchWeighted, routeRatio, basicMethod, stationarity,
-      filter: { method: r.design.method, maxErrorPct: r.design.maxErrorPct, maxErrorAtHz: r.design.maxErrorAtHz, topCentreHz: r.design.topCentreHz, heldSamples: r.heldSamples },
+      axis,
+      channel: ch.name,
+      weighting,
+      rule: rules[axis],
+      dose: d,
+      awFromPsd,
+      awWelchWeighted,
+      routeRatio,
+      basicMethod,
+      stationarity,
+      filter: {
+        method: r.design.method,
+        maxErrorPct: r.design.maxErrorPct,
+        maxErrorAtHz: r.design.maxErrorAtHz,
+        topCentreHz: r.design.topCentreHz,
+        heldSamples: r.heldSamples,
+      },
       spectrogram: r.spectrogram,
       peakHold: ch.peakHold,
     };
@@ -291,7 +466,12 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
   const worst = results.reduce((w, r) => (r.design.maxErrorPct > w.design.maxErrorPct ? r : w), results[0]!).design;
   notes.unshift({
     code: "WEIGHTING_ERROR",
-    values: { rateHz: fs, maxErrorPercent: Number(worst.maxErrorPct.toPrecision(2)), atHz: worst.maxErrorAtHz, topCentreHz: worst.topCentreHz },
+    values: {
+      rateHz: fs,
+      maxErrorPercent: Number(worst.maxErrorPct.toPrecision(2)),
+      atHz: worst.maxErrorAtHz,
+      topCentreHz: worst.topCentreHz,
+    },
     // Which figures carry the error: those of the exposure and the seat as well, when asked for.
     about: { filters: results.length, exposure: options.exposureS !== undefined, floor: options.floor !== undefined },
   });
@@ -302,23 +482,50 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
     });
   }
   const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));
-  const exposure = options.exposureS !== undefined ? dailyExposure(figures, rules, options.exposureS, options.healthZone ?? ISO_2631_HEALTH_ZONE) : undefined;
-  const healthZone = { ...(options.healthZone ?? ISO_2631_HEALTH_ZONE), from: options.healthZone ? "given" as const : "default" as const };
+  const exposure =
+    options.exposureS !== undefined
+      ? dailyExposure(figures, rules, options.exposureS, options.healthZone ?? ISO_2631_HEALTH_ZONE)
+      : undefined;
+  const healthZone = {
+    ...(options.healthZone ?? ISO_2631_HEALTH_ZONE),
+    from: options.healthZone ? ("given" as const) : ("default" as const),
+  };
   if (exposure === undefined) notes.push({ code: "EXPOSURE_NOT_GIVEN", values: {} });
   const totalValue = {
     health: vibrationTotalValue(figures, (a) => rules[a].healthK),
     comfort: vibrationTotalValue(figures, (a) => rules[a].comfortK),
   };
-  if (axes.length < 3) notes.push({ code: "AXES_MISSING", values: {}, about: { axes: [...axes], exposure: exposure !== undefined } });
+  if (axes.length < 3)
+    notes.push({ code: "AXES_MISSING", values: {}, about: { axes: [...axes], exposure: exposure !== undefined } });
   if (options.posture === "recumbent") notes.push({ code: "POSTURE_RECUMBENT", values: {} });
-  if (options.posture !== "seated") notes.push({ code: "POSTURE_NOT_SEATED", values: {}, about: { posture: options.posture } });
+  if (options.posture !== "seated")
+    notes.push({ code: "POSTURE_NOT_SEATED", values: {}, about: { posture: options.posture } });
   let seat: RideResult["seat"];
   if (options.floor !== undefined) {
     const c = axes.length;
     const floorDose = results[c]!.dose;
     const zAxis = rideAxes.find((a) => a.axis === "z");
     if (zAxis === undefined) notes.push({ code: "FLOOR_WITHOUT_Z", values: {} });
-    else seat = { floorChannel: analysis.channels[c]!.name, awFloor: floorDose.rms, awFloorFromPsd: fromPsd(c, "Wk"), awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare), awSeat: zAxis.dose.rms, seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms) };
+    else
+      seat = {
+        floorChannel: analysis.channels[c]!.name,
+        awFloor: floorDose.rms,
+        awFloorFromPsd: fromPsd(c, "Wk"),
+        awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare),
+        awSeat: zAxis.dose.rms,
+        seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms),
+      };
   }
-  return { analysis, posture: options.posture, axes: rideAxes, totalValue, comfort: { reactions: comfortReactions(totalValue.comfort) }, exposure, healthZone, seat, notes, doubts };
+  return {
+    analysis,
+    posture: options.posture,
+    axes: rideAxes,
+    totalValue,
+    comfort: { reactions: comfortReactions(totalValue.comfort) },
+    exposure,
+    healthZone,
+    seat,
+    notes,
+    doubts,
+  };
 }

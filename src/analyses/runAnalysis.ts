@@ -26,12 +26,25 @@ export type AnalysisResult = RecordingAnalysis | CheckResult;
  * run a recording through here. The modules
  * load on first use: a thread that only runs PSDs never loads the profile code (zod, yaml).
  */
-export async function runAnalysis(job: AnalysisJob & { kind: "psd" }, onProgress?: AnalysisOptions["onProgress"]): Promise<RecordingAnalysis>;
-export async function runAnalysis(job: AnalysisJob & { kind: "check" }, onProgress?: AnalysisOptions["onProgress"]): Promise<CheckResult>;
-export async function runAnalysis(job: AnalysisJob, onProgress?: AnalysisOptions["onProgress"]): Promise<AnalysisResult>;
-export async function runAnalysis(job: AnalysisJob, onProgress?: AnalysisOptions["onProgress"]): Promise<AnalysisResult> {
+export async function runAnalysis(
+  job: AnalysisJob & { kind: "psd" },
+  onProgress?: AnalysisOptions["onProgress"],
+): Promise<RecordingAnalysis>;
+export async function runAnalysis(
+  job: AnalysisJob & { kind: "check" },
+  onProgress?: AnalysisOptions["onProgress"],
+): Promise<CheckResult>;
+export async function runAnalysis(
+  job: AnalysisJob,
+  onProgress?: AnalysisOptions["onProgress"],
+): Promise<AnalysisResult>;
+export async function runAnalysis(
+  job: AnalysisJob,
+  onProgress?: AnalysisOptions["onProgress"],
+): Promise<AnalysisResult> {
   const options = onProgress ? { ...job.options, onProgress } : job.options;
   if (job.kind === "psd") return (await import("../pass/analyzeRecording.js")).analyzeRecording(job.file, options);
-  if (job.profile === undefined) throw new InputError("JOB_INVALID", { file: job.file, expected: "a check job with a profile", received: "none" });
+  if (job.profile === undefined)
+    throw new InputError("JOB_INVALID", { file: job.file, expected: "a check job with a profile", received: "none" });
   return (await import("./checkRecording.js")).checkRecording(job.file, job.profile, options);
 }

@@ -1,7 +1,23 @@
-import { analyzeSource, type AnalysisOptions, type PassAccumulator, type RecordingAnalysis } from "../pass/analyzeRecording.js";
+import {
+  analyzeSource,
+  type AnalysisOptions,
+  type PassAccumulator,
+  type RecordingAnalysis,
+} from "../pass/analyzeRecording.js";
 import { InputError } from "../errors.js";
-import { backgroundRms, EventFinder, gaussianFalseEventRate, type ShockEvent } from "../estimate/response/eventFinder.js";
-import { checkSrsGrid, ShockSpectrumAccumulator, srsRateLimit, SRS_SAMPLES_PER_PERIOD, type ShockSpectrum } from "../estimate/response/shockResponse.js";
+import {
+  backgroundRms,
+  EventFinder,
+  gaussianFalseEventRate,
+  type ShockEvent,
+} from "../estimate/response/eventFinder.js";
+import {
+  checkSrsGrid,
+  ShockSpectrumAccumulator,
+  srsRateLimit,
+  SRS_SAMPLES_PER_PERIOD,
+  type ShockSpectrum,
+} from "../estimate/response/shockResponse.js";
 import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js";
 import { openTimeHistory } from "../read/openTimeHistory.js";
 import { accelFactor, type AccelUnit } from "../units.js";
@@ -78,7 +94,16 @@ export interface ShockChannel {
 
 export interface ShockResult {
   analysis: RecordingAnalysis;
-  settings: { fnHz: Float64Array; q: number; holdS: number; preS: number; postS: number; thresholdGiven?: number | undefined; thresholdFactor?: number | undefined; primaryResidual: boolean };
+  settings: {
+    fnHz: Float64Array;
+    q: number;
+    holdS: number;
+    preS: number;
+    postS: number;
+    thresholdGiven?: number | undefined;
+    thresholdFactor?: number | undefined;
+    primaryResidual: boolean;
+  };
   rate: { sampleRateHz: number; highestFnHz: number; samplesPerPeriod: number; peakShortfallBound: number };
   channels: ShockChannel[];
   /** What the analysis notes and doubts, as findings (report/findingTexts.ts says them). */
@@ -105,15 +130,38 @@ class Events implements PassAccumulator<{ events: ShockEvent[]; srs: ShockSpectr
   private finders: EventFinder[] = [];
   private whole: ShockSpectrumAccumulator[] = [];
   private scratch = new Float64Array(0);
-  constructor(private readonly o: { means: number[]; thresholds: number[]; holdS: number; preS: number; postS: number; fnHz: Float64Array; q: number; maxEvents?: number | undefined; file: string }) {}
+  constructor(
+    private readonly o: {
+      means: number[];
+      thresholds: number[];
+      holdS: number;
+      preS: number;
+      postS: number;
+      fnHz: Float64Array;
+      q: number;
+      maxEvents?: number | undefined;
+      file: string;
+    },
+  ) {}
   start(designRateHz: number): void {
     if (!(Number.isFinite(designRateHz) && designRateHz > 0)) return;
     checkSrsGrid(this.o.fnHz, this.o.q, designRateHz, this.o.file);
     const toSamples = (s: number) => Math.max(1, Math.round(s * designRateHz));
-    this.finders = this.o.thresholds.map((threshold) => new EventFinder({
-      threshold, holdSamples: toSamples(this.o.holdS), maxEvents: this.o.maxEvents,
-      srs: { fnHz: this.o.fnHz, q: this.o.q, sampleRateHz: designRateHz, preSamples: toSamples(this.o.preS), postSamples: toSamples(this.o.postS) },
-    }));
+    this.finders = this.o.thresholds.map(
+      (threshold) =>
+        new EventFinder({
+          threshold,
+          holdSamples: toSamples(this.o.holdS),
+          maxEvents: this.o.maxEvents,
+          srs: {
+            fnHz: this.o.fnHz,
+            q: this.o.q,
+            sampleRateHz: designRateHz,
+            preSamples: toSamples(this.o.preS),
+            postSamples: toSamples(this.o.postS),
+          },
+        }),
+    );
     this.whole = this.o.thresholds.map(() => new ShockSpectrumAccumulator(this.o.fnHz, this.o.q, designRateHz));
   }
   push(blocks: Float64Array[], frames: number): void {
@@ -145,18 +193,48 @@ function zeroUpcrossingRate(psd: Float64Array, f: Float64Array): number {
 export async function shockRecording(file: string, options: ShockOptions): Promise<ShockResult> {
   const q = options.q;
   const fnHz = Float64Array.from(options.fnHz);
-  if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
+  if (!(q > 0.5 && q <= 1000))
+    throw new InputError("OPTION_INVALID", {
+      option: "q",
+      expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))",
+      received: String(q),
+    });
   const holdS = options.holdS ?? DEFAULT_HOLD_S;
-  if (!(holdS > 0 && holdS <= 60)) throw new InputError("OPTION_INVALID", { option: "holdS", expected: "a hold time in s, 0 < t <= 60", received: String(holdS) });
+  if (!(holdS > 0 && holdS <= 60))
+    throw new InputError("OPTION_INVALID", {
+      option: "holdS",
+      expected: "a hold time in s, 0 < t <= 60",
+      received: String(holdS),
+    });
   const factor = options.thresholdFactor ?? DEFAULT_THRESHOLD_FACTOR;
-  if (options.threshold !== undefined && options.thresholdFactor !== undefined) throw new InputError("OPTION_CONFLICT", { option: "threshold", expected: "a threshold in units or a factor on the background, not both", received: "both" });
-  if (!(factor > 0 && factor <= 1000)) throw new InputError("OPTION_INVALID", { option: "thresholdFactor", expected: "a factor above 0 and at most 1000", received: String(factor) });
-  if (options.threshold !== undefined && !(options.threshold > 0 && Number.isFinite(options.threshold))) throw new InputError("OPTION_INVALID", { option: "threshold", expected: "a threshold above 0", received: String(options.threshold) });
+  if (options.threshold !== undefined && options.thresholdFactor !== undefined)
+    throw new InputError("OPTION_CONFLICT", {
+      option: "threshold",
+      expected: "a threshold in units or a factor on the background, not both",
+      received: "both",
+    });
+  if (!(factor > 0 && factor <= 1000))
+    throw new InputError("OPTION_INVALID", {
+      option: "thresholdFactor",
+      expected: "a factor above 0 and at most 1000",
+      received: String(factor),
+    });
+  if (options.threshold !== undefined && !(options.threshold > 0 && Number.isFinite(options.threshold)))
+    throw new InputError("OPTION_INVALID", {
+      option: "threshold",
+      expected: "a threshold above 0",
+      received: String(options.threshold),
+    });
   let fnMin = Infinity;
   for (const f of fnHz) fnMin = Math.min(fnMin, f);
   const preS = options.preS ?? holdS;
   const postS = options.postS ?? Math.max(holdS, 1 / fnMin);
-  for (const [k, v] of [["preS", preS], ["postS", postS]] as const) if (!(v >= 0 && v <= 600)) throw new InputError("OPTION_INVALID", { option: k, expected: "a time in s from 0 to 600", received: String(v) });
+  for (const [k, v] of [
+    ["preS", preS],
+    ["postS", postS],
+  ] as const)
+    if (!(v >= 0 && v <= 600))
+      throw new InputError("OPTION_INVALID", { option: k, expected: "a time in s from 0 to 600", received: String(v) });
   const base: AnalysisOptions = { ...options };
   delete (base as Partial<ShockOptions>).fnHz;
   const open = () => openTimeHistory(file, { ...options.csv, sampleRateHz: options.csv?.sampleRateHz });
@@ -165,51 +243,119 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   if (Number.isFinite(src1.info.sampleRateHz)) checkSrsGrid(fnHz, q, src1.info.sampleRateHz, file);
   const bg = new Background();
   const progress = options.onProgress;
-  const analysis = await analyzeSource(src1, { ...base, accumulators: [bg], onProgress: progress && ((d, t) => progress(d / 2, t)) });
+  const analysis = await analyzeSource(src1, {
+    ...base,
+    accumulators: [bg],
+    onProgress: progress && ((d, t) => progress(d / 2, t)),
+  });
   const stretches = analysis.extras[0] as number[][];
   const fs = analysis.input.sampleRateHz;
   const notes: Finding[] = [];
   const doubts: Finding[] = [...analysis.passDoubts];
   // The read's own doubts (non-finite samples, a clipped or saturated signal, held samples) carry over: a clipped shock's peak and SRS are too low.
-  for (const ch of analysis.channels) for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
+  for (const ch of analysis.channels)
+    for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
   const per = analysis.channels.map((ch, c) => {
     const b = backgroundRms(stretches[c] ?? []);
     const threshold = options.threshold ?? factor * b;
     if (!(threshold > 0)) {
-      throw new InputError("SHOCK_NO_BACKGROUND", { file, option: "threshold", expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`, received: String(b) });
+      throw new InputError("SHOCK_NO_BACKGROUND", {
+        file,
+        option: "threshold",
+        expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`,
+        received: String(b),
+      });
     }
     return { mean: ch.stats.mean, background: b, threshold, nu0: zeroUpcrossingRate(ch.psd.psd, ch.psd.frequencyHz) };
   });
   // Read 2: events and spectra.
-  const ev = new Events({ means: per.map((p) => p.mean), thresholds: per.map((p) => p.threshold), holdS, preS, postS, fnHz, q, maxEvents: options.maxEvents, file });
-  const pass2 = await analyzeSource(await open(), { ...base, spectrum: false, accumulators: [ev], onProgress: progress && ((d, t) => progress(t / 2 + d / 2, t)) });
-  if (pass2.input.sha256 !== analysis.input.sha256) throw new InputError("RECORDING_CHANGED", { file, expected: "the same file on both reads", received: "a different SHA-256 on the second read" });
+  const ev = new Events({
+    means: per.map((p) => p.mean),
+    thresholds: per.map((p) => p.threshold),
+    holdS,
+    preS,
+    postS,
+    fnHz,
+    q,
+    maxEvents: options.maxEvents,
+    file,
+  });
+  const pass2 = await analyzeSource(await open(), {
+    ...base,
+    spectrum: false,
+    accumulators: [ev],
+    onProgress: progress && ((d, t) => progress(t / 2 + d / 2, t)),
+  });
+  if (pass2.input.sha256 !== analysis.input.sha256)
+    throw new InputError("RECORDING_CHANGED", {
+      file,
+      expected: "the same file on both reads",
+      received: "a different SHA-256 on the second read",
+    });
   const found = pass2.extras[0] as ReturnType<Events["finish"]>;
   const rate = { sampleRateHz: fs, ...srsRateLimit(fnHz, fs) };
   if (rate.samplesPerPeriod < SRS_SAMPLES_PER_PERIOD) {
-    notes.push({ code: "SRS_FEW_SAMPLES", values: { highestFnHz: rate.highestFnHz, samplesPerPeriod: rate.samplesPerPeriod, minimum: SRS_SAMPLES_PER_PERIOD, shortfallPercent: 100 * rate.peakShortfallBound } });
+    notes.push({
+      code: "SRS_FEW_SAMPLES",
+      values: {
+        highestFnHz: rate.highestFnHz,
+        samplesPerPeriod: rate.samplesPerPeriod,
+        minimum: SRS_SAMPLES_PER_PERIOD,
+        shortfallPercent: 100 * rate.peakShortfallBound,
+      },
+    });
   }
   const channels: ShockChannel[] = analysis.channels.map((ch, c) => {
     const p = per[c]!;
     const k = p.threshold / p.background;
-    const expectedFalseEvents = gaussianFalseEventRate(k, p.nu0) * analysis.window.frames / fs;
+    const expectedFalseEvents = (gaussianFalseEventRate(k, p.nu0) * analysis.window.frames) / fs;
     const events = found[c]!.events.map((e) => ({
-      timeS: analysis.window.fromS + e.peakIndex / fs, peak: e.peak, durationS: (e.lastIndex - e.firstIndex + 1) / fs, srs: e.srs!, truncated: e.truncated,
+      timeS: analysis.window.fromS + e.peakIndex / fs,
+      peak: e.peak,
+      durationS: (e.lastIndex - e.firstIndex + 1) / fs,
+      srs: e.srs!,
+      truncated: e.truncated,
       ...(options.primaryResidual ? { primary: e.primary, residual: e.residual } : {}),
     })).sort((a, b) => Math.abs(b.peak) - Math.abs(a.peak) || a.timeS - b.timeS);
     const srs = found[c]!.srs;
     const toMs = accelFactor(ch.units, "m/s2");
-    if (!(k >= 4.5)) notes.push({ code: "THRESHOLD_LOW", values: { thresholdFactor: k, expectedFalseEvents }, about: { channel: ch.name } });
-    if (events.some((e) => e.truncated)) notes.push({ code: "EVENT_CUT_SHORT", values: { postS }, about: { channel: ch.name } });
+    if (!(k >= 4.5))
+      notes.push({
+        code: "THRESHOLD_LOW",
+        values: { thresholdFactor: k, expectedFalseEvents },
+        about: { channel: ch.name },
+      });
+    if (events.some((e) => e.truncated))
+      notes.push({ code: "EVENT_CUT_SHORT", values: { postS }, about: { channel: ch.name } });
     return {
-      name: ch.name, units: ch.units, mean: p.mean, backgroundRms: p.background, threshold: p.threshold, thresholdFactor: k, zeroUpcrossingRateHz: p.nu0,
-      expectedFalseEvents, events, srs, pvssMPerS: srs.pseudoVelocity.map((v) => v * toMs),
+      name: ch.name,
+      units: ch.units,
+      mean: p.mean,
+      backgroundRms: p.background,
+      threshold: p.threshold,
+      thresholdFactor: k,
+      zeroUpcrossingRateHz: p.nu0,
+      expectedFalseEvents,
+      events,
+      srs,
+      pvssMPerS: srs.pseudoVelocity.map((v) => v * toMs),
     };
   });
   return {
     analysis,
-    settings: { fnHz, q, holdS, preS, postS, thresholdGiven: options.threshold, thresholdFactor: options.threshold === undefined ? factor : undefined, primaryResidual: options.primaryResidual === true },
-    rate, channels, notes, doubts,
+    settings: {
+      fnHz,
+      q,
+      holdS,
+      preS,
+      postS,
+      thresholdGiven: options.threshold,
+      thresholdFactor: options.threshold === undefined ? factor : undefined,
+      primaryResidual: options.primaryResidual === true,
+    },
+    rate,
+    channels,
+    notes,
+    doubts,
   };
 }
-

@@ -52,15 +52,26 @@ const SLOT_FRAMES = 16384;
 const MIN_WORK = 2e7;
 
 /** How many threads: PSDGATE_RESPONSE_THREADS if set, else one per core but one, at most one per 4 natural frequencies. */
-export function responseThreads(fnCount: number, expectedSamples: number, env: NodeJS.ProcessEnv = process.env): number {
+export function responseThreads(
+  fnCount: number,
+  expectedSamples: number,
+  env: NodeJS.ProcessEnv = process.env,
+): number {
   const asked = Number(env.PSDGATE_RESPONSE_THREADS);
   if (Number.isInteger(asked) && asked >= 0) return Math.min(asked, fnCount);
   if (fnCount * expectedSamples < MIN_WORK) return 0;
   return Math.max(0, Math.min(availableParallelism() - 1, Math.ceil(fnCount / 4), 16));
 }
 
-export function timeResponseSink(fnHz: Float64Array, q: number, sampleRateHz: number, basquinB: number, threads: number): TimeResponseSink {
-  if (threads < 1 || !pathExists(fileURLToPath(WORKER))) return new TimeResponseAccumulator(fnHz, q, sampleRateHz, basquinB);
+export function timeResponseSink(
+  fnHz: Float64Array,
+  q: number,
+  sampleRateHz: number,
+  basquinB: number,
+  threads: number,
+): TimeResponseSink {
+  if (threads < 1 || !pathExists(fileURLToPath(WORKER)))
+    return new TimeResponseAccumulator(fnHz, q, sampleRateHz, basquinB);
   return new TimeResponsePool(fnHz, q, sampleRateHz, basquinB, threads);
 }
 
@@ -72,7 +83,13 @@ class TimeResponsePool implements TimeResponseSink {
   private published = 0;
   private readonly n: number;
 
-  constructor(private readonly fnHz: Float64Array, private readonly q: number, sampleRateHz: number, private readonly basquinB: number, private readonly workers: number) {
+  constructor(
+    private readonly fnHz: Float64Array,
+    private readonly q: number,
+    sampleRateHz: number,
+    private readonly basquinB: number,
+    private readonly workers: number,
+  ) {
     this.n = fnHz.length;
     const control = new SharedArrayBuffer(4 * CTL.length(SLOTS, workers));
     const data = new SharedArrayBuffer(8 * SLOTS * SLOT_FRAMES);
@@ -85,8 +102,19 @@ class TimeResponsePool implements TimeResponseSink {
       const indexes: number[] = [];
       for (let i = w; i < this.n; i += workers) indexes.push(i);
       const wd: PoolWorkerData = {
-        control, data, results, slots: SLOTS, slotFrames: SLOT_FRAMES, workers, index: w, indexes, fnHz: indexes.map((i) => fnHz[i]!), totalFn: this.n,
-        q, sampleRateHz, basquinB,
+        control,
+        data,
+        results,
+        slots: SLOTS,
+        slotFrames: SLOT_FRAMES,
+        workers,
+        index: w,
+        indexes,
+        fnHz: indexes.map((i) => fnHz[i]!),
+        totalFn: this.n,
+        q,
+        sampleRateHz,
+        basquinB,
       };
       this.threads.push(new Worker(WORKER, { workerData: wd }));
     }
@@ -119,10 +147,11 @@ class TimeResponsePool implements TimeResponseSink {
 
   private checkFailed(): void {
     const base = CTL.done(SLOTS, this.workers);
-    for (let w = 0; w < this.workers; w++) if (Atomics.load(this.ctl, base + w) === 2) {
-      this.end();
-      throw new Error("a time-response thread failed");
-    }
+    for (let w = 0; w < this.workers; w++)
+      if (Atomics.load(this.ctl, base + w) === 2) {
+        this.end();
+        throw new Error("a time-response thread failed");
+      }
   }
 
   finish(): TimeResponse {
@@ -135,9 +164,14 @@ class TimeResponsePool implements TimeResponseSink {
     const r = this.results;
     const n = this.n;
     return {
-      fnHz: Float64Array.from(this.fnHz), q: this.q, basquinB: this.basquinB,
-      maxAccel: Float64Array.from({ length: n }, (_, i) => r[3 * i]!), minAccel: Float64Array.from({ length: n }, (_, i) => r[3 * i + 1]!),
-      rainflowSum: Float64Array.from({ length: n }, (_, i) => r[3 * i + 2]!), samples: r[3 * n]!, heldSamples: r[3 * n + 1]!,
+      fnHz: Float64Array.from(this.fnHz),
+      q: this.q,
+      basquinB: this.basquinB,
+      maxAccel: Float64Array.from({ length: n }, (_, i) => r[3 * i]!),
+      minAccel: Float64Array.from({ length: n }, (_, i) => r[3 * i + 1]!),
+      rainflowSum: Float64Array.from({ length: n }, (_, i) => r[3 * i + 2]!),
+      samples: r[3 * n]!,
+      heldSamples: r[3 * n + 1]!,
     };
   }
 

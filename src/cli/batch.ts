@@ -14,12 +14,12 @@ export interface BatchJob {
   job: AnalysisJob;
 }
 
-export type BatchReply =
-  | { id: number; result: RecordingAnalysis | CheckResult }
-  | { id: number; error: WireError };
+export type BatchReply = { id: number; result: RecordingAnalysis | CheckResult } | { id: number; error: WireError };
 
 /** `internal` marks an error that is psdgate's own fault (exit 70), not the input's. */
-export type Outcome<T> = { file: string; ok: true; result: T } | { file: string; ok: false; error: InputError; internal?: boolean };
+export type Outcome<T> =
+  | { file: string; ok: true; result: T }
+  | { file: string; ok: false; error: InputError; internal?: boolean };
 
 const WORKER = new URL("./batchWorker.js", import.meta.url);
 
@@ -30,17 +30,28 @@ const WORKER = new URL("./batchWorker.js", import.meta.url);
  * in this thread. Either way each recording is a job (runAnalysis.ts) run by the one dispatcher.
  */
 export async function runBatch<T extends RecordingAnalysis | CheckResult>(
-  files: string[], options: Omit<CheckOptions, "onProgress">, profile: TestProfile | undefined, jobs: number,
-  onOutcome: (o: Outcome<T>, index: number) => void, onProgress?: (bytesDone: number) => void,
+  files: string[],
+  options: Omit<CheckOptions, "onProgress">,
+  profile: TestProfile | undefined,
+  jobs: number,
+  onOutcome: (o: Outcome<T>, index: number) => void,
+  onProgress?: (bytesDone: number) => void,
   limits: WorkerLimits = WORKER_LIMITS,
 ): Promise<void> {
   const useWorkers = jobs > 1 && files.length > 1 && existsSync(fileURLToPath(WORKER));
   // A batch is parallel across files only: one thread per recording, so --jobs says how many cores it uses.
   if (files.length > 1) options = { ...options, csv: { ...options.csv, parseWorkers: 0 } };
-  const jobOf = (file: string): AnalysisJob => ({ kind: profile === undefined ? "psd" : "check", file, options, profile });
+  const jobOf = (file: string): AnalysisJob => ({
+    kind: profile === undefined ? "psd" : "check",
+    file,
+    options,
+    profile,
+  });
   // An error from either path becomes the recording's outcome the same way.
   const failed = (file: string, e: Error): Outcome<T> =>
-    e instanceof InputError ? { file, ok: false, error: e } : { file, ok: false, internal: true, error: internalError(file, e.message) };
+    e instanceof InputError
+      ? { file, ok: false, error: e }
+      : { file, ok: false, internal: true, error: internalError(file, e.message) };
   const outcomes: (Outcome<T> | undefined)[] = new Array(files.length);
   let nextOut = 0;
   const deliver = (i: number, o: Outcome<T>) => {
@@ -83,7 +94,8 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
   let delivered = 0;
   const workers = new Set<Worker>();
   let closing = false;
-  const take = (): number | undefined => (requeued.length > 0 ? requeued.shift() : next < files.length ? next++ : undefined);
+  const take = (): number | undefined =>
+    requeued.length > 0 ? requeued.shift() : next < files.length ? next++ : undefined;
   const remaining = () => requeued.length > 0 || next < files.length;
   try {
     await new Promise<void>((resolveAll) => {
@@ -106,7 +118,10 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
           if ("progress" in m) return report(m.id, m.progress);
           inHand.splice(inHand.indexOf(m.id), 1);
           const file = files[m.id]!;
-          settle(m.id, "result" in m ? { file, ok: true, result: m.result as T } : failed(file, errorFromWire(m.error)));
+          settle(
+            m.id,
+            "result" in m ? { file, ok: true, result: m.result as T } : failed(file, errorFromWire(m.error)),
+          );
           send();
         });
         const died = (why: string) => {
@@ -118,16 +133,25 @@ export async function runBatch<T extends RecordingAnalysis | CheckResult>(
           requeued.unshift(...waiting);
           if (culprit !== undefined) {
             settle(culprit, {
-              file: files[culprit]!, ok: false,
+              file: files[culprit]!,
+              ok: false,
               error: new InputError("WORKER_LIMIT", {
-                file: files[culprit]!, expected: `a recording that one batch worker can analyse within ${limits.maxOldGenerationSizeMb ?? WORKER_LIMITS.maxOldGenerationSizeMb} MB of heap`, received: why,
+                file: files[culprit]!,
+                expected: `a recording that one batch worker can analyse within ${limits.maxOldGenerationSizeMb ?? WORKER_LIMITS.maxOldGenerationSizeMb} MB of heap`,
+                received: why,
                 hint: "analyse it on its own, or select fewer --channel",
               }),
             });
           }
           if (remaining() && !closing) start();
         };
-        w.on("error", (e: Error & { code?: string }) => died(e.code === "ERR_WORKER_OUT_OF_MEMORY" ? "a worker that ran out of memory" : `a worker that failed (${e.message.split("\n")[0]})`));
+        w.on("error", (e: Error & { code?: string }) =>
+          died(
+            e.code === "ERR_WORKER_OUT_OF_MEMORY"
+              ? "a worker that ran out of memory"
+              : `a worker that failed (${e.message.split("\n")[0]})`,
+          ),
+        );
         w.on("exit", (code) => died(`a worker that stopped (exit code ${code})`));
         // Two jobs in hand, so a worker never waits for this thread between recordings.
         send();
@@ -149,5 +173,9 @@ export type WorkerLimits = { maxOldGenerationSizeMb?: number; maxYoungGeneration
 
 /** An error that is psdgate's fault, kept to its one recording in a batch. */
 export function internalError(file: string, message: string): InputError {
-  return new InputError("INTERNAL", { file, expected: "an analysis without an internal error (a bug in psdgate; please report it)", received: message });
+  return new InputError("INTERNAL", {
+    file,
+    expected: "an analysis without an internal error (a bug in psdgate; please report it)",
+    received: message,
+  });
 }

@@ -20,7 +20,10 @@ void import("../pass/analyzeRecording.js");
 async function run({ id, job }: BatchJob): Promise<void> {
   let reply: BatchReply;
   try {
-    reply = { id, result: await runAnalysis(job, (done, total) => parentPort!.postMessage({ id, progress: done, total })) };
+    reply = {
+      id,
+      result: await runAnalysis(job, (done, total) => parentPort!.postMessage({ id, progress: done, total })),
+    };
   } catch (e) {
     reply = { id, error: errorToWire(e) };
   }

@@ -7,7 +7,10 @@ import { runCli } from "./main.js";
 // other failure to write (a full disk) is reported in one line, not as a stack trace.
 process.stdout.on("error", (e: NodeJS.ErrnoException) => {
   if (e.code === "EPIPE" || e.code === "ERR_STREAM_DESTROYED") return;
-  const err = new InputError("OUTPUT_UNWRITABLE", { expected: "a writable standard output", received: e.code ?? e.message });
+  const err = new InputError("OUTPUT_UNWRITABLE", {
+    expected: "a writable standard output",
+    received: e.code ?? e.message,
+  });
   process.stderr.write(`psdgate: ${err.message}\n`);
   removeTemporaryFilesSync();
   process.exit(EXIT.input);
@@ -15,7 +18,11 @@ process.stdout.on("error", (e: NodeJS.ErrnoException) => {
 
 // Interrupted (Ctrl-C, a job engine's SIGTERM, a closed terminal): remove every temporary output
 // file still being written, then exit 128 + the signal number, as a shell reports it (common practice).
-for (const [signal, code] of [["SIGINT", 130], ["SIGTERM", 143], ["SIGHUP", 129]] as const) {
+for (const [signal, code] of [
+  ["SIGINT", 130],
+  ["SIGTERM", 143],
+  ["SIGHUP", 129],
+] as const) {
   process.on(signal, () => {
     // A command that listens for the signal itself (`queue work`: finish the jobs in hand) handles it.
     if (process.listenerCount(signal) > 1) return;

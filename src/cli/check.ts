@@ -13,7 +13,15 @@ import { VERSION } from "../version.js";
 import { Exit } from "./exit.js";
 import { expandFiles } from "./fileList.js";
 import type { CliIo } from "./io.js";
-import { addReadingOptions, addSpectrumOptions, analysisOptions, choice, givenOptions, rerunOptions, type ParsedCommon } from "./options.js";
+import {
+  addReadingOptions,
+  addSpectrumOptions,
+  analysisOptions,
+  choice,
+  givenOptions,
+  rerunOptions,
+  type ParsedCommon,
+} from "./options.js";
 import { addBatchOptions, runnerFor, type BatchFlags } from "./runner.js";
 import { findingText } from "../report/findingTexts.js";
 
@@ -31,7 +39,6 @@ function wrap(text: string, indent: string): string {
   return out.join("\n");
 }
 
-
 function verdictCode(r: CheckResult): number {
   return r.verdict === "pass" ? EXIT.ok : r.verdict === "fail" ? EXIT.fail : EXIT.inconclusive;
 }
@@ -40,113 +47,255 @@ function verdictCode(r: CheckResult): number {
 export function registerCheck(program: Command, io: CliIo): void {
   const { one, many } = runnerFor(io);
   const readStdin = io.readStdin ?? (async () => "");
-  addBatchOptions(addSpectrumOptions(addReadingOptions(program.command("check").argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin").description("judge recordings against a profile: pass (exit 0), fail (1), inconclusive (3)")), "the profile's resolutionHz, else 4096"))
+  addBatchOptions(
+    addSpectrumOptions(
+      addReadingOptions(
+        program
+          .command("check")
+          .argument("[files...]", "recordings: CSV or WAV, globs, or - for a list on stdin")
+          .description("judge recordings against a profile: pass (exit 0), fail (1), inconclusive (3)"),
+      ),
+      "the profile's resolutionHz, else 4096",
+    ),
+  )
     .requiredOption("-p, --profile <file>", "the required profile (JSON, YAML or CSV)")
-    .option("--control <channels>", "judge these channels (names or positions, comma-separated) as one control spectrum; the others are monitoring channels, shown and not judged")
-    .option("--control-rule <rule>", "how the control channels make one spectrum: average (mean PSD at each line) or largest (the highest at each line)", choice("--control-rule", ["average", "largest"]), "average")
-    .addHelpText("after", `\n${wrap(`Decision rule: ${RULE_SUMMARY}`, "")}\n\nVerdicts:\n${(["pass", "fail", "inconclusive"] as const).map((v) => wrap(`${v} (exit ${v === "pass" ? 0 : v === "fail" ? 1 : 3}): ${VERDICT_MEANING[v]}.`, "  ")).join("\n")}\n`)
+    .option(
+      "--control <channels>",
+      "judge these channels (names or positions, comma-separated) as one control spectrum; the others are monitoring channels, shown and not judged",
+    )
+    .option(
+      "--control-rule <rule>",
+      "how the control channels make one spectrum: average (mean PSD at each line) or largest (the highest at each line)",
+      choice("--control-rule", ["average", "largest"]),
+      "average",
+    )
+    .addHelpText(
+      "after",
+      `\n${wrap(`Decision rule: ${RULE_SUMMARY}`, "")}\n\nVerdicts:\n${(["pass", "fail", "inconclusive"] as const).map((v) => wrap(`${v} (exit ${v === "pass" ? 0 : v === "fail" ? 1 : 3}): ${VERDICT_MEANING[v]}.`, "  ")).join("\n")}\n`,
+    )
     .option("--report <out.html>", "also write a self-contained HTML report for review and signature (one recording)")
     .option("--report-dir <dir>", "write one HTML report per recording into this folder, named after it")
-    .option("--meta <file>", "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report")
-    .option("--meta-table <file>", "per recording its test identity: a CSV (header recording,testId,... with any --meta keys) or a YAML/JSON mapping from each recording's file name to its keys; a row overrides --meta key by key, a RECORDING.meta.yaml beside it overrides the row")
-    .option("--csv <out>", "also write the lines judged (frequency, measured, required, deviation, limits, status, shown) to this CSV file (one recording)")
-    .action(async (args: string[], o: ParsedCommon & BatchFlags & { profile: string; report?: string; reportDir?: string; control?: string; controlRule: "average" | "largest"; meta?: string; metaTable?: string; csv?: string }, cmd: Command) => {
-      const { loadProfile } = await import("../analyses/checkRecording.js");
-      const control = o.control !== undefined ? { channels: o.control.split(",").map((x) => x.trim()).filter(Boolean), rule: o.controlRule } : undefined;
-      const { checkHtml } = await import("../report/htmlReport.js");
-      const { checkJson, checkText } = await import("../report/checkReport.js");
-      const { worstFirst } = await import("../compare/complianceCheck.js");
-      const profile = await loadProfile(o.profile);
-      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
-      const files = await expandFiles(args, o.filesFrom, readStdin);
-      const inputs = [...files, o.profile, ...(o.filesFrom !== undefined ? [o.filesFrom] : []), ...(o.meta !== undefined ? [o.meta] : []), ...(o.metaTable !== undefined ? [o.metaTable] : [])];
-      const { loadMetaTable, matchMetaTable, recordingMeta } = await import("../read/testMeta.js");
-      const table = o.metaTable !== undefined ? matchMetaTable(await loadMetaTable(o.metaTable), files, o.metaTable) : undefined;
-      if (o.report !== undefined && files.length === 1) checkOutputPath(o.report, inputs, o.force, "--report");
-      if (o.csv !== undefined && files.length === 1) checkOutputPath(o.csv, inputs, o.force, "--csv");
-      if (o.reportDir !== undefined) {
-        await mkdir(o.reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
-          throw new InputError("OUTPUT_UNWRITABLE", { option: "--report-dir", expected: "a folder that exists or can be made", received: `${o.reportDir} (${fsReason(e)})` });
-        });
-      }
-      const now = new Date();
-      const wantsReport = o.report !== undefined || o.reportDir !== undefined;
-      // One name per recording, derived from its path, never shared (report/reportNames.ts).
-      const names = o.reportDir !== undefined ? reportFileNames(files) : [];
-      const reportPath = (index: number) => (o.report !== undefined ? o.report : join(o.reportDir!, names[index]!));
-      const given = givenOptions(cmd);
-      const rerun = rerunOptions({ ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control });
-      // Each recording's identity, key by key: --meta, its --meta-table row, a meta file beside it (read/testMeta.ts).
-      const metas = new Map<string, { meta: typeof meta; from: string | undefined; file: string | undefined }>();
-      for (const f of files) {
-        const m = await recordingMeta(f, meta, table?.get(f));
-        metas.set(f, m);
-        if (m.file !== undefined) inputs.push(m.file);
-      }
-      const metaOf = (r: CheckResult) => metas.get(r.analysis.input.file)?.meta ?? meta;
-      const { sha256Hex } = await import("../report/embeddedResult.js");
-      const writeReport = async (r: CheckResult, index: number) => {
-        const html = checkHtml(r, VERSION, now, { meta: metaOf(r), given, rerun });
-        await writeAtomic(reportPath(index), html, { inputs, force: o.force, option: o.report !== undefined ? "--report" : "--report-dir" });
-        return sha256Hex(html);
-      };
-      if (files.length > 1) {
-        if (o.report !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--report", expected: "one recording with --report (use --report-dir for several)", received: `${files.length}` });
-        if (o.csv !== undefined) throw new InputError("OPTION_CONFLICT", { option: "--csv", expected: "one recording with --csv", received: `${files.length}` });
-        // Report writes run beside the batch; the first failure is kept and raised at the end.
-        const reports: Promise<void>[] = [];
-        const entries: import("../report/batchIndex.js").BatchEntry[] = [];
-        let reportError: unknown;
-        const code = await many<CheckResult>(
-          files, { ...o, histogram: wantsReport, forReport: wantsReport || undefined, control }, profile, verdictCode,
-          (r, index) => {
-            if (o.reportDir !== undefined) {
-              const entry: import("../report/batchIndex.js").BatchEntry = {
-                file: r.analysis.input.file, sha256: r.analysis.input.sha256, verdict: r.verdict, report: basename(reportPath(index)),
-                channels: r.channels.map((c, i) => `${r.analysis.channels[i]!.name} ${r.roles[i] === "monitor" ? "monitor" : c.verdict}`).join(", "),
-                ...batchWhy(r), testId: metaOf(r)?.testId, metaFrom: metas.get(r.analysis.input.file)?.from,
-              };
-              entries.push(entry);
-              reports.push(writeReport(r, index).then((h) => void (entry.reportSha256 = h)).catch((e: unknown) => void (reportError ??= e)));
-            }
-            return r.channels.map((c, i) => {
-              const ch = r.analysis.channels[i]!;
-              const w = worstFirst(c.excursions)[0];
-              return [r.analysis.input.file, ch.name, `${sig(c.rms.measured, 4)} ${accelLabel(ch.units)}`, signedDb(c.rms.deviationDb), fixed(c.dof.achieved, 1), c.verdict,
-                w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.shown ? "shown" : "not shown"}` : "none"];
-            });
+    .option(
+      "--meta <file>",
+      "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report",
+    )
+    .option(
+      "--meta-table <file>",
+      "per recording its test identity: a CSV (header recording,testId,... with any --meta keys) or a YAML/JSON mapping from each recording's file name to its keys; a row overrides --meta key by key, a RECORDING.meta.yaml beside it overrides the row",
+    )
+    .option(
+      "--csv <out>",
+      "also write the lines judged (frequency, measured, required, deviation, limits, status, shown) to this CSV file (one recording)",
+    )
+    .action(
+      async (
+        args: string[],
+        o: ParsedCommon &
+          BatchFlags & {
+            profile: string;
+            report?: string;
+            reportDir?: string;
+            control?: string;
+            controlRule: "average" | "largest";
+            meta?: string;
+            metaTable?: string;
+            csv?: string;
           },
-          ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"], (r) => checkJson(r, VERSION, metaOf(r)),
-        );
-        await Promise.all(reports);
-        if (reportError !== undefined) throw reportError;
+        cmd: Command,
+      ) => {
+        const { loadProfile } = await import("../analyses/checkRecording.js");
+        const control =
+          o.control !== undefined
+            ? {
+                channels: o.control
+                  .split(",")
+                  .map((x) => x.trim())
+                  .filter(Boolean),
+                rule: o.controlRule,
+              }
+            : undefined;
+        const { checkHtml } = await import("../report/htmlReport.js");
+        const { checkJson, checkText } = await import("../report/checkReport.js");
+        const { worstFirst } = await import("../compare/complianceCheck.js");
+        const profile = await loadProfile(o.profile);
+        const meta =
+          o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+        const files = await expandFiles(args, o.filesFrom, readStdin);
+        const inputs = [
+          ...files,
+          o.profile,
+          ...(o.filesFrom !== undefined ? [o.filesFrom] : []),
+          ...(o.meta !== undefined ? [o.meta] : []),
+          ...(o.metaTable !== undefined ? [o.metaTable] : []),
+        ];
+        const { loadMetaTable, matchMetaTable, recordingMeta } = await import("../read/testMeta.js");
+        const table =
+          o.metaTable !== undefined ? matchMetaTable(await loadMetaTable(o.metaTable), files, o.metaTable) : undefined;
+        if (o.report !== undefined && files.length === 1) checkOutputPath(o.report, inputs, o.force, "--report");
+        if (o.csv !== undefined && files.length === 1) checkOutputPath(o.csv, inputs, o.force, "--csv");
         if (o.reportDir !== undefined) {
-          const { batchIndexHtml, batchIndexName } = await import("../report/batchIndex.js");
-          await writeAtomic(join(o.reportDir, batchIndexName(names)), batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now, { meta, given }), { inputs, force: o.force, option: "--report-dir" });
+          await mkdir(o.reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
+            throw new InputError("OUTPUT_UNWRITABLE", {
+              option: "--report-dir",
+              expected: "a folder that exists or can be made",
+              received: `${o.reportDir} (${fsReason(e)})`,
+            });
+          });
         }
-        throw new Exit(code);
-      }
-      const { runAnalysis } = await import("../analyses/runAnalysis.js");
-      const r = await one(o, (onProgress) => runAnalysis({ kind: "check", file: files[0]!, profile, options: { ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control } }, onProgress));
-      if (o.csv !== undefined) {
-        const { checkCsv } = await import("../report/checkCsv.js");
-        await writeAtomic(o.csv, checkCsv(r), { inputs, force: o.force, option: "--csv" });
-      }
-      if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r, 0);
-      io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION, metaOf(r))) + "\n" : checkText(r, VERSION));
-      throw new Exit(verdictCode(r));
-    });
+        const now = new Date();
+        const wantsReport = o.report !== undefined || o.reportDir !== undefined;
+        // One name per recording, derived from its path, never shared (report/reportNames.ts).
+        const names = o.reportDir !== undefined ? reportFileNames(files) : [];
+        const reportPath = (index: number) => (o.report !== undefined ? o.report : join(o.reportDir!, names[index]!));
+        const given = givenOptions(cmd);
+        const rerun = rerunOptions({
+          ...analysisOptions(o),
+          histogram: wantsReport,
+          forReport: wantsReport || undefined,
+          control,
+        });
+        // Each recording's identity, key by key: --meta, its --meta-table row, a meta file beside it (read/testMeta.ts).
+        const metas = new Map<string, { meta: typeof meta; from: string | undefined; file: string | undefined }>();
+        for (const f of files) {
+          const m = await recordingMeta(f, meta, table?.get(f));
+          metas.set(f, m);
+          if (m.file !== undefined) inputs.push(m.file);
+        }
+        const metaOf = (r: CheckResult) => metas.get(r.analysis.input.file)?.meta ?? meta;
+        const { sha256Hex } = await import("../report/embeddedResult.js");
+        const writeReport = async (r: CheckResult, index: number) => {
+          const html = checkHtml(r, VERSION, now, { meta: metaOf(r), given, rerun });
+          await writeAtomic(reportPath(index), html, {
+            inputs,
+            force: o.force,
+            option: o.report !== undefined ? "--report" : "--report-dir",
+          });
+          return sha256Hex(html);
+        };
+        if (files.length > 1) {
+          if (o.report !== undefined)
+            throw new InputError("OPTION_CONFLICT", {
+              option: "--report",
+              expected: "one recording with --report (use --report-dir for several)",
+              received: `${files.length}`,
+            });
+          if (o.csv !== undefined)
+            throw new InputError("OPTION_CONFLICT", {
+              option: "--csv",
+              expected: "one recording with --csv",
+              received: `${files.length}`,
+            });
+          // Report writes run beside the batch; the first failure is kept and raised at the end.
+          const reports: Promise<void>[] = [];
+          const entries: import("../report/batchIndex.js").BatchEntry[] = [];
+          let reportError: unknown;
+          const code = await many<CheckResult>(
+            files,
+            { ...o, histogram: wantsReport, forReport: wantsReport || undefined, control },
+            profile,
+            verdictCode,
+            (r, index) => {
+              if (o.reportDir !== undefined) {
+                const entry: import("../report/batchIndex.js").BatchEntry = {
+                  file: r.analysis.input.file,
+                  sha256: r.analysis.input.sha256,
+                  verdict: r.verdict,
+                  report: basename(reportPath(index)),
+                  channels: r.channels
+                    .map(
+                      (c, i) => `${r.analysis.channels[i]!.name} ${r.roles[i] === "monitor" ? "monitor" : c.verdict}`,
+                    )
+                    .join(", "),
+                  ...batchWhy(r),
+                  testId: metaOf(r)?.testId,
+                  metaFrom: metas.get(r.analysis.input.file)?.from,
+                };
+                entries.push(entry);
+                reports.push(
+                  writeReport(r, index)
+                    .then((h) => void (entry.reportSha256 = h))
+                    .catch((e: unknown) => void (reportError ??= e)),
+                );
+              }
+              return r.channels.map((c, i) => {
+                const ch = r.analysis.channels[i]!;
+                const w = worstFirst(c.excursions)[0];
+                return [
+                  r.analysis.input.file,
+                  ch.name,
+                  `${sig(c.rms.measured, 4)} ${accelLabel(ch.units)}`,
+                  signedDb(c.rms.deviationDb),
+                  fixed(c.dof.achieved, 1),
+                  c.verdict,
+                  w ? `${sig(w.worstHz, 5)} Hz ${signedDb(w.worstDb)} ${w.shown ? "shown" : "not shown"}` : "none",
+                ];
+              });
+            },
+            ["file", "channel", "RMS", "vs required", "DOF", "verdict", "worst excursion"],
+            (r) => checkJson(r, VERSION, metaOf(r)),
+          );
+          await Promise.all(reports);
+          if (reportError !== undefined) throw reportError;
+          if (o.reportDir !== undefined) {
+            const { batchIndexHtml, batchIndexName } = await import("../report/batchIndex.js");
+            await writeAtomic(
+              join(o.reportDir, batchIndexName(names)),
+              batchIndexHtml(entries, files.length - entries.length, profile, VERSION, now, { meta, given }),
+              { inputs, force: o.force, option: "--report-dir" },
+            );
+          }
+          throw new Exit(code);
+        }
+        const { runAnalysis } = await import("../analyses/runAnalysis.js");
+        const r = await one(o, (onProgress) =>
+          runAnalysis(
+            {
+              kind: "check",
+              file: files[0]!,
+              profile,
+              options: { ...analysisOptions(o), histogram: wantsReport, forReport: wantsReport || undefined, control },
+            },
+            onProgress,
+          ),
+        );
+        if (o.csv !== undefined) {
+          const { checkCsv } = await import("../report/checkCsv.js");
+          await writeAtomic(o.csv, checkCsv(r), { inputs, force: o.force, option: "--csv" });
+        }
+        if (o.report !== undefined || o.reportDir !== undefined) await writeReport(r, 0);
+        io.stdout(o.json ? JSON.stringify(checkJson(r, VERSION, metaOf(r))) + "\n" : checkText(r, VERSION));
+        throw new Exit(verdictCode(r));
+      },
+    );
 }
 
 /** A batch row's reason and worst excursion: from the worst judged channel (fail, then inconclusive, then pass). */
 function batchWhy(r: CheckResult): { reason: string; worst: string } {
   const rank = { fail: 0, inconclusive: 1, pass: 2 } as const;
-  const judged = r.channels.map((c, i) => ({ c, i })).filter(({ i }) => r.roles[i] !== "monitor").sort((a, b) => rank[a.c.verdict] - rank[b.c.verdict]);
+  const judged = r.channels
+    .map((c, i) => ({ c, i }))
+    .filter(({ i }) => r.roles[i] !== "monitor")
+    .sort((a, b) => rank[a.c.verdict] - rank[b.c.verdict]);
   const top = judged[0];
   if (!top) return { reason: "", worst: "none" };
   const name = r.analysis.channels[top.i]!.name;
-  const reason = top.c.findings[0] === undefined ? (top.c.verdict === "pass" ? "every judged line and the RMS within tolerance" : `${name}: ${top.c.verdict}`) : top.c.verdict === "pass" ? findingText(top.c.findings[0]) : `${name}: ${findingText(top.c.findings[0])}`;
+  const reason =
+    top.c.findings[0] === undefined
+      ? top.c.verdict === "pass"
+        ? "every judged line and the RMS within tolerance"
+        : `${name}: ${top.c.verdict}`
+      : top.c.verdict === "pass"
+        ? findingText(top.c.findings[0])
+        : `${name}: ${findingText(top.c.findings[0])}`;
   let worst: { w: import("../compare/complianceCheck.js").Excursion; ch: string } | undefined;
-  for (const { c, i } of judged) for (const w of c.excursions) if (!worst || Math.abs(w.worstDb) - Math.abs(w.limitDb) > Math.abs(worst.w.worstDb) - Math.abs(worst.w.limitDb)) worst = { w, ch: r.analysis.channels[i]!.name };
-  return { reason, worst: worst ? `${worst.ch}: ${sig(worst.w.worstHz, 5)} Hz ${signedDb(worst.w.worstDb)} (limit ${signedDb(worst.w.limitDb)}), ${worst.w.shown ? "shown" : "not shown"}` : "none" };
+  for (const { c, i } of judged)
+    for (const w of c.excursions)
+      if (!worst || Math.abs(w.worstDb) - Math.abs(w.limitDb) > Math.abs(worst.w.worstDb) - Math.abs(worst.w.limitDb))
+        worst = { w, ch: r.analysis.channels[i]!.name };
+  return {
+    reason,
+    worst: worst
+      ? `${worst.ch}: ${sig(worst.w.worstHz, 5)} Hz ${signedDb(worst.w.worstDb)} (limit ${signedDb(worst.w.limitDb)}), ${worst.w.shown ? "shown" : "not shown"}`
+      : "none",
+  };
 }

@@ -3,9 +3,17 @@ import { fsReason, openRegularFile } from "../read/regularFile.js";
 import { InputError } from "../errors.js";
 
 /** Expand the command's file arguments: globs (quoted, so the shell left them), `-` for a list on stdin, and --files-from. */
-export async function expandFiles(args: string[], filesFrom: string | undefined, readStdin: () => Promise<string>): Promise<string[]> {
+export async function expandFiles(
+  args: string[],
+  filesFrom: string | undefined,
+  readStdin: () => Promise<string>,
+): Promise<string[]> {
   const out: string[] = [];
-  const fromList = (text: string) => text.split(/\r?\n/).map((l) => l.trim()).filter((l) => l !== "" && !l.startsWith("#"));
+  const fromList = (text: string) =>
+    text
+      .split(/\r?\n/)
+      .map((l) => l.trim())
+      .filter((l) => l !== "" && !l.startsWith("#"));
   if (filesFrom !== undefined) {
     let text: string;
     if (filesFrom === "-") text = await readStdin();
@@ -15,7 +23,12 @@ export async function expandFiles(args: string[], filesFrom: string | undefined,
       try {
         text = await handle.readFile("utf8");
       } catch (e) {
-        throw new InputError("FILE_UNREADABLE", { file: filesFrom, option: "--files-from", expected: "a readable list of files, one per line", received: fsReason(e) });
+        throw new InputError("FILE_UNREADABLE", {
+          file: filesFrom,
+          option: "--files-from",
+          expected: "a readable list of files, one per line",
+          received: fsReason(e),
+        });
       } finally {
         await handle.close();
       }
@@ -28,10 +41,18 @@ export async function expandFiles(args: string[], filesFrom: string | undefined,
     else if (/[*?[{]/.test(a) && !existsSync(a)) {
       const { glob } = await import("tinyglobby");
       const found = (await glob(a, { onlyFiles: true, expandDirectories: false })).sort();
-      if (found.length === 0) throw new InputError("NO_FILES_MATCH", { expected: "at least one file matching the pattern", received: JSON.stringify(a) });
+      if (found.length === 0)
+        throw new InputError("NO_FILES_MATCH", {
+          expected: "at least one file matching the pattern",
+          received: JSON.stringify(a),
+        });
       out.push(...found);
     } else out.push(a);
   }
-  if (out.length === 0) throw new InputError("NO_FILES", { expected: "a recording to analyse (a file, a glob, - or --files-from)", received: "none" });
+  if (out.length === 0)
+    throw new InputError("NO_FILES", {
+      expected: "a recording to analyse (a file, a glob, - or --files-from)",
+      received: "none",
+    });
   return out;
 }

@@ -46,7 +46,21 @@ export function buildProgram(io: CliIo): Command {
     .exitOverride()
     // commander's own errors (unknown command or option, missing value) become one USAGE line in runCli.
     .configureOutput({ writeOut: io.stdout, writeErr: io.stderr, outputError: () => undefined });
-  for (const register of [registerInspect, registerPsd, registerProfile, registerCheck, registerSynth, registerRide, registerTransfer, registerRespond, registerShock, registerDerive, registerQueue, registerVerify]) register(program, io);
+  for (const register of [
+    registerInspect,
+    registerPsd,
+    registerProfile,
+    registerCheck,
+    registerSynth,
+    registerRide,
+    registerTransfer,
+    registerRespond,
+    registerShock,
+    registerDerive,
+    registerQueue,
+    registerVerify,
+  ])
+    register(program, io);
   return program;
 }
 
@@ -67,18 +81,33 @@ const USAGE_EXPECTED: Record<string, string> = {
 
 /** commander's own error as one line with the USAGE code, like every other error ("did you mean" kept on it). */
 function usageError(e: CommanderError, program: Command, command?: string): InputError {
-  const expected = e.code === "commander.unknownCommand" ? `one of the commands ${commandNames(program)}`
-    : e.code === "commander.help" ? `a command: ${commandNames(program)}` : USAGE_EXPECTED[e.code] ?? "a valid command line";
+  const expected =
+    e.code === "commander.unknownCommand"
+      ? `one of the commands ${commandNames(program)}`
+      : e.code === "commander.help"
+        ? `a command: ${commandNames(program)}`
+        : (USAGE_EXPECTED[e.code] ?? "a valid command line");
   return new InputError("USAGE", {
     expected,
-    received: e.code === "commander.help" ? "no command (the help above lists them)" : e.message.replace(/^error: /, "").split("\n").map((l) => l.trim()).filter(Boolean).join(" "),
+    received:
+      e.code === "commander.help"
+        ? "no command (the help above lists them)"
+        : e.message
+            .replace(/^error: /, "")
+            .split("\n")
+            .map((l) => l.trim())
+            .filter(Boolean)
+            .join(" "),
     hint: command !== undefined ? `run psdgate ${command} --help` : "run psdgate --help",
   });
 }
 
 /** Options that an earlier psdgate spelt otherwise: the new name, and why. */
 const RENAMED: Record<string, [string, string]> = {
-  "transfer --out": ["--output-channel CH", "--out names an output file in every command; without --output-channel every channel but --in is an output"],
+  "transfer --out": [
+    "--output-channel CH",
+    "--out names an output file in every command; without --output-channel every channel but --in is an output",
+  ],
 };
 
 /**
@@ -93,8 +122,15 @@ function unknownOptionFirst(argv: string[], io: CliIo): void {
   const { unknown } = sub.parseOptions(argv.slice(1));
   const flag = unknown.find((u) => u.startsWith("-") && u !== "-" && u !== "--");
   const renamed = RENAMED[`${sub.name()} ${flag?.replace(/=.*$/, "")}`];
-  if (renamed) throw new InputError("USAGE", { option: flag, expected: `${renamed[0]} (${renamed[1]})`, received: `unknown option '${flag}'`, hint: `run psdgate ${sub.name()} --help` });
-  if (flag !== undefined && !/^--?(h|help)$/.test(flag)) (sub as unknown as { unknownOption(flag: string): never }).unknownOption(flag.replace(/=.*$/, ""));
+  if (renamed)
+    throw new InputError("USAGE", {
+      option: flag,
+      expected: `${renamed[0]} (${renamed[1]})`,
+      received: `unknown option '${flag}'`,
+      hint: `run psdgate ${sub.name()} --help`,
+    });
+  if (flag !== undefined && !/^--?(h|help)$/.test(flag))
+    (sub as unknown as { unknownOption(flag: string): never }).unknownOption(flag.replace(/=.*$/, ""));
 }
 
 /** Runs the CLI and returns the exit code; never throws. */
@@ -118,14 +154,16 @@ export async function runCli(argv: string[], io: CliIo = processIo): Promise<num
       const sub = program.commands.find((c) => c.name() === argv[0]);
       const subsub = sub?.commands.find((c) => c.name() === argv[1]);
       const where = sub ? `${sub.name()}${subsub ? ` ${subsub.name()}` : ""}` : undefined;
-      io.stderr(`psdgate: ${usageError(e, program, e.code === "commander.unknownOption" || e.code === "commander.missingMandatoryOptionValue" || e.code === "commander.optionMissingArgument" ? where : undefined).message}\n`);
+      io.stderr(
+        `psdgate: ${usageError(e, program, e.code === "commander.unknownOption" || e.code === "commander.missingMandatoryOptionValue" || e.code === "commander.optionMissingArgument" ? where : undefined).message}\n`,
+      );
       return EXIT.input;
     }
     const err = e as Error;
-    io.stderr(`psdgate: internal error: ${printable(String(err?.message ?? e))} [INTERNAL]\nThis is a bug in psdgate ${VERSION}; please report it with the command line and input file.\n`);
+    io.stderr(
+      `psdgate: internal error: ${printable(String(err?.message ?? e))} [INTERNAL]\nThis is a bug in psdgate ${VERSION}; please report it with the command line and input file.\n`,
+    );
     if (io.env?.PSDGATE_DEBUG) io.stderr(`${err?.stack}\n`);
     return EXIT.internal;
   }
 }
-
-

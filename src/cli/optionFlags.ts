@@ -112,6 +112,12 @@ export function inFlags(text: string): string {
 export function asCliError(e: InputError): InputError {
   const d = e.details;
   const option = d.option !== undefined && !d.option.startsWith("-") ? flagFor(d.option) : d.option;
-  const next = { ...d, option, expected: inFlags(d.expected), received: d.received === undefined ? undefined : inFlags(d.received), hint: d.hint === undefined ? undefined : inFlags(d.hint) };
+  const next = {
+    ...d,
+    option,
+    expected: inFlags(d.expected),
+    received: d.received === undefined ? undefined : inFlags(d.received),
+    hint: d.hint === undefined ? undefined : inFlags(d.hint),
+  };
   return new InputError(e.code, next);
 }

@@ -11,7 +11,8 @@ import { CONFIDENCE_RULE, MAX_CONFIDENCE, MIN_CONFIDENCE } from "../estimate/spe
 export function numberOption(option: string, rule: (x: number) => boolean, expected: string) {
   return (text: string): number => {
     const v = Number(text);
-    if (text.trim() === "" || !Number.isFinite(v) || !rule(v)) throw new InputError("OPTION_INVALID", { option, expected, received: JSON.stringify(text) });
+    if (text.trim() === "" || !Number.isFinite(v) || !rule(v))
+      throw new InputError("OPTION_INVALID", { option, expected, received: JSON.stringify(text) });
     return v;
   };
 }
@@ -20,7 +21,12 @@ export function numberOption(option: string, rule: (x: number) => boolean, expec
 function baseUnitOption(option: string) {
   return (text: string): AccelUnit => {
     const u = parseUnitSpec(text);
-    if (u === undefined || u.factor !== 1) throw new InputError("OPTION_INVALID", { option, expected: `one of ${ACCEL_UNITS.join(", ")}`, received: JSON.stringify(text) });
+    if (u === undefined || u.factor !== 1)
+      throw new InputError("OPTION_INVALID", {
+        option,
+        expected: `one of ${ACCEL_UNITS.join(", ")}`,
+        received: JSON.stringify(text),
+      });
     return u.base;
   };
 }
@@ -29,7 +35,12 @@ function baseUnitOption(option: string) {
 function anyUnitOption(option: string) {
   return (text: string): string => {
     const u = parseUnitSpec(text);
-    if (u === undefined) throw new InputError("OPTION_INVALID", { option, expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`, received: JSON.stringify(text) });
+    if (u === undefined)
+      throw new InputError("OPTION_INVALID", {
+        option,
+        expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`,
+        received: JSON.stringify(text),
+      });
     return u.name;
   };
 }
@@ -44,7 +55,8 @@ function channelSetting<T>(option: string, parse: (text: string) => T | undefine
     const channel = eq >= 0 ? text.slice(0, eq).trim() : undefined;
     const valueText = eq >= 0 ? text.slice(eq + 1) : text;
     const value = parse(valueText);
-    if (value === undefined || channel === "") throw new InputError("OPTION_INVALID", { option, expected, received: JSON.stringify(text) });
+    if (value === undefined || channel === "")
+      throw new InputError("OPTION_INVALID", { option, expected, received: JSON.stringify(text) });
     return [...prev, { channel, value }];
   };
 }
@@ -57,7 +69,9 @@ function channelSetting<T>(option: string, parse: (text: string) => T | undefine
 export const MAX_SCALE = 1e12;
 const scaleValue = (t: string) => {
   const v = Number(t);
-  return t.trim() !== "" && Number.isFinite(v) && Math.abs(v) >= 1 / MAX_SCALE && Math.abs(v) <= MAX_SCALE ? v : undefined;
+  return t.trim() !== "" && Number.isFinite(v) && Math.abs(v) >= 1 / MAX_SCALE && Math.abs(v) <= MAX_SCALE
+    ? v
+    : undefined;
 };
 const sensitivityValue = (t: string) => (parseSensitivity(t) ? t.trim() : undefined);
 
@@ -67,14 +81,23 @@ function timeOption(option: string) {
     const t = v.trim();
     if (/^[+]?(\d+\.?\d*|\.\d+)$/.test(t)) return Number(t);
     if (/^\d{4}-\d{2}-\d{2}[T ]\d{1,2}:\d{2}|^\d{1,2}:\d{2}/.test(t)) return t;
-    throw new InputError("OPTION_INVALID", { option, expected: "a time in s >= 0, or a clock time such as 2024-05-17T14:03:10 or 14:03:10", received: JSON.stringify(v) });
+    throw new InputError("OPTION_INVALID", {
+      option,
+      expected: "a time in s >= 0, or a clock time such as 2024-05-17T14:03:10 or 14:03:10",
+      received: JSON.stringify(v),
+    });
   };
 }
 
 export function choice<T extends string>(option: string, values: readonly T[]) {
   return (text: string): T => {
     const t = text.toLowerCase() as T;
-    if (!values.includes(t)) throw new InputError("OPTION_INVALID", { option, expected: `one of ${values.join(", ")}`, received: JSON.stringify(text) });
+    if (!values.includes(t))
+      throw new InputError("OPTION_INVALID", {
+        option,
+        expected: `one of ${values.join(", ")}`,
+        received: JSON.stringify(text),
+      });
     return t;
   };
 }
@@ -85,36 +108,107 @@ const collect = (v: string, prev: string[] = []) => [...prev, v];
 export function addReadingOptions(cmd: Command): Command {
   return cmd
     .option("-c, --channel <name|n>", "analyse this channel (name or 1-based position); repeat for more", collect)
-    .option("--rate <hz>", "sample rate when the CSV has no time column", numberOption("--rate", (x) => x > 0, "a sample rate in Hz above 0"))
+    .option(
+      "--rate <hz>",
+      "sample rate when the CSV has no time column",
+      numberOption("--rate", (x) => x > 0, "a sample rate in Hz above 0"),
+    )
     .option("--time-column <name|n>", "the CSV column that holds time (default: a column named time, t, time [ms], …)")
-    .option("--no-time-column", "do not use the CSV's time column (it is not read as a channel either; then --rate is needed)")
-    .option("--time-unit <u>", "unit of a time column whose header does not say: s, ms, us, days, or serial-days (spreadsheet date numbers: days since 1899-12-30, start time said)", choice("--time-unit", ["s", "ms", "us", "days", "serial-days"]))
-    .option("--delimiter <d>", "CSV field delimiter: comma, semicolon, tab or whitespace (default: detected)", choice("--delimiter", ["comma", "semicolon", "tab", "whitespace", ",", ";"]))
-    .option("--decimal <mark>", "decimal mark: point or comma (default: detected)", choice("--decimal", ["point", "comma"]))
-    .option("--units <u>", `unit of the samples where the file does not say: ${UNIT_NAMES.join(", ")} (default g)`, anyUnitOption("--units"))
-    .option("--result-units <u>", "convert results to g or m/s2 (default: the input unit's base, g or m/s2)", baseUnitOption("--result-units"))
-    .option("--scale <[ch=]k>", "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel", channelSetting("--scale", scaleValue, "a number K with 1e-12 <= |K| <= 1e12, or CH=K"))
-    .option("--sensitivity <[ch=]s>", "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel", channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"))
-    .option("--from <time>", "analyse from this time: s from the first sample, or a clock time (2024-05-17T14:03:10, or 14:03:10 on the first stamp's day) for a record with date-time stamps; recorded in the results", timeOption("--from"))
+    .option(
+      "--no-time-column",
+      "do not use the CSV's time column (it is not read as a channel either; then --rate is needed)",
+    )
+    .option(
+      "--time-unit <u>",
+      "unit of a time column whose header does not say: s, ms, us, days, or serial-days (spreadsheet date numbers: days since 1899-12-30, start time said)",
+      choice("--time-unit", ["s", "ms", "us", "days", "serial-days"]),
+    )
+    .option(
+      "--delimiter <d>",
+      "CSV field delimiter: comma, semicolon, tab or whitespace (default: detected)",
+      choice("--delimiter", ["comma", "semicolon", "tab", "whitespace", ",", ";"]),
+    )
+    .option(
+      "--decimal <mark>",
+      "decimal mark: point or comma (default: detected)",
+      choice("--decimal", ["point", "comma"]),
+    )
+    .option(
+      "--units <u>",
+      `unit of the samples where the file does not say: ${UNIT_NAMES.join(", ")} (default g)`,
+      anyUnitOption("--units"),
+    )
+    .option(
+      "--result-units <u>",
+      "convert results to g or m/s2 (default: the input unit's base, g or m/s2)",
+      baseUnitOption("--result-units"),
+    )
+    .option(
+      "--scale <[ch=]k>",
+      "calibration factor: engineering units per file unit (WAV: per full scale); ch=k for one channel, repeat per channel",
+      channelSetting("--scale", scaleValue, "a number K with 1e-12 <= |K| <= 1e12, or CH=K"),
+    )
+    .option(
+      "--sensitivity <[ch=]s>",
+      "sensor sensitivity of a channel in volts, e.g. 100mV/g or 10.2mV/(m/s2); repeat per channel",
+      channelSetting("--sensitivity", sensitivityValue, "a sensitivity such as 100mV/g or CH=10.2mV/(m/s2)"),
+    )
+    .option(
+      "--from <time>",
+      "analyse from this time: s from the first sample, or a clock time (2024-05-17T14:03:10, or 14:03:10 on the first stamp's day) for a record with date-time stamps; recorded in the results",
+      timeOption("--from"),
+    )
     .option("--to <time>", "analyse up to this time, in the same forms as --from", timeOption("--to"));
 }
 
 /** Options of the Welch estimate (shared by psd and check). */
 export function addSpectrumOptions(cmd: Command, segmentDefault = "4096"): Command {
   return cmd
-    .option("-w, --window <name>", `${WINDOW_NAMES.join(", ")} (default hann)`, choice<WindowName>("--window", WINDOW_NAMES))
-    .option("-s, --segment <n>", `samples per segment, a power of two (default ${segmentDefault})`, numberOption("--segment", (x) => Number.isInteger(x), "a power of two, e.g. 4096"))
-    .option("-r, --resolution <hz>", "line spacing wanted; picks the smallest power-of-two segment that gives it", numberOption("--resolution", (x) => x > 0, "a line spacing in Hz above 0"))
-    .option("--overlap <f>", "overlap of segments as a fraction, 0 <= f < 1 (default 0.5)", numberOption("--overlap", () => true, "a fraction 0 <= F < 1"))
-    .option("--detrend <how>", `per segment: ${DETREND_NAMES.join(", ")} (default mean)`, choice<Detrend>("--detrend", DETREND_NAMES))
-    .option("--confidence <c>", "level of the chi-square bounds, 0 < c < 1 (default 0.90)", numberOption("--confidence", (x) => x >= MIN_CONFIDENCE && x <= MAX_CONFIDENCE, CONFIDENCE_RULE));
+    .option(
+      "-w, --window <name>",
+      `${WINDOW_NAMES.join(", ")} (default hann)`,
+      choice<WindowName>("--window", WINDOW_NAMES),
+    )
+    .option(
+      "-s, --segment <n>",
+      `samples per segment, a power of two (default ${segmentDefault})`,
+      numberOption("--segment", (x) => Number.isInteger(x), "a power of two, e.g. 4096"),
+    )
+    .option(
+      "-r, --resolution <hz>",
+      "line spacing wanted; picks the smallest power-of-two segment that gives it",
+      numberOption("--resolution", (x) => x > 0, "a line spacing in Hz above 0"),
+    )
+    .option(
+      "--overlap <f>",
+      "overlap of segments as a fraction, 0 <= f < 1 (default 0.5)",
+      numberOption("--overlap", () => true, "a fraction 0 <= F < 1"),
+    )
+    .option(
+      "--detrend <how>",
+      `per segment: ${DETREND_NAMES.join(", ")} (default mean)`,
+      choice<Detrend>("--detrend", DETREND_NAMES),
+    )
+    .option(
+      "--confidence <c>",
+      "level of the chi-square bounds, 0 < c < 1 (default 0.90)",
+      numberOption("--confidence", (x) => x >= MIN_CONFIDENCE && x <= MAX_CONFIDENCE, CONFIDENCE_RULE),
+    );
 }
 
 /** The band for a band RMS (psd only: check always uses the profile's range). */
 export function addBandOptions(cmd: Command): Command {
   return cmd
-    .option("--fmin <hz>", "lower edge of the band for the band RMS", numberOption("--fmin", (x) => x >= 0, "a frequency in Hz >= 0"))
-    .option("--fmax <hz>", "upper edge of the band for the band RMS", numberOption("--fmax", (x) => x > 0, "a frequency in Hz above 0"));
+    .option(
+      "--fmin <hz>",
+      "lower edge of the band for the band RMS",
+      numberOption("--fmin", (x) => x >= 0, "a frequency in Hz >= 0"),
+    )
+    .option(
+      "--fmax <hz>",
+      "upper edge of the band for the band RMS",
+      numberOption("--fmax", (x) => x > 0, "a frequency in Hz above 0"),
+    );
 }
 
 export interface ParsedCommon {
@@ -147,7 +241,7 @@ export interface ParsedCommon {
 const DELIMS = { comma: ",", semicolon: ";", tab: "\t", whitespace: "whitespace", ",": ",", ";": ";" } as const;
 
 export function analysisOptions(o: ParsedCommon): AnalysisOptions {
-  const tc = o.timeColumn === true as unknown ? undefined : o.timeColumn;
+  const tc = o.timeColumn === (true as unknown) ? undefined : o.timeColumn;
   return {
     csv: {
       timeColumn: typeof tc === "string" && /^\d+$/.test(tc) ? Number(tc) : tc,
@@ -184,8 +278,12 @@ function givenValue(v: unknown): string {
   const o = v as Record<string, unknown>;
   // A per-channel setting ({ channel?, value }, from `--scale`, `--sensitivity`) reads back as written: CH=K, or K for every channel.
   const keys = Object.keys(o);
-  if ("value" in o && keys.every((k) => k === "value" || k === "channel")) return o.channel === undefined ? givenValue(o.value) : `${String(o.channel)}=${givenValue(o.value)}`;
-  return keys.filter((k) => o[k] !== undefined).map((k) => `${k}=${typeof o[k] === "object" ? JSON.stringify(o[k]) : String(o[k])}`).join(",");
+  if ("value" in o && keys.every((k) => k === "value" || k === "channel"))
+    return o.channel === undefined ? givenValue(o.value) : `${String(o.channel)}=${givenValue(o.value)}`;
+  return keys
+    .filter((k) => o[k] !== undefined)
+    .map((k) => `${k}=${typeof o[k] === "object" ? JSON.stringify(o[k]) : String(o[k])}`)
+    .join(",");
 }
 
 /** The options the user typed (not defaults), in words for the report: `--units m/s2`, `--force`. */
@@ -229,9 +327,17 @@ export function parseDuration(text: string): number | undefined {
 export function durationOption(option: string) {
   return (text: string): number => {
     const t = text.trim();
-    const s = /^[+]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t) ? Number(t) : /^\d{1,2}:\d{2}$/.test(t) ? undefined : parseDuration(t);
+    const s = /^[+]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t)
+      ? Number(t)
+      : /^\d{1,2}:\d{2}$/.test(t)
+        ? undefined
+        : parseDuration(t);
     if (s === undefined || !(s > 0) || !Number.isFinite(s)) {
-      throw new InputError("OPTION_INVALID", { option, expected: "a duration above 0: seconds, or a number with s, min, h or d (3600, 90min, 1.5h, 2h30min, 5d)", received: JSON.stringify(text) });
+      throw new InputError("OPTION_INVALID", {
+        option,
+        expected: "a duration above 0: seconds, or a number with s, min, h or d (3600, 90min, 1.5h, 2h30min, 5d)",
+        received: JSON.stringify(text),
+      });
     }
     return s;
   };
@@ -249,9 +355,20 @@ export function joinDurationUnits(argv: readonly string[], options: readonly str
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i]!;
     const next = argv[i + 1];
-    if (options.includes(a) && next !== undefined && argv[i + 2] !== undefined && /^[+]?\d+(\.\d*)?$/.test(next) && UNIT_WORD.test(argv[i + 2]!)) {
+    if (
+      options.includes(a) &&
+      next !== undefined &&
+      argv[i + 2] !== undefined &&
+      /^[+]?\d+(\.\d*)?$/.test(next) &&
+      UNIT_WORD.test(argv[i + 2]!)
+    ) {
       const unit = argv[i + 2]!.toLowerCase();
-      if (/^(weeks?|years?)$/.test(unit)) throw new InputError("OPTION_INVALID", { option: a, expected: "a duration in s, min, h or d (a week is 7d, a year of service is its hours)", received: JSON.stringify(`${next} ${argv[i + 2]}`) });
+      if (/^(weeks?|years?)$/.test(unit))
+        throw new InputError("OPTION_INVALID", {
+          option: a,
+          expected: "a duration in s, min, h or d (a week is 7d, a year of service is its hours)",
+          received: JSON.stringify(`${next} ${argv[i + 2]}`),
+        });
       out.push(a, `${next}${unit}`);
       i += 2;
       continue;

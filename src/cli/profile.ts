@@ -2,7 +2,6 @@ import type { Command } from "commander";
 import { VERSION } from "../version.js";
 import type { CliIo } from "./io.js";
 
-
 /** `psdgate profile FILE`: what a required profile asks for. */
 export function registerProfile(program: Command, io: CliIo): void {
   program

@@ -21,7 +21,12 @@ function mb(bytes: number): string {
   return bytes >= 1e9 ? `${(bytes / 1e9).toFixed(2)} GB` : `${(bytes / 1e6).toFixed(1)} MB`;
 }
 
-export function createProgress(enabled: boolean, write: (s: string) => void, now: () => number = () => performance.now(), columns = 80): Progress {
+export function createProgress(
+  enabled: boolean,
+  write: (s: string) => void,
+  now: () => number = () => performance.now(),
+  columns = 80,
+): Progress {
   if (!enabled) return SILENT;
   const start = now();
   let last = 0;
@@ -40,7 +45,9 @@ export function createProgress(enabled: boolean, write: (s: string) => void, now
       const eta = rate > 0 ? (total - done) / rate : 0;
       const width = Math.max(10, Math.min(30, columns - 50));
       const fill = Math.round(frac * width);
-      write(`\r\x1b[2K[${"=".repeat(fill)}${" ".repeat(width - fill)}] ${(100 * frac).toFixed(0).padStart(3)} %  ${mb(done)} of ${mb(total)}  ${mb(rate)}/s  ${eta >= 1 ? `ETA ${eta.toFixed(0)} s` : ""}`);
+      write(
+        `\r\x1b[2K[${"=".repeat(fill)}${" ".repeat(width - fill)}] ${(100 * frac).toFixed(0).padStart(3)} %  ${mb(done)} of ${mb(total)}  ${mb(rate)}/s  ${eta >= 1 ? `ETA ${eta.toFixed(0)} s` : ""}`,
+      );
       drawn = true;
     },
     line(text) {

@@ -1,6 +1,14 @@
 import { DECISION_RULE, DEFAULT_POWER } from "./decisionRule.js";
 import { departureShare } from "../estimate/spectral/spectralKernel.js";
-import type { ChannelCompliance, DecideEstimate, Excursion, RuleReport, SpectrumUnderTest, ToneAllowance, Verdict } from "./complianceTypes.js";
+import type {
+  ChannelCompliance,
+  DecideEstimate,
+  Excursion,
+  RuleReport,
+  SpectrumUnderTest,
+  ToneAllowance,
+  Verdict,
+} from "./complianceTypes.js";
 import { findExcursions } from "./excursions.js";
 import type { Finding } from "../findings.js";
 import { judgedSpectrum } from "./judgedGrid.js";
@@ -12,7 +20,15 @@ import { decideRunLength, kernelReread, secondsForDof } from "./runLength.js";
 import type { TestProfile } from "./testProfile.js";
 
 export type {
-  ChannelCompliance, DecideEstimate, Excursion, LineDeviation, RuleReport, SpectrumUnderTest, ToneAllowance, ToneJudgement, Verdict,
+  ChannelCompliance,
+  DecideEstimate,
+  Excursion,
+  LineDeviation,
+  RuleReport,
+  SpectrumUnderTest,
+  ToneAllowance,
+  ToneJudgement,
+  Verdict,
 } from "./complianceTypes.js";
 export type { Finding };
 
@@ -38,7 +54,14 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
   const reread = kernelReread(kernel, sp);
   const excursions = findExcursions(js, lines, tests, reread, secondsAt);
   const rms = rmsTest(js, profile, m, tests.levels, tones);
-  const power = passPower(js, profile, { lines: m, allowanceLines, outer, toneShare, singleShare: tests.singleShare, rmsDofRatio: rms.dofRatio });
+  const power = passPower(js, profile, {
+    lines: m,
+    allowanceLines,
+    outer,
+    toneShare,
+    singleShare: tests.singleShare,
+    rmsDofRatio: rms.dofRatio,
+  });
   const required = profile.minDof;
 
   // The false-fail rate if the PSD were the profile: union bound over every test at G = required.
@@ -60,7 +83,8 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
     dofForDefaultPower: power.forDefault,
     departureSeenShare: departureShare(kernel, (power.requirement ?? DEFAULT_POWER).widthLines),
     family,
-    largestOf: k > 1 && nu > 0 ? { channels: k, meanAllowanceDb: 10 * Math.log10(rms.muNow), effectiveDof: js.effAt(nu) } : null,
+    largestOf:
+      k > 1 && nu > 0 ? { channels: k, meanAllowanceDb: 10 * Math.log10(rms.muNow), effectiveDof: js.effAt(nu) } : null,
   };
 
   // Failures the data show, and what else a pass needs.
@@ -75,15 +99,37 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
   let decide: DecideEstimate | undefined;
   if (verdict === "inconclusive" && m > 0 && nu > 0) {
     const needForPass = Math.max(power.forPower, required ?? 0);
-    const d = decideRunLength(js, { tests, rms, needForPass, passPossible: fixedBlockers.length === 0, durationS: profile.durationS, reread, secondsAt });
+    const d = decideRunLength(js, {
+      tests,
+      rms,
+      needForPass,
+      passPossible: fixedBlockers.length === 0,
+      durationS: profile.durationS,
+      reread,
+      secondsAt,
+    });
     decide = d.decide;
     if (d.finding) findings.push(d.finding);
   }
   findings.push(...notchFinding(js.unjudged.notch));
   if (verdict === "pass") findings.push(passFinding(m, power, rule, family));
   return {
-    channel: sp.name, verdict, findings, lines, excursions, unjudged: js.unjudged,
-    rms: { measured: rms.measuredRms, required: rms.requiredRms, deviationDb: rms.deviationDb, upperDb: rms.tolerance?.upper, lowerDb: rms.tolerance?.lower, ok: rms.ok, shown: rms.shown, dof: rms.dof },
+    channel: sp.name,
+    verdict,
+    findings,
+    lines,
+    excursions,
+    unjudged: js.unjudged,
+    rms: {
+      measured: rms.measuredRms,
+      required: rms.requiredRms,
+      deviationDb: rms.deviationDb,
+      upperDb: rms.tolerance?.upper,
+      lowerDb: rms.tolerance?.lower,
+      ok: rms.ok,
+      shown: rms.shown,
+      dof: rms.dof,
+    },
     dof: { achieved: nu, required, forPower: power.forPower, ok: nu >= (required ?? 0) && nu >= power.forPower },
     rule,
     ...(decide !== undefined ? { decide } : {}),

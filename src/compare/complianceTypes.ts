@@ -106,7 +106,11 @@ export interface ChannelCompliance {
   /** Lines in the profile's range that were not judged, and why (notch: the window's kernel is not modelled well enough there; excluded: left out by the caller's mask). */
   unjudged: { edge: number; detrend: number; aboveRecord: number; notch: number; excluded: number };
   rms: {
-    measured: number; required: number; deviationDb: number; upperDb: number | undefined; lowerDb: number | undefined;
+    measured: number;
+    required: number;
+    deviationDb: number;
+    upperDb: number | undefined;
+    lowerDb: number | undefined;
     /** Within tolerance as measured. */
     ok: boolean;
     /** Shown outside its tolerance by the rule. */

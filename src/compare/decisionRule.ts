@@ -1,4 +1,10 @@
-import { binomialAtLeast, chiSquareCdf, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile } from "../estimate/statistics/distributions.js";
+import {
+  binomialAtLeast,
+  chiSquareCdf,
+  chiSquareQuantile,
+  chiSquareSurvival,
+  chiSquareUpperQuantile,
+} from "../estimate/statistics/distributions.js";
 
 /**
  * psdgate's decision rule: when a measured PSD shows a profile is not met, and when the evidence is
@@ -61,8 +67,11 @@ export interface PowerRequirement {
 }
 
 export const DEFAULT_POWER: PowerRequirement = {
-  departureDb: DECISION_RULE.departureDb, departureShare: DECISION_RULE.departureShare, widthLines: DECISION_RULE.departureWidthLines,
-  rmsBeyondDb: DECISION_RULE.rmsBeyondDb, probability: DECISION_RULE.power,
+  departureDb: DECISION_RULE.departureDb,
+  departureShare: DECISION_RULE.departureShare,
+  widthLines: DECISION_RULE.departureWidthLines,
+  rmsBeyondDb: DECISION_RULE.rmsBeyondDb,
+  probability: DECISION_RULE.power,
 };
 
 export interface RuleLevels {
@@ -81,7 +90,12 @@ export interface RuleLevels {
  * control channels does not change the levels: its tests use the distribution of the largest
  * (largestUpperFactor, largestOfMoments).
  */
-export function ruleLevels(lines: number, outerLimits: boolean, family = 1, toneShare = 0): { upper: RuleLevels; lower: RuleLevels } {
+export function ruleLevels(
+  lines: number,
+  outerLimits: boolean,
+  family = 1,
+  toneShare = 0,
+): { upper: RuleLevels; lower: RuleLevels } {
   const m = Math.max(1, lines);
   const n = Math.max(1, family);
   const lineAlpha = DECISION_RULE.lines - (outerLimits ? DECISION_RULE.outer : 0) - toneShare;

@@ -10,7 +10,11 @@ import { DECIDE_PROBABILITY, longerRecordFactor } from "./runLength.js";
  * rule shows it, its Bonferroni-adjusted p-value and, when not shown, the run length that would show it.
  */
 export function findExcursions(
-  js: JudgedSpectrum, lines: LineDeviation[], t: LineTestLevels, reread: (i: number) => number, secondsAt: (v: number | undefined) => number | undefined,
+  js: JudgedSpectrum,
+  lines: LineDeviation[],
+  t: LineTestLevels,
+  reread: (i: number) => number,
+  secondsAt: (v: number | undefined) => number | undefined,
 ): Excursion[] {
   const excursions: Excursion[] = [];
   const m = lines.length;
@@ -28,7 +32,10 @@ export function findExcursions(
     while (j + 1 < m && lines[j + 1]!.status === l.status) {
       j++;
       shown ||= lines[j]!.shown;
-      const better = l.status === "above" ? lines[j]!.deviationDb > lines[worst]!.deviationDb : lines[j]!.deviationDb < lines[worst]!.deviationDb;
+      const better =
+        l.status === "above"
+          ? lines[j]!.deviationDb > lines[worst]!.deviationDb
+          : lines[j]!.deviationDb < lines[worst]!.deviationDb;
       if (better) worst = j;
     }
     excursions.push(excursion(js, lines, i, j, worst, shown, { t, reread, secondsAt, plain, tests }));
@@ -47,7 +54,15 @@ interface ExcursionContext {
 }
 
 /** The run of lines i..j (its worst line `worst`) as an excursion. */
-function excursion(js: JudgedSpectrum, lines: LineDeviation[], i: number, j: number, worst: number, shown: boolean, c: ExcursionContext): Excursion {
+function excursion(
+  js: JudgedSpectrum,
+  lines: LineDeviation[],
+  i: number,
+  j: number,
+  worst: number,
+  shown: boolean,
+  c: ExcursionContext,
+): Excursion {
   const { k, idx } = js;
   const l = lines[i]!;
   const w = lines[worst]!;
@@ -62,12 +77,22 @@ function excursion(js: JudgedSpectrum, lines: LineDeviation[], i: number, j: num
   // largest of k: over its mean at the limit, per channel); undefined when that reading is inside the limit.
   const again = c.reread(idx[worst]!) / limit;
   const trueRatio = above ? again / js.meanAt(v) : again;
-  const factor = shown || (above ? trueRatio <= 1 : trueRatio >= 1) ? undefined : longerRecordFactor(trueRatio, v, above ? c.t.upLevel : c.t.loLevel, DECIDE_PROBABILITY, above ? k : 1);
+  const factor =
+    shown || (above ? trueRatio <= 1 : trueRatio >= 1)
+      ? undefined
+      : longerRecordFactor(trueRatio, v, above ? c.t.upLevel : c.t.loLevel, DECIDE_PROBABILITY, above ? k : 1);
   return {
-    fromHz: l.frequencyHz, toHz: lines[j]!.frequencyHz, direction: l.status as "above" | "below", lines: j - i + 1,
-    worstDb: w.deviationDb, worstHz: w.frequencyHz, limitDb: above ? w.upperDb : -w.lowerDb,
+    fromHz: l.frequencyHz,
+    toHz: lines[j]!.frequencyHz,
+    direction: l.status as "above" | "below",
+    lines: j - i + 1,
+    worstDb: w.deviationDb,
+    worstHz: w.frequencyHz,
+    limitDb: above ? w.upperDb : -w.lowerDb,
     clear: above ? (ratio / js.meanAt(v)) * c.plain.lower > 1 : ratio * c.plain.upper < 1,
-    shown, adjustedP: Math.min(1, p * c.tests),
-    longerRecordFactor: factor, secondsToShow: factor === undefined ? undefined : c.secondsAt(factor * v),
+    shown,
+    adjustedP: Math.min(1, p * c.tests),
+    longerRecordFactor: factor,
+    secondsToShow: factor === undefined ? undefined : c.secondsAt(factor * v),
   };
 }

@@ -1,4 +1,9 @@
-import { detrendBiasedLines, lineVarianceInflation, spectralKernel, type SpectralKernel } from "../estimate/spectral/spectralKernel.js";
+import {
+  detrendBiasedLines,
+  lineVarianceInflation,
+  spectralKernel,
+  type SpectralKernel,
+} from "../estimate/spectral/spectralKernel.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import type { SpectrumUnderTest } from "./complianceTypes.js";
 import { largestEffectiveDof, largestOfMoments } from "./decisionRule.js";
@@ -12,7 +17,8 @@ import { profileLevel, type TestProfile, type ToleranceBand } from "./testProfil
 export function bandAt(bands: ToleranceBand[], f: number): ToleranceBand | undefined {
   let best: ToleranceBand | undefined;
   for (const b of bands) {
-    if (f >= b.fromHz && f <= b.toHz && (best === undefined || b.upperDb + b.lowerDb < best.upperDb + best.lowerDb)) best = b;
+    if (f >= b.fromHz && f <= b.toHz && (best === undefined || b.upperDb + b.lowerDb < best.upperDb + best.lowerDb))
+      best = b;
   }
   return best;
 }
@@ -84,14 +90,35 @@ interface FineGrid {
 }
 
 /** The values `smoothed` reads, sampled once on the sub-bin grid; undefined where the lines do not sit on that grid. */
-function fineGrid(p: TestProfile, kernel: SpectralKernel, sp: SpectrumUnderTest, nyquist: number, f0: number, fN: number): FineGrid | undefined {
+function fineGrid(
+  p: TestProfile,
+  kernel: SpectralKernel,
+  sp: SpectrumUnderTest,
+  nyquist: number,
+  f0: number,
+  fN: number,
+): FineGrid | undefined {
   const os = kernel.oversample;
   const df = sp.lineSpacingHz;
   const m = Math.round((nyquist * os) / df);
-  if (!Number.isInteger(os) || Math.abs((nyquist * os) / df - m) > 1e-6 || ![kernel.weights, kernel.wideWeights].every((w) => w.length % 2 === 1)) return undefined;
-  for (let i = 0; i < sp.frequencyHz.length; i++) if (Math.abs(sp.frequencyHz[i]! - i * df) > 1e-9 * df * (i + 1)) return undefined;
+  if (
+    !Number.isInteger(os) ||
+    Math.abs((nyquist * os) / df - m) > 1e-6 ||
+    ![kernel.weights, kernel.wideWeights].every((w) => w.length % 2 === 1)
+  )
+    return undefined;
+  for (let i = 0; i < sp.frequencyHz.length; i++)
+    if (Math.abs(sp.frequencyHz[i]! - i * df) > 1e-9 * df * (i + 1)) return undefined;
   const n = m + 1;
-  const grid: FineGrid = { oversample: os, nyquistIndex: m, req: new Float64Array(n), up: new Float64Array(n), lo: new Float64Array(n), oUp: new Float64Array(n), oLo: new Float64Array(n) };
+  const grid: FineGrid = {
+    oversample: os,
+    nyquistIndex: m,
+    req: new Float64Array(n),
+    up: new Float64Array(n),
+    lo: new Float64Array(n),
+    oUp: new Float64Array(n),
+    oLo: new Float64Array(n),
+  };
   const tol = 1e-9 * (fN - f0);
   for (let k = 0; k < n; k++) {
     let g = (k / os) * df;
@@ -162,7 +189,13 @@ interface JudgedGrid {
 const gridCache = new WeakMap<TestProfile, Map<string, JudgedGrid>>();
 
 /** The judged lines of an analysis grid and the profile and limits each should show. */
-function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUnderTest, f0: number, fN: number): JudgedGrid {
+function judgedGrid(
+  profile: TestProfile,
+  kernel: SpectralKernel,
+  sp: SpectrumUnderTest,
+  f0: number,
+  fN: number,
+): JudgedGrid {
   const key = `${sp.sampleRateHz}:${sp.segmentLength}:${sp.window}:${sp.detrend}:${sp.frequencyHz.length}`;
   let byProfile = gridCache.get(profile);
   if (!byProfile) gridCache.set(profile, (byProfile = new Map()));
@@ -172,12 +205,22 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
   const kw = kernelView(kernel.wideWeights, kernel.oversample, sp.lineSpacingHz);
   const biased = detrendBiasedLines(kernel);
   const nyquist = sp.sampleRateHz / 2;
-  const g: JudgedGrid = { idx: [], req: [], up: [], lo: [], oUp: [], oLo: [], unjudged: { edge: 0, detrend: 0, notch: 0 } };
+  const g: JudgedGrid = {
+    idx: [],
+    req: [],
+    up: [],
+    lo: [],
+    oUp: [],
+    oLo: [],
+    unjudged: { edge: 0, detrend: 0, notch: 0 },
+  };
   // The profile and limits sampled once on the kernel's sub-bin grid (when the lines sit on it, as Welch's do): each
   // line then reads them by index instead of evaluating the profile again under every kernel sample. Same values.
   const fine = fineGrid(profile, kernel, sp, nyquist, f0, fN);
   const look = (view: KernelView, i: number, partial = false) =>
-    fine ? smoothedOnGrid(fine, view.weights, i, partial) : smoothed(profile, view, sp.frequencyHz[i]!, nyquist, f0, fN, partial);
+    fine
+      ? smoothedOnGrid(fine, view.weights, i, partial)
+      : smoothed(profile, view, sp.frequencyHz[i]!, nyquist, f0, fN, partial);
   for (let i = 1; i < sp.frequencyHz.length; i++) {
     const f = sp.frequencyHz[i]!;
     if (f < f0 || f > fN) continue;
@@ -196,7 +239,12 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
     let s = look(kw, i);
     if (s === undefined) {
       const probe = look(kw, i, true);
-      if (probe !== undefined && (Math.abs(probe.req / core.req - 1) > NOTCH_LIMIT || Math.abs(probe.up / core.up - 1) > NOTCH_LIMIT || Math.abs(probe.lo / core.lo - 1) > NOTCH_LIMIT)) {
+      if (
+        probe !== undefined &&
+        (Math.abs(probe.req / core.req - 1) > NOTCH_LIMIT ||
+          Math.abs(probe.up / core.up - 1) > NOTCH_LIMIT ||
+          Math.abs(probe.lo / core.lo - 1) > NOTCH_LIMIT)
+      ) {
         g.unjudged.notch++;
         continue;
       }
@@ -213,7 +261,6 @@ function judgedGrid(profile: TestProfile, kernel: SpectralKernel, sp: SpectrumUn
   byProfile.set(key, g);
   return g;
 }
-
 
 /** A spectrum's judged lines with what each should show, and the DOF each line's test uses. */
 export interface JudgedSpectrum {
@@ -262,7 +309,13 @@ export function judgedSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Jud
   const k = Math.max(1, sp.upperSharedBy ?? 1);
   // Which lines are judged, and what each should show (cached per profile and analysis grid).
   const grid = judgedGrid(profile, kernel, sp, f0, fN);
-  const unjudged = { edge: grid.unjudged.edge, detrend: grid.unjudged.detrend, aboveRecord: 0, notch: grid.unjudged.notch, excluded: 0 };
+  const unjudged = {
+    edge: grid.unjudged.edge,
+    detrend: grid.unjudged.detrend,
+    aboveRecord: 0,
+    notch: grid.unjudged.notch,
+    excluded: 0,
+  };
   const idx: number[] = [];
   const req: number[] = [];
   const limitsUp: number[] = [];
@@ -294,7 +347,27 @@ export function judgedSpectrum(sp: SpectrumUnderTest, profile: TestProfile): Jud
     unjudged.aboveRecord = Math.max(0, Math.floor((fN - Math.max(f0, nyquist)) / df));
   }
   return {
-    sp, kernel, inflation: lineVarianceInflation(kernel), k, family: Math.max(1, sp.family ?? 1), f0, fN, nyquist, df, half, nu,
-    idx, req, limitsUp, limitsLo, outerUp, outerLo, upEff, unjudged, nuAt, meanAt, effAt,
+    sp,
+    kernel,
+    inflation: lineVarianceInflation(kernel),
+    k,
+    family: Math.max(1, sp.family ?? 1),
+    f0,
+    fN,
+    nyquist,
+    df,
+    half,
+    nu,
+    idx,
+    req,
+    limitsUp,
+    limitsLo,
+    outerUp,
+    outerLo,
+    upEff,
+    unjudged,
+    nuAt,
+    meanAt,
+    effAt,
   };
 }

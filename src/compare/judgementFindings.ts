@@ -13,7 +13,13 @@ import type { TestProfile } from "./testProfile.js";
  */
 
 /** The failures the data show: lines outside beyond the allowance, a line beyond an outer limit, the RMS outside. */
-export function failFindings(js: JudgedSpectrum, m: number, allowanceLines: number, shown: { shownOut: number; shownOuter: number }, rms: RmsTest): Finding[] {
+export function failFindings(
+  js: JudgedSpectrum,
+  m: number,
+  allowanceLines: number,
+  shown: { shownOut: number; shownOuter: number },
+  rms: RmsTest,
+): Finding[] {
   const fails: Finding[] = [];
   const { shownOut, shownOuter } = shown;
   const { f0, fN } = js;
@@ -21,7 +27,12 @@ export function failFindings(js: JudgedSpectrum, m: number, allowanceLines: numb
   if (shownOut > allowanceLines) {
     fails.push({
       code: "LINES_OUTSIDE",
-      values: { lines: shownOut, judged: m, ...(allowanceLines > 0 ? { allowance: allowanceLines } : {}), falseFailPercent: percent(DECISION_RULE.falseFailRate) },
+      values: {
+        lines: shownOut,
+        judged: m,
+        ...(allowanceLines > 0 ? { allowance: allowanceLines } : {}),
+        falseFailPercent: percent(DECISION_RULE.falseFailRate),
+      },
       // The false-fail rate is said per record, and per spectrum when several are judged (the family).
       ...(js.family > 1 ? { about: { family: js.family } } : {}),
     });
@@ -31,14 +42,27 @@ export function failFindings(js: JudgedSpectrum, m: number, allowanceLines: numb
     const tol = rms.tolerance!;
     fails.push({
       code: "RMS_OUTSIDE",
-      values: { rms: rms.measuredRms, deviationDb: rms.deviationDb, requiredRms: rms.requiredRms, ...(top < fN ? { fromHz: f0, toHz: top } : {}), upperDb: tol.upper, lowerDb: tol.lower }  });
+      values: {
+        rms: rms.measuredRms,
+        deviationDb: rms.deviationDb,
+        requiredRms: rms.requiredRms,
+        ...(top < fN ? { fromHz: f0, toHz: top } : {}),
+        upperDb: tol.upper,
+        lowerDb: tol.lower,
+      },
+    });
   }
   return fails;
 }
 
 /** What else a pass needs that a longer run can bring: an RMS resolved, judged lines, the DOF, the power, the duration. */
 export function blockerFindings(
-  js: JudgedSpectrum, profile: TestProfile, m: number, rms: RmsTest, p: PassPower, secondsAt: (v: number | undefined) => number | undefined,
+  js: JudgedSpectrum,
+  profile: TestProfile,
+  m: number,
+  rms: RmsTest,
+  p: PassPower,
+  secondsAt: (v: number | undefined) => number | undefined,
 ): Finding[] {
   const blockers: Finding[] = [];
   const { nu, sp } = js;
@@ -46,32 +70,48 @@ export function blockerFindings(
   const required = profile.minDof;
   if (!rms.shown && !rms.ok) {
     const tol = rms.tolerance!;
-    blockers.push({ code: "RMS_UNRESOLVED", values: { deviationDb: rms.deviationDb, upperDb: tol.upper, lowerDb: tol.lower, dof: rms.dof } });
+    blockers.push({
+      code: "RMS_UNRESOLVED",
+      values: { deviationDb: rms.deviationDb, upperDb: tol.upper, lowerDb: tol.lower, dof: rms.dof },
+    });
   }
   if (m === 0) blockers.push({ code: "NO_LINES", values: {} });
   if (required !== undefined && nu < required) {
     const sec = secondsAt(required);
     blockers.push({
-      code: "DOF_BELOW_PROFILE", values: { dof: nu, requiredDof: required, ...(sec !== undefined ? { secondsForDof: sec } : {}) }  });
+      code: "DOF_BELOW_PROFILE",
+      values: { dof: nu, requiredDof: required, ...(sec !== undefined ? { secondsForDof: sec } : {}) },
+    });
   }
   if (m > 0 && requirement !== null && nu < forPower) {
     const sec = secondsAt(forPower);
     blockers.push({
       code: "DOF_BELOW_POWER",
       values: {
-        dof: nu, dofForPower: forPower, departureDb: requirement.departureDb, departurePercent: percent(requirement.departureShare), widthLines: requirement.widthLines, lines: m,
-        powerPercent: percent(requirement.probability), achievedPowerPercent: percent(power.least), ...(sec !== undefined ? { secondsForPower: sec } : {}),
+        dof: nu,
+        dofForPower: forPower,
+        departureDb: requirement.departureDb,
+        departurePercent: percent(requirement.departureShare),
+        widthLines: requirement.widthLines,
+        lines: m,
+        powerPercent: percent(requirement.probability),
+        achievedPowerPercent: percent(power.least),
+        ...(sec !== undefined ? { secondsForPower: sec } : {}),
       },
     });
   }
-  if (profile.durationS !== undefined && sp.durationS < profile.durationS * (1 - 1e-9)) blockers.push(durationShort(sp, profile.durationS));
+  if (profile.durationS !== undefined && sp.durationS < profile.durationS * (1 - 1e-9))
+    blockers.push(durationShort(sp, profile.durationS));
   return blockers;
 }
 
 function durationShort(sp: SpectrumUnderTest, requiredS: number): Finding {
   const w = sp.analysedWindow;
   return w
-    ? { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: requiredS, fromS: w.fromS, toS: w.toS } }
+    ? {
+        code: "DURATION_SHORT",
+        values: { durationS: sp.durationS, requiredDurationS: requiredS, fromS: w.fromS, toS: w.toS },
+      }
     : { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: requiredS } };
 }
 
@@ -80,15 +120,27 @@ export function coverageFindings(js: JudgedSpectrum, profile: TestProfile, lines
   const fixedBlockers: Finding[] = [];
   const { sp, fN, f0, nyquist, df, kernel } = js;
   if (fN > nyquist * (1 + 1e-12)) {
-    fixedBlockers.push({ code: "RANGE_ABOVE_RECORD", values: { profileTopHz: fN, sampleRateHz: sp.sampleRateHz, nyquistHz: nyquist, linesUnseen: js.unjudged.aboveRecord } });
+    fixedBlockers.push({
+      code: "RANGE_ABOVE_RECORD",
+      values: {
+        profileTopHz: fN,
+        sampleRateHz: sp.sampleRateHz,
+        nyquistHz: nyquist,
+        linesUnseen: js.unjudged.aboveRecord,
+      },
+    });
   }
   if (lines.length > 0) {
     const gapLow = lines[0]!.frequencyHz - f0;
     const allowed = (kernel.halfWidthBins + 1) * df;
-    if (gapLow > allowed) fixedBlockers.push({ code: "RANGE_BELOW_JUDGED", values: { firstLineHz: lines[0]!.frequencyHz, gapHz: gapLow } });
+    if (gapLow > allowed)
+      fixedBlockers.push({ code: "RANGE_BELOW_JUDGED", values: { firstLineHz: lines[0]!.frequencyHz, gapHz: gapLow } });
   }
   if (profile.resolutionHz !== undefined && df > profile.resolutionHz * (1 + 1e-9)) {
-    fixedBlockers.push({ code: "RESOLUTION_COARSE", values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz } });
+    fixedBlockers.push({
+      code: "RESOLUTION_COARSE",
+      values: { lineSpacingHz: df, profileResolutionHz: profile.resolutionHz },
+    });
   }
   return fixedBlockers;
 }
@@ -106,9 +158,17 @@ export function passFinding(m: number, p: PassPower, rule: RuleReport, family: n
   return {
     code: "PASS",
     values: {
-      lines: m, departureDb: rq.departureDb, widthLines: rq.widthLines, powerPercent: percent(power.least), defaultPowerPercent: percent(powerDefault.least),
-      falseFailPercent: percent(rule.falseFailAtProfile), recordFalseFailPercent: percent(DECISION_RULE.falseFailRate),
+      lines: m,
+      departureDb: rq.departureDb,
+      widthLines: rq.widthLines,
+      powerPercent: percent(power.least),
+      defaultPowerPercent: percent(powerDefault.least),
+      falseFailPercent: percent(rule.falseFailAtProfile),
+      recordFalseFailPercent: percent(DECISION_RULE.falseFailRate),
     },
-    about: { requirement: requirement === null ? "none" : requirement.source === "profile" ? "profile" : "default", ...(family > 1 ? { family } : {}) },
+    about: {
+      requirement: requirement === null ? "none" : requirement.source === "profile" ? "profile" : "default",
+      ...(family > 1 ? { family } : {}),
+    },
   };
 }

@@ -45,10 +45,12 @@ export interface LevelSwing {
 /** The level-swing test on a run's stretch mean squares against a tolerance in dB (of mean square). */
 export function levelSwing(stretchMs: ArrayLike<number>, toleranceDb: number): LevelSwing {
   const values: number[] = [];
-  for (let i = 0; i < stretchMs.length; i++) if (Number.isFinite(stretchMs[i]!) && stretchMs[i]! >= 0) values.push(stretchMs[i]!);
+  for (let i = 0; i < stretchMs.length; i++)
+    if (Number.isFinite(stretchMs[i]!) && stretchMs[i]! >= 0) values.push(stretchMs[i]!);
   const n = values.length;
   const blocks = Math.min(LEVEL_GATE.blocks, Math.floor(n / LEVEL_GATE.minPerBlock));
-  if (blocks < 2) return { tested: false, blocks: 0, levelDb: [], standardErrorDb: [], worst: -1, excessDb: -Infinity, z: NaN };
+  if (blocks < 2)
+    return { tested: false, blocks: 0, levelDb: [], standardErrorDb: [], worst: -1, excessDb: -Infinity, z: NaN };
   const z = normalQuantile(1 - LEVEL_GATE.falseDoubtRate / (2 * blocks));
   const used = blocks * Math.floor(n / blocks);
   const per = used / blocks;
@@ -87,7 +89,13 @@ export function levelSwing(stretchMs: ArrayLike<number>, toleranceDb: number): L
  * The gate's findings for one channel (empty when it clears): LEVEL_SWING and DRIFT_DOMINATES.
  * `toleranceDb`: the profile's RMS tolerance as a level (the smaller side), else its narrowest band.
  */
-export function levelGate(stretchMs: ArrayLike<number> | undefined, stretchS: number, toleranceDb: number, belowShare: number, belowHz: number): Finding[] {
+export function levelGate(
+  stretchMs: ArrayLike<number> | undefined,
+  stretchS: number,
+  toleranceDb: number,
+  belowShare: number,
+  belowHz: number,
+): Finding[] {
   const out: Finding[] = [];
   if (stretchMs !== undefined) {
     const s = levelSwing(stretchMs, toleranceDb);

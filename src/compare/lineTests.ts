@@ -1,6 +1,13 @@
 import { chiSquareCdf, chiSquareSurvival } from "../estimate/statistics/distributions.js";
 import type { LineDeviation } from "./complianceTypes.js";
-import { DECISION_RULE, largestChance, largestUpperFactor, lowerFactor, ruleLevels, upperFactor } from "./decisionRule.js";
+import {
+  DECISION_RULE,
+  largestChance,
+  largestUpperFactor,
+  lowerFactor,
+  ruleLevels,
+  upperFactor,
+} from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 
 /**
@@ -18,9 +25,21 @@ export function lineDeviations(js: JudgedSpectrum, outer: boolean): LineDeviatio
     const measured = i === half ? 2 * sp.psd[i]! : sp.psd[i]!;
     const status = measured > upEff[j]! ? "above" : measured < limitsLo[j]! || !(measured > 0) ? "below" : "within";
     lines.push({
-      frequencyHz: sp.frequencyHz[i]!, measured, required: req[j]!, deviationDb: 10 * Math.log10(measured / req[j]!),
-      upperDb: 10 * Math.log10(upEff[j]! / req[j]!), lowerDb: -10 * Math.log10(limitsLo[j]! / req[j]!), status, shown: false, beyondOuter: false,
-      ...(outer ? { outerUpperDb: 10 * Math.log10((outerUp[j]! * js.meanAt(js.nuAt(i))) / req[j]!), outerLowerDb: -10 * Math.log10(outerLo[j]! / req[j]!) } : {}),
+      frequencyHz: sp.frequencyHz[i]!,
+      measured,
+      required: req[j]!,
+      deviationDb: 10 * Math.log10(measured / req[j]!),
+      upperDb: 10 * Math.log10(upEff[j]! / req[j]!),
+      lowerDb: -10 * Math.log10(limitsLo[j]! / req[j]!),
+      status,
+      shown: false,
+      beyondOuter: false,
+      ...(outer
+        ? {
+            outerUpperDb: 10 * Math.log10((outerUp[j]! * js.meanAt(js.nuAt(i))) / req[j]!),
+            outerLowerDb: -10 * Math.log10(outerLo[j]! / req[j]!),
+          }
+        : {}),
     });
   }
   return lines;
@@ -54,7 +73,14 @@ export interface LineTestLevels {
   factors(v: number): LineFactors;
 }
 
-export function lineTestLevels(m: number, allowanceLines: number, outer: boolean, family: number, toneShare: number, k: number): LineTestLevels {
+export function lineTestLevels(
+  m: number,
+  allowanceLines: number,
+  outer: boolean,
+  family: number,
+  toneShare: number,
+  k: number,
+): LineTestLevels {
   const widths = allowanceLines === 0 ? stretchWidths(m) : [];
   const levels = ruleLevels(m, outer, family, toneShare);
   // Single lines get the line alpha less the stretches' share; each stretch width an equal part of that share.
@@ -66,8 +92,10 @@ export function lineTestLevels(m: number, allowanceLines: number, outer: boolean
     let f = factorCache.get(v);
     if (!f) {
       f = {
-        up: largestUpperFactor(v, upLevel, k), lo: lowerFactor(v, loLevel),
-        oUp: outer ? largestUpperFactor(v, levels.upper.outerTest!, k) : Infinity, oLo: outer ? lowerFactor(v, levels.lower.outerTest!) : 0,
+        up: largestUpperFactor(v, upLevel, k),
+        lo: lowerFactor(v, loLevel),
+        oUp: outer ? largestUpperFactor(v, levels.upper.outerTest!, k) : Infinity,
+        oLo: outer ? lowerFactor(v, levels.lower.outerTest!) : 0,
       };
       factorCache.set(v, f);
     }
@@ -77,7 +105,12 @@ export function lineTestLevels(m: number, allowanceLines: number, outer: boolean
 }
 
 /** Marks the lines shown outside their band (single lines, then stretches) and beyond the outer limits; returns the counts. */
-export function markShownLines(js: JudgedSpectrum, lines: LineDeviation[], t: LineTestLevels, outer: boolean): { shownOut: number; shownOuter: number } {
+export function markShownLines(
+  js: JudgedSpectrum,
+  lines: LineDeviation[],
+  t: LineTestLevels,
+  outer: boolean,
+): { shownOut: number; shownOuter: number } {
   let shownOut = 0;
   let shownOuter = 0;
   if (!(js.nu > 0)) return { shownOut, shownOuter };
@@ -107,7 +140,8 @@ function markShownStretches(js: JudgedSpectrum, lines: LineDeviation[], t: LineT
   const m = lines.length;
   const nuUpEff = js.effAt(nu);
   let c = 1;
-  for (let d = 1; d < Math.min(w, kernel.lineCorrelation.length); d++) c += 2 * (1 - d / w) * kernel.lineCorrelation[d]!;
+  for (let d = 1; d < Math.min(w, kernel.lineCorrelation.length); d++)
+    c += 2 * (1 - d / w) * kernel.lineCorrelation[d]!;
   const nuW = (nu * w) / c;
   const nuWUp = (nuUpEff * w) / c;
   const count = Math.max(1, Math.floor((m - w) / (w / 2)) + 1);

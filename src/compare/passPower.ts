@@ -1,5 +1,12 @@
 import { departureShare } from "../estimate/spectral/spectralKernel.js";
-import { DEFAULT_POWER, dofForPower, powerAt, type PowerAt, type PowerInputs, type PowerRequirement } from "./decisionRule.js";
+import {
+  DEFAULT_POWER,
+  dofForPower,
+  powerAt,
+  type PowerAt,
+  type PowerInputs,
+  type PowerRequirement,
+} from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { TestProfile } from "./testProfile.js";
 
@@ -45,13 +52,29 @@ export function passPower(js: JudgedSpectrum, profile: TestProfile, s: PowerSett
   const bandsUp = Math.max(...profile.bands.map((b) => b.upperDb));
   const bandsLo = Math.max(...profile.bands.map((b) => b.lowerDb));
   const powerInputs: PowerInputs = {
-    lines: Math.max(1, s.lines), allowance: s.allowanceLines, inflation: js.inflation, rmsDofRatio: s.rmsDofRatio, outerLimits: s.outer, upperSharedBy: js.k,
-    family: js.family, toneShare: s.toneShare, seenShare: (w) => departureShare(kernel, w), widestUpperDb: bandsUp, widestLowerDb: bandsLo, singleLineShare: s.singleShare,
+    lines: Math.max(1, s.lines),
+    allowance: s.allowanceLines,
+    inflation: js.inflation,
+    rmsDofRatio: s.rmsDofRatio,
+    outerLimits: s.outer,
+    upperSharedBy: js.k,
+    family: js.family,
+    toneShare: s.toneShare,
+    seenShare: (w) => departureShare(kernel, w),
+    widestUpperDb: bandsUp,
+    widestLowerDb: bandsLo,
+    singleLineShare: s.singleShare,
   };
   const requirement = powerRequirement(profile);
   const forDefault = dofForPower(powerInputs, DEFAULT_POWER);
   const powerDefault = powerAt(Math.max(nu, 1e-9), powerInputs, DEFAULT_POWER);
-  const forPower = requirement === null ? 0 : requirement.source === "default" ? forDefault : dofForPower(powerInputs, requirement);
-  const power = requirement === null ? powerDefault : requirement.source === "default" ? powerDefault : powerAt(Math.max(nu, 1e-9), powerInputs, requirement);
+  const forPower =
+    requirement === null ? 0 : requirement.source === "default" ? forDefault : dofForPower(powerInputs, requirement);
+  const power =
+    requirement === null
+      ? powerDefault
+      : requirement.source === "default"
+        ? powerDefault
+        : powerAt(Math.max(nu, 1e-9), powerInputs, requirement);
   return { requirement, power, forPower, powerDefault, forDefault };
 }

@@ -52,10 +52,18 @@ export interface RmsTest {
  * RMS over the profile's range, with each end line counted for the part of its cell inside. A record that
  * cannot reach the profile's top is compared over the part it covers.
  */
-export function rmsTest(js: JudgedSpectrum, profile: TestProfile, m: number, levels: { upper: RuleLevels; lower: RuleLevels }, tones?: ToneAllowance): RmsTest {
+export function rmsTest(
+  js: JudgedSpectrum,
+  profile: TestProfile,
+  m: number,
+  levels: { upper: RuleLevels; lower: RuleLevels },
+  tones?: ToneAllowance,
+): RmsTest {
   const { sp, f0, fN, nyquist, nu, df, half } = js;
   const top = Math.min(fN, nyquist);
-  const requiredRms = Math.sqrt((top < fN ? profileMeanSquare(profile, f0, top) : profile.rms * profile.rms) + (tones?.toneMeanSquare ?? 0));
+  const requiredRms = Math.sqrt(
+    (top < fN ? profileMeanSquare(profile, f0, top) : profile.rms * profile.rms) + (tones?.toneMeanSquare ?? 0),
+  );
   const measuredMs = bandMeanSquare(sp, f0, top);
   const measuredRms = Math.sqrt(measuredMs);
   const rmsDev = 20 * Math.log10(measuredRms / requiredRms);
@@ -79,11 +87,24 @@ export function rmsTest(js: JudgedSpectrum, profile: TestProfile, m: number, lev
   let rmsShown = false;
   if (tol !== undefined && rmsDof > 0 && measuredMs > 0) {
     const rmsDofUp = rmsDof * (js.effAt(nu) / nu);
-    rmsShown = measuredMs / (hiLimit * muNow) > upperFactor(rmsDofUp, levels.upper.rmsTest) || measuredMs / loLimit < lowerFactor(rmsDof, levels.lower.rmsTest);
+    rmsShown =
+      measuredMs / (hiLimit * muNow) > upperFactor(rmsDofUp, levels.upper.rmsTest) ||
+      measuredMs / loLimit < lowerFactor(rmsDof, levels.lower.rmsTest);
   }
   return {
-    top, measuredMs, measuredRms, requiredRms, deviationDb: rmsDev, tolerance: tol, ok: rmsOk, shown: rmsShown,
-    dof: rmsDof, dofRatio: rmsRatio, muNow, hiLimit, loLimit,
+    top,
+    measuredMs,
+    measuredRms,
+    requiredRms,
+    deviationDb: rmsDev,
+    tolerance: tol,
+    ok: rmsOk,
+    shown: rmsShown,
+    dof: rmsDof,
+    dofRatio: rmsRatio,
+    muNow,
+    hiLimit,
+    loLimit,
   };
 }
 
@@ -91,7 +112,11 @@ export function rmsTest(js: JudgedSpectrum, profile: TestProfile, m: number, lev
  * The RMS tests' terms of the false-fail rate if the PSD were the profile, upper then lower (none without a
  * tolerance): the caller adds them to the lines' union bound in that order.
  */
-export function rmsFalseFailTerms(js: JudgedSpectrum, r: RmsTest, levels: { upper: RuleLevels; lower: RuleLevels }): number[] {
+export function rmsFalseFailTerms(
+  js: JudgedSpectrum,
+  r: RmsTest,
+  levels: { upper: RuleLevels; lower: RuleLevels },
+): number[] {
   const tol = r.tolerance;
   if (tol === undefined || !(r.dof > 0)) return [];
   const rmsDof = r.dof;

@@ -4,7 +4,14 @@ import { welchDofBySegments } from "../estimate/spectral/welchDof.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import type { Finding } from "../findings.js";
 import type { DecideEstimate, SpectrumUnderTest } from "./complianceTypes.js";
-import { chanceAbove, chanceBelow, largestChance, largestUpperFactor, lowerFactor, upperFactor } from "./decisionRule.js";
+import {
+  chanceAbove,
+  chanceBelow,
+  largestChance,
+  largestUpperFactor,
+  lowerFactor,
+  upperFactor,
+} from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { LineTestLevels } from "./lineTests.js";
 import { percent } from "./percentWords.js";
@@ -25,7 +32,10 @@ const dofCurves = new Map<string, (segments: number) => number>();
  * Seconds of record that give `dof` at this sample rate, segment and overlap: the fewest segments K whose
  * Welch DOF (welchDof, Percival & Walden 1993 eq. 292b) reaches it, then (K - 1) hop + N samples.
  */
-export function secondsForDof(sp: Pick<SpectrumUnderTest, "window" | "segmentLength" | "overlap" | "sampleRateHz">, dof: number): number | undefined {
+export function secondsForDof(
+  sp: Pick<SpectrumUnderTest, "window" | "segmentLength" | "overlap" | "sampleRateHz">,
+  dof: number,
+): number | undefined {
   if (!(dof > 0) || !Number.isFinite(dof)) return undefined;
   const n = sp.segmentLength;
   const hop = Math.max(1, n - Math.round((sp.overlap ?? 0.5) * n));
@@ -59,7 +69,13 @@ export function secondsForDof(sp: Pick<SpectrumUnderTest, "window" | "segmentLen
  * reaches the threshold). With `k` > 1 (above, the largest of k channels each at that level), the chance
  * is 1 - (1 - P1)^k. Undefined for a line on or inside its limit, or past 1e6 times the DOF.
  */
-export function longerRecordFactor(ratio: number, dof: number, level: number, probability = DECIDE_PROBABILITY, k = 1): number | undefined {
+export function longerRecordFactor(
+  ratio: number,
+  dof: number,
+  level: number,
+  probability = DECIDE_PROBABILITY,
+  k = 1,
+): number | undefined {
   if (!(dof > 0) || ratio === 1 || !Number.isFinite(ratio) || ratio <= 0) return undefined;
   const chance = (nu: number) => {
     if (ratio > 1) {
@@ -84,7 +100,6 @@ export function longerRecordFactor(ratio: number, dof: number, level: number, pr
   return hi / dof;
 }
 
-
 /**
  * The measured spectrum taken as the truth over each line's cell, read again through the window's kernel (what
  * a new run would show on average): c_0 of the line's own cell, c_d of each cell d lines away (departureShare).
@@ -92,7 +107,8 @@ export function longerRecordFactor(ratio: number, dof: number, level: number, pr
 export function kernelReread(kernel: SpectralKernel, sp: Pick<SpectrumUnderTest, "psd">): (i: number) => number {
   const half = sp.psd.length - 1;
   const cellShare: number[] = [departureShare(kernel, 1)];
-  for (let d = 1; d <= kernel.wideHalfWidthBins; d++) cellShare.push((departureShare(kernel, 2 * d + 1) - departureShare(kernel, 2 * d - 1)) / 2);
+  for (let d = 1; d <= kernel.wideHalfWidthBins; d++)
+    cellShare.push((departureShare(kernel, 2 * d + 1) - departureShare(kernel, 2 * d - 1)) / 2);
   return (i: number) => {
     let e = 0;
     let wsum = 0;
@@ -125,7 +141,10 @@ export interface DecideInputs {
  * outside as read again through the kernel (1 - prod (1 - p_j)^(1/inflation)) and the RMS tests; P(pass) =
  * (1 - P(fail)) P(RMS inside as measured), once the DOF a pass needs and the profile's duration are reached.
  */
-function decideChance(js: JudgedSpectrum, d: DecideInputs): (v: number) => { decided: number; likely: "pass" | "fail" } {
+function decideChance(
+  js: JudgedSpectrum,
+  d: DecideInputs,
+): (v: number) => { decided: number; likely: "pass" | "fail" } {
   const { nu, k, idx, limitsUp, limitsLo, inflation } = js;
   const { tests: t, rms } = d;
   // The measured spectrum taken as the truth, over each line's cell: a new run reads it through the
@@ -163,7 +182,9 @@ function decideChance(js: JudgedSpectrum, d: DecideInputs): (v: number) => { dec
     if (tol !== undefined && rms.dof > 0 && msTrue > 0) {
       const vR = rms.dof * (v / nu);
       const vRe = vR * (js.effAt(v) / v);
-      pRmsFail = chanceAbove(vRe, msTrue / hiLimit, upperFactor(vRe, t.levels.upper.rmsTest)) + chanceBelow(vR, msTrue / loLimit, lowerFactor(vR, t.levels.lower.rmsTest));
+      pRmsFail =
+        chanceAbove(vRe, msTrue / hiLimit, upperFactor(vRe, t.levels.upper.rmsTest)) +
+        chanceBelow(vR, msTrue / loLimit, lowerFactor(vR, t.levels.lower.rmsTest));
       pRmsOk = Math.max(0, chiSquareCdf((vRe * hiLimit) / msTrue, vRe) - chiSquareCdf((vR * loLimit) / msTrue, vR));
     }
     const pFail = 1 - (1 - pLines) * (1 - Math.min(1, pRmsFail));
@@ -178,7 +199,10 @@ function decideChance(js: JudgedSpectrum, d: DecideInputs): (v: number) => { dec
  * 1024 times this run, then bisection between the last two points; the DOF a pass needs is tried as well.
  * Returns the estimate and its RUN_TO_DECIDE finding (none when the run length has no seconds to give).
  */
-export function decideRunLength(js: JudgedSpectrum, d: DecideInputs): { decide: DecideEstimate; finding: Finding | undefined } {
+export function decideRunLength(
+  js: JudgedSpectrum,
+  d: DecideInputs,
+): { decide: DecideEstimate; finding: Finding | undefined } {
   const nu = js.nu;
   const chance = decideChance(js, d);
   const needForPass = d.needForPass;

@@ -9,7 +9,13 @@ import { STANDARD_GRAVITY_M_PER_S2 } from "../units.js";
  */
 
 // The file's types, for the modules that take them with the arithmetic (analyses/deriveProfile.ts imports ProfileDocument from here).
-export type { ProfileDocument, ProfileProvenance, ProfileSpec, ProfileTone, ToleranceBand } from "../read/profileFile.js";
+export type {
+  ProfileDocument,
+  ProfileProvenance,
+  ProfileSpec,
+  ProfileTone,
+  ToleranceBand,
+} from "../read/profileFile.js";
 
 export interface ProfileSegment {
   f1: number;
@@ -45,24 +51,47 @@ export function profileFromSpec(spec: ProfileSpec): TestProfile {
     if (p.level !== undefined) breakpoints.push({ hz: p.hz, level: p.level });
     else {
       const prev = breakpoints[breakpoints.length - 1]!;
-      breakpoints.push({ hz: p.hz, level: prev.level * Math.pow(10, (p.slopeDbPerOctave * Math.log2(p.hz / prev.hz)) / 10) });
+      breakpoints.push({
+        hz: p.hz,
+        level: prev.level * Math.pow(10, (p.slopeDbPerOctave * Math.log2(p.hz / prev.hz)) / 10),
+      });
     }
   }
   const segments = breakpoints.slice(1).map((b, i): ProfileSegment => {
     const a = breakpoints[i]!;
     const exponent = Math.log(b.level / a.level) / Math.log(b.hz / a.hz);
-    return { f1: a.hz, f2: b.hz, g1: a.level, g2: b.level, exponent, slopeDbPerOctave: exponent * 10 * LOG10_2, area: powerLawArea(a.hz, b.hz, a.level, exponent) };
+    return {
+      f1: a.hz,
+      f2: b.hz,
+      g1: a.level,
+      g2: b.level,
+      exponent,
+      slopeDbPerOctave: exponent * 10 * LOG10_2,
+      area: powerLawArea(a.hz, b.hz, a.level, exponent),
+    };
   });
   let area = 0;
   for (const s of segments) area += s.area;
   let toneMs = 0;
   for (const t of spec.tones) toneMs += (t.peak * t.peak) / 2;
   return {
-    title: spec.title, file: spec.file, sha256: spec.sha256, units: spec.units, breakpoints, segments, rms: Math.sqrt(area),
-    tones: spec.tones, totalRms: Math.sqrt(area + toneMs),
+    title: spec.title,
+    file: spec.file,
+    sha256: spec.sha256,
+    units: spec.units,
+    breakpoints,
+    segments,
+    rms: Math.sqrt(area),
+    tones: spec.tones,
+    totalRms: Math.sqrt(area + toneMs),
     bands: spec.bands,
-    rmsToleranceDb: spec.rmsToleranceDb, minDof: spec.minDof, resolutionHz: spec.resolutionHz, durationS: spec.durationS,
-    allowedOutsidePercent: spec.allowedOutsidePercent, outerBands: spec.outerBands, defaultsApplied: spec.defaultsApplied,
+    rmsToleranceDb: spec.rmsToleranceDb,
+    minDof: spec.minDof,
+    resolutionHz: spec.resolutionHz,
+    durationS: spec.durationS,
+    allowedOutsidePercent: spec.allowedOutsidePercent,
+    outerBands: spec.outerBands,
+    defaultsApplied: spec.defaultsApplied,
     ...(spec.provenance !== undefined ? { provenance: spec.provenance } : {}),
     ...(spec.power !== undefined ? { power: spec.power } : {}),
   };
@@ -118,7 +147,12 @@ function checkProfileArithmetic(p: TestProfile): TestProfile {
   const file = p.file;
   p.breakpoints.forEach((b, i) => {
     if (!(Number.isFinite(b.level) && b.level > 0)) {
-      fail(file, `points[${i}]`, "a level that stays a finite positive number (check the slope and the level)", String(b.level));
+      fail(
+        file,
+        `points[${i}]`,
+        "a level that stays a finite positive number (check the slope and the level)",
+        String(b.level),
+      );
     }
   });
   p.segments.forEach((s, i) => {
@@ -126,10 +160,16 @@ function checkProfileArithmetic(p: TestProfile): TestProfile {
       fail(file, `points[${i + 1}]`, `a segment ${s.f1}–${s.f2} Hz whose area is a finite number`, String(s.area));
     }
   });
-  if (!(Number.isFinite(p.rms) && p.rms > 0)) fail(file, "points", "levels whose overall RMS is a finite number above 0", String(p.rms));
+  if (!(Number.isFinite(p.rms) && p.rms > 0))
+    fail(file, "points", "levels whose overall RMS is a finite number above 0", String(p.rms));
   const m = profileMotion(p);
   if (!Number.isFinite(m.velocityRms) || !Number.isFinite(m.displacementRms)) {
-    fail(file, "points", "levels and frequencies whose velocity and displacement are finite", `velocity ${m.velocityRms}, displacement ${m.displacementRms}`);
+    fail(
+      file,
+      "points",
+      "levels and frequencies whose velocity and displacement are finite",
+      `velocity ${m.velocityRms}, displacement ${m.displacementRms}`,
+    );
   }
   for (const [k, b] of p.bands.entries()) {
     if (!(b.upperDb <= MAX_TOLERANCE_DB && b.lowerDb <= MAX_TOLERANCE_DB)) {
@@ -137,7 +177,15 @@ function checkProfileArithmetic(p: TestProfile): TestProfile {
     }
   }
   const t = p.rmsToleranceDb;
-  if (t && !(Number.isFinite(t.upper) && Number.isFinite(t.lower) && t.upper <= MAX_TOLERANCE_DB && t.lower <= MAX_TOLERANCE_DB)) {
+  if (
+    t &&
+    !(
+      Number.isFinite(t.upper) &&
+      Number.isFinite(t.lower) &&
+      t.upper <= MAX_TOLERANCE_DB &&
+      t.lower <= MAX_TOLERANCE_DB
+    )
+  ) {
     fail(file, "tolerance", `an RMS tolerance of at most ${MAX_TOLERANCE_DB} dB`, `+${t.upper}/-${t.lower} dB`);
   }
   return p;

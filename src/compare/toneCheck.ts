@@ -2,7 +2,13 @@ import { normalQuantile } from "../estimate/statistics/distributions.js";
 import { toneFrequencySd, toneLines, tonePeakSd, type ToneFit } from "../estimate/spectral/toneEstimate.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
 import type { Finding } from "../findings.js";
-import { judgeSpectrum, type ChannelCompliance, type SpectrumUnderTest, type ToneJudgement, type Verdict } from "./complianceCheck.js";
+import {
+  judgeSpectrum,
+  type ChannelCompliance,
+  type SpectrumUnderTest,
+  type ToneJudgement,
+  type Verdict,
+} from "./complianceCheck.js";
 import { DECISION_RULE } from "./decisionRule.js";
 import { profileLevel, type ProfileTone, type TestProfile } from "./testProfile.js";
 
@@ -47,7 +53,11 @@ function levelNear(p: TestProfile, f: number): number {
  * Judge one spectrum of a mixed-mode profile: the background with the tones' lines left out, and each tone from
  * its fit (fits in the profile's tone order; a missing fit is judged as a tone of zero peak).
  */
-export function judgeMixedMode(sp: SpectrumUnderTest, profile: TestProfile, fits: readonly (ToneFit | undefined)[]): ChannelCompliance {
+export function judgeMixedMode(
+  sp: SpectrumUnderTest,
+  profile: TestProfile,
+  fits: readonly (ToneFit | undefined)[],
+): ChannelCompliance {
   const tones = profile.tones;
   if (tones.length === 0) return judgeSpectrum(sp, profile);
   const window = spectralWindow(sp.window, sp.segmentLength);
@@ -69,8 +79,12 @@ export function judgeMixedMode(sp: SpectrumUnderTest, profile: TestProfile, fits
   let toneMs = 0;
   for (const t of tones) if (t.hz >= f0 && t.hz <= top) toneMs += (t.peak * t.peak) / 2;
   // The caller's own mask (if any) and the tones' lines together.
-  if (sp.excludedLines) for (let k = 0; k < nLines && k < sp.excludedLines.length; k++) if (sp.excludedLines[k]) excluded[k] = 1;
-  const background = judgeSpectrum({ ...sp, excludedLines: excluded }, profile, { toneMeanSquare: toneMs, toneShare: DECISION_RULE.tones });
+  if (sp.excludedLines)
+    for (let k = 0; k < nLines && k < sp.excludedLines.length; k++) if (sp.excludedLines[k]) excluded[k] = 1;
+  const background = judgeSpectrum({ ...sp, excludedLines: excluded }, profile, {
+    toneMeanSquare: toneMs,
+    toneShare: DECISION_RULE.tones,
+  });
 
   // Each spectrum of a record judged as several (sp.family) gets its share of the record's rate, as the lines do.
   const level = DECISION_RULE.tones / (4 * tones.length * Math.max(1, sp.family ?? 1));
@@ -83,8 +97,18 @@ export function judgeMixedMode(sp: SpectrumUnderTest, profile: TestProfile, fits
     // Background density next to the tone's lines: the mean of up to 8 unexcluded lines each side.
     let sum = 0;
     let count = 0;
-    for (let k = span.first - 1, got = 0; k >= 1 && got < 8; k--) if (!excluded[k]) { sum += sp.psd[k]!; count++; got++; }
-    for (let k = span.last + 1, got = 0; k < nLines && got < 8; k++) if (!excluded[k]) { sum += sp.psd[k]!; count++; got++; }
+    for (let k = span.first - 1, got = 0; k >= 1 && got < 8; k--)
+      if (!excluded[k]) {
+        sum += sp.psd[k]!;
+        count++;
+        got++;
+      }
+    for (let k = span.last + 1, got = 0; k < nLines && got < 8; k++)
+      if (!excluded[k]) {
+        sum += sp.psd[k]!;
+        count++;
+        got++;
+      }
     const G = count > 0 ? sum / count : levelNear(profile, t.hz);
     const T = fit?.durationS ?? sp.durationS;
     const peak = fit?.peak ?? 0;
@@ -95,9 +119,26 @@ export function judgeMixedMode(sp: SpectrumUnderTest, profile: TestProfile, fits
     if (t.hz + t.toleranceHz >= sp.sampleRateHz / 2) {
       // The record cannot hold the tone: nothing can be shown either way.
       return {
-        name: t.label, hz: t.hz, toleranceHz: t.toleranceHz, requiredPeak: t.peak, measuredPeak: NaN, measuredHz: NaN, lowerPeak: lo, upperPeak: up,
-        deviationDb: NaN, peakSd: NaN, frequencySd: NaN, backgroundDensity: NaN, linesFromHz: span.first * df, linesToHz: span.last * df,
-        status: "within" as const, shown: false, testLevel: level, falseFailRate: 4 * level, verdict: "inconclusive" as const, unseen: true,
+        name: t.label,
+        hz: t.hz,
+        toleranceHz: t.toleranceHz,
+        requiredPeak: t.peak,
+        measuredPeak: NaN,
+        measuredHz: NaN,
+        lowerPeak: lo,
+        upperPeak: up,
+        deviationDb: NaN,
+        peakSd: NaN,
+        frequencySd: NaN,
+        backgroundDensity: NaN,
+        linesFromHz: span.first * df,
+        linesToHz: span.last * df,
+        status: "within" as const,
+        shown: false,
+        testLevel: level,
+        falseFailRate: 4 * level,
+        verdict: "inconclusive" as const,
+        unseen: true,
       };
     }
     const low = peak < lo - z * sd;
@@ -107,12 +148,36 @@ export function judgeMixedMode(sp: SpectrumUnderTest, profile: TestProfile, fits
     const shown = low || high || off;
     const outsideAsMeasured = peak < lo || peak > up || Math.abs(hz - t.hz) > t.toleranceHz;
     const resolved = up * (g - 1) >= (z + zPower) * sd && lo * (1 - 1 / g) >= (z + zPower) * sd;
-    const status: ToneJudgement["status"] = missing ? "missing" : low ? "low" : high ? "high" : off ? "off-frequency" : "within";
+    const status: ToneJudgement["status"] = missing
+      ? "missing"
+      : low
+        ? "low"
+        : high
+          ? "high"
+          : off
+            ? "off-frequency"
+            : "within";
     const verdict: Verdict = shown ? "fail" : outsideAsMeasured || !resolved || !(sp.dof > 0) ? "inconclusive" : "pass";
     return {
-      name: t.label, hz: t.hz, toleranceHz: t.toleranceHz, requiredPeak: t.peak, measuredPeak: peak, measuredHz: hz, lowerPeak: lo, upperPeak: up,
-      deviationDb: 20 * Math.log10(peak / t.peak), peakSd: sd, frequencySd: fSd, backgroundDensity: G,
-      linesFromHz: span.first * df, linesToHz: span.last * df, status, shown, testLevel: level, falseFailRate: 4 * level, verdict,
+      name: t.label,
+      hz: t.hz,
+      toleranceHz: t.toleranceHz,
+      requiredPeak: t.peak,
+      measuredPeak: peak,
+      measuredHz: hz,
+      lowerPeak: lo,
+      upperPeak: up,
+      deviationDb: 20 * Math.log10(peak / t.peak),
+      peakSd: sd,
+      frequencySd: fSd,
+      backgroundDensity: G,
+      linesFromHz: span.first * df,
+      linesToHz: span.last * df,
+      status,
+      shown,
+      testLevel: level,
+      falseFailRate: 4 * level,
+      verdict,
     };
   });
   return mergeTones(background, judged);
@@ -127,20 +192,67 @@ function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompli
     if (t.unseen) {
       blockers.push({ code: "TONE_ABOVE_RECORD", values: { hz: t.hz, toleranceHz: t.toleranceHz }, about });
     } else if (t.status === "missing") {
-      fails.push({ code: "TONE_MISSING", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, lowerPeak: t.lowerPeak }, about });
+      fails.push({
+        code: "TONE_MISSING",
+        values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, lowerPeak: t.lowerPeak },
+        about,
+      });
     } else if (t.status === "low" || t.status === "high") {
-      fails.push({ code: "TONE_OUTSIDE", values: { hz: t.hz, peak: t.measuredPeak, requiredPeak: t.requiredPeak, deviationDb: t.deviationDb, lowerPeak: t.lowerPeak, upperPeak: t.upperPeak }, about: { ...about, status: t.status } });
+      fails.push({
+        code: "TONE_OUTSIDE",
+        values: {
+          hz: t.hz,
+          peak: t.measuredPeak,
+          requiredPeak: t.requiredPeak,
+          deviationDb: t.deviationDb,
+          lowerPeak: t.lowerPeak,
+          upperPeak: t.upperPeak,
+        },
+        about: { ...about, status: t.status },
+      });
     } else if (t.status === "off-frequency") {
-      fails.push({ code: "TONE_OFF_FREQUENCY", values: { hz: t.hz, measuredHz: t.measuredHz, toleranceHz: t.toleranceHz }, about });
+      fails.push({
+        code: "TONE_OFF_FREQUENCY",
+        values: { hz: t.hz, measuredHz: t.measuredHz, toleranceHz: t.toleranceHz },
+        about,
+      });
     } else if (t.verdict === "inconclusive") {
-      const outside = t.measuredPeak < t.lowerPeak || t.measuredPeak > t.upperPeak || Math.abs(t.measuredHz - t.hz) > t.toleranceHz;
-      blockers.push({ code: "TONE_UNRESOLVED", values: { hz: t.hz, peak: t.measuredPeak, deviationDb: t.deviationDb, ...(outside ? {} : { peakSd: t.peakSd, departureDb: DECISION_RULE.departureDb, powerPercent: 100 * DECISION_RULE.power }) }, about });
+      const outside =
+        t.measuredPeak < t.lowerPeak || t.measuredPeak > t.upperPeak || Math.abs(t.measuredHz - t.hz) > t.toleranceHz;
+      blockers.push({
+        code: "TONE_UNRESOLVED",
+        values: {
+          hz: t.hz,
+          peak: t.measuredPeak,
+          deviationDb: t.deviationDb,
+          ...(outside
+            ? {}
+            : { peakSd: t.peakSd, departureDb: DECISION_RULE.departureDb, powerPercent: 100 * DECISION_RULE.power }),
+        },
+        about,
+      });
     }
   }
-  const findings = [...fails, ...c.findings.filter((f) => f.code !== "PASS" || (fails.length === 0 && blockers.length === 0)), ...blockers];
-  const verdict: Verdict = fails.length > 0 || c.verdict === "fail" ? "fail" : blockers.length > 0 || c.verdict === "inconclusive" ? "inconclusive" : "pass";
+  const findings = [
+    ...fails,
+    ...c.findings.filter((f) => f.code !== "PASS" || (fails.length === 0 && blockers.length === 0)),
+    ...blockers,
+  ];
+  const verdict: Verdict =
+    fails.length > 0 || c.verdict === "fail"
+      ? "fail"
+      : blockers.length > 0 || c.verdict === "inconclusive"
+        ? "inconclusive"
+        : "pass";
   if (verdict === "pass") {
-    findings.push({ code: "TONES_PASS", values: { tones: tones.length, departureDb: DECISION_RULE.departureDb, falseFailPercent: 100 * DECISION_RULE.tones } });
+    findings.push({
+      code: "TONES_PASS",
+      values: {
+        tones: tones.length,
+        departureDb: DECISION_RULE.departureDb,
+        falseFailPercent: 100 * DECISION_RULE.tones,
+      },
+    });
   }
   return { ...c, verdict, findings, tones };
 }
@@ -158,6 +270,11 @@ export function combineFits(list: (ToneFit | undefined)[], rule: "average" | "la
   const ok = list.filter((f): f is ToneFit => f !== undefined);
   if (ok.length === 0) return undefined;
   const pick = rule === "largest" ? ok.reduce((a, b) => (b.peak > a.peak ? b : a)) : ok[0]!;
-  return rule === "largest" ? pick : { ...pick, peak: ok.reduce((a, b) => a + b.peak, 0) / ok.length, frequencyHz: ok.reduce((a, b) => a + b.frequencyHz, 0) / ok.length };
+  return rule === "largest"
+    ? pick
+    : {
+        ...pick,
+        peak: ok.reduce((a, b) => a + b.peak, 0) / ok.length,
+        frequencyHz: ok.reduce((a, b) => a + b.frequencyHz, 0) / ok.length,
+      };
 }
-

@@ -37,17 +37,32 @@ export function axisRules(posture: Posture): Record<Axis, AxisRule> {
 }
 
 /** Directive 2002/44/EC Article 3(2), whole-body (docs/REFERENCES.md sec. 8, confirmed at legislation.gov.uk). */
-export const DIRECTIVE_2002_44_EC = { a8ActionMs2: 0.5, a8LimitMs2: 1.15, vdvActionMs175: 9.1, vdvLimitMs175: 21 } as const;
+export const DIRECTIVE_2002_44_EC = {
+  a8ActionMs2: 0.5,
+  a8LimitMs2: 1.15,
+  vdvActionMs175: 9.1,
+  vdvLimitMs175: 21,
+} as const;
 
 /**
  * ISO 2631-1:1997 Annex B health guidance caution zone at 8 h (docs/REFERENCES.md sec. 8, from memory, medium-low
  * confidence): 0.43-0.86 m/s^2 by the square-root time rule (Eq. B.1), VDV 8.5-17 m/s^1.75 by the
  * fourth-power rule (Eq. B.2).
  */
-export const ISO_2631_HEALTH_ZONE = { a8LowerMs2: 0.43, a8UpperMs2: 0.86, vdvLowerMs175: 8.5, vdvUpperMs175: 17 } as const;
+export const ISO_2631_HEALTH_ZONE = {
+  a8LowerMs2: 0.43,
+  a8UpperMs2: 0.86,
+  vdvLowerMs175: 8.5,
+  vdvUpperMs175: 17,
+} as const;
 
 /** The caution zone's bounds at 8 h: ISO_2631_HEALTH_ZONE by default, or the lab's confirmed values (ride --health-zone). */
-export interface HealthZone { a8LowerMs2: number; a8UpperMs2: number; vdvLowerMs175: number; vdvUpperMs175: number }
+export interface HealthZone {
+  a8LowerMs2: number;
+  a8UpperMs2: number;
+  vdvLowerMs175: number;
+  vdvUpperMs175: number;
+}
 
 export const EIGHT_HOURS_S = 8 * 3600;
 
@@ -87,7 +102,12 @@ function zoneBand(v: number, lower: number, upper: number): ZoneBand {
 }
 
 /** Daily exposure from one recording taken as representative of `durationS` of exposure a day. */
-export function dailyExposure(axes: readonly AxisFigures[], rules: Record<Axis, AxisRule>, durationS: number, zone: HealthZone = ISO_2631_HEALTH_ZONE): DailyExposure {
+export function dailyExposure(
+  axes: readonly AxisFigures[],
+  rules: Record<Axis, AxisRule>,
+  durationS: number,
+  zone: HealthZone = ISO_2631_HEALTH_ZONE,
+): DailyExposure {
   let a8 = -Infinity;
   let a8Axis: Axis = "z";
   let vdv = -Infinity;
@@ -113,10 +133,17 @@ export function dailyExposure(axes: readonly AxisFigures[], rules: Record<Axis, 
   // A(8) = k a_w sqrt(T / T0) reaches a value V after T = T0 (V / k a_w)^2.
   const after = (v: number) => (worstKaw > 0 ? EIGHT_HOURS_S * (v / worstKaw) ** 2 : Infinity);
   return {
-    durationS, a8, a8Axis, vdv, vdvAxis,
+    durationS,
+    a8,
+    a8Axis,
+    vdv,
+    vdvAxis,
     a8ActionAfterS: after(d.a8ActionMs2),
     a8LimitAfterS: after(d.a8LimitMs2),
-    directive: { a8: directiveBand(a8, d.a8ActionMs2, d.a8LimitMs2), vdv: directiveBand(vdv, d.vdvActionMs175, d.vdvLimitMs175) },
+    directive: {
+      a8: directiveBand(a8, d.a8ActionMs2, d.a8LimitMs2),
+      vdv: directiveBand(vdv, d.vdvActionMs175, d.vdvLimitMs175),
+    },
     healthZone: { a8: zoneBand(a8, z.a8LowerMs2, z.a8UpperMs2), vdv: zoneBand(vdv, z.vdvLowerMs175, z.vdvUpperMs175) },
   };
 }
@@ -162,7 +189,13 @@ export interface BasicMethodCheck {
   exceeded: (keyof typeof BASIC_METHOD_LIMITS)[];
 }
 
-export function basicMethodCheck(aw: number, crestFactor: number, mtvv: number, vdv: number, durationS: number): BasicMethodCheck {
+export function basicMethodCheck(
+  aw: number,
+  crestFactor: number,
+  mtvv: number,
+  vdv: number,
+  durationS: number,
+): BasicMethodCheck {
   const mtvvRatio = mtvv / aw;
   const vdvRatio = vdv / (aw * Math.pow(durationS, 0.25));
   const L = BASIC_METHOD_LIMITS;

@@ -61,22 +61,42 @@ export interface ChannelReading {
 }
 
 function checkScale(option: string, k: number): void {
-  if (!Number.isFinite(k) || k === 0) throw new InputError("OPTION_INVALID", { option, expected: "a finite, non-zero calibration factor", received: String(k) });
+  if (!Number.isFinite(k) || k === 0)
+    throw new InputError("OPTION_INVALID", {
+      option,
+      expected: "a finite, non-zero calibration factor",
+      received: String(k),
+    });
 }
 
 /**
  * The per-channel settings of one option, one value per channel index: each channel at most once
  * (by name or by position), and either one value for all or values per channel, never both.
  */
-function perChannel<T>(channels: ChannelInfo[], file: string, option: string, list: ChannelSetting<T>[] | undefined, all: T | undefined): (T | undefined)[] {
+function perChannel<T>(
+  channels: ChannelInfo[],
+  file: string,
+  option: string,
+  list: ChannelSetting<T>[] | undefined,
+  all: T | undefined,
+): (T | undefined)[] {
   const out: (T | undefined)[] = channels.map(() => all);
   if (list === undefined || list.length === 0) return out;
   const global = list.filter((s) => s.channel === undefined);
   if (global.length > 1 || (global.length === 1 && all !== undefined)) {
-    throw new InputError("OPTION_CONFLICT", { option, expected: `\`${option}\` without a channel at most once`, received: `${global.length + (all !== undefined ? 1 : 0)} times` });
+    throw new InputError("OPTION_CONFLICT", {
+      option,
+      expected: `\`${option}\` without a channel at most once`,
+      received: `${global.length + (all !== undefined ? 1 : 0)} times`,
+    });
   }
   if (global.length === 1 && list.length > 1) {
-    throw new InputError("OPTION_CONFLICT", { option, expected: `either one \`${option}\` for every channel or \`${option}\` CH=… per channel`, received: "both", hint: "give the value for each channel" });
+    throw new InputError("OPTION_CONFLICT", {
+      option,
+      expected: `either one \`${option}\` for every channel or \`${option}\` CH=… per channel`,
+      received: "both",
+      hint: "give the value for each channel",
+    });
   }
   const seen = new Set<number>();
   for (const s of list) {
@@ -86,7 +106,12 @@ function perChannel<T>(channels: ChannelInfo[], file: string, option: string, li
     }
     const i = channelIndex(channels, s.channel, { option, file });
     if (seen.has(i)) {
-      throw new InputError("OPTION_CONFLICT", { option, field: channels[i]!.name, expected: `one \`${option}\` per channel`, received: `a second value for ${quoted(channels[i]!.name)} (${quoted(s.channel)})` });
+      throw new InputError("OPTION_CONFLICT", {
+        option,
+        field: channels[i]!.name,
+        expected: `one \`${option}\` per channel`,
+        received: `a second value for ${quoted(channels[i]!.name)} (${quoted(s.channel)})`,
+      });
     }
     seen.add(i);
     out[i] = s.value;
@@ -102,7 +127,12 @@ function perChannel<T>(channels: ChannelInfo[], file: string, option: string, li
  * turns volts into its unit. A header unit that is neither an acceleration nor a voltage is an error,
  * never read as g. Results are in `resultUnits` when given, else in the channel's base unit.
  */
-export function channelConditionings(file: string, channels: ChannelInfo[], select: number[], opts: ConditioningOptions): ChannelConditioning[] {
+export function channelConditionings(
+  file: string,
+  channels: ChannelInfo[],
+  select: number[],
+  opts: ConditioningOptions,
+): ChannelConditioning[] {
   if (opts.scale !== undefined) checkScale("scale", opts.scale);
   for (const s of opts.channelScales ?? []) checkScale("channelScales", s.value);
   const scales = perChannel(channels, file, "channelScales", opts.channelScales, opts.scale);
@@ -110,13 +140,23 @@ export function channelConditionings(file: string, channels: ChannelInfo[], sele
   let optionUnit: UnitSpec | undefined;
   if (opts.inputUnits !== undefined) {
     optionUnit = parseUnitSpec(opts.inputUnits);
-    if (optionUnit === undefined) throw new InputError("OPTION_INVALID", { option: "inputUnits", expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`, received: quoted(opts.inputUnits) });
+    if (optionUnit === undefined)
+      throw new InputError("OPTION_INVALID", {
+        option: "inputUnits",
+        expected: `an acceleration unit: ${UNIT_NAMES.join(", ")}`,
+        received: quoted(opts.inputUnits),
+      });
   }
   return select.map((i) => conditionChannel(file, channels[i]!, optionUnit, opts.resultUnits, scales[i], sens[i]));
 }
 
 function conditionChannel(
-  file: string, ch: ChannelInfo, optionUnit: UnitSpec | undefined, resultUnits: AccelUnit | undefined, userScale: number | undefined, sensitivityText: string | undefined,
+  file: string,
+  ch: ChannelInfo,
+  optionUnit: UnitSpec | undefined,
+  resultUnits: AccelUnit | undefined,
+  userScale: number | undefined,
+  sensitivityText: string | undefined,
 ): ChannelConditioning {
   const scale = userScale ?? 1;
   const fileScale = ch.fileScale ?? 1;
@@ -130,11 +170,18 @@ function conditionChannel(
   if (sensitivityText !== undefined) {
     const s = parseSensitivity(sensitivityText);
     if (s === undefined) {
-      throw new InputError("OPTION_INVALID", { option: "sensitivities", field: ch.name, expected: "a sensitivity such as 100mV/g or 10.2mV/(m/s2)", received: quoted(sensitivityText) });
+      throw new InputError("OPTION_INVALID", {
+        option: "sensitivities",
+        field: ch.name,
+        expected: "a sensitivity such as 100mV/g or 10.2mV/(m/s2)",
+        received: quoted(sensitivityText),
+      });
     }
     if (known !== undefined) {
       throw new InputError("UNIT_CONFLICT", {
-        ...place, expected: "a channel in volts (V or mV, or no unit) for `sensitivities`", received: `a channel already in ${quoted(ch.declaredUnitText ?? known.name)}`,
+        ...place,
+        expected: "a channel in volts (V or mV, or no unit) for `sensitivities`",
+        received: `a channel already in ${quoted(ch.declaredUnitText ?? known.name)}`,
         hint: "drop `sensitivities` for this channel, or fix the header",
       });
     }
@@ -147,8 +194,13 @@ function conditionChannel(
   } else if (known !== undefined) {
     if (optionUnit !== undefined && optionUnit.name !== known.name) {
       throw new InputError("UNIT_CONFLICT", {
-        ...place, expected: `\`inputUnits\` to agree with the ${ch.fileScale !== undefined ? "file's" : "header's"} unit ${known.name}`, received: optionUnit.name,
-        hint: ch.fileScale !== undefined ? "drop `inputUnits` (the file's calibration chunk already says)" : "drop `inputUnits` (the file already says), or fix the header",
+        ...place,
+        expected: `\`inputUnits\` to agree with the ${ch.fileScale !== undefined ? "file's" : "header's"} unit ${known.name}`,
+        received: optionUnit.name,
+        hint:
+          ch.fileScale !== undefined
+            ? "drop `inputUnits` (the file's calibration chunk already says)"
+            : "drop `inputUnits` (the file already says), or fix the header",
       });
     }
     unit = known;
@@ -158,7 +210,9 @@ function conditionChannel(
     if (ch.declaredVolts === undefined) unknownUnit(place, ch.declaredUnitText);
     if (userScale === undefined) {
       throw new InputError("UNIT_NEEDS_SENSITIVITY", {
-        ...place, expected: "an acceleration unit, or a sensitivity for a channel in volts", received: quoted(ch.declaredUnitText),
+        ...place,
+        expected: "an acceleration unit, or a sensitivity for a channel in volts",
+        received: quoted(ch.declaredUnitText),
         hint: `give \`sensitivities\` ${ch.name}=100mV/g (your sensor's value), or \`channelScales\` ${ch.name}=K with \`inputUnits\``,
       });
     }
@@ -173,17 +227,33 @@ function conditionChannel(
   const resultUnit = resultUnits ?? unit.base;
   const factor = scale * fileScale * volts * unit.factor * accelFactor(unit.base, resultUnit);
   return {
-    inputUnit: unit.base, resultUnit, factor,
+    inputUnit: unit.base,
+    resultUnit,
+    factor,
     reading: {
-      fileUnit, unitFrom, scale, fileScale, sensitivity, unitFactor: volts * unit.factor, factor,
-      fullScaleAssumed: ch.integerFullScale === true && ch.fileScale === undefined && userScale === undefined && sensitivityText === undefined,
+      fileUnit,
+      unitFrom,
+      scale,
+      fileScale,
+      sensitivity,
+      unitFactor: volts * unit.factor,
+      factor,
+      fullScaleAssumed:
+        ch.integerFullScale === true &&
+        ch.fileScale === undefined &&
+        userScale === undefined &&
+        sensitivityText === undefined,
     },
   };
 }
 
-function unknownUnit(place: { file: string; line?: number | undefined; column?: number | undefined; field: string }, text: string): never {
+function unknownUnit(
+  place: { file: string; line?: number | undefined; column?: number | undefined; field: string },
+  text: string,
+): never {
   throw new InputError("UNIT_UNKNOWN", {
-    ...place, expected: `an acceleration unit (${UNIT_NAMES.join(", ")}, also spelt m/s^2, m/s**2, m s-2, ms^-2) or a voltage (V, mV) with \`sensitivities\``,
+    ...place,
+    expected: `an acceleration unit (${UNIT_NAMES.join(", ")}, also spelt m/s^2, m/s**2, m s-2, ms^-2) or a voltage (V, mV) with \`sensitivities\``,
     received: quoted(text),
   });
 }

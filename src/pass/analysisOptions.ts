@@ -91,7 +91,12 @@ export interface ResolvedAnalysis {
   /** The band of the band RMS, when one was asked for. */
   band?: { fminHz: number; fmaxHz: number } | undefined;
   /** The analysed window as asked (seconds from the first sample; clock times as given). */
-  window: { fromS?: number | undefined; toS?: number | undefined; fromClock?: string | undefined; toClock?: string | undefined };
+  window: {
+    fromS?: number | undefined;
+    toS?: number | undefined;
+    fromClock?: string | undefined;
+    toClock?: string | undefined;
+  };
   /** Length of the stretches of the stationarity test, s. */
   stretchS: number;
   spectrum: boolean;

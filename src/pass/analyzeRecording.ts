@@ -1,9 +1,15 @@
-import { scaleSamples, type ChannelReading, type ChannelSetting } from "../condition/scaleSamples.js";
+import { scaleSamples, type ChannelReading } from "../condition/scaleSamples.js";
 import { amplitudeGates } from "../compare/amplitudeGates.js";
 import { parsevalCheck, type ParsevalCheck } from "../estimate/spectral/parsevalCheck.js";
 import type { Finding } from "../findings.js";
 import { InputError } from "../errors.js";
-import { bandRms, completePsd, strongestPeaks, type PsdEstimate, type SpectralPeak } from "../estimate/spectral/psdEstimate.js";
+import {
+  bandRms,
+  completePsd,
+  strongestPeaks,
+  type PsdEstimate,
+  type SpectralPeak,
+} from "../estimate/spectral/psdEstimate.js";
 import { HistogramAccumulator, type AmplitudeHistogram } from "../estimate/statistics/amplitudeHistogram.js";
 import { PeakHoldPsdAccumulator, type PeakHoldPsd } from "../estimate/spectral/peakHoldPsd.js";
 import { SegmentPower } from "../estimate/spectral/segmentPower.js";
@@ -13,10 +19,9 @@ import { stationarityFinding, type StationarityFinding } from "../estimate/stati
 import { StretchMeanSquares } from "../estimate/statistics/stretchMeanSquares.js";
 import { spectralKernel } from "../estimate/spectral/spectralKernel.js";
 import { spectralTones, type SpectralTone } from "../estimate/spectral/toneEstimate.js";
-import type { ResolvedWelchOptions, WelchOptions } from "../estimate/spectral/welchOptions.js";
+import type { ResolvedWelchOptions } from "../estimate/spectral/welchOptions.js";
 import { WelchAccumulator } from "../estimate/spectral/welchPsd.js";
 import { spectralWindow } from "../estimate/spectral/windows.js";
-import type { CsvReadOptions } from "../read/csvTimeHistory.js";
 import { openTimeHistory } from "../read/openTimeHistory.js";
 import type { TimeHistorySource } from "../read/timeHistory.js";
 import { atFinalRate, resolveAnalysis, type AnalysisPlan, type ResolvedAnalysis } from "./resolveAnalysis.js";
@@ -108,7 +113,10 @@ export async function analyzeRecording(file: string, options: AnalysisOptions = 
   return analyzeSource(source, options);
 }
 
-export async function analyzeSource(source: TimeHistorySource, options: AnalysisOptions = {}): Promise<RecordingAnalysis> {
+export async function analyzeSource(
+  source: TimeHistorySource,
+  options: AnalysisOptions = {},
+): Promise<RecordingAnalysis> {
   const { info } = source;
   let plan: AnalysisPlan;
   const extras = options.accumulators ?? [];
@@ -126,13 +134,26 @@ export async function analyzeSource(source: TimeHistorySource, options: Analysis
   const { windowInfo, passDoubts } = passWindow(plan, info, summary, taken, extras.length > 0);
   const extraResults = extras.map((e) => e.finish(fs));
   const analysis = atFinalRate(plan.analysis, fs, options);
-  const channels = plan.select.map((idx, c) => channelResult(c, idx, plan, analysis, built, windowInfo, summary.frames, fs, info));
+  const channels = plan.select.map((idx, c) =>
+    channelResult(c, idx, plan, analysis, built, windowInfo, summary.frames, fs, info),
+  );
   return {
     input: {
-      file: info.file, format: info.format, layout: info.layout, sha256: summary.sha256, bytes: summary.bytes,
-      sampleRateHz: fs, samples: summary.frames, durationS: summary.frames / fs, startTime: summary.startTime, preamble: info.preamble,
+      file: info.file,
+      format: info.format,
+      layout: info.layout,
+      sha256: summary.sha256,
+      bytes: summary.bytes,
+      sampleRateHz: fs,
+      samples: summary.frames,
+      durationS: summary.frames / fs,
+      startTime: summary.startTime,
+      preamble: info.preamble,
     },
-    settings: { ...analysis.welch, scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1 },
+    settings: {
+      ...analysis.welch,
+      scale: options.scale ?? options.channelScales?.find((k) => k.channel === undefined)?.value ?? 1,
+    },
     window: windowInfo,
     analysis,
     channels,
@@ -171,16 +192,36 @@ function builtInListeners(plan: AnalysisPlan, designFs: number): BuiltIn {
   const histograms = a.histogram ? select.map(() => new HistogramAccumulator()) : undefined;
   const holdS = a.peakHoldS;
   const rateKnown = Number.isFinite(designFs) && designFs > 0;
-  const peakHolds = a.spectrum && holdS !== undefined && rateKnown
-    ? select.map(() => new PeakHoldPsdAccumulator(geometry, power, Math.max(settings.segmentLength, Math.round(holdS * designFs)), designFs))
-    : undefined;
+  const peakHolds =
+    a.spectrum && holdS !== undefined && rateKnown
+      ? select.map(
+          () =>
+            new PeakHoldPsdAccumulator(
+              geometry,
+              power,
+              Math.max(settings.segmentLength, Math.round(holdS * designFs)),
+              designFs,
+            ),
+        )
+      : undefined;
   // A degenerate CSV can announce no usable rate; its read then fails with the reader's own error.
   const stretchLength = rateKnown ? Math.max(2, Math.round(a.stretchS * designFs)) : 2;
   const stretches = select.map(() => new StretchMeanSquares(stretchLength));
   const holds = select.map(() => new SampleHoldAccumulator());
   // Without the statistics (a.statistics false, no spectrum) the moments, runs and stretches stay unfed: empty.
   const stats = a.statistics !== false;
-  const perChannel = select.map((_, c) => ([stats ? moments[c] : undefined, stats ? holds[c] : undefined, histograms?.[c], welch[c], stats ? stretches[c] : undefined, peakHolds?.[c]] as (SampleListener | undefined)[]).filter((l): l is SampleListener => l !== undefined));
+  const perChannel = select.map((_, c) =>
+    (
+      [
+        stats ? moments[c] : undefined,
+        stats ? holds[c] : undefined,
+        histograms?.[c],
+        welch[c],
+        stats ? stretches[c] : undefined,
+        peakHolds?.[c],
+      ] as (SampleListener | undefined)[]
+    ).filter((l): l is SampleListener => l !== undefined),
+  );
   return { window, welch, moments, histograms, peakHolds, stretchLength, stretches, holds, perChannel };
 }
 
@@ -188,7 +229,13 @@ function builtInListeners(plan: AnalysisPlan, designFs: number): BuiltIn {
  * The read: each block's frame window [first, end) cut once, conditioned in place, heard by each channel's
  * built-in listeners and then by the pass's listeners (all channels at once).
  */
-async function readWindow(source: TimeHistorySource, plan: AnalysisPlan, perChannel: SampleListener[][], extras: PassAccumulator[], onProgress: AnalysisOptions["onProgress"]) {
+async function readWindow(
+  source: TimeHistorySource,
+  plan: AnalysisPlan,
+  perChannel: SampleListener[][],
+  extras: PassAccumulator[],
+  onProgress: AnalysisOptions["onProgress"],
+) {
   const { select, conditioning, first, end } = plan;
   const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
@@ -217,11 +264,22 @@ async function readWindow(source: TimeHistorySource, plan: AnalysisPlan, perChan
 }
 
 /** The analysed window at the final rate, the pass's errors (no samples, an empty window) and its doubts (the rate contract). */
-function passWindow(plan: AnalysisPlan, info: TimeHistorySource["info"], summary: { frames: number; sampleRateHz: number }, taken: number, listeners: boolean) {
+function passWindow(
+  plan: AnalysisPlan,
+  info: TimeHistorySource["info"],
+  summary: { frames: number; sampleRateHz: number },
+  taken: number,
+  listeners: boolean,
+) {
   const { first, end } = plan;
   const asked = plan.analysis.window;
   if (summary.frames === 0) {
-    throw new InputError("RECORD_TOO_SHORT", { file: info.file, expected: "at least one sample", received: "0 samples", hint: "the recording holds no data" });
+    throw new InputError("RECORD_TOO_SHORT", {
+      file: info.file,
+      expected: "at least one sample",
+      received: "0 samples",
+      hint: "the recording holds no data",
+    });
   }
   const fs = summary.sampleRateHz;
   const designFs = info.sampleRateHz;
@@ -231,11 +289,17 @@ function passWindow(plan: AnalysisPlan, info: TimeHistorySource["info"], summary
   }
   if (taken === 0 && (asked.fromS !== undefined || asked.toS !== undefined)) {
     throw new InputError("WINDOW_EMPTY", {
-      file: info.file, option: asked.fromS !== undefined ? "fromS" : "toS",
-      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`, received: `${asked.fromS ?? 0} s to ${asked.toS ?? "the end"}`,
+      file: info.file,
+      option: asked.fromS !== undefined ? "fromS" : "toS",
+      expected: `a window inside the record (0 to ${fmt(summary.frames / fs)} s)`,
+      received: `${asked.fromS ?? 0} s to ${asked.toS ?? "the end"}`,
     });
   }
-  const windowInfo: FrameWindow = { fromS: Math.min(first, summary.frames) / fs, toS: Math.min(end, summary.frames) / fs, frames: taken };
+  const windowInfo: FrameWindow = {
+    fromS: Math.min(first, summary.frames) / fs,
+    toS: Math.min(end, summary.frames) / fs,
+    frames: taken,
+  };
   if (asked.toS !== undefined && end > summary.frames) windowInfo.requestedToS = asked.toS;
   if (asked.fromClock !== undefined) windowInfo.fromClock = asked.fromClock;
   if (asked.toClock !== undefined) windowInfo.toClock = asked.toClock;
@@ -243,29 +307,81 @@ function passWindow(plan: AnalysisPlan, info: TimeHistorySource["info"], summary
 }
 
 /** One channel's figures from its built-in listeners, at the final rate. */
-function channelResult(c: number, idx: number, plan: AnalysisPlan, analysis: ResolvedAnalysis, b: BuiltIn, windowInfo: FrameWindow, frames: number, fs: number, info: TimeHistorySource["info"]): ChannelAnalysis {
+function channelResult(
+  c: number,
+  idx: number,
+  plan: AnalysisPlan,
+  analysis: ResolvedAnalysis,
+  b: BuiltIn,
+  windowInfo: FrameWindow,
+  frames: number,
+  fs: number,
+  info: TimeHistorySource["info"],
+): ChannelAnalysis {
   const settings = analysis.welch;
   const taken = windowInfo.frames;
   const conditioning = plan.conditioning[c]!;
   const stats = b.moments[c]!.result();
-  const sums = b.welch[c]?.finish(fs) ?? { segments: 0, skippedSegments: 0, samples: frames, psd: new Float64Array(settings.segmentLength / 2 + 1), windowedMeanSquare: NaN, segmentMeanSquare: NaN, meanSquareGapError: NaN, meanSquareGapBatches: 0, detrendedKurtosis: NaN, detrendedCrestFactor: NaN };
+  const sums = b.welch[c]?.finish(fs) ?? {
+    segments: 0,
+    skippedSegments: 0,
+    samples: frames,
+    psd: new Float64Array(settings.segmentLength / 2 + 1),
+    windowedMeanSquare: NaN,
+    segmentMeanSquare: NaN,
+    meanSquareGapError: NaN,
+    meanSquareGapBatches: 0,
+    detrendedKurtosis: NaN,
+    detrendedCrestFactor: NaN,
+  };
   const psd = completePsd(sums, b.window, settings, fs);
   const rmsTime = Math.sqrt(b.moments[c]!.residualMeanSquare(settings.detrend));
   const parseval = parsevalCheck(rmsTime, psd, settings.window);
-  const band = analysis.band ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) } : undefined;
+  const band = analysis.band
+    ? { ...analysis.band, rms: bandRms(psd, analysis.band.fminHz, analysis.band.fmaxHz) }
+    : undefined;
   const stretchMs = b.stretches[c]!.result();
   const stationarity = stationarityFinding(stretchMs, b.stretchLength / fs, windowInfo.fromS);
   const hold = b.holds[c]!.result(fs);
   const spectrum = analysis.spectrum;
-  const { notes, doubts } = _channelFindings(stats, psd, parseval, taken, settings.segmentLength, spectrum, taken / fs, hold);
+  const { notes, doubts } = _channelFindings(
+    stats,
+    psd,
+    parseval,
+    taken,
+    settings.segmentLength,
+    spectrum,
+    taken / fs,
+    hold,
+  );
   const note = stationarityNote(stationarity);
   if (note !== undefined) notes.push(note);
   const recordEndS = frames / fs;
-  if (windowInfo.requestedToS !== undefined) notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS } });
+  if (windowInfo.requestedToS !== undefined)
+    notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS } });
   return {
-    name: info.channels[idx]!.name, position: idx + 1, units: conditioning.resultUnit, reading: conditioning.reading, stats, psd, parseval, band, peaks: strongestPeaks(psd, 5),
-    tones: spectrum && psd.dof > 0 ? spectralTones(psd, b.window, spectralKernel(settings.window, b.window, settings.detrend).halfWidthBins, { max: 8 }) : [],
-    histogram: b.histograms?.[c]!.densityAround(stats.mean, stats.std), peakHold: b.peakHolds?.[c]!.finish(fs), stationarity, stretchMeanSquares: stretchMs, hold, notes, doubts,
+    name: info.channels[idx]!.name,
+    position: idx + 1,
+    units: conditioning.resultUnit,
+    reading: conditioning.reading,
+    stats,
+    psd,
+    parseval,
+    band,
+    peaks: strongestPeaks(psd, 5),
+    tones:
+      spectrum && psd.dof > 0
+        ? spectralTones(psd, b.window, spectralKernel(settings.window, b.window, settings.detrend).halfWidthBins, {
+            max: 8,
+          })
+        : [],
+    histogram: b.histograms ? b.histograms[c]!.densityAround(stats.mean, stats.std) : undefined,
+    peakHold: b.peakHolds ? b.peakHolds[c]!.finish(fs) : undefined,
+    stationarity,
+    stretchMeanSquares: stretchMs,
+    hold,
+    notes,
+    doubts,
   };
 }
 
@@ -282,12 +398,17 @@ export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
     const bad = a.channels.find((c) => c.psd.averages === 0);
     const nonFinite = bad?.stats.nonFinite ?? 0;
     return new InputError("RECORD_TOO_SHORT", {
-      file: a.input.file, field: bad?.name, expected: `at least one segment of ${a.settings.segmentLength} samples free of NaN and infinite values`,
-      received: `${frames} samples, ${nonFinite} of them NaN or infinite, in every segment`, hint: "check the recording (or its `scale`) for the non-finite values",
+      file: a.input.file,
+      field: bad?.name,
+      expected: `at least one segment of ${a.settings.segmentLength} samples free of NaN and infinite values`,
+      received: `${frames} samples, ${nonFinite} of them NaN or infinite, in every segment`,
+      hint: "check the recording (or its `scale`) for the non-finite values",
     });
   }
   return new InputError("RECORD_TOO_SHORT", {
-    file: a.input.file, expected: `at least one segment of ${a.settings.segmentLength} samples`, received: `${frames} samples${frames !== a.input.samples ? ` in the window (${a.input.samples} in the file)` : ""}`,
+    file: a.input.file,
+    expected: `at least one segment of ${a.settings.segmentLength} samples`,
+    received: `${frames} samples${frames !== a.input.samples ? ` in the window (${a.input.samples} in the file)` : ""}`,
     hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
   });
 }
@@ -300,8 +421,15 @@ export function stationarityNote(f: StationarityFinding): Finding | undefined {
   return {
     code: "NOT_STATIONARY",
     values: {
-      statistic: t.statistic, acceptAbove: t.acceptAbove, acceptAtMost: t.acceptAtMost, values: t.n, testPercent: 100 * t.alpha, stretches: f.stretches, stretchS: f.stretchS,
-      ...(f.pooled > 1 ? { pooled: f.pooled } : {}), ...(d ? { departingFromS: d.fromS, departingToS: d.toS, departingDb: d.levelDb } : {}),
+      statistic: t.statistic,
+      acceptAbove: t.acceptAbove,
+      acceptAtMost: t.acceptAtMost,
+      values: t.n,
+      testPercent: 100 * t.alpha,
+      stretches: f.stretches,
+      stretchS: f.stretchS,
+      ...(f.pooled > 1 ? { pooled: f.pooled } : {}),
+      ...(d ? { departingFromS: d.fromS, departingToS: d.toS, departingDb: d.levelDb } : {}),
     },
   };
 }
@@ -317,7 +445,16 @@ export function clippingHintCount(samples: number): number {
 }
 
 /** The notes and doubts of one channel. @internal (exported for tests/findings.test.ts, which holds their values to their texts) */
-export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: ParsevalCheck, frames: number, segment: number, spectrum: boolean, durationS: number, hold?: SampleHold) {
+export function _channelFindings(
+  s: SampleStatistics,
+  p: PsdEstimate,
+  pv: ParsevalCheck,
+  frames: number,
+  segment: number,
+  spectrum: boolean,
+  durationS: number,
+  hold?: SampleHold,
+) {
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
   if (s.nonFinite > 0) {
@@ -328,7 +465,13 @@ export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: Parsev
     const fs = held.updateRateHz * held.meanRun; // the file's rate
     notes.push({
       code: "HELD_SAMPLES",
-      values: { meanRun: held.meanRun, heldPercent: 100 * held.heldShare, updateRateHz: held.updateRateHz, sampleRateHz: fs, nyquistHz: held.updateRateHz / 2 },
+      values: {
+        meanRun: held.meanRun,
+        heldPercent: 100 * held.heldShare,
+        updateRateHz: held.updateRateHz,
+        sampleRateHz: fs,
+        nyquistHz: held.updateRateHz / 2,
+      },
     });
   }
   // A held extreme is one reading: count runs at the extremes, not samples, when the record is held.
@@ -336,12 +479,19 @@ export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: Parsev
   const atMin = held ? held.runsAtMin : s.atMin;
   const clip = clippingHintCount(held ? held.runs : s.count);
   if (atMax >= clip || atMin >= clip) {
-    doubts.push({ code: "CLIPPING", values: { atMax, max: s.max, atMin, min: s.min }, ...(held ? { about: { held: true } } : {}) });
+    doubts.push({
+      code: "CLIPPING",
+      values: { atMax, max: s.max, atMin, min: s.min },
+      ...(held ? { about: { held: true } } : {}),
+    });
   }
   // Without a spectrum (inspect) there are no segment, Parseval or amplitude-gate findings.
-  if (spectrum && p.averages === 0) doubts.push({ code: "TOO_SHORT", values: { samples: frames, segmentLength: segment } });
-  else if (spectrum && p.averages < 8) notes.push({ code: "FEW_AVERAGES", values: { averages: p.averages, lineErrorPercent: 100 * p.randomError } });
-  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std) notes.push({ code: "DC_OFFSET", values: { mean: s.mean, meanPercentOfStd: 100 * Math.abs(s.mean / s.std) } });
+  if (spectrum && p.averages === 0)
+    doubts.push({ code: "TOO_SHORT", values: { samples: frames, segmentLength: segment } });
+  else if (spectrum && p.averages < 8)
+    notes.push({ code: "FEW_AVERAGES", values: { averages: p.averages, lineErrorPercent: 100 * p.randomError } });
+  if (s.std > 0 && Math.abs(s.mean) > 0.1 * s.std)
+    notes.push({ code: "DC_OFFSET", values: { mean: s.mean, meanPercentOfStd: 100 * Math.abs(s.mean / s.std) } });
   if (spectrum && p.averages > 0) {
     if (!pv.ok) {
       doubts.push({
@@ -355,7 +505,11 @@ export function _channelFindings(s: SampleStatistics, p: PsdEstimate, pv: Parsev
     }
     if (s.count > 0 && s.std > 0) {
       // Held readings are not independent samples: the gates count readings (updates), not samples.
-      const g = amplitudeGates(held ? { ...s, count: Math.max(1, Math.round(s.count / held.meanRun)) } : s, p, durationS);
+      const g = amplitudeGates(
+        held ? { ...s, count: Math.max(1, Math.round(s.count / held.meanRun)) } : s,
+        p,
+        durationS,
+      );
       doubts.push(...g.doubts);
       notes.push(...g.notes);
     }

@@ -22,10 +22,18 @@ export function dbTarget(url: string | undefined, env: NodeJS.ProcessEnv): DbTar
     try {
       u = new URL(url);
     } catch {
-      throw new InputError("OPTION_INVALID", { option: "--db", expected: "a URL postgres://user@host:port/database", received: "text that is not a URL" });
+      throw new InputError("OPTION_INVALID", {
+        option: "--db",
+        expected: "a URL postgres://user@host:port/database",
+        received: "text that is not a URL",
+      });
     }
     if (u.protocol !== "postgres:" && u.protocol !== "postgresql:") {
-      throw new InputError("OPTION_INVALID", { option: "--db", expected: "a URL that starts postgres:// or postgresql://", received: JSON.stringify(`${u.protocol}//…`) });
+      throw new InputError("OPTION_INVALID", {
+        option: "--db",
+        expected: "a URL that starts postgres:// or postgresql://",
+        received: JSON.stringify(`${u.protocol}//…`),
+      });
     }
     const inUrl = u.password !== "" || SECRET_PARAMS.some((k) => u.searchParams.has(k));
     if (u.password !== "") secrets.push(u.password, decodeURIComponent(u.password));
@@ -40,7 +48,11 @@ export function dbTarget(url: string | undefined, env: NodeJS.ProcessEnv): DbTar
     return { config: { connectionString: url }, label: u.toString(), secrets, warning };
   }
   if (env.PGHOST === undefined && env.PGDATABASE === undefined && env.PGSERVICE === undefined) {
-    throw new InputError("DB_NOT_GIVEN", { option: "--db", expected: "--db postgres://user@host:port/database, or PGHOST / PGDATABASE in the environment", received: "neither" });
+    throw new InputError("DB_NOT_GIVEN", {
+      option: "--db",
+      expected: "--db postgres://user@host:port/database, or PGHOST / PGDATABASE in the environment",
+      received: "neither",
+    });
   }
   const host = env.PGHOST ?? "localhost";
   const label = `postgres://${env.PGUSER ? `${encodeURIComponent(env.PGUSER)}@` : ""}${host}${env.PGPORT ? `:${env.PGPORT}` : ""}/${env.PGDATABASE ?? ""} (from PG* variables)`;
@@ -49,7 +61,8 @@ export function dbTarget(url: string | undefined, env: NodeJS.ProcessEnv): DbTar
 
 /** `text` with every secret of the target and any `user:password@` in a URL blanked. */
 export function redact(text: string, target: Pick<DbTarget, "secrets"> | undefined): string {
-  let s = text.replace(/(postgres(?:ql)?:\/\/[^:/@\s]*):[^@\s]*@/g, "$1:***@")
+  let s = text
+    .replace(/(postgres(?:ql)?:\/\/[^:/@\s]*):[^@\s]*@/g, "$1:***@")
     // ?password=… or &sslpassword=… in a URL, and password=… in a key=value connection text.
     .replace(/(\b(?:ssl)?password=)(?:'(?:[^'\\]|\\.)*'|[^&\s'"]*)/gi, "$1***");
   for (const secret of target?.secrets ?? []) if (secret.length > 0) s = s.split(secret).join("***");

@@ -31,11 +31,14 @@ export type AddResult =
 export async function addJob(store: QueueStore, job: Job, expireInSeconds: number): Promise<AddResult> {
   const digest = settingsDigest(job);
   return store.transaction(async (c, db) => {
-    const insert = async () => (await c.query<{ job_id: string }>(
-      `INSERT INTO psdgate.submission (recording_sha256, settings_digest, path, kind, profile_sha256, job_id)
+    const insert = async () =>
+      (
+        await c.query<{ job_id: string }>(
+          `INSERT INTO psdgate.submission (recording_sha256, settings_digest, path, kind, profile_sha256, job_id)
        VALUES ($1, $2, $3, $4, $5, gen_random_uuid()) ON CONFLICT DO NOTHING RETURNING job_id`,
-      [job.sha256, digest, job.file, job.kind, job.profile?.sha256 ?? null],
-    )).rows[0]?.job_id;
+          [job.sha256, digest, job.file, job.kind, job.profile?.sha256 ?? null],
+        )
+      ).rows[0]?.job_id;
     const send = async (id: string) => {
       await store.boss.send(QUEUE_NAME, job as unknown as object, { id, expireInSeconds, db: db as never });
     };

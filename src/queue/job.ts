@@ -41,5 +41,7 @@ function sortKeys(v: unknown): unknown {
  * profile's SHA-256 (not its path, not the recording's path). Same recording + same digest = same job.
  */
 export function settingsDigest(job: Pick<Job, "kind" | "options" | "profile">): string {
-  return createHash("sha256").update(canonicalJson({ kind: job.kind, options: job.options, profileSha256: job.profile?.sha256 ?? null })).digest("hex");
+  return createHash("sha256")
+    .update(canonicalJson({ kind: job.kind, options: job.options, profileSha256: job.profile?.sha256 ?? null }))
+    .digest("hex");
 }

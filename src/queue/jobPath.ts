@@ -14,8 +14,13 @@ const inside = (root: string, p: string) => {
  */
 export async function resolveJobPath(root: string, jobPath: string, what: "recording" | "profile"): Promise<string> {
   const refuse = (received: string) =>
-    new InputError("JOB_PATH_REFUSED", { file: jobPath, expected: `a ${what} path relative to the worker's root and inside it`, received });
-  if (jobPath === "" || isAbsolute(jobPath) || /^[a-zA-Z]:/.test(jobPath) || jobPath.includes("\0")) throw refuse("an absolute path");
+    new InputError("JOB_PATH_REFUSED", {
+      file: jobPath,
+      expected: `a ${what} path relative to the worker's root and inside it`,
+      received,
+    });
+  if (jobPath === "" || isAbsolute(jobPath) || /^[a-zA-Z]:/.test(jobPath) || jobPath.includes("\0"))
+    throw refuse("an absolute path");
   const realRoot = await realpath(root);
   const joined = resolve(realRoot, jobPath);
   if (!inside(realRoot, joined)) throw refuse("a path that leaves the root");
@@ -24,7 +29,11 @@ export async function resolveJobPath(root: string, jobPath: string, what: "recor
     real = await realpath(joined);
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file: jobPath, expected: `a readable ${what} under the worker's root`, received: code === "ENOENT" ? "no such file" : String(code) });
+    throw new InputError("FILE_UNREADABLE", {
+      file: jobPath,
+      expected: `a readable ${what} under the worker's root`,
+      received: code === "ENOENT" ? "no such file" : String(code),
+    });
   }
   if (!inside(realRoot, real)) throw refuse("a link that leads out of the root");
   return real;
@@ -43,10 +52,19 @@ export async function jobPathOf(root: string, file: string, option: string): Pro
     real = await realpath(file);
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "ENOENT" ? "no such file" : String(code) });
+    throw new InputError("FILE_UNREADABLE", {
+      file,
+      expected: "a readable file",
+      received: code === "ENOENT" ? "no such file" : String(code),
+    });
   }
   if (!inside(realRoot, real) || real === realRoot) {
-    throw new InputError("JOB_PATH_REFUSED", { file, option, expected: `a file inside the root ${root}`, received: "a file outside it" });
+    throw new InputError("JOB_PATH_REFUSED", {
+      file,
+      option,
+      expected: `a file inside the root ${root}`,
+      received: "a file outside it",
+    });
   }
   return relative(realRoot, real).split(sep).join("/");
 }

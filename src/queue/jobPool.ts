@@ -7,7 +7,12 @@ import type { Job } from "./job.js";
 import { retireThread } from "../threadEnd.js";
 import { runJob, storedOutcome, type StoredOutcome } from "./runJob.js";
 
-export interface ThreadRequest { id: number; job: Job; root: string; reportDir?: string | undefined }
+export interface ThreadRequest {
+  id: number;
+  job: Job;
+  root: string;
+  reportDir?: string | undefined;
+}
 /** A job's outcome, or the internal error it ended on (retried by the queue). */
 export type ThreadReply = { id: number; outcome: StoredOutcome } | { id: number; crash: WireError };
 
@@ -32,14 +37,21 @@ export function createJobPool(size: number, root: string, reportDir?: string): J
     let chain: Promise<unknown> = Promise.resolve();
     return {
       run: (job) => {
-        const p = chain.then(() => runJob(job, { root, profiles, reportDir }).then(storedOutcome, (e: unknown) => Promise.reject(new JobCrash(errorToWire(e).message))));
+        const p = chain.then(() =>
+          runJob(job, { root, profiles, reportDir }).then(storedOutcome, (e: unknown) =>
+            Promise.reject(new JobCrash(errorToWire(e).message)),
+          ),
+        );
         chain = p.catch(() => undefined);
         return p;
       },
       close: async () => undefined,
     };
   }
-  interface Slot { worker: Worker; pending?: { resolve: (o: StoredOutcome) => void; reject: (e: Error) => void } | undefined }
+  interface Slot {
+    worker: Worker;
+    pending?: { resolve: (o: StoredOutcome) => void; reject: (e: Error) => void } | undefined;
+  }
   const slots: Slot[] = [];
   let nextId = 0;
   const spawn = (): Slot => {

@@ -14,7 +14,10 @@ parentPort!.on("message", (m: ThreadRequest) => {
     let reply: ThreadReply;
     try {
       // The line goes back as text: one stringify here instead of a structured clone and a stringify there.
-      reply = { id: m.id, outcome: storedOutcome(await runJob(m.job, { root: m.root, profiles, reportDir: m.reportDir })) };
+      reply = {
+        id: m.id,
+        outcome: storedOutcome(await runJob(m.job, { root: m.root, profiles, reportDir: m.reportDir })),
+      };
     } catch (e) {
       reply = { id: m.id, crash: errorToWire(e) };
     }

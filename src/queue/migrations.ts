@@ -77,10 +77,15 @@ export async function migrate(pool: pg.Pool): Promise<{ from: number; to: number
     await c.query("BEGIN");
     await c.query("SELECT pg_advisory_xact_lock(hashtext('psdgate.migrate'))");
     await c.query("CREATE SCHEMA IF NOT EXISTS psdgate");
-    await c.query("CREATE TABLE IF NOT EXISTS psdgate.migration (version integer PRIMARY KEY, name text NOT NULL, applied_on timestamptz NOT NULL DEFAULT now())");
+    await c.query(
+      "CREATE TABLE IF NOT EXISTS psdgate.migration (version integer PRIMARY KEY, name text NOT NULL, applied_on timestamptz NOT NULL DEFAULT now())",
+    );
     const { rows } = await c.query<{ v: number | null }>("SELECT max(version) AS v FROM psdgate.migration");
     const from = rows[0]?.v ?? 0;
-    if (from > SCHEMA_VERSION) throw new Error(`the database's psdgate schema is version ${from}, newer than this psdgate knows (${SCHEMA_VERSION}): upgrade psdgate on this node`);
+    if (from > SCHEMA_VERSION)
+      throw new Error(
+        `the database's psdgate schema is version ${from}, newer than this psdgate knows (${SCHEMA_VERSION}): upgrade psdgate on this node`,
+      );
     for (const m of MIGRATIONS) {
       if (m.version <= from) continue;
       await c.query(m.sql);

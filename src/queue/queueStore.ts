@@ -11,7 +11,9 @@ export const QUEUE_NAME = "psdgate-recordings";
 export const RETRY = { limit: 2, delaySeconds: 5, backoff: true } as const;
 
 /** pg-boss's adapter: SQL through our pool, or through one client inside our transaction. */
-export type SqlRunner = { executeSql(text: string, values?: unknown[]): Promise<{ rows: any[]; rowCount?: number | null }> };
+export type SqlRunner = {
+  executeSql(text: string, values?: unknown[]): Promise<{ rows: Record<string, unknown>[]; rowCount?: number | null }>;
+};
 
 export interface QueueStore {
   pool: pg.Pool;
@@ -43,7 +45,10 @@ export interface OpenOptions {
 /** Connects, installs or upgrades pg-boss's schema and psdgate's, and makes sure the queue exists. */
 export async function openQueue(target: DbTarget, o: OpenOptions = {}): Promise<QueueStore> {
   const pool = new pg.Pool({
-    ...target.config, max: o.poolSize ?? 4, application_name: "psdgate", connectionTimeoutMillis: 10000,
+    ...target.config,
+    max: o.poolSize ?? 4,
+    application_name: "psdgate",
+    connectionTimeoutMillis: 10000,
     ...(o.asyncCommit ? { options: "-c synchronous_commit=off" } : {}),
   });
   // An idle client losing its server emits here; without a listener node would end the process.
@@ -52,11 +57,17 @@ export async function openQueue(target: DbTarget, o: OpenOptions = {}): Promise<
     await pool.query("SELECT 1");
   } catch (e) {
     await pool.end().catch(() => undefined);
-    throw new DbUnreachable(`${target.label}: ${redact((e as Error).message || String((e as NodeJS.ErrnoException).code), target)}`);
+    throw new DbUnreachable(
+      `${target.label}: ${redact((e as Error).message || String((e as NodeJS.ErrnoException).code), target)}`,
+    );
   }
   const db: SqlRunner = { executeSql: (text, values) => pool.query(text, values as unknown[]) };
   const boss = new PgBoss({
-    db: db as PgBoss.Db, schema: "pgboss", migrate: true, schedule: false, supervise: o.supervise === true,
+    db: db as PgBoss.Db,
+    schema: "pgboss",
+    migrate: true,
+    schedule: false,
+    supervise: o.supervise === true,
     maintenanceIntervalSeconds: 30,
   });
   boss.on("error", (e: Error) => o.onError?.(redact(e.message, target)));
@@ -64,21 +75,31 @@ export async function openQueue(target: DbTarget, o: OpenOptions = {}): Promise<
     await boss.start();
     await migrate(pool);
     const queue = await boss.getQueue(QUEUE_NAME);
-    if (!queue) await boss.createQueue(QUEUE_NAME, { name: QUEUE_NAME, retryLimit: RETRY.limit, retryDelay: RETRY.delaySeconds, retryBackoff: RETRY.backoff });
+    if (!queue)
+      await boss.createQueue(QUEUE_NAME, {
+        name: QUEUE_NAME,
+        retryLimit: RETRY.limit,
+        retryDelay: RETRY.delaySeconds,
+        retryBackoff: RETRY.backoff,
+      });
   } catch (e) {
     await boss.stop({ graceful: false, close: false }).catch(() => undefined);
     await pool.end().catch(() => undefined);
     // SQLSTATE 42501 insufficient_privilege (PostgreSQL manual, appendix A): the role's rights, not a bug.
     if ((e as { code?: unknown }).code === "42501") {
       throw new InputError("DB_PERMISSION", {
-        option: "--db", expected: `a role that may create and use the pgboss and psdgate schemas on ${target.label} (CREATE on the database)`,
-        received: redact((e as Error).message, target), hint: "grant CREATE on the database to the role, or let an owner run `psdgate queue status` once to make the schemas",
+        option: "--db",
+        expected: `a role that may create and use the pgboss and psdgate schemas on ${target.label} (CREATE on the database)`,
+        received: redact((e as Error).message, target),
+        hint: "grant CREATE on the database to the role, or let an owner run `psdgate queue status` once to make the schemas",
       });
     }
     throw e;
   }
   return {
-    pool, boss, target,
+    pool,
+    boss,
+    target,
     async transaction(fn) {
       const c = await pool.connect();
       try {

@@ -24,7 +24,12 @@ export interface WorkOptions {
   onFinished?: ((file: string, what: string, seconds: number) => void) | undefined;
 }
 
-export interface WorkSummary { done: number; failed: number; retried: number; discarded: number }
+export interface WorkSummary {
+  done: number;
+  failed: number;
+  retried: number;
+  discarded: number;
+}
 
 type FetchedJob = PgBoss.JobWithMetadata<Job>;
 
@@ -55,23 +60,34 @@ export function transientDbError(e: unknown): boolean {
 }
 
 /** A digest as a job carries it: text of reasonable length (the worker compares it with the file's own). */
-const DIGEST = /^[^]{1,200}$/;
+const DIGEST = /^[\s\S]{1,200}$/;
 
 /**
  * What makes a fetched row not a psdgate job, in words, or undefined. A row can be anything a database
  * user put into pgboss.job: it is checked before anything reads it, so one bad row fails alone.
  */
 export function jobProblem(data: unknown): string | undefined {
-  if (data === null || typeof data !== "object" || Array.isArray(data)) return `its data is ${data === null ? "null" : Array.isArray(data) ? "a list" : `a ${typeof data}`}, not a job object`;
+  if (data === null || typeof data !== "object" || Array.isArray(data))
+    return `its data is ${data === null ? "null" : Array.isArray(data) ? "a list" : `a ${typeof data}`}, not a job object`;
   const j = data as Record<string, unknown>;
   if (typeof j.file !== "string" || j.file === "") return "it has no recording path (file)";
-  if (j.kind !== "psd" && j.kind !== "check") return `its kind is ${JSON.stringify(j.kind)?.slice(0, 40)}, not psd or check`;
+  if (j.kind !== "psd" && j.kind !== "check")
+    return `its kind is ${JSON.stringify(j.kind)?.slice(0, 40)}, not psd or check`;
   if (typeof j.sha256 !== "string" || !DIGEST.test(j.sha256)) return "it has no recording SHA-256";
-  if (j.bytes !== undefined && !(typeof j.bytes === "number" && Number.isSafeInteger(j.bytes) && j.bytes >= 0)) return "its size (bytes) is not a whole number";
-  if (j.options !== undefined && (j.options === null || typeof j.options !== "object" || Array.isArray(j.options))) return "its options are not an object";
+  if (j.bytes !== undefined && !(typeof j.bytes === "number" && Number.isSafeInteger(j.bytes) && j.bytes >= 0))
+    return "its size (bytes) is not a whole number";
+  if (j.options !== undefined && (j.options === null || typeof j.options !== "object" || Array.isArray(j.options)))
+    return "its options are not an object";
   if (j.profile !== undefined) {
     const p = j.profile as Record<string, unknown> | null;
-    if (p === null || typeof p !== "object" || typeof p.path !== "string" || typeof p.sha256 !== "string" || !DIGEST.test(p.sha256)) return "its profile is not a path and a SHA-256";
+    if (
+      p === null ||
+      typeof p !== "object" ||
+      typeof p.path !== "string" ||
+      typeof p.sha256 !== "string" ||
+      !DIGEST.test(p.sha256)
+    )
+      return "its profile is not a path and a SHA-256";
   }
   if (j.kind === "check" && j.profile === undefined) return "a check job without a profile";
   return undefined;
@@ -90,14 +106,27 @@ async function fetchOne(store: QueueStore): Promise<FetchedJob | undefined> {
   let error: unknown;
   // pg-boss's fetch swallows query errors and returns no jobs; this runner keeps the error so a lost
   // connection is seen (and retried with back-off) rather than read as an empty queue.
-  const db: SqlRunner = { executeSql: (t, v) => store.pool.query(t, v as unknown[]).catch((e: unknown) => { error = e; throw e; }) };
-  const jobs = await store.boss.fetch<Job>(QUEUE_NAME, { batchSize: 1, includeMetadata: true, db } as PgBoss.FetchOptions & { includeMetadata: true });
+  const db: SqlRunner = {
+    executeSql: (t, v) =>
+      store.pool.query(t, v as unknown[]).catch((e: unknown) => {
+        error = e;
+        throw e;
+      }),
+  };
+  const jobs = await store.boss.fetch<Job>(QUEUE_NAME, {
+    batchSize: 1,
+    includeMetadata: true,
+    db,
+  } as PgBoss.FetchOptions & { includeMetadata: true });
   if (error !== undefined) throw error;
   return jobs[0];
 }
 
 async function nothingLeft(store: QueueStore): Promise<boolean> {
-  const { rows } = await store.pool.query<{ n: string }>(`SELECT count(*) AS n FROM pgboss.job WHERE name = $1 AND state IN ('created', 'retry', 'active')`, [QUEUE_NAME]);
+  const { rows } = await store.pool.query<{ n: string }>(
+    `SELECT count(*) AS n FROM pgboss.job WHERE name = $1 AND state IN ('created', 'retry', 'active')`,
+    [QUEUE_NAME],
+  );
   return Number(rows[0]!.n) === 0;
 }
 
@@ -108,13 +137,22 @@ async function nothingLeft(store: QueueStore): Promise<boolean> {
  * active. The INSERT has no ON CONFLICT: a second result for a job is a unique violation, and then
  * the statement changes nothing.
  */
-async function finish(store: QueueStore, workerName: string, job: FetchedJob, outcome: StoredOutcome, final: "complete" | "fail"): Promise<void> {
+async function finish(
+  store: QueueStore,
+  workerName: string,
+  job: FetchedJob,
+  outcome: StoredOutcome,
+  final: "complete" | "fail",
+): Promise<void> {
   const j = job.data;
   // A malformed row's result is keyed by its own id: it cannot collide with a real job's (recording, settings).
-  const key = jobProblem(j) === undefined
-    ? [j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j)]
-    : [jobFile(job), "invalid", `invalid:${job.id}`, null, "invalid"];
-  const output = outcome.ok ? { verdict: outcome.verdict } : { code: outcome.error.code, message: outcome.error.message };
+  const key =
+    jobProblem(j) === undefined
+      ? [j.file, j.kind, j.sha256, j.profile?.sha256 ?? null, settingsDigest(j)]
+      : [jobFile(job), "invalid", `invalid:${job.id}`, null, "invalid"];
+  const output = outcome.ok
+    ? { verdict: outcome.verdict }
+    : { code: outcome.error.code, message: outcome.error.message };
   try {
     const { rows } = await store.pool.query<{ stored: string }>(
       `WITH ended AS (
@@ -127,14 +165,28 @@ async function finish(store: QueueStore, workerName: string, job: FetchedJob, ou
          RETURNING job_id
        )
        SELECT count(*) AS stored FROM stored`,
-      [job.id, ...key, outcome.ok ? "done" : "failed",
-        outcome.ok ? outcome.verdict : null, outcome.ok ? null : outcome.error.code, outcome.ok ? null : outcome.error.message,
-        outcome.ok ? JSON.stringify(outcome.figures) : null, outcome.lineJson, workerName, job.retryCount + 1, VERSION, outcome.ok ? (outcome.report ?? null) : null,
-        final === "complete" ? "completed" : "failed", JSON.stringify(output), QUEUE_NAME],
+      [
+        job.id,
+        ...key,
+        outcome.ok ? "done" : "failed",
+        outcome.ok ? outcome.verdict : null,
+        outcome.ok ? null : outcome.error.code,
+        outcome.ok ? null : outcome.error.message,
+        outcome.ok ? JSON.stringify(outcome.figures) : null,
+        outcome.lineJson,
+        workerName,
+        job.retryCount + 1,
+        VERSION,
+        outcome.ok ? (outcome.report ?? null) : null,
+        final === "complete" ? "completed" : "failed",
+        JSON.stringify(output),
+        QUEUE_NAME,
+      ],
     );
     if (Number(rows[0]!.stored) !== 1) throw new NotOurs("the job is no longer active here (expired and handed on)");
   } catch (e) {
-    if ((e as { code?: string }).code === "23505") throw new NotOurs("a result for this job or this recording and settings is already stored");
+    if ((e as { code?: string }).code === "23505")
+      throw new NotOurs("a result for this job or this recording and settings is already stored");
     throw e;
   }
 }
@@ -142,7 +194,13 @@ async function finish(store: QueueStore, workerName: string, job: FetchedJob, ou
 /** The failed outcome of a row that is not a psdgate job: JOB_INVALID, stored like any input error. */
 function invalidJob(job: FetchedJob, problem: string, say: (s: string) => void): StoredOutcome {
   const file = jobFile(job);
-  const error = errorToWire(new InputError("JOB_INVALID", { file, expected: "a psdgate job (an object with kind, file, sha256 and options)", received: problem }));
+  const error = errorToWire(
+    new InputError("JOB_INVALID", {
+      file,
+      expected: "a psdgate job (an object with kind, file, sha256 and options)",
+      received: problem,
+    }),
+  );
   say(`psdgate: ${file}: not a psdgate job (${problem}); kept as failed with JOB_INVALID`);
   return { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error };
 }
@@ -181,7 +239,9 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     }
   }
 
-  type Ran = { outcome: StoredOutcome; crash?: undefined; seconds: number } | { outcome?: undefined; crash: Error; seconds: number };
+  type Ran =
+    | { outcome: StoredOutcome; crash?: undefined; seconds: number }
+    | { outcome?: undefined; crash: Error; seconds: number };
 
   async function runOne(job: FetchedJob): Promise<Ran> {
     const t0 = performance.now();
@@ -189,7 +249,10 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
       const outcome = await pool.run(job.data);
       return { outcome, seconds: (performance.now() - t0) / 1000 };
     } catch (e) {
-      return { crash: e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e)), seconds: (performance.now() - t0) / 1000 };
+      return {
+        crash: e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e)),
+        seconds: (performance.now() - t0) / 1000,
+      };
     }
   }
 
@@ -199,7 +262,11 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
     const { outcome, crash } = ran;
     try {
       if (outcome) {
-        await withDb("writing a result", () => finish(store, o.workerName, job, outcome, outcome.ok ? "complete" : "fail"), true);
+        await withDb(
+          "writing a result",
+          () => finish(store, o.workerName, job, outcome, outcome.ok ? "complete" : "fail"),
+          true,
+        );
         if (outcome.ok) summary.done++;
         else summary.failed++;
         o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, ran.seconds);
@@ -208,15 +275,31 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
       const attempt = job.retryCount + 1;
       const attempts = job.retryLimit + 1;
       if (attempt >= attempts) {
-        const error: WireError = { code: "INTERNAL", message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}` };
-        await withDb("writing a result", () => finish(store, o.workerName, job, { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error }, "fail"), true);
+        const error: WireError = {
+          code: "INTERNAL",
+          message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}`,
+        };
+        await withDb(
+          "writing a result",
+          () =>
+            finish(
+              store,
+              o.workerName,
+              job,
+              { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error },
+              "fail",
+            ),
+          true,
+        );
         summary.failed++;
         say(`psdgate: ${file}: ${error.message}; kept as failed`);
         return;
       }
       await withDb("handing a job back", () => store.boss.fail(QUEUE_NAME, job.id, { message: crash!.message }), true);
       summary.retried++;
-      say(`psdgate: ${file}: internal error on attempt ${attempt} of ${attempts}: ${crash!.message}; it will be retried`);
+      say(
+        `psdgate: ${file}: internal error on attempt ${attempt} of ${attempts}: ${crash!.message}; it will be retried`,
+      );
     } catch (e) {
       if (!(e instanceof NotOurs)) throw e;
       summary.discarded++;
@@ -231,12 +314,22 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
       const job = await withDb("fetching a job", () => fetchOne(store), false);
       if (signal.aborted) {
         // Fetched just as we were told to stop: hand it straight back untouched.
-        if (job) await withDb("handing a job back", () => store.pool.query(`UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`, [QUEUE_NAME, job.id]), true);
+        if (job)
+          await withDb(
+            "handing a job back",
+            () =>
+              store.pool.query(
+                `UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`,
+                [QUEUE_NAME, job.id],
+              ),
+            true,
+          );
         break;
       }
       if (job) {
         const problem = jobProblem(job.data);
-        const ran: Ran = problem === undefined ? await runOne(job) : { outcome: invalidJob(job, problem, say), seconds: 0 };
+        const ran: Ran =
+          problem === undefined ? await runOne(job) : { outcome: invalidJob(job, problem, say), seconds: 0 };
         await recording;
         recording = record(job, ran);
         // Marked as handled now (a bug's error is still thrown where it is awaited, one job later).
@@ -257,10 +350,14 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
 
   // A bug in one slot stops the others (they finish the job in hand) before it is thrown: no slot goes on
   // with a pool the caller closes once this returns.
-  const settled = await Promise.allSettled(Array.from({ length: o.jobs }, () => slot().catch((e: unknown) => {
-    stopAll.abort();
-    throw e;
-  })));
+  const settled = await Promise.allSettled(
+    Array.from({ length: o.jobs }, () =>
+      slot().catch((e: unknown) => {
+        stopAll.abort();
+        throw e;
+      }),
+    ),
+  );
   const failed = settled.find((s) => s.status === "rejected");
   if (failed) throw (failed as PromiseRejectedResult).reason;
   return summary;

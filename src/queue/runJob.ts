@@ -13,22 +13,44 @@ import { resolveJobPath } from "./jobPath.js";
 export interface KeyFigures {
   sampleRateHz: number;
   durationS: number;
-  channels: { name: string; units: string; rms: number; rmsDeviationDb: number | null; dof: number; parsevalRatio: number | null; verdict: string | null }[];
+  channels: {
+    name: string;
+    units: string;
+    rms: number;
+    rmsDeviationDb: number | null;
+    dof: number;
+    parsevalRatio: number | null;
+    verdict: string | null;
+  }[];
 }
 
 /** What one job gave: the batch's JSON line for the recording, its verdict and key figures, or its input error. */
 export type JobOutcome =
-  | { ok: true; line: Record<string, unknown>; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
+  | {
+      ok: true;
+      line: Record<string, unknown>;
+      verdict: "pass" | "fail" | "inconclusive" | null;
+      figures: KeyFigures;
+      report?: string | undefined;
+    }
   | { ok: false; line: Record<string, unknown>; error: WireError };
 
 /** An outcome with its line already as JSON text: made once, in the thread that ran the job, and stored as it is. */
 export type StoredOutcome =
-  | { ok: true; lineJson: string; verdict: "pass" | "fail" | "inconclusive" | null; figures: KeyFigures; report?: string | undefined }
+  | {
+      ok: true;
+      lineJson: string;
+      verdict: "pass" | "fail" | "inconclusive" | null;
+      figures: KeyFigures;
+      report?: string | undefined;
+    }
   | { ok: false; lineJson: string; error: WireError };
 
 export function storedOutcome(o: JobOutcome): StoredOutcome {
   const lineJson = JSON.stringify(o.line);
-  return o.ok ? { ok: true, lineJson, verdict: o.verdict, figures: o.figures, report: o.report } : { ok: false, lineJson, error: o.error };
+  return o.ok
+    ? { ok: true, lineJson, verdict: o.verdict, figures: o.figures, report: o.report }
+    : { ok: false, lineJson, error: o.error };
 }
 
 export interface JobContext {
@@ -69,7 +91,12 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
     // A check's profile is loaded (and held to its SHA-256) here; the dispatcher refuses a check without one.
     const check = job.kind === "check";
     const profile = check && job.profile !== undefined ? await profileFor(job.profile, ctx) : undefined;
-    const r = await runAnalysis({ kind: job.kind, file: real, profile, options: check ? { ...options, histogram: ctx.reportDir !== undefined } : options });
+    const r = await runAnalysis({
+      kind: job.kind,
+      file: real,
+      profile,
+      options: check ? { ...options, histogram: ctx.reportDir !== undefined } : options,
+    });
     if (!("verdict" in r)) {
       sameRecording(r, job);
       const line = psdJson(r, VERSION);
@@ -109,10 +136,27 @@ async function writeReport(dir: string, job: Job, r: CheckResult, recording: str
     const root = await realpath(dir);
     const real = await realpath(dirname(target));
     if (real !== root && !real.startsWith(root + sep)) {
-      throw new InputError("JOB_PATH_REFUSED", { file: job.file, option: "--report-dir", expected: `a report folder inside ${dir}`, received: `${dirname(rel)} leads to ${real} (a link out of the folder)` });
+      throw new InputError("JOB_PATH_REFUSED", {
+        file: job.file,
+        option: "--report-dir",
+        expected: `a report folder inside ${dir}`,
+        received: `${dirname(rel)} leads to ${real} (a link out of the folder)`,
+      });
     }
     // A retried job writes its report again: same job, same report, so it may replace it.
-    await writeAtomic(target, checkHtml({ ...r, analysis: { ...r.analysis, input: { ...r.analysis.input, file: job.file } }, profile: { ...r.profile, file: job.profile!.path } }, VERSION, new Date()), { inputs: [recording], force: true, option: "--report-dir" });
+    await writeAtomic(
+      target,
+      checkHtml(
+        {
+          ...r,
+          analysis: { ...r.analysis, input: { ...r.analysis.input, file: job.file } },
+          profile: { ...r.profile, file: job.profile!.path },
+        },
+        VERSION,
+        new Date(),
+      ),
+      { inputs: [recording], force: true, option: "--report-dir" },
+    );
   } catch (e) {
     if (e instanceof InputError) throw e;
     throw new Error(`report ${target} not written: ${(e as Error).message}`);
@@ -121,9 +165,17 @@ async function writeReport(dir: string, job: Job, r: CheckResult, recording: str
 }
 
 async function sameFile(real: string, job: Job): Promise<void> {
-  const changed = (received: string) => new InputError("RECORDING_CHANGED", { file: job.file, expected: `the recording queued with SHA-256 ${job.sha256}${job.bytes !== undefined ? ` (${job.bytes} bytes)` : ""}`, received, hint: "queue it again if the new file is meant" });
+  const changed = (received: string) =>
+    new InputError("RECORDING_CHANGED", {
+      file: job.file,
+      expected: `the recording queued with SHA-256 ${job.sha256}${job.bytes !== undefined ? ` (${job.bytes} bytes)` : ""}`,
+      received,
+      hint: "queue it again if the new file is meant",
+    });
   if (job.bytes !== undefined) {
-    const { stats } = await openRegularFile(real, "a readable recording").then(async (o) => (await o.handle.close(), o));
+    const { stats } = await openRegularFile(real, "a readable recording").then(
+      async (o) => (await o.handle.close(), o),
+    );
     if (stats.size !== job.bytes) throw changed(`${stats.size} bytes`);
   }
   const { sha256 } = await sha256OfFile(real, "a readable recording");
@@ -132,7 +184,12 @@ async function sameFile(real: string, job: Job): Promise<void> {
 
 function sameRecording(a: RecordingAnalysis, job: Job): void {
   if (a.input.sha256 !== job.sha256) {
-    throw new InputError("RECORDING_CHANGED", { file: job.file, expected: `the recording queued with SHA-256 ${job.sha256}`, received: `SHA-256 ${a.input.sha256}`, hint: "queue it again if the new file is meant" });
+    throw new InputError("RECORDING_CHANGED", {
+      file: job.file,
+      expected: `the recording queued with SHA-256 ${job.sha256}`,
+      received: `SHA-256 ${a.input.sha256}`,
+      hint: "queue it again if the new file is meant",
+    });
   }
 }
 
@@ -148,7 +205,11 @@ async function profileFor(p: { path: string; sha256: string }, ctx: JobContext):
     throw e instanceof InputError ? asJobError(e, real, p.path) : e;
   }
   if (profile.sha256 !== p.sha256) {
-    throw new InputError("PROFILE_CHANGED", { file: p.path, expected: `the profile queued with SHA-256 ${p.sha256}`, received: `SHA-256 ${profile.sha256}` });
+    throw new InputError("PROFILE_CHANGED", {
+      file: p.path,
+      expected: `the profile queued with SHA-256 ${p.sha256}`,
+      received: `SHA-256 ${profile.sha256}`,
+    });
   }
   ctx.profiles?.set(p.sha256, profile);
   return profile;

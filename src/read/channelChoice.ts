@@ -18,7 +18,11 @@ export interface ChannelChoiceContext {
  * is digits, a 1-based position; a number is always a position (so a channel named "2" cannot shadow it).
  * Anything else is CHANNEL_NOT_FOUND naming the option and listing the channels.
  */
-export function channelIndex(channels: readonly { name: string }[], wanted: ChannelName, at: ChannelChoiceContext): number {
+export function channelIndex(
+  channels: readonly { name: string }[],
+  wanted: ChannelName,
+  at: ChannelChoiceContext,
+): number {
   const pos = (i: number) => at.positions?.[i] ?? i + 1;
   if (typeof wanted === "string") {
     const byName = channels.findIndex((c) => c.name.toLowerCase() === wanted.toLowerCase());
@@ -28,14 +32,19 @@ export function channelIndex(channels: readonly { name: string }[], wanted: Chan
   const byPosition = Number.isInteger(n) ? channels.findIndex((_, i) => pos(i) === n) : -1;
   if (byPosition >= 0) return byPosition;
   throw new InputError("CHANNEL_NOT_FOUND", {
-    file: at.file, option: at.option,
+    file: at.file,
+    option: at.option,
     expected: `${at.expected ?? "a channel name or position"}: ${channels.map((c, i) => `${pos(i)}=${c.name}`).join(", ")}`,
     received: typeof wanted === "number" ? String(wanted) : quoted(wanted),
   });
 }
 
 /** channelIndex for each name given; every channel, in order, when none is given. */
-export function channelIndices(channels: readonly { name: string }[], wanted: readonly ChannelName[] | undefined, at: ChannelChoiceContext): number[] {
+export function channelIndices(
+  channels: readonly { name: string }[],
+  wanted: readonly ChannelName[] | undefined,
+  at: ChannelChoiceContext,
+): number[] {
   if (wanted === undefined || wanted.length === 0) return channels.map((_, i) => i);
   return wanted.map((w) => channelIndex(channels, w, at));
 }

@@ -1,7 +1,14 @@
 import { createRequire } from "node:module";
 import type Papa from "papaparse";
 import { InputError, quoted, type ErrorCode } from "../errors.js";
-import { nonFiniteToken, numberTextResolution, parseNumberText, POW10, scanNumber, type ScanState } from "./csvNumber.js";
+import {
+  nonFiniteToken,
+  numberTextResolution,
+  parseNumberText,
+  POW10,
+  scanNumber,
+  type ScanState,
+} from "./csvNumber.js";
 import { parseDateTimeText, scanDateTime, type DateTimeScan } from "./dateTimeStamp.js";
 
 /**
@@ -137,7 +144,13 @@ export class CsvBodyParser {
    * add one after a last line that has none, so no scan can run past the piece. `firstLine` is the
    * line number of the first line (0 when it is not known: errors then carry a relative line).
    */
-  parse(buf: Uint8Array, s: number, e: number, firstLine: number, alloc: (n: number) => Float64Array = (n) => new Float64Array(n)): CsvPiece {
+  parse(
+    buf: Uint8Array,
+    s: number,
+    e: number,
+    firstLine: number,
+    alloc: (n: number) => Float64Array = (n) => new Float64Array(n),
+  ): CsvPiece {
     if (e > s && buf[e - 1] !== 10) throw new RangeError("a CSV piece must end with a newline");
     // Room for rows of 4 bytes a field or more; a piece of shorter rows grows its columns.
     let cap = Math.max(16, Math.ceil((e - s) / (4 * this.ncol)));
@@ -153,7 +166,9 @@ export class CsvBodyParser {
     let outs: Float64Array[] = [];
     const route = () => {
       let scratch: Float64Array | undefined;
-      outs = Array.from(this.target, (t) => (t >= 0 ? channels[t]! : t === -2 ? time! : (scratch ??= new Float64Array(cap))));
+      outs = Array.from(this.target, (t) =>
+        t >= 0 ? channels[t]! : t === -2 ? time! : (scratch ??= new Float64Array(cap)),
+      );
     };
     route();
     const grow = () => {
@@ -182,7 +197,21 @@ export class CsvBodyParser {
       if (this.plainOk) {
         // Plain rows (numbers and delimiters only) in one tight loop; it stops at anything else.
         plain.zoneMode = this.zoneMode;
-        const n = plainRows(buf, p, e, outs, rows, cap, this.ncol, this.delimByte, this.decimalByte, this.spec.timeIndex, this.stampBase, this.trailing, plain);
+        const n = plainRows(
+          buf,
+          p,
+          e,
+          outs,
+          rows,
+          cap,
+          this.ncol,
+          this.delimByte,
+          this.decimalByte,
+          this.spec.timeIndex,
+          this.stampBase,
+          this.trailing,
+          plain,
+        );
         this.zoneMode = plain.zoneMode;
         if (n > 0) {
           if (plain.timeMinPlace < minPlace) minPlace = plain.timeMinPlace;
@@ -200,7 +229,14 @@ export class CsvBodyParser {
       }
       const got = this.parseLine(buf, p, e, firstLine + line);
       const next = this.next;
-      if (next - p > MAX_LINE_BYTES) this.fail("CSV_LINE_TOO_LONG", firstLine + line, undefined, `lines shorter than ${MAX_LINE_BYTES} bytes`, "a longer line");
+      if (next - p > MAX_LINE_BYTES)
+        this.fail(
+          "CSV_LINE_TOO_LONG",
+          firstLine + line,
+          undefined,
+          `lines shorter than ${MAX_LINE_BYTES} bytes`,
+          "a longer line",
+        );
       if (got >= 0) {
         if (rows === cap) grow();
         const r = this.row;
@@ -225,15 +261,32 @@ export class CsvBodyParser {
       p = next;
     }
     return {
-      rows, lines: line,
+      rows,
+      lines: line,
       channels: channels.map((c) => c.subarray(0, rows)),
-      time: time?.subarray(0, rows), rowLines: rowLines?.subarray(0, rows), timeMinPlace: minPlace, timeMaxMant: maxMant,
+      time: time?.subarray(0, rows),
+      rowLines: rowLines?.subarray(0, rows),
+      timeMinPlace: minPlace,
+      timeMaxMant: maxMant,
     };
   }
 
-  private fail(code: ErrorCode, line: number, column: number | undefined, expected: string, received: string, hint?: string): never {
+  private fail(
+    code: ErrorCode,
+    line: number,
+    column: number | undefined,
+    expected: string,
+    received: string,
+    hint?: string,
+  ): never {
     throw new InputError(code, {
-      file: this.spec.file, line, column, field: column !== undefined ? this.spec.columnNames[column - 1] : undefined, expected, received, hint,
+      file: this.spec.file,
+      line,
+      column,
+      field: column !== undefined ? this.spec.columnNames[column - 1] : undefined,
+      expected,
+      received,
+      hint,
     });
   }
 
@@ -322,7 +375,13 @@ export class CsvBodyParser {
     const names = this.spec.columnNames;
     if (fields.length !== ncol) {
       const few = fields.length < ncol;
-      this.fail(few ? "CSV_TOO_FEW_FIELDS" : "CSV_TOO_MANY_FIELDS", line, few ? fields.length + 1 : ncol + 1, `${ncol} fields as in the first row`, `${fields.length}`);
+      this.fail(
+        few ? "CSV_TOO_FEW_FIELDS" : "CSV_TOO_MANY_FIELDS",
+        line,
+        few ? fields.length + 1 : ncol + 1,
+        `${ncol} fields as in the first row`,
+        `${fields.length}`,
+      );
     }
     const dt = this.spec.timeDateTime;
     for (let c = 0; c < ncol; c++) {
@@ -330,9 +389,24 @@ export class CsvBodyParser {
       if (this.target[c] === -3) continue;
       if (c === this.spec.timeIndex && dt !== undefined) {
         const d = parseDateTimeText(f, dt.baseDays);
-        if (d === undefined) this.fail("CSV_TIME_FORMAT", line, c + 1, "a date-time stamp like 2024-05-17T14:03:00.000 (ISO 8601) as in the first row", quoted(f));
+        if (d === undefined)
+          this.fail(
+            "CSV_TIME_FORMAT",
+            line,
+            c + 1,
+            "a date-time stamp like 2024-05-17T14:03:00.000 (ISO 8601) as in the first row",
+            quoted(f),
+          );
         if (this.zoneMode >= 0 && d!.zone !== this.zoneMode) {
-          this.fail("CSV_TIME_FORMAT", line, c + 1, this.zoneMode ? "a time zone (Z or an offset) as in the rows before" : "no time zone, as in the rows before", quoted(f));
+          this.fail(
+            "CSV_TIME_FORMAT",
+            line,
+            c + 1,
+            this.zoneMode
+              ? "a time zone (Z or an offset) as in the rows before"
+              : "no time zone, as in the rows before",
+            quoted(f),
+          );
         }
         this.zoneMode = d!.zone;
         this.row[c] = d!.value;
@@ -340,12 +414,16 @@ export class CsvBodyParser {
         this.rowMant = 0;
         continue;
       }
-      if (f === "") this.fail("CSV_EMPTY_CELL", line, c + 1, `a number in column ${quoted(names[c]!)}`, "an empty cell");
+      if (f === "")
+        this.fail("CSV_EMPTY_CELL", line, c + 1, `a number in column ${quoted(names[c]!)}`, "an empty cell");
       let v = parseNumberText(f, this.spec.decimal);
       if (Number.isNaN(v)) {
         const nf = nonFiniteToken(f);
         if (nf === undefined) {
-          const hint = this.spec.decimal === "." && /^[+-]?\d+,\d+$/.test(f) ? "the file may use decimal commas: give `csv.delimiter: \";\"` `csv.decimal: \",\"`" : undefined;
+          const hint =
+            this.spec.decimal === "." && /^[+-]?\d+,\d+$/.test(f)
+              ? 'the file may use decimal commas: give `csv.delimiter: ";"` `csv.decimal: ","`'
+              : undefined;
           this.fail("CSV_NOT_A_NUMBER", line, c + 1, `a number in column ${quoted(names[c]!)}`, quoted(f), hint);
         }
         v = nf!;
@@ -386,8 +464,19 @@ const stampScan: DateTimeScan = { end: -1, value: 0, fractionDigits: 0, zone: 0,
  * Number() (Clinger 1990, as in scanNumber).
  */
 function plainRows(
-  buf: Uint8Array, p: number, e: number, outs: Float64Array[], row0: number, cap: number,
-  ncol: number, delim: number, decimal: number, timeIndex: number, stampBase: number, trailing: boolean, state: PlainRowsState,
+  buf: Uint8Array,
+  p: number,
+  e: number,
+  outs: Float64Array[],
+  row0: number,
+  cap: number,
+  ncol: number,
+  delim: number,
+  decimal: number,
+  timeIndex: number,
+  stampBase: number,
+  trailing: boolean,
+  state: PlainRowsState,
 ): number {
   let row = row0;
   let timeMaxK = -99;
@@ -432,7 +521,7 @@ function plainRows(
       if (c === 43 /* + */ && neg === 0) c = buf[++p]!;
       const start = p;
       let m = 0;
-      while (((c - 48) >>> 0) < 10) {
+      while ((c - 48) >>> 0 < 10) {
         m = m * 10 + (c - 48);
         c = buf[++p]!;
       }
@@ -441,7 +530,7 @@ function plainRows(
       if (c === decimal) {
         const f0 = ++p;
         c = buf[p]!;
-        while (((c - 48) >>> 0) < 10) {
+        while ((c - 48) >>> 0 < 10) {
           m = m * 10 + (c - 48);
           c = buf[++p]!;
         }
@@ -458,11 +547,11 @@ function plainRows(
         if (c === 43 /* + */ && eneg === 0) c = buf[++p]!;
         const e0 = p;
         let ev = 0;
-        while (((c - 48) >>> 0) < 10) {
+        while ((c - 48) >>> 0 < 10) {
           ev = ev * 10 + (c - 48);
           c = buf[++p]!;
         }
-        if (((p - e0 - 1) >>> 0) > 2) {
+        if ((p - e0 - 1) >>> 0 > 2) {
           p = lineStart;
           break rows;
         }
@@ -470,7 +559,7 @@ function plainRows(
       }
       // At most 15 digits and |k| <= 22: m and 10^|k| are exact, and one division or product rounds
       // correctly (Clinger 1990), so the double is Number()'s.
-      if (((digits - 1) >>> 0) > 14 || ((k + 22) >>> 0) > 44) {
+      if ((digits - 1) >>> 0 > 14 || (k + 22) >>> 0 > 44) {
         p = lineStart;
         break rows;
       }
@@ -518,5 +607,6 @@ function plainRows(
   const state: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0, zoneMode: -1 };
   for (let i = 0; i < 32; i++) plainRows(row, 0, row.length, outs, 0, 1, 2, 44, 46, 0, NaN, false, state);
   const stamped = new Uint8Array(Buffer.from("2026-03-09T08:15:00.000039,2\n", "latin1"));
-  for (let i = 0; i < 32; i++) plainRows(stamped, 0, stamped.length, outs, 0, 1, 2, 44, 46, 0, 0, false, { ...state, zoneMode: -1 });
+  for (let i = 0; i < 32; i++)
+    plainRows(stamped, 0, stamped.length, outs, 0, 1, 2, 44, 46, 0, 0, false, { ...state, zoneMode: -1 });
 }

@@ -3,7 +3,13 @@ import { parentPort } from "node:worker_threads";
 import { errorToWire } from "../errors.js";
 import { isLeaveRequest, leaveWhenAsked } from "../threadEnd.js";
 import { columnPool, pieceBuffers } from "./csvBody.js";
-import { csvBodyPass, HASH_ON_READER_BYTES_PER_VALUE, READ_BUFFER_BYTES, type CsvBodyJob, type HashHandOff } from "./csvBodyPass.js";
+import {
+  csvBodyPass,
+  HASH_ON_READER_BYTES_PER_VALUE,
+  READ_BUFFER_BYTES,
+  type CsvBodyJob,
+  type HashHandOff,
+} from "./csvBodyPass.js";
 
 /**
  * The CSV body pass on a worker thread: it reads, parses and checks the file, and posts each piece's
@@ -99,16 +105,22 @@ const hashing: HashHandOff = {
 /** The reader starts this worker before it has sniffed the file; the job comes once it has. */
 function run(job: CsvBodyJob): void {
   parentPort!.postMessage({ buffers: shared, busy: busy.buffer });
-  csvBodyPass(job, async (piece, bytes) => {
-    // The first piece decides (the sniffer found a row within the first 64 KB, so it has rows).
-    if (hashWhere === "undecided" && piece.rows > 0) decide(bytes > HASH_ON_READER_BYTES_PER_VALUE * piece.rows * piece.channels.length ? "reader" : "here");
-    while (credits === 0) await new Promise<void>((r) => (wake = r));
-    credits--;
-    const transfer: ArrayBuffer[] = pieceBuffers(piece);
-    if (piece.rowLines) transfer.push(piece.rowLines.buffer as ArrayBuffer);
-    // Until the place is decided, the ranges stay here (all hashed on one thread, in order).
-    parentPort!.postMessage({ piece, bytes, ...(hashWhere === "reader" ? hashPart() : { hash: [] }) }, transfer);
-  }, columns, hashing).then(
+  csvBodyPass(
+    job,
+    async (piece, bytes) => {
+      // The first piece decides (the sniffer found a row within the first 64 KB, so it has rows).
+      if (hashWhere === "undecided" && piece.rows > 0)
+        decide(bytes > HASH_ON_READER_BYTES_PER_VALUE * piece.rows * piece.channels.length ? "reader" : "here");
+      while (credits === 0) await new Promise<void>((r) => (wake = r));
+      credits--;
+      const transfer: ArrayBuffer[] = pieceBuffers(piece);
+      if (piece.rowLines) transfer.push(piece.rowLines.buffer as ArrayBuffer);
+      // Until the place is decided, the ranges stay here (all hashed on one thread, in order).
+      parentPort!.postMessage({ piece, bytes, ...(hashWhere === "reader" ? hashPart() : { hash: [] }) }, transfer);
+    },
+    columns,
+    hashing,
+  ).then(
     (done) => {
       if (hashWhere === "reader" && (ranges.length > 0 || head)) parentPort!.postMessage(hashPart());
       parentPort!.postMessage({ done });

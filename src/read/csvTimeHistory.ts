@@ -45,8 +45,23 @@ const HEAD_BYTES = 65536;
  */
 const PARALLEL_BYTES = 8 << 20;
 const WORKER = new URL("./csvParseWorker.js", import.meta.url);
-const TIME_NAMES = /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|elapsed|elapsed_?time|time_?elapsed|seconds_?elapsed|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
-const TIME_UNITS: Record<string, number> = { s: 1, sec: 1, secs: 1, seconds: 1, ms: 1e-3, us: 1e-6, µs: 1e-6, μs: 1e-6, ns: 1e-9, min: 60, days: 86400, day: 86400, d: 86400 };
+const TIME_NAMES =
+  /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|elapsed|elapsed_?time|time_?elapsed|seconds_?elapsed|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
+const TIME_UNITS: Record<string, number> = {
+  s: 1,
+  sec: 1,
+  secs: 1,
+  seconds: 1,
+  ms: 1e-3,
+  us: 1e-6,
+  µs: 1e-6,
+  μs: 1e-6,
+  ns: 1e-9,
+  min: 60,
+  days: 86400,
+  day: 86400,
+  d: 86400,
+};
 
 interface Dialect {
   delimiter: Delimiter;
@@ -111,7 +126,11 @@ function headLines(head: Buffer, wholeFile: boolean): { text: string; line: numb
 
 /** A field that reads as a number, a non-finite token or a date-time stamp (either decimal mark). */
 function dataField(f: string): boolean {
-  return /^\s*"?[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?"?\s*$/.test(f) || nonFiniteToken(f.replace(/"/g, "")) !== undefined || looksLikeDateTime(f.replace(/"/g, ""));
+  return (
+    /^\s*"?[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?"?\s*$/.test(f) ||
+    nonFiniteToken(f.replace(/"/g, "")) !== undefined ||
+    looksLikeDateTime(f.replace(/"/g, ""))
+  );
 }
 
 /**
@@ -129,7 +148,9 @@ function unitsRow(fields: string[], above?: string[]): boolean {
   let unknown = false;
   let anchored = false;
   for (let i = 0; i < fields.length; i++) {
-    const f = fields[i]!.trim().replace(/^"(.*)"$/, "$1").trim();
+    const f = fields[i]!.trim()
+      .replace(/^"(.*)"$/, "$1")
+      .trim();
     if (f === "") continue;
     const inner = /^[[(](.*)[\])]$/.exec(f);
     const u = inner ? inner[1]!.trim() : f;
@@ -138,7 +159,16 @@ function unitsRow(fields: string[], above?: string[]): boolean {
       anchored = true;
     } else if (TIME_UNITS[u.toLowerCase()] !== undefined) {
       known = true;
-      if (above !== undefined && TIME_NAMES.test((above[i] ?? "").trim().replace(/^"(.*)"$/, "$1").trim())) anchored = true;
+      if (
+        above !== undefined &&
+        TIME_NAMES.test(
+          (above[i] ?? "")
+            .trim()
+            .replace(/^"(.*)"$/, "$1")
+            .trim(),
+        )
+      )
+        anchored = true;
     } else if (!UNIT_SHAPED.test(u) || TIME_NAMES.test(u)) return false;
     else unknown = true;
   }
@@ -146,12 +176,13 @@ function unitsRow(fields: string[], above?: string[]): boolean {
 }
 
 /** A token that could be a unit nobody taught psdgate (`gee`, `m/s²`, `counts`): no spaces, at most 16 characters, not a number. */
-const UNIT_SHAPED = /^[A-Za-zµμ°%][A-Za-z0-9µμ°%/^*·.²³\-]{0,15}$/;
+const UNIT_SHAPED = /^[A-Za-zµμ°%][A-Za-z0-9µμ°%/^*·.²³-]{0,15}$/;
 
 /** Whether a split row is a row of samples: >= 2 fields, all data (an empty last field allowed: a trailing delimiter). */
 function sampleRow(row: string[]): boolean {
   if (row.length < 2) return false;
-  for (let c = 0; c < row.length; c++) if (!(dataField(row[c]!) || (c === row.length - 1 && c >= 2 && row[c]!.trim() === ""))) return false;
+  for (let c = 0; c < row.length; c++)
+    if (!(dataField(row[c]!) || (c === row.length - 1 && c >= 2 && row[c]!.trim() === ""))) return false;
   return true;
 }
 
@@ -173,28 +204,63 @@ function dataStart(rows: string[][]): { k: number; consistent: boolean; trailing
 }
 
 function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOptions): Dialect {
-  if (head.length === 0) throw new InputError("CSV_EMPTY", { file, expected: "a CSV time history", received: "an empty file" });
+  if (head.length === 0)
+    throw new InputError("CSV_EMPTY", { file, expected: "a CSV time history", received: "an empty file" });
   if ((head[0] === 0xff && head[1] === 0xfe) || (head[0] === 0xfe && head[1] === 0xff)) {
-    throw new InputError("CSV_ENCODING", { file, line: 1, expected: "UTF-8 or ASCII text", received: "UTF-16 (byte-order mark)", hint: "re-save the export as UTF-8" });
+    throw new InputError("CSV_ENCODING", {
+      file,
+      line: 1,
+      expected: "UTF-8 or ASCII text",
+      received: "UTF-16 (byte-order mark)",
+      hint: "re-save the export as UTF-8",
+    });
   }
   const nul = head.indexOf(0);
   if (nul >= 0) {
     const line = head.subarray(0, nul).toString("latin1").split("\n").length;
-    throw new InputError("CSV_BINARY", { file, line, expected: "text", received: "binary data (a NUL byte)", hint: "is this really a CSV file?" });
+    throw new InputError("CSV_BINARY", {
+      file,
+      line,
+      expected: "text",
+      received: "binary data (a NUL byte)",
+      hint: "is this really a CSV file?",
+    });
   }
   if (head.indexOf(10) < 0) {
     // No line feed in the head: CR-only line ends (classic Mac), or a first line longer than the head.
     const cr = head.indexOf(13);
     if (cr >= 0 && cr < head.length - 1) {
-      throw new InputError("CSV_LINE_ENDS", { file, line: 1, expected: "LF or CRLF line ends", received: "CR-only line ends", hint: "convert the line ends to LF (e.g. tr '\\r' '\\n')" });
+      throw new InputError("CSV_LINE_ENDS", {
+        file,
+        line: 1,
+        expected: "LF or CRLF line ends",
+        received: "CR-only line ends",
+        hint: "convert the line ends to LF (e.g. tr '\\r' '\\n')",
+      });
     }
-    if (!wholeFile) throw new InputError("CSV_LINE_TOO_LONG", { file, line: 1, expected: `a first line within the first ${HEAD_BYTES >> 10} KB`, received: "a longer line" });
+    if (!wholeFile)
+      throw new InputError("CSV_LINE_TOO_LONG", {
+        file,
+        line: 1,
+        expected: `a first line within the first ${HEAD_BYTES >> 10} KB`,
+        received: "a longer line",
+      });
   }
   let lines = headLines(head, wholeFile).slice(0, 256);
-  if (lines.length === 0) throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "only comments or blank lines" });
+  if (lines.length === 0)
+    throw new InputError("CSV_NO_DATA", {
+      file,
+      expected: "rows of samples",
+      received: "only comments or blank lines",
+    });
   const first = lines[0]!;
   if (first.end - first.start > MAX_LINE_BYTES || (!wholeFile && lines.length < 2 && head.indexOf(10) < 0)) {
-    throw new InputError("CSV_LINE_TOO_LONG", { file, line: first.line, expected: `lines shorter than ${MAX_LINE_BYTES} bytes`, received: "a longer line" });
+    throw new InputError("CSV_LINE_TOO_LONG", {
+      file,
+      line: first.line,
+      expected: `lines shorter than ${MAX_LINE_BYTES} bytes`,
+      received: "a longer line",
+    });
   }
 
   let delimiter: Delimiter | undefined = opts.delimiter;
@@ -203,11 +269,18 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   let sepLine: number | undefined;
   if (sep) {
     const d = sep[1] === "\t" ? "\t" : sep[1];
-    if (d !== "," && d !== ";" && d !== "\t") throw new InputError("CSV_SEP_LINE", { file, line: first.line, expected: "sep=, sep=; or sep=<tab>", received: quoted(first.text.trim()) });
+    if (d !== "," && d !== ";" && d !== "\t")
+      throw new InputError("CSV_SEP_LINE", {
+        file,
+        line: first.line,
+        expected: "sep=, sep=; or sep=<tab>",
+        received: quoted(first.text.trim()),
+      });
     delimiter ??= d;
     sepLine = first.line;
     lines = lines.slice(1);
-    if (lines.length === 0) throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "a sep= line only" });
+    if (lines.length === 0)
+      throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "a sep= line only" });
   }
   // A candidate must split the data rows at the end of the head into the same number (>= 2) of
   // fields that read as numbers (either decimal mark) or date-time stamps: mixed space/tab alignment
@@ -238,7 +311,13 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   let unitIndex = -1;
   if (k > 0) {
     const fits = (r: string[]) => r.length === count || (found.trailing && r.length === count - 1);
-    if (k >= 2 && unitsRow(rows[k - 1]!, rows[k - 2]!) && fits(rows[k - 1]!) && fits(rows[k - 2]!) && !unitsRow(rows[k - 2]!)) {
+    if (
+      k >= 2 &&
+      unitsRow(rows[k - 1]!, rows[k - 2]!) &&
+      fits(rows[k - 1]!) &&
+      fits(rows[k - 2]!) &&
+      !unitsRow(rows[k - 2]!)
+    ) {
       units = rows[k - 1];
       unitIndex = k - 1;
       headerIndex = k - 2;
@@ -258,7 +337,12 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   let decimal: "." | "," | undefined = opts.decimal;
   if (decimal === ",") {
     if (delimiter === ",") {
-      throw new InputError("OPTION_CONFLICT", { option: "csv.decimal", expected: "a delimiter other than ',' with decimal commas", received: "comma as both", hint: "add `csv.delimiter: \";\"`" });
+      throw new InputError("OPTION_CONFLICT", {
+        option: "csv.decimal",
+        expected: "a delimiter other than ',' with decimal commas",
+        received: "comma as both",
+        hint: 'add `csv.delimiter: ";"`',
+      });
     }
   } else if (decimal === undefined) {
     const body = rows.slice(k).flat();
@@ -267,8 +351,11 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
     if (commaNum && delimiter !== ",") {
       if (pointNum) {
         throw new InputError("CSV_DECIMAL_AMBIGUOUS", {
-          file, line: lines[k]?.line, expected: "one decimal mark throughout", received: "both '.' and ',' in numbers",
-          hint: "declare it with `csv.decimal: \".\"` or `csv.decimal: \",\"`",
+          file,
+          line: lines[k]?.line,
+          expected: "one decimal mark throughout",
+          received: "both '.' and ',' in numbers",
+          hint: 'declare it with `csv.decimal: "."` or `csv.decimal: ","`',
         });
       }
       decimal = ",";
@@ -279,17 +366,35 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   if (body === undefined && !wholeFile) {
     // More follows, but no whole row within the head: the line after the header is too long to sniff.
     const line = head.toString("latin1").split("\n").length;
-    throw new InputError("CSV_LINE_TOO_LONG", { file, line, expected: `a first row of samples within the first ${HEAD_BYTES >> 10} KB`, received: "a longer line" });
+    throw new InputError("CSV_LINE_TOO_LONG", {
+      file,
+      line,
+      expected: `a first row of samples within the first ${HEAD_BYTES >> 10} KB`,
+      received: "a longer line",
+    });
   }
   if (body === undefined) {
-    throw new InputError("CSV_NO_DATA", { file, line: first.line, expected: "rows of samples after the header", received: "a header only" });
+    throw new InputError("CSV_NO_DATA", {
+      file,
+      line: first.line,
+      expected: "rows of samples after the header",
+      received: "a header only",
+    });
   }
   return {
-    delimiter, decimal, header, columns: columnsCount, trailingEmpty: found.trailing,
-    bodyStart: body.start, bodyLine: body.line,
+    delimiter,
+    decimal,
+    header,
+    columns: columnsCount,
+    trailingEmpty: found.trailing,
+    bodyStart: body.start,
+    bodyLine: body.line,
     headerLine: headerIndex >= 0 ? lines[headerIndex]!.line : undefined,
-    units, unitLine: unitIndex >= 0 ? lines[unitIndex]!.line : undefined,
-    preamble, preambleLines: preamble.length, sepLine,
+    units,
+    unitLine: unitIndex >= 0 ? lines[unitIndex]!.line : undefined,
+    preamble,
+    preambleLines: preamble.length,
+    sepLine,
     firstRow: rows[k]!,
   };
 }
@@ -299,7 +404,11 @@ export async function openCsvTimeHistory(file: string, opts: CsvReadOptions = {}
   // A large file's body is read on a worker thread. It starts now, so that its start-up (about 45 ms)
   // overlaps the sniffing here, and waits for its job; it is unref'd until then, so a source that is
   // never read does not keep the process alive (and close() ends it).
-  const worker = (opts.parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 && existsSync(fileURLToPath(WORKER)) ? startBodyWorker() : undefined;
+  const worker =
+    (opts.parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 &&
+    existsSync(fileURLToPath(WORKER))
+      ? startBodyWorker()
+      : undefined;
   try {
     return await openSniffed(file, size, opts, worker);
   } catch (e) {
@@ -324,7 +433,12 @@ function startBodyWorker(): BodyWorker {
   return { thread, ended };
 }
 
-async function openSniffed(file: string, size: number, opts: CsvReadOptions, worker: BodyWorker | undefined): Promise<TimeHistorySource> {
+async function openSniffed(
+  file: string,
+  size: number,
+  opts: CsvReadOptions,
+  worker: BodyWorker | undefined,
+): Promise<TimeHistorySource> {
   const fh = await open(file, "r");
   let head: Buffer;
   try {
@@ -336,7 +450,10 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   }
   const dialect = sniff(file, head, head.length >= size, opts);
   const columns: Column[] = [];
-  for (let i = 0; i < dialect.columns; i++) columns.push(dialect.header ? splitNameUnit(dialect.header[i]!, i) : { index: i, name: `ch${i + 1}`, unitText: undefined });
+  for (let i = 0; i < dialect.columns; i++)
+    columns.push(
+      dialect.header ? splitNameUnit(dialect.header[i]!, i) : { index: i, name: `ch${i + 1}`, unitText: undefined },
+    );
   if (dialect.units) {
     // A units row under the header: each non-empty field is its column's unit.
     for (const c of columns) {
@@ -344,7 +461,14 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       const u = raw.replace(/^[[(](.*)[\])]$/, "$1").trim();
       if (u === "") continue;
       if (c.unitText !== undefined && c.unitText !== u) {
-        throw new InputError("UNIT_CONFLICT", { file, line: dialect.unitLine, column: c.index + 1, field: c.name, expected: `the units row to agree with the header's unit ${quoted(c.unitText)}`, received: quoted(u) });
+        throw new InputError("UNIT_CONFLICT", {
+          file,
+          line: dialect.unitLine,
+          column: c.index + 1,
+          field: c.name,
+          expected: `the units row to agree with the header's unit ${quoted(c.unitText)}`,
+          received: quoted(u),
+        });
       }
       c.unitText = u;
     }
@@ -353,7 +477,13 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
     const seen = new Map<string, number>();
     for (const c of columns) {
       if (seen.has(c.name.toLowerCase())) {
-        throw new InputError("CSV_DUPLICATE_COLUMN", { file, line: dialect.headerLine, column: c.index + 1, expected: "distinct column names", received: quoted(c.name) });
+        throw new InputError("CSV_DUPLICATE_COLUMN", {
+          file,
+          line: dialect.headerLine,
+          column: c.index + 1,
+          expected: "distinct column names",
+          received: quoted(c.name),
+        });
       }
       seen.set(c.name.toLowerCase(), c.index);
     }
@@ -367,12 +497,22 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
     const tc = opts.timeColumn;
     timeIndex = typeof tc === "number" ? tc - 1 : columns.findIndex((c) => c.name.toLowerCase() === tc.toLowerCase());
     if (timeIndex < 0 || timeIndex >= columns.length) {
-      throw new InputError("TIME_COLUMN_NOT_FOUND", { file, option: "csv.timeColumn", expected: `one of ${columns.map((c) => quoted(c.name)).join(", ")} or 1..${columns.length}`, received: quoted(String(tc)) });
+      throw new InputError("TIME_COLUMN_NOT_FOUND", {
+        file,
+        option: "csv.timeColumn",
+        expected: `one of ${columns.map((c) => quoted(c.name)).join(", ")} or 1..${columns.length}`,
+        received: quoted(String(tc)),
+      });
     }
   } else {
     // A name with its unit as a suffix (`timestamp_ms`, `elapsed_s`) is a time name too.
-    if (dialect.header) timeIndex = columns.findIndex((c) => TIME_NAMES.test(c.name) || (c.unitText !== undefined && TIME_NAMES.test(c.name.replace(/_(ms|us|s)$/i, ""))));
-    if (timeIndex < 0) timeIndex = dialect.firstRow.slice(0, columns.length).findIndex((f) => looksLikeDateTime(f.replace(/"/g, "")));
+    if (dialect.header)
+      timeIndex = columns.findIndex(
+        (c) =>
+          TIME_NAMES.test(c.name) || (c.unitText !== undefined && TIME_NAMES.test(c.name.replace(/_(ms|us|s)$/i, ""))),
+      );
+    if (timeIndex < 0)
+      timeIndex = dialect.firstRow.slice(0, columns.length).findIndex((f) => looksLikeDateTime(f.replace(/"/g, "")));
   }
   const dateTime = timeIndex >= 0 && looksLikeDateTime((dialect.firstRow[timeIndex] ?? "").replace(/"/g, ""));
   let ignoredTime = -1;
@@ -384,14 +524,26 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   let timeUnitDeclared = dateTime;
   if (timeIndex >= 0 && dateTime) {
     if (opts.timeUnit !== undefined) {
-      throw new InputError("OPTION_CONFLICT", { file, option: "csv.timeUnit", field: columns[timeIndex]!.name, expected: "no time unit for a column of date-time stamps", received: opts.timeUnit });
+      throw new InputError("OPTION_CONFLICT", {
+        file,
+        option: "csv.timeUnit",
+        field: columns[timeIndex]!.name,
+        expected: "no time unit for a column of date-time stamps",
+        received: opts.timeUnit,
+      });
     }
   } else if (timeIndex >= 0) {
     const u = columns[timeIndex]!.unitText;
     if (u !== undefined) {
       const f = TIME_UNITS[u.toLowerCase()];
       if (f === undefined) {
-        throw new InputError("CSV_TIME_UNIT", { file, line: unitLine, column: timeIndex + 1, expected: "a time unit (s, ms, us)", received: quoted(u) });
+        throw new InputError("CSV_TIME_UNIT", {
+          file,
+          line: unitLine,
+          column: timeIndex + 1,
+          expected: "a time unit (s, ms, us)",
+          received: quoted(u),
+        });
       }
       timeFactor = f;
       timeUnitDeclared = true;
@@ -400,7 +552,12 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       const f = TIME_UNITS[opts.timeUnit === "serial-days" ? "days" : opts.timeUnit]!;
       if (timeUnitDeclared && f !== timeFactor) {
         throw new InputError("OPTION_CONFLICT", {
-          file, option: "csv.timeUnit", field: columns[timeIndex]!.name, expected: `the header's time unit ${quoted(u!)}`, received: opts.timeUnit, hint: "drop `csv.timeUnit` (the header already says), or fix the header",
+          file,
+          option: "csv.timeUnit",
+          field: columns[timeIndex]!.name,
+          expected: `the header's time unit ${quoted(u!)}`,
+          received: opts.timeUnit,
+          hint: "drop `csv.timeUnit` (the header already says), or fix the header",
         });
       }
       timeFactor = f;
@@ -409,24 +566,39 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   }
   if (timeIndex < 0 && opts.sampleRateHz === undefined) {
     throw new InputError("CSV_NO_RATE", {
-      file, expected: "a time column (header 'time', 't', 'time [ms]', …) or a sample rate", received: dialect.header ? `columns ${dialect.header.map((h) => quoted(h)).join(", ")}` : "no header",
-      hint: opts.timeColumn === false ? "give `csv.sampleRateHz: HZ` with `csv.timeColumn: false`" : "give `csv.sampleRateHz: HZ`, or `csv.timeColumn: NAME`",
+      file,
+      expected: "a time column (header 'time', 't', 'time [ms]', …) or a sample rate",
+      received: dialect.header ? `columns ${dialect.header.map((h) => quoted(h)).join(", ")}` : "no header",
+      hint:
+        opts.timeColumn === false
+          ? "give `csv.sampleRateHz: HZ` with `csv.timeColumn: false`"
+          : "give `csv.sampleRateHz: HZ`, or `csv.timeColumn: NAME`",
     });
   }
   const skip = timeIndex >= 0 ? timeIndex : ignoredTime;
   const channelCols = columns.filter((c) => c.index !== skip);
-  if (channelCols.length === 0) throw new InputError("CSV_NO_CHANNELS", { file, expected: "at least one data column besides time", received: "only a time column" });
+  if (channelCols.length === 0)
+    throw new InputError("CSV_NO_CHANNELS", {
+      file,
+      expected: "at least one data column besides time",
+      received: "only a time column",
+    });
   const channels: ChannelInfo[] = channelCols.map((c) => {
     if (c.unitText === undefined) return { name: c.name };
     const spec = parseUnitSpec(c.unitText);
     return {
-      name: c.name, declaredUnit: spec?.base, declaredUnitSpec: spec, declaredVolts: spec ? undefined : parseVoltUnit(c.unitText),
-      declaredUnitText: c.unitText, unitPlace: { line: unitLine, column: c.index + 1 },
+      name: c.name,
+      declaredUnit: spec?.base,
+      declaredUnitSpec: spec,
+      declaredVolts: spec ? undefined : parseVoltUnit(c.unitText),
+      declaredUnitText: c.unitText,
+      unitPlace: { line: unitLine, column: c.index + 1 },
     };
   });
 
   // Date-time stamps count seconds from the first stamp's day.
-  const firstScan = dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, "")) : undefined;
+  const firstScan =
+    dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, "")) : undefined;
   const baseDays = firstScan?.days;
   // Provisional rate from the sniffed rows; the final one comes from the whole time column.
   // It is snapped by the rule the whole column's rate follows (read/roundRate.ts), on the head's stamps and
@@ -462,27 +634,53 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       columnRate = roundRate(estimate, (estimate * quantum) / (t1 - t0));
     }
   }
-  const timeCol: TimeColumnInfo | undefined = timeIndex >= 0 ? { file, line: dialect.bodyLine, column: timeIndex + 1, name: columns[timeIndex]!.name, unitDeclared: timeUnitDeclared } : undefined;
+  const timeCol: TimeColumnInfo | undefined =
+    timeIndex >= 0
+      ? {
+          file,
+          line: dialect.bodyLine,
+          column: timeIndex + 1,
+          name: columns[timeIndex]!.name,
+          unitDeclared: timeUnitDeclared,
+        }
+      : undefined;
   if (timeCol && Number.isFinite(columnRate)) {
     // Early, on the head's rows: a gross disagreement or an implausible rate is said before the whole file is read.
-    if (opts.sampleRateHz !== undefined && Math.abs(columnRate - opts.sampleRateHz) > 0.05 * opts.sampleRateHz) throw rateConflict(timeCol, opts.sampleRateHz, columnRate);
-    if (opts.sampleRateHz === undefined && !timeUnitDeclared && columnRate < MIN_PLAUSIBLE_RATE_HZ) throw implausibleRate(timeCol, columnRate);
+    if (opts.sampleRateHz !== undefined && Math.abs(columnRate - opts.sampleRateHz) > 0.05 * opts.sampleRateHz)
+      throw rateConflict(timeCol, opts.sampleRateHz, columnRate);
+    if (opts.sampleRateHz === undefined && !timeUnitDeclared && columnRate < MIN_PLAUSIBLE_RATE_HZ)
+      throw implausibleRate(timeCol, columnRate);
   }
   const provisionalRate = opts.sampleRateHz ?? columnRate;
 
-  const delimName = dialect.delimiter === "\t" ? "tab" : dialect.delimiter === "whitespace" ? "whitespace" : `'${dialect.delimiter}'`;
+  const delimName =
+    dialect.delimiter === "\t" ? "tab" : dialect.delimiter === "whitespace" ? "whitespace" : `'${dialect.delimiter}'`;
   return {
     info: {
-      file, format: "csv", sampleRateHz: provisionalRate, channels, bytes: size,
-      layout: `delimited text, ${delimName} delimiter${dialect.sepLine !== undefined ? " (from its sep= line)" : ""}, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${dialect.units ? " and units row" : ""}`
-        + `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used, as asked` : ""}`
-        + `${dialect.trailingEmpty ? ", empty last column ignored" : ""}${dialect.preambleLines > 0 ? `, ${dialect.preambleLines} preamble line${dialect.preambleLines > 1 ? "s" : ""} before the header kept as metadata` : ""}`,
+      file,
+      format: "csv",
+      sampleRateHz: provisionalRate,
+      channels,
+      bytes: size,
+      layout:
+        `delimited text, ${delimName} delimiter${dialect.sepLine !== undefined ? " (from its sep= line)" : ""}, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${dialect.units ? " and units row" : ""}` +
+        `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used, as asked` : ""}` +
+        `${dialect.trailingEmpty ? ", empty last column ignored" : ""}${dialect.preambleLines > 0 ? `, ${dialect.preambleLines} preamble line${dialect.preambleLines > 1 ? "s" : ""} before the header kept as metadata` : ""}`,
       preamble: dialect.preamble.length > 0 ? dialect.preamble : undefined,
-      firstStamp: firstScan ? { baseDays: firstScan.days, seconds: firstScan.value, zoned: firstScan.zone !== 0 } : undefined,
+      firstStamp: firstScan
+        ? { baseDays: firstScan.days, seconds: firstScan.value, zoned: firstScan.zone !== 0 }
+        : undefined,
       dialect: {
-        delimiter: dialect.delimiter, decimal: dialect.decimal, header: dialect.header !== undefined, unitsRow: dialect.units !== undefined, preambleLines: dialect.preambleLines,
-        timeColumn: timeIndex >= 0 ? columns[timeIndex]!.name : null, ignoredTimeColumn: ignoredTime >= 0 ? columns[ignoredTime]!.name : null,
-        timeUnitS: timeIndex >= 0 && !dateTime ? timeFactor : null, dateTimeStamps: dateTime && timeIndex >= 0, rateFrom: opts.sampleRateHz !== undefined ? "given" : "time column",
+        delimiter: dialect.delimiter,
+        decimal: dialect.decimal,
+        header: dialect.header !== undefined,
+        unitsRow: dialect.units !== undefined,
+        preambleLines: dialect.preambleLines,
+        timeColumn: timeIndex >= 0 ? columns[timeIndex]!.name : null,
+        ignoredTimeColumn: ignoredTime >= 0 ? columns[ignoredTime]!.name : null,
+        timeUnitS: timeIndex >= 0 && !dateTime ? timeFactor : null,
+        dateTimeStamps: dateTime && timeIndex >= 0,
+        rateFrom: opts.sampleRateHz !== undefined ? "given" : "time column",
         trailingEmptyColumn: dialect.trailingEmpty === true,
       },
     },
@@ -491,10 +689,22 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
       const w = worker;
       worker = undefined;
       const job: CsvBodyJob = {
-        file, columns: dialect.columns, columnNames: columns.map((c) => c.name), delimiter: dialect.delimiter, decimal: dialect.decimal, timeIndex,
-        selectColumns: select.map((s) => channelCols[s]!.index), bodyStart: dialect.bodyStart, bodyLine: dialect.bodyLine, timeFactor, rateOverride: opts.sampleRateHz,
-        timeDateTime: baseDays !== undefined ? { baseDays } : undefined, ignoreColumns: ignoredTime >= 0 && dateTime ? [ignoredTime] : undefined,
-        trailingEmpty: dialect.trailingEmpty, timeColumn: timeCol, serialDays: opts.timeUnit === "serial-days" && timeIndex >= 0 && !dateTime,
+        file,
+        columns: dialect.columns,
+        columnNames: columns.map((c) => c.name),
+        delimiter: dialect.delimiter,
+        decimal: dialect.decimal,
+        timeIndex,
+        selectColumns: select.map((s) => channelCols[s]!.index),
+        bodyStart: dialect.bodyStart,
+        bodyLine: dialect.bodyLine,
+        timeFactor,
+        rateOverride: opts.sampleRateHz,
+        timeDateTime: baseDays !== undefined ? { baseDays } : undefined,
+        ignoreColumns: ignoredTime >= 0 && dateTime ? [ignoredTime] : undefined,
+        trailingEmpty: dialect.trailingEmpty,
+        timeColumn: timeCol,
+        serialDays: opts.timeUnit === "serial-days" && timeIndex >= 0 && !dateTime,
       };
       return readBody(job, sink, onProgress, w);
     },
@@ -506,14 +716,23 @@ async function openSniffed(file: string, size: number, opts: CsvReadOptions, wor
   };
 }
 
-async function readBody(job: CsvBodyJob, sink: BlockSink, onProgress: ((bytes: number) => void) | undefined, bodyWorker: BodyWorker | undefined): Promise<ReadSummary> {
+async function readBody(
+  job: CsvBodyJob,
+  sink: BlockSink,
+  onProgress: ((bytes: number) => void) | undefined,
+  bodyWorker: BodyWorker | undefined,
+): Promise<ReadSummary> {
   if (!bodyWorker) {
     const pool = columnPool();
-    return csvBodyPass(job, (piece, bytes) => {
-      if (piece.rows > 0) sink(piece.channels, piece.rows);
-      pool.give(pieceBuffers(piece));
-      onProgress?.(bytes);
-    }, pool);
+    return csvBodyPass(
+      job,
+      (piece, bytes) => {
+        if (piece.rows > 0) sink(piece.channels, piece.rows);
+        pool.give(pieceBuffers(piece));
+        onProgress?.(bytes);
+      },
+      pool,
+    );
   }
   const worker = bodyWorker.thread;
   worker.ref();

@@ -94,7 +94,14 @@ export function scanDateTime(buf: Uint8Array, p: number, baseDays: number, out: 
     const mo = digitsAt(buf, p + 5, 2);
     const d = digitsAt(buf, p + 8, 2);
     const sep = buf[p + 10];
-    if (mo < 1 || mo > 12 || d < 1 || d > DAYS_IN_MONTH[mo - 1]! || (mo === 2 && d === 29 && !(y % 4 === 0 && (y % 100 !== 0 || y % 400 === 0)))) return;
+    if (
+      mo < 1 ||
+      mo > 12 ||
+      d < 1 ||
+      d > DAYS_IN_MONTH[mo - 1]! ||
+      (mo === 2 && d === 29 && !(y % 4 === 0 && (y % 100 !== 0 || y % 400 === 0)))
+    )
+      return;
     if (sep !== 84 /* T */ && sep !== 32 && sep !== 116 /* t */) return;
     const h = digitsAt(buf, p + 11, 2);
     const mi = buf[p + 13] === 58 ? digitsAt(buf, p + 14, 2) : -1;

@@ -16,15 +16,30 @@ export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): P
     magic = b.subarray(0, bytesRead);
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, expected: "a readable file", received: code === "EISDIR" ? "a folder" : String(code) });
+    throw new InputError("FILE_UNREADABLE", {
+      file,
+      expected: "a readable file",
+      received: code === "EISDIR" ? "a folder" : String(code),
+    });
   } finally {
     await fh.close();
   }
   const sig = magic.toString("latin1");
   let source: TimeHistorySource;
   if (sig === "RIFF" || sig === "RIFX" || /\.wave?$/i.test(file)) {
-    if (csv.timeColumn !== undefined || csv.delimiter !== undefined || csv.decimal !== undefined || csv.sampleRateHz !== undefined) {
-      throw new InputError("OPTION_NOT_FOR_WAV", { file, expected: "no CSV options (`csv.sampleRateHz`, `csv.timeColumn`, `csv.delimiter`, `csv.decimal`) for a WAV file", received: "CSV options", hint: "a WAV file states its own sample rate" });
+    if (
+      csv.timeColumn !== undefined ||
+      csv.delimiter !== undefined ||
+      csv.decimal !== undefined ||
+      csv.sampleRateHz !== undefined
+    ) {
+      throw new InputError("OPTION_NOT_FOR_WAV", {
+        file,
+        expected:
+          "no CSV options (`csv.sampleRateHz`, `csv.timeColumn`, `csv.delimiter`, `csv.decimal`) for a WAV file",
+        received: "CSV options",
+        hint: "a WAV file states its own sample rate",
+      });
     }
     source = await openWavTimeHistory(file);
   } else source = await openCsvTimeHistory(file, csv);
@@ -32,7 +47,9 @@ export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): P
   if (source.info.channels.length > MAX_CHANNELS) {
     await source.close?.();
     throw new InputError("TOO_MANY_CHANNELS", {
-      file, expected: `at most ${MAX_CHANNELS} channels (${source.info.format === "csv" ? "columns" : "channels in the format chunk"})`, received: `${source.info.channels.length}`,
+      file,
+      expected: `at most ${MAX_CHANNELS} channels (${source.info.format === "csv" ? "columns" : "channels in the format chunk"})`,
+      received: `${source.info.channels.length}`,
     });
   }
   return source;

@@ -49,7 +49,13 @@ function checkBracketDepth(text: string, file: string, yaml: boolean, code: Erro
       const nl = text.indexOf("\n", i);
       i = nl < 0 ? text.length : nl;
     } else if (c === "[" || c === "{") {
-      if (++depth > maxDepth) throw new InputError(code, { file, ...place(text, i), expected: `nesting at most ${maxDepth} deep`, received: `more than ${maxDepth} levels` });
+      if (++depth > maxDepth)
+        throw new InputError(code, {
+          file,
+          ...place(text, i),
+          expected: `nesting at most ${maxDepth} deep`,
+          received: `more than ${maxDepth} levels`,
+        });
     } else if (c === "]" || c === "}") depth = Math.max(0, depth - 1);
   }
 }
@@ -60,7 +66,12 @@ function checkDocumentDepth(doc: unknown, file: string, code: ErrorCode, maxDept
   while (stack.length > 0) {
     const [v, d] = stack.pop()!;
     if (v === null || typeof v !== "object") continue;
-    if (d >= maxDepth) throw new InputError(code, { file, expected: `nesting at most ${maxDepth} deep`, received: `more than ${maxDepth} levels` });
+    if (d >= maxDepth)
+      throw new InputError(code, {
+        file,
+        expected: `nesting at most ${maxDepth} deep`,
+        received: `more than ${maxDepth} levels`,
+      });
     for (const x of Object.values(v as object)) stack.push([x, d + 1]);
   }
 }
@@ -72,14 +83,19 @@ function parseJson(text: string, file: string, code: ErrorCode): unknown {
     const msg = (e as Error).message;
     // V8 gives either "at position N" or a quoted snippet around an unexpected token.
     let at = /position (\d+)/.exec(msg) ? Number(/position (\d+)/.exec(msg)![1]) : -1;
-    const tok = /Unexpected token '(.)', (?:\.\.\.)?"([^]*?)"(?:\.\.\.)? is not valid JSON/.exec(msg);
+    const tok = /Unexpected token '(.)', (?:\.\.\.)?"([\s\S]*?)"(?:\.\.\.)? is not valid JSON/.exec(msg);
     if (at < 0 && tok) {
       const i = text.indexOf(tok[2]!);
       if (i >= 0) at = i + tok[2]!.indexOf(tok[1]!);
     }
     if (at < 0 && /Unexpected end/.test(msg)) at = text.length;
     const where = at >= 0 ? place(text, at) : { line: undefined, column: undefined };
-    throw new InputError(code, { file, ...where, expected: "valid JSON", received: msg.replace(/ in JSON at position \d+.*$/, "").replace(/, (\.\.\.)?"[^]*$/, "") });
+    throw new InputError(code, {
+      file,
+      ...where,
+      expected: "valid JSON",
+      received: msg.replace(/ in JSON at position \d+.*$/, "").replace(/, (\.\.\.)?"[\s\S]*$/, ""),
+    });
   }
 }
 
@@ -88,24 +104,41 @@ function parseYaml(text: string, file: string, codes: DocumentCodes): unknown {
   const first = doc.errors[0];
   if (first) {
     const pos = first instanceof YAMLParseError ? first.linePos?.[0] : undefined;
-    throw new InputError(codes.syntax, { file, line: pos?.line, column: pos?.col, expected: "valid YAML", received: first.message.split("\n")[0] });
+    throw new InputError(codes.syntax, {
+      file,
+      line: pos?.line,
+      column: pos?.col,
+      expected: "valid YAML",
+      received: first.message.split("\n")[0],
+    });
   }
   const tagWarning = doc.warnings.find((w) => w.code === "TAG_RESOLVE_FAILED");
   if (tagWarning) {
     const pos = tagWarning.linePos?.[0];
     throw new InputError(codes.syntax, {
-      file, line: pos?.line, column: pos?.col, expected: "plain YAML values (no custom tags)", received: quotedShort(tagWarning.message.split("\n")[0]!.replace(/ at line \d+, column \d+:?$/, "")),
+      file,
+      line: pos?.line,
+      column: pos?.col,
+      expected: "plain YAML values (no custom tags)",
+      received: quotedShort(tagWarning.message.split("\n")[0]!.replace(/ at line \d+, column \d+:?$/, "")),
     });
   }
   let bad: { format: string; at: number } | undefined;
   visit(doc, {
     Scalar(_key, node) {
-      if (isScalar(node) && (node.format === "HEX" || node.format === "OCT" || node.format === "BIN") && bad === undefined) bad = { format: node.format, at: node.range?.[0] ?? 0 };
+      if (
+        isScalar(node) &&
+        (node.format === "HEX" || node.format === "OCT" || node.format === "BIN") &&
+        bad === undefined
+      )
+        bad = { format: node.format, at: node.range?.[0] ?? 0 };
     },
   });
   if (bad) {
     throw new InputError(codes.invalid, {
-      file, ...place(text, bad.at), expected: "a decimal number",
+      file,
+      ...place(text, bad.at),
+      expected: "a decimal number",
       received: `a ${bad.format === "HEX" ? "hexadecimal" : bad.format === "OCT" ? "octal" : "binary"} number ${quotedShort(text.slice(bad.at).split(/[\s,\]}]/)[0]!)}`,
     });
   }
@@ -117,7 +150,13 @@ function parseYaml(text: string, file: string, codes: DocumentCodes): unknown {
 }
 
 /** A settings file's text as plain data, by the rules above: YAML, or JSON when `json` (default: a .json name). */
-export function strictDocument(text: string, file: string, codes: DocumentCodes, json = /\.json$/i.test(file), maxDepth = MAX_DOCUMENT_DEPTH): unknown {
+export function strictDocument(
+  text: string,
+  file: string,
+  codes: DocumentCodes,
+  json = /\.json$/i.test(file),
+  maxDepth = MAX_DOCUMENT_DEPTH,
+): unknown {
   checkBracketDepth(text, file, !json, codes.tooDeep, maxDepth);
   const doc = json ? parseJson(text, file, codes.syntax) : parseYaml(text, file, codes);
   checkDocumentDepth(doc, file, codes.tooDeep, maxDepth);
@@ -125,6 +164,12 @@ export function strictDocument(text: string, file: string, codes: DocumentCodes,
 }
 
 /** A --meta or mix file: strictDocument with one code for syntax and another for a value or nesting it refuses. */
-export function plainDocument(body: string, file: string, code: ErrorCode, json = /\.json$/i.test(file), invalid: ErrorCode = code): unknown {
+export function plainDocument(
+  body: string,
+  file: string,
+  code: ErrorCode,
+  json = /\.json$/i.test(file),
+  invalid: ErrorCode = code,
+): unknown {
   return strictDocument(body, file, { syntax: code, invalid, tooDeep: invalid }, json);
 }

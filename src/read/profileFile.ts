@@ -21,42 +21,71 @@ export const MAX_PROFILE_BYTES = 1 << 20;
 
 /** The text of a profile file: a regular file (never a FIFO or device), at most MAX_PROFILE_BYTES. */
 export async function readProfileText(file: string): Promise<string> {
-  return (await readSmallText(file, { what: "a readable profile file", maxBytes: MAX_PROFILE_BYTES, tooLarge: "PROFILE_TOO_LARGE" })).text;
+  return (
+    await readSmallText(file, {
+      what: "a readable profile file",
+      maxBytes: MAX_PROFILE_BYTES,
+      tooLarge: "PROFILE_TOO_LARGE",
+    })
+  ).text;
 }
 
-const positive = (what: string) => z.number({ error: `${what} (a number)` }).refine((v) => v > 0 && Number.isFinite(v), { message: `${what} above 0` });
+const positive = (what: string) =>
+  z.number({ error: `${what} (a number)` }).refine((v) => v > 0 && Number.isFinite(v), { message: `${what} above 0` });
 
 const PointSchema = z.strictObject({
   hz: positive("a frequency in Hz"),
   level: positive("a level").optional(),
-  slopeDbPerOctave: z.number({ error: "a slope in dB/octave (a number)" }).refine(Number.isFinite, { message: "a finite slope" }).optional(),
+  slopeDbPerOctave: z
+    .number({ error: "a slope in dB/octave (a number)" })
+    .refine(Number.isFinite, { message: "a finite slope" })
+    .optional(),
 });
 
 const BandSchema = z.strictObject({
   fromHz: positive("a frequency in Hz"),
   toHz: positive("a frequency in Hz"),
-  upperDb: z.number({ error: "allowed excess in dB (a number >= 0)" }).min(0, { message: "allowed excess in dB >= 0 (both limits are positive numbers)" }),
-  lowerDb: z.number({ error: "allowed shortfall in dB (a number >= 0)" }).min(0, { message: "allowed shortfall in dB >= 0 (both limits are positive numbers)" }),
+  upperDb: z
+    .number({ error: "allowed excess in dB (a number >= 0)" })
+    .min(0, { message: "allowed excess in dB >= 0 (both limits are positive numbers)" }),
+  lowerDb: z
+    .number({ error: "allowed shortfall in dB (a number >= 0)" })
+    .min(0, { message: "allowed shortfall in dB >= 0 (both limits are positive numbers)" }),
 });
 
 /**
  * Where a derived profile came from (`psdgate derive` writes it): the tool, the inputs by SHA-256 and every
  * parameter. Optional; `profile` shows it and every `check` report names it.
  */
-const ProvenanceSchema = z.strictObject({
-  derivedBy: z.string({ error: "the tool that derived the profile (text)" }).min(1),
-  created: z.string({ error: "a date-time (text)" }).optional(),
-  method: z.string({ error: "the method in words (text)" }).optional(),
-  inputs: z.array(z.strictObject({
-    file: z.string({ error: "an input file name (text)" }).min(1),
-    sha256: z.string({ error: "a SHA-256 (64 hex digits)" }).regex(/^[0-9a-f]{64}$/, { message: "a SHA-256 (64 lower-case hex digits)" }),
-    role: z.string({ error: "the input's role (text)" }).optional(),
-    group: z.string({ error: "a group name (text)" }).optional(),
-    serviceHours: z.number({ error: "service hours (a number)" }).optional(),
-    durationS: z.number({ error: "a duration in s (a number)" }).optional(),
-  }, { error: "an input: file and sha256" }), { error: "a list of inputs" }).min(1, { message: "at least one input" }),
-  parameters: z.record(z.string(), z.union([z.number(), z.string(), z.boolean(), z.null()]), { error: "a mapping of parameters (numbers, text, true/false)" }),
-}, { error: "a provenance mapping: derivedBy, inputs, parameters" });
+const ProvenanceSchema = z.strictObject(
+  {
+    derivedBy: z.string({ error: "the tool that derived the profile (text)" }).min(1),
+    created: z.string({ error: "a date-time (text)" }).optional(),
+    method: z.string({ error: "the method in words (text)" }).optional(),
+    inputs: z
+      .array(
+        z.strictObject(
+          {
+            file: z.string({ error: "an input file name (text)" }).min(1),
+            sha256: z
+              .string({ error: "a SHA-256 (64 hex digits)" })
+              .regex(/^[0-9a-f]{64}$/, { message: "a SHA-256 (64 lower-case hex digits)" }),
+            role: z.string({ error: "the input's role (text)" }).optional(),
+            group: z.string({ error: "a group name (text)" }).optional(),
+            serviceHours: z.number({ error: "service hours (a number)" }).optional(),
+            durationS: z.number({ error: "a duration in s (a number)" }).optional(),
+          },
+          { error: "an input: file and sha256" },
+        ),
+        { error: "a list of inputs" },
+      )
+      .min(1, { message: "at least one input" }),
+    parameters: z.record(z.string(), z.union([z.number(), z.string(), z.boolean(), z.null()]), {
+      error: "a mapping of parameters (numbers, text, true/false)",
+    }),
+  },
+  { error: "a provenance mapping: derivedBy, inputs, parameters" },
+);
 
 export type ProfileProvenance = z.infer<typeof ProvenanceSchema>;
 
@@ -65,27 +94,55 @@ export type ProfileProvenance = z.infer<typeof ProvenanceSchema>;
  * acceleration in the profile's unit root (g or m/s2), and its tolerance: ±toleranceDb on the peak, or
  * lowerDb/upperDb apart; toleranceHz is how far the tone's frequency may lie from hz.
  */
-const ToneSchema = z.strictObject({
-  hz: positive("a tone frequency in Hz"),
-  peak: positive("a peak acceleration in the profile's unit (g or m/s2)"),
-  toleranceDb: positive("a tolerance on the peak in dB").optional(),
-  upperDb: z.number({ error: "allowed excess of the peak in dB (a number >= 0)" }).min(0, { message: "allowed excess in dB >= 0" }).optional(),
-  lowerDb: z.number({ error: "allowed shortfall of the peak in dB (a number >= 0)" }).min(0, { message: "allowed shortfall in dB >= 0" }).optional(),
-  toleranceHz: positive("how far the tone may lie from its frequency, Hz").optional(),
-  name: z.string({ error: "a name for the tone (text)" }).min(1).optional(),
-}, { error: "a tone: hz, peak and a tolerance" });
+const ToneSchema = z.strictObject(
+  {
+    hz: positive("a tone frequency in Hz"),
+    peak: positive("a peak acceleration in the profile's unit (g or m/s2)"),
+    toleranceDb: positive("a tolerance on the peak in dB").optional(),
+    upperDb: z
+      .number({ error: "allowed excess of the peak in dB (a number >= 0)" })
+      .min(0, { message: "allowed excess in dB >= 0" })
+      .optional(),
+    lowerDb: z
+      .number({ error: "allowed shortfall of the peak in dB (a number >= 0)" })
+      .min(0, { message: "allowed shortfall in dB >= 0" })
+      .optional(),
+    toleranceHz: positive("how far the tone may lie from its frequency, Hz").optional(),
+    name: z.string({ error: "a name for the tone (text)" }).min(1).optional(),
+  },
+  { error: "a tone: hz, peak and a tolerance" },
+);
 
 const ProfileSchema = z.strictObject({
   title: z.string({ error: "a title (text)" }).min(1, { message: "a non-empty title" }),
   units: z.enum(["g2/Hz", "(m/s2)2/Hz"], { error: 'units "g2/Hz" or "(m/s2)2/Hz"' }),
   points: z.array(PointSchema, { error: "a list of breakpoints" }).min(2, { message: "at least 2 breakpoints" }),
-  tolerance: z.strictObject({
-    bands: z.array(BandSchema, { error: "a list of tolerance bands" }).min(1, { message: "at least one tolerance band" }),
-    rmsDb: z.number({ error: "an RMS tolerance in dB (a number > 0)" }).positive({ message: "an RMS tolerance in dB above 0" }).optional(),
-    rmsPercent: z.number({ error: "an RMS tolerance in percent (a number)" }).positive().max(99, { message: "an RMS tolerance below 100 %" }).optional(),
-    allowedOutsidePercent: z.number({ error: "a share of the lines in percent (a number from 0 to 50)" }).min(0, { message: "a share from 0 to 50 %" }).max(50, { message: "a share from 0 to 50 %" }).optional(),
-    outerLimits: z.array(BandSchema, { error: "a list of outer-limit bands" }).min(1, { message: "at least one outer-limit band" }).optional(),
-  }, { error: "a tolerance object with bands" }),
+  tolerance: z.strictObject(
+    {
+      bands: z
+        .array(BandSchema, { error: "a list of tolerance bands" })
+        .min(1, { message: "at least one tolerance band" }),
+      rmsDb: z
+        .number({ error: "an RMS tolerance in dB (a number > 0)" })
+        .positive({ message: "an RMS tolerance in dB above 0" })
+        .optional(),
+      rmsPercent: z
+        .number({ error: "an RMS tolerance in percent (a number)" })
+        .positive()
+        .max(99, { message: "an RMS tolerance below 100 %" })
+        .optional(),
+      allowedOutsidePercent: z
+        .number({ error: "a share of the lines in percent (a number from 0 to 50)" })
+        .min(0, { message: "a share from 0 to 50 %" })
+        .max(50, { message: "a share from 0 to 50 %" })
+        .optional(),
+      outerLimits: z
+        .array(BandSchema, { error: "a list of outer-limit bands" })
+        .min(1, { message: "at least one outer-limit band" })
+        .optional(),
+    },
+    { error: "a tolerance object with bands" },
+  ),
   minDof: positive("a minimum number of degrees of freedom").optional(),
   resolutionHz: positive("an analysis resolution in Hz").optional(),
   durationS: positive("a test duration in s").optional(),
@@ -94,16 +151,45 @@ const ProfileSchema = z.strictObject({
    * The procedure's own power requirement for a pass (what a pass must have been able to see), or "none";
    * absent: psdgate's default (compare/decisionRule.ts DEFAULT_POWER).
    */
-  power: z.union([
-    z.literal("none"),
-    z.object({
-      departureDb: positive("a departure beyond the band in dB").optional(),
-      departurePercent: z.number({ error: "a share of the lines in percent (a number above 0, at most 100)" }).positive({ message: "a share above 0 %" }).max(100, { message: "a share of at most 100 %" }).optional(),
-      widthLines: z.number({ error: "a width in neighbouring lines (a whole number from 1 to 64)" }).int({ message: "a whole number of lines" }).min(1, { message: "at least 1 line" }).max(64, { message: "at most 64 lines" }).optional(),
-      rmsBeyondDb: positive("an RMS departure beyond its tolerance in dB").optional(),
-      probabilityPercent: z.number({ error: "a probability in percent (a number from 50 to 99.9)" }).min(50, { message: "a probability from 50 %" }).max(99.9, { message: "a probability up to 99.9 %" }).optional(),
-    }, { error: 'a power requirement (departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent) or "none"' }).strict(),
-  ], { error: 'a power requirement (departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent) or "none"' }).optional(),
+  power: z
+    .union(
+      [
+        z.literal("none"),
+        z
+          .object(
+            {
+              departureDb: positive("a departure beyond the band in dB").optional(),
+              departurePercent: z
+                .number({ error: "a share of the lines in percent (a number above 0, at most 100)" })
+                .positive({ message: "a share above 0 %" })
+                .max(100, { message: "a share of at most 100 %" })
+                .optional(),
+              widthLines: z
+                .number({ error: "a width in neighbouring lines (a whole number from 1 to 64)" })
+                .int({ message: "a whole number of lines" })
+                .min(1, { message: "at least 1 line" })
+                .max(64, { message: "at most 64 lines" })
+                .optional(),
+              rmsBeyondDb: positive("an RMS departure beyond its tolerance in dB").optional(),
+              probabilityPercent: z
+                .number({ error: "a probability in percent (a number from 50 to 99.9)" })
+                .min(50, { message: "a probability from 50 %" })
+                .max(99.9, { message: "a probability up to 99.9 %" })
+                .optional(),
+            },
+            {
+              error:
+                'a power requirement (departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent) or "none"',
+            },
+          )
+          .strict(),
+      ],
+      {
+        error:
+          'a power requirement (departureDb, departurePercent, widthLines, rmsBeyondDb, probabilityPercent) or "none"',
+      },
+    )
+    .optional(),
   description: z.string().optional(),
   provenance: ProvenanceSchema.optional(),
 });
@@ -137,7 +223,9 @@ export function defaultToneToleranceHz(hz: number): number {
 }
 
 /** A breakpoint as the file gives it: a level, or (after the first) a slope in dB/octave from the previous one. */
-export type ProfilePoint = { hz: number; level: number; slopeDbPerOctave?: undefined } | { hz: number; level?: undefined; slopeDbPerOctave: number };
+export type ProfilePoint =
+  | { hz: number; level: number; slopeDbPerOctave?: undefined }
+  | { hz: number; level?: undefined; slopeDbPerOctave: number };
 
 /** What a profile file states, checked: everything of a TestProfile but the log-log arithmetic (compare/testProfile.ts). */
 export interface ProfileSpec {
@@ -167,7 +255,16 @@ export interface ProfileSpec {
    * The profile's own power requirement: "none", or the parts it states (the rest from psdgate's default);
    * absent: psdgate's default applies.
    */
-  power?: "none" | { departureDb?: number | undefined; departurePercent?: number | undefined; widthLines?: number | undefined; rmsBeyondDb?: number | undefined; probabilityPercent?: number | undefined } | undefined;
+  power?:
+    | "none"
+    | {
+        departureDb?: number | undefined;
+        departurePercent?: number | undefined;
+        widthLines?: number | undefined;
+        rmsBeyondDb?: number | undefined;
+        probabilityPercent?: number | undefined;
+      }
+    | undefined;
 }
 
 /** A PROFILE_INVALID error naming the key path (also for compare/testProfile.ts's arithmetic checks). */
@@ -182,10 +279,18 @@ function profileSpec(doc: ProfileDocument, file: string, sha256: string, default
   for (let i = 0; i < pts.length; i++) {
     const p = pts[i]!;
     const at = `points[${i}]`;
-    if (p.level !== undefined && p.slopeDbPerOctave !== undefined) profileInvalid(file, at, "either level or slopeDbPerOctave, not both", "both");
-    if (i > 0 && !(p.hz > pts[i - 1]!.hz)) profileInvalid(file, `${at}.hz`, `a frequency above the previous point's ${pts[i - 1]!.hz} Hz`, String(p.hz));
+    if (p.level !== undefined && p.slopeDbPerOctave !== undefined)
+      profileInvalid(file, at, "either level or slopeDbPerOctave, not both", "both");
+    if (i > 0 && !(p.hz > pts[i - 1]!.hz))
+      profileInvalid(file, `${at}.hz`, `a frequency above the previous point's ${pts[i - 1]!.hz} Hz`, String(p.hz));
     if (i === 0) {
-      if (p.level === undefined) profileInvalid(file, `${at}.level`, "a level on the first point (a slope needs a level to start from)", p.slopeDbPerOctave !== undefined ? "a slope only" : "nothing");
+      if (p.level === undefined)
+        profileInvalid(
+          file,
+          `${at}.level`,
+          "a level on the first point (a slope needs a level to start from)",
+          p.slopeDbPerOctave !== undefined ? "a slope only" : "nothing",
+        );
       points.push({ hz: p.hz, level: p.level! });
     } else if (p.level !== undefined) points.push({ hz: p.hz, level: p.level });
     else if (p.slopeDbPerOctave !== undefined) points.push({ hz: p.hz, slopeDbPerOctave: p.slopeDbPerOctave });
@@ -195,33 +300,62 @@ function profileSpec(doc: ProfileDocument, file: string, sha256: string, default
   const fN = points[points.length - 1]!.hz;
   const { bands, outerBands } = toleranceBands(doc, f0, fN, file);
   const t = doc.tolerance;
-  if (t.rmsDb !== undefined && t.rmsPercent !== undefined) profileInvalid(file, "tolerance", "either rmsDb or rmsPercent, not both", "both");
+  if (t.rmsDb !== undefined && t.rmsPercent !== undefined)
+    profileInvalid(file, "tolerance", "either rmsDb or rmsPercent, not both", "both");
   const rmsToleranceDb =
-    t.rmsDb !== undefined ? { upper: t.rmsDb, lower: t.rmsDb }
-      : t.rmsPercent !== undefined ? { upper: 20 * Math.log10(1 + t.rmsPercent / 100), lower: -20 * Math.log10(1 - t.rmsPercent / 100) }
+    t.rmsDb !== undefined
+      ? { upper: t.rmsDb, lower: t.rmsDb }
+      : t.rmsPercent !== undefined
+        ? { upper: 20 * Math.log10(1 + t.rmsPercent / 100), lower: -20 * Math.log10(1 - t.rmsPercent / 100) }
         : undefined;
   return {
-    title: doc.title, file, sha256, units: doc.units === "g2/Hz" ? "g" : "m/s2", points, tones: profileTones(doc, f0, fN, file), bands,
-    rmsToleranceDb, minDof: doc.minDof, resolutionHz: doc.resolutionHz, durationS: doc.durationS,
-    allowedOutsidePercent: t.allowedOutsidePercent, outerBands, defaultsApplied: defaultsApplied ?? [],
+    title: doc.title,
+    file,
+    sha256,
+    units: doc.units === "g2/Hz" ? "g" : "m/s2",
+    points,
+    tones: profileTones(doc, f0, fN, file),
+    bands,
+    rmsToleranceDb,
+    minDof: doc.minDof,
+    resolutionHz: doc.resolutionHz,
+    durationS: doc.durationS,
+    allowedOutsidePercent: t.allowedOutsidePercent,
+    outerBands,
+    defaultsApplied: defaultsApplied ?? [],
     ...(doc.provenance !== undefined ? { provenance: doc.provenance } : {}),
     ...(doc.power !== undefined ? { power: doc.power } : {}),
   };
 }
 
 /** The tolerance bands and outer limits, each covering the range; outer limits at least as wide as the band everywhere. */
-function toleranceBands(doc: ProfileDocument, f0: number, fN: number, file: string): { bands: ToleranceBand[]; outerBands: ToleranceBand[] | undefined } {
+function toleranceBands(
+  doc: ProfileDocument,
+  f0: number,
+  fN: number,
+  file: string,
+): { bands: ToleranceBand[]; outerBands: ToleranceBand[] | undefined } {
   const bands = coveringBands(doc.tolerance.bands, "tolerance.bands", f0, fN, file);
-  const outerBands = doc.tolerance.outerLimits ? coveringBands(doc.tolerance.outerLimits, "tolerance.outerLimits", f0, fN, file) : undefined;
+  const outerBands = doc.tolerance.outerLimits
+    ? coveringBands(doc.tolerance.outerLimits, "tolerance.outerLimits", f0, fN, file)
+    : undefined;
   if (outerBands) {
     // Outer limits must lie on or outside the band at every frequency: check at every band edge and midpoint.
-    const probes = [...bands.flatMap((b) => [b.fromHz, b.toHz, (b.fromHz + b.toHz) / 2]), ...outerBands.flatMap((b) => [b.fromHz, b.toHz])];
+    const probes = [
+      ...bands.flatMap((b) => [b.fromHz, b.toHz, (b.fromHz + b.toHz) / 2]),
+      ...outerBands.flatMap((b) => [b.fromHz, b.toHz]),
+    ];
     for (const f of probes) {
       const inner = bands.find((b) => f >= b.fromHz && f <= b.toHz);
       const o = outerBands.findIndex((b) => f >= b.fromHz && f <= b.toHz);
       if (!inner || o < 0) continue;
       if (outerBands[o]!.upperDb < inner.upperDb || outerBands[o]!.lowerDb < inner.lowerDb) {
-        profileInvalid(file, `tolerance.outerLimits[${o}]`, `outer limits at least as wide as the tolerance band at ${f} Hz (+${inner.upperDb}/-${inner.lowerDb} dB)`, `+${outerBands[o]!.upperDb}/-${outerBands[o]!.lowerDb} dB`);
+        profileInvalid(
+          file,
+          `tolerance.outerLimits[${o}]`,
+          `outer limits at least as wide as the tolerance band at ${f} Hz (+${inner.upperDb}/-${inner.lowerDb} dB)`,
+          `+${outerBands[o]!.upperDb}/-${outerBands[o]!.lowerDb} dB`,
+        );
       }
     }
   }
@@ -232,36 +366,82 @@ function toleranceBands(doc: ProfileDocument, f0: number, fN: number, file: stri
 function profileTones(doc: ProfileDocument, f0: number, fN: number, file: string): ProfileTone[] {
   const tones = (doc.tones ?? []).map((t, i): ProfileTone => {
     const at = `tones[${i}]`;
-    if (t.toleranceDb !== undefined && (t.upperDb !== undefined || t.lowerDb !== undefined)) profileInvalid(file, at, "either toleranceDb or upperDb/lowerDb, not both", "both");
-    if (t.toleranceDb === undefined && (t.upperDb === undefined || t.lowerDb === undefined)) profileInvalid(file, at, "a tolerance: toleranceDb, or both upperDb and lowerDb", t.upperDb !== undefined || t.lowerDb !== undefined ? "only one of upperDb/lowerDb" : "none");
-    if (t.hz < f0 || t.hz > fN) profileInvalid(file, `${at}.hz`, `a tone inside the profile's range ${f0}–${fN} Hz`, String(t.hz));
+    if (t.toleranceDb !== undefined && (t.upperDb !== undefined || t.lowerDb !== undefined))
+      profileInvalid(file, at, "either toleranceDb or upperDb/lowerDb, not both", "both");
+    if (t.toleranceDb === undefined && (t.upperDb === undefined || t.lowerDb === undefined))
+      profileInvalid(
+        file,
+        at,
+        "a tolerance: toleranceDb, or both upperDb and lowerDb",
+        t.upperDb !== undefined || t.lowerDb !== undefined ? "only one of upperDb/lowerDb" : "none",
+      );
+    if (t.hz < f0 || t.hz > fN)
+      profileInvalid(file, `${at}.hz`, `a tone inside the profile's range ${f0}–${fN} Hz`, String(t.hz));
     return {
-      label: t.name ?? `tone at ${t.hz} Hz`, hz: t.hz, peak: t.peak,
-      upperDb: t.toleranceDb ?? t.upperDb!, lowerDb: t.toleranceDb ?? t.lowerDb!, toleranceHz: t.toleranceHz ?? defaultToneToleranceHz(t.hz), index: i,
+      label: t.name ?? `tone at ${t.hz} Hz`,
+      hz: t.hz,
+      peak: t.peak,
+      upperDb: t.toleranceDb ?? t.upperDb!,
+      lowerDb: t.toleranceDb ?? t.lowerDb!,
+      toleranceHz: t.toleranceHz ?? defaultToneToleranceHz(t.hz),
+      index: i,
     };
   });
   const sorted = [...tones].sort((a, b) => a.hz - b.hz);
   for (let k = 1; k < sorted.length; k++) {
     const a = sorted[k - 1]!;
     const b = sorted[k]!;
-    if (b.hz - b.toleranceHz <= a.hz + a.toleranceHz) profileInvalid(file, `tones[${b.index}].hz`, `tones whose frequency allowances do not overlap (tones[${a.index}] at ${a.hz} ± ${a.toleranceHz} Hz)`, `${b.hz} ± ${b.toleranceHz} Hz`);
+    if (b.hz - b.toleranceHz <= a.hz + a.toleranceHz)
+      profileInvalid(
+        file,
+        `tones[${b.index}].hz`,
+        `tones whose frequency allowances do not overlap (tones[${a.index}] at ${a.hz} ± ${a.toleranceHz} Hz)`,
+        `${b.hz} ± ${b.toleranceHz} Hz`,
+      );
   }
   return tones;
 }
 
 /** Bands sorted by frequency that cover f0..fN without gaps or overlaps; errors name the key path. */
-function coveringBands(list: ProfileDocument["tolerance"]["bands"], key: string, f0: number, fN: number, file: string): ToleranceBand[] {
+function coveringBands(
+  list: ProfileDocument["tolerance"]["bands"],
+  key: string,
+  f0: number,
+  fN: number,
+  file: string,
+): ToleranceBand[] {
   const bands = [...list].map((b, i) => ({ ...b, i })).sort((a, b) => a.fromHz - b.fromHz);
-  for (const b of bands) if (!(b.toHz > b.fromHz)) profileInvalid(file, `${key}[${b.i}].toHz`, `a frequency above fromHz ${b.fromHz}`, String(b.toHz));
-  if (bands[0]!.fromHz > f0) profileInvalid(file, `${key}[${bands[0]!.i}].fromHz`, `bands that cover the profile from ${f0} Hz`, `a first band from ${bands[0]!.fromHz} Hz`);
+  for (const b of bands)
+    if (!(b.toHz > b.fromHz))
+      profileInvalid(file, `${key}[${b.i}].toHz`, `a frequency above fromHz ${b.fromHz}`, String(b.toHz));
+  if (bands[0]!.fromHz > f0)
+    profileInvalid(
+      file,
+      `${key}[${bands[0]!.i}].fromHz`,
+      `bands that cover the profile from ${f0} Hz`,
+      `a first band from ${bands[0]!.fromHz} Hz`,
+    );
   for (let k = 1; k < bands.length; k++) {
     const a = bands[k - 1]!;
     const b = bands[k]!;
-    if (b.fromHz < a.toHz) profileInvalid(file, `${key}[${b.i}].fromHz`, `bands that do not overlap (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
-    if (b.fromHz > a.toHz) profileInvalid(file, `${key}[${b.i}].fromHz`, `bands without gaps (the previous band ends at ${a.toHz} Hz)`, String(b.fromHz));
+    if (b.fromHz < a.toHz)
+      profileInvalid(
+        file,
+        `${key}[${b.i}].fromHz`,
+        `bands that do not overlap (the previous band ends at ${a.toHz} Hz)`,
+        String(b.fromHz),
+      );
+    if (b.fromHz > a.toHz)
+      profileInvalid(
+        file,
+        `${key}[${b.i}].fromHz`,
+        `bands without gaps (the previous band ends at ${a.toHz} Hz)`,
+        String(b.fromHz),
+      );
   }
   const last = bands[bands.length - 1]!;
-  if (last.toHz < fN) profileInvalid(file, `${key}[${last.i}].toHz`, `bands that cover the profile up to ${fN} Hz`, String(last.toHz));
+  if (last.toHz < fN)
+    profileInvalid(file, `${key}[${last.i}].toHz`, `bands that cover the profile up to ${fN} Hz`, String(last.toHz));
   return bands.map(({ fromHz, toHz, upperDb, lowerDb }) => ({ fromHz, toHz, upperDb, lowerDb }));
 }
 
@@ -307,7 +487,9 @@ export function validateProfileDocument(doc: unknown, file: string): ProfileDocu
       const known = Object.keys(knownKeysAt(issue.path)).join(", ");
       profileInvalid(file, keyPath([...issue.path, key]), `a key psdgate knows here (${known})`, JSON.stringify(key));
     }
-    const expected = issue.message.replace(/^Invalid input: expected /, "").replace(/^Invalid option: expected one of /, "one of ");
+    const expected = issue.message
+      .replace(/^Invalid input: expected /, "")
+      .replace(/^Invalid option: expected one of /, "one of ");
     profileInvalid(file, keyPath(issue.path), expected, describe(valueAt(doc, issue.path)));
   }
   return r.data;
@@ -333,22 +515,42 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
   };
   let units = "g2/Hz";
   let start = 0;
-  if (rows[0] && rows[0].some((f) => Number.isNaN(num(f)))) {
+  if (rows[0]?.some((f) => Number.isNaN(num(f)))) {
     units = csvProfileUnits(rows[0], file);
     start = 1;
   }
   const points = rows.slice(start).map((r, i) => {
-    if (r.length !== 2) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "2 fields: frequency in Hz, level", received: `${r.length}` });
+    if (r.length !== 2)
+      throw new InputError("PROFILE_CSV", {
+        file,
+        line: i + start + 1,
+        expected: "2 fields: frequency in Hz, level",
+        received: `${r.length}`,
+      });
     const [hz, level] = r.map(num);
-    if (!Number.isFinite(hz!) || !Number.isFinite(level!)) throw new InputError("PROFILE_CSV", { file, line: i + start + 1, expected: "two numbers", received: describe(r.join(delimiter)) });
+    if (!Number.isFinite(hz!) || !Number.isFinite(level!))
+      throw new InputError("PROFILE_CSV", {
+        file,
+        line: i + start + 1,
+        expected: "two numbers",
+        received: describe(r.join(delimiter)),
+      });
     return { hz: hz!, level: level! };
   });
   const f0 = points[0]?.hz ?? 1;
   const fN = points[points.length - 1]?.hz ?? 2;
   const d = CSV_PROFILE_DEFAULTS;
   return {
-    doc: { title: file.replace(/^.*\//, ""), units, points, tolerance: { bands: [{ fromHz: f0, toHz: fN, upperDb: d.bandDb, lowerDb: d.bandDb }], rmsDb: d.rmsDb } },
-    defaults: [`tolerance band ±${d.bandDb} dB and RMS tolerance ±${d.rmsDb} dB (a CSV profile has no place for them; use a JSON or YAML profile to set them)`, "no minimum DOF, resolution or duration"],
+    doc: {
+      title: file.replace(/^.*\//, ""),
+      units,
+      points,
+      tolerance: { bands: [{ fromHz: f0, toHz: fN, upperDb: d.bandDb, lowerDb: d.bandDb }], rmsDb: d.rmsDb },
+    },
+    defaults: [
+      `tolerance band ±${d.bandDb} dB and RMS tolerance ±${d.rmsDb} dB (a CSV profile has no place for them; use a JSON or YAML profile to set them)`,
+      "no minimum DOF, resolution or duration",
+    ],
   };
 }
 
@@ -359,7 +561,14 @@ export function readProfileSpec(text: string, file: string): ProfileSpec {
   let doc: unknown;
   let defaults: string[] = [];
   if (/\.csv$/i.test(file)) ({ doc, defaults } = profileFromCsv(text, file));
-  else doc = strictDocument(text, file, { syntax: "PROFILE_SYNTAX", invalid: "PROFILE_INVALID", tooDeep: "PROFILE_TOO_LARGE" }, !/\.ya?ml$/i.test(file), MAX_PROFILE_DEPTH);
+  else
+    doc = strictDocument(
+      text,
+      file,
+      { syntax: "PROFILE_SYNTAX", invalid: "PROFILE_INVALID", tooDeep: "PROFILE_TOO_LARGE" },
+      !/\.ya?ml$/i.test(file),
+      MAX_PROFILE_DEPTH,
+    );
   return profileSpec(validateProfileDocument(doc, file), file, sha, defaults);
 }
 
@@ -371,7 +580,11 @@ export const MAX_PROFILE_DEPTH = 32;
 /** Size, checked on the text before any parser runs; nesting, tags and number forms are read/plainDocument.ts's rules. */
 function checkProfileSize(text: string, file: string): void {
   if (text.length > MAX_PROFILE_BYTES) {
-    throw new InputError("PROFILE_TOO_LARGE", { file, expected: `a profile of at most ${MAX_PROFILE_BYTES} bytes`, received: `${text.length} characters` });
+    throw new InputError("PROFILE_TOO_LARGE", {
+      file,
+      expected: `a profile of at most ${MAX_PROFILE_BYTES} bytes`,
+      received: `${text.length} characters`,
+    });
   }
 }
 
@@ -392,16 +605,28 @@ export function decimalNumber(field: string): number {
  */
 function csvProfileUnits(header: string[], file: string): string {
   const unitOf = (f: string) => /[[(]\s*([^\])]*(?:\)[^\])]*)?)\s*[\])]\s*$/.exec(f.trim())?.[1]?.trim();
-  const norm = (u: string) => u.replace(/\s+/g, "").replace(/\^/g, "").replace(/²/g, "2").replace(/⁴/g, "4").toLowerCase();
+  const norm = (u: string) =>
+    u.replace(/\s+/g, "").replace(/\^/g, "").replace(/²/g, "2").replace(/⁴/g, "4").toLowerCase();
   const hzUnit = header[0] !== undefined ? unitOf(header[0]) : undefined;
   if (hzUnit !== undefined && norm(hzUnit) !== "hz") {
-    throw new InputError("PROFILE_CSV", { file, line: 1, column: 1, expected: "a frequency column in Hz", received: quotedShort(hzUnit) });
+    throw new InputError("PROFILE_CSV", {
+      file,
+      line: 1,
+      column: 1,
+      expected: "a frequency column in Hz",
+      received: quotedShort(hzUnit),
+    });
   }
   const levelUnit = header[1] !== undefined ? unitOf(header[1]) : undefined;
   if (levelUnit === undefined) return "g2/Hz";
   const u = norm(levelUnit);
   if (u === "g2/hz") return "g2/Hz";
   if (u === "(m/s2)2/hz" || u === "m2/s4/hz" || u === "(m/s/s)2/hz") return "(m/s2)2/Hz";
-  throw new InputError("PROFILE_CSV", { file, line: 1, column: 2, expected: "a level unit g2/Hz or (m/s2)2/Hz", received: quotedShort(levelUnit) });
+  throw new InputError("PROFILE_CSV", {
+    file,
+    line: 1,
+    column: 2,
+    expected: "a level unit g2/Hz or (m/s2)2/Hz",
+    received: quotedShort(levelUnit),
+  });
 }
-

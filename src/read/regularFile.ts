@@ -58,13 +58,22 @@ export function isFsError(e: unknown): e is NodeJS.ErrnoException {
  * folder or socket is FILE_UNREADABLE naming what it is: /dev/zero is a character device, not an
  * empty file.
  */
-export async function openRegularFile(file: string, what: string, option?: string): Promise<{ handle: FileHandle; stats: Stats }> {
+export async function openRegularFile(
+  file: string,
+  what: string,
+  option?: string,
+): Promise<{ handle: FileHandle; stats: Stats }> {
   let handle: FileHandle;
   try {
     handle = await open(file, constants.O_RDONLY | (constants.O_NONBLOCK ?? 0));
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError("FILE_UNREADABLE", { file, option, expected: what, received: code === "ENOENT" ? "no such file" : code === "EISDIR" ? "a folder" : fsReason(e) });
+    throw new InputError("FILE_UNREADABLE", {
+      file,
+      option,
+      expected: what,
+      received: code === "ENOENT" ? "no such file" : code === "EISDIR" ? "a folder" : fsReason(e),
+    });
   }
   let stats: Stats;
   try {
@@ -108,7 +117,13 @@ export interface SmallTextOptions {
  */
 export async function readSmallText(file: string, o: SmallTextOptions): Promise<{ text: string; bytes: Buffer }> {
   const { handle, stats } = await openRegularFile(file, o.what, o.option);
-  const tooLarge = (received: string) => new InputError(o.tooLarge, { file, option: o.option, expected: `${o.what.replace(/^a readable /, "a ")} of at most ${o.maxBytes} bytes`, received });
+  const tooLarge = (received: string) =>
+    new InputError(o.tooLarge, {
+      file,
+      option: o.option,
+      expected: `${o.what.replace(/^a readable /, "a ")} of at most ${o.maxBytes} bytes`,
+      received,
+    });
   try {
     if (stats.size > o.maxBytes) throw tooLarge(`${stats.size} bytes`);
     const buf = Buffer.alloc(Math.min(stats.size, o.maxBytes) + 1);
@@ -134,7 +149,11 @@ export async function readSmallText(file: string, o: SmallTextOptions): Promise<
  * file of any size, and a FIFO, device or folder is FILE_UNREADABLE at once (openRegularFile);
  * a regular file that is swapped or grows while it is read is hashed as read: the caller compares the digest.
  */
-export async function sha256OfFile(file: string, what: string, option?: string): Promise<{ sha256: string; bytes: number }> {
+export async function sha256OfFile(
+  file: string,
+  what: string,
+  option?: string,
+): Promise<{ sha256: string; bytes: number }> {
   const { handle } = await openRegularFile(file, what, option);
   const h = createHash("sha256");
   const buf = Buffer.allocUnsafe(PIECE);

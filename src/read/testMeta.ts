@@ -13,32 +13,53 @@ export const MAX_META_BYTES = 64 << 10;
  * what, on which item, axis, fixture and sensor. Every key is optional text; unknown keys are refused
  * so that a misspelt key is not silently dropped from a signed record.
  */
-const text = (what: string) => z.string({ error: `${what} (text)` }).min(1, { message: `${what} (non-empty text)` }).max(2000, { message: `${what} of at most 2000 characters` });
-const isoDate = z.string({ error: "a calibration date YYYY-MM-DD (text)" }).regex(/^\d{4}-\d{2}-\d{2}$/, { message: "a calibration date YYYY-MM-DD" })
-  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s), { message: "a calendar date YYYY-MM-DD" });
+const text = (what: string) =>
+  z
+    .string({ error: `${what} (text)` })
+    .min(1, { message: `${what} (non-empty text)` })
+    .max(2000, { message: `${what} of at most 2000 characters` });
+const isoDate = z
+  .string({ error: "a calibration date YYYY-MM-DD (text)" })
+  .regex(/^\d{4}-\d{2}-\d{2}$/, { message: "a calibration date YYYY-MM-DD" })
+  .refine(
+    (s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s),
+    { message: "a calendar date YYYY-MM-DD" },
+  );
 
-const MetaSchema = z.strictObject({
-  testId: text("a test id").optional(),
-  workOrder: text("a work-order number").optional(),
-  item: text("the item under test").optional(),
-  serialNumber: text("the item's serial number").optional(),
-  axis: text("the test axis").optional(),
-  fixture: text("the fixture").optional(),
-  sensor: text("the sensor (model)").optional(),
-  sensorSerial: text("the sensor's serial number").optional(),
-  sensorCalibrated: isoDate.optional(),
-  operator: text("the operator").optional(),
-  location: text("the lab or site").optional(),
-  notes: text("notes").optional(),
-}, { error: "a mapping of test-identity keys" });
+const MetaSchema = z.strictObject(
+  {
+    testId: text("a test id").optional(),
+    workOrder: text("a work-order number").optional(),
+    item: text("the item under test").optional(),
+    serialNumber: text("the item's serial number").optional(),
+    axis: text("the test axis").optional(),
+    fixture: text("the fixture").optional(),
+    sensor: text("the sensor (model)").optional(),
+    sensorSerial: text("the sensor's serial number").optional(),
+    sensorCalibrated: isoDate.optional(),
+    operator: text("the operator").optional(),
+    location: text("the lab or site").optional(),
+    notes: text("notes").optional(),
+  },
+  { error: "a mapping of test-identity keys" },
+);
 
 export type TestMeta = z.infer<typeof MetaSchema>;
 
 /** The keys in the order a report shows them, with their labels. */
 export const META_LABELS: readonly (readonly [keyof TestMeta, string])[] = [
-  ["testId", "Test id"], ["workOrder", "Work order"], ["item", "Item under test"], ["serialNumber", "Item serial number"],
-  ["axis", "Axis"], ["fixture", "Fixture"], ["sensor", "Sensor"], ["sensorSerial", "Sensor serial number"],
-  ["sensorCalibrated", "Sensor calibrated on"], ["operator", "Operator"], ["location", "Lab or site"], ["notes", "Notes"],
+  ["testId", "Test id"],
+  ["workOrder", "Work order"],
+  ["item", "Item under test"],
+  ["serialNumber", "Item serial number"],
+  ["axis", "Axis"],
+  ["fixture", "Fixture"],
+  ["sensor", "Sensor"],
+  ["sensorSerial", "Sensor serial number"],
+  ["sensorCalibrated", "Sensor calibrated on"],
+  ["operator", "Operator"],
+  ["location", "Lab or site"],
+  ["notes", "Notes"],
 ];
 
 function keyPath(path: readonly PropertyKey[]): string {
@@ -53,18 +74,36 @@ export function parseTestMeta(doc: unknown, file: string): TestMeta {
   if (!r.success) {
     const issue = r.error.issues[0]!;
     if (issue.code === "unrecognized_keys") {
-      throw new InputError("META_INVALID", { file, keyPath: issue.keys[0]!, expected: `one of the keys ${META_LABELS.map(([k]) => k).join(", ")}`, received: `unknown key "${issue.keys[0]}"` });
+      throw new InputError("META_INVALID", {
+        file,
+        keyPath: issue.keys[0]!,
+        expected: `one of the keys ${META_LABELS.map(([k]) => k).join(", ")}`,
+        received: `unknown key "${issue.keys[0]}"`,
+      });
     }
     let v: unknown = doc;
-    for (const k of issue.path) v = v !== null && typeof v === "object" ? (v as Record<PropertyKey, unknown>)[k] : undefined;
-    const received = v === undefined ? "nothing" : JSON.stringify(v)?.slice(0, 40) ?? String(v);
-    throw new InputError("META_INVALID", { file, keyPath: keyPath(issue.path), expected: issue.message.replace(/^Invalid input: expected /, ""), received });
+    for (const k of issue.path)
+      v = v !== null && typeof v === "object" ? (v as Record<PropertyKey, unknown>)[k] : undefined;
+    const received = v === undefined ? "nothing" : (JSON.stringify(v)?.slice(0, 40) ?? String(v));
+    throw new InputError("META_INVALID", {
+      file,
+      keyPath: keyPath(issue.path),
+      expected: issue.message.replace(/^Invalid input: expected /, ""),
+      received,
+    });
   }
   return r.data;
 }
 
 async function readMetaText(file: string): Promise<string> {
-  return (await readSmallText(file, { what: "a readable test-identity file", option: "meta", maxBytes: MAX_META_BYTES, tooLarge: "META_INVALID" })).text;
+  return (
+    await readSmallText(file, {
+      what: "a readable test-identity file",
+      option: "meta",
+      maxBytes: MAX_META_BYTES,
+      tooLarge: "META_INVALID",
+    })
+  ).text;
 }
 
 /** Read `--meta FILE`: YAML (.yaml, .yml; core schema, no custom tags, aliases capped) or JSON. */
@@ -85,7 +124,11 @@ export function besideMetaNames(recording: string): string[] {
  * `--meta-table` (loadMetaTable), then a meta file beside it (besideMetaNames). So the lab states once
  * what the batch shares, and per recording what differs.
  */
-export async function recordingMeta(recording: string, shared: TestMeta | undefined, row?: MetaTableRow): Promise<{ meta: TestMeta | undefined; from: string | undefined; file: string | undefined }> {
+export async function recordingMeta(
+  recording: string,
+  shared: TestMeta | undefined,
+  row?: MetaTableRow,
+): Promise<{ meta: TestMeta | undefined; from: string | undefined; file: string | undefined }> {
   const { existsSync } = await import("node:fs");
   const file = besideMetaNames(recording).find((f) => existsSync(f));
   const base = row ? { ...shared, ...row.meta } : shared;
@@ -116,7 +159,12 @@ export interface MetaTableRow {
  * A recording is named by its path as given on the command line or by its file name alone.
  */
 export async function loadMetaTable(file: string): Promise<MetaTableRow[]> {
-  const { text: body } = await readSmallText(file, { what: "a readable meta table", option: "metaTable", maxBytes: MAX_META_TABLE_BYTES, tooLarge: "META_INVALID" });
+  const { text: body } = await readSmallText(file, {
+    what: "a readable meta table",
+    option: "metaTable",
+    maxBytes: MAX_META_TABLE_BYTES,
+    tooLarge: "META_INVALID",
+  });
   if (/\.csv$/i.test(file)) return csvMetaTable(body, file);
   let doc: unknown;
   try {
@@ -124,19 +172,33 @@ export async function loadMetaTable(file: string): Promise<MetaTableRow[]> {
     doc = plainDocument(body, file, "META_SYNTAX", false, "META_INVALID");
   } catch (e) {
     if (e instanceof InputError && /unique/i.test(e.message)) {
-      throw new InputError("META_TABLE_DUPLICATE", { file, line: e.details.line, column: e.details.column, expected: "each recording named once", received: "a recording named twice" });
+      throw new InputError("META_TABLE_DUPLICATE", {
+        file,
+        line: e.details.line,
+        column: e.details.column,
+        expected: "each recording named once",
+        received: "a recording named twice",
+      });
     }
     throw e;
   }
   if (doc === null || typeof doc !== "object" || Array.isArray(doc)) {
-    throw new InputError("META_INVALID", { file, expected: "a mapping from each recording's file name to its test identity (testId: ..., ...)", received: Array.isArray(doc) ? "a list" : JSON.stringify(doc)?.slice(0, 40) ?? "nothing" });
+    throw new InputError("META_INVALID", {
+      file,
+      expected: "a mapping from each recording's file name to its test identity (testId: ..., ...)",
+      received: Array.isArray(doc) ? "a list" : (JSON.stringify(doc)?.slice(0, 40) ?? "nothing"),
+    });
   }
   return Object.entries(doc as Record<string, unknown>).map(([name, m]) => {
     let meta: TestMeta;
     try {
       meta = parseTestMeta(m, file);
     } catch (e) {
-      if (e instanceof InputError) throw new InputError(e.code, { ...e.details, keyPath: e.details.keyPath && e.details.keyPath !== "(top level)" ? `${name}.${e.details.keyPath}` : name });
+      if (e instanceof InputError)
+        throw new InputError(e.code, {
+          ...e.details,
+          keyPath: e.details.keyPath && e.details.keyPath !== "(top level)" ? `${name}.${e.details.keyPath}` : name,
+        });
       throw e;
     }
     return { name, meta, from: `${file} key ${name}`, table: file };
@@ -150,7 +212,8 @@ function csvMetaTable(body: string, file: string): MetaTableRow[] {
   let at = 0;
   const text = body.replace(/^\uFEFF/, "");
   Papa.parse<string[]>(text, {
-    header: false, skipEmptyLines: "greedy",
+    header: false,
+    skipEmptyLines: "greedy",
     step: (r) => {
       const end = r.meta.cursor;
       // The row starts after any blank lines skipped before it.
@@ -165,19 +228,45 @@ function csvMetaTable(body: string, file: string): MetaTableRow[] {
     },
   });
   const head = rows.shift();
-  if (!head || head.cells[0]?.trim().toLowerCase() !== "recording") {
-    throw new InputError("META_INVALID", { file, line: head?.line ?? 1, column: 1, expected: `a header starting "recording", then test-identity keys (${keys.join(", ")})`, received: JSON.stringify(head?.cells[0] ?? "")?.slice(0, 40) });
+  if (head?.cells[0]?.trim().toLowerCase() !== "recording") {
+    throw new InputError("META_INVALID", {
+      file,
+      line: head?.line ?? 1,
+      column: 1,
+      expected: `a header starting "recording", then test-identity keys (${keys.join(", ")})`,
+      received: JSON.stringify(head?.cells[0] ?? "")?.slice(0, 40),
+    });
   }
   const columns = head.cells.map((c) => c.trim());
   columns.slice(1).forEach((c, i) => {
     if (!keys.includes(c) || columns.indexOf(c) !== i + 1) {
-      throw new InputError("META_INVALID", { file, line: head.line, column: i + 2, expected: `each of the keys ${keys.join(", ")} at most once`, received: JSON.stringify(c).slice(0, 40) });
+      throw new InputError("META_INVALID", {
+        file,
+        line: head.line,
+        column: i + 2,
+        expected: `each of the keys ${keys.join(", ")} at most once`,
+        received: JSON.stringify(c).slice(0, 40),
+      });
     }
   });
   return rows.map(({ cells, line: l }) => {
     const name = cells[0]?.trim() ?? "";
-    if (name === "") throw new InputError("META_INVALID", { file, line: l, column: 1, expected: "the recording's file name", received: "an empty field" });
-    if (cells.length > columns.length) throw new InputError("META_INVALID", { file, line: l, column: columns.length + 1, expected: `${columns.length} fields as the header has`, received: `${cells.length}` });
+    if (name === "")
+      throw new InputError("META_INVALID", {
+        file,
+        line: l,
+        column: 1,
+        expected: "the recording's file name",
+        received: "an empty field",
+      });
+    if (cells.length > columns.length)
+      throw new InputError("META_INVALID", {
+        file,
+        line: l,
+        column: columns.length + 1,
+        expected: `${columns.length} fields as the header has`,
+        received: `${cells.length}`,
+      });
     const doc: Record<string, string> = {};
     columns.forEach((k, i) => {
       const v = cells[i]?.trim() ?? "";
@@ -187,7 +276,12 @@ function csvMetaTable(body: string, file: string): MetaTableRow[] {
     try {
       meta = parseTestMeta(doc, file);
     } catch (e) {
-      if (e instanceof InputError) throw new InputError(e.code, { ...e.details, line: l, column: columns.indexOf(e.details.keyPath ?? "") + 1 || undefined });
+      if (e instanceof InputError)
+        throw new InputError(e.code, {
+          ...e.details,
+          line: l,
+          column: columns.indexOf(e.details.keyPath ?? "") + 1 || undefined,
+        });
       throw e;
     }
     return { name, meta, from: `${file} line ${l}`, table: file, line: l };
@@ -203,17 +297,31 @@ export function matchMetaTable(rows: MetaTableRow[], recordings: string[], file:
   const out = new Map<string, MetaTableRow>();
   for (const row of rows) {
     const byPath = recordings.filter((f) => f === row.name || resolve(f) === resolve(row.name));
-    const hits = byPath.length > 0 ? byPath : /[\\/]/.test(row.name) ? [] : recordings.filter((f) => basename(f) === row.name);
+    const hits =
+      byPath.length > 0 ? byPath : /[\\/]/.test(row.name) ? [] : recordings.filter((f) => basename(f) === row.name);
     const where = { file, line: row.line, keyPath: row.line === undefined ? row.name : undefined };
     if (hits.length === 0) {
-      throw new InputError("META_TABLE_UNKNOWN", { ...where, expected: "a recording of this batch (its path as given, or its file name)", received: quoted(row.name) });
+      throw new InputError("META_TABLE_UNKNOWN", {
+        ...where,
+        expected: "a recording of this batch (its path as given, or its file name)",
+        received: quoted(row.name),
+      });
     }
     if (hits.length > 1) {
-      throw new InputError("META_TABLE_AMBIGUOUS", { ...where, expected: "a name that fits one recording of the batch", received: `${quoted(row.name)}, which fits ${hits.length}: ${hits.slice(0, 3).join(", ")}`, hint: "name it by its path" });
+      throw new InputError("META_TABLE_AMBIGUOUS", {
+        ...where,
+        expected: "a name that fits one recording of the batch",
+        received: `${quoted(row.name)}, which fits ${hits.length}: ${hits.slice(0, 3).join(", ")}`,
+        hint: "name it by its path",
+      });
     }
     const before = out.get(hits[0]!);
     if (before !== undefined) {
-      throw new InputError("META_TABLE_DUPLICATE", { ...where, expected: "each recording named once", received: `${quoted(hits[0]!)} again (first at ${before.from})` });
+      throw new InputError("META_TABLE_DUPLICATE", {
+        ...where,
+        expected: "each recording named once",
+        received: `${quoted(hits[0]!)} again (first at ${before.from})`,
+      });
     }
     out.set(hits[0]!, row);
   }

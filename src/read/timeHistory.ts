@@ -89,4 +89,3 @@ export interface TimeHistorySource {
   /** Releases what the source holds for a read that will not come (a large CSV's waiting worker thread). */
   close?(): Promise<void>;
 }
-

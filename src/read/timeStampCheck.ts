@@ -84,7 +84,12 @@ export class TimeStampCheck {
   finish(): { t0: number; tLast: number; quantum: number; fractionDigits: number } {
     if (this.frames <= PROBE) this.settle(this.frames);
     const k = this.col.factor;
-    return { t0: this.t0, tLast: this.tLast, quantum: this.quantum(Math.max(Math.abs(this.t0), Math.abs(this.tLast)) / k) * k, fractionDigits: Math.max(0, -this.minPlace) };
+    return {
+      t0: this.t0,
+      tLast: this.tLast,
+      quantum: this.quantum(Math.max(Math.abs(this.t0), Math.abs(this.tLast)) / k) * k,
+      fractionDigits: Math.max(0, -this.minPlace),
+    };
   }
 
   /** Rounding quantum of a printed stamp of magnitude `abs` (file units), from the column's figures. */
@@ -124,22 +129,40 @@ export class TimeStampCheck {
     const step = t - prev;
     if (!(step > 0)) {
       throw new InputError(step === 0 ? "CSV_TIME_DUPLICATE" : "CSV_TIME_DECREASING", {
-        file, line, column: index + 1, field: name, expected: "time stamps that increase", received: step === 0 ? `a repeated time ${t / factor}` : `${t / factor} after ${prev / factor}`,
+        file,
+        line,
+        column: index + 1,
+        field: name,
+        expected: "time stamps that increase",
+        received: step === 0 ? `a repeated time ${t / factor}` : `${t / factor} after ${prev / factor}`,
       });
     }
     if (Math.abs(step - this.dt) > this.tol) {
       throw new InputError("CSV_TIME_IRREGULAR", {
-        file, line, column: index + 1, field: name, expected: `a uniform time step of ${fmt(this.dt / factor)} (within 1 %)`, received: `a step of ${fmt(step / factor)}`,
-        hint: Math.abs(step - this.dt) > 0.5 * this.dt
-          ? "psdgate needs uniformly sampled data; split the record at the gap or resample it"
-          : "psdgate needs uniformly sampled data; the stamps jitter by more than their printed resolution allows: resample the record, or give `csv.timeColumn: false` `csv.sampleRateHz: HZ` if the rate is known",
+        file,
+        line,
+        column: index + 1,
+        field: name,
+        expected: `a uniform time step of ${fmt(this.dt / factor)} (within 1 %)`,
+        received: `a step of ${fmt(step / factor)}`,
+        hint:
+          Math.abs(step - this.dt) > 0.5 * this.dt
+            ? "psdgate needs uniformly sampled data; split the record at the gap or resample it"
+            : "psdgate needs uniformly sampled data; the stamps jitter by more than their printed resolution allows: resample the record, or give `csv.timeColumn: false` `csv.sampleRateHz: HZ` if the rate is known",
       });
     }
   }
 
   private notANumber(line: number, value: number): never {
     const { file, index, name } = this.col;
-    throw new InputError("CSV_TIME_NOT_A_NUMBER", { file, line, column: index + 1, field: name, expected: "a finite time stamp", received: String(value) });
+    throw new InputError("CSV_TIME_NOT_A_NUMBER", {
+      file,
+      line,
+      column: index + 1,
+      field: name,
+      expected: "a finite time stamp",
+      received: String(value),
+    });
   }
 }
 
@@ -148,7 +171,15 @@ export class TimeStampCheck {
  * of `ref` (or not positive), or `rows` when there is none. `prev` is the stamp before row `from`.
  * A module-level loop with nothing after it: V8 keeps one optimised copy for every file.
  */
-function firstBadStep(tv: Float64Array, from: number, rows: number, k: number, prev: number, ref: number, allowed: number): number {
+function firstBadStep(
+  tv: Float64Array,
+  from: number,
+  rows: number,
+  k: number,
+  prev: number,
+  ref: number,
+  allowed: number,
+): number {
   for (let i = from; i < rows; i++) {
     const t = tv[i]! * k;
     const step = t - prev;
@@ -189,15 +220,22 @@ function hz(x: number): string {
 
 export function implausibleRate(t: TimeColumnInfo, rateHz: number): InputError {
   return new InputError("CSV_RATE_IMPLAUSIBLE", {
-    file: t.file, line: t.line, column: t.column, field: t.name,
-    expected: `a sample rate of at least ${MIN_PLAUSIBLE_RATE_HZ} Hz from a time column without a unit (read as seconds)`, received: hz(rateHz),
+    file: t.file,
+    line: t.line,
+    column: t.column,
+    field: t.name,
+    expected: `a sample rate of at least ${MIN_PLAUSIBLE_RATE_HZ} Hz from a time column without a unit (read as seconds)`,
+    received: hz(rateHz),
     hint: `if the stamps are milliseconds (${hz(rateHz * 1000)}) give \`csv.timeUnit: ms\`; to keep seconds give \`csv.timeUnit: s\``,
   });
 }
 
 export function rateConflict(t: TimeColumnInfo, optionHz: number, columnHz: number): InputError {
   return new InputError("OPTION_CONFLICT", {
-    file: t.file, option: "csv.sampleRateHz", expected: `a rate that agrees with the time column ${JSON.stringify(t.name)} (${hz(columnHz)})`, received: hz(optionHz),
+    file: t.file,
+    option: "csv.sampleRateHz",
+    expected: `a rate that agrees with the time column ${JSON.stringify(t.name)} (${hz(columnHz)})`,
+    received: hz(optionHz),
     hint: "drop `csv.sampleRateHz` to use the time column, or give `csv.timeColumn: false` to analyse at `csv.sampleRateHz`",
   });
 }

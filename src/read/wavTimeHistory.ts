@@ -21,7 +21,13 @@ import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js
  * These are exactly the points where wav-decoder 1.3.0 falls short (see DEVELOPERS.md): it is kept as
  * the reference the tests compare with where it is exact.
  */
-const ENCODING_NAMES: Record<number, string> = { 2: "Microsoft ADPCM", 6: "A-law", 7: "mu-law", 0x11: "IMA ADPCM", 0x55: "MPEG layer 3" };
+const ENCODING_NAMES: Record<number, string> = {
+  2: "Microsoft ADPCM",
+  6: "A-law",
+  7: "mu-law",
+  17: "IMA ADPCM",
+  85: "MPEG layer 3",
+};
 
 interface WavFormat {
   tag: number;
@@ -50,7 +56,10 @@ class WindowReader {
   private buf = Buffer.alloc(WALK_BYTES);
   private start = 0;
   private len = 0;
-  constructor(private readonly fd: number, private readonly size: number) {}
+  constructor(
+    private readonly fd: number,
+    private readonly size: number,
+  ) {}
   /** n bytes at pos (fewer at the end of the file); valid until the next call. */
   at(pos: number, n: number): Buffer {
     if (pos < this.start || pos + n > this.start + this.len) {
@@ -79,12 +88,29 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
   try {
     const r = new WindowReader(fd, size);
     const hdr = r.at(0, 12);
-    if (hdr.length < 12) throw new InputError("WAV_TRUNCATED_HEADER", { file, expected: "a 12-byte RIFF/WAVE header", received: `${hdr.length} bytes` });
+    if (hdr.length < 12)
+      throw new InputError("WAV_TRUNCATED_HEADER", {
+        file,
+        expected: "a 12-byte RIFF/WAVE header",
+        received: `${hdr.length} bytes`,
+      });
     const riff = hdr.toString("latin1", 0, 4);
-    if ((riff !== "RIFF" && riff !== "RIFX" && riff !== "RF64" && riff !== "BW64") || hdr.toString("latin1", 8, 12) !== "WAVE") {
-      throw new InputError("WAV_NOT_RIFF", { file, expected: "a RIFF/WAVE file (or RF64/BW64)", received: JSON.stringify(hdr.toString("latin1", 0, 4)) });
+    if (
+      (riff !== "RIFF" && riff !== "RIFX" && riff !== "RF64" && riff !== "BW64") ||
+      hdr.toString("latin1", 8, 12) !== "WAVE"
+    ) {
+      throw new InputError("WAV_NOT_RIFF", {
+        file,
+        expected: "a RIFF/WAVE file (or RF64/BW64)",
+        received: JSON.stringify(hdr.toString("latin1", 0, 4)),
+      });
     }
-    if (riff === "RIFX") throw new InputError("WAV_UNSUPPORTED_ENCODING", { file, expected: "little-endian RIFF", received: "big-endian RIFX" });
+    if (riff === "RIFX")
+      throw new InputError("WAV_UNSUPPORTED_ENCODING", {
+        file,
+        expected: "little-endian RIFF",
+        received: "big-endian RIFX",
+      });
     rf64 = riff !== "RIFF";
     // RF64/BW64 (EBU Tech 3306, 2009): a 'ds64' chunk first holds the 64-bit sizes of the RIFF and
     // data chunks, whose 32-bit size fields then say 0xFFFFFFFF.
@@ -98,37 +124,109 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
       const body = pos + 8;
       if (id === "ds64") {
         if (!rf64 || pos !== 12 || len < 28) {
-          throw new InputError("WAV_BAD_DS64", { file, chunk: "ds64", expected: "one ds64 chunk of at least 28 bytes, first in an RF64/BW64 file", received: !rf64 ? "a ds64 chunk in a RIFF file" : pos !== 12 ? "a ds64 chunk after others" : `${len} bytes` });
+          throw new InputError("WAV_BAD_DS64", {
+            file,
+            chunk: "ds64",
+            expected: "one ds64 chunk of at least 28 bytes, first in an RF64/BW64 file",
+            received: !rf64 ? "a ds64 chunk in a RIFF file" : pos !== 12 ? "a ds64 chunk after others" : `${len} bytes`,
+          });
         }
         const d = r.at(body, 28);
-        if (d.length < 28) throw new InputError("WAV_TRUNCATED_HEADER", { file, chunk: "ds64", expected: "a 28-byte ds64 chunk", received: `${d.length} bytes` });
+        if (d.length < 28)
+          throw new InputError("WAV_TRUNCATED_HEADER", {
+            file,
+            chunk: "ds64",
+            expected: "a 28-byte ds64 chunk",
+            received: `${d.length} bytes`,
+          });
         ds64Data = Number(d.readBigUInt64LE(8));
       } else if (rf64 && pos === 12) {
-        throw new InputError("WAV_BAD_DS64", { file, chunk: "ds64", expected: "a ds64 chunk first in an RF64/BW64 file (EBU Tech 3306)", received: JSON.stringify(id) });
+        throw new InputError("WAV_BAD_DS64", {
+          file,
+          chunk: "ds64",
+          expected: "a ds64 chunk first in an RF64/BW64 file (EBU Tech 3306)",
+          received: JSON.stringify(id),
+        });
       } else if (id === "fmt ") {
-        if (fmt !== undefined) throw new InputError("WAV_DUPLICATE_CHUNK", { file, chunk: "fmt ", expected: "one format chunk", received: "a second 'fmt ' chunk" });
-        if (len < 16) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "a format chunk of at least 16 bytes", received: `${len} bytes` });
-        if (body + len > size) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: `the ${len} bytes its chunk header gives`, received: `${Math.max(0, size - body)} bytes before the file ends` });
+        if (fmt !== undefined)
+          throw new InputError("WAV_DUPLICATE_CHUNK", {
+            file,
+            chunk: "fmt ",
+            expected: "one format chunk",
+            received: "a second 'fmt ' chunk",
+          });
+        if (len < 16)
+          throw new InputError("WAV_BAD_FMT", {
+            file,
+            chunk: "fmt ",
+            expected: "a format chunk of at least 16 bytes",
+            received: `${len} bytes`,
+          });
+        if (body + len > size)
+          throw new InputError("WAV_BAD_FMT", {
+            file,
+            chunk: "fmt ",
+            expected: `the ${len} bytes its chunk header gives`,
+            received: `${Math.max(0, size - body)} bytes before the file ends`,
+          });
         const f = Buffer.from(r.at(body, Math.min(len, 40)));
         let tag = f.readUInt16LE(0);
         if (tag === 0xfffe) {
-          if (f.length < 40) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "an extensible format chunk of 40 bytes", received: `${len} bytes` });
+          if (f.length < 40)
+            throw new InputError("WAV_BAD_FMT", {
+              file,
+              chunk: "fmt ",
+              expected: "an extensible format chunk of 40 bytes",
+              received: `${len} bytes`,
+            });
           tag = f.readUInt16LE(24);
           if (!f.subarray(26, 40).equals(SUBTYPE_TAIL)) {
             throw new InputError("WAV_UNSUPPORTED_ENCODING", {
-              file, chunk: "fmt ", expected: "an extensible sub-format GUID of the KSDATAFORMAT_SUBTYPE family (…-0000-0010-8000-00AA00389B71)", received: `GUID ${f.subarray(24, 40).toString("hex")}`,
+              file,
+              chunk: "fmt ",
+              expected:
+                "an extensible sub-format GUID of the KSDATAFORMAT_SUBTYPE family (…-0000-0010-8000-00AA00389B71)",
+              received: `GUID ${f.subarray(24, 40).toString("hex")}`,
             });
           }
         }
-        fmt = { tag, channels: f.readUInt16LE(2), sampleRate: f.readUInt32LE(4), blockAlign: f.readUInt16LE(12), bits: f.readUInt16LE(14) };
+        fmt = {
+          tag,
+          channels: f.readUInt16LE(2),
+          sampleRate: f.readUInt32LE(4),
+          blockAlign: f.readUInt16LE(12),
+          bits: f.readUInt16LE(14),
+        };
       } else if (id === "data") {
-        if (fmt === undefined) throw new InputError("WAV_DATA_BEFORE_FMT", { file, chunk: "data", expected: "the 'fmt ' chunk before the data chunk", received: "data first" });
-        if (seenData) throw new InputError("WAV_DUPLICATE_CHUNK", { file, chunk: "data", expected: "one data chunk", received: "a second 'data' chunk" });
+        if (fmt === undefined)
+          throw new InputError("WAV_DATA_BEFORE_FMT", {
+            file,
+            chunk: "data",
+            expected: "the 'fmt ' chunk before the data chunk",
+            received: "data first",
+          });
+        if (seenData)
+          throw new InputError("WAV_DUPLICATE_CHUNK", {
+            file,
+            chunk: "data",
+            expected: "one data chunk",
+            received: "a second 'data' chunk",
+          });
         seenData = true;
         if (rf64 && len === U32_MAX) {
-          if (ds64Data === undefined) throw new InputError("WAV_BAD_DS64", { file, chunk: "ds64", expected: "a ds64 chunk with the data size", received: "none" });
+          if (ds64Data === undefined)
+            throw new InputError("WAV_BAD_DS64", {
+              file,
+              chunk: "ds64",
+              expected: "a ds64 chunk with the data size",
+              received: "none",
+            });
           len = ds64Data;
-        } else if (len === 0 && body + 8 <= size && (!printable(r.at(body, 4).toString("latin1")) || body + 8 + r.at(body, 8).readUInt32LE(4) > size)) {
+        } else if (
+          len === 0 &&
+          body + 8 <= size &&
+          (!printable(r.at(body, 4).toString("latin1")) || body + 8 + r.at(body, 8).readUInt32LE(4) > size)
+        ) {
           // A recorder that never closed its file leaves the size 0 with the samples after it: read them to the end.
           len = size - body;
           note = ", data size 0 in the header (an unfinished recording): read to the end of the file";
@@ -137,7 +235,10 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
         dataBytes = len;
         if (body + len > size) {
           throw new InputError("WAV_DATA_TRUNCATED", {
-            file, chunk: "data", expected: `${len} bytes of samples as the chunk header says`, received: `${size - body} bytes (the file is cut short)`,
+            file,
+            chunk: "data",
+            expected: `${len} bytes of samples as the chunk header says`,
+            received: `${size - body} bytes (the file is cut short)`,
             hint: "the recording was probably not closed properly",
           });
         }
@@ -149,35 +250,89 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
   } finally {
     closeSync(fd);
   }
-  if (fmt === undefined) throw new InputError("WAV_NO_FMT", { file, chunk: "fmt ", expected: "a format chunk", received: size < 20 ? "a truncated header" : "none" });
-  if (dataStart < 0) throw new InputError("WAV_NO_DATA", { file, chunk: "data", expected: "a data chunk", received: "none (the header may be truncated)" });
+  if (fmt === undefined)
+    throw new InputError("WAV_NO_FMT", {
+      file,
+      chunk: "fmt ",
+      expected: "a format chunk",
+      received: size < 20 ? "a truncated header" : "none",
+    });
+  if (dataStart < 0)
+    throw new InputError("WAV_NO_DATA", {
+      file,
+      chunk: "data",
+      expected: "a data chunk",
+      received: "none (the header may be truncated)",
+    });
   const { tag, channels, sampleRate, blockAlign, bits } = fmt;
   const pcm = tag === 1 && (bits === 8 || bits === 16 || bits === 24 || bits === 32);
   const float = tag === 3 && (bits === 32 || bits === 64);
   if (!pcm && !float) {
-    const what = ENCODING_NAMES[tag] ?? (tag === 1 || tag === 3 ? `${bits}-bit ${tag === 1 ? "PCM" : "float"}` : `format tag 0x${tag.toString(16)}`);
-    throw new InputError("WAV_UNSUPPORTED_ENCODING", { file, chunk: "fmt ", expected: "PCM 8/16/24/32-bit or IEEE float 32/64-bit", received: what, hint: "convert the file to PCM or float WAV" });
+    const what =
+      ENCODING_NAMES[tag] ??
+      (tag === 1 || tag === 3 ? `${bits}-bit ${tag === 1 ? "PCM" : "float"}` : `format tag 0x${tag.toString(16)}`);
+    throw new InputError("WAV_UNSUPPORTED_ENCODING", {
+      file,
+      chunk: "fmt ",
+      expected: "PCM 8/16/24/32-bit or IEEE float 32/64-bit",
+      received: what,
+      hint: "convert the file to PCM or float WAV",
+    });
   }
-  if (channels === 0) throw new InputError("WAV_NO_CHANNELS", { file, chunk: "fmt ", expected: "at least one channel", received: "0 channels" });
+  if (channels === 0)
+    throw new InputError("WAV_NO_CHANNELS", {
+      file,
+      chunk: "fmt ",
+      expected: "at least one channel",
+      received: "0 channels",
+    });
   if (blockAlign !== (channels * bits) / 8) {
-    throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: `block align ${(channels * bits) / 8} (channels x bytes per sample)`, received: `${blockAlign}` });
+    throw new InputError("WAV_BAD_FMT", {
+      file,
+      chunk: "fmt ",
+      expected: `block align ${(channels * bits) / 8} (channels x bytes per sample)`,
+      received: `${blockAlign}`,
+    });
   }
-  if (!(sampleRate > 0)) throw new InputError("WAV_BAD_FMT", { file, chunk: "fmt ", expected: "a sample rate above 0", received: `${sampleRate}` });
+  if (!(sampleRate > 0))
+    throw new InputError("WAV_BAD_FMT", {
+      file,
+      chunk: "fmt ",
+      expected: "a sample rate above 0",
+      received: `${sampleRate}`,
+    });
   const frames = Math.floor(dataBytes / blockAlign);
   if (dataBytes % blockAlign !== 0) {
-    throw new InputError("WAV_DATA_TRUNCATED", { file, chunk: "data", expected: `a whole number of ${blockAlign}-byte frames`, received: `${dataBytes} bytes` });
+    throw new InputError("WAV_DATA_TRUNCATED", {
+      file,
+      chunk: "data",
+      expected: `a whole number of ${blockAlign}-byte frames`,
+      received: `${dataBytes} bytes`,
+    });
   }
   const cal = calibration;
   return {
     info: {
-      file, format: "wav", sampleRateHz: sampleRate, frames, bytes: size,
+      file,
+      format: "wav",
+      sampleRateHz: sampleRate,
+      frames,
+      bytes: size,
       channels: Array.from({ length: channels }, (_, i) => ({
         name: `ch${i + 1}`,
         ...(pcm ? { integerFullScale: true } : {}),
-        ...(cal ? { declaredUnit: cal.unit.base, declaredUnitSpec: cal.unit, declaredUnitText: cal.text, fileScale: cal.scale } : {}),
+        ...(cal
+          ? {
+              declaredUnit: cal.unit.base,
+              declaredUnitSpec: cal.unit,
+              declaredUnitText: cal.text,
+              fileScale: cal.scale,
+            }
+          : {}),
       })),
-      layout: `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}`
-        + `${cal ? `, calibration chunk: x${cal.scale} ${cal.unit.name}` : ""}${note}`,
+      layout:
+        `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}` +
+        `${cal ? `, calibration chunk: x${cal.scale} ${cal.unit.name}` : ""}${note}`,
     },
     read: (select, sink, onProgress) => readWavData(file, fmt!, dataStart, frames, select, sink, onProgress),
   };
@@ -195,7 +350,10 @@ function readCalibration(file: string, text: string): { unit: UnitSpec; text: st
   const scale = o?.scale === undefined ? 1 : o.scale;
   if (unit === undefined || typeof scale !== "number" || !Number.isFinite(scale) || scale === 0) {
     throw new InputError("WAV_BAD_CALIBRATION", {
-      file, chunk: CALIBRATION_CHUNK, expected: 'a JSON object {"unit": an acceleration unit, "scale": a non-zero number}', received: JSON.stringify(text.slice(0, 60)),
+      file,
+      chunk: CALIBRATION_CHUNK,
+      expected: 'a JSON object {"unit": an acceleration unit, "scale": a non-zero number}',
+      received: JSON.stringify(text.slice(0, 60)),
     });
   }
   return { unit, text: o!.unit as string, scale };
@@ -206,7 +364,13 @@ const PIECE_BYTES = 1 << 20;
 const LITTLE_ENDIAN = endianness() === "LE";
 
 async function readWavData(
-  file: string, f: WavFormat, dataStart: number, frames: number, select: number[], sink: BlockSink, onProgress?: (b: number) => void,
+  file: string,
+  f: WavFormat,
+  dataStart: number,
+  frames: number,
+  select: number[],
+  sink: BlockSink,
+  onProgress?: (b: number) => void,
 ): Promise<ReadSummary> {
   const hash = createHash("sha256");
   const nch = f.channels;
@@ -238,7 +402,12 @@ async function readWavData(
       const want = n * frameBytes;
       const bytesRead = readSync(fd, buf, 0, want, pos);
       if (bytesRead !== want) {
-        throw new InputError("WAV_DATA_TRUNCATED", { file, chunk: "data", expected: `${frames} frames`, received: `${done + Math.floor(bytesRead / frameBytes)} (the file changed while it was read?)` });
+        throw new InputError("WAV_DATA_TRUNCATED", {
+          file,
+          chunk: "data",
+          expected: `${frames} frames`,
+          received: `${done + Math.floor(bytesRead / frameBytes)} (the file changed while it was read?)`,
+        });
       }
       hash.update(buf.subarray(0, want));
       pos += want;
@@ -255,7 +424,15 @@ async function readWavData(
 }
 
 /** Deinterleave n frames of `buf` into the selected channels' arrays, scaled to full scale +-1. */
-function decodeFrames(buf: Buffer, n: number, f: WavFormat, nch: number, select: number[], outs: Float64Array[], intScale: number): void {
+function decodeFrames(
+  buf: Buffer,
+  n: number,
+  f: WavFormat,
+  nch: number,
+  select: number[],
+  outs: Float64Array[],
+  intScale: number,
+): void {
   const ab = buf.buffer;
   const off = buf.byteOffset;
   for (let s = 0; s < select.length; s++) {
@@ -274,7 +451,8 @@ function decodeFrames(buf: Buffer, n: number, f: WavFormat, nch: number, select:
       const v = new Int32Array(ab, off, n * nch);
       for (let i = 0; i < n; i++) o[i] = v[i * nch + ch]! * intScale;
     } else if (f.bits === 24) {
-      for (let i = 0, p = ch * 3; i < n; i++, p += nch * 3) o[i] = (buf[p]! | (buf[p + 1]! << 8) | ((buf[p + 2]! << 24) >> 8)) * intScale;
+      for (let i = 0, p = ch * 3; i < n; i++, p += nch * 3)
+        o[i] = (buf[p]! | (buf[p + 1]! << 8) | ((buf[p + 2]! << 24) >> 8)) * intScale;
     } else if (f.bits === 8) {
       for (let i = 0, p = ch; i < n; i++, p += nch) o[i] = (buf[p]! - 128) / 128;
     } else {
@@ -283,7 +461,14 @@ function decodeFrames(buf: Buffer, n: number, f: WavFormat, nch: number, select:
       const b = f.bits / 8;
       for (let i = 0; i < n; i++) {
         const q = (i * nch + ch) * b;
-        o[i] = f.tag === 3 ? (b === 4 ? dv.getFloat32(q, true) : dv.getFloat64(q, true)) : b === 2 ? dv.getInt16(q, true) * intScale : dv.getInt32(q, true) * intScale;
+        o[i] =
+          f.tag === 3
+            ? b === 4
+              ? dv.getFloat32(q, true)
+              : dv.getFloat64(q, true)
+            : b === 2
+              ? dv.getInt16(q, true) * intScale
+              : dv.getInt32(q, true) * intScale;
       }
     }
   }

@@ -35,7 +35,8 @@ export function batchIndexName(reportNames: readonly string[]): string {
 }
 
 /** The batch page's own style element (verify knows it: src/verify/verifyReport.ts). */
-export const BATCH_STYLE = "table.batch th:nth-child(1) { width: 27%; } table.batch th:nth-child(2) { width: 13%; } table.batch th:nth-child(3) { width: 32%; } table.batch th:nth-child(4) { width: 16%; } table.batch td:nth-child(1) { word-break: break-word; }";
+export const BATCH_STYLE =
+  "table.batch th:nth-child(1) { width: 27%; } table.batch th:nth-child(2) { width: 13%; } table.batch th:nth-child(3) { width: 32%; } table.batch th:nth-child(4) { width: 16%; } table.batch td:nth-child(1) { word-break: break-word; }";
 
 /**
  * `check --report-dir DIR` also writes an index of the batch, itself a record: one row per recording with its
@@ -43,11 +44,23 @@ export const BATCH_STYLE = "table.batch th:nth-child(1) { width: 27%; } table.ba
  * be read are counted; the caution and a sign-off. On the shared page frame (identity, profile hash and
  * "page N of M" on every printed page) with an embedded result: `verify` checks each linked report by SHA-256.
  */
-export function batchIndexHtml(entries: BatchEntry[], failed: number, profile: { title: string; file: string; sha256: string }, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}): string {
+export function batchIndexHtml(
+  entries: BatchEntry[],
+  failed: number,
+  profile: { title: string; file: string; sha256: string },
+  version: string,
+  when: Date,
+  context: Omit<ReportContext, "version" | "when"> = {},
+): string {
   const ctx: ReportContext = { ...context, version, when };
   const sorted = [...entries].sort((a, b) => a.file.localeCompare(b.file));
   const count = (v: Verdict) => entries.filter((e) => e.verdict === v).length;
-  const rows = sorted.map((e) => `<tr><td><a href="${esc(encodeURI(e.report))}">${esc(e.file)}</a><br><span class="hash">${shortHash(e.sha256)}</span>${e.testId ? `<br>test ${esc(e.testId)}` : ""}</td><td><span class="chip ${e.verdict}">${e.verdict.toUpperCase()}</span></td><td>${esc(e.reason ?? "")}</td><td>${esc(e.worst ?? "")}</td><td>${esc(e.channels)}</td></tr>`).join("\n");
+  const rows = sorted
+    .map(
+      (e) =>
+        `<tr><td><a href="${esc(encodeURI(e.report))}">${esc(e.file)}</a><br><span class="hash">${shortHash(e.sha256)}</span>${e.testId ? `<br>test ${esc(e.testId)}` : ""}</td><td><span class="chip ${e.verdict}">${e.verdict.toUpperCase()}</span></td><td>${esc(e.reason ?? "")}</td><td>${esc(e.worst ?? "")}</td><td>${esc(e.channels)}</td></tr>`,
+    )
+    .join("\n");
   const counts = `${count("pass")} pass, ${count("fail")} fail, ${count("inconclusive")} inconclusive${failed ? `, ${failed} could not be read (see the command's messages; no report)` : ""}`;
   const worstVerdict = count("fail") ? "fail" : count("inconclusive") || failed ? "inconclusive" : "pass";
   const metaFrom = [...new Set(entries.map((e) => e.metaFrom).filter(Boolean))];
@@ -72,10 +85,34 @@ ${rows}
 <h2>Caution</h2>
 <div class="caution keep">${esc(VERDICT_CAUTION)}</div>
 ${signOff(`<strong>Batch</strong>: ${esc(counts)}.`, [
-    ["Test", esc([ctx.meta?.testId, ctx.meta?.workOrder && `work order ${ctx.meta.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)") + (metaFrom.length ? "; per recording where its own meta file or the meta table names one (see the table)" : "")],
-    ["Profile", `${esc(profile.title)} <span class="hash">${shortHash(profile.sha256)}</span>`],
-    ["Operator", esc(ctx.meta?.operator ?? "not stated")],
-  ])}`;
-  const page = reportPage({ title: `Batch checked against "${profile.title}"`, verdictClass: worstVerdict, verdictWord: "BATCH", recordingSha256: profile.sha256, recordingName: profile.file.split(/[\\/]/).pop() ?? profile.file, kindLine: `Batch index of ${entries.length + failed} recordings`, body, hashLabel: "profile" }, ctx);
-  return embedResult(page, { kind: "batch", created: when.toISOString(), meta: ctx.meta ?? null, given: ctx.given ?? [], result: { tool: { name: "psdgate", version }, profile, failed, entries: sorted } });
+  [
+    "Test",
+    esc(
+      [ctx.meta?.testId, ctx.meta?.workOrder && `work order ${ctx.meta.workOrder}`].filter(Boolean).join(", ") ||
+        "not identified (no --meta)",
+    ) + (metaFrom.length ? "; per recording where its own meta file or the meta table names one (see the table)" : ""),
+  ],
+  ["Profile", `${esc(profile.title)} <span class="hash">${shortHash(profile.sha256)}</span>`],
+  ["Operator", esc(ctx.meta?.operator ?? "not stated")],
+])}`;
+  const page = reportPage(
+    {
+      title: `Batch checked against "${profile.title}"`,
+      verdictClass: worstVerdict,
+      verdictWord: "BATCH",
+      recordingSha256: profile.sha256,
+      recordingName: profile.file.split(/[\\/]/).pop() ?? profile.file,
+      kindLine: `Batch index of ${entries.length + failed} recordings`,
+      body,
+      hashLabel: "profile",
+    },
+    ctx,
+  );
+  return embedResult(page, {
+    kind: "batch",
+    created: when.toISOString(),
+    meta: ctx.meta ?? null,
+    given: ctx.given ?? [],
+    result: { tool: { name: "psdgate", version }, profile, failed, entries: sorted },
+  });
 }

@@ -10,11 +10,28 @@ import { densityAscii } from "../units.js";
  */
 export function checkCsv(r: CheckResult): string {
   const u = densityAscii(r.profile.units);
-  const lines = [`spectrum,role,frequency_hz,measured [${u}],required [${u}],deviation_db,upper_limit [${u}],lower_limit [${u}],upper_db,lower_db,status,shown`];
+  const lines = [
+    `spectrum,role,frequency_hz,measured [${u}],required [${u}],deviation_db,upper_limit [${u}],lower_limit [${u}],upper_db,lower_db,status,shown`,
+  ];
   const add = (name: string, role: string, c: ChannelCompliance) => {
     const q = /[",\n]/.test(name) ? `"${name.replace(/"/g, '""')}"` : name;
     for (const l of c.lines) {
-      lines.push([q, role, l.frequencyHz, l.measured, l.required, l.deviationDb, l.required * 10 ** (l.upperDb / 10), l.required * 10 ** (-l.lowerDb / 10), l.upperDb, l.lowerDb, l.status, l.shown ? "shown" : ""].join(","));
+      lines.push(
+        [
+          q,
+          role,
+          l.frequencyHz,
+          l.measured,
+          l.required,
+          l.deviationDb,
+          l.required * 10 ** (l.upperDb / 10),
+          l.required * 10 ** (-l.lowerDb / 10),
+          l.upperDb,
+          l.lowerDb,
+          l.status,
+          l.shown ? "shown" : "",
+        ].join(","),
+      );
     }
   };
   if (r.control) add(`${r.control.rule} of ${r.control.channels.join(" + ")}`, "control spectrum", r.control.judgement);

@@ -28,32 +28,49 @@ export function unjudgedText(c: ChannelCompliance): string {
     un.edge ? `${un.edge} line(s) at the profile's ends (the window's kernel reaches past them)` : "",
     un.detrend ? `${un.detrend} line(s) biased by detrending` : "",
     un.aboveRecord ? `${un.aboveRecord} line(s) above the record's Nyquist frequency` : "",
-    un.notch ? `${un.notch} line(s) in a steep notch near the profile's ends (the kernel cannot say what they should show)` : "",
-    un.excluded ? `${un.excluded} line(s) ${c.tones?.length ? "occupied by the tones (judged as tones)" : "left out by the caller"}` : "",
-  ].filter(Boolean).join(", ");
+    un.notch
+      ? `${un.notch} line(s) in a steep notch near the profile's ends (the kernel cannot say what they should show)`
+      : "",
+    un.excluded
+      ? `${un.excluded} line(s) ${c.tones?.length ? "occupied by the tones (judged as tones)" : "left out by the caller"}`
+      : "",
+  ]
+    .filter(Boolean)
+    .join(", ");
 }
 
 function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string): string[] {
   const u = accelLabel(ch.units);
   const out = [`${label}: ${WORD[c.verdict]}`];
   for (const reason of findingTexts(c.findings)) out.push(`  because    ${reason}`);
-  const tol = c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
-  out.push(`  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`);
-  out.push(`  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`);
+  const tol =
+    c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
+  out.push(
+    `  RMS        ${sig(c.rms.measured, 4)} ${u} measured in the profile's range, ${sig(c.rms.required, 4)} ${u} required: ${signedDb(c.rms.deviationDb)}${tol}`,
+  );
+  out.push(
+    `  DOF        ${fixed(c.dof.achieved, 1)} achieved${c.dof.required !== undefined ? `, ${c.dof.required} required by the profile` : ""}, ${c.dof.forPower} for the rule's power (${ch.psd.averages} averages, ${sig(ch.psd.lineSpacingHz, 4)} Hz lines)`,
+  );
   out.push(`  rule       ${ruleLine(c)}`);
   for (const t of c.tones ?? []) {
     if (t.unseen) {
-      out.push(`  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, not seen (at or above the record's Nyquist frequency)`);
+      out.push(
+        `  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, not seen (at or above the record's Nyquist frequency)`,
+      );
       continue;
     }
-    out.push(`  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, peak ${sig(t.measuredPeak, 4)} ${u} at ${sig(t.measuredHz, 7)} Hz (required ${sig(t.requiredPeak, 4)}, limits ${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)} ${u}, ±${sig(t.toleranceHz, 3)} Hz; ${signedDb(t.deviationDb)}, sd ${sig(t.peakSd, 2)} ${u})`);
+    out.push(
+      `  tone       ${sig(t.hz, 6)} Hz ${printable(t.name)}: ${WORD[t.verdict]}, peak ${sig(t.measuredPeak, 4)} ${u} at ${sig(t.measuredHz, 7)} Hz (required ${sig(t.requiredPeak, 4)}, limits ${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)} ${u}, ±${sig(t.toleranceHz, 3)} Hz; ${signedDb(t.deviationDb)}, sd ${sig(t.peakSd, 2)} ${u})`,
+    );
   }
   const un = unjudgedText(c);
   if (un) out.push(`  unjudged   ${un}`);
   const shown = worstFirst(c.excursions).slice(0, 8);
   if (shown.length === 0) out.push(`  excursions none: ${c.lines.length} lines checked`);
   else {
-    out.push(`  excursions ${c.excursions.length} (worst first${c.excursions.length > shown.length ? `, ${shown.length} shown here, all in --json and the report` : ""}):`);
+    out.push(
+      `  excursions ${c.excursions.length} (worst first${c.excursions.length > shown.length ? `, ${shown.length} shown here, all in --json and the report` : ""}):`,
+    );
     for (const e of shown) out.push(`             ${excursionText(e)}`);
   }
   return out;
@@ -75,7 +92,14 @@ export function checkText(r: CheckResult, version: string): string {
     "",
   ];
   if (r.control) {
-    out.push(...judgementLines(r.control.judgement, a.channels[a.channels.findIndex((c) => c.name === r.control!.channels[0])]!, `control (${r.control.rule} of ${printable(r.control.channels.join(", "))})`), "");
+    out.push(
+      ...judgementLines(
+        r.control.judgement,
+        a.channels[a.channels.findIndex((c) => c.name === r.control!.channels[0])]!,
+        `control (${r.control.rule} of ${printable(r.control.channels.join(", "))})`,
+      ),
+      "",
+    );
   }
   r.channels.forEach((c, i) => {
     const ch = a.channels[i]!;
@@ -83,7 +107,13 @@ export function checkText(r: CheckResult, version: string): string {
     const parseval = `  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`;
     if (role === "monitor" || role === "control") {
       // Under control every channel's own verdict is still shown: judged alone, it is not the record's verdict.
-      out.push(...judgementLines(c, ch, `channel ${ch.position} "${printable(ch.name)}" (${role === "monitor" ? "monitoring" : "control"} channel judged alone; the record's verdict rests on the control spectrum)`));
+      out.push(
+        ...judgementLines(
+          c,
+          ch,
+          `channel ${ch.position} "${printable(ch.name)}" (${role === "monitor" ? "monitoring" : "control"} channel judged alone; the record's verdict rests on the control spectrum)`,
+        ),
+      );
       out.push(parseval);
     } else {
       out.push(...judgementLines(c, ch, `channel ${ch.position} "${printable(ch.name)}"`));
@@ -91,7 +121,13 @@ export function checkText(r: CheckResult, version: string): string {
     }
     out.push(...findingLines(ch).filter((l) => !l.startsWith("  DOUBT")), "");
   });
-  out.push(`RULE: ${RULE_SUMMARY}`, ...(p.tones.length > 0 ? ["", `TONES: ${TONE_RULE}`] : []), "", `CAUTION: ${VERDICT_CAUTION}`, "");
+  out.push(
+    `RULE: ${RULE_SUMMARY}`,
+    ...(p.tones.length > 0 ? ["", `TONES: ${TONE_RULE}`] : []),
+    "",
+    `CAUTION: ${VERDICT_CAUTION}`,
+    "",
+  );
   return out.join("\n");
 }
 
@@ -104,13 +140,40 @@ function judgementJson(c: ChannelCompliance) {
     dof: { achieved: c.dof.achieved, required: c.dof.required ?? null, forPower: c.dof.forPower, ok: c.dof.ok },
     rule: c.rule,
     unjudged: c.unjudged,
-    excursions: c.excursions.map((e) => ({ ...e, longerRecordFactor: e.longerRecordFactor ?? null, secondsToShow: e.secondsToShow ?? null })),
-    decide: c.decide ? { probability: c.decide.probability, dof: c.decide.dof ?? null, seconds: c.decide.seconds ?? null, likely: c.decide.likely ?? null } : null,
+    excursions: c.excursions.map((e) => ({
+      ...e,
+      longerRecordFactor: e.longerRecordFactor ?? null,
+      secondsToShow: e.secondsToShow ?? null,
+    })),
+    decide: c.decide
+      ? {
+          probability: c.decide.probability,
+          dof: c.decide.dof ?? null,
+          seconds: c.decide.seconds ?? null,
+          likely: c.decide.likely ?? null,
+        }
+      : null,
     // Mixed mode: each required tone (empty for a random-only profile).
     tones: (c.tones ?? []).map((t) => ({
-      name: t.name, hz: t.hz, requiredPeak: t.requiredPeak, measuredPeak: finiteOrNull(t.measuredPeak), lowerPeak: t.lowerPeak, upperPeak: t.upperPeak, verdict: t.verdict,
-      measuredHz: finiteOrNull(t.measuredHz), toleranceHz: t.toleranceHz, deviationDb: finiteOrNull(t.deviationDb), status: t.status, shown: t.shown, peakSd: finiteOrNull(t.peakSd), frequencySd: finiteOrNull(t.frequencySd),
-      backgroundDensity: finiteOrNull(t.backgroundDensity), linesFromHz: t.linesFromHz, linesToHz: t.linesToHz, testLevel: t.testLevel, falseFailRate: t.falseFailRate,
+      name: t.name,
+      hz: t.hz,
+      requiredPeak: t.requiredPeak,
+      measuredPeak: finiteOrNull(t.measuredPeak),
+      lowerPeak: t.lowerPeak,
+      upperPeak: t.upperPeak,
+      verdict: t.verdict,
+      measuredHz: finiteOrNull(t.measuredHz),
+      toleranceHz: t.toleranceHz,
+      deviationDb: finiteOrNull(t.deviationDb),
+      status: t.status,
+      shown: t.shown,
+      peakSd: finiteOrNull(t.peakSd),
+      frequencySd: finiteOrNull(t.frequencySd),
+      backgroundDensity: finiteOrNull(t.backgroundDensity),
+      linesFromHz: t.linesFromHz,
+      linesToHz: t.linesToHz,
+      testLevel: t.testLevel,
+      falseFailRate: t.falseFailRate,
     })),
     lines: {
       frequencyHz: c.lines.map((l) => l.frequencyHz),
@@ -134,15 +197,41 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
     meta: meta ?? null,
     input: inputJson(a),
     profile: {
-      file: p.file, sha256: p.sha256, title: p.title, units: densityAscii(p.units), rms: p.rms, bands: p.bands, rmsToleranceDb: p.rmsToleranceDb ?? null, minDof: p.minDof ?? null,
-      resolutionHz: p.resolutionHz ?? null, durationS: p.durationS ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null, defaultsApplied: p.defaultsApplied,
-      provenance: p.provenance ?? null, origin: provenanceSummary(p) ?? null,
-      tones: p.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, upperDb: t.upperDb, lowerDb: t.lowerDb, toleranceHz: t.toleranceHz })), totalRms: p.totalRms,
+      file: p.file,
+      sha256: p.sha256,
+      title: p.title,
+      units: densityAscii(p.units),
+      rms: p.rms,
+      bands: p.bands,
+      rmsToleranceDb: p.rmsToleranceDb ?? null,
+      minDof: p.minDof ?? null,
+      resolutionHz: p.resolutionHz ?? null,
+      durationS: p.durationS ?? null,
+      allowedOutsidePercent: p.allowedOutsidePercent ?? null,
+      outerLimits: p.outerBands ?? null,
+      defaultsApplied: p.defaultsApplied,
+      provenance: p.provenance ?? null,
+      origin: provenanceSummary(p) ?? null,
+      tones: p.tones.map((t) => ({
+        name: t.label,
+        hz: t.hz,
+        peak: t.peak,
+        upperDb: t.upperDb,
+        lowerDb: t.lowerDb,
+        toleranceHz: t.toleranceHz,
+      })),
+      totalRms: p.totalRms,
     },
     settings: settingsJson(a),
     analysis: a.analysis,
-    rule: { summary: RULE_SUMMARY, meaning: VERDICT_MEANING[r.verdict], ...(p.tones.length > 0 ? { tones: TONE_RULE } : {}) },
-    control: r.control ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) } : null,
+    rule: {
+      summary: RULE_SUMMARY,
+      meaning: VERDICT_MEANING[r.verdict],
+      ...(p.tones.length > 0 ? { tones: TONE_RULE } : {}),
+    },
+    control: r.control
+      ? { combine: r.control.rule, channels: r.control.channels, ...judgementJson(r.control.judgement) }
+      : null,
     channels: r.channels.map((c, i) => {
       const ch = a.channels[i]!;
       const j = judgementJson(c);
@@ -158,8 +247,13 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
         reading: ch.reading,
         averages: ch.psd.averages,
         parseval: {
-          rmsTime: finiteOrNull(ch.parseval.rmsTime), rmsPsd: finiteOrNull(ch.parseval.rmsPsd), rmsSegments: finiteOrNull(ch.parseval.rmsSegments),
-          ratio: finiteOrNull(ch.parseval.ratio), tolerance: ch.parseval.tolerance, toleranceFrom: ch.parseval.toleranceFrom, ok: ch.parseval.ok,
+          rmsTime: finiteOrNull(ch.parseval.rmsTime),
+          rmsPsd: finiteOrNull(ch.parseval.rmsPsd),
+          rmsSegments: finiteOrNull(ch.parseval.rmsSegments),
+          ratio: finiteOrNull(ch.parseval.ratio),
+          tolerance: ch.parseval.tolerance,
+          toleranceFrom: ch.parseval.toleranceFrom,
+          ok: ch.parseval.ok,
           belowFirstLineShare: finiteOrNull(ch.parseval.belowFirstLineShare),
         },
         stats: statsJson(ch),

@@ -5,7 +5,17 @@ import { DERIVE_CAUTION, SHAKER_CAUTION } from "./cautions.js";
 import { DAMAGE_RULE, deriveJson, EXTREME_RULE, TOLERANCE_RULE } from "./deriveReport.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, maxOf, minOf, sig } from "./format.js";
-import { metaRows, qty, recordDocument, reportPage, row, shortHash, signOff, stamp, type ReportContext } from "./reportPage.js";
+import {
+  metaRows,
+  qty,
+  recordDocument,
+  reportPage,
+  row,
+  shortHash,
+  signOff,
+  stamp,
+  type ReportContext,
+} from "./reportPage.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 import { findingText, findingTexts } from "./findingTexts.js";
 
@@ -36,8 +46,12 @@ function toleranceFrom(ctx: ReportContext): string {
   const defaults = flags.filter((f) => !given.includes(f));
   return [
     given.length ? `Given with ${given.join(", ")}.` : "",
-    defaults.length ? `${defaults.join(", ")} at psdgate's defaults (±3 dB, ±10 %, 120 DOF): settings the lab confirms against the test standard it works to.` : "",
-  ].filter(Boolean).join(" ");
+    defaults.length
+      ? `${defaults.join(", ")} at psdgate's defaults (±3 dB, ±10 %, 120 DOF): settings the lab confirms against the test standard it works to.`
+      : "",
+  ]
+    .filter(Boolean)
+    .join(" ");
 }
 
 /** A short legend name: the group when it has one recording, else the file's base name; at most 16 characters. */
@@ -60,16 +74,37 @@ function shockSection(r: DeriveResult, lo: number, hi: number, u: string): strin
   const shortX = Float64Array.from(fn.filter((x) => short.has(x)));
   const shortY = shortX.map((x) => s.fieldSrs[[...fn].indexOf(x)]!);
   const finite = [...s.fieldSrs, ...r.testExtreme].filter((v) => Number.isFinite(v) && v > 0);
-  const plot = finite.length === 0 ? `<p class="muted">No field SRS: every natural frequency lies above a quarter of the recordings' sample rates.</p>` : svgPlot({
-    id: "field-srs", title: `Field SRS (measured largest response, shocks included) against the test's ERS, Q ${r.q}`,
-    xLabel: "natural frequency (Hz)", yLabel: `largest response (${u})`, xDomain: [lo, hi], yDomain: [Math.min(...finite) / 1.5, Math.max(...finite) * 1.5], yLog: true, xMarks: [lo, hi],
-    series: [
-      { id: "field-srs", label: "field SRS", x: fn, y: s.fieldSrs, className: "field" },
-      { id: "test-ers-shock", label: "test ERS", x: fn, y: r.testExtreme, className: "test" },
-      { id: "shock-shortfall", label: shortX.length ? "test falls short" : "", x: shortX, y: shortY, className: "over", markers: true },
-    ],
-  });
-  const rows = s.largestEvents.map((e, k) => `<tr><td class="num">${k + 1}</td><td>${esc(r.recordings[e.recording]?.file ?? "?")}</td><td class="num">${fixed(e.timeS, 3)}</td><td class="num">${e.peak >= 0 ? "+" : ""}${sig(e.peak, 4)}</td><td class="num">${sig(1000 * e.durationS, 3)}</td></tr>`).join("\n");
+  const plot =
+    finite.length === 0
+      ? `<p class="muted">No field SRS: every natural frequency lies above a quarter of the recordings' sample rates.</p>`
+      : svgPlot({
+          id: "field-srs",
+          title: `Field SRS (measured largest response, shocks included) against the test's ERS, Q ${r.q}`,
+          xLabel: "natural frequency (Hz)",
+          yLabel: `largest response (${u})`,
+          xDomain: [lo, hi],
+          yDomain: [Math.min(...finite) / 1.5, Math.max(...finite) * 1.5],
+          yLog: true,
+          xMarks: [lo, hi],
+          series: [
+            { id: "field-srs", label: "field SRS", x: fn, y: s.fieldSrs, className: "field" },
+            { id: "test-ers-shock", label: "test ERS", x: fn, y: r.testExtreme, className: "test" },
+            {
+              id: "shock-shortfall",
+              label: shortX.length ? "test falls short" : "",
+              x: shortX,
+              y: shortY,
+              className: "over",
+              markers: true,
+            },
+          ],
+        });
+  const rows = s.largestEvents
+    .map(
+      (e, k) =>
+        `<tr><td class="num">${k + 1}</td><td>${esc(r.recordings[e.recording]?.file ?? "?")}</td><td class="num">${fixed(e.timeS, 3)}</td><td class="num">${e.peak >= 0 ? "+" : ""}${sig(e.peak, 4)}</td><td class="num">${sig(1000 * e.durationS, 3)}</td></tr>`,
+    )
+    .join("\n");
   const verdict = s.shortfallHz.length
     ? `<strong>The test falls short</strong> ${s.shortfallHz.length === fn.length ? `at every one of the ${fn.length} natural frequencies (${sig(fn[0]!, 4)}–${sig(fn[fn.length - 1]!, 4)} Hz)` : `at ${s.shortfallHz.length} of ${fn.length} natural frequencies (${esc(s.shortfallHz.map((x) => sig(x, 4)).join(", "))} Hz)`}: the random test does not reach the field's shocks there, so a shock test is needed for them.`
     : "The test's expected largest response reaches the field's SRS at every natural frequency.";
@@ -78,9 +113,13 @@ function shockSection(r: DeriveResult, lo: number, hi: number, u: string): strin
 ${row("Events", `${total} in the field recordings (${esc(s.eventsPerRecording.join(", "))} by recording; threshold 6 × each record's background r.m.s., hold 0.05 s, as psdgate shock)`)}
 ${row("Field SRS against the test's ERS", verdict)}
 </table>
-${rows ? `<table class="grid"><tr><th class="num">#</th><th>recording</th><th class="num">time s</th><th class="num">peak ${esc(u)}</th><th class="num">duration ms</th></tr>
+${
+  rows
+    ? `<table class="grid"><tr><th class="num">#</th><th>recording</th><th class="num">time s</th><th class="num">peak ${esc(u)}</th><th class="num">duration ms</th></tr>
 ${rows}
-</table>` : ""}
+</table>`
+    : ""
+}
 ${plot}`;
 }
 
@@ -98,20 +137,43 @@ function fieldPsdPlot(r: DeriveResult, lo: number, hi: number): string {
     for (const x of r.recordings) if (x.psd[k]! > 0) bottom = Math.min(bottom, x.psd[k]!);
   }
   for (const b of p.breakpoints) top = Math.max(top, b.level);
-  if (!(top > 0) || !Number.isFinite(bottom)) { top = 1; bottom = 1e-6; }
+  if (!(top > 0) || !Number.isFinite(bottom)) {
+    top = 1;
+    bottom = 1e-6;
+  }
   bottom = Math.max(bottom, top * 1e-6);
   const px = Float64Array.from(p.breakpoints.map((b) => b.hz));
   const py = px.map((x) => profileLevel(p, x));
   const psdSeries: Series[] = [
-    ...r.recordings.slice(0, 6).map((x, i) => ({ id: `field-${i}`, label: legendName(x, r), x: f, y: x.psd, className: `rec${i}` })),
+    ...r.recordings
+      .slice(0, 6)
+      .map((x, i) => ({ id: `field-${i}`, label: legendName(x, r), x: f, y: x.psd, className: `rec${i}` })),
     { id: "envelope", label: "envelope", x: f, y: r.envelope, className: "envelope" },
     { id: "mean", label: "mean", x: f, y: r.mean, className: "mean" },
-    ...(tl ? [{ id: "tolerance-limit", label: `P${fixed(100 * tl.coverage, 0)}/${fixed(100 * tl.confidence, 0)} limit`, x: f, y: tl.limit, className: "tlimit" }] : []),
+    ...(tl
+      ? [
+          {
+            id: "tolerance-limit",
+            label: `P${fixed(100 * tl.coverage, 0)}/${fixed(100 * tl.confidence, 0)} limit`,
+            x: f,
+            y: tl.limit,
+            className: "tlimit",
+          },
+        ]
+      : []),
     { id: "profile", label: "derived profile", x: px, y: py, className: "required" },
   ];
   return svgPlot({
-    id: "field-psd", title: `Field PSDs (${sig(r.lineSpacingHz, 3)} Hz lines) with their envelope, mean and limit, and the derived profile`,
-    xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(r.units)})`, xDomain: [lo, hi], yDomain: [bottom / 2, top * 2], yLog: true, xMarks: [lo, hi], series: psdSeries, height: 380,
+    id: "field-psd",
+    title: `Field PSDs (${sig(r.lineSpacingHz, 3)} Hz lines) with their envelope, mean and limit, and the derived profile`,
+    xLabel: "frequency (Hz)",
+    yLabel: `PSD (${densityLabel(r.units)})`,
+    xDomain: [lo, hi],
+    yDomain: [bottom / 2, top * 2],
+    yLog: true,
+    xMarks: [lo, hi],
+    series: psdSeries,
+    height: 380,
   });
 }
 
@@ -120,27 +182,71 @@ function damagePlots(r: DeriveResult, lo: number, hi: number, u: string): string
   const fdsTop = maxOf(r.fieldFatigue, r.testFatigue);
   const fdsBottom = minOf(r.fieldFatigue, r.testFatigue);
   const fdsPlot = svgPlot({
-    id: "fds", title: `Fatigue-damage spectra: field over ${sig(r.lifeS / 3600, 4)} h, test over ${sig(r.testDurationS, 4)} s (Q ${r.q}, b ${r.sn.basquinB})`,
-    xLabel: "natural frequency (Hz)", yLabel: "damage (relative)", xDomain: [lo, hi], yDomain: [fdsBottom / 3, fdsTop * 3], yLog: true, xMarks: [lo, hi],
-    series: [{ id: "field-fds", label: "field", x: r.fnHz, y: r.fieldFatigue, className: "field" }, { id: "test-fds", label: "test", x: r.fnHz, y: r.testFatigue, className: "test" }],
+    id: "fds",
+    title: `Fatigue-damage spectra: field over ${sig(r.lifeS / 3600, 4)} h, test over ${sig(r.testDurationS, 4)} s (Q ${r.q}, b ${r.sn.basquinB})`,
+    xLabel: "natural frequency (Hz)",
+    yLabel: "damage (relative)",
+    xDomain: [lo, hi],
+    yDomain: [fdsBottom / 3, fdsTop * 3],
+    yLog: true,
+    xMarks: [lo, hi],
+    series: [
+      { id: "field-fds", label: "field", x: r.fnHz, y: r.fieldFatigue, className: "field" },
+      { id: "test-fds", label: "test", x: r.fnHz, y: r.testFatigue, className: "test" },
+    ],
   });
   const ersTop = maxOf(r.fieldExtreme, r.testExtreme);
   const ersBottom = minOf(r.fieldExtreme, r.testExtreme);
   const ersPlot = svgPlot({
-    id: "ers", title: "Extreme-response spectra: expected largest peak, field over its life, test over its duration",
-    xLabel: "natural frequency (Hz)", yLabel: `largest peak (${u})`, xDomain: [lo, hi], yDomain: [ersBottom / 1.5, ersTop * 1.5], yLog: true, xMarks: [lo, hi],
-    series: [{ id: "field-ers", label: "field", x: r.fnHz, y: r.fieldExtreme, className: "field" }, { id: "test-ers", label: "test", x: r.fnHz, y: r.testExtreme, className: "test" }],
+    id: "ers",
+    title: "Extreme-response spectra: expected largest peak, field over its life, test over its duration",
+    xLabel: "natural frequency (Hz)",
+    yLabel: `largest peak (${u})`,
+    xDomain: [lo, hi],
+    yDomain: [ersBottom / 1.5, ersTop * 1.5],
+    yLog: true,
+    xMarks: [lo, hi],
+    series: [
+      { id: "field-ers", label: "field", x: r.fnHz, y: r.fieldExtreme, className: "field" },
+      { id: "test-ers", label: "test", x: r.fnHz, y: r.testExtreme, className: "test" },
+    ],
   });
   const over = Float64Array.from(r.fnHz.filter((_, i) => r.extremeRatio[i]! > r.extremeLimit));
   const fdsRatio = r.testFatigue.map((v, i) => v / r.fieldFatigue[i]!);
   const ratioPlot = svgPlot({
-    id: "ratios", title: "Test over field: extreme response, and damage^(1/b) (1 = just covered)",
-    xLabel: "natural frequency (Hz)", yLabel: "ratio", xDomain: [lo, hi], yDomain: [Math.min(0.9, minOf(r.extremeRatio) * 0.95), Math.max(r.extremeLimit, maxOf(r.extremeRatio)) * 1.1], yLog: false, xMarks: [lo, hi], height: 280,
+    id: "ratios",
+    title: "Test over field: extreme response, and damage^(1/b) (1 = just covered)",
+    xLabel: "natural frequency (Hz)",
+    yLabel: "ratio",
+    xDomain: [lo, hi],
+    yDomain: [Math.min(0.9, minOf(r.extremeRatio) * 0.95), Math.max(r.extremeLimit, maxOf(r.extremeRatio)) * 1.1],
+    yLog: false,
+    xMarks: [lo, hi],
+    height: 280,
     series: [
-      { id: "extreme-limit", label: `limit ×${r.extremeLimit}`, x: Float64Array.of(lo, hi), y: Float64Array.of(r.extremeLimit, r.extremeLimit), className: "limit" },
+      {
+        id: "extreme-limit",
+        label: `limit ×${r.extremeLimit}`,
+        x: Float64Array.of(lo, hi),
+        y: Float64Array.of(r.extremeLimit, r.extremeLimit),
+        className: "limit",
+      },
       { id: "extreme-ratio", label: "test ERS / field ERS", x: r.fnHz, y: r.extremeRatio, className: "ratio" },
-      { id: "damage-ratio", label: "(test FDS / field FDS)^(1/b)", x: r.fnHz, y: fdsRatio.map((v) => v ** (1 / r.sn.basquinB)), className: "test" },
-      { id: "extreme-over", label: over.length ? "above the limit" : "", x: over, y: over.map((x) => r.extremeRatio[[...r.fnHz].indexOf(x)]!), className: "over", markers: true },
+      {
+        id: "damage-ratio",
+        label: "(test FDS / field FDS)^(1/b)",
+        x: r.fnHz,
+        y: fdsRatio.map((v) => v ** (1 / r.sn.basquinB)),
+        className: "test",
+      },
+      {
+        id: "extreme-over",
+        label: over.length ? "above the limit" : "",
+        x: over,
+        y: over.map((x) => r.extremeRatio[[...r.fnHz].indexOf(x)]!),
+        className: "over",
+        markers: true,
+      },
     ],
   });
   return `${fdsPlot}
@@ -149,10 +255,22 @@ ${ratioPlot}`;
 }
 
 /** "The derived profile": its file, hash, level, motion, stroke, tolerance, coverage and extremes, its breakpoints and the PSD plot. */
-function derivedSection(r: DeriveResult, ctx: ReportContext, outFile: string, lo: number, hi: number, u: string): string {
+function derivedSection(
+  r: DeriveResult,
+  ctx: ReportContext,
+  outFile: string,
+  lo: number,
+  hi: number,
+  u: string,
+): string {
   const d = r.document;
   const p = r.profile;
-  const pts = p.breakpoints.map((b, i) => `<tr><td class="num">${sig(b.hz, 5)}</td><td class="num">${sig(b.level, 4)}</td><td class="num">${p.segments[i] ? fixed(p.segments[i]!.slopeDbPerOctave, 2) : ""}</td></tr>`).join("\n");
+  const pts = p.breakpoints
+    .map(
+      (b, i) =>
+        `<tr><td class="num">${sig(b.hz, 5)}</td><td class="num">${sig(b.level, 4)}</td><td class="num">${p.segments[i] ? fixed(p.segments[i]!.slopeDbPerOctave, 2) : ""}</td></tr>`,
+    )
+    .join("\n");
   return `<h2>The derived profile</h2>
 <table class="meta" id="derived">
 ${row("Profile file", esc(outFile))}
@@ -175,11 +293,18 @@ ${fieldPsdPlot(r, lo, hi)}`;
 /** "Field recordings and the service life": how the life was shared, the mean and the limit, the groups and each recording. */
 function fieldSection(r: DeriveResult, u: string): string {
   const t = r.tolerance;
-  const rec = r.recordings.map((x) => `<tr><td>${esc(x.file)}<br><span class="hash">${x.sha256}</span></td><td>${esc(x.group)}</td><td class="num">${fixed(x.durationS, 1)}</td><td class="num">${sig(x.serviceS / 3600, 5)}</td><td class="num">${sig(x.bandRms, 4)}</td><td class="num">${fixed(x.dof, 0)}</td><td>${x.stationary === undefined ? "not tested" : x.stationary ? "yes" : `<strong>no</strong>: ${esc(x.stationarityNote ? findingText(x.stationarityNote) : "")}`}</td></tr>`).join("\n");
-  const groups = r.groups.map((g) => {
-    const share = [...g.damageShare];
-    return `<tr><td>${esc(g.name)}</td><td class="num">${sig(g.serviceS / 3600, 5)}</td><td class="num">${fixed(100 * Math.min(...share), 1)}–${fixed(100 * Math.max(...share), 1)} %</td></tr>`;
-  }).join("\n");
+  const rec = r.recordings
+    .map(
+      (x) =>
+        `<tr><td>${esc(x.file)}<br><span class="hash">${x.sha256}</span></td><td>${esc(x.group)}</td><td class="num">${fixed(x.durationS, 1)}</td><td class="num">${sig(x.serviceS / 3600, 5)}</td><td class="num">${sig(x.bandRms, 4)}</td><td class="num">${fixed(x.dof, 0)}</td><td>${x.stationary === undefined ? "not tested" : x.stationary ? "yes" : `<strong>no</strong>: ${esc(x.stationarityNote ? findingText(x.stationarityNote) : "")}`}</td></tr>`,
+    )
+    .join("\n");
+  const groups = r.groups
+    .map((g) => {
+      const share = [...g.damageShare];
+      return `<tr><td>${esc(g.name)}</td><td class="num">${sig(g.serviceS / 3600, 5)}</td><td class="num">${fixed(100 * Math.min(...share), 1)}–${fixed(100 * Math.max(...share), 1)} %</td></tr>`;
+    })
+    .join("\n");
   return `<h2>Field recordings and the service life</h2>
 <table class="meta">
 ${row("Service life", `${qty(sig(r.lifeS / 3600, 6), "h")} (${esc(r.lifeRule === "mix file hours" ? "the mix file's hours" : "given with --life, shared by the recordings' analysed durations")}); each group's time is shared among its recordings by their analysed durations`)}
@@ -195,8 +320,17 @@ ${rec}
 }
 
 /** The settings table: damage and extreme rules, the SDOF systems, the fit, the options given, the version. */
-function settingsTable(r: DeriveResult, ctx: ReportContext, version: string, when: Date, lo: number, hi: number): string {
-  const given = ctx.given && ctx.given.length ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
+function settingsTable(
+  r: DeriveResult,
+  ctx: ReportContext,
+  version: string,
+  when: Date,
+  lo: number,
+  hi: number,
+): string {
+  const given = ctx.given?.length
+    ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ")
+    : `<span class="muted">none (every setting at its default)</span>`;
   return `<table class="meta" id="settings">
 ${row("Damage", esc(DAMAGE_RULE))}
 ${row("Extreme response", esc(EXTREME_RULE))}
@@ -207,7 +341,12 @@ ${row("Computed", `psdgate ${esc(version)}, ${esc(stamp(when))}`)}
 </table>`;
 }
 
-export function deriveHtml(r: DeriveResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> & { outFile: string }): string {
+export function deriveHtml(
+  r: DeriveResult,
+  version: string,
+  when: Date,
+  context: Omit<ReportContext, "version" | "when"> & { outFile: string },
+): string {
   const ctx: ReportContext = { ...context, version, when };
   const u = accelLabel(r.units);
   const d = r.document;
@@ -227,20 +366,52 @@ ${fieldSection(r, u)}
 ${damagePlots(r, lo, hi, u)}
 ${settingsTable(r, ctx, version, when, lo, hi)}
 ${shockSection(r, lo, hi, u)}
-${r.notes.length ? `<h2>Notes</h2><ul>${findingTexts(r.notes).map((n) => `<li>${esc(n)}</li>`).join("")}</ul>` : ""}
+${
+  r.notes.length
+    ? `<h2>Notes</h2><ul>${findingTexts(r.notes)
+        .map((n) => `<li>${esc(n)}</li>`)
+        .join("")}</ul>`
+    : ""
+}
 <h2>Caution</h2>
 <div class="caution keep">${esc(DERIVE_CAUTION)}</div>
 <div class="caution keep">${esc(SHAKER_CAUTION)}</div>
 ${signOff(`<strong>Derived profile</strong>: ${esc(summary)}`, [
-    ["Test", esc([ctx.meta?.testId, ctx.meta?.workOrder && `work order ${ctx.meta.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
-    ["Item", esc([ctx.meta?.item, ctx.meta?.serialNumber && `serial ${ctx.meta.serialNumber}`].filter(Boolean).join(", ") || "not stated")],
-    ["Profile", `${esc(d.title)} <span class="hash">${shortHash(p.sha256)}</span>`],
-    ["Field recordings", esc(`${r.recordings.length} (${r.groups.map((g) => g.name).join(", ")})`)],
-    ["Operator", esc(ctx.meta?.operator ?? "not stated")],
-  ])}`;
-  const page = reportPage({
-    title: ctx.meta?.testId ? `Derived test profile, test ${ctx.meta.testId}: ${d.title}` : `Derived test profile: ${d.title}`, verdictClass: "none", verdictWord: DERIVE_WORD, recordingSha256: p.sha256, recordingName: name,
-    kindLine: "Field-to-lab derivation record", body, hashLabel: "profile",
-  }, ctx);
-  return embedResult(page, recordDocument("derive", ctx, deriveJson(r, version), { written: { file: context.outFile, sha256: p.sha256 } }));
+  [
+    "Test",
+    esc(
+      [ctx.meta?.testId, ctx.meta?.workOrder && `work order ${ctx.meta.workOrder}`].filter(Boolean).join(", ") ||
+        "not identified (no --meta)",
+    ),
+  ],
+  [
+    "Item",
+    esc(
+      [ctx.meta?.item, ctx.meta?.serialNumber && `serial ${ctx.meta.serialNumber}`].filter(Boolean).join(", ") ||
+        "not stated",
+    ),
+  ],
+  ["Profile", `${esc(d.title)} <span class="hash">${shortHash(p.sha256)}</span>`],
+  ["Field recordings", esc(`${r.recordings.length} (${r.groups.map((g) => g.name).join(", ")})`)],
+  ["Operator", esc(ctx.meta?.operator ?? "not stated")],
+])}`;
+  const page = reportPage(
+    {
+      title: ctx.meta?.testId
+        ? `Derived test profile, test ${ctx.meta.testId}: ${d.title}`
+        : `Derived test profile: ${d.title}`,
+      verdictClass: "none",
+      verdictWord: DERIVE_WORD,
+      recordingSha256: p.sha256,
+      recordingName: name,
+      kindLine: "Field-to-lab derivation record",
+      body,
+      hashLabel: "profile",
+    },
+    ctx,
+  );
+  return embedResult(
+    page,
+    recordDocument("derive", ctx, deriveJson(r, version), { written: { file: context.outFile, sha256: p.sha256 } }),
+  );
 }

@@ -50,7 +50,7 @@ export interface ExtractedResult {
 
 /** Read the result back out of a report and check both digests. */
 export function extractResult(html: string): ExtractedResult {
-  const m = /<template id="psdgate-result" data-sha256="([0-9a-f]{64})">([^]*?)<\/template>/.exec(html);
+  const m = /<template id="psdgate-result" data-sha256="([0-9a-f]{64})">([\s\S]*?)<\/template>/.exec(html);
   if (!m) return { found: false, resultIntact: false, pageIntact: false };
   const json = unescapeText(m[2]!);
   const resultIntact = sha256Hex(json) === m[1];

@@ -26,8 +26,11 @@ export function table(rows: string[][], indent = "  "): string {
   const widths: number[] = [];
   const numeric: boolean[] = [];
   for (const r of rows) r.forEach((c, i) => (widths[i] = Math.max(widths[i] ?? 0, [...c].length)));
-  rows[0]?.forEach((_, i) => (numeric[i] = rows.slice(1).every((r) => /^[-+]?\d/.test(r[i] ?? "") || (r[i] ?? "") === "")));
-  const pad = (c: string, i: number) => (numeric[i] ? c.padStart(widths[i]! + c.length - [...c].length) : c.padEnd(widths[i]! + c.length - [...c].length));
+  rows[0]?.forEach(
+    (_, i) => (numeric[i] = rows.slice(1).every((r) => /^[-+]?\d/.test(r[i] ?? "") || (r[i] ?? "") === "")),
+  );
+  const pad = (c: string, i: number) =>
+    numeric[i] ? c.padStart(widths[i]! + c.length - [...c].length) : c.padEnd(widths[i]! + c.length - [...c].length);
   return rows.map((r) => indent + r.map(pad).join("  ").trimEnd()).join("\n");
 }
 

@@ -9,7 +9,18 @@ import { embedResult } from "./embeddedResult.js";
 import { decideLine, excursionJudgement, RULE_SUMMARY, ruleLine, TONE_RULE, VERDICT_MEANING } from "./ruleText.js";
 import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
 import { provenanceSummary, toleranceSummary } from "./profileText.js";
-import { qty, reportOpening, reportPage, STYLE as PAGE_STYLE, row, segmentRmsLabel, shortHash, signOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import {
+  qty,
+  reportOpening,
+  reportPage,
+  STYLE as PAGE_STYLE,
+  row,
+  segmentRmsLabel,
+  shortHash,
+  signOff,
+  timeRmsLabel,
+  type ReportContext,
+} from "./reportPage.js";
 import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
 import { findingTexts } from "./findingTexts.js";
 
@@ -49,7 +60,12 @@ function shortJudgement(e: Excursion): string {
 function toneTable(comp: ChannelCompliance, u: string, n: number): string {
   const tones = comp.tones ?? [];
   if (tones.length === 0) return "";
-  const rows = tones.map((t) => `<tr><td>${esc(t.name)}</td><td class="num">${sig(t.hz, 6)} ± ${sig(t.toleranceHz, 3)}</td><td class="num">${t.unseen ? "not seen" : sig(t.measuredHz, 7)}</td><td class="num">${sig(t.requiredPeak, 4)} (${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)})</td><td class="num">${t.unseen ? "above Nyquist" : `${sig(t.measuredPeak, 4)} ± ${sig(t.peakSd, 2)}`}</td><td class="num">${t.unseen ? "" : esc(signedDb(t.deviationDb))}</td><td><span class="chip ${t.verdict}">${VERDICT_TEXT[t.verdict].word}</span>${t.status !== "within" ? ` ${esc(t.status)}` : ""}</td></tr>`).join("");
+  const rows = tones
+    .map(
+      (t) =>
+        `<tr><td>${esc(t.name)}</td><td class="num">${sig(t.hz, 6)} ± ${sig(t.toleranceHz, 3)}</td><td class="num">${t.unseen ? "not seen" : sig(t.measuredHz, 7)}</td><td class="num">${sig(t.requiredPeak, 4)} (${sig(t.lowerPeak, 4)}–${sig(t.upperPeak, 4)})</td><td class="num">${t.unseen ? "above Nyquist" : `${sig(t.measuredPeak, 4)} ± ${sig(t.peakSd, 2)}`}</td><td class="num">${t.unseen ? "" : esc(signedDb(t.deviationDb))}</td><td><span class="chip ${t.verdict}">${VERDICT_TEXT[t.verdict].word}</span>${t.status !== "within" ? ` ${esc(t.status)}` : ""}</td></tr>`,
+    )
+    .join("");
   return `<h3>Tones</h3>
 <p>Each tone's peak is a least-squares sine fit over the whole record at the frequency that maximises its periodogram; ± is its standard deviation √(G/T) on the background around it. Its lines (${tones.map((t) => `${sig(t.linesFromHz, 5)}–${sig(t.linesToHz, 5)} Hz`).join(", ")}) are left out of the background's judgement. Each tone's false-fail rate is at most ${sig(100 * tones[0]!.falseFailRate, 2)} % (the tones share 1 % of the 5 %).</p>
 <table class="tones grid" id="tones-${n}"><thead><tr><th>tone</th><th class="num">Hz required</th><th class="num">Hz measured</th><th class="num">peak required (limits), ${esc(u)}</th><th class="num">peak measured, ${esc(u)}</th><th class="num">deviation</th><th>verdict</th></tr></thead><tbody>${rows}</tbody></table>`;
@@ -57,13 +73,24 @@ function toneTable(comp: ChannelCompliance, u: string, n: number): string {
 
 function excursionTable(list: Excursion[], linesChecked: number, id: string): string {
   if (list.length === 0) return `<p>No line lies outside its tolerance band (${linesChecked} lines checked).</p>`;
-  const rows = worstFirst(list).map((e) => `<tr${e.shown ? ' class="shown-row"' : ""}><td>${range(e)} (${e.direction}, ${e.lines} line${e.lines === 1 ? "" : "s"})</td><td class="num">${esc(signedDb(e.worstDb))} at ${qty(sig(e.worstHz, 5), "Hz")}</td><td class="num">${esc(signedDb(e.limitDb))}</td><td>${esc(shortJudgement(e))}</td></tr>`).join("");
+  const rows = worstFirst(list)
+    .map(
+      (e) =>
+        `<tr${e.shown ? ' class="shown-row"' : ""}><td>${range(e)} (${e.direction}, ${e.lines} line${e.lines === 1 ? "" : "s"})</td><td class="num">${esc(signedDb(e.worstDb))} at ${qty(sig(e.worstHz, 5), "Hz")}</td><td class="num">${esc(signedDb(e.limitDb))}</td><td>${esc(shortJudgement(e))}</td></tr>`,
+    )
+    .join("");
   const shown = list.filter((e) => e.shown).length;
   return `<p>${list.length} excursion${list.length === 1 ? "" : "s"} as measured (${shown} shown by the rule), worst first; every one is listed. <em>Shown</em>: ${esc(excursionJudgement({ ...list[0]!, shown: true, adjustedP: 0 }).replace(/^shown \(|; adjusted p.*$/g, ""))}; <em>not shown</em>: chance among the lines tested could explain it; a run of the stated length would show it with 90 % probability if it is as measured.</p>
 <table class="excursions grid" id="${id}"><thead><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 
-function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckResult, n: number, role: CheckResult["roles"][number]): string {
+function channelSection(
+  c: ChannelAnalysis,
+  comp: ChannelCompliance,
+  r: CheckResult,
+  n: number,
+  role: CheckResult["roles"][number],
+): string {
   const p = r.profile;
   const a = r.analysis;
   const u = accelLabel(c.units);
@@ -80,28 +107,59 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
   }
   const shownLines = comp.lines.filter((l) => l.shown);
   const outerLines = comp.lines.filter((l) => l.outerUpperDb !== undefined);
-  const outerSeries = (dev: boolean) => outerLines.length === 0 ? [] : [
-    { id: dev ? "dev-outer-upper" : "outer-upper", label: "outer limits", x: outerLines.map((l) => l.frequencyHz), y: outerLines.map((l) => (dev ? l.outerUpperDb! : l.required * 10 ** (l.outerUpperDb! / 10))), className: "outer" },
-    { id: dev ? "dev-outer-lower" : "outer-lower", label: "", x: outerLines.map((l) => l.frequencyHz), y: outerLines.map((l) => (dev ? -l.outerLowerDb! : l.required * 10 ** (-l.outerLowerDb! / 10))), className: "outer" },
-  ];
+  const outerSeries = (dev: boolean) =>
+    outerLines.length === 0
+      ? []
+      : [
+          {
+            id: dev ? "dev-outer-upper" : "outer-upper",
+            label: "outer limits",
+            x: outerLines.map((l) => l.frequencyHz),
+            y: outerLines.map((l) => (dev ? l.outerUpperDb! : l.required * 10 ** (l.outerUpperDb! / 10))),
+            className: "outer",
+          },
+          {
+            id: dev ? "dev-outer-lower" : "outer-lower",
+            label: "",
+            x: outerLines.map((l) => l.frequencyHz),
+            y: outerLines.map((l) => (dev ? -l.outerLowerDb! : l.required * 10 ** (-l.outerLowerDb! / 10))),
+            className: "outer",
+          },
+        ];
   // Required profile drawn through its breakpoints (exact corners).
   const reqX = p.breakpoints.map((b) => b.hz);
   const reqY = reqX.map((x) => profileLevel(p, x));
   const vals: number[] = [];
   // The y range follows the profile's band and the record inside it; the rest is clipped.
-  for (let k = 0; k < f.length; k++) if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
+  for (let k = 0; k < f.length; k++)
+    if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
   // Mixed mode: each tone marked on the measured PSD's highest line within its lines, with its required and measured peak.
   const tonePeaks = (comp.tones ?? []).map((t) => {
     let best = -1;
-    for (let k = 0; k < f.length; k++) if (f[k]! >= t.linesFromHz && f[k]! <= t.linesToHz && (best < 0 || c.psd.psd[k]! > c.psd.psd[best]!)) best = k;
-    return { x: best >= 0 ? f[best]! : t.hz, y: best >= 0 ? c.psd.psd[best]! : NaN, id: `tone-${sig(t.hz, 6)}`, text: `${sig(t.hz, 5)} Hz: ${sig(t.requiredPeak, 3)} required, ${sig(t.measuredPeak, 3)} ${u} peak measured` };
+    for (let k = 0; k < f.length; k++)
+      if (f[k]! >= t.linesFromHz && f[k]! <= t.linesToHz && (best < 0 || c.psd.psd[k]! > c.psd.psd[best]!)) best = k;
+    return {
+      x: best >= 0 ? f[best]! : t.hz,
+      y: best >= 0 ? c.psd.psd[best]! : NaN,
+      id: `tone-${sig(t.hz, 6)}`,
+      text: `${sig(t.hz, 5)} Hz: ${sig(t.requiredPeak, 3)} required, ${sig(t.measuredPeak, 3)} ${u} peak measured`,
+    };
   });
-  const oy = outerLines.flatMap((l) => [l.required * 10 ** (l.outerUpperDb! / 10), l.required * 10 ** (-l.outerLowerDb! / 10)]);
+  const oy = outerLines.flatMap((l) => [
+    l.required * 10 ** (l.outerUpperDb! / 10),
+    l.required * 10 ** (-l.outerLowerDb! / 10),
+  ]);
   const ymin = minOf(vals, dn, up, oy) / 3;
   const ymax = maxOf(vals, dn, up, oy) * 3;
   const psdPlot = svgPlot({
-    id: `psd-${n}`, title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
-    xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(c.units)})`, xDomain: [lo, hi], yDomain: [ymin, ymax], yLog: true, xMarks: [f0, fN],
+    id: `psd-${n}`,
+    title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
+    xLabel: "frequency (Hz)",
+    yLabel: `PSD (${densityLabel(c.units)})`,
+    xDomain: [lo, hi],
+    yDomain: [ymin, ymax],
+    yLog: true,
+    xMarks: [f0, fN],
     series: [
       { id: "confidence", label: "confidence band", x: f, y: c.psd.lower, y2: c.psd.upper, className: "band" },
       { id: "limits-upper", label: "tolerance", x: lx, y: up, className: "limit" },
@@ -109,33 +167,89 @@ function channelSection(c: ChannelAnalysis, comp: ChannelCompliance, r: CheckRes
       ...outerSeries(false),
       { id: "required", label: "required", x: reqX, y: reqY, className: "required" },
       { id: "measured", label: "measured", x: f, y: c.psd.psd, className: "measured" },
-      ...(shownLines.length > 0 ? [{ id: "shown", label: "line shown outside", x: shownLines.map((l) => l.frequencyHz), y: shownLines.map((l) => l.measured), className: "shown", markers: true }] : []),
-      ...(tonePeaks.length > 0 ? [{ id: "tones", label: "tone", x: tonePeaks.map((t) => t.x), y: tonePeaks.map((t) => t.y), className: "tone", markers: true }] : []),
+      ...(shownLines.length > 0
+        ? [
+            {
+              id: "shown",
+              label: "line shown outside",
+              x: shownLines.map((l) => l.frequencyHz),
+              y: shownLines.map((l) => l.measured),
+              className: "shown",
+              markers: true,
+            },
+          ]
+        : []),
+      ...(tonePeaks.length > 0
+        ? [
+            {
+              id: "tones",
+              label: "tone",
+              x: tonePeaks.map((t) => t.x),
+              y: tonePeaks.map((t) => t.y),
+              className: "tone",
+              markers: true,
+            },
+          ]
+        : []),
     ],
     notes: tonePeaks.map((t) => ({ x: t.x, y: t.y, text: t.text, id: t.id })),
   });
   const devs = comp.lines.map((l) => l.deviationDb);
-  const dmax = maxOf([6], comp.lines.map((l) => l.upperDb + 1), outerLines.map((l) => Math.max(l.outerUpperDb!, l.outerLowerDb!) + 1), devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1));
+  const dmax = maxOf(
+    [6],
+    comp.lines.map((l) => l.upperDb + 1),
+    outerLines.map((l) => Math.max(l.outerUpperDb!, l.outerLowerDb!) + 1),
+    devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1),
+  );
   const devPlot = svgPlot({
-    id: `dev-${n}`, title: "Deviation from the required profile (same frequency axis)", xLabel: "frequency (Hz)", yLabel: "deviation (dB)",
-    xDomain: [lo, hi], yDomain: [-dmax, dmax], yLog: false, xMarks: [f0, fN], height: 250,
+    id: `dev-${n}`,
+    title: "Deviation from the required profile (same frequency axis)",
+    xLabel: "frequency (Hz)",
+    yLabel: "deviation (dB)",
+    xDomain: [lo, hi],
+    yDomain: [-dmax, dmax],
+    yLog: false,
+    xMarks: [f0, fN],
+    height: 250,
     series: [
       { id: "dev-upper", label: "band limits", x: lx, y: comp.lines.map((l) => l.upperDb), className: "limit" },
       { id: "dev-lower", label: "", x: lx, y: comp.lines.map((l) => -l.lowerDb), className: "limit" },
       ...outerSeries(true),
       { id: "deviation", label: "10 log10(measured / required)", x: lx, y: devs, className: "deviation" },
-      ...(shownLines.length > 0 ? [{ id: "dev-shown", label: "shown outside", x: shownLines.map((l) => l.frequencyHz), y: shownLines.map((l) => l.deviationDb), className: "shown", markers: true }] : []),
+      ...(shownLines.length > 0
+        ? [
+            {
+              id: "dev-shown",
+              label: "shown outside",
+              x: shownLines.map((l) => l.frequencyHz),
+              y: shownLines.map((l) => l.deviationDb),
+              className: "shown",
+              markers: true,
+            },
+          ]
+        : []),
     ],
   });
   const hist = histogramOf(c, n);
-  const tolRms = comp.rms.upperDb !== undefined ? `+${fixed(comp.rms.upperDb, 2)} / −${fixed(comp.rms.lowerDb!, 2)} dB` : "none stated";
+  const tolRms =
+    comp.rms.upperDb !== undefined
+      ? `+${fixed(comp.rms.upperDb, 2)} / −${fixed(comp.rms.lowerDb!, 2)} dB`
+      : "none stated";
   const s = c.stats;
   const un = comp.unjudged;
-  const unjudged = [un.edge ? `${un.edge} at the profile's ends (the window's kernel reaches past them)` : "", un.detrend ? `${un.detrend} biased by detrending` : "", un.aboveRecord ? `${un.aboveRecord} above the record's Nyquist frequency` : ""].filter(Boolean).join(", ");
+  const unjudged = [
+    un.edge ? `${un.edge} at the profile's ends (the window's kernel reaches past them)` : "",
+    un.detrend ? `${un.detrend} biased by detrending` : "",
+    un.aboveRecord ? `${un.aboveRecord} above the record's Nyquist frequency` : "",
+  ]
+    .filter(Boolean)
+    .join(", ");
   const judged = role !== "monitor";
   return `<section class="channel" id="channel-${n}">
 <h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel" : "monitoring channel"} judged alone (the record's verdict rests on the control spectrum above):</span> <span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>`}</h2>
-<ul>${findingTexts(comp.findings).map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
+<ul>${findingTexts(comp.findings)
+    .map((x) => `<li>${esc(x)}</li>`)
+    .join("")}</ul>
 ${psdPlot}
 ${devPlot}
 <h3>Levels and statistics</h3>
@@ -179,7 +293,14 @@ export function histogramOf(c: ChannelAnalysis, n: number): string {
       gy.push(Math.exp(-0.5 * ((v - c.stats.mean) / c.stats.std) ** 2) / (c.stats.std * Math.sqrt(2 * Math.PI)));
     }
   }
-  const hist = svgHistogram(`hist-${n}`, `Amplitude histogram of channel ${c.position} and the Gaussian of the same mean and σ (dashed)`, `acceleration (${accelLabel(c.units)})`, h.edges, h.density, { x: gx, y: gy });
+  const hist = svgHistogram(
+    `hist-${n}`,
+    `Amplitude histogram of channel ${c.position} and the Gaussian of the same mean and σ (dashed)`,
+    `acceleration (${accelLabel(c.units)})`,
+    h.edges,
+    h.density,
+    { x: gx, y: gy },
+  );
   return `<div class="keep">${hist}${h.underflow + h.overflow > 0 ? `<p class="muted">${h.underflow + h.overflow} samples fell outside the histogram's range.</p>` : ""}</div>`;
 }
 
@@ -187,7 +308,9 @@ function controlSection(r: CheckResult): string {
   const c = r.control!;
   const j = c.judgement;
   return `<section class="channel" id="control"><h2>Control spectrum: ${esc(c.rule)} of ${c.channels.map(esc).join(", ")} <span class="chip ${j.verdict}">${VERDICT_TEXT[j.verdict].word}</span></h2>
-<ul>${findingTexts(j.findings).map((x) => `<li>${esc(x)}</li>`).join("")}</ul>
+<ul>${findingTexts(j.findings)
+    .map((x) => `<li>${esc(x)}</li>`)
+    .join("")}</ul>
 <table>${row("RMS in the profile's range, measured / required", `${sig(j.rms.measured, 4)} / ${sig(j.rms.required, 4)} (${esc(signedDb(j.rms.deviationDb))})`, "num")}
 ${row("Degrees of freedom", `${fixed(j.dof.achieved, 1)} (the smallest of the control channels'), ${j.dof.forPower} for the rule's power`, "num")}
 ${row("Decision rule here", esc(ruleLine(j)))}</table>
@@ -203,12 +326,22 @@ ${excursionTable(j.excursions, j.lines.length, "excursions-control")}
 function runReasons(r: CheckResult): string {
   const deciding: [string, ChannelCompliance][] = r.control
     ? [[`control spectrum (${r.control.rule} of ${r.control.channels.join(", ")})`, r.control.judgement]]
-    : r.channels.map((c, i) => [`channel ${r.analysis.channels[i]!.position} “${r.analysis.channels[i]!.name}”`, c] as [string, ChannelCompliance]);
+    : r.channels.map(
+        (c, i) =>
+          [`channel ${r.analysis.channels[i]!.position} “${r.analysis.channels[i]!.name}”`, c] as [
+            string,
+            ChannelCompliance,
+          ],
+      );
   const items = deciding.map(([name, c]) => {
     const w = worstFirst(c.excursions)[0];
-    const worst = w ? `worst excursion ${w.fromHz === w.toHz ? `${sig(w.fromHz, 5)} Hz` : `${sig(w.fromHz, 5)}–${sig(w.toHz, 5)} Hz`} (${w.lines} line${w.lines === 1 ? "" : "s"}, ${w.direction}) ${signedDb(w.worstDb)} against a limit of ${signedDb(w.limitDb)}, ${w.shown ? "shown" : "not shown"}` : "no line outside its band";
+    const worst = w
+      ? `worst excursion ${w.fromHz === w.toHz ? `${sig(w.fromHz, 5)} Hz` : `${sig(w.fromHz, 5)}–${sig(w.toHz, 5)} Hz`} (${w.lines} line${w.lines === 1 ? "" : "s"}, ${w.direction}) ${signedDb(w.worstDb)} against a limit of ${signedDb(w.limitDb)}, ${w.shown ? "shown" : "not shown"}`
+      : "no line outside its band";
     const decide = decideLine(c);
-    const because = findingTexts(c.findings).map((x) => esc(x)).join("; ");
+    const because = findingTexts(c.findings)
+      .map((x) => esc(x))
+      .join("; ");
     return `<li><strong>${esc(name)}: ${VERDICT_TEXT[c.verdict].word}</strong>. ${because.charAt(0).toUpperCase() + because.slice(1)}. ${esc(worst.charAt(0).toUpperCase() + worst.slice(1))}; ${fixed(c.dof.achieved, 1)} DOF of ${Math.max(c.dof.forPower, c.dof.required ?? 0)} a pass needs.${decide ? ` ${esc(decide.charAt(0).toUpperCase() + decide.slice(1))}.` : ""}</li>`;
   });
   return `<div id="run-reasons"><h2>This run</h2><ul>${items.join("")}</ul></div>`;
@@ -217,19 +350,34 @@ function runReasons(r: CheckResult): string {
 /** The result embedded in every check report (what `psdgate verify` re-runs and compares). */
 export function checkResultDocument(r: CheckResult, ctx: ReportContext): Record<string, unknown> {
   return {
-    kind: "check", created: ctx.when.toISOString(), meta: ctx.meta ?? null, rerun: ctx.rerun ?? null, given: ctx.given ?? [],
+    kind: "check",
+    created: ctx.when.toISOString(),
+    meta: ctx.meta ?? null,
+    rerun: ctx.rerun ?? null,
+    given: ctx.given ?? [],
     result: checkJson(r, ctx.version, ctx.meta),
   };
 }
 
-export function checkHtml(r: CheckResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}): string {
+export function checkHtml(
+  r: CheckResult,
+  version: string,
+  when: Date,
+  context: Omit<ReportContext, "version" | "when"> = {},
+): string {
   const ctx: ReportContext = { ...context, version, when };
   const a = r.analysis;
   const p = r.profile;
   const v = VERDICT_TEXT[r.verdict];
   const m = ctx.meta;
   const body = `${reportOpening({
-    verdictClass: r.verdict, word: v.word, line: v.line, meta: m, a, ctx, reasons: runReasons(r),
+    verdictClass: r.verdict,
+    word: v.word,
+    line: v.line,
+    meta: m,
+    a,
+    ctx,
+    reasons: runReasons(r),
     extraRecordRows: `${row("Duration required", p.durationS !== undefined ? `${qty(sig(p.durationS, 4), "s")} (the profile's durationS): ${a.window.frames / a.input.sampleRateHz >= p.durationS * (1 - 1e-9) ? "met" : "NOT met"} by the ${a.window.frames === a.input.samples ? "record's" : "analysed window's"} ${qty(fixed(a.window.frames / a.input.sampleRateHz, 3), "s")}` : "none stated by the profile")}
 ${row("Profile", esc(p.file))}
 ${row("Profile SHA-256", `<span class="hash">${p.sha256}</span>`)}
@@ -247,15 +395,36 @@ ${a.channels.map((c, i) => channelSection(c, r.channels[i]!, r, i + 1, r.roles[i
 <h2>Caution</h2>
 <div class="caution">${esc(VERDICT_CAUTION)}</div>
 ${signOff(`<strong>${v.word}</strong>: ${esc(VERDICT_MEANING[r.verdict])}.`, [
-    ["Test", esc([m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
-    ["Item", esc([m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`].filter(Boolean).join(", ") || "not stated")],
-    ["Recording", `${esc(a.input.file)} <span class="hash">${shortHash(a.input.sha256)}</span>`],
-    ["Profile", `${esc(p.title)} <span class="hash">${shortHash(p.sha256)}</span>`],
-    ["Operator", esc(m?.operator ?? "not stated")],
-  ])}`;
-  const page = reportPage({
-    title: p.title, verdictClass: r.verdict, verdictWord: v.word, recordingSha256: a.input.sha256, recordingName: a.input.file.split(/[\\/]/).pop() ?? a.input.file,
-    kindLine: "Random-vibration compliance record", body,
-  }, ctx);
+  [
+    "Test",
+    esc(
+      [m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") ||
+        "not identified (no --meta)",
+    ),
+  ],
+  [
+    "Item",
+    esc(
+      [m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`]
+        .filter(Boolean)
+        .join(", ") || "not stated",
+    ),
+  ],
+  ["Recording", `${esc(a.input.file)} <span class="hash">${shortHash(a.input.sha256)}</span>`],
+  ["Profile", `${esc(p.title)} <span class="hash">${shortHash(p.sha256)}</span>`],
+  ["Operator", esc(m?.operator ?? "not stated")],
+])}`;
+  const page = reportPage(
+    {
+      title: p.title,
+      verdictClass: r.verdict,
+      verdictWord: v.word,
+      recordingSha256: a.input.sha256,
+      recordingName: a.input.file.split(/[\\/]/).pop() ?? a.input.file,
+      kindLine: "Random-vibration compliance record",
+      body,
+    },
+    ctx,
+  );
   return embedResult(page, checkResultDocument(r, ctx));
 }

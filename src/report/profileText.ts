@@ -6,10 +6,16 @@ import { toolInfo } from "./psdJson.js";
 import { printable } from "./printable.js";
 
 export function toleranceSummary(p: TestProfile): string {
-  const bands = p.bands.map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`).join(", ");
-  const rms = p.rmsToleranceDb ? `, RMS +${fixed(p.rmsToleranceDb.upper, 2)}/-${fixed(p.rmsToleranceDb.lower, 2)} dB` : "";
+  const bands = p.bands
+    .map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`)
+    .join(", ");
+  const rms = p.rmsToleranceDb
+    ? `, RMS +${fixed(p.rmsToleranceDb.upper, 2)}/-${fixed(p.rmsToleranceDb.lower, 2)} dB`
+    : "";
   const allow = p.allowedOutsidePercent ? `, ${sig(p.allowedOutsidePercent, 3)} % of lines may lie outside` : "";
-  const outer = p.outerBands ? `; outer limits ${p.outerBands.map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`).join(", ")}` : "";
+  const outer = p.outerBands
+    ? `; outer limits ${p.outerBands.map((b) => `${sig(b.fromHz)}–${sig(b.toHz)} Hz +${sig(b.upperDb, 3)}/-${sig(b.lowerDb, 3)} dB`).join(", ")}`
+    : "";
   return `${bands}${rms}${allow}${p.minDof !== undefined ? `, at least ${p.minDof} DOF` : ""}${outer}`;
 }
 
@@ -30,7 +36,12 @@ export function provenanceParameters(p: TestProfile): string[] {
 
 /** The shaker caution, saying how the stroke was estimated when the profile has tones. */
 function shakerCaution(p: TestProfile): string {
-  return p.tones.length === 0 ? SHAKER_CAUTION : SHAKER_CAUTION.replace("(peak-to-peak taken as 6 x RMS, a ±3 sigma excursion: common practice)", "(peak-to-peak taken as 6 x the random part's RMS, a ±3 sigma excursion: common practice, plus twice each tone's displacement peak, since the peaks can line up)");
+  return p.tones.length === 0
+    ? SHAKER_CAUTION
+    : SHAKER_CAUTION.replace(
+        "(peak-to-peak taken as 6 x RMS, a ±3 sigma excursion: common practice)",
+        "(peak-to-peak taken as 6 x the random part's RMS, a ±3 sigma excursion: common practice, plus twice each tone's displacement peak, since the peaks can line up)",
+      );
 }
 
 /** The tones of a mixed-mode profile and the total RMS (random plus the sum of peak^2 / 2). */
@@ -38,7 +49,10 @@ function toneLines(p: TestProfile): string[] {
   if (p.tones.length === 0) return [];
   const u = accelLabel(p.units);
   return [
-    ...p.tones.map((t) => `  tone       ${sig(t.hz, 6)} Hz ± ${sig(t.toleranceHz, 3)} Hz, ${sig(t.peak, 5)} ${u} peak (+${sig(t.upperDb, 3)}/-${sig(t.lowerDb, 3)} dB)${t.label !== `tone at ${t.hz} Hz` ? `: ${printable(t.label)}` : ""}`),
+    ...p.tones.map(
+      (t) =>
+        `  tone       ${sig(t.hz, 6)} Hz ± ${sig(t.toleranceHz, 3)} Hz, ${sig(t.peak, 5)} ${u} peak (+${sig(t.upperDb, 3)}/-${sig(t.lowerDb, 3)} dB)${t.label !== `tone at ${t.hz} Hz` ? `: ${printable(t.label)}` : ""}`,
+    ),
     `  total      ${sig(p.totalRms, 5)} ${u} RMS, random and tones (each tone adds peak²/2 to the mean square)`,
   ];
 }
@@ -65,12 +79,17 @@ export function profileText(p: TestProfile, version: string): string {
     ...(p.resolutionHz !== undefined ? [`  analysis   ${p.resolutionHz} Hz resolution`] : []),
     ...(p.durationS !== undefined ? [`  duration   ${p.durationS} s`] : []),
     ...p.defaultsApplied.map((d) => `  default    ${d}`),
-    ...(p.provenance ? [
-      `  origin     ${printable(provenanceSummary(p)!)}`,
-      ...(p.provenance.method ? [`  method     ${printable(p.provenance.method)}`] : []),
-      `  parameters ${printable(provenanceParameters(p).join(", "))}`,
-      ...p.provenance.inputs.map((i) => `  input      ${printable(i.file)}${i.group ? ` [${printable(i.group)}]` : ""}${i.serviceHours !== undefined ? ` ${sig(i.serviceHours, 5)} h of service` : ""}, sha256 ${i.sha256}`),
-    ] : []),
+    ...(p.provenance
+      ? [
+          `  origin     ${printable(provenanceSummary(p)!)}`,
+          ...(p.provenance.method ? [`  method     ${printable(p.provenance.method)}`] : []),
+          `  parameters ${printable(provenanceParameters(p).join(", "))}`,
+          ...p.provenance.inputs.map(
+            (i) =>
+              `  input      ${printable(i.file)}${i.group ? ` [${printable(i.group)}]` : ""}${i.serviceHours !== undefined ? ` ${sig(i.serviceHours, 5)} h of service` : ""}, sha256 ${i.sha256}`,
+          ),
+        ]
+      : []),
     "",
     `CAUTION: ${shakerCaution(p)}`,
     "",
@@ -85,15 +104,39 @@ export function profileJson(p: TestProfile, version: string) {
     file: p.file,
     sha256: p.sha256,
     units: densityAscii(p.units),
-    points: p.breakpoints.map((b, i) => ({ hz: b.hz, level: b.level, slopeDbPerOctave: p.segments[i]?.slopeDbPerOctave ?? null, area: p.segments[i]?.area ?? null })),
+    points: p.breakpoints.map((b, i) => ({
+      hz: b.hz,
+      level: b.level,
+      slopeDbPerOctave: p.segments[i]?.slopeDbPerOctave ?? null,
+      area: p.segments[i]?.area ?? null,
+    })),
     rms: p.rms,
     rmsUnits: p.units === "g" ? "g" : "m/s2",
-    tones: p.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, upperDb: t.upperDb, lowerDb: t.lowerDb, toleranceHz: t.toleranceHz })),
+    tones: p.tones.map((t) => ({
+      name: t.label,
+      hz: t.hz,
+      peak: t.peak,
+      upperDb: t.upperDb,
+      lowerDb: t.lowerDb,
+      toleranceHz: t.toleranceHz,
+    })),
     totalRms: p.totalRms,
     velocityRms: { value: m.velocityRms, units: "m/s" },
     displacementRms: { value: m.displacementRms, units: "m" },
-    displacementPeakToPeak: { value: m.displacementPeakToPeak, units: "m", rule: p.tones.length > 0 ? "6 x the random part's RMS (±3 sigma, common practice) plus twice each tone's displacement peak" : "6 x RMS (±3 sigma), common practice" },
-    tolerance: { bands: p.bands, rmsDb: p.rmsToleranceDb ?? null, allowedOutsidePercent: p.allowedOutsidePercent ?? null, outerLimits: p.outerBands ?? null },
+    displacementPeakToPeak: {
+      value: m.displacementPeakToPeak,
+      units: "m",
+      rule:
+        p.tones.length > 0
+          ? "6 x the random part's RMS (±3 sigma, common practice) plus twice each tone's displacement peak"
+          : "6 x RMS (±3 sigma), common practice",
+    },
+    tolerance: {
+      bands: p.bands,
+      rmsDb: p.rmsToleranceDb ?? null,
+      allowedOutsidePercent: p.allowedOutsidePercent ?? null,
+      outerLimits: p.outerBands ?? null,
+    },
     defaultsApplied: p.defaultsApplied,
     minDof: p.minDof ?? null,
     resolutionHz: p.resolutionHz ?? null,

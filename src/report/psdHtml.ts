@@ -5,7 +5,17 @@ import { embedResult } from "./embeddedResult.js";
 import { dB, fixed, sig } from "./format.js";
 import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
-import { PEAK_HOLD_STYLE, qty, reportOpening, reportPage, row, segmentRmsLabel, recordSignOff, timeRmsLabel, type ReportContext } from "./reportPage.js";
+import {
+  PEAK_HOLD_STYLE,
+  qty,
+  reportOpening,
+  reportPage,
+  row,
+  segmentRmsLabel,
+  recordSignOff,
+  timeRmsLabel,
+  type ReportContext,
+} from "./reportPage.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 import { findingTexts } from "./findingTexts.js";
 
@@ -29,26 +39,65 @@ function channelSection(c: ChannelAnalysis, a: RecordingAnalysis, n: number): st
   const f = c.psd.frequencyHz;
   const [lo, hi] = plotDomain(c);
   let top = 0;
-  for (let k = 0; k < f.length; k++) if (f[k]! >= lo && f[k]! <= hi && Number.isFinite(c.psd.upper[k]!)) top = Math.max(top, c.psd.upper[k]!);
+  for (let k = 0; k < f.length; k++)
+    if (f[k]! >= lo && f[k]! <= hi && Number.isFinite(c.psd.upper[k]!)) top = Math.max(top, c.psd.upper[k]!);
   let bottom = Infinity;
   // The floor stops 10 decades under the top, so a roll-off to nothing does not squash the plot.
-  for (let k = 0; k < f.length; k++) if (f[k]! >= lo && f[k]! <= hi && c.psd.lower[k]! > top * 1e-10) bottom = Math.min(bottom, c.psd.lower[k]!);
+  for (let k = 0; k < f.length; k++)
+    if (f[k]! >= lo && f[k]! <= hi && c.psd.lower[k]! > top * 1e-10) bottom = Math.min(bottom, c.psd.lower[k]!);
   const hold = c.peakHold && c.peakHold.stretches > 0 && c.psd.averages > 0 ? c.peakHold : undefined;
-  if (hold) for (let k = 0; k < f.length; k++) if (f[k]! >= lo && f[k]! <= hi && Number.isFinite(hold.psd[k]!)) top = Math.max(top, hold.psd[k]!);
-  if (!(top > 0) || !Number.isFinite(bottom)) { top = 1; bottom = 1e-6; }
+  if (hold)
+    for (let k = 0; k < f.length; k++)
+      if (f[k]! >= lo && f[k]! <= hi && Number.isFinite(hold.psd[k]!)) top = Math.max(top, hold.psd[k]!);
+  if (!(top > 0) || !Number.isFinite(bottom)) {
+    top = 1;
+    bottom = 1e-6;
+  }
   // Candidate tones (lines far above their neighbours), marked at their line with their peak amplitude.
   const toneMarks = c.tones.map((t) => {
     const k = Math.min(f.length - 1, Math.max(0, Math.round(t.frequencyHz / c.psd.lineSpacingHz)));
-    return { x: f[k]!, y: c.psd.psd[k]!, text: `${sig(t.frequencyHz, 5)} Hz: ${sig(t.peak, 3)} ${u} peak`, id: `tone-${sig(t.frequencyHz, 6)}` };
+    return {
+      x: f[k]!,
+      y: c.psd.psd[k]!,
+      text: `${sig(t.frequencyHz, 5)} Hz: ${sig(t.peak, 3)} ${u} peak`,
+      id: `tone-${sig(t.frequencyHz, 6)}`,
+    };
   });
   const plot = svgPlot({
-    id: `psd-${n}`, title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
-    xLabel: "frequency (Hz)", yLabel: `PSD (${densityLabel(c.units)})`, xDomain: [lo, hi], yDomain: [bottom / 2, top * 2], yLog: true, xMarks: c.band ? [lo, hi] : [],
+    id: `psd-${n}`,
+    title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
+    xLabel: "frequency (Hz)",
+    yLabel: `PSD (${densityLabel(c.units)})`,
+    xDomain: [lo, hi],
+    yDomain: [bottom / 2, top * 2],
+    yLog: true,
+    xMarks: c.band ? [lo, hi] : [],
     series: [
       { id: "confidence", label: "confidence band", x: f, y: c.psd.lower, y2: c.psd.upper, className: "band" },
       { id: "measured", label: "measured PSD", x: f, y: c.psd.psd, className: "measured" },
-      ...(hold ? [{ id: "peak-hold", label: `peak-hold (${sig(hold.stretchS, 3)} s stretches)`, x: f, y: hold.psd, className: "peakhold" }] : []),
-      ...(toneMarks.length > 0 ? [{ id: "tones", label: "candidate tone", x: toneMarks.map((t) => t.x), y: toneMarks.map((t) => t.y), className: "tone", markers: true }] : []),
+      ...(hold
+        ? [
+            {
+              id: "peak-hold",
+              label: `peak-hold (${sig(hold.stretchS, 3)} s stretches)`,
+              x: f,
+              y: hold.psd,
+              className: "peakhold",
+            },
+          ]
+        : []),
+      ...(toneMarks.length > 0
+        ? [
+            {
+              id: "tones",
+              label: "candidate tone",
+              x: toneMarks.map((t) => t.x),
+              y: toneMarks.map((t) => t.y),
+              className: "tone",
+              markers: true,
+            },
+          ]
+        : []),
     ],
     notes: toneMarks,
   });
@@ -93,26 +142,47 @@ function peakHoldLine(c: ChannelAnalysis, h: NonNullable<ChannelAnalysis["peakHo
 
 /** The result embedded in every PSD report (what `psdgate verify` re-runs and compares). */
 export function psdResultDocument(a: RecordingAnalysis, ctx: ReportContext): Record<string, unknown> {
-  return { kind: "psd", created: ctx.when.toISOString(), meta: ctx.meta ?? null, rerun: ctx.rerun ?? null, given: ctx.given ?? [], result: psdJson(a, ctx.version, ctx.meta) };
+  return {
+    kind: "psd",
+    created: ctx.when.toISOString(),
+    meta: ctx.meta ?? null,
+    rerun: ctx.rerun ?? null,
+    given: ctx.given ?? [],
+    result: psdJson(a, ctx.version, ctx.meta),
+  };
 }
 
-export function psdHtml(a: RecordingAnalysis, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}): string {
+export function psdHtml(
+  a: RecordingAnalysis,
+  version: string,
+  when: Date,
+  context: Omit<ReportContext, "version" | "when"> = {},
+): string {
   const ctx: ReportContext = { ...context, version, when };
   const m = ctx.meta;
   const name = a.input.file.split(/[\\/]/).pop() ?? a.input.file;
   const doubts = a.channels.filter((c) => c.doubts.length > 0).length;
-  const summary = doubts > 0
-    ? `PSD of ${a.channels.length} channel(s); ${doubts} channel(s) carry doubts (see their sections): read their spectra with care.`
-    : `PSD of ${a.channels.length} channel(s); no data doubts found. No profile was given, so there is no verdict.`;
+  const summary =
+    doubts > 0
+      ? `PSD of ${a.channels.length} channel(s); ${doubts} channel(s) carry doubts (see their sections): read their spectra with care.`
+      : `PSD of ${a.channels.length} channel(s); no data doubts found. No profile was given, so there is no verdict.`;
   const holds = a.channels.some((c) => c.peakHold && c.peakHold.stretches > 0 && c.psd.averages > 0);
   const body = `${holds ? `<style>${PEAK_HOLD_STYLE}</style>\n` : ""}${reportOpening({ verdictClass: "none", word: "PSD", line: summary, meta: m, a, ctx })}
 ${a.channels.map((c, i) => channelSection(c, a, i + 1)).join("\n")}
 <h2>Caution</h2>
 <div class="caution">A PSD describes the record as measured. It is not a compliance verdict; where it feeds a decision about people or equipment (a test level, a fixture or exciter limit) the governing standard, the lab's procedure and a qualified engineer decide.</div>
 ${recordSignOff("PSD record", summary, m, [{ label: "Recording", file: a.input.file, sha256: a.input.sha256 }])}`;
-  const page = reportPage({
-    title: m?.testId ? `PSD record, test ${m.testId}: ${name}` : `PSD record: ${name}`, verdictClass: "none", verdictWord: PSD_WORD,
-    recordingSha256: a.input.sha256, recordingName: name, kindLine: "Random-vibration PSD record", body,
-  }, ctx);
+  const page = reportPage(
+    {
+      title: m?.testId ? `PSD record, test ${m.testId}: ${name}` : `PSD record: ${name}`,
+      verdictClass: "none",
+      verdictWord: PSD_WORD,
+      recordingSha256: a.input.sha256,
+      recordingName: name,
+      kindLine: "Random-vibration PSD record",
+      body,
+    },
+    ctx,
+  );
   return embedResult(page, psdResultDocument(a, ctx));
 }

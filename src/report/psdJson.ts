@@ -21,17 +21,40 @@ export function inputJson(a: RecordingAnalysis) {
   const i = a.input;
   const w = a.window;
   return {
-    file: i.file, format: i.format, layout: i.layout, sha256: i.sha256, bytes: i.bytes, sampleRateHz: i.sampleRateHz, samples: i.samples, durationS: i.durationS, startTime: i.startTime ?? null, preamble: i.preamble ?? [],
+    file: i.file,
+    format: i.format,
+    layout: i.layout,
+    sha256: i.sha256,
+    bytes: i.bytes,
+    sampleRateHz: i.sampleRateHz,
+    samples: i.samples,
+    durationS: i.durationS,
+    startTime: i.startTime ?? null,
+    preamble: i.preamble ?? [],
     window: {
-      fromS: w.fromS, toS: w.toS, durationS: w.frames / i.sampleRateHz, frames: w.frames, ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}),
-      ...(w.fromClock !== undefined ? { fromClock: w.fromClock } : {}), ...(w.toClock !== undefined ? { toClock: w.toClock } : {}),
+      fromS: w.fromS,
+      toS: w.toS,
+      durationS: w.frames / i.sampleRateHz,
+      frames: w.frames,
+      ...(w.requestedToS !== undefined ? { requestedToS: w.requestedToS } : {}),
+      ...(w.fromClock !== undefined ? { fromClock: w.fromClock } : {}),
+      ...(w.toClock !== undefined ? { toClock: w.toClock } : {}),
     },
   };
 }
 
 export function settingsJson(a: RecordingAnalysis) {
   const s = a.settings;
-  return { window: s.window, segment: s.segmentLength, overlap: s.overlap, hop: s.hop, detrend: s.detrend, confidence: s.confidence, resolutionHz: s.resolutionHz, scale: s.scale };
+  return {
+    window: s.window,
+    segment: s.segmentLength,
+    overlap: s.overlap,
+    hop: s.hop,
+    detrend: s.detrend,
+    confidence: s.confidence,
+    resolutionHz: s.resolutionHz,
+    scale: s.scale,
+  };
 }
 
 export function statsJson(a: RecordingAnalysis["channels"][number]) {
@@ -41,8 +64,26 @@ export function statsJson(a: RecordingAnalysis["channels"][number]) {
 
 /** The stationarity finding as plain JSON (the tests' regions, the deciding statistic, departing stretches). */
 export function stationarityJson(f: StationarityFinding) {
-  const t = (x: StationarityTest | undefined) => x && { statistic: x.statistic, n: x.n, acceptAbove: x.acceptAbove, acceptAtMost: x.acceptAtMost, alpha: x.alpha, method: x.method, stationary: x.stationary };
-  return { tested: f.tested, stationary: f.stationary, stretchS: f.stretchS, stretches: f.stretches, pooled: f.pooled, reverseArrangements: t(f.reverseArrangements) ?? null, runs: t(f.runs) ?? null, departing: f.departing };
+  const t = (x: StationarityTest | undefined) =>
+    x && {
+      statistic: x.statistic,
+      n: x.n,
+      acceptAbove: x.acceptAbove,
+      acceptAtMost: x.acceptAtMost,
+      alpha: x.alpha,
+      method: x.method,
+      stationary: x.stationary,
+    };
+  return {
+    tested: f.tested,
+    stationary: f.stationary,
+    stretchS: f.stretchS,
+    stretches: f.stretches,
+    pooled: f.pooled,
+    reverseArrangements: t(f.reverseArrangements) ?? null,
+    runs: t(f.runs) ?? null,
+    departing: f.departing,
+  };
 }
 
 /** The `psd --json` document (schema in README.md). */
@@ -76,7 +117,17 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
       band: c.band ? { fminHz: c.band.fminHz, fmaxHz: c.band.fmaxHz, rms: finiteOrNull(c.band.rms) } : null,
       peaks: c.peaks,
       tones: c.tones,
-      ...(c.peakHold ? { peakHold: { stretchS: c.peakHold.stretchS, stretches: c.peakHold.stretches, averagesPerStretch: c.peakHold.averagesPerStretch, psd: arr(c.peakHold.psd), atS: arr(c.peakHold.atS) } } : {}),
+      ...(c.peakHold
+        ? {
+            peakHold: {
+              stretchS: c.peakHold.stretchS,
+              stretches: c.peakHold.stretches,
+              averagesPerStretch: c.peakHold.averagesPerStretch,
+              psd: arr(c.peakHold.psd),
+              atS: arr(c.peakHold.atS),
+            },
+          }
+        : {}),
       stats: statsJson(c),
       stationarity: stationarityJson(c.stationarity),
       warnings: findingTexts(c.notes),

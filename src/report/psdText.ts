@@ -6,7 +6,11 @@ import { dB, fixed, rateText, sig } from "./format.js";
 import { printable } from "./printable.js";
 import { findingTexts } from "./findingTexts.js";
 
-const DETREND_WORDS = { none: "nothing removed", mean: "mean removed per segment", linear: "linear trend removed per segment" } as const;
+const DETREND_WORDS = {
+  none: "nothing removed",
+  mean: "mean removed per segment",
+  linear: "linear trend removed per segment",
+} as const;
 
 export function recordingLines(a: RecordingAnalysis): string[] {
   const i = a.input;
@@ -28,7 +32,9 @@ export function fullScaleLines(channels: { name: string; reading: ChannelReading
   const assumed = channels.filter((c) => c.reading.fullScaleAssumed);
   if (assumed.length === 0) return [];
   const units = [...new Set(assumed.map((c) => c.reading.fileUnit))].join(" or ");
-  return [`  reading    ${assumed.map((c) => `"${printable(c.name)}"`).join(", ")}: integer WAV codes with no calibration, read as ±1 ${units} full scale (no calibration chunk, --scale or --sensitivity); --scale K reads K ${units} per full scale`];
+  return [
+    `  reading    ${assumed.map((c) => `"${printable(c.name)}"`).join(", ")}: integer WAV codes with no calibration, read as ±1 ${units} full scale (no calibration chunk, --scale or --sensitivity); --scale K reads K ${units} per full scale`,
+  ];
 }
 
 /** The analysed window in words: from, to, length and samples (the --from/--to of the analysis). */
@@ -49,7 +55,10 @@ export function statsLine(c: ChannelAnalysis): string {
 }
 
 export function findingLines(c: ChannelAnalysis): string[] {
-  return [...findingTexts(c.doubts).map((d) => `  DOUBT      ${d}`), ...findingTexts(c.notes).map((w) => `  note       ${w}`)];
+  return [
+    ...findingTexts(c.doubts).map((d) => `  DOUBT      ${d}`),
+    ...findingTexts(c.notes).map((w) => `  note       ${w}`),
+  ];
 }
 
 export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
@@ -58,21 +67,34 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
   const p = c.psd;
   const lines = [`channel ${c.position} "${printable(c.name)}" (${u})`];
   const pv = c.parseval;
-  lines.push(`  RMS        ${sig(pv.rmsTime)} ${u} from the time history (trend removed), ${sig(pv.rmsSegments)} ${u} of the detrended segments, ${sig(pv.rmsPsd)} ${u} from the PSD`);
-  lines.push(`  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${pv.ok ? "agree" : "DISAGREE"} within ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""})`);
+  lines.push(
+    `  RMS        ${sig(pv.rmsTime)} ${u} from the time history (trend removed), ${sig(pv.rmsSegments)} ${u} of the detrended segments, ${sig(pv.rmsPsd)} ${u} from the PSD`,
+  );
+  lines.push(
+    `  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${pv.ok ? "agree" : "DISAGREE"} within ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""})`,
+  );
   if (p.averages > 0) {
     const f = chiSquareIntervalFactors(p.dof, confidence);
-    lines.push(`  averages   ${p.averages}, ${fixed(p.dof, 1)} degrees of freedom, each line ±${fixed(100 * p.randomError, 1)} % (1 sigma), ${fixed(100 * confidence, 0)} % bounds ${fixed(dB(f.lower), 2)} / +${fixed(dB(f.upper), 2)} dB`);
+    lines.push(
+      `  averages   ${p.averages}, ${fixed(p.dof, 1)} degrees of freedom, each line ±${fixed(100 * p.randomError, 1)} % (1 sigma), ${fixed(100 * confidence, 0)} % bounds ${fixed(dB(f.lower), 2)} / +${fixed(dB(f.upper), 2)} dB`,
+    );
   }
-  if (c.band) lines.push(`  band       ${sig(c.band.fminHz)}–${sig(c.band.fmaxHz)} Hz: RMS ${sig(c.band.rms)} ${u} from the PSD`);
-  if (c.peaks.length > 0) lines.push(`  peaks      ${c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ")} ${du}`);
-  if (c.tones.length > 0) lines.push(`  tones      ${c.tones.map((t) => `${sig(t.frequencyHz, 6)} Hz ${sig(t.peak, 3)} ${u} peak (+${fixed(t.aboveBackgroundDb, 1)} dB)`).join(", ")}: lines standing far above their neighbours, amplitude from the window's kernel (candidates: a narrow resonance can look alike)`);
+  if (c.band)
+    lines.push(`  band       ${sig(c.band.fminHz)}–${sig(c.band.fmaxHz)} Hz: RMS ${sig(c.band.rms)} ${u} from the PSD`);
+  if (c.peaks.length > 0)
+    lines.push(`  peaks      ${c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ")} ${du}`);
+  if (c.tones.length > 0)
+    lines.push(
+      `  tones      ${c.tones.map((t) => `${sig(t.frequencyHz, 6)} Hz ${sig(t.peak, 3)} ${u} peak (+${fixed(t.aboveBackgroundDb, 1)} dB)`).join(", ")}: lines standing far above their neighbours, amplitude from the window's kernel (candidates: a narrow resonance can look alike)`,
+    );
   if (c.peakHold && c.peakHold.stretches > 0 && p.averages > 0) {
     // Where the loudest stretch stands furthest above the whole record's average (lines above 0 Hz).
     const h = c.peakHold;
     let k = 1;
     for (let i = 1; i < h.psd.length; i++) if (p.psd[i]! > 0 && h.psd[i]! / p.psd[i]! > h.psd[k]! / p.psd[k]!) k = i;
-    lines.push(`  peak-hold  largest of ${h.stretches} stretches of ${sig(h.stretchS, 3)} s (${h.averagesPerStretch} averages each) at each line; furthest above the average at ${sig(p.frequencyHz[k]!, 5)} Hz: ${fixed(dB(h.psd[k]! / p.psd[k]!), 1)} dB (the stretch from ${sig(h.atS[k]!, 5)} s); --json holds it line by line`);
+    lines.push(
+      `  peak-hold  largest of ${h.stretches} stretches of ${sig(h.stretchS, 3)} s (${h.averagesPerStretch} averages each) at each line; furthest above the average at ${sig(p.frequencyHz[k]!, 5)} Hz: ${fixed(dB(h.psd[k]! / p.psd[k]!), 1)} dB (the stretch from ${sig(h.atS[k]!, 5)} s); --json holds it line by line`,
+    );
   }
   lines.push(statsLine(c), ...findingLines(c));
   return lines.join("\n");
@@ -91,7 +113,11 @@ export function psdText(a: RecordingAnalysis, version: string): string {
 export function inspectText(a: RecordingAnalysis, version: string): string {
   const out = [`psdgate ${version}: contents of ${printable(a.input.file)}`, ...recordingLines(a), ""];
   for (const c of a.channels) {
-    out.push(`channel ${c.position} "${printable(c.name)}" (${accelLabel(c.units)})`, `  RMS        ${sig(c.stats.rms)} ${accelLabel(c.units)} (mean included), ${c.stats.count} finite samples`, statsLine(c));
+    out.push(
+      `channel ${c.position} "${printable(c.name)}" (${accelLabel(c.units)})`,
+      `  RMS        ${sig(c.stats.rms)} ${accelLabel(c.units)} (mean included), ${c.stats.count} finite samples`,
+      statsLine(c),
+    );
     out.push(...findingLines(c), "");
   }
   return out.join("\n");

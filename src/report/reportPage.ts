@@ -144,7 +144,10 @@ export function qty(value: string, unit: string): string {
 }
 
 export function stamp(when: Date): string {
-  return when.toISOString().replace("T", " ").replace(/\.\d+Z$/, " UTC");
+  return when
+    .toISOString()
+    .replace("T", " ")
+    .replace(/\.\d+Z$/, " UTC");
 }
 
 /** The recording's start time, where the reader found one (a date-time time column). */
@@ -159,8 +162,14 @@ export function startTimeOf(a: RecordingAnalysis): string | undefined {
  * (`extraSettingsRows` after the shared ones).
  */
 export function reportOpening(o: {
-  verdictClass: string; word: string; line: string; meta: TestMeta | undefined; a: RecordingAnalysis; ctx: ReportContext;
-  extraRecordRows?: string; extraSettingsRows?: string;
+  verdictClass: string;
+  word: string;
+  line: string;
+  meta: TestMeta | undefined;
+  a: RecordingAnalysis;
+  ctx: ReportContext;
+  extraRecordRows?: string;
+  extraSettingsRows?: string;
   /** This run's reasons (HTML), right under the verdict on page 1. */
   reasons?: string;
 }): string {
@@ -196,11 +205,21 @@ export function identityRows(meta: TestMeta | undefined, a: RecordingAnalysis): 
   const rows = META_LABELS.filter(([k]) => meta?.[k] !== undefined).map(([k, label]) => row(label, esc(meta![k]!)));
   const start = startTimeOf(a);
   if (start !== undefined) rows.push(row("Recording started", esc(start)));
-  if (rows.length === 0) rows.push(row("Identity", `<span class="muted">none given (psdgate --meta FILE names the test, item, serial, axis, fixture, sensor and operator)</span>`));
+  if (rows.length === 0)
+    rows.push(
+      row(
+        "Identity",
+        `<span class="muted">none given (psdgate --meta FILE names the test, item, serial, axis, fixture, sensor and operator)</span>`,
+      ),
+    );
   return rows.join("\n");
 }
 
-const DETREND_WORDS = { none: "nothing removed", mean: "the mean removed", linear: "the linear trend removed" } as const;
+const DETREND_WORDS = {
+  none: "nothing removed",
+  mean: "the mean removed",
+  linear: "the linear trend removed",
+} as const;
 
 /** What the RMS from the time history includes: the whole record with the detrend setting's trend removed. */
 export function timeRmsLabel(a: RecordingAnalysis): string {
@@ -212,8 +231,11 @@ export function segmentRmsLabel(a: RecordingAnalysis): string {
 }
 
 const UNIT_FROM: Record<string, string> = {
-  header: "stated in the file's header", "file calibration": "from the file's own calibration", "--units": "given with --units",
-  default: "not stated by the file: g assumed (the default; --units sets it)", sensitivity: "from the sensitivity given",
+  header: "stated in the file's header",
+  "file calibration": "from the file's own calibration",
+  "--units": "given with --units",
+  default: "not stated by the file: g assumed (the default; --units sets it)",
+  sensitivity: "from the sensitivity given",
 };
 
 /** How the file's numbers became accelerations, per channel (unit and its source, calibration, sensitivity). */
@@ -231,20 +253,48 @@ function readingText(c: ChannelAnalysis): string {
 export function settingsRows(a: RecordingAnalysis, ctx: ReportContext): string {
   const s = a.settings;
   const rerun = (ctx.rerun ?? {}) as { csv?: { sampleRateHz?: number }; scale?: number; resultUnits?: string };
-  const rateFrom = a.input.format === "wav" ? "the WAV header" : rerun.csv?.sampleRateHz !== undefined ? "given with --rate" : "the CSV time column (span ÷ (samples − 1))";
+  const rateFrom =
+    a.input.format === "wav"
+      ? "the WAV header"
+      : rerun.csv?.sampleRateHz !== undefined
+        ? "given with --rate"
+        : "the CSV time column (span ÷ (samples − 1))";
   const units = [...new Set(a.channels.map(readingText))];
   const result = [...new Set(a.channels.map((c) => accelLabel(c.units)))].join(", ");
-  const given = ctx.given && ctx.given.length > 0 ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default or from the profile)</span>`;
+  const given =
+    ctx.given && ctx.given.length > 0
+      ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ")
+      : `<span class="muted">none (every setting at its default or from the profile)</span>`;
   return [
     row("Sample rate", `${qty(rateText(a.input.sampleRateHz), "Hz")}, from ${esc(rateFrom)}`),
     row("Units of the samples", esc(units.join("; "))),
     row("Units of the results", esc(result)),
-    row("Calibration", a.channels.some((c) => c.reading.factor !== 1)
-      ? esc([...new Set(a.channels.map((c) => `×${sig(c.reading.factor, 8)} from file number to result${a.input.format === "wav" ? " (per full scale)" : ""}`))].join("; "))
-      : a.input.format === "wav" ? "none: full scale read as 1 (--scale or a sensitivity sets it)" : "none: samples read as written (×1)"),
+    row(
+      "Calibration",
+      a.channels.some((c) => c.reading.factor !== 1)
+        ? esc(
+            [
+              ...new Set(
+                a.channels.map(
+                  (c) =>
+                    `×${sig(c.reading.factor, 8)} from file number to result${a.input.format === "wav" ? " (per full scale)" : ""}`,
+                ),
+              ),
+            ].join("; "),
+          )
+        : a.input.format === "wav"
+          ? "none: full scale read as 1 (--scale or a sensitivity sets it)"
+          : "none: samples read as written (×1)",
+    ),
     row("Channels analysed", esc(a.channels.map((c) => `${c.position} "${c.name}"`).join(", "))),
-    row("PSD estimate", `Welch, one-sided, ${esc(s.window)} window (periodic), ${s.segmentLength}-point segments = ${qty(sig(s.resolutionHz, 4), "Hz")} lines, ${fixed(100 * s.overlap, 1)} % overlap (hop ${s.hop}), ${esc(DETREND_WORDS[s.detrend])} per segment`),
-    row("Confidence bounds", `${fixed(100 * s.confidence, 0)} % chi-square interval with the equivalent DOF of the overlapped segments`),
+    row(
+      "PSD estimate",
+      `Welch, one-sided, ${esc(s.window)} window (periodic), ${s.segmentLength}-point segments = ${qty(sig(s.resolutionHz, 4), "Hz")} lines, ${fixed(100 * s.overlap, 1)} % overlap (hop ${s.hop}), ${esc(DETREND_WORDS[s.detrend])} per segment`,
+    ),
+    row(
+      "Confidence bounds",
+      `${fixed(100 * s.confidence, 0)} % chi-square interval with the equivalent DOF of the overlapped segments`,
+    ),
     row("Options given", given),
   ].join("\n");
 }
@@ -306,29 +356,72 @@ export type RecordKind = "check" | "psd" | "ride" | "transfer" | "respond" | "de
 export function metaRows(meta: TestMeta | undefined, startTime?: string): string {
   const rows = META_LABELS.filter(([k]) => meta?.[k] !== undefined).map(([k, label]) => row(label, esc(meta![k]!)));
   if (startTime !== undefined) rows.push(row("Recording started", esc(startTime)));
-  if (rows.length === 0) rows.push(row("Identity", `<span class="muted">none given (psdgate --meta FILE names the test, item, serial, axis, fixture, sensor and operator)</span>`));
+  if (rows.length === 0)
+    rows.push(
+      row(
+        "Identity",
+        `<span class="muted">none given (psdgate --meta FILE names the test, item, serial, axis, fixture, sensor and operator)</span>`,
+      ),
+    );
   return rows.join("\n");
 }
 
 /** The sign-off of any record: its word and summary, the test, the item, every input by short hash, the operator. */
-export function recordSignOff(word: string, summary: string, meta: TestMeta | undefined, inputs: { label: string; file: string; sha256: string }[]): string {
+export function recordSignOff(
+  word: string,
+  summary: string,
+  meta: TestMeta | undefined,
+  inputs: { label: string; file: string; sha256: string }[],
+): string {
   const m = meta;
   return signOff(`<strong>${esc(word)}</strong>: ${esc(summary)}`, [
-    ["Test", esc([m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") || "not identified (no --meta)")],
-    ["Item", esc([m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`].filter(Boolean).join(", ") || "not stated")],
-    ...inputs.map((i): [string, string] => [i.label, `${esc(i.file)} <span class="hash">${shortHash(i.sha256)}</span>`]),
+    [
+      "Test",
+      esc(
+        [m?.testId, m?.workOrder && `work order ${m.workOrder}`].filter(Boolean).join(", ") ||
+          "not identified (no --meta)",
+      ),
+    ],
+    [
+      "Item",
+      esc(
+        [m?.item, m?.serialNumber && `serial ${m.serialNumber}`, m?.axis && `axis ${m.axis}`]
+          .filter(Boolean)
+          .join(", ") || "not stated",
+      ),
+    ],
+    ...inputs.map((i): [string, string] => [
+      i.label,
+      `${esc(i.file)} <span class="hash">${shortHash(i.sha256)}</span>`,
+    ]),
     ["Operator", esc(m?.operator ?? "not stated")],
   ]);
 }
 
 /** The result embedded in a record: kind, when, identity, the options that re-run it, the options given, the result. */
-export function recordDocument(kind: RecordKind, ctx: ReportContext, result: unknown, extra: Record<string, unknown> = {}): Record<string, unknown> {
-  return { kind, created: ctx.when.toISOString(), meta: ctx.meta ?? null, rerun: ctx.rerun ?? null, given: ctx.given ?? [], ...extra, result };
+export function recordDocument(
+  kind: RecordKind,
+  ctx: ReportContext,
+  result: unknown,
+  extra: Record<string, unknown> = {},
+): Record<string, unknown> {
+  return {
+    kind,
+    created: ctx.when.toISOString(),
+    meta: ctx.meta ?? null,
+    rerun: ctx.rerun ?? null,
+    given: ctx.given ?? [],
+    ...extra,
+    result,
+  };
 }
 
 /** "Options given" as a table row: each flag as code, or a line saying none was given. */
 export function givenRow(ctx: ReportContext): string {
-  const given = ctx.given && ctx.given.length > 0 ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ") : `<span class="muted">none (every setting at its default)</span>`;
+  const given =
+    ctx.given && ctx.given.length > 0
+      ? ctx.given.map((g) => `<code>${esc(g)}</code>`).join(" ")
+      : `<span class="muted">none (every setting at its default)</span>`;
   return row("Options given", given);
 }
 
@@ -338,6 +431,8 @@ export function readingWords(r: ChannelAnalysis["reading"], factor: number, resu
   if (r.sensitivity) parts.push(`sensitivity ${r.sensitivity}`);
   if (r.fileScale !== 1) parts.push(`the file's calibration ×${r.fileScale}`);
   if (r.scale !== 1) parts.push(`--scale ×${r.scale}`);
-  parts.push(factor === 1 ? `read as ${resultUnit} (×1)` : `overall ×${sig(factor, 8)} from file number to ${resultUnit}`);
+  parts.push(
+    factor === 1 ? `read as ${resultUnit} (×1)` : `overall ×${sig(factor, 8)} from file number to ${resultUnit}`,
+  );
   return parts.join(", ");
 }

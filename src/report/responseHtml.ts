@@ -3,7 +3,16 @@ import { accelLabel } from "../units.js";
 import { RESPONSE_CAUTION, STROKE_CAUTION } from "./cautions.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, sig } from "./format.js";
-import { givenRow, metaRows, qty, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
+import {
+  givenRow,
+  metaRows,
+  qty,
+  recordDocument,
+  recordSignOff,
+  reportPage,
+  row,
+  type ReportContext,
+} from "./reportPage.js";
 import { responseJson } from "./responseReport.js";
 import { escapeXml as esc, svgPlot, type Series } from "./svgPlot.js";
 
@@ -26,22 +35,41 @@ type Against = { b: ResponseSpectra; c: ResponseComparison };
 function range(...arrays: Float64Array[]): [number, number] {
   let lo = Infinity;
   let hi = 0;
-  for (const a of arrays) for (const v of a) if (Number.isFinite(v) && v > 0) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
+  for (const a of arrays)
+    for (const v of a)
+      if (Number.isFinite(v) && v > 0) {
+        lo = Math.min(lo, v);
+        hi = Math.max(hi, v);
+      }
   if (!(hi > 0)) return [1e-3, 1];
   return [Math.max(lo, hi * 1e-9) / 2, hi * 2];
 }
 
 function sourceWords(r: ResponseSpectra): string {
   const s = r.source;
-  return s.kind === "profile" ? `profile "${s.label}"` : s.kind === "psd" ? `PSD table, channel ${s.label}` : `recording, channel ${s.label}`;
+  return s.kind === "profile"
+    ? `profile "${s.label}"`
+    : s.kind === "psd"
+      ? `PSD table, channel ${s.label}`
+      : `recording, channel ${s.label}`;
 }
 
 /** The result embedded in a respond record (what `psdgate verify` re-runs and compares). */
-export function responseResultDocument(r: ResponseSpectra, ctx: ReportContext, against?: Against): Record<string, unknown> {
+export function responseResultDocument(
+  r: ResponseSpectra,
+  ctx: ReportContext,
+  against?: Against,
+): Record<string, unknown> {
   return recordDocument("respond", ctx, responseJson(r, ctx.version, against));
 }
 
-export function responseHtml(r: ResponseSpectra, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}, against?: Against): string {
+export function responseHtml(
+  r: ResponseSpectra,
+  version: string,
+  when: Date,
+  context: Omit<ReportContext, "version" | "when"> = {},
+  against?: Against,
+): string {
   const ctx: ReportContext = { ...context, version, when };
   const m = ctx.meta;
   const s = r.source;
@@ -57,22 +85,69 @@ export function responseHtml(r: ResponseSpectra, version: string, when: Date, co
   const accelSeries: Series[] = [
     { id: "accel-exact", label: "exact", x: fn, y: r.accelRms, className: "exact" },
     { id: "accel-miles", label: "Miles", x: fn, y: r.milesRms, className: "miles" },
-    ...(against ? [{ id: "accel-against", label: `against: ${against.b.source.label}`, x: fn, y: against.b.accelRms, className: "against" }] : []),
+    ...(against
+      ? [
+          {
+            id: "accel-against",
+            label: `against: ${against.b.source.label}`,
+            x: fn,
+            y: against.b.accelRms,
+            className: "against",
+          },
+        ]
+      : []),
   ];
   const plots = [
-    svgPlot({ id: "response-rms", title: `Response RMS (absolute acceleration), Q ${sig(r.q, 4)}`, xLabel: "natural frequency (Hz)", yLabel: `RMS (${u})`, xDomain, yDomain: range(r.accelRms, r.milesRms, ...(against ? [against.b.accelRms] : [])), yLog: true, series: accelSeries }),
-    ...(r.durationS === undefined ? [] : [svgPlot({
-      id: "extreme", title: `Expected largest peak over ${sig(r.durationS, 5)} s${against?.b.durationS !== undefined ? ` (against: ${sig(against.b.durationS, 5)} s)` : ""}`, xLabel: "natural frequency (Hz)", yLabel: `peak (${u})`, xDomain,
-      yDomain: range(r.extremePeak, ...(against ? [against.b.extremePeak] : [])), yLog: true,
-      series: [{ id: "extreme-a", label: "this input", x: fn, y: r.extremePeak, className: "exact" }, ...(against ? [{ id: "extreme-b", label: "against", x: fn, y: against.b.extremePeak, className: "against" }] : [])],
-    }),
     svgPlot({
-      id: "damage", title: `Fatigue damage (relative; b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)})`, xLabel: "natural frequency (Hz)", yLabel: "damage", xDomain,
-      yDomain: range(r.fatigueDamage, ...(against ? [against.b.fatigueDamage] : [])), yLog: true,
-      series: [{ id: "damage-a", label: "this input", x: fn, y: r.fatigueDamage, className: "exact" }, ...(against ? [{ id: "damage-b", label: "against", x: fn, y: against.b.fatigueDamage, className: "against" }] : [])],
-    })]),
+      id: "response-rms",
+      title: `Response RMS (absolute acceleration), Q ${sig(r.q, 4)}`,
+      xLabel: "natural frequency (Hz)",
+      yLabel: `RMS (${u})`,
+      xDomain,
+      yDomain: range(r.accelRms, r.milesRms, ...(against ? [against.b.accelRms] : [])),
+      yLog: true,
+      series: accelSeries,
+    }),
+    ...(r.durationS === undefined
+      ? []
+      : [
+          svgPlot({
+            id: "extreme",
+            title: `Expected largest peak over ${sig(r.durationS, 5)} s${against?.b.durationS !== undefined ? ` (against: ${sig(against.b.durationS, 5)} s)` : ""}`,
+            xLabel: "natural frequency (Hz)",
+            yLabel: `peak (${u})`,
+            xDomain,
+            yDomain: range(r.extremePeak, ...(against ? [against.b.extremePeak] : [])),
+            yLog: true,
+            series: [
+              { id: "extreme-a", label: "this input", x: fn, y: r.extremePeak, className: "exact" },
+              ...(against
+                ? [{ id: "extreme-b", label: "against", x: fn, y: against.b.extremePeak, className: "against" }]
+                : []),
+            ],
+          }),
+          svgPlot({
+            id: "damage",
+            title: `Fatigue damage (relative; b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)})`,
+            xLabel: "natural frequency (Hz)",
+            yLabel: "damage",
+            xDomain,
+            yDomain: range(r.fatigueDamage, ...(against ? [against.b.fatigueDamage] : [])),
+            yLog: true,
+            series: [
+              { id: "damage-a", label: "this input", x: fn, y: r.fatigueDamage, className: "exact" },
+              ...(against
+                ? [{ id: "damage-b", label: "against", x: fn, y: against.b.fatigueDamage, className: "against" }]
+                : []),
+            ],
+          }),
+        ]),
   ];
-  const rows = Array.from(fn, (f, i) => `<tr><td class="num">${sig(f, 4)}</td><td class="num">${sig(r.accelRms[i]!, 4)}</td><td class="num">${Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "–"}</td><td class="num">${sig(r.relDispRms[i]! * 1000, 4)}</td><td class="num">${Number.isFinite(r.extremePeak[i]!) ? sig(r.extremePeak[i]!, 4) : "–"}</td><td class="num">${Number.isFinite(r.fatigueDamage[i]!) ? r.fatigueDamage[i]!.toExponential(3) : "–"}</td>${against ? `<td class="num">${fixed(against.c.rmsRatioDb[i]!, 2)}</td><td class="num">${sig(against.c.damageRatio[i]!, 3)}</td>` : ""}</tr>`).join("\n");
+  const rows = Array.from(
+    fn,
+    (f, i) =>
+      `<tr><td class="num">${sig(f, 4)}</td><td class="num">${sig(r.accelRms[i]!, 4)}</td><td class="num">${Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "–"}</td><td class="num">${sig(r.relDispRms[i]! * 1000, 4)}</td><td class="num">${Number.isFinite(r.extremePeak[i]!) ? sig(r.extremePeak[i]!, 4) : "–"}</td><td class="num">${Number.isFinite(r.fatigueDamage[i]!) ? r.fatigueDamage[i]!.toExponential(3) : "–"}</td>${against ? `<td class="num">${fixed(against.c.rmsRatioDb[i]!, 2)}</td><td class="num">${sig(against.c.damageRatio[i]!, 3)}</td>` : ""}</tr>`,
+  ).join("\n");
   const mo = r.motion;
   const body = `<style>${EXTRA_STYLE}</style>
 <div class="verdict none" id="verdict" data-verdict="none"><span class="word">SDOF</span><span>${esc(summary)}</span></div>
@@ -113,6 +188,18 @@ ${row("Against the rated stroke", st ? `${qty(fixed(st.estimateMm, 3), "mm")} ag
 <h2>Caution</h2>
 <div class="caution keep">${esc(RESPONSE_CAUTION)}</div>
 ${recordSignOff("Response record", summary, m, [{ label: "Source", file: s.file, sha256: s.sha256 }, ...(against ? [{ label: "Against", file: against.b.source.file, sha256: against.b.source.sha256 }] : [])])}`;
-  const page = reportPage({ title, verdictClass: "none", verdictWord: RESPOND_WORD, recordingSha256: s.sha256, recordingName: name, kindLine: "SDOF response-spectrum record", body, hashLabel: s.kind === "recording" ? "recording" : "source" }, ctx);
+  const page = reportPage(
+    {
+      title,
+      verdictClass: "none",
+      verdictWord: RESPOND_WORD,
+      recordingSha256: s.sha256,
+      recordingName: name,
+      kindLine: "SDOF response-spectrum record",
+      body,
+      hashLabel: s.kind === "recording" ? "recording" : "source",
+    },
+    ctx,
+  );
   return embedResult(page, responseResultDocument(r, ctx, against));
 }

@@ -11,7 +11,17 @@ function arr(a: Float64Array): (number | null)[] {
 
 function sourceJson(r: ResponseSpectra) {
   const s = r.source;
-  return { kind: s.kind, file: s.file, sha256: s.sha256, label: s.label, units: densityAscii(s.units), settings: s.settings ?? null, window: s.window ?? null, reading: s.reading ?? null, band: r.band };
+  return {
+    kind: s.kind,
+    file: s.file,
+    sha256: s.sha256,
+    label: s.label,
+    units: densityAscii(s.units),
+    settings: s.settings ?? null,
+    window: s.window ?? null,
+    reading: s.reading ?? null,
+    band: r.band,
+  };
 }
 
 function spectraJson(r: ResponseSpectra) {
@@ -32,17 +42,32 @@ function spectraJson(r: ResponseSpectra) {
           fatigueDamageFromPsd: arr(r.fromPsd.fatigueDamage),
           extremePeakFromPsd: arr(r.fromPsd.extremePeak),
           timeDomain: {
-            rule: TIME_DOMAIN_RULE, recordS: r.timeDomain.recordS, kurtosis: finiteOrNull(r.timeDomain.kurtosis), recordPeak: arr(r.timeDomain.recordPeak),
-            recordDamage: arr(r.timeDomain.recordDamage), skippedHz: r.timeDomain.skippedHz, coarseHz: r.timeDomain.coarseHz, heldSamples: r.timeDomain.heldSamples,
+            rule: TIME_DOMAIN_RULE,
+            recordS: r.timeDomain.recordS,
+            kurtosis: finiteOrNull(r.timeDomain.kurtosis),
+            recordPeak: arr(r.timeDomain.recordPeak),
+            recordDamage: arr(r.timeDomain.recordDamage),
+            skippedHz: r.timeDomain.skippedHz,
+            coarseHz: r.timeDomain.coarseHz,
+            heldSamples: r.timeDomain.heldSamples,
           },
         }
       : {}),
     needsDuration: r.needsDuration,
-    ...(r.tones ? {
-      tones: r.tones.map((t) => ({ name: t.label, hz: t.hz, peak: t.peak, accelPeak: arr(t.accelPeak), relDispPeak: arr(t.relDispPeak) })),
-      totalAccelRms: arr(r.totalAccelRms!),
-      toneRule: "a tone's response is deterministic: its peak x |T(f)| (relative displacement: x |Z/A|). Miles' equation does not apply to tones; milesRms, the rates, extremePeak and fatigueDamage are the random part alone",
-    } : {}),
+    ...(r.tones
+      ? {
+          tones: r.tones.map((t) => ({
+            name: t.label,
+            hz: t.hz,
+            peak: t.peak,
+            accelPeak: arr(t.accelPeak),
+            relDispPeak: arr(t.relDispPeak),
+          })),
+          totalAccelRms: arr(r.totalAccelRms!),
+          toneRule:
+            "a tone's response is deterministic: its peak x |T(f)| (relative displacement: x |Z/A|). Miles' equation does not apply to tones; milesRms, the rates, extremePeak and fatigueDamage are the random part alone",
+        }
+      : {}),
   };
 }
 
@@ -52,26 +77,40 @@ export const TIME_DOMAIN_RULE =
   "largest peak = the record's largest |absolute-acceleration response - mean| times Davenport's factor at nu0+ x exposure over the one at nu0+ x record length";
 
 /** The `respond --json` document (README.md, "respond"). */
-export function responseJson(r: ResponseSpectra, version: string, against?: { b: ResponseSpectra; c: ResponseComparison }) {
+export function responseJson(
+  r: ResponseSpectra,
+  version: string,
+  against?: { b: ResponseSpectra; c: ResponseComparison },
+) {
   const m = r.motion;
   return {
     tool: toolInfo(version),
     source: sourceJson(r),
     fnHz: arr(r.fnHz),
     q: r.q,
-    units: { accel: r.source.units === "g" ? "g" : "m/s2", relDisp: "m", extremePeak: r.source.units === "g" ? "g" : "m/s2" },
+    units: {
+      accel: r.source.units === "g" ? "g" : "m/s2",
+      relDisp: "m",
+      extremePeak: r.source.units === "g" ? "g" : "m/s2",
+    },
     ...spectraJson(r),
     basquinB: r.sn.basquinB,
     snConstant: r.sn.snConstant,
     stressPerMetre: r.sn.stressPerUnit,
-    damageRule: "narrow-band Rayleigh (Miles 1954): E[D] = nu0+ T / C (sqrt 2 K sigma_z)^b Gamma(1 + b/2), stress K z, S-N curve N S^b = C; defaults b 8, C 1, K 1 are common practice for a relative spectrum",
-    extremeRule: "Davenport 1964: sigma (sqrt(2 ln(nu0+ T)) + 0.5772 / sqrt(2 ln(nu0+ T))), nu0+ of the acceleration response",
+    damageRule:
+      "narrow-band Rayleigh (Miles 1954): E[D] = nu0+ T / C (sqrt 2 K sigma_z)^b Gamma(1 + b/2), stress K z, S-N curve N S^b = C; defaults b 8, C 1, K 1 are common practice for a relative spectrum",
+    extremeRule:
+      "Davenport 1964: sigma (sqrt(2 ln(nu0+ T)) + 0.5772 / sqrt(2 ln(nu0+ T))), nu0+ of the acceleration response",
     kinematics: {
       band: { fromHz: m.fromHz, toHz: m.toHz },
       accelerationRms: m.accelerationRms,
       velocityRms: { value: m.velocityRms, units: "m/s" },
       displacementRms: { value: m.displacementRms, units: "m" },
-      displacementPeakToPeak: { value: m.displacementPeakToPeak, units: "m", rule: "6 x RMS (±3 sigma), common practice" },
+      displacementPeakToPeak: {
+        value: m.displacementPeakToPeak,
+        units: "m",
+        rule: "6 x RMS (±3 sigma), common practice",
+      },
       frequencyHz: arr(m.frequencyHz),
       velocityPsd: { values: arr(m.velocityPsd), units: "(m/s)2/Hz" },
       displacementPsd: { values: arr(m.displacementPsd), units: "m2/Hz" },
@@ -111,34 +150,70 @@ function ranges(grid: Float64Array, hits: number[]): string {
   return out.join(", ");
 }
 
-export function responseText(r: ResponseSpectra, version: string, against?: { b: ResponseSpectra; c: ResponseComparison }): string {
+export function responseText(
+  r: ResponseSpectra,
+  version: string,
+  against?: { b: ResponseSpectra; c: ResponseComparison },
+): string {
   const u = accelLabel(r.source.units);
   const s = r.source;
-  const what = s.kind === "profile" ? `profile "${s.label}"` : s.kind === "psd" ? `PSD table, channel ${s.label}` : `recording, channel ${s.label}`;
+  const what =
+    s.kind === "profile"
+      ? `profile "${s.label}"`
+      : s.kind === "psd"
+        ? `PSD table, channel ${s.label}`
+        : `recording, channel ${s.label}`;
   const lines = [
     `psdgate ${version}: SDOF response to ${s.file} (${what})`,
     `  input      ${sig(r.band.fromHz, 4)}–${sig(r.band.toHz, 5)} Hz, ${sig(r.motion.accelerationRms, 4)} ${u} RMS${s.settings ? `; PSD of ${s.settings.segmentLength}-point segments, ${sig(s.settings.resolutionHz, 4)} Hz lines, ${s.settings.averages} averages` : ""}`,
     ...(s.reading ? fullScaleLines([{ name: s.label, reading: s.reading }]) : []),
-    ...(s.window && !s.window.whole ? [`  window     ${fixed(s.window.fromS, 3)} to ${fixed(s.window.toS, 3)} s of the recording (${fixed(s.window.durationS, 3)} s)`] : []),
+    ...(s.window && !s.window.whole
+      ? [
+          `  window     ${fixed(s.window.fromS, 3)} to ${fixed(s.window.toS, 3)} s of the recording (${fixed(s.window.durationS, 3)} s)`,
+        ]
+      : []),
     `  system     Q ${sig(r.q, 4)} (zeta ${sig(1 / (2 * r.q), 3)}), base-driven; exposure ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}; Basquin b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement`,
     "",
   ];
   const td = r.timeDomain;
   const psd = r.fromPsd;
   const num = (x: number, f: (v: number) => string) => (Number.isFinite(x) ? f(x) : "-");
-  const rows = [["fn Hz", `accel RMS ${u}`, `Miles ${u}`, "exact/Miles", "rel. disp. RMS mm", "nu0+ /s", `largest peak ${u}`, "damage", ...(td ? ["peak rec/PSD", "damage rec/PSD"] : [])]];
+  const rows = [
+    [
+      "fn Hz",
+      `accel RMS ${u}`,
+      `Miles ${u}`,
+      "exact/Miles",
+      "rel. disp. RMS mm",
+      "nu0+ /s",
+      `largest peak ${u}`,
+      "damage",
+      ...(td ? ["peak rec/PSD", "damage rec/PSD"] : []),
+    ],
+  ];
   for (let i = 0; i < r.fnHz.length; i++) {
     rows.push([
-      sig(r.fnHz[i]!, 4), sig(r.accelRms[i]!, 4), Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "-",
-      Number.isFinite(r.milesRms[i]!) ? fixed(r.accelRms[i]! / r.milesRms[i]!, 3) : "-", mm(r.relDispRms[i]!), sig(r.upcrossingRateHz[i]!, 4),
-      num(r.extremePeak[i]!, (v) => sig(v, 4)), num(r.fatigueDamage[i]!, (v) => v.toExponential(3)),
-      ...(td && psd ? [num(r.extremePeak[i]! / psd.extremePeak[i]!, (v) => fixed(v, 2)), num(r.fatigueDamage[i]! / psd.fatigueDamage[i]!, (v) => sig(v, 3))] : []),
+      sig(r.fnHz[i]!, 4),
+      sig(r.accelRms[i]!, 4),
+      Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "-",
+      Number.isFinite(r.milesRms[i]!) ? fixed(r.accelRms[i]! / r.milesRms[i]!, 3) : "-",
+      mm(r.relDispRms[i]!),
+      sig(r.upcrossingRateHz[i]!, 4),
+      num(r.extremePeak[i]!, (v) => sig(v, 4)),
+      num(r.fatigueDamage[i]!, (v) => v.toExponential(3)),
+      ...(td && psd
+        ? [
+            num(r.extremePeak[i]! / psd.extremePeak[i]!, (v) => fixed(v, 2)),
+            num(r.fatigueDamage[i]! / psd.fatigueDamage[i]!, (v) => sig(v, 3)),
+          ]
+        : []),
     ]);
   }
   lines.push(table(rows), "");
   if (r.tones) {
     const rowsT = [["fn Hz", ...r.tones.map((t) => `${sig(t.hz, 5)} Hz tone peak ${u}`), `total RMS ${u}`]];
-    for (let i = 0; i < r.fnHz.length; i++) rowsT.push([sig(r.fnHz[i]!, 4), ...r.tones.map((t) => sig(t.accelPeak[i]!, 4)), sig(r.totalAccelRms![i]!, 4)]);
+    for (let i = 0; i < r.fnHz.length; i++)
+      rowsT.push([sig(r.fnHz[i]!, 4), ...r.tones.map((t) => sig(t.accelPeak[i]!, 4)), sig(r.totalAccelRms![i]!, 4)]);
     lines.push(
       `  tones      the profile's sine tones (${r.tones.map((t) => `${sig(t.hz, 5)} Hz ${sig(t.peak, 4)} ${u} peak`).join(", ")}): each tone's response is deterministic, its peak x |T(f)|;`,
       "             Miles' equation does not apply to a tone. The columns above (Miles, rates, largest peak, damage) are the random part alone;",
@@ -148,13 +223,19 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
       "",
     );
   }
-  if (r.needsDuration.length > 0) lines.push(`  exposure   not given and the source has none (a profile without durationS, a PSD table): ${r.needsDuration.join(" and ")} need one (--duration); the RMS, Miles, displacement and rates above do not`, "");
+  if (r.needsDuration.length > 0)
+    lines.push(
+      `  exposure   not given and the source has none (a profile without durationS, a PSD table): ${r.needsDuration.join(" and ")} need one (--duration); the RMS, Miles, displacement and rates above do not`,
+      "",
+    );
   lines.push(
     "  exact      integral of |T|² G (absolute acceleration) and of the relative-displacement transfer over the input, no white-noise assumption.",
     "  Miles      sqrt(pi/2 fn Q G(fn)): assumes the input flat around fn and drops the 1/Q term, so exact/Miles is sqrt(1 + 1/Q²) on a flat input;",
     "             it moves away from that where the input slopes or has peaks near fn, and near the band edges (part of the resonance falls outside).",
     ...(s.kind !== "profile"
-      ? [`             On a measured PSD Miles reads the one line at fn, which scatters by ${s.settings ? `about ±${fixed(100 * Math.sqrt(2 / s.settings.dof), 0)} % (1 sigma, chi-square)` : "the PSD's random error"}, while the integral averages the lines across the resonance.`]
+      ? [
+          `             On a measured PSD Miles reads the one line at fn, which scatters by ${s.settings ? `about ±${fixed(100 * Math.sqrt(2 / s.settings.dof), 0)} % (1 sigma, chi-square)` : "the PSD's random error"}, while the integral averages the lines across the resonance.`,
+        ]
       : []),
     ...(td
       ? [
@@ -162,8 +243,16 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
           "             |response| grown to the exposure by Davenport's factors, the damage by rainflow (ASTM E1049-85) scaled by exposure / record length.",
           "             rec/PSD compares them with the PSD's Davenport peak and narrow-band damage (in --json as extremePeakFromPsd, fatigueDamageFromPsd):",
           "             well above 1 where shocks or other non-Gaussian content carry the damage, a little below 1 on a Gaussian record.",
-          ...(td.skippedHz.length ? [`             Not computed in time above fs/4 (${td.skippedHz.map((f) => sig(f, 4)).join(", ")} Hz): shown as -.`] : []),
-          ...(td.coarseHz.length ? [`             Between fs/10 and fs/4 (${td.coarseHz.map((f) => sig(f, 4)).join(", ")} Hz) the sampled peak can fall short by up to 1 - cos(pi fn/fs).`] : []),
+          ...(td.skippedHz.length
+            ? [
+                `             Not computed in time above fs/4 (${td.skippedHz.map((f) => sig(f, 4)).join(", ")} Hz): shown as -.`,
+              ]
+            : []),
+          ...(td.coarseHz.length
+            ? [
+                `             Between fs/10 and fs/4 (${td.coarseHz.map((f) => sig(f, 4)).join(", ")} Hz) the sampled peak can fall short by up to 1 - cos(pi fn/fs).`,
+              ]
+            : []),
         ]
       : []),
     "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, by psdgate's own simulation check).",
@@ -174,10 +263,13 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     "",
     `  kinematics ${sig(m.fromHz, 4)}–${sig(m.toHz, 5)} Hz${r.tones ? " (random part; `profile` gives velocity and stroke with the tones)" : ""}: velocity ${sig(m.velocityRms * 1000, 4)} mm/s RMS, displacement ${mm(m.displacementRms)} mm RMS, peak-to-peak estimate ${mm(m.displacementPeakToPeak)} mm (6 x RMS)`,
   );
-  if (s.kind !== "profile") lines.push("             (the lowest lines dominate the displacement: --fmin sets the band that matters)");
+  if (s.kind !== "profile")
+    lines.push("             (the lowest lines dominate the displacement: --fmin sets the band that matters)");
   if (r.stroke) {
     const st = r.stroke;
-    lines.push(`  stroke     ${fixed(st.estimateMm, 3)} mm estimated against ${sig(st.ratedMm, 4)} mm rated: ${st.withinRating ? `within the rating (margin x${fixed(st.margin, 2)})` : `EXCEEDS the rating by ${fixed(100 * (1 / st.margin - 1), 0)} %`}`);
+    lines.push(
+      `  stroke     ${fixed(st.estimateMm, 3)} mm estimated against ${sig(st.ratedMm, 4)} mm rated: ${st.withinRating ? `within the rating (margin x${fixed(st.margin, 2)})` : `EXCEEDS the rating by ${fixed(100 * (1 / st.margin - 1), 0)} %`}`,
+    );
   }
   if (against) {
     const { b, c } = against;
@@ -188,10 +280,18 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
     const rows2 = [["fn Hz", "RMS B/A dB", "largest peak B/A dB", "damage B/A", ""]];
     for (let i = 0; i < r.fnHz.length; i++) {
       const short = c.rmsRatioDb[i]! < 0 || c.extremeRatioDb[i]! < 0 || c.damageRatio[i]! < 1;
-      rows2.push([sig(r.fnHz[i]!, 4), fixed(c.rmsRatioDb[i]!, 2), fixed(c.extremeRatioDb[i]!, 2), sig(c.damageRatio[i]!, 3), short ? "B under-tests" : ""]);
+      rows2.push([
+        sig(r.fnHz[i]!, 4),
+        fixed(c.rmsRatioDb[i]!, 2),
+        fixed(c.extremeRatioDb[i]!, 2),
+        sig(c.damageRatio[i]!, 3),
+        short ? "B under-tests" : "",
+      ]);
     }
     lines.push(table(rows2), "");
-    lines.push(`  B under-tests A in RMS at ${ranges(r.fnHz, c.underTestsHz.rms)}; in largest peak at ${ranges(r.fnHz, c.underTestsHz.extreme)}; in damage at ${ranges(r.fnHz, c.underTestsHz.damage)}`);
+    lines.push(
+      `  B under-tests A in RMS at ${ranges(r.fnHz, c.underTestsHz.rms)}; in largest peak at ${ranges(r.fnHz, c.underTestsHz.extreme)}; in damage at ${ranges(r.fnHz, c.underTestsHz.damage)}`,
+    );
   }
   lines.push("", `CAUTION: ${RESPONSE_CAUTION}`, `CAUTION: ${STROKE_CAUTION}`, "");
   return lines.join("\n");
@@ -200,12 +300,35 @@ export function responseText(r: ResponseSpectra, version: string, against?: { b:
 /** `respond --csv`: per natural frequency the response RMS (exact, Miles), relative displacement, largest peak and damage; with --against, B's and the ratios. */
 export function responseCsv(r: ResponseSpectra, against?: { b: ResponseSpectra; c: ResponseComparison }): string {
   const u = r.source.units === "g" ? "g" : "m/s2";
-  const head = ["fn_hz", `accel_rms [${u}]`, `miles_rms [${u}]`, "rel_disp_rms [m]", `extreme_peak [${u}]`, "fatigue_damage [relative]"];
-  if (against) head.push(`against_accel_rms [${u}]`, `against_extreme_peak [${u}]`, "against_fatigue_damage [relative]", "rms_ratio_db", "extreme_ratio_db", "damage_ratio");
+  const head = [
+    "fn_hz",
+    `accel_rms [${u}]`,
+    `miles_rms [${u}]`,
+    "rel_disp_rms [m]",
+    `extreme_peak [${u}]`,
+    "fatigue_damage [relative]",
+  ];
+  if (against)
+    head.push(
+      `against_accel_rms [${u}]`,
+      `against_extreme_peak [${u}]`,
+      "against_fatigue_damage [relative]",
+      "rms_ratio_db",
+      "extreme_ratio_db",
+      "damage_ratio",
+    );
   const lines = [head.join(",")];
   for (let i = 0; i < r.fnHz.length; i++) {
     const row = [r.fnHz[i], r.accelRms[i], r.milesRms[i], r.relDispRms[i], r.extremePeak[i], r.fatigueDamage[i]];
-    if (against) row.push(against.b.accelRms[i], against.b.extremePeak[i], against.b.fatigueDamage[i], against.c.rmsRatioDb[i], against.c.extremeRatioDb[i], against.c.damageRatio[i]);
+    if (against)
+      row.push(
+        against.b.accelRms[i],
+        against.b.extremePeak[i],
+        against.b.fatigueDamage[i],
+        against.c.rmsRatioDb[i],
+        against.c.extremeRatioDb[i],
+        against.c.damageRatio[i],
+      );
     lines.push(row.map((v) => (Number.isFinite(v!) ? String(v) : "")).join(","));
   }
   return lines.join("\n") + "\n";

@@ -15,7 +15,9 @@ export const RIDE_CAUTIONS: readonly string[] = [
 
 /** Where the caution zone's bounds came from, in words (text, JSON notes and the record). */
 export function zoneFrom(r: RideResult): string {
-  return r.healthZone.from === "given" ? "bounds given with --health-zone" : "psdgate's default bounds for ISO 2631-1:1997 Annex B, to be confirmed by the lab (--health-zone sets them)";
+  return r.healthZone.from === "given"
+    ? "bounds given with --health-zone"
+    : "psdgate's default bounds for ISO 2631-1:1997 Annex B, to be confirmed by the lab (--health-zone sets them)";
 }
 
 function hours(s: number): string {
@@ -28,28 +30,88 @@ const arr = (a: Float64Array): (number | null)[] => Array.from(a, finiteOrNull);
 
 export function rideText(r: RideResult, version: string): string {
   const a = r.analysis;
-  const out = [`psdgate ${version}: whole-body vibration of ${a.input.file} (${r.posture}, ISO 2631-1 weightings, SI units)`, ...recordingLines(a), settingsLine(a), ""];
-  const rows = [["axis", "channel", "weighting", "a_w m/s²", "from PSD", "PSD vs time", "crest", "VDV m/s^1.75", "MTVV m/s²", "MTVV/a_w", "VDV/(a_w T^¼)", "k health", "k comfort"]];
+  const out = [
+    `psdgate ${version}: whole-body vibration of ${a.input.file} (${r.posture}, ISO 2631-1 weightings, SI units)`,
+    ...recordingLines(a),
+    settingsLine(a),
+    "",
+  ];
+  const rows = [
+    [
+      "axis",
+      "channel",
+      "weighting",
+      "a_w m/s²",
+      "from PSD",
+      "PSD vs time",
+      "crest",
+      "VDV m/s^1.75",
+      "MTVV m/s²",
+      "MTVV/a_w",
+      "VDV/(a_w T^¼)",
+      "k health",
+      "k comfort",
+    ],
+  ];
   for (const x of r.axes) {
     const d = x.dose;
-    rows.push([x.axis, x.channel, x.weighting, sig(d.rms, 4), sig(x.awFromPsd, 4), `${x.routeRatio >= 1 ? "+" : ""}${fixed(100 * (x.routeRatio - 1), 2)} %`, fixed(d.crestFactor, 2), sig(d.vdv, 4), sig(d.mtvv, 4), fixed(x.basicMethod.mtvvRatio, 2), fixed(x.basicMethod.vdvRatio, 2), String(x.rule.healthK), String(x.rule.comfortK)]);
+    rows.push([
+      x.axis,
+      x.channel,
+      x.weighting,
+      sig(d.rms, 4),
+      sig(x.awFromPsd, 4),
+      `${x.routeRatio >= 1 ? "+" : ""}${fixed(100 * (x.routeRatio - 1), 2)} %`,
+      fixed(d.crestFactor, 2),
+      sig(d.vdv, 4),
+      sig(d.mtvv, 4),
+      fixed(x.basicMethod.mtvvRatio, 2),
+      fixed(x.basicMethod.vdvRatio, 2),
+      String(x.rule.healthK),
+      String(x.rule.comfortK),
+    ]);
   }
-  out.push(table(rows), "  (PSD vs time: a_w from |W(f)|² x PSD against a_w in time over the same samples with Welch's weights)", "");
+  out.push(
+    table(rows),
+    "  (PSD vs time: a_w from |W(f)|² x PSD against a_w in time over the same samples with Welch's weights)",
+    "",
+  );
   const e = r.exposure;
   const D = DIRECTIVE_2002_44_EC;
   const Z = r.healthZone;
-  out.push(`  total      vibration total value ${sig(r.totalValue.comfort, 3)} m/s² with the comfort factors, ${sig(r.totalValue.health, 3)} m/s² with the health factors`);
-  out.push(`  comfort    ISO 2631-1 Annex C, for ${sig(r.totalValue.comfort, 3)} m/s²: ${r.comfort.reactions.map((w) => `"${w}"`).join(" or ")}`);
+  out.push(
+    `  total      vibration total value ${sig(r.totalValue.comfort, 3)} m/s² with the comfort factors, ${sig(r.totalValue.health, 3)} m/s² with the health factors`,
+  );
+  out.push(
+    `  comfort    ISO 2631-1 Annex C, for ${sig(r.totalValue.comfort, 3)} m/s²: ${r.comfort.reactions.map((w) => `"${w}"`).join(" or ")}`,
+  );
   if (e) {
-    out.push(`  exposure   ${hours(e.durationS)} a day: A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}), VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis})`);
-    out.push(`  Directive 2002/44/EC   A(8) ${e.directive.a8} (action ${D.a8ActionMs2}, reached after ${hours(e.a8ActionAfterS)}; limit ${D.a8LimitMs2}, after ${hours(e.a8LimitAfterS)})`);
-    out.push(`                         VDV ${e.directive.vdv} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`);
-    out.push(`  ISO 2631-1 Annex B     A(8) ${e.healthZone.a8} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s² at 8 h), VDV ${e.healthZone.vdv} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75; ${zoneFrom(r)})`);
-  } else out.push("  exposure   not stated (--exposure): no A(8), daily VDV or judgement against Directive 2002/44/EC and ISO 2631-1 Annex B");
-  if (r.seat) out.push(`  seat       SEAT ${fixed(100 * r.seat.seat, 1)} %: seat z a_w ${sig(r.seat.awSeat, 4)} over floor z (${r.seat.floorChannel}) ${sig(r.seat.awFloor, 4)} m/s², Wk on both`);
+    out.push(
+      `  exposure   ${hours(e.durationS)} a day: A(8) ${sig(e.a8, 3)} m/s² (${e.a8Axis}), VDV ${sig(e.vdv, 3)} m/s^1.75 (${e.vdvAxis})`,
+    );
+    out.push(
+      `  Directive 2002/44/EC   A(8) ${e.directive.a8} (action ${D.a8ActionMs2}, reached after ${hours(e.a8ActionAfterS)}; limit ${D.a8LimitMs2}, after ${hours(e.a8LimitAfterS)})`,
+    );
+    out.push(
+      `                         VDV ${e.directive.vdv} (action ${D.vdvActionMs175}, limit ${D.vdvLimitMs175} m/s^1.75)`,
+    );
+    out.push(
+      `  ISO 2631-1 Annex B     A(8) ${e.healthZone.a8} (${Z.a8LowerMs2}–${Z.a8UpperMs2} m/s² at 8 h), VDV ${e.healthZone.vdv} (${Z.vdvLowerMs175}–${Z.vdvUpperMs175} m/s^1.75; ${zoneFrom(r)})`,
+    );
+  } else
+    out.push(
+      "  exposure   not stated (--exposure): no A(8), daily VDV or judgement against Directive 2002/44/EC and ISO 2631-1 Annex B",
+    );
+  if (r.seat)
+    out.push(
+      `  seat       SEAT ${fixed(100 * r.seat.seat, 1)} %: seat z a_w ${sig(r.seat.awSeat, 4)} over floor z (${r.seat.floorChannel}) ${sig(r.seat.awFloor, 4)} m/s², Wk on both`,
+    );
   for (const x of r.axes) {
     const s = x.stationarity;
-    if (s.tested) out.push(`  ${x.axis} level    ${s.stationary ? "stationary" : "NOT stationary"} by reverse arrangements on ${s.stretches} weighted stretches of ${sig(s.stretchS, 3)} s${s.pooled > 1 ? `, pooled ${s.pooled} at a time` : ""} (A = ${s.reverseArrangements!.statistic}, accepted ${s.reverseArrangements!.acceptAbove} < A <= ${s.reverseArrangements!.acceptAtMost})`);
+    if (s.tested)
+      out.push(
+        `  ${x.axis} level    ${s.stationary ? "stationary" : "NOT stationary"} by reverse arrangements on ${s.stretches} weighted stretches of ${sig(s.stretchS, 3)} s${s.pooled > 1 ? `, pooled ${s.pooled} at a time` : ""} (A = ${s.reverseArrangements!.statistic}, accepted ${s.reverseArrangements!.acceptAbove} < A <= ${s.reverseArrangements!.acceptAtMost})`,
+      );
   }
   for (const [c, x] of r.axes.entries()) {
     const h = x.peakHold;
@@ -57,9 +119,14 @@ export function rideText(r: RideResult, version: string): string {
     if (!h || h.stretches === 0 || p.averages === 0) continue;
     let k = 1;
     for (let i = 1; i < h.psd.length; i++) if (p.psd[i]! > 0 && h.psd[i]! / p.psd[i]! > h.psd[k]! / p.psd[k]!) k = i;
-    out.push(`  ${x.axis} peak-hold largest of ${h.stretches} stretches of ${sig(h.stretchS, 3)} s at each line (unweighted); furthest above the average at ${sig(p.frequencyHz[k]!, 4)} Hz: ${fixed(10 * Math.log10(h.psd[k]! / p.psd[k]!), 1)} dB (the stretch from ${sig(h.atS[k]! + a.window.fromS, 5)} s); --json holds it`);
+    out.push(
+      `  ${x.axis} peak-hold largest of ${h.stretches} stretches of ${sig(h.stretchS, 3)} s at each line (unweighted); furthest above the average at ${sig(p.frequencyHz[k]!, 4)} Hz: ${fixed(10 * Math.log10(h.psd[k]! / p.psd[k]!), 1)} dB (the stretch from ${sig(h.atS[k]! + a.window.fromS, 5)} s); --json holds it`,
+    );
   }
-  out.push(...findingTexts(r.doubts).map((d) => `  DOUBT      ${d}`), ...findingTexts(r.notes).map((n) => `  note       ${n}`));
+  out.push(
+    ...findingTexts(r.doubts).map((d) => `  DOUBT      ${d}`),
+    ...findingTexts(r.notes).map((n) => `  note       ${n}`),
+  );
   out.push("", ...RIDE_CAUTIONS.map((c) => `  caution    ${c}`), "");
   return out.join("\n");
 }
@@ -71,10 +138,19 @@ export function rideJson(r: RideResult, version: string) {
   return {
     tool: toolInfo(version),
     input: inputJson(a),
-    settings: { ...settingsJson(a), runningRmsS: r.axes[0]?.dose.runningRmsS ?? null, stretchS: r.axes[0]?.dose.stretchS ?? null },
+    settings: {
+      ...settingsJson(a),
+      runningRmsS: r.axes[0]?.dose.runningRmsS ?? null,
+      stretchS: r.axes[0]?.dose.stretchS ?? null,
+    },
     analysis: a.analysis,
     posture: r.posture,
-    window: { fromS: a.window.fromS, toS: a.window.toS, durationS: a.window.frames / a.input.sampleRateHz, frames: a.window.frames },
+    window: {
+      fromS: a.window.fromS,
+      toS: a.window.toS,
+      durationS: a.window.frames / a.input.sampleRateHz,
+      frames: a.window.frames,
+    },
     axes: r.axes.map((x) => ({
       axis: x.axis,
       channel: x.channel,
@@ -99,22 +175,46 @@ export function rideJson(r: RideResult, version: string) {
       filterMaxErrorAtHz: x.filter.maxErrorAtHz,
       filterTopCentreHz: x.filter.topCentreHz,
       filterMethod: x.filter.method,
-      ...(x.peakHold ? { peakHold: { stretchS: x.peakHold.stretchS, stretches: x.peakHold.stretches, averagesPerStretch: x.peakHold.averagesPerStretch, frequencyHz: arr(a.channels[r.axes.indexOf(x)]!.psd.frequencyHz), psd: arr(x.peakHold.psd), average: arr(a.channels[r.axes.indexOf(x)]!.psd.psd), atS: arr(x.peakHold.atS), units: "(m/s2)2/Hz, unweighted" } } : {}),
+      ...(x.peakHold
+        ? {
+            peakHold: {
+              stretchS: x.peakHold.stretchS,
+              stretches: x.peakHold.stretches,
+              averagesPerStretch: x.peakHold.averagesPerStretch,
+              frequencyHz: arr(a.channels[r.axes.indexOf(x)]!.psd.frequencyHz),
+              psd: arr(x.peakHold.psd),
+              average: arr(a.channels[r.axes.indexOf(x)]!.psd.psd),
+              atS: arr(x.peakHold.atS),
+              units: "(m/s2)2/Hz, unweighted",
+            },
+          }
+        : {}),
     })),
     totalValue: { comfort: finiteOrNull(r.totalValue.comfort), health: finiteOrNull(r.totalValue.health) },
     comfort: { reactions: r.comfort.reactions },
-    exposure: e ? {
-      durationS: e.durationS,
-      a8: finiteOrNull(e.a8),
-      a8Axis: e.a8Axis,
-      vdv: finiteOrNull(e.vdv),
-      vdvAxis: e.vdvAxis,
-      a8ActionAfterS: finiteOrNull(e.a8ActionAfterS),
-      a8LimitAfterS: finiteOrNull(e.a8LimitAfterS),
-      directive2002_44_EC: { a8: e.directive.a8, vdv: e.directive.vdv, ...DIRECTIVE_2002_44_EC },
-      iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...r.healthZone },
-    } : null,
-    seat: r.seat ? { floorChannel: r.seat.floorChannel, awFloor: r.seat.awFloor, awFloorFromPsd: r.seat.awFloorFromPsd, awFloorWelchWeighted: r.seat.awFloorWelchWeighted, awSeat: r.seat.awSeat, seat: r.seat.seat } : null,
+    exposure: e
+      ? {
+          durationS: e.durationS,
+          a8: finiteOrNull(e.a8),
+          a8Axis: e.a8Axis,
+          vdv: finiteOrNull(e.vdv),
+          vdvAxis: e.vdvAxis,
+          a8ActionAfterS: finiteOrNull(e.a8ActionAfterS),
+          a8LimitAfterS: finiteOrNull(e.a8LimitAfterS),
+          directive2002_44_EC: { a8: e.directive.a8, vdv: e.directive.vdv, ...DIRECTIVE_2002_44_EC },
+          iso2631HealthGuidanceZone: { a8: e.healthZone.a8, vdv: e.healthZone.vdv, ...r.healthZone },
+        }
+      : null,
+    seat: r.seat
+      ? {
+          floorChannel: r.seat.floorChannel,
+          awFloor: r.seat.awFloor,
+          awFloorFromPsd: r.seat.awFloorFromPsd,
+          awFloorWelchWeighted: r.seat.awFloorWelchWeighted,
+          awSeat: r.seat.awSeat,
+          seat: r.seat.seat,
+        }
+      : null,
     notes: findingTexts(r.notes),
     doubts: findingTexts(r.doubts),
     findings: { notes: findingsJson(r.notes), doubts: findingsJson(r.doubts) },
@@ -139,8 +239,15 @@ export function rideCsv(r: RideResult): string {
   const from = a.window.fromS;
   const lines = ["axis,channel,quantity,frequency_hz,time_s,value,unit"];
   const num = (v: number | undefined) => (v !== undefined && Number.isFinite(v) ? String(v) : "");
-  const add = (axis: string, channel: string, quantity: string, f: number | undefined, t: number | undefined, v: number, unit: string) =>
-    lines.push([axis, channel === "" ? "" : csvField(channel), quantity, num(f), num(t), num(v), unit].join(","));
+  const add = (
+    axis: string,
+    channel: string,
+    quantity: string,
+    f: number | undefined,
+    t: number | undefined,
+    v: number,
+    unit: string,
+  ) => lines.push([axis, channel === "" ? "" : csvField(channel), quantity, num(f), num(t), num(v), unit].join(","));
   r.axes.forEach((x, i) => {
     const ch = x.channel;
     add(x.axis, ch, "aw", undefined, undefined, x.dose.rms, "m/s2");
@@ -154,12 +261,17 @@ export function rideCsv(r: RideResult): string {
     add(x.axis, ch, "filter_max_error", x.filter.maxErrorAtHz, undefined, x.filter.maxErrorPct, "%");
     const psd = a.channels[i]!.psd;
     const g = weightingPowerGains(x.weighting, psd.frequencyHz);
-    for (let k = 0; k < psd.frequencyHz.length; k++) add(x.axis, ch, "psd", psd.frequencyHz[k], undefined, psd.psd[k]!, "(m/s2)2/Hz");
-    for (let k = 0; k < psd.frequencyHz.length; k++) add(x.axis, ch, "weighted_psd", psd.frequencyHz[k], undefined, psd.psd[k]! * g[k]!, "(m/s2)2/Hz");
+    for (let k = 0; k < psd.frequencyHz.length; k++)
+      add(x.axis, ch, "psd", psd.frequencyHz[k], undefined, psd.psd[k]!, "(m/s2)2/Hz");
+    for (let k = 0; k < psd.frequencyHz.length; k++)
+      add(x.axis, ch, "weighted_psd", psd.frequencyHz[k], undefined, psd.psd[k]! * g[k]!, "(m/s2)2/Hz");
     const ph = x.peakHold;
-    if (ph) for (let k = 0; k < ph.psd.length; k++) add(x.axis, ch, "peak_hold_psd", psd.frequencyHz[k], from + ph.atS[k]!, ph.psd[k]!, "(m/s2)2/Hz");
+    if (ph)
+      for (let k = 0; k < ph.psd.length; k++)
+        add(x.axis, ch, "peak_hold_psd", psd.frequencyHz[k], from + ph.atS[k]!, ph.psd[k]!, "(m/s2)2/Hz");
     const v = x.dose.stretchRms;
-    for (let k = 0; k < v.length; k++) add(x.axis, ch, "running_rms", undefined, from + (k + 1) * x.dose.stretchS, v[k]!, "m/s2");
+    for (let k = 0; k < v.length; k++)
+      add(x.axis, ch, "running_rms", undefined, from + (k + 1) * x.dose.stretchS, v[k]!, "m/s2");
   });
   add("", "", "total_value_health", undefined, undefined, r.totalValue.health, "m/s2");
   add("", "", "total_value_comfort", undefined, undefined, r.totalValue.comfort, "m/s2");

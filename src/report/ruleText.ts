@@ -9,7 +9,8 @@ import { fixed } from "./format.js";
 export const VERDICT_MEANING: Record<Verdict, string> = {
   pass: "no failure is shown, and the record had the degrees of freedom, coverage, resolution, duration and data quality to show one",
   fail: `the data show the profile is not met (lines outside their band beyond the allowance, a line beyond an outer limit, or the RMS outside its tolerance), with a false-fail rate of at most ${pct(DECISION_RULE.falseFailRate)} per record (over every channel the verdict rests on) for any conforming record`,
-  inconclusive: "either no failure is shown but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration, an RMS too close to its limit to call, a level that swings beyond the tolerance over the run or drift that dominates: the run length that would decide is given where a longer run can), or the data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch), so no verdict can rest on them",
+  inconclusive:
+    "either no failure is shown but the record cannot support a pass (too few DOF for the rule's power, partial coverage, coarse resolution, short duration, an RMS too close to its limit to call, a level that swings beyond the tolerance over the run or drift that dominates: the run length that would decide is given where a longer run can), or the data are in doubt (clipping, non-Gaussian amplitudes, non-finite samples, a Parseval mismatch), so no verdict can rest on them",
 };
 
 const R = DECISION_RULE;
@@ -53,10 +54,19 @@ export const TONE_RULE =
 export function ruleLine(c: ChannelCompliance): string {
   const r = c.rule;
   const rq = r.requirement;
-  const own = rq === null ? "the profile asks no power" : `power ${pct(r.power.least)} against a ${rq.departureDb} dB departure over ${pct(rq.departureShare)} of the lines in runs of ${rq.widthLines} line(s) or wider${rq.source === "profile" ? " (the profile's requirement)" : ""}`;
-  const dflt = rq === null || rq.source === "profile" ? `; ${pct(r.powerDefault.least)} against psdgate's default (${r.dofForDefaultPower} DOF for 95 %)` : "";
-  const family = r.family > 1 ? ` per record (${r.family} spectra, ${pct(r.falseFailBound / r.family)} each)` : " per record";
-  const largest = r.largestOf ? `; largest of ${r.largestOf.channels}: upper limits +${fixed(r.largestOf.meanAllowanceDb, 2)} dB for its mean reading, ${fixed(r.largestOf.effectiveDof, 1)} DOF for sums` : "";
+  const own =
+    rq === null
+      ? "the profile asks no power"
+      : `power ${pct(r.power.least)} against a ${rq.departureDb} dB departure over ${pct(rq.departureShare)} of the lines in runs of ${rq.widthLines} line(s) or wider${rq.source === "profile" ? " (the profile's requirement)" : ""}`;
+  const dflt =
+    rq === null || rq.source === "profile"
+      ? `; ${pct(r.powerDefault.least)} against psdgate's default (${r.dofForDefaultPower} DOF for 95 %)`
+      : "";
+  const family =
+    r.family > 1 ? ` per record (${r.family} spectra, ${pct(r.falseFailBound / r.family)} each)` : " per record";
+  const largest = r.largestOf
+    ? `; largest of ${r.largestOf.channels}: upper limits +${fixed(r.largestOf.meanAllowanceDb, 2)} dB for its mean reading, ${fixed(r.largestOf.effectiveDof, 1)} DOF for sums`
+    : "";
   return `false-fail rate at most ${pct(r.falseFailBound)}${family} (${pctSmall(r.falseFailAtProfile)} if the PSD equals the profile) at ${fixed(c.dof.achieved, 1)} DOF; ${own}${dflt}; a pass needs ${Math.max(r.dofForPower, c.dof.required ?? 0)} DOF${r.allowanceLines > 0 ? `; ${r.allowanceLines} line(s) allowed outside` : ""}${largest}`;
 }
 
@@ -64,13 +74,15 @@ export function ruleLine(c: ChannelCompliance): string {
 export function decideLine(c: ChannelCompliance): string | undefined {
   const d = c.decide;
   if (!d) return undefined;
-  if (d.seconds === undefined) return `no run up to 1024 times this one decides it with ${pct(d.probability)} probability if the spectrum is as measured`;
+  if (d.seconds === undefined)
+    return `no run up to 1024 times this one decides it with ${pct(d.probability)} probability if the spectrum is as measured`;
   return `a run of ${fixed(d.seconds, 1)} s (${fixed(d.dof!, 0)} DOF) decides it with at least ${pct(d.probability)} probability if the spectrum is as measured; most likely ${d.likely === "pass" ? "a pass" : "a fail"}`;
 }
 
 /** Shown or not, and why (against chance among all the lines tested). */
 export function excursionJudgement(e: Excursion): string {
-  if (e.shown) return `shown (beyond what chance among all lines explains; adjusted p ${e.adjustedP < 1e-6 ? "< 1e-6" : e.adjustedP.toPrecision(2)})`;
+  if (e.shown)
+    return `shown (beyond what chance among all lines explains; adjusted p ${e.adjustedP < 1e-6 ? "< 1e-6" : e.adjustedP.toPrecision(2)})`;
   return `not shown (chance among the lines tested could explain it${e.longerRecordFactor ? `; a run ${fixed(e.longerRecordFactor, 1)}x as long${e.secondsToShow !== undefined ? ` (${fixed(e.secondsToShow, 1)} s)` : ""} shows it with 90 % probability if it is as measured` : ""})`;
 }
 

@@ -39,20 +39,49 @@ function channelSection(c: ShockChannel, r: ShockResult, n: number): string {
   const largest = c.events.slice(0, PLOTTED_EVENTS);
   const series = [
     { id: `record-${n}`, label: "whole record", x: fn, y: c.srs.maximax, className: "measured" },
-    ...largest.map((e, k) => ({ id: `event-${n}-${k + 1}`, label: `event ${k + 1}`, x: fn, y: e.srs.maximax, className: k === 0 ? "required" : "limit" })),
+    ...largest.map((e, k) => ({
+      id: `event-${n}-${k + 1}`,
+      label: `event ${k + 1}`,
+      x: fn,
+      y: e.srs.maximax,
+      className: k === 0 ? "required" : "limit",
+    })),
   ];
   const srsPlot = svgPlot({
-    id: `srs-${n}`, title: `SRS of ${c.name}: maximax absolute acceleration, Q ${sig(r.settings.q, 3)}`, xLabel: "natural frequency (Hz)", yLabel: u,
-    xDomain: [fn[0]!, fn[fn.length - 1]! > fn[0]! ? fn[fn.length - 1]! : fn[0]! * 2], yDomain: logRange([c.srs.maximax, ...largest.map((e) => e.srs.maximax)]), yLog: true, series,
+    id: `srs-${n}`,
+    title: `SRS of ${c.name}: maximax absolute acceleration, Q ${sig(r.settings.q, 3)}`,
+    xLabel: "natural frequency (Hz)",
+    yLabel: u,
+    xDomain: [fn[0]!, fn[fn.length - 1]! > fn[0]! ? fn[fn.length - 1]! : fn[0]! * 2],
+    yDomain: logRange([c.srs.maximax, ...largest.map((e) => e.srs.maximax)]),
+    yLog: true,
+    series,
   });
   const t0 = a.window.fromS;
   const t1 = a.window.toS > t0 ? a.window.toS : t0 + 1;
   let top = c.threshold;
   for (const e of c.events) top = Math.max(top, Math.abs(e.peak));
   const timeline = svgPlot({
-    id: `timeline-${n}`, title: `events of ${c.name}: signed peak against time (threshold ±${sig(c.threshold, 3)} ${u})`, xLabel: "time (s)", yLabel: u, xLog: false,
-    xDomain: [t0, t1], yDomain: [-1.15 * top, 1.15 * top], yLog: false, height: 240, rules: [c.threshold, -c.threshold],
-    series: [{ id: `peaks-${n}`, label: "event peak", x: c.events.map((e) => e.timeS), y: c.events.map((e) => e.peak), className: "shown", markers: true }],
+    id: `timeline-${n}`,
+    title: `events of ${c.name}: signed peak against time (threshold ±${sig(c.threshold, 3)} ${u})`,
+    xLabel: "time (s)",
+    yLabel: u,
+    xLog: false,
+    xDomain: [t0, t1],
+    yDomain: [-1.15 * top, 1.15 * top],
+    yLog: false,
+    height: 240,
+    rules: [c.threshold, -c.threshold],
+    series: [
+      {
+        id: `peaks-${n}`,
+        label: "event peak",
+        x: c.events.map((e) => e.timeS),
+        y: c.events.map((e) => e.peak),
+        className: "shown",
+        markers: true,
+      },
+    ],
   });
   const rows = c.events.map((e, k) => {
     let best = 0;
@@ -72,18 +101,34 @@ ${row("Events", String(c.events.length))}
 </table>
 ${timeline}
 ${srsPlot}
-${c.events.length === 0 ? `<p class="muted">No events above the threshold.</p>` : `<table class="grid"><tr><th class="num">#</th><th class="num">time s</th><th class="num">peak ${esc(u)}</th><th class="num">duration ms</th><th class="num">largest SRS ${esc(u)}</th><th class="num">PVSS m/s</th><th></th></tr>
+${
+  c.events.length === 0
+    ? `<p class="muted">No events above the threshold.</p>`
+    : `<table class="grid"><tr><th class="num">#</th><th class="num">time s</th><th class="num">peak ${esc(u)}</th><th class="num">duration ms</th><th class="num">largest SRS ${esc(u)}</th><th class="num">PVSS m/s</th><th></th></tr>
 ${rows.join("\n")}
-</table>`}
+</table>`
+}
 </section>`;
 }
 
 /** The result embedded in a shock record (what `psdgate verify` re-runs and compares). */
 export function shockResultDocument(r: ShockResult, ctx: ReportContext): Record<string, unknown> {
-  return { kind: "shock", created: ctx.when.toISOString(), meta: ctx.meta ?? null, rerun: ctx.rerun ?? null, given: ctx.given ?? [], result: shockJson(r, ctx.version) };
+  return {
+    kind: "shock",
+    created: ctx.when.toISOString(),
+    meta: ctx.meta ?? null,
+    rerun: ctx.rerun ?? null,
+    given: ctx.given ?? [],
+    result: shockJson(r, ctx.version),
+  };
 }
 
-export function shockHtml(r: ShockResult, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}): string {
+export function shockHtml(
+  r: ShockResult,
+  version: string,
+  when: Date,
+  context: Omit<ReportContext, "version" | "when"> = {},
+): string {
   const ctx: ReportContext = { ...context, version, when };
   const m = ctx.meta;
   const a = r.analysis;
@@ -92,9 +137,18 @@ export function shockHtml(r: ShockResult, version: string, when: Date, context: 
   const summary = `${total} event(s) in ${r.channels.length} channel(s) above their thresholds; shock response spectra at Q ${sig(r.settings.q, 3)}, ${r.settings.fnHz.length} natural frequencies. No limit was given, so there is no verdict.`;
   const settings = [
     row("Method", esc(SHOCK_METHOD)),
-    row("Natural frequencies", `${r.settings.fnHz.length}, ${qty(sig(r.settings.fnHz[0]!, 4), "Hz")} to ${qty(sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5), "Hz")}; Q ${sig(r.settings.q, 4)}`),
-    row("Sample rate against the highest fn", `${sig(r.rate.samplesPerPeriod, 3)} samples per period (10 or more asked); the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one`),
-    row("Events", `hold ${qty(sig(r.settings.holdS, 3), "s")}; each event's SRS from ${qty(sig(r.settings.preS, 3), "s")} before its first exceedance to ${qty(sig(r.settings.postS, 3), "s")} after its last; each channel's mean removed`),
+    row(
+      "Natural frequencies",
+      `${r.settings.fnHz.length}, ${qty(sig(r.settings.fnHz[0]!, 4), "Hz")} to ${qty(sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5), "Hz")}; Q ${sig(r.settings.q, 4)}`,
+    ),
+    row(
+      "Sample rate against the highest fn",
+      `${sig(r.rate.samplesPerPeriod, 3)} samples per period (10 or more asked); the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one`,
+    ),
+    row(
+      "Events",
+      `hold ${qty(sig(r.settings.holdS, 3), "s")}; each event's SRS from ${qty(sig(r.settings.preS, 3), "s")} before its first exceedance to ${qty(sig(r.settings.postS, 3), "s")} after its last; each channel's mean removed`,
+    ),
   ].join("\n");
   const body = `${reportOpening({ verdictClass: "none", word: SHOCK_WORD, line: summary, meta: m, a, ctx, extraSettingsRows: settings })}
 ${r.channels.map((c, i) => channelSection(c, r, i + 1)).join("\n")}
@@ -103,9 +157,17 @@ ${r.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(r.doubts).map(es
 <h2>Caution</h2>
 <div class="caution">${esc(SHOCK_CAUTION)}</div>
 ${recordSignOff("Shock record", summary, m, [{ label: "Recording", file: a.input.file, sha256: a.input.sha256 }])}`;
-  const page = reportPage({
-    title: m?.testId ? `Shock record, test ${m.testId}: ${name}` : `Shock record: ${name}`, verdictClass: "none", verdictWord: SHOCK_WORD,
-    recordingSha256: a.input.sha256, recordingName: name, kindLine: "Shock events and shock response spectra record", body,
-  }, ctx);
+  const page = reportPage(
+    {
+      title: m?.testId ? `Shock record, test ${m.testId}: ${name}` : `Shock record: ${name}`,
+      verdictClass: "none",
+      verdictWord: SHOCK_WORD,
+      recordingSha256: a.input.sha256,
+      recordingName: name,
+      kindLine: "Shock events and shock response spectra record",
+      body,
+    },
+    ctx,
+  );
   return embedResult(page, shockResultDocument(r, ctx));
 }

@@ -21,7 +21,13 @@ function arr(a: ArrayLike<number>): (number | null)[] {
 }
 
 function srsJson(s: ShockSpectrum, toMs: number) {
-  return { fnHz: arr(s.fnHz), maximax: arr(s.maximax), positive: arr(s.positive), negative: arr(s.negative), pvss: arr(Array.from(s.pseudoVelocity, (v) => v * toMs)) };
+  return {
+    fnHz: arr(s.fnHz),
+    maximax: arr(s.maximax),
+    positive: arr(s.positive),
+    negative: arr(s.negative),
+    pvss: arr(Array.from(s.pseudoVelocity, (v) => v * toMs)),
+  };
 }
 
 const G = 9.80665;
@@ -34,20 +40,38 @@ export function shockJson(r: ShockResult, version: string) {
     window: a.window,
     method: SHOCK_METHOD,
     settings: {
-      fnHz: arr(r.settings.fnHz), q: r.settings.q, holdS: r.settings.holdS, preS: r.settings.preS, postS: r.settings.postS,
-      threshold: r.settings.thresholdGiven ?? null, thresholdFactor: r.settings.thresholdFactor ?? null,
+      fnHz: arr(r.settings.fnHz),
+      q: r.settings.q,
+      holdS: r.settings.holdS,
+      preS: r.settings.preS,
+      postS: r.settings.postS,
+      threshold: r.settings.thresholdGiven ?? null,
+      thresholdFactor: r.settings.thresholdFactor ?? null,
     },
     rate: r.rate,
     channels: r.channels.map((c) => {
       const toMs = c.units === "g" ? G : 1;
       return {
-        name: c.name, units: c.units === "g" ? "g" : "m/s2", pvssUnits: "m/s", mean: c.mean, backgroundRms: c.backgroundRms, threshold: c.threshold,
-        thresholdFactor: c.thresholdFactor, zeroUpcrossingRateHz: c.zeroUpcrossingRateHz, expectedFalseEvents: c.expectedFalseEvents,
+        name: c.name,
+        units: c.units === "g" ? "g" : "m/s2",
+        pvssUnits: "m/s",
+        mean: c.mean,
+        backgroundRms: c.backgroundRms,
+        threshold: c.threshold,
+        thresholdFactor: c.thresholdFactor,
+        zeroUpcrossingRateHz: c.zeroUpcrossingRateHz,
+        expectedFalseEvents: c.expectedFalseEvents,
         events: c.events.map((e) => {
           const s = srsJson(e.srs, toMs);
-          const part = (p: ShockSpectrum | undefined) => (p ? { maximax: arr(p.maximax), positive: arr(p.positive), negative: arr(p.negative) } : null);
+          const part = (p: ShockSpectrum | undefined) =>
+            p ? { maximax: arr(p.maximax), positive: arr(p.positive), negative: arr(p.negative) } : null;
           return {
-            timeS: e.timeS, peak: e.peak, durationS: e.durationS, srs: { fnHz: s.fnHz, maximax: s.maximax, positive: s.positive, negative: s.negative }, pvss: s.pvss, truncated: e.truncated,
+            timeS: e.timeS,
+            peak: e.peak,
+            durationS: e.durationS,
+            srs: { fnHz: s.fnHz, maximax: s.maximax, positive: s.positive, negative: s.negative },
+            pvss: s.pvss,
+            truncated: e.truncated,
             ...(r.settings.primaryResidual ? { primary: part(e.primary), residual: part(e.residual) } : {}),
           };
         }),
@@ -68,11 +92,28 @@ export function shockCsv(r: ShockResult): string {
     const u = c.units === "g" ? "g" : "m/s2";
     const put = (source: string, event: string, time: string, peak: string, dur: string, s: ShockSpectrum) => {
       for (let i = 0; i < s.fnHz.length; i++) {
-        rows.push([csvField(c.name), source, event, time, peak, dur, s.fnHz[i], s.maximax[i], s.positive[i], s.negative[i], s.pseudoVelocity[i]! * toMs, u].join(","));
+        rows.push(
+          [
+            csvField(c.name),
+            source,
+            event,
+            time,
+            peak,
+            dur,
+            s.fnHz[i],
+            s.maximax[i],
+            s.positive[i],
+            s.negative[i],
+            s.pseudoVelocity[i]! * toMs,
+            u,
+          ].join(","),
+        );
       }
     };
     put("record", "", "", "", "", c.srs);
-    c.events.forEach((e, k) => put("event", String(k + 1), String(e.timeS), String(e.peak), String(e.durationS), e.srs));
+    c.events.forEach((e, k) =>
+      put("event", String(k + 1), String(e.timeS), String(e.peak), String(e.durationS), e.srs),
+    );
   }
   return rows.join("\n") + "\n";
 }
@@ -86,7 +127,9 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
     `  rate       ${sig(r.rate.samplesPerPeriod, 3)} samples per period at the highest fn (at least 10 asked; the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one)`,
     "",
   ];
-  const all = r.channels.flatMap((c) => c.events.map((e) => ({ c, e }))).sort((x, y) => Math.abs(y.e.peak) - Math.abs(x.e.peak) || x.e.timeS - y.e.timeS);
+  const all = r.channels
+    .flatMap((c) => c.events.map((e) => ({ c, e })))
+    .sort((x, y) => Math.abs(y.e.peak) - Math.abs(x.e.peak) || x.e.timeS - y.e.timeS);
   for (const c of r.channels) {
     const u = accelLabel(c.units);
     lines.push(
@@ -104,14 +147,34 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
       let pv = 0;
       for (let i = 0; i < e.srs.pseudoVelocity.length; i++) pv = Math.max(pv, e.srs.pseudoVelocity[i]!);
       const u = accelLabel(c.units);
-      rows.push([String(k + 1), printable(c.name), fixed(e.timeS, 3), `${e.peak >= 0 ? "+" : ""}${sig(e.peak, 4)} ${u}`, sig(1000 * e.durationS, 3), `${sig(e.srs.maximax[best]!, 4)} ${u}`, sig(e.srs.fnHz[best]!, 4), sig(pv * (c.units === "g" ? G : 1), 3)]);
+      rows.push([
+        String(k + 1),
+        printable(c.name),
+        fixed(e.timeS, 3),
+        `${e.peak >= 0 ? "+" : ""}${sig(e.peak, 4)} ${u}`,
+        sig(1000 * e.durationS, 3),
+        `${sig(e.srs.maximax[best]!, 4)} ${u}`,
+        sig(e.srs.fnHz[best]!, 4),
+        sig(pv * (c.units === "g" ? G : 1), 3),
+      ]);
     });
-    lines.push(`  largest events${all.length > top ? ` (${top} of ${all.length}; --top for more, --json for all)` : ""}`, table(rows), "");
+    lines.push(
+      `  largest events${all.length > top ? ` (${top} of ${all.length}; --top for more, --json for all)` : ""}`,
+      table(rows),
+      "",
+    );
   }
   for (const c of r.channels) {
     const u = accelLabel(c.units);
     const rows = [["fn Hz", `maximax ${u}`, `positive ${u}`, `negative ${u}`, "PVSS m/s"]];
-    for (let i = 0; i < c.srs.fnHz.length; i++) rows.push([sig(c.srs.fnHz[i]!, 4), sig(c.srs.maximax[i]!, 4), sig(c.srs.positive[i]!, 4), sig(c.srs.negative[i]!, 4), sig(c.pvssMPerS[i]!, 3)]);
+    for (let i = 0; i < c.srs.fnHz.length; i++)
+      rows.push([
+        sig(c.srs.fnHz[i]!, 4),
+        sig(c.srs.maximax[i]!, 4),
+        sig(c.srs.positive[i]!, 4),
+        sig(c.srs.negative[i]!, 4),
+        sig(c.pvssMPerS[i]!, 3),
+      ]);
     lines.push(`  ${printable(c.name)}: SRS of the whole record`, table(rows), "");
   }
   for (const n of findingTexts(r.notes)) lines.push(`  note: ${printable(n)}`);

@@ -105,7 +105,12 @@ export function escapeXml(s: string): string {
  * beyond), the other d3 log ticks as minor grid lines, and any `marks` (the profile's ends) labelled too.
  * A 1-2-5 label that would touch a mark's label is dropped.
  */
-function logTicks(s: ScaleContinuousNumeric<number, number>, count: number, marks: number[] = [], minGapPx = 26): { major: number[]; minor: number[] } {
+function logTicks(
+  s: ScaleContinuousNumeric<number, number>,
+  count: number,
+  marks: number[] = [],
+  minGapPx = 26,
+): { major: number[]; minor: number[] } {
   const [d0, d1] = s.domain() as [number, number];
   const decades = Math.log10(d1 / d0);
   const all = s.ticks(count);
@@ -134,8 +139,23 @@ export function axisLabels(ticks: number[]): string[] {
 }
 
 function superscript(n: number): string {
-  const map: Record<string, string> = { "-": "⁻", "0": "⁰", "1": "¹", "2": "²", "3": "³", "4": "⁴", "5": "⁵", "6": "⁶", "7": "⁷", "8": "⁸", "9": "⁹" };
-  return String(n).split("").map((c) => map[c] ?? c).join("");
+  const map: Record<string, string> = {
+    "-": "⁻",
+    "0": "⁰",
+    "1": "¹",
+    "2": "²",
+    "3": "³",
+    "4": "⁴",
+    "5": "⁵",
+    "6": "⁶",
+    "7": "⁷",
+    "8": "⁸",
+    "9": "⁹",
+  };
+  return String(n)
+    .split("")
+    .map((c) => map[c] ?? c)
+    .join("");
 }
 
 export function svgPlot(p: PlotSpec): string {
@@ -147,40 +167,67 @@ export function svgPlot(p: PlotSpec): string {
   const ok = (v: number) => Number.isFinite(v) && (!p.yLog || v > 0);
   const clampY = (v: number) => Math.max(M.top, Math.min(H - M.bottom, y(v)));
   const out: string[] = [];
-  out.push(`<svg id="${escapeXml(p.id)}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`);
+  out.push(
+    `<svg id="${escapeXml(p.id)}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`,
+  );
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(p.title)}</text>`);
   // Grid and ticks.
   const xt = xLog ? logTicks(x, 10, p.xMarks) : { major: x.ticks(10), minor: [] as number[] };
-  for (const t of xt.minor) out.push(`<line class="grid minor" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`);
+  for (const t of xt.minor)
+    out.push(
+      `<line class="grid minor" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`,
+    );
   const xl = axisLabels(xt.major);
   xt.major.forEach((t, i) => {
     out.push(`<line class="grid" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`);
-    out.push(`<text class="tick x-tick" x="${x(t).toFixed(1)}" y="${H - M.bottom + 16}" text-anchor="middle">${xl[i]}</text>`);
+    out.push(
+      `<text class="tick x-tick" x="${x(t).toFixed(1)}" y="${H - M.bottom + 16}" text-anchor="middle">${xl[i]}</text>`,
+    );
   });
   if (p.yLog) {
     const yt = logTicks(y as ScaleContinuousNumeric<number, number>, 8, [], 12);
-    for (const t of yt.minor) out.push(`<line class="grid minor" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
+    for (const t of yt.minor)
+      out.push(
+        `<line class="grid minor" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`,
+      );
     const yl = axisLabels(yt.major);
     yt.major.forEach((t, i) => {
-      out.push(`<line class="grid" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
-      out.push(`<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`);
+      out.push(
+        `<line class="grid" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`,
+      );
+      out.push(
+        `<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`,
+      );
     });
   } else {
     const yt = y.ticks(8);
     const yl = axisLabels(yt);
     yt.forEach((t, i) => {
-      out.push(`<line class="grid${t === 0 ? " zero" : ""}" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
-      out.push(`<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`);
+      out.push(
+        `<line class="grid${t === 0 ? " zero" : ""}" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`,
+      );
+      out.push(
+        `<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`,
+      );
     });
   }
-  out.push(`<rect class="frame" x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/>`);
-  out.push(`<text class="axis-label" x="${(M.left + W - M.right) / 2}" y="${H - 8}" text-anchor="middle">${escapeXml(p.xLabel)}</text>`);
-  out.push(`<text class="axis-label" transform="translate(16 ${(M.top + H - M.bottom) / 2}) rotate(-90)" text-anchor="middle">${escapeXml(p.yLabel)}</text>`);
-  out.push(`<clipPath id="${escapeXml(p.id)}-clip"><rect x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/></clipPath>`);
+  out.push(
+    `<rect class="frame" x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/>`,
+  );
+  out.push(
+    `<text class="axis-label" x="${(M.left + W - M.right) / 2}" y="${H - 8}" text-anchor="middle">${escapeXml(p.xLabel)}</text>`,
+  );
+  out.push(
+    `<text class="axis-label" transform="translate(16 ${(M.top + H - M.bottom) / 2}) rotate(-90)" text-anchor="middle">${escapeXml(p.yLabel)}</text>`,
+  );
+  out.push(
+    `<clipPath id="${escapeXml(p.id)}-clip"><rect x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/></clipPath>`,
+  );
   out.push(`<g clip-path="url(#${p.id}-clip)">`);
   for (const s of p.series) {
     const idx: number[] = [];
-    for (let i = 0; i < s.x.length; i++) if (inX(s.x[i]!) && ok(s.y[i]!) && (s.y2 === undefined || ok(s.y2[i]!))) idx.push(i);
+    for (let i = 0; i < s.x.length; i++)
+      if (inX(s.x[i]!) && ok(s.y[i]!) && (s.y2 === undefined || ok(s.y2[i]!))) idx.push(i);
     let d: string | null;
     let drawn: number;
     if (s.markers) {
@@ -198,27 +245,38 @@ export function svgPlot(p: PlotSpec): string {
       drawn = marks.length;
     } else if (s.y2 !== undefined) {
       const pts = thinBand(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!), clampY(s.y2![i]!)] as const));
-      d = area<readonly [number, number, number]>().x((q) => q[0]).y0((q) => q[1]).y1((q) => q[2])(pts);
+      d = area<readonly [number, number, number]>()
+        .x((q) => q[0])
+        .y0((q) => q[1])
+        .y1((q) => q[2])(pts);
       drawn = pts.length;
     } else {
       const pts = thinLine(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!)] as const));
-      d = line<readonly [number, number]>().x((q) => q[0]).y((q) => q[1])(pts);
+      d = line<readonly [number, number]>()
+        .x((q) => q[0])
+        .y((q) => q[1])(pts);
       drawn = pts.length;
     }
-    out.push(`<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${drawn}" d="${d ?? ""}" data-lines="${idx.length}"/>`);
+    out.push(
+      `<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${drawn}" d="${d ?? ""}" data-lines="${idx.length}"/>`,
+    );
   }
   out.push("</g>");
   // Horizontal reference lines (an event threshold): dashed across the plot, each with its value for readers and tests.
   for (const v of p.rules ?? []) {
     if (!ok(v) || v < Math.min(...p.yDomain) || v > Math.max(...p.yDomain)) continue;
-    out.push(`<line class="limit rule" data-rule="${v}" x1="${M.left}" x2="${W - M.right}" y1="${y(v).toFixed(1)}" y2="${y(v).toFixed(1)}"/>`);
+    out.push(
+      `<line class="limit rule" data-rule="${v}" x1="${M.left}" x2="${W - M.right}" y1="${y(v).toFixed(1)}" y2="${y(v).toFixed(1)}"/>`,
+    );
   }
   for (const t of p.notes ?? []) {
     if (!inX(t.x) || !ok(t.y)) continue;
     const px = x(t.x);
     const py = clampY(t.y);
     const right = px < W - M.right - 180;
-    out.push(`<g class="plot-note" data-note="${escapeXml(t.id)}"><line class="note-tick" x1="${px.toFixed(1)}" x2="${px.toFixed(1)}" y1="${(py - 4).toFixed(1)}" y2="${Math.max(M.top, py - 16).toFixed(1)}"/><text class="note-text" x="${(px + (right ? 3 : -3)).toFixed(1)}" y="${Math.max(M.top + 10, py - 18).toFixed(1)}" text-anchor="${right ? "start" : "end"}">${escapeXml(t.text)}</text></g>`);
+    out.push(
+      `<g class="plot-note" data-note="${escapeXml(t.id)}"><line class="note-tick" x1="${px.toFixed(1)}" x2="${px.toFixed(1)}" y1="${(py - 4).toFixed(1)}" y2="${Math.max(M.top, py - 16).toFixed(1)}"/><text class="note-text" x="${(px + (right ? 3 : -3)).toFixed(1)}" y="${Math.max(M.top + 10, py - 18).toFixed(1)}" text-anchor="${right ? "start" : "end"}">${escapeXml(t.text)}</text></g>`,
+    );
   }
   // Legend.
   let lx = W - M.right - 8;
@@ -229,38 +287,72 @@ export function svgPlot(p: PlotSpec): string {
     const key = s.markers
       ? `<path class="${escapeXml(s.className)} key" d="M${lx + 10},${M.top - 13.5}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z"/>`
       : `<line class="${escapeXml(s.className)} key" x1="${lx}" x2="${lx + 20}" y1="${M.top - 10}" y2="${M.top - 10}"/>`;
-    out.push(`<g class="legend">${key}<text class="legend-text" x="${lx + 24}" y="${M.top - 6}">${escapeXml(s.label)}</text></g>`);
+    out.push(
+      `<g class="legend">${key}<text class="legend-text" x="${lx + 24}" y="${M.top - 6}">${escapeXml(s.label)}</text></g>`,
+    );
   }
   out.push("</svg>");
   return out.join("\n");
 }
 
 /** Histogram bars and a curve over a linear x axis. */
-export function svgHistogram(id: string, title: string, xLabel: string, edges: number[], density: number[], curve: { x: number[]; y: number[] }): string {
+export function svgHistogram(
+  id: string,
+  title: string,
+  xLabel: string,
+  edges: number[],
+  density: number[],
+  curve: { x: number[]; y: number[] },
+): string {
   const w = 720;
   const h = 260;
   if (density.length === 0) return `<p class="muted">No histogram (no finite samples).</p>`;
-  const x = scaleLinear().domain([edges[0]!, edges[edges.length - 1]!]).range([M.left, w - M.right]);
+  const x = scaleLinear()
+    .domain([edges[0]!, edges[edges.length - 1]!])
+    .range([M.left, w - M.right]);
   const top = maxOf(density, curve.y) * 1.1;
-  const y = scaleLinear().domain([0, top]).range([h - M.bottom, M.top]);
-  const out = [`<svg id="${escapeXml(id)}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`];
+  const y = scaleLinear()
+    .domain([0, top])
+    .range([h - M.bottom, M.top]);
+  const out = [
+    `<svg id="${escapeXml(id)}" class="plot" viewBox="0 0 ${w} ${h}" width="${w}" height="${h}" role="img" aria-label="${escapeXml(title)}" xmlns="http://www.w3.org/2000/svg">`,
+  ];
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(title)}</text>`);
   const xt = x.ticks(10);
   const xl = axisLabels(xt);
-  xt.forEach((t, i) => out.push(`<text class="tick x-tick" x="${x(t).toFixed(1)}" y="${h - M.bottom + 16}" text-anchor="middle">${xl[i]}</text>`));
+  xt.forEach((t, i) =>
+    out.push(
+      `<text class="tick x-tick" x="${x(t).toFixed(1)}" y="${h - M.bottom + 16}" text-anchor="middle">${xl[i]}</text>`,
+    ),
+  );
   const yt = y.ticks(5);
   const yl = axisLabels(yt);
   yt.forEach((t, i) => {
     out.push(`<line class="grid" x1="${M.left}" x2="${w - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`);
-    out.push(`<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`);
+    out.push(
+      `<text class="tick y-tick" x="${M.left - 6}" y="${(y(t) + 4).toFixed(1)}" text-anchor="end">${yl[i]}</text>`,
+    );
   });
-  const bars = density.map((d, i) => `M${x(edges[i]!).toFixed(1)},${y(0).toFixed(1)}V${y(d).toFixed(1)}H${x(edges[i + 1]!).toFixed(1)}V${y(0).toFixed(1)}Z`).join("");
+  const bars = density
+    .map(
+      (d, i) =>
+        `M${x(edges[i]!).toFixed(1)},${y(0).toFixed(1)}V${y(d).toFixed(1)}H${x(edges[i + 1]!).toFixed(1)}V${y(0).toFixed(1)}Z`,
+    )
+    .join("");
   out.push(`<path class="bars" data-series="histogram" data-points="${density.length}" d="${bars}"/>`);
-  const d = line<number>().x((i) => x(curve.x[i]!)).y((i) => y(curve.y[i]!))(curve.x.map((_, i) => i));
+  const d = line<number>()
+    .x((i) => x(curve.x[i]!))
+    .y((i) => y(curve.y[i]!))(curve.x.map((_, i) => i));
   out.push(`<path class="gauss" data-series="gaussian" data-points="${curve.x.length}" d="${d ?? ""}"/>`);
-  out.push(`<rect class="frame" x="${M.left}" y="${M.top}" width="${w - M.left - M.right}" height="${h - M.top - M.bottom}"/>`);
-  out.push(`<text class="axis-label" x="${(M.left + w - M.right) / 2}" y="${h - 8}" text-anchor="middle">${escapeXml(xLabel)}</text>`);
-  out.push(`<text class="axis-label" transform="translate(16 ${(M.top + h - M.bottom) / 2}) rotate(-90)" text-anchor="middle">probability density</text>`);
+  out.push(
+    `<rect class="frame" x="${M.left}" y="${M.top}" width="${w - M.left - M.right}" height="${h - M.top - M.bottom}"/>`,
+  );
+  out.push(
+    `<text class="axis-label" x="${(M.left + w - M.right) / 2}" y="${h - 8}" text-anchor="middle">${escapeXml(xLabel)}</text>`,
+  );
+  out.push(
+    `<text class="axis-label" transform="translate(16 ${(M.top + h - M.bottom) / 2}) rotate(-90)" text-anchor="middle">probability density</text>`,
+  );
   out.push("</svg>");
   return out.join("\n");
 }

@@ -36,7 +36,11 @@ export interface WriterOptions {
 export async function createTimeHistoryWriter(target: string, o: WriterOptions): Promise<TimeHistoryWriter> {
   const wav = /\.wav$/i.test(target);
   if (!wav && !/\.(csv|txt)$/i.test(target)) {
-    throw new InputError("OUTPUT_FORMAT", { option: o.option, expected: "a file name ending in .wav or .csv", received: target });
+    throw new InputError("OUTPUT_FORMAT", {
+      option: o.option,
+      expected: "a file name ending in .wav or .csv",
+      received: target,
+    });
   }
   const out = await TemporaryOutput.create(target, { inputs: o.inputs, force: o.force, option: o.option });
   const nch = o.channelNames.length;

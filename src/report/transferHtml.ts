@@ -3,7 +3,17 @@ import { accelLabel, densityLabel } from "../units.js";
 import { TRANSFER_CAUTION } from "./cautions.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, rateText, sig } from "./format.js";
-import { givenRow, metaRows, qty, readingWords, recordDocument, recordSignOff, reportPage, row, type ReportContext } from "./reportPage.js";
+import {
+  givenRow,
+  metaRows,
+  qty,
+  readingWords,
+  recordDocument,
+  recordSignOff,
+  reportPage,
+  row,
+  type ReportContext,
+} from "./reportPage.js";
 import { transferJson } from "./transferReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 import { findingTexts } from "./findingTexts.js";
@@ -38,32 +48,75 @@ function positiveRange(a: Float64Array, from: number): [number, number] {
 function outputSection(t: TransferAnalysis, o: TransferOutput, n: number): string {
   const f = t.frequencyHz;
   const xDomain: [number, number] = [f[1]!, f[f.length - 1]!];
-  const mag = positiveRange(o.h1Upper.map((v, k) => Math.max(v, o.h2Magnitude[k]! || 0)), 1);
+  const mag = positiveRange(
+    o.h1Upper.map((v, k) => Math.max(v, o.h2Magnitude[k]! || 0)),
+    1,
+  );
   const magLo = positiveRange(o.h1Magnitude, 1)[0];
   const psdRange = positiveRange(o.measuredOutputPsd, 1);
   const u = densityLabel(t.units);
   const plots = [
     svgPlot({
-      id: `h-${n}`, title: `|H| from ${t.reference.name} to ${o.name}`, xLabel: "frequency (Hz)", yLabel: "magnitude", xDomain, yDomain: [magLo, mag[1]], yLog: true,
+      id: `h-${n}`,
+      title: `|H| from ${t.reference.name} to ${o.name}`,
+      xLabel: "frequency (Hz)",
+      yLabel: "magnitude",
+      xDomain,
+      yDomain: [magLo, mag[1]],
+      yLog: true,
       series: [
-        { id: "h1-bounds", label: `H1 ${fixed(100 * t.settings.confidence, 0)} % bounds`, x: f, y: o.h1Lower.map((v) => Math.max(v, magLo)), y2: o.h1Upper, className: "band" },
+        {
+          id: "h1-bounds",
+          label: `H1 ${fixed(100 * t.settings.confidence, 0)} % bounds`,
+          x: f,
+          y: o.h1Lower.map((v) => Math.max(v, magLo)),
+          y2: o.h1Upper,
+          className: "band",
+        },
         { id: "h1", label: "H1", x: f, y: o.h1Magnitude, className: "h1" },
         { id: "h2", label: "H2", x: f, y: o.h2Magnitude, className: "h2" },
       ],
     }),
-    svgPlot({ id: `phase-${n}`, title: `phase of ${o.name} relative to ${t.reference.name}`, xLabel: "frequency (Hz)", yLabel: "phase (degrees)", xDomain, yDomain: [-180, 180], yLog: false, height: 230, series: [{ id: "phase", label: "", x: f, y: o.phaseDeg, className: "phase" }] }),
-    svgPlot({ id: `coherence-${n}`, title: "coherence γ²", xLabel: "frequency (Hz)", yLabel: "coherence", xDomain, yDomain: [0, 1], yLog: false, height: 230, series: [{ id: "coherence", label: "", x: f, y: o.coherence, className: "coherence" }] }),
     svgPlot({
-      id: `psd-${n}`, title: `output PSD of ${o.name}: measured and predicted |H1|² G_in`, xLabel: "frequency (Hz)", yLabel: u, xDomain, yDomain: psdRange, yLog: true,
+      id: `phase-${n}`,
+      title: `phase of ${o.name} relative to ${t.reference.name}`,
+      xLabel: "frequency (Hz)",
+      yLabel: "phase (degrees)",
+      xDomain,
+      yDomain: [-180, 180],
+      yLog: false,
+      height: 230,
+      series: [{ id: "phase", label: "", x: f, y: o.phaseDeg, className: "phase" }],
+    }),
+    svgPlot({
+      id: `coherence-${n}`,
+      title: "coherence γ²",
+      xLabel: "frequency (Hz)",
+      yLabel: "coherence",
+      xDomain,
+      yDomain: [0, 1],
+      yLog: false,
+      height: 230,
+      series: [{ id: "coherence", label: "", x: f, y: o.coherence, className: "coherence" }],
+    }),
+    svgPlot({
+      id: `psd-${n}`,
+      title: `output PSD of ${o.name}: measured and predicted |H1|² G_in`,
+      xLabel: "frequency (Hz)",
+      yLabel: u,
+      xDomain,
+      yDomain: psdRange,
+      yLog: true,
       series: [
         { id: "measured", label: "measured", x: f, y: o.measuredOutputPsd, className: "measured" },
         { id: "predicted", label: "predicted", x: f, y: o.predictedOutputPsd, className: "predicted" },
       ],
     }),
   ];
-  const res = o.resonances.length === 0
-    ? `<p class="muted">No resonance found (a peak needs |H1| ≥ 1, coherence ≥ 0.5 and a half-power point on each side).</p>`
-    : `<table class="grid resonances"><thead><tr><th class="num">f, Hz</th><th class="num">|H1|</th><th class="num">Q</th><th class="num">half-power band, Hz</th><th class="num">coherence</th><th>note</th></tr></thead><tbody>${o.resonances.map((r) => `<tr><td class="num">${sig(r.frequencyHz, 5)}</td><td class="num">${sig(r.magnitude, 4)}</td><td class="num">${sig(r.q, 3)}</td><td class="num">${sig(r.halfPowerHz[0], 5)}–${sig(r.halfPowerHz[1], 5)}</td><td class="num">${fixed(r.coherence, 3)}</td><td>${r.resolutionLimited ? "Q reads low: under 10 lines across" : ""}</td></tr>`).join("")}</tbody></table>`;
+  const res =
+    o.resonances.length === 0
+      ? `<p class="muted">No resonance found (a peak needs |H1| ≥ 1, coherence ≥ 0.5 and a half-power point on each side).</p>`
+      : `<table class="grid resonances"><thead><tr><th class="num">f, Hz</th><th class="num">|H1|</th><th class="num">Q</th><th class="num">half-power band, Hz</th><th class="num">coherence</th><th>note</th></tr></thead><tbody>${o.resonances.map((r) => `<tr><td class="num">${sig(r.frequencyHz, 5)}</td><td class="num">${sig(r.magnitude, 4)}</td><td class="num">${sig(r.q, 3)}</td><td class="num">${sig(r.halfPowerHz[0], 5)}–${sig(r.halfPowerHz[1], 5)}</td><td class="num">${fixed(r.coherence, 3)}</td><td>${r.resolutionLimited ? "Q reads low: under 10 lines across" : ""}</td></tr>`).join("")}</tbody></table>`;
   const a = accelLabel(t.units);
   return `<section class="output" id="output-${n}">
 <h2>Output ${esc(o.name)} (channel ${o.position})</h2>
@@ -85,13 +138,20 @@ export function transferResultDocument(t: TransferAnalysis, ctx: ReportContext):
 
 export const TRANSFER_WORD = "TRANSFER RECORD";
 
-export function transferHtml(t: TransferAnalysis, version: string, when: Date, context: Omit<ReportContext, "version" | "when"> = {}): string {
+export function transferHtml(
+  t: TransferAnalysis,
+  version: string,
+  when: Date,
+  context: Omit<ReportContext, "version" | "when"> = {},
+): string {
   const ctx: ReportContext = { ...context, version, when };
   const m = ctx.meta;
   const s = t.settings;
   const name = t.input.file.split(/[\\/]/).pop() ?? t.input.file;
   const title = `${m?.testId ? `Frequency response, test ${m.testId}` : "Frequency response"}: ${t.reference.name} to ${t.outputs.map((o) => o.name).join(", ")}`;
-  const peaks = t.outputs.flatMap((o) => o.resonances.map((r) => ({ o, r }))).sort((x, y) => y.r.magnitude - x.r.magnitude);
+  const peaks = t.outputs
+    .flatMap((o) => o.resonances.map((r) => ({ o, r })))
+    .sort((x, y) => y.r.magnitude - x.r.magnitude);
   const summary = `${t.outputs.length} output(s) against ${t.reference.name}; ${peaks.length === 0 ? "no resonance found" : `${peaks.length} resonance(s), the strongest |H1| ${sig(peaks[0]!.r.magnitude, 3)} at ${sig(peaks[0]!.r.frequencyHz, 4)} Hz on ${peaks[0]!.o.name} (Q ${sig(peaks[0]!.r.q, 3)})`}.`;
   const body = `<style>${EXTRA_STYLE}</style>
 <div class="verdict none" id="verdict" data-verdict="none"><span class="word">FRF</span><span>${esc(summary)}</span></div>
@@ -119,10 +179,27 @@ ${row("Good coherence", `γ² ≥ ${s.goodCoherence}`)}
 ${givenRow(ctx)}
 </table>
 ${t.outputs.map((o, i) => outputSection(t, o, i + 1)).join("\n")}
-${t.warnings.length ? `<h2>Notes</h2><ul>${findingTexts(t.warnings).map((w) => `<li>${esc(w)}</li>`).join("")}</ul>` : ""}
+${
+  t.warnings.length
+    ? `<h2>Notes</h2><ul>${findingTexts(t.warnings)
+        .map((w) => `<li>${esc(w)}</li>`)
+        .join("")}</ul>`
+    : ""
+}
 <h2>Caution</h2>
 <div class="caution keep">${esc(TRANSFER_CAUTION)}</div>
 ${recordSignOff("Transfer record", summary, m, [{ label: "Recording", file: t.input.file, sha256: t.input.sha256 }])}`;
-  const page = reportPage({ title, verdictClass: "none", verdictWord: TRANSFER_WORD, recordingSha256: t.input.sha256, recordingName: name, kindLine: "Frequency-response (transfer) record", body }, ctx);
+  const page = reportPage(
+    {
+      title,
+      verdictClass: "none",
+      verdictWord: TRANSFER_WORD,
+      recordingSha256: t.input.sha256,
+      recordingName: name,
+      kindLine: "Frequency-response (transfer) record",
+      body,
+    },
+    ctx,
+  );
   return embedResult(page, transferResultDocument(t, ctx));
 }

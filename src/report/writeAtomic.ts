@@ -80,7 +80,11 @@ export function temporaryPathFor(target: string): string {
 /** OUTPUT_UNWRITABLE with the file-system reason, for any error that has an errno code; others pass through. */
 export function unwritable(target: string, option: string, e: unknown): unknown {
   if (e instanceof InputError || !isFsError(e)) return e;
-  return new InputError("OUTPUT_UNWRITABLE", { option, expected: "a writable path", received: `${target} (${fsReason(e)})` });
+  return new InputError("OUTPUT_UNWRITABLE", {
+    option,
+    expected: "a writable path",
+    received: `${target} (${fsReason(e)})`,
+  });
 }
 
 /**
@@ -94,14 +98,27 @@ export function checkOutputPath(target: string, inputs: string[], force: boolean
     if (i === "-") continue;
     const is = ts ? statOrUndefined(i) : undefined;
     if (canonical(i) === t || (ts && is && ts.dev === is.dev && ts.ino === is.ino)) {
-      throw new InputError("OUTPUT_IS_INPUT", { option, expected: "an output path different from every input", received: i === target ? target : `${target} (the same file as ${i})` });
+      throw new InputError("OUTPUT_IS_INPUT", {
+        option,
+        expected: "an output path different from every input",
+        received: i === target ? target : `${target} (the same file as ${i})`,
+      });
     }
   }
   if (ts && !ts.isFile()) {
-    throw new InputError("OUTPUT_UNWRITABLE", { option, expected: "a regular file or a new name", received: `${target} (${fileKind(ts)}; psdgate never replaces one)` });
+    throw new InputError("OUTPUT_UNWRITABLE", {
+      option,
+      expected: "a regular file or a new name",
+      received: `${target} (${fileKind(ts)}; psdgate never replaces one)`,
+    });
   }
   if (ts && !force) {
-    throw new InputError("OUTPUT_EXISTS", { option, expected: "a new file", received: `${target} (exists)`, hint: "add --force to replace it" });
+    throw new InputError("OUTPUT_EXISTS", {
+      option,
+      expected: "a new file",
+      received: `${target} (exists)`,
+      hint: "add --force to replace it",
+    });
   }
 }
 
@@ -109,7 +126,12 @@ export function checkOutputPath(target: string, inputs: string[], force: boolean
 export class TemporaryOutput {
   private done = false;
   private closed = false;
-  private constructor(readonly target: string, readonly path: string, readonly fd: number, private readonly opts: OutputOptions) {}
+  private constructor(
+    readonly target: string,
+    readonly path: string,
+    readonly fd: number,
+    private readonly opts: OutputOptions,
+  ) {}
 
   static async create(target: string, opts: OutputOptions): Promise<TemporaryOutput> {
     checkOutputPath(target, opts.inputs, opts.force, opts.option);
@@ -152,11 +174,22 @@ export class TemporaryOutput {
         } catch (e) {
           const code = (e as NodeJS.ErrnoException).code;
           if (code === "EEXIST") {
-            throw new InputError("OUTPUT_EXISTS", { option: this.opts.option, expected: "a new file", received: `${this.target} (another process wrote it first)`, hint: "add --force to replace it" });
+            throw new InputError("OUTPUT_EXISTS", {
+              option: this.opts.option,
+              expected: "a new file",
+              received: `${this.target} (another process wrote it first)`,
+              hint: "add --force to replace it",
+            });
           }
           if (code !== "EPERM" && code !== "ENOTSUP" && code !== "EOPNOTSUPP" && code !== "ENOSYS") throw e;
           await copyFile(this.path, this.target, constants.COPYFILE_EXCL).catch((c: NodeJS.ErrnoException) => {
-            if (c.code === "EEXIST") throw new InputError("OUTPUT_EXISTS", { option: this.opts.option, expected: "a new file", received: `${this.target} (exists)`, hint: "add --force to replace it" });
+            if (c.code === "EEXIST")
+              throw new InputError("OUTPUT_EXISTS", {
+                option: this.opts.option,
+                expected: "a new file",
+                received: `${this.target} (exists)`,
+                hint: "add --force to replace it",
+              });
             throw c;
           });
         }

@@ -69,10 +69,15 @@ export function brokenLineLevel(points: readonly Breakpoint[], f: number): numbe
  * x_k (the first and last always), lying on or above every y_k, minimising sum_k (line(x_k) - y_k).
  * Returns the chosen indices and the line's values there.
  */
-export function upperEnvelope(x: Float64Array, y: Float64Array, maxPoints: number): { index: number[]; value: number[] } {
+export function upperEnvelope(
+  x: Float64Array,
+  y: Float64Array,
+  maxPoints: number,
+): { index: number[]; value: number[] } {
   const m = x.length;
   if (m < 2) throw new RangeError("an envelope needs at least 2 points");
-  if (!(Number.isInteger(maxPoints) && maxPoints >= 2)) throw new RangeError(`at least 2 breakpoints, got ${maxPoints}`);
+  if (!(Number.isInteger(maxPoints) && maxPoints >= 2))
+    throw new RangeError(`at least 2 breakpoints, got ${maxPoints}`);
   let yMax = -Infinity;
   for (let k = 0; k < m; k++) yMax = Math.max(yMax, y[k]!);
   // Candidate levels per point: y_k + 0, 0.5, ..., 6 dB, then 1 dB steps to the highest y plus 1 dB, and the highest y itself.
@@ -135,7 +140,12 @@ export function upperEnvelope(x: Float64Array, y: Float64Array, maxPoints: numbe
   let bc = Infinity;
   for (let s = 1; s <= segs; s++) {
     const row = best[s]![m - 1]!;
-    for (let b = 0; b < row.length; b++) if (row[b]! < bc - 1e-12) { bc = row[b]!; bs = s; bb = b; }
+    for (let b = 0; b < row.length; b++)
+      if (row[b]! < bc - 1e-12) {
+        bc = row[b]!;
+        bs = s;
+        bb = b;
+      }
   }
   if (bs < 0) throw new RangeError("no envelope found (internal)");
   const index: number[] = [];
@@ -166,13 +176,22 @@ function ratios(damage: Float64Array, target: Float64Array): Float64Array {
   return damage.map((d, i) => d / target[i]!);
 }
 
-function summary(points: Breakpoint[], damage: Float64Array, target: Float64Array, fnHz: Float64Array, scale: number): ProfileFit {
+function summary(
+  points: Breakpoint[],
+  damage: Float64Array,
+  target: Float64Array,
+  fnHz: Float64Array,
+  scale: number,
+): ProfileFit {
   const r = ratios(damage, target);
   let min = Infinity;
   let minHz = NaN;
   let max = 0;
   r.forEach((v, i) => {
-    if (v < min) { min = v; minHz = fnHz[i]!; }
+    if (v < min) {
+      min = v;
+      minHz = fnHz[i]!;
+    }
     max = Math.max(max, v);
   });
   const sorted = Float64Array.from(r).sort();
@@ -182,7 +201,10 @@ function summary(points: Breakpoint[], damage: Float64Array, target: Float64Arra
 }
 
 /** Scale every level by the smallest factor that makes damage / target >= 1 everywhere (level factor = ratio^(2/b)). */
-function scaled(points: Breakpoint[], o: ProfileFitOptions): { points: Breakpoint[]; damage: Float64Array; scale: number } {
+function scaled(
+  points: Breakpoint[],
+  o: ProfileFitOptions,
+): { points: Breakpoint[]; damage: Float64Array; scale: number } {
   const d = o.damageOf(points);
   let need = 0;
   d.forEach((v, i) => (need = Math.max(need, o.targetDamage[i]! / v)));
@@ -196,26 +218,31 @@ export function fitDamageProfile(o: ProfileFitOptions): ProfileFit {
   const x = o.fnHz.map(Math.log);
   let bestFit: ProfileFit | undefined;
   for (const start of o.startLevels) {
-  let y = start.map(Math.log);
-  let stale = 0;
-  for (let pass = 0; pass < 12 && stale < 3; pass++) {
-    const env = upperEnvelope(x, y, o.maxBreakpoints);
-    // Ends of the band stay exact; inner breakpoints rounded to 4 digits (still on or inside the grid's range).
-    const raw = env.index.map((k, j) => ({ hz: j === 0 || j === env.index.length - 1 ? o.fnHz[k]! : round4(o.fnHz[k]!, false), level: Math.exp(env.value[j]!) }));
-    const s = scaled(raw, o);
-    const fit = summary(s.points, s.damage, o.targetDamage, o.fnHz, s.scale);
-    // Over-test measure: the mean log damage ratio (the area by which the test's FDS exceeds the target).
-    const excess = (f: ProfileFit) => ratios(f.damage, o.targetDamage).reduce((t, v) => t + Math.log(v), 0);
-    if (!bestFit || excess(fit) < excess(bestFit) - 1e-9) {
-      bestFit = fit;
-      stale = 0;
-    } else stale++;
-    // Corrected target: at each f_n the level at which the present shape would just meet it.
-    const before = o.damageOf(raw);
-    const ny = new Float64Array(m);
-    for (let k = 0; k < m; k++) ny[k] = Math.log(brokenLineLevel(raw, o.fnHz[k]!)) + (2 / o.basquinB) * Math.log(o.targetDamage[k]! / before[k]!);
-    y = ny;
-  }
+    let y = start.map(Math.log);
+    let stale = 0;
+    for (let pass = 0; pass < 12 && stale < 3; pass++) {
+      const env = upperEnvelope(x, y, o.maxBreakpoints);
+      // Ends of the band stay exact; inner breakpoints rounded to 4 digits (still on or inside the grid's range).
+      const raw = env.index.map((k, j) => ({
+        hz: j === 0 || j === env.index.length - 1 ? o.fnHz[k]! : round4(o.fnHz[k]!, false),
+        level: Math.exp(env.value[j]!),
+      }));
+      const s = scaled(raw, o);
+      const fit = summary(s.points, s.damage, o.targetDamage, o.fnHz, s.scale);
+      // Over-test measure: the mean log damage ratio (the area by which the test's FDS exceeds the target).
+      const excess = (f: ProfileFit) => ratios(f.damage, o.targetDamage).reduce((t, v) => t + Math.log(v), 0);
+      if (!bestFit || excess(fit) < excess(bestFit) - 1e-9) {
+        bestFit = fit;
+        stale = 0;
+      } else stale++;
+      // Corrected target: at each f_n the level at which the present shape would just meet it.
+      const before = o.damageOf(raw);
+      const ny = new Float64Array(m);
+      for (let k = 0; k < m; k++)
+        ny[k] =
+          Math.log(brokenLineLevel(raw, o.fnHz[k]!)) + (2 / o.basquinB) * Math.log(o.targetDamage[k]! / before[k]!);
+      y = ny;
+    }
   }
   return bestFit!;
 }

@@ -59,13 +59,26 @@ export function synthesizeProfile(
   return run(profile, o, sink);
 }
 
-async function run(profile: TestProfile, o: SynthOptions, sink: (channels: Float64Array[], frames: number) => Promise<void> | void): Promise<SynthResult> {
+async function run(
+  profile: TestProfile,
+  o: SynthOptions,
+  sink: (channels: Float64Array[], frames: number) => Promise<void> | void,
+): Promise<SynthResult> {
   const fs = o.sampleRateHz;
   const fTop = profile.breakpoints[profile.breakpoints.length - 1]!.hz;
   if (!(fs > 2 * fTop)) {
-    throw new InputError("OPTION_INVALID", { option: "sampleRateHz", expected: `a sample rate above twice the profile's top frequency (> ${2 * fTop} Hz)`, received: String(fs) });
+    throw new InputError("OPTION_INVALID", {
+      option: "sampleRateHz",
+      expected: `a sample rate above twice the profile's top frequency (> ${2 * fTop} Hz)`,
+      received: String(fs),
+    });
   }
-  if (!(o.durationS > 0)) throw new InputError("OPTION_INVALID", { option: "durationS", expected: "a duration in s above 0", received: String(o.durationS) });
+  if (!(o.durationS > 0))
+    throw new InputError("OPTION_INVALID", {
+      option: "durationS",
+      expected: "a duration in s above 0",
+      received: String(o.durationS),
+    });
   const nch = o.channels ?? 1;
   const total = Math.round(o.durationS * fs);
   const L = synthesisFilterLength(profile, fs);

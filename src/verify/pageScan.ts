@@ -22,7 +22,18 @@ export interface ScannedPage {
   malformed?: string | undefined;
 }
 
-const RAW_TEXT = new Set(["style", "script", "textarea", "title", "xmp", "iframe", "noembed", "noframes", "noscript", "plaintext"]);
+const RAW_TEXT = new Set([
+  "style",
+  "script",
+  "textarea",
+  "title",
+  "xmp",
+  "iframe",
+  "noembed",
+  "noframes",
+  "noscript",
+  "plaintext",
+]);
 
 function parseAttrs(src: string): Map<string, string> {
   const attrs = new Map<string, string>();
@@ -32,7 +43,8 @@ function parseAttrs(src: string): Map<string, string> {
     if (i >= src.length) break;
     let name = "";
     // The first character may be "=" (HTML: attribute name starts with it); a name then runs to space, /, > or =.
-    do name += src[i++]; while (i < src.length && !/[\s/=>]/.test(src[i]!));
+    do name += src[i++];
+    while (i < src.length && !/[\s/=>]/.test(src[i]!));
     while (i < src.length && /\s/.test(src[i]!)) i++;
     let value = "";
     if (src[i] === "=") {
@@ -128,7 +140,40 @@ export function scanPage(html: string): ScannedPage {
 }
 
 /** Start tags and attributes psdgate never writes into a report page. */
-const FORBIDDEN_TAGS = new Set(["details", "dialog", "slot", "marquee", "script", "link", "iframe", "frame", "frameset", "object", "embed", "base", "img", "image", "input", "form", "button", "video", "audio", "source", "track", "portal", "noscript", "foreignobject", "use", "a", "textarea", "select", "animate", "set", "animatemotion", "animatetransform"]);
+const FORBIDDEN_TAGS = new Set([
+  "details",
+  "dialog",
+  "slot",
+  "marquee",
+  "script",
+  "link",
+  "iframe",
+  "frame",
+  "frameset",
+  "object",
+  "embed",
+  "base",
+  "img",
+  "image",
+  "input",
+  "form",
+  "button",
+  "video",
+  "audio",
+  "source",
+  "track",
+  "portal",
+  "noscript",
+  "foreignobject",
+  "use",
+  "a",
+  "textarea",
+  "select",
+  "animate",
+  "set",
+  "animatemotion",
+  "animatetransform",
+]);
 
 /** A relative link to a file in the same folder (encoded as encodeURI writes it), as a batch index writes. */
 function isSiblingFile(href: string | undefined): boolean {
@@ -140,18 +185,32 @@ export function foreignContent(page: ScannedPage, opts: { links?: boolean } = {}
   if (page.malformed) return page.malformed;
   // One template, the result's: content inside any other template is never rendered (a banner could hide there).
   const templates = page.tags.filter((t) => t.name === "template");
-  if (templates.length !== 1 || templates[0]!.attrs.get("id") !== "psdgate-result") return `${templates.length} <template> elements (psdgate writes one, its result)`;
+  if (templates.length !== 1 || templates[0]!.attrs.get("id") !== "psdgate-result")
+    return `${templates.length} <template> elements (psdgate writes one, its result)`;
   for (const t of page.tags) {
     // Attributes that hide an element without any style: hidden, a popover (hidden until shown).
-    if (t.attrs.has("hidden") || t.attrs.has("popover")) return `a ${t.attrs.has("hidden") ? "hidden" : "popover"} attribute on <${t.name}>`;
+    if (t.attrs.has("hidden") || t.attrs.has("popover"))
+      return `a ${t.attrs.has("hidden") ? "hidden" : "popover"} attribute on <${t.name}>`;
     // A batch index links its reports: <a href> to a file beside it (no scheme, no absolute or parent path), nothing else.
-    if (opts.links === true && t.name === "a" && isSiblingFile(t.attrs.get("href")) && [...t.attrs.keys()].every((k) => k === "href")) continue;
+    if (
+      opts.links === true &&
+      t.name === "a" &&
+      isSiblingFile(t.attrs.get("href")) &&
+      [...t.attrs.keys()].every((k) => k === "href")
+    )
+      continue;
     if (FORBIDDEN_TAGS.has(t.name)) return `a <${t.name}> element`;
-    if (t.name === "meta" && t.attrs.has("http-equiv") && t.attrs.get("http-equiv")!.toLowerCase() !== "content-security-policy") return `a <meta http-equiv="${t.attrs.get("http-equiv")}"> element`;
+    if (
+      t.name === "meta" &&
+      t.attrs.has("http-equiv") &&
+      t.attrs.get("http-equiv")!.toLowerCase() !== "content-security-policy"
+    )
+      return `a <meta http-equiv="${t.attrs.get("http-equiv")}"> element`;
     for (const k of t.attrs.keys()) {
       if (k.startsWith("on")) return `an event handler (${k}) on <${t.name}>`;
       if (k === "style") return `a style attribute on <${t.name}>`;
-      if (k === "href" || k === "xlink:href" || k === "src" || k === "srcset" || k === "action" || k === "formaction") return `a ${k} attribute on <${t.name}>`;
+      if (k === "href" || k === "xlink:href" || k === "src" || k === "srcset" || k === "action" || k === "formaction")
+        return `a ${k} attribute on <${t.name}>`;
     }
   }
   return undefined;
@@ -177,5 +236,10 @@ export function shownVerdict(html: string, page: ScannedPage = scanPage(html)): 
   const after = page.tags.filter((t) => t.at > b.at);
   const word = after.find((t) => t.name === "span" && (t.attrs.get("class") ?? "").split(/\s+/).includes("word"));
   const wordText = word ? decodeEntities(html.slice(word.end, html.indexOf("<", word.end))).trim() : undefined;
-  return { count: 1, dataVerdict: b.attrs.get("data-verdict"), classVerdict: classes.length === 1 ? classes[0] : classes.join(" "), word: wordText };
+  return {
+    count: 1,
+    dataVerdict: b.attrs.get("data-verdict"),
+    classVerdict: classes.length === 1 ? classes[0] : classes.join(" "),
+    word: wordText,
+  };
 }

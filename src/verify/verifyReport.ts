@@ -80,7 +80,14 @@ export interface CompareOptions {
  * The one exception is a field a later psdgate added (ADDED_LATER) when the report came from another
  * version: it is listed in `added`. A recorded field the re-run lacks is a difference.
  */
-export function compareResults(recorded: unknown, now: unknown, tolerance: number, path = "", out: { diffs: string[]; compared: number; added: string[] } = { diffs: [], compared: 0, added: [] }, opts: CompareOptions = { olderReport: true }) {
+export function compareResults(
+  recorded: unknown,
+  now: unknown,
+  tolerance: number,
+  path = "",
+  out: { diffs: string[]; compared: number; added: string[] } = { diffs: [], compared: 0, added: [] },
+  opts: CompareOptions = { olderReport: true },
+) {
   if (IGNORED.has(path) || IGNORED_PATTERN.test(path)) return out;
   if (recorded === undefined && now !== undefined) {
     const folded = path.replace(/\[\d+\]/g, "[]");
@@ -95,10 +102,20 @@ export function compareResults(recorded: unknown, now: unknown, tolerance: numbe
     if (!(Math.abs(recorded - now) <= tolerance * scale)) add(`${path}: recorded ${recorded}, re-run ${now}`);
   } else if (Array.isArray(recorded) && Array.isArray(now)) {
     if (recorded.length !== now.length) add(`${path}: recorded ${recorded.length} values, re-run ${now.length}`);
-    else for (let i = 0; i < recorded.length; i++) compareResults(recorded[i], now[i], tolerance, `${path}[${i}]`, out, opts);
+    else
+      for (let i = 0; i < recorded.length; i++)
+        compareResults(recorded[i], now[i], tolerance, `${path}[${i}]`, out, opts);
   } else if (recorded !== null && now !== null && typeof recorded === "object" && typeof now === "object") {
     const keys = new Set([...Object.keys(recorded), ...Object.keys(now)]);
-    for (const k of keys) compareResults((recorded as Record<string, unknown>)[k], (now as Record<string, unknown>)[k], tolerance, path ? `${path}.${k}` : k, out, opts);
+    for (const k of keys)
+      compareResults(
+        (recorded as Record<string, unknown>)[k],
+        (now as Record<string, unknown>)[k],
+        tolerance,
+        path ? `${path}.${k}` : k,
+        out,
+        opts,
+      );
   } else if (recorded !== now) {
     add(`${path}: recorded ${JSON.stringify(recorded)?.slice(0, 60)}, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
   }
@@ -111,7 +128,6 @@ function addedNote(added: string[]): string {
   const names = [...new Set(added.map((p) => p.replace(/\[\d+\]/g, "[]")))];
   return `; not in the report, so not compared (added by a later psdgate than the report's): ${names.slice(0, 6).join(", ")}${names.length > 6 ? ` and ${names.length - 6} more` : ""}`;
 }
-
 
 /** The fields each kind of record must hold: its verdict (where it has one) and the evidence for it. */
 export const REQUIRED_FIELDS: Record<string, readonly string[]> = {
@@ -131,14 +147,31 @@ function requiredMissing(kind: string | undefined, result: Record<string, unknow
   const need = kind !== undefined ? REQUIRED_FIELDS[kind] : undefined;
   if (!need) return undefined;
   for (const k of need) if (!(k in result) || result[k] === undefined) return `"${k}"`;
-  if (kind === "check" && !VERDICTS.includes(result.verdict as string)) return "verdict psdgate gives (pass, fail or inconclusive)";
-  if ((kind === "check" || kind === "psd") && (!Array.isArray(result.channels) || result.channels.length === 0)) return "channels";
+  if (kind === "check" && !VERDICTS.includes(result.verdict as string))
+    return "verdict psdgate gives (pass, fail or inconclusive)";
+  if ((kind === "check" || kind === "psd") && (!Array.isArray(result.channels) || result.channels.length === 0))
+    return "channels";
   return undefined;
 }
 
 /** Style elements a page of each kind carries besides the frame's (report/reportPage.ts). */
-const EXTRA_STYLES: Record<string, readonly string[]> = { psd: [PEAK_HOLD_STYLE], derive: [DERIVE_STYLE], ride: [RIDE_STYLE, PEAK_HOLD_STYLE], transfer: [TRANSFER_STYLE], respond: [RESPOND_STYLE], batch: [BATCH_STYLE] };
-const BANNER_WORD: Record<string, string> = { psd: "PSD", derive: "PROFILE", ride: "RIDE", transfer: "FRF", respond: "SDOF", batch: "BATCH", shock: "SHOCK" };
+const EXTRA_STYLES: Record<string, readonly string[]> = {
+  psd: [PEAK_HOLD_STYLE],
+  derive: [DERIVE_STYLE],
+  ride: [RIDE_STYLE, PEAK_HOLD_STYLE],
+  transfer: [TRANSFER_STYLE],
+  respond: [RESPOND_STYLE],
+  batch: [BATCH_STYLE],
+};
+const BANNER_WORD: Record<string, string> = {
+  psd: "PSD",
+  derive: "PROFILE",
+  ride: "RIDE",
+  transfer: "FRF",
+  respond: "SDOF",
+  batch: "BATCH",
+  shock: "SHOCK",
+};
 
 /**
  * What is wrong with the page as psdgate would write it, or undefined: the page is parsed (verify/pageScan.ts),
@@ -187,57 +220,138 @@ function locate(given: string | undefined, recorded: string, report: string): { 
 }
 
 export async function verifyReport(report: string, options: VerifyOptions): Promise<VerifyResult> {
-  const html = (await readSmallText(report, { what: "a readable psdgate HTML report", maxBytes: MAX_REPORT_BYTES, tooLarge: "INPUT_TOO_LARGE" })).text;
+  const html = (
+    await readSmallText(report, {
+      what: "a readable psdgate HTML report",
+      maxBytes: MAX_REPORT_BYTES,
+      tooLarge: "INPUT_TOO_LARGE",
+    })
+  ).text;
   const tol = options.tolerance ?? 1e-9;
   const steps: VerifyStep[] = [];
   const missing: string[] = [];
-  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, steps, differences: [], missing, compared: 0, ...extra });
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
+    status,
+    report,
+    steps,
+    differences: [],
+    missing,
+    compared: 0,
+    ...extra,
+  });
   const x = extractResult(html);
   if (!x.found) {
     // Not a record at all (any file, or a page whose result block was removed): a usage error, one line, exit 2.
-    throw new InputError("NOT_A_REPORT", { file: report, expected: "an HTML record written by psdgate, with its embedded result", received: /<html/i.test(html.slice(0, 4096)) ? "an HTML page with no psdgate result in it" : "a file that is not a psdgate record" });
+    throw new InputError("NOT_A_REPORT", {
+      file: report,
+      expected: "an HTML record written by psdgate, with its embedded result",
+      received: /<html/i.test(html.slice(0, 4096))
+        ? "an HTML page with no psdgate result in it"
+        : "a file that is not a psdgate record",
+    });
   }
   if (x.doc === undefined) {
     steps.push({ step: "result", ok: false, text: "the embedded result is not valid JSON (edited)" });
     return done("differs");
   }
-  const doc = x.doc as { kind?: RecordKind; created?: string; rerun?: Record<string, unknown> | null; meta?: TestMeta | null; result?: Record<string, unknown> };
-  const result = (doc.result ?? {}) as { verdict?: string; input?: { file: string; sha256: string }; profile?: { file: string; sha256: string }; tool?: { version?: string } };
-  steps.push({ step: "result", ok: x.resultIntact, text: x.resultIntact ? "embedded result intact (its SHA-256 matches)" : "embedded result edited (its SHA-256 does not match)" });
-  const pageProblem = pageCheck(html, doc.kind, doc.kind === "batch" ? batchVerdict(result as BatchDoc) : result.verdict);
+  const doc = x.doc as {
+    kind?: RecordKind;
+    created?: string;
+    rerun?: Record<string, unknown> | null;
+    meta?: TestMeta | null;
+    result?: Record<string, unknown>;
+  };
+  const result = (doc.result ?? {}) as {
+    verdict?: string;
+    input?: { file: string; sha256: string };
+    profile?: { file: string; sha256: string };
+    tool?: { version?: string };
+  };
   steps.push({
-    step: "page", ok: x.pageIntact && pageProblem === undefined,
-    text: pageProblem !== undefined ? `${pageProblem} (edited)` : x.pageIntact ? "page intact (its SHA-256 matches the one in the result)" : "page edited outside the result (its SHA-256 does not match the one recorded)",
+    step: "result",
+    ok: x.resultIntact,
+    text: x.resultIntact
+      ? "embedded result intact (its SHA-256 matches)"
+      : "embedded result edited (its SHA-256 does not match)",
+  });
+  const pageProblem = pageCheck(
+    html,
+    doc.kind,
+    doc.kind === "batch" ? batchVerdict(result as BatchDoc) : result.verdict,
+  );
+  steps.push({
+    step: "page",
+    ok: x.pageIntact && pageProblem === undefined,
+    text:
+      pageProblem !== undefined
+        ? `${pageProblem} (edited)`
+        : x.pageIntact
+          ? "page intact (its SHA-256 matches the one in the result)"
+          : "page edited outside the result (its SHA-256 does not match the one recorded)",
   });
   const missingField = requiredMissing(doc.kind, result as Record<string, unknown>);
   if (missingField !== undefined) {
-    steps.push({ step: "result", ok: false, text: `the embedded result has no ${missingField}: a record without its verdict or evidence is not one psdgate writes` });
+    steps.push({
+      step: "result",
+      ok: false,
+      text: `the embedded result has no ${missingField}: a record without its verdict or evidence is not one psdgate writes`,
+    });
     return done("differs", { kind: doc.kind });
   }
-  if (doc.kind === "derive" && doc.rerun) return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
+  if (doc.kind === "derive" && doc.rerun)
+    return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
   if (doc.kind === "batch") return verifyBatch(report, doc.result as BatchDoc, steps);
-  if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun) return verifyRecord(report, doc as RecordDoc, steps, tol, options);
-  if (doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock" || !result.input || !doc.rerun) {
-    steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
+  if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun)
+    return verifyRecord(report, doc as RecordDoc, steps, tol, options);
+  if ((doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock") || !result.input || !doc.rerun) {
+    steps.push({
+      step: "result",
+      ok: false,
+      text: "the embedded result does not say what was analysed (kind, input, options)",
+    });
     return done("differs", { kind: undefined });
   }
   let inputsOk = true;
   const rec = locate(options.recording, result.input.file, report);
-  if (!rec.path) missing.push(`recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`);
+  if (!rec.path)
+    missing.push(
+      `recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`,
+    );
   else {
-    const ok = (await sha256File(rec.path, "a readable recording", options.recording !== undefined ? "recording" : undefined)) === result.input.sha256;
+    const ok =
+      (await sha256File(
+        rec.path,
+        "a readable recording",
+        options.recording !== undefined ? "recording" : undefined,
+      )) === result.input.sha256;
     inputsOk &&= ok;
-    steps.push({ step: "recording", ok, text: `${rec.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.input.sha256.slice(0, 12)}… (another or a changed file)`}` });
+    steps.push({
+      step: "recording",
+      ok,
+      text: `${rec.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.input.sha256.slice(0, 12)}… (another or a changed file)`}`,
+    });
   }
   let prof: { path?: string; looked: string[] } = { looked: [] };
   if (doc.kind === "check") {
     if (!result.profile) return done("differs", { kind: doc.kind });
     prof = locate(options.profile, result.profile.file, report);
-    if (!prof.path) missing.push(`profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`);
+    if (!prof.path)
+      missing.push(
+        `profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`,
+      );
     else {
-      const ok = (await sha256File(prof.path, "a readable profile file", options.profile !== undefined ? "profile" : undefined)) === result.profile.sha256;
+      const ok =
+        (await sha256File(
+          prof.path,
+          "a readable profile file",
+          options.profile !== undefined ? "profile" : undefined,
+        )) === result.profile.sha256;
       inputsOk &&= ok;
-      steps.push({ step: "profile", ok, text: `${prof.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.profile.sha256.slice(0, 12)}… (another or a changed file)`}` });
+      steps.push({
+        step: "profile",
+        ok,
+        text: `${prof.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.profile.sha256.slice(0, 12)}… (another or a changed file)`}`,
+      });
     }
   }
   const intact = steps.every((s) => s.ok);
@@ -265,13 +379,23 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   const again = (now as { verdict?: string }).verdict;
   const sameVersion = version === options.version;
   steps.push({
-    step: "rerun", ok: cmp.diffs.length === 0,
-    text: cmp.diffs.length === 0
-      ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
-      : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
+    step: "rerun",
+    ok: cmp.diffs.length === 0,
+    text:
+      cmp.diffs.length === 0
+        ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
+        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
   });
   const status: VerifyStatus = steps.every((s) => s.ok) ? "reproduced" : "differs";
-  return { status, report, kind: doc.kind, steps, differences: cmp.diffs.slice(0, 20), missing, compared: cmp.compared };
+  return {
+    status,
+    report,
+    kind: doc.kind,
+    steps,
+    differences: cmp.diffs.slice(0, 20),
+    missing,
+    compared: cmp.compared,
+  };
 }
 
 /**
@@ -286,11 +410,18 @@ function channelSpelled(o: Record<string, unknown> | undefined): Record<string, 
 
 function respondRerunSpelled(rerun: Record<string, unknown>): Record<string, unknown> {
   const against = rerun.against as { options?: Record<string, unknown> } | undefined;
-  return { ...rerun, source: channelSpelled(rerun.source as Record<string, unknown> | undefined), ...(against ? { against: { ...against, options: channelSpelled(against.options) } } : {}) };
+  return {
+    ...rerun,
+    source: channelSpelled(rerun.source as Record<string, unknown> | undefined),
+    ...(against ? { against: { ...against, options: channelSpelled(against.options) } } : {}),
+  };
 }
 
 function deriveRerunSpelled(rerun: DerivationDoc["rerun"]): DerivationDoc["rerun"] {
-  const { fromHz, toHz, ...rest } = channelSpelled(rerun as unknown as Record<string, unknown>)! as Record<string, unknown>;
+  const { fromHz, toHz, ...rest } = channelSpelled(rerun as unknown as Record<string, unknown>)! as Record<
+    string,
+    unknown
+  >;
   return { ...rest, fminHz: rest.fminHz ?? fromHz, fmaxHz: rest.fmaxHz ?? toHz } as unknown as DerivationDoc["rerun"];
 }
 
@@ -300,7 +431,11 @@ interface DerivationDoc {
   rerun: Omit<DeriveOptions, "version" | "created">;
   /** The profile file the derivation wrote, by SHA-256 (records from before it was kept lack it). */
   written?: { file: string; sha256: string };
-  result: { tool?: { version?: string }; recordings?: { file: string; sha256: string }[]; profile?: { provenance?: { inputs?: { file: string; sha256: string; role?: string }[] } } };
+  result: {
+    tool?: { version?: string };
+    recordings?: { file: string; sha256: string }[];
+    profile?: { provenance?: { inputs?: { file: string; sha256: string; role?: string }[] } };
+  };
 }
 
 /**
@@ -309,7 +444,16 @@ interface DerivationDoc {
  */
 async function hashedInput(
   report: string,
-  i: { given?: string | undefined; file: string; sha256: string; step: VerifyStep["step"]; name: string; label?: string; hint?: string; what?: string },
+  i: {
+    given?: string | undefined;
+    file: string;
+    sha256: string;
+    step: VerifyStep["step"];
+    name: string;
+    label?: string;
+    hint?: string;
+    what?: string;
+  },
   steps: VerifyStep[],
   missing: string[],
 ): Promise<{ path?: string; ok: boolean }> {
@@ -319,16 +463,35 @@ async function hashedInput(
     return { ok: true };
   }
   const ok = (await sha256File(at.path, i.what ?? "a readable file", undefined)) === i.sha256;
-  steps.push({ step: i.step, ok, text: `${at.path}${i.label ? ` (${i.label})` : ""}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${i.sha256.slice(0, 12)}… (another or a changed file)`}` });
+  steps.push({
+    step: i.step,
+    ok,
+    text: `${at.path}${i.label ? ` (${i.label})` : ""}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${i.sha256.slice(0, 12)}… (another or a changed file)`}`,
+  });
   return { path: at.path, ok };
 }
 
 /** A derive record: every field recording (and the mix file) by SHA-256, then the derivation re-run with its recorded settings. */
-async function verifyDerivation(report: string, doc: DerivationDoc, steps: VerifyStep[], tol: number, running: string): Promise<VerifyResult> {
+async function verifyDerivation(
+  report: string,
+  doc: DerivationDoc,
+  steps: VerifyStep[],
+  tol: number,
+  running: string,
+): Promise<VerifyResult> {
   const missing: string[] = [];
   const recorded = doc.result.recordings ?? [];
   const given = doc.rerun.recordings ?? [];
-  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, kind: "derive", steps, differences: [], missing, compared: 0, ...extra });
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
+    status,
+    report,
+    kind: "derive",
+    steps,
+    differences: [],
+    missing,
+    compared: 0,
+    ...extra,
+  });
   if (recorded.length !== given.length || recorded.length === 0) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not list its field recordings" });
     return done("differs");
@@ -336,14 +499,30 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   let inputsOk = true;
   const found: string[] = [];
   for (const [i, r] of recorded.entries()) {
-    const at = await hashedInput(report, { file: r.file, sha256: r.sha256, step: "recording", name: "recording", what: "a readable recording" }, steps, missing);
+    const at = await hashedInput(
+      report,
+      { file: r.file, sha256: r.sha256, step: "recording", name: "recording", what: "a readable recording" },
+      steps,
+      missing,
+    );
     inputsOk &&= at.ok;
     if (at.path) found[i] = at.path;
   }
   // The mix file (its hours are in the recorded settings) and the profile written, by SHA-256.
   const mix = doc.result.profile?.provenance?.inputs?.find((i) => i.role === "mix");
-  for (const [label, f] of [["mix file", mix], ["profile written", doc.written]] as const) {
-    if (f) inputsOk &&= (await hashedInput(report, { file: f.file, sha256: f.sha256, step: "profile", name: label, label }, steps, missing)).ok;
+  for (const [label, f] of [
+    ["mix file", mix],
+    ["profile written", doc.written],
+  ] as const) {
+    if (f)
+      inputsOk &&= (
+        await hashedInput(
+          report,
+          { file: f.file, sha256: f.sha256, step: "profile", name: label, label },
+          steps,
+          missing,
+        )
+      ).ok;
   }
   const intact = steps.every((s) => s.ok);
   if (missing.length > 0) return done(intact ? "missing" : "differs");
@@ -355,7 +534,12 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   const { deriveProfile, strokeOf } = await import("../analyses/deriveProfile.js");
   const { deriveJson, profileDocumentText } = await import("../report/deriveReport.js");
   const { parseProfile } = await import("../compare/testProfile.js");
-  const r = await deriveProfile({ ...deriveRerunSpelled(doc.rerun), recordings: given.map((g, i) => ({ ...g, file: found[i]! })), version, created: new Date(doc.created) });
+  const r = await deriveProfile({
+    ...deriveRerunSpelled(doc.rerun),
+    recordings: given.map((g, i) => ({ ...g, file: found[i]! })),
+    version,
+    created: new Date(doc.created),
+  });
   // As `derive` does: the profile read back from the text it writes, and the stroke checked on that.
   const outFile = doc.rerun.outFile ?? doc.written?.file ?? "derived.json";
   const text = profileDocumentText(r.document, outFile);
@@ -363,14 +547,29 @@ async function verifyDerivation(report: string, doc: DerivationDoc, steps: Verif
   Object.assign(r, strokeOf(r.profile, doc.rerun.strokeMm));
   if (doc.written) {
     const same = r.profile.sha256 === doc.written.sha256;
-    steps.push({ step: "profile", ok: same, text: same ? "the re-run writes the same profile, byte for byte (SHA-256)" : `the re-run writes a different profile (SHA-256 ${r.profile.sha256.slice(0, 12)}…, recorded ${doc.written.sha256.slice(0, 12)}…)` });
+    steps.push({
+      step: "profile",
+      ok: same,
+      text: same
+        ? "the re-run writes the same profile, byte for byte (SHA-256)"
+        : `the re-run writes a different profile (SHA-256 ${r.profile.sha256.slice(0, 12)}…, recorded ${doc.written.sha256.slice(0, 12)}…)`,
+    });
   }
-  const cmp = compareResults(doc.result, deriveJson(r, version), tol, "", undefined, { olderReport: version !== running });
-  steps.push({
-    step: "rerun", ok: cmp.diffs.length === 0,
-    text: cmp.diffs.length === 0 ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp.added)}` : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  const cmp = compareResults(doc.result, deriveJson(r, version), tol, "", undefined, {
+    olderReport: version !== running,
   });
-  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
+  steps.push({
+    step: "rerun",
+    ok: cmp.diffs.length === 0,
+    text:
+      cmp.diffs.length === 0
+        ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp.added)}`
+        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  });
+  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", {
+    differences: cmp.diffs.slice(0, 20),
+    compared: cmp.compared,
+  });
 }
 
 interface RecordDoc {
@@ -382,21 +581,41 @@ interface RecordDoc {
 }
 
 /** One input of a record: what it is, where the record says it was, its SHA-256, and the path an option gives. */
-interface RecordInput { role: "recording" | "profile"; label: string; file: string; sha256: string; given?: string | undefined }
+interface RecordInput {
+  role: "recording" | "profile";
+  label: string;
+  file: string;
+  sha256: string;
+  given?: string | undefined;
+}
 
 /** The inputs a ride, transfer or respond record names (respond: its source and any --against input). */
 function recordInputs(doc: RecordDoc, options: VerifyOptions): RecordInput[] | undefined {
-  const r = doc.result as { input?: { file: string; sha256: string }; source?: { file: string; sha256: string; kind?: string }; against?: { source?: { file: string; sha256: string; kind?: string } } | null };
+  const r = doc.result as {
+    input?: { file: string; sha256: string };
+    source?: { file: string; sha256: string; kind?: string };
+    against?: { source?: { file: string; sha256: string; kind?: string } } | null;
+  };
   if (doc.kind === "respond") {
     if (!r.source?.file || !r.source.sha256) return undefined;
     const role = (k?: string) => (k === "recording" ? "recording" : "profile") as RecordInput["role"];
-    const list: RecordInput[] = [{ role: role(r.source.kind), label: "source", file: r.source.file, sha256: r.source.sha256, given: r.source.kind === "recording" ? options.recording : options.profile }];
+    const list: RecordInput[] = [
+      {
+        role: role(r.source.kind),
+        label: "source",
+        file: r.source.file,
+        sha256: r.source.sha256,
+        given: r.source.kind === "recording" ? options.recording : options.profile,
+      },
+    ];
     const b = r.against?.source;
     if (b?.file && b.sha256) list.push({ role: role(b.kind), label: "against", file: b.file, sha256: b.sha256 });
     return list;
   }
   if (!r.input?.file || !r.input.sha256) return undefined;
-  return [{ role: "recording", label: "recording", file: r.input.file, sha256: r.input.sha256, given: options.recording }];
+  return [
+    { role: "recording", label: "recording", file: r.input.file, sha256: r.input.sha256, given: options.recording },
+  ];
 }
 
 /** The result a record's rerun options give on the inputs found: the same function the command printed it with. */
@@ -421,19 +640,43 @@ async function rerunRecord(doc: RecordDoc, paths: string[], version: string): Pr
 const RECORD_IGNORED = /^(source\.file|against\.source\.file)$/;
 
 /** A ride, transfer or respond record: its inputs by SHA-256, then its analysis re-run with the recorded options and every number compared. */
-async function verifyRecord(report: string, doc: RecordDoc, steps: VerifyStep[], tol: number, options: VerifyOptions): Promise<VerifyResult> {
+async function verifyRecord(
+  report: string,
+  doc: RecordDoc,
+  steps: VerifyStep[],
+  tol: number,
+  options: VerifyOptions,
+): Promise<VerifyResult> {
   const missing: string[] = [];
-  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({ status, report, kind: doc.kind, steps, differences: [], missing, compared: 0, ...extra });
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
+    status,
+    report,
+    kind: doc.kind,
+    steps,
+    differences: [],
+    missing,
+    compared: 0,
+    ...extra,
+  });
   const inputs = recordInputs(doc, options);
   if (!inputs) {
-    steps.push({ step: "result", ok: false, text: "the embedded result does not say what was analysed (kind, input, options)" });
+    steps.push({
+      step: "result",
+      ok: false,
+      text: "the embedded result does not say what was analysed (kind, input, options)",
+    });
     return done("differs");
   }
   let inputsOk = true;
   const paths: string[] = [];
   for (const i of inputs) {
     const hint = i.given === undefined && i.label !== "against" ? `; give it as \`${i.role}\`` : "";
-    const at = await hashedInput(report, { given: i.given, file: i.file, sha256: i.sha256, step: i.role, name: i.label, hint }, steps, missing);
+    const at = await hashedInput(
+      report,
+      { given: i.given, file: i.file, sha256: i.sha256, step: i.role, name: i.label, hint },
+      steps,
+      missing,
+    );
     inputsOk &&= at.ok;
     if (at.path) paths.push(at.path);
   }
@@ -445,14 +688,21 @@ async function verifyRecord(report: string, doc: RecordDoc, steps: VerifyStep[],
   }
   const version = doc.result.tool?.version ?? "?";
   const now = await rerunRecord(doc, paths, version);
-  const cmp = compareResults(strip(doc.result), strip(now as Record<string, unknown>), tol, "", undefined, { olderReport: version !== options.version });
-  steps.push({
-    step: "rerun", ok: cmp.diffs.length === 0,
-    text: cmp.diffs.length === 0
-      ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
-      : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  const cmp = compareResults(strip(doc.result), strip(now as Record<string, unknown>), tol, "", undefined, {
+    olderReport: version !== options.version,
   });
-  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", { differences: cmp.diffs.slice(0, 20), compared: cmp.compared });
+  steps.push({
+    step: "rerun",
+    ok: cmp.diffs.length === 0,
+    text:
+      cmp.diffs.length === 0
+        ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
+        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+  });
+  return done(steps.every((s) => s.ok) ? "reproduced" : "differs", {
+    differences: cmp.diffs.slice(0, 20),
+    compared: cmp.compared,
+  });
 }
 
 /** A result with the paths it was read from left out (compared by SHA-256 above instead). */
@@ -470,7 +720,10 @@ function strip(result: Record<string, unknown>): Record<string, unknown> {
   return copy;
 }
 
-interface BatchDoc { entries?: { file: string; report: string; reportSha256?: string; verdict?: string }[]; failed?: number }
+interface BatchDoc {
+  entries?: { file: string; report: string; reportSha256?: string; verdict?: string }[];
+  failed?: number;
+}
 
 /** The verdict a batch index's banner shows: its worst (report/batchIndex.ts). */
 function batchVerdict(doc: BatchDoc): string {
@@ -488,11 +741,29 @@ async function verifyBatch(report: string, doc: BatchDoc, steps: VerifyStep[]): 
       missing.push(`report ${e.report} of ${basename(e.file)} (looked for ${at})`);
       continue;
     }
-    const same = e.reportSha256 !== undefined && (await sha256File(at, "a readable file", undefined)) === e.reportSha256;
+    const same =
+      e.reportSha256 !== undefined && (await sha256File(at, "a readable file", undefined)) === e.reportSha256;
     if (same) ok++;
-    else steps.push({ step: "recording", ok: false, text: `${at}: ${e.reportSha256 === undefined ? "no SHA-256 recorded for it" : "SHA-256 differs from the one the index recorded (the report was replaced or edited)"}` });
+    else
+      steps.push({
+        step: "recording",
+        ok: false,
+        text: `${at}: ${e.reportSha256 === undefined ? "no SHA-256 recorded for it" : "SHA-256 differs from the one the index recorded (the report was replaced or edited)"}`,
+      });
   }
-  steps.push({ step: "recording", ok: steps.every((s) => s.ok), text: `${ok} of ${(doc.entries ?? []).length} linked reports are the ones the index lists (SHA-256); verify each report to re-run it` });
+  steps.push({
+    step: "recording",
+    ok: steps.every((s) => s.ok),
+    text: `${ok} of ${(doc.entries ?? []).length} linked reports are the ones the index lists (SHA-256); verify each report to re-run it`,
+  });
   const intact = steps.every((s) => s.ok);
-  return { status: !intact ? "differs" : missing.length ? "missing" : "reproduced", report, kind: "batch", steps, differences: [], missing, compared: 0 };
+  return {
+    status: !intact ? "differs" : missing.length ? "missing" : "reproduced",
+    report,
+    kind: "batch",
+    steps,
+    differences: [],
+    missing,
+    compared: 0,
+  };
 }

@@ -26,7 +26,8 @@ export interface DigitalBiquad {
 /** Bilinear transform of one analog section, pre-warped at its pole frequency. Needs poleHz < fs/2. */
 export function bilinearSection(s: AnalogSection, sampleRateHz: number): DigitalBiquad {
   const wp = 2 * Math.PI * s.poleHz;
-  if (!(s.poleHz > 0 && s.poleHz < sampleRateHz / 2)) throw new RangeError(`pre-warp frequency ${s.poleHz} Hz is not below Nyquist ${sampleRateHz / 2} Hz`);
+  if (!(s.poleHz > 0 && s.poleHz < sampleRateHz / 2))
+    throw new RangeError(`pre-warp frequency ${s.poleHz} Hz is not below Nyquist ${sampleRateHz / 2} Hz`);
   const c = wp / Math.tan(wp / (2 * sampleRateHz));
   const c2 = c * c;
   const [nb2, nb1, nb0] = s.b;
@@ -42,7 +43,12 @@ export function bilinearSection(s: AnalogSection, sampleRateHz: number): Digital
 }
 
 /** |H(e^{j 2 pi f / fs})| of a cascade of biquads with a gain. */
-export function cascadeMagnitude(sections: readonly DigitalBiquad[], gain: number, frequencyHz: number, sampleRateHz: number): number {
+export function cascadeMagnitude(
+  sections: readonly DigitalBiquad[],
+  gain: number,
+  frequencyHz: number,
+  sampleRateHz: number,
+): number {
   const t = (2 * Math.PI * frequencyHz) / sampleRateHz;
   const c1 = Math.cos(t);
   const s1 = Math.sin(t);
@@ -86,7 +92,11 @@ export class BiquadCascade {
   /** Samples of the start the cascade settles on before the first sample (0: steady state for the first block's mean only). */
   readonly settleSamples: number;
 
-  constructor(sections: readonly DigitalBiquad[], readonly gain: number, settleSamples = 0) {
+  constructor(
+    sections: readonly DigitalBiquad[],
+    readonly gain: number,
+    settleSamples = 0,
+  ) {
     this.settleSamples = Math.max(0, Math.floor(settleSamples));
     this.count = sections.length;
     this.coef = new Float64Array(5 * this.count);
@@ -161,7 +171,11 @@ export class BiquadCascade {
     let x = u;
     const c = this.coef;
     for (let i = 0; i < this.count; i++) {
-      const b0 = c[5 * i]!, b1 = c[5 * i + 1]!, b2 = c[5 * i + 2]!, a1 = c[5 * i + 3]!, a2 = c[5 * i + 4]!;
+      const b0 = c[5 * i]!,
+        b1 = c[5 * i + 1]!,
+        b2 = c[5 * i + 2]!,
+        a1 = c[5 * i + 3]!,
+        a2 = c[5 * i + 4]!;
       const y = ((b0 + b1 + b2) / (1 + a1 + a2)) * x;
       const s2 = b2 * x - a2 * y;
       this.state[2 * i + 1] = s2;

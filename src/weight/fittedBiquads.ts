@@ -27,14 +27,17 @@ export function fittedSection(s: AnalogSection, sampleRateHz: number, bandTopHz:
   const w0 = Math.sqrt(na0 / na2);
   const zeta = na1 / (2 * Math.sqrt(na0 * na2));
   const r = Math.exp(-zeta * w0 * T);
-  const a1 = zeta < 1 ? -2 * r * Math.cos(w0 * T * Math.sqrt(1 - zeta * zeta)) : -2 * r * Math.cosh(w0 * T * Math.sqrt(zeta * zeta - 1));
+  const a1 =
+    zeta < 1
+      ? -2 * r * Math.cos(w0 * T * Math.sqrt(1 - zeta * zeta))
+      : -2 * r * Math.cosh(w0 * T * Math.sqrt(zeta * zeta - 1));
   const a2 = r * r;
   const A0 = (1 + a1 + a2) ** 2;
   const A1 = (1 - a1 + a2) ** 2;
   const A2 = -4 * a2;
   const m = 200;
   const lo = 0.1;
-  const hi = Math.min(bandTopHz, 0.999 * sampleRateHz / 2);
+  const hi = Math.min(bandTopHz, (0.999 * sampleRateHz) / 2);
   // Rows: [phi0, phi1, phi2] / (A(phi) |H_analog|^2), target 1.
   const M = new Float64Array(3 * m);
   const y = new Float64Array(m).fill(1);

@@ -37,12 +37,36 @@ export interface WeightingParameters {
 const Q_BAND = Math.SQRT1_2;
 
 export const WEIGHTINGS: Readonly<Record<WeightingName, WeightingParameters>> = {
-  Wk: { f1: 0.4, f2: 100, f3: 12.5, f4: 12.5, q4: 0.63, f5: 2.37, q5: 0.91, f6: 3.35, q6: 0.91, gain: 1, use: "vertical (z) at the seat or feet" },
+  Wk: {
+    f1: 0.4,
+    f2: 100,
+    f3: 12.5,
+    f4: 12.5,
+    q4: 0.63,
+    f5: 2.37,
+    q5: 0.91,
+    f6: 3.35,
+    q6: 0.91,
+    gain: 1,
+    use: "vertical (z) at the seat or feet",
+  },
   Wd: { f1: 0.4, f2: 100, f3: 2.0, f4: 2.0, q4: 0.63, gain: 1, use: "horizontal (x, y) at the seat or feet" },
   Wc: { f1: 0.4, f2: 100, f3: 8.0, f4: 8.0, q4: 0.63, gain: 1, use: "seat-back (x)" },
   We: { f1: 0.4, f2: 100, f3: 1.0, f4: 1.0, q4: 0.63, gain: 1, use: "rotational vibration" },
   Wj: { f1: 0.4, f2: 100, f5: 3.75, q5: 0.91, f6: 5.32, q6: 0.91, gain: 1, use: "vertical under the head, recumbent" },
-  Wb: { f1: 0.4, f2: 100, f3: 16, f4: 16, q4: 0.55, f5: 2.5, q5: 0.9, f6: 4.0, q6: 0.95, gain: 1.024, use: "vertical, railway (ISO 2631-4)" },
+  Wb: {
+    f1: 0.4,
+    f2: 100,
+    f3: 16,
+    f4: 16,
+    q4: 0.55,
+    f5: 2.5,
+    q5: 0.9,
+    f6: 4.0,
+    q6: 0.95,
+    gain: 1.024,
+    use: "vertical, railway (ISO 2631-4)",
+  },
 };
 
 /**
@@ -75,7 +99,12 @@ export function analogSections(name: WeightingName): { sections: AnalogSection[]
     const w5 = 2 * Math.PI * p.f5;
     const w6 = 2 * Math.PI * p.f6;
     const g = (w5 / w6) ** 2;
-    sections.push({ b: [g / (w5 * w5), g / (w5 * p.q5), g], a: [1 / (w6 * w6), 1 / (w6 * p.q6), 1], poleHz: p.f6, role: "upward step" });
+    sections.push({
+      b: [g / (w5 * w5), g / (w5 * p.q5), g],
+      a: [1 / (w6 * w6), 1 / (w6 * p.q6), 1],
+      poleHz: p.f6,
+      role: "upward step",
+    });
   }
   return { sections, gain: p.gain };
 }

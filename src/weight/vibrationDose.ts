@@ -65,7 +65,10 @@ export class VibrationDoseAccumulator {
   readonly runningRmsS: number;
   readonly stretchS: number;
 
-  constructor(readonly designRateHz: number, options: VibrationDoseOptions = {}) {
+  constructor(
+    readonly designRateHz: number,
+    options: VibrationDoseOptions = {},
+  ) {
     this.runningRmsS = options.runningRmsS ?? 1;
     this.len = Math.max(1, Math.round(this.runningRmsS * designRateHz));
     this.ring = new Float64Array(this.len);
@@ -151,7 +154,11 @@ export class VibrationDoseAccumulator {
 }
 
 /** The same quantities for a whole signal held in memory (tests, small records). */
-export function vibrationDose(a: Float64Array, sampleRateHz: number, options: VibrationDoseOptions = {}): VibrationDose {
+export function vibrationDose(
+  a: Float64Array,
+  sampleRateHz: number,
+  options: VibrationDoseOptions = {},
+): VibrationDose {
   const acc = new VibrationDoseAccumulator(sampleRateHz, options);
   acc.push(a, a.length);
   return acc.finish(sampleRateHz);

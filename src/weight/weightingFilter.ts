@@ -36,7 +36,13 @@ export function coveredCentresHz(sampleRateHz: number): number[] {
   return THIRD_OCTAVE_CENTRES_HZ.filter((c) => c * HALF_BAND < sampleRateHz / 2);
 }
 
-function errorOver(name: WeightingName, sections: readonly DigitalBiquad[], gain: number, sampleRateHz: number, centres: readonly number[]) {
+function errorOver(
+  name: WeightingName,
+  sections: readonly DigitalBiquad[],
+  gain: number,
+  sampleRateHz: number,
+  centres: readonly number[],
+) {
   let maxErrorPct = 0;
   let maxErrorAtHz = centres[0] ?? THIRD_OCTAVE_CENTRES_HZ[0]!;
   for (const f of centres) {
@@ -60,10 +66,12 @@ export function designWeightingFilter(name: WeightingName, sampleRateHz: number)
   if (!(sampleRateHz > 0 && Number.isFinite(sampleRateHz))) throw new RangeError(`sample rate ${sampleRateHz} Hz`);
   const { sections, gain } = analogSections(name);
   const centres = coveredCentresHz(sampleRateHz);
-  if (centres.length === 0) throw new RangeError(`sample rate ${sampleRateHz} Hz covers no one-third-octave band of the weighting`);
+  if (centres.length === 0)
+    throw new RangeError(`sample rate ${sampleRateHz} Hz covers no one-third-octave band of the weighting`);
   const topCentreHz = centres[centres.length - 1]!;
   const candidates: { method: "bilinear" | "fitted"; sections: DigitalBiquad[] }[] = [];
-  if (sections.every((s) => s.poleHz < sampleRateHz / 2)) candidates.push({ method: "bilinear", sections: sections.map((s) => bilinearSection(s, sampleRateHz)) });
+  if (sections.every((s) => s.poleHz < sampleRateHz / 2))
+    candidates.push({ method: "bilinear", sections: sections.map((s) => bilinearSection(s, sampleRateHz)) });
   const fitted: DigitalBiquad[] = [];
   for (const s of sections) {
     const q = s.role === "high-pass" ? undefined : fittedSection(s, sampleRateHz, topCentreHz * HALF_BAND);
@@ -76,7 +84,8 @@ export function designWeightingFilter(name: WeightingName, sampleRateHz: number)
   let best: WeightingFilterDesign | undefined;
   for (const c of candidates) {
     const e = errorOver(name, c.sections, gain, sampleRateHz, centres);
-    if (best === undefined || e.maxErrorPct < best.maxErrorPct) best = { weighting: name, sampleRateHz, sections: c.sections, gain, method: c.method, ...e, topCentreHz };
+    if (best === undefined || e.maxErrorPct < best.maxErrorPct)
+      best = { weighting: name, sampleRateHz, sections: c.sections, gain, method: c.method, ...e, topCentreHz };
   }
   return best!;
 }

@@ -19,7 +19,10 @@ import { tempDir } from "../helpers.js";
  * in the input's unit, cut the frame window at the announced rate, push the cross-spectral accumulator),
  * kept here so the move is held to it bit for bit: same blocks, same order, same arithmetic.
  */
-async function ownPass(file: string, o: { input: number; outputs: number[] } & Omit<TransferOptions, "inputChannel" | "outputChannels">) {
+async function ownPass(
+  file: string,
+  o: { input: number; outputs: number[] } & Omit<TransferOptions, "inputChannel" | "outputChannels">,
+) {
   const source = await openTimeHistory(file, { ...o.csv });
   const { info } = source;
   const select = [o.input, ...o.outputs];
@@ -28,7 +31,11 @@ async function ownPass(file: string, o: { input: number; outputs: number[] } & O
   const s = normalizeWelchOptions(o, info.sampleRateHz);
   const { first, end } = frameWindow(clockWindow(o, info), info.sampleRateHz);
   const window = spectralWindow(s.window, s.segmentLength);
-  const acc = new CrossSpectrumAccumulator({ segmentLength: s.segmentLength, hop: s.hop, window, detrend: s.detrend }, select.length, 0);
+  const acc = new CrossSpectrumAccumulator(
+    { segmentLength: s.segmentLength, hop: s.hop, window, detrend: s.detrend },
+    select.length,
+    0,
+  );
   const views: Float64Array[] = select.map(() => new Float64Array(0));
   let offset = 0;
   let taken = 0;
@@ -48,17 +55,45 @@ async function ownPass(file: string, o: { input: number; outputs: number[] } & O
   await source.close?.();
   const sums = acc.finish(summary.sampleRateHz);
   const nd = welchDof(window, s.hop, sums.segments) / 2;
-  return { sums, taken, outputs: o.outputs.map((_, j) => frequencyResponse(sums.auto[0]!, sums.auto[j + 1]!, sums.crossRe[j + 1]!, sums.crossIm[j + 1]!, nd)) };
+  return {
+    sums,
+    taken,
+    outputs: o.outputs.map((_, j) =>
+      frequencyResponse(sums.auto[0]!, sums.auto[j + 1]!, sums.crossRe[j + 1]!, sums.crossIm[j + 1]!, nd),
+    ),
+  };
 }
 
 const cases: { name: string; file: string; options: TransferOptions; input: number; outputs: number[] }[] = [
-  { name: "the transfer sample, whole", file: "samples/quarry-bend-bracket.csv", options: { inputChannel: "base", csv: { parseWorkers: 0 } }, input: 0, outputs: [1, 2] },
-  { name: "the transfer sample, window 2-9.5 s", file: "samples/quarry-bend-bracket.csv", options: { inputChannel: "base", outputChannels: ["clamp"], fromS: 2, toS: 9.5, csv: { parseWorkers: 0 } }, input: 0, outputs: [2] },
+  {
+    name: "the transfer sample, whole",
+    file: "samples/quarry-bend-bracket.csv",
+    options: { inputChannel: "base", csv: { parseWorkers: 0 } },
+    input: 0,
+    outputs: [1, 2],
+  },
+  {
+    name: "the transfer sample, window 2-9.5 s",
+    file: "samples/quarry-bend-bracket.csv",
+    options: { inputChannel: "base", outputChannels: ["clamp"], fromS: 2, toS: 9.5, csv: { parseWorkers: 0 } },
+    input: 0,
+    outputs: [2],
+  },
   {
     name: "the ride sample's seat over floor, calibrated, 0.25 Hz lines, linear detrend, Hamming",
     file: "samples/marlow-uv3-ride.wav",
-    options: { inputChannel: 4, outputChannels: ["3"], inputUnits: "m/s2", scale: 40, resolutionHz: 0.25, detrend: "linear", window: "hamming", fromS: 30 },
-    input: 3, outputs: [2],
+    options: {
+      inputChannel: 4,
+      outputChannels: ["3"],
+      inputUnits: "m/s2",
+      scale: 40,
+      resolutionHz: 0.25,
+      detrend: "linear",
+      window: "hamming",
+      fromS: 30,
+    },
+    input: 3,
+    outputs: [2],
   },
 ];
 
@@ -83,9 +118,23 @@ describe("transfer on the one pass equals its own pass before (H1, H2, coherence
   }
 
   it("records the resolved analysis: the channels in order and in one unit, Welch's settings at the final rate, the window as asked", async () => {
-    const t = await analyzeTransfer("samples/quarry-bend-bracket.csv", { inputChannel: "base", outputChannels: ["clamp"], fromS: 2, toS: 9.5, csv: { parseWorkers: 0 } });
-    expect(t.analysis.channels.map((ch) => [ch.name, ch.position, ch.resultUnits])).toEqual([["base", 1, t.units], ["clamp", 3, t.units]]);
-    expect(t.analysis.welch).toEqual({ ...t.analysis.welch, segmentLength: t.settings.segmentLength, hop: t.settings.hop, resolutionHz: t.settings.resolutionHz });
+    const t = await analyzeTransfer("samples/quarry-bend-bracket.csv", {
+      inputChannel: "base",
+      outputChannels: ["clamp"],
+      fromS: 2,
+      toS: 9.5,
+      csv: { parseWorkers: 0 },
+    });
+    expect(t.analysis.channels.map((ch) => [ch.name, ch.position, ch.resultUnits])).toEqual([
+      ["base", 1, t.units],
+      ["clamp", 3, t.units],
+    ]);
+    expect(t.analysis.welch).toEqual({
+      ...t.analysis.welch,
+      segmentLength: t.settings.segmentLength,
+      hop: t.settings.hop,
+      resolutionHz: t.settings.resolutionHz,
+    });
     expect(t.analysis.window).toMatchObject({ fromS: 2, toS: 9.5 });
   });
 
@@ -93,7 +142,10 @@ describe("transfer on the one pass equals its own pass before (H1, H2, coherence
     const fifo = join(tempDir(), "pipe.csv");
     execFileSync("mkfifo", [fifo]);
     const started = Date.now();
-    const e = await analyzeTransfer(fifo, { inputChannel: "1" }).then(() => undefined, (x: unknown) => x);
+    const e = await analyzeTransfer(fifo, { inputChannel: "1" }).then(
+      () => undefined,
+      (x: unknown) => x,
+    );
     expect(e).toBeInstanceOf(InputError);
     expect((e as InputError).code).toBe("FILE_UNREADABLE");
     expect(Date.now() - started).toBeLessThan(2000);

@@ -15,13 +15,19 @@ const { base, accel } = sdofRecords(n, rate, 150, 15, 77);
 const noise = gaussian(n, 78, 0.05);
 const other = gaussian(n, 79);
 let csv = "time [s],base [g],tip [m/s^2],other [g]\n";
-for (let i = 0; i < n; i++) csv += `${(i / rate).toFixed(6)},${base[i]!.toPrecision(10)},${((accel[i]! + noise[i]!) * 9.80665).toPrecision(10)},${other[i]!.toPrecision(10)}\n`;
+for (let i = 0; i < n; i++)
+  csv += `${(i / rate).toFixed(6)},${base[i]!.toPrecision(10)},${((accel[i]! + noise[i]!) * 9.80665).toPrecision(10)},${other[i]!.toPrecision(10)}\n`;
 const file = join(dir, "survey.csv");
 writeFileSync(file, csv);
 
 describe("analyzeTransfer", () => {
   it("recovers a base-driven SDOF (150 Hz, Q 15) in a file: every channel in the input's unit (g), resonance to 0.5 %, Q to 5 % with 20 lines across the half-power band, peak |T| = sqrt(1 + Q^2) to 3 %", async () => {
-    const t = await analyzeTransfer(file, { inputChannel: "base", outputChannels: ["tip", "3"], segmentLength: 4096, csv: { parseWorkers: 0 } });
+    const t = await analyzeTransfer(file, {
+      inputChannel: "base",
+      outputChannels: ["tip", "3"],
+      segmentLength: 4096,
+      csv: { parseWorkers: 0 },
+    });
     expect(t.units).toBe("g");
     expect(t.outputs.map((o) => o.name)).toEqual(["tip", "other"]);
     const tip = t.outputs[0]!;
@@ -41,11 +47,17 @@ describe("analyzeTransfer", () => {
     expect(o.lowCoherenceBands.length).toBeGreaterThan(0);
   });
   it("the bounds bracket |H1|: lower <= |H1| <= upper, and wider where coherence is low", async () => {
-    const t = await analyzeTransfer(file, { inputChannel: "base", outputChannels: ["tip", "other"], segmentLength: 1024, csv: { parseWorkers: 0 } });
-    for (const o of t.outputs) for (let k = 1; k < 500; k++) {
-      expect(o.h1Lower[k]!).toBeLessThanOrEqual(o.h1Magnitude[k]!);
-      expect(o.h1Upper[k]!).toBeGreaterThanOrEqual(o.h1Magnitude[k]!);
-    }
+    const t = await analyzeTransfer(file, {
+      inputChannel: "base",
+      outputChannels: ["tip", "other"],
+      segmentLength: 1024,
+      csv: { parseWorkers: 0 },
+    });
+    for (const o of t.outputs)
+      for (let k = 1; k < 500; k++) {
+        expect(o.h1Lower[k]!).toBeLessThanOrEqual(o.h1Magnitude[k]!);
+        expect(o.h1Upper[k]!).toBeGreaterThanOrEqual(o.h1Magnitude[k]!);
+      }
     expect(t.outputs[1]!.magnitudeError[100]!).toBeGreaterThan(t.outputs[0]!.magnitudeError[100]!);
   });
   it("rejects an output that is the input, a repeated output and an unknown channel, naming the option", async () => {
@@ -58,12 +70,32 @@ describe("analyzeTransfer", () => {
       }
       return "no error";
     };
-    expect(await msg({ inputChannel: "base", outputChannels: ["1"] })).toMatch(/^OPTION_INVALID option outputChannels: expected an output channel other than the input/);
-    expect(await msg({ inputChannel: "base", outputChannels: ["tip", "2"] })).toMatch(/^OPTION_INVALID option outputChannels: expected each output channel once/);
-    expect(await msg({ inputChannel: "floor", outputChannels: ["tip"] })).toMatch(/^CHANNEL_NOT_FOUND .*option inputChannel: expected a channel name or position: 1=base, 2=tip, 3=other, received "floor"/);
+    expect(await msg({ inputChannel: "base", outputChannels: ["1"] })).toMatch(
+      /^OPTION_INVALID option outputChannels: expected an output channel other than the input/,
+    );
+    expect(await msg({ inputChannel: "base", outputChannels: ["tip", "2"] })).toMatch(
+      /^OPTION_INVALID option outputChannels: expected each output channel once/,
+    );
+    expect(await msg({ inputChannel: "floor", outputChannels: ["tip"] })).toMatch(
+      /^CHANNEL_NOT_FOUND .*option inputChannel: expected a channel name or position: 1=base, 2=tip, 3=other, received "floor"/,
+    );
   });
   it("works on the seat and floor of a ride record: the Marlow UV-3 seat mode (3.2 Hz in the sample's model) and the predicted seat RMS", async () => {
-    const r = await cli("transfer", "samples/marlow-uv3-ride.wav", "--in", "4", "--output-channel", "3", "--units", "m/s2", "--scale", "40", "--resolution", "0.25", "--json");
+    const r = await cli(
+      "transfer",
+      "samples/marlow-uv3-ride.wav",
+      "--in",
+      "4",
+      "--output-channel",
+      "3",
+      "--units",
+      "m/s2",
+      "--scale",
+      "40",
+      "--resolution",
+      "0.25",
+      "--json",
+    );
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);
     const out = j.outputs[0];

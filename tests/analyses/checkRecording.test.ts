@@ -8,15 +8,27 @@ import { shapedRecord } from "../shapedRecords.js";
 import { wavBytes } from "../wavBytes.js";
 
 const FS = 2560;
-const profile = parseProfile(JSON.stringify({
-  title: "flat", units: "g2/Hz", points: [{ hz: 20, level: 0.01 }, { hz: 1000, level: 0.01 }],
-  tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
-}), "flat.json");
+const profile = parseProfile(
+  JSON.stringify({
+    title: "flat",
+    units: "g2/Hz",
+    points: [
+      { hz: 20, level: 0.01 },
+      { hz: 1000, level: 0.01 },
+    ],
+    tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
+  }),
+  "flat.json",
+);
 
 /** Three channels: +2.5 dB, -2.5 dB and on the profile (their average is +0.7 dB, their largest +2.5 dB). */
 function threeChannels(): string {
   const level = (db: number) => (f: number) => (f >= 20 && f <= 1000 ? 0.01 * 10 ** (db / 10) : 0);
-  const chans = [shapedRecord(level(2.5), FS, 1 << 18, 1), shapedRecord(level(-2.5), FS, 1 << 18, 2), shapedRecord(level(0), FS, 1 << 18, 3)];
+  const chans = [
+    shapedRecord(level(2.5), FS, 1 << 18, 1),
+    shapedRecord(level(-2.5), FS, 1 << 18, 2),
+    shapedRecord(level(0), FS, 1 << 18, 3),
+  ];
   const inter: number[] = [];
   for (let i = 0; i < chans[0]!.length; i++) for (const c of chans) inter.push(c[i]!);
   const f = join(tempDir(), "three.wav");
@@ -33,14 +45,22 @@ describe("checkRecording with control channels (multipoint control)", () => {
     expect(r.roles).toEqual(["judged", "judged", "judged"]);
   });
   it("the average of channels 1 and 2 is the control spectrum and passes; channel 3 is a monitoring channel", async () => {
-    const r = await checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["1", "2"], rule: "average" } });
+    const r = await checkRecording(file, profile, {
+      segmentLength: 1024,
+      control: { channels: ["1", "2"], rule: "average" },
+    });
     expect(r.control!.judgement.verdict).toBe("pass");
     expect(r.verdict).toBe("pass");
     expect(r.roles).toEqual(["control", "control", "monitor"]);
-    expect(Math.abs(r.control!.judgement.rms.deviationDb - 10 * Math.log10((10 ** 0.25 + 10 ** -0.25) / 2))).toBeLessThan(0.1);
+    expect(
+      Math.abs(r.control!.judgement.rms.deviationDb - 10 * Math.log10((10 ** 0.25 + 10 ** -0.25) / 2)),
+    ).toBeLessThan(0.1);
   });
   it("the largest of channels 1 and 2 fails (the hot channel is above the band)", async () => {
-    const r = await checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["ch1", "ch2"], rule: "largest" } });
+    const r = await checkRecording(file, profile, {
+      segmentLength: 1024,
+      control: { channels: ["ch1", "ch2"], rule: "largest" },
+    });
     expect(r.verdict).toBe("fail");
     // The largest of 2 is tested by its own distribution (F^2): its upper limits carry its mean reading at the limit.
     expect(r.control!.judgement.rule.largestOf!.channels).toBe(2);
@@ -56,7 +76,9 @@ describe("checkRecording with control channels (multipoint control)", () => {
     expect(r.channels[0]!.rule.lineTestLevel).toBeCloseTo(alone.channels[0]!.rule.lineTestLevel / n, 15);
   });
   it("an unknown control channel is an input error naming the channels there are", async () => {
-    await expect(checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["9"], rule: "average" } })).rejects.toThrow(/CHANNEL_NOT_FOUND/);
+    await expect(
+      checkRecording(file, profile, { segmentLength: 1024, control: { channels: ["9"], rule: "average" } }),
+    ).rejects.toThrow(/CHANNEL_NOT_FOUND/);
   });
 });
 
@@ -69,7 +91,10 @@ describe("checkRecording's level gate (compare/levelGate.ts): a run that is not 
   };
   // 1 << 17 samples at 2560 Hz: 51.2 s, about 480 DOF at 1024-point segments (the rule's power is there), 51 stretches.
   it("a stationary conforming run passes, with no gate finding", async () => {
-    const r = await checkRecording(wav(shapedRecord(on, FS, 1 << 17, 21), "steady.wav"), profile, { segmentLength: 1024, histogram: false });
+    const r = await checkRecording(wav(shapedRecord(on, FS, 1 << 17, 21), "steady.wav"), profile, {
+      segmentLength: 1024,
+      histogram: false,
+    });
     expect(r.verdict).toBe("pass");
     expect(r.channels[0]!.findings.map((f) => f.code)).not.toContain("LEVEL_SWING");
   });

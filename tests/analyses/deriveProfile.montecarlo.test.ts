@@ -25,10 +25,25 @@ describe("derive on seeded flat records: spread of the damage-equivalent level (
     let fn: Float64Array | undefined;
     for (const s of seeds) {
       const file = writeFieldRecord(dir, `mc${s}.wav`, flat(g0), s, length);
-      const r = await deriveProfile({ ...plainInputs([file], lifeS), testDurationS: 3600, fminHz: 10, fmaxHz: 400, perOctave: 2, maxBreakpoints: 4, version: "test", created: new Date(0) });
+      const r = await deriveProfile({
+        ...plainInputs([file], lifeS),
+        testDurationS: 3600,
+        fminHz: 10,
+        fmaxHz: 400,
+        perOctave: 2,
+        maxBreakpoints: 4,
+        version: "test",
+        created: new Date(0),
+      });
       fn = r.fnHz;
       // The true field damage: the flat G0 itself over the life (the same band, the same computation).
-      const truth = damageSpectra(powerLawSpectrum([{ f1: 10, f2: 400, g1: g0, exponent: 0 }]), { fnHz: r.fnHz, q, durationS: lifeS, sn: { ...SN_DEFAULTS, basquinB: b }, toSi: 9.80665 }).damage;
+      const truth = damageSpectra(powerLawSpectrum([{ f1: 10, f2: 400, g1: g0, exponent: 0 }]), {
+        fnHz: r.fnHz,
+        q,
+        durationS: lifeS,
+        sn: { ...SN_DEFAULTS, basquinB: b },
+        toSi: 9.80665,
+      }).damage;
       rho.push([...r.fieldFatigue].map((d, i) => (d / truth[i]!) ** (2 / b)));
       const pts = r.document.points.map((p) => p.level!);
       levels.push(pts.reduce((t, v) => t + v, 0) / pts.length / (g0 * (lifeS / 3600) ** (2 / b)));
@@ -53,7 +68,9 @@ describe("derive on seeded flat records: spread of the damage-equivalent level (
     const lm = levels.reduce((t, x) => t + x, 0) / levels.length;
     const ls = Math.sqrt(levels.reduce((t, x) => t + (x - lm) ** 2, 0) / (levels.length - 1));
     const eps10 = 1 / Math.sqrt(((Math.PI * 10) / q) * T);
-    rows.push(`derived level / closed form: mean ${lm.toFixed(4)}, sd ${ls.toFixed(4)} over ${levels.length} records (1 sigma at 10 Hz ${eps10.toFixed(4)})`);
+    rows.push(
+      `derived level / closed form: mean ${lm.toFixed(4)}, sd ${ls.toFixed(4)} over ${levels.length} records (1 sigma at 10 Hz ${eps10.toFixed(4)})`,
+    );
     console.log(rows.join("\n"));
     for (const c of checks) c();
     // The fit covers the largest of the grid's scattered values, so it sits above the closed form, by up to a few sigma of the widest point.

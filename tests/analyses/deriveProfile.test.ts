@@ -1,4 +1,3 @@
-
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { findingTexts } from "../../src/report/findingTexts.js";
@@ -20,8 +19,16 @@ const peaky = (g: number) => (f: number) => {
  * the profile (log-log interpolation), |Z/A|^2 = 1 / ((2 pi fn)^4 ((1 - r^2)^2 + (r/Q)^2)) (docs/REFERENCES.md sec. 4),
  * trapezoid moments m0, m2, nu0+ = sqrt(m2/m0) (Rice), E[D] = nu T (sqrt 2 sigma)^b Gamma(1 + b/2) (Miles 1954; docs/REFERENCES.md sec. 14).
  */
-function numpyProfileDamage(points: { hz: number; level: number }[], fnHz: number[], q: number, b: number, durationS: number, toSi: number): number[] {
-  return JSON.parse(python(`
+function numpyProfileDamage(
+  points: { hz: number; level: number }[],
+  fnHz: number[],
+  q: number,
+  b: number,
+  durationS: number,
+  toSi: number,
+): number[] {
+  return JSON.parse(
+    python(`
 import json, numpy as np
 from scipy.special import gammaln
 pts = ${JSON.stringify(points)}
@@ -35,7 +42,8 @@ for fn in ${JSON.stringify(fnHz)}:
     m0 = np.trapezoid(h * g, f); m2 = np.trapezoid(h * g * f * f, f)
     sigma = np.sqrt(m0) * ${toSi}
     out.append(float(np.sqrt(m2 / m0) * ${durationS} * np.exp(${b} * np.log(np.sqrt(2) * sigma) + gammaln(1 + ${b} / 2))))
-print(json.dumps(out))`)) as number[];
+print(json.dumps(out))`),
+  ) as number[];
 }
 
 describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, not psdgate synth)", () => {
@@ -44,7 +52,14 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     const g0 = 0.01;
     const files = [1, 2, 3].map((s) => writeFieldRecord(dir, `flat${s}.wav`, flat(g0), 300 + s));
     const lifeS = 100 * 3600;
-    const r = await deriveProfile({ ...plainInputs(files, lifeS), testDurationS: 3600, fminHz: 10, fmaxHz: 500, version: "test", created: new Date(0) });
+    const r = await deriveProfile({
+      ...plainInputs(files, lifeS),
+      testDurationS: 3600,
+      fminHz: 10,
+      fmaxHz: 500,
+      version: "test",
+      created: new Date(0),
+    });
     // Equal narrow-band damage: T_1 G_1^(b/2) = T_2 G_2^(b/2) (docs/REFERENCES.md sec. 14; MIL-STD-810H 514.8 Annex A, from memory).
     const closed = g0 * (lifeS / 3600) ** (2 / 8);
     expect(r.compression.flatFactor).toBeCloseTo(100 ** 0.25, 12);
@@ -60,25 +75,47 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     const meanRatio = levels.reduce((s, v) => s + v, 0) / levels.length;
     expect(Math.abs(meanRatio - 1)).toBeLessThan(2 * eps);
     expect(r.fit.minRatio).toBeGreaterThanOrEqual(1);
-    console.log(`flat: closed form ${closed.toPrecision(5)} g2/Hz; breakpoint levels / closed form ${levels.map((v) => v.toFixed(4)).join(" ")} (mean ${meanRatio.toFixed(4)}, eps ${eps.toFixed(4)}); fit ${JSON.stringify(r.fit)}`);
+    console.log(
+      `flat: closed form ${closed.toPrecision(5)} g2/Hz; breakpoint levels / closed form ${levels.map((v) => v.toFixed(4)).join(" ")} (mean ${meanRatio.toFixed(4)}, eps ${eps.toFixed(4)}); fit ${JSON.stringify(r.fit)}`,
+    );
   });
 
   it("the derived profile's FDS covers the field's at every grid point, checked by numpy; fewer breakpoints still cover, and a margin is met", async () => {
     const dir = tempDir();
     const files = [1, 2, 3].map((s) => writeFieldRecord(dir, `peaky${s}.wav`, peaky(0.002 * s), 400 + s));
-    const base = { ...plainInputs(files, 500 * 3600), testDurationS: 7200, fminHz: 5, fmaxHz: 400, version: "test", created: new Date(0) };
+    const base = {
+      ...plainInputs(files, 500 * 3600),
+      testDurationS: 7200,
+      fminHz: 5,
+      fmaxHz: 400,
+      version: "test",
+      created: new Date(0),
+    };
     const seen: string[] = [];
-    for (const [n, margin] of [[8, 1], [3, 1], [5, 2]] as const) {
+    for (const [n, margin] of [
+      [8, 1],
+      [3, 1],
+      [5, 2],
+    ] as const) {
       const r = await deriveProfile({ ...base, maxBreakpoints: n, margin });
       expect(r.document.points.length).toBeLessThanOrEqual(n);
       const ratio = [...r.testFatigue].map((d, i) => d / r.fieldFatigue[i]!);
       for (const v of ratio) expect(v).toBeGreaterThanOrEqual(margin);
-      const np = numpyProfileDamage(r.document.points as { hz: number; level: number }[], [...r.fnHz], 10, 8, 7200, 9.80665);
+      const np = numpyProfileDamage(
+        r.document.points as { hz: number; level: number }[],
+        [...r.fnHz],
+        10,
+        8,
+        7200,
+        9.80665,
+      );
       np.forEach((d, i) => {
         expect(Math.abs(d / r.testFatigue[i]! - 1), `numpy vs psdgate at ${r.fnHz[i]} Hz`).toBeLessThan(2e-3);
         expect(d / r.fieldFatigue[i]!).toBeGreaterThanOrEqual(margin * (1 - 2e-3));
       });
-      seen.push(`N ${n} margin ${margin}: ${r.document.points.length} points, test/field min ${r.fit.minRatio.toFixed(4)} median ${r.fit.medianRatio.toFixed(3)} max ${r.fit.maxRatio.toFixed(3)}, numpy/psdgate worst ${Math.max(...np.map((d, i) => Math.abs(d / r.testFatigue[i]! - 1))).toExponential(2)}`);
+      seen.push(
+        `N ${n} margin ${margin}: ${r.document.points.length} points, test/field min ${r.fit.minRatio.toFixed(4)} median ${r.fit.medianRatio.toFixed(3)} max ${r.fit.maxRatio.toFixed(3)}, numpy/psdgate worst ${Math.max(...np.map((d, i) => Math.abs(d / r.testFatigue[i]! - 1))).toExponential(2)}`,
+      );
     }
     console.log(seen.join("\n"));
   });
@@ -87,7 +124,17 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     const dir = tempDir();
     writeFieldRecord(dir, "smooth.wav", peaky(0.001), 501, 1 << 15);
     writeFieldRecord(dir, "rough.wav", peaky(0.004), 502, 1 << 15);
-    const mix = (roughHours: number) => parseServiceMix({ groups: [{ name: "smooth", hours: 300, recordings: ["smooth.wav"] }, { name: "rough", hours: roughHours, recordings: ["rough.wav"] }] }, join(dir, "mix.yaml"), "0".repeat(64));
+    const mix = (roughHours: number) =>
+      parseServiceMix(
+        {
+          groups: [
+            { name: "smooth", hours: 300, recordings: ["smooth.wav"] },
+            { name: "rough", hours: roughHours, recordings: ["rough.wav"] },
+          ],
+        },
+        join(dir, "mix.yaml"),
+        "0".repeat(64),
+      );
     const common = { testDurationS: 3600, fminHz: 10, fmaxHz: 400, version: "test", created: new Date(0) };
     const a = await deriveProfile({ ...mixInputs(mix(50)), ...common });
     const b = await deriveProfile({ ...mixInputs(mix(100)), ...common });
@@ -101,7 +148,11 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     }
     // Two recordings in one group share its hours by their durations (the stated rule): 2^15 and 2^14 samples give 2/3 and 1/3.
     writeFieldRecord(dir, "rough-b.wav", peaky(0.004), 503, 1 << 14);
-    const shared = parseServiceMix({ groups: [{ name: "rough", hours: 90, recordings: ["rough.wav", "rough-b.wav"] }] }, join(dir, "mix.yaml"), "0".repeat(64));
+    const shared = parseServiceMix(
+      { groups: [{ name: "rough", hours: 90, recordings: ["rough.wav", "rough-b.wav"] }] },
+      join(dir, "mix.yaml"),
+      "0".repeat(64),
+    );
     const c = await deriveProfile({ ...mixInputs(shared), ...common });
     expect(c.recordings[0]!.serviceS).toBeCloseTo(60 * 3600, 6);
     expect(c.recordings[1]!.serviceS).toBeCloseTo(30 * 3600, 6);
@@ -116,8 +167,6 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
   });
 });
 
-
-
 describe("deriveProfile with a tone in the field (mixed mode)", () => {
   it("lists a field tone as a candidate and keeps it out of the envelope and the damage: the derived profile equals the tone-free one within 2 %", async () => {
     const { shapedRecord } = await import("../shapedRecords.js");
@@ -128,16 +177,34 @@ describe("deriveProfile with a tone in the field (mixed mode)", () => {
     const files = [1, 2].map((s) => {
       const x = shapedRecord(flat(g0), FIELD_RATE_HZ, FIELD_LENGTH, 700 + s);
       const noTone = join(dir, `plain${s}.wav`);
-      writeFileSync(noTone, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
+      writeFileSync(
+        noTone,
+        wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }),
+      );
       // An engine order: 1.5 g peak at 123.4 Hz, far above the 0.01 g2/Hz background.
       for (let i = 0; i < x.length; i++) x[i] = x[i]! + 1.5 * Math.cos((2 * Math.PI * 123.4 * i) / FIELD_RATE_HZ);
       const withTone = join(dir, `tone${s}.wav`);
-      writeFileSync(withTone, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
+      writeFileSync(
+        withTone,
+        wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }),
+      );
       return { noTone, withTone };
     });
     const common = { testDurationS: 3600, fminHz: 10, fmaxHz: 500, version: "test", created: new Date(0) };
-    const a = await deriveProfile({ ...plainInputs(files.map((f) => f.withTone), 100 * 3600), ...common });
-    const b = await deriveProfile({ ...plainInputs(files.map((f) => f.noTone), 100 * 3600), ...common });
+    const a = await deriveProfile({
+      ...plainInputs(
+        files.map((f) => f.withTone),
+        100 * 3600,
+      ),
+      ...common,
+    });
+    const b = await deriveProfile({
+      ...plainInputs(
+        files.map((f) => f.noTone),
+        100 * 3600,
+      ),
+      ...common,
+    });
     expect(a.candidateTones.length).toBe(2);
     for (const t of a.candidateTones) {
       expect(Math.abs(t.frequencyHz - 123.4)).toBeLessThan(0.1);
@@ -156,7 +223,14 @@ describe("deriveProfile with a tone in the field (mixed mode)", () => {
 
 describe("derive: the field's shocks beside the random test's largest response (issue 26, item 4)", () => {
   it("the forklift record's shocks (the sample's five known events) are reported, and where the test's ERS falls below the field's SRS a shock test is called for", async () => {
-    const r = await deriveProfile({ ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fminHz: 5, fmaxHz: 400, version: "test", created: new Date(0) });
+    const r = await deriveProfile({
+      ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600),
+      testDurationS: 3600,
+      fminHz: 5,
+      fmaxHz: 400,
+      version: "test",
+      created: new Date(0),
+    });
     expect(r.shocks.eventsPerRecording).toEqual([5]);
     expect(r.shocks.largestEvents[0]!.recording).toBe(0);
     expect(r.shocks.largestEvents[0]!.peak).toBeLessThan(-2.7);
@@ -172,7 +246,14 @@ describe("derive: the field's shocks beside the random test's largest response (
 
 describe("derive --field-damage time: the field's FDS and ERS from the recordings themselves (issue 26, item 0)", () => {
   it("on the forklift's shocks the field's damage in time is far above the PSD's; the record says how it was made; the PSD's values are kept beside", async () => {
-    const args = { ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600), testDurationS: 3600, fminHz: 5, fmaxHz: 400, version: "test", created: new Date(0) };
+    const args = {
+      ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 2 * 3600),
+      testDurationS: 3600,
+      fminHz: 5,
+      fmaxHz: 400,
+      version: "test",
+      created: new Date(0),
+    };
     const psd = await deriveProfile(args);
     const time = await deriveProfile({ ...args, fieldDamage: "time" });
     const ratio = [...time.fieldFatigue].map((d, i) => d / psd.fieldFatigue[i]!);
@@ -185,7 +266,12 @@ describe("derive --field-damage time: the field's FDS and ERS from the recording
     expect(time.document.provenance!.parameters.fieldDamage).toBe("time");
     expect(findingTexts(time.notes).join("\n")).toMatch(/come from the recordings themselves/);
     // Damage is linear in service time in time as well: doubling the life doubles the field's damage.
-    const twice = await deriveProfile({ ...args, ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 4 * 3600), fieldDamage: "time" });
-    for (let i = 0; i < time.fnHz.length; i++) expect(twice.fieldFatigue[i]! / time.fieldFatigue[i]!).toBeCloseTo(2, 10);
+    const twice = await deriveProfile({
+      ...args,
+      ...plainInputs(["samples/brackley-ft2-warehouse.csv"], 4 * 3600),
+      fieldDamage: "time",
+    });
+    for (let i = 0; i < time.fnHz.length; i++)
+      expect(twice.fieldFatigue[i]! / time.fieldFatigue[i]!).toBeCloseTo(2, 10);
   });
 });

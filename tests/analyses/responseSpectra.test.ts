@@ -4,7 +4,12 @@ import { describe, expect, it } from "vitest";
 import { loadProfile } from "../../src/analyses/checkRecording.js";
 import { profileMotion } from "../../src/compare/testProfile.js";
 import { InputError } from "../../src/errors.js";
-import { compareResponses, loadSpectrumSource, parseFnGrid, responseSpectra } from "../../src/analyses/responseSpectra.js";
+import {
+  compareResponses,
+  loadSpectrumSource,
+  parseFnGrid,
+  responseSpectra,
+} from "../../src/analyses/responseSpectra.js";
 import { psdCsv } from "../../src/report/psdJson.js";
 import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { python, tempDir } from "../helpers.js";
@@ -12,7 +17,10 @@ import { python, tempDir } from "../helpers.js";
 const dir = tempDir();
 const profileFile = join(dir, "flat.yaml");
 // 0.04 g^2/Hz on 20-2000 Hz (the band-limited case of docs/REFERENCES.md sec. 4 and 6), 600 s.
-writeFileSync(profileFile, "title: flat\nunits: g2/Hz\npoints: [{hz: 20, level: 0.04}, {hz: 2000, level: 0.04}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\ndurationS: 600\n");
+writeFileSync(
+  profileFile,
+  "title: flat\nunits: g2/Hz\npoints: [{hz: 20, level: 0.04}, {hz: 2000, level: 0.04}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\ndurationS: 600\n",
+);
 
 async function inputError(f: () => Promise<unknown> | unknown): Promise<string> {
   try {
@@ -26,7 +34,9 @@ async function inputError(f: () => Promise<unknown> | unknown): Promise<string> 
 
 describe("parseFnGrid", () => {
   it("A:B:N is geometric with N per octave and ends at B; a list is sorted; bad text names the option fn", async () => {
-    expect(Array.from(parseFnGrid("100:400:2"), (x) => Number(x.toFixed(6)))).toEqual([100, 141.421356, 200, 282.842712, 400]);
+    expect(Array.from(parseFnGrid("100:400:2"), (x) => Number(x.toFixed(6)))).toEqual([
+      100, 141.421356, 200, 282.842712, 400,
+    ]);
     expect(parseFnGrid("20:2000").length).toBe(Math.floor(6 * Math.log2(100)) + 2);
     expect(Array.from(parseFnGrid("300, 100"))).toEqual([100, 300]);
     expect(await inputError(() => parseFnGrid("100:50"))).toMatch(/^OPTION_INVALID option fn: expected A:B or A:B:N/);
@@ -41,7 +51,7 @@ describe("responseSpectra on a profile", () => {
     expect(Math.abs(r.accelRms[0]! / 7.914 - 1)).toBeLessThan(0.005);
     expect(r.milesRms[0]!).toBeCloseTo(7.927, 3);
     // The white-noise closed form is exact over 0..inf; the 20-2000 Hz band loses a little (docs/REFERENCES.md sec. 4).
-    expect(Math.abs(r.relDispRms[0]! * 1000 / 0.1969 - 1)).toBeLessThan(0.01);
+    expect(Math.abs((r.relDispRms[0]! * 1000) / 0.1969 - 1)).toBeLessThan(0.01);
     expect(r.relDispMilesRms[0]! * 1000).toBeCloseTo(0.1969, 4);
     expect(r.durationS).toBe(600);
     expect(Math.abs(r.upcrossingRateHz[0]! / 100 - 1)).toBeLessThan(0.1);
@@ -56,7 +66,8 @@ describe("responseSpectra on a profile", () => {
     // nu0+ = sqrt(m2 / m0) (docs/REFERENCES.md sec. 10 and disagreements item 3); Davenport 1964: largest peak over sigma
     // sqrt(2 ln nu T) + 0.5772 / sqrt(2 ln nu T); damage (nu0+ T / C) (sqrt 2 K sigma_z)^b Gamma(1 + b/2),
     // b = 8, C = K = 1, T = 600 s (docs/REFERENCES.md sec. 14).
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json, numpy as np
 from scipy.integrate import quad
 from scipy.special import gamma
@@ -76,7 +87,8 @@ for fn in [40.0, 100.0, 400.0]:
     nuz = np.sqrt(z2 / z0)
     out.append({"peak": float(np.sqrt(a0) * (s + 0.5772156649 / s)), "damage": float(nuz * T * (np.sqrt(2) * np.sqrt(z0)) ** b * gamma(1 + b / 2))})
 print(json.dumps(out))
-`));
+`),
+    );
     ref.forEach((x: { peak: number; damage: number }, i: number) => {
       expect(Math.abs(r.extremePeak[i]! / x.peak - 1), `peak at ${fnHz[i]} Hz`).toBeLessThan(1e-5);
       expect(Math.abs(r.fatigueDamage[i]! / x.damage - 1), `damage at ${fnHz[i]} Hz`).toBeLessThan(1e-4);
@@ -96,7 +108,10 @@ print(json.dumps(out))
   });
   it("--against the same input at 3 dB more: +3 dB in RMS and largest peak, damage x 2^(b/2) x T_B/T_A (docs/REFERENCES.md sec. 14 equivalence)", async () => {
     const hot = join(dir, "hot.yaml");
-    writeFileSync(hot, "title: hot\nunits: g2/Hz\npoints: [{hz: 20, level: 0.08}, {hz: 2000, level: 0.08}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\ndurationS: 60\n");
+    writeFileSync(
+      hot,
+      "title: hot\nunits: g2/Hz\npoints: [{hz: 20, level: 0.08}, {hz: 2000, level: 0.08}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\ndurationS: 60\n",
+    );
     const fnHz = parseFnGrid("50:500:1");
     const a = responseSpectra(await loadSpectrumSource(profileFile), { fnHz, q: 10, sn: { basquinB: 6 } });
     const b = responseSpectra(await loadSpectrumSource(hot), { fnHz, q: 10, sn: { basquinB: 6 } });
@@ -116,7 +131,10 @@ print(json.dumps(out))
     const table = join(dir, "tern.csv");
     writeFileSync(table, psdCsv(a));
     const fromTable = await loadSpectrumSource(table, { channels: ["ch2"] });
-    const fromRecording = await loadSpectrumSource("samples/tern7-flight.csv", { channels: ["ch2"], csv: { parseWorkers: 0 } });
+    const fromRecording = await loadSpectrumSource("samples/tern7-flight.csv", {
+      channels: ["ch2"],
+      csv: { parseWorkers: 0 },
+    });
     expect(fromTable.kind).toBe("psd");
     expect(fromRecording.kind).toBe("recording");
     const fnHz = parseFnGrid("20:1000:2");
@@ -133,7 +151,9 @@ print(json.dumps(out))
     expect(Array.from(r3.milesRms)).toEqual(Array.from(r1.milesRms));
     expect(r3.extremePeak.every(Number.isNaN) && r3.fatigueDamage.every(Number.isNaN)).toBe(true);
     expect(r3.needsDuration).toEqual(["the largest peak (Davenport)", "the fatigue damage"]);
-    expect(await inputError(() => loadSpectrumSource(table, { channels: ["ch9"] }))).toMatch(/^CHANNEL_NOT_FOUND .*expected a channel name or position: 1=ch2, received "ch9"/);
+    expect(await inputError(() => loadSpectrumSource(table, { channels: ["ch9"] }))).toMatch(
+      /^CHANNEL_NOT_FOUND .*expected a channel name or position: 1=ch2, received "ch9"/,
+    );
   });
 });
 
@@ -143,19 +163,27 @@ describe("loadSpectrumSource on a profile with --fmin/--fmax", () => {
     const r = responseSpectra(src, { fnHz: Float64Array.of(300), q: 10 });
     expect(r.motion.accelerationRms).toBeCloseTo(6, 9);
     expect(r.band).toEqual({ fromHz: 100, toHz: 1000 });
-    expect(await inputError(() => loadSpectrumSource(profileFile, { fminHz: 3000 }))).toMatch(/^OPTION_INVALID .*option fminHz: expected a band that overlaps the profile's 20–2000 Hz/);
+    expect(await inputError(() => loadSpectrumSource(profileFile, { fminHz: 3000 }))).toMatch(
+      /^OPTION_INVALID .*option fminHz: expected a band that overlaps the profile's 20–2000 Hz/,
+    );
   });
 });
 
 describe("respond with a mixed-mode profile (tones)", () => {
   it("each tone's response is its peak x |T(f)| (the closed form, computed here), and the total RMS adds (peak |T|)^2 / 2 to the random part", async () => {
-    const { loadSpectrumSource: load, responseSpectra: respond } = await import("../../src/analyses/responseSpectra.js");
+    const { loadSpectrumSource: load, responseSpectra: respond } = await import(
+      "../../src/analyses/responseSpectra.js"
+    );
     const src = await load("samples/profiles/hx4-avionics.yaml");
     expect(src.tones?.map((t) => t.hz)).toEqual([21.2, 42.4, 84.8]);
     const fn = Float64Array.from([20, 1000]);
     const r = respond(src, { fnHz: fn, q: 10 });
     // |T|^2 = (1 + (r/Q)^2) / ((1 - r^2)^2 + (r/Q)^2), r = f / fn (base-driven SDOF steady state, common practice).
-    const T = (f: number, n: number) => { const x = f / n; const c = (x / 10) ** 2; return Math.sqrt((1 + c) / ((1 - x * x) ** 2 + c)); };
+    const T = (f: number, n: number) => {
+      const x = f / n;
+      const c = (x / 10) ** 2;
+      return Math.sqrt((1 + c) / ((1 - x * x) ** 2 + c));
+    };
     expect(r.tones![0]!.accelPeak[0]).toBeCloseTo(1.2 * T(21.2, 20), 12);
     expect(r.tones![0]!.accelPeak[0]).toBeCloseTo(7.411, 3);
     // Far above the tone the structure follows its base: the tone passes at its own peak.

@@ -10,7 +10,14 @@ import { wavBytes } from "../wavBytes.js";
 
 const dir = tempDir();
 const sample = "samples/marlow-uv3-ride.wav";
-const sampleOptions = { inputUnits: "m/s2" as const, scale: 40, axes: { x: "1", y: "2", z: "3" }, floor: "4", posture: "seated" as const, exposureS: 8 * 3600 };
+const sampleOptions = {
+  inputUnits: "m/s2" as const,
+  scale: 40,
+  axes: { x: "1", y: "2", z: "3" },
+  floor: "4",
+  posture: "seated" as const,
+  exposureS: 8 * 3600,
+};
 
 describe("rideRecording on the Marlow UV-3 sample (invented, scripts/make-ride-sample.mjs)", () => {
   it("the time route and the |W|^2 x PSD route agree within 1 % on every axis and on the floor", async () => {
@@ -26,7 +33,8 @@ describe("rideRecording on the Marlow UV-3 sample (invented, scripts/make-ride-s
     // Annex A (docs/REFERENCES.md sec. 8), written here again from the standard's parameters; then a_w, VDV and
     // A(8) = max(1.4 a_wx, 1.4 a_wy, a_wz) sqrt(T / 8 h), VDV_day = max(k VDV) (T / T_meas)^(1/4)
     // (Directive 2002/44/EC Annex part B; docs/REFERENCES.md sec. 8).
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json, numpy as np
 from scipy.io import wavfile
 fs, d = wavfile.read("${sample}")
@@ -54,7 +62,8 @@ aw = [o[0] for o in out]; vdv = [o[1] for o in out]
 a8 = max(1.4 * aw[0], 1.4 * aw[1], aw[2]) * np.sqrt(T / 28800)
 vd = max(1.4 * vdv[0], 1.4 * vdv[1], vdv[2]) * (T / (n / fs)) ** 0.25
 print(json.dumps({"aw": aw, "vdv": vdv, "a8": float(a8), "vdvDay": float(vd)}))
-`));
+`),
+    );
     r.axes.forEach((a, i) => {
       expect(Math.abs(a.dose.rms / ref.aw[i] - 1), `a_w ${a.axis}`).toBeLessThan(2e-3);
       expect(Math.abs(a.dose.vdv / ref.vdv[i] - 1), `VDV ${a.axis}`).toBeLessThan(5e-3);
@@ -67,7 +76,9 @@ print(json.dumps({"aw": aw, "vdv": vdv, "a8": float(a8), "vdvDay": float(vd)}))
     const { exposureS: _e, ...noExposure } = sampleOptions;
     const [a, b] = await Promise.all([rideRecording(sample, noExposure), rideRecording(sample, sampleOptions)]);
     expect(a.exposure).toBeUndefined();
-    expect(a.axes.map((x) => [x.dose.rms, x.dose.vdv, x.dose.mtvv, x.dose.crestFactor])).toEqual(b.axes.map((x) => [x.dose.rms, x.dose.vdv, x.dose.mtvv, x.dose.crestFactor]));
+    expect(a.axes.map((x) => [x.dose.rms, x.dose.vdv, x.dose.mtvv, x.dose.crestFactor])).toEqual(
+      b.axes.map((x) => [x.dose.rms, x.dose.vdv, x.dose.mtvv, x.dose.crestFactor]),
+    );
     const note = a.notes.find((f) => f.code === "EXPOSURE_NOT_GIVEN")!;
     expect(findingText(note)).toMatch(/A\(8\), the daily VDV .* need the daily exposure/);
     expect(b.notes.some((f) => f.code === "EXPOSURE_NOT_GIVEN")).toBe(false);
@@ -75,13 +86,21 @@ print(json.dumps({"aw": aw, "vdv": vdv, "a8": float(a8), "vdvDay": float(vd)}))
   it("a non-stationary ride: the route and Parseval checks are notes with the stationarity test beside them, never doubts", async () => {
     const r = await rideRecording(sample, sampleOptions);
     expect(r.doubts.map((f) => f.code)).toEqual([]);
-    for (const f of r.notes.filter((n) => n.code === "ROUTES_DIFFER_NOT_STATIONARY" || n.code === "PARSEVAL_NOT_STATIONARY")) expect(findingText(f)).toMatch(/not stationary \(reverse arrangements A = \d+/);
+    for (const f of r.notes.filter(
+      (n) => n.code === "ROUTES_DIFFER_NOT_STATIONARY" || n.code === "PARSEVAL_NOT_STATIONARY",
+    ))
+      expect(findingText(f)).toMatch(/not stationary \(reverse arrangements A = \d+/);
   });
 });
 
 describe("rideRecording on records made here", () => {
   /** 4-channel float WAV: x, y, z, floor in m/s^2 at fs. */
-  function write(name: string, fs: number, seconds: number, f: (t: number) => [number, number, number, number]): string {
+  function write(
+    name: string,
+    fs: number,
+    seconds: number,
+    f: (t: number) => [number, number, number, number],
+  ): string {
     const n = fs * seconds;
     const s: number[] = [];
     for (let i = 0; i < n; i++) s.push(...f(i / fs));
@@ -91,8 +110,19 @@ describe("rideRecording on records made here", () => {
   }
   it("4 Hz sines of r.m.s. 1 (z, on 1 g) and 0.5 (x): a_w = |W(4 Hz)| x r.m.s. both ways; crest sqrt 2; VDV and MTVV of a sine", async () => {
     const w = 2 * Math.PI * 4;
-    const file = write("sines.wav", 1000, 60, (t) => [0.5 * Math.SQRT2 * Math.sin(w * t), 0, 9.80665 + Math.SQRT2 * Math.sin(w * t), 0.8 * Math.SQRT2 * Math.sin(w * t)]);
-    const r = await rideRecording(file, { inputUnits: "m/s2", axes: { x: "1", z: "3" }, floor: "4", posture: "seated", exposureS: 8 * 3600 });
+    const file = write("sines.wav", 1000, 60, (t) => [
+      0.5 * Math.SQRT2 * Math.sin(w * t),
+      0,
+      9.80665 + Math.SQRT2 * Math.sin(w * t),
+      0.8 * Math.SQRT2 * Math.sin(w * t),
+    ]);
+    const r = await rideRecording(file, {
+      inputUnits: "m/s2",
+      axes: { x: "1", z: "3" },
+      floor: "4",
+      posture: "seated",
+      exposureS: 8 * 3600,
+    });
     const [x, z] = r.axes;
     // docs/REFERENCES.md sec. 8: 4 Hz through Wk 0.9672, through Wd 0.5119 (4 significant figures).
     expect(Math.abs(z!.dose.rms / 0.9672 - 1)).toBeLessThan(1e-3); // the sine starts abruptly at t = 0: its transient costs 0.07 % over 60 s
@@ -150,16 +180,25 @@ describe("rideRecording on records made here", () => {
   });
   it("input errors: an unknown axis channel names the option axes; a rate below 100 Hz is refused", async () => {
     const file = write("slow.wav", 80, 30, () => [0, 0, 0, 0]);
-    await expect(rideRecording(file, { axes: { z: "seat_z" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(/option axes.*CHANNEL_NOT_FOUND/);
-    await expect(rideRecording(file, { axes: { z: "3" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(/RIDE_RATE_TOO_LOW/);
-    await expect(rideRecording(file, { axes: { z: "3" }, floor: "3", posture: "seated", exposureS: 3600 })).rejects.toThrow(/option floor/);
+    await expect(rideRecording(file, { axes: { z: "seat_z" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(
+      /option axes.*CHANNEL_NOT_FOUND/,
+    );
+    await expect(rideRecording(file, { axes: { z: "3" }, posture: "seated", exposureS: 3600 })).rejects.toThrow(
+      /RIDE_RATE_TOO_LOW/,
+    );
+    await expect(
+      rideRecording(file, { axes: { z: "3" }, floor: "3", posture: "seated", exposureS: 3600 }),
+    ).rejects.toThrow(/option floor/);
   });
 });
 
 describe("ride on instrument-shaped records (phone and logger rates, a tilted start)", () => {
   // scipy 1.17.1: the fitted design's error against scipy.signal.freqs of the analog sections (scripts/make_weighting_fixture.py).
-  const fixture: { fitted: { weighting: string; sampleRateHz: number; maxErrorPct: number }[] } = JSON.parse(readFileSync(new URL("../fixtures/scipy-weighting.json", import.meta.url), "utf8"));
-  const stated = (w: string, fs: number) => fixture.fitted.find((c) => c.weighting === w && c.sampleRateHz === fs)!.maxErrorPct;
+  const fixture: { fitted: { weighting: string; sampleRateHz: number; maxErrorPct: number }[] } = JSON.parse(
+    readFileSync(new URL("../fixtures/scipy-weighting.json", import.meta.url), "utf8"),
+  );
+  const stated = (w: string, fs: number) =>
+    fixture.fitted.find((c) => c.weighting === w && c.sampleRateHz === fs)!.maxErrorPct;
   function wav(name: string, fs: number, channels: Float64Array[]): string {
     const n = channels[0]!.length;
     const s: number[] = [];
@@ -168,16 +207,34 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
     writeFileSync(file, wavBytes({ tag: 3, bits: 32, channels: channels.length, sampleRate: fs, samples: s }));
     return file;
   }
-  const sine = (fs: number, seconds: number, f: number, rms: number, offset = 0) => Float64Array.from({ length: fs * seconds }, (_, i) => offset + rms * Math.SQRT2 * Math.sin((2 * Math.PI * f * i) / fs));
+  const sine = (fs: number, seconds: number, f: number, rms: number, offset = 0) =>
+    Float64Array.from(
+      { length: fs * seconds },
+      (_, i) => offset + rms * Math.SQRT2 * Math.sin((2 * Math.PI * f * i) / fs),
+    );
   // |W| at nominal centres, ISO 2631-1 Table 3 as computed in docs/REFERENCES.md sec. 8 (4 significant figures).
-  const table: Record<string, Record<number, number>> = { Wk: { 4: 0.9672, 16: 0.7687, 31.5: 0.4048, 63: 0.1861 }, Wd: { 1: 1.011, 4: 0.5119, 16: 0.1254, 31.5: 0.0632, 63: 0.0295 } };
-  for (const [fs, top] of [[100, 31.5], [128, 31.5], [200, 63], [256, 63], [400, 63]] as const) {
+  const table: Record<string, Record<number, number>> = {
+    Wk: { 4: 0.9672, 16: 0.7687, 31.5: 0.4048, 63: 0.1861 },
+    Wd: { 1: 1.011, 4: 0.5119, 16: 0.1254, 31.5: 0.0632, 63: 0.0295 },
+  };
+  for (const [fs, top] of [
+    [100, 31.5],
+    [128, 31.5],
+    [200, 63],
+    [256, 63],
+    [400, 63],
+  ] as const) {
     it(`${fs} Hz: ride runs; sines at 4 Hz and ${top} Hz come out at |W| x r.m.s. within the stated error; every result states that error and which figures carry it`, async () => {
       const seconds = 40;
       const z = sine(fs, seconds, 4, 1, 9.80665);
       const zTop = sine(fs, seconds, top, 1, 9.80665);
       const y = sine(fs, seconds, top, 1);
-      const r = await rideRecording(wav(`rate-${fs}.wav`, fs, [y, z, zTop]), { inputUnits: "m/s2", axes: { y: "1", z: "2" }, floor: "3", posture: "seated" });
+      const r = await rideRecording(wav(`rate-${fs}.wav`, fs, [y, z, zTop]), {
+        inputUnits: "m/s2",
+        axes: { y: "1", z: "2" },
+        floor: "3",
+        posture: "seated",
+      });
       const wk = stated("Wk", fs);
       const wd = stated("Wd", fs);
       expect(Math.abs(r.axes[1]!.dose.rms / table.Wk![4]! - 1)).toBeLessThan(1e-3 + wk / 100); // Table 3 rounding 5e-5
@@ -193,15 +250,22 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
     });
   }
   it("the stated error per rate (README's table) is the scipy-measured one: 100 Hz 2.3 %, 128 Hz 2.1 %, 200 Hz 2.7 %, 256 Hz 0.72 %, 400 Hz 0.093 % at most over the weightings", () => {
-    const worst = (fs: number) => Math.max(...fixture.fitted.filter((c) => c.sampleRateHz === fs).map((c) => c.maxErrorPct));
-    expect([100, 128, 200, 256, 400].map((fs) => Number(worst(fs).toPrecision(2)))).toEqual([2.3, 2.1, 2.7, 0.72, 0.093]);
+    const worst = (fs: number) =>
+      Math.max(...fixture.fitted.filter((c) => c.sampleRateHz === fs).map((c) => c.maxErrorPct));
+    expect([100, 128, 200, 256, 400].map((fs) => Number(worst(fs).toPrecision(2)))).toEqual([
+      2.3, 2.1, 2.7, 0.72, 0.093,
+    ]);
   });
   for (const factor of [2, 4]) {
     it(`a phone record at 200 Hz whose sensor updated at ${200 / factor} Hz (held ${factor}x): ride names the update rate and raises no clipping doubt from the repeated extremes`, async () => {
       const readings = gaussian((60 * 200) / factor, 41 + factor, 0.5);
       const z = new Float64Array(60 * 200);
       for (let i = 0; i < z.length; i++) z[i] = 9.80665 + readings[Math.floor(i / factor)]!;
-      const r = await rideRecording(wav(`held-${factor}.wav`, 200, [z]), { inputUnits: "m/s2", axes: { z: "1" }, posture: "seated" });
+      const r = await rideRecording(wav(`held-${factor}.wav`, 200, [z]), {
+        inputUnits: "m/s2",
+        axes: { z: "1" },
+        posture: "seated",
+      });
       const note = r.notes.find((f) => f.code === "HELD_SAMPLES")!;
       expect(note.values.updateRateHz).toBe(200 / factor);
       expect(findingText(note)).toMatch(/^z \(ch1\): held samples/);
@@ -216,11 +280,20 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
         const t = i / fs;
         return (Math.floor(t / 20) % 2 === 1 ? 0.8 : -1) + (t > 100 && t < 160 ? 0.2 : 1) * v;
       });
-      const r = await rideRecording(wav(`curves-${fs}.wav`, fs, [y]), { inputUnits: "m/s2", axes: { y: "1" }, posture: "seated" });
-      expect(r.doubts.map((f) => f.code), `${fs} Hz`).toEqual([]);
+      const r = await rideRecording(wav(`curves-${fs}.wav`, fs, [y]), {
+        inputUnits: "m/s2",
+        axes: { y: "1" },
+        posture: "seated",
+      });
+      expect(
+        r.doubts.map((f) => f.code),
+        `${fs} Hz`,
+      ).toEqual([]);
       const parseval = r.notes.find((f) => f.code === "PARSEVAL_NOT_STATIONARY")!;
       expect(parseval.values.offPercent).toBeLessThan(-10); // the issue's rides: -19 %
-      expect(findingText(parseval)).toMatch(/the (weighted|unweighted) level is not stationary \((run test: R|reverse arrangements A) = \d+ outside/);
+      expect(findingText(parseval)).toMatch(
+        /the (weighted|unweighted) level is not stationary \((run test: R|reverse arrangements A) = \d+ outside/,
+      );
       if (fs === 1000) {
         const route = r.notes.find((f) => f.code === "ROUTES_DIFFER_NOT_STATIONARY")!;
         expect(Math.abs(route.values.offPercent!)).toBeGreaterThan(1);
@@ -237,13 +310,18 @@ describe("ride on instrument-shaped records (phone and logger rates, a tilted st
       const g = t < 30 ? -1 : t > 50 ? 0.8 : -0.1 - 0.9 * Math.cos((Math.PI * (t - 30)) / 20);
       y[i] = Math.fround(g + noise[i]! + 0.3 * Math.SQRT2 * Math.sin(2 * Math.PI * 1.2 * t));
     }
-    const r = await rideRecording(wav("tilted.wav", fs, [y]), { inputUnits: "m/s2", axes: { y: "1" }, posture: "seated" });
+    const r = await rideRecording(wav("tilted.wav", fs, [y]), {
+      inputUnits: "m/s2",
+      axes: { y: "1" },
+      posture: "seated",
+    });
     const d = designWeightingFilter("Wd", fs);
     const dataFile = join(dir, "tilted.f64");
     writeFileSync(dataFile, Buffer.from(y.buffer));
     // Independent of psdgate's start: scipy.signal.sosfilt with zi = sosfilt_zi(sos) * (-1.0), the gravity the
     // record starts with; a_w, VDV, 1 s running r.m.s. and crest in numpy (ISO 2631-1 6.1-6.3 as docs/REFERENCES.md sec. 8).
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json, numpy as np, scipy.signal as ss
 sos = np.array(${JSON.stringify(d.sections.map((q) => [q.b0, q.b1, q.b2, 1, q.a1, q.a2]))})
 x = np.fromfile("${dataFile}", dtype="<f8")
@@ -255,7 +333,8 @@ run = np.sqrt((c[fs:] - c[:-fs]) / fs)
 i = int(np.argmax(run))
 aw = float(np.sqrt(np.mean(a * a)))
 print(json.dumps({"aw": aw, "vdv": float((np.sum(a**4) / fs) ** 0.25), "mtvv": float(run[i]), "mtvvAtS": (i + fs) / fs, "crest": float(np.max(np.abs(a)) / aw)}))
-`));
+`),
+    );
     const got = r.axes[0]!.dose;
     expect(Math.abs(got.rms / ref.aw - 1)).toBeLessThan(0.01);
     expect(Math.abs(got.vdv / ref.vdv - 1)).toBeLessThan(0.01);
@@ -264,8 +343,18 @@ print(json.dumps({"aw": aw, "vdv": float((np.sum(a**4) / fs) ** 0.25), "mtvv": f
     expect(got.mtvvAtS).toBeGreaterThan(2); // not the filter settling in the first second
     // The same vibration on a sensor that starts at +0.8 (no tilt) gives the same figures before the tilt.
     const flat = Float64Array.from(y, (v, i) => (i < 25 * fs ? v + 1.8 : v));
-    const r2 = await rideRecording(wav("tilted-flat.wav", fs, [flat]), { inputUnits: "m/s2", axes: { y: "1" }, posture: "seated", toS: 25 });
-    const r1 = await rideRecording(wav("tilted.wav", fs, [y]), { inputUnits: "m/s2", axes: { y: "1" }, posture: "seated", toS: 25 });
+    const r2 = await rideRecording(wav("tilted-flat.wav", fs, [flat]), {
+      inputUnits: "m/s2",
+      axes: { y: "1" },
+      posture: "seated",
+      toS: 25,
+    });
+    const r1 = await rideRecording(wav("tilted.wav", fs, [y]), {
+      inputUnits: "m/s2",
+      axes: { y: "1" },
+      posture: "seated",
+      toS: 25,
+    });
     expect(Math.abs(r2.axes[0]!.dose.mtvv / r1.axes[0]!.dose.mtvv - 1)).toBeLessThan(1e-6);
     expect(Math.abs(r2.axes[0]!.dose.vdv / r1.axes[0]!.dose.vdv - 1)).toBeLessThan(1e-6);
   });

@@ -4,9 +4,25 @@ import { responseThreads } from "../../src/analyses/timeResponsePool.js";
 
 // Worker files exist only in dist/: the pool is exercised through the built CLI (npm test builds it first).
 function respond(threads: number): { code: number | null; out: string; err: string } {
-  const r = spawnSync("node", ["bin/psdgate.js", "respond", "samples/brackley-ft2-warehouse.csv", "--channel", "z", "--fn", "5:160:6", "--q", "10", "--json"], {
-    encoding: "utf8", env: { ...process.env, PSDGATE_RESPONSE_THREADS: String(threads) },
-  });
+  const r = spawnSync(
+    "node",
+    [
+      "bin/psdgate.js",
+      "respond",
+      "samples/brackley-ft2-warehouse.csv",
+      "--channel",
+      "z",
+      "--fn",
+      "5:160:6",
+      "--q",
+      "10",
+      "--json",
+    ],
+    {
+      encoding: "utf8",
+      env: { ...process.env, PSDGATE_RESPONSE_THREADS: String(threads) },
+    },
+  );
   return { code: r.status, out: r.stdout, err: r.stderr };
 }
 

@@ -4,7 +4,15 @@ import { describe, expect, it } from "vitest";
 import { cli, tempDir } from "../helpers.js";
 import { generateCases } from "./generate.js";
 
-interface Case { name: string; file: string; args: string[]; exit: number; code?: string; place?: string; stdout?: string }
+interface Case {
+  name: string;
+  file: string;
+  args: string[];
+  exit: number;
+  code?: string;
+  place?: string;
+  stdout?: string;
+}
 
 const here = "tests/bad-inputs";
 const cases: Case[] = JSON.parse(readFileSync(join(here, "cases.json"), "utf8"));
@@ -20,11 +28,17 @@ describe(`bad-input corpus (${cases.length} cases, tests/bad-inputs/cases.json)`
   it("has at least 40 cases", () => expect(cases.length).toBeGreaterThanOrEqual(40));
   cases.forEach((c, n) => {
     it(`${c.name}: exit ${c.exit}${c.code ? ` [${c.code}]` : ""}`, async () => {
-      const file = c.file.startsWith("gen/") ? join(gen, c.file.slice(4)) : c.file.startsWith("cases/") ? join(here, c.file) : c.file;
+      const file = c.file.startsWith("gen/")
+        ? join(gen, c.file.slice(4))
+        : c.file.startsWith("cases/")
+          ? join(here, c.file)
+          : c.file;
       const before = snapshot(file);
       const tmp = join(outRoot, String(n));
       mkdirSync(tmp);
-      const args = c.args.map((a) => a.replaceAll("{file}", file).replaceAll("{dir}", here).replaceAll("{gen}", gen).replaceAll("{tmp}", tmp));
+      const args = c.args.map((a) =>
+        a.replaceAll("{file}", file).replaceAll("{dir}", here).replaceAll("{gen}", gen).replaceAll("{tmp}", tmp),
+      );
       const r = await cli(...args);
       expect(r.code, r.stderr).toBe(c.exit);
       if (c.exit === 2) {

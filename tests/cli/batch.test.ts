@@ -13,8 +13,14 @@ const runs = ["samples/kb210-run.wav", "samples/kb210-run-resonance.wav", "sampl
 describe("several recordings", () => {
   it("check on several files: one JSON line each, in input order, exit code of the worst verdict", async () => {
     const r = await cli("check", runs[2]!, runs[0]!, "--profile", kb, "--json");
-    const lines = r.stdout.trim().split("\n").map((l) => JSON.parse(l));
-    expect(lines.map((l) => [l.input.file, l.verdict])).toEqual([[runs[2], "inconclusive"], [runs[0], "pass"]]);
+    const lines = r.stdout
+      .trim()
+      .split("\n")
+      .map((l) => JSON.parse(l));
+    expect(lines.map((l) => [l.input.file, l.verdict])).toEqual([
+      [runs[2], "inconclusive"],
+      [runs[0], "pass"],
+    ]);
     expect(r.code).toBe(3);
     expect((await cli("check", ...runs, "--profile", kb, "--json")).code).toBe(1);
   });
@@ -30,9 +36,18 @@ describe("several recordings", () => {
     expect(g.stdout.trim().split("\n").length).toBe(3);
     let out = "";
     const { runCli } = await import("../../src/cli/main.js");
-    const code = await runCli(["psd", "-", "--json"], { stdout: (s) => (out += s), stderr: () => undefined, readStdin: async () => `${runs[0]}\n# a comment\n${runs[2]}\n` });
+    const code = await runCli(["psd", "-", "--json"], {
+      stdout: (s) => (out += s),
+      stderr: () => undefined,
+      readStdin: async () => `${runs[0]}\n# a comment\n${runs[2]}\n`,
+    });
     expect(code).toBe(0);
-    expect(out.trim().split("\n").map((l) => JSON.parse(l).input.file)).toEqual([runs[0], runs[2]]);
+    expect(
+      out
+        .trim()
+        .split("\n")
+        .map((l) => JSON.parse(l).input.file),
+    ).toEqual([runs[0], runs[2]]);
     const list = join(dir, "list.txt");
     writeFileSync(list, runs.join("\n"));
     expect((await cli("psd", "--files-from", list, "--json")).stdout.trim().split("\n").length).toBe(3);
@@ -51,8 +66,12 @@ describe("several recordings", () => {
     expect(r.stderr).toContain("--report-dir");
   });
   it("the worker pool (--jobs 2, built CLI) gives the same JSON lines as --jobs 1", () => {
-    const a = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "1"], { encoding: "utf8" });
-    const b = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "2"], { encoding: "utf8" });
+    const a = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "1"], {
+      encoding: "utf8",
+    });
+    const b = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "2"], {
+      encoding: "utf8",
+    });
     expect(b.status).toBe(1);
     expect(b.stdout).toBe(a.stdout);
   });
@@ -61,10 +80,14 @@ describe("several recordings", () => {
 describe("CSV parsed on a worker thread (files of 8 MB and more, built code)", () => {
   const big = join(dir, "big.csv");
   let s = "time,ax [g],ay [g]\n";
-  for (let i = 0; i < 330000; i++) s += `${(i / 2048).toFixed(7)},${Math.sin(i * 0.37).toFixed(6)},${(Math.cos(i * 0.11) * 2).toFixed(6)}\n`;
+  for (let i = 0; i < 330000; i++)
+    s += `${(i / 2048).toFixed(7)},${Math.sin(i * 0.37).toFixed(6)},${(Math.cos(i * 0.11) * 2).toFixed(6)}\n`;
   writeFileSync(big, s);
   it("gives the same PSD and statistics as the single-thread parser", async () => {
-    const r = spawnSync("node", ["bin/psdgate.js", "psd", big, "--json", "-q"], { encoding: "utf8", maxBuffer: 1 << 26 });
+    const r = spawnSync("node", ["bin/psdgate.js", "psd", big, "--json", "-q"], {
+      encoding: "utf8",
+      maxBuffer: 1 << 26,
+    });
     expect(r.status, r.stderr).toBe(0);
     const par = JSON.parse(r.stdout);
     const one = await analyzeRecording(big, { csv: { parseWorkers: 0 } });
@@ -97,7 +120,11 @@ describe("progress", () => {
   it("shows nothing for the first 2 s, then a bar with bytes, rate and ETA, at most ten times a second", () => {
     let t = 0;
     let out = "";
-    const p = createProgress(true, (s) => (out += s), () => t);
+    const p = createProgress(
+      true,
+      (s) => (out += s),
+      () => t,
+    );
     t = 1000;
     p.update(10e6, 100e6);
     expect(out).toBe("");
@@ -113,7 +140,11 @@ describe("progress", () => {
   });
   it("writes nothing at all when disabled", () => {
     let out = "";
-    const p = createProgress(false, (s) => (out += s), () => 1e9);
+    const p = createProgress(
+      false,
+      (s) => (out += s),
+      () => 1e9,
+    );
     p.update(1, 2);
     p.line("x");
     p.end();
@@ -125,7 +156,15 @@ describe("batch worker limits (built code, issue #12)", () => {
   it("runBatch with a 2 MB worker heap: every recording gets one WORKER_LIMIT outcome, in order, and the batch still completes", async () => {
     const { runBatch } = await import(join(process.cwd(), "dist/cli/batch.js"));
     const got: [number, boolean, string][] = [];
-    await runBatch(runs, {}, undefined, 2, (o: { ok: boolean; error?: { code: string } }, i: number) => got.push([i, o.ok, o.error?.code ?? ""]), undefined, { maxOldGenerationSizeMb: 2 });
+    await runBatch(
+      runs,
+      {},
+      undefined,
+      2,
+      (o: { ok: boolean; error?: { code: string } }, i: number) => got.push([i, o.ok, o.error?.code ?? ""]),
+      undefined,
+      { maxOldGenerationSizeMb: 2 },
+    );
     expect(got).toEqual(runs.map((_, i) => [i, false, "WORKER_LIMIT"]));
   }, 60_000);
   it("the built CLI: a file over the channel limit in a batch is one error line and the other recordings complete", () => {
@@ -144,9 +183,16 @@ describe("batch worker limits (built code, issue #12)", () => {
     wav.write("data", 36, "latin1");
     wav.writeUInt32LE(32767 * 2 * 2, 40);
     writeFileSync(big, wav);
-    const r = spawnSync(process.execPath, ["bin/psdgate.js", "check", runs[0]!, big, runs[1]!, runs[2]!, "--profile", kb, "--json", "--jobs", "2"], { encoding: "utf8" });
+    const r = spawnSync(
+      process.execPath,
+      ["bin/psdgate.js", "check", runs[0]!, big, runs[1]!, runs[2]!, "--profile", kb, "--json", "--jobs", "2"],
+      { encoding: "utf8" },
+    );
     expect(r.status).toBe(2);
-    const lines = r.stdout.trim().split("\n").map((l) => JSON.parse(l));
+    const lines = r.stdout
+      .trim()
+      .split("\n")
+      .map((l) => JSON.parse(l));
     expect(lines.map((l) => l.verdict ?? l.error.code)).toEqual(["pass", "TOO_MANY_CHANNELS", "fail", "inconclusive"]);
     expect(r.stderr.trim().split("\n")).toHaveLength(1);
   }, 60_000);
@@ -163,24 +209,63 @@ describe("check --meta-table: per recording its test identity from one table", (
   it("a CSV or YAML table names each recording's test; --meta, then the row, then a meta file beside the recording, key by key; the batch index shows them", async () => {
     const { d, recs } = setup();
     // One row by file name, one by the path as given (quoted, with a comma in its notes); the third recording has no row.
-    writeFileSync(join(d, "runs.csv"), `recording,testId,serialNumber,notes\nkb210-run.wav,HF-QA-3001,SN 11,\n\n"${recs[1]}",HF-QA-3002,SN 12,"fixture re-torqued, then run"\n`);
+    writeFileSync(
+      join(d, "runs.csv"),
+      `recording,testId,serialNumber,notes\nkb210-run.wav,HF-QA-3001,SN 11,\n\n"${recs[1]}",HF-QA-3002,SN 12,"fixture re-torqued, then run"\n`,
+    );
     writeFileSync(join(d, "kb210-run-short.meta.yaml"), "testId: HF-QA-3003\n");
     writeFileSync(join(d, "kb210-run.meta.yaml"), "notes: beside file\n");
     const out = join(d, "out");
-    const r = await cli("check", ...recs, "-p", kb, "--meta", join(d, "shared.yaml"), "--meta-table", join(d, "runs.csv"), "--report-dir", out, "--json", "-q");
+    const r = await cli(
+      "check",
+      ...recs,
+      "-p",
+      kb,
+      "--meta",
+      join(d, "shared.yaml"),
+      "--meta-table",
+      join(d, "runs.csv"),
+      "--report-dir",
+      out,
+      "--json",
+      "-q",
+    );
     expect(r.code, r.stderr).toBe(1);
-    const metas = r.stdout.trim().split("\n").map((l) => JSON.parse(l).meta);
-    expect(metas[0]).toEqual({ workOrder: "WO-5531", operator: "T. Hallberg", testId: "HF-QA-3001", serialNumber: "SN 11", notes: "beside file" });
-    expect(metas[1]).toEqual({ workOrder: "WO-5531", operator: "T. Hallberg", testId: "HF-QA-3002", serialNumber: "SN 12", notes: "fixture re-torqued, then run" });
+    const metas = r.stdout
+      .trim()
+      .split("\n")
+      .map((l) => JSON.parse(l).meta);
+    expect(metas[0]).toEqual({
+      workOrder: "WO-5531",
+      operator: "T. Hallberg",
+      testId: "HF-QA-3001",
+      serialNumber: "SN 11",
+      notes: "beside file",
+    });
+    expect(metas[1]).toEqual({
+      workOrder: "WO-5531",
+      operator: "T. Hallberg",
+      testId: "HF-QA-3002",
+      serialNumber: "SN 12",
+      notes: "fixture re-torqued, then run",
+    });
     expect(metas[2]).toEqual({ workOrder: "WO-5531", operator: "T. Hallberg", testId: "HF-QA-3003" });
     const index = readFileSync(join(out, "psdgate-batch.html"), "utf8");
     for (const id of ["HF-QA-3001", "HF-QA-3002", "HF-QA-3003"]) expect(index).toContain(`test ${id}`);
     expect(index).toContain("runs.csv");
     expect((await cli("verify", join(out, "psdgate-batch.html"), "-q")).code).toBe(0);
     // The same table in YAML.
-    writeFileSync(join(d, "runs.yaml"), `kb210-run.wav: {testId: HF-QA-3001}\nkb210-run-resonance.wav:\n  testId: HF-QA-3002\n`);
+    writeFileSync(
+      join(d, "runs.yaml"),
+      `kb210-run.wav: {testId: HF-QA-3001}\nkb210-run-resonance.wav:\n  testId: HF-QA-3002\n`,
+    );
     const y = await cli("check", ...recs, "-p", kb, "--meta-table", join(d, "runs.yaml"), "--json", "-q");
-    expect(y.stdout.trim().split("\n").map((l) => JSON.parse(l).meta?.testId)).toEqual(["HF-QA-3001", "HF-QA-3002", "HF-QA-3003"]);
+    expect(
+      y.stdout
+        .trim()
+        .split("\n")
+        .map((l) => JSON.parse(l).meta?.testId),
+    ).toEqual(["HF-QA-3001", "HF-QA-3002", "HF-QA-3003"]);
   });
   it("a row for a recording not in the batch, a recording named twice, a name that fits two, an unknown key: one line with file, line and code; nothing written", async () => {
     const { d, recs } = setup();
@@ -194,15 +279,43 @@ describe("check --meta-table: per recording its test identity from one table", (
       expect(r.stderr).toMatch(where);
       expect(existsSync(out) ? readdirSync(out) : []).toEqual([]);
     };
-    await bad("t1.csv", "recording,testId\nkb210-run.wav,A\nkb210-run-typo.wav,B\n", "META_TABLE_UNKNOWN", /t1\.csv:3: .*"kb210-run-typo\.wav"/);
-    await bad("t2.csv", "recording,testId\nkb210-run.wav,A\nkb210-run-short.wav,B\nkb210-run.wav,C\n", "META_TABLE_DUPLICATE", /t2\.csv:4: .*first at .*t2\.csv line 2/);
+    await bad(
+      "t1.csv",
+      "recording,testId\nkb210-run.wav,A\nkb210-run-typo.wav,B\n",
+      "META_TABLE_UNKNOWN",
+      /t1\.csv:3: .*"kb210-run-typo\.wav"/,
+    );
+    await bad(
+      "t2.csv",
+      "recording,testId\nkb210-run.wav,A\nkb210-run-short.wav,B\nkb210-run.wav,C\n",
+      "META_TABLE_DUPLICATE",
+      /t2\.csv:4: .*first at .*t2\.csv line 2/,
+    );
     await bad("t3.csv", `recording,testId\nkb210-run.wav,A\n${recs[0]},C\n`, "META_TABLE_DUPLICATE", /t3\.csv:3:/);
-    await bad("t4.yaml", "kb210-run.wav: {testId: A}\nkb210-run.wav: {testId: B}\n", "META_TABLE_DUPLICATE", /t4\.yaml:2/);
-    await bad("t5.json", '{"kb210-run.wav": {"testId": "A"}, "nope.wav": {"testId": "B"}}', "META_TABLE_UNKNOWN", /t5\.json.*nope\.wav/);
+    await bad(
+      "t4.yaml",
+      "kb210-run.wav: {testId: A}\nkb210-run.wav: {testId: B}\n",
+      "META_TABLE_DUPLICATE",
+      /t4\.yaml:2/,
+    );
+    await bad(
+      "t5.json",
+      '{"kb210-run.wav": {"testId": "A"}, "nope.wav": {"testId": "B"}}',
+      "META_TABLE_UNKNOWN",
+      /t5\.json.*nope\.wav/,
+    );
     await bad("t6.csv", "recording,testid\nkb210-run.wav,A\n", "META_INVALID", /t6\.csv:1:2: .*"testid"/);
-    await bad("t7.csv", "recording,testId,sensorCalibrated\nkb210-run.wav,A,2025-13-40\n", "META_INVALID", /t7\.csv:2:3: .*calendar date/);
+    await bad(
+      "t7.csv",
+      "recording,testId,sensorCalibrated\nkb210-run.wav,A,2025-13-40\n",
+      "META_INVALID",
+      /t7\.csv:2:3: .*calendar date/,
+    );
     mkdirSync(join(d, "b"));
     copyFileSync(join("samples", names[0]!), join(d, "b", names[0]!));
-    await bad("t8.csv", "recording,testId\nkb210-run.wav,A\n", "META_TABLE_AMBIGUOUS", /t8\.csv:2: .*fits 2/, [recs[0]!, join(d, "b", names[0]!)]);
+    await bad("t8.csv", "recording,testId\nkb210-run.wav,A\n", "META_TABLE_AMBIGUOUS", /t8\.csv:2: .*fits 2/, [
+      recs[0]!,
+      join(d, "b", names[0]!),
+    ]);
   });
 });

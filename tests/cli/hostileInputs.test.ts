@@ -10,7 +10,8 @@ const kb = "samples/profiles/kb210-controller.json";
 
 function csvWithNames(names: string[]): string {
   const rows = [`time,${names.map((n) => `"${n.replace(/"/g, '""')}"`).join(",")}`];
-  for (let i = 0; i < 4096; i++) rows.push(`${(i / 1024).toFixed(6)},${names.map((_, c) => Math.sin(0.3 * i + c).toFixed(5)).join(",")}`);
+  for (let i = 0; i < 4096; i++)
+    rows.push(`${(i / 1024).toFixed(6)},${names.map((_, c) => Math.sin(0.3 * i + c).toFixed(5)).join(",")}`);
   return rows.join("\n") + "\n";
 }
 
@@ -64,12 +65,30 @@ describe("batches with hostile members", () => {
     copyFileSync("samples/kb210-run.wav", join(dir, "a", "run.wav"));
     copyFileSync("samples/kb210-run-resonance.wav", join(dir, "b", "run.wav"));
     const reports = join(dir, "reports");
-    const r = await cli("check", join(dir, "a", "run.wav"), join(dir, "b", "run.wav"), "--profile", kb, "--report-dir", reports, "--quiet");
+    const r = await cli(
+      "check",
+      join(dir, "a", "run.wav"),
+      join(dir, "b", "run.wav"),
+      "--profile",
+      kb,
+      "--report-dir",
+      reports,
+      "--quiet",
+    );
     expect(r.code, r.stderr).toBe(1);
     expect(readdirSync(reports).sort()).toEqual(["a__run.html", "b__run.html", "psdgate-batch.html"]);
     expect(readFileSync(join(reports, "b__run.html"), "utf8")).toMatch(/FAIL/);
     // Again without --force: both exist, nothing is replaced.
-    const again = await cli("check", join(dir, "a", "run.wav"), join(dir, "b", "run.wav"), "--profile", kb, "--report-dir", reports, "--quiet");
+    const again = await cli(
+      "check",
+      join(dir, "a", "run.wav"),
+      join(dir, "b", "run.wav"),
+      "--profile",
+      kb,
+      "--report-dir",
+      reports,
+      "--quiet",
+    );
     expect(again.code).toBe(2);
     expect(again.stderr).toContain("[OUTPUT_EXISTS]");
   });
@@ -80,7 +99,10 @@ describe("batches with hostile members", () => {
     execFileSync("mkfifo", [fifo]);
     const r = await cli("psd", "samples/kb210-run.wav", fifo, "samples/kb210-run-short.wav", "--json");
     expect(r.code).toBe(2);
-    const lines = r.stdout.trim().split("\n").map((l) => JSON.parse(l));
+    const lines = r.stdout
+      .trim()
+      .split("\n")
+      .map((l) => JSON.parse(l));
     expect(lines.length).toBe(3);
     expect(lines[1].error.code).toBe("FILE_UNREADABLE");
     expect(lines[0].channels.length).toBe(2);
@@ -89,7 +111,10 @@ describe("batches with hostile members", () => {
 
   it("psd --json batch: a record too short for one segment has an error object in its line", async () => {
     const r = await cli("psd", "samples/kb210-run-short.wav", "samples/kb210-run.wav", "--json", "--segment", "262144");
-    const lines = r.stdout.trim().split("\n").map((l) => JSON.parse(l));
+    const lines = r.stdout
+      .trim()
+      .split("\n")
+      .map((l) => JSON.parse(l));
     expect(r.code).toBe(2);
     expect(lines[0].error).toMatchObject({ code: "RECORD_TOO_SHORT" });
   });
@@ -117,7 +142,11 @@ describe("report at a fine resolution", () => {
 describe("under a memory cap", () => {
   it("a queue command under ulimit -v says its one line and exits 2: no raw stack from the HTTP parser node-postgres makes Node load", () => {
     // The built CLI (bin/psdgate.js) in a shell with a 1.5 GB address-space cap; port 1 refuses the connection.
-    const r = spawnSync("bash", ["-c", "ulimit -v 1500000 && exec node bin/psdgate.js queue status --db postgres://nobody@127.0.0.1:1/none"], { encoding: "utf8", timeout: 30_000 });
+    const r = spawnSync(
+      "bash",
+      ["-c", "ulimit -v 1500000 && exec node bin/psdgate.js queue status --db postgres://nobody@127.0.0.1:1/none"],
+      { encoding: "utf8", timeout: 30_000 },
+    );
     expect(r.status, r.stderr).toBe(2);
     expect(r.stderr.trim().split("\n")).toHaveLength(1);
     expect(r.stderr).toMatch(/\[DB_UNREACHABLE\]/);

@@ -42,7 +42,11 @@ async function refusedAtOnce(args: string[], what: RegExp): Promise<void> {
 
 describe("every input is a regular file, or FILE_UNREADABLE within a second", () => {
   it("verify: the report, --recording and --profile as a FIFO, a device or a folder", async () => {
-    for (const [bad, word] of [[fifo, /a FIFO/], ["/dev/zero", /a character device/], [folder, /a folder/]] as const) {
+    for (const [bad, word] of [
+      [fifo, /a FIFO/],
+      ["/dev/zero", /a character device/],
+      [folder, /a folder/],
+    ] as const) {
       await refusedAtOnce(["verify", bad], word);
       await refusedAtOnce(["verify", report, "--recording", bad], word);
       await refusedAtOnce(["verify", report, "--profile", bad], word);
@@ -51,22 +55,40 @@ describe("every input is a regular file, or FILE_UNREADABLE within a second", ()
 
   it("verify: a recorded input path that is /dev/zero (no file of its name beside the report) is refused, not read", async () => {
     const html = readFileSync(report, "utf8");
-    const m = /<template id="psdgate-result" data-sha256="[0-9a-f]{64}">([^]*?)<\/template>/.exec(html)!;
-    const doc = JSON.parse(m[1]!.replace(/&lt;/g, "<").replace(/&gt;/g, ">").replace(/&amp;/g, "&")) as { result: { input: { file: string } }; format?: string; page?: unknown };
+    const m = /<template id="psdgate-result" data-sha256="[0-9a-f]{64}">([\s\S]*?)<\/template>/.exec(html)!;
+    const doc = JSON.parse(m[1]!.replace(/&lt;/g, "<").replace(/&gt;/g, ">").replace(/&amp;/g, "&")) as {
+      result: { input: { file: string } };
+      format?: string;
+      page?: unknown;
+    };
     delete doc.format;
     delete doc.page;
     doc.result.input.file = "/dev/zero";
     const d = tempDir();
     copyFileSync(join(dir, "profile.json"), join(d, "profile.json"));
-    writeFileSync(join(d, "r.html"), embedResult(html.slice(0, m.index) + RESULT_PLACEHOLDER + html.slice(m.index + m[0].length), doc as unknown as Record<string, unknown>));
+    writeFileSync(
+      join(d, "r.html"),
+      embedResult(
+        html.slice(0, m.index) + RESULT_PLACEHOLDER + html.slice(m.index + m[0].length),
+        doc as unknown as Record<string, unknown>,
+      ),
+    );
     await refusedAtOnce(["verify", join(d, "r.html")], /\/dev\/zero.*a character device/);
   }, 30_000);
 
   it("respond: SOURCE and --against as a FIFO, a device or a folder", async () => {
-    for (const [bad, word] of [[fifo, /a FIFO/], [join(dir, "pipe2.csv"), /a FIFO/], ["/dev/zero", /a character device/], [folder, /a folder/]] as const) {
+    for (const [bad, word] of [
+      [fifo, /a FIFO/],
+      [join(dir, "pipe2.csv"), /a FIFO/],
+      ["/dev/zero", /a character device/],
+      [folder, /a folder/],
+    ] as const) {
       if (bad.endsWith("pipe2.csv")) execFileSync("mkfifo", [bad]);
       await refusedAtOnce(["respond", bad, "--fn", "10:1000:10", "--q", "10"], word);
-      await refusedAtOnce(["respond", "samples/profiles/kb210-controller.json", "--fn", "10:1000:10", "--q", "10", "--against", bad], word);
+      await refusedAtOnce(
+        ["respond", "samples/profiles/kb210-controller.json", "--fn", "10:1000:10", "--q", "10", "--against", bad],
+        word,
+      );
     }
   }, 30_000);
 
@@ -82,10 +104,16 @@ describe("every input is a regular file, or FILE_UNREADABLE within a second", ()
   }, 30_000);
 
   it("queue add's hash (fileSha256), readSmallText, readHead and sha256OfFile refuse a FIFO, a device and a folder; sha256OfFile streams", async () => {
-    for (const [bad, word] of [[fifo, /a FIFO/], ["/dev/zero", /a character device/], [folder, /a folder/]] as const) {
+    for (const [bad, word] of [
+      [fifo, /a FIFO/],
+      ["/dev/zero", /a character device/],
+      [folder, /a folder/],
+    ] as const) {
       await expect(fileSha256(bad, "shown.wav")).rejects.toThrow(word);
       await expect(fileSha256(bad, "shown.wav")).rejects.toThrow(/^shown\.wav/);
-      await expect(readSmallText(bad, { what: "a readable file", maxBytes: 10, tooLarge: "INPUT_TOO_LARGE" })).rejects.toThrow(word);
+      await expect(
+        readSmallText(bad, { what: "a readable file", maxBytes: 10, tooLarge: "INPUT_TOO_LARGE" }),
+      ).rejects.toThrow(word);
       await expect(readHead(bad, 10, "a readable file")).rejects.toThrow(word);
       await expect(sha256OfFile(bad, "a readable file")).rejects.toThrow(word);
     }
@@ -96,6 +124,8 @@ describe("every input is a regular file, or FILE_UNREADABLE within a second", ()
     writeFileSync(big, bytes);
     const want = (await import("node:crypto")).createHash("sha256").update(bytes).digest("hex");
     expect(await sha256OfFile(big, "a readable file")).toEqual({ sha256: want, bytes: bytes.length });
-    await expect(readSmallText(big, { what: "a readable table", maxBytes: 1 << 20, tooLarge: "INPUT_TOO_LARGE" })).rejects.toThrow(/expected a table of at most 1048576 bytes, received 3145733 bytes \[INPUT_TOO_LARGE\]/);
+    await expect(
+      readSmallText(big, { what: "a readable table", maxBytes: 1 << 20, tooLarge: "INPUT_TOO_LARGE" }),
+    ).rejects.toThrow(/expected a table of at most 1048576 bytes, received 3145733 bytes \[INPUT_TOO_LARGE\]/);
   });
 });

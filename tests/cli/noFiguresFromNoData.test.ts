@@ -14,32 +14,46 @@ describe("no figures from no data, no message that contradicts itself", () => {
     for (const k of ["1e308", "1e200", "-1e13", "1e-13", "0"]) {
       const r = await cli("psd", "samples/kb210-run-short.wav", "--scale", k);
       expect(r.code, k).toBe(2);
-      expect(r.stderr, k).toMatch(/option --scale: expected a number K with 1e-12 <= \|K\| <= 1e12.*\[OPTION_INVALID\]/);
+      expect(r.stderr, k).toMatch(
+        /option --scale: expected a number K with 1e-12 <= \|K\| <= 1e12.*\[OPTION_INVALID\]/,
+      );
     }
     expect((await cli("psd", "samples/kb210-run-short.wav", "--scale", "1e12", "--json")).code).toBe(0);
   });
 
   it("every segment holding a NaN: RECORD_TOO_SHORT says so, not that a long record is short", async () => {
     const d = tempDir();
-    writeFileSync(join(d, "nan.csv"), `time,az [g]\n${Array.from({ length: 10240 }, (_, i) => `${(i / 1024).toFixed(6)},${i % 500 === 0 ? "nan" : "0.1"}`).join("\n")}\n`);
+    writeFileSync(
+      join(d, "nan.csv"),
+      `time,az [g]\n${Array.from({ length: 10240 }, (_, i) => `${(i / 1024).toFixed(6)},${i % 500 === 0 ? "nan" : "0.1"}`).join("\n")}\n`,
+    );
     const r = await cli("psd", join(d, "nan.csv"));
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/expected at least one segment of 4096 samples free of NaN and infinite values, received 10240 samples, 21 of them NaN or infinite, in every segment \[RECORD_TOO_SHORT\]/);
+    expect(r.stderr).toMatch(
+      /expected at least one segment of 4096 samples free of NaN and infinite values, received 10240 samples, 21 of them NaN or infinite, in every segment \[RECORD_TOO_SHORT\]/,
+    );
   });
 
   it("ride on an all-NaN recording is refused, not 'A(8) 0 m/s², below the action value'", async () => {
     const d = tempDir();
-    writeFileSync(join(d, "nan.csv"), `time,x [m/s2],y [m/s2],z [m/s2]\n${Array.from({ length: 6000 }, (_, i) => `${(i / 400).toFixed(4)},nan,nan,nan`).join("\n")}\n`);
+    writeFileSync(
+      join(d, "nan.csv"),
+      `time,x [m/s2],y [m/s2],z [m/s2]\n${Array.from({ length: 6000 }, (_, i) => `${(i / 400).toFixed(4)},nan,nan,nan`).join("\n")}\n`,
+    );
     const r = await cli("ride", join(d, "nan.csv"), "--axes", "x=x,y=y,z=z", "--exposure", "8h");
     expect(r.code).toBe(2);
     expect(r.stdout).toBe("");
-    expect(r.stderr).toMatch(/\(x\): expected finite samples to weight, received 6000 samples, all of them NaN or infinite \[RECORD_TOO_SHORT\]/);
+    expect(r.stderr).toMatch(
+      /\(x\): expected finite samples to weight, received 6000 samples, all of them NaN or infinite \[RECORD_TOO_SHORT\]/,
+    );
   });
 
   it("respond: an exposure or stress so large that a figure overflows names its option (was Infinity, exit 0)", async () => {
     const dur = await cli("respond", PROFILE, "--fn", "10:1000:10", "--q", "10", "--duration", "1e308");
     expect(dur.code).toBe(2);
-    expect(dur.stderr).toMatch(/option --duration: expected an exposure for which the largest peak is a finite number.*\[OPTION_INVALID\]/);
+    expect(dur.stderr).toMatch(
+      /option --duration: expected an exposure for which the largest peak is a finite number.*\[OPTION_INVALID\]/,
+    );
     const k = await cli("respond", PROFILE, "--fn", "10:1000:10", "--q", "10", "--stress-per-metre", "1e300");
     expect(k.code).toBe(2);
     expect(k.stderr).toMatch(/option --stress-per-metre: .*damage Infinity.*\[OPTION_INVALID\]/);
@@ -50,7 +64,9 @@ describe("no figures from no data, no message that contradicts itself", () => {
     const d = tempDir();
     const short = await cli("synth", "-p", PROFILE, "--rate", "5120", "--duration", "1e-6", "--out", join(d, "s.wav"));
     expect(short.code).toBe(2);
-    expect(short.stderr).toMatch(/option --duration: expected a duration of at least 2 samples at the rate, received 0\.000001 s x 5120 Hz = 0 samples \[OPTION_INVALID\]/);
+    expect(short.stderr).toMatch(
+      /option --duration: expected a duration of at least 2 samples at the rate, received 0\.000001 s x 5120 Hz = 0 samples \[OPTION_INVALID\]/,
+    );
     expect(existsSync(join(d, "s.wav"))).toBe(false);
     const txt = await cli("synth", "-p", PROFILE, "--rate", "5120", "--duration", "2", "--out", join(d, "x.txt"));
     expect(txt.code).toBe(2);
@@ -70,6 +86,8 @@ describe("no figures from no data, no message that contradicts itself", () => {
     writeFileSync(join(d, "cut.wav"), b);
     const r = await cli("psd", join(d, "cut.wav"));
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/chunk 'fmt ': expected the 20 bytes its chunk header gives, received 16 bytes before the file ends \[WAV_BAD_FMT\]/);
+    expect(r.stderr).toMatch(
+      /chunk 'fmt ': expected the 20 bytes its chunk header gives, received 16 bytes before the file ends \[WAV_BAD_FMT\]/,
+    );
   });
 });

@@ -5,7 +5,17 @@ import { cli, tempDir } from "../helpers.js";
 
 describe("psdgate respond", () => {
   it("--json carries the documented keys: fnHz, q, accelRms, milesRms, relDispRms (m), extremePeak, durationS, fatigueDamage, basquinB", async () => {
-    const r = await cli("respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "20:1000:3", "--q", "10", "--basquin", "6", "--json");
+    const r = await cli(
+      "respond",
+      "samples/profiles/quarry-bend-bracket.yaml",
+      "--fn",
+      "20:1000:3",
+      "--q",
+      "10",
+      "--basquin",
+      "6",
+      "--json",
+    );
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);
     const n = j.fnHz.length;
@@ -25,8 +35,26 @@ describe("psdgate respond", () => {
     expect(Math.abs(j.accelRms[i] / j.milesRms[i] - 1.005)).toBeLessThan(0.01);
   });
   it("a recording with --against the lab profile and --stroke-mm prints the comparison, the stroke check and both cautions", async () => {
-    const r = await cli("respond", "samples/quarry-bend-bracket.csv", "--channel", "base", "--fmin", "20", "--fmax", "1000", "--fn", "20:1000:1", "--q", "10",
-      "--duration", "3600", "--against", "samples/profiles/quarry-bend-bracket.yaml", "--stroke-mm", "25");
+    const r = await cli(
+      "respond",
+      "samples/quarry-bend-bracket.csv",
+      "--channel",
+      "base",
+      "--fmin",
+      "20",
+      "--fmax",
+      "1000",
+      "--fn",
+      "20:1000:1",
+      "--q",
+      "10",
+      "--duration",
+      "3600",
+      "--against",
+      "samples/profiles/quarry-bend-bracket.yaml",
+      "--stroke-mm",
+      "25",
+    );
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/against +samples\/profiles\/quarry-bend-bracket\.yaml .*exposure 600 s against 3600 s/);
     expect(r.stdout).toMatch(/B under-tests A in RMS at /);
@@ -35,8 +63,23 @@ describe("psdgate respond", () => {
     expect(r.stdout).toMatch(/CAUTION: Single-degree-of-freedom estimates/);
   });
   it("a recording: fatigueDamage and extremePeak from the record itself, the PSD's beside them, the ratio and the kurtosis in the text; a profile keeps the PSD figures", async () => {
-    const j = JSON.parse((await cli("respond", "samples/brackley-ft2-warehouse.csv", "--channel", "z", "--fn", "10,40,160", "--q", "10", "--json")).stdout);
-    for (const k of ["fatigueDamage", "extremePeak", "fatigueDamageFromPsd", "extremePeakFromPsd"]) expect(j[k]).toHaveLength(3);
+    const j = JSON.parse(
+      (
+        await cli(
+          "respond",
+          "samples/brackley-ft2-warehouse.csv",
+          "--channel",
+          "z",
+          "--fn",
+          "10,40,160",
+          "--q",
+          "10",
+          "--json",
+        )
+      ).stdout,
+    );
+    for (const k of ["fatigueDamage", "extremePeak", "fatigueDamageFromPsd", "extremePeakFromPsd"])
+      expect(j[k]).toHaveLength(3);
     expect(j.timeDomain.kurtosis).toBeGreaterThan(10);
     expect(j.timeDomain.recordS).toBeCloseTo(30, 6);
     // The forklift's shocks: the record's damage and largest response above the Gaussian PSD's at every fn.
@@ -46,10 +89,23 @@ describe("psdgate respond", () => {
       // Exposure = the record: the largest peak is the record's own.
       expect(j.extremePeak[i]).toBeCloseTo(j.timeDomain.recordPeak[i], 12);
     }
-    const t = await cli("respond", "samples/brackley-ft2-warehouse.csv", "--channel", "z", "--fn", "10,40,160", "--q", "10", "--duration", "3600");
+    const t = await cli(
+      "respond",
+      "samples/brackley-ft2-warehouse.csv",
+      "--channel",
+      "z",
+      "--fn",
+      "10,40,160",
+      "--q",
+      "10",
+      "--duration",
+      "3600",
+    );
     expect(t.stdout).toMatch(/peak rec\/PSD +damage rec\/PSD/);
     expect(t.stdout).toMatch(/kurtosis \d+\.\d\d; 3 for a Gaussian record/);
-    const p = JSON.parse((await cli("respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "100", "--q", "10", "--json")).stdout);
+    const p = JSON.parse(
+      (await cli("respond", "samples/profiles/quarry-bend-bracket.yaml", "--fn", "100", "--q", "10", "--json")).stdout,
+    );
     expect(p.fatigueDamageFromPsd).toBeUndefined();
   });
   it("bad input: one line, a code, exit 2, nothing on stdout", async () => {
@@ -69,7 +125,10 @@ describe("psdgate respond", () => {
   });
   it("a profile without durationS and no --duration: exit 0 with the response RMS and Miles; the largest peak and damage are null and the text says they need --duration", async () => {
     const file = join(tempDir(), "no-duration.yaml");
-    writeFileSync(file, "title: flat\nunits: g2/Hz\npoints: [{hz: 20, level: 0.04}, {hz: 2000, level: 0.04}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\n");
+    writeFileSync(
+      file,
+      "title: flat\nunits: g2/Hz\npoints: [{hz: 20, level: 0.04}, {hz: 2000, level: 0.04}]\ntolerance: {bands: [{fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3}]}\n",
+    );
     const r = await cli("respond", file, "--fn", "100", "--q", "10", "--json");
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);

@@ -12,7 +12,8 @@ describe("psdgate ride", () => {
     expect(r.code).toBe(0);
     const j = JSON.parse(r.stdout);
     expect(j.axes.map((a: { axis: string }) => a.axis)).toEqual(["x", "y", "z"]);
-    for (const a of j.axes) for (const k of ["axis", "channel", "weighting", "aw", "crestFactor", "vdv", "mtvv"]) expect(a).toHaveProperty(k);
+    for (const a of j.axes)
+      for (const k of ["axis", "channel", "weighting", "aw", "crestFactor", "vdv", "mtvv"]) expect(a).toHaveProperty(k);
     expect(j.axes.map((a: { weighting: string }) => a.weighting)).toEqual(["Wd", "Wd", "Wk"]);
     expect(j.axes[2].channel).toBe("ch3");
     expect(j.exposure.durationS).toBe(28800);
@@ -25,7 +26,9 @@ describe("psdgate ride", () => {
     expect(j.input.sha256).toMatch(/^[0-9a-f]{64}$/);
   });
   it("--from/--to cut the window and record it; the exposure's VDV scales from the window's length", async () => {
-    const j = JSON.parse((await cli(...base, "--exposure", "2h30min", "--from", "100", "--to", "200", "--json")).stdout);
+    const j = JSON.parse(
+      (await cli(...base, "--exposure", "2h30min", "--from", "100", "--to", "200", "--json")).stdout,
+    );
     expect(j.window).toEqual({ fromS: 100, toS: 200, durationS: 100, frames: 100000 });
     expect(j.axes[0].durationS).toBe(100);
     expect(j.exposure.durationS).toBe(9000);
@@ -37,7 +40,9 @@ describe("psdgate ride", () => {
     expect(r.stdout).toContain("Directive 2002/44/EC");
     expect(r.stdout).toContain("ISO 2631-1 Annex B");
     expect(r.stdout).toContain("standing: ISO 2631-1 Annex B health guidance is written for seated persons");
-    expect(r.stdout).toMatch(/caution +An engineering estimate from one recording, not an occupational-health assessment/);
+    expect(r.stdout).toMatch(
+      /caution +An engineering estimate from one recording, not an occupational-health assessment/,
+    );
   });
   it("--peak-hold: each axis's largest stretch PSD at each line beside the average, at least 0.9 x the average at every line; the rough track's stretches hold the vertical peak", async () => {
     const j = JSON.parse((await cli(...base, "--exposure", "8h", "--peak-hold", "10", "--json")).stdout);
@@ -80,13 +85,17 @@ describe("psdgate ride", () => {
     expect(j.findings.notes.map((f: { code: string }) => f.code)).toContain("EXPOSURE_NOT_GIVEN");
     const t = await cli(...base);
     expect(t.stdout).toContain("exposure   not stated (--exposure)");
-    expect(t.stdout).toMatch(/note +at 1000 Hz the time-domain weightings are within [\d.e-]+ % of ISO 2631-1's \|W\(f\)\|/);
+    expect(t.stdout).toMatch(
+      /note +at 1000 Hz the time-domain weightings are within [\d.e-]+ % of ISO 2631-1's \|W\(f\)\|/,
+    );
   });
   it("a phone CSV at exactly 200 Hz (stamps in s, 3 decimals, gravity on z) runs: exit 0, and the result states the weighting's error at 200 Hz", async () => {
     const rows = ["time,ax,ay,az"];
     for (let i = 0; i < 200 * 30; i++) {
       const t = i / 200;
-      rows.push(`${t.toFixed(3)},${(0.2 * Math.sin(2 * Math.PI * 1.3 * t)).toFixed(5)},${(-1 + 0.1 * Math.sin(2 * Math.PI * 2.1 * t)).toFixed(5)},${(9.81 + 0.5 * Math.sin(2 * Math.PI * 5.2 * t)).toFixed(5)}`);
+      rows.push(
+        `${t.toFixed(3)},${(0.2 * Math.sin(2 * Math.PI * 1.3 * t)).toFixed(5)},${(-1 + 0.1 * Math.sin(2 * Math.PI * 2.1 * t)).toFixed(5)},${(9.81 + 0.5 * Math.sin(2 * Math.PI * 5.2 * t)).toFixed(5)}`,
+      );
     }
     const file = join(tempDir(), "phone-200hz.csv");
     writeFileSync(file, rows.join("\n") + "\n");
@@ -103,11 +112,28 @@ describe("psdgate ride", () => {
   it("--csv writes the per-axis figures, unweighted and weighted PSD and the running r.m.s., one value a row; refuses to clobber without --force", async () => {
     const d = tempDir();
     const out = join(d, "ride.csv");
-    const r = await cli(...base, "--floor", "4", "--exposure", "8h", "--from", "100", "--to", "160", "--json", "--csv", out, "-q");
+    const r = await cli(
+      ...base,
+      "--floor",
+      "4",
+      "--exposure",
+      "8h",
+      "--from",
+      "100",
+      "--to",
+      "160",
+      "--json",
+      "--csv",
+      out,
+      "-q",
+    );
     expect(r.code, r.stderr).toBe(0);
     const j = JSON.parse(r.stdout);
     const text = readFileSync(out, "utf8");
-    const rows = text.trim().split("\n").map((l) => l.split(","));
+    const rows = text
+      .trim()
+      .split("\n")
+      .map((l) => l.split(","));
     expect(rows[0]!.join(",")).toBe("axis,channel,quantity,frequency_hz,time_s,value,unit");
     const pick = (axis: string, q: string) => rows.filter((x) => x[0] === axis && x[2] === q);
     for (const a of j.axes) {
@@ -124,10 +150,13 @@ describe("psdgate ride", () => {
       expect(Number(run[59]![4])).toBe(160);
       expect(Math.max(...run.map((x) => Number(x[5])))).toBeLessThanOrEqual(a.mtvv * (1 + 1e-12));
       // weighted_psd / psd at the line nearest 1 Hz (0.977 Hz) is |W|² there: Wk 0.482, Wd 1.011 at 1 Hz (ISO 2631-1:1997 Table 3, from memory), both flat within 1 % over 0.8-1.25 Hz; 2 %.
-      const near1 = (q: string) => pick(a.axis, q).reduce((b, x) => (Math.abs(Number(x[3]) - 1) < Math.abs(Number(b[3]) - 1) ? x : b));
+      const near1 = (q: string) =>
+        pick(a.axis, q).reduce((b, x) => (Math.abs(Number(x[3]) - 1) < Math.abs(Number(b[3]) - 1) ? x : b));
       expect(Number(near1("psd")[3])).toBeCloseTo(0.9765625, 12);
       const w = a.weighting === "Wk" ? 0.482 : 1.011;
-      expect(Math.abs(Math.sqrt(Number(near1("weighted_psd")[5]) / Number(near1("psd")[5])) / w - 1)).toBeLessThan(0.02);
+      expect(Math.abs(Math.sqrt(Number(near1("weighted_psd")[5]) / Number(near1("psd")[5])) / w - 1)).toBeLessThan(
+        0.02,
+      );
       expect(pick(a.axis, "psd").length).toBe(pick(a.axis, "weighted_psd").length);
       // The weighted PSD integrates (sum × line spacing) to the JSON's a_w from the PSD.
       const wp = pick(a.axis, "weighted_psd");
@@ -146,7 +175,11 @@ describe("psdgate ride", () => {
     const ph = await cli(...base, "--from", "0", "--to", "30", "--peak-hold", "10", "--csv", out, "--force", "--json");
     expect(ph.code, ph.stderr).toBe(0);
     const jp = JSON.parse(ph.stdout);
-    const prow = readFileSync(out, "utf8").trim().split("\n").map((l) => l.split(",")).filter((x) => x[0] === "z" && x[2] === "peak_hold_psd");
+    const prow = readFileSync(out, "utf8")
+      .trim()
+      .split("\n")
+      .map((l) => l.split(","))
+      .filter((x) => x[0] === "z" && x[2] === "peak_hold_psd");
     const zph = jp.axes[2].peakHold;
     expect(prow.map((x) => Number(x[5]))).toEqual(zph.psd);
     expect(prow.map((x) => Number(x[4]))).toEqual(zph.atS);
@@ -157,7 +190,8 @@ describe("psdgate ride", () => {
   });
   it("--help lists the ride options", async () => {
     const r = await cli("ride", "--help");
-    for (const o of ["--axes", "--posture", "--exposure", "--floor", "--running-rms", "--from", "--to", "--json"]) expect(r.stdout).toContain(o);
+    for (const o of ["--axes", "--posture", "--exposure", "--floor", "--running-rms", "--from", "--to", "--json"])
+      expect(r.stdout).toContain(o);
   });
 });
 

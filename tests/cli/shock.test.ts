@@ -6,7 +6,11 @@ import { cli, tempDir } from "../helpers.js";
 const SAMPLE = "samples/brackley-ft2-warehouse.csv";
 // The events scripts/make-shock-sample.mjs puts into z (start s, duration s, peak g): the known answer.
 const KNOWN = [
-  { t: 19.5, T: 0.006, peak: -3.1 }, { t: 11.8, T: 0.016, peak: 2.4 }, { t: 4.2, T: 0.01, peak: 1.6 }, { t: 24.05, T: 0.01, peak: 1.5 }, { t: 5.35, T: 0.01, peak: 1.3 },
+  { t: 19.5, T: 0.006, peak: -3.1 },
+  { t: 11.8, T: 0.016, peak: 2.4 },
+  { t: 4.2, T: 0.01, peak: 1.6 },
+  { t: 24.05, T: 0.01, peak: 1.5 },
+  { t: 5.35, T: 0.01, peak: 1.3 },
 ];
 
 describe("psdgate shock", () => {
@@ -47,7 +51,9 @@ describe("psdgate shock", () => {
   });
 
   it("--threshold in units and --hold: a threshold between the events' peaks keeps only the larger ones", async () => {
-    const j = JSON.parse((await cli("shock", SAMPLE, "--fn", "10,50,100", "--threshold", "2", "--channel", "z", "--json")).stdout);
+    const j = JSON.parse(
+      (await cli("shock", SAMPLE, "--fn", "10,50,100", "--threshold", "2", "--channel", "z", "--json")).stdout,
+    );
     expect(j.channels[0].events.map((e: { peak: number }) => Math.sign(e.peak))).toEqual([-1, 1]);
     expect(j.channels[0].threshold).toBe(2);
   });
@@ -57,7 +63,9 @@ describe("psdgate shock", () => {
     const out = join(dir, "srs.csv");
     expect((await cli("shock", SAMPLE, "--fn", "10,50,100", "--channel", "z", "--csv", out)).code).toBe(0);
     const rows = readFileSync(out, "utf8").trim().split("\n");
-    expect(rows[0]).toBe("channel,source,event,time_s,peak,duration_s,fn_hz,maximax,positive,negative,pvss_m_per_s,units");
+    expect(rows[0]).toBe(
+      "channel,source,event,time_s,peak,duration_s,fn_hz,maximax,positive,negative,pvss_m_per_s,units",
+    );
     expect(rows).toHaveLength(1 + 3 * (1 + 5));
     const again = await cli("shock", SAMPLE, "--fn", "10,50,100", "--channel", "z", "--csv", out);
     expect(again.code).not.toBe(0);
@@ -89,7 +97,9 @@ describe("psdgate shock", () => {
     for (let i = 0; i < 4000; i++) {
       const t = i / 200;
       const bump = t >= 12 && t < 12.03 ? 2 * Math.sin((Math.PI * (t - 12)) / 0.03) : 0;
-      lines.push(`${t.toFixed(3)},${(0.02 * Math.sin(2 * Math.PI * 3.1 * t) + 0.015 * Math.sin(2 * Math.PI * 7.3 * t + 1) + bump).toFixed(4)}`);
+      lines.push(
+        `${t.toFixed(3)},${(0.02 * Math.sin(2 * Math.PI * 3.1 * t) + 0.015 * Math.sin(2 * Math.PI * 7.3 * t + 1) + bump).toFixed(4)}`,
+      );
     }
     writeFileSync(f, lines.join("\n") + "\n");
     const j = JSON.parse((await cli("shock", f, "--fn", "2:20", "--from", "5", "--to", "18", "--json")).stdout);
@@ -103,7 +113,18 @@ describe("psdgate shock", () => {
     const rec = join(dir, "brackley-ft2-warehouse.csv");
     copyFileSync(SAMPLE, rec);
     const out = join(dir, "shock.html");
-    const r = await cli("shock", rec, "--fn", "5:160:2", "--channel", "z", "--report", out, "--meta", "samples/kb210-run-meta.yaml");
+    const r = await cli(
+      "shock",
+      rec,
+      "--fn",
+      "5:160:2",
+      "--channel",
+      "z",
+      "--report",
+      out,
+      "--meta",
+      "samples/kb210-run-meta.yaml",
+    );
     expect(r.code).toBe(0);
     const html = readFileSync(out, "utf8");
     expect(html).toContain('id="identity"');
@@ -112,8 +133,11 @@ describe("psdgate shock", () => {
     expect(html).toContain('id="timeline-1"');
     // The timeline draws the threshold either side of zero: the two rules are the embedded result's threshold.
     const { extractResult } = await import("../../src/report/embeddedResult.js");
-    const threshold = ((extractResult(html).doc?.result as { channels: { threshold: number }[] }).channels[0]!).threshold;
-    const timeline = html.slice(html.indexOf('id="timeline-1"'), html.indexOf("</svg>", html.indexOf('id="timeline-1"')));
+    const threshold = (extractResult(html).doc!.result as { channels: { threshold: number }[] }).channels[0]!.threshold;
+    const timeline = html.slice(
+      html.indexOf('id="timeline-1"'),
+      html.indexOf("</svg>", html.indexOf('id="timeline-1"')),
+    );
     const rules = [...timeline.matchAll(/data-rule="([^"]+)"/g)].map((m) => Number(m[1]));
     expect(rules).toHaveLength(2);
     expect(threshold).toBeGreaterThan(0);
@@ -135,7 +159,8 @@ describe("psdgate shock", () => {
     const dir = tempDir();
     const f = join(dir, "names.csv");
     const rows = ['time,"=cmd\u001b[2J"'];
-    for (let i = 0; i < 4000; i++) rows.push(`${(i / 1000).toFixed(3)},${(0.01 * Math.sin(0.7 * i) + (i === 2000 ? 1 : 0)).toFixed(4)}`);
+    for (let i = 0; i < 4000; i++)
+      rows.push(`${(i / 1000).toFixed(3)},${(0.01 * Math.sin(0.7 * i) + (i === 2000 ? 1 : 0)).toFixed(4)}`);
     writeFileSync(f, rows.join("\n") + "\n");
     const out = join(dir, "o.csv");
     const r = await cli("shock", f, "--fn", "5:50", "--csv", out);

@@ -32,11 +32,19 @@ function interrupt(args: string[], cwd: string, signal: NodeJS.Signals, when: ()
 }
 
 describe("signals during a write (built CLI)", () => {
-  for (const [signal, code] of [["SIGTERM", 143], ["SIGINT", 130]] as const) {
+  for (const [signal, code] of [
+    ["SIGTERM", 143],
+    ["SIGINT", 130],
+  ] as const) {
     it(`synth interrupted by ${signal} while its output is a temporary file: exit ${code}, no .tmp, no output`, async () => {
       const dir = tempDir();
       const tmp = () => readdirSync(dir).some((f) => f.endsWith(".tmp"));
-      const exit = await interrupt(["synth", "--profile", kb, "--duration", "3000", "--rate", "5120", "--channels", "4", "--out", "long.wav"], dir, signal, tmp);
+      const exit = await interrupt(
+        ["synth", "--profile", kb, "--duration", "3000", "--rate", "5120", "--channels", "4", "--out", "long.wav"],
+        dir,
+        signal,
+        tmp,
+      );
       expect(exit).toBe(code);
       expect(readdirSync(dir)).toEqual([]);
     }, 30_000);

@@ -8,9 +8,16 @@ import { cli, tempDir } from "../helpers.js";
  * Re-sign a report as a forger who knows how psdgate makes its digests would: edit the page and the
  * embedded result, then recompute the page digest and the result digest (embedResult does both).
  */
-function forge(html: string, editPage: (page: string) => string, editResult: (doc: Record<string, unknown>) => void): string {
-  const m = /<template id="psdgate-result" data-sha256="[0-9a-f]{64}">([^]*?)<\/template>/.exec(html)!;
-  const doc = JSON.parse(m[1]!.replace(/&lt;/g, "<").replace(/&gt;/g, ">").replace(/&amp;/g, "&")) as Record<string, unknown>;
+function forge(
+  html: string,
+  editPage: (page: string) => string,
+  editResult: (doc: Record<string, unknown>) => void,
+): string {
+  const m = /<template id="psdgate-result" data-sha256="[0-9a-f]{64}">([\s\S]*?)<\/template>/.exec(html)!;
+  const doc = JSON.parse(m[1]!.replace(/&lt;/g, "<").replace(/&gt;/g, ">").replace(/&amp;/g, "&")) as Record<
+    string,
+    unknown
+  >;
   delete doc.format;
   delete doc.page;
   editResult(doc);
@@ -25,7 +32,16 @@ beforeAll(async () => {
   copyFileSync("samples/kb210-run-resonance.wav", join(base, "run.wav"));
   copyFileSync("samples/profiles/kb210-controller.json", join(base, "profile.json"));
   writeFileSync(join(base, "meta.json"), JSON.stringify({ testId: "KB-210-Q-0417", operator: "R. Okonkwo" }));
-  const r = await cli("check", join(base, "run.wav"), "-p", join(base, "profile.json"), "--meta", join(base, "meta.json"), "--report", join(base, "report.html"));
+  const r = await cli(
+    "check",
+    join(base, "run.wav"),
+    "-p",
+    join(base, "profile.json"),
+    "--meta",
+    join(base, "meta.json"),
+    "--report",
+    join(base, "report.html"),
+  );
   expect(r.code).toBe(1);
 });
 
@@ -50,7 +66,14 @@ describe("psdgate verify", () => {
   it("verify with --recording and --profile finds inputs that are not beside the report", async () => {
     const d = tempDir();
     copyFileSync(join(base, "report.html"), join(d, "report.html"));
-    const r = await cli("verify", join(d, "report.html"), "--recording", join(base, "run.wav"), "--profile", join(base, "profile.json"));
+    const r = await cli(
+      "verify",
+      join(d, "report.html"),
+      "--recording",
+      join(base, "run.wav"),
+      "--profile",
+      join(base, "profile.json"),
+    );
     expect(r.code, r.stdout).toBe(0);
   });
 
@@ -75,7 +98,10 @@ describe("psdgate verify", () => {
     const page = await cli("verify", f);
     expect(page.code).toBe(1);
     expect(page.stdout).toMatch(/the page shows verdict "pass" \(class "fail", word "FAIL"\), the result says "fail"/);
-    writeFileSync(f, html.replace(/(<template id="psdgate-result"[^>]*>\{[^]*?)"verdict":"fail"/, '$1"verdict":"pass"'));
+    writeFileSync(
+      f,
+      html.replace(/(<template id="psdgate-result"[^>]*>\{[\s\S]*?)"verdict":"fail"/, '$1"verdict":"pass"'),
+    );
     const block = await cli("verify", f);
     expect(block.code).toBe(1);
     expect(block.stdout).toMatch(/embedded result edited/);
@@ -87,7 +113,13 @@ describe("psdgate verify", () => {
     const d = copy();
     const f = join(d, "report.html");
     const html = readFileSync(f, "utf8");
-    const toPass = (p: string) => p.replace('<div class="verdict fail" id="verdict" data-verdict="fail"><span class="word">FAIL</span>', '<div data-verdict="pass" class="verdict pass" id="verdict"><span class="word">PASS</span>').replace(/FAIL · recording/g, "PASS · recording");
+    const toPass = (p: string) =>
+      p
+        .replace(
+          '<div class="verdict fail" id="verdict" data-verdict="fail"><span class="word">FAIL</span>',
+          '<div data-verdict="pass" class="verdict pass" id="verdict"><span class="word">PASS</span>',
+        )
+        .replace(/FAIL · recording/g, "PASS · recording");
     const strip = (doc: Record<string, unknown>) => {
       const r = doc.result as Record<string, unknown>;
       for (const k of ["verdict", "rule", "control", "channels"]) delete r[k];
@@ -96,21 +128,51 @@ describe("psdgate verify", () => {
     const v = await cli("verify", f);
     expect(v.code).toBe(1);
     expect(v.stdout).toMatch(/DIFFERS|differs/);
-    expect(v.stdout).toMatch(/the page shows verdict "pass" \(class "pass", word "PASS"\), the result says "undefined"|no "verdict"/);
+    expect(v.stdout).toMatch(
+      /the page shows verdict "pass" \(class "pass", word "PASS"\), the result says "undefined"|no "verdict"/,
+    );
     expect(v.stdout).toMatch(/the embedded result has no "verdict"/);
     // The page alone turned PASS, every attribute order and quoting: the parsed banner still says so.
-    for (const banner of ["<div data-verdict='pass' class='verdict pass' id='verdict'>", "<div ID=verdict DATA-VERDICT=pass class=\"pass verdict\">"]) {
-      writeFileSync(f, forge(html, (p) => p.replace('<div class="verdict fail" id="verdict" data-verdict="fail">', banner), () => undefined));
+    for (const banner of [
+      "<div data-verdict='pass' class='verdict pass' id='verdict'>",
+      '<div ID=verdict DATA-VERDICT=pass class="pass verdict">',
+    ]) {
+      writeFileSync(
+        f,
+        forge(
+          html,
+          (p) => p.replace('<div class="verdict fail" id="verdict" data-verdict="fail">', banner),
+          () => undefined,
+        ),
+      );
       const w = await cli("verify", f);
       expect(w.code, banner).toBe(1);
       expect(w.stdout, banner).toMatch(/the page shows verdict "pass"/);
     }
     // Only the deleted fields, page untouched: each is a difference of the re-run, not "added later".
-    writeFileSync(f, forge(html, (p) => p, (doc) => { delete (doc.result as Record<string, unknown>).control; }));
+    writeFileSync(
+      f,
+      forge(
+        html,
+        (p) => p,
+        (doc) => {
+          delete (doc.result as Record<string, unknown>).control;
+        },
+      ),
+    );
     const c = await cli("verify", f);
     expect(c.code).toBe(1);
     expect(c.stdout).toMatch(/no "control"/);
-    writeFileSync(f, forge(html, (p) => p, (doc) => { delete ((doc.result as { channels: Record<string, unknown>[] }).channels[0]!).lines; }));
+    writeFileSync(
+      f,
+      forge(
+        html,
+        (p) => p,
+        (doc) => {
+          delete (doc.result as { channels: Record<string, unknown>[] }).channels[0]!.lines;
+        },
+      ),
+    );
     const l = await cli("verify", f);
     expect(l.code).toBe(1);
     expect(l.stdout).toMatch(/channels\[0\]\.lines: not in the report/);
@@ -121,18 +183,72 @@ describe("psdgate verify", () => {
     const f = join(d, "report.html");
     const html = readFileSync(f, "utf8");
     const cases: [string, (p: string) => string, RegExp][] = [
-      ["style element", (p) => p.replace("</head>", "<style>.verdict.fail .word { font-size: 0 } .verdict.fail .word::after { content: 'PASS'; font-size: 22pt }</style></head>"), /style element psdgate did not write/],
-      ["style inside the frame's", (p) => p.replace("* { box-sizing: border-box; }", "* { box-sizing: border-box; } .verdict.fail { display: none }"), /style element psdgate did not write/],
-      ["second banner", (p) => p.replace("<h2>Test identity</h2>", '<div class="verdict pass" id="verdict" data-verdict="pass"><span class="word">PASS</span></div><h2>Test identity</h2>'), /2 verdict banners/],
-      ["script", (p) => p.replace("</body>", "<script>document.querySelector('.word').textContent='PASS'</script></body>"), /<script> element/],
-      ["style attribute", (p) => p.replace('<span class="word">FAIL</span>', '<span class="word" style="display:none">FAIL</span>'), /style attribute/],
-      ["banner hidden by an attribute", (p) => p.replace('id="verdict" data-verdict="fail"', 'id="verdict" data-verdict="fail" hidden'), /hidden attribute/],
-      ["banner inside a closed details", (p) => p.replace('<div class="verdict fail"', '<details><summary></summary><div class="verdict fail"').replace("<h2>Test identity</h2>", "</details><h2>Test identity</h2>"), /<details> element/],
-      ["banner inside an inert template", (p) => p.replace('<div class="verdict fail"', '<template><div class="verdict fail"').replace("<h2>Test identity</h2>", "</template><h2>Test identity</h2>"), /2 <template> elements/],
-      ["uppercase closing tag", (p) => p.replace("</head>", "<STYLE>.verdict{display:none}</STYLE ></head>"), /style element psdgate did not write/],
+      [
+        "style element",
+        (p) =>
+          p.replace(
+            "</head>",
+            "<style>.verdict.fail .word { font-size: 0 } .verdict.fail .word::after { content: 'PASS'; font-size: 22pt }</style></head>",
+          ),
+        /style element psdgate did not write/,
+      ],
+      [
+        "style inside the frame's",
+        (p) =>
+          p.replace("* { box-sizing: border-box; }", "* { box-sizing: border-box; } .verdict.fail { display: none }"),
+        /style element psdgate did not write/,
+      ],
+      [
+        "second banner",
+        (p) =>
+          p.replace(
+            "<h2>Test identity</h2>",
+            '<div class="verdict pass" id="verdict" data-verdict="pass"><span class="word">PASS</span></div><h2>Test identity</h2>',
+          ),
+        /2 verdict banners/,
+      ],
+      [
+        "script",
+        (p) => p.replace("</body>", "<script>document.querySelector('.word').textContent='PASS'</script></body>"),
+        /<script> element/,
+      ],
+      [
+        "style attribute",
+        (p) => p.replace('<span class="word">FAIL</span>', '<span class="word" style="display:none">FAIL</span>'),
+        /style attribute/,
+      ],
+      [
+        "banner hidden by an attribute",
+        (p) => p.replace('id="verdict" data-verdict="fail"', 'id="verdict" data-verdict="fail" hidden'),
+        /hidden attribute/,
+      ],
+      [
+        "banner inside a closed details",
+        (p) =>
+          p
+            .replace('<div class="verdict fail"', '<details><summary></summary><div class="verdict fail"')
+            .replace("<h2>Test identity</h2>", "</details><h2>Test identity</h2>"),
+        /<details> element/,
+      ],
+      [
+        "banner inside an inert template",
+        (p) =>
+          p
+            .replace('<div class="verdict fail"', '<template><div class="verdict fail"')
+            .replace("<h2>Test identity</h2>", "</template><h2>Test identity</h2>"),
+        /2 <template> elements/,
+      ],
+      [
+        "uppercase closing tag",
+        (p) => p.replace("</head>", "<STYLE>.verdict{display:none}</STYLE ></head>"),
+        /style element psdgate did not write/,
+      ],
     ];
     for (const [what, edit, want] of cases) {
-      writeFileSync(f, forge(html, edit, () => undefined));
+      writeFileSync(
+        f,
+        forge(html, edit, () => undefined),
+      );
       const v = await cli("verify", f);
       expect(v.code, what).toBe(1);
       expect(v.stdout, what).toMatch(want);
@@ -164,7 +280,14 @@ describe("psdgate verify", () => {
     // Its own report: the recorded path must not exist either (the base copy would be found there).
     const d = tempDir();
     copyFileSync("samples/kb210-run-resonance.wav", join(d, "run.wav"));
-    await cli("check", join(d, "run.wav"), "-p", "samples/profiles/kb210-controller.json", "--report", join(d, "report.html"));
+    await cli(
+      "check",
+      join(d, "run.wav"),
+      "-p",
+      "samples/profiles/kb210-controller.json",
+      "--report",
+      join(d, "report.html"),
+    );
     rmSync(join(d, "run.wav"));
     const r = await cli("verify", join(d, "report.html"));
     expect(r.code).toBe(2);
@@ -186,7 +309,22 @@ describe("psdgate verify", () => {
   it("a psd --report is verified the same way (intact: exit 0; edited recording: exit 1)", async () => {
     const d = tempDir();
     copyFileSync("samples/kb210-run.wav", join(d, "run.wav"));
-    expect((await cli("psd", join(d, "run.wav"), "--units", "g", "--fmin", "20", "--fmax", "2000", "--report", join(d, "psd.html"))).code).toBe(0);
+    expect(
+      (
+        await cli(
+          "psd",
+          join(d, "run.wav"),
+          "--units",
+          "g",
+          "--fmin",
+          "20",
+          "--fmax",
+          "2000",
+          "--report",
+          join(d, "psd.html"),
+        )
+      ).code,
+    ).toBe(0);
     const ok = await cli("verify", join(d, "psd.html"));
     expect(ok.code, ok.stdout).toBe(0);
     expect(ok.stdout).toMatch(/\(psd report\)/);
@@ -201,12 +339,55 @@ describe("psdgate verify", () => {
     copyFileSync("samples/kb210-run.wav", join(d, "run.wav"));
     copyFileSync("samples/kb210-run-short.wav", join(d, "short.wav"));
     copyFileSync("samples/brackley-ft2-warehouse.csv", join(d, "field.csv"));
-    expect((await cli("respond", join(d, "run.wav"), "--fn", "20:400", "--q", "10", "--channel", "2", "--against", join(d, "short.wav"), "--against-channel", "1", "--report", join(d, "r.html"))).code).toBe(0);
-    const derived = await cli("derive", join(d, "field.csv"), "--life", "2h", "--test-duration", "1h", "--fmin", "8", "--fmax", "300", "--channel", "1", "--out", join(d, "p.yaml"), "--report", join(d, "d.html"));
+    expect(
+      (
+        await cli(
+          "respond",
+          join(d, "run.wav"),
+          "--fn",
+          "20:400",
+          "--q",
+          "10",
+          "--channel",
+          "2",
+          "--against",
+          join(d, "short.wav"),
+          "--against-channel",
+          "1",
+          "--report",
+          join(d, "r.html"),
+        )
+      ).code,
+    ).toBe(0);
+    const derived = await cli(
+      "derive",
+      join(d, "field.csv"),
+      "--life",
+      "2h",
+      "--test-duration",
+      "1h",
+      "--fmin",
+      "8",
+      "--fmax",
+      "300",
+      "--channel",
+      "1",
+      "--out",
+      join(d, "p.yaml"),
+      "--report",
+      join(d, "d.html"),
+    );
     expect(derived.code, derived.stderr).toBe(0);
     const old = (file: string, edit: (rerun: Record<string, unknown>) => void) => {
       const f = join(d, file);
-      writeFileSync(f, forge(readFileSync(f, "utf8"), (p) => p, (doc) => edit(doc.rerun as Record<string, unknown>)));
+      writeFileSync(
+        f,
+        forge(
+          readFileSync(f, "utf8"),
+          (p) => p,
+          (doc) => edit(doc.rerun as Record<string, unknown>),
+        ),
+      );
     };
     old("r.html", (rerun) => {
       const source = rerun.source as Record<string, unknown>;
@@ -234,15 +415,39 @@ describe("psdgate verify", () => {
   it("ride and transfer records carry the resolved analysis, and verify compares it: a changed line spacing in it is named", async () => {
     const d = tempDir();
     copyFileSync("samples/quarry-bend-bracket.csv", join(d, "bracket.csv"));
-    expect((await cli("transfer", join(d, "bracket.csv"), "--in", "base", "--output-channel", "tip", "--from", "2", "--to", "9.5", "--report", join(d, "t.html"))).code).toBe(0);
+    expect(
+      (
+        await cli(
+          "transfer",
+          join(d, "bracket.csv"),
+          "--in",
+          "base",
+          "--output-channel",
+          "tip",
+          "--from",
+          "2",
+          "--to",
+          "9.5",
+          "--report",
+          join(d, "t.html"),
+        )
+      ).code,
+    ).toBe(0);
     const ok = await cli("verify", join(d, "t.html"));
     expect(ok.code, ok.stdout).toBe(0);
     const f = join(d, "t.html");
-    writeFileSync(f, forge(readFileSync(f, "utf8"), (p) => p, (doc) => {
-      const a = (doc.result as { analysis: { welch: { resolutionHz: number }; channels: unknown[] } }).analysis;
-      expect(a.channels.length).toBe(2);
-      a.welch.resolutionHz *= 2;
-    }));
+    writeFileSync(
+      f,
+      forge(
+        readFileSync(f, "utf8"),
+        (p) => p,
+        (doc) => {
+          const a = (doc.result as { analysis: { welch: { resolutionHz: number }; channels: unknown[] } }).analysis;
+          expect(a.channels.length).toBe(2);
+          a.welch.resolutionHz *= 2;
+        },
+      ),
+    );
     const bad = await cli("verify", f, "--json");
     expect(bad.code).toBe(1);
     expect(JSON.parse(bad.stdout).differences.join("\n")).toMatch(/analysis\.welch\.resolutionHz/);

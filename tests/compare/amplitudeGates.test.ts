@@ -21,7 +21,11 @@ describe("amplitudeGates", () => {
   it("autocorrelationFourthSum: white noise gives 1 (independent samples), a narrow band much more", () => {
     const w = welchPsd(gaussian(1 << 16, 1), 1024, { segmentLength: 256 });
     expect(autocorrelationFourthSum(w)).toBeLessThan(1.05);
-    const nb = welchPsd(shapedRecord((f) => (f > 95 && f < 105 ? 1 : 0), 1024, 1 << 16, 2), 1024, { segmentLength: 1024 });
+    const nb = welchPsd(
+      shapedRecord((f) => (f > 95 && f < 105 ? 1 : 0), 1024, 1 << 16, 2),
+      1024,
+      { segmentLength: 1024 },
+    );
     expect(autocorrelationFourthSum(nb)).toBeGreaterThan(10);
   });
   it("a record saturated at 2.2 sigma with 2 LSB of noise on top is in doubt (crest factor and kurtosis far below Gaussian)", async () => {
@@ -31,7 +35,8 @@ describe("amplitudeGates", () => {
     const sigma = Math.sqrt(s / x.length);
     const lsb = (4.4 * sigma) / 65536;
     const noise = gaussian(x.length, 4);
-    for (let i = 0; i < x.length; i++) x[i] = Math.max(-2.2 * sigma, Math.min(2.2 * sigma, x[i]!)) + 2 * lsb * noise[i]!;
+    for (let i = 0; i < x.length; i++)
+      x[i] = Math.max(-2.2 * sigma, Math.min(2.2 * sigma, x[i]!)) + 2 * lsb * noise[i]!;
     const a = await analyzeRecording(wavFile(x, "saturated.wav"), { segmentLength: 2048 });
     const codes = a.channels[0]!.doubts.map((d) => d.code);
     expect(codes).toContain("CREST_LOW");
@@ -39,7 +44,9 @@ describe("amplitudeGates", () => {
   });
   it("a Gaussian record of the same spectrum raises neither doubt (20 records)", async () => {
     for (let r = 0; r < 20; r++) {
-      const a = await analyzeRecording(wavFile(shapedRecord(broadband, FS, 1 << 16, 100 + r), `g${r}.wav`), { segmentLength: 2048 });
+      const a = await analyzeRecording(wavFile(shapedRecord(broadband, FS, 1 << 16, 100 + r), `g${r}.wav`), {
+        segmentLength: 2048,
+      });
       expect(a.channels[0]!.doubts).toEqual([]);
     }
   });
@@ -52,7 +59,8 @@ describe("amplitudeGates", () => {
   });
   it("a slow drift far below the first line is a note, and check is not made inconclusive by it", async () => {
     const x = shapedRecord(broadband, FS, 1 << 18, 6);
-    for (let i = 0; i < x.length; i++) x[i] = x[i]! + 3 * Math.sin((2 * Math.PI * 0.05 * i) / FS) + 0.1 * (i / x.length);
+    for (let i = 0; i < x.length; i++)
+      x[i] = x[i]! + 3 * Math.sin((2 * Math.PI * 0.05 * i) / FS) + 0.1 * (i / x.length);
     const a = await analyzeRecording(wavFile(x, "drift.wav"), { segmentLength: 2048 });
     expect(a.channels[0]!.notes.map((n) => n.code)).toContain("BELOW_FIRST_LINE");
     expect(a.channels[0]!.doubts).toEqual([]);

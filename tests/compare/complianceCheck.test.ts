@@ -14,7 +14,10 @@ import { cli } from "../helpers.js";
 const kb210 = "samples/profiles/kb210-controller.json";
 
 describe("bandAt", () => {
-  const bands = [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }, { fromHz: 1000, toHz: 2000, upperDb: 3, lowerDb: 3 }];
+  const bands = [
+    { fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 },
+    { fromHz: 1000, toHz: 2000, upperDb: 3, lowerDb: 3 },
+  ];
   it("a line exactly at a shared edge (1000 Hz) takes the tighter band (common practice)", () => {
     expect(bandAt(bands, 1000)!.upperDb).toBe(1.5);
     expect(bandAt(bands, 1000.1)!.upperDb).toBe(3);
@@ -62,8 +65,12 @@ describe("psdgate check on the samples", () => {
     expect(c.rms.deviationDb).toBeCloseTo(6.02, 1);
     expect(c.rms.ok).toBe(false);
     expect(c.rms.shown).toBe(true);
-    expect(c.findings.map((f: { code: string }) => f.code)).toEqual(expect.arrayContaining(["LINES_OUTSIDE", "RMS_OUTSIDE"]));
-    expect(c.excursions.every((e: { shown: boolean; direction: string }) => e.shown && e.direction === "above")).toBe(true);
+    expect(c.findings.map((f: { code: string }) => f.code)).toEqual(
+      expect.arrayContaining(["LINES_OUTSIDE", "RMS_OUTSIDE"]),
+    );
+    expect(c.excursions.every((e: { shown: boolean; direction: string }) => e.shown && e.direction === "above")).toBe(
+      true,
+    );
   });
   it("the run through a fixture resonance fails one band near 480 Hz", async () => {
     const r = await cli("check", "samples/kb210-run-resonance.wav", "--profile", kb210, "--json");
@@ -82,9 +89,14 @@ describe("psdgate check on the samples", () => {
     expect(r.stdout).toContain("CAUTION");
   });
   it("synth then check passes for every sample profile", async () => {
-    for (const [p, rate] of [["samples/profiles/kb210-controller.json", "5120"], ["samples/profiles/tern7-gimbal.yaml", "4096"]] as const) {
+    for (const [p, rate] of [
+      ["samples/profiles/kb210-controller.json", "5120"],
+      ["samples/profiles/tern7-gimbal.yaml", "4096"],
+    ] as const) {
       const out = `${(await import("node:os")).tmpdir()}/psdgate-synth-${Date.now()}-${rate}.wav`;
-      expect((await cli("synth", "--profile", p, "--duration", "45", "--rate", rate, "--seed", "99", "--out", out)).code).toBe(0);
+      expect(
+        (await cli("synth", "--profile", p, "--duration", "45", "--rate", rate, "--seed", "99", "--out", out)).code,
+      ).toBe(0);
       const r = await cli("check", out, "--profile", p);
       expect(r.stdout).toContain("VERDICT  PASS");
       expect(r.code).toBe(0);
@@ -98,7 +110,18 @@ describe("psdgate check on the samples", () => {
     const f = `${dir}/nan.csv`;
     (await import("node:fs")).writeFileSync(f, lines.join("\n"));
     const prof = `${dir}/flat.json`;
-    (await import("node:fs")).writeFileSync(prof, JSON.stringify({ title: "flat", units: "g2/Hz", points: [{ hz: 10, level: 0.002 }, { hz: 400, level: 0.002 }], tolerance: { bands: [{ fromHz: 10, toHz: 400, upperDb: 6, lowerDb: 6 }] } }));
+    (await import("node:fs")).writeFileSync(
+      prof,
+      JSON.stringify({
+        title: "flat",
+        units: "g2/Hz",
+        points: [
+          { hz: 10, level: 0.002 },
+          { hz: 400, level: 0.002 },
+        ],
+        tolerance: { bands: [{ fromHz: 10, toHz: 400, upperDb: 6, lowerDb: 6 }] },
+      }),
+    );
     const r = await cli("check", f, "--profile", prof, "--segment", "512");
     expect(r.code).toBe(3);
     expect(r.stdout).toMatch(/NaN or infinite/);
@@ -107,13 +130,34 @@ describe("psdgate check on the samples", () => {
 
 describe("judgeSpectrum known answers (records made by the test: tests/shapedRecords.ts)", () => {
   const flat = (lo: number, hi: number, extra: Record<string, unknown> = {}) =>
-    parseProfile(JSON.stringify({
-      title: "flat", units: "g2/Hz", points: [{ hz: lo, level: 0.01 }, { hz: hi, level: 0.01 }],
-      tolerance: { bands: [{ fromHz: lo, toHz: hi, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 }, ...extra,
-    }), "flat.json");
+    parseProfile(
+      JSON.stringify({
+        title: "flat",
+        units: "g2/Hz",
+        points: [
+          { hz: lo, level: 0.01 },
+          { hz: hi, level: 0.01 },
+        ],
+        tolerance: { bands: [{ fromHz: lo, toHz: hi, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
+        ...extra,
+      }),
+      "flat.json",
+    );
   const spectrum = (x: Float64Array, fs: number, n: number, durationS = Infinity): SpectrumUnderTest => {
     const p = welchPsd(x, fs, { segmentLength: n });
-    return { name: "t", frequencyHz: p.frequencyHz, psd: p.psd, dof: p.dof, lineSpacingHz: p.lineSpacingHz, sampleRateHz: fs, durationS, window: "hann", segmentLength: n, detrend: "mean", confidence: 0.9 };
+    return {
+      name: "t",
+      frequencyHz: p.frequencyHz,
+      psd: p.psd,
+      dof: p.dof,
+      lineSpacingHz: p.lineSpacingHz,
+      sampleRateHz: fs,
+      durationS,
+      window: "hann",
+      segmentLength: n,
+      detrend: "mean",
+      confidence: 0.9,
+    };
   };
   const codes = (c: { findings: { code: string }[] }) => c.findings.map((f) => f.code);
 
@@ -175,15 +219,34 @@ describe("judgeSpectrum known answers (records made by the test: tests/shapedRec
     expect(codes(c2)).toContain("RMS_OUTSIDE");
   });
   it("an allowance lets a share of the lines lie outside; an outer limit no line may cross", () => {
-    const bump = (db: number) => shapedRecord((f) => (f >= 20 && f <= 1000 ? 0.01 * (f > 400 && f < 430 ? 10 ** (db / 10) : 1) : 0), 2560, 1 << 18, 12);
-    const allowed = flat(20, 1000, { tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1, allowedOutsidePercent: 5 } });
+    const bump = (db: number) =>
+      shapedRecord(
+        (f) => (f >= 20 && f <= 1000 ? 0.01 * (f > 400 && f < 430 ? 10 ** (db / 10) : 1) : 0),
+        2560,
+        1 << 18,
+        12,
+      );
+    const allowed = flat(20, 1000, {
+      tolerance: {
+        bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }],
+        rmsDb: 1,
+        allowedOutsidePercent: 5,
+      },
+    });
     const strict = flat(20, 1000);
     const sp = spectrum(bump(4), 2560, 1024);
     expect(judgeSpectrum(sp, strict).verdict).toBe("fail");
     const c = judgeSpectrum(sp, allowed);
     expect(c.rule.allowanceLines).toBe(Math.floor(0.05 * c.lines.length));
     expect(c.verdict).toBe("pass");
-    const outer = flat(20, 1000, { tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1, allowedOutsidePercent: 5, outerLimits: [{ fromHz: 20, toHz: 1000, upperDb: 6, lowerDb: 6 }] } });
+    const outer = flat(20, 1000, {
+      tolerance: {
+        bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }],
+        rmsDb: 1,
+        allowedOutsidePercent: 5,
+        outerLimits: [{ fromHz: 20, toHz: 1000, upperDb: 6, lowerDb: 6 }],
+      },
+    });
     const c3 = judgeSpectrum(spectrum(bump(10), 2560, 1024), outer);
     expect(c3.verdict).toBe("fail");
     expect(codes(c3)).toContain("OUTER_LIMIT");
@@ -205,10 +268,21 @@ describe("judgeSpectrum known answers (records made by the test: tests/shapedRec
     expect(() => flat(20, 1000, { power: { departureDb: 3, share: 5 } })).toThrow(/power/);
   });
   it("the bottom of a 40 dB notch: what the line should show matches the exact expected Welch value (direct DTFT of the window, 1/64 bin, +-48 bins) within 0.01 dB; the 1 %-tail kernel alone was 0.3 dB off", () => {
-    const p = parseProfile(JSON.stringify({
-      title: "notch", units: "g2/Hz", points: [{ hz: 20, level: 0.01 }, { hz: 460, level: 0.01 }, { hz: 500, level: 0.000001 }, { hz: 540, level: 0.01 }, { hz: 1000, level: 0.01 }],
-      tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
-    }), "notch.json");
+    const p = parseProfile(
+      JSON.stringify({
+        title: "notch",
+        units: "g2/Hz",
+        points: [
+          { hz: 20, level: 0.01 },
+          { hz: 460, level: 0.01 },
+          { hz: 500, level: 0.000001 },
+          { hz: 540, level: 0.01 },
+          { hz: 1000, level: 0.01 },
+        ],
+        tolerance: { bands: [{ fromHz: 20, toHz: 1000, upperDb: 1.5, lowerDb: 1.5 }], rmsDb: 1 },
+      }),
+      "notch.json",
+    );
     const fs = 2560;
     const n = 256;
     const df = fs / n;
@@ -248,7 +322,11 @@ describe("judgeSpectrum known answers (records made by the test: tests/shapedRec
   }, 60_000);
   it("band RMS counts the part of each end line inside the band: 100-110 Hz of a flat 0.01 g2/Hz is sqrt(0.1), a one-line band its width", () => {
     const n = 2049;
-    const est = { psd: new Float64Array(n).fill(0.01), frequencyHz: new Float64Array(n).map((_, k) => k * 1.25), lineSpacingHz: 1.25 };
+    const est = {
+      psd: new Float64Array(n).fill(0.01),
+      frequencyHz: new Float64Array(n).map((_, k) => k * 1.25),
+      lineSpacingHz: 1.25,
+    };
     expect(bandRms(est, 100, 110)).toBeCloseTo(Math.sqrt(0.1), 12); // common practice: integrate the band's width, not whole end lines
     expect(bandRms(est, 100, 101.25)).toBeCloseTo(Math.sqrt(0.0125), 12);
     expect(bandMeanSquare(est, 0, 2560)).toBeCloseTo(0.01 * 2049 * 1.25, 9); // the whole band is sum(P) df (docs/REFERENCES.md sec. 11)

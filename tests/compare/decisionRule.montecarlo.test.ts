@@ -1,7 +1,14 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { judgeSpectrum, type ChannelCompliance } from "../../src/compare/complianceCheck.js";
-import { chanceAbove, chanceBelow, DECISION_RULE, lowerFactor, ruleLevels, upperFactor } from "../../src/compare/decisionRule.js";
+import {
+  chanceAbove,
+  chanceBelow,
+  DECISION_RULE,
+  lowerFactor,
+  ruleLevels,
+  upperFactor,
+} from "../../src/compare/decisionRule.js";
 import { parseProfile, profileLevel } from "../../src/compare/testProfile.js";
 import { completePsd, welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { SegmentPower } from "../../src/estimate/spectral/segmentPower.js";
@@ -47,7 +54,19 @@ const bandDb = (f: number) => (f <= 1000 ? 1.5 : 3);
 type Psd = Pick<ReturnType<typeof welchPsd>, "frequencyHz" | "psd" | "dof" | "lineSpacingHz">;
 function judgePsd(p: Psd): ChannelCompliance {
   return judgeSpectrum(
-    { name: "mc", frequencyHz: p.frequencyHz, psd: p.psd, dof: p.dof, lineSpacingHz: p.lineSpacingHz, sampleRateHz: FS, durationS: Infinity, window: "hann", segmentLength: N, detrend: "mean", confidence: 0.9 },
+    {
+      name: "mc",
+      frequencyHz: p.frequencyHz,
+      psd: p.psd,
+      dof: p.dof,
+      lineSpacingHz: p.lineSpacingHz,
+      sampleRateHz: FS,
+      durationS: Infinity,
+      window: "hann",
+      segmentLength: N,
+      detrend: "mean",
+      confidence: 0.9,
+    },
     profile,
   );
 }
@@ -63,7 +82,10 @@ const hann = spectralWindow(settings.window, N);
  * double array welchPsd gives on that prefix, at a third of the work of one pass per K.
  */
 function judgePrefixes(x: Float64Array, ks: number[]): ChannelCompliance[] {
-  const acc = new WelchAccumulator({ segmentLength: N, hop: settings.hop, window: hann, detrend: settings.detrend }, new SegmentPower(N));
+  const acc = new WelchAccumulator(
+    { segmentLength: N, hop: settings.hop, window: hann, detrend: settings.detrend },
+    new SegmentPower(N),
+  );
   let pushed = 0;
   return ks.map((k) => {
     const end = samplesFor(k);
@@ -81,7 +103,14 @@ function monteCarlo(level: (f: number) => number, ks: number[], records: number,
     judgePrefixes(record(seed + r), ks).forEach((c, i) => out[i]![c.verdict]++);
   }
   // The table behind each assertion, printed with the test run (DEVELOPERS.md quotes a longer run).
-  console.log(ks.map((k, i) => `${dofOf(k).toFixed(1)} DOF: fail ${out[i]!.fail}, pass ${out[i]!.pass}, inconclusive ${out[i]!.inconclusive} of ${records}`).join("; "));
+  console.log(
+    ks
+      .map(
+        (k, i) =>
+          `${dofOf(k).toFixed(1)} DOF: fail ${out[i]!.fail}, pass ${out[i]!.pass}, inconclusive ${out[i]!.inconclusive} of ${records}`,
+      )
+      .join("; "),
+  );
   return out;
 }
 
@@ -90,7 +119,10 @@ describe("decision rule by Monte Carlo (records made by the test, not by synth)"
 
   it("the one-pass prefixes give welchPsd's own estimate and verdict at every K (bit for bit)", () => {
     const x = shapedRecord(nominal, FS, LENGTH, 7);
-    const acc = new WelchAccumulator({ segmentLength: N, hop: settings.hop, window: hann, detrend: settings.detrend }, new SegmentPower(N));
+    const acc = new WelchAccumulator(
+      { segmentLength: N, hop: settings.hop, window: hann, detrend: settings.detrend },
+      new SegmentPower(N),
+    );
     let pushed = 0;
     for (const k of ks) {
       acc.push(x.subarray(pushed, samplesFor(k)));

@@ -1,5 +1,12 @@
 import { describe, expect, it } from "vitest";
-import { DECISION_RULE, dofForPower, powerAt, ruleLevels, upperFactor, lowerFactor } from "../../src/compare/decisionRule.js";
+import {
+  DECISION_RULE,
+  dofForPower,
+  powerAt,
+  ruleLevels,
+  upperFactor,
+  lowerFactor,
+} from "../../src/compare/decisionRule.js";
 import { lineTestLevels } from "../../src/compare/lineTests.js";
 import { chiSquareUpperQuantile } from "../../src/estimate/statistics/distributions.js";
 
@@ -34,7 +41,14 @@ describe("ruleLevels", () => {
 });
 
 describe("powerAt and dofForPower", () => {
-  const p = { lines: 789, allowance: 0, inflation: 1.944, rmsDofRatio: 789 / 1.944, outerLimits: false, upperSharedBy: 1 };
+  const p = {
+    lines: 789,
+    allowance: 0,
+    inflation: 1.944,
+    rmsDofRatio: 789 / 1.944,
+    outerLimits: false,
+    upperSharedBy: 1,
+  };
   it("power grows with DOF, and dofForPower is where the least of the four reaches 95 %", () => {
     let last = 0;
     for (const nu of [20, 60, 120, 200, 400]) {

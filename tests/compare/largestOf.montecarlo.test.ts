@@ -28,7 +28,11 @@ describe("largest-of moments and quantiles (analytic)", () => {
     expect(largestEffectiveDof(100, 3)).toBeGreaterThan(100);
   });
   it("the single-line threshold leaves exactly `level` above it for the largest of k independent: 1 - F(nu t)^k", () => {
-    for (const [nu, k, a] of [[28.5, 6, 1e-4], [208, 3, 1e-5], [629, 2, 1e-3]] as const) {
+    for (const [nu, k, a] of [
+      [28.5, 6, 1e-4],
+      [208, 3, 1e-5],
+      [629, 2, 1e-3],
+    ] as const) {
       const t = largestUpperFactor(nu, a, k);
       const q = chiSquareSurvival(nu * t, nu);
       expect(1 - (1 - q) ** k).toBeCloseTo(a, 10);
@@ -49,34 +53,56 @@ function run(level: (f: number) => number, k: number, seed: number, rho = 0) {
       if (v === "pass") passes[i]!++;
     });
   }
-  console.log(`largest of ${k}${rho ? ` (rho ${rho})` : ""}: fails ${ks.map((K, i) => `${fails[i]} at ${dofOf(K).toFixed(1)} DOF`).join(", ")}; passes ${passes.join("/")} of ${n}`);
+  console.log(
+    `largest of ${k}${rho ? ` (rho ${rho})` : ""}: fails ${ks.map((K, i) => `${fails[i]} at ${dofOf(K).toFixed(1)} DOF`).join(", ")}; passes ${passes.join("/")} of ${n}`,
+  );
   return { fails, passes };
 }
 
 describe("largest-of control by Monte Carlo (records made by the test, not by synth)", () => {
   const limit = upper999(n, 0.05);
   for (const k of [2, 3, 6]) {
-    it(`${k} channels on the profile: false fails at most 5 % at 28.5, 208 and 629 DOF (analytic: below the union bound's 5 %)`, () => {
-      const { fails, passes } = run(nominal, k, 1000 * k);
-      for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
-      // At 629 DOF the rule has its power: a conforming largest-of record passes (more than half the time).
-      expect(passes[2]!).toBeGreaterThanOrEqual(lower999(n, 0.5));
-    }, 120_000 * SCALE);
-    it(`${k} channels all on the +1 dB band edge (RMS on its +1 dB edge too): false fails at most 5 % (analytic bound 5 %)`, () => {
-      const { fails } = run((f) => nominal(f) * db(1), k, 2000 * k);
-      for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
-    }, 120_000 * SCALE);
+    it(
+      `${k} channels on the profile: false fails at most 5 % at 28.5, 208 and 629 DOF (analytic: below the union bound's 5 %)`,
+      () => {
+        const { fails, passes } = run(nominal, k, 1000 * k);
+        for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
+        // At 629 DOF the rule has its power: a conforming largest-of record passes (more than half the time).
+        expect(passes[2]!).toBeGreaterThanOrEqual(lower999(n, 0.5));
+      },
+      120_000 * SCALE,
+    );
+    it(
+      `${k} channels all on the +1 dB band edge (RMS on its +1 dB edge too): false fails at most 5 % (analytic bound 5 %)`,
+      () => {
+        const { fails } = run((f) => nominal(f) * db(1), k, 2000 * k);
+        for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
+      },
+      120_000 * SCALE,
+    );
   }
-  it("3 correlated channels (rho 0.8) on the +1 dB edge: the independent case bounds them, at most 5 %", () => {
-    const { fails } = run((f) => nominal(f) * db(1), 3, 5000, 0.8);
-    for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
-  }, 120_000 * SCALE);
-  it("3 channels each +0.5 dB (inside band and RMS tolerance), 28.5 DOF: at most 5 % (was 68 %)", () => {
-    const { fails } = run((f) => nominal(f) * db(0.5), 3, 6000);
-    expect(fails[0]!).toBeLessThanOrEqual(limit);
-  }, 120_000 * SCALE);
-  it("the largest of 3 with a real departure (+2.5 dB on every channel, 1.5 dB beyond the band) still fails at 208 DOF (power kept)", () => {
-    const { fails } = run((f) => nominal(f) * db(2.5), 3, 7000);
-    expect(fails[1]!).toBeGreaterThanOrEqual(lower999(n, 0.95));
-  }, 120_000 * SCALE);
+  it(
+    "3 correlated channels (rho 0.8) on the +1 dB edge: the independent case bounds them, at most 5 %",
+    () => {
+      const { fails } = run((f) => nominal(f) * db(1), 3, 5000, 0.8);
+      for (const f of fails) expect(f).toBeLessThanOrEqual(limit);
+    },
+    120_000 * SCALE,
+  );
+  it(
+    "3 channels each +0.5 dB (inside band and RMS tolerance), 28.5 DOF: at most 5 % (was 68 %)",
+    () => {
+      const { fails } = run((f) => nominal(f) * db(0.5), 3, 6000);
+      expect(fails[0]!).toBeLessThanOrEqual(limit);
+    },
+    120_000 * SCALE,
+  );
+  it(
+    "the largest of 3 with a real departure (+2.5 dB on every channel, 1.5 dB beyond the band) still fails at 208 DOF (power kept)",
+    () => {
+      const { fails } = run((f) => nominal(f) * db(2.5), 3, 7000);
+      expect(fails[1]!).toBeGreaterThanOrEqual(lower999(n, 0.95));
+    },
+    120_000 * SCALE,
+  );
 });

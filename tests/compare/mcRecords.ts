@@ -18,11 +18,20 @@ export const FS = 1024;
 export const N = 128;
 export const LENGTH = 1 << 15;
 
-export const slopes: TestProfile = parseProfile(JSON.stringify({
-  title: "slopes (Monte Carlo)", units: "g2/Hz",
-  points: [{ hz: 16, level: 0.0025 }, { hz: 40, level: 0.0025 * (40 / 16) ** 4 }, { hz: 200, level: 0.0025 * (40 / 16) ** 4 }, { hz: 496, slopeDbPerOctave: -6 }],
-  tolerance: { bands: [{ fromHz: 16, toHz: 496, upperDb: 1, lowerDb: 1 }], rmsDb: 1 },
-}), "slopes.json");
+export const slopes: TestProfile = parseProfile(
+  JSON.stringify({
+    title: "slopes (Monte Carlo)",
+    units: "g2/Hz",
+    points: [
+      { hz: 16, level: 0.0025 },
+      { hz: 40, level: 0.0025 * (40 / 16) ** 4 },
+      { hz: 200, level: 0.0025 * (40 / 16) ** 4 },
+      { hz: 496, slopeDbPerOctave: -6 },
+    ],
+    tolerance: { bands: [{ fromHz: 16, toHz: 496, upperDb: 1, lowerDb: 1 }], rmsDb: 1 },
+  }),
+  "slopes.json",
+);
 
 export const nominal = (f: number): number => (f >= 16 && f <= 496 ? profileLevel(slopes, f) : 0);
 export const db = (x: number): number => 10 ** (x / 10);
@@ -38,8 +47,18 @@ export const K629 = 332;
 export function spectrumOfRecord(x: Float64Array, k: number, name = "mc"): SpectrumUnderTest {
   const p = welchPsd(x.subarray(0, samplesFor(k)), FS, { segmentLength: N });
   return {
-    name, frequencyHz: p.frequencyHz, psd: p.psd, dof: p.dof, lineSpacingHz: p.lineSpacingHz, sampleRateHz: FS, durationS: Infinity,
-    window: "hann", segmentLength: N, detrend: "mean", confidence: 0.9, overlap: 0.5,
+    name,
+    frequencyHz: p.frequencyHz,
+    psd: p.psd,
+    dof: p.dof,
+    lineSpacingHz: p.lineSpacingHz,
+    sampleRateHz: FS,
+    durationS: Infinity,
+    window: "hann",
+    segmentLength: N,
+    detrend: "mean",
+    confidence: 0.9,
+    overlap: 0.5,
   };
 }
 
@@ -47,7 +66,13 @@ export function spectrumOfRecord(x: Float64Array, k: number, name = "mc"): Spect
  * k channels of one test: channel c = sqrt(rho) common + sqrt(1 - rho) own, both shaped to `level`
  * (so each channel's PSD is `level` and neighbouring channels' estimates are correlated through rho).
  */
-export function channels(level: (f: number) => number, k: number, seed: number, rho = 0, length = LENGTH): Float64Array[] {
+export function channels(
+  level: (f: number) => number,
+  k: number,
+  seed: number,
+  rho = 0,
+  length = LENGTH,
+): Float64Array[] {
   const common = rho > 0 ? shapedRecord(level, FS, length, seed * 31 + 7) : undefined;
   const out: Float64Array[] = [];
   for (let c = 0; c < k; c++) {
@@ -58,8 +83,19 @@ export function channels(level: (f: number) => number, k: number, seed: number, 
   return out;
 }
 
-export function judgeControl(xs: Float64Array[], k: number, rule: ControlRule, profile: TestProfile = slopes): ChannelCompliance {
-  return judgeSpectrum(combineSpectra(xs.map((x, i) => spectrumOfRecord(x, k, `c${i}`)), rule), profile);
+export function judgeControl(
+  xs: Float64Array[],
+  k: number,
+  rule: ControlRule,
+  profile: TestProfile = slopes,
+): ChannelCompliance {
+  return judgeSpectrum(
+    combineSpectra(
+      xs.map((x, i) => spectrumOfRecord(x, k, `c${i}`)),
+      rule,
+    ),
+    profile,
+  );
 }
 
 /** More records for a longer table (PSDGATE_MC_SCALE=10); CI runs the default. */

@@ -26,11 +26,15 @@ function run(level: (f: number) => number, toneDb: number, records: number, seed
   let beyond196 = 0;
   let looks = 0;
   for (let r = 0; r < records; r++) {
-    const x = addTones(shapedRecord(level, FS, LENGTH, seed + r), TONES.map((t, i) => ({ hz: t.hz, peak: t.peak * 10 ** (toneDb / 20), phase: 1.7 * r + i })));
+    const x = addTones(
+      shapedRecord(level, FS, LENGTH, seed + r),
+      TONES.map((t, i) => ({ hz: t.hz, peak: t.peak * 10 ** (toneDb / 20), phase: 1.7 * r + i })),
+    );
     const c = judgeMixed(x);
     if (c.verdict === "fail") fail++;
     if (c.verdict === "pass") pass++;
-    if (c.findings.some((f) => f.code === "LINES_OUTSIDE" || f.code === "RMS_OUTSIDE" || f.code === "OUTER_LIMIT")) backgroundFail++;
+    if (c.findings.some((f) => f.code === "LINES_OUTSIDE" || f.code === "RMS_OUTSIDE" || f.code === "OUTER_LIMIT"))
+      backgroundFail++;
     if (c.tones!.some((t) => t.shown)) toneFail++;
     // The tone statistic's calibration: |A - A_true| / sd beyond 1.96 should happen 5 % of the time.
     c.tones!.forEach((t, i) => {
@@ -38,7 +42,9 @@ function run(level: (f: number) => number, toneDb: number, records: number, seed
       if (Math.abs(t.measuredPeak - TONES[i]!.peak * 10 ** (toneDb / 20)) / t.peakSd > 1.959964) beyond196++;
     });
   }
-  console.log(`tones at ${toneDb} dB: fail ${fail} (background ${backgroundFail}, tones ${toneFail}), pass ${pass} of ${records}; tone |error| beyond 1.96 sd ${beyond196} of ${looks}`);
+  console.log(
+    `tones at ${toneDb} dB: fail ${fail} (background ${backgroundFail}, tones ${toneFail}), pass ${pass} of ${records}; tone |error| beyond 1.96 sd ${beyond196} of ${looks}`,
+  );
   return { fail, backgroundFail, toneFail, pass, beyond196, looks };
 }
 

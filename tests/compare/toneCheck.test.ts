@@ -8,7 +8,12 @@ import { findingText } from "../../src/report/findingTexts.js";
 
 const LENGTH = 1 << 18; // 51.2 s: 255 segments, about 480 DOF
 const nominal = (f: number) => (f >= 20 && f <= 2000 ? profileLevel(mixedProfile, f) : 0);
-const at = (db: number, only?: number) => TONES.map((t, i) => ({ hz: t.hz, peak: t.peak * 10 ** ((only === undefined || only === i ? db : 0) / 20), phase: 0.3 + i }));
+const at = (db: number, only?: number) =>
+  TONES.map((t, i) => ({
+    hz: t.hz,
+    peak: t.peak * 10 ** ((only === undefined || only === i ? db : 0) / 20),
+    phase: 0.3 + i,
+  }));
 
 describe("judgeMixedMode (mixed-mode check on records the test makes)", () => {
   it("random at the profile with its tones at their peaks passes, tones and all, with the RMS taken as the total", () => {
@@ -24,7 +29,22 @@ describe("judgeMixedMode (mixed-mode check on records the test makes)", () => {
   it("the same record judged as random only FAILs on the tone lines: the tones' lines must be left out", () => {
     const x = addTones(shapedRecord(nominal, FS, LENGTH, 501), at(0));
     const p = welchPsd(x, FS, { segmentLength: N });
-    const plain = judgeSpectrum({ name: "x", frequencyHz: p.frequencyHz, psd: p.psd, dof: p.dof, lineSpacingHz: p.lineSpacingHz, sampleRateHz: FS, durationS: LENGTH / FS, window: "hann", segmentLength: N, detrend: "mean", confidence: 0.9 }, mixedProfile);
+    const plain = judgeSpectrum(
+      {
+        name: "x",
+        frequencyHz: p.frequencyHz,
+        psd: p.psd,
+        dof: p.dof,
+        lineSpacingHz: p.lineSpacingHz,
+        sampleRateHz: FS,
+        durationS: LENGTH / FS,
+        window: "hann",
+        segmentLength: N,
+        detrend: "mean",
+        confidence: 0.9,
+      },
+      mixedProfile,
+    );
     expect(plain.verdict).toBe("fail");
   });
 
@@ -42,7 +62,11 @@ describe("judgeMixedMode (mixed-mode check on records the test makes)", () => {
   it("the random without its tones FAILs, naming every tone as missing", () => {
     const c = judgeMixed(shapedRecord(nominal, FS, LENGTH, 503));
     expect(c.verdict).toBe("fail");
-    expect(c.findings.filter((x) => x.code === "TONE_MISSING").map((x) => findingText(x).split(" (")[0])).toEqual(["shaft", "gear mesh", "vane pass"]);
+    expect(c.findings.filter((x) => x.code === "TONE_MISSING").map((x) => findingText(x).split(" (")[0])).toEqual([
+      "shaft",
+      "gear mesh",
+      "vane pass",
+    ]);
   });
 
   it("a tone 1 Hz off its frequency (0.5 Hz allowed) FAILs as off frequency", () => {

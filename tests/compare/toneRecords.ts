@@ -33,12 +33,27 @@ export function addTones(x: Float64Array, tones: { hz: number; peak: number; pha
 
 export function judgeMixed(x: Float64Array, profile: TestProfile = mixedProfile): ChannelCompliance {
   const p = welchPsd(x, FS, { segmentLength: N });
-  const acc = new ToneFitAccumulator(profile.tones.map((t, i) => ({ hz: t.hz, searchHalfWidthHz: toneSearchHalfWidthHz(profile, i) })));
+  const acc = new ToneFitAccumulator(
+    profile.tones.map((t, i) => ({ hz: t.hz, searchHalfWidthHz: toneSearchHalfWidthHz(profile, i) })),
+  );
   acc.start(FS);
   acc.push([x], x.length);
   const fits = acc.finish(FS)[0]!;
   return judgeMixedMode(
-    { name: "mc", frequencyHz: p.frequencyHz, psd: p.psd, dof: p.dof, lineSpacingHz: p.lineSpacingHz, sampleRateHz: FS, durationS: x.length / FS, window: "hann", segmentLength: N, detrend: "mean", confidence: 0.9 },
-    profile, fits,
+    {
+      name: "mc",
+      frequencyHz: p.frequencyHz,
+      psd: p.psd,
+      dof: p.dof,
+      lineSpacingHz: p.lineSpacingHz,
+      sampleRateHz: FS,
+      durationS: x.length / FS,
+      window: "hann",
+      segmentLength: N,
+      detrend: "mean",
+      confidence: 0.9,
+    },
+    profile,
+    fits,
   );
 }

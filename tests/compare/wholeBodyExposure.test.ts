@@ -1,5 +1,12 @@
 import { describe, expect, it } from "vitest";
-import { axisRules, basicMethodCheck, comfortReactions, dailyExposure, EIGHT_HOURS_S, vibrationTotalValue } from "../../src/compare/wholeBodyExposure.js";
+import {
+  axisRules,
+  basicMethodCheck,
+  comfortReactions,
+  dailyExposure,
+  EIGHT_HOURS_S,
+  vibrationTotalValue,
+} from "../../src/compare/wholeBodyExposure.js";
 
 const seated = axisRules("seated");
 
@@ -14,12 +21,27 @@ describe("dailyExposure (Directive 2002/44/EC Annex part B; worked values docs/R
     expect(e.a8ActionAfterS / 3600).toBeCloseTo(3.125, 9);
   });
   it("applies 1.4 on x and y: a_wx = 0.4, a_wz = 0.5 over 8 h gives A(8) = 1.4 x 0.4 = 0.56 on x", () => {
-    const e = dailyExposure([{ axis: "x", aw: 0.4, vdv: 1, durationS: 600 }, { axis: "y", aw: 0.1, vdv: 1, durationS: 600 }, { axis: "z", aw: 0.5, vdv: 1, durationS: 600 }], seated, EIGHT_HOURS_S);
+    const e = dailyExposure(
+      [
+        { axis: "x", aw: 0.4, vdv: 1, durationS: 600 },
+        { axis: "y", aw: 0.1, vdv: 1, durationS: 600 },
+        { axis: "z", aw: 0.5, vdv: 1, durationS: 600 },
+      ],
+      seated,
+      EIGHT_HOURS_S,
+    );
     expect(e.a8).toBeCloseTo(0.56, 12);
     expect(e.a8Axis).toBe("x");
   });
   it("VDV for the exposure scales by the fourth root of time, with the same factors: 3 m/s^1.75 in 240 s on z is 9.929 for 8 h", () => {
-    const e = dailyExposure([{ axis: "z", aw: 0.3, vdv: 3, durationS: 240 }, { axis: "x", aw: 0.1, vdv: 1.5, durationS: 240 }], seated, EIGHT_HOURS_S);
+    const e = dailyExposure(
+      [
+        { axis: "z", aw: 0.3, vdv: 3, durationS: 240 },
+        { axis: "x", aw: 0.1, vdv: 1.5, durationS: 240 },
+      ],
+      seated,
+      EIGHT_HOURS_S,
+    );
     expect(e.vdv).toBeCloseTo(3 * (28800 / 240) ** 0.25, 10);
     expect(e.vdv).toBeCloseTo(9.929, 3);
     expect(e.vdvAxis).toBe("z");
@@ -39,9 +61,16 @@ describe("dailyExposure (Directive 2002/44/EC Annex part B; worked values docs/R
 
 describe("the other whole-body figures", () => {
   it("vibrationTotalValue is sqrt(sum (k a_w)^2) (ISO 2631-1 6.5)", () => {
-    const axes = [{ axis: "x" as const, aw: 0.3 }, { axis: "y" as const, aw: 0.4 }, { axis: "z" as const, aw: 1.2 }];
+    const axes = [
+      { axis: "x" as const, aw: 0.3 },
+      { axis: "y" as const, aw: 0.4 },
+      { axis: "z" as const, aw: 1.2 },
+    ];
     expect(vibrationTotalValue(axes, () => 1)).toBeCloseTo(1.3, 12);
-    expect(vibrationTotalValue(axes, (a) => seated[a].healthK)).toBeCloseTo(Math.sqrt(0.42 ** 2 + 0.56 ** 2 + 1.44), 12);
+    expect(vibrationTotalValue(axes, (a) => seated[a].healthK)).toBeCloseTo(
+      Math.sqrt(0.42 ** 2 + 0.56 ** 2 + 1.44),
+      12,
+    );
   });
   it("comfortReactions follows the overlapping Annex C ranges (from memory)", () => {
     expect(comfortReactions(0.2)).toEqual(["not uncomfortable"]);

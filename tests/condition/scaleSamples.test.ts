@@ -7,7 +7,14 @@ import { parseUnitSpec, parseVoltUnit } from "../../src/units.js";
 function header(name: string, unit?: string): ChannelInfo {
   if (unit === undefined) return { name };
   const spec = parseUnitSpec(unit);
-  return { name, declaredUnit: spec?.base, declaredUnitSpec: spec, declaredVolts: spec ? undefined : parseVoltUnit(unit), declaredUnitText: unit, unitPlace: { line: 1, column: 2 } };
+  return {
+    name,
+    declaredUnit: spec?.base,
+    declaredUnitSpec: spec,
+    declaredVolts: spec ? undefined : parseVoltUnit(unit),
+    declaredUnitText: unit,
+    unitPlace: { line: 1, column: 2 },
+  };
 }
 function err(f: () => unknown): InputError {
   try {
@@ -23,7 +30,12 @@ describe("channelConditionings", () => {
   const chs = [header("ax", "mg"), header("ay", "in/s^2"), header("az"), header("v1", "mV"), header("tc", "degC")];
   it("converts header units into the base unit with exact factors, and records what was read", () => {
     const [mg, ips, none] = channelConditionings("f.csv", chs, [0, 1, 2], {});
-    expect(mg).toMatchObject({ inputUnit: "g", resultUnit: "g", factor: 1e-3, reading: { fileUnit: "mg", unitFrom: "header", scale: 1, sensitivity: null } });
+    expect(mg).toMatchObject({
+      inputUnit: "g",
+      resultUnit: "g",
+      factor: 1e-3,
+      reading: { fileUnit: "mg", unitFrom: "header", scale: 1, sensitivity: null },
+    });
     expect(ips).toMatchObject({ inputUnit: "m/s2", resultUnit: "m/s2", factor: 0.0254 });
     expect(none).toMatchObject({ inputUnit: "g", factor: 1, reading: { fileUnit: "g", unitFrom: "default" } });
   });
@@ -46,7 +58,7 @@ describe("channelConditionings", () => {
   it("an unknown header unit is UNIT_UNKNOWN naming file, line, column and the text, never g", () => {
     const e = err(() => channelConditionings("f.csv", chs, [4], {}));
     expect(e.code).toBe("UNIT_UNKNOWN");
-    expect(e.message).toContain('f.csv:1:2 (tc)');
+    expect(e.message).toContain("f.csv:1:2 (tc)");
     expect(e.message).toContain('received "degC"');
   });
   it("a channel in mV without a sensitivity is UNIT_NEEDS_SENSITIVITY; an unselected one is no problem", () => {
@@ -54,18 +66,57 @@ describe("channelConditionings", () => {
     expect(() => channelConditionings("f.csv", chs, [0], {})).not.toThrow();
   });
   it("repeated options for one channel are OPTION_CONFLICT (by name, by position, twice without a channel, both forms)", () => {
-    expect(err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ channel: "ax", value: 2 }, { channel: "AX", value: 3 }] })).code).toBe("OPTION_CONFLICT");
-    expect(err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ channel: "ax", value: 2 }, { channel: "1", value: 3 }] })).code).toBe("OPTION_CONFLICT");
-    expect(err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ value: 2 }, { value: 3 }] })).code).toBe("OPTION_CONFLICT");
-    expect(err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ value: 2 }, { channel: "ax", value: 3 }] })).code).toBe("OPTION_CONFLICT");
-    expect(err(() => channelConditionings("f.csv", chs, [0], { sensitivities: [{ channel: "v1", value: "1V/g" }, { channel: "v1", value: "2V/g" }] })).code).toBe("OPTION_CONFLICT");
+    expect(
+      err(() =>
+        channelConditionings("f.csv", chs, [0], {
+          channelScales: [
+            { channel: "ax", value: 2 },
+            { channel: "AX", value: 3 },
+          ],
+        }),
+      ).code,
+    ).toBe("OPTION_CONFLICT");
+    expect(
+      err(() =>
+        channelConditionings("f.csv", chs, [0], {
+          channelScales: [
+            { channel: "ax", value: 2 },
+            { channel: "1", value: 3 },
+          ],
+        }),
+      ).code,
+    ).toBe("OPTION_CONFLICT");
+    expect(
+      err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ value: 2 }, { value: 3 }] })).code,
+    ).toBe("OPTION_CONFLICT");
+    expect(
+      err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ value: 2 }, { channel: "ax", value: 3 }] }))
+        .code,
+    ).toBe("OPTION_CONFLICT");
+    expect(
+      err(() =>
+        channelConditionings("f.csv", chs, [0], {
+          sensitivities: [
+            { channel: "v1", value: "1V/g" },
+            { channel: "v1", value: "2V/g" },
+          ],
+        }),
+      ).code,
+    ).toBe("OPTION_CONFLICT");
   });
   it("a header unit and --units that disagree are UNIT_CONFLICT; --units mg applies where the file says nothing", () => {
     expect(err(() => channelConditionings("f.csv", chs, [0], { inputUnits: "g" })).code).toBe("UNIT_CONFLICT");
-    expect(channelConditionings("f.csv", chs, [2], { inputUnits: "mg" })[0]).toMatchObject({ factor: 1e-3, reading: { unitFrom: "--units" } });
+    expect(channelConditionings("f.csv", chs, [2], { inputUnits: "mg" })[0]).toMatchObject({
+      factor: 1e-3,
+      reading: { unitFrom: "--units" },
+    });
   });
   it("a sensitivity on a channel the header says is already an acceleration is UNIT_CONFLICT; an unknown channel is CHANNEL_NOT_FOUND", () => {
-    expect(err(() => channelConditionings("f.csv", chs, [0], { sensitivities: [{ channel: "ax", value: "100mV/g" }] })).code).toBe("UNIT_CONFLICT");
-    expect(err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ channel: "nope", value: 2 }] })).code).toBe("CHANNEL_NOT_FOUND");
+    expect(
+      err(() => channelConditionings("f.csv", chs, [0], { sensitivities: [{ channel: "ax", value: "100mV/g" }] })).code,
+    ).toBe("UNIT_CONFLICT");
+    expect(
+      err(() => channelConditionings("f.csv", chs, [0], { channelScales: [{ channel: "nope", value: 2 }] })).code,
+    ).toBe("CHANNEL_NOT_FOUND");
   });
 });

@@ -1,7 +1,12 @@
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { analyzeRecording, analyzeSource, clippingHintCount, type PassAccumulator } from "../../src/pass/analyzeRecording.js";
+import {
+  analyzeRecording,
+  analyzeSource,
+  clippingHintCount,
+  type PassAccumulator,
+} from "../../src/pass/analyzeRecording.js";
 import type { TimeHistorySource } from "../../src/read/timeHistory.js";
 import { cli, gaussian, maxRelDiff, tempDir } from "../helpers.js";
 import { wavBytes } from "../wavBytes.js";
@@ -54,7 +59,12 @@ describe("analyzeRecording: logger exports give the plain CSV's PSD (within 1e-1
     expect(b.input.samples).toBe(n);
     const pa = a.channels[0]!.psd.psd;
     const pb = b.channels[0]!.psd.psd;
-    expect(maxRelDiff(pb.map((v) => v / factor), pa)).toBeLessThanOrEqual(1e-12);
+    expect(
+      maxRelDiff(
+        pb.map((v) => v / factor),
+        pa,
+      ),
+    ).toBeLessThanOrEqual(1e-12);
     return b;
   }
   const write = (name: string, head: string, cell: (v: number, i: number) => string) => {
@@ -69,22 +79,44 @@ describe("analyzeRecording: logger exports give the plain CSV's PSD (within 1e-1
   });
   it("a header in µg, and --units mg for a file that says nothing", async () => {
     await expectSamePsd(write("ug.csv", "time,ax (µg)", (v, i) => `${(i / 1024).toFixed(6)},${v * 1e6}`));
-    await expectSamePsd(write("mg-opt.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v * 1000}`), { inputUnits: "mg" });
+    await expectSamePsd(
+      write("mg-opt.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v * 1000}`),
+      { inputUnits: "mg" },
+    );
   });
   it("headers in mm/s^2, cm/s², in/s**2, ft s-2 and ms^-2 read as m/s^2 and give the g PSD times g_n^2 (SI Brochure 9th ed.)", async () => {
     const gn = 9.80665;
-    for (const [unit, k] of [["mm/s^2", 1e-3], ["cm/s²", 1e-2], ["in/s**2", 0.0254], ["ft s-2", 0.3048], ["ms^-2", 1]] as const) {
-      const b = await expectSamePsd(write(`u${k}.csv`, `time,ax [${unit}]`, (v, i) => `${(i / 1024).toFixed(6)},${(v * gn) / k}`), {}, gn * gn);
+    for (const [unit, k] of [
+      ["mm/s^2", 1e-3],
+      ["cm/s²", 1e-2],
+      ["in/s**2", 0.0254],
+      ["ft s-2", 0.3048],
+      ["ms^-2", 1],
+    ] as const) {
+      const b = await expectSamePsd(
+        write(`u${k}.csv`, `time,ax [${unit}]`, (v, i) => `${(i / 1024).toFixed(6)},${(v * gn) / k}`),
+        {},
+        gn * gn,
+      );
       expect(b.channels[0]!.units, unit).toBe("m/s2");
     }
   });
   it("a channel in mV with --sensitivity 100mV/g, and one in V with 500mV/g for every channel", async () => {
-    await expectSamePsd(write("mv.csv", "time,ax [mV]", (v, i) => `${(i / 1024).toFixed(6)},${v * 100}`), { sensitivities: [{ channel: "ax", value: "100mV/g" }] });
-    const b = await expectSamePsd(write("v.csv", "time,ax [V]", (v, i) => `${(i / 1024).toFixed(6)},${v * 0.5}`), { sensitivities: [{ value: "500mV/g" }] });
+    await expectSamePsd(
+      write("mv.csv", "time,ax [mV]", (v, i) => `${(i / 1024).toFixed(6)},${v * 100}`),
+      { sensitivities: [{ channel: "ax", value: "100mV/g" }] },
+    );
+    const b = await expectSamePsd(
+      write("v.csv", "time,ax [V]", (v, i) => `${(i / 1024).toFixed(6)},${v * 0.5}`),
+      { sensitivities: [{ value: "500mV/g" }] },
+    );
     expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "V", unitFrom: "sensitivity", sensitivity: "500mV/g" });
   });
   it("per-channel --scale ax=K", async () => {
-    await expectSamePsd(write("scaled.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v / 4}`), { channelScales: [{ channel: "ax", value: 4 }] });
+    await expectSamePsd(
+      write("scaled.csv", "time,ax", (v, i) => `${(i / 1024).toFixed(6)},${v / 4}`),
+      { channelScales: [{ channel: "ax", value: 4 }] },
+    );
   });
 });
 
@@ -92,7 +124,10 @@ describe("analyzeRecording: time stamps and export quirks give the plain CSV's P
   const n = 8192;
   const x = gaussian(n, 32, 0.4);
   const plainFile = join(dir, "plain-t.csv");
-  writeFileSync(plainFile, "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v},${-v}`).join("\n") + "\n");
+  writeFileSync(
+    plainFile,
+    "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v},${-v}`).join("\n") + "\n",
+  );
   const opts = { segmentLength: 1024 };
   async function expectSamePsd(file: string, o: Parameters<typeof analyzeRecording>[1] = {}) {
     const a = await analyzeRecording(plainFile, opts);
@@ -107,7 +142,8 @@ describe("analyzeRecording: time stamps and export quirks give the plain CSV's P
     writeFileSync(f, text);
     return f;
   };
-  const rows = (stamp: (i: number) => string, sep = ",", end = "") => Array.from(x, (v, i) => `${stamp(i)}${sep}${v}${sep}${-v}${end}`).join("\n") + "\n";
+  const rows = (stamp: (i: number) => string, sep = ",", end = "") =>
+    Array.from(x, (v, i) => `${stamp(i)}${sep}${v}${sep}${-v}${end}`).join("\n") + "\n";
   /** Microseconds since the start, as a date-time stamp from 2024-05-17 14:03:00. */
   const iso = (i: number, t: string, zone: string) => {
     const us = Math.round((i * 1e6) / 1024);
@@ -116,7 +152,9 @@ describe("analyzeRecording: time stamps and export quirks give the plain CSV's P
   };
 
   it("scientific-notation stamps (%.6e, as numpy.savetxt writes them): the resolution comes from the digits and the exponent", async () => {
-    await expectSamePsd(write("sci-t.csv", "time,ax,ay\n" + rows((i) => (i / 1024).toExponential(6).replace(/e([+-])(\d)$/, "e$10$2"))));
+    await expectSamePsd(
+      write("sci-t.csv", "time,ax,ay\n" + rows((i) => (i / 1024).toExponential(6).replace(/e([+-])(\d)$/, "e$10$2"))),
+    );
   });
   it("significant-digit stamps (%.6g, trailing zeros dropped)", async () => {
     await expectSamePsd(write("g6-t.csv", "time,ax,ay\n" + rows((i) => String(Number((i / 1024).toPrecision(6))))));
@@ -132,15 +170,22 @@ describe("analyzeRecording: time stamps and export quirks give the plain CSV's P
     expect(c.input.startTime).toBe("2024-05-17T12:03:00.000000Z");
   });
   it("a time column in milliseconds: --time-unit ms", async () => {
-    await expectSamePsd(write("ms-t.csv", "Time,ax,ay\n" + rows((i) => ((i * 1000) / 1024).toFixed(6))), { csv: { timeUnit: "ms" } });
+    await expectSamePsd(write("ms-t.csv", "Time,ax,ay\n" + rows((i) => ((i * 1000) / 1024).toFixed(6))), {
+      csv: { timeUnit: "ms" },
+    });
   });
   it("spreadsheet serial day numbers with --time-unit serial-days: the rate from their differences, the start time from 1899-12-30", async () => {
     // 45429.5 is 2024-05-17 12:00 in the 1900 date system (45292 = 2024-01-01, from memory; 137 days on).
-    const b = await expectSamePsd(write("serial.csv", "Time,ax,ay\n" + rows((i) => (45429.5 + i / (1024 * 86400)).toFixed(10))), { csv: { timeUnit: "serial-days" } });
+    const b = await expectSamePsd(
+      write("serial.csv", "Time,ax,ay\n" + rows((i) => (45429.5 + i / (1024 * 86400)).toFixed(10))),
+      { csv: { timeUnit: "serial-days" } },
+    );
     expect(b.input.startTime).toBe("2024-05-17T12:00:00.000000");
   });
   it("--no-time-column --rate with a date-time column: the column is neither read nor a channel", async () => {
-    const b = await expectSamePsd(write("iso-ignored.csv", "stamp,ax,ay\n" + rows((i) => iso(i, " ", ""))), { csv: { timeColumn: false, sampleRateHz: 1024 } });
+    const b = await expectSamePsd(write("iso-ignored.csv", "stamp,ax,ay\n" + rows((i) => iso(i, " ", ""))), {
+      csv: { timeColumn: false, sampleRateHz: 1024 },
+    });
     expect(b.channels.map((c) => c.name)).toEqual(["ax", "ay"]);
     const c = await expectSamePsd(plainFile, { csv: { timeColumn: false, sampleRateHz: 1024 } });
     expect(c.channels.map((ch) => ch.name)).toEqual(["ax", "ay"]);
@@ -156,30 +201,69 @@ describe("analyzeRecording: time stamps and export quirks give the plain CSV's P
     await expectSamePsd(f, { channels: ["ax"] });
   });
   it("a units row under the header is read as units (s, mg, mg)", async () => {
-    const b = await analyzeRecording(write("units-row.csv", "time,ax,ay\ns,mg,mg\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v * 1000},${-v * 1000}`).join("\n") + "\n"), opts);
+    const b = await analyzeRecording(
+      write(
+        "units-row.csv",
+        "time,ax,ay\ns,mg,mg\n" +
+          Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${v * 1000},${-v * 1000}`).join("\n") +
+          "\n",
+      ),
+      opts,
+    );
     const a = await analyzeRecording(plainFile, opts);
     expect(b.channels[0]!.reading).toMatchObject({ fileUnit: "mg", unitFrom: "header" });
     expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
   });
   it("a preamble of metadata lines before the header is skipped, kept, and counted", async () => {
-    const b = await expectSamePsd(write("preamble.csv", "Logger LX-9 field export\nSerial: 0042-K\nChannels: ax, ay\ntime,ax,ay\n" + rows((i) => (i / 1024).toFixed(6))));
+    const b = await expectSamePsd(
+      write(
+        "preamble.csv",
+        "Logger LX-9 field export\nSerial: 0042-K\nChannels: ax, ay\ntime,ax,ay\n" + rows((i) => (i / 1024).toFixed(6)),
+      ),
+    );
     expect(b.input.preamble).toEqual(["Logger LX-9 field export", "Serial: 0042-K", "Channels: ax, ay"]);
     expect(b.input.layout).toContain("3 preamble lines before the header kept as metadata");
   });
   it("channels in %.6e, in %.6e with decimal commas, and integer counts read as the plain CSV of the same values", async () => {
     const e6 = (v: number) => v.toExponential(6).replace(/e([+-])(\d)$/, "e$10$2");
-    const plain = write("plain-e6.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Number(e6(v))},${Number(e6(-v))}`).join("\n") + "\n");
-    const sci = write("e6.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${e6(v)},${e6(-v)}`).join("\n") + "\n");
-    const comma = write("e6-comma.csv", "time;ax;ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)};${e6(v)};${e6(-v)}`.replace(/\./g, ",")).join("\n") + "\n");
+    const plain = write(
+      "plain-e6.csv",
+      "time,ax,ay\n" +
+        Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Number(e6(v))},${Number(e6(-v))}`).join("\n") +
+        "\n",
+    );
+    const sci = write(
+      "e6.csv",
+      "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${e6(v)},${e6(-v)}`).join("\n") + "\n",
+    );
+    const comma = write(
+      "e6-comma.csv",
+      "time;ax;ay\n" +
+        Array.from(x, (v, i) => `${(i / 1024).toFixed(6)};${e6(v)};${e6(-v)}`.replace(/\./g, ",")).join("\n") +
+        "\n",
+    );
     const a = await analyzeRecording(plain, opts);
     for (const f of [sci, comma]) {
       const b = await analyzeRecording(f, opts);
       expect(b.input.sampleRateHz).toBe(1024);
       expect(maxRelDiff(b.channels[0]!.psd.psd, a.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
     }
-    const counts = write("counts.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)},0`).join("\n") + "\n");
-    const countsPlain = write("counts-plain.csv", "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)}.0,0.0`).join("\n") + "\n");
-    expect(maxRelDiff((await analyzeRecording(counts, opts)).channels[0]!.psd.psd, (await analyzeRecording(countsPlain, opts)).channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+    const counts = write(
+      "counts.csv",
+      "time,ax,ay\n" + Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)},0`).join("\n") + "\n",
+    );
+    const countsPlain = write(
+      "counts-plain.csv",
+      "time,ax,ay\n" +
+        Array.from(x, (v, i) => `${(i / 1024).toFixed(6)},${Math.round(v * 3000)}.0,0.0`).join("\n") +
+        "\n",
+    );
+    expect(
+      maxRelDiff(
+        (await analyzeRecording(counts, opts)).channels[0]!.psd.psd,
+        (await analyzeRecording(countsPlain, opts)).channels[0]!.psd.psd,
+      ),
+    ).toBeLessThanOrEqual(1e-12);
   });
   it("a 'sep=;' first line names the delimiter", async () => {
     const b = await expectSamePsd(write("sep.csv", "sep=;\ntime;ax;ay\n" + rows((i) => (i / 1024).toFixed(6), ";")));
@@ -191,7 +275,14 @@ describe("analyzeSource: extra accumulators, the rate contract and the frame win
   /** A source made here: one channel of `x`, announcing `designHz` and finishing at `finalHz`. */
   function source(x: Float64Array, designHz: number, finalHz: number): TimeHistorySource {
     return {
-      info: { file: "made.csv", format: "csv", sampleRateHz: designHz, channels: [{ name: "a" }], bytes: 0, layout: "test" },
+      info: {
+        file: "made.csv",
+        format: "csv",
+        sampleRateHz: designHz,
+        channels: [{ name: "a" }],
+        bytes: 0,
+        layout: "test",
+      },
       async read(_select, sink) {
         const b = new Float64Array(700);
         for (let i = 0; i < x.length; i += 700) {
@@ -207,23 +298,43 @@ describe("analyzeSource: extra accumulators, the rate contract and the frame win
     design = NaN;
     frames = 0;
     first = NaN;
-    start(r: number) { this.design = r; }
-    push(blocks: Float64Array[], frames: number) { if (this.frames === 0) this.first = blocks[0]![0]!; this.frames += frames; }
-    finish(r: number) { return { design: this.design, final: r, frames: this.frames, first: this.first }; }
+    start(r: number) {
+      this.design = r;
+    }
+    push(blocks: Float64Array[], frames: number) {
+      if (this.frames === 0) this.first = blocks[0]![0]!;
+      this.frames += frames;
+    }
+    finish(r: number) {
+      return { design: this.design, final: r, frames: this.frames, first: this.first };
+    }
   }
   it("an extra accumulator is told the design rate first, sees every conditioned block, and gets the final rate", async () => {
     const x = Float64Array.from({ length: 5000 }, (_, i) => i);
-    const a = await analyzeSource(source(x, 100, 100), { segmentLength: 256, accumulators: [new Counter()], inputUnits: "g", resultUnits: "m/s2" });
+    const a = await analyzeSource(source(x, 100, 100), {
+      segmentLength: 256,
+      accumulators: [new Counter()],
+      inputUnits: "g",
+      resultUnits: "m/s2",
+    });
     expect(a.extras[0]).toEqual({ design: 100, final: 100, frames: 5000, first: 0 });
     expect(a.passDoubts).toEqual([]);
   });
   it("a final rate other than the design rate is a doubt on the pass (the rate contract)", async () => {
-    const a = await analyzeSource(source(new Float64Array(5000), 100, 100.5), { segmentLength: 256, accumulators: [new Counter()] });
+    const a = await analyzeSource(source(new Float64Array(5000), 100, 100.5), {
+      segmentLength: 256,
+      accumulators: [new Counter()],
+    });
     expect(findingTexts(a.passDoubts).join()).toMatch(/100\.5 Hz .* 100 Hz/);
   });
   it("--from/--to cut frames i with from <= i/fs < to, recorded in the window, for every accumulator alike", async () => {
     const x = Float64Array.from({ length: 5000 }, (_, i) => i);
-    const a = await analyzeSource(source(x, 100, 100), { segmentLength: 256, fromS: 7.005, toS: 31, accumulators: [new Counter()] });
+    const a = await analyzeSource(source(x, 100, 100), {
+      segmentLength: 256,
+      fromS: 7.005,
+      toS: 31,
+      accumulators: [new Counter()],
+    });
     const c = a.extras[0] as { frames: number; first: number };
     expect(c.first).toBe(701); // crosses a block boundary
     expect(c.frames).toBe(3100 - 701);
@@ -232,7 +343,9 @@ describe("analyzeSource: extra accumulators, the rate contract and the frame win
     expect(a.channels[0]!.stats.min).toBe(701);
   });
   it("a window past the end is an input error naming the option (the library key); toS past the end is kept with a note", async () => {
-    await expect(analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, fromS: 60 })).rejects.toThrow(/option fromS.*WINDOW_EMPTY/);
+    await expect(
+      analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, fromS: 60 }),
+    ).rejects.toThrow(/option fromS.*WINDOW_EMPTY/);
     const a = await analyzeSource(source(new Float64Array(5000), 100, 100), { segmentLength: 256, toS: 80 });
     expect(a.window.toS).toBe(50);
     expect(findingTexts(a.channels[0]!.notes).join()).toContain("the window's end 80 s lies past the end");
@@ -244,9 +357,21 @@ describe("psd says when a record fails the stationarity test", () => {
     const fs = 1000;
     const x = gaussian(60 * fs, 31);
     const f1 = join(dir, "steady.wav");
-    writeFileSync(f1, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: fs, samples: Array.from(x, (v) => v * 0.1) }));
+    writeFileSync(
+      f1,
+      wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: fs, samples: Array.from(x, (v) => v * 0.1) }),
+    );
     const f2 = join(dir, "step.wav");
-    writeFileSync(f2, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: fs, samples: Array.from(x, (v, i) => v * 0.1 * (i >= 30 * fs ? Math.SQRT2 : 1)) }));
+    writeFileSync(
+      f2,
+      wavBytes({
+        tag: 3,
+        bits: 32,
+        channels: 1,
+        sampleRate: fs,
+        samples: Array.from(x, (v, i) => v * 0.1 * (i >= 30 * fs ? Math.SQRT2 : 1)),
+      }),
+    );
     const steady = await cli("psd", f1, "--segment", "1024");
     const step = await cli("psd", f2, "--segment", "1024", "--json");
     expect(steady.stdout).not.toContain("not stationary");
@@ -263,7 +388,15 @@ describe("--from/--to on psd and check (CLI)", () => {
     const p = JSON.parse((await cli("psd", "samples/tern7-flight.csv", "--from", "5", "--to", "15", "--json")).stdout);
     expect(p.input.window).toEqual({ fromS: 5, toS: 15, durationS: 10, frames: 40960 });
     expect(p.channels[0].stats.count).toBe(40960);
-    const c = await cli("check", "samples/tern7-flight.csv", "-p", "samples/profiles/tern7-gimbal.yaml", "--from", "5", "--json");
+    const c = await cli(
+      "check",
+      "samples/tern7-flight.csv",
+      "-p",
+      "samples/profiles/tern7-gimbal.yaml",
+      "--from",
+      "5",
+      "--json",
+    );
     const j = JSON.parse(c.stdout);
     expect(j.input.window).toEqual({ fromS: 5, toS: 20, durationS: 15, frames: 61440 });
   });
@@ -280,7 +413,11 @@ describe("analyzeRecording with --from/--to as clock times (records with date-ti
   const file = join(dir, "stamped.csv");
   writeFileSync(file, ["time,az [g]", ...Array.from(x, (v, i) => `${iso(i)},${v}`)].join("\n"));
   it("a time of day and a full date-time select the same window as seconds from the first sample", async () => {
-    const byClock = await analyzeRecording(file, { segmentLength: 256, fromClock: "14:03:02", toClock: "2024-05-17 14:03:05.5" });
+    const byClock = await analyzeRecording(file, {
+      segmentLength: 256,
+      fromClock: "14:03:02",
+      toClock: "2024-05-17 14:03:05.5",
+    });
     const bySeconds = await analyzeRecording(file, { segmentLength: 256, fromS: 2, toS: 5.5 });
     // The frame window is set at the head's provisional rate, so it lands within a sample of the time asked.
     expect(byClock.window.fromS).toBeCloseTo(2, 2);
@@ -290,9 +427,15 @@ describe("analyzeRecording with --from/--to as clock times (records with date-ti
     expect(Array.from(byClock.channels[0]!.psd.psd)).toEqual(Array.from(bySeconds.channels[0]!.psd.psd));
   });
   it("a clock time before the first sample, in another zone form, or on a record without date-time stamps is an option error", async () => {
-    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "14:02:59" })).rejects.toThrow(/option fromClock: expected a time at or after the first sample/);
-    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "2024-05-17T14:03:02Z" })).rejects.toThrow(/like the record's stamps \(without a zone\)/);
-    await expect(analyzeRecording("samples/kb210-run.wav", { fromClock: "14:03:02" })).rejects.toThrow(/a clock time needs a record with date-time stamps/);
+    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "14:02:59" })).rejects.toThrow(
+      /option fromClock: expected a time at or after the first sample/,
+    );
+    await expect(analyzeRecording(file, { segmentLength: 256, fromClock: "2024-05-17T14:03:02Z" })).rejects.toThrow(
+      /like the record's stamps \(without a zone\)/,
+    );
+    await expect(analyzeRecording("samples/kb210-run.wav", { fromClock: "14:03:02" })).rejects.toThrow(
+      /a clock time needs a record with date-time stamps/,
+    );
   });
 });
 
@@ -302,18 +445,59 @@ describe("the resolved analysis is recorded whole in the result (issue #10)", ()
     const file = join(dir, "rec.csv");
     const x = gaussian(20000, 7);
     // A semicolon file with decimal commas and a time column in ms: the dialect must be found, not assumed.
-    writeFileSync(file, "time [ms];az [mg];ay [mg]\n" + Array.from(x, (v, i) => `${(i * 0.5).toFixed(1).replace(".", ",")};${(1000 * v).toFixed(3).replace(".", ",")};${(500 * v).toFixed(3).replace(".", ",")}`).join("\n") + "\n");
-    const a = await analyzeRecording(file, { channels: ["ay"], segmentLength: 1024, overlap: 0.25, detrend: "linear", fromS: 1, toS: 8 });
+    writeFileSync(
+      file,
+      "time [ms];az [mg];ay [mg]\n" +
+        Array.from(
+          x,
+          (v, i) =>
+            `${(i * 0.5).toFixed(1).replace(".", ",")};${(1000 * v).toFixed(3).replace(".", ",")};${(500 * v).toFixed(3).replace(".", ",")}`,
+        ).join("\n") +
+        "\n",
+    );
+    const a = await analyzeRecording(file, {
+      channels: ["ay"],
+      segmentLength: 1024,
+      overlap: 0.25,
+      detrend: "linear",
+      fromS: 1,
+      toS: 8,
+    });
     const r = a.analysis;
-    expect(r.reading.dialect).toMatchObject({ delimiter: ";", decimal: ",", header: true, timeColumn: "time", timeUnitS: 0.001, rateFrom: "time column" });
+    expect(r.reading.dialect).toMatchObject({
+      delimiter: ";",
+      decimal: ",",
+      header: true,
+      timeColumn: "time",
+      timeUnitS: 0.001,
+      rateFrom: "time column",
+    });
     expect(r.channels).toEqual([expect.objectContaining({ name: "ay", position: 2, resultUnits: "g" })]);
     expect(r.channels[0]!.reading).toMatchObject({ fileUnit: "mg", unitFrom: "header", unitFactor: 0.001 });
-    expect(r.welch).toMatchObject({ window: "hann", segmentLength: 1024, overlap: 0.25, hop: 768, detrend: "linear", resolutionHz: 2000 / 1024 });
+    expect(r.welch).toMatchObject({
+      window: "hann",
+      segmentLength: 1024,
+      overlap: 0.25,
+      hop: 768,
+      detrend: "linear",
+      resolutionHz: 2000 / 1024,
+    });
     expect(r.window).toEqual({ fromS: 1, toS: 8 });
     const again = await analyzeRecording(file, {
-      csv: { delimiter: r.reading.dialect!.delimiter, decimal: r.reading.dialect!.decimal, timeColumn: r.reading.dialect!.timeColumn!, timeUnit: "ms" },
-      channels: r.channels.map((c) => String(c.position)), window: r.welch.window, segmentLength: r.welch.segmentLength, overlap: r.welch.overlap,
-      detrend: r.welch.detrend, confidence: r.welch.confidence, fromS: r.window.fromS, toS: r.window.toS,
+      csv: {
+        delimiter: r.reading.dialect!.delimiter,
+        decimal: r.reading.dialect!.decimal,
+        timeColumn: r.reading.dialect!.timeColumn!,
+        timeUnit: "ms",
+      },
+      channels: r.channels.map((c) => String(c.position)),
+      window: r.welch.window,
+      segmentLength: r.welch.segmentLength,
+      overlap: r.welch.overlap,
+      detrend: r.welch.detrend,
+      confidence: r.welch.confidence,
+      fromS: r.window.fromS,
+      toS: r.window.toS,
     });
     expect(Array.from(again.channels[0]!.psd.psd)).toEqual(Array.from(a.channels[0]!.psd.psd));
     const json = JSON.parse((await cli("psd", file, "-c", "ay", "--json")).stdout) as { analysis: typeof r };
@@ -327,7 +511,8 @@ describe("sample-and-hold on the shared pass (psd, check and ride all read it)",
   for (const factor of [2, 4]) {
     it(`held ${factor}x: HELD_SAMPLES names the update rate ${200 / factor} Hz; the repeated extremes raise no clipping doubt; check with a profile above its Nyquist is in doubt (HELD_BAND)`, async () => {
       const x: number[] = [];
-      for (const v of readings.subarray(0, (12000 * factor) / 4)) for (let j = 0; j < factor; j++) x.push(Math.fround(v));
+      for (const v of readings.subarray(0, (12000 * factor) / 4))
+        for (let j = 0; j < factor; j++) x.push(Math.fround(v));
       const file = join(tempDir(), `held-${factor}x.wav`);
       writeFileSync(file, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: 200, samples: x }));
       const a = await analyzeRecording(file, { segmentLength: 256 });
@@ -340,7 +525,18 @@ describe("sample-and-hold on the shared pass (psd, check and ride all read it)",
       expect(c.doubts.map((f) => f.code)).not.toContain("CLIPPING");
       const { checkRecording } = await import("../../src/analyses/checkRecording.js");
       const { parseProfile } = await import("../../src/compare/testProfile.js");
-      const profile = parseProfile(JSON.stringify({ title: "to 80 Hz", units: "g2/Hz", points: [{ hz: 5, level: 1e-5 }, { hz: 80, level: 1e-5 }], tolerance: { bands: [{ fromHz: 5, toHz: 80, upperDb: 3, lowerDb: 3 }] } }), "p.json");
+      const profile = parseProfile(
+        JSON.stringify({
+          title: "to 80 Hz",
+          units: "g2/Hz",
+          points: [
+            { hz: 5, level: 1e-5 },
+            { hz: 80, level: 1e-5 },
+          ],
+          tolerance: { bands: [{ fromHz: 5, toHz: 80, upperDb: 3, lowerDb: 3 }] },
+        }),
+        "p.json",
+      );
       const r = await checkRecording(file, profile, { inputUnits: "g", histogram: false });
       const band = r.channels[0]!.findings.find((f) => f.code === "HELD_BAND");
       expect(band?.values.nyquistHz).toBe(100 / factor);
@@ -359,8 +555,16 @@ describe("sample-and-hold on the shared pass (psd, check and ride all read it)",
 describe("the built-in statistics can be left out only without a spectrum (transfer's pass)", () => {
   it("statistics: false with spectrum: false leaves the channels' stats empty, says so in the resolved analysis, and the listeners hear every sample; with a spectrum it is ignored", async () => {
     const heard: number[] = [];
-    const listener: PassAccumulator<number> = { start: () => undefined, push: (_b, n) => void heard.push(n), finish: () => heard.reduce((s, n) => s + n, 0) };
-    const off = await analyzeRecording("samples/kb210-run-short.wav", { spectrum: false, statistics: false, accumulators: [listener] });
+    const listener: PassAccumulator<number> = {
+      start: () => undefined,
+      push: (_b, n) => void heard.push(n),
+      finish: () => heard.reduce((s, n) => s + n, 0),
+    };
+    const off = await analyzeRecording("samples/kb210-run-short.wav", {
+      spectrum: false,
+      statistics: false,
+      accumulators: [listener],
+    });
     expect(off.analysis.statistics).toBe(false);
     expect(off.channels[0]!.stats.count).toBe(0);
     expect(off.extras[0]).toBe(off.window.frames);

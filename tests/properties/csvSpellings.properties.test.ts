@@ -26,24 +26,45 @@ function cg(v: number, p: number): string {
   return f.includes(".") ? f.replace(/\.?0+$/, "") : f;
 }
 
-const magnitude = fc.tuple(fc.double({ min: -10, max: 10, noNaN: true }), fc.integer({ min: -12, max: 9 })).map(([m, e]) => m * 10 ** e);
+const magnitude = fc
+  .tuple(fc.double({ min: -10, max: 10, noNaN: true }), fc.integer({ min: -12, max: 9 }))
+  .map(([m, e]) => m * 10 ** e);
 const number = fc.oneof(
   fc.tuple(magnitude, fc.integer({ min: 0, max: 12 })).map(([x, k]) => x.toFixed(k)),
-  fc.tuple(magnitude, fc.integer({ min: 0, max: 16 }), fc.boolean()).map(([x, d, big]) => (big ? sci(x, d).toUpperCase() : sci(x, d))),
-  fc.tuple(fc.double({ noNaN: true, noDefaultInfinity: true }), fc.integer({ min: 0, max: 16 })).map(([x, d]) => x.toExponential(d)),
+  fc
+    .tuple(magnitude, fc.integer({ min: 0, max: 16 }), fc.boolean())
+    .map(([x, d, big]) => (big ? sci(x, d).toUpperCase() : sci(x, d))),
+  fc
+    .tuple(fc.double({ noNaN: true, noDefaultInfinity: true }), fc.integer({ min: 0, max: 16 }))
+    .map(([x, d]) => x.toExponential(d)),
   fc.tuple(magnitude, fc.integer({ min: 1, max: 17 })).map(([x, p]) => cg(x, p)),
-  fc.tuple(fc.double({ noNaN: true, noDefaultInfinity: true }), fc.integer({ min: 1, max: 17 })).map(([x, p]) => cg(x, p)),
+  fc
+    .tuple(fc.double({ noNaN: true, noDefaultInfinity: true }), fc.integer({ min: 1, max: 17 }))
+    .map(([x, p]) => cg(x, p)),
   fc.integer({ min: -8388608, max: 8388607 }).map(String),
-  fc.tuple(fc.constantFrom("", "+", "-"), fc.stringMatching(/^[0-9]{1,18}$/), fc.stringMatching(/^[0-9]{0,18}$/)).map(([s, i, f]) => `${s}${i}${f ? `.${f}` : ""}`),
+  fc
+    .tuple(fc.constantFrom("", "+", "-"), fc.stringMatching(/^[0-9]{1,18}$/), fc.stringMatching(/^[0-9]{0,18}$/))
+    .map(([s, i, f]) => `${s}${i}${f ? `.${f}` : ""}`),
 );
 
 const pad = (n: number, w: number) => String(n).padStart(w, "0");
 /** Stamps of one file: one zone form for all rows (a change of form is an error, tested elsewhere). */
 const stampRow = (zone: string) =>
-  fc.tuple(
-    fc.integer({ min: 1971, max: 2099 }), fc.integer({ min: 1, max: 12 }), fc.integer({ min: 1, max: 28 }), fc.integer({ min: 0, max: 23 }),
-    fc.integer({ min: 0, max: 59 }), fc.integer({ min: 0, max: 59 }), fc.stringMatching(/^[0-9]{0,9}$/), fc.constantFrom("T", " "),
-  ).map(([y, mo, d, h, mi, s, frac, sep]) => `${y}-${pad(mo, 2)}-${pad(d, 2)}${sep}${pad(h, 2)}:${pad(mi, 2)}:${pad(s, 2)}${frac ? `.${frac}` : ""}${zone}`);
+  fc
+    .tuple(
+      fc.integer({ min: 1971, max: 2099 }),
+      fc.integer({ min: 1, max: 12 }),
+      fc.integer({ min: 1, max: 28 }),
+      fc.integer({ min: 0, max: 23 }),
+      fc.integer({ min: 0, max: 59 }),
+      fc.integer({ min: 0, max: 59 }),
+      fc.stringMatching(/^[0-9]{0,9}$/),
+      fc.constantFrom("T", " "),
+    )
+    .map(
+      ([y, mo, d, h, mi, s, frac, sep]) =>
+        `${y}-${pad(mo, 2)}-${pad(d, 2)}${sep}${pad(h, 2)}:${pad(mi, 2)}:${pad(s, 2)}${frac ? `.${frac}` : ""}${zone}`,
+    );
 
 type Dialect = "point" | "comma" | "tab";
 const DIALECTS: Record<Dialect, { delimiter: CsvBodySpec["delimiter"]; decimal: "." | "," }> = {
@@ -53,7 +74,11 @@ const DIALECTS: Record<Dialect, { delimiter: CsvBodySpec["delimiter"]; decimal: 
 };
 
 /** Parse `text` in pieces cut after the given lines, as the body pass does (one parser, pieces in order). */
-function parseInPieces(spec: CsvBodySpec, text: string, cuts: number[]): { rows: number; cols: number[][]; minPlace: number; maxMant: number } {
+function parseInPieces(
+  spec: CsvBodySpec,
+  text: string,
+  cuts: number[],
+): { rows: number; cols: number[][]; minPlace: number; maxMant: number } {
   const buf = Buffer.from(text, "latin1");
   const parser = new CsvBodyParser(spec);
   const lineEnds: number[] = [];
@@ -83,10 +108,19 @@ describe("CSV spellings: every value is the reference double, on either path and
   for (const dialect of ["point", "comma", "tab"] as Dialect[]) {
     it(`numbers (fixed, scientific, %g, counts), ${dialect === "point" ? "',' and decimal point" : dialect === "comma" ? "';' and decimal comma" : "tab-delimited"}`, () => {
       const d = DIALECTS[dialect];
-      const spec: CsvBodySpec = { file: "p.csv", columns: 3, columnNames: ["t", "a", "b"], ...d, timeIndex: 0, selectColumns: [1, 2] };
+      const spec: CsvBodySpec = {
+        file: "p.csv",
+        columns: 3,
+        columnNames: ["t", "a", "b"],
+        ...d,
+        timeIndex: 0,
+        selectColumns: [1, 2],
+      };
       fc.assert(
         fc.property(
-          fc.array(fc.tuple(number, number, number), { minLength: 1, maxLength: 30 }), fc.constantFrom("\n", "\r\n"), fc.array(fc.nat(), { maxLength: 3 }),
+          fc.array(fc.tuple(number, number, number), { minLength: 1, maxLength: 30 }),
+          fc.constantFrom("\n", "\r\n"),
+          fc.array(fc.nat(), { maxLength: 3 }),
           (rows, end, cuts) => {
             const cells = rows.map((r) => r.map((v) => (d.decimal === "," ? v.replace(".", ",") : v)));
             const text = cells.map((r) => r.join(d.delimiter) + end).join("");
@@ -113,13 +147,33 @@ describe("CSV spellings: every value is the reference double, on either path and
       const d = DIALECTS[dialect];
       fc.assert(
         fc.property(
-          fc.constantFrom("", "Z", "+02:00", "-0530").chain((zone) => fc.array(fc.tuple(stampRow(zone), number, number), { minLength: 1, maxLength: 30 })),
-          fc.constantFrom("\n", "\r\n"), fc.array(fc.nat(), { maxLength: 3 }),
+          fc
+            .constantFrom("", "Z", "+02:00", "-0530")
+            .chain((zone) => fc.array(fc.tuple(stampRow(zone), number, number), { minLength: 1, maxLength: 30 })),
+          fc.constantFrom("\n", "\r\n"),
+          fc.array(fc.nat(), { maxLength: 3 }),
           (rows, end, cuts) => {
             const base = parseDateTimeText(rows[0]![0])!.days;
-            expect(base).toBe(daysFromCivil(Number(rows[0]![0].slice(0, 4)), Number(rows[0]![0].slice(5, 7)), Number(rows[0]![0].slice(8, 10))));
-            const spec: CsvBodySpec = { file: "p.csv", columns: 3, columnNames: ["t", "a", "b"], ...d, timeIndex: 0, selectColumns: [1, 2], timeDateTime: { baseDays: base } };
-            const cells = rows.map(([t, a, b]) => [t, ...[a, b].map((v) => (d.decimal === "," ? v.replace(".", ",") : v))]);
+            expect(base).toBe(
+              daysFromCivil(
+                Number(rows[0]![0].slice(0, 4)),
+                Number(rows[0]![0].slice(5, 7)),
+                Number(rows[0]![0].slice(8, 10)),
+              ),
+            );
+            const spec: CsvBodySpec = {
+              file: "p.csv",
+              columns: 3,
+              columnNames: ["t", "a", "b"],
+              ...d,
+              timeIndex: 0,
+              selectColumns: [1, 2],
+              timeDateTime: { baseDays: base },
+            };
+            const cells = rows.map(([t, a, b]) => [
+              t,
+              ...[a, b].map((v) => (d.decimal === "," ? v.replace(".", ",") : v)),
+            ]);
             const plain = parseInPieces(spec, cells.map((r) => r.join(d.delimiter) + end).join(""), cuts);
             const general = parseInPieces(spec, cells.map((r) => r.join(d.delimiter) + " " + end).join(""), []);
             expect(plain.rows).toBe(rows.length);
@@ -157,24 +211,58 @@ describe("CSV spellings: every value is the reference double, on either path and
     };
     const reference = (t: string, base: number) => {
       const m = /^(\d{4})-(\d\d)-(\d\d)[T ](\d\d):(\d\d):(\d\d)(?:\.(\d+))?(Z|[+-]\d\d:\d\d)?$/.exec(t)!;
-      const off = m[8] && m[8] !== "Z" ? (m[8][0] === "+" ? 1 : -1) * (Number(m[8].slice(1, 3)) * 3600 + Number(m[8].slice(4, 6)) * 60) : 0;
-      const whole = (daysFromCivil(Number(m[1]), Number(m[2]), Number(m[3])) - base) * 86400 + Number(m[4]) * 3600 + Number(m[5]) * 60 + Number(m[6]) - off;
+      const off =
+        m[8] && m[8] !== "Z"
+          ? (m[8][0] === "+" ? 1 : -1) * (Number(m[8].slice(1, 3)) * 3600 + Number(m[8].slice(4, 6)) * 60)
+          : 0;
+      const whole =
+        (daysFromCivil(Number(m[1]), Number(m[2]), Number(m[3])) - base) * 86400 +
+        Number(m[4]) * 3600 +
+        Number(m[5]) * 60 +
+        Number(m[6]) -
+        off;
       return m[7] ? whole + Number(m[7]) / 10 ** m[7].length : whole;
     };
     fc.assert(
       fc.property(
         fc.integer({ min: 0, max: 4e9 }),
         // Steps of up to 40 s (most rows share a minute), whole hours and days (the minute stays, the rest moves), or up to 27 h.
-        fc.oneof(fc.integer({ min: 1, max: 4e7 }), fc.integer({ min: 1, max: 48 }).map((h) => h * 3.6e9), fc.integer({ min: 1, max: 1e11 })), fc.integer({ min: 0, max: 6 }), fc.constantFrom("T", " "), fc.constantFrom("", "Z", "+02:00"),
+        fc.oneof(
+          fc.integer({ min: 1, max: 4e7 }),
+          fc.integer({ min: 1, max: 48 }).map((h) => h * 3.6e9),
+          fc.integer({ min: 1, max: 1e11 }),
+        ),
+        fc.integer({ min: 0, max: 6 }),
+        fc.constantFrom("T", " "),
+        fc.constantFrom("", "Z", "+02:00"),
         fc.array(fc.nat(), { maxLength: 3 }),
         (startS, stepUs, frac, sep, zone, cuts) => {
           const t0 = (1.7e9 + startS) * 1e6 - 3e7; // about 30 s before a minute boundary of some day from 2023 on
           const stamps = Array.from({ length: 40 }, (_, i) => toText(t0 + i * stepUs, frac, sep, zone));
-          const base = daysFromCivil(Number(stamps[0]!.slice(0, 4)), Number(stamps[0]!.slice(5, 7)), Number(stamps[0]!.slice(8, 10)));
-          const spec: CsvBodySpec = { file: "p.csv", columns: 3, columnNames: ["t", "a", "b"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1, 2], timeDateTime: { baseDays: base } };
+          const base = daysFromCivil(
+            Number(stamps[0]!.slice(0, 4)),
+            Number(stamps[0]!.slice(5, 7)),
+            Number(stamps[0]!.slice(8, 10)),
+          );
+          const spec: CsvBodySpec = {
+            file: "p.csv",
+            columns: 3,
+            columnNames: ["t", "a", "b"],
+            delimiter: ",",
+            decimal: ".",
+            timeIndex: 0,
+            selectColumns: [1, 2],
+            timeDateTime: { baseDays: base },
+          };
           const plain = parseInPieces(spec, stamps.map((t, i) => `${t},${i},-${i}.5\n`).join(""), cuts);
           expect(plain.rows).toBe(stamps.length);
-          expect(same(plain.cols[0]!, stamps.map((t) => reference(t, base))), "stamps").toBe(true);
+          expect(
+            same(
+              plain.cols[0]!,
+              stamps.map((t) => reference(t, base)),
+            ),
+            "stamps",
+          ).toBe(true);
           // The same prefix as the row before, then seconds 60: an error on its line, after the prefix was reused.
           const bad = stamps[1]!.slice(0, 17) + "60" + stamps[1]!.slice(19);
           const text = `${stamps[0]},1,2\n${stamps[1]},1,2\n${bad},1,2\n`;
@@ -186,8 +274,19 @@ describe("CSV spellings: every value is the reference double, on either path and
   });
 
   it("a stamp whose zone form differs from the rows before is an error on the plain path too", () => {
-    const spec: CsvBodySpec = { file: "p.csv", columns: 2, columnNames: ["t", "a"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1], timeDateTime: { baseDays: daysFromCivil(2026, 3, 9) } };
+    const spec: CsvBodySpec = {
+      file: "p.csv",
+      columns: 2,
+      columnNames: ["t", "a"],
+      delimiter: ",",
+      decimal: ".",
+      timeIndex: 0,
+      selectColumns: [1],
+      timeDateTime: { baseDays: daysFromCivil(2026, 3, 9) },
+    };
     const text = "2026-03-09T08:15:00.000,1\n2026-03-09T08:15:00.001,2\n2026-03-09T08:15:00.002Z,3\n";
-    expect(() => new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 2)).toThrow(/line 4.*CSV_TIME_FORMAT|CSV_TIME_FORMAT.*line 4|time zone/);
+    expect(() => new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 2)).toThrow(
+      /line 4.*CSV_TIME_FORMAT|CSV_TIME_FORMAT.*line 4|time zone/,
+    );
   });
 });

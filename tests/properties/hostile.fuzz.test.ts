@@ -41,7 +41,8 @@ function randomWav(u: () => number): Buffer {
   for (const id of layout.split("-")) {
     if (id === "fmt") parts.push(chunk("fmt ", fmt));
     else if (id === "data") parts.push(chunk("data", data));
-    else parts.push(chunk(pick(["LIST", "JUNK", "bext", "\u0000\u0000\u0000\u0000"]), Buffer.alloc(Math.floor(u() * 9))));
+    else
+      parts.push(chunk(pick(["LIST", "JUNK", "bext", "\u0000\u0000\u0000\u0000"]), Buffer.alloc(Math.floor(u() * 9))));
   }
   const body = Buffer.concat(parts);
   const riff = Buffer.alloc(12);
@@ -74,17 +75,27 @@ describe("fuzzing hostile layouts (seeded)", () => {
 
   it("profiles: 200 random nestings from 1 to 5000 deep, JSON and YAML, flow and block, end in a profile or an InputError", () => {
     const u = seeded(77);
-    const base = { title: "nest", units: "g2/Hz", points: [{ hz: 20, level: 0.01 }, { hz: 2000, level: 0.01 }], tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 } };
+    const base = {
+      title: "nest",
+      units: "g2/Hz",
+      points: [
+        { hz: 20, level: 0.01 },
+        { hz: 2000, level: 0.01 },
+      ],
+      tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 },
+    };
     const codes = new Set<string>();
     for (let k = 0; k < 200; k++) {
       const depth = 1 + Math.floor(u() ** 3 * 5000);
-      const open = u() < 0.5 ? "[" : "{\"a\":";
+      const open = u() < 0.5 ? "[" : '{"a":';
       const close = open === "[" ? "]" : "}";
       const nested = `${open.repeat(depth)}1${close.repeat(depth)}`;
       const kind = Math.floor(u() * 3);
       const text =
-        kind === 0 ? JSON.stringify({ ...base, description: "x" }).replace('"x"', nested)
-          : kind === 1 ? `title: nest\nunits: g2/Hz\nextra: ${nested}\n`
+        kind === 0
+          ? JSON.stringify({ ...base, description: "x" }).replace('"x"', nested)
+          : kind === 1
+            ? `title: nest\nunits: g2/Hz\nextra: ${nested}\n`
             : `title: nest\n${Array.from({ length: Math.min(depth, 300) }, (_, i) => `${" ".repeat(i)}k${i}:`).join("\n")} 1\n`;
       try {
         parseProfile(text, kind === 0 ? "n.json" : "n.yaml");

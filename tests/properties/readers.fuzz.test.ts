@@ -18,7 +18,11 @@ function mutate(src: Buffer, u: () => number): Buffer {
   }
   if (kind === 1) return b.subarray(0, Math.floor(u() * b.length));
   const at = Math.floor(u() * b.length);
-  const ins = Buffer.from(Array.from({ length: 1 + Math.floor(u() * 16) }, () => (kind === 2 ? Math.floor(u() * 256) : " ,;.-e0123456789\n\r\"#"[Math.floor(u() * 20)]!.charCodeAt(0))));
+  const ins = Buffer.from(
+    Array.from({ length: 1 + Math.floor(u() * 16) }, () =>
+      kind === 2 ? Math.floor(u() * 256) : ' ,;.-e0123456789\n\r"#'[Math.floor(u() * 20)]!.charCodeAt(0),
+    ),
+  );
   return Buffer.concat([b.subarray(0, at), ins, b.subarray(at)]);
 }
 
@@ -43,7 +47,8 @@ async function outcome(file: string): Promise<"ok" | "input-error"> {
 describe("fuzzing the readers (seeded mutations; every run ends in a result or a typed input error)", () => {
   it("CSV: 300 mutations of a valid logger export", async () => {
     let s = "# export\ntime,ax [g],ay [g]\n";
-    for (let i = 0; i < 200; i++) s += `${(i / 100).toFixed(2)},${Math.sin(i).toFixed(5)},${Math.cos(i * 0.3).toFixed(5)}\n`;
+    for (let i = 0; i < 200; i++)
+      s += `${(i / 100).toFixed(2)},${Math.sin(i).toFixed(5)},${Math.cos(i * 0.3).toFixed(5)}\n`;
     const src = Buffer.from(s);
     const u = seeded(1234);
     const seen = { ok: 0, "input-error": 0 };
@@ -58,9 +63,24 @@ describe("fuzzing the readers (seeded mutations; every run ends in a result or a
   it("WAV: 300 mutations of valid PCM 16, PCM 24 and float files", async () => {
     const u = seeded(99);
     const srcs = [
-      wavBytes({ bits: 16, channels: 2, samples: Array.from({ length: 256 }, (_, i) => Math.round(9000 * Math.sin(i))) }),
-      wavBytes({ bits: 24, channels: 1, samples: Array.from({ length: 128 }, (_, i) => Math.round(4e6 * Math.sin(i))), extraChunks: [["LIST", Buffer.from("abc")]] }),
-      wavBytes({ tag: 3, bits: 32, channels: 1, samples: Array.from({ length: 128 }, (_, i) => Math.sin(i)), extensible: true }),
+      wavBytes({
+        bits: 16,
+        channels: 2,
+        samples: Array.from({ length: 256 }, (_, i) => Math.round(9000 * Math.sin(i))),
+      }),
+      wavBytes({
+        bits: 24,
+        channels: 1,
+        samples: Array.from({ length: 128 }, (_, i) => Math.round(4e6 * Math.sin(i))),
+        extraChunks: [["LIST", Buffer.from("abc")]],
+      }),
+      wavBytes({
+        tag: 3,
+        bits: 32,
+        channels: 1,
+        samples: Array.from({ length: 128 }, (_, i) => Math.sin(i)),
+        extensible: true,
+      }),
     ];
     for (let k = 0; k < 300; k++) {
       const f = join(dir, `f${k}.wav`);

@@ -29,13 +29,16 @@ describe("dbTarget", () => {
     expect(codeOf(() => dbTarget(undefined, {}))).toBe("DB_NOT_GIVEN");
   });
   it("redact blanks user:password@ in any postgres URL in a text", () => {
-    expect(redact("at postgres://u:secret@h/d and postgresql://v:x@h2/d2", undefined)).toBe("at postgres://u:***@h/d and postgresql://v:***@h2/d2");
+    expect(redact("at postgres://u:secret@h/d and postgresql://v:x@h2/d2", undefined)).toBe(
+      "at postgres://u:***@h/d and postgresql://v:***@h2/d2",
+    );
   });
   it("a password in the URL's query string (?password=, &sslpassword=) is kept out of the label and blanked in any text; a URL with a password warns", () => {
     const t = dbTarget("postgres://u@h:5432/d?sslmode=disable&password=s3cr%21t&sslpassword=k3y", {});
     expect(t.label).toBe("postgres://u@h:5432/d?sslmode=disable");
     expect(t.warning).toMatch(/carries a password.*PGPASSWORD, a ~\/\.pgpass file or a service file/);
-    const err = 'connect failed for postgres://u@h:5432/d?sslmode=disable&password=s3cr%21t&sslpassword=k3y: password "s3cr!t" rejected';
+    const err =
+      'connect failed for postgres://u@h:5432/d?sslmode=disable&password=s3cr%21t&sslpassword=k3y: password "s3cr!t" rejected';
     const shown = redact(err, t);
     expect(shown).not.toMatch(/s3cr|k3y/);
     expect(redact("host=h password='a b\\'c' dbname=d", undefined)).toBe("host=h password=*** dbname=d");

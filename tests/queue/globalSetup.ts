@@ -19,7 +19,9 @@ export async function setup(project: TestProject): Promise<void> {
   }
   const bin = findPostgresBin();
   if (!bin) {
-    project.provide("postgres", { missing: "no PostgreSQL server binaries (initdb, pg_ctl) on this machine; apt-get install postgresql" });
+    project.provide("postgres", {
+      missing: "no PostgreSQL server binaries (initdb, pg_ctl) on this machine; apt-get install postgresql",
+    });
     return;
   }
   try {
@@ -27,7 +29,9 @@ export async function setup(project: TestProject): Promise<void> {
     project.provide("postgres", { url: server.url });
   } catch (e) {
     const err = e as Error & { stderr?: Buffer };
-    project.provide("postgres", { missing: `PostgreSQL from ${bin} did not start: ${(err.stderr?.toString() || err.message).trim().split("\n").slice(-3).join(" ")}` });
+    project.provide("postgres", {
+      missing: `PostgreSQL from ${bin} did not start: ${(err.stderr?.toString() || err.message).trim().split("\n").slice(-3).join(" ")}`,
+    });
   }
 }
 

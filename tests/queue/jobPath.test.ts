@@ -28,20 +28,32 @@ describe("resolveJobPath", () => {
     expect(await resolveJobPath(root, "runs/in.csv", "recording")).toMatch(/root\/runs\/a\.csv$/);
   });
   it("refuses an absolute path, a climb out with '..' and a link that leads out, with JOB_PATH_REFUSED", async () => {
-    expect(await code(resolveJobPath(root, join(root, "runs", "a.csv"), "recording"))).toMatch(/^JOB_PATH_REFUSED: .*received an absolute path/);
-    expect(await code(resolveJobPath(root, "../secret.txt", "recording"))).toMatch(/^JOB_PATH_REFUSED: .*leaves the root/);
+    expect(await code(resolveJobPath(root, join(root, "runs", "a.csv"), "recording"))).toMatch(
+      /^JOB_PATH_REFUSED: .*received an absolute path/,
+    );
+    expect(await code(resolveJobPath(root, "../secret.txt", "recording"))).toMatch(
+      /^JOB_PATH_REFUSED: .*leaves the root/,
+    );
     expect(await code(resolveJobPath(root, "runs/../../secret.txt", "recording"))).toMatch(/^JOB_PATH_REFUSED/);
-    expect(await code(resolveJobPath(root, "runs/out.csv", "recording"))).toMatch(/^JOB_PATH_REFUSED: runs\/out\.csv: .*link that leads out/);
+    expect(await code(resolveJobPath(root, "runs/out.csv", "recording"))).toMatch(
+      /^JOB_PATH_REFUSED: runs\/out\.csv: .*link that leads out/,
+    );
   });
   it("a missing file is FILE_UNREADABLE named by the job's path", async () => {
-    expect(await code(resolveJobPath(root, "runs/gone.csv", "recording"))).toMatch(/^FILE_UNREADABLE: runs\/gone\.csv: .*no such file/);
+    expect(await code(resolveJobPath(root, "runs/gone.csv", "recording"))).toMatch(
+      /^FILE_UNREADABLE: runs\/gone\.csv: .*no such file/,
+    );
   });
 });
 
 describe("jobPathOf", () => {
   it("jobPathOf(root, file) is the path relative to the root with forward slashes; a file outside is refused", async () => {
     expect(await jobPathOf(root, join(root, "runs", "a.csv"), "--root")).toBe("runs/a.csv");
-    expect(await code(jobPathOf(root, join(base, "secret.txt"), "--root"))).toMatch(/^JOB_PATH_REFUSED: .*inside the root/);
-    expect(await code(jobPathOf(join(base, "nope"), join(root, "runs", "a.csv"), "--root"))).toMatch(/^FILE_UNREADABLE: .*--root/);
+    expect(await code(jobPathOf(root, join(base, "secret.txt"), "--root"))).toMatch(
+      /^JOB_PATH_REFUSED: .*inside the root/,
+    );
+    expect(await code(jobPathOf(join(base, "nope"), join(root, "runs", "a.csv"), "--root"))).toMatch(
+      /^FILE_UNREADABLE: .*--root/,
+    );
   });
 });

@@ -17,7 +17,13 @@ export interface TestServer {
   stop(): void;
 }
 
-const BIN_DIRS = ["/usr/lib/postgresql/17/bin", "/usr/lib/postgresql/16/bin", "/usr/lib/postgresql/15/bin", "/usr/local/bin", "/usr/bin"];
+const BIN_DIRS = [
+  "/usr/lib/postgresql/17/bin",
+  "/usr/lib/postgresql/16/bin",
+  "/usr/lib/postgresql/15/bin",
+  "/usr/local/bin",
+  "/usr/bin",
+];
 
 export function findPostgresBin(): string | undefined {
   for (const d of BIN_DIRS) if (existsSync(join(d, "initdb")) && existsSync(join(d, "pg_ctl"))) return d;
@@ -42,7 +48,9 @@ export async function startTestServer(bin: string): Promise<TestServer> {
   const dir = mkdtempSync(join(tmpdir(), "psdgate-pg-"));
   const asRoot = userInfo().uid === 0;
   const run = (cmd: string, args: string[]) =>
-    asRoot ? execFileSync("runuser", ["-u", "postgres", "--", join(bin, cmd), ...args], { stdio: "pipe" }) : execFileSync(join(bin, cmd), args, { stdio: "pipe" });
+    asRoot
+      ? execFileSync("runuser", ["-u", "postgres", "--", join(bin, cmd), ...args], { stdio: "pipe" })
+      : execFileSync(join(bin, cmd), args, { stdio: "pipe" });
   if (asRoot) {
     const pw = execFileSync("id", ["-u", "postgres"], { encoding: "utf8" }).trim();
     const gid = execFileSync("id", ["-g", "postgres"], { encoding: "utf8" }).trim();
@@ -52,7 +60,19 @@ export async function startTestServer(bin: string): Promise<TestServer> {
   const data = join(dir, "db");
   run("initdb", ["-D", data, "-A", "trust", "-U", "postgres", "--no-sync"]);
   const port = await freePort();
-  const start = () => run("pg_ctl", ["-D", data, "-w", "-t", "60", "-o", `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=100`, "-l", join(dir, "log"), "start"]);
+  const start = () =>
+    run("pg_ctl", [
+      "-D",
+      data,
+      "-w",
+      "-t",
+      "60",
+      "-o",
+      `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=100`,
+      "-l",
+      join(dir, "log"),
+      "start",
+    ]);
   start();
   return {
     url: `postgres://postgres@127.0.0.1:${port}/postgres`,

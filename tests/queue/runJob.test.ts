@@ -32,7 +32,13 @@ describe("runJob", () => {
     if (o.ok) expect(o.verdict).toBe(null);
   });
   it("runJob(check job) gives checkJson's line and the verdict, profile named by the job's path", async () => {
-    const job: Job = { kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } };
+    const job: Job = {
+      kind: "check",
+      file: "runs/short.wav",
+      sha256: sha,
+      options: {},
+      profile: { path: "specs/kb210.json", sha256: profile.sha256 },
+    };
     const o = await runJob(job, { root, profiles: new Map() });
     const r = await checkRecording("samples/kb210-run-short.wav", profile, { histogram: false });
     const expected = checkJson(r, VERSION);
@@ -41,18 +47,32 @@ describe("runJob", () => {
     expected.profile.file = "specs/kb210.json";
     expect(JSON.stringify(o.line)).toBe(JSON.stringify(expected));
     expect(o.ok && o.verdict).toBe("inconclusive");
-    if (o.ok) expect(o.figures.channels[0]).toMatchObject({ name: "ch1", verdict: "inconclusive", rms: r.channels[0]!.rms.measured, dof: r.analysis.channels[0]!.psd.dof });
+    if (o.ok)
+      expect(o.figures.channels[0]).toMatchObject({
+        name: "ch1",
+        verdict: "inconclusive",
+        rms: r.channels[0]!.rms.measured,
+        dof: r.analysis.channels[0]!.psd.dof,
+      });
   });
   it("runJob(check job, { reportDir }) writes the HTML report at the job's path and gives the same line", async () => {
     const reportDir = join(tempDir(), "reports");
-    const job: Job = { kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } };
+    const job: Job = {
+      kind: "check",
+      file: "runs/short.wav",
+      sha256: sha,
+      options: {},
+      profile: { path: "specs/kb210.json", sha256: profile.sha256 },
+    };
     const plain = await runJob(job, { root });
     const o = await runJob(job, { root, reportDir });
     expect(o.ok && o.report).toBe("runs/short.html");
     // The same line but for the recorded analysis, which says the report's histogram was made.
     const line = o.line as { analysis: { histogram: boolean } };
     expect(line.analysis.histogram).toBe(true);
-    expect(JSON.stringify({ ...line, analysis: { ...line.analysis, histogram: false } })).toBe(JSON.stringify(plain.line));
+    expect(JSON.stringify({ ...line, analysis: { ...line.analysis, histogram: false } })).toBe(
+      JSON.stringify(plain.line),
+    );
     const html = readFileSync(join(reportDir, "runs", "short.html"), "utf8");
     expect(html).toMatch(/^<!DOCTYPE html>/i);
     expect(html).toContain("runs/short.wav");
@@ -60,13 +80,20 @@ describe("runJob", () => {
   });
   it("an input error is an outcome with its code and the batch's error line, named by the job's path", async () => {
     // Its real SHA-256: the file's identity is checked before it is read as a recording.
-    const badSha = (await import("node:crypto")).createHash("sha256").update(readFileSync(join(root, "runs", "bad.csv"))).digest("hex");
+    const badSha = (await import("node:crypto"))
+      .createHash("sha256")
+      .update(readFileSync(join(root, "runs", "bad.csv")))
+      .digest("hex");
     const o = await runJob({ kind: "psd", file: "runs/bad.csv", sha256: badSha, options: {} }, { root });
     expect(o.ok).toBe(false);
     if (!o.ok) {
       expect(o.error.code).toBe("CSV_NOT_A_NUMBER");
       expect(o.error.message).toMatch(/^runs\/bad\.csv:3:2 \(ax\): expected a number/);
-      expect(o.line).toEqual({ tool: { name: "psdgate", version: VERSION }, input: { file: "runs/bad.csv" }, error: { code: o.error.code, message: o.error.message } });
+      expect(o.line).toEqual({
+        tool: { name: "psdgate", version: VERSION },
+        input: { file: "runs/bad.csv" },
+        error: { code: o.error.code, message: o.error.message },
+      });
       // The outcome carries the error in its wire form: the same InputError rebuilds from it on the other side.
       expect(o.error.details).toMatchObject({ file: "runs/bad.csv", line: 3, column: 2, field: "ax" });
       const back = errorFromWire(o.error);
@@ -75,9 +102,21 @@ describe("runJob", () => {
     }
   });
   it("a recording or profile changed since it was queued, and a path out of the root, are refused", async () => {
-    const changed = await runJob({ kind: "psd", file: "runs/short.wav", sha256: "f".repeat(64), options: {} }, { root });
+    const changed = await runJob(
+      { kind: "psd", file: "runs/short.wav", sha256: "f".repeat(64), options: {} },
+      { root },
+    );
     expect(!changed.ok && changed.error.code).toBe("RECORDING_CHANGED");
-    const prof = await runJob({ kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: "e".repeat(64) } }, { root });
+    const prof = await runJob(
+      {
+        kind: "check",
+        file: "runs/short.wav",
+        sha256: sha,
+        options: {},
+        profile: { path: "specs/kb210.json", sha256: "e".repeat(64) },
+      },
+      { root },
+    );
     expect(!prof.ok && prof.error.code).toBe("PROFILE_CHANGED");
     const out = await runJob({ kind: "psd", file: "../x.wav", sha256: sha, options: {} }, { root });
     expect(!out.ok && out.error.code).toBe("JOB_PATH_REFUSED");
@@ -92,7 +131,11 @@ describe("runJob", () => {
     const r = await runJob({ kind: "psd", file: "runs/swapped.wav", sha256: sha, bytes, options: {} }, { root });
     expect(Date.now() - t0).toBeLessThan(1000);
     expect(!r.ok && r.error.code).toBe("RECORDING_CHANGED");
-    expect(!r.ok && r.error.message).toMatch(new RegExp(`runs/swapped\\.wav: expected the recording queued with SHA-256 ${sha} \\(${bytes} bytes\\), received 42949672960 bytes`));
+    expect(!r.ok && r.error.message).toMatch(
+      new RegExp(
+        `runs/swapped\\.wav: expected the recording queued with SHA-256 ${sha} \\(${bytes} bytes\\), received 42949672960 bytes`,
+      ),
+    );
     // The same size but other bytes: the streamed SHA-256 refuses it before the analysis.
     const same = join(root, "runs", "same-size.wav");
     writeFileSync(same, Buffer.alloc(bytes, 7));
@@ -104,7 +147,16 @@ describe("runJob", () => {
     const reportDir = tempDir();
     const outside = tempDir();
     symlinkSync(outside, join(reportDir, "runs"));
-    const r = await runJob({ kind: "check", file: "runs/short.wav", sha256: sha, options: {}, profile: { path: "specs/kb210.json", sha256: profile.sha256 } }, { root, reportDir });
+    const r = await runJob(
+      {
+        kind: "check",
+        file: "runs/short.wav",
+        sha256: sha,
+        options: {},
+        profile: { path: "specs/kb210.json", sha256: profile.sha256 },
+      },
+      { root, reportDir },
+    );
     expect(!r.ok && r.error.code).toBe("JOB_PATH_REFUSED");
     expect(!r.ok && r.error.message).toMatch(/option --report-dir|report folder inside/);
     expect(readdirSync(outside)).toEqual([]);

@@ -9,7 +9,15 @@ import { CsvBodyParser, type CsvBodySpec } from "../../src/read/csvBody.js";
 import { HASH_ON_READER_BYTES_PER_VALUE } from "../../src/read/csvBodyPass.js";
 import { seeded, tempDir } from "../helpers.js";
 
-const spec: CsvBodySpec = { file: "body.csv", columns: 3, columnNames: ["t", "a", "b"], delimiter: ",", decimal: ".", timeIndex: 0, selectColumns: [1, 2] };
+const spec: CsvBodySpec = {
+  file: "body.csv",
+  columns: 3,
+  columnNames: ["t", "a", "b"],
+  delimiter: ",",
+  decimal: ".",
+  timeIndex: 0,
+  selectColumns: [1, 2],
+};
 
 /** Lines in many spellings: most plain (the tight loop), some that only the general path reads. */
 function mixedBody(rows: number, seed: number): { text: string; a: number[]; b: number[]; t: number[] } {
@@ -23,7 +31,16 @@ function mixedBody(rows: number, seed: number): { text: string; a: number[]; b: 
     const y = (u() - 0.5) * 100;
     const k = Math.floor(u() * 12);
     // Spellings: plain fixed, +sign, 15 and 16 digits, exponent, leading/trailing spaces, CRLF, no integer part.
-    const xs = [x.toFixed(6), `+${Math.abs(x).toFixed(3)}`, x.toPrecision(15), x.toPrecision(16), x.toExponential(5), ` ${x.toFixed(2)}`, x.toFixed(0), `${x < 0 ? "-" : ""}.${Math.abs(x).toFixed(4).split(".")[1]}`][k % 8]!;
+    const xs = [
+      x.toFixed(6),
+      `+${Math.abs(x).toFixed(3)}`,
+      x.toPrecision(15),
+      x.toPrecision(16),
+      x.toExponential(5),
+      ` ${x.toFixed(2)}`,
+      x.toFixed(0),
+      `${x < 0 ? "-" : ""}.${Math.abs(x).toFixed(4).split(".")[1]}`,
+    ][k % 8]!;
     const ys = k === 9 ? `${y.toFixed(4)} ` : y.toFixed(9);
     const ts = (i * 0.001).toFixed(3);
     if (k === 10) lines.push("# a comment between rows");
@@ -58,7 +75,7 @@ describe("CsvBodyParser: the plain-row loop and the general path", () => {
   });
 
   it("scientific stamps: the resolution is the place of the last digit from digits and exponent (1.000020E+01: 1e-5), on both paths", () => {
-    const text = "1.000000E+01,1,2\n1.000020E+01,1.5e-3,2E2\n1.000040E+01,\"3\",4\n";
+    const text = '1.000000E+01,1,2\n1.000020E+01,1.5e-3,2E2\n1.000040E+01,"3",4\n';
     const piece = new CsvBodyParser(spec).parse(Buffer.from(text), 0, text.length, 1);
     expect(piece.rows).toBe(3);
     expect(piece.timeMinPlace).toBe(-5);
@@ -98,14 +115,26 @@ describe("CsvBodyParser: the plain-row loop and the general path", () => {
 
 describe("CSV read on the parse worker (built code)", () => {
   const dir = tempDir();
-  for (const [name, tail] of [["ends with a newline", "\n"], ["last line without newline", ""], ["CRLF", "\r\n"]] as const) {
+  for (const [name, tail] of [
+    ["ends with a newline", "\n"],
+    ["last line without newline", ""],
+    ["CRLF", "\r\n"],
+  ] as const) {
     it(`the worker's SHA-256 is the file's (${name}) and the columns equal this thread's`, async () => {
       const body = mixedBody(60000, 3);
-      const text = "# rig 4, run 17\nt,a,b\n" + body.text.replace(/\n$/, "").split("\n").join(tail === "\r\n" ? "\r\n" : "\n") + tail;
+      const text =
+        "# rig 4, run 17\nt,a,b\n" +
+        body.text
+          .replace(/\n$/, "")
+          .split("\n")
+          .join(tail === "\r\n" ? "\r\n" : "\n") +
+        tail;
       const file = join(dir, `w${name.length}.csv`);
       writeFileSync(file, text);
       const read = async (parseWorkers: number) => {
-        const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+        const { openCsvTimeHistory } = (await import(
+          resolve("dist/read/csvTimeHistory.js")
+        )) as typeof import("../../src/read/csvTimeHistory.js");
         const src = await openCsvTimeHistory(file, { parseWorkers });
         const cols: number[][] = [[], []];
         const s = await src.read([0, 1], (ch, n) => ch.forEach((c, i) => cols[i]!.push(...c.subarray(0, n))));
@@ -121,7 +150,10 @@ describe("CSV read on the parse worker (built code)", () => {
       expect(inWorker.cols).toEqual(here.cols);
     });
   }
-  for (const [name, spell, wide] of [["integer counts", (x: number) => String(Math.round(x * 1000)), false], ["%.17e", (x: number) => x.toExponential(17), true]] as const) {
+  for (const [name, spell, wide] of [
+    ["integer counts", (x: number) => String(Math.round(x * 1000)), false],
+    ["%.17e", (x: number) => x.toExponential(17), true],
+  ] as const) {
     it(`the SHA-256 on either thread (${name}: ${wide ? "many" : "few"} bytes a value, so the ${wide ? "reader" : "worker"} hashes)`, async () => {
       // csvParseWorker.ts hashes on the reader's thread when the first piece has more than
       // HASH_ON_READER_BYTES_PER_VALUE file bytes a selected value, else on the worker: both give the file's hash.
@@ -132,7 +164,9 @@ describe("CSV read on the parse worker (built code)", () => {
       writeFileSync(file, text);
       const perValue = Buffer.byteLength(text) / (rows.length * 2);
       expect(wide ? perValue > HASH_ON_READER_BYTES_PER_VALUE : perValue < HASH_ON_READER_BYTES_PER_VALUE).toBe(true);
-      const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+      const { openCsvTimeHistory } = (await import(
+        resolve("dist/read/csvTimeHistory.js")
+      )) as typeof import("../../src/read/csvTimeHistory.js");
       const read = async (parseWorkers: number) => {
         const src = await openCsvTimeHistory(file, { parseWorkers });
         const cols: number[][] = [[], []];
@@ -153,7 +187,9 @@ describe("CSV read on the parse worker (built code)", () => {
     lines.splice(20000, 0, "# " + "x".repeat(1_040_000));
     const file = join(dir, "long-comment.csv");
     writeFileSync(file, "t,a,b\n" + lines.join("\n"));
-    const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+    const { openCsvTimeHistory } = (await import(
+      resolve("dist/read/csvTimeHistory.js")
+    )) as typeof import("../../src/read/csvTimeHistory.js");
     const read = async (parseWorkers: number) => {
       const src = await openCsvTimeHistory(file, { parseWorkers });
       const cols: number[][] = [[], []];
@@ -169,7 +205,12 @@ describe("CSV read on the parse worker (built code)", () => {
     writeFileSync(file, "t,a,b\n" + lines.join("\n"));
     const message = async (parseWorkers: number) => {
       const src = await openCsvTimeHistory(file, { parseWorkers });
-      return src.read([0, 1], () => undefined).then(() => "read", (e: Error) => e.message);
+      return src
+        .read([0, 1], () => undefined)
+        .then(
+          () => "read",
+          (e: Error) => e.message,
+        );
     };
     const [w, h] = [await message(1), await message(0)];
     expect(w).toMatch(/long-comment\.csv:50002:1 .*CSV_NOT_A_NUMBER/);
@@ -191,7 +232,9 @@ describe("CSV read on the parse worker (built code)", () => {
   it("close() ends the waiting worker; a read after it parses in this thread", async () => {
     const file = join(dir, "closed.csv");
     writeFileSync(file, "t [s],a\n0,1\n0.5,2\n1,3\n");
-    const { openCsvTimeHistory } = (await import(resolve("dist/read/csvTimeHistory.js"))) as typeof import("../../src/read/csvTimeHistory.js");
+    const { openCsvTimeHistory } = (await import(
+      resolve("dist/read/csvTimeHistory.js")
+    )) as typeof import("../../src/read/csvTimeHistory.js");
     const src = await openCsvTimeHistory(file, { parseWorkers: 1 });
     await src.close!();
     const got: number[] = [];

@@ -21,12 +21,18 @@ function csv(text: string | Buffer, ext = "csv"): string {
 async function readCsv(p: string, opts: CsvReadOptions = {}) {
   const src = await openCsvTimeHistory(p, "timeUnit" in opts ? opts : { timeUnit: "s", ...opts });
   const out: number[][] = src.info.channels.map(() => []);
-  const s = await src.read(src.info.channels.map((_, i) => i), (ch, n) => ch.forEach((c, i) => out[i]!.push(...c.subarray(0, n))));
+  const s = await src.read(
+    src.info.channels.map((_, i) => i),
+    (ch, n) => ch.forEach((c, i) => out[i]!.push(...c.subarray(0, n))),
+  );
   return { info: src.info, channels: out, summary: s };
 }
 
 async function failure(p: string, opts: CsvReadOptions = {}): Promise<InputError> {
-  const e = await readCsv(p, opts).then(() => undefined, (x: unknown) => x);
+  const e = await readCsv(p, opts).then(
+    () => undefined,
+    (x: unknown) => x,
+  );
   expect(e).toBeInstanceOf(InputError);
   return e as InputError;
 }
@@ -34,8 +40,14 @@ async function failure(p: string, opts: CsvReadOptions = {}): Promise<InputError
 describe("openCsvTimeHistory: dialects", () => {
   it("comma, header with time column and units: channels, declared units, rate from the time column", async () => {
     const r = await readCsv(csv("time [s],accel [g],a_z (m/s^2)\n0,1,2\n0.001,3,4\n0.002,5,6\n"));
-    expect(r.info.channels.map((c) => [c.name, c.declaredUnit])).toEqual([["accel", "g"], ["a_z", "m/s2"]]);
-    expect(r.channels).toEqual([[1, 3, 5], [2, 4, 6]]);
+    expect(r.info.channels.map((c) => [c.name, c.declaredUnit])).toEqual([
+      ["accel", "g"],
+      ["a_z", "m/s2"],
+    ]);
+    expect(r.channels).toEqual([
+      [1, 3, 5],
+      [2, 4, 6],
+    ]);
     expect(r.summary.sampleRateHz).toBe(1000);
   });
   it("semicolon with decimal commas (European export): t;ax / 0,5;1,25 (papaparse guesses ',' here)", async () => {
@@ -45,10 +57,16 @@ describe("openCsvTimeHistory: dialects", () => {
     expect(r.summary.sampleRateHz).toBe(2);
   });
   it("tab and whitespace delimiters, no header, --rate", async () => {
-    expect((await readCsv(csv("1\t2\n3\t4\n"), { sampleRateHz: 10 })).channels).toEqual([[1, 3], [2, 4]]);
+    expect((await readCsv(csv("1\t2\n3\t4\n"), { sampleRateHz: 10 })).channels).toEqual([
+      [1, 3],
+      [2, 4],
+    ]);
     const w = await readCsv(csv("  1   2\n 3 4\n"), { sampleRateHz: 10 });
     expect(w.info.layout).toContain("whitespace");
-    expect(w.channels).toEqual([[1, 3], [2, 4]]);
+    expect(w.channels).toEqual([
+      [1, 3],
+      [2, 4],
+    ]);
   });
   it("comments, blank lines, CRLF and a UTF-8 BOM", async () => {
     const text = "\ufeff# logger LX-9 export\r\ntime,ax\r\n\r\n0,1\r\n# pause marker\r\n0.5,2\r\n1,3";
@@ -58,10 +76,15 @@ describe("openCsvTimeHistory: dialects", () => {
   });
   it("a bracketed suffix without a letter is part of the name, not a unit: 'ax (2)'", async () => {
     const r = await readCsv(csv("time [s],ax (2),ay [mg]\n0,1,2\n1,3,4\n"));
-    expect(r.info.channels.map((c) => [c.name, c.declaredUnitText])).toEqual([["ax (2)", undefined], ["ay", "mg"]]);
+    expect(r.info.channels.map((c) => [c.name, c.declaredUnitText])).toEqual([
+      ["ax (2)", undefined],
+      ["ay", "mg"],
+    ]);
   });
   it("a time column in milliseconds declared by the header, and time_ms", async () => {
-    expect((await readCsv(csv("time [ms],ax\n0,1\n0.5,2\n1.0,3\n"), { timeUnit: undefined })).summary.sampleRateHz).toBe(2000);
+    expect(
+      (await readCsv(csv("time [ms],ax\n0,1\n0.5,2\n1.0,3\n"), { timeUnit: undefined })).summary.sampleRateHz,
+    ).toBe(2000);
     expect((await readCsv(csv("time_ms,ax\n0,1\n2,2\n4,3\n"), { timeUnit: undefined })).summary.sampleRateHz).toBe(500);
   });
   it("printed time stamps rounded to 6 decimals at 25.6 kHz are accepted and give 25600 Hz", async () => {
@@ -70,9 +93,15 @@ describe("openCsvTimeHistory: dialects", () => {
     expect((await readCsv(csv(s))).summary.sampleRateHz).toBe(25600);
   });
   it("--time-column by name or position; --no-time-column with --rate leaves the time column out (neither time nor a channel)", async () => {
-    expect((await readCsv(csv("a,stamp,b\n1,0,2\n3,0.1,4\n"), { timeColumn: "stamp" })).info.channels.map((c) => c.name)).toEqual(["a", "b"]);
+    expect(
+      (await readCsv(csv("a,stamp,b\n1,0,2\n3,0.1,4\n"), { timeColumn: "stamp" })).info.channels.map((c) => c.name),
+    ).toEqual(["a", "b"]);
     expect((await readCsv(csv("a,stamp,b\n1,0,2\n3,0.1,4\n"), { timeColumn: 2 })).summary.sampleRateHz).toBe(10);
-    expect((await readCsv(csv("time,b\n1,0\n3,0\n"), { timeColumn: false, sampleRateHz: 5 })).info.channels.map((c) => c.name)).toEqual(["b"]);
+    expect(
+      (await readCsv(csv("time,b\n1,0\n3,0\n"), { timeColumn: false, sampleRateHz: 5 })).info.channels.map(
+        (c) => c.name,
+      ),
+    ).toEqual(["b"]);
   });
   it("NaN and Inf cells are read as non-finite samples (flagged downstream), not as errors", async () => {
     const r = await readCsv(csv("t,ax\n0,1\n1,NaN\n2,-inf\n"));
@@ -85,7 +114,17 @@ describe("openCsvTimeHistory: fast path and papaparse path agree bit for bit", (
     const u = seeded(42);
     const plain: string[] = ["t,a,b"];
     const quoted: string[] = ['"t","a","b"'];
-    const spell = (x: number, k: number) => [x.toFixed(6), x.toPrecision(17), x.toExponential(9), String(x), x.toFixed(0), `${x < 0 ? "-" : "+"}${Math.abs(x).toFixed(3)}`, (x * 1e-30).toPrecision(15), "1234567890123456789"][k % 8]!;
+    const spell = (x: number, k: number) =>
+      [
+        x.toFixed(6),
+        x.toPrecision(17),
+        x.toExponential(9),
+        String(x),
+        x.toFixed(0),
+        `${x < 0 ? "-" : "+"}${Math.abs(x).toFixed(3)}`,
+        (x * 1e-30).toPrecision(15),
+        "1234567890123456789",
+      ][k % 8]!;
     for (let i = 0; i < 5000; i++) {
       const a = spell((u() - 0.5) * 10 ** Math.floor(u() * 12 - 6), i);
       const b = spell((u() - 0.5) * 1000, i + 3);
@@ -127,8 +166,22 @@ describe("openCsvTimeHistory: errors name file, line and column", () => {
     ["UTF-16 file", Buffer.from("\ufefft,a\n0,1\n", "utf16le"), "CSV_ENCODING", 1, undefined],
     ["binary file named .csv", Buffer.from([1, 2, 3, 0, 255, 254, 10, 0, 0]), "CSV_BINARY", 1, undefined],
     ["both decimal marks", "t;a\n0,5;1.5\n1,0;2\n", "CSV_DECIMAL_AMBIGUOUS", 2, undefined],
-    ["decimal commas with comma delimiter declared", "t,a\n0,1\n", "OPTION_CONFLICT", undefined, undefined, { decimal: ",", delimiter: "," }],
-    ["a time column that does not exist", "t,a\n0,1\n1,2\n", "TIME_COLUMN_NOT_FOUND", undefined, undefined, { timeColumn: "clock" }],
+    [
+      "decimal commas with comma delimiter declared",
+      "t,a\n0,1\n",
+      "OPTION_CONFLICT",
+      undefined,
+      undefined,
+      { decimal: ",", delimiter: "," },
+    ],
+    [
+      "a time column that does not exist",
+      "t,a\n0,1\n1,2\n",
+      "TIME_COLUMN_NOT_FOUND",
+      undefined,
+      undefined,
+      { timeColumn: "clock" },
+    ],
     ["time unit unknown", "time [furlong],a\n0,1\n1,2\n", "CSV_TIME_UNIT", 1, 1],
     ["duplicate column names", "t,a,a\n0,1,2\n1,2,3\n", "CSV_DUPLICATE_COLUMN", 1, 3],
     ["only a time column", "time\n0\n1\n", "CSV_NO_CHANNELS", undefined, undefined],
@@ -147,7 +200,7 @@ describe("openCsvTimeHistory: errors name file, line and column", () => {
   it("a decimal comma in a comma file gets a hint on how to declare it", async () => {
     const e = await failure(csv('t,a\n0,"1,5"\n1,2\n'));
     expect(e.code).toBe("CSV_NOT_A_NUMBER");
-    expect(e.message).toContain("`csv.decimal: \",\"`");
+    expect(e.message).toContain('`csv.decimal: ","`');
   });
   it("a header followed by a line longer than the sniffed head is named as that line, not as a header only", async () => {
     const e = await failure(csv("# rig 2\ntime,ax\n" + "x".repeat(200000)));

@@ -11,19 +11,30 @@ const CODES = { syntax: "META_SYNTAX", invalid: "META_INVALID", tooDeep: "META_I
 
 describe("one strict reader for profiles, --meta and mix files", () => {
   it("hexadecimal and octal numbers (YAML 1.2 core; 0b1 is text there) are refused in every kind of file, naming line and column", async () => {
-    expect(() => strictDocument("a: 0x10\n", "m.yaml", CODES)).toThrow(/m\.yaml:1:4: expected a decimal number, received a hexadecimal number "0x10" \[META_INVALID\]/);
+    expect(() => strictDocument("a: 0x10\n", "m.yaml", CODES)).toThrow(
+      /m\.yaml:1:4: expected a decimal number, received a hexadecimal number "0x10" \[META_INVALID\]/,
+    );
     expect(() => strictDocument("a: [1, 0o17]\n", "m.yaml", CODES)).toThrow(/octal number "0o17"/);
     const d = tempDir();
     writeFileSync(join(d, "mix.yaml"), "groups:\n  - name: road\n    hours: 0x10\n    recordings: [a.wav]\n");
-    await expect(loadServiceMix(join(d, "mix.yaml"))).rejects.toThrow(/mix\.yaml:3:12: expected a decimal number, received a hexadecimal number "0x10" \[MIX_INVALID\]/);
-    expect(() => parseProfile("title: t\nunits: g2/Hz\npoints:\n  - { hz: 0x14, level: 0.01 }\n  - { hz: 2000, level: 0.01 }\n", "p.yaml")).toThrow(/hexadecimal number "0x14" \[PROFILE_INVALID\]/);
+    await expect(loadServiceMix(join(d, "mix.yaml"))).rejects.toThrow(
+      /mix\.yaml:3:12: expected a decimal number, received a hexadecimal number "0x10" \[MIX_INVALID\]/,
+    );
+    expect(() =>
+      parseProfile(
+        "title: t\nunits: g2/Hz\npoints:\n  - { hz: 0x14, level: 0.01 }\n  - { hz: 2000, level: 0.01 }\n",
+        "p.yaml",
+      ),
+    ).toThrow(/hexadecimal number "0x14" \[PROFILE_INVALID\]/);
     expect(plainDocument("hours: 16\n", "m.yaml", "MIX_SYNTAX")).toEqual({ hours: 16 });
   });
 
   it("a document nested 5000 deep (JSON or YAML flow) is refused before it is parsed, with the file's own code; exit 2 from the CLI", async () => {
     const deepJson = `{"notes": ${"[".repeat(5000)}${"]".repeat(5000)}}`;
     const deepYaml = `groups: ${"[".repeat(5000)}${"]".repeat(5000)}\n`;
-    expect(() => strictDocument(deepJson, "m.json", CODES)).toThrow(/expected nesting at most 32 deep.*\[META_INVALID\]/);
+    expect(() => strictDocument(deepJson, "m.json", CODES)).toThrow(
+      /expected nesting at most 32 deep.*\[META_INVALID\]/,
+    );
     const d = tempDir();
     writeFileSync(join(d, "meta.json"), deepJson);
     writeFileSync(join(d, "mix.yaml"), deepYaml);

@@ -6,7 +6,9 @@ import { readProfileSpec, type ProfileSpec } from "../../src/read/profileFile.js
 function profile(points: object[], extra: object = {}): ProfileSpec {
   const pts = points as { hz: number }[];
   const doc = {
-    title: "test", units: "g2/Hz", points,
+    title: "test",
+    units: "g2/Hz",
+    points,
     tolerance: { bands: [{ fromHz: pts[0]!.hz, toHz: pts[pts.length - 1]!.hz, upperDb: 3, lowerDb: 3 }], rmsDb: 1 },
     ...extra,
   };
@@ -15,18 +17,50 @@ function profile(points: object[], extra: object = {}): ProfileSpec {
 
 describe("what a profile file states", () => {
   it("allowedOutsidePercent and outerLimits are read; outer limits must be at least as wide as the band", () => {
-    const p = profile([{ hz: 20, level: 0.01 }, { hz: 2000, level: 0.01 }], {
-      tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }], rmsDb: 1, allowedOutsidePercent: 5, outerLimits: [{ fromHz: 20, toHz: 2000, upperDb: 6, lowerDb: 6 }] },
-    });
+    const p = profile(
+      [
+        { hz: 20, level: 0.01 },
+        { hz: 2000, level: 0.01 },
+      ],
+      {
+        tolerance: {
+          bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }],
+          rmsDb: 1,
+          allowedOutsidePercent: 5,
+          outerLimits: [{ fromHz: 20, toHz: 2000, upperDb: 6, lowerDb: 6 }],
+        },
+      },
+    );
     expect(p.allowedOutsidePercent).toBe(5);
     expect(p.outerBands).toEqual([{ fromHz: 20, toHz: 2000, upperDb: 6, lowerDb: 6 }]);
-    const narrow = () => profile([{ hz: 20, level: 0.01 }, { hz: 2000, level: 0.01 }], {
-      tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }], outerLimits: [{ fromHz: 20, toHz: 2000, upperDb: 2, lowerDb: 6 }] },
-    });
+    const narrow = () =>
+      profile(
+        [
+          { hz: 20, level: 0.01 },
+          { hz: 2000, level: 0.01 },
+        ],
+        {
+          tolerance: {
+            bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }],
+            outerLimits: [{ fromHz: 20, toHz: 2000, upperDb: 2, lowerDb: 6 }],
+          },
+        },
+      );
     expect(narrow).toThrow(/tolerance.outerLimits\[0\]: expected outer limits at least as wide/);
   });
   it("rmsPercent 10 becomes +0.83 / -0.92 dB (docs/REFERENCES.md sec. 7)", () => {
-    const p = readProfileSpec(JSON.stringify({ title: "t", units: "g2/Hz", points: [{ hz: 10, level: 1 }, { hz: 20, level: 1 }], tolerance: { bands: [{ fromHz: 10, toHz: 20, upperDb: 3, lowerDb: 3 }], rmsPercent: 10 } }), "p.json");
+    const p = readProfileSpec(
+      JSON.stringify({
+        title: "t",
+        units: "g2/Hz",
+        points: [
+          { hz: 10, level: 1 },
+          { hz: 20, level: 1 },
+        ],
+        tolerance: { bands: [{ fromHz: 10, toHz: 20, upperDb: 3, lowerDb: 3 }], rmsPercent: 10 },
+      }),
+      "p.json",
+    );
     expect(p.rmsToleranceDb!.upper).toBeCloseTo(0.83, 2);
     expect(p.rmsToleranceDb!.lower).toBeCloseTo(0.92, 2);
   });
@@ -41,16 +75,31 @@ describe("what a profile file states", () => {
 
 describe("profile validation names the key path", () => {
   const base = () => ({
-    title: "t", units: "g2/Hz",
-    points: [{ hz: 20, level: 0.01 }, { hz: 80, level: 0.04 }, { hz: 350, level: 0.04 }],
-    tolerance: { bands: [{ fromHz: 20, toHz: 100, upperDb: 3, lowerDb: 3 }, { fromHz: 100, toHz: 350, upperDb: 6, lowerDb: 6 }], rmsDb: 1 },
+    title: "t",
+    units: "g2/Hz",
+    points: [
+      { hz: 20, level: 0.01 },
+      { hz: 80, level: 0.04 },
+      { hz: 350, level: 0.04 },
+    ],
+    tolerance: {
+      bands: [
+        { fromHz: 20, toHz: 100, upperDb: 3, lowerDb: 3 },
+        { fromHz: 100, toHz: 350, upperDb: 6, lowerDb: 6 },
+      ],
+      rmsDb: 1,
+    },
   });
   const cases: [string, (d: ReturnType<typeof base>) => unknown, string][] = [
     ["frequencies not increasing", (d) => ((d.points[2]!.hz = 80), d), "points[2].hz"],
     ["a non-positive level", (d) => ((d.points[1]!.level = 0), d), "points[1].level"],
     ["a negative frequency", (d) => ((d.points[0]!.hz = -5), d), "points[0].hz"],
     ["a level that is text", (d) => (((d.points[1] as Record<string, unknown>).level = "0.04"), d), "points[1].level"],
-    ["a slope with nothing to anchor it", (d) => ((d.points[0] = { hz: 20, slopeDbPerOctave: 3 } as never), d), "points[0].level"],
+    [
+      "a slope with nothing to anchor it",
+      (d) => ((d.points[0] = { hz: 20, slopeDbPerOctave: 3 } as never), d),
+      "points[0].level",
+    ],
     ["both level and slope", (d) => (((d.points[1] as Record<string, unknown>).slopeDbPerOctave = 3), d), "points[1]"],
     ["neither level nor slope", (d) => ((d.points[1] = { hz: 80 } as never), d), "points[1]"],
     ["a single point", (d) => ((d.points = [d.points[0]!]), d), "points"],
@@ -65,14 +114,34 @@ describe("profile validation names the key path", () => {
     ["no bands", (d) => ((d.tolerance.bands = []), d), "tolerance.bands"],
     ["rmsDb and rmsPercent", (d) => (((d.tolerance as Record<string, unknown>).rmsPercent = 10), d), "tolerance"],
     ["minDof zero", (d) => ({ ...d, minDof: 0 }), "minDof"],
-    ["an allowance above 50 %", (d) => (((d.tolerance as Record<string, unknown>).allowedOutsidePercent = 60), d), "tolerance.allowedOutsidePercent"],
-    ["outer limits with a gap", (d) => (((d.tolerance as Record<string, unknown>).outerLimits = [{ fromHz: 20, toHz: 100, upperDb: 6, lowerDb: 6 }, { fromHz: 120, toHz: 350, upperDb: 9, lowerDb: 9 }]), d), "tolerance.outerLimits[1].fromHz"],
+    [
+      "an allowance above 50 %",
+      (d) => (((d.tolerance as Record<string, unknown>).allowedOutsidePercent = 60), d),
+      "tolerance.allowedOutsidePercent",
+    ],
+    [
+      "outer limits with a gap",
+      (d) => (
+        ((d.tolerance as Record<string, unknown>).outerLimits = [
+          { fromHz: 20, toHz: 100, upperDb: 6, lowerDb: 6 },
+          { fromHz: 120, toHz: 350, upperDb: 9, lowerDb: 9 },
+        ]),
+        d
+      ),
+      "tolerance.outerLimits[1].fromHz",
+    ],
     ["not an object", () => [1, 2, 3], "(top level)"],
   ];
   for (const [name, mutate, path] of cases) {
     it(`${name}: ${path}`, () => {
       const text = JSON.stringify(mutate(base()));
-      const e = (() => { try { readProfileSpec(text, "spec.json"); } catch (x) { return x; } })();
+      const e = (() => {
+        try {
+          readProfileSpec(text, "spec.json");
+        } catch (x) {
+          return x;
+        }
+      })();
       expect(e).toBeInstanceOf(InputError);
       expect((e as InputError).code).toBe("PROFILE_INVALID");
       expect((e as InputError).details.keyPath).toBe(path);
@@ -80,18 +149,36 @@ describe("profile validation names the key path", () => {
     });
   }
   it("JSON syntax errors give line and column", () => {
-    const e = (() => { try { readProfileSpec('{\n  "title": "t",\n  "units": g2\n}', "spec.json"); } catch (x) { return x as InputError; } })()!;
+    const e = (() => {
+      try {
+        readProfileSpec('{\n  "title": "t",\n  "units": g2\n}', "spec.json");
+      } catch (x) {
+        return x as InputError;
+      }
+    })()!;
     expect(e.code).toBe("PROFILE_SYNTAX");
     expect(e.details.line).toBe(3);
     expect(e.details.column).toBe(12);
   });
   it("YAML syntax errors give the line", () => {
-    const e = (() => { try { readProfileSpec("title: t\npoints:\n  - { hz: 20, level: 0.01\n", "spec.yaml"); } catch (x) { return x as InputError; } })()!;
+    const e = (() => {
+      try {
+        readProfileSpec("title: t\npoints:\n  - { hz: 20, level: 0.01\n", "spec.yaml");
+      } catch (x) {
+        return x as InputError;
+      }
+    })()!;
     expect(e.code).toBe("PROFILE_SYNTAX");
     expect(e.details.line).toBeGreaterThan(1);
   });
   it("CSV profile rows that are not two numbers name the line", () => {
-    const e = (() => { try { readProfileSpec("hz,level\n20,0.01\n80,x\n", "p.csv"); } catch (x) { return x as InputError; } })()!;
+    const e = (() => {
+      try {
+        readProfileSpec("hz,level\n20,0.01\n80,x\n", "p.csv");
+      } catch (x) {
+        return x as InputError;
+      }
+    })()!;
     expect(e.code).toBe("PROFILE_CSV");
     expect(e.details.line).toBe(3);
   });
@@ -124,13 +211,19 @@ describe("readProfileSpec limits (issue #12)", () => {
   });
 
   it("hexadecimal, octal and binary numbers are refused in YAML; decimal and exponent forms are read", () => {
-    for (const hz of ["0x14", "0o24"]) expect(codeOf(() => readProfileSpec(yaml("t", hz), "t.yaml")), hz).toBe("PROFILE_INVALID");
+    for (const hz of ["0x14", "0o24"])
+      expect(
+        codeOf(() => readProfileSpec(yaml("t", hz), "t.yaml")),
+        hz,
+      ).toBe("PROFILE_INVALID");
     expect(readProfileSpec(yaml("t", "2.0e1"), "t.yaml").points[0]!.hz).toBe(20);
     expect(readProfileSpec(yaml("it's fine [a] {b}"), "t.yaml").title).toBe("it's fine [a] {b}");
   });
 
   it("nesting beyond 32 and text beyond 1 MiB are PROFILE_TOO_LARGE, before any parser runs", () => {
-    expect(codeOf(() => readProfileSpec("[".repeat(100000) + "]".repeat(100000), "deep.json"))).toBe("PROFILE_TOO_LARGE");
+    expect(codeOf(() => readProfileSpec("[".repeat(100000) + "]".repeat(100000), "deep.json"))).toBe(
+      "PROFILE_TOO_LARGE",
+    );
     expect(codeOf(() => readProfileSpec(`{"title": "${"[".repeat(100)}"}`, "ok.json"))).toBe("PROFILE_INVALID");
     expect(codeOf(() => readProfileSpec(" ".repeat((1 << 20) + 1), "big.json"))).toBe("PROFILE_TOO_LARGE");
   });
@@ -146,7 +239,10 @@ describe("readProfileSpec limits (issue #12)", () => {
 });
 
 describe("mixed-mode profiles (tones)", () => {
-  const flatPts = [{ hz: 10, level: 0.01 }, { hz: 1000, level: 0.01 }];
+  const flatPts = [
+    { hz: 10, level: 0.01 },
+    { hz: 1000, level: 0.01 },
+  ];
   const msgOf = (f: () => unknown) => {
     try {
       f();
@@ -159,18 +255,50 @@ describe("mixed-mode profiles (tones)", () => {
   it("a key psdgate does not know is PROFILE_INVALID naming the key, at the top level and inside tones, bands and points", () => {
     const top = msgOf(() => profile(flatPts, { tone: [{ hz: 50, peak: 1, toleranceDb: 1 }] }));
     expect(top?.code).toBe("PROFILE_INVALID");
-    expect(top?.message).toMatch(/p\.json: tone: expected a key psdgate knows here \(title, units, points, .*tones.*\), received "tone"/);
+    expect(top?.message).toMatch(
+      /p\.json: tone: expected a key psdgate knows here \(title, units, points, .*tones.*\), received "tone"/,
+    );
     const inTone = msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: 1, toleranceDb: 1, phase: 0 }] }));
     expect(inTone?.message).toMatch(/tones\[0\]\.phase.*received "phase"/);
-    const inBand = msgOf(() => readProfileSpec(JSON.stringify({ title: "t", units: "g2/Hz", points: flatPts, tolerance: { bands: [{ fromHz: 10, toHz: 1000, upperDb: 3, lowerDb: 3, widthDb: 1 }] } }), "p.json"));
+    const inBand = msgOf(() =>
+      readProfileSpec(
+        JSON.stringify({
+          title: "t",
+          units: "g2/Hz",
+          points: flatPts,
+          tolerance: { bands: [{ fromHz: 10, toHz: 1000, upperDb: 3, lowerDb: 3, widthDb: 1 }] },
+        }),
+        "p.json",
+      ),
+    );
     expect(inBand?.message).toMatch(/tolerance\.bands\[0\]\.widthDb/);
-    expect(msgOf(() => profile([{ hz: 10, level: 0.01, note: "x" }, { hz: 1000, level: 0.01 }]))?.message).toMatch(/points\[0\]\.note/);
+    expect(
+      msgOf(() =>
+        profile([
+          { hz: 10, level: 0.01, note: "x" },
+          { hz: 1000, level: 0.01 },
+        ]),
+      )?.message,
+    ).toMatch(/points\[0\]\.note/);
   });
 
   it("a tone without a tolerance, outside the profile's range, or overlapping another's allowance is PROFILE_INVALID naming it", () => {
     expect(msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: 1 }] }))?.message).toMatch(/tones\[0\].*a tolerance/);
-    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 5, peak: 1, toleranceDb: 1 }] }))?.message).toMatch(/tones\[0\]\.hz.*inside the profile's range/);
-    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: 1, toleranceDb: 1, toleranceHz: 2 }, { hz: 53, peak: 1, toleranceDb: 1, toleranceHz: 2 }] }))?.message).toMatch(/tones\[1\]\.hz.*do not overlap/);
-    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: -1, toleranceDb: 1 }] }))?.code).toBe("PROFILE_INVALID");
+    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 5, peak: 1, toleranceDb: 1 }] }))?.message).toMatch(
+      /tones\[0\]\.hz.*inside the profile's range/,
+    );
+    expect(
+      msgOf(() =>
+        profile(flatPts, {
+          tones: [
+            { hz: 50, peak: 1, toleranceDb: 1, toleranceHz: 2 },
+            { hz: 53, peak: 1, toleranceDb: 1, toleranceHz: 2 },
+          ],
+        }),
+      )?.message,
+    ).toMatch(/tones\[1\]\.hz.*do not overlap/);
+    expect(msgOf(() => profile(flatPts, { tones: [{ hz: 50, peak: -1, toleranceDb: 1 }] }))?.code).toBe(
+      "PROFILE_INVALID",
+    );
   });
 });

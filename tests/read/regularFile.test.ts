@@ -9,12 +9,19 @@ describe("openRegularFile", () => {
     const fifo = join(tempDir(), "pipe.csv");
     execFileSync("mkfifo", [fifo]);
     const t0 = Date.now();
-    await expect(assertRegularFile(fifo, "a readable file")).rejects.toMatchObject({ code: "FILE_UNREADABLE", message: expect.stringContaining("received a FIFO (named pipe)") });
+    await expect(assertRegularFile(fifo, "a readable file")).rejects.toMatchObject({
+      code: "FILE_UNREADABLE",
+      message: expect.stringContaining("received a FIFO (named pipe)"),
+    });
     expect(Date.now() - t0).toBeLessThan(2000);
   });
   it("assertRegularFile(): /dev/zero is a character device and a folder is a folder, not an empty file", async () => {
-    await expect(assertRegularFile("/dev/zero", "a readable file")).rejects.toThrow(/received a character device \[FILE_UNREADABLE\]/);
-    await expect(assertRegularFile(tempDir(), "a readable file")).rejects.toThrow(/received a folder \[FILE_UNREADABLE\]/);
+    await expect(assertRegularFile("/dev/zero", "a readable file")).rejects.toThrow(
+      /received a character device \[FILE_UNREADABLE\]/,
+    );
+    await expect(assertRegularFile(tempDir(), "a readable file")).rejects.toThrow(
+      /received a folder \[FILE_UNREADABLE\]/,
+    );
     await expect(assertRegularFile("/no/such/file", "a readable file")).rejects.toThrow(/received no such file/);
   });
   it("fsReason(): an errno code in words", () => {

@@ -20,7 +20,10 @@ function file(spec: WavSpec | Buffer): string {
 async function readAll(p: string): Promise<{ channels: number[][]; rate: number }> {
   const src = await openWavTimeHistory(p);
   const out: number[][] = src.info.channels.map(() => []);
-  const s = await src.read(src.info.channels.map((_, i) => i), (ch, n) => ch.forEach((c, i) => out[i]!.push(...c.subarray(0, n))));
+  const s = await src.read(
+    src.info.channels.map((_, i) => i),
+    (ch, n) => ch.forEach((c, i) => out[i]!.push(...c.subarray(0, n))),
+  );
   return { channels: out, rate: s.sampleRateHz };
 }
 
@@ -47,8 +50,14 @@ describe("openWavTimeHistory, where wav-decoder 1.3.0 is exact", () => {
     expect(ours.channels).toEqual(await wavDecoder(p, true));
   });
   it("8-bit unsigned and 32-bit PCM decode to the linear full scale", async () => {
-    expect((await readAll(file({ bits: 8, channels: 1, samples: [0, 128, 255] }))).channels[0]).toEqual([-1, 0, 127 / 128]);
-    expect((await readAll(file({ bits: 32, channels: 1, samples: [-2147483648, 1073741824] }))).channels[0]).toEqual([-1, 0.5]);
+    expect((await readAll(file({ bits: 8, channels: 1, samples: [0, 128, 255] }))).channels[0]).toEqual([
+      -1,
+      0,
+      127 / 128,
+    ]);
+    expect((await readAll(file({ bits: 32, channels: 1, samples: [-2147483648, 1073741824] }))).channels[0]).toEqual([
+      -1, 0.5,
+    ]);
   });
 });
 
@@ -84,7 +93,13 @@ describe("openWavTimeHistory covers the gaps of wav-decoder 1.3.0", () => {
     expect((e as InputError).message).toContain("chunk 'data'");
   });
   it("a data chunk that does not start 4-byte aligned is read correctly", async () => {
-    const p = file({ tag: 3, bits: 32, channels: 1, samples: [0.5, -0.5, 0.75], extraChunks: [["fact", Buffer.from([1, 0, 0, 0, 0, 0])]] });
+    const p = file({
+      tag: 3,
+      bits: 32,
+      channels: 1,
+      samples: [0.5, -0.5, 0.75],
+      extraChunks: [["fact", Buffer.from([1, 0, 0, 0, 0, 0])]],
+    });
     expect((await readAll(p)).channels[0]).toEqual([0.5, -0.5, 0.75]);
   });
   it("reads a file far larger than one 64 KB read, frames split across reads", async () => {
@@ -100,16 +115,50 @@ describe("openWavTimeHistory covers the gaps of wav-decoder 1.3.0", () => {
 describe("openWavTimeHistory errors name the chunk", () => {
   const cases: [string, () => string, string][] = [
     ["empty file", () => file(Buffer.alloc(0)), "WAV_TRUNCATED_HEADER"],
-    ["header cut inside the fmt chunk", () => file(wavBytes({ bits: 16, channels: 1, samples: [1] }).subarray(0, 30)), "WAV_BAD_FMT"],
-    ["header without any chunk", () => file(wavBytes({ bits: 16, channels: 1, samples: [1] }).subarray(0, 12)), "WAV_NO_FMT"],
+    [
+      "header cut inside the fmt chunk",
+      () => file(wavBytes({ bits: 16, channels: 1, samples: [1] }).subarray(0, 30)),
+      "WAV_BAD_FMT",
+    ],
+    [
+      "header without any chunk",
+      () => file(wavBytes({ bits: 16, channels: 1, samples: [1] }).subarray(0, 12)),
+      "WAV_NO_FMT",
+    ],
     ["random bytes named .wav", () => file(Buffer.from("this is not a wave file at all")), "WAV_NOT_RIFF"],
     ["big-endian RIFX", () => file(Buffer.from("RIFX0000WAVE")), "WAV_UNSUPPORTED_ENCODING"],
     ["A-law", () => file({ tag: 6, bits: 8, channels: 1, samples: [1, 2] }), "WAV_UNSUPPORTED_ENCODING"],
-    ["12-bit PCM", () => { const b = wavBytes({ bits: 16, channels: 1, samples: [1] }); b.writeUInt16LE(12, 34); return file(b); }, "WAV_UNSUPPORTED_ENCODING"],
+    [
+      "12-bit PCM",
+      () => {
+        const b = wavBytes({ bits: 16, channels: 1, samples: [1] });
+        b.writeUInt16LE(12, 34);
+        return file(b);
+      },
+      "WAV_UNSUPPORTED_ENCODING",
+    ],
     ["zero channels", () => file({ bits: 16, channels: 0, samples: [], blockAlign: 0 }), "WAV_NO_CHANNELS"],
     ["block align wrong", () => file({ bits: 16, channels: 2, samples: [1, 2], blockAlign: 3 }), "WAV_BAD_FMT"],
-    ["data before fmt", () => file(Buffer.concat([Buffer.from("RIFF\x1c\x00\x00\x00WAVEdata\x02\x00\x00\x00\x01\x00", "latin1"), Buffer.from("fmt ", "latin1")])), "WAV_DATA_BEFORE_FMT"],
-    ["data chunk larger than the file", () => { const b = wavBytes({ bits: 16, channels: 1, samples: [1, 2] }); b.writeUInt32LE(1 << 30, 40); return file(b); }, "WAV_DATA_TRUNCATED"],
+    [
+      "data before fmt",
+      () =>
+        file(
+          Buffer.concat([
+            Buffer.from("RIFF\x1c\x00\x00\x00WAVEdata\x02\x00\x00\x00\x01\x00", "latin1"),
+            Buffer.from("fmt ", "latin1"),
+          ]),
+        ),
+      "WAV_DATA_BEFORE_FMT",
+    ],
+    [
+      "data chunk larger than the file",
+      () => {
+        const b = wavBytes({ bits: 16, channels: 1, samples: [1, 2] });
+        b.writeUInt32LE(1 << 30, 40);
+        return file(b);
+      },
+      "WAV_DATA_TRUNCATED",
+    ],
   ];
   for (const [name, make, code] of cases) {
     it(`${name}: ${code}`, async () => {
@@ -155,7 +204,14 @@ describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration ch
   });
   it("the writer turns a large output into RF64 on close (threshold lowered for the test), and the reader reads it back", async () => {
     const p = join(dir, "rf64-out.wav");
-    const w = await createTimeHistoryWriter(p, { sampleRateHz: 1000, channelNames: ["a"], units: "m/s2", option: "--out", inputs: [], rf64Above: 100 });
+    const w = await createTimeHistoryWriter(p, {
+      sampleRateHz: 1000,
+      channelNames: ["a"],
+      units: "m/s2",
+      option: "--out",
+      inputs: [],
+      rf64Above: 100,
+    });
     const x = Float64Array.from({ length: 256 }, (_, i) => i / 256 - 0.5);
     await w.write([x], x.length);
     await w.close();
@@ -178,21 +234,43 @@ describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration ch
     expect((await readAll(p)).channels).toEqual(ref.channels);
   });
   it("the calibration chunk says the unit and scale: x2 in mm/s2 reads as 0.002 m/s^2 per file unit", async () => {
-    const p = file({ tag: 3, bits: 32, channels: 1, samples: [0.5, -0.25], extraChunks: [["pgcl", Buffer.from('{"unit":"mm/s2","scale":2}')]] });
+    const p = file({
+      tag: 3,
+      bits: 32,
+      channels: 1,
+      samples: [0.5, -0.25],
+      extraChunks: [["pgcl", Buffer.from('{"unit":"mm/s2","scale":2}')]],
+    });
     const a = await analyzeRecording(p, { segmentLength: 2 });
     expect(a.channels[0]!.units).toBe("m/s2");
-    expect(a.channels[0]!.reading).toMatchObject({ fileUnit: "mm/s2", unitFrom: "file calibration", fileScale: 2, factor: 0.002 });
+    expect(a.channels[0]!.reading).toMatchObject({
+      fileUnit: "mm/s2",
+      unitFrom: "file calibration",
+      fileScale: 2,
+      factor: 0.002,
+    });
     expect(a.channels[0]!.stats.max).toBeCloseTo(0.001, 15);
   });
   it("synth from an m/s^2 profile, then check against that profile: the unit travels in the WAV and the run passes", async () => {
     const prof = join(dir, "si-profile.json");
-    writeFileSync(prof, JSON.stringify({
-      title: "Invented rig in SI units", units: "(m/s2)2/Hz",
-      points: [{ hz: 20, level: 0.5 }, { hz: 100, level: 5 }, { hz: 800, level: 5 }],
-      tolerance: { bands: [{ fromHz: 20, toHz: 800, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 }, resolutionHz: 5,
-    }));
+    writeFileSync(
+      prof,
+      JSON.stringify({
+        title: "Invented rig in SI units",
+        units: "(m/s2)2/Hz",
+        points: [
+          { hz: 20, level: 0.5 },
+          { hz: 100, level: 5 },
+          { hz: 800, level: 5 },
+        ],
+        tolerance: { bands: [{ fromHz: 20, toHz: 800, upperDb: 3, lowerDb: 3 }], rmsDb: 1.5 },
+        resolutionHz: 5,
+      }),
+    );
     const out = join(dir, "si-run.wav");
-    expect((await cli("synth", "--profile", prof, "--duration", "30", "--rate", "2048", "--out", out, "--seed", "4")).code).toBe(0);
+    expect(
+      (await cli("synth", "--profile", prof, "--duration", "30", "--rate", "2048", "--out", out, "--seed", "4")).code,
+    ).toBe(0);
     const r = await cli("check", out, "--profile", prof, "--json");
     const j = JSON.parse(r.stdout);
     expect(j.verdict, r.stdout.slice(0, 400)).toBe("pass");
@@ -200,7 +278,18 @@ describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration ch
   });
   it("the same synth WAV read with and without its calibration chunk: the m/s^2 PSD equals the plain reading with --units m/s2 (1e-12)", async () => {
     const prof = join(dir, "si-profile2.json");
-    writeFileSync(prof, JSON.stringify({ title: "Invented", units: "(m/s2)2/Hz", points: [{ hz: 20, level: 1 }, { hz: 400, level: 1 }], tolerance: { bands: [{ fromHz: 20, toHz: 400, upperDb: 3, lowerDb: 3 }] } }));
+    writeFileSync(
+      prof,
+      JSON.stringify({
+        title: "Invented",
+        units: "(m/s2)2/Hz",
+        points: [
+          { hz: 20, level: 1 },
+          { hz: 400, level: 1 },
+        ],
+        tolerance: { bands: [{ fromHz: 20, toHz: 400, upperDb: 3, lowerDb: 3 }] },
+      }),
+    );
     const out = join(dir, "si-run2.wav");
     expect((await cli("synth", "--profile", prof, "--duration", "4", "--rate", "1024", "--out", out)).code).toBe(0);
     const withChunk = await analyzeRecording(out, { segmentLength: 512 });

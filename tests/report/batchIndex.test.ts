@@ -7,7 +7,19 @@ import { cli, tempDir } from "../helpers.js";
 describe("check --report-dir index page", () => {
   it("check --report-dir DIR on three recordings also writes psdgate-batch.html: one row per recording linking its report, the verdict counts, no script", async () => {
     const d = join(tempDir(), "reports");
-    const r = await cli("check", "samples/kb210-run.wav", "samples/kb210-run-resonance.wav", "samples/kb210-run-short.wav", "-p", "samples/profiles/kb210-controller.json", "--report-dir", d, "--jobs", "1", "-q");
+    const r = await cli(
+      "check",
+      "samples/kb210-run.wav",
+      "samples/kb210-run-resonance.wav",
+      "samples/kb210-run-short.wav",
+      "-p",
+      "samples/profiles/kb210-controller.json",
+      "--report-dir",
+      d,
+      "--jobs",
+      "1",
+      "-q",
+    );
     expect(r.code).toBe(1);
     const html = readFileSync(join(d, "psdgate-batch.html"), "utf8");
     expect(html).not.toMatch(/<script/);

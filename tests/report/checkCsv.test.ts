@@ -9,8 +9,24 @@ describe("check --csv", () => {
     const out = join(d, "lines.csv");
     const args = ["check", "samples/kb210-run-resonance.wav", "-p", "samples/profiles/kb210-controller.json"];
     expect((await cli(...args, "--csv", out)).code).toBe(1);
-    const rows = readFileSync(out, "utf8").trim().split("\n").map((l) => l.split(","));
-    expect(rows[0]).toEqual(["spectrum", "role", "frequency_hz", "measured [g2/Hz]", "required [g2/Hz]", "deviation_db", "upper_limit [g2/Hz]", "lower_limit [g2/Hz]", "upper_db", "lower_db", "status", "shown"]);
+    const rows = readFileSync(out, "utf8")
+      .trim()
+      .split("\n")
+      .map((l) => l.split(","));
+    expect(rows[0]).toEqual([
+      "spectrum",
+      "role",
+      "frequency_hz",
+      "measured [g2/Hz]",
+      "required [g2/Hz]",
+      "deviation_db",
+      "upper_limit [g2/Hz]",
+      "lower_limit [g2/Hz]",
+      "upper_db",
+      "lower_db",
+      "status",
+      "shown",
+    ]);
     const j = JSON.parse((await cli(...args, "--json")).stdout).channels[0].lines;
     expect(rows.length - 1).toBe(j.frequencyHz.length);
     rows.slice(1).forEach((r, i) => {

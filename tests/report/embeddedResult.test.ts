@@ -16,7 +16,10 @@ describe("embedResult / extractResult", () => {
   it("extractResult finds an edit to the page (pageIntact false) and to the result (resultIntact false)", () => {
     const html = embedResult(page, { value: 1.5 });
     expect(extractResult(html.replace("42 g", "41 g"))).toMatchObject({ resultIntact: true, pageIntact: false });
-    expect(extractResult(html.replace('"value":1.5', '"value":1.6'))).toMatchObject({ resultIntact: false, pageIntact: true });
+    expect(extractResult(html.replace('"value":1.5', '"value":1.6'))).toMatchObject({
+      resultIntact: false,
+      pageIntact: true,
+    });
     expect(extractResult("<html></html>")).toMatchObject({ found: false });
   });
 });

@@ -29,11 +29,36 @@ describe("check --report and psd --report pages (no browser)", () => {
   it("check --report --meta: the identity, every setting given, the whole excursion list, the rule and its rates, no script, one caution", async () => {
     const { dir: d, meta } = dir();
     const out = join(d, "report.html");
-    const r = await cli("check", "samples/kb210-run-resonance.wav", "--profile", PROFILE, "--report", out, "--meta", meta, "--units", "g", "--overlap", "0.5");
+    const r = await cli(
+      "check",
+      "samples/kb210-run-resonance.wav",
+      "--profile",
+      PROFILE,
+      "--report",
+      out,
+      "--meta",
+      meta,
+      "--units",
+      "g",
+      "--overlap",
+      "0.5",
+    );
     expect(r.code).toBe(1);
     const html = readFileSync(out, "utf8");
     expect(html).not.toMatch(/<script|https?:\/\/(?!www\.w3\.org)/);
-    for (const s of ["KB-210-Q-0417", "WO-88213", "SN 0042", "TA-3 triaxial", "2026-09-14", "R. Okonkwo", "<code>--units g</code>", "<code>--overlap 0.5</code>", "given with --units", "from the WAV header"]) expect(html).toContain(s);
+    for (const s of [
+      "KB-210-Q-0417",
+      "WO-88213",
+      "SN 0042",
+      "TA-3 triaxial",
+      "2026-09-14",
+      "R. Okonkwo",
+      "<code>--units g</code>",
+      "<code>--overlap 0.5</code>",
+      "given with --units",
+      "from the WAV header",
+    ])
+      expect(html).toContain(s);
     expect(html).toContain("false-fail rate at most 5 %");
     expect(html).toContain("Prepared by (name, signature)");
     expect(html).not.toContain("prepared by psdgate");
@@ -50,14 +75,26 @@ describe("check --report and psd --report pages (no browser)", () => {
     p.tolerance.outerLimits = [{ fromHz: 20, toHz: 2000, upperDb: 6, lowerDb: 6 }];
     writeFileSync(profile, JSON.stringify(p));
     const out = join(d, "r.html");
-    const r = await cli("check", "samples/kb210-run-short.wav", "--profile", profile, "--control", "1", "--report", out);
+    const r = await cli(
+      "check",
+      "samples/kb210-run-short.wav",
+      "--profile",
+      profile,
+      "--control",
+      "1",
+      "--report",
+      out,
+    );
     const html = readFileSync(out, "utf8");
     const reasons = html.indexOf('id="run-reasons"');
     expect(reasons).toBeGreaterThan(0);
     expect(reasons).toBeLessThan(html.indexOf("Test identity"));
     expect(html.slice(reasons, html.indexOf("Test identity"))).toMatch(/DOF of \d+ a pass needs/);
-    for (const id of ["outer-upper", "outer-lower", "dev-outer-upper", "dev-outer-lower"]) expect(html).toMatch(new RegExp(`data-series="${id}" data-points="[1-9]`));
-    expect(r.stdout).toMatch(/control channel judged alone; the record's verdict rests on the control spectrum\): (PASS|FAIL|INCONCLUSIVE)/);
+    for (const id of ["outer-upper", "outer-lower", "dev-outer-upper", "dev-outer-lower"])
+      expect(html).toMatch(new RegExp(`data-series="${id}" data-points="[1-9]`));
+    expect(r.stdout).toMatch(
+      /control channel judged alone; the record's verdict rests on the control spectrum\): (PASS|FAIL|INCONCLUSIVE)/,
+    );
     if (r.code === 3) expect(r.stdout).toMatch(/because {4}a run of [\d.]+ s \(\d+ DOF\) would decide this verdict/);
   });
 
@@ -66,7 +103,9 @@ describe("check --report and psd --report pages (no browser)", () => {
     const profile = join(d, "p.json");
     const p = JSON.parse(readFileSync(PROFILE, "utf8"));
     p.units = "(m/s2)2/Hz";
-    p.points = p.points.map((x: { hz: number; level?: number }) => (x.level !== undefined ? { ...x, level: x.level * 9.80665 ** 2 } : x));
+    p.points = p.points.map((x: { hz: number; level?: number }) =>
+      x.level !== undefined ? { ...x, level: x.level * 9.80665 ** 2 } : x,
+    );
     writeFileSync(profile, JSON.stringify(p));
     const out = join(d, "r.html");
     await cli("check", "samples/kb210-run-resonance.wav", "--profile", profile, "--units", "g", "--report", out);
@@ -82,10 +121,13 @@ describe("check --report and psd --report pages (no browser)", () => {
   it("psd --report on a CSV with date-time stamps shows when the recording started", async () => {
     const d = tempDir();
     const rows = ["time,az [g]"];
-    for (let i = 0; i < 4000; i++) rows.push(`2026-11-30T08:15:${(i / 1000).toFixed(3).padStart(6, "0")}Z,${Math.sin(i * 0.7).toFixed(5)}`);
+    for (let i = 0; i < 4000; i++)
+      rows.push(`2026-11-30T08:15:${(i / 1000).toFixed(3).padStart(6, "0")}Z,${Math.sin(i * 0.7).toFixed(5)}`);
     writeFileSync(join(d, "dt.csv"), rows.join("\n") + "\n");
     expect((await cli("psd", join(d, "dt.csv"), "--segment", "512", "--report", join(d, "dt.html"))).code).toBe(0);
-    expect(readFileSync(join(d, "dt.html"), "utf8")).toContain("<th>Recording started</th><td>2026-11-30T08:15:00.000Z");
+    expect(readFileSync(join(d, "dt.html"), "utf8")).toContain(
+      "<th>Recording started</th><td>2026-11-30T08:15:00.000Z",
+    );
   });
 
   it("psd --meta FILE carries the identity into --json; a misspelt key is refused with its name", async () => {
@@ -100,7 +142,9 @@ describe("check --report and psd --report pages (no browser)", () => {
     writeFileSync(join(d, "date.yaml"), 'sensorCalibrated: "2026-02-30"\n');
     const date = await cli("check", "samples/kb210-run.wav", "-p", PROFILE, "--meta", join(d, "date.yaml"));
     expect(date.code).toBe(2);
-    expect(date.stderr).toMatch(/sensorCalibrated.*expected a calendar date YYYY-MM-DD.*received "2026-02-30" \[META_INVALID\]/);
+    expect(date.stderr).toMatch(
+      /sensorCalibrated.*expected a calendar date YYYY-MM-DD.*received "2026-02-30" \[META_INVALID\]/,
+    );
   });
 });
 
@@ -110,7 +154,15 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("HTML reports in headless Chromium
   beforeAll(async () => {
     browser = await chromium.launch({
       executablePath: CHROMIUM,
-      args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+      args: [
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-quic",
+        "--no-first-run",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+      ],
     });
   });
   afterAll(async () => browser?.close());
@@ -142,7 +194,8 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("HTML reports in headless Chromium
         const flat = p.text.replace(/\s+/g, " ");
         expect(flat, `${format} page ${i + 1}`).toContain(`page ${i + 1} of ${pages.length}`);
         for (const s of identity) expect(flat, `${format} page ${i + 1}`).toContain(s);
-        if (i < pages.length - 1) expect(p.fill, `${format} page ${i + 1} of ${pages.length} fill`).toBeGreaterThan(0.6);
+        if (i < pages.length - 1)
+          expect(p.fill, `${format} page ${i + 1} of ${pages.length} fill`).toBeGreaterThan(0.6);
       });
       const last = pages[pages.length - 1]!.text.replace(/\s+/g, " ");
       // The sign-off keeps the verdict and the identity on its page.
@@ -156,7 +209,16 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("HTML reports in headless Chromium
   it("check --report: verdict, plots with every series, marked lines, shared axes, histogram, sign-off; A4 and Letter pages carry title, hash, verdict and page N of M, none half empty", async () => {
     const { dir: d, meta } = dir();
     const out = join(d, "report.html");
-    const r = await cli("check", "samples/kb210-run-resonance.wav", "--profile", PROFILE, "--report", out, "--meta", meta);
+    const r = await cli(
+      "check",
+      "samples/kb210-run-resonance.wav",
+      "--profile",
+      PROFILE,
+      "--report",
+      out,
+      "--meta",
+      meta,
+    );
     expect(r.code).toBe(1);
     const page = await open(out);
     expect(await page.getAttribute("#verdict", "data-verdict")).toBe("fail");
@@ -166,12 +228,23 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("HTML reports in headless Chromium
     }
     expect(Number(await page.getAttribute(`#dev-1 path[data-series="deviation"]`, "data-points"))).toBeGreaterThan(700);
     // Measured, required and limits differ by dash pattern as well as colour (greyscale print).
-    const dash = async (s: string) => page.locator(`#psd-1 path[data-series="${s}"]`).evaluate((e) => (globalThis as unknown as { getComputedStyle(el: unknown): { strokeDasharray: string } }).getComputedStyle(e).strokeDasharray);
+    const dash = async (s: string) =>
+      page
+        .locator(`#psd-1 path[data-series="${s}"]`)
+        .evaluate(
+          (e) =>
+            (globalThis as unknown as { getComputedStyle(el: unknown): { strokeDasharray: string } }).getComputedStyle(
+              e,
+            ).strokeDasharray,
+        );
     expect(new Set([await dash("measured"), await dash("required"), await dash("limits-upper")]).size).toBe(3);
     // x ticks: 1-2-5 steps and the profile's ends (20 and 2000 Hz); the two plots share the axis.
-    const ticks = async (id: string) => page.locator(`#${id} .x-tick`).evaluateAll((es) => es.map((e) => [e.textContent, e.getAttribute("x")]));
+    const ticks = async (id: string) =>
+      page.locator(`#${id} .x-tick`).evaluateAll((es) => es.map((e) => [e.textContent, e.getAttribute("x")]));
     const psdTicks = await ticks("psd-1");
-    expect(psdTicks.map((t) => t[0])).toEqual(expect.arrayContaining(["20", "50", "100", "200", "500", "1000", "2000"]));
+    expect(psdTicks.map((t) => t[0])).toEqual(
+      expect.arrayContaining(["20", "50", "100", "200", "500", "1000", "2000"]),
+    );
     expect(await ticks("dev-1")).toEqual(psdTicks);
     // One number style per axis.
     const yt = await page.locator("#psd-1 .y-tick").allTextContents();
@@ -186,7 +259,20 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("HTML reports in headless Chromium
   it("psd --report: PSD with its band per channel, Parseval, statistics, histogram; the same page identity rules", async () => {
     const { dir: d, meta } = dir();
     const out = join(d, "psd.html");
-    const r = await cli("psd", "samples/tern7-flight.csv", "--resolution", "2", "--fmin", "10", "--fmax", "1500", "--report", out, "--meta", meta);
+    const r = await cli(
+      "psd",
+      "samples/tern7-flight.csv",
+      "--resolution",
+      "2",
+      "--fmin",
+      "10",
+      "--fmax",
+      "1500",
+      "--report",
+      out,
+      "--meta",
+      meta,
+    );
     expect(r.code).toBe(0);
     const html = readFileSync(out, "utf8");
     expect(html).not.toMatch(/<script|https?:\/\/(?!www\.w3\.org)/);
@@ -194,7 +280,11 @@ describe.skipIf(!WANT_PDF && !process.env.CI)("HTML reports in headless Chromium
     const channels = await page.locator("section.channel").count();
     expect(channels).toBeGreaterThan(0);
     for (let n = 1; n <= channels; n++) {
-      for (const s of ["measured", "confidence"]) expect(Number(await page.getAttribute(`#psd-${n} path[data-series="${s}"]`, "data-points")), `${n} ${s}`).toBeGreaterThan(100);
+      for (const s of ["measured", "confidence"])
+        expect(
+          Number(await page.getAttribute(`#psd-${n} path[data-series="${s}"]`, "data-points")),
+          `${n} ${s}`,
+        ).toBeGreaterThan(100);
       expect(await page.locator(`#hist-${n} path[data-series="histogram"]`).count()).toBe(1);
     }
     expect(await page.textContent("body")).toContain("Parseval ratio");

@@ -26,7 +26,7 @@ export function printedPages(pdf: Buffer, marginsMm: { top: number; bottom: numb
   const bbox = run(["-bbox"]);
   const pages: PrintedPage[] = [];
   const pt = 72 / 25.4;
-  for (const m of bbox.matchAll(/<page width="([\d.]+)" height="([\d.]+)">([^]*?)<\/page>/g)) {
+  for (const m of bbox.matchAll(/<page width="([\d.]+)" height="([\d.]+)">([\s\S]*?)<\/page>/g)) {
     const h = Number(m[2]);
     const top = marginsMm.top * pt;
     const bottom = h - marginsMm.bottom * pt;

@@ -6,7 +6,11 @@ describe("reportFileNames", () => {
     expect(reportFileNames(["a/run.wav", "b/other.csv"])).toEqual(["run.html", "other.html"]);
   });
   it("reportFileNames(): two run.wav in different folders get names from their paths", () => {
-    expect(reportFileNames(["lab/a/run.wav", "lab/b/run.wav", "x.wav"])).toEqual(["a__run.html", "b__run.html", "x.html"]);
+    expect(reportFileNames(["lab/a/run.wav", "lab/b/run.wav", "x.wav"])).toEqual([
+      "a__run.html",
+      "b__run.html",
+      "x.html",
+    ]);
   });
   it("reportFileNames(): the same recording twice, names that differ only in case, and a name already taken stay distinct", () => {
     const names = reportFileNames(["a/run.wav", "a/run.wav", "b/Run.wav", "a__run.wav"]);

@@ -4,7 +4,13 @@ import { join } from "node:path";
 import { execFileSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
-import { _liveTemporaryFiles, removeTemporaryFilesSync, TemporaryOutput, unwritable, writeAtomic } from "../../src/report/writeAtomic.js";
+import {
+  _liveTemporaryFiles,
+  removeTemporaryFilesSync,
+  TemporaryOutput,
+  unwritable,
+  writeAtomic,
+} from "../../src/report/writeAtomic.js";
 import { tempDir } from "../helpers.js";
 
 const codeOf = (e: unknown) => (e instanceof InputError ? e.code : String(e));
@@ -15,7 +21,10 @@ describe("writeAtomic (no-clobber publication)", () => {
     const dir = tempDir();
     for (let round = 0; round < 50; round++) {
       const target = join(dir, `race-${round}.csv`);
-      const r = await Promise.allSettled([writeAtomic(target, "A".repeat(5000), { inputs: [], option: "--csv" }), writeAtomic(target, "B".repeat(7000), { inputs: [], option: "--csv" })]);
+      const r = await Promise.allSettled([
+        writeAtomic(target, "A".repeat(5000), { inputs: [], option: "--csv" }),
+        writeAtomic(target, "B".repeat(7000), { inputs: [], option: "--csv" }),
+      ]);
       const won = r.map((x) => x.status === "fulfilled");
       expect(won.filter(Boolean).length, `round ${round}`).toBe(1);
       const lost = r.find((x) => x.status === "rejected") as PromiseRejectedResult;
@@ -30,7 +39,9 @@ describe("writeAtomic (no-clobber publication)", () => {
     const dir = tempDir();
     const t = join(dir, "x.csv");
     writeFileSync(t, "old");
-    await expect(writeAtomic(t, "new", { inputs: [], option: "--csv" })).rejects.toMatchObject({ code: "OUTPUT_EXISTS" });
+    await expect(writeAtomic(t, "new", { inputs: [], option: "--csv" })).rejects.toMatchObject({
+      code: "OUTPUT_EXISTS",
+    });
     await writeAtomic(t, "new", { inputs: [], option: "--csv", force: true });
     expect(readFileSync(t, "utf8")).toBe("new");
   });
@@ -56,7 +67,9 @@ describe("writeAtomic (no-clobber publication)", () => {
     symlinkSync(input, join(dir, "sym.txt"));
     linkSync(input, join(dir, "hard.txt"));
     for (const t of [input, join(dir, "sym.txt"), join(dir, "hard.txt"), join(dir, ".", "list.txt")]) {
-      await expect(writeAtomic(t, "x", { inputs: [input], option: "--csv", force: true }), t).rejects.toMatchObject({ code: "OUTPUT_IS_INPUT" });
+      await expect(writeAtomic(t, "x", { inputs: [input], option: "--csv", force: true }), t).rejects.toMatchObject({
+        code: "OUTPUT_IS_INPUT",
+      });
     }
     expect(readFileSync(input, "utf8")).toBe("keep");
   });
@@ -79,7 +92,12 @@ describe("writeAtomic (no-clobber publication)", () => {
   });
 
   it("unwritable(): ENOSPC, EROFS, EACCES and EDQUOT are OUTPUT_UNWRITABLE naming the reason; other errors pass through", () => {
-    for (const [code, words] of [["ENOSPC", "no space left"], ["EROFS", "a read-only"], ["EACCES", "permission denied"], ["EDQUOT", "disk quota"]] as const) {
+    for (const [code, words] of [
+      ["ENOSPC", "no space left"],
+      ["EROFS", "a read-only"],
+      ["EACCES", "permission denied"],
+      ["EDQUOT", "disk quota"],
+    ] as const) {
       const e = unwritable("out.csv", "--csv", Object.assign(new Error(code), { code }));
       expect(e).toBeInstanceOf(InputError);
       expect((e as InputError).code).toBe("OUTPUT_UNWRITABLE");
@@ -91,7 +109,11 @@ describe("writeAtomic (no-clobber publication)", () => {
 
   it("removeTemporaryFilesSync (the CLI's signal handler): every live temporary file is gone at once, mid-write", async () => {
     const dir = tempDir();
-    const outs = await Promise.all(["a.html", "b.html", "c.wav"].map((n) => TemporaryOutput.create(join(dir, n), { inputs: [], option: "--report-dir" })));
+    const outs = await Promise.all(
+      ["a.html", "b.html", "c.wav"].map((n) =>
+        TemporaryOutput.create(join(dir, n), { inputs: [], option: "--report-dir" }),
+      ),
+    );
     await Promise.all(outs.map((o) => o.write(Buffer.alloc(1 << 16, 1), 0)));
     expect(readdirSync(dir).filter((f) => f.endsWith(".tmp")).length).toBe(3);
     removeTemporaryFilesSync();
@@ -115,7 +137,10 @@ describe("writeAtomic (no-clobber publication)", () => {
 /** Runs the built CLI; resolves with its exit code and stderr. */
 function run(args: string[], cwd?: string): Promise<{ code: number | null; stderr: string }> {
   return new Promise((resolve) => {
-    const p = spawn(process.execPath, [join(process.cwd(), "bin/psdgate.js"), ...args], { cwd, stdio: ["ignore", "ignore", "pipe"] });
+    const p = spawn(process.execPath, [join(process.cwd(), "bin/psdgate.js"), ...args], {
+      cwd,
+      stdio: ["ignore", "ignore", "pipe"],
+    });
     let stderr = "";
     p.stderr.on("data", (d) => (stderr += d));
     p.on("close", (code) => resolve({ code, stderr }));
@@ -130,7 +155,15 @@ describe("two processes writing one --report without --force (built CLI)", () =>
       const report = join(dir, `r${round}.html`);
       const [pass, fail] = await Promise.all([
         run(["check", join(process.cwd(), "samples/kb210-run.wav"), "--profile", kb, "--report", report, "--quiet"]),
-        run(["check", join(process.cwd(), "samples/kb210-run-resonance.wav"), "--profile", kb, "--report", report, "--quiet"]),
+        run([
+          "check",
+          join(process.cwd(), "samples/kb210-run-resonance.wav"),
+          "--profile",
+          kb,
+          "--report",
+          report,
+          "--quiet",
+        ]),
       ]);
       const lost = [pass, fail].filter((r) => r.stderr.includes("[OUTPUT_EXISTS]"));
       expect(lost.length, `round ${round}: ${pass.stderr} ${fail.stderr}`).toBe(1);
@@ -142,4 +175,3 @@ describe("two processes writing one --report without --force (built CLI)", () =>
     expect(noTemporaries(dir)).toEqual([]);
   }, 60_000);
 });
-

@@ -26,16 +26,24 @@ describe("upperEnvelope (broken line on or above every point, least summed exces
     }
   });
   it("property: any points, any N: the line is on or above every point and uses at most N breakpoints, ends included", () => {
-    fc.assert(fc.property(fc.array(fc.double({ min: -5, max: 5, noNaN: true }), { minLength: 2, maxLength: 14 }), fc.integer({ min: 2, max: 6 }), (ys, n) => {
-      const x = Float64Array.from(ys, (_, i) => i * 0.7);
-      const y = Float64Array.from(ys);
-      const e = upperEnvelope(x, y, n);
-      expect(e.index.length).toBeLessThanOrEqual(n);
-      expect(e.index[0]).toBe(0);
-      expect(e.index[e.index.length - 1]).toBe(ys.length - 1);
-      const pts = e.index.map((k, j) => ({ hz: Math.exp(x[k]!) , level: Math.exp(e.value[j]!) }));
-      for (let k = 0; k < ys.length; k++) expect(Math.log(brokenLineLevel(pts, Math.exp(x[k]!)))).toBeGreaterThanOrEqual(y[k]! - 1e-9);
-    }), { numRuns: 150, seed: 17 });
+    fc.assert(
+      fc.property(
+        fc.array(fc.double({ min: -5, max: 5, noNaN: true }), { minLength: 2, maxLength: 14 }),
+        fc.integer({ min: 2, max: 6 }),
+        (ys, n) => {
+          const x = Float64Array.from(ys, (_, i) => i * 0.7);
+          const y = Float64Array.from(ys);
+          const e = upperEnvelope(x, y, n);
+          expect(e.index.length).toBeLessThanOrEqual(n);
+          expect(e.index[0]).toBe(0);
+          expect(e.index[e.index.length - 1]).toBe(ys.length - 1);
+          const pts = e.index.map((k, j) => ({ hz: Math.exp(x[k]!), level: Math.exp(e.value[j]!) }));
+          for (let k = 0; k < ys.length; k++)
+            expect(Math.log(brokenLineLevel(pts, Math.exp(x[k]!)))).toBeGreaterThanOrEqual(y[k]! - 1e-9);
+        },
+      ),
+      { numRuns: 150, seed: 17 },
+    );
   });
 });
 
@@ -46,7 +54,14 @@ describe("fitDamageProfile", () => {
     const want = fnHz.map((f) => 0.01 * (f / 10) ** -1);
     const damageOf = (pts: { hz: number; level: number }[]) => fnHz.map((f) => brokenLineLevel(pts, f) ** (b / 2));
     const target = want.map((g) => g ** (b / 2));
-    const fit = fitDamageProfile({ fnHz, targetDamage: target, startLevels: [want], basquinB: b, maxBreakpoints: 4, damageOf });
+    const fit = fitDamageProfile({
+      fnHz,
+      targetDamage: target,
+      startLevels: [want],
+      basquinB: b,
+      maxBreakpoints: 4,
+      damageOf,
+    });
     expect(fit.minRatio).toBeGreaterThanOrEqual(1);
     // A power law is one straight segment: only the 4-digit rounding (levels rounded up, at most 1e-3 in level, so (1.001)^(b/2) = 1.004 in damage) is left over.
     expect(fit.maxRatio).toBeLessThan(1.001 ** (b / 2) + 1e-6);
@@ -57,10 +72,18 @@ describe("fitDamageProfile", () => {
     const b = 8;
     const start = Float64Array.from([1, 3, 1, 1]);
     const damageOf = (pts: { hz: number; level: number }[]) => fnHz.map((f) => brokenLineLevel(pts, f) ** (b / 2));
-    const fit = fitDamageProfile({ fnHz, targetDamage: start.map((g) => g ** 4), startLevels: [start], basquinB: b, maxBreakpoints: 4, damageOf });
+    const fit = fitDamageProfile({
+      fnHz,
+      targetDamage: start.map((g) => g ** 4),
+      startLevels: [start],
+      basquinB: b,
+      maxBreakpoints: 4,
+      damageOf,
+    });
     expect(fit.points[0]!.hz).toBe(5);
     expect(fit.points[fit.points.length - 1]!.hz).toBe(7.0710678118654755);
-    for (const p of fit.points.slice(1, -1)) expect(String(p.hz).replace(/[.-]/g, "").replace(/^0+/, "").length).toBeLessThanOrEqual(4);
+    for (const p of fit.points.slice(1, -1))
+      expect(String(p.hz).replace(/[.-]/g, "").replace(/^0+/, "").length).toBeLessThanOrEqual(4);
     expect(fit.minRatio).toBeGreaterThanOrEqual(1);
   });
 });

@@ -5,11 +5,20 @@ import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
 import { synthesizeProfile } from "../../src/synth/synthesizeProfile.js";
 import { GaussianNoise } from "../../src/synth/gaussianNoise.js";
 
-const profile = parseProfile(JSON.stringify({
-  title: "t", units: "g2/Hz",
-  points: [{ hz: 20, level: 0.005 }, { hz: 100, level: 0.05 }, { hz: 1000, level: 0.05 }, { hz: 2000, level: 0.0125 }],
-  tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }] },
-}), "p.json");
+const profile = parseProfile(
+  JSON.stringify({
+    title: "t",
+    units: "g2/Hz",
+    points: [
+      { hz: 20, level: 0.005 },
+      { hz: 100, level: 0.05 },
+      { hz: 1000, level: 0.05 },
+      { hz: 2000, level: 0.0125 },
+    ],
+    tolerance: { bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }] },
+  }),
+  "p.json",
+);
 
 async function record(seed: number, durationS: number, fs = 5120): Promise<Float64Array> {
   const out = new Float64Array(Math.round(durationS * fs));
@@ -59,7 +68,7 @@ describe("synthesizeProfile", () => {
     const ms = s2 / x.length;
     expect(Math.sqrt(ms) / 8.4862).toBeCloseTo(1, 1);
     expect(Math.abs(Math.sqrt(ms) / 8.4862 - 1)).toBeLessThan(0.02);
-    expect(Math.abs((s4 / x.length) / (ms * ms) - 3)).toBeLessThan(0.1);
+    expect(Math.abs(s4 / x.length / (ms * ms) - 3)).toBeLessThan(0.1);
   });
   it("its Welch PSD follows the profile: mean ratio within 4 sigma of 1, every line inside its family-wise chi-square interval, long record", async () => {
     const x = await record(12, 60);
@@ -84,6 +93,8 @@ describe("synthesizeProfile", () => {
     }
   });
   it("refuses a sample rate at or below twice the top frequency", async () => {
-    await expect(synthesizeProfile(profile, { durationS: 1, sampleRateHz: 4000, seed: 1 }, () => undefined)).rejects.toThrow(/option sampleRateHz/);
+    await expect(
+      synthesizeProfile(profile, { durationS: 1, sampleRateHz: 4000, seed: 1 }, () => undefined),
+    ).rejects.toThrow(/option sampleRateHz/);
   });
 });

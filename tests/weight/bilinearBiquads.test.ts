@@ -1,7 +1,12 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { BiquadCascade, bilinearSection, cascadeMagnitude } from "../../src/weight/bilinearBiquads.js";
-import { analogSections, WEIGHTING_NAMES, weightingMagnitude, type WeightingName } from "../../src/weight/isoWeightings.js";
+import {
+  analogSections,
+  WEIGHTING_NAMES,
+  weightingMagnitude,
+  type WeightingName,
+} from "../../src/weight/isoWeightings.js";
 import { designWeightingFilter, weightingCascade } from "../../src/weight/weightingFilter.js";
 import { gaussian } from "../helpers.js";
 
@@ -9,8 +14,22 @@ interface Fixture {
   source: string;
   centresHz: number[];
   signal: number[];
-  cases: { weighting: WeightingName; sampleRateHz: number; sos: number[][]; magnitude: number[]; output: number[] | null }[];
-  fitted: { weighting: WeightingName; sampleRateHz: number; centresHz: number[]; sos: number[][]; errorPct: number[]; maxErrorPct: number; filtered: { input: number[]; startLevel: number; output: number[] } | null }[];
+  cases: {
+    weighting: WeightingName;
+    sampleRateHz: number;
+    sos: number[][];
+    magnitude: number[];
+    output: number[] | null;
+  }[];
+  fitted: {
+    weighting: WeightingName;
+    sampleRateHz: number;
+    centresHz: number[];
+    sos: number[][];
+    errorPct: number[];
+    maxErrorPct: number;
+    filtered: { input: number[]; startLevel: number; output: number[] } | null;
+  }[];
 }
 // scipy 1.17.1 signal.bilinear / sosfreqz / sosfilt (scripts/make_weighting_fixture.py)
 const fixture: Fixture = JSON.parse(readFileSync(new URL("../fixtures/scipy-weighting.json", import.meta.url), "utf8"));
@@ -23,9 +42,19 @@ describe("bilinearSection against scipy (fixture: " + fixture.source + ")", () =
       sections.forEach((q, i) => {
         const r = c.sos[i]!;
         const ours = [q.b0, q.b1, q.b2, 1, q.a1, q.a2];
-        ours.forEach((v, j) => expect(Math.abs(v - r[j]!), `${c.weighting} ${c.sampleRateHz} section ${i} coef ${j}`).toBeLessThan(1e-12 * Math.max(1, Math.abs(r[j]!))));
+        ours.forEach((v, j) =>
+          expect(Math.abs(v - r[j]!), `${c.weighting} ${c.sampleRateHz} section ${i} coef ${j}`).toBeLessThan(
+            1e-12 * Math.max(1, Math.abs(r[j]!)),
+          ),
+        );
       });
-      c.magnitude.forEach((m, k) => expect(Math.abs(cascadeMagnitude(sections, analogSections(c.weighting).gain, fixture.centresHz[k]!, c.sampleRateHz) / m - 1)).toBeLessThan(1e-8));
+      c.magnitude.forEach((m, k) =>
+        expect(
+          Math.abs(
+            cascadeMagnitude(sections, analogSections(c.weighting).gain, fixture.centresHz[k]!, c.sampleRateHz) / m - 1,
+          ),
+        ).toBeLessThan(1e-8),
+      );
     }
   });
   it("BiquadCascade output equals sosfilt with zi = sosfilt_zi * x[0] (offset of 1 g on the input), to 1e-9", () => {
@@ -51,7 +80,13 @@ describe("designWeightingFilter: the realisation psdgate runs, and its stated er
     for (const c of fixture.fitted) {
       const d = designWeightingFilter(c.weighting, c.sampleRateHz);
       expect(d.method, `${c.weighting} ${c.sampleRateHz}`).toBe("fitted");
-      d.sections.forEach((q, i) => [q.b0, q.b1, q.b2, 1, q.a1, q.a2].forEach((v, j) => expect(Math.abs(v - c.sos[i]![j]!), `${c.weighting} ${c.sampleRateHz} section ${i} coef ${j}`).toBeLessThan(1e-8 * Math.max(1, Math.abs(c.sos[i]![j]!)))));
+      d.sections.forEach((q, i) =>
+        [q.b0, q.b1, q.b2, 1, q.a1, q.a2].forEach((v, j) =>
+          expect(Math.abs(v - c.sos[i]![j]!), `${c.weighting} ${c.sampleRateHz} section ${i} coef ${j}`).toBeLessThan(
+            1e-8 * Math.max(1, Math.abs(c.sos[i]![j]!)),
+          ),
+        ),
+      );
     }
   });
   it("the stated error (maxErrorPct) is scipy.signal.freqs (analog) against scipy.signal.sosfreqz (digital) over the covered centres, to 1e-6 %", () => {
@@ -62,7 +97,16 @@ describe("designWeightingFilter: the realisation psdgate runs, and its stated er
     }
   });
   // README's table: the largest error over the six weightings at each rate (scipy-measured in the fixture).
-  const bounds: [number, number, number][] = [[100, 2.3, 40], [128, 2.1, 50], [200, 2.8, 80], [256, 0.75, 80], [400, 0.1, 80], [512, 0.04, 80], [1000, 0.003, 80], [5120, 1e-4, 80]];
+  const bounds: [number, number, number][] = [
+    [100, 2.3, 40],
+    [128, 2.1, 50],
+    [200, 2.8, 80],
+    [256, 0.75, 80],
+    [400, 0.1, 80],
+    [512, 0.04, 80],
+    [1000, 0.003, 80],
+    [5120, 1e-4, 80],
+  ];
   for (const [fs, pct, top] of bounds) {
     it(`at ${fs} Hz every weighting is within ${pct} % at the centres 0.5-${top} Hz`, () => {
       for (const w of WEIGHTING_NAMES) {
@@ -74,7 +118,8 @@ describe("designWeightingFilter: the realisation psdgate runs, and its stated er
   }
   it("every rate ride accepts has a realisation (100-1000 Hz in 1 Hz steps): within 5.3 % everywhere, the worst just above a rate where a band enters (180 Hz)", () => {
     let worst = 0;
-    for (let fs = 100; fs <= 1000; fs += 1) for (const w of ["Wk", "Wd"] as const) worst = Math.max(worst, designWeightingFilter(w, fs).maxErrorPct);
+    for (let fs = 100; fs <= 1000; fs += 1)
+      for (const w of ["Wk", "Wd"] as const) worst = Math.max(worst, designWeightingFilter(w, fs).maxErrorPct);
     expect(worst).toBeLessThan(5.3);
     expect(designWeightingFilter("Wd", 180).maxErrorPct).toBeGreaterThan(5.2);
   });
@@ -111,7 +156,11 @@ describe("designWeightingFilter: the realisation psdgate runs, and its stated er
     for (const fs of [100, 128, 200, 256, 400, 512]) {
       for (const w of WEIGHTING_NAMES) {
         const d = designWeightingFilter(w, fs);
-        for (const f of [0.5, 1, 2, 4, 6.3, 8]) expect(Math.abs(cascadeMagnitude(d.sections, d.gain, f, fs) / weightingMagnitude(w, f) - 1), `${w} ${f} Hz at ${fs} Hz`).toBeLessThan(fs < 256 ? 1e-2 : 2e-3);
+        for (const f of [0.5, 1, 2, 4, 6.3, 8])
+          expect(
+            Math.abs(cascadeMagnitude(d.sections, d.gain, f, fs) / weightingMagnitude(w, f) - 1),
+            `${w} ${f} Hz at ${fs} Hz`,
+          ).toBeLessThan(fs < 256 ? 1e-2 : 2e-3);
       }
     }
   });

@@ -42,7 +42,8 @@ describe("vibrationDose", () => {
     const x = gaussian(10 * fs + 37, 5);
     const whole = vibrationDose(x, fs);
     const acc = new VibrationDoseAccumulator(fs);
-    for (let i = 0; i < x.length; i += 333) acc.push(x.subarray(i, Math.min(x.length, i + 333)), Math.min(333, x.length - i));
+    for (let i = 0; i < x.length; i += 333)
+      acc.push(x.subarray(i, Math.min(x.length, i + 333)), Math.min(333, x.length - i));
     const parts = acc.finish(fs);
     expect(parts.vdv).toBeCloseTo(whole.vdv, 12);
     expect(parts.mtvv).toBeCloseTo(whole.mtvv, 12);

@@ -33,7 +33,8 @@ export function damageSpectra(input: InputSpectrum, o: DamageSpectraOptions): Da
     const r = sdofResponse(input, o.fnHz[i]!, o.q);
     const zRms = Math.sqrt(r.relativeDisplacement.m0) * o.toSi;
     damage[i] = narrowBandDamage(zRms, riceRates(r.relativeDisplacement).upcrossingRateHz, o.durationS, o.sn);
-    extreme[i] = davenportPeakFactor(riceRates(r.acceleration).upcrossingRateHz * o.durationS) * Math.sqrt(r.acceleration.m0);
+    extreme[i] =
+      davenportPeakFactor(riceRates(r.acceleration).upcrossingRateHz * o.durationS) * Math.sqrt(r.acceleration.m0);
   }
   return { damage, extreme };
 }

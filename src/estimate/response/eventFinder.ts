@@ -69,8 +69,18 @@ export class EventFinder {
   private readonly maxEvents: number;
 
   constructor(private readonly o: EventFinderOptions) {
-    if (!(o.threshold > 0 && Number.isFinite(o.threshold))) throw new InputError("OPTION_INVALID", { option: "threshold", expected: "a threshold above 0", received: String(o.threshold) });
-    if (!(Number.isInteger(o.holdSamples) && o.holdSamples >= 1)) throw new InputError("OPTION_INVALID", { option: "holdS", expected: "a hold time of at least one sample step", received: `${o.holdSamples} samples` });
+    if (!(o.threshold > 0 && Number.isFinite(o.threshold)))
+      throw new InputError("OPTION_INVALID", {
+        option: "threshold",
+        expected: "a threshold above 0",
+        received: String(o.threshold),
+      });
+    if (!(Number.isInteger(o.holdSamples) && o.holdSamples >= 1))
+      throw new InputError("OPTION_INVALID", {
+        option: "holdS",
+        expected: "a hold time of at least one sample step",
+        received: `${o.holdSamples} samples`,
+      });
     this.ring = new Float64Array(Math.max(1, o.srs?.preSamples ?? 0));
     this.maxEvents = o.maxEvents ?? 5000;
   }
@@ -104,7 +114,9 @@ export class EventFinder {
   private start(i: number, v: number, base: number): void {
     if (this.events.length >= this.maxEvents) {
       throw new InputError("SHOCK_TOO_MANY_EVENTS", {
-        option: "threshold", expected: `at most ${this.maxEvents} events (a threshold above the background: raise \`threshold\` or \`thresholdFactor\`)`, received: `more than ${this.maxEvents} at ${this.o.threshold}`,
+        option: "threshold",
+        expected: `at most ${this.maxEvents} events (a threshold above the background: raise \`threshold\` or \`thresholdFactor\`)`,
+        received: `more than ${this.maxEvents} at ${this.o.threshold}`,
       });
     }
     const ev: ShockEvent = { peakIndex: i, firstIndex: i, lastIndex: i, peak: v, truncated: false };
@@ -119,10 +131,19 @@ export class EventFinder {
     const have = Math.min(fromRing, this.ringFill);
     if (have > 0) {
       const pre = new Float64Array(have);
-      for (let k = 0; k < have; k++) pre[k] = this.ring[(this.ringStart + this.ringFill - have + k) % this.ring.length]!;
+      for (let k = 0; k < have; k++)
+        pre[k] = this.ring[(this.ringStart + this.ringFill - have + k) % this.ring.length]!;
       acc.push(pre);
     }
-    const bank: Bank = { event: ev, acc, next: Math.max(from, base), until: Infinity, split: Infinity, pending: new Float64Array(this.o.holdSamples + 1), pendingLength: 0 };
+    const bank: Bank = {
+      event: ev,
+      acc,
+      next: Math.max(from, base),
+      until: Infinity,
+      split: Infinity,
+      pending: new Float64Array(this.o.holdSamples + 1),
+      pendingLength: 0,
+    };
     this.banks.push(bank);
     this.openBank = bank;
   }
@@ -230,7 +251,14 @@ export class EventFinder {
 /** The larger of two spectra on one grid, value by value. */
 function envelope(a: ShockSpectrum, b: ShockSpectrum): ShockSpectrum {
   const mx = (p: Float64Array, q: Float64Array) => p.map((v, i) => Math.max(v, q[i]!));
-  return { fnHz: a.fnHz, q: a.q, maximax: mx(a.maximax, b.maximax), positive: mx(a.positive, b.positive), negative: mx(a.negative, b.negative), pseudoVelocity: mx(a.pseudoVelocity, b.pseudoVelocity) };
+  return {
+    fnHz: a.fnHz,
+    q: a.q,
+    maximax: mx(a.maximax, b.maximax),
+    positive: mx(a.positive, b.positive),
+    negative: mx(a.negative, b.negative),
+    pseudoVelocity: mx(a.pseudoVelocity, b.pseudoVelocity),
+  };
 }
 
 /**
@@ -239,7 +267,9 @@ function envelope(a: ShockSpectrum, b: ShockSpectrum): ShockSpectrum {
  * r.m.s. is not. NaN when there is no stretch.
  */
 export function backgroundRms(stretchMeanSquares: ArrayLike<number>): number {
-  const v = Array.from(stretchMeanSquares).filter((x) => Number.isFinite(x)).sort((a, b) => a - b);
+  const v = Array.from(stretchMeanSquares)
+    .filter((x) => Number.isFinite(x))
+    .sort((a, b) => a - b);
   if (v.length === 0) return NaN;
   const m = v.length >> 1;
   return Math.sqrt(v.length % 2 ? v[m]! : (v[m - 1]! + v[m]!) / 2);

@@ -24,5 +24,8 @@ export const SN_DEFAULTS: SnCurve = { basquinB: 8, snConstant: 1, stressPerUnit:
  */
 export function narrowBandDamage(sigma: number, upcrossingRateHz: number, durationS: number, sn: SnCurve): number {
   const b = sn.basquinB;
-  return ((upcrossingRateHz * durationS) / sn.snConstant) * Math.exp(b * Math.log(Math.SQRT2 * sn.stressPerUnit * sigma) + lnGamma(1 + b / 2));
+  return (
+    ((upcrossingRateHz * durationS) / sn.snConstant) *
+    Math.exp(b * Math.log(Math.SQRT2 * sn.stressPerUnit * sigma) + lnGamma(1 + b / 2))
+  );
 }

@@ -14,7 +14,9 @@ export interface InputSpectrum {
 }
 
 /** Power-law segments G(f) = g1 (f / f1)^exponent on [f1, f2] (a test profile's normalised table). */
-export function powerLawSpectrum(segments: readonly { f1: number; f2: number; g1: number; exponent: number }[]): InputSpectrum {
+export function powerLawSpectrum(
+  segments: readonly { f1: number; f2: number; g1: number; exponent: number }[],
+): InputSpectrum {
   if (segments.length === 0) throw new RangeError("a spectrum needs at least one segment");
   const breaks = new Float64Array(segments.length + 1);
   breaks[0] = segments[0]!.f1;
@@ -41,7 +43,12 @@ export function powerLawSpectrum(segments: readonly { f1: number; f2: number; g1
  * A measured PSD on equally spaced lines f_k = k df, lines with fminHz <= f_k <= fmaxHz kept; line k
  * holds its level over [f_k - df/2, f_k + df/2] (the DC line over [0, df/2]).
  */
-export function lineSpectrum(frequencyHz: Float64Array, psd: Float64Array, fminHz = 0, fmaxHz = Infinity): InputSpectrum {
+export function lineSpectrum(
+  frequencyHz: Float64Array,
+  psd: Float64Array,
+  fminHz = 0,
+  fmaxHz = Infinity,
+): InputSpectrum {
   const n = frequencyHz.length;
   if (n < 2) throw new RangeError("a line spectrum needs at least two lines");
   const df = frequencyHz[1]! - frequencyHz[0]!;
@@ -96,7 +103,12 @@ export interface SpectralMoments {
  * f + focusWidthHz, so a resonance of bandwidth f_n / Q gets tens of nodes. Relative error below 1e-9
  * on the SDOF weights against their closed forms (tests/estimate/response/sdofResponse.test.ts).
  */
-export function spectralMoments(s: InputSpectrum, weight: (f: number) => number, focusHz: number, focusWidthHz: number): SpectralMoments {
+export function spectralMoments(
+  s: InputSpectrum,
+  weight: (f: number) => number,
+  focusHz: number,
+  focusWidthHz: number,
+): SpectralMoments {
   const b = s.breaksHz;
   let m0 = 0;
   let m2 = 0;

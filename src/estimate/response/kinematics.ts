@@ -8,13 +8,15 @@ import { spectralMoments, type InputSpectrum } from "./inputSpectrum.js";
  */
 export function velocityPsd(frequencyHz: Float64Array, accelPsd: Float64Array, toSi: number): Float64Array {
   const out = new Float64Array(accelPsd.length);
-  for (let k = 0; k < out.length; k++) out[k] = frequencyHz[k]! > 0 ? (accelPsd[k]! * toSi * toSi) / (2 * Math.PI * frequencyHz[k]!) ** 2 : NaN;
+  for (let k = 0; k < out.length; k++)
+    out[k] = frequencyHz[k]! > 0 ? (accelPsd[k]! * toSi * toSi) / (2 * Math.PI * frequencyHz[k]!) ** 2 : NaN;
   return out;
 }
 
 export function displacementPsd(frequencyHz: Float64Array, accelPsd: Float64Array, toSi: number): Float64Array {
   const out = new Float64Array(accelPsd.length);
-  for (let k = 0; k < out.length; k++) out[k] = frequencyHz[k]! > 0 ? (accelPsd[k]! * toSi * toSi) / (2 * Math.PI * frequencyHz[k]!) ** 4 : NaN;
+  for (let k = 0; k < out.length; k++)
+    out[k] = frequencyHz[k]! > 0 ? (accelPsd[k]! * toSi * toSi) / (2 * Math.PI * frequencyHz[k]!) ** 4 : NaN;
   return out;
 }
 
@@ -39,5 +41,12 @@ export function spectrumMotion(s: InputSpectrum, toSi: number): Motion {
   const m = spectralMoments(s, (f) => 1 / f ** 4, 0, s.fminHz * 1e-3);
   const velocityRms = Math.sqrt((m.m2 * toSi * toSi) / (4 * Math.PI ** 2));
   const displacementRms = Math.sqrt((m.m0 * toSi * toSi) / (16 * Math.PI ** 4));
-  return { accelerationRms: Math.sqrt(m.m4), velocityRms, displacementRms, displacementPeakToPeak: 6 * displacementRms, fromHz: s.fminHz, toHz: s.fmaxHz };
+  return {
+    accelerationRms: Math.sqrt(m.m4),
+    velocityRms,
+    displacementRms,
+    displacementPeakToPeak: 6 * displacementRms,
+    fromHz: s.fminHz,
+    toHz: s.fmaxHz,
+  };
 }

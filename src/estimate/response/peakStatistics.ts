@@ -15,7 +15,11 @@ export interface RiceRates {
  * docs/REFERENCES.md sec. 10). Crossings of one direction only, so no factor 1/pi.
  */
 export function riceRates(m: SpectralMoments): RiceRates {
-  return { upcrossingRateHz: Math.sqrt(m.m2 / m.m0), peakRateHz: Math.sqrt(m.m4 / m.m2), irregularity: m.m2 / Math.sqrt(m.m0 * m.m4) };
+  return {
+    upcrossingRateHz: Math.sqrt(m.m2 / m.m0),
+    peakRateHz: Math.sqrt(m.m4 / m.m2),
+    irregularity: m.m2 / Math.sqrt(m.m0 * m.m4),
+  };
 }
 
 const EULER_GAMMA = 0.5772156649015329;

@@ -30,7 +30,8 @@ export interface SdofResponse {
 }
 
 export function sdofResponse(input: InputSpectrum, fnHz: number, q: number): SdofResponse {
-  if (!(fnHz > 0) || !(q > 0.5)) throw new RangeError(`f_n above 0 and Q above 0.5 (underdamped), got ${fnHz} and ${q}`);
+  if (!(fnHz > 0) || !(q > 0.5))
+    throw new RangeError(`f_n above 0 and Q above 0.5 (underdamped), got ${fnHz} and ${q}`);
   // The resonance's half-power width is f_n / Q; the integrator keeps its steps well inside it.
   const width = fnHz / (2 * q);
   return {

@@ -79,7 +79,12 @@ export function relativeDisplacementFilter(fnHz: number, q: number, sampleRateHz
     if (t <= 0) return 0;
     if (wn * t < 1) return series(t);
     const e = Math.exp(-zeta * wn * t);
-    return (t - (2 * zeta) / wn + e * (((2 * zeta) / wn) * Math.cos(wd * t) + ((2 * zeta * zeta - 1) / wd) * Math.sin(wd * t))) / (wn * wn);
+    return (
+      (t -
+        (2 * zeta) / wn +
+        e * (((2 * zeta) / wn) * Math.cos(wd * t) + ((2 * zeta * zeta - 1) / wd) * Math.sin(wd * t))) /
+      (wn * wn)
+    );
   };
   const h = (k: number) => (r((k + 1) * T) - 2 * r(k * T) + r((k - 1) * T)) / T;
   const h0 = h(0);
@@ -103,7 +108,10 @@ export interface ShockSpectrum {
 }
 
 /** What a grid asks of the rate: the highest natural frequency per sample rate and the bound on the sample-peak shortfall. */
-export function srsRateLimit(fnHz: Float64Array, sampleRateHz: number): { highestFnHz: number; samplesPerPeriod: number; peakShortfallBound: number } {
+export function srsRateLimit(
+  fnHz: Float64Array,
+  sampleRateHz: number,
+): { highestFnHz: number; samplesPerPeriod: number; peakShortfallBound: number } {
   let hi = 0;
   for (let i = 0; i < fnHz.length; i++) hi = Math.max(hi, fnHz[i]!);
   const spp = sampleRateHz / hi;
@@ -117,12 +125,23 @@ export const SRS_MIN_SAMPLES_PER_PERIOD = 4;
 
 /** Checks a grid and Q once, at the entry (the accumulator's constructor). */
 export function checkSrsGrid(fnHz: Float64Array, q: number, sampleRateHz: number, file?: string): void {
-  if (!(q > 0.5 && q <= 1000)) throw new InputError("OPTION_INVALID", { option: "q", expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))", received: String(q) });
-  if (fnHz.length === 0) throw new InputError("OPTION_INVALID", { option: "fn", expected: "at least one natural frequency", received: "none" });
+  if (!(q > 0.5 && q <= 1000))
+    throw new InputError("OPTION_INVALID", {
+      option: "q",
+      expected: "a quality factor Q above 0.5 and at most 1000 (Q = 1 / (2 zeta))",
+      received: String(q),
+    });
+  if (fnHz.length === 0)
+    throw new InputError("OPTION_INVALID", {
+      option: "fn",
+      expected: "at least one natural frequency",
+      received: "none",
+    });
   const { highestFnHz, samplesPerPeriod } = srsRateLimit(fnHz, sampleRateHz);
   if (!(samplesPerPeriod >= SRS_MIN_SAMPLES_PER_PERIOD)) {
     throw new InputError("SRS_RATE_TOO_LOW", {
-      ...(file !== undefined ? { file } : {}), option: "fn",
+      ...(file !== undefined ? { file } : {}),
+      option: "fn",
       expected: `natural frequencies at most fs/${SRS_MIN_SAMPLES_PER_PERIOD} = ${sampleRateHz / SRS_MIN_SAMPLES_PER_PERIOD} Hz at ${sampleRateHz} Hz (fs/${SRS_SAMPLES_PER_PERIOD} for a sample peak within 4.9 %)`,
       received: `${highestFnHz} Hz`,
     });
@@ -145,7 +164,11 @@ export class ShockSpectrumAccumulator {
   private x2 = 0;
   private count = 0;
 
-  constructor(readonly fnHz: Float64Array, readonly q: number, readonly sampleRateHz: number) {
+  constructor(
+    readonly fnHz: Float64Array,
+    readonly q: number,
+    readonly sampleRateHz: number,
+  ) {
     checkSrsGrid(fnHz, q, sampleRateHz);
     this.n = fnHz.length;
     this.coef = new Float64Array(10 * this.n);
@@ -167,11 +190,25 @@ export class ShockSpectrumAccumulator {
     const st = this.state;
     for (let i = 0; i < this.n; i++) {
       const k = 10 * i;
-      const ab0 = c[k]!, ab1 = c[k + 1]!, ab2 = c[k + 2]!, aa1 = c[k + 3]!, aa2 = c[k + 4]!;
-      const zb0 = c[k + 5]!, zb1 = c[k + 6]!, zb2 = c[k + 7]!, za1 = c[k + 8]!, za2 = c[k + 9]!;
-      let y1 = st[4 * i]!, y2 = st[4 * i + 1]!, z1 = st[4 * i + 2]!, z2 = st[4 * i + 3]!;
-      let hiA = this.maxA[i]!, loA = this.minA[i]!, hiZ = this.maxZ[i]!;
-      let xm1 = this.x1, xm2 = this.x2;
+      const ab0 = c[k]!,
+        ab1 = c[k + 1]!,
+        ab2 = c[k + 2]!,
+        aa1 = c[k + 3]!,
+        aa2 = c[k + 4]!;
+      const zb0 = c[k + 5]!,
+        zb1 = c[k + 6]!,
+        zb2 = c[k + 7]!,
+        za1 = c[k + 8]!,
+        za2 = c[k + 9]!;
+      let y1 = st[4 * i]!,
+        y2 = st[4 * i + 1]!,
+        z1 = st[4 * i + 2]!,
+        z2 = st[4 * i + 3]!;
+      let hiA = this.maxA[i]!,
+        loA = this.minA[i]!,
+        hiZ = this.maxZ[i]!;
+      let xm1 = this.x1,
+        xm2 = this.x2;
       for (let j = from; j < to; j++) {
         let v = x[j]!;
         if (!(v === v && v !== Infinity && v !== -Infinity)) v = 0;
@@ -237,8 +274,12 @@ export class ShockSpectrumAccumulator {
       pv[i] = 2 * Math.PI * this.fnHz[i]! * this.maxZ[i]!;
     }
     return {
-      fnHz: Float64Array.from(this.fnHz), q: this.q, maximax, positive: Float64Array.from(this.maxA),
-      negative: this.minA.map((v) => -v), pseudoVelocity: pv,
+      fnHz: Float64Array.from(this.fnHz),
+      q: this.q,
+      maximax,
+      positive: Float64Array.from(this.maxA),
+      negative: this.minA.map((v) => -v),
+      pseudoVelocity: pv,
     };
   }
 }

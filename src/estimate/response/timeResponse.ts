@@ -45,7 +45,12 @@ export class TimeResponseAccumulator {
   private count = 0;
   private held = 0;
 
-  constructor(readonly fnHz: Float64Array, readonly q: number, readonly sampleRateHz: number, readonly basquinB: number) {
+  constructor(
+    readonly fnHz: Float64Array,
+    readonly q: number,
+    readonly sampleRateHz: number,
+    readonly basquinB: number,
+  ) {
     const n = fnHz.length;
     this.coef = new Float64Array(10 * n);
     this.dcZ = new Float64Array(n);
@@ -72,10 +77,11 @@ export class TimeResponseAccumulator {
       let s = 0;
       let m = 0;
       // The first START_SAMPLES of the first block only, so the start does not depend on how the record is cut into blocks.
-      for (let j = 0; j < Math.min(frames, START_SAMPLES); j++) if (Number.isFinite(x[j]!)) {
-        s += x[j]!;
-        m++;
-      }
+      for (let j = 0; j < Math.min(frames, START_SAMPLES); j++)
+        if (Number.isFinite(x[j]!)) {
+          s += x[j]!;
+          m++;
+        }
       if (m > 0) {
         const mean = s / m;
         last = mean;
@@ -103,11 +109,24 @@ export class TimeResponseAccumulator {
     const st = this.state;
     for (let i = 0; i < this.fnHz.length; i++) {
       const k = 10 * i;
-      const ab0 = c[k]!, ab1 = c[k + 1]!, ab2 = c[k + 2]!, aa1 = c[k + 3]!, aa2 = c[k + 4]!;
-      const zb0 = c[k + 5]!, zb1 = c[k + 6]!, zb2 = c[k + 7]!, za1 = c[k + 8]!, za2 = c[k + 9]!;
-      let y1 = st[4 * i]!, y2 = st[4 * i + 1]!, z1 = st[4 * i + 2]!, z2 = st[4 * i + 3]!;
-      let hi = this.maxA[i]!, lo = this.minA[i]!;
-      let xm1 = this.x1, xm2 = this.x2;
+      const ab0 = c[k]!,
+        ab1 = c[k + 1]!,
+        ab2 = c[k + 2]!,
+        aa1 = c[k + 3]!,
+        aa2 = c[k + 4]!;
+      const zb0 = c[k + 5]!,
+        zb1 = c[k + 6]!,
+        zb2 = c[k + 7]!,
+        za1 = c[k + 8]!,
+        za2 = c[k + 9]!;
+      let y1 = st[4 * i]!,
+        y2 = st[4 * i + 1]!,
+        z1 = st[4 * i + 2]!,
+        z2 = st[4 * i + 3]!;
+      let hi = this.maxA[i]!,
+        lo = this.minA[i]!;
+      let xm1 = this.x1,
+        xm2 = this.x2;
       for (let j = 0; j < frames; j++) {
         const u = v[j]!;
         const y = ab0 * u + ab1 * xm1 + ab2 * xm2 + aa1 * y1 + aa2 * y2;
@@ -142,8 +161,14 @@ export class TimeResponseAccumulator {
 
   finish(): TimeResponse {
     return {
-      fnHz: Float64Array.from(this.fnHz), q: this.q, basquinB: this.basquinB, maxAccel: Float64Array.from(this.maxA), minAccel: Float64Array.from(this.minA),
-      rainflowSum: Float64Array.from(this.counters, (c) => c.finish()), samples: this.count, heldSamples: this.held,
+      fnHz: Float64Array.from(this.fnHz),
+      q: this.q,
+      basquinB: this.basquinB,
+      maxAccel: Float64Array.from(this.maxA),
+      minAccel: Float64Array.from(this.minA),
+      rainflowSum: Float64Array.from(this.counters, (c) => c.finish()),
+      samples: this.count,
+      heldSamples: this.held,
     };
   }
 }

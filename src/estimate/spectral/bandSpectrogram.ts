@@ -31,7 +31,8 @@ export class BandSpectrogramAccumulator {
     private readonly bandsHz: { lo: number; hi: number; centre: number }[],
     private readonly sampleRateHz: number,
   ) {
-    if (stretchLength < settings.segmentLength) throw new RangeError("a spectrogram stretch must hold at least one segment");
+    if (stretchLength < settings.segmentLength)
+      throw new RangeError("a spectrogram stretch must hold at least one segment");
     this.current = new WelchAccumulator(settings, power);
   }
 
@@ -53,7 +54,8 @@ export class BandSpectrogramAccumulator {
     const row = new Float64Array(this.bandsHz.length);
     for (let k = 0; k < sums.psd.length; k++) {
       const f = k * df;
-      for (let b = 0; b < this.bandsHz.length; b++) if (f >= this.bandsHz[b]!.lo && f < this.bandsHz[b]!.hi) row[b]! += sums.psd[k]! * df;
+      for (let b = 0; b < this.bandsHz.length; b++)
+        if (f >= this.bandsHz[b]!.lo && f < this.bandsHz[b]!.hi) row[b]! += sums.psd[k]! * df;
     }
     this.rows.push(row);
     this.current = new WelchAccumulator(this.settings, this.power);
@@ -62,7 +64,13 @@ export class BandSpectrogramAccumulator {
 
   finish(sampleRateHz: number): BandSpectrogram {
     const stretchS = this.stretchLength / sampleRateHz;
-    return { stretchS, startS: this.rows.map((_, i) => i * stretchS), bandsHz: this.bandsHz, meanSquare: this.rows, averagesPerStretch: this.averages };
+    return {
+      stretchS,
+      startS: this.rows.map((_, i) => i * stretchS),
+      bandsHz: this.bandsHz,
+      meanSquare: this.rows,
+      averagesPerStretch: this.averages,
+    };
   }
 }
 

@@ -51,8 +51,10 @@ export class CrossSpectrumAccumulator {
   private samples = 0;
 
   constructor(settings: WelchSettings, channels: number, reference = 0) {
-    if (!Number.isInteger(channels) || channels < 1) throw new RangeError(`channels must be a whole number >= 1, got ${channels}`);
-    if (!Number.isInteger(reference) || reference < 0 || reference >= channels) throw new RangeError(`reference channel ${reference} out of range`);
+    if (!Number.isInteger(channels) || channels < 1)
+      throw new RangeError(`channels must be a whole number >= 1, got ${channels}`);
+    if (!Number.isInteger(reference) || reference < 0 || reference >= channels)
+      throw new RangeError(`reference channel ${reference} out of range`);
     this.n = settings.segmentLength;
     this.hop = settings.hop;
     this.window = settings.window;
@@ -76,7 +78,8 @@ export class CrossSpectrumAccumulator {
 
   /** One block: `blocks[c]` holds channel c's next `count` samples (all channels the same count). */
   push(blocks: Float64Array[], count = blocks[0]?.length ?? 0): void {
-    if (blocks.length !== this.channels) throw new RangeError(`expected ${this.channels} channel blocks, got ${blocks.length}`);
+    if (blocks.length !== this.channels)
+      throw new RangeError(`expected ${this.channels} channel blocks, got ${blocks.length}`);
     this.samples += count;
     this.ring.push(blocks, count, this.onFull);
   }
@@ -148,7 +151,11 @@ export class CrossSpectrumAccumulator {
     const half = this.n / 2;
     const k = this.segments;
     const scaled = (s: Float64Array | undefined): Float64Array | undefined =>
-      s === undefined ? undefined : k === 0 ? new Float64Array(half + 1).fill(NaN) : oneSidedDensity(s, sampleRateHz, this.sumW2, k);
+      s === undefined
+        ? undefined
+        : k === 0
+          ? new Float64Array(half + 1).fill(NaN)
+          : oneSidedDensity(s, sampleRateHz, this.sumW2, k);
     return {
       segments: k,
       skippedSegments: this.skipped,
@@ -173,14 +180,22 @@ export class CrossSpectrumListener {
   private acc: CrossSpectrumAccumulator | undefined;
   private taper: Float64Array | undefined;
 
-  constructor(private readonly channels: number, option: string, private readonly reference = 0) {
+  constructor(
+    private readonly channels: number,
+    option: string,
+    private readonly reference = 0,
+  ) {
     this.spectra = { count: 2 * channels - 1, option };
   }
 
   start(_designRateHz: number, analysis: { welch: ResolvedWelchOptions }): void {
     const w = analysis.welch;
     this.taper = spectralWindow(w.window, w.segmentLength);
-    this.acc = new CrossSpectrumAccumulator({ segmentLength: w.segmentLength, hop: w.hop, window: this.taper, detrend: w.detrend }, this.channels, this.reference);
+    this.acc = new CrossSpectrumAccumulator(
+      { segmentLength: w.segmentLength, hop: w.hop, window: this.taper, detrend: w.detrend },
+      this.channels,
+      this.reference,
+    );
   }
 
   push(blocks: Float64Array[], frames: number): void {
@@ -193,11 +208,20 @@ export class CrossSpectrumListener {
 }
 
 /** Cross-spectral density of two whole signals held in memory (for files, analyzeTransfer streams). */
-export function crossSpectralDensity(x: Float64Array, y: Float64Array, sampleRateHz: number, options: WelchOptions = {}): CrossSpectrumSums & { settings: ResolvedWelchOptions; window: Float64Array } {
+export function crossSpectralDensity(
+  x: Float64Array,
+  y: Float64Array,
+  sampleRateHz: number,
+  options: WelchOptions = {},
+): CrossSpectrumSums & { settings: ResolvedWelchOptions; window: Float64Array } {
   if (x.length !== y.length) throw new RangeError(`x and y differ in length (${x.length} and ${y.length})`);
   const s = normalizeWelchOptions(options, sampleRateHz);
   const window = spectralWindow(s.window, s.segmentLength);
-  const acc = new CrossSpectrumAccumulator({ segmentLength: s.segmentLength, hop: s.hop, window, detrend: s.detrend }, 2, 0);
+  const acc = new CrossSpectrumAccumulator(
+    { segmentLength: s.segmentLength, hop: s.hop, window, detrend: s.detrend },
+    2,
+    0,
+  );
   acc.push([x, y]);
   return { ...acc.finish(sampleRateHz), settings: s, window };
 }

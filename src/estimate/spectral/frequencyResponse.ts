@@ -30,11 +30,23 @@ export interface FrequencyResponse {
   predictedOutputPsd: Float64Array;
 }
 
-export function frequencyResponse(gxx: Float64Array, gyy: Float64Array, gxyRe: Float64Array, gxyIm: Float64Array, disjointAverages: number): FrequencyResponse {
+export function frequencyResponse(
+  gxx: Float64Array,
+  gyy: Float64Array,
+  gxyRe: Float64Array,
+  gxyIm: Float64Array,
+  disjointAverages: number,
+): FrequencyResponse {
   const n = gxx.length;
   const r: FrequencyResponse = {
-    h1Magnitude: new Float64Array(n), h2Magnitude: new Float64Array(n), phaseDeg: new Float64Array(n), coherence: new Float64Array(n),
-    magnitudeError: new Float64Array(n), phaseErrorDeg: new Float64Array(n), coherenceError: new Float64Array(n), predictedOutputPsd: new Float64Array(n),
+    h1Magnitude: new Float64Array(n),
+    h2Magnitude: new Float64Array(n),
+    phaseDeg: new Float64Array(n),
+    coherence: new Float64Array(n),
+    magnitudeError: new Float64Array(n),
+    phaseErrorDeg: new Float64Array(n),
+    coherenceError: new Float64Array(n),
+    predictedOutputPsd: new Float64Array(n),
   };
   const nd = disjointAverages;
   for (let k = 0; k < n; k++) {
@@ -91,7 +103,12 @@ export interface ResonanceOptions {
  * (common practice; exact for a lightly damped SDOF as zeta -> 0, 1/(2 zeta) = Q). The crossings are
  * interpolated linearly between lines.
  */
-export function findResonances(frequencyHz: Float64Array, magnitude: Float64Array, coherence: Float64Array, o: ResonanceOptions = {}): Resonance[] {
+export function findResonances(
+  frequencyHz: Float64Array,
+  magnitude: Float64Array,
+  coherence: Float64Array,
+  o: ResonanceOptions = {},
+): Resonance[] {
   const minCoh = o.minCoherence ?? 0.5;
   const minMag = o.minMagnitude ?? 1;
   const count = o.count ?? 8;
@@ -108,7 +125,8 @@ export function findResonances(frequencyHz: Float64Array, magnitude: Float64Arra
     let hi = k + 1;
     while (hi < n && m[hi]! > level && m[hi]! <= p) hi++;
     if (hi >= n || !(m[hi]! <= level)) continue;
-    const cross = (a: number, b: number) => frequencyHz[a]! + ((level - m[a]!) / (m[b]! - m[a]!)) * (frequencyHz[b]! - frequencyHz[a]!);
+    const cross = (a: number, b: number) =>
+      frequencyHz[a]! + ((level - m[a]!) / (m[b]! - m[a]!)) * (frequencyHz[b]! - frequencyHz[a]!);
     const f1 = cross(lo, lo + 1);
     const f2 = cross(hi - 1, hi);
     // Parabola through (k-1, k, k+1): offset d = (a - c) / (2 (a - 2b + c)) lines, top b - (a - c) d / 4.
@@ -118,7 +136,14 @@ export function findResonances(frequencyHz: Float64Array, magnitude: Float64Arra
     const d = den < 0 ? (0.5 * (a - c)) / den : 0;
     const df = frequencyHz[1]! - frequencyHz[0]!;
     const fPeak = frequencyHz[k]! + d * df;
-    found.push({ frequencyHz: fPeak, magnitude: p - 0.25 * (a - c) * d, q: fPeak / (f2 - f1), halfPowerHz: [f1, f2], coherence: coherence[k]!, resolutionLimited: (f2 - f1) < 10 * df });
+    found.push({
+      frequencyHz: fPeak,
+      magnitude: p - 0.25 * (a - c) * d,
+      q: fPeak / (f2 - f1),
+      halfPowerHz: [f1, f2],
+      coherence: coherence[k]!,
+      resolutionLimited: f2 - f1 < 10 * df,
+    });
   }
   found.sort((x, y) => y.magnitude - x.magnitude);
   return found.slice(0, count).sort((x, y) => x.frequencyHz - y.frequencyHz);

@@ -59,5 +59,14 @@ export function parsevalCheck(rmsTime: number, psd: PsdEstimate, window: WindowN
     toleranceFrom = "fixed";
   }
   const belowFirstLineShare = rmsTime > 0 ? 1 - psd.segmentMeanSquare / (rmsTime * rmsTime) : 0;
-  return { rmsTime, rmsPsd, rmsSegments, ratio, tolerance, toleranceFrom, ok: Number.isFinite(ratio) && Math.abs(ratio - 1) <= tolerance, belowFirstLineShare };
+  return {
+    rmsTime,
+    rmsPsd,
+    rmsSegments,
+    ratio,
+    tolerance,
+    toleranceFrom,
+    ok: Number.isFinite(ratio) && Math.abs(ratio - 1) <= tolerance,
+    belowFirstLineShare,
+  };
 }

@@ -33,8 +33,14 @@ export class PeakHoldPsdAccumulator {
   private readonly max: Float64Array;
   private readonly at: Float64Array;
 
-  constructor(private readonly settings: WelchSettings, private readonly power: SegmentPower, private readonly stretchLength: number, private readonly sampleRateHz: number) {
-    if (stretchLength < settings.segmentLength) throw new RangeError("a peak-hold stretch must hold at least one segment");
+  constructor(
+    private readonly settings: WelchSettings,
+    private readonly power: SegmentPower,
+    private readonly stretchLength: number,
+    private readonly sampleRateHz: number,
+  ) {
+    if (stretchLength < settings.segmentLength)
+      throw new RangeError("a peak-hold stretch must hold at least one segment");
     this.current = new WelchAccumulator(settings, power);
     this.max = new Float64Array(settings.segmentLength / 2 + 1);
     this.at = new Float64Array(this.max.length);
@@ -69,6 +75,12 @@ export class PeakHoldPsdAccumulator {
   }
 
   finish(sampleRateHz: number): PeakHoldPsd {
-    return { stretchS: this.stretchLength / sampleRateHz, stretches: this.stretches, averagesPerStretch: this.averages, psd: this.max, atS: this.at };
+    return {
+      stretchS: this.stretchLength / sampleRateHz,
+      stretches: this.stretches,
+      averagesPerStretch: this.averages,
+      psd: this.max,
+      atS: this.at,
+    };
   }
 }

@@ -39,7 +39,12 @@ export function frequencyAxis(segmentLength: number, sampleRateHz: number): Floa
 }
 
 /** Turn the Welch sums into the estimate: frequencies, DOF from the window and hop, bounds. */
-export function completePsd(sums: WelchSums, window: Float64Array, s: ResolvedWelchOptions, sampleRateHz: number): PsdEstimate {
+export function completePsd(
+  sums: WelchSums,
+  window: Float64Array,
+  s: ResolvedWelchOptions,
+  sampleRateHz: number,
+): PsdEstimate {
   const n = s.segmentLength;
   const psd = sums.psd;
   const dof = welchDof(window, s.hop, sums.segments);
@@ -63,7 +68,9 @@ export function completePsd(sums: WelchSums, window: Float64Array, s: ResolvedWe
   for (let k = 0; k < psd.length; k++) area += psd[k]!;
   return {
     frequencyHz: frequencyAxis(n, sampleRateHz),
-    psd, lower, upper,
+    psd,
+    lower,
+    upper,
     averages: sums.segments,
     skippedSegments: sums.skippedSegments,
     dof,
@@ -80,10 +87,17 @@ export function completePsd(sums: WelchSums, window: Float64Array, s: ResolvedWe
 }
 
 /** Welch PSD of one whole signal held in memory. For files, use analyzeRecording (streaming). */
-export function welchPsd(x: Float64Array, sampleRateHz: number, options: WelchOptions = {}): PsdEstimate & { settings: ResolvedWelchOptions } {
+export function welchPsd(
+  x: Float64Array,
+  sampleRateHz: number,
+  options: WelchOptions = {},
+): PsdEstimate & { settings: ResolvedWelchOptions } {
   const s = normalizeWelchOptions(options, sampleRateHz);
   const w = spectralWindow(s.window, s.segmentLength);
-  const acc = new WelchAccumulator({ segmentLength: s.segmentLength, hop: s.hop, window: w, detrend: s.detrend }, new SegmentPower(s.segmentLength));
+  const acc = new WelchAccumulator(
+    { segmentLength: s.segmentLength, hop: s.hop, window: w, detrend: s.detrend },
+    new SegmentPower(s.segmentLength),
+  );
   acc.push(x);
   return { ...completePsd(acc.finish(sampleRateHz), w, s, sampleRateHz), settings: s };
 }
@@ -94,7 +108,11 @@ export function welchPsd(x: Float64Array, sampleRateHz: number, options: WelchOp
  * doubled), and only the part of each cell inside the band counts. So a band that ends mid-cell, or a
  * one-line band, gets its true width, not a whole line at each end.
  */
-export function bandMeanSquare(p: Pick<PsdEstimate, "psd" | "frequencyHz" | "lineSpacingHz">, fminHz: number, fmaxHz: number): number {
+export function bandMeanSquare(
+  p: Pick<PsdEstimate, "psd" | "frequencyHz" | "lineSpacingHz">,
+  fminHz: number,
+  fmaxHz: number,
+): number {
   const df = p.lineSpacingHz;
   const last = p.psd.length - 1;
   const top = last * df;
@@ -112,7 +130,11 @@ export function bandMeanSquare(p: Pick<PsdEstimate, "psd" | "frequencyHz" | "lin
 }
 
 /** sqrt(bandMeanSquare): the RMS in [fmin, fmax]. */
-export function bandRms(p: Pick<PsdEstimate, "psd" | "frequencyHz" | "lineSpacingHz">, fminHz: number, fmaxHz: number): number {
+export function bandRms(
+  p: Pick<PsdEstimate, "psd" | "frequencyHz" | "lineSpacingHz">,
+  fminHz: number,
+  fmaxHz: number,
+): number {
   return Math.sqrt(bandMeanSquare(p, fminHz, fmaxHz));
 }
 

@@ -32,7 +32,8 @@ export class SegmentPower {
   private readonly splitSin: Float64Array;
 
   constructor(size: number) {
-    if (!Number.isInteger(size) || size < 2 || (size & (size - 1)) !== 0) throw new RangeError(`FFT size must be a power of two >= 2, got ${size}`);
+    if (!Number.isInteger(size) || size < 2 || (size & (size - 1)) !== 0)
+      throw new RangeError(`FFT size must be a power of two >= 2, got ${size}`);
     this.size = size;
     const m = size >> 1;
     this.half = m;

@@ -52,7 +52,12 @@ export class SegmentRing {
  * One-sided density from a sum of |X[k]|^2 (or of conj(X) Y parts) over `segments` segments:
  * P[k] = 2 sum[k] / (fs sum w^2 K) for 0 < k < N/2, without the 2 at DC and Nyquist (Welch 1967).
  */
-export function oneSidedDensity(sum: Float64Array, sampleRateHz: number, sumW2: number, segments: number): Float64Array {
+export function oneSidedDensity(
+  sum: Float64Array,
+  sampleRateHz: number,
+  sumW2: number,
+  segments: number,
+): Float64Array {
   const half = sum.length - 1;
   const p = new Float64Array(half + 1);
   if (segments === 0) return p;

@@ -163,7 +163,16 @@ export function spectralKernel(windowName: string, window: Float64Array, detrend
       detrendBias[k] = -p / sumW2;
     }
   }
-  const kernel: SpectralKernel = { oversample: OVERSAMPLE, halfWidthBins: half, tailShare: tail, weights, wideWeights, wideHalfWidthBins: Math.max(wideHalf, half), lineCorrelation, detrendBias };
+  const kernel: SpectralKernel = {
+    oversample: OVERSAMPLE,
+    halfWidthBins: half,
+    tailShare: tail,
+    weights,
+    wideWeights,
+    wideHalfWidthBins: Math.max(wideHalf, half),
+    lineCorrelation,
+    detrendBias,
+  };
   cache.set(key, kernel);
   return kernel;
 }

@@ -118,24 +118,47 @@ export class ToneFitAccumulator {
           const centre = start + (L - 1) / 2;
           let u = (n0 - centre) / L;
           const du = 1 / L;
-          let m0r = m[0]!, m0i = m[1]!, m1r = m[2]!, m1i = m[3]!, m2r = m[4]!, m2i = m[5]!, m3r = m[6]!, m3i = m[7]!, m4r = m[8]!, m4i = m[9]!;
+          let m0r = m[0]!,
+            m0i = m[1]!,
+            m1r = m[2]!,
+            m1i = m[3]!,
+            m2r = m[4]!,
+            m2i = m[5]!,
+            m3r = m[6]!,
+            m3i = m[7]!,
+            m4r = m[8]!,
+            m4i = m[9]!;
           for (let j = 0; j < take; j++) {
             let v = x[i + j]!;
             if (!Number.isFinite(v)) v = 0;
             const a = v * cr;
             const b = v * ci;
             const u2 = u * u;
-            m0r += a; m0i += b;
-            m1r += a * u; m1i += b * u;
-            m2r += a * u2; m2i += b * u2;
-            m3r += a * u2 * u; m3i += b * u2 * u;
-            m4r += a * u2 * u2; m4i += b * u2 * u2;
+            m0r += a;
+            m0i += b;
+            m1r += a * u;
+            m1i += b * u;
+            m2r += a * u2;
+            m2i += b * u2;
+            m3r += a * u2 * u;
+            m3i += b * u2 * u;
+            m4r += a * u2 * u2;
+            m4i += b * u2 * u2;
             const t2 = cr * cw + ci * sw;
             ci = ci * cw - cr * sw;
             cr = t2;
             u += du;
           }
-          m[0] = m0r; m[1] = m0i; m[2] = m1r; m[3] = m1i; m[4] = m2r; m[5] = m2i; m[6] = m3r; m[7] = m3i; m[8] = m4r; m[9] = m4i;
+          m[0] = m0r;
+          m[1] = m0i;
+          m[2] = m1r;
+          m[3] = m1i;
+          m[4] = m2r;
+          m[5] = m2i;
+          m[6] = m3r;
+          m[7] = m3i;
+          m[8] = m4r;
+          m[9] = m4i;
           i += take;
           if (pos + take === L) tr.close();
         }
@@ -151,7 +174,8 @@ export class ToneFitAccumulator {
         const tone = this.tones[t]!;
         if (this.n % this.stretchLength[t]! !== 0) tr.close();
         return fitTrack(tr, tone, this.stretchLength[t]!, this.designFs, this.n, scale);
-      }));
+      }),
+    );
   }
 }
 
@@ -207,7 +231,12 @@ function dftAt(tr: ToneTrack, L: number, fs: number, dHz: number): { re: number;
 }
 
 function fitTrack(tr: ToneTrack, tone: ToneRequest, L: number, fs: number, n: number, scale: number): ToneFit {
-  const base = { nominalHz: tone.hz, samples: n, durationS: n / (fs * scale), searchHalfWidthHz: tone.searchHalfWidthHz };
+  const base = {
+    nominalHz: tone.hz,
+    samples: n,
+    durationS: n / (fs * scale),
+    searchHalfWidthHz: tone.searchHalfWidthHz,
+  };
   if (tr.count === 0 || n === 0) return { ...base, frequencyHz: tone.hz, peak: 0, phaseRad: 0 };
   // Coarse: zero-padded FFT of the M_0 sequence, bins fs / (L P) apart (at most a quarter of 1/T).
   let P = 2;
@@ -244,14 +273,27 @@ function fitTrack(tr: ToneTrack, tone: ToneRequest, L: number, fs: number, n: nu
   let f2 = mag2(x2);
   for (let it = 0; it < 60 && b - a > 1e-9 * Math.max(1, tone.hz); it++) {
     if (f1 > f2) {
-      b = x2; x2 = x1; f2 = f1; x1 = b - g * (b - a); f1 = mag2(x1);
+      b = x2;
+      x2 = x1;
+      f2 = f1;
+      x1 = b - g * (b - a);
+      f1 = mag2(x1);
     } else {
-      a = x1; x1 = x2; f1 = f2; x2 = a + g * (b - a); f2 = mag2(x2);
+      a = x1;
+      x1 = x2;
+      f1 = f2;
+      x2 = a + g * (b - a);
+      f2 = mag2(x2);
     }
   }
   const d = (a + b) / 2;
   const X = dftAt(tr, L, fs, d);
-  return { ...base, frequencyHz: (tone.hz + d) * scale, peak: (2 * Math.hypot(X.re, X.im)) / n, phaseRad: Math.atan2(X.im, X.re) };
+  return {
+    ...base,
+    frequencyHz: (tone.hz + d) * scale,
+    peak: (2 * Math.hypot(X.re, X.im)) / n,
+    phaseRad: Math.atan2(X.im, X.re),
+  };
 }
 
 /** Standard deviation of a fitted tone's peak on a background of one-sided density G over T s: sqrt(G / T) (Kay 1993, Example 3.14, from memory). */
@@ -261,7 +303,9 @@ export function tonePeakSd(backgroundDensity: number, durationS: number): number
 
 /** Standard deviation of a fitted tone's frequency: sqrt(3 G) / (pi A T^1.5), Hz (Kay 1993, Example 3.14, from memory). */
 export function toneFrequencySd(backgroundDensity: number, peak: number, durationS: number): number {
-  return peak > 0 ? Math.sqrt(3 * Math.max(0, backgroundDensity)) / (Math.PI * peak * Math.pow(durationS, 1.5)) : Infinity;
+  return peak > 0
+    ? Math.sqrt(3 * Math.max(0, backgroundDensity)) / (Math.PI * peak * Math.pow(durationS, 1.5))
+    : Infinity;
 }
 
 // ---- What a Welch spectrum shows of a tone.
@@ -272,7 +316,15 @@ export function toneFrequencySd(backgroundDensity: number, peak: number, duratio
  * spectralKernel.ts kernelDensityAt, taken as the largest over ±0.5 bin so that the exact position between
  * lines does not matter). Returns the first and last line index.
  */
-export function toneLines(window: Float64Array, lineSpacingHz: number, lineCount: number, hz: number, peak: number, background: (i: number) => number, share = 0.01): { first: number; last: number } {
+export function toneLines(
+  window: Float64Array,
+  lineSpacingHz: number,
+  lineCount: number,
+  hz: number,
+  peak: number,
+  background: (i: number) => number,
+  share = 0.01,
+): { first: number; last: number } {
   const centre = hz / lineSpacingHz;
   const power = (peak * peak) / 2 / lineSpacingHz;
   const leaks = (i: number) => {
@@ -312,20 +364,24 @@ export interface SpectralTone {
  */
 export function spectralTones(
   sp: { frequencyHz: Float64Array; psd: Float64Array; lineSpacingHz: number; dof: number },
-  window: Float64Array, kernelHalfWidthBins: number, options: { minDb?: number; familyLevel?: number; max?: number } = {},
+  window: Float64Array,
+  kernelHalfWidthBins: number,
+  options: { minDb?: number; familyLevel?: number; max?: number } = {},
 ): SpectralTone[] {
   const n = sp.psd.length;
   const reach = Math.ceil(kernelHalfWidthBins) + 1;
   const side = 16;
   const minRatio = Math.pow(10, (options.minDb ?? 10) / 10);
-  const chance = sp.dof > 0 ? chiSquareUpperQuantile((options.familyLevel ?? 0.01) / Math.max(1, n), sp.dof) / sp.dof : Infinity;
+  const chance =
+    sp.dof > 0 ? chiSquareUpperQuantile((options.familyLevel ?? 0.01) / Math.max(1, n), sp.dof) / sp.dof : Infinity;
   const ratio = Math.max(minRatio, chance);
   const out: SpectralTone[] = [];
   const nb: number[] = [];
   for (let i = 2; i < n - 1; i++) {
     const p = sp.psd[i]!;
     let top = true;
-    for (let k = Math.max(1, i - reach); k <= Math.min(n - 1, i + reach); k++) if (k !== i && sp.psd[k]! > p) top = false;
+    for (let k = Math.max(1, i - reach); k <= Math.min(n - 1, i + reach); k++)
+      if (k !== i && sp.psd[k]! > p) top = false;
     if (!top) continue;
     nb.length = 0;
     for (let k = i - reach - side; k < i - reach; k++) if (k >= 1) nb.push(sp.psd[k]!);
@@ -339,8 +395,14 @@ export function spectralTones(
     let near = 0;
     let cnt = 0;
     for (let k = reach + 1; k <= reach + 3; k++) {
-      if (i - k >= 1) { near += sp.psd[i - k]!; cnt++; }
-      if (i + k < n) { near += sp.psd[i + k]!; cnt++; }
+      if (i - k >= 1) {
+        near += sp.psd[i - k]!;
+        cnt++;
+      }
+      if (i + k < n) {
+        near += sp.psd[i + k]!;
+        cnt++;
+      }
     }
     if (cnt > 0 && near / cnt > 2 * bg) continue;
     // Kernel fit on the lines within reach.
@@ -372,7 +434,12 @@ export function spectralTones(
       }
     }
     if (!(bestA > 0)) continue;
-    out.push({ frequencyHz: sp.frequencyHz[i]! + bestD * sp.lineSpacingHz, peak: Math.sqrt(2 * bestA * sp.lineSpacingHz), aboveBackgroundDb: 10 * Math.log10(p / bg), backgroundDensity: bg });
+    out.push({
+      frequencyHz: sp.frequencyHz[i]! + bestD * sp.lineSpacingHz,
+      peak: Math.sqrt(2 * bestA * sp.lineSpacingHz),
+      aboveBackgroundDb: 10 * Math.log10(p / bg),
+      backgroundDensity: bg,
+    });
     i += reach;
   }
   out.sort((a, b) => b.peak - a.peak);

@@ -28,7 +28,13 @@ export interface ResolvedWelchOptions {
   resolutionHz: number;
 }
 
-export const WELCH_DEFAULTS = { window: "hann", segmentLength: 4096, overlap: 0.5, detrend: "mean", confidence: 0.9 } as const;
+export const WELCH_DEFAULTS = {
+  window: "hann",
+  segmentLength: 4096,
+  overlap: 0.5,
+  detrend: "mean",
+  confidence: 0.9,
+} as const;
 const MAX_SEGMENT = 1 << 22;
 export const MIN_CONFIDENCE = 1e-9;
 export const MAX_CONFIDENCE = 1 - 1e-9;
@@ -50,16 +56,22 @@ export function normalizeWelchOptions(o: WelchOptions, sampleRateHz: number): Re
   // Beyond 1 - 1e-9 the tail probability (1 - c) / 2 rounds away in the chi-square quantiles.
   if (!(confidence >= MIN_CONFIDENCE && confidence <= MAX_CONFIDENCE)) bad("confidence", CONFIDENCE_RULE, confidence);
   if (o.segmentLength !== undefined && o.resolutionHz !== undefined) {
-    throw new InputError("OPTION_CONFLICT", { option: "segmentLength", expected: "either `segmentLength` or `resolutionHz`", received: "both" });
+    throw new InputError("OPTION_CONFLICT", {
+      option: "segmentLength",
+      expected: "either `segmentLength` or `resolutionHz`",
+      received: "both",
+    });
   }
   let n: number;
   if (o.resolutionHz !== undefined) {
-    if (!(o.resolutionHz > 0) || !Number.isFinite(o.resolutionHz)) bad("resolutionHz", "a line spacing in Hz above 0", o.resolutionHz);
+    if (!(o.resolutionHz > 0) || !Number.isFinite(o.resolutionHz))
+      bad("resolutionHz", "a line spacing in Hz above 0", o.resolutionHz);
     n = 2;
     while (sampleRateHz / n > o.resolutionHz && n < MAX_SEGMENT) n *= 2;
   } else {
     n = o.segmentLength ?? WELCH_DEFAULTS.segmentLength;
-    if (!isPowerOfTwo(n) || n > MAX_SEGMENT) bad("segmentLength", `a power of two from 2 to ${MAX_SEGMENT} (e.g. 4096)`, n);
+    if (!isPowerOfTwo(n) || n > MAX_SEGMENT)
+      bad("segmentLength", `a power of two from 2 to ${MAX_SEGMENT} (e.g. 4096)`, n);
   }
   const hop = n - Math.round(overlap * n);
   if (hop < 1) bad("overlap", "an overlap that leaves a hop of at least one sample", overlap);

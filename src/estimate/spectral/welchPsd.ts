@@ -125,7 +125,8 @@ export class WelchAccumulator {
     this.window = settings.window;
     this.detrend = settings.detrend;
     this.power = power ?? new SegmentPower(this.n);
-    if (this.power.size !== this.n || this.window.length !== this.n) throw new RangeError("window, FFT and segment length differ");
+    if (this.power.size !== this.n || this.window.length !== this.n)
+      throw new RangeError("window, FFT and segment length differ");
     this.ring = new SegmentRing(this.n, this.hop, 1);
     this.tileStride = Math.max(1, Math.floor(this.n / this.hop));
     this.sum = new Float64Array(this.n / 2 + 1);
@@ -225,8 +226,10 @@ export class WelchAccumulator {
       segmentMeanSquare: k > 0 ? this.plainMs / k : NaN,
       meanSquareGapError: gap.error,
       meanSquareGapBatches: gap.batches,
-      detrendedKurtosis: this.tiled > 0 && this.tiledPlain > 0 ? this.fourth / this.tiled / (this.tiledPlain / this.tiled) ** 2 : NaN,
-      detrendedCrestFactor: this.tiled > 0 && this.tiledPlain > 0 ? this.peak / Math.sqrt(this.tiledPlain / this.tiled) : NaN,
+      detrendedKurtosis:
+        this.tiled > 0 && this.tiledPlain > 0 ? this.fourth / this.tiled / (this.tiledPlain / this.tiled) ** 2 : NaN,
+      detrendedCrestFactor:
+        this.tiled > 0 && this.tiledPlain > 0 ? this.peak / Math.sqrt(this.tiledPlain / this.tiled) : NaN,
     };
   }
 }

@@ -33,7 +33,8 @@ export class WelchWeightedMeanSquare {
     for (let j = 0; j < hop; j++) {
       // Sample i = N + j (any i >= N with the same phase) lies in segments starting at i - m for m = i - k hop in [0, N).
       const i = this.n + j;
-      for (let k = Math.ceil((i - this.n + 1) / hop); k * hop <= i; k++) this.periodicWeight[j]! += this.w2[i - k * hop]!;
+      for (let k = Math.ceil((i - this.n + 1) / hop); k * hop <= i; k++)
+        this.periodicWeight[j]! += this.w2[i - k * hop]!;
     }
     this.ring = new Float64Array(this.n + hop);
   }
@@ -64,7 +65,8 @@ export class WelchWeightedMeanSquare {
     const from = Math.max(0, total - this.ring.length);
     for (let i = from; i < total; i++) {
       let actual = 0;
-      for (let k = Math.max(0, Math.ceil((i - this.n + 1) / this.hop)); k * this.hop <= Math.min(i, lastStart); k++) actual += this.w2[i - k * this.hop]!;
+      for (let k = Math.max(0, Math.ceil((i - this.n + 1) / this.hop)); k * this.hop <= Math.min(i, lastStart); k++)
+        actual += this.w2[i - k * this.hop]!;
       s += (actual - this.weight(i)) * this.ring[i % this.ring.length]!;
     }
     return { segments, meanSquare: s / (segments * this.sumW2) };

@@ -30,7 +30,9 @@ export interface SampleStatistics {
   atMax: number;
 }
 
-const [N, NONFINITE, S1, S2, S3, S4, ST, STT, STD, MIN, MAX, AT_MIN, AT_MAX, SUMS] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13] as const;
+const [N, NONFINITE, S1, S2, S3, S4, ST, STT, STD, MIN, MAX, AT_MIN, AT_MAX, SUMS] = [
+  0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13,
+] as const;
 
 /**
  * The hot loop, kept apart from the class so the engine optimises it as a plain function over arrays:

@@ -105,6 +105,15 @@ export class SampleHoldAccumulator {
     const meanRun = nr > 0 ? nl / nr : 1;
     const heldShare = this.count > 0 ? Math.min(1, inLong / this.count) : 0;
     const held = runs >= 100 && modalRun >= 2 && modalRun < MAX_RUN && heldShare >= 0.9;
-    return { runs, heldShare, modalRun, meanRun, held, updateRateHz: held ? sampleRateHz / meanRun : sampleRateHz, runsAtMax: this.runsAtMax, runsAtMin: this.runsAtMin };
+    return {
+      runs,
+      heldShare,
+      modalRun,
+      meanRun,
+      held,
+      updateRateHz: held ? sampleRateHz / meanRun : sampleRateHz,
+      runsAtMax: this.runsAtMax,
+      runsAtMin: this.runsAtMin,
+    };
   }
 }

@@ -120,7 +120,19 @@ export function reverseArrangementsTest(values: ArrayLike<number>, alpha = 0.05)
   const std = Math.sqrt((n * (2 * n + 5) * (n - 1)) / 72);
   const exact = n <= EXACT_LIMIT;
   const r = exact ? exactRegion(inversionDistribution(n), 0, alpha) : normalRegion(expected, std, alpha);
-  return { test: "reverse arrangements", n, statistic: a, expected, std, acceptAbove: r.low, acceptAtMost: r.high, alpha, falseAlarmRate: r.rate, method: exact ? "exact" : "normal", stationary: a > r.low && a <= r.high };
+  return {
+    test: "reverse arrangements",
+    n,
+    statistic: a,
+    expected,
+    std,
+    acceptAbove: r.low,
+    acceptAtMost: r.high,
+    alpha,
+    falseAlarmRate: r.rate,
+    method: exact ? "exact" : "normal",
+    stationary: a > r.low && a <= r.high,
+  };
 }
 
 /** P(R = r), r = 2..n1+n2, for n1 and n2 values of two kinds in random order (Wald & Wolfowitz 1940). */
@@ -172,7 +184,19 @@ export function runTest(values: ArrayLike<number>, alpha = 0.05): StationarityTe
   const std = n > 1 ? Math.sqrt((2 * n1 * n2 * (2 * n1 * n2 - n)) / (n * n * (n - 1))) : NaN;
   const exact = n <= EXACT_LIMIT;
   const r = exact ? exactRegion(runsDistribution(n1, n2), 2, alpha) : normalRegion(expected, std, alpha);
-  return { test: "runs", n, statistic: runs, expected, std, acceptAbove: r.low, acceptAtMost: r.high, alpha, falseAlarmRate: r.rate, method: exact ? "exact" : "normal", stationary: runs > r.low && runs <= r.high };
+  return {
+    test: "runs",
+    n,
+    statistic: runs,
+    expected,
+    std,
+    acceptAbove: r.low,
+    acceptAtMost: r.high,
+    alpha,
+    falseAlarmRate: r.rate,
+    method: exact ? "exact" : "normal",
+    stationary: runs > r.low && runs <= r.high,
+  };
 }
 
 export interface DepartingStretch {
@@ -205,15 +229,22 @@ export const MIN_STRETCHES = 10;
  * decides (sensitive to trends and steps, Bendat & Piersol 2010 sec. 4.5.2), on at most `maxValues`
  * values (consecutive stretches pooled by their mean when there are more; a partial last pool dropped).
  */
-export function stationarityFinding(stretchMeanSquares: ArrayLike<number>, stretchS: number, startS = 0, options: { alpha?: number; maxValues?: number; departing?: number } = {}): StationarityFinding {
+export function stationarityFinding(
+  stretchMeanSquares: ArrayLike<number>,
+  stretchS: number,
+  startS = 0,
+  options: { alpha?: number; maxValues?: number; departing?: number } = {},
+): StationarityFinding {
   const alpha = options.alpha ?? 0.05;
   const maxValues = options.maxValues ?? 100;
   const finite: number[] = [];
-  for (let i = 0; i < stretchMeanSquares.length; i++) if (Number.isFinite(stretchMeanSquares[i]!)) finite.push(stretchMeanSquares[i]!);
+  for (let i = 0; i < stretchMeanSquares.length; i++)
+    if (Number.isFinite(stretchMeanSquares[i]!)) finite.push(stretchMeanSquares[i]!);
   const count = stretchMeanSquares.length;
   const departing = departingStretches(stretchMeanSquares, stretchS, startS, options.departing ?? 3);
   // Too few values, or all alike (a constant record): nothing to test.
-  if (finite.length < MIN_STRETCHES || finite.every((v) => v === finite[0])) return { tested: false, stretchS, stretches: count, pooled: 1, stationary: true, departing };
+  if (finite.length < MIN_STRETCHES || finite.every((v) => v === finite[0]))
+    return { tested: false, stretchS, stretches: count, pooled: 1, stationary: true, departing };
   const pooled = Math.ceil(finite.length / maxValues);
   const values: number[] = [];
   for (let i = 0; i + pooled <= finite.length; i += pooled) {
@@ -222,11 +253,27 @@ export function stationarityFinding(stretchMeanSquares: ArrayLike<number>, stret
     values.push(s / pooled);
   }
   const ra = reverseArrangementsTest(values, alpha);
-  return { tested: true, stretchS, stretches: count, pooled, reverseArrangements: ra, runs: runTest(values, alpha), stationary: ra.stationary, departing };
+  return {
+    tested: true,
+    stretchS,
+    stretches: count,
+    pooled,
+    reverseArrangements: ra,
+    runs: runTest(values, alpha),
+    stationary: ra.stationary,
+    departing,
+  };
 }
 
-function departingStretches(ms: ArrayLike<number>, stretchS: number, startS: number, count: number): DepartingStretch[] {
-  const finite = Array.from(ms).filter(Number.isFinite).sort((a, b) => a - b);
+function departingStretches(
+  ms: ArrayLike<number>,
+  stretchS: number,
+  startS: number,
+  count: number,
+): DepartingStretch[] {
+  const finite = Array.from(ms)
+    .filter(Number.isFinite)
+    .sort((a, b) => a - b);
   if (finite.length === 0) return [];
   const m = finite.length;
   const median = m % 2 ? finite[(m - 1) / 2]! : (finite[m / 2 - 1]! + finite[m / 2]!) / 2;
@@ -234,7 +281,11 @@ function departingStretches(ms: ArrayLike<number>, stretchS: number, startS: num
   for (let i = 0; i < ms.length; i++) {
     const v = ms[i]!;
     if (!Number.isFinite(v) || !(median > 0)) continue;
-    all.push({ fromS: startS + i * stretchS, toS: startS + (i + 1) * stretchS, levelDb: 10 * Math.log10(Math.max(v, 1e-300) / median) });
+    all.push({
+      fromS: startS + i * stretchS,
+      toS: startS + (i + 1) * stretchS,
+      levelDb: 10 * Math.log10(Math.max(v, 1e-300) / median),
+    });
   }
   all.sort((a, b) => Math.abs(b.levelDb) - Math.abs(a.levelDb));
   return all.slice(0, count);

@@ -15,7 +15,8 @@ export class StretchMeanSquares {
   private s2 = 0;
 
   constructor(readonly stretchLength: number) {
-    if (!(Number.isInteger(stretchLength) && stretchLength >= 2)) throw new RangeError(`stretch of ${stretchLength} samples: needs a whole number >= 2`);
+    if (!(Number.isInteger(stretchLength) && stretchLength >= 2))
+      throw new RangeError(`stretch of ${stretchLength} samples: needs a whole number >= 2`);
   }
 
   push(x: Float64Array, frames: number): void {

@@ -40,7 +40,11 @@ export interface LogToleranceLimit {
  * field spectra, as NASA-HDBK-7005 uses for its P95/50 limit; from memory). `spectra` are equally long rows.
  * Undefined for fewer than MIN_TOLERANCE_SAMPLES rows: the limit cannot be computed, not guessed.
  */
-export function logToleranceLimit(spectra: readonly Float64Array[], coverage: number, confidence: number): LogToleranceLimit | undefined {
+export function logToleranceLimit(
+  spectra: readonly Float64Array[],
+  coverage: number,
+  confidence: number,
+): LogToleranceLimit | undefined {
   const n = spectra.length;
   if (n < MIN_TOLERANCE_SAMPLES) return undefined;
   const k = oneSidedToleranceFactor(n, coverage, confidence);

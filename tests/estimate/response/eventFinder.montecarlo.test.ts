@@ -28,5 +28,4 @@ describe("EventFinder: false events by Monte Carlo", () => {
     expect(gaussianFalseEventRate(6, nu0) * seconds).toBeLessThan(0.01);
     expect(found6).toBe(0);
   });
-
 });

@@ -1,7 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { backgroundRms, EventFinder, gaussianFalseEventRate } from "../../../src/estimate/response/eventFinder.js";
+import { backgroundRms, EventFinder } from "../../../src/estimate/response/eventFinder.js";
 import { shockSpectrum, ShockSpectrumAccumulator } from "../../../src/estimate/response/shockResponse.js";
-import { gaussian } from "../../helpers.js";
 import { bandLimited, FS, run, stretchMeanSquares } from "./eventRecords.js";
 
 describe("EventFinder", () => {
@@ -15,7 +14,15 @@ describe("EventFinder", () => {
     const fn = Float64Array.from([10, 40, 73, 150, 400]);
     const pre = 200;
     const post = 1600; // 0.4 s: four periods of 10 Hz
-    const ev = run(new EventFinder({ threshold: 1, holdSamples: 100, srs: { fnHz: fn, q: 10, sampleRateHz: fs, preSamples: pre, postSamples: post } }), x, 1);
+    const ev = run(
+      new EventFinder({
+        threshold: 1,
+        holdSamples: 100,
+        srs: { fnHz: fn, q: 10, sampleRateHz: fs, preSamples: pre, postSamples: post },
+      }),
+      x,
+      1,
+    );
     expect(ev).toHaveLength(1);
     const e = ev[0]!;
     expect(e.peak).toBeCloseTo(20, 1);
@@ -39,7 +46,15 @@ describe("EventFinder", () => {
       const fn = Float64Array.from([5, 20, 73, 400]);
       const pre = 200;
       const post = 1600;
-      const ev = run(new EventFinder({ threshold: 0.5, holdSamples: 300, srs: { fnHz: fn, q: 10, sampleRateHz: fs, preSamples: pre, postSamples: post } }), x, seed);
+      const ev = run(
+        new EventFinder({
+          threshold: 0.5,
+          holdSamples: 300,
+          srs: { fnHz: fn, q: 10, sampleRateHz: fs, preSamples: pre, postSamples: post },
+        }),
+        x,
+        seed,
+      );
       expect(ev).toHaveLength(1);
       const e = ev[0]!;
       const ref = new ShockSpectrumAccumulator(fn, 10, fs);
@@ -66,14 +81,22 @@ describe("EventFinder", () => {
     x[140] = -7;
     x[300] = 4;
     const ev = run(new EventFinder({ threshold: 3, holdSamples: 50 }), x, 2);
-    expect(ev.map((e) => [e.firstIndex, e.lastIndex, e.peakIndex, e.peak])).toEqual([[100, 140, 140, -7], [300, 300, 300, 4]]);
+    expect(ev.map((e) => [e.firstIndex, e.lastIndex, e.peakIndex, e.peak])).toEqual([
+      [100, 140, 140, -7],
+      [300, 300, 300, 4],
+    ]);
   });
 
   it("finds known pulses on a Gaussian background at the default 6 x background: times, signed peaks, and nothing else", () => {
     const n = 1 << 17;
     const x = bandLimited(n, 11);
     const pulses = [
-      { t: 7.3, peak: 9 }, { t: 19.05, peak: -12 }, { t: 40.5, peak: 8 }, { t: 66.6, peak: -9.5 }, { t: 90.2, peak: 15 }, { t: 111.1, peak: 10 },
+      { t: 7.3, peak: 9 },
+      { t: 19.05, peak: -12 },
+      { t: 40.5, peak: 8 },
+      { t: 66.6, peak: -9.5 },
+      { t: 90.2, peak: 15 },
+      { t: 111.1, peak: 10 },
     ];
     const T = 0.012;
     for (const p of pulses) {
@@ -98,6 +121,8 @@ describe("EventFinder", () => {
 
   it("refuses a threshold inside the background (too many events) with one clear code", () => {
     const x = bandLimited(1 << 14, 5);
-    expect(() => run(new EventFinder({ threshold: 0.1, holdSamples: 1, maxEvents: 50 }), x, 1)).toThrow(/SHOCK_TOO_MANY_EVENTS/);
+    expect(() => run(new EventFinder({ threshold: 0.1, holdSamples: 1, maxEvents: 50 }), x, 1)).toThrow(
+      /SHOCK_TOO_MANY_EVENTS/,
+    );
   });
 });

@@ -54,11 +54,10 @@ export function stretchMeanSquares(x: Float64Array, len: number): number[] {
 /** Pushes in blocks of seeded random lengths (1..3000) to cross block edges everywhere. */
 export function run(finder: EventFinder, x: Float64Array, seed: number) {
   const u = seeded(seed);
-  for (let i = 0; i < x.length;) {
+  for (let i = 0; i < x.length; ) {
     const len = Math.min(x.length - i, 1 + Math.floor(u() * 3000));
     finder.push(x.subarray(i, i + len), len);
     i += len;
   }
   return finder.finish();
 }
-

@@ -16,7 +16,11 @@ describe("narrowBandDamage (Miles 1954 Rayleigh form; docs/REFERENCES.md sec. 14
     const n = 1 << 17;
     const fn = 100;
     const q = 10;
-    const m = sdofResponse(powerLawSpectrum([{ f1: 1e-9, f2: rate / 2, g1: 2 / rate, exponent: 0 }]), fn, q).relativeDisplacement;
+    const m = sdofResponse(
+      powerLawSpectrum([{ f1: 1e-9, f2: rate / 2, g1: 2 / rate, exponent: 0 }]),
+      fn,
+      q,
+    ).relativeDisplacement;
     const sigma = Math.sqrt(m.m0);
     const nu = riceRates(m).upcrossingRateHz;
     const T = n / rate;
@@ -44,7 +48,8 @@ describe("narrowBandDamage (Miles 1954 Rayleigh form; docs/REFERENCES.md sec. 14
     // 6e-5) holds for any choice of seeds: b = 4 within 0.069, b = 8 within 0.187 of the expected ratio.
     const expected = { 4: { mean: 0.9653, sd: 0.0658 }, 8: { mean: 0.9281, sd: 0.1783 } };
     for (const b of [4, 8] as const) {
-      const predicted = records * narrowBandDamage(sigma, nu, T, { basquinB: b, snConstant: 1, stressPerUnit: 1 / sigma });
+      const predicted =
+        records * narrowBandDamage(sigma, nu, T, { basquinB: b, snConstant: 1, stressPerUnit: 1 / sigma });
       const ratio = counted[b] / predicted;
       const e = expected[b];
       const bound = 4 * Math.sqrt((e.sd / Math.sqrt(records)) ** 2 + (e.sd / Math.sqrt(160)) ** 2);

@@ -17,7 +17,10 @@ describe("inputSpectrum", () => {
     expect(Math.abs(m.m2 / m.m0 / (1e6 / 3) - 1)).toBeLessThan(1e-12);
   });
   it("powerLawSpectrum takes a profile's segments as they are: level equals profileLevel and the integral its RMS^2", () => {
-    const p = parseProfile("title: D\nunits: g2/Hz\npoints: [{hz: 10, level: 0.001}, {hz: 40, level: 0.02}, {hz: 300, level: 0.02}, {hz: 1500, level: 0.002}]\ntolerance: {bands: [{fromHz: 10, toHz: 1500, upperDb: 3, lowerDb: 3}]}\n", "d.yaml");
+    const p = parseProfile(
+      "title: D\nunits: g2/Hz\npoints: [{hz: 10, level: 0.001}, {hz: 40, level: 0.02}, {hz: 300, level: 0.02}, {hz: 1500, level: 0.002}]\ntolerance: {bands: [{fromHz: 10, toHz: 1500, upperDb: 3, lowerDb: 3}]}\n",
+      "d.yaml",
+    );
     const s = powerLawSpectrum(p.segments);
     for (const f of [10, 17.3, 40, 299.9, 1500]) expect(s.level(f)).toBeCloseTo(profileLevel(p, f), 14);
     // Invented profile D of docs/REFERENCES.md sec. 5: 3.5236 g.

@@ -9,19 +9,29 @@ describe("spectrumMotion (docs/REFERENCES.md sec. 6)", () => {
     expect(m.accelerationRms).toBeCloseTo(8.8994, 4);
     expect(m.velocityRms * 1000).toBeCloseTo(69.45, 2);
     expect(m.displacementRms * 1000).toBeCloseTo(0.3207, 4);
-    const v2 = (0.04 * G * G) / (4 * Math.PI ** 2) * (1 / 20 - 1 / 2000);
-    const d2 = (0.04 * G * G) / (16 * Math.PI ** 4) * (1 / (3 * 20 ** 3) - 1 / (3 * 2000 ** 3));
+    const v2 = ((0.04 * G * G) / (4 * Math.PI ** 2)) * (1 / 20 - 1 / 2000);
+    const d2 = ((0.04 * G * G) / (16 * Math.PI ** 4)) * (1 / (3 * 20 ** 3) - 1 / (3 * 2000 ** 3));
     expect(Math.abs(m.velocityRms ** 2 / v2 - 1)).toBeLessThan(1e-6);
     expect(Math.abs(m.displacementRms ** 2 / d2 - 1)).toBeLessThan(1e-6);
     expect(m.displacementPeakToPeak).toBeCloseTo(6 * m.displacementRms, 15);
   });
   it("profile A (20/80/350/2000 Hz, NAVMAT P-9492): 52.56 mm/s and 0.1943 mm RMS, 6-sigma stroke 1.166 mm (docs/REFERENCES.md sec. 6, 1e-3)", () => {
-    const pts = [[20, 0.01], [80, 0.04], [350, 0.04], [2000, 0.007]] as const;
-    const segs = pts.slice(1).map(([f2, g2], i) => ({ f1: pts[i]![0], f2, g1: pts[i]![1], exponent: Math.log(g2 / pts[i]![1]) / Math.log(f2 / pts[i]![0]) }));
+    const pts = [
+      [20, 0.01],
+      [80, 0.04],
+      [350, 0.04],
+      [2000, 0.007],
+    ] as const;
+    const segs = pts.slice(1).map(([f2, g2], i) => ({
+      f1: pts[i]![0],
+      f2,
+      g1: pts[i]![1],
+      exponent: Math.log(g2 / pts[i]![1]) / Math.log(f2 / pts[i]![0]),
+    }));
     const m = spectrumMotion(powerLawSpectrum(segs), G);
-    expect(Math.abs(m.velocityRms * 1000 / 52.56 - 1)).toBeLessThan(1e-3);
-    expect(Math.abs(m.displacementRms * 1000 / 0.1943 - 1)).toBeLessThan(1e-3);
-    expect(Math.abs(m.displacementPeakToPeak * 1000 / 1.166 - 1)).toBeLessThan(1e-3);
+    expect(Math.abs((m.velocityRms * 1000) / 52.56 - 1)).toBeLessThan(1e-3);
+    expect(Math.abs((m.displacementRms * 1000) / 0.1943 - 1)).toBeLessThan(1e-3);
+    expect(Math.abs((m.displacementPeakToPeak * 1000) / 1.166 - 1)).toBeLessThan(1e-3);
     expect(Math.abs(m.accelerationRms / 6.0582 - 1)).toBeLessThan(1e-4);
   });
   it("a range that starts at 0 Hz is refused (the displacement would be infinite)", () => {

@@ -4,7 +4,8 @@ import { davenportPeakFactor, riceRates } from "../../../src/estimate/response/p
 import { sdofResponse } from "../../../src/estimate/response/sdofResponse.js";
 import { sdofRecords } from "./sdofSimulation.js";
 
-const flat = (f1: number, f2: number) => spectralMoments(powerLawSpectrum([{ f1, f2, g1: 1, exponent: 0 }]), () => 1, 0, 1);
+const flat = (f1: number, f2: number) =>
+  spectralMoments(powerLawSpectrum([{ f1, f2, g1: 1, exponent: 0 }]), () => 1, 0, 1);
 
 describe("riceRates (Rice 1944-45, Hz moments; worked numbers of docs/REFERENCES.md sec. 10)", () => {
   it("flat 0-1000 Hz: nu0+ 577.35 /s, nu_p 774.60 /s, alpha 0.7454", () => {
@@ -34,7 +35,11 @@ describe("davenportPeakFactor (Davenport 1964, from memory; docs/REFERENCES.md s
     const fn = 100;
     const q = 10;
     // White base acceleration of variance 1 on 0..fs/2: G0 = 2 / fs (one-sided).
-    const m = sdofResponse(powerLawSpectrum([{ f1: 1e-9, f2: rate / 2, g1: 2 / rate, exponent: 0 }]), fn, q).acceleration;
+    const m = sdofResponse(
+      powerLawSpectrum([{ f1: 1e-9, f2: rate / 2, g1: 2 / rate, exponent: 0 }]),
+      fn,
+      q,
+    ).acceleration;
     const sigma = Math.sqrt(m.m0);
     const nu = riceRates(m).upcrossingRateHz;
     const T = n / rate;

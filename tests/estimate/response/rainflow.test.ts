@@ -18,7 +18,8 @@ describe("RainflowCounter (ASTM E1049-85, sec. 5.4.4)", () => {
   it("finds the turning points itself: the example sampled finely (straight lines between the points, repeated values) counts the same", () => {
     const pts = [-2, 1, -3, 5, -1, 3, -4, 4, -2];
     const samples: number[] = [];
-    for (let i = 0; i + 1 < pts.length; i++) for (let j = 0; j < 8; j++) samples.push(pts[i]! + ((pts[i + 1]! - pts[i]!) * j) / 8);
+    for (let i = 0; i + 1 < pts.length; i++)
+      for (let j = 0; j < 8; j++) samples.push(pts[i]! + ((pts[i + 1]! - pts[i]!) * j) / 8);
     samples.push(-2, -2, -2);
     const c = new RainflowCounter(1, true);
     // Pushed in blocks of 5 to cross block edges.

@@ -34,7 +34,10 @@ export function relDispMoments(fn: number, q: number, g0: number) {
 
 export function lnGamma(z: number): number {
   // Lanczos (g = 7, n = 9), common practice; enough for whole and half-whole arguments here.
-  const c = [0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059, 12.507343278686905, -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7];
+  const c = [
+    0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059,
+    12.507343278686905, -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7,
+  ];
   z -= 1;
   let x = c[0]!;
   for (let i = 1; i < 9; i++) x += c[i]! / (z + i);
@@ -48,7 +51,11 @@ export function lnGamma(z: number): number {
  * E[D] = nu_p T E[(range/2)^b] with nu_p = sqrt(m4/m2) and
  * E[(range/2)^b] = m0^(b/2) [D1 Q^b Gamma(1+b) + 2^(b/2) Gamma(1+b/2) (D2 |R|^b + D3)].
  */
-export function dirlikDamage(m: { m0: number; m1: number; m2: number; m4: number }, b: number, durationS: number): number {
+export function dirlikDamage(
+  m: { m0: number; m1: number; m2: number; m4: number },
+  b: number,
+  durationS: number,
+): number {
   const xm = (m.m1 / m.m0) * Math.sqrt(m.m2 / m.m4);
   const g = m.m2 / Math.sqrt(m.m0 * m.m4);
   const d1 = (2 * (xm - g * g)) / (1 + g * g);
@@ -56,7 +63,10 @@ export function dirlikDamage(m: { m0: number; m1: number; m2: number; m4: number
   const d2 = (1 - g - d1 + d1 * d1) / (1 - R);
   const d3 = 1 - d1 - d2;
   const qq = (1.25 * (g - d3 - d2 * R)) / d1;
-  const e = m.m0 ** (b / 2) * (d1 * qq ** b * Math.exp(lnGamma(1 + b)) + 2 ** (b / 2) * Math.exp(lnGamma(1 + b / 2)) * (d2 * Math.abs(R) ** b + d3));
+  const e =
+    m.m0 ** (b / 2) *
+    (d1 * qq ** b * Math.exp(lnGamma(1 + b)) +
+      2 ** (b / 2) * Math.exp(lnGamma(1 + b / 2)) * (d2 * Math.abs(R) ** b + d3));
   return Math.sqrt(m.m4 / m.m2) * durationS * e;
 }
 
@@ -68,7 +78,7 @@ export function rainflowSum(x: Float64Array, b: number): number {
 
 export function timeDomain(base: Float64Array, b: number) {
   const acc = new TimeResponseAccumulator(Float64Array.from([FN]), Q, FS, b);
-  for (let i = 0; i < base.length; i += 4096) acc.push(base.subarray(i, Math.min(base.length, i + 4096)), Math.min(4096, base.length - i));
+  for (let i = 0; i < base.length; i += 4096)
+    acc.push(base.subarray(i, Math.min(base.length, i + 4096)), Math.min(4096, base.length - i));
   return acc.finish();
 }
-

@@ -1,6 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { lineSpectrum, powerLawSpectrum } from "../../../src/estimate/response/inputSpectrum.js";
-import { absoluteTransmissibilitySquared, milesRelativeDisplacementRms, milesRms, sdofResponse } from "../../../src/estimate/response/sdofResponse.js";
+import {
+  absoluteTransmissibilitySquared,
+  milesRelativeDisplacementRms,
+  milesRms,
+  sdofResponse,
+} from "../../../src/estimate/response/sdofResponse.js";
 import { STANDARD_GRAVITY_M_PER_S2 } from "../../../src/units.js";
 
 const flat = (g0: number, f1: number, f2: number) => powerLawSpectrum([{ f1, f2, g1: g0, exponent: 0 }]);
@@ -24,7 +29,12 @@ describe("sdofResponse: exact integral of |T|^2 G", () => {
     expect(absoluteTransmissibilitySquared(100 * Math.SQRT2, 100, 3)).toBeCloseTo(1, 12);
   });
   it("white input over a wide band (1 Hz .. 100 f_n): exact / Miles -> sqrt(1 + 1/Q^2) within 0.2 % (docs/REFERENCES.md sec. 4)", () => {
-    for (const [fn, q, g0] of [[100, 10, 0.04], [200, 20, 0.04], [500, 10, 0.01], [50, 5, 0.1]] as const) {
+    for (const [fn, q, g0] of [
+      [100, 10, 0.04],
+      [200, 20, 0.04],
+      [500, 10, 0.01],
+      [50, 5, 0.1],
+    ] as const) {
       const r = sdofResponse(flat(g0, 1, 100 * fn), fn, q);
       const ratio = Math.sqrt(r.acceleration.m0) / milesRms(fn, q, g0);
       expect(Math.abs(ratio / Math.sqrt(1 + 1 / q ** 2) - 1)).toBeLessThan(0.002);
@@ -55,7 +65,12 @@ describe("sdofResponse: exact integral of |T|^2 G", () => {
   });
   it("against an independent dense trapezoid (1e6 points) on a sloped profile: 1e-6", () => {
     // Invented profile D of docs/REFERENCES.md sec. 5: 10 Hz 0.001, 40 Hz 0.02, 300 Hz 0.02, 1500 Hz 0.002.
-    const pts = [[10, 0.001], [40, 0.02], [300, 0.02], [1500, 0.002]] as const;
+    const pts = [
+      [10, 0.001],
+      [40, 0.02],
+      [300, 0.02],
+      [1500, 0.002],
+    ] as const;
     const segs = pts.slice(1).map(([f2, g2], i) => {
       const [f1, g1] = pts[i]!;
       return { f1, f2, g1, exponent: Math.log(g2 / g1) / Math.log(f2 / f1) };

@@ -7,7 +7,13 @@ import { gaussian } from "../../helpers.js";
  * (fft.js as the transform), absolute acceleration T = (1 + i 2 zeta r) / (1 - r^2 + i 2 zeta r) and
  * relative displacement Z = -1 / (omega_n^2 (1 - r^2 + i 2 zeta r)). Independent of psdgate's synth.
  */
-export function sdofRecords(n: number, rate: number, fnHz: number, q: number, seed: number): { base: Float64Array; accel: Float64Array; relDisp: Float64Array } {
+export function sdofRecords(
+  n: number,
+  rate: number,
+  fnHz: number,
+  q: number,
+  seed: number,
+): { base: Float64Array; accel: Float64Array; relDisp: Float64Array } {
   const base = gaussian(n, seed);
   return { base, ...sdofFiltered(base, rate, fnHz, q, n) };
 }
@@ -17,7 +23,13 @@ export function sdofRecords(n: number, rate: number, fnHz: number, q: number, se
  * points (fft.js): `length` = base.length filters circularly; 2 x base.length zero-pads, so the response starts at
  * rest and nothing wraps. The first base.length samples are returned.
  */
-export function sdofFiltered(base: Float64Array, rate: number, fnHz: number, q: number, length: number): { accel: Float64Array; relDisp: Float64Array } {
+export function sdofFiltered(
+  base: Float64Array,
+  rate: number,
+  fnHz: number,
+  q: number,
+  length: number,
+): { accel: Float64Array; relDisp: Float64Array } {
   const n = length;
   const f = new FFT(n);
   const x = new Float64Array(n);

@@ -1,6 +1,10 @@
 import { describe, expect, it } from "vitest";
 import {
-  absoluteAccelerationFilter, relativeDisplacementFilter, shockSpectrum, ShockSpectrumAccumulator, srsRateLimit,
+  absoluteAccelerationFilter,
+  relativeDisplacementFilter,
+  shockSpectrum,
+  ShockSpectrumAccumulator,
+  srsRateLimit,
 } from "../../../src/estimate/response/shockResponse.js";
 import { python } from "../../helpers.js";
 
@@ -11,11 +15,17 @@ const FN = [10, 30, 72.7, 100, 300, 1000, 2000];
 /** The test's pulses, as continuous functions of t (s). */
 const PULSES = {
   // Half-sine, 50 g, 11 ms.
-  half: { py: "np.where(t < 0.011, 50*np.sin(np.pi*t/0.011), 0.0)", f: (t: number) => (t < 0.011 ? 50 * Math.sin((Math.PI * t) / 0.011) : 0) },
+  half: {
+    py: "np.where(t < 0.011, 50*np.sin(np.pi*t/0.011), 0.0)",
+    f: (t: number) => (t < 0.011 ? 50 * Math.sin((Math.PI * t) / 0.011) : 0),
+  },
   // Terminal-peak sawtooth, 50 g, 11 ms (rises linearly, ends at once: the fall lies inside one sample step).
   saw: { py: "np.where(t < 0.011, 50*t/0.011, 0.0)", f: (t: number) => (t < 0.011 ? (50 * t) / 0.011 : 0) },
   // Sine burst: 5 cycles of 100 Hz at 10 g.
-  burst: { py: "np.where(t < 0.05, 10*np.sin(2*np.pi*100*t), 0.0)", f: (t: number) => (t < 0.05 ? 10 * Math.sin(2 * Math.PI * 100 * t) : 0) },
+  burst: {
+    py: "np.where(t < 0.05, 10*np.sin(2*np.pi*100*t), 0.0)",
+    f: (t: number) => (t < 0.05 ? 10 * Math.sin(2 * Math.PI * 100 * t) : 0),
+  },
 } as const;
 
 /**

@@ -19,8 +19,13 @@ describe("TimeResponseAccumulator: damage on Gaussian records by Monte Carlo", (
       }
       const T = (8 * n) / FS;
       out[b] = {
-        time, exact,
-        nb: narrowBandDamage(Math.sqrt(mom.m0), Math.sqrt(mom.m2 / mom.m0), T, { basquinB: b, snConstant: 1, stressPerUnit: 1 }),
+        time,
+        exact,
+        nb: narrowBandDamage(Math.sqrt(mom.m0), Math.sqrt(mom.m2 / mom.m0), T, {
+          basquinB: b,
+          snConstant: 1,
+          stressPerUnit: 1,
+        }),
         dirlik: dirlikDamage(mom, b, T),
       };
     }
@@ -35,5 +40,4 @@ describe("TimeResponseAccumulator: damage on Gaussian records by Monte Carlo", (
       expect(Math.abs(o.time / o.dirlik - 1)).toBeLessThan(b === 4 ? 0.08 : 0.15);
     }
   });
-
 });

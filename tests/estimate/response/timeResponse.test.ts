@@ -8,7 +8,14 @@ describe("TimeResponseAccumulator: damage and peaks from the record itself", () 
     const n = 1 << 17;
     const base = gaussian(n, 77);
     // Six half-sines of 10 sigma, 20 ms, spread through the record (a pothole-like load on a Gaussian ride).
-    for (const [t, p] of [[10, 10], [30.5, -10], [51, 10], [70, 10], [95.3, -10], [120, 10]] as const) {
+    for (const [t, p] of [
+      [10, 10],
+      [30.5, -10],
+      [51, 10],
+      [70, 10],
+      [95.3, -10],
+      [120, 10],
+    ] as const) {
       const i0 = Math.round(t * FS);
       for (let i = 0; i < 20; i++) base[i0 + i]! += p * Math.sin((Math.PI * (i + 0.5)) / 20);
     }
@@ -33,7 +40,10 @@ describe("TimeResponseAccumulator: damage and peaks from the record itself", () 
     const base = gaussian(1 << 15, 9);
     const b = 6;
     const plain = timeDomain(base, b);
-    const lifted = timeDomain(base.map((v) => v + 9.80665), b);
+    const lifted = timeDomain(
+      base.map((v) => v + 9.80665),
+      b,
+    );
     expect(lifted.rainflowSum[0]! / plain.rainflowSum[0]!).toBeCloseTo(1, 6);
     // Means: the record's own (about 0 and 9.80665); the peaks about them agree.
     let m = 0;

@@ -12,8 +12,15 @@ describe("BandSpectrogramAccumulator", () => {
     const x = gaussian(3 * 2048 + 300, 17);
     for (let i = 2048; i < x.length; i++) x[i]! *= 2; // the level changes between stretches
     const bands = thirdOctaveBands([4, 8, 16, 31.5, 63]);
-    const acc = new BandSpectrogramAccumulator({ segmentLength: n, hop: 128, window: spectralWindow("hann", n), detrend: "mean" }, new SegmentPower(n), 2048, bands, fs);
-    for (let i = 0; i < x.length; i += 700) acc.push(x.subarray(i, Math.min(x.length, i + 700)), Math.min(700, x.length - i));
+    const acc = new BandSpectrogramAccumulator(
+      { segmentLength: n, hop: 128, window: spectralWindow("hann", n), detrend: "mean" },
+      new SegmentPower(n),
+      2048,
+      bands,
+      fs,
+    );
+    for (let i = 0; i < x.length; i += 700)
+      acc.push(x.subarray(i, Math.min(x.length, i + 700)), Math.min(700, x.length - i));
     const s = acc.finish(fs);
     expect(s.meanSquare.length).toBe(3); // the trailing 300 samples are left out
     expect(s.averagesPerStretch).toBe((2048 - 512) / 128 + 1);
@@ -21,7 +28,8 @@ describe("BandSpectrogramAccumulator", () => {
       const p = welchPsd(x.subarray(r * 2048, (r + 1) * 2048), fs, { segmentLength: n, overlap: 0.75 });
       bands.forEach((b, j) => {
         let sum = 0;
-        for (let k = 0; k < p.psd.length; k++) if (p.frequencyHz[k]! >= b.lo && p.frequencyHz[k]! < b.hi) sum += p.psd[k]! * p.lineSpacingHz;
+        for (let k = 0; k < p.psd.length; k++)
+          if (p.frequencyHz[k]! >= b.lo && p.frequencyHz[k]! < b.hi) sum += p.psd[k]! * p.lineSpacingHz;
         expect(s.meanSquare[r]![j]).toBeCloseTo(sum, 12);
       });
     }

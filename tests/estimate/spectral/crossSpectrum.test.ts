@@ -5,9 +5,22 @@ import { welchPsd } from "../../../src/estimate/spectral/psdEstimate.js";
 import { spectralWindow } from "../../../src/estimate/spectral/windows.js";
 import { gaussian, maxRelDiff } from "../../helpers.js";
 
-interface CsdCase { window: string; segmentLength: number; overlap: number; detrend: string; frequencyHz: number[]; pxyRe: number[]; pxyIm: number[]; pxx: number[]; pyy: number[]; coherence: number[] }
+interface CsdCase {
+  window: string;
+  segmentLength: number;
+  overlap: number;
+  detrend: string;
+  frequencyHz: number[];
+  pxyRe: number[];
+  pxyIm: number[];
+  pxx: number[];
+  pyy: number[];
+  coherence: number[];
+}
 // scipy 1.17.1 signal.csd / welch / coherence; written by scripts/make_scipy_csd_fixtures.py
-const ref: { source: string; sampleRateHz: number; x: number[]; y: number[]; cases: CsdCase[] } = JSON.parse(readFileSync(new URL("../../fixtures/scipy-csd.json", import.meta.url), "utf8"));
+const ref: { source: string; sampleRateHz: number; x: number[]; y: number[]; cases: CsdCase[] } = JSON.parse(
+  readFileSync(new URL("../../fixtures/scipy-csd.json", import.meta.url), "utf8"),
+);
 const x = Float64Array.from(ref.x);
 const y = Float64Array.from(ref.y);
 const fs = ref.sampleRateHz;
@@ -25,7 +38,12 @@ describe("crossSpectralDensity against scipy.signal.csd, welch and coherence", (
   it("the fixture names its scipy version", () => expect(ref.source).toMatch(/^scipy 1\.17\.1/));
   for (const c of ref.cases) {
     it(`crossSpectralDensity(x, y, {window: ${c.window}, segmentLength: ${c.segmentLength}, overlap: ${c.overlap}, detrend: ${c.detrend}}) matches scipy 1.17.1 to 1e-9`, () => {
-      const r = crossSpectralDensity(x, y, fs, { window: c.window as "hann", segmentLength: c.segmentLength, overlap: c.overlap, detrend: c.detrend as "mean" });
+      const r = crossSpectralDensity(x, y, fs, {
+        window: c.window as "hann",
+        segmentLength: c.segmentLength,
+        overlap: c.overlap,
+        detrend: c.detrend as "mean",
+      });
       expect(r.auto[0]!.length).toBe(c.pxx.length);
       // scipy 1.17.1 signal.csd (conj(X) Y, one-sided density)
       expect(maxComplexDiff(r.crossRe[1]!, r.crossIm[1]!, c.pxyRe, c.pxyIm)).toBeLessThan(1e-9);
@@ -50,8 +68,12 @@ describe("CrossSpectrumAccumulator", () => {
   it("auto spectra equal the fused Welch kernel's (welchPsd) to 1e-12, every detrend mode", () => {
     for (const d of ["none", "mean", "linear"] as const) {
       const r = crossSpectralDensity(x, y, fs, { segmentLength: 512, overlap: 0.6, detrend: d });
-      expect(maxRelDiff(r.auto[0]!, welchPsd(x, fs, { segmentLength: 512, overlap: 0.6, detrend: d }).psd)).toBeLessThan(1e-12);
-      expect(maxRelDiff(r.auto[1]!, welchPsd(y, fs, { segmentLength: 512, overlap: 0.6, detrend: d }).psd)).toBeLessThan(1e-12);
+      expect(
+        maxRelDiff(r.auto[0]!, welchPsd(x, fs, { segmentLength: 512, overlap: 0.6, detrend: d }).psd),
+      ).toBeLessThan(1e-12);
+      expect(
+        maxRelDiff(r.auto[1]!, welchPsd(y, fs, { segmentLength: 512, overlap: 0.6, detrend: d }).psd),
+      ).toBeLessThan(1e-12);
     }
   });
   it("csd(x, x) is welch(x): real, equal to the auto spectrum", () => {

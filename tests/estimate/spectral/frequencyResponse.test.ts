@@ -63,9 +63,9 @@ describe("frequencyResponse known answers (docs/REFERENCES.md sec. 9, Bendat & P
     let worst = 0;
     for (let k = 1; f[k]! <= 300; k++) {
       const expected = -360 * f[k]! * (d / fs);
-      const wrapped = ((expected + 180) % 360 + 360) % 360 - 180;
+      const wrapped = ((((expected + 180) % 360) + 360) % 360) - 180;
       let diff = r.phaseDeg[k]! - wrapped;
-      diff = ((diff + 180) % 360 + 360) % 360 - 180;
+      diff = ((((diff + 180) % 360) + 360) % 360) - 180;
       worst = Math.max(worst, Math.abs(diff));
     }
     expect(worst).toBeLessThan(0.5);
@@ -115,11 +115,15 @@ function sdofFilter(x: Float64Array, fnHz: number, q: number, rate: number): Flo
     const fk = (k <= n / 2 ? k : k - n) * (rate / n);
     const r = fk / fnHz;
     // T = (1 + i 2 zeta r) / (1 - r^2 + i 2 zeta r), Hermitian in k because r changes sign.
-    const nr = 1, ni = 2 * zeta * r, dr = 1 - r * r, di = 2 * zeta * r;
+    const nr = 1,
+      ni = 2 * zeta * r,
+      dr = 1 - r * r,
+      di = 2 * zeta * r;
     const den = dr * dr + di * di;
     const tr = (nr * dr + ni * di) / den;
     const ti = (ni * dr - nr * di) / den;
-    const a = spec[2 * k]!, b = spec[2 * k + 1]!;
+    const a = spec[2 * k]!,
+      b = spec[2 * k + 1]!;
     spec[2 * k] = a * tr - b * ti;
     spec[2 * k + 1] = a * ti + b * tr;
   }

@@ -25,7 +25,7 @@ describe("parsevalCheck", () => {
   });
   it("narrow-band records (30 Hz resonance, Q 20, 16 averages): no false doubt in 200, where the fixed 2 % tolerance doubted many", () => {
     const fs = 1024;
-    const sdof = (f: number) => 1 / ((1 - (f / 30) ** 2) ** 2 + (f / 30 / 20) ** 2) * 1e-3;
+    const sdof = (f: number) => (1 / ((1 - (f / 30) ** 2) ** 2 + (f / 30 / 20) ** 2)) * 1e-3;
     let doubts = 0;
     let fixed = 0;
     for (let r = 0; r < 200; r++) {

@@ -21,12 +21,14 @@ describe("peak-hold spectrum (psd --peak-hold)", () => {
     const h = a.channels[0]!.peakHold!;
     expect(h.stretches).toBe(6);
     expect(h.averagesPerStretch).toBe(14);
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json, numpy as np, scipy.signal as sg
 x = np.array([float(l) for l in open(${JSON.stringify(f)}).read().split()[1:]])
 ps = [sg.welch(x[s*2000:(s+1)*2000], fs=1000, window='hann', nperseg=256, noverlap=128, detrend='constant', scaling='density')[1] for s in range(6)]
 print(json.dumps(np.max(ps, axis=0).tolist()))
-`)) as number[];
+`),
+    ) as number[];
     let worst = 0;
     for (let k = 0; k < ref.length; k++) worst = Math.max(worst, Math.abs(h.psd[k]! - ref[k]!) / Math.max(...ref));
     expect(worst).toBeLessThan(1e-9);
@@ -43,6 +45,8 @@ print(json.dumps(np.max(ps, axis=0).tolist()))
     const dir = tempDir();
     const f = join(dir, "rec.csv");
     writeFileSync(f, "a\n" + Array.from(gaussian(4000, 1), (v) => v.toFixed(6)).join("\n") + "\n");
-    await expect(analyzeRecording(f, { csv: { sampleRateHz: 1000 }, segmentLength: 256, peakHoldS: 0.1 })).rejects.toThrow(/peakHoldS.*OPTION_INVALID|OPTION_INVALID/);
+    await expect(
+      analyzeRecording(f, { csv: { sampleRateHz: 1000 }, segmentLength: 256, peakHoldS: 0.1 }),
+    ).rejects.toThrow(/peakHoldS.*OPTION_INVALID|OPTION_INVALID/);
   });
 });

@@ -19,13 +19,18 @@ describe("SegmentPower: windowed power spectrum of a real segment", () => {
       const u = seeded(n);
       const x = Float64Array.from({ length: n }, () => 5 + u() - 0.5);
       const w = Float64Array.from({ length: n }, () => u());
-      for (const [offset, slope] of [[0, 0], [5, 0], [5.2, 1e-3]] as const) {
+      for (const [offset, slope] of [
+        [0, 0],
+        [5, 0],
+        [5.2, 1e-3],
+      ] as const) {
         const y = x.map((v, i) => (v - offset - slope * i) * w[i]!);
         const ref = referencePower(y);
         const acc = new Float64Array(n / 2 + 1).fill(1);
         const ms = new SegmentPower(n).add(x, w, offset, slope, acc);
         const top = Math.max(...ref);
-        for (let k = 0; k <= n / 2; k++) expect(Math.abs(acc[k]! - 1 - ref[k]!)).toBeLessThanOrEqual(1e-13 * top + 1e-15);
+        for (let k = 0; k <= n / 2; k++)
+          expect(Math.abs(acc[k]! - 1 - ref[k]!)).toBeLessThanOrEqual(1e-13 * top + 1e-15);
         const sumSq = y.reduce((s, v) => s + v * v, 0);
         expect(Math.abs(ms - sumSq)).toBeLessThanOrEqual(1e-13 * sumSq);
       }

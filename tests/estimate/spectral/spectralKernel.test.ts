@@ -1,5 +1,9 @@
 import { describe, expect, it } from "vitest";
-import { detrendBiasedLines, lineVarianceInflation, spectralKernel } from "../../../src/estimate/spectral/spectralKernel.js";
+import {
+  detrendBiasedLines,
+  lineVarianceInflation,
+  spectralKernel,
+} from "../../../src/estimate/spectral/spectralKernel.js";
 import { welchPsd } from "../../../src/estimate/spectral/psdEstimate.js";
 import { spectralWindow } from "../../../src/estimate/spectral/windows.js";
 import { gaussian } from "../../helpers.js";

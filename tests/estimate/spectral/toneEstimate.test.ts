@@ -18,7 +18,14 @@ function rng(seed: number) {
 }
 
 /** White noise of one-sided density G (variance G fs / 2) plus tones A cos(2 pi f t + phi) plus an offset. */
-function record(fs: number, seconds: number, G: number, tones: { hz: number; peak: number; phase: number }[], seed: number, offset = 0): Float64Array {
+function record(
+  fs: number,
+  seconds: number,
+  G: number,
+  tones: { hz: number; peak: number; phase: number }[],
+  seed: number,
+  offset = 0,
+): Float64Array {
   const n = Math.round(fs * seconds);
   const x = new Float64Array(n);
   const g = rng(seed);
@@ -35,20 +42,39 @@ function record(fs: number, seconds: number, G: number, tones: { hz: number; pea
  * scan, keeping the smallest residual (the nonlinear least-squares fit), refined by golden section. */
 function lsFit(x: Float64Array, fs: number, f0: number, half: number): { hz: number; peak: number } {
   const solve = (f: number) => {
-    let cc = 0, ss = 0, cs = 0, c1 = 0, s1 = 0, xc = 0, xs = 0, x1 = 0;
+    let cc = 0,
+      ss = 0,
+      cs = 0,
+      c1 = 0,
+      s1 = 0,
+      xc = 0,
+      xs = 0,
+      x1 = 0;
     const n = x.length;
     for (let i = 0; i < n; i++) {
       const ph = 2 * Math.PI * f * (i / fs);
       const c = Math.cos(ph);
       const s = Math.sin(ph);
-      cc += c * c; ss += s * s; cs += c * s; c1 += c; s1 += s; xc += x[i]! * c; xs += x[i]! * s; x1 += x[i]!;
+      cc += c * c;
+      ss += s * s;
+      cs += c * s;
+      c1 += c;
+      s1 += s;
+      xc += x[i]! * c;
+      xs += x[i]! * s;
+      x1 += x[i]!;
     }
     // Gaussian elimination of [[cc cs c1][cs ss s1][c1 s1 n]] [a b m] = [xc xs x1].
-    const M = [[cc, cs, c1, xc], [cs, ss, s1, xs], [c1, s1, n, x1]];
-    for (let k = 0; k < 3; k++) for (let r = k + 1; r < 3; r++) {
-      const q = M[r]![k]! / M[k]![k]!;
-      for (let j = k; j < 4; j++) M[r]![j]! -= q * M[k]![j]!;
-    }
+    const M = [
+      [cc, cs, c1, xc],
+      [cs, ss, s1, xs],
+      [c1, s1, n, x1],
+    ];
+    for (let k = 0; k < 3; k++)
+      for (let r = k + 1; r < 3; r++) {
+        const q = M[r]![k]! / M[k]![k]!;
+        for (let j = k; j < 4; j++) M[r]![j]! -= q * M[k]![j]!;
+      }
     const m = M[2]![3]! / M[2]![2]!;
     const b = (M[1]![3]! - M[1]![2]! * m) / M[1]![1]!;
     const a = (M[0]![3]! - M[0]![2]! * m - M[0]![1]! * b) / M[0]![0]!;
@@ -60,7 +86,10 @@ function lsFit(x: Float64Array, fs: number, f0: number, half: number): { hz: num
   let bestE = -Infinity;
   for (let f = f0 - half; f <= f0 + half; f += 0.25 / T) {
     const e = solve(f).explained;
-    if (e > bestE) { bestE = e; best = f; }
+    if (e > bestE) {
+      bestE = e;
+      best = f;
+    }
   }
   let a = best - 0.25 / T;
   let b = best + 0.25 / T;
@@ -87,8 +116,21 @@ function fitOf(x: Float64Array, fs: number, tones: { hz: number; searchHalfWidth
 describe("ToneFitAccumulator", () => {
   it("a tone off its nominal frequency on white noise: amplitude within 1 % of the test's own least-squares fit (and 0.1 % here)", () => {
     const fs = 2048;
-    const x = record(fs, 20, 0.01, [{ hz: 120.037, peak: 0.8, phase: 0.7 }, { hz: 55.2, peak: 0.3, phase: -1.1 }], 11, 0.9);
-    const fits = fitOf(x, fs, [{ hz: 120, searchHalfWidthHz: 0.5 }, { hz: 55, searchHalfWidthHz: 0.5 }]);
+    const x = record(
+      fs,
+      20,
+      0.01,
+      [
+        { hz: 120.037, peak: 0.8, phase: 0.7 },
+        { hz: 55.2, peak: 0.3, phase: -1.1 },
+      ],
+      11,
+      0.9,
+    );
+    const fits = fitOf(x, fs, [
+      { hz: 120, searchHalfWidthHz: 0.5 },
+      { hz: 55, searchHalfWidthHz: 0.5 },
+    ]);
     const ref1 = lsFit(x, fs, 120, 0.5);
     const ref2 = lsFit(x, fs, 55, 0.5);
     expect(Math.abs(fits[0]!.peak / ref1.peak - 1)).toBeLessThan(0.001);
@@ -120,7 +162,7 @@ describe("ToneFitAccumulator", () => {
     }
     const mean = peaks.reduce((a, b) => a + b, 0) / peaks.length;
     const sd = Math.sqrt(peaks.reduce((a, b) => a + (b - mean) ** 2, 0) / (peaks.length - 1));
-    expect(Math.abs(mean - 1)).toBeLessThan(3 * tonePeakSd(G, T) / Math.sqrt(peaks.length) + 0.002);
+    expect(Math.abs(mean - 1)).toBeLessThan((3 * tonePeakSd(G, T)) / Math.sqrt(peaks.length) + 0.002);
     expect(sd / tonePeakSd(G, T)).toBeGreaterThan(0.8);
     expect(sd / tonePeakSd(G, T)).toBeLessThan(1.2);
   });

@@ -15,7 +15,11 @@ describe("welchDof", () => {
   });
   // Large-K DOF per segment, docs/REFERENCES.md sec. 2 (computed from eq. 292b, N = 1024).
   const perSegment: [string, number, number][] = [
-    ["rectangular", 0.5, 1.333], ["hann", 0.75, 1.039], ["hamming", 0.5, 1.803], ["blackman-harris", 0.75, 1.403], ["flattop", 0.5, 1.999],
+    ["rectangular", 0.5, 1.333],
+    ["hann", 0.75, 1.039],
+    ["hamming", 0.5, 1.803],
+    ["blackman-harris", 0.75, 1.403],
+    ["flattop", 0.5, 1.999],
   ];
   for (const [w, ov, ratio] of perSegment) {
     it(`${w} at ${ov * 100} % overlap: nu/K -> ${ratio}`, () => {

@@ -11,7 +11,12 @@ describe("welchPsd against scipy.signal.welch", () => {
   // scipy 1.17.1 signal.welch(scaling="density"), tests/fixtures/scipy-reference.json (scripts/make_scipy_fixtures.py)
   for (const c of scipyReference.welch) {
     it(`welchPsd(x, {window: ${c.window}, segmentLength: ${c.segmentLength}, overlap: ${c.overlap}, detrend: ${c.detrend}}) matches scipy to 1e-9`, () => {
-      const r = welchPsd(x, fs, { window: c.window as "hann", segmentLength: c.segmentLength, overlap: c.overlap, detrend: c.detrend as "mean" });
+      const r = welchPsd(x, fs, {
+        window: c.window as "hann",
+        segmentLength: c.segmentLength,
+        overlap: c.overlap,
+        detrend: c.detrend as "mean",
+      });
       expect(r.psd.length).toBe(c.psd.length);
       expect(maxRelDiff(r.frequencyHz, c.frequencyHz)).toBeLessThan(1e-12);
       expect(maxRelDiff(r.psd, c.psd)).toBeLessThan(1e-9);
@@ -22,7 +27,12 @@ describe("welchPsd against scipy.signal.welch", () => {
 describe("welchPsd invariants", () => {
   it("hand values: impulse, rectangular window, N=4, no detrend", () => {
     // One segment [1,0,0,0]: |X[k]|^2 = 1 for all k; P = 2/(fs*4) inside, 1/(fs*4) at DC and Nyquist (hand computation).
-    const r = welchPsd(Float64Array.from([1, 0, 0, 0]), 8, { window: "rectangular", segmentLength: 4, overlap: 0, detrend: "none" });
+    const r = welchPsd(Float64Array.from([1, 0, 0, 0]), 8, {
+      window: "rectangular",
+      segmentLength: 4,
+      overlap: 0,
+      detrend: "none",
+    });
     expect(Array.from(r.psd)).toEqual([1 / 32, 2 / 32, 1 / 32]);
   });
   for (const w of ["hann", "hamming", "blackman-harris", "flattop", "rectangular"] as const) {
@@ -61,7 +71,12 @@ describe("welchPsd invariants", () => {
     expect(Array.from(pieces.finish(fs).psd)).toEqual(Array.from(whole.finish(fs).psd));
   });
   it("hop longer than a segment (overlap 0 with skip) counts floor((n - N)/hop) + 1 segments", () => {
-    const acc = new WelchAccumulator({ segmentLength: 64, hop: 100, window: spectralWindow("hann", 64), detrend: "mean" });
+    const acc = new WelchAccumulator({
+      segmentLength: 64,
+      hop: 100,
+      window: spectralWindow("hann", 64),
+      detrend: "mean",
+    });
     acc.push(gaussian(1000, 3));
     expect(acc.finish(100).segments).toBe(Math.floor((1000 - 64) / 100) + 1);
   });

@@ -6,7 +6,12 @@ import { gaussian } from "../../helpers.js";
 
 describe("WelchWeightedMeanSquare", () => {
   it("equals sum(P) df of welchPsd (detrend none) exactly on a non-stationary record, for several overlaps and lengths (Parseval per segment)", () => {
-    for (const [n, overlap, len] of [[256, 0.5, 5000], [256, 0.75, 4097], [128, 0.6, 3333], [64, 0, 1000]] as const) {
+    for (const [n, overlap, len] of [
+      [256, 0.5, 5000],
+      [256, 0.75, 4097],
+      [128, 0.6, 3333],
+      [64, 0, 1000],
+    ] as const) {
       const x = gaussian(len, 11);
       for (let i = 0; i < len; i++) x[i]! *= 1 + (3 * i) / len; // the level grows along the record
       const p = welchPsd(x, 100, { segmentLength: n, overlap, detrend: "none" });

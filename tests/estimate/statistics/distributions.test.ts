@@ -1,8 +1,19 @@
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import {
-  binomialAtLeast, chiSquareCdf, chiSquareIntervalFactors, chiSquareQuantile, chiSquareSurvival, chiSquareUpperQuantile, lnGamma, noncentralTCdf, noncentralTQuantile, normalCdf,
-  normalQuantile, normalSurvival, studentTQuantile,
+  binomialAtLeast,
+  chiSquareCdf,
+  chiSquareIntervalFactors,
+  chiSquareQuantile,
+  chiSquareSurvival,
+  chiSquareUpperQuantile,
+  lnGamma,
+  noncentralTCdf,
+  noncentralTQuantile,
+  normalCdf,
+  normalQuantile,
+  normalSurvival,
+  studentTQuantile,
 } from "../../../src/estimate/statistics/distributions.js";
 import { python, scipyReference } from "../../helpers.js";
 
@@ -10,8 +21,16 @@ describe("chiSquareQuantile", () => {
   // NIST/SEMATECH e-Handbook of Statistical Methods, sec. 1.3.6.7.4, critical values of chi-square
   // (lower table headed by the probability of exceeding; its "0.975" column is p = 0.025).
   const nist: [number, number, number][] = [
-    [10, 0.025, 3.247], [10, 0.05, 3.94], [10, 0.95, 18.307], [10, 0.975, 20.483],
-    [20, 0.025, 9.591], [20, 0.05, 10.851], [30, 0.025, 16.791], [30, 0.05, 18.493], [100, 0.025, 74.222], [100, 0.05, 77.929],
+    [10, 0.025, 3.247],
+    [10, 0.05, 3.94],
+    [10, 0.95, 18.307],
+    [10, 0.975, 20.483],
+    [20, 0.025, 9.591],
+    [20, 0.05, 10.851],
+    [30, 0.025, 16.791],
+    [30, 0.05, 18.493],
+    [100, 0.025, 74.222],
+    [100, 0.05, 77.929],
   ];
   for (const [dof, p, q] of nist) {
     it(`chi2(${p}; ${dof}) = ${q} (NIST/SEMATECH table, 3 decimals)`, () => {
@@ -26,7 +45,8 @@ describe("chiSquareQuantile", () => {
     }
   });
   it("nu = 2: closed form -2 ln(1 - p) (exponential distribution)", () => {
-    for (const p of [0.01, 0.05, 0.5, 0.95, 0.999]) expect(chiSquareQuantile(p, 2)).toBeCloseTo(-2 * Math.log(1 - p), 12);
+    for (const p of [0.01, 0.05, 0.5, 0.95, 0.999])
+      expect(chiSquareQuantile(p, 2)).toBeCloseTo(-2 * Math.log(1 - p), 12);
   });
   it("rejects p outside (0, 1) and dof <= 0", () => {
     expect(() => chiSquareQuantile(0, 10)).toThrow(RangeError);
@@ -42,7 +62,11 @@ describe("chiSquareQuantile", () => {
 describe("chiSquareIntervalFactors", () => {
   // docs/REFERENCES.md sec. 2, interval factors computed from the confirmed quantile table.
   const rows: [number, number, number, number][] = [
-    [10, 0.9, 0.546, 2.538], [10, 0.95, 0.488, 3.08], [60, 0.9, 0.759, 1.389], [120, 0.9, 0.819, 1.254], [240, 0.95, 0.843, 1.206],
+    [10, 0.9, 0.546, 2.538],
+    [10, 0.95, 0.488, 3.08],
+    [60, 0.9, 0.759, 1.389],
+    [120, 0.9, 0.819, 1.254],
+    [240, 0.95, 0.843, 1.206],
   ];
   for (const [dof, c, lo, hi] of rows) {
     it(`nu ${dof}, ${c * 100} %: x${lo} .. x${hi}`, () => {
@@ -80,36 +104,54 @@ describe("chi-square far tails (the range the decision rule asks for)", () => {
 describe("the normal distribution", () => {
   it("normalQuantile matches scipy.stats.norm.ppf to 1.2e-9 relative (Acklam's bound), both tails and the centre", () => {
     const ps = [1e-12, 1e-7, 1e-4, 0.01, 0.02425, 0.1, 0.3, 0.5, 0.7, 0.9, 0.975, 0.99, 1 - 1e-4, 1 - 1e-7];
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json
 from scipy.stats import norm
-print(json.dumps([float(norm.ppf(p)) for p in ${JSON.stringify(ps)}]))`)) as number[];
-    ps.forEach((p, i) => expect(Math.abs(normalQuantile(p) - ref[i]!), `p ${p}`).toBeLessThanOrEqual(1.2e-9 * Math.max(1, Math.abs(ref[i]!))));
+print(json.dumps([float(norm.ppf(p)) for p in ${JSON.stringify(ps)}]))`),
+    ) as number[];
+    ps.forEach((p, i) =>
+      expect(Math.abs(normalQuantile(p) - ref[i]!), `p ${p}`).toBeLessThanOrEqual(
+        1.2e-9 * Math.max(1, Math.abs(ref[i]!)),
+      ),
+    );
   });
   it("normalSurvival matches scipy.stats.norm.sf to 1e-13 relative out to 1e-40, and normalCdf + normalSurvival = 1", () => {
     const xs = [-8, -3, -1, 0, 0.5, 1, 2, 3, 5, 8.5, 13];
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json
 from scipy.stats import norm
-print(json.dumps([float(norm.sf(x)) for x in ${JSON.stringify(xs)}]))`)) as number[];
+print(json.dumps([float(norm.sf(x)) for x in ${JSON.stringify(xs)}]))`),
+    ) as number[];
     xs.forEach((x, i) => {
       expect(Math.abs(normalSurvival(x) / ref[i]! - 1), `x ${x}`).toBeLessThan(1e-13);
       expect(normalCdf(x) + normalSurvival(x)).toBeCloseTo(1, 15);
     });
   });
   it("noncentral t CDF and normal CDF match scipy (scipy.stats.nct.cdf, norm.cdf)", () => {
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json
 from scipy.stats import nct, norm
-print(json.dumps([nct.cdf(2, 5, 1), nct.cdf(-1, 2, 0.5), nct.cdf(8, 3, 4), norm.cdf(-2.5), norm.cdf(1.3)]))`)) as number[];
-    const got = [noncentralTCdf(2, 5, 1), noncentralTCdf(-1, 2, 0.5), noncentralTCdf(8, 3, 4), normalCdf(-2.5), normalCdf(1.3)];
+print(json.dumps([nct.cdf(2, 5, 1), nct.cdf(-1, 2, 0.5), nct.cdf(8, 3, 4), norm.cdf(-2.5), norm.cdf(1.3)]))`),
+    ) as number[];
+    const got = [
+      noncentralTCdf(2, 5, 1),
+      noncentralTCdf(-1, 2, 0.5),
+      noncentralTCdf(8, 3, 4),
+      normalCdf(-2.5),
+      normalCdf(1.3),
+    ];
     got.forEach((g, i) => expect(Math.abs(g - ref[i]!)).toBeLessThan(1e-9));
   });
   it("noncentralTQuantile inverts noncentralTCdf; with no noncentrality it is Student's t (scipy.stats.t.ppf)", () => {
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json
 from scipy.stats import t
-print(json.dumps([float(t.ppf(0.95, 9)), float(t.ppf(0.01, 4))]))`)) as number[];
+print(json.dumps([float(t.ppf(0.95, 9)), float(t.ppf(0.01, 4))]))`),
+    ) as number[];
     expect(noncentralTQuantile(0.95, 9, 0)).toBeCloseTo(ref[0]!, 8);
     expect(noncentralTQuantile(0.01, 4, 0)).toBeCloseTo(ref[1]!, 8);
     expect(noncentralTCdf(noncentralTQuantile(0.9, 6, 1.5), 6, 1.5)).toBeCloseTo(0.9, 10);
@@ -118,7 +160,12 @@ print(json.dumps([float(t.ppf(0.95, 9)), float(t.ppf(0.01, 4))]))`)) as number[]
 
 describe("studentTQuantile (Cornish-Fisher, for the Parseval tolerance)", () => {
   // scipy 1.17.1 stats.t.ppf(1 - 5e-5, nu) for nu = 7, 15, 31, 63, rounded to 4 decimals
-  const ref: [number, number][] = [[7, 7.8846], [15, 5.2391], [31, 4.461], [63, 4.1546]];
+  const ref: [number, number][] = [
+    [7, 7.8846],
+    [15, 5.2391],
+    [31, 4.461],
+    [63, 4.1546],
+  ];
   for (const [nu, t] of ref) {
     it(`t(0.99995; ${nu}) within 2 % of scipy's ${t}`, () => {
       expect(Math.abs(studentTQuantile(1 - 5e-5, nu) / t - 1)).toBeLessThan(0.02);

@@ -15,7 +15,8 @@ describe("RunningMoments", () => {
     const r = m.result();
     const ref = scipyReference.moments;
     expect(r.count).toBe(3000);
-    for (const k of ["mean", "std", "skewness", "kurtosis", "min", "max"] as const) expect(Math.abs(r[k] - ref[k]!) / Math.abs(ref[k]!)).toBeLessThan(1e-11);
+    for (const k of ["mean", "std", "skewness", "kurtosis", "min", "max"] as const)
+      expect(Math.abs(r[k] - ref[k]!) / Math.abs(ref[k]!)).toBeLessThan(1e-11);
   });
   it("Gaussian noise: kurtosis 3 +- 0.05 with 1e6 samples (Pearson; docs/REFERENCES.md sec. 10)", () => {
     const m = new RunningMoments();

@@ -3,7 +3,7 @@ import { SampleHoldAccumulator } from "../../../src/estimate/statistics/sampleHo
 import { gaussian, seeded } from "../../helpers.js";
 
 /** A sensor's readings held to the file's rate: each reading repeated `factor` times (or a random 3-5 times with jitter). */
-export function held(readings: Float64Array, factor: number, jitter = false, seed = 1): Float64Array {
+function held(readings: Float64Array, factor: number, jitter = false, seed = 1): Float64Array {
   const rnd = seeded(seed);
   const out: number[] = [];
   for (const v of readings) {

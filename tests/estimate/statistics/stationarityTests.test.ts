@@ -1,13 +1,29 @@
 import { describe, expect, it } from "vitest";
 import { StretchMeanSquares } from "../../../src/estimate/statistics/stretchMeanSquares.js";
-import { inversionDistribution, reverseArrangementCount, reverseArrangementsTest, runsDistribution, runTest, stationarityFinding } from "../../../src/estimate/statistics/stationarityTests.js";
+import {
+  inversionDistribution,
+  reverseArrangementCount,
+  reverseArrangementsTest,
+  runsDistribution,
+  runTest,
+  stationarityFinding,
+} from "../../../src/estimate/statistics/stationarityTests.js";
 import { gaussian, seeded } from "../../helpers.js";
 
 describe("reverse arrangements test", () => {
   it("acceptance regions reproduce Bendat & Piersol Table A.6 at alpha = 0.05 (docs/REFERENCES.md sec. 13)", () => {
-    const table: [number, number, number][] = [[10, 11, 33], [20, 64, 125], [30, 162, 272], [50, 495, 729], [100, 2145, 2804]];
+    const table: [number, number, number][] = [
+      [10, 11, 33],
+      [20, 64, 125],
+      [30, 162, 272],
+      [50, 495, 729],
+      [100, 2145, 2804],
+    ];
     for (const [n, lo, hi] of table) {
-      const t = reverseArrangementsTest(Float64Array.from({ length: n }, (_, i) => i), 0.05);
+      const t = reverseArrangementsTest(
+        Float64Array.from({ length: n }, (_, i) => i),
+        0.05,
+      );
       expect([t.acceptAbove, t.acceptAtMost], `n = ${n}`).toEqual([lo, hi]);
       expect(t.method).toBe("exact");
     }
@@ -15,8 +31,13 @@ describe("reverse arrangements test", () => {
   it("inversionDistribution sums to 1 with mean n(n-1)/4 and variance n(2n+5)(n-1)/72 (Bendat & Piersol 2010, sec. 4.5.2)", () => {
     for (const n of [5, 20, 60]) {
       const p = inversionDistribution(n);
-      let s = 0, m = 0, v = 0;
-      p.forEach((q, k) => { s += q; m += k * q; });
+      let s = 0,
+        m = 0,
+        v = 0;
+      p.forEach((q, k) => {
+        s += q;
+        m += k * q;
+      });
       p.forEach((q, k) => (v += (k - m) ** 2 * q));
       expect(s).toBeCloseTo(1, 12);
       expect(m).toBeCloseTo((n * (n - 1)) / 4, 9);
@@ -35,7 +56,10 @@ describe("reverse arrangements test", () => {
     }
   });
   it("a large n uses the normal approximation with the same mean and spread", () => {
-    const t = reverseArrangementsTest(Float64Array.from({ length: 400 }, (_, i) => Math.sin(i)), 0.05);
+    const t = reverseArrangementsTest(
+      Float64Array.from({ length: 400 }, (_, i) => Math.sin(i)),
+      0.05,
+    );
     expect(t.method).toBe("normal");
     expect(t.expected).toBe((400 * 399) / 4);
   });
@@ -50,8 +74,12 @@ describe("run test", () => {
   });
   it("runsDistribution sums to 1 and has mean 2 n1 n2 / n + 1 (Wald & Wolfowitz 1940)", () => {
     const p = runsDistribution(12, 9);
-    let s = 0, m = 0;
-    p.forEach((q, k) => { s += q; m += (k + 2) * q; });
+    let s = 0,
+      m = 0;
+    p.forEach((q, k) => {
+      s += q;
+      m += (k + 2) * q;
+    });
     expect(s).toBeCloseTo(1, 12);
     expect(m).toBeCloseTo((2 * 12 * 9) / 21 + 1, 10);
   });
@@ -86,7 +114,7 @@ describe("stationarity on stretch mean squares, seeded Monte Carlo on records ma
     const runs = 1000;
     let alarms = 0;
     for (let r = 0; r < runs; r++) if (!reverseArrangementsTest(stretchValues(5000 + r, 300, 16)).stationary) alarms++;
-    expect(Math.abs(alarms / runs - 0.05)).toBeLessThan(3 * Math.sqrt(0.05 * 0.95 / runs));
+    expect(Math.abs(alarms / runs - 0.05)).toBeLessThan(3 * Math.sqrt((0.05 * 0.95) / runs));
   });
   it("a +3 dB step halfway through is detected in at least 99 % of records (20 stretches of 256 samples, 300 records)", () => {
     let found = 0;
@@ -109,7 +137,10 @@ describe("stationarity on stretch mean squares, seeded Monte Carlo on records ma
     const a = new StretchMeanSquares(100);
     const b = new StretchMeanSquares(100);
     a.push(x, 1000);
-    b.push(x.map((v) => v + 9.80665), 1000);
+    b.push(
+      x.map((v) => v + 9.80665),
+      1000,
+    );
     const ra = a.result();
     const rb = b.result();
     expect(ra.length).toBe(10);

@@ -2,17 +2,30 @@ import { describe, expect, it } from "vitest";
 import { logToleranceLimit, oneSidedToleranceFactor } from "../../../src/estimate/statistics/toleranceLimit.js";
 import { python } from "../../helpers.js";
 
-const CASES: [number, number, number][] = [[3, 0.95, 0.5], [3, 0.95, 0.95], [4, 0.9, 0.9], [10, 0.9, 0.95], [10, 0.95, 0.95], [5, 0.99, 0.9], [30, 0.95, 0.5], [100, 0.99, 0.99]];
+const CASES: [number, number, number][] = [
+  [3, 0.95, 0.5],
+  [3, 0.95, 0.95],
+  [4, 0.9, 0.9],
+  [10, 0.9, 0.95],
+  [10, 0.95, 0.95],
+  [5, 0.99, 0.9],
+  [30, 0.95, 0.5],
+  [100, 0.99, 0.99],
+];
 
 describe("one-sided normal tolerance factor k", () => {
   it("matches scipy.stats.nct.ppf(gamma, n-1, z_p sqrt(n)) / sqrt(n) to 1e-7 relative", () => {
     // scipy.stats.nct (the noncentral t) and norm.ppf: the definition of k (Natrella 1963; NIST/SEMATECH e-Handbook 7.2.6.3; from memory).
-    const ref = JSON.parse(python(`
+    const ref = JSON.parse(
+      python(`
 import json, numpy as np
 from scipy.stats import nct, norm
 cases = ${JSON.stringify(CASES)}
-print(json.dumps([float(nct.ppf(g, n - 1, norm.ppf(p) * np.sqrt(n)) / np.sqrt(n)) for n, p, g in cases]))`)) as number[];
-    CASES.forEach(([n, p, g], i) => expect(Math.abs(oneSidedToleranceFactor(n, p, g) / ref[i]! - 1), `n=${n} p=${p} g=${g}`).toBeLessThan(1e-7));
+print(json.dumps([float(nct.ppf(g, n - 1, norm.ppf(p) * np.sqrt(n)) / np.sqrt(n)) for n, p, g in cases]))`),
+    ) as number[];
+    CASES.forEach(([n, p, g], i) =>
+      expect(Math.abs(oneSidedToleranceFactor(n, p, g) / ref[i]! - 1), `n=${n} p=${p} g=${g}`).toBeLessThan(1e-7),
+    );
   });
   it("gives the tabulated one-sided factors for n = 10: 2.355 (p 0.90, 95 %) and 2.911 (p 0.95, 95 %)", () => {
     // Natrella 1963, Table A-7 (one-sided normal tolerance factors); values from memory, reproduced by scipy above.
@@ -22,7 +35,7 @@ print(json.dumps([float(nct.ppf(g, n - 1, norm.ppf(p) * np.sqrt(n)) / np.sqrt(n)
   it("covers at least p of the population in a fraction gamma of samples (seeded Monte Carlo, 4000 draws of n = 5)", () => {
     // The defining property: P(mean + k s >= z_p) = gamma for normal samples (rate gamma; binomial sd sqrt(g (1-g) / 4000) = 0.0034 at 0.95).
     let a = 12345;
-    const u = () => ((a = (Math.imul(a, 1103515245) + 12345) >>> 0) / 4294967296);
+    const u = () => (a = (Math.imul(a, 1103515245) + 12345) >>> 0) / 4294967296;
     const gauss = () => Math.sqrt(-2 * Math.log(1 - u())) * Math.cos(2 * Math.PI * u());
     const n = 5;
     const k = oneSidedToleranceFactor(n, 0.9, 0.95);
