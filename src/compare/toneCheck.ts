@@ -49,6 +49,21 @@ function levelNear(p: TestProfile, f: number): number {
   return profileLevel(p, Math.min(fN, Math.max(f0, f)));
 }
 
+/** A tone's lines: the first and last line index it occupies. */
+interface LineSpan {
+  first: number;
+  last: number;
+}
+
+/** What every tone of one spectrum is tested with: the line spacing, the test level, its z, the power's z and the departure's gain. */
+interface ToneTest {
+  df: number;
+  level: number;
+  z: number;
+  zPower: number;
+  g: number;
+}
+
 /**
  * Judge one spectrum of a mixed-mode profile: the background with the tones' lines left out, and each tone from
  * its fit (fits in the profile's tone order; a missing fit is judged as a tone of zero peak).
@@ -60,24 +75,10 @@ export function judgeMixedMode(
 ): ChannelCompliance {
   const tones = profile.tones;
   if (tones.length === 0) return judgeSpectrum(sp, profile);
-  const window = spectralWindow(sp.window, sp.segmentLength);
-  const df = sp.lineSpacingHz;
   const nLines = sp.psd.length;
   const excluded = new Uint8Array(nLines);
-  const spans = tones.map((t, i) => {
-    const fit = fits[i];
-    const a = Math.max(limits(t).up, fit?.peak ?? 0);
-    const bg = (k: number) => levelNear(profile, k * df);
-    const s1 = toneLines(window, df, nLines, t.hz, a, bg);
-    const s2 = fit ? toneLines(window, df, nLines, fit.frequencyHz, a, bg) : s1;
-    const span = { first: Math.min(s1.first, s2.first), last: Math.max(s1.last, s2.last) };
-    for (let k = span.first; k <= span.last; k++) excluded[k] = 1;
-    return span;
-  });
-  const f0 = profile.breakpoints[0]!.hz;
-  const top = Math.min(profile.breakpoints[profile.breakpoints.length - 1]!.hz, sp.sampleRateHz / 2);
-  let toneMs = 0;
-  for (const t of tones) if (t.hz >= f0 && t.hz <= top) toneMs += (t.peak * t.peak) / 2;
+  const spans = toneSpans(sp, profile, fits, excluded);
+  const toneMs = toneMeanSquare(sp, profile);
   // The caller's own mask (if any) and the tones' lines together.
   if (sp.excludedLines)
     for (let k = 0; k < nLines && k < sp.excludedLines.length; k++) if (sp.excludedLines[k]) excluded[k] = 1;
@@ -88,99 +89,152 @@ export function judgeMixedMode(
 
   // Each spectrum of a record judged as several (sp.family) gets its share of the record's rate, as the lines do.
   const level = DECISION_RULE.tones / (4 * tones.length * Math.max(1, sp.family ?? 1));
-  const z = normalQuantile(1 - level);
-  const zPower = normalQuantile(DECISION_RULE.power);
-  const g = Math.pow(10, DECISION_RULE.departureDb / 20);
-  const judged: ToneJudgement[] = tones.map((t, i) => {
-    const fit = fits[i];
-    const span = spans[i]!;
-    // Background density next to the tone's lines: the mean of up to 8 unexcluded lines each side.
-    let sum = 0;
-    let count = 0;
-    for (let k = span.first - 1, got = 0; k >= 1 && got < 8; k--)
-      if (!excluded[k]) {
-        sum += sp.psd[k]!;
-        count++;
-        got++;
-      }
-    for (let k = span.last + 1, got = 0; k < nLines && got < 8; k++)
-      if (!excluded[k]) {
-        sum += sp.psd[k]!;
-        count++;
-        got++;
-      }
-    const G = count > 0 ? sum / count : levelNear(profile, t.hz);
-    const T = fit?.durationS ?? sp.durationS;
-    const peak = fit?.peak ?? 0;
-    const hz = fit?.frequencyHz ?? t.hz;
-    const sd = tonePeakSd(G, T);
-    const fSd = toneFrequencySd(G, peak, T);
-    const { lo, up } = limits(t);
-    if (t.hz + t.toleranceHz >= sp.sampleRateHz / 2) {
-      // The record cannot hold the tone: nothing can be shown either way.
-      return {
-        name: t.label,
-        hz: t.hz,
-        toleranceHz: t.toleranceHz,
-        requiredPeak: t.peak,
-        measuredPeak: NaN,
-        measuredHz: NaN,
-        lowerPeak: lo,
-        upperPeak: up,
-        deviationDb: NaN,
-        peakSd: NaN,
-        frequencySd: NaN,
-        backgroundDensity: NaN,
-        linesFromHz: span.first * df,
-        linesToHz: span.last * df,
-        status: "within" as const,
-        shown: false,
-        testLevel: level,
-        falseFailRate: 4 * level,
-        verdict: "inconclusive" as const,
-        unseen: true,
-      };
-    }
-    const low = peak < lo - z * sd;
-    const high = peak > up + z * sd;
-    const missing = low && peak < MISSING_SD * sd;
-    const off = !missing && Math.abs(hz - t.hz) > t.toleranceHz + z * fSd;
-    const shown = low || high || off;
-    const outsideAsMeasured = peak < lo || peak > up || Math.abs(hz - t.hz) > t.toleranceHz;
-    const resolved = up * (g - 1) >= (z + zPower) * sd && lo * (1 - 1 / g) >= (z + zPower) * sd;
-    const status: ToneJudgement["status"] = missing
-      ? "missing"
-      : low
-        ? "low"
-        : high
-          ? "high"
-          : off
-            ? "off-frequency"
-            : "within";
-    const verdict: Verdict = shown ? "fail" : outsideAsMeasured || !resolved || !(sp.dof > 0) ? "inconclusive" : "pass";
-    return {
-      name: t.label,
-      hz: t.hz,
-      toleranceHz: t.toleranceHz,
-      requiredPeak: t.peak,
-      measuredPeak: peak,
-      measuredHz: hz,
-      lowerPeak: lo,
-      upperPeak: up,
-      deviationDb: 20 * Math.log10(peak / t.peak),
-      peakSd: sd,
-      frequencySd: fSd,
-      backgroundDensity: G,
-      linesFromHz: span.first * df,
-      linesToHz: span.last * df,
-      status,
-      shown,
-      testLevel: level,
-      falseFailRate: 4 * level,
-      verdict,
-    };
-  });
+  const test: ToneTest = {
+    df: sp.lineSpacingHz,
+    level,
+    z: normalQuantile(1 - level),
+    zPower: normalQuantile(DECISION_RULE.power),
+    g: Math.pow(10, DECISION_RULE.departureDb / 20),
+  };
+  const judged: ToneJudgement[] = tones.map((t, i) => judgeTone(sp, profile, t, fits[i], spans[i]!, excluded, test));
   return mergeTones(background, judged);
+}
+
+/** The lines each tone occupies, at its nominal and at its fitted frequency, each marked in `excluded`. */
+function toneSpans(
+  sp: SpectrumUnderTest,
+  profile: TestProfile,
+  fits: readonly (ToneFit | undefined)[],
+  excluded: Uint8Array,
+): LineSpan[] {
+  const window = spectralWindow(sp.window, sp.segmentLength);
+  const df = sp.lineSpacingHz;
+  const nLines = sp.psd.length;
+  return profile.tones.map((t, i) => {
+    const fit = fits[i];
+    const a = Math.max(limits(t).up, fit?.peak ?? 0);
+    const bg = (k: number) => levelNear(profile, k * df);
+    const s1 = toneLines(window, df, nLines, t.hz, a, bg);
+    const s2 = fit ? toneLines(window, df, nLines, fit.frequencyHz, a, bg) : s1;
+    const span = { first: Math.min(s1.first, s2.first), last: Math.max(s1.last, s2.last) };
+    for (let k = span.first; k <= span.last; k++) excluded[k] = 1;
+    return span;
+  });
+}
+
+/** The tones' required mean square (peak^2 / 2 each) inside the profile's range and below the record's Nyquist frequency. */
+function toneMeanSquare(sp: SpectrumUnderTest, profile: TestProfile): number {
+  const f0 = profile.breakpoints[0]!.hz;
+  const top = Math.min(profile.breakpoints[profile.breakpoints.length - 1]!.hz, sp.sampleRateHz / 2);
+  let toneMs = 0;
+  for (const t of profile.tones) if (t.hz >= f0 && t.hz <= top) toneMs += (t.peak * t.peak) / 2;
+  return toneMs;
+}
+
+/** Background density next to a tone's lines: the mean of up to 8 unexcluded lines each side (`fallback` when none). */
+function backgroundDensity(psd: ArrayLike<number>, excluded: Uint8Array, span: LineSpan, fallback: number): number {
+  const nLines = psd.length;
+  let sum = 0;
+  let count = 0;
+  for (let k = span.first - 1, got = 0; k >= 1 && got < 8; k--)
+    if (!excluded[k]) {
+      sum += psd[k]!;
+      count++;
+      got++;
+    }
+  for (let k = span.last + 1, got = 0; k < nLines && got < 8; k++)
+    if (!excluded[k]) {
+      sum += psd[k]!;
+      count++;
+      got++;
+    }
+  return count > 0 ? sum / count : fallback;
+}
+
+/** One tone judged from its fit: shown low, high, missing or off its frequency, else within (resolved or not). */
+function judgeTone(
+  sp: SpectrumUnderTest,
+  profile: TestProfile,
+  t: ProfileTone,
+  fit: ToneFit | undefined,
+  span: LineSpan,
+  excluded: Uint8Array,
+  test: ToneTest,
+): ToneJudgement {
+  if (t.hz + t.toleranceHz >= sp.sampleRateHz / 2) return unseenTone(t, span, test);
+  const { df, level, z, zPower, g } = test;
+  const G = backgroundDensity(sp.psd, excluded, span, levelNear(profile, t.hz));
+  const T = fit?.durationS ?? sp.durationS;
+  const peak = fit?.peak ?? 0;
+  const hz = fit?.frequencyHz ?? t.hz;
+  const sd = tonePeakSd(G, T);
+  const fSd = toneFrequencySd(G, peak, T);
+  const { lo, up } = limits(t);
+  const low = peak < lo - z * sd;
+  const high = peak > up + z * sd;
+  const missing = low && peak < MISSING_SD * sd;
+  const off = !missing && Math.abs(hz - t.hz) > t.toleranceHz + z * fSd;
+  const shown = low || high || off;
+  const outsideAsMeasured = peak < lo || peak > up || Math.abs(hz - t.hz) > t.toleranceHz;
+  const resolved = up * (g - 1) >= (z + zPower) * sd && lo * (1 - 1 / g) >= (z + zPower) * sd;
+  const status: ToneJudgement["status"] = missing
+    ? "missing"
+    : low
+      ? "low"
+      : high
+        ? "high"
+        : off
+          ? "off-frequency"
+          : "within";
+  const verdict: Verdict = shown ? "fail" : outsideAsMeasured || !resolved || !(sp.dof > 0) ? "inconclusive" : "pass";
+  return {
+    name: t.label,
+    hz: t.hz,
+    toleranceHz: t.toleranceHz,
+    requiredPeak: t.peak,
+    measuredPeak: peak,
+    measuredHz: hz,
+    lowerPeak: lo,
+    upperPeak: up,
+    deviationDb: 20 * Math.log10(peak / t.peak),
+    peakSd: sd,
+    frequencySd: fSd,
+    backgroundDensity: G,
+    linesFromHz: span.first * df,
+    linesToHz: span.last * df,
+    status,
+    shown,
+    testLevel: level,
+    falseFailRate: 4 * level,
+    verdict,
+  };
+}
+
+/** A tone the record cannot hold (at or above its Nyquist frequency): nothing can be shown either way. */
+function unseenTone(t: ProfileTone, span: LineSpan, test: ToneTest): ToneJudgement {
+  const { lo, up } = limits(t);
+  return {
+    name: t.label,
+    hz: t.hz,
+    toleranceHz: t.toleranceHz,
+    requiredPeak: t.peak,
+    measuredPeak: NaN,
+    measuredHz: NaN,
+    lowerPeak: lo,
+    upperPeak: up,
+    deviationDb: NaN,
+    peakSd: NaN,
+    frequencySd: NaN,
+    backgroundDensity: NaN,
+    linesFromHz: span.first * test.df,
+    linesToHz: span.last * test.df,
+    status: "within",
+    shown: false,
+    testLevel: test.level,
+    falseFailRate: 4 * test.level,
+    verdict: "inconclusive",
+    unseen: true,
+  };
 }
 
 /** The background's judgement with the tones' verdicts: a tone shown outside fails, an unresolved one keeps a pass from standing. */

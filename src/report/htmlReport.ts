@@ -21,7 +21,7 @@ import {
   timeRmsLabel,
   type ReportContext,
 } from "./reportPage.js";
-import { escapeXml as esc, svgHistogram, svgPlot } from "./svgPlot.js";
+import { escapeXml as esc, type Series, svgHistogram, svgPlot } from "./svgPlot.js";
 import { findingTexts } from "./findingTexts.js";
 
 /**
@@ -84,6 +84,15 @@ function excursionTable(list: Excursion[], linesChecked: number, id: string): st
 <table class="excursions grid" id="${id}"><thead><tr><th>range</th><th class="num">worst</th><th class="num">limit</th><th>judgement</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 
+/** Where a channel's plots sit: the profile's ends and the plotted frequency range. */
+interface PlotSpan {
+  f0: number;
+  fN: number;
+  lo: number;
+  hi: number;
+}
+
+/** One channel of a check: its verdict and findings, PSD and deviation plots, levels, tones, excursions and histogram. */
 function channelSection(
   c: ChannelAnalysis,
   comp: ChannelCompliance,
@@ -92,49 +101,58 @@ function channelSection(
   role: CheckResult["roles"][number],
 ): string {
   const p = r.profile;
-  const a = r.analysis;
   const u = accelLabel(c.units);
-  const f = c.psd.frequencyHz;
-  const f0 = p.breakpoints[0]!.hz;
-  const fN = p.breakpoints[p.breakpoints.length - 1]!.hz;
-  const [lo, hi] = plotRange(p, f);
-  const up: number[] = [];
-  const dn: number[] = [];
-  const lx = comp.lines.map((l) => l.frequencyHz);
-  for (const l of comp.lines) {
-    up.push(l.required * 10 ** (l.upperDb / 10));
-    dn.push(l.required * 10 ** (-l.lowerDb / 10));
-  }
-  const shownLines = comp.lines.filter((l) => l.shown);
+  const [lo, hi] = plotRange(p, c.psd.frequencyHz);
+  const span: PlotSpan = { f0: p.breakpoints[0]!.hz, fN: p.breakpoints[p.breakpoints.length - 1]!.hz, lo, hi };
+  const psdPlot = channelPsdPlot(c, comp, r, n, span);
+  const devPlot = deviationPlot(comp, n, span);
+  const hist = histogramOf(c, n);
+  return `<section class="channel" id="channel-${n}">
+<h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel" : "monitoring channel"} judged alone (the record's verdict rests on the control spectrum above):</span> <span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>`}</h2>
+<ul>${findingTexts(comp.findings)
+    .map((x) => `<li>${esc(x)}</li>`)
+    .join("")}</ul>
+${psdPlot}
+${devPlot}
+<h3>Levels and statistics</h3>
+<table class="levels">
+${levelRows(c, comp, r, role !== "monitor", span)}
+</table>
+${toneTable(comp, u, n)}
+<h3>Excursions</h3>${excursionTable(comp.excursions, comp.lines.length, `excursions-${n}`)}
+${hist}
+${c.notes.length ? `<p class="muted">Notes: ${findingTexts(c.notes).map(esc).join("; ")}</p>` : ""}
+${c.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(c.doubts).map(esc).join("; ")}</p>` : ""}
+</section>`;
+}
+
+/** The outer limits as two series, as levels on the PSD plot or in dB on the deviation plot; none without outer limits. */
+function outerSeries(comp: ChannelCompliance, dev: boolean): Series[] {
   const outerLines = comp.lines.filter((l) => l.outerUpperDb !== undefined);
-  const outerSeries = (dev: boolean) =>
-    outerLines.length === 0
-      ? []
-      : [
-          {
-            id: dev ? "dev-outer-upper" : "outer-upper",
-            label: "outer limits",
-            x: outerLines.map((l) => l.frequencyHz),
-            y: outerLines.map((l) => (dev ? l.outerUpperDb! : l.required * 10 ** (l.outerUpperDb! / 10))),
-            className: "outer",
-          },
-          {
-            id: dev ? "dev-outer-lower" : "outer-lower",
-            label: "",
-            x: outerLines.map((l) => l.frequencyHz),
-            y: outerLines.map((l) => (dev ? -l.outerLowerDb! : l.required * 10 ** (-l.outerLowerDb! / 10))),
-            className: "outer",
-          },
-        ];
-  // Required profile drawn through its breakpoints (exact corners).
-  const reqX = p.breakpoints.map((b) => b.hz);
-  const reqY = reqX.map((x) => profileLevel(p, x));
-  const vals: number[] = [];
-  // The y range follows the profile's band and the record inside it; the rest is clipped.
-  for (let k = 0; k < f.length; k++)
-    if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
-  // Mixed mode: each tone marked on the measured PSD's highest line within its lines, with its required and measured peak.
-  const tonePeaks = (comp.tones ?? []).map((t) => {
+  return outerLines.length === 0
+    ? []
+    : [
+        {
+          id: dev ? "dev-outer-upper" : "outer-upper",
+          label: "outer limits",
+          x: outerLines.map((l) => l.frequencyHz),
+          y: outerLines.map((l) => (dev ? l.outerUpperDb! : l.required * 10 ** (l.outerUpperDb! / 10))),
+          className: "outer",
+        },
+        {
+          id: dev ? "dev-outer-lower" : "outer-lower",
+          label: "",
+          x: outerLines.map((l) => l.frequencyHz),
+          y: outerLines.map((l) => (dev ? -l.outerLowerDb! : l.required * 10 ** (-l.outerLowerDb! / 10))),
+          className: "outer",
+        },
+      ];
+}
+
+/** Mixed mode: each tone marked on the measured PSD's highest line within its lines, with its required and measured peak. */
+function tonePeaks(c: ChannelAnalysis, comp: ChannelCompliance, u: string) {
+  const f = c.psd.frequencyHz;
+  return (comp.tones ?? []).map((t) => {
     let best = -1;
     for (let k = 0; k < f.length; k++)
       if (f[k]! >= t.linesFromHz && f[k]! <= t.linesToHz && (best < 0 || c.psd.psd[k]! > c.psd.psd[best]!)) best = k;
@@ -145,18 +163,49 @@ function channelSection(
       text: `${sig(t.hz, 5)} Hz: ${sig(t.requiredPeak, 3)} required, ${sig(t.measuredPeak, 3)} ${u} peak measured`,
     };
   });
+}
+
+/** A channel's PSD with its confidence band, the required profile, its tolerance (and outer limits), lines shown outside and tones. */
+function channelPsdPlot(
+  c: ChannelAnalysis,
+  comp: ChannelCompliance,
+  r: CheckResult,
+  n: number,
+  span: PlotSpan,
+): string {
+  const p = r.profile;
+  const u = accelLabel(c.units);
+  const f = c.psd.frequencyHz;
+  const { f0, fN } = span;
+  const up: number[] = [];
+  const dn: number[] = [];
+  const lx = comp.lines.map((l) => l.frequencyHz);
+  for (const l of comp.lines) {
+    up.push(l.required * 10 ** (l.upperDb / 10));
+    dn.push(l.required * 10 ** (-l.lowerDb / 10));
+  }
+  const shownLines = comp.lines.filter((l) => l.shown);
+  const outerLines = comp.lines.filter((l) => l.outerUpperDb !== undefined);
+  // Required profile drawn through its breakpoints (exact corners).
+  const reqX = p.breakpoints.map((b) => b.hz);
+  const reqY = reqX.map((x) => profileLevel(p, x));
+  const vals: number[] = [];
+  // The y range follows the profile's band and the record inside it; the rest is clipped.
+  for (let k = 0; k < f.length; k++)
+    if (f[k]! >= f0 && f[k]! <= fN && c.psd.lower[k]! > 0) vals.push(c.psd.lower[k]!, c.psd.upper[k]!);
+  const peaks = tonePeaks(c, comp, u);
   const oy = outerLines.flatMap((l) => [
     l.required * 10 ** (l.outerUpperDb! / 10),
     l.required * 10 ** (-l.outerLowerDb! / 10),
   ]);
   const ymin = minOf(vals, dn, up, oy) / 3;
   const ymax = maxOf(vals, dn, up, oy) * 3;
-  const psdPlot = svgPlot({
+  return svgPlot({
     id: `psd-${n}`,
-    title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * a.settings.confidence, 0)} % confidence band`,
+    title: `PSD of channel ${c.position} "${c.name}" with ${fixed(100 * r.analysis.settings.confidence, 0)} % confidence band`,
     xLabel: "frequency (Hz)",
     yLabel: `PSD (${densityLabel(c.units)})`,
-    xDomain: [lo, hi],
+    xDomain: [span.lo, span.hi],
     yDomain: [ymin, ymax],
     yLog: true,
     xMarks: [f0, fN],
@@ -164,7 +213,7 @@ function channelSection(
       { id: "confidence", label: "confidence band", x: f, y: c.psd.lower, y2: c.psd.upper, className: "band" },
       { id: "limits-upper", label: "tolerance", x: lx, y: up, className: "limit" },
       { id: "limits-lower", label: "", x: lx, y: dn, className: "limit" },
-      ...outerSeries(false),
+      ...outerSeries(comp, false),
       { id: "required", label: "required", x: reqX, y: reqY, className: "required" },
       { id: "measured", label: "measured", x: f, y: c.psd.psd, className: "measured" },
       ...(shownLines.length > 0
@@ -179,21 +228,28 @@ function channelSection(
             },
           ]
         : []),
-      ...(tonePeaks.length > 0
+      ...(peaks.length > 0
         ? [
             {
               id: "tones",
               label: "tone",
-              x: tonePeaks.map((t) => t.x),
-              y: tonePeaks.map((t) => t.y),
+              x: peaks.map((t) => t.x),
+              y: peaks.map((t) => t.y),
               className: "tone",
               markers: true,
             },
           ]
         : []),
     ],
-    notes: tonePeaks.map((t) => ({ x: t.x, y: t.y, text: t.text, id: t.id })),
+    notes: peaks.map((t) => ({ x: t.x, y: t.y, text: t.text, id: t.id })),
   });
+}
+
+/** A channel's deviation from the required profile in dB, with its band limits (and outer limits) and the lines shown outside. */
+function deviationPlot(comp: ChannelCompliance, n: number, span: PlotSpan): string {
+  const lx = comp.lines.map((l) => l.frequencyHz);
+  const shownLines = comp.lines.filter((l) => l.shown);
+  const outerLines = comp.lines.filter((l) => l.outerUpperDb !== undefined);
   const devs = comp.lines.map((l) => l.deviationDb);
   const dmax = maxOf(
     [6],
@@ -201,20 +257,20 @@ function channelSection(
     outerLines.map((l) => Math.max(l.outerUpperDb!, l.outerLowerDb!) + 1),
     devs.filter(Number.isFinite).map((d) => Math.abs(d) + 1),
   );
-  const devPlot = svgPlot({
+  return svgPlot({
     id: `dev-${n}`,
     title: "Deviation from the required profile (same frequency axis)",
     xLabel: "frequency (Hz)",
     yLabel: "deviation (dB)",
-    xDomain: [lo, hi],
+    xDomain: [span.lo, span.hi],
     yDomain: [-dmax, dmax],
     yLog: false,
-    xMarks: [f0, fN],
+    xMarks: [span.f0, span.fN],
     height: 250,
     series: [
       { id: "dev-upper", label: "band limits", x: lx, y: comp.lines.map((l) => l.upperDb), className: "limit" },
       { id: "dev-lower", label: "", x: lx, y: comp.lines.map((l) => -l.lowerDb), className: "limit" },
-      ...outerSeries(true),
+      ...outerSeries(comp, true),
       { id: "deviation", label: "10 log10(measured / required)", x: lx, y: devs, className: "deviation" },
       ...(shownLines.length > 0
         ? [
@@ -230,31 +286,38 @@ function channelSection(
         : []),
     ],
   });
-  const hist = histogramOf(c, n);
-  const tolRms =
-    comp.rms.upperDb !== undefined
-      ? `+${fixed(comp.rms.upperDb, 2)} / −${fixed(comp.rms.lowerDb!, 2)} dB`
-      : "none stated";
-  const s = c.stats;
+}
+
+/** The lines not judged, in words: at the profile's ends, biased by detrending, above the record's Nyquist frequency. */
+function unjudgedWords(comp: ChannelCompliance): string {
   const un = comp.unjudged;
-  const unjudged = [
+  return [
     un.edge ? `${un.edge} at the profile's ends (the window's kernel reaches past them)` : "",
     un.detrend ? `${un.detrend} biased by detrending` : "",
     un.aboveRecord ? `${un.aboveRecord} above the record's Nyquist frequency` : "",
   ]
     .filter(Boolean)
     .join(", ");
-  const judged = role !== "monitor";
-  return `<section class="channel" id="channel-${n}">
-<h2>Channel ${c.position} “${esc(c.name)}” ${role === "judged" ? `<span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>` : `<span class="muted">${role === "control" ? "control channel" : "monitoring channel"} judged alone (the record's verdict rests on the control spectrum above):</span> <span class="chip ${comp.verdict}">${VERDICT_TEXT[comp.verdict].word}</span>`}</h2>
-<ul>${findingTexts(comp.findings)
-    .map((x) => `<li>${esc(x)}</li>`)
-    .join("")}</ul>
-${psdPlot}
-${devPlot}
-<h3>Levels and statistics</h3>
-<table class="levels">
-${row(timeRmsLabel(a), qty(sig(c.parseval.rmsTime, 4), u), "num")}
+}
+
+/** The rows of a channel's "Levels and statistics" table: RMS four ways, Parseval, DOF, rule, lines judged, statistics. */
+function levelRows(
+  c: ChannelAnalysis,
+  comp: ChannelCompliance,
+  r: CheckResult,
+  judged: boolean,
+  span: PlotSpan,
+): string {
+  const a = r.analysis;
+  const u = accelLabel(c.units);
+  const { f0, fN } = span;
+  const tolRms =
+    comp.rms.upperDb !== undefined
+      ? `+${fixed(comp.rms.upperDb, 2)} / −${fixed(comp.rms.lowerDb!, 2)} dB`
+      : "none stated";
+  const s = c.stats;
+  const unjudged = unjudgedWords(comp);
+  return `${row(timeRmsLabel(a), qty(sig(c.parseval.rmsTime, 4), u), "num")}
 ${row(segmentRmsLabel(a), qty(sig(c.parseval.rmsSegments, 4), u), "num")}
 ${row("RMS from the PSD (every line, 0 Hz to Nyquist)", qty(sig(c.parseval.rmsPsd, 4), u), "num")}
 ${row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(c.parseval.ratio, 4)} (allowed ±${sig(100 * c.parseval.tolerance, 2)} %${c.parseval.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${c.parseval.ok ? "agree" : "DISAGREE"}`, "num")}
@@ -269,14 +332,7 @@ ${row("Random error of one line", `±${fixed(100 * c.psd.randomError, 1)} % (1 �
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${qty(sig(s.std, 4), u)}`, "num")}
 ${row("Minimum / maximum", `${sig(s.min, 4)} / ${qty(sig(s.max, 4), u)}`, "num")}
 ${row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num")}
-${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num")}
-</table>
-${toneTable(comp, u, n)}
-<h3>Excursions</h3>${excursionTable(comp.excursions, comp.lines.length, `excursions-${n}`)}
-${hist}
-${c.notes.length ? `<p class="muted">Notes: ${findingTexts(c.notes).map(esc).join("; ")}</p>` : ""}
-${c.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(c.doubts).map(esc).join("; ")}</p>` : ""}
-</section>`;
+${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num")}`;
 }
 
 /** The amplitude histogram and the Gaussian of the same mean and σ. */

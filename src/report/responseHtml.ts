@@ -63,6 +63,7 @@ export function responseResultDocument(
   return recordDocument("respond", ctx, responseJson(r, ctx.version, against));
 }
 
+/** The respond record: summary, identity, input, settings, plots, kinematics and stroke, the table, cautions, sign-off. */
 export function responseHtml(
   r: ResponseSpectra,
   version: string,
@@ -76,12 +77,79 @@ export function responseHtml(
   const u = accelLabel(s.units);
   const name = s.file.split(/[\\/]/).pop() ?? s.file;
   const fn = r.fnHz;
-  const xDomain: [number, number] = [fn[0]!, fn[fn.length - 1]! > fn[0]! ? fn[fn.length - 1]! : fn[0]! * 2];
   const title = m?.testId ? `SDOF response, test ${m.testId}: ${name}` : `SDOF response: ${name}`;
+  const summary = responseSummary(r, u);
+  const body = `<style>${EXTRA_STYLE}</style>
+<div class="verdict none" id="verdict" data-verdict="none"><span class="word">SDOF</span><span>${esc(summary)}</span></div>
+<h2>Test identity</h2>
+<table class="meta" id="identity">
+${metaRows(m)}
+</table>
+<h2>Input</h2>
+<table class="meta">
+${inputRows(r, u, against)}
+</table>
+<h2>Settings and assumptions</h2>
+<table class="meta" id="settings">
+${row("System", `single degree of freedom, base-driven, Q ${sig(r.q, 4)} (ζ ${sig(1 / (2 * r.q), 3)}), ${fn.length} natural frequencies`)}
+${row("Exposure", r.durationS === undefined ? `not given and the source has none: ${esc(r.needsDuration.join(" and "))} need one (--duration)` : `${qty(sig(r.durationS, 5), "s")} for the largest peak and the damage`)}
+${row("S-N curve", `N S^b = C with b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement${r.sn.snConstant === 1 && r.sn.stressPerUnit === 1 ? " (a relative damage: only ratios at the same b mean anything)" : ""}`)}
+${row("Rules", "response RMS by integrating |T|² G (no white-noise assumption) beside Miles' equation; largest peak by Davenport 1964; damage narrow-band Rayleigh (Miles 1954)")}
+${row("Units", `${esc(u)} for accelerations, as the source states; relative displacement in mm; velocity in mm/s`)}
+${givenRow(ctx)}
+</table>
+${responsePlots(r, u, against).join("\n")}
+<h2>Input kinematics and stroke</h2>
+<table class="meta" id="kinematics">
+${kinematicsRows(r)}
+</table>
+<div class="caution keep">${esc(STROKE_CAUTION)}</div>
+<h2>Response at each natural frequency</h2>
+<table class="grid fn"><thead><tr><th class="num">fn, Hz</th><th class="num">RMS, ${esc(u)}</th><th class="num">Miles, ${esc(u)}</th><th class="num">rel. disp. RMS, mm</th><th class="num">largest peak, ${esc(u)}</th><th class="num">damage</th>${against ? `<th class="num">RMS against/this, dB</th><th class="num">damage against/this</th>` : ""}</tr></thead>
+<tbody>${fnRows(r, against)}</tbody></table>
+<h2>Caution</h2>
+<div class="caution keep">${esc(RESPONSE_CAUTION)}</div>
+${recordSignOff("Response record", summary, m, [{ label: "Source", file: s.file, sha256: s.sha256 }, ...(against ? [{ label: "Against", file: against.b.source.file, sha256: against.b.source.sha256 }] : [])])}`;
+  const page = reportPage(
+    {
+      title,
+      verdictClass: "none",
+      verdictWord: RESPOND_WORD,
+      recordingSha256: s.sha256,
+      recordingName: name,
+      kindLine: "SDOF response-spectrum record",
+      body,
+      hashLabel: s.kind === "recording" ? "recording" : "source",
+    },
+    ctx,
+  );
+  return embedResult(page, responseResultDocument(r, ctx, against));
+}
+
+/** The banner's one line: Q and range, the largest response and where, the displacement against any rated stroke. */
+function responseSummary(r: ResponseSpectra, u: string): string {
+  const fn = r.fnHz;
   let worst = 0;
   for (let i = 1; i < fn.length; i++) if (r.accelRms[i]! > r.accelRms[worst]!) worst = i;
   const st = r.stroke;
-  const summary = `Q ${sig(r.q, 4)} over ${sig(fn[0]!, 4)}–${sig(fn[fn.length - 1]!, 4)} Hz: largest response ${sig(r.accelRms[worst]!, 4)} ${u} RMS at ${sig(fn[worst]!, 4)} Hz; displacement ${sig(r.motion.displacementPeakToPeak * 1000, 4)} mm peak-to-peak${st ? ` against ${sig(st.ratedMm, 4)} mm rated stroke: ${st.withinRating ? "within" : "EXCEEDS"}` : " (no rated stroke given)"}.`;
+  return `Q ${sig(r.q, 4)} over ${sig(fn[0]!, 4)}–${sig(fn[fn.length - 1]!, 4)} Hz: largest response ${sig(r.accelRms[worst]!, 4)} ${u} RMS at ${sig(fn[worst]!, 4)} Hz; displacement ${sig(r.motion.displacementPeakToPeak * 1000, 4)} mm peak-to-peak${st ? ` against ${sig(st.ratedMm, 4)} mm rated stroke: ${st.withinRating ? "within" : "EXCEEDS"}` : " (no rated stroke given)"}.`;
+}
+
+/** The input table's rows: the source and its SHA-256, the band used, the recording's PSD, and the input compared against. */
+function inputRows(r: ResponseSpectra, u: string, against: Against | undefined): string {
+  const s = r.source;
+  const mo = r.motion;
+  return `${row("Source", `${esc(s.file)} (${esc(sourceWords(r))})`)}
+${row("Source SHA-256", `<span class="hash">${s.sha256}</span>`)}
+${row("Band used", `${qty(sig(r.band.fromHz, 4), "Hz")} to ${qty(sig(r.band.toHz, 5), "Hz")}, ${qty(sig(mo.accelerationRms, 4), u)} RMS`)}
+${s.settings ? row("PSD of the recording", `${s.settings.segmentLength}-point segments, ${qty(sig(s.settings.resolutionHz, 4), "Hz")} lines, ${s.settings.averages} averages, ${fixed(s.settings.dof, 1)} DOF`) : ""}
+${against ? row("Compared against", `${esc(against.b.source.file)} (${esc(sourceWords(against.b))}), <span class="hash">${against.b.source.sha256.slice(0, 12)}</span>, exposure ${against.b.durationS === undefined ? "not given" : qty(sig(against.b.durationS, 5), "s")}`) : ""}`;
+}
+
+/** The plots: response RMS (exact, Miles, against), and with an exposure the largest peak and the damage. */
+function responsePlots(r: ResponseSpectra, u: string, against: Against | undefined): string[] {
+  const fn = r.fnHz;
+  const xDomain: [number, number] = [fn[0]!, fn[fn.length - 1]! > fn[0]! ? fn[fn.length - 1]! : fn[0]! * 2];
   const accelSeries: Series[] = [
     { id: "accel-exact", label: "exact", x: fn, y: r.accelRms, className: "exact" },
     { id: "accel-miles", label: "Miles", x: fn, y: r.milesRms, className: "miles" },
@@ -97,7 +165,7 @@ export function responseHtml(
         ]
       : []),
   ];
-  const plots = [
+  return [
     svgPlot({
       id: "response-rms",
       title: `Response RMS (absolute acceleration), Q ${sig(r.q, 4)}`,
@@ -143,63 +211,24 @@ export function responseHtml(
           }),
         ]),
   ];
-  const rows = Array.from(
-    fn,
-    (f, i) =>
-      `<tr><td class="num">${sig(f, 4)}</td><td class="num">${sig(r.accelRms[i]!, 4)}</td><td class="num">${Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "–"}</td><td class="num">${sig(r.relDispRms[i]! * 1000, 4)}</td><td class="num">${Number.isFinite(r.extremePeak[i]!) ? sig(r.extremePeak[i]!, 4) : "–"}</td><td class="num">${Number.isFinite(r.fatigueDamage[i]!) ? r.fatigueDamage[i]!.toExponential(3) : "–"}</td>${against ? `<td class="num">${fixed(against.c.rmsRatioDb[i]!, 2)}</td><td class="num">${sig(against.c.damageRatio[i]!, 3)}</td>` : ""}</tr>`,
-  ).join("\n");
+}
+
+/** The kinematics table's rows: the band integrated, velocity and displacement, and the stroke against any rating. */
+function kinematicsRows(r: ResponseSpectra): string {
   const mo = r.motion;
-  const body = `<style>${EXTRA_STYLE}</style>
-<div class="verdict none" id="verdict" data-verdict="none"><span class="word">SDOF</span><span>${esc(summary)}</span></div>
-<h2>Test identity</h2>
-<table class="meta" id="identity">
-${metaRows(m)}
-</table>
-<h2>Input</h2>
-<table class="meta">
-${row("Source", `${esc(s.file)} (${esc(sourceWords(r))})`)}
-${row("Source SHA-256", `<span class="hash">${s.sha256}</span>`)}
-${row("Band used", `${qty(sig(r.band.fromHz, 4), "Hz")} to ${qty(sig(r.band.toHz, 5), "Hz")}, ${qty(sig(mo.accelerationRms, 4), u)} RMS`)}
-${s.settings ? row("PSD of the recording", `${s.settings.segmentLength}-point segments, ${qty(sig(s.settings.resolutionHz, 4), "Hz")} lines, ${s.settings.averages} averages, ${fixed(s.settings.dof, 1)} DOF`) : ""}
-${against ? row("Compared against", `${esc(against.b.source.file)} (${esc(sourceWords(against.b))}), <span class="hash">${against.b.source.sha256.slice(0, 12)}</span>, exposure ${against.b.durationS === undefined ? "not given" : qty(sig(against.b.durationS, 5), "s")}`) : ""}
-</table>
-<h2>Settings and assumptions</h2>
-<table class="meta" id="settings">
-${row("System", `single degree of freedom, base-driven, Q ${sig(r.q, 4)} (ζ ${sig(1 / (2 * r.q), 3)}), ${fn.length} natural frequencies`)}
-${row("Exposure", r.durationS === undefined ? `not given and the source has none: ${esc(r.needsDuration.join(" and "))} need one (--duration)` : `${qty(sig(r.durationS, 5), "s")} for the largest peak and the damage`)}
-${row("S-N curve", `N S^b = C with b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement${r.sn.snConstant === 1 && r.sn.stressPerUnit === 1 ? " (a relative damage: only ratios at the same b mean anything)" : ""}`)}
-${row("Rules", "response RMS by integrating |T|² G (no white-noise assumption) beside Miles' equation; largest peak by Davenport 1964; damage narrow-band Rayleigh (Miles 1954)")}
-${row("Units", `${esc(u)} for accelerations, as the source states; relative displacement in mm; velocity in mm/s`)}
-${givenRow(ctx)}
-</table>
-${plots.join("\n")}
-<h2>Input kinematics and stroke</h2>
-<table class="meta" id="kinematics">
-${row("Band integrated", `${qty(sig(mo.fromHz, 4), "Hz")} to ${qty(sig(mo.toHz, 5), "Hz")} (the lowest frequency dominates the displacement)`)}
+  const st = r.stroke;
+  return `${row("Band integrated", `${qty(sig(mo.fromHz, 4), "Hz")} to ${qty(sig(mo.toHz, 5), "Hz")} (the lowest frequency dominates the displacement)`)}
 ${row("Velocity RMS", qty(sig(mo.velocityRms * 1000, 4), "mm/s"))}
 ${row("Displacement RMS", qty(sig(mo.displacementRms * 1000, 4), "mm"))}
 ${row("Displacement peak-to-peak estimate", `${qty(sig(mo.displacementPeakToPeak * 1000, 4), "mm")} (6 × RMS)`)}
-${row("Against the rated stroke", st ? `${qty(fixed(st.estimateMm, 3), "mm")} against ${qty(sig(st.ratedMm, 4), "mm")} rated: ${st.withinRating ? `within the rating (margin ×${fixed(st.margin, 2)})` : `<strong>EXCEEDS</strong> the rating by ${fixed(100 * (1 / st.margin - 1), 0)} %`}` : `<span class="muted">no rated stroke given (--stroke-mm)</span>`)}
-</table>
-<div class="caution keep">${esc(STROKE_CAUTION)}</div>
-<h2>Response at each natural frequency</h2>
-<table class="grid fn"><thead><tr><th class="num">fn, Hz</th><th class="num">RMS, ${esc(u)}</th><th class="num">Miles, ${esc(u)}</th><th class="num">rel. disp. RMS, mm</th><th class="num">largest peak, ${esc(u)}</th><th class="num">damage</th>${against ? `<th class="num">RMS against/this, dB</th><th class="num">damage against/this</th>` : ""}</tr></thead>
-<tbody>${rows}</tbody></table>
-<h2>Caution</h2>
-<div class="caution keep">${esc(RESPONSE_CAUTION)}</div>
-${recordSignOff("Response record", summary, m, [{ label: "Source", file: s.file, sha256: s.sha256 }, ...(against ? [{ label: "Against", file: against.b.source.file, sha256: against.b.source.sha256 }] : [])])}`;
-  const page = reportPage(
-    {
-      title,
-      verdictClass: "none",
-      verdictWord: RESPOND_WORD,
-      recordingSha256: s.sha256,
-      recordingName: name,
-      kindLine: "SDOF response-spectrum record",
-      body,
-      hashLabel: s.kind === "recording" ? "recording" : "source",
-    },
-    ctx,
-  );
-  return embedResult(page, responseResultDocument(r, ctx, against));
+${row("Against the rated stroke", st ? `${qty(fixed(st.estimateMm, 3), "mm")} against ${qty(sig(st.ratedMm, 4), "mm")} rated: ${st.withinRating ? `within the rating (margin ×${fixed(st.margin, 2)})` : `<strong>EXCEEDS</strong> the rating by ${fixed(100 * (1 / st.margin - 1), 0)} %`}` : `<span class="muted">no rated stroke given (--stroke-mm)</span>`)}`;
+}
+
+/** The table of every natural frequency: RMS, Miles, relative displacement, largest peak, damage (and the against ratios). */
+function fnRows(r: ResponseSpectra, against: Against | undefined): string {
+  return Array.from(
+    r.fnHz,
+    (f, i) =>
+      `<tr><td class="num">${sig(f, 4)}</td><td class="num">${sig(r.accelRms[i]!, 4)}</td><td class="num">${Number.isFinite(r.milesRms[i]!) ? sig(r.milesRms[i]!, 4) : "–"}</td><td class="num">${sig(r.relDispRms[i]! * 1000, 4)}</td><td class="num">${Number.isFinite(r.extremePeak[i]!) ? sig(r.extremePeak[i]!, 4) : "–"}</td><td class="num">${Number.isFinite(r.fatigueDamage[i]!) ? r.fatigueDamage[i]!.toExponential(3) : "–"}</td>${against ? `<td class="num">${fixed(against.c.rmsRatioDb[i]!, 2)}</td><td class="num">${sig(against.c.damageRatio[i]!, 3)}</td>` : ""}</tr>`,
+  ).join("\n");
 }

@@ -150,12 +150,26 @@ function ranges(grid: Float64Array, hits: number[]): string {
   return out.join(", ");
 }
 
-export function responseText(
-  r: ResponseSpectra,
-  version: string,
-  against?: { b: ResponseSpectra; c: ResponseComparison },
-): string {
+type Against = { b: ResponseSpectra; c: ResponseComparison };
+
+/** respond's text output: the input and system, the response table (and the tones'), what each column means, kinematics, stroke, the against comparison and the cautions. */
+export function responseText(r: ResponseSpectra, version: string, against?: Against): string {
   const u = accelLabel(r.source.units);
+  const lines = [...headerLines(r, version, u), table(responseRows(r, u)), ""];
+  if (r.tones) lines.push(...toneResponseLines(r, u));
+  if (r.needsDuration.length > 0)
+    lines.push(
+      `  exposure   not given and the source has none (a profile without durationS, a PSD table): ${r.needsDuration.join(" and ")} need one (--duration); the RMS, Miles, displacement and rates above do not`,
+      "",
+    );
+  lines.push(...methodLines(r), ...kinematicsLines(r));
+  if (against) lines.push(...againstLines(r, against));
+  lines.push("", `CAUTION: ${RESPONSE_CAUTION}`, `CAUTION: ${STROKE_CAUTION}`, "");
+  return lines.join("\n");
+}
+
+/** The text's head: the source, the input band and its PSD, any full-scale reading and window, the system. */
+function headerLines(r: ResponseSpectra, version: string, u: string): string[] {
   const s = r.source;
   const what =
     s.kind === "profile"
@@ -163,7 +177,7 @@ export function responseText(
       : s.kind === "psd"
         ? `PSD table, channel ${s.label}`
         : `recording, channel ${s.label}`;
-  const lines = [
+  return [
     `psdgate ${version}: SDOF response to ${s.file} (${what})`,
     `  input      ${sig(r.band.fromHz, 4)}–${sig(r.band.toHz, 5)} Hz, ${sig(r.motion.accelerationRms, 4)} ${u} RMS${s.settings ? `; PSD of ${s.settings.segmentLength}-point segments, ${sig(s.settings.resolutionHz, 4)} Hz lines, ${s.settings.averages} averages` : ""}`,
     ...(s.reading ? fullScaleLines([{ name: s.label, reading: s.reading }]) : []),
@@ -175,6 +189,10 @@ export function responseText(
     `  system     Q ${sig(r.q, 4)} (zeta ${sig(1 / (2 * r.q), 3)}), base-driven; exposure ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}; Basquin b ${sig(r.sn.basquinB, 3)}, C ${sig(r.sn.snConstant, 3)}, stress ${sig(r.sn.stressPerUnit, 3)} per metre of relative displacement`,
     "",
   ];
+}
+
+/** The response table's rows, header first: per natural frequency RMS, Miles, rates, largest peak, damage (and record/PSD ratios). */
+function responseRows(r: ResponseSpectra, u: string): string[][] {
   const td = r.timeDomain;
   const psd = r.fromPsd;
   const num = (x: number, f: (v: number) => string) => (Number.isFinite(x) ? f(x) : "-");
@@ -209,26 +227,30 @@ export function responseText(
         : []),
     ]);
   }
-  lines.push(table(rows), "");
-  if (r.tones) {
-    const rowsT = [["fn Hz", ...r.tones.map((t) => `${sig(t.hz, 5)} Hz tone peak ${u}`), `total RMS ${u}`]];
-    for (let i = 0; i < r.fnHz.length; i++)
-      rowsT.push([sig(r.fnHz[i]!, 4), ...r.tones.map((t) => sig(t.accelPeak[i]!, 4)), sig(r.totalAccelRms![i]!, 4)]);
-    lines.push(
-      `  tones      the profile's sine tones (${r.tones.map((t) => `${sig(t.hz, 5)} Hz ${sig(t.peak, 4)} ${u} peak`).join(", ")}): each tone's response is deterministic, its peak x |T(f)|;`,
-      "             Miles' equation does not apply to a tone. The columns above (Miles, rates, largest peak, damage) are the random part alone;",
-      "             total RMS = sqrt(random² + sum of (tone response peak)² / 2). The damage and largest peak of sine plus random together are not computed.",
-      "",
-      table(rowsT),
-      "",
-    );
-  }
-  if (r.needsDuration.length > 0)
-    lines.push(
-      `  exposure   not given and the source has none (a profile without durationS, a PSD table): ${r.needsDuration.join(" and ")} need one (--duration); the RMS, Miles, displacement and rates above do not`,
-      "",
-    );
-  lines.push(
+  return rows;
+}
+
+/** The profile's sine tones: what their responses are, and each tone's response peak and the total RMS per natural frequency. */
+function toneResponseLines(r: ResponseSpectra, u: string): string[] {
+  const tones = r.tones!;
+  const rowsT = [["fn Hz", ...tones.map((t) => `${sig(t.hz, 5)} Hz tone peak ${u}`), `total RMS ${u}`]];
+  for (let i = 0; i < r.fnHz.length; i++)
+    rowsT.push([sig(r.fnHz[i]!, 4), ...tones.map((t) => sig(t.accelPeak[i]!, 4)), sig(r.totalAccelRms![i]!, 4)]);
+  return [
+    `  tones      the profile's sine tones (${tones.map((t) => `${sig(t.hz, 5)} Hz ${sig(t.peak, 4)} ${u} peak`).join(", ")}): each tone's response is deterministic, its peak x |T(f)|;`,
+    "             Miles' equation does not apply to a tone. The columns above (Miles, rates, largest peak, damage) are the random part alone;",
+    "             total RMS = sqrt(random² + sum of (tone response peak)² / 2). The damage and largest peak of sine plus random together are not computed.",
+    "",
+    table(rowsT),
+    "",
+  ];
+}
+
+/** What the columns are: exact, Miles (and its scatter on a measured PSD), the record's own peak and damage, Davenport's peak, the damage. */
+function methodLines(r: ResponseSpectra): string[] {
+  const s = r.source;
+  const td = r.timeDomain;
+  return [
     "  exact      integral of |T|² G (absolute acceleration) and of the relative-displacement transfer over the input, no white-noise assumption.",
     "  Miles      sqrt(pi/2 fn Q G(fn)): assumes the input flat around fn and drops the 1/Q term, so exact/Miles is sqrt(1 + 1/Q²) on a flat input;",
     "             it moves away from that where the input slopes or has peaks near fn, and near the band edges (part of the resonance falls outside).",
@@ -257,13 +279,17 @@ export function responseText(
       : []),
     "  peak       Davenport's expected largest peak over the exposure (about 1-2 % high for a narrow-band response, by psdgate's own simulation check).",
     "  damage     narrow-band Rayleigh, relative: only ratios at the same b and C mean anything.",
-  );
+  ];
+}
+
+/** The input's kinematics (velocity, displacement, peak-to-peak) and its stroke against any rating. */
+function kinematicsLines(r: ResponseSpectra): string[] {
   const m = r.motion;
-  lines.push(
+  const lines = [
     "",
     `  kinematics ${sig(m.fromHz, 4)}–${sig(m.toHz, 5)} Hz${r.tones ? " (random part; `profile` gives velocity and stroke with the tones)" : ""}: velocity ${sig(m.velocityRms * 1000, 4)} mm/s RMS, displacement ${mm(m.displacementRms)} mm RMS, peak-to-peak estimate ${mm(m.displacementPeakToPeak)} mm (6 x RMS)`,
-  );
-  if (s.kind !== "profile")
+  ];
+  if (r.source.kind !== "profile")
     lines.push("             (the lowest lines dominate the displacement: --fmin sets the band that matters)");
   if (r.stroke) {
     const st = r.stroke;
@@ -271,30 +297,32 @@ export function responseText(
       `  stroke     ${fixed(st.estimateMm, 3)} mm estimated against ${sig(st.ratedMm, 4)} mm rated: ${st.withinRating ? `within the rating (margin x${fixed(st.margin, 2)})` : `EXCEEDS the rating by ${fixed(100 * (1 / st.margin - 1), 0)} %`}`,
     );
   }
-  if (against) {
-    const { b, c } = against;
-    lines.push(
-      "",
-      `  against    ${b.source.file} (${b.source.kind === "profile" ? `profile "${b.source.label}"` : `${b.source.kind}, channel ${b.source.label}`}), exposure ${b.durationS === undefined ? "not given" : `${sig(b.durationS, 5)} s`} against ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}`,
-    );
-    const rows2 = [["fn Hz", "RMS B/A dB", "largest peak B/A dB", "damage B/A", ""]];
-    for (let i = 0; i < r.fnHz.length; i++) {
-      const short = c.rmsRatioDb[i]! < 0 || c.extremeRatioDb[i]! < 0 || c.damageRatio[i]! < 1;
-      rows2.push([
-        sig(r.fnHz[i]!, 4),
-        fixed(c.rmsRatioDb[i]!, 2),
-        fixed(c.extremeRatioDb[i]!, 2),
-        sig(c.damageRatio[i]!, 3),
-        short ? "B under-tests" : "",
-      ]);
-    }
-    lines.push(table(rows2), "");
-    lines.push(
-      `  B under-tests A in RMS at ${ranges(r.fnHz, c.underTestsHz.rms)}; in largest peak at ${ranges(r.fnHz, c.underTestsHz.extreme)}; in damage at ${ranges(r.fnHz, c.underTestsHz.damage)}`,
-    );
+  return lines;
+}
+
+/** The --against comparison: B's source and exposure, B/A per natural frequency, and where B under-tests A. */
+function againstLines(r: ResponseSpectra, against: Against): string[] {
+  const { b, c } = against;
+  const lines = [
+    "",
+    `  against    ${b.source.file} (${b.source.kind === "profile" ? `profile "${b.source.label}"` : `${b.source.kind}, channel ${b.source.label}`}), exposure ${b.durationS === undefined ? "not given" : `${sig(b.durationS, 5)} s`} against ${r.durationS === undefined ? "not given" : `${sig(r.durationS, 5)} s`}`,
+  ];
+  const rows2 = [["fn Hz", "RMS B/A dB", "largest peak B/A dB", "damage B/A", ""]];
+  for (let i = 0; i < r.fnHz.length; i++) {
+    const short = c.rmsRatioDb[i]! < 0 || c.extremeRatioDb[i]! < 0 || c.damageRatio[i]! < 1;
+    rows2.push([
+      sig(r.fnHz[i]!, 4),
+      fixed(c.rmsRatioDb[i]!, 2),
+      fixed(c.extremeRatioDb[i]!, 2),
+      sig(c.damageRatio[i]!, 3),
+      short ? "B under-tests" : "",
+    ]);
   }
-  lines.push("", `CAUTION: ${RESPONSE_CAUTION}`, `CAUTION: ${STROKE_CAUTION}`, "");
-  return lines.join("\n");
+  lines.push(table(rows2), "");
+  lines.push(
+    `  B under-tests A in RMS at ${ranges(r.fnHz, c.underTestsHz.rms)}; in largest peak at ${ranges(r.fnHz, c.underTestsHz.extreme)}; in damage at ${ranges(r.fnHz, c.underTestsHz.damage)}`,
+  );
+  return lines;
 }
 
 /** `respond --csv`: per natural frequency the response RMS (exact, Miles), relative displacement, largest peak and damage; with --against, B's and the ratios. */

@@ -158,21 +158,53 @@ function superscript(n: number): string {
     .join("");
 }
 
+/** A plot's height, scales and the tests every part of it draws with. */
+interface PlotFrame {
+  H: number;
+  xLog: boolean;
+  x: ScaleContinuousNumeric<number, number>;
+  y: ScaleContinuousNumeric<number, number>;
+  /** x inside the plotted domain. */
+  inX: (v: number) => boolean;
+  /** y drawable: finite, and positive on a log axis. */
+  ok: (v: number) => boolean;
+  /** Screen y held inside the plot's frame. */
+  clampY: (v: number) => number;
+}
+
 export function svgPlot(p: PlotSpec): string {
   const H = p.height ?? DEFAULT_H;
   const xLog = p.xLog !== false;
   const x = (xLog ? scaleLog() : scaleLinear()).domain(p.xDomain).range([M.left, W - M.right]);
   const y = (p.yLog ? scaleLog() : scaleLinear()).domain(p.yDomain).range([H - M.bottom, M.top]);
-  const inX = (v: number) => v >= p.xDomain[0] && v <= p.xDomain[1];
-  const ok = (v: number) => Number.isFinite(v) && (!p.yLog || v > 0);
-  const clampY = (v: number) => Math.max(M.top, Math.min(H - M.bottom, y(v)));
+  const f: PlotFrame = {
+    H,
+    xLog,
+    x,
+    y,
+    inX: (v: number) => v >= p.xDomain[0] && v <= p.xDomain[1],
+    ok: (v: number) => Number.isFinite(v) && (!p.yLog || v > 0),
+    clampY: (v: number) => Math.max(M.top, Math.min(H - M.bottom, y(v))),
+  };
   const out: string[] = [];
   out.push(
     `<svg id="${escapeXml(p.id)}" class="plot" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(p.title)}" xmlns="http://www.w3.org/2000/svg">`,
   );
   out.push(`<text class="plot-title" x="${M.left}" y="16">${escapeXml(p.title)}</text>`);
-  // Grid and ticks.
-  const xt = xLog ? logTicks(x, 10, p.xMarks) : { major: x.ticks(10), minor: [] as number[] };
+  out.push(...xGrid(p, f), ...yGrid(p, f), ...frameAndLabels(p, f));
+  out.push(`<g clip-path="url(#${p.id}-clip)">`);
+  for (const s of p.series) out.push(seriesPath(s, f));
+  out.push("</g>");
+  out.push(...ruleLines(p, f), ...noteMarks(p, f), ...legend(p));
+  out.push("</svg>");
+  return out.join("\n");
+}
+
+/** The x axis's grid lines and tick labels (log: 1-2-5 steps and the marks; linear: d3's ticks). */
+function xGrid(p: PlotSpec, f: PlotFrame): string[] {
+  const { H, x } = f;
+  const out: string[] = [];
+  const xt = f.xLog ? logTicks(x, 10, p.xMarks) : { major: x.ticks(10), minor: [] as number[] };
   for (const t of xt.minor)
     out.push(
       `<line class="grid minor" x1="${x(t).toFixed(1)}" x2="${x(t).toFixed(1)}" y1="${M.top}" y2="${H - M.bottom}"/>`,
@@ -184,8 +216,15 @@ export function svgPlot(p: PlotSpec): string {
       `<text class="tick x-tick" x="${x(t).toFixed(1)}" y="${H - M.bottom + 16}" text-anchor="middle">${xl[i]}</text>`,
     );
   });
+  return out;
+}
+
+/** The y axis's grid lines and tick labels (log: 1-2-5 steps, minor lines between; linear: d3's ticks, zero marked). */
+function yGrid(p: PlotSpec, f: PlotFrame): string[] {
+  const { y } = f;
+  const out: string[] = [];
   if (p.yLog) {
-    const yt = logTicks(y as ScaleContinuousNumeric<number, number>, 8, [], 12);
+    const yt = logTicks(y, 8, [], 12);
     for (const t of yt.minor)
       out.push(
         `<line class="grid minor" x1="${M.left}" x2="${W - M.right}" y1="${y(t).toFixed(1)}" y2="${y(t).toFixed(1)}"/>`,
@@ -211,74 +250,88 @@ export function svgPlot(p: PlotSpec): string {
       );
     });
   }
-  out.push(
+  return out;
+}
+
+/** The frame, both axis labels and the clip path the series are drawn through. */
+function frameAndLabels(p: PlotSpec, f: PlotFrame): string[] {
+  const { H } = f;
+  return [
     `<rect class="frame" x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/>`,
-  );
-  out.push(
     `<text class="axis-label" x="${(M.left + W - M.right) / 2}" y="${H - 8}" text-anchor="middle">${escapeXml(p.xLabel)}</text>`,
-  );
-  out.push(
     `<text class="axis-label" transform="translate(16 ${(M.top + H - M.bottom) / 2}) rotate(-90)" text-anchor="middle">${escapeXml(p.yLabel)}</text>`,
-  );
-  out.push(
     `<clipPath id="${escapeXml(p.id)}-clip"><rect x="${M.left}" y="${M.top}" width="${W - M.left - M.right}" height="${H - M.top - M.bottom}"/></clipPath>`,
-  );
-  out.push(`<g clip-path="url(#${p.id}-clip)">`);
-  for (const s of p.series) {
-    const idx: number[] = [];
-    for (let i = 0; i < s.x.length; i++)
-      if (inX(s.x[i]!) && ok(s.y[i]!) && (s.y2 === undefined || ok(s.y2[i]!))) idx.push(i);
-    let d: string | null;
-    let drawn: number;
-    if (s.markers) {
-      // A small diamond per point: visible in greyscale and where lines overlap. One per tenth of a pixel.
-      const seen = new Set<string>();
-      const marks: string[] = [];
-      for (const i of idx) {
-        const px = x(s.x[i]!).toFixed(1);
-        const py = (clampY(s.y[i]!) - 3.5).toFixed(1);
-        if (seen.has(`${px},${py}`)) continue;
-        seen.add(`${px},${py}`);
-        marks.push(`M${px},${py}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z`);
-      }
-      d = marks.join("");
-      drawn = marks.length;
-    } else if (s.y2 !== undefined) {
-      const pts = thinBand(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!), clampY(s.y2![i]!)] as const));
-      d = area<readonly [number, number, number]>()
-        .x((q) => q[0])
-        .y0((q) => q[1])
-        .y1((q) => q[2])(pts);
-      drawn = pts.length;
-    } else {
-      const pts = thinLine(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!)] as const));
-      d = line<readonly [number, number]>()
-        .x((q) => q[0])
-        .y((q) => q[1])(pts);
-      drawn = pts.length;
+  ];
+}
+
+/** One series as a <path>: markers, a filled band (y to y2) or a line, thinned per pixel column; its drawn and plotted point counts. */
+function seriesPath(s: Series, f: PlotFrame): string {
+  const { x, clampY, ok } = f;
+  const idx: number[] = [];
+  for (let i = 0; i < s.x.length; i++)
+    if (f.inX(s.x[i]!) && ok(s.y[i]!) && (s.y2 === undefined || ok(s.y2[i]!))) idx.push(i);
+  let d: string | null;
+  let drawn: number;
+  if (s.markers) {
+    // A small diamond per point: visible in greyscale and where lines overlap. One per tenth of a pixel.
+    const seen = new Set<string>();
+    const marks: string[] = [];
+    for (const i of idx) {
+      const px = x(s.x[i]!).toFixed(1);
+      const py = (clampY(s.y[i]!) - 3.5).toFixed(1);
+      if (seen.has(`${px},${py}`)) continue;
+      seen.add(`${px},${py}`);
+      marks.push(`M${px},${py}l3.5,3.5l-3.5,3.5l-3.5,-3.5Z`);
     }
-    out.push(
-      `<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${drawn}" d="${d ?? ""}" data-lines="${idx.length}"/>`,
-    );
+    d = marks.join("");
+    drawn = marks.length;
+  } else if (s.y2 !== undefined) {
+    const pts = thinBand(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!), clampY(s.y2![i]!)] as const));
+    d = area<readonly [number, number, number]>()
+      .x((q) => q[0])
+      .y0((q) => q[1])
+      .y1((q) => q[2])(pts);
+    drawn = pts.length;
+  } else {
+    const pts = thinLine(idx.map((i) => [x(s.x[i]!), clampY(s.y[i]!)] as const));
+    d = line<readonly [number, number]>()
+      .x((q) => q[0])
+      .y((q) => q[1])(pts);
+    drawn = pts.length;
   }
-  out.push("</g>");
-  // Horizontal reference lines (an event threshold): dashed across the plot, each with its value for readers and tests.
+  return `<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${drawn}" d="${d ?? ""}" data-lines="${idx.length}"/>`;
+}
+
+/** Horizontal reference lines (an event threshold): dashed across the plot, each with its value for readers and tests. */
+function ruleLines(p: PlotSpec, f: PlotFrame): string[] {
+  const out: string[] = [];
   for (const v of p.rules ?? []) {
-    if (!ok(v) || v < Math.min(...p.yDomain) || v > Math.max(...p.yDomain)) continue;
+    if (!f.ok(v) || v < Math.min(...p.yDomain) || v > Math.max(...p.yDomain)) continue;
     out.push(
-      `<line class="limit rule" data-rule="${v}" x1="${M.left}" x2="${W - M.right}" y1="${y(v).toFixed(1)}" y2="${y(v).toFixed(1)}"/>`,
+      `<line class="limit rule" data-rule="${v}" x1="${M.left}" x2="${W - M.right}" y1="${f.y(v).toFixed(1)}" y2="${f.y(v).toFixed(1)}"/>`,
     );
   }
+  return out;
+}
+
+/** Text at data points (mixed-mode tones), each on a short tick above its point, to its right unless near the right edge. */
+function noteMarks(p: PlotSpec, f: PlotFrame): string[] {
+  const out: string[] = [];
   for (const t of p.notes ?? []) {
-    if (!inX(t.x) || !ok(t.y)) continue;
-    const px = x(t.x);
-    const py = clampY(t.y);
+    if (!f.inX(t.x) || !f.ok(t.y)) continue;
+    const px = f.x(t.x);
+    const py = f.clampY(t.y);
     const right = px < W - M.right - 180;
     out.push(
       `<g class="plot-note" data-note="${escapeXml(t.id)}"><line class="note-tick" x1="${px.toFixed(1)}" x2="${px.toFixed(1)}" y1="${(py - 4).toFixed(1)}" y2="${Math.max(M.top, py - 16).toFixed(1)}"/><text class="note-text" x="${(px + (right ? 3 : -3)).toFixed(1)}" y="${Math.max(M.top + 10, py - 18).toFixed(1)}" text-anchor="${right ? "start" : "end"}">${escapeXml(t.text)}</text></g>`,
     );
   }
-  // Legend.
+  return out;
+}
+
+/** The legend: every labelled series, right-aligned above the plot, a line or a marker for its key. */
+function legend(p: PlotSpec): string[] {
+  const out: string[] = [];
   let lx = W - M.right - 8;
   const items = p.series.filter((s) => s.label !== "").reverse();
   for (const s of items) {
@@ -291,8 +344,7 @@ export function svgPlot(p: PlotSpec): string {
       `<g class="legend">${key}<text class="legend-text" x="${lx + 24}" y="${M.top - 6}">${escapeXml(s.label)}</text></g>`,
     );
   }
-  out.push("</svg>");
-  return out.join("\n");
+  return out;
 }
 
 /** Histogram bars and a curve over a linear x axis. */

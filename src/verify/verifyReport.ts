@@ -10,7 +10,7 @@ import { DERIVE_STYLE } from "../report/deriveHtml.js";
 import { EXTRA_STYLE as RESPOND_STYLE } from "../report/responseHtml.js";
 import { RIDE_STYLE } from "../report/rideHtml.js";
 import { EXTRA_STYLE as TRANSFER_STYLE } from "../report/transferHtml.js";
-import { extractResult } from "../report/embeddedResult.js";
+import { type ExtractedResult, extractResult } from "../report/embeddedResult.js";
 import { foreignContent, scanPage, shownVerdict } from "./pageScan.js";
 import { isFrameStyle, PEAK_HOLD_STYLE } from "../report/reportPage.js";
 import { psdJson } from "../report/psdJson.js";
@@ -219,6 +219,33 @@ function locate(given: string | undefined, recorded: string, report: string): { 
   return { looked: [...new Set([beside, recorded])] };
 }
 
+/** The document embedded in a record, as verify reads it. */
+interface RecordEnvelope {
+  kind?: RecordKind;
+  created?: string;
+  rerun?: Record<string, unknown> | null;
+  meta?: TestMeta | null;
+  result?: Record<string, unknown>;
+}
+
+/** The fields of a result verify reads before it knows the kind (a check's, psd's or shock's inputs and verdict). */
+interface AnalysisResult {
+  verdict?: string;
+  input?: { file: string; sha256: string };
+  profile?: { file: string; sha256: string };
+  tool?: { version?: string };
+}
+
+/** An input looked for and hashed: where it was found (none when missing); false only for another SHA-256. */
+interface FoundInput {
+  path?: string;
+  ok: boolean;
+}
+
+/** A check, psd or shock record that names its input and how it was analysed. */
+type AnalysisDoc = RecordEnvelope & { kind: "check" | "psd" | "shock"; rerun: Record<string, unknown> };
+
+/** Verify one report: its digests and page, then by its kind its inputs by SHA-256 and its analysis re-run. */
 export async function verifyReport(report: string, options: VerifyOptions): Promise<VerifyResult> {
   const html = (
     await readSmallText(report, {
@@ -229,13 +256,12 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   ).text;
   const tol = options.tolerance ?? 1e-9;
   const steps: VerifyStep[] = [];
-  const missing: string[] = [];
   const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
     status,
     report,
     steps,
     differences: [],
-    missing,
+    missing: [],
     compared: 0,
     ...extra,
   });
@@ -254,41 +280,9 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     steps.push({ step: "result", ok: false, text: "the embedded result is not valid JSON (edited)" });
     return done("differs");
   }
-  const doc = x.doc as {
-    kind?: RecordKind;
-    created?: string;
-    rerun?: Record<string, unknown> | null;
-    meta?: TestMeta | null;
-    result?: Record<string, unknown>;
-  };
-  const result = (doc.result ?? {}) as {
-    verdict?: string;
-    input?: { file: string; sha256: string };
-    profile?: { file: string; sha256: string };
-    tool?: { version?: string };
-  };
-  steps.push({
-    step: "result",
-    ok: x.resultIntact,
-    text: x.resultIntact
-      ? "embedded result intact (its SHA-256 matches)"
-      : "embedded result edited (its SHA-256 does not match)",
-  });
-  const pageProblem = pageCheck(
-    html,
-    doc.kind,
-    doc.kind === "batch" ? batchVerdict(result as BatchDoc) : result.verdict,
-  );
-  steps.push({
-    step: "page",
-    ok: x.pageIntact && pageProblem === undefined,
-    text:
-      pageProblem !== undefined
-        ? `${pageProblem} (edited)`
-        : x.pageIntact
-          ? "page intact (its SHA-256 matches the one in the result)"
-          : "page edited outside the result (its SHA-256 does not match the one recorded)",
-  });
+  const doc = x.doc as RecordEnvelope;
+  const result = (doc.result ?? {}) as AnalysisResult;
+  steps.push(...integritySteps(html, x, doc, result));
   const missingField = requiredMissing(doc.kind, result as Record<string, unknown>);
   if (missingField !== undefined) {
     steps.push({
@@ -311,49 +305,59 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     });
     return done("differs", { kind: undefined });
   }
-  let inputsOk = true;
-  const rec = locate(options.recording, result.input.file, report);
-  if (!rec.path)
-    missing.push(
-      `recording ${basename(result.input.file)} (looked for ${rec.looked.join(", ")}; give it as \`recording\`)`,
-    );
-  else {
-    const ok =
-      (await sha256File(
-        rec.path,
-        "a readable recording",
-        options.recording !== undefined ? "recording" : undefined,
-      )) === result.input.sha256;
-    inputsOk &&= ok;
-    steps.push({
-      step: "recording",
-      ok,
-      text: `${rec.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.input.sha256.slice(0, 12)}… (another or a changed file)`}`,
-    });
-  }
-  let prof: { path?: string; looked: string[] } = { looked: [] };
-  if (doc.kind === "check") {
-    if (!result.profile) return done("differs", { kind: doc.kind });
-    prof = locate(options.profile, result.profile.file, report);
-    if (!prof.path)
-      missing.push(
-        `profile ${basename(result.profile.file)} (looked for ${prof.looked.join(", ")}; give it as \`profile\`)`,
-      );
-    else {
-      const ok =
-        (await sha256File(
-          prof.path,
-          "a readable profile file",
-          options.profile !== undefined ? "profile" : undefined,
-        )) === result.profile.sha256;
-      inputsOk &&= ok;
-      steps.push({
-        step: "profile",
-        ok,
-        text: `${prof.path}: ${ok ? "SHA-256 matches" : `SHA-256 differs from the recorded ${result.profile.sha256.slice(0, 12)}… (another or a changed file)`}`,
-      });
-    }
-  }
+  return verifyAnalysis(report, doc as AnalysisDoc, result, steps, tol, options);
+}
+
+/** The result's and the page's steps: both digests, and the page as psdgate writes it (its verdict banner the result's). */
+function integritySteps(html: string, x: ExtractedResult, doc: RecordEnvelope, result: AnalysisResult): VerifyStep[] {
+  const pageProblem = pageCheck(
+    html,
+    doc.kind,
+    doc.kind === "batch" ? batchVerdict(result as BatchDoc) : result.verdict,
+  );
+  return [
+    {
+      step: "result",
+      ok: x.resultIntact,
+      text: x.resultIntact
+        ? "embedded result intact (its SHA-256 matches)"
+        : "embedded result edited (its SHA-256 does not match)",
+    },
+    {
+      step: "page",
+      ok: x.pageIntact && pageProblem === undefined,
+      text:
+        pageProblem !== undefined
+          ? `${pageProblem} (edited)`
+          : x.pageIntact
+            ? "page intact (its SHA-256 matches the one in the result)"
+            : "page edited outside the result (its SHA-256 does not match the one recorded)",
+    },
+  ];
+}
+
+/** A check, psd or shock record: its recording (and a check's profile) by SHA-256, then its analysis re-run and every number compared. */
+async function verifyAnalysis(
+  report: string,
+  doc: AnalysisDoc,
+  result: AnalysisResult,
+  steps: VerifyStep[],
+  tol: number,
+  options: VerifyOptions,
+): Promise<VerifyResult> {
+  const missing: string[] = [];
+  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
+    status,
+    report,
+    steps,
+    differences: [],
+    missing,
+    compared: 0,
+    ...extra,
+  });
+  const found = await analysisInputs(report, doc, result, options, steps, missing);
+  if (!found) return done("differs", { kind: doc.kind });
+  const { rec, prof, inputsOk } = found;
   const intact = steps.every((s) => s.ok);
   if (missing.length > 0) return done(intact ? "missing" : "differs", { kind: doc.kind });
   if (!inputsOk) {
@@ -361,20 +365,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     return done("differs", { kind: doc.kind });
   }
   const version = result.tool?.version ?? "?";
-  const meta = doc.meta ?? undefined;
-  let now: unknown;
-  if (doc.kind === "check") {
-    const profile = await loadProfile(prof.path!);
-    const r = await checkRecording(rec.path!, profile, doc.rerun as CheckOptions);
-    now = checkJson(r, version, meta);
-  } else if (doc.kind === "shock") {
-    // A shock record: the events and spectra re-run from the recorded options (two reads of the recording).
-    const { shockRecording } = await import("../analyses/shockRecording.js");
-    const { shockJson } = await import("../report/shockReport.js");
-    now = shockJson(await shockRecording(rec.path!, doc.rerun as never), version);
-  } else {
-    now = psdJson(await analyzeRecording(rec.path!, doc.rerun as AnalysisOptions), version, meta);
-  }
+  const now = await rerunAnalysis(doc, rec.path!, prof.path, version);
   const cmp = compareResults(doc.result, now, tol, "", undefined, { olderReport: version !== options.version });
   const again = (now as { verdict?: string }).verdict;
   const sameVersion = version === options.version;
@@ -396,6 +387,74 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     missing,
     compared: cmp.compared,
   };
+}
+
+/**
+ * A check, psd or shock record's inputs located and hashed (the recording, and a check's profile), each step or
+ * miss recorded; undefined for a check record that names no profile.
+ */
+async function analysisInputs(
+  report: string,
+  doc: AnalysisDoc,
+  result: AnalysisResult,
+  options: VerifyOptions,
+  steps: VerifyStep[],
+  missing: string[],
+): Promise<{ rec: FoundInput; prof: FoundInput; inputsOk: boolean } | undefined> {
+  const input = result.input!;
+  const rec = await hashedInput(
+    report,
+    {
+      given: options.recording,
+      option: "recording",
+      file: input.file,
+      sha256: input.sha256,
+      step: "recording",
+      name: "recording",
+      hint: "; give it as `recording`",
+      what: "a readable recording",
+    },
+    steps,
+    missing,
+  );
+  let inputsOk = rec.ok;
+  let prof: FoundInput = { ok: true };
+  if (doc.kind === "check") {
+    if (!result.profile) return undefined;
+    prof = await hashedInput(
+      report,
+      {
+        given: options.profile,
+        option: "profile",
+        file: result.profile.file,
+        sha256: result.profile.sha256,
+        step: "profile",
+        name: "profile",
+        hint: "; give it as `profile`",
+        what: "a readable profile file",
+      },
+      steps,
+      missing,
+    );
+    inputsOk &&= prof.ok;
+  }
+  return { rec, prof, inputsOk };
+}
+
+/** The result a check, psd or shock record's rerun options give on the inputs found: the same function the command printed it with. */
+async function rerunAnalysis(doc: AnalysisDoc, recording: string, profile: string | undefined, version: string) {
+  const meta = doc.meta ?? undefined;
+  if (doc.kind === "check") {
+    const r = await checkRecording(recording, await loadProfile(profile!), doc.rerun as CheckOptions);
+    return checkJson(r, version, meta);
+  }
+  if (doc.kind === "shock") {
+    // A shock record: the events and spectra re-run from the recorded options (two reads of the recording).
+    const { shockRecording } = await import("../analyses/shockRecording.js");
+    const { shockJson } = await import("../report/shockReport.js");
+    return shockJson(await shockRecording(recording, doc.rerun as never), version);
+  }
+  return psdJson(await analyzeRecording(recording, doc.rerun as AnalysisOptions), version, meta);
 }
 
 /**
@@ -453,6 +512,8 @@ async function hashedInput(
     label?: string;
     hint?: string;
     what?: string;
+    /** The option that gave the file, named in an error reading it (only when `given` is set). */
+    option?: string;
   },
   steps: VerifyStep[],
   missing: string[],
@@ -462,7 +523,8 @@ async function hashedInput(
     missing.push(`${i.name} ${basename(i.file)} (looked for ${at.looked.join(", ")}${i.hint ?? ""})`);
     return { ok: true };
   }
-  const ok = (await sha256File(at.path, i.what ?? "a readable file", undefined)) === i.sha256;
+  const ok =
+    (await sha256File(at.path, i.what ?? "a readable file", i.given !== undefined ? i.option : undefined)) === i.sha256;
   steps.push({
     step: i.step,
     ok,
