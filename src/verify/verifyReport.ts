@@ -1,4 +1,5 @@
 import { basename, dirname, join } from "node:path";
+import { EARLIER_WORDINGS } from "./earlierWordings.js";
 import { analyzeRecording, type AnalysisOptions } from "../pass/analyzeRecording.js";
 import { checkRecording, loadProfile, type CheckOptions } from "../analyses/checkRecording.js";
 import { InputError } from "../errors.js";
@@ -69,6 +70,14 @@ const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[
  */
 const ADDED_LATER = [/^analysis$/, /(^|\.)\w*[fF]indings\[\]\.values$/, /^profile\.(provenance|origin)$/];
 
+/** What compareResults found: the differences, the numbers compared, fields only a later psdgate writes, fields in an earlier wording (EARLIER_WORDINGS). */
+export interface ComparedResults {
+  diffs: string[];
+  compared: number;
+  added: string[];
+  reworded: string[];
+}
+
 export interface CompareOptions {
   /** The report was made by another psdgate version: a field in ADDED_LATER that only the re-run has is listed, not a difference. */
   olderReport?: boolean | undefined;
@@ -85,7 +94,7 @@ export function compareResults(
   now: unknown,
   tolerance: number,
   path = "",
-  out: { diffs: string[]; compared: number; added: string[] } = { diffs: [], compared: 0, added: [] },
+  out: ComparedResults = { diffs: [], compared: 0, added: [], reworded: [] },
   opts: CompareOptions = { olderReport: true },
 ) {
   if (IGNORED.has(path) || IGNORED_PATTERN.test(path)) return out;
@@ -117,16 +126,23 @@ export function compareResults(
         opts,
       );
   } else if (recorded !== now) {
+    if (typeof recorded === "string" && typeof now === "string" && EARLIER_WORDINGS[path]?.includes(recorded)) {
+      out.reworded.push(path);
+      return out;
+    }
     add(`${path}: recorded ${JSON.stringify(recorded)?.slice(0, 60)}, re-run ${JSON.stringify(now)?.slice(0, 60)}`);
   }
   return out;
 }
 
-/** The fields a later psdgate adds, named once each (array indices folded), for the re-run's line. */
-function addedNote(added: string[]): string {
-  if (added.length === 0) return "";
-  const names = [...new Set(added.map((p) => p.replace(/\[\d+\]/g, "[]")))];
-  return `; not in the report, so not compared (added by a later psdgate than the report's): ${names.slice(0, 6).join(", ")}${names.length > 6 ? ` and ${names.length - 6} more` : ""}`;
+/** The fields a later psdgate adds, named once each (array indices folded), and those in an earlier wording, for the re-run's line. */
+function addedNote(cmp: ComparedResults): string {
+  const reworded = cmp.reworded.length
+    ? `; in an earlier wording of the same rule, so not compared as text: ${cmp.reworded.join(", ")}`
+    : "";
+  if (cmp.added.length === 0) return reworded;
+  const names = [...new Set(cmp.added.map((p) => p.replace(/\[\d+\]/g, "[]")))];
+  return `; not in the report, so not compared (added by a later psdgate than the report's): ${names.slice(0, 6).join(", ")}${names.length > 6 ? ` and ${names.length - 6} more` : ""}${reworded}`;
 }
 
 /** The fields each kind of record must hold: its verdict (where it has one) and the evidence for it. */
@@ -374,7 +390,7 @@ async function verifyAnalysis(
     ok: cmp.diffs.length === 0,
     text:
       cmp.diffs.length === 0
-        ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
+        ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp)}`
         : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
   });
   const status: VerifyStatus = steps.every((s) => s.ok) ? "reproduced" : "differs";
@@ -625,7 +641,7 @@ async function verifyDerivation(
     ok: cmp.diffs.length === 0,
     text:
       cmp.diffs.length === 0
-        ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp.added)}`
+        ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp)}`
         : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
   });
   return done(steps.every((s) => s.ok) ? "reproduced" : "differs", {
@@ -758,7 +774,7 @@ async function verifyRecord(
     ok: cmp.diffs.length === 0,
     text:
       cmp.diffs.length === 0
-        ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp.added)}`
+        ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp)}`
         : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
   });
   return done(steps.every((s) => s.ok) ? "reproduced" : "differs", {

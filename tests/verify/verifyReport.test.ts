@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { EARLIER_WORDINGS } from "../../src/verify/earlierWordings.js";
 import { compareResults } from "../../src/verify/verifyReport.js";
 
 describe("compareResults", () => {
@@ -49,5 +50,19 @@ describe("compareResults", () => {
     expect(compareResults(noAnalysis, now, 1e-9, "", undefined, { olderReport: false }).diffs).toEqual([
       'analysis: not in the report, re-run {"a":1}',
     ]);
+  });
+});
+
+describe("a record in an earlier wording of a rule", () => {
+  it("verifies: the field is listed as reworded, not a difference; any other text still differs", () => {
+    const now = { rule: { summary: "the rule as worded now", falseFailBound: 0.05 } };
+    const older = { rule: { summary: EARLIER_WORDINGS["rule.summary"]![0]!, falseFailBound: 0.05 } };
+    const c = compareResults(older, now, 1e-9);
+    expect(c.diffs).toEqual([]);
+    expect(c.reworded).toEqual(["rule.summary"]);
+    const edited = compareResults({ rule: { summary: "any other text", falseFailBound: 0.05 } }, now, 1e-9);
+    expect(edited.diffs).toEqual(['rule.summary: recorded "any other text", re-run "the rule as worded now"']);
+    // An earlier wording is accepted only where it was written.
+    expect(compareResults({ note: EARLIER_WORDINGS["rule.summary"]![0]! }, { note: "x" }, 1e-9).diffs.length).toBe(1);
   });
 });
