@@ -4,10 +4,10 @@ import * as psdgate from "../src/index.js";
 
 describe("index.ts: the library, one name per line", () => {
   const source = readFileSync("src/index.ts", "utf8");
-  it("every export block lists one name per line", () => {
+  it("every export block lists one name per line (a block of one name may stand on one line, as the formatter puts it)", () => {
     const crowded = source
       .split("\n")
-      .filter((l) => /^export (type )?\{.*\w.*\}/.test(l) || /^\s+(type )?\w+,\s*(type )?\w/.test(l));
+      .filter((l) => /^export (type )?\{[^}]*,[^}]*\}/.test(l) || /^\s+(type )?\w+,\s*(type )?\w/.test(l));
     expect(crowded).toEqual([]);
   });
   it("offers README's library example and the main jobs, and no internals", () => {

@@ -630,16 +630,8 @@ function serviceShare(o: DeriveOptions, analysed: { r: FieldRecordingInput; a: R
   return { groupTime, groupDur, lifeS };
 }
 
-export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
-  const { q, b, nMax, margin, perOctave, coverage, confidence, extremeLimit, sn } = deriveSettings(o);
-  // 1. Each recording's PSD, one channel, on one resolution, in one unit.
-  const { channel, base, analysed, first, df } = await analyseField(o);
-  const { lines, frequencyHz, fromHz, toHz, fnHz, units, toSi } = fieldBand(o, analysed, perOctave, df);
-  // 2. Service share: each group's time split among its recordings by their analysed durations.
-  const { groupTime, groupDur, lifeS } = serviceShare(o, analysed);
-  const n = fnHz.length;
-  // The field's damage in time (fieldDamage "time"): per recording, the rainflow damage per second of record and a function
-  // giving its largest response grown to a service time (Davenport's factor at nu0+ T over the one at nu0+ T_record, nu0+ from the PSD).
+/** The `fieldDamage` option checked: where the field's FDS and ERS come from ("psd" unless "time" is given). */
+function fieldDamageMode(o: DeriveOptions): "psd" | "time" {
   const fieldDamage = o.fieldDamage ?? "psd";
   if (fieldDamage !== "psd" && fieldDamage !== "time")
     throw new InputError("OPTION_INVALID", {
@@ -647,100 +639,138 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       expected: "psd or time",
       received: String(fieldDamage),
     });
-  const timeDamage =
-    fieldDamage === "time"
-      ? await fieldTimeDamage(analysed, base, channel, { fromHz, toHz }, fnHz, q, sn)
-      : new Map<string, TimeDamage>();
-  let timeNote: Finding | undefined;
-  if (fieldDamage === "time") {
-    timeNote = { code: "FIELD_DAMAGE_IN_TIME", values: {} };
-  }
-  const fieldFatigue = new Float64Array(n);
-  const fieldExtreme = new Float64Array(n);
-  const mean = new Float64Array(lines);
-  const envelope = new Float64Array(lines);
-  const notes: Finding[] = [];
-  const candidateTones: DeriveResult["candidateTones"] = [];
-  if (timeNote) notes.push(timeNote);
-  const recordings: FieldRecordingResult[] = analysed.map(({ r, a, c }) => {
-    const durationS = a.window.frames / a.input.sampleRateHz;
-    const serviceS = (groupTime.get(r.group) ?? 0) * (durationS / groupDur.get(r.group)!);
-    const psd = c.psd.psd.slice(0, lines);
-    // No figures from no data: a recording with no vibration in the band (all zero, constant) has no damage to cover.
-    let inBand = 0;
-    for (let k = 0; k < lines; k++)
-      if (frequencyHz[k]! >= fromHz && frequencyHz[k]! <= toHz && psd[k]! > 0 && Number.isFinite(psd[k]!)) inBand++;
-    if (inBand === 0) {
-      throw new InputError("NO_VIBRATION", {
-        file: r.file,
-        expected: `vibration between ${fromHz} and ${toHz} Hz to derive a profile from`,
-        received: "a PSD of zero at every line in the band (a recording that is all zero or constant)",
-      });
-    }
-    // Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around it.
-    const reach =
-      Math.ceil(
-        spectralKernel(
-          a.settings.window,
-          spectralWindow(a.settings.window, a.settings.segmentLength),
-          a.settings.detrend,
-        ).halfWidthBins,
-      ) + 1;
-    for (const t of c.tones) {
-      if (t.frequencyHz < fromHz || t.frequencyHz > toHz) continue;
-      candidateTones.push({
-        file: r.file,
-        frequencyHz: t.frequencyHz,
-        peak: t.peak,
-        aboveBackgroundDb: t.aboveBackgroundDb,
-      });
-      const k0 = Math.round(t.frequencyHz / df);
-      for (let k = Math.max(1, k0 - reach); k <= Math.min(lines - 1, k0 + reach); k++)
-        psd[k] = Math.min(psd[k]!, t.backgroundDensity);
-    }
-    const ds0 = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), {
-      fnHz,
-      q,
-      durationS: serviceS,
-      sn,
-      toSi,
+  return fieldDamage;
+}
+
+/** A recording as step 1 analysed it: its input, its analysis and its one channel. */
+type AnalysedRecording = { r: FieldRecordingInput; a: RecordingAnalysis; c: RecordingAnalysis["channels"][number] };
+
+/** What each recording's step 2 shares: the lines and band, the grid, the S-N curve, the service split and the damage in time. */
+interface FieldContext {
+  lines: number;
+  frequencyHz: Float64Array;
+  df: number;
+  fromHz: number;
+  toHz: number;
+  fnHz: Float64Array;
+  q: number;
+  sn: SnCurve;
+  toSi: number;
+  groupTime: Map<string, number>;
+  groupDur: Map<string, number>;
+  lifeS: number;
+  timeDamage: Map<string, TimeDamage>;
+}
+
+/** The field's sums, filled recording by recording: FDS, ERS, service-weighted mean PSD, envelope, notes and candidate tones. */
+interface FieldSums {
+  fieldFatigue: Float64Array;
+  fieldExtreme: Float64Array;
+  mean: Float64Array;
+  envelope: Float64Array;
+  notes: Finding[];
+  candidateTones: DeriveResult["candidateTones"];
+}
+
+/** No figures from no data: a recording with no vibration in the band (all zero, constant) has no damage to cover. */
+function refuseSilentRecording(file: string, psd: Float64Array, g: FieldContext): void {
+  const { lines, frequencyHz, fromHz, toHz } = g;
+  let inBand = 0;
+  for (let k = 0; k < lines; k++)
+    if (frequencyHz[k]! >= fromHz && frequencyHz[k]! <= toHz && psd[k]! > 0 && Number.isFinite(psd[k]!)) inBand++;
+  if (inBand === 0) {
+    throw new InputError("NO_VIBRATION", {
+      file,
+      expected: `vibration between ${fromHz} and ${toHz} Hz to derive a profile from`,
+      received: "a PSD of zero at every line in the band (a recording that is all zero or constant)",
     });
-    const timeFigures = timeDamage.get(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""));
-    const ds = timeFigures
-      ? { damage: timeFigures.damage.map((d) => d * serviceS), extreme: timeFigures.extreme(serviceS) }
-      : ds0;
-    for (let i = 0; i < n; i++) {
-      fieldFatigue[i] = fieldFatigue[i]! + ds.damage[i]!;
-      fieldExtreme[i] = Math.max(fieldExtreme[i]!, ds.extreme[i]!);
-    }
-    for (let k = 0; k < lines; k++) {
-      mean[k] = mean[k]! + (psd[k]! * serviceS) / lifeS;
-      envelope[k] = Math.max(envelope[k]!, psd[k]!);
-    }
-    const note = stationarityNote(c.stationarity);
-    if (note) notes.push({ ...note, about: { file: r.file } });
-    if (c.reading.fullScaleAssumed)
-      notes.push({ code: "FULL_SCALE_ASSUMED", values: {}, about: { file: r.file, unit: c.reading.fileUnit } });
-    return {
+  }
+}
+
+/** Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around it (psd changed in place). */
+function removeFieldTones(
+  { r, a, c }: AnalysedRecording,
+  psd: Float64Array,
+  g: FieldContext,
+  candidateTones: DeriveResult["candidateTones"],
+): void {
+  const { lines, fromHz, toHz, df } = g;
+  const reach =
+    Math.ceil(
+      spectralKernel(a.settings.window, spectralWindow(a.settings.window, a.settings.segmentLength), a.settings.detrend)
+        .halfWidthBins,
+    ) + 1;
+  for (const t of c.tones) {
+    if (t.frequencyHz < fromHz || t.frequencyHz > toHz) continue;
+    candidateTones.push({
       file: r.file,
-      sha256: a.input.sha256,
-      group: r.group,
-      channel: c.name,
-      durationS,
-      serviceS,
-      sampleRateHz: a.input.sampleRateHz,
-      dof: c.psd.dof,
-      averages: c.psd.averages,
-      bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz),
-      stationary: c.stationarity.tested ? c.stationarity.stationary : undefined,
-      stationarityNote: note,
-      psd,
-      damage: ds.damage,
-      extreme: ds.extreme,
-      fromPsd: timeFigures ? { damage: ds0.damage, extreme: ds0.extreme, kurtosis: c.stats.kurtosis } : undefined,
-    };
+      frequencyHz: t.frequencyHz,
+      peak: t.peak,
+      aboveBackgroundDb: t.aboveBackgroundDb,
+    });
+    const k0 = Math.round(t.frequencyHz / df);
+    for (let k = Math.max(1, k0 - reach); k <= Math.min(lines - 1, k0 + reach); k++)
+      psd[k] = Math.min(psd[k]!, t.backgroundDensity);
+  }
+}
+
+/** Step 2 for one recording: its service time, its PSD without field tones, its damage and largest response (added to the field's sums), its notes. */
+function fieldRecording(x: AnalysedRecording, g: FieldContext, sums: FieldSums): FieldRecordingResult {
+  const { r, a, c } = x;
+  const { lines, frequencyHz, fromHz, toHz, fnHz, lifeS, df } = g;
+  const n = fnHz.length;
+  const durationS = a.window.frames / a.input.sampleRateHz;
+  const serviceS = (g.groupTime.get(r.group) ?? 0) * (durationS / g.groupDur.get(r.group)!);
+  const psd = c.psd.psd.slice(0, lines);
+  refuseSilentRecording(r.file, psd, g);
+  removeFieldTones(x, psd, g, sums.candidateTones);
+  const ds0 = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, psd, fromHz, toHz), fromHz, toHz), {
+    fnHz,
+    q: g.q,
+    durationS: serviceS,
+    sn: g.sn,
+    toSi: g.toSi,
   });
+  const timeFigures = g.timeDamage.get(r.file + "\u0000" + (r.fromS ?? "") + "\u0000" + (r.toS ?? ""));
+  const ds = timeFigures
+    ? { damage: timeFigures.damage.map((d) => d * serviceS), extreme: timeFigures.extreme(serviceS) }
+    : ds0;
   for (let i = 0; i < n; i++) {
+    sums.fieldFatigue[i] = sums.fieldFatigue[i]! + ds.damage[i]!;
+    sums.fieldExtreme[i] = Math.max(sums.fieldExtreme[i]!, ds.extreme[i]!);
+  }
+  for (let k = 0; k < lines; k++) {
+    sums.mean[k] = sums.mean[k]! + (psd[k]! * serviceS) / lifeS;
+    sums.envelope[k] = Math.max(sums.envelope[k]!, psd[k]!);
+  }
+  const note = stationarityNote(c.stationarity);
+  if (note) sums.notes.push({ ...note, about: { file: r.file } });
+  if (c.reading.fullScaleAssumed)
+    sums.notes.push({ code: "FULL_SCALE_ASSUMED", values: {}, about: { file: r.file, unit: c.reading.fileUnit } });
+  return {
+    file: r.file,
+    sha256: a.input.sha256,
+    group: r.group,
+    channel: c.name,
+    durationS,
+    serviceS,
+    sampleRateHz: a.input.sampleRateHz,
+    dof: c.psd.dof,
+    averages: c.psd.averages,
+    bandRms: bandRms({ psd, frequencyHz, lineSpacingHz: df }, fromHz, toHz),
+    stationary: c.stationarity.tested ? c.stationarity.stationary : undefined,
+    stationarityNote: note,
+    psd,
+    damage: ds.damage,
+    extreme: ds.extreme,
+    fromPsd: timeFigures ? { damage: ds0.damage, extreme: ds0.extreme, kurtosis: c.stats.kurtosis } : undefined,
+  };
+}
+
+/** The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named. */
+function checkFieldDamage(sums: FieldSums, fnHz: Float64Array, lifeS: number): void {
+  const { fieldFatigue, fieldExtreme } = sums;
+  for (let i = 0; i < fnHz.length; i++) {
     if (
       !(
         fieldFatigue[i]! > 0 &&
@@ -757,17 +787,30 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       });
     }
   }
-  if (candidateTones.length > 0) {
-    notes.push({ code: "FIELD_TONES", values: { tones: candidateTones.length } });
-  }
-  const groups = o.groups.map((g) => {
+}
+
+/** Each group's share of the field's damage, per natural frequency. */
+function groupShares(
+  groups: DeriveOptions["groups"],
+  recordings: FieldRecordingResult[],
+  fieldFatigue: Float64Array,
+): DeriveResult["groups"] {
+  const n = fieldFatigue.length;
+  return groups.map((g) => {
     const share = new Float64Array(n);
     for (const r of recordings)
       if (r.group === g.name) for (let i = 0; i < n; i++) share[i] = share[i]! + r.damage[i]! / fieldFatigue[i]!;
     return { name: g.name, serviceS: g.serviceS, damageShare: share };
   });
+}
 
-  // 3. The statistical upper limit across recordings.
+/** Step 3: the statistical upper limit across recordings, or why there is none (a note). */
+function fieldTolerance(
+  recordings: FieldRecordingResult[],
+  coverage: number,
+  confidence: number,
+  notes: Finding[],
+): DeriveResult["tolerance"] {
   const tl = logToleranceLimit(
     recordings.map((r) => r.psd),
     coverage,
@@ -779,28 +822,56 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
   };
   const tolerance = tl ?? { n: recordings.length, coverage, confidence, missing };
   if (!tl) notes.push(missing);
+  return tolerance;
+}
 
-  // 4. The profile: fit against the field's damage times the margin, over the test duration.
-  const { fit, test } = fitProfile({
-    fieldFatigue,
-    mean,
-    frequencyHz,
-    fnHz,
-    fromHz,
-    toHz,
-    perOctave,
-    margin,
-    q,
-    b,
-    sn,
-    toSi,
-    nMax,
-    lifeS,
-    testDurationS: o.testDurationS,
-  });
-  const testSpectra = damageSpectra(powerLawSpectrum(segmentsOf(fit.points)), test);
-  const testFatigue = testSpectra.damage;
-  const extremeRatio = testSpectra.extreme.map((v, i) => v / fieldExtreme[i]!);
+/** Steps 1 to 3: the recordings analysed, the band and grid, the service share, each recording's figures, the field's sums, the groups' shares and the tolerance limit. */
+async function fieldFigures(o: DeriveOptions, settings: ReturnType<typeof deriveSettings>) {
+  const { q, perOctave, coverage, confidence, sn } = settings;
+  // 1. Each recording's PSD, one channel, on one resolution, in one unit.
+  const { channel, base, analysed, first, df } = await analyseField(o);
+  const band = fieldBand(o, analysed, perOctave, df);
+  const { lines, fromHz, toHz, fnHz } = band;
+  // 2. Service share: each group's time split among its recordings by their analysed durations.
+  const { groupTime, groupDur, lifeS } = serviceShare(o, analysed);
+  const n = fnHz.length;
+  // The field's damage in time (fieldDamage "time"): per recording, the rainflow damage per second of record and a function
+  // giving its largest response grown to a service time (Davenport's factor at nu0+ T over the one at nu0+ T_record, nu0+ from the PSD).
+  const fieldDamage = fieldDamageMode(o);
+  const timeDamage =
+    fieldDamage === "time"
+      ? await fieldTimeDamage(analysed, base, channel, { fromHz, toHz }, fnHz, q, sn)
+      : new Map<string, TimeDamage>();
+  const sums: FieldSums = {
+    fieldFatigue: new Float64Array(n),
+    fieldExtreme: new Float64Array(n),
+    mean: new Float64Array(lines),
+    envelope: new Float64Array(lines),
+    notes: fieldDamage === "time" ? [{ code: "FIELD_DAMAGE_IN_TIME", values: {} }] : [],
+    candidateTones: [],
+  };
+  const context: FieldContext = { ...band, df, q, sn, groupTime, groupDur, lifeS, timeDamage };
+  const recordings = analysed.map((x) => fieldRecording(x, context, sums));
+  checkFieldDamage(sums, fnHz, lifeS);
+  if (sums.candidateTones.length > 0) {
+    sums.notes.push({ code: "FIELD_TONES", values: { tones: sums.candidateTones.length } });
+  }
+  const groups = groupShares(o.groups, recordings, sums.fieldFatigue);
+  // 3. The statistical upper limit across recordings.
+  const tolerance = fieldTolerance(recordings, coverage, confidence, sums.notes);
+  return { channel, base, analysed, first, df, ...band, lifeS, fieldDamage, recordings, groups, tolerance, ...sums };
+}
+
+/** Where the test's expected largest response exceeds the field's by more than `extremeLimit` (a note when anywhere). */
+function extremeCheck(
+  testExtreme: Float64Array,
+  fieldExtreme: Float64Array,
+  fnHz: Float64Array,
+  extremeLimit: number,
+  notes: Finding[],
+) {
+  const n = fnHz.length;
+  const extremeRatio = testExtreme.map((v, i) => v / fieldExtreme[i]!);
   const extremeWarnings = [...fnHz].filter((_, i) => extremeRatio[i]! > extremeLimit);
   if (extremeWarnings.length) {
     notes.push({
@@ -809,12 +880,23 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       about: { every: extremeWarnings.length === n, frequenciesHz: extremeWarnings },
     });
   }
+  return { extremeRatio, extremeWarnings };
+}
 
-  // 4b. The field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
-  // spectra of the whole records, which keep the shocks a Gaussian PSD hides) beside the random test's ERS. Where the test falls
-  // short, the random test does not reach the field's shocks and a shock test is needed for them.
-  const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(analysed, base, channel, fnHz, q);
-  const shortfallHz = [...fnHz].filter((_, i) => testSpectra.extreme[i]! < fieldSrs[i]!);
+/**
+ * Step 4b: the field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
+ * spectra of the whole records, which keep the shocks a Gaussian PSD hides) beside the random test's ERS. Where the test falls
+ * short, the random test does not reach the field's shocks and a shock test is needed for them (a note).
+ */
+async function fieldShocks(
+  f: { analysed: AnalysedRecording[]; base: AnalysisOptions; channel: ChannelName; fnHz: Float64Array },
+  q: number,
+  testExtreme: Float64Array,
+  notes: Finding[],
+): Promise<FieldShocks> {
+  const { fnHz } = f;
+  const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(f.analysed, f.base, f.channel, fnHz, q);
+  const shortfallHz = [...fnHz].filter((_, i) => testExtreme[i]! < fieldSrs[i]!);
   if (shortfallHz.length) {
     notes.push({
       code: "SHOCK_TEST_NEEDED",
@@ -822,28 +904,38 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       about: { frequenciesHz: shortfallHz },
     });
   }
-  const shocks: FieldShocks = { fieldSrs, largestEvents: events.slice(0, 5), eventsPerRecording, shortfallHz };
+  return { fieldSrs, largestEvents: events.slice(0, 5), eventsPerRecording, shortfallHz };
+}
+
+export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
+  const settings = deriveSettings(o);
+  const { q, b, nMax, margin, perOctave, coverage, confidence, extremeLimit, sn } = settings;
+  // 1 to 3. The field: its recordings' PSDs, their service share and damage, the field's sums and tolerance limit.
+  const f = await fieldFigures(o, settings);
+  const { units, lifeS, frequencyHz, df, fromHz, toHz, fnHz, mean, fieldFatigue, fieldExtreme, notes } = f;
+
+  // 4. The profile: fit against the field's damage times the margin, over the test duration.
+  const { fit, test } = fitProfile({ ...f, perOctave, margin, q, b, sn, nMax, testDurationS: o.testDurationS });
+  const testSpectra = damageSpectra(powerLawSpectrum(segmentsOf(fit.points)), test);
+  const testFatigue = testSpectra.damage;
+  const { extremeRatio, extremeWarnings } = extremeCheck(testSpectra.extreme, fieldExtreme, fnHz, extremeLimit, notes);
+
+  // 4b. The field's shocks against the test's largest response.
+  const shocks = await fieldShocks(f, q, testSpectra.extreme, notes);
 
   // 5. The profile document: tolerances, DOF, resolution, duration and provenance.
   const document = profileDocumentOf(o, {
-    lifeS,
+    ...f,
     q,
     b,
     margin,
     nMax,
-    fromHz,
-    toHz,
     perOctave,
-    channel,
-    df,
-    settings: first.a.settings,
+    settings: f.first.a.settings,
     coverage,
     confidence,
     extremeLimit,
-    fieldDamage,
-    units,
     fit,
-    recordings,
   });
   // Read back exactly as `check` and `profile` will (a document psdgate cannot read is a bug, caught here).
   const profile = parseProfile(JSON.stringify(document), o.outFile ?? "derived.json");
@@ -853,14 +945,14 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
     lifeS,
     lifeRule: o.lifeRule,
     testDurationS: o.testDurationS,
-    groups,
-    recordings,
+    groups: f.groups,
+    recordings: f.recordings,
     frequencyHz,
     lineSpacingHz: df,
     band: { fromHz, toHz },
-    envelope,
+    envelope: f.envelope,
     mean,
-    tolerance,
+    tolerance: f.tolerance,
     fnHz,
     q,
     sn,
@@ -888,7 +980,7 @@ export async function deriveProfile(o: DeriveOptions): Promise<DeriveResult> {
       rmsRatio: profile.rms / meanFieldRms,
     },
     notes,
-    candidateTones,
+    candidateTones: f.candidateTones,
     document,
     profile,
     ...strokeOf(profile, o.strokeMm),

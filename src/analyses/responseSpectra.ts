@@ -21,7 +21,7 @@ import {
 import type { TimeResponse } from "../estimate/response/timeResponse.js";
 import { responseThreads, timeResponseSink, type TimeResponseSink } from "./timeResponsePool.js";
 import { looksLikePsdTable, readPsdTable } from "../read/psdTable.js";
-import { channelIndex } from "../read/channelChoice.js";
+import { channelIndex, type ChannelName } from "../read/channelChoice.js";
 import { readHead } from "../read/regularFile.js";
 import { accelFactor, type AccelUnit } from "../units.js";
 
@@ -133,73 +133,79 @@ function lineBand(file: string, f: Float64Array, o: SourceOptions): { lo: number
   return { lo, hi };
 }
 
-export async function loadSpectrumSource(
-  file: string,
-  o: SourceOptions = {},
-  channelOption = "channels",
-): Promise<SpectrumSource> {
-  if ((o.channels?.length ?? 0) > 1)
+/** A profile as a source: its power-law segments cut to `fminHz`/`fmaxHz`, and its tones inside that band. */
+async function profileSource(file: string, o: SourceOptions): Promise<SpectrumSource> {
+  const p = await loadProfile(file);
+  // --fmin/--fmax cut the profile's own band (each segment keeps its power law).
+  const lo = Math.max(o.fminHz ?? 0, p.segments[0]!.f1);
+  const hi = Math.min(o.fmaxHz ?? Infinity, p.segments[p.segments.length - 1]!.f2);
+  if (!(hi > lo))
     throw new InputError("OPTION_INVALID", {
       file,
-      option: channelOption,
-      expected: "one channel",
-      received: o.channels!.join(", "),
+      option: "fminHz",
+      expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`,
+      received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz`,
     });
-  const channel = o.channels?.[0];
-  const kind = o.as ?? (await sourceKind(file));
-  if (kind === "profile") {
-    const p = await loadProfile(file);
-    // --fmin/--fmax cut the profile's own band (each segment keeps its power law).
-    const lo = Math.max(o.fminHz ?? 0, p.segments[0]!.f1);
-    const hi = Math.min(o.fmaxHz ?? Infinity, p.segments[p.segments.length - 1]!.f2);
-    if (!(hi > lo))
-      throw new InputError("OPTION_INVALID", {
-        file,
-        option: "fminHz",
-        expected: `a band that overlaps the profile's ${p.segments[0]!.f1}–${p.segments[p.segments.length - 1]!.f2} Hz`,
-        received: `${o.fminHz ?? ""}–${o.fmaxHz ?? ""} Hz`,
-      });
-    const segments = p.segments
-      .filter((s) => s.f2 > lo && s.f1 < hi)
-      .map((s) => {
-        const f1 = Math.max(s.f1, lo);
-        return { f1, f2: Math.min(s.f2, hi), g1: s.g1 * Math.pow(f1 / s.f1, s.exponent), exponent: s.exponent };
-      });
-    const spectrum = powerLawSpectrum(segments);
-    const hz = Float64Array.from([segments[0]!.f1, ...segments.map((s) => s.f2)]);
-    const tones = p.tones
-      .filter((t) => t.hz >= lo && t.hz <= hi)
-      .map((t) => ({ label: t.label, hz: t.hz, peak: t.peak }));
-    return {
-      kind,
-      file,
-      sha256: p.sha256,
-      label: p.title,
-      units: p.units,
-      spectrum,
-      durationS: p.durationS,
-      frequencyHz: hz,
-      level: hz.map((f) => spectrum.level(f)),
-      ...(tones.length > 0 ? { tones } : {}),
-    };
-  }
-  if (kind === "psd") {
-    const t = await readPsdTable(file);
-    const ch =
-      t.channels[channel === undefined ? 0 : channelIndex(t.channels, channel, { option: channelOption, file })]!;
-    const { lo, hi } = lineBand(file, t.frequencyHz, o);
-    return {
-      kind,
-      file,
-      sha256: t.sha256,
-      label: ch.name,
-      units: ch.units,
-      spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi),
-      durationS: undefined,
-      frequencyHz: t.frequencyHz,
-      level: ch.psd,
-    };
-  }
+  const segments = p.segments
+    .filter((s) => s.f2 > lo && s.f1 < hi)
+    .map((s) => {
+      const f1 = Math.max(s.f1, lo);
+      return { f1, f2: Math.min(s.f2, hi), g1: s.g1 * Math.pow(f1 / s.f1, s.exponent), exponent: s.exponent };
+    });
+  const spectrum = powerLawSpectrum(segments);
+  const hz = Float64Array.from([segments[0]!.f1, ...segments.map((s) => s.f2)]);
+  const tones = p.tones
+    .filter((t) => t.hz >= lo && t.hz <= hi)
+    .map((t) => ({ label: t.label, hz: t.hz, peak: t.peak }));
+  return {
+    kind: "profile",
+    file,
+    sha256: p.sha256,
+    label: p.title,
+    units: p.units,
+    spectrum,
+    durationS: p.durationS,
+    frequencyHz: hz,
+    level: hz.map((f) => spectrum.level(f)),
+    ...(tones.length > 0 ? { tones } : {}),
+  };
+}
+
+/** A PSD table psdgate wrote as a source: one channel's lines over the band. */
+async function psdTableSource(
+  file: string,
+  o: SourceOptions,
+  channel: ChannelName | undefined,
+  channelOption: string,
+): Promise<SpectrumSource> {
+  const t = await readPsdTable(file);
+  const ch =
+    t.channels[channel === undefined ? 0 : channelIndex(t.channels, channel, { option: channelOption, file })]!;
+  const { lo, hi } = lineBand(file, t.frequencyHz, o);
+  return {
+    kind: "psd",
+    file,
+    sha256: t.sha256,
+    label: ch.name,
+    units: ch.units,
+    spectrum: lineSpectrum(t.frequencyHz, ch.psd, lo, hi),
+    durationS: undefined,
+    frequencyHz: t.frequencyHz,
+    level: ch.psd,
+  };
+}
+
+/**
+ * A recording as a source: one channel's PSD through the one pass, with its SDOF responses in time when `response` asks
+ * for them. `kind` is the kind asked for, kept as given (any kind but profile and psd is read as a recording).
+ */
+async function recordingSource(
+  file: string,
+  o: SourceOptions,
+  kind: SourceKind,
+  channel: ChannelName | undefined,
+  channelOption: string,
+): Promise<SpectrumSource> {
   const { response, ...reading } = o;
   const listener = response !== undefined ? new TimeResponses(response) : undefined;
   const a = await analyzeRecording(file, {
@@ -254,6 +260,26 @@ export async function loadSpectrumSource(
       dof: c.psd.dof,
     },
   };
+}
+
+/** A source read as its kind says (given, or by extension and first line): a profile, a PSD table or a recording. */
+export async function loadSpectrumSource(
+  file: string,
+  o: SourceOptions = {},
+  channelOption = "channels",
+): Promise<SpectrumSource> {
+  if ((o.channels?.length ?? 0) > 1)
+    throw new InputError("OPTION_INVALID", {
+      file,
+      option: channelOption,
+      expected: "one channel",
+      received: o.channels!.join(", "),
+    });
+  const channel = o.channels?.[0];
+  const kind = o.as ?? (await sourceKind(file));
+  if (kind === "profile") return profileSource(file, o);
+  if (kind === "psd") return psdTableSource(file, o, channel, channelOption);
+  return recordingSource(file, o, kind, channel, channelOption);
 }
 
 export interface ResponseOptions {
@@ -400,7 +426,11 @@ export function parseFnGrid(text: string, option = "fn"): Float64Array {
   return Float64Array.from(list).sort();
 }
 
-export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
+/** responseSpectra's settings, each checked: Q, the exposure (the options', else the source's own; may be none) and the S-N curve. */
+function responseSettings(
+  src: SpectrumSource,
+  o: ResponseOptions,
+): { q: number; durationS: number | undefined; sn: SnCurve } {
   const q = o.q;
   if (!(q > 0.5 && q <= 1000))
     throw new InputError("OPTION_INVALID", {
@@ -427,9 +457,17 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
       expected: "a Basquin exponent b from 1 to 30",
       received: String(sn.basquinB),
     });
-  const toSi = accelFactor(src.units, "m/s2");
-  const s = src.spectrum;
-  const n = o.fnHz.length;
+  return { q, durationS, sn };
+}
+
+/** The random response at each natural frequency (exact RMS, Miles, relative displacement, Rice's rates, Davenport's peak, narrow-band damage). */
+function randomResponses(
+  s: InputSpectrum,
+  fnHz: Float64Array,
+  settings: { q: number; durationS: number | undefined; sn: SnCurve; toSi: number },
+) {
+  const { q, durationS, sn, toSi } = settings;
+  const n = fnHz.length;
   const out = (): Float64Array => new Float64Array(n);
   const r = {
     accelRms: out(),
@@ -445,7 +483,7 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
     fatigueDamage: out(),
   };
   for (let i = 0; i < n; i++) {
-    const fn = o.fnHz[i]!;
+    const fn = fnHz[i]!;
     const resp = sdofResponse(s, fn, q);
     const a = resp.acceleration;
     const z = resp.relativeDisplacement;
@@ -471,62 +509,87 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
       throw new InputError("OPTION_INVALID", {
         option: "durationS",
         expected: "an exposure for which the largest peak is a finite number",
-        received: `${durationS} s (largest peak ${r.extremePeak[i]} at ${o.fnHz[i]} Hz)`,
+        received: `${durationS} s (largest peak ${r.extremePeak[i]} at ${fnHz[i]} Hz)`,
       });
     }
     if (durationS !== undefined && !Number.isFinite(r.fatigueDamage[i]!)) {
       throw new InputError("OPTION_INVALID", {
         option: "stressPerUnit",
         expected: "an S-N curve, stress per metre and exposure for which the damage is a finite number",
-        received: `damage ${r.fatigueDamage[i]} at ${o.fnHz[i]} Hz (b ${sn.basquinB}, C ${sn.snConstant}, stress ${sn.stressPerUnit} per metre, ${durationS} s)`,
+        received: `damage ${r.fatigueDamage[i]} at ${fnHz[i]} Hz (b ${sn.basquinB}, C ${sn.snConstant}, stress ${sn.stressPerUnit} per metre, ${durationS} s)`,
       });
     }
   }
-  const m = spectrumMotion(s, toSi);
-  const keep = src.frequencyHz.map((f) => (f >= s.fminHz && f <= s.fmaxHz ? 1 : 0));
-  const fk = src.frequencyHz.filter((_, k) => keep[k] === 1);
-  const gk = src.level.filter((_, k) => keep[k] === 1);
-  let stroke: ResponseSpectra["stroke"];
-  if (o.strokeMm !== undefined) {
-    if (!(o.strokeMm > 0) || !Number.isFinite(o.strokeMm))
-      throw new InputError("OPTION_INVALID", {
-        option: "strokeMm",
-        expected: "a rated peak-to-peak stroke in mm above 0",
-        received: String(o.strokeMm),
-      });
-    const est = m.displacementPeakToPeak * 1000;
-    stroke = { ratedMm: o.strokeMm, estimateMm: est, margin: o.strokeMm / est, withinRating: est <= o.strokeMm };
-  }
+  return r;
+}
+
+/** The displacement estimate against the exciter's rated stroke, when one is given. */
+function strokeCheck(m: Motion, strokeMm: number | undefined): ResponseSpectra["stroke"] {
+  if (strokeMm === undefined) return undefined;
+  if (!(strokeMm > 0) || !Number.isFinite(strokeMm))
+    throw new InputError("OPTION_INVALID", {
+      option: "strokeMm",
+      expected: "a rated peak-to-peak stroke in mm above 0",
+      received: String(strokeMm),
+    });
+  const est = m.displacementPeakToPeak * 1000;
+  return { ratedMm: strokeMm, estimateMm: est, margin: strokeMm / est, withinRating: est <= strokeMm };
+}
+
+/** A mixed-mode profile's tones: each one's deterministic peak responses, and the whole response's RMS with them (both undefined without tones). */
+function toneResponses(
+  sourceTones: SpectrumSource["tones"],
+  fnHz: Float64Array,
+  q: number,
+  toSi: number,
+  accelRms: Float64Array,
+): { tones: ResponseSpectra["tones"]; totalAccelRms: Float64Array | undefined } {
+  const n = fnHz.length;
   // Tones: deterministic responses (standard SDOF steady state: peak x |T(f)|, docs/REFERENCES.md sec. 4 form).
-  const tones = src.tones?.map((t) => {
-    const accelPeak = out();
-    const relDispPeak = out();
+  const tones = sourceTones?.map((t) => {
+    const accelPeak = new Float64Array(n);
+    const relDispPeak = new Float64Array(n);
     for (let i = 0; i < n; i++) {
-      accelPeak[i] = t.peak * Math.sqrt(absoluteTransmissibilitySquared(t.hz, o.fnHz[i]!, q));
-      relDispPeak[i] = t.peak * toSi * Math.sqrt(relativeDisplacementSquared(t.hz, o.fnHz[i]!, q));
+      accelPeak[i] = t.peak * Math.sqrt(absoluteTransmissibilitySquared(t.hz, fnHz[i]!, q));
+      relDispPeak[i] = t.peak * toSi * Math.sqrt(relativeDisplacementSquared(t.hz, fnHz[i]!, q));
     }
     return { ...t, accelPeak, relDispPeak };
   });
   let totalAccelRms: Float64Array | undefined;
   if (tones) {
-    totalAccelRms = out();
+    totalAccelRms = new Float64Array(n);
     for (let i = 0; i < n; i++) {
-      let ms = r.accelRms[i]! ** 2;
+      let ms = accelRms[i]! ** 2;
       for (const t of tones) ms += t.accelPeak[i]! ** 2 / 2;
       totalAccelRms[i] = Math.sqrt(ms);
     }
   }
-  let fromPsd: ResponseSpectra["fromPsd"];
-  let timeDomain: ResponseSpectra["timeDomain"];
+  return { tones, totalAccelRms };
+}
+
+/**
+ * For a recording with its responses in time and an exposure: the record's own damage and largest peak replace the PSD's
+ * in `r` (changed in place), which are returned as fromPsd beside the time-domain figures; otherwise both undefined.
+ */
+function recordFigures(
+  src: SpectrumSource,
+  o: ResponseOptions,
+  g: { q: number; durationS: number | undefined; sn: SnCurve },
+  r: ReturnType<typeof randomResponses>,
+): Pick<ResponseSpectra, "fromPsd" | "timeDomain"> {
+  const { q, durationS, sn } = g;
+  const n = o.fnHz.length;
   const t = src.timeResponse;
-  if (t !== undefined && durationS !== undefined) {
-    if (t.q !== q || t.basquinB !== sn.basquinB || t.fnHz.length !== n || t.fnHz.some((f, i) => f !== o.fnHz[i]))
-      throw new RangeError("the recording's time-domain responses were computed for another grid, Q or b");
-    const td = timeDomainFigures(src, o, sn, durationS, r.upcrossingRateHz);
-    fromPsd = { fatigueDamage: r.fatigueDamage, extremePeak: r.extremePeak };
-    r.fatigueDamage = td.damage;
-    r.extremePeak = td.peak;
-    timeDomain = {
+  if (t === undefined || durationS === undefined) return { fromPsd: undefined, timeDomain: undefined };
+  if (t.q !== q || t.basquinB !== sn.basquinB || t.fnHz.length !== n || t.fnHz.some((f, i) => f !== o.fnHz[i]))
+    throw new RangeError("the recording's time-domain responses were computed for another grid, Q or b");
+  const td = timeDomainFigures(src, o, sn, durationS, r.upcrossingRateHz);
+  const fromPsd = { fatigueDamage: r.fatigueDamage, extremePeak: r.extremePeak };
+  r.fatigueDamage = td.damage;
+  r.extremePeak = td.peak;
+  return {
+    fromPsd,
+    timeDomain: {
       recordS: t.recordS,
       kurtosis: t.kurtosis,
       sampleRateHz: t.sampleRateHz,
@@ -535,8 +598,23 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
       skippedHz: td.skippedHz,
       coarseHz: td.coarseHz,
       heldSamples: t.heldSamples,
-    };
-  }
+    },
+  };
+}
+
+/** The SDOF responses to a source at each natural frequency of the grid, with the input's motion, the stroke check and any tones. */
+export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
+  const { q, durationS, sn } = responseSettings(src, o);
+  const toSi = accelFactor(src.units, "m/s2");
+  const s = src.spectrum;
+  const r = randomResponses(s, o.fnHz, { q, durationS, sn, toSi });
+  const m = spectrumMotion(s, toSi);
+  const keep = src.frequencyHz.map((f) => (f >= s.fminHz && f <= s.fmaxHz ? 1 : 0));
+  const fk = src.frequencyHz.filter((_, k) => keep[k] === 1);
+  const gk = src.level.filter((_, k) => keep[k] === 1);
+  const stroke = strokeCheck(m, o.strokeMm);
+  const { tones, totalAccelRms } = toneResponses(src.tones, o.fnHz, q, toSi, r.accelRms);
+  const { fromPsd, timeDomain } = recordFigures(src, o, { q, durationS, sn }, r);
   const { spectrum: _s, frequencyHz: _f, level: _l, tones: _t, timeResponse: _tr, ...source } = src;
   return {
     source,

@@ -330,139 +330,188 @@ async function ridePass(source: TimeHistorySource, options: RideOptions) {
   return { axes, rules, plan, analysis, results };
 }
 
-export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
-  const { axes, rules, plan, analysis, results } = await ridePass(source, options);
-  const notes: Finding[] = [];
-  const doubts: Finding[] = [...analysis.passDoubts];
-  const fs = analysis.input.sampleRateHz;
-  const fromPsd = (c: number, w: WeightingName) => {
-    const p = analysis.channels[c]!.psd;
-    return weightedRmsFromPsd(p.psd, p.frequencyHz, p.lineSpacingHz, w);
-  };
-  const rideAxes: RideAxis[] = axes.map((axis, c) => {
-    const r = results[c]!;
-    const ch = analysis.channels[c]!;
-    const weighting = plan[c]!.weighting;
-    const awFromPsd = fromPsd(c, weighting);
-    const d = r.dose;
-    const stationarity = stationarityFinding(d.stretchMeanSquares, d.stretchS, analysis.window.fromS);
-    const awWelchWeighted = Math.sqrt(r.welchMeanSquare);
-    const routeRatio = awFromPsd / awWelchWeighted;
-    const noPsd = ch.psd.averages === 0;
-    // A level that changes along the record (stops, curves, a tilting sensor) is a property of the ride, not a
-    // fault: where the weighted or the unweighted level failed the stationarity test, the two spectral checks
-    // below are notes that say so, with the test's result; on a stationary record they stay doubts.
-    // The first failed test among the weighted and unweighted stretches: reverse arrangements (trends) or the
-    // run test (clusters, such as a stop mid-record, which a trend test does not see).
-    const tests = [
-      { t: stationarity.reverseArrangements, of: "weighted" },
-      { t: stationarity.runs, of: "weighted" },
-      { t: ch.stationarity.reverseArrangements, of: "unweighted" },
-      { t: ch.stationarity.runs, of: "unweighted" },
-    ];
-    const moving = tests.find((x) => x.t !== undefined && !x.t.stationary);
-    const movingValues: Record<string, number> = moving
-      ? {
-          statistic: moving.t!.statistic,
-          acceptAbove: moving.t!.acceptAbove,
-          acceptAtMost: moving.t!.acceptAtMost,
-          values: moving.t!.n,
-        }
-      : {};
-    // Which level failed which test: the sentence names them (report/findingTexts.ts).
-    const movingAbout = moving
-      ? { level: moving.of, test: moving.t!.test === "runs" ? "runs" : "reverse-arrangements" }
-      : {};
-    const onAxis = { axis };
-    const onChannel = { axis, channel: ch.name };
-    if (noPsd)
-      notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength: analysis.settings.segmentLength }, about: onAxis });
-    // The two routes differ by the realisation's own error too (|W| is exact on the PSD route): allowed 1 % plus it.
-    else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE + r.design.maxErrorPct / 100)) {
-      const values = {
-        offPercent: 100 * (routeRatio - 1),
-        allowedPercent: Number((100 * ROUTE_TOLERANCE + r.design.maxErrorPct).toPrecision(2)),
-      };
-      if (moving)
-        notes.push({
-          code: "ROUTES_DIFFER_NOT_STATIONARY",
-          values: { ...values, ...movingValues },
-          about: { ...onChannel, ...movingAbout },
-        });
-      else doubts.push({ code: "ROUTES_DIFFER", values, about: onChannel });
-    }
-    const plain = awFromPsd / d.rms;
-    if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE)
-      notes.push({ code: "PSD_VS_PLAIN", values: { offPercent: 100 * (plain - 1) }, about: onAxis });
-    if (r.heldSamples > 0)
-      doubts.push({ code: "NON_FINITE_HELD", values: { samples: r.heldSamples }, about: onChannel });
-    if (stationarity.tested && !stationarity.stationary) {
-      const t = stationarity.reverseArrangements!;
-      const dep = stationarity.departing[0];
-      notes.push({
-        code: "LEVEL_NOT_STATIONARY",
-        values: {
-          statistic: t.statistic,
-          acceptAbove: t.acceptAbove,
-          acceptAtMost: t.acceptAtMost,
-          values: t.n,
-          ...(dep
-            ? {
-                departingFromS: Math.round(dep.fromS),
-                departingToS: Math.round(dep.toS),
-                departingDb: Math.round(10 * dep.levelDb) / 10,
-              }
-            : {}),
-        },
-        about: { ...onAxis, exposure: options.exposureS !== undefined },
-      });
-    }
-    for (const f of ch.doubts) {
-      if (f.code === "TOO_SHORT") continue;
-      if (f.code === "PARSEVAL_MISMATCH" && moving)
-        notes.push({
-          code: "PARSEVAL_NOT_STATIONARY",
-          values: { ...f.values, ...movingValues },
-          about: { ...f.about, ...onChannel, ...movingAbout },
-        });
-      else doubts.push({ ...f, about: { ...f.about, ...onChannel } });
-    }
-    for (const f of ch.notes) if (f.code === "HELD_SAMPLES") notes.push({ ...f, about: { ...f.about, ...onChannel } });
-    const basicMethod = basicMethodCheck(d.rms, d.crestFactor, d.mtvv, d.vdv, d.durationS);
-    if (!basicMethod.adequate) {
-      notes.push({
-        code: "BASIC_METHOD_EXCEEDED",
-        values: {
-          crestFactor: basicMethod.crestFactor,
-          mtvvRatio: basicMethod.mtvvRatio,
-          vdvRatio: basicMethod.vdvRatio,
-        },
-        about: onAxis,
-      });
-    }
-    return {
-      axis,
-      channel: ch.name,
-      weighting,
-      rule: rules[axis],
-      dose: d,
-      awFromPsd,
-      awWelchWeighted,
-      routeRatio,
-      basicMethod,
-      stationarity,
-      filter: {
-        method: r.design.method,
-        maxErrorPct: r.design.maxErrorPct,
-        maxErrorAtHz: r.design.maxErrorAtHz,
-        topCentreHz: r.design.topCentreHz,
-        heldSamples: r.heldSamples,
-      },
-      spectrogram: r.spectrogram,
-      peakHold: ch.peakHold,
+/** What ride's one pass gave: the axes, their rules and plan, the analysis and the weighting listener's results. */
+type RidePass = Awaited<ReturnType<typeof ridePass>>;
+type RideChannel = RecordingAnalysis["channels"][number];
+type WeightedResult = RidePass["results"][number];
+
+/** a_w of a channel from its unweighted PSD and a weighting. */
+function awFromChannelPsd(analysis: RecordingAnalysis, c: number, w: WeightingName): number {
+  const p = analysis.channels[c]!.psd;
+  return weightedRmsFromPsd(p.psd, p.frequencyHz, p.lineSpacingHz, w);
+}
+
+/**
+ * A level that changes along the record (stops, curves, a tilting sensor) is a property of the ride, not a
+ * fault: where the weighted or the unweighted level failed the stationarity test, the two spectral checks
+ * are notes that say so, with the test's result; on a stationary record they stay doubts.
+ * The first failed test among the weighted and unweighted stretches: reverse arrangements (trends) or the
+ * run test (clusters, such as a stop mid-record, which a trend test does not see), with its figures and words.
+ */
+function movingLevel(stationarity: StationarityFinding, ch: RideChannel) {
+  const tests = [
+    { t: stationarity.reverseArrangements, of: "weighted" },
+    { t: stationarity.runs, of: "weighted" },
+    { t: ch.stationarity.reverseArrangements, of: "unweighted" },
+    { t: ch.stationarity.runs, of: "unweighted" },
+  ];
+  const moving = tests.find((x) => x.t !== undefined && !x.t.stationary);
+  const movingValues: Record<string, number> = moving
+    ? {
+        statistic: moving.t!.statistic,
+        acceptAbove: moving.t!.acceptAbove,
+        acceptAtMost: moving.t!.acceptAtMost,
+        values: moving.t!.n,
+      }
+    : {};
+  // Which level failed which test: the sentence names them (report/findingTexts.ts).
+  const movingAbout = moving
+    ? { level: moving.of, test: moving.t!.test === "runs" ? "runs" : "reverse-arrangements" }
+    : {};
+  return { moving, movingValues, movingAbout };
+}
+
+/** The findings of an axis, in the order they are said. */
+interface RideFindings {
+  notes: Finding[];
+  doubts: Finding[];
+}
+
+/** An axis's two routes to a_w (PSD against time with Welch's weights) and the PSD against the plain r.m.s., and held samples. */
+function routeFindings(
+  a: {
+    axis: Axis;
+    ch: RideChannel;
+    r: WeightedResult;
+    awFromPsd: number;
+    routeRatio: number;
+    moving: ReturnType<typeof movingLevel>;
+  },
+  segmentLength: number,
+  out: RideFindings,
+): void {
+  const { axis, ch, r, awFromPsd, routeRatio } = a;
+  const { moving, movingValues, movingAbout } = a.moving;
+  const noPsd = ch.psd.averages === 0;
+  const onAxis = { axis };
+  const onChannel = { axis, channel: ch.name };
+  if (noPsd) out.notes.push({ code: "NO_PSD_ROUTE", values: { segmentLength }, about: onAxis });
+  // The two routes differ by the realisation's own error too (|W| is exact on the PSD route): allowed 1 % plus it.
+  else if (!(Math.abs(routeRatio - 1) <= ROUTE_TOLERANCE + r.design.maxErrorPct / 100)) {
+    const values = {
+      offPercent: 100 * (routeRatio - 1),
+      allowedPercent: Number((100 * ROUTE_TOLERANCE + r.design.maxErrorPct).toPrecision(2)),
     };
-  });
-  // The realisation's error, in every result: which figures carry it and which do not.
+    if (moving)
+      out.notes.push({
+        code: "ROUTES_DIFFER_NOT_STATIONARY",
+        values: { ...values, ...movingValues },
+        about: { ...onChannel, ...movingAbout },
+      });
+    else out.doubts.push({ code: "ROUTES_DIFFER", values, about: onChannel });
+  }
+  const plain = awFromPsd / r.dose.rms;
+  if (!noPsd && Math.abs(plain - 1) > ROUTE_TOLERANCE)
+    out.notes.push({ code: "PSD_VS_PLAIN", values: { offPercent: 100 * (plain - 1) }, about: onAxis });
+  if (r.heldSamples > 0)
+    out.doubts.push({ code: "NON_FINITE_HELD", values: { samples: r.heldSamples }, about: onChannel });
+}
+
+/** LEVEL_NOT_STATIONARY when the weighted level failed the reverse-arrangements test, with where it departed most. */
+function levelNote(stationarity: StationarityFinding, axis: Axis, exposureGiven: boolean): Finding | undefined {
+  if (!(stationarity.tested && !stationarity.stationary)) return undefined;
+  const t = stationarity.reverseArrangements!;
+  const dep = stationarity.departing[0];
+  return {
+    code: "LEVEL_NOT_STATIONARY",
+    values: {
+      statistic: t.statistic,
+      acceptAbove: t.acceptAbove,
+      acceptAtMost: t.acceptAtMost,
+      values: t.n,
+      ...(dep
+        ? {
+            departingFromS: Math.round(dep.fromS),
+            departingToS: Math.round(dep.toS),
+            departingDb: Math.round(10 * dep.levelDb) / 10,
+          }
+        : {}),
+    },
+    about: { axis, exposure: exposureGiven },
+  };
+}
+
+/** The read's doubts and held-sample notes of an axis's channel, carried over (Parseval's on a moving level as a note). */
+function channelFindings(axis: Axis, ch: RideChannel, moving: ReturnType<typeof movingLevel>, out: RideFindings): void {
+  const onChannel = { axis, channel: ch.name };
+  for (const f of ch.doubts) {
+    if (f.code === "TOO_SHORT") continue;
+    if (f.code === "PARSEVAL_MISMATCH" && moving.moving)
+      out.notes.push({
+        code: "PARSEVAL_NOT_STATIONARY",
+        values: { ...f.values, ...moving.movingValues },
+        about: { ...f.about, ...onChannel, ...moving.movingAbout },
+      });
+    else out.doubts.push({ ...f, about: { ...f.about, ...onChannel } });
+  }
+  for (const f of ch.notes)
+    if (f.code === "HELD_SAMPLES") out.notes.push({ ...f, about: { ...f.about, ...onChannel } });
+}
+
+/** One axis's figures (a_w by both routes, the basic method's check, stationarity, the filter) and its findings. */
+function rideAxis(pass: RidePass, c: number, options: RideOptions, out: RideFindings): RideAxis {
+  const { analysis, plan, rules } = pass;
+  const axis = pass.axes[c]!;
+  const r = pass.results[c]!;
+  const ch = analysis.channels[c]!;
+  const weighting = plan[c]!.weighting;
+  const awFromPsd = awFromChannelPsd(analysis, c, weighting);
+  const d = r.dose;
+  const stationarity = stationarityFinding(d.stretchMeanSquares, d.stretchS, analysis.window.fromS);
+  const awWelchWeighted = Math.sqrt(r.welchMeanSquare);
+  const routeRatio = awFromPsd / awWelchWeighted;
+  const moving = movingLevel(stationarity, ch);
+  routeFindings({ axis, ch, r, awFromPsd, routeRatio, moving }, analysis.settings.segmentLength, out);
+  const level = levelNote(stationarity, axis, options.exposureS !== undefined);
+  if (level) out.notes.push(level);
+  channelFindings(axis, ch, moving, out);
+  const basicMethod = basicMethodCheck(d.rms, d.crestFactor, d.mtvv, d.vdv, d.durationS);
+  if (!basicMethod.adequate) {
+    out.notes.push({
+      code: "BASIC_METHOD_EXCEEDED",
+      values: {
+        crestFactor: basicMethod.crestFactor,
+        mtvvRatio: basicMethod.mtvvRatio,
+        vdvRatio: basicMethod.vdvRatio,
+      },
+      about: { axis },
+    });
+  }
+  return {
+    axis,
+    channel: ch.name,
+    weighting,
+    rule: rules[axis],
+    dose: d,
+    awFromPsd,
+    awWelchWeighted,
+    routeRatio,
+    basicMethod,
+    stationarity,
+    filter: {
+      method: r.design.method,
+      maxErrorPct: r.design.maxErrorPct,
+      maxErrorAtHz: r.design.maxErrorAtHz,
+      topCentreHz: r.design.topCentreHz,
+      heldSamples: r.heldSamples,
+    },
+    spectrogram: r.spectrogram,
+    peakHold: ch.peakHold,
+  };
+}
+
+/** The realisation's error, in every result (first among the notes): which figures carry it and which do not; and a band cut short by the rate. */
+function weightingNotes(results: WeightedResult[], fs: number, options: RideOptions, notes: Finding[]): void {
   const worst = results.reduce((w, r) => (r.design.maxErrorPct > w.design.maxErrorPct ? r : w), results[0]!).design;
   notes.unshift({
     code: "WEIGHTING_ERROR",
@@ -481,6 +530,11 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
       values: { nyquistHz: fs / 2, topCentreHz: worst.topCentreHz },
     });
   }
+}
+
+/** The daily exposure (when one is stated), the caution zone, the vibration total values, and what the axes and posture leave out. */
+function exposureFigures(pass: RidePass, rideAxes: RideAxis[], options: RideOptions, notes: Finding[]) {
+  const { axes, rules } = pass;
   const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));
   const exposure =
     options.exposureS !== undefined
@@ -500,22 +554,40 @@ export async function rideSource(source: TimeHistorySource, options: RideOptions
   if (options.posture === "recumbent") notes.push({ code: "POSTURE_RECUMBENT", values: {} });
   if (options.posture !== "seated")
     notes.push({ code: "POSTURE_NOT_SEATED", values: {}, about: { posture: options.posture } });
-  let seat: RideResult["seat"];
-  if (options.floor !== undefined) {
-    const c = axes.length;
-    const floorDose = results[c]!.dose;
-    const zAxis = rideAxes.find((a) => a.axis === "z");
-    if (zAxis === undefined) notes.push({ code: "FLOOR_WITHOUT_Z", values: {} });
-    else
-      seat = {
-        floorChannel: analysis.channels[c]!.name,
-        awFloor: floorDose.rms,
-        awFloorFromPsd: fromPsd(c, "Wk"),
-        awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare),
-        awSeat: zAxis.dose.rms,
-        seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms),
-      };
+  return { exposure, healthZone, totalValue };
+}
+
+/** The seat's transmissibility from the floor channel (after the axes) and the seat's z, when a floor is given. */
+function seatFigures(pass: RidePass, rideAxes: RideAxis[], options: RideOptions, notes: Finding[]): RideResult["seat"] {
+  if (options.floor === undefined) return undefined;
+  const { analysis, results } = pass;
+  const c = pass.axes.length;
+  const floorDose = results[c]!.dose;
+  const zAxis = rideAxes.find((a) => a.axis === "z");
+  if (zAxis === undefined) {
+    notes.push({ code: "FLOOR_WITHOUT_Z", values: {} });
+    return undefined;
   }
+  return {
+    floorChannel: analysis.channels[c]!.name,
+    awFloor: floorDose.rms,
+    awFloorFromPsd: awFromChannelPsd(analysis, c, "Wk"),
+    awFloorWelchWeighted: Math.sqrt(results[c]!.welchMeanSquare),
+    awSeat: zAxis.dose.rms,
+    seat: seatTransmissibility(zAxis.dose.rms, floorDose.rms),
+  };
+}
+
+/** A ride source's whole-body vibration: the pass, each axis's figures and findings, the exposure, the seat. */
+export async function rideSource(source: TimeHistorySource, options: RideOptions): Promise<RideResult> {
+  const pass = await ridePass(source, options);
+  const { analysis, results } = pass;
+  const findings: RideFindings = { notes: [], doubts: [...analysis.passDoubts] };
+  const { notes, doubts } = findings;
+  const rideAxes: RideAxis[] = pass.axes.map((_, c) => rideAxis(pass, c, options, findings));
+  weightingNotes(results, analysis.input.sampleRateHz, options, notes);
+  const { exposure, healthZone, totalValue } = exposureFigures(pass, rideAxes, options, notes);
+  const seat = seatFigures(pass, rideAxes, options, notes);
   return {
     analysis,
     posture: options.posture,

@@ -190,7 +190,8 @@ function zeroUpcrossingRate(psd: Float64Array, f: Float64Array): number {
   return m0 > 0 ? Math.sqrt(m2 / m0) : NaN;
 }
 
-export async function shockRecording(file: string, options: ShockOptions): Promise<ShockResult> {
+/** shock's settings with their defaults, each checked in turn: Q, the hold, the threshold or its factor, the event window. */
+function shockSettings(options: ShockOptions) {
   const q = options.q;
   const fnHz = Float64Array.from(options.fnHz);
   if (!(q > 0.5 && q <= 1000))
@@ -235,6 +236,95 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   ] as const)
     if (!(v >= 0 && v <= 600))
       throw new InputError("OPTION_INVALID", { option: k, expected: "a time in s from 0 to 600", received: String(v) });
+  return { q, fnHz, holdS, factor, preS, postS };
+}
+
+/** What read 1 gives each channel for read 2: its mean, background r.m.s., threshold and zero up-crossing rate. */
+interface ChannelLevels {
+  mean: number;
+  background: number;
+  threshold: number;
+  nu0: number;
+}
+
+/** Each channel's levels from read 1: the threshold given, or the factor times the background (none: SHOCK_NO_BACKGROUND). */
+function channelLevels(
+  file: string,
+  analysis: RecordingAnalysis,
+  stretches: number[][],
+  threshold: number | undefined,
+  factor: number,
+): ChannelLevels[] {
+  return analysis.channels.map((ch, c) => {
+    const b = backgroundRms(stretches[c] ?? []);
+    const t = threshold ?? factor * b;
+    if (!(t > 0)) {
+      throw new InputError("SHOCK_NO_BACKGROUND", {
+        file,
+        option: "threshold",
+        expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`,
+        received: String(b),
+      });
+    }
+    return {
+      mean: ch.stats.mean,
+      background: b,
+      threshold: t,
+      nu0: zeroUpcrossingRate(ch.psd.psd, ch.psd.frequencyHz),
+    };
+  });
+}
+
+/** One channel's result from both reads: its events (largest |peak| first), whole-record SRS and PVSS, and its notes. */
+function shockChannel(
+  ch: RecordingAnalysis["channels"][number],
+  p: ChannelLevels,
+  found: ReturnType<Events["finish"]>[number],
+  g: { analysis: RecordingAnalysis; primaryResidual: boolean | undefined; postS: number },
+  notes: Finding[],
+): ShockChannel {
+  const { analysis, postS } = g;
+  const fs = analysis.input.sampleRateHz;
+  const k = p.threshold / p.background;
+  const expectedFalseEvents = (gaussianFalseEventRate(k, p.nu0) * analysis.window.frames) / fs;
+  const events = found.events
+    .map((e) => ({
+      timeS: analysis.window.fromS + e.peakIndex / fs,
+      peak: e.peak,
+      durationS: (e.lastIndex - e.firstIndex + 1) / fs,
+      srs: e.srs!,
+      truncated: e.truncated,
+      ...(g.primaryResidual ? { primary: e.primary, residual: e.residual } : {}),
+    }))
+    .sort((a, b) => Math.abs(b.peak) - Math.abs(a.peak) || a.timeS - b.timeS);
+  const srs = found.srs;
+  const toMs = accelFactor(ch.units, "m/s2");
+  if (!(k >= 4.5))
+    notes.push({
+      code: "THRESHOLD_LOW",
+      values: { thresholdFactor: k, expectedFalseEvents },
+      about: { channel: ch.name },
+    });
+  if (events.some((e) => e.truncated))
+    notes.push({ code: "EVENT_CUT_SHORT", values: { postS }, about: { channel: ch.name } });
+  return {
+    name: ch.name,
+    units: ch.units,
+    mean: p.mean,
+    backgroundRms: p.background,
+    threshold: p.threshold,
+    thresholdFactor: k,
+    zeroUpcrossingRateHz: p.nu0,
+    expectedFalseEvents,
+    events,
+    srs,
+    pvssMPerS: srs.pseudoVelocity.map((v) => v * toMs),
+  };
+}
+
+/** The events and shock response spectra of a recording, in two reads of the file (see ShockOptions). */
+export async function shockRecording(file: string, options: ShockOptions): Promise<ShockResult> {
+  const { q, fnHz, holdS, factor, preS, postS } = shockSettings(options);
   const base: AnalysisOptions = { ...options };
   delete (base as Partial<ShockOptions>).fnHz;
   const open = () => openTimeHistory(file, { ...options.csv, sampleRateHz: options.csv?.sampleRateHz });
@@ -255,19 +345,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   // The read's own doubts (non-finite samples, a clipped or saturated signal, held samples) carry over: a clipped shock's peak and SRS are too low.
   for (const ch of analysis.channels)
     for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
-  const per = analysis.channels.map((ch, c) => {
-    const b = backgroundRms(stretches[c] ?? []);
-    const threshold = options.threshold ?? factor * b;
-    if (!(threshold > 0)) {
-      throw new InputError("SHOCK_NO_BACKGROUND", {
-        file,
-        option: "threshold",
-        expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`,
-        received: String(b),
-      });
-    }
-    return { mean: ch.stats.mean, background: b, threshold, nu0: zeroUpcrossingRate(ch.psd.psd, ch.psd.frequencyHz) };
-  });
+  const per = channelLevels(file, analysis, stretches, options.threshold, factor);
   // Read 2: events and spectra.
   const ev = new Events({
     means: per.map((p) => p.mean),
@@ -305,42 +383,8 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
       },
     });
   }
-  const channels: ShockChannel[] = analysis.channels.map((ch, c) => {
-    const p = per[c]!;
-    const k = p.threshold / p.background;
-    const expectedFalseEvents = (gaussianFalseEventRate(k, p.nu0) * analysis.window.frames) / fs;
-    const events = found[c]!.events.map((e) => ({
-      timeS: analysis.window.fromS + e.peakIndex / fs,
-      peak: e.peak,
-      durationS: (e.lastIndex - e.firstIndex + 1) / fs,
-      srs: e.srs!,
-      truncated: e.truncated,
-      ...(options.primaryResidual ? { primary: e.primary, residual: e.residual } : {}),
-    })).sort((a, b) => Math.abs(b.peak) - Math.abs(a.peak) || a.timeS - b.timeS);
-    const srs = found[c]!.srs;
-    const toMs = accelFactor(ch.units, "m/s2");
-    if (!(k >= 4.5))
-      notes.push({
-        code: "THRESHOLD_LOW",
-        values: { thresholdFactor: k, expectedFalseEvents },
-        about: { channel: ch.name },
-      });
-    if (events.some((e) => e.truncated))
-      notes.push({ code: "EVENT_CUT_SHORT", values: { postS }, about: { channel: ch.name } });
-    return {
-      name: ch.name,
-      units: ch.units,
-      mean: p.mean,
-      backgroundRms: p.background,
-      threshold: p.threshold,
-      thresholdFactor: k,
-      zeroUpcrossingRateHz: p.nu0,
-      expectedFalseEvents,
-      events,
-      srs,
-      pvssMPerS: srs.pseudoVelocity.map((v) => v * toMs),
-    };
-  });
+  const g = { analysis, primaryResidual: options.primaryResidual, postS };
+  const channels = analysis.channels.map((ch, c) => shockChannel(ch, per[c]!, found[c]!, g, notes));
   return {
     analysis,
     settings: {

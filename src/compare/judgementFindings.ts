@@ -3,7 +3,7 @@ import type { LineDeviation, RuleReport, SpectrumUnderTest } from "./complianceT
 import { DECISION_RULE, DEFAULT_POWER } from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { PassPower } from "./passPower.js";
-import { percent } from "./percentWords.js";
+import { percent } from "./percent.js";
 import type { RmsTest } from "./rmsTest.js";
 import type { TestProfile } from "./testProfile.js";
 

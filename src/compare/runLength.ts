@@ -14,7 +14,7 @@ import {
 } from "./decisionRule.js";
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { LineTestLevels } from "./lineTests.js";
-import { percent } from "./percentWords.js";
+import { percent } from "./percent.js";
 import type { RmsTest } from "./rmsTest.js";
 
 /**

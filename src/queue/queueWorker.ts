@@ -206,153 +206,192 @@ function invalidJob(job: FetchedJob, problem: string, say: (s: string) => void):
 }
 
 /**
+ * What a worker's loops share: the store, the pool and the options, the summary they count into, the stop signal,
+ * the way to stderr, the run of database failures (for the back-off) and when lost jobs were last expired.
+ */
+interface WorkerState {
+  store: QueueStore;
+  pool: JobPool;
+  o: WorkOptions;
+  summary: WorkSummary;
+  signal: AbortSignal;
+  say: (s: string) => void;
+  dbFailures: number;
+  lastExpire: number;
+}
+
+/** What running a job gave: its outcome, or the crash, with its seconds. */
+type Ran =
+  | { outcome: StoredOutcome; crash?: undefined; seconds: number }
+  | { outcome?: undefined; crash: Error; seconds: number };
+
+/** Runs `fn` until the database answers; without `keepTrying`, gives up (undefined) once told to stop. */
+async function withDb<T>(
+  w: WorkerState,
+  what: string,
+  fn: () => Promise<T>,
+  keepTrying: boolean,
+): Promise<T | undefined> {
+  for (;;) {
+    try {
+      const out = await fn();
+      if (w.dbFailures > 0) w.say(`psdgate: database reachable again (${w.store.target.label})`);
+      w.dbFailures = 0;
+      return out;
+    } catch (e) {
+      if (e instanceof NotOurs || !transientDbError(e)) throw e;
+      w.dbFailures++;
+      const wait = backoffMs(w.dbFailures);
+      w.say(`psdgate: database error while ${what}: ${(e as Error).message}; trying again in ${wait / 1000} s`);
+      if (!keepTrying && w.signal.aborted) return undefined;
+      await sleep(wait, keepTrying ? undefined : w.signal);
+      if (!keepTrying && w.signal.aborted) return undefined;
+    }
+  }
+}
+
+/** A job run on the pool: its outcome, or any error as a JobCrash, with the seconds it took. */
+async function runOne(pool: JobPool, job: FetchedJob): Promise<Ran> {
+  const t0 = performance.now();
+  try {
+    const outcome = await pool.run(job.data);
+    return { outcome, seconds: (performance.now() - t0) / 1000 };
+  } catch (e) {
+    return {
+      crash: e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e)),
+      seconds: (performance.now() - t0) / 1000,
+    };
+  }
+}
+
+/** A crashed job: kept as a failed result (INTERNAL) on its last attempt, else handed back to pg-boss for a retry. */
+async function recordCrash(w: WorkerState, job: FetchedJob, crash: Error): Promise<void> {
+  const file = jobFile(job);
+  const attempt = job.retryCount + 1;
+  const attempts = job.retryLimit + 1;
+  if (attempt >= attempts) {
+    const error: WireError = {
+      code: "INTERNAL",
+      message: `internal error on attempt ${attempt} of ${attempts}: ${crash.message}`,
+    };
+    await withDb(
+      w,
+      "writing a result",
+      () =>
+        finish(
+          w.store,
+          w.o.workerName,
+          job,
+          { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error },
+          "fail",
+        ),
+      true,
+    );
+    w.summary.failed++;
+    w.say(`psdgate: ${file}: ${error.message}; kept as failed`);
+    return;
+  }
+  await withDb(w, "handing a job back", () => w.store.boss.fail(QUEUE_NAME, job.id, { message: crash.message }), true);
+  w.summary.retried++;
+  w.say(`psdgate: ${file}: internal error on attempt ${attempt} of ${attempts}: ${crash.message}; it will be retried`);
+}
+
+/** Writes what a job gave: result and completion together, or the job handed back for a retry. */
+async function record(w: WorkerState, job: FetchedJob, ran: Ran): Promise<void> {
+  const file = jobFile(job);
+  const { outcome, crash } = ran;
+  try {
+    if (outcome) {
+      await withDb(
+        w,
+        "writing a result",
+        () => finish(w.store, w.o.workerName, job, outcome, outcome.ok ? "complete" : "fail"),
+        true,
+      );
+      if (outcome.ok) w.summary.done++;
+      else w.summary.failed++;
+      w.o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, ran.seconds);
+      return;
+    }
+    await recordCrash(w, job, crash!);
+  } catch (e) {
+    if (!(e instanceof NotOurs)) throw e;
+    w.summary.discarded++;
+    w.say(`psdgate: ${file}: result not kept: ${e.message}`);
+  }
+}
+
+/** A job fetched just as the worker was told to stop: handed straight back untouched. */
+async function handBack(w: WorkerState, job: FetchedJob): Promise<void> {
+  await withDb(
+    w,
+    "handing a job back",
+    () =>
+      w.store.pool.query(
+        `UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`,
+        [QUEUE_NAME, job.id],
+      ),
+    true,
+  );
+}
+
+/** One of the worker's loops: fetch a job when free, run it, record it while the next one runs; on an empty queue expire lost jobs, stop when drained, wait. */
+async function slot(w: WorkerState): Promise<void> {
+  const { store, o, signal } = w;
+  // A job's result is written while the next job runs: the database's time hides behind the analysis.
+  let recording: Promise<void> = Promise.resolve();
+  while (!signal.aborted) {
+    const job = await withDb(w, "fetching a job", () => fetchOne(store), false);
+    if (signal.aborted) {
+      // Fetched just as we were told to stop: hand it straight back untouched.
+      if (job) await handBack(w, job);
+      break;
+    }
+    if (job) {
+      const problem = jobProblem(job.data);
+      const ran: Ran =
+        problem === undefined ? await runOne(w.pool, job) : { outcome: invalidJob(job, problem, w.say), seconds: 0 };
+      await recording;
+      recording = record(w, job, ran);
+      // Marked as handled now (a bug's error is still thrown where it is awaited, one job later).
+      recording.catch(() => undefined);
+      continue;
+    }
+    await recording;
+    if (Date.now() - w.lastExpire > 2000) {
+      w.lastExpire = Date.now();
+      // Jobs held by a worker that died are failed by timeout (and so retried) by this call.
+      await withDb(w, "expiring lost jobs", () => store.boss.expire(), false);
+    }
+    if (o.drain && (await withDb(w, "counting jobs", () => nothingLeft(store), false))) break;
+    await sleep(o.pollSeconds * 1000, signal);
+  }
+  await recording;
+}
+
+/**
  * A worker: `jobs` loops, each fetching one job when it is free, running it on the pool, and writing
  * its result in the same statement (so the same transaction) that completes the job. Input errors fail the job at once; an
  * internal error goes back to pg-boss for a retry (delay and limit of the queue), and on the last
  * attempt is kept as a failed result. Database errors are retried with back-off, said on stderr.
  */
 export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions): Promise<WorkSummary> {
-  const summary: WorkSummary = { done: 0, failed: 0, retried: 0, discarded: 0 };
-  let dbFailures = 0;
-  let lastExpire = 0;
-  const say = (s: string) => o.log(redact(s, store.target));
   const stopAll = new AbortController();
-  const signal = AbortSignal.any([o.signal, stopAll.signal]);
-
-  /** Runs `fn` until the database answers; without `keepTrying`, gives up (undefined) once told to stop. */
-  async function withDb<T>(what: string, fn: () => Promise<T>, keepTrying: boolean): Promise<T | undefined> {
-    for (;;) {
-      try {
-        const out = await fn();
-        if (dbFailures > 0) say(`psdgate: database reachable again (${store.target.label})`);
-        dbFailures = 0;
-        return out;
-      } catch (e) {
-        if (e instanceof NotOurs || !transientDbError(e)) throw e;
-        dbFailures++;
-        const wait = backoffMs(dbFailures);
-        say(`psdgate: database error while ${what}: ${(e as Error).message}; trying again in ${wait / 1000} s`);
-        if (!keepTrying && signal.aborted) return undefined;
-        await sleep(wait, keepTrying ? undefined : signal);
-        if (!keepTrying && signal.aborted) return undefined;
-      }
-    }
-  }
-
-  type Ran =
-    | { outcome: StoredOutcome; crash?: undefined; seconds: number }
-    | { outcome?: undefined; crash: Error; seconds: number };
-
-  async function runOne(job: FetchedJob): Promise<Ran> {
-    const t0 = performance.now();
-    try {
-      const outcome = await pool.run(job.data);
-      return { outcome, seconds: (performance.now() - t0) / 1000 };
-    } catch (e) {
-      return {
-        crash: e instanceof JobCrash ? e : new JobCrash((e as Error)?.message ?? String(e)),
-        seconds: (performance.now() - t0) / 1000,
-      };
-    }
-  }
-
-  /** Writes what a job gave: result and completion together, or the job handed back for a retry. */
-  async function record(job: FetchedJob, ran: Ran): Promise<void> {
-    const file = jobFile(job);
-    const { outcome, crash } = ran;
-    try {
-      if (outcome) {
-        await withDb(
-          "writing a result",
-          () => finish(store, o.workerName, job, outcome, outcome.ok ? "complete" : "fail"),
-          true,
-        );
-        if (outcome.ok) summary.done++;
-        else summary.failed++;
-        o.onFinished?.(file, outcome.ok ? (outcome.verdict ?? "done") : `error ${outcome.error.code}`, ran.seconds);
-        return;
-      }
-      const attempt = job.retryCount + 1;
-      const attempts = job.retryLimit + 1;
-      if (attempt >= attempts) {
-        const error: WireError = {
-          code: "INTERNAL",
-          message: `internal error on attempt ${attempt} of ${attempts}: ${crash!.message}`,
-        };
-        await withDb(
-          "writing a result",
-          () =>
-            finish(
-              store,
-              o.workerName,
-              job,
-              { ok: false, lineJson: JSON.stringify(errorLine(file, error)), error },
-              "fail",
-            ),
-          true,
-        );
-        summary.failed++;
-        say(`psdgate: ${file}: ${error.message}; kept as failed`);
-        return;
-      }
-      await withDb("handing a job back", () => store.boss.fail(QUEUE_NAME, job.id, { message: crash!.message }), true);
-      summary.retried++;
-      say(
-        `psdgate: ${file}: internal error on attempt ${attempt} of ${attempts}: ${crash!.message}; it will be retried`,
-      );
-    } catch (e) {
-      if (!(e instanceof NotOurs)) throw e;
-      summary.discarded++;
-      say(`psdgate: ${file}: result not kept: ${e.message}`);
-    }
-  }
-
-  async function slot(): Promise<void> {
-    // A job's result is written while the next job runs: the database's time hides behind the analysis.
-    let recording: Promise<void> = Promise.resolve();
-    while (!signal.aborted) {
-      const job = await withDb("fetching a job", () => fetchOne(store), false);
-      if (signal.aborted) {
-        // Fetched just as we were told to stop: hand it straight back untouched.
-        if (job)
-          await withDb(
-            "handing a job back",
-            () =>
-              store.pool.query(
-                `UPDATE pgboss.job SET state = 'created', started_on = NULL WHERE name = $1 AND id = $2 AND state = 'active'`,
-                [QUEUE_NAME, job.id],
-              ),
-            true,
-          );
-        break;
-      }
-      if (job) {
-        const problem = jobProblem(job.data);
-        const ran: Ran =
-          problem === undefined ? await runOne(job) : { outcome: invalidJob(job, problem, say), seconds: 0 };
-        await recording;
-        recording = record(job, ran);
-        // Marked as handled now (a bug's error is still thrown where it is awaited, one job later).
-        recording.catch(() => undefined);
-        continue;
-      }
-      await recording;
-      if (Date.now() - lastExpire > 2000) {
-        lastExpire = Date.now();
-        // Jobs held by a worker that died are failed by timeout (and so retried) by this call.
-        await withDb("expiring lost jobs", () => store.boss.expire(), false);
-      }
-      if (o.drain && (await withDb("counting jobs", () => nothingLeft(store), false))) break;
-      await sleep(o.pollSeconds * 1000, signal);
-    }
-    await recording;
-  }
-
+  const w: WorkerState = {
+    store,
+    pool,
+    o,
+    summary: { done: 0, failed: 0, retried: 0, discarded: 0 },
+    signal: AbortSignal.any([o.signal, stopAll.signal]),
+    say: (s: string) => o.log(redact(s, store.target)),
+    dbFailures: 0,
+    lastExpire: 0,
+  };
   // A bug in one slot stops the others (they finish the job in hand) before it is thrown: no slot goes on
   // with a pool the caller closes once this returns.
   const settled = await Promise.allSettled(
     Array.from({ length: o.jobs }, () =>
-      slot().catch((e: unknown) => {
+      slot(w).catch((e: unknown) => {
         stopAll.abort();
         throw e;
       }),
@@ -360,5 +399,5 @@ export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions
   );
   const failed = settled.find((s) => s.status === "rejected");
   if (failed) throw (failed as PromiseRejectedResult).reason;
-  return summary;
+  return w.summary;
 }

@@ -94,6 +94,12 @@ export function splitRow(text: string, delimiter: Delimiter): string[] {
   return r.data[0] ?? [""];
 }
 
+/** `longer` with `a` copied to its start (a column grown). */
+function lengthened<T extends Float64Array | Uint32Array>(a: T, longer: T): T {
+  longer.set(a);
+  return longer;
+}
+
 const SPACE = 32;
 const TAB = 9;
 const CR = 13;
@@ -109,6 +115,7 @@ export class CsvBodyParser {
   private readonly scan: ScanState = { end: 0, value: 0, fractionDigits: 0, place: 0, mant: 0 };
   private readonly dateScan: DateTimeScan = { end: -1, value: 0, fractionDigits: 0, zone: 0, days: 0 };
   private readonly plain: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0, zoneMode: -1 };
+  private readonly plainSpec: PlainRowsSpec;
   /** Whether the plain-row loop may run (not with ignored columns, or whitespace between fields). */
   private readonly plainOk: boolean;
   private readonly trailing: boolean;
@@ -134,10 +141,15 @@ export class CsvBodyParser {
     this.row = new Float64Array(this.ncol);
     this.plainOk = this.delimByte >= 0 && (spec.ignoreColumns ?? []).length === 0;
     this.trailing = spec.trailingEmpty === true;
-    this.stampBase = spec.timeDateTime?.baseDays ?? NaN;
+    this.plainSpec = {
+      ncol: this.ncol,
+      delim: this.delimByte,
+      decimal: this.decimalByte,
+      timeIndex: spec.timeIndex,
+      stampBase: spec.timeDateTime?.baseDays ?? NaN,
+      trailing: this.trailing,
+    };
   }
-  /** Day the date-time stamps count from, or NaN when the time column holds numbers. */
-  private readonly stampBase: number;
 
   /**
    * Parse the lines of buf[s, e). The piece must end with a newline (buf[e - 1] is LF): the readers
@@ -173,21 +185,9 @@ export class CsvBodyParser {
     route();
     const grow = () => {
       const n = cap * 2;
-      channels = channels.map((c) => {
-        const g = new Float64Array(n);
-        g.set(c);
-        return g;
-      });
-      if (time) {
-        const g = new Float64Array(n);
-        g.set(time);
-        time = g;
-      }
-      if (rowLines) {
-        const g = new Uint32Array(n);
-        g.set(rowLines);
-        rowLines = g;
-      }
+      channels = channels.map((c) => lengthened(c, new Float64Array(n)));
+      if (time) time = lengthened(time, new Float64Array(n));
+      if (rowLines) rowLines = lengthened(rowLines, new Uint32Array(n));
       cap = n;
       route();
     };
@@ -197,21 +197,7 @@ export class CsvBodyParser {
       if (this.plainOk) {
         // Plain rows (numbers and delimiters only) in one tight loop; it stops at anything else.
         plain.zoneMode = this.zoneMode;
-        const n = plainRows(
-          buf,
-          p,
-          e,
-          outs,
-          rows,
-          cap,
-          this.ncol,
-          this.delimByte,
-          this.decimalByte,
-          this.spec.timeIndex,
-          this.stampBase,
-          this.trailing,
-          plain,
-        );
+        const n = plainRows(buf, p, e, outs, rows, cap, this.plainSpec, plain);
         this.zoneMode = plain.zoneMode;
         if (n > 0) {
           if (plain.timeMinPlace < minPlace) minPlace = plain.timeMinPlace;
@@ -441,6 +427,18 @@ export class CsvBodyParser {
 
 const SIGN = new Float64Array([1, -1]);
 
+/** What plainRows reads the rows by: fixed for a parser (CsvBodyParser's fields of the same meaning). */
+interface PlainRowsSpec {
+  ncol: number;
+  /** The delimiter and decimal mark as bytes. */
+  delim: number;
+  decimal: number;
+  timeIndex: number;
+  /** Day the date-time stamps count from, or NaN when the time column holds numbers. */
+  stampBase: number;
+  trailing: boolean;
+}
+
 interface PlainRowsState {
   /** Index of the first byte not parsed: the start of the line that stopped the loop. */
   end: number;
@@ -470,14 +468,10 @@ function plainRows(
   outs: Float64Array[],
   row0: number,
   cap: number,
-  ncol: number,
-  delim: number,
-  decimal: number,
-  timeIndex: number,
-  stampBase: number,
-  trailing: boolean,
+  spec: PlainRowsSpec,
   state: PlainRowsState,
 ): number {
+  const { ncol, delim, decimal, timeIndex, stampBase, trailing } = spec;
   let row = row0;
   let timeMaxK = -99;
   let timeMant = 0;
@@ -485,28 +479,19 @@ function plainRows(
   const last = ncol - 1;
   // The column of date-time stamps, or -1: the same scanner as the general parser's, so the same double.
   const stampCol = stampBase === stampBase ? timeIndex : -1;
+  // Start of the row being read: a line that stops the loop (`break rows`) is left whole to the caller.
+  let lineStart = p;
   rows: while (p < e && row < cap) {
-    const lineStart = p;
     for (let col = 0; col < ncol; col++) {
       if (col === stampCol) {
         scanDateTime(buf, p, stampBase, stampScan);
-        if (stampScan.end < 0 || (zone >= 0 && stampScan.zone !== zone)) {
-          p = lineStart;
-          break rows;
-        }
+        if (stampScan.end < 0 || (zone >= 0 && stampScan.zone !== zone)) break rows;
         zone = stampScan.zone;
         p = stampScan.end;
         const c = buf[p]!;
-        if (col < last) {
-          if (c !== delim) {
-            p = lineStart;
-            break rows;
-          }
-        } else if (trailing || c !== 10) {
-          // A stamp ends the row only plainly (LF); anything else goes to the general parser.
-          p = lineStart;
-          break rows;
-        }
+        // The delimiter, or after the last column LF: a stamp ends the row only plainly (LF); anything else
+        // goes to the general parser.
+        if (col < last ? c !== delim : trailing || c !== 10) break rows;
         p++;
         outs[col]![row] = stampScan.value;
         if (stampScan.fractionDigits > timeMaxK) timeMaxK = stampScan.fractionDigits;
@@ -551,35 +536,20 @@ function plainRows(
           ev = ev * 10 + (c - 48);
           c = buf[++p]!;
         }
-        if ((p - e0 - 1) >>> 0 > 2) {
-          p = lineStart;
-          break rows;
-        }
+        if ((p - e0 - 1) >>> 0 > 2) break rows;
         k += eneg === 1 ? ev : -ev;
       }
       // At most 15 digits and |k| <= 22: m and 10^|k| are exact, and one division or product rounds
       // correctly (Clinger 1990), so the double is Number()'s.
-      if ((digits - 1) >>> 0 > 14 || (k + 22) >>> 0 > 44) {
-        p = lineStart;
-        break rows;
-      }
+      if ((digits - 1) >>> 0 > 14 || (k + 22) >>> 0 > 44) break rows;
       if (col < last) {
-        if (c !== delim) {
-          p = lineStart;
-          break rows;
-        }
+        if (c !== delim) break rows;
       } else if (trailing && c !== 10 && c !== 13) {
         // The empty last column: its delimiter, then the line's end.
-        if (c !== delim || (buf[p + 1] !== 10 && (buf[p + 1] !== 13 || buf[p + 2] !== 10))) {
-          p = lineStart;
-          break rows;
-        }
+        if (c !== delim || (buf[p + 1] !== 10 && (buf[p + 1] !== 13 || buf[p + 2] !== 10))) break rows;
         p += buf[p + 1] === 13 ? 2 : 1;
       } else if (c !== 10) {
-        if (c !== 13 || buf[p + 1] !== 10) {
-          p = lineStart;
-          break rows;
-        }
+        if (c !== 13 || buf[p + 1] !== 10) break rows;
         p++;
       }
       p++;
@@ -590,8 +560,9 @@ function plainRows(
       }
     }
     row++;
+    lineStart = p;
   }
-  state.end = p;
+  state.end = lineStart;
   state.timeMinPlace = -timeMaxK;
   state.timeMaxMant = timeMant;
   state.zoneMode = zone;
@@ -605,8 +576,9 @@ function plainRows(
   const row = new Uint8Array([49, 44, 50, 10]); // "1,2\n"
   const outs = [new Float64Array(1), new Float64Array(1)];
   const state: PlainRowsState = { end: 0, timeMinPlace: 99, timeMaxMant: 0, zoneMode: -1 };
-  for (let i = 0; i < 32; i++) plainRows(row, 0, row.length, outs, 0, 1, 2, 44, 46, 0, NaN, false, state);
+  const spec: PlainRowsSpec = { ncol: 2, delim: 44, decimal: 46, timeIndex: 0, stampBase: NaN, trailing: false };
+  for (let i = 0; i < 32; i++) plainRows(row, 0, row.length, outs, 0, 1, spec, state);
   const stamped = new Uint8Array(Buffer.from("2026-03-09T08:15:00.000039,2\n", "latin1"));
-  for (let i = 0; i < 32; i++)
-    plainRows(stamped, 0, stamped.length, outs, 0, 1, 2, 44, 46, 0, 0, false, { ...state, zoneMode: -1 });
+  const stamps: PlainRowsSpec = { ncol: 2, delim: 44, decimal: 46, timeIndex: 0, stampBase: 0, trailing: false };
+  for (let i = 0; i < 32; i++) plainRows(stamped, 0, stamped.length, outs, 0, 1, stamps, { ...state, zoneMode: -1 });
 }

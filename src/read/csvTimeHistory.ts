@@ -13,7 +13,7 @@ import { roundRate, stampQuantum } from "./roundRate.js";
 import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, type TimeColumnInfo } from "./timeStampCheck.js";
 import { nonFiniteToken, numberTextResolution, parseNumberText } from "./csvNumber.js";
 import { looksLikeDateTime, parseDateTimeText } from "./dateTimeStamp.js";
-import type { BlockSink, ChannelInfo, ReadSummary, TimeHistorySource } from "./timeHistory.js";
+import type { BlockSink, ChannelInfo, CsvDialect, ReadSummary, TimeHistorySource } from "./timeHistory.js";
 
 /**
  * Streaming reader for delimited-text time histories (logger exports).
@@ -104,9 +104,17 @@ function splitNameUnit(field: string, index: number): Column {
   return { index, name: f === "" ? `col${index + 1}` : f, unitText: undefined };
 }
 
+/** A line of the head: its text (no line end), 1-based number, and byte offsets of its start and past its LF. */
+interface HeadLine {
+  text: string;
+  line: number;
+  start: number;
+  end: number;
+}
+
 /** Lines of the head, with their byte offsets and 1-based numbers; comments and blank lines skipped. */
-function headLines(head: Buffer, wholeFile: boolean): { text: string; line: number; start: number; end: number }[] {
-  const out: { text: string; line: number; start: number; end: number }[] = [];
+function headLines(head: Buffer, wholeFile: boolean): HeadLine[] {
+  const out: HeadLine[] = [];
   let pos = head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf ? 3 : 0;
   let line = 1;
   while (pos < head.length) {
@@ -186,13 +194,19 @@ function sampleRow(row: string[]): boolean {
   return true;
 }
 
+interface DataStart {
+  k: number;
+  consistent: boolean;
+  trailing: boolean;
+}
+
 /**
  * Where the data begins when the rows are split on one delimiter: the first row of samples (k, or -1
  * when there is none). `consistent` says whether every sniffed row after it is one too, with the same
  * number of fields; `trailing` whether it ends with an empty field. Rows before k are the
  * header, a units row and a preamble.
  */
-function dataStart(rows: string[][]): { k: number; consistent: boolean; trailing: boolean } {
+function dataStart(rows: string[][]): DataStart {
   const k = rows.findIndex(sampleRow);
   if (k < 0) return { k, consistent: false, trailing: false };
   const count = rows[k]!.length;
@@ -203,7 +217,8 @@ function dataStart(rows: string[][]): { k: number; consistent: boolean; trailing
   return { k, consistent, trailing: rows[k]![count - 1]!.trim() === "" };
 }
 
-function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOptions): Dialect {
+/** The head's bytes refused before its lines are read: empty, UTF-16, binary, CR-only line ends, no LF in the head. */
+function checkHeadBytes(file: string, head: Buffer, wholeFile: boolean): void {
   if (head.length === 0)
     throw new InputError("CSV_EMPTY", { file, expected: "a CSV time history", received: "an empty file" });
   if ((head[0] === 0xff && head[1] === 0xfe) || (head[0] === 0xfe && head[1] === 0xff)) {
@@ -246,7 +261,11 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
         received: "a longer line",
       });
   }
-  let lines = headLines(head, wholeFile).slice(0, 256);
+}
+
+/** The head's first 256 lines of content; refused when there are none, or the first is too long. */
+function sniffedLines(file: string, head: Buffer, wholeFile: boolean): HeadLine[] {
+  const lines = headLines(head, wholeFile).slice(0, 256);
   if (lines.length === 0)
     throw new InputError("CSV_NO_DATA", {
       file,
@@ -262,44 +281,74 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
       received: "a longer line",
     });
   }
+  return lines;
+}
 
-  let delimiter: Delimiter | undefined = opts.delimiter;
-  // A spreadsheet's `sep=;` first line names the delimiter; an option given by the user still wins.
+/**
+ * A spreadsheet's `sep=;` first line names the delimiter; an option given by the user still wins.
+ * Returns the delimiter so far, the sep= line's number, and the lines after it.
+ */
+function readSepLine(
+  file: string,
+  lines: HeadLine[],
+  given: Delimiter | undefined,
+): { delimiter: Delimiter | undefined; sepLine: number | undefined; lines: HeadLine[] } {
+  const first = lines[0]!;
   const sep = /^\s*"?sep=(.)"?\s*$/i.exec(first.text);
-  let sepLine: number | undefined;
-  if (sep) {
-    const d = sep[1] === "\t" ? "\t" : sep[1];
-    if (d !== "," && d !== ";" && d !== "\t")
-      throw new InputError("CSV_SEP_LINE", {
-        file,
-        line: first.line,
-        expected: "sep=, sep=; or sep=<tab>",
-        received: quoted(first.text.trim()),
-      });
-    delimiter ??= d;
-    sepLine = first.line;
-    lines = lines.slice(1);
-    if (lines.length === 0)
-      throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "a sep= line only" });
-  }
-  // A candidate must split the data rows at the end of the head into the same number (>= 2) of
-  // fields that read as numbers (either decimal mark) or date-time stamps: mixed space/tab alignment
-  // splits consistently on tabs but gives fields like "0.00   1.5", so it falls through to whitespace.
-  let found: { k: number; consistent: boolean; trailing: boolean } = { k: -1, consistent: false, trailing: false };
-  if (delimiter === undefined) {
-    // The first delimiter (in this order) under which all rows after the first row of samples agree;
-    // failing that (a bad cell in the head), the first that finds a row of samples at all.
-    const order = ["\t", ";", ",", "whitespace"] as const;
-    const tries = order.map((d) => dataStart(lines.map((l) => splitRow(l.text, d))));
-    let i = tries.findIndex((f) => f.k >= 0 && f.consistent);
-    if (i < 0) i = tries.findIndex((f) => f.k >= 0);
-    delimiter = i >= 0 ? order[i]! : ",";
-    if (i >= 0) found = tries[i]!;
-  } else found = dataStart(lines.map((l) => splitRow(l.text, delimiter!)));
+  if (!sep) return { delimiter: given, sepLine: undefined, lines };
+  const d = sep[1] === "\t" ? "\t" : sep[1];
+  if (d !== "," && d !== ";" && d !== "\t")
+    throw new InputError("CSV_SEP_LINE", {
+      file,
+      line: first.line,
+      expected: "sep=, sep=; or sep=<tab>",
+      received: quoted(first.text.trim()),
+    });
+  const rest = lines.slice(1);
+  if (rest.length === 0)
+    throw new InputError("CSV_NO_DATA", { file, expected: "rows of samples", received: "a sep= line only" });
+  return { delimiter: given ?? d, sepLine: first.line, lines: rest };
+}
 
-  const rows = lines.map((l) => splitRow(l.text, delimiter!).map((f) => f.trim()));
-  // Rows before the data: a header (the row just before), a units row under it, and a preamble.
+/**
+ * The delimiter (the one given, else found) and where the data begins under it. A candidate must split the
+ * data rows at the end of the head into the same number (>= 2) of fields that read as numbers (either decimal
+ * mark) or date-time stamps: mixed space/tab alignment splits consistently on tabs but gives fields like
+ * "0.00   1.5", so it falls through to whitespace.
+ */
+function chooseDelimiter(lines: HeadLine[], given: Delimiter | undefined): { delimiter: Delimiter; found: DataStart } {
+  if (given !== undefined) return { delimiter: given, found: dataStart(lines.map((l) => splitRow(l.text, given))) };
+  // The first delimiter (in this order) under which all rows after the first row of samples agree;
+  // failing that (a bad cell in the head), the first that finds a row of samples at all.
+  const order = ["\t", ";", ",", "whitespace"] as const;
+  const tries = order.map((d) => dataStart(lines.map((l) => splitRow(l.text, d))));
+  let i = tries.findIndex((f) => f.k >= 0 && f.consistent);
+  if (i < 0) i = tries.findIndex((f) => f.k >= 0);
+  return {
+    delimiter: i >= 0 ? order[i]! : ",",
+    found: i >= 0 ? tries[i]! : { k: -1, consistent: false, trailing: false },
+  };
+}
+
+/** The rows before the data, as sniff reads them: where the data begins, header and units row, columns. */
+interface HeadRows {
+  /** Index of the first row of samples. */
+  k: number;
+  header: string[] | undefined;
+  headerIndex: number;
+  units: string[] | undefined;
+  unitIndex: number;
+  columns: number;
+  trailing: boolean;
+}
+
+/**
+ * Rows before the data: a header (the row just before), a units row under it, and a preamble. The header
+ * sets the number of columns; a row of samples with another count is named by the body pass.
+ */
+function headRows(rows: string[][], found: DataStart): HeadRows {
   let k = found.k;
+  let trailing = found.trailing;
   if (k < 0) {
     // No data rows in the head: the first row is a header (if it is not numbers), and what follows is checked by the body pass.
     k = rows[0]!.every(dataField) ? 0 : 1;
@@ -310,7 +359,7 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
   let units: string[] | undefined;
   let unitIndex = -1;
   if (k > 0) {
-    const fits = (r: string[]) => r.length === count || (found.trailing && r.length === count - 1);
+    const fits = (r: string[]) => r.length === count || (trailing && r.length === count - 1);
     if (
       k >= 2 &&
       unitsRow(rows[k - 1]!, rows[k - 2]!) &&
@@ -324,18 +373,28 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
     } else headerIndex = k - 1;
     header = rows[headerIndex];
   }
-  // The header sets the number of columns; a row of samples with another count is named by the body pass.
-  let columnsCount = found.trailing ? count - 1 : count;
-  if (header && header.length !== columnsCount && !(found.trailing && header.length === count)) {
-    columnsCount = header.length;
-    found.trailing = false;
+  let columns = trailing ? count - 1 : count;
+  if (header && header.length !== columns && !(trailing && header.length === count)) {
+    columns = header.length;
+    trailing = false;
   }
-  const preamble = lines.slice(0, Math.max(0, headerIndex)).map((l) => l.text.trim());
-  if (header) header = header.slice(0, columnsCount);
-  if (units) units = units.slice(0, columnsCount);
+  if (header) header = header.slice(0, columns);
+  if (units) units = units.slice(0, columns);
+  return { k, header, headerIndex, units, unitIndex, columns, trailing };
+}
 
-  let decimal: "." | "," | undefined = opts.decimal;
-  if (decimal === ",") {
+/**
+ * The decimal mark: the one given (a comma not with a comma delimiter), else a comma when the body's fields
+ * (the rows from the first row of samples, `line`) hold numbers with decimal commas and none with points.
+ */
+function chooseDecimal(
+  file: string,
+  given: "." | "," | undefined,
+  delimiter: Delimiter,
+  bodyRows: string[][],
+  line: number | undefined,
+): "." | "," {
+  if (given === ",") {
     if (delimiter === ",") {
       throw new InputError("OPTION_CONFLICT", {
         option: "csv.decimal",
@@ -344,25 +403,33 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
         hint: 'add `csv.delimiter: ";"`',
       });
     }
-  } else if (decimal === undefined) {
-    const body = rows.slice(k).flat();
-    const commaNum = body.some((f) => /^[+-]?\d*,\d+([eE][+-]?\d+)?$/.test(f));
-    const pointNum = body.some((f) => /^[+-]?\d*\.\d+([eE][+-]?\d+)?$/.test(f));
-    if (commaNum && delimiter !== ",") {
-      if (pointNum) {
-        throw new InputError("CSV_DECIMAL_AMBIGUOUS", {
-          file,
-          line: lines[k]?.line,
-          expected: "one decimal mark throughout",
-          received: "both '.' and ',' in numbers",
-          hint: 'declare it with `csv.decimal: "."` or `csv.decimal: ","`',
-        });
-      }
-      decimal = ",";
-    } else decimal = ".";
+    return given;
   }
+  if (given !== undefined) return given;
+  const body = bodyRows.flat();
+  const commaNum = body.some((f) => /^[+-]?\d*,\d+([eE][+-]?\d+)?$/.test(f));
+  const pointNum = body.some((f) => /^[+-]?\d*\.\d+([eE][+-]?\d+)?$/.test(f));
+  if (!commaNum || delimiter === ",") return ".";
+  if (pointNum) {
+    throw new InputError("CSV_DECIMAL_AMBIGUOUS", {
+      file,
+      line,
+      expected: "one decimal mark throughout",
+      received: "both '.' and ',' in numbers",
+      hint: 'declare it with `csv.decimal: "."` or `csv.decimal: ","`',
+    });
+  }
+  return ",";
+}
 
-  const body = lines[k];
+/** The first row of samples' line; refused when the head has none (`first` is the head's first line). */
+function firstBodyLine(
+  file: string,
+  head: Buffer,
+  wholeFile: boolean,
+  body: HeadLine | undefined,
+  first: HeadLine,
+): HeadLine {
   if (body === undefined && !wholeFile) {
     // More follows, but no whole row within the head: the line after the header is too long to sniff.
     const line = head.toString("latin1").split("\n").length;
@@ -381,21 +448,36 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
       received: "a header only",
     });
   }
+  return body;
+}
+
+/** The dialect of a delimited-text head: delimiter, decimal mark, header, units row, preamble, first body row. */
+function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOptions): Dialect {
+  checkHeadBytes(file, head, wholeFile);
+  const all = sniffedLines(file, head, wholeFile);
+  const sep = readSepLine(file, all, opts.delimiter);
+  const lines = sep.lines;
+  const { delimiter, found } = chooseDelimiter(lines, sep.delimiter);
+  const rows = lines.map((l) => splitRow(l.text, delimiter).map((f) => f.trim()));
+  const h = headRows(rows, found);
+  const preamble = lines.slice(0, Math.max(0, h.headerIndex)).map((l) => l.text.trim());
+  const decimal = chooseDecimal(file, opts.decimal, delimiter, rows.slice(h.k), lines[h.k]?.line);
+  const body = firstBodyLine(file, head, wholeFile, lines[h.k], all[0]!);
   return {
     delimiter,
     decimal,
-    header,
-    columns: columnsCount,
-    trailingEmpty: found.trailing,
+    header: h.header,
+    columns: h.columns,
+    trailingEmpty: h.trailing,
     bodyStart: body.start,
     bodyLine: body.line,
-    headerLine: headerIndex >= 0 ? lines[headerIndex]!.line : undefined,
-    units,
-    unitLine: unitIndex >= 0 ? lines[unitIndex]!.line : undefined,
+    headerLine: h.headerIndex >= 0 ? lines[h.headerIndex]!.line : undefined,
+    units: h.units,
+    unitLine: h.unitIndex >= 0 ? lines[h.unitIndex]!.line : undefined,
     preamble,
     preambleLines: preamble.length,
-    sepLine,
-    firstRow: rows[k]!,
+    sepLine: sep.sepLine,
+    firstRow: rows[h.k]!,
   };
 }
 
@@ -433,22 +515,23 @@ function startBodyWorker(): BodyWorker {
   return { thread, ended };
 }
 
-async function openSniffed(
-  file: string,
-  size: number,
-  opts: CsvReadOptions,
-  worker: BodyWorker | undefined,
-): Promise<TimeHistorySource> {
+/** The first HEAD_BYTES of the file (the whole of a smaller one). */
+async function readHead(file: string, size: number): Promise<Buffer> {
   const fh = await open(file, "r");
-  let head: Buffer;
   try {
     const buf = Buffer.alloc(Math.min(HEAD_BYTES, size));
     const { bytesRead } = await fh.read(buf, 0, buf.length, 0);
-    head = buf.subarray(0, bytesRead);
+    return buf.subarray(0, bytesRead);
   } finally {
     await fh.close();
   }
-  const dialect = sniff(file, head, head.length >= size, opts);
+}
+
+/**
+ * The columns: names and units from the header (`ch1`, `ch2`, … without one), and each non-empty field of a
+ * units row under it as its column's unit (agreeing with the header's); the names distinct.
+ */
+function readColumns(file: string, dialect: Dialect): Column[] {
   const columns: Column[] = [];
   for (let i = 0; i < dialect.columns; i++)
     columns.push(
@@ -488,10 +571,33 @@ async function openSniffed(
       seen.set(c.name.toLowerCase(), c.index);
     }
   }
-  const unitLine = dialect.unitLine ?? dialect.headerLine ?? 1;
+  return columns;
+}
 
-  // Time column: named by the option, else by its header, else the first column of date-time stamps.
-  // With --no-time-column it is still found, and left out of the channels (neither time nor a channel).
+/** The time column as the head and the options give it. */
+interface TimeColumnChoice {
+  /** Index of the time column used, or -1. */
+  timeIndex: number;
+  /** Index of a time column found and left unused, as asked (`csv.timeColumn: false`), or -1. */
+  ignoredTime: number;
+  /** The time column (used or not) holds date-time stamps. */
+  dateTime: boolean;
+  /** Seconds a unit of the time column's numbers. */
+  timeFactor: number;
+  /** Whether the time unit is said (header, units row, `csv.timeUnit`), or the column holds date-time stamps. */
+  timeUnitDeclared: boolean;
+}
+
+/**
+ * Time column: named by the option, else by its header, else the first column of date-time stamps.
+ * With --no-time-column it is still found, and left out of the channels (neither time nor a channel).
+ */
+function findTimeColumn(
+  file: string,
+  opts: CsvReadOptions,
+  dialect: Dialect,
+  columns: Column[],
+): Pick<TimeColumnChoice, "timeIndex" | "ignoredTime" | "dateTime"> {
   let timeIndex = -1;
   if (opts.timeColumn !== undefined && opts.timeColumn !== false) {
     const tc = opts.timeColumn;
@@ -515,56 +621,81 @@ async function openSniffed(
       timeIndex = dialect.firstRow.slice(0, columns.length).findIndex((f) => looksLikeDateTime(f.replace(/"/g, "")));
   }
   const dateTime = timeIndex >= 0 && looksLikeDateTime((dialect.firstRow[timeIndex] ?? "").replace(/"/g, ""));
-  let ignoredTime = -1;
-  if (opts.timeColumn === false && timeIndex >= 0) {
-    ignoredTime = timeIndex;
-    timeIndex = -1;
-  }
+  if (opts.timeColumn === false && timeIndex >= 0) return { timeIndex: -1, ignoredTime: timeIndex, dateTime };
+  return { timeIndex, ignoredTime: -1, dateTime };
+}
+
+/**
+ * The unit of the time column used (`column`, undefined for none) in seconds: from its header or units row
+ * (`unitLine`), or from `csv.timeUnit`, which must agree with it; none for date-time stamps.
+ */
+function timeColumnUnit(
+  file: string,
+  opts: CsvReadOptions,
+  column: Column | undefined,
+  dateTime: boolean,
+  unitLine: number,
+): Pick<TimeColumnChoice, "timeFactor" | "timeUnitDeclared"> {
   let timeFactor = 1;
   let timeUnitDeclared = dateTime;
-  if (timeIndex >= 0 && dateTime) {
+  if (column === undefined) return { timeFactor, timeUnitDeclared };
+  if (dateTime) {
     if (opts.timeUnit !== undefined) {
       throw new InputError("OPTION_CONFLICT", {
         file,
         option: "csv.timeUnit",
-        field: columns[timeIndex]!.name,
+        field: column.name,
         expected: "no time unit for a column of date-time stamps",
         received: opts.timeUnit,
       });
     }
-  } else if (timeIndex >= 0) {
-    const u = columns[timeIndex]!.unitText;
-    if (u !== undefined) {
-      const f = TIME_UNITS[u.toLowerCase()];
-      if (f === undefined) {
-        throw new InputError("CSV_TIME_UNIT", {
-          file,
-          line: unitLine,
-          column: timeIndex + 1,
-          expected: "a time unit (s, ms, us)",
-          received: quoted(u),
-        });
-      }
-      timeFactor = f;
-      timeUnitDeclared = true;
-    }
-    if (opts.timeUnit !== undefined) {
-      const f = TIME_UNITS[opts.timeUnit === "serial-days" ? "days" : opts.timeUnit]!;
-      if (timeUnitDeclared && f !== timeFactor) {
-        throw new InputError("OPTION_CONFLICT", {
-          file,
-          option: "csv.timeUnit",
-          field: columns[timeIndex]!.name,
-          expected: `the header's time unit ${quoted(u!)}`,
-          received: opts.timeUnit,
-          hint: "drop `csv.timeUnit` (the header already says), or fix the header",
-        });
-      }
-      timeFactor = f;
-      timeUnitDeclared = true;
-    }
+    return { timeFactor, timeUnitDeclared };
   }
-  if (timeIndex < 0 && opts.sampleRateHz === undefined) {
+  const u = column.unitText;
+  if (u !== undefined) {
+    const f = TIME_UNITS[u.toLowerCase()];
+    if (f === undefined) {
+      throw new InputError("CSV_TIME_UNIT", {
+        file,
+        line: unitLine,
+        column: column.index + 1,
+        expected: "a time unit (s, ms, us)",
+        received: quoted(u),
+      });
+    }
+    timeFactor = f;
+    timeUnitDeclared = true;
+  }
+  if (opts.timeUnit !== undefined) {
+    const f = TIME_UNITS[opts.timeUnit === "serial-days" ? "days" : opts.timeUnit]!;
+    if (timeUnitDeclared && f !== timeFactor) {
+      throw new InputError("OPTION_CONFLICT", {
+        file,
+        option: "csv.timeUnit",
+        field: column.name,
+        expected: `the header's time unit ${quoted(u!)}`,
+        received: opts.timeUnit,
+        hint: "drop `csv.timeUnit` (the header already says), or fix the header",
+      });
+    }
+    timeFactor = f;
+    timeUnitDeclared = true;
+  }
+  return { timeFactor, timeUnitDeclared };
+}
+
+/** The time column, its stamps' kind and its unit (errors in that order); then a rate must be known. */
+function chooseTimeColumn(
+  file: string,
+  opts: CsvReadOptions,
+  dialect: Dialect,
+  columns: Column[],
+  unitLine: number,
+): TimeColumnChoice {
+  const found = findTimeColumn(file, opts, dialect, columns);
+  const column = found.timeIndex >= 0 ? columns[found.timeIndex] : undefined;
+  const time = { ...found, ...timeColumnUnit(file, opts, column, found.dateTime, unitLine) };
+  if (time.timeIndex < 0 && opts.sampleRateHz === undefined) {
     throw new InputError("CSV_NO_RATE", {
       file,
       expected: "a time column (header 'time', 't', 'time [ms]', …) or a sample rate",
@@ -575,7 +706,19 @@ async function openSniffed(
           : "give `csv.sampleRateHz: HZ`, or `csv.timeColumn: NAME`",
     });
   }
-  const skip = timeIndex >= 0 ? timeIndex : ignoredTime;
+  return time;
+}
+
+/**
+ * The channels: every column but the time column (`skip`, used or left unused), with the units their
+ * headers or the units row (`unitLine`) declare.
+ */
+function channelColumns(
+  file: string,
+  columns: Column[],
+  skip: number,
+  unitLine: number,
+): { channelCols: Column[]; channels: ChannelInfo[] } {
   const channelCols = columns.filter((c) => c.index !== skip);
   if (channelCols.length === 0)
     throw new InputError("CSV_NO_CHANNELS", {
@@ -595,45 +738,103 @@ async function openSniffed(
       unitPlace: { line: unitLine, column: c.index + 1 },
     };
   });
+  return { channelCols, channels };
+}
+
+/**
+ * Provisional rate from the sniffed rows (NaN without two finite stamps); the final one comes from the whole
+ * time column. It is snapped by the rule the whole column's rate follows (read/roundRate.ts), on the head's
+ * stamps and their printed resolution, so the segment chosen for a resolution is the one the final rate gives.
+ * Date-time stamps (`baseDays` defined) count seconds from that day; numbers are in units of `timeFactor` s.
+ */
+function headRate(
+  head: Buffer,
+  wholeFile: boolean,
+  dialect: Dialect,
+  timeIndex: number,
+  baseDays: number | undefined,
+  timeFactor: number,
+): number {
+  let minPlace = 99;
+  let maxSig = 0;
+  const times = headLines(head, wholeFile)
+    .filter((l) => l.start >= dialect.bodyStart)
+    .map((l) => {
+      const f = (splitRow(l.text, dialect.delimiter)[timeIndex] ?? "").replace(/"/g, "").trim();
+      if (baseDays !== undefined) {
+        const scan = parseDateTimeText(f, baseDays);
+        if (scan) minPlace = Math.min(minPlace, -scan.fractionDigits);
+        return scan?.value ?? NaN;
+      }
+      const v = parseNumberText(f, dialect.decimal) * timeFactor;
+      if (Number.isFinite(v)) {
+        const r = numberTextResolution(dialect.decimal === "," ? f.replace(",", ".") : f);
+        minPlace = Math.min(minPlace, r.place);
+        if (r.mant > 0) maxSig = Math.max(maxSig, Math.floor(Math.log10(r.mant)) + 1);
+      }
+      return v;
+    })
+    .filter((t) => Number.isFinite(t));
+  if (times.length < 2) return NaN;
+  const t0 = times[0]!;
+  const t1 = times[times.length - 1]!;
+  const estimate = (times.length - 1) / (t1 - t0);
+  const k = baseDays !== undefined ? 1 : timeFactor;
+  const quantum = stampQuantum(minPlace, maxSig, Math.max(Math.abs(t0), Math.abs(t1)) / k) * k;
+  return roundRate(estimate, (estimate * quantum) / (t1 - t0));
+}
+
+/** The layout line of the report: delimiter, decimal mark, header and units rows, time column, preamble. */
+function layoutText(dialect: Dialect, columns: Column[], time: TimeColumnChoice): string {
+  const { timeIndex, ignoredTime, dateTime } = time;
+  const delimName =
+    dialect.delimiter === "\t" ? "tab" : dialect.delimiter === "whitespace" ? "whitespace" : `'${dialect.delimiter}'`;
+  return (
+    `delimited text, ${delimName} delimiter${dialect.sepLine !== undefined ? " (from its sep= line)" : ""}, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${dialect.units ? " and units row" : ""}` +
+    `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used, as asked` : ""}` +
+    `${dialect.trailingEmpty ? ", empty last column ignored" : ""}${dialect.preambleLines > 0 ? `, ${dialect.preambleLines} preamble line${dialect.preambleLines > 1 ? "s" : ""} before the header kept as metadata` : ""}`
+  );
+}
+
+/** What the report says of the dialect (RecordingInfo.dialect). */
+function dialectInfo(dialect: Dialect, columns: Column[], time: TimeColumnChoice, opts: CsvReadOptions): CsvDialect {
+  const { timeIndex, ignoredTime, dateTime, timeFactor } = time;
+  return {
+    delimiter: dialect.delimiter,
+    decimal: dialect.decimal,
+    header: dialect.header !== undefined,
+    unitsRow: dialect.units !== undefined,
+    preambleLines: dialect.preambleLines,
+    timeColumn: timeIndex >= 0 ? columns[timeIndex]!.name : null,
+    ignoredTimeColumn: ignoredTime >= 0 ? columns[ignoredTime]!.name : null,
+    timeUnitS: timeIndex >= 0 && !dateTime ? timeFactor : null,
+    dateTimeStamps: dateTime && timeIndex >= 0,
+    rateFrom: opts.sampleRateHz !== undefined ? "given" : "time column",
+    trailingEmptyColumn: dialect.trailingEmpty === true,
+  };
+}
+
+/** A CSV source from its sniffed head: what it holds (info), and a read of its body (on `worker`, if given, once). */
+async function openSniffed(
+  file: string,
+  size: number,
+  opts: CsvReadOptions,
+  worker: BodyWorker | undefined,
+): Promise<TimeHistorySource> {
+  const head = await readHead(file, size);
+  const dialect = sniff(file, head, head.length >= size, opts);
+  const columns = readColumns(file, dialect);
+  const unitLine = dialect.unitLine ?? dialect.headerLine ?? 1;
+  const time = chooseTimeColumn(file, opts, dialect, columns, unitLine);
+  const { timeIndex, ignoredTime, dateTime, timeFactor, timeUnitDeclared } = time;
+  const { channelCols, channels } = channelColumns(file, columns, timeIndex >= 0 ? timeIndex : ignoredTime, unitLine);
 
   // Date-time stamps count seconds from the first stamp's day.
   const firstScan =
     dateTime && timeIndex >= 0 ? parseDateTimeText(dialect.firstRow[timeIndex]!.replace(/"/g, "")) : undefined;
   const baseDays = firstScan?.days;
-  // Provisional rate from the sniffed rows; the final one comes from the whole time column.
-  // It is snapped by the rule the whole column's rate follows (read/roundRate.ts), on the head's stamps and
-  // their printed resolution, so the segment chosen for a resolution is the one the final rate gives.
-  let columnRate = NaN;
-  if (timeIndex >= 0) {
-    let minPlace = 99;
-    let maxSig = 0;
-    const times = headLines(head, head.length >= size)
-      .filter((l) => l.start >= dialect.bodyStart)
-      .map((l) => {
-        const f = (splitRow(l.text, dialect.delimiter)[timeIndex] ?? "").replace(/"/g, "").trim();
-        if (baseDays !== undefined) {
-          const scan = parseDateTimeText(f, baseDays);
-          if (scan) minPlace = Math.min(minPlace, -scan.fractionDigits);
-          return scan?.value ?? NaN;
-        }
-        const v = parseNumberText(f, dialect.decimal) * timeFactor;
-        if (Number.isFinite(v)) {
-          const r = numberTextResolution(dialect.decimal === "," ? f.replace(",", ".") : f);
-          minPlace = Math.min(minPlace, r.place);
-          if (r.mant > 0) maxSig = Math.max(maxSig, Math.floor(Math.log10(r.mant)) + 1);
-        }
-        return v;
-      })
-      .filter((t) => Number.isFinite(t));
-    if (times.length >= 2) {
-      const t0 = times[0]!;
-      const t1 = times[times.length - 1]!;
-      const estimate = (times.length - 1) / (t1 - t0);
-      const k = baseDays !== undefined ? 1 : timeFactor;
-      const quantum = stampQuantum(minPlace, maxSig, Math.max(Math.abs(t0), Math.abs(t1)) / k) * k;
-      columnRate = roundRate(estimate, (estimate * quantum) / (t1 - t0));
-    }
-  }
+  const columnRate =
+    timeIndex >= 0 ? headRate(head, head.length >= size, dialect, timeIndex, baseDays, timeFactor) : NaN;
   const timeCol: TimeColumnInfo | undefined =
     timeIndex >= 0
       ? {
@@ -653,8 +854,6 @@ async function openSniffed(
   }
   const provisionalRate = opts.sampleRateHz ?? columnRate;
 
-  const delimName =
-    dialect.delimiter === "\t" ? "tab" : dialect.delimiter === "whitespace" ? "whitespace" : `'${dialect.delimiter}'`;
   return {
     info: {
       file,
@@ -662,27 +861,12 @@ async function openSniffed(
       sampleRateHz: provisionalRate,
       channels,
       bytes: size,
-      layout:
-        `delimited text, ${delimName} delimiter${dialect.sepLine !== undefined ? " (from its sep= line)" : ""}, decimal '${dialect.decimal}', ${dialect.header ? "header row" : "no header"}${dialect.units ? " and units row" : ""}` +
-        `${timeIndex >= 0 ? `, time column ${quoted(columns[timeIndex]!.name)}${dateTime ? " (date-time stamps)" : ""}` : ignoredTime >= 0 ? `, time column ${quoted(columns[ignoredTime]!.name)} not used, as asked` : ""}` +
-        `${dialect.trailingEmpty ? ", empty last column ignored" : ""}${dialect.preambleLines > 0 ? `, ${dialect.preambleLines} preamble line${dialect.preambleLines > 1 ? "s" : ""} before the header kept as metadata` : ""}`,
+      layout: layoutText(dialect, columns, time),
       preamble: dialect.preamble.length > 0 ? dialect.preamble : undefined,
       firstStamp: firstScan
         ? { baseDays: firstScan.days, seconds: firstScan.value, zoned: firstScan.zone !== 0 }
         : undefined,
-      dialect: {
-        delimiter: dialect.delimiter,
-        decimal: dialect.decimal,
-        header: dialect.header !== undefined,
-        unitsRow: dialect.units !== undefined,
-        preambleLines: dialect.preambleLines,
-        timeColumn: timeIndex >= 0 ? columns[timeIndex]!.name : null,
-        ignoredTimeColumn: ignoredTime >= 0 ? columns[ignoredTime]!.name : null,
-        timeUnitS: timeIndex >= 0 && !dateTime ? timeFactor : null,
-        dateTimeStamps: dateTime && timeIndex >= 0,
-        rateFrom: opts.sampleRateHz !== undefined ? "given" : "time column",
-        trailingEmptyColumn: dialect.trailingEmpty === true,
-      },
+      dialect: dialectInfo(dialect, columns, time, opts),
     },
     read: (select, sink, onProgress) => {
       // The worker serves one read; a later read of the same source parses here.

@@ -76,180 +76,233 @@ function printable(id: string): boolean {
   return /^[\x20-\x7e]{4}$/.test(id);
 }
 
-export async function openWavTimeHistory(file: string): Promise<TimeHistorySource> {
-  const { size } = await stat(file);
-  let fmt: WavFormat | undefined;
-  let dataStart = -1;
-  let dataBytes = 0;
-  let calibration: { unit: UnitSpec; text: string; scale: number } | undefined;
-  let rf64 = false;
-  let note = "";
-  const fd = openSync(file, "r");
-  try {
-    const r = new WindowReader(fd, size);
-    const hdr = r.at(0, 12);
-    if (hdr.length < 12)
-      throw new InputError("WAV_TRUNCATED_HEADER", {
+/** psdgate's calibration chunk as read: the unit (parsed, and as written) and the scale to it. */
+interface WavCalibration {
+  unit: UnitSpec;
+  text: string;
+  scale: number;
+}
+
+/** The chunk walk: where it reads, and what it has found so far. */
+interface ChunkWalk {
+  file: string;
+  r: WindowReader;
+  size: number;
+  /** An RF64/BW64 file (EBU Tech 3306). */
+  rf64: boolean;
+  /** The data chunk's 64-bit size from the ds64 chunk. */
+  ds64Data: number | undefined;
+  fmt: WavFormat | undefined;
+  /** Offset of the data chunk's samples (-1 before it is found), and their bytes. */
+  dataStart: number;
+  dataBytes: number;
+  calibration: WavCalibration | undefined;
+  /** Said after the layout (an unfinished recording read to the end). */
+  note: string;
+}
+
+/** The 12-byte RIFF/WAVE header: refused unless little-endian RIFF, RF64 or BW64; returns whether RF64/BW64. */
+function readRiffHeader(file: string, r: WindowReader): boolean {
+  const hdr = r.at(0, 12);
+  if (hdr.length < 12)
+    throw new InputError("WAV_TRUNCATED_HEADER", {
+      file,
+      expected: "a 12-byte RIFF/WAVE header",
+      received: `${hdr.length} bytes`,
+    });
+  const riff = hdr.toString("latin1", 0, 4);
+  if (
+    (riff !== "RIFF" && riff !== "RIFX" && riff !== "RF64" && riff !== "BW64") ||
+    hdr.toString("latin1", 8, 12) !== "WAVE"
+  ) {
+    throw new InputError("WAV_NOT_RIFF", {
+      file,
+      expected: "a RIFF/WAVE file (or RF64/BW64)",
+      received: JSON.stringify(hdr.toString("latin1", 0, 4)),
+    });
+  }
+  if (riff === "RIFX")
+    throw new InputError("WAV_UNSUPPORTED_ENCODING", {
+      file,
+      expected: "little-endian RIFF",
+      received: "big-endian RIFX",
+    });
+  return riff !== "RIFF";
+}
+
+/**
+ * The ds64 chunk at `pos` (RF64/BW64, EBU Tech 3306, 2009): first, and holding the 64-bit sizes of the RIFF
+ * and data chunks, whose 32-bit size fields then say 0xFFFFFFFF. Returns the data chunk's size.
+ */
+function ds64Chunk(w: ChunkWalk, pos: number, len: number): number {
+  const { file, rf64 } = w;
+  if (!rf64 || pos !== 12 || len < 28) {
+    throw new InputError("WAV_BAD_DS64", {
+      file,
+      chunk: "ds64",
+      expected: "one ds64 chunk of at least 28 bytes, first in an RF64/BW64 file",
+      received: !rf64 ? "a ds64 chunk in a RIFF file" : pos !== 12 ? "a ds64 chunk after others" : `${len} bytes`,
+    });
+  }
+  const d = w.r.at(pos + 8, 28);
+  if (d.length < 28)
+    throw new InputError("WAV_TRUNCATED_HEADER", {
+      file,
+      chunk: "ds64",
+      expected: "a 28-byte ds64 chunk",
+      received: `${d.length} bytes`,
+    });
+  return Number(d.readBigUInt64LE(8));
+}
+
+/** The format chunk whose body starts at `body`: one, whole, and of an extensible format only the KSDATAFORMAT family. */
+function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
+  const { file, size } = w;
+  if (w.fmt !== undefined)
+    throw new InputError("WAV_DUPLICATE_CHUNK", {
+      file,
+      chunk: "fmt ",
+      expected: "one format chunk",
+      received: "a second 'fmt ' chunk",
+    });
+  if (len < 16)
+    throw new InputError("WAV_BAD_FMT", {
+      file,
+      chunk: "fmt ",
+      expected: "a format chunk of at least 16 bytes",
+      received: `${len} bytes`,
+    });
+  if (body + len > size)
+    throw new InputError("WAV_BAD_FMT", {
+      file,
+      chunk: "fmt ",
+      expected: `the ${len} bytes its chunk header gives`,
+      received: `${Math.max(0, size - body)} bytes before the file ends`,
+    });
+  const f = Buffer.from(w.r.at(body, Math.min(len, 40)));
+  let tag = f.readUInt16LE(0);
+  if (tag === 0xfffe) {
+    if (f.length < 40)
+      throw new InputError("WAV_BAD_FMT", {
         file,
-        expected: "a 12-byte RIFF/WAVE header",
-        received: `${hdr.length} bytes`,
+        chunk: "fmt ",
+        expected: "an extensible format chunk of 40 bytes",
+        received: `${len} bytes`,
       });
-    const riff = hdr.toString("latin1", 0, 4);
-    if (
-      (riff !== "RIFF" && riff !== "RIFX" && riff !== "RF64" && riff !== "BW64") ||
-      hdr.toString("latin1", 8, 12) !== "WAVE"
-    ) {
-      throw new InputError("WAV_NOT_RIFF", {
-        file,
-        expected: "a RIFF/WAVE file (or RF64/BW64)",
-        received: JSON.stringify(hdr.toString("latin1", 0, 4)),
-      });
-    }
-    if (riff === "RIFX")
+    tag = f.readUInt16LE(24);
+    if (!f.subarray(26, 40).equals(SUBTYPE_TAIL)) {
       throw new InputError("WAV_UNSUPPORTED_ENCODING", {
         file,
-        expected: "little-endian RIFF",
-        received: "big-endian RIFX",
+        chunk: "fmt ",
+        expected: "an extensible sub-format GUID of the KSDATAFORMAT_SUBTYPE family (…-0000-0010-8000-00AA00389B71)",
+        received: `GUID ${f.subarray(24, 40).toString("hex")}`,
       });
-    rf64 = riff !== "RIFF";
-    // RF64/BW64 (EBU Tech 3306, 2009): a 'ds64' chunk first holds the 64-bit sizes of the RIFF and
-    // data chunks, whose 32-bit size fields then say 0xFFFFFFFF.
-    let ds64Data: number | undefined;
-    let pos = 12;
-    let seenData = false;
-    while (pos + 8 <= size) {
-      const ch = r.at(pos, 8);
-      const id = ch.toString("latin1", 0, 4);
-      let len = ch.readUInt32LE(4);
-      const body = pos + 8;
-      if (id === "ds64") {
-        if (!rf64 || pos !== 12 || len < 28) {
-          throw new InputError("WAV_BAD_DS64", {
-            file,
-            chunk: "ds64",
-            expected: "one ds64 chunk of at least 28 bytes, first in an RF64/BW64 file",
-            received: !rf64 ? "a ds64 chunk in a RIFF file" : pos !== 12 ? "a ds64 chunk after others" : `${len} bytes`,
-          });
-        }
-        const d = r.at(body, 28);
-        if (d.length < 28)
-          throw new InputError("WAV_TRUNCATED_HEADER", {
-            file,
-            chunk: "ds64",
-            expected: "a 28-byte ds64 chunk",
-            received: `${d.length} bytes`,
-          });
-        ds64Data = Number(d.readBigUInt64LE(8));
-      } else if (rf64 && pos === 12) {
-        throw new InputError("WAV_BAD_DS64", {
-          file,
-          chunk: "ds64",
-          expected: "a ds64 chunk first in an RF64/BW64 file (EBU Tech 3306)",
-          received: JSON.stringify(id),
-        });
-      } else if (id === "fmt ") {
-        if (fmt !== undefined)
-          throw new InputError("WAV_DUPLICATE_CHUNK", {
-            file,
-            chunk: "fmt ",
-            expected: "one format chunk",
-            received: "a second 'fmt ' chunk",
-          });
-        if (len < 16)
-          throw new InputError("WAV_BAD_FMT", {
-            file,
-            chunk: "fmt ",
-            expected: "a format chunk of at least 16 bytes",
-            received: `${len} bytes`,
-          });
-        if (body + len > size)
-          throw new InputError("WAV_BAD_FMT", {
-            file,
-            chunk: "fmt ",
-            expected: `the ${len} bytes its chunk header gives`,
-            received: `${Math.max(0, size - body)} bytes before the file ends`,
-          });
-        const f = Buffer.from(r.at(body, Math.min(len, 40)));
-        let tag = f.readUInt16LE(0);
-        if (tag === 0xfffe) {
-          if (f.length < 40)
-            throw new InputError("WAV_BAD_FMT", {
-              file,
-              chunk: "fmt ",
-              expected: "an extensible format chunk of 40 bytes",
-              received: `${len} bytes`,
-            });
-          tag = f.readUInt16LE(24);
-          if (!f.subarray(26, 40).equals(SUBTYPE_TAIL)) {
-            throw new InputError("WAV_UNSUPPORTED_ENCODING", {
-              file,
-              chunk: "fmt ",
-              expected:
-                "an extensible sub-format GUID of the KSDATAFORMAT_SUBTYPE family (…-0000-0010-8000-00AA00389B71)",
-              received: `GUID ${f.subarray(24, 40).toString("hex")}`,
-            });
-          }
-        }
-        fmt = {
-          tag,
-          channels: f.readUInt16LE(2),
-          sampleRate: f.readUInt32LE(4),
-          blockAlign: f.readUInt16LE(12),
-          bits: f.readUInt16LE(14),
-        };
-      } else if (id === "data") {
-        if (fmt === undefined)
-          throw new InputError("WAV_DATA_BEFORE_FMT", {
-            file,
-            chunk: "data",
-            expected: "the 'fmt ' chunk before the data chunk",
-            received: "data first",
-          });
-        if (seenData)
-          throw new InputError("WAV_DUPLICATE_CHUNK", {
-            file,
-            chunk: "data",
-            expected: "one data chunk",
-            received: "a second 'data' chunk",
-          });
-        seenData = true;
-        if (rf64 && len === U32_MAX) {
-          if (ds64Data === undefined)
-            throw new InputError("WAV_BAD_DS64", {
-              file,
-              chunk: "ds64",
-              expected: "a ds64 chunk with the data size",
-              received: "none",
-            });
-          len = ds64Data;
-        } else if (
-          len === 0 &&
-          body + 8 <= size &&
-          (!printable(r.at(body, 4).toString("latin1")) || body + 8 + r.at(body, 8).readUInt32LE(4) > size)
-        ) {
-          // A recorder that never closed its file leaves the size 0 with the samples after it: read them to the end.
-          len = size - body;
-          note = ", data size 0 in the header (an unfinished recording): read to the end of the file";
-        }
-        dataStart = body;
-        dataBytes = len;
-        if (body + len > size) {
-          throw new InputError("WAV_DATA_TRUNCATED", {
-            file,
-            chunk: "data",
-            expected: `${len} bytes of samples as the chunk header says`,
-            received: `${size - body} bytes (the file is cut short)`,
-            hint: "the recording was probably not closed properly",
-          });
-        }
-      } else if (id === CALIBRATION_CHUNK) {
-        calibration = readCalibration(file, Buffer.from(r.at(body, Math.min(len, 4096))).toString("utf8"));
-      }
-      pos = body + len + (len & 1);
     }
-  } finally {
-    closeSync(fd);
   }
+  return {
+    tag,
+    channels: f.readUInt16LE(2),
+    sampleRate: f.readUInt32LE(4),
+    blockAlign: f.readUInt16LE(12),
+    bits: f.readUInt16LE(14),
+  };
+}
+
+/**
+ * The data chunk whose samples start at `body`: one, after the format chunk, and whole. Sets w.dataStart and
+ * w.dataBytes, and returns its length (from ds64 in RF64, to the file's end for an unfinished recording).
+ */
+function dataChunk(w: ChunkWalk, body: number, len: number): number {
+  const { file, r, size } = w;
+  if (w.fmt === undefined)
+    throw new InputError("WAV_DATA_BEFORE_FMT", {
+      file,
+      chunk: "data",
+      expected: "the 'fmt ' chunk before the data chunk",
+      received: "data first",
+    });
+  if (w.dataStart >= 0)
+    throw new InputError("WAV_DUPLICATE_CHUNK", {
+      file,
+      chunk: "data",
+      expected: "one data chunk",
+      received: "a second 'data' chunk",
+    });
+  if (w.rf64 && len === U32_MAX) {
+    if (w.ds64Data === undefined)
+      throw new InputError("WAV_BAD_DS64", {
+        file,
+        chunk: "ds64",
+        expected: "a ds64 chunk with the data size",
+        received: "none",
+      });
+    len = w.ds64Data;
+  } else if (
+    len === 0 &&
+    body + 8 <= size &&
+    (!printable(r.at(body, 4).toString("latin1")) || body + 8 + r.at(body, 8).readUInt32LE(4) > size)
+  ) {
+    // A recorder that never closed its file leaves the size 0 with the samples after it: read them to the end.
+    len = size - body;
+    w.note = ", data size 0 in the header (an unfinished recording): read to the end of the file";
+  }
+  w.dataStart = body;
+  w.dataBytes = len;
+  if (body + len > size) {
+    throw new InputError("WAV_DATA_TRUNCATED", {
+      file,
+      chunk: "data",
+      expected: `${len} bytes of samples as the chunk header says`,
+      received: `${size - body} bytes (the file is cut short)`,
+      hint: "the recording was probably not closed properly",
+    });
+  }
+  return len;
+}
+
+/** The whole chunk list after the RIFF header (odd-sized chunks followed by a pad byte). */
+function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean): ChunkWalk {
+  const w: ChunkWalk = {
+    file,
+    r,
+    size,
+    rf64,
+    ds64Data: undefined,
+    fmt: undefined,
+    dataStart: -1,
+    dataBytes: 0,
+    calibration: undefined,
+    note: "",
+  };
+  let pos = 12;
+  while (pos + 8 <= size) {
+    const ch = r.at(pos, 8);
+    const id = ch.toString("latin1", 0, 4);
+    let len = ch.readUInt32LE(4);
+    const body = pos + 8;
+    if (id === "ds64") w.ds64Data = ds64Chunk(w, pos, len);
+    else if (rf64 && pos === 12) {
+      throw new InputError("WAV_BAD_DS64", {
+        file,
+        chunk: "ds64",
+        expected: "a ds64 chunk first in an RF64/BW64 file (EBU Tech 3306)",
+        received: JSON.stringify(id),
+      });
+    } else if (id === "fmt ") w.fmt = fmtChunk(w, body, len);
+    else if (id === "data") len = dataChunk(w, body, len);
+    else if (id === CALIBRATION_CHUNK)
+      w.calibration = readCalibration(file, Buffer.from(r.at(body, Math.min(len, 4096))).toString("utf8"));
+    pos = body + len + (len & 1);
+  }
+  return w;
+}
+
+/**
+ * The format and data the walk found, refused unless both are there, the encoding is one psdgate reads, and
+ * channels, block align, rate and the data's length agree; with the encoding's kind and the frames.
+ */
+function checkFormat(w: ChunkWalk): { fmt: WavFormat; pcm: boolean; float: boolean; frames: number } {
+  const { file, size, fmt, dataBytes } = w;
   if (fmt === undefined)
     throw new InputError("WAV_NO_FMT", {
       file,
@@ -257,7 +310,7 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
       expected: "a format chunk",
       received: size < 20 ? "a truncated header" : "none",
     });
-  if (dataStart < 0)
+  if (w.dataStart < 0)
     throw new InputError("WAV_NO_DATA", {
       file,
       chunk: "data",
@@ -310,7 +363,24 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
       received: `${dataBytes} bytes`,
     });
   }
-  const cal = calibration;
+  return { fmt, pcm, float, frames };
+}
+
+/** A WAV (RIFF, RF64 or BW64) source: its chunks walked and checked now, its samples read by `read`. */
+export async function openWavTimeHistory(file: string): Promise<TimeHistorySource> {
+  const { size } = await stat(file);
+  let w: ChunkWalk;
+  const fd = openSync(file, "r");
+  try {
+    const r = new WindowReader(fd, size);
+    w = walkChunks(file, r, size, readRiffHeader(file, r));
+  } finally {
+    closeSync(fd);
+  }
+  const { fmt, pcm, float, frames } = checkFormat(w);
+  const { channels, sampleRate, bits } = fmt;
+  const { rf64, dataStart, note } = w;
+  const cal = w.calibration;
   return {
     info: {
       file,
@@ -334,11 +404,11 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
         `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}` +
         `${cal ? `, calibration chunk: x${cal.scale} ${cal.unit.name}` : ""}${note}`,
     },
-    read: (select, sink, onProgress) => readWavData(file, fmt!, dataStart, frames, select, sink, onProgress),
+    read: (select, sink, onProgress) => readWavData(file, fmt, dataStart, frames, select, sink, onProgress),
   };
 }
 
-function readCalibration(file: string, text: string): { unit: UnitSpec; text: string; scale: number } {
+function readCalibration(file: string, text: string): WavCalibration {
   let doc: unknown;
   try {
     doc = JSON.parse(text);
