@@ -45,17 +45,34 @@ const num = (option: string, expected: string, rule: (x: number) => boolean = ()
 
 /** `psdgate derive FILE… --life L --test-duration T --out PROFILE`: a fatigue-equivalent lab profile from field recordings. */
 export function registerDerive(program: Command, io: CliIo): void {
-  addSpectrumOptions(
-    addReadingOptions(
-      program
-        .command("derive")
-        .argument("[files...]", "field recordings (CSV or WAV), globs, or - for a list on stdin; or give --mix")
-        .description(
-          "a lab test profile from field recordings: field PSDs and their limits, the service life's fatigue-damage and extreme-response spectra, and a profile whose damage over the test covers the field's",
+  addDeriveLimitOptions(
+    addDeriveFitOptions(
+      addDeriveInputOptions(
+        addSpectrumOptions(
+          addReadingOptions(
+            program
+              .command("derive")
+              .argument("[files...]", "field recordings (CSV or WAV), globs, or - for a list on stdin; or give --mix")
+              .description(
+                "a lab test profile from field recordings: field PSDs and their limits, the service life's fatigue-damage and extreme-response spectra, and a profile whose damage over the test covers the field's",
+              ),
+          ),
+          "the one giving 1 Hz lines",
         ),
+      ),
     ),
-    "the one giving 1 Hz lines",
   )
+    .option(
+      "--meta <file>",
+      "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report",
+    )
+    .option("-q, --quiet", "no progress output (derive shows none; accepted so every analysis command takes it)")
+    .action((args: string[], o: DeriveFlags, cmd: Command) => runDerive(io, args, o, cmd));
+}
+
+/** derive's inputs and outputs: the recordings (or a mix), the life, the test's duration, the profile and record written. */
+function addDeriveInputOptions(cmd: Command): Command {
+  return cmd
     .option(
       "--mix <file>",
       "groups of recordings, each standing for so many hours of the life (YAML or JSON: title, groups of name, hours, recordings)",
@@ -75,7 +92,12 @@ export function registerDerive(program: Command, io: CliIo): void {
     .option("--force", "replace an existing output file")
     .option("--report <out.html>", "also write a self-contained HTML record of the derivation")
     .option("--json", "print the result as JSON")
-    .option("--title <text>", "the profile's title (default: from the groups, the life and the test duration)")
+    .option("--title <text>", "the profile's title (default: from the groups, the life and the test duration)");
+}
+
+/** The SDOF systems and the fit: Q, Basquin exponent, breakpoints, margin and the natural-frequency grid. */
+function addDeriveFitOptions(cmd: Command): Command {
+  return cmd
     .option(
       "--q <Q>",
       "quality factor of the SDOF systems (default 10, common practice)",
@@ -110,7 +132,12 @@ export function registerDerive(program: Command, io: CliIo): void {
       "--per-octave <n>",
       "natural frequencies per octave of the grid (default 6)",
       num("--per-octave", "1 to 24", (x) => Number.isInteger(x) && x >= 1 && x <= 24),
-    )
+    );
+}
+
+/** The field's statistical limit, the field damage's source, and the tolerances the written profile carries. */
+function addDeriveLimitOptions(cmd: Command): Command {
+  return cmd
     .option(
       "--coverage <p>",
       "coverage of the statistical upper limit across recordings (default 0.95)",
@@ -158,111 +185,122 @@ export function registerDerive(program: Command, io: CliIo): void {
       "--stroke-mm <mm>",
       "the exciter's rated peak-to-peak stroke: the profile's displacement estimate is checked against it",
       num("--stroke-mm", "a stroke in mm above 0", (x) => x > 0),
-    )
-    .option(
-      "--meta <file>",
-      "the test's identity (YAML or JSON: testId, workOrder, item, serialNumber, axis, fixture, sensor, sensorSerial, sensorCalibrated, operator, location, notes), carried into --json and the report",
-    )
-    .option("-q, --quiet", "no progress output (derive shows none; accepted so every analysis command takes it)")
-    .action(async (args: string[], o: DeriveFlags, cmd: Command) => {
-      const { deriveProfile, mixInputs, plainInputs, strokeOf } = await import("../analyses/deriveProfile.js");
-      const { deriveJson, deriveText, profileDocumentText } = await import("../report/deriveReport.js");
-      const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
-      const { VERSION } = await import("../version.js");
-      const { parseProfile } = await import("../compare/testProfile.js");
-      if (o.channel !== undefined && o.channel.length > 1)
-        throw new InputError("OPTION_INVALID", {
-          option: "--channel",
-          expected: "one channel",
-          received: o.channel.join(", "),
-        });
-      if (!/\.(ya?ml|json)$/i.test(o.out))
-        throw new InputError("OUTPUT_FORMAT", {
-          option: "--out",
-          expected: "a profile file name ending in .yaml, .yml or .json",
-          received: o.out,
-        });
-      let inputs: Pick<DeriveOptions, "recordings" | "groups" | "lifeRule" | "mix" | "title">;
-      const read: string[] = [];
-      if (o.mix !== undefined) {
-        if (args.length > 0 || o.filesFrom !== undefined)
-          throw new InputError("OPTION_CONFLICT", {
-            option: "--mix",
-            expected: "the recordings in the mix file, or on the command line, not both",
-            received: `${args.length} file argument(s)${o.filesFrom !== undefined ? " and --files-from" : ""}`,
-          });
-        if (o.life !== undefined)
-          throw new InputError("OPTION_CONFLICT", {
-            option: "--life",
-            expected: "no --life with --mix (the life is the sum of the mix file's hours)",
-            received: "--life",
-          });
-        const { loadServiceMix } = await import("../read/mixFile.js");
-        const mix = await loadServiceMix(o.mix);
-        inputs = { ...mixInputs(mix), title: o.title ?? mix.title };
-        read.push(o.mix);
-      } else {
-        const files = await expandFiles(args, o.filesFrom, io.readStdin ?? (async () => ""));
-        if (o.life === undefined)
-          throw new InputError("OPTION_MISSING", {
-            option: "--life",
-            expected: "the service life the recordings stand for (or a --mix file with each group's hours)",
-            received: "nothing",
-          });
-        inputs = { ...plainInputs(files, o.life), title: o.title };
-        if (o.filesFrom !== undefined) read.push(o.filesFrom);
-      }
-      read.push(...inputs.recordings.map((r) => r.file));
-      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
-      if (o.meta !== undefined) read.push(o.meta);
-      checkOutputPath(o.out, read, o.force, "--out");
-      if (o.report !== undefined) checkOutputPath(o.report, [...read, o.out], o.force, "--report");
-      const created = new Date();
-      const settings = {
-        ...inputs,
-        testDurationS: o.testDuration,
-        analysis: analysisOptions(o),
-        channels: o.channel,
-        q: o.q,
-        basquinB: o.basquin,
-        maxBreakpoints: o.breakpoints,
-        margin: o.margin,
-        fminHz: o.fmin,
-        fmaxHz: o.fmax,
-        perOctave: o.perOctave,
-        coverage: o.coverage,
-        toleranceConfidence: o.toleranceConfidence,
-        extremeLimit: o.extremeLimit,
-        fieldDamage: o.fieldDamage,
-        bandDb: o.bandDb,
-        rmsPercent: o.rmsPercent,
-        minDof: o.minDof,
-        strokeMm: o.strokeMm,
-        outFile: o.out,
-      };
-      const r = await deriveProfile({ ...settings, version: VERSION, created });
-      const text = profileDocumentText(r.document, o.out);
-      // The profile as `check` will read it from the file written (its SHA-256 is the file's).
-      r.profile = parseProfile(text, o.out);
-      Object.assign(r, strokeOf(r.profile, o.strokeMm));
-      await writeAtomic(o.out, text, { inputs: read, force: o.force, option: "--out" });
-      if (o.report !== undefined) {
-        const { deriveHtml } = await import("../report/deriveHtml.js");
-        await writeAtomic(
-          o.report,
-          deriveHtml(r, VERSION, created, {
-            meta,
-            given: givenOptions(cmd),
-            outFile: o.out,
-            rerun: JSON.parse(JSON.stringify(settings)) as Record<string, unknown>,
-          }),
-          { inputs: [...read, o.out], force: o.force, option: "--report" },
-        );
-      }
-      io.stdout(
-        o.json
-          ? JSON.stringify({ ...deriveJson(r, VERSION), ...(meta ? { meta } : {}) }) + "\n"
-          : deriveText(r, VERSION, o.out),
-      );
+    );
+}
+
+/** What derive reads: the recordings and the life they stand for (from a mix file or the command line). */
+type DeriveInputs = Pick<DeriveOptions, "recordings" | "groups" | "lifeRule" | "mix" | "title">;
+
+/** Runs `derive`: options and outputs checked, the profile derived, then the profile, its record and the result written. */
+async function runDerive(io: CliIo, args: string[], o: DeriveFlags, cmd: Command): Promise<void> {
+  const { deriveProfile, strokeOf } = await import("../analyses/deriveProfile.js");
+  const { deriveJson, deriveText, profileDocumentText } = await import("../report/deriveReport.js");
+  const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+  const { VERSION } = await import("../version.js");
+  const { parseProfile } = await import("../compare/testProfile.js");
+  if (o.channel !== undefined && o.channel.length > 1)
+    throw new InputError("OPTION_INVALID", {
+      option: "--channel",
+      expected: "one channel",
+      received: o.channel.join(", "),
     });
+  if (!/\.(ya?ml|json)$/i.test(o.out))
+    throw new InputError("OUTPUT_FORMAT", {
+      option: "--out",
+      expected: "a profile file name ending in .yaml, .yml or .json",
+      received: o.out,
+    });
+  const read: string[] = [];
+  const inputs = await deriveInputs(io, args, o, read);
+  read.push(...inputs.recordings.map((r) => r.file));
+  const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+  if (o.meta !== undefined) read.push(o.meta);
+  checkOutputPath(o.out, read, o.force, "--out");
+  if (o.report !== undefined) checkOutputPath(o.report, [...read, o.out], o.force, "--report");
+  const created = new Date();
+  const settings = deriveSettings(o, inputs);
+  const r = await deriveProfile({ ...settings, version: VERSION, created });
+  const text = profileDocumentText(r.document, o.out);
+  // The profile as `check` will read it from the file written (its SHA-256 is the file's).
+  r.profile = parseProfile(text, o.out);
+  Object.assign(r, strokeOf(r.profile, o.strokeMm));
+  await writeAtomic(o.out, text, { inputs: read, force: o.force, option: "--out" });
+  if (o.report !== undefined) {
+    const { deriveHtml } = await import("../report/deriveHtml.js");
+    await writeAtomic(
+      o.report,
+      deriveHtml(r, VERSION, created, {
+        meta,
+        given: givenOptions(cmd),
+        outFile: o.out,
+        rerun: JSON.parse(JSON.stringify(settings)) as Record<string, unknown>,
+      }),
+      { inputs: [...read, o.out], force: o.force, option: "--report" },
+    );
+  }
+  io.stdout(
+    o.json
+      ? JSON.stringify({ ...deriveJson(r, VERSION), ...(meta ? { meta } : {}) }) + "\n"
+      : deriveText(r, VERSION, o.out),
+  );
+}
+
+/** The recordings and life from --mix (not with files or --life) or from the files and --life; settings files read go on `read`. */
+async function deriveInputs(io: CliIo, args: string[], o: DeriveFlags, read: string[]): Promise<DeriveInputs> {
+  const { mixInputs, plainInputs } = await import("../analyses/deriveProfile.js");
+  if (o.mix !== undefined) {
+    if (args.length > 0 || o.filesFrom !== undefined)
+      throw new InputError("OPTION_CONFLICT", {
+        option: "--mix",
+        expected: "the recordings in the mix file, or on the command line, not both",
+        received: `${args.length} file argument(s)${o.filesFrom !== undefined ? " and --files-from" : ""}`,
+      });
+    if (o.life !== undefined)
+      throw new InputError("OPTION_CONFLICT", {
+        option: "--life",
+        expected: "no --life with --mix (the life is the sum of the mix file's hours)",
+        received: "--life",
+      });
+    const { loadServiceMix } = await import("../read/mixFile.js");
+    const mix = await loadServiceMix(o.mix);
+    const inputs = { ...mixInputs(mix), title: o.title ?? mix.title };
+    read.push(o.mix);
+    return inputs;
+  }
+  const files = await expandFiles(args, o.filesFrom, io.readStdin ?? (async () => ""));
+  if (o.life === undefined)
+    throw new InputError("OPTION_MISSING", {
+      option: "--life",
+      expected: "the service life the recordings stand for (or a --mix file with each group's hours)",
+      received: "nothing",
+    });
+  const inputs = { ...plainInputs(files, o.life), title: o.title };
+  if (o.filesFrom !== undefined) read.push(o.filesFrom);
+  return inputs;
+}
+
+/** deriveProfile's settings from the flags (its report records them for verify). */
+function deriveSettings(o: DeriveFlags, inputs: DeriveInputs) {
+  return {
+    ...inputs,
+    testDurationS: o.testDuration,
+    analysis: analysisOptions(o),
+    channels: o.channel,
+    q: o.q,
+    basquinB: o.basquin,
+    maxBreakpoints: o.breakpoints,
+    margin: o.margin,
+    fminHz: o.fmin,
+    fmaxHz: o.fmax,
+    perOctave: o.perOctave,
+    coverage: o.coverage,
+    toleranceConfidence: o.toleranceConfidence,
+    extremeLimit: o.extremeLimit,
+    fieldDamage: o.fieldDamage,
+    bandDb: o.bandDb,
+    rmsPercent: o.rmsPercent,
+    minDof: o.minDof,
+    strokeMm: o.strokeMm,
+    outFile: o.out,
+  };
 }

@@ -163,68 +163,68 @@ export function registerRide(program: Command, io: CliIo): void {
       "after",
       "\nWithout --exposure: a_w, crest factor, VDV, MTVV, total value and comfort of the recording; A(8), the daily VDV and their judgement need it.\nRates from 100 Hz up; every result states the weighting filter's error at its rate (a_w, VDV, MTVV, crest, A(8) carry it).\nRide's Welch defaults differ from psd's: 0.125 Hz lines (--resolution) and 75 % overlap (--overlap).\nResults are in SI units (m/s², m/s^1.75); --units and --scale say what the file holds.\nAn engineering estimate from one recording, not an occupational-health assessment: local regulations and competent persons decide.\n",
     )
-    .action(async (file: string, o: RideFlags, cmd: Command) => {
-      if (o.channel !== undefined)
-        throw new InputError("OPTION_CONFLICT", {
-          option: "--channel",
-          expected: "channels given by --axes (and --floor) for ride",
-          received: o.channel.join(","),
-        });
-      if (o.resultUnits !== undefined && o.resultUnits !== "m/s2")
-        throw new InputError("OPTION_CONFLICT", {
-          option: "--result-units",
-          expected: "m/s2 (ride results are SI)",
-          received: o.resultUnits,
-        });
-      const { rideRecording } = await import("../analyses/rideRecording.js");
-      const { rideCsv, rideJson, rideText } = await import("../report/rideReport.js");
-      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
-      const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
-      const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
-      if (o.report !== undefined && o.report === o.csv)
-        throw new InputError("OPTION_CONFLICT", {
-          option: "--csv",
-          expected: "a file other than --report's",
-          received: quoted(o.csv),
-        });
-      if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
-      if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
-      const progress = createProgress(
-        progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}),
-        io.stderr,
-      );
-      const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
-      const options = {
-        ...base,
-        axes: o.axes,
-        posture: o.posture,
-        exposureS: o.exposure,
-        floor: o.floor,
-        runningRmsS: o.runningRms,
-        peakHoldS: o.peakHold,
-        healthZone: o.healthZone,
-      };
-      let r: Awaited<ReturnType<typeof rideRecording>>;
-      try {
-        r = await rideRecording(file, {
-          ...options,
-          spectrogram: o.report !== undefined,
-          onProgress: (d, t) => progress.update(d, t),
-        });
-      } finally {
-        progress.end();
-      }
-      if (o.report !== undefined) {
-        const { rideHtml } = await import("../report/rideHtml.js");
-        await writeAtomic(
-          o.report,
-          rideHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun: rerunOptions(options) }),
-          { inputs, force: o.force, option: "--report" },
-        );
-      }
-      if (o.csv !== undefined) await writeAtomic(o.csv, rideCsv(r), { inputs, force: o.force, option: "--csv" });
-      io.stdout(
-        o.json ? JSON.stringify({ ...rideJson(r, VERSION), ...(meta ? { meta } : {}) }) + "\n" : rideText(r, VERSION),
-      );
+    .action((file: string, o: RideFlags, cmd: Command) => runRide(io, file, o, cmd));
+}
+
+/** Runs `ride` on one recording: shared options refused, outputs checked, the whole-body figures found, then written. */
+async function runRide(io: CliIo, file: string, o: RideFlags, cmd: Command): Promise<void> {
+  if (o.channel !== undefined)
+    throw new InputError("OPTION_CONFLICT", {
+      option: "--channel",
+      expected: "channels given by --axes (and --floor) for ride",
+      received: o.channel.join(","),
     });
+  if (o.resultUnits !== undefined && o.resultUnits !== "m/s2")
+    throw new InputError("OPTION_CONFLICT", {
+      option: "--result-units",
+      expected: "m/s2 (ride results are SI)",
+      received: o.resultUnits,
+    });
+  const { rideRecording } = await import("../analyses/rideRecording.js");
+  const { rideCsv, rideJson, rideText } = await import("../report/rideReport.js");
+  const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+  const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
+  const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+  if (o.report !== undefined && o.report === o.csv)
+    throw new InputError("OPTION_CONFLICT", {
+      option: "--csv",
+      expected: "a file other than --report's",
+      received: quoted(o.csv),
+    });
+  if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
+  if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
+  const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
+  const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
+  const options = {
+    ...base,
+    axes: o.axes,
+    posture: o.posture,
+    exposureS: o.exposure,
+    floor: o.floor,
+    runningRmsS: o.runningRms,
+    peakHoldS: o.peakHold,
+    healthZone: o.healthZone,
+  };
+  let r: Awaited<ReturnType<typeof rideRecording>>;
+  try {
+    r = await rideRecording(file, {
+      ...options,
+      spectrogram: o.report !== undefined,
+      onProgress: (d, t) => progress.update(d, t),
+    });
+  } finally {
+    progress.end();
+  }
+  if (o.report !== undefined) {
+    const { rideHtml } = await import("../report/rideHtml.js");
+    await writeAtomic(
+      o.report,
+      rideHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun: rerunOptions(options) }),
+      { inputs, force: o.force, option: "--report" },
+    );
+  }
+  if (o.csv !== undefined) await writeAtomic(o.csv, rideCsv(r), { inputs, force: o.force, option: "--csv" });
+  io.stdout(
+    o.json ? JSON.stringify({ ...rideJson(r, VERSION), ...(meta ? { meta } : {}) }) + "\n" : rideText(r, VERSION),
+  );
 }

@@ -106,55 +106,55 @@ export function registerShock(program: Command, io: CliIo): void {
       "after",
       "\nThe recording is read twice: first for each channel's mean and background level, then for the events and spectra.\nAn SRS is one engineering summary of a shock, not a structural verdict.\n",
     )
-    .action(async (file: string, o: ShockFlags, cmd: Command) => {
-      if (o.threshold !== undefined && o.thresholdFactor !== undefined)
-        throw new InputError("OPTION_CONFLICT", {
-          option: "--threshold",
-          expected: "--threshold or --threshold-factor, not both",
-          received: "both",
-        });
-      const { parseFnGrid } = await import("../analyses/responseSpectra.js");
-      const { shockRecording } = await import("../analyses/shockRecording.js");
-      const { shockCsv, shockJson, shockText } = await import("../report/shockReport.js");
-      const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
-      const { VERSION } = await import("../version.js");
-      const fnHz = parseFnGrid(o.fn, "--fn");
-      const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
-      const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
-      if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
-      if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
-      const { histogram: _h, ...base } = analysisOptions(o);
-      const progress = createProgress(
-        progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}),
-        io.stderr,
-      );
-      const options = {
-        ...base,
-        fnHz,
-        q: o.q,
-        threshold: o.threshold,
-        thresholdFactor: o.thresholdFactor,
-        holdS: o.hold,
-        preS: o.pre,
-        postS: o.post,
-        primaryResidual: o.primaryResidual,
-      };
-      let r: Awaited<ReturnType<typeof shockRecording>>;
-      try {
-        r = await shockRecording(file, { ...options, onProgress: (d, t) => progress.update(d, t) });
-      } finally {
-        progress.end();
-      }
-      if (o.csv !== undefined) await writeAtomic(o.csv, shockCsv(r), { inputs, force: o.force, option: "--csv" });
-      if (o.report !== undefined) {
-        const { shockHtml } = await import("../report/shockHtml.js");
-        const rerun = rerunOptions({ ...options, fnHz: Array.from(fnHz) } as never);
-        await writeAtomic(o.report, shockHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun }), {
-          inputs,
-          force: o.force,
-          option: "--report",
-        });
-      }
-      io.stdout(o.json ? JSON.stringify(shockJson(r, VERSION)) + "\n" : shockText(r, VERSION, o.top));
+    .action((file: string, o: ShockFlags, cmd: Command) => runShock(io, file, o, cmd));
+}
+
+/** Runs `shock` on one recording: options checked, outputs checked, the events and spectra found, then written. */
+async function runShock(io: CliIo, file: string, o: ShockFlags, cmd: Command): Promise<void> {
+  if (o.threshold !== undefined && o.thresholdFactor !== undefined)
+    throw new InputError("OPTION_CONFLICT", {
+      option: "--threshold",
+      expected: "--threshold or --threshold-factor, not both",
+      received: "both",
     });
+  const { parseFnGrid } = await import("../analyses/responseSpectra.js");
+  const { shockRecording } = await import("../analyses/shockRecording.js");
+  const { shockCsv, shockJson, shockText } = await import("../report/shockReport.js");
+  const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+  const { VERSION } = await import("../version.js");
+  const fnHz = parseFnGrid(o.fn, "--fn");
+  const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
+  const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
+  if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
+  if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
+  const { histogram: _h, ...base } = analysisOptions(o);
+  const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
+  const options = {
+    ...base,
+    fnHz,
+    q: o.q,
+    threshold: o.threshold,
+    thresholdFactor: o.thresholdFactor,
+    holdS: o.hold,
+    preS: o.pre,
+    postS: o.post,
+    primaryResidual: o.primaryResidual,
+  };
+  let r: Awaited<ReturnType<typeof shockRecording>>;
+  try {
+    r = await shockRecording(file, { ...options, onProgress: (d, t) => progress.update(d, t) });
+  } finally {
+    progress.end();
+  }
+  if (o.csv !== undefined) await writeAtomic(o.csv, shockCsv(r), { inputs, force: o.force, option: "--csv" });
+  if (o.report !== undefined) {
+    const { shockHtml } = await import("../report/shockHtml.js");
+    const rerun = rerunOptions({ ...options, fnHz: Array.from(fnHz) } as never);
+    await writeAtomic(o.report, shockHtml(r, VERSION, new Date(), { meta, given: givenOptions(cmd), rerun }), {
+      inputs,
+      force: o.force,
+      option: "--report",
+    });
+  }
+  io.stdout(o.json ? JSON.stringify(shockJson(r, VERSION)) + "\n" : shockText(r, VERSION, o.top));
 }
