@@ -1,4 +1,3 @@
-import { mkdir } from "node:fs/promises";
 import { basename, join } from "node:path";
 import type { Command } from "commander";
 import type { CheckOptions, CheckResult } from "../analyses/checkRecording.js";
@@ -10,7 +9,7 @@ import { EXIT, InputError } from "../errors.js";
 import { fixed, sig, signedDb } from "../report/format.js";
 import { reportFileNames } from "../report/reportNames.js";
 import { RULE_SUMMARY, VERDICT_MEANING } from "../report/ruleText.js";
-import { checkOutputPath, writeAtomic } from "../report/writeAtomic.js";
+import { checkOutputPath, makeFolders, writeAtomic } from "../report/writeAtomic.js";
 import { fsReason } from "../read/regularFile.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
@@ -204,7 +203,7 @@ async function readCheckInputs(io: CliIo, args: string[], o: CheckFlags, cmd: Co
 
 /** Makes --report-dir (and its parents); a folder that cannot be made is the user's to fix. */
 async function makeReportDir(dir: string): Promise<void> {
-  await mkdir(dir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
+  await makeFolders(dir).catch((e: NodeJS.ErrnoException) => {
     throw new InputError("OUTPUT_UNWRITABLE", {
       option: "--report-dir",
       expected: "a folder that exists or can be made",

@@ -212,9 +212,9 @@ function registerWork(queue: Command, c: QueueCli): void {
 /** `--report-dir` made if missing, as an absolute path. */
 async function workReportDir(o: WorkFlags): Promise<string | undefined> {
   if (o.reportDir === undefined) return undefined;
-  const { mkdir } = await import("node:fs/promises");
+  const { makeFolders } = await import("../report/writeAtomic.js");
   const reportDir = resolve(o.reportDir);
-  await mkdir(reportDir, { recursive: true }).catch((e: NodeJS.ErrnoException) => {
+  await makeFolders(reportDir).catch((e: NodeJS.ErrnoException) => {
     throw new InputError("OUTPUT_UNWRITABLE", {
       option: "--report-dir",
       expected: "a folder that exists or can be made",

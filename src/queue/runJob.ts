@@ -125,13 +125,13 @@ export async function runJob(job: Job, ctx: JobContext): Promise<JobOutcome> {
  */
 async function writeReport(dir: string, job: Job, r: CheckResult, recording: string): Promise<string> {
   const { checkHtml } = await import("../report/htmlReport.js");
-  const { writeAtomic } = await import("../report/writeAtomic.js");
-  const { mkdir, realpath } = await import("node:fs/promises");
+  const { makeFolders, writeAtomic } = await import("../report/writeAtomic.js");
+  const { realpath } = await import("node:fs/promises");
   const { dirname, join, sep } = await import("node:path");
   const rel = job.file.replace(/\.[^./]*$/, "") + ".html";
   const target = join(dir, rel);
   try {
-    await mkdir(dirname(target), { recursive: true });
+    await makeFolders(dirname(target));
     // Reports stay inside the folder given: a folder link planted under it (runs -> /etc) is not followed.
     const root = await realpath(dir);
     const real = await realpath(dirname(target));

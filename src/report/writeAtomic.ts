@@ -1,6 +1,6 @@
 import { randomBytes } from "node:crypto";
 import { close, constants, openSync, realpathSync, rmSync, statSync, write, type Stats } from "node:fs";
-import { copyFile, link, rename, rm } from "node:fs/promises";
+import { copyFile, link, mkdir, rename, rm, stat } from "node:fs/promises";
 import { promisify } from "node:util";
 import { basename, dirname, join, resolve } from "node:path";
 import { InputError } from "../errors.js";
@@ -232,4 +232,36 @@ export async function writeAtomic(target: string, content: string | Uint8Array, 
     throw e;
   }
   await out.publish();
+}
+
+/**
+ * A folder and any missing folders above it, made one level at a time (mkdir without `recursive`): Node 20's
+ * recursive mkdir never settles for a path under /proc whose parent cannot be made, so a wrong --report-dir
+ * hung instead of failing. Throws the file system's error (ENOENT, EACCES, ENOTDIR, ...) for the first level
+ * that cannot be made, and ENOTDIR when the path exists and is not a folder.
+ */
+export async function makeFolders(dir: string): Promise<void> {
+  const target = resolve(dir);
+  const missing: string[] = [];
+  for (let p = target; ; p = dirname(p)) {
+    const found = await stat(p).then(
+      (st) => st,
+      (e: unknown) => {
+        if (isFsError(e) && e.code === "ENOENT") return undefined;
+        throw e;
+      },
+    );
+    if (found !== undefined) {
+      if (p === target && !found.isDirectory())
+        throw Object.assign(new Error(`${target} is not a folder`), { code: "ENOTDIR" });
+      break;
+    }
+    missing.push(p);
+    if (dirname(p) === p) break;
+  }
+  for (const m of missing.reverse()) {
+    await mkdir(m).catch((e: unknown) => {
+      if (!(isFsError(e) && e.code === "EEXIST")) throw e;
+    });
+  }
 }

@@ -65,6 +65,18 @@ describe("several recordings", () => {
     expect(r.code).toBe(2);
     expect(r.stderr).toContain("--report-dir");
   });
+  it("--report-dir that cannot be made is OUTPUT_UNWRITABLE at once: under /proc (Node's recursive mkdir never settled there), below a file", async () => {
+    const underProc = await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", "/proc/psdgate-x/y");
+    expect(underProc.code).toBe(2);
+    expect(underProc.stderr).toContain("[OUTPUT_UNWRITABLE]");
+    const file = join(dir, "a-file");
+    writeFileSync(file, "x");
+    const belowFile = await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", join(file, "sub"));
+    expect(belowFile.code).toBe(2);
+    expect(belowFile.stderr).toContain("[OUTPUT_UNWRITABLE]");
+    const onFile = await cli("check", runs[0]!, runs[2]!, "--profile", kb, "--report-dir", file);
+    expect(onFile.stderr).toContain("[OUTPUT_UNWRITABLE]");
+  }, 20_000);
   it("the worker pool (--jobs 2, built CLI) gives the same JSON lines as --jobs 1", () => {
     const a = spawnSync("node", ["bin/psdgate.js", "check", ...runs, "--profile", kb, "--json", "--jobs", "1"], {
       encoding: "utf8",
