@@ -223,6 +223,20 @@ function pageCheck(html: string, kind: string | undefined, verdict: string | und
 export const MAX_REPORT_BYTES = 256 << 20;
 
 /** SHA-256 of an input by streaming, a regular file only (a FIFO or device is FILE_UNREADABLE at once). */
+/** How a verification ends: its status, the steps so far and nothing compared unless `extra` says so. */
+function ending(report: string, steps: VerifyStep[], missing: string[], kind?: RecordKind) {
+  return (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
+    status,
+    report,
+    ...(kind === undefined ? {} : { kind }),
+    steps,
+    differences: [],
+    missing,
+    compared: 0,
+    ...extra,
+  });
+}
+
 async function sha256File(file: string, what: string, option: string | undefined): Promise<string> {
   return (await sha256OfFile(file, what, option)).sha256;
 }
@@ -272,15 +286,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   ).text;
   const tol = options.tolerance ?? 1e-9;
   const steps: VerifyStep[] = [];
-  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
-    status,
-    report,
-    steps,
-    differences: [],
-    missing: [],
-    compared: 0,
-    ...extra,
-  });
+  const done = ending(report, steps, []);
   const x = extractResult(html);
   if (!x.found) {
     // Not a record at all (any file, or a page whose result block was removed): a usage error, one line, exit 2.
@@ -362,15 +368,7 @@ async function verifyAnalysis(
   options: VerifyOptions,
 ): Promise<VerifyResult> {
   const missing: string[] = [];
-  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
-    status,
-    report,
-    steps,
-    differences: [],
-    missing,
-    compared: 0,
-    ...extra,
-  });
+  const done = ending(report, steps, missing);
   const found = await analysisInputs(report, doc, result, options, steps, missing);
   if (!found) return done("differs", { kind: doc.kind });
   const { rec, prof, inputsOk } = found;
@@ -560,16 +558,7 @@ async function verifyDerivation(
   const missing: string[] = [];
   const recorded = doc.result.recordings ?? [];
   const given = doc.rerun.recordings ?? [];
-  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
-    status,
-    report,
-    kind: "derive",
-    steps,
-    differences: [],
-    missing,
-    compared: 0,
-    ...extra,
-  });
+  const done = ending(report, steps, missing, "derive");
   if (recorded.length !== given.length || recorded.length === 0) {
     steps.push({ step: "result", ok: false, text: "the embedded result does not list its field recordings" });
     return done("differs");
@@ -726,16 +715,7 @@ async function verifyRecord(
   options: VerifyOptions,
 ): Promise<VerifyResult> {
   const missing: string[] = [];
-  const done = (status: VerifyStatus, extra: Partial<VerifyResult> = {}): VerifyResult => ({
-    status,
-    report,
-    kind: doc.kind,
-    steps,
-    differences: [],
-    missing,
-    compared: 0,
-    ...extra,
-  });
+  const done = ending(report, steps, missing, doc.kind);
   const inputs = recordInputs(doc, options);
   if (!inputs) {
     steps.push({
