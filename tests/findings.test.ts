@@ -678,7 +678,7 @@ async function allFindings(): Promise<Finding[]> {
     await rideRecording(wav(slow, 100, "slow-ride.wav"), { inputUnits: "m/s2", axes: { z: "1" }, posture: "seated" }),
   );
   rides.push(await rideRecording(heldFile, { inputUnits: "m/s2", axes: { z: "1" }, posture: "seated" }));
-  // Curves and a stop on a lateral axis (tests/rideRecording.test.ts): the NOT_STATIONARY notes of ride.
+  // Curves and a stop on a lateral axis (tests/analyses/rideRecording.test.ts): the NOT_STATIONARY notes of ride.
   const cn = shapedRecord((f) => (f >= 0.5 && f <= 80 ? 0.0005 : 0), 1000, 1 << 18, 24);
   const curves = Float64Array.from(
     cn,

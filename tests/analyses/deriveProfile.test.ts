@@ -64,7 +64,7 @@ describe("deriveProfile (records made here: seeded Gaussian, shaped by one FFT, 
     const closed = g0 * (lifeS / 3600) ** (2 / 8);
     expect(r.compression.flatFactor).toBeCloseTo(100 ** 0.25, 12);
     // Spread: the response mean square of an SDOF from records of total length T has relative sd 1 / sqrt(B_s T), B_s = pi f_n / Q
-    // its statistical bandwidth (Bendat & Piersol 2010, ch. 8, from memory; measured in tests/deriveProfile.montecarlo.test.ts); widest at the lowest f_n.
+    // its statistical bandwidth (Bendat & Piersol 2010, ch. 8, from memory; measured in tests/analyses/deriveProfile.montecarlo.test.ts); widest at the lowest f_n.
     const totalS = (3 * FIELD_LENGTH) / FIELD_RATE_HZ;
     const eps = 1 / Math.sqrt(((Math.PI * 10) / 10) * totalS);
     const levels = r.document.points.map((p) => p.level! / closed);
