@@ -1,14 +1,11 @@
 import { createHash } from "node:crypto";
-import { existsSync } from "node:fs";
 import { open, stat } from "node:fs/promises";
-import { availableParallelism } from "node:os";
-import { fileURLToPath } from "node:url";
-import { Worker } from "node:worker_threads";
 import { errorFromWire, InputError, quoted, type WireError } from "../errors.js";
 import { retireThread } from "../threadEnd.js";
 import { parseUnitSpec, parseVoltUnit } from "../units.js";
 import { columnPool, MAX_LINE_BYTES, pieceBuffers, splitRow, type CsvPiece, type Delimiter } from "./csvBody.js";
 import { csvBodyPass, type CsvBodyJob } from "./csvBodyPass.js";
+import { type BodyWorker, parseOnWorker, takeBodyWorker, workerBuilt } from "./csvWorkerStart.js";
 import { roundRate, stampQuantum } from "./roundRate.js";
 import { implausibleRate, MIN_PLAUSIBLE_RATE_HZ, rateConflict, type TimeColumnInfo } from "./timeStampCheck.js";
 import { nonFiniteToken, numberTextResolution, parseNumberText } from "./csvNumber.js";
@@ -39,12 +36,6 @@ export interface CsvReadOptions {
 }
 
 const HEAD_BYTES = 65536;
-/**
- * Files at least this large are read on a worker thread (csvBodyPass there: read, hash, parse, check
- * time stamps) while this thread runs the accumulators; see bench/README.md.
- */
-const PARALLEL_BYTES = 8 << 20;
-const WORKER = new URL("./csvParseWorker.js", import.meta.url);
 const TIME_NAMES =
   /^(t|time|times|timestamp|time_?s|time_?ms|time_?us|seconds?|secs?|elapsed|elapsed_?time|time_?elapsed|seconds_?elapsed|zeit|temps|tiempo|date ?time|date_time|date\/time|zeitstempel)$/i;
 const TIME_UNITS: Record<string, number> = {
@@ -483,36 +474,16 @@ function sniff(file: string, head: Buffer, wholeFile: boolean, opts: CsvReadOpti
 
 export async function openCsvTimeHistory(file: string, opts: CsvReadOptions = {}): Promise<TimeHistorySource> {
   const { size } = await stat(file);
-  // A large file's body is read on a worker thread. It starts now, so that its start-up (about 45 ms)
-  // overlaps the sniffing here, and waits for its job; it is unref'd until then, so a source that is
-  // never read does not keep the process alive (and close() ends it).
+  // A large file's body is read on a worker thread. It starts now (or started before the program loaded,
+  // csvWorkerStart.ts), so that its start-up overlaps the sniffing here, and waits for its job.
   const worker =
-    (opts.parseWorkers ?? (size >= PARALLEL_BYTES && availableParallelism() > 1 ? 1 : 0)) > 0 &&
-    existsSync(fileURLToPath(WORKER))
-      ? startBodyWorker()
-      : undefined;
+    (opts.parseWorkers ?? (parseOnWorker(size) ? 1 : 0)) > 0 && workerBuilt() ? takeBodyWorker() : undefined;
   try {
     return await openSniffed(file, size, opts, worker);
   } catch (e) {
     await worker?.thread.terminate();
     throw e;
   }
-}
-
-interface BodyWorker {
-  thread: Worker;
-  /** Settles with the reason when the thread fails or stops, whenever that happens. */
-  ended: Promise<Error>;
-}
-
-function startBodyWorker(): BodyWorker {
-  const thread = new Worker(WORKER);
-  thread.unref();
-  const ended = new Promise<Error>((resolve) => {
-    thread.once("error", resolve);
-    thread.once("exit", (code) => resolve(new Error(`the CSV worker stopped (exit code ${code})`)));
-  });
-  return { thread, ended };
 }
 
 /** The first HEAD_BYTES of the file (the whole of a smaller one). */

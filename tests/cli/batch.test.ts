@@ -108,6 +108,14 @@ describe("CSV parsed on a worker thread (files of 8 MB and more, built code)", (
     expect(par.channels[0].stats.max).toBe(one.channels[0]!.stats.max);
     expect(par.input.sha256).toBe(one.input.sha256);
   });
+  it("a worker started before the program loaded and never used (a bad option) does not hold the exit", () => {
+    // bin.ts starts the parse worker when a file named on the command line is a large CSV (csvWorkerStart.ts).
+    const t0 = Date.now();
+    const r = spawnSync("node", ["bin/psdgate.js", "psd", big, "--segment", "many"], { encoding: "utf8" });
+    expect(r.status).toBe(2);
+    expect(r.stderr).toContain("--segment");
+    expect(Date.now() - t0).toBeLessThan(10000);
+  });
   it("names the exact line of a bad cell deep in a later piece", async () => {
     const lines = s.split("\n");
     lines[300000] = lines[300000]!.replace(/,[^,]*$/, ",oops");
