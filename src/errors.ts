@@ -176,7 +176,9 @@ export function errorToWire(e: unknown): WireError {
   return { code: "INTERNAL", message: String(e) };
 }
 
-/** The error a wire form stands for: the InputError it was made from, or an internal Error with its message and stack. */
+/**
+ * The error a wire form stands for: the InputError it was made from, or an internal Error with its message and stack.
+ */
 export function errorFromWire(w: WireError): Error {
   if (w.details !== undefined) return new InputError(w.code, w.details);
   const e = new Error(w.message);

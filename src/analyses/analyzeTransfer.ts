@@ -45,7 +45,10 @@ export interface TransferOutput extends FrequencyResponse {
   /** sqrt(sum P df) of each, over all lines. */
   predictedRms: number;
   measuredRms: number;
-  /** Lines with coherence >= goodCoherence: their share of all lines and of the measured mean square, and predicted / measured mean square over them. */
+  /**
+   * Lines with coherence >= goodCoherence: their share of all lines and of the measured mean square, and predicted /
+   * measured mean square over them.
+   */
   wellExplained: { lineFraction: number; powerFraction: number; meanSquareRatio: number };
   /** Contiguous ranges where the coherence is below 0.5 and the output carries at least 1 % of its mean square. */
   lowCoherenceBands: { fromHz: number; toHz: number; powerFraction: number }[];
@@ -99,7 +102,10 @@ export async function analyzeTransfer(file: string, options: TransferOptions): P
   }
 }
 
-/** The input channel and the outputs (default: every other channel), picked the one way (read/channelChoice.ts) and checked. */
+/**
+ * The input channel and the outputs (default: every other channel), picked the one way (read/channelChoice.ts) and
+ * checked.
+ */
 function transferChannels(info: RecordingInfo, options: TransferOptions): { select: number[]; outIdx: number[] } {
   const at = (option: string) => ({ option, file: info.file });
   const inIdx = channelIndex(info.channels, options.inputChannel, at("inputChannel"));

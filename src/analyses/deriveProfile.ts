@@ -51,9 +51,15 @@ export const DERIVE_DEFAULTS = {
   /** P95/50: the normal tolerance limit NASA-HDBK-7005 uses for field spectra (from memory). */
   coverage: 0.95,
   confidence: 0.5,
-  /** Warn where the test's expected largest response exceeds the field's by more than this factor (psdgate's default, not a standard's). */
+  /**
+   * Warn where the test's expected largest response exceeds the field's by more than this factor (psdgate's default,
+   * not a standard's).
+   */
   extremeLimit: 1.5,
-  /** ±3 dB band and ±10 % RMS, 120 DOF: the tolerances recalled for IEC 60068-2-64 and MIL-STD-810H (from memory; docs/REFERENCES.md sec. 7). */
+  /**
+   * ±3 dB band and ±10 % RMS, 120 DOF: the tolerances recalled for IEC 60068-2-64 and MIL-STD-810H (from memory;
+   * docs/REFERENCES.md sec. 7).
+   */
   bandDb: 3,
   rmsPercent: 10,
   minDof: 120,
@@ -78,7 +84,10 @@ export interface DeriveOptions {
   mix?: Pick<ServiceMix, "file" | "sha256"> | undefined;
   testDurationS: number;
   analysis?: AnalysisOptions | undefined;
-  /** The one channel of each recording used, as a list of one (default the first): `channels`, as every command spells it. */
+  /**
+   * The one channel of each recording used, as a list of one (default the first): `channels`, as every command spells
+   * it.
+   */
   channels?: ChannelName[] | undefined;
   q?: number | undefined;
   basquinB?: number | undefined;
@@ -92,9 +101,9 @@ export interface DeriveOptions {
   toleranceConfidence?: number | undefined;
   extremeLimit?: number | undefined;
   /**
-   * Where the field's FDS and ERS come from: "psd" (default: narrow-band damage and Davenport's peak of each recording's PSD)
-   * or "time" (each recording filtered through each SDOF in time: rainflow damage and its largest response, as respond does
-   * for a recording; the shocks a Gaussian PSD hides are kept).
+   * Where the field's FDS and ERS come from: "psd" (default: narrow-band damage and Davenport's peak of each
+   * recording's PSD) or "time" (each recording filtered through each SDOF in time: rainflow damage and its largest
+   * response, as respond does for a recording; the shocks a Gaussian PSD hides are kept).
    */
   fieldDamage?: "psd" | "time" | undefined;
   bandDb?: number | undefined;
@@ -127,19 +136,32 @@ export interface FieldRecordingResult {
   /** NOT_STATIONARY when the recording failed the stationarity test. */
   stationarityNote: Finding | undefined;
   psd: Float64Array;
-  /** Damage over its service time and expected largest response over it, per f_n (from the PSD, or in time with fieldDamage "time"). */
+  /**
+   * Damage over its service time and expected largest response over it, per f_n (from the PSD, or in time with
+   * fieldDamage "time").
+   */
   damage: Float64Array;
   extreme: Float64Array;
-  /** With fieldDamage "time": the PSD's narrow-band damage and Davenport peak beside them, and the record's kurtosis. */
+  /**
+   * With fieldDamage "time": the PSD's narrow-band damage and Davenport peak beside them, and the record's kurtosis.
+   */
   fromPsd?: { damage: Float64Array; extreme: Float64Array; kurtosis: number } | undefined;
 }
 
 export interface FieldShocks {
-  /** Each natural frequency's largest maximax SRS over the recordings' whole records (NaN above a recording's fs/4, where none is computed). */
+  /**
+   * Each natural frequency's largest maximax SRS over the recordings' whole records (NaN above a recording's fs/4,
+   * where none is computed).
+   */
   fieldSrs: Float64Array;
-  /** The largest events over all recordings, largest |peak| first (at most 5); `recording` indexes `recordings` (not a path, so a re-run elsewhere compares alike). */
+  /**
+   * The largest events over all recordings, largest |peak| first (at most 5); `recording` indexes `recordings` (not a
+   * path, so a re-run elsewhere compares alike).
+   */
   largestEvents: { recording: number; timeS: number; peak: number; durationS: number }[];
-  /** Events found in each recording, in the order of `recordings` (threshold 6 x its background r.m.s., hold 0.05 s). */
+  /**
+   * Events found in each recording, in the order of `recordings` (threshold 6 x its background r.m.s., hold 0.05 s).
+   */
   eventsPerRecording: number[];
   /** Natural frequencies where the test's expected largest response falls below the field's measured one. */
   shortfallHz: number[];
@@ -183,7 +205,9 @@ export interface DeriveResult {
   };
   /** The field's shocks (as `psdgate shock` finds them) against the random test's largest response. */
   shocks: FieldShocks;
-  /** Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's. */
+  /**
+   * Time compression: the flat-spectrum factor (T_field / T_test)^(2/b) and the profile's RMS against the mean field's.
+   */
   compression: { flatFactor: number; profileRms: number; meanFieldRms: number; rmsRatio: number };
   /** What the derivation notes, as findings (report/findingTexts.ts says them). */
   notes: Finding[];
@@ -192,9 +216,9 @@ export interface DeriveResult {
   /** The displacement against the exciter's rated stroke, when given. */
   stroke?: { ratedMm: number; estimateMm: number; margin: number; withinRating: boolean } | undefined;
   /**
-   * Lines standing far above their neighbours in a field recording (estimate/spectral/toneEstimate.ts spectralTones): candidate
-   * sine tones for a mixed-mode lab profile. Their lines are replaced by the background around them before the
-   * envelope, mean, tolerance limit and damage, so the random profile is not fitted to them.
+   * Lines standing far above their neighbours in a field recording (estimate/spectral/toneEstimate.ts spectralTones):
+   * candidate sine tones for a mixed-mode lab profile. Their lines are replaced by the background around them before
+   * the envelope, mean, tolerance limit and damage, so the random profile is not fitted to them.
    */
   candidateTones: { file: string; frequencyHz: number; peak: number; aboveBackgroundDb: number }[];
   /** The profile document as written, and as psdgate reads it back. */
@@ -276,7 +300,10 @@ function deriveSettings(o: DeriveOptions) {
   return { q, b, nMax, margin, perOctave, coverage, confidence, extremeLimit, sn };
 }
 
-/** Step 1: each recording's PSD, one channel, on one resolution, in one unit; recordings whose lines or units differ are refused. */
+/**
+ * Step 1: each recording's PSD, one channel, on one resolution, in one unit; recordings whose lines or units differ are
+ * refused.
+ */
 async function analyseField(o: DeriveOptions) {
   if ((o.channels?.length ?? 0) > 1)
     throw new InputError("OPTION_INVALID", {
@@ -329,7 +356,10 @@ async function analyseField(o: DeriveOptions) {
   return { channel, base, analysed, first, df };
 }
 
-/** Step 4b's figures: each recording's shock spectrum of the whole record (natural frequencies above its fs/4 left out), the largest at each f_n, and the events. */
+/**
+ * Step 4b's figures: each recording's shock spectrum of the whole record (natural frequencies above its fs/4 left out),
+ * the largest at each f_n, and the events.
+ */
 async function fieldShockSpectra(
   analysed: { r: FieldRecordingInput; a: RecordingAnalysis }[],
   base: AnalysisOptions,
@@ -370,7 +400,10 @@ async function fieldShockSpectra(
   return { fieldSrs, events, eventsPerRecording };
 }
 
-/** The field's damage in time (fieldDamage "time"), per recording (keyed by file and window): rainflow damage per second of record, and its largest response grown to a service time. */
+/**
+ * The field's damage in time (fieldDamage "time"), per recording (keyed by file and window): rainflow damage per second
+ * of record, and its largest response grown to a service time.
+ */
 interface TimeDamage {
   damage: Float64Array;
   extreme: (serviceS: number) => Float64Array;
@@ -415,7 +448,10 @@ async function fieldTimeDamage(
   return timeDamage;
 }
 
-/** Step 4's fit: the profile's breakpoints whose damage over the test covers the field's times the margin, from two starts (the field's mean shape, flat). */
+/**
+ * Step 4's fit: the profile's breakpoints whose damage over the test covers the field's times the margin, from two
+ * starts (the field's mean shape, flat).
+ */
 function fitProfile(g: {
   fieldFatigue: Float64Array;
   mean: Float64Array;
@@ -438,10 +474,11 @@ function fitProfile(g: {
   const n = fnHz.length;
   const target = fieldFatigue.map((d) => d * margin);
   const test = { fnHz, q, durationS: o.testDurationS, sn, toSi };
-  // The inverted FDS, with the field's own mean spectrum as the reference shape: G_inv(f_n) = G_mean(f_n) (D_target / D_mean)^(2/b),
-  // D_mean the mean spectrum's damage over the test. Where the damage at f_n comes from elsewhere in the spectrum (the
-  // quasi-static response to a low-frequency peak), this keeps the level at f_n near the field's instead of loading it all there.
-  // A flat reference is the second start (the local Miles inversion); the fit keeps whichever ends with less over-test.
+  // The inverted FDS, with the field's own mean spectrum as the reference shape: G_inv(f_n) = G_mean(f_n) (D_target /
+  // D_mean)^(2/b), D_mean the mean spectrum's damage over the test. Where the damage at f_n comes from elsewhere in the
+  // spectrum (the quasi-static response to a low-frequency peak), this keeps the level at f_n near the field's instead
+  // of loading it all there. A flat reference is the second start (the local Miles inversion); the fit keeps whichever
+  // ends with less over-test.
   const ref = damageSpectra(clippedSpectrum(lineSpectrum(frequencyHz, mean, fromHz, toHz), fromHz, toHz), test).damage;
   const fromMean = target.map(
     (d, i) => cellMean(frequencyHz, mean, fnHz[i]!, 2 ** (1 / (2 * perOctave))) * (d / ref[i]!) ** (2 / b),
@@ -592,7 +629,10 @@ function profileDocumentOf(
   return document;
 }
 
-/** The lines the recordings share, the band (fminHz/fmaxHz or the defaults, checked against the lines and the lowest Nyquist), its natural frequencies and unit. */
+/**
+ * The lines the recordings share, the band (fminHz/fmaxHz or the defaults, checked against the lines and the lowest
+ * Nyquist), its natural frequencies and unit.
+ */
 function fieldBand(
   o: DeriveOptions,
   analysed: { a: RecordingAnalysis; c: RecordingAnalysis["channels"][number] }[],
@@ -645,7 +685,10 @@ function fieldDamageMode(o: DeriveOptions): "psd" | "time" {
 /** A recording as step 1 analysed it: its input, its analysis and its one channel. */
 type AnalysedRecording = { r: FieldRecordingInput; a: RecordingAnalysis; c: RecordingAnalysis["channels"][number] };
 
-/** What each recording's step 2 shares: the lines and band, the grid, the S-N curve, the service split and the damage in time. */
+/**
+ * What each recording's step 2 shares: the lines and band, the grid, the S-N curve, the service split and the damage in
+ * time.
+ */
 interface FieldContext {
   lines: number;
   frequencyHz: Float64Array;
@@ -662,7 +705,10 @@ interface FieldContext {
   timeDamage: Map<string, TimeDamage>;
 }
 
-/** The field's sums, filled recording by recording: FDS, ERS, service-weighted mean PSD, envelope, notes and candidate tones. */
+/**
+ * The field's sums, filled recording by recording: FDS, ERS, service-weighted mean PSD, envelope, notes and candidate
+ * tones.
+ */
 interface FieldSums {
   fieldFatigue: Float64Array;
   fieldExtreme: Float64Array;
@@ -687,7 +733,10 @@ function refuseSilentRecording(file: string, psd: Float64Array, g: FieldContext)
   }
 }
 
-/** Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around it (psd changed in place). */
+/**
+ * Field tones out of the random part: the lines within the kernel's reach of each candidate take the background around
+ * it (psd changed in place).
+ */
 function removeFieldTones(
   { r, a, c }: AnalysedRecording,
   psd: Float64Array,
@@ -714,7 +763,10 @@ function removeFieldTones(
   }
 }
 
-/** Step 2 for one recording: its service time, its PSD without field tones, its damage and largest response (added to the field's sums), its notes. */
+/**
+ * Step 2 for one recording: its service time, its PSD without field tones, its damage and largest response (added to
+ * the field's sums), its notes.
+ */
 function fieldRecording(x: AnalysedRecording, g: FieldContext, sums: FieldSums): FieldRecordingResult {
   const { r, a, c } = x;
   const { lines, frequencyHz, fromHz, toHz, fnHz, lifeS, df } = g;
@@ -767,7 +819,9 @@ function fieldRecording(x: AnalysedRecording, g: FieldContext, sums: FieldSums):
   };
 }
 
-/** The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named. */
+/**
+ * The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named.
+ */
 function checkFieldDamage(sums: FieldSums, fnHz: Float64Array, lifeS: number): void {
   const { fieldFatigue, fieldExtreme } = sums;
   for (let i = 0; i < fnHz.length; i++) {
@@ -825,7 +879,10 @@ function fieldTolerance(
   return tolerance;
 }
 
-/** Steps 1 to 3: the recordings analysed, the band and grid, the service share, each recording's figures, the field's sums, the groups' shares and the tolerance limit. */
+/**
+ * Steps 1 to 3: the recordings analysed, the band and grid, the service share, each recording's figures, the field's
+ * sums, the groups' shares and the tolerance limit.
+ */
 async function fieldFigures(o: DeriveOptions, settings: ReturnType<typeof deriveSettings>) {
   const { q, perOctave, coverage, confidence, sn } = settings;
   // 1. Each recording's PSD, one channel, on one resolution, in one unit.
@@ -835,8 +892,9 @@ async function fieldFigures(o: DeriveOptions, settings: ReturnType<typeof derive
   // 2. Service share: each group's time split among its recordings by their analysed durations.
   const { groupTime, groupDur, lifeS } = serviceShare(o, analysed);
   const n = fnHz.length;
-  // The field's damage in time (fieldDamage "time"): per recording, the rainflow damage per second of record and a function
-  // giving its largest response grown to a service time (Davenport's factor at nu0+ T over the one at nu0+ T_record, nu0+ from the PSD).
+  // The field's damage in time (fieldDamage "time"): per recording, the rainflow damage per second of record and a
+  // function giving its largest response grown to a service time (Davenport's factor at nu0+ T over the one at nu0+
+  // T_record, nu0+ from the PSD).
   const fieldDamage = fieldDamageMode(o);
   const timeDamage =
     fieldDamage === "time"
@@ -862,7 +920,9 @@ async function fieldFigures(o: DeriveOptions, settings: ReturnType<typeof derive
   return { channel, base, analysed, first, df, ...band, lifeS, fieldDamage, recordings, groups, tolerance, ...sums };
 }
 
-/** Where the test's expected largest response exceeds the field's by more than `extremeLimit` (a note when anywhere). */
+/**
+ * Where the test's expected largest response exceeds the field's by more than `extremeLimit` (a note when anywhere).
+ */
 function extremeCheck(
   testExtreme: Float64Array,
   fieldExtreme: Float64Array,
@@ -884,9 +944,10 @@ function extremeCheck(
 }
 
 /**
- * Step 4b: the field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock response
- * spectra of the whole records, which keep the shocks a Gaussian PSD hides) beside the random test's ERS. Where the test falls
- * short, the random test does not reach the field's shocks and a shock test is needed for them (a note).
+ * Step 4b: the field's shocks against the test's largest response: the recordings' own largest SDOF responses (shock
+ * response spectra of the whole records, which keep the shocks a Gaussian PSD hides) beside the random test's ERS.
+ * Where the test falls short, the random test does not reach the field's shocks and a shock test is needed for them (a
+ * note).
  */
 async function fieldShocks(
   f: { analysed: AnalysedRecording[]; base: AnalysisOptions; channel: ChannelName; fnHz: Float64Array },

@@ -48,7 +48,10 @@ export interface SpectrumSource {
   level: Float64Array;
   /** A mixed-mode profile's sine tones inside the band (a recording's or table's tones are already in its lines). */
   tones?: { label: string; hz: number; peak: number }[] | undefined;
-  /** A recording's own SDOF responses in time (when SourceOptions.response asked for them), with its mean, kurtosis and analysed length. */
+  /**
+   * A recording's own SDOF responses in time (when SourceOptions.response asked for them), with its mean, kurtosis and
+   * analysed length.
+   */
   timeResponse?: (TimeResponse & { mean: number; kurtosis: number; recordS: number; sampleRateHz: number }) | undefined;
   /** The analysed window of a recording (--from/--to; the whole record without them), s. */
   window?: { fromS: number; toS: number; durationS: number; whole: boolean } | undefined;
@@ -106,7 +109,10 @@ async function firstLine(file: string): Promise<string> {
   return (await readHead(file, 256, "a readable file")).toString("utf8").split(/\r?\n/)[0] ?? "";
 }
 
-/** The kind of a source file: .json/.yaml/.yml a profile, a CSV whose header starts frequency_hz a PSD table, else a recording. */
+/**
+ * The kind of a source file: .json/.yaml/.yml a profile, a CSV whose header starts frequency_hz a PSD table, else a
+ * recording.
+ */
 export async function sourceKind(file: string): Promise<SourceKind> {
   if (/\.(json|ya?ml)$/i.test(file)) return "profile";
   if (/\.wave?$/i.test(file)) return "recording";
@@ -297,7 +303,10 @@ export interface ResponseSpectra {
   band: { fromHz: number; toHz: number };
   fnHz: Float64Array;
   q: number;
-  /** Exposure of the largest peak and the damage; undefined when neither the options nor the source give one (those figures are then NaN). */
+  /**
+   * Exposure of the largest peak and the damage; undefined when neither the options nor the source give one (those
+   * figures are then NaN).
+   */
   durationS: number | undefined;
   sn: SnCurve;
   /** What the result leaves out for want of an exposure time (empty when it has one). */
@@ -426,7 +435,10 @@ export function parseFnGrid(text: string, option = "fn"): Float64Array {
   return Float64Array.from(list).sort();
 }
 
-/** responseSpectra's settings, each checked: Q, the exposure (the options', else the source's own; may be none) and the S-N curve. */
+/**
+ * responseSpectra's settings, each checked: Q, the exposure (the options', else the source's own; may be none) and the
+ * S-N curve.
+ */
 function responseSettings(
   src: SpectrumSource,
   o: ResponseOptions,
@@ -460,7 +472,10 @@ function responseSettings(
   return { q, durationS, sn };
 }
 
-/** The random response at each natural frequency (exact RMS, Miles, relative displacement, Rice's rates, Davenport's peak, narrow-band damage). */
+/**
+ * The random response at each natural frequency (exact RMS, Miles, relative displacement, Rice's rates, Davenport's
+ * peak, narrow-band damage).
+ */
 function randomResponses(
   s: InputSpectrum,
   fnHz: Float64Array,
@@ -536,7 +551,10 @@ function strokeCheck(m: Motion, strokeMm: number | undefined): ResponseSpectra["
   return { ratedMm: strokeMm, estimateMm: est, margin: strokeMm / est, withinRating: est <= strokeMm };
 }
 
-/** A mixed-mode profile's tones: each one's deterministic peak responses, and the whole response's RMS with them (both undefined without tones). */
+/**
+ * A mixed-mode profile's tones: each one's deterministic peak responses, and the whole response's RMS with them (both
+ * undefined without tones).
+ */
 function toneResponses(
   sourceTones: SpectrumSource["tones"],
   fnHz: Float64Array,
@@ -568,8 +586,9 @@ function toneResponses(
 }
 
 /**
- * For a recording with its responses in time and an exposure: the record's own damage and largest peak replace the PSD's
- * in `r` (changed in place), which are returned as fromPsd beside the time-domain figures; otherwise both undefined.
+ * For a recording with its responses in time and an exposure: the record's own damage and largest peak replace the
+ * PSD's in `r` (changed in place), which are returned as fromPsd beside the time-domain figures; otherwise both
+ * undefined.
  */
 function recordFigures(
   src: SpectrumSource,
@@ -602,7 +621,10 @@ function recordFigures(
   };
 }
 
-/** The SDOF responses to a source at each natural frequency of the grid, with the input's motion, the stroke check and any tones. */
+/**
+ * The SDOF responses to a source at each natural frequency of the grid, with the input's motion, the stroke check and
+ * any tones.
+ */
 export function responseSpectra(src: SpectrumSource, o: ResponseOptions): ResponseSpectra {
   const { q, durationS, sn } = responseSettings(src, o);
   const toSi = accelFactor(src.units, "m/s2");
@@ -691,7 +713,8 @@ export async function runResponse(
   againstFile?: string,
 ): Promise<{ r: ResponseSpectra; against?: { b: ResponseSpectra; c: ResponseComparison } | undefined }> {
   const fnHz = parseFnGrid(o.fn);
-  // A recording is also filtered through each SDOF in time: damage by rainflow, the largest response (the non-Gaussian part the PSD hides).
+  // A recording is also filtered through each SDOF in time: damage by rainflow, the largest response (the non-Gaussian
+  // part the PSD hides).
   const response = { fnHz, q: o.q, basquinB: o.sn?.basquinB ?? SN_DEFAULTS.basquinB };
   const a = await loadSpectrumSource(source, { ...o.source, response });
   const r = responseSpectra(a, { fnHz, q: o.q, durationS: o.durationS, sn: o.sn, strokeMm: o.strokeMm });

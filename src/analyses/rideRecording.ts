@@ -57,7 +57,10 @@ export interface RideOptions
   /** Channel (name or 1-based position) of each measured axis; at least one. */
   axes: Partial<Record<Axis, string>>;
   posture: Posture;
-  /** Stated daily exposure the recording stands for, s. Without it there is no A(8), daily VDV or judgement against the Directive (EXPOSURE_NOT_GIVEN). */
+  /**
+   * Stated daily exposure the recording stands for, s. Without it there is no A(8), daily VDV or judgement against the
+   * Directive (EXPOSURE_NOT_GIVEN).
+   */
   exposureS?: number | undefined;
   /** Channel of the vertical floor acceleration beneath the seat, for the seat's transmissibility. */
   floor?: string | undefined;
@@ -123,7 +126,10 @@ export interface RideResult {
   doubts: Finding[];
 }
 
-/** Largest allowed difference between the two routes to a_w before the result carries a doubt, beyond the weighting filter's stated error at the rate. */
+/**
+ * Largest allowed difference between the two routes to a_w before the result carries a doubt, beyond the weighting
+ * filter's stated error at the rate.
+ */
 export const ROUTE_TOLERANCE = 0.01;
 
 /** The extra accumulator: weights each listed channel in the time domain and feeds its dose figures. */
@@ -157,7 +163,10 @@ class WeightedDoses
     private readonly spectrogram: boolean,
   ) {}
 
-  /** The filters at the announced rate; Welch's geometry (for the like-for-like mean square and the spectrogram) from the pass's one resolved analysis. */
+  /**
+   * The filters at the announced rate; Welch's geometry (for the like-for-like mean square and the spectrogram) from
+   * the pass's one resolved analysis.
+   */
   start(designRateHz: number, analysis: ResolvedAnalysis): void {
     if (!(designRateHz >= MIN_WEIGHTING_RATE_HZ)) {
       // A rate the reader could not settle (a degenerate CSV) is left to the read's own error.
@@ -377,7 +386,10 @@ interface RideFindings {
   doubts: Finding[];
 }
 
-/** An axis's two routes to a_w (PSD against time with Welch's weights) and the PSD against the plain r.m.s., and held samples. */
+/**
+ * An axis's two routes to a_w (PSD against time with Welch's weights) and the PSD against the plain r.m.s., and held
+ * samples.
+ */
 function routeFindings(
   a: {
     axis: Axis;
@@ -441,7 +453,9 @@ function levelNote(stationarity: StationarityFinding, axis: Axis, exposureGiven:
   };
 }
 
-/** The read's doubts and held-sample notes of an axis's channel, carried over (Parseval's on a moving level as a note). */
+/**
+ * The read's doubts and held-sample notes of an axis's channel, carried over (Parseval's on a moving level as a note).
+ */
 function channelFindings(axis: Axis, ch: RideChannel, moving: ReturnType<typeof movingLevel>, out: RideFindings): void {
   const onChannel = { axis, channel: ch.name };
   for (const f of ch.doubts) {
@@ -510,7 +524,10 @@ function rideAxis(pass: RidePass, c: number, options: RideOptions, out: RideFind
   };
 }
 
-/** The realisation's error, in every result (first among the notes): which figures carry it and which do not; and a band cut short by the rate. */
+/**
+ * The realisation's error, in every result (first among the notes): which figures carry it and which do not; and a band
+ * cut short by the rate.
+ */
 function weightingNotes(results: WeightedResult[], fs: number, options: RideOptions, notes: Finding[]): void {
   const worst = results.reduce((w, r) => (r.design.maxErrorPct > w.design.maxErrorPct ? r : w), results[0]!).design;
   notes.unshift({
@@ -532,7 +549,10 @@ function weightingNotes(results: WeightedResult[], fs: number, options: RideOpti
   }
 }
 
-/** The daily exposure (when one is stated), the caution zone, the vibration total values, and what the axes and posture leave out. */
+/**
+ * The daily exposure (when one is stated), the caution zone, the vibration total values, and what the axes and posture
+ * leave out.
+ */
 function exposureFigures(pass: RidePass, rideAxes: RideAxis[], options: RideOptions, notes: Finding[]) {
   const { axes, rules } = pass;
   const figures = rideAxes.map((a) => ({ axis: a.axis, aw: a.dose.rms, vdv: a.dose.vdv, durationS: a.dose.durationS }));

@@ -43,7 +43,10 @@ export interface ShockOptions extends Omit<AnalysisOptions, "accumulators" | "sp
   holdS?: number | undefined;
   /** The event's SRS window starts this long before its first exceedance, s; default the hold time. */
   preS?: number | undefined;
-  /** ... and ends this long after its last, s; default the larger of the hold time and one period of the lowest natural frequency. */
+  /**
+   * ... and ends this long after its last, s; default the larger of the hold time and one period of the lowest natural
+   * frequency.
+   */
   postS?: number | undefined;
   maxEvents?: number | undefined;
   /** Also give each event's primary (to its last exceedance) and residual (after it) spectra. */
@@ -64,7 +67,9 @@ export interface ShockEventResult {
   /** First to last sample at or above the threshold, plus one sample step, s. */
   durationS: number;
   srs: ShockSpectrum;
-  /** Primary (to the event's last exceedance, the pre window included) and residual (after it) spectra, when asked for. */
+  /**
+   * Primary (to the event's last exceedance, the pre window included) and residual (after it) spectra, when asked for.
+   */
   primary?: ShockSpectrum | undefined;
   residual?: ShockSpectrum | undefined;
   /** The SRS window ended with the record. */
@@ -190,7 +195,10 @@ function zeroUpcrossingRate(psd: Float64Array, f: Float64Array): number {
   return m0 > 0 ? Math.sqrt(m2 / m0) : NaN;
 }
 
-/** shock's settings with their defaults, each checked in turn: Q, the hold, the threshold or its factor, the event window. */
+/**
+ * shock's settings with their defaults, each checked in turn: Q, the hold, the threshold or its factor, the event
+ * window.
+ */
 function shockSettings(options: ShockOptions) {
   const q = options.q;
   const fnHz = Float64Array.from(options.fnHz);
@@ -247,7 +255,10 @@ interface ChannelLevels {
   nu0: number;
 }
 
-/** Each channel's levels from read 1: the threshold given, or the factor times the background (none: SHOCK_NO_BACKGROUND). */
+/**
+ * Each channel's levels from read 1: the threshold given, or the factor times the background (none:
+ * SHOCK_NO_BACKGROUND).
+ */
 function channelLevels(
   file: string,
   analysis: RecordingAnalysis,
@@ -275,7 +286,9 @@ function channelLevels(
   });
 }
 
-/** One channel's result from both reads: its events (largest |peak| first), whole-record SRS and PVSS, and its notes. */
+/**
+ * One channel's result from both reads: its events (largest |peak| first), whole-record SRS and PVSS, and its notes.
+ */
 function shockChannel(
   ch: RecordingAnalysis["channels"][number],
   p: ChannelLevels,
@@ -342,7 +355,8 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   const fs = analysis.input.sampleRateHz;
   const notes: Finding[] = [];
   const doubts: Finding[] = [...analysis.passDoubts];
-  // The read's own doubts (non-finite samples, a clipped or saturated signal, held samples) carry over: a clipped shock's peak and SRS are too low.
+  // The read's own doubts (non-finite samples, a clipped or saturated signal, held samples) carry over: a clipped
+  // shock's peak and SRS are too low.
   for (const ch of analysis.channels)
     for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
   const per = channelLevels(file, analysis, stretches, options.threshold, factor);

@@ -51,7 +51,9 @@ const SLOT_FRAMES = 16384;
 /** Below this many natural frequencies x samples a thread's start-up costs more than it saves. */
 const MIN_WORK = 2e7;
 
-/** How many threads: PSDGATE_RESPONSE_THREADS if set, else one per core but one, at most one per 4 natural frequencies. */
+/**
+ * How many threads: PSDGATE_RESPONSE_THREADS if set, else one per core but one, at most one per 4 natural frequencies.
+ */
 export function responseThreads(
   fnCount: number,
   expectedSamples: number,
@@ -98,7 +100,8 @@ class TimeResponsePool implements TimeResponseSink {
     this.data = new Float64Array(data);
     this.results = new Float64Array(results);
     for (let w = 0; w < workers; w++) {
-      // Interleaved shares (w, w + T, ...): low and high natural frequencies cost alike per sample, and so do the shares.
+      // Interleaved shares (w, w + T, ...): low and high natural frequencies cost alike per sample, and so do the
+      // shares.
       const indexes: number[] = [];
       for (let i = w; i < this.n; i += workers) indexes.push(i);
       const wd: PoolWorkerData = {

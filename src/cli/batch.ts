@@ -173,7 +173,9 @@ function settle<T>(p: Pool<T>, id: number, o: Outcome<T>): void {
   if (++p.delivered === p.run.files.length) p.allDone();
 }
 
-/** Starts one worker that takes recordings until none are left; if it dies, its recording fails and a fresh one goes on. */
+/**
+ * Starts one worker that takes recordings until none are left; if it dies, its recording fails and a fresh one goes on.
+ */
 function startWorker<T>(pool: Pool<T>): void {
   const { run, limits } = pool;
   const files = run.files;
@@ -232,7 +234,10 @@ function startWorker<T>(pool: Pool<T>): void {
   send();
 }
 
-/** Heap limits of one batch worker (node:worker_threads resourceLimits). Sample buffers live outside the heap and are bounded by the analysis limits (read/analysisLimits.ts, checked in pass/resolveAnalysis.ts). */
+/**
+ * Heap limits of one batch worker (node:worker_threads resourceLimits). Sample buffers live outside the heap and are
+ * bounded by the analysis limits (read/analysisLimits.ts, checked in pass/resolveAnalysis.ts).
+ */
 export const WORKER_LIMITS = { maxOldGenerationSizeMb: 1024, maxYoungGenerationSizeMb: 64, stackSizeMb: 8 } as const;
 export type WorkerLimits = { maxOldGenerationSizeMb?: number; maxYoungGenerationSizeMb?: number; stackSizeMb?: number };
 

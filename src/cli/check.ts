@@ -125,7 +125,10 @@ export function registerCheck(program: Command, io: CliIo): void {
     .action((args: string[], o: CheckFlags, cmd: Command) => runCheck(io, runner, args, o, cmd));
 }
 
-/** Runs `check`: inputs read and outputs checked, then several recordings on the batch pool or one here; exits with the verdict. */
+/**
+ * Runs `check`: inputs read and outputs checked, then several recordings on the batch pool or one here; exits with the
+ * verdict.
+ */
 async function runCheck(io: CliIo, runner: Runner, args: string[], o: CheckFlags, cmd: Command): Promise<void> {
   const run = await readCheckInputs(io, args, o, cmd);
   if (run.files.length > 1) return checkMany(runner, run);
@@ -152,7 +155,10 @@ async function runCheck(io: CliIo, runner: Runner, args: string[], o: CheckFlags
   throw new Exit(verdictCode(r));
 }
 
-/** The profile, identities and recordings read, the outputs checked (the report folder made), each recording's identity found. */
+/**
+ * The profile, identities and recordings read, the outputs checked (the report folder made), each recording's identity
+ * found.
+ */
 async function readCheckInputs(io: CliIo, args: string[], o: CheckFlags, cmd: Command): Promise<CheckRun> {
   const { loadProfile } = await import("../analyses/checkRecording.js");
   const control =
@@ -235,7 +241,10 @@ async function writeCheckReport(run: CheckRun, r: CheckResult, index: number): P
   return sha256Hex(html);
 }
 
-/** Several recordings on the batch pool (the one-recording outputs refused), reports and their index beside it; exits with the worst. */
+/**
+ * Several recordings on the batch pool (the one-recording outputs refused), reports and their index beside it; exits
+ * with the worst.
+ */
 async function checkMany(runner: Runner, run: CheckRun): Promise<never> {
   const { o, files, profile, wantsReport, control } = run;
   if (o.report !== undefined)

@@ -43,7 +43,10 @@ interface DeriveFlags extends ParsedCommon {
 const num = (option: string, expected: string, rule: (x: number) => boolean = () => true) =>
   numberOption(option, rule, expected);
 
-/** `psdgate derive FILE… --life L --test-duration T --out PROFILE`: a fatigue-equivalent lab profile from field recordings. */
+/**
+ * `psdgate derive FILE… --life L --test-duration T --out PROFILE`: a fatigue-equivalent lab profile from field
+ * recordings.
+ */
 export function registerDerive(program: Command, io: CliIo): void {
   addDeriveLimitOptions(
     addDeriveFitOptions(
@@ -70,7 +73,10 @@ export function registerDerive(program: Command, io: CliIo): void {
     .action((args: string[], o: DeriveFlags, cmd: Command) => runDerive(io, args, o, cmd));
 }
 
-/** derive's inputs and outputs: the recordings (or a mix), the life, the test's duration, the profile and record written. */
+/**
+ * derive's inputs and outputs: the recordings (or a mix), the life, the test's duration, the profile and record
+ * written.
+ */
 function addDeriveInputOptions(cmd: Command): Command {
   return cmd
     .option(
@@ -191,7 +197,9 @@ function addDeriveLimitOptions(cmd: Command): Command {
 /** What derive reads: the recordings and the life they stand for (from a mix file or the command line). */
 type DeriveInputs = Pick<DeriveOptions, "recordings" | "groups" | "lifeRule" | "mix" | "title">;
 
-/** Runs `derive`: options and outputs checked, the profile derived, then the profile, its record and the result written. */
+/**
+ * Runs `derive`: options and outputs checked, the profile derived, then the profile, its record and the result written.
+ */
 async function runDerive(io: CliIo, args: string[], o: DeriveFlags, cmd: Command): Promise<void> {
   const { deriveProfile, strokeOf } = await import("../analyses/deriveProfile.js");
   const { deriveJson, deriveText, profileDocumentText } = await import("../report/deriveReport.js");
@@ -245,7 +253,10 @@ async function runDerive(io: CliIo, args: string[], o: DeriveFlags, cmd: Command
   );
 }
 
-/** The recordings and life from --mix (not with files or --life) or from the files and --life; settings files read go on `read`. */
+/**
+ * The recordings and life from --mix (not with files or --life) or from the files and --life; settings files read go on
+ * `read`.
+ */
 async function deriveInputs(io: CliIo, args: string[], o: DeriveFlags, read: string[]): Promise<DeriveInputs> {
   const { mixInputs, plainInputs } = await import("../analyses/deriveProfile.js");
   if (o.mix !== undefined) {

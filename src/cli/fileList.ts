@@ -2,7 +2,10 @@ import { existsSync } from "node:fs";
 import { fsReason, openRegularFile } from "../read/regularFile.js";
 import { InputError } from "../errors.js";
 
-/** Expand the command's file arguments: globs (quoted, so the shell left them), `-` for a list on stdin, and --files-from. */
+/**
+ * Expand the command's file arguments: globs (quoted, so the shell left them), `-` for a list on stdin, and
+ * --files-from.
+ */
 export async function expandFiles(
   args: string[],
   filesFrom: string | undefined,

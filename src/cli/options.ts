@@ -75,7 +75,10 @@ const scaleValue = (t: string) => {
 };
 const sensitivityValue = (t: string) => (parseSensitivity(t) ? t.trim() : undefined);
 
-/** A time option: seconds from the first sample (a plain number), or clock text kept as given (checked against the record's stamps later). */
+/**
+ * A time option: seconds from the first sample (a plain number), or clock text kept as given (checked against the
+ * record's stamps later).
+ */
 function timeOption(option: string) {
   return (v: string): number | string => {
     const t = v.trim();
@@ -272,11 +275,14 @@ export function analysisOptions(o: ParsedCommon): AnalysisOptions {
   };
 }
 
-/** A parsed option value in words: plain values as written, a parsed pair list (`--axes`, `--scale CH=K`) as key=value. */
+/**
+ * A parsed option value in words: plain values as written, a parsed pair list (`--axes`, `--scale CH=K`) as key=value.
+ */
 function givenValue(v: unknown): string {
   if (v === null || typeof v !== "object") return String(v);
   const o = v as Record<string, unknown>;
-  // A per-channel setting ({ channel?, value }, from `--scale`, `--sensitivity`) reads back as written: CH=K, or K for every channel.
+  // A per-channel setting ({ channel?, value }, from `--scale`, `--sensitivity`) reads back as written: CH=K, or K for
+  // every channel.
   const keys = Object.keys(o);
   if ("value" in o && keys.every((k) => k === "value" || k === "channel"))
     return o.channel === undefined ? givenValue(o.value) : `${String(o.channel)}=${givenValue(o.value)}`;
@@ -306,7 +312,10 @@ export function rerunOptions(o: AnalysisOptions & { control?: unknown }): Record
   return JSON.parse(JSON.stringify({ ...o, onProgress: undefined })) as Record<string, unknown>;
 }
 
-/** A duration written `8h`, `6.5 h`, `90min`, `2h30min`, `45s`, `5d`, `5 days` or `hh:mm`, in s; undefined for anything else. */
+/**
+ * A duration written `8h`, `6.5 h`, `90min`, `2h30min`, `45s`, `5d`, `5 days` or `hh:mm`, in s; undefined for anything
+ * else.
+ */
 export function parseDuration(text: string): number | undefined {
   const body = text.trim().toLowerCase().replace(/\s+/g, "");
   const clock = /^(\d{1,2}):([0-5]\d)$/.exec(body);
@@ -323,7 +332,9 @@ export function parseDuration(text: string): number | undefined {
   return at === body.length && body.length > 0 ? total : undefined;
 }
 
-/** `--life`, `--test-duration`: a number of seconds, or a number with s, min or h (`3600`, `90min`, `1.5h`, `2h30min`). */
+/**
+ * `--life`, `--test-duration`: a number of seconds, or a number with s, min or h (`3600`, `90min`, `1.5h`, `2h30min`).
+ */
 export function durationOption(option: string) {
   return (text: string): number => {
     const t = text.trim();

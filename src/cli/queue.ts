@@ -243,7 +243,10 @@ function stopOnSignals(say: (s: string) => void): { stop: AbortController; relea
   return { stop, release: () => (process.off("SIGTERM", term), process.off("SIGINT", int)) };
 }
 
-/** The queue opened for a worker: a worker may start before the server does, or outlive a restart of it, so it waits with back-off. */
+/**
+ * The queue opened for a worker: a worker may start before the server does, or outlive a restart of it, so it waits
+ * with back-off.
+ */
 async function openForWork(
   target: DbTarget,
   jobs: number,

@@ -101,7 +101,8 @@ export function registerRide(program: Command, io: CliIo): void {
         ),
     ),
   );
-  // Channels come from --axes and --floor, and results are SI: these two shared options stay out of ride's help (and are refused).
+  // Channels come from --axes and --floor, and results are SI: these two shared options stay out of ride's help (and
+  // are refused).
   for (const opt of cmd.options) if (opt.long === "--channel" || opt.long === "--result-units") opt.hideHelp();
   cmd
     .requiredOption("--axes <pairs>", "channel of each axis, e.g. x=seat_x,y=seat_y,z=seat_z (z vertical)", parseAxes)
@@ -166,7 +167,9 @@ export function registerRide(program: Command, io: CliIo): void {
     .action((file: string, o: RideFlags, cmd: Command) => runRide(io, file, o, cmd));
 }
 
-/** Runs `ride` on one recording: shared options refused, outputs checked, the whole-body figures found, then written. */
+/**
+ * Runs `ride` on one recording: shared options refused, outputs checked, the whole-body figures found, then written.
+ */
 async function runRide(io: CliIo, file: string, o: RideFlags, cmd: Command): Promise<void> {
   if (o.channel !== undefined)
     throw new InputError("OPTION_CONFLICT", {

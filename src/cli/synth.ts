@@ -79,7 +79,9 @@ export function registerSynth(program: Command, io: CliIo): void {
     .action((o: SynthFlags) => runSynth(io, o));
 }
 
-/** Writes the record: the profile read, the output checked, the samples synthesised into it, then what was written said. */
+/**
+ * Writes the record: the profile read, the output checked, the samples synthesised into it, then what was written said.
+ */
 async function runSynth(io: CliIo, o: SynthFlags): Promise<void> {
   const { loadProfile } = await import("../analyses/checkRecording.js");
   const { createTimeHistoryWriter } = await import("../report/timeHistoryWriter.js");

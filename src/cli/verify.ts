@@ -21,7 +21,10 @@ const MEANING = {
   missing: "the report is intact but an input it names was not found, so its numbers were not re-run",
 } as const;
 
-/** `psdgate verify REPORT.html`: the report intact, its inputs by SHA-256, its analysis re-run (exit 0), a difference (1), an input missing (2). */
+/**
+ * `psdgate verify REPORT.html`: the report intact, its inputs by SHA-256, its analysis re-run (exit 0), a difference
+ * (1), an input missing (2).
+ */
 export function registerVerify(program: Command, io: CliIo): void {
   program
     .command("verify")

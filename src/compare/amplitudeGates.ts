@@ -17,7 +17,8 @@ import type { SampleStatistics } from "../estimate/statistics/runningMoments.js"
  *   about N_c = 2 (n - 1) P(X0 < c < X1) times. Crossings of a high level are nearly Poisson (Cramer &
  *   Leadbetter, Stationary and Related Stochastic Processes, Wiley 1967, ch. 12), so the chance the record
  *   never reaches c is about exp(-N_c). Below CREST_GATE_RATE: a doubt. (Checked by simulation here: at
- *   exp(-N_c) = 8e-5 the observed rate was about 5e-4, so the gate is set a hundred times lower.) (The continuous-time count
+ * exp(-N_c) = 8e-5 the observed rate was about 5e-4, so the gate is set a hundred times lower.) (The continuous-time
+ * count
  *   2 nu0 T exp(-c^2/2) of Rice 1944 over-counts when the sampling is coarse against the bandwidth.)
  * - Pearson kurtosis k. For a Gaussian process its spread is sqrt(24 sum_tau rho(tau)^4 / n), rho the
  *   autocorrelation (from the PSD by an inverse FFT): neighbouring samples of a narrow-band record are
@@ -83,7 +84,10 @@ function normalUpper(x: number): number {
   return (s * h) / 3 / Math.sqrt(2 * Math.PI);
 }
 
-/** P(X0 < c < X1) for standard normals with correlation rho: Q(c) - integral_c^inf phi(x) Q((c - rho x) / sqrt(1 - rho^2)) dx. */
+/**
+ * P(X0 < c < X1) for standard normals with correlation rho: Q(c) - integral_c^inf phi(x) Q((c - rho x) / sqrt(1 -
+ * rho^2)) dx.
+ */
 export function upCrossingChance(c: number, rho: number): number {
   const q = normalUpper(c);
   if (!(rho < 1)) return 0;

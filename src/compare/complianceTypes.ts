@@ -45,7 +45,10 @@ export interface Excursion {
   clear: boolean;
   /** Shown by the rule: a line of the run, or a stretch of lines around it, is outside at the family-wise level. */
   shown: boolean;
-  /** Bonferroni-adjusted p-value of the worst line: the chance of a line this far out among all tests if the PSD were on the limit. */
+  /**
+   * Bonferroni-adjusted p-value of the worst line: the chance of a line this far out among all tests if the PSD were on
+   * the limit.
+   */
   adjustedP: number;
   /**
    * For a run not shown: how many times longer a record would show its worst line with at least 90 %
@@ -86,10 +89,16 @@ export interface RuleReport {
   largestOf: { channels: number; meanAllowanceDb: number; effectiveDof: number } | null;
 }
 
-/** How long a run must be for the verdict to be decided (pass or fail) with `probability`, if the spectrum is what was measured. */
+/**
+ * How long a run must be for the verdict to be decided (pass or fail) with `probability`, if the spectrum is what was
+ * measured.
+ */
 export interface DecideEstimate {
   probability: number;
-  /** The DOF and the run length in seconds at this sample rate, segment and overlap; undefined when not within 1000x this run. */
+  /**
+   * The DOF and the run length in seconds at this sample rate, segment and overlap; undefined when not within 1000x
+   * this run.
+   */
   dof: number | undefined;
   seconds: number | undefined;
   /** The decision most likely at that length. */
@@ -103,7 +112,10 @@ export interface ChannelCompliance {
   findings: Finding[];
   lines: LineDeviation[];
   excursions: Excursion[];
-  /** Lines in the profile's range that were not judged, and why (notch: the window's kernel is not modelled well enough there; excluded: left out by the caller's mask). */
+  /**
+   * Lines in the profile's range that were not judged, and why (notch: the window's kernel is not modelled well enough
+   * there; excluded: left out by the caller's mask).
+   */
   unjudged: { edge: number; detrend: number; aboveRecord: number; notch: number; excluded: number };
   rms: {
     measured: number;
@@ -143,9 +155,15 @@ export interface SpectrumUnderTest {
   segmentLength: number;
   detrend: Detrend;
   confidence: number;
-  /** With the largest of k control channels taken at each line, k (its upper tests use the largest's distribution); else 1. */
+  /**
+   * With the largest of k control channels taken at each line, k (its upper tests use the largest's distribution); else
+   * 1.
+   */
   upperSharedBy?: number | undefined;
-  /** Spectra the record's verdict rests on (every judged channel, or the one control spectrum): the 5 % is split over them. Default 1. */
+  /**
+   * Spectra the record's verdict rests on (every judged channel, or the one control spectrum): the 5 % is split over
+   * them. Default 1.
+   */
   family?: number | undefined;
   /** Fraction of a segment shared with the next (for run lengths in seconds); default 0.5. */
   overlap?: number | undefined;

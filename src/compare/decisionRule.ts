@@ -13,7 +13,8 @@ import {
  * - Each judged line's Welch estimate is G * chi2(nu) / nu (Bendat & Piersol, Random Data, 4th ed.,
  *   Wiley 2010, ch. 8). A line is *shown* above its upper limit U when G_hat / U exceeds the
  *   chi-square quantile chi2_{1-a}(nu) / nu, and below its lower limit L when G_hat / L falls below
- *   chi2_a(nu) / nu, at a per-test level a = alphaLines (less the stretches' share, `stretchShare`) / (2 m) for m judged lines (Bonferroni 1936;
+ * chi2_a(nu) / nu, at a per-test level a = alphaLines (less the stretches' share, `stretchShare`) / (2 m) for m judged
+ * lines (Bonferroni 1936;
  *   Miller, Simultaneous Statistical Inference, 2nd ed., Springer 1981, ch. 1). Whatever the true PSD
  *   inside the bands, the chance that any line is shown outside is then at most alphaLines.
  * - The RMS over the profile's range is shown outside its tolerance the same way, with the
@@ -41,12 +42,18 @@ export const DECISION_RULE = {
   outer: 0.005,
   /** Its share for the RMS, both directions together. */
   rms: 0.01,
-  /** Its share for the sine tones of a mixed-mode profile (taken from the lines' share when the profile has tones; toneCheck.ts). */
+  /**
+   * Its share for the sine tones of a mixed-mode profile (taken from the lines' share when the profile has tones;
+   * toneCheck.ts).
+   */
   tones: 0.01,
   /** The departure a pass must have been able to see (psdgate's default power requirement). */
   departureDb: 1.5,
   departureShare: 0.05,
-  /** The narrowest departure the power covers, in neighbouring lines: the departure is seen through the window's kernel at that width. */
+  /**
+   * The narrowest departure the power covers, in neighbouring lines: the departure is seen through the window's kernel
+   * at that width.
+   */
   departureWidthLines: 3,
   rmsBeyondDb: 0.5,
   power: 0.95,
@@ -185,7 +192,10 @@ export function lowerFactor(dof: number, level: number): number {
   return chiSquareQuantile(level, dof) / dof;
 }
 
-/** P(chi2(nu)/nu * ratio > factor): the chance an estimate whose true value is `ratio` x the limit exceeds the threshold. */
+/**
+ * P(chi2(nu)/nu * ratio > factor): the chance an estimate whose true value is `ratio` x the limit exceeds the
+ * threshold.
+ */
 export function chanceAbove(dof: number, ratio: number, factor: number): number {
   return chiSquareSurvival((dof * factor) / ratio, dof);
 }
@@ -218,7 +228,10 @@ export interface PowerInputs {
    * `departureShare`): how much of it the centre line sees. Absent: 1 (the departure seen whole).
    */
   seenShare?: ((widthLines: number) => number) | undefined;
-  /** The widest band, dB, each side: the rest of a run's kernel is taken at the profile's level, the worst case for the centre line. */
+  /**
+   * The widest band, dB, each side: the rest of a run's kernel is taken at the profile's level, the worst case for the
+   * centre line.
+   */
   widestUpperDb?: number | undefined;
   widestLowerDb?: number | undefined;
 }

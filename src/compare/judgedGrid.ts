@@ -13,7 +13,10 @@ import { profileLevel, type TestProfile, type ToleranceBand } from "./testProfil
  * The grid of a judgement: which lines of a measured spectrum are judged against a profile, and what each
  * should show (the profile, its band limits and outer limits seen through the analysis window's kernel).
  */
-/** The band of a line; at a shared edge (e.g. exactly 1000 Hz) the tighter band applies (common practice: read a shared edge strictly). */
+/**
+ * The band of a line; at a shared edge (e.g. exactly 1000 Hz) the tighter band applies (common practice: read a shared
+ * edge strictly).
+ */
 export function bandAt(bands: ToleranceBand[], f: number): ToleranceBand | undefined {
   let best: ToleranceBand | undefined;
   for (const b of bands) {
@@ -141,7 +144,10 @@ function fineGrid(
   return grid;
 }
 
-/** `smoothed` for line i on a fine grid: the kernel's samples fall on sub-bins i x oversample - (j - mh), folded at 0 and Nyquist. */
+/**
+ * `smoothed` for line i on a fine grid: the kernel's samples fall on sub-bins i x oversample - (j - mh), folded at 0
+ * and Nyquist.
+ */
 function smoothedOnGrid(grid: FineGrid, weights: Float64Array, i: number, partial: boolean) {
   const mh = (weights.length - 1) / 2;
   const centre = i * grid.oversample + mh;
@@ -173,7 +179,10 @@ function smoothedOnGrid(grid: FineGrid, weights: Float64Array, i: number, partia
   return { req: req / total, up: up / total, lo: lo / total, oUp: oUp / total, oLo: oLo / total };
 }
 
-/** Where the core kernel and the wide one differ by more than this, a line near the profile's ends is left out (1 %, 0.04 dB; chosen here). */
+/**
+ * Where the core kernel and the wide one differ by more than this, a line near the profile's ends is left out (1 %,
+ * 0.04 dB; chosen here).
+ */
 const NOTCH_LIMIT = 0.01;
 
 interface JudgedGrid {

@@ -55,7 +55,9 @@ export function failFindings(
   return fails;
 }
 
-/** What else a pass needs that a longer run can bring: an RMS resolved, judged lines, the DOF, the power, the duration. */
+/**
+ * What else a pass needs that a longer run can bring: an RMS resolved, judged lines, the DOF, the power, the duration.
+ */
 export function blockerFindings(
   js: JudgedSpectrum,
   profile: TestProfile,
@@ -115,7 +117,10 @@ function durationShort(sp: SpectrumUnderTest, requiredS: number): Finding {
     : { code: "DURATION_SHORT", values: { durationS: sp.durationS, requiredDurationS: requiredS } };
 }
 
-/** What a longer run cannot bring: the profile's top above the record's Nyquist, the bottom of the range unjudged, coarse lines. */
+/**
+ * What a longer run cannot bring: the profile's top above the record's Nyquist, the bottom of the range unjudged,
+ * coarse lines.
+ */
 export function coverageFindings(js: JudgedSpectrum, profile: TestProfile, lines: LineDeviation[]): Finding[] {
   const fixedBlockers: Finding[] = [];
   const { sp, fN, f0, nyquist, df, kernel } = js;

@@ -52,7 +52,9 @@ export function stretchWidths(lines: number): number[] {
   return out;
 }
 
-/** Thresholds on measured / raw limit at a DOF: above, the largest-of-k quantile (k = 1: chi-square); below, chi-square. */
+/**
+ * Thresholds on measured / raw limit at a DOF: above, the largest-of-k quantile (k = 1: chi-square); below, chi-square.
+ */
 export interface LineFactors {
   up: number;
   lo: number;
@@ -104,7 +106,10 @@ export function lineTestLevels(
   return { levels, widths, singleShare, upLevel, loLevel, factors };
 }
 
-/** Marks the lines shown outside their band (single lines, then stretches) and beyond the outer limits; returns the counts. */
+/**
+ * Marks the lines shown outside their band (single lines, then stretches) and beyond the outer limits; returns the
+ * counts.
+ */
 export function markShownLines(
   js: JudgedSpectrum,
   lines: LineDeviation[],
@@ -164,7 +169,10 @@ function markShownStretches(js: JudgedSpectrum, lines: LineDeviation[], t: LineT
   }
 }
 
-/** The single-line tests' part of the false-fail rate if the PSD were the profile: union bound over them at G = required. */
+/**
+ * The single-line tests' part of the false-fail rate if the PSD were the profile: union bound over them at G =
+ * required.
+ */
 export function linesFalseFailAtProfile(js: JudgedSpectrum, t: LineTestLevels): number {
   let atProfile = 0;
   const { k, idx, limitsUp, limitsLo, req } = js;

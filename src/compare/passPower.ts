@@ -10,7 +10,10 @@ import {
 import type { JudgedSpectrum } from "./judgedGrid.js";
 import type { TestProfile } from "./testProfile.js";
 
-/** The power requirement that applies to a profile: its own (parts it leaves out from the default), none, or the default. */
+/**
+ * The power requirement that applies to a profile: its own (parts it leaves out from the default), none, or the
+ * default.
+ */
 export function powerRequirement(profile: TestProfile): (PowerRequirement & { source: "default" | "profile" }) | null {
   const p = profile.power;
   if (p === "none") return null;

@@ -8,7 +8,8 @@ import { STANDARD_GRAVITY_M_PER_S2 } from "../units.js";
  * adds the arithmetic and checks that it stays finite.
  */
 
-// The file's types, for the modules that take them with the arithmetic (analyses/deriveProfile.ts imports ProfileDocument from here).
+// The file's types, for the modules that take them with the arithmetic (analyses/deriveProfile.ts imports
+// ProfileDocument from here).
 export type {
   ProfileDocument,
   ProfileProvenance,
@@ -199,7 +200,10 @@ export interface ProfileMotion {
   velocityRms: number;
   /** RMS displacement, m. */
   displacementRms: number;
-  /** Peak-to-peak displacement estimate, m: 6 x the random part's RMS (a +-3 sigma excursion; common practice), plus twice each tone's displacement peak. Equal to 6 x RMS without tones. */
+  /**
+   * Peak-to-peak displacement estimate, m: 6 x the random part's RMS (a +-3 sigma excursion; common practice), plus
+   * twice each tone's displacement peak. Equal to 6 x RMS without tones.
+   */
   displacementPeakToPeak: number;
 }
 

@@ -55,7 +55,10 @@ interface LineSpan {
   last: number;
 }
 
-/** What every tone of one spectrum is tested with: the line spacing, the test level, its z, the power's z and the departure's gain. */
+/**
+ * What every tone of one spectrum is tested with: the line spacing, the test level, its z, the power's z and the
+ * departure's gain.
+ */
 interface ToneTest {
   df: number;
   level: number;
@@ -122,7 +125,10 @@ function toneSpans(
   });
 }
 
-/** The tones' required mean square (peak^2 / 2 each) inside the profile's range and below the record's Nyquist frequency. */
+/**
+ * The tones' required mean square (peak^2 / 2 each) inside the profile's range and below the record's Nyquist
+ * frequency.
+ */
 function toneMeanSquare(sp: SpectrumUnderTest, profile: TestProfile): number {
   const f0 = profile.breakpoints[0]!.hz;
   const top = Math.min(profile.breakpoints[profile.breakpoints.length - 1]!.hz, sp.sampleRateHz / 2);
@@ -237,7 +243,10 @@ function unseenTone(t: ProfileTone, span: LineSpan, test: ToneTest): ToneJudgeme
   };
 }
 
-/** The background's judgement with the tones' verdicts: a tone shown outside fails, an unresolved one keeps a pass from standing. */
+/**
+ * The background's judgement with the tones' verdicts: a tone shown outside fails, an unresolved one keeps a pass from
+ * standing.
+ */
 function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompliance {
   const fails: Finding[] = [];
   const blockers: Finding[] = [];
@@ -311,7 +320,10 @@ function mergeTones(c: ChannelCompliance, tones: ToneJudgement[]): ChannelCompli
   return { ...c, verdict, findings, tones };
 }
 
-/** The search half-width of a tone's fit: twice its frequency allowance, at least 0.5 Hz, and never reaching a neighbouring tone's allowance (chosen here). */
+/**
+ * The search half-width of a tone's fit: twice its frequency allowance, at least 0.5 Hz, and never reaching a
+ * neighbouring tone's allowance (chosen here).
+ */
 export function toneSearchHalfWidthHz(profile: TestProfile, index: number): number {
   const t = profile.tones[index]!;
   let r = Math.max(2 * t.toleranceHz, 0.5);

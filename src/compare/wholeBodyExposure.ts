@@ -56,7 +56,10 @@ export const ISO_2631_HEALTH_ZONE = {
   vdvUpperMs175: 17,
 } as const;
 
-/** The caution zone's bounds at 8 h: ISO_2631_HEALTH_ZONE by default, or the lab's confirmed values (ride --health-zone). */
+/**
+ * The caution zone's bounds at 8 h: ISO_2631_HEALTH_ZONE by default, or the lab's confirmed values (ride
+ * --health-zone).
+ */
 export interface HealthZone {
   a8LowerMs2: number;
   a8UpperMs2: number;
@@ -206,7 +209,10 @@ export function basicMethodCheck(
   return { crestFactor, mtvvRatio, vdvRatio, adequate: exceeded.length === 0, exceeded };
 }
 
-/** Seat effective amplitude transmissibility: weighted r.m.s. on the seat over that on the floor beneath it (common practice). */
+/**
+ * Seat effective amplitude transmissibility: weighted r.m.s. on the seat over that on the floor beneath it (common
+ * practice).
+ */
 export function seatTransmissibility(awSeat: number, awFloor: number): number {
   return awSeat / awFloor;
 }

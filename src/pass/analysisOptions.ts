@@ -15,7 +15,10 @@ import type { AccelUnit } from "../units.js";
  */
 export interface RecordingOptions extends WelchOptions {
   csv?: CsvReadOptions | undefined;
-  /** Unit of the samples where the file does not say (default g): g, mg, ug, m/s2, mm/s2, cm/s2, in/s2, ft/s2 or another spelling of them. */
+  /**
+   * Unit of the samples where the file does not say (default g): g, mg, ug, m/s2, mm/s2, cm/s2, in/s2, ft/s2 or another
+   * spelling of them.
+   */
   inputUnits?: string | undefined;
   /** Unit of the results (default: each channel's input unit). */
   resultUnits?: AccelUnit | undefined;

@@ -64,7 +64,10 @@ export interface ChannelAnalysis {
   parseval: ParsevalCheck;
   band?: { fminHz: number; fmaxHz: number; rms: number } | undefined;
   peaks: SpectralPeak[];
-  /** Lines standing far above their neighbours: candidate sine tones, with their amplitude (toneEstimate.ts spectralTones). */
+  /**
+   * Lines standing far above their neighbours: candidate sine tones, with their amplitude (toneEstimate.ts
+   * spectralTones).
+   */
   tones: SpectralTone[];
   /** Amplitude histogram, when asked for (the review report shows it). */
   histogram?: AmplitudeHistogram | undefined;
@@ -263,7 +266,10 @@ async function readWindow(
   return { summary, taken };
 }
 
-/** The analysed window at the final rate, the pass's errors (no samples, an empty window) and its doubts (the rate contract). */
+/**
+ * The analysed window at the final rate, the pass's errors (no samples, an empty window) and its doubts (the rate
+ * contract).
+ */
 function passWindow(
   plan: AnalysisPlan,
   info: TimeHistorySource["info"],
@@ -413,7 +419,10 @@ export function recordTooShort(a: RecordingAnalysis): InputError | undefined {
   });
 }
 
-/** The note `psd` and `check` give when a record fails the stationarity test (NOT_STATIONARY, with the numbers it rests on). */
+/**
+ * The note `psd` and `check` give when a record fails the stationarity test (NOT_STATIONARY, with the numbers it rests
+ * on).
+ */
 export function stationarityNote(f: StationarityFinding): Finding | undefined {
   if (!f.tested || f.stationary || f.reverseArrangements === undefined) return undefined;
   const t = f.reverseArrangements;
@@ -444,7 +453,10 @@ export function clippingHintCount(samples: number): number {
   return Math.max(3, Math.ceil(2e-5 * samples));
 }
 
-/** The notes and doubts of one channel. @internal (exported for tests/findings.test.ts, which holds their values to their texts) */
+/**
+ * The notes and doubts of one channel. @internal (exported for tests/findings.test.ts, which holds their values to
+ * their texts)
+ */
 export function _channelFindings(
   s: SampleStatistics,
   p: PsdEstimate,

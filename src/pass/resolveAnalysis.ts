@@ -10,7 +10,9 @@ import type { RecordingInfo } from "../read/timeHistory.js";
 
 export type { ResolvedAnalysis } from "./analysisOptions.js";
 
-/** What the pass needs beside the record: channel indices, conditioning factors and the frame window at the design rate. */
+/**
+ * What the pass needs beside the record: channel indices, conditioning factors and the frame window at the design rate.
+ */
 export interface AnalysisPlan {
   analysis: ResolvedAnalysis;
   select: number[];
@@ -20,7 +22,10 @@ export interface AnalysisPlan {
   end: number;
 }
 
-/** The indices of the channels `channels` names (read/channelChoice.ts, the one way a channel is picked); all when empty. */
+/**
+ * The indices of the channels `channels` names (read/channelChoice.ts, the one way a channel is picked); all when
+ * empty.
+ */
 export function selectChannels(
   info: RecordingInfo,
   wanted: readonly ChannelName[] | undefined,

@@ -335,7 +335,10 @@ async function handBack(w: WorkerState, job: FetchedJob): Promise<void> {
   );
 }
 
-/** One of the worker's loops: fetch a job when free, run it, record it while the next one runs; on an empty queue expire lost jobs, stop when drained, wait. */
+/**
+ * One of the worker's loops: fetch a job when free, run it, record it while the next one runs; on an empty queue expire
+ * lost jobs, stop when drained, wait.
+ */
 async function slot(w: WorkerState): Promise<void> {
   const { store, o, signal } = w;
   // A job's result is written while the next job runs: the database's time hides behind the analysis.
@@ -371,9 +374,9 @@ async function slot(w: WorkerState): Promise<void> {
 
 /**
  * A worker: `jobs` loops, each fetching one job when it is free, running it on the pool, and writing
- * its result in the same statement (so the same transaction) that completes the job. Input errors fail the job at once; an
- * internal error goes back to pg-boss for a retry (delay and limit of the queue), and on the last
- * attempt is kept as a failed result. Database errors are retried with back-off, said on stderr.
+ * its result in the same statement (so the same transaction) that completes the job. Input errors fail the job at once;
+ * an internal error goes back to pg-boss for a retry (delay and limit of the queue), and on the last attempt is kept as
+ * a failed result. Database errors are retried with back-off, said on stderr.
  */
 export async function runWorker(store: QueueStore, pool: JobPool, o: WorkOptions): Promise<WorkSummary> {
   const stopAll = new AbortController();

@@ -3,11 +3,16 @@ import { InputError, quoted } from "../errors.js";
 /** A channel as a caller names it: its name, or its 1-based position (digits in a string, or a number). */
 export type ChannelName = string | number;
 
-/** Where a channel name came from, for the error: the option, the file, and the list's own positions when it is a selection. */
+/**
+ * Where a channel name came from, for the error: the option, the file, and the list's own positions when it is a
+ * selection.
+ */
 export interface ChannelChoiceContext {
   option: string;
   file?: string | undefined;
-  /** The 1-based position of each entry (default its index + 1): a list of analysed channels keeps the file's positions. */
+  /**
+   * The 1-based position of each entry (default its index + 1): a list of analysed channels keeps the file's positions.
+   */
   positions?: readonly number[] | undefined;
   /** What the error says was expected, before the list of channels (default "a channel name or position"). */
   expected?: string | undefined;

@@ -184,7 +184,8 @@ export async function csvBodyPass(
     const columnRate = roundRate(estimate, margin);
     const col = job.timeColumn;
     if (rateOverride !== undefined) {
-      // --rate against a time column: they must agree within the stamps' rounding, or 0.1 % (common practice: clock tolerance of a logger).
+      // --rate against a time column: they must agree within the stamps' rounding, or 0.1 % (common practice: clock
+      // tolerance of a logger).
       if (col && Math.abs(columnRate - rateOverride) > Math.max(margin, 1e-3 * rateOverride))
         throw rateConflict(col, rateOverride, columnRate);
     } else {

@@ -31,7 +31,10 @@ export interface CsvReadOptions {
   decimal?: "." | "," | undefined;
   /** Unit of a time column whose header does not say (default: seconds, with the plausibility rule). */
   timeUnit?: "s" | "ms" | "us" | "days" | "serial-days" | undefined;
-  /** 1 to parse (and hash) the body on a worker thread, 0 for this thread (default: 1 for files of 8 MB and more when there is a second core). */
+  /**
+   * 1 to parse (and hash) the body on a worker thread, 0 for this thread (default: 1 for files of 8 MB and more when
+   * there is a second core).
+   */
   parseWorkers?: number | undefined;
 }
 
@@ -174,10 +177,15 @@ function unitsRow(fields: string[], above?: string[]): boolean {
   return known && (!unknown || anchored);
 }
 
-/** A token that could be a unit nobody taught psdgate (`gee`, `m/s²`, `counts`): no spaces, at most 16 characters, not a number. */
+/**
+ * A token that could be a unit nobody taught psdgate (`gee`, `m/s²`, `counts`): no spaces, at most 16 characters, not a
+ * number.
+ */
 const UNIT_SHAPED = /^[A-Za-zµμ°%][A-Za-z0-9µμ°%/^*·.²³-]{0,15}$/;
 
-/** Whether a split row is a row of samples: >= 2 fields, all data (an empty last field allowed: a trailing delimiter). */
+/**
+ * Whether a split row is a row of samples: >= 2 fields, all data (an empty last field allowed: a trailing delimiter).
+ */
 function sampleRow(row: string[]): boolean {
   if (row.length < 2) return false;
   for (let c = 0; c < row.length; c++)
@@ -341,7 +349,8 @@ function headRows(rows: string[][], found: DataStart): HeadRows {
   let k = found.k;
   let trailing = found.trailing;
   if (k < 0) {
-    // No data rows in the head: the first row is a header (if it is not numbers), and what follows is checked by the body pass.
+    // No data rows in the head: the first row is a header (if it is not numbers), and what follows is checked by the
+    // body pass.
     k = rows[0]!.every(dataField) ? 0 : 1;
   }
   const count = rows[Math.min(k, rows.length - 1)]!.length;

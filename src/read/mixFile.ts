@@ -104,7 +104,8 @@ function keyPath(path: readonly PropertyKey[]): string {
 export function parseServiceMix(doc: unknown, file: string, sha256: string, baseDir = dirname(file)): ServiceMix {
   const r = MixSchema.safeParse(doc);
   if (!r.success) {
-    // An unknown key first: a misspelt key (hour for hours) also leaves the right one missing, and the misspelling is the news.
+    // An unknown key first: a misspelt key (hour for hours) also leaves the right one missing, and the misspelling is
+    // the news.
     const issue = r.error.issues.find((i) => i.code === "unrecognized_keys") ?? r.error.issues[0]!;
     if (issue.code === "unrecognized_keys") {
       throw new InputError("MIX_INVALID", {

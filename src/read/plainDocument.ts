@@ -19,7 +19,9 @@ export interface DocumentCodes {
   tooDeep: ErrorCode;
 }
 
-/** Deepest nesting of lists and mappings a settings file may have; the formats need 4 at most (groups[i].recordings[j]). */
+/**
+ * Deepest nesting of lists and mappings a settings file may have; the formats need 4 at most (groups[i].recordings[j]).
+ */
 export const MAX_DOCUMENT_DEPTH = 32;
 
 function place(text: string, at: number): { line: number; column: number } {

@@ -16,7 +16,9 @@ import { readSmallText } from "./regularFile.js";
  * of the spec.
  */
 
-/** Largest profile file read: a profile is a few breakpoints and bands (kilobytes); 1 MiB is far beyond any real one. */
+/**
+ * Largest profile file read: a profile is a few breakpoints and bands (kilobytes); 1 MiB is far beyond any real one.
+ */
 export const MAX_PROFILE_BYTES = 1 << 20;
 
 /** The text of a profile file: a regular file (never a FIFO or device), at most MAX_PROFILE_BYTES. */
@@ -227,7 +229,9 @@ export type ProfilePoint =
   | { hz: number; level: number; slopeDbPerOctave?: undefined }
   | { hz: number; level?: undefined; slopeDbPerOctave: number };
 
-/** What a profile file states, checked: everything of a TestProfile but the log-log arithmetic (compare/testProfile.ts). */
+/**
+ * What a profile file states, checked: everything of a TestProfile but the log-log arithmetic (compare/testProfile.ts).
+ */
 export interface ProfileSpec {
   title: string;
   file: string;
@@ -272,7 +276,9 @@ export function profileInvalid(file: string, keyPath: string, expected: string, 
   throw new InputError("PROFILE_INVALID", { file, keyPath, expected, received });
 }
 
-/** The checked spec of a validated document: breakpoints in order, bands covering the range, tones inside it and apart. */
+/**
+ * The checked spec of a validated document: breakpoints in order, bands covering the range, tones inside it and apart.
+ */
 function profileSpec(doc: ProfileDocument, file: string, sha256: string, defaultsApplied?: string[]): ProfileSpec {
   const pts = doc.points;
   const points: ProfilePoint[] = [];
@@ -328,7 +334,9 @@ function profileSpec(doc: ProfileDocument, file: string, sha256: string, default
   };
 }
 
-/** The tolerance bands and outer limits, each covering the range; outer limits at least as wide as the band everywhere. */
+/**
+ * The tolerance bands and outer limits, each covering the range; outer limits at least as wide as the band everywhere.
+ */
 function toleranceBands(
   doc: ProfileDocument,
   f0: number,
@@ -482,7 +490,8 @@ export function validateProfileDocument(doc: unknown, file: string): ProfileDocu
   if (!r.success) {
     const issue = r.error.issues[0]!;
     if (issue.code === "unrecognized_keys") {
-      // A key psdgate does not know is an error naming it, never silently ignored (a misspelt `tones` would drop the tones).
+      // A key psdgate does not know is an error naming it, never silently ignored (a misspelt `tones` would drop the
+      // tones).
       const key = issue.keys[0]!;
       const known = Object.keys(knownKeysAt(issue.path)).join(", ");
       profileInvalid(file, keyPath([...issue.path, key]), `a key psdgate knows here (${known})`, JSON.stringify(key));
@@ -495,7 +504,10 @@ export function validateProfileDocument(doc: unknown, file: string): ProfileDocu
   return r.data;
 }
 
-/** The tolerance a two-column CSV profile gets, since the format has no place for one (common practice: a ±3 dB band is the widest in general use; docs/REFERENCES.md sec. 7). */
+/**
+ * The tolerance a two-column CSV profile gets, since the format has no place for one (common practice: a ±3 dB band is
+ * the widest in general use; docs/REFERENCES.md sec. 7).
+ */
 export const CSV_PROFILE_DEFAULTS = { bandDb: 3, rmsDb: 1.5 } as const;
 
 /**
@@ -554,7 +566,10 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
   };
 }
 
-/** Read a profile's spec from its text (JSON, YAML or CSV by extension); compare/testProfile.ts parseProfile adds the arithmetic. */
+/**
+ * Read a profile's spec from its text (JSON, YAML or CSV by extension); compare/testProfile.ts parseProfile adds the
+ * arithmetic.
+ */
 export function readProfileSpec(text: string, file: string): ProfileSpec {
   const sha = createHash("sha256").update(text).digest("hex");
   checkProfileSize(text, file);
@@ -577,7 +592,9 @@ export function readProfileSpec(text: string, file: string): ProfileSpec {
 /** Deepest nesting of arrays and objects a profile may have; the format needs 3 (tolerance.bands[i]). */
 export const MAX_PROFILE_DEPTH = 32;
 
-/** Size, checked on the text before any parser runs; nesting, tags and number forms are read/plainDocument.ts's rules. */
+/**
+ * Size, checked on the text before any parser runs; nesting, tags and number forms are read/plainDocument.ts's rules.
+ */
 function checkProfileSize(text: string, file: string): void {
   if (text.length > MAX_PROFILE_BYTES) {
     throw new InputError("PROFILE_TOO_LARGE", {

@@ -31,7 +31,10 @@ export interface CsvDialect {
   timeColumn: string | null;
   /** A time column found and left unused, as asked (`csv.timeColumn: false`). */
   ignoredTimeColumn: string | null;
-  /** Seconds per unit of the time column's numbers (1 for s, 0.001 for ms; 86400 for days); null for date-time stamps or no column. */
+  /**
+   * Seconds per unit of the time column's numbers (1 for s, 0.001 for ms; 86400 for days); null for date-time stamps or
+   * no column.
+   */
   timeUnitS: number | null;
   dateTimeStamps: boolean;
   /** Where the rate comes from: the time column, or the rate given (`csv.sampleRateHz`). */

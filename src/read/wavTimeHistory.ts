@@ -45,7 +45,10 @@ interface WavFormat {
  */
 export const CALIBRATION_CHUNK = "pgcl";
 
-/** The KSDATAFORMAT_SUBTYPE GUID after its first two bytes (the format tag): -0000-0010-8000-00AA00389B71 (Microsoft, WAVEFORMATEXTENSIBLE). */
+/**
+ * The KSDATAFORMAT_SUBTYPE GUID after its first two bytes (the format tag): -0000-0010-8000-00AA00389B71 (Microsoft,
+ * WAVEFORMATEXTENSIBLE).
+ */
 const SUBTYPE_TAIL = Buffer.from("000000001000800000aa00389b71", "hex");
 /** Size of the windows the chunk walk reads: one read covers many small chunks. */
 const WALK_BYTES = 1 << 16;
@@ -155,7 +158,9 @@ function ds64Chunk(w: ChunkWalk, pos: number, len: number): number {
   return Number(d.readBigUInt64LE(8));
 }
 
-/** The format chunk whose body starts at `body`: one, whole, and of an extensible format only the KSDATAFORMAT family. */
+/**
+ * The format chunk whose body starts at `body`: one, whole, and of an extensible format only the KSDATAFORMAT family.
+ */
 function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
   const { file, size } = w;
   if (w.fmt !== undefined)

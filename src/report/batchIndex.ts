@@ -23,7 +23,9 @@ export interface BatchEntry {
   metaFrom?: string | undefined;
 }
 
-/** The file name of the batch index inside `--report-dir` (not index.html, which a recording called index would take). */
+/**
+ * The file name of the batch index inside `--report-dir` (not index.html, which a recording called index would take).
+ */
 export const BATCH_INDEX_NAME = "psdgate-batch.html";
 
 /** BATCH_INDEX_NAME, or psdgate-batch-2.html, -3, … when a report of the batch already has that name. */

@@ -39,7 +39,10 @@ export const DERIVE_STYLE = `
 `;
 const EXTRA_STYLE = `<style>${DERIVE_STYLE}</style>`;
 
-/** Where the written tolerances came from: options given, or psdgate's defaults that the lab confirms against its governing standard. */
+/**
+ * Where the written tolerances came from: options given, or psdgate's defaults that the lab confirms against its
+ * governing standard.
+ */
 function toleranceFrom(ctx: ReportContext): string {
   const flags = ["--band-db", "--rms-percent", "--min-dof"];
   const given = flags.filter((f) => ctx.given?.some((g) => g === f || g.startsWith(`${f} `)));
@@ -62,9 +65,9 @@ function legendName(x: DeriveResult["recordings"][number], r: DeriveResult): str
 }
 
 /**
- * The field's shocks beside the random test (issue #26): the largest events psdgate shock finds in the recordings, and the
- * field's measured largest response (its SRS, shocks included) against the test's expected largest response (its ERS) on a
- * plot and in a row naming the natural frequencies where the test falls short, where a shock test is needed.
+ * The field's shocks beside the random test (issue #26): the largest events psdgate shock finds in the recordings, and
+ * the field's measured largest response (its SRS, shocks included) against the test's expected largest response (its
+ * ERS) on a plot and in a row naming the natural frequencies where the test falls short, where a shock test is needed.
  */
 function shockSection(r: DeriveResult, lo: number, hi: number, u: string): string {
   const s = r.shocks;
@@ -254,7 +257,10 @@ ${ersPlot}
 ${ratioPlot}`;
 }
 
-/** "The derived profile": its file, hash, level, motion, stroke, tolerance, coverage and extremes, its breakpoints and the PSD plot. */
+/**
+ * "The derived profile": its file, hash, level, motion, stroke, tolerance, coverage and extremes, its breakpoints and
+ * the PSD plot.
+ */
 function derivedSection(
   r: DeriveResult,
   ctx: ReportContext,
@@ -290,7 +296,10 @@ ${pts}
 ${fieldPsdPlot(r, lo, hi)}`;
 }
 
-/** "Field recordings and the service life": how the life was shared, the mean and the limit, the groups and each recording. */
+/**
+ * "Field recordings and the service life": how the life was shared, the mean and the limit, the groups and each
+ * recording.
+ */
 function fieldSection(r: DeriveResult, u: string): string {
   const t = r.tolerance;
   const rec = r.recordings

@@ -164,7 +164,9 @@ const BASIC_METHOD_FIGURES = [
   ["vdvRatio", "VDV/(a_w T^1/4)"],
 ] as const;
 
-/** The basic-method limits a ride axis exceeded, each with its figure ("crest factor 9.40 > 9; …"; ride's HTML table). */
+/**
+ * The basic-method limits a ride axis exceeded, each with its figure ("crest factor 9.40 > 9; …"; ride's HTML table).
+ */
 export function basicMethodExceeded(b: BasicMethodCheck): string {
   return BASIC_METHOD_FIGURES.filter(([key]) => b.exceeded.includes(key))
     .map(([key, name]) => `${name} ${b[key].toFixed(2)} > ${BASIC_METHOD_LIMITS[key]}`)

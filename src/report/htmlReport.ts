@@ -35,7 +35,9 @@ export const VERDICT_TEXT: Record<Verdict, { word: string; line: string }> = {
   inconclusive: { word: "INCONCLUSIVE", line: `Inconclusive: ${VERDICT_MEANING.inconclusive}.` },
 };
 
-/** The report pages' shared style sheet with a plain page margin, for pages not built on reportPage's frame (rideHtml). */
+/**
+ * The report pages' shared style sheet with a plain page margin, for pages not built on reportPage's frame (rideHtml).
+ */
 export const STYLE = `@page { size: auto; margin: 14mm 12mm; }${PAGE_STYLE}`;
 
 /** The plotted frequency range: the profile's, widened by a ninth of an octave each side, inside the record's lines. */
@@ -92,7 +94,9 @@ interface PlotSpan {
   hi: number;
 }
 
-/** One channel of a check: its verdict and findings, PSD and deviation plots, levels, tones, excursions and histogram. */
+/**
+ * One channel of a check: its verdict and findings, PSD and deviation plots, levels, tones, excursions and histogram.
+ */
 function channelSection(
   c: ChannelAnalysis,
   comp: ChannelCompliance,
@@ -126,7 +130,9 @@ ${c.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(c.doubts).map(es
 </section>`;
 }
 
-/** The outer limits as two series, as levels on the PSD plot or in dB on the deviation plot; none without outer limits. */
+/**
+ * The outer limits as two series, as levels on the PSD plot or in dB on the deviation plot; none without outer limits.
+ */
 function outerSeries(comp: ChannelCompliance, dev: boolean): Series[] {
   const outerLines = comp.lines.filter((l) => l.outerUpperDb !== undefined);
   return outerLines.length === 0
@@ -149,7 +155,10 @@ function outerSeries(comp: ChannelCompliance, dev: boolean): Series[] {
       ];
 }
 
-/** Mixed mode: each tone marked on the measured PSD's highest line within its lines, with its required and measured peak. */
+/**
+ * Mixed mode: each tone marked on the measured PSD's highest line within its lines, with its required and measured
+ * peak.
+ */
 function tonePeaks(c: ChannelAnalysis, comp: ChannelCompliance, u: string) {
   const f = c.psd.frequencyHz;
   return (comp.tones ?? []).map((t) => {
@@ -165,7 +174,10 @@ function tonePeaks(c: ChannelAnalysis, comp: ChannelCompliance, u: string) {
   });
 }
 
-/** A channel's PSD with its confidence band, the required profile, its tolerance (and outer limits), lines shown outside and tones. */
+/**
+ * A channel's PSD with its confidence band, the required profile, its tolerance (and outer limits), lines shown outside
+ * and tones.
+ */
 function channelPsdPlot(
   c: ChannelAnalysis,
   comp: ChannelCompliance,
@@ -245,7 +257,10 @@ function channelPsdPlot(
   });
 }
 
-/** A channel's deviation from the required profile in dB, with its band limits (and outer limits) and the lines shown outside. */
+/**
+ * A channel's deviation from the required profile in dB, with its band limits (and outer limits) and the lines shown
+ * outside.
+ */
 function deviationPlot(comp: ChannelCompliance, n: number, span: PlotSpan): string {
   const lx = comp.lines.map((l) => l.frequencyHz);
   const shownLines = comp.lines.filter((l) => l.shown);
@@ -288,7 +303,9 @@ function deviationPlot(comp: ChannelCompliance, n: number, span: PlotSpan): stri
   });
 }
 
-/** The lines not judged, in words: at the profile's ends, biased by detrending, above the record's Nyquist frequency. */
+/**
+ * The lines not judged, in words: at the profile's ends, biased by detrending, above the record's Nyquist frequency.
+ */
 function unjudgedWords(comp: ChannelCompliance): string {
   const un = comp.unjudged;
   return [
@@ -300,7 +317,9 @@ function unjudgedWords(comp: ChannelCompliance): string {
     .join(", ");
 }
 
-/** The rows of a channel's "Levels and statistics" table: RMS four ways, Parseval, DOF, rule, lines judged, statistics. */
+/**
+ * The rows of a channel's "Levels and statistics" table: RMS four ways, Parseval, DOF, rule, lines judged, statistics.
+ */
 function levelRows(
   c: ChannelAnalysis,
   comp: ChannelCompliance,

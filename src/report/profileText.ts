@@ -19,7 +19,10 @@ export function toleranceSummary(p: TestProfile): string {
   return `${bands}${rms}${allow}${p.minDof !== undefined ? `, at least ${p.minDof} DOF` : ""}${outer}`;
 }
 
-/** Where a derived profile came from, in one line: "derived from 3 recording(s): a.wav 1a2b3c4d5e6f, … (by psdgate 0.2.0 derive, date)". */
+/**
+ * Where a derived profile came from, in one line: "derived from 3 recording(s): a.wav 1a2b3c4d5e6f, … (by psdgate 0.2.0
+ * derive, date)".
+ */
 export function provenanceSummary(p: TestProfile): string | undefined {
   const v = p.provenance;
   if (!v) return undefined;

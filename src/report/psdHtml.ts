@@ -132,7 +132,9 @@ ${c.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(c.doubts).map(es
 </section>`;
 }
 
-/** Where the loudest stretch stands furthest above the whole record's average (lines above 0 Hz), as psd's text says it. */
+/**
+ * Where the loudest stretch stands furthest above the whole record's average (lines above 0 Hz), as psd's text says it.
+ */
 function peakHoldLine(c: ChannelAnalysis, h: NonNullable<ChannelAnalysis["peakHold"]>): string {
   const p = c.psd;
   let k = 1;

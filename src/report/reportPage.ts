@@ -81,8 +81,8 @@ details > summary { font-weight: 600; cursor: pointer; }
 
 /**
  * The style element a page with a peak-hold spectrum adds (psd, ride): the peak-hold curve dashed in violet
- * beside the blue Welch average (and ride's orange weighted PSD), told apart in greyscale by its dash. A separate element, not part of the
- * frame's STYLE, so records written before it still pass verify's frame check.
+ * beside the blue Welch average (and ride's orange weighted PSD), told apart in greyscale by its dash. A separate
+ * element, not part of the frame's STYLE, so records written before it still pass verify's frame check.
  */
 export const PEAK_HOLD_STYLE = ".peakhold { fill: none; stroke: #8e44ad; stroke-width: 1; stroke-dasharray: 5 2; }";
 
@@ -99,7 +99,10 @@ export function cssString(s: string): string {
   return `"${printable(s).replace(/[^A-Za-z0-9 .,:_()+#%!?=·…\u00a0-\uffff-]|[\ud800-\udfff]/gu, (c) => `\\${c.codePointAt(0)!.toString(16)} `)}"`;
 }
 
-/** At most `n` characters (code points), an ellipsis marking a cut: a long title or test id cannot push "page N of M" off the margin. */
+/**
+ * At most `n` characters (code points), an ellipsis marking a cut: a long title or test id cannot push "page N of M"
+ * off the margin.
+ */
 function clip(s: string, n: number): string {
   const cps = [...s];
   return cps.length > n ? `${cps.slice(0, n - 1).join("")}…` : s;
@@ -425,7 +428,10 @@ export function givenRow(ctx: ReportContext): string {
   return row("Options given", given);
 }
 
-/** How one channel's file numbers became accelerations, in words (unit and its source, sensitivity, calibration, conversion). */
+/**
+ * How one channel's file numbers became accelerations, in words (unit and its source, sensitivity, calibration,
+ * conversion).
+ */
 export function readingWords(r: ChannelAnalysis["reading"], factor: number, resultUnit: string): string {
   const parts = [`${r.fileUnit} ${UNIT_FROM[r.unitFrom] ?? r.unitFrom}`];
   if (r.sensitivity) parts.push(`sensitivity ${r.sensitivity}`);

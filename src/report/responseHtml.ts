@@ -63,7 +63,9 @@ export function responseResultDocument(
   return recordDocument("respond", ctx, responseJson(r, ctx.version, against));
 }
 
-/** The respond record: summary, identity, input, settings, plots, kinematics and stroke, the table, cautions, sign-off. */
+/**
+ * The respond record: summary, identity, input, settings, plots, kinematics and stroke, the table, cautions, sign-off.
+ */
 export function responseHtml(
   r: ResponseSpectra,
   version: string,
@@ -135,7 +137,10 @@ function responseSummary(r: ResponseSpectra, u: string): string {
   return `Q ${sig(r.q, 4)} over ${sig(fn[0]!, 4)}–${sig(fn[fn.length - 1]!, 4)} Hz: largest response ${sig(r.accelRms[worst]!, 4)} ${u} RMS at ${sig(fn[worst]!, 4)} Hz; displacement ${sig(r.motion.displacementPeakToPeak * 1000, 4)} mm peak-to-peak${st ? ` against ${sig(st.ratedMm, 4)} mm rated stroke: ${st.withinRating ? "within" : "EXCEEDS"}` : " (no rated stroke given)"}.`;
 }
 
-/** The input table's rows: the source and its SHA-256, the band used, the recording's PSD, and the input compared against. */
+/**
+ * The input table's rows: the source and its SHA-256, the band used, the recording's PSD, and the input compared
+ * against.
+ */
 function inputRows(r: ResponseSpectra, u: string, against: Against | undefined): string {
   const s = r.source;
   const mo = r.motion;
@@ -224,7 +229,10 @@ ${row("Displacement peak-to-peak estimate", `${qty(sig(mo.displacementPeakToPeak
 ${row("Against the rated stroke", st ? `${qty(fixed(st.estimateMm, 3), "mm")} against ${qty(sig(st.ratedMm, 4), "mm")} rated: ${st.withinRating ? `within the rating (margin ×${fixed(st.margin, 2)})` : `<strong>EXCEEDS</strong> the rating by ${fixed(100 * (1 / st.margin - 1), 0)} %`}` : `<span class="muted">no rated stroke given (--stroke-mm)</span>`)}`;
 }
 
-/** The table of every natural frequency: RMS, Miles, relative displacement, largest peak, damage (and the against ratios). */
+/**
+ * The table of every natural frequency: RMS, Miles, relative displacement, largest peak, damage (and the against
+ * ratios).
+ */
 function fnRows(r: ResponseSpectra, against: Against | undefined): string {
   return Array.from(
     r.fnHz,

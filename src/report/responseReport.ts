@@ -152,7 +152,10 @@ function ranges(grid: Float64Array, hits: number[]): string {
 
 type Against = { b: ResponseSpectra; c: ResponseComparison };
 
-/** respond's text output: the input and system, the response table (and the tones'), what each column means, kinematics, stroke, the against comparison and the cautions. */
+/**
+ * respond's text output: the input and system, the response table (and the tones'), what each column means, kinematics,
+ * stroke, the against comparison and the cautions.
+ */
 export function responseText(r: ResponseSpectra, version: string, against?: Against): string {
   const u = accelLabel(r.source.units);
   const lines = [...headerLines(r, version, u), table(responseRows(r, u)), ""];
@@ -191,7 +194,10 @@ function headerLines(r: ResponseSpectra, version: string, u: string): string[] {
   ];
 }
 
-/** The response table's rows, header first: per natural frequency RMS, Miles, rates, largest peak, damage (and record/PSD ratios). */
+/**
+ * The response table's rows, header first: per natural frequency RMS, Miles, rates, largest peak, damage (and
+ * record/PSD ratios).
+ */
 function responseRows(r: ResponseSpectra, u: string): string[][] {
   const td = r.timeDomain;
   const psd = r.fromPsd;
@@ -230,7 +236,10 @@ function responseRows(r: ResponseSpectra, u: string): string[][] {
   return rows;
 }
 
-/** The profile's sine tones: what their responses are, and each tone's response peak and the total RMS per natural frequency. */
+/**
+ * The profile's sine tones: what their responses are, and each tone's response peak and the total RMS per natural
+ * frequency.
+ */
 function toneResponseLines(r: ResponseSpectra, u: string): string[] {
   const tones = r.tones!;
   const rowsT = [["fn Hz", ...tones.map((t) => `${sig(t.hz, 5)} Hz tone peak ${u}`), `total RMS ${u}`]];
@@ -246,7 +255,10 @@ function toneResponseLines(r: ResponseSpectra, u: string): string[] {
   ];
 }
 
-/** What the columns are: exact, Miles (and its scatter on a measured PSD), the record's own peak and damage, Davenport's peak, the damage. */
+/**
+ * What the columns are: exact, Miles (and its scatter on a measured PSD), the record's own peak and damage, Davenport's
+ * peak, the damage.
+ */
 function methodLines(r: ResponseSpectra): string[] {
   const s = r.source;
   const td = r.timeDomain;
@@ -325,7 +337,10 @@ function againstLines(r: ResponseSpectra, against: Against): string[] {
   return lines;
 }
 
-/** `respond --csv`: per natural frequency the response RMS (exact, Miles), relative displacement, largest peak and damage; with --against, B's and the ratios. */
+/**
+ * `respond --csv`: per natural frequency the response RMS (exact, Miles), relative displacement, largest peak and
+ * damage; with --against, B's and the ratios.
+ */
 export function responseCsv(r: ResponseSpectra, against?: { b: ResponseSpectra; c: ResponseComparison }): string {
   const u = r.source.units === "g" ? "g" : "m/s2";
   const head = [

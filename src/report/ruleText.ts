@@ -18,7 +18,9 @@ const R = DECISION_RULE;
 /** The stretch widths tested when a spectrum has lines enough for all of them ("4, 16 and 64"). */
 const WIDTHS = words(stretchWidths(Infinity).map(String));
 
-/** The single lines' share of the false-fail rate when stretches are tested: the lines' share less the stretches' part. */
+/**
+ * The single lines' share of the false-fail rate when stretches are tested: the lines' share less the stretches' part.
+ */
 export const SINGLE_LINES_SHARE = R.lines * (1 - R.stretchShare);
 
 /**

@@ -30,7 +30,9 @@ export interface PlotSpec {
   /** Log x axis (default true); false gives a linear x axis (time plots). */
   xLog?: boolean | undefined;
   series: Series[];
-  /** Horizontal reference lines (an event threshold), drawn dashed across the plot where they fall inside the y domain. */
+  /**
+   * Horizontal reference lines (an event threshold), drawn dashed across the plot where they fall inside the y domain.
+   */
   rules?: number[] | undefined;
   /** Height in SVG units (default 340; the width is always 720, so plots of one page share their x axis). */
   height?: number | undefined;
@@ -70,7 +72,10 @@ export function thinLine(pts: (readonly [number, number])[]): (readonly [number,
   return out;
 }
 
-/** A band (x, y0, y1) thinned per pixel column: the column's outermost y0 and y1, so the band never looks narrower than it is. */
+/**
+ * A band (x, y0, y1) thinned per pixel column: the column's outermost y0 and y1, so the band never looks narrower than
+ * it is.
+ */
 export function thinBand(pts: (readonly [number, number, number])[]): (readonly [number, number, number])[] {
   if (pts.length <= 2 * (W - M.left - M.right)) return pts;
   const out: (readonly [number, number, number])[] = [];
@@ -264,7 +269,10 @@ function frameAndLabels(p: PlotSpec, f: PlotFrame): string[] {
   ];
 }
 
-/** One series as a <path>: markers, a filled band (y to y2) or a line, thinned per pixel column; its drawn and plotted point counts. */
+/**
+ * One series as a <path>: markers, a filled band (y to y2) or a line, thinned per pixel column; its drawn and plotted
+ * point counts.
+ */
 function seriesPath(s: Series, f: PlotFrame): string {
   const { x, clampY, ok } = f;
   const idx: number[] = [];
@@ -302,7 +310,9 @@ function seriesPath(s: Series, f: PlotFrame): string {
   return `<path class="${escapeXml(s.className)}" data-series="${escapeXml(s.id)}" data-points="${drawn}" d="${d ?? ""}" data-lines="${idx.length}"/>`;
 }
 
-/** Horizontal reference lines (an event threshold): dashed across the plot, each with its value for readers and tests. */
+/**
+ * Horizontal reference lines (an event threshold): dashed across the plot, each with its value for readers and tests.
+ */
 function ruleLines(p: PlotSpec, f: PlotFrame): string[] {
   const out: string[] = [];
   for (const v of p.rules ?? []) {
@@ -314,7 +324,10 @@ function ruleLines(p: PlotSpec, f: PlotFrame): string[] {
   return out;
 }
 
-/** Text at data points (mixed-mode tones), each on a short tick above its point, to its right unless near the right edge. */
+/**
+ * Text at data points (mixed-mode tones), each on a short tick above its point, to its right unless near the right
+ * edge.
+ */
 function noteMarks(p: PlotSpec, f: PlotFrame): string[] {
   const out: string[] = [];
   for (const t of p.notes ?? []) {

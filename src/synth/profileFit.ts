@@ -28,7 +28,10 @@ export interface ProfileFitOptions {
   fnHz: Float64Array;
   /** Damage the test must reach at each f_n (the field's, times the margin). */
   targetDamage: Float64Array;
-  /** First guesses of the level at each f_n (e.g. inverted FDS with different reference shapes); each is refined, the best fit kept. */
+  /**
+   * First guesses of the level at each f_n (e.g. inverted FDS with different reference shapes); each is refined, the
+   * best fit kept.
+   */
   startLevels: Float64Array[];
   basquinB: number;
   maxBreakpoints: number;
@@ -51,7 +54,10 @@ export interface ProfileFit {
 }
 
 const DB = Math.log(10) / 10;
-/** Level offsets above 6 dB tried by the envelope, dB (a line far above a point is rarely the best; the final scale fixes coverage). */
+/**
+ * Level offsets above 6 dB tried by the envelope, dB (a line far above a point is rarely the best; the final scale
+ * fixes coverage).
+ */
 const COARSE_DB = [7, 8, 9, 10, 12, 14, 17, 20, 25, 30, 40, 50, 60, 80, 100];
 
 /** Level of a log-log broken line at f (f inside its range). */
@@ -80,7 +86,8 @@ export function upperEnvelope(
     throw new RangeError(`at least 2 breakpoints, got ${maxPoints}`);
   let yMax = -Infinity;
   for (let k = 0; k < m; k++) yMax = Math.max(yMax, y[k]!);
-  // Candidate levels per point: y_k + 0, 0.5, ..., 6 dB, then 1 dB steps to the highest y plus 1 dB, and the highest y itself.
+  // Candidate levels per point: y_k + 0, 0.5, ..., 6 dB, then 1 dB steps to the highest y plus 1 dB, and the highest y
+  // itself.
   const levels: Float64Array[] = [];
   for (let k = 0; k < m; k++) {
     const v: number[] = [];
@@ -90,7 +97,8 @@ export function upperEnvelope(
     levels.push(Float64Array.from(v));
   }
   const segs = Math.min(maxPoints - 1, m - 1);
-  // best[s][k][a]: least cost of a line from point 0 to point k at level a, in s segments; from[...] the previous (k, a).
+  // best[s][k][a]: least cost of a line from point 0 to point k at level a, in s segments; from[...] the previous (k,
+  // a).
   const best = Array.from({ length: segs + 1 }, () => levels.map((l) => new Float64Array(l.length).fill(Infinity)));
   const fromK = Array.from({ length: segs + 1 }, () => levels.map((l) => new Int32Array(l.length).fill(-1)));
   const fromA = Array.from({ length: segs + 1 }, () => levels.map((l) => new Int32Array(l.length).fill(-1)));

@@ -191,7 +191,8 @@ export function foreignContent(page: ScannedPage, opts: { links?: boolean } = {}
     // Attributes that hide an element without any style: hidden, a popover (hidden until shown).
     if (t.attrs.has("hidden") || t.attrs.has("popover"))
       return `a ${t.attrs.has("hidden") ? "hidden" : "popover"} attribute on <${t.name}>`;
-    // A batch index links its reports: <a href> to a file beside it (no scheme, no absolute or parent path), nothing else.
+    // A batch index links its reports: <a href> to a file beside it (no scheme, no absolute or parent path), nothing
+    // else.
     if (
       opts.links === true &&
       t.name === "a" &&

@@ -70,7 +70,10 @@ const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[
  */
 const ADDED_LATER = [/^analysis$/, /(^|\.)\w*[fF]indings\[\]\.values$/, /^profile\.(provenance|origin)$/];
 
-/** What compareResults found: the differences, the numbers compared, fields only a later psdgate writes, fields in an earlier wording (EARLIER_WORDINGS). */
+/**
+ * What compareResults found: the differences, the numbers compared, fields only a later psdgate writes, fields in an
+ * earlier wording (EARLIER_WORDINGS).
+ */
 export interface ComparedResults {
   diffs: string[];
   compared: number;
@@ -79,7 +82,10 @@ export interface ComparedResults {
 }
 
 export interface CompareOptions {
-  /** The report was made by another psdgate version: a field in ADDED_LATER that only the re-run has is listed, not a difference. */
+  /**
+   * The report was made by another psdgate version: a field in ADDED_LATER that only the re-run has is listed, not a
+   * difference.
+   */
   olderReport?: boolean | undefined;
 }
 
@@ -135,7 +141,10 @@ export function compareResults(
   return out;
 }
 
-/** The fields a later psdgate adds, named once each (array indices folded), and those in an earlier wording, for the re-run's line. */
+/**
+ * The fields a later psdgate adds, named once each (array indices folded), and those in an earlier wording, for the
+ * re-run's line.
+ */
 function addedNote(cmp: ComparedResults): string {
   const reworded = cmp.reworded.length
     ? `; in an earlier wording of the same rule, so not compared as text: ${cmp.reworded.join(", ")}`
@@ -330,7 +339,9 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   return verifyAnalysis(report, doc as AnalysisDoc, result, steps, tol, options);
 }
 
-/** The result's and the page's steps: both digests, and the page as psdgate writes it (its verdict banner the result's). */
+/**
+ * The result's and the page's steps: both digests, and the page as psdgate writes it (its verdict banner the result's).
+ */
 function integritySteps(html: string, x: ExtractedResult, doc: RecordEnvelope, result: AnalysisResult): VerifyStep[] {
   const pageProblem = pageCheck(
     html,
@@ -358,7 +369,10 @@ function integritySteps(html: string, x: ExtractedResult, doc: RecordEnvelope, r
   ];
 }
 
-/** A check, psd or shock record: its recording (and a check's profile) by SHA-256, then its analysis re-run and every number compared. */
+/**
+ * A check, psd or shock record: its recording (and a check's profile) by SHA-256, then its analysis re-run and every
+ * number compared.
+ */
 async function verifyAnalysis(
   report: string,
   doc: AnalysisDoc,
@@ -455,7 +469,10 @@ async function analysisInputs(
   return { rec, prof, inputsOk };
 }
 
-/** The result a check, psd or shock record's rerun options give on the inputs found: the same function the command printed it with. */
+/**
+ * The result a check, psd or shock record's rerun options give on the inputs found: the same function the command
+ * printed it with.
+ */
 async function rerunAnalysis(doc: AnalysisDoc, recording: string, profile: string | undefined, version: string) {
   const meta = doc.meta ?? undefined;
   if (doc.kind === "check") {
@@ -547,7 +564,10 @@ async function hashedInput(
   return { path: at.path, ok };
 }
 
-/** A derive record: every field recording (and the mix file) by SHA-256, then the derivation re-run with its recorded settings. */
+/**
+ * A derive record: every field recording (and the mix file) by SHA-256, then the derivation re-run with its recorded
+ * settings.
+ */
 async function verifyDerivation(
   report: string,
   doc: DerivationDoc,
@@ -706,7 +726,10 @@ async function rerunRecord(doc: RecordDoc, paths: string[], version: string): Pr
 /** JSON paths that hold where an input was read, not what it held (respond names its source files). */
 const RECORD_IGNORED = /^(source\.file|against\.source\.file)$/;
 
-/** A ride, transfer or respond record: its inputs by SHA-256, then its analysis re-run with the recorded options and every number compared. */
+/**
+ * A ride, transfer or respond record: its inputs by SHA-256, then its analysis re-run with the recorded options and
+ * every number compared.
+ */
 async function verifyRecord(
   report: string,
   doc: RecordDoc,
@@ -789,7 +812,9 @@ function batchVerdict(doc: BatchDoc): string {
   return v.includes("fail") ? "fail" : v.includes("inconclusive") || (doc.failed ?? 0) > 0 ? "inconclusive" : "pass";
 }
 
-/** A batch index: every linked report beside it, by the SHA-256 the index recorded (each report verifies on its own). */
+/**
+ * A batch index: every linked report beside it, by the SHA-256 the index recorded (each report verifies on its own).
+ */
 async function verifyBatch(report: string, doc: BatchDoc, steps: VerifyStep[]): Promise<VerifyResult> {
   const missing: string[] = [];
   let ok = 0;

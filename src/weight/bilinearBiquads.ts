@@ -74,12 +74,12 @@ export function cascadeMagnitude(
  * discarded. The state at x[0] is then that of a record that had been running at its start's level, with
  * its start's content, so neither gravity on an axis nor the gravity a tilting sensor starts with sets off
  * a transient, and no sample of the record is left out. (A straight-line fit in place of the mean was
- * tried: over 5 s it reads a 4 Hz sine as a slope of 0.02 /s and kicked the high-pass with it.) Starting at x[0] instead (lfilter_zi * x[0])
- * kicks the 0.4 Hz high-pass with that sample's noise; starting at the mean of a long first block kicks
- * it with the difference between that mean and the start's level (a sensor that tilts during the ride).
- * Whatever the steady start leaves in the state decays through the reflection: exp(-zeta w1 K/fs) for
- * the slowest section (0.4 Hz, zeta 0.707: 1e-4 after 5 s). A non-finite input is replaced by the last
- * finite one (counted in `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
+ * tried: over 5 s it reads a 4 Hz sine as a slope of 0.02 /s and kicked the high-pass with it.) Starting at x[0]
+ * instead (lfilter_zi * x[0]) kicks the 0.4 Hz high-pass with that sample's noise; starting at the mean of a long first
+ * block kicks it with the difference between that mean and the start's level (a sensor that tilts during the ride).
+ * Whatever the steady start leaves in the state decays through the reflection: exp(-zeta w1 K/fs) for the slowest
+ * section (0.4 Hz, zeta 0.707: 1e-4 after 5 s). A non-finite input is replaced by the last finite one (counted in
+ * `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
  */
 export class BiquadCascade {
   private readonly coef: Float64Array;
@@ -89,7 +89,10 @@ export class BiquadCascade {
   private last = 0;
   heldSamples = 0;
 
-  /** Samples of the start the cascade settles on before the first sample (0: steady state for the first block's mean only). */
+  /**
+   * Samples of the start the cascade settles on before the first sample (0: steady state for the first block's mean
+   * only).
+   */
   readonly settleSamples: number;
 
   constructor(

@@ -13,10 +13,10 @@ import type { DigitalBiquad } from "./bilinearBiquads.js";
  *   |H|^2 = (B0 phi0 + B1 phi1 + B2 phi2) / (A0 phi0 + A1 phi1 + A2 phi2),
  *   A0 = (1 + a1 + a2)^2, A1 = (1 - a1 + a2)^2, A2 = -4 a2,  B likewise from b0, b1, b2
  * (the form of Vicanek, "Matched Second Order Digital Filters", 2016; from memory, and checked here by
- * scipy.signal.sosfreqz on the coefficients, tests/weight/bilinearBiquads.test.ts), which is linear in B0, B1, B2. Vicanek
- * matches three frequencies; here B is the least-squares solution of |H|^2 / |H_analog|^2 = 1 at 200
- * log-spaced frequencies over the band (relative error, so a section is held alike at 1 Hz and at 80 Hz),
- * solved by Householder QR. The minimum-phase numerator follows from B (same paper):
+ * scipy.signal.sosfreqz on the coefficients, tests/weight/bilinearBiquads.test.ts), which is linear in B0, B1, B2.
+ * Vicanek matches three frequencies; here B is the least-squares solution of |H|^2 / |H_analog|^2 = 1 at 200 log-spaced
+ * frequencies over the band (relative error, so a section is held alike at 1 Hz and at 80 Hz), solved by Householder
+ * QR. The minimum-phase numerator follows from B (same paper):
  *   b1 = (sqrt B0 - sqrt B1) / 2,  W = (sqrt B0 + sqrt B1) / 2,  b0 = (W + sqrt(W^2 + B2)) / 2,  b2 = -B2 / (4 b0).
  * Returns undefined when no real minimum-phase numerator fits (B0 or B1 negative, or W^2 + B2 < 0):
  * the caller keeps the bilinear section.

@@ -7,7 +7,10 @@ export interface WeightingFilterDesign {
   sampleRateHz: number;
   sections: DigitalBiquad[];
   gain: number;
-  /** How the sections were made: bilinear with pre-warping, or poles by impulse invariance and magnitude-fitted zeros (the high-pass stays bilinear). */
+  /**
+   * How the sections were made: bilinear with pre-warping, or poles by impulse invariance and magnitude-fitted zeros
+   * (the high-pass stays bilinear).
+   */
   method: "bilinear" | "fitted";
   /**
    * Largest relative deviation of the digital magnitude from the analog |W(f)| over the nominal

@@ -10,7 +10,10 @@ import { sdofResponse } from "./sdofResponse.js";
  * estimate/response/fatigueDamage.ts with the stress proportional to the relative displacement in metres).
  */
 export interface DamageSpectra {
-  /** Expected damage over `durationS` per natural frequency (the units of `respond`'s fatigueDamage: relative, K and C as given). */
+  /**
+   * Expected damage over `durationS` per natural frequency (the units of `respond`'s fatigueDamage: relative, K and C
+   * as given).
+   */
   damage: Float64Array;
   /** Expected largest peak of the absolute-acceleration response over `durationS`, in the input's unit. */
   extreme: Float64Array;

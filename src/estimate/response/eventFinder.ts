@@ -48,10 +48,16 @@ interface Bank {
   next: number;
   /** Feed up to (exclusive) this absolute index; Infinity while the event is open. */
   until: number;
-  /** The primary part ends before this absolute index (the event's last exceedance + 1); Infinity while the event is open. */
+  /**
+   * The primary part ends before this absolute index (the event's last exceedance + 1); Infinity while the event is
+   * open.
+   */
   split: number;
   primary?: ShockSpectrum | undefined;
-  /** While the event is open: the samples after its latest exceedance, not yet fed (they are primary if another exceedance comes, else residual). At most the hold time. */
+  /**
+   * While the event is open: the samples after its latest exceedance, not yet fed (they are primary if another
+   * exceedance comes, else residual). At most the hold time.
+   */
   pending: Float64Array;
   pendingLength: number;
 }

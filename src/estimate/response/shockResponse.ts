@@ -15,9 +15,9 @@ import { InputError } from "../../errors.js";
  * Relative displacement z = x_mass - x_base, -1 / (s^2 + 2 zeta w_n s + w_n^2): derived here, not copied.
  * A ramp-invariant filter's impulse response is the second difference of the continuous ramp response
  * r(t) over T: h[k] = (r((k+1)T) - 2 r(kT) + r((k-1)T)) / T with r(t <= 0) = 0, and
- *   r(t) = (1 / w_n^2) [t - 2 zeta / w_n + e^(-zeta w_n t) ((2 zeta / w_n) cos w_d t + ((2 zeta^2 - 1) / w_d) sin w_d t)]
- * (the response of 1 / (s^2 + 2 zeta w_n s + w_n^2) to u = t; r(0) = r'(0) = r''(0) = 0). With the poles' recursion,
- * b0 = h[0], b1 = h[1] - 2C h[0], b2 = h[2] - 2C h[1] + E^2 h[0]; the sign of z is dropped (only |z| is used).
+ * r(t) = (1 / w_n^2) [t - 2 zeta / w_n + e^(-zeta w_n t) ((2 zeta / w_n) cos w_d t + ((2 zeta^2 - 1) / w_d) sin w_d t)]
+ * (the response of 1 / (s^2 + 2 zeta w_n s + w_n^2) to u = t; r(0) = r'(0) = r''(0) = 0). With the poles' recursion, b0
+ * = h[0], b1 = h[1] - 2C h[0], b2 = h[2] - 2C h[1] + E^2 h[0]; the sign of z is dropped (only |z| is used).
  *
  * Sample-rate requirement. The recursion is exact at the samples for a piecewise-linear input, but the
  * spectrum takes the largest response *sample*: between samples the continuous response can rise further,
@@ -56,9 +56,9 @@ export function absoluteAccelerationFilter(fnHz: number, q: number, sampleRateHz
 export function relativeDisplacementFilter(fnHz: number, q: number, sampleRateHz: number): SdofFilter {
   const { zeta, T, wn, wd, E, C } = poles(fnHz, q, sampleRateHz);
   // Near t = 0 the closed form cancels (r ~ t^3 / 6 beside terms of 2 zeta / w_n^3): below w_n t = 1 the
-  // power series instead. The impulse response h = e^(-zeta w_n t) sin(w_d t) / w_d solves h'' + 2 zeta w_n h' + w_n^2 h = 0,
-  // h(0) = 0, h'(0) = 1, so h = sum c_k t^k with c_(k+2) = -(2 zeta w_n (k+1) c_(k+1) + w_n^2 c_k) / ((k+2)(k+1)),
-  // and r(t) = (h * t)(t) = sum c_k t^(k+2) k! / (k+2)! (two integrations).
+  // power series instead. The impulse response h = e^(-zeta w_n t) sin(w_d t) / w_d solves h'' + 2 zeta w_n h' + w_n^2
+  // h = 0, h(0) = 0, h'(0) = 1, so h = sum c_k t^k with c_(k+2) = -(2 zeta w_n (k+1) c_(k+1) + w_n^2 c_k) /
+  // ((k+2)(k+1)), and r(t) = (h * t)(t) = sum c_k t^(k+2) k! / (k+2)! (two integrations).
   const series = (t: number): number => {
     let cPrev = 0;
     let c = 1;
@@ -107,7 +107,10 @@ export interface ShockSpectrum {
   pseudoVelocity: Float64Array;
 }
 
-/** What a grid asks of the rate: the highest natural frequency per sample rate and the bound on the sample-peak shortfall. */
+/**
+ * What a grid asks of the rate: the highest natural frequency per sample rate and the bound on the sample-peak
+ * shortfall.
+ */
 export function srsRateLimit(
   fnHz: Float64Array,
   sampleRateHz: number,

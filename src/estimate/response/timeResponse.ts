@@ -8,11 +8,11 @@ import { absoluteAccelerationFilter, relativeDisplacementFilter } from "./shockR
  * the relative displacement's cycles are counted by rainflow (ASTM E1049-85, rainflow.ts) into
  * sum(count x (range / 2)^b), the damage of Miner's rule before the S-N curve's constants.
  *
- * Offsets: both filters start in their steady state for the mean of the first block's first 1024 samples (as the weighting
- * filters do), so gravity on the axis starts no transient. The acceleration's DC gain is 1, so the
- * largest |response - mean| is max(max - mean, mean - min) with the record's mean, known at the end;
- * rainflow ranges do not see an offset at all. A non-finite sample is held at the last finite value.
- * O(n) per natural frequency; memory: a block of scratch and each counter's unclosed residue.
+ * Offsets: both filters start in their steady state for the mean of the first block's first 1024 samples (as the
+ * weighting filters do), so gravity on the axis starts no transient. The acceleration's DC gain is 1, so the largest
+ * |response - mean| is max(max - mean, mean - min) with the record's mean, known at the end; rainflow ranges do not see
+ * an offset at all. A non-finite sample is held at the last finite value. O(n) per natural frequency; memory: a block
+ * of scratch and each counter's unclosed residue.
  */
 export interface TimeResponse {
   fnHz: Float64Array;
@@ -27,7 +27,9 @@ export interface TimeResponse {
   heldSamples: number;
 }
 
-/** Samples whose mean sets the filters' starting state (the pool's slots are longer, so threads and one thread agree). */
+/**
+ * Samples whose mean sets the filters' starting state (the pool's slots are longer, so threads and one thread agree).
+ */
 export const START_SAMPLES = 1024;
 
 export class TimeResponseAccumulator {
@@ -76,7 +78,8 @@ export class TimeResponseAccumulator {
     if (!started) {
       let s = 0;
       let m = 0;
-      // The first START_SAMPLES of the first block only, so the start does not depend on how the record is cut into blocks.
+      // The first START_SAMPLES of the first block only, so the start does not depend on how the record is cut into
+      // blocks.
       for (let j = 0; j < Math.min(frames, START_SAMPLES); j++)
         if (Number.isFinite(x[j]!)) {
           s += x[j]!;

@@ -22,7 +22,10 @@ export interface CrossSpectrumSums {
   samples: number;
   /** Auto spectra, one per channel in push order, length N/2 + 1, (unit)^2/Hz. */
   auto: Float64Array[];
-  /** Cross spectra of the reference channel against channel j (j != reference), real and imaginary parts; undefined at the reference. */
+  /**
+   * Cross spectra of the reference channel against channel j (j != reference), real and imaginary parts; undefined at
+   * the reference.
+   */
   crossRe: (Float64Array | undefined)[];
   crossIm: (Float64Array | undefined)[];
   reference: number;

@@ -83,7 +83,8 @@ export interface Resonance {
   coherence: number;
   /**
    * True when the half-power band spans fewer than 10 lines: the window's spread then widens the peak
-   * and Q reads low (measured with Hann: about 10 % low at 5 lines, 2.5 % at 12; tests/analyses/analyzeTransfer.test.ts).
+   * and Q reads low (measured with Hann: about 10 % low at 5 lines, 2.5 % at 12;
+   * tests/analyses/analyzeTransfer.test.ts).
    */
   resolutionLimited: boolean;
 }

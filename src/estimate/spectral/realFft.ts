@@ -48,7 +48,10 @@ export function isPowerOfTwo(n: number): boolean {
   return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
 }
 
-/** Complex forward transform (fft.js `transform`) of an interleaved (re, im) sequence, unnormalised, e^(-i...) convention. */
+/**
+ * Complex forward transform (fft.js `transform`) of an interleaved (re, im) sequence, unnormalised, e^(-i...)
+ * convention.
+ */
 export class ComplexFft {
   readonly size: number;
   private readonly fft: FFT;

@@ -19,7 +19,9 @@ export interface SpectralKernel {
   halfWidthBins: number;
   /** The energy share left beyond the half-width on one side. */
   tailShare: number;
-  /** Kernel weights at offsets j / oversample bins, j = -halfWidth*oversample .. +halfWidth*oversample, summing to 1. */
+  /**
+   * Kernel weights at offsets j / oversample bins, j = -halfWidth*oversample .. +halfWidth*oversample, summing to 1.
+   */
   weights: Float64Array;
   /**
    * The same kernel sampled out to WIDE_HALF_WIDTH bins (or n/4), normalised over that width: what a line
@@ -46,7 +48,10 @@ export const DETREND_BIAS_LIMIT = 0.01;
 export const KERNEL_TAIL_SHARE = 0.01;
 const OVERSAMPLE = 8;
 const MAX_HALF_WIDTH = 32;
-/** Half-width of the wide kernel, bins: Hann's side lobes fall 18 dB/octave, so past 32 bins less than 1e-9 of it lies each side (chosen here). */
+/**
+ * Half-width of the wide kernel, bins: Hann's side lobes fall 18 dB/octave, so past 32 bins less than 1e-9 of it lies
+ * each side (chosen here).
+ */
 export const WIDE_HALF_WIDTH = 32;
 
 const cache = new Map<string, SpectralKernel>();

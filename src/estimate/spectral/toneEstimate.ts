@@ -296,12 +296,17 @@ function fitTrack(tr: ToneTrack, tone: ToneRequest, L: number, fs: number, n: nu
   };
 }
 
-/** Standard deviation of a fitted tone's peak on a background of one-sided density G over T s: sqrt(G / T) (Kay 1993, Example 3.14, from memory). */
+/**
+ * Standard deviation of a fitted tone's peak on a background of one-sided density G over T s: sqrt(G / T) (Kay 1993,
+ * Example 3.14, from memory).
+ */
 export function tonePeakSd(backgroundDensity: number, durationS: number): number {
   return Math.sqrt(Math.max(0, backgroundDensity) / durationS);
 }
 
-/** Standard deviation of a fitted tone's frequency: sqrt(3 G) / (pi A T^1.5), Hz (Kay 1993, Example 3.14, from memory). */
+/**
+ * Standard deviation of a fitted tone's frequency: sqrt(3 G) / (pi A T^1.5), Hz (Kay 1993, Example 3.14, from memory).
+ */
 export function toneFrequencySd(backgroundDensity: number, peak: number, durationS: number): number {
   return peak > 0
     ? Math.sqrt(3 * Math.max(0, backgroundDensity)) / (Math.PI * peak * Math.pow(durationS, 1.5))
@@ -357,10 +362,11 @@ export interface SpectralTone {
  * the largest within the kernel's reach, at least `minDb` (10 dB) above the median of the 2 x 16 lines beyond
  * that reach, and above that median by more than chance among all lines explains (chi-square at 1 % over all
  * lines, Bonferroni), and when the three lines just past the kernel's reach on each side lie within 3 dB of that median
- * (a tone is as narrow as the kernel; a resonance is wider). Its peak amplitude and frequency come from fitting the kernel h(k - delta) to the
- * excess over the background on the lines it occupies (least squares in amplitude, delta on a 1/32-bin grid),
- * so the window's scalloping does not bias it (Percival & Walden 1993, sec. 6.3; the periodic window's
- * kernel sums to 1 over the lines). A narrow resonance of random vibration can also pass: these are candidates.
+ * (a tone is as narrow as the kernel; a resonance is wider). Its peak amplitude and frequency come from fitting the
+ * kernel h(k - delta) to the excess over the background on the lines it occupies (least squares in amplitude, delta on
+ * a 1/32-bin grid), so the window's scalloping does not bias it (Percival & Walden 1993, sec. 6.3; the periodic
+ * window's kernel sums to 1 over the lines). A narrow resonance of random vibration can also pass: these are
+ * candidates.
  */
 export function spectralTones(
   sp: { frequencyHz: Float64Array; psd: Float64Array; lineSpacingHz: number; dof: number },

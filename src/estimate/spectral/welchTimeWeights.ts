@@ -31,7 +31,8 @@ export class WelchWeightedMeanSquare {
     for (let i = 0; i < this.n; i++) for (let k = 0; k * hop <= i; k++) this.startWeight[i]! += this.w2[i - k * hop]!;
     this.periodicWeight = new Float64Array(hop);
     for (let j = 0; j < hop; j++) {
-      // Sample i = N + j (any i >= N with the same phase) lies in segments starting at i - m for m = i - k hop in [0, N).
+      // Sample i = N + j (any i >= N with the same phase) lies in segments starting at i - m for m = i - k hop in [0,
+      // N).
       const i = this.n + j;
       for (let k = Math.ceil((i - this.n + 1) / hop); k * hop <= i; k++)
         this.periodicWeight[j]! += this.w2[i - k * hop]!;
@@ -59,7 +60,8 @@ export class WelchWeightedMeanSquare {
     const total = this.count;
     const segments = total >= this.n ? Math.floor((total - this.n) / this.hop) + 1 : 0;
     if (segments === 0) return { segments, meanSquare: NaN };
-    // Correct the tail: samples from K hop on (fewer than N of them, all in the ring) lose the segments that never came.
+    // Correct the tail: samples from K hop on (fewer than N of them, all in the ring) lose the segments that never
+    // came.
     const lastStart = (segments - 1) * this.hop;
     let s = this.sum;
     const from = Math.max(0, total - this.ring.length);

@@ -231,8 +231,8 @@ const GL_W = [0.362683783378362, 0.3137066458778873, 0.2223810344533745, 0.10122
 
 /**
  * CDF of the noncentral t with nu DOF and noncentrality delta: T = (Z + delta) / S with S = sqrt(chi2_nu / nu),
- * so P(T <= t) = integral_0^inf Phi(t s - delta) f_S(s) ds, f_S(s) = 2 (nu/2)^(nu/2) / Gamma(nu/2) s^(nu-1) exp(-nu s^2 / 2)
- * (the definition; e.g. Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 2, 1995, ch. 31,
+ * so P(T <= t) = integral_0^inf Phi(t s - delta) f_S(s) ds, f_S(s) = 2 (nu/2)^(nu/2) / Gamma(nu/2) s^(nu-1) exp(-nu s^2
+ * / 2) (the definition; e.g. Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 2, 1995, ch. 31,
  * from memory). Gauss-Legendre on 400 pieces of the range that holds S (about 12 standard deviations each side of 1).
  */
 export function noncentralTCdf(t: number, nu: number, delta: number): number {

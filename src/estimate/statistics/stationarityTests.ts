@@ -83,7 +83,10 @@ export function reverseArrangementCount(x: ArrayLike<number>): number {
   return count;
 }
 
-/** Two-sided region from a discrete distribution p[v - offset]: L largest with P(<= L) <= a/2, U smallest with P(> U) <= a/2. */
+/**
+ * Two-sided region from a discrete distribution p[v - offset]: L largest with P(<= L) <= a/2, U smallest with P(> U) <=
+ * a/2.
+ */
 function exactRegion(p: Float64Array, offset: number, alpha: number): { low: number; high: number; rate: number } {
   let cum = 0;
   let low = offset - 1;
