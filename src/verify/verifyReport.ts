@@ -754,7 +754,16 @@ async function verifyRecord(
     const hint = i.given === undefined && i.label !== "against" ? `; give it as \`${i.role}\`` : "";
     const at = await hashedInput(
       report,
-      { given: i.given, file: i.file, sha256: i.sha256, step: i.role, name: i.label, hint },
+      {
+        given: i.given,
+        file: i.file,
+        sha256: i.sha256,
+        step: i.role,
+        name: i.label,
+        hint,
+        what: i.role === "recording" ? "a readable recording" : "a readable profile file",
+        option: `--${i.role}`,
+      },
       steps,
       missing,
     );

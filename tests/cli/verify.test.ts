@@ -412,6 +412,31 @@ describe("psdgate verify", () => {
     }
   });
 
+  it("a folder given for a ride or respond record's input names the option that gave it", async () => {
+    const d = tempDir();
+    const rep = join(d, "r.html");
+    const made = await cli(
+      "respond",
+      "samples/profiles/quarry-bend-bracket.yaml",
+      "--fn",
+      "20:1000",
+      "--q",
+      "10",
+      "--report",
+      rep,
+    );
+    expect(made.code, made.stderr).toBe(0);
+    const r = await cli("verify", rep, "--profile", "samples/profiles");
+    expect(r.code).toBe(2);
+    expect(r.stderr).toContain(
+      "option --profile: expected a readable profile file, received a folder [FILE_UNREADABLE]",
+    );
+    const t = await cli("transfer", "samples/quarry-bend-bracket.csv", "--in", "base", "--report", join(d, "t.html"));
+    expect(t.code, t.stderr).toBe(0);
+    const v = await cli("verify", join(d, "t.html"), "--recording", "samples");
+    expect(v.code).toBe(2);
+    expect(v.stderr).toContain("option --recording: expected a readable recording, received a folder");
+  });
   it("ride and transfer records carry the resolved analysis, and verify compares it: a changed line spacing in it is named", async () => {
     const d = tempDir();
     copyFileSync("samples/quarry-bend-bracket.csv", join(d, "bracket.csv"));
