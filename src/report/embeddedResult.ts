@@ -10,7 +10,8 @@ import { createHash } from "node:crypto";
  * Two SHA-256 digests tie the parts together: `page.sha256` inside the JSON covers the whole page with
  * the template's content left out, and the template's `data-sha256` covers the JSON text (UTF-8).
  * An edit to the page or to the result is found; a forger who recomputes both is not (this is an
- * integrity check, not a signature): `psdgate verify` therefore also re-runs the analysis.
+ * integrity check, not a signature): `psdgate verify` therefore also re-runs the analysis and renders the
+ * page again from it (verify/renderedPage.ts).
  */
 export const RESULT_FORMAT = "psdgate-report/1";
 const OPEN = '<template id="psdgate-result"';

@@ -13,6 +13,7 @@ import { RIDE_STYLE } from "../report/rideHtml.js";
 import { EXTRA_STYLE as TRANSFER_STYLE } from "../report/transferHtml.js";
 import { type ExtractedResult, extractResult } from "../report/embeddedResult.js";
 import { foreignContent, scanPage, shownVerdict } from "./pageScan.js";
+import { asRecorded, comparePages, recordedContext } from "./renderedPage.js";
 import { isFrameStyle, PEAK_HOLD_STYLE } from "../report/reportPage.js";
 import { psdJson } from "../report/psdJson.js";
 import type { DeriveOptions } from "../analyses/deriveProfile.js";
@@ -41,7 +42,7 @@ export interface VerifyOptions {
 export type VerifyStatus = "reproduced" | "differs" | "missing";
 
 export interface VerifyStep {
-  step: "result" | "page" | "recording" | "profile" | "rerun";
+  step: "result" | "page" | "recording" | "profile" | "rerun" | "rendered";
   ok: boolean;
   text: string;
 }
@@ -262,6 +263,7 @@ function locate(given: string | undefined, recorded: string, report: string): { 
 interface RecordEnvelope {
   kind?: RecordKind;
   created?: string;
+  given?: string[];
   rerun?: Record<string, unknown> | null;
   meta?: TestMeta | null;
   result?: Record<string, unknown>;
@@ -279,6 +281,37 @@ interface AnalysisResult {
 interface FoundInput {
   path?: string;
   ok: boolean;
+}
+
+/**
+ * A record's analysis re-run: its result as the command prints it, and the page the command renders of it (given
+ * the record's context and, for each input found elsewhere, the path the record names).
+ */
+interface Rerun {
+  json: unknown;
+  page: (context: ReturnType<typeof recordedContext>, paths: ReadonlyMap<string, string>) => Promise<string>;
+}
+
+/**
+ * The step that holds a record's page to the page its re-run renders. A record made by another version of psdgate
+ * was rendered by other code: its page is not compared, and the step says so (its numbers still are).
+ */
+async function renderedStep(
+  html: string,
+  doc: RecordEnvelope,
+  rerun: Rerun,
+  paths: ReadonlyMap<string, string>,
+  version: string,
+  running: string,
+): Promise<VerifyStep> {
+  if (version !== running)
+    return {
+      step: "rendered",
+      ok: true,
+      text: `the page's words and figures are not compared: it was rendered by psdgate ${version}, this is ${running}`,
+    };
+  const { ok, text } = comparePages(html, await rerun.page(recordedContext(doc), paths));
+  return { step: "rendered", ok, text };
 }
 
 /** A check, psd or shock record that names its input and how it was analysed. */
@@ -324,10 +357,10 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     return done("differs", { kind: doc.kind });
   }
   if (doc.kind === "derive" && doc.rerun)
-    return verifyDerivation(report, doc as DerivationDoc, steps, tol, options.version);
+    return verifyDerivation(report, html, doc as DerivationDoc, steps, tol, options.version);
   if (doc.kind === "batch") return verifyBatch(report, doc.result as BatchDoc, steps);
   if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun)
-    return verifyRecord(report, doc as RecordDoc, steps, tol, options);
+    return verifyRecord(report, html, doc as RecordDoc, steps, tol, options);
   if ((doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock") || !result.input || !doc.rerun) {
     steps.push({
       step: "result",
@@ -336,7 +369,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
     });
     return done("differs", { kind: undefined });
   }
-  return verifyAnalysis(report, doc as AnalysisDoc, result, steps, tol, options);
+  return verifyAnalysis(report, html, doc as AnalysisDoc, result, steps, tol, options);
 }
 
 /**
@@ -375,6 +408,7 @@ function integritySteps(html: string, x: ExtractedResult, doc: RecordEnvelope, r
  */
 async function verifyAnalysis(
   report: string,
+  html: string,
   doc: AnalysisDoc,
   result: AnalysisResult,
   steps: VerifyStep[],
@@ -393,7 +427,8 @@ async function verifyAnalysis(
     return done("differs", { kind: doc.kind });
   }
   const version = result.tool?.version ?? "?";
-  const now = await rerunAnalysis(doc, rec.path!, prof.path, version);
+  const rerun = await rerunAnalysis(doc, rec.path!, prof.path, version);
+  const now = rerun.json;
   const cmp = compareResults(doc.result, now, tol, "", undefined, { olderReport: version !== options.version });
   const again = (now as { verdict?: string }).verdict;
   const sameVersion = version === options.version;
@@ -405,6 +440,9 @@ async function verifyAnalysis(
         ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp)}`
         : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
   });
+  const paths = new Map([[rec.path!, result.input!.file]]);
+  if (prof.path !== undefined && result.profile) paths.set(prof.path, result.profile.file);
+  steps.push(await renderedStep(html, doc, rerun, paths, version, options.version));
   const status: VerifyStatus = steps.every((s) => s.ok) ? "reproduced" : "differs";
   return {
     status,
@@ -473,19 +511,44 @@ async function analysisInputs(
  * The result a check, psd or shock record's rerun options give on the inputs found: the same function the command
  * printed it with.
  */
-async function rerunAnalysis(doc: AnalysisDoc, recording: string, profile: string | undefined, version: string) {
+async function rerunAnalysis(
+  doc: AnalysisDoc,
+  recording: string,
+  profile: string | undefined,
+  version: string,
+): Promise<Rerun> {
   const meta = doc.meta ?? undefined;
   if (doc.kind === "check") {
     const r = await checkRecording(recording, await loadProfile(profile!), doc.rerun as CheckOptions);
-    return checkJson(r, version, meta);
+    return {
+      json: checkJson(r, version, meta),
+      page: async (c, paths) => {
+        const { checkHtml } = await import("../report/htmlReport.js");
+        return checkHtml(asRecorded(r, paths), version, c.when, c);
+      },
+    };
   }
   if (doc.kind === "shock") {
     // A shock record: the events and spectra re-run from the recorded options (two reads of the recording).
     const { shockRecording } = await import("../analyses/shockRecording.js");
     const { shockJson } = await import("../report/shockReport.js");
-    return shockJson(await shockRecording(recording, doc.rerun as never), version);
+    const r = await shockRecording(recording, doc.rerun as never);
+    return {
+      json: shockJson(r, version),
+      page: async (c, paths) => {
+        const { shockHtml } = await import("../report/shockHtml.js");
+        return shockHtml(asRecorded(r, paths), version, c.when, c);
+      },
+    };
   }
-  return psdJson(await analyzeRecording(recording, doc.rerun as AnalysisOptions), version, meta);
+  const a = await analyzeRecording(recording, doc.rerun as AnalysisOptions);
+  return {
+    json: psdJson(a, version, meta),
+    page: async (c, paths) => {
+      const { psdHtml } = await import("../report/psdHtml.js");
+      return psdHtml(asRecorded(a, paths), version, c.when, c);
+    },
+  };
 }
 
 /**
@@ -570,6 +633,7 @@ async function hashedInput(
  */
 async function verifyDerivation(
   report: string,
+  html: string,
   doc: DerivationDoc,
   steps: VerifyStep[],
   tol: number,
@@ -653,6 +717,15 @@ async function verifyDerivation(
         ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp)}`
         : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
   });
+  const recordedPaths = new Map(found.map((p, n) => [p, recorded[n]!.file]));
+  const rerun: Rerun = {
+    json: undefined,
+    page: async (c, paths) => {
+      const { deriveHtml } = await import("../report/deriveHtml.js");
+      return deriveHtml(asRecorded(r, paths), version, c.when, { ...c, outFile });
+    },
+  };
+  steps.push(await renderedStep(html, doc as RecordEnvelope, rerun, recordedPaths, version, running));
   return done(steps.every((s) => s.ok) ? "reproduced" : "differs", {
     differences: cmp.diffs.slice(0, 20),
     compared: cmp.compared,
@@ -706,21 +779,43 @@ function recordInputs(doc: RecordDoc, options: VerifyOptions): RecordInput[] | u
 }
 
 /** The result a record's rerun options give on the inputs found: the same function the command printed it with. */
-async function rerunRecord(doc: RecordDoc, paths: string[], version: string): Promise<unknown> {
+async function rerunRecord(doc: RecordDoc, paths: string[], version: string): Promise<Rerun> {
   if (doc.kind === "ride") {
     const { rideRecording } = await import("../analyses/rideRecording.js");
     const { rideJson } = await import("../report/rideReport.js");
-    return rideJson(await rideRecording(paths[0]!, doc.rerun as never), version);
+    // The page's spectrogram is made only for a report (as `ride --report` asks for it); no number of the result
+    // depends on it.
+    const r = await rideRecording(paths[0]!, { ...(doc.rerun as object), spectrogram: true } as never);
+    return {
+      json: rideJson(r, version),
+      page: async (c, found) => {
+        const { rideHtml } = await import("../report/rideHtml.js");
+        return rideHtml(asRecorded(r, found), version, c.when, c);
+      },
+    };
   }
   if (doc.kind === "transfer") {
     const { analyzeTransfer } = await import("../analyses/analyzeTransfer.js");
     const { transferJson } = await import("../report/transferReport.js");
-    return transferJson(await analyzeTransfer(paths[0]!, doc.rerun as never), version);
+    const t = await analyzeTransfer(paths[0]!, doc.rerun as never);
+    return {
+      json: transferJson(t, version),
+      page: async (c, found) => {
+        const { transferHtml } = await import("../report/transferHtml.js");
+        return transferHtml(asRecorded(t, found), version, c.when, c);
+      },
+    };
   }
   const { runResponse } = await import("../analyses/responseSpectra.js");
   const { responseJson } = await import("../report/responseReport.js");
   const { r, against } = await runResponse(paths[0]!, respondRerunSpelled(doc.rerun) as never, paths[1]);
-  return responseJson(r, version, against);
+  return {
+    json: responseJson(r, version, against),
+    page: async (c, found) => {
+      const { responseHtml } = await import("../report/responseHtml.js");
+      return responseHtml(asRecorded(r, found), version, c.when, c, against && asRecorded(against, found));
+    },
+  };
 }
 
 /** JSON paths that hold where an input was read, not what it held (respond names its source files). */
@@ -732,6 +827,7 @@ const RECORD_IGNORED = /^(source\.file|against\.source\.file)$/;
  */
 async function verifyRecord(
   report: string,
+  html: string,
   doc: RecordDoc,
   steps: VerifyStep[],
   tol: number,
@@ -777,7 +873,8 @@ async function verifyRecord(
     return done("differs");
   }
   const version = doc.result.tool?.version ?? "?";
-  const now = await rerunRecord(doc, paths, version);
+  const rerun = await rerunRecord(doc, paths, version);
+  const now = rerun.json;
   const cmp = compareResults(strip(doc.result), strip(now as Record<string, unknown>), tol, "", undefined, {
     olderReport: version !== options.version,
   });
@@ -789,6 +886,8 @@ async function verifyRecord(
         ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp)}`
         : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
   });
+  const found = new Map(paths.map((p, k) => [p, inputs[k]!.file]));
+  steps.push(await renderedStep(html, doc, rerun, found, version, options.version));
   return done(steps.every((s) => s.ok) ? "reproduced" : "differs", {
     differences: cmp.diffs.slice(0, 20),
     compared: cmp.compared,

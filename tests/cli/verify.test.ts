@@ -60,7 +60,66 @@ describe("psdgate verify", () => {
     expect(r.stdout).toMatch(/\d{4,} numbers and the verdict FAIL reproduced/);
     const j = JSON.parse((await cli("verify", join(d, "report.html"), "--json")).stdout);
     expect(j.status).toBe("reproduced");
-    expect(j.steps.map((s: { step: string }) => s.step)).toEqual(["result", "page", "recording", "profile", "rerun"]);
+    expect(j.steps.map((s: { step: string }) => s.step)).toEqual([
+      "result",
+      "page",
+      "recording",
+      "profile",
+      "rerun",
+      "rendered",
+    ]);
+    expect(r.stdout).toContain("the page is the one its re-run renders");
+  });
+
+  it("a re-signed page whose words and figures were edited (the result left alone) is caught by rendering it again", async () => {
+    const d = copy();
+    const html = readFileSync(join(d, "report.html"), "utf8");
+    // The running header printed on every page says PASS, and the worst excursion is made smaller.
+    expect(html).toContain('content: "FAIL · recording');
+    const forged = forge(
+      html,
+      (p) => p.replace('content: "FAIL · recording', 'content: "PASS · recording').replace(/\+4\.64 dB/g, "+1.04 dB"),
+      () => undefined,
+    );
+    writeFileSync(join(d, "report.html"), forged);
+    const r = await cli("verify", join(d, "report.html"));
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/ok\s+page\s/);
+    expect(r.stdout).toMatch(/ok\s+rerun\s+\d+ numbers and the verdict FAIL reproduced/);
+    expect(r.stdout).toMatch(
+      /FAIL\s+rendered\s+the page differs from the one its re-run renders, from line \d+: the page shows ".*PASS · recording/,
+    );
+    // A ride record the same way: its exposure figure on the page lowered.
+    const ride = join(d, "ride.html");
+    const made = await cli(
+      "ride",
+      "samples/marlow-uv3-ride.wav",
+      "--units",
+      "m/s2",
+      "--scale",
+      "40",
+      "--axes",
+      "x=1,y=2,z=3",
+      "--exposure",
+      "8h",
+      "--report",
+      ride,
+    );
+    expect(made.code, made.stderr).toBe(0);
+    expect((await cli("verify", ride)).code).toBe(0);
+    const rideHtml = readFileSync(ride, "utf8");
+    const a8 = /A\(8\) (\d\.\d+) m\/s²/.exec(rideHtml)![1]!;
+    writeFileSync(
+      ride,
+      forge(
+        rideHtml,
+        (p) => p.replaceAll(`${a8} m/s²`, `${(Number(a8) * 0.8).toFixed(3)} m/s²`),
+        () => undefined,
+      ),
+    );
+    const v = await cli("verify", ride);
+    expect(v.code).toBe(1);
+    expect(v.stdout).toMatch(/FAIL\s+rendered\s+the page differs/);
   });
 
   it("verify with --recording and --profile finds inputs that are not beside the report", async () => {
