@@ -44,12 +44,24 @@ export function channelIndex(
   });
 }
 
-/** channelIndex for each name given; every channel, in order, when none is given. */
+/**
+ * channelIndex for each name given; every channel, in order, when none is given. A channel named twice (`-c 1 -c
+ * ch1`) is OPTION_INVALID: analysed twice it would count as two spectra in the verdict's per-record split.
+ */
 export function channelIndices(
   channels: readonly { name: string }[],
   wanted: readonly ChannelName[] | undefined,
   at: ChannelChoiceContext,
 ): number[] {
   if (wanted === undefined || wanted.length === 0) return channels.map((_, i) => i);
-  return wanted.map((w) => channelIndex(channels, w, at));
+  const out = wanted.map((w) => channelIndex(channels, w, at));
+  const twice = out.findIndex((c, i) => out.indexOf(c) !== i);
+  if (twice >= 0)
+    throw new InputError("OPTION_INVALID", {
+      file: at.file,
+      option: at.option,
+      expected: "each channel once",
+      received: `${quoted(String(wanted[out.indexOf(out[twice]!)]))} and ${quoted(String(wanted[twice]))}, both channel ${at.positions?.[out[twice]!] ?? out[twice]! + 1} (${channels[out[twice]!]!.name})`,
+    });
+  return out;
 }
