@@ -11,7 +11,7 @@ import {
   type ProfileMotion,
   type TestProfile,
 } from "../compare/testProfile.js";
-import { InputError } from "../errors.js";
+import { InputError, quoted } from "../errors.js";
 import { damageSpectra } from "../estimate/response/damageSpectrum.js";
 import { SN_DEFAULTS, type SnCurve } from "../estimate/response/fatigueDamage.js";
 import { clippedSpectrum, lineSpectrum, powerLawSpectrum } from "../estimate/response/inputSpectrum.js";
@@ -304,6 +304,19 @@ function deriveSettings(o: DeriveOptions) {
  * Step 1: each recording's PSD, one channel, on one resolution, in one unit; recordings whose lines or units differ are
  * refused.
  */
+/**
+ * The same samples listed twice (one file named twice, or two copies of it, with windows that overlap): the field's
+ * tolerance limit would count them as independent recordings and shrink on no spread at all.
+ */
+function repeatedRecording(o: DeriveOptions, first: string, second: string, a: RecordingAnalysis): InputError {
+  return new InputError(o.mix ? "MIX_INVALID" : "OPTION_INVALID", {
+    file: o.mix?.file,
+    option: o.mix ? undefined : "recordings",
+    expected: "each field recording once (the field's tolerance limit takes the recordings as independent)",
+    received: `${quoted(first)} and ${quoted(second)}: the same samples (SHA-256 ${a.input.sha256.slice(0, 12)}…, windows that overlap)`,
+  });
+}
+
 async function analyseField(o: DeriveOptions) {
   if ((o.channels?.length ?? 0) > 1)
     throw new InputError("OPTION_INVALID", {
@@ -315,7 +328,7 @@ async function analyseField(o: DeriveOptions) {
   const base: AnalysisOptions = { ...o.analysis, resultUnits: o.analysis?.resultUnits ?? "g" };
   if (base.resolutionHz === undefined && base.segmentLength === undefined)
     base.resolutionHz = DERIVE_DEFAULTS.resolutionHz;
-  const analysed = [];
+  const analysed: { r: FieldRecordingInput; a: RecordingAnalysis; c: RecordingAnalysis["channels"][number] }[] = [];
   for (const r of o.recordings) {
     const a = await analyzeRecording(r.file, {
       ...base,
@@ -334,6 +347,12 @@ async function analyseField(o: DeriveOptions) {
         hint: "use a shorter `segmentLength` or a coarser `resolutionHz`",
       });
     }
+    const again = analysed.find(
+      (x) =>
+        x.a.input.sha256 === a.input.sha256 &&
+        Math.max(x.a.window.fromS, a.window.fromS) < Math.min(x.a.window.toS, a.window.toS),
+    );
+    if (again) throw repeatedRecording(o, again.r.file, r.file, a);
     analysed.push({ r, a, c });
   }
   const first = analysed[0]!;

@@ -370,4 +370,38 @@ describe("derive on no data: exit 2 with a code, never an internal error", () =>
       /option --test-duration: expected a test duration over which a finite level covers the field's damage.*\[OPTION_INVALID\]/,
     );
   }, 60_000);
+
+  it("a recording listed twice in a mix (its windows overlapping) is MIX_INVALID; two windows of it that do not overlap are two field records", async () => {
+    const dir = tempDir();
+    const wav = join(process.cwd(), "samples/corran-k7-motorway.wav");
+    const mix = (recs: string) => `title: one road\ngroups:\n  - name: lane\n    hours: 100\n    recordings:\n${recs}`;
+    writeFileSync(join(dir, "twice.yaml"), mix(`      - ${wav}\n      - file: ${wav}\n        from: 5\n`));
+    const twice = await cli(
+      "derive",
+      "--mix",
+      join(dir, "twice.yaml"),
+      "--test-duration",
+      "1h",
+      "--out",
+      join(dir, "a.yaml"),
+    );
+    expect(twice.code).toBe(2);
+    expect(twice.stderr).toMatch(/twice\.yaml: expected each field recording once.*the same samples.*\[MIX_INVALID\]/);
+    writeFileSync(
+      join(dir, "halves.yaml"),
+      mix(`      - file: ${wav}\n        to: 15\n      - file: ${wav}\n        from: 15\n`),
+    );
+    const halves = await cli(
+      "derive",
+      "--mix",
+      join(dir, "halves.yaml"),
+      "--test-duration",
+      "1h",
+      "--out",
+      join(dir, "b.yaml"),
+      "--json",
+    );
+    expect(halves.code, halves.stderr).toBe(0);
+    expect(JSON.parse(halves.stdout).recordings.length).toBe(2);
+  }, 60_000);
 });
