@@ -9,7 +9,7 @@ import { EXIT, InputError } from "../errors.js";
 import { fixed, sig, signedDb } from "../report/format.js";
 import { reportFileNames } from "../report/reportNames.js";
 import { RULE_SUMMARY, VERDICT_MEANING } from "../report/ruleText.js";
-import { checkOutputPath, makeFolders, writeAtomic } from "../report/writeAtomic.js";
+import { checkOutputPaths, makeFolders, writeAtomic } from "../report/writeAtomic.js";
 import { fsReason } from "../read/regularFile.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
@@ -184,8 +184,15 @@ async function readCheckInputs(io: CliIo, args: string[], o: CheckFlags, cmd: Co
   const { loadMetaTable, matchMetaTable, recordingMeta } = await import("../read/testMeta.js");
   const table =
     o.metaTable !== undefined ? matchMetaTable(await loadMetaTable(o.metaTable), files, o.metaTable) : undefined;
-  if (o.report !== undefined && files.length === 1) checkOutputPath(o.report, inputs, o.force, "--report");
-  if (o.csv !== undefined && files.length === 1) checkOutputPath(o.csv, inputs, o.force, "--csv");
+  if (files.length === 1)
+    checkOutputPaths(
+      [
+        ["--report", o.report],
+        ["--csv", o.csv],
+      ],
+      inputs,
+      o.force,
+    );
   if (o.reportDir !== undefined) await makeReportDir(o.reportDir);
   const now = new Date();
   const wantsReport = o.report !== undefined || o.reportDir !== undefined;

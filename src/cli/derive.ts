@@ -203,7 +203,7 @@ type DeriveInputs = Pick<DeriveOptions, "recordings" | "groups" | "lifeRule" | "
 async function runDerive(io: CliIo, args: string[], o: DeriveFlags, cmd: Command): Promise<void> {
   const { deriveProfile, strokeOf } = await import("../analyses/deriveProfile.js");
   const { deriveJson, deriveText, profileDocumentText } = await import("../report/deriveReport.js");
-  const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+  const { checkOutputPaths, writeAtomic } = await import("../report/writeAtomic.js");
   const { VERSION } = await import("../version.js");
   const { parseProfile } = await import("../compare/testProfile.js");
   if (o.channel !== undefined && o.channel.length > 1)
@@ -223,8 +223,14 @@ async function runDerive(io: CliIo, args: string[], o: DeriveFlags, cmd: Command
   read.push(...inputs.recordings.map((r) => r.file));
   const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
   if (o.meta !== undefined) read.push(o.meta);
-  checkOutputPath(o.out, read, o.force, "--out");
-  if (o.report !== undefined) checkOutputPath(o.report, [...read, o.out], o.force, "--report");
+  checkOutputPaths(
+    [
+      ["--out", o.out],
+      ["--report", o.report],
+    ],
+    read,
+    o.force,
+  );
   const created = new Date();
   const settings = deriveSettings(o, inputs);
   const r = await deriveProfile({ ...settings, version: VERSION, created });

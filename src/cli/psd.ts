@@ -5,7 +5,7 @@ import { fixed, sig } from "../report/format.js";
 import { printable } from "../report/printable.js";
 import { psdCsv, psdJson } from "../report/psdJson.js";
 import { psdText } from "../report/psdText.js";
-import { checkOutputPath, writeAtomic } from "../report/writeAtomic.js";
+import { checkOutputPaths, writeAtomic } from "../report/writeAtomic.js";
 import { accelLabel } from "../units.js";
 import { VERSION } from "../version.js";
 import { Exit } from "./exit.js";
@@ -72,8 +72,14 @@ async function runPsd(io: CliIo, runner: Runner, args: string[], o: PsdFlags, cm
     ...(o.meta !== undefined ? [o.meta] : []),
   ];
   if (files.length > 1) throw new Exit(await psdMany(io, runner, files, o, meta));
-  if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
-  if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
+  checkOutputPaths(
+    [
+      ["--csv", o.csv],
+      ["--report", o.report],
+    ],
+    inputs,
+    o.force,
+  );
   const { runAnalysis } = await import("../analyses/runAnalysis.js");
   const options = {
     ...analysisOptions(o),

@@ -155,9 +155,15 @@ async function runRespond(io: CliIo, source: string, o: RespondFlags, cmd: Comma
   const base = analysisOptions(o);
   const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
   const inputs = [source, ...(o.against !== undefined ? [o.against] : []), ...(o.meta !== undefined ? [o.meta] : [])];
-  const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
-  if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
-  if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
+  const { checkOutputPaths, writeAtomic } = await import("../report/writeAtomic.js");
+  checkOutputPaths(
+    [
+      ["--report", o.report],
+      ["--csv", o.csv],
+    ],
+    inputs,
+    o.force,
+  );
   const rerun = respondRerun(o, base);
   const { r, against } = await runResponse(source, rerun);
   if (o.csv !== undefined) {

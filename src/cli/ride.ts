@@ -187,15 +187,21 @@ async function runRide(io: CliIo, file: string, o: RideFlags, cmd: Command): Pro
   const { rideCsv, rideJson, rideText } = await import("../report/rideReport.js");
   const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
   const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
-  const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+  const { checkOutputPaths, writeAtomic } = await import("../report/writeAtomic.js");
   if (o.report !== undefined && o.report === o.csv)
     throw new InputError("OPTION_CONFLICT", {
       option: "--csv",
       expected: "a file other than --report's",
       received: quoted(o.csv),
     });
-  if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
-  if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
+  checkOutputPaths(
+    [
+      ["--report", o.report],
+      ["--csv", o.csv],
+    ],
+    inputs,
+    o.force,
+  );
   const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
   const { channels: _c, resultUnits: _r, ...base } = analysisOptions(o);
   const options = {

@@ -120,13 +120,19 @@ async function runShock(io: CliIo, file: string, o: ShockFlags, cmd: Command): P
   const { parseFnGrid } = await import("../analyses/responseSpectra.js");
   const { shockRecording } = await import("../analyses/shockRecording.js");
   const { shockCsv, shockJson, shockText } = await import("../report/shockReport.js");
-  const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+  const { checkOutputPaths, writeAtomic } = await import("../report/writeAtomic.js");
   const { VERSION } = await import("../version.js");
   const fnHz = parseFnGrid(o.fn, "--fn");
   const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
   const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
-  if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
-  if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
+  checkOutputPaths(
+    [
+      ["--csv", o.csv],
+      ["--report", o.report],
+    ],
+    inputs,
+    o.force,
+  );
   const { histogram: _h, ...base } = analysisOptions(o);
   const progress = createProgress(progressEnabled(io.stderrIsTTY === true, o.quiet === true, io.env ?? {}), io.stderr);
   const options = {

@@ -72,12 +72,18 @@ export function registerTransfer(program: Command, io: CliIo): void {
         });
       const { analyzeTransfer } = await import("../analyses/analyzeTransfer.js");
       const { transferCsv, transferJson, transferText } = await import("../report/transferReport.js");
-      const { checkOutputPath, writeAtomic } = await import("../report/writeAtomic.js");
+      const { checkOutputPaths, writeAtomic } = await import("../report/writeAtomic.js");
       const { VERSION } = await import("../version.js");
       const meta = o.meta !== undefined ? await (await import("../read/testMeta.js")).loadTestMeta(o.meta) : undefined;
       const inputs = [file, ...(o.meta !== undefined ? [o.meta] : [])];
-      if (o.csv !== undefined) checkOutputPath(o.csv, inputs, o.force, "--csv");
-      if (o.report !== undefined) checkOutputPath(o.report, inputs, o.force, "--report");
+      checkOutputPaths(
+        [
+          ["--csv", o.csv],
+          ["--report", o.report],
+        ],
+        inputs,
+        o.force,
+      );
       const options = {
         ...analysisOptions(o),
         inputChannel: o.in,

@@ -88,6 +88,29 @@ export function unwritable(target: string, option: string, e: unknown): unknown 
 }
 
 /**
+ * checkOutputPath for each output a command was given ([option, path], unset ones skipped), and no two of them the
+ * same file: `--csv x --report x` would write one and replace it with the other (OPTION_CONFLICT, before any is
+ * written).
+ */
+export function checkOutputPaths(
+  outputs: readonly [string, string | undefined][],
+  inputs: string[],
+  force: boolean | undefined,
+): void {
+  const given = outputs.filter((o): o is [string, string] => o[1] !== undefined);
+  for (const [k, [option, path]] of given.entries()) {
+    const same = given.slice(0, k).find(([, p]) => canonical(p) === canonical(path));
+    if (same)
+      throw new InputError("OPTION_CONFLICT", {
+        option,
+        expected: `an output path different from ${same[0]}'s`,
+        received: path,
+      });
+    checkOutputPath(path, inputs, force, option);
+  }
+}
+
+/**
  * Refuse an output that is one of the inputs, that exists and is not a regular file, or (without
  * `force`) that exists at all. Called before the work starts, and again just before publishing.
  */
