@@ -3,6 +3,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { spawnSync } from "node:child_process";
 import { runCli } from "../src/cli/main.js";
+import { embedResult, RESULT_PLACEHOLDER } from "../src/report/embeddedResult.js";
 
 export interface Reference {
   source: string;
@@ -72,4 +73,25 @@ export function python(code: string): string {
   const r = spawnSync("python3", ["-c", code], { encoding: "utf8", maxBuffer: 1 << 28 });
   if (r.status !== 0) throw new Error(r.stderr);
   return r.stdout;
+}
+
+/**
+ * Re-sign a report as a forger who knows how psdgate makes its digests would: edit the page and the
+ * embedded result, then recompute the page digest and the result digest (embedResult does both).
+ */
+export function forge(
+  html: string,
+  editPage: (page: string) => string,
+  editResult: (doc: Record<string, unknown>) => void,
+): string {
+  const m = /<template id="psdgate-result" data-sha256="[0-9a-f]{64}">([\s\S]*?)<\/template>/.exec(html)!;
+  const doc = JSON.parse(m[1]!.replace(/&lt;/g, "<").replace(/&gt;/g, ">").replace(/&amp;/g, "&")) as Record<
+    string,
+    unknown
+  >;
+  delete doc.format;
+  delete doc.page;
+  editResult(doc);
+  const page = editPage(html.slice(0, m.index) + RESULT_PLACEHOLDER + html.slice(m.index + m[0].length));
+  return embedResult(page, doc);
 }

@@ -65,7 +65,7 @@ export function batchIndexHtml(
     .join("\n");
   const counts = `${count("pass")} pass, ${count("fail")} fail, ${count("inconclusive")} inconclusive${failed ? `, ${failed} could not be read (see the command's messages; no report)` : ""}`;
   const worstVerdict = count("fail") ? "fail" : count("inconclusive") || failed ? "inconclusive" : "pass";
-  const metaFrom = [...new Set(entries.map((e) => e.metaFrom).filter(Boolean))];
+  const metaFrom = [...new Set(sorted.map((e) => e.metaFrom).filter(Boolean))];
   const body = `<style>${BATCH_STYLE}</style>
 <div class="verdict ${worstVerdict}" id="verdict" data-verdict="${worstVerdict}"><span class="word">BATCH</span><span>${esc(`${entries.length + failed} recordings against "${profile.title}": ${counts}.`)}</span></div>
 <h2>Test identity</h2>

@@ -358,7 +358,7 @@ export async function verifyReport(report: string, options: VerifyOptions): Prom
   }
   if (doc.kind === "derive" && doc.rerun)
     return verifyDerivation(report, html, doc as DerivationDoc, steps, tol, options.version);
-  if (doc.kind === "batch") return verifyBatch(report, doc.result as BatchDoc, steps);
+  if (doc.kind === "batch") return verifyBatch(report, html, doc, steps, options);
   if ((doc.kind === "ride" || doc.kind === "transfer" || doc.kind === "respond") && doc.rerun)
     return verifyRecord(report, html, doc as RecordDoc, steps, tol, options);
   if ((doc.kind !== "check" && doc.kind !== "psd" && doc.kind !== "shock") || !result.input || !doc.rerun) {
@@ -910,8 +910,10 @@ function strip(result: Record<string, unknown>): Record<string, unknown> {
 }
 
 interface BatchDoc {
+  tool?: { version?: string };
   entries?: { file: string; report: string; reportSha256?: string; verdict?: string }[];
   failed?: number;
+  profile?: { title: string; file: string; sha256: string };
 }
 
 /** The verdict a batch index's banner shows: its worst (report/batchIndex.ts). */
@@ -921,10 +923,30 @@ function batchVerdict(doc: BatchDoc): string {
 }
 
 /**
- * A batch index: every linked report beside it, by the SHA-256 the index recorded (each report verifies on its own).
+ * A batch index: its page rendered again from its result, then every linked report beside it, by the SHA-256 the
+ * index recorded and verified in full (its inputs, its re-run, its page), its verdict the one the index lists.
  */
-async function verifyBatch(report: string, doc: BatchDoc, steps: VerifyStep[]): Promise<VerifyResult> {
+async function verifyBatch(
+  report: string,
+  html: string,
+  envelope: RecordEnvelope,
+  steps: VerifyStep[],
+  options: VerifyOptions,
+): Promise<VerifyResult> {
+  const doc = (envelope.result ?? {}) as BatchDoc;
   const missing: string[] = [];
+  const version = doc.tool?.version ?? "?";
+  const rerun: Rerun = {
+    json: undefined,
+    page: async (c) => {
+      const { batchIndexHtml } = await import("../report/batchIndex.js");
+      return batchIndexHtml(doc.entries as never, doc.failed ?? 0, doc.profile as never, version, c.when, {
+        meta: c.meta,
+        given: c.given,
+      });
+    },
+  };
+  steps.push(await renderedStep(html, envelope, rerun, new Map(), version, options.version));
   let ok = 0;
   for (const e of doc.entries ?? []) {
     const at = join(dirname(report), e.report);
@@ -934,18 +956,36 @@ async function verifyBatch(report: string, doc: BatchDoc, steps: VerifyStep[]): 
     }
     const same =
       e.reportSha256 !== undefined && (await sha256File(at, "a readable file", undefined)) === e.reportSha256;
-    if (same) ok++;
-    else
+    if (!same) {
       steps.push({
         step: "recording",
         ok: false,
         text: `${at}: ${e.reportSha256 === undefined ? "no SHA-256 recorded for it" : "SHA-256 differs from the one the index recorded (the report was replaced or edited)"}`,
       });
+      continue;
+    }
+    const v = await verifyReport(at, { version: options.version, tolerance: options.tolerance });
+    const page = await readSmallText(at, {
+      what: "a readable psdgate HTML report",
+      maxBytes: MAX_REPORT_BYTES,
+      tooLarge: "INPUT_TOO_LARGE",
+    });
+    const shown = (extractResult(page.text).doc?.result as { verdict?: string } | undefined)?.verdict;
+    const failed = v.steps.find((s) => !s.ok);
+    if (v.status === "missing") missing.push(...v.missing.map((m) => `${m}, for ${e.report}`));
+    else if (v.status !== "reproduced" || shown !== e.verdict)
+      steps.push({
+        step: "rerun",
+        ok: false,
+        text: `${e.report}: ${failed ? `${failed.step}: ${failed.text}` : `its verdict is ${String(shown).toUpperCase()}, the index lists ${String(e.verdict).toUpperCase()}`}`,
+      });
+    else ok++;
   }
+  const n = (doc.entries ?? []).length;
   steps.push({
-    step: "recording",
+    step: "rerun",
     ok: steps.every((s) => s.ok),
-    text: `${ok} of ${(doc.entries ?? []).length} linked reports are the ones the index lists (SHA-256); verify each report to re-run it`,
+    text: `${ok} of ${n} linked reports are the ones the index lists (SHA-256), and each verifies: its inputs, its re-run and its page, with the verdict the index shows`,
   });
   const intact = steps.every((s) => s.ok);
   return {

@@ -1,29 +1,7 @@
 import { copyFileSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
-import { embedResult, RESULT_PLACEHOLDER } from "../../src/report/embeddedResult.js";
-import { cli, tempDir } from "../helpers.js";
-
-/**
- * Re-sign a report as a forger who knows how psdgate makes its digests would: edit the page and the
- * embedded result, then recompute the page digest and the result digest (embedResult does both).
- */
-function forge(
-  html: string,
-  editPage: (page: string) => string,
-  editResult: (doc: Record<string, unknown>) => void,
-): string {
-  const m = /<template id="psdgate-result" data-sha256="[0-9a-f]{64}">([\s\S]*?)<\/template>/.exec(html)!;
-  const doc = JSON.parse(m[1]!.replace(/&lt;/g, "<").replace(/&gt;/g, ">").replace(/&amp;/g, "&")) as Record<
-    string,
-    unknown
-  >;
-  delete doc.format;
-  delete doc.page;
-  editResult(doc);
-  const page = editPage(html.slice(0, m.index) + RESULT_PLACEHOLDER + html.slice(m.index + m[0].length));
-  return embedResult(page, doc);
-}
+import { cli, forge, tempDir } from "../helpers.js";
 
 // One check report made once (beside copies of its inputs); each case edits a copy of the folder.
 let base: string;
