@@ -60,6 +60,12 @@ const TABLE: [FindingCode, Record<string, number>, FindingAbout | undefined, str
     "DC offset: mean 0.12345 is 43 % of the standard deviation (sensor bias or gravity?)",
   ],
   [
+    "GRAVITY_AS_G",
+    { mean: 9.8123 },
+    undefined,
+    "no unit is stated for this channel, so it was read as g, but its mean of 9.8123 is 1 g of gravity written in m/s²: if the file holds m/s², give --units m/s2 (read as g, every level is 9.81 times too high)",
+  ],
+  [
     "PARSEVAL_MISMATCH",
     { offPercent: 3.45, allowedPercent: 2 },
     undefined,
@@ -546,6 +552,13 @@ async function allFindings(): Promise<Finding[]> {
   for (let i = stepped.length / 2; i < stepped.length; i++) stepped[i] = 3 * stepped[i]!;
   const a = await analyzeRecording(wav(stepped, fs, "stepped.wav"), { segmentLength: 1024, toS: 100 });
   out.push(...a.channels[0]!.notes, ...a.channels[0]!.doubts);
+
+  // A phone-style CSV in m/s² with no unit anywhere, the sensor on gravity: read as g, GRAVITY_AS_G.
+  const phone = join(tempDir(), "phone.csv");
+  let rows = "timestamp_ms,az\n";
+  for (let i = 0; i < 4096; i++) rows += `${(i * 5).toFixed(0)},${(9.81 + 0.3 * Math.sin(i * 0.7)).toFixed(4)}\n`;
+  writeFileSync(phone, rows);
+  out.push(...(await analyzeRecording(phone, { segmentLength: 256 })).channels[0]!.doubts);
 
   // One channel's notes and doubts with each figure pushed past its gate (the sentences and values are made from these inputs).
   const base = (

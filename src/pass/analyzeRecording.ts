@@ -362,6 +362,8 @@ function channelResult(
   );
   const note = stationarityNote(stationarity);
   if (note !== undefined) notes.push(note);
+  const gravity = gravityInMs2(stats.mean, conditioning.reading);
+  if (gravity) doubts.push(gravity);
   const recordEndS = frames / fs;
   if (windowInfo.requestedToS !== undefined)
     notes.push({ code: "WINDOW_PAST_END", values: { requestedToS: windowInfo.requestedToS, recordEndS } });
@@ -451,6 +453,19 @@ export function stationarityNote(f: StationarityFinding): Finding | undefined {
  */
 export function clippingHintCount(samples: number): number {
   return Math.max(3, Math.ceil(2e-5 * samples));
+}
+
+/**
+ * A channel read as g only because nothing said its unit (no header unit, units row or option), whose mean in the
+ * file is 9.3 to 10.3: that is 1 g of gravity written in m/s², and read as g every level is 9.81 times too high (in
+ * mean squares 96 times). A g channel carrying a steady 9.8 g is not what an accelerometer on a vehicle, machine
+ * or shaker shows (common practice). Said as a doubt, with the option that settles it.
+ */
+export function gravityInMs2(mean: number, reading: ChannelReading): Finding | undefined {
+  if (reading.unitFrom !== "default" || reading.fileUnit !== "g") return undefined;
+  const fileMean = mean / reading.factor;
+  if (!(Math.abs(fileMean) >= 9.3 && Math.abs(fileMean) <= 10.3)) return undefined;
+  return { code: "GRAVITY_AS_G", values: { mean: fileMean } };
 }
 
 /**

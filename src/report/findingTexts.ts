@@ -83,6 +83,8 @@ const PASS_TEXTS = {
     `only ${v.averages} average(s): each line is uncertain by ±${v.lineErrorPercent!.toFixed(0)} % (1 sigma)`,
   DC_OFFSET: (v) =>
     `DC offset: mean ${fmt(v.mean!)} is ${v.meanPercentOfStd!.toFixed(0)} % of the standard deviation (sensor bias or gravity?)`,
+  GRAVITY_AS_G: (v) =>
+    `no unit is stated for this channel, so it was read as g, but its mean of ${fmt(v.mean!)} is 1 g of gravity written in m/s²: if the file holds m/s², give --units m/s2 (read as g, every level is 9.81 times too high)`,
   PARSEVAL_MISMATCH: (v, a) =>
     `Parseval mismatch: RMS from the PSD is ${v.offPercent!.toFixed(2)} % off the RMS of the same detrended segments (allowed ±${v.allowedPercent!.toPrecision(2)} %${a.toleranceFrom === "record" ? ", from the record's own spread" : ""})`,
   BELOW_FIRST_LINE: (v) =>
