@@ -98,6 +98,7 @@ export const FINDING_CODES = [
   // shock (analyses/shockRecording.ts; the pass's doubts carry over, said of their channel).
   "SRS_FEW_SAMPLES",
   "THRESHOLD_LOW",
+  "BASELINE_DRIFT",
   "EVENT_CUT_SHORT",
   // transfer (analyses/analyzeTransfer.ts).
   "SEGMENTS_LEFT_OUT",

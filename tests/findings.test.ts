@@ -429,6 +429,12 @@ const TABLE: [FindingCode, Record<string, number>, FindingAbout | undefined, str
     "z: the threshold is 2.00 x the background r.m.s.; on a Gaussian background of this level about 1234 event(s) would be found by chance (Rice)",
   ],
   [
+    "BASELINE_DRIFT",
+    { lowest: -0.95, highest: 0.75, largest: 0.85, thresholdPercent: 70.8 },
+    { channel: "z" },
+    "z: the 1 s means move from -0.95 to 0.75, up to 0.85 from the one mean removed (71 % of the threshold): where the drift is largest, events may be the drift (a sensor tilting through gravity, a creeping offset) and the background, not shocks, and their SRS take the drift in; analyse a window with --from/--to or give a threshold above it",
+  ],
+  [
     "EVENT_CUT_SHORT",
     { postS: 0.5 },
     { channel: "z" },
@@ -729,6 +735,22 @@ async function allFindings(): Promise<Finding[]> {
     thresholdFactor: 2,
   });
   out.push(...shock.notes, ...shock.doubts);
+  // shock on a sensor that tilts through gravity (-1 g to +0.8 g over 8 s) under 0.2 g of noise: BASELINE_DRIFT.
+  const tilt = join(tempDir(), "tilt.csv");
+  let seed = 7;
+  const noise = () => {
+    let u = 0;
+    for (let k = 0; k < 12; k++) {
+      seed = (seed * 1103515245 + 12345) % 2147483648;
+      u += seed / 2147483648;
+    }
+    return u - 6;
+  };
+  let lines = "time,z [g]\n";
+  for (let i = 0; i < 8000; i++)
+    lines += `${(i / 1000).toFixed(3)},${(-1 + (1.8 * i) / 8000 + 0.2 * noise()).toFixed(5)}\n`;
+  writeFileSync(tilt, lines);
+  out.push(...(await shockRecording(tilt, { fnHz: [5, 50, 100], q: 10 })).doubts);
 
   // derive: from two 16-bit recordings without calibration, each with an engine tone (no tolerance limit, full
   // scale assumed, candidate tones), and from the forklift's shocks with the field's damage in time.

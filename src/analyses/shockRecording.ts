@@ -116,7 +116,7 @@ export interface ShockResult {
   doubts: Finding[];
 }
 
-class Background implements PassAccumulator<number[][]> {
+class Background implements PassAccumulator<{ meanSquares: number[][]; means: number[][] }> {
   private s: StretchMeanSquares[] = [];
   private length = 2;
   start(designRateHz: number): void {
@@ -126,8 +126,8 @@ class Background implements PassAccumulator<number[][]> {
     while (this.s.length < blocks.length) this.s.push(new StretchMeanSquares(this.length));
     for (let c = 0; c < blocks.length; c++) this.s[c]!.push(blocks[c]!, frames);
   }
-  finish(): number[][] {
-    return this.s.map((s) => [...s.result()]);
+  finish(): { meanSquares: number[][]; means: number[][] } {
+    return { meanSquares: this.s.map((s) => [...s.result()]), means: this.s.map((s) => [...s.means()]) };
   }
 }
 
@@ -247,6 +247,26 @@ function shockSettings(options: ShockOptions) {
   return { q, fnHz, holdS, factor, preS, postS };
 }
 
+/**
+ * BASELINE_DRIFT: the channel's 1 s means move away from the one mean read 2 removes by more than a quarter of the
+ * threshold (a sensor that tilts through gravity, an offset that creeps). Where the drift is largest the threshold
+ * is that much nearer the background, so events there may be the drift and the noise, not shocks, and their SRS
+ * take the drift in. A quarter: the largest of the stretch means of a stationary record stays within a few
+ * sigma / sqrt(samples a second) of its mean, far below it (common practice, a heuristic; chosen here).
+ */
+function baselineDrift(means: readonly number[], p: ChannelLevels): Finding | undefined {
+  const finite = means.filter((m) => Number.isFinite(m));
+  if (finite.length < 2) return undefined;
+  const lowest = Math.min(...finite);
+  const highest = Math.max(...finite);
+  const largest = Math.max(Math.abs(highest - p.mean), Math.abs(lowest - p.mean));
+  if (!(largest > 0.25 * p.threshold)) return undefined;
+  return {
+    code: "BASELINE_DRIFT",
+    values: { lowest, highest, largest, thresholdPercent: (100 * largest) / p.threshold },
+  };
+}
+
 /** What read 1 gives each channel for read 2: its mean, background r.m.s., threshold and zero up-crossing rate. */
 interface ChannelLevels {
   mean: number;
@@ -351,7 +371,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
     accumulators: [bg],
     onProgress: progress && ((d, t) => progress(d / 2, t)),
   });
-  const stretches = analysis.extras[0] as number[][];
+  const { meanSquares: stretches, means: stretchMeans } = analysis.extras[0] as ReturnType<Background["finish"]>;
   const fs = analysis.input.sampleRateHz;
   const notes: Finding[] = [];
   const doubts: Finding[] = [...analysis.passDoubts];
@@ -360,6 +380,10 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   for (const ch of analysis.channels)
     for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
   const per = channelLevels(file, analysis, stretches, options.threshold, factor);
+  for (const [c, ch] of analysis.channels.entries()) {
+    const drift = baselineDrift(stretchMeans[c] ?? [], per[c]!);
+    if (drift) doubts.push({ ...drift, about: { channel: ch.name } });
+  }
   // Read 2: events and spectra.
   const ev = new Events({
     means: per.map((p) => p.mean),

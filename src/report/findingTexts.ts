@@ -246,6 +246,8 @@ const SHOCK_TEXTS = {
     `the highest natural frequency ${v.highestFnHz} Hz has ${v.samplesPerPeriod!.toFixed(1)} samples per period (fewer than ${v.minimum}): its spectrum values can fall up to ${v.shortfallPercent!.toFixed(1)} % short of the continuous response's peak, which lies between samples`,
   THRESHOLD_LOW: (v) =>
     `the threshold is ${v.thresholdFactor!.toFixed(2)} x the background r.m.s.; on a Gaussian background of this level about ${v.expectedFalseEvents! >= 10 ? v.expectedFalseEvents!.toFixed(0) : v.expectedFalseEvents!.toPrecision(2)} event(s) would be found by chance (Rice)`,
+  BASELINE_DRIFT: (v) =>
+    `the 1 s means move from ${fmt(v.lowest!)} to ${fmt(v.highest!)}, up to ${fmt(v.largest!)} from the one mean removed (${v.thresholdPercent!.toFixed(0)} % of the threshold): where the drift is largest, events may be the drift (a sensor tilting through gravity, a creeping offset) and the background, not shocks, and their SRS take the drift in; analyse a window with --from/--to or give a threshold above it`,
   EVENT_CUT_SHORT: (v) =>
     `an event's SRS window ran past the end of the record (post window ${v.postS} s): its residual response may be cut short`,
 } satisfies Partial<Record<FindingCode, Text>>;

@@ -8,6 +8,7 @@
  */
 export class StretchMeanSquares {
   private readonly values: number[] = [];
+  private readonly stretchMeans: number[] = [];
   private n = 0;
   private seen = 0;
   private shift = NaN;
@@ -45,6 +46,7 @@ export class StretchMeanSquares {
       if (this.seen === len) {
         // Mean square about the stretch mean: (S2 - S1^2 / n) / n.
         this.values.push(n > 0 ? Math.max(0, s2 - (s1 * s1) / n) / n : NaN);
+        this.stretchMeans.push(n > 0 ? shift + s1 / n : NaN);
         s1 = 0;
         s2 = 0;
         n = 0;
@@ -56,6 +58,11 @@ export class StretchMeanSquares {
       this.n = n;
       this.shift = shift;
     }
+  }
+
+  /** The complete stretches' means so far (NaN for a stretch with no finite sample): a slow drift of the level. */
+  means(): Float64Array {
+    return Float64Array.from(this.stretchMeans);
   }
 
   /** The complete stretches' mean squares so far (NaN for a stretch with no finite sample). */
