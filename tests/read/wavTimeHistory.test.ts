@@ -233,6 +233,15 @@ describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration ch
     expect((await openWavTimeHistory(p)).info.layout).toContain("data size 0");
     expect((await readAll(p)).channels).toEqual(ref.channels);
   });
+  it("a data size of 0xFFFFFFFF in a plain RIFF file (a streaming recorder's 'size unknown') is read to the end, and said", async () => {
+    const b = wavBytes({ bits: 16, channels: 1, samples });
+    const ref = await readAll(file(b));
+    b.writeUInt32LE(0xffffffff, b.indexOf("data", 12, "latin1") + 4);
+    b.writeUInt32LE(0xffffffff, 4);
+    const p = file(b);
+    expect((await openWavTimeHistory(p)).info.layout).toContain("data size 0xFFFFFFFF");
+    expect((await readAll(p)).channels).toEqual(ref.channels);
+  });
   it("the calibration chunk says the unit and scale: x2 in mm/s2 reads as 0.002 m/s^2 per file unit", async () => {
     const p = file({
       tag: 3,
