@@ -246,7 +246,8 @@ function dataChunk(w: ChunkWalk, body: number, len: number): number {
     // A streaming recorder writes 0xFFFFFFFF ("size unknown") into a plain RIFF header it cannot go back to: read
     // the samples to the end of the file (whole frames only, after the layout).
     len = size - body;
-    w.note = ", data size 0xFFFFFFFF in the header (a streamed recording, size not known when written): read to the end of the file";
+    w.note =
+      ", data size 0xFFFFFFFF in the header (a streamed recording, size not known when written): read to the end of the file";
   } else if (
     len === 0 &&
     body + 8 <= size &&
