@@ -242,6 +242,12 @@ describe("a rate from rounded time stamps snaps to the round rate they cannot te
     expect(a.settings.segmentLength).toBe(1024);
     expect(a.window.fromS).toBe(3);
     expect(a.window.frames).toBe(n - 3 * 512);
+    // A time of day alone on stamps with a zone is UTC, as the error's own example writes it; --to in exponent form.
+    const b = await analyzeRecording(file, { resolutionHz: 0.5, fromClock: "14:03:10.5" });
+    expect(b.window.fromS).toBe(3);
+    const c = await cli("psd", file, "--from", "14:03:10.5", "--to", "1e9", "--json", "-q");
+    expect(c.code, c.stderr).toBe(0);
+    expect(JSON.parse(c.stdout).input.window).toMatchObject({ fromS: 3, toS: 20, requestedToS: 1e9 });
   });
 
   it("`elapsed_s` and `seconds_elapsed` headers are time columns in s; `ax_s` is not", async () => {

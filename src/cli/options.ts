@@ -82,7 +82,7 @@ const sensitivityValue = (t: string) => (parseSensitivity(t) ? t.trim() : undefi
 function timeOption(option: string) {
   return (v: string): number | string => {
     const t = v.trim();
-    if (/^[+]?(\d+\.?\d*|\.\d+)$/.test(t)) return Number(t);
+    if (/^[+]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t) && Number.isFinite(Number(t))) return Number(t);
     if (/^\d{4}-\d{2}-\d{2}[T ]\d{1,2}:\d{2}|^\d{1,2}:\d{2}/.test(t)) return t;
     throw new InputError("OPTION_INVALID", {
       option,

@@ -196,14 +196,18 @@ export function clockWindow<T extends RecordingOptions>(o: T, info: RecordingInf
       });
     }
     const day = isoDateTime(stamp.baseDays, 0, 0, false).slice(0, 10);
-    const full = /^\d{1,2}:\d{2}/.test(text.trim()) ? `${day} ${text.trim()}` : text.trim();
+    // A time of day alone is on the first stamp's day; on stamps with a zone it is UTC, as the example says.
+    const bare = /^\d{1,2}:\d{2}(:\d{2}(\.\d+)?)?$/.test(text.trim());
+    const full = /^\d{1,2}:\d{2}/.test(text.trim())
+      ? `${day} ${text.trim()}${bare && stamp.zoned ? "Z" : ""}`
+      : text.trim();
     const scan = parseDateTimeText(full, stamp.baseDays);
     if (!scan || (scan.zone !== 0) !== stamp.zoned) {
       throw new InputError("OPTION_INVALID", {
         file: info.file,
         option,
         received: quoted(text),
-        expected: `a clock time like the record's stamps (${stamp.zoned ? "with" : "without"} a zone), e.g. ${isoDateTime(stamp.baseDays, stamp.seconds, 0, stamp.zoned)} or ${isoDateTime(stamp.baseDays, stamp.seconds, 0, false).slice(11)}`,
+        expected: `a clock time like the record's stamps (${stamp.zoned ? "with" : "without"} a zone), e.g. ${isoDateTime(stamp.baseDays, stamp.seconds, 0, stamp.zoned)} or ${isoDateTime(stamp.baseDays, stamp.seconds, 0, false).slice(11)}${stamp.zoned ? " (a time of day alone is UTC)" : ""}`,
       });
     }
     const s = scan.value - stamp.seconds;
