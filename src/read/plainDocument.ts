@@ -101,6 +101,9 @@ function parseJson(text: string, file: string, code: ErrorCode): unknown {
   }
 }
 
+/** The tags a plain YAML value may carry: the core schema's text, number, boolean and null (with or without `!!`). */
+const PLAIN_TAGS = new Set(["str", "int", "float", "bool", "null"].map((t) => `tag:yaml.org,2002:${t}`));
+
 function parseYaml(text: string, file: string, codes: DocumentCodes): unknown {
   const doc = parseDocument(text, { logLevel: "silent", prettyErrors: true, uniqueKeys: true });
   const first = doc.errors[0];
@@ -111,7 +114,10 @@ function parseYaml(text: string, file: string, codes: DocumentCodes): unknown {
       line: pos?.line,
       column: pos?.col,
       expected: "valid YAML",
-      received: first.message.split("\n")[0],
+      received:
+        first.code === "DUPLICATE_KEY"
+          ? "a key given twice in one mapping"
+          : first.message.split("\n")[0]!.replace(/ at line \d+, column \d+:?$/, ""),
     });
   }
   const tagWarning = doc.warnings.find((w) => w.code === "TAG_RESOLVE_FAILED");
@@ -126,8 +132,12 @@ function parseYaml(text: string, file: string, codes: DocumentCodes): unknown {
     });
   }
   let bad: { format: string; at: number } | undefined;
+  let tagged: { tag: string; at: number } | undefined;
   visit(doc, {
     Scalar(_key, node) {
+      // A tag that makes a value other than text, a number, true/false or null (`!!binary`, `!!timestamp`).
+      if (isScalar(node) && node.tag !== undefined && !PLAIN_TAGS.has(node.tag) && tagged === undefined)
+        tagged = { tag: node.tag, at: node.range?.[0] ?? 0 };
       if (
         isScalar(node) &&
         (node.format === "HEX" || node.format === "OCT" || node.format === "BIN") &&
@@ -136,6 +146,14 @@ function parseYaml(text: string, file: string, codes: DocumentCodes): unknown {
         bad = { format: node.format, at: node.range?.[0] ?? 0 };
     },
   });
+  if (tagged) {
+    throw new InputError(codes.syntax, {
+      file,
+      ...place(text, tagged.at),
+      expected: "plain YAML values (text, numbers, true/false, null; no tags)",
+      received: `a value tagged ${quotedShort(tagged.tag.replace(/^tag:yaml\.org,2002:/, "!!"))}`,
+    });
+  }
   if (bad) {
     throw new InputError(codes.invalid, {
       file,

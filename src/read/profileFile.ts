@@ -461,6 +461,7 @@ function keyPath(path: readonly PropertyKey[]): string {
 
 function describe(v: unknown): string {
   if (v === undefined) return "nothing";
+  if (typeof v === "number" && !Number.isFinite(v)) return `${v} (YAML's .inf or .nan)`;
   const s = JSON.stringify(v);
   return s === undefined ? String(v) : s.length > 40 ? `${s.slice(0, 40)}…` : s;
 }

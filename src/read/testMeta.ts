@@ -84,7 +84,12 @@ export function parseTestMeta(doc: unknown, file: string): TestMeta {
     let v: unknown = doc;
     for (const k of issue.path)
       v = v !== null && typeof v === "object" ? (v as Record<PropertyKey, unknown>)[k] : undefined;
-    const received = v === undefined ? "nothing" : (JSON.stringify(v)?.slice(0, 40) ?? String(v));
+    const received =
+      v === undefined
+        ? "nothing"
+        : typeof v === "number" && !Number.isFinite(v)
+          ? String(v)
+          : (JSON.stringify(v)?.slice(0, 40) ?? String(v));
     throw new InputError("META_INVALID", {
       file,
       keyPath: keyPath(issue.path),
