@@ -406,9 +406,12 @@ export class CsvBodyParser {
       if (Number.isNaN(v)) {
         const nf = nonFiniteToken(f);
         if (nf === undefined) {
+          // In a comma-separated file a decimal comma can only sit inside quotes, a layout psdgate does not read.
           const hint =
             this.spec.decimal === "." && /^[+-]?\d+,\d+$/.test(f)
-              ? 'the file may use decimal commas: give `csv.delimiter: ";"` `csv.decimal: ","`'
+              ? this.spec.delimiter === ","
+                ? "decimal commas inside quoted fields of a comma-separated file are not read: export it with ';' between fields, or with decimal points"
+                : 'the file may use decimal commas: give `csv.delimiter: ";"` `csv.decimal: ","`'
               : undefined;
           this.fail("CSV_NOT_A_NUMBER", line, c + 1, `a number in column ${quoted(names[c]!)}`, quoted(f), hint);
         }

@@ -12,6 +12,8 @@ interface Case {
   code?: string;
   place?: string;
   stdout?: string;
+  /** Text the one error line must contain (a hint, say). */
+  stderr?: string;
 }
 
 const here = "tests/bad-inputs";
@@ -49,6 +51,7 @@ describe(`bad-input corpus (${cases.length} cases, tests/bad-inputs/cases.json)`
         expect(r.stdout).toBe("");
       }
       if (c.stdout) expect(r.stdout).toMatch(new RegExp(c.stdout));
+      if (c.stderr) expect(r.stderr).toContain(c.stderr);
       if (before) expect(readFileSync(file).equals(before), "the input is unchanged").toBe(true);
       else expect(statSync(file).isFile(), "a special file stays what it was").toBe(false);
     });
