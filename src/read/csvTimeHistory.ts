@@ -512,6 +512,21 @@ async function readHead(file: string, size: number): Promise<Buffer> {
  * units row under it as its column's unit (agreeing with the header's); the names distinct.
  */
 function readColumns(file: string, dialect: Dialect): Column[] {
+  // Names and units in bytes that are not UTF-8 (a Latin-1 or Windows-1252 export: "accél", "m/s²") were decoded
+  // with a replacement character; a preamble line is left alone (it is not read).
+  for (const [row, line] of [
+    [dialect.header, dialect.headerLine],
+    [dialect.units, dialect.unitLine],
+  ] as const) {
+    if (row?.some((f) => f.includes("\uFFFD")))
+      throw new InputError("CSV_ENCODING", {
+        file,
+        line,
+        expected: "UTF-8 or ASCII text in the header and units row",
+        received: "bytes that are not UTF-8 (Latin-1 or Windows-1252?)",
+        hint: "re-save the export as UTF-8",
+      });
+  }
   const columns: Column[] = [];
   for (let i = 0; i < dialect.columns; i++)
     columns.push(

@@ -197,10 +197,10 @@ describe("openCsvTimeHistory: errors name file, line and column", () => {
       expect(e.message).toMatch(/expected .*\[/);
     });
   }
-  it("a decimal comma in a comma file gets a hint on how to declare it", async () => {
+  it("a decimal comma quoted in a comma file gets a hint that names the layout and the export that reads", async () => {
     const e = await failure(csv('t,a\n0,"1,5"\n1,2\n'));
     expect(e.code).toBe("CSV_NOT_A_NUMBER");
-    expect(e.message).toContain('`csv.decimal: ","`');
+    expect(e.message).toContain("decimal commas inside quoted fields of a comma-separated file are not read");
   });
   it("a header followed by a line longer than the sniffed head is named as that line, not as a header only", async () => {
     const e = await failure(csv("# rig 2\ntime,ax\n" + "x".repeat(200000)));
