@@ -101,6 +101,9 @@ function parseJson(text: string, file: string, code: ErrorCode): unknown {
   }
 }
 
+/** What a YAML syntax error says of a key given twice in one mapping (a meta table names it in its own words). */
+export const KEY_GIVEN_TWICE = "a key given twice in one mapping";
+
 /** The tags a plain YAML value may carry: the core schema's text, number, boolean and null (with or without `!!`). */
 const PLAIN_TAGS = new Set(["str", "int", "float", "bool", "null"].map((t) => `tag:yaml.org,2002:${t}`));
 
@@ -116,7 +119,7 @@ function parseYaml(text: string, file: string, codes: DocumentCodes): unknown {
       expected: "valid YAML",
       received:
         first.code === "DUPLICATE_KEY"
-          ? "a key given twice in one mapping"
+          ? KEY_GIVEN_TWICE
           : first.message.split("\n")[0]!.replace(/ at line \d+, column \d+:?$/, ""),
     });
   }

@@ -2,7 +2,7 @@ import path from "node:path";
 import Papa from "papaparse";
 import { z } from "zod";
 import { InputError, quoted } from "../errors.js";
-import { plainDocument } from "./plainDocument.js";
+import { KEY_GIVEN_TWICE, plainDocument } from "./plainDocument.js";
 import { readSmallText } from "./regularFile.js";
 
 /** Largest identity file read: a dozen short texts; 64 KiB is far beyond any real one. */
@@ -176,7 +176,7 @@ export async function loadMetaTable(file: string): Promise<MetaTableRow[]> {
     // JSON too goes through the YAML reader, which refuses a key given twice (JSON.parse keeps the last).
     doc = plainDocument(body, file, "META_SYNTAX", false, "META_INVALID");
   } catch (e) {
-    if (e instanceof InputError && /unique/i.test(e.message)) {
+    if (e instanceof InputError && e.details.received === KEY_GIVEN_TWICE) {
       throw new InputError("META_TABLE_DUPLICATE", {
         file,
         line: e.details.line,
