@@ -33,7 +33,7 @@ export function registerVerify(program: Command, io: CliIo): void {
       "an HTML record written by any psdgate command's --report (check, psd, ride, transfer, respond, derive)",
     )
     .description(
-      "check a report: its embedded result and page unedited, its recording and profile the ones it names (SHA-256), and its analysis re-run to the same numbers and verdict: reproduced (exit 0), differs (1), input missing (2)",
+      "check a report: its embedded result and page unedited, its recording and profile the ones it names (SHA-256), its analysis re-run to the same numbers and verdict, and its page the one the re-run renders: reproduced (exit 0), differs (1), input missing (2)",
     )
     .option(
       "--recording <file>",
