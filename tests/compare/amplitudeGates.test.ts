@@ -2,9 +2,9 @@ import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
-import { autocorrelationFourthSum } from "../../src/compare/amplitudeGates.js";
+import { autocorrelationFourthSum, owensT, upCrossingChance } from "../../src/compare/amplitudeGates.js";
 import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
-import { gaussian, tempDir } from "../helpers.js";
+import { gaussian, python, tempDir } from "../helpers.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { wavBytes } from "../wavBytes.js";
 
@@ -18,6 +18,47 @@ function wavFile(x: Float64Array, name: string): string {
 }
 
 describe("amplitudeGates", () => {
+  it("Owen's T and the up-crossing chance match scipy (owens_t, and the bivariate integral by quad) for every rho", () => {
+    const hs = [0, 0.5, 2, 3, 4.2364, 6, 9, 12];
+    const as = [0, 1e-3, 0.01, 0.1, 0.5, 1, 2, 10, 1e3];
+    const cs = [0.5, 3, 4.2364, 6];
+    const rhos = [-0.99, -0.5, 0, 0.5, 0.9, 0.99, 0.999, 0.9998, 0.99999];
+    // scipy.special.owens_t; the chance as integral_{-inf}^{c} phi(x) Q((c - rho x) / sqrt(1 - rho^2)) dx by
+    // scipy.integrate.quad, an independent form (scipy 1.17, general-purpose reference library)
+    const ref = JSON.parse(
+      python(`
+import json, numpy as np
+from scipy.special import owens_t
+from scipy.stats import norm
+from scipy import integrate
+hs, as_, cs, rhos = ${JSON.stringify([hs, as, cs, rhos])}
+t = [[float(owens_t(h, a)) for a in as_] for h in hs]
+def chance(c, r):
+    s = np.sqrt(1 - r * r)
+    f = lambda x: norm.pdf(x) * norm.sf((c - r * x) / s)
+    # the integrand lives within a few s / r of c when r is near 1: split there so quad sees it
+    w = min(10, 40 * s / max(abs(r), 1e-3))
+    a, _ = integrate.quad(f, c - w, c, epsabs=0, epsrel=1e-13, limit=2000)
+    b, _ = integrate.quad(f, -np.inf, c - w, epsabs=0, epsrel=1e-13, limit=2000)
+    return a + b
+u = [[chance(c, r) for r in rhos] for c in cs]
+print(json.dumps({"t": t, "u": u}))`),
+    ) as { t: number[][]; u: number[][] };
+    hs.forEach((h, i) =>
+      as.forEach((a, j) => {
+        const want = ref.t[i]![j]!;
+        expect(Math.abs(owensT(h, a) - want)).toBeLessThanOrEqual(1e-12 * want + 1e-300);
+      }),
+    );
+    cs.forEach((c, i) =>
+      rhos.forEach((r, j) => {
+        const want = ref.u[i]![j]!;
+        expect(Math.abs(upCrossingChance(c, r) - want) / want).toBeLessThan(1e-9);
+      }),
+    );
+    expect(upCrossingChance(3, 1)).toBe(0);
+    expect(upCrossingChance(3, Number.NaN)).toBe(0);
+  });
   it("autocorrelationFourthSum: white noise gives 1 (independent samples), a narrow band much more", () => {
     const w = welchPsd(gaussian(1 << 16, 1), 1024, { segmentLength: 256 });
     expect(autocorrelationFourthSum(w)).toBeLessThan(1.05);
