@@ -55,6 +55,9 @@ export class SampleHoldAccumulator {
     let atMax = this.runsAtMax;
     let atMin = this.runsAtMin;
     let count = this.count;
+    // Runs of one (every sample of an unheld record) are counted here, not in hist[1]: an increment of one
+    // array element per sample waits on its own store each time.
+    let ones = 0;
     for (let i = 0; i < n; i++) {
       const v = x[i]!;
       if (v - v !== 0) continue; // non-finite samples are counted elsewhere and break no run
@@ -63,7 +66,8 @@ export class SampleHoldAccumulator {
         run++;
         continue;
       }
-      if (run > 0) hist[run < MAX_RUN ? run : MAX_RUN]!++;
+      if (run === 1) ones++;
+      else if (run > 0) hist[run < MAX_RUN ? run : MAX_RUN]!++;
       run = 1;
       prev = v;
       // A new run: is it at the extreme so far?
@@ -76,6 +80,7 @@ export class SampleHoldAccumulator {
         atMin = 1;
       } else if (v === min) atMin++;
     }
+    hist[1]! += ones;
     this.prev = prev;
     this.run = run;
     this.max = max;
