@@ -41,10 +41,14 @@ export interface AmplitudeGates {
   notes: Finding[];
 }
 
+/** One transform a size (its tables are built once; the records of a batch share one segment length). */
+const transforms = new Map<number, RealFft>();
+
 /** The autocorrelation R(tau), tau = 0..N/2, of a one-sided PSD by an inverse FFT (R(0) is the mean square). */
 function autocorrelation(p: PsdEstimate): Float64Array {
   const n = 2 * (p.psd.length - 1);
-  const fft = new RealFft(n);
+  let fft = transforms.get(n);
+  if (!fft) transforms.set(n, (fft = new RealFft(n)));
   const half = new Float64Array(n + 2);
   // R(tau) = sum_k P_k df cos(2 pi k tau / N), P one-sided with DC and Nyquist undoubled.
   for (let k = 0; k <= n / 2; k++) half[2 * k] = (k === 0 || k === n / 2 ? 1 : 0.5) * n * p.psd[k]! * p.lineSpacingHz;
@@ -55,8 +59,10 @@ function autocorrelation(p: PsdEstimate): Float64Array {
 
 /** sum over all lags of rho(tau)^4, rho from the one-sided PSD. */
 export function autocorrelationFourthSum(p: PsdEstimate): number {
-  if (p.psd.length < 2) return 1;
-  const r = autocorrelation(p);
+  return p.psd.length < 2 ? 1 : fourthSum(autocorrelation(p));
+}
+
+function fourthSum(r: Float64Array): number {
   const r0 = r[0]!;
   if (!(r0 > 0)) return 1;
   let s = 1;
@@ -118,7 +124,7 @@ export function amplitudeGates(s: SampleStatistics, p: PsdEstimate, durationS: n
   const r = p.psd.length > 1 ? autocorrelation(p) : new Float64Array([1, 0]);
   const rho1 = r[0]! > 0 ? r[1]! / r[0]! : 0;
   const crossings = 2 * Math.max(0, s.count - 1) * upCrossingChance(c, rho1);
-  const kSpread = Math.sqrt((24 * autocorrelationFourthSum(p)) / Math.max(1, s.count));
+  const kSpread = Math.sqrt((24 * (p.psd.length > 1 ? fourthSum(r) : 1)) / Math.max(1, s.count));
   const z = -normalQuantile(GATE_RATE);
   if (Number.isFinite(crossings) && crossings > -Math.log(CREST_GATE_RATE)) {
     doubts.push({

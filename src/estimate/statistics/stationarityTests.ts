@@ -116,13 +116,22 @@ function normalRegion(mean: number, std: number, alpha: number): { low: number; 
   return { low: Math.ceil(mean - z * std) - 1, high: Math.floor(mean + z * std), rate: alpha };
 }
 
+/** The exact region for n values at level alpha, made once (every channel of a record has the same n). */
+const inversionRegions = new Map<string, { low: number; high: number; rate: number }>();
+function inversionRegion(n: number, alpha: number): { low: number; high: number; rate: number } {
+  const key = `${n} ${alpha}`;
+  let r = inversionRegions.get(key);
+  if (!r) inversionRegions.set(key, (r = exactRegion(inversionDistribution(n), 0, alpha)));
+  return { ...r };
+}
+
 export function reverseArrangementsTest(values: ArrayLike<number>, alpha = 0.05): StationarityTest {
   const n = values.length;
   const a = reverseArrangementCount(values);
   const expected = (n * (n - 1)) / 4;
   const std = Math.sqrt((n * (2 * n + 5) * (n - 1)) / 72);
   const exact = n <= EXACT_LIMIT;
-  const r = exact ? exactRegion(inversionDistribution(n), 0, alpha) : normalRegion(expected, std, alpha);
+  const r = exact ? inversionRegion(n, alpha) : normalRegion(expected, std, alpha);
   return {
     test: "reverse arrangements",
     n,
