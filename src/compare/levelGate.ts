@@ -15,7 +15,8 @@ import type { Finding } from "../findings.js";
  * |d_b| - z se_b > tolerance, z = the normal 1 - 0.01 / (2B) point (Bonferroni over the blocks, both signs).
  * On a stationary record every d_b is near 0, so a doubt needs a chance excursion of z se_b past the
  * tolerance itself: the false-doubt rate is at most 1 % (normal approximation of a block mean of n_b >= 8
- * values; tests/compare/levelGate.montecarlo.test.ts measures it).
+ * values; tests/compare/levelGate.montecarlo.test.ts measures it). A block whose mean square is 0 (the record dead or
+ * flat for the whole block) is doubted outright: its level is -Infinity dB.
  *
  * Drift: the share of the record's mean square (about its mean) below the profile's first frequency (what
  * the segments' detrending removes, and the lines below it) above one half: it dominates.
@@ -76,7 +77,9 @@ export function levelSwing(stretchMs: ArrayLike<number>, toleranceDb: number): L
     const se = c * Math.sqrt(vb / (per * mb * mb) + varAll / (used * mean * mean));
     levelDb.push(d);
     standardErrorDb.push(se);
-    const ex = Math.abs(d) - z * se - toleranceDb;
+    // A block with no mean square at all in a run that has some (a dead or flat-lined stretch of the record) lies
+    // below any tolerance whatever chance allows; its se is 0/0, which would hide it from the test.
+    const ex = mb > 0 || !(mean > 0) ? Math.abs(d) - z * se - toleranceDb : Infinity;
     if (ex > excessDb) {
       excessDb = ex;
       worst = b;

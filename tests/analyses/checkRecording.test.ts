@@ -105,6 +105,15 @@ describe("checkRecording's level gate (compare/levelGate.ts): a run that is not 
     expect(r.verdict).toBe("inconclusive");
     expect(r.channels[0]!.findings.map((f) => f.code)).toContain("LEVEL_SWING");
   });
+  it("the record dead (exact zeros) from 40 s of 51 s, the rest raised to keep the average: INCONCLUSIVE, LEVEL_SWING", async () => {
+    // One whole block of stretches with mean square 0: its level is -Infinity dB and its se 0/0; the NaN let this run
+    // PASS, while the same run with 1e-6 of the noise left in the dead part was doubted.
+    const x = shapedRecord(on, FS, 1 << 17, 22);
+    for (let i = 0; i < x.length; i++) x[i] = i >= 40 * FS ? 0 : x[i]! * Math.sqrt(51.2 / 40);
+    const r = await checkRecording(wav(x, "dropout.wav"), profile, { segmentLength: 1024, histogram: false });
+    expect(r.verdict).toBe("inconclusive");
+    expect(r.channels[0]!.findings.map((f) => f.code)).toContain("LEVEL_SWING");
+  });
   it("a slow 0.3 Hz swing holding about 64 % of the mean square: INCONCLUSIVE, DRIFT_DOMINATES", async () => {
     const x = shapedRecord(on, FS, 1 << 17, 23);
     // Noise mean square 0.01 x 980 = 9.8; a sine of amplitude a adds a^2 / 2: 64 % needs a^2 / 2 = 9.8 x 0.64 / 0.36.

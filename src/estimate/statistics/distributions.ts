@@ -234,6 +234,10 @@ const GL_W = [0.362683783378362, 0.3137066458778873, 0.2223810344533745, 0.10122
  * so P(T <= t) = integral_0^inf Phi(t s - delta) f_S(s) ds, f_S(s) = 2 (nu/2)^(nu/2) / Gamma(nu/2) s^(nu-1) exp(-nu s^2
  * / 2) (the definition; e.g. Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 2, 1995, ch. 31,
  * from memory). Gauss-Legendre on 400 pieces of the range that holds S (about 12 standard deviations each side of 1).
+ * Phi(t s - delta) steps from 0 to 1 over a width of about 1 / |t| around s = delta / t; where that is narrower than a
+ * piece (a large t: few DOF and a high confidence, e.g. k for 3 spectra at 99.99 %), the pieces the step crosses are
+ * integrated on sub-pieces 1 / |t| wide over delta / t +- 12 / |t| (with 400 pieces alone the step was missed: k off
+ * by 4e-4 at n = 3, p = 0.999, 99.99 % and by 20-40 % at 99.9999 %; scipy.stats.nct.ppf in the tests).
  */
 export function noncentralTCdf(t: number, nu: number, delta: number): number {
   if (!(nu > 0)) throw new RangeError(`degrees of freedom above 0, got ${nu}`);
@@ -243,8 +247,40 @@ export function noncentralTCdf(t: number, nu: number, delta: number): number {
   const lnC = Math.log(2) + (nu / 2) * Math.log(nu / 2) - lnGamma(nu / 2);
   const pieces = 400;
   const h = (hi - lo) / pieces;
+  // Integral of the integrand over [a, b] by 8-point Gauss-Legendre.
+  const piece = (a: number, b: number): number => {
+    const mid = (a + b) / 2;
+    const half = (b - a) / 2;
+    let part = 0;
+    for (let k = 0; k < 4; k++) {
+      for (const sign of [-1, 1]) {
+        const s = mid + sign * GL_X[k]! * half;
+        if (s <= 0) continue;
+        const dens = Math.exp(lnC + (nu - 1) * Math.log(s) - (nu * s * s) / 2);
+        part += GL_W[k]! * dens * normalCdf(t * s - delta);
+      }
+    }
+    return part * half;
+  };
+  // The step of Phi(t s - delta) when it is narrower than a piece: [stepLo, stepHi] in sub-pieces of width w.
+  const w = 1 / Math.abs(t);
+  const narrow = Math.abs(t) * h > 1;
+  const stepLo = narrow ? delta / t - 12 * w : Infinity;
+  const stepHi = narrow ? delta / t + 12 * w : -Infinity;
   let sum = 0;
+  let refined = 0;
   for (let p = 0; p < pieces; p++) {
+    const a = lo + p * h;
+    const b = a + h;
+    if (b > stepLo && a < stepHi) {
+      const from = Math.max(a, stepLo);
+      const to = Math.min(b, stepHi);
+      if (from > a) refined += piece(a, from);
+      const m = Math.ceil((to - from) / w);
+      for (let i = 0; i < m; i++) refined += piece(from + ((to - from) * i) / m, from + ((to - from) * (i + 1)) / m);
+      if (to < b) refined += piece(to, b);
+      continue;
+    }
     const mid = lo + (p + 0.5) * h;
     for (let k = 0; k < 4; k++) {
       for (const sign of [-1, 1]) {
@@ -255,7 +291,7 @@ export function noncentralTCdf(t: number, nu: number, delta: number): number {
       }
     }
   }
-  return (sum * h) / 2;
+  return (sum * h) / 2 + refined;
 }
 
 /** Quantile of the noncentral t: the t with noncentralTCdf(t) = prob, by bisection to 1e-12 relative. */
