@@ -113,6 +113,23 @@ export function levelGate(
       });
     }
   }
+  // A stretch with no signal at all in a run that has some (a dropout or a stuck sensor: exact zeros or one held
+  // value for a whole stretch) is doubted wherever it lies, also in the last stretches the blocks leave out and when
+  // it is too short to move its block's level beyond the tolerance.
+  if (stretchMs !== undefined && !out.some((f) => f.code === "LEVEL_SWING")) {
+    const dead = longestDeadRun(stretchMs);
+    if (dead)
+      out.push({
+        code: "LEVEL_SWING",
+        values: {
+          fromS: dead.from * stretchS,
+          toS: dead.to * stretchS,
+          levelDb: -Infinity,
+          toleranceDb,
+          falseDoubtPercent: 100 * LEVEL_GATE.falseDoubtRate,
+        },
+      });
+  }
   if (Number.isFinite(belowShare) && belowShare > LEVEL_GATE.driftShare) {
     out.push({
       code: "DRIFT_DOMINATES",
@@ -120,4 +137,22 @@ export function levelGate(
     });
   }
   return out;
+}
+
+/** The longest run of stretches with mean square exactly 0, [from, to) in stretches, when some stretch has signal. */
+function longestDeadRun(ms: ArrayLike<number>): { from: number; to: number } | undefined {
+  let live = false;
+  let best: { from: number; to: number } | undefined;
+  let start = -1;
+  for (let i = 0; i <= ms.length; i++) {
+    const v = i < ms.length ? ms[i]! : Number.NaN;
+    if (v > 0) live = true;
+    if (v === 0) {
+      if (start < 0) start = i;
+    } else if (start >= 0) {
+      if (!best || i - start > best.to - best.from) best = { from: start, to: i };
+      start = -1;
+    }
+  }
+  return live ? best : undefined;
 }
