@@ -432,7 +432,7 @@ const TABLE: [FindingCode, Record<string, number>, FindingAbout | undefined, str
     "BASELINE_DRIFT",
     { lowest: -0.95, highest: 0.75, largest: 0.85, thresholdPercent: 70.8 },
     { channel: "z" },
-    "z: the 1 s means move from -0.95 to 0.75, up to 0.85 from the one mean removed (71 % of the threshold): where the drift is largest, events may be the drift (a sensor tilting through gravity, a creeping offset) and the background, not shocks, and their SRS take the drift in; analyse a window with --from/--to or give a threshold above it",
+    "z: the 1 s means move from -0.95 to 0.75, up to 0.85 from their average (71 % of the threshold): where the drift is largest, events may be the drift (a sensor tilting through gravity, a creeping offset) and the background, not shocks, and their SRS take the drift in; analyse a window with --from/--to or give a threshold above it",
   ],
   [
     "EVENT_CUT_SHORT",

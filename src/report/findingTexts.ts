@@ -247,7 +247,7 @@ const SHOCK_TEXTS = {
   THRESHOLD_LOW: (v) =>
     `the threshold is ${v.thresholdFactor!.toFixed(2)} x the background r.m.s.; on a Gaussian background of this level about ${v.expectedFalseEvents! >= 10 ? v.expectedFalseEvents!.toFixed(0) : v.expectedFalseEvents!.toPrecision(2)} event(s) would be found by chance (Rice)`,
   BASELINE_DRIFT: (v) =>
-    `the 1 s means move from ${fmt(v.lowest!)} to ${fmt(v.highest!)}, up to ${fmt(v.largest!)} from the one mean removed (${v.thresholdPercent!.toFixed(0)} % of the threshold): where the drift is largest, events may be the drift (a sensor tilting through gravity, a creeping offset) and the background, not shocks, and their SRS take the drift in; analyse a window with --from/--to or give a threshold above it`,
+    `the 1 s means move from ${fmt(v.lowest!)} to ${fmt(v.highest!)}, up to ${fmt(v.largest!)} from their average (${v.thresholdPercent!.toFixed(0)} % of the threshold): where the drift is largest, events may be the drift (a sensor tilting through gravity, a creeping offset) and the background, not shocks, and their SRS take the drift in; analyse a window with --from/--to or give a threshold above it`,
   EVENT_CUT_SHORT: (v) =>
     `an event's SRS window ran past the end of the record (post window ${v.postS} s): its residual response may be cut short`,
 } satisfies Partial<Record<FindingCode, Text>>;
