@@ -44,14 +44,18 @@ export interface AmplitudeGates {
 /** One transform a size (its tables are built once; the records of a batch share one segment length). */
 const transforms = new Map<number, RealFft>();
 
-/** The autocorrelation R(tau), tau = 0..N/2, of a one-sided PSD by an inverse FFT (R(0) is the mean square). */
-function autocorrelation(p: PsdEstimate): Float64Array {
+/**
+ * The autocorrelation R(tau), tau = 0..N/2, of a one-sided PSD by an inverse FFT (R(0) is the mean square), without
+ * its lowest `skip` lines.
+ */
+function autocorrelation(p: PsdEstimate, skip = 0): Float64Array {
   const n = 2 * (p.psd.length - 1);
   let fft = transforms.get(n);
   if (!fft) transforms.set(n, (fft = new RealFft(n)));
   const half = new Float64Array(n + 2);
   // R(tau) = sum_k P_k df cos(2 pi k tau / N), P one-sided with DC and Nyquist undoubled.
-  for (let k = 0; k <= n / 2; k++) half[2 * k] = (k === 0 || k === n / 2 ? 1 : 0.5) * n * p.psd[k]! * p.lineSpacingHz;
+  for (let k = skip; k <= n / 2; k++)
+    half[2 * k] = (k === 0 || k === n / 2 ? 1 : 0.5) * n * p.psd[k]! * p.lineSpacingHz;
   const r = new Float64Array(n);
   fft.inverseReal(half, r);
   return r.subarray(0, n / 2 + 1);
@@ -107,12 +111,39 @@ export function upCrossingChance(c: number, rho: number): number {
   return 2 * owensT(c, Math.sqrt((1 - r) / (1 + r)));
 }
 
-export function amplitudeGates(s: SampleStatistics, p: PsdEstimate, durationS: number): AmplitudeGates {
+/**
+ * The lines a constant leaks into through the window: k = 0.. while |W(k)| > 1e-12 W(0), W the window's DFT. A
+ * periodic cosine-sum window leaks into as many lines as it has terms (rectangular 1, Hann and Hamming 2, the 4-term
+ * Blackman-Harris 4; Harris 1978, Proc. IEEE 66(1):51-83).
+ */
+export function offsetLines(window: Float64Array): number {
+  const n = window.length;
+  let w0 = 0;
+  for (let i = 0; i < n; i++) w0 += window[i]!;
+  let k = 1;
+  for (; k < Math.min(16, n / 2); k++) {
+    let re = 0;
+    let im = 0;
+    for (let i = 0; i < n; i++) {
+      re += window[i]! * Math.cos((2 * Math.PI * k * i) / n);
+      im += window[i]! * Math.sin((2 * Math.PI * k * i) / n);
+    }
+    if (Math.hypot(re, im) <= 1e-12 * Math.abs(w0)) break;
+  }
+  return k;
+}
+
+/**
+ * `skipLines`: lowest lines left out of the autocorrelation, for a PSD whose segments kept their mean (detrend
+ * "none"): there they hold the offset (gravity), which is no part of the motion the gates judge, and whose
+ * correlation near 1 at every lag made a Gaussian record's crossings look too rare.
+ */
+export function amplitudeGates(s: SampleStatistics, p: PsdEstimate, durationS: number, skipLines = 0): AmplitudeGates {
   const doubts: Finding[] = [];
   const notes: Finding[] = [];
   let m0 = 0;
   let m2 = 0;
-  for (let k = 0; k < p.psd.length; k++) {
+  for (let k = skipLines; k < p.psd.length; k++) {
     const f = p.frequencyHz[k]!;
     m0 += p.psd[k]!;
     m2 += f * f * p.psd[k]!;
@@ -121,7 +152,7 @@ export function amplitudeGates(s: SampleStatistics, p: PsdEstimate, durationS: n
   // The detrended segments' figures where there are any (drift below the first line left out).
   const c = Number.isFinite(p.detrendedCrestFactor) ? p.detrendedCrestFactor : s.crestFactor;
   const kurt = Number.isFinite(p.detrendedKurtosis) ? p.detrendedKurtosis : s.kurtosis;
-  const r = p.psd.length > 1 ? autocorrelation(p) : new Float64Array([1, 0]);
+  const r = p.psd.length > 1 ? autocorrelation(p, skipLines) : new Float64Array([1, 0]);
   const rho1 = r[0]! > 0 ? r[1]! / r[0]! : 0;
   const crossings = 2 * Math.max(0, s.count - 1) * upCrossingChance(c, rho1);
   const kSpread = Math.sqrt((24 * (p.psd.length > 1 ? fourthSum(r) : 1)) / Math.max(1, s.count));

@@ -1,5 +1,5 @@
 import { scaleSamples, type ChannelReading } from "../condition/scaleSamples.js";
-import { amplitudeGates } from "../compare/amplitudeGates.js";
+import { amplitudeGates, offsetLines } from "../compare/amplitudeGates.js";
 import { parsevalCheck, type ParsevalCheck } from "../estimate/spectral/parsevalCheck.js";
 import type { Finding } from "../findings.js";
 import { InputError } from "../errors.js";
@@ -359,6 +359,7 @@ function channelResult(
     spectrum,
     taken / fs,
     hold,
+    settings.detrend === "none" ? offsetLines(b.window) : 0,
   );
   const note = stationarityNote(stationarity);
   if (note !== undefined) notes.push(note);
@@ -481,6 +482,7 @@ export function _channelFindings(
   spectrum: boolean,
   durationS: number,
   hold?: SampleHold,
+  gateSkipLines = 0,
 ) {
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
@@ -536,6 +538,7 @@ export function _channelFindings(
         held ? { ...s, count: Math.max(1, Math.round(s.count / held.meanRun)) } : s,
         p,
         durationS,
+        gateSkipLines,
       );
       doubts.push(...g.doubts);
       notes.push(...g.notes);

@@ -2,8 +2,9 @@ import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
-import { autocorrelationFourthSum, owensT, upCrossingChance } from "../../src/compare/amplitudeGates.js";
+import { autocorrelationFourthSum, offsetLines, owensT, upCrossingChance } from "../../src/compare/amplitudeGates.js";
 import { welchPsd } from "../../src/estimate/spectral/psdEstimate.js";
+import { spectralWindow } from "../../src/estimate/spectral/windows.js";
 import { gaussian, python, tempDir } from "../helpers.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { wavBytes } from "../wavBytes.js";
@@ -97,6 +98,21 @@ print(json.dumps({"t": t, "u": u}))`),
     const a = await analyzeRecording(wavFile(x, "shocks.wav"), { segmentLength: 2048 });
     expect(a.channels[0]!.notes.map((n) => n.code)).toContain("KURTOSIS_HIGH");
     expect(a.channels[0]!.doubts.map((d) => d.code)).not.toContain("KURTOSIS_LOW");
+  });
+  it("offsetLines: a constant leaks into as many lines as the periodic cosine-sum window has terms (Harris 1978)", () => {
+    expect(offsetLines(spectralWindow("rectangular", 1024))).toBe(1);
+    expect(offsetLines(spectralWindow("hann", 1024))).toBe(2);
+    expect(offsetLines(spectralWindow("hamming", 1024))).toBe(2);
+    expect(offsetLines(spectralWindow("blackman-harris", 1024))).toBe(4);
+  });
+  it("--detrend none on an axis with gravity (1 g on a Gaussian record of 0.09 g): no gate doubt or crest note, the gates judge the motion about its mean", async () => {
+    for (const window of ["hann", "blackman-harris", "rectangular"] as const) {
+      const x = shapedRecord(broadband, FS, 1 << 17, 8);
+      for (let i = 0; i < x.length; i++) x[i] = 0.02 * x[i]! + 1;
+      const a = await analyzeRecording(wavFile(x, "gravity.wav"), { segmentLength: 2048, detrend: "none", window });
+      expect(a.channels[0]!.doubts).toEqual([]);
+      expect(a.channels[0]!.notes.map((n) => n.code)).not.toContain("CREST_HIGH");
+    }
   });
   it("a slow drift far below the first line is a note, and check is not made inconclusive by it", async () => {
     const x = shapedRecord(broadband, FS, 1 << 18, 6);

@@ -44,7 +44,7 @@ export interface WelchSums {
   /**
    * Amplitude figures of the detrended segments (so drift slower than the first line is not in them):
    * Pearson kurtosis and the crest factor max |d| / rms(d), over the segments that tile the record (with
-   * 50 % overlap every other one), so each sample counts once.
+   * 50 % overlap every other one), so each sample counts once. With detrend "none", about each segment's mean.
    */
   detrendedKurtosis: number;
   detrendedCrestFactor: number;
@@ -170,10 +170,13 @@ export class WelchAccumulator {
     // Plain residual mean square of the same detrended segment: sum x^2 - n mean^2 - slope^2 sum (i - mid)^2;
     // and its fourth power and peak, for the amplitude gates.
     const plain = Math.max(0, this.sq[0]! - n * mean * mean - (slope * slope * (n * (n * n - 1))) / 12) / n;
-    // Amplitude figures from segments that tile the record (every stride-th one): each sample once.
+    // Amplitude figures from segments that tile the record (every stride-th one): each sample once. They are
+    // taken about the segment's mean even with detrend "none": the gates ask whether the motion is Gaussian, and an
+    // offset (gravity, 1 g on 0.09 g of motion) made a clean record's crest factor 1.3, read as clipping.
     if (this.segments % this.tileStride === 0) {
-      this.fourthAndPeak(x, mean - slope * mid, slope);
-      this.tiledPlain += plain;
+      const centre = this.detrend === "none" ? sum / n : mean;
+      this.fourthAndPeak(x, centre - slope * mid, slope);
+      this.tiledPlain += this.detrend === "none" ? Math.max(0, this.sq[0]! - n * centre * centre) / n : plain;
       this.tiled++;
     }
     this.weightedMs += ms / this.sumW2;
