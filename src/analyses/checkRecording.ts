@@ -195,7 +195,9 @@ export async function checkRecording(
   // segments' detrending removed plus the lines below it.
   const f0 = profile.breakpoints[0]!.hz;
   const belowShare = (c: ChannelAnalysis) => {
-    const total = c.parseval.rmsTime * c.parseval.rmsTime;
+    // rmsTime keeps the mean with --detrend none: an offset (gravity, a sensor's bias) is no drift, so the total is
+    // taken about the mean there (the population variance; with a trend removed, rmsTime is the smaller).
+    const total = Math.min(c.parseval.rmsTime * c.parseval.rmsTime, c.stats.std * c.stats.std);
     return total > 0 ? Math.max(0, 1 - bandMeanSquare(c.psd, f0, analysis.input.sampleRateHz / 2) / total) : 0;
   };
   const gate = (c: ChannelAnalysis) =>

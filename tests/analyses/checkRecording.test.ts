@@ -126,3 +126,17 @@ describe("checkRecording's level gate (compare/levelGate.ts): a run that is not 
     expect(f.values.sharePercent).toBeLessThan(68);
   });
 });
+
+describe("checkRecording with --detrend none", () => {
+  it("an offset of 5 g (a sensor bias, on 3.1 g of motion) on a run that meets the profile is no drift: no DRIFT_DOMINATES and no amplitude doubt", async () => {
+    const x = shapedRecord((f) => (f >= 20 && f <= 1000 ? 0.01 : 0), FS, 1 << 18, 21);
+    const f = join(tempDir(), "gravity.wav");
+    writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FS, samples: Array.from(x, (v) => v + 5) }));
+    const r = await checkRecording(f, profile, { segmentLength: 1024, detrend: "none" });
+    const ch = r.channels[0]!;
+    const codes = ch.findings.map((d) => d.code);
+    expect(codes).not.toContain("DRIFT_DOMINATES");
+    expect(codes).not.toContain("CREST_LOW");
+    expect(ch.verdict).toBe("pass");
+  });
+});
