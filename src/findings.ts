@@ -33,6 +33,7 @@ export const FINDING_CODES = [
   "NON_FINITE",
   "HELD_SAMPLES",
   "CLIPPING",
+  "NO_SIGNAL",
   "TOO_SHORT",
   "FEW_AVERAGES",
   "DC_OFFSET",

@@ -42,6 +42,12 @@ const TABLE: [FindingCode, Record<string, number>, FindingAbout | undefined, str
     "possible clipping: 40 sample(s) at the maximum 2.5 and 31 at the minimum -2.5",
   ],
   [
+    "NO_SIGNAL",
+    { samples: 65536, value: 0 },
+    undefined,
+    "no signal: all 65536 finite sample(s) hold the one value 0 (a dead or disconnected sensor?)",
+  ],
+  [
     "TOO_SHORT",
     { samples: 900, segmentLength: 1024 },
     undefined,
@@ -579,6 +585,7 @@ async function allFindings(): Promise<Finding[]> {
     [s, p, { ...pv, ok: false, ratio: 0.9512, toleranceFrom: "record" }, 65536, 1024, true, 12.8],
     [s, { ...p, detrendedCrestFactor: 1.6, detrendedKurtosis: 1.9 }, pv, 65536, 1024, true, 12.8],
     [s, { ...p, detrendedCrestFactor: 40, detrendedKurtosis: 7.5 }, pv, 65536, 1024, true, 12.8],
+    [{ ...s, mean: 0, std: 0, min: 0, max: 0, count: 65536 }, p, pv, 65536, 1024, true, 12.8],
   ];
   for (const v of variants) {
     const f = _channelFindings(...v);

@@ -489,6 +489,12 @@ export function _channelFindings(
   if (s.nonFinite > 0) {
     doubts.push({ code: "NON_FINITE", values: { samples: s.nonFinite, segmentsLeftOut: p.skippedSegments } });
   }
+  // A channel whose every finite sample holds one value (a dead or disconnected sensor, a channel never wired) has
+  // no motion to judge: one doubt says so, in place of clipping at that value and a Parseval ratio of 0 / 0.
+  if (s.count > 0 && s.min === s.max) {
+    doubts.push({ code: "NO_SIGNAL", values: { samples: s.count, value: s.min } });
+    return { notes, doubts };
+  }
   const held = hold?.held === true ? hold : undefined;
   if (held) {
     const fs = held.updateRateHz * held.meanRun; // the file's rate

@@ -78,6 +78,8 @@ const PASS_TEXTS = {
     `held samples: values repeat in runs of ${v.meanRun!.toFixed(2)} on average (${v.heldPercent!.toFixed(1)} % of samples in runs of two or more): the sensor updated at about ${fmt(v.updateRateHz!)} Hz and the file repeats its readings to ${fmt(v.sampleRateHz!)} Hz; content above ${fmt(v.nyquistHz!)} Hz is the hold's images, not motion, and the clipping count takes each held extreme once`,
   CLIPPING: (v, a) =>
     `possible clipping: ${v.atMax} ${a.held === true ? "held reading(s)" : "sample(s)"} at the maximum ${fmt(v.max!)} and ${v.atMin} at the minimum ${fmt(v.min!)}`,
+  NO_SIGNAL: (v) =>
+    `no signal: all ${v.samples} finite sample(s) hold the one value ${fmt(v.value!)} (a dead or disconnected sensor?)`,
   TOO_SHORT: (v) => `record of ${v.samples} samples is shorter than one segment of ${v.segmentLength}`,
   FEW_AVERAGES: (v) =>
     `only ${v.averages} average(s): each line is uncertain by ±${v.lineErrorPercent!.toFixed(0)} % (1 sigma)`,

@@ -37,6 +37,22 @@ describe("clipping hint", () => {
   });
 });
 
+describe("a dead channel (every sample the one value)", () => {
+  it("is one NO_SIGNAL doubt, not clipping at 0 and a Parseval ratio of NaN; the live channel beside it is untouched", async () => {
+    const x = gaussian(1 << 15, 31, 0.3);
+    const f = join(dir, "dead.wav");
+    const samples: number[] = [];
+    for (const v of x) samples.push(v, 0);
+    writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 2, sampleRate: 25600, samples }));
+    for (const spectrum of [true, false]) {
+      const a = await analyzeRecording(f, { segmentLength: 1024, spectrum });
+      expect(a.channels[0]!.doubts).toEqual([]);
+      expect(a.channels[1]!.doubts.map((d) => d.code)).toEqual(["NO_SIGNAL"]);
+      expect(a.channels[1]!.doubts[0]!.values).toEqual({ samples: 1 << 15, value: 0 });
+    }
+  });
+});
+
 describe("inspect", () => {
   it("reports statistics without any PSD finding, even for a record shorter than a segment", async () => {
     const r = await cli("inspect", "tests/bad-inputs/cases/jitter-small.csv");
