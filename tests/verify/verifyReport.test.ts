@@ -22,6 +22,13 @@ describe("compareResults", () => {
     ]);
     expect(compareResults({ x: [1, 2] }, { x: [1] }, 1e-9).diffs).toEqual(["x: recorded 2 values, re-run 1"]);
   });
+  it("a re-run's -Infinity or NaN matches the null JSON recorded for it (a dead stretch's level, LEVEL_SWING); a finite number does not", () => {
+    const recorded = JSON.parse(JSON.stringify({ levelDb: -Infinity, ratio: NaN, rms: 1 }));
+    expect(compareResults(recorded, { levelDb: -Infinity, ratio: NaN, rms: 1 }, 1e-9).diffs).toEqual([]);
+    expect(compareResults(recorded, { levelDb: -3, ratio: NaN, rms: 1 }, 1e-9).diffs).toEqual([
+      "levelDb: recorded null, re-run -3",
+    ]);
+  });
   it("a field only the re-run has (added by a later version) is listed, not a difference; a recorded field the re-run lacks is one", () => {
     const older = { rms: 1, findings: [{ code: "PASS", text: "t" }] };
     const now = {
