@@ -92,7 +92,7 @@ const PASS_TEXTS = {
   BELOW_FIRST_LINE: (v) =>
     `${v.sharePercent!.toFixed(1)} % of the record's mean square is slower than the first line (drift or a slow trend); the PSD leaves it out`,
   NOT_STATIONARY: (v) =>
-    `not stationary: reverse arrangements A = ${v.statistic} outside ${v.acceptAbove} < A <= ${v.acceptAtMost} (${v.values} values, ${Number(v.testPercent!.toPrecision(3))} % test) on ${v.stretches} stretch mean squares of ${fmt(v.stretchS!)} s${v.pooled !== undefined ? ` pooled ${v.pooled} at a time` : ""}; the PSD averages unlike stretches${v.departingDb !== undefined ? `; most departing ${fmt(v.departingFromS!)}-${fmt(v.departingToS!)} s at ${v.departingDb >= 0 ? "+" : ""}${v.departingDb.toFixed(1)} dB from the median` : ""}`,
+    `not stationary: reverse arrangements A = ${v.statistic} outside ${v.acceptAbove} < A <= ${v.acceptAtMost} (${v.values} values, ${Number(v.testPercent!.toPrecision(3))} % test) on ${v.stretches} stretch mean squares of ${fmt(v.stretchS!)} s${v.pooled !== undefined ? ` pooled ${v.pooled} at a time` : ""}; the PSD averages unlike stretches${v.departingDb !== undefined ? `; most departing ${fmt(v.departingFromS!)}-${fmt(v.departingToS!)} s ${v.departingDb === -Infinity ? "with no signal at all (mean square 0)" : `at ${v.departingDb >= 0 ? "+" : ""}${v.departingDb.toFixed(1)} dB from the median`}` : ""}`,
   WINDOW_PAST_END: (v) =>
     `the window's end ${v.requestedToS} s lies past the end of the record; the window ends at ${fmt(v.recordEndS!)} s`,
   RATE_MOVED: (v) =>
@@ -188,7 +188,7 @@ const RIDE_TEXTS = {
     `a_w from the PSD is ${signed(v.offPercent!)} % off the plain time average because Welch tapers the record's ends and drops its last partial segment, which matters on a non-stationary record; a_w is the time-domain value`,
   NON_FINITE_HELD: (v) => `${v.samples} non-finite sample(s) were held at the last finite value before weighting`,
   LEVEL_NOT_STATIONARY: (v, a) =>
-    `weighted level not stationary (reverse arrangements A = ${v.statistic} outside ${v.acceptAbove} < A <= ${v.acceptAtMost}, ${v.values} values)${v.departingDb !== undefined ? `; most departing ${v.departingFromS!.toFixed(0)}-${v.departingToS!.toFixed(0)} s at ${v.departingDb >= 0 ? "+" : ""}${v.departingDb.toFixed(1)} dB` : ""}: a_w averages unlike stretches${a.exposure === true ? ", and A(8) assumes the recording stands for the whole exposure" : ""}`,
+    `weighted level not stationary (reverse arrangements A = ${v.statistic} outside ${v.acceptAbove} < A <= ${v.acceptAtMost}, ${v.values} values)${v.departingDb !== undefined ? `; most departing ${v.departingFromS!.toFixed(0)}-${v.departingToS!.toFixed(0)} s ${v.departingDb === -Infinity ? "with no signal at all" : `at ${v.departingDb >= 0 ? "+" : ""}${v.departingDb.toFixed(1)} dB`}` : ""}: a_w averages unlike stretches${a.exposure === true ? ", and A(8) assumes the recording stands for the whole exposure" : ""}`,
   PARSEVAL_NOT_STATIONARY: (v, a) =>
     `${PASS_TEXTS.PARSEVAL_MISMATCH(v, a)}; ${movingText(v, a)}: Hann segments weigh a changing level unlike a plain mean over the same samples, so this is expected of the ride and the PSD stands for its average`,
   BASIC_METHOD_EXCEEDED: (v) => {

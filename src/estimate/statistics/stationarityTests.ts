@@ -296,9 +296,10 @@ function departingStretches(
     all.push({
       fromS: startS + i * stretchS,
       toS: startS + (i + 1) * stretchS,
-      levelDb: 10 * Math.log10(Math.max(v, 1e-300) / median),
+      // A stretch with no signal (mean square 0) is -Infinity dB, said as such (a floor at 1e-300 printed -2989.6 dB).
+      levelDb: v > 0 ? 10 * Math.log10(v / median) : -Infinity,
     });
   }
-  all.sort((a, b) => Math.abs(b.levelDb) - Math.abs(a.levelDb));
+  all.sort((a, b) => Math.abs(b.levelDb) - Math.abs(a.levelDb) || 0);
   return all.slice(0, count);
 }

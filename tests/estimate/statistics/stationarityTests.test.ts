@@ -132,6 +132,29 @@ describe("stationarity on stretch mean squares, seeded Monte Carlo on records ma
     expect(Math.abs(f.departing[0]!.levelDb)).toBeGreaterThan(1);
     expect(stationarityFinding(v.subarray(0, 9), 1).tested).toBe(false);
   });
+  it("a stretch with no signal (a stuck sensor: mean square 0) departs by -Infinity dB, said as no signal, not -2989.6 dB", async () => {
+    const { findingText } = await import("../../../src/report/findingTexts.js");
+    const v = Float64Array.from({ length: 20 }, (_, i) => (i === 5 || i === 6 ? 0 : 1 + 0.01 * (i % 3)));
+    const f = stationarityFinding(v, 1, 0);
+    expect(f.departing[0]!.levelDb).toBe(-Infinity);
+    expect(f.departing[1]!.levelDb).toBe(-Infinity);
+    const text = findingText({
+      code: "NOT_STATIONARY",
+      values: {
+        statistic: 61,
+        acceptAbove: 64,
+        acceptAtMost: 125,
+        values: 20,
+        testPercent: 5,
+        stretches: 20,
+        stretchS: 1,
+        departingFromS: 5,
+        departingToS: 6,
+        departingDb: -Infinity,
+      },
+    });
+    expect(text).toContain("most departing 5-6 s with no signal at all (mean square 0)");
+  });
   it("StretchMeanSquares takes the mean square about each stretch's mean (a 9.81 offset changes nothing)", () => {
     const x = gaussian(1000, 8);
     const a = new StretchMeanSquares(100);
