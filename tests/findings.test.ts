@@ -319,6 +319,12 @@ const TABLE: [FindingCode, Record<string, number>, FindingAbout | undefined, str
     "z (1): 1 non-finite sample(s) were held at the last finite value before weighting",
   ],
   [
+    "DEAD_STRETCH",
+    { fromS: 20, toS: 30 },
+    { axis: "z", channel: "1" },
+    "z (1): 20-30 s holds no signal at all (mean square 0: a logger that froze or dropped out?): a_w, VDV, MTVV and A(8) count it as no vibration and may be understated; analyse the live part with --from/--to",
+  ],
+  [
     "LEVEL_NOT_STATIONARY",
     {
       statistic: 300,
@@ -712,6 +718,12 @@ async function allFindings(): Promise<Finding[]> {
   );
   rides.push(
     await rideRecording(wav(curves, 1000, "curves.wav"), { inputUnits: "m/s2", axes: { y: "1" }, posture: "seated" }),
+  );
+  // A logger that froze for 10 s of 82: DEAD_STRETCH.
+  const frozen = Float64Array.from(shapedRecord((f) => (f >= 0.5 && f <= 80 ? 0.01 : 0), 200, 1 << 14, 26));
+  frozen.fill(frozen[3999]!, 4000, 6000);
+  rides.push(
+    await rideRecording(wav(frozen, 200, "frozen.wav"), { inputUnits: "m/s2", axes: { z: "1" }, posture: "seated" }),
   );
   for (const r of rides) out.push(...r.notes, ...r.doubts);
 

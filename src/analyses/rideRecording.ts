@@ -1,3 +1,4 @@
+import { longestDeadRun } from "../compare/levelGate.js";
 import {
   analyzeSource,
   type AnalysisOptions,
@@ -456,8 +457,25 @@ function levelNote(stationarity: StationarityFinding, axis: Axis, exposureGiven:
 /**
  * The read's doubts and held-sample notes of an axis's channel, carried over (Parseval's on a moving level as a note).
  */
-function channelFindings(axis: Axis, ch: RideChannel, moving: ReturnType<typeof movingLevel>, out: RideFindings): void {
+function channelFindings(
+  axis: Axis,
+  ch: RideChannel,
+  moving: ReturnType<typeof movingLevel>,
+  out: RideFindings,
+  fromS: number,
+): void {
   const onChannel = { axis, channel: ch.name };
+  // A stretch with no signal at all (a logger that froze or dropped out: one held value or zeros) counts in a_w, VDV
+  // and A(8) as no vibration, which understates them; too short to fail the stationarity test, it is said here.
+  const dead = ch.stretchMeanSquares ? longestDeadRun(ch.stretchMeanSquares) : undefined;
+  if (dead) {
+    const s = ch.stationarity.stretchS;
+    out.doubts.push({
+      code: "DEAD_STRETCH",
+      values: { fromS: fromS + dead.from * s, toS: fromS + dead.to * s },
+      about: onChannel,
+    });
+  }
   for (const f of ch.doubts) {
     if (f.code === "TOO_SHORT") continue;
     if (f.code === "PARSEVAL_MISMATCH" && moving.moving)
@@ -488,7 +506,7 @@ function rideAxis(pass: RidePass, c: number, options: RideOptions, out: RideFind
   routeFindings({ axis, ch, r, awFromPsd, routeRatio, moving }, analysis.settings.segmentLength, out);
   const level = levelNote(stationarity, axis, options.exposureS !== undefined);
   if (level) out.notes.push(level);
-  channelFindings(axis, ch, moving, out);
+  channelFindings(axis, ch, moving, out, analysis.window.fromS);
   const basicMethod = basicMethodCheck(d.rms, d.crestFactor, d.mtvv, d.vdv, d.durationS);
   if (!basicMethod.adequate) {
     out.notes.push({

@@ -140,7 +140,7 @@ export function levelGate(
 }
 
 /** The longest run of stretches with mean square exactly 0, [from, to) in stretches, when some stretch has signal. */
-function longestDeadRun(ms: ArrayLike<number>): { from: number; to: number } | undefined {
+export function longestDeadRun(ms: ArrayLike<number>): { from: number; to: number } | undefined {
   let live = false;
   let best: { from: number; to: number } | undefined;
   let start = -1;

@@ -359,3 +359,29 @@ print(json.dumps({"aw": aw, "vdv": float((np.sum(a**4) / fs) ** 0.25), "mtvv": f
     expect(Math.abs(r2.axes[0]!.dose.vdv / r1.axes[0]!.dose.vdv - 1)).toBeLessThan(1e-6);
   });
 });
+
+describe("rideRecording: a logger that froze", () => {
+  it("10 s of one held value in 120 s is a doubt naming the stretch (a_w and A(8) count it as no vibration); the live axes beside it have none", async () => {
+    const fs = 200;
+    const n = 120 * fs;
+    const x = gaussian(n, 51, 0.5);
+    const y = gaussian(n, 52, 0.5);
+    const z = gaussian(n, 53, 0.8);
+    for (let i = 40 * fs; i < 50 * fs; i++) z[i] = z[40 * fs - 1]!;
+    const samples: number[] = [];
+    for (let i = 0; i < n; i++) samples.push(x[i]!, y[i]!, 9.80665 + z[i]!);
+    const f = join(dir, "frozen.wav");
+    writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 3, sampleRate: fs, samples }));
+    const r = await rideRecording(f, {
+      inputUnits: "m/s2",
+      axes: { x: "1", y: "2", z: "3" },
+      posture: "seated",
+      exposureS: 8 * 3600,
+    });
+    const dead = r.doubts.filter((d) => d.code === "DEAD_STRETCH");
+    expect(dead).toHaveLength(1);
+    expect(dead[0]!.about).toMatchObject({ axis: "z", channel: "ch3" });
+    expect(dead[0]!.values).toMatchObject({ fromS: 40, toS: 50 });
+    expect(findingText(dead[0]!)).toContain("40-50 s holds no signal at all");
+  });
+});
