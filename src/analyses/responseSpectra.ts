@@ -622,6 +622,24 @@ function recordFigures(
 }
 
 /**
+ * No figures from no data (as derive): a source with no vibration in its band (a dead channel: all zero or constant)
+ * has no response; its NaN peak was reported as a bad --duration.
+ */
+function refuseSilentSource(src: SpectrumSource): void {
+  const { fminHz, fmaxHz } = src.spectrum;
+  for (let k = 0; k < src.frequencyHz.length; k++) {
+    const f = src.frequencyHz[k]!;
+    if (f >= fminHz && f <= fmaxHz && src.level[k]! > 0 && Number.isFinite(src.level[k]!)) return;
+  }
+  if ((src.tones ?? []).some((t) => t.peak > 0)) return;
+  throw new InputError("NO_VIBRATION", {
+    file: src.file,
+    expected: `vibration between ${fminHz} and ${fmaxHz} Hz to respond to`,
+    received: "a PSD of zero at every line in the band (a recording that is all zero or constant)",
+  });
+}
+
+/**
  * The SDOF responses to a source at each natural frequency of the grid, with the input's motion, the stroke check and
  * any tones.
  */
@@ -629,6 +647,7 @@ export function responseSpectra(src: SpectrumSource, o: ResponseOptions): Respon
   const { q, durationS, sn } = responseSettings(src, o);
   const toSi = accelFactor(src.units, "m/s2");
   const s = src.spectrum;
+  refuseSilentSource(src);
   const r = randomResponses(s, o.fnHz, { q, durationS, sn, toSi });
   const m = spectrumMotion(s, toSi);
   const keep = src.frequencyHz.map((f) => (f >= s.fminHz && f <= s.fmaxHz ? 1 : 0));

@@ -142,4 +142,14 @@ describe("psdgate respond", () => {
     expect(t.code).toBe(0);
     expect(t.stdout).toContain("need one (--duration)");
   });
+  it("a dead channel (all zero) is NO_VIBRATION naming the file, not an --duration error about a NaN peak", async () => {
+    const file = join(tempDir(), "dead.csv");
+    let text = "time,a,b\n";
+    for (let i = 0; i < 4096; i++) text += `${(i / 1024).toFixed(6)},${Math.sin(i * 0.7).toFixed(4)},0\n`;
+    writeFileSync(file, text);
+    const r = await cli("respond", file, "-c", "b", "--fn", "10,100", "--q", "10");
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r.stderr).toMatch(/dead\.csv.*no vibration|dead\.csv.*PSD of zero.*\[NO_VIBRATION\]/);
+  });
 });
