@@ -207,6 +207,14 @@ function transferResult(
   const dof = welchDof(sums.window, settings.hop, sums.segments);
   const nd = dof / 2;
   const gxx = sums.auto[0]!;
+  // No figures from no data (as derive): with an input of no vibration (a dead channel: all zero or constant) every H1
+  // is 0 / 0; said as such, not printed as NaN.
+  if (!gxx.some((g, k) => k > 0 && g > 0 && Number.isFinite(g)))
+    throw new InputError("NO_VIBRATION", {
+      file: a.input.file,
+      expected: `vibration on the input channel "${a.channels[0]!.name}" to divide by`,
+      received: "a PSD of zero at every line (a channel that is all zero or constant)",
+    });
   const warnings: Finding[] = [];
   if (sums.skippedSegments > 0)
     warnings.push({ code: "SEGMENTS_LEFT_OUT", values: { segments: sums.skippedSegments } });

@@ -137,4 +137,15 @@ describe("psdgate transfer --report", () => {
     expect(readFileSync(out, "utf8")).toMatch(/^<!DOCTYPE html>[\s\S]*id="coherence-1"[\s\S]*<\/html>\n$/);
     expect(r.stdout).toMatch(/output clamp/);
   });
+  it("a dead input channel (all zero) is NO_VIBRATION naming the file, not H1 and predictions of NaN with exit 0", async () => {
+    const { writeFileSync } = await import("node:fs");
+    const file = join(dir, "dead-input.csv");
+    let text = "time,base,item\n";
+    for (let i = 0; i < 8192; i++) text += `${(i / 1024).toFixed(6)},0,${Math.sin(i * 0.7).toFixed(4)}\n`;
+    writeFileSync(file, text);
+    const r = await cli("transfer", file, "--in", "base", "-s", "1024");
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(/dead-input\.csv.*\[NO_VIBRATION\]/);
+  });
 });
