@@ -1,7 +1,8 @@
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { amplitudeGates } from "../../src/compare/amplitudeGates.js";
+import { amplitudeGates, offsetLines } from "../../src/compare/amplitudeGates.js";
+import { spectralWindow } from "../../src/estimate/spectral/windows.js";
 import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { tempDir } from "../helpers.js";
 import { recordShaper } from "../shapedRecords.js";
@@ -48,4 +49,36 @@ describe("crest gate on oversampled Gaussian records (Monte Carlo)", () => {
     // The gate's rate is CREST_GATE_RATE (1e-6) a record: none of these unclipped records may be in doubt.
     expect(crestDoubts).toBe(0);
   }, 120_000);
+  it(`--detrend none with 1 g of gravity on the same records: exp(-N_c) about uniform, no gate doubt (${RECORDS} records)`, async () => {
+    // The gates take the segments about their means and leave the offset's lines out of the autocorrelation; before,
+    // the offset made every record's crest factor about 1.1 (CREST_LOW on all of them).
+    const make = recordShaper(band, FS, N);
+    const dir = tempDir();
+    const skip = offsetLines(spectralWindow("hann", 4096));
+    const us: number[] = [];
+    let doubts = 0;
+    let crestHigh = 0;
+    for (let r = 0; r < RECORDS; r++) {
+      const x = make(9000 + r);
+      for (let i = 0; i < x.length; i++) x[i] = x[i]! + 1;
+      const f = join(dir, `g${r % 4}.wav`);
+      writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FS, samples: Array.from(x) }));
+      const a = await analyzeRecording(f, { segmentLength: 4096, detrend: "none" });
+      const ch = a.channels[0]!;
+      const g = amplitudeGates(ch.stats, ch.psd, N / FS, skip);
+      us.push(Math.exp(-g.crossingsAtCrest));
+      if (ch.doubts.some((d) => d.code === "CREST_LOW" || d.code === "KURTOSIS_LOW")) doubts++;
+      if (ch.notes.some((d) => d.code === "CREST_HIGH")) crestHigh++;
+    }
+    const below = (t: number) => us.filter((u) => u < t).length;
+    console.log(
+      `crest gate MC, detrend none + 1 g: U<0.1 ${below(0.1)}/${RECORDS}, U<0.02 ${below(0.02)}, U>0.9 ${us.filter((u) => u > 0.9).length}, doubts ${doubts}, CREST_HIGH ${crestHigh}`,
+    );
+    // The same binomial bounds as above, and the upper tail likewise (p = 0.1: 40 +- 19.7).
+    expect(below(0.1)).toBeGreaterThanOrEqual(21);
+    expect(below(0.1)).toBeLessThanOrEqual(59);
+    expect(below(0.02)).toBeLessThanOrEqual(17);
+    expect(us.filter((u) => u > 0.9).length).toBeLessThanOrEqual(59);
+    expect(doubts).toBe(0);
+  }, 240_000);
 });
