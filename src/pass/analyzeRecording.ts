@@ -1,5 +1,6 @@
 import { scaleSamples, type ChannelReading } from "../condition/scaleSamples.js";
 import { amplitudeGates, offsetLines } from "../compare/amplitudeGates.js";
+import { normalSurvival } from "../estimate/statistics/distributions.js";
 import { parsevalCheck, type ParsevalCheck } from "../estimate/spectral/parsevalCheck.js";
 import type { Finding } from "../findings.js";
 import { InputError } from "../errors.js";
@@ -360,6 +361,7 @@ function channelResult(
     taken / fs,
     hold,
     settings.detrend === "none" ? offsetLines(b.window) : 0,
+    (info.channels[idx]!.quantum ?? 0) * Math.abs(conditioning.reading.factor),
   );
   const note = stationarityNote(stationarity);
   if (note !== undefined) notes.push(note);
@@ -483,6 +485,7 @@ export function _channelFindings(
   durationS: number,
   hold?: SampleHold,
   gateSkipLines = 0,
+  quantum = 0,
 ) {
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
@@ -513,7 +516,21 @@ export function _channelFindings(
   const atMax = held ? held.runsAtMax : s.atMax;
   const atMin = held ? held.runsAtMin : s.atMin;
   const clip = clippingHintCount(held ? held.runs : s.count);
-  if (atMax >= clip || atMin >= clip) {
+  // On integer codes the extreme code is a bin of one step q: a Gaussian record puts n (Q((d - q/2)/sigma) -
+  // Q((d + q/2)/sigma)) samples there (d its distance from the mean). A quiet record a few steps tall fills its top
+  // code so by itself (sigma 0.4 LSB: 45 of 512000 at 2 LSB); more than that by over 4 Poisson sigma is the clipping
+  // hint (common practice). Continuous values (q = 0) expect none there.
+  const binExpected = (extreme: number) => {
+    if (!(quantum > 0 && s.std > 0)) return 0;
+    const d = Math.abs(extreme - s.mean);
+    const n = held ? held.runs : s.count;
+    return n * (normalSurvival((d - quantum / 2) / s.std) - normalSurvival((d + quantum / 2) / s.std));
+  };
+  const beyond = (count: number, extreme: number) => {
+    const e = binExpected(extreme);
+    return count >= clip && count > e + 4 * Math.sqrt(e);
+  };
+  if (beyond(atMax, s.max) || beyond(atMin, s.min)) {
     doubts.push({
       code: "CLIPPING",
       values: { atMax, max: s.max, atMin, min: s.min },

@@ -56,6 +56,8 @@ export interface ChannelInfo {
   unitPlace?: { line: number; column: number } | undefined;
   /** The file holds integer converter codes (a PCM WAV), read as fractions of full scale (±1). */
   integerFullScale?: boolean | undefined;
+  /** The step between neighbouring codes in file units (a PCM WAV: 2^-(bits-1) of full scale), when the file has one. */
+  quantum?: number | undefined;
   /** A calibration the file itself carries (psdgate's WAV 'pgcl' chunk): file value x scale = declaredUnitSpec. */
   fileScale?: number | undefined;
 }

@@ -401,7 +401,7 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
       bytes: size,
       channels: Array.from({ length: channels }, (_, i) => ({
         name: `ch${i + 1}`,
-        ...(pcm ? { integerFullScale: true } : {}),
+        ...(pcm ? { integerFullScale: true, quantum: 2 ** -(bits - 1) } : {}),
         ...(cal
           ? {
               declaredUnit: cal.unit.base,

@@ -27,6 +27,20 @@ describe("clipping hint", () => {
     expect(a.channels[0]!.stats.atMax).toBeGreaterThan(0);
     expect(findingTexts(a.channels[0]!.doubts).filter((d) => d.includes("clipping"))).toEqual([]);
   });
+  it("a record near the quantisation step (16-bit, sigma = 0.4 LSB: 45 samples expected in the top code) is not flagged; sigma = 3 LSB cut at 4 LSB is", async () => {
+    // Expected in the top code 2 LSB: n Q((2 - 0.5) / 0.4) = 512000 x 8.84e-5 = 45 (scipy.stats.norm.sf(3.75)).
+    const x = gaussian(512_000, 41, 0.4).map(Math.round);
+    const f = join(dir, "floor.wav");
+    writeFileSync(f, wavBytes({ bits: 16, channels: 1, samples: Array.from(x) }));
+    const a = await analyzeRecording(f, { segmentLength: 1024, scale: 10 });
+    expect(a.channels[0]!.stats.atMax).toBeGreaterThanOrEqual(clippingHintCount(512_000));
+    expect(a.channels[0]!.doubts.map((d) => d.code)).not.toContain("CLIPPING");
+    const cut = join(dir, "floor-cut.wav");
+    const y = gaussian(512_000, 42, 3).map((v) => Math.max(-4, Math.min(4, Math.round(v))));
+    writeFileSync(cut, wavBytes({ bits: 16, channels: 1, samples: Array.from(y) }));
+    const b = await analyzeRecording(cut, { segmentLength: 1024, scale: 10 });
+    expect(b.channels[0]!.doubts.map((d) => d.code)).toContain("CLIPPING");
+  });
   it("a recording clipped at 4 sigma is flagged (Gaussian tail beyond 4 sigma: 6.3e-5, docs/REFERENCES.md sec. 10)", async () => {
     const x = gaussian(400_000, 9, 3000).map((v) => Math.round(Math.max(-12000, Math.min(12000, v))));
     const f = join(dir, "clipped.wav");
