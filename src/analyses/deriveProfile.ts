@@ -504,8 +504,11 @@ function fitProfile(g: {
   );
   const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
   const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
-  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations.
+  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations. A
+  // reference damage below the smallest double is b's doing (refuseUnderflow).
   for (let i = 0; i < n; i++) {
+    refuseUnderflow(ref[i]!, fnHz[i]!, b, "the field's mean spectrum's damage over the test");
+    refuseUnderflow(flatRef[i]!, fnHz[i]!, b, "a flat spectrum's damage over the test");
     if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
       throw new InputError("OPTION_INVALID", {
         option: "testDurationS",
@@ -838,12 +841,34 @@ function fieldRecording(x: AnalysedRecording, g: FieldContext, sums: FieldSums):
   };
 }
 
+/** The smallest normal double (IEEE 754): below it a damage keeps fewer digits, down to none at 0. */
+const SMALLEST_NORMAL = 2.2250738585072014e-308;
+
 /**
- * The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named.
+ * Damage is the response in metres to the power b (K = C = 1): a quiet record at high natural frequencies and a large
+ * b take it below the smallest double, to 0 (a relative displacement of 1e-12 m at b = 30 gives about 1e-351). The
+ * cause is b with that band, not the life or the test's duration: name them.
  */
-function checkFieldDamage(sums: FieldSums, fnHz: Float64Array, lifeS: number): void {
+function refuseUnderflow(damage: number, fnHz: number, b: number, what: string): void {
+  if (damage >= SMALLEST_NORMAL || !(damage >= 0)) return;
+  const at = Number(fnHz.toPrecision(4));
+  throw new InputError("OPTION_INVALID", {
+    option: "basquinB",
+    expected: "a Basquin exponent with which the damage is a number a double holds (above 2.2e-308)",
+    received: `b ${b}: ${what} at ${at} Hz is ${damage} (the response there, in metres, to the power b underflows)`,
+    hint: `a smaller b, or natural frequencies that stop below ${at} Hz (fmaxHz)`,
+  });
+}
+
+/**
+ * The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named
+ * (or b, where the damage underflowed while the response is there).
+ */
+function checkFieldDamage(sums: FieldSums, fnHz: Float64Array, lifeS: number, b: number): void {
   const { fieldFatigue, fieldExtreme } = sums;
   for (let i = 0; i < fnHz.length; i++) {
+    if (fieldExtreme[i]! > 0 && Number.isFinite(fieldExtreme[i]!))
+      refuseUnderflow(fieldFatigue[i]!, fnHz[i]!, b, "the field's damage");
     if (
       !(
         fieldFatigue[i]! > 0 &&
@@ -929,7 +954,7 @@ async function fieldFigures(o: DeriveOptions, settings: ReturnType<typeof derive
   };
   const context: FieldContext = { ...band, df, q, sn, groupTime, groupDur, lifeS, timeDamage };
   const recordings = analysed.map((x) => fieldRecording(x, context, sums));
-  checkFieldDamage(sums, fnHz, lifeS);
+  checkFieldDamage(sums, fnHz, lifeS, sn.basquinB);
   if (sums.candidateTones.length > 0) {
     sums.notes.push({ code: "FIELD_TONES", values: { tones: sums.candidateTones.length } });
   }
