@@ -385,6 +385,7 @@ async function fieldShockSpectra(
   channel: ChannelName,
   fnHz: Float64Array,
   q: number,
+  notes: Finding[],
 ) {
   const n = fnHz.length;
   const { shockRecording } = await import("./shockRecording.js");
@@ -408,6 +409,10 @@ async function fieldShockSpectra(
       q,
     });
     const ch = sr.channels[0]!;
+    // A baseline that drifts (a tilting sensor) puts the threshold near the background where it drifts most: the
+    // events found there, and the field SRS they feed, may be drift and noise. Said as `psdgate shock` says it.
+    for (const d of sr.doubts)
+      if (d.code === "BASELINE_DRIFT") notes.push({ ...d, about: { ...d.about, file: r.file } });
     keep.forEach((i, k) => {
       const v = ch.srs.maximax[k]!;
       fieldSrs[i] = Number.isNaN(fieldSrs[i]!) ? v : Math.max(fieldSrs[i]!, v);
@@ -1000,7 +1005,14 @@ async function fieldShocks(
   notes: Finding[],
 ): Promise<FieldShocks> {
   const { fnHz } = f;
-  const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(f.analysed, f.base, f.channel, fnHz, q);
+  const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(
+    f.analysed,
+    f.base,
+    f.channel,
+    fnHz,
+    q,
+    notes,
+  );
   const shortfallHz = [...fnHz].filter((_, i) => testExtreme[i]! < fieldSrs[i]!);
   if (shortfallHz.length) {
     notes.push({

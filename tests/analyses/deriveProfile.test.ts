@@ -277,6 +277,30 @@ describe("derive --field-damage time: the field's FDS and ERS from the recording
     for (let i = 0; i < time.fnHz.length; i++)
       expect(twice.fieldFatigue[i]! / time.fieldFatigue[i]!).toBeCloseTo(2, 10);
   });
+  it("a field recording whose baseline drifts (a sensor tilting through gravity) carries shock's BASELINE_DRIFT into derive's notes, named by file", async () => {
+    const dir = tempDir();
+    const level = flat(1e-4);
+    const clean = writeFieldRecord(dir, "clean.wav", level, 501);
+    // The same kind of record with the sensor tilting from -1 g to +0.8 g over its 64 s (added here).
+    const x = shapedRecord(level, FIELD_RATE_HZ, FIELD_LENGTH, 502);
+    for (let i = 0; i < x.length; i++) x[i] = x[i]! - 1 + (1.8 * i) / x.length;
+    const tilted = join(dir, "tilted.wav");
+    writeFileSync(
+      tilted,
+      wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }),
+    );
+    const r = await deriveProfile({
+      ...plainInputs([clean, tilted], 100 * 3600),
+      testDurationS: 3600,
+      fminHz: 10,
+      fmaxHz: 500,
+      version: "test",
+      created: new Date(0),
+    });
+    const drift = r.notes.filter((n) => n.code === "BASELINE_DRIFT");
+    expect(drift.map((n) => n.about?.file)).toEqual([tilted]);
+    expect(findingTexts(drift)[0]).toMatch(/drift|baseline/i);
+  });
 });
 
 describe("derive: damage below the smallest double names its cause (audit 2)", () => {
