@@ -1,6 +1,10 @@
 import { describe, expect, it } from "vitest";
 import { crossSpectralDensity } from "../../../src/estimate/spectral/crossSpectrum.js";
-import { findResonances, frequencyResponse, magnitudeBoundFactor } from "../../../src/estimate/spectral/frequencyResponse.js";
+import {
+  findResonances,
+  frequencyResponse,
+  magnitudeBoundFactor,
+} from "../../../src/estimate/spectral/frequencyResponse.js";
 import { frequencyAxis } from "../../../src/estimate/spectral/psdEstimate.js";
 import { welchDof } from "../../../src/estimate/spectral/welchDof.js";
 import { gaussian, python } from "../../helpers.js";
@@ -170,7 +174,9 @@ import json, math
 from scipy.stats import t
 print(json.dumps([float(t.ppf(0.975, 2 * n - 2) * math.sqrt(n / (n - 1))) for n in ${JSON.stringify(nds)}]))`),
     ) as number[];
-    nds.forEach((nd, i) => expect(Math.abs(magnitudeBoundFactor(nd, 0.95) / ref[i]! - 1), `n_d ${nd}`).toBeLessThan(1e-8));
+    nds.forEach((nd, i) =>
+      expect(Math.abs(magnitudeBoundFactor(nd, 0.95) / ref[i]! - 1), `n_d ${nd}`).toBeLessThan(1e-8),
+    );
     expect(magnitudeBoundFactor(1, 0.95)).toBeCloseTo(1.959964, 5);
   });
   it("Monte Carlo: |H1| (1 -+ factor eps) holds the true |H| = 1 in 95 % +- 1 % of 20000 lines at n_d 2, 4, 8 and coherence 0.1 to 0.99", () => {
