@@ -509,12 +509,15 @@ function fitProfile(g: {
   );
   const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
   const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
-  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations. A
-  // reference damage below the smallest double is b's doing (refuseUnderflow).
+  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations. (The
+  // field's damage is a normal double here, checkFieldDamage; a reference damage over the test below the smallest
+  // normal double, which keeps fewer digits, is the life-to-test ratio's doing.)
   for (let i = 0; i < n; i++) {
-    refuseUnderflow(ref[i]!, fnHz[i]!, b, "the field's mean spectrum's damage over the test");
-    refuseUnderflow(flatRef[i]!, fnHz[i]!, b, "a flat spectrum's damage over the test");
-    if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
+    const refsHeld = ref[i]! >= SMALLEST_NORMAL && flatRef[i]! >= SMALLEST_NORMAL;
+    if (
+      !refsHeld ||
+      !(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))
+    ) {
       throw new InputError("OPTION_INVALID", {
         option: "testDurationS",
         expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,

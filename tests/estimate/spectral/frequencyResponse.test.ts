@@ -199,10 +199,10 @@ print(json.dumps([float(t.ppf(0.975, 2 * n - 2) * math.sqrt(n / (n - 1))) for n 
             const xi = u[o + 1]! / Math.SQRT2;
             const yr = xr + s * u[o + 2]!;
             const yi = xi + s * u[o + 3]!;
-            gxx[k] += xr * xr + xi * xi;
-            gyy[k] += yr * yr + yi * yi;
-            re[k] += xr * yr + xi * yi;
-            im[k] += xr * yi - xi * yr;
+            gxx[k] = gxx[k]! + xr * xr + xi * xi;
+            gyy[k] = gyy[k]! + yr * yr + yi * yi;
+            re[k] = re[k]! + xr * yr + xi * yi;
+            im[k] = im[k]! + xr * yi - xi * yr;
           }
         }
         const r = frequencyResponse(gxx, gyy, re, im, nd);
