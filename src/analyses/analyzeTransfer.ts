@@ -2,11 +2,11 @@ import { analyzeSource, type RecordingAnalysis } from "../pass/analyzeRecording.
 import type { RecordingOptions, ResolvedAnalysis } from "../pass/analysisOptions.js";
 import { channelConditionings, type ChannelReading } from "../condition/scaleSamples.js";
 import { InputError } from "../errors.js";
-import { normalQuantile } from "../estimate/statistics/distributions.js";
 import { CrossSpectrumListener, type CrossSpectrumSums } from "../estimate/spectral/crossSpectrum.js";
 import {
   findResonances,
   frequencyResponse,
+  magnitudeBoundFactor,
   type FrequencyResponse,
   type Resonance,
 } from "../estimate/spectral/frequencyResponse.js";
@@ -38,7 +38,7 @@ export interface TransferOptions extends RecordingOptions {
 export interface TransferOutput extends FrequencyResponse {
   name: string;
   position: number;
-  /** |H1| (1 -+ z eps), z the normal quantile of the confidence (normal approximation of the error). */
+  /** |H1| (1 -+ z eps), z = magnitudeBoundFactor: Student t on 2 n_d - 2 DOF (the normal quantile from one segment). */
   h1Lower: Float64Array;
   h1Upper: Float64Array;
   measuredOutputPsd: Float64Array;
@@ -226,7 +226,7 @@ function transferResult(
   const outputs = a.channels
     .slice(1)
     .map((ch, j) =>
-      transferOutput(ch, sums, j + 1, { frequencyHz, df, nd, good, z: normalQuantile(0.5 + settings.confidence / 2) }),
+      transferOutput(ch, sums, j + 1, { frequencyHz, df, nd, good, z: magnitudeBoundFactor(nd, settings.confidence) }),
     );
   const ref = a.channels[0]!;
   const { startTime: _t, preamble: _p, ...input } = a.input;

@@ -385,6 +385,7 @@ async function fieldShockSpectra(
   channel: ChannelName,
   fnHz: Float64Array,
   q: number,
+  notes: Finding[],
 ) {
   const n = fnHz.length;
   const { shockRecording } = await import("./shockRecording.js");
@@ -408,6 +409,10 @@ async function fieldShockSpectra(
       q,
     });
     const ch = sr.channels[0]!;
+    // A baseline that drifts (a tilting sensor) puts the threshold near the background where it drifts most: the
+    // events found there, and the field SRS they feed, may be drift and noise. Said as `psdgate shock` says it.
+    for (const d of sr.doubts)
+      if (d.code === "BASELINE_DRIFT") notes.push({ ...d, about: { ...d.about, file: r.file } });
     keep.forEach((i, k) => {
       const v = ch.srs.maximax[k]!;
       fieldSrs[i] = Number.isNaN(fieldSrs[i]!) ? v : Math.max(fieldSrs[i]!, v);
@@ -504,9 +509,15 @@ function fitProfile(g: {
   );
   const flatRef = damageSpectra(powerLawSpectrum([{ f1: fromHz, f2: toHz, g1: 1, exponent: 0 }]), test).damage;
   const fromFlat = target.map((d, i) => (d / flatRef[i]!) ** (2 / b));
-  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations.
+  // A test so short (or a life so long) that the levels it needs overflow has no profile: name the durations. (The
+  // field's damage is a normal double here, checkFieldDamage; a reference damage over the test below the smallest
+  // normal double, which keeps fewer digits, is the life-to-test ratio's doing.)
   for (let i = 0; i < n; i++) {
-    if (!(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))) {
+    const refsHeld = ref[i]! >= SMALLEST_NORMAL && flatRef[i]! >= SMALLEST_NORMAL;
+    if (
+      !refsHeld ||
+      !(fromMean[i]! > 0 && Number.isFinite(fromMean[i]!) && fromFlat[i]! > 0 && Number.isFinite(fromFlat[i]!))
+    ) {
       throw new InputError("OPTION_INVALID", {
         option: "testDurationS",
         expected: `a test duration over which a finite level covers the field's damage (life ${lifeS} s)`,
@@ -838,12 +849,34 @@ function fieldRecording(x: AnalysedRecording, g: FieldContext, sums: FieldSums):
   };
 }
 
+/** The smallest normal double (IEEE 754): below it a damage keeps fewer digits, down to none at 0. */
+const SMALLEST_NORMAL = 2.2250738585072014e-308;
+
 /**
- * The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named.
+ * Damage is the response in metres to the power b (K = C = 1): a quiet record at high natural frequencies and a large
+ * b take it below the smallest double, to 0 (a relative displacement of 1e-12 m at b = 30 gives about 1e-351). The
+ * cause is b with that band, not the life or the test's duration: name them.
  */
-function checkFieldDamage(sums: FieldSums, fnHz: Float64Array, lifeS: number): void {
+function refuseUnderflow(damage: number, fnHz: number, b: number, what: string): void {
+  if (damage >= SMALLEST_NORMAL || !(damage >= 0)) return;
+  const at = Number(fnHz.toPrecision(4));
+  throw new InputError("OPTION_INVALID", {
+    option: "basquinB",
+    expected: "a Basquin exponent with which the damage is a number a double holds (above 2.2e-308)",
+    received: `b ${b}: ${what} at ${at} Hz is ${damage} (the response there, in metres, to the power b underflows)`,
+    hint: `a smaller b, or natural frequencies that stop below ${at} Hz (fmaxHz)`,
+  });
+}
+
+/**
+ * The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named
+ * (or b, where the damage underflowed while the response is there).
+ */
+function checkFieldDamage(sums: FieldSums, fnHz: Float64Array, lifeS: number, b: number): void {
   const { fieldFatigue, fieldExtreme } = sums;
   for (let i = 0; i < fnHz.length; i++) {
+    if (fieldExtreme[i]! > 0 && Number.isFinite(fieldExtreme[i]!))
+      refuseUnderflow(fieldFatigue[i]!, fnHz[i]!, b, "the field's damage");
     if (
       !(
         fieldFatigue[i]! > 0 &&
@@ -929,7 +962,7 @@ async function fieldFigures(o: DeriveOptions, settings: ReturnType<typeof derive
   };
   const context: FieldContext = { ...band, df, q, sn, groupTime, groupDur, lifeS, timeDamage };
   const recordings = analysed.map((x) => fieldRecording(x, context, sums));
-  checkFieldDamage(sums, fnHz, lifeS);
+  checkFieldDamage(sums, fnHz, lifeS, sn.basquinB);
   if (sums.candidateTones.length > 0) {
     sums.notes.push({ code: "FIELD_TONES", values: { tones: sums.candidateTones.length } });
   }
@@ -975,7 +1008,14 @@ async function fieldShocks(
   notes: Finding[],
 ): Promise<FieldShocks> {
   const { fnHz } = f;
-  const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(f.analysed, f.base, f.channel, fnHz, q);
+  const { fieldSrs, events, eventsPerRecording } = await fieldShockSpectra(
+    f.analysed,
+    f.base,
+    f.channel,
+    fnHz,
+    q,
+    notes,
+  );
   const shortfallHz = [...fnHz].filter((_, i) => testExtreme[i]! < fieldSrs[i]!);
   if (shortfallHz.length) {
     notes.push({

@@ -55,7 +55,7 @@ export interface ShockOptions extends Omit<AnalysisOptions, "accumulators" | "sp
 
 /**
  * 6 background r.m.s.: on a Gaussian background with a zero up-crossing rate of 100 Hz this expects one false
- * event in about 4.6 days (2 nu0 exp(-18), Rice 1944-45); at 1 kHz in about 11 h.
+ * event in about 3.8 days (1 / (2 nu0 exp(-18)) = 3.3e5 s, Rice 1944-45); at 1 kHz in about 9.1 h.
  */
 export const DEFAULT_THRESHOLD_FACTOR = 6;
 export const DEFAULT_HOLD_S = 0.05;

@@ -1,3 +1,4 @@
+import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { findingTexts } from "../../src/report/findingTexts.js";
@@ -5,6 +6,8 @@ import { deriveProfile, mixInputs, octaveGrid, plainInputs } from "../../src/ana
 import { parseServiceMix } from "../../src/read/mixFile.js";
 import { python, tempDir } from "../helpers.js";
 import { FIELD_LENGTH, FIELD_RATE_HZ, flat, writeFieldRecord } from "../fieldRecords.js";
+import { shapedRecord } from "../shapedRecords.js";
+import { wavBytes } from "../wavBytes.js";
 
 /** A peaky field PSD: a mount resonance at 30 Hz (Q 5) on a sloping road input, 3-800 Hz (invented). */
 const peaky = (g: number) => (f: number) => {
@@ -273,5 +276,55 @@ describe("derive --field-damage time: the field's FDS and ERS from the recording
     });
     for (let i = 0; i < time.fnHz.length; i++)
       expect(twice.fieldFatigue[i]! / time.fieldFatigue[i]!).toBeCloseTo(2, 10);
+  });
+  it("a field recording whose baseline drifts (a sensor tilting through gravity) carries shock's BASELINE_DRIFT into derive's notes, named by file", async () => {
+    const dir = tempDir();
+    const level = flat(1e-4);
+    const clean = writeFieldRecord(dir, "clean.wav", level, 501);
+    // The same kind of record with the sensor tilting from -1 g to +0.8 g over its 64 s (added here).
+    const x = shapedRecord(level, FIELD_RATE_HZ, FIELD_LENGTH, 502);
+    for (let i = 0; i < x.length; i++) x[i] = x[i]! - 1 + (1.8 * i) / x.length;
+    const tilted = join(dir, "tilted.wav");
+    writeFileSync(
+      tilted,
+      wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }),
+    );
+    const r = await deriveProfile({
+      ...plainInputs([clean, tilted], 100 * 3600),
+      testDurationS: 3600,
+      fminHz: 10,
+      fmaxHz: 500,
+      version: "test",
+      created: new Date(0),
+    });
+    const drift = r.notes.filter((n) => n.code === "BASELINE_DRIFT");
+    expect(drift.map((n) => n.about?.file)).toEqual([tilted]);
+    expect(findingTexts(drift)[0]).toMatch(/drift|baseline/i);
+  });
+});
+
+describe("derive: damage below the smallest double names its cause (audit 2)", () => {
+  it("a quiet record, b = 30, natural frequencies to 10 kHz: the damage underflows; the error names the Basquin exponent and the band, not the life", async () => {
+    const dir = tempDir();
+    const rate = 25600;
+    // 1e-12 g^2/Hz flat to 12 kHz (4 mg r.m.s.): at 10 kHz, Q 10 the relative displacement is about 1e-12 m, and
+    // (sqrt 2 z)^30 ~ 1e-351 is below the smallest double (Number.MIN_VALUE 5e-324; IEEE 754, common practice).
+    const x = shapedRecord((f) => (f >= 2 && f <= 12000 ? 1e-12 : 0), rate, 1 << 18, 7);
+    const file = join(dir, "quiet.wav");
+    writeFileSync(file, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: rate, samples: Array.from(x) }));
+    for (const fieldDamage of ["psd", "time"] as const) {
+      const run = deriveProfile({
+        ...plainInputs([file], 100 * 3600),
+        testDurationS: 3600,
+        fminHz: 100,
+        fmaxHz: 10000,
+        basquinB: 30,
+        fieldDamage,
+        version: "test",
+        created: new Date(0),
+      });
+      await expect(run).rejects.toMatchObject({ code: "OPTION_INVALID", details: { option: "basquinB" } });
+      await expect(run).rejects.toThrow(/underflow/);
+    }
   });
 });

@@ -1,3 +1,5 @@
+import { noncentralTQuantile, normalQuantile } from "../statistics/distributions.js";
+
 /**
  * Frequency response between an input x and an output y from their auto and cross spectra
  * (Bendat & Piersol 2010, Random Data, 4th ed., ch. 6 and 9):
@@ -70,6 +72,23 @@ export function frequencyResponse(
     r.predictedOutputPsd[k] = cross2 / xx;
   }
   return r;
+}
+
+/**
+ * The factor on eps[|H|] that makes |H1| (1 -+ factor eps) a two-sided `confidence` interval with n_d averages. Given
+ * the input, H1's error is complex normal, its variance estimated from the residual on 2 n_d - 2 real DOF (Goodman,
+ * "Measurement of matrix frequency response functions and multiple coherence functions", AFFDL-TR-65-56, 1965; Bendat
+ * & Piersol 2010, sec. 9.2.4; both from memory), so its radial part is Student t on 2 n_d - 2 DOF over
+ * sqrt((1 - gamma^2) / (gamma^2 2 (n_d - 1))): factor = t_(2 n_d - 2) sqrt(n_d / (n_d - 1)). The normal quantile alone
+ * (the large-n_d limit) covered 70 % at n_d = 2, 86 % at 4, 91 % at 8, 94 % at 32 for 95 % asked (Monte Carlo in
+ * tests/estimate/spectral/frequencyResponse.test.ts). With n_d <= 1 (one segment) there is no residual: the normal
+ * quantile is kept, and the coherence is 1 by construction (FEW_AVERAGES_COHERENCE says so).
+ */
+export function magnitudeBoundFactor(disjointAverages: number, confidence: number): number {
+  const p = 0.5 + confidence / 2;
+  const nd = disjointAverages;
+  if (!(nd > 1)) return normalQuantile(p);
+  return noncentralTQuantile(p, 2 * nd - 2, 0) * Math.sqrt(nd / (nd - 1));
 }
 
 export interface Resonance {

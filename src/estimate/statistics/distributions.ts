@@ -195,10 +195,13 @@ export function chiSquareIntervalFactors(dof: number, confidence: number): { low
   };
 }
 
-/** Standard normal CDF from the regularised incomplete gamma: erf(x) = P(1/2, x^2). */
+/**
+ * Standard normal CDF from the regularised incomplete gamma: erf(x) = P(1/2, x^2). Below 0 it is the upper tail at -x,
+ * Q(1/2, x^2 / 2) / 2, to full relative precision (as 0.5 - 0.5 P it lost every digit below x of about -8).
+ */
 export function normalCdf(x: number): number {
-  const e = regularizedGammaP(0.5, (x * x) / 2);
-  return x >= 0 ? 0.5 + 0.5 * e : 0.5 - 0.5 * e;
+  if (x < 0) return normalSurvival(-x);
+  return 0.5 + 0.5 * regularizedGammaP(0.5, (x * x) / 2);
 }
 
 /**

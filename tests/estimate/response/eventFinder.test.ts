@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { backgroundRms, EventFinder } from "../../../src/estimate/response/eventFinder.js";
+import { backgroundRms, EventFinder, gaussianFalseEventRate } from "../../../src/estimate/response/eventFinder.js";
 import { shockSpectrum, ShockSpectrumAccumulator } from "../../../src/estimate/response/shockResponse.js";
 import { bandLimited, FS, run, stretchMeanSquares } from "./eventRecords.js";
 
@@ -124,5 +124,14 @@ describe("EventFinder", () => {
     expect(() => run(new EventFinder({ threshold: 0.1, holdSamples: 1, maxEvents: 50 }), x, 1)).toThrow(
       /SHOCK_TOO_MANY_EVENTS/,
     );
+  });
+});
+
+describe("gaussianFalseEventRate (audit 2: the README and the default's comment said 4.6 days)", () => {
+  it("K = 6, nu0 = 100 Hz: one false event in 3.8 days; at 1 kHz in 9.1 h (2 nu0 exp(-K^2 / 2), Rice 1944-45, from memory)", () => {
+    const closed = 2 * 100 * Math.exp(-18); // 3.046e-6 per s
+    expect(gaussianFalseEventRate(6, 100)).toBeCloseTo(closed, 20);
+    expect(1 / gaussianFalseEventRate(6, 100) / 86400).toBeCloseTo(3.8, 1);
+    expect(1 / gaussianFalseEventRate(6, 1000) / 3600).toBeCloseTo(9.1, 1);
   });
 });
