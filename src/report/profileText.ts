@@ -20,7 +20,7 @@ export function toleranceSummary(p: TestProfile): string {
 }
 
 /**
- * Where a derived profile came from, in one line: "derived from 3 recording(s): a.wav 1a2b3c4d5e6f, … (by psdgate 0.2.0
+ * Where a derived profile came from, in one line: "derived from 3 recording(s): a.wav 1a2b3c4d5e6f, … (by psdgate 0.3.0
  * derive, date)".
  */
 export function provenanceSummary(p: TestProfile): string | undefined {

@@ -1,5 +1,6 @@
 import { basename, dirname, join } from "node:path";
 import { EARLIER_WORDINGS } from "./earlierWordings.js";
+import { changesSince } from "./methodChanges.js";
 import { analyzeRecording, type AnalysisOptions } from "../pass/analyzeRecording.js";
 import { checkRecording, loadProfile, type CheckOptions } from "../analyses/checkRecording.js";
 import { InputError } from "../errors.js";
@@ -444,7 +445,7 @@ async function verifyAnalysis(
     text:
       cmp.diffs.length === 0
         ? `${cmp.compared} numbers${doc.kind === "check" ? ` and the verdict ${String(again).toUpperCase()}` : ""} reproduced within a relative ${tol}${sameVersion ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp)}`
-        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}`,
+        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${doc.kind === "check" && again !== result.verdict ? `; the verdict re-runs as ${String(again).toUpperCase()}, the report says ${String(result.verdict).toUpperCase()}` : ""}${changesSince(version, options.version, doc.kind)}`,
   });
   const paths = new Map([[rec.path!, result.input!.file]]);
   if (prof.path !== undefined && result.profile) paths.set(prof.path, result.profile.file);
@@ -721,7 +722,7 @@ async function verifyDerivation(
     text:
       cmp.diffs.length === 0
         ? `${cmp.compared} numbers of the derivation reproduced within a relative ${tol}${version === running ? "" : ` (report made by psdgate ${version}, re-run by ${running})`}${addedNote(cmp)}`
-        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${changesSince(version, running, "derive")}`,
   });
   const recordedPaths = new Map(found.map((p, n) => [p, recorded[n]!.file]));
   const rerun: Rerun = {
@@ -890,7 +891,7 @@ async function verifyRecord(
     text:
       cmp.diffs.length === 0
         ? `${cmp.compared} numbers of the ${doc.kind} result reproduced within a relative ${tol}${version === options.version ? "" : ` (report made by psdgate ${version}, re-run by ${options.version})`}${addedNote(cmp)}`
-        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}`,
+        : `${cmp.diffs.length} value(s) differ beyond a relative ${tol}${changesSince(version, options.version, doc.kind)}`,
   });
   const found = new Map(paths.map((p, k) => [p, inputs[k]!.file]));
   steps.push(await renderedStep(html, doc, rerun, found, version, options.version));

@@ -1,0 +1,58 @@
+/**
+ * What each psdgate version changed in the numbers or findings a record holds. A record made by an earlier version
+ * that no longer reproduces is still reported as differing (its numbers are not this version's); the re-run's line
+ * names the changes made since its version, so a reviewer can tell a corrected method from an edited record. To
+ * reproduce it exactly, re-run it with the psdgate version it names.
+ */
+export interface MethodChange {
+  version: string;
+  /** Record kinds whose results the change can move ("*": every kind built on the shared pass). */
+  kinds: readonly string[];
+  what: string;
+}
+
+export const METHOD_CHANGES: readonly MethodChange[] = [
+  { version: "0.3.0", kinds: ["transfer"], what: "the |H1| confidence bounds (Student's t, Goodman 1965)" },
+  {
+    version: "0.3.0",
+    kinds: ["*"],
+    what: "the amplitude gates (crest chance by Owen's T function; about each segment's mean with detrend none)",
+  },
+  { version: "0.3.0", kinds: ["*"], what: "the clipping hint on integer codes near the quantisation step" },
+  {
+    version: "0.3.0",
+    kinds: ["*"],
+    what: "doubts on a dead channel (NO_SIGNAL) or a stretch with no signal (LEVEL_SWING, DEAD_STRETCH)",
+  },
+  { version: "0.3.0", kinds: ["check"], what: "the drift share with detrend none (about the mean)" },
+  { version: "0.3.0", kinds: ["shock", "derive"], what: "BASELINE_DRIFT (short shocks left out of the stretch means)" },
+  { version: "0.3.0", kinds: ["derive"], what: "the tolerance factor k at high confidence with few recordings" },
+];
+
+/** -1, 0 or 1 as version a is before, the same as or after version b (dotted numbers; anything else compares 0). */
+export function compareVersions(a: string, b: string): number {
+  const pa = a.split(".").map(Number);
+  const pb = b.split(".").map(Number);
+  if (![...pa, ...pb].every(Number.isInteger)) return 0;
+  for (let i = 0; i < Math.max(pa.length, pb.length); i++) {
+    const d = (pa[i] ?? 0) - (pb[i] ?? 0);
+    if (d !== 0) return Math.sign(d);
+  }
+  return 0;
+}
+
+/**
+ * The words added to a re-run's line when a record of an earlier version differs: the changes since its version that
+ * can move a record of its kind ("" when there are none, or the record is not older).
+ */
+export function changesSince(recorded: string, running: string, kind: string): string {
+  if (compareVersions(recorded, running) >= 0) return "";
+  const since = METHOD_CHANGES.filter(
+    (c) =>
+      compareVersions(c.version, recorded) > 0 &&
+      compareVersions(c.version, running) <= 0 &&
+      (c.kinds.includes("*") || c.kinds.includes(kind)),
+  );
+  if (since.length === 0) return `; the report was made by psdgate ${recorded}, re-run by ${running}`;
+  return `; the report was made by psdgate ${recorded}, and versions since changed ${since.map((c) => `${c.what} (${c.version})`).join("; ")}: re-run it with psdgate ${recorded} to reproduce it exactly`;
+}
