@@ -336,6 +336,7 @@ function channelResult(
     psd: new Float64Array(settings.segmentLength / 2 + 1),
     windowedMeanSquare: NaN,
     segmentMeanSquare: NaN,
+    expectedGap: NaN,
     meanSquareGapError: NaN,
     meanSquareGapBatches: 0,
     detrendedKurtosis: NaN,

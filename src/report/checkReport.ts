@@ -250,6 +250,7 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
           rmsTime: finiteOrNull(ch.parseval.rmsTime),
           rmsPsd: finiteOrNull(ch.parseval.rmsPsd),
           rmsSegments: finiteOrNull(ch.parseval.rmsSegments),
+          rmsReference: finiteOrNull(ch.parseval.rmsReference),
           ratio: finiteOrNull(ch.parseval.ratio),
           tolerance: ch.parseval.tolerance,
           toleranceFrom: ch.parseval.toleranceFrom,

@@ -109,6 +109,7 @@ export function psdJson(a: RecordingAnalysis, version: string, meta?: TestMeta) 
       rmsTime: finiteOrNull(c.parseval.rmsTime),
       rmsPsd: finiteOrNull(c.parseval.rmsPsd),
       rmsSegments: finiteOrNull(c.parseval.rmsSegments),
+      rmsReference: finiteOrNull(c.parseval.rmsReference),
       parsevalRatio: finiteOrNull(c.parseval.ratio),
       parsevalTolerance: c.parseval.tolerance,
       parsevalToleranceFrom: c.parseval.toleranceFrom,

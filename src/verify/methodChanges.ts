@@ -27,6 +27,11 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   { version: "0.3.0", kinds: ["check"], what: "the drift share with detrend none (about the mean)" },
   { version: "0.3.0", kinds: ["shock", "derive"], what: "BASELINE_DRIFT (short shocks left out of the stretch means)" },
   { version: "0.3.0", kinds: ["derive"], what: "the tolerance factor k at high confidence with few recordings" },
+  {
+    version: "0.3.0",
+    kinds: ["*"],
+    what: "the Parseval ratio and tolerance (each segment's slow part weighed alike on both sides: PARSEVAL_MISMATCH no longer on a sway below the first line)",
+  },
 ];
 
 /** -1, 0 or 1 as version a is before, the same as or after version b (dotted numbers; anything else compares 0). */

@@ -24,6 +24,8 @@ export interface PsdEstimate {
   /** Plain mean square of the detrended segments, and the record's own standard error of the gap to
    * windowedMeanSquare (batch means; see WelchSums). */
   segmentMeanSquare: number;
+  /** What windowedMeanSquare - segmentMeanSquare is expected to be from the segments' own shape (WelchSums). */
+  expectedGap: number;
   meanSquareGapError: number;
   meanSquareGapBatches: number;
   /** Kurtosis and crest factor of the detrended segments (WelchSums). */
@@ -78,6 +80,7 @@ export function completePsd(
     rmsPsd: Math.sqrt(area * df),
     windowedMeanSquare: sums.windowedMeanSquare,
     segmentMeanSquare: sums.segmentMeanSquare,
+    expectedGap: sums.expectedGap,
     meanSquareGapError: sums.meanSquareGapError,
     meanSquareGapBatches: sums.meanSquareGapBatches,
     detrendedKurtosis: sums.detrendedKurtosis,

@@ -1,5 +1,6 @@
 import { SegmentPower } from "./segmentPower.js";
 import { oneSidedDensity, SegmentRing } from "./segmentRing.js";
+import { SlowPart } from "./slowPart.js";
 
 /**
  * Welch's averaged modified periodogram, accumulated as samples arrive (Welch 1967, IEEE Trans. Audio
@@ -35,8 +36,14 @@ export interface WelchSums {
   /** Average over segments of the plain mean square of the detrended segment (no window). */
   segmentMeanSquare: number;
   /**
-   * Standard error of windowedMeanSquare - segmentMeanSquare from the record itself, by batch means
-   * over consecutive segments (so overlap and slow correlation are in it); NaN with fewer than 4 batches.
+   * Average over segments of the windowed-minus-plain mean square that each segment's own shape explains (its
+   * slow part, weighed by the window and plainly, and the fit's leverage; slowPart.ts): what windowedMeanSquare
+   * - segmentMeanSquare is expected to be. 0 for segments shorter than 64.
+   */
+  expectedGap: number;
+  /**
+   * Standard error of windowedMeanSquare - segmentMeanSquare - expectedGap from the record itself, by batch
+   * means over consecutive segments (so overlap and slow correlation are in it); NaN with fewer than 4 batches.
    */
   meanSquareGapError: number;
   /** Batches behind meanSquareGapError. */
@@ -117,6 +124,8 @@ export class WelchAccumulator {
   /** Every tileStride-th segment starts where the last one ended (N / hop, at least 1). */
   private readonly tileStride: number;
   private readonly gaps = new BatchMeans();
+  private readonly slow: SlowPart;
+  private expected = 0;
 
   /** `power` may be shared by the accumulators of one segment length (it holds only scratch space). */
   constructor(settings: WelchSettings, power?: SegmentPower) {
@@ -133,6 +142,7 @@ export class WelchAccumulator {
     let s = 0;
     for (let i = 0; i < this.n; i++) s += this.window[i]! * this.window[i]!;
     this.sumW2 = s;
+    this.slow = new SlowPart(this.n, this.window);
   }
 
   push(x: Float64Array, count = x.length): void {
@@ -181,7 +191,9 @@ export class WelchAccumulator {
     }
     this.weightedMs += ms / this.sumW2;
     this.plainMs += plain;
-    this.gaps.push(ms / this.sumW2 - plain);
+    const expected = this.slow.gap(x, mean, slope, plain);
+    this.expected += expected;
+    this.gaps.push(ms / this.sumW2 - plain - expected);
     this.segments++;
   }
 
@@ -227,6 +239,7 @@ export class WelchAccumulator {
       psd,
       windowedMeanSquare: k > 0 ? this.weightedMs / k : NaN,
       segmentMeanSquare: k > 0 ? this.plainMs / k : NaN,
+      expectedGap: k > 0 ? this.expected / k : NaN,
       meanSquareGapError: gap.error,
       meanSquareGapBatches: gap.batches,
       detrendedKurtosis:

@@ -1,7 +1,16 @@
 import { describe, expect, it } from "vitest";
 import { parsevalCheck, parsevalTolerance } from "../../../src/estimate/spectral/parsevalCheck.js";
 import { welchPsd } from "../../../src/estimate/spectral/psdEstimate.js";
+import { gaussian } from "../../helpers.js";
 import { shapedRecord } from "../../shapedRecords.js";
+
+/** Seeded white noise plus a sine sway holding `share` of the mean square (made here, not by psdgate's synth). */
+const swaying = (fs: number, length: number, fHz: number, share: number, seed: number) => {
+  const x = gaussian(length, seed);
+  const amp = Math.sqrt((2 * share) / (1 - share));
+  for (let i = 0; i < length; i++) x[i] = x[i]! + amp * Math.sin((2 * Math.PI * fHz * i) / fs + 0.7);
+  return x;
+};
 
 const residualRms = (x: Float64Array) => {
   let m = 0;
@@ -54,5 +63,53 @@ describe("parsevalCheck", () => {
     const p = welchPsd(x, 1024, { segmentLength: 512 });
     const c = parsevalCheck(residualRms(x), { ...p, rmsPsd: p.rmsPsd * 1.1 }, "hann");
     expect(c.ok).toBe(false);
+  });
+  it("a 1.5 Hz sway holding 15 % of the mean square (25.6 kHz, 4096-point segments, 6.25 Hz lines) is not doubted; the plain mean square alone sits about 1 % off", () => {
+    const fs = 25_600;
+    const x = swaying(fs, 30 * fs, 1.5, 0.15, 31);
+    const p = welchPsd(x, fs);
+    expect(p.lineSpacingHz).toBe(6.25);
+    const c = parsevalCheck(residualRms(x), p, "hann");
+    expect(c.toleranceFrom).toBe("record");
+    expect(c.ok).toBe(true);
+    // The bias the fix removes: the window sees the ramp the sway leaves in each segment less than the plain mean square does.
+    expect(p.rmsPsd / c.rmsSegments - 1).toBeLessThan(-0.005);
+    expect(Math.abs(p.rmsPsd / c.rmsSegments - 1)).toBeGreaterThan(3 * c.tolerance);
+    expect(c.tolerance).toBeLessThan(0.003);
+  });
+  describe("still catches what it is for, on a plain record and on a swaying one", () => {
+    const fs = 1024;
+    const records = {
+      white: gaussian(1 << 17, 12),
+      swaying: swaying(fs, 1 << 17, 0.4, 0.3, 13),
+    };
+    for (const [name, x] of Object.entries(records)) {
+      const p = welchPsd(x, fs, { segmentLength: 512 });
+      const area = (q: Float64Array) => q.reduce((a, v) => a + v, 0) * p.lineSpacingHz;
+      /** The check on a PSD whose lines are scaled by g (as a wrong scaling or count would). */
+      const scaled = (g: number) => {
+        const psd = p.psd.map((v) => v * g);
+        return parsevalCheck(residualRms(x), { ...p, psd, rmsPsd: Math.sqrt(area(psd)) }, "hann");
+      };
+      it(`${name}: the right PSD passes`, () => expect(scaled(1).ok).toBe(true));
+      it(`${name}: one-sided factor 2 left out, or applied to DC and Nyquist alike (x 0.5, x 2)`, () => {
+        expect(scaled(0.5).ok).toBe(false);
+        expect(scaled(2).ok).toBe(false);
+      });
+      it(`${name}: lost or doubled segments (sum over k segments divided by 2k, or over 2k divided by k)`, () => {
+        expect(scaled(0.5).ok).toBe(false);
+        expect(scaled(2).ok).toBe(false);
+        // A tenth of the segments' sums lost with the count kept.
+        expect(scaled(0.9).ok).toBe(false);
+      });
+      it(`${name}: a window error (hann windowed, normalised by sum w^2 of the hamming, 0.375 / 0.3974)`, () => {
+        // Harris 1978, Proc. IEEE 66(1) table 1: sum w^2 / N of hann 0.375, of hamming 0.3974 (0.54^2 + 0.46^2 / 2).
+        expect(scaled(0.375 / 0.3974).ok).toBe(false);
+      });
+      it(`${name}: a 1 % scaling error in mean square`, () => {
+        expect(scaled(1.01).ok).toBe(false);
+        expect(scaled(0.99).ok).toBe(false);
+      });
+    }
   });
 });
