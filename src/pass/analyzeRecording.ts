@@ -339,6 +339,7 @@ function channelResult(
     expectedGap: NaN,
     meanSquareGapError: NaN,
     meanSquareGapBatches: 0,
+    slowGapError: NaN,
     detrendedKurtosis: NaN,
     detrendedCrestFactor: NaN,
   };

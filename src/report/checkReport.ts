@@ -3,7 +3,7 @@ import type { CheckResult } from "../analyses/checkRecording.js";
 import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
-import { fixed, sig, signedDb } from "./format.js";
+import { fixed, parsevalWord, sig, signedDb } from "./format.js";
 import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import type { TestMeta } from "../read/testMeta.js";
 import { finiteOrNull, inputJson, settingsJson, statsJson, toolInfo } from "./psdJson.js";
@@ -104,7 +104,7 @@ export function checkText(r: CheckResult, version: string): string {
   r.channels.forEach((c, i) => {
     const ch = a.channels[i]!;
     const role = r.roles[i];
-    const parseval = `  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)`;
+    const parseval = `  Parseval   RMS of the detrended segments ${sig(ch.parseval.rmsSegments, 4)} ${accelLabel(ch.units)}, PSD RMS ${sig(ch.parseval.rmsPsd, 4)}, ratio ${fixed(ch.parseval.ratio, 4)} (±${sig(100 * ch.parseval.tolerance, 2)} %)${parsevalWord(ch.parseval).startsWith("agree with") ? `; ${parsevalWord(ch.parseval)}` : ""}`;
     if (role === "monitor" || role === "control") {
       // Under control every channel's own verdict is still shown: judged alone, it is not the record's verdict.
       out.push(
@@ -250,7 +250,12 @@ export function checkJson(r: CheckResult, version: string, meta?: TestMeta) {
           rmsTime: finiteOrNull(ch.parseval.rmsTime),
           rmsPsd: finiteOrNull(ch.parseval.rmsPsd),
           rmsSegments: finiteOrNull(ch.parseval.rmsSegments),
-          rmsReference: finiteOrNull(ch.parseval.rmsReference),
+          slowPart: {
+            rmsReference: finiteOrNull(ch.parseval.slowPart.rmsReference),
+            ratio: finiteOrNull(ch.parseval.slowPart.ratio),
+            tolerance: ch.parseval.slowPart.tolerance,
+            ok: ch.parseval.slowPart.ok,
+          },
           ratio: finiteOrNull(ch.parseval.ratio),
           tolerance: ch.parseval.tolerance,
           toleranceFrom: ch.parseval.toleranceFrom,

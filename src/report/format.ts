@@ -59,3 +59,18 @@ export function rateText(hz: number): string {
   const short = Number(hz.toPrecision(6));
   return short === hz ? String(short) : String(hz);
 }
+
+/**
+ * The Parseval check's word: "agree" with the plain reference, "agree with each segment's slow part window-weighted
+ * (ratio within ±tol %)" when only the second reference agrees (a sway below the first line), else "DISAGREE".
+ */
+export function parsevalWord(pv: {
+  ok: boolean;
+  ratio: number;
+  tolerance: number;
+  slowPart: { ratio: number; tolerance: number; ok: boolean };
+}): string {
+  if (!pv.ok) return "DISAGREE";
+  if (Math.abs(pv.ratio - 1) <= pv.tolerance) return "agree";
+  return `agree with each segment's slow part window-weighted (${fixed(pv.slowPart.ratio, 4)} within ±${sig(100 * pv.slowPart.tolerance, 2)} %)`;
+}

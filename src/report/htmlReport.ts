@@ -7,7 +7,7 @@ import type { CheckResult } from "../analyses/checkRecording.js";
 import { checkJson } from "./checkReport.js";
 import { embedResult } from "./embeddedResult.js";
 import { decideLine, excursionJudgement, RULE_SUMMARY, ruleLine, TONE_RULE, VERDICT_MEANING } from "./ruleText.js";
-import { fixed, maxOf, minOf, sig, signedDb } from "./format.js";
+import { fixed, maxOf, minOf, parsevalWord, sig, signedDb } from "./format.js";
 import { provenanceSummary, toleranceSummary } from "./profileText.js";
 import {
   qty,
@@ -339,7 +339,7 @@ function levelRows(
   return `${row(timeRmsLabel(a), qty(sig(c.parseval.rmsTime, 4), u), "num")}
 ${row(segmentRmsLabel(a), qty(sig(c.parseval.rmsSegments, 4), u), "num")}
 ${row("RMS from the PSD (every line, 0 Hz to Nyquist)", qty(sig(c.parseval.rmsPsd, 4), u), "num")}
-${row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(c.parseval.ratio, 4)} (allowed ±${sig(100 * c.parseval.tolerance, 2)} %${c.parseval.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${c.parseval.ok ? "agree" : "DISAGREE"}`, "num")}
+${row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(c.parseval.ratio, 4)} (allowed ±${sig(100 * c.parseval.tolerance, 2)} %${c.parseval.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${esc(parsevalWord(c.parseval))}`, "num")}
 ${row(`RMS from the PSD in the profile's range (${sig(f0)}–${sig(fN)} Hz), measured`, qty(sig(comp.rms.measured, 4), u), "num")}
 ${row("RMS required over the same range", qty(sig(comp.rms.required, 4), u), "num")}
 ${row("RMS deviation / tolerance", `${esc(signedDb(comp.rms.deviationDb))} / ${esc(tolRms)}`, "num")}

@@ -2,7 +2,7 @@ import type { ChannelAnalysis, RecordingAnalysis } from "../pass/analyzeRecordin
 import { chiSquareIntervalFactors } from "../estimate/statistics/distributions.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { embedResult } from "./embeddedResult.js";
-import { dB, fixed, sig } from "./format.js";
+import { dB, fixed, parsevalWord, sig } from "./format.js";
 import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
 import {
@@ -113,7 +113,7 @@ ${plot}
 ${row(timeRmsLabel(a), qty(sig(pv.rmsTime, 4), u), "num")}
 ${row(segmentRmsLabel(a), qty(sig(pv.rmsSegments, 4), u), "num")}
 ${row("RMS from the PSD (every line, 0 Hz to Nyquist)", qty(sig(pv.rmsPsd, 4), u), "num")}
-${row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(pv.ratio, 4)} (allowed ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${pv.ok ? "agree" : "DISAGREE"}`, "num")}
+${row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(pv.ratio, 4)} (allowed ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${esc(parsevalWord(pv))}`, "num")}
 ${c.band ? row(`RMS from the PSD over ${sig(c.band.fminHz)}–${sig(c.band.fmaxHz)} Hz (--fmin/--fmax)`, qty(sig(c.band.rms, 4), u), "num") : ""}
 ${row("Averages / degrees of freedom", `${p.averages}${p.skippedSegments ? ` (${p.skippedSegments} segments skipped)` : ""} / ${fixed(p.dof, 1)}`, "num")}
 ${row("Random error of one line", `±${fixed(100 * p.randomError, 1)} % (1 σ)`, "num")}

@@ -30,7 +30,12 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   {
     version: "0.3.0",
     kinds: ["*"],
-    what: "the Parseval ratio and tolerance (each segment's slow part weighed alike on both sides: PARSEVAL_MISMATCH no longer on a sway below the first line)",
+    what: "the Parseval check's second reference (each segment's slow part weighed alike on both sides): no PARSEVAL_MISMATCH on content below the first line",
+  },
+  {
+    version: "0.3.0",
+    kinds: ["derive"],
+    what: "each field recording's data doubts (NON_FINITE, CLIPPING, PARSEVAL_MISMATCH, the amplitude gates) and DEAD_STRETCH as notes",
   },
 ];
 

@@ -28,6 +28,7 @@ export interface PsdEstimate {
   expectedGap: number;
   meanSquareGapError: number;
   meanSquareGapBatches: number;
+  slowGapError: number;
   /** Kurtosis and crest factor of the detrended segments (WelchSums). */
   detrendedKurtosis: number;
   detrendedCrestFactor: number;
@@ -83,6 +84,7 @@ export function completePsd(
     expectedGap: sums.expectedGap,
     meanSquareGapError: sums.meanSquareGapError,
     meanSquareGapBatches: sums.meanSquareGapBatches,
+    slowGapError: sums.slowGapError,
     detrendedKurtosis: sums.detrendedKurtosis,
     detrendedCrestFactor: sums.detrendedCrestFactor,
     lineSpacingHz: df,

@@ -18,6 +18,10 @@
  * of it is below the batch-means spread of an hour's record; degree 4 left 0.2-0.5 % of a 15 % sway between
  * 0.7 and 1 line (measured with numpy on seeded records while choosing it).
  *
+ * The fit also takes a little of faster content (of a random-phase sinusoid at line k about 1.9 / k^2 of its power,
+ * Hann, 4096 points; 0.24 at line 2), which the white-noise term covers only for a flat spectrum: so this is the
+ * check's second reference, not its only one (parsevalCheck.ts).
+ *
  * Sums run on the monomials u^k, u = (i - mid) / mid in [-1, 1], with the 7 x 7 Gram matrix inverted once.
  */
 export const SLOW_PART_DEGREE = 6;

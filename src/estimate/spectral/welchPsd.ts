@@ -42,12 +42,14 @@ export interface WelchSums {
    */
   expectedGap: number;
   /**
-   * Standard error of windowedMeanSquare - segmentMeanSquare - expectedGap from the record itself, by batch
-   * means over consecutive segments (so overlap and slow correlation are in it); NaN with fewer than 4 batches.
+   * Standard error of windowedMeanSquare - segmentMeanSquare from the record itself, by batch means over
+   * consecutive segments (so overlap and slow correlation are in it); NaN with fewer than 4 batches.
    */
   meanSquareGapError: number;
-  /** Batches behind meanSquareGapError. */
+  /** Batches behind meanSquareGapError (and slowGapError). */
   meanSquareGapBatches: number;
+  /** The same for windowedMeanSquare - segmentMeanSquare - expectedGap. */
+  slowGapError: number;
   /**
    * Amplitude figures of the detrended segments (so drift slower than the first line is not in them):
    * Pearson kurtosis and the crest factor max |d| / rms(d), over the segments that tile the record (with
@@ -124,6 +126,7 @@ export class WelchAccumulator {
   /** Every tileStride-th segment starts where the last one ended (N / hop, at least 1). */
   private readonly tileStride: number;
   private readonly gaps = new BatchMeans();
+  private readonly slowGaps = new BatchMeans();
   private readonly slow: SlowPart;
   private expected = 0;
 
@@ -193,7 +196,8 @@ export class WelchAccumulator {
     this.plainMs += plain;
     const expected = this.slow.gap(x, mean, slope, plain);
     this.expected += expected;
-    this.gaps.push(ms / this.sumW2 - plain - expected);
+    this.gaps.push(ms / this.sumW2 - plain);
+    this.slowGaps.push(ms / this.sumW2 - plain - expected);
     this.segments++;
   }
 
@@ -242,6 +246,7 @@ export class WelchAccumulator {
       expectedGap: k > 0 ? this.expected / k : NaN,
       meanSquareGapError: gap.error,
       meanSquareGapBatches: gap.batches,
+      slowGapError: this.slowGaps.standardError().error,
       detrendedKurtosis:
         this.tiled > 0 && this.tiledPlain > 0 ? this.fourth / this.tiled / (this.tiledPlain / this.tiled) ** 2 : NaN,
       detrendedCrestFactor:
