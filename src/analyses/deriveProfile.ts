@@ -11,6 +11,7 @@ import {
   type ProfileMotion,
   type TestProfile,
 } from "../compare/testProfile.js";
+import { longestDeadRun } from "../compare/levelGate.js";
 import { InputError, quoted } from "../errors.js";
 import { damageSpectra } from "../estimate/response/damageSpectrum.js";
 import { SN_DEFAULTS, type SnCurve } from "../estimate/response/fatigueDamage.js";
@@ -827,6 +828,22 @@ function fieldRecording(x: AnalysedRecording, g: FieldContext, sums: FieldSums):
   }
   const note = stationarityNote(c.stationarity);
   if (note) sums.notes.push({ ...note, about: { file: r.file } });
+  // The pass's data doubts on this recording (a dead channel, NaN runs, clipping, a Parseval mismatch, the amplitude
+  // gates), and a stretch with no signal at all (a logger that froze or dropped out): the field PSD, damage and largest
+  // response take the recording as it is, so each is said, named by file, as psdgate psd and ride say it.
+  for (const d of c.doubts) sums.notes.push({ ...d, about: { ...d.about, file: r.file } });
+  const dead =
+    c.stretchMeanSquares && !c.doubts.some((d) => d.code === "NO_SIGNAL")
+      ? longestDeadRun(c.stretchMeanSquares)
+      : undefined;
+  if (dead) {
+    const s = c.stationarity.stretchS;
+    sums.notes.push({
+      code: "DEAD_STRETCH",
+      values: { fromS: a.window.fromS + dead.from * s, toS: a.window.fromS + dead.to * s },
+      about: { file: r.file },
+    });
+  }
   if (c.reading.fullScaleAssumed)
     sums.notes.push({ code: "FULL_SCALE_ASSUMED", values: {}, about: { file: r.file, unit: c.reading.fileUnit } });
   return {

@@ -187,8 +187,10 @@ const RIDE_TEXTS = {
   PSD_VS_PLAIN: (v) =>
     `a_w from the PSD is ${signed(v.offPercent!)} % off the plain time average because Welch tapers the record's ends and drops its last partial segment, which matters on a non-stationary record; a_w is the time-domain value`,
   NON_FINITE_HELD: (v) => `${v.samples} non-finite sample(s) were held at the last finite value before weighting`,
-  DEAD_STRETCH: (v) =>
-    `${fmt(v.fromS!)}-${fmt(v.toS!)} s holds no signal at all (mean square 0: a logger that froze or dropped out?): a_w, VDV, MTVV and A(8) count it as no vibration and may be understated; analyse the live part with --from/--to`,
+  DEAD_STRETCH: (v, a) =>
+    a.file !== undefined
+      ? `${fmt(v.fromS!)}-${fmt(v.toS!)} s holds no signal at all (mean square 0: a logger that froze or dropped out?): the field PSD, damage and largest response count it as no vibration and may be understated; give this recording's live part (its from and to)`
+      : `${fmt(v.fromS!)}-${fmt(v.toS!)} s holds no signal at all (mean square 0: a logger that froze or dropped out?): a_w, VDV, MTVV and A(8) count it as no vibration and may be understated; analyse the live part with --from/--to`,
   LEVEL_NOT_STATIONARY: (v, a) =>
     `weighted level not stationary (reverse arrangements A = ${v.statistic} outside ${v.acceptAbove} < A <= ${v.acceptAtMost}, ${v.values} values)${v.departingDb !== undefined ? `; most departing ${v.departingFromS!.toFixed(0)}-${v.departingToS!.toFixed(0)} s ${v.departingDb === -Infinity ? "with no signal at all" : `at ${v.departingDb >= 0 ? "+" : ""}${v.departingDb.toFixed(1)} dB`}` : ""}: a_w averages unlike stretches${a.exposure === true ? ", and A(8) assumes the recording stands for the whole exposure" : ""}`,
   PARSEVAL_NOT_STATIONARY: (v, a) =>

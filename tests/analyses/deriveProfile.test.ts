@@ -303,6 +303,70 @@ describe("derive --field-damage time: the field's FDS and ERS from the recording
   });
 });
 
+describe("derive: the pass's data doubts on each field recording are its notes, named by file", () => {
+  it("a stretch of zeros (a dropout), a stuck stretch (one held value) and a NaN run are said per recording; a clean recording has none", async () => {
+    const dir = tempDir();
+    const level = flat(1e-4);
+    const clean = writeFieldRecord(dir, "clean.wav", level, 601);
+    const write = (name: string, seed: number, edit: (x: Float64Array) => void) => {
+      const x = shapedRecord(level, FIELD_RATE_HZ, FIELD_LENGTH, seed);
+      edit(x);
+      const f = join(dir, name);
+      writeFileSync(f, wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: Array.from(x) }));
+      return f;
+    };
+    // 10-20 s of exact zeros (a logger that dropped out).
+    const dropped = write("dropped.wav", 602, (x) => x.fill(0, 10 * FIELD_RATE_HZ, 20 * FIELD_RATE_HZ));
+    // 30-40 s held at 0.25 g (a frozen reading), and 200 NaN samples at 50 s.
+    const stuck = write("stuck.wav", 603, (x) => {
+      x.fill(0.25, 30 * FIELD_RATE_HZ, 40 * FIELD_RATE_HZ);
+      x.fill(Number.NaN, 50 * FIELD_RATE_HZ, 50 * FIELD_RATE_HZ + 200);
+    });
+    const r = await deriveProfile({
+      ...plainInputs([clean, dropped, stuck], 100 * 3600),
+      testDurationS: 3600,
+      fminHz: 10,
+      fmaxHz: 500,
+      version: "test",
+      created: new Date(0),
+    });
+    const of = (file: string) => r.notes.filter((n) => n.about?.file === file).map((n) => n.code);
+    expect(of(clean)).not.toContain("DEAD_STRETCH");
+    expect(of(clean)).not.toContain("NON_FINITE");
+    const dead = r.notes.filter((n) => n.code === "DEAD_STRETCH");
+    expect(dead.map((n) => n.about?.file)).toEqual([dropped, stuck]);
+    // The stretches (the pass's stationarity stretches) that lie wholly inside the dead part.
+    expect(dead[0]!.values.fromS).toBeGreaterThanOrEqual(10);
+    expect(dead[0]!.values.toS).toBeLessThanOrEqual(20);
+    expect(dead[0]!.values.toS! - dead[0]!.values.fromS!).toBeGreaterThan(5);
+    expect(dead[1]!.values.fromS).toBeGreaterThanOrEqual(30);
+    expect(dead[1]!.values.toS).toBeLessThanOrEqual(40);
+    expect(findingTexts(dead)[0]).toMatch(/^.*dropped\.wav: .*no signal at all.*field PSD/);
+    const nan = r.notes.filter((n) => n.code === "NON_FINITE");
+    expect(nan.map((n) => n.about?.file)).toEqual([stuck]);
+    expect(nan[0]!.values.samples).toBe(200);
+  });
+  it("a dead channel (every sample one value) is refused as no vibration, naming the file", async () => {
+    const dir = tempDir();
+    const clean = writeFieldRecord(dir, "clean.wav", flat(1e-4), 611);
+    const deadFile = join(dir, "dead.wav");
+    writeFileSync(
+      deadFile,
+      wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: new Array(FIELD_LENGTH).fill(0.5) }),
+    );
+    await expect(
+      deriveProfile({
+        ...plainInputs([clean, deadFile], 100 * 3600),
+        testDurationS: 3600,
+        fminHz: 10,
+        fmaxHz: 500,
+        version: "test",
+        created: new Date(0),
+      }),
+    ).rejects.toThrow(/dead\.wav/);
+  });
+});
+
 describe("derive: damage below the smallest double names its cause (audit 2)", () => {
   it("a quiet record, b = 30, natural frequencies to 10 kHz: the damage underflows; the error names the Basquin exponent and the band, not the life", async () => {
     const dir = tempDir();
