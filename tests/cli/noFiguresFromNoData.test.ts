@@ -1,4 +1,4 @@
-import { existsSync, writeFileSync } from "node:fs";
+import { existsSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { cli, tempDir } from "../helpers.js";
@@ -89,5 +89,26 @@ describe("no figures from no data, no message that contradicts itself", () => {
     expect(r.stderr).toMatch(
       /chunk 'fmt ': expected the 20 bytes its chunk header gives, received 16 bytes before the file ends \[WAV_BAD_FMT\]/,
     );
+  });
+  it("check on a dead channel: the NO_SIGNAL doubt is the answer, no RMS of -Infinity dB, excursion or Parseval NaN", async () => {
+    const d = tempDir();
+    writeFileSync(
+      join(d, "dead.csv"),
+      `time,az [g]\n${Array.from({ length: 2048 * 30 }, (_, i) => `${(i / 2048).toFixed(6)},0.5`).join("\n")}\n`,
+    );
+    const r = await cli("check", join(d, "dead.csv"), "-p", PROFILE);
+    expect(r.code).toBe(3);
+    expect(r.stdout).toMatch(/because {4}no signal: all 61440 finite sample\(s\) hold the one value 0\.5/);
+    const channel = r.stdout.slice(r.stdout.indexOf('channel 1 "az"'), r.stdout.indexOf("RULE:"));
+    expect(channel.trim().split("\n")).toHaveLength(2);
+    expect(r.stdout).not.toMatch(/Infinity|NaN|within what chance explains|excursions|Parseval {3}|failure was shown/);
+    const j = JSON.parse((await cli("check", join(d, "dead.csv"), "-p", PROFILE, "--json")).stdout);
+    expect(j.verdict).toBe("inconclusive");
+    expect(j.channels[0].findings.map((f: { code: string }) => f.code)).toEqual(["NO_SIGNAL"]);
+    const html = join(d, "dead.html");
+    expect((await cli("check", join(d, "dead.csv"), "-p", PROFILE, "--report", html)).code).toBe(3);
+    const page = readFileSync(html, "utf8");
+    expect(page).not.toMatch(/Infinity|NaN|No line lies outside/);
+    expect(page).toContain("None judged: the channel has no signal.");
   });
 });
