@@ -28,6 +28,7 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   { version: "0.3.0", kinds: ["shock", "derive"], what: "BASELINE_DRIFT (short shocks left out of the stretch means)" },
   { version: "0.3.0", kinds: ["derive"], what: "the tolerance factor k at high confidence with few recordings" },
   { version: "0.3.0", kinds: ["check"], what: "a dead channel's judgement (its NO_SIGNAL doubt alone)" },
+  { version: "0.3.0", kinds: ["transfer"], what: "a dead output channel (refused: NO_VIBRATION)" },
 ];
 
 /** -1, 0 or 1 as version a is before, the same as or after version b (dotted numbers; anything else compares 0). */

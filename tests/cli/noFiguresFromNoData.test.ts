@@ -1,7 +1,7 @@
 import { existsSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { cli, tempDir } from "../helpers.js";
+import { cli, gaussian, tempDir } from "../helpers.js";
 
 /**
  * Hostile and odd numbers: every one is exit 2 with one line naming the option or the data, never Infinity,
@@ -110,5 +110,19 @@ describe("no figures from no data, no message that contradicts itself", () => {
     const page = readFileSync(html, "utf8");
     expect(page).not.toMatch(/Infinity|NaN|No line lies outside/);
     expect(page).toContain("None judged: the channel has no signal.");
+  });
+  it("transfer with a dead output channel is NO_VIBRATION naming the file and the channel (was 'NaN % of the mean square')", async () => {
+    const d = tempDir();
+    const x = gaussian(2048 * 10, 5, 1);
+    writeFileSync(
+      join(d, "deadout.csv"),
+      `time,in [g],out [g]\n${Array.from(x, (v, i) => `${(i / 2048).toFixed(6)},${v.toFixed(5)},0.25`).join("\n")}\n`,
+    );
+    const r = await cli("transfer", join(d, "deadout.csv"), "--in", "in");
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(
+      /deadout\.csv: expected vibration on the output channel "out", received a PSD of zero at every line \(a channel that is all zero or constant\) \[NO_VIBRATION\] \(hint: leave it out with --output-channel\)/,
+    );
   });
 });
