@@ -700,7 +700,7 @@ async function allFindings(): Promise<Finding[]> {
   const rides = [
     await rideRecording(ride, { ...rideBase, axes: { x: "1", z: "3" }, posture: "standing" }),
     await rideRecording(ride, { ...rideBase, axes: { x: "1" }, floor: "4", posture: "recumbent", exposureS: 3600 }),
-    await rideRecording(ride, { ...rideBase, axes: { z: "3" }, posture: "seated", fromS: 10, toS: 12 }),
+    await rideRecording(ride, { ...rideBase, axes: { z: "3" }, posture: "seated", fromS: 10, toS: 16 }),
   ];
   const slow = Float64Array.from(
     { length: 100 * 60 },

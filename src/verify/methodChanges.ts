@@ -29,6 +29,11 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   { version: "0.3.0", kinds: ["derive"], what: "the tolerance factor k at high confidence with few recordings" },
   { version: "0.3.0", kinds: ["check"], what: "a dead channel's judgement (its NO_SIGNAL doubt alone)" },
   { version: "0.3.0", kinds: ["transfer"], what: "a dead output channel (refused: NO_VIBRATION)" },
+  {
+    version: "0.3.0",
+    kinds: ["ride"],
+    what: "a window shorter than the weighting filters' settling or one running r.m.s. (refused)",
+  },
 ];
 
 /** -1, 0 or 1 as version a is before, the same as or after version b (dotted numbers; anything else compares 0). */

@@ -125,4 +125,17 @@ describe("no figures from no data, no message that contradicts itself", () => {
       /deadout\.csv: expected vibration on the output channel "out", received a PSD of zero at every line \(a channel that is all zero or constant\) \[NO_VIBRATION\] \(hint: leave it out with --output-channel\)/,
     );
   });
+  it("ride on a window shorter than the filters' settling is refused naming --to (was an a_w, A(8) and NaN MTVV from 0.1 s)", async () => {
+    const base = ["samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3"];
+    const r = await cli("ride", ...base, "--exposure", "8h", "--from", "100", "--to", "100.1");
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(
+      /marlow-uv3-ride\.wav: option --to: expected an analysed window of at least 5 s \(the weighting filters settle over 5 s; the running r\.m\.s\. integrates over 1 s\), received 0\.1 s \[RECORD_TOO_SHORT\]/,
+    );
+    const long = await cli("ride", ...base, "--from", "100", "--to", "130", "--running-rms", "40");
+    expect(long.code).toBe(2);
+    expect(long.stderr).toMatch(/at least 40 s .*received 30 s \[RECORD_TOO_SHORT\] \(hint: a shorter --running-rms\)/);
+    expect((await cli("ride", ...base, "--from", "100", "--to", "105")).code).toBe(0);
+  });
 });
