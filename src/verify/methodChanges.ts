@@ -34,6 +34,7 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
     kinds: ["ride"],
     what: "a window shorter than the weighting filters' settling or one running r.m.s. (refused)",
   },
+  { version: "0.3.0", kinds: ["respond"], what: "a fatigue damage that underflows to 0 (refused, naming b)" },
 ];
 
 /** -1, 0 or 1 as version a is before, the same as or after version b (dotted numbers; anything else compares 0). */

@@ -138,4 +138,21 @@ describe("no figures from no data, no message that contradicts itself", () => {
     expect(long.stderr).toMatch(/at least 40 s .*received 30 s \[RECORD_TOO_SHORT\] \(hint: a shorter --running-rms\)/);
     expect((await cli("ride", ...base, "--from", "100", "--to", "105")).code).toBe(0);
   });
+  it("respond: a damage that underflows to 0 on a quiet record with a large Basquin exponent names --basquin (was 0.000e+0)", async () => {
+    const d = tempDir();
+    const x = gaussian(4096 * 20, 2, 1e-6);
+    writeFileSync(
+      join(d, "quiet.csv"),
+      `time,az [g]\n${Array.from(x, (v, i) => `${(i / 4096).toFixed(6)},${v.toExponential(4)}`).join("\n")}\n`,
+    );
+    const r = await cli("respond", join(d, "quiet.csv"), "--fn", "100:2000:3", "--q", "10", "--basquin", "30");
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(
+      /option --basquin: expected a Basquin exponent with which the damage is a number a double holds \(above 2\.2e-308\), received b 30: the (record's )?damage at ([\d.]+) Hz is [\de.+-]+ \(the response there, in metres, to the power b underflows\) \[OPTION_INVALID\] \(hint: a smaller b, or natural frequencies that stop below \2 Hz \(--fn\)\)/,
+    );
+    expect((await cli("respond", join(d, "quiet.csv"), "--fn", "100:2000:3", "--q", "10", "--basquin", "4")).code).toBe(
+      0,
+    );
+  });
 });
