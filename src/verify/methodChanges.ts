@@ -35,6 +35,11 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
     what: "a window shorter than the weighting filters' settling or one running r.m.s. (refused)",
   },
   { version: "0.3.0", kinds: ["respond"], what: "a fatigue damage that underflows to 0 (refused, naming b)" },
+  {
+    version: "0.3.0",
+    kinds: ["*"],
+    what: "kurtosis and crest notes near the quantisation step (KURTOSIS_QUANTISED, CREST_QUANTISED)",
+  },
 ];
 
 /** -1, 0 or 1 as version a is before, the same as or after version b (dotted numbers; anything else compares 0). */
