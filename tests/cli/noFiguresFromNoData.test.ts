@@ -111,6 +111,7 @@ describe("no figures from no data, no message that contradicts itself", () => {
     expect(page).not.toMatch(/Infinity|NaN|No line lies outside/);
     expect(page).toContain("None judged: the channel has no signal.");
   });
+
   it("transfer with a dead output channel is NO_VIBRATION naming the file and the channel (was 'NaN % of the mean square')", async () => {
     const d = tempDir();
     const x = gaussian(2048 * 10, 5, 1);
@@ -125,6 +126,7 @@ describe("no figures from no data, no message that contradicts itself", () => {
       /deadout\.csv: expected vibration on the output channel "out", received a PSD of zero at every line \(a channel that is all zero or constant\) \[NO_VIBRATION\] \(hint: leave it out with --output-channel\)/,
     );
   });
+
   it("ride on a window shorter than the filters' settling is refused naming --to (was an a_w, A(8) and NaN MTVV from 0.1 s)", async () => {
     const base = ["samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3"];
     const r = await cli("ride", ...base, "--exposure", "8h", "--from", "100", "--to", "100.1");
@@ -138,6 +140,7 @@ describe("no figures from no data, no message that contradicts itself", () => {
     expect(long.stderr).toMatch(/at least 40 s .*received 30 s \[RECORD_TOO_SHORT\] \(hint: a shorter --running-rms\)/);
     expect((await cli("ride", ...base, "--from", "100", "--to", "105")).code).toBe(0);
   });
+
   it("respond: a damage that underflows to 0 on a quiet record with a large Basquin exponent names --basquin (was 0.000e+0)", async () => {
     const d = tempDir();
     const x = gaussian(4096 * 20, 2, 1e-6);
