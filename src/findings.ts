@@ -48,6 +48,8 @@ export const FINDING_CODES = [
   "KURTOSIS_LOW",
   "KURTOSIS_HIGH",
   "CREST_HIGH",
+  "KURTOSIS_QUANTISED",
+  "CREST_QUANTISED",
   // The verdict on a spectrum (compare/complianceCheck.ts), the level gate, tones, held bands (check).
   "LINES_OUTSIDE",
   "OUTER_LIMIT",

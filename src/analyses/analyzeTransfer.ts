@@ -215,6 +215,16 @@ function transferResult(
       expected: `vibration on the input channel "${a.channels[0]!.name}" to divide by`,
       received: "a PSD of zero at every line (a channel that is all zero or constant)",
     });
+  // A dead output likewise: its share explained by the input is 0 / 0 (was printed as "NaN %").
+  a.channels.slice(1).forEach((ch, j) => {
+    if (!sums.auto[j + 1]!.some((g, k) => k > 0 && g > 0 && Number.isFinite(g)))
+      throw new InputError("NO_VIBRATION", {
+        file: a.input.file,
+        expected: `vibration on the output channel "${ch.name}"`,
+        received: "a PSD of zero at every line (a channel that is all zero or constant)",
+        hint: "leave it out with `outputChannels`",
+      });
+  });
   const warnings: Finding[] = [];
   if (sums.skippedSegments > 0)
     warnings.push({ code: "SEGMENTS_LEFT_OUT", values: { segments: sums.skippedSegments } });

@@ -14,7 +14,12 @@ import {
 import { longestDeadRun } from "../compare/levelGate.js";
 import { InputError, quoted } from "../errors.js";
 import { damageSpectra } from "../estimate/response/damageSpectrum.js";
-import { SN_DEFAULTS, type SnCurve } from "../estimate/response/fatigueDamage.js";
+import {
+  refuseDamageUnderflow,
+  SMALLEST_NORMAL,
+  SN_DEFAULTS,
+  type SnCurve,
+} from "../estimate/response/fatigueDamage.js";
 import { clippedSpectrum, lineSpectrum, powerLawSpectrum } from "../estimate/response/inputSpectrum.js";
 import { bandRms } from "../estimate/spectral/psdEstimate.js";
 import { spectralKernel } from "../estimate/spectral/spectralKernel.js";
@@ -866,25 +871,6 @@ function fieldRecording(x: AnalysedRecording, g: FieldContext, sums: FieldSums):
   };
 }
 
-/** The smallest normal double (IEEE 754): below it a damage keeps fewer digits, down to none at 0. */
-const SMALLEST_NORMAL = 2.2250738585072014e-308;
-
-/**
- * Damage is the response in metres to the power b (K = C = 1): a quiet record at high natural frequencies and a large
- * b take it below the smallest double, to 0 (a relative displacement of 1e-12 m at b = 30 gives about 1e-351). The
- * cause is b with that band, not the life or the test's duration: name them.
- */
-function refuseUnderflow(damage: number, fnHz: number, b: number, what: string): void {
-  if (damage >= SMALLEST_NORMAL || !(damage >= 0)) return;
-  const at = Number(fnHz.toPrecision(4));
-  throw new InputError("OPTION_INVALID", {
-    option: "basquinB",
-    expected: "a Basquin exponent with which the damage is a number a double holds (above 2.2e-308)",
-    received: `b ${b}: ${what} at ${at} Hz is ${damage} (the response there, in metres, to the power b underflows)`,
-    hint: `a smaller b, or natural frequencies that stop below ${at} Hz (fmaxHz)`,
-  });
-}
-
 /**
  * The field's damage and largest response must be finite and above 0 at every natural frequency, or the life is named
  * (or b, where the damage underflowed while the response is there).
@@ -893,7 +879,7 @@ function checkFieldDamage(sums: FieldSums, fnHz: Float64Array, lifeS: number, b:
   const { fieldFatigue, fieldExtreme } = sums;
   for (let i = 0; i < fnHz.length; i++) {
     if (fieldExtreme[i]! > 0 && Number.isFinite(fieldExtreme[i]!))
-      refuseUnderflow(fieldFatigue[i]!, fnHz[i]!, b, "the field's damage");
+      refuseDamageUnderflow(fieldFatigue[i]!, fnHz[i]!, b, "the field's damage", "fmaxHz");
     if (
       !(
         fieldFatigue[i]! > 0 &&

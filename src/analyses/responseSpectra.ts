@@ -7,7 +7,12 @@ import {
 import type { ChannelReading } from "../condition/scaleSamples.js";
 import { loadProfile } from "./checkRecording.js";
 import { InputError } from "../errors.js";
-import { SN_DEFAULTS, narrowBandDamage, type SnCurve } from "../estimate/response/fatigueDamage.js";
+import {
+  SN_DEFAULTS,
+  narrowBandDamage,
+  refuseDamageUnderflow,
+  type SnCurve,
+} from "../estimate/response/fatigueDamage.js";
 import { lineSpectrum, powerLawSpectrum, type InputSpectrum } from "../estimate/response/inputSpectrum.js";
 import { displacementPsd, spectrumMotion, velocityPsd, type Motion } from "../estimate/response/kinematics.js";
 import { davenportPeakFactor, riceRates } from "../estimate/response/peakStatistics.js";
@@ -401,6 +406,7 @@ function timeDomainFigures(
     recordDamage[i] =
       sum > 0 ? Math.exp(Math.log(sum) + sn.basquinB * Math.log(sn.stressPerUnit * toSi) - Math.log(sn.snConstant)) : 0;
     damage[i] = recordDamage[i]! * (durationS / t.recordS);
+    if (p > 0) refuseDamageUnderflow(damage[i]!, fn, sn.basquinB, "the record's damage", "fn");
     const grow =
       davenportPeakFactor(upcrossingRateHz[i]! * durationS) / davenportPeakFactor(upcrossingRateHz[i]! * t.recordS);
     peak[i] = p * (Number.isFinite(grow) ? grow : 1);
@@ -534,6 +540,9 @@ function randomResponses(
         received: `damage ${r.fatigueDamage[i]} at ${fnHz[i]} Hz (b ${sn.basquinB}, C ${sn.snConstant}, stress ${sn.stressPerUnit} per metre, ${durationS} s)`,
       });
     }
+    // One that underflows to 0 (a quiet input, a large b) is no result either: b is named, as derive does.
+    if (durationS !== undefined && zRms > 0)
+      refuseDamageUnderflow(r.fatigueDamage[i]!, fnHz[i]!, sn.basquinB, "the damage", "fn");
   }
   return r;
 }

@@ -337,7 +337,37 @@ async function ridePass(source: TimeHistorySource, options: RideOptions) {
       });
     }
   }
+  refuseShortWindow(analysis, options, runningRmsS);
   return { axes, rules, plan, analysis, results };
+}
+
+/**
+ * A window shorter than the weighting filters' settling (SETTLE_S: the 0.4 Hz band limit's start decays over it) or
+ * than one running r.m.s. (no MTVV at all) is refused, not reported with a doubt: ride's figures feed an exposure
+ * (A(8), the Directive's action and limit values), and a practitioner does not rate a day's exposure from a fraction
+ * of a second, so a figure from such a window would only be quoted wrongly. The option that set the window is named.
+ */
+function refuseShortWindow(analysis: RecordingAnalysis, options: RideOptions, runningRmsS: number): void {
+  const needS = Math.max(SETTLE_S, runningRmsS);
+  const haveS = analysis.window.frames / analysis.input.sampleRateHz;
+  if (haveS >= needS) return;
+  const option =
+    options.toS !== undefined
+      ? "toS"
+      : options.toClock !== undefined
+        ? "toClock"
+        : options.fromS !== undefined
+          ? "fromS"
+          : options.fromClock !== undefined
+            ? "fromClock"
+            : undefined;
+  throw new InputError("RECORD_TOO_SHORT", {
+    file: analysis.input.file,
+    option,
+    expected: `an analysed window of at least ${needS} s (the weighting filters settle over ${SETTLE_S} s; the running r.m.s. integrates over ${runningRmsS} s)`,
+    received: `${Number(haveS.toPrecision(4))} s`,
+    ...(runningRmsS > SETTLE_S ? { hint: "a shorter `runningRmsS`" } : {}),
+  });
 }
 
 /** What ride's one pass gave: the axes, their rules and plan, the analysis and the weighting listener's results. */

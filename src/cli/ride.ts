@@ -132,7 +132,7 @@ export function registerRide(program: Command, io: CliIo): void {
     )
     .option(
       "--running-rms <s>",
-      "integration time of the running r.m.s. and of the stationarity stretches (default 1 s)",
+      "integration time of the running r.m.s. and of the stationarity stretches (default 1 s); the analysed window must hold at least this and 5 s (the weighting filters' settling)",
       numberOption("--running-rms", (x) => x > 0 && x <= 60, "an integration time in s, 0 < t <= 60"),
     )
     .option(

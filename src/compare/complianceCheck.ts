@@ -141,8 +141,17 @@ export function judgeSpectrum(sp: SpectrumUnderTest, profile: TestProfile, tones
  * distribution) make any verdict inconclusive: the spectrum itself is in question, so neither a pass nor
  * a fail can rest on it.
  */
+/** A judgement of a channel with no signal (NO_SIGNAL, withDoubts): its doubt says all there is. */
+export function noSignal(c: ChannelCompliance): boolean {
+  return c.findings.some((f) => f.code === "NO_SIGNAL");
+}
+
 export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelCompliance {
   if (doubts.length === 0) return c;
+  // A dead channel (NO_SIGNAL) has no motion to judge: its doubt is the whole answer. The judgement of its spectrum of
+  // zeros (an RMS -Infinity dB "within chance at 0 DOF", every line below its band) would say nothing, so none is kept.
+  if (doubts.some((d) => d.code === "NO_SIGNAL"))
+    return { ...c, verdict: "inconclusive", findings: doubts, excursions: [], decide: undefined };
   const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {} }] : [];
   // A longer run does not remove a doubt about the data: no run length is promised.
   const findings = [...doubts, ...c.findings.filter((f) => f.code !== "PASS" && f.code !== "RUN_TO_DECIDE"), ...note];

@@ -474,6 +474,27 @@ export function gravityInMs2(mean: number, reading: ChannelReading): Finding | u
 }
 
 /**
+ * A spread within this many quantisation steps: the samples are whole codes a few steps apart, not Gaussian by
+ * construction. A Gaussian rounded to whole codes has kurtosis 10.5 at sigma 0.3 step, 4.8 at 0.4 and 3.0 from about
+ * 0.6 step up (the codes' exact probabilities, scipy.stats.norm.cdf over bins of one step, mean on a code), and a
+ * top code far out in sigma; 2 steps leaves a margin over that.
+ */
+const QUANTISED_STEPS = 2;
+
+/**
+ * Near the quantisation step a kurtosis or crest factor above a Gaussian's is the rounding's doing as much as any
+ * shock's: those notes name the step (KURTOSIS_QUANTISED, CREST_QUANTISED) instead of shocks.
+ */
+function nearStep(std: number, quantum: number): (f: Finding) => Finding {
+  return (f) =>
+    f.code === "KURTOSIS_HIGH"
+      ? { code: "KURTOSIS_QUANTISED", values: { ...f.values, std, quantum } }
+      : f.code === "CREST_HIGH"
+        ? { code: "CREST_QUANTISED", values: { ...f.values, std, quantum } }
+        : f;
+}
+
+/**
  * The notes and doubts of one channel. @internal (exported for tests/findings.test.ts, which holds their values to
  * their texts)
  */
@@ -566,7 +587,9 @@ export function _channelFindings(
         gateSkipLines,
       );
       doubts.push(...g.doubts);
-      notes.push(...g.notes);
+      notes.push(
+        ...(quantum > 0 && s.std < QUANTISED_STEPS * quantum ? g.notes.map(nearStep(s.std, quantum)) : g.notes),
+      );
     }
   }
   return { notes, doubts };

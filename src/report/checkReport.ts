@@ -1,6 +1,12 @@
 import type { ChannelAnalysis } from "../pass/analyzeRecording.js";
 import type { CheckResult } from "../analyses/checkRecording.js";
-import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
+import {
+  noSignal,
+  worstFirst,
+  type ChannelCompliance,
+  type Excursion,
+  type Verdict,
+} from "../compare/complianceCheck.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
 import { fixed, parsevalWord, sig, signedDb } from "./format.js";
@@ -43,6 +49,8 @@ function judgementLines(c: ChannelCompliance, ch: ChannelAnalysis, label: string
   const u = accelLabel(ch.units);
   const out = [`${label}: ${WORD[c.verdict]}`];
   for (const reason of findingTexts(c.findings)) out.push(`  because    ${reason}`);
+  // A dead channel's doubt is its answer (compare/complianceCheck.ts withDoubts): no RMS, rule or excursion of zeros.
+  if (noSignal(c)) return out;
   const tol =
     c.rms.upperDb !== undefined ? ` (allowed +${fixed(c.rms.upperDb, 2)} / -${fixed(c.rms.lowerDb!, 2)} dB)` : "";
   out.push(
@@ -114,11 +122,10 @@ export function checkText(r: CheckResult, version: string): string {
           `channel ${ch.position} "${printable(ch.name)}" (${role === "monitor" ? "monitoring" : "control"} channel judged alone; the record's verdict rests on the control spectrum)`,
         ),
       );
-      out.push(parseval);
     } else {
       out.push(...judgementLines(c, ch, `channel ${ch.position} "${printable(ch.name)}"`));
-      out.push(parseval);
     }
+    if (!noSignal(c)) out.push(parseval);
     out.push(...findingLines(ch).filter((l) => !l.startsWith("  DOUBT")), "");
   });
   out.push(

@@ -105,6 +105,10 @@ const PASS_TEXTS = {
     `kurtosis ${v.kurtosis!.toFixed(3)} is above a Gaussian record's 3 (±${v.spread!.toPrecision(2)}): more large peaks than Gaussian (shocks, impacts); the PSD alone understates them`,
   CREST_HIGH: (v) =>
     `crest factor ${v.crestFactor!.toFixed(2)} is above what a Gaussian record this long reaches (shock or spike?)`,
+  KURTOSIS_QUANTISED: (v) =>
+    `kurtosis ${v.kurtosis!.toFixed(3)} is above a Gaussian record's 3 (±${v.spread!.toPrecision(2)}), but the standard deviation ${Number(v.std!.toPrecision(3))} is within 2 steps of the channel's quantisation step ${Number(v.quantum!.toPrecision(3))}: there the samples are not Gaussian by construction, and the kurtosis cannot tell shocks`,
+  CREST_QUANTISED: (v) =>
+    `crest factor ${v.crestFactor!.toFixed(2)} is above what a Gaussian record this long reaches, but the standard deviation ${Number(v.std!.toPrecision(3))} is within 2 steps of the channel's quantisation step ${Number(v.quantum!.toPrecision(3))}: there the samples are not Gaussian by construction, and the crest factor cannot tell a shock or spike`,
 } satisfies Partial<Record<FindingCode, Text>>;
 
 const VERDICT_TEXTS = {

@@ -1,5 +1,11 @@
 import type { ChannelAnalysis } from "../pass/analyzeRecording.js";
-import { worstFirst, type ChannelCompliance, type Excursion, type Verdict } from "../compare/complianceCheck.js";
+import {
+  noSignal,
+  worstFirst,
+  type ChannelCompliance,
+  type Excursion,
+  type Verdict,
+} from "../compare/complianceCheck.js";
 import { profileLevel } from "../compare/testProfile.js";
 import { accelLabel, densityLabel } from "../units.js";
 import { VERDICT_CAUTION } from "./cautions.js";
@@ -73,7 +79,8 @@ function toneTable(comp: ChannelCompliance, u: string, n: number): string {
 <table class="tones grid" id="tones-${n}"><thead><tr><th>tone</th><th class="num">Hz required</th><th class="num">Hz measured</th><th class="num">peak required (limits), ${esc(u)}</th><th class="num">peak measured, ${esc(u)}</th><th class="num">deviation</th><th>verdict</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 
-function excursionTable(list: Excursion[], linesChecked: number, id: string): string {
+function excursionTable(list: Excursion[], linesChecked: number, id: string, dead = false): string {
+  if (dead) return "<p>None judged: the channel has no signal.</p>";
   if (list.length === 0) return `<p>No line lies outside its tolerance band (${linesChecked} lines checked).</p>`;
   const rows = worstFirst(list)
     .map(
@@ -123,7 +130,7 @@ ${devPlot}
 ${levelRows(c, comp, r, role !== "monitor", span)}
 </table>
 ${toneTable(comp, u, n)}
-<h3>Excursions</h3>${excursionTable(comp.excursions, comp.lines.length, `excursions-${n}`)}
+<h3>Excursions</h3>${excursionTable(comp.excursions, comp.lines.length, `excursions-${n}`, noSignal(comp))}
 ${hist}
 ${c.notes.length ? `<p class="muted">Notes: ${findingTexts(c.notes).map(esc).join("; ")}</p>` : ""}
 ${c.doubts.length ? `<p><strong>Doubts:</strong> ${findingTexts(c.doubts).map(esc).join("; ")}</p>` : ""}
@@ -336,22 +343,24 @@ function levelRows(
       : "none stated";
   const s = c.stats;
   const unjudged = unjudgedWords(comp);
+  // A dead channel (NO_SIGNAL): no Parseval ratio, RMS deviation, rule or shape figures of 0 / 0 (its doubt says it).
+  const live = !noSignal(comp);
   return `${row(timeRmsLabel(a), qty(sig(c.parseval.rmsTime, 4), u), "num")}
 ${row(segmentRmsLabel(a), qty(sig(c.parseval.rmsSegments, 4), u), "num")}
 ${row("RMS from the PSD (every line, 0 Hz to Nyquist)", qty(sig(c.parseval.rmsPsd, 4), u), "num")}
-${row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(c.parseval.ratio, 4)} (allowed ±${sig(100 * c.parseval.tolerance, 2)} %${c.parseval.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${esc(parsevalWord(c.parseval))}`, "num")}
+${!live ? "" : row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(c.parseval.ratio, 4)} (allowed ±${sig(100 * c.parseval.tolerance, 2)} %${c.parseval.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${esc(parsevalWord(c.parseval))}`, "num")}
 ${row(`RMS from the PSD in the profile's range (${sig(f0)}–${sig(fN)} Hz), measured`, qty(sig(comp.rms.measured, 4), u), "num")}
 ${row("RMS required over the same range", qty(sig(comp.rms.required, 4), u), "num")}
-${row("RMS deviation / tolerance", `${esc(signedDb(comp.rms.deviationDb))} / ${esc(tolRms)}`, "num")}
+${live ? row("RMS deviation / tolerance", `${esc(signedDb(comp.rms.deviationDb))} / ${esc(tolRms)}`, "num") : ""}
 ${row("Degrees of freedom", `${fixed(comp.dof.achieved, 1)} achieved${comp.dof.required !== undefined ? `, ${comp.dof.required} required by the profile` : ""}, ${comp.dof.forPower} for the rule's power (${c.psd.averages} averages)`, "num")}
-${judged ? row("Decision rule here", esc(ruleLine(comp))) : ""}
+${judged && live ? row("Decision rule here", esc(ruleLine(comp))) : ""}
 ${decideLine(comp) ? row("Run length to decide", esc(decideLine(comp)!)) : ""}
 ${row("Lines judged", `${comp.lines.length}${unjudged ? `; not judged: ${esc(unjudged)}` : ""}`)}
 ${row("Random error of one line", `±${fixed(100 * c.psd.randomError, 1)} % (1 σ)`, "num")}
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${qty(sig(s.std, 4), u)}`, "num")}
 ${row("Minimum / maximum", `${sig(s.min, 4)} / ${qty(sig(s.max, 4), u)}`, "num")}
-${row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num")}
-${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num")}`;
+${live ? row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num") : ""}
+${live ? row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num") : ""}`;
 }
 
 /** The amplitude histogram and the Gaussian of the same mean and σ. */
@@ -389,7 +398,7 @@ function controlSection(r: CheckResult): string {
 <table>${row("RMS in the profile's range, measured / required", `${sig(j.rms.measured, 4)} / ${sig(j.rms.required, 4)} (${esc(signedDb(j.rms.deviationDb))})`, "num")}
 ${row("Degrees of freedom", `${fixed(j.dof.achieved, 1)} (the smallest of the control channels'), ${j.dof.forPower} for the rule's power`, "num")}
 ${row("Decision rule here", esc(ruleLine(j)))}</table>
-${excursionTable(j.excursions, j.lines.length, "excursions-control")}
+${excursionTable(j.excursions, j.lines.length, "excursions-control", noSignal(j))}
 </section>`;
 }
 

@@ -174,7 +174,7 @@ ${row("Outputs", esc(t.outputs.map((o) => `${o.name} (channel ${o.position})`).j
 ${row("Units", `every channel in ${accelLabel(t.units)} (the input's unit, or --result-units); |H| is output unit per input unit`)}
 ${t.channels.map((x) => row(`Channel ${x.name}`, esc(readingWords(x.reading, x.reading.factor, accelLabel(t.units))))).join("\n")}
 ${row("Analysis", `${s.window} window, ${s.segmentLength}-point segments (${qty(sig(s.resolutionHz, 4), "Hz")} lines), ${fixed(100 * s.overlap, 1)} % overlap, detrend ${s.detrend}; ${t.averages} averages, ${fixed(t.dof, 1)} DOF`)}
-${row("Estimators", `H1 = G_xy / G_xx and H2 = G_yy / G_yx, coherence γ²; H1 bounds at ${fixed(100 * s.confidence, 0)} % (Bendat &amp; Piersol, Random Data, ch. 9)`)}
+${row("Estimators", `H1 = G_xy / G_xx and H2 = G_yy / G_yx, coherence γ²; H1 bounds at ${fixed(100 * s.confidence, 0)} %, Student's t on 2 n_d − 2 DOF (Goodman 1965; Bendat &amp; Piersol, Random Data, ch. 9)`)}
 ${row("Good coherence", `γ² ≥ ${s.goodCoherence}`)}
 ${givenRow(ctx)}
 </table>

@@ -27,6 +27,19 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   { version: "0.3.0", kinds: ["check"], what: "the drift share with detrend none (about the mean)" },
   { version: "0.3.0", kinds: ["shock", "derive"], what: "BASELINE_DRIFT (short shocks left out of the stretch means)" },
   { version: "0.3.0", kinds: ["derive"], what: "the tolerance factor k at high confidence with few recordings" },
+  { version: "0.3.0", kinds: ["check"], what: "a dead channel's judgement (its NO_SIGNAL doubt alone)" },
+  { version: "0.3.0", kinds: ["transfer"], what: "a dead output channel (refused: NO_VIBRATION)" },
+  {
+    version: "0.3.0",
+    kinds: ["ride"],
+    what: "a window shorter than the weighting filters' settling or one running r.m.s. (refused)",
+  },
+  { version: "0.3.0", kinds: ["respond"], what: "a fatigue damage that underflows to 0 (refused, naming b)" },
+  {
+    version: "0.3.0",
+    kinds: ["*"],
+    what: "kurtosis and crest notes near the quantisation step (KURTOSIS_QUANTISED, CREST_QUANTISED)",
+  },
   {
     version: "0.3.0",
     kinds: ["*"],

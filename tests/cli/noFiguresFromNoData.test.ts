@@ -1,7 +1,7 @@
-import { existsSync, writeFileSync } from "node:fs";
+import { existsSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { cli, tempDir } from "../helpers.js";
+import { cli, gaussian, tempDir } from "../helpers.js";
 
 /**
  * Hostile and odd numbers: every one is exit 2 with one line naming the option or the data, never Infinity,
@@ -88,6 +88,74 @@ describe("no figures from no data, no message that contradicts itself", () => {
     expect(r.code).toBe(2);
     expect(r.stderr).toMatch(
       /chunk 'fmt ': expected the 20 bytes its chunk header gives, received 16 bytes before the file ends \[WAV_BAD_FMT\]/,
+    );
+  });
+  it("check on a dead channel: the NO_SIGNAL doubt is the answer, no RMS of -Infinity dB, excursion or Parseval NaN", async () => {
+    const d = tempDir();
+    writeFileSync(
+      join(d, "dead.csv"),
+      `time,az [g]\n${Array.from({ length: 2048 * 30 }, (_, i) => `${(i / 2048).toFixed(6)},0.5`).join("\n")}\n`,
+    );
+    const r = await cli("check", join(d, "dead.csv"), "-p", PROFILE);
+    expect(r.code).toBe(3);
+    expect(r.stdout).toMatch(/because {4}no signal: all 61440 finite sample\(s\) hold the one value 0\.5/);
+    const channel = r.stdout.slice(r.stdout.indexOf('channel 1 "az"'), r.stdout.indexOf("RULE:"));
+    expect(channel.trim().split("\n")).toHaveLength(2);
+    expect(r.stdout).not.toMatch(/Infinity|NaN|within what chance explains|excursions|Parseval {3}|failure was shown/);
+    const j = JSON.parse((await cli("check", join(d, "dead.csv"), "-p", PROFILE, "--json")).stdout);
+    expect(j.verdict).toBe("inconclusive");
+    expect(j.channels[0].findings.map((f: { code: string }) => f.code)).toEqual(["NO_SIGNAL"]);
+    const html = join(d, "dead.html");
+    expect((await cli("check", join(d, "dead.csv"), "-p", PROFILE, "--report", html)).code).toBe(3);
+    const page = readFileSync(html, "utf8");
+    expect(page).not.toMatch(/Infinity|NaN|No line lies outside/);
+    expect(page).toContain("None judged: the channel has no signal.");
+  });
+
+  it("transfer with a dead output channel is NO_VIBRATION naming the file and the channel (was 'NaN % of the mean square')", async () => {
+    const d = tempDir();
+    const x = gaussian(2048 * 10, 5, 1);
+    writeFileSync(
+      join(d, "deadout.csv"),
+      `time,in [g],out [g]\n${Array.from(x, (v, i) => `${(i / 2048).toFixed(6)},${v.toFixed(5)},0.25`).join("\n")}\n`,
+    );
+    const r = await cli("transfer", join(d, "deadout.csv"), "--in", "in");
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(
+      /deadout\.csv: expected vibration on the output channel "out", received a PSD of zero at every line \(a channel that is all zero or constant\) \[NO_VIBRATION\] \(hint: leave it out with --output-channel\)/,
+    );
+  });
+
+  it("ride on a window shorter than the filters' settling is refused naming --to (was an a_w, A(8) and NaN MTVV from 0.1 s)", async () => {
+    const base = ["samples/marlow-uv3-ride.wav", "--units", "m/s2", "--scale", "40", "--axes", "x=1,y=2,z=3"];
+    const r = await cli("ride", ...base, "--exposure", "8h", "--from", "100", "--to", "100.1");
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(
+      /marlow-uv3-ride\.wav: option --to: expected an analysed window of at least 5 s \(the weighting filters settle over 5 s; the running r\.m\.s\. integrates over 1 s\), received 0\.1 s \[RECORD_TOO_SHORT\]/,
+    );
+    const long = await cli("ride", ...base, "--from", "100", "--to", "130", "--running-rms", "40");
+    expect(long.code).toBe(2);
+    expect(long.stderr).toMatch(/at least 40 s .*received 30 s \[RECORD_TOO_SHORT\] \(hint: a shorter --running-rms\)/);
+    expect((await cli("ride", ...base, "--from", "100", "--to", "105")).code).toBe(0);
+  });
+
+  it("respond: a damage that underflows to 0 on a quiet record with a large Basquin exponent names --basquin (was 0.000e+0)", async () => {
+    const d = tempDir();
+    const x = gaussian(4096 * 20, 2, 1e-6);
+    writeFileSync(
+      join(d, "quiet.csv"),
+      `time,az [g]\n${Array.from(x, (v, i) => `${(i / 4096).toFixed(6)},${v.toExponential(4)}`).join("\n")}\n`,
+    );
+    const r = await cli("respond", join(d, "quiet.csv"), "--fn", "100:2000:3", "--q", "10", "--basquin", "30");
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(
+      /option --basquin: expected a Basquin exponent with which the damage is a number a double holds \(above 2\.2e-308\), received b 30: the (record's )?damage at ([\d.]+) Hz is [\de.+-]+ \(the response there, in metres, to the power b underflows\) \[OPTION_INVALID\] \(hint: a smaller b, or natural frequencies that stop below \2 Hz \(--fn\)\)/,
+    );
+    expect((await cli("respond", join(d, "quiet.csv"), "--fn", "100:2000:3", "--q", "10", "--basquin", "4")).code).toBe(
+      0,
     );
   });
 });

@@ -51,6 +51,35 @@ describe("clipping hint", () => {
   });
 });
 
+describe("kurtosis above 3 near the quantisation step", () => {
+  // A Gaussian rounded to whole codes at sigma 0.3 LSB has kurtosis about 10.5 (the codes' exact probabilities,
+  // scipy.stats.norm.cdf over +-0.5 LSB bins): not Gaussian by construction, so "shocks" would be the wrong word.
+  it("a quiet 16-bit record (sigma 0.3 LSB) gets KURTOSIS_QUANTISED naming the step, not KURTOSIS_HIGH's shocks", async () => {
+    const x = gaussian(400_000, 51, 0.3).map(Math.round);
+    const f = join(dir, "quantised.wav");
+    writeFileSync(f, wavBytes({ bits: 16, channels: 1, samples: Array.from(x) }));
+    const a = await analyzeRecording(f, { segmentLength: 1024, scale: 10 });
+    const notes = a.channels[0]!.notes;
+    expect(notes.map((n) => n.code)).not.toContain("KURTOSIS_HIGH");
+    expect(notes.map((n) => n.code)).not.toContain("CREST_HIGH");
+    const q = notes.find((n) => n.code === "KURTOSIS_QUANTISED")!;
+    expect(q.values.quantum).toBeCloseTo(10 / 32768, 12);
+    expect(findingText(q)).toMatch(/quantisation step/);
+    expect(findingText(q)).not.toMatch(/shocks, impacts/);
+  });
+  it("a 16-bit record far above the step (sigma 300 LSB) with real shocks keeps KURTOSIS_HIGH", async () => {
+    const x = gaussian(400_000, 52, 300);
+    for (let i = 5000; i < x.length; i += 20_000)
+      for (let k = 0; k < 40; k++) x[i + k] = 6000 * Math.exp(-k / 8) * Math.cos(k);
+    const f = join(dir, "shocks.wav");
+    writeFileSync(f, wavBytes({ bits: 16, channels: 1, samples: Array.from(x, Math.round) }));
+    const a = await analyzeRecording(f, { segmentLength: 1024 });
+    const codes = a.channels[0]!.notes.map((n) => n.code);
+    expect(codes).toContain("KURTOSIS_HIGH");
+    expect(codes).not.toContain("KURTOSIS_QUANTISED");
+  });
+});
+
 describe("a dead channel (every sample the one value)", () => {
   it("is one NO_SIGNAL doubt, not clipping at 0 and a Parseval ratio of NaN; the live channel beside it is untouched", async () => {
     const x = gaussian(1 << 15, 31, 0.3);

@@ -1,3 +1,4 @@
+import { InputError } from "../../errors.js";
 import { lnGamma } from "../statistics/distributions.js";
 
 /**
@@ -28,4 +29,24 @@ export function narrowBandDamage(sigma: number, upcrossingRateHz: number, durati
     ((upcrossingRateHz * durationS) / sn.snConstant) *
     Math.exp(b * Math.log(Math.SQRT2 * sn.stressPerUnit * sigma) + lnGamma(1 + b / 2))
   );
+}
+
+/** The smallest normal double (IEEE 754): below it a damage keeps fewer digits, down to none at 0. */
+export const SMALLEST_NORMAL = 2.2250738585072014e-308;
+
+/**
+ * Damage is the response in metres to the power b (K = C = 1): a quiet record at high natural frequencies and a large
+ * b take it below the smallest double, to 0 (a relative displacement of 1e-12 m at b = 30 gives about 1e-351). The
+ * cause is b with that band, not the life or the exposure: the error names them, rather than a damage of 0 being
+ * shown as a result. `gridKey`: the option that ends the grid of natural frequencies.
+ */
+export function refuseDamageUnderflow(damage: number, fnHz: number, b: number, what: string, gridKey: string): void {
+  if (damage >= SMALLEST_NORMAL || !(damage >= 0)) return;
+  const at = Number(fnHz.toPrecision(4));
+  throw new InputError("OPTION_INVALID", {
+    option: "basquinB",
+    expected: "a Basquin exponent with which the damage is a number a double holds (above 2.2e-308)",
+    received: `b ${b}: ${what} at ${at} Hz is ${damage} (the response there, in metres, to the power b underflows)`,
+    hint: `a smaller b, or natural frequencies that stop below ${at} Hz (\`${gridKey}\`)`,
+  });
 }
