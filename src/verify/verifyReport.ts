@@ -67,10 +67,19 @@ const IGNORED_PATTERN = /^(recordings\[\d+\]\.file|profile\.provenance\.inputs\[
 
 /**
  * The fields a later psdgate added to a result, array indices folded to `[]`. They carry no verdict and no
- * evidence of one (the resolved analysis, a finding's values beside its text, a profile's provenance), so a
+ * evidence of one (the resolved analysis, a finding's values beside its text, a profile's provenance, the Parseval
+ * check's second reference beside its first), so a
  * report made before them still verifies on every number it holds. Nothing else may be missing.
  */
-const ADDED_LATER = [/^analysis$/, /(^|\.)\w*[fF]indings\[\]\.values$/, /^profile\.(provenance|origin)$/];
+const ADDED_LATER = [
+  /^analysis$/,
+  /(^|\.)\w*[fF]indings\[\]\.values$/,
+  /^profile\.(provenance|origin)$/,
+  // The Parseval check's second reference (0.3.0): figures beside the first, whose ratio, tolerance and findings
+  // are still compared.
+  /^channels\[\]\.parseval\.slowPart$/,
+  /^channels\[\]\.(rmsReference|parsevalSlowRatio|parsevalSlowTolerance)$/,
+];
 
 /**
  * What compareResults found: the differences, the numbers compared, fields only a later psdgate writes, fields in an

@@ -352,7 +352,13 @@ describe("derive: the pass's data doubts on each field recording are its notes, 
     const deadFile = join(dir, "dead.wav");
     writeFileSync(
       deadFile,
-      wavBytes({ tag: 3, bits: 32, channels: 1, sampleRate: FIELD_RATE_HZ, samples: new Array(FIELD_LENGTH).fill(0.5) }),
+      wavBytes({
+        tag: 3,
+        bits: 32,
+        channels: 1,
+        sampleRate: FIELD_RATE_HZ,
+        samples: new Array(FIELD_LENGTH).fill(0.5),
+      }),
     );
     await expect(
       deriveProfile({

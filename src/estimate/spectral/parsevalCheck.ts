@@ -86,7 +86,9 @@ export function parsevalCheck(rmsTime: number, psd: PsdEstimate, window: WindowN
   // Mean squares differ by e (relative); RMS by about e / 2.
   const t = fromRecord ? studentTQuantile(1 - PARSEVAL_FALSE_DOUBT_RATE / 2, psd.meanSquareGapBatches - 1) : NaN;
   const allowed = (error: number, ms: number) =>
-    fromRecord && Number.isFinite(error) ? Math.max(1e-9, (t * error) / ms / 2) : parsevalTolerance(window, psd.averages);
+    fromRecord && Number.isFinite(error)
+      ? Math.max(1e-9, (t * error) / ms / 2)
+      : parsevalTolerance(window, psd.averages);
   const ratio = rmsPsd / Math.sqrt(plain);
   const tolerance = allowed(psd.meanSquareGapError, plain);
   const rmsReference = Math.sqrt(reference);
