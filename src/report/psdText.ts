@@ -71,7 +71,7 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
     `  RMS        ${sig(pv.rmsTime)} ${u} from the time history (trend removed), ${sig(pv.rmsSegments)} ${u} of the detrended segments, ${sig(pv.rmsPsd)} ${u} from the PSD`,
   );
   lines.push(
-    `  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${parsevalWord(pv) === "agree" ? "agree" : pv.ok ? "outside" : "DISAGREE"} within ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""}${parsevalWord(pv).startsWith("agree with") ? `; ${parsevalWord(pv)}` : ""})`,
+    `  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${parsevalWord(pv) === "agree" ? "agree within" : pv.ok ? "outside" : "DISAGREE within"} ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""}${parsevalWord(pv).startsWith("agree with") ? `; ${parsevalWord(pv)}` : ""})`,
   );
   if (p.averages > 0) {
     const f = chiSquareIntervalFactors(p.dof, confidence);
