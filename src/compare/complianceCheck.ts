@@ -150,8 +150,17 @@ export function withDoubts(c: ChannelCompliance, doubts: Finding[]): ChannelComp
   if (doubts.length === 0) return c;
   // A dead channel (NO_SIGNAL) has no motion to judge: its doubt is the whole answer. The judgement of its spectrum of
   // zeros (an RMS -Infinity dB "within chance at 0 DOF", every line below its band) would say nothing, so none is kept.
+  // Its lines and RMS are not shown outside anything either (a JSON reader counting shown lines would count them all).
   if (doubts.some((d) => d.code === "NO_SIGNAL"))
-    return { ...c, verdict: "inconclusive", findings: doubts, excursions: [], decide: undefined };
+    return {
+      ...c,
+      verdict: "inconclusive",
+      findings: doubts,
+      excursions: [],
+      decide: undefined,
+      lines: c.lines.map((l) => ({ ...l, shown: false, beyondOuter: false })),
+      rms: { ...c.rms, shown: false },
+    };
   const note: Finding[] = c.verdict === "fail" ? [{ code: "FAIL_IN_DOUBT", values: {} }] : [];
   // A longer run does not remove a doubt about the data: no run length is promised.
   const findings = [...doubts, ...c.findings.filter((f) => f.code !== "PASS" && f.code !== "RUN_TO_DECIDE"), ...note];

@@ -105,6 +105,8 @@ describe("no figures from no data, no message that contradicts itself", () => {
     const j = JSON.parse((await cli("check", join(d, "dead.csv"), "-p", PROFILE, "--json")).stdout);
     expect(j.verdict).toBe("inconclusive");
     expect(j.channels[0].findings.map((f: { code: string }) => f.code)).toEqual(["NO_SIGNAL"]);
+    // Nothing of the dead channel is shown outside its band in the JSON either (a reader counting shown lines).
+    expect(JSON.stringify(j.channels[0])).not.toMatch(/"shown":true|"beyondOuter":true/);
     const html = join(d, "dead.html");
     expect((await cli("check", join(d, "dead.csv"), "-p", PROFILE, "--report", html)).code).toBe(3);
     const page = readFileSync(html, "utf8");
