@@ -5,6 +5,7 @@ import { embedResult } from "./embeddedResult.js";
 import { dB, fixed, parsevalWord, sig } from "./format.js";
 import { histogramOf } from "./htmlReport.js";
 import { psdJson } from "./psdJson.js";
+import { deadChannel } from "./psdText.js";
 import {
   PEAK_HOLD_STYLE,
   qty,
@@ -105,6 +106,8 @@ function channelSection(c: ChannelAnalysis, a: RecordingAnalysis, n: number): st
   const p = c.psd;
   const s = c.stats;
   const bounds = p.averages > 0 ? chiSquareIntervalFactors(p.dof, a.settings.confidence) : undefined;
+  // A dead channel (NO_SIGNAL): no Parseval ratio or shape figures of 0 / 0 (its doubt says it).
+  const live = !deadChannel(c);
   return `<section class="channel" id="channel-${n}">
 <h2>Channel ${c.position} “${esc(c.name)}”</h2>
 ${plot}
@@ -113,7 +116,7 @@ ${plot}
 ${row(timeRmsLabel(a), qty(sig(pv.rmsTime, 4), u), "num")}
 ${row(segmentRmsLabel(a), qty(sig(pv.rmsSegments, 4), u), "num")}
 ${row("RMS from the PSD (every line, 0 Hz to Nyquist)", qty(sig(pv.rmsPsd, 4), u), "num")}
-${row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(pv.ratio, 4)} (allowed ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${esc(parsevalWord(pv))}`, "num")}
+${!live ? "" : row("Parseval ratio (PSD RMS / segments RMS)", `${fixed(pv.ratio, 4)} (allowed ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", from the record's own spread" : ""}): ${esc(parsevalWord(pv))}`, "num")}
 ${c.band ? row(`RMS from the PSD over ${sig(c.band.fminHz)}–${sig(c.band.fmaxHz)} Hz (--fmin/--fmax)`, qty(sig(c.band.rms, 4), u), "num") : ""}
 ${row("Averages / degrees of freedom", `${p.averages}${p.skippedSegments ? ` (${p.skippedSegments} segments skipped)` : ""} / ${fixed(p.dof, 1)}`, "num")}
 ${row("Random error of one line", `±${fixed(100 * p.randomError, 1)} % (1 σ)`, "num")}
@@ -123,8 +126,8 @@ ${hold ? row("Peak-hold (largest stretch level at each line)", esc(peakHoldLine(
 ${c.peaks.length ? row("Strongest peaks", esc(c.peaks.map((k) => `${sig(k.frequencyHz, 5)} Hz ${sig(k.level, 3)}`).join(", ") + ` ${densityLabel(c.units)}`)) : ""}
 ${row("Mean / standard deviation", `${sig(s.mean, 4)} / ${qty(sig(s.std, 4), u)}`, "num")}
 ${row("Minimum / maximum", `${sig(s.min, 4)} / ${qty(sig(s.max, 4), u)}`, "num")}
-${row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num")}
-${row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num")}
+${live ? row("Crest factor (max |x − mean| / σ)", fixed(s.crestFactor, 2), "num") : ""}
+${live ? row("Skewness / kurtosis (Gaussian: 0 / 3)", `${fixed(s.skewness, 3)} / ${fixed(s.kurtosis, 3)}`, "num") : ""}
 </table>
 ${histogramOf(c, n)}
 ${c.notes.length ? `<p class="muted">Notes: ${findingTexts(c.notes).map(esc).join("; ")}</p>` : ""}

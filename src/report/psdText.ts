@@ -51,7 +51,15 @@ export function settingsLine(a: RecordingAnalysis): string {
 export function statsLine(c: ChannelAnalysis): string {
   const s = c.stats;
   const u = accelLabel(c.units);
-  return `  samples    mean ${sig(s.mean)} ${u}, std ${sig(s.std)}, min ${sig(s.min)}, max ${sig(s.max)}, crest factor ${fixed(s.crestFactor, 2)} (max |x - mean| / std), skewness ${fixed(s.skewness, 3)}, kurtosis ${fixed(s.kurtosis, 3)}`;
+  const head = `  samples    mean ${sig(s.mean)} ${u}, std ${sig(s.std)}, min ${sig(s.min)}, max ${sig(s.max)}`;
+  // A dead channel has no shape to describe (0 / 0): its NO_SIGNAL doubt says so.
+  if (deadChannel(c)) return head;
+  return `${head}, crest factor ${fixed(s.crestFactor, 2)} (max |x - mean| / std), skewness ${fixed(s.skewness, 3)}, kurtosis ${fixed(s.kurtosis, 3)}`;
+}
+
+/** A channel whose every sample holds one value (NO_SIGNAL): no Parseval ratio or shape figures are shown for it. */
+export function deadChannel(c: ChannelAnalysis): boolean {
+  return c.doubts.some((d) => d.code === "NO_SIGNAL");
 }
 
 export function findingLines(c: ChannelAnalysis): string[] {
@@ -70,9 +78,10 @@ export function psdChannelText(c: ChannelAnalysis, confidence: number): string {
   lines.push(
     `  RMS        ${sig(pv.rmsTime)} ${u} from the time history (trend removed), ${sig(pv.rmsSegments)} ${u} of the detrended segments, ${sig(pv.rmsPsd)} ${u} from the PSD`,
   );
-  lines.push(
-    `  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${parsevalWord(pv) === "agree" ? "agree within" : pv.ok ? "outside" : "DISAGREE within"} ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""}${parsevalWord(pv).startsWith("agree with") ? `; ${parsevalWord(pv)}` : ""})`,
-  );
+  if (!deadChannel(c))
+    lines.push(
+      `  Parseval   PSD / segments ${fixed(pv.ratio, 4)} (${parsevalWord(pv) === "agree" ? "agree within" : pv.ok ? "outside" : "DISAGREE within"} ±${sig(100 * pv.tolerance, 2)} %${pv.toleranceFrom === "record" ? ", the record's own spread" : ""}${parsevalWord(pv).startsWith("agree with") ? `; ${parsevalWord(pv)}` : ""})`,
+    );
   if (p.averages > 0) {
     const f = chiSquareIntervalFactors(p.dof, confidence);
     lines.push(

@@ -114,6 +114,20 @@ describe("no figures from no data, no message that contradicts itself", () => {
     expect(page).toContain("None judged: the channel has no signal.");
   });
 
+  it("psd on a dead channel: the NO_SIGNAL doubt, and no Parseval ratio, crest factor or kurtosis of 0 / 0 (text and page)", async () => {
+    const d = tempDir();
+    writeFileSync(
+      join(d, "dead.csv"),
+      `time,az [g]\n${Array.from({ length: 2048 * 30 }, (_, i) => `${(i / 2048).toFixed(6)},0.5`).join("\n")}\n`,
+    );
+    const html = join(d, "dead-psd.html");
+    const r = await cli("psd", join(d, "dead.csv"), "--report", html);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/DOUBT {6}no signal: all 61440 finite sample\(s\) hold the one value 0\.5/);
+    expect(r.stdout).not.toMatch(/NaN|Parseval|crest factor|kurtosis/);
+    expect(readFileSync(html, "utf8")).not.toMatch(/NaN|Parseval ratio|Crest factor/);
+  });
+
   it("transfer with a dead output channel is NO_VIBRATION naming the file and the channel (was 'NaN % of the mean square')", async () => {
     const d = tempDir();
     const x = gaussian(2048 * 10, 5, 1);
