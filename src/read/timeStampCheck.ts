@@ -135,6 +135,13 @@ export class TimeStampCheck {
         field: name,
         expected: "time stamps that increase",
         received: step === 0 ? `a repeated time ${t / factor}` : `${t / factor} after ${prev / factor}`,
+        // A logger that prints its stamps more coarsely than it samples (200 Hz to 0.01 s) repeats them: the rate
+        // then has to come from the user.
+        ...(step === 0
+          ? {
+              hint: "if the stamps are printed too coarsely to tell the samples apart, read the record without them: --no-time-column with --rate",
+            }
+          : {}),
       });
     }
     if (Math.abs(step - this.dt) > this.tol) {
