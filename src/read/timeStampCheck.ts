@@ -139,7 +139,7 @@ export class TimeStampCheck {
         // then has to come from the user.
         ...(step === 0
           ? {
-              hint: "if the stamps are printed too coarsely to tell the samples apart, read the record without them: --no-time-column with --rate",
+              hint: "if the stamps are printed too coarsely to tell the samples apart, read the record without them: `csv.timeColumn: false` with `csv.sampleRateHz`",
             }
           : {}),
       });
