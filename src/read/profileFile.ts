@@ -513,13 +513,26 @@ export const CSV_PROFILE_DEFAULTS = { bandDb: 3, rmsDb: 1.5 } as const;
 
 /**
  * Two-column CSV (Hz, level) breakpoints; an optional header may name the unit, e.g. `level [(m/s2)2/Hz]`.
- * Comma, semicolon or tab between the fields; with a semicolon or tab, a decimal comma is read too.
+ * Comma, semicolon or tab between the fields; with a semicolon or tab, a decimal comma is read too. A first row
+ * is a header only when none of its fields is a number (a typo in the first breakpoint is an error, never a header
+ * that drops it). Every error names the file's own line (comment and blank lines counted); `lines` holds the
+ * line of each breakpoint, for the spec's errors.
  */
-function profileFromCsv(text: string, file: string): { doc: unknown; defaults: string[] } {
+function profileFromCsv(text: string, file: string): { doc: unknown; defaults: string[]; lines: number[] } {
   const body = text.replace(/^\ufeff/, "");
-  const dataLines = body.split(/\r?\n/).filter((l) => l.trim() !== "" && !l.trim().startsWith("#"));
-  const delimiter = dataLines.some((l) => l.includes(";")) ? ";" : dataLines.some((l) => l.includes("\t")) ? "\t" : ",";
-  const rows = Papa.parse<string[]>(body, { skipEmptyLines: "greedy", comments: "#", delimiter }).data;
+  const all = body.split(/\r?\n/);
+  const kept: number[] = [];
+  all.forEach((l, i) => {
+    if (l.trim() !== "" && !l.trim().startsWith("#")) kept.push(i);
+  });
+  const delimiter = kept.some((i) => all[i]!.includes(";"))
+    ? ";"
+    : kept.some((i) => all[i]!.includes("\t"))
+      ? "\t"
+      : ",";
+  // One line at a time, so that each row keeps its line number (a profile's fields never span lines).
+  const rows = kept.map((i) => Papa.parse<string[]>(all[i]!, { delimiter }).data[0] ?? []);
+  const lineOf = (k: number) => kept[k]! + 1;
   const num = (f: string) => {
     const t = f.trim();
     if (t === "") return NaN;
@@ -528,15 +541,17 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
   };
   let units = "g2/Hz";
   let start = 0;
-  if (rows[0]?.some((f) => Number.isNaN(num(f)))) {
-    units = csvProfileUnits(rows[0], file);
+  const first = rows[0];
+  if (first?.every((f) => Number.isNaN(num(f)))) {
+    units = csvProfileUnits(first, file, lineOf(0));
     start = 1;
   }
   const points = rows.slice(start).map((r, i) => {
+    const line = lineOf(i + start);
     if (r.length !== 2)
       throw new InputError("PROFILE_CSV", {
         file,
-        line: i + start + 1,
+        line,
         expected: "2 fields: frequency in Hz, level",
         received: `${r.length}`,
       });
@@ -544,7 +559,7 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
     if (!Number.isFinite(hz!) || !Number.isFinite(level!))
       throw new InputError("PROFILE_CSV", {
         file,
-        line: i + start + 1,
+        line,
         expected: "two numbers",
         received: describe(r.join(delimiter)),
       });
@@ -564,7 +579,16 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
       `tolerance band ±${d.bandDb} dB and RMS tolerance ±${d.rmsDb} dB (a CSV profile has no place for them; use a JSON or YAML profile to set them)`,
       "no minimum DOF, resolution or duration",
     ],
+    lines: points.map((_, i) => lineOf(i + start)),
   };
+}
+
+/** A PROFILE_INVALID error about points[i] of a CSV profile, with the file's line of that breakpoint added. */
+function withCsvLine(e: unknown, lines: number[]): unknown {
+  if (!(e instanceof InputError) || e.code !== "PROFILE_INVALID" || e.details.line !== undefined) return e;
+  const m = /^points\[(\d+)\]/.exec(e.details.keyPath ?? "");
+  const line = m ? lines[Number(m[1])] : undefined;
+  return line === undefined ? e : new InputError("PROFILE_INVALID", { ...e.details, line });
 }
 
 /**
@@ -574,18 +598,22 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
 export function readProfileSpec(text: string, file: string): ProfileSpec {
   const sha = createHash("sha256").update(text).digest("hex");
   checkProfileSize(text, file);
-  let doc: unknown;
-  let defaults: string[] = [];
-  if (/\.csv$/i.test(file)) ({ doc, defaults } = profileFromCsv(text, file));
-  else
-    doc = strictDocument(
-      text,
-      file,
-      { syntax: "PROFILE_SYNTAX", invalid: "PROFILE_INVALID", tooDeep: "PROFILE_TOO_LARGE" },
-      !/\.ya?ml$/i.test(file),
-      MAX_PROFILE_DEPTH,
-    );
-  return profileSpec(validateProfileDocument(doc, file), file, sha, defaults);
+  if (/\.csv$/i.test(file)) {
+    const { doc, defaults, lines } = profileFromCsv(text, file);
+    try {
+      return profileSpec(validateProfileDocument(doc, file), file, sha, defaults);
+    } catch (e) {
+      throw withCsvLine(e, lines);
+    }
+  }
+  const doc = strictDocument(
+    text,
+    file,
+    { syntax: "PROFILE_SYNTAX", invalid: "PROFILE_INVALID", tooDeep: "PROFILE_TOO_LARGE" },
+    !/\.ya?ml$/i.test(file),
+    MAX_PROFILE_DEPTH,
+  );
+  return profileSpec(validateProfileDocument(doc, file), file, sha);
 }
 
 // ---- Limits on what a profile file may hold (issue #12): size, nesting, tags, number forms, finite arithmetic.
@@ -621,7 +649,7 @@ export function decimalNumber(field: string): number {
  * or `[(m/s2)2/Hz]` (also (m/s^2)^2/Hz, m2/s4/Hz, (m/s²)²/Hz); the frequency column `[Hz]`. Any other
  * unit, such as mg2/Hz, is an error rather than a guess. No unit means g2/Hz.
  */
-function csvProfileUnits(header: string[], file: string): string {
+function csvProfileUnits(header: string[], file: string, line: number): string {
   const unitOf = (f: string) => /[[(]\s*([^\])]*(?:\)[^\])]*)?)\s*[\])]\s*$/.exec(f.trim())?.[1]?.trim();
   const norm = (u: string) =>
     u.replace(/\s+/g, "").replace(/\^/g, "").replace(/²/g, "2").replace(/⁴/g, "4").toLowerCase();
@@ -629,7 +657,7 @@ function csvProfileUnits(header: string[], file: string): string {
   if (hzUnit !== undefined && norm(hzUnit) !== "hz") {
     throw new InputError("PROFILE_CSV", {
       file,
-      line: 1,
+      line,
       column: 1,
       expected: "a frequency column in Hz",
       received: quotedShort(hzUnit),
@@ -642,7 +670,7 @@ function csvProfileUnits(header: string[], file: string): string {
   if (u === "(m/s2)2/hz" || u === "m2/s4/hz" || u === "(m/s/s)2/hz") return "(m/s2)2/Hz";
   throw new InputError("PROFILE_CSV", {
     file,
-    line: 1,
+    line,
     column: 2,
     expected: "a level unit g2/Hz or (m/s2)2/Hz",
     received: quotedShort(levelUnit),

@@ -182,6 +182,37 @@ describe("profile validation names the key path", () => {
     expect(e.code).toBe("PROFILE_CSV");
     expect(e.details.line).toBe(3);
   });
+  const errorOf = (text: string) => {
+    try {
+      readProfileSpec(text, "p.csv");
+    } catch (x) {
+      return x as InputError;
+    }
+    throw new Error("no error");
+  };
+  it("a first row that holds a number is data, never a header: a typo there is an error, not a dropped breakpoint", () => {
+    // Before: "20,0.01x" was taken for a header, the 20 Hz breakpoint dropped, the profile read as 80–2000 Hz.
+    const e = errorOf("20,0.01x\n80,0.04\n2000,0.04\n");
+    expect([e.code, e.details.line]).toEqual(["PROFILE_CSV", 1]);
+    expect(errorOf("# lab\n20;0,01 g\n80;0,04\n2000;0,04\n").details.line).toBe(2);
+    // A header has no number in it; one with units still reads.
+    expect(readProfileSpec("Hz,level [g2/Hz]\n20,0.01\n2000,0.01\n", "p.csv").points).toHaveLength(2);
+  });
+  it("CSV errors name the file's own line, counting comment and blank lines", () => {
+    // Before: the line among the rows Papa kept (here 3), not the file's line 6.
+    const text = "# lab profile\n\nhz,level\n20,0.01\n\n80,abc\n2000,0.04\n";
+    expect([errorOf(text).code, errorOf(text).details.line]).toEqual(["PROFILE_CSV", 6]);
+    expect(errorOf("# c\nHz,level [mg2/Hz]\n20,0.01\n2000,0.01\n").details).toMatchObject({ line: 2, column: 2 });
+    // A breakpoint the spec refuses (level 0, a frequency not rising) names its line as well as its key.
+    expect(errorOf("# c\nhz,level\n20,0.01\n\n80,0\n2000,0.04\n").details).toMatchObject({
+      line: 5,
+      keyPath: "points[1].level",
+    });
+    expect(errorOf("hz,level\n20,0.01\n80,0.04\n80,0.04\n").details).toMatchObject({
+      line: 4,
+      keyPath: "points[2].hz",
+    });
+  });
 });
 
 describe("readProfileSpec limits (issue #12)", () => {
