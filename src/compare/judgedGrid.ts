@@ -14,14 +14,21 @@ import { profileLevel, type TestProfile, type ToleranceBand } from "./testProfil
  * should show (the profile, its band limits and outer limits seen through the analysis window's kernel).
  */
 /**
- * The band of a line; at a shared edge (e.g. exactly 1000 Hz) the tighter band applies (common practice: read a shared
- * edge strictly).
+ * The band of a line; at a shared edge (e.g. exactly 1000 Hz) each side takes the tighter limit of the bands that meet
+ * there (common practice: read a shared edge strictly), so +1/-3 meeting +3/-1 gives +1/-1.
  */
 export function bandAt(bands: ToleranceBand[], f: number): ToleranceBand | undefined {
   let best: ToleranceBand | undefined;
   for (const b of bands) {
-    if (f >= b.fromHz && f <= b.toHz && (best === undefined || b.upperDb + b.lowerDb < best.upperDb + best.lowerDb))
-      best = b;
+    if (!(f >= b.fromHz && f <= b.toHz)) continue;
+    if (best === undefined) best = b;
+    else if (b.upperDb < best.upperDb || b.lowerDb < best.lowerDb)
+      best = {
+        fromHz: f,
+        toHz: f,
+        upperDb: Math.min(b.upperDb, best.upperDb),
+        lowerDb: Math.min(b.lowerDb, best.lowerDb),
+      };
   }
   return best;
 }

@@ -23,6 +23,19 @@ describe("bandAt", () => {
     expect(bandAt(bands, 1000.1)!.upperDb).toBe(3);
     expect(bandAt(bands, 2001)).toBeUndefined();
   });
+  it("at a shared edge of asymmetric bands each side takes the tighter limit (common practice: read a shared edge strictly)", () => {
+    // Before: the band with the smaller sum upper + lower, or the first on a tie: +1/-3 or +2/-1.5 at 1000 Hz.
+    const a = { fromHz: 20, toHz: 1000, upperDb: 1, lowerDb: 3 };
+    expect(bandAt([a, { fromHz: 1000, toHz: 2000, upperDb: 3, lowerDb: 1 }], 1000)).toMatchObject({
+      upperDb: 1,
+      lowerDb: 1,
+    });
+    expect(bandAt([a, { fromHz: 1000, toHz: 2000, upperDb: 2, lowerDb: 1.5 }], 1000)).toMatchObject({
+      upperDb: 1,
+      lowerDb: 1.5,
+    });
+    expect(bandAt([a, { fromHz: 1000, toHz: 2000, upperDb: 2, lowerDb: 1.5 }], 999)).toMatchObject(a);
+  });
 });
 
 describe("longerRecordFactor", () => {
