@@ -9,7 +9,7 @@ import { InputError, type ErrorCode } from "../errors.js";
  * - no custom or language tags (`!!js/function`, `!foo`): refused, not resolved;
  * - numbers are decimal: YAML's hexadecimal, octal and binary integers (`0x14`, `0o17`, `0b1`) are refused
  *   (a mix file's `hours: 0x10` is no more a number of hours than a profile's `hz: 0x14` is a frequency);
- * - aliases capped at 100 (yaml's maxAliasCount), duplicate keys refused.
+ * - aliases capped at 100 (yaml's maxAliasCount), duplicate keys refused (in JSON too: JSON.parse keeps the last).
  * A syntax problem is `codes.syntax` with its line and column; a non-decimal number `codes.invalid`; too
  * deep `codes.tooDeep`.
  */
@@ -79,8 +79,9 @@ function checkDocumentDepth(doc: unknown, file: string, code: ErrorCode, maxDept
 }
 
 function parseJson(text: string, file: string, code: ErrorCode): unknown {
+  let doc: unknown;
   try {
-    return JSON.parse(text);
+    doc = JSON.parse(text);
   } catch (e) {
     const msg = (e as Error).message;
     // V8 gives either "at position N" or a quoted snippet around an unexpected token.
@@ -99,6 +100,39 @@ function parseJson(text: string, file: string, code: ErrorCode): unknown {
       received: msg.replace(/ in JSON at position \d+.*$/, "").replace(/, (\.\.\.)?"[\s\S]*$/, ""),
     });
   }
+  const twice = secondKey(text);
+  if (twice >= 0)
+    throw new InputError(code, { file, ...place(text, twice), expected: "valid JSON", received: KEY_GIVEN_TWICE });
+  return doc;
+}
+
+/**
+ * Where a key comes a second time in one mapping of a valid JSON text, or -1: JSON.parse keeps the last silently
+ * (a profile's second "units" would win), where the YAML reader refuses it. Keys compare as parsed ("\u0061" is "a").
+ */
+function secondKey(text: string): number {
+  const stack: { keys: Set<string> | undefined; expectKey: boolean }[] = [];
+  for (let i = 0; i < text.length; i++) {
+    const c = text[i]!;
+    if (c === "{") stack.push({ keys: new Set(), expectKey: true });
+    else if (c === "[") stack.push({ keys: undefined, expectKey: false });
+    else if (c === "}" || c === "]") stack.pop();
+    else if (c === ",") {
+      const top = stack[stack.length - 1];
+      if (top?.keys) top.expectKey = true;
+    } else if (c === '"') {
+      const start = i;
+      for (i++; text[i] !== '"'; i++) if (text[i] === "\\") i++;
+      const top = stack[stack.length - 1];
+      if (top?.keys && top.expectKey) {
+        const key = JSON.parse(text.slice(start, i + 1)) as string;
+        if (top.keys.has(key)) return start;
+        top.keys.add(key);
+        top.expectKey = false;
+      }
+    }
+  }
+  return -1;
 }
 
 /** What a YAML syntax error says of a key given twice in one mapping (a meta table names it in its own words). */

@@ -10,6 +10,26 @@ import { cli, tempDir } from "../helpers.js";
 const CODES = { syntax: "META_SYNTAX", invalid: "META_INVALID", tooDeep: "META_INVALID" } as const;
 
 describe("one strict reader for profiles, --meta and mix files", () => {
+  it("a key given twice in a JSON mapping is refused as in YAML, at the second key's line and column (JSON.parse keeps the last)", () => {
+    // Before: a profile whose "units" came twice was read with the last one, (m/s2)2/Hz: 4.4497 m/s2 RMS, no error.
+    const profile = (units: string) =>
+      `{"title": "t", "units": "g2/Hz", "points": [{"hz": 20, "level": 0.01}, {"hz": 2000, "level": 0.01}],\n` +
+      `  "tolerance": {"bands": [{"fromHz": 20, "toHz": 2000, "upperDb": 3, "lowerDb": 3}]}, ${units}}`;
+    expect(() => parseProfile(profile('"units": "(m/s2)2/Hz"'), "p.json")).toThrow(
+      /p\.json:2:87: expected valid JSON, received a key given twice in one mapping \[PROFILE_SYNTAX\]/,
+    );
+    // The same key spelt with an escape is the same key; the same name in another mapping, or as a value, is not.
+    expect(() => strictDocument('{"a": 1, "\\u0061": 2}', "m.json", CODES)).toThrow(/key given twice/);
+    expect(strictDocument('{"a": {"a": "a"}, "b": [{"a": 1}, {"a": 2}], "c": "a"}', "m.json", CODES)).toEqual({
+      a: { a: "a" },
+      b: [{ a: 1 }, { a: 2 }],
+      c: "a",
+    });
+    expect(strictDocument('{"s": "x\\"}", "t": "{\\"a\\": 1, \\"a\\": 2}"}', "m.json", CODES)).toEqual({
+      s: 'x"}',
+      t: '{"a": 1, "a": 2}',
+    });
+  });
   it("hexadecimal and octal numbers (YAML 1.2 core; 0b1 is text there) are refused in every kind of file, naming line and column", async () => {
     expect(() => strictDocument("a: 0x10\n", "m.yaml", CODES)).toThrow(
       /m\.yaml:1:4: expected a decimal number, received a hexadecimal number "0x10" \[META_INVALID\]/,
