@@ -273,7 +273,10 @@ export function powerAt(dof: number, p: PowerInputs, req: PowerRequirement = DEF
   const single = p.singleLineShare ?? 1;
   const one = chanceAbove(dof, seenUp, largestUpperFactor(dof, lv.upper.lineTest * single, k));
   const up = largestChance(one, k);
-  const down = chanceBelow(dof, seenDown, lowerFactor(dof, lv.lower.lineTest * single));
+  // Below, the largest shows a line under its threshold only when all k do: P1^k for independent channels, the least
+  // any correlation between them gives (each channel's event is a symmetric convex set of one Gaussian record: the
+  // Gaussian correlation inequality, Royen 2014), as the upper side takes the independent case.
+  const down = chanceBelow(dof, seenDown, lowerFactor(dof, lv.lower.lineTest * single)) ** k;
   const linesAbove = binomialAtLeast(need, looks, up);
   const linesBelow = binomialAtLeast(need, looks, down);
   const nuR = dof * p.rmsDofRatio;
@@ -282,7 +285,10 @@ export function powerAt(dof: number, p: PowerInputs, req: PowerRequirement = DEF
   // r times the null's, tested with nu_eff (moment-matched, as judgeSpectrum tests it).
   const nuRe = nuR * (largestEffectiveDof(dof, k) / dof);
   const rmsAbove = chanceAbove(nuRe, r, upperFactor(nuRe, lv.upper.rmsTest));
-  const rmsBelow = chanceBelow(nuR, 1 / r, lowerFactor(nuR, lv.lower.rmsTest));
+  // Below with k channels all 1/r of the limit: the largest-of mean square reads its mean at the line's DOF high
+  // (largestOfMoments, independent channels: the most it reads high), tested against the plain lower limit.
+  const mu = k > 1 ? largestOfMoments(dof, k).mean : 1;
+  const rmsBelow = chanceBelow(nuRe, mu / r, lowerFactor(nuR, lv.lower.rmsTest));
   return { linesAbove, linesBelow, rmsAbove, rmsBelow, least: Math.min(linesAbove, linesBelow, rmsAbove, rmsBelow) };
 }
 

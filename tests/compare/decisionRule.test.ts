@@ -60,6 +60,18 @@ describe("powerAt and dofForPower", () => {
     expect(powerAt(need, p).least).toBeGreaterThanOrEqual(DECISION_RULE.power);
     expect(powerAt(need * 0.98, p).least).toBeLessThan(DECISION_RULE.power);
   });
+  it("largest of k: a shortfall on every channel is shown only when all k are shown below (P1^k for independent channels, the least any correlation gives: Gaussian correlation inequality, Royen 2014), and the RMS reads its mean high", () => {
+    // Before: the lower power of one channel, 0.4217 at 208.5 DOF for k = 1 and k = 3 alike, so the DOF a pass needs
+    // (470 for the Monte Carlo profile) was one channel's; records at it failed 89 of 100 times, not 95.
+    const one = powerAt(300, p);
+    const three = powerAt(300, { ...p, upperSharedBy: 3 });
+    // A single look (need 1 of n): 1 - (1 - q)^looks per channel chance q; with k channels q^k.
+    const looks = Math.floor(Math.ceil(0.05 * 789) / 3);
+    const q1 = 1 - (1 - one.linesBelow) ** (1 / looks);
+    expect(three.linesBelow).toBeCloseTo(1 - (1 - q1 ** 3) ** looks, 10);
+    expect(powerAt(4, { ...p, upperSharedBy: 3 }).rmsBelow).toBeLessThan(powerAt(4, p).rmsBelow);
+    expect(dofForPower({ ...p, upperSharedBy: 3 })).toBeGreaterThan(dofForPower(p));
+  });
   it("fewer lines need more DOF (fewer looks at a departure), an allowance more again", () => {
     expect(dofForPower({ ...p, lines: 100, rmsDofRatio: 100 / 1.944 })).toBeGreaterThan(dofForPower(p));
     expect(dofForPower({ ...p, allowance: 20 })).toBeGreaterThan(dofForPower(p));
