@@ -179,6 +179,16 @@ export async function checkRecording(
     histogram: options.histogram ?? true,
     accumulators: [...(options.accumulators ?? []), ...(toneAcc ? [toneAcc] : [])],
   });
+  // A record whose Nyquist frequency lies at or below the profile's first frequency shows none of its range: no line,
+  // no RMS (0 against 0), nothing a verdict could rest on. An input error, as ride's and shock's rates too low.
+  const firstHz = profile.breakpoints[0]!.hz;
+  if (!(analysis.input.sampleRateHz / 2 > firstHz)) {
+    throw new InputError("CHECK_RATE_TOO_LOW", {
+      file,
+      expected: `a sample rate above ${2 * firstHz} Hz (twice the profile's first frequency, ${firstHz} Hz)`,
+      received: `${analysis.input.sampleRateHz} Hz`,
+    });
+  }
   const fits = toneAcc ? (analysis.extras[analysis.extras.length - 1] as ToneFit[][]) : undefined;
   if (toneAcc) analysis.extras = analysis.extras.slice(0, -1);
   const judge = (sp: SpectrumUnderTest, f: (ToneFit | undefined)[] | undefined) =>

@@ -174,4 +174,19 @@ describe("no figures from no data, no message that contradicts itself", () => {
       0,
     );
   });
+  it("check of a record whose Nyquist frequency lies below the profile's first frequency is refused (was 'RMS 0 g measured, 0 g required: NaN dB', exit 3)", async () => {
+    const d = tempDir();
+    // 120 s at 32 Hz: Nyquist 16 Hz, below the KB-210 profile's 20 Hz, so the record shows none of its range.
+    const x = gaussian(3840, 7);
+    writeFileSync(
+      join(d, "slow.csv"),
+      `time,az [g]\n${Array.from(x, (v, i) => `${(i / 32).toFixed(5)},${v.toFixed(6)}`).join("\n")}\n`,
+    );
+    const r = await cli("check", join(d, "slow.csv"), "--profile", PROFILE);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(
+      /slow\.csv: expected a sample rate above 40 Hz \(twice the profile's first frequency, 20 Hz\), received 32 Hz \[CHECK_RATE_TOO_LOW\]/,
+    );
+    expect(r.stdout).not.toMatch(/NaN|Infinity/);
+  });
 });
