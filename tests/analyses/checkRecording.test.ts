@@ -1,9 +1,9 @@
-import { writeFileSync } from "node:fs";
+import { readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { checkRecording } from "../../src/analyses/checkRecording.js";
 import { parseProfile } from "../../src/compare/testProfile.js";
-import { tempDir } from "../helpers.js";
+import { python, tempDir } from "../helpers.js";
 import { shapedRecord } from "../shapedRecords.js";
 import { wavBytes } from "../wavBytes.js";
 
@@ -138,5 +138,56 @@ describe("checkRecording with --detrend none", () => {
     expect(codes).not.toContain("DRIFT_DOMINATES");
     expect(codes).not.toContain("CREST_LOW");
     expect(ch.verdict).toBe("pass");
+  });
+});
+
+describe("check with control channels on records made by scipy (KB-210 profile)", () => {
+  // Three independent channels of white Gaussian noise, each filtered to the KB-210 profile's shape with
+  // scipy.signal.firwin2 (16385 taps, Hann) and fftconvolve; channel 2 is 2 dB high over the octave 200-400 Hz
+  // (inside the +-1.5 dB band's range). 40 s at 5120 Hz: the profile's duration, 377 DOF at its 2.5 Hz lines.
+  const file = join(tempDir(), "kb210-three.wav");
+  python(`
+import numpy as np
+from scipy import signal
+from scipy.io import wavfile
+fs = 5120; n = 40 * fs
+f = np.linspace(0, fs / 2, 8193)
+g = np.zeros_like(f)
+a = (f >= 20) & (f <= 100); g[a] = 0.005 * (f[a] / 20) ** (np.log(10) / np.log(5))
+b = (f > 100) & (f <= 1000); g[b] = 0.05
+c = (f > 1000) & (f <= 2000); g[c] = 0.05 * 10 ** (-6.0206 / 10 * np.log2(f[c] / 1000))
+rng = np.random.default_rng(2026)
+out = []
+for ch in range(3):
+    gain = np.sqrt(g * fs / 2)
+    if ch == 1: gain[(f >= 200) & (f <= 400)] *= 10 ** (2 / 20)
+    h = signal.firwin2(16385, f, gain, fs=fs, window="hann")
+    out.append(signal.fftconvolve(rng.standard_normal(n + 16384), h, mode="valid")[:n])
+wavfile.write(${JSON.stringify(file)}, fs, np.stack(out, 1).astype(np.float32))
+`);
+  const kb210 = parseProfile(readFileSync("samples/profiles/kb210-controller.json", "utf8"), "kb210-controller.json");
+  it("each channel alone: the 2 dB octave fails channel 2 and the record; the nominal channels pass", async () => {
+    const r = await checkRecording(file, kb210, { histogram: false });
+    expect(r.channels.map((c) => c.verdict)).toEqual(["pass", "fail", "pass"]);
+    expect(r.verdict).toBe("fail");
+    // The shown excursion lies in the octave (its kernel may reach a line or two past the edges).
+    const shown = r.channels[1]!.lines.filter((l) => l.shown).map((l) => l.frequencyHz);
+    expect(Math.min(...shown)).toBeGreaterThanOrEqual(195);
+    expect(Math.max(...shown)).toBeLessThanOrEqual(405);
+  });
+  it("average of the three: +0.71 dB over the octave (10 log10((10^0.2 + 2) / 3)), inside +-1.5 dB: pass", async () => {
+    const r = await checkRecording(file, kb210, {
+      histogram: false,
+      control: { channels: ["1", "2", "3"], rule: "average" },
+    });
+    expect(r.verdict).toBe("pass");
+  });
+  it("largest of the three: +2 dB over the octave is the largest there: fail", async () => {
+    const r = await checkRecording(file, kb210, {
+      histogram: false,
+      control: { channels: ["1", "2", "3"], rule: "largest" },
+    });
+    expect(r.verdict).toBe("fail");
+    expect(r.control!.judgement.findings.map((f) => f.code)).toContain("LINES_OUTSIDE");
   });
 });
