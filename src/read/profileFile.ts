@@ -514,8 +514,8 @@ export const CSV_PROFILE_DEFAULTS = { bandDb: 3, rmsDb: 1.5 } as const;
 /**
  * Two-column CSV (Hz, level) breakpoints; an optional header may name the unit, e.g. `level [(m/s2)2/Hz]`.
  * Comma, semicolon or tab between the fields; with a semicolon or tab, a decimal comma is read too. A first row
- * is a header only when none of its fields is a number (a typo in the first breakpoint is an error, never a header
- * that drops it). Every error names the file's own line (comment and blank lines counted); `lines` holds the
+ * is a header only when none of its fields is or starts with a number (a typo in the first breakpoint is an error,
+ * never a header that drops it). Every error names the file's own line (comment and blank lines counted); `lines` holds the
  * line of each breakpoint, for the spec's errors.
  */
 function profileFromCsv(text: string, file: string): { doc: unknown; defaults: string[]; lines: number[] } {
@@ -542,7 +542,8 @@ function profileFromCsv(text: string, file: string): { doc: unknown; defaults: s
   let units = "g2/Hz";
   let start = 0;
   const first = rows[0];
-  if (first?.every((f) => Number.isNaN(num(f)))) {
+  // A header names its columns: no field of it is, or starts with, a number ("20 Hz" is a breakpoint with its unit).
+  if (first?.every((f) => Number.isNaN(num(f)) && !/^\s*[+-]?\.?\d/.test(f))) {
     units = csvProfileUnits(first, file, lineOf(0));
     start = 1;
   }

@@ -195,6 +195,8 @@ describe("profile validation names the key path", () => {
     const e = errorOf("20,0.01x\n80,0.04\n2000,0.04\n");
     expect([e.code, e.details.line]).toEqual(["PROFILE_CSV", 1]);
     expect(errorOf("# lab\n20;0,01 g\n80;0,04\n2000;0,04\n").details.line).toBe(2);
+    // Numbers with their units written beside them are no header either.
+    expect(errorOf("20 Hz,0.01 g2/Hz\n80,0.04\n2000,0.04\n").details).toMatchObject({ line: 1 });
     // A header has no number in it; one with units still reads.
     expect(readProfileSpec("Hz,level [g2/Hz]\n20,0.01\n2000,0.01\n", "p.csv").points).toHaveLength(2);
   });
