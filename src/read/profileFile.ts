@@ -348,6 +348,11 @@ function toleranceBands(
     ? coveringBands(doc.tolerance.outerLimits, "tolerance.outerLimits", f0, fN, file)
     : undefined;
   if (outerBands) {
+    // The file's index of each sorted outer band (coveringBands sorts the same way), for the error's key path.
+    const fileIndex = doc.tolerance
+      .outerLimits!.map((b, i) => ({ fromHz: b.fromHz, i }))
+      .sort((a, b) => a.fromHz - b.fromHz)
+      .map((x) => x.i);
     // Outer limits must lie on or outside the band at every frequency: check at every band edge and midpoint.
     const probes = [
       ...bands.flatMap((b) => [b.fromHz, b.toHz, (b.fromHz + b.toHz) / 2]),
@@ -360,7 +365,7 @@ function toleranceBands(
       if (outerBands[o]!.upperDb < inner.upperDb || outerBands[o]!.lowerDb < inner.lowerDb) {
         profileInvalid(
           file,
-          `tolerance.outerLimits[${o}]`,
+          `tolerance.outerLimits[${fileIndex[o]}]`,
           `outer limits at least as wide as the tolerance band at ${f} Hz (+${inner.upperDb}/-${inner.lowerDb} dB)`,
           `+${outerBands[o]!.upperDb}/-${outerBands[o]!.lowerDb} dB`,
         );

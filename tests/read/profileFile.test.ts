@@ -47,6 +47,24 @@ describe("what a profile file states", () => {
         },
       );
     expect(narrow).toThrow(/tolerance.outerLimits\[0\]: expected outer limits at least as wide/);
+    // Listed out of order, the error names the file's own entry (before: its place after sorting, outerLimits[0]).
+    const unsorted = () =>
+      profile(
+        [
+          { hz: 20, level: 0.01 },
+          { hz: 2000, level: 0.01 },
+        ],
+        {
+          tolerance: {
+            bands: [{ fromHz: 20, toHz: 2000, upperDb: 3, lowerDb: 3 }],
+            outerLimits: [
+              { fromHz: 1000, toHz: 2000, upperDb: 6, lowerDb: 6 },
+              { fromHz: 20, toHz: 1000, upperDb: 2, lowerDb: 6 },
+            ],
+          },
+        },
+      );
+    expect(unsorted).toThrow(/tolerance.outerLimits\[1\]: expected outer limits at least as wide .* at 20 Hz/);
   });
   it("rmsPercent 10 becomes +0.83 / -0.92 dB (docs/REFERENCES.md sec. 7)", () => {
     const p = readProfileSpec(
