@@ -44,15 +44,20 @@ const PointSchema = z.strictObject({
     .optional(),
 });
 
+/** Widest band limit, in dB, that keeps 10^(dB/10) finite and meaningful (10^10 in power). */
+export const MAX_TOLERANCE_DB = 100;
+
 const BandSchema = z.strictObject({
   fromHz: positive("a frequency in Hz"),
   toHz: positive("a frequency in Hz"),
   upperDb: z
     .number({ error: "allowed excess in dB (a number >= 0)" })
-    .min(0, { message: "allowed excess in dB >= 0 (both limits are positive numbers)" }),
+    .min(0, { message: "allowed excess in dB >= 0 (both limits are positive numbers)" })
+    .max(MAX_TOLERANCE_DB, { message: `allowed excess of at most ${MAX_TOLERANCE_DB} dB` }),
   lowerDb: z
     .number({ error: "allowed shortfall in dB (a number >= 0)" })
-    .min(0, { message: "allowed shortfall in dB >= 0 (both limits are positive numbers)" }),
+    .min(0, { message: "allowed shortfall in dB >= 0 (both limits are positive numbers)" })
+    .max(MAX_TOLERANCE_DB, { message: `allowed shortfall of at most ${MAX_TOLERANCE_DB} dB` }),
 });
 
 /**

@@ -66,6 +66,24 @@ describe("what a profile file states", () => {
       );
     expect(unsorted).toThrow(/tolerance.outerLimits\[1\]: expected outer limits at least as wide .* at 20 Hz/);
   });
+  it("a band limit above 100 dB names the band as the file lists it (before: its place after sorting, bands[1])", () => {
+    const wide = () =>
+      profile(
+        [
+          { hz: 20, level: 0.01 },
+          { hz: 2000, level: 0.01 },
+        ],
+        {
+          tolerance: {
+            bands: [
+              { fromHz: 1000, toHz: 2000, upperDb: 200, lowerDb: 3 },
+              { fromHz: 20, toHz: 1000, upperDb: 3, lowerDb: 3 },
+            ],
+          },
+        },
+      );
+    expect(wide).toThrow(/tolerance\.bands\[0\]\.upperDb: expected .*at most 100 dB.*\[PROFILE_INVALID\]/);
+  });
   it("rmsPercent 10 becomes +0.83 / -0.92 dB (docs/REFERENCES.md sec. 7)", () => {
     const p = readProfileSpec(
       JSON.stringify({
