@@ -7,6 +7,8 @@ export interface WavSpec {
   /** Interleaved integer codes (PCM) or floats. */
   samples: number[];
   extensible?: boolean;
+  /** WAVE_FORMAT_EXTENSIBLE's wValidBitsPerSample (default: bits); the codes are given already left-justified. */
+  validBits?: number;
   /** Chunks before 'data' (id, body). */
   extraChunks?: [string, Buffer][];
   blockAlign?: number;
@@ -34,7 +36,7 @@ export function wavBytes(s: WavSpec): Buffer {
   fmt.writeUInt16LE(s.bits, 14);
   if (s.extensible) {
     fmt.writeUInt16LE(22, 16);
-    fmt.writeUInt16LE(s.bits, 18);
+    fmt.writeUInt16LE(s.validBits ?? s.bits, 18);
     fmt.writeUInt32LE(0, 20);
     fmt.writeUInt16LE(tag, 24); // SubFormat GUID, first two bytes
     Buffer.from("000000001000800000aa00389b71", "hex").copy(fmt, 26);

@@ -14,7 +14,9 @@ import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js
  *
  * Encodings: PCM 8 (unsigned), 16, 24, 32 bit; IEEE float 32 and 64 bit; both also inside
  * WAVE_FORMAT_EXTENSIBLE (the SubFormat GUID's first two bytes give the tag, the other 14 must be the
- * KSDATAFORMAT_SUBTYPE tail). RF64 and BW64 files (EBU Tech 3306) are read through their ds64 chunk.
+ * KSDATAFORMAT_SUBTYPE tail; fewer valid bits than the container, as 24 in 32, are its most significant ones, so
+ * the full scale is the container's and only the step between codes, the quantum, is the valid bits'). RF64 and
+ * BW64 files (EBU Tech 3306) are read through their ds64 chunk.
  * The whole chunk list is walked in 64 KB windows: a second 'fmt ' or 'data' chunk is an error, not
  * a silent choice. Integers are scaled by
  * 1/2^(bits-1) for both signs, so full scale is +-1 and the scale is linear; 64-bit floats stay 64-bit.
@@ -35,6 +37,11 @@ interface WavFormat {
   sampleRate: number;
   blockAlign: number;
   bits: number;
+  /**
+   * WAVE_FORMAT_EXTENSIBLE's wValidBitsPerSample: the bits of each container that carry the sample, the most
+   * significant ones (24 in a 32-bit container); `bits` elsewhere, and where the field says 0.
+   */
+  validBits: number;
 }
 
 /**
@@ -186,6 +193,8 @@ function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
     });
   const f = Buffer.from(w.r.at(body, Math.min(len, 40)));
   let tag = f.readUInt16LE(0);
+  const bits = f.readUInt16LE(14);
+  let validBits = bits;
   if (tag === 0xfffe) {
     if (f.length < 40)
       throw new InputError("WAV_BAD_FMT", {
@@ -195,6 +204,14 @@ function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
         received: `${len} bytes`,
       });
     tag = f.readUInt16LE(24);
+    validBits = f.readUInt16LE(18) || bits;
+    if (validBits > bits)
+      throw new InputError("WAV_BAD_FMT", {
+        file,
+        chunk: "fmt ",
+        expected: `at most ${bits} valid bits per sample (the container's bits)`,
+        received: `${validBits} valid bits`,
+      });
     if (!f.subarray(26, 40).equals(SUBTYPE_TAIL)) {
       throw new InputError("WAV_UNSUPPORTED_ENCODING", {
         file,
@@ -209,7 +226,8 @@ function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
     channels: f.readUInt16LE(2),
     sampleRate: f.readUInt32LE(4),
     blockAlign: f.readUInt16LE(12),
-    bits: f.readUInt16LE(14),
+    bits,
+    validBits,
   };
 }
 
@@ -389,8 +407,10 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
     closeSync(fd);
   }
   const { fmt, pcm, float, frames } = checkFormat(w);
-  const { channels, sampleRate, bits } = fmt;
+  const { channels, sampleRate, bits, validBits } = fmt;
   const { rf64, dataStart, note } = w;
+  // The codes' step: 2^-(valid bits - 1) of full scale (a 24-bit code left-justified in 32 bits steps by 2^-23).
+  const valid = pcm ? validBits : bits;
   const cal = w.calibration;
   return {
     info: {
@@ -401,7 +421,7 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
       bytes: size,
       channels: Array.from({ length: channels }, (_, i) => ({
         name: `ch${i + 1}`,
-        ...(pcm ? { integerFullScale: true, quantum: 2 ** -(bits - 1) } : {}),
+        ...(pcm ? { integerFullScale: true, quantum: 2 ** -(valid - 1) } : {}),
         ...(cal
           ? {
               declaredUnit: cal.unit.base,
@@ -412,7 +432,8 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
           : {}),
       })),
       layout:
-        `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}` +
+        `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit${valid < bits ? ` (${valid} valid bits)` : ""}, ` +
+        `${channels} channel${channels > 1 ? "s" : ""}` +
         `${cal ? `, calibration chunk: x${cal.scale} ${cal.unit.name}` : ""}${note}`,
     },
     read: (select, sink, onProgress) => readWavData(file, fmt, dataStart, frames, select, sink, onProgress),

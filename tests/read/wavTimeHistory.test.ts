@@ -4,7 +4,7 @@ import { decode } from "wav-decoder";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { openWavTimeHistory } from "../../src/read/wavTimeHistory.js";
-import { cli, maxRelDiff, tempDir } from "../helpers.js";
+import { cli, gaussian, maxRelDiff, python, tempDir } from "../helpers.js";
 import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { createTimeHistoryWriter } from "../../src/report/timeHistoryWriter.js";
 import { wavBytes, type WavSpec } from "../wavBytes.js";
@@ -309,5 +309,41 @@ describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration ch
     const plain = await analyzeRecording(stripped, { segmentLength: 512, inputUnits: "m/s2" });
     expect(withChunk.channels[0]!.units).toBe("m/s2");
     expect(maxRelDiff(withChunk.channels[0]!.psd.psd, plain.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+  });
+});
+
+describe("openWavTimeHistory: WAVE_FORMAT_EXTENSIBLE's valid bits", () => {
+  // 24-bit codes of a quiet record (sigma 1.5 steps), as a DAQ writes them into 32-bit containers: left-justified,
+  // wValidBitsPerSample 24 (Microsoft, WAVEFORMATEXTENSIBLE: the valid bits are the most significant ones).
+  const codes = Array.from(gaussian(65536, 11, 1.5), (v) => Math.round(v));
+  const in32 = () =>
+    file({ bits: 32, channels: 1, samples: codes.map((c) => c * 256), extensible: true, validBits: 24 });
+  it("24 valid bits in 32-bit containers read as scipy.io.wavfile reads them, with the 24-bit step as the quantum", async () => {
+    const p = in32();
+    const src = await openWavTimeHistory(p);
+    expect(src.info.channels[0]!.quantum).toBe(2 ** -23);
+    expect(src.info.layout).toContain("24 valid bits");
+    const ours = (await readAll(p)).channels[0]!;
+    // scipy.io.wavfile.read (scipy 1.17.1): the int32 containers, over 2^31 for full scale
+    const ref = JSON.parse(
+      python(`
+import json, scipy.io.wavfile as wf
+fs, x = wf.read(${JSON.stringify(p)})
+print(json.dumps((x[:64] / 2.0**31).tolist()))`),
+    ) as number[];
+    expect(ours.slice(0, 64)).toEqual(ref);
+  });
+  it("a quiet record in 24-in-32 containers has the doubts of the same codes in a plain 24-bit file (no false clipping)", async () => {
+    const plain = await analyzeRecording(file({ bits: 24, channels: 1, samples: codes }), { segmentLength: 1024 });
+    const ext = await analyzeRecording(in32(), { segmentLength: 1024 });
+    const codesOf = (a: typeof plain) => a.channels[0]!.doubts.map((d) => d.code);
+    expect(codesOf(plain)).not.toContain("CLIPPING");
+    expect(codesOf(ext)).toEqual(codesOf(plain));
+  });
+  it("more valid bits than the container holds is WAV_BAD_FMT naming the field", async () => {
+    const p = file({ bits: 16, channels: 1, samples: [1, 2], extensible: true, validBits: 24 });
+    const e = await openWavTimeHistory(p).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_BAD_FMT");
+    expect((e as InputError).message).toContain("valid bits");
   });
 });
