@@ -17,7 +17,7 @@ import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js
  * KSDATAFORMAT_SUBTYPE tail; fewer valid bits than the container, as 24 in 32, are its most significant ones, so
  * the full scale is the container's and only the step between codes, the quantum, is the valid bits'). RF64 and
  * BW64 files (EBU Tech 3306) are read through their ds64 chunk.
- * The whole chunk list is walked in 64 KB windows: a second 'fmt ' or 'data' chunk is an error, not
+ * The whole chunk list is walked in 64 KB windows: a second 'fmt ', 'data' or 'pgcl' chunk is an error, not
  * a silent choice. Integers are scaled by
  * 1/2^(bits-1) for both signs, so full scale is +-1 and the scale is linear; 64-bit floats stay 64-bit.
  * These are exactly the points where wav-decoder 1.3.0 falls short (see DEVELOPERS.md): it is kept as
@@ -109,6 +109,8 @@ interface ChunkWalk {
   calibration: WavCalibration | undefined;
   /** Said after the layout (an unfinished recording read to the end). */
   note: string;
+  /** The data's length is the file's end, not a size written when the recording was closed. */
+  toEnd: boolean;
 }
 
 /** The 12-byte RIFF/WAVE header: refused unless little-endian RIFF, RF64 or BW64; returns whether RF64/BW64. */
@@ -264,6 +266,7 @@ function dataChunk(w: ChunkWalk, body: number, len: number): number {
     // A streaming recorder writes 0xFFFFFFFF ("size unknown") into a plain RIFF header it cannot go back to: read
     // the samples to the end of the file (whole frames only, after the layout).
     len = size - body;
+    w.toEnd = true;
     w.note =
       ", data size 0xFFFFFFFF in the header (a streamed recording, size not known when written): read to the end of the file";
   } else if (
@@ -273,6 +276,7 @@ function dataChunk(w: ChunkWalk, body: number, len: number): number {
   ) {
     // A recorder that never closed its file leaves the size 0 with the samples after it: read them to the end.
     len = size - body;
+    w.toEnd = true;
     w.note = ", data size 0 in the header (an unfinished recording): read to the end of the file";
   }
   w.dataStart = body;
@@ -302,6 +306,7 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
     dataBytes: 0,
     calibration: undefined,
     note: "",
+    toEnd: false,
   };
   let pos = 12;
   while (pos + 8 <= size) {
@@ -319,8 +324,16 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
       });
     } else if (id === "fmt ") w.fmt = fmtChunk(w, body, len);
     else if (id === "data") len = dataChunk(w, body, len);
-    else if (id === CALIBRATION_CHUNK)
+    else if (id === CALIBRATION_CHUNK) {
+      if (w.calibration !== undefined)
+        throw new InputError("WAV_DUPLICATE_CHUNK", {
+          file,
+          chunk: CALIBRATION_CHUNK,
+          expected: "one calibration chunk",
+          received: `a second '${CALIBRATION_CHUNK}' chunk`,
+        });
       w.calibration = readCalibration(file, Buffer.from(r.at(body, Math.min(len, 4096))).toString("utf8"));
+    }
     pos = body + len + (len & 1);
   }
   return w;
@@ -331,7 +344,8 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
  * channels, block align, rate and the data's length agree; with the encoding's kind and the frames.
  */
 function checkFormat(w: ChunkWalk): { fmt: WavFormat; pcm: boolean; float: boolean; frames: number } {
-  const { file, size, fmt, dataBytes } = w;
+  const { file, size, fmt } = w;
+  let { dataBytes } = w;
   if (fmt === undefined)
     throw new InputError("WAV_NO_FMT", {
       file,
@@ -383,6 +397,12 @@ function checkFormat(w: ChunkWalk): { fmt: WavFormat; pcm: boolean; float: boole
       expected: "a sample rate above 0",
       received: `${sampleRate}`,
     });
+  const rest = dataBytes % blockAlign;
+  if (rest !== 0 && w.toEnd) {
+    // A recording that was never closed may stop inside a frame: its whole frames are read, and the rest is said.
+    dataBytes -= rest;
+    w.note += ` (${rest} byte${rest > 1 ? "s" : ""} after the last whole frame left out)`;
+  }
   const frames = Math.floor(dataBytes / blockAlign);
   if (dataBytes % blockAlign !== 0) {
     throw new InputError("WAV_DATA_TRUNCATED", {

@@ -327,3 +327,43 @@ print(json.dumps((x[:64] / 2.0**31).tolist()))`),
     expect((e as InputError).message).toContain("valid bits");
   });
 });
+
+describe("openWavTimeHistory: no silent choice, and an unfinished recording cut inside a frame", () => {
+  const samples = Array.from({ length: 400 }, (_, i) => Math.round(9000 * Math.sin(i * 0.3)));
+  it("a second calibration chunk is WAV_DUPLICATE_CHUNK (not the last one read, silently)", async () => {
+    const p = file({
+      bits: 16,
+      channels: 2,
+      samples,
+      extraChunks: [
+        ["pgcl", Buffer.from('{"unit":"g","scale":2}')],
+        ["pgcl", Buffer.from('{"unit":"g","scale":5}')],
+      ],
+    });
+    const e = await openWavTimeHistory(p).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_DUPLICATE_CHUNK");
+    expect((e as InputError).message).toContain("chunk 'pgcl'");
+  });
+  for (const [what, size] of [
+    ["0", 0],
+    ["0xFFFFFFFF", 0xffffffff],
+  ] as const) {
+    it(`data size ${what}, the file cut 3 bytes into a 4-byte frame: the whole frames are read, the rest said`, async () => {
+      const b = wavBytes({ bits: 16, channels: 2, samples });
+      const ref = await readAll(file(b));
+      b.writeUInt32LE(size, b.indexOf("data", 12, "latin1") + 4);
+      b.writeUInt32LE(size, 4);
+      const p = file(Buffer.concat([b, Buffer.from([1, 2, 3])]));
+      const src = await openWavTimeHistory(p);
+      expect(src.info.frames).toBe(200);
+      expect(src.info.layout).toContain("3 bytes after the last whole frame left out");
+      expect((await readAll(p)).channels).toEqual(ref.channels);
+    });
+  }
+  it("a data chunk whose size in the header is not whole frames is still WAV_DATA_TRUNCATED", async () => {
+    const b = wavBytes({ bits: 16, channels: 2, samples });
+    b.writeUInt32LE(799, b.indexOf("data", 12, "latin1") + 4);
+    const e = await openWavTimeHistory(file(b)).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_DATA_TRUNCATED");
+  });
+});
