@@ -60,6 +60,8 @@ const SUBTYPE_TAIL = Buffer.from("000000001000800000aa00389b71", "hex");
 /** Size of the windows the chunk walk reads: one read covers many small chunks. */
 const WALK_BYTES = 1 << 16;
 const U32_MAX = 0xffffffff;
+/** The largest plain RIFF file: the RIFF chunk's 32-bit size and its 8-byte header. */
+const RIFF_MAX_BYTES = U32_MAX + 8;
 
 /** Positional reads through a window of WALK_BYTES, so a walk over many small chunks makes few reads. */
 class WindowReader {
@@ -262,7 +264,7 @@ function dataChunk(w: ChunkWalk, body: number, len: number): number {
         received: "none",
       });
     len = w.ds64Data;
-  } else if (!w.rf64 && len === U32_MAX && body + len > size) {
+  } else if (!w.rf64 && len === U32_MAX && (body + len > size || size > RIFF_MAX_BYTES)) {
     // A streaming recorder writes 0xFFFFFFFF ("size unknown") into a plain RIFF header it cannot go back to: read
     // the samples to the end of the file (whole frames only, after the layout).
     len = size - body;
@@ -278,6 +280,14 @@ function dataChunk(w: ChunkWalk, body: number, len: number): number {
     len = size - body;
     w.toEnd = true;
     w.note = ", data size 0 in the header (an unfinished recording): read to the end of the file";
+  } else if (!w.rf64 && size - body - len > U32_MAX) {
+    // A plain RIFF file holds at most 4 GiB + 8 bytes (its sizes are 32-bit). A writer that went on past that wrote
+    // the data size modulo 2^32: the true size is that plus the most whole 4 GiB the file holds after it.
+    const wraps = Math.floor((size - body - len) / 2 ** 32);
+    w.note =
+      `, data size ${len} in the header, ${wraps} x 4 GiB short of the file (a plain RIFF file over 4 GiB, ` +
+      `its 32-bit size wrapped): read as ${len + wraps * 2 ** 32} bytes`;
+    len += wraps * 2 ** 32;
   }
   w.dataStart = body;
   w.dataBytes = len;

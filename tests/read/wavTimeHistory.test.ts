@@ -1,4 +1,4 @@
-import { readFileSync, writeFileSync } from "node:fs";
+import { readFileSync, truncateSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { decode } from "wav-decoder";
 import { describe, expect, it } from "vitest";
@@ -365,5 +365,30 @@ describe("openWavTimeHistory: no silent choice, and an unfinished recording cut 
     b.writeUInt32LE(799, b.indexOf("data", 12, "latin1") + 4);
     const e = await openWavTimeHistory(file(b)).catch((x: unknown) => x);
     expect((e as InputError).code).toBe("WAV_DATA_TRUNCATED");
+  });
+});
+
+describe("openWavTimeHistory: a plain RIFF file over 4 GiB (sparse files, nothing read past the header)", () => {
+  /** A 16-bit stereo RIFF header whose data chunk holds `dataBytes`, with `sizeField` in its 32-bit size. */
+  function bigRiff(dataBytes: number, sizeField: number): string {
+    const h = wavBytes({ bits: 16, channels: 2, samples: [] });
+    h.writeUInt32LE(sizeField, h.indexOf("data", 12, "latin1") + 4);
+    h.writeUInt32LE(sizeField, 4);
+    const p = join(dir, `w${counter++}.wav`);
+    writeFileSync(p, h);
+    truncateSync(p, h.length + dataBytes);
+    return p;
+  }
+  it("a data size wrapped modulo 2^32 (4 GiB + 1000 bytes written as 1000) reads every frame and says so", async () => {
+    const n = 2 ** 32 + 1000;
+    const src = await openWavTimeHistory(bigRiff(n, n % 2 ** 32));
+    expect(src.info.frames).toBe(n / 4);
+    expect(src.info.layout).toContain("wrapped");
+  });
+  it("a data size of 0xFFFFFFFF in a RIFF file longer than that is read to the end of the file", async () => {
+    const n = 2 ** 32 + 1000;
+    const src = await openWavTimeHistory(bigRiff(n, 0xffffffff));
+    expect(src.info.frames).toBe(n / 4);
+    expect(src.info.layout).toContain("data size 0xFFFFFFFF");
   });
 });
