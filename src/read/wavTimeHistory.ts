@@ -113,6 +113,8 @@ interface ChunkWalk {
   note: string;
   /** The data's length is the file's end, not a size written when the recording was closed. */
   toEnd: boolean;
+  /** The chunk whose size took the walk past the file's end, said when fmt or data is then missing. */
+  overrun: string;
 }
 
 /** The 12-byte RIFF/WAVE header: refused unless little-endian RIFF, RF64 or BW64; returns whether RF64/BW64. */
@@ -317,6 +319,7 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
     calibration: undefined,
     note: "",
     toEnd: false,
+    overrun: "",
   };
   let pos = 12;
   while (pos + 8 <= size) {
@@ -345,6 +348,10 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
       w.calibration = readCalibration(file, Buffer.from(r.at(body, Math.min(len, 4096))).toString("utf8"));
     }
     pos = body + len + (len & 1);
+    if (pos > size) {
+      const name = printable(id) ? `'${id}'` : JSON.stringify(id);
+      w.overrun = ` (chunk ${name} at byte ${body - 8} says ${len} bytes, past the file's end)`;
+    }
   }
   return w;
 }
@@ -361,14 +368,14 @@ function checkFormat(w: ChunkWalk): { fmt: WavFormat; pcm: boolean; float: boole
       file,
       chunk: "fmt ",
       expected: "a format chunk",
-      received: size < 20 ? "a truncated header" : "none",
+      received: size < 20 ? "a truncated header" : `none${w.overrun}`,
     });
   if (w.dataStart < 0)
     throw new InputError("WAV_NO_DATA", {
       file,
       chunk: "data",
       expected: "a data chunk",
-      received: "none (the header may be truncated)",
+      received: w.overrun ? `none${w.overrun}` : "none (the header may be truncated)",
     });
   const { tag, channels, sampleRate, blockAlign, bits } = fmt;
   const pcm = tag === 1 && (bits === 8 || bits === 16 || bits === 24 || bits === 32);

@@ -392,3 +392,16 @@ describe("openWavTimeHistory: a plain RIFF file over 4 GiB (sparse files, nothin
     expect(src.info.layout).toContain("data size 0xFFFFFFFF");
   });
 });
+
+describe("openWavTimeHistory: a chunk that runs past the file's end is named", () => {
+  it("a JUNK chunk whose size passes the end hides the fmt chunk: WAV_NO_FMT names the JUNK chunk", async () => {
+    const b = wavBytes({ bits: 16, channels: 1, samples: [1, 2], extraChunks: [] });
+    const junk = Buffer.alloc(8);
+    junk.write("JUNK", 0, "latin1");
+    junk.writeUInt32LE(0x7fffffff, 4);
+    const p = file(Buffer.concat([b.subarray(0, 12), junk, b.subarray(12)]));
+    const e = await openWavTimeHistory(p).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_NO_FMT");
+    expect((e as InputError).message).toContain("chunk 'JUNK' at byte 12 says 2147483647 bytes");
+  });
+});
