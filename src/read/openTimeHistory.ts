@@ -34,12 +34,13 @@ export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): P
       csv.timeColumn !== undefined ||
       csv.delimiter !== undefined ||
       csv.decimal !== undefined ||
+      csv.timeUnit !== undefined ||
       csv.sampleRateHz !== undefined
     ) {
       throw new InputError("OPTION_NOT_FOR_WAV", {
         file,
         expected:
-          "no CSV options (`csv.sampleRateHz`, `csv.timeColumn`, `csv.delimiter`, `csv.decimal`) for a WAV file",
+          "no CSV options (`csv.sampleRateHz`, `csv.timeColumn`, `csv.timeUnit`, `csv.delimiter`, `csv.decimal`) for a WAV file",
         received: "CSV options",
         hint: "a WAV file states its own sample rate",
       });
