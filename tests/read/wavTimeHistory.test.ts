@@ -405,3 +405,57 @@ describe("openWavTimeHistory: a chunk that runs past the file's end is named", (
     expect((e as InputError).message).toContain("chunk 'JUNK' at byte 12 says 2147483647 bytes");
   });
 });
+
+describe("every encoding through the one pass, held to scipy.io.wavfile + scipy.signal.welch (scipy 1.17.1)", () => {
+  it("8, 16, 24, 32-bit PCM, float 32 and 64, and 24 valid bits in 32: window 0.3 to 3.7 s, statistics and PSD", async () => {
+    const fs = 2048;
+    const x = gaussian(2 * 8192, 5, 0.2).map((v) => Math.max(-0.99, Math.min(0.99, v)));
+    const q = (bits: number) => Array.from(x, (v) => Math.round(v * 2 ** (bits - 1)));
+    const files: [string, string][] = [
+      ["u8", file({ bits: 8, channels: 2, samples: q(8).map((c) => c + 128), sampleRate: fs })],
+      ["s16", file({ bits: 16, channels: 2, samples: q(16), sampleRate: fs })],
+      ["s24", file({ bits: 24, channels: 2, samples: q(24), sampleRate: fs })],
+      ["s32", file({ bits: 32, channels: 2, samples: q(32), sampleRate: fs })],
+      ["f32", file({ tag: 3, bits: 32, channels: 2, samples: Array.from(x), sampleRate: fs })],
+      ["f64", file({ tag: 3, bits: 64, channels: 2, samples: Array.from(x), sampleRate: fs })],
+      [
+        "s24in32",
+        file({
+          bits: 32,
+          channels: 2,
+          samples: q(24).map((c) => c * 256),
+          sampleRate: fs,
+          extensible: true,
+          validBits: 24,
+        }),
+      ],
+    ];
+    // Frames i with 0.3 <= i / fs < 3.7 (README, --from/--to): 614.4 <= i < 7577.6, so 615 to 7577.
+    const ref = JSON.parse(
+      python(`
+import json, numpy as np, scipy.io.wavfile as wf, scipy.signal as ss
+out = {}
+for name, p in ${JSON.stringify(files)}:
+    fs, d = wf.read(p)
+    y = (d.astype(float) - 128) / 128 if d.dtype == np.uint8 else d / {np.dtype("int16"): 2.0**15, np.dtype("int32"): 2.0**31}[d.dtype] if d.dtype.kind == "i" else d.astype(float)
+    y = y[615:7578]
+    out[name] = {"fs": int(fs), "n": len(y),
+                 "psd": [ss.welch(y[:, c], fs=fs, window="hann", nperseg=512, noverlap=256, detrend="constant")[1].tolist() for c in (0, 1)],
+                 "mean": y.mean(axis=0).tolist(), "std": y.std(axis=0).tolist(), "max": y.max(axis=0).tolist()}
+print(json.dumps(out))`),
+    ) as Record<string, { fs: number; n: number; psd: number[][]; mean: number[]; std: number[]; max: number[] }>;
+    for (const [name, p] of files) {
+      const r = ref[name]!;
+      const a = await analyzeRecording(p, { segmentLength: 512, fromS: 0.3, toS: 3.7 });
+      expect(a.input.sampleRateHz, name).toBe(r.fs);
+      expect(a.window.frames, name).toBe(r.n);
+      for (const c of [0, 1]) {
+        const ch = a.channels[c]!;
+        expect(maxRelDiff(ch.psd.psd, r.psd[c]!), name).toBeLessThan(1e-12);
+        expect(Math.abs(ch.stats.mean - r.mean[c]!), name).toBeLessThan(1e-15);
+        expect(Math.abs(ch.stats.std / r.std[c]! - 1), name).toBeLessThan(1e-12);
+        expect(ch.stats.max, name).toBe(r.max[c]);
+      }
+    }
+  });
+});
