@@ -1,4 +1,4 @@
-import { readFileSync, truncateSync, writeFileSync } from "node:fs";
+import { readFileSync, truncateSync, unlinkSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { decode } from "wav-decoder";
 import { describe, expect, it } from "vitest";
@@ -381,13 +381,17 @@ describe("openWavTimeHistory: a plain RIFF file over 4 GiB (sparse files, nothin
   }
   it("a data size wrapped modulo 2^32 (4 GiB + 1000 bytes written as 1000) reads every frame and says so", async () => {
     const n = 2 ** 32 + 1000;
-    const src = await openWavTimeHistory(bigRiff(n, n % 2 ** 32));
+    const p = bigRiff(n, n % 2 ** 32);
+    const src = await openWavTimeHistory(p);
+    unlinkSync(p);
     expect(src.info.frames).toBe(n / 4);
     expect(src.info.layout).toContain("wrapped");
   });
   it("a data size of 0xFFFFFFFF in a RIFF file longer than that is read to the end of the file", async () => {
     const n = 2 ** 32 + 1000;
-    const src = await openWavTimeHistory(bigRiff(n, 0xffffffff));
+    const p = bigRiff(n, 0xffffffff);
+    const src = await openWavTimeHistory(p);
+    unlinkSync(p);
     expect(src.info.frames).toBe(n / 4);
     expect(src.info.layout).toContain("data size 0xFFFFFFFF");
   });
