@@ -463,3 +463,16 @@ print(json.dumps(out))`),
     }
   });
 });
+
+describe("openWavTimeHistory: bytes after the data chunk that are not chunks", () => {
+  it("a zero-filled tail (a logger's preallocated file) ends the walk at its first id instead of 8 bytes at a time", async () => {
+    const b = wavBytes({ bits: 16, channels: 1, samples: [100, 200, 300] });
+    // Behind the zeros, a chunk header the walk would reach only by stepping through every zero 'chunk'.
+    const fake = Buffer.from("data\x04\x00\x00\x00\x01\x00\x02\x00", "latin1");
+    const p = file(Buffer.concat([b, Buffer.alloc(1 << 18), fake]));
+    const src = await openWavTimeHistory(p);
+    expect(src.info.frames).toBe(3);
+    expect(src.info.layout).toContain(`${(1 << 18) + fake.length} bytes after the last chunk are not chunks`);
+    expect((await readAll(p)).channels[0]).toEqual([100 / 32768, 200 / 32768, 300 / 32768]);
+  });
+});
