@@ -7,6 +7,8 @@ export interface WavSpec {
   /** Interleaved integer codes (PCM) or floats. */
   samples: number[];
   extensible?: boolean;
+  /** WAVE_FORMAT_EXTENSIBLE's wValidBitsPerSample (default: bits); the codes are given already left-justified. */
+  validBits?: number;
   /** Chunks before 'data' (id, body). */
   extraChunks?: [string, Buffer][];
   blockAlign?: number;
@@ -34,7 +36,7 @@ export function wavBytes(s: WavSpec): Buffer {
   fmt.writeUInt16LE(s.bits, 14);
   if (s.extensible) {
     fmt.writeUInt16LE(22, 16);
-    fmt.writeUInt16LE(s.bits, 18);
+    fmt.writeUInt16LE(s.validBits ?? s.bits, 18);
     fmt.writeUInt32LE(0, 20);
     fmt.writeUInt16LE(tag, 24); // SubFormat GUID, first two bytes
     Buffer.from("000000001000800000aa00389b71", "hex").copy(fmt, 26);
@@ -51,4 +53,24 @@ export function wavBytes(s: WavSpec): Buffer {
   h.write("RIFF", 0, "latin1");
   h.writeUInt32LE(body.length, 4);
   return Buffer.concat([h, body]);
+}
+
+/** A RIFF file rebuilt as RF64 (EBU Tech 3306): a ds64 chunk first, the 32-bit sizes 0xFFFFFFFF. */
+export function asRf64(riff: Buffer, magic = "RF64"): Buffer {
+  const body = riff.subarray(12);
+  const dataAt = body.indexOf("data", 0, "latin1");
+  const dataBytes = body.readUInt32LE(dataAt + 4);
+  const ds64 = Buffer.alloc(36);
+  ds64.write("ds64", 0, "latin1");
+  ds64.writeUInt32LE(28, 4);
+  const copy = Buffer.from(body);
+  copy.writeUInt32LE(0xffffffff, dataAt + 4);
+  const h = Buffer.alloc(12);
+  h.write(magic, 0, "latin1");
+  h.writeUInt32LE(0xffffffff, 4);
+  h.write("WAVE", 8, "latin1");
+  ds64.writeBigUInt64LE(BigInt(4 + 36 + copy.length), 8);
+  ds64.writeBigUInt64LE(BigInt(dataBytes), 16);
+  ds64.writeBigUInt64LE(0n, 24);
+  return Buffer.concat([h, ds64, copy]);
 }

@@ -5,7 +5,10 @@ import { openRegularFile } from "./regularFile.js";
 import type { TimeHistorySource } from "./timeHistory.js";
 import { openWavTimeHistory } from "./wavTimeHistory.js";
 
-/** Open a recording by its content: a RIFF/WAVE signature or a `.wav` name means WAV, anything else text. */
+/**
+ * Open a recording by its content: a RIFF, RIFX, RF64 or BW64 signature (EBU Tech 3306) or a `.wav` name means WAV,
+ * anything else text.
+ */
 export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): Promise<TimeHistorySource> {
   // Only a regular file is opened: a FIFO would block the read for ever, and /dev/zero is a device, not an empty file.
   const { handle: fh } = await openRegularFile(file, "a readable file");
@@ -26,17 +29,18 @@ export async function openTimeHistory(file: string, csv: CsvReadOptions = {}): P
   }
   const sig = magic.toString("latin1");
   let source: TimeHistorySource;
-  if (sig === "RIFF" || sig === "RIFX" || /\.wave?$/i.test(file)) {
+  if (sig === "RIFF" || sig === "RIFX" || sig === "RF64" || sig === "BW64" || /\.wave?$/i.test(file)) {
     if (
       csv.timeColumn !== undefined ||
       csv.delimiter !== undefined ||
       csv.decimal !== undefined ||
+      csv.timeUnit !== undefined ||
       csv.sampleRateHz !== undefined
     ) {
       throw new InputError("OPTION_NOT_FOR_WAV", {
         file,
         expected:
-          "no CSV options (`csv.sampleRateHz`, `csv.timeColumn`, `csv.delimiter`, `csv.decimal`) for a WAV file",
+          "no CSV options (`csv.sampleRateHz`, `csv.timeColumn`, `csv.timeUnit`, `csv.delimiter`, `csv.decimal`) for a WAV file",
         received: "CSV options",
         hint: "a WAV file states its own sample rate",
       });

@@ -14,8 +14,10 @@ import type { BlockSink, ReadSummary, TimeHistorySource } from "./timeHistory.js
  *
  * Encodings: PCM 8 (unsigned), 16, 24, 32 bit; IEEE float 32 and 64 bit; both also inside
  * WAVE_FORMAT_EXTENSIBLE (the SubFormat GUID's first two bytes give the tag, the other 14 must be the
- * KSDATAFORMAT_SUBTYPE tail). RF64 and BW64 files (EBU Tech 3306) are read through their ds64 chunk.
- * The whole chunk list is walked in 64 KB windows: a second 'fmt ' or 'data' chunk is an error, not
+ * KSDATAFORMAT_SUBTYPE tail; fewer valid bits than the container, as 24 in 32, are its most significant ones, so
+ * the full scale is the container's and only the step between codes, the quantum, is the valid bits'). RF64 and
+ * BW64 files (EBU Tech 3306) are read through their ds64 chunk.
+ * The whole chunk list is walked in 64 KB windows: a second 'fmt ', 'data' or 'pgcl' chunk is an error, not
  * a silent choice. Integers are scaled by
  * 1/2^(bits-1) for both signs, so full scale is +-1 and the scale is linear; 64-bit floats stay 64-bit.
  * These are exactly the points where wav-decoder 1.3.0 falls short (see DEVELOPERS.md): it is kept as
@@ -35,6 +37,11 @@ interface WavFormat {
   sampleRate: number;
   blockAlign: number;
   bits: number;
+  /**
+   * WAVE_FORMAT_EXTENSIBLE's wValidBitsPerSample: the bits of each container that carry the sample, the most
+   * significant ones (24 in a 32-bit container); `bits` elsewhere, and where the field says 0.
+   */
+  validBits: number;
 }
 
 /**
@@ -53,6 +60,8 @@ const SUBTYPE_TAIL = Buffer.from("000000001000800000aa00389b71", "hex");
 /** Size of the windows the chunk walk reads: one read covers many small chunks. */
 const WALK_BYTES = 1 << 16;
 const U32_MAX = 0xffffffff;
+/** The largest plain RIFF file: the RIFF chunk's 32-bit size and its 8-byte header. */
+const RIFF_MAX_BYTES = U32_MAX + 8;
 
 /** Positional reads through a window of WALK_BYTES, so a walk over many small chunks makes few reads. */
 class WindowReader {
@@ -102,6 +111,10 @@ interface ChunkWalk {
   calibration: WavCalibration | undefined;
   /** Said after the layout (an unfinished recording read to the end). */
   note: string;
+  /** The data's length is the file's end, not a size written when the recording was closed. */
+  toEnd: boolean;
+  /** The chunk whose size took the walk past the file's end, said when fmt or data is then missing. */
+  overrun: string;
 }
 
 /** The 12-byte RIFF/WAVE header: refused unless little-endian RIFF, RF64 or BW64; returns whether RF64/BW64. */
@@ -186,6 +199,8 @@ function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
     });
   const f = Buffer.from(w.r.at(body, Math.min(len, 40)));
   let tag = f.readUInt16LE(0);
+  const bits = f.readUInt16LE(14);
+  let validBits = bits;
   if (tag === 0xfffe) {
     if (f.length < 40)
       throw new InputError("WAV_BAD_FMT", {
@@ -195,6 +210,14 @@ function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
         received: `${len} bytes`,
       });
     tag = f.readUInt16LE(24);
+    validBits = f.readUInt16LE(18) || bits;
+    if (validBits > bits)
+      throw new InputError("WAV_BAD_FMT", {
+        file,
+        chunk: "fmt ",
+        expected: `at most ${bits} valid bits per sample (the container's bits)`,
+        received: `${validBits} valid bits`,
+      });
     if (!f.subarray(26, 40).equals(SUBTYPE_TAIL)) {
       throw new InputError("WAV_UNSUPPORTED_ENCODING", {
         file,
@@ -209,7 +232,8 @@ function fmtChunk(w: ChunkWalk, body: number, len: number): WavFormat {
     channels: f.readUInt16LE(2),
     sampleRate: f.readUInt32LE(4),
     blockAlign: f.readUInt16LE(12),
-    bits: f.readUInt16LE(14),
+    bits,
+    validBits,
   };
 }
 
@@ -242,10 +266,11 @@ function dataChunk(w: ChunkWalk, body: number, len: number): number {
         received: "none",
       });
     len = w.ds64Data;
-  } else if (!w.rf64 && len === U32_MAX && body + len > size) {
+  } else if (!w.rf64 && len === U32_MAX && (body + len > size || size > RIFF_MAX_BYTES)) {
     // A streaming recorder writes 0xFFFFFFFF ("size unknown") into a plain RIFF header it cannot go back to: read
     // the samples to the end of the file (whole frames only, after the layout).
     len = size - body;
+    w.toEnd = true;
     w.note =
       ", data size 0xFFFFFFFF in the header (a streamed recording, size not known when written): read to the end of the file";
   } else if (
@@ -255,7 +280,16 @@ function dataChunk(w: ChunkWalk, body: number, len: number): number {
   ) {
     // A recorder that never closed its file leaves the size 0 with the samples after it: read them to the end.
     len = size - body;
+    w.toEnd = true;
     w.note = ", data size 0 in the header (an unfinished recording): read to the end of the file";
+  } else if (!w.rf64 && size - body - len > U32_MAX) {
+    // A plain RIFF file holds at most 4 GiB + 8 bytes (its sizes are 32-bit). A writer that went on past that wrote
+    // the data size modulo 2^32: the true size is that plus the most whole 4 GiB the file holds after it.
+    const wraps = Math.floor((size - body - len) / 2 ** 32);
+    w.note =
+      `, data size ${len} in the header, ${wraps} x 4 GiB short of the file (a plain RIFF file over 4 GiB, ` +
+      `its 32-bit size wrapped): read as ${len + wraps * 2 ** 32} bytes`;
+    len += wraps * 2 ** 32;
   }
   w.dataStart = body;
   w.dataBytes = len;
@@ -284,6 +318,8 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
     dataBytes: 0,
     calibration: undefined,
     note: "",
+    toEnd: false,
+    overrun: "",
   };
   let pos = 12;
   while (pos + 8 <= size) {
@@ -291,6 +327,12 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
     const id = ch.toString("latin1", 0, 4);
     let len = ch.readUInt32LE(4);
     const body = pos + 8;
+    if (w.dataStart >= 0 && !printable(id)) {
+      // Chunk ids are four printable characters: after the data, anything else (a logger's preallocated zeros, a
+      // longer file written over) is not chunks. Walking it as 8-byte empty chunks took 10 s for 256 MB of zeros.
+      w.note += `, ${size - pos} bytes after the last chunk are not chunks (hashed, not read)`;
+      break;
+    }
     if (id === "ds64") w.ds64Data = ds64Chunk(w, pos, len);
     else if (rf64 && pos === 12) {
       throw new InputError("WAV_BAD_DS64", {
@@ -301,9 +343,21 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
       });
     } else if (id === "fmt ") w.fmt = fmtChunk(w, body, len);
     else if (id === "data") len = dataChunk(w, body, len);
-    else if (id === CALIBRATION_CHUNK)
+    else if (id === CALIBRATION_CHUNK) {
+      if (w.calibration !== undefined)
+        throw new InputError("WAV_DUPLICATE_CHUNK", {
+          file,
+          chunk: CALIBRATION_CHUNK,
+          expected: "one calibration chunk",
+          received: `a second '${CALIBRATION_CHUNK}' chunk`,
+        });
       w.calibration = readCalibration(file, Buffer.from(r.at(body, Math.min(len, 4096))).toString("utf8"));
+    }
     pos = body + len + (len & 1);
+    if (pos > size) {
+      const name = printable(id) ? `'${id}'` : JSON.stringify(id);
+      w.overrun = ` (chunk ${name} at byte ${body - 8} says ${len} bytes, past the file's end)`;
+    }
   }
   return w;
 }
@@ -313,20 +367,21 @@ function walkChunks(file: string, r: WindowReader, size: number, rf64: boolean):
  * channels, block align, rate and the data's length agree; with the encoding's kind and the frames.
  */
 function checkFormat(w: ChunkWalk): { fmt: WavFormat; pcm: boolean; float: boolean; frames: number } {
-  const { file, size, fmt, dataBytes } = w;
+  const { file, size, fmt } = w;
+  let { dataBytes } = w;
   if (fmt === undefined)
     throw new InputError("WAV_NO_FMT", {
       file,
       chunk: "fmt ",
       expected: "a format chunk",
-      received: size < 20 ? "a truncated header" : "none",
+      received: size < 20 ? "a truncated header" : `none${w.overrun}`,
     });
   if (w.dataStart < 0)
     throw new InputError("WAV_NO_DATA", {
       file,
       chunk: "data",
       expected: "a data chunk",
-      received: "none (the header may be truncated)",
+      received: w.overrun ? `none${w.overrun}` : "none (the header may be truncated)",
     });
   const { tag, channels, sampleRate, blockAlign, bits } = fmt;
   const pcm = tag === 1 && (bits === 8 || bits === 16 || bits === 24 || bits === 32);
@@ -365,6 +420,12 @@ function checkFormat(w: ChunkWalk): { fmt: WavFormat; pcm: boolean; float: boole
       expected: "a sample rate above 0",
       received: `${sampleRate}`,
     });
+  const rest = dataBytes % blockAlign;
+  if (rest !== 0 && w.toEnd) {
+    // A recording that was never closed may stop inside a frame: its whole frames are read, and the rest is said.
+    dataBytes -= rest;
+    w.note += ` (${rest} byte${rest > 1 ? "s" : ""} after the last whole frame left out)`;
+  }
   const frames = Math.floor(dataBytes / blockAlign);
   if (dataBytes % blockAlign !== 0) {
     throw new InputError("WAV_DATA_TRUNCATED", {
@@ -389,8 +450,10 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
     closeSync(fd);
   }
   const { fmt, pcm, float, frames } = checkFormat(w);
-  const { channels, sampleRate, bits } = fmt;
+  const { channels, sampleRate, bits, validBits } = fmt;
   const { rf64, dataStart, note } = w;
+  // The codes' step: 2^-(valid bits - 1) of full scale (a 24-bit code left-justified in 32 bits steps by 2^-23).
+  const valid = pcm ? validBits : bits;
   const cal = w.calibration;
   return {
     info: {
@@ -401,7 +464,7 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
       bytes: size,
       channels: Array.from({ length: channels }, (_, i) => ({
         name: `ch${i + 1}`,
-        ...(pcm ? { integerFullScale: true, quantum: 2 ** -(bits - 1) } : {}),
+        ...(pcm ? { integerFullScale: true, quantum: 2 ** -(valid - 1) } : {}),
         ...(cal
           ? {
               declaredUnit: cal.unit.base,
@@ -412,7 +475,8 @@ export async function openWavTimeHistory(file: string): Promise<TimeHistorySourc
           : {}),
       })),
       layout:
-        `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit, ${channels} channel${channels > 1 ? "s" : ""}` +
+        `${rf64 ? "RF64 " : ""}WAV, ${float ? "IEEE float" : "PCM"} ${bits}-bit${valid < bits ? ` (${valid} valid bits)` : ""}, ` +
+        `${channels} channel${channels > 1 ? "s" : ""}` +
         `${cal ? `, calibration chunk: x${cal.scale} ${cal.unit.name}` : ""}${note}`,
     },
     read: (select, sink, onProgress) => readWavData(file, fmt, dataStart, frames, select, sink, onProgress),

@@ -1,7 +1,7 @@
 import { execFileSync } from "node:child_process";
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { wavBytes } from "../wavBytes.js";
+import { asRf64, wavBytes } from "../wavBytes.js";
 
 /** The corpus cases that are binary or large: written into `dir` at test time. */
 export function generateCases(dir: string): void {
@@ -76,6 +76,27 @@ export function generateCases(dir: string): void {
     join(dir, "odd-chunk.wav"),
     wavBytes({ bits: 16, channels: 1, samples: pcm(64), extraChunks: [["LIST", Buffer.from("odd")]] }),
   );
+  writeFileSync(
+    join(dir, "two-calibrations.wav"),
+    wavBytes({
+      bits: 16,
+      channels: 1,
+      samples: pcm(64),
+      extraChunks: [
+        ["pgcl", Buffer.from('{"unit":"g","scale":2}')],
+        ["pgcl", Buffer.from('{"unit":"g","scale":5}')],
+      ],
+    }),
+  );
+  writeFileSync(
+    join(dir, "valid-bits-over.wav"),
+    wavBytes({ bits: 16, channels: 1, samples: pcm(64), extensible: true, validBits: 24 }),
+  );
+  const unfinished = wavBytes({ bits: 16, channels: 2, samples: pcm(128) });
+  unfinished.writeUInt32LE(0, unfinished.indexOf("data", 12, "latin1") + 4);
+  unfinished.writeUInt32LE(0, 4);
+  writeFileSync(join(dir, "unfinished-cut-frame.wav"), Buffer.concat([unfinished, Buffer.from([7, 7, 7])]));
+  writeFileSync(join(dir, "no-wav-name.rf64"), asRf64(wavBytes({ bits: 16, channels: 1, samples: pcm(64) })));
   // Issue #12: hostile inputs. Named pipes (they must never block a read), memory bombs, deep profiles.
   execFileSync("mkfifo", [join(dir, "fifo.csv"), join(dir, "fifo-profile.json"), join(dir, "fifo-list.txt")]);
   const wide = (n: number, name: (i: number) => string) =>

@@ -1,13 +1,13 @@
-import { readFileSync, writeFileSync } from "node:fs";
+import { readFileSync, truncateSync, unlinkSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { decode } from "wav-decoder";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../../src/errors.js";
 import { openWavTimeHistory } from "../../src/read/wavTimeHistory.js";
-import { cli, maxRelDiff, tempDir } from "../helpers.js";
+import { cli, gaussian, maxRelDiff, python, tempDir } from "../helpers.js";
 import { analyzeRecording } from "../../src/pass/analyzeRecording.js";
 import { createTimeHistoryWriter } from "../../src/report/timeHistoryWriter.js";
-import { wavBytes, type WavSpec } from "../wavBytes.js";
+import { asRf64, wavBytes, type WavSpec } from "../wavBytes.js";
 
 const dir = tempDir();
 let counter = 0;
@@ -171,26 +171,6 @@ describe("openWavTimeHistory errors name the chunk", () => {
   }
 });
 
-/** A RIFF file rebuilt as RF64 (EBU Tech 3306): a ds64 chunk first, the 32-bit sizes 0xFFFFFFFF. */
-function asRf64(riff: Buffer, magic = "RF64"): Buffer {
-  const body = riff.subarray(12);
-  const dataAt = body.indexOf("data", 0, "latin1");
-  const dataBytes = body.readUInt32LE(dataAt + 4);
-  const ds64 = Buffer.alloc(36);
-  ds64.write("ds64", 0, "latin1");
-  ds64.writeUInt32LE(28, 4);
-  const copy = Buffer.from(body);
-  copy.writeUInt32LE(0xffffffff, dataAt + 4);
-  const h = Buffer.alloc(12);
-  h.write(magic, 0, "latin1");
-  h.writeUInt32LE(0xffffffff, 4);
-  h.write("WAVE", 8, "latin1");
-  ds64.writeBigUInt64LE(BigInt(4 + 36 + copy.length), 8);
-  ds64.writeBigUInt64LE(BigInt(dataBytes), 16);
-  ds64.writeBigUInt64LE(0n, 24);
-  return Buffer.concat([h, ds64, copy]);
-}
-
 describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration chunk", () => {
   const samples = Array.from({ length: 400 }, (_, i) => Math.round(9000 * Math.sin(i * 0.3)));
   it("an RF64 and a BW64 file (ds64 chunk written here, EBU Tech 3306) read as the same samples as the RIFF file", async () => {
@@ -309,5 +289,190 @@ describe("openWavTimeHistory: RF64/BW64, chunk walking, psdgate's calibration ch
     const plain = await analyzeRecording(stripped, { segmentLength: 512, inputUnits: "m/s2" });
     expect(withChunk.channels[0]!.units).toBe("m/s2");
     expect(maxRelDiff(withChunk.channels[0]!.psd.psd, plain.channels[0]!.psd.psd)).toBeLessThanOrEqual(1e-12);
+  });
+});
+
+describe("openWavTimeHistory: WAVE_FORMAT_EXTENSIBLE's valid bits", () => {
+  // 24-bit codes of a quiet record (sigma 1.5 steps), as a DAQ writes them into 32-bit containers: left-justified,
+  // wValidBitsPerSample 24 (Microsoft, WAVEFORMATEXTENSIBLE: the valid bits are the most significant ones).
+  const codes = Array.from(gaussian(65536, 11, 1.5), (v) => Math.round(v));
+  const in32 = () =>
+    file({ bits: 32, channels: 1, samples: codes.map((c) => c * 256), extensible: true, validBits: 24 });
+  it("24 valid bits in 32-bit containers read as scipy.io.wavfile reads them, with the 24-bit step as the quantum", async () => {
+    const p = in32();
+    const src = await openWavTimeHistory(p);
+    expect(src.info.channels[0]!.quantum).toBe(2 ** -23);
+    expect(src.info.layout).toContain("24 valid bits");
+    const ours = (await readAll(p)).channels[0]!;
+    // scipy.io.wavfile.read (scipy 1.17.1): the int32 containers, over 2^31 for full scale
+    const ref = JSON.parse(
+      python(`
+import json, scipy.io.wavfile as wf
+fs, x = wf.read(${JSON.stringify(p)})
+print(json.dumps((x[:64] / 2.0**31).tolist()))`),
+    ) as number[];
+    expect(ours.slice(0, 64)).toEqual(ref);
+  });
+  it("a quiet record in 24-in-32 containers has the doubts of the same codes in a plain 24-bit file (no false clipping)", async () => {
+    const plain = await analyzeRecording(file({ bits: 24, channels: 1, samples: codes }), { segmentLength: 1024 });
+    const ext = await analyzeRecording(in32(), { segmentLength: 1024 });
+    const codesOf = (a: typeof plain) => a.channels[0]!.doubts.map((d) => d.code);
+    expect(codesOf(plain)).not.toContain("CLIPPING");
+    expect(codesOf(ext)).toEqual(codesOf(plain));
+  });
+  it("more valid bits than the container holds is WAV_BAD_FMT naming the field", async () => {
+    const p = file({ bits: 16, channels: 1, samples: [1, 2], extensible: true, validBits: 24 });
+    const e = await openWavTimeHistory(p).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_BAD_FMT");
+    expect((e as InputError).message).toContain("valid bits");
+  });
+});
+
+describe("openWavTimeHistory: no silent choice, and an unfinished recording cut inside a frame", () => {
+  const samples = Array.from({ length: 400 }, (_, i) => Math.round(9000 * Math.sin(i * 0.3)));
+  it("a second calibration chunk is WAV_DUPLICATE_CHUNK (not the last one read, silently)", async () => {
+    const p = file({
+      bits: 16,
+      channels: 2,
+      samples,
+      extraChunks: [
+        ["pgcl", Buffer.from('{"unit":"g","scale":2}')],
+        ["pgcl", Buffer.from('{"unit":"g","scale":5}')],
+      ],
+    });
+    const e = await openWavTimeHistory(p).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_DUPLICATE_CHUNK");
+    expect((e as InputError).message).toContain("chunk 'pgcl'");
+  });
+  for (const [what, size] of [
+    ["0", 0],
+    ["0xFFFFFFFF", 0xffffffff],
+  ] as const) {
+    it(`data size ${what}, the file cut 3 bytes into a 4-byte frame: the whole frames are read, the rest said`, async () => {
+      const b = wavBytes({ bits: 16, channels: 2, samples });
+      const ref = await readAll(file(b));
+      b.writeUInt32LE(size, b.indexOf("data", 12, "latin1") + 4);
+      b.writeUInt32LE(size, 4);
+      const p = file(Buffer.concat([b, Buffer.from([1, 2, 3])]));
+      const src = await openWavTimeHistory(p);
+      expect(src.info.frames).toBe(200);
+      expect(src.info.layout).toContain("3 bytes after the last whole frame left out");
+      expect((await readAll(p)).channels).toEqual(ref.channels);
+    });
+  }
+  it("a data chunk whose size in the header is not whole frames is still WAV_DATA_TRUNCATED", async () => {
+    const b = wavBytes({ bits: 16, channels: 2, samples });
+    b.writeUInt32LE(799, b.indexOf("data", 12, "latin1") + 4);
+    const e = await openWavTimeHistory(file(b)).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_DATA_TRUNCATED");
+  });
+});
+
+describe("openWavTimeHistory: a plain RIFF file over 4 GiB (sparse files, nothing read past the header)", () => {
+  /** A 16-bit stereo RIFF header whose data chunk holds `dataBytes`, with `sizeField` in its 32-bit size. */
+  function bigRiff(dataBytes: number, sizeField: number): string {
+    const h = wavBytes({ bits: 16, channels: 2, samples: [] });
+    h.writeUInt32LE(sizeField, h.indexOf("data", 12, "latin1") + 4);
+    h.writeUInt32LE(sizeField, 4);
+    const p = join(dir, `w${counter++}.wav`);
+    writeFileSync(p, h);
+    truncateSync(p, h.length + dataBytes);
+    return p;
+  }
+  it("a data size wrapped modulo 2^32 (4 GiB + 1000 bytes written as 1000) reads every frame and says so", async () => {
+    const n = 2 ** 32 + 1000;
+    const p = bigRiff(n, n % 2 ** 32);
+    const src = await openWavTimeHistory(p);
+    unlinkSync(p);
+    expect(src.info.frames).toBe(n / 4);
+    expect(src.info.layout).toContain("wrapped");
+  });
+  it("a data size of 0xFFFFFFFF in a RIFF file longer than that is read to the end of the file", async () => {
+    const n = 2 ** 32 + 1000;
+    const p = bigRiff(n, 0xffffffff);
+    const src = await openWavTimeHistory(p);
+    unlinkSync(p);
+    expect(src.info.frames).toBe(n / 4);
+    expect(src.info.layout).toContain("data size 0xFFFFFFFF");
+  });
+});
+
+describe("openWavTimeHistory: a chunk that runs past the file's end is named", () => {
+  it("a JUNK chunk whose size passes the end hides the fmt chunk: WAV_NO_FMT names the JUNK chunk", async () => {
+    const b = wavBytes({ bits: 16, channels: 1, samples: [1, 2], extraChunks: [] });
+    const junk = Buffer.alloc(8);
+    junk.write("JUNK", 0, "latin1");
+    junk.writeUInt32LE(0x7fffffff, 4);
+    const p = file(Buffer.concat([b.subarray(0, 12), junk, b.subarray(12)]));
+    const e = await openWavTimeHistory(p).catch((x: unknown) => x);
+    expect((e as InputError).code).toBe("WAV_NO_FMT");
+    expect((e as InputError).message).toContain("chunk 'JUNK' at byte 12 says 2147483647 bytes");
+  });
+});
+
+describe("every encoding through the one pass, held to scipy.io.wavfile + scipy.signal.welch (scipy 1.17.1)", () => {
+  it("8, 16, 24, 32-bit PCM, float 32 and 64, and 24 valid bits in 32: window 0.3 to 3.7 s, statistics and PSD", async () => {
+    const fs = 2048;
+    const x = gaussian(2 * 8192, 5, 0.2).map((v) => Math.max(-0.99, Math.min(0.99, v)));
+    const q = (bits: number) => Array.from(x, (v) => Math.round(v * 2 ** (bits - 1)));
+    const files: [string, string][] = [
+      ["u8", file({ bits: 8, channels: 2, samples: q(8).map((c) => c + 128), sampleRate: fs })],
+      ["s16", file({ bits: 16, channels: 2, samples: q(16), sampleRate: fs })],
+      ["s24", file({ bits: 24, channels: 2, samples: q(24), sampleRate: fs })],
+      ["s32", file({ bits: 32, channels: 2, samples: q(32), sampleRate: fs })],
+      ["f32", file({ tag: 3, bits: 32, channels: 2, samples: Array.from(x), sampleRate: fs })],
+      ["f64", file({ tag: 3, bits: 64, channels: 2, samples: Array.from(x), sampleRate: fs })],
+      [
+        "s24in32",
+        file({
+          bits: 32,
+          channels: 2,
+          samples: q(24).map((c) => c * 256),
+          sampleRate: fs,
+          extensible: true,
+          validBits: 24,
+        }),
+      ],
+    ];
+    // Frames i with 0.3 <= i / fs < 3.7 (README, --from/--to): 614.4 <= i < 7577.6, so 615 to 7577.
+    const ref = JSON.parse(
+      python(`
+import json, numpy as np, scipy.io.wavfile as wf, scipy.signal as ss
+out = {}
+for name, p in ${JSON.stringify(files)}:
+    fs, d = wf.read(p)
+    y = (d.astype(float) - 128) / 128 if d.dtype == np.uint8 else d / {np.dtype("int16"): 2.0**15, np.dtype("int32"): 2.0**31}[d.dtype] if d.dtype.kind == "i" else d.astype(float)
+    y = y[615:7578]
+    out[name] = {"fs": int(fs), "n": len(y),
+                 "psd": [ss.welch(y[:, c], fs=fs, window="hann", nperseg=512, noverlap=256, detrend="constant")[1].tolist() for c in (0, 1)],
+                 "mean": y.mean(axis=0).tolist(), "std": y.std(axis=0).tolist(), "max": y.max(axis=0).tolist()}
+print(json.dumps(out))`),
+    ) as Record<string, { fs: number; n: number; psd: number[][]; mean: number[]; std: number[]; max: number[] }>;
+    for (const [name, p] of files) {
+      const r = ref[name]!;
+      const a = await analyzeRecording(p, { segmentLength: 512, fromS: 0.3, toS: 3.7 });
+      expect(a.input.sampleRateHz, name).toBe(r.fs);
+      expect(a.window.frames, name).toBe(r.n);
+      for (const c of [0, 1]) {
+        const ch = a.channels[c]!;
+        expect(maxRelDiff(ch.psd.psd, r.psd[c]!), name).toBeLessThan(1e-12);
+        expect(Math.abs(ch.stats.mean - r.mean[c]!), name).toBeLessThan(1e-15);
+        expect(Math.abs(ch.stats.std / r.std[c]! - 1), name).toBeLessThan(1e-12);
+        expect(ch.stats.max, name).toBe(r.max[c]);
+      }
+    }
+  });
+});
+
+describe("openWavTimeHistory: bytes after the data chunk that are not chunks", () => {
+  it("a zero-filled tail (a logger's preallocated file) ends the walk at its first id instead of 8 bytes at a time", async () => {
+    const b = wavBytes({ bits: 16, channels: 1, samples: [100, 200, 300] });
+    // Behind the zeros, a chunk header the walk would reach only by stepping through every zero 'chunk'.
+    const fake = Buffer.from("data\x04\x00\x00\x00\x01\x00\x02\x00", "latin1");
+    const p = file(Buffer.concat([b, Buffer.alloc(1 << 18), fake]));
+    const src = await openWavTimeHistory(p);
+    expect(src.info.frames).toBe(3);
+    expect(src.info.layout).toContain(`${(1 << 18) + fake.length} bytes after the last chunk are not chunks`);
+    expect((await readAll(p)).channels[0]).toEqual([100 / 32768, 200 / 32768, 300 / 32768]);
   });
 });
