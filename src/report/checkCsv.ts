@@ -1,6 +1,7 @@
 import type { CheckResult } from "../analyses/checkRecording.js";
 import type { ChannelCompliance } from "../compare/complianceCheck.js";
 import { densityAscii } from "../units.js";
+import { csvField } from "./csvField.js";
 
 /**
  * `check --csv OUT`: the lines judged, one row per line and judged spectrum (each channel, and the
@@ -14,7 +15,7 @@ export function checkCsv(r: CheckResult): string {
     `spectrum,role,frequency_hz,measured [${u}],required [${u}],deviation_db,upper_limit [${u}],lower_limit [${u}],upper_db,lower_db,status,shown`,
   ];
   const add = (name: string, role: string, c: ChannelCompliance) => {
-    const q = /[",\n]/.test(name) ? `"${name.replace(/"/g, '""')}"` : name;
+    const q = csvField(name);
     for (const l of c.lines) {
       lines.push(
         [

@@ -1,6 +1,7 @@
 import { scaleLinear, scaleLog, type ScaleContinuousNumeric } from "d3-scale";
 import { area, line } from "d3-shape";
 import { maxOf } from "./format.js";
+import { printable } from "./printable.js";
 
 /**
  * Small SVG plots built as strings (no DOM): d3-scale for the scales and log ticks, d3-shape for the
@@ -101,8 +102,13 @@ export function thinBand(pts: (readonly [number, number, number])[]): (readonly 
   return out;
 }
 
+/**
+ * Text for HTML and SVG: the five markup characters as entities, and every control, line separator and bidi
+ * override or isolate made visible first (printable.ts), as on the terminal: a title's U+202E cannot reverse the
+ * verdict word after it in the page's <title>, nor a tab or newline pass unseen.
+ */
 export function escapeXml(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
+  return printable(s).replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 }
 
 /**

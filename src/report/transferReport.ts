@@ -1,6 +1,7 @@
 import type { TransferAnalysis } from "../analyses/analyzeTransfer.js";
 import { accelLabel, densityAscii } from "../units.js";
 import { TRANSFER_CAUTION } from "./cautions.js";
+import { csvField } from "./csvField.js";
 import { fixed, rateText, sig, table } from "./format.js";
 import { fullScaleLines } from "./psdText.js";
 import { finiteOrNull, toolInfo } from "./psdJson.js";
@@ -101,7 +102,8 @@ export function transferCsv(t: TransferAnalysis): string {
       `${o.name}_predicted_psd [${u}]`,
       `${o.name}_measured_psd [${u}]`,
     );
-  const lines = [head.join(",")];
+  // Channel names come from the file: each header field is quoted and guarded (csvField).
+  const lines = [head.map(csvField).join(",")];
   for (let k = 0; k < t.frequencyHz.length; k++) {
     const row = [String(t.frequencyHz[k]), String(t.reference.psd[k])];
     for (const o of t.outputs)

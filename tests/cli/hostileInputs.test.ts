@@ -30,6 +30,42 @@ describe("names from files in outputs", () => {
     for (const f of rows[0]!.slice(4)) expect(f).toMatch(/^'[=+\-@]/);
   });
 
+  it("transfer --csv and check --csv: channel names are quoted and guarded as in psd --csv (RFC 4180, OWASP)", async () => {
+    const dir = tempDir();
+    const rec = join(dir, "names.csv");
+    writeFileSync(rec, csvWithNames(["=in,put", "@out"]));
+    const tOut = join(dir, "transfer.csv");
+    const t = await cli("transfer", rec, "--in", "=in,put", "--csv", tOut, "--segment", "512");
+    expect(t.code, t.stderr).toBe(0);
+    const tRows = Papa.parse<string[]>(readFileSync(tOut, "utf8").trim(), {}).data;
+    expect(tRows.every((row) => row.length === tRows[0]!.length)).toBe(true);
+    expect(tRows[0]![1]).toBe("'=in,put_psd [g2/Hz]");
+    for (const f of tRows[0]!.slice(2)) expect(f).toMatch(/^'@out_/);
+    const cOut = join(dir, "check.csv");
+    const c = await cli("check", rec, "--profile", kb, "--csv", cOut, "--segment", "512", "--rate", "1024");
+    expect([0, 1, 3], c.stderr).toContain(c.code);
+    const cRows = Papa.parse<string[]>(readFileSync(cOut, "utf8").trim(), {}).data;
+    expect(cRows.every((row) => row.length === cRows[0]!.length)).toBe(true);
+    expect(new Set(cRows.slice(1).map((row) => row[0]))).toEqual(new Set(["'=in,put", "'@out"]));
+  });
+
+  it("check --report: a bidi override in the profile title is shown as an escape in the page, never as itself (Unicode UAX #9)", async () => {
+    const dir = tempDir();
+    const p = JSON.parse(readFileSync(kb, "utf8"));
+    p.title = "Rig 4 \u202e SSAP";
+    const file = join(dir, "rlo.json");
+    writeFileSync(file, JSON.stringify(p));
+    const html = join(dir, "rlo.html");
+    const r = await cli("check", "samples/kb210-run-resonance.wav", "--profile", file, "--report", html);
+    expect(r.code).toBe(1);
+    // The embedded result (a <template>, never rendered) keeps the title as the profile wrote it.
+    const page = readFileSync(html, "utf8").replace(/<template id="psdgate-result"[^]*<\/template>/, "");
+    expect(page).not.toMatch(/[\u202a-\u202e\u2066-\u2069]/u);
+    expect(page).toContain("<title>Rig 4 \\u{202e} SSAP: FAIL</title>");
+    const v = await cli("verify", html);
+    expect(v.code, v.stdout + v.stderr).toBe(0);
+  });
+
   it("check: a profile title with newlines and ESC[8m cannot print a fake verdict or hide the real one", async () => {
     const dir = tempDir();
     const p = JSON.parse(readFileSync(kb, "utf8"));
