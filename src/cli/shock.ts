@@ -44,7 +44,7 @@ export function registerShock(program: Command, io: CliIo): void {
   )
     .requiredOption(
       "--fn <grid>",
-      "natural frequencies: A:B (6 per octave), A:B:N (N per octave) or a list A,B,C, in Hz (at most fs/4; fs/10 or lower for a sample peak within 4.9 %)",
+      "natural frequencies: A:B (6 per octave), A:B:N (N per octave) or a list A,B,C, in Hz (at most fs/4; fs/10 or lower for a peak within 4.9 % of the continuous response, 8 % on a recorded, band-limited input)",
     )
     .option(
       "--q <Q>",

@@ -3,7 +3,7 @@ import { accelLabel } from "../units.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, sig } from "./format.js";
 import { qty, reportOpening, reportPage, row, recordSignOff, type ReportContext } from "./reportPage.js";
-import { SHOCK_CAUTION, SHOCK_METHOD, shockJson } from "./shockReport.js";
+import { SHOCK_CAUTION, SHOCK_METHOD, shockJson, shortfallWords } from "./shockReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 import { findingTexts } from "./findingTexts.js";
 
@@ -143,7 +143,7 @@ export function shockHtml(
     ),
     row(
       "Sample rate against the highest fn",
-      `${sig(r.rate.samplesPerPeriod, 3)} samples per period (10 or more asked); the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one`,
+      `${sig(r.rate.samplesPerPeriod, 3)} samples per period (10 or more asked); ${shortfallWords(r)}`,
     ),
     row(
       "Events",

@@ -1,5 +1,5 @@
 import type { ShockResult } from "../analyses/shockRecording.js";
-import type { ShockSpectrum } from "../estimate/response/shockResponse.js";
+import { srsShortfallBound, type ShockSpectrum } from "../estimate/response/shockResponse.js";
 import { accelLabel } from "../units.js";
 import { csvField } from "./csvField.js";
 import { printable } from "./printable.js";
@@ -118,13 +118,22 @@ export function shockCsv(r: ShockResult): string {
   return rows.join("\n") + "\n";
 }
 
+/**
+ * The rate's bound in words: the sample peak's (what the result records) and a recorded, band-limited input's (the
+ * straight-line reading's sinc^2 besides).
+ */
+export function shortfallWords(r: ShockResult): string {
+  const b = srsShortfallBound(r.rate.samplesPerPeriod);
+  return `the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one, ${fixed(100 * b.bandLimited, 1)} % on a recorded, band-limited input`;
+}
+
 export function shockText(r: ShockResult, version: string, top = 10): string {
   const a = r.analysis;
   const lines = [
     `psdgate ${version}: shocks in ${printable(a.input.file)} (${sig(a.window.toS - a.window.fromS, 5)} s at ${sig(a.input.sampleRateHz, 6)} Hz)`,
     `  method     ${SHOCK_METHOD}`,
     `  settings   Q ${sig(r.settings.q, 4)}; ${r.settings.fnHz.length} natural frequencies ${sig(r.settings.fnHz[0]!, 4)}–${sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5)} Hz; hold ${sig(r.settings.holdS, 3)} s; event window from ${sig(r.settings.preS, 3)} s before to ${sig(r.settings.postS, 3)} s after; the mean removed`,
-    `  rate       ${sig(r.rate.samplesPerPeriod, 3)} samples per period at the highest fn (at least 10 asked; the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one)`,
+    `  rate       ${sig(r.rate.samplesPerPeriod, 3)} samples per period at the highest fn (at least 10 asked; ${shortfallWords(r)})`,
     "",
   ];
   const all = r.channels
