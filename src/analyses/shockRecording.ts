@@ -6,6 +6,8 @@ import {
 } from "../pass/analyzeRecording.js";
 import { InputError } from "../errors.js";
 import {
+  BASELINE_STRETCH_S,
+  BaselineStretches,
   backgroundRms,
   EventFinder,
   gaussianFalseEventRate,
@@ -79,7 +81,10 @@ export interface ShockEventResult {
 export interface ShockChannel {
   name: string;
   units: AccelUnit;
-  /** The mean removed before events and spectra (gravity on an axis, offsets). */
+  /**
+   * The baseline removed before events and spectra (gravity on an axis, offsets): the mean without the 0.1 s stretches
+   * that reach the threshold (BaselineStretches), the plain mean when none does.
+   */
   mean: number;
   backgroundRms: number;
   threshold: number;
@@ -116,18 +121,29 @@ export interface ShockResult {
   doubts: Finding[];
 }
 
-class Background implements PassAccumulator<{ meanSquares: number[][]; means: number[][] }> {
+class Background
+  implements PassAccumulator<{ meanSquares: number[][]; means: number[][]; baselines: BaselineStretches[] }>
+{
   private s: StretchMeanSquares[] = [];
+  private b: BaselineStretches[] = [];
   private length = 2;
   start(designRateHz: number): void {
     this.length = Number.isFinite(designRateHz) && designRateHz > 0 ? Math.max(2, Math.round(designRateHz)) : 2;
   }
   push(blocks: Float64Array[], frames: number): void {
     while (this.s.length < blocks.length) this.s.push(new StretchMeanSquares(this.length));
-    for (let c = 0; c < blocks.length; c++) this.s[c]!.push(blocks[c]!, frames);
+    while (this.b.length < blocks.length) this.b.push(new BaselineStretches(this.length * BASELINE_STRETCH_S));
+    for (let c = 0; c < blocks.length; c++) {
+      this.s[c]!.push(blocks[c]!, frames);
+      this.b[c]!.push(blocks[c]!, frames);
+    }
   }
-  finish(): { meanSquares: number[][]; means: number[][] } {
-    return { meanSquares: this.s.map((s) => [...s.result()]), means: this.s.map((s) => [...s.means()]) };
+  finish(): { meanSquares: number[][]; means: number[][]; baselines: BaselineStretches[] } {
+    return {
+      meanSquares: this.s.map((s) => [...s.result()]),
+      means: this.s.map((s) => [...s.means()]),
+      baselines: this.b,
+    };
   }
 }
 
@@ -341,6 +357,7 @@ function channelLevels(
   file: string,
   analysis: RecordingAnalysis,
   stretches: number[][],
+  baselines: BaselineStretches[],
   threshold: number | undefined,
   factor: number,
 ): ChannelLevels[] {
@@ -356,7 +373,7 @@ function channelLevels(
       });
     }
     return {
-      mean: ch.stats.mean,
+      mean: baselines[c]?.baseline(t, ch.stats.mean) ?? ch.stats.mean,
       background: b,
       threshold: t,
       nu0: zeroUpcrossingRate(ch.psd.psd, ch.psd.frequencyHz),
@@ -429,7 +446,11 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
     accumulators: [bg],
     onProgress: progress && ((d, t) => progress(d / 2, t)),
   });
-  const { meanSquares: stretches, means: stretchMeans } = analysis.extras[0] as ReturnType<Background["finish"]>;
+  const {
+    meanSquares: stretches,
+    means: stretchMeans,
+    baselines,
+  } = analysis.extras[0] as ReturnType<Background["finish"]>;
   const fs = analysis.input.sampleRateHz;
   const notes: Finding[] = [];
   const doubts: Finding[] = [...analysis.passDoubts];
@@ -437,7 +458,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   // shock's peak and SRS are too low.
   for (const ch of analysis.channels)
     for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
-  const per = channelLevels(file, analysis, stretches, options.threshold, factor);
+  const per = channelLevels(file, analysis, stretches, baselines, options.threshold, factor);
   // Read 2: events and spectra.
   const ev = new Events({
     means: per.map((p) => p.mean),

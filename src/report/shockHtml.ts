@@ -147,7 +147,7 @@ export function shockHtml(
     ),
     row(
       "Events",
-      `hold ${qty(sig(r.settings.holdS, 3), "s")}; each event's SRS from ${qty(sig(r.settings.preS, 3), "s")} before its first exceedance to ${qty(sig(r.settings.postS, 3), "s")} after its last; each channel's mean removed`,
+      `hold ${qty(sig(r.settings.holdS, 3), "s")}; each event's SRS from ${qty(sig(r.settings.preS, 3), "s")} before its first exceedance to ${qty(sig(r.settings.postS, 3), "s")} after its last; each channel's baseline removed (its mean without the shocks' stretches)`,
     ),
   ].join("\n");
   const body = `${reportOpening({ verdictClass: "none", word: SHOCK_WORD, line: summary, meta: m, a, ctx, extraSettingsRows: settings })}

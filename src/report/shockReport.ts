@@ -132,7 +132,7 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
   const lines = [
     `psdgate ${version}: shocks in ${printable(a.input.file)} (${sig(a.window.toS - a.window.fromS, 5)} s at ${sig(a.input.sampleRateHz, 6)} Hz)`,
     `  method     ${SHOCK_METHOD}`,
-    `  settings   Q ${sig(r.settings.q, 4)}; ${r.settings.fnHz.length} natural frequencies ${sig(r.settings.fnHz[0]!, 4)}–${sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5)} Hz; hold ${sig(r.settings.holdS, 3)} s; event window from ${sig(r.settings.preS, 3)} s before to ${sig(r.settings.postS, 3)} s after; the mean removed`,
+    `  settings   Q ${sig(r.settings.q, 4)}; ${r.settings.fnHz.length} natural frequencies ${sig(r.settings.fnHz[0]!, 4)}–${sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5)} Hz; hold ${sig(r.settings.holdS, 3)} s; event window from ${sig(r.settings.preS, 3)} s before to ${sig(r.settings.postS, 3)} s after; the baseline removed (the mean without the shocks' stretches)`,
     `  rate       ${sig(r.rate.samplesPerPeriod, 3)} samples per period at the highest fn (at least 10 asked; ${shortfallWords(r)})`,
     "",
   ];
