@@ -161,7 +161,7 @@ export function checkSrsGrid(fnHz: Float64Array, q: number, sampleRateHz: number
     throw new InputError("SRS_RATE_TOO_LOW", {
       ...(file !== undefined ? { file } : {}),
       option: "fn",
-      expected: `natural frequencies at most fs/${SRS_MIN_SAMPLES_PER_PERIOD} = ${sampleRateHz / SRS_MIN_SAMPLES_PER_PERIOD} Hz at ${sampleRateHz} Hz (fs/${SRS_SAMPLES_PER_PERIOD} for a sample peak within 4.9 %)`,
+      expected: `natural frequencies at most fs/${SRS_MIN_SAMPLES_PER_PERIOD} = ${sampleRateHz / SRS_MIN_SAMPLES_PER_PERIOD} Hz at ${sampleRateHz} Hz (fs/${SRS_SAMPLES_PER_PERIOD} for a peak within 4.9 %, 8.0 % on a recorded, band-limited input)`,
       received: `${highestFnHz} Hz`,
     });
   }
