@@ -91,7 +91,9 @@ describe("ramp-invariant SDOF filters (Smallwood 1981)", () => {
   });
   it("refuses natural frequencies above fs/4 and states the shortfall bound at fs/10", () => {
     expect(() => new ShockSpectrumAccumulator(Float64Array.from([6000]), 10, FS)).toThrow(/SRS_RATE_TOO_LOW/);
-    expect(() => new ShockSpectrumAccumulator(Float64Array.from([6000]), 10, FS)).toThrow(/4\.9 %, 8\.0 % on a recorded/);
+    expect(() => new ShockSpectrumAccumulator(Float64Array.from([6000]), 10, FS)).toThrow(
+      /4\.9 %, 8\.0 % on a recorded/,
+    );
     expect(srsRateLimit(Float64Array.from([2000]), FS).peakShortfallBound).toBeCloseTo(1 - Math.cos(Math.PI / 10), 12);
   });
 });
