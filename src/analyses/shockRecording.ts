@@ -61,6 +61,8 @@ export interface ShockOptions extends Omit<AnalysisOptions, "accumulators" | "sp
  */
 export const DEFAULT_THRESHOLD_FACTOR = 6;
 export const DEFAULT_HOLD_S = 0.05;
+/** Below this many whole 1 s stretches, the background is the median of the 0.1 s stretches' r.m.s. values. */
+export const SHORT_RECORD_STRETCHES = 3;
 
 export interface ShockEventResult {
   /** Time of the peak, s from the first sample of the file (the --from window included). */
@@ -362,13 +364,17 @@ function channelLevels(
   factor: number,
 ): ChannelLevels[] {
   return analysis.channels.map((ch, c) => {
-    const b = backgroundRms(stretches[c] ?? []);
+    // A shock's stretch is one of the few 1 s stretches of a short record, and their median is no longer free of it:
+    // below 3 of them, the median of the 0.1 s stretches (a 1 s drop record's one stretch made a 50 g shock's r.m.s.,
+    // 3.7 g, the background, and the threshold 22 g).
+    const few = (stretches[c]?.length ?? 0) < SHORT_RECORD_STRETCHES;
+    const b = backgroundRms(few ? (baselines[c]?.meanSquares() ?? []) : (stretches[c] ?? []));
     const t = threshold ?? factor * b;
     if (!(t > 0)) {
       throw new InputError("SHOCK_NO_BACKGROUND", {
         file,
         option: "threshold",
-        expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`,
+        expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches${few ? ` and ${baselines[c]?.meanSquares().length ?? 0} whole 0.1 s stretches` : ""}, r.m.s. ${b}); give \`threshold\` in units`,
         received: String(b),
       });
     }

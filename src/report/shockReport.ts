@@ -1,4 +1,4 @@
-import type { ShockResult } from "../analyses/shockRecording.js";
+import { SHORT_RECORD_STRETCHES, type ShockResult } from "../analyses/shockRecording.js";
 import { srsShortfallBound, type ShockSpectrum } from "../estimate/response/shockResponse.js";
 import { accelLabel } from "../units.js";
 import { csvField } from "./csvField.js";
@@ -127,6 +127,13 @@ export function shortfallWords(r: ShockResult): string {
   return `the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one, ${fixed(100 * b.bandLimited, 1)} % on a recorded, band-limited input`;
 }
 
+/** Which stretches the background is the median of: 1 s, or 0.1 s below SHORT_RECORD_STRETCHES whole seconds. */
+export function backgroundStretches(r: ShockResult): string {
+  const fs = r.analysis.input.sampleRateHz;
+  const whole = Math.floor(r.analysis.window.frames / Math.max(2, Math.round(fs)));
+  return whole < SHORT_RECORD_STRETCHES ? "0.1 s stretches: under 3 whole 1 s stretches" : "1 s stretches";
+}
+
 export function shockText(r: ShockResult, version: string, top = 10): string {
   const a = r.analysis;
   const lines = [
@@ -142,7 +149,7 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
   for (const c of r.channels) {
     const u = accelLabel(c.units);
     lines.push(
-      `  ${printable(c.name)}: background ${sig(c.backgroundRms, 4)} ${u} r.m.s. (median of 1 s stretches), threshold ${sig(c.threshold, 4)} ${u} = ${sig(c.thresholdFactor, 3)} x background; ` +
+      `  ${printable(c.name)}: background ${sig(c.backgroundRms, 4)} ${u} r.m.s. (median of ${backgroundStretches(r)}), threshold ${sig(c.threshold, 4)} ${u} = ${sig(c.thresholdFactor, 3)} x background; ` +
         `${c.events.length} event(s); by chance on a Gaussian background ${c.expectedFalseEvents < 0.01 ? c.expectedFalseEvents.toExponential(1) : sig(c.expectedFalseEvents, 2)} expected (Rice, nu0 ${sig(c.zeroUpcrossingRateHz, 3)} Hz)`,
     );
   }

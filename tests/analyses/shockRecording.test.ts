@@ -78,3 +78,26 @@ print(json.dumps(out))
     }
   });
 });
+
+describe("shockRecording: the background of a record shorter than 3 s", () => {
+  it("1 s at 10 kHz, 0.05 g noise on 1 g and a 50 g, 11 ms half-sine: the background is the noise's, not the shock's stretch's", async () => {
+    const fs = 10000;
+    const x = gaussian(fs, 22, 0.05);
+    const m = 110;
+    let text = "time,z [g]\n";
+    for (let i = 0; i < fs; i++) {
+      const p = i >= 5000 && i < 5000 + m ? 50 * Math.sin((Math.PI * (i - 5000)) / m) : 0;
+      text += `${(i / fs).toFixed(4)},${(1 + x[i]! + p).toFixed(5)}\n`;
+    }
+    const f = join(tempDir(), "drop-short.csv");
+    writeFileSync(f, text);
+    const r = await shockRecording(f, { fnHz: [10, 100], q: 10 });
+    const c = r.channels[0]!;
+    // The one whole 1 s stretch holds the shock: its r.m.s. (3.7 g) was the background, the threshold 22 g. Time above
+    // 6 x 0.05 g of the half-sine: 11 ms (1 - 2 asin(0.3 / 50) / pi) = 10.96 ms (closed form).
+    expect(c.backgroundRms).toBeGreaterThan(0.045);
+    expect(c.backgroundRms).toBeLessThan(0.055);
+    expect(c.events.length).toBe(1);
+    expect(c.events[0]!.durationS).toBeGreaterThan(0.0105);
+  });
+});

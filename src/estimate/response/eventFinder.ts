@@ -311,6 +311,7 @@ const BASELINE_STRETCHES_MAX = 1 << 15;
 export class BaselineStretches {
   private readonly sum = new Float64Array(BASELINE_STRETCHES_MAX);
   private readonly count = new Float64Array(BASELINE_STRETCHES_MAX);
+  private readonly squares = new Float64Array(BASELINE_STRETCHES_MAX);
   private readonly lo = new Float64Array(BASELINE_STRETCHES_MAX).fill(Infinity);
   private readonly hi = new Float64Array(BASELINE_STRETCHES_MAX).fill(-Infinity);
   /** Whole stretches so far; the current one is index `whole`. */
@@ -327,12 +328,14 @@ export class BaselineStretches {
     let inCur = this.inCurrent;
     let s = this.sum[k]!;
     let c = this.count[k]!;
+    let q = this.squares[k]!;
     let lo = this.lo[k]!;
     let hi = this.hi[k]!;
     for (let j = 0; j < frames; j++) {
       const v = x[j]!;
       if (v - v === 0) {
         s += v;
+        q += v * v;
         c++;
         if (v < lo) lo = v;
         if (v > hi) hi = v;
@@ -340,6 +343,7 @@ export class BaselineStretches {
       if (++inCur === this.length) {
         this.sum[k] = s;
         this.count[k] = c;
+        this.squares[k] = q;
         this.lo[k] = lo;
         this.hi[k] = hi;
         inCur = 0;
@@ -347,12 +351,14 @@ export class BaselineStretches {
         if (k === BASELINE_STRETCHES_MAX) k = this.pool();
         s = this.sum[k]!;
         c = this.count[k]!;
+        q = this.squares[k]!;
         lo = this.lo[k]!;
         hi = this.hi[k]!;
       }
     }
     this.sum[k] = s;
     this.count[k] = c;
+    this.squares[k] = q;
     this.lo[k] = lo;
     this.hi[k] = hi;
     this.whole = k;
@@ -365,15 +371,32 @@ export class BaselineStretches {
     for (let i = 0; i < half; i++) {
       this.sum[i] = this.sum[2 * i]! + this.sum[2 * i + 1]!;
       this.count[i] = this.count[2 * i]! + this.count[2 * i + 1]!;
+      this.squares[i] = this.squares[2 * i]! + this.squares[2 * i + 1]!;
       this.lo[i] = Math.min(this.lo[2 * i]!, this.lo[2 * i + 1]!);
       this.hi[i] = Math.max(this.hi[2 * i]!, this.hi[2 * i + 1]!);
     }
     this.sum.fill(0, half);
     this.count.fill(0, half);
+    this.squares.fill(0, half);
     this.lo.fill(Infinity, half);
     this.hi.fill(-Infinity, half);
     this.length *= 2;
     return half;
+  }
+
+  /**
+   * The mean squares of the whole stretches, each about its own mean (for `backgroundRms` where a record has too few
+   * 1 s stretches for their median to leave a shock's out).
+   */
+  meanSquares(): number[] {
+    const out: number[] = [];
+    for (let k = 0; k < this.whole; k++) {
+      const c = this.count[k]!;
+      if (c < 2) continue;
+      const m = this.sum[k]! / c;
+      out.push(Math.max(0, this.squares[k]! / c - m * m));
+    }
+    return out;
   }
 
   /** The baseline for a threshold on |x - baseline|, starting from the plain mean (see the class). */
