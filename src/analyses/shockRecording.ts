@@ -6,6 +6,8 @@ import {
 } from "../pass/analyzeRecording.js";
 import { InputError } from "../errors.js";
 import {
+  BASELINE_STRETCH_S,
+  BaselineStretches,
   backgroundRms,
   EventFinder,
   gaussianFalseEventRate,
@@ -59,6 +61,8 @@ export interface ShockOptions extends Omit<AnalysisOptions, "accumulators" | "sp
  */
 export const DEFAULT_THRESHOLD_FACTOR = 6;
 export const DEFAULT_HOLD_S = 0.05;
+/** Below this many whole 1 s stretches, the background is the median of the 0.1 s stretches' r.m.s. values. */
+export const SHORT_RECORD_STRETCHES = 3;
 
 export interface ShockEventResult {
   /** Time of the peak, s from the first sample of the file (the --from window included). */
@@ -79,7 +83,10 @@ export interface ShockEventResult {
 export interface ShockChannel {
   name: string;
   units: AccelUnit;
-  /** The mean removed before events and spectra (gravity on an axis, offsets). */
+  /**
+   * The baseline removed before events and spectra (gravity on an axis, offsets): the mean without the 0.1 s stretches
+   * that reach the threshold (BaselineStretches), the plain mean when none does.
+   */
   mean: number;
   backgroundRms: number;
   threshold: number;
@@ -116,18 +123,29 @@ export interface ShockResult {
   doubts: Finding[];
 }
 
-class Background implements PassAccumulator<{ meanSquares: number[][]; means: number[][] }> {
+class Background
+  implements PassAccumulator<{ meanSquares: number[][]; means: number[][]; baselines: BaselineStretches[] }>
+{
   private s: StretchMeanSquares[] = [];
+  private b: BaselineStretches[] = [];
   private length = 2;
   start(designRateHz: number): void {
     this.length = Number.isFinite(designRateHz) && designRateHz > 0 ? Math.max(2, Math.round(designRateHz)) : 2;
   }
   push(blocks: Float64Array[], frames: number): void {
     while (this.s.length < blocks.length) this.s.push(new StretchMeanSquares(this.length));
-    for (let c = 0; c < blocks.length; c++) this.s[c]!.push(blocks[c]!, frames);
+    while (this.b.length < blocks.length) this.b.push(new BaselineStretches(this.length * BASELINE_STRETCH_S));
+    for (let c = 0; c < blocks.length; c++) {
+      this.s[c]!.push(blocks[c]!, frames);
+      this.b[c]!.push(blocks[c]!, frames);
+    }
   }
-  finish(): { meanSquares: number[][]; means: number[][] } {
-    return { meanSquares: this.s.map((s) => [...s.result()]), means: this.s.map((s) => [...s.means()]) };
+  finish(): { meanSquares: number[][]; means: number[][]; baselines: BaselineStretches[] } {
+    return {
+      meanSquares: this.s.map((s) => [...s.result()]),
+      means: this.s.map((s) => [...s.means()]),
+      baselines: this.b,
+    };
   }
 }
 
@@ -341,22 +359,27 @@ function channelLevels(
   file: string,
   analysis: RecordingAnalysis,
   stretches: number[][],
+  baselines: BaselineStretches[],
   threshold: number | undefined,
   factor: number,
 ): ChannelLevels[] {
   return analysis.channels.map((ch, c) => {
-    const b = backgroundRms(stretches[c] ?? []);
+    // A shock's stretch is one of the few 1 s stretches of a short record, and their median is no longer free of it:
+    // below 3 of them, the median of the 0.1 s stretches (a 1 s drop record's one stretch made a 50 g shock's r.m.s.,
+    // 3.7 g, the background, and the threshold 22 g).
+    const few = (stretches[c]?.length ?? 0) < SHORT_RECORD_STRETCHES;
+    const b = backgroundRms(few ? (baselines[c]?.meanSquares() ?? []) : (stretches[c] ?? []));
     const t = threshold ?? factor * b;
     if (!(t > 0)) {
       throw new InputError("SHOCK_NO_BACKGROUND", {
         file,
         option: "threshold",
-        expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches and r.m.s. ${b}); give \`threshold\` in units`,
+        expected: `a background level to set the threshold from (${ch.name} has ${stretches[c]?.length ?? 0} whole 1 s stretches${few ? ` and ${baselines[c]?.meanSquares().length ?? 0} whole 0.1 s stretches` : ""}, r.m.s. ${b}); give \`threshold\` in units`,
         received: String(b),
       });
     }
     return {
-      mean: ch.stats.mean,
+      mean: baselines[c]?.baseline(t, ch.stats.mean) ?? ch.stats.mean,
       background: b,
       threshold: t,
       nu0: zeroUpcrossingRate(ch.psd.psd, ch.psd.frequencyHz),
@@ -429,7 +452,11 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
     accumulators: [bg],
     onProgress: progress && ((d, t) => progress(d / 2, t)),
   });
-  const { meanSquares: stretches, means: stretchMeans } = analysis.extras[0] as ReturnType<Background["finish"]>;
+  const {
+    meanSquares: stretches,
+    means: stretchMeans,
+    baselines,
+  } = analysis.extras[0] as ReturnType<Background["finish"]>;
   const fs = analysis.input.sampleRateHz;
   const notes: Finding[] = [];
   const doubts: Finding[] = [...analysis.passDoubts];
@@ -437,7 +464,7 @@ export async function shockRecording(file: string, options: ShockOptions): Promi
   // shock's peak and SRS are too low.
   for (const ch of analysis.channels)
     for (const d of ch.doubts) doubts.push({ ...d, about: { ...d.about, channel: ch.name } });
-  const per = channelLevels(file, analysis, stretches, options.threshold, factor);
+  const per = channelLevels(file, analysis, stretches, baselines, options.threshold, factor);
   // Read 2: events and spectra.
   const ev = new Events({
     means: per.map((p) => p.mean),

@@ -44,7 +44,7 @@ export function registerShock(program: Command, io: CliIo): void {
   )
     .requiredOption(
       "--fn <grid>",
-      "natural frequencies: A:B (6 per octave), A:B:N (N per octave) or a list A,B,C, in Hz (at most fs/4; fs/10 or lower for a sample peak within 4.9 %)",
+      "natural frequencies: A:B (6 per octave), A:B:N (N per octave) or a list A,B,C, in Hz (at most fs/4; fs/10 or lower for a peak within 4.9 % of the continuous response, 8 % on a recorded, band-limited input)",
     )
     .option(
       "--q <Q>",
@@ -59,7 +59,7 @@ export function registerShock(program: Command, io: CliIo): void {
     )
     .option(
       "--threshold-factor <k>",
-      "threshold as k x the background r.m.s. (median of 1 s stretches; default 6)",
+      "threshold as k x the background r.m.s. (median of 1 s stretches, of 0.1 s ones under 3 s; default 6)",
       numberOption("--threshold-factor", (x) => x > 0 && x <= 1000, "a factor above 0 and at most 1000"),
     )
     .option(

@@ -1,5 +1,6 @@
 import { BASIC_METHOD_LIMITS, type BasicMethodCheck } from "../compare/wholeBodyExposure.js";
 import type { Finding, FindingAbout, FindingCode } from "../findings.js";
+import { srsShortfallBound } from "../estimate/response/shockResponse.js";
 
 /**
  * Every finding's sentence, made from its code, values and `about` (src/findings.ts). The library makes
@@ -253,7 +254,7 @@ const DERIVE_TEXTS = {
 
 const SHOCK_TEXTS = {
   SRS_FEW_SAMPLES: (v) =>
-    `the highest natural frequency ${v.highestFnHz} Hz has ${v.samplesPerPeriod!.toFixed(1)} samples per period (fewer than ${v.minimum}): its spectrum values can fall up to ${v.shortfallPercent!.toFixed(1)} % short of the continuous response's peak, which lies between samples`,
+    `the highest natural frequency ${v.highestFnHz} Hz has ${v.samplesPerPeriod!.toFixed(1)} samples per period (fewer than ${v.minimum}): its spectrum values can fall up to ${v.shortfallPercent!.toFixed(1)} % short of the continuous response's peak, which lies between samples, and up to ${(100 * srsShortfallBound(v.samplesPerPeriod!).bandLimited).toFixed(1)} % on a recorded (band-limited) input, which the filter reads as straight lines between samples`,
   THRESHOLD_LOW: (v) =>
     `the threshold is ${v.thresholdFactor!.toFixed(2)} x the background r.m.s.; on a Gaussian background of this level about ${v.expectedFalseEvents! >= 10 ? v.expectedFalseEvents!.toFixed(0) : v.expectedFalseEvents!.toPrecision(2)} event(s) would be found by chance (Rice)`,
   BASELINE_DRIFT: (v) =>

@@ -3,7 +3,7 @@ import { accelLabel } from "../units.js";
 import { embedResult } from "./embeddedResult.js";
 import { fixed, sig } from "./format.js";
 import { qty, reportOpening, reportPage, row, recordSignOff, type ReportContext } from "./reportPage.js";
-import { SHOCK_CAUTION, SHOCK_METHOD, shockJson } from "./shockReport.js";
+import { backgroundStretches, SHOCK_CAUTION, SHOCK_METHOD, shockJson, shortfallWords } from "./shockReport.js";
 import { escapeXml as esc, svgPlot } from "./svgPlot.js";
 import { findingTexts } from "./findingTexts.js";
 
@@ -94,7 +94,7 @@ function channelSection(c: ShockChannel, r: ShockResult, n: number): string {
 <h2>Channel ${esc(c.name)}</h2>
 <table class="meta">
 ${row("Mean removed", qty(sig(c.mean, 4), u))}
-${row("Background", `${qty(sig(c.backgroundRms, 4), u)} r.m.s. (median of 1 s stretches)`)}
+${row("Background", `${qty(sig(c.backgroundRms, 4), u)} r.m.s. (median of ${backgroundStretches(r)})`)}
 ${row("Threshold", `${qty(sig(c.threshold, 4), u)} = ${sig(c.thresholdFactor, 3)} × background`)}
 ${row("Chance events on a Gaussian background", `${c.expectedFalseEvents < 0.01 ? c.expectedFalseEvents.toExponential(1) : sig(c.expectedFalseEvents, 2)} over the record (Rice: 2 ν₀ exp(−k²/2), ν₀ ${sig(c.zeroUpcrossingRateHz, 3)} Hz from the PSD)`)}
 ${row("Events", String(c.events.length))}
@@ -143,11 +143,11 @@ export function shockHtml(
     ),
     row(
       "Sample rate against the highest fn",
-      `${sig(r.rate.samplesPerPeriod, 3)} samples per period (10 or more asked); the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one`,
+      `${sig(r.rate.samplesPerPeriod, 3)} samples per period (10 or more asked); ${shortfallWords(r)}`,
     ),
     row(
       "Events",
-      `hold ${qty(sig(r.settings.holdS, 3), "s")}; each event's SRS from ${qty(sig(r.settings.preS, 3), "s")} before its first exceedance to ${qty(sig(r.settings.postS, 3), "s")} after its last; each channel's mean removed`,
+      `hold ${qty(sig(r.settings.holdS, 3), "s")}; each event's SRS from ${qty(sig(r.settings.preS, 3), "s")} before its first exceedance to ${qty(sig(r.settings.postS, 3), "s")} after its last; each channel's baseline removed (its mean without the shocks' stretches)`,
     ),
   ].join("\n");
   const body = `${reportOpening({ verdictClass: "none", word: SHOCK_WORD, line: summary, meta: m, a, ctx, extraSettingsRows: settings })}

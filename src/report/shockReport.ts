@@ -1,5 +1,5 @@
-import type { ShockResult } from "../analyses/shockRecording.js";
-import type { ShockSpectrum } from "../estimate/response/shockResponse.js";
+import { SHORT_RECORD_STRETCHES, type ShockResult } from "../analyses/shockRecording.js";
+import { srsShortfallBound, type ShockSpectrum } from "../estimate/response/shockResponse.js";
 import { accelLabel } from "../units.js";
 import { csvField } from "./csvField.js";
 import { printable } from "./printable.js";
@@ -118,13 +118,29 @@ export function shockCsv(r: ShockResult): string {
   return rows.join("\n") + "\n";
 }
 
+/**
+ * The rate's bound in words: the sample peak's (what the result records) and a recorded, band-limited input's (the
+ * straight-line reading's sinc^2 besides).
+ */
+export function shortfallWords(r: ShockResult): string {
+  const b = srsShortfallBound(r.rate.samplesPerPeriod);
+  return `the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one, ${fixed(100 * b.bandLimited, 1)} % on a recorded, band-limited input`;
+}
+
+/** Which stretches the background is the median of: 1 s, or 0.1 s below SHORT_RECORD_STRETCHES whole seconds. */
+export function backgroundStretches(r: ShockResult): string {
+  const fs = r.analysis.input.sampleRateHz;
+  const whole = Math.floor(r.analysis.window.frames / Math.max(2, Math.round(fs)));
+  return whole < SHORT_RECORD_STRETCHES ? "0.1 s stretches: under 3 whole 1 s stretches" : "1 s stretches";
+}
+
 export function shockText(r: ShockResult, version: string, top = 10): string {
   const a = r.analysis;
   const lines = [
     `psdgate ${version}: shocks in ${printable(a.input.file)} (${sig(a.window.toS - a.window.fromS, 5)} s at ${sig(a.input.sampleRateHz, 6)} Hz)`,
     `  method     ${SHOCK_METHOD}`,
-    `  settings   Q ${sig(r.settings.q, 4)}; ${r.settings.fnHz.length} natural frequencies ${sig(r.settings.fnHz[0]!, 4)}–${sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5)} Hz; hold ${sig(r.settings.holdS, 3)} s; event window from ${sig(r.settings.preS, 3)} s before to ${sig(r.settings.postS, 3)} s after; the mean removed`,
-    `  rate       ${sig(r.rate.samplesPerPeriod, 3)} samples per period at the highest fn (at least 10 asked; the sample peak is within ${fixed(100 * r.rate.peakShortfallBound, 1)} % of the continuous one)`,
+    `  settings   Q ${sig(r.settings.q, 4)}; ${r.settings.fnHz.length} natural frequencies ${sig(r.settings.fnHz[0]!, 4)}–${sig(r.settings.fnHz[r.settings.fnHz.length - 1]!, 5)} Hz; hold ${sig(r.settings.holdS, 3)} s; event window from ${sig(r.settings.preS, 3)} s before to ${sig(r.settings.postS, 3)} s after; the baseline removed (the mean without the shocks' stretches)`,
+    `  rate       ${sig(r.rate.samplesPerPeriod, 3)} samples per period at the highest fn (at least 10 asked; ${shortfallWords(r)})`,
     "",
   ];
   const all = r.channels
@@ -133,7 +149,7 @@ export function shockText(r: ShockResult, version: string, top = 10): string {
   for (const c of r.channels) {
     const u = accelLabel(c.units);
     lines.push(
-      `  ${printable(c.name)}: background ${sig(c.backgroundRms, 4)} ${u} r.m.s. (median of 1 s stretches), threshold ${sig(c.threshold, 4)} ${u} = ${sig(c.thresholdFactor, 3)} x background; ` +
+      `  ${printable(c.name)}: background ${sig(c.backgroundRms, 4)} ${u} r.m.s. (median of ${backgroundStretches(r)}), threshold ${sig(c.threshold, 4)} ${u} = ${sig(c.thresholdFactor, 3)} x background; ` +
         `${c.events.length} event(s); by chance on a Gaussian background ${c.expectedFalseEvents < 0.01 ? c.expectedFalseEvents.toExponential(1) : sig(c.expectedFalseEvents, 2)} expected (Rice, nu0 ${sig(c.zeroUpcrossingRateHz, 3)} Hz)`,
     );
   }

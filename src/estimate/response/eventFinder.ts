@@ -290,3 +290,150 @@ export function backgroundRms(stretchMeanSquares: ArrayLike<number>): number {
 export function gaussianFalseEventRate(k: number, zeroUpcrossingRateHz: number): number {
   return 2 * zeroUpcrossingRateHz * Math.exp((-k * k) / 2);
 }
+
+/** Length of the stretches a shock record's baseline is taken over, s (BaselineStretches). */
+export const BASELINE_STRETCH_S = 0.1;
+/** Stretches kept before neighbours are pooled in pairs (1 MB a channel; 55 min of 0.1 s stretches before pooling). */
+const BASELINE_STRETCHES_MAX = 1 << 15;
+
+/**
+ * A shock record's baseline (gravity on the axis, an offset): the mean of the record without the stretches that hold
+ * its shocks. The plain mean also holds each shock's area over the record's length: a 50 g, 11 ms half-sine moves a
+ * 1 s record's mean by 0.35 g, and the record centred on it sits 0.35 g off its baseline, a step that the SDOF filters
+ * feel as much as the shock at low natural frequencies (its whole-record SRS at 1 Hz was 0.83 of the pulse's). So the
+ * record is cut into short stretches (BASELINE_STRETCH_S), each keeping its sum, count and extremes, in flat memory
+ * (pooled in pairs past BASELINE_STRETCHES_MAX), and `baseline`, from the median of the stretch means, leaves out
+ * every stretch that reaches the threshold from the baseline and averages the rest, repeated until the stretches left
+ * out settle. When nothing is left out the plain mean is the
+ * baseline, bit for bit; when half the record or more would be left out, the level itself moves (a tilt, a drift:
+ * BASELINE_DRIFT), and the plain mean is kept.
+ */
+export class BaselineStretches {
+  private readonly sum = new Float64Array(BASELINE_STRETCHES_MAX);
+  private readonly count = new Float64Array(BASELINE_STRETCHES_MAX);
+  private readonly squares = new Float64Array(BASELINE_STRETCHES_MAX);
+  private readonly lo = new Float64Array(BASELINE_STRETCHES_MAX).fill(Infinity);
+  private readonly hi = new Float64Array(BASELINE_STRETCHES_MAX).fill(-Infinity);
+  /** Whole stretches so far; the current one is index `whole`. */
+  private whole = 0;
+  private inCurrent = 0;
+  private length: number;
+
+  constructor(samplesPerStretch: number) {
+    this.length = Math.max(2, Math.round(samplesPerStretch));
+  }
+
+  push(x: Float64Array, frames: number): void {
+    let k = this.whole;
+    let inCur = this.inCurrent;
+    let s = this.sum[k]!;
+    let c = this.count[k]!;
+    let q = this.squares[k]!;
+    let lo = this.lo[k]!;
+    let hi = this.hi[k]!;
+    for (let j = 0; j < frames; j++) {
+      const v = x[j]!;
+      if (v - v === 0) {
+        s += v;
+        q += v * v;
+        c++;
+        if (v < lo) lo = v;
+        if (v > hi) hi = v;
+      }
+      if (++inCur === this.length) {
+        this.sum[k] = s;
+        this.count[k] = c;
+        this.squares[k] = q;
+        this.lo[k] = lo;
+        this.hi[k] = hi;
+        inCur = 0;
+        k++;
+        if (k === BASELINE_STRETCHES_MAX) k = this.pool();
+        s = this.sum[k]!;
+        c = this.count[k]!;
+        q = this.squares[k]!;
+        lo = this.lo[k]!;
+        hi = this.hi[k]!;
+      }
+    }
+    this.sum[k] = s;
+    this.count[k] = c;
+    this.squares[k] = q;
+    this.lo[k] = lo;
+    this.hi[k] = hi;
+    this.whole = k;
+    this.inCurrent = inCur;
+  }
+
+  /** Neighbours pooled in pairs, the stretch twice as long; returns the next free index. */
+  private pool(): number {
+    const half = BASELINE_STRETCHES_MAX / 2;
+    for (let i = 0; i < half; i++) {
+      this.sum[i] = this.sum[2 * i]! + this.sum[2 * i + 1]!;
+      this.count[i] = this.count[2 * i]! + this.count[2 * i + 1]!;
+      this.squares[i] = this.squares[2 * i]! + this.squares[2 * i + 1]!;
+      this.lo[i] = Math.min(this.lo[2 * i]!, this.lo[2 * i + 1]!);
+      this.hi[i] = Math.max(this.hi[2 * i]!, this.hi[2 * i + 1]!);
+    }
+    this.sum.fill(0, half);
+    this.count.fill(0, half);
+    this.squares.fill(0, half);
+    this.lo.fill(Infinity, half);
+    this.hi.fill(-Infinity, half);
+    this.length *= 2;
+    return half;
+  }
+
+  /**
+   * The mean squares of the whole stretches, each about its own mean (for `backgroundRms` where a record has too few
+   * 1 s stretches for their median to leave a shock's out).
+   */
+  meanSquares(): number[] {
+    const out: number[] = [];
+    for (let k = 0; k < this.whole; k++) {
+      const c = this.count[k]!;
+      if (c < 2) continue;
+      const m = this.sum[k]! / c;
+      out.push(Math.max(0, this.squares[k]! / c - m * m));
+    }
+    return out;
+  }
+
+  /** The baseline for a threshold on |x - baseline|, starting from the plain mean (see the class). */
+  baseline(threshold: number, mean: number): number {
+    const n = this.whole + (this.inCurrent > 0 ? 1 : 0);
+    let total = 0;
+    const means: number[] = [];
+    for (let k = 0; k < n; k++) {
+      total += this.count[k]!;
+      if (this.count[k]! > 0) means.push(this.sum[k]! / this.count[k]!);
+    }
+    if (means.length === 0) return mean;
+    // From the median of the stretch means: the plain mean can sit so far off (a short record) that every stretch
+    // reaches the threshold from it.
+    means.sort((p, q) => p - q);
+    const h = means.length >> 1;
+    let b = means.length % 2 ? means[h]! : (means[h - 1]! + means[h]!) / 2;
+    let outBefore = -1;
+    for (let round = 0; round < 5; round++) {
+      let s = 0;
+      let c = 0;
+      let out = 0;
+      for (let k = 0; k < n; k++) {
+        if (this.count[k] === 0) continue;
+        if (this.hi[k]! - b >= threshold || b - this.lo[k]! >= threshold) {
+          out++;
+          continue;
+        }
+        s += this.sum[k]!;
+        c += this.count[k]!;
+      }
+      if (out === 0 && round === 0) return mean;
+      if (!(c > total / 2)) return mean;
+      b = s / c;
+      if (out === outBefore) break;
+      outBefore = out;
+    }
+    return b;
+  }
+}

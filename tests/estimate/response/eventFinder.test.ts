@@ -1,5 +1,11 @@
 import { describe, expect, it } from "vitest";
-import { backgroundRms, EventFinder, gaussianFalseEventRate } from "../../../src/estimate/response/eventFinder.js";
+import {
+  BaselineStretches,
+  backgroundRms,
+  EventFinder,
+  gaussianFalseEventRate,
+} from "../../../src/estimate/response/eventFinder.js";
+import { gaussian } from "../../helpers.js";
 import { shockSpectrum, ShockSpectrumAccumulator } from "../../../src/estimate/response/shockResponse.js";
 import { bandLimited, FS, run, stretchMeanSquares } from "./eventRecords.js";
 
@@ -133,5 +139,31 @@ describe("gaussianFalseEventRate (audit 2: the README and the default's comment 
     expect(gaussianFalseEventRate(6, 100)).toBeCloseTo(closed, 20);
     expect(1 / gaussianFalseEventRate(6, 100) / 86400).toBeCloseTo(3.8, 1);
     expect(1 / gaussianFalseEventRate(6, 1000) / 3600).toBeCloseTo(9.1, 1);
+  });
+});
+
+describe("BaselineStretches", () => {
+  it("nothing reaches the threshold: the plain mean, bit for bit; pooled past its capacity, a shock's stretches are still left out", () => {
+    const x = gaussian(300000, 5, 0.05).map((v) => v + 1);
+    let mean = 0;
+    for (const v of x) mean += v;
+    mean /= x.length;
+    const quiet = new BaselineStretches(2); // 150000 stretches of 2: pooled twice (to stretches of 8)
+    for (let i = 0; i < x.length; i += 7000)
+      quiet.push(x.subarray(i, Math.min(x.length, i + 7000)), Math.min(7000, x.length - i));
+    expect(quiet.baseline(0.5, mean)).toBe(mean);
+    // A 30 g block of 2000 samples: the plain mean moves by 0.2 g; the baseline stays on the quiet samples' mean.
+    const y = x.slice();
+    for (let i = 100000; i < 102000; i++) y[i]! += 30;
+    let yMean = 0;
+    for (const v of y) yMean += v;
+    yMean /= y.length;
+    const b = new BaselineStretches(2);
+    b.push(y, y.length);
+    let quietMean = 0;
+    for (let i = 0; i < x.length; i++) if (i < 100000 || i >= 102000) quietMean += x[i]!;
+    quietMean /= x.length - 2000;
+    expect(yMean - quietMean).toBeGreaterThan(0.19);
+    expect(Math.abs(b.baseline(0.5, yMean) - quietMean)).toBeLessThan(1e-3);
   });
 });

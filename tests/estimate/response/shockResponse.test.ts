@@ -5,6 +5,7 @@ import {
   shockSpectrum,
   ShockSpectrumAccumulator,
   srsRateLimit,
+  srsShortfallBound,
 } from "../../../src/estimate/response/shockResponse.js";
 import { python } from "../../helpers.js";
 
@@ -90,6 +91,9 @@ describe("ramp-invariant SDOF filters (Smallwood 1981)", () => {
   });
   it("refuses natural frequencies above fs/4 and states the shortfall bound at fs/10", () => {
     expect(() => new ShockSpectrumAccumulator(Float64Array.from([6000]), 10, FS)).toThrow(/SRS_RATE_TOO_LOW/);
+    expect(() => new ShockSpectrumAccumulator(Float64Array.from([6000]), 10, FS)).toThrow(
+      /4\.9 %, 8\.0 % on a recorded/,
+    );
     expect(srsRateLimit(Float64Array.from([2000]), FS).peakShortfallBound).toBeCloseTo(1 - Math.cos(Math.PI / 10), 12);
   });
 });
@@ -135,5 +139,53 @@ describe("SRS of classic pulses against an exact simulation (scipy.signal first-
     let bb = 0;
     for (let i = 1; i < fn.length; i++) if (burst.maximax[i]! > burst.maximax[bb]!) bb = i;
     expect(Math.abs(Math.log2(fn[bb]! / 100))).toBeLessThanOrEqual(1 / 12 + 1e-9);
+  });
+});
+
+describe("the rate bound on a recorded (band-limited) input, 200 Hz", () => {
+  // A 40-cycle Hann-windowed sine burst at f_n, its phase set so the response's crests fall between samples (the
+  // worst of eight phases over one sample step, found here). The exact continuous response: the same
+  // first-order-hold discretisation as above (scipy.signal.cont2discrete "foh" + lfilter) on the continuous burst
+  // sampled at 100 x 200 Hz. The ramp-invariant filter reads the 200 Hz samples as straight lines, which loses
+  // sinc^2(f_n/fs) of the burst's amplitude at f_n, on top of the sample peak's 1 - cos(pi f_n/fs).
+  const FS200 = 200;
+  const cases = [
+    { fn: 20, phaseStep: 3 / 8 },
+    { fn: 50, phaseStep: 3 / 8 },
+  ];
+  const burst = (fn: number, phase: number) => {
+    const T = 40 / fn;
+    return {
+      py: `np.where(t < ${T}, np.sin(2*np.pi*${fn}*t + ${phase})*np.sin(np.pi*t/${T})**2, 0.0)`,
+      f: (t: number) => (t < T ? Math.sin(2 * Math.PI * fn * t + phase) * Math.sin((Math.PI * t) / T) ** 2 : 0),
+      seconds: T + 10 / fn,
+    };
+  };
+  const exact: number[] = JSON.parse(
+    python(`
+import numpy as np, scipy.signal as sg, json
+fs = ${100 * FS200}.0
+out = []
+for fn, ph, T in ${JSON.stringify(cases.map((c) => [c.fn, (c.phaseStep * 2 * Math.PI * c.fn) / FS200, 40 / c.fn + 10 / c.fn]))}:
+    t = np.arange(0, T, 1/fs)
+    u = np.where(t < 40/fn, np.sin(2*np.pi*fn*t + ph)*np.sin(np.pi*t/(40/fn))**2, 0.0)
+    w = 2*np.pi*fn; z = 1/(2*${Q})
+    A, B, C, D, _ = sg.cont2discrete(sg.tf2ss([2*z*w, w*w], [1, 2*z*w, w*w]), 1/fs, method="foh")
+    bz, az = sg.ss2tf(A, B, C, D)
+    out.append(float(np.abs(sg.lfilter(bz[0], az, u)).max()))
+print(json.dumps(out))
+`),
+  );
+  cases.forEach(({ fn, phaseStep }, k) => {
+    it(`fn ${fn} Hz (${FS200 / fn} samples per period): the shortfall passes the sample-peak bound and stays within srsShortfallBound's band-limited one`, () => {
+      const b = burst(fn, (phaseStep * 2 * Math.PI * fn) / FS200);
+      const s = shockSpectrum(sampled(b.f, FS200, b.seconds), Float64Array.from([fn]), Q, FS200);
+      const shortfall = 1 - s.maximax[0]! / exact[k]!;
+      const bound = srsShortfallBound(FS200 / fn);
+      // Measured: 7.3 % at fs/10 (sample-peak bound 4.9 %, band-limited bound 8.0 %); 37.5 % at fs/4 (29.3 %, 42.7 %).
+      expect(shortfall).toBeGreaterThan(bound.samplePeak);
+      expect(shortfall).toBeLessThanOrEqual(bound.bandLimited);
+      expect(bound.samplePeak).toBeCloseTo(srsRateLimit(Float64Array.from([fn]), FS200).peakShortfallBound, 14);
+    });
   });
 });
