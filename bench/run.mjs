@@ -8,7 +8,17 @@
 // Times are wall-clock medians; peak RSS comes from GNU time (%M). The machine is shared and noisy:
 // compare the ratios, not the absolute times.
 import { execFileSync, spawnSync } from "node:child_process";
-import { existsSync, mkdirSync, readFileSync, rmSync, statSync, writeFileSync } from "node:fs";
+import {
+  closeSync,
+  existsSync,
+  mkdirSync,
+  openSync,
+  readFileSync,
+  readSync,
+  rmSync,
+  statSync,
+  writeFileSync,
+} from "node:fs";
 import { availableParallelism } from "node:os";
 
 const arg = (name, dflt) => {
@@ -57,13 +67,35 @@ function median(xs) {
   return s[(s.length - 1) >> 1];
 }
 /**
- * Runs the routes in turn, round after round (a, b, c, a, b, c, ...), so that the machine's slow
- * moments fall on every route alike; returns each route's median and peak RSS.
+ * Reads the files once, untimed, so that every route reads them from the page cache. The development VM
+ * evicts pages nobody touched for a while (a 110 MB file used ten minutes before was 4 % resident), and
+ * without this the first route of a round could pay a disk read the others do not.
  */
-function measureTogether(routes, n) {
+function warmCache(files) {
+  const buf = Buffer.allocUnsafe(1 << 22);
+  for (const f of files) {
+    const fd = openSync(f, "r");
+    try {
+      while (readSync(fd, buf, 0, buf.length, null) > 0);
+    } finally {
+      closeSync(fd);
+    }
+  }
+}
+
+/**
+ * Runs the routes in turn, round after round (a, b, c, a, b, c, ...), so that the machine's slow
+ * moments fall on every route alike, each run after its input files are read into the page cache;
+ * returns each route's median and peak RSS.
+ */
+function measureTogether(routes, n, files = []) {
   const rs = routes.map(() => []);
   const load = [loadNow()];
-  for (let i = 0; i < n; i++) routes.forEach((r, k) => rs[k].push(timed(r.cmd, r.args)));
+  for (let i = 0; i < n; i++)
+    routes.forEach((r, k) => {
+      warmCache(files);
+      rs[k].push(timed(r.cmd, r.args));
+    });
   load.push(loadNow());
   return routes.map((r, k) => ({
     label: r.label,
@@ -112,7 +144,7 @@ for (const n of spellingRows) {
         ? [{ label: "pandas.read_csv (C) + scipy.welch", cmd: SYS_PY, args: ["-c", PY_PANDAS(csv, sp)] }]
         : []),
     ];
-    const ms = measureTogether(routes, n >= 1e7 ? bigRuns : runs);
+    const ms = measureTogether(routes, n >= 1e7 ? bigRuns : runs, [csv]);
     const ours = ms[0];
     const np = ms.find((m) => m.label.startsWith("numpy"));
     const pd = ms.find((m) => m.label.startsWith("pandas"));
@@ -153,12 +185,12 @@ for (const n of sizes) {
     { label: "raw byte scan", cmd: "node", args: ["bench/rawScan.mjs", csv] },
     ...(hasScipy ? [{ label: "numpy.loadtxt + scipy.welch", cmd: "python3", args: ["-c", PY_CSV(csv)] }] : []),
   ];
-  for (const m of measureTogether(csvRoutes, reps)) add("csv", csvBytes, m);
+  for (const m of measureTogether(csvRoutes, reps, [csv])) add("csv", csvBytes, m);
   const wavRoutes = [
     { label: "psdgate psd", cmd: "node", args: [...PSD.slice(0, 2), wav, ...PSD.slice(2)] },
     ...(hasScipy ? [{ label: "scipy.io.wavfile + scipy.welch", cmd: "python3", args: ["-c", PY_WAV(wav)] }] : []),
   ];
-  for (const m of measureTogether(wavRoutes, reps)) add("wav", wavBytes, m);
+  for (const m of measureTogether(wavRoutes, reps, [wav])) add("wav", wavBytes, m);
   if (!keep && n >= 5e7) rmSync(csv, { force: true });
 }
 
@@ -178,6 +210,7 @@ const [jobs1, jobs2] =
           args: ["bin/psdgate.js", "psd", ...batch, "--jobs", String(j), "--json", "-q"],
         })),
         runs,
+        batch,
       )
     : [undefined, undefined];
 
