@@ -219,8 +219,10 @@ const RIDE_TEXTS = {
     ];
     return `at ${v.rateHz} Hz the time-domain weighting${Number(a.filters) > 1 ? "s are" : " is"} within ${v.maxErrorPercent} % of ISO 2631-1's |W(f)| at the one-third-octave centres to ${v.topCentreHz} Hz (largest at ${v.atHz} Hz): ${carriers.slice(0, -1).join(", ")} and ${carriers[carriers.length - 1]} carry it; a_w from the PSD applies |W(f)| exactly`;
   },
+  WEIGHTING_ERROR_ON_RECORD: (v) =>
+    `on this record's spectrum the time-domain weighting reads a_w ${signed(v.offPercent!)} % off |W(f)| applied exactly, beyond the ${v.statedPercent} % stated at the one-third-octave centres (the realisation departs most between the centres, in the top band and between ${v.topCentreHz} Hz and Nyquist ${v.nyquistHz} Hz): a_w, crest factor, VDV, MTVV and what is made from them carry it; a_w from the PSD applies |W(f)| exactly`,
   BAND_SHORT: (v) =>
-    `the record holds nothing above its Nyquist frequency ${v.nyquistHz} Hz: the weighted figures cover ISO 2631-1's one-third-octave bands to ${v.topCentreHz} Hz of 0.5-80 Hz and leave out any motion above`,
+    `the record holds nothing above its Nyquist frequency ${v.nyquistHz} Hz: the weighted figures cover ISO 2631-1's one-third-octave bands of 0.5-80 Hz whole to ${v.topCentreHz} Hz and the rest only to ${v.nyquistHz} Hz, and leave out any motion above`,
   EXPOSURE_NOT_GIVEN: () =>
     "no daily exposure stated: a_w, crest factor, VDV, MTVV, the total value and the comfort words are the recording's own; A(8), the daily VDV and their judgement against Directive 2002/44/EC and ISO 2631-1 Annex B need the daily exposure the recording stands for (--exposure)",
   AXES_MISSING: (_v, a) =>

@@ -1,4 +1,5 @@
 import type { AnalogSection } from "./isoWeightings.js";
+import { predictBefore } from "./startPrediction.js";
 
 /**
  * Analog second-order sections realised as digital biquads by the bilinear transform with pre-warping
@@ -67,19 +68,19 @@ export function cascadeMagnitude(
 
 /**
  * A cascade of biquads run over blocks, transposed direct form II (one state pair per section).
- * State carries across blocks. Before the first sample the cascade settles on the record's own start
- * played backwards: the odd reflection of the first `settleSamples` samples about their mean
- * (scipy.signal.filtfilt pads with the odd reflection about x[0]; about the mean, one sample's noise does
- * not set the level), run from the steady state for that mean (scipy.signal.lfilter_zi times it), output
- * discarded. The state at x[0] is then that of a record that had been running at its start's level, with
- * its start's content, so neither gravity on an axis nor the gravity a tilting sensor starts with sets off
- * a transient, and no sample of the record is left out. (A straight-line fit in place of the mean was
- * tried: over 5 s it reads a 4 Hz sine as a slope of 0.02 /s and kicked the high-pass with it.) Starting at x[0]
- * instead (lfilter_zi * x[0]) kicks the 0.4 Hz high-pass with that sample's noise; starting at the mean of a long first
- * block kicks it with the difference between that mean and the start's level (a sensor that tilts during the ride).
- * Whatever the steady start leaves in the state decays through the reflection: exp(-zeta w1 K/fs) for the slowest
- * section (0.4 Hz, zeta 0.707: 1e-4 after 5 s). A non-finite input is replaced by the last finite one (counted in
- * `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
+ * State carries across blocks. Before the first sample the cascade settles on a past predicted from the record's own
+ * start (startPrediction.ts): the level m of the first `settleSamples` samples (a Hann-weighted mean, so a tone's
+ * unfinished period barely moves it), Burg's autoregressive model of order `predictionOrder` fitted to the start less m,
+ * and `settleSamples` samples before x[0] predicted backwards with it, run from the steady state for m (scipy.signal.
+ * lfilter_zi times it), output discarded. What the start holds that is predictable (gravity, a tilt's slope, a sine at
+ * any phase: a body bounce, an engine's tone, a calibrator) is continued into the past with its phase, so it sets off
+ * no transient; noise fades to m. Whatever the steady start leaves decays through the prediction: exp(-zeta w1 K/fs)
+ * for the slowest section (0.4 Hz, zeta 0.707: 1e-4 after 5 s). When no model can be fitted (a start too short) or its
+ * prediction runs away, the past is the odd reflection of the start about m, the earlier method (scipy.signal.filtfilt
+ * pads with the odd reflection about x[0]): it joins x[0] with a jump of 2 (m - x[0]), which rang the 0.4 Hz band
+ * limit when the start was a sine away from its mean (a 1 Hz sine at its crest: crest factor +175 %, MTVV +19 %
+ * through Wk). predictionOrder 0 keeps that reflection always. A non-finite input is replaced by the last finite one
+ * (counted in `heldSamples`), so one NaN does not poison the recursion for the rest of the record.
  */
 export class BiquadCascade {
   private readonly coef: Float64Array;
@@ -95,12 +96,17 @@ export class BiquadCascade {
    */
   readonly settleSamples: number;
 
+  /** Order of the model the past is predicted with (0: the odd reflection about the start's level). */
+  readonly predictionOrder: number;
+
   constructor(
     sections: readonly DigitalBiquad[],
     readonly gain: number,
     settleSamples = 0,
+    predictionOrder = 0,
   ) {
     this.settleSamples = Math.max(0, Math.floor(settleSamples));
+    this.predictionOrder = Math.max(0, Math.floor(predictionOrder));
     this.count = sections.length;
     this.coef = new Float64Array(5 * this.count);
     this.state = new Float64Array(2 * this.count);
@@ -118,29 +124,43 @@ export class BiquadCascade {
   }
 
   /**
-   * Settle on the start: the mean m of the first K = min(settleSamples, frames) finite samples, the steady
-   * state for m, then the odd reflection of the start about m, x[-k] = 2 m - x[k] for k = K-1 ... 1, run
-   * through the cascade with its output discarded. The reflection has the start's level and spectrum, and a
-   * sine keeps its phase through it. settleSamples 0: the steady state for the block's mean only.
+   * Settle on the start: the level m of the first K = min(settleSamples, frames) samples (Hann-weighted mean of the
+   * finite ones), the steady state for m, then K - 1 samples before x[0] predicted backwards from the start less m
+   * (startPrediction.ts), plus m, run through the cascade with the output discarded. Without a model (predictionOrder 0,
+   * a start too short, a prediction that runs away) the past is the odd reflection x[-k] = 2 m - x[k], k = K-1 ... 1.
+   * settleSamples 0: the steady state for the block's mean only.
    */
   private settleOn(x: Float64Array, frames: number): void {
     const k = this.settleSamples > 0 ? Math.min(this.settleSamples, frames) : frames;
-    let n = 0;
-    let sum = 0;
+    // The start with non-finite samples held at the last finite one (the first finite one before any).
+    const start = new Float64Array(k);
+    let first = 0;
     for (let i = 0; i < k; i++) {
       const v = x[i]!;
       if (v - v === 0) {
-        n++;
-        sum += v;
+        first = v;
+        break;
       }
     }
-    const m = n > 0 ? sum / n : 0;
+    let last = first;
+    let n = 0;
+    for (let i = 0; i < k; i++) {
+      const v = x[i]!;
+      if (v - v === 0) {
+        last = v;
+        n++;
+      }
+      start[i] = last;
+    }
+    const m = n > 0 ? hannMean(start, this.settleSamples > 0) : 0;
     this.startAt(m);
     if (this.settleSamples === 0 || k < 2) return;
     const r = new Float64Array(k - 1);
-    for (let j = 0; j < k - 1; j++) {
-      const v = x[k - 1 - j]!;
-      r[j] = v - v === 0 ? 2 * m - v : m;
+    for (let i = 0; i < k; i++) start[i]! -= m;
+    if (this.predictionOrder > 0 && predictBefore(start, this.predictionOrder, k - 1, r)) {
+      for (let j = 0; j < k - 1; j++) r[j]! += m;
+    } else {
+      for (let j = 0; j < k - 1; j++) r[j] = m - start[k - 1 - j]!;
     }
     this.run(r, k - 1);
   }
@@ -207,4 +227,21 @@ export class BiquadCascade {
     const g = this.gain;
     if (g !== 1) for (let i = 0; i < frames; i++) y[i]! *= g;
   }
+}
+
+/**
+ * The start's level: the Hann-weighted mean sum w x / sum w, w = sin^2(pi (i + 1/2) / K) (tapered: a tone's unfinished
+ * period leaks into it as the window's sidelobes, not as a plain mean's 1/(pi f T)); the plain mean when `tapered` is
+ * false.
+ */
+function hannMean(x: Float64Array, tapered: boolean): number {
+  const k = x.length;
+  let sw = 0;
+  let s = 0;
+  for (let i = 0; i < k; i++) {
+    const w = tapered ? Math.sin((Math.PI * (i + 0.5)) / k) ** 2 : 1;
+    sw += w;
+    s += w * x[i]!;
+  }
+  return s / sw;
 }

@@ -199,6 +199,45 @@ describe("a sine through each weighting in the time domain", () => {
     for (let i = fs; i < x.length; i++) rest += y[i]! ** 2;
     expect(Math.sqrt(first / fs) / Math.sqrt(rest / (x.length - fs))).toBeLessThan(2);
   });
+  // A sine that starts away from its mean (a body bounce at its crest, a calibrator's sine at any phase) must start no
+  // transient: its weighted output is |W(f)| A from the first sample. The steady amplitude is the closed form |W(f)| A
+  // (isoWeightings.ts, held to scipy.signal.freqs in tests/weight/isoWeightings.test.ts). The odd reflection about the
+  // start's mean joined x[0] with a jump of 2 (m - x[0]): measured (ride audit, 2026-12-03) a 1 Hz cosine on gravity
+  // through Wk at 200 Hz peaked at 2.75x |W| A in the first second (crest factor +175 %, MTVV +19 %).
+  for (const [w, f, fs, phase, gravity] of [
+    ["Wk", 1, 200, 0, 9.80665],
+    ["Wk", 0.5, 100, 1.2, 9.80665],
+    ["Wd", 1, 1000, 2.0, 0],
+    ["Wd", 15.915, 1000, 0.4, 0],
+    ["Wd", 7.3, 200, 2.5, 0],
+  ] as const) {
+    it(`a ${f} Hz sine on ${gravity} m/s^2 starting at phase ${phase} rad sets no start transient (${w}, ${fs} Hz): its first second within 0.5 % of the same second with 20 s of history, peak within 0.5 % of |W| A`, () => {
+      const n = 30 * fs;
+      const lead = 20 * fs;
+      const amp = Math.SQRT2;
+      // The same sine with 20 s before its "first" sample: the filter has run into its steady state by then.
+      const long = new Float64Array(lead + n);
+      for (let i = 0; i < lead + n; i++)
+        long[i] = gravity + amp * Math.cos((2 * Math.PI * f * (i - lead)) / fs + phase);
+      const d = designWeightingFilter(w, fs);
+      const ref = new Float64Array(lead + n);
+      weightingCascade(d).process(long, ref, lead + n);
+      const y = new Float64Array(n);
+      weightingCascade(d).process(long.subarray(lead), y, n);
+      // The realisation's own gain at f (not the start's doing) is taken out: cascadeMagnitude at f.
+      const steady = cascadeMagnitude(d.sections, d.gain, f, fs) * amp;
+      let peak = 0;
+      let s2 = 0;
+      let r2 = 0;
+      for (let i = 0; i < fs; i++) {
+        peak = Math.max(peak, Math.abs(y[i]!));
+        s2 += y[i]! ** 2;
+        r2 += ref[lead + i]! ** 2;
+      }
+      expect(peak / steady).toBeLessThan(1.005);
+      expect(Math.abs(Math.sqrt(s2 / r2) - 1)).toBeLessThan(0.005);
+    });
+  }
   it("a NaN is held at the last finite input (counted), so the output stays finite", () => {
     const f = new BiquadCascade(designWeightingFilter("Wd", 1000).sections, 1);
     const x = Float64Array.from([1, 2, NaN, 3, Infinity, 4]);
