@@ -108,7 +108,10 @@ export function thinBand(pts: (readonly [number, number, number])[]): (readonly 
  * verdict word after it in the page's <title>, nor a tab or newline pass unseen.
  */
 export function escapeXml(s: string): string {
-  return printable(s).replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
+  return printable(s).replace(
+    /[&<>"']/g,
+    (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!,
+  );
 }
 
 /**

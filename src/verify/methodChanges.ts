@@ -50,6 +50,41 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
     kinds: ["derive"],
     what: "each field recording's data doubts (NON_FINITE, CLIPPING, PARSEVAL_MISMATCH, the amplitude gates) and DEAD_STRETCH as notes",
   },
+  {
+    version: "0.4.0",
+    kinds: ["ride"],
+    what: "the weighting filters' start (settled on a past predicted from the record's start by Burg's method, not the start mirrored about its mean)",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["ride"],
+    what: "the weighting filter's error on the record's own spectrum (WEIGHTING_ERROR_ON_RECORD) and BAND_SHORT's words",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["respond", "derive"],
+    what: "the response computed from a recording (equalised for the ramp-invariant reading's sinc²)",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["shock", "derive"],
+    what: "the baseline removed (the mean without the 0.1 s stretches that reach the threshold) and the background of records under 3 s",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["check"],
+    what: "the power a pass claims with largest-of control (the largest of k channels) and the band at a shared edge of asymmetric bands (the tighter limit each side)",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["*"],
+    what: "WAV: the quantisation step from WAVE_FORMAT_EXTENSIBLE's valid bits, the data size of a plain RIFF file over 4 GiB",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["*"],
+    what: "controls and bidi overrides in names and titles shown as escapes on the page",
+  },
 ];
 
 /** -1, 0 or 1 as version a is before, the same as or after version b (dotted numbers; anything else compares 0). */

@@ -59,7 +59,7 @@ describe("names from files in outputs", () => {
     const r = await cli("check", "samples/kb210-run-resonance.wav", "--profile", file, "--report", html);
     expect(r.code).toBe(1);
     // The embedded result (a <template>, never rendered) keeps the title as the profile wrote it.
-    const page = readFileSync(html, "utf8").replace(/<template id="psdgate-result"[^]*<\/template>/, "");
+    const page = readFileSync(html, "utf8").replace(/<template id="psdgate-result"[\s\S]*<\/template>/, "");
     expect(page).not.toMatch(/[\u202a-\u202e\u2066-\u2069]/u);
     expect(page).toContain("<title>Rig 4 \\u{202e} SSAP: FAIL</title>");
     const v = await cli("verify", html);
