@@ -78,6 +78,11 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   {
     version: "0.4.0",
     kinds: ["*"],
+    what: "the tone candidates (a peak wider than the window's kernel, a resonance of random vibration, is not a tone; derive no longer takes it out of the field spectrum)",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["*"],
     what: "WAV: the quantisation step from WAVE_FORMAT_EXTENSIBLE's valid bits, the data size of a plain RIFF file over 4 GiB",
   },
   {

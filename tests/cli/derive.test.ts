@@ -207,6 +207,35 @@ describe("psdgate derive", () => {
     expect(v.code, v.stdout).toBe(0);
   });
 
+  it("the motorway recording's 22 Hz mount resonance (Q 6, random) stays in the field spectrum: no tone candidate, band RMS as psd gives it", async () => {
+    const dir = tempDir();
+    const r = await cli(
+      "derive",
+      "--mix",
+      "samples/corran-k7-mix.yaml",
+      "--test-duration",
+      "1h",
+      "--fmin",
+      "5",
+      "--fmax",
+      "500",
+      "--out",
+      join(dir, "k7.yaml"),
+      "--json",
+    );
+    expect(r.code, r.stderr).toBe(0);
+    const j = JSON.parse(r.stdout);
+    // Before 0.4.0 the resonance passed as a tone and its lines took the background: 0.4662 g of 0.6788 g.
+    expect(j.candidateTones).toEqual([]);
+    const motorway = j.recordings.find((x: { file: string }) => x.file.endsWith("corran-k7-motorway.wav"));
+    const psd = JSON.parse(
+      (await cli("psd", "samples/corran-k7-motorway.wav", "--segment", "2048", "--fmin", "5", "--fmax", "500", "--json"))
+        .stdout,
+    );
+    expect(psd.channels[0].tones).toEqual([]);
+    expect(Math.abs(motorway.bandRms / psd.channels[0].band.rms - 1)).toBeLessThan(0.01);
+  }, 60_000);
+
   it("two recordings: no tolerance limit, said so", async () => {
     const dir = tempDir();
     const r = await cli(

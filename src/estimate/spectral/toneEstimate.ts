@@ -347,6 +347,15 @@ export function toneLines(
   return { first, last };
 }
 
+/**
+ * The kernel-shape test of a tone candidate (spectralTones): the level at which lines that do fit the kernel are
+ * taken for a resonance, and the share of the tone's own part allowed beside the lines' chi-square scatter (the fit's
+ * 1/32-bin grid moves a line's share of the tone by up to about 5 % on the kernel's flank). Chosen here and held to a
+ * Monte Carlo on test-made records (tests/estimate/spectral/toneShape.montecarlo.test.ts).
+ */
+const SHAPE_LEVEL = 1e-4;
+const SHAPE_TOLERANCE = 0.1;
+
 export interface SpectralTone {
   frequencyHz: number;
   /** Peak amplitude from the kernel's least-squares fit to the lines it occupies (no scalloping loss). */
@@ -362,10 +371,11 @@ export interface SpectralTone {
  * the largest within the kernel's reach, at least `minDb` (10 dB) above the median of the 2 x 16 lines beyond
  * that reach, and above that median by more than chance among all lines explains (chi-square at 1 % over all
  * lines, Bonferroni), and when the three lines just past the kernel's reach on each side lie within 3 dB of that median
- * (a tone is as narrow as the kernel; a resonance is wider). Its peak amplitude and frequency come from fitting the
+ * (a tone is as narrow as the kernel; a resonance is wider), and when the lines within reach fit the kernel's shape
+ * (chi-square against the lines' own scatter). Its peak amplitude and frequency come from fitting the
  * kernel h(k - delta) to the excess over the background on the lines it occupies (least squares in amplitude, delta on
  * a 1/32-bin grid), so the window's scalloping does not bias it (Percival & Walden 1993, sec. 6.3; the periodic
- * window's kernel sums to 1 over the lines). A narrow resonance of random vibration can also pass: these are
+ * window's kernel sums to 1 over the lines). A resonance narrower than a line or two can also pass: these are
  * candidates.
  */
 export function spectralTones(
@@ -440,6 +450,23 @@ export function spectralTones(
       }
     }
     if (!(bestA > 0)) continue;
+    // A tone has the kernel's shape: every line within reach must fit bg + a h(k - d) within the estimate's own scatter,
+    // a line variance 2 S^2 / dof (the estimate is S chi-square(dof) / dof: common practice), plus SHAPE_TOLERANCE of the tone's part
+    // for the 1/32-bin grid and a tone that drifts a little. A resonance of random vibration some lines wide (a rack on
+    // its mount, Q 6 at 22 Hz with 1 Hz lines) is wider than the kernel on its flanks: it is not a tone.
+    if (sp.dof > 0 && Number.isFinite(sp.dof)) {
+      let misfit = 0;
+      let used = 0;
+      for (let k = -reach; k <= reach; k++) {
+        if (i + k < 1 || i + k >= n) continue;
+        const tone = bestA * kernelDensityAt(window, Math.abs(k - bestD));
+        const model = bg + tone;
+        const v = (2 / sp.dof) * model * model + (SHAPE_TOLERANCE * tone) ** 2;
+        misfit += (sp.psd[i + k]! - model) ** 2 / v;
+        used++;
+      }
+      if (used > 2 && misfit > chiSquareUpperQuantile(SHAPE_LEVEL, used - 2)) continue;
+    }
     out.push({
       frequencyHz: sp.frequencyHz[i]! + bestD * sp.lineSpacingHz,
       peak: Math.sqrt(2 * bestA * sp.lineSpacingHz),
