@@ -821,7 +821,7 @@ async function allFindings(): Promise<Finding[]> {
         bits: 16,
         channels: 1,
         sampleRate: 1024,
-        samples: Array.from(x, (v, i) => Math.round(3000 * (v + 0.05 * Math.cos((2 * Math.PI * 123.4 * i) / 1024)))),
+        samples: Array.from(x, (v, i) => Math.round(3000 * (v + 0.15 * Math.cos((2 * Math.PI * 123.4 * i) / 1024)))),
       }),
     );
     return f;
