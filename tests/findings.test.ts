@@ -917,6 +917,10 @@ describe("finding texts (src/report/findingTexts.ts): one row per code", () => {
     expect(findingText({ code: "DURATION_SHORT", values: { durationS: 25, requiredDurationS: 40 } })).toBe(
       "the record lasts 25.00 s, shorter than the 40 s the profile requires: it cannot show the whole test",
     );
+    // Just short: as many decimals as show it short.
+    expect(findingText({ code: "DURATION_SHORT", values: { durationS: 39.9998, requiredDurationS: 40 } })).toBe(
+      "the record lasts 39.9998 s, shorter than the 40 s the profile requires: it cannot show the whole test",
+    );
     expect(
       findingText({
         code: "TONE_UNRESOLVED",

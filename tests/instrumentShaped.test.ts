@@ -463,6 +463,19 @@ describe("integer WAVs with and without calibration", () => {
     expect((await cli("psd", writeFloatWav(dir, "float.wav", [x], fs))).stdout).not.toContain("  reading ");
   });
 
+  it("a sensitivity alone: the codes are still read as ±1 V full scale, said so (a ±10 V recorder would read 20 dB low)", async () => {
+    const r = await cli("psd", bare, "--sensitivity", "100mV/g", "--json");
+    const j = JSON.parse(r.stdout);
+    expect(j.channels[0].reading.fullScaleAssumed).toBe(true);
+    expect(j.channels[0].reading.fileUnit).toBe("V");
+    expect((await cli("psd", bare, "--sensitivity", "100mV/g")).stdout).toContain(
+      `  reading    "ch1": integer WAV codes with no calibration, read as ±1 V full scale (no calibration chunk or --scale; the sensitivity turns volts into acceleration, not codes into volts); --scale K reads K V per full scale`,
+    );
+    // With the recorder's full scale given as well, nothing is assumed.
+    const k = JSON.parse((await cli("psd", bare, "--sensitivity", "100mV/g", "--scale", "10", "--json")).stdout);
+    expect(k.channels[0].reading.fullScaleAssumed).toBe(false);
+  });
+
   it("the JSON says it per channel (reading.fullScaleAssumed)", async () => {
     const j = JSON.parse((await cli("psd", bare, "--json")).stdout);
     expect(j.channels[0].reading.fullScaleAssumed).toBe(true);

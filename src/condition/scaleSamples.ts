@@ -54,8 +54,8 @@ export interface ChannelReading {
   /** Everything multiplied: file number x factor = result. */
   factor: number;
   /**
-   * Integer codes (a PCM WAV) with no calibration at all (none in the file, no `scale`, no sensitivity):
-   * full scale is read as 1 of the unit, a guess every command says aloud.
+   * Integer codes (a PCM WAV) with no calibration in the file and no `scale`: full scale is read as 1 of the unit (1 V
+   * when a sensitivity is given), a guess every command says aloud.
    */
   fullScaleAssumed: boolean;
 }
@@ -238,11 +238,8 @@ function conditionChannel(
       sensitivity,
       unitFactor: volts * unit.factor,
       factor,
-      fullScaleAssumed:
-        ch.integerFullScale === true &&
-        ch.fileScale === undefined &&
-        userScale === undefined &&
-        sensitivityText === undefined,
+      // A sensitivity turns volts into acceleration, not codes into volts: without a scale, full scale is still 1 V.
+      fullScaleAssumed: ch.integerFullScale === true && ch.fileScale === undefined && userScale === undefined,
     },
   };
 }

@@ -73,6 +73,13 @@ function movingText(v: Values, a: FindingAbout): string {
   return `the ${a.level} level is not stationary (${runs ? "run test: R" : "reverse arrangements A"} = ${v.statistic} outside ${v.acceptAbove} < ${runs ? "R" : "A"} <= ${v.acceptAtMost}, ${v.values} values)`;
 }
 
+/** A duration below a requirement, with the decimals that show it below (39.9998 s is not "40.00 s, shorter than 40 s"). */
+function shorter(d: number, required: number): string {
+  let k = 2;
+  while (k < 9 && Number(d.toFixed(k)) >= required) k++;
+  return d.toFixed(k);
+}
+
 const PASS_TEXTS = {
   NON_FINITE: (v) => `${v.samples} sample(s) are NaN or infinite; ${v.segmentsLeftOut} segment(s) left out of the PSD`,
   HELD_SAMPLES: (v) =>
@@ -133,8 +140,8 @@ const VERDICT_TEXTS = {
     `line spacing ${v.lineSpacingHz!.toPrecision(4)} Hz is coarser than the profile's resolution ${v.profileResolutionHz} Hz: narrow excursions could hide between lines`,
   DURATION_SHORT: (v) =>
     v.fromS !== undefined
-      ? `the analysed window ${v.fromS.toFixed(3)} to ${v.toS!.toFixed(3)} s lasts ${v.durationS!.toFixed(2)} s, shorter than the ${v.requiredDurationS} s the profile requires: it cannot show the whole test`
-      : `the record lasts ${v.durationS!.toFixed(2)} s, shorter than the ${v.requiredDurationS} s the profile requires: it cannot show the whole test`,
+      ? `the analysed window ${v.fromS.toFixed(3)} to ${v.toS!.toFixed(3)} s lasts ${shorter(v.durationS!, v.requiredDurationS!)} s, shorter than the ${v.requiredDurationS} s the profile requires: it cannot show the whole test`
+      : `the record lasts ${shorter(v.durationS!, v.requiredDurationS!)} s, shorter than the ${v.requiredDurationS} s the profile requires: it cannot show the whole test`,
   RUN_TO_DECIDE: (v, a) =>
     v.seconds !== undefined
       ? `a run of ${v.seconds.toFixed(1)} s (${v.dof!.toFixed(0)} DOF) would decide this verdict with at least ${pct(v.probabilityPercent!)} probability if the spectrum is as measured (most likely ${a.likely === "pass" ? "a pass" : "a fail"})`
@@ -243,7 +250,7 @@ const DERIVE_TEXTS = {
   FIELD_DAMAGE_IN_TIME: () =>
     "the field's fatigue-damage and extreme-response spectra come from the recordings themselves (each filtered through each SDOF in time: rainflow damage scaled by service time, the largest response grown by Davenport's factors), while the test's come from the profile's PSD (narrow-band, Gaussian): on a Gaussian field the rainflow damage runs 5-17 % below narrow-band, so the test then over-tests by about that much (less in level: the 2/b power)",
   FULL_SCALE_ASSUMED: (_v, a) =>
-    `integer WAV codes with no calibration, read as ±1 ${a.unit} full scale (no calibration chunk, scale or sensitivity): every level rests on that`,
+    `integer WAV codes with no calibration, read as ±1 ${a.unit} full scale (no calibration chunk${a.unit === "V" ? " or scale; a sensitivity turns volts into acceleration, not codes into volts" : ", scale or sensitivity"}): every level rests on that`,
   FIELD_TONES: (v) =>
     `${v.tones} candidate sine tone(s) in the field recordings (listed): kept out of the random envelope, mean, tolerance limit and damage; give them to the lab profile as tones (mixed mode) if they are real`,
   TOLERANCE_LIMIT_MISSING: (v) =>

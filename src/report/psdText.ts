@@ -32,8 +32,11 @@ export function fullScaleLines(channels: { name: string; reading: ChannelReading
   const assumed = channels.filter((c) => c.reading.fullScaleAssumed);
   if (assumed.length === 0) return [];
   const units = [...new Set(assumed.map((c) => c.reading.fileUnit))].join(" or ");
+  const why = assumed.every((c) => c.reading.sensitivity !== null)
+    ? "no calibration chunk or --scale; the sensitivity turns volts into acceleration, not codes into volts"
+    : "no calibration chunk, --scale or --sensitivity";
   return [
-    `  reading    ${assumed.map((c) => `"${printable(c.name)}"`).join(", ")}: integer WAV codes with no calibration, read as ±1 ${units} full scale (no calibration chunk, --scale or --sensitivity); --scale K reads K ${units} per full scale`,
+    `  reading    ${assumed.map((c) => `"${printable(c.name)}"`).join(", ")}: integer WAV codes with no calibration, read as ±1 ${units} full scale (${why}); --scale K reads K ${units} per full scale`,
   ];
 }
 

@@ -283,7 +283,10 @@ export function settingsRows(a: RecordingAnalysis, ctx: ReportContext): string {
                     `×${sig(c.reading.factor, 8)} from file number to result${a.input.format === "wav" ? " (per full scale)" : ""}`,
                 ),
               ),
-            ].join("; "),
+            ].join("; ") +
+              (a.channels.some((c) => c.reading.fullScaleAssumed)
+                ? `; full scale read as 1 ${[...new Set(a.channels.filter((c) => c.reading.fullScaleAssumed).map((c) => c.reading.fileUnit))].join(" or ")} (--scale sets it)`
+                : ""),
           )
         : a.input.format === "wav"
           ? "none: full scale read as 1 (--scale or a sensitivity sets it)"

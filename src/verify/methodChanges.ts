@@ -83,7 +83,12 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   {
     version: "0.4.0",
     kinds: ["*"],
-    what: "WAV: the quantisation step from WAVE_FORMAT_EXTENSIBLE's valid bits, the data size of a plain RIFF file over 4 GiB",
+    what: "WAV: the quantisation step from WAVE_FORMAT_EXTENSIBLE's valid bits, the data size of a plain RIFF file over 4 GiB, full scale said as assumed (±1 V) when only a sensitivity is given",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["*"],
+    what: "the reverse-arrangements count: values equal to 1e-9 of the largest are ties, each half an arrangement (a level that does not move is stationary)",
   },
   {
     version: "0.4.0",

@@ -200,9 +200,7 @@ describe("psdgate derive", () => {
     for (const id of ["field-srs", "test-ers-shock", "shock-shortfall"])
       expect(section).toContain(`data-series="${id}"`);
     expect(j.shocks.shortfallHz.length).toBeGreaterThan(0);
-    expect(section).toMatch(
-      /The test falls short<\/strong> at 35 of 39 natural frequencies \(5, 5\.612, 6\.3/,
-    );
+    expect(section).toMatch(/The test falls short<\/strong> at 35 of 39 natural frequencies \(5, 5\.612, 6\.3/);
     const v = await cli("verify", rep);
     expect(v.code, v.stdout).toBe(0);
   });

@@ -84,6 +84,27 @@ export function reverseArrangementCount(x: ArrayLike<number>): number {
 }
 
 /**
+ * The count the test uses: values equal to 1e-9 of the largest are ties, and a tie counts half a reverse arrangement
+ * (mid-ranks, as Kendall's tau treats ties: common practice). A level that does not move (a calibrator's sine, whose
+ * stretches agree to the last few bits) then gives the count's expectation n(n - 1)/4, not whatever order its rounding
+ * happens to take; values that differ give the plain count.
+ */
+function reverseArrangementsWithTies(values: ArrayLike<number>): number {
+  let big = 0;
+  for (let i = 0; i < values.length; i++) big = Math.max(big, Math.abs(values[i]!));
+  if (!(big > 0) || !Number.isFinite(big)) return reverseArrangementCount(values);
+  const q = big * 1e-9;
+  const x = Float64Array.from(values, (v) => Math.round(v / q));
+  const sorted = Float64Array.from(x).sort();
+  let ties = 0;
+  for (let i = 0, j = 0; i < sorted.length; i = j) {
+    while (j < sorted.length && sorted[j] === sorted[i]) j++;
+    ties += ((j - i) * (j - i - 1)) / 2;
+  }
+  return ties === 0 ? reverseArrangementCount(values) : reverseArrangementCount(x) + ties / 2;
+}
+
+/**
  * Two-sided region from a discrete distribution p[v - offset]: L largest with P(<= L) <= a/2, U smallest with P(> U) <=
  * a/2.
  */
@@ -127,7 +148,7 @@ function inversionRegion(n: number, alpha: number): { low: number; high: number;
 
 export function reverseArrangementsTest(values: ArrayLike<number>, alpha = 0.05): StationarityTest {
   const n = values.length;
-  const a = reverseArrangementCount(values);
+  const a = reverseArrangementsWithTies(values);
   const expected = (n * (n - 1)) / 4;
   const std = Math.sqrt((n * (2 * n + 5) * (n - 1)) / 72);
   const exact = n <= EXACT_LIMIT;

@@ -55,6 +55,23 @@ describe("reverse arrangements test", () => {
       expect(reverseArrangementCount(x)).toBe(a);
     }
   });
+  it("a level that does not move: values equal to 1e-9 are ties, each half a reverse arrangement (mid-ranks, common practice)", () => {
+    const u = seeded(5);
+    // A calibrator's sine: 1 s stretches whose mean squares differ only in their last bits.
+    const still = Float64Array.from({ length: 80 }, () => 0.5 * (1 + 4e-16 * (u() - 0.5)));
+    const t = reverseArrangementsTest(still);
+    expect(t.statistic).toBe((80 * 79) / 4);
+    expect(t.stationary).toBe(true);
+    // Ties among differing values: the direct count with ties as halves.
+    const x = Array.from({ length: 64 }, () => Math.floor(u() * 6));
+    let a = 0;
+    for (let i = 0; i < 64; i++) for (let j = i + 1; j < 64; j++) a += x[i]! > x[j]! ? 1 : x[i] === x[j] ? 0.5 : 0;
+    expect(reverseArrangementsTest(x).statistic).toBe(a);
+    // Values that differ keep the plain count, and a trend is still found.
+    const trend = Float64Array.from({ length: 40 }, (_, i) => 1 + 0.01 * i + 0.001 * u());
+    expect(reverseArrangementsTest(trend).statistic).toBe(reverseArrangementCount(trend));
+    expect(reverseArrangementsTest(trend).stationary).toBe(false);
+  });
   it("a large n uses the normal approximation with the same mean and spread", () => {
     const t = reverseArrangementsTest(
       Float64Array.from({ length: 400 }, (_, i) => Math.sin(i)),
