@@ -4,6 +4,7 @@ import { welchPsd } from "../../../src/estimate/spectral/psdEstimate.js";
 import { spectralKernel } from "../../../src/estimate/spectral/spectralKernel.js";
 import { spectralTones } from "../../../src/estimate/spectral/toneEstimate.js";
 import { spectralWindow } from "../../../src/estimate/spectral/windows.js";
+import { seeded } from "../../helpers.js";
 
 /**
  * The tone candidates' kernel-shape test (spectralTones) on records this test makes itself: Gaussian noise shaped in
@@ -12,17 +13,10 @@ import { spectralWindow } from "../../../src/estimate/spectral/windows.js";
  * segments (1 Hz lines), 50 % overlap, 32 s (about 119 DOF) and 256 s (about 950 DOF).
  */
 
-/** Seeded uniform (mulberry32, common practice) and Box-Muller normals. */
+/** Seeded uniforms (tests/helpers.ts, mulberry32) and Box-Muller normals from them. */
 function normals(seed: number) {
-  let a = seed >>> 0;
-  const u = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-  return { normal: () => Math.sqrt(-2 * Math.log(1 - u())) * Math.cos(2 * Math.PI * u()), uniform: u };
+  const uniform = seeded(seed);
+  return { normal: () => Math.sqrt(-2 * Math.log(1 - uniform())) * Math.cos(2 * Math.PI * uniform()), uniform };
 }
 
 const FS = 1024;
