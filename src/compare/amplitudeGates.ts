@@ -138,7 +138,13 @@ export function offsetLines(window: Float64Array): number {
  * "none"): there they hold the offset (gravity), which is no part of the motion the gates judge, and whose
  * correlation near 1 at every lag made a Gaussian record's crossings look too rare.
  */
-export function amplitudeGates(s: SampleStatistics, p: PsdEstimate, durationS: number, skipLines = 0): AmplitudeGates {
+export function amplitudeGates(
+  s: SampleStatistics,
+  p: PsdEstimate,
+  durationS: number,
+  skipLines = 0,
+  tonePowers: readonly number[] = [],
+): AmplitudeGates {
   const doubts: Finding[] = [];
   const notes: Finding[] = [];
   let m0 = 0;
@@ -163,11 +169,24 @@ export function amplitudeGates(s: SampleStatistics, p: PsdEstimate, durationS: n
       values: { crestFactor: c, crossings },
     });
   }
-  if (Number.isFinite(kurt) && kurt < 3 - z * kSpread) {
-    doubts.push({ code: "KURTOSIS_LOW", values: { kurtosis: kurt, spread: kSpread } });
+  // Sine tones the spectrum shows (power s_k = A_k^2 / 2 each) lower a Gaussian record's kurtosis to
+  // 3 - 1.5 sum (s_k / V)^2, V the whole variance: the fourth moment of Gaussian plus independent sines, E[cos^4] = 3/8
+  // (derived here). A sine-on-random record is not clipped for having them.
+  const variance = m0 * p.lineSpacingHz;
+  let toneFourth = 0;
+  for (const t of tonePowers) toneFourth += variance > 0 ? (t / variance) ** 2 : 0;
+  const centre = 3 - 1.5 * Math.min(toneFourth, 1);
+  if (Number.isFinite(kurt) && kurt < centre - z * kSpread) {
+    doubts.push({
+      code: "KURTOSIS_LOW",
+      values: { kurtosis: kurt, spread: kSpread, ...(centre < 3 ? { expected: centre } : {}) },
+    });
   }
-  if (Number.isFinite(kurt) && kurt > 3 + z * kSpread) {
-    notes.push({ code: "KURTOSIS_HIGH", values: { kurtosis: kurt, spread: kSpread } });
+  if (Number.isFinite(kurt) && kurt > centre + z * kSpread) {
+    notes.push({
+      code: "KURTOSIS_HIGH",
+      values: { kurtosis: kurt, spread: kSpread, ...(centre < 3 ? { expected: centre } : {}) },
+    });
   }
   if (Number.isFinite(crossings) && crossings < GATE_RATE) {
     notes.push({ code: "CREST_HIGH", values: { crestFactor: c } });

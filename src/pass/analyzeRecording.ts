@@ -353,6 +353,12 @@ function channelResult(
   const stationarity = stationarityFinding(stretchMs, b.stretchLength / fs, windowInfo.fromS);
   const hold = b.holds[c]!.result(fs);
   const spectrum = analysis.spectrum;
+  const tones =
+    spectrum && psd.dof > 0
+      ? spectralTones(psd, b.window, spectralKernel(settings.window, b.window, settings.detrend).halfWidthBins, {
+          max: 8,
+        })
+      : [];
   const { notes, doubts } = _channelFindings(
     stats,
     psd,
@@ -364,6 +370,7 @@ function channelResult(
     hold,
     settings.detrend === "none" ? offsetLines(b.window) : 0,
     (info.channels[idx]!.quantum ?? 0) * Math.abs(conditioning.reading.factor),
+    tones.map((t) => (t.peak * t.peak) / 2),
   );
   const note = stationarityNote(stationarity);
   if (note !== undefined) notes.push(note);
@@ -382,12 +389,7 @@ function channelResult(
     parseval,
     band,
     peaks: strongestPeaks(psd, 5),
-    tones:
-      spectrum && psd.dof > 0
-        ? spectralTones(psd, b.window, spectralKernel(settings.window, b.window, settings.detrend).halfWidthBins, {
-            max: 8,
-          })
-        : [],
+    tones,
     histogram: b.histograms ? b.histograms[c]!.densityAround(stats.mean, stats.std) : undefined,
     peakHold: b.peakHolds ? b.peakHolds[c]!.finish(fs) : undefined,
     stationarity,
@@ -509,6 +511,7 @@ export function _channelFindings(
   hold?: SampleHold,
   gateSkipLines = 0,
   quantum = 0,
+  tonePowers: readonly number[] = [],
 ) {
   const notes: Finding[] = [];
   const doubts: Finding[] = [];
@@ -585,6 +588,7 @@ export function _channelFindings(
         p,
         durationS,
         gateSkipLines,
+        tonePowers,
       );
       doubts.push(...g.doubts);
       notes.push(

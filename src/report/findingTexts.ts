@@ -108,9 +108,9 @@ const PASS_TEXTS = {
   CREST_LOW: (v) =>
     `crest factor ${v.crestFactor!.toFixed(2)} (max |x - trend| / rms) is far below a Gaussian record's: one this long would pass ±${v.crestFactor!.toFixed(2)} sigma about ${v.crossings!.toPrecision(3)} times (saturated or clipped signal?)`,
   KURTOSIS_LOW: (v) =>
-    `kurtosis ${v.kurtosis!.toFixed(3)} is far below a Gaussian record's 3 (±${v.spread!.toPrecision(2)} for this record): peaks cut off or a deterministic signal`,
+    `kurtosis ${v.kurtosis!.toFixed(3)} is far below ${v.expected !== undefined ? `the ${v.expected.toFixed(3)} of a Gaussian record with the tones it shows` : "a Gaussian record's 3"} (±${v.spread!.toPrecision(2)} for this record): peaks cut off or a deterministic signal`,
   KURTOSIS_HIGH: (v) =>
-    `kurtosis ${v.kurtosis!.toFixed(3)} is above a Gaussian record's 3 (±${v.spread!.toPrecision(2)}): more large peaks than Gaussian (shocks, impacts); the PSD alone understates them`,
+    `kurtosis ${v.kurtosis!.toFixed(3)} is above ${v.expected !== undefined ? `the ${v.expected.toFixed(3)} of a Gaussian record with the tones it shows` : "a Gaussian record's 3"} (±${v.spread!.toPrecision(2)}): more large peaks than Gaussian (shocks, impacts); the PSD alone understates them`,
   CREST_HIGH: (v) =>
     `crest factor ${v.crestFactor!.toFixed(2)} is above what a Gaussian record this long reaches (shock or spike?)`,
   KURTOSIS_QUANTISED: (v) =>

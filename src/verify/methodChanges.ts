@@ -88,6 +88,11 @@ export const METHOD_CHANGES: readonly MethodChange[] = [
   {
     version: "0.4.0",
     kinds: ["*"],
+    what: "the kurtosis gate on a record with sine tones (centred on 3 - 1.5 sum (s_k / V)^2, not 3)",
+  },
+  {
+    version: "0.4.0",
+    kinds: ["*"],
     what: "the reverse-arrangements count: values equal to 1e-9 of the largest are ties, each half an arrangement (a level that does not move is stationary)",
   },
   {
